@@ -1,0 +1,69 @@
+# dimerpath: two commands set everything up on a fresh Debian/Ubuntu machine.
+#   make run    install what is missing, build, open the GUI on the demo design
+#   make test   install what is missing, then every check CI runs
+SHELL := /bin/bash
+export PATH := $(PATH):/usr/local/go/bin
+export LANG := C.UTF-8
+
+GO      ?= go
+BIN     := bin/dimerpath
+# Run apt-get through sudo unless we are root already.
+SUDO    := $(shell [ "$$(id -u)" = 0 ] || echo sudo)
+# cgo and the GL/X11 headers build the Fyne GUI; xvfb, xauth and imagemagick
+# run and screenshot it headless; poppler-utils reads exported PDFs back.
+DEB_PKGS := gcc pkg-config libgl1-mesa-dev libx11-dev libxcursor-dev libxrandr-dev \
+            libxinerama-dev libxi-dev libxxf86vm-dev xvfb xauth imagemagick poppler-utils
+
+.PHONY: all run test bench build deps lint fuzz clean
+
+all: build
+
+deps:
+	@missing=""; \
+	for p in $(DEB_PKGS); do \
+	  dpkg-query -W -f='$${Status}' $$p 2>/dev/null | grep -q "install ok installed" || missing="$$missing $$p"; \
+	done; \
+	if [ -n "$$missing" ]; then \
+	  echo "dimerpath: installing missing Debian packages:$$missing"; \
+	  $(SUDO) apt-get update -qq && \
+	  $(SUDO) env DEBIAN_FRONTEND=noninteractive apt-get install -y -qq --no-install-recommends $$missing; \
+	fi
+	@command -v $(GO) >/dev/null || { echo "dimerpath: Go is not installed (see README)"; exit 1; }
+	@$(GO) mod download
+
+build: deps
+	$(GO) build -o $(BIN) .
+
+run: build
+	./$(BIN)
+
+lint:
+	@out=$$(gofmt -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go')); \
+	if [ -n "$$out" ]; then echo "gofmt would change:"; echo "$$out"; exit 1; fi
+	$(GO) vet ./...
+	@# Only app/ may import Fyne; the pure packages stay headless.
+	@bad=$$($(GO) list -deps ./lattice/... ./planner/... ./export/... | grep '^fyne.io/' || true); \
+	if [ -n "$$bad" ]; then echo "pure packages import Fyne:"; echo "$$bad"; exit 1; fi
+	@bad=$$($(GO) list -deps ./lattice/... | grep '^dimerpath/planner' || true); \
+	if [ -n "$$bad" ]; then echo "lattice imports planner"; exit 1; fi
+	@bad=$$($(GO) list -deps ./planner/route/... | grep '^dimerpath/' || true); \
+	if [ -n "$$bad" ]; then echo "planner/route imports dimerpath packages: $$bad"; exit 1; fi
+
+test: deps lint build
+	$(GO) test -count=1 ./...
+	./.ci/smoke
+
+bench: deps
+	$(GO) test -run '^$$' -bench . -benchmem ./...
+
+# Fuzz every file reader for FUZZTIME each (default 20s).
+FUZZTIME ?= 20s
+fuzz: deps
+	@for pkg in $$($(GO) list ./...); do \
+	  for f in $$($(GO) test -list '^Fuzz' $$pkg | grep '^Fuzz'); do \
+	    echo "== $$pkg $$f"; $(GO) test -run '^$$' -fuzz "^$$f$$" -fuzztime $(FUZZTIME) $$pkg || exit 1; \
+	  done; \
+	done
+
+clean:
+	rm -rf bin

@@ -1,0 +1,176 @@
+package design
+
+import (
+	"dimerpath/lattice"
+)
+
+// FormatName and FormatVersion identify dimerpath's design files. A file
+// with a higher version than FormatVersion is refused, never half-read.
+const (
+	FormatName    = "dimerpath-design"
+	FormatVersion = 1
+)
+
+// Design is one device layout: the scan field, its terraces, the
+// fiducial marks used for re-registration, design-rule settings, the
+// dopant-window templates and one or more layout variants.
+type Design struct {
+	Format      string     `json:"format"`
+	Version     int        `json:"version"`
+	Name        string     `json:"name"`
+	Description string     `json:"description,omitempty"`
+	Field       Field      `json:"field"`
+	Terraces    []Terrace  `json:"terraces,omitempty"`
+	Fiducials   []Fiducial `json:"fiducials,omitempty"`
+	// Rules overrides the design-rule defaults; nil fields keep them.
+	Rules *Rules `json:"rules,omitempty"`
+	// Templates overrides or adds dopant-window templates; the built-in
+	// P and As templates apply where none of the same name is given.
+	Templates []lattice.WindowTemplate `json:"templates,omitempty"`
+	Variants  []Variant                `json:"variants"`
+}
+
+// Field is the scan field, with its lower-left corner at the origin.
+type Field struct {
+	WidthNM  float64 `json:"width_nm"`
+	HeightNM float64 `json:"height_nm"`
+}
+
+// Terrace is a terrace as written in the file.
+type Terrace struct {
+	Name string `json:"name"`
+	// Boundary is the outline polygon in nm; empty means the rest of the
+	// field.
+	Boundary [][2]float64 `json:"boundary_nm,omitempty"`
+	// Rows is "x" or "y": the direction the dimer rows run.
+	Rows string `json:"rows"`
+	// OffsetNM places row 0, dimer 0 (see lattice.Terrace.Offset).
+	OffsetNM [2]float64 `json:"offset_nm"`
+}
+
+// Fiducial is a mark the operator images to re-register the tip's
+// position between write segments.
+type Fiducial struct {
+	Name string     `json:"name"`
+	AtNM [2]float64 `json:"at_nm"`
+}
+
+// Variant is one named layout alternative of the design.
+type Variant struct {
+	Name        string   `json:"name"`
+	Description string   `json:"description,omitempty"`
+	Regions     []Region `json:"regions"`
+	// TunnelGaps names the pairs of regions meant to be tunnel-coupled
+	// across a gap (for example an SET island and its source lead); the
+	// gap width is checked and the pair counts as connected for the
+	// floating-region rule.
+	TunnelGaps []TunnelGap `json:"tunnel_gaps,omitempty"`
+}
+
+// TunnelGap is a designed tunnel barrier between two regions.
+type TunnelGap struct {
+	A string `json:"a"`
+	B string `json:"b"`
+	// MinNM and MaxNM override the rule's range for this gap; 0 keeps it.
+	MinNM float64 `json:"min_nm,omitempty"`
+	MaxNM float64 `json:"max_nm,omitempty"`
+}
+
+// Role is what a region is for in the device.
+type Role string
+
+const (
+	RoleDevice Role = "device" // active structure: island, channel, donor cluster
+	RoleGate   Role = "gate"   // in-plane gate
+	RoleLead   Role = "lead"   // wire from a device or gate out to a pad
+	RolePad    Role = "pad"    // contact pad, µm-size, usually field-emission mode
+	RoleDonor  Role = "donor"  // single-donor windows: not wired to a pad
+	RoleOther  Role = "other"  // marks, test lines
+)
+
+// Mode is the write mode asked for a region.
+type Mode string
+
+const (
+	ModeAuto   Mode = "auto"   // the planner chooses, and says why
+	ModeAP     Mode = "ap"     // atomic-precision: low bias, slow, one row wide
+	ModeFE     Mode = "fe"     // field-emission: high bias, fast, wide lines
+	ModeHybrid Mode = "hybrid" // AP outline band plus FE fill
+)
+
+// Region is one named part of a variant. Its sites are the union of its
+// shapes and painted sites, minus its erased sites.
+type Region struct {
+	Name string `json:"name"`
+	Role Role   `json:"role"`
+	Mode Mode   `json:"mode"`
+	// Species is the dopant precursor the region's windows are meant
+	// for ("P" from phosphine, "As" from arsine), or empty.
+	Species string `json:"species,omitempty"`
+	// ToleranceNM is the placement tolerance (±nm); 0 takes the mode's
+	// default (AP ±0.2 nm, FE ±2 nm).
+	ToleranceNM float64 `json:"tolerance_nm,omitempty"`
+	Shapes      []Shape `json:"shapes,omitempty"`
+	// Painted and Erased hold sites set or cleared by hand, stored in the
+	// file as runs per row.
+	Painted *lattice.SiteSet `json:"painted,omitempty"`
+	Erased  *lattice.SiteSet `json:"erased,omitempty"`
+}
+
+// ShapeKind names a shape in the file.
+type ShapeKind string
+
+const (
+	ShapeSite     ShapeKind = "site"     // one H site nearest Points[0]
+	ShapeDimer    ShapeKind = "dimer"    // both H sites of the dimer nearest Points[0]
+	ShapeRect     ShapeKind = "rect"     // axis-aligned, corners Points[0] and Points[1]
+	ShapePolygon  ShapeKind = "polygon"  // vertices Points (3 or more)
+	ShapePolyline ShapeKind = "polyline" // vertices Points (2 or more), WidthNM wide
+	ShapeWindow   ShapeKind = "window"   // dopant window of Template, centred on the dimer nearest Points[0]
+	ShapeArray    ShapeKind = "array"    // Array.Cols x Array.Rows copies of Array.Of
+)
+
+// Shape is one geometric primitive, in field nm, rasterised onto the
+// lattice by snapping (a site belongs to a shape when its position lies
+// inside it).
+type Shape struct {
+	Kind    ShapeKind    `json:"kind"`
+	Points  [][2]float64 `json:"points_nm,omitempty"`
+	WidthNM float64      `json:"width_nm,omitempty"`
+	// Template names the window template for ShapeWindow ("P", "As" or a
+	// design's own).
+	Template string `json:"template,omitempty"`
+	Array    *Array `json:"array,omitempty"`
+}
+
+// Array repeats a site, dimer or window shape on a regular grid whose
+// pitch is counted in dimers along the row and in rows across it, so
+// every copy sits on the lattice exactly.
+type Array struct {
+	Of          *Shape `json:"of"`
+	Cols        int    `json:"cols"`
+	Rows        int    `json:"rows"`
+	PitchDimers int    `json:"pitch_dimers"`
+	PitchRows   int    `json:"pitch_rows"`
+}
+
+// Rules holds the design-rule settings; a nil field keeps the default.
+type Rules struct {
+	// ScanFieldNM is the largest field the instrument scans without a
+	// coarse move (default 2000 x 2000 nm).
+	ScanFieldNM *[2]float64 `json:"scan_field_nm,omitempty"`
+	// WindowGapDimers is the least number of intact dimers between two
+	// windows on one row (default 1).
+	WindowGapDimers *int `json:"window_gap_dimers,omitempty"`
+	// WindowFacingRows is how many neighbouring rows on each side must
+	// hold no window in the facing segment (default 1).
+	WindowFacingRows *int `json:"window_facing_rows,omitempty"`
+	// FEKeepOutNM is the least gap between field-emission regions and
+	// atomic-precision features (default 5 nm).
+	FEKeepOutNM *float64 `json:"fe_keepout_nm,omitempty"`
+	// TunnelGapMinNM and TunnelGapMaxNM bound designed tunnel gaps
+	// (default 5.4–12.3 nm: 7–16 dimer rows, Wang et al., Commun. Phys.
+	// 3, 82 (2020)).
+	TunnelGapMinNM *float64 `json:"tunnel_gap_min_nm,omitempty"`
+	TunnelGapMaxNM *float64 `json:"tunnel_gap_max_nm,omitempty"`
+}

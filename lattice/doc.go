@@ -1,0 +1,29 @@
+// Package lattice models the hydrogen-terminated Si(100)-2x1 surface that
+// an STM tip writes on: its published geometry, the integer address of
+// every H site, terraces separated by single-height steps (across which
+// the dimer-row direction turns by 90° and the lattice shifts), compact
+// sets of sites that stay fast at 10^7 sites, and the shapes and
+// dopant-window templates that are rasterised into such sets.
+//
+// # Frame and units
+//
+// Positions are in nanometres in the field frame: the origin is the
+// lower-left corner of the scan field, x points right and y points up.
+// A terrace's dimer rows run along x (RowsAlongX) or along y
+// (RowsAlongY). On a RowsAlongX terrace, row r has its centre line at
+// y = Offset.Y + r·RowSpacing, dimer d sits at x = Offset.X + d·DimerPitch,
+// and the dimer's two H sites lie HOffset below (side 0) and above
+// (side 1) the centre line; a RowsAlongY terrace is the same with x and y
+// exchanged (side 0 is then the left atom).
+//
+// Within a row, sites are numbered by Index = 2·Dimer + Side, so the
+// sites of consecutive dimers along a row form one run of consecutive
+// indices. Rows, dimers and indices are never negative: a terrace's
+// offset is reduced into one lattice cell, so index 0 lies at or just
+// inside the field's lower-left corner.
+//
+// # References
+//
+// CODATA 2018 for the Si lattice constant; see geometry.go for the
+// source of every constant.
+package lattice
