@@ -9,7 +9,9 @@ import (
 
 // Four dwell points and two strokes, from a tip parked at the origin.
 func ExampleSolve() {
-	pt := func(x, y float64) route.Item { return route.Item{A: route.Point{X: x, Y: y}, B: route.Point{X: x, Y: y}} }
+	pt := func(x, y float64) route.Item {
+		return route.Item{A: route.Point{X: x, Y: y}, B: route.Point{X: x, Y: y}}
+	}
 	p := route.Problem{
 		Items: []route.Item{
 			pt(10, 0),
@@ -38,7 +40,9 @@ func ExampleSolve() {
 
 // A closed tour with groups: all of group 1 must come before group 0.
 func ExampleSolve_groups() {
-	pt := func(x, y float64) route.Item { return route.Item{A: route.Point{X: x, Y: y}, B: route.Point{X: x, Y: y}} }
+	pt := func(x, y float64) route.Item {
+		return route.Item{A: route.Point{X: x, Y: y}, B: route.Point{X: x, Y: y}}
+	}
 	p := route.Problem{
 		Items:  []route.Item{pt(0, 1), pt(0, 2), pt(5, 1), pt(5, 2)},
 		Group:  []int{0, 0, 1, 1},
