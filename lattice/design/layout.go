@@ -8,6 +8,10 @@ import (
 	"dimerpath/lattice"
 )
 
+// MaxLayoutWords bounds the site storage of all regions of one laid-out
+// variant, in 64-bit words (256 MiB: about 40 fully covered 2 µm fields).
+const MaxLayoutWords = 1 << 25
+
 // Layout is one variant of a design laid onto its lattice: the surface,
 // the rule settings, the templates and every region's sites and windows.
 // It is what the planner, the checks and the GUI work from; it shares
@@ -57,11 +61,15 @@ func (d *Design) Lay(variant string) (*Layout, error) {
 		Templates: d.Templates(),
 		Regions:   make([]RegionLayout, len(v.Regions)),
 	}
+	words := 0
 	for i := range v.Regions {
 		r := &v.Regions[i]
 		sites, err := r.Sites(surf, l.Templates)
 		if err != nil {
 			return nil, fmt.Errorf("variant %q: %w", v.Name, err)
+		}
+		if words += sites.StorageWords(); words > MaxLayoutWords {
+			return nil, fmt.Errorf("variant %q: its regions need more than %d MiB of site storage, the limit (at region %q)", v.Name, MaxLayoutWords*8>>20, r.Name)
 		}
 		windows, err := r.Windows(surf, l.Templates)
 		if err != nil {
