@@ -1,6 +1,10 @@
 package lattice
 
-import "math"
+import (
+	"math"
+
+	"github.com/golang/geo/r2"
+)
 
 // A site exists on the surface when its dimer's centre lies in the field
 // and on the site's terrace (so both H sites of a dimer always share a
@@ -200,4 +204,53 @@ func (s *Surface) Missing(set *SiteSet) *SiteSet {
 		}
 	}
 	return out
+}
+
+// SiteCell returns the lattice cell of a site, in field nm: the
+// rectangle DimerPitch long along the row and RowSpacing/2 across it
+// that holds the site's half of its dimer's 2x1 cell (side 0 the lower
+// half across the row). Cells of neighbouring sites share edges, so the
+// gap between the cells of two sets is the width of the intact surface
+// between them: n intact dimer rows leave a gap of n·RowSpacing.
+func (s *Surface) SiteCell(site Site) r2.Rect {
+	return s.cell(site.Terrace, site.Row, site.Dimer, site.Dimer, site.Side, site.Side)
+}
+
+// RunCells appends to dst the union of the cells (see SiteCell) of a
+// run's sites as at most two rectangles, one per side of the row, or one
+// when both sides cover the same dimers, and returns dst.
+func (s *Surface) RunCells(dst []r2.Rect, run Run) []r2.Rect {
+	start, end := run.Start, run.End()
+	if end <= start {
+		return dst
+	}
+	// Side 0 holds the even indices, side 1 the odd ones.
+	a0, b0 := (start+1)/2, (end-1)/2
+	has0 := 2*a0 < end && a0 <= b0
+	a1, b1 := start/2, (end-2)/2
+	has1 := end >= 2 && 2*a1+1 >= start && 2*a1+1 < end && a1 <= b1
+	switch {
+	case has0 && has1 && a0 == a1 && b0 == b1:
+		return append(dst, s.cell(run.Terrace, run.Row, a0, b0, 0, 1))
+	case has0 && has1:
+		return append(dst, s.cell(run.Terrace, run.Row, a0, b0, 0, 0), s.cell(run.Terrace, run.Row, a1, b1, 1, 1))
+	case has0:
+		return append(dst, s.cell(run.Terrace, run.Row, a0, b0, 0, 0))
+	case has1:
+		return append(dst, s.cell(run.Terrace, run.Row, a1, b1, 1, 1))
+	}
+	return dst
+}
+
+// cell returns the rectangle of the cells of dimers d0..d1 of a row,
+// sides side0..side1.
+func (s *Surface) cell(terrace, row, d0, d1, side0, side1 int) r2.Rect {
+	t := &s.Terraces[terrace]
+	offAlong, offAcross := s.axes(t.Rows, t.Offset)
+	c := offAcross + float64(row)*RowSpacing
+	alongLo := offAlong + (float64(d0)-0.5)*DimerPitch
+	alongHi := offAlong + (float64(d1)+0.5)*DimerPitch
+	acrossLo := c - RowSpacing/2 + float64(side0)*RowSpacing/2
+	acrossHi := c + float64(side1)*RowSpacing/2
+	return r2.RectFromPoints(fromAxes(t.Rows, alongLo, acrossLo), fromAxes(t.Rows, alongHi, acrossHi))
 }

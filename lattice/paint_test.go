@@ -209,3 +209,39 @@ func TestTemplateValidate(t *testing.T) {
 		}
 	}
 }
+
+func TestRunCells(t *testing.T) {
+	s := twoTerraces(t)
+	rng := rand.New(rand.NewPCG(11, 12))
+	for range 300 {
+		ti := rng.IntN(2)
+		start := rng.IntN(40)
+		run := Run{Terrace: ti, Row: 20 + rng.IntN(5), Start: start, Len: 1 + rng.IntN(9)}
+		cells := s.RunCells(nil, run)
+		// Every site's own cell lies in the union, and the union's area is
+		// the sum of the sites' cells (DimerPitch · RowSpacing/2 each).
+		area := 0.0
+		for _, c := range cells {
+			sz := c.Size()
+			area += sz.X * sz.Y
+		}
+		want := float64(run.Len) * DimerPitch * RowSpacing / 2
+		if math.Abs(area-want) > 1e-9 {
+			t.Fatalf("RunCells(%v) area %g, want %g (%v)", run, area, want, cells)
+		}
+		for i := run.Start; i < run.End(); i++ {
+			site := SiteAt(ti, run.Row, i)
+			sc := s.SiteCell(site)
+			if !sc.ContainsPoint(s.Position(site)) {
+				t.Fatalf("SiteCell(%v) = %v does not hold its site %v", site, sc, s.Position(site))
+			}
+			in := false
+			for _, c := range cells {
+				in = in || c.ExpandedByMargin(1e-9).Contains(sc)
+			}
+			if !in {
+				t.Fatalf("cell of %v not in RunCells(%v)", site, run)
+			}
+		}
+	}
+}
