@@ -173,3 +173,26 @@ func storageBomb() string {
 	}
 	return b.String()
 }
+
+// FuzzSiteSetJSON: decoding never panics, and what decodes encodes to the
+// same set.
+func FuzzSiteSetJSON(f *testing.F) {
+	for _, s := range []string{`{"sites":0,"rows":[]}`, `{"sites":10,"rows":[[1,12,100,6,110,4]]}`, `{"rows":[[0,1,2,5,6,1]]}`,
+		`{"sites":1000000000,"rows":[[0,1,0,1]]}`, `{"rows":[[0,1,0,262143]]}`, `{"rows":[[0,0,1e3,1]]}`} {
+		f.Add([]byte(s))
+	}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		var s SiteSet
+		if err := json.Unmarshal(data, &s); err != nil {
+			return
+		}
+		out, err := json.Marshal(&s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var back SiteSet
+		if err := json.Unmarshal(out, &back); err != nil || !back.Equal(&s) {
+			t.Fatalf("re-decoding %s: %v", out, err)
+		}
+	})
+}

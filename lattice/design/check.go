@@ -142,6 +142,7 @@ func (c *checker) name(i int) string { return c.l.Regions[i].Region.Name }
 func (c *checker) windowLattice() {
 	surf := c.l.Surface
 	for i, rl := range c.l.Regions {
+		before := len(c.findings)
 		for _, w := range rl.Windows {
 			at := surf.WindowCentre(w)
 			if !surf.WindowExists(w) {
@@ -155,8 +156,8 @@ func (c *checker) windowLattice() {
 				c.add(RuleWindow, SeverityError, at, fmt.Sprintf("window %v is not whole: %d of its %d sites are erased", w, w.Template.Sites()-kept, w.Template.Sites()), c.name(i))
 			}
 		}
-		if rl.Region.Role != RoleDonor {
-			continue
+		if rl.Region.Role != RoleDonor || len(c.findings) > before {
+			continue // a broken window already explains a half dimer
 		}
 		for run := range rl.Sites.Runs() {
 			if run.Start%2 != 0 || run.End()%2 != 0 {
