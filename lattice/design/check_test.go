@@ -121,7 +121,9 @@ func TestRulesBreakOnce(t *testing.T) {
 	}
 }
 
-func (f Field) contains(x, y float64) bool { return x >= 0 && y >= 0 && x <= f.WidthNM && y <= f.HeightNM }
+func (f Field) contains(x, y float64) bool {
+	return x >= 0 && y >= 0 && x <= f.WidthNM && y <= f.HeightNM
+}
 
 func TestDemoPassesEveryRule(t *testing.T) {
 	d := loadDemo(t)
