@@ -245,3 +245,5 @@ func TestRunCells(t *testing.T) {
 		}
 	}
 }
+
+func pt(x, y float64) r2.Point { return r2.Point{X: x, Y: y} }
