@@ -3,10 +3,13 @@ package app
 import (
 	"flag"
 	"fmt"
+
+	"dimerpath/assets"
+	"dimerpath/lattice/design"
 )
 
 // The GUI lands in app/gui; until then the default command prints the
-// command list.
+// summary of the demo design.
 func init() {
 	Register(&Command{
 		Name:    "gui",
@@ -14,8 +17,16 @@ func init() {
 		Summary: "open the desktop window (the default when no command is given)",
 		Flags: func(fs *flag.FlagSet) func(Env, []string) int {
 			return func(env Env, args []string) int {
-				fmt.Fprintln(env.Stdout, "dimerpath: the GUI is not built yet.")
-				printCommandList(env.Stdout)
+				// Until the GUI lands: the summary of the built-in demo.
+				d, err := design.Parse(assets.DemoName, assets.DemoDesign)
+				if err == nil {
+					err = printInfo(env.Stdout, assets.DemoName, d, "")
+				}
+				if err != nil {
+					fmt.Fprintf(env.Stderr, "dimerpath: demo design: %v\n", err)
+					return ExitFailure
+				}
+				fmt.Fprintln(env.Stdout, "\n(The GUI is not built yet; \"dimerpath help\" lists the commands.)")
 				return ExitOK
 			}
 		},
