@@ -103,7 +103,7 @@ func drawSpread(c canvas, p10, p50, p90, total float64, area box) float64 {
 		span = math.Max(hi, 1) * 0.1
 	}
 	lo, hi = math.Max(0, lo-0.15*span), hi+0.15*span
-	step := niceStep(hi-lo, 5)
+	step := niceTimeStep(hi-lo, 5)
 	lo = math.Floor(lo/step) * step
 	hi = math.Ceil(hi/step) * step
 	x := func(t float64) float64 { return area.x + area.w*(t-lo)/(hi-lo) }

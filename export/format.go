@@ -133,3 +133,17 @@ func lengthLabel(v float64) string {
 	}
 	return sig(v, 3) + " nm"
 }
+
+// niceTimeStep returns a clock-friendly tick step (1, 2, 5, 10, 15, 20,
+// 30 s or min, 1, 2, 3, 6, 12 h, then whole days) near span/target
+// seconds.
+func niceTimeStep(span float64, target int) float64 {
+	raw := span / float64(max(1, target))
+	for _, s := range []float64{1, 2, 5, 10, 15, 20, 30, 60, 120, 300, 600, 900, 1200, 1800,
+		3600, 7200, 10800, 21600, 43200, 86400} {
+		if s >= raw {
+			return s
+		}
+	}
+	return 86400 * math.Ceil(raw/86400)
+}

@@ -249,6 +249,27 @@ func (t *table) row(texts ...string) (top, h float64) {
 	return top, h
 }
 
+// spanRow prints a row whose first cell is first and whose second cell,
+// rest, spans all the other columns.
+func (t *table) spanRow(first, rest string) {
+	d := t.d
+	w0 := t.widths[0]
+	cells := [][]string{wrapText(d.c, first, t.f, w0-2*t.pad), wrapText(d.c, rest, t.f, d.width()-w0-2*t.pad)}
+	h := t.height(cells)
+	d.need(h)
+	for i, lines := range cells {
+		x := d.left() + t.pad
+		if i == 1 {
+			x += w0
+		}
+		for k, l := range lines {
+			d.c.text(vec{x, d.y + t.pad + float64(k)*t.lh + t.lh*0.78}, l, t.f, anchorStart, tag{})
+		}
+	}
+	d.c.polyline([]vec{{d.left(), d.y + h}, {d.left() + d.width(), d.y + h}}, false, pen{width: 0.12, grey: 0.55}, noPaint, tag{})
+	d.y += h
+}
+
 // colX returns the left edge of column i.
 func (t *table) colX(i int) float64 {
 	x := t.d.left()

@@ -8,6 +8,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -18,6 +19,16 @@ import (
 type Pattern struct {
 	Surface *lattice.Surface
 	Regions []PatternRegion
+}
+
+// PatternOf returns the pattern of a laid-out design variant: its
+// lattice and every region's sites (shared with l, not copied).
+func PatternOf(l *design.Layout) *Pattern {
+	pat := &Pattern{Surface: l.Surface}
+	for _, r := range l.Regions {
+		pat.Regions = append(pat.Regions, PatternRegion{Name: r.Region.Name, Sites: r.Sites})
+	}
+	return pat
 }
 
 // PatternRegion is one region's name (as in Plan.Modes) and the H sites
