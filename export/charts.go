@@ -125,8 +125,8 @@ func drawSpread(c canvas, p10, p50, p90, total float64, area box) float64 {
 	tx, ty := x(total), top+bh/2
 	c.polyline([]vec{{tx, ty - d}, {tx + d, ty}, {tx, ty + d}, {tx - d, ty}}, true, pen{width: 0.25}, solid(1), tag{class: "expected"})
 	lab := fontAxis
-	c.text(vec{x(p10), top - 1.8*u}, "P10 "+clock(p10), lab, anchorEnd, tag{})
-	c.text(vec{x(p90), top - 1.8*u}, "P90 "+clock(p90), lab, anchorStart, tag{})
+	c.text(vec{x(p10) - 0.8*u, top - 1.8*u}, "P10 "+clock(p10), lab, anchorEnd, tag{})
+	c.text(vec{x(p90) + 0.8*u, top - 1.8*u}, "P90 "+clock(p90), lab, anchorStart, tag{})
 	c.endGroup()
 	return axisY + 1.2*u + textHeight(c, fontAxis) + 2*u - area.y
 }

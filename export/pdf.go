@@ -31,7 +31,7 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 		return err
 	}
 	sc := newScene(p, opt.Pattern)
-	header := fmt.Sprintf("dimerpath write plan · %s · variant %s", p.Design, p.Variant)
+	header := fmt.Sprintf("dimerpath write plan · variant %s · %s", p.Variant, p.Design)
 	d := newPDFDoc(opt.Paper, header, opt, fmt.Sprintf("Write plan: %s, variant %s", p.Design, p.Variant))
 
 	steps := []struct {
@@ -174,7 +174,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	glance := [][2]string{
 		{"Expected write time", fmt.Sprintf("%s (%s)", clock(p.TotalS), duration(p.TotalS))},
 		{"Spread", fmt.Sprintf("P10 %s · P50 %s · P90 %s", clock(p.P10S), clock(p.P50S), clock(p.P90S))},
-		{"Segments", fmt.Sprintf("%s, registering on %s", thousands(len(p.Segments)), listShort(fidNames, 8))},
+		{"Segments", segmentsLine(len(p.Segments), fidNames)},
 		{"Strokes", fmt.Sprintf("%s: %s", thousands(len(p.Strokes)), strokeSummary(p))},
 		{"Tip actions", thousands(len(p.Actions))},
 		{"Dopant windows", windows},
@@ -242,6 +242,13 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	d.para("Segments and strokes are numbered from 1 on paper; the JSON and CSV exports count them from 0. "+
 		"Positions are field coordinates in nm, origin at the lower-left corner of the scan field. "+
 		"Times are on the plan clock, from the start of the session.", font{size: 7.5, grey: 0.25})
+}
+
+func segmentsLine(n int, fiducials []string) string {
+	if len(fiducials) == 0 {
+		return thousands(n)
+	}
+	return fmt.Sprintf("%s, registering on %s", thousands(n), listShort(fiducials, 8))
 }
 
 func devicesPerPerfect(y planner.Yield) string {

@@ -82,10 +82,13 @@ func (d *pdfDoc) page() {
 	d.f.AddPage()
 	d.c.reset()
 	if d.f.PageNo() > 1 {
-		d.c.text(vec{d.left(), headerBase}, d.header, font{size: 7.5, grey: 0.3}, anchorStart, tag{})
+		hf := font{size: 7.5, grey: 0.3}
+		room := d.width()
 		if d.date != "" {
-			d.c.text(vec{d.left() + d.width(), headerBase}, d.date, font{size: 7.5, grey: 0.3}, anchorEnd, tag{})
+			d.c.text(vec{d.left() + d.width(), headerBase}, d.date, hf, anchorEnd, tag{})
+			room -= d.c.textWidth(d.date, hf) + 6
 		}
+		d.c.text(vec{d.left(), headerBase}, fitText(d.c, d.header, hf, room), hf, anchorStart, tag{})
 		d.c.polyline([]vec{{d.left(), headerBase + 1.8}, {d.left() + d.width(), headerBase + 1.8}}, false,
 			pen{width: 0.15, grey: 0.5}, noPaint, tag{})
 	}

@@ -89,27 +89,69 @@ func fnum(v float64) string { return string(appendNum(nil, v)) }
 // fontCaution is the caution's style in figures and footers.
 var fontCaution = font{size: 8, bold: true}
 
-// wrapText breaks s into lines no wider than width device units.
+// wrapText breaks s into lines no wider than width device units, at
+// spaces; a word wider than the line is broken after a hyphen or
+// underscore if it can be, else between characters. A "\n" starts a
+// new line.
 func wrapText(c canvas, s string, f font, width float64) []string {
 	var lines []string
 	for _, para := range strings.Split(s, "\n") {
-		words := strings.Fields(para)
 		line := ""
-		for _, w := range words {
+		for _, w := range strings.Fields(para) {
 			try := w
 			if line != "" {
 				try = line + " " + w
 			}
-			if line != "" && c.textWidth(try, f) > width {
-				lines = append(lines, line)
-				line = w
+			if c.textWidth(try, f) <= width {
+				line = try
 				continue
 			}
-			line = try
+			if line != "" {
+				lines = append(lines, line)
+			}
+			line = ""
+			for c.textWidth(w, f) > width {
+				head, tail := breakWord(c, w, f, width)
+				lines = append(lines, head)
+				w = tail
+			}
+			line = w
 		}
 		lines = append(lines, line)
 	}
 	return lines
+}
+
+// breakWord splits w into a head that fits width and the rest.
+func breakWord(c canvas, w string, f font, width float64) (head, tail string) {
+	runes := []rune(w)
+	fit := 1
+	for fit < len(runes) && c.textWidth(string(runes[:fit+1]), f) <= width {
+		fit++
+	}
+	// Prefer to break after a hyphen or underscore in the second half.
+	for k := fit; k > fit/2; k-- {
+		if r := runes[k-1]; r == '-' || r == '_' || r == '/' || r == '.' {
+			fit = k
+			break
+		}
+	}
+	return string(runes[:fit]), string(runes[fit:])
+}
+
+// fitText returns s, or its longest prefix that fits width with "…"
+// appended.
+func fitText(c canvas, s string, f font, width float64) string {
+	if c.textWidth(s, f) <= width {
+		return s
+	}
+	runes := []rune(s)
+	for n := len(runes) - 1; n > 0; n-- {
+		if t := strings.TrimSpace(string(runes[:n])) + "…"; c.textWidth(t, f) <= width {
+			return t
+		}
+	}
+	return "…"
 }
 
 // measureCanvas measures text and draws nothing, for laying a document
