@@ -3,6 +3,7 @@ package export
 import (
 	"fmt"
 	"math"
+	"strconv"
 
 	"github.com/golang/geo/r2"
 
@@ -18,11 +19,20 @@ func checkPlan(p *planner.Plan) error {
 	if p == nil {
 		return invalid("", nil, "no plan")
 	}
-	v := checker{}
+	// A first pass without field paths costs no allocations; only a plan
+	// that fails is checked again to name the field.
+	if checkPlanWith(p, false) == nil {
+		return nil
+	}
+	return checkPlanWith(p, true)
+}
+
+func checkPlanWith(p *planner.Plan, named bool) error {
+	v := checker{named: named}
 	v.positive("field_nm[0]", p.FieldWidthNM)
 	v.positive("field_nm[1]", p.FieldHeightNM)
 	for i, c := range p.Conditions {
-		f := fmt.Sprintf("conditions[%d]", i)
+		f := v.at("conditions", i)
 		v.mode(f+".mode", c.Mode, false)
 		v.finite(f+".bias_v", c.BiasV)
 		v.nonNeg(f+".current_a", c.CurrentA)
@@ -33,14 +43,14 @@ func checkPlan(p *planner.Plan) error {
 		v.nonNeg(f+".pitch_nm", c.PitchNM)
 	}
 	for i, m := range p.Modes {
-		v.count(fmt.Sprintf("modes[%d].sites", i), m.Sites)
+		v.count(v.at("modes", i)+".sites", m.Sites)
 	}
 	for i, fd := range p.Fiducials {
-		v.point(fmt.Sprintf("fiducials[%d].at_nm", i), fd.At)
+		v.point(v.at("fiducials", i)+".at_nm", fd.At)
 	}
 	for i := range p.Strokes {
 		s := &p.Strokes[i]
-		f := fmt.Sprintf("strokes[%d]", i)
+		f := v.at("strokes", i)
 		if s.ID != i {
 			v.fail(invalid(f+".id", s.ID, "stroke %d must have id %d (strokes are indexed by id)", i, i))
 		}
@@ -57,10 +67,10 @@ func checkPlan(p *planner.Plan) error {
 			v.fail(invalid(f+".path_nm", len(s.Path), "a dwell has exactly one point, got %d", len(s.Path)))
 		}
 		for k, q := range s.Path {
-			if v.err != nil {
+			if !finite(q.X) || !finite(q.Y) {
+				v.point(fmt.Sprintf("%s.path_nm[%d]", f, k), q)
 				break
 			}
-			v.point(fmt.Sprintf("%s.path_nm[%d]", f, k), q)
 		}
 		v.count(f+".passes", s.Passes)
 		v.nonNeg(f+".length_nm", s.LengthNM)
@@ -74,7 +84,7 @@ func checkPlan(p *planner.Plan) error {
 	}
 	for i := range p.Segments {
 		s := &p.Segments[i]
-		f := fmt.Sprintf("segments[%d]", i)
+		f := v.at("segments", i)
 		if s.Index != i {
 			v.fail(invalid(f+".index", s.Index, "segment %d must have index %d", i, i))
 		}
@@ -86,10 +96,13 @@ func checkPlan(p *planner.Plan) error {
 		}
 		v.nonNeg(f+".budget_s", s.BudgetS)
 		for k, id := range s.Strokes {
-			g := fmt.Sprintf("%s.strokes[%d]", f, k)
-			v.index(g, id, len(p.Strokes), false)
-			if v.err == nil && p.Strokes[id].Segment != i {
-				v.fail(invalid(g, id, "stroke %d says it is in segment %d", id, p.Strokes[id].Segment))
+			if id < 0 || id >= len(p.Strokes) || p.Strokes[id].Segment != i {
+				g := fmt.Sprintf("%s.strokes[%d]", f, k)
+				v.index(g, id, len(p.Strokes), false)
+				if v.err == nil {
+					v.fail(invalid(g, id, "stroke %d says it is in segment %d", id, p.Strokes[id].Segment))
+				}
+				return v.err
 			}
 		}
 		if v.err != nil {
@@ -99,7 +112,7 @@ func checkPlan(p *planner.Plan) error {
 	end := 0.0
 	for i := range p.Actions {
 		a := &p.Actions[i]
-		f := fmt.Sprintf("actions[%d]", i)
+		f := v.at("actions", i)
 		if a.Index != i {
 			v.fail(invalid(f+".index", a.Index, "action %d must have index %d", i, i))
 		}
@@ -150,7 +163,7 @@ func checkPlan(p *planner.Plan) error {
 		v.fail(invalid("p50_s", p.P50S, "quantiles out of order (p10 %g s, p90 %g s)", p.P10S, p.P90S))
 	}
 	for i, w := range p.Windows {
-		f := fmt.Sprintf("windows[%d]", i)
+		f := v.at("windows", i)
 		v.point(f+".at_nm", w.At)
 		v.count(f+".sites", w.Sites)
 		v.probability(f+".probability", w.Probability)
@@ -163,7 +176,10 @@ func checkPlan(p *planner.Plan) error {
 		v.fail(invalid("yield.mean_good", y.MeanGood, "more than the %d windows", y.Windows))
 	}
 	for k, q := range y.Distribution {
-		v.probability(fmt.Sprintf("yield.distribution[%d]", k), q)
+		if !(q >= 0 && q <= 1) {
+			v.probability(fmt.Sprintf("yield.distribution[%d]", k), q)
+			break
+		}
 	}
 	v.nonNeg("yield.devices_per_perfect", y.DevicesPerPerfect)
 	c := p.Coverage
@@ -174,7 +190,21 @@ func checkPlan(p *planner.Plan) error {
 }
 
 // checker keeps the first failure; later checks are skipped.
-type checker struct{ err error }
+type checker struct {
+	err   error
+	named bool // build field paths (else they are left empty)
+}
+
+// at returns the path of element i of array arr, or "" when the checker
+// does not name fields (then field+".suffix" allocates nothing either).
+func (v *checker) at(arr string, i int) string {
+	if !v.named {
+		return ""
+	}
+	return arr + "[" + strconv.Itoa(i) + "]"
+}
+
+func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
 func (v *checker) fail(e *PlanError) {
 	if v.err == nil {
