@@ -24,12 +24,23 @@ type overviewResult struct {
 // strokes, moves, fiducials and numbered segment starts, then the axes.
 // Groups carry SVG ids: terraces, regions, strokes (strokes-fe,
 // strokes-ap), moves, fiducials, segment-labels.
+//
+// v may show only part of the field (the device-area figure): drawing is
+// clipped to the frame and strokes outside it are skipped.
 func drawOverview(c canvas, sc *scene, v view) overviewResult {
 	p := sc.plan
 	frame := v.frame()
 	c.group(tag{id: "field", class: "field"}, noPen, solid(1))
 	c.rect(frame, noPen, solid(1), tag{})
 	c.endGroup()
+	whole := v.win.Contains(sc.field())
+	if !whole {
+		c.clip(frame)
+	}
+	margin := math.Max(sc.feWidth, sc.apWidth)
+	shown := func(s *planner.Stroke) bool {
+		return whole || strokeBounds(s).ExpandedByMargin(margin).Intersects(v.win)
+	}
 
 	drawRegions(c, sc, v, frame)
 	lab := &labeler{bounds: frame}
@@ -48,7 +59,7 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 	c.group(tag{id: "strokes-fe", class: "fe"}, fe, noPaint)
 	for i := range p.Strokes {
 		s := &p.Strokes[i]
-		if s.Mode != planner.FE {
+		if s.Mode != planner.FE || !shown(s) {
 			continue
 		}
 		pn := fe
@@ -77,7 +88,7 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 	dot := math.Max(0.55*c.mm(), sc.apWidth*v.s/2)
 	for i := range p.Strokes {
 		s := &p.Strokes[i]
-		if s.Mode == planner.FE {
+		if s.Mode == planner.FE || !shown(s) {
 			continue
 		}
 		switch s.Kind {
@@ -95,7 +106,7 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 	res := overviewResult{}
 	c.group(tag{id: "segment-labels", class: "labels"}, penLabel, fillLabel)
 	for i := range p.Segments {
-		if !sc.hasWrite[i] {
+		if !sc.hasWrite[i] || !frame.containsPt(v.pt(sc.writeFrom[i])) {
 			continue
 		}
 		if i >= maxSegmentLabels {
@@ -107,6 +118,9 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 		}
 	}
 	c.endGroup()
+	if !whole {
+		c.endClip()
+	}
 	c.rect(frame, penField, noPaint, tag{id: "field-edge"})
 	drawAxes(c, v)
 	return res
@@ -484,4 +498,27 @@ func drawLegend(c canvas, entries []legendEntry, at vec, width float64) float64 
 		return 0
 	}
 	return y - at.y + rowH
+}
+
+// deviceArea returns the field window around the atomic-precision
+// strokes, when they sit in a small part of the field (their extent,
+// with a margin, under 40 % of the field's shorter side), so that a
+// second overview can show them and the moves between them.
+func deviceArea(sc *scene) (r2.Rect, bool) {
+	bb := r2.EmptyRect()
+	for i := range sc.plan.Strokes {
+		if s := &sc.plan.Strokes[i]; s.Mode == planner.AP {
+			bb = bb.Union(strokeBounds(s))
+		}
+	}
+	if bb.IsEmpty() {
+		return bb, false
+	}
+	sz := bb.Size()
+	bb = bb.ExpandedByMargin(math.Max(10, 0.15*math.Max(sz.X, sz.Y)))
+	f := sc.field().Size()
+	if math.Max(bb.Size().X, bb.Size().Y) > 0.4*math.Min(f.X, f.Y) {
+		return bb, false
+	}
+	return bb, true
 }

@@ -39,7 +39,13 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 		fn   func() error
 	}{
 		{"cover", func() error { pdfCover(d, p, opt); return nil }},
-		{"overview", func() error { pdfOverview(d, sc); return nil }},
+		{"overview", func() error {
+			pdfOverview(d, sc, sc.field(), "Pattern and route")
+			if win, ok := deviceArea(sc); ok {
+				pdfOverview(d, sc, win, "Device area: the atomic-precision part")
+			}
+			return nil
+		}},
 		{"segments", func() error { return pdfSegments(ctx, d, p) }},
 		{"estimates", func() error { pdfEstimates(d, p); return nil }},
 		{"atomic-precision areas", func() error {
@@ -328,10 +334,12 @@ func dwellConditions(p *planner.Plan) []dwellGroup {
 	return out
 }
 
-func pdfOverview(d *pdfDoc, sc *scene) {
+// pdfOverview draws the field window win on a page of its own: the
+// whole field, or the device area.
+func pdfOverview(d *pdfDoc, sc *scene, win r2.Rect, title string) {
 	p := sc.plan
 	d.page()
-	d.heading("Pattern and route", 0)
+	d.heading(title, 0)
 	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
 	legend := overviewLegend(m, sc, 1)
 	legendH := drawLegend(m, legend, vec{}, d.width())
@@ -339,13 +347,23 @@ func pdfOverview(d *pdfDoc, sc *scene) {
 	below := 12 + 7 + legendH + 12
 	d.y += 5 // room for the y axis title
 	dev := box{d.left() + 12, d.y, d.width() - 12, d.remains() - below}
-	v := fitView(sc.field(), dev)
+	if win != sc.field() {
+		win = insideField(withAspect(win, dev), sc.field())
+	}
+	v := fitView(win, dev)
 	// Centre the field on the page width, keeping room for the y labels.
 	fr := v.frame()
 	v.origin.y = d.y
 	v.origin.x = d.left() + 12 + (d.width()-12-fr.w)/2
 	res := drawOverview(d.c, sc, v)
 	fr = v.frame()
+	if dev, ok := deviceArea(sc); ok && win == sc.field() {
+		// Mark the device area shown on the next page.
+		b := v.box(dev)
+		d.c.rect(b, pen{width: 0.3, dash: []float64{1, 1}}, noPaint, tag{})
+		d.c.text(vec{b.right() + 1.5, b.y + 2.5}, "device area,", fontSmall, anchorStart, tag{})
+		d.c.text(vec{b.right() + 1.5, b.y + 5.5}, "next page", fontSmall, anchorStart, tag{})
+	}
 	y := fr.bottom() + 12
 	drawScaleBar(d.c, v, vec{d.left(), y}, fr.w/4)
 	if res.unlabelled > 0 {
@@ -355,9 +373,31 @@ func pdfOverview(d *pdfDoc, sc *scene) {
 	y += 7
 	y += drawLegend(d.c, legend, vec{d.left(), y}, d.width())
 	d.y = y + 2
-	d.para(fmt.Sprintf("Field %s × %s nm. %s strokes in %s segments; the number at each segment marks where its first stroke starts. "+
-		"Moves are drawn straight from point to point.", sig(p.FieldWidthNM, 6), sig(p.FieldHeightNM, 6),
-		thousands(len(p.Strokes)), thousands(len(p.Segments))), font{size: 7.5, grey: 0.25})
+	what := fmt.Sprintf("Field %s × %s nm.", sig(p.FieldWidthNM, 6), sig(p.FieldHeightNM, 6))
+	if win != sc.field() {
+		what = fmt.Sprintf("x %s to %s nm, y %s to %s nm of the %s × %s nm field.", nm1(win.X.Lo), nm1(win.X.Hi), nm1(win.Y.Lo), nm1(win.Y.Hi),
+			sig(p.FieldWidthNM, 6), sig(p.FieldHeightNM, 6))
+	}
+	d.para(what+fmt.Sprintf(" %s strokes in %s segments; the number at each segment marks where its first stroke starts. "+
+		"Moves are drawn straight from point to point.", thousands(len(p.Strokes)), thousands(len(p.Segments))), font{size: 7.5, grey: 0.25})
+}
+
+// insideField shifts win, where it is smaller than the field, so that it
+// lies inside the field.
+func insideField(win, field r2.Rect) r2.Rect {
+	shift := func(lo, hi, flo, fhi float64) float64 {
+		switch {
+		case hi-lo > fhi-flo:
+			return 0
+		case lo < flo:
+			return flo - lo
+		case hi > fhi:
+			return fhi - hi
+		}
+		return 0
+	}
+	d := r2.Point{X: shift(win.X.Lo, win.X.Hi, field.X.Lo, field.X.Hi), Y: shift(win.Y.Lo, win.Y.Hi, field.Y.Lo, field.Y.Hi)}
+	return r2.RectFromPoints(win.Lo().Add(d), win.Hi().Add(d))
 }
 
 // condGroup is one line of a segment's table row: the strokes written
