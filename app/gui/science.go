@@ -185,3 +185,24 @@ func buildPlan(ctx context.Context, d *design.Design, variant string, prof plann
 func defaultProfile() planner.Profile {
 	return planner.Profile{Format: planner.ProfileFormat, Version: planner.ProfileVersion, Name: "default"}
 }
+
+// loadDesign reads and validates a design file.
+func loadDesign(path string) (*design.Design, error) {
+	return nil, fmt.Errorf("%s: reading design files is not available until the design package lands", path)
+}
+
+// saveDesign validates d and writes it atomically to path.
+func saveDesign(path string, d *design.Design) error {
+	return fmt.Errorf("%s: writing design files is not available until the design package lands", path)
+}
+
+// demoDesign returns the built-in demo design.
+func demoDesign() (*design.Design, error) {
+	return NewDesign(), nil
+}
+
+// exportPlan writes plan p of d in the given format ("pdf", "svg",
+// "json" or "csv") to path.
+func exportPlan(kind, path string, d *design.Design, p *planner.Plan, prof planner.Profile) error {
+	return fmt.Errorf("exporting %s is not available until the export package lands", kind)
+}

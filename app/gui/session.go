@@ -184,6 +184,21 @@ func (s *Session) MarkSaved(path string) {
 	s.notify(ChangeFile)
 }
 
+// MarkUnsaved records that nothing on disk holds the current state (a
+// design recovered from the autosave copy).
+func (s *Session) MarkUnsaved() {
+	s.hist.saved = nil
+	s.notify(ChangeFile)
+}
+
+// SetProfile makes p the instrument profile plans use; path is the file
+// it came from, or "". The plan shown becomes out of date.
+func (s *Session) SetProfile(p planner.Profile, path string) {
+	s.Profile, s.ProfilePath = p, path
+	s.planState = nil
+	s.notify(ChangePlan)
+}
+
 // Title is the window title: design name, file and an asterisk when
 // unsaved.
 func (s *Session) Title() string {
