@@ -72,11 +72,11 @@ type Plan struct {
 // Conditions are the tip settings of one write mode.
 type Conditions struct {
 	Mode           WriteMode `json:"mode"`
-	BiasV          float64   `json:"bias_v"`            // sample bias
-	CurrentA       float64   `json:"current_a"`         // setpoint current
+	BiasV          float64   `json:"bias_v"`             // sample bias
+	CurrentA       float64   `json:"current_a"`          // setpoint current
 	LineDoseCPerCm float64   `json:"line_dose_c_per_cm"` // charge per unit length
-	SpeedNMPerS    float64   `json:"speed_nm_per_s"`    // = current / line dose
-	LineWidthNM    float64   `json:"line_width_nm"`     // from the width-vs-dose model
+	SpeedNMPerS    float64   `json:"speed_nm_per_s"`     // = current / line dose
+	LineWidthNM    float64   `json:"line_width_nm"`      // from the width-vs-dose model
 	Passes         int       `json:"passes"`
 	PitchNM        float64   `json:"pitch_nm,omitempty"` // FE raster line pitch
 }

@@ -34,7 +34,7 @@ func cloneDesignShell(d *design.Design) *design.Design {
 		r := cloneRules(*d.Rules)
 		c.Rules = &r
 	}
-	c.Templates = slices.Clone(d.Templates)
+	c.WindowTemplates = slices.Clone(d.WindowTemplates)
 	c.Variants = slices.Clone(d.Variants)
 	for i, v := range c.Variants {
 		c.Variants[i].Regions = slices.Clone(v.Regions)
@@ -67,6 +67,8 @@ func cloneRules(r design.Rules) design.Rules {
 	r.FEKeepOutNM = cp(r.FEKeepOutNM)
 	r.TunnelGapMinNM = cp(r.TunnelGapMinNM)
 	r.TunnelGapMaxNM = cp(r.TunnelGapMaxNM)
+	r.APToleranceNM = cp(r.APToleranceNM)
+	r.FEToleranceNM = cp(r.FEToleranceNM)
 	return r
 }
 

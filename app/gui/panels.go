@@ -546,7 +546,15 @@ func newMarksPanel(u *UI) *marksPanel {
 				if len(t.Boundary) >= 3 {
 					where = fmt.Sprintf("outline of %d points", len(t.Boundary))
 				}
-				o.(*widget.Label).SetText(fmt.Sprintf("%s: rows along %s, %s", t.Name, t.Rows, where))
+				rows := t.Rows
+				if surf := p.u.S.Surface(); i < len(surf.Terraces) {
+					rows = surf.Terraces[i].Rows.String()
+				}
+				step := ""
+				if t.StepFrom != "" {
+					step = ", a step from " + t.StepFrom
+				}
+				o.(*widget.Label).SetText(fmt.Sprintf("%s: rows along %s, %s%s", t.Name, rows, where, step))
 			}
 		})
 	p.terrs.OnSelected = func(i widget.ListItemID) { p.terrSel = i; p.showTerrace() }
@@ -634,7 +642,7 @@ func (p *marksPanel) showTerrace() {
 	}
 	t := ts[p.terrSel]
 	p.terrName.SetText(t.Name)
-	p.terrRows.SetSelected(t.Rows)
+	p.terrRows.SetSelected(p.u.S.Surface().Terraces[p.terrSel].Rows.String())
 	p.terrX.SetText(trimZeros(fmt.Sprintf("%.4f", t.OffsetNM[0])))
 	p.terrY.SetText(trimZeros(fmt.Sprintf("%.4f", t.OffsetNM[1])))
 	p.terrMsg.Hide()

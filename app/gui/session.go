@@ -760,26 +760,41 @@ func (s *Session) editTerraces(label, key string, f func(ts []design.Terrace) []
 }
 
 // AddTerrace adds a terrace bounded by poly (nm, 3 or more vertices),
-// its rows turned from the terrace under the first vertex, as across a
-// single-height step.
+// one single-height step from the terrace under the first vertex: its
+// rows turn by 90° and its lattice shifts (design.Terrace.StepFrom).
 func (s *Session) AddTerrace(poly []r2.Point) (int, error) {
 	if len(poly) < 3 {
 		return -1, errors.New("a terrace outline needs at least 3 points")
 	}
-	rows := "y"
-	if t := s.surf.TerraceAt(poly[0]); t >= 0 && s.surf.Terraces[t].Rows == lattice.RowsAlongY {
-		rows = "x"
+	from := s.surf.TerraceAt(poly[0])
+	if from < 0 {
+		return -1, fmt.Errorf("the first point (%.1f, %.1f) nm of a terrace outline must lie on a terrace of the field", poly[0].X, poly[0].Y)
 	}
-	name := fmt.Sprintf("T%d", len(s.d.Terraces))
+	used := map[string]bool{}
+	for _, t := range s.d.Terraces {
+		used[t.Name] = true
+	}
+	name := ""
+	for k := len(s.d.Terraces); ; k++ {
+		if name = fmt.Sprintf("T%d", k); !used[name] {
+			break
+		}
+	}
 	b := make([][2]float64, len(poly))
 	for i, p := range poly {
 		b[i] = [2]float64{round2(p.X), round2(p.Y)}
 	}
-	// Appended, so painted sites keep their terrace indices. The first
-	// bounded terrace holding a point wins, so an outline drawn inside
-	// another bounded terrace stays under it; draw on the base terrace.
+	base := s.surf.Terraces[from].Name
 	err := s.editTerraces("add terrace "+name, "", func(ts []design.Terrace) []design.Terrace {
-		return append(ts, design.Terrace{Name: name, Rows: rows, Boundary: b})
+		if len(ts) == 0 {
+			// A design without terraces is one terrace with rows along
+			// x; write it out so the new one can step from it.
+			ts = []design.Terrace{{Name: base, Rows: "x"}}
+		}
+		// Appended, so painted sites keep their terrace indices. The
+		// first bounded terrace holding a point wins, so an outline drawn
+		// inside another bounded terrace stays under it.
+		return append(ts, design.Terrace{Name: name, StepFrom: base, Boundary: b})
 	})
 	if err != nil {
 		return -1, err
@@ -788,7 +803,8 @@ func (s *Session) AddTerrace(poly []r2.Point) (int, error) {
 }
 
 // SetTerrace changes terrace i's name, row direction ("x" or "y") and
-// lattice offset (nm).
+// lattice offset (nm). A terrace that steps from another takes its rows
+// from it; asking for other rows makes it stand on its own.
 func (s *Session) SetTerrace(i int, name, rows string, offset r2.Point) error {
 	if i < 0 || i >= len(s.d.Terraces) {
 		return fmt.Errorf("no terrace %d", i)
@@ -797,18 +813,33 @@ func (s *Session) SetTerrace(i int, name, rows string, offset r2.Point) error {
 		return fmt.Errorf("terrace rows %q: must be x or y", rows)
 	}
 	name = strings.TrimSpace(name)
-	if name == "" {
-		return fmt.Errorf("terrace name: %w", ErrName)
+	for j, t := range s.d.Terraces {
+		if name == "" || (j != i && t.Name == name) {
+			return fmt.Errorf("terrace name %q: %w", name, ErrName)
+		}
 	}
 	if math.IsNaN(offset.X) || math.IsNaN(offset.Y) || math.IsInf(offset.X, 0) || math.IsInf(offset.Y, 0) {
 		return fmt.Errorf("terrace offset (%g, %g) nm: must be finite", offset.X, offset.Y)
 	}
 	t := s.d.Terraces[i]
-	if t.Name == name && t.Rows == rows && t.OffsetNM == [2]float64{offset.X, offset.Y} {
+	curRows := s.surf.Terraces[i].Rows.String()
+	if t.Name == name && curRows == rows && t.OffsetNM == [2]float64{offset.X, offset.Y} {
 		return nil
 	}
+	old := t.Name
 	return s.editTerraces("edit terrace "+name, fmt.Sprintf("terrace-%d", i), func(ts []design.Terrace) []design.Terrace {
-		ts[i].Name, ts[i].Rows, ts[i].OffsetNM = name, rows, [2]float64{offset.X, offset.Y}
+		if ts[i].StepFrom != "" && rows != curRows {
+			ts[i].StepFrom = ""
+		}
+		if ts[i].StepFrom == "" {
+			ts[i].Rows = rows
+		}
+		ts[i].Name, ts[i].OffsetNM = name, [2]float64{offset.X, offset.Y}
+		for k := range ts {
+			if ts[k].StepFrom == old {
+				ts[k].StepFrom = name
+			}
+		}
 		return ts
 	})
 }

@@ -406,13 +406,7 @@ func (u *UI) optionsFor(t Tool) []fyne.CanvasObject {
 }
 
 func (u *UI) templateNames() []string {
-	names := []string{"P", "As"}
-	for _, t := range u.S.Design().Templates {
-		if t.Name != "P" && t.Name != "As" {
-			names = append(names, t.Name)
-		}
-	}
-	return names
+	return u.S.Design().Templates().Names()
 }
 
 func (u *UI) templateInfo(name string) fyne.CanvasObject {
