@@ -39,6 +39,9 @@ func (s *SiteSet) row(terrace, row int, grow bool) *rowBits {
 	if terrace < 0 || row < 0 {
 		panic("lattice: negative site address")
 	}
+	if grow && (terrace >= MaxTerraces || row >= MaxRows) {
+		panic("lattice: site address beyond MaxTerraces or MaxRows")
+	}
 	if terrace >= len(s.terraces) {
 		if !grow {
 			return nil
@@ -57,16 +60,20 @@ func (s *SiteSet) row(terrace, row int, grow bool) *rowBits {
 }
 
 func (r *rowBits) ensure(words int) {
+	if words > MaxRowIndex/64 {
+		panic("lattice: site index beyond MaxRowIndex")
+	}
 	if len(*r) < words {
 		*r = append(*r, make([]uint64, words-len(*r))...)
 	}
 }
 
-// Add inserts the site. It panics on a negative address.
+// Add inserts the site. It panics on a negative address or a side other
+// than 0 or 1.
 func (s *SiteSet) Add(site Site) {
 	i := site.Index()
 	if site.Dimer < 0 || site.Side < 0 || site.Side > 1 {
-		panic("lattice: negative site address")
+		panic("lattice: invalid site address " + site.String())
 	}
 	r := s.row(site.Terrace, site.Row, true)
 	r.ensure(i/64 + 1)
@@ -75,7 +82,7 @@ func (s *SiteSet) Add(site Site) {
 
 // Remove deletes the site if present.
 func (s *SiteSet) Remove(site Site) {
-	if site.Dimer < 0 || site.Terrace < 0 || site.Row < 0 {
+	if site.Dimer < 0 || site.Terrace < 0 || site.Row < 0 || site.Side < 0 || site.Side > 1 {
 		return
 	}
 	r := s.row(site.Terrace, site.Row, false)
@@ -132,9 +139,15 @@ func (s *SiteSet) RemoveRun(terrace, row, from, to int) {
 
 // setRange sets or clears bits [from, to) of w, which must be long enough.
 func setRange(w []uint64, from, to int, on bool) {
+	setPattern(w, from, to, ^uint64(0), on)
+}
+
+// setPattern sets or clears the bits [from, to) of w that are also set in
+// the repeating 64-bit pattern, a word at a time; w must be long enough.
+func setPattern(w []uint64, from, to int, pattern uint64, on bool) {
 	fw, tw := from/64, (to-1)/64
 	for k := fw; k <= tw; k++ {
-		mask := ^uint64(0)
+		mask := pattern
 		if k == fw {
 			mask &= ^uint64(0) << (uint(from) % 64)
 		}
@@ -147,6 +160,39 @@ func setRange(w []uint64, from, to int, on bool) {
 			w[k] &^= mask
 		}
 	}
+}
+
+// sidePattern[side] has the bits of one side's sites: even in-row
+// indices are side 0, odd ones side 1.
+var sidePattern = [2]uint64{0x5555555555555555, 0xAAAAAAAAAAAAAAAA}
+
+// setStrided sets (on) or clears the side-`side` sites of dimers
+// d0..d1 (inclusive) of one row, a word at a time.
+func (s *SiteSet) setStrided(terrace, row, d0, d1, side int, on bool) {
+	from, to := 2*d0+side, 2*d1+side+1
+	if d0 < 0 || to <= from {
+		if d0 < 0 {
+			panic("lattice: negative site address")
+		}
+		return
+	}
+	if !on {
+		if terrace < 0 || row < 0 {
+			return
+		}
+		r := s.row(terrace, row, false)
+		if r == nil {
+			return
+		}
+		to = min(to, len(*r)*64)
+		if to > from {
+			setPattern(*r, from, to, sidePattern[side], false)
+		}
+		return
+	}
+	r := s.row(terrace, row, true)
+	r.ensure((to-1)/64 + 1)
+	setPattern(*r, from, to, sidePattern[side], true)
 }
 
 // Union adds every site of o to s and returns s.

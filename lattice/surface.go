@@ -66,6 +66,28 @@ type Terrace struct {
 	Offset r2.Point
 }
 
+// AcrossStep returns the lattice of the terrace one single-height step
+// away from t: its dimer rows turn by 90° and its lattice shifts by
+// StepShift (a/(2√2)) along the new row direction, the in-plane shift of
+// the diamond lattice from one atomic layer to the next. The name and
+// boundary are t's; set them for the new terrace.
+//
+// The step fixes the new lattice only up to a whole row: dimers can pair
+// either way across the new rows (the two antiphase registries), so add
+// RowSpacing/2 across the new rows to the offset for the other one. The
+// same result follows whether the step goes up or down, because a shift
+// by -StepShift differs from +StepShift by one whole dimer pitch.
+func (t Terrace) AcrossStep() Terrace {
+	n := t
+	n.Rows = t.Rows.Turned()
+	if n.Rows == RowsAlongY {
+		n.Offset = r2.Point{X: t.Offset.X, Y: t.Offset.Y + StepShift}
+	} else {
+		n.Offset = r2.Point{X: t.Offset.X + StepShift, Y: t.Offset.Y}
+	}
+	return n
+}
+
 // Contains reports whether p lies inside the terrace boundary (always
 // true for a terrace without one).
 func (t *Terrace) Contains(p r2.Point) bool {
@@ -92,8 +114,37 @@ func NewSurface(width, height float64, terraces ...Terrace) (*Surface, error) {
 	if !(width > 0) || !(height > 0) || math.IsInf(width, 0) || math.IsInf(height, 0) {
 		return nil, fmt.Errorf("lattice: field size %g x %g nm must be positive and finite", width, height)
 	}
+	if width/DimerPitch >= MaxRowIndex/2 || height/DimerPitch >= MaxRowIndex/2 {
+		return nil, fmt.Errorf("lattice: field size %g x %g nm is beyond the largest field, %g nm a side", width, height, float64(MaxRowIndex/2-1)*DimerPitch)
+	}
 	if len(terraces) == 0 {
 		terraces = []Terrace{{Name: "T0", Rows: RowsAlongX}}
+	}
+	if len(terraces) > MaxTerraces {
+		return nil, fmt.Errorf("lattice: %d terraces, more than the limit of %d", len(terraces), MaxTerraces)
+	}
+	unbounded := 0
+	for _, t := range terraces {
+		if !finite(t.Offset.X) || !finite(t.Offset.Y) {
+			return nil, fmt.Errorf("lattice: terrace %q: offset %v is not finite", t.Name, t.Offset)
+		}
+		if t.Rows > RowsAlongY {
+			return nil, fmt.Errorf("lattice: terrace %q: unknown row direction %d", t.Name, t.Rows)
+		}
+		for _, p := range t.Boundary {
+			if !finite(p.X) || !finite(p.Y) {
+				return nil, fmt.Errorf("lattice: terrace %q: boundary point %v is not finite", t.Name, p)
+			}
+		}
+		if len(t.Boundary) > 0 && len(t.Boundary) < 3 {
+			return nil, fmt.Errorf("lattice: terrace %q: boundary has %d points; a polygon needs 3 or more", t.Name, len(t.Boundary))
+		}
+		if len(t.Boundary) == 0 {
+			unbounded++
+		}
+	}
+	if unbounded > 1 {
+		return nil, fmt.Errorf("lattice: %d terraces have no boundary; at most one may take the rest of the field", unbounded)
 	}
 	s := &Surface{
 		Field:    r2.RectFromPoints(r2.Point{}, r2.Point{X: width, Y: height}),
@@ -114,6 +165,8 @@ func NewSurface(width, height float64, terraces ...Terrace) (*Surface, error) {
 	}
 	return s, nil
 }
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 // reduce maps v into [0, period).
 func reduce(v, period float64) float64 {
@@ -241,7 +294,28 @@ func (s *Surface) nearestOnTerrace(ti int, p r2.Point) Site {
 	if across >= float64(row)*RowSpacing {
 		side = 1
 	}
-	return Site{Terrace: ti, Row: row, Dimer: dimer, Side: side}
+	best := Site{Terrace: ti, Row: row, Dimer: dimer, Side: side}
+	if s.Valid(best) {
+		return best
+	}
+	// Near a terrace edge the nearest lattice point may belong to the
+	// neighbouring terrace: take the nearest site that exists here.
+	bestD := math.Inf(1)
+	found := best
+	for r := row - 2; r <= row+2; r++ {
+		for d := dimer - 3; d <= dimer+3; d++ {
+			for side := 0; side < 2; side++ {
+				c := Site{Terrace: ti, Row: r, Dimer: d, Side: side}
+				if !s.Valid(c) {
+					continue
+				}
+				if dist := p.Sub(s.Position(c)).Norm(); dist < bestD {
+					bestD, found = dist, c
+				}
+			}
+		}
+	}
+	return found
 }
 
 func clamp(v, lo, hi int) int {

@@ -24,10 +24,11 @@ type Design struct {
 	Fiducials   []Fiducial `json:"fiducials,omitempty"`
 	// Rules overrides the design-rule defaults; nil fields keep them.
 	Rules *Rules `json:"rules,omitempty"`
-	// Templates overrides or adds dopant-window templates; the built-in
-	// P and As templates apply where none of the same name is given.
-	Templates []lattice.WindowTemplate `json:"templates,omitempty"`
-	Variants  []Variant                `json:"variants"`
+	// WindowTemplates overrides or adds dopant-window templates; the
+	// built-in P and As templates apply where none of the same name is
+	// given. Use the Templates method for the merged set.
+	WindowTemplates []lattice.WindowTemplate `json:"templates,omitempty"`
+	Variants        []Variant                `json:"variants"`
 }
 
 // Field is the scan field, with its lower-left corner at the origin.
@@ -42,10 +43,18 @@ type Terrace struct {
 	// Boundary is the outline polygon in nm; empty means the rest of the
 	// field.
 	Boundary [][2]float64 `json:"boundary_nm,omitempty"`
-	// Rows is "x" or "y": the direction the dimer rows run.
-	Rows string `json:"rows"`
-	// OffsetNM places row 0, dimer 0 (see lattice.Terrace.Offset).
+	// Rows is "x" or "y": the direction the dimer rows run. With
+	// StepFrom it may be omitted; given, it must agree.
+	Rows string `json:"rows,omitempty"`
+	// OffsetNM places row 0, dimer 0 (see lattice.Terrace.Offset). With
+	// StepFrom it is an extra shift on top of the step's (normally
+	// omitted; RowSpacing/2 across the rows picks the other antiphase
+	// registry).
 	OffsetNM [2]float64 `json:"offset_nm"`
+	// StepFrom names an earlier terrace one single-height step away:
+	// this terrace's rows are then turned by 90° from that one's and its
+	// lattice shifted by lattice.StepShift (see lattice.Terrace.AcrossStep).
+	StepFrom string `json:"step_from,omitempty"`
 }
 
 // Fiducial is a mark the operator images to re-register the tip's
@@ -103,7 +112,8 @@ const (
 type Region struct {
 	Name string `json:"name"`
 	Role Role   `json:"role"`
-	Mode Mode   `json:"mode"`
+	// Mode is the write mode asked for; empty means ModeAuto.
+	Mode Mode `json:"mode,omitempty"`
 	// Species is the dopant precursor the region's windows are meant
 	// for ("P" from phosphine, "As" from arsine), or empty.
 	Species string `json:"species,omitempty"`
@@ -173,4 +183,8 @@ type Rules struct {
 	// 3, 82 (2020)).
 	TunnelGapMinNM *float64 `json:"tunnel_gap_min_nm,omitempty"`
 	TunnelGapMaxNM *float64 `json:"tunnel_gap_max_nm,omitempty"`
+	// APToleranceNM and FEToleranceNM are the placement tolerances (±nm)
+	// of regions that give none, by mode (defaults 0.2 and 2 nm).
+	APToleranceNM *float64 `json:"ap_tolerance_nm,omitempty"`
+	FEToleranceNM *float64 `json:"fe_tolerance_nm,omitempty"`
 }

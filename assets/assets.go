@@ -1,0 +1,13 @@
+// Package assets holds the files built into the dimerpath binary: the
+// demo design (an invented device, see README "The demo design").
+package assets
+
+import _ "embed"
+
+// DemoDesign is the JSON of the built-in demo design, assets/demo.json.
+//
+//go:embed demo.json
+var DemoDesign []byte
+
+// DemoName is the file name the demo is reported under in messages.
+const DemoName = "demo.json"

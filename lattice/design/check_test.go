@@ -1,0 +1,214 @@
+package design
+
+import (
+	"math"
+	"math/rand/v2"
+	"os"
+	"strings"
+	"testing"
+
+	"dimerpath/lattice"
+)
+
+func loadDemo(t testing.TB) *Design {
+	t.Helper()
+	data, err := os.ReadFile("../../assets/demo.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	d, err := Parse("demo.json", data)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return d
+}
+
+// donorRowY is the centre line of the demo's donor row, row 1302.
+var donorRowY = 1302 * lattice.RowSpacing
+
+// Each rule against the demo (which passes every rule) changed so that it
+// breaks that rule exactly once.
+func TestRulesBreakOnce(t *testing.T) {
+	region := func(d *Design, name string) *Region { return d.Variants[0].Region(name) }
+	tests := []struct {
+		name    string
+		rule    string
+		regions []string
+		msg     string
+		change  func(d *Design)
+	}{
+		{"window across the step edge", RuleWindow, []string{"donor-P"}, "reaches off terrace",
+			func(d *Design) {
+				// The step edge crosses y = 1000 at x = 1480 + 80·1000/2000 = 1520.
+				region(d, "donor-P").Shapes[0].Points[0] = [2]float64{1519.95, donorRowY}
+			}},
+		{"window partly erased", RuleWindow, []string{"donor-As"}, "1 of its 4 sites are erased",
+			func(d *Design) {
+				r := region(d, "donor-As")
+				surf, _ := d.Surface()
+				w, _ := surf.PlaceWindow(lattice.ArsineWindow, point(r.Shapes[0].Points[0]))
+				r.Erased = lattice.NewSiteSet()
+				r.Erased.Add(lattice.Site{Terrace: w.Terrace, Row: w.Row, Dimer: w.FirstDimer, Side: 1})
+			}},
+		{"donor region with half a dimer", RuleWindow, []string{"donor-P"}, "half a dimer",
+			func(d *Design) {
+				r := region(d, "donor-P")
+				r.Painted = lattice.NewSiteSet()
+				r.Painted.Add(lattice.Site{Terrace: 0, Row: 1330, Dimer: 2400, Side: 0})
+			}},
+		{"windows on one row without a gap", RuleWindowSpacing, []string{"donor-P", "donor-As"}, "0 intact dimers",
+			func(d *Design) {
+				// P at dimer 2487 opens 2486..2488; As starting at 2489 touches it.
+				region(d, "donor-As").Shapes[0].Points[0] = [2]float64{2489.5 * lattice.DimerPitch, donorRowY}
+			}},
+		{"window facing a window", RuleWindowSpacing, []string{"donor-P", "donor-As"}, "faces window",
+			func(d *Design) {
+				region(d, "donor-As").Shapes[0].Points[0] = [2]float64{2487 * lattice.DimerPitch, donorRowY + lattice.RowSpacing}
+			}},
+		{"window beside a written dimer", RuleWindowSpacing, []string{"donor-P", "sensor-island"}, "is written by region",
+			func(d *Design) {
+				// Widen the island to reach the dimer just left of the P window.
+				region(d, "sensor-island").Shapes = append(region(d, "sensor-island").Shapes,
+					Shape{Kind: ShapeRect, Points: [][2]float64{{2485 * lattice.DimerPitch, donorRowY - 0.3}, {1000, donorRowY + 0.3}}})
+				region(d, "donor-As").Shapes[0].Points[0] = [2]float64{2480 * lattice.DimerPitch, donorRowY + 20}
+			}},
+		{"FE fan too close to the island", RuleFEKeepOut, []string{"sensor-island", "source-fan"}, "keep at least 5 nm",
+			func(d *Design) {
+				// The 40 nm fan's round end now reaches y = 1010, 4.2 nm above the island.
+				region(d, "source-fan").Shapes[0].Points[0] = [2]float64{1000, 1030}
+			}},
+		{"pad beyond the field", RuleScanField, []string{"pad-source"}, "reaches outside the field",
+			func(d *Design) { region(d, "pad-source").Shapes[0].Points[1] = [2]float64{2050, 1940} }},
+		{"gate without its fan-out", RuleFloating, []string{"gate-island"}, "floating",
+			func(d *Design) {
+				v := &d.Variants[0]
+				for i, r := range v.Regions {
+					if r.Name == "gate-island-fan" {
+						v.Regions = append(v.Regions[:i], v.Regions[i+1:]...)
+						break
+					}
+				}
+			}},
+		{"tunnel gap of 6 rows", RuleTunnelGap, []string{"sensor-island", "source-lead"}, "4.61 nm (6.0 dimer rows) is narrower",
+			func(d *Design) { region(d, "source-lead").Shapes[0].Points[0][1] = 1315.5 * lattice.RowSpacing }},
+		{"tunnel gap of 20 rows", RuleTunnelGap, []string{"sensor-island", "source-lead"}, "15.36 nm (20.0 dimer rows) is wider",
+			func(d *Design) { region(d, "source-lead").Shapes[0].Points[0][1] = 1329.5 * lattice.RowSpacing }},
+		{"tunnel gap closed", RuleTunnelGap, []string{"sensor-island", "drain-lead"}, "no tunnel gap",
+			func(d *Design) { region(d, "drain-lead").Shapes[0].Points[1][1] = 1000 }},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			d := loadDemo(t)
+			tc.change(d)
+			if err := d.Validate(); err != nil {
+				t.Fatalf("changed design is invalid: %v", err)
+			}
+			fs, err := Check(d, "gap-9")
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(fs) != 1 {
+				t.Fatalf("%d findings, want exactly one %s:\n%v", len(fs), tc.rule, fs)
+			}
+			f := fs[0]
+			if f.Rule != tc.rule || f.Severity != SeverityError || strings.Join(f.Regions, ",") != strings.Join(tc.regions, ",") || !strings.Contains(f.Message, tc.msg) {
+				t.Errorf("finding %v; want rule %s, regions %v, message with %q", f, tc.rule, tc.regions, tc.msg)
+			}
+			if !d.Field.contains(f.AtNM.X, f.AtNM.Y) && tc.rule != RuleScanField {
+				t.Errorf("finding at %v, outside the field", f.AtNM)
+			}
+		})
+	}
+}
+
+func (f Field) contains(x, y float64) bool {
+	return x >= 0 && y >= 0 && x <= f.WidthNM && y <= f.HeightNM
+}
+
+func TestDemoPassesEveryRule(t *testing.T) {
+	d := loadDemo(t)
+	for _, v := range d.Variants {
+		fs, err := Check(d, v.Name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(fs) != 0 {
+			t.Errorf("variant %s: %d findings: %v", v.Name, len(fs), fs)
+		}
+	}
+	// The variants differ in one tunnel gap: 9 vs 12 dimer rows, i.e.
+	// 9·0.76806 = 6.91 nm and 12·0.76806 = 9.22 nm (Wang et al. 2020
+	// count gaps in dimer rows).
+	for _, tc := range []struct {
+		variant string
+		rows    float64
+	}{{"gap-9", 9}, {"gap-12-source", 12}} {
+		l, err := d.Lay(tc.variant)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := l.GapNM(l.Region("sensor-island"), l.Region("source-lead"))
+		if math.Abs(got-tc.rows*lattice.RowSpacing) > 1e-6 {
+			t.Errorf("%s: source gap %g nm, want %g rows = %g nm", tc.variant, got, tc.rows, tc.rows*lattice.RowSpacing)
+		}
+	}
+}
+
+// Configured rules change the verdict: the demo fails a tunnel-gap range
+// of 8–12 nm (its 9-row gaps are 6.9 nm) and a keep-out of 60 nm.
+func TestRulesAreConfigurable(t *testing.T) {
+	d := loadDemo(t)
+	lo, hi, keep := 8.0, 12.0, 60.0
+	d.Rules = &Rules{TunnelGapMinNM: &lo, TunnelGapMaxNM: &hi}
+	fs, _ := Check(d, "gap-9")
+	if n := countRule(fs, RuleTunnelGap); n != 2 {
+		t.Errorf("tunnel gaps 8–12 nm: %d findings, want 2: %v", n, fs)
+	}
+	d.Rules = &Rules{FEKeepOutNM: &keep}
+	fs, _ = Check(d, "gap-9")
+	if n := countRule(fs, RuleFEKeepOut); n == 0 {
+		t.Errorf("keep-out 60 nm: no findings")
+	}
+}
+
+func countRule(fs []Finding, rule string) int {
+	n := 0
+	for _, f := range fs {
+		if f.Rule == rule {
+			n++
+		}
+	}
+	return n
+}
+
+// The grid index finds the same gap as comparing every pair of cells.
+func TestGapAgainstBruteForce(t *testing.T) {
+	surf, _ := lattice.NewSurface(120, 120)
+	rng := rand.New(rand.NewPCG(21, 22))
+	for trial := range 60 {
+		a, b := lattice.NewSiteSet(), lattice.NewSiteSet()
+		for _, s := range []*lattice.SiteSet{a, b} {
+			for range 1 + rng.IntN(4) {
+				x, y := 120*rng.Float64(), 120*rng.Float64()
+				surf.Paint(s, lattice.RectFromCorners(pt(x, y), pt(x+15*rng.Float64(), y+15*rng.Float64())))
+			}
+		}
+		if a.IsEmpty() || b.IsEmpty() {
+			continue
+		}
+		ia, ib := newCellIndex(surf, a), newCellIndex(surf, b)
+		want := math.Inf(1)
+		for _, ra := range ia.rects {
+			for _, rb := range ib.rects {
+				d, _ := rectGap(ra, rb)
+				want = math.Min(want, d)
+			}
+		}
+		for _, limit := range []float64{0.3, 5, 50, 500} {
+			d, _, ok := ia.gap(ib, limit)
+			if ok != (want <= limit) || (ok && math.Abs(d-want) > 1e-9) {
+				t.Fatalf("trial %d limit %g: gap = %g, %v; brute force %g", trial, limit, d, ok, want)
+			}
+		}
+	}
+}

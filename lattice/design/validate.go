@@ -1,0 +1,410 @@
+package design
+
+import (
+	"fmt"
+	"math"
+
+	"dimerpath/lattice"
+)
+
+var knownRoles = []Role{RoleDevice, RoleGate, RoleLead, RolePad, RoleDonor, RoleOther}
+var knownModes = []Mode{ModeAuto, ModeAP, ModeFE, ModeHybrid}
+var knownKinds = []ShapeKind{ShapeSite, ShapeDimer, ShapeRect, ShapePolygon, ShapePolyline, ShapeWindow, ShapeArray}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+func listOf[T ~string](vs []T) string {
+	s := make([]string, len(vs))
+	for i, v := range vs {
+		s[i] = string(v)
+	}
+	return quoteList(s)
+}
+
+func contains[T comparable](vs []T, v T) bool {
+	for _, x := range vs {
+		if x == v {
+			return true
+		}
+	}
+	return false
+}
+
+// validate adds to ps every problem of the design's meaning: format and
+// version, field size, terraces, fiducials, rules, templates, variants,
+// regions, shapes and tunnel gaps, and painted sites that do not exist on
+// the design's surface.
+func (d *Design) validate(ps *problems) {
+	switch {
+	case d.Format == "":
+		ps.add("format", "missing: a design file starts with \"format\": %q", FormatName)
+	case d.Format != FormatName:
+		ps.add("format", "%q is not a dimerpath design (want %q)", d.Format, FormatName)
+	}
+	switch {
+	case d.Version == 0:
+		ps.add("version", "missing: this program writes version %d", FormatVersion)
+	case d.Version < 0:
+		ps.add("version", "%d is not a version number", d.Version)
+	case d.Version > FormatVersion:
+		ps.add("version", "%d is newer than this program reads (%d): update dimerpath", d.Version, FormatVersion)
+	}
+	if d.Name == "" {
+		ps.add("name", "missing: give the design a name")
+	}
+	fieldOK := true
+	for _, f := range []struct {
+		path string
+		v    float64
+	}{{"field.width_nm", d.Field.WidthNM}, {"field.height_nm", d.Field.HeightNM}} {
+		if !(f.v > 0) || f.v > MaxFieldNM {
+			ps.add(f.path, "%g must be more than 0 and at most %g nm", f.v, MaxFieldNM)
+			fieldOK = false
+		}
+	}
+	terracesOK := d.validateTerraces(ps)
+	for i, f := range d.Fiducials {
+		path := fmt.Sprintf("fiducials[%d]", i)
+		if f.Name == "" {
+			ps.add(path+".name", "missing")
+		}
+		for j := range i {
+			if f.Name != "" && d.Fiducials[j].Name == f.Name {
+				ps.add(path+".name", "%q is also the name of fiducials[%d]", f.Name, j)
+			}
+		}
+		if !finite(f.AtNM[0]) || !finite(f.AtNM[1]) {
+			ps.add(path+".at_nm", "%v is not a finite position", f.AtNM)
+		} else if fieldOK && (f.AtNM[0] < 0 || f.AtNM[1] < 0 || f.AtNM[0] > d.Field.WidthNM || f.AtNM[1] > d.Field.HeightNM) {
+			ps.add(path+".at_nm", "%v lies outside the %g x %g nm field", f.AtNM, d.Field.WidthNM, d.Field.HeightNM)
+		}
+	}
+	d.validateRules(ps)
+	for i, t := range d.WindowTemplates {
+		path := fmt.Sprintf("templates[%d]", i)
+		if err := t.Validate(); err != nil {
+			ps.add(path, "%v", err)
+		}
+		for j := range i {
+			if d.WindowTemplates[j].Name == t.Name {
+				ps.add(path+".name", "%q is also the name of templates[%d]", t.Name, j)
+			}
+		}
+	}
+	templates := d.Templates()
+	species := map[string]bool{}
+	for _, t := range templates {
+		species[t.Species] = true
+	}
+	var surf *lattice.Surface
+	if fieldOK && terracesOK {
+		var err error
+		if surf, err = d.Surface(); err != nil {
+			ps.add("terraces", "%v", err)
+		}
+	}
+	if len(d.Variants) == 0 {
+		ps.add("variants", "missing: a design needs at least one variant")
+	}
+	if len(d.Variants) > MaxVariants {
+		ps.add("variants", "%d variants, more than the limit of %d", len(d.Variants), MaxVariants)
+		return
+	}
+	for i := range d.Variants {
+		d.validateVariant(ps, i, templates, species, surf)
+	}
+}
+
+func (d *Design) validateTerraces(ps *problems) bool {
+	ok := true
+	if len(d.Terraces) > lattice.MaxTerraces {
+		ps.add("terraces", "%d terraces, more than the limit of %d", len(d.Terraces), lattice.MaxTerraces)
+		return false
+	}
+	unbounded := -1
+	for i, t := range d.Terraces {
+		path := fmt.Sprintf("terraces[%d]", i)
+		if t.Name == "" {
+			ps.add(path+".name", "missing")
+			ok = false
+		}
+		for j := range i {
+			if t.Name != "" && d.Terraces[j].Name == t.Name {
+				ps.add(path+".name", "%q is also the name of terraces[%d]", t.Name, j)
+				ok = false
+			}
+		}
+		if t.StepFrom != "" {
+			found := false
+			for j := range i {
+				found = found || d.Terraces[j].Name == t.StepFrom
+			}
+			if !found {
+				ps.add(path+".step_from", "%q names no earlier terrace", t.StepFrom)
+				ok = false
+			}
+			if t.Rows != "" {
+				if _, err := ParseRows(t.Rows); err != nil {
+					ps.add(path+".rows", "%v", err)
+					ok = false
+				}
+			}
+		} else if _, err := ParseRows(t.Rows); err != nil {
+			ps.add(path+".rows", "%v (or give step_from)", err)
+			ok = false
+		}
+		if !finite(t.OffsetNM[0]) || !finite(t.OffsetNM[1]) {
+			ps.add(path+".offset_nm", "%v is not finite", t.OffsetNM)
+			ok = false
+		}
+		switch n := len(t.Boundary); {
+		case n == 0:
+			if unbounded >= 0 {
+				ps.add(path+".boundary_nm", "missing, as is that of terraces[%d]: only one terrace may take the rest of the field", unbounded)
+				ok = false
+			}
+			unbounded = i
+		case n < 3:
+			ps.add(path+".boundary_nm", "has %d points; a polygon needs 3 or more", n)
+			ok = false
+		case n > MaxPoints:
+			ps.add(path+".boundary_nm", "has %d points, more than the limit of %d", n, MaxPoints)
+			ok = false
+		}
+		for k, p := range t.Boundary {
+			if !finite(p[0]) || !finite(p[1]) {
+				ps.add(fmt.Sprintf("%s.boundary_nm[%d]", path, k), "%v is not a finite point", p)
+				ok = false
+			}
+		}
+	}
+	return ok
+}
+
+func (d *Design) validateRules(ps *problems) {
+	r := d.Rules
+	if r == nil {
+		return
+	}
+	nonNeg := func(path string, v *float64) {
+		if v != nil && !(*v >= 0 && *v <= MaxFieldNM) {
+			ps.add("rules."+path, "%g must be between 0 and %g nm", *v, MaxFieldNM)
+		}
+	}
+	positive := func(path string, v *float64) {
+		if v != nil && !(*v > 0 && *v <= MaxFieldNM) {
+			ps.add("rules."+path, "%g must be more than 0 and at most %g nm", *v, MaxFieldNM)
+		}
+	}
+	if r.ScanFieldNM != nil {
+		for k, v := range r.ScanFieldNM {
+			if !(v > 0 && v <= MaxFieldNM) {
+				ps.add(fmt.Sprintf("rules.scan_field_nm[%d]", k), "%g must be more than 0 and at most %g nm", v, MaxFieldNM)
+			}
+		}
+	}
+	for _, iv := range []struct {
+		path string
+		v    *int
+	}{{"window_gap_dimers", r.WindowGapDimers}, {"window_facing_rows", r.WindowFacingRows}} {
+		if iv.v != nil && (*iv.v < 0 || *iv.v > 1000) {
+			ps.add("rules."+iv.path, "%d must be between 0 and 1000", *iv.v)
+		}
+	}
+	nonNeg("fe_keepout_nm", r.FEKeepOutNM)
+	nonNeg("tunnel_gap_min_nm", r.TunnelGapMinNM)
+	positive("tunnel_gap_max_nm", r.TunnelGapMaxNM)
+	positive("ap_tolerance_nm", r.APToleranceNM)
+	positive("fe_tolerance_nm", r.FEToleranceNM)
+	if rs := d.EffectiveRules(); rs.TunnelGapMaxNM < rs.TunnelGapMinNM {
+		ps.add("rules", "tunnel gap range %g–%g nm is empty: the maximum is below the minimum", rs.TunnelGapMinNM, rs.TunnelGapMaxNM)
+	}
+}
+
+func (d *Design) validateVariant(ps *problems, vi int, templates Templates, species map[string]bool, surf *lattice.Surface) {
+	v := &d.Variants[vi]
+	path := fmt.Sprintf("variants[%d]", vi)
+	if v.Name == "" {
+		ps.add(path+".name", "missing")
+	}
+	for j := range vi {
+		if v.Name != "" && d.Variants[j].Name == v.Name {
+			ps.add(path+".name", "%q is also the name of variants[%d]", v.Name, j)
+		}
+	}
+	if len(v.Regions) > MaxRegions {
+		ps.add(path+".regions", "%d regions, more than the limit of %d", len(v.Regions), MaxRegions)
+		return
+	}
+	copies := 0
+	names := map[string]int{}
+	for ri := range v.Regions {
+		r := &v.Regions[ri]
+		rp := fmt.Sprintf("%s.regions[%d]", path, ri)
+		if r.Name == "" {
+			ps.add(rp+".name", "missing")
+		} else if j, dup := names[r.Name]; dup {
+			ps.add(rp+".name", "%q is also the name of regions[%d]", r.Name, j)
+		} else {
+			names[r.Name] = ri
+		}
+		if !contains(knownRoles, r.Role) {
+			ps.add(rp+".role", "%q is not a role (%s)", r.Role, listOf(knownRoles))
+		}
+		if r.Mode != "" && !contains(knownModes, r.Mode) {
+			ps.add(rp+".mode", "%q is not a write mode (%s)", r.Mode, listOf(knownModes))
+		}
+		if r.Species != "" && !species[r.Species] {
+			ps.add(rp+".species", "%q is the species of no window template", r.Species)
+		}
+		if !(r.ToleranceNM >= 0 && r.ToleranceNM <= MaxFieldNM) {
+			ps.add(rp+".tolerance_nm", "%g must be between 0 (the mode's default) and %g nm", r.ToleranceNM, MaxFieldNM)
+		}
+		if len(r.Shapes) > MaxShapes {
+			ps.add(rp+".shapes", "%d shapes, more than the limit of %d", len(r.Shapes), MaxShapes)
+			continue
+		}
+		for si := range r.Shapes {
+			copies += validateShape(ps, fmt.Sprintf("%s.shapes[%d]", rp, si), &r.Shapes[si], r, templates, false)
+		}
+		if surf != nil {
+			for _, set := range []struct {
+				name string
+				s    *lattice.SiteSet
+			}{{"painted", r.Painted}, {"erased", r.Erased}} {
+				if set.s == nil {
+					continue
+				}
+				if missing := surf.Missing(set.s); !missing.IsEmpty() {
+					ps.add(rp+"."+set.name, "%s", describeMissing(missing))
+				}
+			}
+		}
+	}
+	if copies > MaxArrayCopies {
+		ps.add(path, "its arrays hold %d copies together, more than the limit of %d", copies, MaxArrayCopies)
+	}
+	for gi, g := range v.TunnelGaps {
+		gp := fmt.Sprintf("%s.tunnel_gaps[%d]", path, gi)
+		for _, end := range []struct{ field, name string }{{"a", g.A}, {"b", g.B}} {
+			if _, ok := names[end.name]; !ok {
+				ps.add(gp+"."+end.field, "%q names no region of variant %q", end.name, v.Name)
+			}
+		}
+		if g.A == g.B && g.A != "" {
+			ps.add(gp, "a gap needs two different regions, not %q twice", g.A)
+		}
+		if !(g.MinNM >= 0 && g.MinNM <= MaxFieldNM) {
+			ps.add(gp+".min_nm", "%g must be between 0 (the rule's) and %g nm", g.MinNM, MaxFieldNM)
+		}
+		if !(g.MaxNM >= 0 && g.MaxNM <= MaxFieldNM) {
+			ps.add(gp+".max_nm", "%g must be between 0 (the rule's) and %g nm", g.MaxNM, MaxFieldNM)
+		}
+		if g.MinNM > 0 && g.MaxNM > 0 && g.MaxNM < g.MinNM {
+			ps.add(gp, "range %g–%g nm is empty", g.MinNM, g.MaxNM)
+		}
+	}
+}
+
+// validateShape adds the shape's problems and returns the number of
+// array copies it holds.
+func validateShape(ps *problems, path string, sh *Shape, r *Region, templates Templates, inArray bool) int {
+	if !contains(knownKinds, sh.Kind) {
+		ps.add(path+".kind", "%q is not a shape kind (%s)", sh.Kind, listOf(knownKinds))
+		return 0
+	}
+	n := len(sh.Points)
+	switch sh.Kind {
+	case ShapeSite, ShapeDimer, ShapeWindow:
+		if n != 1 {
+			ps.add(path+".points_nm", "a %s takes exactly one point, has %d", sh.Kind, n)
+		}
+	case ShapeRect:
+		if n != 2 {
+			ps.add(path+".points_nm", "a rect takes two opposite corners, has %d points", n)
+		}
+	case ShapePolygon:
+		if n < 3 {
+			ps.add(path+".points_nm", "a polygon needs 3 or more points, has %d", n)
+		}
+	case ShapePolyline:
+		if n < 2 {
+			ps.add(path+".points_nm", "a polyline needs 2 or more points, has %d", n)
+		}
+	case ShapeArray:
+		if n != 0 {
+			ps.add(path+".points_nm", "an array takes no points (its \"of\" shape has the first copy's)")
+		}
+	}
+	if n > MaxPoints {
+		ps.add(path+".points_nm", "has %d points, more than the limit of %d", n, MaxPoints)
+	}
+	for k, p := range sh.Points {
+		if !finite(p[0]) || !finite(p[1]) {
+			ps.add(fmt.Sprintf("%s.points_nm[%d]", path, k), "%v is not a finite point", p)
+		}
+	}
+	if sh.Kind == ShapePolyline {
+		if !(sh.WidthNM > 0 && sh.WidthNM <= MaxFieldNM) {
+			ps.add(path+".width_nm", "%g must be more than 0 and at most %g nm", sh.WidthNM, MaxFieldNM)
+		}
+	} else if sh.WidthNM != 0 {
+		ps.add(path+".width_nm", "only polylines have a width")
+	}
+	if sh.Kind == ShapeWindow {
+		t, ok := templates[sh.Template]
+		switch {
+		case sh.Template == "":
+			ps.add(path+".template", "missing: a window names its template (%s)", quoteList(templates.Names()))
+		case !ok:
+			ps.add(path+".template", "%q is not a template (%s)", sh.Template, quoteList(templates.Names()))
+		case r.Species != "" && t.Species != r.Species:
+			ps.add(path+".template", "template %q is for %s, but region %q is for %s", sh.Template, t.Species, r.Name, r.Species)
+		}
+	} else if sh.Template != "" {
+		ps.add(path+".template", "only windows have a template")
+	}
+	if sh.Kind != ShapeArray {
+		if sh.Array != nil {
+			ps.add(path+".array", "only array shapes have an array")
+		}
+		return 0
+	}
+	a := sh.Array
+	if a == nil {
+		ps.add(path+".array", "missing: an array shape needs {\"of\", \"cols\", \"rows\", \"pitch_dimers\", \"pitch_rows\"}")
+		return 0
+	}
+	ap := path + ".array"
+	if inArray {
+		ps.add(ap, "arrays do not nest")
+		return 0
+	}
+	if a.Of == nil {
+		ps.add(ap+".of", "missing: the shape to repeat (a site, dimer or window)")
+	} else if a.Of.Kind != ShapeSite && a.Of.Kind != ShapeDimer && a.Of.Kind != ShapeWindow {
+		ps.add(ap+".of.kind", "%q cannot be arrayed: arrays repeat a site, dimer or window", a.Of.Kind)
+	} else {
+		validateShape(ps, ap+".of", a.Of, r, templates, true)
+	}
+	if a.Cols < 1 || a.Cols > MaxArrayCopies {
+		ps.add(ap+".cols", "%d must be between 1 and %d", a.Cols, MaxArrayCopies)
+	}
+	if a.Rows < 1 || a.Rows > MaxArrayCopies {
+		ps.add(ap+".rows", "%d must be between 1 and %d", a.Rows, MaxArrayCopies)
+	}
+	if a.PitchDimers < 0 || (a.Cols > 1 && a.PitchDimers < 1) || a.PitchDimers > lattice.MaxRowIndex/2 {
+		ps.add(ap+".pitch_dimers", "%d must be at least 1 (with more than one column) and at most %d", a.PitchDimers, lattice.MaxRowIndex/2)
+	}
+	if a.PitchRows < 0 || (a.Rows > 1 && a.PitchRows < 1) || a.PitchRows > lattice.MaxRows {
+		ps.add(ap+".pitch_rows", "%d must be at least 1 (with more than one row) and at most %d", a.PitchRows, lattice.MaxRows)
+	}
+	if a.Cols >= 1 && a.Rows >= 1 {
+		if c := int64(a.Cols) * int64(a.Rows); c > MaxArrayCopies {
+			ps.add(ap, "%d x %d = %d copies, more than the limit of %d", a.Cols, a.Rows, c, MaxArrayCopies)
+			return MaxArrayCopies + 1
+		}
+		return a.Cols * a.Rows
+	}
+	return 0
+}
