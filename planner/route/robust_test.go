@@ -14,7 +14,9 @@ import (
 // (many equal distances, like dimer-row sites), strokes chained end to
 // end, and a tight cluster far from the rest.
 func TestDegenerateInputs(t *testing.T) {
-	pt := func(x, y float64) route.Item { return route.Item{A: route.Point{X: x, Y: y}, B: route.Point{X: x, Y: y}} }
+	pt := func(x, y float64) route.Item {
+		return route.Item{A: route.Point{X: x, Y: y}, B: route.Point{X: x, Y: y}}
+	}
 	var same, line, lattice, chain, cluster []route.Item
 	for i := range 2000 {
 		same = append(same, pt(3, 3))
