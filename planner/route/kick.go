@@ -63,9 +63,9 @@ func (s *solver) kick(r *rng, segMax int32) bool {
 		return false
 	}
 	before := s.length
-	delta := g.d(a1, b2) + g.d(c1, a2) + g.d(b1, c2) - g.d(a1, a2) - g.d(b1, b2) - g.d(c1, c2)
 	mark := len(s.journal)
 	s.recording = true
+	delta := g.d(a1, b2) + g.d(c1, a2) + g.d(b1, c2) - g.d(a1, a2) - g.d(b1, b2) - g.d(c1, c2)
 	s.moveSegment(a2, b1, c1, c2, false)
 	s.length += delta
 	for _, v := range [...]int32{a1, a2, b1, b2, c1, c2} {

@@ -101,6 +101,9 @@ func (c *control) heuristic(items []Item, start *Point, closed bool, deadline ti
 			fixedLen += g.d(v, p)
 		}
 	}
+	if g.real > len(items) {
+		s.orientUnits() // there are strokes
+	}
 	c.report("construct", s.length-fixedLen, 0)
 	for _, v := range s.t {
 		s.push(v)
