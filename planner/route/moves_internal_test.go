@@ -139,3 +139,42 @@ func TestOrientUnits(t *testing.T) {
 		}
 	}
 }
+
+// TestKickKeepsTour checks that kicks leave a valid tour whose tracked
+// length is its real length, and never a longer one.
+func TestKickKeepsTour(t *testing.T) {
+	r := rand.New(rand.NewPCG(4, 4))
+	for trial := range 100 {
+		n := 12 + r.IntN(200)
+		items := make([]Item, n)
+		for i := range items {
+			p := Point{X: r.Float64() * 100, Y: r.Float64() * 100}
+			q := p
+			if trial%2 == 1 && r.IntN(2) == 0 {
+				q = Point{X: p.X + r.Float64()*10, Y: p.Y + r.Float64()*10}
+			}
+			items[i] = Item{A: p, B: q}
+		}
+		g := newGraph(items, nil, trial%3 == 0)
+		nb := buildNeighbours(g, 8)
+		s := newSolver(g, nb, g.tourFromOrder(r.Perm(n), make([]bool, n)))
+		s.or3 = true
+		rg := newRNG(int64(trial))
+		for range 50 {
+			before := s.tourLength()
+			s.kick(rg, 30)
+			after := s.tourLength()
+			if math.Abs(after-s.length) > 1e-6 || after > before+1e-9 {
+				t.Fatalf("trial %d: length %v (tracked %v), before %v", trial, after, s.length, before)
+			}
+			for i, v := range s.t {
+				if s.pos[v] != int32(i) {
+					t.Fatal("position index broken")
+				}
+				if p := g.partner[v]; p >= 0 && s.succ(v) != p && s.pred(v) != p {
+					t.Fatal("fixed edge cut")
+				}
+			}
+		}
+	}
+}
