@@ -122,7 +122,7 @@ func (c *control) heuristic(items []Item, start *Point, closed bool, deadline ti
 	// Measured on the yardstick (2 s runs): the longest run of failed
 	// kicks before a later improvement was about 50 n on 1,000-20,000
 	// nodes, so a search this long without one has converged.
-	stall := max(20_000, 50*int(s.n))
+	stall := max(10_000, 50*int(s.n))
 	lastGain := 0
 	for i := 0; kicks <= 0 || i < kicks; i++ {
 		if i&15 == 0 {
