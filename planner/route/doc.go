@@ -36,8 +36,9 @@
 //     capped at 50,000 positions and the 3-opt moves are off.
 //   - Improvement until the budget is spent: segment-local double-bridge
 //     kicks (Martin, Otto & Felten 1991): four edges cut close together,
-//     X B C D reconnected as X D C B with B, C, D of up to 100 nodes,
-//     re-optimised from the eight touched nodes only and kept when the
+//     X B C D reconnected as X D C B (or, for half the kicks, X C B D)
+//     with B, C, D of up to 300 nodes, re-optimised from the touched
+//     nodes only and kept when the
 //     tour is no longer, else undone from a journal of reversals: iterated
 //     local search (Johnson & McGeoch 1997, "The traveling salesman
 //     problem: a case study in local optimization").
