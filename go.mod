@@ -8,11 +8,15 @@ require (
 	codeberg.org/go-pdf/fpdf v0.11.1 // indirect
 	fyne.io/fyne/v2 v2.7.1 // indirect
 	git.sr.ht/~sbinet/gg v0.7.0 // indirect
+	github.com/RoaringBitmap/roaring/v2 v2.30.0 // indirect
 	github.com/ajstarks/svgo v0.0.0-20211024235047-1546f124cd8b // indirect
+	github.com/bits-and-blooms/bitset v1.24.4 // indirect
 	github.com/go-pdf/fpdf v0.9.0 // indirect
 	github.com/golang/freetype v0.0.0-20170609003504-e2365dfdc4a0 // indirect
 	github.com/golang/geo v0.0.0-20260818125358-b200a1149890 // indirect
+	github.com/mschoch/smat v0.2.0 // indirect
 	golang.org/x/image v0.30.0 // indirect
+	golang.org/x/sys v0.30.0 // indirect
 	golang.org/x/text v0.28.0 // indirect
 	gonum.org/v1/gonum v0.17.0 // indirect
 	gonum.org/v1/plot v0.17.0 // indirect
