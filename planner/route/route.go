@@ -79,14 +79,107 @@ type Solution struct {
 	TimeS float64
 }
 
-// Solve orders p's items. It returns ctx.Err() if cancelled.
+// Solve orders p's items to make the idle travel short. It first checks p
+// (see Problem.Validate). Up to 10 items (per group) it returns an exact
+// optimum; above that it builds a greedy tour, improves it to a local
+// optimum with 2-opt and Or-opt, then perturbs and re-optimises it until
+// opt's budget is spent (see the package documentation for the methods
+// and their sources). The construction and the first local optimum
+// always complete; the budget, counted from the call, bounds the
+// improvement after them.
 //
-// This placeholder keeps input order; the real engine replaces it.
+// If ctx is cancelled Solve returns ctx.Err() together with the best
+// ordering found so far, or an empty Solution if none was complete yet.
+//
+// Time: O(n log n) to build, then about O(n) per pass of local search;
+// memory O(n).
 func Solve(ctx context.Context, p Problem, opt Options) (Solution, error) {
-	n := len(p.Items)
-	s := Solution{Order: make([]int, n), Reversed: make([]bool, n)}
-	for i := range s.Order {
-		s.Order[i] = i
+	if err := p.Validate(); err != nil {
+		return Solution{}, err
 	}
-	return s, ctx.Err()
+	c := newControl(ctx, p, opt)
+	order, rev, err := solveGroups(p, c.solve)
+	if order == nil {
+		return Solution{}, err
+	}
+	return p.solution(order, rev), err
+}
+
+// Nearest orders p's items by the nearest-neighbour rule: from the start
+// (or the first item), go to the nearest end of any item not yet written,
+// write it from there, repeat. Groups are taken in the same order as by
+// Solve. It is the baseline Solve is measured against. O(n log n).
+func Nearest(p Problem) (Solution, error) {
+	if err := p.Validate(); err != nil {
+		return Solution{}, err
+	}
+	order, rev, _ := solveGroups(p, func(items []Item, start *Point, closed bool, share float64) ([]int, []bool, error) {
+		o, r := nearestOrder(items, start)
+		return o, r, nil
+	})
+	return p.solution(order, rev), nil
+}
+
+// Evaluate returns the Solution for visiting p's items in the given
+// order and directions, with its Length and TimeS. It panics if the
+// slices differ in length or an index is out of range.
+func (p Problem) Evaluate(order []int, reversed []bool) Solution {
+	if len(order) != len(reversed) {
+		panic("route: Evaluate: order and reversed differ in length")
+	}
+	return p.solution(append([]int(nil), order...), append([]bool(nil), reversed...))
+}
+
+// Moves is the number of tip moves an ordering of p makes: between
+// items, from the start to the first item when p has a start, and back
+// to the start (or the first item) when p is closed.
+func (p Problem) Moves() int {
+	n := len(p.Items)
+	if n == 0 {
+		return 0
+	}
+	m := n - 1
+	if p.Start != nil {
+		m++
+	}
+	if p.Closed {
+		m++
+	}
+	return m
+}
+
+func (p Problem) solution(order []int, rev []bool) Solution {
+	s := Solution{Order: order, Reversed: rev}
+	var cur *Point
+	if p.Start != nil {
+		st := *p.Start
+		cur = &st
+	}
+	var home *Point
+	for k, i := range order {
+		it := p.Items[i]
+		in, out := it.A, it.B
+		if rev[k] {
+			in, out = out, in
+		}
+		if cur != nil {
+			s.Length += dist(*cur, in)
+		}
+		if home == nil {
+			h := in
+			if p.Start != nil {
+				h = *p.Start
+			}
+			home = &h
+		}
+		cur = &out
+	}
+	if p.Closed && cur != nil && home != nil {
+		s.Length += dist(*cur, *home)
+	}
+	if p.MoveSpeed > 0 {
+		s.TimeS = s.Length / p.MoveSpeed
+	}
+	s.TimeS += p.SettleS * float64(p.Moves())
+	return s
 }

@@ -1,0 +1,9 @@
+package route
+
+// SetExactMax changes the largest problem solved exactly, for tests of
+// the heuristic on small problems, and returns a function restoring it.
+func SetExactMax(n int) (restore func()) {
+	old := exactMax
+	exactMax = n
+	return func() { exactMax = old }
+}

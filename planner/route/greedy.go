@@ -1,0 +1,197 @@
+package route
+
+import (
+	"cmp"
+	"math"
+	"slices"
+)
+
+// greedyTour builds a tour by greedy edge matching (the "greedy" or
+// "multi-fragment" heuristic; Bentley 1992, "Fast algorithms for
+// geometric traveling salesman problems", ORSA J. Computing 4(4)):
+// candidate edges from the neighbour lists are taken shortest first
+// whenever both ends still have degree < 2 and the edge closes no cycle.
+// Fixed edges are taken first. The fragments left over are joined by the
+// same rule on their end nodes, in rounds, until one path remains; the
+// path is then closed (through the dummy for an open path). O(n log n).
+func greedyTour(g *graph, nb *neighbours) []int32 {
+	n := g.n()
+	adj := make([]int32, 2*n)
+	for i := range adj {
+		adj[i] = -1
+	}
+	deg := make([]uint8, n)
+	uf := make([]int32, n)
+	for i := range uf {
+		uf[i] = int32(i)
+	}
+	find := func(v int32) int32 {
+		for uf[v] != v {
+			uf[v] = uf[uf[v]]
+			v = uf[v]
+		}
+		return v
+	}
+	link := func(u, v int32) {
+		adj[2*u+int32(deg[u])] = v
+		deg[u]++
+		adj[2*v+int32(deg[v])] = u
+		deg[v]++
+		uf[find(u)] = find(v)
+	}
+	for v := range int32(g.real) {
+		if p := g.partner[v]; p > v && p != g.dummy {
+			link(v, p)
+		}
+	}
+	// The start of an open path keeps one edge free for the dummy.
+	full := func(v int32) bool {
+		return deg[v] >= 2 || (v == g.start && g.dummy >= 0 && deg[v] >= 1)
+	}
+	fragments := g.real
+	for v := range int32(g.real) {
+		if p := g.partner[v]; p > v && p != g.dummy {
+			fragments--
+		}
+	}
+
+	// First round on the full neighbour lists.
+	var edges []cand
+	for v := range int32(g.real) {
+		ids, ds := nb.list(v)
+		for j, u := range ids {
+			if u < 0 {
+				break
+			}
+			if u < v && contains(nb, u, v) {
+				continue // listed from u's side
+			}
+			edges = append(edges, cand{u: v, v: u, d: ds[j]})
+		}
+	}
+	take := func(edges []cand) {
+		sortCands(edges)
+		for _, e := range edges {
+			if fragments <= 1 {
+				return
+			}
+			if !full(e.u) && !full(e.v) && find(e.u) != find(e.v) {
+				link(e.u, e.v)
+				fragments--
+			}
+		}
+	}
+	take(edges)
+
+	// Later rounds: join fragment ends to the nearest ends of other
+	// fragments. Each round takes at least the shortest such edge.
+	const kEnds = 8
+	for fragments > 1 {
+		ends := make([]int32, 0)
+		for v := range int32(g.real) {
+			if !full(v) {
+				ends = append(ends, v)
+			}
+		}
+		t := newKDTree(g.x, g.y, append([]int32(nil), ends...))
+		b := newKNNBuf(min(kEnds, len(ends)))
+		edges = edges[:0]
+		for _, v := range ends {
+			b.qx, b.qy, b.ex1, b.ex2 = g.x[v], g.y[v], v, -1
+			t.nearest(b)
+			fv := find(v)
+			for j, u := range b.id {
+				if find(u) != fv {
+					edges = append(edges, cand{u: v, v: u, d: math.Sqrt(b.d2[j])})
+				}
+			}
+		}
+		take(edges)
+	}
+
+	// Walk the single path from one end: the start when the path is
+	// open and has one, since its other edge goes to the dummy.
+	first := int32(0)
+	for v := range int32(g.real) {
+		if adj[2*v+1] < 0 {
+			first = v
+			break
+		}
+	}
+	if g.start >= 0 && g.dummy >= 0 {
+		first = g.start
+	}
+	tour := make([]int32, 0, n)
+	prev, cur := int32(-1), first
+	for range g.real {
+		tour = append(tour, cur)
+		next := adj[2*cur]
+		if next == prev {
+			next = adj[2*cur+1]
+		}
+		if next < 0 {
+			break
+		}
+		prev, cur = cur, next
+	}
+	if g.dummy >= 0 {
+		tour = append(tour, g.dummy)
+	}
+	return tour
+}
+
+// contains reports whether u's neighbour list holds v.
+func contains(nb *neighbours, u, v int32) bool {
+	ids, _ := nb.list(u)
+	for _, w := range ids {
+		if w == v {
+			return true
+		}
+	}
+	return false
+}
+
+// cand is a candidate edge.
+type cand struct {
+	u, v int32
+	d    float64
+}
+
+// sortCands sorts edges by length, ties in input order: a stable LSD
+// radix sort on the float32 bit pattern of the length (non-negative
+// floats order as their bits), O(n).
+func sortCands(edges []cand) {
+	n := len(edges)
+	if n < 256 {
+		slices.SortStableFunc(edges, func(a, b cand) int { return cmp.Compare(a.d, b.d) })
+		return
+	}
+	keys := make([]uint64, n)
+	for i, e := range edges {
+		keys[i] = uint64(math.Float32bits(float32(e.d)))<<32 | uint64(i)
+	}
+	tmp := make([]uint64, n)
+	var count [1 << 16]int
+	for shift := uint(32); shift < 64; shift += 16 {
+		clear(count[:])
+		for _, k := range keys {
+			count[(k>>shift)&0xffff]++
+		}
+		sum := 0
+		for i, c := range count {
+			count[i] = sum
+			sum += c
+		}
+		for _, k := range keys {
+			b := (k >> shift) & 0xffff
+			tmp[count[b]] = k
+			count[b]++
+		}
+		keys, tmp = tmp, keys
+	}
+	sorted := make([]cand, n)
+	for i, k := range keys {
+		sorted[i] = edges[uint32(k)]
+	}
+	copy(edges, sorted)
+}

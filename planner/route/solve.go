@@ -1,0 +1,237 @@
+package route
+
+import (
+	"context"
+	"os"
+	"strconv"
+	"time"
+)
+
+// control carries one Solve call's limits and reporting.
+type control struct {
+	ctx      context.Context
+	begin    time.Time
+	deadline time.Time // zero: no wall-clock bound
+	kicks    int       // 0: no kick bound
+	items    int       // items in the whole problem
+	seed     int64
+	progress func(Progress)
+	lastProg time.Time
+}
+
+func newControl(ctx context.Context, p Problem, opt Options) *control {
+	c := &control{ctx: ctx, begin: time.Now(), kicks: opt.MaxKicks, items: len(p.Items),
+		seed: opt.Seed, progress: opt.Progress}
+	budget := opt.Budget
+	if budget == 0 && opt.MaxKicks <= 0 {
+		budget = DefaultBudget
+	}
+	if budget > 0 {
+		c.deadline = c.begin.Add(budget)
+	}
+	return c
+}
+
+func (c *control) report(phase string, length, fraction float64) {
+	if c.progress == nil {
+		return
+	}
+	now := time.Now()
+	c.lastProg = now
+	c.progress(Progress{Phase: phase, Length: length, Elapsed: now.Sub(c.begin), Fraction: min(max(fraction, 0), 1)})
+}
+
+// solve orders one group's items: exactly when there are few, else by
+// the heuristic. share is the group's part of the remaining budget.
+func (c *control) solve(items []Item, start *Point, closed bool, share float64) ([]int, []bool, error) {
+	if err := c.ctx.Err(); err != nil {
+		return nil, nil, err
+	}
+	if len(items) <= exactMax {
+		o, r := solveExact(items, start, closed)
+		return o, r, nil
+	}
+	deadline := c.deadline
+	if !deadline.IsZero() {
+		left := time.Until(deadline)
+		deadline = time.Now().Add(time.Duration(float64(left) * share))
+	}
+	kicks := 0
+	if c.kicks > 0 {
+		kicks = max(1, int(float64(c.kicks)*float64(len(items))/float64(max(c.items, 1))))
+	}
+	return c.heuristic(items, start, closed, deadline, kicks)
+}
+
+// kickSegMax bounds the segments a kick swaps, in nodes.
+var kickSegMax int32 = 50
+
+func (c *control) heuristic(items []Item, start *Point, closed bool, deadline time.Time, kicks int) ([]int, []bool, error) {
+	g := newGraph(items, start, !closed)
+	k := 10
+	if g.n() > 200_000 {
+		k = 8
+	}
+	nb := buildNeighbours(g, k)
+	if err := c.ctx.Err(); err != nil {
+		return nil, nil, err
+	}
+	tour := greedyTour(g, nb)
+	s := newSolver(g, nb, tour)
+	if g.oneWay >= 2 {
+		// Turning the backward one-way strokes of the greedy tour round
+		// can cost much, and the one-way edges block most reversals
+		// afterwards, so start from the nearest-neighbour order (which
+		// writes them forwards) when that is shorter.
+		s.orientOneWay()
+		o, r := nearestOrder(items, start)
+		if alt := newSolver(g, nb, g.tourFromOrder(o, r)); alt.length < s.length {
+			s = alt
+		}
+	}
+	if s.n > 100_000 {
+		s.maxRev = 50_000
+	}
+	// The 3-opt moves' flips are not bounded by maxRev.
+	s.or3 = s.maxRev >= s.n && os.Getenv("ROUTE_NO_OR3") == ""
+	if v := os.Getenv("ROUTE_ORMAX"); v != "" {
+		s.orMax, _ = strconv.Atoi(v)
+	}
+	if v := os.Getenv("ROUTE_SEG"); v != "" {
+		x, _ := strconv.Atoi(v)
+		kickSegMax = int32(x)
+	}
+	fixedLen := 0.0
+	for v := range int32(g.real) {
+		if p := g.partner[v]; p > v && p != g.dummy {
+			fixedLen += g.d(v, p)
+		}
+	}
+	c.report("construct", s.length-fixedLen, 0)
+	for _, v := range s.t {
+		s.push(v)
+	}
+	stop := func() bool { return c.ctx.Err() != nil }
+	if !s.localSearch(stop) {
+		o, r := s.extract()
+		return o, r, c.ctx.Err()
+	}
+	c.report("local", s.length-fixedLen, 0)
+
+	r := newRNG(c.seed)
+	t0 := time.Now()
+	total := deadline.Sub(t0)
+	for i := 0; kicks <= 0 || i < kicks; i++ {
+		if i&15 == 0 {
+			if c.ctx.Err() != nil {
+				break
+			}
+			now := time.Now()
+			if !deadline.IsZero() && !now.Before(deadline) {
+				break
+			}
+			if c.progress != nil && now.Sub(c.lastProg) > 100*time.Millisecond {
+				f := 0.0
+				if kicks > 0 {
+					f = float64(i) / float64(kicks)
+				} else if total > 0 {
+					f = float64(now.Sub(t0)) / float64(total)
+				}
+				c.report("improve", s.length-fixedLen, f)
+			}
+		}
+		s.kick(r, kickSegMax)
+	}
+	c.report("improve", s.length-fixedLen, 1)
+	o, rv := s.extract()
+	return o, rv, c.ctx.Err()
+}
+
+// orientOneWay turns every one-way fixed edge that the tour runs
+// backwards round in place, so that all run forwards.
+func (s *solver) orientOneWay() {
+	g := s.g
+	for a := range int32(g.n()) {
+		if !g.tail[a] {
+			continue
+		}
+		b := g.partner[a]
+		if s.succ(a) == b {
+			continue
+		}
+		p, nx := s.pred(b), s.succ(a)
+		s.length += g.d(p, a) + g.d(b, nx) - g.d(p, b) - g.d(a, nx)
+		s.reverseRange(s.pos[b], 2)
+	}
+}
+
+// extract reads the tour as an ordering of the items: from the dummy (or
+// the start) in the direction that runs the one-way edges forwards.
+func (s *solver) extract() ([]int, []bool) {
+	g := s.g
+	first := s.t[0]
+	switch {
+	case g.dummy >= 0:
+		first = g.dummy
+	case g.start >= 0:
+		first = g.start
+	}
+	dir := 0
+	if g.oneWay > 0 {
+		for a := range int32(g.n()) {
+			if g.tail[a] {
+				if s.succ(a) != g.partner[a] {
+					dir = 1
+				}
+				break
+			}
+		}
+	}
+	if p := g.partner[first]; p >= 0 && s.next(first, 1-dir) == p {
+		first = p // begin a closed tour at a stroke's first end
+	}
+	order := make([]int, 0, g.real)
+	rev := make([]bool, 0, g.real)
+	last := int32(-1)
+	v := first
+	for range s.n {
+		if it := g.item[v]; it >= 0 && it != last {
+			order = append(order, int(it))
+			rev = append(rev, g.end[v] == 1)
+			last = it
+		}
+		v = s.next(v, dir)
+	}
+	return order, rev
+}
+
+// tourFromOrder is the node tour that writes the items in order, each
+// from its entry end, after the dummy and the start.
+func (g *graph) tourFromOrder(order []int, rev []bool) []int32 {
+	// node of each item's A end: items are numbered in node order.
+	first := make([]int32, 0, len(order))
+	for v := range int32(g.real) {
+		if it := g.item[v]; it >= 0 && g.end[v] == 0 {
+			first = append(first, v)
+		}
+	}
+	t := make([]int32, 0, g.n())
+	if g.dummy >= 0 {
+		t = append(t, g.dummy)
+	}
+	if g.start >= 0 {
+		t = append(t, g.start)
+	}
+	for k, i := range order {
+		a := first[i]
+		if b := g.partner[a]; b >= 0 {
+			if rev[k] {
+				a, b = b, a
+			}
+			t = append(t, a, b)
+		} else {
+			t = append(t, a)
+		}
+	}
+	return t
+}
