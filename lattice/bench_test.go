@@ -41,6 +41,23 @@ func toRoaring(set *SiteSet) *roaring.Bitmap {
 	return rb
 }
 
+// paintRoaring rasterises a into a roaring bitmap from the same scanline
+// spans as Surface.Paint: AddRange where both sides of a dimer range are
+// in, one Add per site where only one side is.
+func paintRoaring(s *Surface, a Area) *roaring.Bitmap {
+	rb := roaring.New()
+	s.rasterise(a, func(t, r, d0, d1, side int) {
+		if side < 0 {
+			rb.AddRange(roaringKey(r, 2*d0), roaringKey(r, 2*d1+2))
+			return
+		}
+		for d := d0; d <= d1; d++ {
+			rb.Add(uint32(roaringKey(r, 2*d+side)))
+		}
+	})
+	return rb
+}
+
 func BenchmarkPaint1umSquare(b *testing.B) {
 	s := benchSurface(b)
 	probe := NewSiteSet()
@@ -58,16 +75,7 @@ func BenchmarkPaint1umSquare(b *testing.B) {
 		// for the library.
 		b.ReportAllocs()
 		for b.Loop() {
-			rb := roaring.New()
-			s.rasterise(square1um, func(t, r, d0, d1, side int) {
-				if side < 0 {
-					rb.AddRange(roaringKey(r, 2*d0), roaringKey(r, 2*d1+2))
-					return
-				}
-				for d := d0; d <= d1; d++ {
-					rb.Add(uint32(roaringKey(r, 2*d+side)))
-				}
-			})
+			paintRoaring(s, square1um)
 		}
 		b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds(), "sites/s")
 	})
@@ -182,16 +190,7 @@ func BenchmarkPaintShapes(b *testing.B) {
 		b.Run(tc.name+"/roaring", func(b *testing.B) {
 			b.ReportAllocs()
 			for b.Loop() {
-				rb := roaring.New()
-				s.rasterise(tc.a, func(t, r, d0, d1, side int) {
-					if side < 0 {
-						rb.AddRange(roaringKey(r, 2*d0), roaringKey(r, 2*d1+2))
-						return
-					}
-					for d := d0; d <= d1; d++ {
-						rb.Add(uint32(roaringKey(r, 2*d+side)))
-					}
-				})
+				paintRoaring(s, tc.a)
 			}
 			b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds(), "sites/s")
 		})
