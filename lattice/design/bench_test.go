@@ -45,3 +45,17 @@ func BenchmarkParseDemo(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkCheckWindowArray lays out and checks 10^5 P windows (a 316 x
+// 316 array at 5 dimers and 2 rows pitch).
+func BenchmarkCheckWindowArray(b *testing.B) {
+	d := windowArrayDesign(316, 316, 5)
+	b.ReportAllocs()
+	for b.Loop() {
+		fs, err := Check(d, "")
+		if err != nil || len(fs) != 0 {
+			b.Fatal(err, fs)
+		}
+	}
+	b.ReportMetric(316*316*float64(b.N)/b.Elapsed().Seconds(), "windows/s")
+}
