@@ -9,6 +9,8 @@ import (
 	"fmt"
 	"os"
 	"os/signal"
+	"slices"
+	"strings"
 	"time"
 
 	"dimerpath/export"
@@ -39,7 +41,7 @@ Exit status 0 written, 2 anything else.`,
 			var fl exportFlags
 			fs.StringVar(&fl.out, "o", "", "output `FILE` (.pdf, .svg, .json or .csv)")
 			fs.StringVar(&fl.variant, "variant", "", "plan the variant `NAME` (default: the first)")
-			fs.StringVar(&fl.profile, "profile", "", "instrument profile `P.json` (default: the built-in profile)")
+			fs.StringVar(&fl.profile, "profile", "", "instrument profile: a file `P.json`, or a built-in preset rt or lt (default: rt)")
 			fs.StringVar(&fl.paper, "paper", "a4", "PDF page size: `a4` or letter")
 			fs.Int64Var(&fl.seed, "seed", 1, "seed of the plan's random choices (same design, profile and seed: same plan)")
 			fs.StringVar(&fl.date, "date", "", "date printed on the PDF, `YYYY-MM-DD` (default: today)")
@@ -166,24 +168,17 @@ func planDesign(ctx context.Context, env Env, name string, data []byte, fl expor
 	return p, export.PatternOf(layout), nil
 }
 
-// exportProfile returns the instrument profile in path. Until the
-// planner's profile loader is on main it decodes the file strictly and
-// leaves validation to planner.Build.
-func exportProfile(path string) (planner.Profile, error) {
-	var prof planner.Profile
-	if path == "" {
-		return prof, nil
+// exportProfile returns the instrument profile named by the --profile
+// value: a profile file, a built-in preset ("rt", "lt"), or, when empty,
+// the default profile.
+func exportProfile(name string) (planner.Profile, error) {
+	if name == "" {
+		return planner.DefaultProfile(), nil
 	}
-	data, err := os.ReadFile(path)
-	if err != nil {
-		return prof, err
+	if _, err := os.Stat(name); err == nil || !slices.Contains(planner.Presets(), strings.ToLower(name)) {
+		return planner.LoadProfile(name)
 	}
-	dec := json.NewDecoder(bytes.NewReader(data))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&prof); err != nil {
-		return prof, fmt.Errorf("%s: %w", path, err)
-	}
-	return prof, nil
+	return planner.Preset(name)
 }
 
 // formatClock formats seconds as h:mm:ss.
