@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"maps"
 	"math"
 	"slices"
 	"strconv"
@@ -166,7 +167,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		species[w.Species]++
 	}
 	var sp []string
-	for _, k := range slices.Sorted(mapsKeys(species)) {
+	for _, k := range slices.Sorted(maps.Keys(species)) {
 		sp = append(sp, fmt.Sprintf("%s: %s", k, thousands(species[k])))
 	}
 	windows := thousands(len(p.Windows))
@@ -293,16 +294,6 @@ func meanGood(y planner.Yield) string {
 		s += fmt.Sprintf(" (standard deviation %s)", sig(y.SDGood, 2))
 	}
 	return s
-}
-
-func mapsKeys[K comparable, V any](m map[K]V) func(func(K) bool) {
-	return func(yield func(K) bool) {
-		for k := range m {
-			if !yield(k) {
-				return
-			}
-		}
-	}
 }
 
 // listShort joins up to n names, then "and K more".
