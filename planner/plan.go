@@ -198,6 +198,13 @@ type Yield struct {
 	// Distribution[k] is the probability that exactly k windows are good
 	// (Poisson-binomial); it may be cut where the probability underflows.
 	Distribution []float64 `json:"distribution"`
+	// DistributionFrom is the least k whose probability does not
+	// underflow: Distribution[k] is 0 for k below it.
+	DistributionFrom int `json:"distribution_from"`
+	// Log10All is log10 of All; it stays finite when All underflows to 0.
+	Log10All float64 `json:"log10_all"`
+	// SDGood is the standard deviation of the number of good windows.
+	SDGood float64 `json:"sd_good"`
 	// DevicesPerPerfect is the expected number of devices written to get
 	// one with every window good, 1/All (geometric); 0 when All is 0 (no
 	// number of devices suffices; JSON cannot carry +Inf), 1 with no

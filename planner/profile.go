@@ -1,5 +1,19 @@
 package planner
 
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"dimerpath/internal/atomicfile"
+)
+
 // ProfileFormat and ProfileVersion identify instrument-profile files.
 const (
 	ProfileFormat  = "dimerpath-profile"
@@ -15,6 +29,9 @@ type Profile struct {
 	Version int    `json:"version"`
 	Name    string `json:"name"`
 	Notes   string `json:"notes,omitempty"`
+	// Base names the preset a profile file starts from ("rt" when
+	// empty): fields the file leaves out keep the preset's value.
+	Base string `json:"base,omitempty"`
 
 	AP    ModeProfile  `json:"ap"`
 	FE    ModeProfile  `json:"fe"`
@@ -37,6 +54,16 @@ type Profile struct {
 	// Order says which mode is written first: "ap-first" or "fe-first".
 	Order string `json:"order"`
 
+	// WindowStyle says how dopant windows are opened: "line" (a short
+	// AP stroke along the row over the window's dimers) or "dwell" (the
+	// tip parked over each of the window's H sites in turn).
+	WindowStyle string `json:"window_style"`
+
+	// HybridBandNM is the width of the AP outline band of a hybrid
+	// region; the FE fill covers the rest. It must be at least
+	// FE.EdgeAllowanceNM so the fill never clears beyond the region.
+	HybridBandNM float64 `json:"hybrid_band_nm"`
+
 	Limits Limits `json:"limits"`
 }
 
@@ -53,6 +80,12 @@ type ModeProfile struct {
 	Overlap float64 `json:"overlap,omitempty"`
 	// Outline asks for an extra pass along the region edge (FE).
 	Outline bool `json:"outline,omitempty"`
+	// EdgeAllowanceNM is how far beyond its region's sites a stroke of
+	// this mode may clear H (nm): the coverage check reports every
+	// cleared site farther than this from the region. For FE it is also
+	// the edge roughness that a region's placement tolerance must allow
+	// before auto mode chooses FE.
+	EdgeAllowanceNM float64 `json:"edge_allowance_nm"`
 }
 
 // WidthModel gives the written line width from the line dose λ for a
@@ -99,4 +132,505 @@ type Limits struct {
 	MaxCurrentA  float64 `json:"max_current_a"`
 	ScanFieldNM  float64 `json:"scan_field_nm"`
 	MaxSpeedNMPS float64 `json:"max_speed_nm_per_s,omitempty"`
+}
+
+// Write orders and window styles.
+const (
+	OrderAPFirst      = "ap-first"
+	OrderFEFirst      = "fe-first"
+	WindowStyleLine   = "line"
+	WindowStyleDwell  = "dwell"
+	PresetRoomTemp    = "rt"
+	PresetLowTemp     = "lt"
+	defaultPresetName = PresetRoomTemp
+)
+
+// DefaultProfile returns the room-temperature profile ("rt"). Each value
+// names its source; "from memory" marks a value recalled from the
+// literature but not checked against a stored source, to be replaced by
+// the lab's own calibration (dimerpath calibrate).
+func DefaultProfile() Profile {
+	return Profile{
+		Format:  ProfileFormat,
+		Version: ProfileVersion,
+		Name:    "room-temperature default",
+		Notes:   "literature defaults; calibrate to your own tip and instrument",
+		Base:    PresetRoomTemp,
+		AP: ModeProfile{
+			// Schmucker et al., Nat. Commun. 3 (2012): +4 V, 2 nA and a
+			// 2 mC/cm line dose give one-dimer-row-wide lines, i.e. a tip
+			// speed of 10 nm/s.
+			BiasV:          4,
+			CurrentA:       2e-9,
+			LineDoseCPerCm: 2e-3,
+			// One pass per line is common practice; Schmucker's box took
+			// 5 passes over its area, and full removal can need a
+			// multiple of the first dose (Owen et al., JVST B 2011).
+			Passes: 1,
+			// σ = 0.3 nm and λ_thr = 0.5 mC/cm give w(2 mC/cm) = 1.0 nm,
+			// inside the 0.8–1.5 nm (1–2 dimer rows) typical AP width,
+			// from memory (physics.md §3); calibrate replaces them.
+			Width: WidthModel{SigmaNM: 0.3, ThresholdDoseCPerCm: 0.5e-3},
+			// Atomic precision: no site outside the region may be cleared.
+			EdgeAllowanceNM: 0,
+		},
+		FE: ModeProfile{
+			// Field emission: above the ≈6.5–7 V electronic threshold
+			// (Shen et al., Science 268, 1590 (1995)); +7–10 V and a few
+			// nA are typical, from memory; Rudolph et al., APL (2014)
+			// write ≳10^4 nm²/s above 10 V.
+			BiasV:    8,
+			CurrentA: 5e-9,
+			// 0.05 mC/cm inside the typical 0.01–0.1 mC/cm, from memory;
+			// at 5 nA it gives 1 µm/s (0.1–1 µm/s typical, from memory).
+			LineDoseCPerCm: 5e-5,
+			Passes:         1,
+			// σ = 2.5 nm and λ_thr = λ/e² give 10 nm lines at the
+			// default dose: FE lines ~10 nm (Rudolph 2014), 3–10 nm
+			// typical, from memory.
+			Width:   WidthModel{SigmaNM: 2.5, ThresholdDoseCPerCm: 5e-5 / (math.E * math.E)},
+			Overlap: 0.1, // common practice
+			// FE edges are rough on the scale of a few nm (Rudolph 2014:
+			// ~10 nm electrical definition); 2 nm equals the FE default
+			// tolerance, from memory.
+			EdgeAllowanceNM: 2,
+		},
+		Dwell: DwellProfile{
+			// Feedback-controlled single-H removal: tip parked, +2.5–4.5 V,
+			// dwell 10 ms–1 s (Walsh & Hersam 2009; details from memory).
+			BiasV:    3.5,
+			CurrentA: 1e-9,
+			// Vibrational-regime yield 10^-10–10^-8 H/e (Shen 1995; Foley
+			// et al. 1998; from memory): 1.5e-9 H/e at 1 nA gives a
+			// 99 % dwell of 0.49 s.
+			YieldPerElectron: 1.5e-9,
+			Completion:       0.99,
+		},
+		// Idle moves 0.1–few µm/s, from memory.
+		MoveSpeedNMPerS: 500,
+		// Small moves settle in well under a second; large offsets take
+		// 10 s–minutes (from memory).
+		SettleS: 0.5,
+		// Changing between AP and FE conditions and letting the tip and
+		// feedback settle, from memory.
+		ModeSwitchS: 30,
+		Drift: DriftProfile{
+			// Room temperature 0.1–1 nm/min once settled, from memory;
+			// the low end suits a thermally compensated instrument
+			// (Lyding et al., RSI 59, 1897 (1988): < 1 Å/h).
+			RateNMPerMin:   0.1,
+			RateSDNMPerMin: 0.05, // ±50 %, from memory
+			// A 50×50 nm² registration image of 256 lines at ~1 s/line
+			// (physics.md §5, derived/from memory).
+			RegistrationS: 256,
+			VerificationS: 0,
+		},
+		// Issue defaults: AP ±0.2 nm, FE ±2 nm.
+		ToleranceAPNM: 0.2,
+		ToleranceFENM: 2,
+		// Common practice, from memory: write the atomically precise
+		// parts while the tip is in its best state; FE at high bias can
+		// change the tip.
+		Order:       OrderAPFirst,
+		WindowStyle: WindowStyleLine,
+		// FE edge allowance (2 nm) plus about one dimer row.
+		HybridBandNM: 3,
+		Limits: Limits{
+			MaxBiasV:     10,    // common instrument bias range ±10 V, from memory
+			MaxCurrentA:  10e-9, // ~10 nA FE cap, from memory (physics.md caps)
+			ScanFieldNM:  2000,  // the design-rule default 2 µm scan field
+			MaxSpeedNMPS: 5000,  // few µm/s tip moves, from memory
+		},
+	}
+}
+
+// LowTemperatureProfile returns the 4 K preset ("lt"): the room-
+// temperature profile with liquid-helium drift, ≤ 0.1 nm/h (from memory,
+// physics.md §5). The dose model is left at the room-temperature values:
+// the low-bias yield rises ~300× at 11 K (Foley et al., PRL 80, 1336
+// (1998)), so calibrate at temperature before trusting write times.
+func LowTemperatureProfile() Profile {
+	p := DefaultProfile()
+	p.Name = "low-temperature (4 K) default"
+	p.Base = PresetLowTemp
+	p.Drift.RateNMPerMin = 0.1 / 60
+	p.Drift.RateSDNMPerMin = 0.05 / 60
+	return p
+}
+
+// Presets returns the names of the built-in profiles, sorted.
+func Presets() []string { return []string{PresetLowTemp, PresetRoomTemp} }
+
+// Preset returns the built-in profile of that name ("rt" or "lt").
+func Preset(name string) (Profile, error) {
+	switch strings.ToLower(name) {
+	case PresetRoomTemp, "room-temperature", "":
+		return DefaultProfile(), nil
+	case PresetLowTemp, "low-temperature", "4k":
+		return LowTemperatureProfile(), nil
+	}
+	return Profile{}, fmt.Errorf("planner: unknown profile preset %q (known: %s)", name, strings.Join(Presets(), ", "))
+}
+
+// FieldProblem is one bad field of a profile: its JSON path, its value
+// and what is wrong.
+type FieldProblem struct {
+	Path    string
+	Value   any
+	Problem string
+}
+
+func (p FieldProblem) String() string {
+	return fmt.Sprintf("%s = %v: %s", p.Path, p.Value, p.Problem)
+}
+
+// ErrInvalidProfile is wrapped by every *ProfileError.
+var ErrInvalidProfile = errors.New("invalid instrument profile")
+
+// ProfileError lists every bad field of a profile. File is empty for a
+// profile that did not come from a file.
+type ProfileError struct {
+	File     string
+	Problems []FieldProblem
+}
+
+func (e *ProfileError) Error() string {
+	var b strings.Builder
+	if e.File != "" {
+		b.WriteString(e.File)
+		b.WriteString(": ")
+	}
+	fmt.Fprintf(&b, "%s (%d problem", ErrInvalidProfile, len(e.Problems))
+	if len(e.Problems) != 1 {
+		b.WriteString("s")
+	}
+	b.WriteString(")")
+	for _, p := range e.Problems {
+		b.WriteString("\n  ")
+		b.WriteString(p.String())
+	}
+	return b.String()
+}
+
+func (e *ProfileError) Unwrap() error { return ErrInvalidProfile }
+
+// Validate checks every field and returns a *ProfileError listing each
+// bad one with its JSON path and value, or nil.
+func (p Profile) Validate() error {
+	var v validator
+	if p.Format != ProfileFormat {
+		v.add("format", p.Format, fmt.Sprintf("must be %q", ProfileFormat))
+	}
+	if p.Version < 1 || p.Version > ProfileVersion {
+		v.add("version", p.Version, fmt.Sprintf("must be 1..%d (this dimerpath reads up to version %d)", ProfileVersion, ProfileVersion))
+	}
+	v.mode("ap", p.AP, false)
+	v.mode("fe", p.FE, true)
+
+	v.nonZero("dwell.bias_v", p.Dwell.BiasV)
+	v.positive("dwell.current_a", p.Dwell.CurrentA)
+	v.positive("dwell.yield_per_electron", p.Dwell.YieldPerElectron)
+	if y := p.Dwell.YieldPerElectron; y > 1 && !math.IsNaN(y) {
+		v.add("dwell.yield_per_electron", y, "must be at most 1 H atom per electron")
+	}
+	if c := p.Dwell.Completion; !(c > 0 && c < 1) {
+		v.add("dwell.completion", c, "must lie strictly between 0 and 1")
+	}
+
+	v.positive("move_speed_nm_per_s", p.MoveSpeedNMPerS)
+	v.nonNegative("settle_s", p.SettleS)
+	v.nonNegative("mode_switch_s", p.ModeSwitchS)
+
+	v.nonNegative("drift.rate_nm_per_min", p.Drift.RateNMPerMin)
+	v.nonNegative("drift.rate_sd_nm_per_min", p.Drift.RateSDNMPerMin)
+	v.nonNegative("drift.registration_s", p.Drift.RegistrationS)
+	v.nonNegative("drift.verification_s", p.Drift.VerificationS)
+
+	v.positive("tolerance_ap_nm", p.ToleranceAPNM)
+	v.positive("tolerance_fe_nm", p.ToleranceFENM)
+	if p.Order != OrderAPFirst && p.Order != OrderFEFirst {
+		v.add("order", p.Order, fmt.Sprintf("must be %q or %q", OrderAPFirst, OrderFEFirst))
+	}
+	if p.WindowStyle != WindowStyleLine && p.WindowStyle != WindowStyleDwell {
+		v.add("window_style", p.WindowStyle, fmt.Sprintf("must be %q or %q", WindowStyleLine, WindowStyleDwell))
+	}
+	if v.positive("hybrid_band_nm", p.HybridBandNM) && finite(p.FE.EdgeAllowanceNM) && p.HybridBandNM < p.FE.EdgeAllowanceNM {
+		v.add("hybrid_band_nm", p.HybridBandNM, fmt.Sprintf("must be at least fe.edge_allowance_nm (%g nm) so the FE fill stays inside the region", p.FE.EdgeAllowanceNM))
+	}
+
+	v.positive("limits.max_bias_v", p.Limits.MaxBiasV)
+	v.positive("limits.max_current_a", p.Limits.MaxCurrentA)
+	v.positive("limits.scan_field_nm", p.Limits.ScanFieldNM)
+	if p.Limits.MaxSpeedNMPS != 0 {
+		v.positive("limits.max_speed_nm_per_s", p.Limits.MaxSpeedNMPS)
+	}
+	if len(v.problems) == 0 {
+		return nil
+	}
+	return &ProfileError{Problems: v.problems}
+}
+
+type validator struct{ problems []FieldProblem }
+
+func (v *validator) add(path string, value any, problem string) {
+	v.problems = append(v.problems, FieldProblem{Path: path, Value: value, Problem: problem})
+}
+
+func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+
+// positive reports whether x is finite and > 0, recording a problem if not.
+func (v *validator) positive(path string, x float64) bool {
+	if !finite(x) || x <= 0 {
+		v.add(path, x, "must be a positive finite number")
+		return false
+	}
+	return true
+}
+
+func (v *validator) nonNegative(path string, x float64) bool {
+	if !finite(x) || x < 0 {
+		v.add(path, x, "must be a finite number, zero or more")
+		return false
+	}
+	return true
+}
+
+func (v *validator) nonZero(path string, x float64) bool {
+	if !finite(x) || x == 0 {
+		v.add(path, x, "must be a non-zero finite number")
+		return false
+	}
+	return true
+}
+
+func (v *validator) mode(prefix string, m ModeProfile, fe bool) {
+	v.nonZero(prefix+".bias_v", m.BiasV)
+	v.positive(prefix+".current_a", m.CurrentA)
+	dose := v.positive(prefix+".line_dose_c_per_cm", m.LineDoseCPerCm)
+	if m.Passes < 1 || m.Passes > 1000 {
+		v.add(prefix+".passes", m.Passes, "must be 1..1000")
+	}
+	v.positive(prefix+".width.sigma_nm", m.Width.SigmaNM)
+	thr := v.positive(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm)
+	if dose && thr && m.Width.ThresholdDoseCPerCm >= m.LineDoseCPerCm*float64(max(m.Passes, 1)) {
+		v.add(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm,
+			fmt.Sprintf("must be below the delivered dose (%g C/cm): lines would clear nothing", m.LineDoseCPerCm*float64(max(m.Passes, 1))))
+	}
+	if fe {
+		if o := m.Overlap; !(o >= 0 && o < 1) {
+			v.add(prefix+".overlap", o, "must be at least 0 and below 1")
+		}
+	} else if m.Overlap != 0 {
+		v.add(prefix+".overlap", m.Overlap, "applies to the FE raster only; leave it 0")
+	}
+	v.nonNegative(prefix+".edge_allowance_nm", m.EdgeAllowanceNM)
+}
+
+// ParseProfile reads a profile from JSON. Fields the document leaves out
+// keep the value of the preset named by its "base" field (the
+// room-temperature default when absent); unknown fields are refused, so
+// a misspelt name is reported rather than ignored. name labels errors
+// (usually the file name). The result is validated.
+func ParseProfile(data []byte, name string) (Profile, error) {
+	label := name
+	if label == "" {
+		label = "profile"
+	}
+	var head struct {
+		Format  *string `json:"format"`
+		Version *int    `json:"version"`
+		Base    string  `json:"base"`
+	}
+	if err := json.Unmarshal(data, &head); err != nil {
+		return Profile{}, fmt.Errorf("%s: %w", label, jsonError(data, err))
+	}
+	if head.Format == nil || *head.Format != ProfileFormat {
+		got := "missing"
+		if head.Format != nil {
+			got = fmt.Sprintf("%q", *head.Format)
+		}
+		return Profile{}, fmt.Errorf("%s: not a dimerpath instrument profile: format is %s, want %q", label, got, ProfileFormat)
+	}
+	if head.Version == nil || *head.Version < 1 || *head.Version > ProfileVersion {
+		got := "missing"
+		if head.Version != nil {
+			got = fmt.Sprint(*head.Version)
+		}
+		return Profile{}, fmt.Errorf("%s: profile version %s: this dimerpath reads versions 1..%d", label, got, ProfileVersion)
+	}
+	p, err := Preset(head.Base)
+	if err != nil {
+		return Profile{}, fmt.Errorf("%s: base: %w", label, err)
+	}
+	// Name and notes describe the file, not the preset it starts from.
+	p.Name, p.Notes = "", ""
+	dec := json.NewDecoder(bytes.NewReader(data))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&p); err != nil {
+		return Profile{}, fmt.Errorf("%s: %w", label, jsonError(data, err))
+	}
+	if dec.More() {
+		return Profile{}, fmt.Errorf("%s: unexpected data after the profile object", label)
+	}
+	if p.Name == "" && name != "" {
+		p.Name = strings.TrimSuffix(filepath.Base(name), filepath.Ext(name))
+	}
+	if err := p.Validate(); err != nil {
+		var pe *ProfileError
+		if errors.As(err, &pe) {
+			pe.File = name
+		}
+		return Profile{}, err
+	}
+	return p, nil
+}
+
+// jsonError turns a decoding error into one that names the field or the
+// line and column.
+func jsonError(data []byte, err error) error {
+	var te *json.UnmarshalTypeError
+	if errors.As(err, &te) {
+		path := te.Field
+		if path == "" {
+			path = "(top level)"
+		}
+		return fmt.Errorf("%s: %s is not a valid %s (line %d)", path, te.Value, te.Type, lineOf(data, te.Offset))
+	}
+	var se *json.SyntaxError
+	if errors.As(err, &se) {
+		return fmt.Errorf("malformed JSON at line %d: %v", lineOf(data, se.Offset), err)
+	}
+	if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
+		return fmt.Errorf("truncated JSON: %w", err)
+	}
+	return err
+}
+
+func lineOf(data []byte, offset int64) int {
+	offset = min(max(offset, 0), int64(len(data)))
+	return bytes.Count(data[:offset], []byte("\n")) + 1
+}
+
+// LoadProfile reads and validates the profile file at path.
+func LoadProfile(path string) (Profile, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return Profile{}, err
+	}
+	return ParseProfile(data, path)
+}
+
+// SaveProfile validates p and writes it to path atomically (temp file +
+// rename), with the current format and version.
+func SaveProfile(path string, p Profile) error {
+	p.Format, p.Version = ProfileFormat, ProfileVersion
+	if p.Base == "" {
+		p.Base = defaultPresetName
+	}
+	if err := p.Validate(); err != nil {
+		var pe *ProfileError
+		if errors.As(err, &pe) {
+			pe.File = path
+		}
+		return err
+	}
+	data, err := json.MarshalIndent(p, "", "  ")
+	if err != nil {
+		return fmt.Errorf("%s: %w", path, err)
+	}
+	return atomicfile.WriteBytes(path, append(data, '\n'), 0o644)
+}
+
+// LimitError reports a value a plan needs that lies beyond the
+// instrument's limits.
+type LimitError struct {
+	// Quantity is the JSON path of the value (for example "fe.bias_v"),
+	// Limit the JSON path of the limit ("limits.max_bias_v").
+	Quantity string
+	Value    float64
+	Limit    string
+	Max      float64
+	Unit     string
+}
+
+// ErrBeyondLimits is wrapped by every *LimitError.
+var ErrBeyondLimits = errors.New("beyond the instrument's limits")
+
+func (e *LimitError) Error() string {
+	return fmt.Sprintf("refused: %s = %s exceeds %s = %s (%s; change the plan or the profile's limits)",
+		e.Quantity, formatQuantity(e.Value, e.Unit), e.Limit, formatQuantity(e.Max, e.Unit), ErrBeyondLimits)
+}
+
+func (e *LimitError) Unwrap() error { return ErrBeyondLimits }
+
+func formatQuantity(v float64, unit string) string {
+	if unit == "A" {
+		return fmt.Sprintf("%.4g nA", v*1e9)
+	}
+	return fmt.Sprintf("%.4g %s", v, unit)
+}
+
+// limitCheck is one value compared with one limit.
+type limitCheck struct {
+	quantity string
+	value    float64
+	limit    string
+	max      float64
+	unit     string
+}
+
+// CheckLimits returns a *LimitError for the first value p's own settings
+// need beyond p.Limits (bias, current, writing and move speeds), with
+// the modes in use given by uses (nil checks every mode), or nil.
+func (p Profile) CheckLimits(uses *ModeUse) error {
+	if uses == nil {
+		uses = &ModeUse{AP: true, FE: true, Dwell: true}
+	}
+	var checks []limitCheck
+	mode := func(name string, m ModeProfile) {
+		checks = append(checks,
+			limitCheck{name + ".bias_v", math.Abs(m.BiasV), "limits.max_bias_v", p.Limits.MaxBiasV, "V"},
+			limitCheck{name + ".current_a", m.CurrentA, "limits.max_current_a", p.Limits.MaxCurrentA, "A"})
+		if p.Limits.MaxSpeedNMPS > 0 {
+			checks = append(checks, limitCheck{name + " writing speed (current / line dose)", WritingSpeed(m.CurrentA, m.LineDoseCPerCm),
+				"limits.max_speed_nm_per_s", p.Limits.MaxSpeedNMPS, "nm/s"})
+		}
+	}
+	if uses.AP {
+		mode("ap", p.AP)
+	}
+	if uses.FE {
+		mode("fe", p.FE)
+	}
+	if uses.Dwell {
+		checks = append(checks,
+			limitCheck{"dwell.bias_v", math.Abs(p.Dwell.BiasV), "limits.max_bias_v", p.Limits.MaxBiasV, "V"},
+			limitCheck{"dwell.current_a", p.Dwell.CurrentA, "limits.max_current_a", p.Limits.MaxCurrentA, "A"})
+	}
+	if p.Limits.MaxSpeedNMPS > 0 {
+		checks = append(checks, limitCheck{"move_speed_nm_per_s", p.MoveSpeedNMPerS, "limits.max_speed_nm_per_s", p.Limits.MaxSpeedNMPS, "nm/s"})
+	}
+	for _, c := range checks {
+		if c.value > c.max {
+			return &LimitError{Quantity: c.quantity, Value: c.value, Limit: c.limit, Max: c.max, Unit: c.unit}
+		}
+	}
+	return nil
+}
+
+// ModeUse says which tip conditions a plan uses.
+type ModeUse struct{ AP, FE, Dwell bool }
+
+// checkField returns a *LimitError when a field side exceeds the scan
+// field limit.
+func (p Profile) checkField(widthNM, heightNM float64) error {
+	side := math.Max(widthNM, heightNM)
+	if side > p.Limits.ScanFieldNM {
+		q := "design field width (field.width_nm)"
+		if heightNM > widthNM {
+			q = "design field height (field.height_nm)"
+		}
+		return &LimitError{Quantity: q, Value: side, Limit: "limits.scan_field_nm", Max: p.Limits.ScanFieldNM, Unit: "nm"}
+	}
+	return nil
 }

@@ -2,6 +2,8 @@ package route
 
 import (
 	"context"
+	"os"
+	"strconv"
 	"time"
 )
 
@@ -62,7 +64,7 @@ func (c *control) solve(items []Item, start *Point, closed bool, share float64) 
 }
 
 // kickSegMax bounds the segments a kick swaps, in nodes.
-const kickSegMax = 50
+var kickSegMax int32 = 50
 
 func (c *control) heuristic(items []Item, start *Point, closed bool, deadline time.Time, kicks int) ([]int, []bool, error) {
 	g := newGraph(items, start, !closed)
@@ -89,6 +91,15 @@ func (c *control) heuristic(items []Item, start *Point, closed bool, deadline ti
 	}
 	if s.n > 100_000 {
 		s.maxRev = 50_000
+	}
+	// The 3-opt moves' flips are not bounded by maxRev.
+	s.or3 = s.maxRev >= s.n && os.Getenv("ROUTE_NO_OR3") == ""
+	if v := os.Getenv("ROUTE_ORMAX"); v != "" {
+		s.orMax, _ = strconv.Atoi(v)
+	}
+	if v := os.Getenv("ROUTE_SEG"); v != "" {
+		x, _ := strconv.Atoi(v)
+		kickSegMax = int32(x)
 	}
 	fixedLen := 0.0
 	for v := range int32(g.real) {

@@ -19,6 +19,7 @@ type solver struct {
 	recording  bool
 	maxRev     int32 // longest reversal a move may make
 	orMax      int   // longest segment an Or-opt move shifts, in nodes
+	or3        bool  // also try sequential 3-opt moves
 	eps        float64
 	length     float64 // current tour length, fixed edges included
 	scratchOne []int32

@@ -1,0 +1,231 @@
+package planner
+
+import (
+	"errors"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+func TestDefaultProfileIsValid(t *testing.T) {
+	for _, name := range Presets() {
+		p, err := Preset(name)
+		if err != nil {
+			t.Fatalf("Preset(%q): %v", name, err)
+		}
+		if err := p.Validate(); err != nil {
+			t.Errorf("Preset(%q).Validate() = %v, want nil", name, err)
+		}
+		if err := p.CheckLimits(nil); err != nil {
+			t.Errorf("Preset(%q).CheckLimits(nil) = %v, want nil", name, err)
+		}
+	}
+	if _, err := Preset("mars"); err == nil {
+		t.Error(`Preset("mars") = nil error, want unknown preset`)
+	}
+}
+
+func TestDefaultProfileValues(t *testing.T) {
+	p := DefaultProfile()
+	// Schmucker et al., Nat. Commun. 3 (2012): 2 nA at 2 mC/cm is 10 nm/s.
+	if got := p.AP.Speed(); math.Abs(got-10) > 1e-9 {
+		t.Errorf("AP speed = %v nm/s, want 10 (Schmucker 2012)", got)
+	}
+	// Default FE line width ~10 nm (Rudolph et al. 2014).
+	if got := p.FE.LineWidth(); math.Abs(got-10) > 1e-9 {
+		t.Errorf("FE line width = %v nm, want 10", got)
+	}
+	// The default dwell reaches 99 % within the 10 ms–1 s FCL range (from
+	// memory, physics.md §3).
+	if c := p.Dwell.CapS(); c < 0.01 || c > 1 {
+		t.Errorf("dwell 99%% time = %v s, want within 0.01..1 s", c)
+	}
+	// 4 K drift ≤ 0.1 nm/h (from memory): the LT preset must not exceed it.
+	lt := LowTemperatureProfile()
+	if r := lt.Drift.RateNMPerMin * 60; r > 0.1+1e-12 {
+		t.Errorf("LT drift = %v nm/h, want ≤ 0.1", r)
+	}
+}
+
+func TestValidateReportsEveryBadField(t *testing.T) {
+	p := DefaultProfile()
+	p.AP.CurrentA = 0
+	p.FE.BiasV = math.NaN()
+	p.MoveSpeedNMPerS = -3
+	p.Dwell.Completion = 1
+	p.FE.Overlap = 1.2
+	p.Order = "sideways"
+	p.Limits.MaxBiasV = math.Inf(1)
+	err := p.Validate()
+	var pe *ProfileError
+	if !errors.As(err, &pe) || !errors.Is(err, ErrInvalidProfile) {
+		t.Fatalf("Validate() = %v, want *ProfileError wrapping ErrInvalidProfile", err)
+	}
+	want := []string{"ap.current_a", "fe.bias_v", "move_speed_nm_per_s", "dwell.completion", "fe.overlap", "order", "limits.max_bias_v"}
+	if len(pe.Problems) != len(want) {
+		t.Errorf("Validate() found %d problems, want %d:\n%v", len(pe.Problems), len(want), err)
+	}
+	msg := err.Error()
+	for _, w := range want {
+		if !strings.Contains(msg, w+" = ") {
+			t.Errorf("Validate() message lacks %q:\n%s", w, msg)
+		}
+	}
+	if !strings.Contains(msg, "NaN") || !strings.Contains(msg, "-3") {
+		t.Errorf("Validate() message should show the bad values NaN and -3:\n%s", msg)
+	}
+}
+
+func TestValidateThresholdAboveDose(t *testing.T) {
+	p := DefaultProfile()
+	p.AP.Width.ThresholdDoseCPerCm = 3e-3 // above the 2 mC/cm line dose
+	err := p.Validate()
+	if err == nil || !strings.Contains(err.Error(), "ap.width.threshold_dose_c_per_cm") || !strings.Contains(err.Error(), "clear nothing") {
+		t.Errorf("Validate() = %v, want a threshold-above-dose problem", err)
+	}
+}
+
+func TestProfileSaveLoadRoundTrip(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "lab.json")
+	p := LowTemperatureProfile()
+	p.Name = "lab STM 2"
+	p.AP.Passes = 3
+	p.FE.Outline = true
+	if err := SaveProfile(path, p); err != nil {
+		t.Fatal(err)
+	}
+	got, err := LoadProfile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got != p {
+		t.Errorf("LoadProfile(SaveProfile(p)) = %+v\nwant %+v", got, p)
+	}
+	// No temporary file is left behind.
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 1 {
+		t.Errorf("directory holds %d entries after save, want 1", len(entries))
+	}
+}
+
+func TestSaveProfileRefusesInvalid(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "bad.json")
+	p := DefaultProfile()
+	p.SettleS = -1
+	if err := SaveProfile(path, p); err == nil || !strings.Contains(err.Error(), path) {
+		t.Errorf("SaveProfile(invalid) = %v, want an error naming %s", err, path)
+	}
+	if _, err := os.Stat(path); !os.IsNotExist(err) {
+		t.Errorf("SaveProfile(invalid) wrote %s", path)
+	}
+}
+
+func TestParseProfile(t *testing.T) {
+	cases := []struct {
+		name, json string
+		wantErr    string // substring; "" for success
+		check      func(Profile) bool
+	}{
+		{"partial file keeps preset values", `{"format":"dimerpath-profile","version":1,"name":"x","ap":{"passes":2}}`, "",
+			func(p Profile) bool { return p.AP.Passes == 2 && p.AP.CurrentA == 2e-9 && p.Drift.RateNMPerMin == 0.1 }},
+		{"low-temperature base", `{"format":"dimerpath-profile","version":1,"base":"lt"}`, "",
+			func(p Profile) bool { return p.Drift.RateNMPerMin < 0.01 && p.Name == "cal" }},
+		{"wrong format", `{"format":"other","version":1}`, `format is "other"`, nil},
+		{"missing format", `{"version":1}`, "format is missing", nil},
+		{"future version", `{"format":"dimerpath-profile","version":7}`, "version 7", nil},
+		{"unknown field", `{"format":"dimerpath-profile","version":1,"ap":{"bias":4}}`, `unknown field "bias"`, nil},
+		{"wrong type", `{"format":"dimerpath-profile","version":1,"ap":{"current_a":"2 nA"}}`, "ap.current_a", nil},
+		{"truncated", `{"format":"dimerpath-profile","version":1,"ap":{`, "", nil},
+		{"negative speed", `{"format":"dimerpath-profile","version":1,"move_speed_nm_per_s":-5}`, "move_speed_nm_per_s = -5", nil},
+		{"zero current", `{"format":"dimerpath-profile","version":1,"fe":{"current_a":0}}`, "fe.current_a = 0", nil},
+		{"huge number", `{"format":"dimerpath-profile","version":1,"settle_s":1e400}`, "settle_s", nil},
+		{"unknown base", `{"format":"dimerpath-profile","version":1,"base":"moon"}`, `unknown profile preset "moon"`, nil},
+		{"trailing data", `{"format":"dimerpath-profile","version":1} {}`, "after top-level value", nil},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			p, err := ParseProfile([]byte(c.json), "cal.json")
+			if c.check == nil {
+				if err == nil {
+					t.Fatalf("ParseProfile(%s) = nil error, want one", c.json)
+				}
+				if !strings.HasPrefix(err.Error(), "cal.json") {
+					t.Errorf("error %q does not name the file", err)
+				}
+				if !strings.Contains(err.Error(), c.wantErr) {
+					t.Errorf("error %q lacks %q", err, c.wantErr)
+				}
+				return
+			}
+			if err != nil {
+				t.Fatalf("ParseProfile(%s) = %v", c.json, err)
+			}
+			if !c.check(p) {
+				t.Errorf("ParseProfile(%s) = %+v, fails its check", c.json, p)
+			}
+		})
+	}
+}
+
+func FuzzParseProfile(f *testing.F) {
+	f.Add([]byte(`{"format":"dimerpath-profile","version":1}`))
+	f.Add([]byte(`{"format":"dimerpath-profile","version":1,"ap":{"passes":2,"width":{"sigma_nm":0.4}}}`))
+	f.Add([]byte(`{"format":"dimerpath-profile","version":1,"base":"lt","drift":{"rate_nm_per_min":-1}}`))
+	f.Add([]byte(`[]`))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		p, err := ParseProfile(data, "fuzz.json")
+		if err == nil {
+			if verr := p.Validate(); verr != nil {
+				t.Fatalf("ParseProfile accepted a profile Validate refuses: %v", verr)
+			}
+		}
+	})
+}
+
+func TestCheckLimits(t *testing.T) {
+	cases := []struct {
+		name     string
+		edit     func(*Profile)
+		uses     *ModeUse
+		quantity string
+		limit    string
+	}{
+		{"FE bias", func(p *Profile) { p.FE.BiasV = 12 }, nil, "fe.bias_v", "limits.max_bias_v"},
+		{"negative AP bias counts by magnitude", func(p *Profile) { p.AP.BiasV = -11 }, nil, "ap.bias_v", "limits.max_bias_v"},
+		{"AP current", func(p *Profile) { p.AP.CurrentA = 20e-9 }, nil, "ap.current_a", "limits.max_current_a"},
+		{"FE speed", func(p *Profile) { p.FE.LineDoseCPerCm = 5e-6; p.FE.Width.ThresholdDoseCPerCm = 1e-6 }, nil, "fe writing speed", "limits.max_speed_nm_per_s"},
+		{"move speed", func(p *Profile) { p.MoveSpeedNMPerS = 9000 }, nil, "move_speed_nm_per_s", "limits.max_speed_nm_per_s"},
+		{"dwell current", func(p *Profile) { p.Dwell.CurrentA = 11e-9 }, nil, "dwell.current_a", "limits.max_current_a"},
+		{"unused FE is not checked", func(p *Profile) { p.FE.BiasV = 12 }, &ModeUse{AP: true}, "", ""},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			p := DefaultProfile()
+			c.edit(&p)
+			err := p.CheckLimits(c.uses)
+			if c.quantity == "" {
+				if err != nil {
+					t.Fatalf("CheckLimits = %v, want nil", err)
+				}
+				return
+			}
+			var le *LimitError
+			if !errors.As(err, &le) || !errors.Is(err, ErrBeyondLimits) {
+				t.Fatalf("CheckLimits = %v, want *LimitError", err)
+			}
+			if !strings.HasPrefix(le.Quantity, c.quantity) || le.Limit != c.limit {
+				t.Errorf("LimitError names %q / %q, want %q / %q", le.Quantity, le.Limit, c.quantity, c.limit)
+			}
+			if !(le.Value > le.Max) {
+				t.Errorf("LimitError value %v not above max %v", le.Value, le.Max)
+			}
+		})
+	}
+	p := DefaultProfile()
+	if err := p.checkField(2500, 1000); err == nil || !strings.Contains(err.Error(), "limits.scan_field_nm") || !strings.Contains(err.Error(), "2500 nm") {
+		t.Errorf("checkField(2500, 1000) = %v, want a scan-field limit error", err)
+	}
+}

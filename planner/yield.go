@@ -1,0 +1,166 @@
+package planner
+
+import (
+	"fmt"
+	"math"
+	"sort"
+)
+
+// PoissonBinomial returns the distribution of the number of successes
+// among independent trials with success probabilities p: dist[k] is the
+// probability of exactly k successes, for k = 0..len(p). It is exact in
+// floating point: trials of equal probability are taken together through
+// the binomial formula, and the groups are combined by direct
+// convolution; the only terms dropped are those that underflow float64
+// to zero in the tails. lo is the first k whose entry may be non-zero;
+// entries below lo and above the last non-zero one are 0.
+//
+// Cost: O(G·W²) for G distinct probabilities and a support of width W
+// (W ≈ 80·sqrt(n·p(1-p)) before underflow), so 10^5 windows of two
+// templates take milliseconds. It panics if a probability lies outside
+// [0, 1]; callers validate first.
+func PoissonBinomial(p []float64) (dist []float64, lo int) {
+	n := len(p)
+	dist = make([]float64, n+1)
+	groups := map[float64]int{}
+	for _, q := range p {
+		if !(q >= 0 && q <= 1) {
+			panic(fmt.Sprintf("planner: probability %v outside [0, 1]", q))
+		}
+		groups[q]++
+	}
+	keys := make([]float64, 0, len(groups))
+	for q := range groups {
+		keys = append(keys, q)
+	}
+	sort.Float64s(keys) // a fixed order makes the result reproducible to the bit
+
+	// cur holds P(k) for k = off..off+len(cur)-1.
+	cur, off := []float64{1}, 0
+	for _, q := range keys {
+		m := groups[q]
+		b, boff := binomialPMF(m, q)
+		next := make([]float64, len(cur)+len(b)-1)
+		for i, x := range cur {
+			if x == 0 {
+				continue
+			}
+			for j, y := range b {
+				next[i+j] += x * y
+			}
+		}
+		cur, off = trimZeros(next, off+boff)
+	}
+	copy(dist[off:], cur)
+	return dist, off
+}
+
+// binomialPMF returns the non-underflowing part of the Binomial(m, q)
+// probability mass function, P(k) for k = off..off+len-1. It walks out
+// from the mode by the exact ratio P(k+1)/P(k) = (m-k)/(k+1)·q/(1-q) and
+// normalises the sum to 1, so the relative error stays near len·ε; the
+// mode's absolute size (from log-gamma) only decides where the tails
+// underflow.
+func binomialPMF(m int, q float64) (pmf []float64, off int) {
+	switch q {
+	case 0:
+		return []float64{1}, 0
+	case 1:
+		return []float64{1}, m
+	}
+	mode := min(max(int(math.Floor(float64(m+1)*q)), 0), m)
+	lgm, _ := math.Lgamma(float64(m) + 1)
+	a, _ := math.Lgamma(float64(mode) + 1)
+	b, _ := math.Lgamma(float64(m-mode) + 1)
+	pMode := math.Exp(lgm - a - b + float64(mode)*math.Log(q) + float64(m-mode)*math.Log1p(-q))
+	odds := q / (1 - q)
+	var up, down []float64 // relative to P(mode) = 1
+	for k, v := mode, 1.0; k < m; k++ {
+		v *= float64(m-k) / float64(k+1) * odds
+		if v*pMode == 0 {
+			break
+		}
+		up = append(up, v)
+	}
+	for k, v := mode, 1.0; k > 0; k-- {
+		v *= float64(k) / float64(m-k+1) / odds
+		if v*pMode == 0 {
+			break
+		}
+		down = append(down, v)
+	}
+	pmf = make([]float64, 0, len(down)+1+len(up))
+	for i := len(down) - 1; i >= 0; i-- {
+		pmf = append(pmf, down[i])
+	}
+	pmf = append(pmf, 1)
+	pmf = append(pmf, up...)
+	sum := 0.0
+	for _, v := range pmf {
+		sum += v
+	}
+	for i := range pmf {
+		pmf[i] /= sum
+	}
+	return pmf, mode - len(down)
+}
+
+func trimZeros(x []float64, off int) ([]float64, int) {
+	i, j := 0, len(x)
+	for i < j && x[i] == 0 {
+		i++
+	}
+	for j > i && x[j-1] == 0 {
+		j--
+	}
+	if i == j {
+		return []float64{0}, off
+	}
+	return x[i:j], off + i
+}
+
+// AllProbability returns the probability that every trial succeeds,
+// Π p, and its base-10 logarithm, which stays finite after the product
+// underflows (10^5 windows at 0.97 give 10^-1323).
+func AllProbability(p []float64) (all, log10All float64) {
+	ls := 0.0
+	for _, q := range p {
+		ls += math.Log10(q)
+	}
+	return math.Pow(10, ls), ls
+}
+
+// YieldOf summarises the windows' outcome: P(every window good), the
+// Poisson-binomial distribution of the number of good windows, its mean
+// and standard deviation, and the expected number of devices to write
+// for one perfect device (1/P(all), geometric; 0 when P(all) underflows
+// or is 0).
+func YieldOf(windows []Window) Yield {
+	p := make([]float64, len(windows))
+	for i, w := range windows {
+		p[i] = w.Probability
+	}
+	y := Yield{Windows: len(p)}
+	y.Distribution, y.DistributionFrom = PoissonBinomial(p)
+	// Drop the upper tail that underflowed, keeping Distribution[k]
+	// indexed by k.
+	last := len(y.Distribution) - 1
+	for last > 0 && y.Distribution[last] == 0 {
+		last--
+	}
+	y.Distribution = y.Distribution[:last+1]
+	y.All, y.Log10All = AllProbability(p)
+	varSum := 0.0
+	for _, q := range p {
+		y.MeanGood += q
+		varSum += q * (1 - q)
+	}
+	y.SDGood = math.Sqrt(varSum)
+	switch {
+	case len(p) == 0:
+		y.DevicesPerPerfect = 1
+	case y.All > 0:
+		y.DevicesPerPerfect = 1 / y.All
+	}
+	return y
+}

@@ -1,0 +1,166 @@
+package planner
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"testing"
+)
+
+func TestYieldIdenticalWindowsMatchesBinomial(t *testing.T) {
+	// Binomial formula: 16 windows at p give P(all) = p^16; check values
+	// from the issue: 0.97 → 0.614 (As, Stock et al. 2024), 0.63 →
+	// 6.2e-4 (P, Ivie et al. 2021).
+	cases := []struct {
+		p, want, tol float64
+	}{
+		{0.97, 0.614, 0.0005},
+		{0.63, 6.2e-4, 0.05e-4},
+	}
+	for _, c := range cases {
+		ws := make([]Window, 16)
+		for i := range ws {
+			ws[i].Probability = c.p
+		}
+		y := YieldOf(ws)
+		if math.Abs(y.All-c.want) > c.tol {
+			t.Errorf("16 windows at %v: All = %v, want %v", c.p, y.All, c.want)
+		}
+		// The whole distribution against C(16,k) p^k (1-p)^(16-k).
+		for k := 0; k <= 16; k++ {
+			want := binom(16, k) * math.Pow(c.p, float64(k)) * math.Pow(1-c.p, float64(16-k))
+			got := 0.0
+			if k < len(y.Distribution) {
+				got = y.Distribution[k]
+			}
+			if math.Abs(got-want) > 1e-14+1e-12*want {
+				t.Errorf("p=%v: P(%d good) = %v, want %v", c.p, k, got, want)
+			}
+		}
+		if math.Abs(y.MeanGood-16*c.p) > 1e-12 || math.Abs(y.DevicesPerPerfect-1/y.All) > 1e-9 {
+			t.Errorf("p=%v: mean %v (want %v), devices %v", c.p, y.MeanGood, 16*c.p, y.DevicesPerPerfect)
+		}
+	}
+}
+
+func binom(n, k int) float64 {
+	r := 1.0
+	for i := 1; i <= k; i++ {
+		r = r * float64(n-k+i) / float64(i)
+	}
+	return r
+}
+
+func TestPoissonBinomialBruteForce(t *testing.T) {
+	// Brute force: sum the probability of every one of the 2^n outcomes.
+	rng := rand.New(rand.NewPCG(1, 2))
+	for n := 0; n <= 12; n++ {
+		p := make([]float64, n)
+		for i := range p {
+			switch rng.IntN(4) {
+			case 0:
+				p[i] = 0.63
+			case 1:
+				p[i] = 0.97
+			default:
+				p[i] = rng.Float64()
+			}
+		}
+		want := make([]float64, n+1)
+		for mask := 0; mask < 1<<n; mask++ {
+			pr, k := 1.0, 0
+			for i := range n {
+				if mask&(1<<i) != 0 {
+					pr *= p[i]
+					k++
+				} else {
+					pr *= 1 - p[i]
+				}
+			}
+			want[k] += pr
+		}
+		got, _ := PoissonBinomial(p)
+		for k := range want {
+			if math.Abs(got[k]-want[k]) > 1e-14 {
+				t.Errorf("n=%d: P(%d) = %v, brute force %v", n, k, got[k], want[k])
+			}
+		}
+	}
+}
+
+func TestPoissonBinomialLarge(t *testing.T) {
+	// 10^5 windows of two templates: the distribution sums to 1, its
+	// mean and variance match Σp and Σp(1-p), and only underflowing
+	// tails are cut.
+	p := make([]float64, 100000)
+	for i := range p {
+		p[i] = 0.63
+		if i%3 == 0 {
+			p[i] = 0.97
+		}
+	}
+	dist, lo := PoissonBinomial(p)
+	sum, mean, m2 := 0.0, 0.0, 0.0
+	for k, v := range dist {
+		sum += v
+		mean += float64(k) * v
+		m2 += float64(k) * float64(k) * v
+	}
+	wantMean, wantVar := 0.0, 0.0
+	for _, q := range p {
+		wantMean += q
+		wantVar += q * (1 - q)
+	}
+	if math.Abs(sum-1) > 1e-9 || math.Abs(mean-wantMean) > 1e-6*wantMean || math.Abs(m2-mean*mean-wantVar) > 1e-5*wantVar {
+		t.Errorf("sum %v mean %v (want %v) var %v (want %v)", sum, mean, wantMean, m2-mean*mean, wantVar)
+	}
+	if lo == 0 || dist[lo] == 0 || dist[lo-1] != 0 {
+		t.Errorf("lower cut at %d: dist[lo]=%v", lo, dist[lo])
+	}
+	y := YieldOf(func() []Window {
+		ws := make([]Window, len(p))
+		for i := range ws {
+			ws[i].Probability = p[i]
+		}
+		return ws
+	}())
+	// P(all) underflows; its logarithm does not.
+	wantLog := 0.0
+	for _, q := range p {
+		wantLog += math.Log10(q)
+	}
+	if y.All != 0 || y.DevicesPerPerfect != 0 || math.Abs(y.Log10All-wantLog) > 1e-6*math.Abs(wantLog) {
+		t.Errorf("All %v, DevicesPerPerfect %v, Log10All %v (want %v)", y.All, y.DevicesPerPerfect, y.Log10All, wantLog)
+	}
+}
+
+func TestYieldNoWindows(t *testing.T) {
+	y := YieldOf(nil)
+	if y.All != 1 || y.DevicesPerPerfect != 1 || len(y.Distribution) != 1 || y.Distribution[0] != 1 {
+		t.Errorf("YieldOf(nil) = %+v", y)
+	}
+}
+
+func ExamplePoissonBinomial() {
+	// Two arsine windows (0.97) and one phosphine window (0.63).
+	dist, _ := PoissonBinomial([]float64{0.97, 0.97, 0.63})
+	for k, p := range dist {
+		fmt.Printf("P(%d good) = %.4f\n", k, p)
+	}
+	// Output:
+	// P(0 good) = 0.0003
+	// P(1 good) = 0.0221
+	// P(2 good) = 0.3848
+	// P(3 good) = 0.5928
+}
+
+func ExampleYieldOf() {
+	ws := make([]Window, 16)
+	for i := range ws {
+		ws[i] = Window{Species: "As", Probability: 0.97}
+	}
+	y := YieldOf(ws)
+	fmt.Printf("P(all 16 good) = %.3f, mean good %.2f, devices per perfect device %.2f\n", y.All, y.MeanGood, y.DevicesPerPerfect)
+	// Output:
+	// P(all 16 good) = 0.614, mean good 15.52, devices per perfect device 1.63
+}
