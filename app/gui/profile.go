@@ -24,57 +24,60 @@ import (
 // profileField is one numeric field of the editor: shown = stored·scale.
 type profileField struct {
 	group, label string
+	path         string // JSON path, as the planner's errors name it
 	scale        float64
 	f            func(p *planner.Profile) *float64
 	i            func(p *planner.Profile) *int
 }
 
-func modeFields(group string, m func(p *planner.Profile) *planner.ModeProfile, fe bool) []profileField {
+func modeFields(group, prefix string, m func(p *planner.Profile) *planner.ModeProfile, fe bool) []profileField {
 	fs := []profileField{
-		{group: group, label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).BiasV }},
-		{group: group, label: "Setpoint current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &m(p).CurrentA }},
-		{group: group, label: "Line dose (mC/cm)", scale: 1e3, f: func(p *planner.Profile) *float64 { return &m(p).LineDoseCPerCm }},
-		{group: group, label: "Passes", i: func(p *planner.Profile) *int { return &m(p).Passes }},
-		{group: group, label: "Beam σ of the width model (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).Width.SigmaNM }},
-		{group: group, label: "Threshold dose (mC/cm)", scale: 1e3, f: func(p *planner.Profile) *float64 { return &m(p).Width.ThresholdDoseCPerCm }},
+		{group: group, path: prefix + ".bias_v", label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).BiasV }},
+		{group: group, path: prefix + ".current_a", label: "Setpoint current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &m(p).CurrentA }},
+		{group: group, path: prefix + ".line_dose_c_per_cm", label: "Line dose (mC/cm)", scale: 1e3, f: func(p *planner.Profile) *float64 { return &m(p).LineDoseCPerCm }},
+		{group: group, path: prefix + ".passes", label: "Passes", i: func(p *planner.Profile) *int { return &m(p).Passes }},
+		{group: group, path: prefix + ".width.sigma_nm", label: "Beam σ of the width model (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).Width.SigmaNM }},
+		{group: group, path: prefix + ".width.threshold_dose_c_per_cm", label: "Threshold dose (mC/cm)", scale: 1e3, f: func(p *planner.Profile) *float64 { return &m(p).Width.ThresholdDoseCPerCm }},
 	}
 	if fe {
-		fs = append(fs, profileField{group: group, label: "Raster overlap (fraction of the width)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).Overlap }})
+		fs = append(fs, profileField{group: group, path: prefix + ".overlap", label: "Raster overlap (fraction of the width)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).Overlap }})
 	}
+	fs = append(fs, profileField{group: group, path: prefix + ".edge_allowance_nm", label: "Edge allowance (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).EdgeAllowanceNM }})
 	return fs
 }
 
 func profileFields() []profileField {
-	fs := modeFields("Atomic-precision mode", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)
-	fs = append(fs, modeFields("Field-emission mode", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
+	fs := modeFields("Atomic-precision mode", "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)
+	fs = append(fs, modeFields("Field-emission mode", "fe", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
 	g := "Dwell (single points)"
 	fs = append(fs,
-		profileField{group: g, label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.BiasV }},
-		profileField{group: g, label: "Setpoint current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &p.Dwell.CurrentA }},
-		profileField{group: g, label: "Desorption yield (H per electron)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.YieldPerElectron }},
-		profileField{group: g, label: "Completion probability", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.Completion }},
+		profileField{group: g, path: "dwell.bias_v", label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.BiasV }},
+		profileField{group: g, path: "dwell.current_a", label: "Setpoint current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &p.Dwell.CurrentA }},
+		profileField{group: g, path: "dwell.yield_per_electron", label: "Desorption yield (H per electron)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.YieldPerElectron }},
+		profileField{group: g, path: "dwell.completion", label: "Completion probability", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.Completion }},
 	)
 	g = "Motion"
 	fs = append(fs,
-		profileField{group: g, label: "Move speed (nm/s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.MoveSpeedNMPerS }},
-		profileField{group: g, label: "Settle after a move (s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.SettleS }},
-		profileField{group: g, label: "Mode switch (s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.ModeSwitchS }},
+		profileField{group: g, path: "move_speed_nm_per_s", label: "Move speed (nm/s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.MoveSpeedNMPerS }},
+		profileField{group: g, path: "settle_s", label: "Settle after a move (s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.SettleS }},
+		profileField{group: g, path: "mode_switch_s", label: "Mode switch (s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.ModeSwitchS }},
 	)
 	g = "Drift and registration"
 	fs = append(fs,
-		profileField{group: g, label: "Drift rate (nm/min)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Drift.RateNMPerMin }},
-		profileField{group: g, label: "Drift uncertainty, 1σ (nm/min)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Drift.RateSDNMPerMin }},
-		profileField{group: g, label: "Registration (s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Drift.RegistrationS }},
-		profileField{group: g, label: "Verification image per segment (s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Drift.VerificationS }},
-		profileField{group: g, label: "Default AP tolerance (± nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.ToleranceAPNM }},
-		profileField{group: g, label: "Default FE tolerance (± nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.ToleranceFENM }},
+		profileField{group: g, path: "drift.rate_nm_per_min", label: "Drift rate (nm/min)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Drift.RateNMPerMin }},
+		profileField{group: g, path: "drift.rate_sd_nm_per_min", label: "Drift uncertainty, 1σ (nm/min)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Drift.RateSDNMPerMin }},
+		profileField{group: g, path: "drift.registration_s", label: "Registration (s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Drift.RegistrationS }},
+		profileField{group: g, path: "drift.verification_s", label: "Verification image per segment (s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Drift.VerificationS }},
+		profileField{group: g, path: "tolerance_ap_nm", label: "Default AP tolerance (± nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.ToleranceAPNM }},
+		profileField{group: g, path: "tolerance_fe_nm", label: "Default FE tolerance (± nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.ToleranceFENM }},
+		profileField{group: g, path: "hybrid_band_nm", label: "Hybrid AP outline band (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.HybridBandNM }},
 	)
 	g = "Instrument limits"
 	fs = append(fs,
-		profileField{group: g, label: "Largest bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Limits.MaxBiasV }},
-		profileField{group: g, label: "Largest current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &p.Limits.MaxCurrentA }},
-		profileField{group: g, label: "Scan field (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Limits.ScanFieldNM }},
-		profileField{group: g, label: "Largest tip speed (nm/s, 0 = none)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Limits.MaxSpeedNMPS }},
+		profileField{group: g, path: "limits.max_bias_v", label: "Largest bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Limits.MaxBiasV }},
+		profileField{group: g, path: "limits.max_current_a", label: "Largest current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &p.Limits.MaxCurrentA }},
+		profileField{group: g, path: "limits.scan_field_nm", label: "Scan field (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Limits.ScanFieldNM }},
+		profileField{group: g, path: "limits.max_speed_nm_per_s", label: "Largest tip speed (nm/s, 0 = none)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Limits.MaxSpeedNMPS }},
 	)
 	return fs
 }
@@ -95,22 +98,28 @@ type profileEditor struct {
 	path    string
 	fields  []profileField
 	entries []*widget.Entry
+	shown   []string // what each entry showed when filled
 	name    *widget.Entry
 	notes   *widget.Entry
 	apOut   *widget.Check
 	feOut   *widget.Check
 	order   *widget.Select
+	windows *widget.Select
 	msg     *widget.Label
 	dlg     *dialog.CustomDialog
 }
 
-func (u *UI) editProfile() {
+func (u *UI) editProfile() { u.openProfileEditor() }
+
+// openProfileEditor shows the editor and returns it.
+func (u *UI) openProfileEditor() *profileEditor {
 	e := &profileEditor{u: u, fields: profileFields(), path: u.S.ProfilePath}
 	e.name = widget.NewEntry()
 	e.notes = widget.NewEntry()
 	e.apOut = widget.NewCheck("extra outline pass", nil)
 	e.feOut = widget.NewCheck("extra outline pass", nil)
-	e.order = widget.NewSelect([]string{"ap-first", "fe-first"}, nil)
+	e.order = widget.NewSelect([]string{planner.OrderAPFirst, planner.OrderFEFirst}, nil)
+	e.windows = widget.NewSelect([]string{planner.WindowStyleLine, planner.WindowStyleDwell}, nil)
 	e.msg = errorLabel()
 	e.entries = make([]*widget.Entry, len(e.fields))
 	for i := range e.fields {
@@ -120,7 +129,7 @@ func (u *UI) editProfile() {
 
 	var groups []fyne.CanvasObject
 	groups = append(groups, widget.NewForm(widget.NewFormItem("Name", e.name), widget.NewFormItem("Notes", e.notes),
-		widget.NewFormItem("Write first", e.order)))
+		widget.NewFormItem("Write first", e.order), widget.NewFormItem("Open windows by", e.windows)))
 	var form *widget.Form
 	last := ""
 	for i, f := range e.fields {
@@ -146,10 +155,15 @@ func (u *UI) editProfile() {
 	cols := container.NewGridWithColumns(2, container.NewVBox(groups[:half]...), container.NewVBox(groups[half:]...))
 	load := widget.NewButtonWithIcon("Load…", theme.FolderOpenIcon(), e.load)
 	save := widget.NewButtonWithIcon("Save as…", theme.DocumentSaveIcon(), e.saveAs)
-	reset := widget.NewButtonWithIcon("Defaults", theme.ViewRefreshIcon(), func() { e.fill(defaultProfile()) })
+	preset := widget.NewSelect(planner.Presets(), func(name string) {
+		if p, err := presetProfile(name); err == nil {
+			e.fill(p)
+		}
+	})
+	preset.PlaceHolder = "Start from a preset…"
 	top := container.NewVBox(
-		mutedLabel("Tip conditions, dose model, motion, drift and the instrument's limits used for planning. A value outside the limits, or not physical, is refused with a message; nothing is changed until every field is valid."),
-		container.NewHBox(load, save, reset))
+		mutedLabel("Tip conditions, dose model, motion, drift and the instrument's limits used for planning. A value outside the limits, or not physical, is refused with a message naming it; nothing changes until every field is valid. Presets: rt room temperature, lt low temperature."),
+		container.NewHBox(load, save, container.New(&fixedWidth{w: 220}, preset)))
 	content := container.NewBorder(top, e.msg, nil, nil, container.NewVScroll(cols))
 	apply := widget.NewButtonWithIcon("Apply", theme.ConfirmIcon(), e.apply)
 	apply.Importance = widget.HighImportance
@@ -157,6 +171,17 @@ func (u *UI) editProfile() {
 	e.dlg = dialog.NewCustomWithoutButtons("Instrument profile", container.New(&fixedSize{fyne.NewSize(940, 600)}, content), u.Win)
 	e.dlg.SetButtons([]fyne.CanvasObject{cancel, apply})
 	e.dlg.Show()
+	return e
+}
+
+// entry returns the entry of the field with the given JSON path.
+func (e *profileEditor) entry(path string) *widget.Entry {
+	for i, f := range e.fields {
+		if f.path == path {
+			return e.entries[i]
+		}
+	}
+	return nil
 }
 
 // fill shows p in the entries.
@@ -167,8 +192,11 @@ func (e *profileEditor) fill(p planner.Profile) {
 	e.apOut.SetChecked(p.AP.Outline)
 	e.feOut.SetChecked(p.FE.Outline)
 	e.order.SetSelected(p.Order)
+	e.windows.SetSelected(p.WindowStyle)
+	e.shown = make([]string, len(e.fields))
 	for i, f := range e.fields {
-		e.entries[i].SetText(formatField(f, &p))
+		e.shown[i] = formatField(f, &p)
+		e.entries[i].SetText(e.shown[i])
 	}
 	e.msg.Hide()
 }
@@ -182,9 +210,14 @@ func (e *profileEditor) parse() (planner.Profile, error) {
 	p.AP.Outline = e.apOut.Checked
 	p.FE.Outline = e.feOut.Checked
 	p.Order = e.order.Selected
+	p.WindowStyle = e.windows.Selected
 	var bad []string
 	for i, f := range e.fields {
 		text := strings.TrimSpace(e.entries[i].Text)
+		if text == e.shown[i] {
+			// Untouched: keep the exact value, not its rounded display.
+			continue
+		}
 		if f.i != nil {
 			v, err := strconv.Atoi(text)
 			if err != nil {
@@ -208,9 +241,47 @@ func (e *profileEditor) parse() (planner.Profile, error) {
 		return p, errors.New(strings.Join(bad, "\n"))
 	}
 	if err := validateProfile(p); err != nil {
-		return p, err
+		return p, e.explain(err)
 	}
 	return p, nil
+}
+
+// explain rewrites the planner's errors, which name JSON paths, with the
+// editor's labels and units.
+func (e *profileEditor) explain(err error) error {
+	byPath := map[string]profileField{}
+	for _, f := range e.fields {
+		byPath[f.path] = f
+	}
+	name := func(path string) string {
+		if f, ok := byPath[path]; ok {
+			return f.group + " / " + f.label
+		}
+		return path
+	}
+	shown := func(path string, v float64) string {
+		if f, ok := byPath[path]; ok && f.scale != 0 {
+			return strconv.FormatFloat(v*f.scale, 'g', 6, 64)
+		}
+		return strconv.FormatFloat(v, 'g', 6, 64)
+	}
+	var pe *planner.ProfileError
+	if errors.As(err, &pe) {
+		var lines []string
+		for _, pr := range pe.Problems {
+			val := fmt.Sprint(pr.Value)
+			if x, ok := pr.Value.(float64); ok {
+				val = shown(pr.Path, x)
+			}
+			lines = append(lines, fmt.Sprintf("%s = %s: %s", name(pr.Path), val, pr.Problem))
+		}
+		return errors.New(strings.Join(lines, "\n"))
+	}
+	var le *planner.LimitError
+	if errors.As(err, &le) {
+		return fmt.Errorf("%s = %s is beyond the instrument limit %s = %s", name(le.Quantity), shown(le.Quantity, le.Value), name(le.Limit), shown(le.Limit, le.Max))
+	}
+	return err
 }
 
 func (e *profileEditor) apply() {

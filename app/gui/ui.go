@@ -33,6 +33,9 @@ type Options struct {
 	// CheckDelay is how long after an edit the design rules are checked
 	// again; 0 takes 400 ms, a negative value checks only on request.
 	CheckDelay time.Duration
+	// Generator is the program name and version printed on exported
+	// reports, e.g. "dimerpath 0.1.0".
+	Generator string
 }
 
 // UI is the main window: the views of one Session and the actions that
