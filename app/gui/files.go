@@ -396,19 +396,34 @@ func (u *UI) OfferRecovery() {
 			u.removeRecovery()
 			return
 		}
-		d, err := loadDesign(filepath.Join(dir, recoveryName))
-		if err != nil {
-			dialog.ShowError(fmt.Errorf("the recovery copy could not be read: %w", err), u.Win)
-			return
-		}
-		s, err := NewSession(d, info.Path)
-		if err != nil {
+		if err := u.Recover(); err != nil {
 			dialog.ShowError(err, u.Win)
-			return
 		}
-		s.MarkUnsaved()
-		u.SetSession(s)
 	}, u.Win)
+}
+
+// Recover opens the recovery copy as an unsaved design belonging to the
+// file it was autosaved from.
+func (u *UI) Recover() error {
+	dir, err := u.configDir()
+	if err != nil {
+		return err
+	}
+	var info recoveryInfo
+	if meta, err := os.ReadFile(filepath.Join(dir, recoveryMeta)); err == nil {
+		json.Unmarshal(meta, &info)
+	}
+	d, err := loadDesign(filepath.Join(dir, recoveryName))
+	if err != nil {
+		return fmt.Errorf("the recovery copy could not be read: %w", err)
+	}
+	s, err := NewSession(d, info.Path)
+	if err != nil {
+		return err
+	}
+	s.MarkUnsaved()
+	u.SetSession(s)
+	return nil
 }
 
 // --- Export ---

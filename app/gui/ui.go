@@ -242,7 +242,7 @@ func (u *UI) content() fyne.CanvasObject {
 		widget.NewButtonWithIcon("", theme.ZoomInIcon(), func() { u.View.ZoomBy(1.5) }),
 	)
 	left := container.NewVScroll(u.toolPalette())
-	right := container.New(&fixedWidth{w: 350}, u.tabs)
+	right := container.New(&fixedWidth{w: 350}, container.New(layout.NewCustomPaddedLayout(0, 0, 0, 6), u.tabs))
 	status := container.NewBorder(nil, nil, container.New(&fixedWidth{w: 520}, u.cursorLabel), u.progressBox, u.hintLabel)
 	viewFrame := container.NewStack(canvas.NewRectangle(colOutside), u.View)
 	return container.NewBorder(
@@ -484,11 +484,11 @@ func (u *UI) refreshLegend() {
 	if surf := u.S.Surface(); surf != nil && len(surf.Terraces) > 1 {
 		rows = append(rows, widget.NewSeparator())
 		for i, t := range surf.Terraces {
-			arrow := "↔"
+			dir := "horizontal"
 			if t.Rows.String() == "y" {
-				arrow = "↕"
+				dir = "vertical"
 			}
-			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: dimer rows %s (%s)", t.Name, arrow, t.Rows)))
+			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: dimer rows along %s (%s)", t.Name, t.Rows, dir)))
 		}
 		rows = append(rows, legendRow(swatch(colStep, 14, 2), "step edge"))
 	}
