@@ -55,6 +55,7 @@ test: deps lint build
 
 bench: deps
 	$(GO) test -run '^$$' -bench . -benchmem ./...
+	$(GO) run ./planner/route/internal/yardstick
 
 # Fuzz every file reader for FUZZTIME each (default 20s).
 FUZZTIME ?= 20s

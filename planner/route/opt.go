@@ -49,7 +49,16 @@ func (s *solver) improve(v int32) bool {
 		s.push(best.a)
 		s.push(best.b)
 	default:
-		return false
+		if !s.or3 {
+			return false
+		}
+		m := move3{delta: -s.eps}
+		s.bestOr3(v, &m)
+		if m.kind == 0 {
+			return false
+		}
+		s.applyOr3(&m)
+		return true
 	}
 	s.length += best.delta
 	return true

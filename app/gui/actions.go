@@ -1,0 +1,270 @@
+package gui
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"path/filepath"
+	"time"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/theme"
+	"fyne.io/fyne/v2/widget"
+
+	"dimerpath/export"
+	"dimerpath/planner"
+)
+
+// Long work (planning, checks, comparisons, exports) runs in a goroutine
+// on a copy of the design, with a context the Cancel button cancels, and
+// reports back through fyne.Do. The session is touched only on Fyne's
+// goroutine.
+
+// showProgress shows the progress bar with a message and a fraction
+// (0..1).
+func (u *UI) showProgress(msg string, f float64) {
+	u.progressMsg.SetText(msg)
+	u.progress.SetValue(f)
+	u.progressBox.Show()
+}
+
+func (u *UI) hideProgress() { u.progressBox.Hide() }
+
+// Busy reports whether a plan or comparison is running.
+func (u *UI) Busy() bool { return u.planCancel != nil }
+
+// progressFunc returns a progress callback for the planner that updates
+// the bar at most every 50 ms, prefixing prefix to the stage.
+func (u *UI) progressFunc(prefix string, scale, offset float64) func(string, float64) {
+	var last time.Time
+	return func(stage string, f float64) {
+		if time.Since(last) < 50*time.Millisecond && f < 1 {
+			return
+		}
+		last = time.Now()
+		fyne.Do(func() { u.showProgress(prefix+stage, offset+scale*f) })
+	}
+}
+
+// StartPlan plans the current variant in the background.
+func (u *UI) StartPlan() {
+	if u.Busy() {
+		return
+	}
+	s := u.S
+	d, variant, tok, prof := s.DesignCopy(), s.Variant().Name, s.Token(), s.Profile
+	ctx, cancel := context.WithCancel(context.Background())
+	u.planCancel = cancel
+	u.planStarted = time.Now()
+	u.planButton.Disable()
+	u.showProgress("Planning "+variant+"…", 0)
+	opt := planner.Options{Seed: u.opts.Seed, Progress: u.progressFunc(variant+": ", 1, 0)}
+	go func() {
+		p, err := buildPlan(ctx, d, variant, prof, opt)
+		fyne.Do(func() { u.planDone(s, p, variant, tok, err) })
+	}()
+}
+
+func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken, err error) {
+	u.planCancel = nil
+	u.planButton.Enable()
+	u.hideProgress()
+	if s != u.S {
+		return // another design was opened meanwhile
+	}
+	switch {
+	case errors.Is(err, context.Canceled):
+		u.hintLabel.SetText("Planning cancelled.")
+	case err != nil:
+		dialog.ShowError(fmt.Errorf("planning variant %s: %w", variant, err), u.Win)
+	default:
+		s.SetPlan(p, variant, tok)
+		u.tabs.Select(u.tabPlan)
+		u.hintLabel.SetText(fmt.Sprintf("Planned variant %s in %s.", variant, formatDuration(time.Since(u.planStarted).Seconds())))
+	}
+}
+
+// PlanNow plans the current variant on the calling goroutine (for the
+// screenshot mode and tests).
+func (u *UI) PlanNow(ctx context.Context) error {
+	s := u.S
+	p, err := buildPlan(ctx, s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: u.opts.Seed})
+	if err != nil {
+		return err
+	}
+	s.SetPlan(p, s.Variant().Name, s.Token())
+	u.tabs.Select(u.tabPlan)
+	return nil
+}
+
+// cancelPlan cancels a running plan or comparison.
+func (u *UI) cancelPlan() {
+	if u.planCancel != nil {
+		u.planCancel()
+	}
+}
+
+// scheduleCheck checks the design rules again shortly after an edit.
+func (u *UI) scheduleCheck() {
+	if u.opts.CheckDelay < 0 {
+		return
+	}
+	if u.checkTimer != nil {
+		u.checkTimer.Stop()
+	}
+	u.checkTimer = time.AfterFunc(u.opts.CheckDelay, func() { fyne.Do(u.CheckNow) })
+}
+
+// CheckNow runs the design-rule checks on the current variant in the
+// background; a newer check cancels an older one.
+func (u *UI) CheckNow() {
+	if u.checkCancel != nil {
+		u.checkCancel()
+	}
+	s := u.S
+	d, variant, tok := s.DesignCopy(), s.Variant().Name, s.Token()
+	ctx, cancel := context.WithCancel(context.Background())
+	u.checkCancel = cancel
+	go func() {
+		f, err := checkDesign(ctx, d, variant)
+		fyne.Do(func() {
+			if ctx.Err() != nil || s != u.S || variant != s.Variant().Name {
+				return
+			}
+			u.checkCancel = nil
+			if err != nil {
+				f = []Finding{{Rule: "design", Error: true, Message: err.Error()}}
+			}
+			s.SetFindings(f, tok)
+		})
+	}()
+}
+
+// CheckSync runs the checks on the calling goroutine (tests, screenshot).
+func (u *UI) CheckSync() {
+	s := u.S
+	f, err := checkDesign(context.Background(), s.DesignCopy(), s.Variant().Name)
+	if err != nil {
+		f = []Finding{{Rule: "design", Error: true, Message: err.Error()}}
+	}
+	s.SetFindings(f, s.Token())
+}
+
+// compareVariants plans every variant in the background and shows the
+// comparison.
+func (u *UI) compareVariants() {
+	if u.Busy() {
+		return
+	}
+	s := u.S
+	d, prof := s.DesignCopy(), s.Profile
+	names := s.VariantNames()
+	ctx, cancel := context.WithCancel(context.Background())
+	u.planCancel = cancel
+	u.planButton.Disable()
+	u.showProgress("Comparing variants…", 0)
+	seed := u.opts.Seed
+	go func() {
+		res := make([]export.VariantResult, len(names))
+		for i, n := range names {
+			frac := 1 / float64(len(names))
+			opt := planner.Options{Seed: seed, Progress: u.progressFunc(fmt.Sprintf("variant %s (%d of %d): ", n, i+1, len(names)), frac, float64(i)*frac)}
+			p, err := buildPlan(ctx, d, n, prof, opt)
+			res[i] = export.VariantResult{Variant: n, Plan: p, Err: err}
+			if ctx.Err() != nil {
+				break
+			}
+		}
+		fyne.Do(func() {
+			u.planCancel = nil
+			u.planButton.Enable()
+			u.hideProgress()
+			if ctx.Err() != nil {
+				u.hintLabel.SetText("Comparison cancelled.")
+				return
+			}
+			u.showComparison(res)
+		})
+	}()
+}
+
+// comparisonView is the table and charts of a comparison.
+func comparisonView(res []export.VariantResult) fyne.CanvasObject {
+	header := []string{"Variant", "Write time", "P10 – P90", "AP", "FE", "Dwell", "Travel", "Registr.", "All windows good", "Devices / perfect"}
+	cols := len(header)
+	var cells []fyne.CanvasObject
+	for _, h := range header {
+		cells = append(cells, heading(h))
+	}
+	var timeBars, yieldBars []Bar
+	for i, r := range res {
+		if r.Err != nil || r.Plan == nil {
+			msg := "not planned"
+			if r.Err != nil {
+				msg = r.Err.Error()
+			}
+			cells = append(cells, widget.NewLabel(r.Variant))
+			l := widget.NewLabel(msg)
+			l.Importance = widget.DangerImportance
+			l.Truncation = fyne.TextTruncateEllipsis
+			cells = append(cells, l)
+			for k := 2; k < cols; k++ {
+				cells = append(cells, widget.NewLabel(""))
+			}
+			continue
+		}
+		p := r.Plan
+		dev := "—"
+		if p.Yield.DevicesPerPerfect > 0 {
+			dev = fmt.Sprintf("%.1f", p.Yield.DevicesPerPerfect)
+		}
+		all := "no windows"
+		if p.Yield.Windows > 0 {
+			all = formatProbability(p.Yield.All)
+		}
+		b := p.Breakdown
+		for _, t := range []string{r.Variant, formatDuration(p.TotalS), formatDuration(p.P10S) + " – " + formatDuration(p.P90S),
+			formatDuration(b.APWriteS), formatDuration(b.FEWriteS), formatDuration(b.DwellS), formatDuration(b.TravelS), formatDuration(b.RegistrationS), all, dev} {
+			cells = append(cells, widget.NewLabel(t))
+		}
+		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: formatDuration(p.TotalS), Color: SegmentColor(i)})
+		yieldBars = append(yieldBars, Bar{Label: r.Variant, Value: p.Yield.All, Text: all, Color: colYield})
+	}
+	table := container.NewGridWithColumns(cols, cells...)
+	charts := container.NewGridWithColumns(2,
+		container.NewVBox(heading("Write time per variant"), NewBarChart(timeBars)),
+		container.NewVBox(heading("Chance every window takes one donor"), NewBarChart(yieldBars)))
+	return container.NewVBox(table, widget.NewSeparator(), charts, widget.NewSeparator(), mutedLabel(planner.Caution))
+}
+
+func (u *UI) showComparison(res []export.VariantResult) {
+	content := container.NewVScroll(comparisonView(res))
+	var d *dialog.CustomDialog
+	report := widget.NewButtonWithIcon("Export report…", theme.DocumentPrintIcon(), func() {
+		u.withCaution("the comparison report", func(es ExportSettings) {
+			u.chooseFile(safeFileName(u.S.Design().Name)+"-variants.pdf", []string{".pdf", ".svg"}, func(path string) {
+				u.runInBackground("Writing "+filepath.Base(path)+"…", func(ctx context.Context, _ func(string, float64)) error {
+					return exportComparison(ctx, path, res, es)
+				}, "Wrote "+path)
+			})
+		})
+	})
+	closeBtn := widget.NewButton("Close", func() { d.Hide() })
+	d = dialog.NewCustomWithoutButtons("Compare variants", container.New(&fixedSize{fyne.NewSize(1000, 520)}, content), u.Win)
+	d.SetButtons([]fyne.CanvasObject{closeBtn, report})
+	d.Show()
+}
+
+// fixedSize lays out its child at a fixed minimum size.
+type fixedSize struct{ s fyne.Size }
+
+func (f *fixedSize) Layout(objs []fyne.CanvasObject, size fyne.Size) {
+	for _, o := range objs {
+		o.Move(fyne.NewPos(0, 0))
+		o.Resize(size)
+	}
+}
+
+func (f *fixedSize) MinSize([]fyne.CanvasObject) fyne.Size { return f.s }

@@ -1,0 +1,2 @@
+// Package gui is dimerpath's desktop window.
+package gui

@@ -1,0 +1,533 @@
+package gui
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+	"time"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/storage"
+	"fyne.io/fyne/v2/widget"
+
+	"dimerpath/export"
+	"dimerpath/internal/atomicfile"
+	"dimerpath/lattice/design"
+	"dimerpath/planner"
+)
+
+// Files: open, save, save as, recent files, the unsaved-changes prompt,
+// the recovery autosave, and exports.
+
+const (
+	prefRecent   = "recent-files"
+	maxRecent    = 8
+	recoveryName = "recovery.json"
+	recoveryMeta = "recovery-meta.json"
+)
+
+// recoveryInfo is stored beside the recovery copy of the design.
+type recoveryInfo struct {
+	Path    string    `json:"path"` // the file the design belongs to, or ""
+	SavedAt time.Time `json:"saved_at"`
+	Design  string    `json:"design"`
+}
+
+func (u *UI) configDir() (string, error) {
+	if u.opts.ConfigDir != "" {
+		return u.opts.ConfigDir, nil
+	}
+	dir, err := os.UserConfigDir()
+	if err != nil {
+		return "", err
+	}
+	return filepath.Join(dir, "dimerpath"), nil
+}
+
+// confirmDiscard runs then at once when nothing is unsaved, else after
+// asking whether to save, discard or cancel.
+func (u *UI) confirmDiscard(action string, then func()) {
+	if !u.S.Dirty() {
+		then()
+		return
+	}
+	name := u.S.Design().Name
+	msg := widget.NewLabel(fmt.Sprintf("The design %q has changes that are not saved. Save them before you %s?", name, action))
+	msg.Wrapping = fyne.TextWrapWord
+	var d *dialog.CustomDialog
+	save := widget.NewButton("Save", func() { d.Hide(); u.save(then) })
+	save.Importance = widget.HighImportance
+	discard := widget.NewButton("Discard changes", func() { d.Hide(); then() })
+	discard.Importance = widget.DangerImportance
+	cancel := widget.NewButton("Cancel", func() { d.Hide() })
+	d = dialog.NewCustomWithoutButtons("Unsaved changes", container.New(&fixedWidth{w: 420}, msg), u.Win)
+	d.SetButtons([]fyne.CanvasObject{cancel, discard, save})
+	d.Show()
+}
+
+// quit closes the window, asking first about unsaved changes.
+func (u *UI) quit() {
+	u.confirmDiscard("close the window", func() {
+		u.cancelPlan()
+		u.removeRecovery()
+		u.StopAutosave()
+		u.Win.Close()
+	})
+}
+
+func (u *UI) openDialog() {
+	u.confirmDiscard("open another design", func() {
+		d := dialog.NewFileOpen(func(r fyne.URIReadCloser, err error) {
+			if err != nil {
+				dialog.ShowError(err, u.Win)
+				return
+			}
+			if r == nil {
+				return
+			}
+			path := r.URI().Path()
+			r.Close()
+			u.OpenPath(path)
+		}, u.Win)
+		d.SetFilter(storage.NewExtensionFileFilter([]string{".json"}))
+		if dir := u.lastDir(); dir != nil {
+			d.SetLocation(dir)
+		}
+		d.Resize(fyne.NewSize(900, 600))
+		d.Show()
+	})
+}
+
+// lastDir is the folder of the current or most recent file, for the file
+// dialogs.
+func (u *UI) lastDir() fyne.ListableURI {
+	p := u.S.Path()
+	if p == "" {
+		if r := u.recent(); len(r) > 0 {
+			p = r[0]
+		}
+	}
+	if p == "" {
+		return nil
+	}
+	l, err := storage.ListerForURI(storage.NewFileURI(filepath.Dir(p)))
+	if err != nil {
+		return nil
+	}
+	return l
+}
+
+// OpenPath opens the design file at path, replacing the one shown. A
+// file that fails to load leaves the current design and shows why.
+func (u *UI) OpenPath(path string) error {
+	d, err := loadDesign(path)
+	if err == nil {
+		var s *Session
+		if s, err = NewSession(d, path); err == nil {
+			u.SetSession(s)
+			u.addRecent(path)
+			return nil
+		}
+	}
+	dialog.ShowError(fmt.Errorf("could not open %s:\n%w", path, err), u.Win)
+	return err
+}
+
+func (u *UI) newDesign() {
+	u.confirmDiscard("start a new design", func() {
+		s, err := NewSession(NewDesign(), "")
+		if err != nil {
+			dialog.ShowError(err, u.Win)
+			return
+		}
+		u.SetSession(s)
+	})
+}
+
+func (u *UI) openDemo() {
+	u.confirmDiscard("open the demo", func() {
+		d, err := demoDesign()
+		if err == nil {
+			var s *Session
+			if s, err = NewSession(d, ""); err == nil {
+				u.SetSession(s)
+				return
+			}
+		}
+		dialog.ShowError(err, u.Win)
+	})
+}
+
+// save writes the design to its file (or asks for one), then runs then
+// if it succeeded.
+func (u *UI) save(then func()) {
+	if u.S.Path() == "" {
+		u.saveAs(then)
+		return
+	}
+	if err := u.SaveTo(u.S.Path()); err != nil {
+		dialog.ShowError(err, u.Win)
+		return
+	}
+	if then != nil {
+		then()
+	}
+}
+
+// SaveTo writes the design atomically to path and records it as saved.
+func (u *UI) SaveTo(path string) error {
+	if err := saveDesign(path, u.S.Design()); err != nil {
+		return fmt.Errorf("could not save %s:\n%w", path, err)
+	}
+	u.S.MarkSaved(path)
+	u.addRecent(path)
+	u.removeRecovery()
+	u.hintLabel.SetText("Saved " + path)
+	return nil
+}
+
+func (u *UI) saveAs(then func()) {
+	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
+		if err != nil {
+			dialog.ShowError(err, u.Win)
+			return
+		}
+		if w == nil {
+			return
+		}
+		path := w.URI().Path()
+		// The dialog opened the file; the design is written to a
+		// temporary file and renamed over it.
+		w.Close()
+		if !strings.HasSuffix(strings.ToLower(path), ".json") {
+			os.Remove(path)
+			path += ".json"
+		}
+		if err := u.SaveTo(path); err != nil {
+			dialog.ShowError(err, u.Win)
+			return
+		}
+		if then != nil {
+			then()
+		}
+	}, u.Win)
+	name := u.S.Design().Name
+	if name == "" {
+		name = "design"
+	}
+	d.SetFileName(safeFileName(name) + ".json")
+	d.SetFilter(storage.NewExtensionFileFilter([]string{".json"}))
+	if dir := u.lastDir(); dir != nil {
+		d.SetLocation(dir)
+	}
+	d.Resize(fyne.NewSize(900, 600))
+	d.Show()
+}
+
+// safeFileName turns a design or variant name into a file name.
+func safeFileName(s string) string {
+	var b strings.Builder
+	for _, c := range s {
+		switch {
+		case c >= 'a' && c <= 'z', c >= 'A' && c <= 'Z', c >= '0' && c <= '9', c == '-', c == '_', c == '.':
+			b.WriteRune(c)
+		default:
+			b.WriteRune('-')
+		}
+	}
+	if b.Len() == 0 {
+		return "design"
+	}
+	return b.String()
+}
+
+// --- Recent files ---
+
+func (u *UI) recent() []string {
+	return u.App.Preferences().StringList(prefRecent)
+}
+
+func (u *UI) addRecent(path string) {
+	if abs, err := filepath.Abs(path); err == nil {
+		path = abs
+	}
+	r := slices.DeleteFunc(slices.Clone(u.recent()), func(p string) bool { return p == path })
+	r = append([]string{path}, r...)
+	if len(r) > maxRecent {
+		r = r[:maxRecent]
+	}
+	u.App.Preferences().SetStringList(prefRecent, r)
+	u.refreshRecent()
+}
+
+func (u *UI) refreshRecent() {
+	if u.recentMenu == nil {
+		return
+	}
+	var items []*fyne.MenuItem
+	for _, p := range u.recent() {
+		path := p
+		items = append(items, fyne.NewMenuItem(path, func() {
+			u.confirmDiscard("open another design", func() { u.OpenPath(path) })
+		}))
+	}
+	if len(items) == 0 {
+		none := fyne.NewMenuItem("(none yet)", nil)
+		none.Disabled = true
+		items = append(items, none)
+	}
+	u.recentMenu.ChildMenu.Items = items
+	if u.menu != nil {
+		u.menu.Refresh()
+	}
+}
+
+// --- Autosave and recovery ---
+
+// StartAutosave writes the design to the recovery file every interval
+// while it has unsaved changes.
+func (u *UI) StartAutosave() {
+	every := u.opts.Autosave
+	if every < 0 {
+		return
+	}
+	if every == 0 {
+		every = time.Minute
+	}
+	u.StopAutosave()
+	stop := make(chan struct{})
+	u.stopAutosave = stop
+	go func() {
+		t := time.NewTicker(every)
+		defer t.Stop()
+		for {
+			select {
+			case <-stop:
+				return
+			case <-t.C:
+				fyne.Do(func() { u.Autosave() })
+			}
+		}
+	}()
+}
+
+// StopAutosave stops the autosave ticker.
+func (u *UI) StopAutosave() {
+	if u.stopAutosave != nil {
+		close(u.stopAutosave)
+		u.stopAutosave = nil
+	}
+}
+
+// Autosave writes the recovery copy now if the design changed since the
+// last one. The copy is taken here; the file is written in the
+// background.
+func (u *UI) Autosave() error {
+	s := u.S
+	if !s.Dirty() || s.hist.current() == u.lastAutosave {
+		return nil
+	}
+	dir, err := u.configDir()
+	if err != nil {
+		return err
+	}
+	u.lastAutosave = s.hist.current()
+	d := s.DesignCopy()
+	info := recoveryInfo{Path: s.Path(), SavedAt: time.Now(), Design: d.Name}
+	// Written here: the copy is already taken, and a design file is
+	// written in milliseconds unless it holds millions of painted sites.
+	return writeRecovery(dir, d, info)
+}
+
+func writeRecovery(dir string, d *design.Design, info recoveryInfo) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return err
+	}
+	if err := saveDesign(filepath.Join(dir, recoveryName), d); err != nil {
+		return err
+	}
+	meta, err := json.MarshalIndent(info, "", "  ")
+	if err != nil {
+		return err
+	}
+	return atomicfile.WriteBytes(filepath.Join(dir, recoveryMeta), meta, 0o644)
+}
+
+func (u *UI) removeRecovery() {
+	dir, err := u.configDir()
+	if err != nil {
+		return
+	}
+	os.Remove(filepath.Join(dir, recoveryName))
+	os.Remove(filepath.Join(dir, recoveryMeta))
+	u.lastAutosave = nil
+}
+
+// OfferRecovery asks whether to restore a recovery file left by a
+// session that did not close cleanly.
+func (u *UI) OfferRecovery() {
+	dir, err := u.configDir()
+	if err != nil {
+		return
+	}
+	meta, err := os.ReadFile(filepath.Join(dir, recoveryMeta))
+	if err != nil {
+		return
+	}
+	var info recoveryInfo
+	if json.Unmarshal(meta, &info) != nil {
+		return
+	}
+	where := "an unsaved design"
+	if info.Path != "" {
+		where = info.Path
+	}
+	msg := wrapLabel(fmt.Sprintf("dimerpath kept a copy of %q (%s) from %s, when it last ran without closing cleanly. Recover it? You then save it where you like; Discard deletes the copy.",
+		info.Design, where, info.SavedAt.Local().Format("2 Jan 2006 15:04")))
+	dialog.ShowCustomConfirm("Recover unsaved work?", "Recover", "Discard", container.New(&fixedWidth{w: 440}, msg), func(ok bool) {
+		if !ok {
+			u.removeRecovery()
+			return
+		}
+		if err := u.Recover(); err != nil {
+			dialog.ShowError(err, u.Win)
+		}
+	}, u.Win)
+}
+
+// Recover opens the recovery copy as an unsaved design belonging to the
+// file it was autosaved from.
+func (u *UI) Recover() error {
+	dir, err := u.configDir()
+	if err != nil {
+		return err
+	}
+	var info recoveryInfo
+	if meta, err := os.ReadFile(filepath.Join(dir, recoveryMeta)); err == nil {
+		json.Unmarshal(meta, &info)
+	}
+	d, err := loadDesign(filepath.Join(dir, recoveryName))
+	if err != nil {
+		return fmt.Errorf("the recovery copy could not be read: %w", err)
+	}
+	s, err := NewSession(d, info.Path)
+	if err != nil {
+		return err
+	}
+	s.MarkUnsaved()
+	u.SetSession(s)
+	return nil
+}
+
+// --- Export ---
+
+const prefPaper = "paper"
+
+// withCaution shows the caution before an export, with the paper size
+// for printed reports, and runs then with the settings if the user goes
+// on.
+func (u *UI) withCaution(what string, then func(ExportSettings)) {
+	paper := widget.NewRadioGroup([]string{"A4", "US Letter"}, nil)
+	paper.Horizontal = true
+	if u.App.Preferences().StringWithFallback(prefPaper, string(export.A4)) == string(export.Letter) {
+		paper.SetSelected("US Letter")
+	} else {
+		paper.SetSelected("A4")
+	}
+	msg := wrapLabel(planner.Caution + "\n\nThe printed plan carries this caution on its first page.")
+	content := container.NewVBox(msg, widget.NewForm(widget.NewFormItem("Paper", paper)))
+	dialog.ShowCustomConfirm("Before you export "+what, "Continue…", "Cancel", container.New(&fixedWidth{w: 480}, content), func(ok bool) {
+		if !ok {
+			return
+		}
+		es := ExportSettings{Paper: export.A4, Generator: u.opts.Generator, Date: time.Now()}
+		if paper.Selected == "US Letter" {
+			es.Paper = export.Letter
+		}
+		u.App.Preferences().SetString(prefPaper, string(es.Paper))
+		then(es)
+	}, u.Win)
+}
+
+// exportAs exports the current variant's plan as kind (pdf, svg, json
+// or csv) after the caution. A missing or out-of-date plan is offered to
+// be made first.
+func (u *UI) exportAs(kind string) {
+	p, stale := u.S.Plan()
+	if p == nil || stale {
+		dialog.ShowConfirm("Plan first", fmt.Sprintf("Variant %s has no up-to-date plan to export. Plan it now? (Export again when it is done.)", u.S.Variant().Name), func(ok bool) {
+			if ok {
+				u.StartPlan()
+			}
+		}, u.Win)
+		return
+	}
+	d := u.S.DesignCopy()
+	u.withCaution("the plan", func(es ExportSettings) {
+		name := safeFileName(u.S.Design().Name+"-"+p.Variant) + "." + kind
+		u.chooseFile(name, []string{"." + kind}, func(path string) {
+			u.runInBackground("Exporting "+filepath.Base(path)+"…", func(ctx context.Context, progress func(string, float64)) error {
+				return exportPlan(ctx, path, d, p, es, progress)
+			}, "Exported "+path)
+		})
+	})
+}
+
+// chooseFile asks for a file to write, suggesting name, and calls then
+// with its path. The file is written later through a temporary file.
+func (u *UI) chooseFile(name string, exts []string, then func(path string)) {
+	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
+		if err != nil {
+			dialog.ShowError(err, u.Win)
+			return
+		}
+		if w == nil {
+			return
+		}
+		path := w.URI().Path()
+		w.Close()
+		then(path)
+	}, u.Win)
+	d.SetFileName(name)
+	d.SetFilter(storage.NewExtensionFileFilter(exts))
+	if dir := u.lastDir(); dir != nil {
+		d.SetLocation(dir)
+	}
+	d.Resize(fyne.NewSize(900, 600))
+	d.Show()
+}
+
+// runInBackground runs job with the progress bar and its Cancel button,
+// then reports done or the error.
+func (u *UI) runInBackground(msg string, job func(ctx context.Context, progress func(string, float64)) error, done string) {
+	if u.Busy() {
+		dialog.ShowInformation("Busy", "Wait for the running job to finish, or cancel it.", u.Win)
+		return
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	u.planCancel = cancel
+	u.showProgress(msg, 0)
+	progress := u.progressFunc("", 1, 0)
+	go func() {
+		err := job(ctx, progress)
+		fyne.Do(func() {
+			u.planCancel = nil
+			u.hideProgress()
+			switch {
+			case errors.Is(err, context.Canceled):
+				u.hintLabel.SetText("Cancelled; nothing was written.")
+			case err != nil:
+				dialog.ShowError(err, u.Win)
+			default:
+				u.hintLabel.SetText(done)
+			}
+		})
+	}()
+}

@@ -1,0 +1,419 @@
+package gui
+
+import (
+	"fmt"
+	"image"
+	"image/color"
+	"math"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/canvas"
+	"fyne.io/fyne/v2/driver/desktop"
+	"fyne.io/fyne/v2/theme"
+	"fyne.io/fyne/v2/widget"
+	"github.com/golang/geo/r2"
+
+	"dimerpath/planner"
+)
+
+// LatticeView is the canvas: it draws the session's current variant on
+// the lattice with a raster filled by Renderer, and turns pointer events
+// into pan, zoom and tool actions on the session. It keeps only view
+// state (where it looks and how close); everything drawn comes from the
+// session.
+type LatticeView struct {
+	widget.BaseWidget
+
+	s    *Session
+	Opts SceneOptions
+
+	view     View
+	pxPerDot float32 // device pixels per Fyne unit, from the last frame
+	fitted   bool
+	rend     Renderer
+	raster   *canvas.Raster
+	scene    *Scene
+	route    *RouteOverlay
+	routeOf  *planner.Plan
+
+	button   desktop.MouseButton
+	panning  bool
+	pressed  bool
+	lastDrag fyne.Position
+	rightAt  *fyne.Position
+
+	// OnCursor is called with the field point under the pointer (ok false
+	// when it leaves the view).
+	OnCursor func(p r2.Point, ok bool)
+	// OnViewChanged is called after a pan or zoom.
+	OnViewChanged func()
+	// OnKey and OnRune receive keys typed while the view has focus.
+	OnKey  func(*fyne.KeyEvent)
+	OnRune func(rune)
+
+	scaleBar   *canvas.Rectangle
+	scaleTicks [2]*canvas.Rectangle
+	scaleText  *canvas.Text
+	scaleBack  *canvas.Rectangle
+	legend     fyne.CanvasObject
+	focused    bool
+}
+
+// NewLatticeView returns the canvas of session s.
+func NewLatticeView(s *Session) *LatticeView {
+	lv := &LatticeView{s: s, Opts: SceneOptions{Route: true, Findings: true}, pxPerDot: 1}
+	lv.raster = canvas.NewRaster(lv.generate)
+	lv.raster.ScaleMode = canvas.ImageScalePixels
+	lv.scaleBar = canvas.NewRectangle(color.White)
+	lv.scaleTicks = [2]*canvas.Rectangle{canvas.NewRectangle(color.White), canvas.NewRectangle(color.White)}
+	lv.scaleText = canvas.NewText("", color.White)
+	lv.scaleText.TextSize = theme.TextSize() * 0.9
+	lv.scaleBack = canvas.NewRectangle(color.NRGBA{0, 0, 0, 0x90})
+	lv.scaleBack.CornerRadius = 4
+	lv.ExtendBaseWidget(lv)
+	return lv
+}
+
+// View returns the current view.
+func (lv *LatticeView) View() View { return lv.view }
+
+// SetView replaces the view and redraws.
+func (lv *LatticeView) SetView(v View) {
+	v.W, v.H = lv.view.W, lv.view.H
+	v.Scale = clampf(v.Scale, MinScale, MaxScale)
+	lv.view = v
+	lv.fitted = true
+	lv.changed()
+}
+
+// SetLegend places obj in the top-right corner of the view.
+func (lv *LatticeView) SetLegend(obj fyne.CanvasObject) {
+	lv.legend = obj
+	lv.Refresh()
+}
+
+// Invalidate rebuilds the scene from the session and redraws.
+func (lv *LatticeView) Invalidate() {
+	lv.scene = nil
+	lv.raster.Refresh()
+}
+
+func (lv *LatticeView) changed() {
+	lv.raster.Refresh()
+	lv.updateScaleBar()
+	if lv.OnViewChanged != nil {
+		lv.OnViewChanged()
+	}
+}
+
+// buildScene returns the scene, rebuilding it when the session changed.
+func (lv *LatticeView) buildScene() *Scene {
+	if lv.scene != nil {
+		return lv.scene
+	}
+	sc := lv.s.Scene(SceneOptions{Findings: lv.Opts.Findings})
+	if lv.Opts.Route {
+		if p, _ := lv.s.Plan(); p != nil {
+			if lv.routeOf != p {
+				lv.route, lv.routeOf = RouteOf(p), p
+			}
+			sc.Route = lv.route
+			sc.DimLayers = true
+		}
+	}
+	lv.scene = sc
+	return sc
+}
+
+// generate is the raster's generator: w x h device pixels.
+func (lv *LatticeView) generate(w, h int) image.Image {
+	if sz := lv.Size(); sz.Width > 0 {
+		lv.pxPerDot = float32(w) / sz.Width
+	}
+	if w != lv.view.W || h != lv.view.H {
+		lv.view = lv.view.Resized(w, h)
+	}
+	if !lv.fitted && w > 0 && h > 0 && lv.s.Surface() != nil {
+		lv.view = lv.fitView()
+		lv.fitted = true
+		lv.updateScaleBar()
+	}
+	return lv.rend.Render(lv.buildScene(), lv.view)
+}
+
+// Fit shows the whole field.
+func (lv *LatticeView) Fit() {
+	if lv.s.Surface() == nil {
+		return
+	}
+	lv.view = lv.fitView()
+	lv.fitted = true
+	lv.changed()
+}
+
+// fitView returns the view showing the whole field beside the legend:
+// the field is fitted into the part of the view the legend leaves free,
+// when that is wide enough.
+func (lv *LatticeView) fitView() View {
+	w, h := lv.view.W, lv.view.H
+	free := w
+	if lv.legend != nil {
+		lw := int(float32(lv.legend.MinSize().Width+24) * lv.pxPerDot)
+		if w-lw > w*2/3 {
+			free = w - lw
+		}
+	}
+	v := FitView(lv.s.Surface().Field, free, h, 24)
+	v.Center.X += float64(w-free) / 2 * v.Scale
+	v.W = w
+	return v
+}
+
+// ZoomTo shows rect (nm) filling most of the view, at least as close as
+// minScale nm/px allows.
+func (lv *LatticeView) ZoomTo(rect r2.Rect) {
+	if lv.view.W == 0 {
+		return
+	}
+	grown := rect.ExpandedByMargin(math.Max(rect.Size().X, rect.Size().Y)*0.3 + 5)
+	v := FitView(grown, lv.view.W, lv.view.H, 40)
+	lv.view = v
+	lv.fitted = true
+	lv.changed()
+}
+
+// ZoomBy zooms around the centre of the view.
+func (lv *LatticeView) ZoomBy(f float64) {
+	lv.view = lv.view.ZoomAt(float64(lv.view.W)/2, float64(lv.view.H)/2, f)
+	lv.changed()
+}
+
+// toDevice converts a widget position to device pixels.
+func (lv *LatticeView) toDevice(p fyne.Position) (float64, float64) {
+	return float64(p.X * lv.pxPerDot), float64(p.Y * lv.pxPerDot)
+}
+
+// FieldAt returns the field point (nm) under widget position p.
+func (lv *LatticeView) FieldAt(p fyne.Position) r2.Point {
+	x, y := lv.toDevice(p)
+	return lv.view.ToField(x, y)
+}
+
+// PositionOf returns the widget position of field point q.
+func (lv *LatticeView) PositionOf(q r2.Point) fyne.Position {
+	x, y := lv.view.ToScreen(q)
+	return fyne.NewPos(float32(x)/lv.pxPerDot, float32(y)/lv.pxPerDot)
+}
+
+// nearNM is how close, in nm, a click must be to a path vertex to hit
+// it: eight units on screen.
+func (lv *LatticeView) nearNM() float64 { return 8 * float64(lv.pxPerDot) * lv.view.Scale }
+
+// Scrolled zooms around the pointer; a real wheel notch is 25 units and
+// zooms by 1.25.
+func (lv *LatticeView) Scrolled(ev *fyne.ScrollEvent) {
+	f := math.Pow(1.25, float64(ev.Scrolled.DY)/25)
+	x, y := lv.toDevice(ev.Position)
+	lv.view = lv.view.ZoomAt(x, y, f)
+	lv.changed()
+}
+
+// MouseDown and MouseUp record the button, so a middle-button drag pans
+// with any tool.
+func (lv *LatticeView) MouseDown(ev *desktop.MouseEvent) {
+	lv.button = ev.Button
+	if ev.Button == desktop.MouseButtonSecondary {
+		p := ev.Position
+		lv.rightAt = &p
+	}
+}
+
+func (lv *LatticeView) MouseUp(ev *desktop.MouseEvent) {
+	lv.button = 0
+	lv.rightAt = nil
+}
+
+// Dragged pans (pan tool, middle button) or drives the tool.
+func (lv *LatticeView) Dragged(ev *fyne.DragEvent) {
+	if !lv.pressed {
+		lv.pressed = true
+		start := ev.Position.Subtract(fyne.NewPos(ev.Dragged.DX, ev.Dragged.DY))
+		lv.panning = lv.s.Tool == ToolPan || lv.button == desktop.MouseButtonTertiary
+		if !lv.panning {
+			lv.s.Press(lv.FieldAt(start))
+		}
+	}
+	if lv.panning {
+		dx, dy := float64(ev.Dragged.DX*lv.pxPerDot), float64(ev.Dragged.DY*lv.pxPerDot)
+		lv.view = lv.view.Pan(dx, dy)
+		lv.changed()
+	} else {
+		lv.s.Drag(lv.FieldAt(ev.Position))
+	}
+	lv.lastDrag = ev.Position
+	lv.cursor(ev.Position)
+}
+
+// DragEnd ends a pan or a tool drag.
+func (lv *LatticeView) DragEnd() {
+	if lv.pressed && !lv.panning {
+		lv.s.Release(lv.FieldAt(lv.lastDrag))
+	}
+	lv.pressed, lv.panning = false, false
+}
+
+// Tapped is a click with the current tool.
+func (lv *LatticeView) Tapped(ev *fyne.PointEvent) {
+	if lv.s.Tool == ToolPan {
+		return
+	}
+	lv.s.Click(lv.FieldAt(ev.Position), lv.nearNM())
+}
+
+// MouseIn, MouseMoved and MouseOut track the pointer for the status bar
+// and the tool previews; a right-button drag pans.
+func (lv *LatticeView) MouseIn(ev *desktop.MouseEvent) { lv.MouseMoved(ev) }
+
+func (lv *LatticeView) MouseMoved(ev *desktop.MouseEvent) {
+	if ev.Button == desktop.MouseButtonSecondary && lv.rightAt != nil {
+		d := ev.Position.Subtract(*lv.rightAt)
+		lv.view = lv.view.Pan(float64(d.X*lv.pxPerDot), float64(d.Y*lv.pxPerDot))
+		p := ev.Position
+		lv.rightAt = &p
+		lv.changed()
+	}
+	lv.cursor(ev.Position)
+	lv.s.Hover(lv.FieldAt(ev.Position))
+}
+
+func (lv *LatticeView) MouseOut() {
+	lv.s.Unhover()
+	if lv.OnCursor != nil {
+		lv.OnCursor(r2.Point{}, false)
+	}
+}
+
+func (lv *LatticeView) cursor(p fyne.Position) {
+	if lv.OnCursor != nil {
+		lv.OnCursor(lv.FieldAt(p), true)
+	}
+}
+
+// FocusGained, FocusLost, TypedRune and TypedKey make the view
+// focusable, so that keys typed after clicking it reach the tool
+// shortcuts rather than the last text field.
+func (lv *LatticeView) FocusGained() { lv.focused = true }
+func (lv *LatticeView) FocusLost()   { lv.focused = false }
+func (lv *LatticeView) TypedRune(r rune) {
+	if lv.OnRune != nil {
+		lv.OnRune(r)
+	}
+}
+func (lv *LatticeView) TypedKey(k *fyne.KeyEvent) {
+	if lv.OnKey != nil {
+		lv.OnKey(k)
+	}
+}
+
+// MinSize lets the view shrink: the window decides its size.
+func (lv *LatticeView) MinSize() fyne.Size { return fyne.NewSize(200, 150) }
+
+// updateScaleBar sizes the scale bar for the view: the longest 1-2-5
+// length that fits in 160 units.
+func (lv *LatticeView) updateScaleBar() {
+	nmPerUnit := lv.view.Scale * float64(lv.pxPerDot)
+	if !(nmPerUnit > 0) {
+		return
+	}
+	l := niceLength(160 * nmPerUnit)
+	lv.scaleText.Text = formatLength(l)
+	lv.scaleBar.Resize(fyne.NewSize(float32(l/nmPerUnit), 4))
+	lv.Refresh()
+}
+
+// formatLength prints a length in nm in the unit that reads best.
+func formatLength(nm float64) string {
+	switch {
+	case nm >= 1000:
+		return trimZeros(fmt.Sprintf("%.3f", nm/1000)) + " µm"
+	case nm >= 1:
+		return trimZeros(fmt.Sprintf("%.2f", nm)) + " nm"
+	default:
+		return trimZeros(fmt.Sprintf("%.1f", nm*1000)) + " pm"
+	}
+}
+
+func trimZeros(s string) string {
+	for len(s) > 1 && s[len(s)-1] == '0' && containsDot(s) {
+		s = s[:len(s)-1]
+	}
+	if s != "" && s[len(s)-1] == '.' {
+		s = s[:len(s)-1]
+	}
+	return s
+}
+
+func containsDot(s string) bool {
+	for _, c := range s {
+		if c == '.' {
+			return true
+		}
+	}
+	return false
+}
+
+// CreateRenderer implements fyne.Widget.
+func (lv *LatticeView) CreateRenderer() fyne.WidgetRenderer {
+	return &latticeRenderer{lv: lv}
+}
+
+type latticeRenderer struct{ lv *LatticeView }
+
+func (r *latticeRenderer) Layout(size fyne.Size) {
+	lv := r.lv
+	lv.raster.Resize(size)
+	lv.raster.Move(fyne.NewPos(0, 0))
+	// Scale bar, bottom left.
+	const pad = 12
+	bw := lv.scaleBar.Size().Width
+	ts := lv.scaleText.MinSize()
+	backW := float32(math.Max(float64(bw), float64(ts.Width))) + 2*pad
+	backH := ts.Height + 4 + 8 + pad
+	lv.scaleBack.Resize(fyne.NewSize(backW, backH))
+	lv.scaleBack.Move(fyne.NewPos(pad, size.Height-backH-pad))
+	x0 := float32(pad + pad)
+	lv.scaleText.Move(fyne.NewPos(x0, size.Height-backH-pad+4))
+	yb := size.Height - pad - pad/2 - 6
+	lv.scaleBar.Move(fyne.NewPos(x0, yb))
+	for k, t := range lv.scaleTicks {
+		t.Resize(fyne.NewSize(2, 10))
+		t.Move(fyne.NewPos(x0+float32(k)*(bw-2), yb-3))
+	}
+	if lv.legend != nil {
+		ls := lv.legend.MinSize()
+		lv.legend.Resize(ls)
+		lv.legend.Move(fyne.NewPos(size.Width-ls.Width-pad, pad))
+	}
+}
+
+func (r *latticeRenderer) MinSize() fyne.Size { return r.lv.MinSize() }
+
+func (r *latticeRenderer) Refresh() {
+	r.Layout(r.lv.Size())
+	canvas.Refresh(r.lv.scaleText)
+	canvas.Refresh(r.lv.scaleBar)
+	if r.lv.legend != nil {
+		r.lv.legend.Refresh()
+	}
+}
+
+func (r *latticeRenderer) Objects() []fyne.CanvasObject {
+	lv := r.lv
+	objs := []fyne.CanvasObject{lv.raster, lv.scaleBack, lv.scaleBar, lv.scaleTicks[0], lv.scaleTicks[1], lv.scaleText}
+	if lv.legend != nil {
+		objs = append(objs, lv.legend)
+	}
+	return objs
+}
+
+func (r *latticeRenderer) Destroy() {}

@@ -1,0 +1,677 @@
+package gui
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+	"strconv"
+	"strings"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/canvas"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/theme"
+	"fyne.io/fyne/v2/widget"
+	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice/design"
+)
+
+// The side panels. Each is a view of the session rebuilt by refresh;
+// every change it offers is a Session method, so it can be undone.
+
+var roleNames = []struct {
+	role design.Role
+	name string
+}{
+	{design.RoleDevice, "device"}, {design.RoleGate, "gate"}, {design.RoleLead, "lead"},
+	{design.RolePad, "contact pad"}, {design.RoleDonor, "donor windows"}, {design.RoleOther, "other"},
+}
+
+var modeNames = []struct {
+	mode design.Mode
+	name string
+}{
+	{design.ModeAuto, "auto (the planner chooses)"},
+	{design.ModeAP, "atomic precision"},
+	{design.ModeFE, "field emission"},
+	{design.ModeHybrid, "hybrid (AP outline, FE fill)"},
+}
+
+func roleOf(r design.Role) string {
+	for _, rn := range roleNames {
+		if rn.role == r {
+			return rn.name
+		}
+	}
+	if r == "" {
+		return "no role"
+	}
+	return string(r)
+}
+
+func modeOf(m design.Mode) string {
+	for _, mn := range modeNames {
+		if mn.mode == m {
+			return mn.name
+		}
+	}
+	return string(m)
+}
+
+// parseNumber parses a decimal number typed into field label.
+func parseNumber(label, s string) (float64, error) {
+	v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, fmt.Errorf("%s: %q is not a number", label, s)
+	}
+	return v, nil
+}
+
+// parseInt parses a whole number typed into field label.
+func parseInt(label, s string) (int, error) {
+	v, err := strconv.Atoi(strings.TrimSpace(s))
+	if err != nil {
+		return 0, fmt.Errorf("%s: %q is not a whole number", label, s)
+	}
+	return v, nil
+}
+
+// shortCount prints a count in at most five characters: 1234, 98.8 k,
+// 3.32 M.
+func shortCount(n int) string {
+	switch {
+	case n < 10000:
+		return strconv.Itoa(n)
+	case n < 999_500:
+		return trimZeros(fmt.Sprintf("%.3g", float64(n)/1e3)) + " k"
+	default:
+		return trimZeros(fmt.Sprintf("%.3g", float64(n)/1e6)) + " M"
+	}
+}
+
+// groupDigits prints n with thin spaces between thousands.
+func groupDigits(n int) string {
+	s := strconv.Itoa(n)
+	neg := strings.HasPrefix(s, "-")
+	s = strings.TrimPrefix(s, "-")
+	var b strings.Builder
+	for i, c := range s {
+		if i > 0 && (len(s)-i)%3 == 0 {
+			b.WriteRune(' ')
+		}
+		b.WriteRune(c)
+	}
+	if neg {
+		return "-" + b.String()
+	}
+	return b.String()
+}
+
+func mutedLabel(s string) *widget.Label {
+	l := widget.NewLabel(s)
+	l.Wrapping = fyne.TextWrapWord
+	l.Importance = widget.LowImportance
+	return l
+}
+
+func wrapLabel(s string) *widget.Label {
+	l := widget.NewLabel(s)
+	l.Wrapping = fyne.TextWrapWord
+	return l
+}
+
+func errorLabel() *widget.Label {
+	l := widget.NewLabel("")
+	l.Wrapping = fyne.TextWrapWord
+	l.Importance = widget.DangerImportance
+	l.Hide()
+	return l
+}
+
+func showErr(l *widget.Label, err error) {
+	if err == nil {
+		l.Hide()
+		return
+	}
+	l.SetText(err.Error())
+	l.Show()
+}
+
+// --- Regions ---
+
+type regionsPanel struct {
+	u        *UI
+	content  fyne.CanvasObject
+	list     *widget.List
+	empty    *widget.Label
+	form     *fyne.Container
+	name     *widget.Entry
+	role     *widget.Select
+	mode     *widget.Select
+	species  *widget.Select
+	tol      *widget.Entry
+	info     *widget.Label
+	msg      *widget.Label
+	shown    int // region the form shows
+	updating bool
+}
+
+func newRegionsPanel(u *UI) *regionsPanel {
+	p := &regionsPanel{u: u, shown: -1}
+	p.list = widget.NewList(
+		func() int { return len(p.u.S.Variant().Regions) },
+		func() fyne.CanvasObject {
+			sw := canvas.NewRectangle(color.White)
+			sw.SetMinSize(fyne.NewSize(14, 14))
+			name := widget.NewLabel("region name")
+			name.Truncation = fyne.TextTruncateEllipsis
+			info := widget.NewLabel("000 000 sites")
+			info.Importance = widget.LowImportance
+			return container.NewBorder(nil, nil, container.NewCenter(sw), info, name)
+		},
+		func(i widget.ListItemID, o fyne.CanvasObject) {
+			v := p.u.S.Variant()
+			if i >= len(v.Regions) {
+				return
+			}
+			c := o.(*fyne.Container)
+			c.Objects[0].(*widget.Label).SetText(v.Regions[i].Name)
+			c.Objects[1].(*fyne.Container).Objects[0].(*canvas.Rectangle).FillColor = RegionColor(i)
+			c.Objects[1].(*fyne.Container).Objects[0].Refresh()
+			c.Objects[2].(*widget.Label).SetText(shortCount(p.u.S.RegionSites(i).Count()) + " sites")
+		})
+	p.list.OnSelected = func(i widget.ListItemID) {
+		if !p.updating {
+			p.u.S.Select(i)
+		}
+	}
+	p.empty = mutedLabel("No regions yet. Pick a painting tool on the left (Site S, Dimer D, Window W, Rectangle R, …) and draw on the lattice: the first stroke makes a region. Or press Add.")
+
+	p.name = widget.NewEntry()
+	p.name.OnChanged = func(s string) {
+		if !p.updating && p.shown >= 0 {
+			showErr(p.msg, p.u.S.RenameRegion(p.shown, s))
+		}
+	}
+	var roles []string
+	for _, rn := range roleNames {
+		roles = append(roles, rn.name)
+	}
+	p.role = widget.NewSelect(roles, func(s string) {
+		for _, rn := range roleNames {
+			if rn.name == s && !p.updating && p.shown >= 0 {
+				p.u.S.SetRegionRole(p.shown, rn.role)
+			}
+		}
+	})
+	var modes []string
+	for _, mn := range modeNames {
+		modes = append(modes, mn.name)
+	}
+	p.mode = widget.NewSelect(modes, func(s string) {
+		for _, mn := range modeNames {
+			if mn.name == s && !p.updating && p.shown >= 0 {
+				p.u.S.SetRegionMode(p.shown, mn.mode)
+			}
+		}
+	})
+	p.species = widget.NewSelect([]string{"none", "P (phosphine)", "As (arsine)"}, func(s string) {
+		if p.updating || p.shown < 0 {
+			return
+		}
+		sp := ""
+		switch {
+		case strings.HasPrefix(s, "P "):
+			sp = "P"
+		case strings.HasPrefix(s, "As"):
+			sp = "As"
+		}
+		p.u.S.SetRegionSpecies(p.shown, sp)
+	})
+	p.tol = widget.NewEntry()
+	p.tol.SetPlaceHolder("mode default")
+	p.tol.OnChanged = func(s string) {
+		if p.updating || p.shown < 0 {
+			return
+		}
+		if strings.TrimSpace(s) == "" {
+			showErr(p.msg, p.u.S.SetRegionTolerance(p.shown, 0))
+			return
+		}
+		v, err := parseNumber("tolerance", s)
+		if err == nil {
+			err = p.u.S.SetRegionTolerance(p.shown, v)
+		}
+		showErr(p.msg, err)
+	}
+	p.info = mutedLabel("")
+	p.msg = errorLabel()
+	form := widget.NewForm(
+		widget.NewFormItem("Name", p.name),
+		widget.NewFormItem("Role", p.role),
+		widget.NewFormItem("Write mode", p.mode),
+		widget.NewFormItem("Dopant", p.species),
+		widget.NewFormItem("Tolerance ± nm", p.tol),
+	)
+	p.form = container.NewVBox(widget.NewSeparator(), heading("Selected region"), form, p.msg, p.info,
+		container.NewGridWithColumns(2,
+			widget.NewButtonWithIcon("Zoom to", theme.ZoomFitIcon(), u.zoomToSelection),
+			widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() {
+				if p.shown >= 0 {
+					p.u.S.DeleteRegions(p.u.S.Selection()...)
+				}
+			})))
+	add := widget.NewButtonWithIcon("Add region", theme.ContentAddIcon(), func() {
+		u.S.AddRegion("region", design.RoleDevice)
+	})
+	top := container.NewVBox(container.NewBorder(nil, nil, heading("Regions of this variant"), add), p.empty)
+	p.content = container.NewBorder(top, p.form, nil, nil, p.list)
+	return p
+}
+
+func (p *regionsPanel) refresh() {
+	s := p.u.S
+	v := s.Variant()
+	p.updating = true
+	defer func() { p.updating = false }()
+	p.list.Refresh()
+	if len(v.Regions) == 0 {
+		p.empty.Show()
+	} else {
+		p.empty.Hide()
+	}
+	a := s.Active()
+	if a < 0 {
+		p.list.UnselectAll()
+		p.form.Hide()
+		p.shown = -1
+		return
+	}
+	p.list.Select(a)
+	p.form.Show()
+	r := v.Regions[a]
+	if p.shown != a || p.name.Text != r.Name {
+		// Rewriting the entry while the user types in it would move the
+		// cursor; only do it for another region or an undone rename.
+		p.name.SetText(r.Name)
+	}
+	p.role.SetSelected(roleOf(r.Role))
+	p.mode.SetSelected(modeOf(r.Mode))
+	switch r.Species {
+	case "P":
+		p.species.SetSelected("P (phosphine)")
+	case "As":
+		p.species.SetSelected("As (arsine)")
+	default:
+		p.species.SetSelected("none")
+	}
+	tol := ""
+	if r.ToleranceNM > 0 {
+		tol = trimZeros(fmt.Sprintf("%.3f", r.ToleranceNM))
+	}
+	if cur, err := strconv.ParseFloat(strings.TrimSpace(p.tol.Text), 64); p.shown != a || err != nil && tol != "" || err == nil && cur != r.ToleranceNM {
+		p.tol.SetText(tol)
+	}
+	p.shown = a
+	n := s.RegionSites(a).Count()
+	info := fmt.Sprintf("%s H sites in %d shapes", groupDigits(n), len(r.Shapes))
+	if r.Painted != nil && !r.Painted.IsEmpty() {
+		info += fmt.Sprintf(", %s painted by hand", groupDigits(r.Painted.Count()))
+	}
+	if r.Erased != nil && !r.Erased.IsEmpty() {
+		info += fmt.Sprintf(", %s erased", groupDigits(r.Erased.Count()))
+	}
+	if b := s.RegionBounds(a); !b.IsEmpty() {
+		info += fmt.Sprintf("; extent %s x %s", formatLength(b.Size().X), formatLength(b.Size().Y))
+	}
+	if len(s.Selection()) > 1 {
+		info += fmt.Sprintf(". %d regions selected.", len(s.Selection()))
+	}
+	p.info.SetText(info)
+}
+
+// --- Findings ---
+
+type findingsPanel struct {
+	u       *UI
+	content fyne.CanvasObject
+	summary *widget.Label
+	list    *widget.List
+}
+
+func newFindingsPanel(u *UI) *findingsPanel {
+	p := &findingsPanel{u: u}
+	p.summary = wrapLabel("")
+	p.list = widget.NewList(
+		func() int { f, _ := p.u.S.Findings(); return len(f) },
+		func() fyne.CanvasObject {
+			sw := canvas.NewRectangle(colError)
+			sw.SetMinSize(fyne.NewSize(10, 10))
+			l := widget.NewLabel("rule: message")
+			l.Wrapping = fyne.TextWrapWord
+			return container.NewBorder(nil, nil, container.NewCenter(sw), nil, l)
+		},
+		func(i widget.ListItemID, o fyne.CanvasObject) {
+			f, _ := p.u.S.Findings()
+			if i >= len(f) {
+				return
+			}
+			c := o.(*fyne.Container)
+			sw := c.Objects[1].(*fyne.Container).Objects[0].(*canvas.Rectangle)
+			if f[i].Error {
+				sw.FillColor = colError
+			} else {
+				sw.FillColor = colWarning
+			}
+			sw.Refresh()
+			text := f[i].Rule + ": " + f[i].Message
+			if len(f[i].Regions) > 0 {
+				text += " (" + strings.Join(f[i].Regions, ", ") + ")"
+			}
+			c.Objects[0].(*widget.Label).SetText(text)
+			p.list.SetItemHeight(i, c.Objects[0].MinSize().Height)
+		})
+	p.list.OnSelected = func(i widget.ListItemID) {
+		u.S.ChooseFinding(i)
+		u.View.ZoomTo(u.S.FindingBounds(i))
+	}
+	recheck := widget.NewButtonWithIcon("Check now", theme.ViewRefreshIcon(), u.CheckNow)
+	top := container.NewVBox(container.NewBorder(nil, nil, heading("Design-rule checks"), recheck), p.summary)
+	p.content = container.NewBorder(top, mutedLabel("Choose a finding to zoom to it. Checks run again a moment after each edit."), nil, nil, p.list)
+	return p
+}
+
+func (p *findingsPanel) refresh() {
+	f, stale := p.u.S.Findings()
+	p.list.UnselectAll()
+	p.list.Refresh()
+	errs, warns := 0, 0
+	for _, x := range f {
+		if x.Error {
+			errs++
+		} else {
+			warns++
+		}
+	}
+	var text string
+	switch {
+	case p.u.S.findState == nil:
+		text = "Not checked yet."
+	case len(f) == 0:
+		text = "No findings: variant " + p.u.S.Variant().Name + " passes every design rule."
+	default:
+		text = fmt.Sprintf("%d errors and %d warnings in variant %s.", errs, warns, p.u.S.Variant().Name)
+	}
+	if stale && p.u.S.findState != nil {
+		text += " (The design changed since; checking again…)"
+	}
+	p.summary.SetText(text)
+	p.u.tabFindings.Text = "Checks"
+	if errs > 0 {
+		p.u.tabFindings.Text = fmt.Sprintf("Checks (%d)", errs)
+	}
+	p.u.tabs.Refresh()
+}
+
+// --- Variants ---
+
+type variantsPanel struct {
+	u       *UI
+	content fyne.CanvasObject
+	list    *widget.List
+}
+
+func newVariantsPanel(u *UI) *variantsPanel {
+	p := &variantsPanel{u: u}
+	p.list = widget.NewList(
+		func() int { return len(p.u.S.Design().Variants) },
+		func() fyne.CanvasObject {
+			name := widget.NewLabel("variant")
+			info := widget.NewLabel("00 regions")
+			info.Importance = widget.LowImportance
+			return container.NewBorder(nil, nil, nil, info, name)
+		},
+		func(i widget.ListItemID, o fyne.CanvasObject) {
+			vs := p.u.S.Design().Variants
+			if i >= len(vs) {
+				return
+			}
+			c := o.(*fyne.Container)
+			name := c.Objects[0].(*widget.Label)
+			name.SetText(vs[i].Name)
+			name.TextStyle.Bold = i == p.u.S.VariantIndex()
+			name.Refresh()
+			c.Objects[1].(*widget.Label).SetText(fmt.Sprintf("%d regions", len(vs[i].Regions)))
+		})
+	p.list.OnSelected = func(i widget.ListItemID) { u.S.SetVariant(i) }
+	rename := widget.NewButtonWithIcon("Rename", theme.DocumentCreateIcon(), func() { u.renameVariant(u.S.VariantIndex()) })
+	dup := widget.NewButtonWithIcon("Duplicate", theme.ContentCopyIcon(), func() { u.S.DuplicateVariant(u.S.VariantIndex()) })
+	del := widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() { u.deleteVariant(u.S.VariantIndex()) })
+	cmp := widget.NewButtonWithIcon("Compare all variants…", theme.ListIcon(), u.compareVariants)
+	cmp.Importance = widget.HighImportance
+	help := mutedLabel("A variant is one layout alternative: duplicate one, change a gap or a window, then compare their write time and yield.")
+	p.content = container.NewBorder(
+		container.NewVBox(heading("Layout variants"), help),
+		container.NewVBox(container.NewGridWithColumns(3, dup, rename, del), cmp),
+		nil, nil, p.list)
+	return p
+}
+
+func (p *variantsPanel) refresh() {
+	p.list.Refresh()
+	p.list.Select(p.u.S.VariantIndex())
+}
+
+func (u *UI) renameVariant(i int) {
+	e := widget.NewEntry()
+	e.SetText(u.S.Design().Variants[i].Name)
+	e.Validator = func(s string) error {
+		s = strings.TrimSpace(s)
+		for j, v := range u.S.Design().Variants {
+			if s == "" || (j != i && v.Name == s) {
+				return fmt.Errorf("%q: %w", s, ErrName)
+			}
+		}
+		return nil
+	}
+	dialog.ShowForm("Rename variant", "Rename", "Cancel", []*widget.FormItem{widget.NewFormItem("Name", e)}, func(ok bool) {
+		if ok {
+			if err := u.S.RenameVariant(i, e.Text); err != nil {
+				dialog.ShowError(err, u.Win)
+			}
+		}
+	}, u.Win)
+}
+
+func (u *UI) deleteVariant(i int) {
+	if len(u.S.Design().Variants) == 1 {
+		dialog.ShowInformation("Delete variant", "A design keeps at least one variant.", u.Win)
+		return
+	}
+	name := u.S.Design().Variants[i].Name
+	dialog.ShowConfirm("Delete variant", fmt.Sprintf("Delete variant %q and its %d regions? (Undo brings it back.)", name, len(u.S.Design().Variants[i].Regions)), func(ok bool) {
+		if ok {
+			u.S.DeleteVariant(i)
+		}
+	}, u.Win)
+}
+
+// --- Marks: fiducials and terraces ---
+
+type marksPanel struct {
+	u        *UI
+	content  fyne.CanvasObject
+	fids     *widget.List
+	fidSel   int
+	fidName  *widget.Entry
+	fidX     *widget.Entry
+	fidY     *widget.Entry
+	fidMsg   *widget.Label
+	fidForm  *fyne.Container
+	terrs    *widget.List
+	terrSel  int
+	terrName *widget.Entry
+	terrRows *widget.RadioGroup
+	terrX    *widget.Entry
+	terrY    *widget.Entry
+	terrMsg  *widget.Label
+	terrForm *fyne.Container
+	fidEmpty *widget.Label
+}
+
+func newMarksPanel(u *UI) *marksPanel {
+	p := &marksPanel{u: u, fidSel: -1, terrSel: -1}
+	p.fids = widget.NewList(
+		func() int { return len(p.u.S.Design().Fiducials) },
+		func() fyne.CanvasObject { return widget.NewLabel("F1 at (0000.00, 0000.00) nm") },
+		func(i widget.ListItemID, o fyne.CanvasObject) {
+			fs := p.u.S.Design().Fiducials
+			if i < len(fs) {
+				o.(*widget.Label).SetText(fmt.Sprintf("%s at (%.2f, %.2f) nm", fs[i].Name, fs[i].AtNM[0], fs[i].AtNM[1]))
+			}
+		})
+	p.fids.OnSelected = func(i widget.ListItemID) { p.fidSel = i; p.showFiducial() }
+	p.fidName, p.fidX, p.fidY = widget.NewEntry(), widget.NewEntry(), widget.NewEntry()
+	p.fidMsg = errorLabel()
+	p.fidForm = container.NewVBox(
+		widget.NewForm(widget.NewFormItem("Name", p.fidName), widget.NewFormItem("x (nm)", p.fidX), widget.NewFormItem("y (nm)", p.fidY)),
+		p.fidMsg,
+		container.NewGridWithColumns(2,
+			widget.NewButtonWithIcon("Apply", theme.ConfirmIcon(), p.applyFiducial),
+			widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() {
+				if p.fidSel >= 0 {
+					p.u.S.DeleteFiducial(p.fidSel)
+					p.fidSel = -1
+				}
+			})))
+	p.fidEmpty = mutedLabel("No fiducials. Place them with the Fiducial tool (F): segments re-register on the nearest one.")
+
+	p.terrs = widget.NewList(
+		func() int { return len(p.u.S.Design().Terraces) },
+		func() fyne.CanvasObject { return widget.NewLabel("T0: rows along x, outline of 00 points") },
+		func(i widget.ListItemID, o fyne.CanvasObject) {
+			ts := p.u.S.Design().Terraces
+			if i < len(ts) {
+				t := ts[i]
+				where := "the rest of the field"
+				if len(t.Boundary) >= 3 {
+					where = fmt.Sprintf("outline of %d points", len(t.Boundary))
+				}
+				rows := t.Rows
+				if surf := p.u.S.Surface(); i < len(surf.Terraces) {
+					rows = surf.Terraces[i].Rows.String()
+				}
+				step := ""
+				if t.StepFrom != "" {
+					step = ", a step from " + t.StepFrom
+				}
+				o.(*widget.Label).SetText(fmt.Sprintf("%s: rows along %s, %s%s", t.Name, rows, where, step))
+			}
+		})
+	p.terrs.OnSelected = func(i widget.ListItemID) { p.terrSel = i; p.showTerrace() }
+	p.terrName, p.terrX, p.terrY = widget.NewEntry(), widget.NewEntry(), widget.NewEntry()
+	p.terrRows = widget.NewRadioGroup([]string{"x", "y"}, nil)
+	p.terrRows.Horizontal = true
+	p.terrMsg = errorLabel()
+	p.terrForm = container.NewVBox(
+		widget.NewForm(widget.NewFormItem("Name", p.terrName), widget.NewFormItem("Rows along", p.terrRows),
+			widget.NewFormItem("Offset x (nm)", p.terrX), widget.NewFormItem("Offset y (nm)", p.terrY)),
+		p.terrMsg,
+		container.NewGridWithColumns(2,
+			widget.NewButtonWithIcon("Apply", theme.ConfirmIcon(), p.applyTerrace),
+			widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() {
+				if p.terrSel >= 0 {
+					if err := p.u.S.DeleteTerrace(p.terrSel); err != nil {
+						showErr(p.terrMsg, err)
+						return
+					}
+					p.terrSel = -1
+				}
+			})))
+	fidBox := container.NewBorder(container.NewVBox(heading("Fiducial marks"), p.fidEmpty), p.fidForm, nil, nil, p.fids)
+	terrBox := container.NewBorder(container.NewVBox(heading("Terraces"), mutedLabel("Across a single-height step the dimer rows turn by 90°. Outline a terrace with the Terrace tool (T).")), p.terrForm, nil, nil, p.terrs)
+	split := container.NewVSplit(fidBox, terrBox)
+	split.Offset = 0.45
+	p.content = split
+	return p
+}
+
+func (p *marksPanel) refresh() {
+	p.fids.Refresh()
+	p.terrs.Refresh()
+	if len(p.u.S.Design().Fiducials) == 0 {
+		p.fidEmpty.Show()
+	} else {
+		p.fidEmpty.Hide()
+	}
+	if p.fidSel >= len(p.u.S.Design().Fiducials) {
+		p.fidSel = -1
+		p.fids.UnselectAll()
+	}
+	if p.terrSel >= len(p.u.S.Design().Terraces) {
+		p.terrSel = -1
+		p.terrs.UnselectAll()
+	}
+	p.showFiducial()
+	p.showTerrace()
+}
+
+func (p *marksPanel) showFiducial() {
+	fs := p.u.S.Design().Fiducials
+	if p.fidSel < 0 || p.fidSel >= len(fs) {
+		p.fidForm.Hide()
+		return
+	}
+	f := fs[p.fidSel]
+	p.fidName.SetText(f.Name)
+	p.fidX.SetText(trimZeros(fmt.Sprintf("%.3f", f.AtNM[0])))
+	p.fidY.SetText(trimZeros(fmt.Sprintf("%.3f", f.AtNM[1])))
+	p.fidMsg.Hide()
+	p.fidForm.Show()
+}
+
+// applyFiducial changes the fiducial only if every field is valid.
+func (p *marksPanel) applyFiducial() {
+	x, err := parseNumber("x", p.fidX.Text)
+	if err != nil {
+		showErr(p.fidMsg, err)
+		return
+	}
+	y, err := parseNumber("y", p.fidY.Text)
+	if err != nil {
+		showErr(p.fidMsg, err)
+		return
+	}
+	showErr(p.fidMsg, p.u.S.SetFiducial(p.fidSel, p.fidName.Text, r2.Point{X: x, Y: y}))
+}
+
+func (p *marksPanel) showTerrace() {
+	ts := p.u.S.Design().Terraces
+	if p.terrSel < 0 || p.terrSel >= len(ts) {
+		p.terrForm.Hide()
+		return
+	}
+	t := ts[p.terrSel]
+	p.terrName.SetText(t.Name)
+	p.terrRows.SetSelected(p.u.S.Surface().Terraces[p.terrSel].Rows.String())
+	p.terrX.SetText(trimZeros(fmt.Sprintf("%.4f", t.OffsetNM[0])))
+	p.terrY.SetText(trimZeros(fmt.Sprintf("%.4f", t.OffsetNM[1])))
+	p.terrMsg.Hide()
+	p.terrForm.Show()
+}
+
+func (p *marksPanel) applyTerrace() {
+	x, err := parseNumber("offset x", p.terrX.Text)
+	if err != nil {
+		showErr(p.terrMsg, err)
+		return
+	}
+	y, err := parseNumber("offset y", p.terrY.Text)
+	if err != nil {
+		showErr(p.terrMsg, err)
+		return
+	}
+	showErr(p.terrMsg, p.u.S.SetTerrace(p.terrSel, p.terrName.Text, p.terrRows.Selected, r2.Point{X: x, Y: y}))
+}

@@ -1,0 +1,203 @@
+package gui
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+	"strings"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/canvas"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/theme"
+	"fyne.io/fyne/v2/widget"
+
+	"dimerpath/planner"
+)
+
+// Colours of the time breakdown, shared by the plan panel and the
+// comparison view.
+var (
+	colAPWrite = rgb(0xff, 0x9f, 0x1c)
+	colFEWrite = rgb(0x2e, 0xc4, 0xf0)
+	colDwell   = rgb(0xe8, 0x43, 0x93)
+	colTravel  = rgb(0x9a, 0xa4, 0xb4)
+	colSwitch  = rgb(0x9b, 0x6c, 0xff)
+	colRegist  = rgb(0xff, 0xd2, 0x3f)
+	colVerify  = rgb(0x1d, 0xd3, 0xb0)
+	colYield   = rgb(0x51, 0xcf, 0x66)
+)
+
+// formatDuration prints seconds as the user reads a write time.
+func formatDuration(s float64) string {
+	switch {
+	case math.IsNaN(s) || math.IsInf(s, 0):
+		return "—"
+	case s == 0:
+		return "0 s"
+	case s < 0.1:
+		return fmt.Sprintf("%.0f ms", s*1000)
+	case s < 60:
+		return fmt.Sprintf("%.1f s", s)
+	case s < 3600:
+		m := math.Floor(s / 60)
+		return fmt.Sprintf("%.0f min %02.0f s", m, math.Floor(s-60*m))
+	default:
+		h := math.Floor(s / 3600)
+		return fmt.Sprintf("%.0f h %02.0f min", h, math.Floor((s-3600*h)/60))
+	}
+}
+
+// formatProbability prints a probability as a percentage with three
+// significant digits, or in scientific notation when tiny.
+func formatProbability(p float64) string {
+	switch {
+	case math.IsNaN(p):
+		return "—"
+	case p == 0:
+		return "0 %"
+	case p < 1e-4:
+		return fmt.Sprintf("%.2g", p)
+	default:
+		return trimZeros(fmt.Sprintf("%.3g", 100*p)) + " %"
+	}
+}
+
+// breakdownBars returns the bars of a time breakdown.
+func breakdownBars(b planner.Breakdown, total float64) []Bar {
+	kinds := []struct {
+		label string
+		s     float64
+		c     color.Color
+	}{
+		{"AP writing", b.APWriteS, colAPWrite},
+		{"FE writing", b.FEWriteS, colFEWrite},
+		{"dwell", b.DwellS, colDwell},
+		{"travel", b.TravelS, colTravel},
+		{"mode switches", b.ModeSwitchS, colSwitch},
+		{"registrations", b.RegistrationS, colRegist},
+		{"verification", b.VerificationS, colVerify},
+	}
+	var bars []Bar
+	for _, k := range kinds {
+		pct := 0.0
+		if total > 0 {
+			pct = 100 * k.s / total
+		}
+		bars = append(bars, Bar{Label: k.label, Value: k.s, Text: fmt.Sprintf("%s  %.0f %%", formatDuration(k.s), pct), Color: k.c})
+	}
+	return bars
+}
+
+type planPanel struct {
+	u       *UI
+	content fyne.CanvasObject
+	body    *fyne.Container
+}
+
+func newPlanPanel(u *UI) *planPanel {
+	p := &planPanel{u: u}
+	p.body = container.NewVBox()
+	replan := widget.NewButtonWithIcon("Plan", theme.MediaPlayIcon(), u.StartPlan)
+	top := container.NewBorder(nil, nil, heading("Write plan"), replan)
+	p.content = container.NewBorder(top, nil, nil, nil, container.NewVScroll(p.body))
+	return p
+}
+
+func bigText(s string) fyne.CanvasObject {
+	t := canvas.NewText(s, theme.Color(theme.ColorNameForeground))
+	t.TextSize = theme.TextSize() * 1.8
+	t.TextStyle.Bold = true
+	return t
+}
+
+func (p *planPanel) refresh() {
+	s := p.u.S
+	pl, stale := s.Plan()
+	var objs []fyne.CanvasObject
+	if pl == nil {
+		objs = append(objs, mutedLabel(fmt.Sprintf("Variant %s has not been planned yet. Plan (Ctrl+Enter) chooses the write modes, orders the strokes, splits the write into drift-safe segments and estimates the time and the dopant yield, in the background.", s.Variant().Name)))
+		p.body.Objects = objs
+		p.body.Refresh()
+		return
+	}
+	if stale {
+		w := widget.NewLabel("The design or profile changed since this plan was made: plan again for current figures.")
+		w.Wrapping = fyne.TextWrapWord
+		w.Importance = widget.WarningImportance
+		objs = append(objs, w)
+	}
+	objs = append(objs,
+		widget.NewLabel("Expected write time, variant "+pl.Variant),
+		bigText(formatDuration(pl.TotalS)),
+		wrapLabel(fmt.Sprintf("Spread: P10 %s · P50 %s · P90 %s", formatDuration(pl.P10S), formatDuration(pl.P50S), formatDuration(pl.P90S))),
+		widget.NewSeparator(),
+		heading("Time by kind"),
+		NewBarChart(breakdownBars(pl.Breakdown, pl.TotalS)),
+		widget.NewSeparator(),
+		heading("Dopant yield"),
+	)
+	y := pl.Yield
+	if y.Windows == 0 {
+		objs = append(objs, mutedLabel("No dopant windows in this variant."))
+	} else {
+		dev := "—"
+		if y.DevicesPerPerfect > 0 {
+			dev = fmt.Sprintf("%.1f", y.DevicesPerPerfect)
+		} else if y.All == 0 {
+			dev = "no number of devices suffices"
+		}
+		objs = append(objs, wrapLabel(fmt.Sprintf("%d windows. Every window takes exactly one donor: %s.\nGood windows expected: %.1f of %d.\nDevices to write for one perfect device: %s.",
+			y.Windows, formatProbability(y.All), y.MeanGood, y.Windows, dev)))
+		if len(y.Distribution) > 1 {
+			objs = append(objs, NewBarChart(yieldBars(y)))
+		}
+	}
+	objs = append(objs, widget.NewSeparator(), heading("Segments and strokes"))
+	objs = append(objs, wrapLabel(fmt.Sprintf("%d drift-safe segments, %d strokes, %d tip actions. Profile: %s.", len(pl.Segments), len(pl.Strokes), len(pl.Actions), pl.Profile)))
+	cov := "Coverage check passed: every painted site is written and nothing outside the regions is cleared beyond the edge allowance."
+	if !pl.Coverage.OK {
+		cov = fmt.Sprintf("Coverage check FAILED: %d painted sites not written, %d sites cleared outside the regions. %s", pl.Coverage.Uncovered, pl.Coverage.Overcleared, strings.Join(pl.Coverage.Issues, "; "))
+	}
+	cl := wrapLabel(cov)
+	if !pl.Coverage.OK {
+		cl.Importance = widget.DangerImportance
+	}
+	objs = append(objs, cl)
+	if len(pl.Modes) > 0 {
+		objs = append(objs, widget.NewSeparator(), heading("Write modes"))
+		for _, m := range pl.Modes {
+			objs = append(objs, wrapLabel(fmt.Sprintf("%s — %s: %s", m.Region, strings.ToUpper(m.Mode), m.Reason)))
+		}
+	}
+	if len(pl.Warnings) > 0 {
+		objs = append(objs, widget.NewSeparator(), heading("Warnings"))
+		for _, w := range pl.Warnings {
+			l := wrapLabel(w)
+			l.Importance = widget.WarningImportance
+			objs = append(objs, l)
+		}
+	}
+	objs = append(objs, widget.NewSeparator(), mutedLabel(planner.Caution))
+	p.body.Objects = objs
+	p.body.Refresh()
+}
+
+// yieldBars shows the distribution of the number of good windows around
+// its mean (at most 9 bars).
+func yieldBars(y planner.Yield) []Bar {
+	d := y.Distribution
+	mode := 0
+	for k := range d {
+		if d[k] > d[mode] {
+			mode = k
+		}
+	}
+	lo := max(mode-4, 0)
+	hi := min(lo+9, len(d))
+	var bars []Bar
+	for k := lo; k < hi; k++ {
+		bars = append(bars, Bar{Label: fmt.Sprintf("%d good", k), Value: d[k], Text: formatProbability(d[k]), Color: colYield})
+	}
+	return bars
+}

@@ -1,0 +1,89 @@
+package gui
+
+import (
+	"github.com/golang/geo/r2"
+
+	"dimerpath/planner"
+)
+
+// SceneOptions choose what the lattice view overlays.
+type SceneOptions struct {
+	Route    bool // the plan's route, when the current variant has one
+	Findings bool // design-rule findings
+}
+
+// Scene returns what the lattice view draws for the current variant.
+func (s *Session) Scene(o SceneOptions) *Scene {
+	sc := &Scene{Surface: s.surf}
+	sel := map[int]bool{}
+	for _, i := range s.sel {
+		sel[i] = true
+	}
+	for i := range s.Variant().Regions {
+		sc.Layers = append(sc.Layers, Layer{
+			Sites:    s.RegionSites(i),
+			Color:    RegionColor(i),
+			Bounds:   s.RegionBounds(i),
+			Selected: sel[i],
+		})
+		if sel[i] {
+			if b := s.RegionBounds(i); !b.IsEmpty() {
+				sc.Selected = append(sc.Selected, b)
+			}
+		}
+	}
+	for _, f := range s.d.Fiducials {
+		sc.Fiducials = append(sc.Fiducials, r2.Point{X: f.AtNM[0], Y: f.AtNM[1]})
+	}
+	if o.Route {
+		if p, _ := s.Plan(); p != nil {
+			sc.Route = RouteOf(p)
+			sc.DimLayers = true
+		}
+	}
+	if o.Findings {
+		for i, f := range s.findings {
+			b := f.Bounds
+			if b.IsEmpty() {
+				b = r2.RectFromPoints(f.At)
+			}
+			sc.Marks = append(sc.Marks, Mark{Bounds: b, Error: f.Error, Selected: i == s.chosen})
+		}
+	}
+	sc.Preview = s.Preview()
+	return sc
+}
+
+// RouteOf reduces a plan to the route overlay: strokes coloured by
+// segment and as wide as their mode's line, idle moves, and the
+// fiducials segments register on.
+func RouteOf(p *planner.Plan) *RouteOverlay {
+	width := map[planner.WriteMode]float64{}
+	for _, c := range p.Conditions {
+		width[c.Mode] = c.LineWidthNM
+	}
+	rt := &RouteOverlay{}
+	for _, st := range p.Strokes {
+		if len(st.Path) == 0 {
+			continue
+		}
+		b := r2.EmptyRect()
+		for _, q := range st.Path {
+			b = b.AddPoint(q)
+		}
+		rt.Strokes = append(rt.Strokes, RouteStroke{Path: st.Path, WidthNM: width[st.Mode], Segment: st.Segment, Bounds: b})
+	}
+	for _, a := range p.Actions {
+		if a.Kind == planner.ActMove && a.From != a.To {
+			rt.Moves = append(rt.Moves, [2]r2.Point{a.From, a.To})
+		}
+	}
+	seen := map[r2.Point]bool{}
+	for _, sg := range p.Segments {
+		if !seen[sg.FiducialAt] {
+			seen[sg.FiducialAt] = true
+			rt.Registrations = append(rt.Registrations, sg.FiducialAt)
+		}
+	}
+	return rt
+}

@@ -1,0 +1,140 @@
+package gui
+
+import (
+	"context"
+	"io"
+	"strings"
+	"time"
+
+	"github.com/golang/geo/r2"
+
+	"dimerpath/assets"
+	"dimerpath/export"
+	"dimerpath/internal/atomicfile"
+	"dimerpath/lattice"
+	"dimerpath/lattice/design"
+	"dimerpath/planner"
+)
+
+// This file is the one place where the GUI calls the pure packages for
+// anything beyond reading their types: surfaces, rasterised regions,
+// design-rule findings, plans, profiles and files. The GUI computes none
+// of these itself.
+
+// surfaceOf returns the lattice surface of d's field and terraces.
+func surfaceOf(d *design.Design) (*lattice.Surface, error) { return d.Surface() }
+
+// regionSites returns the H sites of region r: its shapes and painted
+// sites, minus its erased sites.
+func regionSites(surf *lattice.Surface, d *design.Design, r *design.Region) (*lattice.SiteSet, error) {
+	return r.Sites(surf, d.Templates())
+}
+
+// shapeSites rasterises one shape onto the lattice.
+func shapeSites(surf *lattice.Surface, d *design.Design, s *design.Shape) (*lattice.SiteSet, error) {
+	r := design.Region{Name: "new shape", Shapes: []design.Shape{*s}}
+	return r.Sites(surf, d.Templates())
+}
+
+// templateOf returns the window template named name: the design's own
+// or a built-in one.
+func templateOf(d *design.Design, name string) (lattice.WindowTemplate, bool) {
+	t, ok := d.Templates()[name]
+	return t, ok
+}
+
+// Finding is a design-rule finding as the GUI lists and draws it.
+type Finding struct {
+	Rule    string
+	Error   bool // an error rather than a warning
+	Message string
+	Regions []string
+	// At is the position the finding names, in field nm; Bounds the area
+	// to zoom to (empty for a point finding).
+	At     r2.Point
+	Bounds r2.Rect
+}
+
+// checkDesign runs the design-rule checks on one variant of d. The
+// error is for a variant that cannot be laid out at all.
+func checkDesign(ctx context.Context, d *design.Design, variant string) ([]Finding, error) {
+	fs, err := design.Check(d, variant)
+	if err != nil {
+		return nil, err
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	out := make([]Finding, len(fs))
+	for i, f := range fs {
+		out[i] = Finding{Rule: f.Rule, Error: f.Severity == design.SeverityError, Message: f.Message, Regions: f.Regions, At: f.AtNM, Bounds: r2.EmptyRect()}
+	}
+	return out, nil
+}
+
+// buildPlan plans one variant of d.
+func buildPlan(ctx context.Context, d *design.Design, variant string, prof planner.Profile, opt planner.Options) (*planner.Plan, error) {
+	return planner.Build(ctx, d, variant, prof, opt)
+}
+
+// defaultProfile returns the instrument profile planning starts from.
+func defaultProfile() planner.Profile { return planner.DefaultProfile() }
+
+// loadDesign reads and validates a design file.
+func loadDesign(path string) (*design.Design, error) { return design.Load(path) }
+
+// saveDesign validates d and writes it atomically to path.
+func saveDesign(path string, d *design.Design) error { return design.Save(path, d) }
+
+// demoDesign returns the built-in demo design.
+func demoDesign() (*design.Design, error) {
+	return design.Parse(assets.DemoName, assets.DemoDesign)
+}
+
+// ExportSettings are the choices an export needs besides the plan.
+type ExportSettings struct {
+	Paper     export.Paper
+	Generator string // program name and version printed on reports
+	Date      time.Time
+}
+
+// exportPlan writes plan p of d in the format path's extension names
+// (pdf, svg, json or csv), through a temporary file renamed into place.
+// The figures draw the lattice and regions of the plan's variant.
+func exportPlan(ctx context.Context, path string, d *design.Design, p *planner.Plan, es ExportSettings, progress func(string, float64)) error {
+	opt := export.Options{Paper: es.Paper, Date: es.Date, Generator: es.Generator, Progress: progress}
+	if l, err := d.Lay(p.Variant); err == nil {
+		opt.Pattern = export.PatternOf(l)
+	}
+	return export.WriteFile(ctx, path, p, opt)
+}
+
+// exportComparison writes the comparison report of every variant's
+// result to path (.pdf or .svg).
+func exportComparison(ctx context.Context, path string, res []export.VariantResult, es ExportSettings) error {
+	opt := export.Options{Paper: es.Paper, Date: es.Date, Generator: es.Generator}
+	return atomicfile.Write(path, 0o644, func(w io.Writer) error {
+		if strings.HasSuffix(strings.ToLower(path), ".svg") {
+			return export.WriteComparisonSVG(w, res, opt)
+		}
+		return export.WriteComparisonPDF(ctx, w, res, opt)
+	})
+}
+
+// validateProfile reports every field of p that is not physical, then
+// the first tip condition beyond the profile's own instrument limits.
+func validateProfile(p planner.Profile) error {
+	if err := p.Validate(); err != nil {
+		return err
+	}
+	return p.CheckLimits(nil)
+}
+
+// loadProfile reads and validates an instrument-profile file.
+func loadProfile(path string) (planner.Profile, error) { return planner.LoadProfile(path) }
+
+// saveProfile writes a valid profile atomically to path.
+func saveProfile(path string, p planner.Profile) error { return planner.SaveProfile(path, p) }
+
+// presetProfile returns the built-in profile of that name.
+func presetProfile(name string) (planner.Profile, error) { return planner.Preset(name) }

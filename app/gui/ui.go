@@ -1,0 +1,736 @@
+package gui
+
+import (
+	"context"
+	"fmt"
+	"image/color"
+	"time"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/canvas"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/driver/desktop"
+	"fyne.io/fyne/v2/layout"
+	"fyne.io/fyne/v2/theme"
+	"fyne.io/fyne/v2/widget"
+	"github.com/golang/geo/r2"
+
+	"dimerpath/planner"
+)
+
+// Options configure a UI.
+type Options struct {
+	// ConfigDir holds the recovery file; "" uses the user's config
+	// directory (os.UserConfigDir()/dimerpath).
+	ConfigDir string
+	// Seed is the planning seed; the same design, profile and seed give
+	// the same plan.
+	Seed int64
+	// Autosave is the interval of the recovery autosave; 0 takes one
+	// minute, a negative value turns it off.
+	Autosave time.Duration
+	// CheckDelay is how long after an edit the design rules are checked
+	// again; 0 takes 400 ms, a negative value checks only on request.
+	CheckDelay time.Duration
+	// Generator is the program name and version printed on exported
+	// reports, e.g. "dimerpath 0.1.0".
+	Generator string
+}
+
+// UI is the main window: the views of one Session and the actions that
+// call into it. Widgets hold no design state of their own.
+type UI struct {
+	App  fyne.App
+	Win  fyne.Window
+	S    *Session
+	View *LatticeView
+	opts Options
+
+	cursorLabel *widget.Label
+	hintLabel   *widget.Label
+	progress    *widget.ProgressBar
+	progressMsg *widget.Label
+	progressBox *fyne.Container
+
+	tabs        *container.AppTabs
+	tabRegions  *container.TabItem
+	tabFindings *container.TabItem
+	tabPlan     *container.TabItem
+	tabVariants *container.TabItem
+	tabMarks    *container.TabItem
+
+	toolButtons   map[Tool]*widget.Button
+	toolOptions   *fyne.Container
+	variantSelect *widget.Select
+	undoButton    *widget.Button
+	redoButton    *widget.Button
+	planButton    *widget.Button
+	routeCheck    *widget.Check
+	findingsCheck *widget.Check
+
+	regions  *regionsPanel
+	findings *findingsPanel
+	planView *planPanel
+	variants *variantsPanel
+	marks    *marksPanel
+	legend   *fyne.Container
+
+	menu       *fyne.MainMenu
+	undoItem   *fyne.MenuItem
+	redoItem   *fyne.MenuItem
+	recentMenu *fyne.MenuItem
+	exportMenu []*fyne.MenuItem
+
+	planCancel   context.CancelFunc
+	planStarted  time.Time
+	checkCancel  context.CancelFunc
+	checkTimer   *time.Timer
+	stopAutosave chan struct{}
+	lastAutosave *snapshot
+}
+
+// New builds the main window's content in w for session s and wires the
+// menus, shortcuts and close prompt. It does not show the window.
+func New(a fyne.App, w fyne.Window, s *Session, o Options) *UI {
+	if o.CheckDelay == 0 {
+		o.CheckDelay = 400 * time.Millisecond
+	}
+	u := &UI{App: a, Win: w, S: s, opts: o, toolButtons: map[Tool]*widget.Button{}}
+	u.View = NewLatticeView(s)
+	u.View.OnCursor = u.showCursor
+	u.View.OnRune = u.typedRune
+	u.View.OnKey = u.typedKey
+	u.build()
+	u.attach(s)
+	w.SetContent(u.content())
+	u.buildMenu()
+	u.addShortcuts()
+	w.Canvas().SetOnTypedRune(u.typedRune)
+	w.Canvas().SetOnTypedKey(u.typedKey)
+	w.SetCloseIntercept(u.quit)
+	u.refreshAll()
+	return u
+}
+
+// attach makes s the session the window shows.
+func (u *UI) attach(s *Session) {
+	if u.S != nil && u.S != s {
+		u.S.OnChange = nil
+	}
+	u.S = s
+	u.View.s = s
+	u.View.fitted = false
+	u.View.scene = nil
+	s.OnChange = u.changed
+}
+
+// SetSession replaces the design shown (after File > Open or New).
+func (u *UI) SetSession(s *Session) {
+	u.cancelPlan()
+	u.attach(s)
+	u.lastAutosave = nil
+	u.refreshAll()
+	u.View.Refresh()
+	u.scheduleCheck()
+}
+
+func (u *UI) refreshAll() {
+	u.changed(ChangeAll)
+}
+
+// changed updates the views that show what changed.
+func (u *UI) changed(c Change) {
+	if c&(ChangeSites|ChangeSelection|ChangePlan|ChangeFindings|ChangePreview|ChangeTerraces|ChangeFiducials|ChangeVariants|ChangeRegions) != 0 {
+		u.View.Invalidate()
+	}
+	if c&(ChangeRegions|ChangeSelection|ChangeVariants) != 0 {
+		u.regions.refresh()
+	}
+	if c&(ChangeFindings|ChangeVariants|ChangeHistory) != 0 {
+		u.findings.refresh()
+	}
+	if c&(ChangePlan|ChangeVariants|ChangeHistory) != 0 {
+		u.planView.refresh()
+	}
+	if c&(ChangeVariants|ChangeHistory) != 0 {
+		u.variants.refresh()
+		u.variantSelect.Options = u.S.VariantNames()
+		u.variantSelect.Selected = u.S.Variant().Name
+		u.variantSelect.Refresh()
+	}
+	if c&(ChangeFiducials|ChangeTerraces) != 0 {
+		u.marks.refresh()
+	}
+	if c&ChangeTool != 0 {
+		u.refreshTools()
+	}
+	if c&(ChangeRegions|ChangePlan|ChangeFindings|ChangeVariants|ChangeHistory|ChangeTerraces|ChangeFiducials) != 0 {
+		u.refreshLegend()
+	}
+	if c&(ChangeFile|ChangeHistory) != 0 {
+		u.Win.SetTitle(u.S.Title())
+		u.refreshHistory()
+	}
+	if c&ChangeHistory != 0 {
+		u.scheduleCheck()
+	}
+	if u.S.Err != nil {
+		u.hintLabel.SetText("Problem: " + u.S.Err.Error())
+		u.S.Err = nil
+	}
+}
+
+// --- Layout ---
+
+func (u *UI) build() {
+	u.cursorLabel = widget.NewLabel("")
+	u.cursorLabel.Truncation = fyne.TextTruncateEllipsis
+	u.hintLabel = widget.NewLabel("")
+	u.hintLabel.Truncation = fyne.TextTruncateEllipsis
+	u.progress = widget.NewProgressBar()
+	u.progressMsg = widget.NewLabel("")
+	cancel := widget.NewButtonWithIcon("Cancel", theme.CancelIcon(), u.cancelPlan)
+	u.progressBox = container.NewHBox(u.progressMsg, container.New(&fixedWidth{w: 180}, u.progress), cancel)
+	u.progressBox.Hide()
+
+	u.regions = newRegionsPanel(u)
+	u.findings = newFindingsPanel(u)
+	u.planView = newPlanPanel(u)
+	u.variants = newVariantsPanel(u)
+	u.marks = newMarksPanel(u)
+	u.tabRegions = container.NewTabItem("Regions", u.regions.content)
+	u.tabFindings = container.NewTabItem("Checks", u.findings.content)
+	u.tabPlan = container.NewTabItem("Plan", u.planView.content)
+	u.tabVariants = container.NewTabItem("Variants", u.variants.content)
+	u.tabMarks = container.NewTabItem("Marks", u.marks.content)
+	u.tabs = container.NewAppTabs(u.tabRegions, u.tabFindings, u.tabPlan, u.tabVariants, u.tabMarks)
+
+	u.variantSelect = widget.NewSelect(nil, func(name string) {
+		for i, n := range u.S.VariantNames() {
+			if n == name {
+				u.S.SetVariant(i)
+			}
+		}
+	})
+	u.legend = container.NewVBox()
+	u.View.SetLegend(u.legendBox())
+}
+
+// content lays the window out: toolbar on top, tools on the left, the
+// lattice in the middle, panels on the right, status at the bottom.
+func (u *UI) content() fyne.CanvasObject {
+	u.undoButton = widget.NewButtonWithIcon("", theme.ContentUndoIcon(), func() { u.S.Undo() })
+	u.redoButton = widget.NewButtonWithIcon("", theme.ContentRedoIcon(), func() { u.S.Redo() })
+	u.planButton = widget.NewButtonWithIcon("Plan", theme.MediaPlayIcon(), u.StartPlan)
+	u.planButton.Importance = widget.HighImportance
+	toolbar := container.NewHBox(
+		widget.NewButtonWithIcon("", theme.FolderOpenIcon(), u.openDialog),
+		widget.NewButtonWithIcon("", theme.DocumentSaveIcon(), func() { u.save(nil) }),
+		widget.NewSeparator(),
+		u.undoButton, u.redoButton,
+		widget.NewSeparator(),
+		widget.NewLabel("Variant"), container.New(&fixedWidth{w: 150}, u.variantSelect),
+		widget.NewButtonWithIcon("", theme.ContentCopyIcon(), func() { u.S.DuplicateVariant(u.S.VariantIndex()) }),
+		widget.NewSeparator(),
+		widget.NewButtonWithIcon("Check", theme.ConfirmIcon(), u.CheckNow),
+		u.planButton,
+		widget.NewButtonWithIcon("Export PDF", theme.DocumentPrintIcon(), func() { u.exportAs("pdf") }),
+		layout.NewSpacer(),
+		widget.NewButtonWithIcon("", theme.ZoomOutIcon(), func() { u.View.ZoomBy(1 / 1.5) }),
+		widget.NewButtonWithIcon("Fit", theme.ZoomFitIcon(), u.View.Fit),
+		widget.NewButtonWithIcon("", theme.ZoomInIcon(), func() { u.View.ZoomBy(1.5) }),
+	)
+	left := container.NewVScroll(u.toolPalette())
+	right := container.New(&fixedWidth{w: 350}, container.New(layout.NewCustomPaddedLayout(0, 0, 0, 6), u.tabs))
+	status := container.NewBorder(nil, nil, container.New(&fixedWidth{w: 520}, u.cursorLabel), u.progressBox, u.hintLabel)
+	viewFrame := container.NewStack(canvas.NewRectangle(colOutside), u.View)
+	return container.NewBorder(
+		container.NewVBox(toolbar, widget.NewSeparator()),
+		container.NewVBox(widget.NewSeparator(), status),
+		container.New(&fixedWidth{w: 178}, left), right, viewFrame)
+}
+
+// fixedWidth lays out its single child at a fixed minimum width.
+type fixedWidth struct{ w float32 }
+
+func (f *fixedWidth) Layout(objs []fyne.CanvasObject, size fyne.Size) {
+	for _, o := range objs {
+		o.Move(fyne.NewPos(0, 0))
+		o.Resize(size)
+	}
+}
+
+func (f *fixedWidth) MinSize(objs []fyne.CanvasObject) fyne.Size {
+	h := float32(0)
+	for _, o := range objs {
+		h = max(h, o.MinSize().Height)
+	}
+	return fyne.NewSize(f.w, h)
+}
+
+func heading(s string) *widget.Label {
+	return widget.NewLabelWithStyle(s, fyne.TextAlignLeading, fyne.TextStyle{Bold: true})
+}
+
+// toolPalette is the left column: the tools, the current tool's
+// options, and what the view overlays.
+func (u *UI) toolPalette() fyne.CanvasObject {
+	var buttons []fyne.CanvasObject
+	for _, ti := range Tools {
+		t := ti.Tool
+		b := widget.NewButton(fmt.Sprintf("%s  %c", ti.Name, ti.Key-'a'+'A'), func() { u.S.SetTool(t) })
+		b.Alignment = widget.ButtonAlignLeading
+		u.toolButtons[t] = b
+		buttons = append(buttons, b)
+	}
+	u.toolOptions = container.NewVBox()
+	u.routeCheck = widget.NewCheck("Route of the plan", func(on bool) {
+		u.View.Opts.Route = on
+		u.View.Invalidate()
+		u.refreshLegend()
+	})
+	u.routeCheck.SetChecked(true)
+	u.findingsCheck = widget.NewCheck("Design-rule findings", func(on bool) {
+		u.View.Opts.Findings = on
+		u.View.Invalidate()
+		u.refreshLegend()
+	})
+	u.findingsCheck.SetChecked(true)
+	return container.NewVBox(
+		heading("Tools"),
+		container.NewGridWithColumns(1, buttons...),
+		widget.NewSeparator(),
+		heading("Options"),
+		u.toolOptions,
+		widget.NewSeparator(),
+		heading("Show"),
+		u.routeCheck, u.findingsCheck,
+	)
+}
+
+// refreshTools marks the current tool and shows its options.
+func (u *UI) refreshTools() {
+	for t, b := range u.toolButtons {
+		imp := widget.LowImportance
+		if t == u.S.Tool {
+			imp = widget.HighImportance
+		}
+		if b.Importance != imp {
+			b.Importance = imp
+			b.Refresh()
+		}
+	}
+	u.toolOptions.Objects = u.optionsFor(u.S.Tool)
+	u.toolOptions.Refresh()
+	u.hintLabel.SetText(u.S.Tool.Info().Hint)
+}
+
+// optionEntry is a numeric option field: it applies the value when it
+// parses and the session accepts it, and says why not otherwise.
+func (u *UI) optionEntry(label string, value string, apply func(string) error) fyne.CanvasObject {
+	e := widget.NewEntry()
+	e.SetText(value)
+	msg := widget.NewLabel("")
+	msg.Wrapping = fyne.TextWrapWord
+	msg.Importance = widget.DangerImportance
+	msg.Hide()
+	e.OnChanged = func(s string) {
+		if err := apply(s); err != nil {
+			msg.SetText(err.Error())
+			msg.Show()
+		} else {
+			msg.Hide()
+		}
+	}
+	return container.NewVBox(widget.NewLabel(label), e, msg)
+}
+
+func (u *UI) setOpt(f func(o *ToolOptions) error) error {
+	o := u.S.Opts
+	if err := f(&o); err != nil {
+		return err
+	}
+	return u.S.SetOptions(o)
+}
+
+func (u *UI) optionsFor(t Tool) []fyne.CanvasObject {
+	o := u.S.Opts
+	num := func(label string, v float64, set func(o *ToolOptions, v float64)) fyne.CanvasObject {
+		return u.optionEntry(label, trimZeros(fmt.Sprintf("%.3f", v)), func(s string) error {
+			x, err := parseNumber(label, s)
+			if err != nil {
+				return err
+			}
+			return u.setOpt(func(o *ToolOptions) error { set(o, x); return nil })
+		})
+	}
+	integer := func(label string, v int, set func(o *ToolOptions, v int)) fyne.CanvasObject {
+		return u.optionEntry(label, fmt.Sprint(v), func(s string) error {
+			x, err := parseInt(label, s)
+			if err != nil {
+				return err
+			}
+			return u.setOpt(func(o *ToolOptions) error { set(o, x); return nil })
+		})
+	}
+	template := func() fyne.CanvasObject {
+		sel := widget.NewSelect(u.templateNames(), func(name string) {
+			u.setOpt(func(o *ToolOptions) error { o.Template = name; return nil })
+		})
+		sel.Selected = o.Template
+		return container.NewVBox(widget.NewLabel("Window template"), sel, u.templateInfo(o.Template))
+	}
+	switch t {
+	case ToolSite, ToolDimer, ToolEraser:
+		return []fyne.CanvasObject{num("Brush radius (nm, 0 = one at a time)", o.BrushNM, func(o *ToolOptions, v float64) { o.BrushNM = v })}
+	case ToolLine:
+		return []fyne.CanvasObject{num("Line width (nm)", o.LineWidthNM, func(o *ToolOptions, v float64) { o.LineWidthNM = v })}
+	case ToolWindow:
+		return []fyne.CanvasObject{template()}
+	case ToolArray:
+		of := widget.NewSelect([]string{"window", "dimer", "site"}, func(s string) {
+			u.setOpt(func(o *ToolOptions) error { o.ArrayOf = s; return nil })
+		})
+		of.Selected = o.ArrayOf
+		return []fyne.CanvasObject{
+			widget.NewLabel("Repeat"), of, template(),
+			container.NewGridWithColumns(2,
+				integer("Columns", o.ArrayCols, func(o *ToolOptions, v int) { o.ArrayCols = v }),
+				integer("Rows", o.ArrayRows, func(o *ToolOptions, v int) { o.ArrayRows = v })),
+			container.NewGridWithColumns(2,
+				integer("Pitch (dimers)", o.ArrayPitchDimers, func(o *ToolOptions, v int) { o.ArrayPitchDimers = v }),
+				integer("Pitch (rows)", o.ArrayPitchRows, func(o *ToolOptions, v int) { o.ArrayPitchRows = v })),
+		}
+	}
+	l := widget.NewLabel("No options.")
+	l.Importance = widget.LowImportance
+	return []fyne.CanvasObject{l}
+}
+
+func (u *UI) templateNames() []string {
+	return u.S.Design().Templates().Names()
+}
+
+func (u *UI) templateInfo(name string) fyne.CanvasObject {
+	t, ok := templateOf(u.S.Design(), name)
+	if !ok {
+		return widget.NewLabel("")
+	}
+	l := widget.NewLabel(fmt.Sprintf("%d dimers on one row, %d sites; single-donor probability %.0f %%", t.Dimers, 2*t.Dimers, 100*t.Probability))
+	l.Wrapping = fyne.TextWrapWord
+	l.Importance = widget.LowImportance
+	return l
+}
+
+// --- Legend ---
+
+func (u *UI) legendBox() fyne.CanvasObject {
+	bg := canvas.NewRectangle(color.NRGBA{0x10, 0x12, 0x16, 0xd8})
+	bg.CornerRadius = 6
+	bg.StrokeColor = color.NRGBA{0x50, 0x58, 0x66, 0xff}
+	bg.StrokeWidth = 1
+	return container.NewStack(bg, container.NewPadded(u.legend))
+}
+
+func swatch(c color.Color, w, h float32) fyne.CanvasObject {
+	r := canvas.NewRectangle(c)
+	r.SetMinSize(fyne.NewSize(w, h))
+	return container.NewCenter(r)
+}
+
+func legendText(s string) *canvas.Text {
+	t := canvas.NewText(s, color.NRGBA{0xe0, 0xe0, 0xe0, 0xff})
+	t.TextSize = theme.TextSize() * 0.85
+	return t
+}
+
+func legendRow(sw fyne.CanvasObject, text string) fyne.CanvasObject {
+	return container.NewHBox(container.New(&fixedWidth{w: 22}, sw), legendText(text))
+}
+
+// refreshLegend lists what the view's colours mean right now.
+func (u *UI) refreshLegend() {
+	var rows []fyne.CanvasObject
+	v := u.S.Variant()
+	const maxRegions = 8
+	for i, r := range v.Regions {
+		if i == maxRegions {
+			rows = append(rows, legendRow(swatch(color.Transparent, 12, 12), fmt.Sprintf("… %d more in Regions", len(v.Regions)-maxRegions)))
+			break
+		}
+		rows = append(rows, legendRow(swatch(RegionColor(i), 12, 12), fmt.Sprintf("%s (%s)", r.Name, roleOf(r.Role))))
+	}
+	if len(v.Regions) == 0 {
+		rows = append(rows, legendRow(swatch(colCleanH, 12, 12), "clean H-terminated surface"))
+	}
+	if p, stale := u.S.Plan(); p != nil && u.View.Opts.Route {
+		rows = append(rows, widget.NewSeparator())
+		segs := container.NewHBox()
+		for i := 0; i < min(len(p.Segments), 6); i++ {
+			segs.Add(swatch(SegmentColor(i), 8, 12))
+		}
+		title := fmt.Sprintf("strokes, by segment (%d)", len(p.Segments))
+		if stale {
+			title += " — out of date"
+		}
+		rows = append(rows, container.NewHBox(segs, legendText(title)))
+		rows = append(rows, legendRow(swatch(colMove, 14, 1), "tip moves"))
+		rows = append(rows, legendRow(legendText("◇"), "registration on a fiducial"))
+	}
+	if len(u.S.Design().Fiducials) > 0 {
+		rows = append(rows, legendRow(legendText("⊕"), "fiducial mark"))
+	}
+	if surf := u.S.Surface(); surf != nil && len(surf.Terraces) > 1 {
+		rows = append(rows, widget.NewSeparator())
+		for i, t := range surf.Terraces {
+			dir := "horizontal"
+			if t.Rows.String() == "y" {
+				dir = "vertical"
+			}
+			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: dimer rows along %s (%s)", t.Name, t.Rows, dir)))
+		}
+		rows = append(rows, legendRow(swatch(colStep, 14, 2), "step edge"))
+	}
+	if f, _ := u.S.Findings(); len(f) > 0 && u.View.Opts.Findings {
+		rows = append(rows, legendRow(swatch(colError, 12, 12), "design-rule error"))
+		rows = append(rows, legendRow(swatch(colWarning, 12, 12), "design-rule warning"))
+	}
+	u.legend.Objects = rows
+	u.legend.Refresh()
+	u.View.Refresh()
+}
+
+// --- Status ---
+
+// showCursor prints the pointer's field position and lattice address.
+func (u *UI) showCursor(p r2.Point, ok bool) {
+	if !ok {
+		u.cursorLabel.SetText("")
+		return
+	}
+	text := fmt.Sprintf("(%.3f, %.3f) nm", p.X, p.Y)
+	surf := u.S.Surface()
+	if site, _, on := surf.Snap(p); on && surf.Field.ContainsPoint(p) {
+		text += fmt.Sprintf("  %s row %d dimer %d side %d", surf.Terraces[site.Terrace].Name, site.Row, site.Dimer, site.Side)
+		if i := u.S.RegionAt(p); i >= 0 {
+			text += " · " + u.S.Variant().Regions[i].Name
+		}
+	} else {
+		text += "  outside the field"
+	}
+	u.cursorLabel.SetText(text)
+}
+
+func (u *UI) refreshHistory() {
+	setEnabled(u.undoButton, u.S.CanUndo())
+	setEnabled(u.redoButton, u.S.CanRedo())
+	if u.undoItem != nil {
+		u.undoItem.Label = "Undo " + u.S.UndoLabel()
+		u.undoItem.Disabled = !u.S.CanUndo()
+		u.redoItem.Label = "Redo " + u.S.RedoLabel()
+		u.redoItem.Disabled = !u.S.CanRedo()
+		u.menu.Refresh()
+	}
+}
+
+type enabler interface {
+	Enable()
+	Disable()
+}
+
+func setEnabled(w enabler, on bool) {
+	if on {
+		w.Enable()
+	} else {
+		w.Disable()
+	}
+}
+
+// --- Keys ---
+
+// typedRune picks tools by their letter and zooms with + and -.
+func (u *UI) typedRune(r rune) {
+	switch r {
+	case '+', '=':
+		u.View.ZoomBy(1.5)
+		return
+	case '-', '_':
+		u.View.ZoomBy(1 / 1.5)
+		return
+	case '0':
+		u.View.Fit()
+		return
+	}
+	for _, ti := range Tools {
+		if r == ti.Key || r == ti.Key-'a'+'A' {
+			u.S.SetTool(ti.Tool)
+			return
+		}
+	}
+}
+
+// typedKey finishes or cancels paths, deletes the selection and pans
+// with the arrow keys.
+func (u *UI) typedKey(k *fyne.KeyEvent) {
+	step := float64(u.View.view.W) / 8
+	switch k.Name {
+	case fyne.KeyReturn, fyne.KeyEnter:
+		if err := u.S.FinishPath(); err != nil {
+			u.hintLabel.SetText(err.Error())
+		}
+	case fyne.KeyEscape:
+		u.S.CancelPath()
+	case fyne.KeyDelete, fyne.KeyBackspace:
+		if sel := u.S.Selection(); len(sel) > 0 {
+			u.S.DeleteRegions(sel...)
+		}
+	case fyne.KeyLeft:
+		u.View.SetView(u.View.view.Pan(step, 0))
+	case fyne.KeyRight:
+		u.View.SetView(u.View.view.Pan(-step, 0))
+	case fyne.KeyUp:
+		u.View.SetView(u.View.view.Pan(0, step))
+	case fyne.KeyDown:
+		u.View.SetView(u.View.view.Pan(0, -step))
+	case fyne.KeyHome:
+		u.View.Fit()
+	case fyne.KeyF5:
+		u.CheckNow()
+	}
+}
+
+func ctrl(k fyne.KeyName) *desktop.CustomShortcut {
+	return &desktop.CustomShortcut{KeyName: k, Modifier: fyne.KeyModifierShortcutDefault}
+}
+
+func ctrlShift(k fyne.KeyName) *desktop.CustomShortcut {
+	return &desktop.CustomShortcut{KeyName: k, Modifier: fyne.KeyModifierShortcutDefault | fyne.KeyModifierShift}
+}
+
+// addShortcuts registers the shortcuts on the canvas too, so they work
+// where a main menu does not route them (and in tests).
+func (u *UI) addShortcuts() {
+	c := u.Win.Canvas()
+	c.AddShortcut(&fyne.ShortcutUndo{}, func(fyne.Shortcut) { u.S.Undo() })
+	c.AddShortcut(&fyne.ShortcutRedo{}, func(fyne.Shortcut) { u.S.Redo() })
+	c.AddShortcut(ctrlShift(fyne.KeyZ), func(fyne.Shortcut) { u.S.Redo() })
+	c.AddShortcut(ctrl(fyne.KeyS), func(fyne.Shortcut) { u.save(nil) })
+	c.AddShortcut(ctrlShift(fyne.KeyS), func(fyne.Shortcut) { u.saveAs(nil) })
+	c.AddShortcut(ctrl(fyne.KeyO), func(fyne.Shortcut) { u.openDialog() })
+	c.AddShortcut(ctrl(fyne.KeyN), func(fyne.Shortcut) { u.newDesign() })
+	c.AddShortcut(ctrl(fyne.KeyReturn), func(fyne.Shortcut) { u.StartPlan() })
+	c.AddShortcut(ctrl(fyne.KeyE), func(fyne.Shortcut) { u.exportAs("pdf") })
+	c.AddShortcut(ctrl(fyne.KeyQ), func(fyne.Shortcut) { u.quit() })
+}
+
+// --- Menu ---
+
+func (u *UI) buildMenu() {
+	item := func(label string, sc fyne.Shortcut, f func()) *fyne.MenuItem {
+		it := fyne.NewMenuItem(label, f)
+		it.Shortcut = sc
+		return it
+	}
+	u.recentMenu = fyne.NewMenuItem("Open recent", nil)
+	u.recentMenu.ChildMenu = fyne.NewMenu("")
+	u.refreshRecent()
+	u.exportMenu = []*fyne.MenuItem{
+		item("Export operator's plan (PDF)…", ctrl(fyne.KeyE), func() { u.exportAs("pdf") }),
+		item("Export pattern and route (SVG)…", nil, func() { u.exportAs("svg") }),
+		item("Export plan (JSON)…", nil, func() { u.exportAs("json") }),
+		item("Export tip actions (CSV)…", nil, func() { u.exportAs("csv") }),
+	}
+	quit := item("Quit", ctrl(fyne.KeyQ), u.quit)
+	quit.IsQuit = true
+	file := fyne.NewMenu("File",
+		item("New design", ctrl(fyne.KeyN), u.newDesign),
+		item("Open…", ctrl(fyne.KeyO), u.openDialog),
+		u.recentMenu,
+		item("Open the demo design", nil, u.openDemo),
+		fyne.NewMenuItemSeparator(),
+		item("Save", ctrl(fyne.KeyS), func() { u.save(nil) }),
+		item("Save as…", ctrlShift(fyne.KeyS), func() { u.saveAs(nil) }),
+		fyne.NewMenuItemSeparator(),
+	)
+	file.Items = append(file.Items, u.exportMenu...)
+	file.Items = append(file.Items, fyne.NewMenuItemSeparator(), quit)
+
+	u.undoItem = item("Undo", &fyne.ShortcutUndo{}, func() { u.S.Undo() })
+	u.redoItem = item("Redo", ctrlShift(fyne.KeyZ), func() { u.S.Redo() })
+	edit := fyne.NewMenu("Edit", u.undoItem, u.redoItem,
+		item("Redo (Ctrl+Y)", &fyne.ShortcutRedo{}, func() { u.S.Redo() }),
+		fyne.NewMenuItemSeparator(),
+		fyne.NewMenuItem("Delete selected regions", func() { u.S.DeleteRegions(u.S.Selection()...) }),
+		fyne.NewMenuItem("Select none", func() { u.S.Select() }),
+	)
+	var toolItems []*fyne.MenuItem
+	for _, ti := range Tools {
+		t := ti.Tool
+		toolItems = append(toolItems, fyne.NewMenuItem(fmt.Sprintf("%s (%c)", ti.Name, ti.Key-'a'+'A'), func() { u.S.SetTool(t) }))
+	}
+	tools := fyne.NewMenu("Tools", toolItems...)
+	view := fyne.NewMenu("View",
+		fyne.NewMenuItem("Zoom in (+)", func() { u.View.ZoomBy(1.5) }),
+		fyne.NewMenuItem("Zoom out (−)", func() { u.View.ZoomBy(1 / 1.5) }),
+		fyne.NewMenuItem("Whole field (0)", u.View.Fit),
+		fyne.NewMenuItem("Selected region", u.zoomToSelection),
+	)
+	plan := fyne.NewMenu("Plan",
+		item("Check design rules (F5)", nil, u.CheckNow),
+		item("Plan this variant", ctrl(fyne.KeyReturn), u.StartPlan),
+		fyne.NewMenuItem("Cancel planning", u.cancelPlan),
+		fyne.NewMenuItemSeparator(),
+		fyne.NewMenuItem("Compare variants…", u.compareVariants),
+		fyne.NewMenuItem("Instrument profile…", u.editProfile),
+	)
+	help := fyne.NewMenu("Help",
+		fyne.NewMenuItem("Caution", u.showCaution),
+		fyne.NewMenuItem("Keyboard and mouse", u.showKeys),
+		fyne.NewMenuItem("About dimerpath", u.showAbout),
+	)
+	u.menu = fyne.NewMainMenu(file, edit, tools, view, plan, help)
+	u.Win.SetMainMenu(u.menu)
+}
+
+func (u *UI) zoomToSelection() {
+	b := r2.EmptyRect()
+	for _, i := range u.S.Selection() {
+		b = b.Union(u.S.RegionBounds(i))
+	}
+	if !b.IsEmpty() {
+		u.View.ZoomTo(b)
+	}
+}
+
+// --- Help ---
+
+func (u *UI) showCaution() {
+	l := widget.NewLabel(planner.Caution + "\n\ndimerpath refuses parameters outside the limits configured in the instrument profile, but those limits are only as good as the profile.")
+	l.Wrapping = fyne.TextWrapWord
+	d := dialog.NewCustom("Caution", "I understand", container.New(&fixedWidth{w: 460}, l), u.Win)
+	d.Show()
+}
+
+func (u *UI) showKeys() {
+	var text string
+	for _, ti := range Tools {
+		text += fmt.Sprintf("%c\t%s — %s\n", ti.Key-'a'+'A', ti.Name, ti.Hint)
+	}
+	text += "\nWheel\tzoom around the pointer;  + and − zoom, 0 or Home shows the whole field\n" +
+		"Drag\twith the Pan tool, the middle button or the right button: move the view;  arrow keys pan\n" +
+		"Enter / Esc\tfinish / cancel a polygon, line or terrace outline\n" +
+		"Delete\tremove the selected regions\n" +
+		"Ctrl+Z\tundo;  Ctrl+Shift+Z or Ctrl+Y redo\n" +
+		"Ctrl+S\tsave;  Ctrl+Shift+S save as;  Ctrl+O open;  Ctrl+N new\n" +
+		"Ctrl+Enter\tplan the variant;  F5 check design rules;  Ctrl+E export the operator's PDF\n"
+	l := widget.NewLabel(text)
+	l.Wrapping = fyne.TextWrapWord
+	dialog.NewCustom("Keyboard and mouse", "Close", container.New(&fixedWidth{w: 700}, container.NewVScroll(l)), u.Win).Show()
+}
+
+func (u *UI) showAbout() {
+	l := widget.NewLabel("dimerpath plans STM hydrogen-depassivation lithography on Si(100)-2x1:H: paint a device on the real lattice, check its design rules, plan the write in atomic-precision and field-emission modes, split it into drift-safe segments and estimate the time and the dopant yield.\n\n" + planner.Caution)
+	l.Wrapping = fyne.TextWrapWord
+	dialog.NewCustom("About dimerpath", "Close", container.New(&fixedWidth{w: 460}, l), u.Win).Show()
+}

@@ -1,0 +1,456 @@
+package export
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"math"
+
+	"dimerpath/planner"
+)
+
+// VariantResult is one variant's outcome for the comparison report: its
+// plan, or why it could not be planned (for example a *planner.LimitError).
+type VariantResult struct {
+	Variant string
+	Plan    *planner.Plan // nil when Err is set
+	Err     error
+}
+
+// ResultsOf wraps plans as results, one per plan, named by their variant.
+func ResultsOf(plans []*planner.Plan) []VariantResult {
+	out := make([]VariantResult, len(plans))
+	for i, p := range plans {
+		out[i] = VariantResult{Variant: p.Variant, Plan: p}
+	}
+	return out
+}
+
+// checkResults validates every plan of rs and returns the first name of
+// a design among them.
+func checkResults(rs []VariantResult) (string, error) {
+	if len(rs) == 0 {
+		return "", fmt.Errorf("%w: no variants to compare", ErrInvalid)
+	}
+	design := ""
+	for i, r := range rs {
+		if r.Plan == nil {
+			if r.Err == nil {
+				return "", fmt.Errorf("%w: variant %d (%q) has neither a plan nor an error", ErrInvalid, i, r.Variant)
+			}
+			continue
+		}
+		if err := checkPlan(r.Plan); err != nil {
+			return "", fmt.Errorf("variant %q: %w", r.Variant, err)
+		}
+		if design == "" {
+			design = r.Plan.Design
+		}
+	}
+	return design, nil
+}
+
+// compareRows returns the comparison table: a header and one row per
+// variant.
+func compareRows(rs []VariantResult) [][]string {
+	rows := [][]string{{"Variant", "Expected", "P10 – P90", "Segments", "Strokes", "Windows", "All good", "Mean good", "Devices per perfect one"}}
+	for _, r := range rs {
+		if r.Plan == nil {
+			rows = append(rows, []string{r.Variant, "not planned: " + r.Err.Error()})
+			continue
+		}
+		p := r.Plan
+		dpp := "–"
+		if len(p.Windows) > 0 {
+			dpp = sig(p.Yield.DevicesPerPerfect, 3)
+			if p.Yield.DevicesPerPerfect == 0 {
+				dpp = "out of reach"
+				if l := p.Yield.Log10All; !math.IsInf(l, -1) && l < 0 {
+					dpp = pow10(-l)
+				}
+			}
+		}
+		all, mean := "–", "–"
+		if len(p.Windows) > 0 {
+			all = allGood(p.Yield)
+			mean = fmt.Sprintf("%s of %s", sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))
+		}
+		rows = append(rows, []string{r.Variant, clock(p.TotalS), clock(p.P10S) + " – " + clock(p.P90S),
+			thousands(len(p.Segments)), thousands(len(p.Strokes)), thousands(len(p.Windows)), all, mean, dpp})
+	}
+	return rows
+}
+
+// drawStackedBreakdown draws one stacked horizontal bar per planned
+// variant, the seven time categories in order, on a shared h:mm:ss axis,
+// with the key below; returns the height used.
+func drawStackedBreakdown(c canvas, rs []VariantResult, area box) float64 {
+	u := c.mm()
+	labelW := 0.0
+	maxT := 0.0
+	for _, r := range rs {
+		labelW = math.Max(labelW, c.textWidth(r.Variant, fontBold))
+		if r.Plan != nil {
+			maxT = math.Max(maxT, r.Plan.Breakdown.Total())
+		}
+	}
+	labelW += 3 * u
+	valueW := c.textWidth("0:00:00", fontBody) + 3*u
+	plot := box{area.x + labelW, area.y, area.w - labelW - valueW, 0}
+	step := niceTimeStep(maxT, 5)
+	top := math.Max(step, math.Ceil(maxT/step-1e-9)*step)
+	x := func(t float64) float64 { return plot.x + plot.w*t/top }
+	rowH := 8 * u
+	c.group(tag{id: "breakdown-compare", class: "chart"}, penBar, noPaint)
+	y := area.y
+	for _, r := range rs {
+		c.text(vec{plot.x - 2*u, y + rowH/2 + textHeight(c, fontBold)/2}, r.Variant, fontBold, anchorEnd, tag{})
+		if r.Plan == nil {
+			c.text(vec{plot.x + 1*u, y + rowH/2 + textHeight(c, fontBody)/2}, "not planned", fontBody, anchorStart, tag{})
+			y += rowH
+			continue
+		}
+		t := 0.0
+		for _, part := range timeParts(r.Plan.Breakdown) {
+			if part.s <= 0 {
+				continue
+			}
+			c.rect(box{x(t), y + 1.2*u, x(t+part.s) - x(t), rowH - 2.4*u}, penBar, part.fill, tag{class: "bar"})
+			t += part.s
+		}
+		c.text(vec{x(t) + 1.5*u, y + rowH/2 + textHeight(c, fontBody)/2}, clock(t), fontBody, anchorStart, tag{})
+		y += rowH
+	}
+	for _, tk := range ticks(0, top, step) {
+		c.polyline([]vec{{x(tk), area.y}, {x(tk), y}}, false, penGrid, noPaint, tag{})
+		c.polyline([]vec{{x(tk), y}, {x(tk), y + 1.2*u}}, false, penAxis, noPaint, tag{})
+		c.text(vec{x(tk), y + 1.2*u + textHeight(c, fontAxis) + 0.8*u}, clock(tk), fontAxis, anchorMiddle, tag{})
+	}
+	c.polyline([]vec{{plot.x, y}, {plot.x + plot.w, y}}, false, penAxis, noPaint, tag{})
+	y += 1.2*u + textHeight(c, fontAxis) + 4*u
+	var key []legendEntry
+	for _, part := range timeParts(planner.Breakdown{}) {
+		f := part.fill
+		key = append(key, legendEntry{part.name, func(c canvas, b box) { c.rect(b.inset(0.2*c.mm()), penBar, f, tag{}) }})
+	}
+	y += drawLegend(c, key, vec{area.x, y}, area.w)
+	c.endGroup()
+	return y - area.y
+}
+
+// drawSpreadCompare draws each planned variant's P10–P90 box, median
+// and expected total on one time axis; returns the height used.
+func drawSpreadCompare(c canvas, rs []VariantResult, area box) float64 {
+	u := c.mm()
+	lo, hi := math.Inf(1), 0.0
+	labelW := 0.0
+	for _, r := range rs {
+		labelW = math.Max(labelW, c.textWidth(r.Variant, fontBold))
+		if r.Plan != nil {
+			lo = math.Min(lo, math.Min(r.Plan.P10S, r.Plan.TotalS))
+			hi = math.Max(hi, math.Max(r.Plan.P90S, r.Plan.TotalS))
+		}
+	}
+	if math.IsInf(lo, 1) {
+		return 0
+	}
+	labelW += 3 * u
+	span := math.Max(hi-lo, math.Max(hi, 1)*0.05)
+	lo, hi = math.Max(0, lo-0.1*span), hi+0.1*span
+	step := niceTimeStep(hi-lo, 5)
+	lo, hi = math.Floor(lo/step)*step, math.Ceil(hi/step)*step
+	plot := box{area.x + labelW, area.y, area.w - labelW - 2*u, 0}
+	x := func(t float64) float64 { return plot.x + plot.w*(t-lo)/(hi-lo) }
+	rowH := 7 * u
+	c.group(tag{id: "spread-compare", class: "chart"}, penBar, noPaint)
+	y := area.y
+	for _, r := range rs {
+		c.text(vec{plot.x - 2*u, y + rowH/2 + textHeight(c, fontBold)/2}, r.Variant, fontBold, anchorEnd, tag{})
+		if p := r.Plan; p != nil {
+			c.rect(box{x(p.P10S), y + 1.5*u, math.Max(x(p.P90S)-x(p.P10S), 0.4*u), rowH - 3*u}, penBar, paint{fill: true, grey: 0.85}, tag{class: "p10-p90"})
+			c.polyline([]vec{{x(p.P50S), y + 0.8*u}, {x(p.P50S), y + rowH - 0.8*u}}, false, pen{width: 0.7}, noPaint, tag{class: "p50"})
+			d, tx, ty := 1.4*u, x(p.TotalS), y+rowH/2
+			c.polyline([]vec{{tx, ty - d}, {tx + d, ty}, {tx, ty + d}, {tx - d, ty}}, true, pen{width: 0.25}, solid(1), tag{class: "expected"})
+		}
+		y += rowH
+	}
+	for _, t := range ticks(lo, hi, step) {
+		c.polyline([]vec{{x(t), area.y}, {x(t), y}}, false, penGrid, noPaint, tag{})
+		c.polyline([]vec{{x(t), y}, {x(t), y + 1.2*u}}, false, penAxis, noPaint, tag{})
+		c.text(vec{x(t), y + 1.2*u + textHeight(c, fontAxis) + 0.8*u}, clock(t), fontAxis, anchorMiddle, tag{})
+	}
+	c.polyline([]vec{{plot.x, y}, {plot.x + plot.w, y}}, false, penAxis, noPaint, tag{})
+	y += 1.2*u + textHeight(c, fontAxis) + 4*u
+	y += spreadKey(c, vec{area.x, y})
+	c.endGroup()
+	return y - area.y
+}
+
+// spreadKey explains the spread symbols; returns its height.
+func spreadKey(c canvas, at vec) float64 {
+	u := c.mm()
+	x, y := at.x, at.y
+	item := func(s string) {
+		c.text(vec{x, y + 2.3*u}, s, fontAxis, anchorStart, tag{})
+		x += c.textWidth(s, fontAxis) + 5*u
+	}
+	c.rect(box{x, y, 6 * u, 3 * u}, penBar, paint{fill: true, grey: 0.85}, tag{})
+	x += 7.5 * u
+	item("P10 to P90")
+	c.polyline([]vec{{x + 1.5*u, y - 0.5*u}, {x + 1.5*u, y + 3.5*u}}, false, pen{width: 0.7}, noPaint, tag{})
+	x += 4 * u
+	item("median P50")
+	d := 1.4 * u
+	c.polyline([]vec{{x + d, y + 1.5*u - d}, {x + 2*d, y + 1.5*u}, {x + d, y + 1.5*u + d}, {x, y + 1.5*u}}, true, pen{width: 0.25}, solid(1), tag{})
+	x += 2*d + 2*u
+	item("expected (mean)")
+	return 4 * u
+}
+
+// drawYieldCompare draws each variant's probability that every window
+// is good as a bar on a 0–1 axis, labelled with it and the mean number
+// of good windows; returns the height used.
+func drawYieldCompare(c canvas, rs []VariantResult, area box) float64 {
+	u := c.mm()
+	labelW := 0.0
+	for _, r := range rs {
+		labelW = math.Max(labelW, c.textWidth(r.Variant, fontBold))
+	}
+	labelW += 3 * u
+	valueW := c.textWidth("0.000 (mean 0000 of 0000 good)", fontBody) + 3*u
+	plot := box{area.x + labelW, area.y, area.w - labelW - valueW, 0}
+	rowH := 7 * u
+	c.group(tag{id: "yield-compare", class: "chart"}, penBar, noPaint)
+	y := area.y
+	for _, r := range rs {
+		c.text(vec{plot.x - 2*u, y + rowH/2 + textHeight(c, fontBold)/2}, r.Variant, fontBold, anchorEnd, tag{})
+		label := "not planned"
+		w := 0.0
+		if p := r.Plan; p != nil {
+			if len(p.Windows) == 0 {
+				label = "no dopant windows"
+			} else {
+				w = plot.w * p.Yield.All
+				label = fmt.Sprintf("%s (mean %s of %s good)", allGood(p.Yield), sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))
+				c.rect(box{plot.x, y + 1.5*u, math.Max(w, 0.3*u), rowH - 3*u}, penBar, paint{fill: true, grey: 0.45}, tag{class: "bar"})
+			}
+		}
+		c.text(vec{plot.x + w + 1.5*u, y + rowH/2 + textHeight(c, fontBody)/2}, label, fontBody, anchorStart, tag{})
+		y += rowH
+	}
+	for k := 0; k <= 4; k++ {
+		t := float64(k) / 4
+		xx := plot.x + plot.w*t
+		c.polyline([]vec{{xx, area.y}, {xx, y}}, false, penGrid, noPaint, tag{})
+		c.polyline([]vec{{xx, y}, {xx, y + 1.2*u}}, false, penAxis, noPaint, tag{})
+		c.text(vec{xx, y + 1.2*u + textHeight(c, fontAxis) + 0.8*u}, sig(t, 2), fontAxis, anchorMiddle, tag{})
+	}
+	c.polyline([]vec{{plot.x, y}, {plot.x + plot.w, y}}, false, penAxis, noPaint, tag{})
+	c.polyline([]vec{{plot.x, area.y}, {plot.x, y}}, false, penAxis, noPaint, tag{})
+	y += 1.2*u + textHeight(c, fontAxis) + 3*u
+	c.text(vec{plot.x + plot.w/2, y + textHeight(c, fontAxis)}, "probability that every window takes exactly one donor", fontAxis, anchorMiddle, tag{})
+	y += textHeight(c, fontAxis) + 2*u
+	c.endGroup()
+	return y - area.y
+}
+
+// WriteComparisonPDF writes the variant comparison report of results to
+// w on opt.Paper: the design, date and caution; a table of every
+// variant's expected time, spread, segments, strokes and yield; and, side
+// by side on shared axes, the time breakdowns, the P10–P90 spreads and
+// the probability that every window is good. Variants that could not be
+// planned are listed with the reason. Only opt.Paper, opt.Date and
+// opt.Generator are used. It returns ctx.Err() when cancelled.
+func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResult, opt Options) error {
+	design, err := checkResults(results)
+	if err != nil {
+		return err
+	}
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+	d := newPDFDoc(opt.Paper, "dimerpath variant comparison · "+design, opt, "Variant comparison: "+design)
+	d.page()
+	d.c.text(vec{d.left(), d.y + 8}, "Variant comparison", font{size: 22, bold: true}, anchorStart, tag{})
+	d.y += 13
+	for _, l := range wrapText(d.c, design, font{size: 15, bold: true}, d.width()) {
+		d.c.text(vec{d.left(), d.y + 6}, l, font{size: 15, bold: true}, anchorStart, tag{})
+		d.y += 7
+	}
+	d.y += 2
+	date := "(not given)"
+	if !opt.Date.IsZero() {
+		date = opt.Date.Format("Monday 2 January 2006")
+	}
+	profiles := map[string]bool{}
+	var profList []string
+	for _, r := range results {
+		if r.Plan != nil && !profiles[r.Plan.Profile] {
+			profiles[r.Plan.Profile] = true
+			profList = append(profList, r.Plan.Profile)
+		}
+	}
+	kv := [][2]string{{"Date", date}, {"Instrument profile", listShort(profList, 4)}, {"Variants", fmt.Sprint(len(results))}}
+	if opt.Generator != "" {
+		kv = append(kv, [2]string{"Planned with", opt.Generator})
+	}
+	d.keyValues(kv, 0.28)
+	d.cautionBox()
+
+	rows := compareRows(results)
+	t := newTable(d, font{size: 7.5},
+		tableColumn{title: rows[0][0], share: 14},
+		tableColumn{title: rows[0][1], share: 9, right: true},
+		tableColumn{title: rows[0][2], share: 15, right: true},
+		tableColumn{title: rows[0][3], share: 9, right: true},
+		tableColumn{title: rows[0][4], share: 9, right: true},
+		tableColumn{title: rows[0][5], share: 9, right: true},
+		tableColumn{title: rows[0][6], share: 8, right: true},
+		tableColumn{title: rows[0][7], share: 11, right: true},
+		tableColumn{title: rows[0][8], share: 11, right: true},
+	)
+	d.heading("Summary", 20)
+	t.start()
+	for _, r := range rows[1:] {
+		if len(r) == 2 {
+			t.spanRow(r[0], r[1]) // a refused variant: its reason across the row
+			continue
+		}
+		t.row(r...)
+	}
+	t.end()
+
+	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
+	for _, ch := range []struct {
+		title string
+		draw  func(c canvas, rs []VariantResult, area box) float64
+	}{
+		{"Write time by kind", drawStackedBreakdown},
+		{"Spread of the write time", drawSpreadCompare},
+		{"Dopant yield", drawYieldCompare},
+	} {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		h := ch.draw(m, results, box{d.left(), 0, d.width(), 0})
+		d.heading(ch.title, h)
+		d.y += ch.draw(d.c, results, box{d.left(), d.y, d.width(), 0}) + 4
+	}
+	return d.output(w)
+}
+
+// WriteComparisonSVG writes the same comparison as WriteComparisonPDF as
+// one SVG in millimetres (A4 width): the table as text, then the three
+// charts, with groups "summary", "breakdown-compare", "spread-compare",
+// "yield-compare" and "caution".
+func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error {
+	design, err := checkResults(results)
+	if err != nil {
+		return err
+	}
+	const width, margin = 210.0, 12.0
+	inner := width - 2*margin
+	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
+	rows := compareRows(results)
+	cols := []float64{14, 9, 15, 9, 9, 9, 8, 11, 11}
+	colW := make([]float64, len(cols))
+	total := 0.0
+	for _, c := range cols {
+		total += c
+	}
+	for i, c := range cols {
+		colW[i] = inner * c / total
+	}
+	tableFont := font{size: 6.5}
+	// Row heights: wrapped cells (a refused variant's reason spans the row).
+	cells := make([][][]string, len(rows))
+	heights := make([]float64, len(rows))
+	for i, r := range rows {
+		cells[i] = make([][]string, len(r))
+		n := 1
+		for j, s := range r {
+			cw := colW[j]
+			if len(r) == 2 && j == 1 {
+				cw = inner - colW[0]
+			}
+			f := tableFont
+			if i == 0 {
+				f.bold = true
+			}
+			cells[i][j] = wrapText(m, s, f, cw-2)
+			n = max(n, len(cells[i][j]))
+		}
+		heights[i] = float64(n)*3.2 + 1.6
+	}
+	charts := []func(c canvas, rs []VariantResult, area box) float64{drawStackedBreakdown, drawSpreadCompare, drawYieldCompare}
+	y := 22.0
+	for _, h := range heights {
+		y += h
+	}
+	y += 6
+	for _, ch := range charts {
+		y += 8 + ch(m, results, box{margin, 0, inner, 0}) + 4
+	}
+	caution := wrapText(m, planner.Caution, fontCaution, inner)
+	height := y + float64(len(caution))*4.2 + 8
+
+	c := newSVGCanvas(w, 1)
+	c.raw(`<?xml version="1.0" encoding="UTF-8"?>` + "\n")
+	c.buf = append(c.buf, `<svg xmlns="http://www.w3.org/2000/svg" version="1.1"`...)
+	c.attrStr("viewBox", fmt.Sprintf("0 0 %s %s", fnum(width), fnum(height)))
+	c.attrStr("width", fnum(width)+"mm")
+	c.attrStr("height", fnum(height)+"mm")
+	c.attrStr("font-family", svgFontFamily)
+	c.buf = append(c.buf, ">\n"...)
+	c.flushBuf()
+	title := "Variant comparison: " + design
+	c.raw("<title>" + string(appendEscaped(nil, title)) + "</title>\n")
+	c.raw("<desc>" + string(appendEscaped(nil, planner.Caution)) + "</desc>\n")
+	c.rect(box{0, 0, width, height}, noPen, solid(1), tag{id: "background"})
+	c.text(vec{margin, 12}, title, font{size: 13, bold: true}, anchorStart, tag{id: "title"})
+	if !opt.Date.IsZero() {
+		c.text(vec{width - margin, 12}, opt.Date.Format("2 January 2006"), fontBody, anchorEnd, tag{id: "date"})
+	}
+	y = 18
+	c.group(tag{id: "summary", class: "table"}, noPen, noPaint)
+	for i, r := range rows {
+		if i == 0 {
+			c.rect(box{margin, y, inner, heights[i]}, noPen, solid(0.88), tag{})
+		}
+		x := margin
+		for j := range r {
+			f := tableFont
+			if i == 0 || j == 0 {
+				f.bold = true
+			}
+			right := j > 0 && len(r) > 2
+			for k, l := range cells[i][j] {
+				yy := y + 0.8 + float64(k)*3.2 + 2.5
+				if right {
+					c.text(vec{x + colW[j] - 1, yy}, l, f, anchorEnd, tag{})
+				} else {
+					c.text(vec{x + 1, yy}, l, f, anchorStart, tag{})
+				}
+			}
+			x += colW[j]
+		}
+		y += heights[i]
+		c.polyline([]vec{{margin, y}, {margin + inner, y}}, false, pen{width: 0.12, grey: 0.55}, noPaint, tag{})
+	}
+	c.endGroup()
+	y += 6
+	for i, ch := range charts {
+		c.text(vec{margin, y + 4}, []string{"Write time by kind", "Spread of the write time", "Dopant yield"}[i], font{size: 10, bold: true}, anchorStart, tag{})
+		y += 8
+		y += ch(c, results, box{margin, y, inner, 0}) + 4
+	}
+	c.group(tag{id: "caution", class: "caution"}, noPen, noPaint)
+	for _, l := range caution {
+		y += 4.2
+		c.text(vec{margin, y}, l, fontCaution, anchorStart, tag{})
+	}
+	c.endGroup()
+	c.hatchDefs()
+	c.raw("</svg>\n")
+	return c.err()
+}

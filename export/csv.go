@@ -1,0 +1,89 @@
+package export
+
+import (
+	"encoding/csv"
+	"io"
+	"strconv"
+	"strings"
+
+	"dimerpath/planner"
+)
+
+// ActionColumns are the columns of the action CSV, in order (documented
+// in the README under "Plan files"). Lengths are nm, times s, bias V,
+// current A, speed nm/s; an empty cell means "not set by this action:
+// keep the current conditions".
+var ActionColumns = []string{
+	"index", "kind", "segment", "stroke", "region", "mode", "stroke_kind", "fiducial",
+	"from_x_nm", "from_y_nm", "to_x_nm", "to_y_nm", "start_s", "duration_s",
+	"bias_v", "current_a", "speed_nm_per_s", "passes", "path_nm", "note",
+}
+
+// WriteActionsCSV writes one CSV row per tip action of p, in execution
+// order, after a header row of ActionColumns: for people who drive their
+// instrument from their own scripts. Numbers are written in full
+// precision (strconv 'g', shortest exact form). path_nm holds, for write
+// and dwell actions, the stroke's whole tip path as "x y" pairs separated
+// by ";". It refuses a plan checkPlan refuses. O(actions + points).
+func WriteActionsCSV(w io.Writer, p *planner.Plan) error {
+	if err := checkPlan(p); err != nil {
+		return err
+	}
+	cw := csv.NewWriter(w)
+	if err := cw.Write(ActionColumns); err != nil {
+		return err
+	}
+	row := make([]string, len(ActionColumns))
+	var path strings.Builder
+	for _, a := range p.Actions {
+		for i := range row {
+			row[i] = ""
+		}
+		row[0] = strconv.Itoa(a.Index)
+		row[1] = string(a.Kind)
+		row[2] = strconv.Itoa(a.Segment)
+		row[3] = strconv.Itoa(a.Stroke)
+		row[5] = string(a.Mode)
+		if a.Kind == planner.ActRegister && a.Segment >= 0 {
+			row[7] = p.Segments[a.Segment].Fiducial
+		}
+		row[8], row[9] = num(a.From.X), num(a.From.Y)
+		row[10], row[11] = num(a.To.X), num(a.To.Y)
+		row[12], row[13] = num(a.StartS), num(a.DurationS)
+		row[14], row[15], row[16] = optNum(a.BiasV), optNum(a.CurrentA), optNum(a.SpeedNMPS)
+		if a.Stroke >= 0 {
+			s := &p.Strokes[a.Stroke]
+			row[4] = s.Region
+			row[6] = string(s.Kind)
+			if a.Kind == planner.ActWrite || a.Kind == planner.ActDwell {
+				row[17] = strconv.Itoa(s.Passes)
+				path.Reset()
+				for k, q := range s.Path {
+					if k > 0 {
+						path.WriteByte(';')
+					}
+					path.WriteString(num(q.X))
+					path.WriteByte(' ')
+					path.WriteString(num(q.Y))
+				}
+				row[18] = path.String()
+			}
+		}
+		row[19] = a.Note
+		if err := cw.Write(row); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+func num(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+
+// optNum formats v, or "" for 0 (a value the action does not set).
+func optNum(v float64) string {
+	if v == 0 {
+		return ""
+	}
+	return num(v)
+}

@@ -1,0 +1,170 @@
+package export
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+)
+
+// clock formats s seconds as h:mm:ss, rounded to the second.
+func clock(s float64) string {
+	if math.IsNaN(s) || math.IsInf(s, 0) {
+		return "–"
+	}
+	t := int64(math.Round(s))
+	sign := ""
+	if t < 0 {
+		sign, t = "−", -t
+	}
+	return fmt.Sprintf("%s%d:%02d:%02d", sign, t/3600, t/60%60, t%60)
+}
+
+// duration formats s seconds for reading: "0.50 s", "45.2 s",
+// "12 min 05 s", "3 h 07 min".
+func duration(s float64) string {
+	switch {
+	case math.IsNaN(s) || math.IsInf(s, 0):
+		return "–"
+	case s < 10:
+		return strconv.FormatFloat(s, 'f', 2, 64) + " s"
+	case s < 60:
+		return strconv.FormatFloat(s, 'f', 1, 64) + " s"
+	case s < 3600:
+		t := int64(math.Round(s))
+		return fmt.Sprintf("%d min %02d s", t/60, t%60)
+	default:
+		t := int64(math.Round(s / 60))
+		return fmt.Sprintf("%d h %02d min", t/60, t%60)
+	}
+}
+
+// sig formats v with n significant digits, without trailing zeros or
+// an exponent for ordinary magnitudes.
+func sig(v float64, n int) string {
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+		if v == 0 {
+			return "0"
+		}
+		return "–"
+	}
+	e := int(math.Floor(math.Log10(math.Abs(v))))
+	if e < -4 || e >= 7 {
+		s := strconv.FormatFloat(v, 'e', n-1, 64)
+		mant, exp, _ := strings.Cut(s, "e")
+		if strings.Contains(mant, ".") {
+			mant = strings.TrimRight(strings.TrimRight(mant, "0"), ".")
+		}
+		x, _ := strconv.Atoi(exp)
+		// Liberation Sans lacks the superscript minus, zero and nine, so
+		// exponents are written e−4.
+		return strings.Replace(mant, "-", "−", 1) + "e" + strings.Replace(strconv.Itoa(x), "-", "−", 1)
+	}
+	dec := max(0, n-1-e)
+	s := strconv.FormatFloat(v, 'f', dec, 64)
+	if strings.Contains(s, ".") {
+		s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
+	}
+	return strings.Replace(s, "-", "−", 1)
+}
+
+// nanoAmps formats a current given in A as nA.
+func nanoAmps(a float64) string { return sig(a*1e9, 3) }
+
+// milliCoulombPerCm formats a line dose given in C/cm as mC/cm.
+func milliCoulombPerCm(d float64) string { return sig(d*1e3, 3) }
+
+// nm formats a length in nm with one decimal.
+func nm1(v float64) string { return strings.Replace(strconv.FormatFloat(v, 'f', 1, 64), "-", "−", 1) }
+
+// percent formats a fraction 0..1 as a percentage.
+func percent(f float64) string {
+	switch {
+	case f >= 0.9995 && f < 1:
+		return ">99.9 %"
+	case f > 0 && f < 0.001:
+		return "<0.1 %"
+	}
+	return strconv.FormatFloat(100*f, 'f', 1, 64) + " %"
+}
+
+// probability formats p for print: 0.614, 6.2×10⁻⁴.
+func probability(p float64) string {
+	if p >= 0.001 || p == 0 {
+		return strconv.FormatFloat(p, 'f', 3, 64)
+	}
+	return sig(p, 2)
+}
+
+// niceStep returns a 1, 2 or 5 × 10^k step near span/target.
+func niceStep(span float64, target int) float64 {
+	if !(span > 0) {
+		return 1
+	}
+	raw := span / float64(max(1, target))
+	p := math.Pow(10, math.Floor(math.Log10(raw)))
+	if !(p > 0) || math.IsInf(p, 0) {
+		return math.Max(span, math.SmallestNonzeroFloat64) // degenerate spans: one step
+	}
+	for _, m := range []float64{1, 2, 5} {
+		if m*p >= raw && !math.IsInf(m*p, 0) {
+			return m * p
+		}
+	}
+	if math.IsInf(10*p, 0) {
+		return p
+	}
+	return 10 * p
+}
+
+// niceBelow returns the largest 1, 2 or 5 × 10^k not above v.
+func niceBelow(v float64) float64 {
+	if !(v > 0) {
+		return 1
+	}
+	p := math.Pow(10, math.Floor(math.Log10(v)))
+	best := p
+	for _, m := range []float64{2, 5} {
+		if m*p <= v {
+			best = m * p
+		}
+	}
+	return best
+}
+
+// lengthLabel formats a scale-bar length given in nm.
+func lengthLabel(v float64) string {
+	if v >= 1000 {
+		return sig(v/1000, 3) + " µm"
+	}
+	return sig(v, 3) + " nm"
+}
+
+// niceTimeStep returns a clock-friendly tick step (1, 2, 5, 10, 15, 20,
+// 30 s or min, 1, 2, 3, 6, 12 h, then whole days) near span/target
+// seconds.
+func niceTimeStep(span float64, target int) float64 {
+	raw := span / float64(max(1, target))
+	for _, s := range []float64{1, 2, 5, 10, 15, 20, 30, 60, 120, 300, 600, 900, 1200, 1800,
+		3600, 7200, 10800, 21600, 43200, 86400} {
+		if s >= raw {
+			return s
+		}
+	}
+	return 86400 * math.Ceil(raw/86400)
+}
+
+// ticks returns the multiples of step from lo to hi (inclusive, with a
+// little slack for rounding), at most 200 of them; for a degenerate step
+// (not positive, or too small to advance at lo's magnitude) it returns
+// lo and hi.
+func ticks(lo, hi, step float64) []float64 {
+	if !(step > 0) || !(hi >= lo) || (hi-lo)/step > 200 || lo+step == lo {
+		return []float64{lo, hi}
+	}
+	var out []float64
+	for k := math.Ceil(lo/step - 1e-9); k*step <= hi+1e-9*step; k++ {
+		out = append(out, k*step)
+	}
+	return out
+}

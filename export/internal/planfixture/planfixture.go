@@ -1,0 +1,450 @@
+// Package planfixture builds synthetic write plans for the export tests,
+// examples and benchmarks. They are test fixtures: the geometry sits on
+// the real lattice and the timelines are self-consistent (every action
+// starts when the previous one ends, the breakdown sums to the total),
+// but the numbers are not the planner's physics. The device is invented
+// for these tests (the fictional "Kestrel Lab" SET-K1).
+package planfixture
+
+import (
+	"cmp"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+
+	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice"
+	"dimerpath/planner"
+)
+
+// Region is one region of a fixture device with its lattice sites.
+type Region struct {
+	Name  string
+	Role  string
+	Mode  string // ap, fe or hybrid
+	Sites *lattice.SiteSet
+}
+
+// Device is a fixture design with its plan.
+type Device struct {
+	Surface *lattice.Surface
+	Regions []Region
+	Plan    *planner.Plan
+}
+
+// Tip conditions of the fixtures (values in the ranges physics.md §3
+// gives; AP: Schmucker et al. 2012's +4 V, 2 nA, 2 mC/cm, hence 10 nm/s).
+var (
+	apConditions = planner.Conditions{Mode: planner.AP, BiasV: 4, CurrentA: 2e-9, LineDoseCPerCm: 2e-3,
+		SpeedNMPerS: 10, LineWidthNM: 0.8, Passes: 2}
+	feConditions = planner.Conditions{Mode: planner.FE, BiasV: 8, CurrentA: 5e-9, LineDoseCPerCm: 5e-5,
+		SpeedNMPerS: 1000, LineWidthNM: 4, Passes: 1, PitchNM: 3}
+)
+
+const (
+	dwellBiasV     = 3.0
+	dwellCurrentA  = 1e-9
+	dwellS         = 0.5
+	moveSpeedNMPS  = 200
+	settleS        = 2
+	switchS        = 5
+	registrationS  = 240
+	verificationS  = 60
+	windowP        = 0.63 // Ivie et al. 2021, single-P 3-dimer window
+	windowAs       = 0.97 // Stock et al. 2024, single As
+	apBudgetS      = 120  // 0.2 nm / 0.1 nm/min
+	feBudgetS      = 1200 // 2 nm / 0.1 nm/min
+	fixtureDesign  = "Kestrel Lab SET-K1"
+	fixtureProfile = "Kestrel RT-STM (fixture)"
+)
+
+// SET returns a small single-electron-transistor device on two terraces
+// (the row direction turns at the step at x = 70 nm): an AP island with
+// source, drain and gate leads, six donor windows, and three FE contact
+// pads, written in five segments.
+func SET() *Device {
+	surf, err := lattice.NewSurface(120, 80,
+		lattice.Terrace{Name: "T0", Rows: lattice.RowsAlongX,
+			Boundary: []r2.Point{{X: 0, Y: 0}, {X: 70, Y: 0}, {X: 70, Y: 80}, {X: 0, Y: 80}}},
+		lattice.Terrace{Name: "T1", Rows: lattice.RowsAlongY, Offset: r2.Point{X: 0.1, Y: 0.2}},
+	)
+	if err != nil {
+		panic(err)
+	}
+	d := &Device{Surface: surf}
+	b := newBuilder(fixtureDesign, "baseline", 120, 80)
+	b.p.Fiducials = []planner.Fiducial{
+		{Name: "F-SW", At: r2.Point{X: 4, Y: 4}}, {Name: "F-NW", At: r2.Point{X: 4, Y: 76}},
+		{Name: "F-NE", At: r2.Point{X: 116, Y: 76}}, {Name: "F-SE", At: r2.Point{X: 116, Y: 4}},
+	}
+
+	addRegion := func(name, role, mode, reason string) *lattice.SiteSet {
+		s := lattice.NewSiteSet()
+		d.Regions = append(d.Regions, Region{Name: name, Role: role, Mode: mode, Sites: s})
+		b.p.Modes = append(b.p.Modes, planner.RegionMode{Region: name, Role: role, Requested: "auto", Mode: mode, Reason: reason})
+		return s
+	}
+	// AP lines: one stroke per row over dimers d0..d1, serpentine.
+	apBlock := func(name string, set *lattice.SiteSet, rows [2]int, dimers [2]int) []int {
+		var ids []int
+		for i, r := 0, rows[0]; r <= rows[1]; i, r = i+1, r+1 {
+			set.AddRun(0, r, 2*dimers[0], 2*(dimers[1]+1))
+			a, z := surf.DimerCentre(0, r, dimers[0]), surf.DimerCentre(0, r, dimers[1])
+			if i%2 == 1 {
+				a, z = z, a
+			}
+			ids = append(ids, b.line(name, []r2.Point{a, z}, 2*(dimers[1]-dimers[0]+1)))
+		}
+		return ids
+	}
+
+	island := addRegion("island", "device", "ap", "tolerance ±0.2 nm needs atomic precision")
+	source := addRegion("source", "lead", "ap", "within the FE keep-out of the island")
+	drain := addRegion("drain", "lead", "ap", "within the FE keep-out of the island")
+	gate := addRegion("gate", "gate", "ap", "narrower than the FE line width (4 nm)")
+	donors := addRegion("donors", "donor", "ap", "dopant windows are written atom by atom")
+	padS := addRegion("pad-S", "pad", "fe", "wide and ±2 nm tolerance: FE is 100x faster")
+	padD := addRegion("pad-D", "pad", "fe", "wide and ±2 nm tolerance: FE is 100x faster")
+	padG := addRegion("pad-G", "pad", "fe", "wide and ±2 nm tolerance: FE is 100x faster")
+
+	// Segment 0: the donor windows and the island.
+	var seg0 []int
+	for _, dm := range []int{84, 88, 92, 96} {
+		w := lattice.Window{Template: lattice.PhosphineWindow, Terrace: 0, Row: 30, FirstDimer: dm}
+		w.AddTo(donors)
+		at := surf.DimerCentre(0, 30, dm+1)
+		seg0 = append(seg0, b.dwell("donors", at, "P", "P", windowP, 6))
+	}
+	for _, dm := range []int{86, 93} {
+		w := lattice.Window{Template: lattice.ArsineWindow, Terrace: 0, Row: 26, FirstDimer: dm}
+		w.AddTo(donors)
+		at := surf.DimerCentre(0, 26, dm).Add(surf.DimerCentre(0, 26, dm+1)).Mul(0.5)
+		seg0 = append(seg0, b.dwell("donors", at, "As", "As", windowAs, 4))
+	}
+	seg0 = append(seg0, apBlock("island", island, [2]int{48, 53}, [2]int{80, 95})...)
+	seg1 := apBlock("source", source, [2]int{50, 51}, [2]int{20, 68})
+	seg1 = append(seg1, apBlock("drain", drain, [2]int{50, 51}, [2]int{108, 180})...)
+	seg2 := apBlock("gate", gate, [2]int{70, 72}, [2]int{70, 105})
+
+	// FE pads: serpentine raster plus an outline pass.
+	var seg3, seg4 []int
+	seg3 = append(seg3, b.pad("pad-S", padS, surf, r2.RectFromPoints(r2.Point{X: 1, Y: 30}, r2.Point{X: 14, Y: 47}))...)
+	seg3 = append(seg3, b.pad("pad-G", padG, surf, r2.RectFromPoints(r2.Point{X: 20, Y: 55.5}, r2.Point{X: 36, Y: 72}))...)
+	seg4 = append(seg4, b.pad("pad-D", padD, surf, r2.RectFromPoints(r2.Point{X: 66, Y: 28}, r2.Point{X: 100, Y: 50}))...)
+
+	for _, seg := range [][]int{seg0, seg1, seg2, seg3, seg4} {
+		b.segment(seg)
+	}
+	b.p.Warnings = []string{"stroke 21 (drain) was split at a registration to keep within its drift budget"}
+	for i := range d.Regions {
+		b.p.Modes[i].Sites = d.Regions[i].Sites.Count()
+	}
+	d.Plan = b.finish()
+	return d
+}
+
+// Large returns a plan with n strokes spread over a 1 µm x 1 µm field
+// (70 % AP lines, 25 % dwells, 5 % small FE rasters) in segments of 200
+// strokes, for benchmarks. The same n and seed give the same plan.
+func Large(n int, seed int64) *planner.Plan {
+	rng := rand.New(rand.NewPCG(uint64(seed), 0x5eed))
+	b := newBuilder("Kestrel Lab array (fixture)", "dense", 1000, 1000)
+	for i := range 9 {
+		b.p.Fiducials = append(b.p.Fiducials, planner.Fiducial{Name: fmt.Sprintf("F%d", i),
+			At: r2.Point{X: 50 + 450*float64(i%3), Y: 50 + 450*float64(i/3)}})
+	}
+	b.p.Modes = []planner.RegionMode{
+		{Region: "lines", Role: "device", Requested: "ap", Mode: "ap", Reason: "as drawn"},
+		{Region: "windows", Role: "donor", Requested: "ap", Mode: "ap", Reason: "as drawn"},
+		{Region: "pads", Role: "pad", Requested: "fe", Mode: "fe", Reason: "as drawn"},
+	}
+	// Strokes in a boustrophedon over 20 nm bands, so moves stay short.
+	type item struct {
+		at   r2.Point
+		kind int
+	}
+	items := make([]item, n)
+	for i := range items {
+		k := 0
+		switch u := rng.Float64(); {
+		case u < 0.05:
+			k = 2
+		case u < 0.30:
+			k = 1
+		}
+		items[i] = item{r2.Point{X: 10 + 960*rng.Float64(), Y: 10 + 960*rng.Float64()}, k}
+	}
+	band := func(p r2.Point) int { return int(p.Y / 20) }
+	slices.SortFunc(items, func(a, c item) int {
+		ba, bc := band(a.at), band(c.at)
+		if ba != bc {
+			return cmp.Compare(ba, bc)
+		}
+		if ba%2 == 0 {
+			return cmp.Compare(a.at.X, c.at.X)
+		}
+		return cmp.Compare(c.at.X, a.at.X)
+	})
+	var seg []int
+	for _, it := range items {
+		var id int
+		switch it.kind {
+		case 0:
+			l := 2 + 18*rng.Float64()
+			id = b.line("lines", []r2.Point{it.at, it.at.Add(r2.Point{X: l})}, int(l/lattice.DimerPitch)*2)
+		case 1:
+			id = b.dwell("windows", it.at, "P", "P", windowP, 6)
+		case 2:
+			id = b.raster("pads", r2.RectFromPoints(it.at, it.at.Add(r2.Point{X: 20, Y: 20})))
+		}
+		seg = append(seg, id)
+		if len(seg) == 200 {
+			b.segment(seg)
+			seg = nil
+		}
+	}
+	if len(seg) > 0 {
+		b.segment(seg)
+	}
+	return b.finish()
+}
+
+// builder assembles a self-consistent plan: strokes first, then the
+// timeline segment by segment.
+type builder struct {
+	p    *planner.Plan
+	t    float64
+	at   r2.Point
+	mode planner.WriteMode
+}
+
+func newBuilder(design, variant string, w, h float64) *builder {
+	return &builder{p: &planner.Plan{
+		Design: design, Variant: variant, Profile: fixtureProfile, Seed: 1,
+		FieldWidthNM: w, FieldHeightNM: h,
+		Conditions: []planner.Conditions{apConditions, feConditions},
+	}}
+}
+
+func pathLength(path []r2.Point) float64 {
+	l := 0.0
+	for i := 1; i < len(path); i++ {
+		l += path[i].Sub(path[i-1]).Norm()
+	}
+	return l
+}
+
+func (b *builder) add(s planner.Stroke) int {
+	s.ID = len(b.p.Strokes)
+	s.Segment = -1
+	b.p.Strokes = append(b.p.Strokes, s)
+	return s.ID
+}
+
+func (b *builder) line(region string, path []r2.Point, sites int) int {
+	l := pathLength(path)
+	return b.add(planner.Stroke{Region: region, Mode: planner.AP, Kind: planner.StrokeLine, Path: path,
+		Passes: apConditions.Passes, LengthNM: l, DurationS: float64(apConditions.Passes) * l / apConditions.SpeedNMPerS,
+		Sites: sites, Window: -1})
+}
+
+func (b *builder) dwell(region string, at r2.Point, species, template string, prob float64, sites int) int {
+	b.p.Windows = append(b.p.Windows, planner.Window{Region: region, Species: species, Template: template,
+		At: at, Sites: sites, Probability: prob})
+	return b.add(planner.Stroke{Region: region, Mode: planner.AP, Kind: planner.StrokeDwell, Path: []r2.Point{at},
+		Passes: 1, DurationS: dwellS, Sites: sites, Window: len(b.p.Windows) - 1})
+}
+
+// raster adds a serpentine FE fill of r (lines along x, FE pitch apart).
+func (b *builder) raster(region string, r r2.Rect) int {
+	in := r.ExpandedByMargin(-feConditions.LineWidthNM / 2)
+	var path []r2.Point
+	k := 0
+	for y := in.Y.Lo; y <= in.Y.Hi+1e-9; y += feConditions.PitchNM {
+		a, z := r2.Point{X: in.X.Lo, Y: y}, r2.Point{X: in.X.Hi, Y: y}
+		if k%2 == 1 {
+			a, z = z, a
+		}
+		path = append(path, a, z)
+		k++
+	}
+	l := pathLength(path)
+	return b.add(planner.Stroke{Region: region, Mode: planner.FE, Kind: planner.StrokeRaster, Path: path,
+		Passes: 1, LengthNM: l, DurationS: l / feConditions.SpeedNMPerS, Sites: int(r.Size().X * r.Size().Y * lattice.HDensity), Window: -1})
+}
+
+// pad adds an FE raster and an outline pass over r, and its sites.
+func (b *builder) pad(region string, set *lattice.SiteSet, surf *lattice.Surface, r r2.Rect) []int {
+	for t := range surf.Terraces {
+		for row := range surf.RowCount(t) {
+			for dm := range surf.DimerCount(t) {
+				for side := range 2 {
+					s := lattice.Site{Terrace: t, Row: row, Dimer: dm, Side: side}
+					if r.ContainsPoint(surf.Position(s)) && surf.Valid(s) {
+						set.Add(s)
+					}
+				}
+			}
+		}
+	}
+	id := b.raster(region, r)
+	b.p.Strokes[id].Sites = set.Count()
+	in := r.ExpandedByMargin(-feConditions.LineWidthNM / 2)
+	ring := []r2.Point{in.Lo(), {X: in.X.Hi, Y: in.Y.Lo}, in.Hi(), {X: in.X.Lo, Y: in.Y.Hi}, in.Lo()}
+	l := pathLength(ring)
+	o := b.add(planner.Stroke{Region: region, Mode: planner.FE, Kind: planner.StrokeOutline, Path: ring,
+		Passes: 1, LengthNM: l, DurationS: l / feConditions.SpeedNMPerS, Window: -1})
+	return []int{id, o}
+}
+
+func (b *builder) act(a planner.Action) {
+	a.Index = len(b.p.Actions)
+	a.StartS = b.t
+	b.p.Actions = append(b.p.Actions, a)
+	b.t += a.DurationS
+	b.at = a.To
+	switch a.Kind {
+	case planner.ActMove:
+		b.p.Breakdown.TravelS += a.DurationS
+	case planner.ActRegister:
+		b.p.Breakdown.RegistrationS += a.DurationS
+	case planner.ActSwitch:
+		b.p.Breakdown.ModeSwitchS += a.DurationS
+	case planner.ActVerify:
+		b.p.Breakdown.VerificationS += a.DurationS
+	case planner.ActDwell:
+		b.p.Breakdown.DwellS += a.DurationS
+	case planner.ActWrite:
+		if a.Mode == planner.FE {
+			b.p.Breakdown.FEWriteS += a.DurationS
+		} else {
+			b.p.Breakdown.APWriteS += a.DurationS
+		}
+	}
+}
+
+func (b *builder) move(to r2.Point, seg int, note string) {
+	d := to.Sub(b.at).Norm()
+	if d < 1e-9 {
+		return
+	}
+	b.act(planner.Action{Kind: planner.ActMove, Segment: seg, Stroke: -1, From: b.at, To: to,
+		DurationS: d/moveSpeedNMPS + settleS, SpeedNMPS: moveSpeedNMPS, Note: note})
+}
+
+// segment registers on the fiducial nearest the first stroke, writes the
+// strokes in order, and ends with a verification image.
+func (b *builder) segment(ids []int) {
+	seg := len(b.p.Segments)
+	first := b.p.Strokes[ids[0]].Path[0]
+	fid := b.p.Fiducials[0]
+	for _, f := range b.p.Fiducials {
+		if f.At.Sub(first).Norm() < fid.At.Sub(first).Norm() {
+			fid = f
+		}
+	}
+	b.move(fid.At, seg, "to fiducial "+fid.Name)
+	s := planner.Segment{Index: seg, Fiducial: fid.Name, FiducialAt: fid.At, StartS: b.t, Strokes: ids, BudgetS: math.Inf(1)}
+	b.act(planner.Action{Kind: planner.ActRegister, Segment: seg, Stroke: -1, From: fid.At, To: fid.At,
+		DurationS: registrationS, Note: "register on " + fid.Name})
+	for _, id := range ids {
+		st := &b.p.Strokes[id]
+		st.Segment = seg
+		if st.Mode == planner.AP {
+			s.BudgetS = min(s.BudgetS, apBudgetS)
+		} else {
+			s.BudgetS = min(s.BudgetS, feBudgetS)
+		}
+		cond := apConditions
+		if st.Mode == planner.FE {
+			cond = feConditions
+		}
+		if st.Mode != b.mode {
+			b.act(planner.Action{Kind: planner.ActSwitch, Segment: seg, Stroke: -1, From: b.at, To: b.at,
+				DurationS: switchS, Mode: st.Mode, BiasV: cond.BiasV, CurrentA: cond.CurrentA,
+				Note: fmt.Sprintf("switch to %s", st.Mode)})
+			b.mode = st.Mode
+		}
+		b.move(st.Path[0], seg, "")
+		end := st.Path[len(st.Path)-1]
+		if st.Kind == planner.StrokeDwell {
+			b.act(planner.Action{Kind: planner.ActDwell, Segment: seg, Stroke: id, From: st.Path[0], To: end,
+				DurationS: st.DurationS, Mode: st.Mode, BiasV: dwellBiasV, CurrentA: dwellCurrentA})
+			continue
+		}
+		b.act(planner.Action{Kind: planner.ActWrite, Segment: seg, Stroke: id, From: st.Path[0], To: end,
+			DurationS: st.DurationS, Mode: st.Mode, BiasV: cond.BiasV, CurrentA: cond.CurrentA, SpeedNMPS: cond.SpeedNMPerS})
+	}
+	b.act(planner.Action{Kind: planner.ActVerify, Segment: seg, Stroke: -1, From: b.at, To: b.at,
+		DurationS: verificationS, Note: "verification image"})
+	s.EndS = b.t
+	b.p.Segments = append(b.p.Segments, s)
+}
+
+// finish fills the totals, the spread and the yield.
+func (b *builder) finish() *planner.Plan {
+	p := b.p
+	p.TotalS = b.t
+	// A fixture spread, not a Monte Carlo.
+	p.P10S, p.P50S, p.P90S = 0.97*p.TotalS, 0.995*p.TotalS, 1.06*p.TotalS
+	probs := make([]float64, len(p.Windows))
+	for i, w := range p.Windows {
+		probs[i] = w.Probability
+	}
+	p.Yield = yieldOf(probs)
+	sites := 0
+	for _, m := range p.Modes {
+		sites += m.Sites
+	}
+	p.Coverage = planner.Coverage{OK: true, Sites: sites}
+	return p
+}
+
+// yieldOf returns the Poisson-binomial yield of independent windows. For
+// more than 2000 windows with one probability it uses the binomial pmf
+// in logs, O(n); otherwise the O(n²) recurrence.
+func yieldOf(probs []float64) planner.Yield {
+	n := len(probs)
+	y := planner.Yield{Windows: n}
+	if n == 0 {
+		y.All, y.DevicesPerPerfect = 1, 1
+		y.Distribution = []float64{1}
+		return y
+	}
+	dist := make([]float64, n+1)
+	if n > 2000 {
+		q := probs[0]
+		for k := 0; k <= n; k++ {
+			lg := func(x float64) float64 { v, _ := math.Lgamma(x); return v }
+			dist[k] = math.Exp(lg(float64(n+1)) - lg(float64(k+1)) - lg(float64(n-k+1)) +
+				float64(k)*math.Log(q) + float64(n-k)*math.Log1p(-q))
+		}
+	} else {
+		dist[0] = 1
+		for i, q := range probs {
+			for k := i + 1; k >= 1; k-- {
+				dist[k] = dist[k]*(1-q) + dist[k-1]*q
+			}
+			dist[0] *= 1 - q
+		}
+	}
+	lsum, varSum := 0.0, 0.0
+	for _, q := range probs {
+		y.MeanGood += q
+		lsum += math.Log10(q)
+		varSum += q * (1 - q)
+	}
+	y.All = dist[n]
+	y.Log10All = lsum
+	y.SDGood = math.Sqrt(varSum)
+	for y.DistributionFrom < n && dist[y.DistributionFrom] == 0 {
+		y.DistributionFrom++
+	}
+	y.Distribution = dist
+	if y.All > 0 {
+		y.DevicesPerPerfect = 1 / y.All
+	}
+	return y
+}

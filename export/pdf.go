@@ -1,0 +1,766 @@
+package export
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"maps"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+
+	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice"
+	"dimerpath/planner"
+)
+
+// WritePDF writes the operator's printed plan of p to w on opt.Paper: a
+// cover with the design, variant, date, instrument profile, conditions
+// and the caution; the pattern with the route, numbered segments,
+// fiducials and a scale bar; the segment table with a tick box per
+// segment (its header repeated on every page); the time breakdown, its
+// P10/P50/P90 spread and the dopant yield; and a zoomed figure of every
+// atomic-precision area (up to maxZoomAreas), with the lattice drawn
+// when opt.Pattern is set. Every page carries the caution and its page
+// number. Only grey levels, hatching and line styles tell things apart,
+// so the plan prints in black and white. It returns ctx.Err() when
+// cancelled. O(strokes + actions + region runs).
+func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) error {
+	if err := checkPlan(p); err != nil {
+		return err
+	}
+	sc := newScene(p, opt.Pattern)
+	header := fmt.Sprintf("dimerpath write plan · variant %s · %s", p.Variant, p.Design)
+	d := newPDFDoc(opt.Paper, header, opt, fmt.Sprintf("Write plan: %s, variant %s", p.Design, p.Variant))
+
+	steps := []struct {
+		name string
+		fn   func() error
+	}{
+		{"cover", func() error { pdfCover(d, p, opt); return nil }},
+		{"overview", func() error {
+			pdfOverview(d, sc, sc.field(), "Pattern and route")
+			if win, ok := deviceArea(sc); ok {
+				pdfOverview(d, sc, win, "Device area: the atomic-precision part")
+			}
+			return nil
+		}},
+		{"segments", func() error { return pdfSegments(ctx, d, p) }},
+		{"estimates", func() error { pdfEstimates(d, p); return nil }},
+		{"atomic-precision areas", func() error {
+			return pdfZooms(ctx, d, sc, func(f float64) { opt.progress("pdf: atomic-precision areas", (4+f)/5) })
+		}},
+	}
+	for i, s := range steps {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		opt.progress("pdf: "+s.name, float64(i)/float64(len(steps)))
+		if err := s.fn(); err != nil {
+			return err
+		}
+	}
+	opt.progress("pdf: writing", 1)
+	return d.output(w)
+}
+
+// strokeSummary counts strokes by mode and kind: "12 AP lines, 6 dwell
+// points, 2 FE rasters".
+func strokeSummary(p *planner.Plan) string {
+	type k struct {
+		m planner.WriteMode
+		s planner.StrokeKind
+	}
+	n := map[k]int{}
+	for i := range p.Strokes {
+		n[k{p.Strokes[i].Mode, p.Strokes[i].Kind}]++
+	}
+	var parts []string
+	for _, key := range []k{{planner.AP, planner.StrokeLine}, {planner.AP, planner.StrokeDwell}, {planner.AP, planner.StrokeOutline},
+		{planner.FE, planner.StrokeRaster}, {planner.FE, planner.StrokeOutline}, {planner.FE, planner.StrokeLine}, {planner.FE, planner.StrokeDwell},
+		{planner.AP, planner.StrokeRaster}} {
+		if c := n[key]; c > 0 {
+			parts = append(parts, fmt.Sprintf("%s %s %s", thousands(c), strings.ToUpper(string(key.m)), plural(kindNoun(key.s), c)))
+		}
+	}
+	return strings.Join(parts, ", ")
+}
+
+func kindNoun(k planner.StrokeKind) string {
+	switch k {
+	case planner.StrokeDwell:
+		return "dwell point"
+	case planner.StrokeRaster:
+		return "raster fill"
+	case planner.StrokeOutline:
+		return "outline pass"
+	}
+	return "line"
+}
+
+func plural(s string, n int) string {
+	switch {
+	case n == 1:
+		return s
+	case strings.HasSuffix(s, "s"):
+		return s + "es"
+	}
+	return s + "s"
+}
+
+// thousands formats n with thin spaces between groups of three digits.
+func thousands(n int) string {
+	s := strconv.Itoa(n)
+	if len(s) <= 4 {
+		return s
+	}
+	var b strings.Builder
+	for i, r := range s {
+		if i > 0 && (len(s)-i)%3 == 0 {
+			b.WriteString("\u2009")
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}
+
+func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
+	d.page()
+	c := d.c
+	c.text(vec{d.left(), d.y + 8}, "Write plan", font{size: 24, bold: true}, anchorStart, tag{})
+	d.y += 14
+	for _, l := range wrapText(c, p.Design, font{size: 16, bold: true}, d.width()) {
+		c.text(vec{d.left(), d.y + 6}, l, font{size: 16, bold: true}, anchorStart, tag{})
+		d.y += 7.5
+	}
+	d.y += 3
+	date := "(not given)"
+	if !opt.Date.IsZero() {
+		date = opt.Date.Format("Monday 2 January 2006")
+	}
+	rows := [][2]string{
+		{"Variant", p.Variant},
+		{"Date", date},
+		{"Instrument profile", p.Profile},
+		{"Field", fmt.Sprintf("%s × %s nm", sig(p.FieldWidthNM, 6), sig(p.FieldHeightNM, 6))},
+		{"Plan seed", strconv.FormatInt(p.Seed, 10)},
+	}
+	if opt.Generator != "" {
+		rows = append(rows, [2]string{"Planned with", opt.Generator})
+	}
+	d.keyValues(rows, 0.28)
+	d.cautionBox()
+
+	d.heading("At a glance", 30)
+	fids := map[string]bool{}
+	var fidNames []string
+	for _, s := range p.Segments {
+		if !fids[s.Fiducial] {
+			fids[s.Fiducial] = true
+			fidNames = append(fidNames, s.Fiducial)
+		}
+	}
+	species := map[string]int{}
+	for _, w := range p.Windows {
+		species[w.Species]++
+	}
+	var sp []string
+	for _, k := range slices.Sorted(maps.Keys(species)) {
+		sp = append(sp, fmt.Sprintf("%s: %s", k, thousands(species[k])))
+	}
+	windows := thousands(len(p.Windows))
+	if len(sp) > 0 {
+		windows += " (" + strings.Join(sp, ", ") + ")"
+	}
+	cov := "passed: every painted site is cleared, none outside the regions beyond the edge allowance"
+	if !p.Coverage.OK {
+		cov = fmt.Sprintf("FAILED: %d sites uncovered, %d over-cleared (see below)", p.Coverage.Uncovered, p.Coverage.Overcleared)
+	}
+	glance := [][2]string{
+		{"Expected write time", fmt.Sprintf("%s (%s)", clock(p.TotalS), duration(p.TotalS))},
+		{"Spread", fmt.Sprintf("P10 %s · P50 %s · P90 %s", clock(p.P10S), clock(p.P50S), clock(p.P90S))},
+		{"Segments", segmentsLine(len(p.Segments), fidNames)},
+		{"Strokes", fmt.Sprintf("%s: %s", thousands(len(p.Strokes)), strokeSummary(p))},
+		{"Tip actions", thousands(len(p.Actions))},
+		{"Dopant windows", windows},
+	}
+	if len(p.Windows) > 0 {
+		glance = append(glance,
+			[2]string{"All windows good", fmt.Sprintf("%s (probability that every window takes exactly one donor)", allGood(p.Yield))},
+			[2]string{"Good windows", meanGood(p.Yield)},
+			[2]string{"Devices per perfect one", devicesPerPerfect(p.Yield)},
+		)
+	}
+	glance = append(glance, [2]string{"Coverage check", cov})
+	d.keyValues(glance, 0.28)
+
+	d.heading("Tip conditions", 25)
+	t := newTable(d, fontBody,
+		tableColumn{title: "Mode", share: 14},
+		tableColumn{title: "Bias (V)", share: 9, right: true},
+		tableColumn{title: "Setpoint (nA)", share: 11, right: true},
+		tableColumn{title: "Line dose (mC/cm)", share: 12, right: true},
+		tableColumn{title: "Speed (nm/s)", share: 11, right: true},
+		tableColumn{title: "Line width (nm)", share: 11, right: true},
+		tableColumn{title: "Passes", share: 8, right: true},
+		tableColumn{title: "Pitch (nm)", share: 9, right: true},
+	)
+	t.start()
+	for _, cd := range p.Conditions {
+		pitch := ""
+		if cd.PitchNM > 0 {
+			pitch = sig(cd.PitchNM, 3)
+		}
+		t.row(modeName(cd.Mode), signedV(cd.BiasV), nanoAmps(cd.CurrentA), milliCoulombPerCm(cd.LineDoseCPerCm),
+			sig(cd.SpeedNMPerS, 4), sig(cd.LineWidthNM, 3), strconv.Itoa(cd.Passes), pitch)
+	}
+	for _, g := range dwellConditions(p) {
+		t.row(modeName(g.mode)+" dwell", signedV(g.bias), nanoAmps(g.current), "", fmt.Sprintf("%s s/point", sig(g.dwell, 3)), "", "", "")
+	}
+	t.end()
+
+	d.heading("Regions and write modes", 25)
+	t = newTable(d, fontBody,
+		tableColumn{title: "Region", share: 16},
+		tableColumn{title: "Role", share: 9},
+		tableColumn{title: "Drawn as", share: 9},
+		tableColumn{title: "Planned", share: 9},
+		tableColumn{title: "Sites", share: 9, right: true},
+		tableColumn{title: "Why", share: 48},
+	)
+	t.start()
+	for _, m := range p.Modes {
+		t.row(m.Region, m.Role, m.Requested, m.Mode, thousands(m.Sites), m.Reason)
+	}
+	t.end()
+
+	if len(p.Warnings) > 0 || len(p.Coverage.Issues) > 0 {
+		d.heading("Warnings", 12)
+		for _, s := range p.Warnings {
+			d.para("• "+s, fontBody)
+		}
+		for _, s := range p.Coverage.Issues {
+			d.para("• coverage: "+s, fontBody)
+		}
+	}
+	d.y += 2
+	d.para("Segments and strokes are numbered from 1 on paper; the JSON and CSV exports count them from 0. "+
+		"Positions are field coordinates in nm, origin at the lower-left corner of the scan field. "+
+		"Times are on the plan clock, from the start of the session.", font{size: 7.5, grey: 0.25})
+}
+
+func segmentsLine(n int, fiducials []string) string {
+	if len(fiducials) == 0 {
+		return thousands(n)
+	}
+	return fmt.Sprintf("%s, registering on %s", thousands(n), listShort(fiducials, 8))
+}
+
+func devicesPerPerfect(y planner.Yield) string {
+	if y.DevicesPerPerfect == 0 {
+		if l := y.Log10All; !math.IsInf(l, -1) && l < 0 {
+			return "about " + pow10(-l) + ": a perfect device is practically out of reach"
+		}
+		return "no number suffices: some window can never be good"
+	}
+	return sig(y.DevicesPerPerfect, 3) + " devices written on average to get one with every window good"
+}
+
+// allGood formats the probability that every window is good, from its
+// log10 where the probability itself underflows.
+func allGood(y planner.Yield) string {
+	if y.All == 0 && !math.IsInf(y.Log10All, -1) {
+		return pow10(y.Log10All)
+	}
+	return probability(y.All)
+}
+
+// pow10 formats 10^l as "2.3e−1324", for any finite l.
+func pow10(l float64) string {
+	e := math.Floor(l)
+	m := math.Pow(10, l-e)
+	if m >= 9.95 {
+		m, e = 1, e+1
+	}
+	return strconv.FormatFloat(m, 'f', 1, 64) + "e" + strings.Replace(strconv.Itoa(int(e)), "-", "−", 1)
+}
+
+// meanGood formats the mean and spread of the number of good windows.
+func meanGood(y planner.Yield) string {
+	s := fmt.Sprintf("%s of %s on average", sig(y.MeanGood, 4), thousands(y.Windows))
+	if y.SDGood > 0 {
+		s += fmt.Sprintf(" (standard deviation %s)", sig(y.SDGood, 2))
+	}
+	return s
+}
+
+// listShort joins up to n names, then "and K more".
+func listShort(names []string, n int) string {
+	if len(names) <= n {
+		return strings.Join(names, ", ")
+	}
+	return strings.Join(names[:n], ", ") + fmt.Sprintf(" and %d more", len(names)-n)
+}
+
+func modeName(m planner.WriteMode) string {
+	switch m {
+	case planner.AP:
+		return "AP (atomic precision)"
+	case planner.FE:
+		return "FE (field emission)"
+	}
+	return string(m)
+}
+
+func signedV(v float64) string {
+	if v > 0 {
+		return "+" + sig(v, 3)
+	}
+	return sig(v, 3)
+}
+
+// dwellGroup is one set of dwell conditions used by the plan.
+type dwellGroup struct {
+	mode    planner.WriteMode
+	bias    float64
+	current float64
+	dwell   float64 // mean dwell time per point, s
+	n       int
+}
+
+func dwellConditions(p *planner.Plan) []dwellGroup {
+	var out []dwellGroup
+	for _, a := range p.Actions {
+		if a.Kind != planner.ActDwell {
+			continue
+		}
+		found := false
+		for i := range out {
+			g := &out[i]
+			if g.mode == a.Mode && g.bias == a.BiasV && g.current == a.CurrentA {
+				g.dwell += a.DurationS
+				g.n++
+				found = true
+				break
+			}
+		}
+		if !found {
+			out = append(out, dwellGroup{mode: a.Mode, bias: a.BiasV, current: a.CurrentA, dwell: a.DurationS, n: 1})
+		}
+	}
+	for i := range out {
+		out[i].dwell /= float64(out[i].n)
+	}
+	return out
+}
+
+// pdfOverview draws the field window win on a page of its own: the
+// whole field, or the device area.
+func pdfOverview(d *pdfDoc, sc *scene, win r2.Rect, title string) {
+	p := sc.plan
+	d.page()
+	d.heading(title, 0)
+	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
+	legend := overviewLegend(m, sc, 1)
+	legendH := drawLegend(m, legend, vec{}, d.width())
+	// room below the field: axis labels, scale bar, legend, caption
+	below := 12 + 7 + legendH + 12
+	d.y += 5 // room for the y axis title
+	dev := box{d.left() + 12, d.y, d.width() - 12, d.remains() - below}
+	if win != sc.field() {
+		win = insideField(withAspect(win, dev), sc.field())
+	}
+	v := fitView(win, dev)
+	// Centre the field on the page width, keeping room for the y labels.
+	fr := v.frame()
+	v.origin.y = d.y
+	v.origin.x = d.left() + 12 + (d.width()-12-fr.w)/2
+	res := drawOverview(d.c, sc, v)
+	fr = v.frame()
+	if dev, ok := deviceArea(sc); ok && win == sc.field() {
+		// Mark the device area shown on the next page.
+		b := v.box(dev)
+		d.c.rect(b, pen{width: 0.3, dash: []float64{1, 1}}, noPaint, tag{})
+		d.c.text(vec{b.right() + 1.5, b.y + 2.5}, "device area,", fontSmall, anchorStart, tag{})
+		d.c.text(vec{b.right() + 1.5, b.y + 5.5}, "next page", fontSmall, anchorStart, tag{})
+	}
+	y := fr.bottom() + 12
+	drawScaleBar(d.c, v, vec{d.left(), y}, fr.w/4)
+	if res.unlabelled > 0 {
+		d.c.text(vec{d.left() + d.width(), y + 1.2}, fmt.Sprintf("%d segment numbers left out for lack of room (all are in the table)", res.unlabelled),
+			fontSmall, anchorEnd, tag{})
+	}
+	y += 7
+	y += drawLegend(d.c, legend, vec{d.left(), y}, d.width())
+	d.y = y + 2
+	what := fmt.Sprintf("Field %s × %s nm.", sig(p.FieldWidthNM, 6), sig(p.FieldHeightNM, 6))
+	if win != sc.field() {
+		what = fmt.Sprintf("x %s to %s nm, y %s to %s nm of the %s × %s nm field.", nm1(win.X.Lo), nm1(win.X.Hi), nm1(win.Y.Lo), nm1(win.Y.Hi),
+			sig(p.FieldWidthNM, 6), sig(p.FieldHeightNM, 6))
+	}
+	d.para(what+fmt.Sprintf(" %s strokes in %s segments; the number at each segment marks where its first stroke starts. "+
+		"Moves are drawn straight from point to point.", thousands(len(p.Strokes)), thousands(len(p.Segments))), font{size: 7.5, grey: 0.25})
+}
+
+// insideField shifts win, where it is smaller than the field, so that it
+// lies inside the field.
+func insideField(win, field r2.Rect) r2.Rect {
+	shift := func(lo, hi, flo, fhi float64) float64 {
+		switch {
+		case hi-lo > fhi-flo:
+			return 0
+		case lo < flo:
+			return flo - lo
+		case hi > fhi:
+			return fhi - hi
+		}
+		return 0
+	}
+	d := r2.Point{X: shift(win.X.Lo, win.X.Hi, field.X.Lo, field.X.Hi), Y: shift(win.Y.Lo, win.Y.Hi, field.Y.Lo, field.Y.Hi)}
+	return r2.RectFromPoints(win.Lo().Add(d), win.Hi().Add(d))
+}
+
+// condGroup is one line of a segment's table row: the strokes written
+// with one set of tip conditions.
+type condGroup struct {
+	mode    planner.WriteMode
+	dwell   bool
+	bias    float64
+	current float64
+	speed   float64
+	time    float64 // s, all its strokes
+	kinds   []planner.StrokeKind
+}
+
+// segmentGroups returns the condition sets of segment seg, in order of
+// first use, from its actions p.Actions[first:last]. Their number is the
+// number of distinct tip conditions, however many strokes alternate.
+func segmentGroups(p *planner.Plan, seg int, first, last int) []condGroup {
+	var out []condGroup
+	for _, a := range p.Actions[first:last] {
+		if a.Segment != seg || (a.Kind != planner.ActWrite && a.Kind != planner.ActDwell) {
+			continue
+		}
+		dwell := a.Kind == planner.ActDwell
+		speed := a.SpeedNMPS
+		if dwell {
+			speed = 0
+		}
+		k := slices.IndexFunc(out, func(g condGroup) bool {
+			return g.mode == a.Mode && g.dwell == dwell && g.bias == a.BiasV && g.current == a.CurrentA && g.speed == speed
+		})
+		if k < 0 {
+			out = append(out, condGroup{mode: a.Mode, dwell: dwell, bias: a.BiasV, current: a.CurrentA, speed: speed})
+			k = len(out) - 1
+		}
+		g := &out[k]
+		g.kinds = append(g.kinds, p.Strokes[a.Stroke].Kind)
+		g.time += a.DurationS
+	}
+	return out
+}
+
+// kindCounts formats a group's strokes as "12 line, 2 outline".
+func (g condGroup) kindCounts() string {
+	var parts []string
+	for _, k := range []planner.StrokeKind{planner.StrokeLine, planner.StrokeDwell, planner.StrokeRaster, planner.StrokeOutline} {
+		if n := countOf(g.kinds, k); n > 0 {
+			parts = append(parts, fmt.Sprintf("%d %s", n, shortKind(k)))
+		}
+	}
+	return strings.Join(parts, ", ")
+}
+
+func countOf[T comparable](s []T, v T) int {
+	n := 0
+	for _, x := range s {
+		if x == v {
+			n++
+		}
+	}
+	return n
+}
+
+// idRanges formats stroke IDs (shown from 1) as "4–9, 12", cut after a
+// few ranges.
+func idRanges(ids []int) string {
+	var parts []string
+	for i := 0; i < len(ids); {
+		j := i
+		for j+1 < len(ids) && ids[j+1] == ids[j]+1 {
+			j++
+		}
+		if j > i {
+			parts = append(parts, fmt.Sprintf("%d–%d", ids[i]+1, ids[j]+1))
+		} else {
+			parts = append(parts, strconv.Itoa(ids[i]+1))
+		}
+		i = j + 1
+	}
+	if len(parts) > 2 {
+		return parts[0] + ", " + parts[1] + ", …"
+	}
+	return strings.Join(parts, ", ")
+}
+
+func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan) error {
+	d.page()
+	d.heading("Segments", 0)
+	d.para("Write the segments in order. For each: move to its fiducial, image it and correct the offset, "+
+		"then write its strokes in order from the start position (stroke numbers as in the figures), "+
+		"and tick the box. Each line within a row is one set of tip conditions and the strokes written with it. "+
+		"Duration runs from the registration to the end of the segment; \"ends at\" is on the plan clock.", fontBody)
+	f := font{size: 7.5}
+	t := newTable(d, f,
+		tableColumn{title: "Done", share: 6},
+		tableColumn{title: "Seg", share: 5, right: true},
+		tableColumn{title: "Register on fiducial", share: 15},
+		tableColumn{title: "Start at x, y (nm); strokes", share: 17},
+		tableColumn{title: "Strokes", share: 14},
+		tableColumn{title: "Mode", share: 6},
+		tableColumn{title: "Bias (V)", share: 7, right: true},
+		tableColumn{title: "Setpoint (nA)", share: 9, right: true},
+		tableColumn{title: "Speed (nm/s)", share: 10, right: true},
+		tableColumn{title: "Duration (h:mm:ss)", share: 10, right: true},
+		tableColumn{title: "Ends at (h:mm:ss)", share: 10, right: true},
+	)
+	// Actions of each segment, found in one pass.
+	bounds := make([][2]int, len(p.Segments))
+	for i := range bounds {
+		bounds[i] = [2]int{len(p.Actions), 0}
+	}
+	for i, a := range p.Actions {
+		if a.Segment >= 0 {
+			b := &bounds[a.Segment]
+			b[0], b[1] = min(b[0], i), max(b[1], i+1)
+		}
+	}
+	t.start()
+	for i, s := range p.Segments {
+		if i%200 == 0 {
+			if err := ctx.Err(); err != nil {
+				return err
+			}
+		}
+		groups := segmentGroups(p, i, min(bounds[i][0], bounds[i][1]), bounds[i][1])
+		var strokes, modes, bias, cur, speed []string
+		for _, g := range groups {
+			strokes = append(strokes, g.kindCounts())
+			modes = append(modes, strings.ToUpper(string(g.mode)))
+			bias = append(bias, signedV(g.bias))
+			cur = append(cur, nanoAmps(g.current))
+			if g.dwell {
+				speed = append(speed, sig(g.time/float64(len(g.kinds)), 3)+" s/pt")
+			} else {
+				speed = append(speed, sig(g.speed, 4))
+			}
+		}
+		start := ""
+		if len(s.Strokes) > 0 {
+			q := p.Strokes[s.Strokes[0]].Path[0]
+			start = nm1(q.X) + ", " + nm1(q.Y) + "\n" + plural("stroke", len(s.Strokes)) + " " + idRanges(slices.Sorted(slices.Values(s.Strokes)))
+		}
+		fid := s.Fiducial + "\n(" + nm1(s.FiducialAt.X) + ", " + nm1(s.FiducialAt.Y) + ")"
+		top, _ := t.row("", strconv.Itoa(i+1), fid, start, strings.Join(strokes, "\n"), strings.Join(modes, "\n"),
+			strings.Join(bias, "\n"), strings.Join(cur, "\n"), strings.Join(speed, "\n"), clock(s.EndS-s.StartS), clock(s.EndS))
+		d.tickBox(t.colX(0)+1.6, top+1.2, 3.6)
+	}
+	t.row("", "", "Total", "", "", "", "", "", "", "", clock(p.TotalS))
+	t.end()
+	return nil
+}
+
+func shortKind(k planner.StrokeKind) string {
+	switch k {
+	case planner.StrokeDwell:
+		return "dwell"
+	case planner.StrokeRaster:
+		return "raster"
+	case planner.StrokeOutline:
+		return "outline"
+	}
+	return "line"
+}
+
+func pdfEstimates(d *pdfDoc, p *planner.Plan) {
+	d.page()
+	d.heading("Write time", 60)
+	d.para(fmt.Sprintf("Expected total %s (%s), the sum of the parts below. Writing alone (AP, FE and dwell) is %s of it.",
+		clock(p.TotalS), duration(p.TotalS), percent(safeDiv(p.Breakdown.APWriteS+p.Breakdown.FEWriteS+p.Breakdown.DwellS, p.TotalS))), fontBody)
+	h := drawBreakdownBars(d.c, p.Breakdown, box{d.left(), d.y, d.width(), 50})
+	d.y += h + 6
+	d.heading("Spread of the write time", 30)
+	h = drawSpread(d.c, p.P10S, p.P50S, p.P90S, p.TotalS, box{d.left() + 10, d.y, d.width() - 20, 25})
+	d.y += h + 2
+	d.y += spreadLegend(d.c, vec{d.left() + 10, d.y}, p.P50S, p.TotalS) + 4
+
+	d.heading("Dopant yield", 40)
+	if len(p.Windows) == 0 {
+		d.para("The plan has no dopant windows.", fontBody)
+		return
+	}
+	y := p.Yield
+	d.keyValues([][2]string{
+		{"Windows", thousands(y.Windows)},
+		{"All windows good", fmt.Sprintf("%s: the probability that every window takes exactly one donor", allGood(y))},
+		{"Good windows", meanGood(y)},
+		{"Devices per perfect one", devicesPerPerfect(y)},
+	}, 0.28)
+	t := newTable(d, fontBody,
+		tableColumn{title: "Species", share: 10},
+		tableColumn{title: "Template", share: 12},
+		tableColumn{title: "Windows", share: 10, right: true},
+		tableColumn{title: "P(exactly one donor) each", share: 22, right: true},
+		tableColumn{title: "Regions", share: 46},
+	)
+	type key struct {
+		species, template string
+		p                 float64
+	}
+	groups := map[key][]string{}
+	counts := map[key]int{}
+	var order []key
+	for _, w := range p.Windows {
+		k := key{w.Species, w.Template, w.Probability}
+		if counts[k] == 0 {
+			order = append(order, k)
+		}
+		counts[k]++
+		if !slices.Contains(groups[k], w.Region) {
+			groups[k] = append(groups[k], w.Region)
+		}
+	}
+	t.start()
+	for _, k := range order {
+		t.row(k.species, k.template, thousands(counts[k]), probability(k.p), listShort(groups[k], 6))
+	}
+	t.end()
+	d.need(62)
+	d.c.text(vec{d.left(), d.y + 3}, "Probability of k good windows (Poisson-binomial)", fontBold, anchorStart, tag{})
+	d.y += 5
+	h = drawDistribution(d.c, y.Distribution, box{d.left(), d.y, d.width(), 55})
+	d.y += h + 2
+}
+
+func safeDiv(a, b float64) float64 {
+	if b == 0 {
+		return 0
+	}
+	return a / b
+}
+
+// zoomLegend returns the key of the zoomed figures.
+func zoomLegend(sc *scene) []legendEntry {
+	var out []legendEntry
+	if sc.surf != nil {
+		out = append(out,
+			legendEntry{"H site of the lattice", func(c canvas, b box) {
+				c.dots([]vec{b.centre().sub(vec{1.2, 0}), b.centre().add(vec{1.2, 0})}, 0.35, greyLattice, tag{})
+			}},
+			legendEntry{"site to clear", func(c canvas, b box) {
+				c.dots([]vec{b.centre().sub(vec{1.2, 0}), b.centre().add(vec{1.2, 0})}, 0.5, greyToClear, tag{})
+			}})
+	}
+	out = append(out,
+		legendEntry{fmt.Sprintf("AP footprint (%s nm line)", sig(sc.apWidth, 2)), func(c canvas, b box) {
+			y := b.y + b.h/2
+			c.polyline([]vec{{b.x + 1, y}, {b.right() - 1, y}}, false, pen{width: 2.2, grey: greyFootprint, round: true}, noPaint, tag{})
+		}},
+		legendEntry{"tip path and direction", func(c canvas, b box) {
+			y := b.y + b.h/2
+			c.polyline([]vec{{b.x + 0.5, y}, {b.right() - 0.5, y}}, false, penCentre, noPaint, tag{})
+			drawArrowHead(c, vec{b.x, y}, vec{b.right() - 0.5, y}, 1.2)
+		}},
+		legendEntry{"dwell point", func(c canvas, b box) {
+			q, d := b.centre(), 1.4
+			c.polyline([]vec{{q.x - d, q.y}, {q.x + d, q.y}}, false, pen{width: 0.35}, noPaint, tag{})
+			c.polyline([]vec{{q.x, q.y - d}, {q.x, q.y + d}}, false, pen{width: 0.35}, noPaint, tag{})
+			c.circle(q, d*0.65, pen{width: 0.3}, noPaint, tag{})
+		}},
+		legendEntry{"FE stroke nearby", func(c canvas, b box) {
+			y := b.y + b.h/2
+			c.polyline([]vec{{b.x + 0.5, y}, {b.right() - 0.5, y}}, false, pen{width: 0.2, grey: 0.5, dash: []float64{1, 0.7}}, noPaint, tag{})
+		}},
+		legendEntry{"12  stroke number (at its start)", func(c canvas, b box) {}},
+	)
+	return out
+}
+
+func pdfZooms(ctx context.Context, d *pdfDoc, sc *scene, progress func(float64)) error {
+	p := sc.plan
+	areas, omitted := apAreas(p)
+	if len(areas) == 0 {
+		return nil
+	}
+	d.page()
+	d.heading("Atomic-precision areas", 0)
+	intro := "Every area written in atomic-precision mode, zoomed so that the dimer rows show. "
+	if sc.surf == nil {
+		intro += "(The lattice is not drawn: the export was given no lattice.) "
+	}
+	d.para(intro+"Check each stroke against the rows before writing.", fontBody)
+	d.y += drawLegend(d.c, zoomLegend(sc), vec{d.left(), d.y}, d.width()) + 2
+	figH := (d.bottom() - marginTop - 2*16) / 2
+	for i, a := range areas {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		progress(float64(i) / float64(len(areas)))
+		if d.remains() < figH*0.75+16 {
+			d.page()
+		}
+		h := math.Min(figH, d.remains()-16)
+		regions, strokes := areaCaption(p, a)
+		win := a.win
+		cap := fmt.Sprintf("AP area %d of %d: %s", i+1, len(areas)+omitted, regions)
+		for _, l := range wrapText(d.c, cap, fontBold, d.width()) {
+			d.c.text(vec{d.left(), d.y + 3.2}, l, fontBold, anchorStart, tag{})
+			d.y += 4
+		}
+		d.c.text(vec{d.left(), d.y + 3}, fmt.Sprintf("%s · x %s to %s nm, y %s to %s nm%s", strokes, nm1(win.X.Lo), nm1(win.X.Hi),
+			nm1(win.Y.Lo), nm1(win.Y.Hi), rowsNote(sc, win)), fontSmall, anchorStart, tag{})
+		d.y += 5
+		dev := box{d.left(), d.y, d.width(), h}
+		drawZoom(d.c, sc, a, dev, i)
+		v := fitView(withAspect(a.win, dev), dev)
+		d.y = v.frame().bottom() + 2
+		drawScaleBar(d.c, v, vec{d.left(), d.y}, 40)
+		d.y += 7
+	}
+	if omitted > 0 {
+		d.para(fmt.Sprintf("%d further atomic-precision areas are not drawn: a printed plan shows at most %d. "+
+			"Every stroke is in the JSON and CSV exports.", omitted, maxZoomAreas), fontBold)
+	}
+	return nil
+}
+
+// rowsNote names the terraces in win and their row directions.
+func rowsNote(sc *scene, win r2.Rect) string {
+	if sc.surf == nil {
+		return ""
+	}
+	var parts []string
+	seen := map[int]bool{}
+	for gx := 0; gx <= 4; gx++ {
+		for gy := 0; gy <= 4; gy++ {
+			q := r2.Point{X: win.X.Lo + win.Size().X*float64(gx)/4, Y: win.Y.Lo + win.Size().Y*float64(gy)/4}
+			t := sc.surf.TerraceAt(q)
+			if t < 0 || seen[t] {
+				continue
+			}
+			seen[t] = true
+			dir := "along x"
+			if sc.surf.Terraces[t].Rows == lattice.RowsAlongY {
+				dir = "along y"
+			}
+			parts = append(parts, fmt.Sprintf("%s rows %s", sc.surf.Terraces[t].Name, dir))
+		}
+	}
+	slices.Sort(parts)
+	if len(parts) == 0 {
+		return ""
+	}
+	return " · " + strings.Join(parts, ", ")
+}

@@ -1,0 +1,606 @@
+package export
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"reflect"
+	"strings"
+
+	"github.com/golang/geo/r2"
+
+	"dimerpath/planner"
+)
+
+// PlanFormat and PlanVersion identify dimerpath plan files. A file with a
+// higher version is refused, never half-read.
+const (
+	PlanFormat  = "dimerpath-plan"
+	PlanVersion = 1
+)
+
+// MaxPlanFileBytes bounds what ReadPlanJSON reads (1 GiB), so a wrong
+// file cannot exhaust memory.
+const MaxPlanFileBytes = 1 << 30
+
+// The plan file's own schema. It mirrors planner.Plan field by field but
+// is declared here, so the file format changes only when this file does;
+// points are [x, y] arrays in nm. Fields marked "derived" repeat, for
+// people reading the file with their own scripts, what the rest of the
+// file says; the reader checks them and rebuilds nothing from them.
+
+type xy [2]float64
+
+func xyOf(p r2.Point) xy     { return xy{p.X, p.Y} }
+func (q xy) point() r2.Point { return r2.Point{X: q[0], Y: q[1]} }
+
+type planFile struct {
+	Format    string `json:"format"`
+	Version   int    `json:"version"`
+	Generator string `json:"generator,omitempty"`
+	Caution   string `json:"caution"` // derived: planner.Caution
+
+	Design  string `json:"design"`
+	Variant string `json:"variant"`
+	Profile string `json:"profile"`
+	Seed    int64  `json:"seed"`
+	FieldNM xy     `json:"field_nm"`
+
+	Conditions []conditionsJSON `json:"conditions"`
+	Modes      []regionModeJSON `json:"modes"`
+	Fiducials  []fiducialJSON   `json:"fiducials"`
+	Strokes    []strokeJSON     `json:"strokes"`
+	Segments   []segmentJSON    `json:"segments"`
+	Actions    []actionJSON     `json:"actions"`
+
+	Breakdown breakdownJSON `json:"breakdown"`
+	TotalS    float64       `json:"total_s"`
+	P10S      float64       `json:"p10_s"`
+	P50S      float64       `json:"p50_s"`
+	P90S      float64       `json:"p90_s"`
+
+	Windows  []windowJSON `json:"windows"`
+	Yield    yieldJSON    `json:"yield"`
+	Coverage coverageJSON `json:"coverage"`
+	Warnings []string     `json:"warnings"`
+}
+
+type conditionsJSON struct {
+	Mode           string  `json:"mode"`
+	BiasV          float64 `json:"bias_v"`
+	CurrentA       float64 `json:"current_a"`
+	LineDoseCPerCm float64 `json:"line_dose_c_per_cm"`
+	SpeedNMPerS    float64 `json:"speed_nm_per_s"`
+	LineWidthNM    float64 `json:"line_width_nm"`
+	Passes         int     `json:"passes"`
+	PitchNM        float64 `json:"pitch_nm,omitempty"`
+}
+
+type regionModeJSON struct {
+	Region    string `json:"region"`
+	Role      string `json:"role"`
+	Requested string `json:"requested"`
+	Mode      string `json:"mode"`
+	Reason    string `json:"reason"`
+	Sites     int    `json:"sites"`
+}
+
+type fiducialJSON struct {
+	Name string `json:"name"`
+	AtNM xy     `json:"at_nm"`
+}
+
+type strokeJSON struct {
+	ID        int     `json:"id"`
+	Region    string  `json:"region"`
+	Mode      string  `json:"mode"`
+	Kind      string  `json:"kind"`
+	StartNM   xy      `json:"start_nm"` // derived: path_nm[0]
+	EndNM     xy      `json:"end_nm"`   // derived: the last point of path_nm
+	PathNM    []xy    `json:"path_nm"`
+	Passes    int     `json:"passes"`
+	LengthNM  float64 `json:"length_nm"`
+	DurationS float64 `json:"duration_s"`
+	Sites     int     `json:"sites"`
+	Segment   int     `json:"segment"`
+	Window    int     `json:"window"`
+	// derived: the tip conditions of the action that writes the stroke
+	BiasV     float64 `json:"bias_v,omitempty"`
+	CurrentA  float64 `json:"current_a,omitempty"`
+	SpeedNMPS float64 `json:"speed_nm_per_s,omitempty"`
+}
+
+type segmentJSON struct {
+	Index        int     `json:"index"`
+	Fiducial     string  `json:"fiducial"`
+	FiducialAtNM xy      `json:"fiducial_at_nm"`
+	StartS       float64 `json:"start_s"`
+	EndS         float64 `json:"end_s"`
+	BudgetS      float64 `json:"budget_s"`
+	Strokes      []int   `json:"strokes"`
+}
+
+type actionJSON struct {
+	Index     int     `json:"index"`
+	Kind      string  `json:"kind"`
+	Segment   int     `json:"segment"`
+	Stroke    int     `json:"stroke"`
+	Fiducial  string  `json:"fiducial,omitempty"` // derived: the segment's fiducial, on register actions
+	FromNM    xy      `json:"from_nm"`
+	ToNM      xy      `json:"to_nm"`
+	StartS    float64 `json:"start_s"`
+	DurationS float64 `json:"duration_s"`
+	Mode      string  `json:"mode,omitempty"`
+	BiasV     float64 `json:"bias_v,omitempty"`
+	CurrentA  float64 `json:"current_a,omitempty"`
+	SpeedNMPS float64 `json:"speed_nm_per_s,omitempty"`
+	Note      string  `json:"note,omitempty"`
+}
+
+type breakdownJSON struct {
+	APWriteS      float64 `json:"ap_write_s"`
+	FEWriteS      float64 `json:"fe_write_s"`
+	DwellS        float64 `json:"dwell_s"`
+	TravelS       float64 `json:"travel_s"`
+	ModeSwitchS   float64 `json:"mode_switch_s"`
+	RegistrationS float64 `json:"registration_s"`
+	VerificationS float64 `json:"verification_s"`
+}
+
+type windowJSON struct {
+	Region      string  `json:"region"`
+	Species     string  `json:"species"`
+	Template    string  `json:"template"`
+	AtNM        xy      `json:"at_nm"`
+	Sites       int     `json:"sites"`
+	Probability float64 `json:"probability"`
+}
+
+type yieldJSON struct {
+	Windows           int       `json:"windows"`
+	All               float64   `json:"all"`
+	Log10All          *float64  `json:"log10_all"` // null for -Inf (a window that can never be good)
+	MeanGood          float64   `json:"mean_good"`
+	SDGood            float64   `json:"sd_good"`
+	Distribution      []float64 `json:"distribution"`
+	DistributionFrom  int       `json:"distribution_from"`
+	DevicesPerPerfect float64   `json:"devices_per_perfect"`
+}
+
+// log10JSON carries log10 of a probability: null for -Inf.
+func log10JSON(v float64) *float64 {
+	if math.IsInf(v, -1) {
+		return nil
+	}
+	return &v
+}
+
+func log10Of(p *float64) float64 {
+	if p == nil {
+		return math.Inf(-1)
+	}
+	return *p
+}
+
+type coverageJSON struct {
+	OK          bool     `json:"ok"`
+	Sites       int      `json:"sites"`
+	Uncovered   int      `json:"uncovered"`
+	Overcleared int      `json:"overcleared"`
+	Issues      []string `json:"issues"`
+}
+
+// strokeActions returns, for each stroke, the index of the first write
+// or dwell action that writes it, or -1.
+func strokeActions(p *planner.Plan) []int {
+	out := make([]int, len(p.Strokes))
+	for i := range out {
+		out[i] = -1
+	}
+	for i, a := range p.Actions {
+		if (a.Kind == planner.ActWrite || a.Kind == planner.ActDwell) && a.Stroke >= 0 && a.Stroke < len(out) && out[a.Stroke] < 0 {
+			out[a.Stroke] = i
+		}
+	}
+	return out
+}
+
+// WritePlanJSON writes p to w as a dimerpath plan file (format
+// PlanFormat, version PlanVersion; the schema is in the README): the
+// full plan, every stroke with its path and tip conditions, every action
+// in order, the estimates and the caution. Top-level fields stand one a
+// line and array elements one a line, so the file diffs well and
+// streams. generator names the program ("dimerpath 0.1.0"), or is empty.
+// It refuses, with a *PlanError naming the field, a plan the file cannot
+// carry (NaN, negative durations, broken references). O(size of p).
+func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
+	if err := checkPlan(p); err != nil {
+		return err
+	}
+	jw := &jsonWriter{w: bufio.NewWriterSize(w, 1<<16)}
+	jw.enc = json.NewEncoder(&jw.buf)
+	jw.enc.SetEscapeHTML(false)
+
+	jw.raw("{\n")
+	jw.field("format", PlanFormat)
+	jw.field("version", PlanVersion)
+	if generator != "" {
+		jw.field("generator", generator)
+	}
+	jw.field("caution", planner.Caution)
+	jw.field("design", p.Design)
+	jw.field("variant", p.Variant)
+	jw.field("profile", p.Profile)
+	jw.field("seed", p.Seed)
+	jw.field("field_nm", xy{p.FieldWidthNM, p.FieldHeightNM})
+	jw.array("conditions", len(p.Conditions), func(i int) any {
+		c := p.Conditions[i]
+		return conditionsJSON{Mode: string(c.Mode), BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
+			SpeedNMPerS: c.SpeedNMPerS, LineWidthNM: c.LineWidthNM, Passes: c.Passes, PitchNM: c.PitchNM}
+	})
+	jw.array("modes", len(p.Modes), func(i int) any {
+		m := p.Modes[i]
+		return regionModeJSON{Region: m.Region, Role: m.Role, Requested: m.Requested, Mode: m.Mode, Reason: m.Reason, Sites: m.Sites}
+	})
+	jw.array("fiducials", len(p.Fiducials), func(i int) any {
+		return fiducialJSON{Name: p.Fiducials[i].Name, AtNM: xyOf(p.Fiducials[i].At)}
+	})
+	writer := strokeActions(p)
+	var path []xy
+	jw.array("strokes", len(p.Strokes), func(i int) any {
+		s := &p.Strokes[i]
+		path = path[:0]
+		for _, q := range s.Path {
+			path = append(path, xyOf(q))
+		}
+		sj := strokeJSON{ID: s.ID, Region: s.Region, Mode: string(s.Mode), Kind: string(s.Kind),
+			StartNM: path[0], EndNM: path[len(path)-1], PathNM: path, Passes: s.Passes, LengthNM: s.LengthNM,
+			DurationS: s.DurationS, Sites: s.Sites, Segment: s.Segment, Window: s.Window}
+		if k := writer[i]; k >= 0 {
+			a := p.Actions[k]
+			sj.BiasV, sj.CurrentA, sj.SpeedNMPS = a.BiasV, a.CurrentA, a.SpeedNMPS
+		}
+		return sj
+	})
+	jw.array("segments", len(p.Segments), func(i int) any {
+		s := p.Segments[i]
+		return segmentJSON{Index: s.Index, Fiducial: s.Fiducial, FiducialAtNM: xyOf(s.FiducialAt), StartS: s.StartS,
+			EndS: s.EndS, BudgetS: s.BudgetS, Strokes: nonNil(s.Strokes)}
+	})
+	jw.array("actions", len(p.Actions), func(i int) any {
+		a := p.Actions[i]
+		aj := actionJSON{Index: a.Index, Kind: string(a.Kind), Segment: a.Segment, Stroke: a.Stroke,
+			FromNM: xyOf(a.From), ToNM: xyOf(a.To), StartS: a.StartS, DurationS: a.DurationS, Mode: string(a.Mode),
+			BiasV: a.BiasV, CurrentA: a.CurrentA, SpeedNMPS: a.SpeedNMPS, Note: a.Note}
+		if a.Kind == planner.ActRegister && a.Segment >= 0 {
+			aj.Fiducial = p.Segments[a.Segment].Fiducial
+		}
+		return aj
+	})
+	b := p.Breakdown
+	jw.field("breakdown", breakdownJSON{APWriteS: b.APWriteS, FEWriteS: b.FEWriteS, DwellS: b.DwellS, TravelS: b.TravelS,
+		ModeSwitchS: b.ModeSwitchS, RegistrationS: b.RegistrationS, VerificationS: b.VerificationS})
+	jw.field("total_s", p.TotalS)
+	jw.field("p10_s", p.P10S)
+	jw.field("p50_s", p.P50S)
+	jw.field("p90_s", p.P90S)
+	jw.array("windows", len(p.Windows), func(i int) any {
+		w := p.Windows[i]
+		return windowJSON{Region: w.Region, Species: w.Species, Template: w.Template, AtNM: xyOf(w.At), Sites: w.Sites, Probability: w.Probability}
+	})
+	y := p.Yield
+	jw.field("yield", yieldJSON{Windows: y.Windows, All: y.All, Log10All: log10JSON(y.Log10All), MeanGood: y.MeanGood, SDGood: y.SDGood,
+		Distribution: nonNil(y.Distribution), DistributionFrom: y.DistributionFrom, DevicesPerPerfect: y.DevicesPerPerfect})
+	c := p.Coverage
+	jw.field("coverage", coverageJSON{OK: c.OK, Sites: c.Sites, Uncovered: c.Uncovered, Overcleared: c.Overcleared, Issues: nonNil(c.Issues)})
+	jw.last = true
+	jw.field("warnings", nonNil(p.Warnings))
+	jw.raw("}\n")
+	if jw.err != nil {
+		return jw.err
+	}
+	return jw.w.Flush()
+}
+
+// nonNil returns s, or an empty slice for nil, so the file always holds
+// arrays (never null) where the schema says array.
+func nonNil[T any](s []T) []T {
+	if s == nil {
+		return []T{}
+	}
+	return s
+}
+
+// jsonWriter writes the plan file's layout: top-level fields one a line,
+// array elements one a line.
+type jsonWriter struct {
+	w    *bufio.Writer
+	buf  bytes.Buffer
+	enc  *json.Encoder
+	err  error
+	last bool // the next field is the last one (no trailing comma)
+}
+
+func (j *jsonWriter) raw(s string) {
+	if j.err == nil {
+		_, j.err = j.w.WriteString(s)
+	}
+}
+
+// value encodes v compactly, without the encoder's newline.
+func (j *jsonWriter) value(v any) {
+	if j.err != nil {
+		return
+	}
+	j.buf.Reset()
+	if err := j.enc.Encode(v); err != nil {
+		j.err = err
+		return
+	}
+	_, j.err = j.w.Write(bytes.TrimSuffix(j.buf.Bytes(), []byte("\n")))
+}
+
+func (j *jsonWriter) field(name string, v any) {
+	j.raw("  \"" + name + "\": ")
+	j.value(v)
+	j.comma()
+}
+
+func (j *jsonWriter) comma() {
+	if j.last {
+		j.raw("\n")
+	} else {
+		j.raw(",\n")
+	}
+}
+
+func (j *jsonWriter) array(name string, n int, elem func(i int) any) {
+	if n == 0 {
+		j.field(name, []int{})
+		return
+	}
+	j.raw("  \"" + name + "\": [\n")
+	for i := range n {
+		j.raw("    ")
+		j.value(elem(i))
+		if i < n-1 {
+			j.raw(",\n")
+		} else {
+			j.raw("\n")
+		}
+		if j.err != nil {
+			return
+		}
+	}
+	j.raw("  ]")
+	j.comma()
+}
+
+// ReadPlanJSON reads a plan file written by WritePlanJSON and returns
+// the plan. It refuses, with a *PlanError naming the line or the field
+// and value, anything else: not JSON (ErrSyntax), not a plan file
+// (ErrNotPlan), a newer
+// version (ErrVersion), unknown fields, values out of range or
+// references that do not resolve (ErrInvalid), more than
+// MaxPlanFileBytes (ErrTooLarge). The derived fields (start_nm, end_nm,
+// a register action's fiducial) must agree with the rest of the file.
+func ReadPlanJSON(r io.Reader) (*planner.Plan, error) {
+	data, err := io.ReadAll(io.LimitReader(r, MaxPlanFileBytes+1))
+	if err != nil {
+		return nil, &PlanError{Err: err}
+	}
+	if len(data) > MaxPlanFileBytes {
+		return nil, &PlanError{Err: fmt.Errorf("%w: more than %d bytes", ErrTooLarge, MaxPlanFileBytes)}
+	}
+	// Identify the file before decoding it strictly, so a design file or
+	// a future version gets the right message.
+	format, version, err := sniffHead(data)
+	if err != nil {
+		return nil, syntaxError(data, err)
+	}
+	if format != PlanFormat {
+		return nil, &PlanError{Field: "format", Value: jsonText(format),
+			Err: fmt.Errorf("%w (want %q)", ErrNotPlan, PlanFormat)}
+	}
+	ver, ok := version.(float64)
+	if !ok || ver != float64(int(ver)) || ver < 1 || ver > PlanVersion {
+		return nil, &PlanError{Field: "version", Value: jsonText(version),
+			Err: fmt.Errorf("%w (this dimerpath reads versions 1 to %d)", ErrVersion, PlanVersion)}
+	}
+	var f planFile
+	dec := json.NewDecoder(bytes.NewReader(data))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&f); err != nil {
+		return nil, syntaxError(data, err)
+	}
+	if dec.More() {
+		return nil, &PlanError{Err: fmt.Errorf("%w: data after the plan object", ErrSyntax)}
+	}
+	p, err := f.plan()
+	if err != nil {
+		return nil, err
+	}
+	if err := checkPlan(p); err != nil {
+		return nil, err
+	}
+	return p, nil
+}
+
+// ReadPlanFile reads the plan file at path (see ReadPlanJSON); errors
+// name the file.
+func ReadPlanFile(path string) (*planner.Plan, error) {
+	fh, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer fh.Close()
+	p, err := ReadPlanJSON(fh)
+	if pe, ok := errors.AsType[*PlanError](err); ok {
+		pe.File = path
+	}
+	return p, err
+}
+
+// sniffHead returns the top-level "format" and "version" values of the
+// JSON object in data (nil where absent). It stops as soon as it has
+// both, which in a file dimerpath wrote is after the first two fields,
+// and otherwise skips over the other values without decoding them.
+func sniffHead(data []byte) (format, version any, err error) {
+	dec := json.NewDecoder(bytes.NewReader(data))
+	tok, err := dec.Token()
+	if err != nil {
+		return nil, nil, err
+	}
+	if d, ok := tok.(json.Delim); !ok || d != '{' {
+		return nil, nil, fmt.Errorf("the file holds a JSON %s, not an object", jsonKindOfToken(tok))
+	}
+	var haveF, haveV bool
+	for dec.More() && !(haveF && haveV) {
+		tok, err := dec.Token()
+		if err != nil {
+			return nil, nil, err
+		}
+		key, _ := tok.(string)
+		switch key {
+		case "format":
+			err, haveF = dec.Decode(&format), true
+		case "version":
+			err, haveV = dec.Decode(&version), true
+		default:
+			var skip json.RawMessage
+			err = dec.Decode(&skip)
+		}
+		if err != nil {
+			return nil, nil, err
+		}
+	}
+	return format, version, nil
+}
+
+func jsonKindOfToken(tok json.Token) string {
+	switch tok.(type) {
+	case json.Delim:
+		return "array"
+	case string:
+		return "string"
+	case float64:
+		return "number"
+	case bool:
+		return "boolean"
+	}
+	return "null"
+}
+
+func jsonText(v any) string {
+	if v == nil {
+		return "(missing)"
+	}
+	b, _ := json.Marshal(v)
+	return string(b)
+}
+
+// syntaxError turns a decoding error into a *PlanError with the line of
+// the offending byte.
+func syntaxError(data []byte, err error) error {
+	pe := &PlanError{Err: fmt.Errorf("%w: %v", ErrSyntax, strings.TrimPrefix(err.Error(), "json: "))}
+	var se *json.SyntaxError
+	var te *json.UnmarshalTypeError
+	switch {
+	case errors.As(err, &se):
+		pe.Line = 1 + bytes.Count(data[:min(int(se.Offset), len(data))], []byte("\n"))
+	case errors.As(err, &te):
+		pe.Line = 1 + bytes.Count(data[:min(int(te.Offset), len(data))], []byte("\n"))
+		pe.Field = te.Field
+		pe.Err = fmt.Errorf("%w: a JSON %s where the schema wants %s", ErrInvalid, te.Value, jsonKind(te.Type))
+	case strings.HasPrefix(err.Error(), "json: unknown field"):
+		pe.Err = fmt.Errorf("%w: %s", ErrInvalid, strings.TrimPrefix(err.Error(), "json: "))
+	}
+	return pe
+}
+
+// jsonKind names the JSON value a Go type decodes from.
+func jsonKind(t reflect.Type) string {
+	switch t.Kind() {
+	case reflect.Float32, reflect.Float64:
+		return "a number"
+	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64,
+		reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64:
+		return "a whole number"
+	case reflect.String:
+		return "a string"
+	case reflect.Bool:
+		return "true or false"
+	case reflect.Slice, reflect.Array:
+		return "an array"
+	}
+	return "an object"
+}
+
+// plan converts the file to a Plan, checking the derived fields.
+func (f *planFile) plan() (*planner.Plan, error) {
+	p := &planner.Plan{Design: f.Design, Variant: f.Variant, Profile: f.Profile, Seed: f.Seed,
+		FieldWidthNM: f.FieldNM[0], FieldHeightNM: f.FieldNM[1],
+		TotalS: f.TotalS, P10S: f.P10S, P50S: f.P50S, P90S: f.P90S, Warnings: f.Warnings}
+	p.Conditions = mapSlice(f.Conditions, func(c conditionsJSON) planner.Conditions {
+		return planner.Conditions{Mode: planner.WriteMode(c.Mode), BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
+			SpeedNMPerS: c.SpeedNMPerS, LineWidthNM: c.LineWidthNM, Passes: c.Passes, PitchNM: c.PitchNM}
+	})
+	p.Modes = mapSlice(f.Modes, func(m regionModeJSON) planner.RegionMode {
+		return planner.RegionMode{Region: m.Region, Role: m.Role, Requested: m.Requested, Mode: m.Mode, Reason: m.Reason, Sites: m.Sites}
+	})
+	p.Fiducials = mapSlice(f.Fiducials, func(d fiducialJSON) planner.Fiducial {
+		return planner.Fiducial{Name: d.Name, At: d.AtNM.point()}
+	})
+	p.Strokes = make([]planner.Stroke, len(f.Strokes))
+	for i, s := range f.Strokes {
+		if len(s.PathNM) > 0 && (s.StartNM != s.PathNM[0] || s.EndNM != s.PathNM[len(s.PathNM)-1]) {
+			return nil, invalid(fmt.Sprintf("strokes[%d].start_nm", i), fmt.Sprint(s.StartNM[:]),
+				"start_nm and end_nm must be the first and last points of path_nm")
+		}
+		p.Strokes[i] = planner.Stroke{ID: s.ID, Region: s.Region, Mode: planner.WriteMode(s.Mode), Kind: planner.StrokeKind(s.Kind),
+			Path: mapSlice(s.PathNM, xy.point), Passes: s.Passes, LengthNM: s.LengthNM, DurationS: s.DurationS,
+			Sites: s.Sites, Segment: s.Segment, Window: s.Window}
+	}
+	p.Segments = mapSlice(f.Segments, func(s segmentJSON) planner.Segment {
+		return planner.Segment{Index: s.Index, Fiducial: s.Fiducial, FiducialAt: s.FiducialAtNM.point(), StartS: s.StartS,
+			EndS: s.EndS, BudgetS: s.BudgetS, Strokes: s.Strokes}
+	})
+	p.Actions = make([]planner.Action, len(f.Actions))
+	for i, a := range f.Actions {
+		if a.Fiducial != "" && (a.Segment < 0 || a.Segment >= len(p.Segments) || p.Segments[a.Segment].Fiducial != a.Fiducial) {
+			return nil, invalid(fmt.Sprintf("actions[%d].fiducial", i), a.Fiducial, "not the fiducial of segment %d", a.Segment)
+		}
+		p.Actions[i] = planner.Action{Index: a.Index, Kind: planner.ActionKind(a.Kind), Segment: a.Segment, Stroke: a.Stroke,
+			From: a.FromNM.point(), To: a.ToNM.point(), StartS: a.StartS, DurationS: a.DurationS, Mode: planner.WriteMode(a.Mode),
+			BiasV: a.BiasV, CurrentA: a.CurrentA, SpeedNMPS: a.SpeedNMPS, Note: a.Note}
+	}
+	b := f.Breakdown
+	p.Breakdown = planner.Breakdown{APWriteS: b.APWriteS, FEWriteS: b.FEWriteS, DwellS: b.DwellS, TravelS: b.TravelS,
+		ModeSwitchS: b.ModeSwitchS, RegistrationS: b.RegistrationS, VerificationS: b.VerificationS}
+	p.Windows = mapSlice(f.Windows, func(w windowJSON) planner.Window {
+		return planner.Window{Region: w.Region, Species: w.Species, Template: w.Template, At: w.AtNM.point(), Sites: w.Sites, Probability: w.Probability}
+	})
+	y := f.Yield
+	p.Yield = planner.Yield{Windows: y.Windows, All: y.All, Log10All: log10Of(y.Log10All), MeanGood: y.MeanGood, SDGood: y.SDGood,
+		Distribution: y.Distribution, DistributionFrom: y.DistributionFrom, DevicesPerPerfect: y.DevicesPerPerfect}
+	c := f.Coverage
+	p.Coverage = planner.Coverage{OK: c.OK, Sites: c.Sites, Uncovered: c.Uncovered, Overcleared: c.Overcleared, Issues: c.Issues}
+	return p, nil
+}
+
+// mapSlice applies fn to each element; nil stays nil.
+func mapSlice[S, T any](s []S, fn func(S) T) []T {
+	if s == nil {
+		return nil
+	}
+	out := make([]T, len(s))
+	for i, v := range s {
+		out[i] = fn(v)
+	}
+	return out
+}

@@ -1,0 +1,86 @@
+package route
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+)
+
+// TestMovesKeepTour applies the best move of every kind from random
+// nodes of random tours (points and strokes, open and closed, with and
+// without a start) and checks that the tour stays a permutation that
+// keeps every fixed edge, and that the predicted change of length is the
+// real one, recomputed from scratch.
+func TestMovesKeepTour(t *testing.T) {
+	r := rand.New(rand.NewPCG(1, 1))
+	counts := map[int]int{}
+	for trial := range 300 {
+		n := 12 + r.IntN(40)
+		items := make([]Item, n)
+		for i := range items {
+			p := Point{X: r.Float64() * 100, Y: r.Float64() * 100}
+			q := p
+			if trial%2 == 1 && r.IntN(2) == 0 {
+				q = Point{X: p.X + r.Float64()*10, Y: p.Y + r.Float64()*10}
+			}
+			items[i] = Item{A: p, B: q}
+		}
+		var start *Point
+		if trial%3 == 0 {
+			start = &Point{X: 50, Y: 50}
+		}
+		g := newGraph(items, start, trial%4 < 2)
+		nb := buildNeighbours(g, 8)
+		// A random tour that keeps the fixed edges: items in random order.
+		order := r.Perm(n)
+		rev := make([]bool, n)
+		for i := range rev {
+			rev[i] = r.IntN(2) == 0
+		}
+		s := newSolver(g, nb, g.tourFromOrder(order, rev))
+		s.or3 = true
+		check := func(what string, delta, before float64) {
+			t.Helper()
+			after := s.tourLength()
+			if math.Abs(after-before-delta) > 1e-6 {
+				t.Fatalf("trial %d %s: predicted change %v, real %v", trial, what, delta, after-before)
+			}
+			seen := make([]bool, s.n)
+			for i, v := range s.t {
+				if seen[v] || s.pos[v] != int32(i) {
+					t.Fatalf("trial %d %s: not a permutation", trial, what)
+				}
+				seen[v] = true
+				if p := g.partner[v]; p >= 0 && s.succ(v) != p && s.pred(v) != p {
+					t.Fatalf("trial %d %s: fixed edge (%d,%d) cut", trial, what, v, p)
+				}
+			}
+		}
+		for range 60 {
+			v := int32(r.IntN(int(s.n)))
+			before := s.tourLength()
+			b := move{delta: -s.eps}
+			s.best2Opt(v, &b)
+			s.bestOrOpt(v, &b)
+			if b.kind != moveNone {
+				counts[b.kind]++
+				l0 := s.length
+				s.improve(v)
+				check("2-opt/Or-opt", s.length-l0, before)
+				continue
+			}
+			m := move3{delta: -s.eps}
+			s.bestOr3(v, &m)
+			if m.kind != 0 {
+				counts[m.kind]++
+				s.applyOr3(&m)
+				check("3-opt", m.delta, before)
+			}
+		}
+	}
+	for _, k := range []int{move2Opt, moveOr, moveOr3A1, moveOr3A2, moveOr3B} {
+		if counts[k] == 0 {
+			t.Errorf("move kind %d never tried", k)
+		}
+	}
+}
