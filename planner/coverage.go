@@ -40,19 +40,19 @@ const coverageExamples = 6
 // dwell clears the one site it is parked on (within 0.05 nm).
 //
 // A painted site that does not clear is uncovered. A cleared site that
-// lies in no region is overcleared when no site of the region of the
-// stroke that gives it the most dose lies within that mode's
-// EdgeAllowanceNM.
+// lies in no region is overcleared unless a site of a region whose
+// strokes dose it lies within that stroke mode's EdgeAllowanceNM.
 //
-// The sum is worked out row by row and range by range: over a range of a
-// row the dose of each piece is bounded (a piece along the row varies
-// only through its along factor, which has one maximum; other pieces are
-// bounded by their nearest approach), the whole range is classified at
-// once when the bounds agree, and it is halved otherwise, down to single
-// sites dosed exactly. So only sites near the clearing edge are dosed one
-// by one, and the painted and unpainted sites of a decided range are
-// visited a 64-bit word at a time. Cost: O(rows reached · log + sites near
-// clearing edges + uncovered or overcleared candidates).
+// The sum is never taken site by site over a region: a range of sites
+// (site lines x dimers of one terrace) is bounded from the pieces that
+// reach it (a piece parallel or square to the rows is a product of two
+// one-peaked factors; a slanted one is bounded by the range's corners),
+// classified at once when the bounds agree, and halved along the side
+// that leaves them furthest apart otherwise, down to single sites dosed
+// exactly. Only sites near a clearing edge are dosed one by one, and the
+// sites of a decided range are visited a 64-bit word at a time. Cost:
+// O(pieces · depth + sites near clearing edges + words of the painted
+// rows + overclearing candidates).
 func CheckCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) Coverage {
 	ck := newCoverageCheck(surf, regions, strokes, &prof)
 	ck.run()
