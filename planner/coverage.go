@@ -149,14 +149,14 @@ type coverageCheck struct {
 	region  []int // stroke -> region index, -1 when unknown
 	painted *lattice.SiteSet
 	dwelled *lattice.SiteSet
-	pieces  [][]piece    // per terrace
-	grid    *terraceGrid // nil on a one-terrace surface
-	exist   [][]*[]span // terrace -> row -> where its dimers exist (nil: not yet)
+	pieces  [][]piece            // per terrace
+	grid    *terraceGrid         // nil on a one-terrace surface
+	exist   [][]*[]span          // terrace -> row -> where its dimers exist (nil: not yet)
 	allowed map[[2]int][]*[]span // region, terrace -> row -> allowed spans (nil: not yet)
-	rows    map[[2]int][][]span // region, terrace -> row -> run extents
-	arena   []float64           // cached factors of decide's nested ranges
-	ptrs    []*piece            // active lists of decide's nested ranges
-	spanBuf []span              // scratch for allowedSpans
+	rows    map[[2]int][][]span  // region, terrace -> row -> run extents
+	arena   []float64            // cached factors of decide's nested ranges
+	ptrs    []*piece             // active lists of decide's nested ranges
+	spanBuf []span               // scratch for allowedSpans
 	cov     Coverage
 	nUnc    int
 	nOver   int
