@@ -178,6 +178,11 @@ func (b *builder) build(variant string) (*Plan, error) {
 		Coverage: cov,
 	}
 	plan.TotalS = plan.Breakdown.Total()
+	if n := len(plan.Segments); n > 0 {
+		// The clock summed action by action may differ from the sum by
+		// kind in the last bits; the plan ends at TotalS.
+		plan.Segments[n-1].EndS = plan.TotalS
+	}
 	if math.Abs(plan.TotalS-total) > 1e-6*math.Max(total, 1) {
 		panic(fmt.Sprintf("planner: timeline total %v disagrees with the segmentation's %v", plan.TotalS, total))
 	}
@@ -214,7 +219,7 @@ func (b *builder) regionWork() {
 		}
 		plain := rl.Sites.Clone().Difference(win)
 		rw := &regionWork{index: i, name: r.Name, role: r.Role, requested: r.Mode, sites: rl.Sites, windows: rl.Windows,
-			plain: plain, tolGiven: r.ToleranceNM, segs: runSegments(b.lay.Surface, plain)}
+			plain: plain, tolGiven: r.ToleranceNM, segs: b.gen.segsOf(plain)}
 		rw.tolAP, rw.tolFE = b.prof.ToleranceAPNM, b.prof.ToleranceFENM
 		if rules != nil && rules.APToleranceNM != nil {
 			rw.tolAP = *rules.APToleranceNM
@@ -581,7 +586,7 @@ func (b *builder) reoptimise(sg *segmenter, starts []int) ([]job, error) {
 		if two[0] && two[1] {
 			p.Group, p.Before = groups, [][2]int{{0, 1}}
 		}
-		sol, err := route.Solve(b.ctx, p, route.Options{MaxKicks: min(max(len(seg)/2, 50), 500), Seed: b.opt.Seed + int64(si)})
+		sol, err := route.Solve(b.ctx, p, route.Options{MaxKicks: min(max(len(seg)/4, 20), 200), Seed: b.opt.Seed + int64(si)})
 		if err != nil {
 			return nil, err
 		}

@@ -300,7 +300,7 @@ func (mc *modeChooser) apFeatures() []apFeature {
 		if r.mode == modeHybrid && r.fePart != nil {
 			owned = r.sites.Clone().Difference(r.fePart)
 		}
-		segs := runSegments(mc.g.surf, owned)
+		segs := mc.g.segsOf(owned)
 		if len(segs) == 0 {
 			continue
 		}
@@ -325,7 +325,7 @@ func (mc *modeChooser) gap(feats []apFeature, r *regionWork, part *lattice.SiteS
 	if part == nil || part.IsEmpty() {
 		return 0, r2.Point{}, false
 	}
-	mine := runSegments(mc.g.surf, part)
+	mine := mc.g.segsOf(part)
 	bounds := segBounds(mine).ExpandedByMargin(mc.keepOut)
 	best, at := math.Inf(1), r2.Point{}
 	for _, f := range feats {

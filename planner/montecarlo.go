@@ -24,7 +24,7 @@ const exactDwellSamples = 2000
 // spreadRanks is the number of intervals between the drift-rate ranks
 // at which the segmentation is computed exactly when dwells add their own
 // spread (see monteCarlo).
-const spreadRanks = 64
+const spreadRanks = 16
 
 // quantileIndex is the 0-based index of the empirical p-quantile of n
 // sorted samples: the smallest value whose empirical CDF reaches p, as

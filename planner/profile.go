@@ -498,7 +498,7 @@ func jsonError(data []byte, err error) error {
 		if path == "" {
 			path = "(top level)"
 		}
-		return fmt.Errorf("%s: %s is not a valid %s (line %d)", path, te.Value, te.Type, lineOf(data, te.Offset))
+		return fmt.Errorf("%s: got a JSON %s, want %s (line %d)", path, te.Value, describeGoType(te.Type.String()), lineOf(data, te.Offset))
 	}
 	var se *json.SyntaxError
 	if errors.As(err, &se) {
@@ -508,6 +508,18 @@ func jsonError(data []byte, err error) error {
 		return fmt.Errorf("truncated JSON: %w", err)
 	}
 	return err
+}
+
+func describeGoType(t string) string {
+	switch t {
+	case "float64", "int":
+		return "a number"
+	case "string":
+		return "a string"
+	case "bool":
+		return "true or false"
+	}
+	return "an object"
 }
 
 func lineOf(data []byte, offset int64) int {
