@@ -326,7 +326,7 @@ func drawAxes(c canvas, v view) {
 		}
 	}
 	c.text(vec{frame.right(), frame.bottom() + 2*textHeight(c, fontTick) + 3*u}, "x (nm)", fontTick, anchorEnd, tag{})
-	c.text(vec{frame.x - 1.8*u, frame.y - 1.5*u}, "y (nm)", fontTick, anchorEnd, tag{})
+	c.text(vec{frame.x, frame.y - 1.5*u}, "y (nm)", fontTick, anchorStart, tag{})
 	c.endGroup()
 }
 
