@@ -134,7 +134,7 @@ func (lv *LatticeView) generate(w, h int) image.Image {
 		lv.view = lv.view.Resized(w, h)
 	}
 	if !lv.fitted && w > 0 && h > 0 && lv.s.Surface() != nil {
-		lv.view = FitView(lv.s.Surface().Field, w, h, 24)
+		lv.view = lv.fitView()
 		lv.fitted = true
 		lv.updateScaleBar()
 	}
@@ -146,9 +146,27 @@ func (lv *LatticeView) Fit() {
 	if lv.s.Surface() == nil {
 		return
 	}
-	lv.view = FitView(lv.s.Surface().Field, lv.view.W, lv.view.H, 24)
+	lv.view = lv.fitView()
 	lv.fitted = true
 	lv.changed()
+}
+
+// fitView returns the view showing the whole field beside the legend:
+// the field is fitted into the part of the view the legend leaves free,
+// when that is wide enough.
+func (lv *LatticeView) fitView() View {
+	w, h := lv.view.W, lv.view.H
+	free := w
+	if lv.legend != nil {
+		lw := int(float32(lv.legend.MinSize().Width+24) * lv.pxPerDot)
+		if w-lw > w*2/3 {
+			free = w - lw
+		}
+	}
+	v := FitView(lv.s.Surface().Field, free, h, 24)
+	v.Center.X += float64(w-free) / 2 * v.Scale
+	v.W = w
+	return v
 }
 
 // ZoomTo shows rect (nm) filling most of the view, at least as close as

@@ -33,6 +33,8 @@ func formatDuration(s float64) string {
 	switch {
 	case math.IsNaN(s) || math.IsInf(s, 0):
 		return "—"
+	case s == 0:
+		return "0 s"
 	case s < 0.1:
 		return fmt.Sprintf("%.0f ms", s*1000)
 	case s < 60:

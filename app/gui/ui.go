@@ -33,6 +33,9 @@ type Options struct {
 	// CheckDelay is how long after an edit the design rules are checked
 	// again; 0 takes 400 ms, a negative value checks only on request.
 	CheckDelay time.Duration
+	// Generator is the program name and version printed on exported
+	// reports, e.g. "dimerpath 0.1.0".
+	Generator string
 }
 
 // UI is the main window: the views of one Session and the actions that
@@ -162,7 +165,7 @@ func (u *UI) changed(c Change) {
 	if c&ChangeTool != 0 {
 		u.refreshTools()
 	}
-	if c&(ChangeRegions|ChangePlan|ChangeFindings|ChangeVariants|ChangeHistory) != 0 {
+	if c&(ChangeRegions|ChangePlan|ChangeFindings|ChangeVariants|ChangeHistory|ChangeTerraces|ChangeFiducials) != 0 {
 		u.refreshLegend()
 	}
 	if c&(ChangeFile|ChangeHistory) != 0 {
@@ -182,7 +185,7 @@ func (u *UI) changed(c Change) {
 
 func (u *UI) build() {
 	u.cursorLabel = widget.NewLabel("")
-	u.cursorLabel.TextStyle.Monospace = true
+	u.cursorLabel.Truncation = fyne.TextTruncateEllipsis
 	u.hintLabel = widget.NewLabel("")
 	u.hintLabel.Truncation = fyne.TextTruncateEllipsis
 	u.progress = widget.NewProgressBar()
@@ -239,8 +242,8 @@ func (u *UI) content() fyne.CanvasObject {
 		widget.NewButtonWithIcon("", theme.ZoomInIcon(), func() { u.View.ZoomBy(1.5) }),
 	)
 	left := container.NewVScroll(u.toolPalette())
-	right := container.New(&fixedWidth{w: 350}, u.tabs)
-	status := container.NewBorder(nil, nil, container.New(&fixedWidth{w: 470}, u.cursorLabel), u.progressBox, u.hintLabel)
+	right := container.New(&fixedWidth{w: 350}, container.New(layout.NewCustomPaddedLayout(0, 0, 0, 6), u.tabs))
+	status := container.NewBorder(nil, nil, container.New(&fixedWidth{w: 520}, u.cursorLabel), u.progressBox, u.hintLabel)
 	viewFrame := container.NewStack(canvas.NewRectangle(colOutside), u.View)
 	return container.NewBorder(
 		container.NewVBox(toolbar, widget.NewSeparator()),
@@ -478,6 +481,17 @@ func (u *UI) refreshLegend() {
 	if len(u.S.Design().Fiducials) > 0 {
 		rows = append(rows, legendRow(legendText("⊕"), "fiducial mark"))
 	}
+	if surf := u.S.Surface(); surf != nil && len(surf.Terraces) > 1 {
+		rows = append(rows, widget.NewSeparator())
+		for i, t := range surf.Terraces {
+			dir := "horizontal"
+			if t.Rows.String() == "y" {
+				dir = "vertical"
+			}
+			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: dimer rows along %s (%s)", t.Name, t.Rows, dir)))
+		}
+		rows = append(rows, legendRow(swatch(colStep, 14, 2), "step edge"))
+	}
 	if f, _ := u.S.Findings(); len(f) > 0 && u.View.Opts.Findings {
 		rows = append(rows, legendRow(swatch(colError, 12, 12), "design-rule error"))
 		rows = append(rows, legendRow(swatch(colWarning, 12, 12), "design-rule warning"))
@@ -495,15 +509,15 @@ func (u *UI) showCursor(p r2.Point, ok bool) {
 		u.cursorLabel.SetText("")
 		return
 	}
-	text := fmt.Sprintf("x %9.3f nm  y %9.3f nm", p.X, p.Y)
+	text := fmt.Sprintf("(%.3f, %.3f) nm", p.X, p.Y)
 	surf := u.S.Surface()
 	if site, _, on := surf.Snap(p); on && surf.Field.ContainsPoint(p) {
-		text += fmt.Sprintf("   %s row %d dimer %d side %d", surf.Terraces[site.Terrace].Name, site.Row, site.Dimer, site.Side)
+		text += fmt.Sprintf("  %s row %d dimer %d side %d", surf.Terraces[site.Terrace].Name, site.Row, site.Dimer, site.Side)
 		if i := u.S.RegionAt(p); i >= 0 {
-			text += "  · " + u.S.Variant().Regions[i].Name
+			text += " · " + u.S.Variant().Regions[i].Name
 		}
 	} else {
-		text += "   outside the field"
+		text += "  outside the field"
 	}
 	u.cursorLabel.SetText(text)
 }
