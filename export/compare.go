@@ -6,6 +6,7 @@ import (
 	"io"
 	"math"
 
+	"dimerpath/internal/atomicfile"
 	"dimerpath/planner"
 )
 
@@ -458,4 +459,24 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	c.hatchDefs()
 	c.raw("</svg>\n")
 	return c.err()
+}
+
+// WriteComparisonFile writes the comparison report to path, PDF or SVG
+// by its extension (any other is an error wrapping ErrFormat), through a
+// temporary file renamed into place (see WriteFile).
+func WriteComparisonFile(ctx context.Context, path string, results []VariantResult, opt Options) error {
+	f, err := FormatFromPath(path)
+	if err != nil {
+		return err
+	}
+	if f != FormatPDF && f != FormatSVG {
+		return fmt.Errorf("%s: %w: a comparison report is .pdf or .svg", path, ErrFormat)
+	}
+	return atomicfile.Write(path, 0o644, func(w io.Writer) error {
+		w = wrapWriter(w)
+		if f == FormatPDF {
+			return WriteComparisonPDF(ctx, w, results, opt)
+		}
+		return WriteComparisonSVG(w, results, opt)
+	})
 }
