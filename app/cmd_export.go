@@ -9,8 +9,6 @@ import (
 	"fmt"
 	"os"
 	"os/signal"
-	"slices"
-	"strings"
 	"time"
 
 	"dimerpath/export"
@@ -151,7 +149,7 @@ func planDesign(ctx context.Context, env Env, name string, data []byte, fl expor
 	if err != nil {
 		return nil, nil, fmt.Errorf("%s: %w", name, err)
 	}
-	prof, err := exportProfile(fl.profile)
+	prof, err := loadProfileArg(fl.profile)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -166,19 +164,6 @@ func planDesign(ctx context.Context, env Env, name string, data []byte, fl expor
 		return nil, nil, fmt.Errorf("%s, variant %s: %w", name, layout.Variant.Name, err)
 	}
 	return p, export.PatternOf(layout), nil
-}
-
-// exportProfile returns the instrument profile named by the --profile
-// value: a profile file, a built-in preset ("rt", "lt"), or, when empty,
-// the default profile.
-func exportProfile(name string) (planner.Profile, error) {
-	if name == "" {
-		return planner.DefaultProfile(), nil
-	}
-	if _, err := os.Stat(name); err == nil || !slices.Contains(planner.Presets(), strings.ToLower(name)) {
-		return planner.LoadProfile(name)
-	}
-	return planner.Preset(name)
 }
 
 // formatClock formats seconds as h:mm:ss.
