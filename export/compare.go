@@ -306,9 +306,9 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 	t := newTable(d, font{size: 7.5},
 		tableColumn{title: rows[0][0], share: 13},
 		tableColumn{title: rows[0][1], share: 9, right: true},
-		tableColumn{title: rows[0][2], share: 15, right: true},
+		tableColumn{title: rows[0][2], share: 14, right: true},
 		tableColumn{title: rows[0][3], share: 9, right: true},
-		tableColumn{title: rows[0][4], share: 8, right: true},
+		tableColumn{title: rows[0][4], share: 9, right: true},
 		tableColumn{title: rows[0][5], share: 8, right: true},
 		tableColumn{title: rows[0][6], share: 8, right: true},
 		tableColumn{title: rows[0][7], share: 8, right: true},
@@ -358,7 +358,7 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	inner := width - 2*margin
 	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
 	rows := compareRows(results)
-	cols := []float64{13, 9, 15, 9, 8, 8, 8, 8, 11, 11}
+	cols := []float64{13, 9, 14, 9, 9, 8, 8, 8, 11, 11}
 	colW := make([]float64, len(cols))
 	total := 0.0
 	for _, c := range cols {
