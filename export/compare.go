@@ -64,12 +64,15 @@ func compareRows(rs []VariantResult) [][]string {
 		if len(p.Windows) > 0 {
 			dpp = sig(p.Yield.DevicesPerPerfect, 3)
 			if p.Yield.DevicesPerPerfect == 0 {
-				dpp = "none suffices"
+				dpp = "out of reach"
+				if l := p.Yield.Log10All; !math.IsInf(l, -1) && l < 0 {
+					dpp = pow10(-l)
+				}
 			}
 		}
 		all, mean := "–", "–"
 		if len(p.Windows) > 0 {
-			all = probability(p.Yield.All)
+			all = allGood(p.Yield)
 			mean = fmt.Sprintf("%s of %s", sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))
 		}
 		rows = append(rows, []string{r.Variant, clock(p.TotalS), clock(p.P10S) + " – " + clock(p.P90S),
@@ -118,7 +121,7 @@ func drawStackedBreakdown(c canvas, rs []VariantResult, area box) float64 {
 		c.text(vec{x(t) + 1.5*u, y + rowH/2 + textHeight(c, fontBody)/2}, clock(t), fontBody, anchorStart, tag{})
 		y += rowH
 	}
-	for tk := 0.0; tk <= top+1e-9*step; tk += step {
+	for _, tk := range ticks(0, top, step) {
 		c.polyline([]vec{{x(tk), area.y}, {x(tk), y}}, false, penGrid, noPaint, tag{})
 		c.polyline([]vec{{x(tk), y}, {x(tk), y + 1.2*u}}, false, penAxis, noPaint, tag{})
 		c.text(vec{x(tk), y + 1.2*u + textHeight(c, fontAxis) + 0.8*u}, clock(tk), fontAxis, anchorMiddle, tag{})
@@ -171,7 +174,7 @@ func drawSpreadCompare(c canvas, rs []VariantResult, area box) float64 {
 		}
 		y += rowH
 	}
-	for t := lo; t <= hi+1e-9*step; t += step {
+	for _, t := range ticks(lo, hi, step) {
 		c.polyline([]vec{{x(t), area.y}, {x(t), y}}, false, penGrid, noPaint, tag{})
 		c.polyline([]vec{{x(t), y}, {x(t), y + 1.2*u}}, false, penAxis, noPaint, tag{})
 		c.text(vec{x(t), y + 1.2*u + textHeight(c, fontAxis) + 0.8*u}, clock(t), fontAxis, anchorMiddle, tag{})
@@ -228,7 +231,7 @@ func drawYieldCompare(c canvas, rs []VariantResult, area box) float64 {
 				label = "no dopant windows"
 			} else {
 				w = plot.w * p.Yield.All
-				label = fmt.Sprintf("%s (mean %s of %s good)", probability(p.Yield.All), sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))
+				label = fmt.Sprintf("%s (mean %s of %s good)", allGood(p.Yield), sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))
 				c.rect(box{plot.x, y + 1.5*u, math.Max(w, 0.3*u), rowH - 3*u}, penBar, paint{fill: true, grey: 0.45}, tag{class: "bar"})
 			}
 		}

@@ -304,7 +304,7 @@ func drawAxes(c canvas, v view) {
 			span = sz.Y
 		}
 		step := niceStep(span, max(2, ax.n))
-		for t := math.Ceil(ax.lo/step-1e-9) * step; t <= ax.hi+1e-9*step; t += step {
+		for _, t := range ticks(ax.lo, ax.hi, step) {
 			lbl := sig(t, 6)
 			if ax.horiz {
 				x := v.pt(r2.Point{X: t, Y: v.win.Y.Lo}).x

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"maps"
 	"math"
 	"slices"
 	"strconv"
@@ -166,7 +167,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		species[w.Species]++
 	}
 	var sp []string
-	for _, k := range slices.Sorted(mapsKeys(species)) {
+	for _, k := range slices.Sorted(maps.Keys(species)) {
 		sp = append(sp, fmt.Sprintf("%s: %s", k, thousands(species[k])))
 	}
 	windows := thousands(len(p.Windows))
@@ -187,8 +188,8 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	}
 	if len(p.Windows) > 0 {
 		glance = append(glance,
-			[2]string{"All windows good", fmt.Sprintf("%s (probability that every window takes exactly one donor)", probability(p.Yield.All))},
-			[2]string{"Mean good windows", fmt.Sprintf("%s of %s", sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))},
+			[2]string{"All windows good", fmt.Sprintf("%s (probability that every window takes exactly one donor)", allGood(p.Yield))},
+			[2]string{"Good windows", meanGood(p.Yield)},
 			[2]string{"Devices per perfect one", devicesPerPerfect(p.Yield)},
 		)
 	}
@@ -259,19 +260,40 @@ func segmentsLine(n int, fiducials []string) string {
 
 func devicesPerPerfect(y planner.Yield) string {
 	if y.DevicesPerPerfect == 0 {
-		return "no number suffices (a perfect device is practically impossible)"
+		if l := y.Log10All; !math.IsInf(l, -1) && l < 0 {
+			return "about " + pow10(-l) + ": a perfect device is practically out of reach"
+		}
+		return "no number suffices: some window can never be good"
 	}
 	return sig(y.DevicesPerPerfect, 3) + " devices written on average to get one with every window good"
 }
 
-func mapsKeys[K comparable, V any](m map[K]V) func(func(K) bool) {
-	return func(yield func(K) bool) {
-		for k := range m {
-			if !yield(k) {
-				return
-			}
-		}
+// allGood formats the probability that every window is good, from its
+// log10 where the probability itself underflows.
+func allGood(y planner.Yield) string {
+	if y.All == 0 && !math.IsInf(y.Log10All, -1) {
+		return pow10(y.Log10All)
 	}
+	return probability(y.All)
+}
+
+// pow10 formats 10^l as "2.3e−1324", for any finite l.
+func pow10(l float64) string {
+	e := math.Floor(l)
+	m := math.Pow(10, l-e)
+	if m >= 9.95 {
+		m, e = 1, e+1
+	}
+	return strconv.FormatFloat(m, 'f', 1, 64) + "e" + strings.Replace(strconv.Itoa(int(e)), "-", "−", 1)
+}
+
+// meanGood formats the mean and spread of the number of good windows.
+func meanGood(y planner.Yield) string {
+	s := fmt.Sprintf("%s of %s on average", sig(y.MeanGood, 4), thousands(y.Windows))
+	if y.SDGood > 0 {
+		s += fmt.Sprintf(" (standard deviation %s)", sig(y.SDGood, 2))
+	}
+	return s
 }
 
 // listShort joins up to n names, then "and K more".
@@ -582,8 +604,8 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	y := p.Yield
 	d.keyValues([][2]string{
 		{"Windows", thousands(y.Windows)},
-		{"All windows good", fmt.Sprintf("%s: the probability that every window takes exactly one donor", probability(y.All))},
-		{"Mean good windows", fmt.Sprintf("%s of %s", sig(y.MeanGood, 4), thousands(y.Windows))},
+		{"All windows good", fmt.Sprintf("%s: the probability that every window takes exactly one donor", allGood(y))},
+		{"Good windows", meanGood(y)},
 		{"Devices per perfect one", devicesPerPerfect(y)},
 	}, 0.28)
 	t := newTable(d, fontBody,

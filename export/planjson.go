@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"reflect"
 	"strings"
@@ -163,9 +164,27 @@ type windowJSON struct {
 type yieldJSON struct {
 	Windows           int       `json:"windows"`
 	All               float64   `json:"all"`
+	Log10All          *float64  `json:"log10_all"` // null for -Inf (a window that can never be good)
 	MeanGood          float64   `json:"mean_good"`
+	SDGood            float64   `json:"sd_good"`
 	Distribution      []float64 `json:"distribution"`
+	DistributionFrom  int       `json:"distribution_from"`
 	DevicesPerPerfect float64   `json:"devices_per_perfect"`
+}
+
+// log10JSON carries log10 of a probability: null for -Inf.
+func log10JSON(v float64) *float64 {
+	if math.IsInf(v, -1) {
+		return nil
+	}
+	return &v
+}
+
+func log10Of(p *float64) float64 {
+	if p == nil {
+		return math.Inf(-1)
+	}
+	return *p
 }
 
 type coverageJSON struct {
@@ -275,8 +294,8 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 		return windowJSON{Region: w.Region, Species: w.Species, Template: w.Template, AtNM: xyOf(w.At), Sites: w.Sites, Probability: w.Probability}
 	})
 	y := p.Yield
-	jw.field("yield", yieldJSON{Windows: y.Windows, All: y.All, MeanGood: y.MeanGood, Distribution: nonNil(y.Distribution),
-		DevicesPerPerfect: y.DevicesPerPerfect})
+	jw.field("yield", yieldJSON{Windows: y.Windows, All: y.All, Log10All: log10JSON(y.Log10All), MeanGood: y.MeanGood, SDGood: y.SDGood,
+		Distribution: nonNil(y.Distribution), DistributionFrom: y.DistributionFrom, DevicesPerPerfect: y.DevicesPerPerfect})
 	c := p.Coverage
 	jw.field("coverage", coverageJSON{OK: c.OK, Sites: c.Sites, Uncovered: c.Uncovered, Overcleared: c.Overcleared, Issues: nonNil(c.Issues)})
 	jw.last = true
@@ -380,20 +399,17 @@ func ReadPlanJSON(r io.Reader) (*planner.Plan, error) {
 	}
 	// Identify the file before decoding it strictly, so a design file or
 	// a future version gets the right message.
-	var head struct {
-		Format  any `json:"format"`
-		Version any `json:"version"`
-	}
-	if err := json.Unmarshal(data, &head); err != nil {
+	format, version, err := sniffHead(data)
+	if err != nil {
 		return nil, syntaxError(data, err)
 	}
-	if head.Format != PlanFormat {
-		return nil, &PlanError{Field: "format", Value: fmt.Sprintf("%v", jsonText(head.Format)),
+	if format != PlanFormat {
+		return nil, &PlanError{Field: "format", Value: jsonText(format),
 			Err: fmt.Errorf("%w (want %q)", ErrNotPlan, PlanFormat)}
 	}
-	ver, ok := head.Version.(float64)
+	ver, ok := version.(float64)
 	if !ok || ver != float64(int(ver)) || ver < 1 || ver > PlanVersion {
-		return nil, &PlanError{Field: "version", Value: jsonText(head.Version),
+		return nil, &PlanError{Field: "version", Value: jsonText(version),
 			Err: fmt.Errorf("%w (this dimerpath reads versions 1 to %d)", ErrVersion, PlanVersion)}
 	}
 	var f planFile
@@ -403,7 +419,7 @@ func ReadPlanJSON(r io.Reader) (*planner.Plan, error) {
 		return nil, syntaxError(data, err)
 	}
 	if dec.More() {
-		return nil, &PlanError{Err: fmt.Errorf("%w: data after the plan object", ErrInvalid)}
+		return nil, &PlanError{Err: fmt.Errorf("%w: data after the plan object", ErrSyntax)}
 	}
 	p, err := f.plan()
 	if err != nil {
@@ -428,6 +444,56 @@ func ReadPlanFile(path string) (*planner.Plan, error) {
 		pe.File = path
 	}
 	return p, err
+}
+
+// sniffHead returns the top-level "format" and "version" values of the
+// JSON object in data (nil where absent). It stops as soon as it has
+// both, which in a file dimerpath wrote is after the first two fields,
+// and otherwise skips over the other values without decoding them.
+func sniffHead(data []byte) (format, version any, err error) {
+	dec := json.NewDecoder(bytes.NewReader(data))
+	tok, err := dec.Token()
+	if err != nil {
+		return nil, nil, err
+	}
+	if d, ok := tok.(json.Delim); !ok || d != '{' {
+		return nil, nil, fmt.Errorf("the file holds a JSON %s, not an object", jsonKindOfToken(tok))
+	}
+	var haveF, haveV bool
+	for dec.More() && !(haveF && haveV) {
+		tok, err := dec.Token()
+		if err != nil {
+			return nil, nil, err
+		}
+		key, _ := tok.(string)
+		switch key {
+		case "format":
+			err, haveF = dec.Decode(&format), true
+		case "version":
+			err, haveV = dec.Decode(&version), true
+		default:
+			var skip json.RawMessage
+			err = dec.Decode(&skip)
+		}
+		if err != nil {
+			return nil, nil, err
+		}
+	}
+	return format, version, nil
+}
+
+func jsonKindOfToken(tok json.Token) string {
+	switch tok.(type) {
+	case json.Delim:
+		return "array"
+	case string:
+		return "string"
+	case float64:
+		return "number"
+	case bool:
+		return "boolean"
+	}
+	return "null"
 }
 
 func jsonText(v any) string {
@@ -520,7 +586,8 @@ func (f *planFile) plan() (*planner.Plan, error) {
 		return planner.Window{Region: w.Region, Species: w.Species, Template: w.Template, At: w.AtNM.point(), Sites: w.Sites, Probability: w.Probability}
 	})
 	y := f.Yield
-	p.Yield = planner.Yield{Windows: y.Windows, All: y.All, MeanGood: y.MeanGood, Distribution: y.Distribution, DevicesPerPerfect: y.DevicesPerPerfect}
+	p.Yield = planner.Yield{Windows: y.Windows, All: y.All, Log10All: log10Of(y.Log10All), MeanGood: y.MeanGood, SDGood: y.SDGood,
+		Distribution: y.Distribution, DistributionFrom: y.DistributionFrom, DevicesPerPerfect: y.DevicesPerPerfect}
 	c := f.Coverage
 	p.Coverage = planner.Coverage{OK: c.OK, Sites: c.Sites, Uncovered: c.Uncovered, Overcleared: c.Overcleared, Issues: c.Issues}
 	return p, nil

@@ -10,6 +10,10 @@ import (
 	"dimerpath/planner"
 )
 
+// MaxFieldNM bounds the scan field a plan may have (1 mm a side), so
+// that no figure or index meets coordinates no instrument could reach.
+const MaxFieldNM = 1e6
+
 // checkPlan reports the first value of p that the plan file cannot carry
 // or that contradicts the Plan contract, naming it by its path in the
 // plan file's schema. Both the writer and the reader run it, so a file
@@ -31,6 +35,17 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 	v := checker{named: named}
 	v.positive("field_nm[0]", p.FieldWidthNM)
 	v.positive("field_nm[1]", p.FieldHeightNM)
+	for k, w := range []float64{p.FieldWidthNM, p.FieldHeightNM} {
+		if v.err == nil && w > MaxFieldNM {
+			v.fail(invalid(fmt.Sprintf("field_nm[%d]", k), w, "larger than %g nm (1 mm), more than any STM scans", float64(MaxFieldNM)))
+		}
+	}
+	if v.err != nil {
+		return v.err
+	}
+	// Every position must lie near the field: within one field size of
+	// it (fiducials and moves may stand outside the written area).
+	v.near = r2.RectFromPoints(r2.Point{X: -p.FieldWidthNM, Y: -p.FieldHeightNM}, r2.Point{X: 2 * p.FieldWidthNM, Y: 2 * p.FieldHeightNM})
 	for i, c := range p.Conditions {
 		f := v.at("conditions", i)
 		v.mode(f+".mode", c.Mode, false)
@@ -67,7 +82,7 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 			v.fail(invalid(f+".path_nm", len(s.Path), "a dwell has exactly one point, got %d", len(s.Path)))
 		}
 		for k, q := range s.Path {
-			if !finite(q.X) || !finite(q.Y) {
+			if !finite(q.X) || !finite(q.Y) || !v.near.ContainsPoint(q) {
 				v.point(fmt.Sprintf("%s.path_nm[%d]", f, k), q)
 				break
 			}
@@ -182,6 +197,13 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 		}
 	}
 	v.nonNeg("yield.devices_per_perfect", y.DevicesPerPerfect)
+	v.nonNeg("yield.sd_good", y.SDGood)
+	if v.err == nil && (math.IsNaN(y.Log10All) || y.Log10All > 1e-9 || math.IsInf(y.Log10All, 1)) {
+		v.fail(invalid("yield.log10_all", y.Log10All, "the log10 of a probability must be at most 0"))
+	}
+	if v.err == nil && (y.DistributionFrom < 0 || y.DistributionFrom > max(0, len(y.Distribution))) {
+		v.fail(invalid("yield.distribution_from", y.DistributionFrom, "must lie between 0 and the distribution's length %d", len(y.Distribution)))
+	}
 	c := p.Coverage
 	v.count("coverage.sites", c.Sites)
 	v.count("coverage.uncovered", c.Uncovered)
@@ -192,7 +214,8 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 // checker keeps the first failure; later checks are skipped.
 type checker struct {
 	err   error
-	named bool // build field paths (else they are left empty)
+	named bool    // build field paths (else they are left empty)
+	near  r2.Rect // where positions may lie, nm
 }
 
 // at returns the path of element i of array arr, or "" when the checker
@@ -248,6 +271,9 @@ func (v *checker) count(f string, n int) {
 func (v *checker) point(f string, p r2.Point) {
 	v.finite(f+"[0]", p.X)
 	v.finite(f+"[1]", p.Y)
+	if v.err == nil && !v.near.IsEmpty() && !v.near.ContainsPoint(p) {
+		v.fail(invalid(f, fmt.Sprintf("[%g, %g]", p.X, p.Y), "more than one field size outside the scan field"))
+	}
 }
 
 // index checks 0 <= i < n, or i = -1 when none is allowed.

@@ -1,7 +1,56 @@
 // Package route orders what an STM tip writes so that its idle travel
 // between writes costs as little time as possible: points (dwell sites)
-// and strokes that may be written in either direction, with an optional
-// start, open or closed paths, contiguous groups and precedence between
-// groups. It knows nothing of silicon: positions are plain numbers in the
-// caller's unit.
+// and strokes that may be written in either direction (or one way), with
+// an optional start, open or closed paths, contiguous groups and
+// precedence between groups. It knows nothing of silicon: positions are
+// plain numbers in the caller's unit (nm in dimerpath), speeds in that
+// unit per second, times in seconds.
+//
+// Solve is the engine; Nearest is the nearest-neighbour baseline;
+// Problem.Evaluate scores any ordering. ReadCSV reads the item files of
+// "dimerpath order", and the tsplib subpackage reads TSPLIB instances.
+//
+// # Method
+//
+// Each point is a node; each stroke is two nodes, its ends, joined by a
+// fixed edge that no move removes, so reversing a stretch of the tour
+// writes the strokes in it the other way at no cost. An open path gets a
+// dummy node at distance zero from all others (tied to the start, when
+// there is one, by a fixed edge), and the tour through it is cut there.
+// The cost of a move is distance/MoveSpeed + SettleS; every ordering of
+// a problem makes the same number of moves, so minimising distance
+// minimises time.
+//
+//   - Up to 10 items (per group) are ordered exactly by dynamic
+//     programming over subsets (Held & Karp 1962).
+//   - Neighbour lists: the 10 nearest nodes of each node (8 above 200,000
+//     nodes), from a kd-tree (Bentley 1975); O(n log n).
+//   - Construction: greedy edge matching (Bentley 1992), fixed edges first,
+//     fragments joined by the same rule on their ends.
+//   - Local search from a queue of nodes (don't-look bits, Bentley 1992):
+//     2-opt (Croes 1958), Or-opt moves of segments of up to three nodes
+//     either way round (Or 1976) and sequential 3-opt moves, the depth-3
+//     step of Lin & Kernighan 1973; all searched over the neighbour lists
+//     with the gain criterion. The tour is an array with a position index;
+//     a reversal turns the shorter side. Above 100,000 nodes a reversal is
+//     capped at 50,000 positions and the 3-opt moves are off.
+//   - Improvement until the budget is spent: segment-local double-bridge
+//     kicks (Martin, Otto & Felten 1991) that swap two short segments
+//     (up to 100 nodes each), re-optimised from the six touched nodes only
+//     and kept when the tour is no longer, else undone from a journal of
+//     reversals: iterated local search (Johnson & McGeoch 1997, "The
+//     traveling salesman problem: a case study in local optimization").
+//   - Groups are ordered greedily: of the groups whose predecessors are all
+//     written, the one with an item nearest the tip goes next, solved as an
+//     open path from where the last one ended.
+//   - One-way strokes: a reversal is allowed only if it leaves every
+//     one-way stroke the same way round; the tour starts from the shorter
+//     of the greedy tour (with backward one-way strokes turned) and the
+//     nearest-neighbour order.
+//
+// Options.Budget bounds the wall-clock time of a Solve call (default 2 s);
+// the construction and the first local optimum always complete. With
+// Options.MaxKicks instead the result depends only on the problem and the
+// seed. Solve polls its context and reports progress through
+// Options.Progress.
 package route

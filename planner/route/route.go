@@ -10,7 +10,7 @@ type Point struct{ X, Y float64 }
 
 // Item is one thing to visit: a point (A == B, or IsPoint) or a stroke
 // from A to B that the engine may write in either direction unless
-// OneWay is set.
+// OneWay is set (OneWay means nothing for a point).
 type Item struct {
 	A, B   Point
 	OneWay bool
@@ -25,7 +25,8 @@ type Problem struct {
 	// Start is where the tip is before the first item; nil lets the
 	// engine start anywhere.
 	Start *Point
-	// Closed asks for a tour that returns to its start.
+	// Closed asks for a tour that returns to its start (without a Start,
+	// to where the first item was entered).
 	Closed bool
 	// Group, when non-nil, gives each item's group (>= 0); the items of a
 	// group are visited contiguously.
@@ -42,25 +43,33 @@ type Problem struct {
 
 // Options control a solve.
 type Options struct {
-	// Budget bounds the improvement phase by wall-clock time; 0 takes
-	// DefaultBudget. A run that hits a wall-clock budget depends on the
-	// machine's speed; set MaxKicks for a result that depends on Seed alone.
+	// Budget bounds the wall-clock time of the Solve call, counted from
+	// its start; 0 takes DefaultBudget unless MaxKicks is set. The
+	// construction and the first local optimum always complete, so a
+	// large problem may take longer than a short budget (about 5 s for
+	// 10^6 points). A run bounded by wall-clock time depends on the
+	// machine's speed; set MaxKicks for a result that depends on Seed
+	// alone.
 	Budget time.Duration
 	// MaxKicks, when > 0, bounds the improvement phase by a count of
-	// perturbations instead, making the result depend only on the seed.
+	// perturbations instead (shared among groups by size), making the
+	// result depend only on the problem and the seed. If Budget is set
+	// too, whichever ends first ends the search.
 	MaxKicks int
 	Seed     int64
-	// Progress, when non-nil, is called from the solving goroutine now
-	// and then.
+	// Progress, when non-nil, is called from the solving goroutine at
+	// each phase's end and about every 100 ms while improving.
 	Progress func(Progress)
 }
 
-// DefaultBudget is the improvement budget when Options.Budget is 0.
+// DefaultBudget is the budget when Options.Budget and MaxKicks are 0.
 const DefaultBudget = 2 * time.Second
 
 // Progress reports a long solve's state.
 type Progress struct {
-	Phase   string // "construct", "local", "improve"
+	Phase string // "construct", "local", "improve"
+	// Length is the current idle travel of the group being solved (of
+	// the whole problem when it has no groups), in input units.
 	Length  float64
 	Elapsed time.Duration
 	// Fraction is the share of the budget used, 0..1.
@@ -75,9 +84,39 @@ type Solution struct {
 	// Length is the idle travel (start to first item, between items, and
 	// back to the start when Closed), in input units.
 	Length float64
-	// TimeS is Length/MoveSpeed + SettleS per move.
+	// TimeS is Length/MoveSpeed + SettleS per move (Problem.Moves); the
+	// first term is 0 when MoveSpeed is 0.
 	TimeS float64
 }
+
+// Solver orders problems. Engine is the package's engine and
+// NearestNeighbour its baseline; a caller that wants to compare or swap
+// them takes a Solver.
+type Solver interface {
+	Solve(ctx context.Context, p Problem, opt Options) (Solution, error)
+}
+
+// Engine is the Solver that calls Solve.
+type Engine struct{}
+
+// Solve calls the package's Solve.
+func (Engine) Solve(ctx context.Context, p Problem, opt Options) (Solution, error) {
+	return Solve(ctx, p, opt)
+}
+
+// NearestNeighbour is the Solver that calls Nearest; it ignores the
+// options and the context.
+type NearestNeighbour struct{}
+
+// Solve calls Nearest.
+func (NearestNeighbour) Solve(_ context.Context, p Problem, _ Options) (Solution, error) {
+	return Nearest(p)
+}
+
+var (
+	_ Solver = Engine{}
+	_ Solver = NearestNeighbour{}
+)
 
 // Solve orders p's items to make the idle travel short. It first checks p
 // (see Problem.Validate). Up to 10 items (per group) it returns an exact

@@ -12,17 +12,16 @@ type solver struct {
 	t   []int32 // t[i] is the node at position i
 	pos []int32 // pos[v] is v's position
 
-	queue      []int32 // ring buffer
-	qhead, qn  int32
-	inq        []bool
-	journal    []int32 // pairs (position, length) of applied reversals
-	recording  bool
-	maxRev     int32 // longest reversal a move may make
-	orMax      int   // longest segment an Or-opt move shifts, in nodes
-	or3        bool  // also try sequential 3-opt moves
-	eps        float64
-	length     float64 // current tour length, fixed edges included
-	scratchOne []int32
+	queue     []int32 // ring buffer
+	qhead, qn int32
+	inq       []bool
+	journal   []int32 // pairs (position, length) of applied reversals
+	recording bool
+	maxRev    int32 // longest reversal a move may make
+	orMax     int   // longest segment an Or-opt move shifts, in nodes
+	or3       bool  // also try sequential 3-opt moves
+	eps       float64
+	length    float64 // current tour length, fixed edges included
 }
 
 func newSolver(g *graph, nb *neighbours, tour []int32) *solver {
@@ -110,6 +109,7 @@ func (s *solver) reverseRange(i, l int32) {
 	if s.recording {
 		s.journal = append(s.journal, i, l)
 	}
+
 	n := s.n
 	j := i + l - 1
 	t, pos := s.t, s.pos

@@ -430,10 +430,18 @@ func yieldOf(probs []float64) planner.Yield {
 			dist[0] *= 1 - q
 		}
 	}
+	lsum, varSum := 0.0, 0.0
 	for _, q := range probs {
 		y.MeanGood += q
+		lsum += math.Log10(q)
+		varSum += q * (1 - q)
 	}
 	y.All = dist[n]
+	y.Log10All = lsum
+	y.SDGood = math.Sqrt(varSum)
+	for y.DistributionFrom < n && dist[y.DistributionFrom] == 0 {
+		y.DistributionFrom++
+	}
 	y.Distribution = dist
 	if y.All > 0 {
 		y.DevicesPerPerfect = 1 / y.All

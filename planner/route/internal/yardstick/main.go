@@ -133,7 +133,7 @@ func peakRSS() float64 {
 }
 
 func uniformTable(sizes []int, opt route.Options) {
-	fmt.Println("Random uniform points, closed tours (length / sqrt(n*A); the optimum tends to about 0.7124, Beardwood-Halton-Hammersley constant as estimated by Applegate et al. 2006, from memory)")
+	fmt.Println("Random uniform points in a square, closed tours: length / sqrt(n*A) (for large n the optimum tends to about 0.7124, the Beardwood-Halton-Hammersley constant as estimated by Applegate et al. 2006, from memory; finite n and the square's boundary add a little)")
 	tw := tabwriter.NewWriter(os.Stdout, 2, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "n\tlength/sqrt(nA)\ttime\tpeak RSS MB\tNN length/sqrt(nA)\tNN time\tgain over NN %\t")
 	for _, n := range sizes {
@@ -145,8 +145,9 @@ func uniformTable(sizes []int, opt route.Options) {
 		scale := float64(n) // A = n for the unit-density square, so sqrt(n*A) = n
 		fmt.Fprintf(tw, "%d\t%.4f\t%.2fs\t%.0f\t%.4f\t%.2fs\t%.1f\t\n", n, s.Length/scale, ts.Seconds(), peakRSS(),
 			nn.Length/scale, tn.Seconds(), 100*(1-s.Length/nn.Length))
-		tw.Flush()
 	}
+	tw.Flush()
+	fmt.Println("(peak RSS: the process's high-water mark so far, so the largest run's)")
 	fmt.Println()
 }
 
