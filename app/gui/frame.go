@@ -797,7 +797,9 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 				continue
 			}
 			c := SegmentColor(st.Segment)
-			wpx := math.Max(3, st.WidthNM/v.Scale)
+			// At least 2 px so a stroke shows; thin lines get no more, so a
+			// dense raster does not merge into a block when zoomed out.
+			wpx := math.Max(2, st.WidthNM/v.Scale)
 			if len(st.Path) == 1 {
 				x, y := v.ToScreen(st.Path[0])
 				pb.disk(x, y, math.Max(2.5, wpx/2), c, 256)

@@ -59,8 +59,16 @@ func (s *Session) Scene(o SceneOptions) *Scene {
 // fiducials segments register on.
 func RouteOf(p *planner.Plan) *RouteOverlay {
 	width := map[planner.WriteMode]float64{}
+	raster := map[planner.WriteMode]float64{}
 	for _, c := range p.Conditions {
 		width[c.Mode] = c.LineWidthNM
+		// Raster lines are drawn narrower than written, at most 60 % of
+		// their pitch, so the gaps show the raster's direction instead of
+		// a solid block hiding the region.
+		raster[c.Mode] = c.LineWidthNM
+		if c.PitchNM > 0 {
+			raster[c.Mode] = min(c.LineWidthNM, 0.6*c.PitchNM)
+		}
 	}
 	rt := &RouteOverlay{}
 	for _, st := range p.Strokes {
@@ -71,7 +79,11 @@ func RouteOf(p *planner.Plan) *RouteOverlay {
 		for _, q := range st.Path {
 			b = b.AddPoint(q)
 		}
-		rt.Strokes = append(rt.Strokes, RouteStroke{Path: st.Path, WidthNM: width[st.Mode], Segment: st.Segment, Bounds: b})
+		w := width[st.Mode]
+		if st.Kind == planner.StrokeRaster {
+			w = raster[st.Mode]
+		}
+		rt.Strokes = append(rt.Strokes, RouteStroke{Path: st.Path, WidthNM: w, Segment: st.Segment, Bounds: b})
 	}
 	for _, a := range p.Actions {
 		if a.Kind == planner.ActMove && a.From != a.To {
