@@ -297,6 +297,14 @@ func (u *UI) toolPalette() fyne.CanvasObject {
 		u.refreshLegend()
 	})
 	u.findingsCheck.SetChecked(true)
+	legend := widget.NewCheck("Legend", func(on bool) {
+		if on {
+			u.View.legend.Show()
+		} else {
+			u.View.legend.Hide()
+		}
+	})
+	legend.SetChecked(true)
 	return container.NewVBox(
 		heading("Tools"),
 		container.NewGridWithColumns(1, buttons...),
@@ -305,7 +313,7 @@ func (u *UI) toolPalette() fyne.CanvasObject {
 		u.toolOptions,
 		widget.NewSeparator(),
 		heading("Show"),
-		u.routeCheck, u.findingsCheck,
+		u.routeCheck, u.findingsCheck, legend,
 	)
 }
 
