@@ -103,7 +103,7 @@ func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 			t.Errorf("plan panel lacks %q:\n%s", want, panel)
 		}
 	}
-	if legend := texts(u.legend); !strings.Contains(legend, "strokes, by segment (2)") {
+	if legend := texts(u.legend); !strings.Contains(legend, "strokes by segment (2)") {
 		t.Errorf("legend lacks the route:\n%s", legend)
 	}
 

@@ -351,7 +351,9 @@ func (u *UI) optionEntry(label string, value string, apply func(string) error) f
 			msg.Hide()
 		}
 	}
-	return container.NewVBox(widget.NewLabel(label), e, msg)
+	l := widget.NewLabel(label)
+	l.Wrapping = fyne.TextWrapWord
+	return container.NewVBox(l, e, msg)
 }
 
 func (u *UI) setOpt(f func(o *ToolOptions) error) error {
@@ -391,7 +393,7 @@ func (u *UI) optionsFor(t Tool) []fyne.CanvasObject {
 	}
 	switch t {
 	case ToolSite, ToolDimer, ToolEraser:
-		return []fyne.CanvasObject{num("Brush radius (nm, 0 = one at a time)", o.BrushNM, func(o *ToolOptions, v float64) { o.BrushNM = v })}
+		return []fyne.CanvasObject{num("Brush radius, nm (0: one at a time)", o.BrushNM, func(o *ToolOptions, v float64) { o.BrushNM = v })}
 	case ToolLine:
 		return []fyne.CanvasObject{num("Line width (nm)", o.LineWidthNM, func(o *ToolOptions, v float64) { o.LineWidthNM = v })}
 	case ToolWindow:
@@ -478,7 +480,7 @@ func (u *UI) refreshLegend() {
 		for i := 0; i < min(len(p.Segments), 6); i++ {
 			segs.Add(swatch(SegmentColor(i), 8, 12))
 		}
-		title := fmt.Sprintf("strokes, by segment (%d)", len(p.Segments))
+		title := fmt.Sprintf("strokes by segment (%d)", len(p.Segments))
 		if stale {
 			title += " — out of date"
 		}
@@ -492,11 +494,7 @@ func (u *UI) refreshLegend() {
 	if surf := u.S.Surface(); surf != nil && len(surf.Terraces) > 1 {
 		rows = append(rows, widget.NewSeparator())
 		for i, t := range surf.Terraces {
-			dir := "horizontal"
-			if t.Rows.String() == "y" {
-				dir = "vertical"
-			}
-			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: dimer rows along %s (%s)", t.Name, t.Rows, dir)))
+			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: rows along %s", t.Name, t.Rows)))
 		}
 		rows = append(rows, legendRow(swatch(colStep, 14, 2), "step edge"))
 	}
