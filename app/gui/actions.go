@@ -68,6 +68,9 @@ func (u *UI) StartPlan() {
 }
 
 func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken, err error) {
+	if u.jobDone != nil {
+		defer u.jobDone()
+	}
 	u.planCancel = nil
 	u.planButton.Enable()
 	u.hideProgress()
@@ -178,6 +181,9 @@ func (u *UI) compareVariants() {
 			}
 		}
 		fyne.Do(func() {
+			if u.jobDone != nil {
+				defer u.jobDone()
+			}
 			u.planCancel = nil
 			u.planButton.Enable()
 			u.hideProgress()

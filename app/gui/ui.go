@@ -88,6 +88,10 @@ type UI struct {
 	checkTimer   *time.Timer
 	stopAutosave chan struct{}
 	lastAutosave *snapshot
+
+	// jobDone, when set (by tests), is called after a background plan or
+	// comparison has reported back.
+	jobDone func()
 }
 
 // New builds the main window's content in w for session s and wires the
