@@ -8,7 +8,7 @@ import (
 	"fyne.io/fyne/v2/test"
 )
 
-func demoSession(t *testing.T) *Session {
+func demoSession(t testing.TB) *Session {
 	t.Helper()
 	d, err := demoDesign()
 	if err != nil {
