@@ -597,7 +597,7 @@ func (b *builder) reoptimise(sg *segmenter, starts []int) ([]job, error) {
 		if two[0] && two[1] {
 			p.Group, p.Before = groups, [][2]int{{0, 1}}
 		}
-		sol, err := route.Solve(b.ctx, p, route.Options{MaxKicks: min(max(len(seg)/4, 20), 200), Seed: b.opt.Seed + int64(si)})
+		sol, err := route.Solve(b.ctx, p, route.Options{MaxKicks: min(max(len(seg)/8, 10), 100), Seed: b.opt.Seed + int64(si)})
 		if err != nil {
 			return nil, err
 		}
