@@ -68,6 +68,9 @@ func (u *UI) StartPlan() {
 }
 
 func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken, err error) {
+	if u.jobDone != nil {
+		defer u.jobDone()
+	}
 	u.planCancel = nil
 	u.planButton.Enable()
 	u.hideProgress()
@@ -178,6 +181,9 @@ func (u *UI) compareVariants() {
 			}
 		}
 		fyne.Do(func() {
+			if u.jobDone != nil {
+				defer u.jobDone()
+			}
 			u.planCancel = nil
 			u.planButton.Enable()
 			u.hideProgress()
@@ -190,9 +196,11 @@ func (u *UI) compareVariants() {
 	}()
 }
 
-// comparisonView is the table and charts of a comparison.
+// comparisonView is the table and charts of a comparison: per variant
+// the write time with its spread, the share spent on registrations, and
+// the dopant yield. The full breakdown is in the exported report.
 func comparisonView(res []export.VariantResult) fyne.CanvasObject {
-	header := []string{"Variant", "Write time", "P10 – P90", "AP", "FE", "Dwell", "Travel", "Registr.", "All windows good", "Devices / perfect"}
+	header := []string{"Variant", "Write time", "P10 – P90", "Registrations", "All windows good", "Devices / perfect"}
 	cols := len(header)
 	var cells []fyne.CanvasObject
 	for _, h := range header {
@@ -224,9 +232,11 @@ func comparisonView(res []export.VariantResult) fyne.CanvasObject {
 		if p.Yield.Windows > 0 {
 			all = formatProbability(p.Yield.All)
 		}
-		b := p.Breakdown
-		for _, t := range []string{r.Variant, formatDuration(p.TotalS), formatDuration(p.P10S) + " – " + formatDuration(p.P90S),
-			formatDuration(b.APWriteS), formatDuration(b.FEWriteS), formatDuration(b.DwellS), formatDuration(b.TravelS), formatDuration(b.RegistrationS), all, dev} {
+		reg := formatDuration(p.Breakdown.RegistrationS)
+		if p.TotalS > 0 {
+			reg += fmt.Sprintf(" (%.0f %%)", 100*p.Breakdown.RegistrationS/p.TotalS)
+		}
+		for _, t := range []string{r.Variant, formatDuration(p.TotalS), formatDuration(p.P10S) + " – " + formatDuration(p.P90S), reg, all, dev} {
 			cells = append(cells, widget.NewLabel(t))
 		}
 		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: formatDuration(p.TotalS), Color: SegmentColor(i)})

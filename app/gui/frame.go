@@ -797,13 +797,21 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 				continue
 			}
 			c := SegmentColor(st.Segment)
-			wpx := math.Max(3, st.WidthNM/v.Scale)
+			// At least 2 px so a stroke shows; thin lines get no more, so a
+			// dense raster does not merge into a block when zoomed out.
+			wpx := math.Max(2, st.WidthNM/v.Scale)
+			// Wide strokes (zoomed in) are see-through, so the sites they
+			// clear stay visible under them.
+			alpha := 256
+			if wpx >= 8 {
+				alpha = 150
+			}
 			if len(st.Path) == 1 {
 				x, y := v.ToScreen(st.Path[0])
-				pb.disk(x, y, math.Max(2.5, wpx/2), c, 256)
+				pb.disk(x, y, math.Max(2.5, wpx/2), c, alpha)
 				continue
 			}
-			drawPath(pb, v, st.Path, false, wpx, c, 256)
+			drawPath(pb, v, st.Path, false, wpx, c, alpha)
 		}
 		for _, p := range rt.Registrations {
 			x, y := v.ToScreen(p)

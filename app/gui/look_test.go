@@ -13,14 +13,7 @@ import (
 // at atomic zoom an island site in the island's colour beside a clean
 // site in the clean-H colour. Set DIMERPATH_FRAME_DIR to keep the frames.
 func TestDemoAtEveryZoom(t *testing.T) {
-	d, err := demoDesign()
-	if err != nil {
-		t.Fatal(err)
-	}
-	s, err := NewSession(d, "")
-	if err != nil {
-		t.Fatal(err)
-	}
+	s := demoSession(t)
 	region := func(name string) int {
 		for i, r := range s.Variant().Regions {
 			if r.Name == name {

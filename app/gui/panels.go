@@ -290,6 +290,7 @@ func (p *regionsPanel) refresh() {
 		return
 	}
 	p.list.Select(a)
+	p.list.ScrollTo(a)
 	p.form.Show()
 	r := v.Regions[a]
 	if p.shown != a || p.name.Text != r.Name {

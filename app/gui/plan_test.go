@@ -79,7 +79,8 @@ func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 	p := handPlan(u.S)
 	u.S.SetPlan(p, p.Variant, u.S.Token())
 	mid := p.Strokes[0].Path[0].Add(p.Strokes[0].Path[1]).Mul(0.5)
-	img := zoomOn(w, u, mid, 0.05)
+	// Zoomed out, strokes are drawn opaque in their segment's colour.
+	img := zoomOn(w, u, mid, 0.5)
 	if got, want := pixelAt(img, u, mid), SegmentColor(0); got != want {
 		t.Errorf("stroke of segment 0 drawn %v, want %v", got, want)
 	}
@@ -87,17 +88,22 @@ func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 	if got, want := pixelAt(img, u, mid1), SegmentColor(1); got != want {
 		t.Errorf("stroke of segment 1 drawn %v, want %v", got, want)
 	}
+	// Zoomed in, they are see-through: the segment colour over the lead.
+	img = zoomOn(w, u, mid, 0.03)
+	if got := pixelAt(img, u, mid); got == SegmentColor(0) || got.R <= got.B {
+		t.Errorf("wide stroke drawn %v, want segment 0's red laid over the sites", got)
+	}
 	u.View.Fit()
 	u.tabs.Select(u.tabPlan)
 	saveImage(t, "window-plan.png", w.Canvas().Capture())
-	img = zoomOn(w, u, mid, 0.05)
+	zoomOn(w, u, mid, 0.5)
 	panel := texts(u.planView.content)
 	for _, want := range []string{formatDuration(3720), "P10 " + formatDuration(3500), "Every window takes exactly one donor: 40 %", "2 drift-safe segments"} {
 		if !strings.Contains(panel, want) {
 			t.Errorf("plan panel lacks %q:\n%s", want, panel)
 		}
 	}
-	if legend := texts(u.legend); !strings.Contains(legend, "strokes, by segment (2)") {
+	if legend := texts(u.legend); !strings.Contains(legend, "strokes by segment (2)") {
 		t.Errorf("legend lacks the route:\n%s", legend)
 	}
 
@@ -133,7 +139,11 @@ func TestComparisonView(t *testing.T) {
 	u, _ := newTestUI(t, nil)
 	p := handPlan(u.S)
 	res := []exportResult{{Variant: "A", Plan: p}, {Variant: "B", Err: errPlanTest}}
-	text := texts(comparisonView(res))
+	view := comparisonView(res)
+	if w := view.MinSize().Width; w > 1000 {
+		t.Errorf("comparison is %g units wide, more than its 1000-unit dialog", w)
+	}
+	text := texts(view)
 	for _, want := range []string{"A", formatDuration(3720), "40 %", "B", errPlanTest.Error()} {
 		if !strings.Contains(text, want) {
 			t.Errorf("comparison lacks %q:\n%s", want, text)

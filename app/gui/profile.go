@@ -279,7 +279,7 @@ func (e *profileEditor) explain(err error) error {
 	}
 	var le *planner.LimitError
 	if errors.As(err, &le) {
-		return fmt.Errorf("%s = %s is beyond the instrument limit %s = %s", name(le.Quantity), shown(le.Quantity, le.Value), name(le.Limit), shown(le.Limit, le.Max))
+		return fmt.Errorf("%s = %s is more than the instrument allows (%s = %s)", name(le.Quantity), shown(le.Quantity, le.Value), name(le.Limit), shown(le.Limit, le.Max))
 	}
 	return err
 }

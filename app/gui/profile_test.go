@@ -26,7 +26,7 @@ func TestProfileEditorRefusesBadValues(t *testing.T) {
 	}{
 		{"not a number", "two", "not a number"},
 		{"negative", "-1", "positive"},
-		{"beyond the limit", "1e6", "beyond the instrument limit"},
+		{"beyond the limit", "1e6", "more than the instrument allows (Instrument limits / Largest current (nA) = "},
 	}
 	for _, c := range cases {
 		cur.SetText(c.text)

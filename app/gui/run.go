@@ -74,7 +74,9 @@ func Run(o RunOptions) int {
 		u.addRecent(path)
 	}
 	if o.Screenshot == "" {
-		w.Resize(fyne.NewSize(1440, 900))
+		// A size that fits a 1280 x 800 laptop screen; the window can be
+		// maximised.
+		w.Resize(fyne.NewSize(1280, 800))
 		u.StartAutosave()
 		u.OfferRecovery()
 		u.scheduleCheck()

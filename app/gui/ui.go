@@ -88,6 +88,10 @@ type UI struct {
 	checkTimer   *time.Timer
 	stopAutosave chan struct{}
 	lastAutosave *snapshot
+
+	// jobDone, when set (by tests), is called after a background plan or
+	// comparison has reported back.
+	jobDone func()
 }
 
 // New builds the main window's content in w for session s and wires the
@@ -297,6 +301,14 @@ func (u *UI) toolPalette() fyne.CanvasObject {
 		u.refreshLegend()
 	})
 	u.findingsCheck.SetChecked(true)
+	legend := widget.NewCheck("Legend", func(on bool) {
+		if on {
+			u.View.legend.Show()
+		} else {
+			u.View.legend.Hide()
+		}
+	})
+	legend.SetChecked(true)
 	return container.NewVBox(
 		heading("Tools"),
 		container.NewGridWithColumns(1, buttons...),
@@ -305,7 +317,7 @@ func (u *UI) toolPalette() fyne.CanvasObject {
 		u.toolOptions,
 		widget.NewSeparator(),
 		heading("Show"),
-		u.routeCheck, u.findingsCheck,
+		u.routeCheck, u.findingsCheck, legend,
 	)
 }
 
@@ -343,7 +355,9 @@ func (u *UI) optionEntry(label string, value string, apply func(string) error) f
 			msg.Hide()
 		}
 	}
-	return container.NewVBox(widget.NewLabel(label), e, msg)
+	l := widget.NewLabel(label)
+	l.Wrapping = fyne.TextWrapWord
+	return container.NewVBox(l, e, msg)
 }
 
 func (u *UI) setOpt(f func(o *ToolOptions) error) error {
@@ -383,7 +397,7 @@ func (u *UI) optionsFor(t Tool) []fyne.CanvasObject {
 	}
 	switch t {
 	case ToolSite, ToolDimer, ToolEraser:
-		return []fyne.CanvasObject{num("Brush radius (nm, 0 = one at a time)", o.BrushNM, func(o *ToolOptions, v float64) { o.BrushNM = v })}
+		return []fyne.CanvasObject{num("Brush radius, nm (0: one at a time)", o.BrushNM, func(o *ToolOptions, v float64) { o.BrushNM = v })}
 	case ToolLine:
 		return []fyne.CanvasObject{num("Line width (nm)", o.LineWidthNM, func(o *ToolOptions, v float64) { o.LineWidthNM = v })}
 	case ToolWindow:
@@ -470,7 +484,7 @@ func (u *UI) refreshLegend() {
 		for i := 0; i < min(len(p.Segments), 6); i++ {
 			segs.Add(swatch(SegmentColor(i), 8, 12))
 		}
-		title := fmt.Sprintf("strokes, by segment (%d)", len(p.Segments))
+		title := fmt.Sprintf("strokes by segment (%d)", len(p.Segments))
 		if stale {
 			title += " — out of date"
 		}
@@ -484,11 +498,7 @@ func (u *UI) refreshLegend() {
 	if surf := u.S.Surface(); surf != nil && len(surf.Terraces) > 1 {
 		rows = append(rows, widget.NewSeparator())
 		for i, t := range surf.Terraces {
-			dir := "horizontal"
-			if t.Rows.String() == "y" {
-				dir = "vertical"
-			}
-			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: dimer rows along %s (%s)", t.Name, t.Rows, dir)))
+			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: rows along %s", t.Name, t.Rows)))
 		}
 		rows = append(rows, legendRow(swatch(colStep, 14, 2), "step edge"))
 	}
