@@ -323,7 +323,7 @@ func (ck *coverageCheck) run() {
 func (ck *coverageCheck) factors(ps []*piece, r siteRect) (fu0, fu1, fy0, fy1 []float64) {
 	n := len(ps)
 	top := len(ck.arena)
-	ck.arena = append(ck.arena, make([]float64, 4*n)...)
+	ck.grow(4 * n)
 	buf := ck.arena[top:]
 	fu0, fu1, fy0, fy1 = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n]
 	for i, p := range ps {
@@ -369,10 +369,8 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		}
 	}
 	if keep < len(all) {
-		buf := ck.arena
-		buf = append(buf, make([]float64, 4*keep)...)
-		ck.arena = buf
-		b := buf[atop:]
+		ck.grow(4 * keep)
+		b := ck.arena[atop:]
 		fu0, fu1, fy0, fy1 = b[:keep], b[keep:2*keep], b[2*keep:3*keep], b[3*keep:4*keep]
 		for i, p := range all {
 			if p.uLo <= r.u1 && p.uHi >= r.u0 && p.yLo <= r.y1 && p.yHi >= r.y0 {
@@ -412,6 +410,12 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		ck.classifyRect(r, active, false, hi, who)
 		return
 	}
+	// Undecided, but nothing here matters: no painted site, and every site
+	// within the edge allowance of a region dosing it (cleared or not,
+	// such a site is tolerated). FE edges are mostly this.
+	if !ck.paintedIn(r) && ck.tolerated(r, active) {
+		return
+	}
 	// Halve the side that leaves the bounds furthest apart: the gap the
 	// along factors leave against the gap the across factors leave. The
 	// halves share the new edge, so one new factor per piece serves both.
@@ -428,7 +432,7 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 	a, b := r, r
 	n := len(active)
 	top := len(ck.arena)
-	ck.arena = append(ck.arena, make([]float64, n)...)
+	ck.grow(n)
 	fm := ck.arena[top : top+n]
 	splitU := gapU > gapY || (gapU == gapY && r.u1-r.u0 >= r.y1-r.y0)
 	if (splitU && r.d1-r.d0 > 1) || r.l1-r.l0 == 1 {
@@ -456,6 +460,65 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 	}
 	ck.decide(a, active, fu0, fu1, fy0, fm)
 	ck.decide(b, active, fu0, fu1, fm, fy1)
+}
+
+// grow lengthens the arena by n values (not cleared: callers write
+// every value they read).
+func (ck *coverageCheck) grow(n int) {
+	ck.arena = slices.Grow(ck.arena, n)[:len(ck.arena)+n]
+}
+
+// paintedIn reports whether r holds a painted site.
+func (ck *coverageCheck) paintedIn(r siteRect) bool {
+	for l := r.l0; l < r.l1; l++ {
+		side := l % 2
+		if anyParity(ck.painted.Row(r.t, l/2), 2*r.d0+side, 2*(r.d1-1)+side+1, uint64(0x5555555555555555)<<uint(side)) {
+			return true
+		}
+	}
+	return false
+}
+
+// tolerated reports whether every site of r lies within the edge
+// allowance of one region whose strokes dose r.
+func (ck *coverageCheck) tolerated(r siteRect, active []*piece) bool {
+	var tried [4]int
+	n := 0
+next:
+	for _, p := range active {
+		ri := ck.region[p.stroke]
+		if ri < 0 {
+			continue
+		}
+		for _, x := range tried[:n] {
+			if x == ri {
+				continue next
+			}
+		}
+		if n == len(tried) {
+			return false
+		}
+		tried[n] = ri
+		n++
+		allow := ck.prof.AP.EdgeAllowanceNM
+		if ck.strokes[p.stroke].Mode == FE {
+			allow = ck.prof.FE.EdgeAllowanceNM
+		}
+		if allow <= 0 {
+			continue
+		}
+		u0, u1 := float64(r.d0)*lattice.DimerPitch, float64(r.d1-1)*lattice.DimerPitch
+		ok := true
+		for row := r.l0 / 2; row <= (r.l1-1)/2 && ok; row++ {
+			sp := ck.allowedCached(ri, r.t, row, allow)
+			i := sort.Search(len(sp), func(i int) bool { return sp[i].hi+1e-9 >= u1 })
+			ok = i < len(sp) && sp[i].lo-1e-9 <= u0
+		}
+		if ok {
+			return true
+		}
+	}
+	return false
 }
 
 // slantedBounds bounds a slanted piece's dose share over r's box from
@@ -498,6 +561,9 @@ func (ck *coverageCheck) leaf(r siteRect, active []*piece) {
 // classifyRect classifies every site of r as cleared or not, line by
 // line (see classifyRange).
 func (ck *coverageCheck) classifyRect(r siteRect, active []*piece, cleared bool, e float64, who int32) {
+	if cleared && ck.tolerated(r, active) {
+		return // painted sites clear, and the rest are within the allowance
+	}
 	for l := r.l0; l < r.l1; l++ {
 		row := rowLine{t: r.t, r: l / 2, side: l % 2, pw: ck.painted.Row(r.t, l/2)}
 		ck.classifyRange(&row, active, r.d0, r.d1, cleared, e, who)

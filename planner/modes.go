@@ -22,17 +22,19 @@ const ballard = "Ballard et al., JVST B 32, 041804 (2014)"
 
 // regionWork is one region of the variant as the planner works on it.
 type regionWork struct {
-	index     int
-	name      string
-	role      design.Role
-	requested design.Mode
-	sites     *lattice.SiteSet // every site, windows included
-	windows   []lattice.Window
-	plain     *lattice.SiteSet // sites outside the windows
-	tolGiven  float64          // the region's own tolerance, 0 for none
-	segs      []runSeg
-	width     float64 // narrowest chord, nm (see minWidth)
-	widthAt   r2.Point
+	index      int
+	name       string
+	role       design.Role
+	requested  design.Mode
+	sites      *lattice.SiteSet // every site, windows included
+	windows    []lattice.Window
+	plain      *lattice.SiteSet // sites outside the windows
+	tolGiven   float64          // the region's own tolerance, 0 for none
+	count      int              // sites
+	plainCount int              // sites outside the windows
+	segs       []runSeg
+	width      float64 // narrowest chord, nm (see minWidth)
+	widthAt    r2.Point
 
 	mode           string
 	reason         string

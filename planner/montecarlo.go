@@ -19,7 +19,7 @@ const DefaultMonteCarloRuns = 1000
 // identically distributed) capped completion times is drawn from its
 // normal approximation (central limit theorem), whose error is far below
 // the spread of the drift term.
-const exactDwellSamples = 2000
+const exactDwellSamples = 256
 
 // spreadRanks is the number of intervals between the drift-rate ranks
 // at which the segmentation is computed exactly when dwells add their own
@@ -117,11 +117,13 @@ func monteCarlo(ctx context.Context, sg *segmenter, prof *Profile, runs int, see
 		mean := prof.Dwell.ExpectedS()
 		src := rand.NewPCG(uint64(seed), 0x6477656c6c)
 		if dwells <= exactDwellSamples {
-			exp := distuv.Exponential{Rate: k, Src: src}
+			// Exponential with rate k, as distuv.Exponential draws it
+			// (ExpFloat64/k), from one generator rather than one per draw.
+			rng := rand.New(src)
 			for i := range totals {
 				d := 0.0
 				for range dwells {
-					d += math.Min(exp.Rand(), capS) - mean
+					d += math.Min(rng.ExpFloat64()/k, capS) - mean
 				}
 				totals[i] += d
 			}

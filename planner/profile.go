@@ -328,6 +328,11 @@ func (p Profile) Validate() error {
 	if p.Version < 1 || p.Version > ProfileVersion {
 		v.add("version", p.Version, fmt.Sprintf("must be 1..%d (this dimerpath reads up to version %d)", ProfileVersion, ProfileVersion))
 	}
+	if p.Base != "" {
+		if _, err := Preset(p.Base); err != nil {
+			v.add("base", p.Base, fmt.Sprintf("must name a preset (%s) or be empty", strings.Join(Presets(), ", ")))
+		}
+	}
 	v.mode("ap", p.AP, false)
 	v.mode("fe", p.FE, true)
 
