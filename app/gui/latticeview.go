@@ -315,6 +315,7 @@ func (lv *LatticeView) TypedRune(r rune) {
 		lv.OnRune(r)
 	}
 }
+
 // TypedKey passes a typed key to OnKey.
 func (lv *LatticeView) TypedKey(k *fyne.KeyEvent) {
 	if lv.OnKey != nil {
