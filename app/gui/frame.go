@@ -86,13 +86,13 @@ type Renderer struct {
 	terr  []int8   // terrace index per pixel, -1 none, -2 outside the field
 	total []uint32 // painted sites per pixel, all layers
 	best  []uint32 // the largest single layer's count per pixel
-	owner []uint8  // 1 + index of that layer, 0 for none
+	owner []uint16 // 1 + index of that layer, 0 for none
 	line  []uint32 // one layer's counts along one pixel row
 
 	tabs  []axisTables
 	xs    []float64 // scanline crossings, reused
 	lut   []uint32  // layer colours by coverage level
-	grid  []uint8   // atomic mode: owner per visible site
+	grid  []uint16  // atomic mode: owner per visible site
 	alut  []uint32  // atomic mode: dot, bond, tint per layer
 	bg    *backgrounds
 	stats FrameStats
@@ -107,6 +107,9 @@ type FrameStats struct {
 // coverage levels: a pixel's share of painted sites is shown in this
 // many steps.
 const levels = 16
+
+// maxLayers is the most regions a frame draws (owners are 16-bit).
+const maxLayers = 1<<16 - 1
 
 // axisTables holds, for one terrace, the lattice range each pixel column
 // and pixel row covers. For a RowsAlongX terrace the columns give site
@@ -181,7 +184,7 @@ func (r *Renderer) resize(w, h int) {
 	r.terr = make([]int8, n)
 	r.total = make([]uint32, n)
 	r.best = make([]uint32, n)
-	r.owner = make([]uint8, n)
+	r.owner = make([]uint16, n)
 	r.line = make([]uint32, w)
 }
 
@@ -422,7 +425,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 	clear(r.owner)
 	nt := len(sc.Surface.Terraces)
 	for li, L := range sc.Layers {
-		if L.Sites == nil || li >= 255 {
+		if L.Sites == nil || li >= maxLayers {
 			continue
 		}
 		x0, y0, x1, y1 := screenBox(L.Bounds, v)
@@ -498,7 +501,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 					r.total[i] += c
 					if c > r.best[i] {
 						r.best[i] = c
-						r.owner[i] = uint8(li + 1)
+						r.owner[i] = uint16(li + 1)
 					}
 				}
 			}
@@ -676,7 +679,7 @@ func (r *Renderer) drawAtomic(sc *Scene, v View) {
 	r.grid = grow(r.grid, total)
 	clear(r.grid)
 	for li, L := range sc.Layers {
-		if L.Sites == nil || li >= 255 {
+		if L.Sites == nil || li >= maxLayers {
 			continue
 		}
 		for t := 0; t < min(nt, L.Sites.TerraceCount()); t++ {
@@ -695,7 +698,7 @@ func (r *Renderer) drawAtomic(sc *Scene, v View) {
 						word &= word - 1
 						idx := k<<6 + b
 						if idx >= tb.i0 && idx <= tb.i1 {
-							g[idx-tb.i0] = uint8(li + 1)
+							g[idx-tb.i0] = uint16(li + 1)
 						}
 					}
 				}
