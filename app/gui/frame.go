@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/bits"
 	"slices"
+	"sort"
 	"unsafe"
 
 	"github.com/golang/geo/r2"
@@ -376,6 +377,23 @@ func grow[T any](s []T, n int) []T {
 	return s[:n]
 }
 
+// rowSpan returns the index of the first set bit of a row bitset and one
+// past its last, or -1, -1 for an empty row.
+func rowSpan(w []uint64) (first, last int) {
+	i := 0
+	for i < len(w) && w[i] == 0 {
+		i++
+	}
+	if i == len(w) {
+		return -1, -1
+	}
+	j := len(w) - 1
+	for w[j] == 0 {
+		j--
+	}
+	return i*64 + bits.TrailingZeros64(w[i]), j*64 + 64 - bits.LeadingZeros64(w[j])
+}
+
 // countRange returns the number of set bits [lo, hi) of a row bitset.
 func countRange(w []uint64, lo, hi int) uint32 {
 	n := len(w) * 64
@@ -453,15 +471,32 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 					}
 					for row := int(rr.lo); row < hi; row++ {
 						words := L.Sites.Row(t, row)
-						if len(words) == 0 {
+						first, last := rowSpan(words)
+						if first < 0 {
 							continue
 						}
-						for x := x0; x < x1; x++ {
+						// Only the pixels over the row's painted span: along
+						// grows with x on a RowsAlongX terrace.
+						xa := x0 + sort.Search(x1-x0, func(i int) bool { return int(tb.along[x0+i].hi) > first })
+						xb := x0 + sort.Search(x1-x0, func(i int) bool { return int(tb.along[x0+i].lo) >= last })
+						n := len(words) * 64
+						for x := xa; x < xb; x++ {
 							if int(terr[x]) != t {
 								continue
 							}
 							a := tb.along[x]
-							if c := countRange(words, int(a.lo), int(a.hi)); c != 0 {
+							lo, hi := int(a.lo), min(int(a.hi), n)
+							if lo >= hi {
+								continue
+							}
+							var c uint32
+							if k := lo >> 6; k == (hi-1)>>6 {
+								// The common case, one word: inline.
+								c = uint32(bits.OnesCount64(words[k] >> (uint(lo) & 63) & (^uint64(0) >> (64 - uint(hi-lo)))))
+							} else {
+								c = countRange(words, lo, hi)
+							}
+							if c != 0 {
 								line[x] += c
 								any = true
 							}
