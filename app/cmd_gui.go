@@ -21,7 +21,7 @@ func init() {
 				fmt.Fprintf(env.Stderr, "dimerpath: one design file at most, got %d\n", len(args))
 				return ExitFailure
 			}
-			o := gui.RunOptions{Screenshot: *shot, Stderr: env.Stderr}
+			o := gui.RunOptions{Screenshot: *shot, Stderr: env.Stderr, Generator: "dimerpath " + Version}
 			if len(args) == 1 {
 				o.Design = args[0]
 			}

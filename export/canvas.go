@@ -11,15 +11,19 @@ import "math"
 // vec is a point in device units.
 type vec struct{ x, y float64 }
 
-func (a vec) add(b vec) vec        { return vec{a.x + b.x, a.y + b.y} }
-func (a vec) sub(b vec) vec        { return vec{a.x - b.x, a.y - b.y} }
-func (a vec) scale(s float64) vec  { return vec{a.x * s, a.y * s} }
-func (a vec) norm() float64        { return math.Hypot(a.x, a.y) }
-func boxAt(x, y, w, h float64) box { return box{x, y, w, h} }
-func (b box) right() float64       { return b.x + b.w }
-func (b box) bottom() float64      { return b.y + b.h }
-func (b box) centre() vec          { return vec{b.x + b.w/2, b.y + b.h/2} }
-func (b box) inset(d float64) box  { return box{b.x + d, b.y + d, b.w - 2*d, b.h - 2*d} }
+func (a vec) add(b vec) vec       { return vec{a.x + b.x, a.y + b.y} }
+func (a vec) sub(b vec) vec       { return vec{a.x - b.x, a.y - b.y} }
+func (a vec) scale(s float64) vec { return vec{a.x * s, a.y * s} }
+func (a vec) norm() float64       { return math.Hypot(a.x, a.y) }
+
+// box is an axis-aligned rectangle in device units: top-left corner,
+// width and height.
+type box struct{ x, y, w, h float64 }
+
+func (b box) right() float64      { return b.x + b.w }
+func (b box) bottom() float64     { return b.y + b.h }
+func (b box) centre() vec         { return vec{b.x + b.w/2, b.y + b.h/2} }
+func (b box) inset(d float64) box { return box{b.x + d, b.y + d, b.w - 2*d, b.h - 2*d} }
 func (b box) overlaps(o box) bool {
 	return b.x < o.right() && o.x < b.right() && b.y < o.bottom() && o.y < b.bottom()
 }
@@ -29,13 +33,7 @@ func (b box) contains(o box) bool {
 func (b box) containsPt(p vec) bool {
 	return p.x >= b.x && p.x <= b.right() && p.y >= b.y && p.y <= b.bottom()
 }
-func (b box) grow(d float64) box       { return box{b.x - d, b.y - d, b.w + 2*d, b.h + 2*d} }
-func (b box) shift(d vec) box          { return box{b.x + d.x, b.y + d.y, b.w, b.h} }
-func (b box) withHeight(h float64) box { return box{b.x, b.y, b.w, h} }
-
-// box is an axis-aligned rectangle in device units: top-left corner,
-// width and height.
-type box struct{ x, y, w, h float64 }
+func (b box) shift(d vec) box { return box{b.x + d.x, b.y + d.y, b.w, b.h} }
 
 // grey is a grey level from 0 (black) to 1 (white). The figures use grey
 // levels, line styles and hatching only, so they print in black and white.

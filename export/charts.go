@@ -111,7 +111,7 @@ func drawSpread(c canvas, p10, p50, p90, total float64, area box) float64 {
 	bh := 7 * u
 	axisY := top + bh + 3*u
 	c.group(tag{id: "spread", class: "chart"}, penBar, noPaint)
-	for t := lo; t <= hi+1e-9*step; t += step {
+	for _, t := range ticks(lo, hi, step) {
 		c.polyline([]vec{{x(t), top - 1*u}, {x(t), axisY}}, false, penGrid, noPaint, tag{})
 		c.polyline([]vec{{x(t), axisY}, {x(t), axisY + 1.2*u}}, false, penAxis, noPaint, tag{})
 		c.text(vec{x(t), axisY + 1.2*u + textHeight(c, fontAxis) + 0.8*u}, clock(t), fontAxis, anchorMiddle, tag{})
@@ -197,7 +197,7 @@ func drawDistribution(c canvas, dist []float64, area box) float64 {
 	c.group(tag{id: "yield-distribution", class: "chart"}, penBar, noPaint)
 	ystep := niceStep(maxP, 4)
 	ytop := math.Ceil(maxP/ystep-1e-9) * ystep
-	for t := 0.0; t <= ytop+1e-12; t += ystep {
+	for _, t := range ticks(0, ytop, ystep) {
 		y := plot.bottom() - plot.h*t/ytop
 		c.polyline([]vec{{plot.x, y}, {plot.right(), y}}, false, penGrid, noPaint, tag{})
 		c.text(vec{plot.x - 1.5*u, y + textHeight(c, fontAxis)/2}, sig(t, 3), fontAxis, anchorEnd, tag{})

@@ -6,16 +6,13 @@ import (
 	"io"
 	"math"
 
+	"dimerpath/internal/atomicfile"
 	"dimerpath/planner"
 )
 
-// VariantResult is one variant's outcome for the comparison report: its
-// plan, or why it could not be planned (for example a *planner.LimitError).
-type VariantResult struct {
-	Variant string
-	Plan    *planner.Plan // nil when Err is set
-	Err     error
-}
+// VariantResult is one variant's outcome for the comparison report, as
+// planner.Compare returns it: its plan, or why it could not be planned.
+type VariantResult = planner.VariantResult
 
 // ResultsOf wraps plans as results, one per plan, named by their variant.
 func ResultsOf(plans []*planner.Plan) []VariantResult {
@@ -53,7 +50,7 @@ func checkResults(rs []VariantResult) (string, error) {
 // compareRows returns the comparison table: a header and one row per
 // variant.
 func compareRows(rs []VariantResult) [][]string {
-	rows := [][]string{{"Variant", "Expected", "P10 – P90", "Segments", "Strokes", "Windows", "All good", "Mean good", "Devices per perfect one"}}
+	rows := [][]string{{"Variant", "Expected", "P10 – P90", "By hand", "Segments", "Strokes", "Windows", "All good", "Mean good", "Devices per perfect one"}}
 	for _, r := range rs {
 		if r.Plan == nil {
 			rows = append(rows, []string{r.Variant, "not planned: " + r.Err.Error()})
@@ -64,15 +61,22 @@ func compareRows(rs []VariantResult) [][]string {
 		if len(p.Windows) > 0 {
 			dpp = sig(p.Yield.DevicesPerPerfect, 3)
 			if p.Yield.DevicesPerPerfect == 0 {
-				dpp = "none suffices"
+				dpp = "out of reach"
+				if l := p.Yield.Log10All; !math.IsInf(l, -1) && l < 0 {
+					dpp = pow10(-l)
+				}
 			}
 		}
 		all, mean := "–", "–"
 		if len(p.Windows) > 0 {
-			all = probability(p.Yield.All)
+			all = allGood(p.Yield)
 			mean = fmt.Sprintf("%s of %s", sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))
 		}
-		rows = append(rows, []string{r.Variant, clock(p.TotalS), clock(p.P10S) + " – " + clock(p.P90S),
+		byHand := "–"
+		if p.ByHandS > 0 {
+			byHand = clock(p.ByHandS)
+		}
+		rows = append(rows, []string{r.Variant, clock(p.TotalS), clock(p.P10S) + " – " + clock(p.P90S), byHand,
 			thousands(len(p.Segments)), thousands(len(p.Strokes)), thousands(len(p.Windows)), all, mean, dpp})
 	}
 	return rows
@@ -118,7 +122,7 @@ func drawStackedBreakdown(c canvas, rs []VariantResult, area box) float64 {
 		c.text(vec{x(t) + 1.5*u, y + rowH/2 + textHeight(c, fontBody)/2}, clock(t), fontBody, anchorStart, tag{})
 		y += rowH
 	}
-	for tk := 0.0; tk <= top+1e-9*step; tk += step {
+	for _, tk := range ticks(0, top, step) {
 		c.polyline([]vec{{x(tk), area.y}, {x(tk), y}}, false, penGrid, noPaint, tag{})
 		c.polyline([]vec{{x(tk), y}, {x(tk), y + 1.2*u}}, false, penAxis, noPaint, tag{})
 		c.text(vec{x(tk), y + 1.2*u + textHeight(c, fontAxis) + 0.8*u}, clock(tk), fontAxis, anchorMiddle, tag{})
@@ -171,7 +175,7 @@ func drawSpreadCompare(c canvas, rs []VariantResult, area box) float64 {
 		}
 		y += rowH
 	}
-	for t := lo; t <= hi+1e-9*step; t += step {
+	for _, t := range ticks(lo, hi, step) {
 		c.polyline([]vec{{x(t), area.y}, {x(t), y}}, false, penGrid, noPaint, tag{})
 		c.polyline([]vec{{x(t), y}, {x(t), y + 1.2*u}}, false, penAxis, noPaint, tag{})
 		c.text(vec{x(t), y + 1.2*u + textHeight(c, fontAxis) + 0.8*u}, clock(t), fontAxis, anchorMiddle, tag{})
@@ -228,7 +232,7 @@ func drawYieldCompare(c canvas, rs []VariantResult, area box) float64 {
 				label = "no dopant windows"
 			} else {
 				w = plot.w * p.Yield.All
-				label = fmt.Sprintf("%s (mean %s of %s good)", probability(p.Yield.All), sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))
+				label = fmt.Sprintf("%s (mean %s of %s good)", allGood(p.Yield), sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))
 				c.rect(box{plot.x, y + 1.5*u, math.Max(w, 0.3*u), rowH - 3*u}, penBar, paint{fill: true, grey: 0.45}, tag{class: "bar"})
 			}
 		}
@@ -296,15 +300,16 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 
 	rows := compareRows(results)
 	t := newTable(d, font{size: 7.5},
-		tableColumn{title: rows[0][0], share: 14},
+		tableColumn{title: rows[0][0], share: 13},
 		tableColumn{title: rows[0][1], share: 9, right: true},
-		tableColumn{title: rows[0][2], share: 15, right: true},
+		tableColumn{title: rows[0][2], share: 14, right: true},
 		tableColumn{title: rows[0][3], share: 9, right: true},
 		tableColumn{title: rows[0][4], share: 9, right: true},
-		tableColumn{title: rows[0][5], share: 9, right: true},
+		tableColumn{title: rows[0][5], share: 8, right: true},
 		tableColumn{title: rows[0][6], share: 8, right: true},
-		tableColumn{title: rows[0][7], share: 11, right: true},
+		tableColumn{title: rows[0][7], share: 8, right: true},
 		tableColumn{title: rows[0][8], share: 11, right: true},
+		tableColumn{title: rows[0][9], share: 11, right: true},
 	)
 	d.heading("Summary", 20)
 	t.start()
@@ -349,7 +354,7 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	inner := width - 2*margin
 	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
 	rows := compareRows(results)
-	cols := []float64{14, 9, 15, 9, 9, 9, 8, 11, 11}
+	cols := []float64{13, 9, 14, 9, 9, 8, 8, 8, 11, 11}
 	colW := make([]float64, len(cols))
 	total := 0.0
 	for _, c := range cols {
@@ -450,4 +455,24 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	c.hatchDefs()
 	c.raw("</svg>\n")
 	return c.err()
+}
+
+// WriteComparisonFile writes the comparison report to path, PDF or SVG
+// by its extension (any other is an error wrapping ErrFormat), through a
+// temporary file renamed into place (see WriteFile).
+func WriteComparisonFile(ctx context.Context, path string, results []VariantResult, opt Options) error {
+	f, err := FormatFromPath(path)
+	if err != nil {
+		return err
+	}
+	if f != FormatPDF && f != FormatSVG {
+		return fmt.Errorf("%s: %w: a comparison report is .pdf or .svg", path, ErrFormat)
+	}
+	return atomicfile.Write(path, 0o644, func(w io.Writer) error {
+		w = wrapWriter(w)
+		if f == FormatPDF {
+			return WriteComparisonPDF(ctx, w, results, opt)
+		}
+		return WriteComparisonSVG(w, results, opt)
+	})
 }

@@ -103,10 +103,16 @@ func niceStep(span float64, target int) float64 {
 	}
 	raw := span / float64(max(1, target))
 	p := math.Pow(10, math.Floor(math.Log10(raw)))
-	for _, m := range []float64{1, 2, 5, 10} {
-		if m*p >= raw {
+	if !(p > 0) || math.IsInf(p, 0) {
+		return math.Max(span, math.SmallestNonzeroFloat64) // degenerate spans: one step
+	}
+	for _, m := range []float64{1, 2, 5} {
+		if m*p >= raw && !math.IsInf(m*p, 0) {
 			return m * p
 		}
+	}
+	if math.IsInf(10*p, 0) {
+		return p
 	}
 	return 10 * p
 }
@@ -146,4 +152,19 @@ func niceTimeStep(span float64, target int) float64 {
 		}
 	}
 	return 86400 * math.Ceil(raw/86400)
+}
+
+// ticks returns the multiples of step from lo to hi (inclusive, with a
+// little slack for rounding), at most 200 of them; for a degenerate step
+// (not positive, or too small to advance at lo's magnitude) it returns
+// lo and hi.
+func ticks(lo, hi, step float64) []float64 {
+	if !(step > 0) || !(hi >= lo) || (hi-lo)/step > 200 || lo+step == lo {
+		return []float64{lo, hi}
+	}
+	var out []float64
+	for k := math.Ceil(lo/step - 1e-9); k*step <= hi+1e-9*step; k++ {
+		out = append(out, k*step)
+	}
+	return out
 }

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"maps"
 	"math"
 	"slices"
 	"strconv"
@@ -166,7 +167,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		species[w.Species]++
 	}
 	var sp []string
-	for _, k := range slices.Sorted(mapsKeys(species)) {
+	for _, k := range slices.Sorted(maps.Keys(species)) {
 		sp = append(sp, fmt.Sprintf("%s: %s", k, thousands(species[k])))
 	}
 	windows := thousands(len(p.Windows))
@@ -179,6 +180,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	}
 	glance := [][2]string{
 		{"Expected write time", fmt.Sprintf("%s (%s)", clock(p.TotalS), duration(p.TotalS))},
+		{"Against the floor and by hand", floorLine(p)},
 		{"Spread", fmt.Sprintf("P10 %s · P50 %s · P90 %s", clock(p.P10S), clock(p.P50S), clock(p.P90S))},
 		{"Segments", segmentsLine(len(p.Segments), fidNames)},
 		{"Strokes", fmt.Sprintf("%s: %s", thousands(len(p.Strokes)), strokeSummary(p))},
@@ -187,8 +189,8 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	}
 	if len(p.Windows) > 0 {
 		glance = append(glance,
-			[2]string{"All windows good", fmt.Sprintf("%s (probability that every window takes exactly one donor)", probability(p.Yield.All))},
-			[2]string{"Mean good windows", fmt.Sprintf("%s of %s", sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))},
+			[2]string{"All windows good", fmt.Sprintf("%s (probability that every window takes exactly one donor)", allGood(p.Yield))},
+			[2]string{"Good windows", meanGood(p.Yield)},
 			[2]string{"Devices per perfect one", devicesPerPerfect(p.Yield)},
 		)
 	}
@@ -197,26 +199,44 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 
 	d.heading("Tip conditions", 25)
 	t := newTable(d, fontBody,
-		tableColumn{title: "Mode", share: 14},
-		tableColumn{title: "Bias (V)", share: 9, right: true},
-		tableColumn{title: "Setpoint (nA)", share: 11, right: true},
-		tableColumn{title: "Line dose (mC/cm)", share: 12, right: true},
-		tableColumn{title: "Speed (nm/s)", share: 11, right: true},
-		tableColumn{title: "Line width (nm)", share: 11, right: true},
-		tableColumn{title: "Passes", share: 8, right: true},
-		tableColumn{title: "Pitch (nm)", share: 9, right: true},
+		tableColumn{title: "Mode", share: 25},
+		tableColumn{title: "Bias (V)", share: 8, right: true},
+		tableColumn{title: "Setpoint (nA)", share: 10, right: true},
+		tableColumn{title: "Line dose (mC/cm)", share: 10, right: true},
+		tableColumn{title: "Speed (nm/s) or dwell per point", share: 14, right: true},
+		tableColumn{title: "Line width (nm)", share: 10, right: true},
+		tableColumn{title: "Passes", share: 7, right: true},
+		tableColumn{title: "Pitch (nm)", share: 8, right: true},
 	)
 	t.start()
+	hasDwell := false
 	for _, cd := range p.Conditions {
-		pitch := ""
+		if cd.Kind == planner.StrokeDwell || (cd.SpeedNMPerS == 0 && cd.DwellS > 0) {
+			// Parking on single sites: no speed, dose or width, a dwell time.
+			hasDwell = true
+			dwell := "dwell " + sig(cd.DwellS, 3) + " s"
+			if cd.DwellCapS > 0 {
+				dwell += "\nat most " + sig(cd.DwellCapS, 3) + " s"
+			}
+			t.row(modeName(cd.Mode)+", dwell points", signedV(cd.BiasV), nanoAmps(cd.CurrentA), "–", dwell, "–", "–", "–")
+			continue
+		}
+		pitch := "–"
 		if cd.PitchNM > 0 {
 			pitch = sig(cd.PitchNM, 3)
 		}
-		t.row(modeName(cd.Mode), signedV(cd.BiasV), nanoAmps(cd.CurrentA), milliCoulombPerCm(cd.LineDoseCPerCm),
+		name := modeName(cd.Mode)
+		if cd.Kind != "" {
+			name += ", " + plural(kindNoun(cd.Kind), 2)
+		}
+		t.row(name, signedV(cd.BiasV), nanoAmps(cd.CurrentA), milliCoulombPerCm(cd.LineDoseCPerCm),
 			sig(cd.SpeedNMPerS, 4), sig(cd.LineWidthNM, 3), strconv.Itoa(cd.Passes), pitch)
 	}
-	for _, g := range dwellConditions(p) {
-		t.row(modeName(g.mode)+" dwell", signedV(g.bias), nanoAmps(g.current), "", fmt.Sprintf("%s s/point", sig(g.dwell, 3)), "", "", "")
+	if !hasDwell {
+		// An older plan without dwell conditions: take them from the actions.
+		for _, g := range dwellConditions(p) {
+			t.row(modeName(g.mode)+", dwell points", signedV(g.bias), nanoAmps(g.current), "–", "dwell "+sig(g.dwell, 3)+" s", "–", "–", "–")
+		}
 	}
 	t.end()
 
@@ -250,6 +270,24 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		"Times are on the plan clock, from the start of the session.", font{size: 7.5, grey: 0.25})
 }
 
+// floorLine compares the plan with the physical floor (the writing
+// alone) and with the same work planned by hand.
+func floorLine(p *planner.Plan) string {
+	var parts []string
+	if p.FloorS > 0 {
+		parts = append(parts, fmt.Sprintf("%s× the physical floor of %s (writing alone, no travel, switches or registrations)",
+			sig(p.TotalS/p.FloorS, 3), clock(p.FloorS)))
+	}
+	if p.ByHandS > 0 {
+		parts = append(parts, fmt.Sprintf("planned by hand (regions in file order, rows in raster order, registrations at a fixed interval) it would take %s, %s× as long",
+			clock(p.ByHandS), sig(p.ByHandS/p.TotalS, 3)))
+	}
+	if len(parts) == 0 {
+		return "not estimated"
+	}
+	return strings.Join(parts, "; ")
+}
+
 func segmentsLine(n int, fiducials []string) string {
 	if len(fiducials) == 0 {
 		return thousands(n)
@@ -259,19 +297,40 @@ func segmentsLine(n int, fiducials []string) string {
 
 func devicesPerPerfect(y planner.Yield) string {
 	if y.DevicesPerPerfect == 0 {
-		return "no number suffices (a perfect device is practically impossible)"
+		if l := y.Log10All; !math.IsInf(l, -1) && l < 0 {
+			return "about " + pow10(-l) + ": a perfect device is practically out of reach"
+		}
+		return "no number suffices: some window can never be good"
 	}
 	return sig(y.DevicesPerPerfect, 3) + " devices written on average to get one with every window good"
 }
 
-func mapsKeys[K comparable, V any](m map[K]V) func(func(K) bool) {
-	return func(yield func(K) bool) {
-		for k := range m {
-			if !yield(k) {
-				return
-			}
-		}
+// allGood formats the probability that every window is good, from its
+// log10 where the probability itself underflows.
+func allGood(y planner.Yield) string {
+	if y.All == 0 && !math.IsInf(y.Log10All, -1) {
+		return pow10(y.Log10All)
 	}
+	return probability(y.All)
+}
+
+// pow10 formats 10^l as "2.3e−1324", for any finite l.
+func pow10(l float64) string {
+	e := math.Floor(l)
+	m := math.Pow(10, l-e)
+	if m >= 9.95 {
+		m, e = 1, e+1
+	}
+	return strconv.FormatFloat(m, 'f', 1, 64) + "e" + strings.Replace(strconv.Itoa(int(e)), "-", "−", 1)
+}
+
+// meanGood formats the mean and spread of the number of good windows.
+func meanGood(y planner.Yield) string {
+	s := fmt.Sprintf("%s of %s on average", sig(y.MeanGood, 4), thousands(y.Windows))
+	if y.SDGood > 0 {
+		s += fmt.Sprintf(" (standard deviation %s)", sig(y.SDGood, 2))
+	}
+	return s
 }
 
 // listShort joins up to n names, then "and K more".
@@ -565,8 +624,9 @@ func shortKind(k planner.StrokeKind) string {
 func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	d.page()
 	d.heading("Write time", 60)
-	d.para(fmt.Sprintf("Expected total %s (%s), the sum of the parts below. Writing alone (AP, FE and dwell) is %s of it.",
-		clock(p.TotalS), duration(p.TotalS), percent(safeDiv(p.Breakdown.APWriteS+p.Breakdown.FEWriteS+p.Breakdown.DwellS, p.TotalS))), fontBody)
+	d.para(fmt.Sprintf("Expected total %s (%s), the sum of the parts below. Writing alone (AP, FE and dwell) is %s of it. %s.",
+		clock(p.TotalS), duration(p.TotalS), percent(safeDiv(p.Breakdown.APWriteS+p.Breakdown.FEWriteS+p.Breakdown.DwellS, p.TotalS)),
+		capitalise(floorLine(p))), fontBody)
 	h := drawBreakdownBars(d.c, p.Breakdown, box{d.left(), d.y, d.width(), 50})
 	d.y += h + 6
 	d.heading("Spread of the write time", 30)
@@ -582,26 +642,27 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	y := p.Yield
 	d.keyValues([][2]string{
 		{"Windows", thousands(y.Windows)},
-		{"All windows good", fmt.Sprintf("%s: the probability that every window takes exactly one donor", probability(y.All))},
-		{"Mean good windows", fmt.Sprintf("%s of %s", sig(y.MeanGood, 4), thousands(y.Windows))},
+		{"All windows good", fmt.Sprintf("%s: the probability that every window takes exactly one donor", allGood(y))},
+		{"Good windows", meanGood(y)},
 		{"Devices per perfect one", devicesPerPerfect(y)},
 	}, 0.28)
 	t := newTable(d, fontBody,
 		tableColumn{title: "Species", share: 10},
 		tableColumn{title: "Template", share: 12},
 		tableColumn{title: "Windows", share: 10, right: true},
-		tableColumn{title: "P(exactly one donor) each", share: 22, right: true},
-		tableColumn{title: "Regions", share: 46},
+		tableColumn{title: "P(all sites open)", share: 14, right: true},
+		tableColumn{title: "P(exactly one donor)", share: 16, right: true},
+		tableColumn{title: "Regions", share: 38},
 	)
 	type key struct {
 		species, template string
-		p                 float64
+		open, p           float64
 	}
 	groups := map[key][]string{}
 	counts := map[key]int{}
 	var order []key
 	for _, w := range p.Windows {
-		k := key{w.Species, w.Template, w.Probability}
+		k := key{w.Species, w.Template, w.OpenProbability, w.Probability}
 		if counts[k] == 0 {
 			order = append(order, k)
 		}
@@ -612,7 +673,11 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	}
 	t.start()
 	for _, k := range order {
-		t.row(k.species, k.template, thousands(counts[k]), probability(k.p), listShort(groups[k], 6))
+		open := "–"
+		if k.open > 0 {
+			open = probability(k.open)
+		}
+		t.row(k.species, k.template, thousands(counts[k]), open, probability(k.p), listShort(groups[k], 6))
 	}
 	t.end()
 	d.need(62)
@@ -620,6 +685,14 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	d.y += 5
 	h = drawDistribution(d.c, y.Distribution, box{d.left(), d.y, d.width(), 55})
 	d.y += h + 2
+}
+
+func capitalise(s string) string {
+	if s == "" {
+		return s
+	}
+	r := []rune(s)
+	return strings.ToUpper(string(r[0])) + string(r[1:])
 }
 
 func safeDiv(a, b float64) float64 {

@@ -3,7 +3,6 @@ package export
 import (
 	"fmt"
 	"io"
-	"math"
 	"time"
 
 	"codeberg.org/go-fonts/liberation/liberationsansbold"
@@ -327,5 +326,3 @@ func (d *pdfDoc) cautionBox() {
 func (d *pdfDoc) tickBox(x, y, size float64) {
 	d.c.rect(box{x, y, size, size}, pen{width: 0.35}, solid(1), tag{})
 }
-
-var _ = math.Pi

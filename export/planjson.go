@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"reflect"
 	"strings"
@@ -62,6 +63,8 @@ type planFile struct {
 	P10S      float64       `json:"p10_s"`
 	P50S      float64       `json:"p50_s"`
 	P90S      float64       `json:"p90_s"`
+	FloorS    float64       `json:"floor_s"`
+	ByHandS   float64       `json:"by_hand_s"`
 
 	Windows  []windowJSON `json:"windows"`
 	Yield    yieldJSON    `json:"yield"`
@@ -71,6 +74,7 @@ type planFile struct {
 
 type conditionsJSON struct {
 	Mode           string  `json:"mode"`
+	Kind           string  `json:"kind"`
 	BiasV          float64 `json:"bias_v"`
 	CurrentA       float64 `json:"current_a"`
 	LineDoseCPerCm float64 `json:"line_dose_c_per_cm"`
@@ -78,6 +82,8 @@ type conditionsJSON struct {
 	LineWidthNM    float64 `json:"line_width_nm"`
 	Passes         int     `json:"passes"`
 	PitchNM        float64 `json:"pitch_nm,omitempty"`
+	DwellS         float64 `json:"dwell_s,omitempty"`
+	DwellCapS      float64 `json:"dwell_cap_s,omitempty"`
 }
 
 type regionModeJSON struct {
@@ -95,19 +101,20 @@ type fiducialJSON struct {
 }
 
 type strokeJSON struct {
-	ID        int     `json:"id"`
-	Region    string  `json:"region"`
-	Mode      string  `json:"mode"`
-	Kind      string  `json:"kind"`
-	StartNM   xy      `json:"start_nm"` // derived: path_nm[0]
-	EndNM     xy      `json:"end_nm"`   // derived: the last point of path_nm
-	PathNM    []xy    `json:"path_nm"`
-	Passes    int     `json:"passes"`
-	LengthNM  float64 `json:"length_nm"`
-	DurationS float64 `json:"duration_s"`
-	Sites     int     `json:"sites"`
-	Segment   int     `json:"segment"`
-	Window    int     `json:"window"`
+	ID          int     `json:"id"`
+	Region      string  `json:"region"`
+	Mode        string  `json:"mode"`
+	Kind        string  `json:"kind"`
+	StartNM     xy      `json:"start_nm"` // derived: path_nm[0]
+	EndNM       xy      `json:"end_nm"`   // derived: the last point of path_nm
+	PathNM      []xy    `json:"path_nm"`
+	Passes      int     `json:"passes"`
+	LengthNM    float64 `json:"length_nm"`
+	DurationS   float64 `json:"duration_s"`
+	Sites       int     `json:"sites"`
+	ToleranceNM float64 `json:"tolerance_nm"`
+	Segment     int     `json:"segment"`
+	Window      int     `json:"window"`
 	// derived: the tip conditions of the action that writes the stroke
 	BiasV     float64 `json:"bias_v,omitempty"`
 	CurrentA  float64 `json:"current_a,omitempty"`
@@ -152,20 +159,39 @@ type breakdownJSON struct {
 }
 
 type windowJSON struct {
-	Region      string  `json:"region"`
-	Species     string  `json:"species"`
-	Template    string  `json:"template"`
-	AtNM        xy      `json:"at_nm"`
-	Sites       int     `json:"sites"`
-	Probability float64 `json:"probability"`
+	Region          string  `json:"region"`
+	Species         string  `json:"species"`
+	Template        string  `json:"template"`
+	AtNM            xy      `json:"at_nm"`
+	Sites           int     `json:"sites"`
+	OpenProbability float64 `json:"open_probability"`
+	Probability     float64 `json:"probability"`
 }
 
 type yieldJSON struct {
 	Windows           int       `json:"windows"`
 	All               float64   `json:"all"`
+	Log10All          *float64  `json:"log10_all"` // null for -Inf (a window that can never be good)
 	MeanGood          float64   `json:"mean_good"`
+	SDGood            float64   `json:"sd_good"`
 	Distribution      []float64 `json:"distribution"`
+	DistributionFrom  int       `json:"distribution_from"`
 	DevicesPerPerfect float64   `json:"devices_per_perfect"`
+}
+
+// log10JSON carries log10 of a probability: null for -Inf.
+func log10JSON(v float64) *float64 {
+	if math.IsInf(v, -1) {
+		return nil
+	}
+	return &v
+}
+
+func log10Of(p *float64) float64 {
+	if p == nil {
+		return math.Inf(-1)
+	}
+	return *p
 }
 
 type coverageJSON struct {
@@ -221,7 +247,7 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 	jw.field("field_nm", xy{p.FieldWidthNM, p.FieldHeightNM})
 	jw.array("conditions", len(p.Conditions), func(i int) any {
 		c := p.Conditions[i]
-		return conditionsJSON{Mode: string(c.Mode), BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
+		return conditionsJSON{Mode: string(c.Mode), Kind: string(c.Kind), DwellS: c.DwellS, DwellCapS: c.DwellCapS, BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
 			SpeedNMPerS: c.SpeedNMPerS, LineWidthNM: c.LineWidthNM, Passes: c.Passes, PitchNM: c.PitchNM}
 	})
 	jw.array("modes", len(p.Modes), func(i int) any {
@@ -241,7 +267,7 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 		}
 		sj := strokeJSON{ID: s.ID, Region: s.Region, Mode: string(s.Mode), Kind: string(s.Kind),
 			StartNM: path[0], EndNM: path[len(path)-1], PathNM: path, Passes: s.Passes, LengthNM: s.LengthNM,
-			DurationS: s.DurationS, Sites: s.Sites, Segment: s.Segment, Window: s.Window}
+			DurationS: s.DurationS, Sites: s.Sites, ToleranceNM: s.ToleranceNM, Segment: s.Segment, Window: s.Window}
 		if k := writer[i]; k >= 0 {
 			a := p.Actions[k]
 			sj.BiasV, sj.CurrentA, sj.SpeedNMPS = a.BiasV, a.CurrentA, a.SpeedNMPS
@@ -270,13 +296,16 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 	jw.field("p10_s", p.P10S)
 	jw.field("p50_s", p.P50S)
 	jw.field("p90_s", p.P90S)
+	jw.field("floor_s", p.FloorS)
+	jw.field("by_hand_s", p.ByHandS)
 	jw.array("windows", len(p.Windows), func(i int) any {
 		w := p.Windows[i]
-		return windowJSON{Region: w.Region, Species: w.Species, Template: w.Template, AtNM: xyOf(w.At), Sites: w.Sites, Probability: w.Probability}
+		return windowJSON{Region: w.Region, Species: w.Species, Template: w.Template, AtNM: xyOf(w.At), Sites: w.Sites,
+			OpenProbability: w.OpenProbability, Probability: w.Probability}
 	})
 	y := p.Yield
-	jw.field("yield", yieldJSON{Windows: y.Windows, All: y.All, MeanGood: y.MeanGood, Distribution: nonNil(y.Distribution),
-		DevicesPerPerfect: y.DevicesPerPerfect})
+	jw.field("yield", yieldJSON{Windows: y.Windows, All: y.All, Log10All: log10JSON(y.Log10All), MeanGood: y.MeanGood, SDGood: y.SDGood,
+		Distribution: nonNil(y.Distribution), DistributionFrom: y.DistributionFrom, DevicesPerPerfect: y.DevicesPerPerfect})
 	c := p.Coverage
 	jw.field("coverage", coverageJSON{OK: c.OK, Sites: c.Sites, Uncovered: c.Uncovered, Overcleared: c.Overcleared, Issues: nonNil(c.Issues)})
 	jw.last = true
@@ -380,20 +409,17 @@ func ReadPlanJSON(r io.Reader) (*planner.Plan, error) {
 	}
 	// Identify the file before decoding it strictly, so a design file or
 	// a future version gets the right message.
-	var head struct {
-		Format  any `json:"format"`
-		Version any `json:"version"`
-	}
-	if err := json.Unmarshal(data, &head); err != nil {
+	format, version, err := sniffHead(data)
+	if err != nil {
 		return nil, syntaxError(data, err)
 	}
-	if head.Format != PlanFormat {
-		return nil, &PlanError{Field: "format", Value: fmt.Sprintf("%v", jsonText(head.Format)),
+	if format != PlanFormat {
+		return nil, &PlanError{Field: "format", Value: jsonText(format),
 			Err: fmt.Errorf("%w (want %q)", ErrNotPlan, PlanFormat)}
 	}
-	ver, ok := head.Version.(float64)
+	ver, ok := version.(float64)
 	if !ok || ver != float64(int(ver)) || ver < 1 || ver > PlanVersion {
-		return nil, &PlanError{Field: "version", Value: jsonText(head.Version),
+		return nil, &PlanError{Field: "version", Value: jsonText(version),
 			Err: fmt.Errorf("%w (this dimerpath reads versions 1 to %d)", ErrVersion, PlanVersion)}
 	}
 	var f planFile
@@ -403,7 +429,7 @@ func ReadPlanJSON(r io.Reader) (*planner.Plan, error) {
 		return nil, syntaxError(data, err)
 	}
 	if dec.More() {
-		return nil, &PlanError{Err: fmt.Errorf("%w: data after the plan object", ErrInvalid)}
+		return nil, &PlanError{Err: fmt.Errorf("%w: data after the plan object", ErrSyntax)}
 	}
 	p, err := f.plan()
 	if err != nil {
@@ -428,6 +454,56 @@ func ReadPlanFile(path string) (*planner.Plan, error) {
 		pe.File = path
 	}
 	return p, err
+}
+
+// sniffHead returns the top-level "format" and "version" values of the
+// JSON object in data (nil where absent). It stops as soon as it has
+// both, which in a file dimerpath wrote is after the first two fields,
+// and otherwise skips over the other values without decoding them.
+func sniffHead(data []byte) (format, version any, err error) {
+	dec := json.NewDecoder(bytes.NewReader(data))
+	tok, err := dec.Token()
+	if err != nil {
+		return nil, nil, err
+	}
+	if d, ok := tok.(json.Delim); !ok || d != '{' {
+		return nil, nil, fmt.Errorf("the file holds a JSON %s, not an object", jsonKindOfToken(tok))
+	}
+	var haveF, haveV bool
+	for dec.More() && !(haveF && haveV) {
+		tok, err := dec.Token()
+		if err != nil {
+			return nil, nil, err
+		}
+		key, _ := tok.(string)
+		switch key {
+		case "format":
+			err, haveF = dec.Decode(&format), true
+		case "version":
+			err, haveV = dec.Decode(&version), true
+		default:
+			var skip json.RawMessage
+			err = dec.Decode(&skip)
+		}
+		if err != nil {
+			return nil, nil, err
+		}
+	}
+	return format, version, nil
+}
+
+func jsonKindOfToken(tok json.Token) string {
+	switch tok.(type) {
+	case json.Delim:
+		return "array"
+	case string:
+		return "string"
+	case float64:
+		return "number"
+	case bool:
+		return "boolean"
+	}
+	return "null"
 }
 
 func jsonText(v any) string {
@@ -479,9 +555,9 @@ func jsonKind(t reflect.Type) string {
 func (f *planFile) plan() (*planner.Plan, error) {
 	p := &planner.Plan{Design: f.Design, Variant: f.Variant, Profile: f.Profile, Seed: f.Seed,
 		FieldWidthNM: f.FieldNM[0], FieldHeightNM: f.FieldNM[1],
-		TotalS: f.TotalS, P10S: f.P10S, P50S: f.P50S, P90S: f.P90S, Warnings: f.Warnings}
+		TotalS: f.TotalS, P10S: f.P10S, P50S: f.P50S, P90S: f.P90S, FloorS: f.FloorS, ByHandS: f.ByHandS, Warnings: f.Warnings}
 	p.Conditions = mapSlice(f.Conditions, func(c conditionsJSON) planner.Conditions {
-		return planner.Conditions{Mode: planner.WriteMode(c.Mode), BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
+		return planner.Conditions{Mode: planner.WriteMode(c.Mode), Kind: planner.StrokeKind(c.Kind), DwellS: c.DwellS, DwellCapS: c.DwellCapS, BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
 			SpeedNMPerS: c.SpeedNMPerS, LineWidthNM: c.LineWidthNM, Passes: c.Passes, PitchNM: c.PitchNM}
 	})
 	p.Modes = mapSlice(f.Modes, func(m regionModeJSON) planner.RegionMode {
@@ -498,7 +574,7 @@ func (f *planFile) plan() (*planner.Plan, error) {
 		}
 		p.Strokes[i] = planner.Stroke{ID: s.ID, Region: s.Region, Mode: planner.WriteMode(s.Mode), Kind: planner.StrokeKind(s.Kind),
 			Path: mapSlice(s.PathNM, xy.point), Passes: s.Passes, LengthNM: s.LengthNM, DurationS: s.DurationS,
-			Sites: s.Sites, Segment: s.Segment, Window: s.Window}
+			Sites: s.Sites, ToleranceNM: s.ToleranceNM, Segment: s.Segment, Window: s.Window}
 	}
 	p.Segments = mapSlice(f.Segments, func(s segmentJSON) planner.Segment {
 		return planner.Segment{Index: s.Index, Fiducial: s.Fiducial, FiducialAt: s.FiducialAtNM.point(), StartS: s.StartS,
@@ -517,10 +593,12 @@ func (f *planFile) plan() (*planner.Plan, error) {
 	p.Breakdown = planner.Breakdown{APWriteS: b.APWriteS, FEWriteS: b.FEWriteS, DwellS: b.DwellS, TravelS: b.TravelS,
 		ModeSwitchS: b.ModeSwitchS, RegistrationS: b.RegistrationS, VerificationS: b.VerificationS}
 	p.Windows = mapSlice(f.Windows, func(w windowJSON) planner.Window {
-		return planner.Window{Region: w.Region, Species: w.Species, Template: w.Template, At: w.AtNM.point(), Sites: w.Sites, Probability: w.Probability}
+		return planner.Window{Region: w.Region, Species: w.Species, Template: w.Template, At: w.AtNM.point(), Sites: w.Sites,
+			OpenProbability: w.OpenProbability, Probability: w.Probability}
 	})
 	y := f.Yield
-	p.Yield = planner.Yield{Windows: y.Windows, All: y.All, MeanGood: y.MeanGood, Distribution: y.Distribution, DevicesPerPerfect: y.DevicesPerPerfect}
+	p.Yield = planner.Yield{Windows: y.Windows, All: y.All, Log10All: log10Of(y.Log10All), MeanGood: y.MeanGood, SDGood: y.SDGood,
+		Distribution: y.Distribution, DistributionFrom: y.DistributionFrom, DevicesPerPerfect: y.DevicesPerPerfect}
 	c := f.Coverage
 	p.Coverage = planner.Coverage{OK: c.OK, Sites: c.Sites, Uncovered: c.Uncovered, Overcleared: c.Overcleared, Issues: c.Issues}
 	return p, nil

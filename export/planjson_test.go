@@ -2,6 +2,7 @@ package export
 
 import (
 	"bytes"
+	"context"
 	"encoding/csv"
 	"encoding/json"
 	"errors"
@@ -101,19 +102,20 @@ func diffPlans(t *testing.T, got, want *planner.Plan) {
 func TestPlanFileCoversPlan(t *testing.T) {
 	known := map[reflect.Type][]string{
 		reflect.TypeFor[planner.Plan](): {"Design", "Variant", "Profile", "Seed", "FieldWidthNM", "FieldHeightNM", "Conditions",
-			"Modes", "Fiducials", "Strokes", "Segments", "Actions", "Breakdown", "TotalS", "P10S", "P50S", "P90S", "Windows",
+			"Modes", "Fiducials", "Strokes", "Segments", "Actions", "Breakdown", "TotalS", "P10S", "P50S", "P90S", "FloorS", "ByHandS", "Windows",
 			"Yield", "Coverage", "Warnings"},
-		reflect.TypeFor[planner.Conditions](): {"Mode", "BiasV", "CurrentA", "LineDoseCPerCm", "SpeedNMPerS", "LineWidthNM", "Passes", "PitchNM"},
+		reflect.TypeFor[planner.Conditions](): {"Mode", "Kind", "BiasV", "CurrentA", "LineDoseCPerCm", "SpeedNMPerS", "LineWidthNM", "Passes", "PitchNM",
+			"DwellS", "DwellCapS"},
 		reflect.TypeFor[planner.RegionMode](): {"Region", "Role", "Requested", "Mode", "Reason", "Sites"},
 		reflect.TypeFor[planner.Fiducial]():   {"Name", "At"},
 		reflect.TypeFor[planner.Stroke](): {"ID", "Region", "Mode", "Kind", "Path", "Passes", "LengthNM", "DurationS", "Sites",
-			"Segment", "Window"},
+			"ToleranceNM", "Segment", "Window"},
 		reflect.TypeFor[planner.Segment](): {"Index", "Fiducial", "FiducialAt", "StartS", "EndS", "BudgetS", "Strokes"},
 		reflect.TypeFor[planner.Action](): {"Index", "Kind", "Segment", "Stroke", "From", "To", "StartS", "DurationS", "Mode",
 			"BiasV", "CurrentA", "SpeedNMPS", "Note"},
 		reflect.TypeFor[planner.Breakdown](): {"APWriteS", "FEWriteS", "DwellS", "TravelS", "ModeSwitchS", "RegistrationS", "VerificationS"},
-		reflect.TypeFor[planner.Window]():    {"Region", "Species", "Template", "At", "Sites", "Probability"},
-		reflect.TypeFor[planner.Yield]():     {"Windows", "All", "MeanGood", "Distribution", "DevicesPerPerfect"},
+		reflect.TypeFor[planner.Window]():    {"Region", "Species", "Template", "At", "Sites", "OpenProbability", "Probability"},
+		reflect.TypeFor[planner.Yield]():     {"Windows", "All", "MeanGood", "Distribution", "DistributionFrom", "Log10All", "SDGood", "DevicesPerPerfect"},
 		reflect.TypeFor[planner.Coverage]():  {"OK", "Sites", "Uncovered", "Overcleared", "Issues"},
 	}
 	for typ, names := range known {
@@ -231,6 +233,12 @@ func TestReadPlanJSONRejects(t *testing.T) {
 		{"probability above one", mutate(t, p, func(m map[string]any) { at(m, "windows", 0)["probability"] = 1.5 }), ErrInvalid, "windows[0].probability"},
 		{"wrong fiducial", mutate(t, p, func(m map[string]any) { at(m, "actions", 1)["fiducial"] = "F-XX" }), ErrInvalid, "actions[1].fiducial"},
 		{"zero field", mutate(t, p, func(m map[string]any) { m["field_nm"] = []any{0.0, 80.0} }), ErrInvalid, "field_nm[0]"},
+		{"point far outside", mutate(t, p, func(m map[string]any) {
+			at(m, "strokes", 3)["path_nm"] = []any{[]any{1e9, 5.0}}
+			at(m, "strokes", 3)["start_nm"] = []any{1e9, 5.0}
+			at(m, "strokes", 3)["end_nm"] = []any{1e9, 5.0}
+		}), ErrInvalid, "strokes[3].path_nm[0]"},
+		{"field too large", mutate(t, p, func(m map[string]any) { m["field_nm"] = []any{1e12, 80.0} }), ErrInvalid, "field_nm[0]"},
 		{"quantiles reversed", mutate(t, p, func(m map[string]any) { m["p10_s"] = m["p90_s"].(float64) + 1 }), ErrInvalid, "p50_s"},
 	}
 	for _, tc := range cases {
@@ -384,7 +392,9 @@ func TestActionsCSVMatchesJSON(t *testing.T) {
 }
 
 func FuzzReadPlanJSON(f *testing.F) {
-	for _, p := range []*planner.Plan{planfixture.SET().Plan, emptyPlan(), planfixture.Large(20, 3)} {
+	// Small seeds: the fuzzer minimises every new input, which takes long
+	// for a large file.
+	for _, p := range []*planner.Plan{emptyPlan(), planfixture.Large(3, 3)} {
 		var buf bytes.Buffer
 		if err := WritePlanJSON(&buf, p, "fuzz"); err != nil {
 			f.Fatal(err)
@@ -417,6 +427,7 @@ func FuzzReadPlanJSON(f *testing.F) {
 		for _, w := range []func() error{
 			func() error { return WriteActionsCSV(&bytes.Buffer{}, p) },
 			func() error { return WriteSVG(&bytes.Buffer{}, p, Options{}) },
+			func() error { return WritePDF(context.Background(), &bytes.Buffer{}, p, Options{}) },
 		} {
 			if err := w(); err != nil {
 				t.Fatalf("accepted plan does not export: %v", err)

@@ -150,8 +150,15 @@ func TestPDFPaperSize(t *testing.T) {
 }
 
 // greyStats returns the mean and standard deviation of the luminance of
-// a PNG, on a 0..255 scale, counting transparent pixels as white.
+// a PNG, on a 0..255 scale, counting transparent pixels as white, and
+// the largest difference between the colour channels of any pixel (0
+// for an image in shades of grey).
 func greyStats(t *testing.T, path string) (mean, sd float64) {
+	mean, sd, _ = greyStatsChroma(t, path)
+	return mean, sd
+}
+
+func greyStatsChroma(t *testing.T, path string) (mean, sd float64, chroma uint32) {
 	t.Helper()
 	f, err := os.Open(path)
 	if err != nil {
@@ -168,6 +175,7 @@ func greyStats(t *testing.T, path string) (mean, sd float64) {
 	for y := b.Min.Y; y < b.Max.Y; y++ {
 		for x := b.Min.X; x < b.Max.X; x++ {
 			r, g, bl, a := img.At(x, y).RGBA()
+			chroma = max(chroma, absDiff(r, g)>>8, absDiff(g, bl)>>8, absDiff(r, bl)>>8)
 			// composite over white
 			l := (0.299*float64(r) + 0.587*float64(g) + 0.114*float64(bl) + (65535 - float64(a))) / 257
 			sum += l
@@ -176,7 +184,14 @@ func greyStats(t *testing.T, path string) (mean, sd float64) {
 		}
 	}
 	mean = sum / float64(n)
-	return mean, math.Sqrt(math.Max(0, sum2/float64(n)-mean*mean))
+	return mean, math.Sqrt(math.Max(0, sum2/float64(n)-mean*mean)), chroma
+}
+
+func absDiff(a, b uint32) uint32 {
+	if a > b {
+		return a - b
+	}
+	return b - a
 }
 
 func TestPDFPagesRenderNotBlank(t *testing.T) {
@@ -192,11 +207,15 @@ func TestPDFPagesRenderNotBlank(t *testing.T) {
 		t.Fatalf("%d pages rendered, want at least 5 (cover, pattern, segments, estimates, AP areas)", len(pngs))
 	}
 	for _, f := range pngs {
-		mean, sd := greyStats(t, f)
+		mean, sd, chroma := greyStatsChroma(t, f)
 		// A blank page has sd 0; even the sparsest page has a heading,
 		// the footer rule and the caution.
 		if sd < 8 || mean > 254 {
 			t.Errorf("%s looks blank: mean %.1f, sd %.1f", filepath.Base(f), mean, sd)
+		}
+		// Black-and-white print: nothing may depend on colour.
+		if chroma > 2 {
+			t.Errorf("%s has colour (channels differ by %d): the plan must print in black and white", filepath.Base(f), chroma)
 		}
 	}
 }

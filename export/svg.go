@@ -6,8 +6,6 @@ import (
 	"math"
 	"strings"
 
-	"github.com/golang/geo/r2"
-
 	"dimerpath/planner"
 )
 
@@ -175,5 +173,3 @@ func (m *measureCanvas) endClip()                                               
 func (m *measureCanvas) textWidth(s string, f font) float64 {
 	return m.metrics.width(s, f.bold) * f.size * ptMM * m.unit
 }
-
-var _ = r2.Point{}

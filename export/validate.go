@@ -10,6 +10,10 @@ import (
 	"dimerpath/planner"
 )
 
+// MaxFieldNM bounds the scan field a plan may have (1 mm a side), so
+// that no figure or index meets coordinates no instrument could reach.
+const MaxFieldNM = 1e6
+
 // checkPlan reports the first value of p that the plan file cannot carry
 // or that contradicts the Plan contract, naming it by its path in the
 // plan file's schema. Both the writer and the reader run it, so a file
@@ -31,9 +35,23 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 	v := checker{named: named}
 	v.positive("field_nm[0]", p.FieldWidthNM)
 	v.positive("field_nm[1]", p.FieldHeightNM)
+	for k, w := range []float64{p.FieldWidthNM, p.FieldHeightNM} {
+		if v.err == nil && w > MaxFieldNM {
+			v.fail(invalid(fmt.Sprintf("field_nm[%d]", k), w, "larger than %g nm (1 mm), more than any STM scans", float64(MaxFieldNM)))
+		}
+	}
+	if v.err != nil {
+		return v.err
+	}
+	// Every position must lie near the field: within one field size of
+	// it (fiducials and moves may stand outside the written area).
+	v.near = r2.RectFromPoints(r2.Point{X: -p.FieldWidthNM, Y: -p.FieldHeightNM}, r2.Point{X: 2 * p.FieldWidthNM, Y: 2 * p.FieldHeightNM})
 	for i, c := range p.Conditions {
 		f := v.at("conditions", i)
 		v.mode(f+".mode", c.Mode, false)
+		v.kind(f+".kind", c.Kind, true)
+		v.nonNeg(f+".dwell_s", c.DwellS)
+		v.nonNeg(f+".dwell_cap_s", c.DwellCapS)
 		v.finite(f+".bias_v", c.BiasV)
 		v.nonNeg(f+".current_a", c.CurrentA)
 		v.nonNeg(f+".line_dose_c_per_cm", c.LineDoseCPerCm)
@@ -55,11 +73,8 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 			v.fail(invalid(f+".id", s.ID, "stroke %d must have id %d (strokes are indexed by id)", i, i))
 		}
 		v.mode(f+".mode", s.Mode, false)
-		switch s.Kind {
-		case planner.StrokeLine, planner.StrokeDwell, planner.StrokeRaster, planner.StrokeOutline:
-		default:
-			v.fail(invalid(f+".kind", string(s.Kind), "unknown stroke kind (want line, dwell, raster or outline)"))
-		}
+		v.kind(f+".kind", s.Kind, false)
+		v.nonNeg(f+".tolerance_nm", s.ToleranceNM)
 		if len(s.Path) == 0 {
 			v.fail(invalid(f+".path_nm", nil, "empty path"))
 		}
@@ -67,7 +82,7 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 			v.fail(invalid(f+".path_nm", len(s.Path), "a dwell has exactly one point, got %d", len(s.Path)))
 		}
 		for k, q := range s.Path {
-			if !finite(q.X) || !finite(q.Y) {
+			if !finite(q.X) || !finite(q.Y) || !v.near.ContainsPoint(q) {
 				v.point(fmt.Sprintf("%s.path_nm[%d]", f, k), q)
 				break
 			}
@@ -159,6 +174,8 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 	v.nonNeg("p10_s", p.P10S)
 	v.nonNeg("p50_s", p.P50S)
 	v.nonNeg("p90_s", p.P90S)
+	v.nonNeg("floor_s", p.FloorS)
+	v.nonNeg("by_hand_s", p.ByHandS)
 	if v.err == nil && !(p.P10S <= p.P50S && p.P50S <= p.P90S) {
 		v.fail(invalid("p50_s", p.P50S, "quantiles out of order (p10 %g s, p90 %g s)", p.P10S, p.P90S))
 	}
@@ -166,6 +183,7 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 		f := v.at("windows", i)
 		v.point(f+".at_nm", w.At)
 		v.count(f+".sites", w.Sites)
+		v.probability(f+".open_probability", w.OpenProbability)
 		v.probability(f+".probability", w.Probability)
 	}
 	y := p.Yield
@@ -182,6 +200,13 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 		}
 	}
 	v.nonNeg("yield.devices_per_perfect", y.DevicesPerPerfect)
+	v.nonNeg("yield.sd_good", y.SDGood)
+	if v.err == nil && (math.IsNaN(y.Log10All) || y.Log10All > 1e-9 || math.IsInf(y.Log10All, 1)) {
+		v.fail(invalid("yield.log10_all", y.Log10All, "the log10 of a probability must be at most 0"))
+	}
+	if v.err == nil && (y.DistributionFrom < 0 || y.DistributionFrom > max(0, len(y.Distribution))) {
+		v.fail(invalid("yield.distribution_from", y.DistributionFrom, "must lie between 0 and the distribution's length %d", len(y.Distribution)))
+	}
 	c := p.Coverage
 	v.count("coverage.sites", c.Sites)
 	v.count("coverage.uncovered", c.Uncovered)
@@ -192,7 +217,8 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 // checker keeps the first failure; later checks are skipped.
 type checker struct {
 	err   error
-	named bool // build field paths (else they are left empty)
+	named bool    // build field paths (else they are left empty)
+	near  r2.Rect // where positions may lie, nm
 }
 
 // at returns the path of element i of array arr, or "" when the checker
@@ -248,6 +274,9 @@ func (v *checker) count(f string, n int) {
 func (v *checker) point(f string, p r2.Point) {
 	v.finite(f+"[0]", p.X)
 	v.finite(f+"[1]", p.Y)
+	if v.err == nil && !v.near.IsEmpty() && !v.near.ContainsPoint(p) {
+		v.fail(invalid(f, fmt.Sprintf("[%g, %g]", p.X, p.Y), "more than one field size outside the scan field"))
+	}
 }
 
 // index checks 0 <= i < n, or i = -1 when none is allowed.
@@ -259,6 +288,17 @@ func (v *checker) index(f string, i, n int, none bool) {
 		v.fail(invalid(f, i, "must be -1 (none) or an index below %d", n))
 	} else {
 		v.fail(invalid(f, i, "must be an index below %d", n))
+	}
+}
+
+// kind checks a stroke kind; empty is allowed where the field is
+// optional.
+func (v *checker) kind(f string, k planner.StrokeKind, empty bool) {
+	switch {
+	case v.err != nil, empty && k == "":
+	case k == planner.StrokeLine, k == planner.StrokeDwell, k == planner.StrokeRaster, k == planner.StrokeOutline:
+	default:
+		v.fail(invalid(f, string(k), "unknown stroke kind (want line, dwell, raster or outline)"))
 	}
 }
 

@@ -75,10 +75,11 @@ func apAreas(p *planner.Plan) (areas []apArea, omitted int) {
 	type cell struct{ x, y int }
 	owner := map[cell]int{}
 	const g = apClusterGapNM
-	for i, b := range bounds {
-		b = b.ExpandedByMargin(g / 2)
-		for cx := int(math.Floor(b.X.Lo / g)); cx <= int(math.Floor(b.X.Hi/g)); cx++ {
-			for cy := int(math.Floor(b.Y.Lo / g)); cy <= int(math.Floor(b.Y.Hi/g)); cy++ {
+	join := func(i int, q r2.Point) {
+		// The cells of a g/2 box around q: strokes closer than about g
+		// share one.
+		for cx := int(math.Floor((q.X - g/2) / g)); cx <= int(math.Floor((q.X+g/2)/g)); cx++ {
+			for cy := int(math.Floor((q.Y - g/2) / g)); cy <= int(math.Floor((q.Y+g/2)/g)); cy++ {
 				k := cell{cx, cy}
 				if o, ok := owner[k]; ok {
 					if ra, rb := find(o), find(i); ra != rb {
@@ -87,6 +88,19 @@ func apAreas(p *planner.Plan) (areas []apArea, omitted int) {
 				} else {
 					owner[k] = i
 				}
+			}
+		}
+	}
+	for i, id := range ids {
+		// Sample each path every g/2, so the work follows the path's
+		// length (checkPlan keeps positions within a bounded field).
+		path := p.Strokes[id].Path
+		join(i, path[0])
+		for k := 1; k < len(path); k++ {
+			a, b := path[k-1], path[k]
+			n := int(math.Ceil(b.Sub(a).Norm() / (g / 2)))
+			for j := 1; j <= n; j++ {
+				join(i, a.Add(b.Sub(a).Mul(float64(j)/float64(n))))
 			}
 		}
 	}
@@ -280,8 +294,17 @@ func drawZoom(c canvas, sc *scene, a apArea, dev box, idx int) {
 		c.polyline(pts, false, pen{width: sc.feWidth * v.s / u, grey: 0.93, round: true}, noPaint, tag{class: "fe-footprint"})
 		c.polyline(pts, false, pen{width: 0.2, grey: 0.5, dash: []float64{1, 0.7}}, noPaint, tag{class: "fe-centre"})
 	}
+	// Every AP stroke in the window is drawn, also those of a
+	// neighbouring tile that reach into it; only the area's own strokes
+	// are numbered.
+	var inWin []int
+	for i := range p.Strokes {
+		if s := &p.Strokes[i]; s.Mode == planner.AP && strokeBounds(s).ExpandedByMargin(sc.apWidth).Intersects(win) {
+			inWin = append(inWin, i)
+		}
+	}
 	// AP footprints under the lattice, so the sites stay visible.
-	for _, id := range a.strokes {
+	for _, id := range inWin {
 		s := &p.Strokes[id]
 		if s.Kind == planner.StrokeDwell {
 			continue
@@ -299,7 +322,7 @@ func drawZoom(c canvas, sc *scene, a apArea, dev box, idx int) {
 	}
 	// Centre lines with an arrowhead at the end: the writing direction.
 	arrow := math.Max(1.2*u, 0)
-	for _, id := range a.strokes {
+	for _, id := range inWin {
 		s := &p.Strokes[id]
 		pts := zoomPath(v, s)
 		if s.Kind == planner.StrokeDwell {

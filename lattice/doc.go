@@ -22,6 +22,30 @@
 // offset is reduced into one lattice cell, so index 0 lies at or just
 // inside the field's lower-left corner.
 //
+// # Terraces and steps
+//
+// A Surface holds one or more terraces. A terrace with a Boundary polygon
+// holds the field points inside it (terraces with boundaries are tried in
+// order); one terrace may have no boundary and hold the rest of the field.
+// Terrace.AcrossStep gives the lattice one single-height step away: rows
+// turned by 90° and shifted by StepShift. A site exists when its dimer's
+// centre lies in the field and on the site's terrace, so both H of a
+// dimer share a terrace; Surface.Valid tells.
+//
+// # Site sets and shapes
+//
+// A SiteSet is a bitset per dimer row, ordered terrace, row, index. Areas
+// (Rect, Polygon, Polyline with a width) are rasterised by Surface.Paint
+// one lattice line at a time: the area's spans on the line are clipped to
+// the terrace and set a 64-bit word at a time, so painting a 1 µm² square
+// (6.8·10^6 sites) takes about a millisecond. Dopant windows are placed
+// from WindowTemplate data (PhosphineWindow, ArsineWindow or a lab's own)
+// with Surface.PlaceWindow. A SiteSet encodes to JSON run-length per row
+// (MarshalJSON), and decoding validates everything and refuses sets
+// beyond MaxSiteSetSites. ReadPointsCSV with Surface.SnapSites or
+// SnapWindows imports positions made by a script, reporting each point
+// more than OffLatticeNM off the lattice.
+//
 // # References
 //
 // CODATA 2018 for the Si lattice constant; see geometry.go for the

@@ -72,7 +72,7 @@ func (s *Surface) rasterise(a Area, emit func(t, r, d0, d1, side int)) {
 	if b.IsEmpty() || !b.Intersects(s.Field.ExpandedByMargin(HOffset)) {
 		return
 	}
-	var terr, s0, s1, i0, i1 []Span
+	var terr, s0, s1, i0, i1, both, only []Span
 	for ti := range s.Terraces {
 		t := &s.Terraces[ti]
 		offAlong, offAcross := s.axes(t.Rows, t.Offset)
@@ -94,15 +94,15 @@ func (s *Surface) rasterise(a Area, emit func(t, r, d0, d1, side int)) {
 			i0 = intersectSpans(i0[:0], s0, terr)
 			i1 = intersectSpans(i1[:0], s1, terr)
 			toDimers := func(sp []Span) []Span {
-				// Reuse the slice: Lo and Hi become the inclusive dimer
-				// range; empty ranges are dropped.
+				// Reuse the slice: Lo and Hi become the half-open dimer
+				// range [d0, d1+1); empty ranges are dropped.
 				out := sp[:0]
 				for _, x := range sp {
 					d0 := int(math.Ceil((x.Lo-offAlong)/DimerPitch - 1e-9))
 					d1 := int(math.Ceil((x.Hi-offAlong)/DimerPitch+1e-9)) - 1
 					d0, d1 = max(d0, 0), min(d1, nDimers-1)
 					if d0 <= d1 {
-						out = append(out, Span{float64(d0), float64(d1)})
+						out = append(out, Span{float64(d0), float64(d1 + 1)})
 					}
 				}
 				return out
@@ -110,15 +110,21 @@ func (s *Surface) rasterise(a Area, emit func(t, r, d0, d1, side int)) {
 			i0, i1 = toDimers(i0), toDimers(i1)
 			if equalSpans(i0, i1) {
 				for _, x := range i0 {
-					emit(ti, r, int(x.Lo), int(x.Hi), -1)
+					emit(ti, r, int(x.Lo), int(x.Hi)-1, -1)
 				}
 				continue
 			}
-			for _, x := range i0 {
-				emit(ti, r, int(x.Lo), int(x.Hi), 0)
+			// Where the sides differ (slanted edges), emit the dimers both
+			// sides cover as whole runs and only the rest side by side.
+			both = intersectSpans(both[:0], i0, i1)
+			for _, x := range both {
+				emit(ti, r, int(x.Lo), int(x.Hi)-1, -1)
 			}
-			for _, x := range i1 {
-				emit(ti, r, int(x.Lo), int(x.Hi), 1)
+			for side, sp := range [2][]Span{i0, i1} {
+				only = subtractSpans(only[:0], sp, both)
+				for _, x := range only {
+					emit(ti, r, int(x.Lo), int(x.Hi)-1, side)
+				}
 			}
 		}
 	}

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"path/filepath"
 	"slices"
 	"strconv"
 	"strings"
@@ -363,6 +364,7 @@ func Calibrate(base Profile, ms []Measurement, mode WriteMode, source string) (P
 		}
 		fits = append(fits, fit)
 	}
+	p.Name = fmt.Sprintf("%s, calibrated from %s", base.Name, filepath.Base(source))
 	p.Notes = strings.TrimSpace(p.Notes + "\nwidth model calibrated from " + source)
 	if err := p.Validate(); err != nil {
 		return base, fits, fmt.Errorf("calibrated profile: %w", err)

@@ -19,13 +19,19 @@ const DefaultMonteCarloRuns = 1000
 // identically distributed) capped completion times is drawn from its
 // normal approximation (central limit theorem), whose error is far below
 // the spread of the drift term.
-const exactDwellSamples = 2000
+const exactDwellSamples = 256
 
-// spreadTolerance is the gap in total time (relative) below which the
-// total at a drift rate between two evaluated rates is interpolated
-// rather than re-segmented: the optimal total never falls as the drift
-// rate rises, so it lies between its neighbours.
-const spreadTolerance = 1e-4
+// spreadRanks is the number of intervals between the drift-rate ranks
+// at which the segmentation is computed exactly when dwells add their own
+// spread (see monteCarlo).
+const spreadRanks = 16
+
+// quantileIndex is the 0-based index of the empirical p-quantile of n
+// sorted samples: the smallest value whose empirical CDF reaches p, as
+// gonum's stat.Quantile with stat.Empirical picks it.
+func quantileIndex(p float64, n int) int {
+	return min(max(int(math.Ceil(p*float64(n)))-1, 0), n-1)
+}
 
 // mcResult holds the Monte Carlo samples of the total write time.
 type mcResult struct {
@@ -47,74 +53,63 @@ func monteCarlo(ctx context.Context, sg *segmenter, prof *Profile, runs int, see
 	var res mcResult
 	r0 := prof.Drift.RateNMPerMin
 	rates := driftSamples(prof, runs, seed)
-	// Totals at the sampled rates: evaluate the segmentation at sorted
-	// rates by bisection, interpolating where neighbours agree.
+	// The optimal total never falls as the drift rate rises, so the
+	// total at the k-th smallest sampled rate is the k-th smallest total.
+	// The segmentation is computed exactly at the ranks the quantiles
+	// pick and, when dwells add their own spread, at spreadRanks ranks
+	// evenly spaced between; totals at other ranks are interpolated
+	// between their evaluated neighbours, which bound them. Without
+	// dwells the quantiles are therefore exact.
 	order := make([]int, runs)
 	for i := range order {
 		order[i] = i
 	}
 	sort.SliceStable(order, func(a, b int) bool { return rates[order[a]] < rates[order[b]] })
+	ranks := map[int]bool{}
+	for _, q := range []float64{0.1, 0.5, 0.9} {
+		ranks[quantileIndex(q, runs)] = true
+	}
+	if dwells > 0 {
+		for k := 0; k <= spreadRanks; k++ {
+			ranks[k*(runs-1)/spreadRanks] = true
+		}
+	}
+	evaluated := make([]int, 0, len(ranks))
+	for k := range ranks {
+		evaluated = append(evaluated, k)
+	}
+	sort.Ints(evaluated)
+	byRank := make([]float64, runs)
+	for n, k := range evaluated {
+		if err := ctx.Err(); err != nil {
+			return res, err
+		}
+		r := rates[order[k]]
+		scale := math.Inf(1)
+		if r > 0 {
+			scale = r0 / r
+		}
+		_, byRank[k], _ = sg.solve(scale)
+		res.evaluations++
+		if progress != nil {
+			progress(float64(n+1) / float64(len(evaluated)))
+		}
+	}
+	for n := 0; n+1 < len(evaluated); n++ {
+		a, b := evaluated[n], evaluated[n+1]
+		for k := a + 1; k < b; k++ {
+			byRank[k] = byRank[a] + (byRank[b]-byRank[a])*float64(k-a)/float64(b-a)
+		}
+	}
+	for k := 0; k < evaluated[0]; k++ {
+		byRank[k] = byRank[evaluated[0]]
+	}
+	for k := evaluated[len(evaluated)-1] + 1; k < runs; k++ {
+		byRank[k] = byRank[evaluated[len(evaluated)-1]]
+	}
 	totals := make([]float64, runs)
-	known := make([]bool, runs)
-	eval := func(k int) (float64, error) {
-		i := order[k]
-		if !known[i] {
-			if err := ctx.Err(); err != nil {
-				return 0, err
-			}
-			scale := math.Inf(1)
-			if rates[i] > 0 {
-				scale = r0 / rates[i]
-			}
-			_, totals[i], _ = sg.solve(scale)
-			known[i] = true
-			res.evaluations++
-			if progress != nil {
-				progress(math.Min(1, float64(res.evaluations)/64))
-			}
-		}
-		return totals[i], nil
-	}
-	var fill func(lo, hi int) error
-	fill = func(lo, hi int) error {
-		if hi-lo <= 1 {
-			return nil
-		}
-		tl, err := eval(lo)
-		if err != nil {
-			return err
-		}
-		th, err := eval(hi)
-		if err != nil {
-			return err
-		}
-		if th-tl <= spreadTolerance*math.Max(tl, 1) {
-			rl, rh := rates[order[lo]], rates[order[hi]]
-			for k := lo + 1; k < hi; k++ {
-				i := order[k]
-				f := 0.0
-				if rh > rl {
-					f = (rates[i] - rl) / (rh - rl)
-				}
-				totals[i] = tl + f*(th-tl)
-				known[i] = true
-			}
-			return nil
-		}
-		mid := (lo + hi) / 2
-		if _, err := eval(mid); err != nil {
-			return err
-		}
-		if err := fill(lo, mid); err != nil {
-			return err
-		}
-		return fill(mid, hi)
-	}
-	if _, err := eval(0); err != nil {
-		return res, err
-	}
-	if err := fill(0, runs-1); err != nil {
-		return res, err
+	for k, i := range order {
+		totals[i] = byRank[k]
 	}
 
 	if dwells > 0 {
@@ -122,11 +117,13 @@ func monteCarlo(ctx context.Context, sg *segmenter, prof *Profile, runs int, see
 		mean := prof.Dwell.ExpectedS()
 		src := rand.NewPCG(uint64(seed), 0x6477656c6c)
 		if dwells <= exactDwellSamples {
-			exp := distuv.Exponential{Rate: k, Src: src}
+			// Exponential with rate k, as distuv.Exponential draws it
+			// (ExpFloat64/k), from one generator rather than one per draw.
+			rng := rand.New(src)
 			for i := range totals {
 				d := 0.0
 				for range dwells {
-					d += math.Min(exp.Rand(), capS) - mean
+					d += math.Min(rng.ExpFloat64()/k, capS) - mean
 				}
 				totals[i] += d
 			}
@@ -143,6 +140,9 @@ func monteCarlo(ctx context.Context, sg *segmenter, prof *Profile, runs int, see
 	res.samples = totals
 	sort.Float64s(res.samples)
 	res.p10 = stat.Quantile(0.1, stat.Empirical, res.samples, nil)
+	if res.p10 != res.samples[quantileIndex(0.1, runs)] {
+		panic("planner: quantile index disagrees with gonum's empirical quantile")
+	}
 	res.p50 = stat.Quantile(0.5, stat.Empirical, res.samples, nil)
 	res.p90 = stat.Quantile(0.9, stat.Empirical, res.samples, nil)
 	return res, nil

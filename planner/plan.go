@@ -59,6 +59,14 @@ type Plan struct {
 	P10S      float64   `json:"p10_s"`
 	P50S      float64   `json:"p50_s"`
 	P90S      float64   `json:"p90_s"`
+	// FloorS is the physical floor: the writing time alone (AP, FE and
+	// dwell), without travel, switches or registrations.
+	FloorS float64 `json:"floor_s"`
+	// ByHandS is the total time of the same work planned the way it is
+	// done by hand: regions in file order, rows in raster order, one mode
+	// per region, a registration at the fixed interval of the tightest
+	// drift budget.
+	ByHandS float64 `json:"by_hand_s"`
 
 	Windows  []Window `json:"windows"`
 	Yield    Yield    `json:"yield"`
@@ -71,14 +79,22 @@ type Plan struct {
 
 // Conditions are the tip settings of one write mode.
 type Conditions struct {
-	Mode           WriteMode `json:"mode"`
-	BiasV          float64   `json:"bias_v"`             // sample bias
-	CurrentA       float64   `json:"current_a"`          // setpoint current
-	LineDoseCPerCm float64   `json:"line_dose_c_per_cm"` // charge per unit length
-	SpeedNMPerS    float64   `json:"speed_nm_per_s"`     // = current / line dose
-	LineWidthNM    float64   `json:"line_width_nm"`      // from the width-vs-dose model
-	Passes         int       `json:"passes"`
-	PitchNM        float64   `json:"pitch_nm,omitempty"` // FE raster line pitch
+	Mode WriteMode `json:"mode"`
+	// Kind is the kind of stroke written with these conditions: line
+	// (AP), dwell (AP conditions for parking on single sites) or raster
+	// (FE).
+	Kind           StrokeKind `json:"kind"`
+	BiasV          float64    `json:"bias_v"`             // sample bias
+	CurrentA       float64    `json:"current_a"`          // setpoint current
+	LineDoseCPerCm float64    `json:"line_dose_c_per_cm"` // charge per unit length
+	SpeedNMPerS    float64    `json:"speed_nm_per_s"`     // = current / line dose
+	LineWidthNM    float64    `json:"line_width_nm"`      // from the width-vs-dose model
+	Passes         int        `json:"passes"`
+	PitchNM        float64    `json:"pitch_nm,omitempty"` // FE raster line pitch
+	// DwellS is the expected time of one feedback-ended dwell and
+	// DwellCapS the longest the plan lets it run (its Completion time).
+	DwellS    float64 `json:"dwell_s,omitempty"`
+	DwellCapS float64 `json:"dwell_cap_s,omitempty"`
 }
 
 // RegionMode records the mode given to one region and the reason.
@@ -111,7 +127,10 @@ type Stroke struct {
 	LengthNM  float64    `json:"length_nm"`  // one pass
 	DurationS float64    `json:"duration_s"` // all passes, or the dwell
 	Sites     int        `json:"sites"`      // H sites this stroke is meant to clear
-	Segment   int        `json:"segment"`
+	// ToleranceNM is the placement tolerance (±nm) the stroke is held to;
+	// its drift budget is ToleranceNM / drift rate.
+	ToleranceNM float64 `json:"tolerance_nm"`
+	Segment     int     `json:"segment"`
 	// Window is the index into Plan.Windows of the dopant window this
 	// stroke opens, or -1.
 	Window int `json:"window"`
@@ -180,12 +199,16 @@ func (b Breakdown) Total() float64 {
 // Window is one dopant window of the plan with its single-donor
 // probability.
 type Window struct {
-	Region      string   `json:"region"`
-	Species     string   `json:"species"`
-	Template    string   `json:"template"`
-	At          r2.Point `json:"at_nm"` // window centre
-	Sites       int      `json:"sites"`
-	Probability float64  `json:"probability"`
+	Region   string   `json:"region"`
+	Species  string   `json:"species"`
+	Template string   `json:"template"`
+	At       r2.Point `json:"at_nm"` // window centre
+	Sites    int      `json:"sites"`
+	// OpenProbability is the chance that every site of the window is
+	// cleared (1 for a line; Completion^sites for dwells), and
+	// Probability the template's single-donor probability times it.
+	OpenProbability float64 `json:"open_probability"`
+	Probability     float64 `json:"probability"`
 }
 
 // Yield summarises the dopant windows' outcome.

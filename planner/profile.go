@@ -47,7 +47,9 @@ type Profile struct {
 	Drift DriftProfile `json:"drift"`
 
 	// ToleranceAPNM and ToleranceFENM are the default placement
-	// tolerances (±nm) for regions that give none.
+	// tolerances (±nm) for regions that give none. ToleranceFENM is also
+	// what FE writing can hold: auto mode writes a region in FE only when
+	// its own tolerance (if it gives one) is at least this.
 	ToleranceAPNM float64 `json:"tolerance_ap_nm"`
 	ToleranceFENM float64 `json:"tolerance_fe_nm"`
 
@@ -82,9 +84,8 @@ type ModeProfile struct {
 	Outline bool `json:"outline,omitempty"`
 	// EdgeAllowanceNM is how far beyond its region's sites a stroke of
 	// this mode may clear H (nm): the coverage check reports every
-	// cleared site farther than this from the region. For FE it is also
-	// the edge roughness that a region's placement tolerance must allow
-	// before auto mode chooses FE.
+	// cleared site farther than this from the region, and the FE fill
+	// insets its paths so that it stays within it.
 	EdgeAllowanceNM float64 `json:"edge_allowance_nm"`
 }
 
@@ -190,10 +191,12 @@ func DefaultProfile() Profile {
 			// typical, from memory.
 			Width:   WidthModel{SigmaNM: 2.5, ThresholdDoseCPerCm: 5e-5 / (math.E * math.E)},
 			Overlap: 0.1, // common practice
-			// FE edges are rough on the scale of a few nm (Rudolph 2014:
-			// ~10 nm electrical definition); 2 nm equals the FE default
-			// tolerance, from memory.
-			EdgeAllowanceNM: 2,
+			// A Gaussian FE line clears out to half its width from its
+			// path, and the fill runs its paths along the region's
+			// outermost sites, so an FE region grows by up to w/2 = 5 nm:
+			// the same 5 nm the FE keep-out design rule assumes (FE lines
+			// ~10 nm, Rudolph 2014).
+			EdgeAllowanceNM: 5,
 		},
 		Dwell: DwellProfile{
 			// Feedback-controlled single-H removal: tip parked, +2.5–4.5 V,
@@ -233,8 +236,9 @@ func DefaultProfile() Profile {
 		// change the tip.
 		Order:       OrderAPFirst,
 		WindowStyle: WindowStyleLine,
-		// FE edge allowance (2 nm) plus about one dimer row.
-		HybridBandNM: 3,
+		// The FE edge allowance (5 nm) plus about one dimer row, so the
+		// fill's edge stays inside the AP band.
+		HybridBandNM: 6,
 		Limits: Limits{
 			MaxBiasV:     10,    // common instrument bias range ±10 V, from memory
 			MaxCurrentA:  10e-9, // ~10 nA FE cap, from memory (physics.md caps)
@@ -323,6 +327,11 @@ func (p Profile) Validate() error {
 	}
 	if p.Version < 1 || p.Version > ProfileVersion {
 		v.add("version", p.Version, fmt.Sprintf("must be 1..%d (this dimerpath reads up to version %d)", ProfileVersion, ProfileVersion))
+	}
+	if p.Base != "" {
+		if _, err := Preset(p.Base); err != nil {
+			v.add("base", p.Base, fmt.Sprintf("must name a preset (%s) or be empty", strings.Join(Presets(), ", ")))
+		}
 	}
 	v.mode("ap", p.AP, false)
 	v.mode("fe", p.FE, true)
@@ -494,7 +503,7 @@ func jsonError(data []byte, err error) error {
 		if path == "" {
 			path = "(top level)"
 		}
-		return fmt.Errorf("%s: %s is not a valid %s (line %d)", path, te.Value, te.Type, lineOf(data, te.Offset))
+		return fmt.Errorf("%s: got a JSON %s, want %s (line %d)", path, te.Value, describeGoType(te.Type.String()), lineOf(data, te.Offset))
 	}
 	var se *json.SyntaxError
 	if errors.As(err, &se) {
@@ -504,6 +513,18 @@ func jsonError(data []byte, err error) error {
 		return fmt.Errorf("truncated JSON: %w", err)
 	}
 	return err
+}
+
+func describeGoType(t string) string {
+	switch t {
+	case "float64", "int":
+		return "a number"
+	case "string":
+		return "a string"
+	case "bool":
+		return "true or false"
+	}
+	return "an object"
 }
 
 func lineOf(data []byte, offset int64) int {

@@ -1,7 +1,6 @@
 package planner
 
 import (
-	"container/heap"
 	"math"
 
 	"github.com/golang/geo/r2"
@@ -148,7 +147,7 @@ func (sg *segmenter) solve(scale float64) (starts []int, total float64, forced [
 	tree := newMaxTree(q)
 	D := make([]float64, n)
 	from := make([]int, n)
-	h := &candHeap{}
+	var h candHeap
 	for e := 0; e < n; e++ {
 		prev := 0.0
 		if e > 0 {
@@ -159,11 +158,11 @@ func (sg *segmenter) solve(scale float64) (starts []int, total float64, forced [
 			emax = e // over budget even alone: its own segment
 			forced = append(forced, e)
 		}
-		heap.Push(h, cand{key: prev + sg.B[e], s: e, emax: emax})
-		for (*h)[0].emax < e {
-			heap.Pop(h)
+		h.push(cand{key: prev + sg.B[e], s: e, emax: emax})
+		for h[0].emax < e {
+			h.pop()
 		}
-		D[e], from[e] = (*h)[0].key, (*h)[0].s
+		D[e], from[e] = h[0].key, h[0].s
 	}
 	for e := n - 1; e >= 0; e = from[e] - 1 {
 		starts = append(starts, from[e])
@@ -172,6 +171,36 @@ func (sg *segmenter) solve(scale float64) (starts []int, total float64, forced [
 		starts[i], starts[j] = starts[j], starts[i]
 	}
 	return starts, sg.base + D[n-1], forced
+}
+
+// minScale returns the least budget scale at which the segmentation
+// starts is still allowed: every job of a segment of two or more jobs
+// within its scaled budget (a job alone in its segment is always
+// allowed). It is 0 when no budget binds.
+func (sg *segmenter) minScale(starts []int) float64 {
+	rho := 0.0
+	n := len(sg.jobs)
+	for k, s := range starts {
+		e := n
+		if k+1 < len(starts) {
+			e = starts[k+1]
+		}
+		if e-s < 2 {
+			continue
+		}
+		base := sg.a[s]
+		if s > 0 {
+			base -= sg.T[s-1] + sg.m[s-1] + sg.sw[s]
+		}
+		for j := s; j < e; j++ {
+			b := sg.jobs[j].budgetS
+			if math.IsInf(b, 1) {
+				continue
+			}
+			rho = math.Max(rho, (base+sg.T[j])/b)
+		}
+	}
+	return rho
 }
 
 // fixedInterval returns the segment starts of the by-hand practice: a
@@ -215,22 +244,49 @@ type cand struct {
 	emax int
 }
 
+// candHeap is a binary min-heap of candidates by key, then start.
 type candHeap []cand
 
-func (h candHeap) Len() int { return len(h) }
-func (h candHeap) Less(i, j int) bool {
+func (h candHeap) less(i, j int) bool {
 	if h[i].key != h[j].key {
 		return h[i].key < h[j].key
 	}
 	return h[i].s < h[j].s
 }
-func (h candHeap) Swap(i, j int) { h[i], h[j] = h[j], h[i] }
-func (h *candHeap) Push(x any)   { *h = append(*h, x.(cand)) }
-func (h *candHeap) Pop() any {
-	old := *h
-	x := old[len(old)-1]
-	*h = old[:len(old)-1]
-	return x
+
+func (h *candHeap) push(c cand) {
+	*h = append(*h, c)
+	a := *h
+	for i := len(a) - 1; i > 0; {
+		p := (i - 1) / 2
+		if !a.less(i, p) {
+			break
+		}
+		a[i], a[p] = a[p], a[i]
+		i = p
+	}
+}
+
+func (h *candHeap) pop() {
+	a := *h
+	n := len(a) - 1
+	a[0] = a[n]
+	a = a[:n]
+	for i := 0; ; {
+		l, r, m := 2*i+1, 2*i+2, i
+		if l < n && a.less(l, m) {
+			m = l
+		}
+		if r < n && a.less(r, m) {
+			m = r
+		}
+		if m == i {
+			break
+		}
+		a[i], a[m] = a[m], a[i]
+		i = m
+	}
+	*h = a
 }
 
 // maxTree answers "first index at or after i whose value exceeds c".

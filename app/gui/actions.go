@@ -4,13 +4,16 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"path/filepath"
 	"time"
 
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 
+	"dimerpath/export"
 	"dimerpath/planner"
 )
 
@@ -65,6 +68,9 @@ func (u *UI) StartPlan() {
 }
 
 func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken, err error) {
+	if u.jobDone != nil {
+		defer u.jobDone()
+	}
 	u.planCancel = nil
 	u.planButton.Enable()
 	u.hideProgress()
@@ -149,13 +155,6 @@ func (u *UI) CheckSync() {
 	s.SetFindings(f, s.Token())
 }
 
-// variantResult is one row of the comparison.
-type variantResult struct {
-	Name string
-	Plan *planner.Plan
-	Err  error
-}
-
 // compareVariants plans every variant in the background and shows the
 // comparison.
 func (u *UI) compareVariants() {
@@ -171,17 +170,20 @@ func (u *UI) compareVariants() {
 	u.showProgress("Comparing variants…", 0)
 	seed := u.opts.Seed
 	go func() {
-		res := make([]variantResult, len(names))
+		res := make([]export.VariantResult, len(names))
 		for i, n := range names {
 			frac := 1 / float64(len(names))
 			opt := planner.Options{Seed: seed, Progress: u.progressFunc(fmt.Sprintf("variant %s (%d of %d): ", n, i+1, len(names)), frac, float64(i)*frac)}
 			p, err := buildPlan(ctx, d, n, prof, opt)
-			res[i] = variantResult{Name: n, Plan: p, Err: err}
+			res[i] = export.VariantResult{Variant: n, Plan: p, Err: err}
 			if ctx.Err() != nil {
 				break
 			}
 		}
 		fyne.Do(func() {
+			if u.jobDone != nil {
+				defer u.jobDone()
+			}
 			u.planCancel = nil
 			u.planButton.Enable()
 			u.hideProgress()
@@ -194,9 +196,11 @@ func (u *UI) compareVariants() {
 	}()
 }
 
-// comparisonView is the table and charts of a comparison.
-func comparisonView(res []variantResult) fyne.CanvasObject {
-	header := []string{"Variant", "Write time", "P10 – P90", "AP", "FE", "Dwell", "Travel", "Registr.", "All windows good", "Devices / perfect"}
+// comparisonView is the table and charts of a comparison: per variant
+// the write time with its spread, the share spent on registrations, and
+// the dopant yield. The full breakdown is in the exported report.
+func comparisonView(res []export.VariantResult) fyne.CanvasObject {
+	header := []string{"Variant", "Write time", "P10 – P90", "Registrations", "All windows good", "Devices / perfect"}
 	cols := len(header)
 	var cells []fyne.CanvasObject
 	for _, h := range header {
@@ -209,7 +213,7 @@ func comparisonView(res []variantResult) fyne.CanvasObject {
 			if r.Err != nil {
 				msg = r.Err.Error()
 			}
-			cells = append(cells, widget.NewLabel(r.Name))
+			cells = append(cells, widget.NewLabel(r.Variant))
 			l := widget.NewLabel(msg)
 			l.Importance = widget.DangerImportance
 			l.Truncation = fyne.TextTruncateEllipsis
@@ -228,13 +232,15 @@ func comparisonView(res []variantResult) fyne.CanvasObject {
 		if p.Yield.Windows > 0 {
 			all = formatProbability(p.Yield.All)
 		}
-		b := p.Breakdown
-		for _, t := range []string{r.Name, formatDuration(p.TotalS), formatDuration(p.P10S) + " – " + formatDuration(p.P90S),
-			formatDuration(b.APWriteS), formatDuration(b.FEWriteS), formatDuration(b.DwellS), formatDuration(b.TravelS), formatDuration(b.RegistrationS), all, dev} {
+		reg := formatDuration(p.Breakdown.RegistrationS)
+		if p.TotalS > 0 {
+			reg += fmt.Sprintf(" (%.0f %%)", 100*p.Breakdown.RegistrationS/p.TotalS)
+		}
+		for _, t := range []string{r.Variant, formatDuration(p.TotalS), formatDuration(p.P10S) + " – " + formatDuration(p.P90S), reg, all, dev} {
 			cells = append(cells, widget.NewLabel(t))
 		}
-		timeBars = append(timeBars, Bar{Label: r.Name, Value: p.TotalS, Text: formatDuration(p.TotalS), Color: SegmentColor(i)})
-		yieldBars = append(yieldBars, Bar{Label: r.Name, Value: p.Yield.All, Text: all, Color: colYield})
+		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: formatDuration(p.TotalS), Color: SegmentColor(i)})
+		yieldBars = append(yieldBars, Bar{Label: r.Variant, Value: p.Yield.All, Text: all, Color: colYield})
 	}
 	table := container.NewGridWithColumns(cols, cells...)
 	charts := container.NewGridWithColumns(2,
@@ -243,9 +249,21 @@ func comparisonView(res []variantResult) fyne.CanvasObject {
 	return container.NewVBox(table, widget.NewSeparator(), charts, widget.NewSeparator(), mutedLabel(planner.Caution))
 }
 
-func (u *UI) showComparison(res []variantResult) {
+func (u *UI) showComparison(res []export.VariantResult) {
 	content := container.NewVScroll(comparisonView(res))
-	d := dialog.NewCustom("Compare variants", "Close", container.New(&fixedSize{fyne.NewSize(1000, 520)}, content), u.Win)
+	var d *dialog.CustomDialog
+	report := widget.NewButtonWithIcon("Export report…", theme.DocumentPrintIcon(), func() {
+		u.withCaution("the comparison report", func(es ExportSettings) {
+			u.chooseFile(safeFileName(u.S.Design().Name)+"-variants.pdf", []string{".pdf", ".svg"}, func(path string) {
+				u.runInBackground("Writing "+filepath.Base(path)+"…", func(ctx context.Context, _ func(string, float64)) error {
+					return exportComparison(ctx, path, res, es)
+				}, "Wrote "+path)
+			})
+		})
+	})
+	closeBtn := widget.NewButton("Close", func() { d.Hide() })
+	d = dialog.NewCustomWithoutButtons("Compare variants", container.New(&fixedSize{fyne.NewSize(1000, 520)}, content), u.Win)
+	d.SetButtons([]fyne.CanvasObject{closeBtn, report})
 	d.Show()
 }
 

@@ -39,6 +39,7 @@ func (c *BarChart) SetBars(bars []Bar) {
 	c.Refresh()
 }
 
+// CreateRenderer implements fyne.Widget.
 func (c *BarChart) CreateRenderer() fyne.WidgetRenderer {
 	r := &barRenderer{c: c}
 	r.rebuild()
@@ -82,8 +83,9 @@ func (r *barRenderer) columns() (lw, tw, rowH float32) {
 
 func (r *barRenderer) Layout(size fyne.Size) {
 	lw, tw, rowH := r.columns()
-	const gap = 6
-	barMax := size.Width - lw - tw - 2*gap
+	// The right margin keeps the figures clear of a scroll bar.
+	const gap, margin = 6, 10
+	barMax := size.Width - lw - tw - 2*gap - margin
 	if barMax < 10 {
 		barMax = 10
 	}

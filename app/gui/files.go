@@ -1,7 +1,9 @@
 package gui
 
 import (
+	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"os"
 	"path/filepath"
@@ -15,6 +17,7 @@ import (
 	"fyne.io/fyne/v2/storage"
 	"fyne.io/fyne/v2/widget"
 
+	"dimerpath/export"
 	"dimerpath/internal/atomicfile"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
@@ -393,44 +396,93 @@ func (u *UI) OfferRecovery() {
 			u.removeRecovery()
 			return
 		}
-		d, err := loadDesign(filepath.Join(dir, recoveryName))
-		if err != nil {
-			dialog.ShowError(fmt.Errorf("the recovery copy could not be read: %w", err), u.Win)
-			return
-		}
-		s, err := NewSession(d, info.Path)
-		if err != nil {
+		if err := u.Recover(); err != nil {
 			dialog.ShowError(err, u.Win)
-			return
 		}
-		s.MarkUnsaved()
-		u.SetSession(s)
 	}, u.Win)
+}
+
+// Recover opens the recovery copy as an unsaved design belonging to the
+// file it was autosaved from.
+func (u *UI) Recover() error {
+	dir, err := u.configDir()
+	if err != nil {
+		return err
+	}
+	var info recoveryInfo
+	if meta, err := os.ReadFile(filepath.Join(dir, recoveryMeta)); err == nil {
+		json.Unmarshal(meta, &info)
+	}
+	d, err := loadDesign(filepath.Join(dir, recoveryName))
+	if err != nil {
+		return fmt.Errorf("the recovery copy could not be read: %w", err)
+	}
+	s, err := NewSession(d, info.Path)
+	if err != nil {
+		return err
+	}
+	s.MarkUnsaved()
+	u.SetSession(s)
+	return nil
 }
 
 // --- Export ---
 
-// exportAs exports the current variant's plan after showing the caution.
-// A missing or stale plan is made first.
+const prefPaper = "paper"
+
+// withCaution shows the caution before an export, with the paper size
+// for printed reports, and runs then with the settings if the user goes
+// on.
+func (u *UI) withCaution(what string, then func(ExportSettings)) {
+	paper := widget.NewRadioGroup([]string{"A4", "US Letter"}, nil)
+	paper.Horizontal = true
+	if u.App.Preferences().StringWithFallback(prefPaper, string(export.A4)) == string(export.Letter) {
+		paper.SetSelected("US Letter")
+	} else {
+		paper.SetSelected("A4")
+	}
+	msg := wrapLabel(planner.Caution + "\n\nThe printed plan carries this caution on its first page.")
+	content := container.NewVBox(msg, widget.NewForm(widget.NewFormItem("Paper", paper)))
+	dialog.ShowCustomConfirm("Before you export "+what, "Continue…", "Cancel", container.New(&fixedWidth{w: 480}, content), func(ok bool) {
+		if !ok {
+			return
+		}
+		es := ExportSettings{Paper: export.A4, Generator: u.opts.Generator, Date: time.Now()}
+		if paper.Selected == "US Letter" {
+			es.Paper = export.Letter
+		}
+		u.App.Preferences().SetString(prefPaper, string(es.Paper))
+		then(es)
+	}, u.Win)
+}
+
+// exportAs exports the current variant's plan as kind (pdf, svg, json
+// or csv) after the caution. A missing or out-of-date plan is offered to
+// be made first.
 func (u *UI) exportAs(kind string) {
 	p, stale := u.S.Plan()
 	if p == nil || stale {
-		dialog.ShowConfirm("Plan first", fmt.Sprintf("Variant %s has no current plan. Plan it now? (Export again when it is done.)", u.S.Variant().Name), func(ok bool) {
+		dialog.ShowConfirm("Plan first", fmt.Sprintf("Variant %s has no up-to-date plan to export. Plan it now? (Export again when it is done.)", u.S.Variant().Name), func(ok bool) {
 			if ok {
 				u.StartPlan()
 			}
 		}, u.Win)
 		return
 	}
-	msg := wrapLabel(planner.Caution + "\n\nThe exported plan carries this caution on its first page.")
-	dialog.ShowCustomConfirm("Before you export", "Export…", "Cancel", container.New(&fixedWidth{w: 460}, msg), func(ok bool) {
-		if ok {
-			u.chooseExportFile(kind, p)
-		}
-	}, u.Win)
+	d := u.S.DesignCopy()
+	u.withCaution("the plan", func(es ExportSettings) {
+		name := safeFileName(u.S.Design().Name+"-"+p.Variant) + "." + kind
+		u.chooseFile(name, []string{"." + kind}, func(path string) {
+			u.runInBackground("Exporting "+filepath.Base(path)+"…", func(ctx context.Context, progress func(string, float64)) error {
+				return exportPlan(ctx, path, d, p, es, progress)
+			}, "Exported "+path)
+		})
+	})
 }
 
-func (u *UI) chooseExportFile(kind string, p *planner.Plan) {
+// chooseFile asks for a file to write, suggesting name, and calls then
+// with its path. The file is written later through a temporary file.
+func (u *UI) chooseFile(name string, exts []string, then func(path string)) {
 	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
 		if err != nil {
 			dialog.ShowError(err, u.Win)
@@ -441,10 +493,10 @@ func (u *UI) chooseExportFile(kind string, p *planner.Plan) {
 		}
 		path := w.URI().Path()
 		w.Close()
-		u.runExport(kind, path, p)
+		then(path)
 	}, u.Win)
-	d.SetFileName(safeFileName(u.S.Design().Name+"-"+u.S.Variant().Name) + "." + kind)
-	d.SetFilter(storage.NewExtensionFileFilter([]string{"." + kind}))
+	d.SetFileName(name)
+	d.SetFilter(storage.NewExtensionFileFilter(exts))
 	if dir := u.lastDir(); dir != nil {
 		d.SetLocation(dir)
 	}
@@ -452,20 +504,30 @@ func (u *UI) chooseExportFile(kind string, p *planner.Plan) {
 	d.Show()
 }
 
-// runExport writes the export in the background.
-func (u *UI) runExport(kind, path string, p *planner.Plan) {
-	d := u.S.DesignCopy()
-	prof := u.S.Profile
-	u.showProgress("Exporting "+filepath.Base(path)+"…", 0)
+// runInBackground runs job with the progress bar and its Cancel button,
+// then reports done or the error.
+func (u *UI) runInBackground(msg string, job func(ctx context.Context, progress func(string, float64)) error, done string) {
+	if u.Busy() {
+		dialog.ShowInformation("Busy", "Wait for the running job to finish, or cancel it.", u.Win)
+		return
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	u.planCancel = cancel
+	u.showProgress(msg, 0)
+	progress := u.progressFunc("", 1, 0)
 	go func() {
-		err := exportPlan(kind, path, d, p, prof)
+		err := job(ctx, progress)
 		fyne.Do(func() {
+			u.planCancel = nil
 			u.hideProgress()
-			if err != nil {
-				dialog.ShowError(fmt.Errorf("export to %s failed:\n%w", path, err), u.Win)
-				return
+			switch {
+			case errors.Is(err, context.Canceled):
+				u.hintLabel.SetText("Cancelled; nothing was written.")
+			case err != nil:
+				dialog.ShowError(err, u.Win)
+			default:
+				u.hintLabel.SetText(done)
 			}
-			u.hintLabel.SetText("Exported " + path)
 		})
 	}()
 }

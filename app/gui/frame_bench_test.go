@@ -1,9 +1,12 @@
 package gui
 
 import (
+	"context"
 	"testing"
 
 	"github.com/golang/geo/r2"
+
+	"dimerpath/planner"
 )
 
 // BenchmarkFrame draws 1600 x 1000 frames of a design with 10^7 painted
@@ -26,6 +29,24 @@ func BenchmarkFrame(b *testing.B) {
 		{"rows-0.25nm-px", whole.CenteredOn(r2.Point{X: 1250, Y: 700}, 0.25)},
 		{"atomic-0.04nm-px", whole.CenteredOn(r2.Point{X: 1538, Y: 692}, 0.04)},
 	}
+	// The demo design (13.9 million sites, mostly its four pads) with the
+	// route of its plan, 1035 strokes, over it.
+	b.Run("demo-with-route", func(b *testing.B) {
+		s := demoSession(b)
+		p, err := buildPlan(context.Background(), s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: 1})
+		if err != nil {
+			b.Fatal(err)
+		}
+		s.SetPlan(p, s.Variant().Name, s.Token())
+		sc := s.Scene(SceneOptions{Route: true, Findings: true})
+		v := FitView(s.Surface().Field, 1600, 1000, 20)
+		var r Renderer
+		r.Render(sc, v)
+		b.ReportAllocs()
+		for b.Loop() {
+			r.Render(sc, v)
+		}
+	})
 	b.Run("Clear", func(b *testing.B) {
 		var r Renderer
 		r.Render(nil, whole)

@@ -1,6 +1,7 @@
 package gui
 
 import (
+	"image"
 	"image/png"
 	"os"
 	"testing"
@@ -43,14 +44,18 @@ func bigScene(tb testing.TB, n int) *Scene {
 	return sc
 }
 
-func savePNG(t *testing.T, name string, r *Renderer) {
+// savePNG keeps the renderer's last frame in $DIMERPATH_FRAME_DIR, when
+// set, for a look by eye.
+func savePNG(t *testing.T, name string, r *Renderer) { saveImage(t, name, r.Image()) }
+
+func saveImage(t *testing.T, name string, img image.Image) {
 	if dir := os.Getenv("DIMERPATH_FRAME_DIR"); dir != "" {
 		f, err := os.Create(dir + "/" + name)
 		if err != nil {
 			t.Fatal(err)
 		}
 		defer f.Close()
-		if err := png.Encode(f, r.Image()); err != nil {
+		if err := png.Encode(f, img); err != nil {
 			t.Fatal(err)
 		}
 	}

@@ -32,10 +32,14 @@ func newTestUI(t *testing.T, s *Session) (*UI, fyne.Window) {
 	return u, w
 }
 
-// screenPos returns the canvas position of field point p.
+// screenPos returns the canvas position of field point p, as events
+// and captured images count it. The test driver's AbsolutePositionForObject
+// is relative to the canvas's interactive area, which is inset from the
+// canvas, so the inset is added back.
 func screenPos(u *UI, p r2.Point) fyne.Position {
 	abs := fyne.CurrentApp().Driver().AbsolutePositionForObject(u.View)
-	return abs.Add(u.View.PositionOf(p))
+	inset, _ := u.Win.Canvas().InteractiveArea()
+	return abs.Add(inset).Add(u.View.PositionOf(p))
 }
 
 // drag drags the pointer from field point a to field point b. Fyne's
@@ -47,11 +51,8 @@ func drag(w fyne.Window, u *UI, a, b r2.Point) {
 }
 
 // pixelAt returns the colour of the captured canvas at field point p.
-// The test driver reports positions relative to the canvas's interactive
-// area, which is inset from the captured image.
 func pixelAt(img image.Image, u *UI, p r2.Point) color.NRGBA {
-	inset, _ := u.Win.Canvas().InteractiveArea()
-	q := screenPos(u, p).Add(inset)
+	q := screenPos(u, p)
 	return color.NRGBAModel.Convert(img.At(int(q.X), int(q.Y))).(color.NRGBA)
 }
 

@@ -121,7 +121,10 @@ func (s *Session) snapshotOf(prev *snapshot, label, key string) *snapshot {
 			if sr == nil {
 				r := cloneRegion(s.d.Variants[v].Regions[i])
 				sr = &snapRegion{region: r, bytes: setBytes(r.Painted) + setBytes(r.Erased) + 256}
-				if c := s.caches[id]; c != nil {
+				// The rasterised sites are kept only for regions with shapes:
+				// for painted sites alone, rasterising again on undo costs
+				// no more than this copy would on every edit.
+				if c := s.caches[id]; c != nil && len(r.Shapes) > 0 {
 					sr.sites = c.sites.Clone()
 					sr.bytes += setBytes(sr.sites)
 				}

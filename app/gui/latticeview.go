@@ -134,7 +134,7 @@ func (lv *LatticeView) generate(w, h int) image.Image {
 		lv.view = lv.view.Resized(w, h)
 	}
 	if !lv.fitted && w > 0 && h > 0 && lv.s.Surface() != nil {
-		lv.view = FitView(lv.s.Surface().Field, w, h, 24)
+		lv.view = lv.fitView()
 		lv.fitted = true
 		lv.updateScaleBar()
 	}
@@ -146,9 +146,27 @@ func (lv *LatticeView) Fit() {
 	if lv.s.Surface() == nil {
 		return
 	}
-	lv.view = FitView(lv.s.Surface().Field, lv.view.W, lv.view.H, 24)
+	lv.view = lv.fitView()
 	lv.fitted = true
 	lv.changed()
+}
+
+// fitView returns the view showing the whole field beside the legend:
+// the field is fitted into the part of the view the legend leaves free,
+// when that is wide enough.
+func (lv *LatticeView) fitView() View {
+	w, h := lv.view.W, lv.view.H
+	free := w
+	if lv.legend != nil {
+		lw := int(float32(lv.legend.MinSize().Width+24) * lv.pxPerDot)
+		if w-lw > w*2/3 {
+			free = w - lw
+		}
+	}
+	v := FitView(lv.s.Surface().Field, free, h, 24)
+	v.Center.X += float64(w-free) / 2 * v.Scale
+	v.W = w
+	return v
 }
 
 // ZoomTo shows rect (nm) filling most of the view, at least as close as
@@ -210,6 +228,7 @@ func (lv *LatticeView) MouseDown(ev *desktop.MouseEvent) {
 	}
 }
 
+// MouseUp forgets the button pressed.
 func (lv *LatticeView) MouseUp(ev *desktop.MouseEvent) {
 	lv.button = 0
 	lv.rightAt = nil
@@ -256,6 +275,7 @@ func (lv *LatticeView) Tapped(ev *fyne.PointEvent) {
 // and the tool previews; a right-button drag pans.
 func (lv *LatticeView) MouseIn(ev *desktop.MouseEvent) { lv.MouseMoved(ev) }
 
+// MouseMoved reports the pointer and pans during a right-button drag.
 func (lv *LatticeView) MouseMoved(ev *desktop.MouseEvent) {
 	if ev.Button == desktop.MouseButtonSecondary && lv.rightAt != nil {
 		d := ev.Position.Subtract(*lv.rightAt)
@@ -268,6 +288,7 @@ func (lv *LatticeView) MouseMoved(ev *desktop.MouseEvent) {
 	lv.s.Hover(lv.FieldAt(ev.Position))
 }
 
+// MouseOut clears the pointer readout and previews.
 func (lv *LatticeView) MouseOut() {
 	lv.s.Unhover()
 	if lv.OnCursor != nil {
@@ -281,16 +302,21 @@ func (lv *LatticeView) cursor(p fyne.Position) {
 	}
 }
 
-// FocusGained, FocusLost, TypedRune and TypedKey make the view
-// focusable, so that keys typed after clicking it reach the tool
-// shortcuts rather than the last text field.
+// FocusGained makes the view focusable, so that keys typed after
+// clicking it reach the tool shortcuts rather than the last text field.
 func (lv *LatticeView) FocusGained() { lv.focused = true }
-func (lv *LatticeView) FocusLost()   { lv.focused = false }
+
+// FocusLost implements fyne.Focusable.
+func (lv *LatticeView) FocusLost() { lv.focused = false }
+
+// TypedRune passes a typed character to OnRune.
 func (lv *LatticeView) TypedRune(r rune) {
 	if lv.OnRune != nil {
 		lv.OnRune(r)
 	}
 }
+
+// TypedKey passes a typed key to OnKey.
 func (lv *LatticeView) TypedKey(k *fyne.KeyEvent) {
 	if lv.OnKey != nil {
 		lv.OnKey(k)

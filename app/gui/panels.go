@@ -78,6 +78,19 @@ func parseInt(label, s string) (int, error) {
 	return v, nil
 }
 
+// shortCount prints a count in at most five characters: 1234, 98.8 k,
+// 3.32 M.
+func shortCount(n int) string {
+	switch {
+	case n < 10000:
+		return strconv.Itoa(n)
+	case n < 999_500:
+		return trimZeros(fmt.Sprintf("%.3g", float64(n)/1e3)) + " k"
+	default:
+		return trimZeros(fmt.Sprintf("%.3g", float64(n)/1e6)) + " M"
+	}
+}
+
 // groupDigits prints n with thin spaces between thousands.
 func groupDigits(n int) string {
 	s := strconv.Itoa(n)
@@ -167,7 +180,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			c.Objects[0].(*widget.Label).SetText(v.Regions[i].Name)
 			c.Objects[1].(*fyne.Container).Objects[0].(*canvas.Rectangle).FillColor = RegionColor(i)
 			c.Objects[1].(*fyne.Container).Objects[0].Refresh()
-			c.Objects[2].(*widget.Label).SetText(groupDigits(p.u.S.RegionSites(i).Count()) + " sites")
+			c.Objects[2].(*widget.Label).SetText(shortCount(p.u.S.RegionSites(i).Count()) + " sites")
 		})
 	p.list.OnSelected = func(i widget.ListItemID) {
 		if !p.updating {
@@ -277,6 +290,7 @@ func (p *regionsPanel) refresh() {
 		return
 	}
 	p.list.Select(a)
+	p.list.ScrollTo(a)
 	p.form.Show()
 	r := v.Regions[a]
 	if p.shown != a || p.name.Text != r.Name {
@@ -512,7 +526,11 @@ func newMarksPanel(u *UI) *marksPanel {
 	p := &marksPanel{u: u, fidSel: -1, terrSel: -1}
 	p.fids = widget.NewList(
 		func() int { return len(p.u.S.Design().Fiducials) },
-		func() fyne.CanvasObject { return widget.NewLabel("F1 at (0000.00, 0000.00) nm") },
+		func() fyne.CanvasObject {
+			l := widget.NewLabel("F1 at (0000.00, 0000.00) nm")
+			l.Truncation = fyne.TextTruncateEllipsis
+			return l
+		},
 		func(i widget.ListItemID, o fyne.CanvasObject) {
 			fs := p.u.S.Design().Fiducials
 			if i < len(fs) {
@@ -537,7 +555,11 @@ func newMarksPanel(u *UI) *marksPanel {
 
 	p.terrs = widget.NewList(
 		func() int { return len(p.u.S.Design().Terraces) },
-		func() fyne.CanvasObject { return widget.NewLabel("T0: rows along x, outline of 00 points") },
+		func() fyne.CanvasObject {
+			l := widget.NewLabel("T0: rows along x, outline of 00 points")
+			l.Truncation = fyne.TextTruncateEllipsis
+			return l
+		},
 		func(i widget.ListItemID, o fyne.CanvasObject) {
 			ts := p.u.S.Design().Terraces
 			if i < len(ts) {

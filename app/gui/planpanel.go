@@ -33,13 +33,17 @@ func formatDuration(s float64) string {
 	switch {
 	case math.IsNaN(s) || math.IsInf(s, 0):
 		return "—"
+	case s == 0:
+		return "0 s"
 	case s < 0.1:
 		return fmt.Sprintf("%.0f ms", s*1000)
 	case s < 60:
 		return fmt.Sprintf("%.1f s", s)
-	case s < 3600:
+	case s < 600:
 		m := math.Floor(s / 60)
 		return fmt.Sprintf("%.0f min %02.0f s", m, math.Floor(s-60*m))
+	case s < 3600:
+		return fmt.Sprintf("%.0f min", math.Round(s/60))
 	default:
 		h := math.Floor(s / 3600)
 		return fmt.Sprintf("%.0f h %02.0f min", h, math.Floor((s-3600*h)/60))
@@ -128,7 +132,7 @@ func (p *planPanel) refresh() {
 	objs = append(objs,
 		widget.NewLabel("Expected write time, variant "+pl.Variant),
 		bigText(formatDuration(pl.TotalS)),
-		wrapLabel(fmt.Sprintf("Spread: P10 %s · P50 %s · P90 %s", formatDuration(pl.P10S), formatDuration(pl.P50S), formatDuration(pl.P90S))),
+		wrapLabel(fmt.Sprintf("Spread  P10 %s · P50 %s · P90 %s", formatDuration(pl.P10S), formatDuration(pl.P50S), formatDuration(pl.P90S))),
 		widget.NewSeparator(),
 		heading("Time by kind"),
 		NewBarChart(breakdownBars(pl.Breakdown, pl.TotalS)),

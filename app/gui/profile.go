@@ -1,8 +1,348 @@
 package gui
 
-import "fyne.io/fyne/v2/dialog"
+import (
+	"errors"
+	"fmt"
+	"strconv"
+	"strings"
 
-// editProfile opens the instrument-profile editor.
-func (u *UI) editProfile() {
-	dialog.ShowInformation("Instrument profile", "The profile editor arrives with the planner package.", u.Win)
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/storage"
+	"fyne.io/fyne/v2/theme"
+	"fyne.io/fyne/v2/widget"
+
+	"dimerpath/planner"
+)
+
+// The instrument-profile editor edits a copy of the session's profile.
+// Apply parses every field and validates the whole profile with the
+// planner; only a profile that passes both replaces the session's, so
+// nothing half-valid is ever used or saved.
+
+// profileField is one numeric field of the editor: shown = stored·scale.
+type profileField struct {
+	group, label string
+	path         string // JSON path, as the planner's errors name it
+	scale        float64
+	f            func(p *planner.Profile) *float64
+	i            func(p *planner.Profile) *int
+}
+
+func modeFields(group, prefix string, m func(p *planner.Profile) *planner.ModeProfile, fe bool) []profileField {
+	fs := []profileField{
+		{group: group, path: prefix + ".bias_v", label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).BiasV }},
+		{group: group, path: prefix + ".current_a", label: "Setpoint current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &m(p).CurrentA }},
+		{group: group, path: prefix + ".line_dose_c_per_cm", label: "Line dose (mC/cm)", scale: 1e3, f: func(p *planner.Profile) *float64 { return &m(p).LineDoseCPerCm }},
+		{group: group, path: prefix + ".passes", label: "Passes", i: func(p *planner.Profile) *int { return &m(p).Passes }},
+		{group: group, path: prefix + ".width.sigma_nm", label: "Beam σ of the width model (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).Width.SigmaNM }},
+		{group: group, path: prefix + ".width.threshold_dose_c_per_cm", label: "Threshold dose (mC/cm)", scale: 1e3, f: func(p *planner.Profile) *float64 { return &m(p).Width.ThresholdDoseCPerCm }},
+	}
+	if fe {
+		fs = append(fs, profileField{group: group, path: prefix + ".overlap", label: "Raster overlap (fraction of the width)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).Overlap }})
+	}
+	fs = append(fs, profileField{group: group, path: prefix + ".edge_allowance_nm", label: "Edge allowance (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).EdgeAllowanceNM }})
+	return fs
+}
+
+func profileFields() []profileField {
+	fs := modeFields("Atomic-precision mode", "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)
+	fs = append(fs, modeFields("Field-emission mode", "fe", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
+	g := "Dwell (single points)"
+	fs = append(fs,
+		profileField{group: g, path: "dwell.bias_v", label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.BiasV }},
+		profileField{group: g, path: "dwell.current_a", label: "Setpoint current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &p.Dwell.CurrentA }},
+		profileField{group: g, path: "dwell.yield_per_electron", label: "Desorption yield (H per electron)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.YieldPerElectron }},
+		profileField{group: g, path: "dwell.completion", label: "Completion probability", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.Completion }},
+	)
+	g = "Motion"
+	fs = append(fs,
+		profileField{group: g, path: "move_speed_nm_per_s", label: "Move speed (nm/s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.MoveSpeedNMPerS }},
+		profileField{group: g, path: "settle_s", label: "Settle after a move (s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.SettleS }},
+		profileField{group: g, path: "mode_switch_s", label: "Mode switch (s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.ModeSwitchS }},
+	)
+	g = "Drift and registration"
+	fs = append(fs,
+		profileField{group: g, path: "drift.rate_nm_per_min", label: "Drift rate (nm/min)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Drift.RateNMPerMin }},
+		profileField{group: g, path: "drift.rate_sd_nm_per_min", label: "Drift uncertainty, 1σ (nm/min)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Drift.RateSDNMPerMin }},
+		profileField{group: g, path: "drift.registration_s", label: "Registration (s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Drift.RegistrationS }},
+		profileField{group: g, path: "drift.verification_s", label: "Verification image per segment (s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Drift.VerificationS }},
+		profileField{group: g, path: "tolerance_ap_nm", label: "Default AP tolerance (± nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.ToleranceAPNM }},
+		profileField{group: g, path: "tolerance_fe_nm", label: "Default FE tolerance (± nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.ToleranceFENM }},
+		profileField{group: g, path: "hybrid_band_nm", label: "Hybrid AP outline band (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.HybridBandNM }},
+	)
+	g = "Instrument limits"
+	fs = append(fs,
+		profileField{group: g, path: "limits.max_bias_v", label: "Largest bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Limits.MaxBiasV }},
+		profileField{group: g, path: "limits.max_current_a", label: "Largest current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &p.Limits.MaxCurrentA }},
+		profileField{group: g, path: "limits.scan_field_nm", label: "Scan field (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Limits.ScanFieldNM }},
+		profileField{group: g, path: "limits.max_speed_nm_per_s", label: "Largest tip speed (nm/s, 0 = none)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Limits.MaxSpeedNMPS }},
+	)
+	return fs
+}
+
+// formatField prints a stored value in the field's display unit.
+func formatField(f profileField, p *planner.Profile) string {
+	if f.i != nil {
+		return strconv.Itoa(*f.i(p))
+	}
+	return strconv.FormatFloat(*f.f(p)*f.scale, 'g', 6, 64)
+}
+
+// profileEditor is the editor's state: one entry per field over a copy
+// of the profile.
+type profileEditor struct {
+	u       *UI
+	base    planner.Profile // what the entries were filled from
+	path    string
+	fields  []profileField
+	entries []*widget.Entry
+	shown   []string // what each entry showed when filled
+	name    *widget.Entry
+	notes   *widget.Entry
+	apOut   *widget.Check
+	feOut   *widget.Check
+	order   *widget.Select
+	windows *widget.Select
+	msg     *widget.Label
+	dlg     *dialog.CustomDialog
+}
+
+func (u *UI) editProfile() { u.openProfileEditor() }
+
+// openProfileEditor shows the editor and returns it.
+func (u *UI) openProfileEditor() *profileEditor {
+	e := &profileEditor{u: u, fields: profileFields(), path: u.S.ProfilePath}
+	e.name = widget.NewEntry()
+	e.notes = widget.NewEntry()
+	e.apOut = widget.NewCheck("extra outline pass", nil)
+	e.feOut = widget.NewCheck("extra outline pass", nil)
+	e.order = widget.NewSelect([]string{planner.OrderAPFirst, planner.OrderFEFirst}, nil)
+	e.windows = widget.NewSelect([]string{planner.WindowStyleLine, planner.WindowStyleDwell}, nil)
+	e.msg = errorLabel()
+	e.entries = make([]*widget.Entry, len(e.fields))
+	for i := range e.fields {
+		e.entries[i] = widget.NewEntry()
+	}
+	e.fill(u.S.Profile)
+
+	var groups []fyne.CanvasObject
+	groups = append(groups, widget.NewForm(widget.NewFormItem("Name", e.name), widget.NewFormItem("Notes", e.notes),
+		widget.NewFormItem("Write first", e.order), widget.NewFormItem("Open windows by", e.windows)))
+	var form *widget.Form
+	last := ""
+	for i, f := range e.fields {
+		if f.group != last {
+			if form != nil {
+				groups = append(groups, form)
+			}
+			groups = append(groups, heading(f.group))
+			form = widget.NewForm()
+			switch f.group {
+			case "Atomic-precision mode":
+				form.Append("Outline", e.apOut)
+			case "Field-emission mode":
+				form.Append("Outline", e.feOut)
+			}
+			last = f.group
+		}
+		form.Append(f.label, e.entries[i])
+	}
+	groups = append(groups, form)
+	// Two columns of groups so the editor fits a laptop screen.
+	half := (len(groups) + 1) / 2
+	cols := container.NewGridWithColumns(2, container.NewVBox(groups[:half]...), container.NewVBox(groups[half:]...))
+	load := widget.NewButtonWithIcon("Load…", theme.FolderOpenIcon(), e.load)
+	save := widget.NewButtonWithIcon("Save as…", theme.DocumentSaveIcon(), e.saveAs)
+	preset := widget.NewSelect(planner.Presets(), func(name string) {
+		if p, err := presetProfile(name); err == nil {
+			e.fill(p)
+		}
+	})
+	preset.PlaceHolder = "Start from a preset…"
+	top := container.NewVBox(
+		mutedLabel("Tip conditions, dose model, motion, drift and the instrument's limits used for planning. A value outside the limits, or not physical, is refused with a message naming it; nothing changes until every field is valid. Presets: rt room temperature, lt low temperature."),
+		container.NewHBox(load, save, container.New(&fixedWidth{w: 220}, preset)))
+	content := container.NewBorder(top, e.msg, nil, nil, container.NewVScroll(cols))
+	apply := widget.NewButtonWithIcon("Apply", theme.ConfirmIcon(), e.apply)
+	apply.Importance = widget.HighImportance
+	cancel := widget.NewButton("Cancel", func() { e.dlg.Hide() })
+	e.dlg = dialog.NewCustomWithoutButtons("Instrument profile", container.New(&fixedSize{fyne.NewSize(940, 600)}, content), u.Win)
+	e.dlg.SetButtons([]fyne.CanvasObject{cancel, apply})
+	e.dlg.Show()
+	return e
+}
+
+// entry returns the entry of the field with the given JSON path.
+func (e *profileEditor) entry(path string) *widget.Entry {
+	for i, f := range e.fields {
+		if f.path == path {
+			return e.entries[i]
+		}
+	}
+	return nil
+}
+
+// fill shows p in the entries.
+func (e *profileEditor) fill(p planner.Profile) {
+	e.base = p
+	e.name.SetText(p.Name)
+	e.notes.SetText(p.Notes)
+	e.apOut.SetChecked(p.AP.Outline)
+	e.feOut.SetChecked(p.FE.Outline)
+	e.order.SetSelected(p.Order)
+	e.windows.SetSelected(p.WindowStyle)
+	e.shown = make([]string, len(e.fields))
+	for i, f := range e.fields {
+		e.shown[i] = formatField(f, &p)
+		e.entries[i].SetText(e.shown[i])
+	}
+	e.msg.Hide()
+}
+
+// parse returns the profile the entries describe, or an error naming
+// every field that does not parse.
+func (e *profileEditor) parse() (planner.Profile, error) {
+	p := e.base
+	p.Name = strings.TrimSpace(e.name.Text)
+	p.Notes = e.notes.Text
+	p.AP.Outline = e.apOut.Checked
+	p.FE.Outline = e.feOut.Checked
+	p.Order = e.order.Selected
+	p.WindowStyle = e.windows.Selected
+	var bad []string
+	for i, f := range e.fields {
+		text := strings.TrimSpace(e.entries[i].Text)
+		if text == e.shown[i] {
+			// Untouched: keep the exact value, not its rounded display.
+			continue
+		}
+		if f.i != nil {
+			v, err := strconv.Atoi(text)
+			if err != nil {
+				bad = append(bad, fmt.Sprintf("%s / %s: %q is not a whole number", f.group, f.label, text))
+				continue
+			}
+			*f.i(&p) = v
+			continue
+		}
+		v, err := parseNumber(f.label, text)
+		if err != nil {
+			bad = append(bad, fmt.Sprintf("%s / %s: %q is not a number", f.group, f.label, text))
+			continue
+		}
+		*f.f(&p) = v / f.scale
+	}
+	if p.Name == "" {
+		bad = append(bad, "Name: give the profile a name (it is printed on every plan)")
+	}
+	if len(bad) > 0 {
+		return p, errors.New(strings.Join(bad, "\n"))
+	}
+	if err := validateProfile(p); err != nil {
+		return p, e.explain(err)
+	}
+	return p, nil
+}
+
+// explain rewrites the planner's errors, which name JSON paths, with the
+// editor's labels and units.
+func (e *profileEditor) explain(err error) error {
+	byPath := map[string]profileField{}
+	for _, f := range e.fields {
+		byPath[f.path] = f
+	}
+	name := func(path string) string {
+		if f, ok := byPath[path]; ok {
+			return f.group + " / " + f.label
+		}
+		return path
+	}
+	shown := func(path string, v float64) string {
+		if f, ok := byPath[path]; ok && f.scale != 0 {
+			return strconv.FormatFloat(v*f.scale, 'g', 6, 64)
+		}
+		return strconv.FormatFloat(v, 'g', 6, 64)
+	}
+	var pe *planner.ProfileError
+	if errors.As(err, &pe) {
+		var lines []string
+		for _, pr := range pe.Problems {
+			val := fmt.Sprint(pr.Value)
+			if x, ok := pr.Value.(float64); ok {
+				val = shown(pr.Path, x)
+			}
+			lines = append(lines, fmt.Sprintf("%s = %s: %s", name(pr.Path), val, pr.Problem))
+		}
+		return errors.New(strings.Join(lines, "\n"))
+	}
+	var le *planner.LimitError
+	if errors.As(err, &le) {
+		return fmt.Errorf("%s = %s is more than the instrument allows (%s = %s)", name(le.Quantity), shown(le.Quantity, le.Value), name(le.Limit), shown(le.Limit, le.Max))
+	}
+	return err
+}
+
+func (e *profileEditor) apply() {
+	p, err := e.parse()
+	if err != nil {
+		showErr(e.msg, fmt.Errorf("Not applied:\n%w", err))
+		return
+	}
+	e.u.S.SetProfile(p, e.path)
+	e.dlg.Hide()
+	e.u.hintLabel.SetText("Instrument profile " + p.Name + " applied; plan again for its figures.")
+}
+
+func (e *profileEditor) load() {
+	d := dialog.NewFileOpen(func(r fyne.URIReadCloser, err error) {
+		if err != nil || r == nil {
+			if err != nil {
+				dialog.ShowError(err, e.u.Win)
+			}
+			return
+		}
+		path := r.URI().Path()
+		r.Close()
+		p, err := loadProfile(path)
+		if err != nil {
+			dialog.ShowError(fmt.Errorf("could not load %s:\n%w", path, err), e.u.Win)
+			return
+		}
+		e.path = path
+		e.fill(p)
+	}, e.u.Win)
+	d.SetFilter(storage.NewExtensionFileFilter([]string{".json"}))
+	d.Resize(fyne.NewSize(900, 600))
+	d.Show()
+}
+
+// saveAs saves the entries' profile only if it is valid.
+func (e *profileEditor) saveAs() {
+	p, err := e.parse()
+	if err != nil {
+		showErr(e.msg, fmt.Errorf("Not saved:\n%w", err))
+		return
+	}
+	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
+		if err != nil || w == nil {
+			if err != nil {
+				dialog.ShowError(err, e.u.Win)
+			}
+			return
+		}
+		path := w.URI().Path()
+		w.Close()
+		if err := saveProfile(path, p); err != nil {
+			dialog.ShowError(fmt.Errorf("could not save %s:\n%w", path, err), e.u.Win)
+			return
+		}
+		e.path = path
+		e.msg.Hide()
+	}, e.u.Win)
+	d.SetFileName(safeFileName(p.Name) + ".json")
+	d.SetFilter(storage.NewExtensionFileFilter([]string{".json"}))
+	d.Resize(fyne.NewSize(900, 600))
+	d.Show()
 }

@@ -30,7 +30,9 @@ type RunOptions struct {
 	// Width and Height are the window size in device pixels for a
 	// screenshot (default 1600 x 1000).
 	Width, Height int
-	Stderr        io.Writer
+	// Generator is the program name and version for exported reports.
+	Generator string
+	Stderr    io.Writer
 }
 
 // Run opens the main window and returns the process exit status when it
@@ -63,7 +65,7 @@ func Run(o RunOptions) int {
 	a := app.NewWithID(AppID)
 	a.Settings().SetTheme(newLabTheme())
 	w := a.NewWindow(s.Title())
-	opts := Options{}
+	opts := Options{Generator: o.Generator}
 	if o.Screenshot != "" {
 		opts.Autosave, opts.CheckDelay = -1, -1
 	}
@@ -72,7 +74,9 @@ func Run(o RunOptions) int {
 		u.addRecent(path)
 	}
 	if o.Screenshot == "" {
-		w.Resize(fyne.NewSize(1440, 900))
+		// A size that fits a 1280 x 800 laptop screen; the window can be
+		// maximised.
+		w.Resize(fyne.NewSize(1280, 800))
 		u.StartAutosave()
 		u.OfferRecovery()
 		u.scheduleCheck()

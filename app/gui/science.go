@@ -2,11 +2,15 @@ package gui
 
 import (
 	"context"
-	"fmt"
+	"io"
+	"strings"
+	"time"
 
 	"github.com/golang/geo/r2"
 
 	"dimerpath/assets"
+	"dimerpath/export"
+	"dimerpath/internal/atomicfile"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
@@ -74,9 +78,7 @@ func buildPlan(ctx context.Context, d *design.Design, variant string, prof plann
 }
 
 // defaultProfile returns the instrument profile planning starts from.
-func defaultProfile() planner.Profile {
-	return planner.Profile{Format: planner.ProfileFormat, Version: planner.ProfileVersion, Name: "default"}
-}
+func defaultProfile() planner.Profile { return planner.DefaultProfile() }
 
 // loadDesign reads and validates a design file.
 func loadDesign(path string) (*design.Design, error) { return design.Load(path) }
@@ -89,8 +91,50 @@ func demoDesign() (*design.Design, error) {
 	return design.Parse(assets.DemoName, assets.DemoDesign)
 }
 
-// exportPlan writes plan p of d in the given format ("pdf", "svg",
-// "json" or "csv") to path.
-func exportPlan(kind, path string, d *design.Design, p *planner.Plan, prof planner.Profile) error {
-	return fmt.Errorf("exporting %s is not available until the export package lands", kind)
+// ExportSettings are the choices an export needs besides the plan.
+type ExportSettings struct {
+	Paper     export.Paper
+	Generator string // program name and version printed on reports
+	Date      time.Time
 }
+
+// exportPlan writes plan p of d in the format path's extension names
+// (pdf, svg, json or csv), through a temporary file renamed into place.
+// The figures draw the lattice and regions of the plan's variant.
+func exportPlan(ctx context.Context, path string, d *design.Design, p *planner.Plan, es ExportSettings, progress func(string, float64)) error {
+	opt := export.Options{Paper: es.Paper, Date: es.Date, Generator: es.Generator, Progress: progress}
+	if l, err := d.Lay(p.Variant); err == nil {
+		opt.Pattern = export.PatternOf(l)
+	}
+	return export.WriteFile(ctx, path, p, opt)
+}
+
+// exportComparison writes the comparison report of every variant's
+// result to path (.pdf or .svg).
+func exportComparison(ctx context.Context, path string, res []export.VariantResult, es ExportSettings) error {
+	opt := export.Options{Paper: es.Paper, Date: es.Date, Generator: es.Generator}
+	return atomicfile.Write(path, 0o644, func(w io.Writer) error {
+		if strings.HasSuffix(strings.ToLower(path), ".svg") {
+			return export.WriteComparisonSVG(w, res, opt)
+		}
+		return export.WriteComparisonPDF(ctx, w, res, opt)
+	})
+}
+
+// validateProfile reports every field of p that is not physical, then
+// the first tip condition beyond the profile's own instrument limits.
+func validateProfile(p planner.Profile) error {
+	if err := p.Validate(); err != nil {
+		return err
+	}
+	return p.CheckLimits(nil)
+}
+
+// loadProfile reads and validates an instrument-profile file.
+func loadProfile(path string) (planner.Profile, error) { return planner.LoadProfile(path) }
+
+// saveProfile writes a valid profile atomically to path.
+func saveProfile(path string, p planner.Profile) error { return planner.SaveProfile(path, p) }
+
+// presetProfile returns the built-in profile of that name.
+func presetProfile(name string) (planner.Profile, error) { return planner.Preset(name) }

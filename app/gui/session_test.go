@@ -291,3 +291,36 @@ func TestFiducialsAndTerraces(t *testing.T) {
 		t.Error("undo did not remove the terrace")
 	}
 }
+
+func TestMarqueeSelectsAndDeleteRemoves(t *testing.T) {
+	s := newTestSession(t)
+	s.SetTool(ToolSelect)
+	// A box around the island (90..110 nm) but not the lead (row 100,
+	// x 38..50 nm).
+	s.Press(r2.Point{X: 85, Y: 85})
+	s.Drag(r2.Point{X: 115, Y: 115})
+	if p := s.Preview(); p == nil || !p.Rect {
+		t.Error("no marquee preview while dragging")
+	}
+	s.Release(r2.Point{X: 115, Y: 115})
+	if got := s.Selection(); len(got) != 1 || got[0] != 0 {
+		t.Fatalf("marquee selected %v, want [0] (the island)", got)
+	}
+	// Clicking the lead selects it instead; clicking bare lattice clears.
+	s.Click(s.Surface().Position(lattice.Site{Row: 100, Dimer: 110}), 1)
+	if got := s.Selection(); len(got) != 1 || got[0] != 1 {
+		t.Fatalf("click on the lead selected %v, want [1]", got)
+	}
+	s.Click(r2.Point{X: 180, Y: 20}, 1)
+	if len(s.Selection()) != 0 {
+		t.Errorf("click on bare lattice left %v selected", s.Selection())
+	}
+	s.Select(0, 1)
+	s.DeleteRegions(s.Selection()...)
+	if n := len(s.Variant().Regions); n != 0 {
+		t.Errorf("%d regions left after deleting both", n)
+	}
+	if s.UndoLabel() != "delete 2 regions" {
+		t.Errorf("undo label %q", s.UndoLabel())
+	}
+}

@@ -177,9 +177,11 @@ func strokeLabel(t Tool) string {
 // Hover tells the session where the pointer is (nm), for previews.
 func (s *Session) Hover(p r2.Point) {
 	s.hoverAt = hoverState{p, true}
-	switch s.Tool {
-	case ToolPolygon, ToolLine, ToolTerrace, ToolSite, ToolDimer, ToolEraser:
-		s.notify(ChangePreview)
+	switch {
+	case s.Drawing():
+		s.notify(ChangePreview) // the rubber band to the pointer
+	case s.Opts.BrushNM > 0 && (s.Tool == ToolSite || s.Tool == ToolDimer || s.Tool == ToolEraser):
+		s.notify(ChangePreview) // the brush outline
 	}
 }
 

@@ -33,6 +33,9 @@ type Options struct {
 	// CheckDelay is how long after an edit the design rules are checked
 	// again; 0 takes 400 ms, a negative value checks only on request.
 	CheckDelay time.Duration
+	// Generator is the program name and version printed on exported
+	// reports, e.g. "dimerpath 0.1.0".
+	Generator string
 }
 
 // UI is the main window: the views of one Session and the actions that
@@ -85,6 +88,10 @@ type UI struct {
 	checkTimer   *time.Timer
 	stopAutosave chan struct{}
 	lastAutosave *snapshot
+
+	// jobDone, when set (by tests), is called after a background plan or
+	// comparison has reported back.
+	jobDone func()
 }
 
 // New builds the main window's content in w for session s and wires the
@@ -162,7 +169,7 @@ func (u *UI) changed(c Change) {
 	if c&ChangeTool != 0 {
 		u.refreshTools()
 	}
-	if c&(ChangeRegions|ChangePlan|ChangeFindings|ChangeVariants|ChangeHistory) != 0 {
+	if c&(ChangeRegions|ChangePlan|ChangeFindings|ChangeVariants|ChangeHistory|ChangeTerraces|ChangeFiducials) != 0 {
 		u.refreshLegend()
 	}
 	if c&(ChangeFile|ChangeHistory) != 0 {
@@ -182,7 +189,7 @@ func (u *UI) changed(c Change) {
 
 func (u *UI) build() {
 	u.cursorLabel = widget.NewLabel("")
-	u.cursorLabel.TextStyle.Monospace = true
+	u.cursorLabel.Truncation = fyne.TextTruncateEllipsis
 	u.hintLabel = widget.NewLabel("")
 	u.hintLabel.Truncation = fyne.TextTruncateEllipsis
 	u.progress = widget.NewProgressBar()
@@ -239,8 +246,8 @@ func (u *UI) content() fyne.CanvasObject {
 		widget.NewButtonWithIcon("", theme.ZoomInIcon(), func() { u.View.ZoomBy(1.5) }),
 	)
 	left := container.NewVScroll(u.toolPalette())
-	right := container.New(&fixedWidth{w: 350}, u.tabs)
-	status := container.NewBorder(nil, nil, container.New(&fixedWidth{w: 470}, u.cursorLabel), u.progressBox, u.hintLabel)
+	right := container.New(&fixedWidth{w: 350}, container.New(layout.NewCustomPaddedLayout(0, 0, 0, 6), u.tabs))
+	status := container.NewBorder(nil, nil, container.New(&fixedWidth{w: 520}, u.cursorLabel), u.progressBox, u.hintLabel)
 	viewFrame := container.NewStack(canvas.NewRectangle(colOutside), u.View)
 	return container.NewBorder(
 		container.NewVBox(toolbar, widget.NewSeparator()),
@@ -294,6 +301,14 @@ func (u *UI) toolPalette() fyne.CanvasObject {
 		u.refreshLegend()
 	})
 	u.findingsCheck.SetChecked(true)
+	legend := widget.NewCheck("Legend", func(on bool) {
+		if on {
+			u.View.legend.Show()
+		} else {
+			u.View.legend.Hide()
+		}
+	})
+	legend.SetChecked(true)
 	return container.NewVBox(
 		heading("Tools"),
 		container.NewGridWithColumns(1, buttons...),
@@ -302,7 +317,7 @@ func (u *UI) toolPalette() fyne.CanvasObject {
 		u.toolOptions,
 		widget.NewSeparator(),
 		heading("Show"),
-		u.routeCheck, u.findingsCheck,
+		u.routeCheck, u.findingsCheck, legend,
 	)
 }
 
@@ -340,7 +355,9 @@ func (u *UI) optionEntry(label string, value string, apply func(string) error) f
 			msg.Hide()
 		}
 	}
-	return container.NewVBox(widget.NewLabel(label), e, msg)
+	l := widget.NewLabel(label)
+	l.Wrapping = fyne.TextWrapWord
+	return container.NewVBox(l, e, msg)
 }
 
 func (u *UI) setOpt(f func(o *ToolOptions) error) error {
@@ -380,7 +397,7 @@ func (u *UI) optionsFor(t Tool) []fyne.CanvasObject {
 	}
 	switch t {
 	case ToolSite, ToolDimer, ToolEraser:
-		return []fyne.CanvasObject{num("Brush radius (nm, 0 = one at a time)", o.BrushNM, func(o *ToolOptions, v float64) { o.BrushNM = v })}
+		return []fyne.CanvasObject{num("Brush radius, nm (0: one at a time)", o.BrushNM, func(o *ToolOptions, v float64) { o.BrushNM = v })}
 	case ToolLine:
 		return []fyne.CanvasObject{num("Line width (nm)", o.LineWidthNM, func(o *ToolOptions, v float64) { o.LineWidthNM = v })}
 	case ToolWindow:
@@ -467,7 +484,7 @@ func (u *UI) refreshLegend() {
 		for i := 0; i < min(len(p.Segments), 6); i++ {
 			segs.Add(swatch(SegmentColor(i), 8, 12))
 		}
-		title := fmt.Sprintf("strokes, by segment (%d)", len(p.Segments))
+		title := fmt.Sprintf("strokes by segment (%d)", len(p.Segments))
 		if stale {
 			title += " — out of date"
 		}
@@ -477,6 +494,13 @@ func (u *UI) refreshLegend() {
 	}
 	if len(u.S.Design().Fiducials) > 0 {
 		rows = append(rows, legendRow(legendText("⊕"), "fiducial mark"))
+	}
+	if surf := u.S.Surface(); surf != nil && len(surf.Terraces) > 1 {
+		rows = append(rows, widget.NewSeparator())
+		for i, t := range surf.Terraces {
+			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: rows along %s", t.Name, t.Rows)))
+		}
+		rows = append(rows, legendRow(swatch(colStep, 14, 2), "step edge"))
 	}
 	if f, _ := u.S.Findings(); len(f) > 0 && u.View.Opts.Findings {
 		rows = append(rows, legendRow(swatch(colError, 12, 12), "design-rule error"))
@@ -495,15 +519,15 @@ func (u *UI) showCursor(p r2.Point, ok bool) {
 		u.cursorLabel.SetText("")
 		return
 	}
-	text := fmt.Sprintf("x %9.3f nm  y %9.3f nm", p.X, p.Y)
+	text := fmt.Sprintf("(%.3f, %.3f) nm", p.X, p.Y)
 	surf := u.S.Surface()
 	if site, _, on := surf.Snap(p); on && surf.Field.ContainsPoint(p) {
-		text += fmt.Sprintf("   %s row %d dimer %d side %d", surf.Terraces[site.Terrace].Name, site.Row, site.Dimer, site.Side)
+		text += fmt.Sprintf("  %s row %d dimer %d side %d", surf.Terraces[site.Terrace].Name, site.Row, site.Dimer, site.Side)
 		if i := u.S.RegionAt(p); i >= 0 {
-			text += "  · " + u.S.Variant().Regions[i].Name
+			text += " · " + u.S.Variant().Regions[i].Name
 		}
 	} else {
-		text += "   outside the field"
+		text += "  outside the field"
 	}
 	u.cursorLabel.SetText(text)
 }

@@ -150,9 +150,13 @@ func (c *checker) windowLattice() {
 					w, surf.Terraces[w.Terrace].Name, w.Template.Dimers), c.name(i))
 				continue
 			}
-			win := lattice.NewSiteSet()
-			w.AddTo(win)
-			if kept := win.Clone().Intersect(rl.Sites).Count(); kept < w.Template.Sites() {
+			kept := 0
+			for i := 2 * w.FirstDimer; i < 2*(w.LastDimer()+1); i++ {
+				if rl.Sites.Contains(lattice.SiteAt(w.Terrace, w.Row, i)) {
+					kept++
+				}
+			}
+			if kept < w.Template.Sites() {
 				c.add(RuleWindow, SeverityError, at, fmt.Sprintf("window %v is not whole: %d of its %d sites are erased", w, w.Template.Sites()-kept, w.Template.Sites()), c.name(i))
 			}
 		}

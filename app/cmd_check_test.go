@@ -1,0 +1,90 @@
+package app
+
+import (
+	"bytes"
+	"strings"
+	"testing"
+)
+
+func run(args ...string) (code int, stdout, stderr string) {
+	var out, errb bytes.Buffer
+	code = Main(args, strings.NewReader(""), &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+func TestCheckCommand(t *testing.T) {
+	tests := []struct {
+		name     string
+		args     []string
+		code     int
+		stdout   []string
+		stderr   []string
+		noStdout bool
+	}{
+		{"demo passes", []string{"check", "../assets/demo.json"}, ExitOK,
+			[]string{"2 variant(s) checked (gap-9, gap-12-source): 0 error(s), 0 warning(s)"}, nil, false},
+		{"flag before the file", []string{"check", "--variant", "gap-12-source", "../assets/demo.json"}, ExitOK,
+			[]string{"1 variant(s) checked (gap-12-source)"}, nil, false},
+		{"floating gate", []string{"check", "../testdata/designs/floating-gate.json"}, ExitFindings,
+			[]string{"gap-9: error   floating       [gate-island]  at (1100.1, 1000.0) nm: gate region is floating", "1 error(s)"}, nil, false},
+		{"unknown variant", []string{"check", "../assets/demo.json", "--variant", "gap-10"}, ExitFailure,
+			nil, []string{`has no variant "gap-10" (it has "gap-9", "gap-12-source")`}, true},
+		{"malformed", []string{"check", "../testdata/designs/nan-point.json"}, ExitFailure, nil, []string{
+			"nan-point.json: variants[1].regions[1].shapes[0].points_nm[1][0]: NaN is not a finite number",
+			"nan-point.json: variants[1].regions[2].painted.sites: 1000000000 is out of range",
+			"nan-point.json: field.height_nm: -300 must be more than 0",
+		}, true},
+		{"truncated", []string{"check", "../testdata/designs/truncated.json"}, ExitFailure, nil, []string{"truncated.json: the file ends before the design does"}, true},
+		{"missing file", []string{"check", "no-such.json"}, ExitFailure, nil, []string{"no-such.json: no such file"}, true},
+		{"no file", []string{"check"}, ExitFailure, nil, []string{"want one design file"}, true},
+		{"bad flag", []string{"check", "--colour", "x.json"}, ExitFailure, nil, []string{"flag provided but not defined: -colour"}, true},
+		{"help", []string{"check", "--help"}, ExitOK, []string{"Usage: dimerpath check DESIGN.json [--variant NAME]", "Exit status"}, nil, false},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			code, out, errs := run(tc.args...)
+			if code != tc.code {
+				t.Errorf("exit %d, want %d\nstdout:\n%s\nstderr:\n%s", code, tc.code, out, errs)
+			}
+			for _, w := range tc.stdout {
+				if !strings.Contains(out, w) {
+					t.Errorf("stdout lacks %q:\n%s", w, out)
+				}
+			}
+			for _, w := range tc.stderr {
+				if !strings.Contains(errs, w) {
+					t.Errorf("stderr lacks %q:\n%s", w, errs)
+				}
+			}
+			if tc.noStdout && out != "" {
+				t.Errorf("stdout not empty on failure:\n%s", out)
+			}
+		})
+	}
+}
+
+func TestInfoCommand(t *testing.T) {
+	code, out, errs := run("info", "../assets/demo.json", "--variant", "gap-12-source")
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, w := range []string{
+		"Kestrel-7 donor-pair sensor",
+		"upper: rows along y, one step from lower, offset (0.000, 0.192) nm",
+		"F-east at (1700, 1000) nm",
+		"P: P, 3 dimers (6 H sites), single-donor probability 0.63",
+		"Variant gap-12-source",
+		"sensor-island    device  ap    -        ±0.20 nm   1560",
+		"tunnel gap sensor-island – source-lead: 9.22 nm (12.0 dimer rows)",
+	} {
+		if !strings.Contains(out, w) {
+			t.Errorf("info lacks %q:\n%s", w, out)
+		}
+	}
+	if strings.Contains(out, "Variant gap-9") {
+		t.Errorf("--variant gap-12-source also printed gap-9")
+	}
+	if code, _, errs := run("info", "../testdata/designs/truncated.json"); code != ExitFailure || errs == "" {
+		t.Errorf("info on a truncated file: exit %d, stderr %q", code, errs)
+	}
+}

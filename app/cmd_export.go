@@ -1,0 +1,199 @@
+package app
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"flag"
+	"fmt"
+	"os"
+	"slices"
+	"strings"
+	"time"
+
+	"dimerpath/export"
+	"dimerpath/lattice/design"
+	"dimerpath/planner"
+)
+
+func init() {
+	Register(&Command{
+		Name:    "export",
+		Usage:   "export DESIGN.json|PLAN.json -o FILE.pdf|.svg|.json|.csv [--variant NAME] [--profile P.json] [--paper a4|letter] [--seed N] [--date YYYY-MM-DD]",
+		Summary: "write a plan as the operator's PDF, an SVG, the plan JSON or the action CSV",
+		Help: `Plans the variant (default: the first) of DESIGN.json with the instrument
+profile and writes it in the format the output file's extension names:
+  .pdf   the operator's printed plan (cover, pattern and route, segment table
+         with tick boxes, time and yield, zoomed atomic-precision areas)
+  .svg   the pattern and route, viewBox in nm
+  .json  the whole plan, machine-readable (README "Plan files")
+  .csv   one row per tip action, in order
+Given a plan file written with -o PLAN.json instead of a design, it exports
+that plan without planning again (the figures then show no lattice).
+
+The caution is printed on stderr before the file is written. The file is
+written to a temporary file and renamed into place: an export that fails or
+is interrupted (Ctrl-C) leaves no partial file and any earlier file as it was.
+Exit status 0 written, 2 anything else.`,
+		Flags: func(fs *flag.FlagSet) func(Env, []string) int {
+			var fl exportFlags
+			fl.report.declare(fs, "output `FILE` (.pdf, .svg, .json or .csv)")
+			fs.StringVar(&fl.variant, "variant", "", "plan the variant `NAME` (default: the first)")
+			fs.StringVar(&fl.profile, "profile", "", "instrument profile: a file `P.json`, or a built-in preset rt or lt (default: rt)")
+			fs.Int64Var(&fl.seed, "seed", 1, "seed of the plan's random choices (same design, profile and seed: same plan)")
+			return func(env Env, args []string) int {
+				fl.set = map[string]bool{}
+				fs.Visit(func(f *flag.Flag) { fl.set[f.Name] = true })
+				return runExport(env, args, fl)
+			}
+		},
+	})
+}
+
+type exportFlags struct {
+	report           reportFlags
+	variant, profile string
+	seed             int64
+	set              map[string]bool // flags given on the command line
+}
+
+func runExport(env Env, args []string, fl exportFlags) int {
+	fail := func(format string, a ...any) int {
+		fmt.Fprintf(env.Stderr, "dimerpath export: "+format+"\n", a...)
+		return ExitFailure
+	}
+	if len(args) != 1 {
+		return fail("want one design or plan file, got %d (dimerpath export --help)", len(args))
+	}
+	if fl.report.out == "" {
+		return fail("-o FILE is required: the output file, .pdf, .svg, .json or .csv")
+	}
+	// Refuse a bad output name or flag before any planning.
+	opt, err := fl.report.options(export.FormatPDF, export.FormatSVG, export.FormatJSON, export.FormatCSV)
+	if err != nil {
+		return fail("%v", err)
+	}
+	in := args[0]
+	data, err := os.ReadFile(in)
+	if err != nil {
+		return fail("%v", err)
+	}
+	ctx, stop := interruptible()
+	defer stop()
+
+	var p *planner.Plan
+	if isPlanFile(data) {
+		for _, name := range []string{"variant", "profile", "seed"} {
+			if fl.set[name] {
+				return fail("%s is a plan file: --%s applies only when planning a design", in, name)
+			}
+		}
+		if p, err = export.ReadPlanJSON(bytes.NewReader(data)); err != nil {
+			if pe, ok := errors.AsType[*export.PlanError](err); ok {
+				pe.File = in
+			}
+			return fail("%v", err)
+		}
+	} else {
+		var pat *export.Pattern
+		if p, pat, err = planDesign(ctx, env, in, data, fl); err != nil {
+			return fail("%v", err)
+		}
+		opt.Pattern = pat
+	}
+
+	fmt.Fprintln(env.Stderr, planner.Caution)
+	if err := export.WriteFile(ctx, fl.report.out, p, opt); err != nil {
+		if errors.Is(err, context.Canceled) {
+			return fail("interrupted: %s was not written", fl.report.out)
+		}
+		return fail("%v", err)
+	}
+	size := ""
+	if st, err := os.Stat(fl.report.out); err == nil {
+		size = fmt.Sprintf(", %d bytes", st.Size())
+	}
+	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, expected %s%s)\n",
+		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), fmtDuration(p.TotalS), size)
+	return ExitOK
+}
+
+// isPlanFile reports whether data is a dimerpath plan file rather than a
+// design (by its "format" field).
+func isPlanFile(data []byte) bool {
+	var head struct {
+		Format string `json:"format"`
+	}
+	return json.Unmarshal(data, &head) == nil && head.Format == export.PlanFormat
+}
+
+// planDesign plans the chosen variant of the design in data, reporting
+// the planning stages on stderr when it takes a while, and returns the
+// plan and its pattern.
+func planDesign(ctx context.Context, env Env, name string, data []byte, fl exportFlags) (*planner.Plan, *export.Pattern, error) {
+	d, err := design.Parse(name, data)
+	if err != nil {
+		return nil, nil, err
+	}
+	layout, err := d.Lay(fl.variant)
+	if err != nil {
+		return nil, nil, fmt.Errorf("%s: %w", name, err)
+	}
+	prof, err := loadProfileArg(fl.profile)
+	if err != nil {
+		return nil, nil, err
+	}
+	prog := newProgress(env.Stderr, "export")
+	p, err := planner.Build(ctx, d, layout.Variant.Name, prof, planner.Options{Seed: fl.seed, Progress: prog.report})
+	prog.done()
+	if err != nil {
+		return nil, nil, fmt.Errorf("%s, variant %s: %w", name, layout.Variant.Name, err)
+	}
+	return p, export.PatternOf(layout), nil
+}
+
+// reportFlags are the -o, --paper and --date flags of the commands that
+// write files (export, compare).
+type reportFlags struct {
+	out, paper, date string
+}
+
+func (r *reportFlags) declare(fs *flag.FlagSet, outHelp string) {
+	fs.StringVar(&r.out, "o", "", outHelp)
+	fs.StringVar(&r.paper, "paper", "a4", "PDF page size: `a4` or letter")
+	fs.StringVar(&r.date, "date", "", "date printed on the PDF, `YYYY-MM-DD` (default: today)")
+}
+
+// options checks the flags, the output's format among formats, and
+// returns the export options they give.
+func (r *reportFlags) options(formats ...export.Format) (export.Options, error) {
+	opt := export.Options{Date: time.Now(), Generator: "dimerpath " + Version}
+	var err error
+	if r.out != "" {
+		f, err := export.FormatFromPath(r.out)
+		if err != nil {
+			return opt, err
+		}
+		if !slices.Contains(formats, f) {
+			return opt, fmt.Errorf("-o %s: %w: this command writes %s", r.out, export.ErrFormat, formatList(formats))
+		}
+	}
+	if opt.Paper, err = export.ParsePaper(r.paper); err != nil {
+		return opt, fmt.Errorf("--paper: %w", err)
+	}
+	if r.date != "" {
+		if opt.Date, err = time.Parse("2006-01-02", r.date); err != nil {
+			return opt, fmt.Errorf("--date %q: want YYYY-MM-DD", r.date)
+		}
+	}
+	return opt, nil
+}
+
+func formatList(fs []export.Format) string {
+	var names []string
+	for _, f := range fs {
+		names = append(names, "."+string(f))
+	}
+	return strings.Join(names, " or ")
+}

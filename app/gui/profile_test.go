@@ -1,0 +1,73 @@
+package gui
+
+import (
+	"math"
+	"strings"
+	"testing"
+
+	"dimerpath/planner"
+)
+
+func TestProfileEditorRefusesBadValues(t *testing.T) {
+	u, _ := newTestUI(t, nil)
+	before := u.S.Profile
+	e := u.openProfileEditor()
+	cur := e.entry("ap.current_a")
+	if cur == nil {
+		t.Fatal("no AP current field")
+	}
+	// The default AP current, shown in nA.
+	if got, want := cur.Text, formatField(e.fields[1], &before); got != want {
+		t.Fatalf("AP current shows %q, want %q", got, want)
+	}
+
+	cases := []struct {
+		name, text, msg string
+	}{
+		{"not a number", "two", "not a number"},
+		{"negative", "-1", "positive"},
+		{"beyond the limit", "1e6", "more than the instrument allows (Instrument limits / Largest current (nA) = "},
+	}
+	for _, c := range cases {
+		cur.SetText(c.text)
+		e.apply()
+		if e.msg.Hidden || !strings.Contains(e.msg.Text, c.msg) {
+			t.Errorf("%s (%q): message %q (hidden %v), want one containing %q", c.name, c.text, e.msg.Text, e.msg.Hidden, c.msg)
+		}
+		if u.S.Profile != before {
+			t.Fatalf("%s: the profile changed although Apply was refused", c.name)
+		}
+	}
+	// The refusal names the field as the editor labels it.
+	cur.SetText("-1")
+	e.apply()
+	if !strings.Contains(e.msg.Text, "Atomic-precision mode / Setpoint current (nA) = -1") {
+		t.Errorf("message %q does not name the field", e.msg.Text)
+	}
+
+	cur.SetText("0.05")
+	e.apply()
+	if got := u.S.Profile.AP.CurrentA; math.Abs(got-0.05e-9) > 1e-21 {
+		t.Errorf("after a valid Apply the AP current is %g A, want 5e-11 A", got)
+	}
+	if err := u.S.Profile.Validate(); err != nil {
+		t.Errorf("applied profile does not validate: %v", err)
+	}
+	if _, stale := u.S.Plan(); stale {
+		t.Error("no plan, so none can be stale")
+	}
+}
+
+func TestProfilePresetFillsEditor(t *testing.T) {
+	u, _ := newTestUI(t, nil)
+	e := u.openProfileEditor()
+	lt, err := planner.Preset(planner.PresetLowTemp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	e.fill(lt)
+	e.apply()
+	if u.S.Profile.Drift.RateNMPerMin != lt.Drift.RateNMPerMin || u.S.Profile.Name != lt.Name {
+		t.Errorf("applied %+v, want the low-temperature preset", u.S.Profile.Drift)
+	}
+}

@@ -1,0 +1,82 @@
+package export
+
+import (
+	"math"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+func TestClockAndDuration(t *testing.T) {
+	for _, tc := range []struct {
+		s          float64
+		clock, dur string
+	}{
+		{0, "0:00:00", "0.00 s"},
+		{0.5, "0:00:01", "0.50 s"},
+		{59.96, "0:01:00", "60.0 s"},
+		{61, "0:01:01", "1 min 01 s"},
+		{3599.4, "0:59:59", "59 min 59 s"},
+		{3600, "1:00:00", "1 h 00 min"},
+		{100000, "27:46:40", "27 h 47 min"},
+	} {
+		if got := clock(tc.s); got != tc.clock {
+			t.Errorf("clock(%g) = %q, want %q", tc.s, got, tc.clock)
+		}
+		if got := duration(tc.s); got != tc.dur {
+			t.Errorf("duration(%g) = %q, want %q", tc.s, got, tc.dur)
+		}
+	}
+}
+
+// parseE reads back the e-notation the formatters print (with U+2212).
+func parseE(s string) (float64, error) {
+	return strconv.ParseFloat(strings.ReplaceAll(s, "−", "-"), 64)
+}
+
+func TestSigAndPow10ReadBack(t *testing.T) {
+	for _, v := range []float64{1, 0.614, 6.2e-4, 123456, 1.5e-9, 2.84e16, -3.25} {
+		got, err := parseE(sig(v, 3))
+		if err != nil || math.Abs(got-v) > 0.006*math.Abs(v) {
+			t.Errorf("sig(%g, 3) = %q", v, sig(v, 3))
+		}
+	}
+	// 10^l for exponents float64 can hold, checked against math.Pow10.
+	for _, l := range []float64{-0.5, -3, -17.25, -250.9} {
+		got, err := parseE(pow10(l))
+		if want := math.Pow(10, l); err != nil || math.Abs(got-want) > 0.05*want {
+			t.Errorf("pow10(%g) = %q, want about %g", l, pow10(l), want)
+		}
+	}
+	// Beyond float64: the exponent is still right (16 windows at 0.97 per
+	// device is 0.614; 10^5 windows give 10^(10^5·log10 0.97)).
+	l := 1e5 * math.Log10(0.97)
+	if got := pow10(l); !strings.HasSuffix(got, "e−1323") {
+		t.Errorf("pow10(%g) = %q, want ...e−1323", l, got)
+	}
+}
+
+func TestNiceSteps(t *testing.T) {
+	for _, tc := range []struct {
+		span float64
+		n    int
+		want float64
+	}{{100, 5, 20}, {7, 5, 2}, {0.003, 3, 0.001}} {
+		if got := niceStep(tc.span, tc.n); math.Abs(got-tc.want) > 1e-12 {
+			t.Errorf("niceStep(%g, %d) = %g, want %g", tc.span, tc.n, got, tc.want)
+		}
+	}
+	for _, tc := range []struct {
+		span float64
+		want float64
+	}{{50, 10}, {1000, 300}, {4000, 900}, {20000, 7200}, {1e6, 259200}} {
+		if got := niceTimeStep(tc.span, 5); got != tc.want {
+			t.Errorf("niceTimeStep(%g, 5) = %g, want %g", tc.span, got, tc.want)
+		}
+	}
+	for _, span := range []float64{0, 5e-324, math.MaxFloat64} {
+		if got := niceStep(span, 5); !(got > 0) || math.IsInf(got, 0) {
+			t.Errorf("niceStep(%g) = %g: axis loops need a positive finite step", span, got)
+		}
+	}
+}

@@ -1,0 +1,1090 @@
+package planner
+
+import (
+	"cmp"
+	"fmt"
+	"math"
+	"slices"
+	"sort"
+
+	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice"
+)
+
+// CoverageRegion is one region as the coverage check sees it: its name
+// (matched against Stroke.Region) and its sites.
+type CoverageRegion struct {
+	Name  string
+	Sites *lattice.SiteSet
+}
+
+// coverageNeglect is the share of the clearing dose below which one
+// stroke segment's contribution to a site is left out of the sum.
+const coverageNeglect = 0.01
+
+// coverageExamples is the number of uncovered and overcleared sites the
+// check describes in Coverage.Issues.
+const coverageExamples = 6
+
+// CheckCoverage proves, independently of how the strokes were made, that
+// they clear every site of the regions and nothing outside them beyond
+// the edge allowance. It rasterises the strokes' footprints from their
+// geometry alone: each straight piece of a stroke's path delivers the
+// mode's dose passes·λ with a Gaussian footprint of the width model's σ,
+// so a site at along-distance s and across-distance d from a piece of
+// length L gets (passes·λ/λ_thr)·exp(-d²/2σ²)·[Φ((L-s)/σ) - Φ(-s/σ)] of
+// the clearing dose, summed over every piece of every stroke (pieces
+// below 1 % of it are neglected); a site clears at 1 or more. This is
+// exactly the width model for a long line: it clears out to w(λ)/2. A
+// dwell clears the one site it is parked on (within 0.05 nm).
+//
+// A painted site that does not clear is uncovered. A cleared site that
+// lies in no region is overcleared unless a site of a region whose
+// strokes dose it lies within that stroke mode's EdgeAllowanceNM.
+//
+// The sum is never taken site by site over a region: a range of sites
+// (site lines x dimers of one terrace) is bounded from the pieces that
+// reach it (a piece parallel or square to the rows is a product of two
+// one-peaked factors; a slanted one is bounded by the range's corners),
+// classified at once when the bounds agree, and halved along the side
+// that leaves them furthest apart otherwise, down to single sites dosed
+// exactly. Only sites near a clearing edge are dosed one by one, and the
+// sites of a decided range are visited a 64-bit word at a time. Cost:
+// O(pieces · depth + sites near clearing edges + words of the painted
+// rows + overclearing candidates).
+func CheckCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) Coverage {
+	ck := newCoverageCheck(surf, regions, strokes, &prof)
+	ck.run()
+	return ck.cov
+}
+
+// piece is one straight piece of a stroke's path as seen from one
+// terrace: coordinates are along and across that terrace's rows, from its
+// lattice offset. A piece parallel to the rows lies at across c from
+// along a0 to a1; one square to them at along c from across a0 to a1;
+// any other starts at (pu, py) with unit direction (du, dy) and length L.
+type piece struct {
+	kind      uint8
+	stroke    int32
+	ratio     float64 // delivered dose over the clearing threshold
+	sigma     float64
+	c, a0, a1 float64
+	pu, py    float64
+	du, dy, L float64
+	uLo, uHi  float64 // the box beyond which the piece gives less than the neglect share
+	yLo, yHi  float64
+}
+
+const (
+	pieceParallel = iota
+	pieceSquare
+	pieceSlanted
+)
+
+// band is the unimodal factor Φ((hi-x)/σ) - Φ((lo-x)/σ): the share of a
+// Gaussian of width σ centred at x that falls on [lo, hi]. Far beyond an
+// end (8σ) that end's term is 0 or 1 to within 1e-15 and is skipped.
+func band(lo, hi, sigma, x float64) float64 {
+	a, b := (lo-x)/sigma, (hi-x)/sigma
+	switch {
+	case a < -8 && b > 8:
+		return 1
+	case a < -8:
+		return normalCDF(b)
+	case b > 8:
+		return 1 - normalCDF(a)
+	}
+	return normalCDF(b) - normalCDF(a)
+}
+
+func gauss(d, sigma float64) float64 { x := d / sigma; return math.Exp(-x * x / 2) }
+
+// uFactor and yFactor split a parallel or square piece's dose into a
+// factor of the along position and one of the across position.
+func (p *piece) uFactor(u float64) float64 {
+	if p.kind == pieceParallel {
+		return band(p.a0, p.a1, p.sigma, u)
+	}
+	return gauss(u-p.c, p.sigma)
+}
+
+func (p *piece) yFactor(y float64) float64 {
+	if p.kind == pieceParallel {
+		return gauss(y-p.c, p.sigma)
+	}
+	return band(p.a0, p.a1, p.sigma, y)
+}
+
+// uPeak and yPeak are where the factors peak.
+func (p *piece) uPeak() float64 {
+	if p.kind == pieceParallel {
+		return (p.a0 + p.a1) / 2
+	}
+	return p.c
+}
+
+func (p *piece) yPeak() float64 {
+	if p.kind == pieceParallel {
+		return p.c
+	}
+	return (p.a0 + p.a1) / 2
+}
+
+// at returns the piece's dose share at (u, y).
+func (p *piece) at(u, y float64) float64 {
+	if p.kind != pieceSlanted {
+		return p.ratio * p.uFactor(u) * p.yFactor(y)
+	}
+	s := (u-p.pu)*p.du + (y-p.py)*p.dy
+	x := (y-p.py)*p.du - (u-p.pu)*p.dy
+	return p.ratio * gauss(x, p.sigma) * band(0, p.L, p.sigma, s)
+}
+
+type coverageCheck struct {
+	surf    *lattice.Surface
+	prof    *Profile
+	regions []CoverageRegion
+	strokes []Stroke
+	region  []int // stroke -> region index, -1 when unknown
+	painted *lattice.SiteSet
+	dwelled *lattice.SiteSet
+	pieces  [][]piece            // per terrace
+	grid    *terraceGrid         // nil on a one-terrace surface
+	exist   [][]*[]span          // terrace -> row -> where its dimers exist (nil: not yet)
+	allowed map[[2]int][]*[]span // region, terrace -> row -> allowed spans (nil: not yet)
+	rows    map[[2]int][][]span  // region, terrace -> row -> run extents
+	arena   []float64            // cached factors of decide's nested ranges
+	ptrs    []*piece             // active lists of decide's nested ranges
+	spanBuf []span               // scratch for allowedSpans
+	cov     Coverage
+	nUnc    int
+	nOver   int
+}
+
+func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof *Profile) *coverageCheck {
+	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: strokes,
+		painted: lattice.NewSiteSet(), dwelled: lattice.NewSiteSet(),
+		exist: make([][]*[]span, len(surf.Terraces)), allowed: map[[2]int][]*[]span{}, rows: map[[2]int][][]span{}}
+	for t := range surf.Terraces {
+		ck.exist[t] = make([]*[]span, surf.RowCount(t))
+	}
+	byName := map[string]int{}
+	for i, r := range regions {
+		byName[r.Name] = i
+		if r.Sites != nil {
+			ck.painted.Union(r.Sites)
+		}
+	}
+	if len(surf.Terraces) > 1 {
+		ck.grid = newTerraceGrid(surf)
+	}
+	ck.pieces = make([][]piece, len(surf.Terraces))
+	ck.region = make([]int, len(strokes))
+	for i := range strokes {
+		st := &strokes[i]
+		ri, ok := byName[st.Region]
+		if !ok {
+			ri = -1
+		}
+		ck.region[i] = ri
+		if st.Kind == StrokeDwell {
+			if len(st.Path) > 0 {
+				if site, d, ok := surf.Snap(st.Path[0]); ok && d <= 0.05 {
+					ck.dwelled.Add(site)
+				}
+			}
+			continue
+		}
+		m := prof.AP
+		if st.Mode == FE {
+			m = prof.FE
+		}
+		ratio := float64(max(st.Passes, 1)) * m.LineDoseCPerCm / m.Width.ThresholdDoseCPerCm
+		sigma := m.Width.SigmaNM
+		if ratio <= coverageNeglect || !(sigma > 0) {
+			continue
+		}
+		reach := sigma * math.Sqrt(2*math.Log(ratio/coverageNeglect))
+		for k := 0; k+1 < len(st.Path); k++ {
+			a, b := st.Path[k], st.Path[k+1]
+			if a == b {
+				continue
+			}
+			for t := range surf.Terraces {
+				if ck.grid != nil && !ck.grid.reaches(t, a, b) {
+					continue
+				}
+				ck.pieces[t] = append(ck.pieces[t], makePiece(surf, t, int32(i), a, b, ratio, sigma, reach))
+			}
+		}
+	}
+	return ck
+}
+
+// makePiece describes the piece a→b of stroke si on terrace t.
+func makePiece(surf *lattice.Surface, t int, si int32, a, b r2.Point, ratio, sigma, reach float64) piece {
+	ua, ya := terraceAxes(surf, t, a)
+	ub, yb := terraceAxes(surf, t, b)
+	p := piece{stroke: si, ratio: ratio, sigma: sigma,
+		uLo: math.Min(ua, ub) - reach, uHi: math.Max(ua, ub) + reach,
+		yLo: math.Min(ya, yb) - reach, yHi: math.Max(ya, yb) + reach}
+	switch {
+	case math.Abs(ya-yb) < 1e-9:
+		p.kind, p.c, p.a0, p.a1 = pieceParallel, ya, math.Min(ua, ub), math.Max(ua, ub)
+	case math.Abs(ua-ub) < 1e-9:
+		p.kind, p.c, p.a0, p.a1 = pieceSquare, ua, math.Min(ya, yb), math.Max(ya, yb)
+	default:
+		p.kind = pieceSlanted
+		p.L = math.Hypot(ub-ua, yb-ya)
+		p.pu, p.py, p.du, p.dy = ua, ya, (ub-ua)/p.L, (yb-ya)/p.L
+	}
+	return p
+}
+
+// terraceAxes returns p's along-row and across-row coordinates on
+// terrace t, relative to the terrace's lattice offset.
+func terraceAxes(surf *lattice.Surface, t int, p r2.Point) (along, across float64) {
+	tr := &surf.Terraces[t]
+	q := p.Sub(tr.Offset)
+	if tr.Rows == lattice.RowsAlongY {
+		return q.Y, q.X
+	}
+	return q.X, q.Y
+}
+
+// lineY is the across coordinate of site line l: the sites of side l%2
+// of row l/2. It rises with l, since the two sides of a row lie 2·HOffset
+// apart, less than a row spacing.
+func lineY(l int) float64 {
+	y := float64(l/2) * lattice.RowSpacing
+	if l%2 == 0 {
+		return y - lattice.HOffset
+	}
+	return y + lattice.HOffset
+}
+
+// siteRect is a range of sites of one terrace: site lines [l0, l1), dimers
+// [d0, d1), bounded by the box [u0, u1] x [y0, y1] (which holds them and
+// may be larger).
+type siteRect struct {
+	t              int
+	l0, l1, d0, d1 int
+	u0, u1, y0, y1 float64
+}
+
+func (ck *coverageCheck) run() {
+	ck.cov.Sites = ck.painted.Count()
+	for t := range ck.surf.Terraces {
+		rows, dimers := ck.surf.RowCount(t), ck.surf.DimerCount(t)
+		// Everything anything reaches: the painted sites and the pieces'
+		// boxes, as site lines and dimers.
+		l0, l1, d0, d1 := 2*rows, 0, dimers, 0
+		for r := 0; r < ck.painted.RowCount(t) && r < rows; r++ {
+			for side := 0; side < 2; side++ {
+				if first, last := paintedExtent(ck.painted.Row(t, r), side); first >= 0 {
+					l0, l1 = min(l0, 2*r+side), max(l1, 2*r+side+1)
+					d0, d1 = min(d0, first), max(d1, last+1)
+				}
+			}
+		}
+		for i := range ck.pieces[t] {
+			p := &ck.pieces[t][i]
+			l0 = min(l0, max(0, int(math.Floor((p.yLo+lattice.HOffset)/lattice.RowSpacing))*2))
+			l1 = max(l1, min(2*rows, (int(math.Ceil((p.yHi-lattice.HOffset)/lattice.RowSpacing))+1)*2))
+			d0 = min(d0, max(0, int(math.Floor(p.uLo/lattice.DimerPitch))))
+			d1 = max(d1, min(dimers, int(math.Ceil(p.uHi/lattice.DimerPitch))+1))
+		}
+		if l1 <= l0 || d1 <= d0 {
+			continue
+		}
+		all := make([]*piece, len(ck.pieces[t]))
+		for i := range ck.pieces[t] {
+			all[i] = &ck.pieces[t][i]
+		}
+		root := siteRect{t: t, l0: l0, l1: l1, d0: d0, d1: d1,
+			u0: float64(d0) * lattice.DimerPitch, u1: float64(d1-1) * lattice.DimerPitch, y0: lineY(l0), y1: lineY(l1 - 1)}
+		fu0, fu1, fy0, fy1 := ck.factors(all, root)
+		ck.decide(root, all, fu0, fu1, fy0, fy1)
+	}
+	// A dwell on a site outside every region.
+	for site := range ck.dwelled.All() {
+		if !ck.painted.Contains(site) {
+			ck.over(site, -1, math.Inf(1), nil)
+		}
+	}
+	ck.cov.Uncovered, ck.cov.Overcleared = ck.nUnc, ck.nOver
+	ck.cov.OK = ck.nUnc == 0 && ck.nOver == 0
+}
+
+// factors returns each piece's along factor at the box's two along ends
+// and its across factor at the two across ends (unused for slanted
+// pieces), from the arena.
+func (ck *coverageCheck) factors(ps []*piece, r siteRect) (fu0, fu1, fy0, fy1 []float64) {
+	n := len(ps)
+	top := len(ck.arena)
+	ck.grow(4 * n)
+	buf := ck.arena[top:]
+	fu0, fu1, fy0, fy1 = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n]
+	for i, p := range ps {
+		if p.kind == pieceSlanted {
+			continue
+		}
+		fu0[i], fu1[i] = p.uFactor(r.u0), p.uFactor(r.u1)
+		fy0[i], fy1[i] = p.yFactor(r.y0), p.yFactor(r.y1)
+	}
+	return fu0, fu1, fy0, fy1
+}
+
+// unimodal bounds a one-peaked factor over [a, b] from its values there
+// and the position of its peak.
+func unimodal(fa, fb, a, b, peak float64, at func(float64) float64) (lo, hi float64) {
+	lo, hi = math.Min(fa, fb), math.Max(fa, fb)
+	if peak > a && peak < b {
+		hi = at(peak)
+	}
+	return lo, hi
+}
+
+// decide classifies every site of r: it bounds the dose over r's box
+// from the pieces that reach it (each parallel or square piece is a
+// product of a one-peaked factor along and one across; a slanted piece's
+// along and across distances are linear, so they are bounded by the
+// box's corners), classifies all of r at once when the bounds agree, and
+// otherwise halves r across its longer side, down to single sites dosed
+// exactly. The factor slices hold each piece's factors at r's box edges,
+// so a halving computes only those at the new edge.
+func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []float64) {
+	if ck.grid != nil && !ck.grid.holds(ck.surf, r) {
+		return // no site of this terrace in r: nothing to cover or overclear
+	}
+	// Keep the pieces that reach r's box.
+	atop, ptop := len(ck.arena), len(ck.ptrs)
+	defer func() { ck.arena, ck.ptrs = ck.arena[:atop], ck.ptrs[:ptop] }()
+	active, fu0, fu1, fy0, fy1 := all, gu0, gu1, gy0, gy1
+	keep := 0
+	for _, p := range all {
+		if p.uLo <= r.u1 && p.uHi >= r.u0 && p.yLo <= r.y1 && p.yHi >= r.y0 {
+			keep++
+		}
+	}
+	if keep < len(all) {
+		ck.grow(4 * keep)
+		b := ck.arena[atop:]
+		fu0, fu1, fy0, fy1 = b[:keep], b[keep:2*keep], b[2*keep:3*keep], b[3*keep:4*keep]
+		for i, p := range all {
+			if p.uLo <= r.u1 && p.uHi >= r.u0 && p.yLo <= r.y1 && p.yHi >= r.y0 {
+				k := len(ck.ptrs) - ptop
+				ck.ptrs = append(ck.ptrs, p)
+				fu0[k], fu1[k], fy0[k], fy1[k] = gu0[i], gu1[i], gy0[i], gy1[i]
+			}
+		}
+		active = ck.ptrs[ptop:]
+	}
+	if r.l1-r.l0 == 1 && r.d1-r.d0 == 1 {
+		ck.leaf(r, active)
+		return
+	}
+	lo, hi := 0.0, 0.0
+	best, who := 0.0, int32(-1)
+	for i, p := range active {
+		var plo, phi float64
+		if p.kind != pieceSlanted {
+			ul, uh := unimodal(fu0[i], fu1[i], r.u0, r.u1, p.uPeak(), p.uFactor)
+			yl, yh := unimodal(fy0[i], fy1[i], r.y0, r.y1, p.yPeak(), p.yFactor)
+			plo, phi = p.ratio*ul*yl, p.ratio*uh*yh
+		} else {
+			plo, phi = p.slantedBounds(r)
+		}
+		lo += plo
+		hi += phi
+		if plo > best {
+			best, who = plo, p.stroke
+		}
+	}
+	switch {
+	case lo >= 1:
+		ck.classifyRect(r, active, true, lo, who)
+		return
+	case hi < 1:
+		ck.classifyRect(r, active, false, hi, who)
+		return
+	}
+	// Undecided, but nothing here matters: no painted site, and every site
+	// within the edge allowance of a region dosing it (cleared or not,
+	// such a site is tolerated). FE edges are mostly this.
+	if !ck.paintedIn(r) && ck.tolerated(r, active) {
+		return
+	}
+	// Halve the side that leaves the bounds furthest apart: the gap the
+	// along factors leave against the gap the across factors leave. The
+	// halves share the new edge, so one new factor per piece serves both.
+	gapU, gapY := 0.0, 0.0
+	for i, p := range active {
+		if p.kind == pieceSlanted {
+			continue
+		}
+		ul, uh := math.Min(fu0[i], fu1[i]), math.Max(fu0[i], fu1[i])
+		yl, yh := math.Min(fy0[i], fy1[i]), math.Max(fy0[i], fy1[i])
+		gapU += p.ratio * (uh - ul) * yh
+		gapY += p.ratio * uh * (yh - yl)
+	}
+	a, b := r, r
+	n := len(active)
+	top := len(ck.arena)
+	ck.grow(n)
+	fm := ck.arena[top : top+n]
+	splitU := gapU > gapY || (gapU == gapY && r.u1-r.u0 >= r.y1-r.y0)
+	if (splitU && r.d1-r.d0 > 1) || r.l1-r.l0 == 1 {
+		mid := (r.d0 + r.d1) / 2
+		us := (float64(mid) - 0.5) * lattice.DimerPitch
+		a.d1, a.u1 = mid, us
+		b.d0, b.u0 = mid, us
+		for i, p := range active {
+			if p.kind != pieceSlanted {
+				fm[i] = p.uFactor(us)
+			}
+		}
+		ck.decide(a, active, fu0, fm, fy0, fy1)
+		ck.decide(b, active, fm, fu1, fy0, fy1)
+		return
+	}
+	mid := (r.l0 + r.l1) / 2
+	ys := (lineY(mid-1) + lineY(mid)) / 2
+	a.l1, a.y1 = mid, ys
+	b.l0, b.y0 = mid, ys
+	for i, p := range active {
+		if p.kind != pieceSlanted {
+			fm[i] = p.yFactor(ys)
+		}
+	}
+	ck.decide(a, active, fu0, fu1, fy0, fm)
+	ck.decide(b, active, fu0, fu1, fm, fy1)
+}
+
+// grow lengthens the arena by n values (not cleared: callers write
+// every value they read).
+func (ck *coverageCheck) grow(n int) {
+	ck.arena = slices.Grow(ck.arena, n)[:len(ck.arena)+n]
+}
+
+// paintedIn reports whether r holds a painted site.
+func (ck *coverageCheck) paintedIn(r siteRect) bool {
+	for l := r.l0; l < r.l1; l++ {
+		side := l % 2
+		if anyParity(ck.painted.Row(r.t, l/2), 2*r.d0+side, 2*(r.d1-1)+side+1, uint64(0x5555555555555555)<<uint(side)) {
+			return true
+		}
+	}
+	return false
+}
+
+// tolerated reports whether every site of r lies within the edge
+// allowance of one region whose strokes dose r.
+func (ck *coverageCheck) tolerated(r siteRect, active []*piece) bool {
+	var tried [4]int
+	n := 0
+next:
+	for _, p := range active {
+		ri := ck.region[p.stroke]
+		if ri < 0 {
+			continue
+		}
+		for _, x := range tried[:n] {
+			if x == ri {
+				continue next
+			}
+		}
+		if n == len(tried) {
+			return false
+		}
+		tried[n] = ri
+		n++
+		allow := ck.prof.AP.EdgeAllowanceNM
+		if ck.strokes[p.stroke].Mode == FE {
+			allow = ck.prof.FE.EdgeAllowanceNM
+		}
+		if allow <= 0 {
+			continue
+		}
+		u0, u1 := float64(r.d0)*lattice.DimerPitch, float64(r.d1-1)*lattice.DimerPitch
+		ok := true
+		for row := r.l0 / 2; row <= (r.l1-1)/2 && ok; row++ {
+			sp := ck.allowedCached(ri, r.t, row, allow)
+			i := sort.Search(len(sp), func(i int) bool { return sp[i].hi+1e-9 >= u1 })
+			ok = i < len(sp) && sp[i].lo-1e-9 <= u0
+		}
+		if ok {
+			return true
+		}
+	}
+	return false
+}
+
+// slantedBounds bounds a slanted piece's dose share over r's box from
+// its corners: along and across distances are linear in the box.
+func (p *piece) slantedBounds(r siteRect) (lo, hi float64) {
+	smin, smax := math.Inf(1), math.Inf(-1)
+	xmin, xmax := math.Inf(1), math.Inf(-1)
+	for _, c := range [4][2]float64{{r.u0, r.y0}, {r.u1, r.y0}, {r.u0, r.y1}, {r.u1, r.y1}} {
+		s := (c[0]-p.pu)*p.du + (c[1]-p.py)*p.dy
+		x := (c[1]-p.py)*p.du - (c[0]-p.pu)*p.dy
+		smin, smax = math.Min(smin, s), math.Max(smax, s)
+		xmin, xmax = math.Min(xmin, x), math.Max(xmax, x)
+	}
+	dfar := math.Max(math.Abs(xmin), math.Abs(xmax))
+	dnear := 0.0
+	if xmin > 0 || xmax < 0 {
+		dnear = math.Min(math.Abs(xmin), math.Abs(xmax))
+	}
+	fl, fh := unimodal(band(0, p.L, p.sigma, smin), band(0, p.L, p.sigma, smax), smin, smax, p.L/2,
+		func(s float64) float64 { return band(0, p.L, p.sigma, s) })
+	return p.ratio * gauss(dfar, p.sigma) * fl, p.ratio * gauss(dnear, p.sigma) * fh
+}
+
+// leaf doses the one site of r exactly.
+func (ck *coverageCheck) leaf(r siteRect, active []*piece) {
+	row, side := r.l0/2, r.l0%2
+	site := lattice.Site{Terrace: r.t, Row: row, Dimer: r.d0, Side: side}
+	u, y := float64(r.d0)*lattice.DimerPitch, lineY(r.l0)
+	sum, best, who := 0.0, 0.0, int32(-1)
+	for _, p := range active {
+		e := p.at(u, y)
+		sum += e
+		if e > best {
+			best, who = e, p.stroke
+		}
+	}
+	ck.classify(site, ck.painted.Row(r.t, row), ck.existSpans(r.t, row), sum, who, active)
+}
+
+// classifyRect classifies every site of r as cleared or not, line by
+// line (see classifyRange).
+func (ck *coverageCheck) classifyRect(r siteRect, active []*piece, cleared bool, e float64, who int32) {
+	if cleared && ck.tolerated(r, active) {
+		return // painted sites clear, and the rest are within the allowance
+	}
+	for l := r.l0; l < r.l1; l++ {
+		row := rowLine{t: r.t, r: l / 2, side: l % 2, pw: ck.painted.Row(r.t, l/2)}
+		ck.classifyRange(&row, active, r.d0, r.d1, cleared, e, who)
+	}
+}
+
+// rowLine is the line of one side's sites of one row.
+type rowLine struct {
+	t, r, side int
+	pw         []uint64 // the row's painted bits
+}
+
+// classifyRange classifies every site of dimers [d0, d1) of a row line
+// as cleared or not: a painted site not cleared is uncovered, an existing
+// unpainted site cleared may be overcleared. Only those sites are
+// visited, a word at a time.
+func (ck *coverageCheck) classifyRange(row *rowLine, active []*piece, d0, d1 int, cleared bool, e float64, who int32) {
+	from, to := 2*d0+row.side, 2*(d1-1)+row.side+1 // bit indices [from, to)
+	parity := uint64(0x5555555555555555) << uint(row.side)
+	// Cleared unpainted sites are usually within the edge allowance of
+	// the region dosing them most: look that up once for the row.
+	var allowed, exist []span
+	haveAllowed, haveExist := false, false
+	if !cleared && !anyParity(row.pw, from, to, parity) {
+		return // nothing painted here to be uncovered
+	}
+	for k := from / 64; k*64 < to; k++ {
+		var word uint64
+		if k < len(row.pw) {
+			word = row.pw[k]
+		}
+		target := word & parity // painted sites: uncovered when not cleared
+		if cleared {
+			target = ^word & parity // unpainted sites: overcleared candidates
+		}
+		if lo := from - k*64; lo > 0 {
+			target &= ^uint64(0) << uint(lo)
+		}
+		if hi := to - k*64; hi < 64 {
+			target &= (1 << uint(hi)) - 1
+		}
+		for target != 0 {
+			b := trailingZeros(target)
+			target &= target - 1
+			site := lattice.SiteAt(row.t, row.r, k*64+b)
+			if !haveExist {
+				exist, haveExist = ck.existSpans(row.t, row.r), true
+			}
+			if cleared {
+				u := float64(site.Dimer) * lattice.DimerPitch
+				if !inSpans(exist, u) {
+					continue
+				}
+				if !haveAllowed {
+					allowed, haveAllowed = ck.allowedFor(who, row.t, row.r), true
+				}
+				if inSpans(allowed, u) {
+					continue
+				}
+			}
+			ck.classify(site, row.pw, exist, e, who, active)
+		}
+	}
+}
+
+// allowedFor returns the allowed spans (see allowedSpans) on row r of
+// terrace t for the region of stroke si, within its mode's edge
+// allowance; nil when there is none.
+func (ck *coverageCheck) allowedFor(si int32, t, r int) []span {
+	if si < 0 || ck.region[si] < 0 {
+		return nil
+	}
+	allow := ck.prof.AP.EdgeAllowanceNM
+	if ck.strokes[si].Mode == FE {
+		allow = ck.prof.FE.EdgeAllowanceNM
+	}
+	if allow <= 0 {
+		return nil
+	}
+	ri := ck.region[si]
+	return ck.allowedCached(ri, t, r, allow)
+}
+
+func (ck *coverageCheck) classify(site lattice.Site, pw []uint64, exist []span, e float64, who int32, active []*piece) {
+	i := site.Index()
+	painted := i/64 < len(pw) && pw[i/64]&(1<<(uint(i)%64)) != 0
+	cleared := e >= 1
+	if painted {
+		if !cleared && !ck.dwelled.Contains(site) {
+			ck.nUnc++
+			if ck.nUnc <= coverageExamples {
+				ck.cov.Issues = append(ck.cov.Issues, fmt.Sprintf("uncovered: site %v of region %q at %s gets %.2f of the clearing dose",
+					site, ck.regionOf(site), fmtPoint(ck.surf.Position(site)), e))
+			}
+		}
+		return
+	}
+	if !cleared || !inSpans(exist, float64(site.Dimer)*lattice.DimerPitch) {
+		return
+	}
+	ck.over(site, who, e, active)
+}
+
+// over records a cleared site outside every region unless a region
+// whose strokes dose it lies within that mode's edge allowance.
+func (ck *coverageCheck) over(site lattice.Site, who int32, e float64, active []*piece) {
+	var tried [8]int
+	nTried := 0
+	try := func(si int32) bool {
+		ri := ck.region[si]
+		if ri < 0 {
+			return false
+		}
+		for _, x := range tried[:nTried] {
+			if x == ri {
+				return false
+			}
+		}
+		if nTried < len(tried) {
+			tried[nTried] = ri
+			nTried++
+		}
+		allow := ck.prof.AP.EdgeAllowanceNM
+		if ck.strokes[si].Mode == FE {
+			allow = ck.prof.FE.EdgeAllowanceNM
+		}
+		return allow > 0 && ck.near(ri, site, allow)
+	}
+	if who >= 0 && try(who) {
+		return
+	}
+	for _, c := range active {
+		if try(c.stroke) {
+			return
+		}
+	}
+	name := "?"
+	if who >= 0 && ck.region[who] >= 0 {
+		name = ck.regions[ck.region[who]].Name
+	}
+	ck.nOver++
+	if ck.nOver <= coverageExamples {
+		what := fmt.Sprintf("%.2f of the clearing dose", e)
+		if math.IsInf(e, 1) {
+			what = "a dwell"
+		}
+		ck.cov.Issues = append(ck.cov.Issues, fmt.Sprintf("overcleared: site %v at %s, outside every region and beyond the edge allowance of region %q, gets %s",
+			site, fmtPoint(ck.surf.Position(site)), name, what))
+	}
+}
+
+// allowedCached returns allowedSpans(ri, t, r, dist), computed once per
+// row and region (dist is the same for every call with one region's
+// mode).
+func (ck *coverageCheck) allowedCached(ri, t, r int, dist float64) []span {
+	key := [2]int{ri, t}
+	rows, ok := ck.allowed[key]
+	if !ok {
+		rows = make([]*[]span, ck.surf.RowCount(t))
+		ck.allowed[key] = rows
+	}
+	if r >= len(rows) {
+		return ck.allowedSpans(ri, t, r, dist)
+	}
+	if rows[r] == nil {
+		sp := ck.allowedSpans(ri, t, r, dist)
+		rows[r] = &sp
+	}
+	return *rows[r]
+}
+
+// near reports whether region ri has a site within dist of the site q
+// (between site positions). On q's own terrace it looks the answer up
+// in the row's allowed spans, built once per row and region: the along
+// intervals within dist of a region site on the rows within dist. Other
+// terraces are searched site by site.
+func (ck *coverageCheck) near(ri int, q lattice.Site, dist float64) bool {
+	set := ck.regions[ri].Sites
+	if set == nil {
+		return false
+	}
+	sp := ck.allowedCached(ri, q.Terrace, q.Row, dist)
+	if inSpans(sp, float64(q.Dimer)*lattice.DimerPitch) {
+		return true
+	}
+	if len(ck.surf.Terraces) == 1 {
+		return false
+	}
+	p := ck.surf.Position(q)
+	for t := 0; t < set.TerraceCount() && t < len(ck.surf.Terraces); t++ {
+		if t != q.Terrace && ck.nearOn(set, t, p, dist) {
+			return true
+		}
+	}
+	return false
+}
+
+// allowedSpans returns the along intervals of row r of terrace t whose
+// dimer centres lie within dist of a site of region ri on the rows of t
+// within dist (the across distance counted between row centres less
+// twice HOffset, a slight overestimate of nearness by at most HOffset).
+func (ck *coverageCheck) allowedSpans(ri, t, r int, dist float64) []span {
+	rows := ck.regionRows(ri, t)
+	sp := ck.spanBuf[:0]
+	k := int(math.Ceil((dist + 2*lattice.HOffset) / lattice.RowSpacing))
+	for rr := max(0, r-k); rr <= r+k && rr < len(rows); rr++ {
+		dy := math.Max(0, math.Abs(float64(rr-r))*lattice.RowSpacing-2*lattice.HOffset)
+		if dy > dist || len(rows[rr]) == 0 {
+			continue
+		}
+		h := math.Sqrt(dist*dist - dy*dy)
+		for _, run := range rows[rr] {
+			sp = append(sp, span{run.lo - h, run.hi + h})
+		}
+	}
+	slices.SortFunc(sp, func(a, b span) int { return cmp.Compare(a.lo, b.lo) })
+	ck.spanBuf = sp
+	return slices.Clone(mergeSorted(sp))
+}
+
+// regionRows returns, per row of terrace t, the along extents (dimer
+// centres, nm from the terrace offset) of region ri's runs, computed once.
+func (ck *coverageCheck) regionRows(ri, t int) [][]span {
+	key := [2]int{ri, t}
+	if rows, ok := ck.rows[key]; ok {
+		return rows
+	}
+	set := ck.regions[ri].Sites
+	rows := make([][]span, set.RowCount(t))
+	for run := range set.Runs() {
+		if run.Terrace == t {
+			rows[run.Row] = append(rows[run.Row], span{float64(run.Start/2) * lattice.DimerPitch, float64((run.End()-1)/2) * lattice.DimerPitch})
+		}
+	}
+	ck.rows[key] = rows
+	return rows
+}
+
+func mergeSorted(sp []span) []span {
+	if len(sp) == 0 {
+		return nil
+	}
+	out := sp[:1]
+	for _, s := range sp[1:] {
+		last := &out[len(out)-1]
+		if s.lo <= last.hi {
+			last.hi = math.Max(last.hi, s.hi)
+		} else {
+			out = append(out, s)
+		}
+	}
+	return out
+}
+
+// nearOn reports whether set has a site on terrace t within dist of p.
+func (ck *coverageCheck) nearOn(set *lattice.SiteSet, t int, p r2.Point, dist float64) bool {
+	al, ac := terraceAxes(ck.surf, t, p)
+	r0 := max(0, int(math.Floor((ac-dist-lattice.HOffset)/lattice.RowSpacing)))
+	r1 := min(set.RowCount(t)-1, int(math.Ceil((ac+dist+lattice.HOffset)/lattice.RowSpacing)))
+	for r := r0; r <= r1; r++ {
+		w := set.Row(t, r)
+		if w == nil {
+			continue
+		}
+		dy := math.Max(0, math.Abs(ac-float64(r)*lattice.RowSpacing)-lattice.HOffset)
+		if dy > dist {
+			continue
+		}
+		h := math.Sqrt(dist*dist - dy*dy)
+		d0 := int(math.Ceil((al - h) / lattice.DimerPitch))
+		d1 := int(math.Floor((al + h) / lattice.DimerPitch))
+		if anyBit(w, max(0, 2*d0), 2*d1+2) {
+			return true
+		}
+	}
+	return false
+}
+
+// anyBit reports whether any bit in [from, to) of w is set.
+func anyBit(w []uint64, from, to int) bool {
+	to = min(to, len(w)*64)
+	for i := from; i < to; {
+		k := i / 64
+		word := w[k] >> (uint(i) % 64)
+		n := min(64-i%64, to-i)
+		if n < 64 {
+			word &= (1 << uint(n)) - 1
+		}
+		if word != 0 {
+			return true
+		}
+		i += n
+	}
+	return false
+}
+
+// paintedExtent returns the first and last dimer with a painted site on
+// the given side of a row, or -1, -1.
+func paintedExtent(w []uint64, side int) (first, last int) {
+	first, last = -1, -1
+	mask := uint64(0x5555555555555555) << uint(side)
+	for k, word := range w {
+		if m := word & mask; m != 0 {
+			if first < 0 {
+				first = (k*64 + trailingZeros(m)) / 2
+			}
+			last = (k*64 + 63 - leadingZeros(m)) / 2
+		}
+	}
+	return first, last
+}
+
+func (ck *coverageCheck) regionOf(site lattice.Site) string {
+	for _, r := range ck.regions {
+		if r.Sites != nil && r.Sites.Contains(site) {
+			return r.Name
+		}
+	}
+	return "?"
+}
+
+// existSpans returns the along-row intervals (relative to the terrace
+// offset) where row r's dimer centres lie on terrace t: the field, within
+// the terrace's boundary, outside earlier bounded terraces (a terrace
+// without a boundary takes what no bounded terrace holds), as
+// Surface.TerraceAt decides.
+func (ck *coverageCheck) existSpans(t, r int) []span {
+	if p := ck.exist[t][r]; p != nil {
+		return *p
+	}
+	sp := ck.computeExist(t, r)
+	ck.exist[t][r] = &sp
+	return sp
+}
+
+func (ck *coverageCheck) computeExist(t, r int) []span {
+	surf := ck.surf
+	tr := &surf.Terraces[t]
+	across := float64(r) * lattice.RowSpacing
+	// The field along this line.
+	a0, _ := terraceAxes(surf, t, surf.Field.Lo())
+	a1, _ := terraceAxes(surf, t, surf.Field.Hi())
+	spans := []span{{math.Min(a0, a1), math.Max(a0, a1)}}
+	if len(surf.Terraces) == 1 {
+		return spans
+	}
+	polySpans := func(poly []r2.Point) []span {
+		var xs []float64
+		for i := range poly {
+			p, q := poly[i], poly[(i+1)%len(poly)]
+			pa, pc := terraceAxes(surf, t, p)
+			qa, qc := terraceAxes(surf, t, q)
+			if (pc > across) != (qc > across) {
+				xs = append(xs, pa+(across-pc)*(qa-pa)/(qc-pc))
+			}
+		}
+		sort.Float64s(xs)
+		var out []span
+		for i := 0; i+1 < len(xs); i += 2 {
+			out = append(out, span{xs[i], xs[i+1]})
+		}
+		return out
+	}
+	bounded := len(tr.Boundary) >= 3
+	if bounded {
+		spans = intersectSpans(spans, polySpans(tr.Boundary))
+	}
+	for j := range surf.Terraces {
+		if j == t && bounded {
+			break
+		}
+		if j != t && len(surf.Terraces[j].Boundary) >= 3 {
+			spans = subtractSpans(spans, polySpans(surf.Terraces[j].Boundary))
+		}
+	}
+	return spans
+}
+
+// inSpans reports whether x lies in one of the sorted, disjoint spans
+// (to within 1e-9 nm).
+func inSpans(sp []span, x float64) bool {
+	i := sort.Search(len(sp), func(i int) bool { return sp[i].hi+1e-9 >= x })
+	return i < len(sp) && x >= sp[i].lo-1e-9
+}
+
+func intersectSpans(a, b []span) []span {
+	var out []span
+	for _, x := range a {
+		for _, y := range b {
+			lo, hi := math.Max(x.lo, y.lo), math.Min(x.hi, y.hi)
+			if hi > lo {
+				out = append(out, span{lo, hi})
+			}
+		}
+	}
+	return out
+}
+
+func subtractSpans(a, b []span) []span {
+	out := a
+	for _, y := range b {
+		var next []span
+		for _, x := range out {
+			if y.hi <= x.lo || y.lo >= x.hi {
+				next = append(next, x)
+				continue
+			}
+			if y.lo > x.lo {
+				next = append(next, span{x.lo, y.lo})
+			}
+			if y.hi < x.hi {
+				next = append(next, span{y.hi, x.hi})
+			}
+		}
+		out = next
+	}
+	return out
+}
+
+func fmtPoint(p r2.Point) string { return fmt.Sprintf("(%.2f, %.2f) nm", p.X, p.Y) }
+
+// terraceGrid marks, in cells of terraceCellNM, where each terrace of a
+// many-terrace surface lies (with a one-cell margin), so that a stroke
+// piece is only rasterised onto the rows of terraces it comes near.
+type terraceGrid struct {
+	nx, ny int
+	cells  [][]bool // [terrace][cell]
+}
+
+const terraceCellNM = 20.0
+
+func newTerraceGrid(surf *lattice.Surface) *terraceGrid {
+	g := &terraceGrid{nx: int(math.Ceil(surf.Width()/terraceCellNM)) + 1, ny: int(math.Ceil(surf.Height()/terraceCellNM)) + 1}
+	g.cells = make([][]bool, len(surf.Terraces))
+	raw := make([][]bool, len(surf.Terraces))
+	for t := range raw {
+		raw[t] = make([]bool, g.nx*g.ny)
+		g.cells[t] = make([]bool, g.nx*g.ny)
+	}
+	for j := 0; j < g.ny; j++ {
+		for i := 0; i < g.nx; i++ {
+			for _, f := range [][2]float64{{0, 0}, {0.5, 0}, {1, 0}, {0, 0.5}, {0.5, 0.5}, {1, 0.5}, {0, 1}, {0.5, 1}, {1, 1}} {
+				p := r2.Point{X: math.Min((float64(i)+f[0])*terraceCellNM, surf.Width()), Y: math.Min((float64(j)+f[1])*terraceCellNM, surf.Height())}
+				if t := surf.TerraceAt(p); t >= 0 {
+					raw[t][j*g.nx+i] = true
+				}
+			}
+		}
+	}
+	for t := range raw {
+		for j := 0; j < g.ny; j++ {
+			for i := 0; i < g.nx; i++ {
+				if !raw[t][j*g.nx+i] {
+					continue
+				}
+				for dj := -1; dj <= 1; dj++ {
+					for di := -1; di <= 1; di++ {
+						if ii, jj := i+di, j+dj; ii >= 0 && jj >= 0 && ii < g.nx && jj < g.ny {
+							g.cells[t][jj*g.nx+ii] = true
+						}
+					}
+				}
+			}
+		}
+	}
+	return g
+}
+
+// reaches reports whether the piece a→b comes near terrace t: some point
+// of it, sampled every half cell, lies in a cell marked for t (cells
+// carry a one-cell margin of 20 nm, more than any footprint's reach).
+func (g *terraceGrid) reaches(t int, a, b r2.Point) bool {
+	L := b.Sub(a).Norm()
+	steps := max(1, int(math.Ceil(L/(terraceCellNM/2))))
+	for k := 0; k <= steps; k++ {
+		p := a.Add(b.Sub(a).Mul(float64(k) / float64(steps)))
+		if g.marked(t, int(math.Floor(p.X/terraceCellNM)), int(math.Floor(p.Y/terraceCellNM))) {
+			return true
+		}
+	}
+	return false
+}
+
+func (g *terraceGrid) marked(t, i, j int) bool {
+	return i >= 0 && j >= 0 && i < g.nx && j < g.ny && g.cells[t][j*g.nx+i]
+}
+
+// holds reports whether the box of r may hold a site of its terrace.
+func (g *terraceGrid) holds(surf *lattice.Surface, r siteRect) bool {
+	tr := &surf.Terraces[r.t]
+	x0, x1, y0, y1 := r.u0, r.u1, r.y0, r.y1
+	if tr.Rows == lattice.RowsAlongY {
+		x0, x1, y0, y1 = r.y0, r.y1, r.u0, r.u1
+	}
+	i0, i1 := int(math.Floor((x0+tr.Offset.X)/terraceCellNM)), int(math.Floor((x1+tr.Offset.X)/terraceCellNM))
+	j0, j1 := int(math.Floor((y0+tr.Offset.Y)/terraceCellNM)), int(math.Floor((y1+tr.Offset.Y)/terraceCellNM))
+	for j := max(j0, 0); j <= j1 && j < g.ny; j++ {
+		for i := max(i0, 0); i <= i1 && i < g.nx; i++ {
+			if g.cells[r.t][j*g.nx+i] {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// anyParity reports whether w has a set bit of the given parity mask in
+// [from, to).
+func anyParity(w []uint64, from, to int, parity uint64) bool {
+	to = min(to, len(w)*64)
+	for k := from / 64; k*64 < to; k++ {
+		word := w[k] & parity
+		if lo := from - k*64; lo > 0 {
+			word &= ^uint64(0) << uint(lo)
+		}
+		if hi := to - k*64; hi < 64 {
+			word &= (1 << uint(hi)) - 1
+		}
+		if word != 0 {
+			return true
+		}
+	}
+	return false
+}

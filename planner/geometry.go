@@ -1,0 +1,330 @@
+package planner
+
+import (
+	"cmp"
+	"math"
+	"math/bits"
+	"slices"
+	"sort"
+
+	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice"
+)
+
+// runSeg is one run of sites as a segment in field nm: the line through
+// the run's dimer centres, from its first dimer to its last. along says
+// which field axis the segment runs along (0 x, 1 y).
+type runSeg struct {
+	a, b  r2.Point
+	along int
+	run   lattice.Run
+}
+
+// runSegments returns the runs of set as field segments.
+func runSegments(surf *lattice.Surface, set *lattice.SiteSet) []runSeg {
+	var out []runSeg
+	for run := range set.Runs() {
+		if run.Terrace >= len(surf.Terraces) {
+			continue
+		}
+		d0, d1 := run.Start/2, (run.End()-1)/2
+		a := surf.DimerCentre(run.Terrace, run.Row, d0)
+		b := surf.DimerCentre(run.Terrace, run.Row, d1)
+		along := 0
+		if surf.Terraces[run.Terrace].Rows == lattice.RowsAlongY {
+			along = 1
+		}
+		out = append(out, runSeg{a: a, b: b, along: along, run: run})
+	}
+	return out
+}
+
+func coord(p r2.Point, axis int) float64 {
+	if axis == 1 {
+		return p.Y
+	}
+	return p.X
+}
+
+func pointOnAxes(along, across float64, axis int) r2.Point {
+	if axis == 1 {
+		return r2.Point{X: across, Y: along}
+	}
+	return r2.Point{X: along, Y: across}
+}
+
+// span is a closed interval [lo, hi] of one coordinate, in nm.
+type span struct{ lo, hi float64 }
+
+func (s span) length() float64 { return s.hi - s.lo }
+
+// chordIndex holds run segments for chord queries along one field
+// axis: the rows along that axis sorted by their across coordinate, so a
+// query looks only at the rows near its line, and the rows across it.
+type chordIndex struct {
+	axis   int
+	along  []runSeg  // rows along axis, sorted by the other coordinate
+	keys   []float64 // their other coordinate
+	across []runSeg  // rows across axis
+}
+
+func newChordIndex(segs []runSeg, axis int) *chordIndex {
+	ix := &chordIndex{axis: axis}
+	other := 1 - axis
+	for _, s := range segs {
+		if s.along == axis {
+			ix.along = append(ix.along, s)
+		} else {
+			ix.across = append(ix.across, s)
+		}
+	}
+	sort.Slice(ix.along, func(i, j int) bool { return coord(ix.along[i].a, other) < coord(ix.along[j].a, other) })
+	// Rows across the axis in order along it, so their chords come sorted.
+	sort.Slice(ix.across, func(i, j int) bool { return coord(ix.across[i].a, axis) < coord(ix.across[j].a, axis) })
+	ix.keys = make([]float64, len(ix.along))
+	for i, s := range ix.along {
+		ix.keys[i] = coord(s.a, other)
+	}
+	return ix
+}
+
+// chords returns the merged intervals, along the index's axis, covered by
+// the sites that lie within half of the line where the other coordinate
+// equals c; intervals closer than gap are joined. With cells, each site
+// counts with the extent of its lattice cell (half a dimer pitch along its
+// row, half a row across); without, intervals run between site
+// positions.
+func (ix *chordIndex) chords(c, half, gap float64, cells bool) []span {
+	axis, other := ix.axis, 1-ix.axis
+	alongPad, acrossPad := 0.0, lattice.HOffset
+	if cells {
+		alongPad, acrossPad = lattice.DimerPitch/2, lattice.RowSpacing/2
+	}
+	var sp []span
+	// Rows along the axis: their sites lie at the row centre ± HOffset.
+	lo := sort.SearchFloat64s(ix.keys, c-half-lattice.HOffset)
+	for i := lo; i < len(ix.along) && ix.keys[i] <= c+half+lattice.HOffset; i++ {
+		s := ix.along[i]
+		a, b := coord(s.a, axis), coord(s.b, axis)
+		sp = append(sp, span{math.Min(a, b) - alongPad, math.Max(a, b) + alongPad})
+	}
+	// Rows across the axis meet the line if their extent does.
+	for _, s := range ix.across {
+		a, b := coord(s.a, other), coord(s.b, other)
+		if math.Max(a, b)+lattice.DimerPitch/2 < c-half || math.Min(a, b)-lattice.DimerPitch/2 > c+half {
+			continue
+		}
+		x := coord(s.a, axis)
+		sp = append(sp, span{x - acrossPad, x + acrossPad})
+	}
+	return mergeSpans(sp, gap)
+}
+
+func mergeSpans(sp []span, gap float64) []span {
+	if len(sp) == 0 {
+		return nil
+	}
+	if !slices.IsSortedFunc(sp, func(a, b span) int { return cmp.Compare(a.lo, b.lo) }) {
+		slices.SortFunc(sp, func(a, b span) int { return cmp.Compare(a.lo, b.lo) })
+	}
+	out := sp[:1]
+	for _, s := range sp[1:] {
+		last := &out[len(out)-1]
+		if s.lo <= last.hi+gap {
+			last.hi = math.Max(last.hi, s.hi)
+		} else {
+			out = append(out, s)
+		}
+	}
+	return out
+}
+
+// segDist returns the distance between segments ab and cd and the
+// midpoint of the shortest connection.
+func segDist(a, b, c, d r2.Point) (float64, r2.Point) {
+	if segmentsCross(a, b, c, d) {
+		return 0, a.Add(b).Add(c).Add(d).Mul(0.25)
+	}
+	best, at := math.Inf(1), r2.Point{}
+	try := func(p, q, r r2.Point) {
+		cp := closestOnSegment(p, q, r)
+		if dd := cp.Sub(r).Norm(); dd < best {
+			best, at = dd, cp.Add(r).Mul(0.5)
+		}
+	}
+	try(a, b, c)
+	try(a, b, d)
+	try(c, d, a)
+	try(c, d, b)
+	return best, at
+}
+
+// closestOnSegment returns the point of segment pq nearest r.
+func closestOnSegment(p, q, r r2.Point) r2.Point {
+	d := q.Sub(p)
+	l2 := d.Dot(d)
+	if l2 == 0 {
+		return p
+	}
+	t := math.Max(0, math.Min(1, r.Sub(p).Dot(d)/l2))
+	return p.Add(d.Mul(t))
+}
+
+func segmentsCross(a, b, c, d r2.Point) bool {
+	d1 := b.Sub(a).Cross(c.Sub(a))
+	d2 := b.Sub(a).Cross(d.Sub(a))
+	d3 := d.Sub(c).Cross(a.Sub(c))
+	d4 := d.Sub(c).Cross(b.Sub(c))
+	return ((d1 > 0 && d2 < 0) || (d1 < 0 && d2 > 0)) && ((d3 > 0 && d4 < 0) || (d3 < 0 && d4 > 0))
+}
+
+// segIndex buckets run segments in a uniform grid for nearest-distance
+// queries.
+type segIndex struct {
+	segs []runSeg
+	cell float64
+	grid map[[2]int32][]int32
+}
+
+func newSegIndex(segs []runSeg, cell float64) *segIndex {
+	ix := &segIndex{segs: segs, cell: cell, grid: map[[2]int32][]int32{}}
+	for i, s := range segs {
+		x0, y0, x1, y1 := ix.cells(r2.RectFromPoints(s.a, s.b))
+		for gx := x0; gx <= x1; gx++ {
+			for gy := y0; gy <= y1; gy++ {
+				k := [2]int32{gx, gy}
+				ix.grid[k] = append(ix.grid[k], int32(i))
+			}
+		}
+	}
+	return ix
+}
+
+func (ix *segIndex) cells(r r2.Rect) (x0, y0, x1, y1 int32) {
+	f := func(v float64) int32 { return int32(math.Floor(v / ix.cell)) }
+	return f(r.X.Lo), f(r.Y.Lo), f(r.X.Hi), f(r.Y.Hi)
+}
+
+// nearest returns the least distance from any of segs to a segment of
+// the index, looking no farther than limit; ok is false when none lies
+// within limit. Distances are between row centre lines less the site
+// offsets across the rows, so they approximate site-to-site gaps to
+// within HOffset.
+func (ix *segIndex) nearest(segs []runSeg, limit float64) (d float64, at r2.Point, ok bool) {
+	d = math.Inf(1)
+	seen := map[int32]bool{}
+	for _, s := range segs {
+		x0, y0, x1, y1 := ix.cells(r2.RectFromPoints(s.a, s.b).ExpandedByMargin(limit))
+		clear(seen)
+		for gx := x0; gx <= x1; gx++ {
+			for gy := y0; gy <= y1; gy++ {
+				for _, i := range ix.grid[[2]int32{gx, gy}] {
+					if seen[i] {
+						continue
+					}
+					seen[i] = true
+					o := ix.segs[i]
+					dd, p := segDist(s.a, s.b, o.a, o.b)
+					dd = math.Max(0, dd-siteSlack(s, o))
+					if dd < d {
+						d, at = dd, p
+					}
+				}
+			}
+		}
+	}
+	return d, at, d <= limit
+}
+
+// siteSlack is how much nearer two runs' sites may be than their centre
+// lines: HOffset for each run whose across direction faces the other.
+func siteSlack(a, b runSeg) float64 {
+	if a.along == b.along {
+		return 2 * lattice.HOffset
+	}
+	return lattice.HOffset
+}
+
+// erode returns the sites of set whose every lattice neighbour within
+// radius r (nm, measured between dimer centres on the same terrace) is
+// also in set: the region less a band of width r along its edge. Rows of
+// other terraces count as outside. Cost: O(rows·(r/RowSpacing)·runs per
+// row).
+func erode(set *lattice.SiteSet, r float64) *lattice.SiteSet {
+	out := lattice.NewSiteSet()
+	kmax := int(r / lattice.RowSpacing)
+	type dimerRun struct{ lo, hi int } // whole dimers [lo, hi)
+	rowRuns := func(t, row int) []dimerRun {
+		var rs []dimerRun
+		w := set.Row(t, row)
+		if w == nil {
+			return nil
+		}
+		i, n := 0, len(w)*64
+		for i < n {
+			for i < n && w[i/64]&(1<<(uint(i)%64)) == 0 {
+				i++
+			}
+			j := i
+			for j < n && w[j/64]&(1<<(uint(j)%64)) != 0 {
+				j++
+			}
+			if j > i {
+				lo, hi := (i+1)/2, j/2
+				if hi > lo {
+					rs = append(rs, dimerRun{lo, hi})
+				}
+			}
+			i = j
+		}
+		return rs
+	}
+	for t := 0; t < set.TerraceCount(); t++ {
+		rows := set.RowCount(t)
+		cache := make(map[int][]dimerRun)
+		get := func(row int) []dimerRun {
+			if row < 0 || row >= rows {
+				return nil
+			}
+			if rs, ok := cache[row]; ok {
+				return rs
+			}
+			rs := rowRuns(t, row)
+			cache[row] = rs
+			return rs
+		}
+		for row := 0; row < rows; row++ {
+			cur := get(row)
+			for k := -kmax; k <= kmax && len(cur) > 0; k++ {
+				dy := float64(k) * lattice.RowSpacing
+				h := math.Sqrt(math.Max(0, r*r-dy*dy))
+				m := int(math.Ceil(h/lattice.DimerPitch - 1e-9))
+				var next []dimerRun
+				other := get(row + k)
+				// Dimers d of cur with [d-m, d+m] inside one run of other.
+				i := 0
+				for _, c := range cur {
+					for i < len(other) && other[i].hi <= c.lo {
+						i++
+					}
+					for j := i; j < len(other) && other[j].lo < c.hi; j++ {
+						lo := max(c.lo, other[j].lo+m)
+						hi := min(c.hi, other[j].hi-m)
+						if hi > lo {
+							next = append(next, dimerRun{lo, hi})
+						}
+					}
+				}
+				cur = next
+			}
+			for _, c := range cur {
+				out.AddRun(t, row, 2*c.lo, 2*c.hi)
+			}
+		}
+	}
+	return out
+}
+
+func trailingZeros(x uint64) int { return bits.TrailingZeros64(x) }
+func leadingZeros(x uint64) int  { return bits.LeadingZeros64(x) }
