@@ -15,6 +15,7 @@ type control struct {
 	seed     int64
 	progress func(Progress)
 	lastProg time.Time
+	converge bool // stop when the search has converged (default budget)
 }
 
 func newControl(ctx context.Context, p Problem, opt Options) *control {
@@ -23,6 +24,7 @@ func newControl(ctx context.Context, p Problem, opt Options) *control {
 	budget := opt.Budget
 	if budget == 0 && opt.MaxKicks <= 0 {
 		budget = DefaultBudget
+		c.converge = true
 	}
 	if budget > 0 {
 		c.deadline = c.begin.Add(budget)
@@ -75,7 +77,6 @@ func (c *control) heuristic(items []Item, start *Point, closed bool, deadline ti
 	if g.n() > 200_000 {
 		k = 8
 	}
-
 	nb := buildNeighbours(g, k)
 	if err := c.ctx.Err(); err != nil {
 		return nil, nil, err
@@ -96,7 +97,6 @@ func (c *control) heuristic(items []Item, start *Point, closed bool, deadline ti
 	if s.n > 100_000 {
 		s.maxRev = 50_000
 	}
-	s.or3 = true
 	fixedLen := 0.0
 	for v := range int32(g.real) {
 		if p := g.partner[v]; p > v && p != g.dummy {
@@ -123,7 +123,8 @@ func (c *control) heuristic(items []Item, start *Point, closed bool, deadline ti
 	frac := 0.0
 	// Measured on the yardstick (2 s runs): the longest run of failed
 	// kicks before a later improvement was about 50 n on 1,000-20,000
-	// nodes, so a search this long without one has converged.
+	// nodes, so a search this long without one, and longer than all the
+	// search before its last gain, has converged.
 	stall := max(10_000, 50*int(s.n))
 	lastGain := 0
 	for i := 0; kicks <= 0 || i < kicks; i++ {
@@ -146,7 +147,7 @@ func (c *control) heuristic(items []Item, start *Point, closed bool, deadline ti
 		}
 		if s.kick(r, kickSegMax) {
 			lastGain = i
-		} else if i-lastGain > stall {
+		} else if c.converge && i-lastGain > max(stall, lastGain) {
 			break // converged: stop before the budget
 		}
 	}
