@@ -32,8 +32,9 @@
 //     either way round (Or 1976) and sequential 3-opt moves, the depth-3
 //     step of Lin & Kernighan 1973; all searched over the neighbour lists
 //     with the gain criterion. The tour is an array with a position index;
-//     a reversal turns the shorter side. Above 100,000 nodes a reversal is
-//     capped at 50,000 positions and the 3-opt moves are off.
+//     a reversal turns the shorter side. Above 50,000 nodes the nodes are
+//     renumbered along a Hilbert curve (cache locality); above 100,000 a
+//     reversal is capped at 50,000 positions.
 //   - Improvement until the budget is spent: segment-local double-bridge
 //     kicks (Martin, Otto & Felten 1991): four edges cut close together,
 //     X B C D reconnected as X D C B (or, for half the kicks, X C B D)
