@@ -215,6 +215,8 @@ func TestValidate(t *testing.T) {
 	}{
 		{"nan x", route.Problem{Items: []route.Item{pt, {A: route.Point{X: nan}}}}, "Items[1].A.X", route.ErrNotFinite},
 		{"inf start", route.Problem{Items: []route.Item{pt}, Start: &route.Point{Y: math.Inf(1)}}, "Start.Y", route.ErrNotFinite},
+		{"huge", route.Problem{Items: []route.Item{pt, {A: route.Point{X: 1, Y: 2}, B: route.Point{X: 1, Y: -1e200}}}}, "Items[1].B.Y", route.ErrRange},
+		{"huge start", route.Problem{Items: []route.Item{pt}, Start: &route.Point{X: 2e15}}, "Start.X", route.ErrRange},
 		{"negative speed", route.Problem{Items: []route.Item{pt}, MoveSpeed: -1}, "MoveSpeed", route.ErrNegative},
 		{"negative settle", route.Problem{Items: []route.Item{pt}, SettleS: -1}, "SettleS", route.ErrNegative},
 		{"group length", route.Problem{Items: []route.Item{pt, pt}, Group: []int{0}}, "Group", route.ErrGroup},
