@@ -47,7 +47,8 @@
 //     chosen at once by dynamic programming along the tour.
 //   - Groups are ordered greedily: of the groups whose predecessors are all
 //     written, the one with an item nearest the tip goes next, solved as an
-//     open path from where the last one ended.
+//     open path from where the last one ended (the last group of a closed
+//     problem as a path back to the start).
 //   - One-way strokes: a reversal is allowed only if it leaves every
 //     one-way stroke the same way round; the tour starts from the shorter
 //     of the greedy tour (with backward one-way strokes turned) and the

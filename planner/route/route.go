@@ -156,7 +156,7 @@ func Nearest(p Problem) (Solution, error) {
 	if err := p.Validate(); err != nil {
 		return Solution{}, err
 	}
-	order, rev, _ := solveGroups(p, func(items []Item, start *Point, closed bool, share float64) ([]int, []bool, error) {
+	order, rev, _ := solveGroups(p, func(items []Item, start, _ *Point, closed bool, share float64) ([]int, []bool, error) {
 		o, r := nearestOrder(items, start)
 		return o, r, nil
 	})

@@ -239,10 +239,12 @@ func TestValidate(t *testing.T) {
 // TestGroups checks contiguity and precedence on random grouped problems
 // of points, reversible and one-way strokes.
 func TestGroups(t *testing.T) {
-	for _, n := range []int{5, 40, 400, 3000} {
-		t.Run(fmt.Sprint(n), func(t *testing.T) {
+	for _, n := range []int{5, 40, 400, 3000, -40, -3000} {
+		closed := n < 0
+		n = max(n, -n)
+		t.Run(fmt.Sprintf("n=%d/closed=%v", n, closed), func(t *testing.T) {
 			r := rand.New(rand.NewPCG(uint64(n), 9))
-			p := route.Problem{Items: randomItems(r, n, true, true), Group: make([]int, n)}
+			p := route.Problem{Items: randomItems(r, n, true, true), Group: make([]int, n), Closed: closed}
 			for i := range p.Group {
 				p.Group[i] = r.IntN(5) * 10
 			}

@@ -43,12 +43,12 @@ func (c *control) report(phase string, length, fraction float64) {
 
 // solve orders one group's items: exactly when there are few, else by
 // the heuristic. share is the group's part of the remaining budget.
-func (c *control) solve(items []Item, start *Point, closed bool, share float64) ([]int, []bool, error) {
+func (c *control) solve(items []Item, start, end *Point, closed bool, share float64) ([]int, []bool, error) {
 	if err := c.ctx.Err(); err != nil {
 		return nil, nil, err
 	}
 	if len(items) <= exactMax {
-		o, r := solveExact(items, start, closed)
+		o, r := solveExact(items, start, end, closed)
 		return o, r, nil
 	}
 	deadline := c.deadline
@@ -60,7 +60,7 @@ func (c *control) solve(items []Item, start *Point, closed bool, share float64) 
 	if c.kicks > 0 {
 		kicks = max(1, int(float64(c.kicks)*float64(len(items))/float64(max(c.items, 1))))
 	}
-	return c.heuristic(items, start, closed, deadline, kicks)
+	return c.heuristic(items, start, end, closed, deadline, kicks)
 }
 
 // kickSegMax bounds the three segments a kick moves, in nodes. Measured
@@ -68,8 +68,11 @@ func (c *control) solve(items []Item, start *Point, closed bool, share float64) 
 // worse, 100-1000 alike within the noise, 300 a little ahead.
 var kickSegMax int32 = 300
 
-func (c *control) heuristic(items []Item, start *Point, closed bool, deadline time.Time, kicks int) ([]int, []bool, error) {
-	g := newGraph(items, start, !closed)
+func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadline time.Time, kicks int) ([]int, []bool, error) {
+	if end != nil && start == nil {
+		end = nil // an end needs a start to tie to
+	}
+	g := newGraph(items, start, end, !closed && end == nil)
 	if g.n() > spatialOrderMin {
 		g = g.spatiallyOrdered()
 	}
@@ -215,7 +218,8 @@ func (s *solver) extract() ([]int, []bool) {
 }
 
 // tourFromOrder is the node tour that writes the items in order, each
-// from its entry end, after the dummy and the start.
+// from its entry end, after the dummy and the start and before the end
+// node.
 func (g *graph) tourFromOrder(order []int, rev []bool) []int32 {
 	// The node of each item's A end.
 	first := make([]int32, len(order))
@@ -241,6 +245,9 @@ func (g *graph) tourFromOrder(order []int, rev []bool) []int32 {
 		} else {
 			t = append(t, a)
 		}
+	}
+	if g.finish >= 0 {
+		t = append(t, g.finish)
 	}
 	return t
 }
