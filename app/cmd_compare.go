@@ -1,7 +1,6 @@
 package app
 
 import (
-	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -26,23 +25,17 @@ limits) gets its reason in place of a row; the exit status is then 2.`,
 			profile := fs.String("profile", "", "instrument profile `FILE`, or a preset (rt, lt); default rt")
 			seed := fs.Int64("seed", 1, "`N` seeds the routes and the Monte Carlo spread")
 			return func(env Env, args []string) int {
-				if len(args) != 1 {
-					fmt.Fprintln(env.Stderr, "dimerpath compare: want one design file: dimerpath compare DESIGN.json [--profile P.json]")
-					return ExitFailure
-				}
-				d, prof, code := loadPlanInputs(env, "compare", args[0], *profile)
+				run, code := startPlanning(env, "compare", args, *profile, "dimerpath compare DESIGN.json [--profile P.json]")
 				if code != ExitOK {
 					return code
 				}
-				ctx, stop := interruptible()
-				defer stop()
-				prog := newProgress(env.Stderr, "compare")
-				results, err := planner.Compare(ctx, d, prof, planner.Options{Seed: *seed, Progress: prog.report})
-				prog.done()
+				defer run.stop()
+				results, err := planner.Compare(run.ctx, run.design, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
+				run.progress.done()
 				if err != nil {
 					return planError(env, "compare", args[0], err)
 				}
-				fmt.Fprintf(env.Stdout, "%s: %d variants with profile %q (seed %d)\n", d.Name, len(results), prof.Name, *seed)
+				fmt.Fprintf(env.Stdout, "%s: %d variants with profile %q (seed %d)\n", run.design.Name, len(results), run.profile.Name, *seed)
 				fmt.Fprintln(env.Stdout, planner.Caution)
 				fmt.Fprintln(env.Stdout)
 				printComparison(env.Stdout, results)
@@ -50,12 +43,7 @@ limits) gets its reason in place of a row; the exit status is then 2.`,
 				for _, r := range results {
 					if r.Err != nil {
 						failed = true
-						var le *planner.LimitError
-						if errors.As(r.Err, &le) {
-							fmt.Fprintf(env.Stderr, "dimerpath compare: variant %q: %v\n", r.Variant, r.Err)
-						} else {
-							fmt.Fprintf(env.Stderr, "dimerpath compare: variant %q: %v\n", r.Variant, r.Err)
-						}
+						fmt.Fprintf(env.Stderr, "dimerpath compare: variant %q: %v\n", r.Variant, r.Err)
 					}
 				}
 				if failed {
