@@ -31,10 +31,10 @@ limits) gets its reason in place of a row; the exit status is then 2.`,
 				}
 				defer run.stop()
 				results, err := planner.Compare(run.ctx, run.design, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
-				run.progress.done()
 				if err != nil {
 					return planError(env, "compare", args[0], err)
 				}
+				run.progress.done()
 				fmt.Fprintf(env.Stdout, "%s: %d variants with profile %q (seed %d)\n", run.design.Name, len(results), run.profile.Name, *seed)
 				fmt.Fprintln(env.Stdout, planner.Caution)
 				fmt.Fprintln(env.Stdout)

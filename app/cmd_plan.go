@@ -54,10 +54,10 @@ cleanly.`,
 				}
 				defer run.stop()
 				p, err := planner.Build(run.ctx, run.design, *variant, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
-				run.progress.done()
 				if err != nil {
 					return planError(env, "plan", args[0], err)
 				}
+				run.progress.done()
 				if *asJSON {
 					enc := json.NewEncoder(env.Stdout)
 					enc.SetIndent("", "  ")
