@@ -6,13 +6,14 @@ import (
 	"io"
 	"text/tabwriter"
 
+	"dimerpath/export"
 	"dimerpath/planner"
 )
 
 func init() {
 	Register(&Command{
 		Name:    "compare",
-		Usage:   "compare DESIGN.json [--profile P.json] [--seed N]",
+		Usage:   "compare DESIGN.json [--profile P.json] [--seed N] [-o REPORT.pdf|.svg] [--paper a4|letter] [--date YYYY-MM-DD]",
 		Summary: "plan every variant of a design and compare write time, breakdown and yield",
 		Help: `Plans every variant of the design with the same instrument profile and seed,
 and prints one table row per variant: expected total write time with its
@@ -20,17 +21,33 @@ P10-P90 spread, the time by kind (AP and FE writing, dwells, travel, mode
 switches, registrations, verification), the number of segments, and the
 probability that every dopant window takes exactly one donor. A variant that
 cannot be planned (for example one needing values beyond the profile's
-limits) gets its reason in place of a row; the exit status is then 2.`,
+limits) gets its reason in place of a row; the exit status is then 2.
+
+With -o REPORT.pdf or REPORT.svg it also writes the comparison report: a
+table of every variant and, side by side on shared axes, the time
+breakdowns, the P10-P90 spreads and the yields (--paper and --date set the
+PDF's page size and printed date). The report is written to a temporary
+file and renamed into place, also when some variant could not be planned
+(it lists the reason).`,
 		Flags: func(fs *flag.FlagSet) func(Env, []string) int {
 			profile := fs.String("profile", "", "instrument profile `FILE`, or a preset (rt, lt); default rt")
 			seed := fs.Int64("seed", 1, "`N` seeds the routes and the Monte Carlo spread")
+			var rep reportFlags
+			rep.declare(fs, "also write the report to `FILE` (.pdf or .svg)")
 			return func(env Env, args []string) int {
-				run, code := startPlanning(env, "compare", args, *profile, "dimerpath compare DESIGN.json [--profile P.json]")
+				// A bad report name is refused before anything is read.
+				opt, err := rep.options(export.FormatPDF, export.FormatSVG)
+				if err != nil {
+					fmt.Fprintf(env.Stderr, "dimerpath compare: %v\n", err)
+					return ExitFailure
+				}
+				run, code := startPlanning(env, "compare", args, *profile, "dimerpath compare DESIGN.json [--profile P.json] [-o REPORT.pdf|.svg]")
 				if code != ExitOK {
 					return code
 				}
 				defer run.stop()
-				results, err := planner.Compare(run.ctx, run.design, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
+				ctx := run.ctx
+				results, err := planner.Compare(ctx, run.design, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
 				if err != nil {
 					return planError(env, "compare", args[0], err)
 				}
@@ -39,6 +56,13 @@ limits) gets its reason in place of a row; the exit status is then 2.`,
 				fmt.Fprintln(env.Stdout, planner.Caution)
 				fmt.Fprintln(env.Stdout)
 				printComparison(env.Stdout, results)
+				if rep.out != "" {
+					if err := export.WriteComparisonFile(ctx, rep.out, results, opt); err != nil {
+						fmt.Fprintf(env.Stderr, "dimerpath compare: %v\n", err)
+						return ExitFailure
+					}
+					fmt.Fprintf(env.Stderr, "dimerpath compare: wrote %s\n", rep.out)
+				}
 				failed := false
 				for _, r := range results {
 					if r.Err != nil {

@@ -8,7 +8,6 @@ import (
 	"flag"
 	"fmt"
 	"os"
-	"os/signal"
 	"slices"
 	"strings"
 	"time"
@@ -80,7 +79,7 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	if err != nil {
 		return fail("%v", err)
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	ctx, stop := interruptible()
 	defer stop()
 
 	var p *planner.Plan
@@ -116,7 +115,7 @@ func runExport(env Env, args []string, fl exportFlags) int {
 		size = fmt.Sprintf(", %d bytes", st.Size())
 	}
 	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, expected %s%s)\n",
-		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), formatClock(p.TotalS), size)
+		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), fmtDuration(p.TotalS), size)
 	return ExitOK
 }
 
@@ -130,7 +129,8 @@ func isPlanFile(data []byte) bool {
 }
 
 // planDesign plans the chosen variant of the design in data, reporting
-// each planning stage on stderr, and returns the plan and its pattern.
+// the planning stages on stderr when it takes a while, and returns the
+// plan and its pattern.
 func planDesign(ctx context.Context, env Env, name string, data []byte, fl exportFlags) (*planner.Plan, *export.Pattern, error) {
 	d, err := design.Parse(name, data)
 	if err != nil {
@@ -144,23 +144,13 @@ func planDesign(ctx context.Context, env Env, name string, data []byte, fl expor
 	if err != nil {
 		return nil, nil, err
 	}
-	stage := ""
-	p, err := planner.Build(ctx, d, layout.Variant.Name, prof, planner.Options{Seed: fl.seed, Progress: func(s string, f float64) {
-		if s != stage {
-			stage = s
-			fmt.Fprintf(env.Stderr, "dimerpath export: planning: %s\n", s)
-		}
-	}})
+	prog := newProgress(env.Stderr, "export")
+	p, err := planner.Build(ctx, d, layout.Variant.Name, prof, planner.Options{Seed: fl.seed, Progress: prog.report})
+	prog.done()
 	if err != nil {
 		return nil, nil, fmt.Errorf("%s, variant %s: %w", name, layout.Variant.Name, err)
 	}
 	return p, export.PatternOf(layout), nil
-}
-
-// formatClock formats seconds as h:mm:ss.
-func formatClock(s float64) string {
-	t := int64(s + 0.5)
-	return fmt.Sprintf("%d:%02d:%02d", t/3600, t/60%60, t%60)
 }
 
 // reportFlags are the -o, --paper and --date flags of the commands that

@@ -10,13 +10,9 @@ import (
 	"dimerpath/planner"
 )
 
-// VariantResult is one variant's outcome for the comparison report: its
-// plan, or why it could not be planned (for example a *planner.LimitError).
-type VariantResult struct {
-	Variant string
-	Plan    *planner.Plan // nil when Err is set
-	Err     error
-}
+// VariantResult is one variant's outcome for the comparison report, as
+// planner.Compare returns it: its plan, or why it could not be planned.
+type VariantResult = planner.VariantResult
 
 // ResultsOf wraps plans as results, one per plan, named by their variant.
 func ResultsOf(plans []*planner.Plan) []VariantResult {

@@ -39,6 +39,7 @@ func (c *BarChart) SetBars(bars []Bar) {
 	c.Refresh()
 }
 
+// CreateRenderer implements fyne.Widget.
 func (c *BarChart) CreateRenderer() fyne.WidgetRenderer {
 	r := &barRenderer{c: c}
 	r.rebuild()

@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/bits"
 	"slices"
+	"sort"
 	"unsafe"
 
 	"github.com/golang/geo/r2"
@@ -86,13 +87,13 @@ type Renderer struct {
 	terr  []int8   // terrace index per pixel, -1 none, -2 outside the field
 	total []uint32 // painted sites per pixel, all layers
 	best  []uint32 // the largest single layer's count per pixel
-	owner []uint8  // 1 + index of that layer, 0 for none
+	owner []uint16 // 1 + index of that layer, 0 for none
 	line  []uint32 // one layer's counts along one pixel row
 
 	tabs  []axisTables
 	xs    []float64 // scanline crossings, reused
 	lut   []uint32  // layer colours by coverage level
-	grid  []uint8   // atomic mode: owner per visible site
+	grid  []uint16  // atomic mode: owner per visible site
 	alut  []uint32  // atomic mode: dot, bond, tint per layer
 	bg    *backgrounds
 	stats FrameStats
@@ -107,6 +108,9 @@ type FrameStats struct {
 // coverage levels: a pixel's share of painted sites is shown in this
 // many steps.
 const levels = 16
+
+// maxLayers is the most regions a frame draws (owners are 16-bit).
+const maxLayers = 1<<16 - 1
 
 // axisTables holds, for one terrace, the lattice range each pixel column
 // and pixel row covers. For a RowsAlongX terrace the columns give site
@@ -181,7 +185,7 @@ func (r *Renderer) resize(w, h int) {
 	r.terr = make([]int8, n)
 	r.total = make([]uint32, n)
 	r.best = make([]uint32, n)
-	r.owner = make([]uint8, n)
+	r.owner = make([]uint16, n)
 	r.line = make([]uint32, w)
 }
 
@@ -373,6 +377,23 @@ func grow[T any](s []T, n int) []T {
 	return s[:n]
 }
 
+// rowSpan returns the index of the first set bit of a row bitset and one
+// past its last, or -1, -1 for an empty row.
+func rowSpan(w []uint64) (first, last int) {
+	i := 0
+	for i < len(w) && w[i] == 0 {
+		i++
+	}
+	if i == len(w) {
+		return -1, -1
+	}
+	j := len(w) - 1
+	for w[j] == 0 {
+		j--
+	}
+	return i*64 + bits.TrailingZeros64(w[i]), j*64 + 64 - bits.LeadingZeros64(w[j])
+}
+
 // countRange returns the number of set bits [lo, hi) of a row bitset.
 func countRange(w []uint64, lo, hi int) uint32 {
 	n := len(w) * 64
@@ -422,7 +443,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 	clear(r.owner)
 	nt := len(sc.Surface.Terraces)
 	for li, L := range sc.Layers {
-		if L.Sites == nil || li >= 255 {
+		if L.Sites == nil || li >= maxLayers {
 			continue
 		}
 		x0, y0, x1, y1 := screenBox(L.Bounds, v)
@@ -450,15 +471,32 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 					}
 					for row := int(rr.lo); row < hi; row++ {
 						words := L.Sites.Row(t, row)
-						if len(words) == 0 {
+						first, last := rowSpan(words)
+						if first < 0 {
 							continue
 						}
-						for x := x0; x < x1; x++ {
+						// Only the pixels over the row's painted span: along
+						// grows with x on a RowsAlongX terrace.
+						xa := x0 + sort.Search(x1-x0, func(i int) bool { return int(tb.along[x0+i].hi) > first })
+						xb := x0 + sort.Search(x1-x0, func(i int) bool { return int(tb.along[x0+i].lo) >= last })
+						n := len(words) * 64
+						for x := xa; x < xb; x++ {
 							if int(terr[x]) != t {
 								continue
 							}
 							a := tb.along[x]
-							if c := countRange(words, int(a.lo), int(a.hi)); c != 0 {
+							lo, hi := int(a.lo), min(int(a.hi), n)
+							if lo >= hi {
+								continue
+							}
+							var c uint32
+							if k := lo >> 6; k == (hi-1)>>6 {
+								// The common case, one word: inline.
+								c = uint32(bits.OnesCount64(words[k] >> (uint(lo) & 63) & (^uint64(0) >> (64 - uint(hi-lo)))))
+							} else {
+								c = countRange(words, lo, hi)
+							}
+							if c != 0 {
 								line[x] += c
 								any = true
 							}
@@ -498,7 +536,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 					r.total[i] += c
 					if c > r.best[i] {
 						r.best[i] = c
-						r.owner[i] = uint8(li + 1)
+						r.owner[i] = uint16(li + 1)
 					}
 				}
 			}
@@ -676,7 +714,7 @@ func (r *Renderer) drawAtomic(sc *Scene, v View) {
 	r.grid = grow(r.grid, total)
 	clear(r.grid)
 	for li, L := range sc.Layers {
-		if L.Sites == nil || li >= 255 {
+		if L.Sites == nil || li >= maxLayers {
 			continue
 		}
 		for t := 0; t < min(nt, L.Sites.TerraceCount()); t++ {
@@ -695,7 +733,7 @@ func (r *Renderer) drawAtomic(sc *Scene, v View) {
 						word &= word - 1
 						idx := k<<6 + b
 						if idx >= tb.i0 && idx <= tb.i1 {
-							g[idx-tb.i0] = uint8(li + 1)
+							g[idx-tb.i0] = uint16(li + 1)
 						}
 					}
 				}

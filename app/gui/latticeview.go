@@ -228,6 +228,7 @@ func (lv *LatticeView) MouseDown(ev *desktop.MouseEvent) {
 	}
 }
 
+// MouseUp forgets the button pressed.
 func (lv *LatticeView) MouseUp(ev *desktop.MouseEvent) {
 	lv.button = 0
 	lv.rightAt = nil
@@ -274,6 +275,7 @@ func (lv *LatticeView) Tapped(ev *fyne.PointEvent) {
 // and the tool previews; a right-button drag pans.
 func (lv *LatticeView) MouseIn(ev *desktop.MouseEvent) { lv.MouseMoved(ev) }
 
+// MouseMoved reports the pointer and pans during a right-button drag.
 func (lv *LatticeView) MouseMoved(ev *desktop.MouseEvent) {
 	if ev.Button == desktop.MouseButtonSecondary && lv.rightAt != nil {
 		d := ev.Position.Subtract(*lv.rightAt)
@@ -286,6 +288,7 @@ func (lv *LatticeView) MouseMoved(ev *desktop.MouseEvent) {
 	lv.s.Hover(lv.FieldAt(ev.Position))
 }
 
+// MouseOut clears the pointer readout and previews.
 func (lv *LatticeView) MouseOut() {
 	lv.s.Unhover()
 	if lv.OnCursor != nil {
@@ -299,16 +302,21 @@ func (lv *LatticeView) cursor(p fyne.Position) {
 	}
 }
 
-// FocusGained, FocusLost, TypedRune and TypedKey make the view
-// focusable, so that keys typed after clicking it reach the tool
-// shortcuts rather than the last text field.
+// FocusGained makes the view focusable, so that keys typed after
+// clicking it reach the tool shortcuts rather than the last text field.
 func (lv *LatticeView) FocusGained() { lv.focused = true }
-func (lv *LatticeView) FocusLost()   { lv.focused = false }
+
+// FocusLost implements fyne.Focusable.
+func (lv *LatticeView) FocusLost() { lv.focused = false }
+
+// TypedRune passes a typed character to OnRune.
 func (lv *LatticeView) TypedRune(r rune) {
 	if lv.OnRune != nil {
 		lv.OnRune(r)
 	}
 }
+
+// TypedKey passes a typed key to OnKey.
 func (lv *LatticeView) TypedKey(k *fyne.KeyEvent) {
 	if lv.OnKey != nil {
 		lv.OnKey(k)

@@ -526,7 +526,11 @@ func newMarksPanel(u *UI) *marksPanel {
 	p := &marksPanel{u: u, fidSel: -1, terrSel: -1}
 	p.fids = widget.NewList(
 		func() int { return len(p.u.S.Design().Fiducials) },
-		func() fyne.CanvasObject { return widget.NewLabel("F1 at (0000.00, 0000.00) nm") },
+		func() fyne.CanvasObject {
+			l := widget.NewLabel("F1 at (0000.00, 0000.00) nm")
+			l.Truncation = fyne.TextTruncateEllipsis
+			return l
+		},
 		func(i widget.ListItemID, o fyne.CanvasObject) {
 			fs := p.u.S.Design().Fiducials
 			if i < len(fs) {
@@ -551,7 +555,11 @@ func newMarksPanel(u *UI) *marksPanel {
 
 	p.terrs = widget.NewList(
 		func() int { return len(p.u.S.Design().Terraces) },
-		func() fyne.CanvasObject { return widget.NewLabel("T0: rows along x, outline of 00 points") },
+		func() fyne.CanvasObject {
+			l := widget.NewLabel("T0: rows along x, outline of 00 points")
+			l.Truncation = fyne.TextTruncateEllipsis
+			return l
+		},
 		func(i widget.ListItemID, o fyne.CanvasObject) {
 			ts := p.u.S.Design().Terraces
 			if i < len(ts) {

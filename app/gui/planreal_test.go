@@ -80,3 +80,25 @@ func TestPlanButtonPlansDemo(t *testing.T) {
 		t.Error("comparison shows no dialog")
 	}
 }
+
+// TestCancelPlanning cancels a plan just started: nothing is planned, the
+// status says so, and the progress bar goes away.
+func TestCancelPlanning(t *testing.T) {
+	u, _ := newTestUI(t, demoSession(t))
+	waitJob(t, u, func() {
+		u.StartPlan()
+		if !u.Busy() || u.progressBox.Hidden {
+			t.Error("no progress shown while planning")
+		}
+		u.cancelPlan()
+	})
+	if p, _ := u.S.Plan(); p != nil {
+		t.Error("a cancelled plan was shown")
+	}
+	if got := u.hintLabel.Text; got != "Planning cancelled." {
+		t.Errorf("status %q after cancelling", got)
+	}
+	if u.Busy() || !u.progressBox.Hidden {
+		t.Error("still busy after cancelling")
+	}
+}

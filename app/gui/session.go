@@ -343,16 +343,21 @@ func (s *Session) commit(label, key string, c Change) {
 	s.notify(c | ChangeFile | ChangeHistory | ChangePlan | ChangeFindings)
 }
 
-// CanUndo and CanRedo report whether there is an edit to undo or redo;
-// UndoLabel and RedoLabel name it.
+// CanUndo reports whether there is an edit to undo.
 func (s *Session) CanUndo() bool { return s.hist.pos > 0 }
+
+// CanRedo reports whether there is an undone edit to redo.
 func (s *Session) CanRedo() bool { return s.hist.pos < len(s.hist.states)-1 }
+
+// UndoLabel names the edit Undo would revert, or "".
 func (s *Session) UndoLabel() string {
 	if !s.CanUndo() {
 		return ""
 	}
 	return s.hist.states[s.hist.pos].label
 }
+
+// RedoLabel names the edit Redo would reapply, or "".
 func (s *Session) RedoLabel() string {
 	if !s.CanRedo() {
 		return ""
@@ -532,8 +537,7 @@ func (s *Session) RenameRegion(i int, name string) error {
 	return nil
 }
 
-// SetRegionRole, SetRegionMode and SetRegionSpecies change one property
-// of region i.
+// SetRegionRole sets region i's role in the device.
 func (s *Session) SetRegionRole(i int, role design.Role) {
 	s.setRegion(i, "role", func(r *design.Region) bool {
 		if r.Role == role {
@@ -544,6 +548,7 @@ func (s *Session) SetRegionRole(i int, role design.Role) {
 	})
 }
 
+// SetRegionMode sets the write mode asked for region i.
 func (s *Session) SetRegionMode(i int, mode design.Mode) {
 	s.setRegion(i, "mode", func(r *design.Region) bool {
 		if r.Mode == mode {
@@ -554,6 +559,7 @@ func (s *Session) SetRegionMode(i int, mode design.Mode) {
 	})
 }
 
+// SetRegionSpecies sets region i's dopant species ("P", "As" or "").
 func (s *Session) SetRegionSpecies(i int, species string) {
 	s.setRegion(i, "species", func(r *design.Region) bool {
 		if r.Species == species {

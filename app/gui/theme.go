@@ -14,6 +14,7 @@ type labTheme struct{ fyne.Theme }
 
 func newLabTheme() fyne.Theme { return labTheme{theme.DefaultTheme()} }
 
+// Color returns the dark variant's colour of every name.
 func (t labTheme) Color(n fyne.ThemeColorName, _ fyne.ThemeVariant) color.Color {
 	return t.Theme.Color(n, theme.VariantDark)
 }

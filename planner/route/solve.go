@@ -68,6 +68,9 @@ var kickSegMax int32 = 100
 
 func (c *control) heuristic(items []Item, start *Point, closed bool, deadline time.Time, kicks int) ([]int, []bool, error) {
 	g := newGraph(items, start, !closed)
+	if g.n() > spatialOrderMin {
+		g = g.spatiallyOrdered()
+	}
 	k := 10
 	if g.n() > 200_000 {
 		k = 8
@@ -93,8 +96,7 @@ func (c *control) heuristic(items []Item, start *Point, closed bool, deadline ti
 	if s.n > 100_000 {
 		s.maxRev = 50_000
 	}
-	// The 3-opt moves' flips are not bounded by maxRev.
-	s.or3 = s.maxRev >= s.n
+	s.or3 = true
 	fixedLen := 0.0
 	for v := range int32(g.real) {
 		if p := g.partner[v]; p > v && p != g.dummy {
@@ -214,11 +216,11 @@ func (s *solver) extract() ([]int, []bool) {
 // tourFromOrder is the node tour that writes the items in order, each
 // from its entry end, after the dummy and the start.
 func (g *graph) tourFromOrder(order []int, rev []bool) []int32 {
-	// node of each item's A end: items are numbered in node order.
-	first := make([]int32, 0, len(order))
+	// The node of each item's A end.
+	first := make([]int32, len(order))
 	for v := range int32(g.real) {
 		if it := g.item[v]; it >= 0 && g.end[v] == 0 {
-			first = append(first, v)
+			first[it] = v
 		}
 	}
 	t := make([]int32, 0, g.n())
