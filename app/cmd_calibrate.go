@@ -29,11 +29,11 @@ or a preset name, rt or lt; default rt), and the result is written to -o for
 			mode := fs.String("mode", "", "fit this `MODE` only (ap or fe); without a mode column the default is ap")
 			return func(env Env, args []string) int {
 				if len(args) != 1 {
-					fmt.Fprintln(env.Stderr, "calibrate: give one measurement file (MEAS.csv)")
+					fmt.Fprintln(env.Stderr, "dimerpath calibrate: give one measurement file (MEAS.csv)")
 					return ExitFailure
 				}
 				if *out == "" {
-					fmt.Fprintln(env.Stderr, "calibrate: -o PROFILE.json is required")
+					fmt.Fprintln(env.Stderr, "dimerpath calibrate: -o PROFILE.json is required")
 					return ExitFailure
 				}
 				var m planner.WriteMode
@@ -44,23 +44,23 @@ or a preset name, rt or lt; default rt), and the result is written to -o for
 				case "fe":
 					m = planner.FE
 				default:
-					fmt.Fprintf(env.Stderr, "calibrate: --mode %q: want ap or fe\n", *mode)
+					fmt.Fprintf(env.Stderr, "dimerpath calibrate: --mode %q: want ap or fe\n", *mode)
 					return ExitFailure
 				}
 				prof, err := loadProfileArg(*base)
 				if err != nil {
-					fmt.Fprintln(env.Stderr, "calibrate:", err)
+					fmt.Fprintln(env.Stderr, "dimerpath calibrate:", err)
 					return ExitFailure
 				}
 				f, err := os.Open(args[0])
 				if err != nil {
-					fmt.Fprintln(env.Stderr, "calibrate:", err)
+					fmt.Fprintln(env.Stderr, "dimerpath calibrate:", err)
 					return ExitFailure
 				}
 				ms, err := planner.ReadMeasurements(f, args[0])
 				f.Close()
 				if err != nil {
-					fmt.Fprintln(env.Stderr, "calibrate:", err)
+					fmt.Fprintln(env.Stderr, "dimerpath calibrate:", err)
 					return ExitFailure
 				}
 				cal, fits, err := planner.Calibrate(prof, ms, m, args[0])
@@ -68,12 +68,12 @@ or a preset name, rt or lt; default rt), and the result is written to -o for
 					printFit(env, fit)
 				}
 				if err != nil {
-					fmt.Fprintln(env.Stderr, "calibrate:", err)
-					fmt.Fprintln(env.Stderr, "calibrate: no profile written")
+					fmt.Fprintln(env.Stderr, "dimerpath calibrate:", err)
+					fmt.Fprintln(env.Stderr, "dimerpath calibrate: no profile written")
 					return ExitFailure
 				}
 				if err := planner.SaveProfile(*out, cal); err != nil {
-					fmt.Fprintln(env.Stderr, "calibrate:", err)
+					fmt.Fprintln(env.Stderr, "dimerpath calibrate:", err)
 					return ExitFailure
 				}
 				fmt.Fprintf(env.Stdout, "wrote %s (use it with: dimerpath plan DESIGN.json --profile %s)\n", *out, *out)
@@ -103,7 +103,7 @@ func printFit(env Env, fit planner.WidthFit) {
 		tw.Flush()
 	}
 	for _, warn := range fit.Warnings {
-		fmt.Fprintln(env.Stderr, "calibrate: warning:", warn)
+		fmt.Fprintln(env.Stderr, "dimerpath calibrate: warning:", warn)
 	}
 }
 

@@ -8,7 +8,6 @@ import (
 	"flag"
 	"fmt"
 	"os"
-	"os/signal"
 	"slices"
 	"strings"
 	"time"
@@ -39,12 +38,10 @@ is interrupted (Ctrl-C) leaves no partial file and any earlier file as it was.
 Exit status 0 written, 2 anything else.`,
 		Flags: func(fs *flag.FlagSet) func(Env, []string) int {
 			var fl exportFlags
-			fs.StringVar(&fl.out, "o", "", "output `FILE` (.pdf, .svg, .json or .csv)")
+			fl.report.declare(fs, "output `FILE` (.pdf, .svg, .json or .csv)")
 			fs.StringVar(&fl.variant, "variant", "", "plan the variant `NAME` (default: the first)")
 			fs.StringVar(&fl.profile, "profile", "", "instrument profile: a file `P.json`, or a built-in preset rt or lt (default: rt)")
-			fs.StringVar(&fl.paper, "paper", "a4", "PDF page size: `a4` or letter")
 			fs.Int64Var(&fl.seed, "seed", 1, "seed of the plan's random choices (same design, profile and seed: same plan)")
-			fs.StringVar(&fl.date, "date", "", "date printed on the PDF, `YYYY-MM-DD` (default: today)")
 			return func(env Env, args []string) int {
 				fl.set = map[string]bool{}
 				fs.Visit(func(f *flag.Flag) { fl.set[f.Name] = true })
@@ -55,9 +52,10 @@ Exit status 0 written, 2 anything else.`,
 }
 
 type exportFlags struct {
-	out, variant, profile, paper, date string
-	seed                               int64
-	set                                map[string]bool // flags given on the command line
+	report           reportFlags
+	variant, profile string
+	seed             int64
+	set              map[string]bool // flags given on the command line
 }
 
 func runExport(env Env, args []string, fl exportFlags) int {
@@ -68,32 +66,22 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	if len(args) != 1 {
 		return fail("want one design or plan file, got %d (dimerpath export --help)", len(args))
 	}
-	if fl.out == "" {
+	if fl.report.out == "" {
 		return fail("-o FILE is required: the output file, .pdf, .svg, .json or .csv")
 	}
 	// Refuse a bad output name or flag before any planning.
-	if _, err := export.FormatFromPath(fl.out); err != nil {
-		return fail("%v", err)
-	}
-	paper, err := export.ParsePaper(fl.paper)
+	opt, err := fl.report.options(export.FormatPDF, export.FormatSVG, export.FormatJSON, export.FormatCSV)
 	if err != nil {
-		return fail("--paper: %v", err)
-	}
-	date := time.Now()
-	if fl.date != "" {
-		if date, err = time.Parse("2006-01-02", fl.date); err != nil {
-			return fail("--date %q: want YYYY-MM-DD", fl.date)
-		}
+		return fail("%v", err)
 	}
 	in := args[0]
 	data, err := os.ReadFile(in)
 	if err != nil {
 		return fail("%v", err)
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	ctx, stop := interruptible()
 	defer stop()
 
-	opt := export.Options{Paper: paper, Date: date, Generator: "dimerpath " + Version}
 	var p *planner.Plan
 	if isPlanFile(data) {
 		for _, name := range []string{"variant", "profile", "seed"} {
@@ -116,18 +104,18 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	}
 
 	fmt.Fprintln(env.Stderr, planner.Caution)
-	if err := export.WriteFile(ctx, fl.out, p, opt); err != nil {
+	if err := export.WriteFile(ctx, fl.report.out, p, opt); err != nil {
 		if errors.Is(err, context.Canceled) {
-			return fail("interrupted: %s was not written", fl.out)
+			return fail("interrupted: %s was not written", fl.report.out)
 		}
 		return fail("%v", err)
 	}
 	size := ""
-	if st, err := os.Stat(fl.out); err == nil {
+	if st, err := os.Stat(fl.report.out); err == nil {
 		size = fmt.Sprintf(", %d bytes", st.Size())
 	}
 	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, expected %s%s)\n",
-		fl.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), formatClock(p.TotalS), size)
+		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), fmtDuration(p.TotalS), size)
 	return ExitOK
 }
 
@@ -141,7 +129,8 @@ func isPlanFile(data []byte) bool {
 }
 
 // planDesign plans the chosen variant of the design in data, reporting
-// each planning stage on stderr, and returns the plan and its pattern.
+// the planning stages on stderr when it takes a while, and returns the
+// plan and its pattern.
 func planDesign(ctx context.Context, env Env, name string, data []byte, fl exportFlags) (*planner.Plan, *export.Pattern, error) {
 	d, err := design.Parse(name, data)
 	if err != nil {
@@ -151,38 +140,60 @@ func planDesign(ctx context.Context, env Env, name string, data []byte, fl expor
 	if err != nil {
 		return nil, nil, fmt.Errorf("%s: %w", name, err)
 	}
-	prof, err := exportProfile(fl.profile)
+	prof, err := loadProfileArg(fl.profile)
 	if err != nil {
 		return nil, nil, err
 	}
-	stage := ""
-	p, err := planner.Build(ctx, d, layout.Variant.Name, prof, planner.Options{Seed: fl.seed, Progress: func(s string, f float64) {
-		if s != stage {
-			stage = s
-			fmt.Fprintf(env.Stderr, "dimerpath export: planning: %s\n", s)
-		}
-	}})
+	prog := newProgress(env.Stderr, "export")
+	p, err := planner.Build(ctx, d, layout.Variant.Name, prof, planner.Options{Seed: fl.seed, Progress: prog.report})
+	prog.done()
 	if err != nil {
 		return nil, nil, fmt.Errorf("%s, variant %s: %w", name, layout.Variant.Name, err)
 	}
 	return p, export.PatternOf(layout), nil
 }
 
-// exportProfile returns the instrument profile named by the --profile
-// value: a profile file, a built-in preset ("rt", "lt"), or, when empty,
-// the default profile.
-func exportProfile(name string) (planner.Profile, error) {
-	if name == "" {
-		return planner.DefaultProfile(), nil
-	}
-	if _, err := os.Stat(name); err == nil || !slices.Contains(planner.Presets(), strings.ToLower(name)) {
-		return planner.LoadProfile(name)
-	}
-	return planner.Preset(name)
+// reportFlags are the -o, --paper and --date flags of the commands that
+// write files (export, compare).
+type reportFlags struct {
+	out, paper, date string
 }
 
-// formatClock formats seconds as h:mm:ss.
-func formatClock(s float64) string {
-	t := int64(s + 0.5)
-	return fmt.Sprintf("%d:%02d:%02d", t/3600, t/60%60, t%60)
+func (r *reportFlags) declare(fs *flag.FlagSet, outHelp string) {
+	fs.StringVar(&r.out, "o", "", outHelp)
+	fs.StringVar(&r.paper, "paper", "a4", "PDF page size: `a4` or letter")
+	fs.StringVar(&r.date, "date", "", "date printed on the PDF, `YYYY-MM-DD` (default: today)")
+}
+
+// options checks the flags, the output's format among formats, and
+// returns the export options they give.
+func (r *reportFlags) options(formats ...export.Format) (export.Options, error) {
+	opt := export.Options{Date: time.Now(), Generator: "dimerpath " + Version}
+	var err error
+	if r.out != "" {
+		f, err := export.FormatFromPath(r.out)
+		if err != nil {
+			return opt, err
+		}
+		if !slices.Contains(formats, f) {
+			return opt, fmt.Errorf("-o %s: %w: this command writes %s", r.out, export.ErrFormat, formatList(formats))
+		}
+	}
+	if opt.Paper, err = export.ParsePaper(r.paper); err != nil {
+		return opt, fmt.Errorf("--paper: %w", err)
+	}
+	if r.date != "" {
+		if opt.Date, err = time.Parse("2006-01-02", r.date); err != nil {
+			return opt, fmt.Errorf("--date %q: want YYYY-MM-DD", r.date)
+		}
+	}
+	return opt, nil
+}
+
+func formatList(fs []export.Format) string {
+	var names []string
+	for _, f := range fs {
+		names = append(names, "."+string(f))
+	}
+	return strings.Join(names, " or ")
 }

@@ -107,3 +107,59 @@ func TestExportRefuses(t *testing.T) {
 		t.Errorf("refused exports left files: %v", entries)
 	}
 }
+
+func TestExportDemoDesign(t *testing.T) {
+	dir := t.TempDir()
+	a, b := filepath.Join(dir, "a.json"), filepath.Join(dir, "b.json")
+	for _, out := range []string{a, b} {
+		_, errs, code := runMain(t, "export", "../assets/demo.json", "-o", out, "--variant", "gap-12-source", "--seed", "7")
+		if code != ExitOK {
+			t.Fatalf("exit %d, stderr:\n%s", code, errs)
+		}
+		// The caution, then the report of the file.
+		c, w := strings.Index(errs, planner.Caution), strings.Index(errs, "wrote "+out)
+		if c < 0 || w < c {
+			t.Errorf("stderr order wrong:\n%s", errs)
+		}
+	}
+	da, _ := os.ReadFile(a)
+	db, _ := os.ReadFile(b)
+	if len(da) == 0 || !bytes.Equal(da, db) {
+		t.Error("the same design, variant, profile and seed gave different plan files")
+	}
+	p, err := export.ReadPlanFile(a)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.Variant != "gap-12-source" || p.Seed != 7 || len(p.Segments) == 0 {
+		t.Errorf("plan of variant %q, seed %d, %d segments", p.Variant, p.Seed, len(p.Segments))
+	}
+	// The low-temperature preset drifts less: no more segments than at
+	// room temperature.
+	lt := filepath.Join(dir, "lt.json")
+	if _, errs, code := runMain(t, "export", "../assets/demo.json", "-o", lt, "--variant", "gap-12-source", "--profile", "lt"); code != ExitOK {
+		t.Fatalf("--profile lt: exit %d\n%s", code, errs)
+	}
+	q, err := export.ReadPlanFile(lt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(q.Segments) > len(p.Segments) || q.Profile == p.Profile {
+		t.Errorf("lt profile %q: %d segments, rt %q: %d", q.Profile, len(q.Segments), p.Profile, len(p.Segments))
+	}
+	for _, tc := range []struct {
+		args []string
+		msg  string
+	}{
+		{[]string{"--variant", "nope"}, `no variant "nope"`},
+		{[]string{"--profile", filepath.Join(dir, "missing.json")}, "missing.json"},
+	} {
+		args := append([]string{"export", "../assets/demo.json", "-o", filepath.Join(dir, "x.pdf")}, tc.args...)
+		if _, errs, code := runMain(t, args...); code != ExitFailure || !strings.Contains(errs, tc.msg) {
+			t.Errorf("%v: exit %d, stderr %q; want %q", tc.args, code, errs, tc.msg)
+		}
+	}
+	if _, err := os.Stat(filepath.Join(dir, "x.pdf")); !os.IsNotExist(err) {
+		t.Error("a refused export wrote its file")
+	}
+}

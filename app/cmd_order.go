@@ -113,11 +113,25 @@ func runOrder(env Env, args []string, fl orderFlags) int {
 	if fl.kicks > 0 {
 		opt.Budget = 0
 	}
+	clearStatus := func() {}
+	if f, ok := env.Stderr.(*os.File); ok && isTerminal(f) {
+		// A live status line on a terminal; nothing when stderr is a
+		// file or a pipe.
+		var last time.Time
+		opt.Progress = func(pr route.Progress) {
+			if now := time.Now(); now.Sub(last) > 250*time.Millisecond {
+				last = now
+				fmt.Fprintf(f, "\r\033[Korder: %s, travel %s, %.1f s", pr.Phase, fmtLen(pr.Length), pr.Elapsed.Seconds())
+			}
+		}
+		clearStatus = func() { fmt.Fprint(f, "\r\033[K") }
+	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 	t0 := time.Now()
 	sol, err := route.Solve(ctx, p, opt)
 	elapsed := time.Since(t0)
+	clearStatus()
 	if err != nil && sol.Order == nil {
 		return fail("%v", err)
 	}
@@ -178,6 +192,11 @@ func runOrder(env Env, args []string, fl orderFlags) int {
 	}
 	fmt.Fprintf(w, "solved in      %.2f s\n", elapsed.Seconds())
 	return ExitOK
+}
+
+func isTerminal(f *os.File) bool {
+	fi, err := f.Stat()
+	return err == nil && fi.Mode()&os.ModeCharDevice != 0
 }
 
 func fmtLen(v float64) string { return strconv.FormatFloat(v, 'f', 3, 64) }

@@ -6,16 +6,13 @@ import (
 	"io"
 	"math"
 
+	"dimerpath/internal/atomicfile"
 	"dimerpath/planner"
 )
 
-// VariantResult is one variant's outcome for the comparison report: its
-// plan, or why it could not be planned (for example a *planner.LimitError).
-type VariantResult struct {
-	Variant string
-	Plan    *planner.Plan // nil when Err is set
-	Err     error
-}
+// VariantResult is one variant's outcome for the comparison report, as
+// planner.Compare returns it: its plan, or why it could not be planned.
+type VariantResult = planner.VariantResult
 
 // ResultsOf wraps plans as results, one per plan, named by their variant.
 func ResultsOf(plans []*planner.Plan) []VariantResult {
@@ -53,7 +50,7 @@ func checkResults(rs []VariantResult) (string, error) {
 // compareRows returns the comparison table: a header and one row per
 // variant.
 func compareRows(rs []VariantResult) [][]string {
-	rows := [][]string{{"Variant", "Expected", "P10 – P90", "Segments", "Strokes", "Windows", "All good", "Mean good", "Devices per perfect one"}}
+	rows := [][]string{{"Variant", "Expected", "P10 – P90", "By hand", "Segments", "Strokes", "Windows", "All good", "Mean good", "Devices per perfect one"}}
 	for _, r := range rs {
 		if r.Plan == nil {
 			rows = append(rows, []string{r.Variant, "not planned: " + r.Err.Error()})
@@ -75,7 +72,11 @@ func compareRows(rs []VariantResult) [][]string {
 			all = allGood(p.Yield)
 			mean = fmt.Sprintf("%s of %s", sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))
 		}
-		rows = append(rows, []string{r.Variant, clock(p.TotalS), clock(p.P10S) + " – " + clock(p.P90S),
+		byHand := "–"
+		if p.ByHandS > 0 {
+			byHand = clock(p.ByHandS)
+		}
+		rows = append(rows, []string{r.Variant, clock(p.TotalS), clock(p.P10S) + " – " + clock(p.P90S), byHand,
 			thousands(len(p.Segments)), thousands(len(p.Strokes)), thousands(len(p.Windows)), all, mean, dpp})
 	}
 	return rows
@@ -299,15 +300,16 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 
 	rows := compareRows(results)
 	t := newTable(d, font{size: 7.5},
-		tableColumn{title: rows[0][0], share: 14},
+		tableColumn{title: rows[0][0], share: 13},
 		tableColumn{title: rows[0][1], share: 9, right: true},
-		tableColumn{title: rows[0][2], share: 15, right: true},
+		tableColumn{title: rows[0][2], share: 14, right: true},
 		tableColumn{title: rows[0][3], share: 9, right: true},
 		tableColumn{title: rows[0][4], share: 9, right: true},
-		tableColumn{title: rows[0][5], share: 9, right: true},
+		tableColumn{title: rows[0][5], share: 8, right: true},
 		tableColumn{title: rows[0][6], share: 8, right: true},
-		tableColumn{title: rows[0][7], share: 11, right: true},
+		tableColumn{title: rows[0][7], share: 8, right: true},
 		tableColumn{title: rows[0][8], share: 11, right: true},
+		tableColumn{title: rows[0][9], share: 11, right: true},
 	)
 	d.heading("Summary", 20)
 	t.start()
@@ -352,7 +354,7 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	inner := width - 2*margin
 	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
 	rows := compareRows(results)
-	cols := []float64{14, 9, 15, 9, 9, 9, 8, 11, 11}
+	cols := []float64{13, 9, 14, 9, 9, 8, 8, 8, 11, 11}
 	colW := make([]float64, len(cols))
 	total := 0.0
 	for _, c := range cols {
@@ -453,4 +455,24 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	c.hatchDefs()
 	c.raw("</svg>\n")
 	return c.err()
+}
+
+// WriteComparisonFile writes the comparison report to path, PDF or SVG
+// by its extension (any other is an error wrapping ErrFormat), through a
+// temporary file renamed into place (see WriteFile).
+func WriteComparisonFile(ctx context.Context, path string, results []VariantResult, opt Options) error {
+	f, err := FormatFromPath(path)
+	if err != nil {
+		return err
+	}
+	if f != FormatPDF && f != FormatSVG {
+		return fmt.Errorf("%s: %w: a comparison report is .pdf or .svg", path, ErrFormat)
+	}
+	return atomicfile.Write(path, 0o644, func(w io.Writer) error {
+		w = wrapWriter(w)
+		if f == FormatPDF {
+			return WriteComparisonPDF(ctx, w, results, opt)
+		}
+		return WriteComparisonSVG(w, results, opt)
+	})
 }

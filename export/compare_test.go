@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"errors"
+	"io"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -91,5 +92,34 @@ func TestComparisonRejects(t *testing.T) {
 		if err := WriteComparisonPDF(context.Background(), &bytes.Buffer{}, rs, Options{}); !errors.Is(err, ErrInvalid) {
 			t.Errorf("%s: WriteComparisonPDF = %v, want ErrInvalid", name, err)
 		}
+	}
+}
+
+func TestWriteComparisonFile(t *testing.T) {
+	dir := t.TempDir()
+	for _, name := range []string{"cmp.pdf", "cmp.svg"} {
+		if err := WriteComparisonFile(context.Background(), filepath.Join(dir, name), compareFixture(), Options{}); err != nil {
+			t.Errorf("%s: %v", name, err)
+		}
+	}
+	for _, name := range []string{"cmp.json", "cmp.csv", "cmp.txt"} {
+		err := WriteComparisonFile(context.Background(), filepath.Join(dir, name), compareFixture(), Options{})
+		if !errors.Is(err, ErrFormat) {
+			t.Errorf("%s: %v, want ErrFormat", name, err)
+		}
+	}
+	// A failing writer leaves the old report.
+	path := filepath.Join(dir, "cmp.pdf")
+	old, _ := os.ReadFile(path)
+	wrapWriter = func(w io.Writer) io.Writer { return &failingWriter{w: w, n: 2000} }
+	defer func() { wrapWriter = func(w io.Writer) io.Writer { return w } }()
+	if err := WriteComparisonFile(context.Background(), path, compareFixture(), Options{}); !errors.Is(err, errDiskFull) {
+		t.Fatalf("WriteComparisonFile with a failing disk = %v", err)
+	}
+	if now, _ := os.ReadFile(path); !bytes.Equal(now, old) {
+		t.Error("a failed report changed the earlier file")
+	}
+	if entries, _ := os.ReadDir(dir); len(entries) != 2 {
+		t.Errorf("%d files left, want the two reports", len(entries))
 	}
 }

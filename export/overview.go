@@ -43,8 +43,7 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 	}
 
 	drawRegions(c, sc, v, frame)
-	lab := &labeler{bounds: frame}
-	drawTerraces(c, sc, v, lab)
+	drawTerraceEdges(c, sc, v)
 
 	pts := make([]vec, 0, 16)
 	path := func(s *planner.Stroke) []vec {
@@ -102,6 +101,9 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 	}
 	c.endGroup()
 
+	// Labels go on top of the strokes, so nothing covers them.
+	lab := &labeler{bounds: frame}
+	drawTerraceLabels(c, sc, v, lab)
 	drawFiducials(c, p.Fiducials, v, lab)
 	res := overviewResult{}
 	c.group(tag{id: "segment-labels", class: "labels"}, penLabel, fillLabel)
@@ -172,14 +174,11 @@ func xmlID(s string) string {
 	return string(b)
 }
 
-// drawTerraces outlines the bounded terraces (the step edges) and labels
-// each terrace with its row direction. It records label boxes in lab
-// when lab is non-nil.
-func drawTerraces(c canvas, sc *scene, v view, lab *labeler) {
+// drawTerraceEdges outlines the bounded terraces: the step edges.
+func drawTerraceEdges(c canvas, sc *scene, v view) {
 	if sc.surf == nil {
 		return
 	}
-	frame := v.frame()
 	c.group(tag{id: "terraces", class: "terraces"}, penTerrace, noPaint)
 	for _, t := range sc.surf.Terraces {
 		if len(t.Boundary) < 3 {
@@ -191,6 +190,17 @@ func drawTerraces(c canvas, sc *scene, v view, lab *labeler) {
 		}
 		c.polyline(pts, true, penTerrace, noPaint, tag{class: "terrace"})
 	}
+	c.endGroup()
+}
+
+// drawTerraceLabels names each terrace and its row direction, in a free
+// place of lab.
+func drawTerraceLabels(c canvas, sc *scene, v view, lab *labeler) {
+	if sc.surf == nil {
+		return
+	}
+	frame := v.frame()
+	c.group(tag{id: "terrace-labels", class: "terraces"}, noPen, noPaint)
 	for i, t := range sc.surf.Terraces {
 		at, ok := terraceLabelPoint(sc.surf, i, v.win)
 		if !ok {
@@ -201,12 +211,10 @@ func drawTerraces(c canvas, sc *scene, v view, lab *labeler) {
 		w := c.textWidth(s, f)
 		p := v.pt(at)
 		b := box{p.x - w/2 - 0.8*c.mm(), p.y - textHeight(c, f)/2 - 0.8*c.mm(), w + 1.6*c.mm(), textHeight(c, f) + 1.6*c.mm()}
-		if !frame.contains(b) {
+		if !frame.contains(b) || !lab.free(b) {
 			continue
 		}
-		if lab != nil {
-			lab.block(b)
-		}
+		lab.block(b)
 		c.rect(b, noPen, solid(1), tag{class: "terrace-label"})
 		c.text(vec{p.x, b.bottom() - 0.8*c.mm()}, s, f, anchorMiddle, tag{class: "terrace-label"})
 	}
@@ -318,7 +326,7 @@ func drawAxes(c canvas, v view) {
 		}
 	}
 	c.text(vec{frame.right(), frame.bottom() + 2*textHeight(c, fontTick) + 3*u}, "x (nm)", fontTick, anchorEnd, tag{})
-	c.text(vec{frame.x - 1.8*u, frame.y - 1.5*u}, "y (nm)", fontTick, anchorEnd, tag{})
+	c.text(vec{frame.x, frame.y - 1.5*u}, "y (nm)", fontTick, anchorStart, tag{})
 	c.endGroup()
 }
 

@@ -180,6 +180,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	}
 	glance := [][2]string{
 		{"Expected write time", fmt.Sprintf("%s (%s)", clock(p.TotalS), duration(p.TotalS))},
+		{"Against the floor and by hand", floorLine(p)},
 		{"Spread", fmt.Sprintf("P10 %s · P50 %s · P90 %s", clock(p.P10S), clock(p.P50S), clock(p.P90S))},
 		{"Segments", segmentsLine(len(p.Segments), fidNames)},
 		{"Strokes", fmt.Sprintf("%s: %s", thousands(len(p.Strokes)), strokeSummary(p))},
@@ -198,26 +199,44 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 
 	d.heading("Tip conditions", 25)
 	t := newTable(d, fontBody,
-		tableColumn{title: "Mode", share: 14},
-		tableColumn{title: "Bias (V)", share: 9, right: true},
-		tableColumn{title: "Setpoint (nA)", share: 11, right: true},
-		tableColumn{title: "Line dose (mC/cm)", share: 12, right: true},
-		tableColumn{title: "Speed (nm/s)", share: 11, right: true},
-		tableColumn{title: "Line width (nm)", share: 11, right: true},
-		tableColumn{title: "Passes", share: 8, right: true},
-		tableColumn{title: "Pitch (nm)", share: 9, right: true},
+		tableColumn{title: "Mode", share: 25},
+		tableColumn{title: "Bias (V)", share: 8, right: true},
+		tableColumn{title: "Setpoint (nA)", share: 10, right: true},
+		tableColumn{title: "Line dose (mC/cm)", share: 10, right: true},
+		tableColumn{title: "Speed (nm/s) or dwell per point", share: 14, right: true},
+		tableColumn{title: "Line width (nm)", share: 10, right: true},
+		tableColumn{title: "Passes", share: 7, right: true},
+		tableColumn{title: "Pitch (nm)", share: 8, right: true},
 	)
 	t.start()
+	hasDwell := false
 	for _, cd := range p.Conditions {
-		pitch := ""
+		if cd.Kind == planner.StrokeDwell || (cd.SpeedNMPerS == 0 && cd.DwellS > 0) {
+			// Parking on single sites: no speed, dose or width, a dwell time.
+			hasDwell = true
+			dwell := "dwell " + sig(cd.DwellS, 3) + " s"
+			if cd.DwellCapS > 0 {
+				dwell += "\nat most " + sig(cd.DwellCapS, 3) + " s"
+			}
+			t.row(modeName(cd.Mode)+", dwell points", signedV(cd.BiasV), nanoAmps(cd.CurrentA), "–", dwell, "–", "–", "–")
+			continue
+		}
+		pitch := "–"
 		if cd.PitchNM > 0 {
 			pitch = sig(cd.PitchNM, 3)
 		}
-		t.row(modeName(cd.Mode), signedV(cd.BiasV), nanoAmps(cd.CurrentA), milliCoulombPerCm(cd.LineDoseCPerCm),
+		name := modeName(cd.Mode)
+		if cd.Kind != "" {
+			name += ", " + plural(kindNoun(cd.Kind), 2)
+		}
+		t.row(name, signedV(cd.BiasV), nanoAmps(cd.CurrentA), milliCoulombPerCm(cd.LineDoseCPerCm),
 			sig(cd.SpeedNMPerS, 4), sig(cd.LineWidthNM, 3), strconv.Itoa(cd.Passes), pitch)
 	}
-	for _, g := range dwellConditions(p) {
-		t.row(modeName(g.mode)+" dwell", signedV(g.bias), nanoAmps(g.current), "", fmt.Sprintf("%s s/point", sig(g.dwell, 3)), "", "", "")
+	if !hasDwell {
+		// An older plan without dwell conditions: take them from the actions.
+		for _, g := range dwellConditions(p) {
+			t.row(modeName(g.mode)+", dwell points", signedV(g.bias), nanoAmps(g.current), "–", "dwell "+sig(g.dwell, 3)+" s", "–", "–", "–")
+		}
 	}
 	t.end()
 
@@ -249,6 +268,24 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	d.para("Segments and strokes are numbered from 1 on paper; the JSON and CSV exports count them from 0. "+
 		"Positions are field coordinates in nm, origin at the lower-left corner of the scan field. "+
 		"Times are on the plan clock, from the start of the session.", font{size: 7.5, grey: 0.25})
+}
+
+// floorLine compares the plan with the physical floor (the writing
+// alone) and with the same work planned by hand.
+func floorLine(p *planner.Plan) string {
+	var parts []string
+	if p.FloorS > 0 {
+		parts = append(parts, fmt.Sprintf("%s× the physical floor of %s (writing alone, no travel, switches or registrations)",
+			sig(p.TotalS/p.FloorS, 3), clock(p.FloorS)))
+	}
+	if p.ByHandS > 0 {
+		parts = append(parts, fmt.Sprintf("planned by hand (regions in file order, rows in raster order, registrations at a fixed interval) it would take %s, %s× as long",
+			clock(p.ByHandS), sig(p.ByHandS/p.TotalS, 3)))
+	}
+	if len(parts) == 0 {
+		return "not estimated"
+	}
+	return strings.Join(parts, "; ")
 }
 
 func segmentsLine(n int, fiducials []string) string {
@@ -587,8 +624,9 @@ func shortKind(k planner.StrokeKind) string {
 func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	d.page()
 	d.heading("Write time", 60)
-	d.para(fmt.Sprintf("Expected total %s (%s), the sum of the parts below. Writing alone (AP, FE and dwell) is %s of it.",
-		clock(p.TotalS), duration(p.TotalS), percent(safeDiv(p.Breakdown.APWriteS+p.Breakdown.FEWriteS+p.Breakdown.DwellS, p.TotalS))), fontBody)
+	d.para(fmt.Sprintf("Expected total %s (%s), the sum of the parts below. Writing alone (AP, FE and dwell) is %s of it. %s.",
+		clock(p.TotalS), duration(p.TotalS), percent(safeDiv(p.Breakdown.APWriteS+p.Breakdown.FEWriteS+p.Breakdown.DwellS, p.TotalS)),
+		capitalise(floorLine(p))), fontBody)
 	h := drawBreakdownBars(d.c, p.Breakdown, box{d.left(), d.y, d.width(), 50})
 	d.y += h + 6
 	d.heading("Spread of the write time", 30)
@@ -612,18 +650,19 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 		tableColumn{title: "Species", share: 10},
 		tableColumn{title: "Template", share: 12},
 		tableColumn{title: "Windows", share: 10, right: true},
-		tableColumn{title: "P(exactly one donor) each", share: 22, right: true},
-		tableColumn{title: "Regions", share: 46},
+		tableColumn{title: "P(all sites open)", share: 14, right: true},
+		tableColumn{title: "P(exactly one donor)", share: 16, right: true},
+		tableColumn{title: "Regions", share: 38},
 	)
 	type key struct {
 		species, template string
-		p                 float64
+		open, p           float64
 	}
 	groups := map[key][]string{}
 	counts := map[key]int{}
 	var order []key
 	for _, w := range p.Windows {
-		k := key{w.Species, w.Template, w.Probability}
+		k := key{w.Species, w.Template, w.OpenProbability, w.Probability}
 		if counts[k] == 0 {
 			order = append(order, k)
 		}
@@ -634,7 +673,11 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	}
 	t.start()
 	for _, k := range order {
-		t.row(k.species, k.template, thousands(counts[k]), probability(k.p), listShort(groups[k], 6))
+		open := "–"
+		if k.open > 0 {
+			open = probability(k.open)
+		}
+		t.row(k.species, k.template, thousands(counts[k]), open, probability(k.p), listShort(groups[k], 6))
 	}
 	t.end()
 	d.need(62)
@@ -642,6 +685,14 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	d.y += 5
 	h = drawDistribution(d.c, y.Distribution, box{d.left(), d.y, d.width(), 55})
 	d.y += h + 2
+}
+
+func capitalise(s string) string {
+	if s == "" {
+		return s
+	}
+	r := []rune(s)
+	return strings.ToUpper(string(r[0])) + string(r[1:])
 }
 
 func safeDiv(a, b float64) float64 {

@@ -63,6 +63,8 @@ type planFile struct {
 	P10S      float64       `json:"p10_s"`
 	P50S      float64       `json:"p50_s"`
 	P90S      float64       `json:"p90_s"`
+	FloorS    float64       `json:"floor_s"`
+	ByHandS   float64       `json:"by_hand_s"`
 
 	Windows  []windowJSON `json:"windows"`
 	Yield    yieldJSON    `json:"yield"`
@@ -72,6 +74,7 @@ type planFile struct {
 
 type conditionsJSON struct {
 	Mode           string  `json:"mode"`
+	Kind           string  `json:"kind"`
 	BiasV          float64 `json:"bias_v"`
 	CurrentA       float64 `json:"current_a"`
 	LineDoseCPerCm float64 `json:"line_dose_c_per_cm"`
@@ -79,6 +82,8 @@ type conditionsJSON struct {
 	LineWidthNM    float64 `json:"line_width_nm"`
 	Passes         int     `json:"passes"`
 	PitchNM        float64 `json:"pitch_nm,omitempty"`
+	DwellS         float64 `json:"dwell_s,omitempty"`
+	DwellCapS      float64 `json:"dwell_cap_s,omitempty"`
 }
 
 type regionModeJSON struct {
@@ -96,19 +101,20 @@ type fiducialJSON struct {
 }
 
 type strokeJSON struct {
-	ID        int     `json:"id"`
-	Region    string  `json:"region"`
-	Mode      string  `json:"mode"`
-	Kind      string  `json:"kind"`
-	StartNM   xy      `json:"start_nm"` // derived: path_nm[0]
-	EndNM     xy      `json:"end_nm"`   // derived: the last point of path_nm
-	PathNM    []xy    `json:"path_nm"`
-	Passes    int     `json:"passes"`
-	LengthNM  float64 `json:"length_nm"`
-	DurationS float64 `json:"duration_s"`
-	Sites     int     `json:"sites"`
-	Segment   int     `json:"segment"`
-	Window    int     `json:"window"`
+	ID          int     `json:"id"`
+	Region      string  `json:"region"`
+	Mode        string  `json:"mode"`
+	Kind        string  `json:"kind"`
+	StartNM     xy      `json:"start_nm"` // derived: path_nm[0]
+	EndNM       xy      `json:"end_nm"`   // derived: the last point of path_nm
+	PathNM      []xy    `json:"path_nm"`
+	Passes      int     `json:"passes"`
+	LengthNM    float64 `json:"length_nm"`
+	DurationS   float64 `json:"duration_s"`
+	Sites       int     `json:"sites"`
+	ToleranceNM float64 `json:"tolerance_nm"`
+	Segment     int     `json:"segment"`
+	Window      int     `json:"window"`
 	// derived: the tip conditions of the action that writes the stroke
 	BiasV     float64 `json:"bias_v,omitempty"`
 	CurrentA  float64 `json:"current_a,omitempty"`
@@ -153,12 +159,13 @@ type breakdownJSON struct {
 }
 
 type windowJSON struct {
-	Region      string  `json:"region"`
-	Species     string  `json:"species"`
-	Template    string  `json:"template"`
-	AtNM        xy      `json:"at_nm"`
-	Sites       int     `json:"sites"`
-	Probability float64 `json:"probability"`
+	Region          string  `json:"region"`
+	Species         string  `json:"species"`
+	Template        string  `json:"template"`
+	AtNM            xy      `json:"at_nm"`
+	Sites           int     `json:"sites"`
+	OpenProbability float64 `json:"open_probability"`
+	Probability     float64 `json:"probability"`
 }
 
 type yieldJSON struct {
@@ -240,7 +247,7 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 	jw.field("field_nm", xy{p.FieldWidthNM, p.FieldHeightNM})
 	jw.array("conditions", len(p.Conditions), func(i int) any {
 		c := p.Conditions[i]
-		return conditionsJSON{Mode: string(c.Mode), BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
+		return conditionsJSON{Mode: string(c.Mode), Kind: string(c.Kind), DwellS: c.DwellS, DwellCapS: c.DwellCapS, BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
 			SpeedNMPerS: c.SpeedNMPerS, LineWidthNM: c.LineWidthNM, Passes: c.Passes, PitchNM: c.PitchNM}
 	})
 	jw.array("modes", len(p.Modes), func(i int) any {
@@ -260,7 +267,7 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 		}
 		sj := strokeJSON{ID: s.ID, Region: s.Region, Mode: string(s.Mode), Kind: string(s.Kind),
 			StartNM: path[0], EndNM: path[len(path)-1], PathNM: path, Passes: s.Passes, LengthNM: s.LengthNM,
-			DurationS: s.DurationS, Sites: s.Sites, Segment: s.Segment, Window: s.Window}
+			DurationS: s.DurationS, Sites: s.Sites, ToleranceNM: s.ToleranceNM, Segment: s.Segment, Window: s.Window}
 		if k := writer[i]; k >= 0 {
 			a := p.Actions[k]
 			sj.BiasV, sj.CurrentA, sj.SpeedNMPS = a.BiasV, a.CurrentA, a.SpeedNMPS
@@ -289,9 +296,12 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 	jw.field("p10_s", p.P10S)
 	jw.field("p50_s", p.P50S)
 	jw.field("p90_s", p.P90S)
+	jw.field("floor_s", p.FloorS)
+	jw.field("by_hand_s", p.ByHandS)
 	jw.array("windows", len(p.Windows), func(i int) any {
 		w := p.Windows[i]
-		return windowJSON{Region: w.Region, Species: w.Species, Template: w.Template, AtNM: xyOf(w.At), Sites: w.Sites, Probability: w.Probability}
+		return windowJSON{Region: w.Region, Species: w.Species, Template: w.Template, AtNM: xyOf(w.At), Sites: w.Sites,
+			OpenProbability: w.OpenProbability, Probability: w.Probability}
 	})
 	y := p.Yield
 	jw.field("yield", yieldJSON{Windows: y.Windows, All: y.All, Log10All: log10JSON(y.Log10All), MeanGood: y.MeanGood, SDGood: y.SDGood,
@@ -545,9 +555,9 @@ func jsonKind(t reflect.Type) string {
 func (f *planFile) plan() (*planner.Plan, error) {
 	p := &planner.Plan{Design: f.Design, Variant: f.Variant, Profile: f.Profile, Seed: f.Seed,
 		FieldWidthNM: f.FieldNM[0], FieldHeightNM: f.FieldNM[1],
-		TotalS: f.TotalS, P10S: f.P10S, P50S: f.P50S, P90S: f.P90S, Warnings: f.Warnings}
+		TotalS: f.TotalS, P10S: f.P10S, P50S: f.P50S, P90S: f.P90S, FloorS: f.FloorS, ByHandS: f.ByHandS, Warnings: f.Warnings}
 	p.Conditions = mapSlice(f.Conditions, func(c conditionsJSON) planner.Conditions {
-		return planner.Conditions{Mode: planner.WriteMode(c.Mode), BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
+		return planner.Conditions{Mode: planner.WriteMode(c.Mode), Kind: planner.StrokeKind(c.Kind), DwellS: c.DwellS, DwellCapS: c.DwellCapS, BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
 			SpeedNMPerS: c.SpeedNMPerS, LineWidthNM: c.LineWidthNM, Passes: c.Passes, PitchNM: c.PitchNM}
 	})
 	p.Modes = mapSlice(f.Modes, func(m regionModeJSON) planner.RegionMode {
@@ -564,7 +574,7 @@ func (f *planFile) plan() (*planner.Plan, error) {
 		}
 		p.Strokes[i] = planner.Stroke{ID: s.ID, Region: s.Region, Mode: planner.WriteMode(s.Mode), Kind: planner.StrokeKind(s.Kind),
 			Path: mapSlice(s.PathNM, xy.point), Passes: s.Passes, LengthNM: s.LengthNM, DurationS: s.DurationS,
-			Sites: s.Sites, Segment: s.Segment, Window: s.Window}
+			Sites: s.Sites, ToleranceNM: s.ToleranceNM, Segment: s.Segment, Window: s.Window}
 	}
 	p.Segments = mapSlice(f.Segments, func(s segmentJSON) planner.Segment {
 		return planner.Segment{Index: s.Index, Fiducial: s.Fiducial, FiducialAt: s.FiducialAtNM.point(), StartS: s.StartS,
@@ -583,7 +593,8 @@ func (f *planFile) plan() (*planner.Plan, error) {
 	p.Breakdown = planner.Breakdown{APWriteS: b.APWriteS, FEWriteS: b.FEWriteS, DwellS: b.DwellS, TravelS: b.TravelS,
 		ModeSwitchS: b.ModeSwitchS, RegistrationS: b.RegistrationS, VerificationS: b.VerificationS}
 	p.Windows = mapSlice(f.Windows, func(w windowJSON) planner.Window {
-		return planner.Window{Region: w.Region, Species: w.Species, Template: w.Template, At: w.AtNM.point(), Sites: w.Sites, Probability: w.Probability}
+		return planner.Window{Region: w.Region, Species: w.Species, Template: w.Template, At: w.AtNM.point(), Sites: w.Sites,
+			OpenProbability: w.OpenProbability, Probability: w.Probability}
 	})
 	y := f.Yield
 	p.Yield = planner.Yield{Windows: y.Windows, All: y.All, Log10All: log10Of(y.Log10All), MeanGood: y.MeanGood, SDGood: y.SDGood,

@@ -102,18 +102,19 @@ func diffPlans(t *testing.T, got, want *planner.Plan) {
 func TestPlanFileCoversPlan(t *testing.T) {
 	known := map[reflect.Type][]string{
 		reflect.TypeFor[planner.Plan](): {"Design", "Variant", "Profile", "Seed", "FieldWidthNM", "FieldHeightNM", "Conditions",
-			"Modes", "Fiducials", "Strokes", "Segments", "Actions", "Breakdown", "TotalS", "P10S", "P50S", "P90S", "Windows",
+			"Modes", "Fiducials", "Strokes", "Segments", "Actions", "Breakdown", "TotalS", "P10S", "P50S", "P90S", "FloorS", "ByHandS", "Windows",
 			"Yield", "Coverage", "Warnings"},
-		reflect.TypeFor[planner.Conditions](): {"Mode", "BiasV", "CurrentA", "LineDoseCPerCm", "SpeedNMPerS", "LineWidthNM", "Passes", "PitchNM"},
+		reflect.TypeFor[planner.Conditions](): {"Mode", "Kind", "BiasV", "CurrentA", "LineDoseCPerCm", "SpeedNMPerS", "LineWidthNM", "Passes", "PitchNM",
+			"DwellS", "DwellCapS"},
 		reflect.TypeFor[planner.RegionMode](): {"Region", "Role", "Requested", "Mode", "Reason", "Sites"},
 		reflect.TypeFor[planner.Fiducial]():   {"Name", "At"},
 		reflect.TypeFor[planner.Stroke](): {"ID", "Region", "Mode", "Kind", "Path", "Passes", "LengthNM", "DurationS", "Sites",
-			"Segment", "Window"},
+			"ToleranceNM", "Segment", "Window"},
 		reflect.TypeFor[planner.Segment](): {"Index", "Fiducial", "FiducialAt", "StartS", "EndS", "BudgetS", "Strokes"},
 		reflect.TypeFor[planner.Action](): {"Index", "Kind", "Segment", "Stroke", "From", "To", "StartS", "DurationS", "Mode",
 			"BiasV", "CurrentA", "SpeedNMPS", "Note"},
 		reflect.TypeFor[planner.Breakdown](): {"APWriteS", "FEWriteS", "DwellS", "TravelS", "ModeSwitchS", "RegistrationS", "VerificationS"},
-		reflect.TypeFor[planner.Window]():    {"Region", "Species", "Template", "At", "Sites", "Probability"},
+		reflect.TypeFor[planner.Window]():    {"Region", "Species", "Template", "At", "Sites", "OpenProbability", "Probability"},
 		reflect.TypeFor[planner.Yield]():     {"Windows", "All", "MeanGood", "Distribution", "DistributionFrom", "Log10All", "SDGood", "DevicesPerPerfect"},
 		reflect.TypeFor[planner.Coverage]():  {"OK", "Sites", "Uncovered", "Overcleared", "Issues"},
 	}

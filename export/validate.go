@@ -49,6 +49,9 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 	for i, c := range p.Conditions {
 		f := v.at("conditions", i)
 		v.mode(f+".mode", c.Mode, false)
+		v.kind(f+".kind", c.Kind, true)
+		v.nonNeg(f+".dwell_s", c.DwellS)
+		v.nonNeg(f+".dwell_cap_s", c.DwellCapS)
 		v.finite(f+".bias_v", c.BiasV)
 		v.nonNeg(f+".current_a", c.CurrentA)
 		v.nonNeg(f+".line_dose_c_per_cm", c.LineDoseCPerCm)
@@ -70,11 +73,8 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 			v.fail(invalid(f+".id", s.ID, "stroke %d must have id %d (strokes are indexed by id)", i, i))
 		}
 		v.mode(f+".mode", s.Mode, false)
-		switch s.Kind {
-		case planner.StrokeLine, planner.StrokeDwell, planner.StrokeRaster, planner.StrokeOutline:
-		default:
-			v.fail(invalid(f+".kind", string(s.Kind), "unknown stroke kind (want line, dwell, raster or outline)"))
-		}
+		v.kind(f+".kind", s.Kind, false)
+		v.nonNeg(f+".tolerance_nm", s.ToleranceNM)
 		if len(s.Path) == 0 {
 			v.fail(invalid(f+".path_nm", nil, "empty path"))
 		}
@@ -174,6 +174,8 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 	v.nonNeg("p10_s", p.P10S)
 	v.nonNeg("p50_s", p.P50S)
 	v.nonNeg("p90_s", p.P90S)
+	v.nonNeg("floor_s", p.FloorS)
+	v.nonNeg("by_hand_s", p.ByHandS)
 	if v.err == nil && !(p.P10S <= p.P50S && p.P50S <= p.P90S) {
 		v.fail(invalid("p50_s", p.P50S, "quantiles out of order (p10 %g s, p90 %g s)", p.P10S, p.P90S))
 	}
@@ -181,6 +183,7 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 		f := v.at("windows", i)
 		v.point(f+".at_nm", w.At)
 		v.count(f+".sites", w.Sites)
+		v.probability(f+".open_probability", w.OpenProbability)
 		v.probability(f+".probability", w.Probability)
 	}
 	y := p.Yield
@@ -285,6 +288,17 @@ func (v *checker) index(f string, i, n int, none bool) {
 		v.fail(invalid(f, i, "must be -1 (none) or an index below %d", n))
 	} else {
 		v.fail(invalid(f, i, "must be an index below %d", n))
+	}
+}
+
+// kind checks a stroke kind; empty is allowed where the field is
+// optional.
+func (v *checker) kind(f string, k planner.StrokeKind, empty bool) {
+	switch {
+	case v.err != nil, empty && k == "":
+	case k == planner.StrokeLine, k == planner.StrokeDwell, k == planner.StrokeRaster, k == planner.StrokeOutline:
+	default:
+		v.fail(invalid(f, string(k), "unknown stroke kind (want line, dwell, raster or outline)"))
 	}
 }
 

@@ -294,8 +294,17 @@ func drawZoom(c canvas, sc *scene, a apArea, dev box, idx int) {
 		c.polyline(pts, false, pen{width: sc.feWidth * v.s / u, grey: 0.93, round: true}, noPaint, tag{class: "fe-footprint"})
 		c.polyline(pts, false, pen{width: 0.2, grey: 0.5, dash: []float64{1, 0.7}}, noPaint, tag{class: "fe-centre"})
 	}
+	// Every AP stroke in the window is drawn, also those of a
+	// neighbouring tile that reach into it; only the area's own strokes
+	// are numbered.
+	var inWin []int
+	for i := range p.Strokes {
+		if s := &p.Strokes[i]; s.Mode == planner.AP && strokeBounds(s).ExpandedByMargin(sc.apWidth).Intersects(win) {
+			inWin = append(inWin, i)
+		}
+	}
 	// AP footprints under the lattice, so the sites stay visible.
-	for _, id := range a.strokes {
+	for _, id := range inWin {
 		s := &p.Strokes[id]
 		if s.Kind == planner.StrokeDwell {
 			continue
@@ -313,7 +322,7 @@ func drawZoom(c canvas, sc *scene, a apArea, dev box, idx int) {
 	}
 	// Centre lines with an arrowhead at the end: the writing direction.
 	arrow := math.Max(1.2*u, 0)
-	for _, id := range a.strokes {
+	for _, id := range inWin {
 		s := &p.Strokes[id]
 		pts := zoomPath(v, s)
 		if s.Kind == planner.StrokeDwell {

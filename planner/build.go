@@ -178,6 +178,11 @@ func (b *builder) build(variant string) (*Plan, error) {
 		Coverage: cov,
 	}
 	plan.TotalS = plan.Breakdown.Total()
+	if n := len(plan.Segments); n > 0 {
+		// The clock summed action by action may differ from the sum by
+		// kind in the last bits; the plan ends at TotalS.
+		plan.Segments[n-1].EndS = plan.TotalS
+	}
 	if math.Abs(plan.TotalS-total) > 1e-6*math.Max(total, 1) {
 		panic(fmt.Sprintf("planner: timeline total %v disagrees with the segmentation's %v", plan.TotalS, total))
 	}
@@ -188,7 +193,7 @@ func (b *builder) build(variant string) (*Plan, error) {
 		if req == "" {
 			req = string(design.ModeAuto)
 		}
-		plan.Modes = append(plan.Modes, RegionMode{Region: r.name, Role: string(r.role), Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.sites.Count()})
+		plan.Modes = append(plan.Modes, RegionMode{Region: r.name, Role: string(r.role), Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
 	}
 	byHand, err := b.byHand(mc)
 	if err != nil {
@@ -208,13 +213,16 @@ func (b *builder) regionWork() {
 	for i := range b.lay.Regions {
 		rl := &b.lay.Regions[i]
 		r := rl.Region
-		win := lattice.NewSiteSet()
-		for _, w := range rl.Windows {
-			w.AddTo(win)
+		plain := rl.Sites
+		if len(rl.Windows) > 0 {
+			win := lattice.NewSiteSet()
+			for _, w := range rl.Windows {
+				w.AddTo(win)
+			}
+			plain = rl.Sites.Clone().Difference(win)
 		}
-		plain := rl.Sites.Clone().Difference(win)
-		rw := &regionWork{index: i, name: r.Name, role: r.Role, requested: r.Mode, sites: rl.Sites, windows: rl.Windows,
-			plain: plain, tolGiven: r.ToleranceNM, segs: runSegments(b.lay.Surface, plain)}
+		rw := &regionWork{index: i, name: r.Name, role: r.Role, requested: r.Mode, sites: rl.Sites, windows: rl.Windows, count: rl.Sites.Count(),
+			plain: plain, tolGiven: r.ToleranceNM, segs: b.gen.segsOf(plain)}
 		rw.tolAP, rw.tolFE = b.prof.ToleranceAPNM, b.prof.ToleranceFENM
 		if rules != nil && rules.APToleranceNM != nil {
 			rw.tolAP = *rules.APToleranceNM
@@ -224,6 +232,10 @@ func (b *builder) regionWork() {
 		}
 		if r.ToleranceNM > 0 {
 			rw.tolAP, rw.tolFE = r.ToleranceNM, r.ToleranceNM
+		}
+		rw.plainCount = rw.count
+		if plain != rl.Sites {
+			rw.plainCount = plain.Count()
 		}
 		b.regions = append(b.regions, rw)
 	}
@@ -267,7 +279,11 @@ func (b *builder) makeStrokes() []Window {
 			if r.mode == modeHybrid {
 				tol = b.prof.ToleranceFENM // the fill's edge is inside the AP band
 			}
-			shareSites(ss, r.fePart.Count())
+			n := r.plainCount
+			if r.fePart != r.plain {
+				n = r.fePart.Count()
+			}
+			shareSites(ss, n)
 			for i := range ss {
 				ss[i].ToleranceNM = tol
 			}
@@ -581,7 +597,7 @@ func (b *builder) reoptimise(sg *segmenter, starts []int) ([]job, error) {
 		if two[0] && two[1] {
 			p.Group, p.Before = groups, [][2]int{{0, 1}}
 		}
-		sol, err := route.Solve(b.ctx, p, route.Options{MaxKicks: min(max(len(seg)/2, 50), 500), Seed: b.opt.Seed + int64(si)})
+		sol, err := route.Solve(b.ctx, p, route.Options{MaxKicks: min(max(len(seg)/8, 10), 100), Seed: b.opt.Seed + int64(si)})
 		if err != nil {
 			return nil, err
 		}

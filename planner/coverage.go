@@ -40,40 +40,105 @@ const coverageExamples = 6
 // dwell clears the one site it is parked on (within 0.05 nm).
 //
 // A painted site that does not clear is uncovered. A cleared site that
-// lies in no region is overcleared when no site of the region of the
-// stroke that gives it the most dose lies within that mode's
-// EdgeAllowanceNM.
+// lies in no region is overcleared unless a site of a region whose
+// strokes dose it lies within that stroke mode's EdgeAllowanceNM.
 //
-// The sum is worked out row by row and range by range: over a range of a
-// row the dose of each piece is bounded (a piece along the row varies
-// only through its along factor, which has one maximum; other pieces are
-// bounded by their nearest approach), the whole range is classified at
-// once when the bounds agree, and it is halved otherwise, down to single
-// sites dosed exactly. So only sites near the clearing edge are dosed one
-// by one, and the painted and unpainted sites of a decided range are
-// visited a 64-bit word at a time. Cost: O(rows reached · log + sites near
-// clearing edges + uncovered or overcleared candidates).
+// The sum is never taken site by site over a region: a range of sites
+// (site lines x dimers of one terrace) is bounded from the pieces that
+// reach it (a piece parallel or square to the rows is a product of two
+// one-peaked factors; a slanted one is bounded by the range's corners),
+// classified at once when the bounds agree, and halved along the side
+// that leaves them furthest apart otherwise, down to single sites dosed
+// exactly. Only sites near a clearing edge are dosed one by one, and the
+// sites of a decided range are visited a 64-bit word at a time. Cost:
+// O(pieces · depth + sites near clearing edges + words of the painted
+// rows + overclearing candidates).
 func CheckCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) Coverage {
 	ck := newCoverageCheck(surf, regions, strokes, &prof)
 	ck.run()
 	return ck.cov
 }
 
-type contrib struct {
-	lo, hi float64 // along interval where the piece gives at least the neglect share
-	// A piece parallel to the row gives peak·[Φ((umax-u)/σ) - Φ((umin-u)/σ)]
-	// at along position u; a piece square to it gives
-	// peak·exp(-(u-umin)²/2σ²) (umin is where it crosses the row line);
-	// other pieces are evaluated from their geometry.
-	parallel   bool
-	square     bool
-	peak       float64
-	umin, umax float64
-	// A slanted piece of length L: at along position u of the row line,
-	// the site lies s0+u·ds along the piece and x0+u·dx across it.
-	L, s0, ds, x0, dx float64
-	stroke            int32
-	piece             int32 // the piece runs from Path[piece] to Path[piece+1]
+// piece is one straight piece of a stroke's path as seen from one
+// terrace: coordinates are along and across that terrace's rows, from its
+// lattice offset. A piece parallel to the rows lies at across c from
+// along a0 to a1; one square to them at along c from across a0 to a1;
+// any other starts at (pu, py) with unit direction (du, dy) and length L.
+type piece struct {
+	kind      uint8
+	stroke    int32
+	ratio     float64 // delivered dose over the clearing threshold
+	sigma     float64
+	c, a0, a1 float64
+	pu, py    float64
+	du, dy, L float64
+	uLo, uHi  float64 // the box beyond which the piece gives less than the neglect share
+	yLo, yHi  float64
+}
+
+const (
+	pieceParallel = iota
+	pieceSquare
+	pieceSlanted
+)
+
+// band is the unimodal factor Φ((hi-x)/σ) - Φ((lo-x)/σ): the share of a
+// Gaussian of width σ centred at x that falls on [lo, hi]. Far beyond an
+// end (8σ) that end's term is 0 or 1 to within 1e-15 and is skipped.
+func band(lo, hi, sigma, x float64) float64 {
+	a, b := (lo-x)/sigma, (hi-x)/sigma
+	switch {
+	case a < -8 && b > 8:
+		return 1
+	case a < -8:
+		return normalCDF(b)
+	case b > 8:
+		return 1 - normalCDF(a)
+	}
+	return normalCDF(b) - normalCDF(a)
+}
+
+func gauss(d, sigma float64) float64 { x := d / sigma; return math.Exp(-x * x / 2) }
+
+// uFactor and yFactor split a parallel or square piece's dose into a
+// factor of the along position and one of the across position.
+func (p *piece) uFactor(u float64) float64 {
+	if p.kind == pieceParallel {
+		return band(p.a0, p.a1, p.sigma, u)
+	}
+	return gauss(u-p.c, p.sigma)
+}
+
+func (p *piece) yFactor(y float64) float64 {
+	if p.kind == pieceParallel {
+		return gauss(y-p.c, p.sigma)
+	}
+	return band(p.a0, p.a1, p.sigma, y)
+}
+
+// uPeak and yPeak are where the factors peak.
+func (p *piece) uPeak() float64 {
+	if p.kind == pieceParallel {
+		return (p.a0 + p.a1) / 2
+	}
+	return p.c
+}
+
+func (p *piece) yPeak() float64 {
+	if p.kind == pieceParallel {
+		return p.c
+	}
+	return (p.a0 + p.a1) / 2
+}
+
+// at returns the piece's dose share at (u, y).
+func (p *piece) at(u, y float64) float64 {
+	if p.kind != pieceSlanted {
+		return p.ratio * p.uFactor(u) * p.yFactor(y)
+	}
+	s := (u-p.pu)*p.du + (y-p.py)*p.dy
+	x := (y-p.py)*p.du - (u-p.pu)*p.dy
+	return p.ratio * gauss(x, p.sigma) * band(0, p.L, p.sigma, s)
 }
 
 type coverageCheck struct {
@@ -82,16 +147,16 @@ type coverageCheck struct {
 	regions []CoverageRegion
 	strokes []Stroke
 	region  []int // stroke -> region index, -1 when unknown
-	ratio   []float64
-	sigma   []float64
 	painted *lattice.SiteSet
 	dwelled *lattice.SiteSet
-	lines   [][][2][]contrib // [terrace][row][side]
-	grid    *terraceGrid     // nil on a one-terrace surface
-	allowed map[allowKey][]span
-	rows    map[[2]int][][]span // region, terrace -> row -> run extents
-	arena   []float64           // scratch along factors for decide
-	ptrs    []*contrib          // scratch active lists for decide
+	pieces  [][]piece            // per terrace
+	grid    *terraceGrid         // nil on a one-terrace surface
+	exist   [][]*[]span          // terrace -> row -> where its dimers exist (nil: not yet)
+	allowed map[[2]int][]*[]span // region, terrace -> row -> allowed spans (nil: not yet)
+	rows    map[[2]int][][]span  // region, terrace -> row -> run extents
+	arena   []float64            // cached factors of decide's nested ranges
+	ptrs    []*piece             // active lists of decide's nested ranges
+	spanBuf []span               // scratch for allowedSpans
 	cov     Coverage
 	nUnc    int
 	nOver   int
@@ -99,7 +164,11 @@ type coverageCheck struct {
 
 func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof *Profile) *coverageCheck {
 	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: strokes,
-		painted: lattice.NewSiteSet(), dwelled: lattice.NewSiteSet()}
+		painted: lattice.NewSiteSet(), dwelled: lattice.NewSiteSet(),
+		exist: make([][]*[]span, len(surf.Terraces)), allowed: map[[2]int][]*[]span{}, rows: map[[2]int][][]span{}}
+	for t := range surf.Terraces {
+		ck.exist[t] = make([]*[]span, surf.RowCount(t))
+	}
 	byName := map[string]int{}
 	for i, r := range regions {
 		byName[r.Name] = i
@@ -110,15 +179,8 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 	if len(surf.Terraces) > 1 {
 		ck.grid = newTerraceGrid(surf)
 	}
-	ck.allowed = map[allowKey][]span{}
-	ck.rows = map[[2]int][][]span{}
-	ck.lines = make([][][2][]contrib, len(surf.Terraces))
-	for t := range surf.Terraces {
-		ck.lines[t] = make([][2][]contrib, surf.RowCount(t))
-	}
+	ck.pieces = make([][]piece, len(surf.Terraces))
 	ck.region = make([]int, len(strokes))
-	ck.ratio = make([]float64, len(strokes))
-	ck.sigma = make([]float64, len(strokes))
 	for i := range strokes {
 		st := &strokes[i]
 		ri, ok := byName[st.Region]
@@ -126,12 +188,6 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 			ri = -1
 		}
 		ck.region[i] = ri
-		m := prof.AP
-		if st.Mode == FE {
-			m = prof.FE
-		}
-		ck.ratio[i] = float64(max(st.Passes, 1)) * m.LineDoseCPerCm / m.Width.ThresholdDoseCPerCm
-		ck.sigma[i] = m.Width.SigmaNM
 		if st.Kind == StrokeDwell {
 			if len(st.Path) > 0 {
 				if site, d, ok := surf.Snap(st.Path[0]); ok && d <= 0.05 {
@@ -140,11 +196,50 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 			}
 			continue
 		}
-		for p := 0; p+1 < len(st.Path); p++ {
-			ck.addPiece(i, p)
+		m := prof.AP
+		if st.Mode == FE {
+			m = prof.FE
+		}
+		ratio := float64(max(st.Passes, 1)) * m.LineDoseCPerCm / m.Width.ThresholdDoseCPerCm
+		sigma := m.Width.SigmaNM
+		if ratio <= coverageNeglect || !(sigma > 0) {
+			continue
+		}
+		reach := sigma * math.Sqrt(2*math.Log(ratio/coverageNeglect))
+		for k := 0; k+1 < len(st.Path); k++ {
+			a, b := st.Path[k], st.Path[k+1]
+			if a == b {
+				continue
+			}
+			for t := range surf.Terraces {
+				if ck.grid != nil && !ck.grid.reaches(t, a, b) {
+					continue
+				}
+				ck.pieces[t] = append(ck.pieces[t], makePiece(surf, t, int32(i), a, b, ratio, sigma, reach))
+			}
 		}
 	}
 	return ck
+}
+
+// makePiece describes the piece a→b of stroke si on terrace t.
+func makePiece(surf *lattice.Surface, t int, si int32, a, b r2.Point, ratio, sigma, reach float64) piece {
+	ua, ya := terraceAxes(surf, t, a)
+	ub, yb := terraceAxes(surf, t, b)
+	p := piece{stroke: si, ratio: ratio, sigma: sigma,
+		uLo: math.Min(ua, ub) - reach, uHi: math.Max(ua, ub) + reach,
+		yLo: math.Min(ya, yb) - reach, yHi: math.Max(ya, yb) + reach}
+	switch {
+	case math.Abs(ya-yb) < 1e-9:
+		p.kind, p.c, p.a0, p.a1 = pieceParallel, ya, math.Min(ua, ub), math.Max(ua, ub)
+	case math.Abs(ua-ub) < 1e-9:
+		p.kind, p.c, p.a0, p.a1 = pieceSquare, ua, math.Min(ya, yb), math.Max(ya, yb)
+	default:
+		p.kind = pieceSlanted
+		p.L = math.Hypot(ub-ua, yb-ya)
+		p.pu, p.py, p.du, p.dy = ua, ya, (ub-ua)/p.L, (yb-ya)/p.L
+	}
+	return p
 }
 
 // terraceAxes returns p's along-row and across-row coordinates on
@@ -158,139 +253,59 @@ func terraceAxes(surf *lattice.Surface, t int, p r2.Point) (along, across float6
 	return q.X, q.Y
 }
 
-func (ck *coverageCheck) addPiece(si, p int) {
-	st := &ck.strokes[si]
-	a, b := st.Path[p], st.Path[p+1]
-	if a == b {
-		return
+// lineY is the across coordinate of site line l: the sites of side l%2
+// of row l/2. It rises with l, since the two sides of a row lie 2·HOffset
+// apart, less than a row spacing.
+func lineY(l int) float64 {
+	y := float64(l/2) * lattice.RowSpacing
+	if l%2 == 0 {
+		return y - lattice.HOffset
 	}
-	ratio, sigma := ck.ratio[si], ck.sigma[si]
-	if ratio <= coverageNeglect || !(sigma > 0) {
-		return
-	}
-	reach := sigma * math.Sqrt(2*math.Log(ratio/coverageNeglect))
-	for t := range ck.surf.Terraces {
-		if part, ok := ck.grid.near(t, a, b); ok {
-			ck.addPart(si, p, t, a, b, part, reach)
-		}
-	}
+	return y + lattice.HOffset
 }
 
-// addPart adds the contributions of the part [τ0, τ1] (as fractions of
-// the piece a→b) of one stroke piece to the rows of terrace t it reaches.
-func (ck *coverageCheck) addPart(si, p, t int, a, b r2.Point, part [2]float64, reach float64) {
-	ratio, sigma := ck.ratio[si], ck.sigma[si]
-	alA, acA := terraceAxes(ck.surf, t, a)
-	alB, acB := terraceAxes(ck.surf, t, b)
-	pa := a.Add(b.Sub(a).Mul(part[0]))
-	pb := a.Add(b.Sub(a).Mul(part[1]))
-	palA, pacA := terraceAxes(ck.surf, t, pa)
-	palB, pacB := terraceAxes(ck.surf, t, pb)
-	lo := math.Min(pacA, pacB) - reach - lattice.HOffset
-	hi := math.Max(pacA, pacB) + reach + lattice.HOffset
-	r0 := max(0, int(math.Ceil(lo/lattice.RowSpacing)))
-	r1 := min(len(ck.lines[t])-1, int(math.Floor(hi/lattice.RowSpacing)))
-	parallel := math.Abs(acA-acB) < 1e-9
-	square := math.Abs(alA-alB) < 1e-9
-	umin, umax := math.Min(alA, alB), math.Max(alA, alB)
-	vmin, vmax := math.Min(acA, acB), math.Max(acA, acB)
-	for r := r0; r <= r1; r++ {
-		for side := 0; side < 2; side++ {
-			y := float64(r) * lattice.RowSpacing
-			if side == 0 {
-				y -= lattice.HOffset
-			} else {
-				y += lattice.HOffset
-			}
-			c := contrib{stroke: int32(si), piece: int32(p), umin: umin, umax: umax}
-			if parallel {
-				d := y - acA
-				c.parallel = true
-				c.peak = ratio * math.Exp(-d*d/(2*sigma*sigma))
-				if c.peak < coverageNeglect {
-					continue
-				}
-				// Beyond an end the dose is at most peak·Φ(-s/σ) ≤
-				// peak·exp(-s²/2σ²)/2, below the neglect share past smax.
-				smax := 0.0
-				if c.peak > 2*coverageNeglect {
-					smax = sigma * math.Sqrt(2*math.Log(c.peak/(2*coverageNeglect)))
-				}
-				c.lo, c.hi = umin-smax, umax+smax
-			} else if square {
-				// The piece crosses the row line's across coordinate y
-				// at along position alA; along the row its dose is a
-				// Gaussian bump there.
-				c.square = true
-				c.umin = alA
-				c.peak = ratio * (normalCDF((vmax-y)/sigma) - normalCDF((vmin-y)/sigma))
-				if c.peak < coverageNeglect {
-					continue
-				}
-				h := sigma * math.Sqrt(2*math.Log(c.peak/coverageNeglect))
-				c.lo, c.hi = alA-h, alA+h
-			} else {
-				c.lo, c.hi = math.Min(palA, palB)-reach, math.Max(palA, palB)+reach
-				// The row line in field coordinates: origin at along 0 and
-				// unit vector along the row.
-				tr := &ck.surf.Terraces[t]
-				origin, along := r2.Point{X: 0, Y: y}, r2.Point{X: 1}
-				if tr.Rows == lattice.RowsAlongY {
-					origin, along = r2.Point{X: y, Y: 0}, r2.Point{Y: 1}
-				}
-				origin = origin.Add(tr.Offset)
-				ab := b.Sub(a)
-				c.L = ab.Norm()
-				u := ab.Mul(1 / c.L)
-				c.s0, c.ds = origin.Sub(a).Dot(u), along.Dot(u)
-				c.x0, c.dx = u.Cross(origin.Sub(a)), u.Cross(along)
-			}
-			ck.lines[t][r][side] = append(ck.lines[t][r][side], c)
-		}
-	}
+// siteRect is a range of sites of one terrace: site lines [l0, l1), dimers
+// [d0, d1), bounded by the box [u0, u1] x [y0, y1] (which holds them and
+// may be larger).
+type siteRect struct {
+	t              int
+	l0, l1, d0, d1 int
+	u0, u1, y0, y1 float64
 }
 
 func (ck *coverageCheck) run() {
 	ck.cov.Sites = ck.painted.Count()
-	surf := ck.surf
-	var active []*contrib
-	for t := range surf.Terraces {
-		dimers := surf.DimerCount(t)
-		for r := range ck.lines[t] {
-			pw := ck.painted.Row(t, r)
-			var exist []span
+	for t := range ck.surf.Terraces {
+		rows, dimers := ck.surf.RowCount(t), ck.surf.DimerCount(t)
+		// Everything anything reaches: the painted sites and the pieces'
+		// boxes, as site lines and dimers.
+		l0, l1, d0, d1 := 2*rows, 0, dimers, 0
+		for r := 0; r < ck.painted.RowCount(t) && r < rows; r++ {
 			for side := 0; side < 2; side++ {
-				cs := ck.lines[t][r][side]
-				first, last := paintedExtent(pw, side)
-				if len(cs) == 0 && first < 0 {
-					continue
-				}
-				if exist == nil {
-					exist = ck.existSpans(t, r)
-				}
-				// The stretch of the row that anything reaches.
-				lo, hi := math.Inf(1), math.Inf(-1)
-				active = active[:0]
-				for i := range cs {
-					lo, hi = math.Min(lo, cs[i].lo), math.Max(hi, cs[i].hi)
-					active = append(active, &cs[i])
-				}
-				if first >= 0 {
-					lo = math.Min(lo, float64(first)*lattice.DimerPitch)
-					hi = math.Max(hi, float64(last)*lattice.DimerPitch)
-				}
-				row := rowLine{t: t, r: r, side: side, pw: pw, exist: exist}
-				// Where the row's dimers do not exist there is nothing to
-				// cover or to overclear.
-				for _, ex := range exist {
-					d0 := max(0, int(math.Ceil(math.Max(lo, ex.lo)/lattice.DimerPitch-1e-9)))
-					d1 := min(dimers, int(math.Floor(math.Min(hi, ex.hi)/lattice.DimerPitch+1e-9))+1)
-					if d1 > d0 {
-						ck.decideRange(&row, active, d0, d1)
-					}
+				if first, last := paintedExtent(ck.painted.Row(t, r), side); first >= 0 {
+					l0, l1 = min(l0, 2*r+side), max(l1, 2*r+side+1)
+					d0, d1 = min(d0, first), max(d1, last+1)
 				}
 			}
 		}
+		for i := range ck.pieces[t] {
+			p := &ck.pieces[t][i]
+			l0 = min(l0, max(0, int(math.Floor((p.yLo+lattice.HOffset)/lattice.RowSpacing))*2))
+			l1 = max(l1, min(2*rows, (int(math.Ceil((p.yHi-lattice.HOffset)/lattice.RowSpacing))+1)*2))
+			d0 = min(d0, max(0, int(math.Floor(p.uLo/lattice.DimerPitch))))
+			d1 = max(d1, min(dimers, int(math.Ceil(p.uHi/lattice.DimerPitch))+1))
+		}
+		if l1 <= l0 || d1 <= d0 {
+			continue
+		}
+		all := make([]*piece, len(ck.pieces[t]))
+		for i := range ck.pieces[t] {
+			all[i] = &ck.pieces[t][i]
+		}
+		root := siteRect{t: t, l0: l0, l1: l1, d0: d0, d1: d1,
+			u0: float64(d0) * lattice.DimerPitch, u1: float64(d1-1) * lattice.DimerPitch, y0: lineY(l0), y1: lineY(l1 - 1)}
+		fu0, fu1, fy0, fy1 := ck.factors(all, root)
+		ck.decide(root, all, fu0, fu1, fy0, fy1)
 	}
 	// A dwell on a site outside every region.
 	for site := range ck.dwelled.All() {
@@ -302,189 +317,279 @@ func (ck *coverageCheck) run() {
 	ck.cov.OK = ck.nUnc == 0 && ck.nOver == 0
 }
 
-// rowLine is the line of one side's sites of one row.
-type rowLine struct {
-	t, r, side int
-	pw         []uint64 // the row's painted bits
-	exist      []span   // where the row's dimers exist on the terrace
-}
-
-// alongFactor is Φ((umax-u)/σ) - Φ((umin-u)/σ); where u lies more than
-// 8σ beyond one end, that end's term is 0 or 1 to within 1e-15 and is
-// not computed.
-func alongFactor(c *contrib, sigma, u float64) float64 {
-	hi, lo := (c.umax-u)/sigma, (c.umin-u)/sigma
-	switch {
-	case lo < -8 && hi > 8:
-		return 1
-	case lo < -8:
-		return normalCDF(hi)
-	case hi > 8:
-		return 1 - normalCDF(lo)
-	}
-	return normalCDF(hi) - normalCDF(lo)
-}
-
-// slantFactor is a slanted piece's along factor at row position u.
-func slantFactor(c *contrib, sigma, u float64) float64 {
-	s := c.s0 + u*c.ds
-	return normalCDF((c.L-s)/sigma) - normalCDF(-s/sigma)
-}
-
-// factorAt is the cached along factor of a parallel or slanted piece at
-// row position u (square pieces need none).
-func factorAt(c *contrib, sigma, u float64) float64 {
-	switch {
-	case c.parallel:
-		return alongFactor(c, sigma, u)
-	case c.square:
-		return 0
-	}
-	return slantFactor(c, sigma, u)
-}
-
-// decide classifies the sites of dimers [d0, d1) of one row line under
-// the active contributions: it bounds the dose over the whole range
-// (each parallel piece's along factor is unimodal, so its extremes lie at
-// the range's ends or the piece's middle; a slanted piece's across
-// distance and along position are linear along the row, so they are
-// bounded by the range's ends) and classifies every site at once when the
-// bounds agree, else halves the range, down to single dimers dosed
-// exactly. f0 and f1 hold each parallel contribution's along factor at
-// the first and last dimer, so halving computes only the middle ones.
-func (ck *coverageCheck) decide(row *rowLine, all []*contrib, d0, d1 int, u0, u1 float64, g0, g1 []float64) {
-	// Keep the contributions that reach this range.
+// factors returns each piece's along factor at the box's two along ends
+// and its across factor at the two across ends (unused for slanted
+// pieces), from the arena.
+func (ck *coverageCheck) factors(ps []*piece, r siteRect) (fu0, fu1, fy0, fy1 []float64) {
+	n := len(ps)
 	top := len(ck.arena)
-	n := 0
-	for _, c := range all {
-		if c.lo <= u1 && c.hi >= u0 {
-			n++
+	ck.grow(4 * n)
+	buf := ck.arena[top:]
+	fu0, fu1, fy0, fy1 = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n]
+	for i, p := range ps {
+		if p.kind == pieceSlanted {
+			continue
+		}
+		fu0[i], fu1[i] = p.uFactor(r.u0), p.uFactor(r.u1)
+		fy0[i], fy1[i] = p.yFactor(r.y0), p.yFactor(r.y1)
+	}
+	return fu0, fu1, fy0, fy1
+}
+
+// unimodal bounds a one-peaked factor over [a, b] from its values there
+// and the position of its peak.
+func unimodal(fa, fb, a, b, peak float64, at func(float64) float64) (lo, hi float64) {
+	lo, hi = math.Min(fa, fb), math.Max(fa, fb)
+	if peak > a && peak < b {
+		hi = at(peak)
+	}
+	return lo, hi
+}
+
+// decide classifies every site of r: it bounds the dose over r's box
+// from the pieces that reach it (each parallel or square piece is a
+// product of a one-peaked factor along and one across; a slanted piece's
+// along and across distances are linear, so they are bounded by the
+// box's corners), classifies all of r at once when the bounds agree, and
+// otherwise halves r across its longer side, down to single sites dosed
+// exactly. The factor slices hold each piece's factors at r's box edges,
+// so a halving computes only those at the new edge.
+func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []float64) {
+	if ck.grid != nil && !ck.grid.holds(ck.surf, r) {
+		return // no site of this terrace in r: nothing to cover or overclear
+	}
+	// Keep the pieces that reach r's box.
+	atop, ptop := len(ck.arena), len(ck.ptrs)
+	defer func() { ck.arena, ck.ptrs = ck.arena[:atop], ck.ptrs[:ptop] }()
+	active, fu0, fu1, fy0, fy1 := all, gu0, gu1, gy0, gy1
+	keep := 0
+	for _, p := range all {
+		if p.uLo <= r.u1 && p.uHi >= r.u0 && p.yLo <= r.y1 && p.yHi >= r.y0 {
+			keep++
 		}
 	}
-	var active []*contrib
-	var f0, f1 []float64
-	if n == len(all) {
-		active, f0, f1 = all, g0, g1
-	} else {
-		ptop := len(ck.ptrs)
-		ck.arena = append(ck.arena, make([]float64, 2*n)...)
-		f0, f1 = ck.arena[top:top+n], ck.arena[top+n:top+2*n]
-		for i, c := range all {
-			if c.lo <= u1 && c.hi >= u0 {
+	if keep < len(all) {
+		ck.grow(4 * keep)
+		b := ck.arena[atop:]
+		fu0, fu1, fy0, fy1 = b[:keep], b[keep:2*keep], b[2*keep:3*keep], b[3*keep:4*keep]
+		for i, p := range all {
+			if p.uLo <= r.u1 && p.uHi >= r.u0 && p.yLo <= r.y1 && p.yHi >= r.y0 {
 				k := len(ck.ptrs) - ptop
-				ck.ptrs = append(ck.ptrs, c)
-				f0[k], f1[k] = g0[i], g1[i]
+				ck.ptrs = append(ck.ptrs, p)
+				fu0[k], fu1[k], fy0[k], fy1[k] = gu0[i], gu1[i], gy0[i], gy1[i]
 			}
 		}
 		active = ck.ptrs[ptop:]
-		defer func() { ck.ptrs = ck.ptrs[:ptop] }()
 	}
-	defer func() { ck.arena = ck.arena[:top] }()
-	if d1-d0 == 1 {
-		site := lattice.Site{Terrace: row.t, Row: row.r, Dimer: d0, Side: row.side}
-		e, who := ck.siteDose(active, site)
-		ck.classify(site, row.pw, row.exist, e, who, active)
+	if r.l1-r.l0 == 1 && r.d1-r.d0 == 1 {
+		ck.leaf(r, active)
 		return
 	}
 	lo, hi := 0.0, 0.0
 	best, who := 0.0, int32(-1)
-	for i, c := range active {
-		sigma := ck.sigma[c.stroke]
-		if c.parallel {
-			fmin, fmax := math.Min(f0[i], f1[i]), math.Max(f0[i], f1[i])
-			if mid := (c.umin + c.umax) / 2; mid > u0 && mid < u1 {
-				fmax = alongFactor(c, sigma, mid)
-			}
-			lo += c.peak * fmin
-			hi += c.peak * fmax
-			if c.peak*fmin > best {
-				best, who = c.peak*fmin, c.stroke
-			}
-			continue
+	for i, p := range active {
+		var plo, phi float64
+		if p.kind != pieceSlanted {
+			ul, uh := unimodal(fu0[i], fu1[i], r.u0, r.u1, p.uPeak(), p.uFactor)
+			yl, yh := unimodal(fy0[i], fy1[i], r.y0, r.y1, p.yPeak(), p.yFactor)
+			plo, phi = p.ratio*ul*yl, p.ratio*uh*yh
+		} else {
+			plo, phi = p.slantedBounds(r)
 		}
-		if c.square {
-			far := math.Max(math.Abs(u0-c.umin), math.Abs(u1-c.umin))
-			near := 0.0
-			if c.umin < u0 || c.umin > u1 {
-				near = math.Min(math.Abs(u0-c.umin), math.Abs(u1-c.umin))
-			}
-			low := c.peak * math.Exp(-far*far/(2*sigma*sigma))
-			lo += low
-			hi += c.peak * math.Exp(-near*near/(2*sigma*sigma))
-			if low > best {
-				best, who = low, c.stroke
-			}
-			continue
-		}
-		// Along the row line, a slanted piece's across distance (signed)
-		// and along position are linear, so both are bounded by the
-		// range's ends, and its along factor, unimodal in s, by its values
-		// there or at the piece's middle.
-		x0, x1 := c.x0+u0*c.dx, c.x0+u1*c.dx
-		dmax := math.Max(math.Abs(x0), math.Abs(x1))
-		dmin := math.Min(math.Abs(x0), math.Abs(x1))
-		if (x0 < 0) != (x1 < 0) {
-			dmin = 0
-		}
-		fmin, fmax := math.Min(f0[i], f1[i]), math.Max(f0[i], f1[i])
-		s0, s1 := c.s0+u0*c.ds, c.s0+u1*c.ds
-		if (s0-c.L/2)*(s1-c.L/2) < 0 {
-			fmax = normalCDF(c.L/2/sigma) - normalCDF(-c.L/2/sigma)
-		}
-		ratio := ck.ratio[c.stroke]
-		low := ratio * math.Exp(-dmax*dmax/(2*sigma*sigma)) * fmin
-		lo += low
-		hi += ratio * math.Exp(-dmin*dmin/(2*sigma*sigma)) * fmax
-		if low > best {
-			best, who = low, c.stroke
+		lo += plo
+		hi += phi
+		if plo > best {
+			best, who = plo, p.stroke
 		}
 	}
 	switch {
 	case lo >= 1:
-		ck.classifyRange(row, active, d0, d1, true, lo, who)
+		ck.classifyRect(r, active, true, lo, who)
+		return
 	case hi < 1:
-		ck.classifyRange(row, active, d0, d1, false, hi, who)
-	default:
-		// The halves are bounded over [u0, us] and [us, u1], which hold
-		// their sites, so one new along factor per piece serves both.
-		mid := (d0 + d1) / 2
-		us := (float64(mid) - 0.5) * lattice.DimerPitch
-		at := len(ck.arena)
-		ck.arena = append(ck.arena, make([]float64, len(active))...)
-		fs := ck.arena[at : at+len(active)]
-		for i, c := range active {
-			fs[i] = factorAt(c, ck.sigma[c.stroke], us)
+		ck.classifyRect(r, active, false, hi, who)
+		return
+	}
+	// Undecided, but nothing here matters: no painted site, and every site
+	// within the edge allowance of a region dosing it (cleared or not,
+	// such a site is tolerated). FE edges are mostly this.
+	if !ck.paintedIn(r) && ck.tolerated(r, active) {
+		return
+	}
+	// Halve the side that leaves the bounds furthest apart: the gap the
+	// along factors leave against the gap the across factors leave. The
+	// halves share the new edge, so one new factor per piece serves both.
+	gapU, gapY := 0.0, 0.0
+	for i, p := range active {
+		if p.kind == pieceSlanted {
+			continue
 		}
-		ck.decide(row, active, d0, mid, u0, us, f0, fs)
-		ck.decide(row, active, mid, d1, us, u1, fs, f1)
+		ul, uh := math.Min(fu0[i], fu1[i]), math.Max(fu0[i], fu1[i])
+		yl, yh := math.Min(fy0[i], fy1[i]), math.Max(fy0[i], fy1[i])
+		gapU += p.ratio * (uh - ul) * yh
+		gapY += p.ratio * uh * (yh - yl)
+	}
+	a, b := r, r
+	n := len(active)
+	top := len(ck.arena)
+	ck.grow(n)
+	fm := ck.arena[top : top+n]
+	splitU := gapU > gapY || (gapU == gapY && r.u1-r.u0 >= r.y1-r.y0)
+	if (splitU && r.d1-r.d0 > 1) || r.l1-r.l0 == 1 {
+		mid := (r.d0 + r.d1) / 2
+		us := (float64(mid) - 0.5) * lattice.DimerPitch
+		a.d1, a.u1 = mid, us
+		b.d0, b.u0 = mid, us
+		for i, p := range active {
+			if p.kind != pieceSlanted {
+				fm[i] = p.uFactor(us)
+			}
+		}
+		ck.decide(a, active, fu0, fm, fy0, fy1)
+		ck.decide(b, active, fm, fu1, fy0, fy1)
+		return
+	}
+	mid := (r.l0 + r.l1) / 2
+	ys := (lineY(mid-1) + lineY(mid)) / 2
+	a.l1, a.y1 = mid, ys
+	b.l0, b.y0 = mid, ys
+	for i, p := range active {
+		if p.kind != pieceSlanted {
+			fm[i] = p.yFactor(ys)
+		}
+	}
+	ck.decide(a, active, fu0, fu1, fy0, fm)
+	ck.decide(b, active, fu0, fu1, fm, fy1)
+}
+
+// grow lengthens the arena by n values (not cleared: callers write
+// every value they read).
+func (ck *coverageCheck) grow(n int) {
+	ck.arena = slices.Grow(ck.arena, n)[:len(ck.arena)+n]
+}
+
+// paintedIn reports whether r holds a painted site.
+func (ck *coverageCheck) paintedIn(r siteRect) bool {
+	for l := r.l0; l < r.l1; l++ {
+		side := l % 2
+		if anyParity(ck.painted.Row(r.t, l/2), 2*r.d0+side, 2*(r.d1-1)+side+1, uint64(0x5555555555555555)<<uint(side)) {
+			return true
+		}
+	}
+	return false
+}
+
+// tolerated reports whether every site of r lies within the edge
+// allowance of one region whose strokes dose r.
+func (ck *coverageCheck) tolerated(r siteRect, active []*piece) bool {
+	var tried [4]int
+	n := 0
+next:
+	for _, p := range active {
+		ri := ck.region[p.stroke]
+		if ri < 0 {
+			continue
+		}
+		for _, x := range tried[:n] {
+			if x == ri {
+				continue next
+			}
+		}
+		if n == len(tried) {
+			return false
+		}
+		tried[n] = ri
+		n++
+		allow := ck.prof.AP.EdgeAllowanceNM
+		if ck.strokes[p.stroke].Mode == FE {
+			allow = ck.prof.FE.EdgeAllowanceNM
+		}
+		if allow <= 0 {
+			continue
+		}
+		u0, u1 := float64(r.d0)*lattice.DimerPitch, float64(r.d1-1)*lattice.DimerPitch
+		ok := true
+		for row := r.l0 / 2; row <= (r.l1-1)/2 && ok; row++ {
+			sp := ck.allowedCached(ri, r.t, row, allow)
+			i := sort.Search(len(sp), func(i int) bool { return sp[i].hi+1e-9 >= u1 })
+			ok = i < len(sp) && sp[i].lo-1e-9 <= u0
+		}
+		if ok {
+			return true
+		}
+	}
+	return false
+}
+
+// slantedBounds bounds a slanted piece's dose share over r's box from
+// its corners: along and across distances are linear in the box.
+func (p *piece) slantedBounds(r siteRect) (lo, hi float64) {
+	smin, smax := math.Inf(1), math.Inf(-1)
+	xmin, xmax := math.Inf(1), math.Inf(-1)
+	for _, c := range [4][2]float64{{r.u0, r.y0}, {r.u1, r.y0}, {r.u0, r.y1}, {r.u1, r.y1}} {
+		s := (c[0]-p.pu)*p.du + (c[1]-p.py)*p.dy
+		x := (c[1]-p.py)*p.du - (c[0]-p.pu)*p.dy
+		smin, smax = math.Min(smin, s), math.Max(smax, s)
+		xmin, xmax = math.Min(xmin, x), math.Max(xmax, x)
+	}
+	dfar := math.Max(math.Abs(xmin), math.Abs(xmax))
+	dnear := 0.0
+	if xmin > 0 || xmax < 0 {
+		dnear = math.Min(math.Abs(xmin), math.Abs(xmax))
+	}
+	fl, fh := unimodal(band(0, p.L, p.sigma, smin), band(0, p.L, p.sigma, smax), smin, smax, p.L/2,
+		func(s float64) float64 { return band(0, p.L, p.sigma, s) })
+	return p.ratio * gauss(dfar, p.sigma) * fl, p.ratio * gauss(dnear, p.sigma) * fh
+}
+
+// leaf doses the one site of r exactly.
+func (ck *coverageCheck) leaf(r siteRect, active []*piece) {
+	row, side := r.l0/2, r.l0%2
+	site := lattice.Site{Terrace: r.t, Row: row, Dimer: r.d0, Side: side}
+	u, y := float64(r.d0)*lattice.DimerPitch, lineY(r.l0)
+	sum, best, who := 0.0, 0.0, int32(-1)
+	for _, p := range active {
+		e := p.at(u, y)
+		sum += e
+		if e > best {
+			best, who = e, p.stroke
+		}
+	}
+	ck.classify(site, ck.painted.Row(r.t, row), ck.existSpans(r.t, row), sum, who, active)
+}
+
+// classifyRect classifies every site of r as cleared or not, line by
+// line (see classifyRange).
+func (ck *coverageCheck) classifyRect(r siteRect, active []*piece, cleared bool, e float64, who int32) {
+	if cleared && ck.tolerated(r, active) {
+		return // painted sites clear, and the rest are within the allowance
+	}
+	for l := r.l0; l < r.l1; l++ {
+		row := rowLine{t: r.t, r: l / 2, side: l % 2, pw: ck.painted.Row(r.t, l/2)}
+		ck.classifyRange(&row, active, r.d0, r.d1, cleared, e, who)
 	}
 }
 
-// decideRange starts decide on dimers [d0, d1).
-func (ck *coverageCheck) decideRange(row *rowLine, active []*contrib, d0, d1 int) {
-	top := len(ck.arena)
-	ck.arena = append(ck.arena, make([]float64, 2*len(active))...)
-	f0, f1 := ck.arena[top:top+len(active)], ck.arena[top+len(active):]
-	u0, u1 := float64(d0)*lattice.DimerPitch, float64(d1-1)*lattice.DimerPitch
-	for i, c := range active {
-		f0[i] = factorAt(c, ck.sigma[c.stroke], u0)
-		f1[i] = factorAt(c, ck.sigma[c.stroke], u1)
-	}
-	ck.decide(row, active, d0, d1, u0, u1, f0, f1)
-	ck.arena = ck.arena[:top]
+// rowLine is the line of one side's sites of one row.
+type rowLine struct {
+	t, r, side int
+	pw         []uint64 // the row's painted bits
 }
 
 // classifyRange classifies every site of dimers [d0, d1) of a row line
 // as cleared or not: a painted site not cleared is uncovered, an existing
 // unpainted site cleared may be overcleared. Only those sites are
 // visited, a word at a time.
-func (ck *coverageCheck) classifyRange(row *rowLine, active []*contrib, d0, d1 int, cleared bool, e float64, who int32) {
+func (ck *coverageCheck) classifyRange(row *rowLine, active []*piece, d0, d1 int, cleared bool, e float64, who int32) {
 	from, to := 2*d0+row.side, 2*(d1-1)+row.side+1 // bit indices [from, to)
 	parity := uint64(0x5555555555555555) << uint(row.side)
 	// Cleared unpainted sites are usually within the edge allowance of
 	// the region dosing them most: look that up once for the row.
-	var allowed []span
-	haveAllowed := false
+	var allowed, exist []span
+	haveAllowed, haveExist := false, false
+	if !cleared && !anyParity(row.pw, from, to, parity) {
+		return // nothing painted here to be uncovered
+	}
 	for k := from / 64; k*64 < to; k++ {
 		var word uint64
 		if k < len(row.pw) {
@@ -504,9 +609,12 @@ func (ck *coverageCheck) classifyRange(row *rowLine, active []*contrib, d0, d1 i
 			b := trailingZeros(target)
 			target &= target - 1
 			site := lattice.SiteAt(row.t, row.r, k*64+b)
+			if !haveExist {
+				exist, haveExist = ck.existSpans(row.t, row.r), true
+			}
 			if cleared {
 				u := float64(site.Dimer) * lattice.DimerPitch
-				if !inSpans(row.exist, u) {
+				if !inSpans(exist, u) {
 					continue
 				}
 				if !haveAllowed {
@@ -516,7 +624,7 @@ func (ck *coverageCheck) classifyRange(row *rowLine, active []*contrib, d0, d1 i
 					continue
 				}
 			}
-			ck.classify(site, row.pw, row.exist, e, who, active)
+			ck.classify(site, row.pw, exist, e, who, active)
 		}
 	}
 }
@@ -536,41 +644,10 @@ func (ck *coverageCheck) allowedFor(si int32, t, r int) []span {
 		return nil
 	}
 	ri := ck.region[si]
-	key := allowKey{ri, t, r}
-	sp, ok := ck.allowed[key]
-	if !ok {
-		sp = ck.allowedSpans(ri, t, r, allow)
-		ck.allowed[key] = sp
-	}
-	return sp
+	return ck.allowedCached(ri, t, r, allow)
 }
 
-// siteDose sums the active contributions at one site exactly.
-func (ck *coverageCheck) siteDose(active []*contrib, site lattice.Site) (float64, int32) {
-	u := float64(site.Dimer) * lattice.DimerPitch
-	sum, best, who := 0.0, 0.0, int32(-1)
-	for _, c := range active {
-		var e float64
-		switch {
-		case c.parallel:
-			e = c.peak * alongFactor(c, ck.sigma[c.stroke], u)
-		case c.square:
-			x := (u - c.umin) / ck.sigma[c.stroke]
-			e = c.peak * math.Exp(-x*x/2)
-		default:
-			sigma := ck.sigma[c.stroke]
-			x := (c.x0 + u*c.dx) / sigma
-			e = ck.ratio[c.stroke] * math.Exp(-x*x/2) * slantFactor(c, sigma, u)
-		}
-		sum += e
-		if e > best {
-			best, who = e, c.stroke
-		}
-	}
-	return sum, who
-}
-
-func (ck *coverageCheck) classify(site lattice.Site, pw []uint64, exist []span, e float64, who int32, active []*contrib) {
+func (ck *coverageCheck) classify(site lattice.Site, pw []uint64, exist []span, e float64, who int32, active []*piece) {
 	i := site.Index()
 	painted := i/64 < len(pw) && pw[i/64]&(1<<(uint(i)%64)) != 0
 	cleared := e >= 1
@@ -592,7 +669,7 @@ func (ck *coverageCheck) classify(site lattice.Site, pw []uint64, exist []span, 
 
 // over records a cleared site outside every region unless a region
 // whose strokes dose it lies within that mode's edge allowance.
-func (ck *coverageCheck) over(site lattice.Site, who int32, e float64, active []*contrib) {
+func (ck *coverageCheck) over(site lattice.Site, who int32, e float64, active []*piece) {
 	var tried [8]int
 	nTried := 0
 	try := func(si int32) bool {
@@ -638,7 +715,25 @@ func (ck *coverageCheck) over(site lattice.Site, who int32, e float64, active []
 	}
 }
 
-type allowKey struct{ region, t, row int }
+// allowedCached returns allowedSpans(ri, t, r, dist), computed once per
+// row and region (dist is the same for every call with one region's
+// mode).
+func (ck *coverageCheck) allowedCached(ri, t, r int, dist float64) []span {
+	key := [2]int{ri, t}
+	rows, ok := ck.allowed[key]
+	if !ok {
+		rows = make([]*[]span, ck.surf.RowCount(t))
+		ck.allowed[key] = rows
+	}
+	if r >= len(rows) {
+		return ck.allowedSpans(ri, t, r, dist)
+	}
+	if rows[r] == nil {
+		sp := ck.allowedSpans(ri, t, r, dist)
+		rows[r] = &sp
+	}
+	return *rows[r]
+}
 
 // near reports whether region ri has a site within dist of the site q
 // (between site positions). On q's own terrace it looks the answer up
@@ -650,12 +745,7 @@ func (ck *coverageCheck) near(ri int, q lattice.Site, dist float64) bool {
 	if set == nil {
 		return false
 	}
-	key := allowKey{ri, q.Terrace, q.Row}
-	sp, ok := ck.allowed[key]
-	if !ok {
-		sp = ck.allowedSpans(ri, q.Terrace, q.Row, dist)
-		ck.allowed[key] = sp
-	}
+	sp := ck.allowedCached(ri, q.Terrace, q.Row, dist)
 	if inSpans(sp, float64(q.Dimer)*lattice.DimerPitch) {
 		return true
 	}
@@ -677,7 +767,7 @@ func (ck *coverageCheck) near(ri int, q lattice.Site, dist float64) bool {
 // twice HOffset, a slight overestimate of nearness by at most HOffset).
 func (ck *coverageCheck) allowedSpans(ri, t, r int, dist float64) []span {
 	rows := ck.regionRows(ri, t)
-	var sp []span
+	sp := ck.spanBuf[:0]
 	k := int(math.Ceil((dist + 2*lattice.HOffset) / lattice.RowSpacing))
 	for rr := max(0, r-k); rr <= r+k && rr < len(rows); rr++ {
 		dy := math.Max(0, math.Abs(float64(rr-r))*lattice.RowSpacing-2*lattice.HOffset)
@@ -690,7 +780,8 @@ func (ck *coverageCheck) allowedSpans(ri, t, r int, dist float64) []span {
 		}
 	}
 	slices.SortFunc(sp, func(a, b span) int { return cmp.Compare(a.lo, b.lo) })
-	return mergeSorted(sp)
+	ck.spanBuf = sp
+	return slices.Clone(mergeSorted(sp))
 }
 
 // regionRows returns, per row of terrace t, the along extents (dimer
@@ -800,6 +891,15 @@ func (ck *coverageCheck) regionOf(site lattice.Site) string {
 // without a boundary takes what no bounded terrace holds), as
 // Surface.TerraceAt decides.
 func (ck *coverageCheck) existSpans(t, r int) []span {
+	if p := ck.exist[t][r]; p != nil {
+		return *p
+	}
+	sp := ck.computeExist(t, r)
+	ck.exist[t][r] = &sp
+	return sp
+}
+
+func (ck *coverageCheck) computeExist(t, r int) []span {
 	surf := ck.surf
 	tr := &surf.Terraces[t]
 	across := float64(r) * lattice.RowSpacing
@@ -932,29 +1032,59 @@ func newTerraceGrid(surf *lattice.Surface) *terraceGrid {
 	return g
 }
 
-// near returns the part [τ0, τ1] of the piece a→b (as fractions of it)
-// between its first and last points near terrace t, and false when no
-// point is; on a one-terrace surface (nil grid) the whole piece. Cells
-// carry a margin of one cell (20 nm), more than any footprint's reach.
-func (g *terraceGrid) near(t int, a, b r2.Point) ([2]float64, bool) {
-	if g == nil {
-		return [2]float64{0, 1}, true
-	}
+// reaches reports whether the piece a→b comes near terrace t: some point
+// of it, sampled every half cell, lies in a cell marked for t (cells
+// carry a one-cell margin of 20 nm, more than any footprint's reach).
+func (g *terraceGrid) reaches(t int, a, b r2.Point) bool {
 	L := b.Sub(a).Norm()
 	steps := max(1, int(math.Ceil(L/(terraceCellNM/2))))
-	first, last := -1, -1
 	for k := 0; k <= steps; k++ {
 		p := a.Add(b.Sub(a).Mul(float64(k) / float64(steps)))
-		i, j := int(math.Floor(p.X/terraceCellNM)), int(math.Floor(p.Y/terraceCellNM))
-		if i >= 0 && j >= 0 && i < g.nx && j < g.ny && g.cells[t][j*g.nx+i] {
-			if first < 0 {
-				first = k
-			}
-			last = k
+		if g.marked(t, int(math.Floor(p.X/terraceCellNM)), int(math.Floor(p.Y/terraceCellNM))) {
+			return true
 		}
 	}
-	if first < 0 {
-		return [2]float64{}, false
+	return false
+}
+
+func (g *terraceGrid) marked(t, i, j int) bool {
+	return i >= 0 && j >= 0 && i < g.nx && j < g.ny && g.cells[t][j*g.nx+i]
+}
+
+// holds reports whether the box of r may hold a site of its terrace.
+func (g *terraceGrid) holds(surf *lattice.Surface, r siteRect) bool {
+	tr := &surf.Terraces[r.t]
+	x0, x1, y0, y1 := r.u0, r.u1, r.y0, r.y1
+	if tr.Rows == lattice.RowsAlongY {
+		x0, x1, y0, y1 = r.y0, r.y1, r.u0, r.u1
 	}
-	return [2]float64{math.Max(0, float64(first-1)/float64(steps)), math.Min(1, float64(last+1)/float64(steps))}, true
+	i0, i1 := int(math.Floor((x0+tr.Offset.X)/terraceCellNM)), int(math.Floor((x1+tr.Offset.X)/terraceCellNM))
+	j0, j1 := int(math.Floor((y0+tr.Offset.Y)/terraceCellNM)), int(math.Floor((y1+tr.Offset.Y)/terraceCellNM))
+	for j := max(j0, 0); j <= j1 && j < g.ny; j++ {
+		for i := max(i0, 0); i <= i1 && i < g.nx; i++ {
+			if g.cells[r.t][j*g.nx+i] {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// anyParity reports whether w has a set bit of the given parity mask in
+// [from, to).
+func anyParity(w []uint64, from, to int, parity uint64) bool {
+	to = min(to, len(w)*64)
+	for k := from / 64; k*64 < to; k++ {
+		word := w[k] & parity
+		if lo := from - k*64; lo > 0 {
+			word &= ^uint64(0) << uint(lo)
+		}
+		if hi := to - k*64; hi < 64 {
+			word &= (1 << uint(hi)) - 1
+		}
+		if word != 0 {
+			return true
+		}
+	}
+	return false
 }

@@ -22,17 +22,19 @@ const ballard = "Ballard et al., JVST B 32, 041804 (2014)"
 
 // regionWork is one region of the variant as the planner works on it.
 type regionWork struct {
-	index     int
-	name      string
-	role      design.Role
-	requested design.Mode
-	sites     *lattice.SiteSet // every site, windows included
-	windows   []lattice.Window
-	plain     *lattice.SiteSet // sites outside the windows
-	tolGiven  float64          // the region's own tolerance, 0 for none
-	segs      []runSeg
-	width     float64 // narrowest chord, nm (see minWidth)
-	widthAt   r2.Point
+	index      int
+	name       string
+	role       design.Role
+	requested  design.Mode
+	sites      *lattice.SiteSet // every site, windows included
+	windows    []lattice.Window
+	plain      *lattice.SiteSet // sites outside the windows
+	tolGiven   float64          // the region's own tolerance, 0 for none
+	count      int              // sites
+	plainCount int              // sites outside the windows
+	segs       []runSeg
+	width      float64 // narrowest chord, nm (see minWidth)
+	widthAt    r2.Point
 
 	mode           string
 	reason         string
@@ -167,15 +169,13 @@ func (mc *modeChooser) choose() {
 			r.warnings = append(r.warnings, fmt.Sprintf("field-emission region %q comes %.1f nm from an AP feature at %s, inside the %g nm FE keep-out", r.name, d, fmtPoint(at), mc.keepOut))
 			continue
 		}
+		// An FE region too near: its core may still be FE behind an AP
+		// band; a hybrid whose core is too near is written in AP.
 		what := fmt.Sprintf("%.1f nm from an AP feature at %s, inside the %g nm FE keep-out", d, fmtPoint(at), mc.keepOut)
 		if r.mode == modeFE {
 			core := erode(r.plain, band)
 			if _, _, coreNear := mc.gap(ap, r, core); !coreNear && !core.IsEmpty() && mc.hybridPays(r, core) {
 				mc.setHybrid(r, core, what+fmt.Sprintf(": AP edge band %.1f nm + FE fill (%s)", band, ballard))
-				continue
-			}
-		} else if r.mode == modeHybrid {
-			if _, _, coreNear := mc.gap(ap, r, r.fePart); !coreNear {
 				continue
 			}
 		}
@@ -300,7 +300,7 @@ func (mc *modeChooser) apFeatures() []apFeature {
 		if r.mode == modeHybrid && r.fePart != nil {
 			owned = r.sites.Clone().Difference(r.fePart)
 		}
-		segs := runSegments(mc.g.surf, owned)
+		segs := mc.g.segsOf(owned)
 		if len(segs) == 0 {
 			continue
 		}
@@ -325,7 +325,7 @@ func (mc *modeChooser) gap(feats []apFeature, r *regionWork, part *lattice.SiteS
 	if part == nil || part.IsEmpty() {
 		return 0, r2.Point{}, false
 	}
-	mine := runSegments(mc.g.surf, part)
+	mine := mc.g.segsOf(part)
 	bounds := segBounds(mine).ExpandedByMargin(mc.keepOut)
 	best, at := math.Inf(1), r2.Point{}
 	for _, f := range feats {

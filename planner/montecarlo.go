@@ -19,12 +19,12 @@ const DefaultMonteCarloRuns = 1000
 // identically distributed) capped completion times is drawn from its
 // normal approximation (central limit theorem), whose error is far below
 // the spread of the drift term.
-const exactDwellSamples = 2000
+const exactDwellSamples = 256
 
 // spreadRanks is the number of intervals between the drift-rate ranks
 // at which the segmentation is computed exactly when dwells add their own
 // spread (see monteCarlo).
-const spreadRanks = 64
+const spreadRanks = 16
 
 // quantileIndex is the 0-based index of the empirical p-quantile of n
 // sorted samples: the smallest value whose empirical CDF reaches p, as
@@ -117,11 +117,13 @@ func monteCarlo(ctx context.Context, sg *segmenter, prof *Profile, runs int, see
 		mean := prof.Dwell.ExpectedS()
 		src := rand.NewPCG(uint64(seed), 0x6477656c6c)
 		if dwells <= exactDwellSamples {
-			exp := distuv.Exponential{Rate: k, Src: src}
+			// Exponential with rate k, as distuv.Exponential draws it
+			// (ExpFloat64/k), from one generator rather than one per draw.
+			rng := rand.New(src)
 			for i := range totals {
 				d := 0.0
 				for range dwells {
-					d += math.Min(exp.Rand(), capS) - mean
+					d += math.Min(rng.ExpFloat64()/k, capS) - mean
 				}
 				totals[i] += d
 			}

@@ -328,6 +328,11 @@ func (p Profile) Validate() error {
 	if p.Version < 1 || p.Version > ProfileVersion {
 		v.add("version", p.Version, fmt.Sprintf("must be 1..%d (this dimerpath reads up to version %d)", ProfileVersion, ProfileVersion))
 	}
+	if p.Base != "" {
+		if _, err := Preset(p.Base); err != nil {
+			v.add("base", p.Base, fmt.Sprintf("must name a preset (%s) or be empty", strings.Join(Presets(), ", ")))
+		}
+	}
 	v.mode("ap", p.AP, false)
 	v.mode("fe", p.FE, true)
 
@@ -498,7 +503,7 @@ func jsonError(data []byte, err error) error {
 		if path == "" {
 			path = "(top level)"
 		}
-		return fmt.Errorf("%s: %s is not a valid %s (line %d)", path, te.Value, te.Type, lineOf(data, te.Offset))
+		return fmt.Errorf("%s: got a JSON %s, want %s (line %d)", path, te.Value, describeGoType(te.Type.String()), lineOf(data, te.Offset))
 	}
 	var se *json.SyntaxError
 	if errors.As(err, &se) {
@@ -508,6 +513,18 @@ func jsonError(data []byte, err error) error {
 		return fmt.Errorf("truncated JSON: %w", err)
 	}
 	return err
+}
+
+func describeGoType(t string) string {
+	switch t {
+	case "float64", "int":
+		return "a number"
+	case "string":
+		return "a string"
+	case "bool":
+		return "true or false"
+	}
+	return "an object"
 }
 
 func lineOf(data []byte, offset int64) int {

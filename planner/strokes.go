@@ -19,10 +19,22 @@ type strokeGen struct {
 	// feEnd and feSide are how far the FE fill keeps its line ends and
 	// its outermost lines inside the region's outermost sites (nm).
 	feEnd, feSide float64
+	segs          map[*lattice.SiteSet][]runSeg
+}
+
+// segsOf returns the run segments of set, computed once per set (sets
+// are not changed once strokes are made from them).
+func (g *strokeGen) segsOf(set *lattice.SiteSet) []runSeg {
+	if s, ok := g.segs[set]; ok {
+		return s
+	}
+	s := runSegments(g.surf, set)
+	g.segs[set] = s
+	return s
 }
 
 func newStrokeGen(surf *lattice.Surface, prof *Profile) *strokeGen {
-	g := &strokeGen{surf: surf, prof: prof}
+	g := &strokeGen{surf: surf, prof: prof, segs: map[*lattice.SiteSet][]runSeg{}}
 	for n := 1; n <= 4; n++ {
 		g.apExt = append(g.apExt, apExtension(prof.AP, n))
 	}
@@ -180,7 +192,7 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 	end, side := g.feEnd, g.feSide
 	var out []Stroke
 	byTerrace := map[int][]runSeg{}
-	for _, s := range runSegments(g.surf, set) {
+	for _, s := range g.segsOf(set) {
 		byTerrace[s.run.Terrace] = append(byTerrace[s.run.Terrace], s)
 	}
 	for t := 0; t < set.TerraceCount(); t++ {

@@ -46,7 +46,7 @@ var (
 // points, or "x1,y1,x2,y2" per line for strokes when strokes is set.
 // Blank lines and lines starting with '#' are skipped, and the first
 // other line may be a header of non-numeric names. Fields may be padded
-// with spaces. file names the input in errors, which are *CSVError and
+// with spaces and wrapped in double quotes. file names the input in errors, which are *CSVError and
 // name the line and the field. At most MaxItems items are read.
 func ReadCSV(r io.Reader, file string, strokes bool) ([]Item, error) {
 	names := pointFields
@@ -83,7 +83,7 @@ func ReadCSV(r io.Reader, file string, strokes bool) ([]Item, error) {
 				len(fields), len(names), strings.Join(names, ","), hint(strokes, len(fields)))}
 		}
 		for i, f := range fields {
-			f = strings.TrimSpace(f)
+			f = unquote(strings.TrimSpace(f))
 			v, err := strconv.ParseFloat(f, 64)
 			if err != nil || !finite(v) {
 				return nil, &CSVError{File: file, Line: line, Field: names[i], Value: f, Msg: "not a finite number"}
@@ -106,10 +106,19 @@ func ReadCSV(r io.Reader, file string, strokes bool) ([]Item, error) {
 	return items, nil
 }
 
+// unquote removes one pair of double quotes around a field, as
+// spreadsheets write them.
+func unquote(f string) string {
+	if len(f) >= 2 && f[0] == '"' && f[len(f)-1] == '"' {
+		return strings.TrimSpace(f[1 : len(f)-1])
+	}
+	return f
+}
+
 // isHeader reports whether no field is a number.
 func isHeader(fields []string) bool {
 	for _, f := range fields {
-		if _, err := strconv.ParseFloat(strings.TrimSpace(f), 64); err == nil {
+		if _, err := strconv.ParseFloat(unquote(strings.TrimSpace(f)), 64); err == nil {
 			return false
 		}
 	}

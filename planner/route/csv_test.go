@@ -20,6 +20,7 @@ func TestReadCSV(t *testing.T) {
 		{"strokes", "x1,y1,x2,y2\r\n0,0,1,1\r\n", true,
 			[]route.Item{{A: route.Point{X: 0, Y: 0}, B: route.Point{X: 1, Y: 1}}}},
 		{"no header", "5,6\n", false, []route.Item{{A: route.Point{X: 5, Y: 6}, B: route.Point{X: 5, Y: 6}}}},
+		{"quoted", "\"x\",\"y\"\n\"5\", \"6.5\"\n", false, []route.Item{{A: route.Point{X: 5, Y: 6.5}, B: route.Point{X: 5, Y: 6.5}}}},
 		{"empty", "# nothing\n", false, nil},
 	} {
 		t.Run(c.name, func(t *testing.T) {

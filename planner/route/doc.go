@@ -35,11 +35,15 @@
 //     a reversal turns the shorter side. Above 100,000 nodes a reversal is
 //     capped at 50,000 positions and the 3-opt moves are off.
 //   - Improvement until the budget is spent: segment-local double-bridge
-//     kicks (Martin, Otto & Felten 1991) that swap two short segments
-//     (up to 100 nodes each), re-optimised from the six touched nodes only
-//     and kept when the tour is no longer, else undone from a journal of
-//     reversals: iterated local search (Johnson & McGeoch 1997, "The
-//     traveling salesman problem: a case study in local optimization").
+//     kicks (Martin, Otto & Felten 1991): four edges cut close together,
+//     X B C D reconnected as X D C B (or, for half the kicks, X C B D)
+//     with B, C, D of up to 300 nodes, re-optimised from the touched
+//     nodes only and kept when the
+//     tour is no longer, else undone from a journal of reversals: iterated
+//     local search (Johnson & McGeoch 1997, "The traveling salesman
+//     problem: a case study in local optimization").
+//   - Strokes: after the construction, the directions of all strokes are
+//     chosen at once by dynamic programming along the tour.
 //   - Groups are ordered greedily: of the groups whose predecessors are all
 //     written, the one with an item nearest the tip goes next, solved as an
 //     open path from where the last one ended.

@@ -1,6 +1,9 @@
 package route
 
-import "math"
+import (
+	"math"
+	"slices"
+)
 
 // graph is the node model of one ordering problem. A point item is one
 // node; a stroke is two nodes, its ends, joined by a fixed edge that no
@@ -94,3 +97,81 @@ func (g *graph) d(i, j int32) float64 {
 
 // fixed reports whether (i, j) is a fixed edge.
 func (g *graph) fixed(i, j int32) bool { return g.partner[i] == j }
+
+// spatialOrderMin is the node count above which the nodes are renumbered
+// along a Hilbert curve: then nodes near in the plane are near in memory,
+// and the local search, which mostly touches neighbours, stays in cache.
+// Measured: at 2·10^5 nodes in random input order a kick cost several
+// times what it costs at 2·10^4.
+var spatialOrderMin = 50_000
+
+// spatiallyOrdered returns g with its real nodes renumbered in the order
+// of a Hilbert curve over their bounding box (Hilbert 1891; the index by
+// the rotate-and-flip recursion); the dummy stays last. O(n log n).
+func (g *graph) spatiallyOrdered() *graph {
+	n := g.n()
+	minX, maxX, minY, maxY := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
+	for v := range g.real {
+		minX, maxX = min(minX, g.x[v]), max(maxX, g.x[v])
+		minY, maxY = min(minY, g.y[v]), max(maxY, g.y[v])
+	}
+	const side = 1 << 16
+	scale := (side - 1) / max(maxX-minX, maxY-minY, 1e-300)
+	keys := make([]uint64, g.real)
+	for v := range g.real {
+		hx := uint32((g.x[v] - minX) * scale)
+		hy := uint32((g.y[v] - minY) * scale)
+		keys[v] = hilbert(hx, hy, side)<<32 | uint64(v)
+	}
+	slices.Sort(keys)
+	old := make([]int32, n) // old[new] = old index
+	for i, k := range keys {
+		old[i] = int32(uint32(k))
+	}
+	for v := g.real; v < n; v++ {
+		old[v] = int32(v)
+	}
+	nw := make([]int32, n) // new index of each old node
+	for i, o := range old {
+		nw[o] = int32(i)
+	}
+	h := &graph{
+		x: make([]float64, n), y: make([]float64, n), partner: make([]int32, n),
+		tail: make([]bool, n), item: make([]int32, n), end: make([]uint8, n),
+		dummy: g.dummy, start: -1, oneWay: g.oneWay, real: g.real,
+	}
+	for i, o := range old {
+		h.x[i], h.y[i], h.tail[i], h.item[i], h.end[i] = g.x[o], g.y[o], g.tail[o], g.item[o], g.end[o]
+		h.partner[i] = -1
+		if p := g.partner[o]; p >= 0 {
+			h.partner[i] = nw[p]
+		}
+	}
+	if g.start >= 0 {
+		h.start = nw[g.start]
+	}
+	return h
+}
+
+// hilbert is the distance along the Hilbert curve of an n x n grid (n a
+// power of two) to the cell (x, y).
+func hilbert(x, y, n uint32) uint64 {
+	var d uint64
+	for s := n / 2; s > 0; s /= 2 {
+		var rx, ry uint32
+		if x&s != 0 {
+			rx = 1
+		}
+		if y&s != 0 {
+			ry = 1
+		}
+		d += uint64(s) * uint64(s) * uint64((3*rx)^ry)
+		if ry == 0 {
+			if rx == 1 {
+				x, y = s-1-x, s-1-y
+			}
+			x, y = y, x
+		}
+	}
+	return d
+}

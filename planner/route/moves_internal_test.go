@@ -84,3 +84,97 @@ func TestMovesKeepTour(t *testing.T) {
 		}
 	}
 }
+
+// TestOrientUnits checks the direction DP against brute force over all
+// directions of the strokes, order fixed, on small random tours.
+func TestOrientUnits(t *testing.T) {
+	r := rand.New(rand.NewPCG(3, 3))
+	for trial := range 100 {
+		n := 3 + r.IntN(6)
+		items := make([]Item, n)
+		for i := range items {
+			p := Point{X: r.Float64() * 10, Y: r.Float64() * 10}
+			q := p
+			if r.IntN(3) > 0 {
+				q = Point{X: p.X + r.Float64()*4 - 2, Y: p.Y + r.Float64()*4 - 2}
+			}
+			items[i] = Item{A: p, B: q, OneWay: r.IntN(5) == 0}
+		}
+		var start *Point
+		if trial%2 == 0 {
+			start = &Point{X: 5, Y: 5}
+		}
+		g := newGraph(items, start, trial%3 != 0)
+		order := r.Perm(n)
+		rev := make([]bool, n)
+		for i := range rev {
+			rev[i] = r.IntN(2) == 0 && !items[order[i]].OneWay
+		}
+		// Brute force over the reversible strokes' directions.
+		best := math.Inf(1)
+		for mask := range 1 << n {
+			dirs := make([]bool, n)
+			ok := true
+			for k, i := range order {
+				dirs[k] = mask&(1<<k) != 0
+				if dirs[k] && (items[i].IsPoint() || items[i].OneWay) {
+					ok = false
+				}
+			}
+			if ok {
+				s := newSolver(g, nil, g.tourFromOrder(order, dirs))
+				best = min(best, s.tourLength())
+			}
+		}
+		s := newSolver(g, nil, g.tourFromOrder(order, rev))
+		l0 := s.tourLength()
+		d := s.orientUnits()
+		if got := s.tourLength(); math.Abs(got-best) > 1e-9 || math.Abs(got-l0-d) > 1e-9 {
+			t.Fatalf("trial %d: orientUnits gives %v (predicted change %v from %v), brute force %v", trial, got, d, l0, best)
+		}
+		for a := range int32(g.n()) {
+			if g.tail[a] && s.succ(a) != g.partner[a] {
+				t.Fatalf("trial %d: one-way edge turned", trial)
+			}
+		}
+	}
+}
+
+// TestKickKeepsTour checks that kicks leave a valid tour whose tracked
+// length is its real length, and never a longer one.
+func TestKickKeepsTour(t *testing.T) {
+	r := rand.New(rand.NewPCG(4, 4))
+	for trial := range 100 {
+		n := 12 + r.IntN(200)
+		items := make([]Item, n)
+		for i := range items {
+			p := Point{X: r.Float64() * 100, Y: r.Float64() * 100}
+			q := p
+			if trial%2 == 1 && r.IntN(2) == 0 {
+				q = Point{X: p.X + r.Float64()*10, Y: p.Y + r.Float64()*10}
+			}
+			items[i] = Item{A: p, B: q}
+		}
+		g := newGraph(items, nil, trial%3 == 0)
+		nb := buildNeighbours(g, 8)
+		s := newSolver(g, nb, g.tourFromOrder(r.Perm(n), make([]bool, n)))
+		s.or3 = true
+		rg := newRNG(int64(trial))
+		for range 50 {
+			before := s.tourLength()
+			s.kick(rg, 30)
+			after := s.tourLength()
+			if math.Abs(after-s.length) > 1e-6 || after > before+1e-9 {
+				t.Fatalf("trial %d: length %v (tracked %v), before %v", trial, after, s.length, before)
+			}
+			for i, v := range s.t {
+				if s.pos[v] != int32(i) {
+					t.Fatal("position index broken")
+				}
+				if p := g.partner[v]; p >= 0 && s.succ(v) != p && s.pred(v) != p {
+					t.Fatal("fixed edge cut")
+				}
+			}
+		}
+	}
+}

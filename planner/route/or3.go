@@ -43,6 +43,19 @@ func (s *solver) between(a, b, c int32, dir int) bool {
 	return db <= dc
 }
 
+// spanOK reports whether the path from a to b in direction dir is at
+// most maxRev nodes long: every flip of a 3-opt move whose nodes lie on
+// it reverses at most that path.
+func (s *solver) spanOK(a, b int32, dir int) bool {
+	if s.maxRev >= s.n {
+		return true
+	}
+	if dir == 1 {
+		a, b = b, a
+	}
+	return s.pathLen(s.pos[a], s.pos[b]) <= s.maxRev
+}
+
 // bestOr3 finds the best improving sequential 3-opt move from t1.
 func (s *solver) bestOr3(t1 int32, best *move3) {
 	g := s.g
@@ -103,7 +116,7 @@ func (s *solver) bestOr3(t1 int32, best *move3) {
 								continue
 							}
 							delta := g.d(t6, t1) - g.d(t5, t6) - g3
-							if delta < best.delta {
+							if delta < best.delta && s.spanOK(t2, t3, dir) {
 								*best = move3{kind: moveOr3A1 + a, delta: delta, t1: t1, t2: t2, t3: t3, t4: t4, t5: t5, t6: t6}
 							}
 						}
@@ -115,7 +128,8 @@ func (s *solver) bestOr3(t1 int32, best *move3) {
 					// B: the path left by the 2-opt runs t4 ..(back).. t2,
 					// t3 ..(on).. t1.
 					var t6 int32
-					if s.between(t3, t5, t1, dir) {
+					far := s.between(t3, t5, t1, dir)
+					if far {
 						t6 = s.next(t5, 1-dir)
 					} else {
 						t6 = s.next(t5, dir)
@@ -124,7 +138,7 @@ func (s *solver) bestOr3(t1 int32, best *move3) {
 						continue
 					}
 					delta := g.d(t6, t1) - g.d(t5, t6) - g3
-					if delta < best.delta {
+					if delta < best.delta && ((far && s.spanOK(t2, t6, dir)) || (!far && s.spanOK(t2, t4, dir))) {
 						*best = move3{kind: moveOr3B, delta: delta, t1: t1, t2: t2, t3: t3, t4: t4, t5: t5, t6: t6}
 					}
 				}

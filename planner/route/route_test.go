@@ -307,6 +307,43 @@ func TestValidLarge(t *testing.T) {
 	}
 }
 
+// TestSpatialOrder runs mixed problems through the Hilbert renumbering
+// (normally only above 50,000 nodes) and checks the invariants and the
+// exact optimum where it is known.
+func TestSpatialOrder(t *testing.T) {
+	defer route.SetSpatialOrderMin(0)()
+	for _, c := range smallCases(0, 7) {
+		if c.n < 6 {
+			continue
+		}
+		t.Run(c.name, func(t *testing.T) {
+			defer route.SetExactMax(0)()
+			p := c.problem(11)
+			s, err := route.Solve(context.Background(), p, route.Options{MaxKicks: 300})
+			if err != nil {
+				t.Fatal(err)
+			}
+			checkValid(t, p, s)
+			if want := bruteForce(p); s.Length > want*(1+1e-9)+1e-9 {
+				t.Errorf("length %v, optimum %v", s.Length, want)
+			}
+		})
+	}
+	r := rand.New(rand.NewPCG(8, 8))
+	p := route.Problem{Items: randomItems(r, 3000, true, true), Start: &route.Point{X: 1, Y: 2}, Group: make([]int, 3000), Before: [][2]int{{1, 0}}}
+	for i := range p.Group {
+		p.Group[i] = i % 2
+	}
+	s, err := route.Solve(context.Background(), p, route.Options{MaxKicks: 3000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkValid(t, p, s)
+	if p.Group[s.Order[0]] != 1 || p.Group[s.Order[len(s.Order)-1]] != 0 {
+		t.Error("group 1 must come first")
+	}
+}
+
 func TestDeterministic(t *testing.T) {
 	r := rand.New(rand.NewPCG(1, 2))
 	p := route.Problem{Items: randomItems(r, 500, true, false)}

@@ -20,6 +20,9 @@ type solver struct {
 	maxRev    int32 // longest reversal a move may make
 	orMax     int   // longest segment an Or-opt move shifts, in nodes
 	or3       bool  // also try sequential 3-opt moves
+	units     []int32
+	dpCost    []float64
+	dpFrom    []int8
 	eps       float64
 	length    float64 // current tour length, fixed edges included
 }

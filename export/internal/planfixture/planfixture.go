@@ -37,14 +37,18 @@ type Device struct {
 // Tip conditions of the fixtures (values in the ranges physics.md §3
 // gives; AP: Schmucker et al. 2012's +4 V, 2 nA, 2 mC/cm, hence 10 nm/s).
 var (
-	apConditions = planner.Conditions{Mode: planner.AP, BiasV: 4, CurrentA: 2e-9, LineDoseCPerCm: 2e-3,
+	apConditions = planner.Conditions{Mode: planner.AP, Kind: planner.StrokeLine, BiasV: 4, CurrentA: 2e-9, LineDoseCPerCm: 2e-3,
 		SpeedNMPerS: 10, LineWidthNM: 0.8, Passes: 2}
-	feConditions = planner.Conditions{Mode: planner.FE, BiasV: 8, CurrentA: 5e-9, LineDoseCPerCm: 5e-5,
+	feConditions = planner.Conditions{Mode: planner.FE, Kind: planner.StrokeRaster, BiasV: 8, CurrentA: 5e-9, LineDoseCPerCm: 5e-5,
 		SpeedNMPerS: 1000, LineWidthNM: 4, Passes: 1, PitchNM: 3}
 )
 
+// dwellConditions are the AP conditions for parking on single sites.
+var dwellConditions = planner.Conditions{Mode: planner.AP, Kind: planner.StrokeDwell, BiasV: dwellBiasV, CurrentA: dwellCurrentA,
+	Passes: 1, DwellS: dwellS, DwellCapS: 3 * dwellS}
+
 const (
-	dwellBiasV     = 3.0
+	dwellBiasV     = 3.0 // the dwell conditions: see dwellConditions
 	dwellCurrentA  = 1e-9
 	dwellS         = 0.5
 	moveSpeedNMPS  = 200
@@ -224,7 +228,7 @@ func newBuilder(design, variant string, w, h float64) *builder {
 	return &builder{p: &planner.Plan{
 		Design: design, Variant: variant, Profile: fixtureProfile, Seed: 1,
 		FieldWidthNM: w, FieldHeightNM: h,
-		Conditions: []planner.Conditions{apConditions, feConditions},
+		Conditions: []planner.Conditions{apConditions, dwellConditions, feConditions},
 	}}
 }
 
@@ -247,14 +251,17 @@ func (b *builder) line(region string, path []r2.Point, sites int) int {
 	l := pathLength(path)
 	return b.add(planner.Stroke{Region: region, Mode: planner.AP, Kind: planner.StrokeLine, Path: path,
 		Passes: apConditions.Passes, LengthNM: l, DurationS: float64(apConditions.Passes) * l / apConditions.SpeedNMPerS,
-		Sites: sites, Window: -1})
+		Sites: sites, ToleranceNM: 0.2, Window: -1})
 }
 
 func (b *builder) dwell(region string, at r2.Point, species, template string, prob float64, sites int) int {
+	// Every site must clear: 0.99 per site (the planner's default dwell
+	// completion), a fixture value.
+	open := math.Pow(0.99, float64(sites))
 	b.p.Windows = append(b.p.Windows, planner.Window{Region: region, Species: species, Template: template,
-		At: at, Sites: sites, Probability: prob})
+		At: at, Sites: sites, OpenProbability: open, Probability: prob * open})
 	return b.add(planner.Stroke{Region: region, Mode: planner.AP, Kind: planner.StrokeDwell, Path: []r2.Point{at},
-		Passes: 1, DurationS: dwellS, Sites: sites, Window: len(b.p.Windows) - 1})
+		Passes: 1, DurationS: dwellS, Sites: sites, ToleranceNM: 0.2, Window: len(b.p.Windows) - 1})
 }
 
 // raster adds a serpentine FE fill of r (lines along x, FE pitch apart).
@@ -272,7 +279,8 @@ func (b *builder) raster(region string, r r2.Rect) int {
 	}
 	l := pathLength(path)
 	return b.add(planner.Stroke{Region: region, Mode: planner.FE, Kind: planner.StrokeRaster, Path: path,
-		Passes: 1, LengthNM: l, DurationS: l / feConditions.SpeedNMPerS, Sites: int(r.Size().X * r.Size().Y * lattice.HDensity), Window: -1})
+		Passes: 1, LengthNM: l, DurationS: l / feConditions.SpeedNMPerS, Sites: int(r.Size().X * r.Size().Y * lattice.HDensity),
+		ToleranceNM: 2, Window: -1})
 }
 
 // pad adds an FE raster and an outline pass over r, and its sites.
@@ -295,7 +303,7 @@ func (b *builder) pad(region string, set *lattice.SiteSet, surf *lattice.Surface
 	ring := []r2.Point{in.Lo(), {X: in.X.Hi, Y: in.Y.Lo}, in.Hi(), {X: in.X.Lo, Y: in.Y.Hi}, in.Lo()}
 	l := pathLength(ring)
 	o := b.add(planner.Stroke{Region: region, Mode: planner.FE, Kind: planner.StrokeOutline, Path: ring,
-		Passes: 1, LengthNM: l, DurationS: l / feConditions.SpeedNMPerS, Window: -1})
+		Passes: 1, LengthNM: l, DurationS: l / feConditions.SpeedNMPerS, ToleranceNM: 2, Window: -1})
 	return []int{id, o}
 }
 
@@ -387,6 +395,8 @@ func (b *builder) segment(ids []int) {
 func (b *builder) finish() *planner.Plan {
 	p := b.p
 	p.TotalS = b.t
+	p.FloorS = p.Breakdown.APWriteS + p.Breakdown.FEWriteS + p.Breakdown.DwellS
+	p.ByHandS = 1.8 * p.TotalS // a fixture ratio, not a by-hand plan
 	// A fixture spread, not a Monte Carlo.
 	p.P10S, p.P50S, p.P90S = 0.97*p.TotalS, 0.995*p.TotalS, 1.06*p.TotalS
 	probs := make([]float64, len(p.Windows))

@@ -152,15 +152,21 @@ func uniformTable(sizes []int, opt route.Options) {
 }
 
 func strokesTable(opt route.Options) {
-	fmt.Println("Random reversible strokes (midpoints uniform, lengths 0.5-1.5 x mean spacing), open paths: idle travel")
+	fmt.Println("Random reversible strokes (midpoints uniform, lengths 0.5-1.5 x mean spacing), open paths: idle travel;")
+	fmt.Println("the Held-Karp bound (1000 strokes only) is a lower bound on every ordering's idle travel")
 	tw := tabwriter.NewWriter(os.Stdout, 2, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "n\tidle travel\ttime\tgreedy nearest-end\tgreedy time\tgain %\t")
+	fmt.Fprintln(tw, "n\tidle travel\ttime\tgreedy nearest-end\tgreedy time\tgain %\tHK bound\tabove bound %\tmost gain possible %\t")
 	for _, n := range []int{1000, 10_000} {
 		p := route.Problem{Items: testset.Strokes(n, 1)}
 		var s, nn route.Solution
 		tn := timed(func() { nn, _ = route.Nearest(p) })
 		ts := timed(func() { s, _ = route.Solve(context.Background(), p, opt) })
-		fmt.Fprintf(tw, "%d\t%.1f\t%.2fs\t%.1f\t%.3fs\t%.1f\t\n", n, s.Length, ts.Seconds(), nn.Length, tn.Seconds(), 100*(1-s.Length/nn.Length))
+		bound := "\t\t"
+		if n <= 2000 {
+			lb := testset.HeldKarpBound(p.Items, s.Length, 300)
+			bound = fmt.Sprintf("%.1f\t%.1f\t%.1f", lb, 100*(s.Length/lb-1), 100*(1-lb/nn.Length))
+		}
+		fmt.Fprintf(tw, "%d\t%.1f\t%.2fs\t%.1f\t%.3fs\t%.1f\t%s\t\n", n, s.Length, ts.Seconds(), nn.Length, tn.Seconds(), 100*(1-s.Length/nn.Length), bound)
 	}
 	tw.Flush()
 	fmt.Println()

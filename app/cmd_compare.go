@@ -1,0 +1,102 @@
+package app
+
+import (
+	"flag"
+	"fmt"
+	"io"
+	"text/tabwriter"
+
+	"dimerpath/export"
+	"dimerpath/planner"
+)
+
+func init() {
+	Register(&Command{
+		Name:    "compare",
+		Usage:   "compare DESIGN.json [--profile P.json] [--seed N] [-o REPORT.pdf|.svg] [--paper a4|letter] [--date YYYY-MM-DD]",
+		Summary: "plan every variant of a design and compare write time, breakdown and yield",
+		Help: `Plans every variant of the design with the same instrument profile and seed,
+and prints one table row per variant: expected total write time with its
+P10-P90 spread, the time by kind (AP and FE writing, dwells, travel, mode
+switches, registrations, verification), the number of segments, and the
+probability that every dopant window takes exactly one donor. A variant that
+cannot be planned (for example one needing values beyond the profile's
+limits) gets its reason in place of a row; the exit status is then 2.
+
+With -o REPORT.pdf or REPORT.svg it also writes the comparison report: a
+table of every variant and, side by side on shared axes, the time
+breakdowns, the P10-P90 spreads and the yields (--paper and --date set the
+PDF's page size and printed date). The report is written to a temporary
+file and renamed into place, also when some variant could not be planned
+(it lists the reason).`,
+		Flags: func(fs *flag.FlagSet) func(Env, []string) int {
+			profile := fs.String("profile", "", "instrument profile `FILE`, or a preset (rt, lt); default rt")
+			seed := fs.Int64("seed", 1, "`N` seeds the routes and the Monte Carlo spread")
+			var rep reportFlags
+			rep.declare(fs, "also write the report to `FILE` (.pdf or .svg)")
+			return func(env Env, args []string) int {
+				// A bad report name is refused before anything is read.
+				opt, err := rep.options(export.FormatPDF, export.FormatSVG)
+				if err != nil {
+					fmt.Fprintf(env.Stderr, "dimerpath compare: %v\n", err)
+					return ExitFailure
+				}
+				run, code := startPlanning(env, "compare", args, *profile, "dimerpath compare DESIGN.json [--profile P.json] [-o REPORT.pdf|.svg]")
+				if code != ExitOK {
+					return code
+				}
+				defer run.stop()
+				ctx := run.ctx
+				results, err := planner.Compare(ctx, run.design, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
+				if err != nil {
+					return planError(env, "compare", args[0], err)
+				}
+				run.progress.done()
+				fmt.Fprintf(env.Stdout, "%s: %d variants with profile %q (seed %d)\n", run.design.Name, len(results), run.profile.Name, *seed)
+				fmt.Fprintln(env.Stdout, planner.Caution)
+				fmt.Fprintln(env.Stdout)
+				printComparison(env.Stdout, results)
+				if rep.out != "" {
+					if err := export.WriteComparisonFile(ctx, rep.out, results, opt); err != nil {
+						fmt.Fprintf(env.Stderr, "dimerpath compare: %v\n", err)
+						return ExitFailure
+					}
+					fmt.Fprintf(env.Stderr, "dimerpath compare: wrote %s\n", rep.out)
+				}
+				failed := false
+				for _, r := range results {
+					if r.Err != nil {
+						failed = true
+						fmt.Fprintf(env.Stderr, "dimerpath compare: variant %q: %v\n", r.Variant, r.Err)
+					}
+				}
+				if failed {
+					return ExitFailure
+				}
+				return ExitOK
+			}
+		},
+	})
+}
+
+// printComparison writes the comparison table, times in seconds.
+func printComparison(w io.Writer, results []planner.VariantResult) {
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "variant\ttotal\tP10\tP90\tAP s\tFE s\tdwell s\ttravel s\tswitch s\tregister s\tverify s\tsegments\tP(all windows good)\t")
+	for _, r := range results {
+		if r.Err != nil {
+			fmt.Fprintf(tw, "%s\tnot planned\t\t\t\t\t\t\t\t\t\t\t\t\n", r.Variant)
+			continue
+		}
+		p := r.Plan
+		b := p.Breakdown
+		all := fmt.Sprintf("%.4g", p.Yield.All)
+		if p.Yield.All == 0 && p.Yield.Windows > 0 {
+			all = fmt.Sprintf("10^%.1f", p.Yield.Log10All)
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%.0f\t%.0f\t%.0f\t%.0f\t%.0f\t%.0f\t%.0f\t%d\t%s\t\n", r.Variant,
+			fmtDuration(p.TotalS), fmtDuration(p.P10S), fmtDuration(p.P90S),
+			b.APWriteS, b.FEWriteS, b.DwellS, b.TravelS, b.ModeSwitchS, b.RegistrationS, b.VerificationS, len(p.Segments), all)
+	}
+	tw.Flush()
+}

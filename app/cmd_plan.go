@@ -1,0 +1,384 @@
+package app
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"os/signal"
+	"sort"
+	"strings"
+	"syscall"
+	"text/tabwriter"
+	"time"
+
+	"dimerpath/lattice/design"
+	"dimerpath/planner"
+)
+
+func init() {
+	Register(&Command{
+		Name:    "plan",
+		Usage:   "plan DESIGN.json [--variant NAME] [--profile P.json] [--seed N] [--json]",
+		Summary: "plan the write of one variant: modes, strokes, drift-safe segments, time and yield",
+		Help: `Plans the write of one variant (default: the first) with an instrument
+profile (--profile: a profile file, or a preset: rt room temperature, lt 4 K;
+default rt). Prints each region's write mode and why, the tip conditions, the
+expected write time with its breakdown and its P10/P50/P90 spread, the
+drift-safe segments with their fiducials, the dopant windows with the chance
+that every one takes exactly one donor, and the coverage check.
+
+--json prints one JSON object instead: total_s, breakdown (seconds by kind,
+summing to total_s), p10_s, p50_s, p90_s, floor_s, by_hand_s, segments (each
+with its strokes, fiducial, start_s, end_s), windows (each with species and
+probability), yield_all, yield, modes (region -> mode and reason), coverage,
+warnings. The full plan (every stroke and action) is written by
+"dimerpath export".
+
+A plan that needs a bias, current or speed beyond the profile's limits is
+refused (exit status 2). Long plans report progress on stderr; Ctrl-C stops
+cleanly.`,
+		Flags: func(fs *flag.FlagSet) func(Env, []string) int {
+			variant := fs.String("variant", "", "plan the variant `NAME` (default: the first)")
+			profile := fs.String("profile", "", "instrument profile `FILE`, or a preset (rt, lt); default rt")
+			seed := fs.Int64("seed", 1, "`N` seeds the route and the Monte Carlo spread")
+			asJSON := fs.Bool("json", false, "print one JSON object instead of the summary")
+			return func(env Env, args []string) int {
+				run, code := startPlanning(env, "plan", args, *profile, "dimerpath plan DESIGN.json [--variant NAME] [--profile P.json] [--json]")
+				if code != ExitOK {
+					return code
+				}
+				defer run.stop()
+				p, err := planner.Build(run.ctx, run.design, *variant, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
+				if err != nil {
+					return planError(env, "plan", args[0], err)
+				}
+				run.progress.done()
+				if *asJSON {
+					enc := json.NewEncoder(env.Stdout)
+					enc.SetIndent("", "  ")
+					if err := enc.Encode(summarise(p)); err != nil {
+						fmt.Fprintln(env.Stderr, "dimerpath plan:", err)
+						return ExitFailure
+					}
+					return ExitOK
+				}
+				printPlan(env.Stdout, p)
+				return ExitOK
+			}
+		},
+	})
+}
+
+// planning is what plan and compare start from: the design, the profile,
+// a context that Ctrl-C cancels, and progress on stderr.
+type planning struct {
+	design   *design.Design
+	profile  planner.Profile
+	ctx      context.Context
+	stop     context.CancelFunc
+	progress *progress
+}
+
+// startPlanning checks for one design file argument and loads it and the
+// --profile argument; on failure it has printed why (usage names the
+// command's synopsis).
+func startPlanning(env Env, cmd string, args []string, profile, usage string) (*planning, int) {
+	if len(args) != 1 {
+		fmt.Fprintf(env.Stderr, "dimerpath %s: want one design file: %s\n", cmd, usage)
+		return nil, ExitFailure
+	}
+	d, err := design.Load(args[0])
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "dimerpath %s: %v\n", cmd, err)
+		return nil, ExitFailure
+	}
+	prof, err := loadProfileArg(profile)
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "dimerpath %s: %v\n", cmd, err)
+		return nil, ExitFailure
+	}
+	ctx, stop := interruptible()
+	return &planning{design: d, profile: prof, ctx: ctx, stop: stop, progress: newProgress(env.Stderr, cmd)}, ExitOK
+}
+
+// interruptible returns a context cancelled by Ctrl-C or SIGTERM.
+func interruptible() (context.Context, context.CancelFunc) {
+	return signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+}
+
+// planError reports a failed plan or comparison: an interruption, a
+// refusal (a *planner.LimitError or *planner.ProfileError names the value
+// and the limit or field), or a design that cannot be laid out.
+func planError(env Env, cmd, file string, err error) int {
+	if errors.Is(err, context.Canceled) {
+		fmt.Fprintf(env.Stderr, "dimerpath %s: interrupted; nothing was written\n", cmd)
+	} else {
+		fmt.Fprintf(env.Stderr, "dimerpath %s: %s: %v\n", cmd, file, err)
+	}
+	return ExitFailure
+}
+
+// progress prints planning stages on stderr once the work has taken more
+// than progressAfter, so quick plans stay quiet.
+type progress struct {
+	w     io.Writer
+	cmd   string
+	start time.Time
+	last  string
+	shown bool
+}
+
+const progressAfter = 500 * time.Millisecond
+
+func newProgress(w io.Writer, cmd string) *progress {
+	return &progress{w: w, cmd: cmd, start: time.Now()}
+}
+
+func (p *progress) report(stage string, fraction float64) {
+	if stage == p.last || time.Since(p.start) < progressAfter {
+		return
+	}
+	p.last = stage
+	p.shown = true
+	fmt.Fprintf(p.w, "dimerpath %s: %3.0f%% %s\n", p.cmd, 100*fraction, stage)
+}
+
+func (p *progress) done() {
+	if p.shown {
+		fmt.Fprintf(p.w, "dimerpath %s: done in %s\n", p.cmd, time.Since(p.start).Round(time.Millisecond))
+	}
+}
+
+// planSummary is what "plan --json" prints.
+type planSummary struct {
+	Design    string                 `json:"design"`
+	Variant   string                 `json:"variant"`
+	Profile   string                 `json:"profile"`
+	Seed      int64                  `json:"seed"`
+	Caution   string                 `json:"caution"`
+	TotalS    float64                `json:"total_s"`
+	Breakdown planner.Breakdown      `json:"breakdown"`
+	P10S      float64                `json:"p10_s"`
+	P50S      float64                `json:"p50_s"`
+	P90S      float64                `json:"p90_s"`
+	FloorS    float64                `json:"floor_s"`
+	ByHandS   float64                `json:"by_hand_s"`
+	Strokes   int                    `json:"strokes"`
+	Segments  []segmentSummary       `json:"segments"`
+	Windows   []windowSummary        `json:"windows"`
+	YieldAll  float64                `json:"yield_all"`
+	Yield     yieldSummary           `json:"yield"`
+	Modes     map[string]modeSummary `json:"modes"`
+	Coverage  planner.Coverage       `json:"coverage"`
+	Warnings  []string               `json:"warnings"`
+}
+
+type segmentSummary struct {
+	Index    int     `json:"index"`
+	Fiducial string  `json:"fiducial"`
+	StartS   float64 `json:"start_s"`
+	EndS     float64 `json:"end_s"`
+	BudgetS  float64 `json:"budget_s"`
+	Strokes  []int   `json:"strokes"`
+}
+
+type windowSummary struct {
+	Region      string     `json:"region"`
+	Species     string     `json:"species"`
+	Template    string     `json:"template"`
+	AtNM        [2]float64 `json:"at_nm"`
+	Probability float64    `json:"probability"`
+}
+
+type yieldSummary struct {
+	Windows           int     `json:"windows"`
+	All               float64 `json:"all"`
+	Log10All          float64 `json:"log10_all"`
+	MeanGood          float64 `json:"mean_good"`
+	SDGood            float64 `json:"sd_good"`
+	DevicesPerPerfect float64 `json:"devices_per_perfect"`
+}
+
+type modeSummary struct {
+	Requested string `json:"requested"`
+	Mode      string `json:"mode"`
+	Reason    string `json:"reason"`
+}
+
+func summarise(p *planner.Plan) planSummary {
+	s := planSummary{
+		Design: p.Design, Variant: p.Variant, Profile: p.Profile, Seed: p.Seed, Caution: planner.Caution,
+		TotalS: p.TotalS, Breakdown: p.Breakdown, P10S: p.P10S, P50S: p.P50S, P90S: p.P90S,
+		FloorS: p.FloorS, ByHandS: p.ByHandS, Strokes: len(p.Strokes),
+		Segments: []segmentSummary{}, Windows: []windowSummary{},
+		YieldAll: p.Yield.All,
+		Yield: yieldSummary{Windows: p.Yield.Windows, All: p.Yield.All, Log10All: p.Yield.Log10All, MeanGood: p.Yield.MeanGood,
+			SDGood: p.Yield.SDGood, DevicesPerPerfect: p.Yield.DevicesPerPerfect},
+		Modes: map[string]modeSummary{}, Coverage: p.Coverage, Warnings: p.Warnings,
+	}
+	if s.Warnings == nil {
+		s.Warnings = []string{}
+	}
+	for _, g := range p.Segments {
+		s.Segments = append(s.Segments, segmentSummary{Index: g.Index, Fiducial: g.Fiducial, StartS: g.StartS, EndS: g.EndS, BudgetS: g.BudgetS, Strokes: g.Strokes})
+	}
+	for _, w := range p.Windows {
+		s.Windows = append(s.Windows, windowSummary{Region: w.Region, Species: w.Species, Template: w.Template, AtNM: [2]float64{w.At.X, w.At.Y}, Probability: w.Probability})
+	}
+	for _, m := range p.Modes {
+		s.Modes[m.Region] = modeSummary{Requested: m.Requested, Mode: m.Mode, Reason: m.Reason}
+	}
+	return s
+}
+
+// fmtDuration writes seconds the way an operator reads a schedule.
+func fmtDuration(s float64) string {
+	switch {
+	case math.IsNaN(s) || math.IsInf(s, 0):
+		return "-"
+	case s < 60:
+		return fmt.Sprintf("%.1f s", s)
+	case s < 3600:
+		return fmt.Sprintf("%d min %02d s", int(s)/60, int(math.Round(s))%60)
+	}
+	m := int(math.Round(s / 60))
+	return fmt.Sprintf("%d h %02d min", m/60, m%60)
+}
+
+// maxListed bounds the segments and windows listed in the summary.
+const maxListed = 12
+
+func printPlan(w io.Writer, p *planner.Plan) {
+	fmt.Fprintf(w, "%s, variant %s: plan with profile %q (seed %d)\n", p.Design, p.Variant, p.Profile, p.Seed)
+	fmt.Fprintln(w, planner.Caution)
+
+	fmt.Fprintln(w, "\nWrite modes")
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "  region\tsites\tdrawn\tplanned\twhy")
+	for _, m := range p.Modes {
+		fmt.Fprintf(tw, "  %s\t%d\t%s\t%s\t%s\n", m.Region, m.Sites, m.Requested, m.Mode, m.Reason)
+	}
+	tw.Flush()
+
+	fmt.Fprintln(w, "\nTip conditions")
+	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	for _, c := range p.Conditions {
+		switch c.Kind {
+		case planner.StrokeDwell:
+			fmt.Fprintf(tw, "  AP dwell\t%+.2f V\t%.3g nA\texpected %.3g s per site, stop at %.3g s\n", c.BiasV, c.CurrentA*1e9, c.DwellS, c.DwellCapS)
+		default:
+			name := "AP line"
+			extra := ""
+			if c.Mode == planner.FE {
+				name, extra = "FE raster", fmt.Sprintf(", pitch %.2f nm", c.PitchNM)
+			}
+			fmt.Fprintf(tw, "  %s\t%+.2f V\t%.3g nA\t%.3g mC/cm, %.4g nm/s, line %.2f nm, %d pass(es)%s\n",
+				name, c.BiasV, c.CurrentA*1e9, c.LineDoseCPerCm*1e3, c.SpeedNMPerS, c.LineWidthNM, c.Passes, extra)
+		}
+	}
+	tw.Flush()
+
+	fmt.Fprintf(w, "\nTime: %s expected (P10 %s, P50 %s, P90 %s)\n", fmtDuration(p.TotalS), fmtDuration(p.P10S), fmtDuration(p.P50S), fmtDuration(p.P90S))
+	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	b := p.Breakdown
+	for _, part := range []struct {
+		name string
+		s    float64
+	}{{"AP writing", b.APWriteS}, {"FE writing", b.FEWriteS}, {"dwells", b.DwellS}, {"travel and settling", b.TravelS},
+		{"mode switches", b.ModeSwitchS}, {"registrations", b.RegistrationS}, {"verification", b.VerificationS}} {
+		share := 0.0
+		if p.TotalS > 0 {
+			share = 100 * part.s / p.TotalS
+		}
+		fmt.Fprintf(tw, "  %s\t%s\t%.1f %%\t\n", part.name, fmtDuration(part.s), share)
+	}
+	tw.Flush()
+	if p.FloorS > 0 {
+		fmt.Fprintf(w, "  writing alone (physical floor) %s: plan = %.2f x floor\n", fmtDuration(p.FloorS), p.TotalS/p.FloorS)
+	}
+	if p.ByHandS > 0 {
+		fmt.Fprintf(w, "  by hand (file order, raster rows, fixed-interval registration) %s: plan = %.2f x by hand\n", fmtDuration(p.ByHandS), p.TotalS/p.ByHandS)
+	}
+
+	fmt.Fprintf(w, "\nSegments: %d strokes in %d drift-safe segments\n", len(p.Strokes), len(p.Segments))
+	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "  #\tfiducial\tstart\tend\tdrift budget\tstrokes")
+	for i, g := range p.Segments {
+		if i == maxListed {
+			fmt.Fprintf(tw, "  ... %d more\n", len(p.Segments)-maxListed)
+			break
+		}
+		budget := "none (no drift)"
+		if g.BudgetS > 0 {
+			budget = fmtDuration(g.BudgetS)
+		}
+		fmt.Fprintf(tw, "  %d\t%s\t%s\t%s\t%s\t%d\n", g.Index, g.Fiducial, fmtDuration(g.StartS), fmtDuration(g.EndS), budget, len(g.Strokes))
+	}
+	tw.Flush()
+
+	y := p.Yield
+	fmt.Fprintf(w, "\nDopant windows: %d", y.Windows)
+	if y.Windows > 0 {
+		count := map[string]int{}
+		for _, win := range p.Windows {
+			count[win.Species]++
+		}
+		var parts []string
+		for _, sp := range sortedKeys(count) {
+			parts = append(parts, fmt.Sprintf("%s %d", sp, count[sp]))
+		}
+		fmt.Fprintf(w, " (%s)\n", strings.Join(parts, ", "))
+		all := fmt.Sprintf("%.4g", y.All)
+		if y.All == 0 {
+			all = fmt.Sprintf("10^%.1f", y.Log10All)
+		}
+		devices := fmt.Sprintf("%.3g", y.DevicesPerPerfect)
+		if y.DevicesPerPerfect == 0 {
+			devices = "more than can be written"
+		}
+		fmt.Fprintf(w, "  P(every window takes exactly one donor) = %s; good windows %.2f ± %.2f of %d; devices per perfect device %s\n",
+			all, y.MeanGood, y.SDGood, y.Windows, devices)
+		tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+		fmt.Fprintln(tw, "  region\tspecies\tat (nm)\tP(one donor)")
+		for i, win := range p.Windows {
+			if i == maxListed {
+				fmt.Fprintf(tw, "  ... %d more\n", len(p.Windows)-maxListed)
+				break
+			}
+			fmt.Fprintf(tw, "  %s\t%s\t(%.2f, %.2f)\t%.3g\n", win.Region, win.Species, win.At.X, win.At.Y, win.Probability)
+		}
+		tw.Flush()
+	} else {
+		fmt.Fprintln(w)
+	}
+
+	c := p.Coverage
+	if c.OK {
+		fmt.Fprintf(w, "\nCoverage: OK, every one of %d sites clears and none outside the regions beyond the edge allowance\n", c.Sites)
+	} else {
+		fmt.Fprintf(w, "\nCoverage: NOT OK, %d of %d sites uncovered, %d overcleared\n", c.Uncovered, c.Sites, c.Overcleared)
+		for _, is := range c.Issues {
+			fmt.Fprintln(w, "  "+is)
+		}
+	}
+	if len(p.Warnings) > 0 {
+		fmt.Fprintln(w, "\nWarnings")
+		for _, warn := range p.Warnings {
+			fmt.Fprintln(w, "  "+warn)
+		}
+	}
+}
+
+func sortedKeys(m map[string]int) []string {
+	ks := make([]string, 0, len(m))
+	for k := range m {
+		ks = append(ks, k)
+	}
+	sort.Strings(ks)
+	return ks
+}

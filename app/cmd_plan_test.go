@@ -1,0 +1,159 @@
+package app
+
+import (
+	"encoding/json"
+	"math"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"dimerpath/planner"
+)
+
+const demoPath = "../assets/demo.json"
+
+func TestPlanJSON(t *testing.T) {
+	out, errs, code := runMain(t, "plan", demoPath, "--json", "--seed", "3")
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var got map[string]json.RawMessage
+	if err := json.Unmarshal([]byte(out), &got); err != nil {
+		t.Fatalf("stdout is not one JSON object: %v", err)
+	}
+	for _, k := range []string{"total_s", "breakdown", "p10_s", "p50_s", "p90_s", "segments", "windows", "yield_all", "modes"} {
+		if _, ok := got[k]; !ok {
+			t.Errorf("plan --json lacks %q", k)
+		}
+	}
+	var s struct {
+		TotalS    float64            `json:"total_s"`
+		Breakdown map[string]float64 `json:"breakdown"`
+		Segments  []struct {
+			Strokes  []int   `json:"strokes"`
+			Fiducial string  `json:"fiducial"`
+			StartS   float64 `json:"start_s"`
+			EndS     float64 `json:"end_s"`
+		} `json:"segments"`
+		Windows []struct {
+			Species     string  `json:"species"`
+			Probability float64 `json:"probability"`
+		} `json:"windows"`
+		YieldAll float64 `json:"yield_all"`
+		Modes    map[string]struct {
+			Mode, Reason string
+		} `json:"modes"`
+	}
+	if err := json.Unmarshal([]byte(out), &s); err != nil {
+		t.Fatal(err)
+	}
+	sum := 0.0
+	for _, v := range s.Breakdown {
+		sum += v
+	}
+	if math.Abs(sum-s.TotalS) > 1e-9*s.TotalS || len(s.Breakdown) != 7 {
+		t.Errorf("breakdown %v sums to %v, total %v", s.Breakdown, sum, s.TotalS)
+	}
+	if len(s.Segments) == 0 || s.Segments[0].Fiducial == "" || s.Segments[len(s.Segments)-1].EndS != s.TotalS {
+		t.Errorf("segments %+v", s.Segments)
+	}
+	if len(s.Windows) != 2 || s.Windows[0].Species != "P" || math.Abs(s.YieldAll-0.63*0.97) > 1e-12 {
+		t.Errorf("windows %+v, yield_all %v", s.Windows, s.YieldAll)
+	}
+	if m := s.Modes["pad-drain"]; m.Mode != "fe" || m.Reason == "" {
+		t.Errorf("modes[pad-drain] = %+v", m)
+	}
+}
+
+func TestPlanText(t *testing.T) {
+	out, _, code := runMain(t, "plan", "--variant", "gap-12-source", demoPath)
+	if code != ExitOK {
+		t.Fatalf("exit %d", code)
+	}
+	for _, want := range []string{"gap-12-source", planner.Caution, "Write modes", "Time:", "P10", "Segments:", "Dopant windows: 2", "Coverage: OK"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("summary lacks %q", want)
+		}
+	}
+}
+
+func TestPlanRefusals(t *testing.T) {
+	hot := writeFile(t, "hot.json", `{"format":"dimerpath-profile","version":1,"fe":{"bias_v":12}}`)
+	bad := writeFile(t, "bad.json", `{"format":"dimerpath-profile","version":1,"ap":{"current_a":0},"settle_s":-1}`)
+	cases := []struct {
+		args []string
+		want string
+	}{
+		{[]string{"plan", demoPath, "--profile", hot}, "fe.bias_v = 12 V exceeds limits.max_bias_v = 10 V"},
+		{[]string{"plan", demoPath, "--profile", bad}, "ap.current_a = 0"},
+		{[]string{"plan", demoPath, "--profile", bad}, "settle_s = -1"},
+		{[]string{"plan", demoPath, "--variant", "nope"}, `no variant "nope"`},
+		{[]string{"plan", filepath.Join(t.TempDir(), "missing.json")}, "missing.json"},
+		{[]string{"plan"}, "want one design file"},
+		{[]string{"compare", demoPath, "--profile", hot}, "fe.bias_v = 12 V"},
+	}
+	for _, c := range cases {
+		out, errs, code := runMain(t, c.args...)
+		if code != ExitFailure || !strings.Contains(errs, c.want) {
+			t.Errorf("%v: exit %d, stderr %q; want exit 2 and %q", c.args, code, errs, c.want)
+		}
+		if c.args[0] == "plan" && out != "" {
+			t.Errorf("%v printed to stdout on failure: %q", c.args, out)
+		}
+	}
+}
+
+func TestCompareTable(t *testing.T) {
+	out, errs, code := runMain(t, "compare", demoPath, "--profile", "lt")
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, want := range []string{"gap-9", "gap-12-source", "P(all windows good)", "0.6111"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("compare output lacks %q:\n%s", want, out)
+		}
+	}
+}
+
+func TestCalibrateThenPlan(t *testing.T) {
+	// Lines written at 4 V, 2 nA from a model with σ = 0.35 nm and a
+	// 0.6 mC/cm threshold (w = 2σ·sqrt(2 ln(λ/λthr))); the calibrated
+	// profile recovers them and plan uses it.
+	var b strings.Builder
+	b.WriteString("# test lines\nbias_v,current_na,speed_nm_per_s,width_nm\n")
+	want := planner.WidthModel{SigmaNM: 0.35, ThresholdDoseCPerCm: 0.6e-3}
+	for _, v := range []float64{4, 6, 8, 12, 16, 24} {
+		dose := 2e-9 / v * 1e7
+		b.WriteString(strings.Join([]string{"4", "2", ftoa(v), ftoa(want.Width(dose))}, ",") + "\n")
+	}
+	meas := writeFile(t, "lines.csv", b.String())
+	prof := filepath.Join(filepath.Dir(meas), "cal.json")
+	out, errs, code := runMain(t, "calibrate", meas, "-o", prof)
+	if code != ExitOK || !strings.Contains(out, "sigma 0.35 nm") {
+		t.Fatalf("calibrate: exit %d\n%s\n%s", code, out, errs)
+	}
+	p, err := planner.LoadProfile(prof)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(p.AP.Width.SigmaNM-want.SigmaNM) > 1e-6 || math.Abs(p.AP.Width.ThresholdDoseCPerCm-want.ThresholdDoseCPerCm) > 1e-9 {
+		t.Errorf("calibrated width model %+v, want %+v", p.AP.Width, want)
+	}
+	out, errs, code = runMain(t, "plan", demoPath, "--profile", prof, "--json")
+	if code != ExitOK || !strings.Contains(out, "calibrated from lines.csv") {
+		t.Errorf("plan with the calibrated profile: exit %d, %s", code, errs)
+	}
+	// Too few lines: refused, nothing written.
+	few := writeFile(t, "few.csv", "bias_v,current_a,speed_nm_per_s,width_nm\n4,2e-9,10,1\n4,2e-9,20,0.7\n")
+	none := filepath.Join(t.TempDir(), "none.json")
+	if _, errs, code := runMain(t, "calibrate", few, "-o", none); code != ExitFailure || !strings.Contains(errs, "too few points") {
+		t.Errorf("calibrate with 2 lines: exit %d, %s", code, errs)
+	}
+}
+
+func ftoa(v float64) string { return strings.TrimRight(strings.TrimRight(jsonNum(v), "0"), ".") }
+
+func jsonNum(v float64) string {
+	b, _ := json.Marshal(v)
+	return string(b)
+}

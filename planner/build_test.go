@@ -1,0 +1,227 @@
+package planner
+
+import (
+	"context"
+	"errors"
+	"math"
+	"reflect"
+	"testing"
+
+	"dimerpath/lattice/design"
+)
+
+func buildTest(t testing.TB, d *design.Design, variant string) (*Plan, error) {
+	t.Helper()
+	return Build(context.Background(), d, variant, DefaultProfile(), Options{Seed: 7, MonteCarloRuns: 200})
+}
+
+func TestBuildDemoInvariants(t *testing.T) {
+	d := demo(t)
+	p, err := buildTest(t, d, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The breakdown sums exactly to the total.
+	if p.Breakdown.Total() != p.TotalS {
+		t.Errorf("breakdown sums to %v, total %v", p.Breakdown.Total(), p.TotalS)
+	}
+	// Actions cover the plan without gaps and end at the total.
+	clock := 0.0
+	seen := map[int]int{}
+	for i, a := range p.Actions {
+		if a.Index != i || math.Abs(a.StartS-clock) > 1e-9*math.Max(clock, 1) || a.DurationS < 0 {
+			t.Fatalf("action %d starts at %v, want %v", i, a.StartS, clock)
+		}
+		clock += a.DurationS
+		if a.Kind == ActWrite || a.Kind == ActDwell {
+			seen[a.Stroke]++
+			if p.Strokes[a.Stroke].Segment != a.Segment {
+				t.Errorf("stroke %d written in segment %d, stroke says %d", a.Stroke, a.Segment, p.Strokes[a.Stroke].Segment)
+			}
+		}
+	}
+	if math.Abs(clock-p.TotalS) > 1e-6*p.TotalS {
+		t.Errorf("actions end at %v, total %v", clock, p.TotalS)
+	}
+	// Every stroke is written exactly once.
+	for _, s := range p.Strokes {
+		if seen[s.ID] != 1 {
+			t.Errorf("stroke %d written %d times", s.ID, seen[s.ID])
+		}
+	}
+	// Segments tile the plan and each starts with a registration at its
+	// fiducial.
+	for i, g := range p.Segments {
+		if i > 0 && g.StartS != p.Segments[i-1].EndS {
+			t.Errorf("segment %d starts at %v, previous ends at %v", i, g.StartS, p.Segments[i-1].EndS)
+		}
+		if g.Fiducial == "" || len(g.Strokes) == 0 {
+			t.Errorf("segment %d: %+v", i, g)
+		}
+	}
+	// Drift: no stroke ends later than its budget after the registration
+	// that starts its segment (tolerance / drift by hand: AP ±0.2 nm at
+	// 0.1 nm/min = 120 s).
+	regEnd := 0.0
+	for _, a := range p.Actions {
+		if a.Kind == ActRegister {
+			regEnd = a.StartS + a.DurationS
+		}
+		if a.Kind == ActWrite || a.Kind == ActDwell {
+			s := p.Strokes[a.Stroke]
+			budget := s.ToleranceNM / 0.1 * 60
+			if end := a.StartS + a.DurationS; end-regEnd > budget+1e-6 {
+				t.Errorf("stroke %d ends %.1f s after its registration, budget %.1f s", s.ID, end-regEnd, budget)
+			}
+		}
+	}
+	if !(p.P10S <= p.P50S && p.P50S <= p.P90S) {
+		t.Errorf("P10 %v P50 %v P90 %v", p.P10S, p.P50S, p.P90S)
+	}
+	if !(p.FloorS > 0 && p.FloorS < p.TotalS) || !(p.ByHandS >= p.TotalS) {
+		t.Errorf("floor %v, total %v, by hand %v", p.FloorS, p.TotalS, p.ByHandS)
+	}
+	// The demo's two windows: P 0.63 × As 0.97 (Ivie 2021, Stock 2024).
+	if len(p.Windows) != 2 || math.Abs(p.Yield.All-0.63*0.97) > 1e-12 {
+		t.Errorf("windows %+v, P(all) %v", p.Windows, p.Yield.All)
+	}
+	if len(p.Modes) != len(d.Variants[0].Regions) {
+		t.Errorf("%d modes for %d regions", len(p.Modes), len(d.Variants[0].Regions))
+	}
+}
+
+func TestBuildDeterministic(t *testing.T) {
+	d := demo(t)
+	a, err := buildTest(t, d, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, _ := buildTest(t, d, "")
+	if a.TotalS != b.TotalS || a.P50S != b.P50S || !reflect.DeepEqual(a.Segments, b.Segments) {
+		t.Errorf("same seed, different plans: %v vs %v", a.TotalS, b.TotalS)
+	}
+}
+
+func TestBuildRefusesBeyondLimits(t *testing.T) {
+	d := demo(t)
+	prof := DefaultProfile()
+	prof.FE.BiasV = 11
+	_, err := Build(context.Background(), d, "", prof, Options{})
+	var le *LimitError
+	if !errors.As(err, &le) || le.Quantity != "fe.bias_v" || le.Max != 10 {
+		t.Errorf("Build with FE at 11 V = %v, want a LimitError naming fe.bias_v and 10 V", err)
+	}
+	// A variant without FE work does not need the FE limits.
+	ap := testDesign(200, 200, design.Region{Name: "wire", Role: design.RoleDevice, Mode: design.ModeAP, Shapes: []design.Shape{rect(50, 50, 80, 52)}})
+	if _, err := Build(context.Background(), ap, "", prof, Options{}); err != nil {
+		t.Errorf("AP-only plan refused for an FE limit: %v", err)
+	}
+	prof = DefaultProfile()
+	prof.Limits.ScanFieldNM = 1000
+	if _, err := Build(context.Background(), d, "", prof, Options{}); !errors.As(err, &le) || le.Limit != "limits.scan_field_nm" {
+		t.Errorf("2 µm field with a 1 µm scan limit: %v", err)
+	}
+	prof = DefaultProfile()
+	prof.MoveSpeedNMPerS = math.NaN()
+	var pe *ProfileError
+	if _, err := Build(context.Background(), d, "", prof, Options{}); !errors.As(err, &pe) {
+		t.Errorf("NaN move speed: %v, want a ProfileError", err)
+	}
+}
+
+func TestBuildCancelled(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if _, err := Build(ctx, demo(t), "", DefaultProfile(), Options{}); !errors.Is(err, context.Canceled) {
+		t.Errorf("Build on a cancelled context = %v", err)
+	}
+}
+
+func TestModeChoice(t *testing.T) {
+	cases := []struct {
+		name   string
+		region design.Region
+		want   string
+	}{
+		{"narrow lead", design.Region{Name: "x", Role: design.RoleLead, Shapes: []design.Shape{rect(100, 100, 300, 106)}}, modeAP},
+		{"wide pad", design.Region{Name: "x", Role: design.RolePad, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, modeFE},
+		{"wide pad, tight tolerance", design.Region{Name: "x", Role: design.RolePad, ToleranceNM: 0.5, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, modeHybrid},
+		{"device", design.Region{Name: "x", Role: design.RoleDevice, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, modeAP},
+		{"windows", design.Region{Name: "x", Role: design.RoleOther, Shapes: []design.Shape{{Kind: design.ShapeWindow, Template: "P", Points: [][2]float64{{200, 200}}}}}, modeAP},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			// A drawn-FE neighbour far away, so the mode switch is paid
+			// anyway.
+			d := testDesign(600, 600, c.region, design.Region{Name: "far-pad", Role: design.RolePad, Mode: design.ModeFE, Shapes: []design.Shape{rect(500, 500, 560, 560)}})
+			p, err := buildTest(t, d, "")
+			if err != nil {
+				t.Fatal(err)
+			}
+			if m := p.Modes[0]; m.Mode != c.want || m.Reason == "" {
+				t.Errorf("mode %q (%s), want %q", m.Mode, m.Reason, c.want)
+			}
+			if !p.Coverage.OK {
+				t.Errorf("coverage %+v", p.Coverage)
+			}
+		})
+	}
+}
+
+func TestModeKeepOut(t *testing.T) {
+	// A wide pad 3 nm from an AP wire: inside the 5 nm keep-out (design
+	// rules default), so auto gives the pad an AP edge band (hybrid).
+	wire := design.Region{Name: "wire", Role: design.RoleDevice, Mode: design.ModeAP, Shapes: []design.Shape{rect(100, 80, 300, 84)}}
+	pad := design.Region{Name: "pad", Role: design.RolePad, Shapes: []design.Shape{rect(100, 87, 300, 300)}}
+	p, err := buildTest(t, testDesign(400, 400, wire, pad), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m := p.Modes[1]; m.Mode != modeHybrid {
+		t.Errorf("pad near an AP wire: %q (%s), want hybrid", m.Mode, m.Reason)
+	}
+	// Drawn FE there is honoured, with a warning.
+	pad.Mode = design.ModeFE
+	p, err = buildTest(t, testDesign(400, 400, wire, pad), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.Modes[1].Mode != modeFE || len(p.Warnings) == 0 {
+		t.Errorf("drawn FE: mode %q, warnings %v", p.Modes[1].Mode, p.Warnings)
+	}
+}
+
+func TestFEFillTimeByHand(t *testing.T) {
+	// Rudolph et al. 2014: ≳10^4 nm²/s in FE; by hand, 1 µm² at 10^4 nm²/s
+	// takes 100 s. With pitch = width (overlap 0) and 1000 nm/s the fill
+	// of a 1 µm square runs 1000 nm lines 10 nm apart: ~100 s, plus one
+	// line for the fence post (both edges are written) and the turns, so
+	// within 3 %.
+	prof := DefaultProfile()
+	prof.FE.Overlap = 0
+	d := testDesign(1200, 1200, design.Region{Name: "pad", Role: design.RolePad, Mode: design.ModeFE, Shapes: []design.Shape{rect(100, 100, 1100, 1100)}})
+	lay, _ := layRegions(t, d)
+	g := newStrokeGen(lay.Surface, &prof)
+	fill := strokesTime(g.feStrokes("pad", lay.Regions[0].Sites))
+	byHand := 1e6 / prof.FE.ArealRate()
+	if math.Abs(byHand-100) > 1e-9 || math.Abs(fill-byHand) > 0.03*byHand {
+		t.Errorf("FE fill of 1 µm² takes %.1f s, by hand %.1f s", fill, byHand)
+	}
+}
+
+func TestLongStrokeSplitAtRegistration(t *testing.T) {
+	// A 1500 nm AP line (one row: its two H sites lie at 99.67 and
+	// 100.03 nm) takes 150 s at 10 nm/s, beyond its 120 s budget
+	// (±0.2 nm at 0.1 nm/min): split, with a warning.
+	d := testDesign(1800, 200, design.Region{Name: "wire", Role: design.RoleDevice, Mode: design.ModeAP, Shapes: []design.Shape{rect(100, 99.5, 1600, 100.2)}})
+	p, err := buildTest(t, d, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(p.Strokes) != 2 || len(p.Segments) != 2 || len(p.Warnings) != 1 {
+		t.Errorf("%d strokes in %d segments, warnings %v; want the line in 2 pieces in 2 segments", len(p.Strokes), len(p.Segments), p.Warnings)
+	}
+	if !p.Coverage.OK {
+		t.Errorf("split line: coverage %+v", p.Coverage)
+	}
+}

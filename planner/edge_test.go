@@ -1,0 +1,75 @@
+package planner
+
+import (
+	"context"
+	"strings"
+	"testing"
+
+	"dimerpath/lattice/design"
+)
+
+func TestBuildEdgeCases(t *testing.T) {
+	// A variant with nothing to write plans to zero time.
+	empty := testDesign(100, 100, design.Region{Name: "nothing", Role: design.RoleOther, Shapes: []design.Shape{rect(200, 200, 210, 210)}})
+	p, err := buildTest(t, empty, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.TotalS != 0 || len(p.Strokes) != 0 || !p.Coverage.OK || p.Yield.All != 1 {
+		t.Errorf("empty plan: total %v, %d strokes, coverage %+v, yield %v", p.TotalS, len(p.Strokes), p.Coverage, p.Yield.All)
+	}
+	// No fiducials: planned at the field centre, with a warning.
+	d := testDesign(300, 300, design.Region{Name: "wire", Role: design.RoleDevice, Mode: design.ModeAP, Shapes: []design.Shape{rect(100, 99.5, 200, 100.2)}})
+	d.Fiducials = nil
+	p, err = buildTest(t, d, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(p.Segments) == 0 || p.Segments[0].Fiducial != "field-centre" || !strings.Contains(strings.Join(p.Warnings, " "), "no fiducial") {
+		t.Errorf("no fiducials: segments %+v, warnings %v", p.Segments, p.Warnings)
+	}
+	// No drift: one segment, no budget.
+	prof := DefaultProfile()
+	prof.Drift.RateNMPerMin, prof.Drift.RateSDNMPerMin = 0, 0
+	p, err = Build(context.Background(), demo(t), "", prof, Options{Seed: 1, MonteCarloRuns: 50})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(p.Segments) != 1 || p.Segments[0].BudgetS != 0 || p.Breakdown.RegistrationS != prof.Drift.RegistrationS {
+		t.Errorf("no drift: %d segments, budget %v, registrations %v s", len(p.Segments), p.Segments[0].BudgetS, p.Breakdown.RegistrationS)
+	}
+	// Dwell-written windows carry their completion in the probability.
+	prof = DefaultProfile()
+	prof.WindowStyle = WindowStyleDwell
+	p, err = Build(context.Background(), demo(t), "", prof, Options{Seed: 1, MonteCarloRuns: 50})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, w := range p.Windows {
+		want := 0.63
+		if w.Species == "As" {
+			want = 0.97
+		}
+		if open := pow(0.99, w.Sites); abs(w.Probability-want*open) > 1e-12 || abs(w.OpenProbability-open) > 1e-12 {
+			t.Errorf("window %+v: want %v × 0.99^%d", w, want, w.Sites)
+		}
+	}
+	if !p.Coverage.OK {
+		t.Errorf("dwell windows: coverage %+v", p.Coverage)
+	}
+}
+
+func pow(x float64, n int) float64 {
+	r := 1.0
+	for range n {
+		r *= x
+	}
+	return r
+}
+
+func abs(x float64) float64 {
+	if x < 0 {
+		return -x
+	}
+	return x
+}

@@ -1,0 +1,62 @@
+package planner_test
+
+import (
+	"context"
+	"fmt"
+
+	"dimerpath/assets"
+	"dimerpath/lattice/design"
+	"dimerpath/planner"
+)
+
+func ExampleBuild() {
+	d, err := design.Parse(assets.DemoName, assets.DemoDesign)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	p, err := planner.Build(context.Background(), d, "gap-9", planner.DefaultProfile(), planner.Options{Seed: 1})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, m := range p.Modes[:4] {
+		fmt.Printf("%s: %s\n", m.Region, m.Mode)
+	}
+	fmt.Printf("breakdown sums to the total: %v\n", p.Breakdown.Total() == p.TotalS)
+	fmt.Printf("coverage OK: %v, P(all windows good) = %.4f\n", p.Coverage.OK, p.Yield.All)
+	// Output:
+	// donor-P: ap
+	// donor-As: ap
+	// sensor-island: ap
+	// source-lead: ap
+	// breakdown sums to the total: true
+	// coverage OK: true, P(all windows good) = 0.6111
+}
+
+func ExampleCompare() {
+	d, _ := design.Parse(assets.DemoName, assets.DemoDesign)
+	results, err := planner.Compare(context.Background(), d, planner.LowTemperatureProfile(), planner.Options{Seed: 1, MonteCarloRuns: 100})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, r := range results {
+		fmt.Printf("%s: %d segment(s), %d windows\n", r.Variant, len(r.Plan.Segments), r.Plan.Yield.Windows)
+	}
+	// Output:
+	// gap-9: 1 segment(s), 2 windows
+	// gap-12-source: 1 segment(s), 2 windows
+}
+
+func ExampleWritingSpeed() {
+	// Schmucker et al. (2012): 2 nA at a 2 mC/cm line dose.
+	fmt.Printf("%.1f nm/s\n", planner.WritingSpeed(2e-9, 2e-3))
+	// Output: 10.0 nm/s
+}
+
+func ExampleDriftBudget() {
+	// An AP stroke held to ±0.2 nm at 0.1 nm/min of drift.
+	fmt.Printf("%.0f s\n", planner.DriftBudget(0.2, 0.1))
+	// Output: 120 s
+}
