@@ -1,7 +1,6 @@
 package app
 
 import (
-	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -36,29 +35,24 @@ file and renamed into place, also when some variant could not be planned
 			var rep reportFlags
 			rep.declare(fs, "also write the report to `FILE` (.pdf or .svg)")
 			return func(env Env, args []string) int {
-				if len(args) != 1 {
-					fmt.Fprintln(env.Stderr, "dimerpath compare: want one design file: dimerpath compare DESIGN.json [--profile P.json]")
-					return ExitFailure
-				}
-				// A bad report name is refused before any planning.
+				// A bad report name is refused before anything is read.
 				opt, err := rep.options(export.FormatPDF, export.FormatSVG)
 				if err != nil {
 					fmt.Fprintf(env.Stderr, "dimerpath compare: %v\n", err)
 					return ExitFailure
 				}
-				d, prof, code := loadPlanInputs(env, "compare", args[0], *profile)
+				run, code := startPlanning(env, "compare", args, *profile, "dimerpath compare DESIGN.json [--profile P.json] [-o REPORT.pdf|.svg]")
 				if code != ExitOK {
 					return code
 				}
-				ctx, stop := interruptible()
-				defer stop()
-				prog := newProgress(env.Stderr, "compare")
-				results, err := planner.Compare(ctx, d, prof, planner.Options{Seed: *seed, Progress: prog.report})
-				prog.done()
+				defer run.stop()
+				ctx := run.ctx
+				results, err := planner.Compare(ctx, run.design, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
 				if err != nil {
 					return planError(env, "compare", args[0], err)
 				}
-				fmt.Fprintf(env.Stdout, "%s: %d variants with profile %q (seed %d)\n", d.Name, len(results), prof.Name, *seed)
+				run.progress.done()
+				fmt.Fprintf(env.Stdout, "%s: %d variants with profile %q (seed %d)\n", run.design.Name, len(results), run.profile.Name, *seed)
 				fmt.Fprintln(env.Stdout, planner.Caution)
 				fmt.Fprintln(env.Stdout)
 				printComparison(env.Stdout, results)
@@ -73,12 +67,7 @@ file and renamed into place, also when some variant could not be planned
 				for _, r := range results {
 					if r.Err != nil {
 						failed = true
-						var le *planner.LimitError
-						if errors.As(r.Err, &le) {
-							fmt.Fprintf(env.Stderr, "dimerpath compare: variant %q: %v\n", r.Variant, r.Err)
-						} else {
-							fmt.Fprintf(env.Stderr, "dimerpath compare: variant %q: %v\n", r.Variant, r.Err)
-						}
+						fmt.Fprintf(env.Stderr, "dimerpath compare: variant %q: %v\n", r.Variant, r.Err)
 					}
 				}
 				if failed {

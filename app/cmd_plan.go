@@ -48,22 +48,16 @@ cleanly.`,
 			seed := fs.Int64("seed", 1, "`N` seeds the route and the Monte Carlo spread")
 			asJSON := fs.Bool("json", false, "print one JSON object instead of the summary")
 			return func(env Env, args []string) int {
-				if len(args) != 1 {
-					fmt.Fprintln(env.Stderr, "dimerpath plan: want one design file: dimerpath plan DESIGN.json [--variant NAME] [--profile P.json] [--json]")
-					return ExitFailure
-				}
-				d, prof, code := loadPlanInputs(env, "plan", args[0], *profile)
+				run, code := startPlanning(env, "plan", args, *profile, "dimerpath plan DESIGN.json [--variant NAME] [--profile P.json] [--json]")
 				if code != ExitOK {
 					return code
 				}
-				ctx, stop := interruptible()
-				defer stop()
-				prog := newProgress(env.Stderr, "plan")
-				p, err := planner.Build(ctx, d, *variant, prof, planner.Options{Seed: *seed, Progress: prog.report})
-				prog.done()
+				defer run.stop()
+				p, err := planner.Build(run.ctx, run.design, *variant, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
 				if err != nil {
 					return planError(env, "plan", args[0], err)
 				}
+				run.progress.done()
 				if *asJSON {
 					enc := json.NewEncoder(env.Stdout)
 					enc.SetIndent("", "  ")
@@ -80,19 +74,36 @@ cleanly.`,
 	})
 }
 
-// loadPlanInputs reads the design and the profile for plan and compare.
-func loadPlanInputs(env Env, cmd, file, profile string) (*design.Design, planner.Profile, int) {
-	d, err := design.Load(file)
+// planning is what plan and compare start from: the design, the profile,
+// a context that Ctrl-C cancels, and progress on stderr.
+type planning struct {
+	design   *design.Design
+	profile  planner.Profile
+	ctx      context.Context
+	stop     context.CancelFunc
+	progress *progress
+}
+
+// startPlanning checks for one design file argument and loads it and the
+// --profile argument; on failure it has printed why (usage names the
+// command's synopsis).
+func startPlanning(env Env, cmd string, args []string, profile, usage string) (*planning, int) {
+	if len(args) != 1 {
+		fmt.Fprintf(env.Stderr, "dimerpath %s: want one design file: %s\n", cmd, usage)
+		return nil, ExitFailure
+	}
+	d, err := design.Load(args[0])
 	if err != nil {
 		fmt.Fprintf(env.Stderr, "dimerpath %s: %v\n", cmd, err)
-		return nil, planner.Profile{}, ExitFailure
+		return nil, ExitFailure
 	}
 	prof, err := loadProfileArg(profile)
 	if err != nil {
 		fmt.Fprintf(env.Stderr, "dimerpath %s: %v\n", cmd, err)
-		return nil, planner.Profile{}, ExitFailure
+		return nil, ExitFailure
 	}
-	return d, prof, ExitOK
+	ctx, stop := interruptible()
+	return &planning{design: d, profile: prof, ctx: ctx, stop: stop, progress: newProgress(env.Stderr, cmd)}, ExitOK
 }
 
 // interruptible returns a context cancelled by Ctrl-C or SIGTERM.
@@ -100,14 +111,13 @@ func interruptible() (context.Context, context.CancelFunc) {
 	return signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 }
 
+// planError reports a failed plan or comparison: an interruption, a
+// refusal (a *planner.LimitError or *planner.ProfileError names the value
+// and the limit or field), or a design that cannot be laid out.
 func planError(env Env, cmd, file string, err error) int {
-	var le *planner.LimitError
-	switch {
-	case errors.Is(err, context.Canceled):
+	if errors.Is(err, context.Canceled) {
 		fmt.Fprintf(env.Stderr, "dimerpath %s: interrupted; nothing was written\n", cmd)
-	case errors.As(err, &le):
-		fmt.Fprintf(env.Stderr, "dimerpath %s: %s: %v\n", cmd, file, err)
-	default:
+	} else {
 		fmt.Fprintf(env.Stderr, "dimerpath %s: %s: %v\n", cmd, file, err)
 	}
 	return ExitFailure

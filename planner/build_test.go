@@ -85,6 +85,14 @@ func TestBuildDemoInvariants(t *testing.T) {
 	if len(p.Windows) != 2 || math.Abs(p.Yield.All-0.63*0.97) > 1e-12 {
 		t.Errorf("windows %+v, P(all) %v", p.Windows, p.Yield.All)
 	}
+	// The demo's AP regions hold whole dimers and its windows are written
+	// as lines (window_style line), so no stroke is a single-site dwell.
+	for _, s := range p.Strokes {
+		if s.Kind == StrokeDwell {
+			t.Errorf("stroke %d of region %q is a dwell at %v", s.ID, s.Region, s.Path[0])
+			break
+		}
+	}
 	if len(p.Modes) != len(d.Variants[0].Regions) {
 		t.Errorf("%d modes for %d regions", len(p.Modes), len(d.Variants[0].Regions))
 	}

@@ -169,15 +169,13 @@ func (mc *modeChooser) choose() {
 			r.warnings = append(r.warnings, fmt.Sprintf("field-emission region %q comes %.1f nm from an AP feature at %s, inside the %g nm FE keep-out", r.name, d, fmtPoint(at), mc.keepOut))
 			continue
 		}
+		// An FE region too near: its core may still be FE behind an AP
+		// band; a hybrid whose core is too near is written in AP.
 		what := fmt.Sprintf("%.1f nm from an AP feature at %s, inside the %g nm FE keep-out", d, fmtPoint(at), mc.keepOut)
 		if r.mode == modeFE {
 			core := erode(r.plain, band)
 			if _, _, coreNear := mc.gap(ap, r, core); !coreNear && !core.IsEmpty() && mc.hybridPays(r, core) {
 				mc.setHybrid(r, core, what+fmt.Sprintf(": AP edge band %.1f nm + FE fill (%s)", band, ballard))
-				continue
-			}
-		} else if r.mode == modeHybrid {
-			if _, _, coreNear := mc.gap(ap, r, r.fePart); !coreNear {
 				continue
 			}
 		}

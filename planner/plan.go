@@ -145,7 +145,8 @@ type Segment struct {
 	StartS     float64  `json:"start_s"` // plan clock at the start of the registration
 	EndS       float64  `json:"end_s"`
 	// BudgetS is the drift budget: the least tolerance / drift rate over
-	// the segment's strokes.
+	// the segment's strokes; 0 when the profile has no drift (no limit:
+	// JSON cannot carry +Inf).
 	BudgetS float64 `json:"budget_s"`
 	Strokes []int   `json:"strokes"` // stroke IDs in writing order
 }

@@ -334,9 +334,18 @@ func (lv *LatticeView) updateScaleBar() {
 		return
 	}
 	l := niceLength(160 * nmPerUnit)
-	lv.scaleText.Text = formatLength(l)
-	lv.scaleBar.Resize(fyne.NewSize(float32(l/nmPerUnit), 4))
-	lv.Refresh()
+	text := formatLength(l)
+	w := float32(l / nmPerUnit)
+	if text == lv.scaleText.Text && w == lv.scaleBar.Size().Width {
+		return
+	}
+	lv.scaleText.Text = text
+	lv.scaleBar.Resize(fyne.NewSize(w, 4))
+	// Only the scale bar moves; the legend is left alone while panning.
+	lv.layoutScale(lv.Size())
+	for _, o := range []fyne.CanvasObject{lv.scaleBack, lv.scaleBar, lv.scaleTicks[0], lv.scaleTicks[1], lv.scaleText} {
+		canvas.Refresh(o)
+	}
 }
 
 // formatLength prints a length in nm in the unit that reads best.
@@ -381,7 +390,17 @@ func (r *latticeRenderer) Layout(size fyne.Size) {
 	lv := r.lv
 	lv.raster.Resize(size)
 	lv.raster.Move(fyne.NewPos(0, 0))
-	// Scale bar, bottom left.
+	lv.layoutScale(size)
+	const pad = 12
+	if lv.legend != nil {
+		ls := lv.legend.MinSize()
+		lv.legend.Resize(ls)
+		lv.legend.Move(fyne.NewPos(size.Width-ls.Width-pad, pad))
+	}
+}
+
+// layoutScale places the scale bar in the bottom-left corner.
+func (lv *LatticeView) layoutScale(size fyne.Size) {
 	const pad = 12
 	bw := lv.scaleBar.Size().Width
 	ts := lv.scaleText.MinSize()
@@ -396,11 +415,6 @@ func (r *latticeRenderer) Layout(size fyne.Size) {
 	for k, t := range lv.scaleTicks {
 		t.Resize(fyne.NewSize(2, 10))
 		t.Move(fyne.NewPos(x0+float32(k)*(bw-2), yb-3))
-	}
-	if lv.legend != nil {
-		ls := lv.legend.MinSize()
-		lv.legend.Resize(ls)
-		lv.legend.Move(fyne.NewPos(size.Width-ls.Width-pad, pad))
 	}
 }
 
