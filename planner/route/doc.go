@@ -44,7 +44,10 @@
 //     local search (Johnson & McGeoch 1997, "The traveling salesman
 //     problem: a case study in local optimization").
 //   - Strokes: after the construction, the directions of all strokes are
-//     chosen at once by dynamic programming along the tour.
+//     chosen at once by dynamic programming along the tour. When there
+//     are strokes the local search also tries sequential 4- and 5-opt
+//     moves (the deeper Lin-Kernighan steps, with breadth 5, 3, 2, 1 at
+//     the first levels) where the shallower moves find nothing.
 //   - Groups are ordered greedily: of the groups whose predecessors are all
 //     written, the one with an item nearest the tip goes next, solved as an
 //     open path from where the last one ended (the last group of a closed

@@ -260,3 +260,67 @@ func TestFixedEnd(t *testing.T) {
 		}
 	}
 }
+
+// TestKOptKeepsTour makes the sequential 4- and 5-opt moves from every
+// node of random 2-opt-optimal tours (points and strokes, open and
+// closed) and checks that each keeps a tour with every fixed edge and
+// changes its length by the predicted amount, recomputed from scratch.
+func TestKOptKeepsTour(t *testing.T) {
+	r := rand.New(rand.NewPCG(9, 9))
+	made := 0
+	for trial := range 200 {
+		n := 12 + r.IntN(60)
+		items := make([]Item, n)
+		for i := range items {
+			p := Point{X: r.Float64() * 100, Y: r.Float64() * 100}
+			q := p
+			if trial%2 == 1 && r.IntN(3) > 0 {
+				q = Point{X: p.X + r.Float64()*20 - 10, Y: p.Y + r.Float64()*20 - 10}
+			}
+			items[i] = Item{A: p, B: q}
+		}
+		g := newGraph(items, nil, nil, trial%3 == 0)
+		nb := buildNeighbours(g, 8)
+		s := newSolver(g, nb, g.tourFromOrder(r.Perm(n), make([]bool, n)))
+		s.or3 = false
+		if trial%5 == 4 {
+			s.maxRev = int32(n / 4) // the bound on reversals of large problems
+		}
+		for _, v := range s.t {
+			s.push(v)
+		}
+		s.localSearch(nil) // 2-opt and Or-opt only, so deeper moves remain
+		s.recording = true // journal the reversals to check their lengths
+		for _, v := range append([]int32(nil), s.t...) {
+			before := s.tourLength()
+			l0 := s.length
+			if !s.bestKOpt(v) {
+				continue
+			}
+			made++
+			after := s.tourLength()
+			if math.Abs(after-before-(s.length-l0)) > 1e-6 || after >= before {
+				t.Fatalf("trial %d: predicted change %v, real %v", trial, s.length-l0, after-before)
+			}
+			seen := make([]bool, s.n)
+			for i, v := range s.t {
+				if seen[v] || s.pos[v] != int32(i) {
+					t.Fatalf("trial %d: not a permutation", trial)
+				}
+				seen[v] = true
+				if p := g.partner[v]; p >= 0 && s.succ(v) != p && s.pred(v) != p {
+					t.Fatalf("trial %d: fixed edge (%d,%d) cut", trial, v, p)
+				}
+			}
+			for k := 0; k+1 < len(s.journal); k += 2 {
+				if l := s.journal[k+1]; l > s.maxRev {
+					t.Fatalf("trial %d: reversal of %d positions, bound %d", trial, l, s.maxRev)
+				}
+			}
+		}
+	}
+	if made < 50 {
+		t.Errorf("only %d deep moves made; the test exercises too little", made)
+	}
+	t.Logf("%d deep moves", made)
+}

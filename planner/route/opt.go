@@ -55,7 +55,7 @@ func (s *solver) improve(v int32) bool {
 		m := move3{delta: -s.eps}
 		s.bestOr3(v, &m)
 		if m.kind == 0 {
-			return false
+			return s.deep && s.bestKOpt(v)
 		}
 		s.applyOr3(&m)
 		return true

@@ -107,7 +107,15 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 		}
 	}
 	if g.real > len(items) {
-		s.orientUnits() // there are strokes
+		// There are strokes. Each stroke end has one tour edge a move
+		// may remove, so a sequential search from it has half the
+		// choices it has at a point, and the deeper moves pay: on
+		// random strokes (1,000 and 10,000, 2 s) they add about 0.15-0.2
+		// points of gain over the greedy nearest-endpoint order, while
+		// on the TSPLIB points they cost more time than they gain
+		// (mean gap 0.44% without, 0.50% with; measured).
+		s.deep = true
+		s.orientUnits()
 	}
 	c.report("construct", s.length-fixedLen, 0)
 	for _, v := range s.t {

@@ -20,6 +20,8 @@ type solver struct {
 	maxRev    int32 // longest reversal a move may make
 	orMax     int   // longest segment an Or-opt move shifts, in nodes
 	or3       bool  // also try sequential 3-opt moves
+	deep      bool  // also try sequential 4- and 5-opt moves
+	kopt      koptState
 	units     []int32
 	dpCost    []float64
 	dpFrom    []int8
