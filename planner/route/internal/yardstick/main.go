@@ -6,10 +6,12 @@
 //     optimum) beside the nearest-neighbour tour;
 //   - random uniform points (10^5, and 10^6 with -huge): time, peak memory
 //     and length beside nearest neighbour;
-//   - random reversible strokes (10^3, 10^4): idle travel beside the greedy
-//     nearest-endpoint order.
+//   - random reversible strokes (10^3 on 12 instances, 10^4 on 4): idle
+//     travel beside the greedy nearest-endpoint order, the gain's mean and
+//     worst over the instances, and the Held-Karp lower bound.
 //
 // Usage: go run ./planner/route/internal/yardstick [-budget 2s] [-huge] [-only a,b]
+// [-strokes 1000:12,10000:4] [-bound]
 package main
 
 import (
@@ -31,7 +33,14 @@ func main() {
 	huge := flag.Bool("huge", false, "also 10^6 random points (about a minute, 1 GB)")
 	only := flag.String("only", "", "comma-separated sections or instance names: tsplib, uniform, strokes, pr1002, ...")
 	seed := flag.Int64("seed", 1, "Solve's seed")
+	strokes := flag.String("strokes", "1000:12,10000:4", "stroke instances: n:count,... (instance seeds 1..count)")
+	allBounds := flag.Bool("bound", false, "the Held-Karp bound on every stroke instance up to 2000 strokes, not only the first (about 5 s each)")
 	flag.Parse()
+	sizes, err := parseSizes(*strokes)
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "yardstick: -strokes:", err)
+		os.Exit(2)
+	}
 	want := func(names ...string) bool {
 		if *only == "" {
 			return true
@@ -62,7 +71,7 @@ func main() {
 		uniformTable(sizes, opt)
 	}
 	if want("strokes") {
-		strokesTable(opt)
+		strokesTable(opt, sizes, *allBounds)
 	}
 }
 
@@ -154,23 +163,69 @@ func uniformTable(sizes []int, opt route.Options) {
 	fmt.Println()
 }
 
-func strokesTable(opt route.Options) {
-	fmt.Println("Random reversible strokes (midpoints uniform, lengths 0.5-1.5 x mean spacing), open paths: idle travel;")
-	fmt.Println("the Held-Karp bound (1000 strokes only) is a lower bound on every ordering's idle travel")
-	tw := tabwriter.NewWriter(os.Stdout, 2, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "n\tidle travel\ttime\tgreedy nearest-end\tgreedy time\tgain %\tHK bound\tabove bound %\tmost gain possible %\t")
-	for _, n := range []int{1000, 10_000} {
-		p := route.Problem{Items: testset.Strokes(n, 1)}
-		var s, nn route.Solution
-		tn := timed(func() { nn, _ = route.Nearest(p) })
-		ts := timed(func() { s, _ = route.Solve(context.Background(), p, opt) })
-		bound := "\t\t"
-		if n <= 2000 {
-			lb := testset.HeldKarpBound(p.Items, s.Length, 300)
-			bound = fmt.Sprintf("%.1f\t%.1f\t%.1f", lb, 100*(s.Length/lb-1), 100*(1-lb/nn.Length))
+// strokeSize is a stroke count and the number of instances (seeds
+// 1..count) to measure it on.
+type strokeSize struct{ n, count int }
+
+func parseSizes(spec string) ([]strokeSize, error) {
+	var out []strokeSize
+	for _, f := range strings.Split(spec, ",") {
+		var sz strokeSize
+		if _, err := fmt.Sscanf(f, "%d:%d", &sz.n, &sz.count); err != nil || sz.n < 1 || sz.count < 1 {
+			return nil, fmt.Errorf("%q: want n:count with both >= 1", f)
 		}
-		fmt.Fprintf(tw, "%d\t%.1f\t%.2fs\t%.1f\t%.3fs\t%.1f\t%s\t\n", n, s.Length, ts.Seconds(), nn.Length, tn.Seconds(), 100*(1-s.Length/nn.Length), bound)
+		out = append(out, sz)
+	}
+	return out, nil
+}
+
+// strokesTable solves count seeded instances of each size and prints
+// one row per size: the gain over the greedy nearest-endpoint order as
+// mean, worst and best over the instances (the gain depends much on how
+// good the baseline happens to be on an instance, so one instance says
+// little), and the Held-Karp bound.
+func strokesTable(opt route.Options, sizes []strokeSize, allBounds bool) {
+	fmt.Println("Random reversible strokes (midpoints uniform, lengths 0.5-1.5 x mean spacing; testset.Strokes, instance seeds 1..k), open paths: idle")
+	fmt.Println("travel against the greedy nearest-endpoint order. Held-Karp: a lower bound on every ordering's idle travel (instance 1, or all with -bound)")
+	tw := tabwriter.NewWriter(os.Stdout, 2, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "n	instances	mean time	gain % mean	worst (seed)	best	above HK bound %	most gain possible %	")
+	var lines []string
+	for _, sz := range sizes {
+		var sumGain, sumTime, sumAbove, sumPossible float64
+		worst, worstSeed, best := 100.0, 0, -100.0
+		bounds := 0
+		gains := make([]string, 0, sz.count)
+		for seed := 1; seed <= sz.count; seed++ {
+			p := route.Problem{Items: testset.Strokes(sz.n, uint64(seed))}
+			nn, _ := route.Nearest(p)
+			var s route.Solution
+			ts := timed(func() { s, _ = route.Solve(context.Background(), p, opt) })
+			gain := 100 * (1 - s.Length/nn.Length)
+			sumGain += gain
+			sumTime += ts.Seconds()
+			if gain < worst {
+				worst, worstSeed = gain, seed
+			}
+			best = max(best, gain)
+			gains = append(gains, fmt.Sprintf("%.1f", gain))
+			if sz.n <= 2000 && (seed == 1 || allBounds) {
+				lb := testset.HeldKarpBound(p.Items, s.Length, 300)
+				sumAbove += 100 * (s.Length/lb - 1)
+				sumPossible += 100 * (1 - lb/nn.Length)
+				bounds++
+			}
+		}
+		k := float64(sz.count)
+		bound := "\t"
+		if bounds > 0 {
+			bound = fmt.Sprintf("%.1f\t%.1f", sumAbove/float64(bounds), sumPossible/float64(bounds))
+		}
+		fmt.Fprintf(tw, "%d\t%d\t%.2fs\t%.2f\t%.2f (%d)\t%.2f\t%s\t\n", sz.n, sz.count, sumTime/k, sumGain/k, worst, worstSeed, best, bound)
+		lines = append(lines, fmt.Sprintf("%d strokes, gain %% by instance seed 1..%d: %s", sz.n, sz.count, strings.Join(gains, " ")))
 	}
 	tw.Flush()
+	for _, l := range lines {
+		fmt.Println(l)
+	}
 	fmt.Println()
 }
