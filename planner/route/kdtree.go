@@ -106,10 +106,13 @@ type knnBuf struct {
 	qy  float64
 	ex1 int32 // excluded points
 	ex2 int32
+	// quad, when >= 0, admits only the points of one quadrant around
+	// (qx, qy): bit 0 set for x >= qx (else x < qx), bit 1 for y >= qy.
+	quad int8
 }
 
 func newKNNBuf(k int) *knnBuf {
-	return &knnBuf{k: k, d2: make([]float64, 0, k), id: make([]int32, 0, k)}
+	return &knnBuf{k: k, d2: make([]float64, 0, k), id: make([]int32, 0, k), quad: -1}
 }
 
 func (b *knnBuf) worst() float64 {
@@ -138,7 +141,7 @@ func (b *knnBuf) offer(d2 float64, id int32) {
 }
 
 // nearest fills b with the b.k points nearest (qx, qy), leaving out
-// b.ex1 and b.ex2.
+// b.ex1 and b.ex2 and, if b.quad >= 0, the points outside that quadrant.
 func (t *kdTree) nearest(b *knnBuf) {
 	b.d2, b.id = b.d2[:0], b.id[:0]
 	if len(t.nodes) > 0 {
@@ -154,6 +157,9 @@ func (t *kdTree) search(id int32, b *knnBuf) {
 				continue
 			}
 			dx, dy := t.x[p]-b.qx, t.y[p]-b.qy
+			if b.quad >= 0 && quadrant(dx, dy) != b.quad {
+				continue
+			}
 			b.offer(dx*dx+dy*dy, p)
 		}
 		return
@@ -161,6 +167,19 @@ func (t *kdTree) search(id int32, b *knnBuf) {
 	q := b.qx
 	if nd.dim == 1 {
 		q = b.qy
+	}
+	if b.quad >= 0 {
+		// The left child holds coordinates <= split, the right >= split:
+		// one of them may lie wholly outside the quadrant.
+		if b.quad>>nd.dim&1 == 1 { // coordinates >= q wanted
+			if nd.split < q {
+				t.search(nd.right, b)
+				return
+			}
+		} else if nd.split >= q {
+			t.search(nd.left, b)
+			return
+		}
 	}
 	diff := q - nd.split
 	near, far := nd.left, nd.right
@@ -171,4 +190,17 @@ func (t *kdTree) search(id int32, b *knnBuf) {
 	if diff*diff < b.worst() {
 		t.search(far, b)
 	}
+}
+
+// quadrant numbers the quadrant of the offset (dx, dy): bit 0 for
+// dx >= 0, bit 1 for dy >= 0.
+func quadrant(dx, dy float64) int8 {
+	var q int8
+	if dx >= 0 {
+		q = 1
+	}
+	if dy >= 0 {
+		q |= 2
+	}
+	return q
 }

@@ -32,7 +32,7 @@ func TestMovesKeepTour(t *testing.T) {
 			start = &Point{X: 50, Y: 50}
 		}
 		g := newGraph(items, start, nil, trial%4 < 2)
-		nb := buildNeighbours(g, 8)
+		nb := buildNeighbours(g, 8, trial%2 == 1)
 		// A random tour that keeps the fixed edges: items in random order.
 		order := r.Perm(n)
 		rev := make([]bool, n)
@@ -158,7 +158,7 @@ func TestKickKeepsTour(t *testing.T) {
 			items[i] = Item{A: p, B: q}
 		}
 		g := newGraph(items, nil, nil, trial%3 == 0)
-		nb := buildNeighbours(g, 8)
+		nb := buildNeighbours(g, 8, trial%2 == 1)
 		s := newSolver(g, nb, g.tourFromOrder(r.Perm(n), make([]bool, n)))
 		s.or3 = true
 		rg := newRNG(int64(trial))
@@ -280,7 +280,7 @@ func TestKOptKeepsTour(t *testing.T) {
 			items[i] = Item{A: p, B: q}
 		}
 		g := newGraph(items, nil, nil, trial%3 == 0)
-		nb := buildNeighbours(g, 8)
+		nb := buildNeighbours(g, 8, trial%2 == 1)
 		s := newSolver(g, nb, g.tourFromOrder(r.Perm(n), make([]bool, n)))
 		s.or3 = false
 		if trial%5 == 4 {

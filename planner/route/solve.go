@@ -80,7 +80,12 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 	if g.n() > 200_000 {
 		k = 8
 	}
-	nb := buildNeighbours(g, k)
+	// With strokes, quadrant neighbours too: 1.5% shorter idle travel on
+	// clustered layouts of parallel strokes, no change on random strokes;
+	// on the TSPLIB points they made the gaps worse. Not above 200,000
+	// nodes, where their queries cost more than they bring (10^6 random
+	// strokes: 3 s more, 0.5 point less gain at the default budget).
+	nb := buildNeighbours(g, k, g.real > len(items) && g.n() <= 200_000)
 	if err := c.ctx.Err(); err != nil {
 		return nil, nil, err
 	}
