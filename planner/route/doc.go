@@ -24,7 +24,10 @@
 //   - Up to 10 items (per group) are ordered exactly by dynamic
 //     programming over subsets (Held & Karp 1962).
 //   - Neighbour lists: the 10 nearest nodes of each node (8 above 200,000
-//     nodes), from a kd-tree (Bentley 1975); O(n log n).
+//     nodes), from a kd-tree (Bentley 1975); O(n log n). With strokes (up
+//     to 200,000 nodes) also the nearest node of each quadrant that is
+//     more than twice as far as the 10th nearest, which on clustered
+//     layouts joins each cluster's edge to the next clusters.
 //   - Construction: greedy edge matching (Bentley 1992), fixed edges first,
 //     fragments joined by the same rule on their ends.
 //   - Local search from a queue of nodes (don't-look bits, Bentley 1992):
