@@ -306,6 +306,15 @@ func (mc *modeChooser) apFeatures() []apFeature {
 	return out
 }
 
+// segBounds returns the box of run segments' dimer centres.
+func segBounds(segs []runSeg) r2.Rect {
+	b := r2.EmptyRect()
+	for _, s := range segs {
+		b = b.AddPoint(s.a).AddPoint(s.b)
+	}
+	return b
+}
+
 // gap returns the least distance from part (of region r) to an AP
 // feature of another region that it does not touch, and reports whether
 // it lies inside the keep-out. Distances are between site cells, as the
@@ -316,12 +325,18 @@ func (mc *modeChooser) gap(feats []apFeature, r *regionWork, part *lattice.SiteS
 	if part == nil || part.IsEmpty() {
 		return 0, r2.Point{}, false
 	}
-	mine := lattice.NewCellIndex(mc.g.surf, part)
-	bounds := mine.Bounds().ExpandedByMargin(mc.keepOut)
+	// The part's run segments are made anyway (its strokes need them):
+	// their box, widened by a cell, rules out far features before the
+	// part's cells are indexed.
+	bounds := segBounds(mc.g.segsOf(part)).ExpandedByMargin(mc.keepOut + lattice.RowSpacing)
+	var mine *lattice.CellIndex
 	best, at := math.Inf(1), r2.Point{}
 	for _, f := range feats {
 		if f.region == r.index || !bounds.Intersects(f.ix.Bounds()) {
 			continue
+		}
+		if mine == nil {
+			mine = lattice.NewCellIndex(mc.g.surf, part)
 		}
 		d, p, ok := f.ix.GapWithin(mine, mc.keepOut)
 		if ok && d > design.TouchNM && d < best {
