@@ -194,22 +194,11 @@ func (u *UI) SaveTo(path string) error {
 }
 
 func (u *UI) saveAs(then func()) {
-	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
-		if err != nil {
-			dialog.ShowError(err, u.Win)
-			return
-		}
-		if w == nil {
-			return
-		}
-		path := w.URI().Path()
-		// The dialog opened the file; the design is written to a
-		// temporary file and renamed over it.
-		w.Close()
-		if !strings.HasSuffix(strings.ToLower(path), ".json") {
-			os.Remove(path)
-			path += ".json"
-		}
+	name := u.S.Design().Name
+	if p := u.S.Path(); p != "" {
+		name = strings.TrimSuffix(filepath.Base(p), filepath.Ext(p))
+	}
+	u.chooseFile(safeFileName(name)+".json", []string{".json"}, func(path string) {
 		if err := u.SaveTo(path); err != nil {
 			dialog.ShowError(err, u.Win)
 			return
@@ -217,18 +206,7 @@ func (u *UI) saveAs(then func()) {
 		if then != nil {
 			then()
 		}
-	}, u.Win)
-	name := u.S.Design().Name
-	if name == "" {
-		name = "design"
-	}
-	d.SetFileName(safeFileName(name) + ".json")
-	d.SetFilter(storage.NewExtensionFileFilter([]string{".json"}))
-	if dir := u.lastDir(); dir != nil {
-		d.SetLocation(dir)
-	}
-	d.Resize(fyne.NewSize(900, 600))
-	d.Show()
+	})
 }
 
 // safeFileName turns a design or variant name into a file name.
@@ -481,19 +459,19 @@ func (u *UI) exportAs(kind string) {
 }
 
 // chooseFile asks for a file to write, suggesting name, and calls then
-// with its path. The file is written later through a temporary file.
+// with its path; a name without one of exts gets exts[0]. The file is
+// not touched here: the dialog's writer is closed unwritten (see
+// lazyFiles), and then writes the file through a temporary file, so a
+// write that fails leaves the old file as it was.
 func (u *UI) chooseFile(name string, exts []string, then func(path string)) {
 	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
-		if err != nil {
+		path, err := chosenPath(w, err, exts)
+		switch {
+		case err != nil:
 			dialog.ShowError(err, u.Win)
-			return
+		case path != "":
+			then(path)
 		}
-		if w == nil {
-			return
-		}
-		path := w.URI().Path()
-		w.Close()
-		then(path)
 	}, u.Win)
 	d.SetFileName(name)
 	d.SetFilter(storage.NewExtensionFileFilter(exts))
@@ -502,6 +480,24 @@ func (u *UI) chooseFile(name string, exts []string, then func(path string)) {
 	}
 	d.Resize(fyne.NewSize(900, 600))
 	d.Show()
+}
+
+// chosenPath returns the path a save dialog chose ("" when it was
+// cancelled), closing its writer without writing, and adds exts[0] to a
+// name that has none of exts.
+func chosenPath(w fyne.URIWriteCloser, err error, exts []string) (string, error) {
+	if err != nil || w == nil {
+		return "", err
+	}
+	path := w.URI().Path()
+	if err := w.Close(); err != nil {
+		return "", fmt.Errorf("%s: %w", path, err)
+	}
+	ext := strings.ToLower(filepath.Ext(path))
+	if len(exts) > 0 && !slices.Contains(exts, ext) {
+		path += exts[0]
+	}
+	return path, nil
 }
 
 // runInBackground runs job with the progress bar and its Cancel button,

@@ -100,6 +100,8 @@ func New(a fyne.App, w fyne.Window, s *Session, o Options) *UI {
 	if o.CheckDelay == 0 {
 		o.CheckDelay = 400 * time.Millisecond
 	}
+	// Before any file dialog: saving must never empty a file first.
+	installLazyFiles()
 	u := &UI{App: a, Win: w, S: s, opts: o, toolButtons: map[Tool]*widget.Button{}}
 	u.View = NewLatticeView(s)
 	u.View.OnCursor = u.showCursor
