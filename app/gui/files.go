@@ -9,6 +9,8 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
+	"sync"
+	"sync/atomic"
 	"time"
 
 	"fyne.io/fyne/v2"
@@ -304,24 +306,90 @@ func (u *UI) StopAutosave() {
 	}
 }
 
-// Autosave writes the recovery copy now if the design changed since the
-// last one. The copy is taken here; the file is written in the
-// background.
-func (u *UI) Autosave() error {
+// Autosave starts writing the recovery copy if the design changed since
+// the last copy and no copy is being written, and returns at once. On
+// Fyne's goroutine it only takes the current undo state, an immutable
+// snapshot that is already made; the design is assembled from it,
+// encoded and written in the background, so a design with millions of
+// hand-painted sites never stalls the window. One copy is written at a
+// time: a tick that finds one in flight leaves its state to the next
+// tick. The channel receives the write's result (nil when there was
+// nothing to write), for tests.
+func (u *UI) Autosave() <-chan error {
+	done := make(chan error, 1)
 	s := u.S
-	if !s.Dirty() || s.hist.current() == u.lastAutosave {
-		return nil
+	snap := s.hist.current()
+	if !s.Dirty() || snap == u.lastAutosave || u.autosaving {
+		done <- nil
+		return done
 	}
 	dir, err := u.configDir()
 	if err != nil {
-		return err
+		done <- err
+		return done
 	}
-	u.lastAutosave = s.hist.current()
-	d := s.DesignCopy()
-	info := recoveryInfo{Path: s.Path(), SavedAt: time.Now(), Design: d.Name}
-	// Written here: the copy is already taken, and a design file is
-	// written in milliseconds unless it holds millions of painted sites.
-	return writeRecovery(dir, d, info)
+	u.autosaving = true
+	info := recoveryInfo{Path: s.Path(), SavedAt: time.Now(), Design: snap.shell.Name}
+	rec := u.recovery
+	gen := rec.generation()
+	go func() {
+		err := rec.write(gen, func() error { return writeRecovery(dir, designOf(snap), info) })
+		fyne.Do(func() {
+			u.autosaving = false
+			if err == nil && u.S == s {
+				u.lastAutosave = snap
+			}
+			if err != nil {
+				u.hintLabel.SetText("Could not write the recovery copy to " + dir + ": " + err.Error())
+			}
+		})
+		done <- err
+	}()
+	return done
+}
+
+// recoveryFiles orders the writes and removals of the recovery copy: a
+// removal (after a save, on quitting) waits for a write in flight and
+// makes any write that started before it do nothing, so a saved design
+// is never offered back as unsaved work.
+type recoveryFiles struct {
+	mu  sync.Mutex   // held while the files are written or removed
+	gen atomic.Int64 // removals so far
+}
+
+func (r *recoveryFiles) generation() int64 { return r.gen.Load() }
+
+// write runs f unless a removal happened since generation gen.
+func (r *recoveryFiles) write(gen int64, f func() error) error {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	if r.gen.Load() != gen {
+		return nil
+	}
+	return f()
+}
+
+// remove runs f and makes every write started before it void.
+func (r *recoveryFiles) remove(f func()) {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	r.gen.Add(1)
+	f()
+}
+
+// designOf assembles the design of an undo state for reading: the
+// regions are the snapshot's own, which nothing changes.
+func designOf(snap *snapshot) *design.Design {
+	d := *snap.shell
+	d.Variants = slices.Clone(snap.shell.Variants)
+	for v := range d.Variants {
+		rs := make([]design.Region, len(snap.regions[v]))
+		for i, sr := range snap.regions[v] {
+			rs[i] = sr.region
+		}
+		d.Variants[v].Regions = rs
+	}
+	return &d
 }
 
 func writeRecovery(dir string, d *design.Design, info recoveryInfo) error {
@@ -343,8 +411,10 @@ func (u *UI) removeRecovery() {
 	if err != nil {
 		return
 	}
-	os.Remove(filepath.Join(dir, recoveryName))
-	os.Remove(filepath.Join(dir, recoveryMeta))
+	u.recovery.remove(func() {
+		os.Remove(filepath.Join(dir, recoveryName))
+		os.Remove(filepath.Join(dir, recoveryMeta))
+	})
 	u.lastAutosave = nil
 }
 

@@ -87,7 +87,9 @@ type UI struct {
 	checkCancel  context.CancelFunc
 	checkTimer   *time.Timer
 	stopAutosave chan struct{}
-	lastAutosave *snapshot
+	lastAutosave *snapshot // the undo state the recovery copy holds
+	autosaving   bool      // a recovery copy is being written
+	recovery     *recoveryFiles
 
 	// jobDone, when set (by tests), is called after a background plan or
 	// comparison has reported back.
@@ -102,7 +104,7 @@ func New(a fyne.App, w fyne.Window, s *Session, o Options) *UI {
 	}
 	// Before any file dialog: saving must never empty a file first.
 	installLazyFiles()
-	u := &UI{App: a, Win: w, S: s, opts: o, toolButtons: map[Tool]*widget.Button{}}
+	u := &UI{App: a, Win: w, S: s, opts: o, toolButtons: map[Tool]*widget.Button{}, recovery: &recoveryFiles{}}
 	u.View = NewLatticeView(s)
 	u.View.OnCursor = u.showCursor
 	u.View.OnRune = u.typedRune
