@@ -221,6 +221,7 @@ func (lv *LatticeView) Scrolled(ev *fyne.ScrollEvent) {
 // MouseDown and MouseUp record the button, so a middle-button drag pans
 // with any tool.
 func (lv *LatticeView) MouseDown(ev *desktop.MouseEvent) {
+	lv.takeFocus()
 	lv.button = ev.Button
 	if ev.Button == desktop.MouseButtonSecondary {
 		p := ev.Position
@@ -265,6 +266,7 @@ func (lv *LatticeView) DragEnd() {
 
 // Tapped is a click with the current tool.
 func (lv *LatticeView) Tapped(ev *fyne.PointEvent) {
+	lv.takeFocus()
 	if lv.s.Tool == ToolPan {
 		return
 	}
@@ -299,6 +301,17 @@ func (lv *LatticeView) MouseOut() {
 func (lv *LatticeView) cursor(p fyne.Position) {
 	if lv.OnCursor != nil {
 		lv.OnCursor(lv.FieldAt(p), true)
+	}
+}
+
+// takeFocus makes the view the focused widget, as a text field does
+// when clicked: Fyne leaves the focus where it was on a click into a
+// focusable widget, so without this the keys typed after drawing (Enter
+// to close a polygon, a tool's letter, Delete) would still go to the
+// last text field, renaming a region instead.
+func (lv *LatticeView) takeFocus() {
+	if c := fyne.CurrentApp().Driver().CanvasForObject(lv); c != nil && c.Focused() != lv {
+		c.Focus(lv)
 	}
 }
 
