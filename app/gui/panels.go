@@ -109,6 +109,14 @@ func groupDigits(n int) string {
 	return b.String()
 }
 
+// plural returns "1 shape", "2 shapes".
+func plural(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return fmt.Sprintf("%d %ss", n, noun)
+}
+
 func mutedLabel(s string) *widget.Label {
 	l := widget.NewLabel(s)
 	l.Wrapping = fyne.TextWrapWord
@@ -154,6 +162,8 @@ type regionsPanel struct {
 	tol      *widget.Entry
 	info     *widget.Label
 	msg      *widget.Label
+	shape    *widget.Label
+	shapeBox *fyne.Container
 	shown    int // region the form shows
 	updating bool
 }
@@ -248,6 +258,10 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	}
 	p.info = mutedLabel("")
 	p.msg = errorLabel()
+	p.shape = wrapLabel("")
+	delShape := widget.NewButtonWithIcon("Delete shape", theme.DeleteIcon(), func() { p.u.S.DeleteSelectedShape() })
+	p.shapeBox = container.NewBorder(nil, nil, nil, delShape, p.shape)
+	p.shapeBox.Hide()
 	form := widget.NewForm(
 		widget.NewFormItem("Name", p.name),
 		widget.NewFormItem("Role", p.role),
@@ -255,7 +269,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		widget.NewFormItem("Dopant", p.species),
 		widget.NewFormItem("Tolerance ± nm", p.tol),
 	)
-	p.form = container.NewVBox(widget.NewSeparator(), heading("Selected region"), form, p.msg, p.info,
+	p.form = container.NewVBox(widget.NewSeparator(), heading("Selected region"), form, p.msg, p.info, p.shapeBox,
 		container.NewGridWithColumns(2,
 			widget.NewButtonWithIcon("Zoom to", theme.ZoomFitIcon(), u.zoomToSelection),
 			widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() {
@@ -317,7 +331,7 @@ func (p *regionsPanel) refresh() {
 	}
 	p.shown = a
 	n := s.RegionSites(a).Count()
-	info := fmt.Sprintf("%s H sites in %d shapes", groupDigits(n), len(r.Shapes))
+	info := fmt.Sprintf("%s H sites in %s", groupDigits(n), plural(len(r.Shapes), "shape"))
 	if r.Painted != nil && !r.Painted.IsEmpty() {
 		info += fmt.Sprintf(", %s painted by hand", groupDigits(r.Painted.Count()))
 	}
@@ -331,6 +345,13 @@ func (p *regionsPanel) refresh() {
 		info += fmt.Sprintf(". %d regions selected.", len(s.Selection()))
 	}
 	p.info.SetText(info)
+	if i, k := s.SelectedShape(); i == a && k >= 0 {
+		b := s.SelectedShapeBounds()
+		p.shape.SetText(fmt.Sprintf("Shape %d of %d: %s, %s x %s. Drag it with the Select tool to move it.", k+1, len(r.Shapes), ShapeName(r.Shapes[k]), formatLength(b.Size().X), formatLength(b.Size().Y)))
+		p.shapeBox.Show()
+	} else {
+		p.shapeBox.Hide()
+	}
 }
 
 // --- Findings ---

@@ -42,6 +42,9 @@ type Session struct {
 	Tool Tool
 	Opts ToolOptions
 	sel  []int // selected regions of the current variant, primary first
+	// shapeSel is the selected shape (of the primary selected region),
+	// or nil.
+	shapeSel *selectedShape
 
 	gesture *gesture
 	hoverAt hoverState
@@ -239,6 +242,7 @@ func (s *Session) SetVariant(i int) {
 	s.cancelGesture()
 	s.variant = i
 	s.sel = nil
+	s.shapeSel = nil
 	s.chosen = -1
 	s.ensureCaches()
 	s.notify(ChangeVariants | ChangeRegions | ChangeSites | ChangeSelection | ChangePlan | ChangeFindings)
@@ -394,6 +398,7 @@ func (s *Session) afterRestore(variant int) {
 	s.variant = min(max(variant, 0), len(s.d.Variants)-1)
 	n := len(s.Variant().Regions)
 	s.sel = slices.DeleteFunc(s.sel, func(i int) bool { return i >= n })
+	s.shapeSel = nil
 	s.ensureCaches()
 	s.notify(ChangeAll)
 }
@@ -422,6 +427,7 @@ func (s *Session) Select(regions ...int) {
 		}
 	}
 	s.sel = sel
+	s.shapeSel = nil
 	s.notify(ChangeSelection | ChangeSites)
 }
 
@@ -479,6 +485,7 @@ func (s *Session) addRegion(name string, role design.Role) int {
 	i := len(v.Regions) - 1
 	s.caches[s.ids[s.variant][i]] = s.newCache(lattice.NewSiteSet())
 	s.sel = []int{i}
+	s.shapeSel = nil
 	return i
 }
 
@@ -506,6 +513,7 @@ func (s *Session) DeleteRegions(regions ...int) {
 	}
 	v.Regions, s.ids[s.variant] = keep, ids
 	s.sel = nil
+	s.shapeSel = nil
 	label := "delete region " + names[0]
 	if len(names) > 1 {
 		label = fmt.Sprintf("delete %d regions", len(names))
@@ -631,6 +639,7 @@ func (s *Session) DuplicateVariant(i int) int {
 	s.ids = slices.Insert(s.ids, i+1, append([]regionID(nil), s.ids[i]...))
 	s.variant = i + 1
 	s.sel = nil
+	s.shapeSel = nil
 	s.commit("duplicate variant "+s.d.Variants[i].Name, "", ChangeAll)
 	return i + 1
 }
@@ -669,6 +678,7 @@ func (s *Session) DeleteVariant(i int) error {
 		s.variant = max(s.variant-1, 0)
 	}
 	s.sel = nil
+	s.shapeSel = nil
 	s.ensureCaches()
 	s.commit("delete variant "+name, "", ChangeAll)
 	return nil
@@ -737,6 +747,7 @@ func (s *Session) terracesChanged() error {
 		return err
 	}
 	s.surf, s.surfErr = surf, nil
+	s.shapeSel = nil
 	for v := range s.ids {
 		for i := range s.ids[v] {
 			s.ids[v][i] = s.newID()

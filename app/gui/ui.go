@@ -173,6 +173,9 @@ func (u *UI) changed(c Change) {
 	if c&ChangeTool != 0 {
 		u.refreshTools()
 	}
+	if c&(ChangeTool|ChangeSelection|ChangeRegions|ChangeVariants) != 0 {
+		u.refreshHint()
+	}
 	if c&(ChangeRegions|ChangePlan|ChangeFindings|ChangeVariants|ChangeHistory|ChangeTerraces|ChangeFiducials) != 0 {
 		u.refreshLegend()
 	}
@@ -339,7 +342,37 @@ func (u *UI) refreshTools() {
 	}
 	u.toolOptions.Objects = u.optionsFor(u.S.Tool)
 	u.toolOptions.Refresh()
-	u.hintLabel.SetText(u.S.Tool.Info().Hint)
+}
+
+// refreshHint shows what the tool does and, for the painting tools,
+// which region the next stroke goes into.
+func (u *UI) refreshHint() {
+	s := u.S
+	hint := s.Tool.Info().Hint
+	switch s.Tool {
+	case ToolSite, ToolDimer, ToolRect, ToolPolygon, ToolLine:
+		if a := s.Active(); a >= 0 {
+			hint = fmt.Sprintf("Adds to %s (Esc: select nothing, to start a new region). %s", s.Variant().Regions[a].Name, hint)
+		} else {
+			hint = "Starts a new region. " + hint
+		}
+	case ToolSelect:
+		if i, k := s.SelectedShape(); i >= 0 {
+			r := s.Variant().Regions[i]
+			hint = fmt.Sprintf("Selected: %s %d of %d in %s. Drag it to move it; Delete removes it; Esc selects nothing.", ShapeName(r.Shapes[k]), k+1, len(r.Shapes), r.Name)
+		}
+	}
+	u.hintLabel.SetText(hint)
+}
+
+// deleteSelection removes the selected shape, or else the selected
+// regions.
+func (u *UI) deleteSelection() {
+	if !u.S.DeleteSelectedShape() {
+		if sel := u.S.Selection(); len(sel) > 0 {
+			u.S.DeleteRegions(sel...)
+		}
+	}
 }
 
 // optionEntry is a numeric option field: it applies the value when it
@@ -594,11 +627,14 @@ func (u *UI) typedKey(k *fyne.KeyEvent) {
 			u.hintLabel.SetText(err.Error())
 		}
 	case fyne.KeyEscape:
-		u.S.CancelPath()
-	case fyne.KeyDelete, fyne.KeyBackspace:
-		if sel := u.S.Selection(); len(sel) > 0 {
-			u.S.DeleteRegions(sel...)
+		if u.S.Drawing() {
+			u.S.CancelPath()
+		} else if len(u.S.Selection()) > 0 {
+			// Nothing selected: the next stroke starts a new region.
+			u.S.Select()
 		}
+	case fyne.KeyDelete, fyne.KeyBackspace:
+		u.deleteSelection()
 	case fyne.KeyLeft:
 		u.View.SetView(u.View.view.Pan(step, 0))
 	case fyne.KeyRight:
@@ -675,8 +711,9 @@ func (u *UI) buildMenu() {
 	edit := fyne.NewMenu("Edit", u.undoItem, u.redoItem,
 		item("Redo (Ctrl+Y)", &fyne.ShortcutRedo{}, func() { u.S.Redo() }),
 		fyne.NewMenuItemSeparator(),
+		fyne.NewMenuItem("Delete selected shape (Delete)", func() { u.S.DeleteSelectedShape() }),
 		fyne.NewMenuItem("Delete selected regions", func() { u.S.DeleteRegions(u.S.Selection()...) }),
-		fyne.NewMenuItem("Select none", func() { u.S.Select() }),
+		fyne.NewMenuItem("Select nothing (Esc)", func() { u.S.Select() }),
 	)
 	var toolItems []*fyne.MenuItem
 	for _, ti := range Tools {
@@ -733,8 +770,9 @@ func (u *UI) showKeys() {
 	}
 	text += "\nWheel\tzoom around the pointer;  + and − zoom, 0 or Home shows the whole field\n" +
 		"Drag\twith the Pan tool, the middle button or the right button: move the view;  arrow keys pan\n" +
-		"Enter / Esc\tfinish / cancel a polygon, line or terrace outline\n" +
-		"Delete\tremove the selected regions\n" +
+		"Enter / Esc\tfinish / cancel a polygon, line or terrace outline;  Esc otherwise selects nothing\n" +
+		"Select tool\tclick a shape to select it, drag it to move it by whole dimers and rows\n" +
+		"Delete\tremove the selected shape, or the selected regions\n" +
 		"Ctrl+Z\tundo;  Ctrl+Shift+Z or Ctrl+Y redo\n" +
 		"Ctrl+S\tsave;  Ctrl+Shift+S save as;  Ctrl+O open;  Ctrl+N new\n" +
 		"Ctrl+Enter\tplan the variant;  F5 check design rules;  Ctrl+E export the operator's PDF\n"
