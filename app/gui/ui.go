@@ -314,6 +314,7 @@ func (u *UI) toolPalette() fyne.CanvasObject {
 		} else {
 			u.View.legend.Hide()
 		}
+		u.View.LegendChanged()
 	})
 	legend.SetChecked(true)
 	return container.NewVBox(
@@ -500,6 +501,16 @@ func legendRow(sw fyne.CanvasObject, text string) fyne.CanvasObject {
 	return container.NewHBox(container.New(&fixedWidth{w: 22}, sw), legendText(text))
 }
 
+// legendName shortens a region name for the legend, which sits on the
+// lattice and must stay narrow; the Regions panel shows it whole.
+func legendName(s string) string {
+	const most = 24
+	if r := []rune(s); len(r) > most {
+		return string(r[:most-1]) + "…"
+	}
+	return s
+}
+
 // refreshLegend lists what the view's colours mean right now.
 func (u *UI) refreshLegend() {
 	var rows []fyne.CanvasObject
@@ -510,7 +521,7 @@ func (u *UI) refreshLegend() {
 			rows = append(rows, legendRow(swatch(color.Transparent, 12, 12), fmt.Sprintf("… %d more in Regions", len(v.Regions)-maxRegions)))
 			break
 		}
-		rows = append(rows, legendRow(swatch(RegionColor(i), 12, 12), fmt.Sprintf("%s (%s)", r.Name, roleOf(r.Role))))
+		rows = append(rows, legendRow(swatch(RegionColor(i), 12, 12), fmt.Sprintf("%s (%s)", legendName(r.Name), roleOf(r.Role))))
 	}
 	if len(v.Regions) == 0 {
 		rows = append(rows, legendRow(swatch(colCleanH, 12, 12), "clean H-terminated surface"))
@@ -521,11 +532,10 @@ func (u *UI) refreshLegend() {
 		for i := 0; i < min(len(p.Segments), 6); i++ {
 			segs.Add(swatch(SegmentColor(i), 8, 12))
 		}
-		title := fmt.Sprintf("strokes by segment (%d)", len(p.Segments))
+		rows = append(rows, container.NewHBox(segs, legendText(fmt.Sprintf("strokes by segment (%d)", len(p.Segments)))))
 		if stale {
-			title += " — out of date"
+			rows = append(rows, legendRow(swatch(color.Transparent, 12, 12), "route out of date: plan again"))
 		}
-		rows = append(rows, container.NewHBox(segs, legendText(title)))
 		rows = append(rows, legendRow(swatch(colMove, 14, 1), "tip moves"))
 		rows = append(rows, legendRow(legendText("◇"), "registration on a fiducial"))
 	}
@@ -535,17 +545,35 @@ func (u *UI) refreshLegend() {
 	if surf := u.S.Surface(); surf != nil && len(surf.Terraces) > 1 {
 		rows = append(rows, widget.NewSeparator())
 		for i, t := range surf.Terraces {
-			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: rows along %s", t.Name, t.Rows)))
+			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: rows along %s", legendName(t.Name), t.Rows)))
 		}
 		rows = append(rows, legendRow(swatch(colStep, 14, 2), "step edge"))
 	}
 	if f, _ := u.S.Findings(); len(f) > 0 && u.View.Opts.Findings {
-		rows = append(rows, legendRow(swatch(colError, 12, 12), "design-rule error"))
-		rows = append(rows, legendRow(swatch(colWarning, 12, 12), "design-rule warning"))
+		errs, warns := countFindings(f)
+		if errs > 0 {
+			rows = append(rows, legendRow(swatch(colError, 12, 12), "design-rule error"))
+		}
+		if warns > 0 {
+			rows = append(rows, legendRow(swatch(colWarning, 12, 12), "design-rule warning"))
+		}
 	}
 	u.legend.Objects = rows
 	u.legend.Refresh()
 	u.View.Refresh()
+	u.View.LegendChanged()
+}
+
+// countFindings returns the numbers of errors and of warnings.
+func countFindings(f []Finding) (errs, warns int) {
+	for _, x := range f {
+		if x.Error {
+			errs++
+		} else {
+			warns++
+		}
+	}
+	return errs, warns
 }
 
 // --- Status ---
