@@ -131,16 +131,16 @@ func (u *UI) CheckNow() {
 	ctx, cancel := context.WithCancel(context.Background())
 	u.checkCancel = cancel
 	go func() {
-		f, err := checkDesign(ctx, d, variant)
+		res, err := checkDesign(ctx, d, variant)
 		fyne.Do(func() {
 			if ctx.Err() != nil || s != u.S || variant != s.Variant().Name {
 				return
 			}
 			u.checkCancel = nil
 			if err != nil {
-				f = []Finding{{Rule: "design", Error: true, Message: err.Error()}}
+				res = CheckResult{Findings: []Finding{{Rule: "design", Error: true, Message: err.Error()}}}
 			}
-			s.SetFindings(f, tok)
+			s.SetCheck(res, tok)
 		})
 	}()
 }
@@ -148,11 +148,11 @@ func (u *UI) CheckNow() {
 // CheckSync runs the checks on the calling goroutine (tests, screenshot).
 func (u *UI) CheckSync() {
 	s := u.S
-	f, err := checkDesign(context.Background(), s.DesignCopy(), s.Variant().Name)
+	res, err := checkDesign(context.Background(), s.DesignCopy(), s.Variant().Name)
 	if err != nil {
-		f = []Finding{{Rule: "design", Error: true, Message: err.Error()}}
+		res = CheckResult{Findings: []Finding{{Rule: "design", Error: true, Message: err.Error()}}}
 	}
-	s.SetFindings(f, s.Token())
+	s.SetCheck(res, s.Token())
 }
 
 // compareVariants plans every variant in the background and shows the

@@ -15,6 +15,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
 
+	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
 
@@ -164,6 +165,8 @@ type regionsPanel struct {
 	msg      *widget.Label
 	shape    *widget.Label
 	shapeBox *fyne.Container
+	gaps     *fyne.Container
+	addGap   *widget.Select
 	shown    int // region the form shows
 	updating bool
 }
@@ -262,6 +265,16 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	delShape := widget.NewButtonWithIcon("Delete shape", theme.DeleteIcon(), func() { p.u.S.DeleteSelectedShape() })
 	p.shapeBox = container.NewBorder(nil, nil, nil, delShape, p.shape)
 	p.shapeBox.Hide()
+	p.gaps = container.NewVBox()
+	p.addGap = widget.NewSelect(nil, func(other string) {
+		if p.updating || p.shown < 0 || other == "" {
+			return
+		}
+		err := p.u.S.AddTunnelGap(p.u.S.Variant().Regions[p.shown].Name, other)
+		showErr(p.msg, err)
+		p.addGap.ClearSelected()
+	})
+	p.addGap.PlaceHolder = "Declare a tunnel gap to…"
 	form := widget.NewForm(
 		widget.NewFormItem("Name", p.name),
 		widget.NewFormItem("Role", p.role),
@@ -270,6 +283,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		widget.NewFormItem("Tolerance ± nm", p.tol),
 	)
 	p.form = container.NewVBox(widget.NewSeparator(), heading("Selected region"), form, p.msg, p.info, p.shapeBox,
+		p.gaps, p.addGap,
 		container.NewGridWithColumns(2,
 			widget.NewButtonWithIcon("Zoom to", theme.ZoomFitIcon(), u.zoomToSelection),
 			widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() {
@@ -345,6 +359,7 @@ func (p *regionsPanel) refresh() {
 		info += fmt.Sprintf(". %d regions selected.", len(s.Selection()))
 	}
 	p.info.SetText(info)
+	p.refreshGaps()
 	if i, k := s.SelectedShape(); i == a && k >= 0 {
 		b := s.SelectedShapeBounds()
 		p.shape.SetText(fmt.Sprintf("Shape %d of %d: %s, %s x %s. Drag it with the Select tool to move it.", k+1, len(r.Shapes), ShapeName(r.Shapes[k]), formatLength(b.Size().X), formatLength(b.Size().Y)))
@@ -352,6 +367,46 @@ func (p *regionsPanel) refresh() {
 	} else {
 		p.shapeBox.Hide()
 	}
+}
+
+// refreshGaps lists the selected region's tunnel gaps with their
+// measured widths, and offers the other regions for a new one.
+func (p *regionsPanel) refreshGaps() {
+	s := p.u.S
+	a := s.Active()
+	if a < 0 {
+		return
+	}
+	v := s.Variant()
+	name := v.Regions[a].Name
+	var rows []fyne.CanvasObject
+	coupled := map[string]bool{name: true}
+	for gi, g := range v.TunnelGaps {
+		if g.A != name && g.B != name {
+			continue
+		}
+		other := g.B
+		if other == name {
+			other = g.A
+		}
+		coupled[other] = true
+		width := "measuring…"
+		if w, ok := s.GapWidth(g.A, g.B); ok {
+			width = fmt.Sprintf("%s (%.1f dimer rows)", formatLength(w), w/lattice.RowSpacing)
+		}
+		rm := widget.NewButtonWithIcon("", theme.ContentRemoveIcon(), func() { p.u.S.RemoveTunnelGap(gi) })
+		rows = append(rows, container.NewBorder(nil, nil, nil, rm, wrapLabel("Tunnel gap to "+other+": "+width)))
+	}
+	p.gaps.Objects = rows
+	p.gaps.Refresh()
+	var others []string
+	for _, r := range v.Regions {
+		if !coupled[r.Name] {
+			others = append(others, r.Name)
+		}
+	}
+	p.addGap.SetOptions(others)
+	p.addGap.ClearSelected()
 }
 
 // --- Findings ---
@@ -392,6 +447,9 @@ func newFindingsPanel(u *UI) *findingsPanel {
 			if len(f[i].Regions) > 0 {
 				text += " (" + strings.Join(f[i].Regions, ", ") + ")"
 			}
+			if h := findingHint(f[i].Rule); h != "" {
+				text += "\nWhat to do: " + h
+			}
 			c.Objects[0].(*widget.Label).SetText(text)
 			p.list.SetItemHeight(i, c.Objects[0].MinSize().Height)
 		})
@@ -424,7 +482,7 @@ func (p *findingsPanel) refresh() {
 	case len(f) == 0:
 		text = "No findings: variant " + p.u.S.Variant().Name + " passes every design rule."
 	default:
-		text = fmt.Sprintf("%d errors and %d warnings in variant %s.", errs, warns, p.u.S.Variant().Name)
+		text = fmt.Sprintf("%s and %s in variant %s.", plural(errs, "error"), plural(warns, "warning"), p.u.S.Variant().Name)
 	}
 	if stale && p.u.S.findState != nil {
 		text += " (The design changed since; checking again…)"
@@ -435,6 +493,26 @@ func (p *findingsPanel) refresh() {
 		p.u.tabFindings.Text = fmt.Sprintf("Checks (%d)", errs)
 	}
 	p.u.tabs.Refresh()
+}
+
+// findingHint says, for a rule, what to do in the window about one of
+// its findings.
+func findingHint(rule string) string {
+	switch rule {
+	case design.RuleFloating:
+		return "connect the region to a contact pad through touching regions; if it is meant to be tunnel-coupled (an SET island to its leads), select it in Regions and declare the tunnel gap."
+	case design.RuleTunnelGap:
+		return "drag the lead or the island with the Select tool (it moves by whole dimers and rows) until the gap is in range."
+	case design.RuleWindowSpacing:
+		return "drag the window with the Select tool, or delete it (Delete), to leave the intact dimers the rule asks for."
+	case design.RuleWindow:
+		return "move the window onto whole, intact dimers of one terrace, or put the erased sites back."
+	case design.RuleFEKeepOut:
+		return "move the field-emission region away from the atomic-precision features, or change a region's write mode."
+	case design.RuleScanField:
+		return "move the shape inside the field and the scan field."
+	}
+	return ""
 }
 
 // --- Variants ---

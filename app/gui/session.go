@@ -53,6 +53,7 @@ type Session struct {
 	planVariant string
 	planState   *snapshot // the history state the plan was made from
 	findings    []Finding
+	gapWidths   map[[2]string]float64 // tunnel gaps measured by the last check
 	findState   *snapshot
 	chosen      int // index of the finding chosen in the list, or -1
 
@@ -512,6 +513,10 @@ func (s *Session) DeleteRegions(regions ...int) {
 		}
 	}
 	v.Regions, s.ids[s.variant] = keep, ids
+	// A tunnel gap to a deleted region goes with it.
+	v.TunnelGaps = slices.DeleteFunc(slices.Clone(v.TunnelGaps), func(g design.TunnelGap) bool {
+		return slices.Contains(names, g.A) || slices.Contains(names, g.B)
+	})
 	s.sel = nil
 	s.shapeSel = nil
 	label := "delete region " + names[0]
@@ -540,7 +545,18 @@ func (s *Session) RenameRegion(i int, name string) error {
 		}
 	}
 	s.touch(s.variant, i)
+	old := v.Regions[i].Name
 	v.Regions[i].Name = name
+	// Tunnel gaps name their regions: they follow the rename.
+	v.TunnelGaps = slices.Clone(v.TunnelGaps)
+	for g := range v.TunnelGaps {
+		if v.TunnelGaps[g].A == old {
+			v.TunnelGaps[g].A = name
+		}
+		if v.TunnelGaps[g].B == old {
+			v.TunnelGaps[g].B = name
+		}
+	}
 	s.commit("rename region", fmt.Sprintf("rename-region-%d-%d", s.variant, i), ChangeRegions)
 	return nil
 }
@@ -606,6 +622,55 @@ func (s *Session) setRegion(i int, what string, f func(*design.Region) bool) {
 	s.touch(s.variant, i)
 	v.Regions[i] = r
 	s.commit("set "+what+" of "+r.Name, fmt.Sprintf("%s-%d-%d", what, s.variant, i), ChangeRegions)
+}
+
+// --- Tunnel gaps ---
+
+// AddTunnelGap declares that regions a and b of the current variant are
+// meant to be tunnel-coupled across a gap (an SET island and its
+// leads): the checks then measure the gap against the rule's range and
+// count the pair as connected.
+func (s *Session) AddTunnelGap(a, b string) error {
+	v := s.Variant()
+	if v.Region(a) == nil || v.Region(b) == nil {
+		return fmt.Errorf("tunnel gap %s – %s: both must be regions of variant %s", a, b, v.Name)
+	}
+	if a == b {
+		return fmt.Errorf("tunnel gap %s – %s: a gap needs two different regions", a, b)
+	}
+	for _, g := range v.TunnelGaps {
+		if g.A == a && g.B == b || g.A == b && g.B == a {
+			return fmt.Errorf("the tunnel gap %s – %s is already declared", a, b)
+		}
+	}
+	v.TunnelGaps = append(slices.Clone(v.TunnelGaps), design.TunnelGap{A: a, B: b})
+	s.commit("declare tunnel gap "+a+" – "+b, "", ChangeRegions)
+	return nil
+}
+
+// RemoveTunnelGap removes tunnel gap i of the current variant.
+func (s *Session) RemoveTunnelGap(i int) {
+	v := s.Variant()
+	if i < 0 || i >= len(v.TunnelGaps) {
+		return
+	}
+	g := v.TunnelGaps[i]
+	v.TunnelGaps = slices.Delete(slices.Clone(v.TunnelGaps), i, i+1)
+	s.commit("remove tunnel gap "+g.A+" – "+g.B, "", ChangeRegions)
+}
+
+// GapWidth returns the width (nm) of the current variant's tunnel gap
+// between a and b measured by the last check, and whether it is known
+// and up to date.
+func (s *Session) GapWidth(a, b string) (float64, bool) {
+	if s.findState != s.hist.current() {
+		return 0, false
+	}
+	w, ok := s.gapWidths[[2]string{a, b}]
+	if !ok {
+		w, ok = s.gapWidths[[2]string{b, a}]
+	}
+	return w, ok
 }
 
 // --- Variant edits ---
@@ -928,7 +993,14 @@ func (s *Session) Findings() (f []Finding, stale bool) {
 
 // SetFindings records the findings of a check made at state from.
 func (s *Session) SetFindings(f []Finding, from PlanToken) {
-	s.findings, s.findState = f, from.state
+	s.SetCheck(CheckResult{Findings: f}, from)
+}
+
+// SetCheck records a check's findings and tunnel-gap widths, made at
+// state from.
+func (s *Session) SetCheck(c CheckResult, from PlanToken) {
+	f := c.Findings
+	s.findings, s.findState, s.gapWidths = f, from.state, c.GapWidths
 	s.chosen = -1
 	s.notify(ChangeFindings | ChangeSites)
 }

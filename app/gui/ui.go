@@ -158,6 +158,9 @@ func (u *UI) changed(c Change) {
 	if c&(ChangeFindings|ChangeVariants|ChangeHistory) != 0 {
 		u.findings.refresh()
 	}
+	if c&ChangeFindings != 0 && c&(ChangeRegions|ChangeSelection|ChangeVariants) == 0 {
+		u.regions.refreshGaps() // the widths measured by the check
+	}
 	if c&(ChangePlan|ChangeVariants|ChangeHistory) != 0 {
 		u.planView.refresh()
 	}
