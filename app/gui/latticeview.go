@@ -33,12 +33,12 @@ type LatticeView struct {
 	// atFit says the view shows the whole field as Fit made it, and the
 	// user has not panned or zoomed since: it is fitted again when the
 	// view is resized or the legend beside the field changes size.
-	atFit    bool
-	rend     Renderer
-	raster   *canvas.Raster
-	scene    *Scene
-	route    *RouteOverlay
-	routeOf  *planner.Plan
+	atFit   bool
+	rend    Renderer
+	raster  *canvas.Raster
+	scene   *Scene
+	route   *RouteOverlay
+	routeOf *planner.Plan
 
 	button   desktop.MouseButton
 	panning  bool
