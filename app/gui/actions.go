@@ -74,6 +74,8 @@ func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken
 	u.planCancel = nil
 	u.planButton.Enable()
 	u.hideProgress()
+	then := u.afterPlan
+	u.afterPlan = nil
 	if s != u.S {
 		return // another design was opened meanwhile
 	}
@@ -86,6 +88,9 @@ func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken
 		s.SetPlan(p, variant, tok)
 		u.tabs.Select(u.tabPlan)
 		u.hintLabel.SetText(fmt.Sprintf("Planned variant %s in %s.", variant, formatDuration(time.Since(u.planStarted).Seconds())))
+		if then != nil {
+			then()
+		}
 	}
 }
 
@@ -169,6 +174,7 @@ func (u *UI) compareVariants() {
 	u.planButton.Disable()
 	u.showProgress("Comparing variants…", 0)
 	seed := u.opts.Seed
+	shown, tok := s.Variant().Name, s.Token()
 	go func() {
 		res := make([]export.VariantResult, len(names))
 		for i, n := range names {
@@ -190,6 +196,13 @@ func (u *UI) compareVariants() {
 			if ctx.Err() != nil {
 				u.hintLabel.SetText("Comparison cancelled.")
 				return
+			}
+			// The variant shown keeps its plan from the comparison, so it
+			// can be exported without planning it again.
+			for _, r := range res {
+				if r.Variant == shown && r.Err == nil && r.Plan != nil && s == u.S {
+					s.SetPlan(r.Plan, shown, tok)
+				}
 			}
 			u.showComparison(res)
 		})
@@ -242,7 +255,7 @@ func comparisonView(res []export.VariantResult) fyne.CanvasObject {
 		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: formatDuration(p.TotalS), Color: SegmentColor(i)})
 		yieldBars = append(yieldBars, Bar{Label: r.Variant, Value: p.Yield.All, Text: all, Color: colYield})
 	}
-	table := container.NewGridWithColumns(cols, cells...)
+	table := container.New(&tableLayout{cols: cols}, cells...)
 	charts := container.NewGridWithColumns(2,
 		container.NewVBox(heading("Write time per variant"), NewBarChart(timeBars)),
 		container.NewVBox(heading("Chance every window takes one donor"), NewBarChart(yieldBars)))
@@ -250,7 +263,9 @@ func comparisonView(res []export.VariantResult) fyne.CanvasObject {
 }
 
 func (u *UI) showComparison(res []export.VariantResult) {
-	content := container.NewVScroll(comparisonView(res))
+	// Scrolls both ways: a long variant name widens the table rather
+	// than being cut off.
+	content := container.NewScroll(comparisonView(res))
 	var d *dialog.CustomDialog
 	report := widget.NewButtonWithIcon("Export report…", theme.DocumentPrintIcon(), func() {
 		u.withCaution("the comparison report", func(es ExportSettings) {
@@ -265,6 +280,51 @@ func (u *UI) showComparison(res []export.VariantResult) {
 	d = dialog.NewCustomWithoutButtons("Compare variants", container.New(&fixedSize{fyne.NewSize(1000, 520)}, content), u.Win)
 	d.SetButtons([]fyne.CanvasObject{closeBtn, report})
 	d.Show()
+}
+
+// tableLayout lays cells out in rows of cols, each column as wide as
+// its widest cell (a grid gives every column the widest cell's width,
+// which cuts a table with one long name off).
+type tableLayout struct{ cols int }
+
+func (t *tableLayout) sizes(objs []fyne.CanvasObject) (widths, heights []float32) {
+	widths = make([]float32, t.cols)
+	heights = make([]float32, (len(objs)+t.cols-1)/t.cols)
+	for i, o := range objs {
+		m := o.MinSize()
+		widths[i%t.cols] = max(widths[i%t.cols], m.Width)
+		heights[i/t.cols] = max(heights[i/t.cols], m.Height)
+	}
+	return widths, heights
+}
+
+func (t *tableLayout) Layout(objs []fyne.CanvasObject, size fyne.Size) {
+	widths, heights := t.sizes(objs)
+	pad := theme.Padding()
+	var y float32
+	for r, h := range heights {
+		var x float32
+		for c, w := range widths {
+			if i := r*t.cols + c; i < len(objs) {
+				objs[i].Move(fyne.NewPos(x, y))
+				objs[i].Resize(fyne.NewSize(w, h))
+			}
+			x += w + pad
+		}
+		y += h
+	}
+}
+
+func (t *tableLayout) MinSize(objs []fyne.CanvasObject) fyne.Size {
+	widths, heights := t.sizes(objs)
+	var w, h float32
+	for _, x := range widths {
+		w += x
+	}
+	for _, y := range heights {
+		h += y
+	}
+	return fyne.NewSize(w+theme.Padding()*float32(max(len(widths)-1, 0)), h)
 }
 
 // fixedSize lays out its child at a fixed minimum size.

@@ -60,8 +60,11 @@ func (u *UI) confirmDiscard(action string, then func()) {
 		then()
 		return
 	}
-	name := u.S.Design().Name
-	msg := widget.NewLabel(fmt.Sprintf("The design %q has changes that are not saved. Save them before you %s?", name, action))
+	name := fmt.Sprintf("%q", u.S.Design().Name)
+	if p := u.S.Path(); p != "" {
+		name += " (" + filepath.Base(p) + ")"
+	}
+	msg := widget.NewLabel(fmt.Sprintf("The design %s has changes that are not saved. Save them before you %s?", name, action))
 	msg.Wrapping = fyne.TextWrapWord
 	var d *dialog.CustomDialog
 	save := widget.NewButton("Save", func() { d.Hide(); u.save(then) })
@@ -200,15 +203,22 @@ func (u *UI) saveAs(then func()) {
 	if p := u.S.Path(); p != "" {
 		name = strings.TrimSuffix(filepath.Base(p), filepath.Ext(p))
 	}
-	u.chooseFile(safeFileName(name)+".json", []string{".json"}, func(path string) {
-		if err := u.SaveTo(path); err != nil {
-			dialog.ShowError(err, u.Win)
-			return
-		}
-		if then != nil {
-			then()
-		}
-	})
+	u.chooseFile(safeFileName(name)+".json", []string{".json"}, func(path string) { u.saveAsTo(path, then) })
+}
+
+// saveAsTo saves the design to the path chosen in Save As and runs then
+// when that worked. An untitled design takes the file's name.
+func (u *UI) saveAsTo(path string, then func()) {
+	if n := u.S.Design().Name; n == "" || n == NewDesign().Name {
+		u.S.SetDesignName(strings.TrimSuffix(filepath.Base(path), filepath.Ext(path)))
+	}
+	if err := u.SaveTo(path); err != nil {
+		dialog.ShowError(err, u.Win)
+		return
+	}
+	if then != nil {
+		then()
+	}
 }
 
 // safeFileName turns a design or variant name into a file name.
@@ -433,12 +443,13 @@ func (u *UI) OfferRecovery() {
 	if json.Unmarshal(meta, &info) != nil {
 		return
 	}
-	where := "an unsaved design"
+	what := fmt.Sprintf("dimerpath did not close cleanly last time. It kept a copy of the unsaved design %q from %s.", info.Design, info.SavedAt.Local().Format("2 Jan 2006 15:04"))
+	then := "Recover opens it as unsaved work; save it where you like. Discard deletes the copy."
 	if info.Path != "" {
-		where = info.Path
+		what = fmt.Sprintf("dimerpath did not close cleanly last time. It kept a copy of %q with the changes not yet saved to %s, from %s.", info.Design, info.Path, info.SavedAt.Local().Format("2 Jan 2006 15:04"))
+		then = "Recover opens it as unsaved changes to that file (Ctrl+S writes them there). Discard deletes the copy; the file keeps its last saved state."
 	}
-	msg := wrapLabel(fmt.Sprintf("dimerpath kept a copy of %q (%s) from %s, when it last ran without closing cleanly. Recover it? You then save it where you like; Discard deletes the copy.",
-		info.Design, where, info.SavedAt.Local().Format("2 Jan 2006 15:04")))
+	msg := wrapLabel(what + "\n\n" + then)
 	dialog.ShowCustomConfirm("Recover unsaved work?", "Recover", "Discard", container.New(&fixedWidth{w: 440}, msg), func(ok bool) {
 		if !ok {
 			u.removeRecovery()
@@ -510,8 +521,13 @@ func (u *UI) withCaution(what string, then func(ExportSettings)) {
 func (u *UI) exportAs(kind string) {
 	p, stale := u.S.Plan()
 	if p == nil || stale {
-		dialog.ShowConfirm("Plan first", fmt.Sprintf("Variant %s has no up-to-date plan to export. Plan it now? (Export again when it is done.)", u.S.Variant().Name), func(ok bool) {
-			if ok {
+		what := "has not been planned"
+		if stale {
+			what = "changed since it was planned"
+		}
+		dialog.ShowConfirm("Plan first", fmt.Sprintf("Variant %s %s. Plan it now? The export goes on when the plan is ready.", u.S.Variant().Name, what), func(ok bool) {
+			if ok && !u.Busy() {
+				u.afterPlan = func() { u.exportAs(kind) }
 				u.StartPlan()
 			}
 		}, u.Win)

@@ -395,7 +395,9 @@ func formatLength(nm float64) string {
 	case nm >= 1:
 		return trimZeros(fmt.Sprintf("%.2f", nm)) + " nm"
 	default:
-		return trimZeros(fmt.Sprintf("%.1f", nm*1000)) + " pm"
+		// Below a nanometre still in nm, as the lattice constants are
+		// quoted (0.384 nm, not 384 pm).
+		return trimZeros(fmt.Sprintf("%.3f", nm)) + " nm"
 	}
 }
 

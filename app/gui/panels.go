@@ -65,9 +65,24 @@ func modeOf(m design.Mode) string {
 func parseNumber(label, s string) (float64, error) {
 	v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
 	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, fmt.Errorf("%s: %q is not a number", label, s)
+		return 0, fmt.Errorf("%s: %s", label, notANumber(s))
 	}
 	return v, nil
+}
+
+// notANumber says why s is not a number, suggesting the decimal point
+// when a comma was typed for it.
+func notANumber(s string) string {
+	t := strings.TrimSpace(s)
+	if t == "" {
+		return "empty; type a number"
+	}
+	if strings.Count(t, ",") == 1 && !strings.Contains(t, ".") {
+		if _, err := strconv.ParseFloat(strings.Replace(t, ",", ".", 1), 64); err == nil {
+			return fmt.Sprintf("%q is not a number: write decimals with a point (%s)", s, strings.Replace(t, ",", ".", 1))
+		}
+	}
+	return fmt.Sprintf("%q is not a number", s)
 }
 
 // parseInt parses a whole number typed into field label.
@@ -467,14 +482,7 @@ func (p *findingsPanel) refresh() {
 	f, stale := p.u.S.Findings()
 	p.list.UnselectAll()
 	p.list.Refresh()
-	errs, warns := 0, 0
-	for _, x := range f {
-		if x.Error {
-			errs++
-		} else {
-			warns++
-		}
-	}
+	errs, warns := countFindings(f)
 	var text string
 	switch {
 	case p.u.S.findState == nil:
@@ -576,13 +584,17 @@ func (u *UI) renameVariant(i int) {
 		}
 		return nil
 	}
-	dialog.ShowForm("Rename variant", "Rename", "Cancel", []*widget.FormItem{widget.NewFormItem("Name", e)}, func(ok bool) {
+	d := dialog.NewForm("Rename variant", "Rename", "Cancel", []*widget.FormItem{widget.NewFormItem("Name", e)}, func(ok bool) {
 		if ok {
 			if err := u.S.RenameVariant(i, e.Text); err != nil {
 				dialog.ShowError(err, u.Win)
 			}
 		}
 	}, u.Win)
+	// Wide enough for a descriptive name ("gap-12-source-As-donors").
+	d.Resize(fyne.NewSize(460, 1))
+	d.Show()
+	u.Win.Canvas().Focus(e)
 }
 
 func (u *UI) deleteVariant(i int) {
@@ -619,6 +631,10 @@ type marksPanel struct {
 	terrMsg  *widget.Label
 	terrForm *fyne.Container
 	fidEmpty *widget.Label
+	name     *widget.Entry
+	nameMsg  *widget.Label
+	field    *widget.Label
+	updating bool
 }
 
 func newMarksPanel(u *UI) *marksPanel {
@@ -702,11 +718,28 @@ func newMarksPanel(u *UI) *marksPanel {
 	terrBox := container.NewBorder(container.NewVBox(heading("Terraces"), mutedLabel("Across a single-height step the dimer rows turn by 90°. Outline a terrace with the Terrace tool (T).")), p.terrForm, nil, nil, p.terrs)
 	split := container.NewVSplit(fidBox, terrBox)
 	split.Offset = 0.45
-	p.content = split
+	p.name = widget.NewEntry()
+	p.name.OnChanged = func(s string) {
+		if !p.updating {
+			showErr(p.nameMsg, p.u.S.SetDesignName(s))
+		}
+	}
+	p.nameMsg = errorLabel()
+	p.field = mutedLabel("")
+	top := container.NewVBox(heading("Design"), widget.NewForm(widget.NewFormItem("Name", p.name)), p.nameMsg, p.field, widget.NewSeparator())
+	p.content = container.NewBorder(top, nil, nil, nil, split)
 	return p
 }
 
 func (p *marksPanel) refresh() {
+	d := p.u.S.Design()
+	p.updating = true
+	if p.name.Text != d.Name && strings.TrimSpace(p.name.Text) != d.Name {
+		p.name.SetText(d.Name)
+	}
+	p.updating = false
+	p.field.SetText(fmt.Sprintf("Field %s x %s, %s, %s. The name is printed on every plan and report.",
+		formatLength(d.Field.WidthNM), formatLength(d.Field.HeightNM), plural(len(d.Terraces), "terrace"), plural(len(d.Variants), "variant")))
 	p.fids.Refresh()
 	p.terrs.Refresh()
 	if len(p.u.S.Design().Fiducials) == 0 {

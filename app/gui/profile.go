@@ -229,7 +229,7 @@ func (e *profileEditor) parse() (planner.Profile, error) {
 		}
 		v, err := parseNumber(f.label, text)
 		if err != nil {
-			bad = append(bad, fmt.Sprintf("%s / %s: %q is not a number", f.group, f.label, text))
+			bad = append(bad, fmt.Sprintf("%s / %s: %s", f.group, f.label, notANumber(text)))
 			continue
 		}
 		*f.f(&p) = v / f.scale

@@ -624,6 +624,21 @@ func (s *Session) setRegion(i int, what string, f func(*design.Region) bool) {
 	s.commit("set "+what+" of "+r.Name, fmt.Sprintf("%s-%d-%d", what, s.variant, i), ChangeRegions)
 }
 
+// SetDesignName renames the design; the name is printed on plans and
+// reports and must not be empty.
+func (s *Session) SetDesignName(name string) error {
+	name = strings.TrimSpace(name)
+	if name == "" {
+		return fmt.Errorf("design name: %w", ErrName)
+	}
+	if name == s.d.Name {
+		return nil
+	}
+	s.d.Name = name
+	s.commit("rename design", "rename-design", ChangeFile)
+	return nil
+}
+
 // --- Tunnel gaps ---
 
 // AddTunnelGap declares that regions a and b of the current variant are

@@ -84,6 +84,7 @@ type UI struct {
 
 	planCancel   context.CancelFunc
 	planStarted  time.Time
+	afterPlan    func() // runs once the running plan is ready (an export waiting for it)
 	checkCancel  context.CancelFunc
 	checkTimer   *time.Timer
 	stopAutosave chan struct{}
@@ -170,7 +171,7 @@ func (u *UI) changed(c Change) {
 		u.variantSelect.Selected = u.S.Variant().Name
 		u.variantSelect.Refresh()
 	}
-	if c&(ChangeFiducials|ChangeTerraces) != 0 {
+	if c&(ChangeFiducials|ChangeTerraces|ChangeFile|ChangeVariants) != 0 {
 		u.marks.refresh()
 	}
 	if c&ChangeTool != 0 {
@@ -217,7 +218,7 @@ func (u *UI) build() {
 	u.tabFindings = container.NewTabItem("Checks", u.findings.content)
 	u.tabPlan = container.NewTabItem("Plan", u.planView.content)
 	u.tabVariants = container.NewTabItem("Variants", u.variants.content)
-	u.tabMarks = container.NewTabItem("Marks", u.marks.content)
+	u.tabMarks = container.NewTabItem("Design", u.marks.content)
 	u.tabs = container.NewAppTabs(u.tabRegions, u.tabFindings, u.tabPlan, u.tabVariants, u.tabMarks)
 
 	u.variantSelect = widget.NewSelect(nil, func(name string) {
@@ -244,7 +245,7 @@ func (u *UI) content() fyne.CanvasObject {
 		widget.NewSeparator(),
 		u.undoButton, u.redoButton,
 		widget.NewSeparator(),
-		widget.NewLabel("Variant"), container.New(&fixedWidth{w: 150}, u.variantSelect),
+		widget.NewLabel("Variant"), container.New(&fixedWidth{w: 200}, u.variantSelect),
 		widget.NewButtonWithIcon("", theme.ContentCopyIcon(), func() { u.S.DuplicateVariant(u.S.VariantIndex()) }),
 		widget.NewSeparator(),
 		widget.NewButtonWithIcon("Check", theme.ConfirmIcon(), u.CheckNow),

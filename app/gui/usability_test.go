@@ -1,12 +1,17 @@
 package gui
 
 import (
+	"context"
+	"path/filepath"
 	"strings"
 	"testing"
 
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/test"
+	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
+
+	"dimerpath/export"
 )
 
 // Tests of what a lab user tripped over in a real session (see the GUI
@@ -74,5 +79,93 @@ func TestLegendNeverCoversTheFittedField(t *testing.T) {
 		if u.View.View() != v {
 			t.Errorf("%v: a legend change moved a view the user had zoomed", size)
 		}
+	}
+}
+
+func TestComparisonFitsItsDialog(t *testing.T) {
+	u, w := newTestUI(t, nil)
+	p := handPlan(u.S)
+	res := []export.VariantResult{
+		{Variant: "A", Plan: p},
+		{Variant: "gate-written-in-FE-mode", Plan: p},
+	}
+	view := comparisonView(res)
+	w.SetContent(view)
+	// The dialog shows it 1000 units wide (showComparison).
+	if got := view.MinSize().Width; got > 1000 {
+		t.Errorf("the comparison needs %.0f units, more than its 1000-unit dialog: text would be cut off", got)
+	}
+	table := view.(*fyne.Container).Objects[0].(*fyne.Container)
+	tl := table.Layout.(*tableLayout)
+	widths, _ := tl.sizes(table.Objects)
+	name := widget.NewLabel("gate-written-in-FE-mode")
+	if widths[0] < name.MinSize().Width-1 {
+		t.Errorf("the variant column is %.0f wide, narrower than the name", widths[0])
+	}
+}
+
+func TestUntitledDesignTakesItsFileName(t *testing.T) {
+	s, err := NewSession(NewDesign(), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	u, _ := newTestUI(t, s)
+	saved := false
+	u.saveAsTo(filepath.Join(t.TempDir(), "set-sensor.json"), func() { saved = true })
+	if !saved || u.S.Design().Name != "set-sensor" || u.S.Dirty() {
+		t.Errorf("after Save As: saved %v, name %q, dirty %v", saved, u.S.Design().Name, u.S.Dirty())
+	}
+	// A named design keeps its name; the Design tab renames it, undoably.
+	u.saveAsTo(filepath.Join(t.TempDir(), "copy.json"), nil)
+	if u.S.Design().Name != "set-sensor" {
+		t.Errorf("a named design was renamed to %q by Save As", u.S.Design().Name)
+	}
+	u.marks.name.CursorColumn = len(u.marks.name.Text)
+	test.Type(u.marks.name, " v2")
+	if u.S.Design().Name != "set-sensor v2" || !u.S.Dirty() {
+		t.Errorf("typing in the Design tab's name: %q, dirty %v", u.S.Design().Name, u.S.Dirty())
+	}
+	u.S.Undo()
+	if u.S.Design().Name != "set-sensor" {
+		t.Errorf("one undo should revert the whole typed name, got %q", u.S.Design().Name)
+	}
+	u.marks.name.SetText("  ")
+	if u.marks.nameMsg.Hidden || u.S.Design().Name != "set-sensor" {
+		t.Error("an empty design name was accepted")
+	}
+}
+
+func TestDecimalCommaIsExplained(t *testing.T) {
+	for _, c := range []struct{ in, want string }{
+		{"2,5", `"2,5" is not a number: write decimals with a point (2.5)`},
+		{"abc", `"abc" is not a number`},
+		{"1,000.5", `"1,000.5" is not a number`},
+		{" ", "empty; type a number"},
+	} {
+		if got := notANumber(c.in); got != c.want {
+			t.Errorf("notANumber(%q) = %q, want %q", c.in, got, c.want)
+		}
+	}
+	u, _ := newTestUI(t, nil)
+	e := u.openProfileEditor()
+	e.entry("ap.current_a").SetText("2,5")
+	e.apply()
+	if e.msg.Hidden || !strings.Contains(e.msg.Text, "write decimals with a point (2.5)") {
+		t.Errorf("profile editor says %q for 2,5", e.msg.Text)
+	}
+}
+
+func TestExportWaitingForAPlanGoesOn(t *testing.T) {
+	u, _ := newTestUI(t, nil)
+	went := 0
+	u.afterPlan = func() { went++ }
+	u.planDone(u.S, handPlan(u.S), "A", u.S.Token(), nil)
+	if went != 1 || u.afterPlan != nil {
+		t.Errorf("after the plan: the waiting export ran %d times, still waiting %v", went, u.afterPlan != nil)
+	}
+	u.afterPlan = func() { went++ }
+	u.planDone(u.S, nil, "A", u.S.Token(), context.Canceled)
+	if went != 1 || u.afterPlan != nil {
+		t.Error("a cancelled plan must drop the waiting export")
 	}
 }
