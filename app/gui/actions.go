@@ -14,6 +14,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 
 	"dimerpath/export"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -177,11 +178,13 @@ func (u *UI) compareVariants() {
 	shown, tok := s.Variant().Name, s.Token()
 	go func() {
 		res := make([]export.VariantResult, len(names))
+		rules := make([]string, len(names))
 		for i, n := range names {
 			frac := 1 / float64(len(names))
 			opt := planner.Options{Seed: seed, Progress: u.progressFunc(fmt.Sprintf("variant %s (%d of %d): ", n, i+1, len(names)), frac, float64(i)*frac)}
 			p, err := buildPlan(ctx, d, n, prof, opt)
 			res[i] = export.VariantResult{Variant: n, Plan: p, Err: err}
+			rules[i] = rulesSummary(ctx, d, n)
 			if ctx.Err() != nil {
 				break
 			}
@@ -204,16 +207,39 @@ func (u *UI) compareVariants() {
 					s.SetPlan(r.Plan, shown, tok)
 				}
 			}
-			u.showComparison(res)
+			u.showComparison(res, rules)
 		})
 	}()
+}
+
+// rulesSummary says how variant fares under the design rules: "passes",
+// "2 errors", "1 warning".
+func rulesSummary(ctx context.Context, d *design.Design, variant string) string {
+	res, err := checkDesign(ctx, d, variant)
+	if err != nil {
+		return "cannot be checked"
+	}
+	errs, warns := countFindings(res.Findings)
+	switch {
+	case errs > 0:
+		return plural(errs, "error")
+	case warns > 0:
+		return plural(warns, "warning")
+	}
+	return "passes"
 }
 
 // comparisonView is the table and charts of a comparison: per variant
 // the write time with its spread, the share spent on registrations, and
 // the dopant yield. The full breakdown is in the exported report.
-func comparisonView(res []export.VariantResult) fyne.CanvasObject {
+//
+// rules, when given, is each variant's design-rule summary, shown in a
+// last column: a fast variant that breaks the rules is no choice.
+func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObject {
 	header := []string{"Variant", "Write time", "P10 – P90", "Registrations", "All windows good", "Devices / perfect"}
+	if rules != nil {
+		header = append(header, "Design rules")
+	}
 	cols := len(header)
 	var cells []fyne.CanvasObject
 	for _, h := range header {
@@ -252,6 +278,13 @@ func comparisonView(res []export.VariantResult) fyne.CanvasObject {
 		for _, t := range []string{r.Variant, formatDuration(p.TotalS), formatDuration(p.P10S) + " – " + formatDuration(p.P90S), reg, all, dev} {
 			cells = append(cells, widget.NewLabel(t))
 		}
+		if rules != nil {
+			l := widget.NewLabel(rules[i])
+			if rules[i] != "passes" {
+				l.Importance = widget.WarningImportance
+			}
+			cells = append(cells, l)
+		}
 		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: formatDuration(p.TotalS), Color: SegmentColor(i)})
 		yieldBars = append(yieldBars, Bar{Label: r.Variant, Value: p.Yield.All, Text: all, Color: colYield})
 	}
@@ -262,10 +295,10 @@ func comparisonView(res []export.VariantResult) fyne.CanvasObject {
 	return container.NewVBox(table, widget.NewSeparator(), charts, widget.NewSeparator(), mutedLabel(planner.Caution))
 }
 
-func (u *UI) showComparison(res []export.VariantResult) {
+func (u *UI) showComparison(res []export.VariantResult, rules []string) {
 	// Scrolls both ways: a long variant name widens the table rather
 	// than being cut off.
-	content := container.NewScroll(comparisonView(res))
+	content := container.NewScroll(comparisonView(res, rules))
 	var d *dialog.CustomDialog
 	report := widget.NewButtonWithIcon("Export report…", theme.DocumentPrintIcon(), func() {
 		u.withCaution("the comparison report", func(es ExportSettings) {

@@ -40,7 +40,7 @@ type ToolInfo struct {
 
 // Tools lists every tool in palette order.
 var Tools = []ToolInfo{
-	{ToolSelect, "Select", 'v', "Click a shape to select it and its region, drag it to move it along the lattice, drag a box from empty space to select regions; Delete removes the shape, Esc selects nothing."},
+	{ToolSelect, "Select", 'v', "Click a shape to select it, drag it to move it; drag on clean H to box regions. Delete removes, Esc deselects."},
 	{ToolPan, "Pan", 'h', "Drag to move the view. Right- or middle-drag pans with any tool; the wheel zooms."},
 	{ToolSite, "Site", 's', "Click or drag to depassivate single H sites."},
 	{ToolDimer, "Dimer", 'd', "Click or drag to depassivate both H sites of each dimer."},

@@ -357,14 +357,14 @@ func (u *UI) refreshHint() {
 	switch s.Tool {
 	case ToolSite, ToolDimer, ToolRect, ToolPolygon, ToolLine:
 		if a := s.Active(); a >= 0 {
-			hint = fmt.Sprintf("Adds to %s (Esc: select nothing, to start a new region). %s", s.Variant().Regions[a].Name, hint)
+			hint = fmt.Sprintf("Adds to %s (Esc for a new region). %s", s.Variant().Regions[a].Name, hint)
 		} else {
 			hint = "Starts a new region. " + hint
 		}
 	case ToolSelect:
 		if i, k := s.SelectedShape(); i >= 0 {
 			r := s.Variant().Regions[i]
-			hint = fmt.Sprintf("Selected: %s %d of %d in %s. Drag it to move it; Delete removes it; Esc selects nothing.", ShapeName(r.Shapes[k]), k+1, len(r.Shapes), r.Name)
+			hint = fmt.Sprintf("Selected %s %d of %d in %s: drag to move, Delete removes, Esc deselects.", ShapeName(r.Shapes[k]), k+1, len(r.Shapes), r.Name)
 		}
 	}
 	u.hintLabel.SetText(hint)

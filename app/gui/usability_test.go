@@ -89,9 +89,12 @@ func TestComparisonFitsItsDialog(t *testing.T) {
 		{Variant: "A", Plan: p},
 		{Variant: "gate-written-in-FE-mode", Plan: p},
 	}
-	view := comparisonView(res)
+	view := comparisonView(res, []string{"passes", "1 error"})
 	w.SetContent(view)
 	// The dialog shows it 1000 units wide (showComparison).
+	if text := texts(view); !strings.Contains(text, "Design rules") || !strings.Contains(text, "1 error") {
+		t.Errorf("the comparison does not say how each variant fares under the rules:\n%s", text)
+	}
 	if got := view.MinSize().Width; got > 1000 {
 		t.Errorf("the comparison needs %.0f units, more than its 1000-unit dialog: text would be cut off", got)
 	}
