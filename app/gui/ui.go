@@ -795,22 +795,32 @@ func (u *UI) showCaution() {
 	d.Show()
 }
 
-func (u *UI) showKeys() {
-	var text string
+// keyHelp lists the keys and mouse gestures: what is pressed, and what
+// it does.
+func keyHelp() [][2]string {
+	var rows [][2]string
 	for _, ti := range Tools {
-		text += fmt.Sprintf("%c\t%s — %s\n", ti.Key-'a'+'A', ti.Name, ti.Hint)
+		rows = append(rows, [2]string{string(ti.Key - 'a' + 'A'), ti.Name + ": " + ti.Hint})
 	}
-	text += "\nWheel\tzoom around the pointer;  + and − zoom, 0 or Home shows the whole field\n" +
-		"Drag\twith the Pan tool, the middle button or the right button: move the view;  arrow keys pan\n" +
-		"Enter / Esc\tfinish / cancel a polygon, line or terrace outline;  Esc otherwise selects nothing\n" +
-		"Select tool\tclick a shape to select it, drag it to move it by whole dimers and rows\n" +
-		"Delete\tremove the selected shape, or the selected regions\n" +
-		"Ctrl+Z\tundo;  Ctrl+Shift+Z or Ctrl+Y redo\n" +
-		"Ctrl+S\tsave;  Ctrl+Shift+S save as;  Ctrl+O open;  Ctrl+N new\n" +
-		"Ctrl+Enter\tplan the variant;  F5 check design rules;  Ctrl+E export the operator's PDF\n"
-	l := widget.NewLabel(text)
-	l.Wrapping = fyne.TextWrapWord
-	dialog.NewCustom("Keyboard and mouse", "Close", container.New(&fixedWidth{w: 700}, container.NewVScroll(l)), u.Win).Show()
+	return append(rows,
+		[2]string{"Wheel", "zoom around the pointer; + and − zoom, 0 or Home shows the whole field"},
+		[2]string{"Drag", "with the Pan tool, the middle or the right button: move the view; the arrow keys pan"},
+		[2]string{"Enter / Esc", "finish / cancel a polygon, line or terrace outline; Esc otherwise selects nothing, so the next stroke starts a new region"},
+		[2]string{"Select tool", "click a shape to select it, drag it to move it by whole dimers and rows"},
+		[2]string{"Delete", "remove the selected shape, or the selected regions"},
+		[2]string{"Ctrl+Z", "undo; Ctrl+Shift+Z or Ctrl+Y redo"},
+		[2]string{"Ctrl+S", "save; Ctrl+Shift+S save as; Ctrl+O open; Ctrl+N new"},
+		[2]string{"Ctrl+Enter", "plan the variant; F5 checks the design rules; Ctrl+E exports the operator's PDF"},
+	)
+}
+
+func (u *UI) showKeys() {
+	form := widget.NewForm()
+	for _, r := range keyHelp() {
+		form.Append(r[0], wrapLabel(r[1]))
+	}
+	body := container.New(&fixedSize{fyne.NewSize(720, min(520, u.Win.Canvas().Size().Height-160))}, container.NewVScroll(form))
+	dialog.NewCustom("Keyboard and mouse", "Close", body, u.Win).Show()
 }
 
 func (u *UI) showAbout() {

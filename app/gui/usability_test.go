@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/test"
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
@@ -170,5 +171,43 @@ func TestExportWaitingForAPlanGoesOn(t *testing.T) {
 	u.planDone(u.S, nil, "A", u.S.Token(), context.Canceled)
 	if went != 1 || u.afterPlan != nil {
 		t.Error("a cancelled plan must drop the waiting export")
+	}
+}
+
+func TestKeyHelpShowsEveryLine(t *testing.T) {
+	u, w := newTestUI(t, nil)
+	u.showKeys()
+	top := w.Canvas().Overlays().Top()
+	if top == nil {
+		t.Fatal("no Keyboard and mouse dialog")
+	}
+	w.Canvas().Capture()
+	var scroll *container.Scroll
+	var find func(o fyne.CanvasObject)
+	find = func(o fyne.CanvasObject) {
+		switch x := o.(type) {
+		case *container.Scroll:
+			scroll = x
+		case *fyne.Container:
+			for _, c := range x.Objects {
+				find(c)
+			}
+		case fyne.Widget:
+			for _, c := range test.WidgetRenderer(x).Objects() {
+				find(c)
+			}
+		}
+	}
+	find(top)
+	if scroll == nil {
+		t.Fatal("no scroll in the dialog")
+	}
+	// The dialog once showed one line of a 20-line list: the scroll must
+	// be tall enough for several.
+	if h := scroll.Size().Height; h < 300 {
+		t.Errorf("the key list is %.0f units tall, want at least 300", h)
+	}
+	if got := texts(scroll.Content); !strings.Contains(got, "Ctrl+Enter") || !strings.Contains(got, "drag it to move it") {
+		t.Errorf("key list lacks entries:\n%s", got)
 	}
 }
