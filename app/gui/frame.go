@@ -31,6 +31,9 @@ type Scene struct {
 	Preview   *Preview
 	// Selected outlines, in field nm.
 	Selected []r2.Rect
+	// SelectedShape is the extent of the selected shape (nm), drawn with
+	// corner handles, or nil.
+	SelectedShape *r2.Rect
 }
 
 // Layer is one region's sites as the view draws them.
@@ -85,8 +88,8 @@ type Renderer struct {
 	pix []uint32
 
 	terr  []int8   // terrace index per pixel, -1 none, -2 outside the field
-	total []uint32 // painted sites per pixel, all layers
-	best  []uint32 // the largest single layer's count per pixel
+	total []uint16 // painted sites per pixel, all layers (saturating)
+	best  []uint16 // the largest single layer's count per pixel
 	owner []uint16 // 1 + index of that layer, 0 for none
 	line  []uint32 // one layer's counts along one pixel row
 
@@ -183,8 +186,8 @@ func (r *Renderer) resize(w, h int) {
 		r.pix = nil
 	}
 	r.terr = make([]int8, n)
-	r.total = make([]uint32, n)
-	r.best = make([]uint32, n)
+	r.total = make([]uint16, n)
+	r.best = make([]uint16, n)
 	r.owner = make([]uint16, n)
 	r.line = make([]uint32, w)
 }
@@ -458,16 +461,17 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 			}
 			for y := y0; y < y1; y++ {
 				terr := r.terr[y*w : y*w+w]
+				// line is all zero here; the pixels [tx0, tx1) are the
+				// ones this row may have counted into, cleared again after
+				// the merge.
 				line := r.line
 				any := false
+				tx0, tx1 := x1, x0
 				if tb.alongOfX {
 					rr := tb.across[y]
 					hi := min(int(rr.hi), setRows)
 					if int(rr.lo) >= hi {
 						continue
-					}
-					for x := x0; x < x1; x++ {
-						line[x] = 0
 					}
 					for row := int(rr.lo); row < hi; row++ {
 						words := L.Sites.Row(t, row)
@@ -479,6 +483,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 						// grows with x on a RowsAlongX terrace.
 						xa := x0 + sort.Search(x1-x0, func(i int) bool { return int(tb.along[x0+i].hi) > first })
 						xb := x0 + sort.Search(x1-x0, func(i int) bool { return int(tb.along[x0+i].lo) >= last })
+						tx0, tx1 = min(tx0, xa), max(tx1, xb)
 						n := len(words) * 64
 						for x := xa; x < xb; x++ {
 							if int(terr[x]) != t {
@@ -507,8 +512,8 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 					if a.lo >= a.hi {
 						continue
 					}
+					tx0, tx1 = x0, x1
 					for x := x0; x < x1; x++ {
-						line[x] = 0
 						if int(terr[x]) != t {
 							continue
 						}
@@ -527,15 +532,17 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 					continue
 				}
 				base := y * w
-				for x := x0; x < x1; x++ {
+				for x := tx0; x < tx1; x++ {
 					c := line[x]
 					if c == 0 {
 						continue
 					}
+					line[x] = 0
+					c = min(c, 0xffff)
 					i := base + x
-					r.total[i] += c
-					if c > r.best[i] {
-						r.best[i] = c
+					r.total[i] = uint16(min(uint32(r.total[i])+c, 0xffff))
+					if uint16(c) > r.best[i] {
+						r.best[i] = uint16(c)
 						r.owner[i] = uint16(li + 1)
 					}
 				}
@@ -589,7 +596,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 				pix[x] = bg.noTerrace
 				continue
 			}
-			lvl := (n*levels + capacity - 1) / capacity
+			lvl := (uint32(n)*levels + capacity - 1) / capacity
 			if lvl > levels {
 				lvl = levels
 			}
@@ -891,6 +898,15 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 		pb.dashed(bx+4, ay-4, bx+4, by+4, 5, 4, colSelect, 256)
 		pb.dashed(bx+4, by+4, ax-4, by+4, 5, 4, colSelect, 256)
 		pb.dashed(ax-4, by+4, ax-4, ay-4, 5, 4, colSelect, 256)
+	}
+	if b := sc.SelectedShape; b != nil && !b.IsEmpty() {
+		ax, ay := v.ToScreen(r2.Point{X: b.X.Lo, Y: b.Y.Hi})
+		bx, by := v.ToScreen(r2.Point{X: b.X.Hi, Y: b.Y.Lo})
+		ax, ay, bx, by = ax-2, ay-2, bx+2, by+2
+		pb.rectOutline(ax, ay, bx, by, 1, colSelect, 256)
+		for _, c := range [4][2]float64{{ax, ay}, {bx, ay}, {ax, by}, {bx, by}} {
+			pb.fillRect(int(c[0])-3, int(c[1])-3, int(c[0])+4, int(c[1])+4, colSelect, 256)
+		}
 	}
 	if p := sc.Preview; p != nil && len(p.Points) > 0 {
 		switch {
