@@ -750,18 +750,24 @@ func anyClear(w []uint64, from, to int, mask uint64) bool {
 		return true
 	}
 	for k := from / 64; k*64 < to; k++ {
-		word := ^w[k] & mask
-		if lo := from - k*64; lo > 0 {
-			word &= ^uint64(0) << uint(lo)
-		}
-		if hi := to - k*64; hi < 64 {
-			word &= (1 << uint(hi)) - 1
-		}
-		if word != 0 {
+		if ^w[k]&mask&rangeMask(k, from, to) != 0 {
 			return true
 		}
 	}
 	return false
+}
+
+// rangeMask returns the bits of word k (indices 64k..64k+63) that lie in
+// [from, to).
+func rangeMask(k, from, to int) uint64 {
+	m := ^uint64(0)
+	if lo := from - k*64; lo > 0 {
+		m <<= uint(lo)
+	}
+	if hi := to - k*64; hi < 64 {
+		m &= (1 << uint(hi)) - 1
+	}
+	return m
 }
 
 // dimersIn returns the dimers [lo, hi) whose along coordinate d·DimerPitch
@@ -804,12 +810,7 @@ func (ck *coverageCheck) classifyWords(row *rowLine, active []*piece, d0, d1 int
 		if cleared {
 			target = ^word & parity // unpainted sites: overcleared candidates
 		}
-		if lo := from - k*64; lo > 0 {
-			target &= ^uint64(0) << uint(lo)
-		}
-		if hi := to - k*64; hi < 64 {
-			target &= (1 << uint(hi)) - 1
-		}
+		target &= rangeMask(k, from, to)
 		for target != 0 {
 			b := trailingZeros(target)
 			target &= target - 1
@@ -1402,14 +1403,7 @@ func (g *terraceGrid) holds(surf *lattice.Surface, r siteRect) bool {
 func anyParity(w []uint64, from, to int, parity uint64) bool {
 	to = min(to, len(w)*64)
 	for k := from / 64; k*64 < to; k++ {
-		word := w[k] & parity
-		if lo := from - k*64; lo > 0 {
-			word &= ^uint64(0) << uint(lo)
-		}
-		if hi := to - k*64; hi < 64 {
-			word &= (1 << uint(hi)) - 1
-		}
-		if word != 0 {
+		if w[k]&parity&rangeMask(k, from, to) != 0 {
 			return true
 		}
 	}
