@@ -30,3 +30,17 @@ func (t labTheme) Size(n fyne.ThemeSizeName) float32 {
 	}
 	return t.Theme.Size(n)
 }
+
+// compactTheme packs the tool palette tighter, so the tools and the
+// options of the array tool fit a 1280 x 800 screen without scrolling.
+type compactTheme struct{ fyne.Theme }
+
+func (t compactTheme) Size(n fyne.ThemeSizeName) float32 {
+	switch n {
+	case theme.SizeNamePadding:
+		return 2
+	case theme.SizeNameInnerPadding:
+		return 4
+	}
+	return t.Theme.Size(n)
+}
