@@ -110,8 +110,11 @@ func runOrder(env Env, args []string, fl orderFlags) int {
 		return fail("%v", err)
 	}
 	opt := route.Options{Budget: fl.budget, Seed: fl.seed, MaxKicks: fl.kicks}
-	if fl.kicks > 0 {
+	switch {
+	case fl.kicks > 0:
 		opt.Budget = 0
+	case fl.budget == route.DefaultBudget:
+		opt.Budget = 0 // the default: stop early once converged
 	}
 	clearStatus := func() {}
 	if f, ok := env.Stderr.(*os.File); ok && isTerminal(f) {

@@ -2,7 +2,6 @@ package design
 
 import (
 	"fmt"
-	"math"
 	"slices"
 	"strings"
 
@@ -98,7 +97,7 @@ func Check(d *Design, variant string) ([]Finding, error) {
 // grid index over the rectangles of their site runs, so the cost grows
 // with the regions' outlines, not their site counts.
 func (l *Layout) Check() []Finding {
-	c := checker{l: l, index: make([]*cellIndex, len(l.Regions))}
+	c := checker{l: l, index: make([]*lattice.CellIndex, len(l.Regions))}
 	c.windowLattice()
 	c.windowSpacing()
 	c.feKeepOut()
@@ -110,7 +109,7 @@ func (l *Layout) Check() []Finding {
 
 type checker struct {
 	l        *Layout
-	index    []*cellIndex
+	index    []*lattice.CellIndex
 	findings []Finding
 	counts   map[string]int
 }
@@ -128,9 +127,9 @@ func (c *checker) add(rule string, sev Severity, at r2.Point, msg string, region
 	}
 }
 
-func (c *checker) cells(i int) *cellIndex {
+func (c *checker) cells(i int) *lattice.CellIndex {
 	if c.index[i] == nil {
-		c.index[i] = newCellIndex(c.l.Surface, c.l.Regions[i].Sites)
+		c.index[i] = lattice.NewCellIndex(c.l.Surface, c.l.Regions[i].Sites)
 	}
 	return c.index[i]
 }
@@ -329,7 +328,7 @@ func (c *checker) feKeepOut() {
 	}
 	for _, f := range fe {
 		for _, a := range ap {
-			d, at, ok := c.cells(f).gap(c.cells(a), keep)
+			d, at, ok := c.cells(f).GapWithin(c.cells(a), keep)
 			if ok && d < keep {
 				c.add(RuleFEKeepOut, SeverityError, at, fmt.Sprintf("field-emission region %q comes %.2f nm from atomic-precision region %q; keep at least %g nm", c.name(f), d, c.name(a), keep), c.regionNames(f, a)...)
 			}
@@ -437,7 +436,7 @@ func (c *checker) floating() {
 			if c.l.Regions[j].Sites.IsEmpty() || find(i) == find(j) {
 				continue
 			}
-			if _, _, ok := c.cells(i).gap(c.cells(j), TouchNM); ok {
+			if _, _, ok := c.cells(i).GapWithin(c.cells(j), TouchNM); ok {
 				union(i, j)
 			}
 		}
@@ -502,7 +501,7 @@ func (c *checker) tunnelGaps() {
 			continue
 		}
 		limit := 2*hi + 10
-		d, at, ok := c.cells(a).gap(c.cells(b), limit)
+		d, at, ok := c.cells(a).GapWithin(c.cells(b), limit)
 		rows := d / lattice.RowSpacing
 		switch {
 		case !ok:
@@ -520,17 +519,8 @@ func (c *checker) tunnelGaps() {
 
 // GapNM returns the least distance in nm between the site cells of two
 // laid-out regions (0 when they touch or overlap), or +Inf when either
-// is empty. It is what the tunnel-gap rule measures.
+// is empty. It is what the tunnel-gap rule measures (lattice.CellIndex).
 func (l *Layout) GapNM(a, b *RegionLayout) float64 {
-	ia, ib := newCellIndex(l.Surface, a.Sites), newCellIndex(l.Surface, b.Sites)
-	if ia.bounds.IsEmpty() || ib.bounds.IsEmpty() {
-		return math.Inf(1)
-	}
-	// Widen the search until it finds the nearest cells: each round
-	// looks only at grid cells within the current limit.
-	for limit := boundsGap(ia, ib) + 1; ; limit *= 2 {
-		if d, _, ok := ia.gap(ib, limit); ok {
-			return d
-		}
-	}
+	d, _ := lattice.NewCellIndex(l.Surface, a.Sites).Gap(lattice.NewCellIndex(l.Surface, b.Sites))
+	return d
 }

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"strconv"
 	"strings"
 )
@@ -87,6 +88,10 @@ func ReadCSV(r io.Reader, file string, strokes bool) ([]Item, error) {
 			v, err := strconv.ParseFloat(f, 64)
 			if err != nil || !finite(v) {
 				return nil, &CSVError{File: file, Line: line, Field: names[i], Value: f, Msg: "not a finite number"}
+			}
+			if math.Abs(v) > MaxCoordinate {
+				return nil, &CSVError{File: file, Line: line, Field: names[i], Value: f,
+					Msg: fmt.Sprintf("magnitude above %g", MaxCoordinate)}
 			}
 			vals[i] = v
 		}

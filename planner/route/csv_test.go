@@ -57,6 +57,7 @@ func TestReadCSVErrors(t *testing.T) {
 		{"points with flag", "1,2\n", true, 1, "", "leave out --strokes"},
 		{"header late", "1,2\nx,y\n", false, 2, "x", "not a finite number"},
 		{"empty field", "1,\n", false, 1, "y", "not a finite number"},
+		{"huge", "1,2\n3,-4e300\n", false, 2, "y", "magnitude above 1e+15"},
 		{"bad header width", "x,y,z\n1,2\n", false, 1, "", "header has 3 fields"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
@@ -76,6 +77,7 @@ func FuzzReadCSV(f *testing.F) {
 	f.Add("x,y\n1,2\n3,4\n", false)
 	f.Add("# strokes\nx1,y1,x2,y2\n0,0,1,1\n2,2,3,1e3\n", true)
 	f.Add("1,2\n\n,\n", false)
+	f.Add("1e16,2\n", false)
 	f.Fuzz(func(t *testing.T, s string, strokes bool) {
 		items, err := route.ReadCSV(strings.NewReader(s), "fuzz.csv", strokes)
 		if err != nil {

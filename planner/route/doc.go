@@ -32,8 +32,9 @@
 //     either way round (Or 1976) and sequential 3-opt moves, the depth-3
 //     step of Lin & Kernighan 1973; all searched over the neighbour lists
 //     with the gain criterion. The tour is an array with a position index;
-//     a reversal turns the shorter side. Above 100,000 nodes a reversal is
-//     capped at 50,000 positions and the 3-opt moves are off.
+//     a reversal turns the shorter side. Above 50,000 nodes the nodes are
+//     renumbered along a Hilbert curve (cache locality); above 100,000 a
+//     reversal is capped at 50,000 positions.
 //   - Improvement until the budget is spent: segment-local double-bridge
 //     kicks (Martin, Otto & Felten 1991): four edges cut close together,
 //     X B C D reconnected as X D C B (or, for half the kicks, X C B D)
@@ -46,7 +47,8 @@
 //     chosen at once by dynamic programming along the tour.
 //   - Groups are ordered greedily: of the groups whose predecessors are all
 //     written, the one with an item nearest the tip goes next, solved as an
-//     open path from where the last one ended.
+//     open path from where the last one ended (the last group of a closed
+//     problem as a path back to the start).
 //   - One-way strokes: a reversal is allowed only if it leaves every
 //     one-way stroke the same way round; the tour starts from the shorter
 //     of the greedy tour (with backward one-way strokes turned) and the

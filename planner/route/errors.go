@@ -9,6 +9,9 @@ import (
 var (
 	// ErrNotFinite marks a coordinate, speed or time that is NaN or infinite.
 	ErrNotFinite = errors.New("not a finite number")
+	// ErrRange marks a coordinate too large to square safely (see
+	// MaxCoordinate).
+	ErrRange = errors.New("out of range")
 	// ErrNegative marks a speed or time below zero.
 	ErrNegative = errors.New("must not be negative")
 	// ErrGroup marks a group list that does not match the items.
@@ -18,6 +21,10 @@ var (
 	// ErrTooMany marks a problem too large for the engine's int32 indices.
 	ErrTooMany = errors.New("too many items")
 )
+
+// MaxCoordinate bounds the magnitude of every coordinate, so that
+// squared distances cannot overflow.
+const MaxCoordinate = 1e15
 
 // MaxItems is the largest number of items Solve accepts.
 const MaxItems = 1 << 28

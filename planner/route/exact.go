@@ -10,7 +10,10 @@ var exactMax = 10
 // over subsets (Held & Karp 1962, "A dynamic programming approach to
 // sequencing problems", J. SIAM 10(1); Bellman 1962), with each stroke's
 // direction as part of the state: O(2^n n^2) time and O(2^n n) memory.
-func solveExact(items []Item, start *Point, closed bool) (order []int, reversed []bool) {
+//
+// With end set (and closed false) the path must finish there: its last
+// move, from the last item to end, is counted.
+func solveExact(items []Item, start, end *Point, closed bool) (order []int, reversed []bool) {
 	n := len(items)
 	if n == 0 {
 		return nil, nil
@@ -120,6 +123,8 @@ func solveExact(items []Item, start *Point, closed bool) (order []int, reversed 
 	order = make([]int, 0, n)
 	reversed = make([]bool, 0, n)
 	switch {
+	case end != nil:
+		run(-1, 0, end)
 	case !closed:
 		run(-1, 0, nil)
 	case start != nil:

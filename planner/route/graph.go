@@ -21,13 +21,16 @@ type graph struct {
 	end     []uint8 // 0: the item's A end, 1: its B end
 	dummy   int32   // -1 if none
 	start   int32   // -1 if none
+	finish  int32   // the end node of a path with a fixed end, -1 if none
 	oneWay  int     // number of one-way fixed edges
 	real    int     // number of nodes that are not the dummy
 }
 
 // newGraph builds the node model of items, with an optional start; open
-// adds the dummy. The dummy, when present, is the last node.
-func newGraph(items []Item, start *Point, open bool) *graph {
+// adds the dummy. The dummy, when present, is the last node. An end
+// (with a start, and not open) is a node tied to the start by a one-way
+// fixed edge (end, start): the tour then runs start, items, end.
+func newGraph(items []Item, start, end *Point, open bool) *graph {
 	n := 0
 	for _, it := range items {
 		if it.IsPoint() {
@@ -39,6 +42,9 @@ func newGraph(items []Item, start *Point, open bool) *graph {
 	if start != nil {
 		n++
 	}
+	if end != nil {
+		n++
+	}
 	if open {
 		n++
 	}
@@ -46,7 +52,7 @@ func newGraph(items []Item, start *Point, open bool) *graph {
 		x: make([]float64, 0, n), y: make([]float64, 0, n),
 		partner: make([]int32, 0, n), tail: make([]bool, 0, n),
 		item: make([]int32, 0, n), end: make([]uint8, 0, n),
-		dummy: -1, start: -1,
+		dummy: -1, start: -1, finish: -1,
 	}
 	add := func(p Point, item int32, end uint8) int32 {
 		g.x = append(g.x, p.X)
@@ -71,6 +77,13 @@ func newGraph(items []Item, start *Point, open bool) *graph {
 	}
 	if start != nil {
 		g.start = add(*start, -1, 0)
+		if end != nil && !open {
+			e := add(*end, -1, 0)
+			g.finish = e
+			g.partner[e], g.partner[g.start] = g.start, e
+			g.tail[e] = true
+			g.oneWay++
+		}
 	}
 	g.real = len(g.x)
 	if open {
@@ -138,7 +151,7 @@ func (g *graph) spatiallyOrdered() *graph {
 	h := &graph{
 		x: make([]float64, n), y: make([]float64, n), partner: make([]int32, n),
 		tail: make([]bool, n), item: make([]int32, n), end: make([]uint8, n),
-		dummy: g.dummy, start: -1, oneWay: g.oneWay, real: g.real,
+		dummy: g.dummy, start: -1, finish: -1, oneWay: g.oneWay, real: g.real,
 	}
 	for i, o := range old {
 		h.x[i], h.y[i], h.tail[i], h.item[i], h.end[i] = g.x[o], g.y[o], g.tail[o], g.item[o], g.end[o]
@@ -149,6 +162,9 @@ func (g *graph) spatiallyOrdered() *graph {
 	}
 	if g.start >= 0 {
 		h.start = nw[g.start]
+	}
+	if g.finish >= 0 {
+		h.finish = nw[g.finish]
 	}
 	return h
 }

@@ -48,6 +48,7 @@ func greedyTour(g *graph, nb *neighbours) []int32 {
 	full := func(v int32) bool {
 		return deg[v] >= 2 || (v == g.start && g.dummy >= 0 && deg[v] >= 1)
 	}
+	var edges []cand
 	fragments := g.real
 	for v := range int32(g.real) {
 		if p := g.partner[v]; p > v && p != g.dummy {
@@ -55,23 +56,38 @@ func greedyTour(g *graph, nb *neighbours) []int32 {
 		}
 	}
 
-	// First round on the full neighbour lists.
-	var edges []cand
-	for v := range int32(g.real) {
-		ids, ds := nb.list(v)
-		for j, u := range ids {
-			if u < 0 {
-				break
+	// First round on the full neighbour lists, each edge once: counted
+	// first so that the slice is allocated once (it is the largest
+	// temporary at 10^6 nodes).
+	count := 0
+	for pass := range 2 {
+		var edges0 []cand
+		if pass == 1 {
+			edges0 = make([]cand, 0, count)
+		}
+		for v := range int32(g.real) {
+			ids, ds := nb.list(v)
+			for j, u := range ids {
+				if u < 0 {
+					break
+				}
+				if u < v && contains(nb, u, v) {
+					continue // listed from u's side
+				}
+				if pass == 0 {
+					count++
+				} else {
+					edges0 = append(edges0, cand{u: v, v: u, d: ds[j]})
+				}
 			}
-			if u < v && contains(nb, u, v) {
-				continue // listed from u's side
-			}
-			edges = append(edges, cand{u: v, v: u, d: ds[j]})
+		}
+		if pass == 1 {
+			edges = edges0
 		}
 	}
 	take := func(edges []cand) {
-		sortCands(edges)
-		for _, e := range edges {
+		for _, k := range sortedOrder(edges) {
+			e := edges[k]
 			if fragments <= 1 {
 				return
 			}
@@ -157,14 +173,19 @@ type cand struct {
 	d    float64
 }
 
-// sortCands sorts edges by length, ties in input order: a stable LSD
-// radix sort on the float32 bit pattern of the length (non-negative
-// floats order as their bits), O(n).
-func sortCands(edges []cand) {
+// sortedOrder returns the indices of edges by length, ties in input
+// order: a stable LSD radix sort on the float32 bit pattern of the
+// length (non-negative floats order as their bits), O(n), without
+// moving the edges themselves.
+func sortedOrder(edges []cand) []uint32 {
 	n := len(edges)
+	order := make([]uint32, n)
 	if n < 256 {
-		slices.SortStableFunc(edges, func(a, b cand) int { return cmp.Compare(a.d, b.d) })
-		return
+		for i := range order {
+			order[i] = uint32(i)
+		}
+		slices.SortStableFunc(order, func(a, b uint32) int { return cmp.Compare(edges[a].d, edges[b].d) })
+		return order
 	}
 	keys := make([]uint64, n)
 	for i, e := range edges {
@@ -189,9 +210,8 @@ func sortCands(edges []cand) {
 		}
 		keys, tmp = tmp, keys
 	}
-	sorted := make([]cand, n)
 	for i, k := range keys {
-		sorted[i] = edges[uint32(k)]
+		order[i] = uint32(k)
 	}
-	copy(edges, sorted)
+	return order
 }

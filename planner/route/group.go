@@ -6,10 +6,11 @@ import (
 	"slices"
 )
 
-// subSolver orders one group's items from start (nil: anywhere); share
-// is the group's part of what is left of the budget. It returns indices
-// into items.
-type subSolver func(items []Item, start *Point, closed bool, share float64) ([]int, []bool, error)
+// subSolver orders one group's items from start (nil: anywhere) to end
+// (nil: anywhere; only for open paths from a start); share is the
+// group's part of what is left of the budget. It returns indices into
+// items.
+type subSolver func(items []Item, start, end *Point, closed bool, share float64) ([]int, []bool, error)
 
 // groupDAG is the precedence structure between the groups of a problem.
 type groupDAG struct {
@@ -89,21 +90,23 @@ func groupOrderCheck(p Problem) ([]int, error) {
 // predecessors are all written, take the one with an item end nearest
 // to where the tip is (the lowest-numbered first, when there is no start
 // yet), order it as an open path from there, and go on from where it
-// ends. A closed problem returns to its start at the end. If sub fails
+// ends. If sub fails
 // (on cancellation), the groups not yet ordered follow in input order
 // and the error is returned with the complete ordering, or with nil if
-// the failing group had no ordering.
+// the failing group had no ordering. The last group of a closed problem
+// is solved as a path from where the tip is to the start (or the first
+// item's entry), so that the way home is planned with it.
 func solveGroups(p Problem, sub subSolver) ([]int, []bool, error) {
 	if p.Group == nil {
-		return sub(p.Items, p.Start, p.Closed, 1)
+		return sub(p.Items, p.Start, nil, p.Closed, 1)
 	}
 	d := newGroupDAG(p)
 	indeg := slices.Clone(d.indeg)
 	taken := make([]bool, len(d.ids))
-	var cur *Point
+	var cur, home *Point
 	if p.Start != nil {
 		st := *p.Start
-		cur = &st
+		cur, home = &st, &st
 	}
 	order := make([]int, 0, len(p.Items))
 	rev := make([]bool, 0, len(p.Items))
@@ -128,7 +131,12 @@ func solveGroups(p Problem, sub subSolver) ([]int, []bool, error) {
 			items[k] = p.Items[i]
 		}
 		closed := p.Closed && len(d.ids) == 1
-		o, r, err := sub(items, cur, closed, float64(len(idx))/float64(left))
+		// The last group of a closed problem heads for home.
+		var end *Point
+		if p.Closed && len(d.ids) > 1 && left == len(idx) {
+			end = home
+		}
+		o, r, err := sub(items, cur, end, closed, float64(len(idx))/float64(left))
 		left -= len(idx)
 		if o == nil && len(idx) > 0 {
 			return nil, nil, err
@@ -137,6 +145,14 @@ func solveGroups(p Problem, sub subSolver) ([]int, []bool, error) {
 		for k, j := range o {
 			order = append(order, idx[j])
 			rev = append(rev, r[k])
+		}
+		if home == nil && len(order) > 0 {
+			it := p.Items[order[0]]
+			h := it.A
+			if rev[0] {
+				h = it.B
+			}
+			home = &h
 		}
 		if len(o) > 0 {
 			last := p.Items[idx[o[len(o)-1]]]

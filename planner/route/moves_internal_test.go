@@ -1,9 +1,11 @@
 package route
 
 import (
+	"context"
 	"math"
 	"math/rand/v2"
 	"testing"
+	"time"
 )
 
 // TestMovesKeepTour applies the best move of every kind from random
@@ -29,7 +31,7 @@ func TestMovesKeepTour(t *testing.T) {
 		if trial%3 == 0 {
 			start = &Point{X: 50, Y: 50}
 		}
-		g := newGraph(items, start, trial%4 < 2)
+		g := newGraph(items, start, nil, trial%4 < 2)
 		nb := buildNeighbours(g, 8)
 		// A random tour that keeps the fixed edges: items in random order.
 		order := r.Perm(n)
@@ -104,7 +106,7 @@ func TestOrientUnits(t *testing.T) {
 		if trial%2 == 0 {
 			start = &Point{X: 5, Y: 5}
 		}
-		g := newGraph(items, start, trial%3 != 0)
+		g := newGraph(items, start, nil, trial%3 != 0)
 		order := r.Perm(n)
 		rev := make([]bool, n)
 		for i := range rev {
@@ -155,7 +157,7 @@ func TestKickKeepsTour(t *testing.T) {
 			}
 			items[i] = Item{A: p, B: q}
 		}
-		g := newGraph(items, nil, trial%3 == 0)
+		g := newGraph(items, nil, nil, trial%3 == 0)
 		nb := buildNeighbours(g, 8)
 		s := newSolver(g, nb, g.tourFromOrder(r.Perm(n), make([]bool, n)))
 		s.or3 = true
@@ -175,6 +177,86 @@ func TestKickKeepsTour(t *testing.T) {
 					t.Fatal("fixed edge cut")
 				}
 			}
+		}
+	}
+}
+
+// TestFixedEnd checks paths that must finish at a given point (the last
+// group of a closed problem) against brute force, through the exact
+// solver and through the heuristic.
+func TestFixedEnd(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 5))
+	for trial := range 60 {
+		n := 3 + r.IntN(5)
+		items := make([]Item, n)
+		for i := range items {
+			p := Point{X: r.Float64() * 10, Y: r.Float64() * 10}
+			q := p
+			if r.IntN(2) == 0 {
+				q = Point{X: p.X + r.Float64()*4 - 2, Y: p.Y + r.Float64()*4 - 2}
+			}
+			items[i] = Item{A: p, B: q, OneWay: r.IntN(6) == 0}
+		}
+		start, end := Point{X: -1, Y: 5}, Point{X: 11, Y: r.Float64() * 10}
+		cost := func(order []int, rev []bool) float64 {
+			cur, sum := start, 0.0
+			for k, i := range order {
+				in, out := items[i].A, items[i].B
+				if rev[k] {
+					in, out = out, in
+				}
+				sum += dist(cur, in)
+				cur = out
+			}
+			return sum + dist(cur, end)
+		}
+		// Brute force over orders and directions.
+		best := math.Inf(1)
+		perm := make([]int, n)
+		for i := range perm {
+			perm[i] = i
+		}
+		var rec func(k int)
+		rec = func(k int) {
+			if k == n {
+				for mask := range 1 << n {
+					rev := make([]bool, n)
+					ok := true
+					for j, i := range perm {
+						rev[j] = mask&(1<<j) != 0
+						if rev[j] && (items[i].IsPoint() || items[i].OneWay) {
+							ok = false
+						}
+					}
+					if ok {
+						best = min(best, cost(perm, rev))
+					}
+				}
+				return
+			}
+			for i := k; i < n; i++ {
+				perm[k], perm[i] = perm[i], perm[k]
+				rec(k + 1)
+				perm[k], perm[i] = perm[i], perm[k]
+			}
+		}
+		rec(0)
+		o, rv := solveExact(items, &start, &end, false)
+		if got := cost(o, rv); math.Abs(got-best) > 1e-9 {
+			t.Fatalf("trial %d: exact with end %v, brute force %v", trial, got, best)
+		}
+		c := newControl(context.Background(), Problem{Items: items}, Options{MaxKicks: 300})
+		o, rv, err := c.heuristic(items, &start, &end, false, time.Time{}, 300)
+		if err != nil || len(o) != n {
+			t.Fatalf("trial %d: heuristic %v, %d items", trial, err, len(o))
+		}
+		for k, i := range o {
+			if rv[k] && items[i].OneWay {
+				t.Fatalf("trial %d: one-way item reversed", trial)
+			}
+		}
+		if got := cost(o, rv); got > best+1e-9 {
+			t.Errorf("trial %d: heuristic with end %v, brute force %v", trial, got, best)
 		}
 	}
 }

@@ -8,7 +8,7 @@ func nearestOrder(items []Item, start *Point) ([]int, []bool) {
 	if n == 0 {
 		return nil, nil
 	}
-	g := newGraph(items, nil, false)
+	g := newGraph(items, nil, nil, false)
 	// A one-way stroke may only be entered at its A end.
 	idx := make([]int32, 0, g.real)
 	inTree := make([]bool, g.real)

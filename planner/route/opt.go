@@ -111,9 +111,6 @@ func (s *solver) bestOrOpt(v int32, best *move) {
 		for l := 1; l <= s.orMax && int32(l)+3 <= n; l++ {
 			if l > 1 {
 				e = s.next(e, dir)
-				if e == g.dummy && false {
-					break
-				}
 			}
 			first, last := v, e
 			if dir == 1 {

@@ -24,14 +24,22 @@ func (p Problem) Validate() error {
 			if !finite(c.v) {
 				return &InputError{Field: fmt.Sprintf("Items[%d].%s", i, c.name), Value: fmtFloat(c.v), Err: ErrNotFinite}
 			}
+			if math.Abs(c.v) > MaxCoordinate {
+				return &InputError{Field: fmt.Sprintf("Items[%d].%s", i, c.name), Value: fmtFloat(c.v), Err: ErrRange}
+			}
 		}
 	}
 	if p.Start != nil {
-		if !finite(p.Start.X) {
-			return &InputError{Field: "Start.X", Value: fmtFloat(p.Start.X), Err: ErrNotFinite}
-		}
-		if !finite(p.Start.Y) {
-			return &InputError{Field: "Start.Y", Value: fmtFloat(p.Start.Y), Err: ErrNotFinite}
+		for _, c := range [...]struct {
+			name string
+			v    float64
+		}{{"Start.X", p.Start.X}, {"Start.Y", p.Start.Y}} {
+			if !finite(c.v) {
+				return &InputError{Field: c.name, Value: fmtFloat(c.v), Err: ErrNotFinite}
+			}
+			if math.Abs(c.v) > MaxCoordinate {
+				return &InputError{Field: c.name, Value: fmtFloat(c.v), Err: ErrRange}
+			}
 		}
 	}
 	for _, c := range [...]struct {

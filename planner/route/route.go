@@ -44,14 +44,15 @@ type Problem struct {
 // Options control a solve.
 type Options struct {
 	// Budget bounds the wall-clock time of the Solve call, counted from
-	// its start; 0 takes DefaultBudget unless MaxKicks is set. The search
-	// stops sooner when it has converged (no kick has helped for
-	// max(10000, 50 n) kicks, n nodes), which small problems do fast. The
-	// construction and the first local optimum always complete, so a
-	// large problem may take longer than a short budget (about 5 s for
-	// 10^6 points). A run bounded by wall-clock time depends on the
-	// machine's speed; set MaxKicks for a result that depends on Seed
-	// alone.
+	// its start. The construction and the first local optimum always
+	// complete, so a large problem may take longer than a short budget
+	// (about 4-6 s for 10^6 points). 0 takes DefaultBudget unless MaxKicks
+	// is set, and then the search also stops as soon as it has converged
+	// (no kick has helped for max(10000, 50 n) kicks, n nodes, nor for as
+	// many kicks as came before the last that did), which small problems
+	// do in a fraction of a second; a Budget given explicitly is used to
+	// the end. A run bounded by wall-clock time depends on the machine's
+	// speed; set MaxKicks for a result that depends on Seed alone.
 	Budget time.Duration
 	// MaxKicks, when > 0, bounds the improvement phase by a count of
 	// perturbations instead (shared among groups by size), making the
@@ -154,7 +155,7 @@ func Nearest(p Problem) (Solution, error) {
 	if err := p.Validate(); err != nil {
 		return Solution{}, err
 	}
-	order, rev, _ := solveGroups(p, func(items []Item, start *Point, closed bool, share float64) ([]int, []bool, error) {
+	order, rev, _ := solveGroups(p, func(items []Item, start, _ *Point, closed bool, share float64) ([]int, []bool, error) {
 		o, r := nearestOrder(items, start)
 		return o, r, nil
 	})

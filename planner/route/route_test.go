@@ -215,6 +215,8 @@ func TestValidate(t *testing.T) {
 	}{
 		{"nan x", route.Problem{Items: []route.Item{pt, {A: route.Point{X: nan}}}}, "Items[1].A.X", route.ErrNotFinite},
 		{"inf start", route.Problem{Items: []route.Item{pt}, Start: &route.Point{Y: math.Inf(1)}}, "Start.Y", route.ErrNotFinite},
+		{"huge", route.Problem{Items: []route.Item{pt, {A: route.Point{X: 1, Y: 2}, B: route.Point{X: 1, Y: -1e200}}}}, "Items[1].B.Y", route.ErrRange},
+		{"huge start", route.Problem{Items: []route.Item{pt}, Start: &route.Point{X: 2e15}}, "Start.X", route.ErrRange},
 		{"negative speed", route.Problem{Items: []route.Item{pt}, MoveSpeed: -1}, "MoveSpeed", route.ErrNegative},
 		{"negative settle", route.Problem{Items: []route.Item{pt}, SettleS: -1}, "SettleS", route.ErrNegative},
 		{"group length", route.Problem{Items: []route.Item{pt, pt}, Group: []int{0}}, "Group", route.ErrGroup},
@@ -237,10 +239,12 @@ func TestValidate(t *testing.T) {
 // TestGroups checks contiguity and precedence on random grouped problems
 // of points, reversible and one-way strokes.
 func TestGroups(t *testing.T) {
-	for _, n := range []int{5, 40, 400, 3000} {
-		t.Run(fmt.Sprint(n), func(t *testing.T) {
+	for _, n := range []int{5, 40, 400, 3000, -40, -3000} {
+		closed := n < 0
+		n = max(n, -n)
+		t.Run(fmt.Sprintf("n=%d/closed=%v", n, closed), func(t *testing.T) {
 			r := rand.New(rand.NewPCG(uint64(n), 9))
-			p := route.Problem{Items: randomItems(r, n, true, true), Group: make([]int, n)}
+			p := route.Problem{Items: randomItems(r, n, true, true), Group: make([]int, n), Closed: closed}
 			for i := range p.Group {
 				p.Group[i] = r.IntN(5) * 10
 			}

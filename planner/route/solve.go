@@ -15,6 +15,7 @@ type control struct {
 	seed     int64
 	progress func(Progress)
 	lastProg time.Time
+	converge bool // stop when the search has converged (default budget)
 }
 
 func newControl(ctx context.Context, p Problem, opt Options) *control {
@@ -23,6 +24,7 @@ func newControl(ctx context.Context, p Problem, opt Options) *control {
 	budget := opt.Budget
 	if budget == 0 && opt.MaxKicks <= 0 {
 		budget = DefaultBudget
+		c.converge = true
 	}
 	if budget > 0 {
 		c.deadline = c.begin.Add(budget)
@@ -41,12 +43,12 @@ func (c *control) report(phase string, length, fraction float64) {
 
 // solve orders one group's items: exactly when there are few, else by
 // the heuristic. share is the group's part of the remaining budget.
-func (c *control) solve(items []Item, start *Point, closed bool, share float64) ([]int, []bool, error) {
+func (c *control) solve(items []Item, start, end *Point, closed bool, share float64) ([]int, []bool, error) {
 	if err := c.ctx.Err(); err != nil {
 		return nil, nil, err
 	}
 	if len(items) <= exactMax {
-		o, r := solveExact(items, start, closed)
+		o, r := solveExact(items, start, end, closed)
 		return o, r, nil
 	}
 	deadline := c.deadline
@@ -58,7 +60,7 @@ func (c *control) solve(items []Item, start *Point, closed bool, share float64) 
 	if c.kicks > 0 {
 		kicks = max(1, int(float64(c.kicks)*float64(len(items))/float64(max(c.items, 1))))
 	}
-	return c.heuristic(items, start, closed, deadline, kicks)
+	return c.heuristic(items, start, end, closed, deadline, kicks)
 }
 
 // kickSegMax bounds the three segments a kick moves, in nodes. Measured
@@ -66,8 +68,11 @@ func (c *control) solve(items []Item, start *Point, closed bool, share float64) 
 // worse, 100-1000 alike within the noise, 300 a little ahead.
 var kickSegMax int32 = 300
 
-func (c *control) heuristic(items []Item, start *Point, closed bool, deadline time.Time, kicks int) ([]int, []bool, error) {
-	g := newGraph(items, start, !closed)
+func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadline time.Time, kicks int) ([]int, []bool, error) {
+	if end != nil && start == nil {
+		end = nil // an end needs a start to tie to
+	}
+	g := newGraph(items, start, end, !closed && end == nil)
 	if g.n() > spatialOrderMin {
 		g = g.spatiallyOrdered()
 	}
@@ -75,7 +80,6 @@ func (c *control) heuristic(items []Item, start *Point, closed bool, deadline ti
 	if g.n() > 200_000 {
 		k = 8
 	}
-
 	nb := buildNeighbours(g, k)
 	if err := c.ctx.Err(); err != nil {
 		return nil, nil, err
@@ -96,7 +100,6 @@ func (c *control) heuristic(items []Item, start *Point, closed bool, deadline ti
 	if s.n > 100_000 {
 		s.maxRev = 50_000
 	}
-	s.or3 = true
 	fixedLen := 0.0
 	for v := range int32(g.real) {
 		if p := g.partner[v]; p > v && p != g.dummy {
@@ -123,7 +126,8 @@ func (c *control) heuristic(items []Item, start *Point, closed bool, deadline ti
 	frac := 0.0
 	// Measured on the yardstick (2 s runs): the longest run of failed
 	// kicks before a later improvement was about 50 n on 1,000-20,000
-	// nodes, so a search this long without one has converged.
+	// nodes, so a search this long without one, and longer than all the
+	// search before its last gain, has converged.
 	stall := max(10_000, 50*int(s.n))
 	lastGain := 0
 	for i := 0; kicks <= 0 || i < kicks; i++ {
@@ -146,7 +150,7 @@ func (c *control) heuristic(items []Item, start *Point, closed bool, deadline ti
 		}
 		if s.kick(r, kickSegMax) {
 			lastGain = i
-		} else if i-lastGain > stall {
+		} else if c.converge && i-lastGain > max(stall, lastGain) {
 			break // converged: stop before the budget
 		}
 	}
@@ -214,7 +218,8 @@ func (s *solver) extract() ([]int, []bool) {
 }
 
 // tourFromOrder is the node tour that writes the items in order, each
-// from its entry end, after the dummy and the start.
+// from its entry end, after the dummy and the start and before the end
+// node.
 func (g *graph) tourFromOrder(order []int, rev []bool) []int32 {
 	// The node of each item's A end.
 	first := make([]int32, len(order))
@@ -240,6 +245,9 @@ func (g *graph) tourFromOrder(order []int, rev []bool) []int32 {
 		} else {
 			t = append(t, a)
 		}
+	}
+	if g.finish >= 0 {
+		t = append(t, g.finish)
 	}
 	return t
 }

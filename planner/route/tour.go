@@ -32,7 +32,7 @@ func newSolver(g *graph, nb *neighbours, tour []int32) *solver {
 	s := &solver{
 		g: g, nb: nb, n: n, t: tour, pos: make([]int32, n),
 		queue: make([]int32, n), inq: make([]bool, n),
-		maxRev: n, orMax: 3,
+		maxRev: n, orMax: 3, or3: true,
 	}
 	for i, v := range tour {
 		s.pos[v] = int32(i)

@@ -126,3 +126,31 @@ func FuzzRead(f *testing.F) {
 		_ = in.TourLength(tour)
 	})
 }
+
+func FuzzReadTour(f *testing.F) {
+	b, err := os.ReadFile(filepath.Join(testset.Dir(), "eil51.opt.tour"))
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Add(string(b), 51)
+	f.Add("TOUR_SECTION\n2 1 3\n-1\nEOF\n", 3)
+	f.Fuzz(func(t *testing.T, s string, n int) {
+		if n < 0 || n > 1000 {
+			return
+		}
+		tour, err := tsplib.ReadTour(strings.NewReader(s), "fuzz.tour", n)
+		if err != nil {
+			return
+		}
+		seen := make([]bool, n)
+		for _, v := range tour {
+			if v < 0 || v >= n || seen[v] {
+				t.Fatalf("tour %v is not a permutation of 0..%d", tour, n-1)
+			}
+			seen[v] = true
+		}
+		if len(tour) != n {
+			t.Fatalf("tour of %d nodes, want %d", len(tour), n)
+		}
+	})
+}

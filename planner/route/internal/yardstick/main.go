@@ -46,6 +46,9 @@ func main() {
 		return false
 	}
 	opt := route.Options{Budget: *budget, Seed: *seed}
+	if *budget == route.DefaultBudget {
+		opt.Budget = 0 // as callers get it: stops early once converged
+	}
 	fmt.Printf("route yardstick: budget %v, seed %d, GOMAXPROCS %d, %s\n\n", *budget, *seed, runtime.GOMAXPROCS(0), runtime.Version())
 	if err := tsplibTable(want, opt); err != nil {
 		fmt.Fprintln(os.Stderr, "yardstick:", err)
