@@ -256,7 +256,7 @@ func (u *UI) content() fyne.CanvasObject {
 		widget.NewButtonWithIcon("Fit", theme.ZoomFitIcon(), u.View.Fit),
 		widget.NewButtonWithIcon("", theme.ZoomInIcon(), func() { u.View.ZoomBy(1.5) }),
 	)
-	left := container.NewVScroll(container.NewThemeOverride(u.toolPalette(), compactTheme{newLabTheme()}))
+	left := container.NewVScroll(container.NewThemeOverride(u.toolPalette(), compactTheme()))
 	right := container.New(&fixedWidth{w: 350}, container.New(layout.NewCustomPaddedLayout(0, 0, 0, 6), u.tabs))
 	status := container.NewBorder(nil, nil, container.New(&fixedWidth{w: 520}, u.cursorLabel), u.progressBox, u.hintLabel)
 	viewFrame := container.NewStack(canvas.NewRectangle(colOutside), u.View)
