@@ -84,6 +84,10 @@ type RouteStroke struct {
 // buffers between frames, so a frame allocates nothing once the size is
 // stable. A Renderer is not safe for concurrent use.
 type Renderer struct {
+	// Aliased draws the overlays without antialiasing (the benchmark's
+	// baseline for what antialiasing costs).
+	Aliased bool
+
 	img *image.RGBA
 	pix []uint32
 
@@ -817,7 +821,7 @@ func (r *Renderer) drawAtomic(sc *Scene, v View) {
 // drawOverlays draws step edges, the field edge, the route, fiducials,
 // findings, the selection and the tool preview over the lattice.
 func (r *Renderer) drawOverlays(sc *Scene, v View) {
-	pb := &pixbuf{pix: r.pix, w: v.W, h: v.H}
+	pb := &pixbuf{pix: r.pix, w: v.W, h: v.H, aa: !r.Aliased}
 	surf := sc.Surface
 	// Field edge.
 	x0, y1 := v.ToScreen(r2.Point{})

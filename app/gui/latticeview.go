@@ -159,14 +159,33 @@ func (lv *LatticeView) Fit() {
 }
 
 // LegendChanged fits the field again beside the legend if the view shows
-// the whole field, so a legend that grew (a plan's route, findings) or
-// was shown does not cover it; a view the user zoomed or panned is left
-// alone.
+// the whole field and the legend now covers part of it, so a legend that
+// grew (a plan's route, findings) or was shown does not hide the field.
+// A legend that still fits leaves the view alone: the field does not
+// jump under the pointer while the user draws. A view the user zoomed
+// or panned is left alone too.
 func (lv *LatticeView) LegendChanged() {
-	if lv.atFit && lv.view.W > 0 && lv.s.Surface() != nil {
+	if lv.atFit && lv.view.W > 0 && lv.s.Surface() != nil && lv.legendCoversField() {
 		lv.view = lv.fitView()
 		lv.changed()
 	}
+}
+
+// legendCoversField reports whether the legend, laid out in the view's
+// top-right corner at its current size, overlaps the field.
+func (lv *LatticeView) legendCoversField() bool {
+	if lv.legend == nil || !lv.legend.Visible() {
+		return false
+	}
+	ls := lv.legend.MinSize()
+	w := float64(lv.view.W) / float64(lv.pxPerDot)
+	legend := r2.RectFromPoints(
+		r2.Point{X: w - float64(ls.Width) - legendPad, Y: legendPad},
+		r2.Point{X: w - legendPad, Y: legendPad + float64(ls.Height)})
+	f := lv.s.Surface().Field
+	a, b := lv.PositionOf(r2.Point{X: f.X.Lo, Y: f.Y.Hi}), lv.PositionOf(r2.Point{X: f.X.Hi, Y: f.Y.Lo})
+	field := r2.RectFromPoints(r2.Point{X: float64(a.X), Y: float64(a.Y)}, r2.Point{X: float64(b.X), Y: float64(b.Y)})
+	return legend.Intersects(field)
 }
 
 // fitView returns the view showing the whole field beside the legend:

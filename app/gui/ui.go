@@ -256,7 +256,7 @@ func (u *UI) content() fyne.CanvasObject {
 		widget.NewButtonWithIcon("Fit", theme.ZoomFitIcon(), u.View.Fit),
 		widget.NewButtonWithIcon("", theme.ZoomInIcon(), func() { u.View.ZoomBy(1.5) }),
 	)
-	left := container.NewVScroll(u.toolPalette())
+	left := container.NewVScroll(container.NewThemeOverride(u.toolPalette(), compactTheme()))
 	right := container.New(&fixedWidth{w: 350}, container.New(layout.NewCustomPaddedLayout(0, 0, 0, 6), u.tabs))
 	status := container.NewBorder(nil, nil, container.New(&fixedWidth{w: 520}, u.cursorLabel), u.progressBox, u.hintLabel)
 	viewFrame := container.NewStack(canvas.NewRectangle(colOutside), u.View)
@@ -421,15 +421,6 @@ func (u *UI) optionsFor(t Tool) []fyne.CanvasObject {
 			return u.setOpt(func(o *ToolOptions) error { set(o, x); return nil })
 		})
 	}
-	integer := func(label string, v int, set func(o *ToolOptions, v int)) fyne.CanvasObject {
-		return u.optionEntry(label, fmt.Sprint(v), func(s string) error {
-			x, err := parseInt(label, s)
-			if err != nil {
-				return err
-			}
-			return u.setOpt(func(o *ToolOptions) error { set(o, x); return nil })
-		})
-	}
 	template := func() fyne.CanvasObject {
 		sel := widget.NewSelect(u.templateNames(), func(name string) {
 			u.setOpt(func(o *ToolOptions) error { o.Template = name; return nil })
@@ -449,14 +440,29 @@ func (u *UI) optionsFor(t Tool) []fyne.CanvasObject {
 			u.setOpt(func(o *ToolOptions) error { o.ArrayOf = s; return nil })
 		})
 		of.Selected = o.ArrayOf
+		// Label and field side by side: the four numbers then fit the
+		// column of a laptop screen without scrolling.
+		msg := errorLabel()
+		form := widget.NewForm()
+		field := func(label string, v int, set func(o *ToolOptions, v int)) {
+			e := widget.NewEntry()
+			e.SetText(fmt.Sprint(v))
+			e.OnChanged = func(s string) {
+				x, err := parseInt(label, s)
+				if err == nil {
+					err = u.setOpt(func(o *ToolOptions) error { set(o, x); return nil })
+				}
+				showErr(msg, err)
+			}
+			form.Append(label, e)
+		}
+		field("Columns", o.ArrayCols, func(o *ToolOptions, v int) { o.ArrayCols = v })
+		field("Rows", o.ArrayRows, func(o *ToolOptions, v int) { o.ArrayRows = v })
+		field("Dimer pitch", o.ArrayPitchDimers, func(o *ToolOptions, v int) { o.ArrayPitchDimers = v })
+		field("Row pitch", o.ArrayPitchRows, func(o *ToolOptions, v int) { o.ArrayPitchRows = v })
 		return []fyne.CanvasObject{
-			widget.NewLabel("Repeat"), of, template(),
-			container.NewGridWithColumns(2,
-				integer("Columns", o.ArrayCols, func(o *ToolOptions, v int) { o.ArrayCols = v }),
-				integer("Rows", o.ArrayRows, func(o *ToolOptions, v int) { o.ArrayRows = v })),
-			container.NewGridWithColumns(2,
-				integer("Pitch (dimers)", o.ArrayPitchDimers, func(o *ToolOptions, v int) { o.ArrayPitchDimers = v }),
-				integer("Pitch (rows)", o.ArrayPitchRows, func(o *ToolOptions, v int) { o.ArrayPitchRows = v })),
+			container.NewBorder(nil, nil, widget.NewLabel("Repeat"), nil, of), template(), form, msg,
+			mutedLabel("Pitches count dimers along the row and rows across it."),
 		}
 	}
 	l := widget.NewLabel("No options.")

@@ -211,3 +211,16 @@ func TestKeyHelpShowsEveryLine(t *testing.T) {
 		t.Errorf("key list lacks entries:\n%s", got)
 	}
 }
+
+func TestLegendThatStillFitsLeavesTheFieldWhereItIs(t *testing.T) {
+	u, w := newTestUI(t, nil)
+	u.View.Fit()
+	w.Canvas().Capture()
+	v := u.View.View()
+	// A short new region adds a legend row no wider than the others.
+	u.S.AddRegion("x", "other")
+	w.Canvas().Capture()
+	if _, legend := fieldAndLegend(u); u.View.View() != v {
+		t.Errorf("the field moved under the pointer although the legend %v still fits beside it", legend)
+	}
+}
