@@ -7,6 +7,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/internal/unionfind"
 	"dimerpath/lattice"
 )
 
@@ -415,19 +416,8 @@ func outsidePoint(surf *lattice.Surface, sh *Shape, field r2.Rect) (r2.Point, bo
 // holds no pad.
 func (c *checker) floating() {
 	n := len(c.l.Regions)
-	parent := make([]int, n)
-	for i := range parent {
-		parent[i] = i
-	}
-	var find func(int) int
-	find = func(i int) int {
-		for parent[i] != i {
-			parent[i] = parent[parent[i]]
-			i = parent[i]
-		}
-		return i
-	}
-	union := func(a, b int) { parent[find(a)] = find(b) }
+	sets := unionfind.New(n)
+	find, union := sets.Find, func(a, b int) { sets.Union(a, b) }
 	for i := range n {
 		if c.l.Regions[i].Sites.IsEmpty() {
 			continue
