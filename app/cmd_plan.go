@@ -67,7 +67,7 @@ cleanly.`,
 					}
 					return ExitOK
 				}
-				printPlan(env.Stdout, p)
+				printPlan(env.Stdout, p, run.profile.Drift.RateNMPerMin)
 				return ExitOK
 			}
 		},
@@ -250,10 +250,72 @@ func fmtDuration(s float64) string {
 	return fmt.Sprintf("%d h %02d min", m/60, m%60)
 }
 
+// printSegments lists each segment: its fiducial, how long its
+// registration and its writing take, and its tightest stroke: the one
+// whose drift clock (from the end of the registration to the end of the
+// stroke) uses the largest share of that stroke's own budget, tolerance /
+// drift rate. A segment may hold AP strokes (±0.2 nm: minutes) and FE
+// strokes (±2 nm: tens of minutes), so it can last longer than the AP
+// budget while every stroke keeps its own.
+func printSegments(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
+	segs := "segments"
+	if len(p.Segments) == 1 {
+		segs = "segment"
+	}
+	fmt.Fprintf(w, "\nSegments: %d strokes in %d drift-safe %s (each starts with a registration at its fiducial)\n", len(p.Strokes), len(p.Segments), segs)
+	type seg struct {
+		regEnd     float64
+		used, tol  float64 // tightest stroke: drift clock at its end, its tolerance
+		share      float64 // its clock over its budget
+		registered bool
+	}
+	ss := make([]seg, len(p.Segments))
+	for _, a := range p.Actions {
+		if a.Segment < 0 || a.Segment >= len(ss) {
+			continue
+		}
+		g := &ss[a.Segment]
+		switch a.Kind {
+		case planner.ActRegister:
+			g.regEnd, g.registered = a.StartS+a.DurationS, true
+		case planner.ActWrite, planner.ActDwell:
+			if a.Stroke < 0 || a.Stroke >= len(p.Strokes) {
+				continue
+			}
+			st := p.Strokes[a.Stroke]
+			clock := a.StartS + a.DurationS - g.regEnd
+			if b := planner.DriftBudget(st.ToleranceNM, driftNMPerMin); b > 0 && clock/b >= g.share {
+				g.used, g.tol, g.share = clock, st.ToleranceNM, clock/b
+			}
+		}
+	}
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "  #\tfiducial\tstarts at\tregistration\twriting\ttightest stroke: drift clock / budget\tstrokes")
+	for i, g := range p.Segments {
+		if i == maxListed {
+			fmt.Fprintf(tw, "  ... %d more\n", len(p.Segments)-maxListed)
+			break
+		}
+		s := ss[i]
+		regEnd := g.StartS
+		if s.registered {
+			regEnd = s.regEnd
+		}
+		tight := "no drift: no limit"
+		if driftNMPerMin > 0 && s.tol > 0 {
+			tight = fmt.Sprintf("%s / %s (±%g nm, %.0f %%)", fmtDuration(s.used), fmtDuration(planner.DriftBudget(s.tol, driftNMPerMin)), s.tol, 100*s.share)
+		}
+		fmt.Fprintf(tw, "  %d\t%s\t%s\t%s\t%s\t%s\t%d\n", g.Index, g.Fiducial, fmtDuration(g.StartS), fmtDuration(regEnd-g.StartS), fmtDuration(g.EndS-regEnd), tight, len(g.Strokes))
+	}
+	tw.Flush()
+}
+
 // maxListed bounds the segments and windows listed in the summary.
 const maxListed = 12
 
-func printPlan(w io.Writer, p *planner.Plan) {
+// printPlan writes the readable summary; driftNMPerMin is the profile's
+// drift rate, from which each stroke's budget (tolerance / rate) follows.
+func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	fmt.Fprintf(w, "%s, variant %s: plan with profile %q (seed %d)\n", p.Design, p.Variant, p.Profile, p.Seed)
 	fmt.Fprintln(w, planner.Caution)
 
@@ -295,7 +357,16 @@ func printPlan(w io.Writer, p *planner.Plan) {
 		if p.TotalS > 0 {
 			share = 100 * part.s / p.TotalS
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%.1f %%\t\n", part.name, fmtDuration(part.s), share)
+		note := ""
+		if part.name == "registrations" && len(p.Segments) > 0 && part.s > 0 {
+			n := len(p.Segments)
+			what := "registrations"
+			if n == 1 {
+				what = "registration"
+			}
+			note = fmt.Sprintf("  %d %s of %s", n, what, fmtDuration(part.s/float64(n)))
+		}
+		fmt.Fprintf(tw, "  %s\t%s\t%.1f %%\t%s\n", part.name, fmtDuration(part.s), share, note)
 	}
 	tw.Flush()
 	if p.FloorS > 0 {
@@ -305,21 +376,7 @@ func printPlan(w io.Writer, p *planner.Plan) {
 		fmt.Fprintf(w, "  by hand (file order, raster rows, fixed-interval registration) %s: plan = %.2f x by hand\n", fmtDuration(p.ByHandS), p.TotalS/p.ByHandS)
 	}
 
-	fmt.Fprintf(w, "\nSegments: %d strokes in %d drift-safe segments\n", len(p.Strokes), len(p.Segments))
-	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "  #\tfiducial\tstart\tend\tdrift budget\tstrokes")
-	for i, g := range p.Segments {
-		if i == maxListed {
-			fmt.Fprintf(tw, "  ... %d more\n", len(p.Segments)-maxListed)
-			break
-		}
-		budget := "none (no drift)"
-		if g.BudgetS > 0 {
-			budget = fmtDuration(g.BudgetS)
-		}
-		fmt.Fprintf(tw, "  %d\t%s\t%s\t%s\t%s\t%d\n", g.Index, g.Fiducial, fmtDuration(g.StartS), fmtDuration(g.EndS), budget, len(g.Strokes))
-	}
-	tw.Flush()
+	printSegments(w, p, driftNMPerMin)
 
 	y := p.Yield
 	fmt.Fprintf(w, "\nDopant windows: %d", y.Windows)

@@ -4,6 +4,8 @@ import (
 	"encoding/json"
 	"math"
 	"path/filepath"
+	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -70,9 +72,22 @@ func TestPlanText(t *testing.T) {
 	if code != ExitOK {
 		t.Fatalf("exit %d", code)
 	}
-	for _, want := range []string{"gap-12-source", planner.Caution, "Write modes", "Time:", "P10", "Segments:", "Dopant windows: 2", "Coverage: OK"} {
+	// Each registration costs the profile's registration_s.
+	reg := "registrations of " + fmtDuration(planner.DefaultProfile().Drift.RegistrationS)
+	for _, want := range []string{"gap-12-source", planner.Caution, "Write modes", "Time:", "P10", "Segments:", "Dopant windows: 2", "Coverage: OK", reg, "tightest stroke"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("summary lacks %q", want)
+		}
+	}
+	// Every segment's tightest stroke ends within its budget: AP ±0.2 nm at
+	// 0.1 nm/min is 2 min (tolerance / drift by hand).
+	shares := regexp.MustCompile(`/ 2 min 00 s \(±0\.2 nm, (\d+) %\)`).FindAllStringSubmatch(out, -1)
+	if len(shares) == 0 {
+		t.Errorf("no segment lists its tightest AP stroke:\n%s", out)
+	}
+	for _, m := range shares {
+		if n, _ := strconv.Atoi(m[1]); n > 100 {
+			t.Errorf("a segment's tightest stroke uses %d %% of its drift budget", n)
 		}
 	}
 }

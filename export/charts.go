@@ -134,6 +134,14 @@ func drawSpread(c canvas, p10, p50, p90, total float64, area box) float64 {
 // spreadLegend draws the key of drawSpread, with the median and the
 // expected total, at the given top-left point and returns its height.
 func spreadLegend(c canvas, at vec, p50, total float64) float64 {
+	return spreadSymbols(c, at, "P10 to P90: 80 % of the Monte Carlo runs",
+		"median P50 "+clock(p50), "expected (mean) "+clock(total))
+}
+
+// spreadSymbols draws the key of the spread bars (the P10-P90 box, the
+// median tick, the mean diamond) with the given labels and returns its
+// height.
+func spreadSymbols(c canvas, at vec, band, median, mean string) float64 {
 	u := c.mm()
 	y := at.y
 	x := at.x
@@ -143,14 +151,14 @@ func spreadLegend(c canvas, at vec, p50, total float64) float64 {
 	}
 	c.rect(box{x, y, 6 * u, 3 * u}, penBar, paint{fill: true, grey: 0.85}, tag{})
 	x += 7.5 * u
-	item("P10 to P90: 80 % of the Monte Carlo runs")
+	item(band)
 	c.polyline([]vec{{x + 1.5*u, y - 0.5*u}, {x + 1.5*u, y + 3.5*u}}, false, pen{width: 0.7}, noPaint, tag{})
 	x += 4 * u
-	item("median P50 " + clock(p50))
+	item(median)
 	d := 1.4 * u
 	c.polyline([]vec{{x + d, y + 1.5*u - d}, {x + 2*d, y + 1.5*u}, {x + d, y + 1.5*u + d}, {x, y + 1.5*u}}, true, pen{width: 0.25}, solid(1), tag{})
 	x += 2*d + 2*u
-	item("expected (mean) " + clock(total))
+	item(mean)
 	return 4 * u
 }
 

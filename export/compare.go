@@ -189,23 +189,7 @@ func drawSpreadCompare(c canvas, rs []VariantResult, area box) float64 {
 
 // spreadKey explains the spread symbols; returns its height.
 func spreadKey(c canvas, at vec) float64 {
-	u := c.mm()
-	x, y := at.x, at.y
-	item := func(s string) {
-		c.text(vec{x, y + 2.3*u}, s, fontAxis, anchorStart, tag{})
-		x += c.textWidth(s, fontAxis) + 5*u
-	}
-	c.rect(box{x, y, 6 * u, 3 * u}, penBar, paint{fill: true, grey: 0.85}, tag{})
-	x += 7.5 * u
-	item("P10 to P90")
-	c.polyline([]vec{{x + 1.5*u, y - 0.5*u}, {x + 1.5*u, y + 3.5*u}}, false, pen{width: 0.7}, noPaint, tag{})
-	x += 4 * u
-	item("median P50")
-	d := 1.4 * u
-	c.polyline([]vec{{x + d, y + 1.5*u - d}, {x + 2*d, y + 1.5*u}, {x + d, y + 1.5*u + d}, {x, y + 1.5*u}}, true, pen{width: 0.25}, solid(1), tag{})
-	x += 2*d + 2*u
-	item("expected (mean)")
-	return 4 * u
+	return spreadSymbols(c, at, "P10 to P90", "median P50", "expected (mean)")
 }
 
 // drawYieldCompare draws each variant's probability that every window

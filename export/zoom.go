@@ -10,6 +10,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/internal/unionfind"
 	"dimerpath/lattice"
 	"dimerpath/planner"
 )
@@ -60,18 +61,7 @@ func apAreas(p *planner.Plan) (areas []apArea, omitted int) {
 	if len(ids) == 0 {
 		return nil, 0
 	}
-	parent := make([]int, len(ids))
-	for i := range parent {
-		parent[i] = i
-	}
-	var find func(int) int
-	find = func(i int) int {
-		for parent[i] != i {
-			parent[i] = parent[parent[i]]
-			i = parent[i]
-		}
-		return i
-	}
+	sets := unionfind.New(len(ids))
 	type cell struct{ x, y int }
 	owner := map[cell]int{}
 	const g = apClusterGapNM
@@ -82,9 +72,7 @@ func apAreas(p *planner.Plan) (areas []apArea, omitted int) {
 			for cy := int(math.Floor((q.Y - g/2) / g)); cy <= int(math.Floor((q.Y+g/2)/g)); cy++ {
 				k := cell{cx, cy}
 				if o, ok := owner[k]; ok {
-					if ra, rb := find(o), find(i); ra != rb {
-						parent[max(ra, rb)] = min(ra, rb)
-					}
+					sets.Union(o, i)
 				} else {
 					owner[k] = i
 				}
@@ -107,7 +95,7 @@ func apAreas(p *planner.Plan) (areas []apArea, omitted int) {
 	clusters := map[int][]int{}
 	var roots []int
 	for i := range ids {
-		r := find(i)
+		r := sets.Find(i)
 		if _, ok := clusters[r]; !ok {
 			roots = append(roots, r)
 		}

@@ -46,6 +46,14 @@
 // SnapWindows imports positions made by a script, reporting each point
 // more than OffLatticeNM off the lattice.
 //
+// # Distances between sets
+//
+// A CellIndex holds a set's lattice cells (Surface.SiteCell) in a grid;
+// CellIndex.GapWithin and CellIndex.Gap give the least distance between
+// two sets, the width of the intact surface between them (n intact rows
+// measure n·RowSpacing), at a cost that grows with the sets' outlines,
+// not their site counts.
+//
 // # References
 //
 // CODATA 2018 for the Si lattice constant; see geometry.go for the

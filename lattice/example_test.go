@@ -65,3 +65,24 @@ func ExampleReadPointsCSV() {
 	// P@T0:R13:D27-29
 	// line 4: (10.900, 10.000) nm is 0.148 nm from the nearest lattice position (10.753, 9.985)
 }
+
+// The tunnel gap between an island and a lead nine intact dimer rows
+// away: 9 · 0.76806 nm.
+func ExampleCellIndex_Gap() {
+	surf, _ := lattice.NewSurface(100, 100)
+	island, lead := lattice.NewSiteSet(), lattice.NewSiteSet()
+	for row := 10; row <= 20; row++ {
+		island.AddRun(0, row, 100, 160) // dimers 50..79
+	}
+	for row := 30; row <= 60; row++ {
+		lead.AddRun(0, row, 120, 140)
+	}
+	a, b := lattice.NewCellIndex(surf, island), lattice.NewCellIndex(surf, lead)
+	d, at := a.Gap(b)
+	fmt.Printf("gap %.3f nm = %.0f rows, at y = %.2f nm\n", d, d/lattice.RowSpacing, at.Y)
+	_, _, near := a.GapWithin(b, 5)
+	fmt.Println("within 5 nm:", near)
+	// Output:
+	// gap 6.913 nm = 9 rows, at y = 19.20 nm
+	// within 5 nm: false
+}

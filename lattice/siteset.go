@@ -212,6 +212,56 @@ func (s *SiteSet) Union(o *SiteSet) *SiteSet {
 	return s
 }
 
+// UnionOf returns a new set holding every site of the given sets (nil
+// sets count as empty). Each row is allocated once, as long as the
+// longest of that row among the sets, so the cost is one pass over the
+// sets' words: cheaper than Union into an empty set when rows grow set
+// by set.
+func UnionOf(sets ...*SiteSet) *SiteSet {
+	u := &SiteSet{}
+	for _, o := range sets {
+		if o == nil {
+			continue
+		}
+		for len(u.terraces) < len(o.terraces) {
+			u.terraces = append(u.terraces, nil)
+		}
+		for t, rows := range o.terraces {
+			if len(rows) > len(u.terraces[t]) {
+				u.terraces[t] = append(u.terraces[t], make([]rowBits, len(rows)-len(u.terraces[t]))...)
+			}
+		}
+	}
+	// Row lengths first, then one allocation per row.
+	for t, rows := range u.terraces {
+		for r := range rows {
+			n := 0
+			for _, o := range sets {
+				if o != nil && t < len(o.terraces) && r < len(o.terraces[t]) {
+					n = max(n, len(o.terraces[t][r]))
+				}
+			}
+			if n > 0 {
+				rows[r] = make(rowBits, n)
+			}
+		}
+	}
+	for _, o := range sets {
+		if o == nil {
+			continue
+		}
+		for t, rows := range o.terraces {
+			for r, w := range rows {
+				dst := u.terraces[t][r]
+				for k, x := range w {
+					dst[k] |= x
+				}
+			}
+		}
+	}
+	return u
+}
+
 // Difference removes every site of o from s and returns s.
 func (s *SiteSet) Difference(o *SiteSet) *SiteSet {
 	for t, rows := range s.terraces {

@@ -72,6 +72,39 @@ func TestSiteSetOperationsAgainstMap(t *testing.T) {
 	}
 }
 
+// UnionOf holds exactly the sites of its sets: every site of each, and
+// no other (the map of all their sites).
+func TestUnionOfAgainstMap(t *testing.T) {
+	rng := rand.New(rand.NewPCG(13, 14))
+	for range 20 {
+		sets := []*SiteSet{randomSet(rng, 20), nil, randomSet(rng, 5), NewSiteSet(), randomSet(rng, 40)}
+		want := map[Site]bool{}
+		for _, s := range sets {
+			if s != nil {
+				for site := range s.All() {
+					want[site] = true
+				}
+			}
+		}
+		u := UnionOf(sets...)
+		got := brute(u)
+		if len(got) != len(want) {
+			t.Fatalf("UnionOf holds %d sites, want %d", len(got), len(want))
+		}
+		for site := range want {
+			if !got[site] {
+				t.Fatalf("UnionOf lacks %v", site)
+			}
+		}
+		if !u.Equal(sets[0].Clone().Union(sets[2]).Union(sets[3]).Union(sets[4])) {
+			t.Fatal("UnionOf differs from Union")
+		}
+	}
+	if !UnionOf().IsEmpty() {
+		t.Error("UnionOf() is not empty")
+	}
+}
+
 func TestSiteSetJSONRoundTrip(t *testing.T) {
 	rng := rand.New(rand.NewPCG(5, 6))
 	for i := range 50 {

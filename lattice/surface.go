@@ -318,15 +318,7 @@ func (s *Surface) nearestOnTerrace(ti int, p r2.Point) Site {
 	return found
 }
 
-func clamp(v, lo, hi int) int {
-	if v < lo {
-		return lo
-	}
-	if v > hi {
-		return hi
-	}
-	return v
-}
+func clamp(v, lo, hi int) int { return min(max(v, lo), hi) }
 
 // Direction of a neighbour step.
 const (

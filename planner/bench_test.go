@@ -4,6 +4,7 @@ import (
 	"context"
 	"runtime"
 	"testing"
+	"time"
 
 	"dimerpath/lattice/design"
 )
@@ -33,7 +34,9 @@ func benchMicron() *design.Design {
 // same run, the planned total, the total of the by-hand plan (regions in
 // file order, rows in raster order, one mode per region, registrations
 // at the fixed interval of the tightest budget), their ratio, and the
-// planned total over the physical floor (the writing time alone).
+// planned total over the physical floor (the writing time alone), and
+// x-layout: the time of a plan over the time of laying the design's
+// regions out alone (design.Lay), the baseline timed in the same run.
 func BenchmarkPlan(b *testing.B) {
 	// The goals are for one core.
 	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(1))
@@ -42,8 +45,12 @@ func BenchmarkPlan(b *testing.B) {
 		d    *design.Design
 	}{{"demo", demo(b)}, {"micron-1e6-sites-1e5-windows", benchMicron()}} {
 		b.Run(c.name, func(b *testing.B) {
+			// The baseline, timed in the same run: laying the design's
+			// regions out alone (design.Lay), the first thing a plan does.
+			layNS := layTime(b, c.d)
 			var p *Plan
 			b.ReportAllocs()
+			b.ResetTimer()
 			for i := 0; i < b.N; i++ {
 				var err error
 				p, err = Build(context.Background(), c.d, "", DefaultProfile(), Options{Seed: 1})
@@ -52,6 +59,7 @@ func BenchmarkPlan(b *testing.B) {
 				}
 			}
 			b.StopTimer()
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/layNS, "x-layout")
 			sites := 0
 			for _, m := range p.Modes {
 				sites += m.Sites
@@ -67,4 +75,18 @@ func BenchmarkPlan(b *testing.B) {
 			b.ReportMetric(p.TotalS/p.FloorS, "planned/floor")
 		})
 	}
+}
+
+// layTime returns the mean time of design.Lay on d, in ns, over at least
+// 200 ms or 5 runs.
+func layTime(b *testing.B, d *design.Design) float64 {
+	b.Helper()
+	n, start := 0, time.Now()
+	for n < 5 || time.Since(start) < 200*time.Millisecond {
+		if _, err := d.Lay(""); err != nil {
+			b.Fatal(err)
+		}
+		n++
+	}
+	return float64(time.Since(start).Nanoseconds()) / float64(n)
 }

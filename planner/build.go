@@ -221,7 +221,7 @@ func (b *builder) regionWork() {
 			}
 			plain = rl.Sites.Clone().Difference(win)
 		}
-		rw := &regionWork{index: i, name: r.Name, role: r.Role, requested: r.Mode, sites: rl.Sites, windows: rl.Windows, count: rl.Sites.Count(),
+		rw := &regionWork{index: i, name: r.Name, role: r.Role, requested: r.Mode, sites: rl.Sites, windows: rl.Windows,
 			plain: plain, tolGiven: r.ToleranceNM, segs: b.gen.segsOf(plain)}
 		rw.tolAP, rw.tolFE = b.prof.ToleranceAPNM, b.prof.ToleranceFENM
 		if rules != nil && rules.APToleranceNM != nil {
@@ -233,9 +233,14 @@ func (b *builder) regionWork() {
 		if r.ToleranceNM > 0 {
 			rw.tolAP, rw.tolFE = r.ToleranceNM, r.ToleranceNM
 		}
-		rw.plainCount = rw.count
+		// The runs are at hand: their lengths count the sites without
+		// another pass over the bitsets.
+		for _, sg := range rw.segs {
+			rw.plainCount += sg.run.Len
+		}
+		rw.count = rw.plainCount
 		if plain != rl.Sites {
-			rw.plainCount = plain.Count()
+			rw.count = rl.Sites.Count()
 		}
 		b.regions = append(b.regions, rw)
 	}

@@ -1,9 +1,9 @@
 package planner
 
 import (
-	"cmp"
 	"fmt"
 	"math"
+	"math/bits"
 	"slices"
 	"sort"
 
@@ -50,9 +50,12 @@ const coverageExamples = 6
 // classified at once when the bounds agree, and halved along the side
 // that leaves them furthest apart otherwise, down to single sites dosed
 // exactly. Only sites near a clearing edge are dosed one by one, and the
-// sites of a decided range are visited a 64-bit word at a time. Cost:
-// O(pieces · depth + sites near clearing edges + words of the painted
-// rows + overclearing candidates).
+// sites of a decided range are visited a 64-bit word at a time (a
+// cleared range only when it holds an unpainted site, a range known to
+// hold no painted site never). Bounds of slanted pieces bracket Φ and
+// the Gaussian from tables, which keeps them rigorous; sites are dosed
+// with the exact functions. Cost: O(pieces · depth + sites near clearing
+// edges + words of the painted rows + overclearing candidates).
 func CheckCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) Coverage {
 	ck := newCoverageCheck(surf, regions, strokes, &prof)
 	ck.run()
@@ -74,6 +77,10 @@ type piece struct {
 	du, dy, L float64
 	uLo, uHi  float64 // the box beyond which the piece gives less than the neglect share
 	yLo, yHi  float64
+	// uTop and yTop are the along and across factors at their peaks
+	// (uPeak, yPeak), and sTop a slanted piece's band at its middle,
+	// computed once.
+	uTop, yTop, sTop float64
 }
 
 const (
@@ -142,40 +149,44 @@ func (p *piece) at(u, y float64) float64 {
 }
 
 type coverageCheck struct {
-	surf    *lattice.Surface
-	prof    *Profile
-	regions []CoverageRegion
-	strokes []Stroke
-	region  []int // stroke -> region index, -1 when unknown
-	painted *lattice.SiteSet
-	dwelled *lattice.SiteSet
-	pieces  [][]piece            // per terrace
-	grid    *terraceGrid         // nil on a one-terrace surface
-	exist   [][]*[]span          // terrace -> row -> where its dimers exist (nil: not yet)
-	allowed map[[2]int][]*[]span // region, terrace -> row -> allowed spans (nil: not yet)
-	rows    map[[2]int][][]span  // region, terrace -> row -> run extents
-	arena   []float64            // cached factors of decide's nested ranges
-	ptrs    []*piece             // active lists of decide's nested ranges
-	spanBuf []span               // scratch for allowedSpans
-	cov     Coverage
-	nUnc    int
-	nOver   int
+	surf     *lattice.Surface
+	prof     *Profile
+	regions  []CoverageRegion
+	strokes  []Stroke
+	region   []int // stroke -> region index, -1 when unknown
+	painted  *lattice.SiteSet
+	dwelled  *lattice.SiteSet
+	pieces   [][]piece       // per terrace
+	grid     *terraceGrid    // nil on a one-terrace surface
+	exist    []rowSpans      // terrace -> where each row's dimers exist
+	existDim [][][][2]int    // terrace -> row -> the same as dimer ranges
+	allowed  []rowSpans      // [region·terraces + terrace]: allowed spans per row
+	rows     []regionExtents // [region·terraces + terrace]: run extents per row
+	arena    []float64       // cached factors of decide's nested ranges
+	ptrs     []*piece        // active lists of decide's nested ranges
+	spanBuf  []span          // scratch for allowedSpans
+	spanBuf2 []span
+	slab     []span // storage of the cached span lists
+	cov      Coverage
+	nUnc     int
+	nOver    int
 }
 
 func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof *Profile) *coverageCheck {
 	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: strokes,
-		painted: lattice.NewSiteSet(), dwelled: lattice.NewSiteSet(),
-		exist: make([][]*[]span, len(surf.Terraces)), allowed: map[[2]int][]*[]span{}, rows: map[[2]int][][]span{}}
+		dwelled: lattice.NewSiteSet(),
+		exist:   make([]rowSpans, len(surf.Terraces)), allowed: make([]rowSpans, len(regions)*len(surf.Terraces)), rows: make([]regionExtents, len(regions)*len(surf.Terraces))}
 	for t := range surf.Terraces {
-		ck.exist[t] = make([]*[]span, surf.RowCount(t))
+		ck.exist[t] = newRowSpans(surf.RowCount(t))
+		ck.existDim = append(ck.existDim, make([][][2]int, surf.RowCount(t)))
 	}
 	byName := map[string]int{}
+	sets := make([]*lattice.SiteSet, len(regions))
 	for i, r := range regions {
 		byName[r.Name] = i
-		if r.Sites != nil {
-			ck.painted.Union(r.Sites)
-		}
+		sets[i] = r.Sites
 	}
+	ck.painted = lattice.UnionOf(sets...)
 	if len(surf.Terraces) > 1 {
 		ck.grid = newTerraceGrid(surf)
 	}
@@ -227,18 +238,21 @@ func makePiece(surf *lattice.Surface, t int, si int32, a, b r2.Point, ratio, sig
 	ua, ya := terraceAxes(surf, t, a)
 	ub, yb := terraceAxes(surf, t, b)
 	p := piece{stroke: si, ratio: ratio, sigma: sigma,
-		uLo: math.Min(ua, ub) - reach, uHi: math.Max(ua, ub) + reach,
-		yLo: math.Min(ya, yb) - reach, yHi: math.Max(ya, yb) + reach}
+		uLo: min(ua, ub) - reach, uHi: max(ua, ub) + reach,
+		yLo: min(ya, yb) - reach, yHi: max(ya, yb) + reach}
 	switch {
 	case math.Abs(ya-yb) < 1e-9:
-		p.kind, p.c, p.a0, p.a1 = pieceParallel, ya, math.Min(ua, ub), math.Max(ua, ub)
+		p.kind, p.c, p.a0, p.a1 = pieceParallel, ya, min(ua, ub), max(ua, ub)
 	case math.Abs(ua-ub) < 1e-9:
-		p.kind, p.c, p.a0, p.a1 = pieceSquare, ua, math.Min(ya, yb), math.Max(ya, yb)
+		p.kind, p.c, p.a0, p.a1 = pieceSquare, ua, min(ya, yb), max(ya, yb)
 	default:
 		p.kind = pieceSlanted
 		p.L = math.Hypot(ub-ua, yb-ya)
 		p.pu, p.py, p.du, p.dy = ua, ya, (ub-ua)/p.L, (yb-ya)/p.L
+		p.sTop = band(0, p.L, p.sigma, p.L/2)
+		return p
 	}
+	p.uTop, p.yTop = p.uFactor(p.uPeak()), p.yFactor(p.yPeak())
 	return p
 }
 
@@ -271,6 +285,7 @@ type siteRect struct {
 	t              int
 	l0, l1, d0, d1 int
 	u0, u1, y0, y1 float64
+	bare           bool // known to hold no painted site (so its parts hold none)
 }
 
 func (ck *coverageCheck) run() {
@@ -337,11 +352,11 @@ func (ck *coverageCheck) factors(ps []*piece, r siteRect) (fu0, fu1, fy0, fy1 []
 }
 
 // unimodal bounds a one-peaked factor over [a, b] from its values there
-// and the position of its peak.
-func unimodal(fa, fb, a, b, peak float64, at func(float64) float64) (lo, hi float64) {
-	lo, hi = math.Min(fa, fb), math.Max(fa, fb)
+// and the position and value of its peak.
+func unimodal(fa, fb, a, b, peak, top float64) (lo, hi float64) {
+	lo, hi = min(fa, fb), max(fa, fb)
 	if peak > a && peak < b {
-		hi = at(peak)
+		hi = top
 	}
 	return lo, hi
 }
@@ -390,8 +405,8 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 	for i, p := range active {
 		var plo, phi float64
 		if p.kind != pieceSlanted {
-			ul, uh := unimodal(fu0[i], fu1[i], r.u0, r.u1, p.uPeak(), p.uFactor)
-			yl, yh := unimodal(fy0[i], fy1[i], r.y0, r.y1, p.yPeak(), p.yFactor)
+			ul, uh := unimodal(fu0[i], fu1[i], r.u0, r.u1, p.uPeak(), p.uTop)
+			yl, yh := unimodal(fy0[i], fy1[i], r.y0, r.y1, p.yPeak(), p.yTop)
 			plo, phi = p.ratio*ul*yl, p.ratio*uh*yh
 		} else {
 			plo, phi = p.slantedBounds(r)
@@ -407,13 +422,18 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		ck.classifyRect(r, active, true, lo, who)
 		return
 	case hi < 1:
-		ck.classifyRect(r, active, false, hi, who)
+		if !r.bare {
+			ck.classifyRect(r, active, false, hi, who)
+		}
 		return
 	}
 	// Undecided, but nothing here matters: no painted site, and every site
 	// within the edge allowance of a region dosing it (cleared or not,
 	// such a site is tolerated). FE edges are mostly this.
-	if !ck.paintedIn(r) && ck.tolerated(r, active) {
+	if !r.bare && !ck.paintedIn(r) {
+		r.bare = true
+	}
+	if r.bare && ck.tolerated(r, active) {
 		return
 	}
 	// Halve the side that leaves the bounds furthest apart: the gap the
@@ -424,8 +444,8 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		if p.kind == pieceSlanted {
 			continue
 		}
-		ul, uh := math.Min(fu0[i], fu1[i]), math.Max(fu0[i], fu1[i])
-		yl, yh := math.Min(fy0[i], fy1[i]), math.Max(fy0[i], fy1[i])
+		ul, uh := min(fu0[i], fu1[i]), max(fu0[i], fu1[i])
+		yl, yh := min(fy0[i], fy1[i]), max(fy0[i], fy1[i])
 		gapU += p.ratio * (uh - ul) * yh
 		gapY += p.ratio * uh * (yh - yl)
 	}
@@ -470,9 +490,19 @@ func (ck *coverageCheck) grow(n int) {
 
 // paintedIn reports whether r holds a painted site.
 func (ck *coverageCheck) paintedIn(r siteRect) bool {
-	for l := r.l0; l < r.l1; l++ {
-		side := l % 2
-		if anyParity(ck.painted.Row(r.t, l/2), 2*r.d0+side, 2*(r.d1-1)+side+1, uint64(0x5555555555555555)<<uint(side)) {
+	// A row at a time: both sides' bits where r holds both lines.
+	for row := r.l0 / 2; row <= (r.l1-1)/2; row++ {
+		w := ck.painted.Row(r.t, row)
+		if w == nil {
+			continue
+		}
+		mask := ^uint64(0)
+		if 2*row < r.l0 {
+			mask = 0xAAAAAAAAAAAAAAAA // side 1 only
+		} else if 2*row+1 >= r.l1 {
+			mask = 0x5555555555555555 // side 0 only
+		}
+		if anyParity(w, 2*r.d0, 2*r.d1, mask) {
 			return true
 		}
 	}
@@ -511,7 +541,7 @@ next:
 		ok := true
 		for row := r.l0 / 2; row <= (r.l1-1)/2 && ok; row++ {
 			sp := ck.allowedCached(ri, r.t, row, allow)
-			i := sort.Search(len(sp), func(i int) bool { return sp[i].hi+1e-9 >= u1 })
+			i := firstReaching(sp, u1)
 			ok = i < len(sp) && sp[i].lo-1e-9 <= u0
 		}
 		if ok {
@@ -524,22 +554,117 @@ next:
 // slantedBounds bounds a slanted piece's dose share over r's box from
 // its corners: along and across distances are linear in the box.
 func (p *piece) slantedBounds(r siteRect) (lo, hi float64) {
-	smin, smax := math.Inf(1), math.Inf(-1)
-	xmin, xmax := math.Inf(1), math.Inf(-1)
-	for _, c := range [4][2]float64{{r.u0, r.y0}, {r.u1, r.y0}, {r.u0, r.y1}, {r.u1, r.y1}} {
-		s := (c[0]-p.pu)*p.du + (c[1]-p.py)*p.dy
-		x := (c[1]-p.py)*p.du - (c[0]-p.pu)*p.dy
-		smin, smax = math.Min(smin, s), math.Max(smax, s)
-		xmin, xmax = math.Min(xmin, x), math.Max(xmax, x)
+	// Along and across distances are linear in (u, y): their extremes
+	// over the box are at the corners each coefficient's sign picks.
+	ua, ub := r.u0-p.pu, r.u1-p.pu
+	ya, yb := r.y0-p.py, r.y1-p.py
+	if p.du < 0 {
+		ua, ub = ub, ua
 	}
-	dfar := math.Max(math.Abs(xmin), math.Abs(xmax))
+	smin, smax := ua*p.du, ub*p.du
+	if p.dy >= 0 {
+		smin, smax = smin+ya*p.dy, smax+yb*p.dy
+	} else {
+		smin, smax = smin+yb*p.dy, smax+ya*p.dy
+	}
+	// x = (y-py)·du - (u-pu)·dy
+	xa, xb := r.y0-p.py, r.y1-p.py
+	if p.du < 0 {
+		xa, xb = xb, xa
+	}
+	xmin, xmax := xa*p.du, xb*p.du
+	if p.dy >= 0 {
+		xmin, xmax = xmin-(r.u1-p.pu)*p.dy, xmax-(r.u0-p.pu)*p.dy
+	} else {
+		xmin, xmax = xmin-(r.u0-p.pu)*p.dy, xmax-(r.u1-p.pu)*p.dy
+	}
+	dfar := max(math.Abs(xmin), math.Abs(xmax))
 	dnear := 0.0
 	if xmin > 0 || xmax < 0 {
-		dnear = math.Min(math.Abs(xmin), math.Abs(xmax))
+		dnear = min(math.Abs(xmin), math.Abs(xmax))
 	}
-	fl, fh := unimodal(band(0, p.L, p.sigma, smin), band(0, p.L, p.sigma, smax), smin, smax, p.L/2,
-		func(s float64) float64 { return band(0, p.L, p.sigma, s) })
-	return p.ratio * gauss(dfar, p.sigma) * fl, p.ratio * gauss(dnear, p.sigma) * fh
+	// The band at the ends of the along range, bracketed from tables
+	// (the band is one-peaked, so its least value over the range is at an
+	// end and its greatest at an end or the peak).
+	loMin, hiMin := bandBounds(p.L, p.sigma, smin)
+	loMax, hiMax := bandBounds(p.L, p.sigma, smax)
+	fl, fh := min(loMin, loMax), max(hiMin, hiMax)
+	if p.L/2 > smin && p.L/2 < smax {
+		fh = p.sTop
+	}
+	gl, _ := gaussBounds(dfar / p.sigma)
+	_, gh := gaussBounds(dnear / p.sigma)
+	return p.ratio * gl * fl, p.ratio * gh * fh
+}
+
+// Tables for the bounds of slanted pieces: Φ(x) and exp(-x²/2) at steps
+// of 1/boundSteps, so that a bound costs two lookups instead of erfc and
+// exp. Both functions are monotone between table points, so the values at
+// the points on either side bracket the value between them; the bounds
+// stay rigorous and are looser by at most one step's change.
+const boundSteps = 128
+
+var phiTable, gaussTable = boundTables()
+
+func boundTables() (phi, gauss []float64) {
+	phi = make([]float64, 16*boundSteps+1) // x from -8 to 8
+	for k := range phi {
+		phi[k] = normalCDF(-8 + float64(k)/boundSteps)
+	}
+	gauss = make([]float64, 40*boundSteps+1) // x from 0 to 40
+	for k := range gauss {
+		x := float64(k) / boundSteps
+		gauss[k] = math.Exp(-x * x / 2)
+	}
+	return phi, gauss
+}
+
+// bracket returns table indices k, k+1 whose points x0 + k/boundSteps lie
+// at or below and at or above x, for x inside the table.
+func bracket(x, x0 float64, n int) (int, int) {
+	k := min(int((x-x0)*boundSteps), n-1)
+	if x0+float64(k)/boundSteps > x {
+		k--
+	}
+	if k+1 < n && x0+float64(k+1)/boundSteps <= x {
+		k++
+	}
+	k = max(k, 0)
+	if x0+float64(k)/boundSteps == x {
+		return k, k
+	}
+	return k, min(k+1, n-1)
+}
+
+// phiBounds returns lo <= Φ(x) <= hi.
+func phiBounds(x float64) (lo, hi float64) {
+	t := phiTable
+	switch {
+	case x <= -8:
+		return 0, t[0]
+	case x >= 8:
+		return t[len(t)-1], 1
+	}
+	a, b := bracket(x, -8, len(t))
+	return t[a], t[b]
+}
+
+// gaussBounds returns lo <= exp(-x²/2) <= hi for x >= 0.
+func gaussBounds(x float64) (lo, hi float64) {
+	t := gaussTable
+	if x >= 40 {
+		return 0, t[len(t)-1]
+	}
+	a, b := bracket(x, 0, len(t))
+	return t[b], t[a]
+}
+
+// bandBounds returns lo <= band(0, L, σ, s) <= hi: the share Φ((L-s)/σ) -
+// Φ(-s/σ).
+func bandBounds(L, sigma, s float64) (lo, hi float64) {
+	bl, bh := phiBounds((L - s) / sigma)
+	al, ah := phiBounds(-s / sigma)
+	return max(0, bl-ah), min(1, bh-al)
 }
 
 // leaf doses the one site of r exactly.
@@ -561,8 +686,8 @@ func (ck *coverageCheck) leaf(r siteRect, active []*piece) {
 // classifyRect classifies every site of r as cleared or not, line by
 // line (see classifyRange).
 func (ck *coverageCheck) classifyRect(r siteRect, active []*piece, cleared bool, e float64, who int32) {
-	if cleared && ck.tolerated(r, active) {
-		return // painted sites clear, and the rest are within the allowance
+	if cleared && (!ck.unpaintedIn(r) || ck.tolerated(r, active)) {
+		return // painted sites clear, and the rest (if any) are within the allowance
 	}
 	for l := r.l0; l < r.l1; l++ {
 		row := rowLine{t: r.t, r: l / 2, side: l % 2, pw: ck.painted.Row(r.t, l/2)}
@@ -579,17 +704,103 @@ type rowLine struct {
 // classifyRange classifies every site of dimers [d0, d1) of a row line
 // as cleared or not: a painted site not cleared is uncovered, an existing
 // unpainted site cleared may be overcleared. Only those sites are
-// visited, a word at a time.
+// visited, a word at a time; for a cleared range only the dimers that
+// exist on the row's terrace (existSpans) are looked at.
 func (ck *coverageCheck) classifyRange(row *rowLine, active []*piece, d0, d1 int, cleared bool, e float64, who int32) {
+	if !cleared {
+		from, to := 2*d0+row.side, 2*(d1-1)+row.side+1
+		if !anyParity(row.pw, from, to, uint64(0x5555555555555555)<<uint(row.side)) {
+			return // nothing painted here to be uncovered
+		}
+		ck.classifyWords(row, active, d0, d1, false, e, who, nil)
+		return
+	}
+	exist := ck.existSpans(row.t, row.r)
+	for _, dr := range ck.existDimers(row.t, row.r) {
+		if lo, hi := max(dr[0], d0), min(dr[1], d1); lo < hi {
+			ck.classifyWords(row, active, lo, hi, true, e, who, exist)
+		}
+	}
+}
+
+// unpaintedIn reports whether r holds an existing site that is not
+// painted.
+func (ck *coverageCheck) unpaintedIn(r siteRect) bool {
+	for row := r.l0 / 2; row <= (r.l1-1)/2; row++ {
+		mask := ^uint64(0)
+		if 2*row < r.l0 {
+			mask = 0xAAAAAAAAAAAAAAAA // side 1 only
+		} else if 2*row+1 >= r.l1 {
+			mask = 0x5555555555555555 // side 0 only
+		}
+		w := ck.painted.Row(r.t, row)
+		for _, dr := range ck.existDimers(r.t, row) {
+			if lo, hi := max(dr[0], r.d0), min(dr[1], r.d1); lo < hi && anyClear(w, 2*lo, 2*hi, mask) {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// anyClear reports whether w (taken as 0 beyond its end) has a clear bit
+// of the mask in [from, to).
+func anyClear(w []uint64, from, to int, mask uint64) bool {
+	if to > len(w)*64 {
+		return true
+	}
+	for k := from / 64; k*64 < to; k++ {
+		if ^w[k]&mask&rangeMask(k, from, to) != 0 {
+			return true
+		}
+	}
+	return false
+}
+
+// rangeMask returns the bits of word k (indices 64k..64k+63) that lie in
+// [from, to).
+func rangeMask(k, from, to int) uint64 {
+	m := ^uint64(0)
+	if lo := from - k*64; lo > 0 {
+		m <<= uint(lo)
+	}
+	if hi := to - k*64; hi < 64 {
+		m &= (1 << uint(hi)) - 1
+	}
+	return m
+}
+
+// dimersIn returns the dimers [lo, hi) whose along coordinate d·DimerPitch
+// lies in sp to within 1e-9 nm, the test inSpans makes.
+func dimersIn(sp span) (lo, hi int) {
+	lo = int(math.Ceil((sp.lo - 1e-9) / lattice.DimerPitch))
+	for float64(lo-1)*lattice.DimerPitch >= sp.lo-1e-9 {
+		lo--
+	}
+	for float64(lo)*lattice.DimerPitch < sp.lo-1e-9 {
+		lo++
+	}
+	hi = int(math.Floor((sp.hi+1e-9)/lattice.DimerPitch)) + 1
+	for float64(hi)*lattice.DimerPitch <= sp.hi+1e-9 {
+		hi++
+	}
+	for float64(hi-1)*lattice.DimerPitch > sp.hi+1e-9 {
+		hi--
+	}
+	return max(lo, 0), hi
+}
+
+// classifyWords classifies the painted sites (not cleared) or the
+// unpainted sites (cleared) of dimers [d0, d1) of a row line, a word at a
+// time; for cleared ones those dimers all exist (exist is the row's
+// existSpans).
+func (ck *coverageCheck) classifyWords(row *rowLine, active []*piece, d0, d1 int, cleared bool, e float64, who int32, exist []span) {
 	from, to := 2*d0+row.side, 2*(d1-1)+row.side+1 // bit indices [from, to)
 	parity := uint64(0x5555555555555555) << uint(row.side)
 	// Cleared unpainted sites are usually within the edge allowance of
 	// the region dosing them most: look that up once for the row.
-	var allowed, exist []span
-	haveAllowed, haveExist := false, false
-	if !cleared && !anyParity(row.pw, from, to, parity) {
-		return // nothing painted here to be uncovered
-	}
+	var allowed []span
+	haveAllowed := false
 	for k := from / 64; k*64 < to; k++ {
 		var word uint64
 		if k < len(row.pw) {
@@ -599,30 +810,20 @@ func (ck *coverageCheck) classifyRange(row *rowLine, active []*piece, d0, d1 int
 		if cleared {
 			target = ^word & parity // unpainted sites: overcleared candidates
 		}
-		if lo := from - k*64; lo > 0 {
-			target &= ^uint64(0) << uint(lo)
-		}
-		if hi := to - k*64; hi < 64 {
-			target &= (1 << uint(hi)) - 1
-		}
+		target &= rangeMask(k, from, to)
 		for target != 0 {
 			b := trailingZeros(target)
 			target &= target - 1
 			site := lattice.SiteAt(row.t, row.r, k*64+b)
-			if !haveExist {
-				exist, haveExist = ck.existSpans(row.t, row.r), true
-			}
 			if cleared {
-				u := float64(site.Dimer) * lattice.DimerPitch
-				if !inSpans(exist, u) {
-					continue
-				}
 				if !haveAllowed {
 					allowed, haveAllowed = ck.allowedFor(who, row.t, row.r), true
 				}
-				if inSpans(allowed, u) {
+				if inSpans(allowed, float64(site.Dimer)*lattice.DimerPitch) {
 					continue
 				}
+			} else if exist == nil {
+				exist = ck.existSpans(row.t, row.r)
 			}
 			ck.classify(site, row.pw, exist, e, who, active)
 		}
@@ -656,7 +857,7 @@ func (ck *coverageCheck) classify(site lattice.Site, pw []uint64, exist []span, 
 			ck.nUnc++
 			if ck.nUnc <= coverageExamples {
 				ck.cov.Issues = append(ck.cov.Issues, fmt.Sprintf("uncovered: site %v of region %q at %s gets %.2f of the clearing dose",
-					site, ck.regionOf(site), fmtPoint(ck.surf.Position(site)), e))
+					site, ck.regionOf(site), fmtPoint(ck.surf.Position(site)), ck.doseAt(site, active)))
 			}
 		}
 		return
@@ -665,6 +866,18 @@ func (ck *coverageCheck) classify(site lattice.Site, pw []uint64, exist []span, 
 		return
 	}
 	ck.over(site, who, e, active)
+}
+
+// doseAt returns the site's dose share summed exactly over the pieces
+// (those that reach the range it was classified in): the value an issue
+// quotes, where the classification itself may have used a bound.
+func (ck *coverageCheck) doseAt(site lattice.Site, active []*piece) float64 {
+	u, y := float64(site.Dimer)*lattice.DimerPitch, lineY(2*site.Row+site.Side)
+	sum := 0.0
+	for _, p := range active {
+		sum += p.at(u, y)
+	}
+	return sum
 }
 
 // over records a cleared site outside every region unless a region
@@ -706,33 +919,51 @@ func (ck *coverageCheck) over(site lattice.Site, who int32, e float64, active []
 	}
 	ck.nOver++
 	if ck.nOver <= coverageExamples {
-		what := fmt.Sprintf("%.2f of the clearing dose", e)
-		if math.IsInf(e, 1) {
-			what = "a dwell"
+		what := "a dwell"
+		if !math.IsInf(e, 1) {
+			what = fmt.Sprintf("%.2f of the clearing dose", ck.doseAt(site, active))
 		}
 		ck.cov.Issues = append(ck.cov.Issues, fmt.Sprintf("overcleared: site %v at %s, outside every region and beyond the edge allowance of region %q, gets %s",
 			site, fmtPoint(ck.surf.Position(site)), name, what))
 	}
 }
 
+// rowSpans caches one sorted span list per row, computed on first use.
+type rowSpans struct {
+	spans [][]span
+	done  []bool
+}
+
+func newRowSpans(rows int) rowSpans {
+	return rowSpans{spans: make([][]span, rows), done: make([]bool, rows)}
+}
+
+// keep copies sp into the check's span storage, which cached lists share
+// (a few allocations in all instead of one per row).
+func (ck *coverageCheck) keep(sp []span) []span {
+	if len(sp) > cap(ck.slab)-len(ck.slab) {
+		ck.slab = make([]span, 0, max(4096, len(sp)))
+	}
+	start := len(ck.slab)
+	ck.slab = append(ck.slab, sp...)
+	return ck.slab[start:len(ck.slab):len(ck.slab)]
+}
+
 // allowedCached returns allowedSpans(ri, t, r, dist), computed once per
 // row and region (dist is the same for every call with one region's
 // mode).
 func (ck *coverageCheck) allowedCached(ri, t, r int, dist float64) []span {
-	key := [2]int{ri, t}
-	rows, ok := ck.allowed[key]
-	if !ok {
-		rows = make([]*[]span, ck.surf.RowCount(t))
-		ck.allowed[key] = rows
+	rows := &ck.allowed[ri*len(ck.surf.Terraces)+t]
+	if rows.spans == nil {
+		*rows = newRowSpans(ck.surf.RowCount(t))
 	}
-	if r >= len(rows) {
-		return ck.allowedSpans(ri, t, r, dist)
+	if r >= len(rows.spans) {
+		return ck.keep(ck.allowedSpans(ri, t, r, dist))
 	}
-	if rows[r] == nil {
-		sp := ck.allowedSpans(ri, t, r, dist)
-		rows[r] = &sp
+	if !rows.done[r] {
+		rows.spans[r], rows.done[r] = ck.keep(ck.allowedSpans(ri, t, r, dist)), true
 	}
-	return *rows[r]
+	return rows.spans[r]
 }
 
 // near reports whether region ri has a site within dist of the site q
@@ -767,55 +998,108 @@ func (ck *coverageCheck) near(ri int, q lattice.Site, dist float64) bool {
 // twice HOffset, a slight overestimate of nearness by at most HOffset).
 func (ck *coverageCheck) allowedSpans(ri, t, r int, dist float64) []span {
 	rows := ck.regionRows(ri, t)
-	sp := ck.spanBuf[:0]
+	// Each row's extents are sorted and disjoint: merge them into the
+	// union row by row (a row with every other site painted has a run per
+	// site, so sorting them all would cost more).
+	acc, next := ck.spanBuf[:0], ck.spanBuf2[:0]
 	k := int(math.Ceil((dist + 2*lattice.HOffset) / lattice.RowSpacing))
 	for rr := max(0, r-k); rr <= r+k && rr < len(rows); rr++ {
-		dy := math.Max(0, math.Abs(float64(rr-r))*lattice.RowSpacing-2*lattice.HOffset)
+		dy := max(0, math.Abs(float64(rr-r))*lattice.RowSpacing-2*lattice.HOffset)
 		if dy > dist || len(rows[rr]) == 0 {
 			continue
 		}
-		h := math.Sqrt(dist*dist - dy*dy)
-		for _, run := range rows[rr] {
-			sp = append(sp, span{run.lo - h, run.hi + h})
+		next = unionWidened(next[:0], acc, rows[rr], math.Sqrt(dist*dist-dy*dy))
+		acc, next = next, acc
+	}
+	ck.spanBuf, ck.spanBuf2 = acc, next
+	return acc
+}
+
+// unionWidened appends to dst the union of the sorted, disjoint spans a
+// and the sorted spans b each widened by h at both ends, joining spans
+// that meet, and returns dst.
+func unionWidened(dst, a, b []span, h float64) []span {
+	add := func(s span) {
+		if n := len(dst); n > 0 && s.lo <= dst[n-1].hi {
+			dst[n-1].hi = max(dst[n-1].hi, s.hi)
+			return
+		}
+		dst = append(dst, s)
+	}
+	i, j := 0, 0
+	for i < len(a) || j < len(b) {
+		if j == len(b) || (i < len(a) && a[i].lo <= b[j].lo-h) {
+			add(a[i])
+			i++
+		} else {
+			add(span{b[j].lo - h, b[j].hi + h})
+			j++
 		}
 	}
-	slices.SortFunc(sp, func(a, b span) int { return cmp.Compare(a.lo, b.lo) })
-	ck.spanBuf = sp
-	return slices.Clone(mergeSorted(sp))
+	return dst
 }
 
 // regionRows returns, per row of terrace t, the along extents (dimer
 // centres, nm from the terrace offset) of region ri's runs, computed once.
 func (ck *coverageCheck) regionRows(ri, t int) [][]span {
-	key := [2]int{ri, t}
-	if rows, ok := ck.rows[key]; ok {
-		return rows
+	e := &ck.rows[ri*len(ck.surf.Terraces)+t]
+	if e.done {
+		return e.rows
 	}
+	// The rows' extents share one slice, about one run per row (slices
+	// of it stay valid when it grows).
 	set := ck.regions[ri].Sites
 	rows := make([][]span, set.RowCount(t))
-	for run := range set.Runs() {
-		if run.Terrace == t {
-			rows[run.Row] = append(rows[run.Row], span{float64(run.Start/2) * lattice.DimerPitch, float64((run.End()-1)/2) * lattice.DimerPitch})
+	all := make([]span, 0, len(rows))
+	for r := range rows {
+		start := len(all)
+		all = appendRunExtents(all, set.Row(t, r))
+		if len(all) > start {
+			rows[r] = all[start:len(all):len(all)]
 		}
 	}
-	ck.rows[key] = rows
+	e.rows, e.done = rows, true
 	return rows
 }
 
-func mergeSorted(sp []span) []span {
-	if len(sp) == 0 {
-		return nil
-	}
-	out := sp[:1]
-	for _, s := range sp[1:] {
-		last := &out[len(out)-1]
-		if s.lo <= last.hi {
-			last.hi = math.Max(last.hi, s.hi)
-		} else {
-			out = append(out, s)
+// regionExtents caches regionRows for one region and terrace.
+type regionExtents struct {
+	rows [][]span
+	done bool
+}
+
+// appendRunExtents appends, for each maximal run of set bits of a row's
+// bitset (sites start..end-1), the along extent of its dimer centres,
+// [start/2, (end-1)/2]·DimerPitch, and returns dst.
+func appendRunExtents(dst []span, w []uint64) []span {
+	start := -1 // the open run's first site
+	for k, x := range w {
+		if x == 0 {
+			continue
+		}
+		var prev, next uint64
+		if k > 0 {
+			prev = w[k-1] >> 63
+		}
+		if k+1 < len(w) {
+			next = w[k+1] << 63
+		}
+		starts := x &^ (x<<1 | prev) // first sites of runs
+		lasts := x &^ (x>>1 | next)  // last sites of runs
+		for starts|lasts != 0 {
+			// The lower of the next start and the next last: a start
+			// comes first where both are the same site (a run of one).
+			if starts != 0 && (lasts == 0 || bits.TrailingZeros64(starts) <= bits.TrailingZeros64(lasts)) {
+				start = k*64 + bits.TrailingZeros64(starts)
+				starts &= starts - 1
+				continue
+			}
+			end := k*64 + bits.TrailingZeros64(lasts) + 1
+			lasts &= lasts - 1
+			dst = append(dst, span{float64(start/2) * lattice.DimerPitch, float64((end-1)/2) * lattice.DimerPitch})
 		}
 	}
-	return out
+	return dst
 }
 
 // nearOn reports whether set has a site on terrace t within dist of p.
@@ -828,7 +1112,7 @@ func (ck *coverageCheck) nearOn(set *lattice.SiteSet, t int, p r2.Point, dist fl
 		if w == nil {
 			continue
 		}
-		dy := math.Max(0, math.Abs(ac-float64(r)*lattice.RowSpacing)-lattice.HOffset)
+		dy := max(0, math.Abs(ac-float64(r)*lattice.RowSpacing)-lattice.HOffset)
 		if dy > dist {
 			continue
 		}
@@ -863,17 +1147,22 @@ func anyBit(w []uint64, from, to int) bool {
 // paintedExtent returns the first and last dimer with a painted site on
 // the given side of a row, or -1, -1.
 func paintedExtent(w []uint64, side int) (first, last int) {
-	first, last = -1, -1
 	mask := uint64(0x5555555555555555) << uint(side)
 	for k, word := range w {
 		if m := word & mask; m != 0 {
-			if first < 0 {
-				first = (k*64 + trailingZeros(m)) / 2
-			}
-			last = (k*64 + 63 - leadingZeros(m)) / 2
+			first = (k*64 + trailingZeros(m)) / 2
+			break
+		}
+		if k == len(w)-1 {
+			return -1, -1
 		}
 	}
-	return first, last
+	for k := len(w) - 1; k >= 0; k-- {
+		if m := w[k] & mask; m != 0 {
+			return first, (k*64 + 63 - leadingZeros(m)) / 2
+		}
+	}
+	return -1, -1
 }
 
 func (ck *coverageCheck) regionOf(site lattice.Site) string {
@@ -891,12 +1180,25 @@ func (ck *coverageCheck) regionOf(site lattice.Site) string {
 // without a boundary takes what no bounded terrace holds), as
 // Surface.TerraceAt decides.
 func (ck *coverageCheck) existSpans(t, r int) []span {
-	if p := ck.exist[t][r]; p != nil {
-		return *p
+	e := &ck.exist[t]
+	if !e.done[r] {
+		sp := ck.computeExist(t, r)
+		e.spans[r], e.done[r] = sp, true
+		ds := make([][2]int, 0, len(sp))
+		for _, x := range sp {
+			if lo, hi := dimersIn(x); lo < hi {
+				ds = append(ds, [2]int{lo, hi})
+			}
+		}
+		ck.existDim[t][r] = ds
 	}
-	sp := ck.computeExist(t, r)
-	ck.exist[t][r] = &sp
-	return sp
+	return e.spans[r]
+}
+
+// existDimers returns the dimer ranges [lo, hi) of existSpans(t, r).
+func (ck *coverageCheck) existDimers(t, r int) [][2]int {
+	ck.existSpans(t, r)
+	return ck.existDim[t][r]
 }
 
 func (ck *coverageCheck) computeExist(t, r int) []span {
@@ -906,7 +1208,7 @@ func (ck *coverageCheck) computeExist(t, r int) []span {
 	// The field along this line.
 	a0, _ := terraceAxes(surf, t, surf.Field.Lo())
 	a1, _ := terraceAxes(surf, t, surf.Field.Hi())
-	spans := []span{{math.Min(a0, a1), math.Max(a0, a1)}}
+	spans := []span{{min(a0, a1), max(a0, a1)}}
 	if len(surf.Terraces) == 1 {
 		return spans
 	}
@@ -945,15 +1247,30 @@ func (ck *coverageCheck) computeExist(t, r int) []span {
 // inSpans reports whether x lies in one of the sorted, disjoint spans
 // (to within 1e-9 nm).
 func inSpans(sp []span, x float64) bool {
-	i := sort.Search(len(sp), func(i int) bool { return sp[i].hi+1e-9 >= x })
+	i := firstReaching(sp, x)
 	return i < len(sp) && x >= sp[i].lo-1e-9
+}
+
+// firstReaching returns the first of the sorted, disjoint spans whose end
+// reaches x (to within 1e-9 nm), or len(sp).
+func firstReaching(sp []span, x float64) int {
+	lo, hi := 0, len(sp)
+	for lo < hi {
+		m := int(uint(lo+hi) >> 1)
+		if sp[m].hi+1e-9 >= x {
+			hi = m
+		} else {
+			lo = m + 1
+		}
+	}
+	return lo
 }
 
 func intersectSpans(a, b []span) []span {
 	var out []span
 	for _, x := range a {
 		for _, y := range b {
-			lo, hi := math.Max(x.lo, y.lo), math.Min(x.hi, y.hi)
+			lo, hi := max(x.lo, y.lo), min(x.hi, y.hi)
 			if hi > lo {
 				out = append(out, span{lo, hi})
 			}
@@ -1003,12 +1320,23 @@ func newTerraceGrid(surf *lattice.Surface) *terraceGrid {
 		raw[t] = make([]bool, g.nx*g.ny)
 		g.cells[t] = make([]bool, g.nx*g.ny)
 	}
+	// Each cell is sampled at its corners, edge midpoints and centre:
+	// points every half cell, each shared by the cells that meet there.
+	sx, sy := 2*g.nx+1, 2*g.ny+1
+	at := make([]int, sx*sy)
+	for j := range sy {
+		for i := range sx {
+			p := r2.Point{X: min(float64(i)*(terraceCellNM/2), surf.Width()), Y: min(float64(j)*(terraceCellNM/2), surf.Height())}
+			at[j*sx+i] = surf.TerraceAt(p)
+		}
+	}
 	for j := 0; j < g.ny; j++ {
 		for i := 0; i < g.nx; i++ {
-			for _, f := range [][2]float64{{0, 0}, {0.5, 0}, {1, 0}, {0, 0.5}, {0.5, 0.5}, {1, 0.5}, {0, 1}, {0.5, 1}, {1, 1}} {
-				p := r2.Point{X: math.Min((float64(i)+f[0])*terraceCellNM, surf.Width()), Y: math.Min((float64(j)+f[1])*terraceCellNM, surf.Height())}
-				if t := surf.TerraceAt(p); t >= 0 {
-					raw[t][j*g.nx+i] = true
+			for dj := range 3 {
+				for di := range 3 {
+					if t := at[(2*j+dj)*sx+2*i+di]; t >= 0 {
+						raw[t][j*g.nx+i] = true
+					}
 				}
 			}
 		}
@@ -1075,14 +1403,7 @@ func (g *terraceGrid) holds(surf *lattice.Surface, r siteRect) bool {
 func anyParity(w []uint64, from, to int, parity uint64) bool {
 	to = min(to, len(w)*64)
 	for k := from / 64; k*64 < to; k++ {
-		word := w[k] & parity
-		if lo := from - k*64; lo > 0 {
-			word &= ^uint64(0) << uint(lo)
-		}
-		if hi := to - k*64; hi < 64 {
-			word &= (1 << uint(hi)) - 1
-		}
-		if word != 0 {
+		if w[k]&parity&rangeMask(k, from, to) != 0 {
 			return true
 		}
 	}

@@ -1,6 +1,10 @@
 package planner
 
 import (
+	"cmp"
+	"math"
+	"math/rand/v2"
+	"slices"
 	"strings"
 	"testing"
 
@@ -73,7 +77,7 @@ func TestCoverageMatchesBruteForce(t *testing.T) {
 	broken = broken[1:] // drop the first AP line of the island
 	for _, set := range [][]Stroke{ss, broken} {
 		cov := CheckCoverage(lay.Surface, cr, set, prof)
-		unc, _ := bruteCoverage(lay.Surface, cr, set, prof)
+		unc, _, _ := bruteCoverage(lay.Surface, cr, set, prof)
 		if cov.Uncovered != unc {
 			t.Errorf("CheckCoverage finds %d uncovered sites, brute force %d", cov.Uncovered, unc)
 		}
@@ -147,6 +151,171 @@ func TestCoverageDemo(t *testing.T) {
 		}
 		if !p.Coverage.OK {
 			t.Errorf("variant %s: coverage %+v", v, p.Coverage)
+		}
+	}
+}
+
+// stepDesign has a single-height step crossing an FE pad, an FE fan
+// slanted to the rows (so its serpentine turns are slanted pieces) and
+// an AP rectangle, on a 160 x 100 nm field.
+func stepDesign() *design.Design {
+	d := testDesign(160, 100,
+		design.Region{Name: "wire", Role: design.RoleDevice, Mode: design.ModeAP, Shapes: []design.Shape{rect(10, 10, 30, 14)}},
+		design.Region{Name: "fan", Role: design.RoleLead, Mode: design.ModeFE, Shapes: []design.Shape{{Kind: design.ShapePolyline, Points: [][2]float64{{20, 30}, {60, 80}}, WidthNM: 14}}},
+		design.Region{Name: "pad", Role: design.RolePad, Mode: design.ModeFE, Shapes: []design.Shape{rect(80, 20, 150, 80)}},
+	)
+	d.Terraces = []design.Terrace{
+		{Name: "lower", Rows: "x"},
+		{Name: "upper", Boundary: [][2]float64{{110, 0}, {160, 0}, {160, 100}, {118, 100}}, StepFrom: "lower"},
+	}
+	return d
+}
+
+// The fast check finds the uncovered sites the brute force (every site,
+// every piece) finds, across a step and with slanted pieces, for the
+// generated strokes and for strokes broken on purpose (some left out,
+// some shifted by up to 6 nm); it may also count the few sites that only
+// the pieces it neglects (under 1 % of the clearing dose each) would
+// clear.
+func TestCoverageMatchesBruteForceAcrossAStep(t *testing.T) {
+	prof := DefaultProfile()
+	ss, cr, lay := generate(t, stepDesign(), prof)
+	if len(lay.Surface.Terraces) != 2 {
+		t.Fatalf("%d terraces", len(lay.Surface.Terraces))
+	}
+	rng := rand.New(rand.NewPCG(5, 8))
+	for trial := range 6 {
+		set := make([]Stroke, 0, len(ss))
+		for _, s := range ss {
+			if trial > 0 && rng.IntN(6) == 0 {
+				continue // left out
+			}
+			s.Path = append([]r2.Point(nil), s.Path...)
+			if trial > 0 && rng.IntN(8) == 0 {
+				off := r2.Point{X: 12 * (rng.Float64() - 0.5), Y: 12 * (rng.Float64() - 0.5)}
+				for i := range s.Path {
+					s.Path[i] = s.Path[i].Add(off)
+				}
+			}
+			set = append(set, s)
+		}
+		cov := CheckCoverage(lay.Surface, cr, set, prof)
+		unc, _, marginal := bruteCoverage(lay.Surface, cr, set, prof)
+		if cov.Uncovered < unc || cov.Uncovered > unc+marginal {
+			t.Errorf("trial %d: CheckCoverage finds %d uncovered sites, brute force %d (and %d marginal)", trial, cov.Uncovered, unc, marginal)
+		}
+		if trial == 0 && !cov.OK {
+			t.Errorf("generated strokes: %+v", cov)
+		}
+		if trial > 0 && unc == 0 {
+			t.Errorf("trial %d broke nothing: the test needs another seed", trial)
+		}
+	}
+}
+
+// appendRunExtents finds the same runs as SiteSet.Runs.
+func TestRunExtentsMatchRuns(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 30))
+	for range 40 {
+		set := lattice.NewSiteSet()
+		for range 1 + rng.IntN(30) {
+			row, from := rng.IntN(4), rng.IntN(300)
+			set.AddRun(0, row, from, from+1+rng.IntN(rng.IntN(140)+1))
+		}
+		for range rng.IntN(30) {
+			row, from := rng.IntN(4), rng.IntN(300)
+			set.RemoveRun(0, row, from, from+1+rng.IntN(8))
+		}
+		var want []span
+		for run := range set.Runs() {
+			want = append(want, span{float64(run.Start/2) * lattice.DimerPitch, float64((run.End()-1)/2) * lattice.DimerPitch})
+		}
+		var got []span
+		for row := range set.RowCount(0) {
+			got = appendRunExtents(got, set.Row(0, row))
+		}
+		if !slices.Equal(got, want) {
+			t.Fatalf("extents %v, Runs give %v", got, want)
+		}
+	}
+}
+
+// unionWidened gives the union that sorting all the widened spans and
+// merging them gives.
+func TestUnionWidenedMatchesSortAndMerge(t *testing.T) {
+	rng := rand.New(rand.NewPCG(4, 40))
+	sorted := func(n int) []span {
+		var sp []span
+		x := 0.0
+		for range n {
+			x += rng.Float64() * 3
+			lo := x
+			x += rng.Float64() * 2
+			sp = append(sp, span{lo, x})
+		}
+		return sp
+	}
+	for range 200 {
+		var acc []span
+		var all []span
+		for range 1 + rng.IntN(6) {
+			b, h := sorted(rng.IntN(12)), rng.Float64()*1.5
+			for _, s := range b {
+				all = append(all, span{s.lo - h, s.hi + h})
+			}
+			acc = unionWidened(nil, acc, b, h)
+		}
+		slices.SortFunc(all, func(a, b span) int { return cmp.Compare(a.lo, b.lo) })
+		want := mergeSpans(all, 0)
+		if len(acc) == 0 && len(want) == 0 {
+			continue
+		}
+		if !slices.Equal(acc, want) {
+			t.Fatalf("union %v, sort and merge %v", acc, want)
+		}
+	}
+}
+
+// The tables bracket Φ, the Gaussian and the band factor, within one
+// step's change of the exact value.
+func TestBoundTablesBracket(t *testing.T) {
+	rng := rand.New(rand.NewPCG(6, 60))
+	for range 20000 {
+		x := 24 * (rng.Float64() - 0.5)
+		if lo, hi := phiBounds(x); !(lo <= normalCDF(x) && normalCDF(x) <= hi && hi-lo < 0.004) {
+			t.Fatalf("Φ(%g) = %g outside [%g, %g]", x, normalCDF(x), lo, hi)
+		}
+		ax := math.Abs(x) * 2
+		if lo, hi := gaussBounds(ax); !(lo <= gauss(ax, 1) && gauss(ax, 1) <= hi && hi-lo < 0.006) {
+			t.Fatalf("exp(-x²/2) at %g = %g outside [%g, %g]", ax, gauss(ax, 1), lo, hi)
+		}
+		L, sigma, s := 30*rng.Float64(), 0.2+3*rng.Float64(), 40*(rng.Float64()-0.3)
+		if lo, hi := bandBounds(L, sigma, s); !(lo <= band(0, L, sigma, s) && band(0, L, sigma, s) <= hi) {
+			t.Fatalf("band(0, %g, %g, %g) = %g outside [%g, %g]", L, sigma, s, band(0, L, sigma, s), lo, hi)
+		}
+	}
+	// On a table point the bracket is the point.
+	if lo, hi := phiBounds(0); lo != 0.5 || hi != 0.5 {
+		t.Errorf("Φ(0) in [%g, %g]", lo, hi)
+	}
+}
+
+// dimersIn picks exactly the dimers inSpans accepts.
+func TestDimersInMatchesInSpans(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 70))
+	for range 500 {
+		lo := 50 * rng.Float64()
+		if rng.IntN(4) == 0 {
+			lo = float64(rng.IntN(100)) * lattice.DimerPitch // on a dimer
+		}
+		hi := lo + 10*rng.Float64()
+		sp := span{lo, hi}
+		a, b := dimersIn(sp)
+		for d := 0; d < 200; d++ {
+			in := inSpans([]span{sp}, float64(d)*lattice.DimerPitch)
+			if in != (d >= a && d < b) {
+				t.Fatalf("span %v: dimer %d inSpans %v, dimersIn [%d, %d)", sp, d, in, a, b)
+			}
 		}
 	}
 }

@@ -23,7 +23,16 @@ type runSeg struct {
 
 // runSegments returns the runs of set as field segments.
 func runSegments(surf *lattice.Surface, set *lattice.SiteSet) []runSeg {
-	var out []runSeg
+	// About one run per row to start with.
+	n := 0
+	for t := 0; t < len(surf.Terraces) && t < set.TerraceCount(); t++ {
+		for r := 0; r < set.RowCount(t); r++ {
+			if len(set.Row(t, r)) > 0 {
+				n++
+			}
+		}
+	}
+	out := make([]runSeg, 0, n)
 	for run := range set.Runs() {
 		if run.Terrace >= len(surf.Terraces) {
 			continue
@@ -62,29 +71,45 @@ func (s span) length() float64 { return s.hi - s.lo }
 // chordIndex holds run segments for chord queries along one field
 // axis: the rows along that axis sorted by their across coordinate, so a
 // query looks only at the rows near its line, and the rows across it.
+// Each segment is kept as its key and extent only.
 type chordIndex struct {
-	axis   int
-	along  []runSeg  // rows along axis, sorted by the other coordinate
-	keys   []float64 // their other coordinate
-	across []runSeg  // rows across axis
+	along  []chordSeg // rows along axis, by key: the other coordinate
+	keys   []float64  // their keys
+	across []chordSeg // rows across axis, by key: the coordinate along axis
+	buf    []span     // chords' result
 }
 
+// chordSeg is one run segment: its line's coordinate (key) and the
+// extent of its dimer centres along that line (lo, hi).
+type chordSeg struct{ key, lo, hi float64 }
+
 func newChordIndex(segs []runSeg, axis int) *chordIndex {
-	ix := &chordIndex{axis: axis}
+	ix := &chordIndex{}
 	other := 1 - axis
+	n := 0
 	for _, s := range segs {
 		if s.along == axis {
-			ix.along = append(ix.along, s)
-		} else {
-			ix.across = append(ix.across, s)
+			n++
 		}
 	}
-	sort.Slice(ix.along, func(i, j int) bool { return coord(ix.along[i].a, other) < coord(ix.along[j].a, other) })
+	ix.along = make([]chordSeg, 0, n)
+	ix.across = make([]chordSeg, 0, len(segs)-n)
+	for _, s := range segs {
+		if s.along == axis {
+			a, b := coord(s.a, axis), coord(s.b, axis)
+			ix.along = append(ix.along, chordSeg{coord(s.a, other), min(a, b), max(a, b)})
+		} else {
+			a, b := coord(s.a, other), coord(s.b, other)
+			ix.across = append(ix.across, chordSeg{coord(s.a, axis), min(a, b), max(a, b)})
+		}
+	}
+	byKey := func(a, b chordSeg) int { return cmp.Compare(a.key, b.key) }
+	slices.SortFunc(ix.along, byKey)
 	// Rows across the axis in order along it, so their chords come sorted.
-	sort.Slice(ix.across, func(i, j int) bool { return coord(ix.across[i].a, axis) < coord(ix.across[j].a, axis) })
+	slices.SortFunc(ix.across, byKey)
 	ix.keys = make([]float64, len(ix.along))
 	for i, s := range ix.along {
-		ix.keys[i] = coord(s.a, other)
+		ix.keys[i] = s.key
 	}
 	return ix
 }
@@ -95,28 +120,26 @@ func newChordIndex(segs []runSeg, axis int) *chordIndex {
 // counts with the extent of its lattice cell (half a dimer pitch along its
 // row, half a row across); without, intervals run between site
 // positions.
+// The result is valid until the next call.
 func (ix *chordIndex) chords(c, half, gap float64, cells bool) []span {
-	axis, other := ix.axis, 1-ix.axis
 	alongPad, acrossPad := 0.0, lattice.HOffset
 	if cells {
 		alongPad, acrossPad = lattice.DimerPitch/2, lattice.RowSpacing/2
 	}
-	var sp []span
+	sp := ix.buf[:0]
+	defer func() { ix.buf = sp[:0] }()
 	// Rows along the axis: their sites lie at the row centre ± HOffset.
 	lo := sort.SearchFloat64s(ix.keys, c-half-lattice.HOffset)
 	for i := lo; i < len(ix.along) && ix.keys[i] <= c+half+lattice.HOffset; i++ {
 		s := ix.along[i]
-		a, b := coord(s.a, axis), coord(s.b, axis)
-		sp = append(sp, span{math.Min(a, b) - alongPad, math.Max(a, b) + alongPad})
+		sp = append(sp, span{s.lo - alongPad, s.hi + alongPad})
 	}
 	// Rows across the axis meet the line if their extent does.
 	for _, s := range ix.across {
-		a, b := coord(s.a, other), coord(s.b, other)
-		if math.Max(a, b)+lattice.DimerPitch/2 < c-half || math.Min(a, b)-lattice.DimerPitch/2 > c+half {
+		if s.hi+lattice.DimerPitch/2 < c-half || s.lo-lattice.DimerPitch/2 > c+half {
 			continue
 		}
-		x := coord(s.a, axis)
-		sp = append(sp, span{x - acrossPad, x + acrossPad})
+		sp = append(sp, span{s.key - acrossPad, s.key + acrossPad})
 	}
 	return mergeSpans(sp, gap)
 }
@@ -138,112 +161,6 @@ func mergeSpans(sp []span, gap float64) []span {
 		}
 	}
 	return out
-}
-
-// segDist returns the distance between segments ab and cd and the
-// midpoint of the shortest connection.
-func segDist(a, b, c, d r2.Point) (float64, r2.Point) {
-	if segmentsCross(a, b, c, d) {
-		return 0, a.Add(b).Add(c).Add(d).Mul(0.25)
-	}
-	best, at := math.Inf(1), r2.Point{}
-	try := func(p, q, r r2.Point) {
-		cp := closestOnSegment(p, q, r)
-		if dd := cp.Sub(r).Norm(); dd < best {
-			best, at = dd, cp.Add(r).Mul(0.5)
-		}
-	}
-	try(a, b, c)
-	try(a, b, d)
-	try(c, d, a)
-	try(c, d, b)
-	return best, at
-}
-
-// closestOnSegment returns the point of segment pq nearest r.
-func closestOnSegment(p, q, r r2.Point) r2.Point {
-	d := q.Sub(p)
-	l2 := d.Dot(d)
-	if l2 == 0 {
-		return p
-	}
-	t := math.Max(0, math.Min(1, r.Sub(p).Dot(d)/l2))
-	return p.Add(d.Mul(t))
-}
-
-func segmentsCross(a, b, c, d r2.Point) bool {
-	d1 := b.Sub(a).Cross(c.Sub(a))
-	d2 := b.Sub(a).Cross(d.Sub(a))
-	d3 := d.Sub(c).Cross(a.Sub(c))
-	d4 := d.Sub(c).Cross(b.Sub(c))
-	return ((d1 > 0 && d2 < 0) || (d1 < 0 && d2 > 0)) && ((d3 > 0 && d4 < 0) || (d3 < 0 && d4 > 0))
-}
-
-// segIndex buckets run segments in a uniform grid for nearest-distance
-// queries.
-type segIndex struct {
-	segs []runSeg
-	cell float64
-	grid map[[2]int32][]int32
-}
-
-func newSegIndex(segs []runSeg, cell float64) *segIndex {
-	ix := &segIndex{segs: segs, cell: cell, grid: map[[2]int32][]int32{}}
-	for i, s := range segs {
-		x0, y0, x1, y1 := ix.cells(r2.RectFromPoints(s.a, s.b))
-		for gx := x0; gx <= x1; gx++ {
-			for gy := y0; gy <= y1; gy++ {
-				k := [2]int32{gx, gy}
-				ix.grid[k] = append(ix.grid[k], int32(i))
-			}
-		}
-	}
-	return ix
-}
-
-func (ix *segIndex) cells(r r2.Rect) (x0, y0, x1, y1 int32) {
-	f := func(v float64) int32 { return int32(math.Floor(v / ix.cell)) }
-	return f(r.X.Lo), f(r.Y.Lo), f(r.X.Hi), f(r.Y.Hi)
-}
-
-// nearest returns the least distance from any of segs to a segment of
-// the index, looking no farther than limit; ok is false when none lies
-// within limit. Distances are between row centre lines less the site
-// offsets across the rows, so they approximate site-to-site gaps to
-// within HOffset.
-func (ix *segIndex) nearest(segs []runSeg, limit float64) (d float64, at r2.Point, ok bool) {
-	d = math.Inf(1)
-	seen := map[int32]bool{}
-	for _, s := range segs {
-		x0, y0, x1, y1 := ix.cells(r2.RectFromPoints(s.a, s.b).ExpandedByMargin(limit))
-		clear(seen)
-		for gx := x0; gx <= x1; gx++ {
-			for gy := y0; gy <= y1; gy++ {
-				for _, i := range ix.grid[[2]int32{gx, gy}] {
-					if seen[i] {
-						continue
-					}
-					seen[i] = true
-					o := ix.segs[i]
-					dd, p := segDist(s.a, s.b, o.a, o.b)
-					dd = math.Max(0, dd-siteSlack(s, o))
-					if dd < d {
-						d, at = dd, p
-					}
-				}
-			}
-		}
-	}
-	return d, at, d <= limit
-}
-
-// siteSlack is how much nearer two runs' sites may be than their centre
-// lines: HOffset for each run whose across direction faces the other.
-func siteSlack(a, b runSeg) float64 {
-	if a.along == b.along {
-		return 2 * lattice.HOffset
-	}
-	return lattice.HOffset
 }
 
 // erode returns the sites of set whose every lattice neighbour within

@@ -49,8 +49,11 @@ func layRegions(t testing.TB, d *design.Design) (*design.Layout, []CoverageRegio
 
 // bruteCoverage classifies every site of the surface by summing every
 // stroke piece's dose directly (no bounds, no row bookkeeping): the
-// reference the fast check must agree with.
-func bruteCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) (uncovered, cleared int) {
+// reference the fast check must agree with. marginal counts the painted
+// sites it finds cleared that would not be without the pieces giving them
+// less than coverageNeglect each: the check, which leaves such pieces
+// out, may call those uncovered.
+func bruteCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) (uncovered, cleared, marginal int) {
 	painted := lattice.NewSiteSet()
 	for _, r := range regions {
 		painted.Union(r.Sites)
@@ -72,7 +75,7 @@ func bruteCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []St
 						continue
 					}
 					q := surf.Position(site)
-					e := 0.0
+					e, small := 0.0, 0.0
 					for _, s := range strokes {
 						if s.Kind == StrokeDwell {
 							continue
@@ -95,12 +98,19 @@ func bruteCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []St
 							if dd < 0 {
 								dd = -dd
 							}
-							e += exposure(ratio, m.Width.SigmaNM, L, aq.Dot(u), dd)
+							x := exposure(ratio, m.Width.SigmaNM, L, aq.Dot(u), dd)
+							e += x
+							if x < coverageNeglect {
+								small += x
+							}
 						}
 					}
 					clear := e >= 1 || dwelled.Contains(site)
 					if painted.Contains(site) && !clear {
 						uncovered++
+					}
+					if painted.Contains(site) && clear && !dwelled.Contains(site) && e-small < 1 {
+						marginal++
 					}
 					if clear {
 						cleared++
@@ -109,5 +119,5 @@ func bruteCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []St
 			}
 		}
 	}
-	return uncovered, cleared
+	return uncovered, cleared, marginal
 }

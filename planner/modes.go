@@ -284,8 +284,7 @@ func (mc *modeChooser) setHybrid(r *regionWork, core *lattice.SiteSet, reason st
 // apFeature is one region's AP sites, indexed for keep-out distances.
 type apFeature struct {
 	region int
-	ix     *segIndex
-	bounds r2.Rect
+	ix     *lattice.CellIndex
 }
 
 // apFeatures indexes the sites of every region planned AP (windows
@@ -300,40 +299,47 @@ func (mc *modeChooser) apFeatures() []apFeature {
 		if r.mode == modeHybrid && r.fePart != nil {
 			owned = r.sites.Clone().Difference(r.fePart)
 		}
-		segs := mc.g.segsOf(owned)
-		if len(segs) == 0 {
-			continue
+		if ix := lattice.NewCellIndex(mc.g.surf, owned); !ix.IsEmpty() {
+			out = append(out, apFeature{region: r.index, ix: ix})
 		}
-		out = append(out, apFeature{region: r.index, ix: newSegIndex(segs, math.Max(2*mc.keepOut, 8)), bounds: segBounds(segs)})
 	}
 	return out
 }
 
+// segBounds returns the box of run segments' dimer centres.
 func segBounds(segs []runSeg) r2.Rect {
 	b := r2.EmptyRect()
 	for _, s := range segs {
 		b = b.AddPoint(s.a).AddPoint(s.b)
 	}
-	return b.ExpandedByMargin(lattice.HOffset)
+	return b
 }
 
 // gap returns the least distance from part (of region r) to an AP
 // feature of another region that it does not touch, and reports whether
-// it lies inside the keep-out. Features within one row spacing count as
-// touching (a connection), not as a keep-out breach.
+// it lies inside the keep-out. Distances are between site cells, as the
+// FE keep-out design rule measures them (lattice.CellIndex); a feature
+// within design.TouchNM touches (a connection, as the floating rule
+// sees it), which is no keep-out breach.
 func (mc *modeChooser) gap(feats []apFeature, r *regionWork, part *lattice.SiteSet) (float64, r2.Point, bool) {
 	if part == nil || part.IsEmpty() {
 		return 0, r2.Point{}, false
 	}
-	mine := mc.g.segsOf(part)
-	bounds := segBounds(mine).ExpandedByMargin(mc.keepOut)
+	// The part's run segments are made anyway (its strokes need them):
+	// their box, widened by a cell, rules out far features before the
+	// part's cells are indexed.
+	bounds := segBounds(mc.g.segsOf(part)).ExpandedByMargin(mc.keepOut + lattice.RowSpacing)
+	var mine *lattice.CellIndex
 	best, at := math.Inf(1), r2.Point{}
 	for _, f := range feats {
-		if f.region == r.index || !bounds.Intersects(f.bounds) {
+		if f.region == r.index || !bounds.Intersects(f.ix.Bounds()) {
 			continue
 		}
-		d, p, ok := f.ix.nearest(mine, mc.keepOut)
-		if ok && d > lattice.RowSpacing && d < best {
+		if mine == nil {
+			mine = lattice.NewCellIndex(mc.g.surf, part)
+		}
+		d, p, ok := f.ix.GapWithin(mine, mc.keepOut)
+		if ok && d > design.TouchNM && d < best {
 			best, at = d, p
 		}
 	}

@@ -187,8 +187,9 @@ func DefaultProfile() Profile {
 			LineDoseCPerCm: 5e-5,
 			Passes:         1,
 			// σ = 2.5 nm and λ_thr = λ/e² give 10 nm lines at the
-			// default dose: FE lines ~10 nm (Rudolph 2014), 3–10 nm
-			// typical, from memory.
+			// default dose: Rudolph 2014 report ~10 nm electrical
+			// definition in FE (their spot above 10 V is ~40 nm); 3–10 nm
+			// lines at +7–10 V are typical, from memory.
 			Width:   WidthModel{SigmaNM: 2.5, ThresholdDoseCPerCm: 5e-5 / (math.E * math.E)},
 			Overlap: 0.1, // common practice
 			// A Gaussian FE line clears out to half its width from its
@@ -218,9 +219,11 @@ func DefaultProfile() Profile {
 		// feedback settle, from memory.
 		ModeSwitchS: 30,
 		Drift: DriftProfile{
-			// Room temperature 0.1–1 nm/min once settled, from memory;
-			// the low end suits a thermally compensated instrument
-			// (Lyding et al., RSI 59, 1897 (1988): < 1 Å/h).
+			// Room temperature 0.1–1 nm/min once settled (up to 5 nm/min
+			// soon after large moves), from memory: the low end of that
+			// range. A thermally compensated instrument drifts far less
+			// (Lyding et al., RSI 59, 1897 (1988): < 1 Å/h, 0.0017
+			// nm/min), so a lab with one should calibrate this down.
 			RateNMPerMin:   0.1,
 			RateSDNMPerMin: 0.05, // ±50 %, from memory
 			// A 50×50 nm² registration image of 256 lines at ~1 s/line

@@ -191,15 +191,15 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 	pitch := m.Pitch()
 	end, side := g.feEnd, g.feSide
 	var out []Stroke
-	byTerrace := map[int][]runSeg{}
-	for _, s := range g.segsOf(set) {
-		byTerrace[s.run.Terrace] = append(byTerrace[s.run.Terrace], s)
-	}
-	for t := 0; t < set.TerraceCount(); t++ {
-		segs := byTerrace[t]
-		if len(segs) == 0 {
-			continue
+	all := g.segsOf(set) // in terrace order
+	for len(all) > 0 {
+		t := all[0].run.Terrace
+		n := 1
+		for n < len(all) && all[n].run.Terrace == t {
+			n++
 		}
+		segs := all[:n]
+		all = all[n:]
 		axis := 0
 		if g.surf.Terraces[t].Rows == lattice.RowsAlongY {
 			axis = 1

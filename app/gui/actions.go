@@ -14,6 +14,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 
 	"dimerpath/export"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -74,6 +75,8 @@ func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken
 	u.planCancel = nil
 	u.planButton.Enable()
 	u.hideProgress()
+	then := u.afterPlan
+	u.afterPlan = nil
 	if s != u.S {
 		return // another design was opened meanwhile
 	}
@@ -86,6 +89,9 @@ func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken
 		s.SetPlan(p, variant, tok)
 		u.tabs.Select(u.tabPlan)
 		u.hintLabel.SetText(fmt.Sprintf("Planned variant %s in %s.", variant, formatDuration(time.Since(u.planStarted).Seconds())))
+		if then != nil {
+			then()
+		}
 	}
 }
 
@@ -131,16 +137,16 @@ func (u *UI) CheckNow() {
 	ctx, cancel := context.WithCancel(context.Background())
 	u.checkCancel = cancel
 	go func() {
-		f, err := checkDesign(ctx, d, variant)
+		res, err := checkDesign(ctx, d, variant)
 		fyne.Do(func() {
 			if ctx.Err() != nil || s != u.S || variant != s.Variant().Name {
 				return
 			}
 			u.checkCancel = nil
 			if err != nil {
-				f = []Finding{{Rule: "design", Error: true, Message: err.Error()}}
+				res = CheckResult{Findings: []Finding{{Rule: "design", Error: true, Message: err.Error()}}}
 			}
-			s.SetFindings(f, tok)
+			s.SetCheck(res, tok)
 		})
 	}()
 }
@@ -148,11 +154,11 @@ func (u *UI) CheckNow() {
 // CheckSync runs the checks on the calling goroutine (tests, screenshot).
 func (u *UI) CheckSync() {
 	s := u.S
-	f, err := checkDesign(context.Background(), s.DesignCopy(), s.Variant().Name)
+	res, err := checkDesign(context.Background(), s.DesignCopy(), s.Variant().Name)
 	if err != nil {
-		f = []Finding{{Rule: "design", Error: true, Message: err.Error()}}
+		res = CheckResult{Findings: []Finding{{Rule: "design", Error: true, Message: err.Error()}}}
 	}
-	s.SetFindings(f, s.Token())
+	s.SetCheck(res, s.Token())
 }
 
 // compareVariants plans every variant in the background and shows the
@@ -169,13 +175,16 @@ func (u *UI) compareVariants() {
 	u.planButton.Disable()
 	u.showProgress("Comparing variants…", 0)
 	seed := u.opts.Seed
+	shown, tok := s.Variant().Name, s.Token()
 	go func() {
 		res := make([]export.VariantResult, len(names))
+		rules := make([]string, len(names))
 		for i, n := range names {
 			frac := 1 / float64(len(names))
 			opt := planner.Options{Seed: seed, Progress: u.progressFunc(fmt.Sprintf("variant %s (%d of %d): ", n, i+1, len(names)), frac, float64(i)*frac)}
 			p, err := buildPlan(ctx, d, n, prof, opt)
 			res[i] = export.VariantResult{Variant: n, Plan: p, Err: err}
+			rules[i] = rulesSummary(ctx, d, n)
 			if ctx.Err() != nil {
 				break
 			}
@@ -191,16 +200,46 @@ func (u *UI) compareVariants() {
 				u.hintLabel.SetText("Comparison cancelled.")
 				return
 			}
-			u.showComparison(res)
+			// The variant shown keeps its plan from the comparison, so it
+			// can be exported without planning it again.
+			for _, r := range res {
+				if r.Variant == shown && r.Err == nil && r.Plan != nil && s == u.S {
+					s.SetPlan(r.Plan, shown, tok)
+				}
+			}
+			u.showComparison(res, rules)
 		})
 	}()
+}
+
+// rulesSummary says how variant fares under the design rules: "passes",
+// "2 errors", "1 warning".
+func rulesSummary(ctx context.Context, d *design.Design, variant string) string {
+	res, err := checkDesign(ctx, d, variant)
+	if err != nil {
+		return "cannot be checked"
+	}
+	errs, warns := countFindings(res.Findings)
+	switch {
+	case errs > 0:
+		return plural(errs, "error")
+	case warns > 0:
+		return plural(warns, "warning")
+	}
+	return "passes"
 }
 
 // comparisonView is the table and charts of a comparison: per variant
 // the write time with its spread, the share spent on registrations, and
 // the dopant yield. The full breakdown is in the exported report.
-func comparisonView(res []export.VariantResult) fyne.CanvasObject {
+//
+// rules, when given, is each variant's design-rule summary, shown in a
+// last column: a fast variant that breaks the rules is no choice.
+func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObject {
 	header := []string{"Variant", "Write time", "P10 – P90", "Registrations", "All windows good", "Devices / perfect"}
+	if rules != nil {
+		header = append(header, "Design rules")
+	}
 	cols := len(header)
 	var cells []fyne.CanvasObject
 	for _, h := range header {
@@ -239,18 +278,27 @@ func comparisonView(res []export.VariantResult) fyne.CanvasObject {
 		for _, t := range []string{r.Variant, formatDuration(p.TotalS), formatDuration(p.P10S) + " – " + formatDuration(p.P90S), reg, all, dev} {
 			cells = append(cells, widget.NewLabel(t))
 		}
+		if rules != nil {
+			l := widget.NewLabel(rules[i])
+			if rules[i] != "passes" {
+				l.Importance = widget.WarningImportance
+			}
+			cells = append(cells, l)
+		}
 		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: formatDuration(p.TotalS), Color: SegmentColor(i)})
 		yieldBars = append(yieldBars, Bar{Label: r.Variant, Value: p.Yield.All, Text: all, Color: colYield})
 	}
-	table := container.NewGridWithColumns(cols, cells...)
+	table := container.New(&tableLayout{cols: cols}, cells...)
 	charts := container.NewGridWithColumns(2,
 		container.NewVBox(heading("Write time per variant"), NewBarChart(timeBars)),
 		container.NewVBox(heading("Chance every window takes one donor"), NewBarChart(yieldBars)))
 	return container.NewVBox(table, widget.NewSeparator(), charts, widget.NewSeparator(), mutedLabel(planner.Caution))
 }
 
-func (u *UI) showComparison(res []export.VariantResult) {
-	content := container.NewVScroll(comparisonView(res))
+func (u *UI) showComparison(res []export.VariantResult, rules []string) {
+	// Scrolls both ways: a long variant name widens the table rather
+	// than being cut off.
+	content := container.NewScroll(comparisonView(res, rules))
 	var d *dialog.CustomDialog
 	report := widget.NewButtonWithIcon("Export report…", theme.DocumentPrintIcon(), func() {
 		u.withCaution("the comparison report", func(es ExportSettings) {
@@ -265,6 +313,51 @@ func (u *UI) showComparison(res []export.VariantResult) {
 	d = dialog.NewCustomWithoutButtons("Compare variants", container.New(&fixedSize{fyne.NewSize(1000, 520)}, content), u.Win)
 	d.SetButtons([]fyne.CanvasObject{closeBtn, report})
 	d.Show()
+}
+
+// tableLayout lays cells out in rows of cols, each column as wide as
+// its widest cell (a grid gives every column the widest cell's width,
+// which cuts a table with one long name off).
+type tableLayout struct{ cols int }
+
+func (t *tableLayout) sizes(objs []fyne.CanvasObject) (widths, heights []float32) {
+	widths = make([]float32, t.cols)
+	heights = make([]float32, (len(objs)+t.cols-1)/t.cols)
+	for i, o := range objs {
+		m := o.MinSize()
+		widths[i%t.cols] = max(widths[i%t.cols], m.Width)
+		heights[i/t.cols] = max(heights[i/t.cols], m.Height)
+	}
+	return widths, heights
+}
+
+func (t *tableLayout) Layout(objs []fyne.CanvasObject, size fyne.Size) {
+	widths, heights := t.sizes(objs)
+	pad := theme.Padding()
+	var y float32
+	for r, h := range heights {
+		var x float32
+		for c, w := range widths {
+			if i := r*t.cols + c; i < len(objs) {
+				objs[i].Move(fyne.NewPos(x, y))
+				objs[i].Resize(fyne.NewSize(w, h))
+			}
+			x += w + pad
+		}
+		y += h
+	}
+}
+
+func (t *tableLayout) MinSize(objs []fyne.CanvasObject) fyne.Size {
+	widths, heights := t.sizes(objs)
+	var w, h float32
+	for _, x := range widths {
+		w += x
+	}
+	for _, y := range heights {
+		h += y
+	}
+	return fyne.NewSize(w+theme.Padding()*float32(max(len(widths)-1, 0)), h)
 }
 
 // fixedSize lays out its child at a fixed minimum size.

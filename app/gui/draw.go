@@ -6,11 +6,16 @@ import (
 )
 
 // pixbuf is a frame's pixels as packed RGBA words, for the overlay
-// drawing primitives below. They clip to the frame and draw without
-// antialiasing: overlays are redrawn every frame and must stay cheap.
+// drawing primitives below. They clip to the frame. With aa set, lines
+// and opaque thick strokes are antialiased: one-pixel lines share each
+// step between the two pixels the line passes between (Wu's method),
+// and thick strokes blend each edge pixel by how far its centre lies
+// inside the stroke. Filled rectangles, disks and translucent strokes
+// stay aliased (a translucent stroke's joints would blend twice).
 type pixbuf struct {
 	pix  []uint32
 	w, h int
+	aa   bool
 }
 
 // blend returns the packed pixel p with c laid over it at opacity a
@@ -162,9 +167,29 @@ func (b *pixbuf) dashed(x0, y0, x1, y1 float64, on, off int, c color.NRGBA, a in
 	sx, sy := dx/float64(n), dy/float64(n)
 	x, y := x0, y0
 	period := on + off
+	steep := math.Abs(dy) > math.Abs(dx)
 	for i := 0; i <= n; i++ {
 		if off == 0 || i%period < on {
-			b.plot(int(math.Floor(x)), int(math.Floor(y)), c, a)
+			switch {
+			case !b.aa:
+				b.plot(int(math.Floor(x)), int(math.Floor(y)), c, a)
+			case steep:
+				// Split between the two columns the line passes between,
+				// by the distance of x from their centres.
+				u := x - 0.5
+				fx := math.Floor(u)
+				f := u - fx
+				yi := int(math.Floor(y))
+				b.plot(int(fx), yi, c, int(float64(a)*(1-f)+0.5))
+				b.plot(int(fx)+1, yi, c, int(float64(a)*f+0.5))
+			default:
+				v := y - 0.5
+				fy := math.Floor(v)
+				f := v - fy
+				xi := int(math.Floor(x))
+				b.plot(xi, int(fy), c, int(float64(a)*(1-f)+0.5))
+				b.plot(xi, int(fy)+1, c, int(float64(a)*f+0.5))
+			}
 		}
 		x += sx
 		y += sy
@@ -188,6 +213,10 @@ func (b *pixbuf) thickLine(x0, y0, x1, y1, w float64, c color.NRGBA, a int) {
 		b.disk(x0, y0, r, c, a)
 		return
 	}
+	if b.aa && a >= 256 {
+		b.capsule(x0, y0, x1, y1, r, c)
+		return
+	}
 	// The stroke is the quadrilateral offset by ±r along the normal.
 	nx, ny := -dy/l*r, dx/l*r
 	q := [4][2]float64{{x0 + nx, y0 + ny}, {x1 + nx, y1 + ny}, {x1 - nx, y1 - ny}, {x0 - nx, y0 - ny}}
@@ -197,6 +226,69 @@ func (b *pixbuf) thickLine(x0, y0, x1, y1, w float64, c color.NRGBA, a int) {
 		// darken where the cap overlaps the body.
 		b.disk(x0, y0, r, c, a)
 		b.disk(x1, y1, r, c, a)
+	}
+}
+
+// capsule draws the opaque stroke of radius r around the segment with
+// round ends, antialiased: each pixel is blended by how far its centre
+// lies inside the edge (full inside by half a pixel, none outside by
+// half a pixel). Only the pixels of each row the stroke grown by half a
+// pixel crosses are visited. The segment is already clipped.
+func (b *pixbuf) capsule(x0, y0, x1, y1, r float64, c color.NRGBA) {
+	dx, dy := x1-x0, y1-y0
+	l2 := dx*dx + dy*dy
+	R := r + 0.5
+	R2 := R * R
+	in := max(r-0.5, 0)
+	in2 := in * in // a centre this close to the axis is fully covered
+	var nx, ny float64
+	if l2 > 0 {
+		l := math.Sqrt(l2)
+		nx, ny = -dy/l*R, dx/l*R
+	}
+	q := [4][2]float64{{x0 + nx, y0 + ny}, {x1 + nx, y1 + ny}, {x1 - nx, y1 - ny}, {x0 - nx, y0 - ny}}
+	p := packRGBA(c)
+	ymin, ymax := min(y0, y1)-R, max(y0, y1)+R
+	for y := max(int(math.Floor(ymin)), 0); y <= min(int(math.Ceil(ymax)), b.h-1); y++ {
+		yc := float64(y) + 0.5
+		// The row's span of the grown capsule: its end disks and the band
+		// between them (the band's edges are lines at ±R from the axis).
+		xl, xr := math.Inf(1), math.Inf(-1)
+		for _, e := range [2][2]float64{{x0, y0}, {x1, y1}} {
+			if d := yc - e[1]; d*d <= R2 {
+				h := math.Sqrt(R2 - d*d)
+				xl, xr = min(xl, e[0]-h), max(xr, e[0]+h)
+			}
+		}
+		if l2 > 0 {
+			for i := range 4 {
+				u, w := q[i], q[(i+1)%4]
+				if (u[1] <= yc) == (w[1] <= yc) {
+					continue
+				}
+				x := u[0] + (yc-u[1])*(w[0]-u[0])/(w[1]-u[1])
+				xl, xr = min(xl, x), max(xr, x)
+			}
+		}
+		if xl > xr {
+			continue
+		}
+		row := b.pix[y*b.w : y*b.w+b.w]
+		for x := max(int(math.Floor(xl)), 0); x <= min(int(math.Floor(xr)), b.w-1); x++ {
+			// Distance from the pixel centre to the segment.
+			px, py := float64(x)+0.5-x0, yc-y0
+			t := 0.0
+			if l2 > 0 {
+				t = max(0, min(1, (px*dx+py*dy)/l2))
+			}
+			ex, ey := px-t*dx, py-t*dy
+			switch d2 := ex*ex + ey*ey; {
+			case d2 <= in2:
+				row[x] = p
+			case d2 < R2:
+				row[x] = blend(row[x], c, int((R-math.Sqrt(d2))*256))
+			}
+		}
 	}
 }
 

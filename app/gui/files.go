@@ -9,6 +9,8 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
+	"sync"
+	"sync/atomic"
 	"time"
 
 	"fyne.io/fyne/v2"
@@ -58,8 +60,11 @@ func (u *UI) confirmDiscard(action string, then func()) {
 		then()
 		return
 	}
-	name := u.S.Design().Name
-	msg := widget.NewLabel(fmt.Sprintf("The design %q has changes that are not saved. Save them before you %s?", name, action))
+	name := fmt.Sprintf("%q", u.S.Design().Name)
+	if p := u.S.Path(); p != "" {
+		name += " (" + filepath.Base(p) + ")"
+	}
+	msg := widget.NewLabel(fmt.Sprintf("The design %s has changes that are not saved. Save them before you %s?", name, action))
 	msg.Wrapping = fyne.TextWrapWord
 	var d *dialog.CustomDialog
 	save := widget.NewButton("Save", func() { d.Hide(); u.save(then) })
@@ -194,41 +199,26 @@ func (u *UI) SaveTo(path string) error {
 }
 
 func (u *UI) saveAs(then func()) {
-	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
-		if err != nil {
-			dialog.ShowError(err, u.Win)
-			return
-		}
-		if w == nil {
-			return
-		}
-		path := w.URI().Path()
-		// The dialog opened the file; the design is written to a
-		// temporary file and renamed over it.
-		w.Close()
-		if !strings.HasSuffix(strings.ToLower(path), ".json") {
-			os.Remove(path)
-			path += ".json"
-		}
-		if err := u.SaveTo(path); err != nil {
-			dialog.ShowError(err, u.Win)
-			return
-		}
-		if then != nil {
-			then()
-		}
-	}, u.Win)
 	name := u.S.Design().Name
-	if name == "" {
-		name = "design"
+	if p := u.S.Path(); p != "" {
+		name = strings.TrimSuffix(filepath.Base(p), filepath.Ext(p))
 	}
-	d.SetFileName(safeFileName(name) + ".json")
-	d.SetFilter(storage.NewExtensionFileFilter([]string{".json"}))
-	if dir := u.lastDir(); dir != nil {
-		d.SetLocation(dir)
+	u.chooseFile(safeFileName(name)+".json", []string{".json"}, func(path string) { u.saveAsTo(path, then) })
+}
+
+// saveAsTo saves the design to the path chosen in Save As and runs then
+// when that worked. An untitled design takes the file's name.
+func (u *UI) saveAsTo(path string, then func()) {
+	if n := u.S.Design().Name; n == "" || n == NewDesign().Name {
+		u.S.SetDesignName(strings.TrimSuffix(filepath.Base(path), filepath.Ext(path)))
 	}
-	d.Resize(fyne.NewSize(900, 600))
-	d.Show()
+	if err := u.SaveTo(path); err != nil {
+		dialog.ShowError(err, u.Win)
+		return
+	}
+	if then != nil {
+		then()
+	}
 }
 
 // safeFileName turns a design or variant name into a file name.
@@ -326,24 +316,90 @@ func (u *UI) StopAutosave() {
 	}
 }
 
-// Autosave writes the recovery copy now if the design changed since the
-// last one. The copy is taken here; the file is written in the
-// background.
-func (u *UI) Autosave() error {
+// Autosave starts writing the recovery copy if the design changed since
+// the last copy and no copy is being written, and returns at once. On
+// Fyne's goroutine it only takes the current undo state, an immutable
+// snapshot that is already made; the design is assembled from it,
+// encoded and written in the background, so a design with millions of
+// hand-painted sites never stalls the window. One copy is written at a
+// time: a tick that finds one in flight leaves its state to the next
+// tick. The channel receives the write's result (nil when there was
+// nothing to write), for tests.
+func (u *UI) Autosave() <-chan error {
+	done := make(chan error, 1)
 	s := u.S
-	if !s.Dirty() || s.hist.current() == u.lastAutosave {
-		return nil
+	snap := s.hist.current()
+	if !s.Dirty() || snap == u.lastAutosave || u.autosaving {
+		done <- nil
+		return done
 	}
 	dir, err := u.configDir()
 	if err != nil {
-		return err
+		done <- err
+		return done
 	}
-	u.lastAutosave = s.hist.current()
-	d := s.DesignCopy()
-	info := recoveryInfo{Path: s.Path(), SavedAt: time.Now(), Design: d.Name}
-	// Written here: the copy is already taken, and a design file is
-	// written in milliseconds unless it holds millions of painted sites.
-	return writeRecovery(dir, d, info)
+	u.autosaving = true
+	info := recoveryInfo{Path: s.Path(), SavedAt: time.Now(), Design: snap.shell.Name}
+	rec := u.recovery
+	gen := rec.generation()
+	go func() {
+		err := rec.write(gen, func() error { return writeRecovery(dir, designOf(snap), info) })
+		fyne.Do(func() {
+			u.autosaving = false
+			if err == nil && u.S == s {
+				u.lastAutosave = snap
+			}
+			if err != nil {
+				u.hintLabel.SetText("Could not write the recovery copy to " + dir + ": " + err.Error())
+			}
+		})
+		done <- err
+	}()
+	return done
+}
+
+// recoveryFiles orders the writes and removals of the recovery copy: a
+// removal (after a save, on quitting) waits for a write in flight and
+// makes any write that started before it do nothing, so a saved design
+// is never offered back as unsaved work.
+type recoveryFiles struct {
+	mu  sync.Mutex   // held while the files are written or removed
+	gen atomic.Int64 // removals so far
+}
+
+func (r *recoveryFiles) generation() int64 { return r.gen.Load() }
+
+// write runs f unless a removal happened since generation gen.
+func (r *recoveryFiles) write(gen int64, f func() error) error {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	if r.gen.Load() != gen {
+		return nil
+	}
+	return f()
+}
+
+// remove runs f and makes every write started before it void.
+func (r *recoveryFiles) remove(f func()) {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	r.gen.Add(1)
+	f()
+}
+
+// designOf assembles the design of an undo state for reading: the
+// regions are the snapshot's own, which nothing changes.
+func designOf(snap *snapshot) *design.Design {
+	d := *snap.shell
+	d.Variants = slices.Clone(snap.shell.Variants)
+	for v := range d.Variants {
+		rs := make([]design.Region, len(snap.regions[v]))
+		for i, sr := range snap.regions[v] {
+			rs[i] = sr.region
+		}
+		d.Variants[v].Regions = rs
+	}
+	return &d
 }
 
 func writeRecovery(dir string, d *design.Design, info recoveryInfo) error {
@@ -365,8 +421,10 @@ func (u *UI) removeRecovery() {
 	if err != nil {
 		return
 	}
-	os.Remove(filepath.Join(dir, recoveryName))
-	os.Remove(filepath.Join(dir, recoveryMeta))
+	u.recovery.remove(func() {
+		os.Remove(filepath.Join(dir, recoveryName))
+		os.Remove(filepath.Join(dir, recoveryMeta))
+	})
 	u.lastAutosave = nil
 }
 
@@ -385,12 +443,13 @@ func (u *UI) OfferRecovery() {
 	if json.Unmarshal(meta, &info) != nil {
 		return
 	}
-	where := "an unsaved design"
+	what := fmt.Sprintf("dimerpath did not close cleanly last time. It kept a copy of the unsaved design %q from %s.", info.Design, info.SavedAt.Local().Format("2 Jan 2006 15:04"))
+	then := "Recover opens it as unsaved work; save it where you like. Discard deletes the copy."
 	if info.Path != "" {
-		where = info.Path
+		what = fmt.Sprintf("dimerpath did not close cleanly last time. It kept a copy of %q with the changes not yet saved to %s, from %s.", info.Design, info.Path, info.SavedAt.Local().Format("2 Jan 2006 15:04"))
+		then = "Recover opens it as unsaved changes to that file (Ctrl+S writes them there). Discard deletes the copy; the file keeps its last saved state."
 	}
-	msg := wrapLabel(fmt.Sprintf("dimerpath kept a copy of %q (%s) from %s, when it last ran without closing cleanly. Recover it? You then save it where you like; Discard deletes the copy.",
-		info.Design, where, info.SavedAt.Local().Format("2 Jan 2006 15:04")))
+	msg := wrapLabel(what + "\n\n" + then)
 	dialog.ShowCustomConfirm("Recover unsaved work?", "Recover", "Discard", container.New(&fixedWidth{w: 440}, msg), func(ok bool) {
 		if !ok {
 			u.removeRecovery()
@@ -462,8 +521,13 @@ func (u *UI) withCaution(what string, then func(ExportSettings)) {
 func (u *UI) exportAs(kind string) {
 	p, stale := u.S.Plan()
 	if p == nil || stale {
-		dialog.ShowConfirm("Plan first", fmt.Sprintf("Variant %s has no up-to-date plan to export. Plan it now? (Export again when it is done.)", u.S.Variant().Name), func(ok bool) {
-			if ok {
+		what := "has not been planned"
+		if stale {
+			what = "changed since it was planned"
+		}
+		dialog.ShowConfirm("Plan first", fmt.Sprintf("Variant %s %s. Plan it now? The export goes on when the plan is ready.", u.S.Variant().Name, what), func(ok bool) {
+			if ok && !u.Busy() {
+				u.afterPlan = func() { u.exportAs(kind) }
 				u.StartPlan()
 			}
 		}, u.Win)
@@ -481,19 +545,19 @@ func (u *UI) exportAs(kind string) {
 }
 
 // chooseFile asks for a file to write, suggesting name, and calls then
-// with its path. The file is written later through a temporary file.
+// with its path; a name without one of exts gets exts[0]. The file is
+// not touched here: the dialog's writer is closed unwritten (see
+// lazyFiles), and then writes the file through a temporary file, so a
+// write that fails leaves the old file as it was.
 func (u *UI) chooseFile(name string, exts []string, then func(path string)) {
 	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
-		if err != nil {
+		path, err := chosenPath(w, err, exts)
+		switch {
+		case err != nil:
 			dialog.ShowError(err, u.Win)
-			return
+		case path != "":
+			then(path)
 		}
-		if w == nil {
-			return
-		}
-		path := w.URI().Path()
-		w.Close()
-		then(path)
 	}, u.Win)
 	d.SetFileName(name)
 	d.SetFilter(storage.NewExtensionFileFilter(exts))
@@ -502,6 +566,24 @@ func (u *UI) chooseFile(name string, exts []string, then func(path string)) {
 	}
 	d.Resize(fyne.NewSize(900, 600))
 	d.Show()
+}
+
+// chosenPath returns the path a save dialog chose ("" when it was
+// cancelled), closing its writer without writing, and adds exts[0] to a
+// name that has none of exts.
+func chosenPath(w fyne.URIWriteCloser, err error, exts []string) (string, error) {
+	if err != nil || w == nil {
+		return "", err
+	}
+	path := w.URI().Path()
+	if err := w.Close(); err != nil {
+		return "", fmt.Errorf("%s: %w", path, err)
+	}
+	ext := strings.ToLower(filepath.Ext(path))
+	if len(exts) > 0 && !slices.Contains(exts, ext) {
+		path += exts[0]
+	}
+	return path, nil
 }
 
 // runInBackground runs job with the progress bar and its Cancel button,

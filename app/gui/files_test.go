@@ -49,14 +49,14 @@ func TestSaveOpenRoundTrip(t *testing.T) {
 func TestAutosaveAndRecover(t *testing.T) {
 	u, _ := newTestUI(t, nil)
 	dir := u.opts.ConfigDir
-	if err := u.Autosave(); err != nil {
+	if err := <-u.Autosave(); err != nil {
 		t.Fatal(err)
 	}
 	if _, err := os.Stat(filepath.Join(dir, recoveryName)); err == nil {
 		t.Fatal("a clean design was autosaved")
 	}
 	u.S.AddRegion("late idea", design.RoleOther)
-	if err := u.Autosave(); err != nil {
+	if err := <-u.Autosave(); err != nil {
 		t.Fatal(err)
 	}
 	if _, err := os.Stat(filepath.Join(dir, recoveryName)); err != nil {
@@ -86,5 +86,69 @@ func TestAutosaveAndRecover(t *testing.T) {
 	}
 	if _, err := os.Stat(filepath.Join(dir, recoveryName)); err == nil {
 		t.Error("the recovery copy outlived the save")
+	}
+}
+
+func TestAutosaveWritesInTheBackgroundOneAtATime(t *testing.T) {
+	u, _ := newTestUI(t, nil)
+	dir := u.opts.ConfigDir
+	u.S.AddRegion("first idea", design.RoleOther)
+	first := u.S.hist.current()
+
+	// Hold the recovery files so the first write waits in the background.
+	u.recovery.mu.Lock()
+	done := u.Autosave()
+	if !u.autosaving {
+		t.Fatal("Autosave did not start a background write")
+	}
+	u.S.AddRegion("second idea", design.RoleOther)
+	select {
+	case err := <-u.Autosave():
+		if err != nil {
+			t.Fatal(err)
+		}
+	default:
+		t.Fatal("a second Autosave waited for the first instead of leaving its state to the next tick")
+	}
+	u.recovery.mu.Unlock()
+	if err := <-done; err != nil {
+		t.Fatal(err)
+	}
+	if u.lastAutosave != first {
+		t.Fatal("the recovery copy is not recorded as the state it was taken from")
+	}
+	d, err := loadDesign(filepath.Join(dir, recoveryName))
+	if err != nil {
+		t.Fatal(err)
+	}
+	regions := d.Variants[0].Regions
+	if got := regions[len(regions)-1].Name; got != "first idea" {
+		t.Errorf("recovery copy ends with %q, want the state when the write began", got)
+	}
+	// The next tick writes the later state.
+	if err := <-u.Autosave(); err != nil {
+		t.Fatal(err)
+	}
+	d, _ = loadDesign(filepath.Join(dir, recoveryName))
+	regions = d.Variants[0].Regions
+	if got := regions[len(regions)-1].Name; got != "second idea" {
+		t.Errorf("after the next tick the copy ends with %q, want \"second idea\"", got)
+	}
+}
+
+func TestRemovalVoidsAnEarlierWrite(t *testing.T) {
+	var r recoveryFiles
+	gen := r.generation()
+	removed := false
+	r.remove(func() { removed = true })
+	wrote := false
+	if err := r.write(gen, func() error { wrote = true; return nil }); err != nil {
+		t.Fatal(err)
+	}
+	if !removed || wrote {
+		t.Errorf("removed %v, wrote %v: a write begun before a removal must not happen", removed, wrote)
+	}
+	if err := r.write(r.generation(), func() error { wrote = true; return nil }); err != nil || !wrote {
+		t.Errorf("a write after the removal did not happen (%v)", err)
 	}
 }

@@ -31,6 +31,9 @@ type Scene struct {
 	Preview   *Preview
 	// Selected outlines, in field nm.
 	Selected []r2.Rect
+	// SelectedShape is the extent of the selected shape (nm), drawn with
+	// corner handles, or nil.
+	SelectedShape *r2.Rect
 }
 
 // Layer is one region's sites as the view draws them.
@@ -81,6 +84,10 @@ type RouteStroke struct {
 // buffers between frames, so a frame allocates nothing once the size is
 // stable. A Renderer is not safe for concurrent use.
 type Renderer struct {
+	// Aliased draws the overlays without antialiasing (the benchmark's
+	// baseline for what antialiasing costs).
+	Aliased bool
+
 	img *image.RGBA
 	pix []uint32
 
@@ -814,7 +821,7 @@ func (r *Renderer) drawAtomic(sc *Scene, v View) {
 // drawOverlays draws step edges, the field edge, the route, fiducials,
 // findings, the selection and the tool preview over the lattice.
 func (r *Renderer) drawOverlays(sc *Scene, v View) {
-	pb := &pixbuf{pix: r.pix, w: v.W, h: v.H}
+	pb := &pixbuf{pix: r.pix, w: v.W, h: v.H, aa: !r.Aliased}
 	surf := sc.Surface
 	// Field edge.
 	x0, y1 := v.ToScreen(r2.Point{})
@@ -895,6 +902,15 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 		pb.dashed(bx+4, ay-4, bx+4, by+4, 5, 4, colSelect, 256)
 		pb.dashed(bx+4, by+4, ax-4, by+4, 5, 4, colSelect, 256)
 		pb.dashed(ax-4, by+4, ax-4, ay-4, 5, 4, colSelect, 256)
+	}
+	if b := sc.SelectedShape; b != nil && !b.IsEmpty() {
+		ax, ay := v.ToScreen(r2.Point{X: b.X.Lo, Y: b.Y.Hi})
+		bx, by := v.ToScreen(r2.Point{X: b.X.Hi, Y: b.Y.Lo})
+		ax, ay, bx, by = ax-2, ay-2, bx+2, by+2
+		pb.rectOutline(ax, ay, bx, by, 1, colSelect, 256)
+		for _, c := range [4][2]float64{{ax, ay}, {bx, ay}, {ax, by}, {bx, by}} {
+			pb.fillRect(int(c[0])-3, int(c[1])-3, int(c[0])+4, int(c[1])+4, colSelect, 256)
+		}
 	}
 	if p := sc.Preview; p != nil && len(p.Points) > 0 {
 		switch {

@@ -31,22 +31,30 @@ func BenchmarkFrame(b *testing.B) {
 	}
 	// The demo design (13.9 million sites, mostly its four pads) with the
 	// route of its plan, 1035 strokes, over it.
-	b.Run("demo-with-route", func(b *testing.B) {
-		s := demoSession(b)
-		p, err := buildPlan(context.Background(), s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: 1})
-		if err != nil {
-			b.Fatal(err)
+	for _, aliased := range []bool{false, true} {
+		name := "demo-with-route"
+		if aliased {
+			// The same frame with the overlays drawn without antialiasing:
+			// the baseline of what antialiasing costs.
+			name += "-aliased"
 		}
-		s.SetPlan(p, s.Variant().Name, s.Token())
-		sc := s.Scene(SceneOptions{Route: true, Findings: true})
-		v := FitView(s.Surface().Field, 1600, 1000, 20)
-		var r Renderer
-		r.Render(sc, v)
-		b.ReportAllocs()
-		for b.Loop() {
+		b.Run(name, func(b *testing.B) {
+			s := demoSession(b)
+			p, err := buildPlan(context.Background(), s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: 1})
+			if err != nil {
+				b.Fatal(err)
+			}
+			s.SetPlan(p, s.Variant().Name, s.Token())
+			sc := s.Scene(SceneOptions{Route: true, Findings: true})
+			v := FitView(s.Surface().Field, 1600, 1000, 20)
+			r := Renderer{Aliased: aliased}
 			r.Render(sc, v)
-		}
-	})
+			b.ReportAllocs()
+			for b.Loop() {
+				r.Render(sc, v)
+			}
+		})
+	}
 	b.Run("Clear", func(b *testing.B) {
 		var r Renderer
 		r.Render(nil, whole)

@@ -30,11 +30,15 @@ type LatticeView struct {
 	view     View
 	pxPerDot float32 // device pixels per Fyne unit, from the last frame
 	fitted   bool
-	rend     Renderer
-	raster   *canvas.Raster
-	scene    *Scene
-	route    *RouteOverlay
-	routeOf  *planner.Plan
+	// atFit says the view shows the whole field as Fit made it, and the
+	// user has not panned or zoomed since: it is fitted again when the
+	// view is resized or the legend beside the field changes size.
+	atFit   bool
+	rend    Renderer
+	raster  *canvas.Raster
+	scene   *Scene
+	route   *RouteOverlay
+	routeOf *planner.Plan
 
 	button   desktop.MouseButton
 	panning  bool
@@ -82,7 +86,7 @@ func (lv *LatticeView) SetView(v View) {
 	v.W, v.H = lv.view.W, lv.view.H
 	v.Scale = clampf(v.Scale, MinScale, MaxScale)
 	lv.view = v
-	lv.fitted = true
+	lv.fitted, lv.atFit = true, false
 	lv.changed()
 }
 
@@ -132,10 +136,13 @@ func (lv *LatticeView) generate(w, h int) image.Image {
 	}
 	if w != lv.view.W || h != lv.view.H {
 		lv.view = lv.view.Resized(w, h)
+		if lv.atFit {
+			lv.fitted = false
+		}
 	}
 	if !lv.fitted && w > 0 && h > 0 && lv.s.Surface() != nil {
 		lv.view = lv.fitView()
-		lv.fitted = true
+		lv.fitted, lv.atFit = true, true
 		lv.updateScaleBar()
 	}
 	return lv.rend.Render(lv.buildScene(), lv.view)
@@ -147,19 +154,50 @@ func (lv *LatticeView) Fit() {
 		return
 	}
 	lv.view = lv.fitView()
-	lv.fitted = true
+	lv.fitted, lv.atFit = true, true
 	lv.changed()
+}
+
+// LegendChanged fits the field again beside the legend if the view shows
+// the whole field and the legend now covers part of it, so a legend that
+// grew (a plan's route, findings) or was shown does not hide the field.
+// A legend that still fits leaves the view alone: the field does not
+// jump under the pointer while the user draws. A view the user zoomed
+// or panned is left alone too.
+func (lv *LatticeView) LegendChanged() {
+	if lv.atFit && lv.view.W > 0 && lv.s.Surface() != nil && lv.legendCoversField() {
+		lv.view = lv.fitView()
+		lv.changed()
+	}
+}
+
+// legendCoversField reports whether the legend, laid out in the view's
+// top-right corner at its current size, overlaps the field.
+func (lv *LatticeView) legendCoversField() bool {
+	if lv.legend == nil || !lv.legend.Visible() {
+		return false
+	}
+	ls := lv.legend.MinSize()
+	w := float64(lv.view.W) / float64(lv.pxPerDot)
+	legend := r2.RectFromPoints(
+		r2.Point{X: w - float64(ls.Width) - legendPad, Y: legendPad},
+		r2.Point{X: w - legendPad, Y: legendPad + float64(ls.Height)})
+	f := lv.s.Surface().Field
+	a, b := lv.PositionOf(r2.Point{X: f.X.Lo, Y: f.Y.Hi}), lv.PositionOf(r2.Point{X: f.X.Hi, Y: f.Y.Lo})
+	field := r2.RectFromPoints(r2.Point{X: float64(a.X), Y: float64(a.Y)}, r2.Point{X: float64(b.X), Y: float64(b.Y)})
+	return legend.Intersects(field)
 }
 
 // fitView returns the view showing the whole field beside the legend:
 // the field is fitted into the part of the view the legend leaves free,
-// when that is wide enough.
+// unless that would leave it less than 40 % of the view's width (then
+// the legend, which can be hidden, overlaps it).
 func (lv *LatticeView) fitView() View {
 	w, h := lv.view.W, lv.view.H
 	free := w
-	if lv.legend != nil {
-		lw := int(float32(lv.legend.MinSize().Width+24) * lv.pxPerDot)
-		if w-lw > w*2/3 {
+	if lv.legend != nil && lv.legend.Visible() {
+		lw := int(float32(lv.legend.MinSize().Width+legendPad+12) * lv.pxPerDot)
+		if w-lw >= w*2/5 {
 			free = w - lw
 		}
 	}
@@ -178,13 +216,14 @@ func (lv *LatticeView) ZoomTo(rect r2.Rect) {
 	grown := rect.ExpandedByMargin(math.Max(rect.Size().X, rect.Size().Y)*0.3 + 5)
 	v := FitView(grown, lv.view.W, lv.view.H, 40)
 	lv.view = v
-	lv.fitted = true
+	lv.fitted, lv.atFit = true, false
 	lv.changed()
 }
 
 // ZoomBy zooms around the centre of the view.
 func (lv *LatticeView) ZoomBy(f float64) {
 	lv.view = lv.view.ZoomAt(float64(lv.view.W)/2, float64(lv.view.H)/2, f)
+	lv.atFit = false
 	lv.changed()
 }
 
@@ -215,12 +254,14 @@ func (lv *LatticeView) Scrolled(ev *fyne.ScrollEvent) {
 	f := math.Pow(1.25, float64(ev.Scrolled.DY)/25)
 	x, y := lv.toDevice(ev.Position)
 	lv.view = lv.view.ZoomAt(x, y, f)
+	lv.atFit = false
 	lv.changed()
 }
 
 // MouseDown and MouseUp record the button, so a middle-button drag pans
 // with any tool.
 func (lv *LatticeView) MouseDown(ev *desktop.MouseEvent) {
+	lv.takeFocus()
 	lv.button = ev.Button
 	if ev.Button == desktop.MouseButtonSecondary {
 		p := ev.Position
@@ -247,6 +288,7 @@ func (lv *LatticeView) Dragged(ev *fyne.DragEvent) {
 	if lv.panning {
 		dx, dy := float64(ev.Dragged.DX*lv.pxPerDot), float64(ev.Dragged.DY*lv.pxPerDot)
 		lv.view = lv.view.Pan(dx, dy)
+		lv.atFit = false
 		lv.changed()
 	} else {
 		lv.s.Drag(lv.FieldAt(ev.Position))
@@ -265,6 +307,7 @@ func (lv *LatticeView) DragEnd() {
 
 // Tapped is a click with the current tool.
 func (lv *LatticeView) Tapped(ev *fyne.PointEvent) {
+	lv.takeFocus()
 	if lv.s.Tool == ToolPan {
 		return
 	}
@@ -282,6 +325,7 @@ func (lv *LatticeView) MouseMoved(ev *desktop.MouseEvent) {
 		lv.view = lv.view.Pan(float64(d.X*lv.pxPerDot), float64(d.Y*lv.pxPerDot))
 		p := ev.Position
 		lv.rightAt = &p
+		lv.atFit = false
 		lv.changed()
 	}
 	lv.cursor(ev.Position)
@@ -299,6 +343,17 @@ func (lv *LatticeView) MouseOut() {
 func (lv *LatticeView) cursor(p fyne.Position) {
 	if lv.OnCursor != nil {
 		lv.OnCursor(lv.FieldAt(p), true)
+	}
+}
+
+// takeFocus makes the view the focused widget, as a text field does
+// when clicked: Fyne leaves the focus where it was on a click into a
+// focusable widget, so without this the keys typed after drawing (Enter
+// to close a polygon, a tool's letter, Delete) would still go to the
+// last text field, renaming a region instead.
+func (lv *LatticeView) takeFocus() {
+	if c := fyne.CurrentApp().Driver().CanvasForObject(lv); c != nil && c.Focused() != lv {
+		c.Focus(lv)
 	}
 }
 
@@ -322,6 +377,9 @@ func (lv *LatticeView) TypedKey(k *fyne.KeyEvent) {
 		lv.OnKey(k)
 	}
 }
+
+// legendPad is the legend's distance from the view's top-right corner.
+const legendPad = 12
 
 // MinSize lets the view shrink: the window decides its size.
 func (lv *LatticeView) MinSize() fyne.Size { return fyne.NewSize(200, 150) }
@@ -356,7 +414,9 @@ func formatLength(nm float64) string {
 	case nm >= 1:
 		return trimZeros(fmt.Sprintf("%.2f", nm)) + " nm"
 	default:
-		return trimZeros(fmt.Sprintf("%.1f", nm*1000)) + " pm"
+		// Below a nanometre still in nm, as the lattice constants are
+		// quoted (0.384 nm, not 384 pm).
+		return trimZeros(fmt.Sprintf("%.3f", nm)) + " nm"
 	}
 }
 
@@ -391,11 +451,10 @@ func (r *latticeRenderer) Layout(size fyne.Size) {
 	lv.raster.Resize(size)
 	lv.raster.Move(fyne.NewPos(0, 0))
 	lv.layoutScale(size)
-	const pad = 12
 	if lv.legend != nil {
 		ls := lv.legend.MinSize()
 		lv.legend.Resize(ls)
-		lv.legend.Move(fyne.NewPos(size.Width-ls.Width-pad, pad))
+		lv.legend.Move(fyne.NewPos(size.Width-ls.Width-legendPad, legendPad))
 	}
 }
 

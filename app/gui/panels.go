@@ -15,6 +15,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
 
+	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
 
@@ -64,9 +65,24 @@ func modeOf(m design.Mode) string {
 func parseNumber(label, s string) (float64, error) {
 	v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
 	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, fmt.Errorf("%s: %q is not a number", label, s)
+		return 0, fmt.Errorf("%s: %s", label, notANumber(s))
 	}
 	return v, nil
+}
+
+// notANumber says why s is not a number, suggesting the decimal point
+// when a comma was typed for it.
+func notANumber(s string) string {
+	t := strings.TrimSpace(s)
+	if t == "" {
+		return "empty; type a number"
+	}
+	if strings.Count(t, ",") == 1 && !strings.Contains(t, ".") {
+		if _, err := strconv.ParseFloat(strings.Replace(t, ",", ".", 1), 64); err == nil {
+			return fmt.Sprintf("%q is not a number: write decimals with a point (%s)", s, strings.Replace(t, ",", ".", 1))
+		}
+	}
+	return fmt.Sprintf("%q is not a number", s)
 }
 
 // parseInt parses a whole number typed into field label.
@@ -107,6 +123,14 @@ func groupDigits(n int) string {
 		return "-" + b.String()
 	}
 	return b.String()
+}
+
+// plural returns "1 shape", "2 shapes".
+func plural(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return fmt.Sprintf("%d %ss", n, noun)
 }
 
 func mutedLabel(s string) *widget.Label {
@@ -154,6 +178,10 @@ type regionsPanel struct {
 	tol      *widget.Entry
 	info     *widget.Label
 	msg      *widget.Label
+	shape    *widget.Label
+	shapeBox *fyne.Container
+	gaps     *fyne.Container
+	addGap   *widget.Select
 	shown    int // region the form shows
 	updating bool
 }
@@ -248,6 +276,20 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	}
 	p.info = mutedLabel("")
 	p.msg = errorLabel()
+	p.shape = wrapLabel("")
+	delShape := widget.NewButtonWithIcon("Delete shape", theme.DeleteIcon(), func() { p.u.S.DeleteSelectedShape() })
+	p.shapeBox = container.NewBorder(nil, nil, nil, delShape, p.shape)
+	p.shapeBox.Hide()
+	p.gaps = container.NewVBox()
+	p.addGap = widget.NewSelect(nil, func(other string) {
+		if p.updating || p.shown < 0 || other == "" {
+			return
+		}
+		err := p.u.S.AddTunnelGap(p.u.S.Variant().Regions[p.shown].Name, other)
+		showErr(p.msg, err)
+		p.addGap.ClearSelected()
+	})
+	p.addGap.PlaceHolder = "Declare a tunnel gap to…"
 	form := widget.NewForm(
 		widget.NewFormItem("Name", p.name),
 		widget.NewFormItem("Role", p.role),
@@ -255,7 +297,8 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		widget.NewFormItem("Dopant", p.species),
 		widget.NewFormItem("Tolerance ± nm", p.tol),
 	)
-	p.form = container.NewVBox(widget.NewSeparator(), heading("Selected region"), form, p.msg, p.info,
+	p.form = container.NewVBox(widget.NewSeparator(), heading("Selected region"), form, p.msg, p.info, p.shapeBox,
+		p.gaps, p.addGap,
 		container.NewGridWithColumns(2,
 			widget.NewButtonWithIcon("Zoom to", theme.ZoomFitIcon(), u.zoomToSelection),
 			widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() {
@@ -317,7 +360,7 @@ func (p *regionsPanel) refresh() {
 	}
 	p.shown = a
 	n := s.RegionSites(a).Count()
-	info := fmt.Sprintf("%s H sites in %d shapes", groupDigits(n), len(r.Shapes))
+	info := fmt.Sprintf("%s H sites in %s", groupDigits(n), plural(len(r.Shapes), "shape"))
 	if r.Painted != nil && !r.Painted.IsEmpty() {
 		info += fmt.Sprintf(", %s painted by hand", groupDigits(r.Painted.Count()))
 	}
@@ -331,6 +374,54 @@ func (p *regionsPanel) refresh() {
 		info += fmt.Sprintf(". %d regions selected.", len(s.Selection()))
 	}
 	p.info.SetText(info)
+	p.refreshGaps()
+	if i, k := s.SelectedShape(); i == a && k >= 0 {
+		b := s.SelectedShapeBounds()
+		p.shape.SetText(fmt.Sprintf("Shape %d of %d: %s, %s x %s. Drag it with the Select tool to move it.", k+1, len(r.Shapes), ShapeName(r.Shapes[k]), formatLength(b.Size().X), formatLength(b.Size().Y)))
+		p.shapeBox.Show()
+	} else {
+		p.shapeBox.Hide()
+	}
+}
+
+// refreshGaps lists the selected region's tunnel gaps with their
+// measured widths, and offers the other regions for a new one.
+func (p *regionsPanel) refreshGaps() {
+	s := p.u.S
+	a := s.Active()
+	if a < 0 {
+		return
+	}
+	v := s.Variant()
+	name := v.Regions[a].Name
+	var rows []fyne.CanvasObject
+	coupled := map[string]bool{name: true}
+	for gi, g := range v.TunnelGaps {
+		if g.A != name && g.B != name {
+			continue
+		}
+		other := g.B
+		if other == name {
+			other = g.A
+		}
+		coupled[other] = true
+		width := "measuring…"
+		if w, ok := s.GapWidth(g.A, g.B); ok {
+			width = fmt.Sprintf("%s (%.1f dimer rows)", formatLength(w), w/lattice.RowSpacing)
+		}
+		rm := widget.NewButtonWithIcon("", theme.ContentRemoveIcon(), func() { p.u.S.RemoveTunnelGap(gi) })
+		rows = append(rows, container.NewBorder(nil, nil, nil, rm, wrapLabel("Tunnel gap to "+other+": "+width)))
+	}
+	p.gaps.Objects = rows
+	p.gaps.Refresh()
+	var others []string
+	for _, r := range v.Regions {
+		if !coupled[r.Name] {
+			others = append(others, r.Name)
+		}
+	}
+	p.addGap.SetOptions(others)
+	p.addGap.ClearSelected()
 }
 
 // --- Findings ---
@@ -371,6 +462,9 @@ func newFindingsPanel(u *UI) *findingsPanel {
 			if len(f[i].Regions) > 0 {
 				text += " (" + strings.Join(f[i].Regions, ", ") + ")"
 			}
+			if h := findingHint(f[i].Rule); h != "" {
+				text += "\nWhat to do: " + h
+			}
 			c.Objects[0].(*widget.Label).SetText(text)
 			p.list.SetItemHeight(i, c.Objects[0].MinSize().Height)
 		})
@@ -388,14 +482,7 @@ func (p *findingsPanel) refresh() {
 	f, stale := p.u.S.Findings()
 	p.list.UnselectAll()
 	p.list.Refresh()
-	errs, warns := 0, 0
-	for _, x := range f {
-		if x.Error {
-			errs++
-		} else {
-			warns++
-		}
-	}
+	errs, warns := countFindings(f)
 	var text string
 	switch {
 	case p.u.S.findState == nil:
@@ -403,7 +490,7 @@ func (p *findingsPanel) refresh() {
 	case len(f) == 0:
 		text = "No findings: variant " + p.u.S.Variant().Name + " passes every design rule."
 	default:
-		text = fmt.Sprintf("%d errors and %d warnings in variant %s.", errs, warns, p.u.S.Variant().Name)
+		text = fmt.Sprintf("%s and %s in variant %s.", plural(errs, "error"), plural(warns, "warning"), p.u.S.Variant().Name)
 	}
 	if stale && p.u.S.findState != nil {
 		text += " (The design changed since; checking again…)"
@@ -414,6 +501,26 @@ func (p *findingsPanel) refresh() {
 		p.u.tabFindings.Text = fmt.Sprintf("Checks (%d)", errs)
 	}
 	p.u.tabs.Refresh()
+}
+
+// findingHint says, for a rule, what to do in the window about one of
+// its findings.
+func findingHint(rule string) string {
+	switch rule {
+	case design.RuleFloating:
+		return "connect the region to a contact pad through touching regions; if it is meant to be tunnel-coupled (an SET island to its leads), select it in Regions and declare the tunnel gap."
+	case design.RuleTunnelGap:
+		return "drag the lead or the island with the Select tool (it moves by whole dimers and rows) until the gap is in range."
+	case design.RuleWindowSpacing:
+		return "drag the window with the Select tool, or delete it (Delete), to leave the intact dimers the rule asks for."
+	case design.RuleWindow:
+		return "move the window onto whole, intact dimers of one terrace, or put the erased sites back."
+	case design.RuleFEKeepOut:
+		return "move the field-emission region away from the atomic-precision features, or change a region's write mode."
+	case design.RuleScanField:
+		return "move the shape inside the field and the scan field."
+	}
+	return ""
 }
 
 // --- Variants ---
@@ -477,13 +584,17 @@ func (u *UI) renameVariant(i int) {
 		}
 		return nil
 	}
-	dialog.ShowForm("Rename variant", "Rename", "Cancel", []*widget.FormItem{widget.NewFormItem("Name", e)}, func(ok bool) {
+	d := dialog.NewForm("Rename variant", "Rename", "Cancel", []*widget.FormItem{widget.NewFormItem("Name", e)}, func(ok bool) {
 		if ok {
 			if err := u.S.RenameVariant(i, e.Text); err != nil {
 				dialog.ShowError(err, u.Win)
 			}
 		}
 	}, u.Win)
+	// Wide enough for a descriptive name ("gap-12-source-As-donors").
+	d.Resize(fyne.NewSize(460, 1))
+	d.Show()
+	u.Win.Canvas().Focus(e)
 }
 
 func (u *UI) deleteVariant(i int) {
@@ -520,6 +631,10 @@ type marksPanel struct {
 	terrMsg  *widget.Label
 	terrForm *fyne.Container
 	fidEmpty *widget.Label
+	name     *widget.Entry
+	nameMsg  *widget.Label
+	field    *widget.Label
+	updating bool
 }
 
 func newMarksPanel(u *UI) *marksPanel {
@@ -603,11 +718,28 @@ func newMarksPanel(u *UI) *marksPanel {
 	terrBox := container.NewBorder(container.NewVBox(heading("Terraces"), mutedLabel("Across a single-height step the dimer rows turn by 90°. Outline a terrace with the Terrace tool (T).")), p.terrForm, nil, nil, p.terrs)
 	split := container.NewVSplit(fidBox, terrBox)
 	split.Offset = 0.45
-	p.content = split
+	p.name = widget.NewEntry()
+	p.name.OnChanged = func(s string) {
+		if !p.updating {
+			showErr(p.nameMsg, p.u.S.SetDesignName(s))
+		}
+	}
+	p.nameMsg = errorLabel()
+	p.field = mutedLabel("")
+	top := container.NewVBox(heading("Design"), widget.NewForm(widget.NewFormItem("Name", p.name)), p.nameMsg, p.field, widget.NewSeparator())
+	p.content = container.NewBorder(top, nil, nil, nil, split)
 	return p
 }
 
 func (p *marksPanel) refresh() {
+	d := p.u.S.Design()
+	p.updating = true
+	if p.name.Text != d.Name && strings.TrimSpace(p.name.Text) != d.Name {
+		p.name.SetText(d.Name)
+	}
+	p.updating = false
+	p.field.SetText(fmt.Sprintf("Field %s x %s, %s, %s. The name is printed on every plan and report.",
+		formatLength(d.Field.WidthNM), formatLength(d.Field.HeightNM), plural(len(d.Terraces), "terrace"), plural(len(d.Variants), "variant")))
 	p.fids.Refresh()
 	p.terrs.Refresh()
 	if len(p.u.S.Design().Fiducials) == 0 {

@@ -139,7 +139,7 @@ func TestComparisonView(t *testing.T) {
 	u, _ := newTestUI(t, nil)
 	p := handPlan(u.S)
 	res := []exportResult{{Variant: "A", Plan: p}, {Variant: "B", Err: errPlanTest}}
-	view := comparisonView(res)
+	view := comparisonView(res, nil)
 	if w := view.MinSize().Width; w > 1000 {
 		t.Errorf("comparison is %g units wide, more than its 1000-unit dialog", w)
 	}

@@ -95,6 +95,8 @@ type planPanel struct {
 	u       *UI
 	content fyne.CanvasObject
 	body    *fyne.Container
+	scroll  *container.Scroll
+	shown   *planner.Plan // the plan the body shows
 }
 
 func newPlanPanel(u *UI) *planPanel {
@@ -102,8 +104,15 @@ func newPlanPanel(u *UI) *planPanel {
 	p.body = container.NewVBox()
 	replan := widget.NewButtonWithIcon("Plan", theme.MediaPlayIcon(), u.StartPlan)
 	top := container.NewBorder(nil, nil, heading("Write plan"), replan)
-	p.content = container.NewBorder(top, nil, nil, nil, container.NewVScroll(p.body))
+	p.scroll = container.NewVScroll(p.body)
+	p.content = container.NewBorder(top, nil, nil, nil, p.scroll)
 	return p
+}
+
+func warningLabel(s string) *widget.Label {
+	l := wrapLabel(s)
+	l.Importance = widget.WarningImportance
+	return l
 }
 
 func bigText(s string) fyne.CanvasObject {
@@ -123,16 +132,34 @@ func (p *planPanel) refresh() {
 		p.body.Refresh()
 		return
 	}
+	if pl != p.shown {
+		// A new plan is read from its total down.
+		p.shown = pl
+		defer p.scroll.ScrollToTop()
+	}
 	if stale {
-		w := widget.NewLabel("The design or profile changed since this plan was made: plan again for current figures.")
-		w.Wrapping = fyne.TextWrapWord
-		w.Importance = widget.WarningImportance
-		objs = append(objs, w)
+		objs = append(objs, warningLabel("The design or profile changed since this plan was made: plan again for current figures."))
 	}
 	objs = append(objs,
-		widget.NewLabel("Expected write time, variant "+pl.Variant),
+		wrapLabel("Expected write time, variant "+pl.Variant),
 		bigText(formatDuration(pl.TotalS)),
 		wrapLabel(fmt.Sprintf("Spread  P10 %s · P50 %s · P90 %s", formatDuration(pl.P10S), formatDuration(pl.P50S), formatDuration(pl.P90S))),
+	)
+	// What needs the user's attention comes before the details.
+	if f, fstale := s.Findings(); !fstale {
+		if errs, _ := countFindings(f); errs > 0 {
+			objs = append(objs, warningLabel(fmt.Sprintf("Variant %s has %s (see Checks): the plan writes the design as drawn.", s.Variant().Name, plural(errs, "design-rule error"))))
+		}
+	}
+	if !pl.Coverage.OK {
+		l := wrapLabel("Coverage check FAILED: see Segments and strokes below.")
+		l.Importance = widget.DangerImportance
+		objs = append(objs, l)
+	}
+	for _, w := range pl.Warnings {
+		objs = append(objs, warningLabel("Warning: "+w))
+	}
+	objs = append(objs,
 		widget.NewSeparator(),
 		heading("Time by kind"),
 		NewBarChart(breakdownBars(pl.Breakdown, pl.TotalS)),
@@ -170,14 +197,6 @@ func (p *planPanel) refresh() {
 		objs = append(objs, widget.NewSeparator(), heading("Write modes"))
 		for _, m := range pl.Modes {
 			objs = append(objs, wrapLabel(fmt.Sprintf("%s — %s: %s", m.Region, strings.ToUpper(m.Mode), m.Reason)))
-		}
-	}
-	if len(pl.Warnings) > 0 {
-		objs = append(objs, widget.NewSeparator(), heading("Warnings"))
-		for _, w := range pl.Warnings {
-			l := wrapLabel(w)
-			l.Importance = widget.WarningImportance
-			objs = append(objs, l)
 		}
 	}
 	objs = append(objs, widget.NewSeparator(), mutedLabel(planner.Caution))

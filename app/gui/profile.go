@@ -229,7 +229,7 @@ func (e *profileEditor) parse() (planner.Profile, error) {
 		}
 		v, err := parseNumber(f.label, text)
 		if err != nil {
-			bad = append(bad, fmt.Sprintf("%s / %s: %q is not a number", f.group, f.label, text))
+			bad = append(bad, fmt.Sprintf("%s / %s: %s", f.group, f.label, notANumber(text)))
 			continue
 		}
 		*f.f(&p) = v / f.scale
@@ -325,24 +325,13 @@ func (e *profileEditor) saveAs() {
 		showErr(e.msg, fmt.Errorf("Not saved:\n%w", err))
 		return
 	}
-	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
-		if err != nil || w == nil {
-			if err != nil {
-				dialog.ShowError(err, e.u.Win)
-			}
-			return
-		}
-		path := w.URI().Path()
-		w.Close()
+	e.u.chooseFile(safeFileName(p.Name)+".json", []string{".json"}, func(path string) {
 		if err := saveProfile(path, p); err != nil {
 			dialog.ShowError(fmt.Errorf("could not save %s:\n%w", path, err), e.u.Win)
 			return
 		}
 		e.path = path
 		e.msg.Hide()
-	}, e.u.Win)
-	d.SetFileName(safeFileName(p.Name) + ".json")
-	d.SetFilter(storage.NewExtensionFileFilter([]string{".json"}))
-	d.Resize(fyne.NewSize(900, 600))
-	d.Show()
+		e.u.hintLabel.SetText("Saved the instrument profile to " + path)
+	})
 }

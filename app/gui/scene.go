@@ -33,6 +33,9 @@ func (s *Session) Scene(o SceneOptions) *Scene {
 			}
 		}
 	}
+	if b := s.SelectedShapeBounds(); !b.IsEmpty() {
+		sc.SelectedShape = &b
+	}
 	for _, f := range s.d.Fiducials {
 		sc.Fiducials = append(sc.Fiducials, r2.Point{X: f.AtNM[0], Y: f.AtNM[1]})
 	}

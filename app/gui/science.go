@@ -55,21 +55,45 @@ type Finding struct {
 	Bounds r2.Rect
 }
 
-// checkDesign runs the design-rule checks on one variant of d. The
-// error is for a variant that cannot be laid out at all.
-func checkDesign(ctx context.Context, d *design.Design, variant string) ([]Finding, error) {
+// CheckResult is what a design-rule check of one variant finds: the
+// findings, and the measured width (nm) of each declared tunnel gap,
+// keyed by its two region names in the order declared.
+type CheckResult struct {
+	Findings  []Finding
+	GapWidths map[[2]string]float64
+}
+
+// checkDesign runs the design-rule checks on one variant of d and
+// measures its tunnel gaps. The error is for a variant that cannot be
+// laid out at all.
+func checkDesign(ctx context.Context, d *design.Design, variant string) (CheckResult, error) {
+	var res CheckResult
 	fs, err := design.Check(d, variant)
 	if err != nil {
-		return nil, err
+		return res, err
 	}
 	if err := ctx.Err(); err != nil {
-		return nil, err
+		return res, err
 	}
-	out := make([]Finding, len(fs))
+	res.Findings = make([]Finding, len(fs))
 	for i, f := range fs {
-		out[i] = Finding{Rule: f.Rule, Error: f.Severity == design.SeverityError, Message: f.Message, Regions: f.Regions, At: f.AtNM, Bounds: r2.EmptyRect()}
+		res.Findings[i] = Finding{Rule: f.Rule, Error: f.Severity == design.SeverityError, Message: f.Message, Regions: f.Regions, At: f.AtNM, Bounds: r2.EmptyRect()}
 	}
-	return out, nil
+	v, err := d.Variant(variant)
+	if err != nil || len(v.TunnelGaps) == 0 {
+		return res, nil
+	}
+	l, err := d.Lay(variant)
+	if err != nil {
+		return res, nil // the findings say what is wrong
+	}
+	res.GapWidths = map[[2]string]float64{}
+	for _, g := range v.TunnelGaps {
+		if a, b := l.Region(g.A), l.Region(g.B); a != nil && b != nil {
+			res.GapWidths[[2]string{g.A, g.B}] = l.GapNM(a, b)
+		}
+	}
+	return res, ctx.Err()
 }
 
 // buildPlan plans one variant of d.

@@ -42,6 +42,9 @@ type Session struct {
 	Tool Tool
 	Opts ToolOptions
 	sel  []int // selected regions of the current variant, primary first
+	// shapeSel is the selected shape (of the primary selected region),
+	// or nil.
+	shapeSel *selectedShape
 
 	gesture *gesture
 	hoverAt hoverState
@@ -50,6 +53,7 @@ type Session struct {
 	planVariant string
 	planState   *snapshot // the history state the plan was made from
 	findings    []Finding
+	gapWidths   map[[2]string]float64 // tunnel gaps measured by the last check
 	findState   *snapshot
 	chosen      int // index of the finding chosen in the list, or -1
 
@@ -239,6 +243,7 @@ func (s *Session) SetVariant(i int) {
 	s.cancelGesture()
 	s.variant = i
 	s.sel = nil
+	s.shapeSel = nil
 	s.chosen = -1
 	s.ensureCaches()
 	s.notify(ChangeVariants | ChangeRegions | ChangeSites | ChangeSelection | ChangePlan | ChangeFindings)
@@ -394,6 +399,7 @@ func (s *Session) afterRestore(variant int) {
 	s.variant = min(max(variant, 0), len(s.d.Variants)-1)
 	n := len(s.Variant().Regions)
 	s.sel = slices.DeleteFunc(s.sel, func(i int) bool { return i >= n })
+	s.shapeSel = nil
 	s.ensureCaches()
 	s.notify(ChangeAll)
 }
@@ -422,6 +428,7 @@ func (s *Session) Select(regions ...int) {
 		}
 	}
 	s.sel = sel
+	s.shapeSel = nil
 	s.notify(ChangeSelection | ChangeSites)
 }
 
@@ -479,6 +486,7 @@ func (s *Session) addRegion(name string, role design.Role) int {
 	i := len(v.Regions) - 1
 	s.caches[s.ids[s.variant][i]] = s.newCache(lattice.NewSiteSet())
 	s.sel = []int{i}
+	s.shapeSel = nil
 	return i
 }
 
@@ -505,7 +513,12 @@ func (s *Session) DeleteRegions(regions ...int) {
 		}
 	}
 	v.Regions, s.ids[s.variant] = keep, ids
+	// A tunnel gap to a deleted region goes with it.
+	v.TunnelGaps = slices.DeleteFunc(slices.Clone(v.TunnelGaps), func(g design.TunnelGap) bool {
+		return slices.Contains(names, g.A) || slices.Contains(names, g.B)
+	})
 	s.sel = nil
+	s.shapeSel = nil
 	label := "delete region " + names[0]
 	if len(names) > 1 {
 		label = fmt.Sprintf("delete %d regions", len(names))
@@ -532,7 +545,18 @@ func (s *Session) RenameRegion(i int, name string) error {
 		}
 	}
 	s.touch(s.variant, i)
+	old := v.Regions[i].Name
 	v.Regions[i].Name = name
+	// Tunnel gaps name their regions: they follow the rename.
+	v.TunnelGaps = slices.Clone(v.TunnelGaps)
+	for g := range v.TunnelGaps {
+		if v.TunnelGaps[g].A == old {
+			v.TunnelGaps[g].A = name
+		}
+		if v.TunnelGaps[g].B == old {
+			v.TunnelGaps[g].B = name
+		}
+	}
 	s.commit("rename region", fmt.Sprintf("rename-region-%d-%d", s.variant, i), ChangeRegions)
 	return nil
 }
@@ -600,6 +624,70 @@ func (s *Session) setRegion(i int, what string, f func(*design.Region) bool) {
 	s.commit("set "+what+" of "+r.Name, fmt.Sprintf("%s-%d-%d", what, s.variant, i), ChangeRegions)
 }
 
+// SetDesignName renames the design; the name is printed on plans and
+// reports and must not be empty.
+func (s *Session) SetDesignName(name string) error {
+	name = strings.TrimSpace(name)
+	if name == "" {
+		return fmt.Errorf("design name: %w", ErrName)
+	}
+	if name == s.d.Name {
+		return nil
+	}
+	s.d.Name = name
+	s.commit("rename design", "rename-design", ChangeFile)
+	return nil
+}
+
+// --- Tunnel gaps ---
+
+// AddTunnelGap declares that regions a and b of the current variant are
+// meant to be tunnel-coupled across a gap (an SET island and its
+// leads): the checks then measure the gap against the rule's range and
+// count the pair as connected.
+func (s *Session) AddTunnelGap(a, b string) error {
+	v := s.Variant()
+	if v.Region(a) == nil || v.Region(b) == nil {
+		return fmt.Errorf("tunnel gap %s – %s: both must be regions of variant %s", a, b, v.Name)
+	}
+	if a == b {
+		return fmt.Errorf("tunnel gap %s – %s: a gap needs two different regions", a, b)
+	}
+	for _, g := range v.TunnelGaps {
+		if g.A == a && g.B == b || g.A == b && g.B == a {
+			return fmt.Errorf("the tunnel gap %s – %s is already declared", a, b)
+		}
+	}
+	v.TunnelGaps = append(slices.Clone(v.TunnelGaps), design.TunnelGap{A: a, B: b})
+	s.commit("declare tunnel gap "+a+" – "+b, "", ChangeRegions)
+	return nil
+}
+
+// RemoveTunnelGap removes tunnel gap i of the current variant.
+func (s *Session) RemoveTunnelGap(i int) {
+	v := s.Variant()
+	if i < 0 || i >= len(v.TunnelGaps) {
+		return
+	}
+	g := v.TunnelGaps[i]
+	v.TunnelGaps = slices.Delete(slices.Clone(v.TunnelGaps), i, i+1)
+	s.commit("remove tunnel gap "+g.A+" – "+g.B, "", ChangeRegions)
+}
+
+// GapWidth returns the width (nm) of the current variant's tunnel gap
+// between a and b measured by the last check, and whether it is known
+// and up to date.
+func (s *Session) GapWidth(a, b string) (float64, bool) {
+	if s.findState != s.hist.current() {
+		return 0, false
+	}
+	w, ok := s.gapWidths[[2]string{a, b}]
+	if !ok {
+		w, ok = s.gapWidths[[2]string{b, a}]
+	}
+	return w, ok
+}
+
 // --- Variant edits ---
 
 func (s *Session) uniqueVariantName(base string) string {
@@ -631,6 +719,7 @@ func (s *Session) DuplicateVariant(i int) int {
 	s.ids = slices.Insert(s.ids, i+1, append([]regionID(nil), s.ids[i]...))
 	s.variant = i + 1
 	s.sel = nil
+	s.shapeSel = nil
 	s.commit("duplicate variant "+s.d.Variants[i].Name, "", ChangeAll)
 	return i + 1
 }
@@ -669,6 +758,7 @@ func (s *Session) DeleteVariant(i int) error {
 		s.variant = max(s.variant-1, 0)
 	}
 	s.sel = nil
+	s.shapeSel = nil
 	s.ensureCaches()
 	s.commit("delete variant "+name, "", ChangeAll)
 	return nil
@@ -737,6 +827,7 @@ func (s *Session) terracesChanged() error {
 		return err
 	}
 	s.surf, s.surfErr = surf, nil
+	s.shapeSel = nil
 	for v := range s.ids {
 		for i := range s.ids[v] {
 			s.ids[v][i] = s.newID()
@@ -917,7 +1008,14 @@ func (s *Session) Findings() (f []Finding, stale bool) {
 
 // SetFindings records the findings of a check made at state from.
 func (s *Session) SetFindings(f []Finding, from PlanToken) {
-	s.findings, s.findState = f, from.state
+	s.SetCheck(CheckResult{Findings: f}, from)
+}
+
+// SetCheck records a check's findings and tunnel-gap widths, made at
+// state from.
+func (s *Session) SetCheck(c CheckResult, from PlanToken) {
+	f := c.Findings
+	s.findings, s.findState, s.gapWidths = f, from.state, c.GapWidths
 	s.chosen = -1
 	s.notify(ChangeFindings | ChangeSites)
 }

@@ -40,7 +40,7 @@ type ToolInfo struct {
 
 // Tools lists every tool in palette order.
 var Tools = []ToolInfo{
-	{ToolSelect, "Select", 'v', "Click a region to select it, drag a box to select several; Delete removes them."},
+	{ToolSelect, "Select", 'v', "Click a shape to select it, drag it to move it; drag on clean H to box regions. Delete removes, Esc deselects."},
 	{ToolPan, "Pan", 'h', "Drag to move the view. Right- or middle-drag pans with any tool; the wheel zooms."},
 	{ToolSite, "Site", 's', "Click or drag to depassivate single H sites."},
 	{ToolDimer, "Dimer", 'd', "Click or drag to depassivate both H sites of each dimer."},
@@ -139,6 +139,7 @@ type gesture struct {
 	points  []r2.Point // path vertices, snapped
 	target  int        // region being painted, -1 for the eraser
 	created bool       // target was made for this gesture
+	moving  bool       // the Select tool is dragging the selected shape
 	changed bool
 	pressed bool // a drag is in progress
 	dragged bool
@@ -207,7 +208,15 @@ func (s *Session) Press(p r2.Point) {
 	case ToolRect:
 		s.gesture = &gesture{tool: s.Tool, start: p, last: p, pressed: true}
 	case ToolSelect:
-		s.gesture = &gesture{tool: s.Tool, start: p, last: p, pressed: true}
+		g := &gesture{tool: s.Tool, start: p, last: p, pressed: true}
+		if i, k := s.ShapeAt(p); k >= 0 {
+			// A drag that starts on a shape moves it.
+			if ci, ck := s.SelectedShape(); ci != i || ck != k {
+				s.SelectShape(i, k)
+			}
+			g.moving = true
+		}
+		s.gesture = g
 	case ToolLine:
 		if s.gesture == nil || len(s.gesture.points) == 0 {
 			c := s.snapDimerCentre(p)
@@ -261,7 +270,11 @@ func (s *Session) Release(p r2.Point) {
 		a, b := s.snapRect(g.start, g.last)
 		s.addShape(design.Shape{Kind: design.ShapeRect, Points: pts(a, b)}, "rectangle")
 	case ToolSelect:
-		if g.dragged {
+		if g.moving {
+			if g.dragged {
+				s.MoveSelectedShape(g.last.Sub(g.start))
+			}
+		} else if g.dragged {
 			box := r2.RectFromPoints(g.start, g.last)
 			var hit []int
 			for i := range s.Variant().Regions {
@@ -291,9 +304,12 @@ func (s *Session) Click(p r2.Point, near float64) {
 		s.Press(p)
 		s.Release(p)
 	case ToolSelect:
-		if i := s.RegionAt(p); i >= 0 {
+		switch i, k := s.ShapeAt(p); {
+		case k >= 0:
+			s.SelectShape(i, k)
+		case i >= 0:
 			s.Select(i)
-		} else {
+		default:
 			s.Select()
 		}
 	case ToolWindow:
@@ -587,6 +603,8 @@ func (s *Session) Preview() *Preview {
 		case g.tool == ToolRect && g.pressed:
 			a, b := s.snapRect(g.start, g.last)
 			return &Preview{Points: []r2.Point{a, b}, Rect: true}
+		case g.tool == ToolSelect && g.pressed && g.dragged && g.moving:
+			return s.movePreview(g.last.Sub(g.start))
 		case g.tool == ToolSelect && g.pressed && g.dragged:
 			return &Preview{Points: []r2.Point{g.start, g.last}, Rect: true}
 		case g.tool == ToolLine && g.pressed && g.dragged:

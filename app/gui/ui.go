@@ -84,10 +84,13 @@ type UI struct {
 
 	planCancel   context.CancelFunc
 	planStarted  time.Time
+	afterPlan    func() // runs once the running plan is ready (an export waiting for it)
 	checkCancel  context.CancelFunc
 	checkTimer   *time.Timer
 	stopAutosave chan struct{}
-	lastAutosave *snapshot
+	lastAutosave *snapshot // the undo state the recovery copy holds
+	autosaving   bool      // a recovery copy is being written
+	recovery     *recoveryFiles
 
 	// jobDone, when set (by tests), is called after a background plan or
 	// comparison has reported back.
@@ -100,7 +103,9 @@ func New(a fyne.App, w fyne.Window, s *Session, o Options) *UI {
 	if o.CheckDelay == 0 {
 		o.CheckDelay = 400 * time.Millisecond
 	}
-	u := &UI{App: a, Win: w, S: s, opts: o, toolButtons: map[Tool]*widget.Button{}}
+	// Before any file dialog: saving must never empty a file first.
+	installLazyFiles()
+	u := &UI{App: a, Win: w, S: s, opts: o, toolButtons: map[Tool]*widget.Button{}, recovery: &recoveryFiles{}}
 	u.View = NewLatticeView(s)
 	u.View.OnCursor = u.showCursor
 	u.View.OnRune = u.typedRune
@@ -154,6 +159,9 @@ func (u *UI) changed(c Change) {
 	if c&(ChangeFindings|ChangeVariants|ChangeHistory) != 0 {
 		u.findings.refresh()
 	}
+	if c&ChangeFindings != 0 && c&(ChangeRegions|ChangeSelection|ChangeVariants) == 0 {
+		u.regions.refreshGaps() // the widths measured by the check
+	}
 	if c&(ChangePlan|ChangeVariants|ChangeHistory) != 0 {
 		u.planView.refresh()
 	}
@@ -163,11 +171,14 @@ func (u *UI) changed(c Change) {
 		u.variantSelect.Selected = u.S.Variant().Name
 		u.variantSelect.Refresh()
 	}
-	if c&(ChangeFiducials|ChangeTerraces) != 0 {
+	if c&(ChangeFiducials|ChangeTerraces|ChangeFile|ChangeVariants) != 0 {
 		u.marks.refresh()
 	}
 	if c&ChangeTool != 0 {
 		u.refreshTools()
+	}
+	if c&(ChangeTool|ChangeSelection|ChangeRegions|ChangeVariants) != 0 {
+		u.refreshHint()
 	}
 	if c&(ChangeRegions|ChangePlan|ChangeFindings|ChangeVariants|ChangeHistory|ChangeTerraces|ChangeFiducials) != 0 {
 		u.refreshLegend()
@@ -207,7 +218,7 @@ func (u *UI) build() {
 	u.tabFindings = container.NewTabItem("Checks", u.findings.content)
 	u.tabPlan = container.NewTabItem("Plan", u.planView.content)
 	u.tabVariants = container.NewTabItem("Variants", u.variants.content)
-	u.tabMarks = container.NewTabItem("Marks", u.marks.content)
+	u.tabMarks = container.NewTabItem("Design", u.marks.content)
 	u.tabs = container.NewAppTabs(u.tabRegions, u.tabFindings, u.tabPlan, u.tabVariants, u.tabMarks)
 
 	u.variantSelect = widget.NewSelect(nil, func(name string) {
@@ -234,7 +245,7 @@ func (u *UI) content() fyne.CanvasObject {
 		widget.NewSeparator(),
 		u.undoButton, u.redoButton,
 		widget.NewSeparator(),
-		widget.NewLabel("Variant"), container.New(&fixedWidth{w: 150}, u.variantSelect),
+		widget.NewLabel("Variant"), container.New(&fixedWidth{w: 200}, u.variantSelect),
 		widget.NewButtonWithIcon("", theme.ContentCopyIcon(), func() { u.S.DuplicateVariant(u.S.VariantIndex()) }),
 		widget.NewSeparator(),
 		widget.NewButtonWithIcon("Check", theme.ConfirmIcon(), u.CheckNow),
@@ -245,7 +256,7 @@ func (u *UI) content() fyne.CanvasObject {
 		widget.NewButtonWithIcon("Fit", theme.ZoomFitIcon(), u.View.Fit),
 		widget.NewButtonWithIcon("", theme.ZoomInIcon(), func() { u.View.ZoomBy(1.5) }),
 	)
-	left := container.NewVScroll(u.toolPalette())
+	left := container.NewVScroll(container.NewThemeOverride(u.toolPalette(), compactTheme()))
 	right := container.New(&fixedWidth{w: 350}, container.New(layout.NewCustomPaddedLayout(0, 0, 0, 6), u.tabs))
 	status := container.NewBorder(nil, nil, container.New(&fixedWidth{w: 520}, u.cursorLabel), u.progressBox, u.hintLabel)
 	viewFrame := container.NewStack(canvas.NewRectangle(colOutside), u.View)
@@ -307,6 +318,7 @@ func (u *UI) toolPalette() fyne.CanvasObject {
 		} else {
 			u.View.legend.Hide()
 		}
+		u.View.LegendChanged()
 	})
 	legend.SetChecked(true)
 	return container.NewVBox(
@@ -335,7 +347,37 @@ func (u *UI) refreshTools() {
 	}
 	u.toolOptions.Objects = u.optionsFor(u.S.Tool)
 	u.toolOptions.Refresh()
-	u.hintLabel.SetText(u.S.Tool.Info().Hint)
+}
+
+// refreshHint shows what the tool does and, for the painting tools,
+// which region the next stroke goes into.
+func (u *UI) refreshHint() {
+	s := u.S
+	hint := s.Tool.Info().Hint
+	switch s.Tool {
+	case ToolSite, ToolDimer, ToolRect, ToolPolygon, ToolLine:
+		if a := s.Active(); a >= 0 {
+			hint = fmt.Sprintf("Adds to %s (Esc for a new region). %s", s.Variant().Regions[a].Name, hint)
+		} else {
+			hint = "Starts a new region. " + hint
+		}
+	case ToolSelect:
+		if i, k := s.SelectedShape(); i >= 0 {
+			r := s.Variant().Regions[i]
+			hint = fmt.Sprintf("Selected %s %d of %d in %s: drag to move, Delete removes, Esc deselects.", ShapeName(r.Shapes[k]), k+1, len(r.Shapes), r.Name)
+		}
+	}
+	u.hintLabel.SetText(hint)
+}
+
+// deleteSelection removes the selected shape, or else the selected
+// regions.
+func (u *UI) deleteSelection() {
+	if !u.S.DeleteSelectedShape() {
+		if sel := u.S.Selection(); len(sel) > 0 {
+			u.S.DeleteRegions(sel...)
+		}
+	}
 }
 
 // optionEntry is a numeric option field: it applies the value when it
@@ -379,15 +421,6 @@ func (u *UI) optionsFor(t Tool) []fyne.CanvasObject {
 			return u.setOpt(func(o *ToolOptions) error { set(o, x); return nil })
 		})
 	}
-	integer := func(label string, v int, set func(o *ToolOptions, v int)) fyne.CanvasObject {
-		return u.optionEntry(label, fmt.Sprint(v), func(s string) error {
-			x, err := parseInt(label, s)
-			if err != nil {
-				return err
-			}
-			return u.setOpt(func(o *ToolOptions) error { set(o, x); return nil })
-		})
-	}
 	template := func() fyne.CanvasObject {
 		sel := widget.NewSelect(u.templateNames(), func(name string) {
 			u.setOpt(func(o *ToolOptions) error { o.Template = name; return nil })
@@ -407,14 +440,29 @@ func (u *UI) optionsFor(t Tool) []fyne.CanvasObject {
 			u.setOpt(func(o *ToolOptions) error { o.ArrayOf = s; return nil })
 		})
 		of.Selected = o.ArrayOf
+		// Label and field side by side: the four numbers then fit the
+		// column of a laptop screen without scrolling.
+		msg := errorLabel()
+		form := widget.NewForm()
+		field := func(label string, v int, set func(o *ToolOptions, v int)) {
+			e := widget.NewEntry()
+			e.SetText(fmt.Sprint(v))
+			e.OnChanged = func(s string) {
+				x, err := parseInt(label, s)
+				if err == nil {
+					err = u.setOpt(func(o *ToolOptions) error { set(o, x); return nil })
+				}
+				showErr(msg, err)
+			}
+			form.Append(label, e)
+		}
+		field("Columns", o.ArrayCols, func(o *ToolOptions, v int) { o.ArrayCols = v })
+		field("Rows", o.ArrayRows, func(o *ToolOptions, v int) { o.ArrayRows = v })
+		field("Dimer pitch", o.ArrayPitchDimers, func(o *ToolOptions, v int) { o.ArrayPitchDimers = v })
+		field("Row pitch", o.ArrayPitchRows, func(o *ToolOptions, v int) { o.ArrayPitchRows = v })
 		return []fyne.CanvasObject{
-			widget.NewLabel("Repeat"), of, template(),
-			container.NewGridWithColumns(2,
-				integer("Columns", o.ArrayCols, func(o *ToolOptions, v int) { o.ArrayCols = v }),
-				integer("Rows", o.ArrayRows, func(o *ToolOptions, v int) { o.ArrayRows = v })),
-			container.NewGridWithColumns(2,
-				integer("Pitch (dimers)", o.ArrayPitchDimers, func(o *ToolOptions, v int) { o.ArrayPitchDimers = v }),
-				integer("Pitch (rows)", o.ArrayPitchRows, func(o *ToolOptions, v int) { o.ArrayPitchRows = v })),
+			container.NewBorder(nil, nil, widget.NewLabel("Repeat"), nil, of), template(), form, msg,
+			mutedLabel("Pitches count dimers along the row and rows across it."),
 		}
 	}
 	l := widget.NewLabel("No options.")
@@ -463,6 +511,16 @@ func legendRow(sw fyne.CanvasObject, text string) fyne.CanvasObject {
 	return container.NewHBox(container.New(&fixedWidth{w: 22}, sw), legendText(text))
 }
 
+// legendName shortens a region name for the legend, which sits on the
+// lattice and must stay narrow; the Regions panel shows it whole.
+func legendName(s string) string {
+	const most = 24
+	if r := []rune(s); len(r) > most {
+		return string(r[:most-1]) + "…"
+	}
+	return s
+}
+
 // refreshLegend lists what the view's colours mean right now.
 func (u *UI) refreshLegend() {
 	var rows []fyne.CanvasObject
@@ -473,7 +531,7 @@ func (u *UI) refreshLegend() {
 			rows = append(rows, legendRow(swatch(color.Transparent, 12, 12), fmt.Sprintf("… %d more in Regions", len(v.Regions)-maxRegions)))
 			break
 		}
-		rows = append(rows, legendRow(swatch(RegionColor(i), 12, 12), fmt.Sprintf("%s (%s)", r.Name, roleOf(r.Role))))
+		rows = append(rows, legendRow(swatch(RegionColor(i), 12, 12), fmt.Sprintf("%s (%s)", legendName(r.Name), roleOf(r.Role))))
 	}
 	if len(v.Regions) == 0 {
 		rows = append(rows, legendRow(swatch(colCleanH, 12, 12), "clean H-terminated surface"))
@@ -484,11 +542,10 @@ func (u *UI) refreshLegend() {
 		for i := 0; i < min(len(p.Segments), 6); i++ {
 			segs.Add(swatch(SegmentColor(i), 8, 12))
 		}
-		title := fmt.Sprintf("strokes by segment (%d)", len(p.Segments))
+		rows = append(rows, container.NewHBox(segs, legendText(fmt.Sprintf("strokes by segment (%d)", len(p.Segments)))))
 		if stale {
-			title += " — out of date"
+			rows = append(rows, legendRow(swatch(color.Transparent, 12, 12), "route out of date: plan again"))
 		}
-		rows = append(rows, container.NewHBox(segs, legendText(title)))
 		rows = append(rows, legendRow(swatch(colMove, 14, 1), "tip moves"))
 		rows = append(rows, legendRow(legendText("◇"), "registration on a fiducial"))
 	}
@@ -498,17 +555,35 @@ func (u *UI) refreshLegend() {
 	if surf := u.S.Surface(); surf != nil && len(surf.Terraces) > 1 {
 		rows = append(rows, widget.NewSeparator())
 		for i, t := range surf.Terraces {
-			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: rows along %s", t.Name, t.Rows)))
+			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: rows along %s", legendName(t.Name), t.Rows)))
 		}
 		rows = append(rows, legendRow(swatch(colStep, 14, 2), "step edge"))
 	}
 	if f, _ := u.S.Findings(); len(f) > 0 && u.View.Opts.Findings {
-		rows = append(rows, legendRow(swatch(colError, 12, 12), "design-rule error"))
-		rows = append(rows, legendRow(swatch(colWarning, 12, 12), "design-rule warning"))
+		errs, warns := countFindings(f)
+		if errs > 0 {
+			rows = append(rows, legendRow(swatch(colError, 12, 12), "design-rule error"))
+		}
+		if warns > 0 {
+			rows = append(rows, legendRow(swatch(colWarning, 12, 12), "design-rule warning"))
+		}
 	}
 	u.legend.Objects = rows
 	u.legend.Refresh()
 	u.View.Refresh()
+	u.View.LegendChanged()
+}
+
+// countFindings returns the numbers of errors and of warnings.
+func countFindings(f []Finding) (errs, warns int) {
+	for _, x := range f {
+		if x.Error {
+			errs++
+		} else {
+			warns++
+		}
+	}
+	return errs, warns
 }
 
 // --- Status ---
@@ -590,11 +665,14 @@ func (u *UI) typedKey(k *fyne.KeyEvent) {
 			u.hintLabel.SetText(err.Error())
 		}
 	case fyne.KeyEscape:
-		u.S.CancelPath()
-	case fyne.KeyDelete, fyne.KeyBackspace:
-		if sel := u.S.Selection(); len(sel) > 0 {
-			u.S.DeleteRegions(sel...)
+		if u.S.Drawing() {
+			u.S.CancelPath()
+		} else if len(u.S.Selection()) > 0 {
+			// Nothing selected: the next stroke starts a new region.
+			u.S.Select()
 		}
+	case fyne.KeyDelete, fyne.KeyBackspace:
+		u.deleteSelection()
 	case fyne.KeyLeft:
 		u.View.SetView(u.View.view.Pan(step, 0))
 	case fyne.KeyRight:
@@ -671,8 +749,9 @@ func (u *UI) buildMenu() {
 	edit := fyne.NewMenu("Edit", u.undoItem, u.redoItem,
 		item("Redo (Ctrl+Y)", &fyne.ShortcutRedo{}, func() { u.S.Redo() }),
 		fyne.NewMenuItemSeparator(),
+		fyne.NewMenuItem("Delete selected shape (Delete)", func() { u.S.DeleteSelectedShape() }),
 		fyne.NewMenuItem("Delete selected regions", func() { u.S.DeleteRegions(u.S.Selection()...) }),
-		fyne.NewMenuItem("Select none", func() { u.S.Select() }),
+		fyne.NewMenuItem("Select nothing (Esc)", func() { u.S.Select() }),
 	)
 	var toolItems []*fyne.MenuItem
 	for _, ti := range Tools {
@@ -722,21 +801,32 @@ func (u *UI) showCaution() {
 	d.Show()
 }
 
-func (u *UI) showKeys() {
-	var text string
+// keyHelp lists the keys and mouse gestures: what is pressed, and what
+// it does.
+func keyHelp() [][2]string {
+	var rows [][2]string
 	for _, ti := range Tools {
-		text += fmt.Sprintf("%c\t%s — %s\n", ti.Key-'a'+'A', ti.Name, ti.Hint)
+		rows = append(rows, [2]string{string(ti.Key - 'a' + 'A'), ti.Name + ": " + ti.Hint})
 	}
-	text += "\nWheel\tzoom around the pointer;  + and − zoom, 0 or Home shows the whole field\n" +
-		"Drag\twith the Pan tool, the middle button or the right button: move the view;  arrow keys pan\n" +
-		"Enter / Esc\tfinish / cancel a polygon, line or terrace outline\n" +
-		"Delete\tremove the selected regions\n" +
-		"Ctrl+Z\tundo;  Ctrl+Shift+Z or Ctrl+Y redo\n" +
-		"Ctrl+S\tsave;  Ctrl+Shift+S save as;  Ctrl+O open;  Ctrl+N new\n" +
-		"Ctrl+Enter\tplan the variant;  F5 check design rules;  Ctrl+E export the operator's PDF\n"
-	l := widget.NewLabel(text)
-	l.Wrapping = fyne.TextWrapWord
-	dialog.NewCustom("Keyboard and mouse", "Close", container.New(&fixedWidth{w: 700}, container.NewVScroll(l)), u.Win).Show()
+	return append(rows,
+		[2]string{"Wheel", "zoom around the pointer; + and − zoom, 0 or Home shows the whole field"},
+		[2]string{"Drag", "with the Pan tool, the middle or the right button: move the view; the arrow keys pan"},
+		[2]string{"Enter / Esc", "finish / cancel a polygon, line or terrace outline; Esc otherwise selects nothing, so the next stroke starts a new region"},
+		[2]string{"Select tool", "click a shape to select it, drag it to move it by whole dimers and rows"},
+		[2]string{"Delete", "remove the selected shape, or the selected regions"},
+		[2]string{"Ctrl+Z", "undo; Ctrl+Shift+Z or Ctrl+Y redo"},
+		[2]string{"Ctrl+S", "save; Ctrl+Shift+S save as; Ctrl+O open; Ctrl+N new"},
+		[2]string{"Ctrl+Enter", "plan the variant; F5 checks the design rules; Ctrl+E exports the operator's PDF"},
+	)
+}
+
+func (u *UI) showKeys() {
+	form := widget.NewForm()
+	for _, r := range keyHelp() {
+		form.Append(r[0], wrapLabel(r[1]))
+	}
+	body := container.New(&fixedSize{fyne.NewSize(720, min(520, u.Win.Canvas().Size().Height-160))}, container.NewVScroll(form))
+	dialog.NewCustom("Keyboard and mouse", "Close", body, u.Win).Show()
 }
 
 func (u *UI) showAbout() {

@@ -110,15 +110,7 @@ func (v View) CenteredOn(p r2.Point, scale float64) View {
 	return v
 }
 
-func clampf(v, lo, hi float64) float64 {
-	if v < lo {
-		return lo
-	}
-	if v > hi {
-		return hi
-	}
-	return v
-}
+func clampf(v, lo, hi float64) float64 { return min(max(v, lo), hi) }
 
 // niceLength returns the largest 1, 2 or 5 x 10^k that is at most max,
 // for the length of a scale bar (max > 0).

@@ -2,12 +2,12 @@ package design
 
 import (
 	"fmt"
-	"math"
 	"slices"
 	"strings"
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/internal/unionfind"
 	"dimerpath/lattice"
 )
 
@@ -98,7 +98,7 @@ func Check(d *Design, variant string) ([]Finding, error) {
 // grid index over the rectangles of their site runs, so the cost grows
 // with the regions' outlines, not their site counts.
 func (l *Layout) Check() []Finding {
-	c := checker{l: l, index: make([]*cellIndex, len(l.Regions))}
+	c := checker{l: l, index: make([]*lattice.CellIndex, len(l.Regions))}
 	c.windowLattice()
 	c.windowSpacing()
 	c.feKeepOut()
@@ -110,7 +110,7 @@ func (l *Layout) Check() []Finding {
 
 type checker struct {
 	l        *Layout
-	index    []*cellIndex
+	index    []*lattice.CellIndex
 	findings []Finding
 	counts   map[string]int
 }
@@ -128,9 +128,9 @@ func (c *checker) add(rule string, sev Severity, at r2.Point, msg string, region
 	}
 }
 
-func (c *checker) cells(i int) *cellIndex {
+func (c *checker) cells(i int) *lattice.CellIndex {
 	if c.index[i] == nil {
-		c.index[i] = newCellIndex(c.l.Surface, c.l.Regions[i].Sites)
+		c.index[i] = lattice.NewCellIndex(c.l.Surface, c.l.Regions[i].Sites)
 	}
 	return c.index[i]
 }
@@ -329,7 +329,7 @@ func (c *checker) feKeepOut() {
 	}
 	for _, f := range fe {
 		for _, a := range ap {
-			d, at, ok := c.cells(f).gap(c.cells(a), keep)
+			d, at, ok := c.cells(f).GapWithin(c.cells(a), keep)
 			if ok && d < keep {
 				c.add(RuleFEKeepOut, SeverityError, at, fmt.Sprintf("field-emission region %q comes %.2f nm from atomic-precision region %q; keep at least %g nm", c.name(f), d, c.name(a), keep), c.regionNames(f, a)...)
 			}
@@ -416,19 +416,8 @@ func outsidePoint(surf *lattice.Surface, sh *Shape, field r2.Rect) (r2.Point, bo
 // holds no pad.
 func (c *checker) floating() {
 	n := len(c.l.Regions)
-	parent := make([]int, n)
-	for i := range parent {
-		parent[i] = i
-	}
-	var find func(int) int
-	find = func(i int) int {
-		for parent[i] != i {
-			parent[i] = parent[parent[i]]
-			i = parent[i]
-		}
-		return i
-	}
-	union := func(a, b int) { parent[find(a)] = find(b) }
+	sets := unionfind.New(n)
+	find, union := sets.Find, func(a, b int) { sets.Union(a, b) }
 	for i := range n {
 		if c.l.Regions[i].Sites.IsEmpty() {
 			continue
@@ -437,7 +426,7 @@ func (c *checker) floating() {
 			if c.l.Regions[j].Sites.IsEmpty() || find(i) == find(j) {
 				continue
 			}
-			if _, _, ok := c.cells(i).gap(c.cells(j), TouchNM); ok {
+			if _, _, ok := c.cells(i).GapWithin(c.cells(j), TouchNM); ok {
 				union(i, j)
 			}
 		}
@@ -502,7 +491,7 @@ func (c *checker) tunnelGaps() {
 			continue
 		}
 		limit := 2*hi + 10
-		d, at, ok := c.cells(a).gap(c.cells(b), limit)
+		d, at, ok := c.cells(a).GapWithin(c.cells(b), limit)
 		rows := d / lattice.RowSpacing
 		switch {
 		case !ok:
@@ -520,17 +509,8 @@ func (c *checker) tunnelGaps() {
 
 // GapNM returns the least distance in nm between the site cells of two
 // laid-out regions (0 when they touch or overlap), or +Inf when either
-// is empty. It is what the tunnel-gap rule measures.
+// is empty. It is what the tunnel-gap rule measures (lattice.CellIndex).
 func (l *Layout) GapNM(a, b *RegionLayout) float64 {
-	ia, ib := newCellIndex(l.Surface, a.Sites), newCellIndex(l.Surface, b.Sites)
-	if ia.bounds.IsEmpty() || ib.bounds.IsEmpty() {
-		return math.Inf(1)
-	}
-	// Widen the search until it finds the nearest cells: each round
-	// looks only at grid cells within the current limit.
-	for limit := boundsGap(ia, ib) + 1; ; limit *= 2 {
-		if d, _, ok := ia.gap(ib, limit); ok {
-			return d
-		}
-	}
+	d, _ := lattice.NewCellIndex(l.Surface, a.Sites).Gap(lattice.NewCellIndex(l.Surface, b.Sites))
+	return d
 }

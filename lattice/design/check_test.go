@@ -2,7 +2,6 @@ package design
 
 import (
 	"math"
-	"math/rand/v2"
 	"os"
 	"strings"
 	"testing"
@@ -179,36 +178,4 @@ func countRule(fs []Finding, rule string) int {
 		}
 	}
 	return n
-}
-
-// The grid index finds the same gap as comparing every pair of cells.
-func TestGapAgainstBruteForce(t *testing.T) {
-	surf, _ := lattice.NewSurface(120, 120)
-	rng := rand.New(rand.NewPCG(21, 22))
-	for trial := range 60 {
-		a, b := lattice.NewSiteSet(), lattice.NewSiteSet()
-		for _, s := range []*lattice.SiteSet{a, b} {
-			for range 1 + rng.IntN(4) {
-				x, y := 120*rng.Float64(), 120*rng.Float64()
-				surf.Paint(s, lattice.RectFromCorners(pt(x, y), pt(x+15*rng.Float64(), y+15*rng.Float64())))
-			}
-		}
-		if a.IsEmpty() || b.IsEmpty() {
-			continue
-		}
-		ia, ib := newCellIndex(surf, a), newCellIndex(surf, b)
-		want := math.Inf(1)
-		for _, ra := range ia.rects {
-			for _, rb := range ib.rects {
-				d, _ := rectGap(ra, rb)
-				want = math.Min(want, d)
-			}
-		}
-		for _, limit := range []float64{0.3, 5, 50, 500} {
-			d, _, ok := ia.gap(ib, limit)
-			if ok != (want <= limit) || (ok && math.Abs(d-want) > 1e-9) {
-				t.Fatalf("trial %d limit %g: gap = %g, %v; brute force %g", trial, limit, d, ok, want)
-			}
-		}
-	}
 }

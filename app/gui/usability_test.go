@@ -1,0 +1,226 @@
+package gui
+
+import (
+	"context"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/test"
+	"fyne.io/fyne/v2/widget"
+	"github.com/golang/geo/r2"
+
+	"dimerpath/export"
+)
+
+// Tests of what a lab user tripped over in a real session (see the GUI
+// section of DEVELOPERS.md).
+
+func TestClickOnTheLatticeTakesTheKeys(t *testing.T) {
+	u, w := newTestUI(t, nil)
+	u.S.Select(0)
+	c := w.Canvas()
+	c.Focus(u.regions.name) // the user just renamed the island
+	if c.Focused() != u.regions.name {
+		t.Fatal("could not focus the region name")
+	}
+	test.TapCanvas(c, screenPos(u, r2.Point{X: 150, Y: 150}))
+	if c.Focused() != u.View {
+		t.Fatalf("after a click on the lattice the keys go to %T, want the lattice view", c.Focused())
+	}
+	// A tool's letter now picks the tool and leaves the name alone.
+	c.Focused().(fyne.Focusable).TypedRune('r')
+	if u.S.Tool != ToolRect {
+		t.Errorf("typing r picked %v, want the rectangle tool", u.S.Tool.Info().Name)
+	}
+	if got := u.S.Variant().Regions[0].Name; got != "island" {
+		t.Errorf("the region was renamed to %q by a key meant for the lattice", got)
+	}
+}
+
+// fieldAndLegend returns the field's and the legend's rectangles in
+// the view's units.
+func fieldAndLegend(u *UI) (field, legend r2.Rect) {
+	f := u.S.Surface().Field
+	a, b := u.View.PositionOf(r2.Point{X: f.X.Lo, Y: f.Y.Hi}), u.View.PositionOf(r2.Point{X: f.X.Hi, Y: f.Y.Lo})
+	field = r2.RectFromPoints(r2.Point{X: float64(a.X), Y: float64(a.Y)}, r2.Point{X: float64(b.X), Y: float64(b.Y)})
+	lp, ls := u.View.legend.Position(), u.View.legend.Size()
+	legend = r2.RectFromPoints(r2.Point{X: float64(lp.X), Y: float64(lp.Y)}, r2.Point{X: float64(lp.X + ls.Width), Y: float64(lp.Y + ls.Height)})
+	return field, legend
+}
+
+func TestLegendNeverCoversTheFittedField(t *testing.T) {
+	for _, size := range []fyne.Size{{Width: 1280, Height: 800}, {Width: 1600, Height: 1000}} {
+		s := newTestSession(t)
+		u, w := newTestUI(t, s)
+		w.Resize(size)
+		w.Canvas().Capture()
+		// Long names and a plan that is out of date make the legend grow
+		// after the field was fitted.
+		u.S.Select(0)
+		if err := u.S.RenameRegion(0, "sensor island with a long descriptive name"); err != nil {
+			t.Fatal(err)
+		}
+		u.S.SetPlan(handPlan(u.S), "A", PlanToken{})
+		u.CheckSync()
+		w.Canvas().Capture()
+		if !strings.Contains(texts(u.legend), "route out of date") {
+			t.Fatalf("%v: the legend does not show the stale route:\n%s", size, texts(u.legend))
+		}
+		field, legend := fieldAndLegend(u)
+		if field.Intersects(legend) {
+			t.Errorf("%v: legend %v covers the field %v", size, legend, field)
+		}
+		// Zoomed in by the user, the view is left where it is.
+		u.View.ZoomBy(2)
+		v := u.View.View()
+		u.S.AddRegion("another", "other")
+		if u.View.View() != v {
+			t.Errorf("%v: a legend change moved a view the user had zoomed", size)
+		}
+	}
+}
+
+func TestComparisonFitsItsDialog(t *testing.T) {
+	u, w := newTestUI(t, nil)
+	p := handPlan(u.S)
+	res := []export.VariantResult{
+		{Variant: "A", Plan: p},
+		{Variant: "gate-written-in-FE-mode", Plan: p},
+	}
+	view := comparisonView(res, []string{"passes", "1 error"})
+	w.SetContent(view)
+	// The dialog shows it 1000 units wide (showComparison).
+	if text := texts(view); !strings.Contains(text, "Design rules") || !strings.Contains(text, "1 error") {
+		t.Errorf("the comparison does not say how each variant fares under the rules:\n%s", text)
+	}
+	if got := view.MinSize().Width; got > 1000 {
+		t.Errorf("the comparison needs %.0f units, more than its 1000-unit dialog: text would be cut off", got)
+	}
+	table := view.(*fyne.Container).Objects[0].(*fyne.Container)
+	tl := table.Layout.(*tableLayout)
+	widths, _ := tl.sizes(table.Objects)
+	name := widget.NewLabel("gate-written-in-FE-mode")
+	if widths[0] < name.MinSize().Width-1 {
+		t.Errorf("the variant column is %.0f wide, narrower than the name", widths[0])
+	}
+}
+
+func TestUntitledDesignTakesItsFileName(t *testing.T) {
+	s, err := NewSession(NewDesign(), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	u, _ := newTestUI(t, s)
+	saved := false
+	u.saveAsTo(filepath.Join(t.TempDir(), "set-sensor.json"), func() { saved = true })
+	if !saved || u.S.Design().Name != "set-sensor" || u.S.Dirty() {
+		t.Errorf("after Save As: saved %v, name %q, dirty %v", saved, u.S.Design().Name, u.S.Dirty())
+	}
+	// A named design keeps its name; the Design tab renames it, undoably.
+	u.saveAsTo(filepath.Join(t.TempDir(), "copy.json"), nil)
+	if u.S.Design().Name != "set-sensor" {
+		t.Errorf("a named design was renamed to %q by Save As", u.S.Design().Name)
+	}
+	u.marks.name.CursorColumn = len(u.marks.name.Text)
+	test.Type(u.marks.name, " v2")
+	if u.S.Design().Name != "set-sensor v2" || !u.S.Dirty() {
+		t.Errorf("typing in the Design tab's name: %q, dirty %v", u.S.Design().Name, u.S.Dirty())
+	}
+	u.S.Undo()
+	if u.S.Design().Name != "set-sensor" {
+		t.Errorf("one undo should revert the whole typed name, got %q", u.S.Design().Name)
+	}
+	u.marks.name.SetText("  ")
+	if u.marks.nameMsg.Hidden || u.S.Design().Name != "set-sensor" {
+		t.Error("an empty design name was accepted")
+	}
+}
+
+func TestDecimalCommaIsExplained(t *testing.T) {
+	for _, c := range []struct{ in, want string }{
+		{"2,5", `"2,5" is not a number: write decimals with a point (2.5)`},
+		{"abc", `"abc" is not a number`},
+		{"1,000.5", `"1,000.5" is not a number`},
+		{" ", "empty; type a number"},
+	} {
+		if got := notANumber(c.in); got != c.want {
+			t.Errorf("notANumber(%q) = %q, want %q", c.in, got, c.want)
+		}
+	}
+	u, _ := newTestUI(t, nil)
+	e := u.openProfileEditor()
+	e.entry("ap.current_a").SetText("2,5")
+	e.apply()
+	if e.msg.Hidden || !strings.Contains(e.msg.Text, "write decimals with a point (2.5)") {
+		t.Errorf("profile editor says %q for 2,5", e.msg.Text)
+	}
+}
+
+func TestExportWaitingForAPlanGoesOn(t *testing.T) {
+	u, _ := newTestUI(t, nil)
+	went := 0
+	u.afterPlan = func() { went++ }
+	u.planDone(u.S, handPlan(u.S), "A", u.S.Token(), nil)
+	if went != 1 || u.afterPlan != nil {
+		t.Errorf("after the plan: the waiting export ran %d times, still waiting %v", went, u.afterPlan != nil)
+	}
+	u.afterPlan = func() { went++ }
+	u.planDone(u.S, nil, "A", u.S.Token(), context.Canceled)
+	if went != 1 || u.afterPlan != nil {
+		t.Error("a cancelled plan must drop the waiting export")
+	}
+}
+
+func TestKeyHelpShowsEveryLine(t *testing.T) {
+	u, w := newTestUI(t, nil)
+	u.showKeys()
+	top := w.Canvas().Overlays().Top()
+	if top == nil {
+		t.Fatal("no Keyboard and mouse dialog")
+	}
+	w.Canvas().Capture()
+	var scroll *container.Scroll
+	var find func(o fyne.CanvasObject)
+	find = func(o fyne.CanvasObject) {
+		switch x := o.(type) {
+		case *container.Scroll:
+			scroll = x
+		case *fyne.Container:
+			for _, c := range x.Objects {
+				find(c)
+			}
+		case fyne.Widget:
+			for _, c := range test.WidgetRenderer(x).Objects() {
+				find(c)
+			}
+		}
+	}
+	find(top)
+	if scroll == nil {
+		t.Fatal("no scroll in the dialog")
+	}
+	// The dialog once showed one line of a 20-line list: the scroll must
+	// be tall enough for several.
+	if h := scroll.Size().Height; h < 300 {
+		t.Errorf("the key list is %.0f units tall, want at least 300", h)
+	}
+	if got := texts(scroll.Content); !strings.Contains(got, "Ctrl+Enter") || !strings.Contains(got, "drag it to move it") {
+		t.Errorf("key list lacks entries:\n%s", got)
+	}
+}
+
+func TestLegendThatStillFitsLeavesTheFieldWhereItIs(t *testing.T) {
+	u, w := newTestUI(t, nil)
+	u.View.Fit()
+	w.Canvas().Capture()
+	v := u.View.View()
+	// A short new region adds a legend row no wider than the others.
+	u.S.AddRegion("x", "other")
+	w.Canvas().Capture()
+	if _, legend := fieldAndLegend(u); u.View.View() != v {
+		t.Errorf("the field moved under the pointer although the legend %v still fits beside it", legend)
+	}
+}
