@@ -2,6 +2,7 @@ package route
 
 import (
 	"context"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -18,15 +19,7 @@ func TestMovesKeepTour(t *testing.T) {
 	counts := map[int]int{}
 	for trial := range 300 {
 		n := 12 + r.IntN(40)
-		items := make([]Item, n)
-		for i := range items {
-			p := Point{X: r.Float64() * 100, Y: r.Float64() * 100}
-			q := p
-			if trial%2 == 1 && r.IntN(2) == 0 {
-				q = Point{X: p.X + r.Float64()*10, Y: p.Y + r.Float64()*10}
-			}
-			items[i] = Item{A: p, B: q}
-		}
+		items := randomItems(r, n, float64(trial%2)/2, 10)
 		var start *Point
 		if trial%3 == 0 {
 			start = &Point{X: 50, Y: 50}
@@ -47,15 +40,8 @@ func TestMovesKeepTour(t *testing.T) {
 			if math.Abs(after-before-delta) > 1e-6 {
 				t.Fatalf("trial %d %s: predicted change %v, real %v", trial, what, delta, after-before)
 			}
-			seen := make([]bool, s.n)
-			for i, v := range s.t {
-				if seen[v] || s.pos[v] != int32(i) {
-					t.Fatalf("trial %d %s: not a permutation", trial, what)
-				}
-				seen[v] = true
-				if p := g.partner[v]; p >= 0 && s.succ(v) != p && s.pred(v) != p {
-					t.Fatalf("trial %d %s: fixed edge (%d,%d) cut", trial, what, v, p)
-				}
+			if err := tourError(s); err != "" {
+				t.Fatalf("trial %d %s: %s", trial, what, err)
 			}
 		}
 		for range 60 {
@@ -270,15 +256,7 @@ func TestKOptKeepsTour(t *testing.T) {
 	made := 0
 	for trial := range 200 {
 		n := 12 + r.IntN(60)
-		items := make([]Item, n)
-		for i := range items {
-			p := Point{X: r.Float64() * 100, Y: r.Float64() * 100}
-			q := p
-			if trial%2 == 1 && r.IntN(3) > 0 {
-				q = Point{X: p.X + r.Float64()*20 - 10, Y: p.Y + r.Float64()*20 - 10}
-			}
-			items[i] = Item{A: p, B: q}
-		}
+		items := randomItems(r, n, float64(trial%2)*2/3, 10)
 		g := newGraph(items, nil, nil, trial%3 == 0)
 		nb := buildNeighbours(g, 8, trial%2 == 1)
 		s := newSolver(g, nb, g.tourFromOrder(r.Perm(n), make([]bool, n)))
@@ -302,15 +280,8 @@ func TestKOptKeepsTour(t *testing.T) {
 			if math.Abs(after-before-(s.length-l0)) > 1e-6 || after >= before {
 				t.Fatalf("trial %d: predicted change %v, real %v", trial, s.length-l0, after-before)
 			}
-			seen := make([]bool, s.n)
-			for i, v := range s.t {
-				if seen[v] || s.pos[v] != int32(i) {
-					t.Fatalf("trial %d: not a permutation", trial)
-				}
-				seen[v] = true
-				if p := g.partner[v]; p >= 0 && s.succ(v) != p && s.pred(v) != p {
-					t.Fatalf("trial %d: fixed edge (%d,%d) cut", trial, v, p)
-				}
+			if err := tourError(s); err != "" {
+				t.Fatalf("trial %d: %s", trial, err)
 			}
 			for k := 0; k+1 < len(s.journal); k += 2 {
 				if l := s.journal[k+1]; l > s.maxRev {
@@ -323,4 +294,36 @@ func TestKOptKeepsTour(t *testing.T) {
 		t.Errorf("only %d deep moves made; the test exercises too little", made)
 	}
 	t.Logf("%d deep moves", made)
+}
+
+// randomItems returns n items at random in a 100 x 100 square, each a
+// stroke with probability strokes, its B end within reach of A on
+// each axis.
+func randomItems(r *rand.Rand, n int, strokes, reach float64) []Item {
+	items := make([]Item, n)
+	for i := range items {
+		p := Point{X: r.Float64() * 100, Y: r.Float64() * 100}
+		q := p
+		if r.Float64() < strokes {
+			q = Point{X: p.X + (2*r.Float64()-1)*reach, Y: p.Y + (2*r.Float64()-1)*reach}
+		}
+		items[i] = Item{A: p, B: q}
+	}
+	return items
+}
+
+// tourError describes what is wrong with s's tour: not a permutation
+// matching the position index, or a fixed edge cut; "" if nothing.
+func tourError(s *solver) string {
+	seen := make([]bool, s.n)
+	for i, v := range s.t {
+		if seen[v] || s.pos[v] != int32(i) {
+			return "not a permutation"
+		}
+		seen[v] = true
+		if p := s.g.partner[v]; p >= 0 && s.succ(v) != p && s.pred(v) != p {
+			return fmt.Sprintf("fixed edge (%d,%d) cut", v, p)
+		}
+	}
+	return ""
 }
