@@ -342,17 +342,17 @@ func (b *builder) conditions(u ModeUse) []Conditions {
 	if u.AP {
 		m := b.prof.AP
 		cs = append(cs, Conditions{Mode: AP, Kind: StrokeLine, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
-			SpeedNMPerS: m.Speed(), LineWidthNM: m.LineWidth(), Passes: max(m.Passes, 1)})
+			SpeedNMPerS: m.Speed(), LineWidthNM: b.prof.Line(AP).Width(), Passes: max(m.Passes, 1)})
 	}
 	if u.Dwell {
 		d := b.prof.Dwell
 		cs = append(cs, Conditions{Mode: AP, Kind: StrokeDwell, BiasV: d.BiasV, CurrentA: d.CurrentA, Passes: 1,
-			DwellS: d.ExpectedS(), DwellCapS: d.CapS()})
+			DwellS: b.prof.DwellExpectedS(), DwellCapS: b.prof.DwellCapS()})
 	}
 	if u.FE {
 		m := b.prof.FE
 		cs = append(cs, Conditions{Mode: FE, Kind: StrokeRaster, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
-			SpeedNMPerS: m.Speed(), LineWidthNM: m.LineWidth(), Passes: max(m.Passes, 1), PitchNM: m.Pitch()})
+			SpeedNMPerS: m.Speed(), LineWidthNM: b.prof.Line(FE).Width(), Passes: max(m.Passes, 1), PitchNM: b.prof.FEPitch()})
 	}
 	return cs
 }

@@ -207,12 +207,10 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 			}
 			continue
 		}
-		m := prof.AP
-		if st.Mode == FE {
-			m = prof.FE
-		}
-		ratio := float64(max(st.Passes, 1)) * m.LineDoseCPerCm / m.Width.ThresholdDoseCPerCm
-		sigma := m.Width.SigmaNM
+		l := prof.Line(st.Mode)
+		// Interim: a site counts as cleared at probability ½.
+		ratio := float64(max(st.Passes, 1)) * l.PassPeak / math.Ln2
+		sigma := l.SigmaNM
 		if ratio <= coverageNeglect || !(sigma > 0) {
 			continue
 		}

@@ -1,6 +1,7 @@
 package planner
 
 import (
+	"math"
 	"testing"
 
 	"dimerpath/assets"
@@ -80,11 +81,8 @@ func bruteCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []St
 						if s.Kind == StrokeDwell {
 							continue
 						}
-						m := prof.AP
-						if s.Mode == FE {
-							m = prof.FE
-						}
-						ratio := float64(max(s.Passes, 1)) * m.LineDoseCPerCm / m.Width.ThresholdDoseCPerCm
+						l := prof.Line(s.Mode)
+						ratio := float64(max(s.Passes, 1)) * l.PassPeak / math.Ln2
 						for i := 0; i+1 < len(s.Path); i++ {
 							a, b := s.Path[i], s.Path[i+1]
 							ab := b.Sub(a)
@@ -98,7 +96,7 @@ func bruteCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []St
 							if dd < 0 {
 								dd = -dd
 							}
-							x := exposure(ratio, m.Width.SigmaNM, L, aq.Dot(u), dd)
+							x := lineExposure(ratio, l.SigmaNM, L, aq.Dot(u), dd)
 							e += x
 							if x < coverageNeglect {
 								small += x

@@ -113,8 +113,8 @@ func monteCarlo(ctx context.Context, sg *segmenter, prof *Profile, runs int, see
 	}
 
 	if dwells > 0 {
-		k, capS := prof.Dwell.Rate(), prof.Dwell.CapS()
-		mean := prof.Dwell.ExpectedS()
+		k, capS := prof.DwellRate(), prof.DwellCapS()
+		mean := prof.DwellExpectedS()
 		src := rand.NewPCG(uint64(seed), 0x6477656c6c)
 		if dwells <= exactDwellSamples {
 			// Exponential with rate k, as distuv.Exponential draws it

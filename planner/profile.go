@@ -17,7 +17,7 @@ import (
 // ProfileFormat and ProfileVersion identify instrument-profile files.
 const (
 	ProfileFormat  = "dimerpath-profile"
-	ProfileVersion = 1
+	ProfileVersion = 2
 )
 
 // Profile describes one instrument and tip as the planner needs it: the
@@ -33,9 +33,20 @@ type Profile struct {
 	// empty): fields the file leaves out keep the preset's value.
 	Base string `json:"base,omitempty"`
 
+	// Exposure gives the desorption yield per electron at any bias and
+	// current; with each mode's footprint it decides how likely every
+	// site is to clear (see ExposureModel).
+	Exposure ExposureModel `json:"exposure"`
+
 	AP    ModeProfile  `json:"ap"`
 	FE    ModeProfile  `json:"fe"`
 	Dwell DwellProfile `json:"dwell"`
+
+	// StrayLimit is the largest probability with which a site outside
+	// every region (beyond the edge allowance) may clear: a plan or
+	// design whose strokes clear such a site more likely than this fails
+	// its coverage check.
+	StrayLimit float64 `json:"stray_limit"`
 
 	// MoveSpeedNMPerS is the tip speed for idle moves in imaging
 	// conditions; SettleS is the wait after each move; ModeSwitchS is
@@ -69,48 +80,42 @@ type Profile struct {
 	Limits Limits `json:"limits"`
 }
 
-// ModeProfile holds the tip conditions and dose model of one write mode.
+// ModeProfile holds the tip conditions and footprint of one write mode.
 type ModeProfile struct {
 	BiasV          float64 `json:"bias_v"`
 	CurrentA       float64 `json:"current_a"`
 	LineDoseCPerCm float64 `json:"line_dose_c_per_cm"`
 	Passes         int     `json:"passes"`
-	// Width is the line width as a function of line dose.
-	Width WidthModel `json:"width"`
-	// Overlap is the fraction of the line width by which neighbouring
-	// raster lines overlap (FE fill); the pitch is width·(1-overlap).
-	Overlap float64 `json:"overlap,omitempty"`
+	// SigmaNM is the standard deviation of the footprint through which
+	// the tip's electrons act on the H sites (the effective footprint:
+	// in the multi-electron regime the rate goes as a power of the local
+	// current, so it is narrower than the current's own).
+	SigmaNM float64 `json:"sigma_nm"`
+	// FillCompletion is the probability with which the FE raster clears
+	// the sites between two lines; it sets the raster pitch (FE only).
+	FillCompletion float64 `json:"fill_completion,omitempty"`
+	// SpuriousPer100NM is the background of spurious dangling bonds
+	// along lines of this mode, per 100 nm of line, beyond what the
+	// footprint explains (AP only).
+	SpuriousPer100NM float64 `json:"spurious_per_100nm,omitempty"`
 	// Outline asks for an extra pass along the region edge (FE).
 	Outline bool `json:"outline,omitempty"`
 	// EdgeAllowanceNM is how far beyond its region's sites a stroke of
-	// this mode may clear H (nm): the coverage check reports every
-	// cleared site farther than this from the region, and the FE fill
-	// insets its paths so that it stays within it.
+	// this mode may clear H (nm): beyond it, a site must clear with
+	// probability below the profile's StrayLimit, and the FE fill insets
+	// its paths so that it does.
 	EdgeAllowanceNM float64 `json:"edge_allowance_nm"`
 }
 
-// WidthModel gives the written line width from the line dose λ for a
-// Gaussian beam footprint of standard deviation SigmaNM and a threshold
-// dose below which no site is cleared:
-//
-//	w(λ) = 2·σ·sqrt(2·ln(λ/λ_thr)) for λ > λ_thr, else 0.
-//
-// This is the form derived in physics.md §3 (no closed form is
-// published); calibrate fits it to a lab's own lines.
-type WidthModel struct {
-	SigmaNM             float64 `json:"sigma_nm"`
-	ThresholdDoseCPerCm float64 `json:"threshold_dose_c_per_cm"`
-}
-
-// DwellProfile describes single-point depassivation by parking the tip.
+// DwellProfile describes single-point depassivation by parking the tip
+// (feedback-controlled: the dwell ends when the current rises).
 type DwellProfile struct {
 	BiasV    float64 `json:"bias_v"`
 	CurrentA float64 `json:"current_a"`
-	// YieldPerElectron is the desorption yield Y (H atoms per electron);
-	// a dwell of t seconds completes with probability 1-exp(-Y·I·t/e).
-	YieldPerElectron float64 `json:"yield_per_electron"`
+	// SigmaNM is the footprint of the parked tip (see ModeProfile).
+	SigmaNM float64 `json:"sigma_nm"`
 	// Completion is the completion probability the planned dwell time
-	// reaches (default 0.99).
+	// reaches (default 0.99): the dwell is capped there.
 	Completion float64 `json:"completion"`
 }
 
@@ -157,6 +162,37 @@ func DefaultProfile() Profile {
 		Name:    "room-temperature default",
 		Notes:   "literature defaults; calibrate to your own tip and instrument",
 		Base:    PresetRoomTemp,
+		Exposure: ExposureModel{
+			Vibrational: VibrationalYield{
+				// Derived: with the 0.1 nm AP footprint below, Schmucker et
+				// al.'s working point (+4 V, 2 nA, 2 mC/cm; Nat. Commun. 3
+				// (2012)) then clears the sites of its own dimer row with
+				// probability 0.999 (exposure ln 1000) and those of the
+				// next rows with < 10⁻⁶: a line one dimer row wide, as
+				// published. The 99.9 % is from memory (AP lines show a
+				// few missing H per 100 nm).
+				YieldPerElectron: 4.5e-8,
+				BiasV:            4,
+				CurrentA:         2e-9,
+				// Multi-electron regime below ~5 V: rate ∝ I^n with n of
+				// order several, growing as the bias drops (Shen et al.,
+				// Science 268, 1590 (1995); Foley et al., PRL 80, 1336
+				// (1998)). n = 3 and a decade per volt are from memory.
+				Order:    3,
+				DecadeV:  1,
+				MaxBiasV: 5,
+			},
+			Electronic: ElectronicYield{
+				// Derived: makes the FE default below fill at the ~10⁴
+				// nm²/s of Rudolph et al., APL (2014) with every site
+				// cleared with 0.99 (a 9.0 nm raster pitch at 1 µm/s).
+				// Shen 1995 put the electronic-regime yield at 10⁻⁶–10⁻⁵
+				// H/e (from memory): this is at the top of that range.
+				YieldPerElectron: 1.6e-5,
+				// Electronic threshold ≈ +6.5–7 V (Shen 1995).
+				ThresholdV: 6.5,
+			},
+		},
 		AP: ModeProfile{
 			// Schmucker et al., Nat. Commun. 3 (2012): +4 V, 2 nA and a
 			// 2 mC/cm line dose give one-dimer-row-wide lines, i.e. a tip
@@ -168,10 +204,20 @@ func DefaultProfile() Profile {
 			// 5 passes over its area, and full removal can need a
 			// multiple of the first dose (Owen et al., JVST B 2011).
 			Passes: 1,
-			// σ = 0.3 nm and λ_thr = 0.5 mC/cm give w(2 mC/cm) = 1.0 nm,
-			// inside the 0.8–1.5 nm (1–2 dimer rows) typical AP width,
-			// from memory (physics.md §3); calibrate replaces them.
-			Width: WidthModel{SigmaNM: 0.3, ThresholdDoseCPerCm: 0.5e-3},
+			// An effective footprint of 0.1 nm, from memory: the
+			// narrowest Gaussian that lets a line clear its own row's H
+			// (0.177 nm from its centre) and not the next row's (0.591
+			// nm), and end within one dimer pitch (0.384 nm) at a line's
+			// end with < 1 % on the next site. With one Gaussian the
+			// lines then widen slowly with dose (0.5 nm at the P = 1/2
+			// contour), slower than the 0.8–1.5 nm over 1–10 mC/cm
+			// typical (from memory): the defaults follow the published
+			// one-row line; calibrate fits σ to your own lines.
+			SigmaNM: 0.1,
+			// Background of spurious dangling bonds along AP lines at
+			// room temperature, 1–10 per 100 nm (from memory): the
+			// middle of that range on a log scale.
+			SpuriousPer100NM: 3,
 			// Atomic precision: no site outside the region may be cleared.
 			EdgeAllowanceNM: 0,
 		},
@@ -186,30 +232,37 @@ func DefaultProfile() Profile {
 			// at 5 nA it gives 1 µm/s (0.1–1 µm/s typical, from memory).
 			LineDoseCPerCm: 5e-5,
 			Passes:         1,
-			// σ = 2.5 nm and λ_thr = λ/e² give 10 nm lines at the
+			// σ = 2.5 nm gives 12 nm lines (the P = 1/2 width) at the
 			// default dose: Rudolph 2014 report ~10 nm electrical
 			// definition in FE (their spot above 10 V is ~40 nm); 3–10 nm
 			// lines at +7–10 V are typical, from memory.
-			Width:   WidthModel{SigmaNM: 2.5, ThresholdDoseCPerCm: 5e-5 / (math.E * math.E)},
-			Overlap: 0.1, // common practice
-			// A Gaussian FE line clears out to half its width from its
-			// path, and the fill runs its paths along the region's
-			// outermost sites, so an FE region grows by up to w/2 = 5 nm:
-			// the same 5 nm the FE keep-out design rule assumes (FE lines
-			// ~10 nm, Rudolph 2014).
+			SigmaNM: 2.5,
+			// Every site between two raster lines clears with 0.99
+			// (common practice: a pad needs no atomic perfection); this
+			// sets the pitch.
+			FillCompletion: 0.99,
+			// The FE fill keeps its paths far enough inside the region
+			// that beyond 5 nm of it every site clears with less than the
+			// stray limit: the same 5 nm the FE keep-out design rule
+			// assumes (FE lines ~10 nm, Rudolph 2014).
 			EdgeAllowanceNM: 5,
 		},
 		Dwell: DwellProfile{
 			// Feedback-controlled single-H removal: tip parked, +2.5–4.5 V,
 			// dwell 10 ms–1 s (Walsh & Hersam 2009; details from memory).
+			// With the exposure model above: Y = 3.6·10⁻⁹ H/e (the
+			// vibrational range 10⁻¹⁰–10⁻⁸ H/e, Shen 1995, Foley 1998,
+			// from memory), a 99 % dwell of 0.09 s.
 			BiasV:    3.5,
 			CurrentA: 1e-9,
-			// Vibrational-regime yield 10^-10–10^-8 H/e (Shen 1995; Foley
-			// et al. 1998; from memory): 1.5e-9 H/e at 1 nA gives a
-			// 99 % dwell of 0.49 s.
-			YieldPerElectron: 1.5e-9,
-			Completion:       0.99,
+			// The AP footprint (from memory, see ap.sigma_nm): the dimer
+			// partner (0.354 nm away) clears first with 0.2 %.
+			SigmaNM:    0.1,
+			Completion: 0.99,
 		},
+		// A site outside every region may clear with at most 1 %: a
+		// design margin (common practice), not a published value.
+		StrayLimit: 0.01,
 		// Idle moves 0.1–few µm/s, from memory.
 		MoveSpeedNMPerS: 500,
 		// Small moves settle in well under a second; large offsets take
@@ -336,17 +389,22 @@ func (p Profile) Validate() error {
 			v.add("base", p.Base, fmt.Sprintf("must name a preset (%s) or be empty", strings.Join(Presets(), ", ")))
 		}
 	}
+	v.exposure(p.Exposure)
 	v.mode("ap", p.AP, false)
 	v.mode("fe", p.FE, true)
 
 	v.nonZero("dwell.bias_v", p.Dwell.BiasV)
 	v.positive("dwell.current_a", p.Dwell.CurrentA)
-	v.positive("dwell.yield_per_electron", p.Dwell.YieldPerElectron)
-	if y := p.Dwell.YieldPerElectron; y > 1 && !math.IsNaN(y) {
-		v.add("dwell.yield_per_electron", y, "must be at most 1 H atom per electron")
-	}
+	v.footprint("dwell.sigma_nm", p.Dwell.SigmaNM)
 	if c := p.Dwell.Completion; !(c > 0 && c < 1) {
 		v.add("dwell.completion", c, "must lie strictly between 0 and 1")
+	}
+	if l := p.StrayLimit; !(l > 0 && l < 1) {
+		v.add("stray_limit", l, "must lie strictly between 0 and 1")
+	}
+	if len(v.problems) == 0 {
+		// Only a valid model can say whether the modes clear anything.
+		v.clears(p)
 	}
 
 	v.positive("move_speed_nm_per_s", p.MoveSpeedNMPerS)
@@ -415,27 +473,94 @@ func (v *validator) nonZero(path string, x float64) bool {
 	return true
 }
 
+// Footprints narrower than this are below any tip's physics and make the
+// exposure sums ill-conditioned; wider than this they are not a tip.
+const (
+	minSigmaNM = 0.01
+	maxSigmaNM = 1000.0
+)
+
+func (v *validator) footprint(path string, sigma float64) {
+	if v.positive(path, sigma) && (sigma < minSigmaNM || sigma > maxSigmaNM) {
+		v.add(path, sigma, fmt.Sprintf("must lie within %g..%g nm", minSigmaNM, maxSigmaNM))
+	}
+}
+
 func (v *validator) mode(prefix string, m ModeProfile, fe bool) {
 	v.nonZero(prefix+".bias_v", m.BiasV)
 	v.positive(prefix+".current_a", m.CurrentA)
-	dose := v.positive(prefix+".line_dose_c_per_cm", m.LineDoseCPerCm)
+	v.positive(prefix+".line_dose_c_per_cm", m.LineDoseCPerCm)
 	if m.Passes < 1 || m.Passes > 1000 {
 		v.add(prefix+".passes", m.Passes, "must be 1..1000")
 	}
-	v.positive(prefix+".width.sigma_nm", m.Width.SigmaNM)
-	thr := v.positive(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm)
-	if dose && thr && m.Width.ThresholdDoseCPerCm >= m.LineDoseCPerCm*float64(max(m.Passes, 1)) {
-		v.add(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm,
-			fmt.Sprintf("must be below the delivered dose (%g C/cm): lines would clear nothing", m.LineDoseCPerCm*float64(max(m.Passes, 1))))
-	}
+	v.footprint(prefix+".sigma_nm", m.SigmaNM)
 	if fe {
-		if o := m.Overlap; !(o >= 0 && o < 1) {
-			v.add(prefix+".overlap", o, "must be at least 0 and below 1")
+		if c := m.FillCompletion; !(c > 0 && c < 1) {
+			v.add(prefix+".fill_completion", c, "must lie strictly between 0 and 1")
 		}
-	} else if m.Overlap != 0 {
-		v.add(prefix+".overlap", m.Overlap, "applies to the FE raster only; leave it 0")
+		if m.SpuriousPer100NM != 0 {
+			v.add(prefix+".spurious_per_100nm", m.SpuriousPer100NM, "applies to AP lines only; leave it 0")
+		}
+	} else {
+		if m.FillCompletion != 0 {
+			v.add(prefix+".fill_completion", m.FillCompletion, "applies to the FE raster only; leave it 0")
+		}
+		if x := m.SpuriousPer100NM; !finite(x) || x < 0 || x > 1000 {
+			v.add(prefix+".spurious_per_100nm", x, "must be a finite number from 0 to 1000")
+		}
 	}
 	v.nonNegative(prefix+".edge_allowance_nm", m.EdgeAllowanceNM)
+}
+
+func (v *validator) exposure(m ExposureModel) {
+	vib, el := m.Vibrational, m.Electronic
+	for _, y := range []struct {
+		path string
+		val  float64
+	}{{"exposure.vibrational.yield_per_electron", vib.YieldPerElectron}, {"exposure.electronic.yield_per_electron", el.YieldPerElectron}} {
+		if v.positive(y.path, y.val) && y.val > 1 {
+			v.add(y.path, y.val, "must be at most 1 H atom per electron")
+		}
+	}
+	v.positive("exposure.vibrational.bias_v", vib.BiasV)
+	v.positive("exposure.vibrational.current_a", vib.CurrentA)
+	if n := vib.Order; !finite(n) || n < 1 || n > 50 {
+		v.add("exposure.vibrational.order", n, "must lie within 1..50 (the rate grows as I^n)")
+	}
+	if v.positive("exposure.vibrational.decade_v", vib.DecadeV) && vib.DecadeV < 0.05 {
+		v.add("exposure.vibrational.decade_v", vib.DecadeV, "must be at least 0.05 V per decade")
+	}
+	maxV := v.positive("exposure.vibrational.max_bias_v", vib.MaxBiasV)
+	thr := v.positive("exposure.electronic.threshold_v", el.ThresholdV)
+	if maxV && thr && el.ThresholdV <= vib.MaxBiasV {
+		v.add("exposure.electronic.threshold_v", el.ThresholdV, fmt.Sprintf("must lie above exposure.vibrational.max_bias_v (%g V)", vib.MaxBiasV))
+	}
+	if maxV && finite(vib.BiasV) && vib.BiasV > vib.MaxBiasV {
+		v.add("exposure.vibrational.bias_v", vib.BiasV, fmt.Sprintf("must lie in the vibrational regime, at most max_bias_v (%g V)", vib.MaxBiasV))
+	}
+}
+
+// clears records a mode whose lines or dwells would clear nothing or
+// whose exposure is not a number (a yield or dose far out of scale).
+func (v *validator) clears(p Profile) {
+	for _, mode := range []WriteMode{AP, FE} {
+		l := p.Line(mode)
+		if !finite(l.Peak) || l.Peak <= math.Ln2 {
+			v.add(string(mode)+".line_dose_c_per_cm", p.modeOf(mode).LineDoseCPerCm,
+				fmt.Sprintf("gives a centre-line exposure of %.3g (Y = %.3g H/e at %g V): lines would clear less than half their sites", l.Peak, l.Yield, p.modeOf(mode).BiasV))
+		}
+	}
+	if k := p.DwellRate(); !finite(k) || k <= 0 || !finite(p.DwellCapS()) {
+		v.add("dwell.current_a", p.Dwell.CurrentA, fmt.Sprintf("gives a dwell rate of %.3g /s: no finite dwell completes", k))
+	}
+}
+
+// modeOf returns the mode's conditions.
+func (p *Profile) modeOf(mode WriteMode) ModeProfile {
+	if mode == FE {
+		return p.FE
+	}
+	return p.AP
 }
 
 // ParseProfile reads a profile from JSON. Fields the document leaves out
@@ -474,6 +599,13 @@ func ParseProfile(data []byte, name string) (Profile, error) {
 	if err != nil {
 		return Profile{}, fmt.Errorf("%s: base: %w", label, err)
 	}
+	var v1 map[WriteMode]v1Threshold
+	var v1Notes []string
+	if *head.Version == 1 {
+		if data, v1, v1Notes, err = upgradeV1(data); err != nil {
+			return Profile{}, fmt.Errorf("%s: %w", label, jsonError(data, err))
+		}
+	}
 	// Name and notes describe the file, not the preset it starts from.
 	p.Name, p.Notes = "", ""
 	dec := json.NewDecoder(bytes.NewReader(data))
@@ -486,6 +618,12 @@ func ParseProfile(data []byte, name string) (Profile, error) {
 	}
 	if p.Name == "" && name != "" {
 		p.Name = strings.TrimSuffix(filepath.Base(name), filepath.Ext(name))
+	}
+	if v1 != nil || len(v1Notes) > 0 {
+		if err := p.applyV1(v1); err != nil {
+			return Profile{}, fmt.Errorf("%s: %w", label, err)
+		}
+		p.Notes = strings.TrimSpace(p.Notes + "\nread from a version 1 file: " + strings.Join(v1Notes, "; "))
 	}
 	if err := p.Validate(); err != nil {
 		var pe *ProfileError

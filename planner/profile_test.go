@@ -33,13 +33,13 @@ func TestDefaultProfileValues(t *testing.T) {
 	if got := p.AP.Speed(); math.Abs(got-10) > 1e-9 {
 		t.Errorf("AP speed = %v nm/s, want 10 (Schmucker 2012)", got)
 	}
-	// Default FE line width ~10 nm (Rudolph et al. 2014).
-	if got := p.FE.LineWidth(); math.Abs(got-10) > 1e-9 {
-		t.Errorf("FE line width = %v nm, want 10", got)
+	// Default FE line width ~10 nm (Rudolph et al. 2014): 3–15 nm.
+	if got := p.Line(FE).Width(); got < 3 || got > 15 {
+		t.Errorf("FE line width = %v nm, want about 10", got)
 	}
 	// The default dwell reaches 99 % within the 10 ms–1 s FCL range (from
-	// memory, physics.md §3).
-	if c := p.Dwell.CapS(); c < 0.01 || c > 1 {
+	// memory).
+	if c := p.DwellCapS(); c < 0.01 || c > 1 {
 		t.Errorf("dwell 99%% time = %v s, want within 0.01..1 s", c)
 	}
 	// 4 K drift ≤ 0.1 nm/h (from memory): the LT preset must not exceed it.
@@ -55,7 +55,7 @@ func TestValidateReportsEveryBadField(t *testing.T) {
 	p.FE.BiasV = math.NaN()
 	p.MoveSpeedNMPerS = -3
 	p.Dwell.Completion = 1
-	p.FE.Overlap = 1.2
+	p.FE.FillCompletion = 1.2
 	p.Order = "sideways"
 	p.Limits.MaxBiasV = math.Inf(1)
 	err := p.Validate()
@@ -63,7 +63,7 @@ func TestValidateReportsEveryBadField(t *testing.T) {
 	if !errors.As(err, &pe) || !errors.Is(err, ErrInvalidProfile) {
 		t.Fatalf("Validate() = %v, want *ProfileError wrapping ErrInvalidProfile", err)
 	}
-	want := []string{"ap.current_a", "fe.bias_v", "move_speed_nm_per_s", "dwell.completion", "fe.overlap", "order", "limits.max_bias_v"}
+	want := []string{"ap.current_a", "fe.bias_v", "move_speed_nm_per_s", "dwell.completion", "fe.fill_completion", "order", "limits.max_bias_v"}
 	if len(pe.Problems) != len(want) {
 		t.Errorf("Validate() found %d problems, want %d:\n%v", len(pe.Problems), len(want), err)
 	}
@@ -78,12 +78,38 @@ func TestValidateReportsEveryBadField(t *testing.T) {
 	}
 }
 
-func TestValidateThresholdAboveDose(t *testing.T) {
+func TestValidateLinesThatClearNothing(t *testing.T) {
 	p := DefaultProfile()
-	p.AP.Width.ThresholdDoseCPerCm = 3e-3 // above the 2 mC/cm line dose
+	p.AP.LineDoseCPerCm = 1e-6 // 2000 times below Schmucker's 2 mC/cm
 	err := p.Validate()
-	if err == nil || !strings.Contains(err.Error(), "ap.width.threshold_dose_c_per_cm") || !strings.Contains(err.Error(), "clear nothing") {
-		t.Errorf("Validate() = %v, want a threshold-above-dose problem", err)
+	if err == nil || !strings.Contains(err.Error(), "ap.line_dose_c_per_cm") || !strings.Contains(err.Error(), "clear less than half") {
+		t.Errorf("Validate() = %v, want a lines-clear-nothing problem", err)
+	}
+	p = DefaultProfile()
+	p.Exposure.Electronic.ThresholdV = 4
+	if err := p.Validate(); err == nil || !strings.Contains(err.Error(), "exposure.electronic.threshold_v = 4") {
+		t.Errorf("Validate() = %v, want the electronic threshold below the vibrational regime refused", err)
+	}
+}
+
+func TestReadVersion1Profile(t *testing.T) {
+	// A version 1 file with the old threshold width model: the width it
+	// described is the model's P = ½ band, so the converted profile gives
+	// the same line width at the same dose.
+	const v1 = `{"format":"dimerpath-profile","version":1,"name":"old",
+		"ap":{"width":{"sigma_nm":0.3,"threshold_dose_c_per_cm":0.0005}},
+		"fe":{"overlap":0.2},"dwell":{"yield_per_electron":1e-9}}`
+	p, err := ParseProfile([]byte(v1), "old.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	// By hand: w = 2σ·√(2 ln(λ/λ_thr)) = 0.6·√(2 ln 4) at 2 mC/cm.
+	want := 0.6 * math.Sqrt(2*math.Log(4))
+	if got := p.Line(AP).Width(); math.Abs(got-want) > 1e-9 {
+		t.Errorf("converted AP width %v nm, want %v (the version 1 model)", got, want)
+	}
+	if p.AP.SigmaNM != 0.3 || !strings.Contains(p.Notes, "fe.overlap") || !strings.Contains(p.Notes, "dwell.yield_per_electron") {
+		t.Errorf("converted σ %v, notes %q", p.AP.SigmaNM, p.Notes)
 	}
 }
 
@@ -173,6 +199,7 @@ func TestParseProfile(t *testing.T) {
 func FuzzParseProfile(f *testing.F) {
 	f.Add([]byte(`{"format":"dimerpath-profile","version":1}`))
 	f.Add([]byte(`{"format":"dimerpath-profile","version":1,"ap":{"passes":2,"width":{"sigma_nm":0.4}}}`))
+	f.Add([]byte(`{"format":"dimerpath-profile","version":2,"exposure":{"vibrational":{"order":2}},"ap":{"sigma_nm":0.2}}`))
 	f.Add([]byte(`{"format":"dimerpath-profile","version":1,"base":"lt","drift":{"rate_nm_per_min":-1}}`))
 	f.Add([]byte(`[]`))
 	f.Fuzz(func(t *testing.T, data []byte) {
@@ -196,7 +223,7 @@ func TestCheckLimits(t *testing.T) {
 		{"FE bias", func(p *Profile) { p.FE.BiasV = 12 }, nil, "fe.bias_v", "limits.max_bias_v"},
 		{"negative AP bias counts by magnitude", func(p *Profile) { p.AP.BiasV = -11 }, nil, "ap.bias_v", "limits.max_bias_v"},
 		{"AP current", func(p *Profile) { p.AP.CurrentA = 20e-9 }, nil, "ap.current_a", "limits.max_current_a"},
-		{"FE speed", func(p *Profile) { p.FE.LineDoseCPerCm = 5e-6; p.FE.Width.ThresholdDoseCPerCm = 1e-6 }, nil, "fe writing speed", "limits.max_speed_nm_per_s"},
+		{"FE speed", func(p *Profile) { p.FE.LineDoseCPerCm = 5e-6; p.Exposure.Electronic.YieldPerElectron = 1e-3 }, nil, "fe writing speed", "limits.max_speed_nm_per_s"},
 		{"move speed", func(p *Profile) { p.MoveSpeedNMPerS = 9000 }, nil, "move_speed_nm_per_s", "limits.max_speed_nm_per_s"},
 		{"dwell current", func(p *Profile) { p.Dwell.CurrentA = 11e-9 }, nil, "dwell.current_a", "limits.max_current_a"},
 		{"unused FE is not checked", func(p *Profile) { p.FE.BiasV = 12 }, &ModeUse{AP: true}, "", ""},

@@ -36,45 +36,85 @@ func (g *strokeGen) segsOf(set *lattice.SiteSet) []runSeg {
 func newStrokeGen(surf *lattice.Surface, prof *Profile) *strokeGen {
 	g := &strokeGen{surf: surf, prof: prof, segs: map[*lattice.SiteSet][]runSeg{}}
 	for n := 1; n <= 4; n++ {
-		g.apExt = append(g.apExt, apExtension(prof.AP, n))
+		g.apExt = append(g.apExt, apExtension(prof, n))
 	}
-	g.feEnd, g.feSide = feInset(prof.FE)
+	g.feEnd, g.feSide = feInset(prof)
 	return g
 }
 
-// modeRatio returns the delivered dose over the clearing threshold of a
-// mode's strokes: passes·λ/λ_thr.
-func modeRatio(m ModeProfile) float64 {
-	return float64(max(m.Passes, 1)) * m.LineDoseCPerCm / m.Width.ThresholdDoseCPerCm
-}
-
 // apExtension chooses how far an AP line over n dimers runs beyond the
-// centres of its end dimers: the least extension (in steps of 0.005 nm,
-// up to half a dimer pitch) at which the end sites get at least 1.25 times
-// the clearing dose, so that they clear with margin; at most half a pitch,
-// so that the next dimer along stays short of it. From the width model's
-// Gaussian footprint (see exposure).
-func apExtension(m ModeProfile, n int) float64 {
-	ratio, sigma := modeRatio(m), m.Width.SigmaNM
+// centres of its end dimers: the extension (in steps of 0.0025 nm, up to
+// half a dimer pitch) that makes the fewest expected wrong sites at each
+// end, the end site left plus the next site along the row cleared, from
+// the exposure model (lineExposure). A longer line leaves the end site
+// less likely and clears the next site more likely.
+func apExtension(prof *Profile, n int) float64 {
+	l := prof.Line(AP)
 	span := float64(n-1) * lattice.DimerPitch
-	for ext := 0.0; ext <= lattice.DimerPitch/2; ext += 0.005 {
+	best, bestExt := math.Inf(1), 0.0
+	for ext := 0.0; ext <= lattice.DimerPitch/2+1e-12; ext += 0.0025 {
 		L := span + 2*ext
-		if exposure(ratio, sigma, L, ext, lattice.HOffset) >= 1.25 {
-			return ext
+		end := lineExposure(l.Peak, l.SigmaNM, L, ext, lattice.HOffset)
+		next := lineExposure(l.Peak, l.SigmaNM, L, ext-lattice.DimerPitch, lattice.HOffset)
+		if wrong := math.Exp(-end) + ClearProbability(next); wrong < best-1e-15 {
+			best, bestExt = wrong, ext
 		}
 	}
-	return lattice.DimerPitch / 2
+	return bestExt
 }
 
-// feInset returns how far the FE fill keeps its paths inside the
-// region's outermost sites: enough that a line's half width (where it
-// stops clearing) reaches no farther than the edge allowance beyond them,
-// plus a margin for the dose the neighbouring lines add. The margin is a
-// quarter σ at line ends, where the sites between two line ends need
-// both lines' dose, and half a σ along the outermost lines.
-func feInset(m ModeProfile) (end, side float64) {
-	base := math.Max(0, m.LineWidth()/2-m.EdgeAllowanceNM)
-	return base + m.Width.SigmaNM/4, base + m.Width.SigmaNM/2
+// feInset returns how far the FE fill keeps its paths inside the region's
+// outermost sites: far enough that every site beyond the edge allowance
+// clears with less than the stray limit, counting the neighbouring raster
+// lines. Along the outermost line (side) the lines further in add their
+// tails; beyond the line ends (end) every line of the raster ends there,
+// so their exposures add across the raster.
+func feInset(prof *Profile) (end, side float64) {
+	l := prof.Line(FE)
+	pitch := prof.FEPitch()
+	limit := exposureFor(prof.StrayLimit)
+	if !(l.Peak > 0) || !(pitch > 0) {
+		return 0, 0
+	}
+	// Σ_k over the lines at d + k·pitch, k ≥ 0, and over all lines.
+	sideAt := func(d float64) float64 {
+		sum := 0.0
+		for k := 0; k < 1000; k++ {
+			x := l.At(d + float64(k)*pitch)
+			sum += x
+			if x < 1e-300 {
+				break
+			}
+		}
+		return sum
+	}
+	across := l.At(0)
+	for k := 1; k < 1000; k++ {
+		x := 2 * l.At(float64(k)*pitch)
+		across += x
+		if x < 1e-300 {
+			break
+		}
+	}
+	reach := func(f func(float64) float64) float64 {
+		lo, hi := 0.0, 100*l.SigmaNM
+		if f(lo) <= limit {
+			return 0
+		}
+		for range 100 {
+			mid := (lo + hi) / 2
+			if f(mid) > limit {
+				lo = mid
+			} else {
+				hi = mid
+			}
+		}
+		return hi
+	}
+	dSide := reach(sideAt)
+	dEnd := reach(func(s float64) float64 { return across * normalCDF(-s/l.SigmaNM) })
+	allow := prof.FE.EdgeAllowanceNM
+	return math.Max(0, dEnd-allow), math.Max(0, dSide-allow)
 }
 
 func pathLength(p []r2.Point) float64 {
@@ -106,7 +146,7 @@ func (g *strokeGen) lineStroke(region string, t, row, d0, d1 int) Stroke {
 // dwellStroke parks the tip over one H site.
 func (g *strokeGen) dwellStroke(region string, site lattice.Site) Stroke {
 	return Stroke{Region: region, Mode: AP, Kind: StrokeDwell, Path: []r2.Point{g.surf.Position(site)}, Passes: 1,
-		DurationS: g.prof.Dwell.ExpectedS(), Sites: 1, Window: -1}
+		DurationS: g.prof.DwellExpectedS(), Sites: 1, Window: -1}
 }
 
 // apStrokes writes set atom by atom: a line along the row centre over
@@ -188,7 +228,7 @@ type feLine struct {
 // a pass around its ends.
 func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 	m := g.prof.FE
-	pitch := m.Pitch()
+	pitch := g.prof.FEPitch()
 	end, side := g.feEnd, g.feSide
 	var out []Stroke
 	all := g.segsOf(set) // in terrace order
@@ -225,9 +265,9 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 			var ls []feLine
 			for _, iv := range ix.chords(c, lattice.RowSpacing/2, 2*lattice.RowSpacing, false) {
 				lo, hi := iv.lo+end, iv.hi-end
-				if hi-lo < m.Width.SigmaNM {
+				if hi-lo < m.SigmaNM {
 					mid := (iv.lo + iv.hi) / 2
-					lo, hi = mid-m.Width.SigmaNM/2, mid+m.Width.SigmaNM/2
+					lo, hi = mid-m.SigmaNM/2, mid+m.SigmaNM/2
 				}
 				ls = append(ls, feLine{c: c, lo: lo, hi: hi})
 			}

@@ -99,7 +99,7 @@ func schedule(sg *segmenter, starts []int, strokes []Stroke, prof *Profile) time
 		if jb.dwell {
 			a.Kind = ActDwell
 			a.BiasV, a.CurrentA, a.SpeedNMPS = prof.Dwell.BiasV, prof.Dwell.CurrentA, 0
-			a.Note = fmt.Sprintf("expected %.3g s; stop at completion or after %.3g s", jb.writeS, prof.Dwell.CapS())
+			a.Note = fmt.Sprintf("expected %.3g s; stop at completion or after %.3g s", jb.writeS, prof.DwellCapS())
 		}
 		add(a)
 		prevMode = jb.mode
