@@ -2,7 +2,9 @@ package app
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
+	"os"
 	"path/filepath"
 	"regexp"
 	"strconv"
@@ -131,28 +133,31 @@ func TestCompareTable(t *testing.T) {
 }
 
 func TestCalibrateThenPlan(t *testing.T) {
-	// Lines written at 4 V, 2 nA from a model with σ = 0.35 nm and a
-	// 0.6 mC/cm threshold (w = 2σ·sqrt(2 ln(λ/λthr))); the calibrated
-	// profile recovers them and plan uses it.
+	// Lines written at 4 V, 2 nA from an exposure model with σ = 0.15 nm
+	// and Y = 3·10⁻⁸ H/e (widths from the model's P = ½ band, plus a line
+	// that wrote nothing); the calibrated profile recovers them and plan
+	// uses it.
 	var b strings.Builder
 	b.WriteString("# test lines\nbias_v,current_na,speed_nm_per_s,width_nm\n")
-	want := planner.WidthModel{SigmaNM: 0.35, ThresholdDoseCPerCm: 0.6e-3}
-	for _, v := range []float64{4, 6, 8, 12, 16, 24} {
-		dose := 2e-9 / v * 1e7
-		b.WriteString(strings.Join([]string{"4", "2", ftoa(v), ftoa(want.Width(dose))}, ",") + "\n")
+	truth := planner.DefaultProfile()
+	truth.AP.SigmaNM = 0.15
+	truth.Exposure.Vibrational.YieldPerElectron = 3e-8
+	for _, v := range []float64{4, 6, 8, 12, 16, 24, 2000} {
+		truth.AP.LineDoseCPerCm = 2e-9 / v * 1e7
+		fmt.Fprintf(&b, "4,2,%g,%.10g\n", v, truth.Line(planner.AP).Width())
 	}
 	meas := writeFile(t, "lines.csv", b.String())
 	prof := filepath.Join(filepath.Dir(meas), "cal.json")
 	out, errs, code := runMain(t, "calibrate", meas, "-o", prof)
-	if code != ExitOK || !strings.Contains(out, "sigma 0.35 nm") {
+	if code != ExitOK || !strings.Contains(out, "footprint σ                      0.15 nm") || !strings.Contains(out, "1 that wrote nothing censored") {
 		t.Fatalf("calibrate: exit %d\n%s\n%s", code, out, errs)
 	}
 	p, err := planner.LoadProfile(prof)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if math.Abs(p.AP.Width.SigmaNM-want.SigmaNM) > 1e-6 || math.Abs(p.AP.Width.ThresholdDoseCPerCm-want.ThresholdDoseCPerCm) > 1e-9 {
-		t.Errorf("calibrated width model %+v, want %+v", p.AP.Width, want)
+	if math.Abs(p.AP.SigmaNM-0.15) > 1e-6 || math.Abs(p.Exposure.Vibrational.YieldPerElectron-3e-8) > 1e-12 {
+		t.Errorf("calibrated σ %v, Y %v; want 0.15 nm, 3e-8", p.AP.SigmaNM, p.Exposure.Vibrational.YieldPerElectron)
 	}
 	out, errs, code = runMain(t, "plan", demoPath, "--profile", prof, "--json")
 	if code != ExitOK || !strings.Contains(out, "calibrated from lines.csv") {
@@ -161,8 +166,11 @@ func TestCalibrateThenPlan(t *testing.T) {
 	// Too few lines: refused, nothing written.
 	few := writeFile(t, "few.csv", "bias_v,current_a,speed_nm_per_s,width_nm\n4,2e-9,10,1\n4,2e-9,20,0.7\n")
 	none := filepath.Join(t.TempDir(), "none.json")
-	if _, errs, code := runMain(t, "calibrate", few, "-o", none); code != ExitFailure || !strings.Contains(errs, "too few points") {
+	if _, errs, code := runMain(t, "calibrate", few, "-o", none); code != ExitFailure || !strings.Contains(errs, "few.csv: too few usable lines") {
 		t.Errorf("calibrate with 2 lines: exit %d, %s", code, errs)
+	}
+	if _, err := os.Stat(none); !os.IsNotExist(err) {
+		t.Errorf("a refused calibration wrote %s", none)
 	}
 }
 
