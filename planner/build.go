@@ -70,6 +70,7 @@ type builder struct {
 
 	lay      *design.Layout
 	gen      *strokeGen
+	placed   []lattice.Window // the plan's windows on the lattice, as Plan.Windows
 	regions  []*regionWork
 	fids     []Fiducial
 	strokes  []Stroke
@@ -122,6 +123,7 @@ func (b *builder) build(variant string) (*Plan, error) {
 	if err := b.ctx.Err(); err != nil {
 		return nil, err
 	}
+	b.openWindows(windows)
 	cov := CheckCoverage(lay.Surface, b.coverageRegions(), b.strokes, *prof)
 	if !cov.OK {
 		b.warnings = append(b.warnings, fmt.Sprintf("coverage check: %d uncovered and %d overcleared site(s); see coverage.issues", cov.Uncovered, cov.Overcleared))
@@ -187,7 +189,7 @@ func (b *builder) build(variant string) (*Plan, error) {
 		panic(fmt.Sprintf("planner: timeline total %v disagrees with the segmentation's %v", plan.TotalS, total))
 	}
 	plan.FloorS = plan.Breakdown.APWriteS + plan.Breakdown.FEWriteS + plan.Breakdown.DwellS
-	plan.Yield = YieldOf(windows)
+	plan.Yield = YieldOf(windows, b.opt.Seed)
 	for _, r := range b.regions {
 		req := string(r.requested)
 		if req == "" {
@@ -260,16 +262,13 @@ func (b *builder) makeStrokes() []Window {
 				sites += ss[i].Sites
 			}
 			b.strokes = append(b.strokes, ss...)
-			p := w.Template.Probability
-			open := 1.0
-			if b.prof.WindowStyle == WindowStyleDwell {
-				open = math.Pow(b.prof.Dwell.Completion, float64(sites))
-			}
 			if sites < w.Template.Sites() {
 				b.warnings = append(b.warnings, fmt.Sprintf("window %v of region %q reaches beyond its terrace: %d of its %d sites exist", w, r.name, sites, w.Template.Sites()))
 			}
-			windows = append(windows, Window{Region: r.name, Species: w.Template.Species, Template: w.Template.Name,
-				At: surf.WindowCentre(w), Sites: sites, OpenProbability: open, Probability: p * open})
+			t := w.Template
+			windows = append(windows, Window{Region: r.name, Species: t.Species, Template: t.Name,
+				At: surf.WindowCentre(w), Sites: sites, P0: t.P0, P1: t.P1, P2Plus: t.P2Plus, P1SD: t.P1SD})
+			b.placed = append(b.placed, w)
 		}
 		if r.apPart != nil && !r.apPart.IsEmpty() {
 			ss := b.gen.apStrokes(r.name, r.apPart)

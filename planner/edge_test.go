@@ -38,7 +38,8 @@ func TestBuildEdgeCases(t *testing.T) {
 	if len(p.Segments) != 1 || p.Segments[0].BudgetS != 0 || p.Breakdown.RegistrationS != prof.Drift.RegistrationS {
 		t.Errorf("no drift: %d segments, budget %v, registrations %v s", len(p.Segments), p.Segments[0].BudgetS, p.Breakdown.RegistrationS)
 	}
-	// Dwell-written windows carry their completion in the probability.
+	// Dwell-written windows: each site clears with the dwell's completion
+	// (0.99), its neighbours now and then as well.
 	prof = DefaultProfile()
 	prof.WindowStyle = WindowStyleDwell
 	p, err = Build(context.Background(), demo(t), "", prof, Options{Seed: 1, MonteCarloRuns: 50})
@@ -50,8 +51,8 @@ func TestBuildEdgeCases(t *testing.T) {
 		if w.Species == "As" {
 			want = 0.97
 		}
-		if open := pow(0.99, w.Sites); abs(w.Probability-want*open) > 1e-12 || abs(w.OpenProbability-open) > 1e-12 {
-			t.Errorf("window %+v: want %v × 0.99^%d", w, want, w.Sites)
+		if open := pow(0.99, w.Sites); abs(w.Probability-want*w.OpenProbability) > 1e-12 || w.OpenProbability > open || w.OpenProbability < 0.95*open {
+			t.Errorf("window %+v: want %v × at most 0.99^%d", w, want, w.Sites)
 		}
 	}
 	if !p.Coverage.OK {

@@ -197,26 +197,52 @@ func (b Breakdown) Total() float64 {
 	return b.APWriteS + b.FEWriteS + b.DwellS + b.TravelS + b.ModeSwitchS + b.RegistrationS + b.VerificationS
 }
 
-// Window is one dopant window of the plan with its single-donor
-// probability.
+// Window is one dopant window of the plan with its donor-count
+// probabilities.
 type Window struct {
 	Region   string   `json:"region"`
 	Species  string   `json:"species"`
 	Template string   `json:"template"`
 	At       r2.Point `json:"at_nm"` // window centre
 	Sites    int      `json:"sites"`
-	// OpenProbability is the chance that every site of the window is
-	// cleared (1 for a line; Completion^sites for dwells), and
-	// Probability the template's single-donor probability times it.
+	// OpenProbability is the probability that the window is opened as
+	// drawn: every one of its sites cleared, none of its neighbours (the
+	// unpainted sites within one row spacing) and no spurious dangling
+	// bond along its line, from the exposure model.
 	OpenProbability float64 `json:"open_probability"`
-	Probability     float64 `json:"probability"`
+	// P0, P1 and P2Plus are the template's probabilities of 0, 1 and 2 or
+	// more donors in a window opened as drawn, and P1SD the uncertainty
+	// of P1.
+	P0     float64 `json:"p0"`
+	P1     float64 `json:"p1"`
+	P2Plus float64 `json:"p2plus"`
+	P1SD   float64 `json:"p1_sd"`
+	// Probability is the probability that the window is good: opened as
+	// drawn and then holding exactly one donor, OpenProbability·P1.
+	Probability float64 `json:"probability"`
 }
 
 // Yield summarises the dopant windows' outcome.
 type Yield struct {
 	Windows int `json:"windows"`
-	// All is the probability that every window takes exactly one donor.
+	// All is the probability that every window is good (the product of
+	// their probabilities: exact).
 	All float64 `json:"all"`
+	// All68 and All95 are the 68 % and 95 % intervals of All from the
+	// templates' uncertainties: each template's P1 drawn from a beta
+	// distribution of its mean and spread (shared by every window of the
+	// template), YieldSamples times; Log10All68 and Log10All95 are the
+	// same in log10, finite where All underflows.
+	All68      [2]float64 `json:"all_68"`
+	All95      [2]float64 `json:"all_95"`
+	Log10All68 [2]float64 `json:"log10_all_68"`
+	Log10All95 [2]float64 `json:"log10_all_95"`
+	// ExpectedEmpty and ExpectedMultiple are the expected numbers of
+	// windows opened as drawn that take no donor and two or more;
+	// ExpectedMisopened the expected number not opened as drawn.
+	ExpectedEmpty     float64 `json:"expected_empty"`
+	ExpectedMultiple  float64 `json:"expected_multiple"`
+	ExpectedMisopened float64 `json:"expected_misopened"`
 	// MeanGood is the expected number of windows with exactly one donor.
 	MeanGood float64 `json:"mean_good"`
 	// Distribution[k] is the probability that exactly k windows are good

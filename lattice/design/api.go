@@ -153,7 +153,7 @@ func (d *Design) Templates() Templates {
 		t[w.Name] = w
 	}
 	for _, w := range d.WindowTemplates {
-		t[w.Name] = w
+		t[w.Name] = w.Normalized()
 	}
 	return t
 }

@@ -62,11 +62,11 @@ func TestRegionSitesUnionMinusErased(t *testing.T) {
 func TestTemplatesAndTolerance(t *testing.T) {
 	d := loadDemo(t)
 	d.WindowTemplates = []lattice.WindowTemplate{
-		{Name: "P", Species: "P", Dimers: 3, Probability: 0.55, Source: "lab"},
-		{Name: "P2x3", Species: "P", Dimers: 6, Probability: 0.1, Source: "lab"},
+		{Name: "P", Species: "P", Dimers: 3, Probability: 0.55, Source: "lab, version 1 file"},
+		{Name: "P6", Species: "P", Dimers: 6, P0: 0.05, P1: 0.35, P2Plus: 0.6, Source: "lab"},
 	}
 	ts := d.Templates()
-	if ts["P"].Probability != 0.55 || ts["As"].Probability != 0.97 || ts["P2x3"].Dimers != 6 || len(ts) != 3 {
+	if ts["P"].P1 != 0.55 || math.Abs(ts["P"].P0-0.45) > 1e-12 || ts["As"].P1 != 0.97 || ts["P6"].P2Plus != 0.6 || len(ts) != 3 {
 		t.Errorf("merged templates %v", ts)
 	}
 	rs := d.EffectiveRules()

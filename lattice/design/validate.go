@@ -82,8 +82,8 @@ func (d *Design) validate(ps *problems) {
 	d.validateRules(ps)
 	for i, t := range d.WindowTemplates {
 		path := fmt.Sprintf("templates[%d]", i)
-		if err := t.Validate(); err != nil {
-			ps.add(path, "%v", err)
+		for _, p := range t.Normalized().Problems() {
+			ps.add(path+"."+p.Field, "%v: %s", p.Value, p.Problem)
 		}
 		for j := range i {
 			if d.WindowTemplates[j].Name == t.Name {

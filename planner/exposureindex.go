@@ -1,0 +1,133 @@
+package planner
+
+import (
+	"math"
+
+	"github.com/golang/geo/r2"
+)
+
+// exposureIndex sums the exposure (see ExposureModel) of every stroke at
+// any point of the field, for the few sites the planner asks about one by
+// one (the sites of dopant windows and their neighbours). Strokes are
+// kept as straight pieces and dwell points in a uniform grid of coarse
+// cells, each listing the pieces whose reach (where a piece's exposure
+// falls below exposureNeglect) touches it.
+type exposureIndex struct {
+	cell   float64
+	nx, ny int
+	cells  [][]int32 // per cell: indices into segs (≥ 0) or ^dots (< 0)
+	segs   []expSeg
+	dots   []expDot
+	own    float64 // exposure of a dwell's own site
+	prof   *Profile
+}
+
+// expSeg is one straight piece of a line stroke: from a to b, all passes.
+type expSeg struct {
+	a, b        r2.Point
+	peak, sigma float64
+	stroke      int32
+}
+
+// expDot is a dwell.
+type expDot struct {
+	at     r2.Point
+	stroke int32
+}
+
+// exposureNeglect is the exposure of one piece below which it is left out
+// of a sum: 10⁻⁹ clears a site with probability 10⁻⁹.
+const exposureNeglect = 1e-9
+
+// indexCellNM is the side of the index's cells.
+const indexCellNM = 32.0
+
+func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64) *exposureIndex {
+	ix := &exposureIndex{cell: indexCellNM, prof: prof, own: prof.dwellOwnExposure()}
+	ix.nx = max(1, int(math.Ceil(fieldW/ix.cell)))
+	ix.ny = max(1, int(math.Ceil(fieldH/ix.cell)))
+	ix.cells = make([][]int32, ix.nx*ix.ny)
+	lines := map[WriteMode]LineModel{AP: prof.Line(AP), FE: prof.Line(FE)}
+	dotReach := prof.Dwell.SigmaNM * math.Sqrt(2*math.Log(prof.Dwell.Completion/exposureNeglect))
+	for si := range strokes {
+		st := &strokes[si]
+		if st.Kind == StrokeDwell {
+			if len(st.Path) == 0 {
+				continue
+			}
+			ix.dots = append(ix.dots, expDot{at: st.Path[0], stroke: int32(si)})
+			ix.insert(st.Path[0], st.Path[0], dotReach, ^int32(len(ix.dots)-1))
+			continue
+		}
+		l := lines[st.Mode]
+		peak := l.PassPeak * float64(max(st.Passes, 1))
+		if !(peak > exposureNeglect) {
+			continue
+		}
+		reach := l.SigmaNM * math.Sqrt(2*math.Log(peak/exposureNeglect))
+		for k := 0; k+1 < len(st.Path); k++ {
+			a, b := st.Path[k], st.Path[k+1]
+			if a == b {
+				continue
+			}
+			ix.segs = append(ix.segs, expSeg{a: a, b: b, peak: peak, sigma: l.SigmaNM, stroke: int32(si)})
+			ix.insert(a, b, reach, int32(len(ix.segs)-1))
+		}
+	}
+	return ix
+}
+
+// insert lists item in every cell that the box of a→b widened by reach
+// touches.
+func (ix *exposureIndex) insert(a, b r2.Point, reach float64, item int32) {
+	i0, i1 := ix.col(math.Min(a.X, b.X)-reach), ix.col(math.Max(a.X, b.X)+reach)
+	j0, j1 := ix.row(math.Min(a.Y, b.Y)-reach), ix.row(math.Max(a.Y, b.Y)+reach)
+	for j := j0; j <= j1; j++ {
+		for i := i0; i <= i1; i++ {
+			ix.cells[j*ix.nx+i] = append(ix.cells[j*ix.nx+i], item)
+		}
+	}
+}
+
+func (ix *exposureIndex) col(x float64) int {
+	return min(max(int(math.Floor(x/ix.cell)), 0), ix.nx-1)
+}
+
+func (ix *exposureIndex) row(y float64) int {
+	return min(max(int(math.Floor(y/ix.cell)), 0), ix.ny-1)
+}
+
+// at returns the exposure at p summed over every stroke: each straight
+// piece by lineExposure, each dwell by its linearised neighbour exposure,
+// except that a dwell parked on p (within 0.05 nm) gives its own site's
+// exposure −ln(1 − completion). most is the stroke that gives the most.
+func (ix *exposureIndex) at(p r2.Point) (x float64, most int32) {
+	most = -1
+	best := 0.0
+	for _, item := range ix.cells[ix.row(p.Y)*ix.nx+ix.col(p.X)] {
+		var e float64
+		var who int32
+		if item >= 0 {
+			s := &ix.segs[item]
+			ab := s.b.Sub(s.a)
+			L := ab.Norm()
+			u := ab.Mul(1 / L)
+			ap := p.Sub(s.a)
+			e, who = lineExposure(s.peak, s.sigma, L, ap.Dot(u), math.Abs(u.Cross(ap))), s.stroke
+		} else {
+			d := &ix.dots[^item]
+			dist := p.Sub(d.at).Norm()
+			if dist <= 0.05 {
+				e = ix.own
+			} else {
+				e = ix.prof.dwellExposure(gauss(dist, ix.prof.Dwell.SigmaNM))
+			}
+			who = d.stroke
+		}
+		x += e
+		if e > best {
+			best, most = e, who
+		}
+	}
+	return x, most
+}
