@@ -41,6 +41,8 @@ lint:
 	@out=$$(gofmt -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go')); \
 	if [ -n "$$out" ]; then echo "gofmt would change:"; echo "$$out"; exit 1; fi
 	$(GO) vet ./...
+	@# go.mod and go.sum list exactly what the code imports.
+	@$(GO) mod tidy -diff >/dev/null || { echo "go.mod or go.sum is not tidy: run go mod tidy"; $(GO) mod tidy -diff; exit 1; }
 	@# Only app/ may import Fyne; the pure packages stay headless.
 	@bad=$$($(GO) list -deps ./lattice/... ./planner/... ./export/... | grep '^fyne.io/' || true); \
 	if [ -n "$$bad" ]; then echo "pure packages import Fyne:"; echo "$$bad"; exit 1; fi

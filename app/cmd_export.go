@@ -13,6 +13,7 @@ import (
 	"time"
 
 	"dimerpath/export"
+	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
@@ -115,7 +116,7 @@ func runExport(env Env, args []string, fl exportFlags) int {
 		size = fmt.Sprintf(", %d bytes", st.Size())
 	}
 	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, expected %s%s)\n",
-		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), fmtDuration(p.TotalS), size)
+		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), units.Duration(p.TotalS), size)
 	return ExitOK
 }
 
