@@ -49,6 +49,12 @@ lint:
 	@# Only app/ may import Fyne; the pure packages stay headless.
 	@bad=$$($(GO) list -deps ./lattice/... ./planner/... ./export/... | grep '^fyne.io/' || true); \
 	if [ -n "$$bad" ]; then echo "pure packages import Fyne:"; echo "$$bad"; exit 1; fi
+	@# The editor and the renderer are Fyne-free, tests included, so they
+	@# build and test without cgo or a display; the renderer knows no editor.
+	@bad=$$($(GO) list -deps -test ./app/editor/... ./app/render/... | grep '^fyne.io/' || true); \
+	if [ -n "$$bad" ]; then echo "app/editor or app/render imports Fyne:"; echo "$$bad"; exit 1; fi
+	@bad=$$($(GO) list -deps ./app/render/... | grep '^dimerpath/app/editor' || true); \
+	if [ -n "$$bad" ]; then echo "app/render imports the editor"; exit 1; fi
 	@bad=$$($(GO) list -deps ./lattice/... | grep '^dimerpath/planner' || true); \
 	if [ -n "$$bad" ]; then echo "lattice imports planner"; exit 1; fi
 	@bad=$$($(GO) list -deps ./planner/route/... | grep '^dimerpath/' | grep -v '^dimerpath/planner/route' || true); \

@@ -13,6 +13,8 @@ import (
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/render"
 	"dimerpath/export"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
@@ -63,12 +65,12 @@ func (u *UI) StartPlan() {
 	u.showProgress("Planning "+variant+"…", 0)
 	opt := planner.Options{Seed: u.opts.Seed, Progress: u.progressFunc(variant+": ", 1, 0)}
 	go func() {
-		p, err := buildPlan(ctx, d, variant, prof, opt)
+		p, err := editor.BuildPlan(ctx, d, variant, prof, opt)
 		fyne.Do(func() { u.planDone(s, p, variant, tok, err) })
 	}()
 }
 
-func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken, err error) {
+func (u *UI) planDone(s *editor.Session, p *planner.Plan, variant string, tok editor.PlanToken, err error) {
 	if u.jobDone != nil {
 		defer u.jobDone()
 	}
@@ -99,7 +101,7 @@ func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken
 // screenshot mode and tests).
 func (u *UI) PlanNow(ctx context.Context) error {
 	s := u.S
-	p, err := buildPlan(ctx, s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: u.opts.Seed})
+	p, err := editor.BuildPlan(ctx, s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: u.opts.Seed})
 	if err != nil {
 		return err
 	}
@@ -137,14 +139,14 @@ func (u *UI) CheckNow() {
 	ctx, cancel := context.WithCancel(context.Background())
 	u.checkCancel = cancel
 	go func() {
-		res, err := checkDesign(ctx, d, variant)
+		res, err := editor.CheckDesign(ctx, d, variant)
 		fyne.Do(func() {
 			if ctx.Err() != nil || s != u.S || variant != s.Variant().Name {
 				return
 			}
 			u.checkCancel = nil
 			if err != nil {
-				res = CheckResult{Findings: []Finding{{Rule: "design", Error: true, Message: err.Error()}}}
+				res = editor.CheckResult{Findings: []editor.Finding{{Rule: "design", Error: true, Message: err.Error()}}}
 			}
 			s.SetCheck(res, tok)
 		})
@@ -154,9 +156,9 @@ func (u *UI) CheckNow() {
 // CheckSync runs the checks on the calling goroutine (tests, screenshot).
 func (u *UI) CheckSync() {
 	s := u.S
-	res, err := checkDesign(context.Background(), s.DesignCopy(), s.Variant().Name)
+	res, err := editor.CheckDesign(context.Background(), s.DesignCopy(), s.Variant().Name)
 	if err != nil {
-		res = CheckResult{Findings: []Finding{{Rule: "design", Error: true, Message: err.Error()}}}
+		res = editor.CheckResult{Findings: []editor.Finding{{Rule: "design", Error: true, Message: err.Error()}}}
 	}
 	s.SetCheck(res, s.Token())
 }
@@ -182,7 +184,7 @@ func (u *UI) compareVariants() {
 		for i, n := range names {
 			frac := 1 / float64(len(names))
 			opt := planner.Options{Seed: seed, Progress: u.progressFunc(fmt.Sprintf("variant %s (%d of %d): ", n, i+1, len(names)), frac, float64(i)*frac)}
-			p, err := buildPlan(ctx, d, n, prof, opt)
+			p, err := editor.BuildPlan(ctx, d, n, prof, opt)
 			res[i] = export.VariantResult{Variant: n, Plan: p, Err: err}
 			rules[i] = rulesSummary(ctx, d, n)
 			if ctx.Err() != nil {
@@ -215,7 +217,7 @@ func (u *UI) compareVariants() {
 // rulesSummary says how variant fares under the design rules: "passes",
 // "2 errors", "1 warning".
 func rulesSummary(ctx context.Context, d *design.Design, variant string) string {
-	res, err := checkDesign(ctx, d, variant)
+	res, err := editor.CheckDesign(ctx, d, variant)
 	if err != nil {
 		return "cannot be checked"
 	}
@@ -285,7 +287,7 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 			}
 			cells = append(cells, l)
 		}
-		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: formatDuration(p.TotalS), Color: SegmentColor(i)})
+		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: formatDuration(p.TotalS), Color: render.SegmentColor(i)})
 		yieldBars = append(yieldBars, Bar{Label: r.Variant, Value: p.Yield.All, Text: all, Color: colYield})
 	}
 	table := container.New(&tableLayout{cols: cols}, cells...)
@@ -301,10 +303,10 @@ func (u *UI) showComparison(res []export.VariantResult, rules []string) {
 	content := container.NewScroll(comparisonView(res, rules))
 	var d *dialog.CustomDialog
 	report := widget.NewButtonWithIcon("Export report…", theme.DocumentPrintIcon(), func() {
-		u.withCaution("the comparison report", func(es ExportSettings) {
+		u.withCaution("the comparison report", func(es editor.ExportSettings) {
 			u.chooseFile(safeFileName(u.S.Design().Name)+"-variants.pdf", []string{".pdf", ".svg"}, func(path string) {
 				u.runInBackground("Writing "+filepath.Base(path)+"…", func(ctx context.Context, _ func(string, float64)) error {
-					return exportComparison(ctx, path, res, es)
+					return editor.ExportComparison(ctx, path, res, es)
 				}, "Wrote "+path)
 			})
 		})
