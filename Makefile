@@ -41,6 +41,9 @@ lint:
 	@out=$$(gofmt -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go')); \
 	if [ -n "$$out" ]; then echo "gofmt would change:"; echo "$$out"; exit 1; fi
 	$(GO) vet ./...
+	@# The README names the Go release go.mod needs.
+	@want=$$(awk '$$1 == "go" {print $$2}' go.mod); grep -q "Go $$want or newer" README.md || \
+	  { echo "README.md does not say \"Go $$want or newer\", the release go.mod needs"; exit 1; }
 	@# go.mod and go.sum list exactly what the code imports.
 	@$(GO) mod tidy -diff >/dev/null || { echo "go.mod or go.sum is not tidy: run go mod tidy"; $(GO) mod tidy -diff; exit 1; }
 	@# Only app/ may import Fyne; the pure packages stay headless.

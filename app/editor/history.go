@@ -86,7 +86,7 @@ func (h *history) push(s *snapshot) {
 	}
 }
 
-// setBounds is a rough size of a site set in bytes, for the history's
+// setBytes is a rough size of a site set in bytes, for the history's
 // memory limit.
 func setBytes(s *lattice.SiteSet) int {
 	if s == nil {

@@ -146,7 +146,7 @@ type gesture struct {
 	dragged bool
 }
 
-// hover is the pointer position in nm for previews, if known.
+// hoverState is the pointer position in nm for previews, if known.
 type hoverState struct {
 	at r2.Point
 	ok bool

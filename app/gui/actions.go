@@ -16,6 +16,7 @@ import (
 	"dimerpath/app/editor"
 	"dimerpath/app/render"
 	"dimerpath/export"
+	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
@@ -90,7 +91,7 @@ func (u *UI) planDone(s *editor.Session, p *planner.Plan, variant string, tok ed
 	default:
 		s.SetPlan(p, variant, tok)
 		u.tabs.Select(u.tabPlan)
-		u.hintLabel.SetText(fmt.Sprintf("Planned variant %s in %s.", variant, formatDuration(time.Since(u.planStarted).Seconds())))
+		u.hintLabel.SetText(fmt.Sprintf("Planned variant %s in %s.", variant, units.Duration(time.Since(u.planStarted).Seconds())))
 		if then != nil {
 			then()
 		}
@@ -273,11 +274,11 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 		if p.Yield.Windows > 0 {
 			all = formatProbability(p.Yield.All)
 		}
-		reg := formatDuration(p.Breakdown.RegistrationS)
+		reg := units.Duration(p.Breakdown.RegistrationS)
 		if p.TotalS > 0 {
 			reg += fmt.Sprintf(" (%.0f %%)", 100*p.Breakdown.RegistrationS/p.TotalS)
 		}
-		for _, t := range []string{r.Variant, formatDuration(p.TotalS), formatDuration(p.P10S) + " – " + formatDuration(p.P90S), reg, all, dev} {
+		for _, t := range []string{r.Variant, units.Duration(p.TotalS), units.Duration(p.P10S) + " – " + units.Duration(p.P90S), reg, all, dev} {
 			cells = append(cells, widget.NewLabel(t))
 		}
 		if rules != nil {
@@ -287,7 +288,7 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 			}
 			cells = append(cells, l)
 		}
-		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: formatDuration(p.TotalS), Color: render.SegmentColor(i)})
+		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: units.Duration(p.TotalS), Color: render.SegmentColor(i)})
 		yieldBars = append(yieldBars, Bar{Label: r.Variant, Value: p.Yield.All, Text: all, Color: colYield})
 	}
 	table := container.New(&tableLayout{cols: cols}, cells...)

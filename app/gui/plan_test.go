@@ -14,6 +14,7 @@ import (
 	"dimerpath/app/render"
 	"dimerpath/app/render/rendertest"
 	"dimerpath/export"
+	"dimerpath/internal/units"
 )
 
 // texts returns every text shown under o.
@@ -65,7 +66,7 @@ func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 	rendertest.SaveImage(t, "window-plan.png", w.Canvas().Capture())
 	zoomOn(w, u, mid, 0.5)
 	panel := texts(u.planView.content)
-	for _, want := range []string{formatDuration(3720), "P10 " + formatDuration(3500), "Every window takes exactly one donor: 40 %", "2 drift-safe segments"} {
+	for _, want := range []string{units.Duration(3720), "P10 " + units.Duration(3500), "Every window takes exactly one donor: 40 %", "2 drift-safe segments"} {
 		if !strings.Contains(panel, want) {
 			t.Errorf("plan panel lacks %q:\n%s", want, panel)
 		}
@@ -111,7 +112,7 @@ func TestComparisonView(t *testing.T) {
 		t.Errorf("comparison is %g units wide, more than its 1000-unit dialog", w)
 	}
 	text := texts(view)
-	for _, want := range []string{"A", formatDuration(3720), "40 %", "B", errPlanTest.Error()} {
+	for _, want := range []string{"A", units.Duration(3720), "40 %", "B", errPlanTest.Error()} {
 		if !strings.Contains(text, want) {
 			t.Errorf("comparison lacks %q:\n%s", want, text)
 		}

@@ -7,6 +7,7 @@ import (
 
 	"dimerpath/app/editor/editortest"
 	"dimerpath/app/render"
+	"dimerpath/internal/units"
 	"fyne.io/fyne/v2/test"
 )
 
@@ -40,8 +41,8 @@ func TestPlanButtonPlansDemo(t *testing.T) {
 	if u.tabs.Selected() != u.tabPlan {
 		t.Error("the Plan tab is not shown after planning")
 	}
-	if panel := texts(u.planView.content); !strings.Contains(panel, formatDuration(p.TotalS)) {
-		t.Errorf("plan panel lacks the total %s", formatDuration(p.TotalS))
+	if panel := texts(u.planView.content); !strings.Contains(panel, units.Duration(p.TotalS)) {
+		t.Errorf("plan panel lacks the total %s", units.Duration(p.TotalS))
 	}
 	// The first AP line stroke is drawn in its segment's colour.
 	for _, st := range p.Strokes {
