@@ -9,7 +9,6 @@ import (
 
 	"github.com/golang/geo/r2"
 
-	"dimerpath/app/render"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -149,13 +148,9 @@ func (s *Session) DeleteTerrace(i int) error {
 	for _, v := range s.d.Variants {
 		for _, r := range v.Regions {
 			for _, set := range []*lattice.SiteSet{r.Painted, r.Erased} {
-				if set != nil && set.TerraceCount() > i {
-					for t := i; t < set.TerraceCount(); t++ {
-						for row := 0; row < set.RowCount(t); row++ {
-							if render.CountRange(set.Row(t, row), 0, math.MaxInt) > 0 {
-								return fmt.Errorf("terrace %s: region %q of variant %q has painted sites on it or a later terrace; erase them first", s.d.Terraces[i].Name, r.Name, v.Name)
-							}
-						}
+				for t := i; set != nil && t < set.TerraceCount(); t++ {
+					if set.CountTerrace(t) > 0 {
+						return fmt.Errorf("terrace %s: region %q of variant %q has painted sites on it or a later terrace; erase them first", s.d.Terraces[i].Name, r.Name, v.Name)
 					}
 				}
 			}

@@ -27,7 +27,7 @@ func (r *Renderer) buildAtomicTables(tb *axisTables, nAlong, nAcross int, alongS
 	for i := range nAlong {
 		a := alongStart + alongDir*(float64(i)+0.5)*s
 		d := int(math.Round(a / lattice.DimerPitch))
-		du := a - float64(d)*lattice.DimerPitch
+		du := a - lattice.DimerAlong(d)
 		if d < 0 || d >= nDim {
 			tb.aDimer[i] = -1
 			continue
@@ -41,7 +41,7 @@ func (r *Renderer) buildAtomicTables(tb *axisTables, nAlong, nAcross int, alongS
 	for j := range nAcross {
 		c := acrossStart + acrossDir*(float64(j)+0.5)*s
 		row := int(math.Round(c / lattice.RowSpacing))
-		dc := c - float64(row)*lattice.RowSpacing
+		dc := c - lattice.RowAcross(row)
 		if row < 0 || row >= tb.nRows {
 			tb.cRow[j] = -1
 			continue

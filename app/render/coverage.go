@@ -3,50 +3,13 @@ package render
 import (
 	"math/bits"
 	"sort"
+
+	"dimerpath/lattice"
 )
 
 // coverage levels: a pixel's share of painted sites is shown in this
 // many steps.
 const levels = 16
-
-// rowSpan returns the index of the first set bit of a row bitset and one
-// past its last, or -1, -1 for an empty row.
-func rowSpan(w []uint64) (first, last int) {
-	i := 0
-	for i < len(w) && w[i] == 0 {
-		i++
-	}
-	if i == len(w) {
-		return -1, -1
-	}
-	j := len(w) - 1
-	for w[j] == 0 {
-		j--
-	}
-	return i*64 + bits.TrailingZeros64(w[i]), j*64 + 64 - bits.LeadingZeros64(w[j])
-}
-
-// CountRange returns the number of set bits [lo, hi) of a row bitset.
-func CountRange(w []uint64, lo, hi int) uint32 {
-	n := len(w) * 64
-	if hi > n {
-		hi = n
-	}
-	if lo >= hi {
-		return 0
-	}
-	k0, k1 := lo>>6, (hi-1)>>6
-	m0 := ^uint64(0) << (uint(lo) & 63)
-	m1 := ^uint64(0) >> (63 - (uint(hi-1) & 63))
-	if k0 == k1 {
-		return uint32(bits.OnesCount64(w[k0] & m0 & m1))
-	}
-	c := bits.OnesCount64(w[k0]&m0) + bits.OnesCount64(w[k1]&m1)
-	for k := k0 + 1; k < k1; k++ {
-		c += bits.OnesCount64(w[k])
-	}
-	return uint32(c)
-}
 
 // drawCoverage draws each pixel by the share of its sites that are
 // painted, using popcounts over each pixel's index range of each row.
@@ -86,10 +49,11 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 					}
 					for row := int(rr.lo); row < hi; row++ {
 						words := L.Sites.Row(t, row)
-						first, last := rowSpan(words)
-						if first < 0 {
+						fd, ld := words.DimerExtent(lattice.BothSides)
+						if fd < 0 {
 							continue
 						}
+						first, last := 2*fd, 2*ld+2 // in-row indices [first, last) of the painted dimers
 						// Only the pixels over the row's painted span: along
 						// grows with x on a RowsAlongX terrace.
 						xa := x0 + sort.Search(x1-x0, func(i int) bool { return int(tb.along[x0+i].hi) > first })
@@ -110,7 +74,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 								// The common case, one word: inline.
 								c = uint32(bits.OnesCount64(words[k] >> (uint(lo) & 63) & (^uint64(0) >> (64 - uint(hi-lo)))))
 							} else {
-								c = CountRange(words, lo, hi)
+								c = uint32(words.Count(lo, hi))
 							}
 							if c != 0 {
 								line[x] += c
@@ -131,7 +95,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 						rr := tb.across[x]
 						var c uint32
 						for row := int(rr.lo); row < min(int(rr.hi), setRows); row++ {
-							c += CountRange(L.Sites.Row(t, row), int(a.lo), int(a.hi))
+							c += uint32(L.Sites.Row(t, row).Count(int(a.lo), int(a.hi)))
 						}
 						if c != 0 {
 							line[x] = c

@@ -117,25 +117,23 @@ func pixelSpan(x0, x1 float64, n int) (int, int) {
 
 // buildTables fills r.tabs[t] for the view.
 func (r *Renderer) buildTables(surf *lattice.Surface, t int, v View) {
-	tr := &surf.Terraces[t]
 	tb := &r.tabs[t]
-	tb.alongOfX = tr.Rows == lattice.RowsAlongX
+	tb.alongOfX = surf.Terraces[t].Rows == lattice.RowsAlongX
 	tb.nRows = surf.RowCount(t)
 	tb.nIdx = lattice.SitesPerDimer * surf.DimerCount(t)
-	// Field coordinate of the left edge of column 0 and the top edge of
-	// row 0, relative to the terrace offset.
-	left := v.ToField(0, 0).X
-	top := v.ToField(0, 0).Y
+	// The top-left corner of the frame in the terrace's lattice frame:
+	// the along and across coordinates of the left edge of column 0 and
+	// the top edge of row 0. Along grows with x on a RowsAlongX terrace
+	// and falls with the pixel row on a RowsAlongY one (y is down).
+	alongStart, acrossStart := surf.Frame(t).ToLocal(v.ToField(0, 0))
 	var nAlong, nAcross int
-	var alongStart, acrossStart, alongDir, acrossDir float64
+	var alongDir, acrossDir float64
 	if tb.alongOfX {
 		nAlong, nAcross = v.W, v.H
-		alongStart, alongDir = left-tr.Offset.X, 1
-		acrossStart, acrossDir = top-tr.Offset.Y, -1
+		alongDir, acrossDir = 1, -1
 	} else {
 		nAlong, nAcross = v.H, v.W
-		alongStart, alongDir = top-tr.Offset.Y, -1
-		acrossStart, acrossDir = left-tr.Offset.X, 1
+		alongDir, acrossDir = -1, 1
 	}
 	s := v.Scale
 	tb.along = growRng(tb.along, nAlong)
