@@ -62,8 +62,8 @@ const (
 )
 
 // Main runs the dimerpath command line and returns the exit status.
-// With no arguments it opens the GUI on the built-in demo design (or, in
-// a build without the GUI, prints the demo's summary).
+// With no arguments it opens the GUI on the built-in demo design
+// (without a display it says so in one line and returns ExitFailure).
 func Main(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	env := Env{Stdin: stdin, Stdout: stdout, Stderr: stderr}
 	if len(args) == 0 {

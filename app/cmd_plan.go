@@ -318,7 +318,7 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	for _, c := range p.Conditions {
 		switch c.Kind {
 		case planner.StrokeDwell:
-			fmt.Fprintf(tw, "  AP dwell\t%+.2f V\t%.3g nA\texpected %.3g s per site, stop at %.3g s\n", c.BiasV, c.CurrentA*1e9, c.DwellS, c.DwellCapS)
+			fmt.Fprintf(tw, "  AP dwell\t%+.2f V\t%.3g nA\texpected %s per site, stop at %s\n", c.BiasV, c.CurrentA*1e9, units.Duration(c.DwellS), units.Duration(c.DwellCapS))
 		default:
 			name := "AP line"
 			extra := ""

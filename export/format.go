@@ -51,7 +51,7 @@ func nanoAmps(a float64) string { return sig(a*1e9, 3) }
 // milliCoulombPerCm formats a line dose given in C/cm as mC/cm.
 func milliCoulombPerCm(d float64) string { return sig(d*1e3, 3) }
 
-// nm formats a length in nm with one decimal.
+// nm1 formats a length in nm with one decimal.
 func nm1(v float64) string { return strings.Replace(strconv.FormatFloat(v, 'f', 1, 64), "-", "−", 1) }
 
 // percent formats a fraction 0..1 as a percentage.
