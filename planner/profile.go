@@ -280,7 +280,7 @@ func DefaultProfile() Profile {
 			RateNMPerMin:   0.1,
 			RateSDNMPerMin: 0.05, // ±50 %, from memory
 			// A 50×50 nm² registration image of 256 lines at ~1 s/line
-			// (physics.md §5, derived/from memory).
+			// (a typical image, from memory).
 			RegistrationS: 256,
 			VerificationS: 0,
 		},
@@ -297,7 +297,7 @@ func DefaultProfile() Profile {
 		HybridBandNM: 6,
 		Limits: Limits{
 			MaxBiasV:     10,    // common instrument bias range ±10 V, from memory
-			MaxCurrentA:  10e-9, // ~10 nA FE cap, from memory (physics.md caps)
+			MaxCurrentA:  10e-9, // ~10 nA FE cap for a stable tip, from memory
 			ScanFieldNM:  2000,  // the design-rule default 2 µm scan field
 			MaxSpeedNMPS: 5000,  // few µm/s tip moves, from memory
 		},
@@ -305,8 +305,8 @@ func DefaultProfile() Profile {
 }
 
 // LowTemperatureProfile returns the 4 K preset ("lt"): the room-
-// temperature profile with liquid-helium drift, ≤ 0.1 nm/h (from memory,
-// physics.md §5). The dose model is left at the room-temperature values:
+// temperature profile with liquid-helium drift, ≤ 0.1 nm/h (from
+// memory). The dose model is left at the room-temperature values:
 // the low-bias yield rises ~300× at 11 K (Foley et al., PRL 80, 1336
 // (1998)), so calibrate at temperature before trusting write times.
 func LowTemperatureProfile() Profile {

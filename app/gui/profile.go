@@ -13,6 +13,7 @@ import (
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 
+	"dimerpath/app/editor"
 	"dimerpath/planner"
 )
 
@@ -36,24 +37,37 @@ func modeFields(group, prefix string, m func(p *planner.Profile) *planner.ModePr
 		{group: group, path: prefix + ".current_a", label: "Setpoint current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &m(p).CurrentA }},
 		{group: group, path: prefix + ".line_dose_c_per_cm", label: "Line dose (mC/cm)", scale: 1e3, f: func(p *planner.Profile) *float64 { return &m(p).LineDoseCPerCm }},
 		{group: group, path: prefix + ".passes", label: "Passes", i: func(p *planner.Profile) *int { return &m(p).Passes }},
-		{group: group, path: prefix + ".width.sigma_nm", label: "Beam σ of the width model (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).Width.SigmaNM }},
-		{group: group, path: prefix + ".width.threshold_dose_c_per_cm", label: "Threshold dose (mC/cm)", scale: 1e3, f: func(p *planner.Profile) *float64 { return &m(p).Width.ThresholdDoseCPerCm }},
+		{group: group, path: prefix + ".sigma_nm", label: "Footprint σ (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).SigmaNM }},
 	}
 	if fe {
-		fs = append(fs, profileField{group: group, path: prefix + ".overlap", label: "Raster overlap (fraction of the width)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).Overlap }})
+		fs = append(fs, profileField{group: group, path: prefix + ".fill_completion", label: "Raster fill: P(clear) between lines", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).FillCompletion }})
+	} else {
+		fs = append(fs, profileField{group: group, path: prefix + ".spurious_per_100nm", label: "Spurious dangling bonds per 100 nm", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).SpuriousPer100NM }})
 	}
 	fs = append(fs, profileField{group: group, path: prefix + ".edge_allowance_nm", label: "Edge allowance (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).EdgeAllowanceNM }})
 	return fs
 }
 
 func profileFields() []profileField {
-	fs := modeFields("Atomic-precision mode", "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)
+	g := "Desorption yield (Shen et al. 1995)"
+	fs := []profileField{
+		{group: g, path: "exposure.vibrational.yield_per_electron", label: "Low-bias yield Y_ref (H per electron)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.YieldPerElectron }},
+		{group: g, path: "exposure.vibrational.bias_v", label: "…at bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.BiasV }},
+		{group: g, path: "exposure.vibrational.current_a", label: "…and current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.CurrentA }},
+		{group: g, path: "exposure.vibrational.order", label: "Order n (rate ∝ Iⁿ)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.Order }},
+		{group: g, path: "exposure.vibrational.decade_v", label: "Bias per decade of yield (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.DecadeV }},
+		{group: g, path: "exposure.vibrational.max_bias_v", label: "Low-bias regime up to (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.MaxBiasV }},
+		{group: g, path: "exposure.electronic.yield_per_electron", label: "Field-emission yield (H per electron)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Electronic.YieldPerElectron }},
+		{group: g, path: "exposure.electronic.threshold_v", label: "Electronic threshold (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Electronic.ThresholdV }},
+		{group: g, path: "stray_limit", label: "Stray limit: P(clear) outside regions", scale: 1, f: func(p *planner.Profile) *float64 { return &p.StrayLimit }},
+	}
+	fs = append(fs, modeFields("Atomic-precision mode", "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)...)
 	fs = append(fs, modeFields("Field-emission mode", "fe", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
-	g := "Dwell (single points)"
+	g = "Dwell (single points)"
 	fs = append(fs,
 		profileField{group: g, path: "dwell.bias_v", label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.BiasV }},
 		profileField{group: g, path: "dwell.current_a", label: "Setpoint current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &p.Dwell.CurrentA }},
-		profileField{group: g, path: "dwell.yield_per_electron", label: "Desorption yield (H per electron)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.YieldPerElectron }},
+		profileField{group: g, path: "dwell.sigma_nm", label: "Footprint σ (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.SigmaNM }},
 		profileField{group: g, path: "dwell.completion", label: "Completion probability", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.Completion }},
 	)
 	g = "Motion"
@@ -113,7 +127,7 @@ func (u *UI) editProfile() { u.openProfileEditor() }
 
 // openProfileEditor shows the editor and returns it.
 func (u *UI) openProfileEditor() *profileEditor {
-	e := &profileEditor{u: u, fields: profileFields(), path: u.S.ProfilePath}
+	e := &profileEditor{u: u, fields: profileFields(), path: u.Session.ProfilePath}
 	e.name = widget.NewEntry()
 	e.notes = widget.NewEntry()
 	e.apOut = widget.NewCheck("extra outline pass", nil)
@@ -125,7 +139,7 @@ func (u *UI) openProfileEditor() *profileEditor {
 	for i := range e.fields {
 		e.entries[i] = widget.NewEntry()
 	}
-	e.fill(u.S.Profile)
+	e.fill(u.Session.Profile)
 
 	var groups []fyne.CanvasObject
 	groups = append(groups, widget.NewForm(widget.NewFormItem("Name", e.name), widget.NewFormItem("Notes", e.notes),
@@ -156,7 +170,7 @@ func (u *UI) openProfileEditor() *profileEditor {
 	load := widget.NewButtonWithIcon("Load…", theme.FolderOpenIcon(), e.load)
 	save := widget.NewButtonWithIcon("Save as…", theme.DocumentSaveIcon(), e.saveAs)
 	preset := widget.NewSelect(planner.Presets(), func(name string) {
-		if p, err := presetProfile(name); err == nil {
+		if p, err := editor.PresetProfile(name); err == nil {
 			e.fill(p)
 		}
 	})
@@ -240,7 +254,7 @@ func (e *profileEditor) parse() (planner.Profile, error) {
 	if len(bad) > 0 {
 		return p, errors.New(strings.Join(bad, "\n"))
 	}
-	if err := validateProfile(p); err != nil {
+	if err := editor.ValidateProfile(p); err != nil {
 		return p, e.explain(err)
 	}
 	return p, nil
@@ -290,7 +304,7 @@ func (e *profileEditor) apply() {
 		showErr(e.msg, fmt.Errorf("Not applied:\n%w", err))
 		return
 	}
-	e.u.S.SetProfile(p, e.path)
+	e.u.Session.SetProfile(p, e.path)
 	e.dlg.Hide()
 	e.u.hintLabel.SetText("Instrument profile " + p.Name + " applied; plan again for its figures.")
 }
@@ -305,7 +319,7 @@ func (e *profileEditor) load() {
 		}
 		path := r.URI().Path()
 		r.Close()
-		p, err := loadProfile(path)
+		p, err := editor.LoadProfile(path)
 		if err != nil {
 			dialog.ShowError(fmt.Errorf("could not load %s:\n%w", path, err), e.u.Win)
 			return
@@ -326,7 +340,7 @@ func (e *profileEditor) saveAs() {
 		return
 	}
 	e.u.chooseFile(safeFileName(p.Name)+".json", []string{".json"}, func(path string) {
-		if err := saveProfile(path, p); err != nil {
+		if err := editor.SaveProfile(path, p); err != nil {
 			dialog.ShowError(fmt.Errorf("could not save %s:\n%w", path, err), e.u.Win)
 			return
 		}
