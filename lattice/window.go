@@ -94,7 +94,9 @@ type TemplateProblem struct {
 	Problem string
 }
 
-func (p TemplateProblem) Error() string { return fmt.Sprintf("%s = %v: %s", p.Field, p.Value, p.Problem) }
+func (p TemplateProblem) Error() string {
+	return fmt.Sprintf("%s = %v: %s", p.Field, p.Value, p.Problem)
+}
 
 // Problems returns every bad field of t (after Normalized): an empty
 // name or species, a dimer count outside 1..MaxTemplateDimers, a

@@ -199,7 +199,7 @@ func TestDwellNeighbourMatchesSimulation(t *testing.T) {
 	// ended at the cap: simulated with gonum's distuv.Exponential.
 	p := DefaultProfile()
 	p.Dwell.SigmaNM = 0.25 // a wide footprint, so that the race is close
-	d := 0.354            // the dimer partner, 2·HOffset
+	d := 0.354             // the dimer partner, 2·HOffset
 	k := p.DwellRate()
 	r := math.Exp(-d * d / (2 * p.Dwell.SigmaNM * p.Dwell.SigmaNM))
 	src := rand.NewPCG(1, 2)

@@ -49,8 +49,17 @@ func modeFields(group, prefix string, m func(p *planner.Profile) *planner.ModePr
 }
 
 func profileFields() []profileField {
-	g := "Desorption yield (Shen et al. 1995)"
-	fs := []profileField{
+	fs := modeFields("Atomic-precision mode", "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)
+	fs = append(fs, modeFields("Field-emission mode", "fe", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
+	g := "Dwell (single points)"
+	fs = append(fs,
+		profileField{group: g, path: "dwell.bias_v", label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.BiasV }},
+		profileField{group: g, path: "dwell.current_a", label: "Setpoint current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &p.Dwell.CurrentA }},
+		profileField{group: g, path: "dwell.sigma_nm", label: "Footprint σ (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.SigmaNM }},
+		profileField{group: g, path: "dwell.completion", label: "Completion probability", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.Completion }},
+	)
+	g = "Desorption yield (Shen et al. 1995)"
+	fs = append(fs, []profileField{
 		{group: g, path: "exposure.vibrational.yield_per_electron", label: "Low-bias yield Y_ref (H per electron)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.YieldPerElectron }},
 		{group: g, path: "exposure.vibrational.bias_v", label: "…at bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.BiasV }},
 		{group: g, path: "exposure.vibrational.current_a", label: "…and current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.CurrentA }},
@@ -60,16 +69,7 @@ func profileFields() []profileField {
 		{group: g, path: "exposure.electronic.yield_per_electron", label: "Field-emission yield (H per electron)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Electronic.YieldPerElectron }},
 		{group: g, path: "exposure.electronic.threshold_v", label: "Electronic threshold (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Electronic.ThresholdV }},
 		{group: g, path: "stray_limit", label: "Stray limit: P(clear) outside regions", scale: 1, f: func(p *planner.Profile) *float64 { return &p.StrayLimit }},
-	}
-	fs = append(fs, modeFields("Atomic-precision mode", "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)...)
-	fs = append(fs, modeFields("Field-emission mode", "fe", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
-	g = "Dwell (single points)"
-	fs = append(fs,
-		profileField{group: g, path: "dwell.bias_v", label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.BiasV }},
-		profileField{group: g, path: "dwell.current_a", label: "Setpoint current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &p.Dwell.CurrentA }},
-		profileField{group: g, path: "dwell.sigma_nm", label: "Footprint σ (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.SigmaNM }},
-		profileField{group: g, path: "dwell.completion", label: "Completion probability", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.Completion }},
-	)
+	}...)
 	g = "Motion"
 	fs = append(fs,
 		profileField{group: g, path: "move_speed_nm_per_s", label: "Move speed (nm/s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.MoveSpeedNMPerS }},
