@@ -18,10 +18,12 @@ func TestSurfaceAcrossStep(t *testing.T) {
 	if lower.Rows != lattice.RowsAlongX || upper.Rows != lattice.RowsAlongY {
 		t.Errorf("rows %v, %v; want x then y (turned across the step)", lower.Rows, upper.Rows)
 	}
-	// a/(2√2) along the new rows (the diamond structure: one single-height
-	// step, a/4, down).
-	if dy := upper.Offset.Y - lower.Offset.Y; math.Abs(dy-lattice.StepShift) > 1e-12 {
-		t.Errorf("step shift %g, want %g", dy, lattice.StepShift)
+	// The demo's upper terrace is one step up: a/(2√2) across the new
+	// rows (the diamond structure; see lattice's
+	// TestAcrossStepMatchesDiamondLattice), reduced into one cell.
+	shift := upper.Offset.Sub(lower.Offset)
+	if dx := math.Mod(shift.X+10*lattice.RowSpacing, lattice.RowSpacing/2); math.Abs(dx-lattice.StepShift) > 1e-9 || math.Abs(math.Remainder(shift.Y, lattice.DimerPitch)) > 1e-9 {
+		t.Errorf("step shift %v, want a/(2√2) across the rows (x), whole pitches along (y)", shift)
 	}
 	d.Terraces[1].Rows = "x"
 	if err := d.Validate(); err == nil || !strings.Contains(err.Error(), `rows "x" disagrees with the step from "lower"`) {

@@ -149,6 +149,13 @@ func (d *Design) validateTerraces(ps *problems) bool {
 					ok = false
 				}
 			}
+			if _, err := ParseStep(t.Step); err != nil {
+				ps.add(path+".step", "%v", err)
+				ok = false
+			}
+		} else if t.Step != "" {
+			ps.add(path+".step", "%q needs step_from: the terrace it steps from", t.Step)
+			ok = false
 		} else if _, err := ParseRows(t.Rows); err != nil {
 			ps.add(path+".rows", "%v (or give step_from)", err)
 			ok = false
