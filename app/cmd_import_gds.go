@@ -77,10 +77,10 @@ func (l *layerList) Set(v string) error {
 }
 
 type importFlags struct {
-	layers                                    layerList
+	layers                                   layerList
 	as, role, name, variant, top, marks, out string
-	gds                                       gdsFlags
-	set                                       map[string]bool
+	gds                                      gdsFlags
+	set                                      map[string]bool
 }
 
 func runImportGDS(env Env, args []string, fl importFlags) int {

@@ -45,7 +45,7 @@ func TestGDSRoundTripGivesTheSameSites(t *testing.T) {
 				"given frame": func(*gdsimport.Layout) (lattice.ChipFrame, error) { return c.chip, nil },
 				"from marks": func(g *gdsimport.Layout) (lattice.ChipFrame, error) {
 					f := l.Design.Fiducials
-					return g.FrameFromMarks(l.Design, [2]gdsimport.Mark{{f[0].Name, f[0].Name}, {f[1].Name, f[1].Name}})
+					return g.FrameFromMarks(l.Design, [2]gdsimport.Mark{{Label: f[0].Name, Fiducial: f[0].Name}, {Label: f[1].Name, Fiducial: f[1].Name}})
 				},
 			}
 			for layer, sites := range want {
