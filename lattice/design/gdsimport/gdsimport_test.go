@@ -19,8 +19,8 @@ func micronLayout(t testing.TB) []byte {
 	t.Helper()
 	lib := &gdsii.Library{Name: "MASK.DB", UserUnit: 1e-3, MetresPerUnit: 1e-9, Structures: []*gdsii.Structure{
 		{Name: "PAD",
-			Boundaries: []gdsii.Boundary{{Layer: 5, XY: []gdsii.Point{{0, 0}, {2000, 0}, {2000, 1000}, {0, 1000}}}},
-			Paths:      []gdsii.Path{{Layer: 6, Width: 100, PathType: 2, XY: []gdsii.Point{{0, 2000}, {1000, 2000}, {1000, 3000}}}}},
+			Boundaries: []gdsii.Boundary{{Layer: 5, XY: []gdsii.Point{{X: 0, Y: 0}, {X: 2000, Y: 0}, {X: 2000, Y: 1000}, {X: 0, Y: 1000}}}},
+			Paths:      []gdsii.Path{{Layer: 6, Width: 100, PathType: 2, XY: []gdsii.Point{{X: 0, Y: 2000}, {X: 1000, Y: 2000}, {X: 1000, Y: 3000}}}}},
 		{Name: "TOP",
 			Texts: []gdsii.Text{{Layer: 63, At: gdsii.Point{X: 10000, Y: 10000}, String: "A"}, {Layer: 63, At: gdsii.Point{X: 14000, Y: 10000}, String: "B"}},
 			Refs: []gdsii.Ref{{Name: "PAD", Origin: gdsii.Point{X: 10000, Y: 11000}},
