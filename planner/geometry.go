@@ -51,9 +51,9 @@ func runSegments(surf *lattice.Surface, set *lattice.SiteSet) []runSeg {
 // near its line, and the rows across them. Each segment is kept as its
 // key and extent only.
 type chordIndex struct {
-	along  []chordSeg     // rows along the lines, by key: the across coordinate
-	keys   []float64      // their keys
-	across []chordSeg     // rows across the lines, by key: the along coordinate
+	along  []chordSeg    // rows along the lines, by key: the across coordinate
+	keys   []float64     // their keys
+	across []chordSeg    // rows across the lines, by key: the along coordinate
 	buf    []r1.Interval // chords' result
 }
 
