@@ -27,10 +27,10 @@
 // Frame converts field points to distances along and across its rows
 // from its origin and back (ToLocal, ToField, LocalRect, FieldRect),
 // DimerAlong, RowAcross, SiteAcross and DimerEdge place dimers, rows,
-// sites and cell edges in
-// it, RowDirection.Split and Join exchange the axes without moving the
-// origin, Frame.SnapRect and LatticeVector snap rectangles and moves to
-// whole dimers and rows, and DimersIn, Surface.RowDimers,
+// sites and cell edges in it, RowDirection.Split and Join exchange the
+// axes without moving the origin, Frame.SnapRect and LatticeVector snap
+// rectangles and moves to whole dimers and rows, and DimersIn,
+// Surface.RowDimers,
 // Surface.TerraceSpans and Surface.Dimers answer which dimers lie in an
 // interval, exist on a row or meet a window.
 //
