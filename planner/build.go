@@ -122,9 +122,10 @@ func (b *builder) build() (*Plan, error) {
 		return nil, err
 	}
 	b.openWindows(windows)
-	cov := CheckCoverage(lay.Surface, b.coverageRegions(), b.strokes, *prof)
+	cov, strokes := CheckCoverage(lay.Surface, b.coverageRegions(), b.strokes, *prof)
+	b.strokes = strokes
 	if !cov.OK {
-		b.warnings = append(b.warnings, fmt.Sprintf("coverage check: %d uncovered and %d overcleared site(s); see coverage.issues", cov.Uncovered, cov.Overcleared))
+		b.warnings = append(b.warnings, fmt.Sprintf("coverage check: %d site(s) outside every region clear with more than %.2g %%; see coverage.stray_sites", cov.OverLimit, 100*cov.StrayLimit))
 	}
 
 	b.opt.stage("route")

@@ -1,13 +1,12 @@
 package planner
 
 import (
-	"cmp"
 	"fmt"
 	"math"
+	"math/bits"
 	"slices"
 
 	"github.com/golang/geo/r1"
-	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
 )
@@ -19,133 +18,61 @@ type CoverageRegion struct {
 	Sites *lattice.SiteSet
 }
 
-// coverageNeglect is the share of the clearing dose below which one
-// stroke segment's contribution to a site is left out of the sum.
-const coverageNeglect = 0.01
+// Accuracy of the coverage expectation. A range of sites is taken at
+// once when the probability its bounds allow for each of its sites
+// varies by less than coverageRel of itself, or by less than coverageAbs
+// over the whole range (expected sites); below exposureNone a site
+// outside the regions is not counted, above exposureSure a painted site
+// is taken as cleared.
+const (
+	coverageRel  = 0.01
+	coverageAbs  = 1e-6
+	exposureNone = 1e-12
+	exposureSure = 36 // exp(−36) = 2·10⁻¹⁶
+)
 
-// coverageExamples is the number of uncovered and overcleared sites the
-// check describes in Coverage.Issues.
+// dwellSnapNM is how close a dwell must be to a site to be parked on it.
+const dwellSnapNM = 0.05
+
+// coverageExamples is the number of errors the check describes in
+// Coverage.Issues.
 const coverageExamples = 6
 
-// CheckCoverage proves, independently of how the strokes were made, that
-// they clear every site of the regions and nothing outside them beyond
-// the edge allowance. It rasterises the strokes' footprints from their
-// geometry alone: each straight piece of a stroke's path delivers the
-// mode's dose passes·λ with a Gaussian footprint of the width model's σ,
-// so a site at along-distance s and across-distance d from a piece of
-// length L gets (passes·λ/λ_thr)·exp(-d²/2σ²)·[Φ((L-s)/σ) - Φ(-s/σ)] of
-// the clearing dose, summed over every piece of every stroke (pieces
-// below 1 % of it are neglected); a site clears at 1 or more. This is
-// exactly the width model for a long line: it clears out to w(λ)/2. A
-// dwell clears the one site it is parked on (within 0.05 nm).
+// CheckCoverage is the coverage expectation of the strokes, independent
+// of how they were made. It sums each site's exposure (see ExposureModel)
+// from the strokes' geometry alone: a straight piece of length L of a
+// line gives a site at along-distance s and across-distance d the
+// exposure X·exp(−d²/2σ²)·[Φ((L−s)/σ) − Φ(−s/σ)] (X the line's
+// centre-line exposure over all its passes, σ its mode's footprint), a
+// dwell its own site −ln(1 − completion) and its neighbours
+// completion·exp(−d²/2σ²) (Profile.dwellExposure), summed over every
+// piece of every stroke (pieces giving less than exposureNeglect left
+// out). A site of exposure x clears with probability 1 − exp(−x).
 //
-// A painted site that does not clear is uncovered. A cleared site that
-// lies in no region is overcleared unless a site of a region whose
-// strokes dose it lies within that stroke mode's EdgeAllowanceNM.
+// For each region it returns the expected number of its sites left
+// (missed), of sites outside every region its strokes clear beyond its
+// mode's edge allowance (stray, with the spurious dangling bonds along
+// its AP lines) and within it (edge, tolerated), and the probability that
+// it is written without error; for each stroke the expected missed sites
+// it is the main writer of and the stray sites it clears. Every site
+// outside the regions and beyond the allowance that clears with a
+// probability above the profile's StrayLimit is listed as an error
+// (Coverage.StraySites), and then Coverage.OK is false.
 //
 // The sum is never taken site by site over a region: a range of sites
 // (site lines x dimers of one terrace) is bounded from the pieces that
-// reach it (a piece parallel or square to the rows is a product of two
-// one-peaked factors; a slanted one is bounded by the range's corners),
-// classified at once when the bounds agree, and halved along the side
-// that leaves them furthest apart otherwise, down to single sites dosed
-// exactly. Only sites near a clearing edge are dosed one by one, and the
-// sites of a decided range are visited a 64-bit word at a time (a
-// cleared range only when it holds an unpainted site, a range known to
-// hold no painted site never). Bounds of slanted pieces bracket Φ and
-// the Gaussian from tables, which keeps them rigorous; sites are dosed
-// with the exact functions. Cost: O(pieces · depth + sites near clearing
-// edges + words of the painted rows + overclearing candidates).
-func CheckCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) Coverage {
+// reach it (a parallel, square or dot piece is a product of two one-peaked
+// factors; a slanted one is bounded by the range's corners), and taken at
+// once when its bounds pin every site's probabilities down closely
+// enough (coverageRel, coverageAbs) and no site of it can be an error;
+// otherwise it is halved along the side that leaves the bounds furthest
+// apart, down to single sites summed exactly. A range taken at once
+// counts its sites a 64-bit word at a time. Cost: O(pieces · depth +
+// sites where the exposure changes fast + words of the ranges taken).
+func CheckCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) (Coverage, []Stroke) {
 	ck := newCoverageCheck(surf, regions, strokes, &prof)
 	ck.run()
-	return ck.cov
-}
-
-// piece is one straight piece of a stroke's path as seen from one
-// terrace: coordinates are along and across that terrace's rows, from its
-// lattice offset. A piece parallel to the rows lies at across c from
-// along a0 to a1; one square to them at along c from across a0 to a1;
-// any other starts at (pu, py) with unit direction (du, dy) and length L.
-type piece struct {
-	kind      uint8
-	stroke    int32
-	ratio     float64 // delivered dose over the clearing threshold
-	sigma     float64
-	c, a0, a1 float64
-	pu, py    float64
-	du, dy, L float64
-	uLo, uHi  float64 // the box beyond which the piece gives less than the neglect share
-	yLo, yHi  float64
-	// uTop and yTop are the along and across factors at their peaks
-	// (uPeak, yPeak), and sTop a slanted piece's band at its middle,
-	// computed once.
-	uTop, yTop, sTop float64
-}
-
-const (
-	pieceParallel = iota
-	pieceSquare
-	pieceSlanted
-)
-
-// band is the unimodal factor Φ((hi-x)/σ) - Φ((lo-x)/σ): the share of a
-// Gaussian of width σ centred at x that falls on [lo, hi]. Far beyond an
-// end (8σ) that end's term is 0 or 1 to within 1e-15 and is skipped.
-func band(lo, hi, sigma, x float64) float64 {
-	a, b := (lo-x)/sigma, (hi-x)/sigma
-	switch {
-	case a < -8 && b > 8:
-		return 1
-	case a < -8:
-		return normalCDF(b)
-	case b > 8:
-		return 1 - normalCDF(a)
-	}
-	return normalCDF(b) - normalCDF(a)
-}
-
-func gauss(d, sigma float64) float64 { x := d / sigma; return math.Exp(-x * x / 2) }
-
-// uFactor and yFactor split a parallel or square piece's dose into a
-// factor of the along position and one of the across position.
-func (p *piece) uFactor(u float64) float64 {
-	if p.kind == pieceParallel {
-		return band(p.a0, p.a1, p.sigma, u)
-	}
-	return gauss(u-p.c, p.sigma)
-}
-
-func (p *piece) yFactor(y float64) float64 {
-	if p.kind == pieceParallel {
-		return gauss(y-p.c, p.sigma)
-	}
-	return band(p.a0, p.a1, p.sigma, y)
-}
-
-// uPeak and yPeak are where the factors peak.
-func (p *piece) uPeak() float64 {
-	if p.kind == pieceParallel {
-		return (p.a0 + p.a1) / 2
-	}
-	return p.c
-}
-
-func (p *piece) yPeak() float64 {
-	if p.kind == pieceParallel {
-		return p.c
-	}
-	return (p.a0 + p.a1) / 2
-}
-
-// at returns the piece's dose share at (u, y).
-func (p *piece) at(u, y float64) float64 {
-	if p.kind != pieceSlanted {
-		return p.ratio * p.uFactor(u) * p.yFactor(y)
-	}
-	s := (u-p.pu)*p.du + (y-p.py)*p.dy
-	x := (y-p.py)*p.du - (u-p.pu)*p.dy
-	return p.ratio * gauss(x, p.sigma) * band(0, p.L, p.sigma, s)
+	return ck.cov, ck.strokes
 }
 
 type coverageCheck struct {
@@ -161,20 +88,39 @@ type coverageCheck struct {
 	exist    []rowDimers     // terrace -> the dimers of each row that exist
 	allowed  []rowSpans      // [region·terraces + terrace]: allowed spans per row
 	rows     []regionExtents // [region·terraces + terrace]: run extents per row
+	rowRegs  [][][]int32     // terrace -> row -> regions with sites on the row (nil: not yet)
 	arena    []float64       // cached factors of decide's nested ranges
 	ptrs     []*piece        // active lists of decide's nested ranges
 	spanBuf  []r1.Interval   // scratch for allowedSpans
 	spanBuf2 []r1.Interval
 	slab     []r1.Interval // storage of the cached span lists
-	cov      Coverage
-	nUnc     int
-	nOver    int
+
+	// own is the exposure of the site a dwell is parked on.
+	own float64
+	// acc accumulates per region, other (index len(regions)) what no
+	// region's stroke is the main writer of.
+	acc       []regionAcc
+	missed    []float64 // per stroke
+	stray     []float64 // per stroke
+	nOver     int
+	straySite []StraySite
+	issues    []string
+	cov       Coverage
+}
+
+// regionAcc accumulates one region's expectation; logP is the natural
+// log of the probability that it is written without error.
+type regionAcc struct {
+	missed, stray, spurious, logP float64
 }
 
 func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof *Profile) *coverageCheck {
-	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: strokes,
+	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: slices.Clone(strokes),
 		dwelled: lattice.NewSiteSet(),
-		exist:   make([]rowDimers, len(surf.Terraces)), allowed: make([]rowSpans, len(regions)*len(surf.Terraces)), rows: make([]regionExtents, len(regions)*len(surf.Terraces))}
+		exist:   make([]rowDimers, len(surf.Terraces)), allowed: make([]rowSpans, len(regions)*len(surf.Terraces)),
+		rows: make([]regionExtents, len(regions)*len(surf.Terraces)), rowRegs: make([][][]int32, len(surf.Terraces)),
+		acc: make([]regionAcc, len(regions)+1), missed: make([]float64, len(strokes)), stray: make([]float64, len(strokes))}
+	ck.own = prof.dwellOwnExposure()
 	for t := range surf.Terraces {
 		ck.exist[t] = rowDimers{dimers: make([][]lattice.DimerRange, surf.RowCount(t)), done: make([]bool, surf.RowCount(t))}
 	}
@@ -190,6 +136,8 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 	}
 	ck.pieces = make([][]piece, len(surf.Terraces))
 	ck.region = make([]int, len(strokes))
+	lines := map[WriteMode]LineModel{AP: prof.Line(AP), FE: prof.Line(FE)}
+	spurious := prof.AP.SpuriousPer100NM / 100
 	for i := range strokes {
 		st := &strokes[i]
 		ri, ok := byName[st.Region]
@@ -198,21 +146,35 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 		}
 		ck.region[i] = ri
 		if st.Kind == StrokeDwell {
-			if len(st.Path) > 0 {
-				if site, d, ok := surf.Snap(st.Path[0]); ok && d <= 0.05 {
-					ck.dwelled.Add(site)
+			if len(st.Path) == 0 {
+				continue
+			}
+			if site, d, ok := surf.Snap(st.Path[0]); ok && d <= dwellSnapNM {
+				ck.dwelled.Add(site)
+			}
+			amp, sigma := prof.Dwell.Completion, prof.Dwell.SigmaNM
+			reach := sigma * math.Sqrt(2*math.Log(amp/exposureNeglect))
+			for t := range surf.Terraces {
+				if ck.grid == nil || ck.grid.reaches(t, st.Path[0], st.Path[0]) {
+					ck.pieces[t] = append(ck.pieces[t], makeDot(surf, t, int32(i), st.Path[0], amp, sigma, reach))
 				}
 			}
 			continue
 		}
-		l := prof.Line(st.Mode)
-		// Interim: a site counts as cleared at probability ½.
-		ratio := float64(max(st.Passes, 1)) * l.PassPeak / math.Ln2
-		sigma := l.SigmaNM
-		if ratio <= coverageNeglect || !(sigma > 0) {
+		l := lines[st.Mode]
+		amp := l.PassPeak * float64(max(st.Passes, 1))
+		if st.Mode == AP && spurious > 0 {
+			// The background of spurious dangling bonds along AP lines.
+			n := spurious * st.LengthNM * float64(max(st.Passes, 1))
+			ck.stray[i] += n
+			if ri >= 0 {
+				ck.acc[ri].spurious += n
+			}
+		}
+		if amp <= exposureNeglect || !(l.SigmaNM > 0) {
 			continue
 		}
-		reach := sigma * math.Sqrt(2*math.Log(ratio/coverageNeglect))
+		reach := l.SigmaNM * math.Sqrt(2*math.Log(amp/exposureNeglect))
 		for k := 0; k+1 < len(st.Path); k++ {
 			a, b := st.Path[k], st.Path[k+1]
 			if a == b {
@@ -222,35 +184,11 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 				if ck.grid != nil && !ck.grid.reaches(t, a, b) {
 					continue
 				}
-				ck.pieces[t] = append(ck.pieces[t], makePiece(surf, t, int32(i), a, b, ratio, sigma, reach))
+				ck.pieces[t] = append(ck.pieces[t], makePiece(surf, t, int32(i), a, b, amp, l.SigmaNM, reach))
 			}
 		}
 	}
 	return ck
-}
-
-// makePiece describes the piece a→b of stroke si on terrace t.
-func makePiece(surf *lattice.Surface, t int, si int32, a, b r2.Point, ratio, sigma, reach float64) piece {
-	f := surf.Frame(t)
-	ua, ya := f.ToLocal(a)
-	ub, yb := f.ToLocal(b)
-	p := piece{stroke: si, ratio: ratio, sigma: sigma,
-		uLo: min(ua, ub) - reach, uHi: max(ua, ub) + reach,
-		yLo: min(ya, yb) - reach, yHi: max(ya, yb) + reach}
-	switch {
-	case math.Abs(ya-yb) < 1e-9:
-		p.kind, p.c, p.a0, p.a1 = pieceParallel, ya, min(ua, ub), max(ua, ub)
-	case math.Abs(ua-ub) < 1e-9:
-		p.kind, p.c, p.a0, p.a1 = pieceSquare, ua, min(ya, yb), max(ya, yb)
-	default:
-		p.kind = pieceSlanted
-		p.L = math.Hypot(ub-ua, yb-ya)
-		p.pu, p.py, p.du, p.dy = ua, ya, (ub-ua)/p.L, (yb-ya)/p.L
-		p.sTop = band(0, p.L, p.sigma, p.L/2)
-		return p
-	}
-	p.uTop, p.yTop = p.uFactor(p.uPeak()), p.yFactor(p.yPeak())
-	return p
 }
 
 // lineY is the across coordinate of site line l: the sites of side l%2
@@ -268,8 +206,11 @@ type siteRect struct {
 	bare           bool // known to hold no painted site (so its parts hold none)
 }
 
+// size returns the number of site positions of r (an upper bound of its
+// sites).
+func (r siteRect) size() int { return (r.l1 - r.l0) * (r.d1 - r.d0) }
+
 func (ck *coverageCheck) run() {
-	ck.cov.Sites = ck.painted.Count()
 	for t := range ck.surf.Terraces {
 		rows, dimers := ck.surf.RowCount(t), ck.surf.DimerCount(t)
 		// Everything anything reaches: the painted sites and the pieces'
@@ -302,14 +243,58 @@ func (ck *coverageCheck) run() {
 		fu0, fu1, fy0, fy1 := ck.factors(all, root)
 		ck.decide(root, all, fu0, fu1, fy0, fy1)
 	}
-	// A dwell on a site outside every region.
-	for site := range ck.dwelled.All() {
-		if !ck.painted.Contains(site) {
-			ck.over(site, -1, math.Inf(1), nil)
+	ck.finish()
+}
+
+// finish assembles the Coverage from the accumulators.
+func (ck *coverageCheck) finish() {
+	cov := Coverage{Sites: ck.painted.Count(), StrayLimit: ck.prof.StrayLimit, OverLimit: ck.nOver, StraySites: ck.straySite, Issues: ck.issues}
+	for i, r := range ck.regions {
+		a := ck.acc[i]
+		logP := a.logP - a.spurious
+		rc := RegionCoverage{Region: r.Name, ExpectedMissed: a.missed, ExpectedStray: a.stray + a.spurious, ExpectedSpurious: a.spurious,
+			Probability: math.Exp(logP), Log10Probability: logP / math.Ln10}
+		if r.Sites != nil {
+			rc.Sites = r.Sites.Count()
 		}
+		cov.Regions = append(cov.Regions, rc)
+		cov.ExpectedMissed += rc.ExpectedMissed
+		cov.ExpectedStray += rc.ExpectedStray
 	}
-	ck.cov.Uncovered, ck.cov.Overcleared = ck.nUnc, ck.nOver
-	ck.cov.OK = ck.nUnc == 0 && ck.nOver == 0
+	other := ck.acc[len(ck.regions)]
+	cov.ExpectedMissed += other.missed
+	cov.ExpectedStray += other.stray
+	cov.OK = ck.nOver == 0
+	for i := range ck.strokes {
+		ck.strokes[i].ExpectedMissed, ck.strokes[i].ExpectedStray = ck.missed[i], ck.stray[i]
+	}
+	slices.SortStableFunc(cov.StraySites, func(a, b StraySite) int { return -cmpFloat(a.Probability, b.Probability) })
+	ck.cov = cov
+}
+
+func cmpFloat(a, b float64) int {
+	switch {
+	case a < b:
+		return -1
+	case a > b:
+		return 1
+	}
+	return 0
+}
+
+// accOf returns the accumulator of stroke who's region (other when who
+// is no region's).
+func (ck *coverageCheck) accOf(who int32) *regionAcc {
+	if who >= 0 && ck.region[who] >= 0 {
+		return &ck.acc[ck.region[who]]
+	}
+	return &ck.acc[len(ck.regions)]
+}
+
+// accurate reports whether a quantity known to lie in [lo, hi] for each
+// of up to n sites is pinned down well enough to be summed at its middle.
+func accurate(lo, hi float64, n int) bool {
+	return hi-lo <= max(coverageRel*lo, coverageAbs/float64(max(n, 1)))
 }
 
 // factors returns each piece's along factor at the box's two along ends
@@ -331,27 +316,15 @@ func (ck *coverageCheck) factors(ps []*piece, r siteRect) (fu0, fu1, fy0, fy1 []
 	return fu0, fu1, fy0, fy1
 }
 
-// unimodal bounds a one-peaked factor over [a, b] from its values there
-// and the position and value of its peak.
-func unimodal(fa, fb, a, b, peak, top float64) (lo, hi float64) {
-	lo, hi = min(fa, fb), max(fa, fb)
-	if peak > a && peak < b {
-		hi = top
-	}
-	return lo, hi
-}
-
-// decide classifies every site of r: it bounds the dose over r's box
-// from the pieces that reach it (each parallel or square piece is a
-// product of a one-peaked factor along and one across; a slanted piece's
-// along and across distances are linear, so they are bounded by the
-// box's corners), classifies all of r at once when the bounds agree, and
-// otherwise halves r across its longer side, down to single sites dosed
-// exactly. The factor slices hold each piece's factors at r's box edges,
-// so a halving computes only those at the new edge.
+// decide sums the expectation over r: it bounds the exposure over r's
+// box from the pieces that reach it, takes all of r at once when the
+// bounds allow (see CheckCoverage), and otherwise halves r along the
+// side that leaves the bounds furthest apart, down to single sites
+// summed exactly. The factor slices hold each piece's factors at r's box
+// edges, so a halving computes only those at the new edge.
 func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []float64) {
 	if ck.grid != nil && !ck.grid.holds(ck.surf, r) {
-		return // no site of this terrace in r: nothing to cover or overclear
+		return // no site of this terrace in r
 	}
 	// Keep the pieces that reach r's box.
 	atop, ptop := len(ck.arena), len(ck.ptrs)
@@ -380,6 +353,38 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		ck.leaf(r, active)
 		return
 	}
+	if len(active) == 0 && r.bare {
+		return
+	}
+	// A range of one site line (or one dimer) is bounded at that line's
+	// across position (dimer's along position), not over the half
+	// spacings its box was split at.
+	if y := lineY(r.l0); r.l1-r.l0 == 1 && (r.y0 != y || r.y1 != y) {
+		r.y0, r.y1 = y, y
+		n := len(active)
+		top := len(ck.arena)
+		ck.grow(n)
+		fy := ck.arena[top : top+n]
+		for i, p := range active {
+			if p.kind != pieceSlanted {
+				fy[i] = p.yFactor(y)
+			}
+		}
+		fy0, fy1 = fy, fy
+	}
+	if u := lattice.DimerAlong(r.d0); r.d1-r.d0 == 1 && (r.u0 != u || r.u1 != u) {
+		r.u0, r.u1 = u, u
+		n := len(active)
+		top := len(ck.arena)
+		ck.grow(n)
+		fu := ck.arena[top : top+n]
+		for i, p := range active {
+			if p.kind != pieceSlanted {
+				fu[i] = p.uFactor(u)
+			}
+		}
+		fu0, fu1 = fu, fu
+	}
 	lo, hi := 0.0, 0.0
 	best, who := 0.0, int32(-1)
 	for i, p := range active {
@@ -387,38 +392,141 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		if p.kind != pieceSlanted {
 			ul, uh := unimodal(fu0[i], fu1[i], r.u0, r.u1, p.uPeak(), p.uTop)
 			yl, yh := unimodal(fy0[i], fy1[i], r.y0, r.y1, p.yPeak(), p.yTop)
-			plo, phi = p.ratio*ul*yl, p.ratio*uh*yh
+			plo, phi = p.amp*ul*yl, p.amp*uh*yh
 		} else {
 			plo, phi = p.slantedBounds(r)
 		}
 		lo += plo
 		hi += phi
-		if plo > best {
-			best, who = plo, p.stroke
+		if phi > best {
+			best, who = phi, p.stroke
 		}
 	}
-	switch {
-	case lo >= 1:
-		ck.classifyRect(r, active, true, lo, who)
-		return
-	case hi < 1:
-		if !r.bare {
-			ck.classifyRect(r, active, false, hi, who)
+	if !ck.dwellIn(r) {
+		if hi <= exposureNone {
+			// Nothing reaches r: its painted sites stay (if any), and
+			// nothing outside is worth counting.
+			if !r.bare {
+				ck.takePainted(r, lo, hi, who)
+			}
+			return
 		}
+		if !r.bare && !ck.paintedIn(r) {
+			r.bare = true
+		}
+		n := r.size()
+		paintedOK := r.bare || lo >= exposureSure || accurate(math.Exp(-hi), math.Exp(-lo), n)
+		strayLo, strayHi := ClearProbability(lo), ClearProbability(hi)
+		limit := ck.prof.StrayLimit
+		switch {
+		case !paintedOK:
+		case strayHi <= limit && accurate(strayLo, strayHi, n):
+			ck.take(r, lo, hi, who, active, false)
+			return
+		case strayLo > limit:
+			// Every unpainted site here is an error unless tolerated:
+			// listed one by one.
+			ck.take(r, lo, hi, who, active, true)
+			return
+		case r.bare && ck.tolerated(r, active):
+			return // every site within the allowance: it may clear
+		}
+	}
+	if r.l1-r.l0 == 1 && r.d1-r.d0 <= scanDimers {
+		ck.scan(r, active, fy0)
 		return
 	}
-	// Undecided, but nothing here matters: no painted site, and every site
-	// within the edge allowance of a region dosing it (cleared or not,
-	// such a site is tolerated). FE edges are mostly this.
-	if !r.bare && !ck.paintedIn(r) {
-		r.bare = true
+	ck.split(r, active, fu0, fu1, fy0, fy1)
+}
+
+// scanDimers is the longest range of one site line that decide sums
+// site by site rather than halving further: where the exposure changes
+// too fast for bounds to pin it down, a scan along the line is cheaper
+// than more halvings.
+const scanDimers = 48
+
+// scan sums the sites of a one-line range r one by one: each piece's
+// across factor is the same for the whole line (fy), so only its along
+// factor is computed per site.
+func (ck *coverageCheck) scan(r siteRect, active []*piece, fy []float64) {
+	l := r.l0
+	row, side := l/2, l%2
+	y := lineY(l)
+	pw := ck.painted.Row(r.t, row)
+	exist := ck.existDimers(r.t, row)
+	var allowed []r1.Interval
+	allowedFor := int32(-2)
+	for d := r.d0; d < r.d1; d++ {
+		u := lattice.DimerAlong(d)
+		x, best, who := 0.0, 0.0, int32(-1)
+		for i, p := range active {
+			var e float64
+			switch {
+			case p.kind == pieceSlanted:
+				e = p.at(u, y)
+			case p.kind == pieceDot && math.Hypot(u-p.pu, y-p.py) <= dwellSnapNM:
+				e = ck.own
+			default:
+				e = p.amp * fy[i] * p.uFactor(u)
+			}
+			x += e
+			if e > best {
+				best, who = e, p.stroke
+			}
+		}
+		site := lattice.Site{Terrace: r.t, Row: row, Dimer: d, Side: side}
+		if pw.Contains(site.Index()) {
+			ck.countPainted(site, x, who)
+			continue
+		}
+		if x <= exposureNone || !holdsDimer(exist, d) {
+			continue
+		}
+		if who != allowedFor {
+			allowed, allowedFor = ck.allowedFor(who, r.t, l), who
+		}
+		p := ClearProbability(x)
+		if inSpans(allowed, u) || (p > ck.prof.StrayLimit && ck.siteTolerated(site, who, active)) {
+			continue
+		}
+		ck.countStray(site, x, p, who)
 	}
-	if r.bare && ck.tolerated(r, active) {
-		return
+}
+
+// countPainted counts a painted site of exposure x.
+func (ck *coverageCheck) countPainted(site lattice.Site, x float64, who int32) {
+	miss := math.Exp(-x)
+	logOK := math.Log1p(-miss)
+	for _, ri := range ck.regionsOnRow(site.Terrace, site.Row) {
+		if ck.regions[ri].Sites.Row(site.Terrace, site.Row).Contains(site.Index()) {
+			ck.acc[ri].missed += miss
+			ck.acc[ri].logP += logOK
+		}
 	}
-	// Halve the side that leaves the bounds furthest apart: the gap the
-	// along factors leave against the gap the across factors leave. The
-	// halves share the new edge, so one new factor per piece serves both.
+	if who >= 0 {
+		ck.missed[who] += miss
+	}
+}
+
+// countStray counts an unpainted site beyond the allowance that clears
+// with probability p (exposure x); above the limit it is an error.
+func (ck *coverageCheck) countStray(site lattice.Site, x, p float64, who int32) {
+	acc := ck.accOf(who)
+	acc.stray += p
+	acc.logP -= x
+	if who >= 0 {
+		ck.stray[who] += p
+	}
+	if p > ck.prof.StrayLimit {
+		ck.overLimit(site, p, who)
+	}
+}
+
+// split halves r along the side that leaves the bounds furthest apart:
+// the gap the along factors leave against the gap the across factors
+// leave. The halves share the new edge, so one new factor per piece
+// serves both.
+func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 []float64) {
 	gapU, gapY := 0.0, 0.0
 	for i, p := range active {
 		if p.kind == pieceSlanted {
@@ -426,8 +534,8 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		}
 		ul, uh := min(fu0[i], fu1[i]), max(fu0[i], fu1[i])
 		yl, yh := min(fy0[i], fy1[i]), max(fy0[i], fy1[i])
-		gapU += p.ratio * (uh - ul) * yh
-		gapY += p.ratio * uh * (yh - yl)
+		gapU += p.amp * (uh - ul) * yh
+		gapY += p.amp * uh * (yh - yl)
 	}
 	a, b := r, r
 	n := len(active)
@@ -481,686 +589,233 @@ func lineSides(r siteRect, row int) lattice.Sides {
 
 // paintedIn reports whether r holds a painted site.
 func (ck *coverageCheck) paintedIn(r siteRect) bool {
-	// A row at a time: both sides' bits where r holds both lines.
 	for row := r.l0 / 2; row <= (r.l1-1)/2; row++ {
-		w := ck.painted.Row(r.t, row)
-		if w == nil {
-			continue
-		}
-		if w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
+		if w := ck.painted.Row(r.t, row); w != nil && w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
 			return true
 		}
 	}
 	return false
 }
 
-// tolerated reports whether every site of r lies within the edge
-// allowance of one region whose strokes dose r.
-func (ck *coverageCheck) tolerated(r siteRect, active []*piece) bool {
-	var tried [4]int
-	n := 0
-next:
-	for _, p := range active {
-		ri := ck.region[p.stroke]
-		if ri < 0 {
-			continue
+// dwellIn reports whether r holds a dwelled site (whose exposure only a
+// single-site sum gets right).
+func (ck *coverageCheck) dwellIn(r siteRect) bool {
+	if ck.dwelled.IsEmpty() {
+		return false
+	}
+	for row := r.l0 / 2; row <= (r.l1-1)/2; row++ {
+		if w := ck.dwelled.Row(r.t, row); w != nil && w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
+			return true
 		}
-		for _, x := range tried[:n] {
-			if x == ri {
-				continue next
+	}
+	return false
+}
+
+// countSide returns the number of sites of one side in [d0, d1) of a
+// row's bits.
+func countSide(w lattice.RowBits, side, d0, d1 int) int {
+	from, to := max(2*d0+side, 0), min(2*(d1-1)+side+1, len(w)*64)
+	if from >= to {
+		return 0
+	}
+	mask := uint64(0x5555555555555555) << uint(side)
+	c := 0
+	for k := from >> 6; k <= (to-1)>>6; k++ {
+		m := mask
+		if k == from>>6 {
+			m &= ^uint64(0) << (uint(from) & 63)
+		}
+		if k == (to-1)>>6 {
+			m &= ^uint64(0) >> (63 - (uint(to-1) & 63))
+		}
+		c += bits.OnesCount64(w[k] & m)
+	}
+	return c
+}
+
+// regionsOnRow returns the regions with sites on row row of terrace t.
+func (ck *coverageCheck) regionsOnRow(t, row int) []int32 {
+	if ck.rowRegs[t] == nil {
+		ck.rowRegs[t] = make([][]int32, ck.surf.RowCount(t))
+		for ri, reg := range ck.regions {
+			if reg.Sites == nil {
+				continue
+			}
+			for rr := 0; rr < reg.Sites.RowCount(t) && rr < len(ck.rowRegs[t]); rr++ {
+				if w := reg.Sites.Row(t, rr); w.Any(0, len(w)*64, lattice.BothSides) {
+					ck.rowRegs[t][rr] = append(ck.rowRegs[t][rr], int32(ri))
+				}
 			}
 		}
-		if n == len(tried) {
-			return false
+	}
+	if row >= len(ck.rowRegs[t]) {
+		return nil
+	}
+	return ck.rowRegs[t][row]
+}
+
+// takePainted counts r's painted sites at the exposure lo..hi (at its
+// middle): missed sites and the regions' log-probability.
+func (ck *coverageCheck) takePainted(r siteRect, lo, hi float64, who int32) {
+	x := (lo + hi) / 2
+	miss := math.Exp(-x)
+	if lo >= exposureSure {
+		return
+	}
+	logOK := math.Log1p(-miss)
+	total := 0
+	for l := r.l0; l < r.l1; l++ {
+		row, side := l/2, l%2
+		for _, ri := range ck.regionsOnRow(r.t, row) {
+			n := countSide(ck.regions[ri].Sites.Row(r.t, row), side, r.d0, r.d1)
+			if n == 0 {
+				continue
+			}
+			a := &ck.acc[ri]
+			a.missed += float64(n) * miss
+			a.logP += float64(n) * logOK
 		}
-		tried[n] = ri
-		n++
-		allow := ck.prof.AP.EdgeAllowanceNM
-		if ck.strokes[p.stroke].Mode == FE {
-			allow = ck.prof.FE.EdgeAllowanceNM
+		total += countSide(ck.painted.Row(r.t, row), side, r.d0, r.d1)
+	}
+	if who >= 0 {
+		ck.missed[who] += float64(total) * miss
+	}
+}
+
+// take counts every site of r at the exposure lo..hi: painted sites by
+// takePainted, then the unpainted sites that exist and lie beyond the
+// edge allowance of the region of stroke who as stray. With each, every
+// such site is looked at alone (it may clear above the limit: an error).
+func (ck *coverageCheck) take(r siteRect, lo, hi float64, who int32, active []*piece, each bool) {
+	if !r.bare {
+		ck.takePainted(r, lo, hi, who)
+	}
+	if hi <= exposureNone {
+		return
+	}
+	x := (lo + hi) / 2
+	p := ClearProbability(x)
+	acc := ck.accOf(who)
+	for l := r.l0; l < r.l1; l++ {
+		row, side := l/2, l%2
+		pw := ck.painted.Row(r.t, row)
+		allowed := ck.allowedFor(who, r.t, l)
+		for _, dr := range ck.existDimers(r.t, row) {
+			d0, d1 := max(dr.Lo, r.d0), min(dr.Hi, r.d1)
+			if d0 >= d1 {
+				continue
+			}
+			unpainted := (d1 - d0) - countSide(pw, side, d0, d1)
+			if unpainted == 0 {
+				continue
+			}
+			tolerated := 0
+			for _, sp := range allowed {
+				dd := lattice.DimersIn(sp)
+				if e0, e1 := max(dd.Lo, d0), min(dd.Hi, d1); e0 < e1 {
+					tolerated += (e1 - e0) - countSide(pw, side, e0, e1)
+				}
+			}
+			if tolerated == unpainted {
+				continue
+			}
+			if !each {
+				n := float64(unpainted - tolerated)
+				acc.stray += n * p
+				acc.logP -= n * x
+				if who >= 0 {
+					ck.stray[who] += n * p
+				}
+				continue
+			}
+			from, to := 2*d0+side, 2*(d1-1)+side+1
+			for i := range pw.Gaps(from, to, lattice.SideOf(side)) {
+				site := lattice.SiteAt(r.t, row, i)
+				if !inSpans(allowed, lattice.DimerAlong(site.Dimer)) {
+					ck.site(site, active)
+				}
+			}
 		}
-		if allow <= 0 {
-			continue
-		}
-		u0, u1 := lattice.DimerAlong(r.d0), lattice.DimerAlong(r.d1-1)
-		ok := true
-		for row := r.l0 / 2; row <= (r.l1-1)/2 && ok; row++ {
-			sp := ck.allowedCached(ri, r.t, row, allow)
-			i := firstReaching(sp, u1)
-			ok = i < len(sp) && sp[i].Lo-1e-9 <= u0
-		}
-		if ok {
-			return true
-		}
 	}
-	return false
 }
 
-// slantedBounds bounds a slanted piece's dose share over r's box from
-// its corners: along and across distances are linear in the box.
-func (p *piece) slantedBounds(r siteRect) (lo, hi float64) {
-	// Along and across distances are linear in (u, y): their extremes
-	// over the box are at the corners each coefficient's sign picks.
-	ua, ub := r.u0-p.pu, r.u1-p.pu
-	ya, yb := r.y0-p.py, r.y1-p.py
-	if p.du < 0 {
-		ua, ub = ub, ua
-	}
-	smin, smax := ua*p.du, ub*p.du
-	if p.dy >= 0 {
-		smin, smax = smin+ya*p.dy, smax+yb*p.dy
-	} else {
-		smin, smax = smin+yb*p.dy, smax+ya*p.dy
-	}
-	// x = (y-py)·du - (u-pu)·dy
-	xa, xb := r.y0-p.py, r.y1-p.py
-	if p.du < 0 {
-		xa, xb = xb, xa
-	}
-	xmin, xmax := xa*p.du, xb*p.du
-	if p.dy >= 0 {
-		xmin, xmax = xmin-(r.u1-p.pu)*p.dy, xmax-(r.u0-p.pu)*p.dy
-	} else {
-		xmin, xmax = xmin-(r.u0-p.pu)*p.dy, xmax-(r.u1-p.pu)*p.dy
-	}
-	dfar := max(math.Abs(xmin), math.Abs(xmax))
-	dnear := 0.0
-	if xmin > 0 || xmax < 0 {
-		dnear = min(math.Abs(xmin), math.Abs(xmax))
-	}
-	// The band at the ends of the along range, bracketed from tables
-	// (the band is one-peaked, so its least value over the range is at an
-	// end and its greatest at an end or the peak).
-	loMin, hiMin := bandBounds(p.L, p.sigma, smin)
-	loMax, hiMax := bandBounds(p.L, p.sigma, smax)
-	fl, fh := min(loMin, loMax), max(hiMin, hiMax)
-	if p.L/2 > smin && p.L/2 < smax {
-		fh = p.sTop
-	}
-	gl, _ := gaussBounds(dfar / p.sigma)
-	_, gh := gaussBounds(dnear / p.sigma)
-	return p.ratio * gl * fl, p.ratio * gh * fh
-}
-
-// Tables for the bounds of slanted pieces: Φ(x) and exp(-x²/2) at steps
-// of 1/boundSteps, so that a bound costs two lookups instead of erfc and
-// exp. Both functions are monotone between table points, so the values at
-// the points on either side bracket the value between them; the bounds
-// stay rigorous and are looser by at most one step's change.
-const boundSteps = 128
-
-var phiTable, gaussTable = boundTables()
-
-func boundTables() (phi, gauss []float64) {
-	phi = make([]float64, 16*boundSteps+1) // x from -8 to 8
-	for k := range phi {
-		phi[k] = normalCDF(-8 + float64(k)/boundSteps)
-	}
-	gauss = make([]float64, 40*boundSteps+1) // x from 0 to 40
-	for k := range gauss {
-		x := float64(k) / boundSteps
-		gauss[k] = math.Exp(-x * x / 2)
-	}
-	return phi, gauss
-}
-
-// bracket returns table indices k, k+1 whose points x0 + k/boundSteps lie
-// at or below and at or above x, for x inside the table.
-func bracket(x, x0 float64, n int) (int, int) {
-	k := min(int((x-x0)*boundSteps), n-1)
-	if x0+float64(k)/boundSteps > x {
-		k--
-	}
-	if k+1 < n && x0+float64(k+1)/boundSteps <= x {
-		k++
-	}
-	k = max(k, 0)
-	if x0+float64(k)/boundSteps == x {
-		return k, k
-	}
-	return k, min(k+1, n-1)
-}
-
-// phiBounds returns lo <= Φ(x) <= hi.
-func phiBounds(x float64) (lo, hi float64) {
-	t := phiTable
-	switch {
-	case x <= -8:
-		return 0, t[0]
-	case x >= 8:
-		return t[len(t)-1], 1
-	}
-	a, b := bracket(x, -8, len(t))
-	return t[a], t[b]
-}
-
-// gaussBounds returns lo <= exp(-x²/2) <= hi for x >= 0.
-func gaussBounds(x float64) (lo, hi float64) {
-	t := gaussTable
-	if x >= 40 {
-		return 0, t[len(t)-1]
-	}
-	a, b := bracket(x, 0, len(t))
-	return t[b], t[a]
-}
-
-// bandBounds returns lo <= band(0, L, σ, s) <= hi: the share Φ((L-s)/σ) -
-// Φ(-s/σ).
-func bandBounds(L, sigma, s float64) (lo, hi float64) {
-	bl, bh := phiBounds((L - s) / sigma)
-	al, ah := phiBounds(-s / sigma)
-	return max(0, bl-ah), min(1, bh-al)
-}
-
-// leaf doses the one site of r exactly.
+// leaf sums the exposure of r's one site exactly.
 func (ck *coverageCheck) leaf(r siteRect, active []*piece) {
-	row, side := r.l0/2, r.l0%2
-	site := lattice.Site{Terrace: r.t, Row: row, Dimer: r.d0, Side: side}
-	u, y := lattice.DimerAlong(r.d0), lineY(r.l0)
-	sum, best, who := 0.0, 0.0, int32(-1)
+	ck.site(lattice.Site{Terrace: r.t, Row: r.l0 / 2, Dimer: r.d0, Side: r.l0 % 2}, active)
+}
+
+// exposureAt returns a site's exposure summed exactly over the active
+// pieces, and the stroke that gives it the most.
+func (ck *coverageCheck) exposureAt(site lattice.Site, active []*piece) (x float64, who int32) {
+	u, y := lattice.DimerAlong(site.Dimer), lineY(2*site.Row+site.Side)
+	best := 0.0
+	who = -1
 	for _, p := range active {
-		e := p.at(u, y)
-		sum += e
+		var e float64
+		if p.kind == pieceDot && math.Hypot(u-p.pu, y-p.py) <= dwellSnapNM {
+			e = ck.own // the dwell is parked on this site
+		} else {
+			e = p.at(u, y)
+		}
+		x += e
 		if e > best {
 			best, who = e, p.stroke
 		}
 	}
-	ck.classify(site, ck.painted.Row(r.t, row), ck.existDimers(r.t, row), sum, who, active)
+	return x, who
 }
 
-// classifyRect classifies every site of r as cleared or not, line by
-// line (see classifyRange).
-func (ck *coverageCheck) classifyRect(r siteRect, active []*piece, cleared bool, e float64, who int32) {
-	if cleared && (!ck.unpaintedIn(r) || ck.tolerated(r, active)) {
-		return // painted sites clear, and the rest (if any) are within the allowance
-	}
-	for l := r.l0; l < r.l1; l++ {
-		row := rowLine{t: r.t, r: l / 2, side: l % 2, pw: ck.painted.Row(r.t, l/2)}
-		ck.classifyRange(&row, active, r.d0, r.d1, cleared, e, who)
-	}
-}
-
-// rowLine is the line of one side's sites of one row.
-type rowLine struct {
-	t, r, side int
-	pw         lattice.RowBits // the row's painted sites
-}
-
-// classifyRange classifies every site of dimers [d0, d1) of a row line
-// as cleared or not: a painted site not cleared is uncovered, an existing
-// unpainted site cleared may be overcleared. Only those sites are
-// visited, a word at a time; for a cleared range only the dimers that
-// exist on the row's terrace (existDimers) are looked at.
-func (ck *coverageCheck) classifyRange(row *rowLine, active []*piece, d0, d1 int, cleared bool, e float64, who int32) {
-	if !cleared {
-		from, to := 2*d0+row.side, 2*(d1-1)+row.side+1
-		if !row.pw.Any(from, to, lattice.SideOf(row.side)) {
-			return // nothing painted here to be uncovered
-		}
-		ck.classifyWords(row, active, d0, d1, false, e, who, nil)
+// site counts one site at its exact exposure: a painted site as missed
+// or not, an unpainted one that exists as an edge site, a stray one, or,
+// above the stray limit, an error.
+func (ck *coverageCheck) site(site lattice.Site, active []*piece) {
+	x, who := ck.exposureAt(site, active)
+	if ck.painted.Row(site.Terrace, site.Row).Contains(site.Index()) {
+		ck.countPainted(site, x, who)
 		return
 	}
-	exist := ck.existDimers(row.t, row.r)
-	for _, dr := range exist {
-		if lo, hi := max(dr.Lo, d0), min(dr.Hi, d1); lo < hi {
-			ck.classifyWords(row, active, lo, hi, true, e, who, exist)
-		}
-	}
-}
-
-// unpaintedIn reports whether r holds an existing site that is not
-// painted.
-func (ck *coverageCheck) unpaintedIn(r siteRect) bool {
-	for row := r.l0 / 2; row <= (r.l1-1)/2; row++ {
-		sides := lineSides(r, row)
-		w := ck.painted.Row(r.t, row)
-		for _, dr := range ck.existDimers(r.t, row) {
-			if lo, hi := max(dr.Lo, r.d0), min(dr.Hi, r.d1); lo < hi && !w.All(2*lo, 2*hi, sides) {
-				return true
-			}
-		}
-	}
-	return false
-}
-
-// classifyWords classifies the painted sites (not cleared) or the
-// unpainted sites (cleared) of dimers [d0, d1) of a row line, a word at a
-// time; for cleared ones those dimers all exist (exist is the row's
-// existDimers).
-func (ck *coverageCheck) classifyWords(row *rowLine, active []*piece, d0, d1 int, cleared bool, e float64, who int32, exist []lattice.DimerRange) {
-	from, to := 2*d0+row.side, 2*(d1-1)+row.side+1 // in-row indices [from, to)
-	sides := lattice.SideOf(row.side)
-	if !cleared {
-		// Painted sites: uncovered when not cleared.
-		for i := range row.pw.Sites(from, to, sides) {
-			if exist == nil {
-				exist = ck.existDimers(row.t, row.r)
-			}
-			ck.classify(lattice.SiteAt(row.t, row.r, i), row.pw, exist, e, who, active)
-		}
+	if x <= exposureNone || !holdsDimer(ck.existDimers(site.Terrace, site.Row), site.Dimer) {
 		return
 	}
-	// Unpainted sites: overcleared candidates. They are usually within
-	// the edge allowance of the region dosing them most: look that up
-	// once for the row.
-	var allowed []r1.Interval
-	haveAllowed := false
-	for i := range row.pw.Gaps(from, to, sides) {
-		site := lattice.SiteAt(row.t, row.r, i)
-		if !haveAllowed {
-			allowed, haveAllowed = ck.allowedFor(who, row.t, row.r), true
-		}
-		if inSpans(allowed, lattice.DimerAlong(site.Dimer)) {
-			continue
-		}
-		ck.classify(site, row.pw, exist, e, who, active)
-	}
-}
-
-// allowedFor returns the allowed spans (see allowedSpans) on row r of
-// terrace t for the region of stroke si, within its mode's edge
-// allowance; nil when there is none.
-func (ck *coverageCheck) allowedFor(si int32, t, r int) []r1.Interval {
-	if si < 0 || ck.region[si] < 0 {
-		return nil
-	}
-	allow := ck.prof.AP.EdgeAllowanceNM
-	if ck.strokes[si].Mode == FE {
-		allow = ck.prof.FE.EdgeAllowanceNM
-	}
-	if allow <= 0 {
-		return nil
-	}
-	ri := ck.region[si]
-	return ck.allowedCached(ri, t, r, allow)
-}
-
-func (ck *coverageCheck) classify(site lattice.Site, pw lattice.RowBits, exist []lattice.DimerRange, e float64, who int32, active []*piece) {
-	painted := pw.Contains(site.Index())
-	cleared := e >= 1
-	if painted {
-		if !cleared && !ck.dwelled.Contains(site) {
-			ck.nUnc++
-			if ck.nUnc <= coverageExamples {
-				ck.cov.Issues = append(ck.cov.Issues, fmt.Sprintf("uncovered: site %v of region %q at %s gets %.2f of the clearing dose",
-					site, ck.regionOf(site), fmtPoint(ck.surf.Position(site)), ck.doseAt(site, active)))
-			}
-		}
+	if ck.siteTolerated(site, who, active) {
 		return
 	}
-	if !cleared || !holdsDimer(exist, site.Dimer) {
-		return
-	}
-	ck.over(site, who, e, active)
+	ck.countStray(site, x, ClearProbability(x), who)
 }
 
-// doseAt returns the site's dose share summed exactly over the pieces
-// (those that reach the range it was classified in): the value an issue
-// quotes, where the classification itself may have used a bound.
-func (ck *coverageCheck) doseAt(site lattice.Site, active []*piece) float64 {
-	u, y := lattice.DimerAlong(site.Dimer), lineY(2*site.Row+site.Side)
-	sum := 0.0
-	for _, p := range active {
-		sum += p.at(u, y)
-	}
-	return sum
-}
-
-// over records a cleared site outside every region unless a region
-// whose strokes dose it lies within that mode's edge allowance.
-func (ck *coverageCheck) over(site lattice.Site, who int32, e float64, active []*piece) {
-	var tried [8]int
-	nTried := 0
-	try := func(si int32) bool {
-		ri := ck.region[si]
-		if ri < 0 {
-			return false
-		}
-		for _, x := range tried[:nTried] {
-			if x == ri {
-				return false
-			}
-		}
-		if nTried < len(tried) {
-			tried[nTried] = ri
-			nTried++
-		}
-		allow := ck.prof.AP.EdgeAllowanceNM
-		if ck.strokes[si].Mode == FE {
-			allow = ck.prof.FE.EdgeAllowanceNM
-		}
-		return allow > 0 && ck.near(ri, site, allow)
-	}
-	if who >= 0 && try(who) {
-		return
-	}
-	for _, c := range active {
-		if try(c.stroke) {
-			return
-		}
-	}
-	name := "?"
-	if who >= 0 && ck.region[who] >= 0 {
-		name = ck.regions[ck.region[who]].Name
-	}
+// overLimit records a site outside every region, beyond the allowance,
+// that clears above the stray limit.
+func (ck *coverageCheck) overLimit(site lattice.Site, p float64, who int32) {
 	ck.nOver++
+	name, id := "", -1
+	if who >= 0 {
+		id = int(who)
+		if ck.region[who] >= 0 {
+			name = ck.regions[ck.region[who]].Name
+		}
+	}
+	at := ck.surf.Position(site)
+	if len(ck.straySite) < MaxStraySites {
+		ck.straySite = append(ck.straySite, StraySite{Site: site, At: at, Probability: p, Region: name, Stroke: id})
+	}
 	if ck.nOver <= coverageExamples {
-		what := "a dwell"
-		if !math.IsInf(e, 1) {
-			what = fmt.Sprintf("%.2f of the clearing dose", ck.doseAt(site, active))
-		}
-		ck.cov.Issues = append(ck.cov.Issues, fmt.Sprintf("overcleared: site %v at %s, outside every region and beyond the edge allowance of region %q, gets %s",
-			site, fmtPoint(ck.surf.Position(site)), name, what))
+		ck.issues = append(ck.issues, fmt.Sprintf("site %v at %s, outside every region, clears with %.2g %% (limit %.2g %%): %s",
+			site, fmtPoint(at), 100*p, 100*ck.prof.StrayLimit, ck.advice(who)))
 	}
 }
 
-// rowSpans caches one sorted span list per row, computed on first use.
-type rowSpans struct {
-	spans [][]r1.Interval
-	done  []bool
-}
-
-func newRowSpans(rows int) rowSpans {
-	return rowSpans{spans: make([][]r1.Interval, rows), done: make([]bool, rows)}
-}
-
-// rowDimers caches the dimer ranges of each row that exist, computed on
-// first use.
-type rowDimers struct {
-	dimers [][]lattice.DimerRange
-	done   []bool
-}
-
-// keep copies sp into the check's span storage, which cached lists share
-// (a few allocations in all instead of one per row).
-func (ck *coverageCheck) keep(sp []r1.Interval) []r1.Interval {
-	if len(sp) > cap(ck.slab)-len(ck.slab) {
-		ck.slab = make([]r1.Interval, 0, max(4096, len(sp)))
+// advice says which stroke reaches a stray site and what to change.
+func (ck *coverageCheck) advice(who int32) string {
+	if who < 0 {
+		return "no stroke is known to reach it"
 	}
-	start := len(ck.slab)
-	ck.slab = append(ck.slab, sp...)
-	return ck.slab[start:len(ck.slab):len(ck.slab)]
-}
-
-// allowedCached returns allowedSpans(ri, t, r, dist), computed once per
-// row and region (dist is the same for every call with one region's
-// mode).
-func (ck *coverageCheck) allowedCached(ri, t, r int, dist float64) []r1.Interval {
-	rows := &ck.allowed[ri*len(ck.surf.Terraces)+t]
-	if rows.spans == nil {
-		*rows = newRowSpans(ck.surf.RowCount(t))
+	st := &ck.strokes[who]
+	what := fmt.Sprintf("stroke %d of region %q (%s %s)", who, st.Region, st.Mode, st.Kind)
+	switch {
+	case st.Kind == StrokeDwell:
+		return what + " reaches it: a dwell's footprint (dwell.sigma_nm) clears its neighbours; keep them inside the region or leave them a dimer away"
+	case st.Mode == FE:
+		return what + fmt.Sprintf(" reaches it beyond the %g nm FE edge allowance: keep it farther from the region, or write the region's edge in AP (hybrid)", ck.prof.FE.EdgeAllowanceNM)
 	}
-	if r >= len(rows.spans) {
-		return ck.keep(ck.allowedSpans(ri, t, r, dist))
-	}
-	if !rows.done[r] {
-		rows.spans[r], rows.done[r] = ck.keep(ck.allowedSpans(ri, t, r, dist)), true
-	}
-	return rows.spans[r]
-}
-
-// near reports whether region ri has a site within dist of the site q
-// (between site positions). On q's own terrace it looks the answer up
-// in the row's allowed spans, built once per row and region: the along
-// intervals within dist of a region site on the rows within dist. Other
-// terraces are searched site by site.
-func (ck *coverageCheck) near(ri int, q lattice.Site, dist float64) bool {
-	set := ck.regions[ri].Sites
-	if set == nil {
-		return false
-	}
-	sp := ck.allowedCached(ri, q.Terrace, q.Row, dist)
-	if inSpans(sp, lattice.DimerAlong(q.Dimer)) {
-		return true
-	}
-	if len(ck.surf.Terraces) == 1 {
-		return false
-	}
-	p := ck.surf.Position(q)
-	for t := 0; t < set.TerraceCount() && t < len(ck.surf.Terraces); t++ {
-		if t != q.Terrace && ck.nearOn(set, t, p, dist) {
-			return true
-		}
-	}
-	return false
-}
-
-// allowedSpans returns the along intervals of row r of terrace t whose
-// dimer centres lie within dist of a site of region ri on the rows of t
-// within dist (the across distance counted between row centres less
-// twice HOffset, a slight overestimate of nearness by at most HOffset).
-func (ck *coverageCheck) allowedSpans(ri, t, r int, dist float64) []r1.Interval {
-	rows := ck.regionRows(ri, t)
-	// Each row's extents are sorted and disjoint: merge them into the
-	// union row by row (a row with every other site painted has a run per
-	// site, so sorting them all would cost more).
-	acc, next := ck.spanBuf[:0], ck.spanBuf2[:0]
-	k := int(math.Ceil((dist + 2*lattice.HOffset) / lattice.RowSpacing))
-	for rr := max(0, r-k); rr <= r+k && rr < len(rows); rr++ {
-		dy := max(0, lattice.RowAcross(max(rr-r, r-rr))-2*lattice.HOffset)
-		if dy > dist || len(rows[rr]) == 0 {
-			continue
-		}
-		next = unionWidened(next[:0], acc, rows[rr], math.Sqrt(dist*dist-dy*dy))
-		acc, next = next, acc
-	}
-	ck.spanBuf, ck.spanBuf2 = acc, next
-	return acc
-}
-
-// unionWidened appends to dst the union of the sorted, disjoint spans a
-// and the sorted spans b each widened by h at both ends, joining spans
-// that meet, and returns dst.
-func unionWidened(dst, a, b []r1.Interval, h float64) []r1.Interval {
-	add := func(s r1.Interval) {
-		if n := len(dst); n > 0 && s.Lo <= dst[n-1].Hi {
-			dst[n-1].Hi = max(dst[n-1].Hi, s.Hi)
-			return
-		}
-		dst = append(dst, s)
-	}
-	i, j := 0, 0
-	for i < len(a) || j < len(b) {
-		if j == len(b) || (i < len(a) && a[i].Lo <= b[j].Lo-h) {
-			add(a[i])
-			i++
-		} else {
-			add(r1.Interval{Lo: b[j].Lo - h, Hi: b[j].Hi + h})
-			j++
-		}
-	}
-	return dst
-}
-
-// regionRows returns, per row of terrace t, the along extents (dimer
-// centres, nm from the terrace offset) of region ri's runs, computed once.
-func (ck *coverageCheck) regionRows(ri, t int) [][]r1.Interval {
-	e := &ck.rows[ri*len(ck.surf.Terraces)+t]
-	if e.done {
-		return e.rows
-	}
-	// The rows' extents share one slice, about one run per row (slices
-	// of it stay valid when it grows).
-	set := ck.regions[ri].Sites
-	rows := make([][]r1.Interval, set.RowCount(t))
-	all := make([]r1.Interval, 0, len(rows))
-	for r := range rows {
-		start := len(all)
-		all = appendRunExtents(all, set.Row(t, r))
-		if len(all) > start {
-			rows[r] = all[start:len(all):len(all)]
-		}
-	}
-	e.rows, e.done = rows, true
-	return rows
-}
-
-// regionExtents caches regionRows for one region and terrace.
-type regionExtents struct {
-	rows [][]r1.Interval
-	done bool
-}
-
-// appendRunExtents appends, for each maximal run of a row's sites, the
-// along extent of its dimer centres, from its first site's dimer to its
-// last site's, and returns dst.
-func appendRunExtents(dst []r1.Interval, w lattice.RowBits) []r1.Interval {
-	for start, end := range w.Runs() {
-		dst = append(dst, r1.Interval{Lo: lattice.DimerAlong(start / 2), Hi: lattice.DimerAlong((end - 1) / 2)})
-	}
-	return dst
-}
-
-// nearOn reports whether set has a site on terrace t within dist of p.
-func (ck *coverageCheck) nearOn(set *lattice.SiteSet, t int, p r2.Point, dist float64) bool {
-	al, ac := ck.surf.Frame(t).ToLocal(p)
-	rowLo := max(0, int(math.Floor((ac-dist-lattice.HOffset)/lattice.RowSpacing)))
-	rowHi := min(set.RowCount(t)-1, int(math.Ceil((ac+dist+lattice.HOffset)/lattice.RowSpacing)))
-	for r := rowLo; r <= rowHi; r++ {
-		w := set.Row(t, r)
-		if w == nil {
-			continue
-		}
-		dy := max(0, math.Abs(ac-lattice.RowAcross(r))-lattice.HOffset)
-		if dy > dist {
-			continue
-		}
-		h := math.Sqrt(dist*dist - dy*dy)
-		from, to := lattice.DimersIn(r1.Interval{Lo: al - h, Hi: al + h}).Sites()
-		if w.Any(from, to, lattice.BothSides) {
-			return true
-		}
-	}
-	return false
-}
-
-func (ck *coverageCheck) regionOf(site lattice.Site) string {
-	for _, r := range ck.regions {
-		if r.Sites != nil && r.Sites.Contains(site) {
-			return r.Name
-		}
-	}
-	return "?"
-}
-
-// existDimers returns the dimer ranges of row r of terrace t that exist
-// (Surface.RowDimers), computed once per row.
-func (ck *coverageCheck) existDimers(t, r int) []lattice.DimerRange {
-	e := &ck.exist[t]
-	if !e.done[r] {
-		e.dimers[r], e.done[r] = ck.surf.RowDimers(nil, t, r), true
-	}
-	return e.dimers[r]
-}
-
-// holdsDimer reports whether dimer d lies in one of the sorted, disjoint
-// ranges.
-func holdsDimer(rs []lattice.DimerRange, d int) bool {
-	i, _ := slices.BinarySearchFunc(rs, d, func(r lattice.DimerRange, d int) int { return cmp.Compare(r.Hi-1, d) })
-	return i < len(rs) && rs[i].Lo <= d
-}
-
-// inSpans reports whether x lies in one of the sorted, disjoint spans
-// (to within 1e-9 nm).
-func inSpans(sp []r1.Interval, x float64) bool {
-	i := firstReaching(sp, x)
-	return i < len(sp) && x >= sp[i].Lo-1e-9
-}
-
-// firstReaching returns the first of the sorted, disjoint spans whose end
-// reaches x (to within 1e-9 nm), or len(sp).
-func firstReaching(sp []r1.Interval, x float64) int { return lattice.SearchIntervals(sp, x-1e-9) }
-
-func fmtPoint(p r2.Point) string { return fmt.Sprintf("(%.2f, %.2f) nm", p.X, p.Y) }
-
-// terraceGrid marks, in cells of terraceCellNM, where each terrace of a
-// many-terrace surface lies (with a one-cell margin), so that a stroke
-// piece is only rasterised onto the rows of terraces it comes near.
-type terraceGrid struct {
-	nx, ny int
-	cells  [][]bool // [terrace][cell]
-}
-
-const terraceCellNM = 20.0
-
-func newTerraceGrid(surf *lattice.Surface) *terraceGrid {
-	g := &terraceGrid{nx: int(math.Ceil(surf.Width()/terraceCellNM)) + 1, ny: int(math.Ceil(surf.Height()/terraceCellNM)) + 1}
-	g.cells = make([][]bool, len(surf.Terraces))
-	raw := make([][]bool, len(surf.Terraces))
-	for t := range raw {
-		raw[t] = make([]bool, g.nx*g.ny)
-		g.cells[t] = make([]bool, g.nx*g.ny)
-	}
-	// Each cell is sampled at its corners, edge midpoints and centre:
-	// points every half cell, each shared by the cells that meet there.
-	sx, sy := 2*g.nx+1, 2*g.ny+1
-	at := make([]int, sx*sy)
-	for j := range sy {
-		for i := range sx {
-			p := r2.Point{X: min(float64(i)*(terraceCellNM/2), surf.Width()), Y: min(float64(j)*(terraceCellNM/2), surf.Height())}
-			at[j*sx+i] = surf.TerraceAt(p)
-		}
-	}
-	for j := 0; j < g.ny; j++ {
-		for i := 0; i < g.nx; i++ {
-			for dj := range 3 {
-				for di := range 3 {
-					if t := at[(2*j+dj)*sx+2*i+di]; t >= 0 {
-						raw[t][j*g.nx+i] = true
-					}
-				}
-			}
-		}
-	}
-	for t := range raw {
-		for j := 0; j < g.ny; j++ {
-			for i := 0; i < g.nx; i++ {
-				if !raw[t][j*g.nx+i] {
-					continue
-				}
-				for dj := -1; dj <= 1; dj++ {
-					for di := -1; di <= 1; di++ {
-						if ii, jj := i+di, j+dj; ii >= 0 && jj >= 0 && ii < g.nx && jj < g.ny {
-							g.cells[t][jj*g.nx+ii] = true
-						}
-					}
-				}
-			}
-		}
-	}
-	return g
-}
-
-// reaches reports whether the piece a→b comes near terrace t: some point
-// of it, sampled every half cell, lies in a cell marked for t (cells
-// carry a one-cell margin of 20 nm, more than any footprint's reach).
-func (g *terraceGrid) reaches(t int, a, b r2.Point) bool {
-	L := b.Sub(a).Norm()
-	steps := max(1, int(math.Ceil(L/(terraceCellNM/2))))
-	for k := 0; k <= steps; k++ {
-		p := a.Add(b.Sub(a).Mul(float64(k) / float64(steps)))
-		if g.marked(t, int(math.Floor(p.X/terraceCellNM)), int(math.Floor(p.Y/terraceCellNM))) {
-			return true
-		}
-	}
-	return false
-}
-
-func (g *terraceGrid) marked(t, i, j int) bool {
-	return i >= 0 && j >= 0 && i < g.nx && j < g.ny && g.cells[t][j*g.nx+i]
-}
-
-// holds reports whether the box of r may hold a site of its terrace.
-func (g *terraceGrid) holds(surf *lattice.Surface, r siteRect) bool {
-	box := surf.Frame(r.t).FieldRect(r1.Interval{Lo: r.u0, Hi: r.u1}, r1.Interval{Lo: r.y0, Hi: r.y1})
-	i0, i1 := int(math.Floor(box.X.Lo/terraceCellNM)), int(math.Floor(box.X.Hi/terraceCellNM))
-	j0, j1 := int(math.Floor(box.Y.Lo/terraceCellNM)), int(math.Floor(box.Y.Hi/terraceCellNM))
-	for j := max(j0, 0); j <= j1 && j < g.ny; j++ {
-		for i := max(i0, 0); i <= i1 && i < g.nx; i++ {
-			if g.cells[r.t][j*g.nx+i] {
-				return true
-			}
-		}
-	}
-	return false
+	return what + " reaches it: an AP line's footprint (ap.sigma_nm) clears the next site along or across the row; keep that site inside the region, end the region on whole dimers, or lower ap.line_dose_c_per_cm"
 }

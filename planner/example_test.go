@@ -38,7 +38,7 @@ func ExampleBuild() {
 	// sensor-island: ap
 	// source-lead: ap
 	// breakdown sums to the total: true
-	// coverage OK: true, P(all windows good) = 0.6111
+	// coverage OK: true, P(all windows good) = 0.5364
 }
 
 func ExampleCompare() {

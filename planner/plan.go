@@ -2,6 +2,8 @@ package planner
 
 import (
 	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice"
 )
 
 // Caution is printed by the command line, shown in the GUI's Help and
@@ -134,6 +136,13 @@ type Stroke struct {
 	// Window is the index into Plan.Windows of the dopant window this
 	// stroke opens, or -1.
 	Window int `json:"window"`
+	// ExpectedMissed is the expected number of sites this stroke was the
+	// main writer of (it gives them the most exposure) that keep their H;
+	// ExpectedStray the expected number of sites outside every region,
+	// beyond the edge allowance, it clears (with the spurious background
+	// along an AP line). From the coverage check.
+	ExpectedMissed float64 `json:"expected_missed"`
+	ExpectedStray  float64 `json:"expected_stray"`
 }
 
 // Segment is a run of strokes written after one registration, short
@@ -262,13 +271,62 @@ type Yield struct {
 	DevicesPerPerfect float64 `json:"devices_per_perfect"`
 }
 
-// Coverage is the result of the independent coverage check: every
-// painted site is cleared by some stroke, and no stroke clears sites
-// outside its region beyond the model's edge allowance.
+// Coverage is the result of the independent coverage check: from the
+// strokes' geometry alone and the exposure model (see ExposureModel),
+// the expected number of each region's sites left (missed) and of sites
+// outside every region cleared (stray), and every site outside the
+// regions, beyond their edge allowance, that clears more likely than the
+// profile's stray limit: each such site is an error.
 type Coverage struct {
-	OK          bool     `json:"ok"`
-	Sites       int      `json:"sites"`       // painted sites to clear
-	Uncovered   int      `json:"uncovered"`   // painted sites no stroke clears
-	Overcleared int      `json:"overcleared"` // sites outside any region cleared beyond the allowance
-	Issues      []string `json:"issues,omitempty"`
+	// OK reports whether no site outside every region clears with a
+	// probability above StrayLimit.
+	OK         bool    `json:"ok"`
+	Sites      int     `json:"sites"`       // painted sites to clear
+	StrayLimit float64 `json:"stray_limit"` // the profile's limit
+	// ExpectedMissed and ExpectedStray are the sums over the regions.
+	ExpectedMissed float64          `json:"expected_missed"`
+	ExpectedStray  float64          `json:"expected_stray"`
+	Regions        []RegionCoverage `json:"regions"`
+	// OverLimit is the number of sites outside every region that clear
+	// with a probability above StrayLimit; StraySites lists them (the
+	// first MaxStraySites), each an error.
+	OverLimit  int         `json:"over_limit"`
+	StraySites []StraySite `json:"stray_sites,omitempty"`
+	// Issues describes the first few errors in words.
+	Issues []string `json:"issues,omitempty"`
+}
+
+// MaxStraySites caps Coverage.StraySites.
+const MaxStraySites = 10000
+
+// RegionCoverage is the coverage expectation of one region.
+type RegionCoverage struct {
+	Region string `json:"region"`
+	Sites  int    `json:"sites"`
+	// ExpectedMissed is the expected number of the region's sites left
+	// with their H.
+	ExpectedMissed float64 `json:"expected_missed"`
+	// ExpectedStray is the expected number of sites outside every region
+	// that the region's strokes clear beyond its edge allowance, with the
+	// spurious dangling bonds along its AP lines (ExpectedSpurious, the
+	// profile's background rate).
+	ExpectedStray    float64 `json:"expected_stray"`
+	ExpectedSpurious float64 `json:"expected_spurious"`
+	// Probability is the probability that the region is written without
+	// error: every site cleared, no stray site and no spurious dangling
+	// bond; Log10Probability its log10, finite where it underflows.
+	Probability      float64 `json:"probability"`
+	Log10Probability float64 `json:"log10_probability"`
+}
+
+// StraySite is a site outside every region, beyond the edge allowance,
+// that clears with a probability above the stray limit.
+type StraySite struct {
+	Site        lattice.Site `json:"site"`
+	At          r2.Point     `json:"at_nm"`
+	Probability float64      `json:"probability"`
+	// Region and Stroke name the region and the stroke that give the
+	// site most of its exposure (Stroke −1 when none is known).
+	Region string `json:"region"`
+	Stroke int    `json:"stroke"`
 }

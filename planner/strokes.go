@@ -2,7 +2,9 @@ package planner
 
 import (
 	"math"
+	"slices"
 
+	"github.com/golang/geo/r1"
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
@@ -65,14 +67,18 @@ func apExtension(prof *Profile, n int) float64 {
 
 // feInset returns how far the FE fill keeps its paths inside the region's
 // outermost sites: far enough that every site beyond the edge allowance
-// clears with less than the stray limit, counting the neighbouring raster
-// lines. Along the outermost line (side) the lines further in add their
-// tails; beyond the line ends (end) every line of the raster ends there,
-// so their exposures add across the raster.
+// clears with less than half the stray limit, counting the neighbouring
+// raster lines (the half is a margin for corners and round ends, where
+// lines and turns come together in ways this one-dimensional sum does
+// not follow). Along the outermost line (side) the lines further in add
+// their tails; beyond the line ends (end) the serpentine's turn runs
+// along the ends like a line, and every raster line ending there adds
+// its tail. feStrokes keeps a disk of the larger radius around every
+// point of its lines inside the region.
 func feInset(prof *Profile) (end, side float64) {
 	l := prof.Line(FE)
 	pitch := prof.FEPitch()
-	limit := exposureFor(prof.StrayLimit)
+	limit := exposureFor(prof.StrayLimit / 2)
 	if !(l.Peak > 0) || !(pitch > 0) {
 		return 0, 0
 	}
@@ -112,7 +118,7 @@ func feInset(prof *Profile) (end, side float64) {
 		return hi
 	}
 	dSide := reach(sideAt)
-	dEnd := reach(func(s float64) float64 { return across * normalCDF(-s/l.SigmaNM) })
+	dEnd := reach(func(s float64) float64 { return l.At(s) + across*normalCDF(-s/l.SigmaNM) })
 	allow := prof.FE.EdgeAllowanceNM
 	return math.Max(0, dEnd-allow), math.Max(0, dSide-allow)
 }
@@ -228,7 +234,9 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 	pitch := g.prof.FEPitch()
 	end, side := g.feEnd, g.feSide
 	var out []Stroke
-	all := g.segsOf(set) // in terrace order
+	whole := g.segsOf(set) // in terrace order
+	all := whole
+	radius := math.Max(end, side)
 	for len(all) > 0 {
 		t := all[0].run.Terrace
 		n := 1
@@ -238,26 +246,73 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 		segs := all[:n]
 		all = all[n:]
 		rows := g.surf.Terraces[t].Rows
+		// This terrace's part of the region, and the whole region, in
+		// the terrace's frame (across coordinates of both).
 		cmin, cmax := math.Inf(1), math.Inf(-1)
 		for _, s := range segs {
 			_, c := rows.Split(s.a)
 			cmin, cmax = math.Min(cmin, c-lattice.HOffset), math.Max(cmax, c+lattice.HOffset)
 		}
+		ix := newChordIndex(segs, rows)
+		wix := ix
+		if len(segs) < len(whole) {
+			wix = newChordIndex(whole, rows)
+		}
+		chords := func(ix *chordIndex, c float64) []r1.Interval {
+			return slices.Clone(ix.chords(c, lattice.RowSpacing/2, 2*lattice.RowSpacing, false))
+		}
+		// The outermost lines keep the side inset from the region's edge;
+		// where this terrace's part ends at a step inside the region (the
+		// region goes on just beyond its outermost row) they need not.
+		goesOn := func(c, beyond float64) bool {
+			return len(lattice.IntersectIntervals(nil, chords(ix, c), chords(wix, beyond))) > 0
+		}
+		insetLo, insetHi := side, side
+		if goesOn(cmin+lattice.HOffset, cmin-radius/2) {
+			insetLo = 0
+		}
+		if goesOn(cmax-lattice.HOffset, cmax+radius/2) {
+			insetHi = 0
+		}
 		var cs []float64
-		if cmax-cmin <= 2*side {
-			cs = []float64{(cmin + cmax) / 2}
+		if span := cmax - cmin - insetLo - insetHi; span <= 0 {
+			cs = []float64{(cmin + insetLo + cmax - insetHi) / 2}
 		} else {
-			n := int(math.Ceil((cmax-cmin-2*side)/pitch-1e-9)) + 1
-			step := (cmax - cmin - 2*side) / float64(max(n-1, 1))
+			n := int(math.Ceil(span/pitch-1e-9)) + 1
+			step := span / float64(max(n-1, 1))
 			for k := 0; k < n; k++ {
-				cs = append(cs, cmin+side+float64(k)*step)
+				cs = append(cs, cmin+insetLo+float64(k)*step)
 			}
 		}
-		ix := newChordIndex(segs, rows)
+		// A line runs where a disk of the inset's radius around it lies
+		// within the region (all terraces): the region's chords on the
+		// rows within the radius, each shortened by what the disk
+		// reaches along it, intersected, and then within this terrace's
+		// chord. So a line stops the inset short of the region's edge
+		// whether the edge is square to it, slanted or curved, and runs up
+		// to a step inside the region, where the other terrace's lines
+		// take over.
 		lineAt := func(c float64) []feLine {
+			eroded := chords(ix, c)
+			for k := 0; float64(k)*lattice.RowSpacing/2 <= radius+1e-9 && len(eroded) > 0; k++ {
+				dc := float64(k) * lattice.RowSpacing / 2
+				h := math.Sqrt(math.Max(0, radius*radius-dc*dc))
+				for _, sgn := range []float64{-1, 1} {
+					if k == 0 && sgn > 0 {
+						continue
+					}
+					var shrunk []r1.Interval
+					for _, iv := range chords(wix, c+sgn*dc) {
+						if iv.Hi-h > iv.Lo+h {
+							shrunk = append(shrunk, r1.Interval{Lo: iv.Lo + h, Hi: iv.Hi - h})
+						}
+					}
+					eroded = lattice.IntersectIntervals(nil, eroded, shrunk)
+				}
+			}
 			var ls []feLine
-			for _, iv := range ix.chords(c, lattice.RowSpacing/2, 2*lattice.RowSpacing, false) {
-				lo, hi := iv.Lo+end, iv.Hi-end
+			for _, iv := range eroded {
+				lo, hi := iv.Lo, iv.Hi
 				if hi-lo < m.SigmaNM {
 					mid := iv.Center()
 					lo, hi = mid-m.SigmaNM/2, mid+m.SigmaNM/2
@@ -284,7 +339,6 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 			}
 			prev = cur
 		}
-		slantInset(lines, end)
 		for _, chain := range serpentines(lines) {
 			path := make([]r2.Point, 0, 2*len(chain))
 			for i, ln := range chain {
@@ -322,7 +376,8 @@ func (g *strokeGen) feStroke(region string, kind StrokeKind, path []r2.Point) St
 // slantInset moves line ends in where the region's edge slants across
 // the raster: the inset is meant perpendicular to the edge, so along the
 // line it grows by sqrt(1+slope²), with the slope taken from the
-// neighbouring lines' ends (capped at 4).
+// neighbouring lines' ends (capped at 4); a line the inset would turn
+// inside out shrinks to its middle.
 func slantInset(lines [][]feLine, inset float64) {
 	orig := make([][]feLine, len(lines))
 	for k := range lines {
@@ -347,9 +402,13 @@ func slantInset(lines [][]feLine, inset float64) {
 			}
 			lo := x.lo + inset*(math.Sqrt(1+math.Min(sLo, 4)*math.Min(sLo, 4))-1)
 			hi := x.hi - inset*(math.Sqrt(1+math.Min(sHi, 4)*math.Min(sHi, 4))-1)
-			if hi > lo {
-				ln.lo, ln.hi = lo, hi
+			if hi <= lo {
+				// The edge is nearly parallel to the line: what the inset
+				// leaves of it is its middle.
+				lo = (x.lo + x.hi) / 2
+				hi = lo
 			}
+			ln.lo, ln.hi = lo, hi
 		}
 	}
 }
