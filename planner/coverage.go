@@ -20,14 +20,14 @@ type CoverageRegion struct {
 
 // Accuracy of the coverage expectation. A range of sites is taken at
 // once when the probability its bounds allow for each of its sites
-// varies by less than coverageRel of itself, or by less than coverageAbs
-// over the whole range (expected sites); below exposureNone a site
-// outside the regions is not counted, above exposureSure a painted site
-// is taken as cleared.
+// varies by less than coverageRel of itself or coverageAbs (so a sum over
+// 10⁶ sites is off by at most one site); below exposureNone (the
+// exposure a single piece is neglected at) a site outside the regions is
+// not counted, above exposureSure a painted site is taken as cleared.
 const (
-	coverageRel  = 0.01
+	coverageRel  = 0.02
 	coverageAbs  = 1e-6
-	exposureNone = 1e-12
+	exposureNone = 1e-6
 	exposureSure = 36 // exp(−36) = 2·10⁻¹⁶
 )
 
@@ -292,9 +292,10 @@ func (ck *coverageCheck) accOf(who int32) *regionAcc {
 }
 
 // accurate reports whether a quantity known to lie in [lo, hi] for each
-// of up to n sites is pinned down well enough to be summed at its middle.
+// of up to n sites is pinned down well enough to be summed at its middle:
+// to coverageRel of itself, or to coverageAbs a site.
 func accurate(lo, hi float64, n int) bool {
-	return hi-lo <= max(coverageRel*lo, coverageAbs/float64(max(n, 1)))
+	return hi-lo <= max(coverageRel*lo, coverageAbs)
 }
 
 // factors returns each piece's along factor at the box's two along ends
@@ -387,6 +388,9 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 	}
 	lo, hi := 0.0, 0.0
 	best, who := 0.0, int32(-1)
+	ltop := len(ck.arena)
+	ck.grow(len(active))
+	low := ck.arena[ltop:]
 	for i, p := range active {
 		var plo, phi float64
 		if p.kind != pieceSlanted {
@@ -396,6 +400,7 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		} else {
 			plo, phi = p.slantedBounds(r)
 		}
+		low[i] = plo
 		lo += plo
 		hi += phi
 		if phi > best {
@@ -414,6 +419,15 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		if !r.bare && !ck.paintedIn(r) {
 			r.bare = true
 		}
+		// Every site within the allowance: it may clear. Where one may
+		// clear above the limit, its tolerance must be certain.
+		var strict []float64
+		if ClearProbability(hi) > ck.prof.StrayLimit {
+			strict = low
+		}
+		if r.bare && ck.tolerated(r, active, strict) {
+			return
+		}
 		n := r.size()
 		paintedOK := r.bare || lo >= exposureSure || accurate(math.Exp(-hi), math.Exp(-lo), n)
 		strayLo, strayHi := ClearProbability(lo), ClearProbability(hi)
@@ -428,38 +442,75 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 			// listed one by one.
 			ck.take(r, lo, hi, who, active, true)
 			return
-		case r.bare && ck.tolerated(r, active):
-			return // every site within the allowance: it may clear
 		}
 	}
-	if r.l1-r.l0 == 1 && r.d1-r.d0 <= scanDimers {
+	if (r.l1-r.l0 == 1 && r.d1-r.d0 <= scanDimers) || r.size() <= scanSites {
 		ck.scan(r, active, fy0)
 		return
 	}
 	ck.split(r, active, fu0, fu1, fy0, fy1)
 }
 
-// scanDimers is the longest range of one site line that decide sums
-// site by site rather than halving further: where the exposure changes
-// too fast for bounds to pin it down, a scan along the line is cheaper
-// than more halvings.
-const scanDimers = 48
+// scanDimers is the longest range of one site line, scanSites the most
+// sites of any range, that decide sums site by site rather than halving
+// further: where the exposure changes too fast for bounds to pin it
+// down, a scan is cheaper than more halvings.
+const (
+	scanDimers = 48
+	scanSites  = 64
+)
 
-// scan sums the sites of a one-line range r one by one: each piece's
-// across factor is the same for the whole line (fy), so only its along
-// factor is computed per site.
+// scan sums the sites of r one by one, a site line at a time: each
+// piece's across factor is the same along the line (fy for r's first
+// line, computed afresh for the others), so only its along factor is
+// computed per site.
 func (ck *coverageCheck) scan(r siteRect, active []*piece, fy []float64) {
-	l := r.l0
+	if r.l1-r.l0 > 1 {
+		fy = make([]float64, len(active))
+	}
+	for l := r.l0; l < r.l1; l++ {
+		if r.l1-r.l0 > 1 {
+			y := lineY(l)
+			for i, p := range active {
+				if p.kind != pieceSlanted {
+					fy[i] = p.yFactor(y)
+				}
+			}
+		}
+		ck.scanLine(r.t, l, r.d0, r.d1, active, fy)
+	}
+}
+
+// scanLine sums dimers [d0, d1) of site line l of terrace t (see scan).
+func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fy []float64) {
 	row, side := l/2, l%2
 	y := lineY(l)
-	pw := ck.painted.Row(r.t, row)
-	exist := ck.existDimers(r.t, row)
+	pw := ck.painted.Row(t, row)
+	exist := ck.existDimers(t, row)
+	// The pieces that reach this line, with their across factor folded
+	// into their amplitude.
+	top := len(ck.ptrs)
+	atop := len(ck.arena)
+	defer func() { ck.ptrs, ck.arena = ck.ptrs[:top], ck.arena[:atop] }()
+	for i, p := range active {
+		if p.kind == pieceSlanted || p.kind == pieceDot || p.amp*fy[i] > exposureNeglect {
+			ck.ptrs = append(ck.ptrs, p)
+			ck.arena = append(ck.arena, p.amp*fy[i])
+		}
+	}
+	line, amp := ck.ptrs[top:], ck.arena[atop:]
+	// The regions painted on this row, for the missed sites.
+	regs := ck.regionsOnRow(t, row)
+	var regBits [8]lattice.RowBits
+	for k, ri := range regs[:min(len(regs), len(regBits))] {
+		regBits[k] = ck.regions[ri].Sites.Row(t, row)
+	}
 	var allowed []r1.Interval
 	allowedFor := int32(-2)
-	for d := r.d0; d < r.d1; d++ {
+	for d := d0; d < d1; d++ {
 		u := lattice.DimerAlong(d)
 		x, best, who := 0.0, 0.0, int32(-1)
-		for i, p := range active {
+		for i, p := range line {
 			var e float64
 			switch {
 			case p.kind == pieceSlanted:
@@ -467,23 +518,38 @@ func (ck *coverageCheck) scan(r siteRect, active []*piece, fy []float64) {
 			case p.kind == pieceDot && math.Hypot(u-p.pu, y-p.py) <= dwellSnapNM:
 				e = ck.own
 			default:
-				e = p.amp * fy[i] * p.uFactor(u)
+				e = amp[i] * p.uFactorAt(d)
 			}
 			x += e
 			if e > best {
 				best, who = e, p.stroke
 			}
 		}
-		site := lattice.Site{Terrace: r.t, Row: row, Dimer: d, Side: side}
-		if pw.Contains(site.Index()) {
-			ck.countPainted(site, x, who)
+		site := lattice.Site{Terrace: t, Row: row, Dimer: d, Side: side}
+		i := site.Index()
+		if pw.Contains(i) {
+			if x >= exposureSure {
+				continue
+			}
+			miss := expNeg(x)
+			logOK := logNotMissed(x, miss)
+			for k, ri := range regs {
+				if k < len(regBits) && !regBits[k].Contains(i) || k >= len(regBits) && !ck.regions[ri].Sites.Contains(site) {
+					continue
+				}
+				ck.acc[ri].missed += miss
+				ck.acc[ri].logP += logOK
+			}
+			if who >= 0 {
+				ck.missed[who] += miss
+			}
 			continue
 		}
 		if x <= exposureNone || !holdsDimer(exist, d) {
 			continue
 		}
 		if who != allowedFor {
-			allowed, allowedFor = ck.allowedFor(who, r.t, l), who
+			allowed, allowedFor = ck.allowedFor(who, t, l), who
 		}
 		p := ClearProbability(x)
 		if inSpans(allowed, u) || (p > ck.prof.StrayLimit && ck.siteTolerated(site, who, active)) {
@@ -493,10 +559,50 @@ func (ck *coverageCheck) scan(r siteRect, active []*piece, fy []float64) {
 	}
 }
 
+// expNeg returns exp(−x) for 0 ≤ x ≤ exposureSure by cubic Hermite
+// interpolation in a table at steps of 1/expSteps (relative error below
+// 10⁻⁹), math.Exp elsewhere.
+func expNeg(x float64) float64 {
+	t := x * expSteps
+	if !(t >= 0 && t < float64(len(expValue)-1)) {
+		return math.Exp(-x)
+	}
+	i := int(t)
+	f := t - float64(i)
+	f2 := f * f
+	f3 := f2 * f
+	v0, v1 := expValue[i], expValue[i+1]
+	// d/dt exp(−t/expSteps) = −exp(·)/expSteps.
+	return (2*f3-3*f2+1)*v0 - (f3-2*f2+f)*v0/expSteps + (-2*f3+3*f2)*v1 - (f3-f2)*v1/expSteps
+}
+
+const expSteps = 64
+
+var expValue = func() []float64 {
+	v := make([]float64, exposureSure*expSteps+1)
+	for k := range v {
+		v[k] = math.Exp(-float64(k) / expSteps)
+	}
+	return v
+}()
+
+// logNotMissed returns log(1 − miss) for miss = exp(−x): the series below
+// 10⁻⁴, log1p above.
+func logNotMissed(x, miss float64) float64 {
+	if miss < 1e-4 {
+		return -miss - miss*miss/2
+	}
+	return math.Log1p(-miss)
+}
+
+
 // countPainted counts a painted site of exposure x.
 func (ck *coverageCheck) countPainted(site lattice.Site, x float64, who int32) {
-	miss := math.Exp(-x)
-	logOK := math.Log1p(-miss)
+	if x >= exposureSure {
+		return
+	}
+	miss := expNeg(x)
+	logOK := logNotMissed(x, miss)
 	for _, ri := range ck.regionsOnRow(site.Terrace, site.Row) {
 		if ck.regions[ri].Sites.Row(site.Terrace, site.Row).Contains(site.Index()) {
 			ck.acc[ri].missed += miss

@@ -16,12 +16,18 @@ import (
 // within its mode's EdgeAllowanceNM of a region whose strokes dose it.
 
 // tolerated reports whether every site of r lies within the edge
-// allowance of one region whose strokes dose r.
-func (ck *coverageCheck) tolerated(r siteRect, active []*piece) bool {
+// allowance of one region whose strokes dose r: with low (each active
+// piece's least exposure over r), whose pieces dose every site of r with
+// at least exposureNeglect, as siteTolerated asks of a site; without,
+// whose pieces reach r's box.
+func (ck *coverageCheck) tolerated(r siteRect, active []*piece, low []float64) bool {
 	var tried [4]int
 	n := 0
 next:
-	for _, p := range active {
+	for i, p := range active {
+		if low != nil && low[i] < exposureNeglect {
+			continue // it may not dose every site of r
+		}
 		ri := ck.region[p.stroke]
 		if ri < 0 {
 			continue
@@ -70,8 +76,9 @@ func (ck *coverageCheck) allowedFor(si int32, t, l int) []r1.Interval {
 }
 
 // siteTolerated reports whether the site lies within the edge allowance
-// of a region whose strokes dose it: the region of stroke who (the one
-// that doses it most) first, then those of the other active pieces.
+// of a region whose strokes dose it (a piece of theirs gives it at least
+// exposureNeglect): the region of stroke who (the one that doses it
+// most) first, then those of the other active pieces.
 func (ck *coverageCheck) siteTolerated(site lattice.Site, who int32, active []*piece) bool {
 	var tried [8]int
 	nTried := 0
@@ -98,8 +105,9 @@ func (ck *coverageCheck) siteTolerated(site lattice.Site, who int32, active []*p
 	if try(who) {
 		return true
 	}
+	u, y := lattice.DimerAlong(site.Dimer), lineY(2*site.Row+site.Side)
 	for _, c := range active {
-		if try(c.stroke) {
+		if c.at(u, y) >= exposureNeglect && try(c.stroke) {
 			return true
 		}
 	}

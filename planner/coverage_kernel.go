@@ -33,6 +33,66 @@ type piece struct {
 	// (uPeak, yPeak), and sTop a slanted piece's band at its middle,
 	// computed once.
 	uTop, yTop, sTop float64
+	// cache holds the along factor at the dimers where it is neither 0
+	// nor 1 (within 8σ of an end of a parallel piece, of the centre of a
+	// square piece or dot), filled on first use: a piece is met on every
+	// site line it reaches.
+	cache [2]alongCache
+}
+
+// alongCache is a piece's along factor at dimers [d0, d0+len(v)).
+type alongCache struct {
+	d0     int
+	v      []float64
+	filled bool
+}
+
+// alongWindows returns the dimer windows in which the piece's along
+// factor is neither 0 nor 1, and the factor outside them (at dimers
+// between the windows, for a parallel piece, and beyond them).
+func (p *piece) alongWindows() (w [2][2]int, n int) {
+	span := func(lo, hi float64) [2]int {
+		return [2]int{int(math.Floor(lo / lattice.DimerPitch)), int(math.Ceil(hi/lattice.DimerPitch)) + 1}
+	}
+	r := 8 * p.sigma
+	switch p.kind {
+	case pieceParallel:
+		if p.a1-p.a0 <= 2*r {
+			return [2][2]int{span(p.a0-r, p.a1+r)}, 1
+		}
+		return [2][2]int{span(p.a0-r, p.a0+r), span(p.a1-r, p.a1+r)}, 2
+	case pieceSquare:
+		return [2][2]int{span(p.c-r, p.c+r)}, 1
+	}
+	return [2][2]int{span(p.pu-r, p.pu+r)}, 1
+}
+
+// uFactorAt returns uFactor at dimer d's centre (not for slanted
+// pieces), from the cache.
+func (p *piece) uFactorAt(d int) float64 {
+	if p.cache[0].v == nil && !p.cache[0].filled {
+		w, n := p.alongWindows()
+		for k := range n {
+			p.cache[k] = alongCache{d0: w[k][0], v: make([]float64, w[k][1]-w[k][0])}
+		}
+		p.cache[0].filled = true
+	}
+	for k := range p.cache {
+		c := &p.cache[k]
+		if i := d - c.d0; i >= 0 && i < len(c.v) {
+			if c.v[i] == 0 {
+				// 0 marks "not yet": a factor that is truly 0 is met
+				// again, at the cost of computing it again.
+				c.v[i] = p.uFactor(lattice.DimerAlong(d))
+			}
+			return c.v[i]
+		}
+	}
+	// Outside the windows: 1 between a parallel piece's two ends, else 0.
+	if p.kind == pieceParallel && len(p.cache[1].v) > 0 && d >= p.cache[0].d0+len(p.cache[0].v) && d < p.cache[1].d0 {
+		return 1
+	}
+	return 0
 }
 
 const (
@@ -44,21 +104,89 @@ const (
 
 // band is the unimodal factor Φ((hi-x)/σ) - Φ((lo-x)/σ): the share of a
 // Gaussian of width σ centred at x that falls on [lo, hi]. Far beyond an
-// end (8σ) that end's term is 0 or 1 to within 1e-15 and is skipped.
+// end (8σ) that end's term is 0 or 1 to within 1e-15 and is skipped; to
+// the right of both ends the upper tail is taken as Φ(−a) − Φ(−b), which
+// keeps its digits.
 func band(lo, hi, sigma, x float64) float64 {
 	a, b := (lo-x)/sigma, (hi-x)/sigma
 	switch {
 	case a < -8 && b > 8:
 		return 1
 	case a < -8:
-		return normalCDF(b)
+		return fastPhi(b)
 	case b > 8:
-		return 1 - normalCDF(a)
+		return fastPhi(-a)
+	case a > 0:
+		return fastPhi(-a) - fastPhi(-b)
 	}
-	return normalCDF(b) - normalCDF(a)
+	return fastPhi(b) - fastPhi(a)
 }
 
-func gauss(d, sigma float64) float64 { x := d / sigma; return math.Exp(-x * x / 2) }
+// fastPhi returns Φ(x) by cubic Hermite interpolation in a table of Φ
+// and its density at steps of 1/phiSteps on [−8, 8] (absolute error below
+// 10⁻¹⁰), and from erfc beyond: the coverage check evaluates Φ tens of
+// millions of times.
+func fastPhi(x float64) float64 {
+	t := (x + 8) * phiSteps
+	if !(t >= 0 && t < float64(len(phiValue)-1)) {
+		return normalCDF(x)
+	}
+	i := int(t)
+	f := t - float64(i)
+	f2 := f * f
+	f3 := f2 * f
+	return (2*f3-3*f2+1)*phiValue[i] + (f3-2*f2+f)*phiSlope[i] + (-2*f3+3*f2)*phiValue[i+1] + (f3-f2)*phiSlope[i+1]
+}
+
+const phiSteps = 64
+
+// phiValue holds Φ at the table's points, phiSlope its derivative per
+// table step (the density over phiSteps).
+var phiValue, phiSlope = func() (v, d []float64) {
+	n := 16*phiSteps + 1
+	v, d = make([]float64, n), make([]float64, n)
+	for k := range v {
+		x := -8 + float64(k)/phiSteps
+		v[k] = normalCDF(x)
+		d[k] = math.Exp(-x*x/2) / math.Sqrt(2*math.Pi) / phiSteps
+	}
+	return v, d
+}()
+
+// gauss returns exp(−d²/2σ²), by cubic Hermite interpolation in a table
+// at steps of 1/gaussSteps of d/σ up to gaussMax (absolute error below
+// 10⁻⁹), 0 beyond.
+func gauss(d, sigma float64) float64 {
+	t := math.Abs(d/sigma) * gaussSteps
+	if !(t < float64(len(gaussValue)-1)) {
+		if t != t { // NaN
+			return t
+		}
+		return 0
+	}
+	i := int(t)
+	f := t - float64(i)
+	f2 := f * f
+	f3 := f2 * f
+	return (2*f3-3*f2+1)*gaussValue[i] + (f3-2*f2+f)*gaussSlope[i] + (-2*f3+3*f2)*gaussValue[i+1] + (f3-f2)*gaussSlope[i+1]
+}
+
+// gaussMax is where gauss is taken as 0: exp(−40²/2) underflows.
+const (
+	gaussSteps = 64
+	gaussMax   = 40
+)
+
+var gaussValue, gaussSlope = func() (v, d []float64) {
+	n := gaussMax*gaussSteps + 1
+	v, d = make([]float64, n), make([]float64, n)
+	for k := range v {
+		x := float64(k) / gaussSteps
+		v[k] = math.Exp(-x * x / 2)
+		d[k] = -x * v[k] / gaussSteps
+	}
+	return v, d
+}()
 
 // uFactor and yFactor split a parallel, square or dot piece's exposure
 // into a factor of the along position and one of the across position.

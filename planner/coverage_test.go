@@ -91,14 +91,26 @@ func compareBrute(t *testing.T, what string, cov Coverage, strokes []Stroke, br 
 	if math.Abs(stray-br.stray) > 0.02*br.stray+0.05 {
 		t.Errorf("%s: expected stray %.6g, brute force %.6g", what, stray, br.stray)
 	}
-	if cov.OverLimit != br.overLimit {
-		t.Errorf("%s: %d sites over the limit, brute force %d", what, cov.OverLimit, br.overLimit)
-	}
+	// The same sites over the limit, but for those within 0.1 % of it,
+	// where the tails the check leaves out (below exposureNeglect a
+	// piece) may tip the balance.
+	listed := map[lattice.Site]float64{}
 	for _, ss := range cov.StraySites {
-		if p, ok := br.overSites[ss.Site]; !ok || math.Abs(p-ss.Probability) > 1e-6 {
-			t.Errorf("%s: stray site %v at %.4g, brute force %.4g (listed %v)", what, ss.Site, ss.Probability, p, ok)
-			break
+		listed[ss.Site] = ss.Probability
+	}
+	limit := DefaultProfile().StrayLimit
+	for site, p := range br.overSites {
+		if q, ok := listed[site]; (!ok && p > limit*1.001) || (ok && math.Abs(p-q) > 1e-6) {
+			t.Errorf("%s: site %v clears with %.6g by brute force, the check lists %v (%.6g)", what, site, p, ok, q)
 		}
+	}
+	for site, q := range listed {
+		if _, ok := br.overSites[site]; !ok && q > limit*1.001 {
+			t.Errorf("%s: the check lists site %v at %.6g, brute force does not", what, site, q)
+		}
+	}
+	if math.Abs(float64(cov.OverLimit-br.overLimit)) > 0.05*float64(br.overLimit)+1 {
+		t.Errorf("%s: %d sites over the limit, brute force %d", what, cov.OverLimit, br.overLimit)
 	}
 	// Every expected site is some stroke's.
 	var sm, sst float64
@@ -374,12 +386,45 @@ func TestBoundTablesBracket(t *testing.T) {
 			t.Fatalf("exp(-x²/2) at %g = %g outside [%g, %g]", ax, gauss(ax, 1), lo, hi)
 		}
 		L, sigma, s := 30*rng.Float64(), 0.2+3*rng.Float64(), 40*(rng.Float64()-0.3)
-		if lo, hi := bandBounds(L, sigma, s); !(lo <= band(0, L, sigma, s) && band(0, L, sigma, s) <= hi) {
+		if lo, hi := bandBounds(L, sigma, s); !(lo-1e-10 <= band(0, L, sigma, s) && band(0, L, sigma, s) <= hi+1e-10) { // band uses fastPhi: within 10⁻¹⁰
 			t.Fatalf("band(0, %g, %g, %g) = %g outside [%g, %g]", L, sigma, s, band(0, L, sigma, s), lo, hi)
 		}
 	}
 	// On a table point the bracket is the point.
 	if lo, hi := phiBounds(0); lo != 0.5 || hi != 0.5 {
 		t.Errorf("Φ(0) in [%g, %g]", lo, hi)
+	}
+}
+
+// fastPhi agrees with Φ from math.Erfc to 10⁻¹⁰.
+func TestFastPhi(t *testing.T) {
+	rng := rand.New(rand.NewPCG(8, 80))
+	for range 100000 {
+		x := 20 * (rng.Float64() - 0.5)
+		if got, want := fastPhi(x), normalCDF(x); math.Abs(got-want) > 1e-10 {
+			t.Fatalf("fastPhi(%v) = %v, Φ = %v", x, got, want)
+		}
+	}
+}
+
+// gauss agrees with math.Exp to 10⁻⁹.
+func TestFastGauss(t *testing.T) {
+	rng := rand.New(rand.NewPCG(9, 90))
+	for range 100000 {
+		d, sigma := 30*(rng.Float64()-0.5), 0.05+3*rng.Float64()
+		if got, want := gauss(d, sigma), math.Exp(-d*d/(2*sigma*sigma)); math.Abs(got-want) > 1e-9 {
+			t.Fatalf("gauss(%v, %v) = %v, exp gives %v", d, sigma, got, want)
+		}
+	}
+}
+
+// expNeg agrees with math.Exp to a relative 10⁻⁹.
+func TestExpNeg(t *testing.T) {
+	rng := rand.New(rand.NewPCG(10, 100))
+	for range 100000 {
+		x := 40 * rng.Float64()
+		if got, want := expNeg(x), math.Exp(-x); math.Abs(got-want) > 1e-9*want {
+			t.Fatalf("expNeg(%v) = %v, math.Exp gives %v", x, got, want)
+		}
 	}
 }

@@ -7,15 +7,19 @@ import (
 )
 
 // exposureIndex sums the exposure (see ExposureModel) of every stroke at
-// any point of the field, for the few sites the planner asks about one by
-// one (the sites of dopant windows and their neighbours). Strokes are
-// kept as straight pieces and dwell points in a uniform grid of coarse
-// cells, each listing the pieces whose reach (where a piece's exposure
-// falls below exposureNeglect) touches it.
+// the points the planner asks about one by one (the sites of dopant
+// windows and their neighbours). Strokes are kept as straight pieces and
+// dwell points in a uniform grid of small cells, each listing the pieces
+// whose reach (where a piece's exposure falls below exposureNeglect)
+// touches it; only cells near the points of interest (given when the
+// index is made) are filled, so strokes far from them cost a look at a
+// coarse mask.
 type exposureIndex struct {
 	cell   float64
 	nx, ny int
-	cells  [][]int32 // per cell: indices into segs (≥ 0) or ^dots (< 0)
+	cells  map[int32][]int32 // per wanted cell: indices into segs (≥ 0) or ^dots (< 0)
+	want   []bool            // per coarse cell: holds a point of interest
+	cnx    int               // coarse cells across
 	segs   []expSeg
 	dots   []expDot
 	own    float64 // exposure of a dwell's own site
@@ -36,17 +40,34 @@ type expDot struct {
 }
 
 // exposureNeglect is the exposure of one piece below which it is left out
-// of a sum: 10⁻⁹ clears a site with probability 10⁻⁹.
-const exposureNeglect = 1e-9
+// of a sum: 10⁻⁶ clears a site with probability 10⁻⁶.
+const exposureNeglect = 1e-6
 
-// indexCellNM is the side of the index's cells.
-const indexCellNM = 32.0
+// indexCellNM is the side of the index's cells, indexCoarse how many of
+// them a coarse cell of the mask holds along each axis.
+const (
+	indexCellNM = 2.0
+	indexCoarse = 16
+)
 
-func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64) *exposureIndex {
-	ix := &exposureIndex{cell: indexCellNM, prof: prof, own: prof.dwellOwnExposure()}
+// newExposureIndex indexes the strokes around the points of interest
+// (within reach of any of them, up to indexCellNM·indexCoarse nm).
+func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64, points []r2.Point) *exposureIndex {
+	ix := &exposureIndex{cell: indexCellNM, prof: prof, own: prof.dwellOwnExposure(), cells: map[int32][]int32{}}
 	ix.nx = max(1, int(math.Ceil(fieldW/ix.cell)))
 	ix.ny = max(1, int(math.Ceil(fieldH/ix.cell)))
-	ix.cells = make([][]int32, ix.nx*ix.ny)
+	ix.cnx = ix.nx/indexCoarse + 1
+	ix.want = make([]bool, ix.cnx*(ix.ny/indexCoarse+1))
+	for _, p := range points {
+		i, j := ix.col(p.X)/indexCoarse, ix.row(p.Y)/indexCoarse
+		for dj := -1; dj <= 1; dj++ {
+			for di := -1; di <= 1; di++ {
+				if ii, jj := i+di, j+dj; ii >= 0 && jj >= 0 && ii < ix.cnx && jj*ix.cnx+ii < len(ix.want) {
+					ix.want[jj*ix.cnx+ii] = true
+				}
+			}
+		}
+	}
 	lines := map[WriteMode]LineModel{AP: prof.Line(AP), FE: prof.Line(FE)}
 	dotReach := prof.Dwell.SigmaNM * math.Sqrt(2*math.Log(prof.Dwell.Completion/exposureNeglect))
 	for si := range strokes {
@@ -77,14 +98,32 @@ func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64) *
 	return ix
 }
 
-// insert lists item in every cell that the box of a→b widened by reach
-// touches.
+// insert lists item in every wanted cell within reach of the piece a→b:
+// the cells of its box widened by reach, in wanted coarse cells, and
+// within reach of the line through a and b.
 func (ix *exposureIndex) insert(a, b r2.Point, reach float64, item int32) {
 	i0, i1 := ix.col(math.Min(a.X, b.X)-reach), ix.col(math.Max(a.X, b.X)+reach)
 	j0, j1 := ix.row(math.Min(a.Y, b.Y)-reach), ix.row(math.Max(a.Y, b.Y)+reach)
-	for j := j0; j <= j1; j++ {
-		for i := i0; i <= i1; i++ {
-			ix.cells[j*ix.nx+i] = append(ix.cells[j*ix.nx+i], item)
+	ab := b.Sub(a)
+	L := ab.Norm()
+	half := ix.cell * math.Sqrt2 / 2 // a cell's centre to its corner
+	for cj := j0 / indexCoarse; cj <= j1/indexCoarse; cj++ {
+		for ci := i0 / indexCoarse; ci <= i1/indexCoarse; ci++ {
+			if !ix.want[cj*ix.cnx+ci] {
+				continue
+			}
+			for j := max(j0, cj*indexCoarse); j <= min(j1, cj*indexCoarse+indexCoarse-1); j++ {
+				for i := max(i0, ci*indexCoarse); i <= min(i1, ci*indexCoarse+indexCoarse-1); i++ {
+					if L > 0 {
+						c := r2.Point{X: (float64(i) + 0.5) * ix.cell, Y: (float64(j) + 0.5) * ix.cell}
+						if math.Abs(ab.Cross(c.Sub(a)))/L > reach+half {
+							continue
+						}
+					}
+					k := int32(j*ix.nx + i)
+					ix.cells[k] = append(ix.cells[k], item)
+				}
+			}
 		}
 	}
 }
@@ -104,7 +143,7 @@ func (ix *exposureIndex) row(y float64) int {
 func (ix *exposureIndex) at(p r2.Point) (x float64, most int32) {
 	most = -1
 	best := 0.0
-	for _, item := range ix.cells[ix.row(p.Y)*ix.nx+ix.col(p.X)] {
+	for _, item := range ix.cells[int32(ix.row(p.Y)*ix.nx+ix.col(p.X))] {
 		var e float64
 		var who int32
 		if item >= 0 {

@@ -20,7 +20,11 @@ func (b *builder) openWindows(windows []Window) {
 		return
 	}
 	surf := b.lay.Surface
-	ix := newExposureIndex(b.strokes, &b.prof, surf.Width(), surf.Height())
+	points := make([]r2.Point, len(windows))
+	for i, w := range windows {
+		points[i] = w.At
+	}
+	ix := newExposureIndex(b.strokes, &b.prof, surf.Width(), surf.Height(), points)
 	sets := make([]*lattice.SiteSet, len(b.regions))
 	for i, r := range b.regions {
 		sets[i] = r.sites
