@@ -595,7 +595,6 @@ func logNotMissed(x, miss float64) float64 {
 	return math.Log1p(-miss)
 }
 
-
 // countPainted counts a painted site of exposure x.
 func (ck *coverageCheck) countPainted(site lattice.Site, x float64, who int32) {
 	if x >= exposureSure {
