@@ -54,10 +54,11 @@ type CheckResult struct {
 // laid out at all.
 func CheckDesign(ctx context.Context, d *design.Design, variant string) (CheckResult, error) {
 	var res CheckResult
-	fs, err := design.Check(d, variant)
+	l, err := d.Lay(variant)
 	if err != nil {
 		return res, err
 	}
+	fs := l.Check()
 	if err := ctx.Err(); err != nil {
 		return res, err
 	}
@@ -65,16 +66,11 @@ func CheckDesign(ctx context.Context, d *design.Design, variant string) (CheckRe
 	for i, f := range fs {
 		res.Findings[i] = Finding{Rule: f.Rule, Error: f.Severity == design.SeverityError, Message: f.Message, Regions: f.Regions, At: f.AtNM}
 	}
-	v, err := d.Variant(variant)
-	if err != nil || len(v.TunnelGaps) == 0 {
+	if len(l.Variant.TunnelGaps) == 0 {
 		return res, nil
 	}
-	l, err := d.Lay(variant)
-	if err != nil {
-		return res, nil // the findings say what is wrong
-	}
 	res.GapWidths = map[[2]string]float64{}
-	for _, g := range v.TunnelGaps {
+	for _, g := range l.Variant.TunnelGaps {
 		if a, b := l.Region(g.A), l.Region(g.B); a != nil && b != nil {
 			res.GapWidths[[2]string{g.A, g.B}] = l.GapNM(a, b)
 		}
@@ -82,9 +78,13 @@ func CheckDesign(ctx context.Context, d *design.Design, variant string) (CheckRe
 	return res, ctx.Err()
 }
 
-// BuildPlan plans one variant of d.
+// BuildPlan lays out one variant of d and plans it.
 func BuildPlan(ctx context.Context, d *design.Design, variant string, prof planner.Profile, opt planner.Options) (*planner.Plan, error) {
-	return planner.Build(ctx, d, variant, prof, opt)
+	lay, err := d.Lay(variant)
+	if err != nil {
+		return nil, err
+	}
+	return planner.Build(ctx, lay, prof, opt)
 }
 
 // ExportSettings are the choices an export needs besides the plan.
