@@ -53,7 +53,11 @@ cleanly.`,
 					return code
 				}
 				defer run.stop()
-				p, err := planner.Build(run.ctx, run.design, *variant, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
+				lay, err := run.design.Lay(*variant)
+				if err != nil {
+					return planError(env, "plan", args[0], err)
+				}
+				p, err := planner.Build(run.ctx, lay, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
 				if err != nil {
 					return planError(env, "plan", args[0], err)
 				}
