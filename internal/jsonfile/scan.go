@@ -451,7 +451,6 @@ func (s *scanner) describeValue() string {
 	return "the number " + Prefix(string(s.data[s.pos:end]), MaxQuote)
 }
 
-
 // lineCounter converts increasing offsets to positions in one pass over
 // the data; an offset before the last one asked for starts it again.
 type lineCounter struct {
