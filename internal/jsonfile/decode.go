@@ -285,7 +285,11 @@ func (d *decoder) custom(v reflect.Value, fn func(raw []byte) error) {
 	var ve *ValueError
 	if errors.As(err, &ve) {
 		p := Problem{Path: joinPath(d.pathString(), ve.Path), Message: Prefix(ve.Message, 500)}
-		p.Line, p.Column = d.lines.at(start)
+		at := start
+		if off := offsetOf(d.data[start:end], ve.Path); off > 0 {
+			at += off
+		}
+		p.Line, p.Column = d.lines.at(at)
 		d.ps.Add(p)
 		return
 	}

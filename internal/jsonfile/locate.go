@@ -36,6 +36,18 @@ func Locate(data []byte, ps []Problem) {
 	}
 }
 
+// offsetOf returns the offset in data of the value at path, or of its
+// nearest enclosing value that data holds; -1 when path does not parse.
+func offsetOf(data []byte, path string) int {
+	segs, ok := parsePath(path)
+	if !ok {
+		return -1
+	}
+	w := &wanted{path: segs, off: -1}
+	locate(&scanner{data: data}, []*wanted{w}, 0)
+	return w.off
+}
+
 type wanted struct {
 	p    *Problem
 	path []segment
