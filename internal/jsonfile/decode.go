@@ -23,6 +23,9 @@ type Options struct {
 	MaxList int
 	// MaxDepth is the deepest nesting of objects and lists (default 64).
 	MaxDepth int
+	// Required asks for every struct field whose json tag does not say
+	// omitempty: a field left out is a problem ("missing").
+	Required bool
 	// Types decodes values of the given types (keyed by the value's type,
 	// not a pointer to it) instead of the default rules: the function gets
 	// the value's JSON text and the value to set. An error places a
@@ -91,17 +94,25 @@ func Decode(data []byte, v any, ps *Problems, opt Options) bool {
 		}
 	}
 	if d.err != nil {
-		p := Problem{Err: ErrSyntax}
-		if d.err.eof {
-			p.Message = fmt.Sprintf("the file ends before %s does (truncated?)", d.opt.what())
-		} else {
-			p.Line, p.Column = d.lines.at(d.err.off)
-			p.Message = "not valid JSON: " + d.err.msg
-		}
-		ps.Add(p)
+		ps.Add(syntaxProblem(data, d.err, d.opt.what()))
 		return false
 	}
 	return true
+}
+
+func syntaxProblem(data []byte, e *syntaxError, what string) Problem {
+	if what == "" {
+		what = "the JSON value"
+	}
+	p := Problem{Err: ErrSyntax}
+	if e.eof {
+		p.Message = fmt.Sprintf("the file ends before %s does (truncated?)", what)
+	} else {
+		lc := lineCounter{data: data}
+		p.Line, p.Column = lc.at(e.off)
+		p.Message = "not valid JSON: " + e.msg
+	}
+	return p
 }
 
 type decoder struct {
@@ -416,13 +427,35 @@ func (d *decoder) object(v reflect.Value) {
 	}
 	defer func() { d.depth-- }()
 	info := structInfoOf(v.Type())
+	start := d.pos
 	d.pos++
+	var seen uint64
+	var seenMore map[int]bool
+	if d.opt.Required {
+		defer func() {
+			if d.err != nil {
+				return
+			}
+			var missing []string
+			for i, f := range info.fields {
+				if !f.optional && !(i < 64 && seen&(1<<i) != 0) && !(i >= 64 && seenMore[i]) {
+					missing = append(missing, f.name)
+				}
+			}
+			switch {
+			case len(missing) == 1:
+				d.path = append(d.path, segment{key: missing[0], index: -1})
+				d.problem(start, "missing")
+				d.path = d.path[:len(d.path)-1]
+			case len(missing) > 1:
+				d.problem(start, "missing fields %s", strings.Join(missing, ", "))
+			}
+		}()
+	}
 	if d.peek() == '}' {
 		d.pos++
 		return
 	}
-	var seen uint64
-	var seenMore map[int]bool
 	for d.err == nil {
 		if d.peek() != '"' {
 			d.expect('"', "a field name in double quotes")
@@ -613,8 +646,9 @@ type structInfo struct {
 }
 
 type fieldInfo struct {
-	name  string
-	index int
+	name     string
+	index    int
+	optional bool // omitempty
 }
 
 var structInfos sync.Map // reflect.Type -> *structInfo
@@ -629,7 +663,7 @@ func structInfoOf(t reflect.Type) *structInfo {
 		if !f.IsExported() {
 			continue
 		}
-		name, _, _ := strings.Cut(f.Tag.Get("json"), ",")
+		name, opts, _ := strings.Cut(f.Tag.Get("json"), ",")
 		if name == "-" {
 			continue
 		}
@@ -638,7 +672,11 @@ func structInfoOf(t reflect.Type) *structInfo {
 		}
 		si.byName[name] = len(si.fields)
 		si.lower[strings.ToLower(name)] = name
-		si.fields = append(si.fields, fieldInfo{name: name, index: i})
+		optional := false
+		for _, o := range strings.Split(opts, ",") {
+			optional = optional || o == "omitempty" || o == "omitzero"
+		}
+		si.fields = append(si.fields, fieldInfo{name: name, index: i, optional: optional})
 	}
 	structInfos.Store(t, si)
 	return si

@@ -182,6 +182,10 @@ func (ps *Problems) Err(file string, kind error) error {
 	return &Error{File: file, Kind: kind, Problems: ps.list, Omitted: ps.omitted}
 }
 
+// Text is a value quoted as it stands in the file (JSON text such as 9,
+// "x" or [1, 2]), not as a Go string.
+type Text string
+
 // Quote formats a value for a message: numbers in their shortest exact
 // form (1e+306, 0.9999999999, never hundreds of digits), NaN and
 // infinities by name, strings quoted and cut to MaxQuote bytes.
@@ -195,6 +199,10 @@ func Quote(v any) string {
 		return Number(float64(x))
 	case string:
 		return strconv.Quote(Prefix(x, MaxQuote))
+	case Text:
+		return Prefix(string(x), MaxQuote)
+	case [2]float64:
+		return "[" + Number(x[0]) + ", " + Number(x[1]) + "]"
 	case fmt.Stringer:
 		return Prefix(x.String(), MaxQuote)
 	}

@@ -224,3 +224,21 @@ func TopString(data []byte, name string) (value string, ok bool) {
 	}
 	return unescape(content, esc), true
 }
+
+// SyntaxProblem reports the first syntax error of data, one JSON value
+// (what names it in the message), as Decode would, without decoding it.
+func SyntaxProblem(data []byte, what string) (Problem, bool) {
+	s := &scanner{data: data}
+	if s.peek() == 0 {
+		s.failEOF()
+	} else {
+		s.skipValue()
+		if s.err == nil && s.peek() != 0 {
+			s.fail(s.pos, "more data after %s", what)
+		}
+	}
+	if s.err == nil {
+		return Problem{}, false
+	}
+	return syntaxProblem(data, s.err, what), true
+}
