@@ -41,9 +41,20 @@ lint:
 	@out=$$(gofmt -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go')); \
 	if [ -n "$$out" ]; then echo "gofmt would change:"; echo "$$out"; exit 1; fi
 	$(GO) vet ./...
+	@# The README names the Go release go.mod needs.
+	@want=$$(awk '$$1 == "go" {print $$2}' go.mod); grep -q "Go $$want or newer" README.md || \
+	  { echo "README.md does not say \"Go $$want or newer\", the release go.mod needs"; exit 1; }
+	@# go.mod and go.sum list exactly what the code imports.
+	@$(GO) mod tidy -diff >/dev/null || { echo "go.mod or go.sum is not tidy: run go mod tidy"; $(GO) mod tidy -diff; exit 1; }
 	@# Only app/ may import Fyne; the pure packages stay headless.
 	@bad=$$($(GO) list -deps ./lattice/... ./planner/... ./export/... | grep '^fyne.io/' || true); \
 	if [ -n "$$bad" ]; then echo "pure packages import Fyne:"; echo "$$bad"; exit 1; fi
+	@# The editor and the renderer are Fyne-free, tests included, so they
+	@# build and test without cgo or a display; the renderer knows no editor.
+	@bad=$$($(GO) list -deps -test ./app/editor/... ./app/render/... | grep '^fyne.io/' || true); \
+	if [ -n "$$bad" ]; then echo "app/editor or app/render imports Fyne:"; echo "$$bad"; exit 1; fi
+	@bad=$$($(GO) list -deps ./app/render/... | grep '^dimerpath/app/editor' || true); \
+	if [ -n "$$bad" ]; then echo "app/render imports the editor"; exit 1; fi
 	@bad=$$($(GO) list -deps ./lattice/... | grep '^dimerpath/planner' || true); \
 	if [ -n "$$bad" ]; then echo "lattice imports planner"; exit 1; fi
 	@bad=$$($(GO) list -deps ./planner/route/... | grep '^dimerpath/' | grep -v '^dimerpath/planner/route' || true); \

@@ -7,6 +7,7 @@ import (
 	"text/tabwriter"
 
 	"dimerpath/export"
+	"dimerpath/internal/units"
 	"dimerpath/planner"
 )
 
@@ -95,7 +96,7 @@ func printComparison(w io.Writer, results []planner.VariantResult) {
 			all = fmt.Sprintf("10^%.1f", p.Yield.Log10All)
 		}
 		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%.0f\t%.0f\t%.0f\t%.0f\t%.0f\t%.0f\t%.0f\t%d\t%s\t\n", r.Variant,
-			fmtDuration(p.TotalS), fmtDuration(p.P10S), fmtDuration(p.P90S),
+			units.Duration(p.TotalS), units.Duration(p.P10S), units.Duration(p.P90S),
 			b.APWriteS, b.FEWriteS, b.DwellS, b.TravelS, b.ModeSwitchS, b.RegistrationS, b.VerificationS, len(p.Segments), all)
 	}
 	tw.Flush()

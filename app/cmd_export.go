@@ -12,6 +12,7 @@ import (
 
 	"dimerpath/export"
 	"dimerpath/internal/jsonfile"
+	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
@@ -111,7 +112,7 @@ func runExport(env Env, args []string, fl exportFlags) int {
 		size = fmt.Sprintf(", %d bytes", st.Size())
 	}
 	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, expected %s%s)\n",
-		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), fmtDuration(p.TotalS), size)
+		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), units.Duration(p.TotalS), size)
 	return ExitOK
 }
 

@@ -6,7 +6,6 @@ import (
 	"flag"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"os/signal"
 	"sort"
@@ -16,6 +15,7 @@ import (
 	"time"
 
 	"dimerpath/export"
+	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
@@ -152,20 +152,6 @@ func (p *progress) done() {
 	}
 }
 
-// fmtDuration writes seconds the way an operator reads a schedule.
-func fmtDuration(s float64) string {
-	switch {
-	case math.IsNaN(s) || math.IsInf(s, 0):
-		return "-"
-	case s < 60:
-		return fmt.Sprintf("%.1f s", s)
-	case s < 3600:
-		return fmt.Sprintf("%d min %02d s", int(s)/60, int(math.Round(s))%60)
-	}
-	m := int(math.Round(s / 60))
-	return fmt.Sprintf("%d h %02d min", m/60, m%60)
-}
-
 // printSegments lists each segment: its fiducial, how long its
 // registration and its writing take, and its tightest stroke: the one
 // whose drift clock (from the end of the registration to the end of the
@@ -219,9 +205,9 @@ func printSegments(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 		}
 		tight := "no drift: no limit"
 		if driftNMPerMin > 0 && s.tol > 0 {
-			tight = fmt.Sprintf("%s / %s (±%g nm, %.0f %%)", fmtDuration(s.used), fmtDuration(planner.DriftBudget(s.tol, driftNMPerMin)), s.tol, 100*s.share)
+			tight = fmt.Sprintf("%s / %s (±%g nm, %.0f %%)", units.Duration(s.used), units.Duration(planner.DriftBudget(s.tol, driftNMPerMin)), s.tol, 100*s.share)
 		}
-		fmt.Fprintf(tw, "  %d\t%s\t%s\t%s\t%s\t%s\t%d\n", g.Index, g.Fiducial, fmtDuration(g.StartS), fmtDuration(regEnd-g.StartS), fmtDuration(g.EndS-regEnd), tight, len(g.Strokes))
+		fmt.Fprintf(tw, "  %d\t%s\t%s\t%s\t%s\t%s\t%d\n", g.Index, g.Fiducial, units.Duration(g.StartS), units.Duration(regEnd-g.StartS), units.Duration(g.EndS-regEnd), tight, len(g.Strokes))
 	}
 	tw.Flush()
 }
@@ -248,7 +234,7 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	for _, c := range p.Conditions {
 		switch c.Kind {
 		case planner.StrokeDwell:
-			fmt.Fprintf(tw, "  AP dwell\t%+.2f V\t%.3g nA\texpected %.3g s per site, stop at %.3g s\n", c.BiasV, c.CurrentA*1e9, c.DwellS, c.DwellCapS)
+			fmt.Fprintf(tw, "  AP dwell\t%+.2f V\t%.3g nA\texpected %s per site, stop at %s\n", c.BiasV, c.CurrentA*1e9, units.Duration(c.DwellS), units.Duration(c.DwellCapS))
 		default:
 			name := "AP line"
 			extra := ""
@@ -261,7 +247,7 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	}
 	tw.Flush()
 
-	fmt.Fprintf(w, "\nTime: %s expected (P10 %s, P50 %s, P90 %s)\n", fmtDuration(p.TotalS), fmtDuration(p.P10S), fmtDuration(p.P50S), fmtDuration(p.P90S))
+	fmt.Fprintf(w, "\nTime: %s expected (P10 %s, P50 %s, P90 %s)\n", units.Duration(p.TotalS), units.Duration(p.P10S), units.Duration(p.P50S), units.Duration(p.P90S))
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	b := p.Breakdown
 	for _, part := range []struct {
@@ -280,16 +266,16 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 			if n == 1 {
 				what = "registration"
 			}
-			note = fmt.Sprintf("  %d %s of %s", n, what, fmtDuration(part.s/float64(n)))
+			note = fmt.Sprintf("  %d %s of %s", n, what, units.Duration(part.s/float64(n)))
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%.1f %%\t%s\n", part.name, fmtDuration(part.s), share, note)
+		fmt.Fprintf(tw, "  %s\t%s\t%.1f %%\t%s\n", part.name, units.Duration(part.s), share, note)
 	}
 	tw.Flush()
 	if p.FloorS > 0 {
-		fmt.Fprintf(w, "  writing alone (physical floor) %s: plan = %.2f x floor\n", fmtDuration(p.FloorS), p.TotalS/p.FloorS)
+		fmt.Fprintf(w, "  writing alone (physical floor) %s: plan = %.2f x floor\n", units.Duration(p.FloorS), p.TotalS/p.FloorS)
 	}
 	if p.ByHandS > 0 {
-		fmt.Fprintf(w, "  by hand (file order, raster rows, fixed-interval registration) %s: plan = %.2f x by hand\n", fmtDuration(p.ByHandS), p.TotalS/p.ByHandS)
+		fmt.Fprintf(w, "  by hand (file order, raster rows, fixed-interval registration) %s: plan = %.2f x by hand\n", units.Duration(p.ByHandS), p.TotalS/p.ByHandS)
 	}
 
 	printSegments(w, p, driftNMPerMin)

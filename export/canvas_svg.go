@@ -61,7 +61,7 @@ func (c *svgCanvas) err() error {
 	return c.werr
 }
 
-// num appends v rounded to 3 decimals without trailing zeros.
+// appendNum appends v rounded to 3 decimals without trailing zeros.
 func appendNum(b []byte, v float64) []byte {
 	if math.Abs(v) < 5e-4 {
 		return append(b, '0')

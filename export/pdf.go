@@ -214,9 +214,9 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		if cd.Kind == planner.StrokeDwell || (cd.SpeedNMPerS == 0 && cd.DwellS > 0) {
 			// Parking on single sites: no speed, dose or width, a dwell time.
 			hasDwell = true
-			dwell := "dwell " + sig(cd.DwellS, 3) + " s"
+			dwell := "dwell " + duration(cd.DwellS)
 			if cd.DwellCapS > 0 {
-				dwell += "\nat most " + sig(cd.DwellCapS, 3) + " s"
+				dwell += "\nat most " + duration(cd.DwellCapS)
 			}
 			t.row(modeName(cd.Mode)+", dwell points", signedV(cd.BiasV), nanoAmps(cd.CurrentA), "–", dwell, "–", "–", "–")
 			continue
@@ -235,7 +235,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	if !hasDwell {
 		// An older plan without dwell conditions: take them from the actions.
 		for _, g := range dwellConditions(p) {
-			t.row(modeName(g.mode)+", dwell points", signedV(g.bias), nanoAmps(g.current), "–", "dwell "+sig(g.dwell, 3)+" s", "–", "–", "–")
+			t.row(modeName(g.mode)+", dwell points", signedV(g.bias), nanoAmps(g.current), "–", "dwell "+duration(g.dwell), "–", "–", "–")
 		}
 	}
 	t.end()

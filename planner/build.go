@@ -56,8 +56,11 @@ func (o *Options) stage(name string) {
 // the writing order into drift-safe segments, lays out the timeline and
 // estimates its spread and the dopant yield. It returns ctx.Err() when
 // cancelled, a *ProfileError for an invalid profile, and a *LimitError
-// when the plan would need a value beyond prof.Limits.
-func Build(ctx context.Context, d *design.Design, variant string, prof Profile, opt Options) (*Plan, error) {
+// when the plan would need a value beyond prof.Limits. It never panics: a
+// broken invariant of its own, or any panic on the way, comes back as an
+// *InternalError (errors.Is(err, ErrInternal)).
+func Build(ctx context.Context, d *design.Design, variant string, prof Profile, opt Options) (plan *Plan, err error) {
+	defer recoverInternal(&plan, &err)
 	b := &builder{ctx: ctx, d: d, prof: prof, opt: opt}
 	return b.build(variant)
 }
@@ -150,6 +153,9 @@ func (b *builder) build(variant string) (*Plan, error) {
 			st.ID, st.Region, jobs[j].budgetS, st.ToleranceNM))
 	}
 	tl := schedule(sg, starts, b.strokes, prof)
+	if err := checkFiniteTime(tl.breakdown); err != nil {
+		return nil, err
+	}
 
 	b.opt.stage("spread")
 	dwells := 0
@@ -184,9 +190,12 @@ func (b *builder) build(variant string) (*Plan, error) {
 		plan.Segments[n-1].EndS = plan.TotalS
 	}
 	if math.Abs(plan.TotalS-total) > 1e-6*math.Max(total, 1) {
-		panic(fmt.Sprintf("planner: timeline total %v disagrees with the segmentation's %v", plan.TotalS, total))
+		return nil, &InternalError{Message: fmt.Sprintf("timeline total %v s disagrees with the segmentation's %v s", plan.TotalS, total)}
 	}
 	plan.FloorS = plan.Breakdown.APWriteS + plan.Breakdown.FEWriteS + plan.Breakdown.DwellS
+	if err := checkProbabilities(windows); err != nil {
+		return nil, err
+	}
 	plan.Yield = YieldOf(windows)
 	for _, r := range b.regions {
 		req := string(r.requested)

@@ -95,8 +95,9 @@ type ModeProfile struct {
 //
 //	w(λ) = 2·σ·sqrt(2·ln(λ/λ_thr)) for λ > λ_thr, else 0.
 //
-// This is the form derived in physics.md §3 (no closed form is
-// published); calibrate fits it to a lab's own lines.
+// The form is our derivation from a Gaussian footprint and a clearing
+// threshold (no closed form has been published; see docs/sources.md);
+// calibrate fits it to a lab's own lines.
 type WidthModel struct {
 	SigmaNM             float64 `json:"sigma_nm"`
 	ThresholdDoseCPerCm float64 `json:"threshold_dose_c_per_cm"`
@@ -170,7 +171,8 @@ func DefaultProfile() Profile {
 			Passes: 1,
 			// σ = 0.3 nm and λ_thr = 0.5 mC/cm give w(2 mC/cm) = 1.0 nm,
 			// inside the 0.8–1.5 nm (1–2 dimer rows) typical AP width,
-			// from memory (physics.md §3); calibrate replaces them.
+			// from memory (cf. Randall et al., JVST B 27, 2764 (2009));
+			// calibrate replaces them.
 			Width: WidthModel{SigmaNM: 0.3, ThresholdDoseCPerCm: 0.5e-3},
 			// Atomic precision: no site outside the region may be cleared.
 			EdgeAllowanceNM: 0,
@@ -227,7 +229,7 @@ func DefaultProfile() Profile {
 			RateNMPerMin:   0.1,
 			RateSDNMPerMin: 0.05, // ±50 %, from memory
 			// A 50×50 nm² registration image of 256 lines at ~1 s/line
-			// (physics.md §5, derived/from memory).
+			// (a typical image, from memory).
 			RegistrationS: 256,
 			VerificationS: 0,
 		},
@@ -244,7 +246,7 @@ func DefaultProfile() Profile {
 		HybridBandNM: 6,
 		Limits: Limits{
 			MaxBiasV:     10,    // common instrument bias range ±10 V, from memory
-			MaxCurrentA:  10e-9, // ~10 nA FE cap, from memory (physics.md caps)
+			MaxCurrentA:  10e-9, // ~10 nA FE cap for a stable tip, from memory
 			ScanFieldNM:  2000,  // the design-rule default 2 µm scan field
 			MaxSpeedNMPS: 5000,  // few µm/s tip moves, from memory
 		},
@@ -252,8 +254,8 @@ func DefaultProfile() Profile {
 }
 
 // LowTemperatureProfile returns the 4 K preset ("lt"): the room-
-// temperature profile with liquid-helium drift, ≤ 0.1 nm/h (from memory,
-// physics.md §5). The dose model is left at the room-temperature values:
+// temperature profile with liquid-helium drift, ≤ 0.1 nm/h (from
+// memory). The dose model is left at the room-temperature values:
 // the low-bias yield rises ~300× at 11 K (Foley et al., PRL 80, 1336
 // (1998)), so calibrate at temperature before trusting write times.
 func LowTemperatureProfile() Profile {

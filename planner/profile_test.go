@@ -37,8 +37,9 @@ func TestDefaultProfileValues(t *testing.T) {
 	if got := p.FE.LineWidth(); math.Abs(got-10) > 1e-9 {
 		t.Errorf("FE line width = %v nm, want 10", got)
 	}
-	// The default dwell reaches 99 % within the 10 ms–1 s FCL range (from
-	// memory, physics.md §3).
+	// The default dwell reaches 99 % within the 10 ms–1 s of a
+	// feedback-controlled dwell (from memory; the technique: Walsh &
+	// Hersam, Annu. Rev. Phys. Chem. 60, 193 (2009)).
 	if c := p.Dwell.CapS(); c < 0.01 || c > 1 {
 		t.Errorf("dwell 99%% time = %v s, want within 0.01..1 s", c)
 	}

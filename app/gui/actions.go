@@ -13,7 +13,10 @@ import (
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/render"
 	"dimerpath/export"
+	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
@@ -63,12 +66,12 @@ func (u *UI) StartPlan() {
 	u.showProgress("Planning "+variant+"…", 0)
 	opt := planner.Options{Seed: u.opts.Seed, Progress: u.progressFunc(variant+": ", 1, 0)}
 	go func() {
-		p, err := buildPlan(ctx, d, variant, prof, opt)
+		p, err := editor.BuildPlan(ctx, d, variant, prof, opt)
 		fyne.Do(func() { u.planDone(s, p, variant, tok, err) })
 	}()
 }
 
-func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken, err error) {
+func (u *UI) planDone(s *editor.Session, p *planner.Plan, variant string, tok editor.PlanToken, err error) {
 	if u.jobDone != nil {
 		defer u.jobDone()
 	}
@@ -88,7 +91,7 @@ func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken
 	default:
 		s.SetPlan(p, variant, tok)
 		u.tabs.Select(u.tabPlan)
-		u.hintLabel.SetText(fmt.Sprintf("Planned variant %s in %s.", variant, formatDuration(time.Since(u.planStarted).Seconds())))
+		u.hintLabel.SetText(fmt.Sprintf("Planned variant %s in %s.", variant, units.Duration(time.Since(u.planStarted).Seconds())))
 		if then != nil {
 			then()
 		}
@@ -99,7 +102,7 @@ func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken
 // screenshot mode and tests).
 func (u *UI) PlanNow(ctx context.Context) error {
 	s := u.S
-	p, err := buildPlan(ctx, s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: u.opts.Seed})
+	p, err := editor.BuildPlan(ctx, s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: u.opts.Seed})
 	if err != nil {
 		return err
 	}
@@ -137,14 +140,14 @@ func (u *UI) CheckNow() {
 	ctx, cancel := context.WithCancel(context.Background())
 	u.checkCancel = cancel
 	go func() {
-		res, err := checkDesign(ctx, d, variant)
+		res, err := editor.CheckDesign(ctx, d, variant)
 		fyne.Do(func() {
 			if ctx.Err() != nil || s != u.S || variant != s.Variant().Name {
 				return
 			}
 			u.checkCancel = nil
 			if err != nil {
-				res = CheckResult{Findings: []Finding{{Rule: "design", Error: true, Message: err.Error()}}}
+				res = editor.CheckResult{Findings: []editor.Finding{{Rule: "design", Error: true, Message: err.Error()}}}
 			}
 			s.SetCheck(res, tok)
 		})
@@ -154,9 +157,9 @@ func (u *UI) CheckNow() {
 // CheckSync runs the checks on the calling goroutine (tests, screenshot).
 func (u *UI) CheckSync() {
 	s := u.S
-	res, err := checkDesign(context.Background(), s.DesignCopy(), s.Variant().Name)
+	res, err := editor.CheckDesign(context.Background(), s.DesignCopy(), s.Variant().Name)
 	if err != nil {
-		res = CheckResult{Findings: []Finding{{Rule: "design", Error: true, Message: err.Error()}}}
+		res = editor.CheckResult{Findings: []editor.Finding{{Rule: "design", Error: true, Message: err.Error()}}}
 	}
 	s.SetCheck(res, s.Token())
 }
@@ -182,7 +185,7 @@ func (u *UI) compareVariants() {
 		for i, n := range names {
 			frac := 1 / float64(len(names))
 			opt := planner.Options{Seed: seed, Progress: u.progressFunc(fmt.Sprintf("variant %s (%d of %d): ", n, i+1, len(names)), frac, float64(i)*frac)}
-			p, err := buildPlan(ctx, d, n, prof, opt)
+			p, err := editor.BuildPlan(ctx, d, n, prof, opt)
 			res[i] = export.VariantResult{Variant: n, Plan: p, Err: err}
 			rules[i] = rulesSummary(ctx, d, n)
 			if ctx.Err() != nil {
@@ -215,7 +218,7 @@ func (u *UI) compareVariants() {
 // rulesSummary says how variant fares under the design rules: "passes",
 // "2 errors", "1 warning".
 func rulesSummary(ctx context.Context, d *design.Design, variant string) string {
-	res, err := checkDesign(ctx, d, variant)
+	res, err := editor.CheckDesign(ctx, d, variant)
 	if err != nil {
 		return "cannot be checked"
 	}
@@ -271,11 +274,11 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 		if p.Yield.Windows > 0 {
 			all = formatProbability(p.Yield.All)
 		}
-		reg := formatDuration(p.Breakdown.RegistrationS)
+		reg := units.Duration(p.Breakdown.RegistrationS)
 		if p.TotalS > 0 {
 			reg += fmt.Sprintf(" (%.0f %%)", 100*p.Breakdown.RegistrationS/p.TotalS)
 		}
-		for _, t := range []string{r.Variant, formatDuration(p.TotalS), formatDuration(p.P10S) + " – " + formatDuration(p.P90S), reg, all, dev} {
+		for _, t := range []string{r.Variant, units.Duration(p.TotalS), units.Duration(p.P10S) + " – " + units.Duration(p.P90S), reg, all, dev} {
 			cells = append(cells, widget.NewLabel(t))
 		}
 		if rules != nil {
@@ -285,7 +288,7 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 			}
 			cells = append(cells, l)
 		}
-		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: formatDuration(p.TotalS), Color: SegmentColor(i)})
+		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: units.Duration(p.TotalS), Color: render.SegmentColor(i)})
 		yieldBars = append(yieldBars, Bar{Label: r.Variant, Value: p.Yield.All, Text: all, Color: colYield})
 	}
 	table := container.New(&tableLayout{cols: cols}, cells...)
@@ -301,10 +304,10 @@ func (u *UI) showComparison(res []export.VariantResult, rules []string) {
 	content := container.NewScroll(comparisonView(res, rules))
 	var d *dialog.CustomDialog
 	report := widget.NewButtonWithIcon("Export report…", theme.DocumentPrintIcon(), func() {
-		u.withCaution("the comparison report", func(es ExportSettings) {
+		u.withCaution("the comparison report", func(es editor.ExportSettings) {
 			u.chooseFile(safeFileName(u.S.Design().Name)+"-variants.pdf", []string{".pdf", ".svg"}, func(path string) {
 				u.runInBackground("Writing "+filepath.Base(path)+"…", func(ctx context.Context, _ func(string, float64)) error {
-					return exportComparison(ctx, path, res, es)
+					return editor.ExportComparison(ctx, path, res, es)
 				}, "Wrote "+path)
 			})
 		})

@@ -19,6 +19,7 @@ import (
 	"fyne.io/fyne/v2/storage"
 	"fyne.io/fyne/v2/widget"
 
+	"dimerpath/app/editor"
 	"dimerpath/export"
 	"dimerpath/internal/atomicfile"
 	"dimerpath/lattice/design"
@@ -132,10 +133,10 @@ func (u *UI) lastDir() fyne.ListableURI {
 // OpenPath opens the design file at path, replacing the one shown. A
 // file that fails to load leaves the current design and shows why.
 func (u *UI) OpenPath(path string) error {
-	d, err := loadDesign(path)
+	d, err := editor.LoadDesign(path)
 	if err == nil {
-		var s *Session
-		if s, err = NewSession(d, path); err == nil {
+		var s *editor.Session
+		if s, err = editor.NewSession(d, path); err == nil {
 			u.SetSession(s)
 			u.addRecent(path)
 			return nil
@@ -147,7 +148,7 @@ func (u *UI) OpenPath(path string) error {
 
 func (u *UI) newDesign() {
 	u.confirmDiscard("start a new design", func() {
-		s, err := NewSession(NewDesign(), "")
+		s, err := editor.NewSession(editor.NewDesign(), "")
 		if err != nil {
 			dialog.ShowError(err, u.Win)
 			return
@@ -158,10 +159,10 @@ func (u *UI) newDesign() {
 
 func (u *UI) openDemo() {
 	u.confirmDiscard("open the demo", func() {
-		d, err := demoDesign()
+		d, err := editor.DemoDesign()
 		if err == nil {
-			var s *Session
-			if s, err = NewSession(d, ""); err == nil {
+			var s *editor.Session
+			if s, err = editor.NewSession(d, ""); err == nil {
 				u.SetSession(s)
 				return
 			}
@@ -188,7 +189,7 @@ func (u *UI) save(then func()) {
 
 // SaveTo writes the design atomically to path and records it as saved.
 func (u *UI) SaveTo(path string) error {
-	if err := saveDesign(path, u.S.Design()); err != nil {
+	if err := editor.SaveDesign(path, u.S.Design()); err != nil {
 		return fmt.Errorf("could not save %s:\n%w", path, err)
 	}
 	u.S.MarkSaved(path)
@@ -209,7 +210,7 @@ func (u *UI) saveAs(then func()) {
 // saveAsTo saves the design to the path chosen in Save As and runs then
 // when that worked. An untitled design takes the file's name.
 func (u *UI) saveAsTo(path string, then func()) {
-	if n := u.S.Design().Name; n == "" || n == NewDesign().Name {
+	if n := u.S.Design().Name; n == "" || n == editor.NewDesign().Name {
 		u.S.SetDesignName(strings.TrimSuffix(filepath.Base(path), filepath.Ext(path)))
 	}
 	if err := u.SaveTo(path); err != nil {
@@ -328,7 +329,7 @@ func (u *UI) StopAutosave() {
 func (u *UI) Autosave() <-chan error {
 	done := make(chan error, 1)
 	s := u.S
-	snap := s.hist.current()
+	snap := s.Token()
 	if !s.Dirty() || snap == u.lastAutosave || u.autosaving {
 		done <- nil
 		return done
@@ -339,11 +340,15 @@ func (u *UI) Autosave() <-chan error {
 		return done
 	}
 	u.autosaving = true
-	info := recoveryInfo{Path: s.Path(), SavedAt: time.Now(), Design: snap.shell.Name}
+	info := recoveryInfo{Path: s.Path(), SavedAt: time.Now()}
 	rec := u.recovery
 	gen := rec.generation()
 	go func() {
-		err := rec.write(gen, func() error { return writeRecovery(dir, designOf(snap), info) })
+		err := rec.write(gen, func() error {
+			d := snap.Design()
+			info.Design = d.Name
+			return writeRecovery(dir, d, info)
+		})
 		fyne.Do(func() {
 			u.autosaving = false
 			if err == nil && u.S == s {
@@ -387,26 +392,11 @@ func (r *recoveryFiles) remove(f func()) {
 	f()
 }
 
-// designOf assembles the design of an undo state for reading: the
-// regions are the snapshot's own, which nothing changes.
-func designOf(snap *snapshot) *design.Design {
-	d := *snap.shell
-	d.Variants = slices.Clone(snap.shell.Variants)
-	for v := range d.Variants {
-		rs := make([]design.Region, len(snap.regions[v]))
-		for i, sr := range snap.regions[v] {
-			rs[i] = sr.region
-		}
-		d.Variants[v].Regions = rs
-	}
-	return &d
-}
-
 func writeRecovery(dir string, d *design.Design, info recoveryInfo) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return err
 	}
-	if err := saveDesign(filepath.Join(dir, recoveryName), d); err != nil {
+	if err := editor.SaveDesign(filepath.Join(dir, recoveryName), d); err != nil {
 		return err
 	}
 	meta, err := json.MarshalIndent(info, "", "  ")
@@ -425,7 +415,7 @@ func (u *UI) removeRecovery() {
 		os.Remove(filepath.Join(dir, recoveryName))
 		os.Remove(filepath.Join(dir, recoveryMeta))
 	})
-	u.lastAutosave = nil
+	u.lastAutosave = editor.PlanToken{}
 }
 
 // OfferRecovery asks whether to restore a recovery file left by a
@@ -472,11 +462,11 @@ func (u *UI) Recover() error {
 	if meta, err := os.ReadFile(filepath.Join(dir, recoveryMeta)); err == nil {
 		json.Unmarshal(meta, &info)
 	}
-	d, err := loadDesign(filepath.Join(dir, recoveryName))
+	d, err := editor.LoadDesign(filepath.Join(dir, recoveryName))
 	if err != nil {
 		return fmt.Errorf("the recovery copy could not be read: %w", err)
 	}
-	s, err := NewSession(d, info.Path)
+	s, err := editor.NewSession(d, info.Path)
 	if err != nil {
 		return err
 	}
@@ -492,7 +482,7 @@ const prefPaper = "paper"
 // withCaution shows the caution before an export, with the paper size
 // for printed reports, and runs then with the settings if the user goes
 // on.
-func (u *UI) withCaution(what string, then func(ExportSettings)) {
+func (u *UI) withCaution(what string, then func(editor.ExportSettings)) {
 	paper := widget.NewRadioGroup([]string{"A4", "US Letter"}, nil)
 	paper.Horizontal = true
 	if u.App.Preferences().StringWithFallback(prefPaper, string(export.A4)) == string(export.Letter) {
@@ -506,7 +496,7 @@ func (u *UI) withCaution(what string, then func(ExportSettings)) {
 		if !ok {
 			return
 		}
-		es := ExportSettings{Paper: export.A4, Generator: u.opts.Generator, Date: time.Now()}
+		es := editor.ExportSettings{Paper: export.A4, Generator: u.opts.Generator, Date: time.Now()}
 		if paper.Selected == "US Letter" {
 			es.Paper = export.Letter
 		}
@@ -534,11 +524,11 @@ func (u *UI) exportAs(kind string) {
 		return
 	}
 	d := u.S.DesignCopy()
-	u.withCaution("the plan", func(es ExportSettings) {
+	u.withCaution("the plan", func(es editor.ExportSettings) {
 		name := safeFileName(u.S.Design().Name+"-"+p.Variant) + "." + kind
 		u.chooseFile(name, []string{"." + kind}, func(path string) {
 			u.runInBackground("Exporting "+filepath.Base(path)+"…", func(ctx context.Context, progress func(string, float64)) error {
-				return exportPlan(ctx, path, d, p, es, progress)
+				return editor.ExportPlan(ctx, path, d, p, es, progress)
 			}, "Exported "+path)
 		})
 	})

@@ -5,13 +5,14 @@ import (
 	"path/filepath"
 	"testing"
 
+	"dimerpath/app/editor"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
 
 func TestSaveOpenRoundTrip(t *testing.T) {
 	u, _ := newTestUI(t, nil)
-	u.S.SetTool(ToolSite)
+	u.S.SetTool(editor.ToolSite)
 	u.S.Select(1)
 	site := lattice.Site{Row: 70, Dimer: 33, Side: 1}
 	u.S.Click(u.S.Surface().Position(site), 1)
@@ -93,7 +94,7 @@ func TestAutosaveWritesInTheBackgroundOneAtATime(t *testing.T) {
 	u, _ := newTestUI(t, nil)
 	dir := u.opts.ConfigDir
 	u.S.AddRegion("first idea", design.RoleOther)
-	first := u.S.hist.current()
+	first := u.S.Token()
 
 	// Hold the recovery files so the first write waits in the background.
 	u.recovery.mu.Lock()
@@ -117,7 +118,7 @@ func TestAutosaveWritesInTheBackgroundOneAtATime(t *testing.T) {
 	if u.lastAutosave != first {
 		t.Fatal("the recovery copy is not recorded as the state it was taken from")
 	}
-	d, err := loadDesign(filepath.Join(dir, recoveryName))
+	d, err := editor.LoadDesign(filepath.Join(dir, recoveryName))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -129,7 +130,7 @@ func TestAutosaveWritesInTheBackgroundOneAtATime(t *testing.T) {
 	if err := <-u.Autosave(); err != nil {
 		t.Fatal(err)
 	}
-	d, _ = loadDesign(filepath.Join(dir, recoveryName))
+	d, _ = editor.LoadDesign(filepath.Join(dir, recoveryName))
 	regions = d.Variants[0].Regions
 	if got := regions[len(regions)-1].Name; got != "second idea" {
 		t.Errorf("after the next tick the copy ends with %q, want \"second idea\"", got)

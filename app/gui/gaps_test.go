@@ -6,6 +6,7 @@ import (
 	"strings"
 	"testing"
 
+	"dimerpath/app/editor"
 	"github.com/golang/geo/r2"
 )
 
@@ -13,7 +14,7 @@ import (
 // any of b, by trying every pair: the definition the tunnel-gap rule
 // states (README, "tunnel-gap"), computed independently of the design
 // package's spatial index.
-func bruteGap(s *Session, a, b int) float64 {
+func bruteGap(s *editor.Session, a, b int) float64 {
 	surf := s.Surface()
 	var bc []r2.Rect
 	for site := range s.RegionSites(b).All() {

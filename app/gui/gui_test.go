@@ -11,6 +11,9 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/editor/editortest"
+	"dimerpath/app/render"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -19,11 +22,11 @@ import (
 // in-memory window drawn by the software painter) and check both the
 // model and the rendered image.
 
-func newTestUI(t *testing.T, s *Session) (*UI, fyne.Window) {
+func newTestUI(t *testing.T, s *editor.Session) (*UI, fyne.Window) {
 	t.Helper()
 	a := test.NewTempApp(t)
 	if s == nil {
-		s = newTestSession(t)
+		s = editortest.Tiny(t)
 	}
 	w := test.NewTempWindow(t, widget.NewLabel(""))
 	u := New(a, w, s, Options{ConfigDir: t.TempDir(), CheckDelay: -1, Autosave: -1})
@@ -78,11 +81,11 @@ func TestDragPaintsAndUndoRedo(t *testing.T) {
 	if !u.View.rend.Stats().Atomic {
 		t.Fatal("0.03 nm/px should draw single sites")
 	}
-	if got := pixelAt(before, u, surf.Position(a)); got != colCleanH {
-		t.Fatalf("site before painting is %v, want the clean-H colour %v", got, colCleanH)
+	if got := pixelAt(before, u, surf.Position(a)); got != render.ColCleanH {
+		t.Fatalf("site before painting is %v, want the clean-H colour %v", got, render.ColCleanH)
 	}
-	test.Tap(u.toolButtons[ToolSite])
-	if u.S.Tool != ToolSite {
+	test.Tap(u.toolButtons[editor.ToolSite])
+	if u.S.Tool != editor.ToolSite {
 		t.Fatalf("tapping the Site button chose %v", u.S.Tool)
 	}
 	u.regions.list.Select(1) // the lead
@@ -96,16 +99,16 @@ func TestDragPaintsAndUndoRedo(t *testing.T) {
 	}
 	after := w.Canvas().Capture()
 	painted := pixelAt(after, u, surf.Position(a))
-	if painted == colCleanH {
+	if painted == render.ColCleanH {
 		t.Fatal("painted site still drawn as clean H")
 	}
 	// The lead is selected, so it is drawn in its colour lightened.
-	if want := mix(RegionColor(1), rgb(0xff, 0xff, 0xff), 0.3); painted != want {
+	if want := render.Mix(render.RegionColor(1), render.RGB(0xff, 0xff, 0xff), 0.3); painted != want {
 		t.Errorf("painted site drawn %v, want the lead's selected colour %v", painted, want)
 	}
 	// The other side of the row was not painted.
 	other := lattice.Site{Row: 50, Dimer: 12, Side: 1}
-	if got := pixelAt(after, u, surf.Position(other)); got != colCleanH {
+	if got := pixelAt(after, u, surf.Position(other)); got != render.ColCleanH {
 		t.Errorf("site on the other side drawn %v, want clean H", got)
 	}
 
@@ -113,7 +116,7 @@ func TestDragPaintsAndUndoRedo(t *testing.T) {
 	if got := u.S.RegionSites(1).Count(); got != n0 {
 		t.Fatalf("after Ctrl+Z %d sites, want %d", got, n0)
 	}
-	if got := pixelAt(w.Canvas().Capture(), u, surf.Position(a)); got != colCleanH {
+	if got := pixelAt(w.Canvas().Capture(), u, surf.Position(a)); got != render.ColCleanH {
 		t.Errorf("after undo the site is drawn %v, want clean H", got)
 	}
 	shortcut(w, ctrlShift(fyne.KeyZ))
@@ -133,10 +136,10 @@ func TestDragPaintsAndUndoRedo(t *testing.T) {
 func TestKeysChooseToolsAndRectangle(t *testing.T) {
 	u, w := newTestUI(t, nil)
 	test.TypeOnCanvas(w.Canvas(), "r")
-	if u.S.Tool != ToolRect {
+	if u.S.Tool != editor.ToolRect {
 		t.Fatalf("typing r chose %v, want the rectangle tool", u.S.Tool)
 	}
-	if u.toolButtons[ToolRect].Importance != widget.HighImportance {
+	if u.toolButtons[editor.ToolRect].Importance != widget.HighImportance {
 		t.Error("the rectangle button is not marked as the current tool")
 	}
 	u.S.Select()
@@ -153,11 +156,11 @@ func TestKeysChooseToolsAndRectangle(t *testing.T) {
 		t.Errorf("rectangle holds %d sites, want 1000", got)
 	}
 	img := w.Canvas().Capture()
-	if got := pixelAt(img, u, surf.DimerCentre(0, 35, 120)); got == colTerrace[0] {
+	if got := pixelAt(img, u, surf.DimerCentre(0, 35, 120)); got == render.ColTerrace[0] {
 		t.Error("inside of the rectangle drawn as bare terrace")
 	}
 	test.TypeOnCanvas(w.Canvas(), "s")
-	if u.S.Tool != ToolSite {
+	if u.S.Tool != editor.ToolSite {
 		t.Errorf("typing s chose %v", u.S.Tool)
 	}
 }
@@ -187,7 +190,7 @@ func TestVariantSwitchShowsItsRegions(t *testing.T) {
 	surf := u.S.Surface()
 	leadAt := surf.Position(lattice.Site{Row: 100, Dimer: 110})
 	img := zoomOn(w, u, leadAt, 0.05)
-	if got := pixelAt(img, u, leadAt); got == colCleanH {
+	if got := pixelAt(img, u, leadAt); got == render.ColCleanH {
 		t.Fatal("variant A's lead not drawn")
 	}
 	u.variantSelect.SetSelected("B")
@@ -197,11 +200,11 @@ func TestVariantSwitchShowsItsRegions(t *testing.T) {
 	if got := u.regions.list.Length(); got != 1 {
 		t.Errorf("region list shows %d rows, want variant B's 1", got)
 	}
-	if got := pixelAt(w.Canvas().Capture(), u, leadAt); got != colCleanH {
+	if got := pixelAt(w.Canvas().Capture(), u, leadAt); got != render.ColCleanH {
 		t.Errorf("variant B has no lead, but the site is drawn %v", got)
 	}
-	test.Tap(u.toolButtons[ToolEraser])
-	test.Tap(u.toolButtons[ToolSelect])
+	test.Tap(u.toolButtons[editor.ToolEraser])
+	test.Tap(u.toolButtons[editor.ToolSelect])
 	u.S.DuplicateVariant(u.S.VariantIndex())
 	if got := u.variantSelect.Selected; got != "B copy" {
 		t.Errorf("after duplicating, the variant box shows %q", got)

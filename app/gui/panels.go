@@ -15,6 +15,8 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/render"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -206,7 +208,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			}
 			c := o.(*fyne.Container)
 			c.Objects[0].(*widget.Label).SetText(v.Regions[i].Name)
-			c.Objects[1].(*fyne.Container).Objects[0].(*canvas.Rectangle).FillColor = RegionColor(i)
+			c.Objects[1].(*fyne.Container).Objects[0].(*canvas.Rectangle).FillColor = render.RegionColor(i)
 			c.Objects[1].(*fyne.Container).Objects[0].Refresh()
 			c.Objects[2].(*widget.Label).SetText(shortCount(p.u.S.RegionSites(i).Count()) + " sites")
 		})
@@ -377,7 +379,7 @@ func (p *regionsPanel) refresh() {
 	p.refreshGaps()
 	if i, k := s.SelectedShape(); i == a && k >= 0 {
 		b := s.SelectedShapeBounds()
-		p.shape.SetText(fmt.Sprintf("Shape %d of %d: %s, %s x %s. Drag it with the Select tool to move it.", k+1, len(r.Shapes), ShapeName(r.Shapes[k]), formatLength(b.Size().X), formatLength(b.Size().Y)))
+		p.shape.SetText(fmt.Sprintf("Shape %d of %d: %s, %s x %s. Drag it with the Select tool to move it.", k+1, len(r.Shapes), editor.ShapeName(r.Shapes[k]), formatLength(b.Size().X), formatLength(b.Size().Y)))
 		p.shapeBox.Show()
 	} else {
 		p.shapeBox.Hide()
@@ -439,7 +441,7 @@ func newFindingsPanel(u *UI) *findingsPanel {
 	p.list = widget.NewList(
 		func() int { f, _ := p.u.S.Findings(); return len(f) },
 		func() fyne.CanvasObject {
-			sw := canvas.NewRectangle(colError)
+			sw := canvas.NewRectangle(render.ColError)
 			sw.SetMinSize(fyne.NewSize(10, 10))
 			l := widget.NewLabel("rule: message")
 			l.Wrapping = fyne.TextWrapWord
@@ -453,9 +455,9 @@ func newFindingsPanel(u *UI) *findingsPanel {
 			c := o.(*fyne.Container)
 			sw := c.Objects[1].(*fyne.Container).Objects[0].(*canvas.Rectangle)
 			if f[i].Error {
-				sw.FillColor = colError
+				sw.FillColor = render.ColError
 			} else {
-				sw.FillColor = colWarning
+				sw.FillColor = render.ColWarning
 			}
 			sw.Refresh()
 			text := f[i].Rule + ": " + f[i].Message
@@ -485,14 +487,14 @@ func (p *findingsPanel) refresh() {
 	errs, warns := countFindings(f)
 	var text string
 	switch {
-	case p.u.S.findState == nil:
+	case !p.u.S.Checked():
 		text = "Not checked yet."
 	case len(f) == 0:
 		text = "No findings: variant " + p.u.S.Variant().Name + " passes every design rule."
 	default:
 		text = fmt.Sprintf("%s and %s in variant %s.", plural(errs, "error"), plural(warns, "warning"), p.u.S.Variant().Name)
 	}
-	if stale && p.u.S.findState != nil {
+	if stale && p.u.S.Checked() {
 		text += " (The design changed since; checking again…)"
 	}
 	p.summary.SetText(text)
@@ -579,7 +581,7 @@ func (u *UI) renameVariant(i int) {
 		s = strings.TrimSpace(s)
 		for j, v := range u.S.Design().Variants {
 			if s == "" || (j != i && v.Name == s) {
-				return fmt.Errorf("%q: %w", s, ErrName)
+				return fmt.Errorf("%q: %w", s, editor.ErrName)
 			}
 		}
 		return nil

@@ -12,43 +12,23 @@ import (
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 
+	"dimerpath/app/render"
+	"dimerpath/internal/units"
 	"dimerpath/planner"
 )
 
 // Colours of the time breakdown, shared by the plan panel and the
 // comparison view.
 var (
-	colAPWrite = rgb(0xff, 0x9f, 0x1c)
-	colFEWrite = rgb(0x2e, 0xc4, 0xf0)
-	colDwell   = rgb(0xe8, 0x43, 0x93)
-	colTravel  = rgb(0x9a, 0xa4, 0xb4)
-	colSwitch  = rgb(0x9b, 0x6c, 0xff)
-	colRegist  = rgb(0xff, 0xd2, 0x3f)
-	colVerify  = rgb(0x1d, 0xd3, 0xb0)
-	colYield   = rgb(0x51, 0xcf, 0x66)
+	colAPWrite = render.RGB(0xff, 0x9f, 0x1c)
+	colFEWrite = render.RGB(0x2e, 0xc4, 0xf0)
+	colDwell   = render.RGB(0xe8, 0x43, 0x93)
+	colTravel  = render.RGB(0x9a, 0xa4, 0xb4)
+	colSwitch  = render.RGB(0x9b, 0x6c, 0xff)
+	colRegist  = render.RGB(0xff, 0xd2, 0x3f)
+	colVerify  = render.RGB(0x1d, 0xd3, 0xb0)
+	colYield   = render.RGB(0x51, 0xcf, 0x66)
 )
-
-// formatDuration prints seconds as the user reads a write time.
-func formatDuration(s float64) string {
-	switch {
-	case math.IsNaN(s) || math.IsInf(s, 0):
-		return "—"
-	case s == 0:
-		return "0 s"
-	case s < 0.1:
-		return fmt.Sprintf("%.0f ms", s*1000)
-	case s < 60:
-		return fmt.Sprintf("%.1f s", s)
-	case s < 600:
-		m := math.Floor(s / 60)
-		return fmt.Sprintf("%.0f min %02.0f s", m, math.Floor(s-60*m))
-	case s < 3600:
-		return fmt.Sprintf("%.0f min", math.Round(s/60))
-	default:
-		h := math.Floor(s / 3600)
-		return fmt.Sprintf("%.0f h %02.0f min", h, math.Floor((s-3600*h)/60))
-	}
-}
 
 // formatProbability prints a probability as a percentage with three
 // significant digits, or in scientific notation when tiny.
@@ -86,7 +66,7 @@ func breakdownBars(b planner.Breakdown, total float64) []Bar {
 		if total > 0 {
 			pct = 100 * k.s / total
 		}
-		bars = append(bars, Bar{Label: k.label, Value: k.s, Text: fmt.Sprintf("%s  %.0f %%", formatDuration(k.s), pct), Color: k.c})
+		bars = append(bars, Bar{Label: k.label, Value: k.s, Text: fmt.Sprintf("%s  %.0f %%", units.Duration(k.s), pct), Color: k.c})
 	}
 	return bars
 }
@@ -142,8 +122,8 @@ func (p *planPanel) refresh() {
 	}
 	objs = append(objs,
 		wrapLabel("Expected write time, variant "+pl.Variant),
-		bigText(formatDuration(pl.TotalS)),
-		wrapLabel(fmt.Sprintf("Spread  P10 %s · P50 %s · P90 %s", formatDuration(pl.P10S), formatDuration(pl.P50S), formatDuration(pl.P90S))),
+		bigText(units.Duration(pl.TotalS)),
+		wrapLabel(fmt.Sprintf("Spread  P10 %s · P50 %s · P90 %s", units.Duration(pl.P10S), units.Duration(pl.P50S), units.Duration(pl.P90S))),
 	)
 	// What needs the user's attention comes before the details.
 	if f, fstale := s.Findings(); !fstale {

@@ -13,6 +13,7 @@ import (
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 
+	"dimerpath/app/editor"
 	"dimerpath/planner"
 )
 
@@ -156,7 +157,7 @@ func (u *UI) openProfileEditor() *profileEditor {
 	load := widget.NewButtonWithIcon("Load…", theme.FolderOpenIcon(), e.load)
 	save := widget.NewButtonWithIcon("Save as…", theme.DocumentSaveIcon(), e.saveAs)
 	preset := widget.NewSelect(planner.Presets(), func(name string) {
-		if p, err := presetProfile(name); err == nil {
+		if p, err := editor.PresetProfile(name); err == nil {
 			e.fill(p)
 		}
 	})
@@ -240,7 +241,7 @@ func (e *profileEditor) parse() (planner.Profile, error) {
 	if len(bad) > 0 {
 		return p, errors.New(strings.Join(bad, "\n"))
 	}
-	if err := validateProfile(p); err != nil {
+	if err := editor.ValidateProfile(p); err != nil {
 		return p, e.explain(err)
 	}
 	return p, nil
@@ -305,7 +306,7 @@ func (e *profileEditor) load() {
 		}
 		path := r.URI().Path()
 		r.Close()
-		p, err := loadProfile(path)
+		p, err := editor.LoadProfile(path)
 		if err != nil {
 			dialog.ShowError(fmt.Errorf("could not load %s:\n%w", path, err), e.u.Win)
 			return
@@ -326,7 +327,7 @@ func (e *profileEditor) saveAs() {
 		return
 	}
 	e.u.chooseFile(safeFileName(p.Name)+".json", []string{".json"}, func(path string) {
-		if err := saveProfile(path, p); err != nil {
+		if err := editor.SaveProfile(path, p); err != nil {
 			dialog.ShowError(fmt.Errorf("could not save %s:\n%w", path, err), e.u.Win)
 			return
 		}

@@ -8,6 +8,8 @@ import (
 	"fyne.io/fyne/v2/test"
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/editor/editortest"
+	"dimerpath/app/render"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -103,25 +105,8 @@ func TestPolygonLineArrayByClicks(t *testing.T) {
 	}
 }
 
-// twoCloseWindows is the tiny design with two phosphine windows on one
-// row with no intact dimer between them, which the window-spacing rule
-// refuses (at least one intact dimer between windows, the default).
-func twoCloseWindows(t *testing.T) *Session {
-	d := tinyDesign()
-	s, err := NewSession(d, "")
-	if err != nil {
-		t.Fatal(err)
-	}
-	surf := s.Surface()
-	s.SetTool(ToolWindow)
-	s.Select()
-	s.Click(surf.DimerCentre(0, 150, 100), 1)
-	s.Click(surf.DimerCentre(0, 150, 103), 1) // dimers 99-101 and 102-104: touching
-	return s
-}
-
 func TestFindingsListedBoxedAndZoomed(t *testing.T) {
-	u, w := newTestUI(t, twoCloseWindows(t))
+	u, w := newTestUI(t, editortest.TwoCloseWindows(t))
 	u.CheckSync()
 	f, stale := u.S.Findings()
 	if len(f) == 0 || stale {
@@ -154,7 +139,7 @@ func TestFindingsListedBoxedAndZoomed(t *testing.T) {
 	for dx := -40; dx <= 40; dx++ {
 		for dy := -40; dy <= 40; dy++ {
 			c := img.At(int(q.X)+dx, int(q.Y)+dy)
-			if r, g, b, _ := c.RGBA(); r>>8 == uint32(colError.R) && g>>8 == uint32(colError.G) && b>>8 == uint32(colError.B) {
+			if r, g, b, _ := c.RGBA(); r>>8 == uint32(render.ColError.R) && g>>8 == uint32(render.ColError.G) && b>>8 == uint32(render.ColError.B) {
 				red++
 			}
 		}
@@ -165,7 +150,8 @@ func TestFindingsListedBoxedAndZoomed(t *testing.T) {
 	// Moving a window apart clears the error.
 	u.S.Undo()
 	u.CheckSync()
-	for _, x := range u.S.findings {
+	after, _ := u.S.Findings()
+	for _, x := range after {
 		if x.Rule == design.RuleWindowSpacing {
 			t.Errorf("after undoing the second window: %+v", x)
 		}

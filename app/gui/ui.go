@@ -16,6 +16,8 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/render"
 	"dimerpath/planner"
 )
 
@@ -43,7 +45,7 @@ type Options struct {
 type UI struct {
 	App  fyne.App
 	Win  fyne.Window
-	S    *Session
+	S    *editor.Session
 	View *LatticeView
 	opts Options
 
@@ -60,7 +62,7 @@ type UI struct {
 	tabVariants *container.TabItem
 	tabMarks    *container.TabItem
 
-	toolButtons   map[Tool]*widget.Button
+	toolButtons   map[editor.Tool]*widget.Button
 	toolOptions   *fyne.Container
 	variantSelect *widget.Select
 	undoButton    *widget.Button
@@ -88,8 +90,8 @@ type UI struct {
 	checkCancel  context.CancelFunc
 	checkTimer   *time.Timer
 	stopAutosave chan struct{}
-	lastAutosave *snapshot // the undo state the recovery copy holds
-	autosaving   bool      // a recovery copy is being written
+	lastAutosave editor.PlanToken // the undo state the recovery copy holds
+	autosaving   bool             // a recovery copy is being written
 	recovery     *recoveryFiles
 
 	// jobDone, when set (by tests), is called after a background plan or
@@ -99,13 +101,13 @@ type UI struct {
 
 // New builds the main window's content in w for session s and wires the
 // menus, shortcuts and close prompt. It does not show the window.
-func New(a fyne.App, w fyne.Window, s *Session, o Options) *UI {
+func New(a fyne.App, w fyne.Window, s *editor.Session, o Options) *UI {
 	if o.CheckDelay == 0 {
 		o.CheckDelay = 400 * time.Millisecond
 	}
 	// Before any file dialog: saving must never empty a file first.
 	installLazyFiles()
-	u := &UI{App: a, Win: w, S: s, opts: o, toolButtons: map[Tool]*widget.Button{}, recovery: &recoveryFiles{}}
+	u := &UI{App: a, Win: w, S: s, opts: o, toolButtons: map[editor.Tool]*widget.Button{}, recovery: &recoveryFiles{}}
 	u.View = NewLatticeView(s)
 	u.View.OnCursor = u.showCursor
 	u.View.OnRune = u.typedRune
@@ -123,7 +125,7 @@ func New(a fyne.App, w fyne.Window, s *Session, o Options) *UI {
 }
 
 // attach makes s the session the window shows.
-func (u *UI) attach(s *Session) {
+func (u *UI) attach(s *editor.Session) {
 	if u.S != nil && u.S != s {
 		u.S.OnChange = nil
 	}
@@ -135,59 +137,59 @@ func (u *UI) attach(s *Session) {
 }
 
 // SetSession replaces the design shown (after File > Open or New).
-func (u *UI) SetSession(s *Session) {
+func (u *UI) SetSession(s *editor.Session) {
 	u.cancelPlan()
 	u.attach(s)
-	u.lastAutosave = nil
+	u.lastAutosave = editor.PlanToken{}
 	u.refreshAll()
 	u.View.Refresh()
 	u.scheduleCheck()
 }
 
 func (u *UI) refreshAll() {
-	u.changed(ChangeAll)
+	u.changed(editor.ChangeAll)
 }
 
 // changed updates the views that show what changed.
-func (u *UI) changed(c Change) {
-	if c&(ChangeSites|ChangeSelection|ChangePlan|ChangeFindings|ChangePreview|ChangeTerraces|ChangeFiducials|ChangeVariants|ChangeRegions) != 0 {
+func (u *UI) changed(c editor.Change) {
+	if c&(editor.ChangeSites|editor.ChangeSelection|editor.ChangePlan|editor.ChangeFindings|editor.ChangePreview|editor.ChangeTerraces|editor.ChangeFiducials|editor.ChangeVariants|editor.ChangeRegions) != 0 {
 		u.View.Invalidate()
 	}
-	if c&(ChangeRegions|ChangeSelection|ChangeVariants) != 0 {
+	if c&(editor.ChangeRegions|editor.ChangeSelection|editor.ChangeVariants) != 0 {
 		u.regions.refresh()
 	}
-	if c&(ChangeFindings|ChangeVariants|ChangeHistory) != 0 {
+	if c&(editor.ChangeFindings|editor.ChangeVariants|editor.ChangeHistory) != 0 {
 		u.findings.refresh()
 	}
-	if c&ChangeFindings != 0 && c&(ChangeRegions|ChangeSelection|ChangeVariants) == 0 {
+	if c&editor.ChangeFindings != 0 && c&(editor.ChangeRegions|editor.ChangeSelection|editor.ChangeVariants) == 0 {
 		u.regions.refreshGaps() // the widths measured by the check
 	}
-	if c&(ChangePlan|ChangeVariants|ChangeHistory) != 0 {
+	if c&(editor.ChangePlan|editor.ChangeVariants|editor.ChangeHistory) != 0 {
 		u.planView.refresh()
 	}
-	if c&(ChangeVariants|ChangeHistory) != 0 {
+	if c&(editor.ChangeVariants|editor.ChangeHistory) != 0 {
 		u.variants.refresh()
 		u.variantSelect.Options = u.S.VariantNames()
 		u.variantSelect.Selected = u.S.Variant().Name
 		u.variantSelect.Refresh()
 	}
-	if c&(ChangeFiducials|ChangeTerraces|ChangeFile|ChangeVariants) != 0 {
+	if c&(editor.ChangeFiducials|editor.ChangeTerraces|editor.ChangeFile|editor.ChangeVariants) != 0 {
 		u.marks.refresh()
 	}
-	if c&ChangeTool != 0 {
+	if c&editor.ChangeTool != 0 {
 		u.refreshTools()
 	}
-	if c&(ChangeTool|ChangeSelection|ChangeRegions|ChangeVariants) != 0 {
+	if c&(editor.ChangeTool|editor.ChangeSelection|editor.ChangeRegions|editor.ChangeVariants) != 0 {
 		u.refreshHint()
 	}
-	if c&(ChangeRegions|ChangePlan|ChangeFindings|ChangeVariants|ChangeHistory|ChangeTerraces|ChangeFiducials) != 0 {
+	if c&(editor.ChangeRegions|editor.ChangePlan|editor.ChangeFindings|editor.ChangeVariants|editor.ChangeHistory|editor.ChangeTerraces|editor.ChangeFiducials) != 0 {
 		u.refreshLegend()
 	}
-	if c&(ChangeFile|ChangeHistory) != 0 {
+	if c&(editor.ChangeFile|editor.ChangeHistory) != 0 {
 		u.Win.SetTitle(u.S.Title())
 		u.refreshHistory()
 	}
-	if c&ChangeHistory != 0 {
+	if c&editor.ChangeHistory != 0 {
 		u.scheduleCheck()
 	}
 	if u.S.Err != nil {
@@ -259,7 +261,7 @@ func (u *UI) content() fyne.CanvasObject {
 	left := container.NewVScroll(container.NewThemeOverride(u.toolPalette(), compactTheme()))
 	right := container.New(&fixedWidth{w: 350}, container.New(layout.NewCustomPaddedLayout(0, 0, 0, 6), u.tabs))
 	status := container.NewBorder(nil, nil, container.New(&fixedWidth{w: 520}, u.cursorLabel), u.progressBox, u.hintLabel)
-	viewFrame := container.NewStack(canvas.NewRectangle(colOutside), u.View)
+	viewFrame := container.NewStack(canvas.NewRectangle(render.ColOutside), u.View)
 	return container.NewBorder(
 		container.NewVBox(toolbar, widget.NewSeparator()),
 		container.NewVBox(widget.NewSeparator(), status),
@@ -292,7 +294,7 @@ func heading(s string) *widget.Label {
 // options, and what the view overlays.
 func (u *UI) toolPalette() fyne.CanvasObject {
 	var buttons []fyne.CanvasObject
-	for _, ti := range Tools {
+	for _, ti := range editor.Tools {
 		t := ti.Tool
 		b := widget.NewButton(fmt.Sprintf("%s  %c", ti.Name, ti.Key-'a'+'A'), func() { u.S.SetTool(t) })
 		b.Alignment = widget.ButtonAlignLeading
@@ -355,16 +357,16 @@ func (u *UI) refreshHint() {
 	s := u.S
 	hint := s.Tool.Info().Hint
 	switch s.Tool {
-	case ToolSite, ToolDimer, ToolRect, ToolPolygon, ToolLine:
+	case editor.ToolSite, editor.ToolDimer, editor.ToolRect, editor.ToolPolygon, editor.ToolLine:
 		if a := s.Active(); a >= 0 {
 			hint = fmt.Sprintf("Adds to %s (Esc for a new region). %s", s.Variant().Regions[a].Name, hint)
 		} else {
 			hint = "Starts a new region. " + hint
 		}
-	case ToolSelect:
+	case editor.ToolSelect:
 		if i, k := s.SelectedShape(); i >= 0 {
 			r := s.Variant().Regions[i]
-			hint = fmt.Sprintf("Selected %s %d of %d in %s: drag to move, Delete removes, Esc deselects.", ShapeName(r.Shapes[k]), k+1, len(r.Shapes), r.Name)
+			hint = fmt.Sprintf("Selected %s %d of %d in %s: drag to move, Delete removes, Esc deselects.", editor.ShapeName(r.Shapes[k]), k+1, len(r.Shapes), r.Name)
 		}
 	}
 	u.hintLabel.SetText(hint)
@@ -402,7 +404,7 @@ func (u *UI) optionEntry(label string, value string, apply func(string) error) f
 	return container.NewVBox(l, e, msg)
 }
 
-func (u *UI) setOpt(f func(o *ToolOptions) error) error {
+func (u *UI) setOpt(f func(o *editor.ToolOptions) error) error {
 	o := u.S.Opts
 	if err := f(&o); err != nil {
 		return err
@@ -410,56 +412,56 @@ func (u *UI) setOpt(f func(o *ToolOptions) error) error {
 	return u.S.SetOptions(o)
 }
 
-func (u *UI) optionsFor(t Tool) []fyne.CanvasObject {
+func (u *UI) optionsFor(t editor.Tool) []fyne.CanvasObject {
 	o := u.S.Opts
-	num := func(label string, v float64, set func(o *ToolOptions, v float64)) fyne.CanvasObject {
+	num := func(label string, v float64, set func(o *editor.ToolOptions, v float64)) fyne.CanvasObject {
 		return u.optionEntry(label, trimZeros(fmt.Sprintf("%.3f", v)), func(s string) error {
 			x, err := parseNumber(label, s)
 			if err != nil {
 				return err
 			}
-			return u.setOpt(func(o *ToolOptions) error { set(o, x); return nil })
+			return u.setOpt(func(o *editor.ToolOptions) error { set(o, x); return nil })
 		})
 	}
 	template := func() fyne.CanvasObject {
 		sel := widget.NewSelect(u.templateNames(), func(name string) {
-			u.setOpt(func(o *ToolOptions) error { o.Template = name; return nil })
+			u.setOpt(func(o *editor.ToolOptions) error { o.Template = name; return nil })
 		})
 		sel.Selected = o.Template
 		return container.NewVBox(widget.NewLabel("Window template"), sel, u.templateInfo(o.Template))
 	}
 	switch t {
-	case ToolSite, ToolDimer, ToolEraser:
-		return []fyne.CanvasObject{num("Brush radius, nm (0: one at a time)", o.BrushNM, func(o *ToolOptions, v float64) { o.BrushNM = v })}
-	case ToolLine:
-		return []fyne.CanvasObject{num("Line width (nm)", o.LineWidthNM, func(o *ToolOptions, v float64) { o.LineWidthNM = v })}
-	case ToolWindow:
+	case editor.ToolSite, editor.ToolDimer, editor.ToolEraser:
+		return []fyne.CanvasObject{num("Brush radius, nm (0: one at a time)", o.BrushNM, func(o *editor.ToolOptions, v float64) { o.BrushNM = v })}
+	case editor.ToolLine:
+		return []fyne.CanvasObject{num("Line width (nm)", o.LineWidthNM, func(o *editor.ToolOptions, v float64) { o.LineWidthNM = v })}
+	case editor.ToolWindow:
 		return []fyne.CanvasObject{template()}
-	case ToolArray:
+	case editor.ToolArray:
 		of := widget.NewSelect([]string{"window", "dimer", "site"}, func(s string) {
-			u.setOpt(func(o *ToolOptions) error { o.ArrayOf = s; return nil })
+			u.setOpt(func(o *editor.ToolOptions) error { o.ArrayOf = s; return nil })
 		})
 		of.Selected = o.ArrayOf
 		// Label and field side by side: the four numbers then fit the
 		// column of a laptop screen without scrolling.
 		msg := errorLabel()
 		form := widget.NewForm()
-		field := func(label string, v int, set func(o *ToolOptions, v int)) {
+		field := func(label string, v int, set func(o *editor.ToolOptions, v int)) {
 			e := widget.NewEntry()
 			e.SetText(fmt.Sprint(v))
 			e.OnChanged = func(s string) {
 				x, err := parseInt(label, s)
 				if err == nil {
-					err = u.setOpt(func(o *ToolOptions) error { set(o, x); return nil })
+					err = u.setOpt(func(o *editor.ToolOptions) error { set(o, x); return nil })
 				}
 				showErr(msg, err)
 			}
 			form.Append(label, e)
 		}
-		field("Columns", o.ArrayCols, func(o *ToolOptions, v int) { o.ArrayCols = v })
-		field("Rows", o.ArrayRows, func(o *ToolOptions, v int) { o.ArrayRows = v })
-		field("Dimer pitch", o.ArrayPitchDimers, func(o *ToolOptions, v int) { o.ArrayPitchDimers = v })
-		field("Row pitch", o.ArrayPitchRows, func(o *ToolOptions, v int) { o.ArrayPitchRows = v })
+		field("Columns", o.ArrayCols, func(o *editor.ToolOptions, v int) { o.ArrayCols = v })
+		field("Rows", o.ArrayRows, func(o *editor.ToolOptions, v int) { o.ArrayRows = v })
+		field("Dimer pitch", o.ArrayPitchDimers, func(o *editor.ToolOptions, v int) { o.ArrayPitchDimers = v })
+		field("Row pitch", o.ArrayPitchRows, func(o *editor.ToolOptions, v int) { o.ArrayPitchRows = v })
 		return []fyne.CanvasObject{
 			container.NewBorder(nil, nil, widget.NewLabel("Repeat"), nil, of), template(), form, msg,
 			mutedLabel("Pitches count dimers along the row and rows across it."),
@@ -475,7 +477,7 @@ func (u *UI) templateNames() []string {
 }
 
 func (u *UI) templateInfo(name string) fyne.CanvasObject {
-	t, ok := templateOf(u.S.Design(), name)
+	t, ok := editor.TemplateOf(u.S.Design(), name)
 	if !ok {
 		return widget.NewLabel("")
 	}
@@ -531,22 +533,22 @@ func (u *UI) refreshLegend() {
 			rows = append(rows, legendRow(swatch(color.Transparent, 12, 12), fmt.Sprintf("… %d more in Regions", len(v.Regions)-maxRegions)))
 			break
 		}
-		rows = append(rows, legendRow(swatch(RegionColor(i), 12, 12), fmt.Sprintf("%s (%s)", legendName(r.Name), roleOf(r.Role))))
+		rows = append(rows, legendRow(swatch(render.RegionColor(i), 12, 12), fmt.Sprintf("%s (%s)", legendName(r.Name), roleOf(r.Role))))
 	}
 	if len(v.Regions) == 0 {
-		rows = append(rows, legendRow(swatch(colCleanH, 12, 12), "clean H-terminated surface"))
+		rows = append(rows, legendRow(swatch(render.ColCleanH, 12, 12), "clean H-terminated surface"))
 	}
 	if p, stale := u.S.Plan(); p != nil && u.View.Opts.Route {
 		rows = append(rows, widget.NewSeparator())
 		segs := container.NewHBox()
 		for i := 0; i < min(len(p.Segments), 6); i++ {
-			segs.Add(swatch(SegmentColor(i), 8, 12))
+			segs.Add(swatch(render.SegmentColor(i), 8, 12))
 		}
 		rows = append(rows, container.NewHBox(segs, legendText(fmt.Sprintf("strokes by segment (%d)", len(p.Segments)))))
 		if stale {
 			rows = append(rows, legendRow(swatch(color.Transparent, 12, 12), "route out of date: plan again"))
 		}
-		rows = append(rows, legendRow(swatch(colMove, 14, 1), "tip moves"))
+		rows = append(rows, legendRow(swatch(render.ColMove, 14, 1), "tip moves"))
 		rows = append(rows, legendRow(legendText("◇"), "registration on a fiducial"))
 	}
 	if len(u.S.Design().Fiducials) > 0 {
@@ -555,17 +557,17 @@ func (u *UI) refreshLegend() {
 	if surf := u.S.Surface(); surf != nil && len(surf.Terraces) > 1 {
 		rows = append(rows, widget.NewSeparator())
 		for i, t := range surf.Terraces {
-			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: rows along %s", legendName(t.Name), t.Rows)))
+			rows = append(rows, legendRow(swatch(render.ColTerrace[i%len(render.ColTerrace)], 12, 12), fmt.Sprintf("terrace %s: rows along %s", legendName(t.Name), t.Rows)))
 		}
-		rows = append(rows, legendRow(swatch(colStep, 14, 2), "step edge"))
+		rows = append(rows, legendRow(swatch(render.ColStep, 14, 2), "step edge"))
 	}
 	if f, _ := u.S.Findings(); len(f) > 0 && u.View.Opts.Findings {
 		errs, warns := countFindings(f)
 		if errs > 0 {
-			rows = append(rows, legendRow(swatch(colError, 12, 12), "design-rule error"))
+			rows = append(rows, legendRow(swatch(render.ColError, 12, 12), "design-rule error"))
 		}
 		if warns > 0 {
-			rows = append(rows, legendRow(swatch(colWarning, 12, 12), "design-rule warning"))
+			rows = append(rows, legendRow(swatch(render.ColWarning, 12, 12), "design-rule warning"))
 		}
 	}
 	u.legend.Objects = rows
@@ -575,7 +577,7 @@ func (u *UI) refreshLegend() {
 }
 
 // countFindings returns the numbers of errors and of warnings.
-func countFindings(f []Finding) (errs, warns int) {
+func countFindings(f []editor.Finding) (errs, warns int) {
 	for _, x := range f {
 		if x.Error {
 			errs++
@@ -647,7 +649,7 @@ func (u *UI) typedRune(r rune) {
 		u.View.Fit()
 		return
 	}
-	for _, ti := range Tools {
+	for _, ti := range editor.Tools {
 		if r == ti.Key || r == ti.Key-'a'+'A' {
 			u.S.SetTool(ti.Tool)
 			return
@@ -754,7 +756,7 @@ func (u *UI) buildMenu() {
 		fyne.NewMenuItem("Select nothing (Esc)", func() { u.S.Select() }),
 	)
 	var toolItems []*fyne.MenuItem
-	for _, ti := range Tools {
+	for _, ti := range editor.Tools {
 		t := ti.Tool
 		toolItems = append(toolItems, fyne.NewMenuItem(fmt.Sprintf("%s (%c)", ti.Name, ti.Key-'a'+'A'), func() { u.S.SetTool(t) }))
 	}
@@ -805,7 +807,7 @@ func (u *UI) showCaution() {
 // it does.
 func keyHelp() [][2]string {
 	var rows [][2]string
-	for _, ti := range Tools {
+	for _, ti := range editor.Tools {
 		rows = append(rows, [2]string{string(ti.Key - 'a' + 'A'), ti.Name + ": " + ti.Hint})
 	}
 	return append(rows,

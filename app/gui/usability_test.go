@@ -12,6 +12,8 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/editor/editortest"
 	"dimerpath/export"
 )
 
@@ -32,7 +34,7 @@ func TestClickOnTheLatticeTakesTheKeys(t *testing.T) {
 	}
 	// A tool's letter now picks the tool and leaves the name alone.
 	c.Focused().(fyne.Focusable).TypedRune('r')
-	if u.S.Tool != ToolRect {
+	if u.S.Tool != editor.ToolRect {
 		t.Errorf("typing r picked %v, want the rectangle tool", u.S.Tool.Info().Name)
 	}
 	if got := u.S.Variant().Regions[0].Name; got != "island" {
@@ -53,7 +55,7 @@ func fieldAndLegend(u *UI) (field, legend r2.Rect) {
 
 func TestLegendNeverCoversTheFittedField(t *testing.T) {
 	for _, size := range []fyne.Size{{Width: 1280, Height: 800}, {Width: 1600, Height: 1000}} {
-		s := newTestSession(t)
+		s := editortest.Tiny(t)
 		u, w := newTestUI(t, s)
 		w.Resize(size)
 		w.Canvas().Capture()
@@ -63,7 +65,7 @@ func TestLegendNeverCoversTheFittedField(t *testing.T) {
 		if err := u.S.RenameRegion(0, "sensor island with a long descriptive name"); err != nil {
 			t.Fatal(err)
 		}
-		u.S.SetPlan(handPlan(u.S), "A", PlanToken{})
+		u.S.SetPlan(editortest.HandPlan(u.S), "A", editor.PlanToken{})
 		u.CheckSync()
 		w.Canvas().Capture()
 		if !strings.Contains(texts(u.legend), "route out of date") {
@@ -85,7 +87,7 @@ func TestLegendNeverCoversTheFittedField(t *testing.T) {
 
 func TestComparisonFitsItsDialog(t *testing.T) {
 	u, w := newTestUI(t, nil)
-	p := handPlan(u.S)
+	p := editortest.HandPlan(u.S)
 	res := []export.VariantResult{
 		{Variant: "A", Plan: p},
 		{Variant: "gate-written-in-FE-mode", Plan: p},
@@ -109,7 +111,7 @@ func TestComparisonFitsItsDialog(t *testing.T) {
 }
 
 func TestUntitledDesignTakesItsFileName(t *testing.T) {
-	s, err := NewSession(NewDesign(), "")
+	s, err := editor.NewSession(editor.NewDesign(), "")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -163,7 +165,7 @@ func TestExportWaitingForAPlanGoesOn(t *testing.T) {
 	u, _ := newTestUI(t, nil)
 	went := 0
 	u.afterPlan = func() { went++ }
-	u.planDone(u.S, handPlan(u.S), "A", u.S.Token(), nil)
+	u.planDone(u.S, editortest.HandPlan(u.S), "A", u.S.Token(), nil)
 	if went != 1 || u.afterPlan != nil {
 		t.Errorf("after the plan: the waiting export ran %d times, still waiting %v", went, u.afterPlan != nil)
 	}

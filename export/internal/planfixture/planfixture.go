@@ -34,8 +34,9 @@ type Device struct {
 	Plan    *planner.Plan
 }
 
-// Tip conditions of the fixtures (values in the ranges physics.md §3
-// gives; AP: Schmucker et al. 2012's +4 V, 2 nA, 2 mC/cm, hence 10 nm/s).
+// Tip conditions of the fixtures (AP: the +4 V, 2 nA, 2 mC/cm of
+// Schmucker et al., Nat. Commun. 3 (2012), hence 10 nm/s; FE: inside the
+// usual +7–10 V, 1–10 nA, from memory).
 var (
 	apConditions = planner.Conditions{Mode: planner.AP, Kind: planner.StrokeLine, BiasV: 4, CurrentA: 2e-9, LineDoseCPerCm: 2e-3,
 		SpeedNMPerS: 10, LineWidthNM: 0.8, Passes: 2}

@@ -1,4 +1,4 @@
-package gui
+package render
 
 import (
 	"github.com/golang/geo/r2"
@@ -6,57 +6,6 @@ import (
 	"dimerpath/lattice"
 	"dimerpath/planner"
 )
-
-// SceneOptions choose what the lattice view overlays.
-type SceneOptions struct {
-	Route    bool // the plan's route, when the current variant has one
-	Findings bool // design-rule findings
-}
-
-// Scene returns what the lattice view draws for the current variant.
-func (s *Session) Scene(o SceneOptions) *Scene {
-	sc := &Scene{Surface: s.surf}
-	sel := map[int]bool{}
-	for _, i := range s.sel {
-		sel[i] = true
-	}
-	for i := range s.Variant().Regions {
-		sc.Layers = append(sc.Layers, Layer{
-			Sites:    s.RegionSites(i),
-			Color:    RegionColor(i),
-			Bounds:   s.RegionBounds(i),
-			Selected: sel[i],
-		})
-		if sel[i] {
-			if b := s.RegionBounds(i); !b.IsEmpty() {
-				sc.Selected = append(sc.Selected, b)
-			}
-		}
-	}
-	if b := s.SelectedShapeBounds(); !b.IsEmpty() {
-		sc.SelectedShape = &b
-	}
-	for _, f := range s.d.Fiducials {
-		sc.Fiducials = append(sc.Fiducials, r2.Point{X: f.AtNM[0], Y: f.AtNM[1]})
-	}
-	if o.Route {
-		if p, _ := s.Plan(); p != nil {
-			sc.Route = RouteOf(p)
-			sc.DimLayers = true
-		}
-	}
-	if o.Findings {
-		for i, f := range s.findings {
-			b := f.Bounds
-			if b.IsEmpty() {
-				b = r2.RectFromPoints(f.At)
-			}
-			sc.Marks = append(sc.Marks, Mark{Bounds: b, Error: f.Error, Selected: i == s.chosen})
-		}
-	}
-	sc.Preview = s.Preview()
-	return sc
-}
 
 // RouteOf reduces a plan to the route overlay: strokes coloured by
 // segment and as wide as their mode's line, idle moves, and the

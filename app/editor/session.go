@@ -1,4 +1,4 @@
-package gui
+package editor
 
 import (
 	"errors"
@@ -9,6 +9,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/render"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
@@ -957,7 +958,7 @@ func (s *Session) DeleteTerrace(i int) error {
 				if set != nil && set.TerraceCount() > i {
 					for t := i; t < set.TerraceCount(); t++ {
 						for row := 0; row < set.RowCount(t); row++ {
-							if countRange(set.Row(t, row), 0, math.MaxInt) > 0 {
+							if render.CountRange(set.Row(t, row), 0, math.MaxInt) > 0 {
 								return fmt.Errorf("terrace %s: region %q of variant %q has painted sites on it or a later terrace; erase them first", s.d.Terraces[i].Name, r.Name, v.Name)
 							}
 						}
@@ -999,6 +1000,30 @@ type PlanToken struct{ state *snapshot }
 
 // Token returns the current design state's token.
 func (s *Session) Token() PlanToken { return PlanToken{s.hist.current()} }
+
+// Design assembles the design of the token's state for reading: the
+// regions are the state's own, which nothing changes. The zero token
+// has none and returns nil.
+func (t PlanToken) Design() *design.Design {
+	snap := t.state
+	if snap == nil {
+		return nil
+	}
+	d := *snap.shell
+	d.Variants = slices.Clone(snap.shell.Variants)
+	for v := range d.Variants {
+		rs := make([]design.Region, len(snap.regions[v]))
+		for i, sr := range snap.regions[v] {
+			rs[i] = sr.region
+		}
+		d.Variants[v].Regions = rs
+	}
+	return &d
+}
+
+// Checked reports whether any design-rule check has reported since the
+// session opened.
+func (s *Session) Checked() bool { return s.findState != nil }
 
 // Findings returns the last design-rule findings of the current variant
 // and whether they are out of date.

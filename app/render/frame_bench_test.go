@@ -1,4 +1,4 @@
-package gui
+package render_test
 
 import (
 	"context"
@@ -6,6 +6,9 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/editor/editortest"
+	"dimerpath/app/render"
 	"dimerpath/planner"
 )
 
@@ -15,14 +18,14 @@ import (
 // baseline: filling the same buffer with one colour, the least any
 // frame costs.
 func BenchmarkFrame(b *testing.B) {
-	sc := bigScene(b, 10_000_000)
+	sc := render.BigScene(b, 10_000_000)
 	if n := sc.Layers[0].Sites.Count(); n < 10_000_000 {
 		b.Fatalf("scene holds %d sites, want >= 1e7", n)
 	}
-	whole := FitView(sc.Surface.Field, 1600, 1000, 20)
+	whole := render.FitView(sc.Surface.Field, 1600, 1000, 20)
 	views := []struct {
 		name string
-		v    View
+		v    render.View
 	}{
 		{"whole-field", whole},
 		{"edge-1nm-px", whole.CenteredOn(r2.Point{X: 1250, Y: 700}, 1)},
@@ -39,15 +42,15 @@ func BenchmarkFrame(b *testing.B) {
 			name += "-aliased"
 		}
 		b.Run(name, func(b *testing.B) {
-			s := demoSession(b)
-			p, err := buildPlan(context.Background(), s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: 1})
+			s := editortest.Demo(b)
+			p, err := editor.BuildPlan(context.Background(), s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: 1})
 			if err != nil {
 				b.Fatal(err)
 			}
 			s.SetPlan(p, s.Variant().Name, s.Token())
-			sc := s.Scene(SceneOptions{Route: true, Findings: true})
-			v := FitView(s.Surface().Field, 1600, 1000, 20)
-			r := Renderer{Aliased: aliased}
+			sc := s.Scene(editor.SceneOptions{Route: true, Findings: true})
+			v := render.FitView(s.Surface().Field, 1600, 1000, 20)
+			r := render.Renderer{Aliased: aliased}
 			r.Render(sc, v)
 			b.ReportAllocs()
 			for b.Loop() {
@@ -56,17 +59,17 @@ func BenchmarkFrame(b *testing.B) {
 		})
 	}
 	b.Run("Clear", func(b *testing.B) {
-		var r Renderer
+		var r render.Renderer
 		r.Render(nil, whole)
-		p := packRGBA(colOutside)
+		p := render.PackRGBA(render.ColOutside)
 		b.ReportAllocs()
 		for b.Loop() {
-			fill(r.pix, p)
+			render.Fill(r.Pix(), p)
 		}
 	})
 	for _, c := range views {
 		b.Run(c.name, func(b *testing.B) {
-			var r Renderer
+			var r render.Renderer
 			r.Render(sc, c.v)
 			b.ReportAllocs()
 			for b.Loop() {

@@ -1,4 +1,4 @@
-package gui
+package render
 
 import (
 	"image/color"

@@ -1,4 +1,4 @@
-package gui
+package editor
 
 import (
 	"fmt"
@@ -7,6 +7,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/render"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -56,7 +57,7 @@ func (s *Session) SelectShape(i, k int) bool {
 	if i < 0 || i >= len(v.Regions) || k < 0 || k >= len(v.Regions[i].Shapes) {
 		return false
 	}
-	sites, err := shapeSites(s.surf, s.d, &v.Regions[i].Shapes[k])
+	sites, err := ShapeSites(s.surf, s.d, &v.Regions[i].Shapes[k])
 	if err != nil {
 		s.Err = err
 		return false
@@ -86,7 +87,7 @@ func (s *Session) ShapeAt(p r2.Point) (region, shape int) {
 			}
 			continue
 		}
-		sites, err := shapeSites(s.surf, s.d, &r.Shapes[k])
+		sites, err := ShapeSites(s.surf, s.d, &r.Shapes[k])
 		if err == nil && sites.Contains(site) {
 			return region, k
 		}
@@ -216,7 +217,7 @@ func (s *Session) MoveSelectedShape(d r2.Point) r2.Point {
 		return step
 	}
 	moved := movedShape(sh, step)
-	sites, err := shapeSites(s.surf, s.d, &moved)
+	sites, err := ShapeSites(s.surf, s.d, &moved)
 	if err != nil {
 		s.Err = err
 		return r2.Point{}
@@ -254,7 +255,7 @@ func (s *Session) shapeAnchor(sh design.Shape) r2.Point {
 // movePreview returns the outline of the selected shape moved by the
 // lattice vector nearest d: the figure itself for rectangles, polygons
 // and lines, the extent of its sites for the others.
-func (s *Session) movePreview(d r2.Point) *Preview {
+func (s *Session) movePreview(d r2.Point) *render.Preview {
 	i, k := s.SelectedShape()
 	if i < 0 {
 		return nil
@@ -268,16 +269,16 @@ func (s *Session) movePreview(d r2.Point) *Preview {
 	}
 	switch m.Kind {
 	case design.ShapeRect:
-		return &Preview{Points: ps, Rect: true}
+		return &render.Preview{Points: ps, Rect: true}
 	case design.ShapePolygon:
-		return &Preview{Points: ps, Closed: true}
+		return &render.Preview{Points: ps, Closed: true}
 	case design.ShapePolyline:
-		return &Preview{Points: ps, WidthNM: m.WidthNM}
+		return &render.Preview{Points: ps, WidthNM: m.WidthNM}
 	}
 	b := s.shapeSel.bounds
 	if b.IsEmpty() {
 		return nil
 	}
 	lo, hi := b.Lo().Add(step), b.Hi().Add(step)
-	return &Preview{Points: []r2.Point{lo, hi}, Rect: true}
+	return &render.Preview{Points: []r2.Point{lo, hi}, Rect: true}
 }

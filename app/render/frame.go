@@ -1,4 +1,4 @@
-package gui
+package render
 
 import (
 	"image"
@@ -164,7 +164,7 @@ func (r *Renderer) Render(sc *Scene, v View) *image.RGBA {
 		return r.img
 	}
 	if sc == nil || sc.Surface == nil {
-		fill(r.pix, packRGBA(colOutside))
+		fill(r.pix, packRGBA(ColOutside))
 		return r.img
 	}
 	r.prepareTerraces(sc.Surface, v)
@@ -401,8 +401,8 @@ func rowSpan(w []uint64) (first, last int) {
 	return i*64 + bits.TrailingZeros64(w[i]), j*64 + 64 - bits.LeadingZeros64(w[j])
 }
 
-// countRange returns the number of set bits [lo, hi) of a row bitset.
-func countRange(w []uint64, lo, hi int) uint32 {
+// CountRange returns the number of set bits [lo, hi) of a row bitset.
+func CountRange(w []uint64, lo, hi int) uint32 {
 	n := len(w) * 64
 	if hi > n {
 		hi = n
@@ -503,7 +503,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 								// The common case, one word: inline.
 								c = uint32(bits.OnesCount64(words[k] >> (uint(lo) & 63) & (^uint64(0) >> (64 - uint(hi-lo)))))
 							} else {
-								c = countRange(words, lo, hi)
+								c = CountRange(words, lo, hi)
 							}
 							if c != 0 {
 								line[x] += c
@@ -524,7 +524,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 						rr := tb.across[x]
 						var c uint32
 						for row := int(rr.lo); row < min(int(rr.hi), setRows); row++ {
-							c += countRange(L.Sites.Row(t, row), int(a.lo), int(a.hi))
+							c += CountRange(L.Sites.Row(t, row), int(a.lo), int(a.hi))
 						}
 						if c != 0 {
 							line[x] = c
@@ -563,7 +563,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 		for t := range nt {
 			tb := &r.tabs[t]
 			if tb.alongOfX {
-				rowBG[t] = bg.terrace[t%len(colTerrace)][tb.shade[y]]
+				rowBG[t] = bg.terrace[t%len(ColTerrace)][tb.shade[y]]
 			}
 		}
 		base := y * w
@@ -585,7 +585,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 				if tb.alongOfX {
 					pix[x] = rowBG[t]
 				} else {
-					pix[x] = bg.terrace[int(t)%len(colTerrace)][tb.shade[x]]
+					pix[x] = bg.terrace[int(t)%len(ColTerrace)][tb.shade[x]]
 				}
 				continue
 			}
@@ -620,11 +620,11 @@ func (r *Renderer) background() *backgrounds {
 	if r.bg != nil {
 		return r.bg
 	}
-	b := &backgrounds{outside: packRGBA(colOutside), noTerrace: packRGBA(colNoTerrace)}
-	b.terrace = make([][3]uint32, len(colTerrace))
-	for i, c := range colTerrace {
+	b := &backgrounds{outside: packRGBA(ColOutside), noTerrace: packRGBA(ColNoTerrace)}
+	b.terrace = make([][3]uint32, len(ColTerrace))
+	for i, c := range ColTerrace {
 		// plain, trough between rows, hatch line
-		b.terrace[i] = [3]uint32{packRGBA(c), packRGBA(mix(c, rgb(0, 0, 0), 0.3)), packRGBA(mix(c, colHatch, 0.6))}
+		b.terrace[i] = [3]uint32{packRGBA(c), packRGBA(Mix(c, RGB(0, 0, 0), 0.3)), packRGBA(Mix(c, ColHatch, 0.6))}
 	}
 	r.bg = b
 	return b
@@ -640,11 +640,11 @@ func (r *Renderer) buildLUT(sc *Scene) {
 			c = desaturate(c)
 		}
 		if L.Selected {
-			c = mix(c, rgb(0xff, 0xff, 0xff), 0.3)
+			c = Mix(c, RGB(0xff, 0xff, 0xff), 0.3)
 		}
 		for l := 0; l <= levels; l++ {
 			f := 0.3 + 0.7*float64(l)/levels
-			r.lut[li*(levels+1)+l] = packRGBA(mix(colTerrace[0], c, f))
+			r.lut[li*(levels+1)+l] = packRGBA(Mix(ColTerrace[0], c, f))
 		}
 	}
 }
@@ -754,21 +754,21 @@ func (r *Renderer) drawAtomic(sc *Scene, v View) {
 	// Colours: per layer dot, bond and tint (the cell around a painted
 	// site), then the clean ones.
 	r.alut = grow(r.alut, 3*len(sc.Layers))
-	base := colTerrace[0]
+	base := ColTerrace[0]
 	for li, L := range sc.Layers {
 		c := L.Color
 		if sc.DimLayers {
 			c = desaturate(c)
 		}
 		if L.Selected {
-			c = mix(c, rgb(0xff, 0xff, 0xff), 0.3)
+			c = Mix(c, RGB(0xff, 0xff, 0xff), 0.3)
 		}
 		r.alut[3*li] = packRGBA(c)
-		r.alut[3*li+1] = packRGBA(mix(base, c, 0.6))
-		r.alut[3*li+2] = packRGBA(mix(base, c, 0.22))
+		r.alut[3*li+1] = packRGBA(Mix(base, c, 0.6))
+		r.alut[3*li+2] = packRGBA(Mix(base, c, 0.22))
 	}
 	bg := r.background()
-	cleanH, bond := packRGBA(colCleanH), packRGBA(colBond)
+	cleanH, bond := packRGBA(ColCleanH), packRGBA(ColBond)
 	const r2max = float32(siteRadius * siteRadius)
 	w := v.W
 	for y := range v.H {
@@ -812,7 +812,7 @@ func (r *Renderer) drawAtomic(sc *Scene, v View) {
 			case o > 0:
 				r.pix[i] = r.alut[3*int(o-1)+2]
 			default:
-				r.pix[i] = bg.terrace[int(t)%len(colTerrace)][tb.shade[ci]&1]
+				r.pix[i] = bg.terrace[int(t)%len(ColTerrace)][tb.shade[ci]&1]
 			}
 		}
 	}
@@ -826,20 +826,20 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 	// Field edge.
 	x0, y1 := v.ToScreen(r2.Point{})
 	x1, y0 := v.ToScreen(r2.Point{X: surf.Width(), Y: surf.Height()})
-	pb.rectOutline(x0-1, y0-1, x1, y1, 1, colFieldEdge, 256)
+	pb.rectOutline(x0-1, y0-1, x1, y1, 1, ColFieldEdge, 256)
 	// Step edges.
 	for _, t := range surf.Terraces {
 		if len(t.Boundary) < 3 {
 			continue
 		}
-		drawPath(pb, v, t.Boundary, true, 2, colStep, 200)
+		drawPath(pb, v, t.Boundary, true, 2, ColStep, 200)
 	}
 	if rt := sc.Route; rt != nil {
 		vb := v.Bounds()
 		for _, m := range rt.Moves {
 			ax, ay := v.ToScreen(m[0])
 			bx, by := v.ToScreen(m[1])
-			pb.dashed(ax, ay, bx, by, 4, 3, colMove, 170)
+			pb.dashed(ax, ay, bx, by, 4, 3, ColMove, 170)
 		}
 		for _, st := range rt.Strokes {
 			if !st.Bounds.IsEmpty() && !st.Bounds.ExpandedByMargin(4*v.Scale+st.WidthNM).Intersects(vb) {
@@ -864,19 +864,19 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 		}
 		for _, p := range rt.Registrations {
 			x, y := v.ToScreen(p)
-			pb.diamond(x, y, 11, colMove, 256)
+			pb.diamond(x, y, 11, ColMove, 256)
 		}
 	}
 	for _, p := range sc.Fiducials {
 		x, y := v.ToScreen(p)
-		pb.ring(x, y, 7, colFiducial, 256)
-		pb.thickLine(x-11, y, x+11, y, 2, colFiducial, 256)
-		pb.thickLine(x, y-11, x, y+11, 2, colFiducial, 256)
+		pb.ring(x, y, 7, ColFiducial, 256)
+		pb.thickLine(x-11, y, x+11, y, 2, ColFiducial, 256)
+		pb.thickLine(x, y-11, x, y+11, 2, ColFiducial, 256)
 	}
 	for _, m := range sc.Marks {
-		c := colWarning
+		c := ColWarning
 		if m.Error {
-			c = colError
+			c = ColError
 		}
 		ax, ay := v.ToScreen(r2.Point{X: m.Bounds.X.Lo, Y: m.Bounds.Y.Hi})
 		bx, by := v.ToScreen(r2.Point{X: m.Bounds.X.Hi, Y: m.Bounds.Y.Lo})
@@ -898,39 +898,39 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 	for _, b := range sc.Selected {
 		ax, ay := v.ToScreen(r2.Point{X: b.X.Lo, Y: b.Y.Hi})
 		bx, by := v.ToScreen(r2.Point{X: b.X.Hi, Y: b.Y.Lo})
-		pb.dashed(ax-4, ay-4, bx+4, ay-4, 5, 4, colSelect, 256)
-		pb.dashed(bx+4, ay-4, bx+4, by+4, 5, 4, colSelect, 256)
-		pb.dashed(bx+4, by+4, ax-4, by+4, 5, 4, colSelect, 256)
-		pb.dashed(ax-4, by+4, ax-4, ay-4, 5, 4, colSelect, 256)
+		pb.dashed(ax-4, ay-4, bx+4, ay-4, 5, 4, ColSelect, 256)
+		pb.dashed(bx+4, ay-4, bx+4, by+4, 5, 4, ColSelect, 256)
+		pb.dashed(bx+4, by+4, ax-4, by+4, 5, 4, ColSelect, 256)
+		pb.dashed(ax-4, by+4, ax-4, ay-4, 5, 4, ColSelect, 256)
 	}
 	if b := sc.SelectedShape; b != nil && !b.IsEmpty() {
 		ax, ay := v.ToScreen(r2.Point{X: b.X.Lo, Y: b.Y.Hi})
 		bx, by := v.ToScreen(r2.Point{X: b.X.Hi, Y: b.Y.Lo})
 		ax, ay, bx, by = ax-2, ay-2, bx+2, by+2
-		pb.rectOutline(ax, ay, bx, by, 1, colSelect, 256)
+		pb.rectOutline(ax, ay, bx, by, 1, ColSelect, 256)
 		for _, c := range [4][2]float64{{ax, ay}, {bx, ay}, {ax, by}, {bx, by}} {
-			pb.fillRect(int(c[0])-3, int(c[1])-3, int(c[0])+4, int(c[1])+4, colSelect, 256)
+			pb.fillRect(int(c[0])-3, int(c[1])-3, int(c[0])+4, int(c[1])+4, ColSelect, 256)
 		}
 	}
 	if p := sc.Preview; p != nil && len(p.Points) > 0 {
 		switch {
 		case p.BrushNM > 0:
 			x, y := v.ToScreen(p.Points[0])
-			pb.ring(x, y, math.Max(3, p.BrushNM/v.Scale), colPreview, 200)
+			pb.ring(x, y, math.Max(3, p.BrushNM/v.Scale), ColPreview, 200)
 		case p.Rect && len(p.Points) == 2:
 			a, b := p.Points[0], p.Points[1]
 			ax, ay := v.ToScreen(r2.Point{X: math.Min(a.X, b.X), Y: math.Max(a.Y, b.Y)})
 			bx, by := v.ToScreen(r2.Point{X: math.Max(a.X, b.X), Y: math.Min(a.Y, b.Y)})
-			pb.fillRect(int(ax), int(ay), int(bx), int(by), colPreview, 40)
-			pb.rectOutline(ax, ay, bx, by, 1, colPreview, 256)
+			pb.fillRect(int(ax), int(ay), int(bx), int(by), ColPreview, 40)
+			pb.rectOutline(ax, ay, bx, by, 1, ColPreview, 256)
 		default:
 			if p.WidthNM > 0 && len(p.Points) > 1 {
-				drawPath(pb, v, p.Points, p.Closed, p.WidthNM/v.Scale, colPreview, 60)
+				drawPath(pb, v, p.Points, p.Closed, p.WidthNM/v.Scale, ColPreview, 60)
 			}
-			drawPath(pb, v, p.Points, p.Closed, 1, colPreview, 256)
+			drawPath(pb, v, p.Points, p.Closed, 1, ColPreview, 256)
 			for _, q := range p.Points {
 				x, y := v.ToScreen(q)
-				pb.fillRect(int(x)-2, int(y)-2, int(x)+3, int(y)+3, colPreview, 256)
+				pb.fillRect(int(x)-2, int(y)-2, int(x)+3, int(y)+3, ColPreview, 256)
 			}
 		}
 	}

@@ -1,4 +1,4 @@
-package gui
+package editor_test
 
 import (
 	"errors"
@@ -6,49 +6,18 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/editor/editortest"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
 
-// tinyDesign is a small invented design for tests: a 200 nm field on one
-// terrace, a fiducial, and two variants, each with a rectangular island
-// and a painted lead.
-func tinyDesign() *design.Design {
-	d := NewDesign()
-	d.Name = "tiny"
-	d.Field = design.Field{WidthNM: 200, HeightNM: 200}
-	d.Fiducials = []design.Fiducial{{Name: "F1", AtNM: [2]float64{20, 20}}}
-	lead := lattice.NewSiteSet()
-	lead.AddRun(0, 100, 200, 260) // 30 dimers on row 100
-	d.Variants = []design.Variant{
-		{Name: "A", Regions: []design.Region{
-			{Name: "island", Role: design.RoleDevice, Mode: design.ModeAuto,
-				Shapes: []design.Shape{{Kind: design.ShapeRect, Points: [][2]float64{{90, 90}, {110, 110}}}}},
-			{Name: "lead", Role: design.RoleLead, Mode: design.ModeAP, Painted: lead},
-		}},
-		{Name: "B", Regions: []design.Region{
-			{Name: "island", Role: design.RoleDevice, Mode: design.ModeAuto,
-				Shapes: []design.Shape{{Kind: design.ShapeRect, Points: [][2]float64{{80, 80}, {120, 120}}}}},
-		}},
-	}
-	return d
-}
-
-func newTestSession(t *testing.T) *Session {
-	t.Helper()
-	s, err := NewSession(tinyDesign(), "")
-	if err != nil {
-		t.Fatal(err)
-	}
-	return s
-}
-
 // sitePos returns the field position of the site.
-func sitePos(s *Session, site lattice.Site) r2.Point { return s.Surface().Position(site) }
+func sitePos(s *editor.Session, site lattice.Site) r2.Point { return s.Surface().Position(site) }
 
 func TestPaintUndoRedo(t *testing.T) {
-	s := newTestSession(t)
-	s.SetTool(ToolSite)
+	s := editortest.Tiny(t)
+	s.SetTool(editor.ToolSite)
 	s.Select(1) // lead
 	before := s.RegionSites(1).Count()
 	a := lattice.Site{Row: 50, Dimer: 10, Side: 0}
@@ -89,8 +58,8 @@ func TestPaintUndoRedo(t *testing.T) {
 }
 
 func TestStrokeWithoutTargetMakesRegion(t *testing.T) {
-	s := newTestSession(t)
-	s.SetTool(ToolDimer)
+	s := editortest.Tiny(t)
+	s.SetTool(editor.ToolDimer)
 	n := len(s.Variant().Regions)
 	p := s.Surface().DimerCentre(0, 20, 20)
 	s.Click(p, 1)
@@ -110,8 +79,8 @@ func TestStrokeWithoutTargetMakesRegion(t *testing.T) {
 }
 
 func TestEraserAcrossRegions(t *testing.T) {
-	s := newTestSession(t)
-	s.SetTool(ToolEraser)
+	s := editortest.Tiny(t)
+	s.SetTool(editor.ToolEraser)
 	site := lattice.Site{Row: 100, Dimer: 110, Side: 1} // on the lead
 	if !s.RegionSites(1).Contains(site) {
 		t.Fatal("test site not on the lead")
@@ -131,8 +100,8 @@ func TestEraserAcrossRegions(t *testing.T) {
 }
 
 func TestRectangleSnapsToWholeDimers(t *testing.T) {
-	s := newTestSession(t)
-	s.SetTool(ToolRect)
+	s := editortest.Tiny(t)
+	s.SetTool(editor.ToolRect)
 	s.Select()
 	// Corners anywhere inside lattice cells snap to cell corners.
 	a := s.Surface().DimerCentre(0, 10, 10).Add(r2.Point{X: 0.05, Y: 0.1})
@@ -158,8 +127,8 @@ func TestRectangleSnapsToWholeDimers(t *testing.T) {
 }
 
 func TestWindowToolGoesToDonorRegion(t *testing.T) {
-	s := newTestSession(t)
-	s.SetTool(ToolWindow)
+	s := editortest.Tiny(t)
+	s.SetTool(editor.ToolWindow)
 	s.Select(0) // the island is not a donor region
 	p := s.Surface().DimerCentre(0, 30, 40)
 	s.Click(p, 1)
@@ -180,7 +149,7 @@ func TestWindowToolGoesToDonorRegion(t *testing.T) {
 }
 
 func TestVariantEdits(t *testing.T) {
-	s := newTestSession(t)
+	s := editortest.Tiny(t)
 	j := s.DuplicateVariant(0)
 	if j != 1 || s.VariantIndex() != 1 || s.Variant().Name != "A copy" {
 		t.Fatalf("duplicate: index %d, shown %d %q", j, s.VariantIndex(), s.Variant().Name)
@@ -189,13 +158,13 @@ func TestVariantEdits(t *testing.T) {
 		t.Errorf("copied lead has %d sites, want %d", got, want)
 	}
 	// Editing the copy leaves the original alone.
-	s.SetTool(ToolEraser)
+	s.SetTool(editor.ToolEraser)
 	s.Click(sitePos(s, lattice.Site{Row: 100, Dimer: 110}), 1)
 	s.SetVariant(0)
 	if got := s.RegionSites(1).Count(); got != 60 {
 		t.Errorf("original lead has %d sites after erasing the copy, want 60", got)
 	}
-	if err := s.RenameVariant(1, "B"); !errors.Is(err, ErrName) {
+	if err := s.RenameVariant(1, "B"); !errors.Is(err, editor.ErrName) {
 		t.Errorf("renaming to a used name: %v, want ErrName", err)
 	}
 	if err := s.RenameVariant(1, "wide gap"); err != nil {
@@ -219,8 +188,8 @@ func TestVariantEdits(t *testing.T) {
 }
 
 func TestRegionProperties(t *testing.T) {
-	s := newTestSession(t)
-	if err := s.RenameRegion(0, "lead"); !errors.Is(err, ErrName) {
+	s := editortest.Tiny(t)
+	if err := s.RenameRegion(0, "lead"); !errors.Is(err, editor.ErrName) {
 		t.Errorf("duplicate region name: %v", err)
 	}
 	s.RenameRegion(0, "is")
@@ -254,19 +223,19 @@ func TestRegionProperties(t *testing.T) {
 }
 
 func TestFiducialsAndTerraces(t *testing.T) {
-	s := newTestSession(t)
-	s.SetTool(ToolFiducial)
+	s := editortest.Tiny(t)
+	s.SetTool(editor.ToolFiducial)
 	s.Click(r2.Point{X: 150, Y: 150}, 1)
 	if n := len(s.Design().Fiducials); n != 2 || s.Design().Fiducials[1].Name != "F2" {
 		t.Fatalf("fiducials %+v", s.Design().Fiducials)
 	}
-	if err := s.SetFiducial(1, "F1", r2.Point{X: 1, Y: 1}); !errors.Is(err, ErrName) {
+	if err := s.SetFiducial(1, "F1", r2.Point{X: 1, Y: 1}); !errors.Is(err, editor.ErrName) {
 		t.Errorf("duplicate fiducial name: %v", err)
 	}
 	if err := s.SetFiducial(1, "corner", r2.Point{X: 500, Y: 1}); err == nil {
 		t.Error("fiducial outside the field accepted")
 	}
-	s.SetTool(ToolTerrace)
+	s.SetTool(editor.ToolTerrace)
 	for _, p := range []r2.Point{{X: 150, Y: 0}, {X: 200, Y: 0}, {X: 200, Y: 200}, {X: 160, Y: 200}} {
 		s.Click(p, 1)
 	}
@@ -293,8 +262,8 @@ func TestFiducialsAndTerraces(t *testing.T) {
 }
 
 func TestMarqueeSelectsAndDeleteRemoves(t *testing.T) {
-	s := newTestSession(t)
-	s.SetTool(ToolSelect)
+	s := editortest.Tiny(t)
+	s.SetTool(editor.ToolSelect)
 	// A box around the island (90..110 nm) but not the lead (row 100,
 	// x 38..50 nm).
 	s.Press(r2.Point{X: 85, Y: 85})

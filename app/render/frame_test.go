@@ -1,13 +1,11 @@
-package gui
+package render
 
 import (
-	"image"
-	"image/png"
-	"os"
 	"testing"
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/render/rendertest"
 	"dimerpath/lattice"
 )
 
@@ -46,20 +44,7 @@ func bigScene(tb testing.TB, n int) *Scene {
 
 // savePNG keeps the renderer's last frame in $DIMERPATH_FRAME_DIR, when
 // set, for a look by eye.
-func savePNG(t *testing.T, name string, r *Renderer) { saveImage(t, name, r.Image()) }
-
-func saveImage(t *testing.T, name string, img image.Image) {
-	if dir := os.Getenv("DIMERPATH_FRAME_DIR"); dir != "" {
-		f, err := os.Create(dir + "/" + name)
-		if err != nil {
-			t.Fatal(err)
-		}
-		defer f.Close()
-		if err := png.Encode(f, img); err != nil {
-			t.Fatal(err)
-		}
-	}
-}
+func savePNG(t *testing.T, name string, r *Renderer) { rendertest.SaveImage(t, name, r.Image()) }
 
 func TestFrameLooks(t *testing.T) {
 	sc := bigScene(t, 10_000_000)

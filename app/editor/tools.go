@@ -1,4 +1,4 @@
-package gui
+package editor
 
 import (
 	"errors"
@@ -7,6 +7,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/render"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -123,7 +124,7 @@ func (s *Session) SetOptions(o ToolOptions) error {
 	if err := o.Validate(); err != nil {
 		return err
 	}
-	if _, ok := templateOf(s.d, o.Template); !ok {
+	if _, ok := TemplateOf(s.d, o.Template); !ok {
 		return fmt.Errorf("window template %q: not defined (built in: P, As)", o.Template)
 	}
 	s.Opts = o
@@ -145,7 +146,7 @@ type gesture struct {
 	dragged bool
 }
 
-// hover is the pointer position in nm for previews, if known.
+// hoverState is the pointer position in nm for previews, if known.
 type hoverState struct {
 	at r2.Point
 	ok bool
@@ -416,7 +417,7 @@ func (s *Session) paintTarget(window bool) (int, bool) {
 		}
 		return s.addRegion("region", design.RoleDevice), true
 	}
-	tpl, _ := templateOf(s.d, s.Opts.Template)
+	tpl, _ := TemplateOf(s.d, s.Opts.Template)
 	if a >= 0 && v.Regions[a].Role == design.RoleDonor {
 		return a, false
 	}
@@ -437,7 +438,7 @@ func (s *Session) paintTarget(window bool) (int, bool) {
 func (s *Session) addShape(sh design.Shape, what string) {
 	window := sh.Kind == design.ShapeWindow || (sh.Kind == design.ShapeArray && sh.Array.Of.Kind == design.ShapeWindow)
 	i, _ := s.paintTarget(window)
-	sites, err := shapeSites(s.surf, s.d, &sh)
+	sites, err := ShapeSites(s.surf, s.d, &sh)
 	if err != nil {
 		s.Err = err
 		return
@@ -503,7 +504,7 @@ func (s *Session) brushSites(tool Tool, a, b r2.Point) *lattice.SiteSet {
 			// A dab: a short segment so the polyline has length.
 			sh.Points = pts(a, a.Add(r2.Point{X: 1e-3}))
 		}
-		got, err := shapeSites(s.surf, s.d, &sh)
+		got, err := ShapeSites(s.surf, s.d, &sh)
 		if err != nil {
 			s.Err = err
 			return nil
@@ -596,21 +597,21 @@ func (s *Session) snapRect(a, b r2.Point) (lo, hi r2.Point) {
 
 // Preview returns the shape the current tool is drawing, or the brush
 // outline under the pointer, or nil.
-func (s *Session) Preview() *Preview {
+func (s *Session) Preview() *render.Preview {
 	g := s.gesture
 	if g != nil {
 		switch {
 		case g.tool == ToolRect && g.pressed:
 			a, b := s.snapRect(g.start, g.last)
-			return &Preview{Points: []r2.Point{a, b}, Rect: true}
+			return &render.Preview{Points: []r2.Point{a, b}, Rect: true}
 		case g.tool == ToolSelect && g.pressed && g.dragged && g.moving:
 			return s.movePreview(g.last.Sub(g.start))
 		case g.tool == ToolSelect && g.pressed && g.dragged:
-			return &Preview{Points: []r2.Point{g.start, g.last}, Rect: true}
+			return &render.Preview{Points: []r2.Point{g.start, g.last}, Rect: true}
 		case g.tool == ToolLine && g.pressed && g.dragged:
-			return &Preview{Points: []r2.Point{g.start, g.last}, WidthNM: s.Opts.LineWidthNM}
+			return &render.Preview{Points: []r2.Point{g.start, g.last}, WidthNM: s.Opts.LineWidthNM}
 		case len(g.points) > 0:
-			p := &Preview{Points: append([]r2.Point(nil), g.points...)}
+			p := &render.Preview{Points: append([]r2.Point(nil), g.points...)}
 			if s.hoverAt.ok {
 				q := s.snapDimerCentre(s.hoverAt.at)
 				if g.tool == ToolTerrace {
@@ -628,7 +629,7 @@ func (s *Session) Preview() *Preview {
 	switch s.Tool {
 	case ToolSite, ToolDimer, ToolEraser:
 		if s.hoverAt.ok && s.Opts.BrushNM > 0 {
-			return &Preview{Points: []r2.Point{s.hoverAt.at}, BrushNM: s.Opts.BrushNM}
+			return &render.Preview{Points: []r2.Point{s.hoverAt.at}, BrushNM: s.Opts.BrushNM}
 		}
 	}
 	return nil

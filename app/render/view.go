@@ -1,4 +1,4 @@
-package gui
+package render
 
 import (
 	"math"
@@ -111,19 +111,3 @@ func (v View) CenteredOn(p r2.Point, scale float64) View {
 }
 
 func clampf(v, lo, hi float64) float64 { return min(max(v, lo), hi) }
-
-// niceLength returns the largest 1, 2 or 5 x 10^k that is at most max,
-// for the length of a scale bar (max > 0).
-func niceLength(max float64) float64 {
-	if !(max > 0) {
-		return 0
-	}
-	e := math.Floor(math.Log10(max))
-	base := math.Pow(10, e)
-	for _, m := range []float64{5, 2, 1} {
-		if m*base <= max*(1+1e-12) {
-			return m * base
-		}
-	}
-	return base
-}

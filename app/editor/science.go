@@ -1,4 +1,4 @@
-package gui
+package editor
 
 import (
 	"context"
@@ -30,15 +30,15 @@ func regionSites(surf *lattice.Surface, d *design.Design, r *design.Region) (*la
 	return r.Sites(surf, d.Templates())
 }
 
-// shapeSites rasterises one shape onto the lattice.
-func shapeSites(surf *lattice.Surface, d *design.Design, s *design.Shape) (*lattice.SiteSet, error) {
+// ShapeSites rasterises one shape onto the lattice.
+func ShapeSites(surf *lattice.Surface, d *design.Design, s *design.Shape) (*lattice.SiteSet, error) {
 	r := design.Region{Name: "new shape", Shapes: []design.Shape{*s}}
 	return r.Sites(surf, d.Templates())
 }
 
-// templateOf returns the window template named name: the design's own
+// TemplateOf returns the window template named name: the design's own
 // or a built-in one.
-func templateOf(d *design.Design, name string) (lattice.WindowTemplate, bool) {
+func TemplateOf(d *design.Design, name string) (lattice.WindowTemplate, bool) {
 	t, ok := d.Templates()[name]
 	return t, ok
 }
@@ -63,10 +63,10 @@ type CheckResult struct {
 	GapWidths map[[2]string]float64
 }
 
-// checkDesign runs the design-rule checks on one variant of d and
+// CheckDesign runs the design-rule checks on one variant of d and
 // measures its tunnel gaps. The error is for a variant that cannot be
 // laid out at all.
-func checkDesign(ctx context.Context, d *design.Design, variant string) (CheckResult, error) {
+func CheckDesign(ctx context.Context, d *design.Design, variant string) (CheckResult, error) {
 	var res CheckResult
 	fs, err := design.Check(d, variant)
 	if err != nil {
@@ -96,22 +96,22 @@ func checkDesign(ctx context.Context, d *design.Design, variant string) (CheckRe
 	return res, ctx.Err()
 }
 
-// buildPlan plans one variant of d.
-func buildPlan(ctx context.Context, d *design.Design, variant string, prof planner.Profile, opt planner.Options) (*planner.Plan, error) {
+// BuildPlan plans one variant of d.
+func BuildPlan(ctx context.Context, d *design.Design, variant string, prof planner.Profile, opt planner.Options) (*planner.Plan, error) {
 	return planner.Build(ctx, d, variant, prof, opt)
 }
 
 // defaultProfile returns the instrument profile planning starts from.
 func defaultProfile() planner.Profile { return planner.DefaultProfile() }
 
-// loadDesign reads and validates a design file.
-func loadDesign(path string) (*design.Design, error) { return design.Load(path) }
+// LoadDesign reads and validates a design file.
+func LoadDesign(path string) (*design.Design, error) { return design.Load(path) }
 
-// saveDesign validates d and writes it atomically to path.
-func saveDesign(path string, d *design.Design) error { return design.Save(path, d) }
+// SaveDesign validates d and writes it atomically to path.
+func SaveDesign(path string, d *design.Design) error { return design.Save(path, d) }
 
-// demoDesign returns the built-in demo design.
-func demoDesign() (*design.Design, error) {
+// DemoDesign returns the built-in demo design.
+func DemoDesign() (*design.Design, error) {
 	return design.Parse(assets.DemoName, assets.DemoDesign)
 }
 
@@ -122,10 +122,10 @@ type ExportSettings struct {
 	Date      time.Time
 }
 
-// exportPlan writes plan p of d in the format path's extension names
+// ExportPlan writes plan p of d in the format path's extension names
 // (pdf, svg, json or csv), through a temporary file renamed into place.
 // The figures draw the lattice and regions of the plan's variant.
-func exportPlan(ctx context.Context, path string, d *design.Design, p *planner.Plan, es ExportSettings, progress func(string, float64)) error {
+func ExportPlan(ctx context.Context, path string, d *design.Design, p *planner.Plan, es ExportSettings, progress func(string, float64)) error {
 	opt := export.Options{Paper: es.Paper, Date: es.Date, Generator: es.Generator, Progress: progress}
 	if l, err := d.Lay(p.Variant); err == nil {
 		opt.Pattern = export.PatternOf(l)
@@ -133,9 +133,9 @@ func exportPlan(ctx context.Context, path string, d *design.Design, p *planner.P
 	return export.WriteFile(ctx, path, p, opt)
 }
 
-// exportComparison writes the comparison report of every variant's
+// ExportComparison writes the comparison report of every variant's
 // result to path (.pdf or .svg).
-func exportComparison(ctx context.Context, path string, res []export.VariantResult, es ExportSettings) error {
+func ExportComparison(ctx context.Context, path string, res []export.VariantResult, es ExportSettings) error {
 	opt := export.Options{Paper: es.Paper, Date: es.Date, Generator: es.Generator}
 	return atomicfile.Write(path, 0o644, func(w io.Writer) error {
 		if strings.HasSuffix(strings.ToLower(path), ".svg") {
@@ -145,20 +145,20 @@ func exportComparison(ctx context.Context, path string, res []export.VariantResu
 	})
 }
 
-// validateProfile reports every field of p that is not physical, then
+// ValidateProfile reports every field of p that is not physical, then
 // the first tip condition beyond the profile's own instrument limits.
-func validateProfile(p planner.Profile) error {
+func ValidateProfile(p planner.Profile) error {
 	if err := p.Validate(); err != nil {
 		return err
 	}
 	return p.CheckLimits(nil)
 }
 
-// loadProfile reads and validates an instrument-profile file.
-func loadProfile(path string) (planner.Profile, error) { return planner.LoadProfile(path) }
+// LoadProfile reads and validates an instrument-profile file.
+func LoadProfile(path string) (planner.Profile, error) { return planner.LoadProfile(path) }
 
-// saveProfile writes a valid profile atomically to path.
-func saveProfile(path string, p planner.Profile) error { return planner.SaveProfile(path, p) }
+// SaveProfile writes a valid profile atomically to path.
+func SaveProfile(path string, p planner.Profile) error { return planner.SaveProfile(path, p) }
 
-// presetProfile returns the built-in profile of that name.
-func presetProfile(name string) (planner.Profile, error) { return planner.Preset(name) }
+// PresetProfile returns the built-in profile of that name.
+func PresetProfile(name string) (planner.Profile, error) { return planner.Preset(name) }

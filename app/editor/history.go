@@ -1,4 +1,4 @@
-package gui
+package editor
 
 import (
 	"dimerpath/lattice"
@@ -84,7 +84,7 @@ func (h *history) push(s *snapshot) {
 	}
 }
 
-// setBounds is a rough size of a site set in bytes, for the history's
+// setBytes is a rough size of a site set in bytes, for the history's
 // memory limit.
 func setBytes(s *lattice.SiteSet) int {
 	if s == nil {

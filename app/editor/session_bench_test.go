@@ -1,19 +1,20 @@
-package gui
+package editor_test
 
 import (
 	"testing"
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/editor"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
 
 // bigSession returns a session on a 2 µm field whose variant holds one
 // region of at least n painted sites and one small region.
-func bigSession(tb testing.TB, n int) *Session {
+func bigSession(tb testing.TB, n int) *editor.Session {
 	tb.Helper()
-	d := NewDesign()
+	d := editor.NewDesign()
 	big := lattice.NewSiteSet()
 	perRow := 2 * 3000 // 3000 dimers, 1152 nm of each row
 	for r := 100; r < 100+(n+perRow-1)/perRow; r++ {
@@ -23,7 +24,7 @@ func bigSession(tb testing.TB, n int) *Session {
 		{Name: "pad", Role: design.RolePad, Mode: design.ModeFE, Painted: big},
 		{Name: "wire", Role: design.RoleLead, Mode: design.ModeAP},
 	}
-	s, err := NewSession(d, "")
+	s, err := editor.NewSession(d, "")
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -35,7 +36,7 @@ func bigSession(tb testing.TB, n int) *Session {
 
 // stroke paints a 20-step drag 100 nm long, as a quick brush stroke
 // delivers it, and releases (which records the undo state).
-func stroke(s *Session, from r2.Point) {
+func stroke(s *editor.Session, from r2.Point) {
 	s.Press(from)
 	for k := 1; k <= 20; k++ {
 		s.Drag(from.Add(r2.Point{X: 5 * float64(k), Y: 0.5 * float64(k)}))
@@ -70,7 +71,7 @@ func BenchmarkBrushStroke(b *testing.B) {
 		{"into-1e7-site-region", 0, 0, r2.Point{X: 600, Y: 600}},
 	} {
 		b.Run(c.name, func(b *testing.B) {
-			s.SetTool(ToolSite)
+			s.SetTool(editor.ToolSite)
 			o := s.Opts
 			o.BrushNM = c.brush
 			if err := s.SetOptions(o); err != nil {

@@ -1,9 +1,12 @@
-package gui
+package render_test
 
 import (
 	"image/color"
 	"testing"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/editor/editortest"
+	"dimerpath/app/render"
 	"github.com/golang/geo/r2"
 )
 
@@ -13,7 +16,7 @@ import (
 // at atomic zoom an island site in the island's colour beside a clean
 // site in the clean-H colour. Set DIMERPATH_FRAME_DIR to keep the frames.
 func TestDemoAtEveryZoom(t *testing.T) {
-	s := demoSession(t)
+	s := editortest.Demo(t)
 	region := func(name string) int {
 		for i, r := range s.Variant().Regions {
 			if r.Name == name {
@@ -24,20 +27,20 @@ func TestDemoAtEveryZoom(t *testing.T) {
 		return -1
 	}
 	pad, island := region("pad-source"), region("sensor-island")
-	sc := s.Scene(SceneOptions{})
-	var r Renderer
-	at := func(v View, p r2.Point) color.NRGBA {
+	sc := s.Scene(editor.SceneOptions{})
+	var r render.Renderer
+	at := func(v render.View, p r2.Point) color.NRGBA {
 		x, y := v.ToScreen(p)
 		return color.NRGBAModel.Convert(r.Image().At(int(x), int(y))).(color.NRGBA)
 	}
 
-	whole := FitView(s.Surface().Field, 1600, 1000, 20)
+	whole := render.FitView(s.Surface().Field, 1600, 1000, 20)
 	r.Render(sc, whole)
-	savePNG(t, "demo-whole.png", &r)
+	render.SavePNG(t, "demo-whole.png", &r)
 	if r.Stats().Atomic {
 		t.Error("the whole field drawn site by site")
 	}
-	if got, want := at(whole, s.RegionBounds(pad).Center()), RegionColor(pad); got != want {
+	if got, want := at(whole, s.RegionBounds(pad).Center()), render.RegionColor(pad); got != want {
 		t.Errorf("pad centre at the whole field is %v, want its colour %v", got, want)
 	}
 
@@ -45,14 +48,14 @@ func TestDemoAtEveryZoom(t *testing.T) {
 	for _, scale := range []float64{1, 0.25} {
 		v := whole.CenteredOn(ib.Center(), scale)
 		r.Render(sc, v)
-		if got, want := at(v, ib.Center()), RegionColor(island); got != want {
+		if got, want := at(v, ib.Center()), render.RegionColor(island); got != want {
 			t.Errorf("island centre at %g nm/px is %v, want %v", scale, got, want)
 		}
 	}
 
 	v := whole.CenteredOn(ib.Center(), 0.02)
 	r.Render(sc, v)
-	savePNG(t, "demo-atomic.png", &r)
+	render.SavePNG(t, "demo-atomic.png", &r)
 	if !r.Stats().Atomic {
 		t.Fatal("0.02 nm/px not drawn site by site")
 	}
@@ -64,8 +67,8 @@ func TestDemoAtEveryZoom(t *testing.T) {
 		if !v.Bounds().ContainsPoint(p) {
 			continue
 		}
-		if got := at(v, p); got != RegionColor(island) {
-			t.Fatalf("island site %v drawn %v, want %v", site, got, RegionColor(island))
+		if got := at(v, p); got != render.RegionColor(island) {
+			t.Fatalf("island site %v drawn %v, want %v", site, got, render.RegionColor(island))
 		}
 		inside = true
 		// The first site beyond the island's edge along the row, when in
@@ -75,8 +78,8 @@ func TestDemoAtEveryZoom(t *testing.T) {
 			out.Dimer++
 		}
 		if q := surf.Position(out); v.Bounds().ContainsPoint(q) && s.RegionAt(q) < 0 {
-			if got := at(v, q); got != colCleanH {
-				t.Fatalf("clean site %v drawn %v, want %v", out, got, colCleanH)
+			if got := at(v, q); got != render.ColCleanH {
+				t.Fatalf("clean site %v drawn %v, want %v", out, got, render.ColCleanH)
 			}
 			outside = true
 		}
