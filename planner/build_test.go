@@ -2,6 +2,7 @@ package planner
 
 import (
 	"context"
+	"dimerpath/internal/jsonfile"
 	"errors"
 	"math"
 	"reflect"
@@ -131,7 +132,7 @@ func TestBuildRefusesBeyondLimits(t *testing.T) {
 	}
 	prof = DefaultProfile()
 	prof.MoveSpeedNMPerS = math.NaN()
-	var pe *ProfileError
+	var pe *jsonfile.Error
 	if _, err := Build(context.Background(), d, "", prof, Options{}); !errors.As(err, &pe) {
 		t.Errorf("NaN move speed: %v, want a ProfileError", err)
 	}
