@@ -10,9 +10,12 @@ BIN     := bin/dimerpath
 # Run apt-get through sudo unless we are root already.
 SUDO    := $(shell [ "$$(id -u)" = 0 ] || echo sudo)
 # cgo and the GL/X11 headers build the Fyne GUI; xvfb, xauth and imagemagick
-# run and screenshot it headless; poppler-utils reads exported PDFs back.
+# run and screenshot it headless; poppler-utils reads exported PDFs back;
+# python3-gdspy, an independent GDSII library, reads back the GDSII files
+# dimerpath writes (export/gds_gdspy_test.go).
 DEB_PKGS := gcc pkg-config libgl1-mesa-dev libx11-dev libxcursor-dev libxrandr-dev \
-            libxinerama-dev libxi-dev libxxf86vm-dev xvfb xauth imagemagick poppler-utils
+            libxinerama-dev libxi-dev libxxf86vm-dev xvfb xauth imagemagick poppler-utils \
+            python3-gdspy
 
 .PHONY: all run test bench build deps lint fuzz clean
 

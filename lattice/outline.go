@@ -50,14 +50,12 @@ func (s *Surface) OutlineRows(set *SiteSet, terrace, rowFrom, rowTo int) []Outli
 	}
 	pieces := cellOutlines(set, terrace, max(rowFrom, 0), min(rowTo, set.RowCount(terrace)))
 	t := &s.Terraces[terrace]
-	offAlong, offAcross := s.axes(t.Rows, t.Offset)
+	f := t.Frame()
 	// Corner (E, K) in half units: along edge E/2 lies half a pitch
 	// before dimer E/2's centre, across edge K/2 at the low side of
 	// strip K/2 = 2·row + side.
 	at := func(c corner) r2.Point {
-		return fromAxes(t.Rows,
-			offAlong+(float64(c.e)/2-0.5)*DimerPitch,
-			offAcross+(float64(c.k)/2-1)*RowSpacing/2)
+		return f.ToField((float64(c.e)/2-0.5)*DimerPitch, (float64(c.k)/2-1)*RowSpacing/2)
 	}
 	ring := func(cs []corner) []r2.Point {
 		out := make([]r2.Point, len(cs))

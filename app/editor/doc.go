@@ -5,9 +5,10 @@
 //
 // It holds no science. Surfaces, rasterised regions, design-rule
 // findings, plans, instrument profiles and exports are calls into
-// lattice/design, planner and export, all made from science.go. It
-// imports no Fyne (make lint checks), so every edit is tested without a
-// window or cgo; package gui shows a Session and calls its methods.
+// lattice/design, planner and export, made from sites.go, jobs.go and
+// files.go. It imports no Fyne (make lint checks), so every edit is
+// tested without a window or cgo; package gui shows a Session and calls
+// its methods.
 //
 // # Frame and units
 //

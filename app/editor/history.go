@@ -1,6 +1,8 @@
 package editor
 
 import (
+	"slices"
+
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -179,4 +181,94 @@ func sameTerraces(a, b *design.Design) bool {
 		}
 	}
 	return true
+}
+
+// commit records the live design as a new undo state.
+func (s *Session) commit(label, key string, c Change) {
+	s.hist.push(s.snapshotOf(s.hist.current(), label, key))
+	s.pruneCaches()
+	s.notify(c | ChangeFile | ChangeHistory | ChangePlan | ChangeFindings)
+}
+
+// CanUndo reports whether there is an edit to undo.
+func (s *Session) CanUndo() bool { return s.hist.pos > 0 }
+
+// CanRedo reports whether there is an undone edit to redo.
+func (s *Session) CanRedo() bool { return s.hist.pos < len(s.hist.states)-1 }
+
+// UndoLabel names the edit Undo would revert, or "".
+func (s *Session) UndoLabel() string {
+	if !s.CanUndo() {
+		return ""
+	}
+	return s.hist.states[s.hist.pos].label
+}
+
+// RedoLabel names the edit Redo would reapply, or "".
+func (s *Session) RedoLabel() string {
+	if !s.CanRedo() {
+		return ""
+	}
+	return s.hist.states[s.hist.pos+1].label
+}
+
+// Undo reverts the last edit and shows the variant it changed.
+func (s *Session) Undo() bool {
+	if !s.CanUndo() {
+		return false
+	}
+	s.cancelGesture()
+	shown := s.hist.states[s.hist.pos].variant
+	s.hist.pos--
+	s.restore(s.hist.states[s.hist.pos])
+	s.afterRestore(shown)
+	return true
+}
+
+// Redo reapplies the edit last undone.
+func (s *Session) Redo() bool {
+	if !s.CanRedo() {
+		return false
+	}
+	s.cancelGesture()
+	s.hist.pos++
+	s.restore(s.hist.states[s.hist.pos])
+	s.afterRestore(s.hist.states[s.hist.pos].variant)
+	return true
+}
+
+func (s *Session) afterRestore(variant int) {
+	s.variant = min(max(variant, 0), len(s.d.Variants)-1)
+	n := len(s.Variant().Regions)
+	s.sel = slices.DeleteFunc(s.sel, func(i int) bool { return i >= n })
+	s.shapeSel = nil
+	s.ensureCaches()
+	s.notify(ChangeAll)
+}
+
+// PlanToken identifies the design state a background job started from,
+// so its result can be marked stale if the design changed meanwhile.
+type PlanToken struct{ state *snapshot }
+
+// Token returns the current design state's token.
+func (s *Session) Token() PlanToken { return PlanToken{s.hist.current()} }
+
+// Design assembles the design of the token's state for reading: the
+// regions are the state's own, which nothing changes. The zero token
+// has none and returns nil.
+func (t PlanToken) Design() *design.Design {
+	snap := t.state
+	if snap == nil {
+		return nil
+	}
+	d := *snap.shell
+	d.Variants = slices.Clone(snap.shell.Variants)
+	for v := range d.Variants {
+		rs := make([]design.Region, len(snap.regions[v]))
+		for i, sr := range snap.regions[v] {
+			rs[i] = sr.region
+		}
+		d.Variants[v].Regions = rs
+	}
+	return &d
 }

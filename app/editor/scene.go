@@ -1,8 +1,9 @@
 package editor
 
 import (
-	"dimerpath/app/render"
 	"github.com/golang/geo/r2"
+
+	"dimerpath/app/render"
 )
 
 // SceneOptions choose what the lattice view overlays.

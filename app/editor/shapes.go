@@ -162,16 +162,7 @@ func (s *Session) LatticeStep(p, d r2.Point) r2.Point {
 	if ti < 0 {
 		return d
 	}
-	along, across := d.X, d.Y
-	if s.surf.Terraces[ti].Rows == lattice.RowsAlongY {
-		along, across = d.Y, d.X
-	}
-	along = math.Round(along/lattice.DimerPitch) * lattice.DimerPitch
-	across = math.Round(across/lattice.RowSpacing) * lattice.RowSpacing
-	if s.surf.Terraces[ti].Rows == lattice.RowsAlongY {
-		return r2.Point{X: across, Y: along}
-	}
-	return r2.Point{X: along, Y: across}
+	return s.surf.Frame(ti).LatticeVector(d)
 }
 
 // movedShape returns sh translated by d (nm), its points rounded to

@@ -511,7 +511,7 @@ func (s *Session) brushSites(tool Tool, a, b r2.Point) *lattice.SiteSet {
 		}
 		set = got
 		if tool == ToolDimer {
-			set = wholeDimers(set)
+			set = set.WholeDimers()
 		}
 		return set
 	}
@@ -535,16 +535,6 @@ func (s *Session) brushSites(tool Tool, a, b r2.Point) *lattice.SiteSet {
 	return set
 }
 
-// wholeDimers returns set grown so that every dimer with one site in it
-// has both.
-func wholeDimers(set *lattice.SiteSet) *lattice.SiteSet {
-	out := lattice.NewSiteSet()
-	for run := range set.Runs() {
-		out.AddRun(run.Terrace, run.Row, run.Start&^1, (run.End()+1)&^1)
-	}
-	return out
-}
-
 // --- Snapping ---
 
 // snapSite returns the position of the H site nearest p, or p off the
@@ -566,33 +556,16 @@ func (s *Session) snapDimerCentre(p r2.Point) r2.Point {
 
 // snapRect returns the corners of the smallest rectangle made of whole
 // lattice cells (one dimer of one row each) that holds the cells under a
-// and b, on the terrace under a: its edges run midway between dimers and
-// midway between rows, so it holds whole dimers of whole rows.
+// and b, on the terrace under a (else under b, else the first): its
+// edges run midway between dimers and midway between rows, so it holds
+// whole dimers of whole rows.
 func (s *Session) snapRect(a, b r2.Point) (lo, hi r2.Point) {
 	ti := s.surf.TerraceAt(a)
 	if ti < 0 {
 		ti = max(s.surf.TerraceAt(b), 0)
 	}
-	t := s.surf.Terraces[ti]
-	split := func(p r2.Point) (along, across float64) {
-		q := p.Sub(t.Offset)
-		if t.Rows == lattice.RowsAlongY {
-			return q.Y, q.X
-		}
-		return q.X, q.Y
-	}
-	cells := func(u, v, pitch float64) (float64, float64) {
-		ku, kv := math.Round(u/pitch), math.Round(v/pitch)
-		return (math.Min(ku, kv) - 0.5) * pitch, (math.Max(ku, kv) + 0.5) * pitch
-	}
-	aa, ac := split(a)
-	ba, bc := split(b)
-	alo, ahi := cells(aa, ba, lattice.DimerPitch)
-	clo, chi := cells(ac, bc, lattice.RowSpacing)
-	if t.Rows == lattice.RowsAlongY {
-		return r2.Point{X: clo, Y: alo}.Add(t.Offset), r2.Point{X: chi, Y: ahi}.Add(t.Offset)
-	}
-	return r2.Point{X: alo, Y: clo}.Add(t.Offset), r2.Point{X: ahi, Y: chi}.Add(t.Offset)
+	r := s.surf.Frame(ti).SnapRect(a, b)
+	return r.Lo(), r.Hi()
 }
 
 // Preview returns the shape the current tool is drawing, or the brush

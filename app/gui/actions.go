@@ -57,7 +57,7 @@ func (u *UI) StartPlan() {
 	if u.Busy() {
 		return
 	}
-	s := u.S
+	s := u.Session
 	d, variant, tok, prof := s.DesignCopy(), s.Variant().Name, s.Token(), s.Profile
 	ctx, cancel := context.WithCancel(context.Background())
 	u.planCancel = cancel
@@ -80,7 +80,7 @@ func (u *UI) planDone(s *editor.Session, p *planner.Plan, variant string, tok ed
 	u.hideProgress()
 	then := u.afterPlan
 	u.afterPlan = nil
-	if s != u.S {
+	if s != u.Session {
 		return // another design was opened meanwhile
 	}
 	switch {
@@ -101,7 +101,7 @@ func (u *UI) planDone(s *editor.Session, p *planner.Plan, variant string, tok ed
 // PlanNow plans the current variant on the calling goroutine (for the
 // screenshot mode and tests).
 func (u *UI) PlanNow(ctx context.Context) error {
-	s := u.S
+	s := u.Session
 	p, err := editor.BuildPlan(ctx, s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: u.opts.Seed})
 	if err != nil {
 		return err
@@ -135,14 +135,14 @@ func (u *UI) CheckNow() {
 	if u.checkCancel != nil {
 		u.checkCancel()
 	}
-	s := u.S
+	s := u.Session
 	d, variant, tok := s.DesignCopy(), s.Variant().Name, s.Token()
 	ctx, cancel := context.WithCancel(context.Background())
 	u.checkCancel = cancel
 	go func() {
 		res, err := editor.CheckDesign(ctx, d, variant)
 		fyne.Do(func() {
-			if ctx.Err() != nil || s != u.S || variant != s.Variant().Name {
+			if ctx.Err() != nil || s != u.Session || variant != s.Variant().Name {
 				return
 			}
 			u.checkCancel = nil
@@ -156,7 +156,7 @@ func (u *UI) CheckNow() {
 
 // CheckSync runs the checks on the calling goroutine (tests, screenshot).
 func (u *UI) CheckSync() {
-	s := u.S
+	s := u.Session
 	res, err := editor.CheckDesign(context.Background(), s.DesignCopy(), s.Variant().Name)
 	if err != nil {
 		res = editor.CheckResult{Findings: []editor.Finding{{Rule: "design", Error: true, Message: err.Error()}}}
@@ -170,7 +170,7 @@ func (u *UI) compareVariants() {
 	if u.Busy() {
 		return
 	}
-	s := u.S
+	s := u.Session
 	d, prof := s.DesignCopy(), s.Profile
 	names := s.VariantNames()
 	ctx, cancel := context.WithCancel(context.Background())
@@ -206,7 +206,7 @@ func (u *UI) compareVariants() {
 			// The variant shown keeps its plan from the comparison, so it
 			// can be exported without planning it again.
 			for _, r := range res {
-				if r.Variant == shown && r.Err == nil && r.Plan != nil && s == u.S {
+				if r.Variant == shown && r.Err == nil && r.Plan != nil && s == u.Session {
 					s.SetPlan(r.Plan, shown, tok)
 				}
 			}
@@ -305,7 +305,7 @@ func (u *UI) showComparison(res []export.VariantResult, rules []string) {
 	var d *dialog.CustomDialog
 	report := widget.NewButtonWithIcon("Export report…", theme.DocumentPrintIcon(), func() {
 		u.withCaution("the comparison report", func(es editor.ExportSettings) {
-			u.chooseFile(safeFileName(u.S.Design().Name)+"-variants.pdf", []string{".pdf", ".svg"}, func(path string) {
+			u.chooseFile(safeFileName(u.Session.Design().Name)+"-variants.pdf", []string{".pdf", ".svg"}, func(path string) {
 				u.runInBackground("Writing "+filepath.Base(path)+"…", func(ctx context.Context, _ func(string, float64)) error {
 					return editor.ExportComparison(ctx, path, res, es)
 				}, "Wrote "+path)

@@ -57,12 +57,12 @@ func (u *UI) configDir() (string, error) {
 // confirmDiscard runs then at once when nothing is unsaved, else after
 // asking whether to save, discard or cancel.
 func (u *UI) confirmDiscard(action string, then func()) {
-	if !u.S.Dirty() {
+	if !u.Session.Dirty() {
 		then()
 		return
 	}
-	name := fmt.Sprintf("%q", u.S.Design().Name)
-	if p := u.S.Path(); p != "" {
+	name := fmt.Sprintf("%q", u.Session.Design().Name)
+	if p := u.Session.Path(); p != "" {
 		name += " (" + filepath.Base(p) + ")"
 	}
 	msg := widget.NewLabel(fmt.Sprintf("The design %s has changes that are not saved. Save them before you %s?", name, action))
@@ -114,7 +114,7 @@ func (u *UI) openDialog() {
 // lastDir is the folder of the current or most recent file, for the file
 // dialogs.
 func (u *UI) lastDir() fyne.ListableURI {
-	p := u.S.Path()
+	p := u.Session.Path()
 	if p == "" {
 		if r := u.recent(); len(r) > 0 {
 			p = r[0]
@@ -174,11 +174,11 @@ func (u *UI) openDemo() {
 // save writes the design to its file (or asks for one), then runs then
 // if it succeeded.
 func (u *UI) save(then func()) {
-	if u.S.Path() == "" {
+	if u.Session.Path() == "" {
 		u.saveAs(then)
 		return
 	}
-	if err := u.SaveTo(u.S.Path()); err != nil {
+	if err := u.SaveTo(u.Session.Path()); err != nil {
 		dialog.ShowError(err, u.Win)
 		return
 	}
@@ -189,10 +189,10 @@ func (u *UI) save(then func()) {
 
 // SaveTo writes the design atomically to path and records it as saved.
 func (u *UI) SaveTo(path string) error {
-	if err := editor.SaveDesign(path, u.S.Design()); err != nil {
+	if err := editor.SaveDesign(path, u.Session.Design()); err != nil {
 		return fmt.Errorf("could not save %s:\n%w", path, err)
 	}
-	u.S.MarkSaved(path)
+	u.Session.MarkSaved(path)
 	u.addRecent(path)
 	u.removeRecovery()
 	u.hintLabel.SetText("Saved " + path)
@@ -200,8 +200,8 @@ func (u *UI) SaveTo(path string) error {
 }
 
 func (u *UI) saveAs(then func()) {
-	name := u.S.Design().Name
-	if p := u.S.Path(); p != "" {
+	name := u.Session.Design().Name
+	if p := u.Session.Path(); p != "" {
 		name = strings.TrimSuffix(filepath.Base(p), filepath.Ext(p))
 	}
 	u.chooseFile(safeFileName(name)+".json", []string{".json"}, func(path string) { u.saveAsTo(path, then) })
@@ -210,8 +210,8 @@ func (u *UI) saveAs(then func()) {
 // saveAsTo saves the design to the path chosen in Save As and runs then
 // when that worked. An untitled design takes the file's name.
 func (u *UI) saveAsTo(path string, then func()) {
-	if n := u.S.Design().Name; n == "" || n == editor.NewDesign().Name {
-		u.S.SetDesignName(strings.TrimSuffix(filepath.Base(path), filepath.Ext(path)))
+	if n := u.Session.Design().Name; n == "" || n == editor.NewDesign().Name {
+		u.Session.SetDesignName(strings.TrimSuffix(filepath.Base(path), filepath.Ext(path)))
 	}
 	if err := u.SaveTo(path); err != nil {
 		dialog.ShowError(err, u.Win)
@@ -328,7 +328,7 @@ func (u *UI) StopAutosave() {
 // nothing to write), for tests.
 func (u *UI) Autosave() <-chan error {
 	done := make(chan error, 1)
-	s := u.S
+	s := u.Session
 	snap := s.Token()
 	if !s.Dirty() || snap == u.lastAutosave || u.autosaving {
 		done <- nil
@@ -351,7 +351,7 @@ func (u *UI) Autosave() <-chan error {
 		})
 		fyne.Do(func() {
 			u.autosaving = false
-			if err == nil && u.S == s {
+			if err == nil && u.Session == s {
 				u.lastAutosave = snap
 			}
 			if err != nil {
@@ -509,13 +509,13 @@ func (u *UI) withCaution(what string, then func(editor.ExportSettings)) {
 // or csv) after the caution. A missing or out-of-date plan is offered to
 // be made first.
 func (u *UI) exportAs(kind string) {
-	p, stale := u.S.Plan()
+	p, stale := u.Session.Plan()
 	if p == nil || stale {
 		what := "has not been planned"
 		if stale {
 			what = "changed since it was planned"
 		}
-		dialog.ShowConfirm("Plan first", fmt.Sprintf("Variant %s %s. Plan it now? The export goes on when the plan is ready.", u.S.Variant().Name, what), func(ok bool) {
+		dialog.ShowConfirm("Plan first", fmt.Sprintf("Variant %s %s. Plan it now? The export goes on when the plan is ready.", u.Session.Variant().Name, what), func(ok bool) {
 			if ok && !u.Busy() {
 				u.afterPlan = func() { u.exportAs(kind) }
 				u.StartPlan()
@@ -523,9 +523,9 @@ func (u *UI) exportAs(kind string) {
 		}, u.Win)
 		return
 	}
-	d := u.S.DesignCopy()
+	d := u.Session.DesignCopy()
 	u.withCaution("the plan", func(es editor.ExportSettings) {
-		name := safeFileName(u.S.Design().Name+"-"+p.Variant) + "." + kind
+		name := safeFileName(u.Session.Design().Name+"-"+p.Variant) + "." + kind
 		u.chooseFile(name, []string{"." + kind}, func(path string) {
 			u.runInBackground("Exporting "+filepath.Base(path)+"…", func(ctx context.Context, progress func(string, float64)) error {
 				return editor.ExportPlan(ctx, path, d, p, es, progress)

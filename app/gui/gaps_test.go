@@ -34,7 +34,7 @@ func bruteGap(s *editor.Session, a, b int) float64 {
 
 func TestTunnelGapsDeclaredMeasuredAndKeptConsistent(t *testing.T) {
 	u, _ := newTestUI(t, nil)
-	s := u.S
+	s := u.Session
 	if err := s.AddTunnelGap("island", "island"); err == nil {
 		t.Error("a gap from a region to itself was accepted")
 	}

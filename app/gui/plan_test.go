@@ -44,8 +44,8 @@ func texts(o fyne.CanvasObject) string {
 
 func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 	u, w := newTestUI(t, nil)
-	p := editortest.HandPlan(u.S)
-	u.S.SetPlan(p, p.Variant, u.S.Token())
+	p := editortest.HandPlan(u.Session)
+	u.Session.SetPlan(p, p.Variant, u.Session.Token())
 	mid := p.Strokes[0].Path[0].Add(p.Strokes[0].Path[1]).Mul(0.5)
 	// Zoomed out, strokes are drawn opaque in their segment's colour.
 	img := zoomOn(w, u, mid, 0.5)
@@ -83,8 +83,8 @@ func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 	u.routeCheck.SetChecked(true)
 
 	// An edit makes the plan stale, and the views say so.
-	u.S.AddRegion("afterthought", "other")
-	if _, stale := u.S.Plan(); !stale {
+	u.Session.AddRegion("afterthought", "other")
+	if _, stale := u.Session.Plan(); !stale {
 		t.Fatal("plan not stale after an edit")
 	}
 	if !strings.Contains(texts(u.planView.content), "changed since this plan") {
@@ -94,8 +94,8 @@ func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 		t.Error("legend does not say the route is out of date")
 	}
 	// Another variant has no plan.
-	u.S.SetVariant(1)
-	if got, _ := u.S.Plan(); got != nil {
+	u.Session.SetVariant(1)
+	if got, _ := u.Session.Plan(); got != nil {
 		t.Error("variant B shows variant A's plan")
 	}
 	if !strings.Contains(texts(u.planView.content), "has not been planned") {
@@ -105,7 +105,7 @@ func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 
 func TestComparisonView(t *testing.T) {
 	u, _ := newTestUI(t, nil)
-	p := editortest.HandPlan(u.S)
+	p := editortest.HandPlan(u.Session)
 	res := []exportResult{{Variant: "A", Plan: p}, {Variant: "B", Err: errPlanTest}}
 	view := comparisonView(res, nil)
 	if w := view.MinSize().Width; w > 1000 {

@@ -103,7 +103,7 @@ func bigText(s string) fyne.CanvasObject {
 }
 
 func (p *planPanel) refresh() {
-	s := p.u.S
+	s := p.u.Session
 	pl, stale := s.Plan()
 	var objs []fyne.CanvasObject
 	if pl == nil {

@@ -31,11 +31,11 @@ func waitJob(t *testing.T, u *UI, start func()) {
 func TestPlanButtonPlansDemo(t *testing.T) {
 	u, w := newTestUI(t, editortest.Demo(t))
 	waitJob(t, u, func() { test.Tap(u.planButton) })
-	p, stale := u.S.Plan()
+	p, stale := u.Session.Plan()
 	if p == nil || stale {
 		t.Fatalf("after Plan: plan %v, stale %v", p != nil, stale)
 	}
-	if p.Variant != u.S.Variant().Name || len(p.Strokes) == 0 || !p.Coverage.OK {
+	if p.Variant != u.Session.Variant().Name || len(p.Strokes) == 0 || !p.Coverage.OK {
 		t.Fatalf("plan of %q with %d strokes, coverage ok %v", p.Variant, len(p.Strokes), p.Coverage.OK)
 	}
 	if u.tabs.Selected() != u.tabPlan {
@@ -61,8 +61,8 @@ func TestPlanButtonPlansDemo(t *testing.T) {
 	}
 
 	// Planning the other variant and comparing both.
-	u.variantSelect.SetSelected(u.S.VariantNames()[1])
-	if got, _ := u.S.Plan(); got != nil {
+	u.variantSelect.SetSelected(u.Session.VariantNames()[1])
+	if got, _ := u.Session.Plan(); got != nil {
 		t.Error("the second variant shows the first one's plan")
 	}
 	waitJob(t, u, u.compareVariants)
@@ -82,7 +82,7 @@ func TestCancelPlanning(t *testing.T) {
 		}
 		u.cancelPlan()
 	})
-	if p, _ := u.S.Plan(); p != nil {
+	if p, _ := u.Session.Plan(); p != nil {
 		t.Error("a cancelled plan was shown")
 	}
 	if got := u.hintLabel.Text; got != "Planning cancelled." {

@@ -115,7 +115,7 @@ func (u *UI) editProfile() { u.openProfileEditor() }
 
 // openProfileEditor shows the editor and returns it.
 func (u *UI) openProfileEditor() *profileEditor {
-	e := &profileEditor{u: u, fields: profileFields(), path: u.S.ProfilePath}
+	e := &profileEditor{u: u, fields: profileFields(), path: u.Session.ProfilePath}
 	e.name = widget.NewEntry()
 	e.notes = widget.NewEntry()
 	e.apOut = widget.NewCheck("extra outline pass", nil)
@@ -127,7 +127,7 @@ func (u *UI) openProfileEditor() *profileEditor {
 	for i := range e.fields {
 		e.entries[i] = widget.NewEntry()
 	}
-	e.fill(u.S.Profile)
+	e.fill(u.Session.Profile)
 
 	var groups []fyne.CanvasObject
 	groups = append(groups, widget.NewForm(widget.NewFormItem("Name", e.name), widget.NewFormItem("Notes", e.notes),
@@ -291,7 +291,7 @@ func (e *profileEditor) apply() {
 		showErr(e.msg, fmt.Errorf("Not applied:\n%w", err))
 		return
 	}
-	e.u.S.SetProfile(p, e.path)
+	e.u.Session.SetProfile(p, e.path)
 	e.dlg.Hide()
 	e.u.hintLabel.SetText("Instrument profile " + p.Name + " applied; plan again for its figures.")
 }

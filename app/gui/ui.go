@@ -43,11 +43,11 @@ type Options struct {
 // UI is the main window: the views of one Session and the actions that
 // call into it. Widgets hold no design state of their own.
 type UI struct {
-	App  fyne.App
-	Win  fyne.Window
-	S    *editor.Session
-	View *LatticeView
-	opts Options
+	App     fyne.App
+	Win     fyne.Window
+	Session *editor.Session
+	View    *LatticeView
+	opts    Options
 
 	cursorLabel *widget.Label
 	hintLabel   *widget.Label
@@ -107,7 +107,7 @@ func New(a fyne.App, w fyne.Window, s *editor.Session, o Options) *UI {
 	}
 	// Before any file dialog: saving must never empty a file first.
 	installLazyFiles()
-	u := &UI{App: a, Win: w, S: s, opts: o, toolButtons: map[editor.Tool]*widget.Button{}, recovery: &recoveryFiles{}}
+	u := &UI{App: a, Win: w, Session: s, opts: o, toolButtons: map[editor.Tool]*widget.Button{}, recovery: &recoveryFiles{}}
 	u.View = NewLatticeView(s)
 	u.View.OnCursor = u.showCursor
 	u.View.OnRune = u.typedRune
@@ -126,10 +126,10 @@ func New(a fyne.App, w fyne.Window, s *editor.Session, o Options) *UI {
 
 // attach makes s the session the window shows.
 func (u *UI) attach(s *editor.Session) {
-	if u.S != nil && u.S != s {
-		u.S.OnChange = nil
+	if u.Session != nil && u.Session != s {
+		u.Session.OnChange = nil
 	}
-	u.S = s
+	u.Session = s
 	u.View.s = s
 	u.View.fitted = false
 	u.View.scene = nil
@@ -169,8 +169,8 @@ func (u *UI) changed(c editor.Change) {
 	}
 	if c&(editor.ChangeVariants|editor.ChangeHistory) != 0 {
 		u.variants.refresh()
-		u.variantSelect.Options = u.S.VariantNames()
-		u.variantSelect.Selected = u.S.Variant().Name
+		u.variantSelect.Options = u.Session.VariantNames()
+		u.variantSelect.Selected = u.Session.Variant().Name
 		u.variantSelect.Refresh()
 	}
 	if c&(editor.ChangeFiducials|editor.ChangeTerraces|editor.ChangeFile|editor.ChangeVariants) != 0 {
@@ -186,15 +186,15 @@ func (u *UI) changed(c editor.Change) {
 		u.refreshLegend()
 	}
 	if c&(editor.ChangeFile|editor.ChangeHistory) != 0 {
-		u.Win.SetTitle(u.S.Title())
+		u.Win.SetTitle(u.Session.Title())
 		u.refreshHistory()
 	}
 	if c&editor.ChangeHistory != 0 {
 		u.scheduleCheck()
 	}
-	if u.S.Err != nil {
-		u.hintLabel.SetText("Problem: " + u.S.Err.Error())
-		u.S.Err = nil
+	if u.Session.Err != nil {
+		u.hintLabel.SetText("Problem: " + u.Session.Err.Error())
+		u.Session.Err = nil
 	}
 }
 
@@ -224,9 +224,9 @@ func (u *UI) build() {
 	u.tabs = container.NewAppTabs(u.tabRegions, u.tabFindings, u.tabPlan, u.tabVariants, u.tabMarks)
 
 	u.variantSelect = widget.NewSelect(nil, func(name string) {
-		for i, n := range u.S.VariantNames() {
+		for i, n := range u.Session.VariantNames() {
 			if n == name {
-				u.S.SetVariant(i)
+				u.Session.SetVariant(i)
 			}
 		}
 	})
@@ -237,8 +237,8 @@ func (u *UI) build() {
 // content lays the window out: toolbar on top, tools on the left, the
 // lattice in the middle, panels on the right, status at the bottom.
 func (u *UI) content() fyne.CanvasObject {
-	u.undoButton = widget.NewButtonWithIcon("", theme.ContentUndoIcon(), func() { u.S.Undo() })
-	u.redoButton = widget.NewButtonWithIcon("", theme.ContentRedoIcon(), func() { u.S.Redo() })
+	u.undoButton = widget.NewButtonWithIcon("", theme.ContentUndoIcon(), func() { u.Session.Undo() })
+	u.redoButton = widget.NewButtonWithIcon("", theme.ContentRedoIcon(), func() { u.Session.Redo() })
 	u.planButton = widget.NewButtonWithIcon("Plan", theme.MediaPlayIcon(), u.StartPlan)
 	u.planButton.Importance = widget.HighImportance
 	toolbar := container.NewHBox(
@@ -248,7 +248,7 @@ func (u *UI) content() fyne.CanvasObject {
 		u.undoButton, u.redoButton,
 		widget.NewSeparator(),
 		widget.NewLabel("Variant"), container.New(&fixedWidth{w: 200}, u.variantSelect),
-		widget.NewButtonWithIcon("", theme.ContentCopyIcon(), func() { u.S.DuplicateVariant(u.S.VariantIndex()) }),
+		widget.NewButtonWithIcon("", theme.ContentCopyIcon(), func() { u.Session.DuplicateVariant(u.Session.VariantIndex()) }),
 		widget.NewSeparator(),
 		widget.NewButtonWithIcon("Check", theme.ConfirmIcon(), u.CheckNow),
 		u.planButton,
@@ -296,7 +296,7 @@ func (u *UI) toolPalette() fyne.CanvasObject {
 	var buttons []fyne.CanvasObject
 	for _, ti := range editor.Tools {
 		t := ti.Tool
-		b := widget.NewButton(fmt.Sprintf("%s  %c", ti.Name, ti.Key-'a'+'A'), func() { u.S.SetTool(t) })
+		b := widget.NewButton(fmt.Sprintf("%s  %c", ti.Name, ti.Key-'a'+'A'), func() { u.Session.SetTool(t) })
 		b.Alignment = widget.ButtonAlignLeading
 		u.toolButtons[t] = b
 		buttons = append(buttons, b)
@@ -339,7 +339,7 @@ func (u *UI) toolPalette() fyne.CanvasObject {
 func (u *UI) refreshTools() {
 	for t, b := range u.toolButtons {
 		imp := widget.LowImportance
-		if t == u.S.Tool {
+		if t == u.Session.Tool {
 			imp = widget.HighImportance
 		}
 		if b.Importance != imp {
@@ -347,14 +347,14 @@ func (u *UI) refreshTools() {
 			b.Refresh()
 		}
 	}
-	u.toolOptions.Objects = u.optionsFor(u.S.Tool)
+	u.toolOptions.Objects = u.optionsFor(u.Session.Tool)
 	u.toolOptions.Refresh()
 }
 
 // refreshHint shows what the tool does and, for the painting tools,
 // which region the next stroke goes into.
 func (u *UI) refreshHint() {
-	s := u.S
+	s := u.Session
 	hint := s.Tool.Info().Hint
 	switch s.Tool {
 	case editor.ToolSite, editor.ToolDimer, editor.ToolRect, editor.ToolPolygon, editor.ToolLine:
@@ -375,9 +375,9 @@ func (u *UI) refreshHint() {
 // deleteSelection removes the selected shape, or else the selected
 // regions.
 func (u *UI) deleteSelection() {
-	if !u.S.DeleteSelectedShape() {
-		if sel := u.S.Selection(); len(sel) > 0 {
-			u.S.DeleteRegions(sel...)
+	if !u.Session.DeleteSelectedShape() {
+		if sel := u.Session.Selection(); len(sel) > 0 {
+			u.Session.DeleteRegions(sel...)
 		}
 	}
 }
@@ -405,15 +405,15 @@ func (u *UI) optionEntry(label string, value string, apply func(string) error) f
 }
 
 func (u *UI) setOpt(f func(o *editor.ToolOptions) error) error {
-	o := u.S.Opts
+	o := u.Session.Opts
 	if err := f(&o); err != nil {
 		return err
 	}
-	return u.S.SetOptions(o)
+	return u.Session.SetOptions(o)
 }
 
 func (u *UI) optionsFor(t editor.Tool) []fyne.CanvasObject {
-	o := u.S.Opts
+	o := u.Session.Opts
 	num := func(label string, v float64, set func(o *editor.ToolOptions, v float64)) fyne.CanvasObject {
 		return u.optionEntry(label, trimZeros(fmt.Sprintf("%.3f", v)), func(s string) error {
 			x, err := parseNumber(label, s)
@@ -473,11 +473,11 @@ func (u *UI) optionsFor(t editor.Tool) []fyne.CanvasObject {
 }
 
 func (u *UI) templateNames() []string {
-	return u.S.Design().Templates().Names()
+	return u.Session.Design().Templates().Names()
 }
 
 func (u *UI) templateInfo(name string) fyne.CanvasObject {
-	t, ok := editor.TemplateOf(u.S.Design(), name)
+	t, ok := editor.TemplateOf(u.Session.Design(), name)
 	if !ok {
 		return widget.NewLabel("")
 	}
@@ -526,7 +526,7 @@ func legendName(s string) string {
 // refreshLegend lists what the view's colours mean right now.
 func (u *UI) refreshLegend() {
 	var rows []fyne.CanvasObject
-	v := u.S.Variant()
+	v := u.Session.Variant()
 	const maxRegions = 8
 	for i, r := range v.Regions {
 		if i == maxRegions {
@@ -538,7 +538,7 @@ func (u *UI) refreshLegend() {
 	if len(v.Regions) == 0 {
 		rows = append(rows, legendRow(swatch(render.ColCleanH, 12, 12), "clean H-terminated surface"))
 	}
-	if p, stale := u.S.Plan(); p != nil && u.View.Opts.Route {
+	if p, stale := u.Session.Plan(); p != nil && u.View.Opts.Route {
 		rows = append(rows, widget.NewSeparator())
 		segs := container.NewHBox()
 		for i := 0; i < min(len(p.Segments), 6); i++ {
@@ -551,17 +551,17 @@ func (u *UI) refreshLegend() {
 		rows = append(rows, legendRow(swatch(render.ColMove, 14, 1), "tip moves"))
 		rows = append(rows, legendRow(legendText("◇"), "registration on a fiducial"))
 	}
-	if len(u.S.Design().Fiducials) > 0 {
+	if len(u.Session.Design().Fiducials) > 0 {
 		rows = append(rows, legendRow(legendText("⊕"), "fiducial mark"))
 	}
-	if surf := u.S.Surface(); surf != nil && len(surf.Terraces) > 1 {
+	if surf := u.Session.Surface(); surf != nil && len(surf.Terraces) > 1 {
 		rows = append(rows, widget.NewSeparator())
 		for i, t := range surf.Terraces {
 			rows = append(rows, legendRow(swatch(render.ColTerrace[i%len(render.ColTerrace)], 12, 12), fmt.Sprintf("terrace %s: rows along %s", legendName(t.Name), t.Rows)))
 		}
 		rows = append(rows, legendRow(swatch(render.ColStep, 14, 2), "step edge"))
 	}
-	if f, _ := u.S.Findings(); len(f) > 0 && u.View.Opts.Findings {
+	if f, _ := u.Session.Findings(); len(f) > 0 && u.View.Opts.Findings {
 		errs, warns := countFindings(f)
 		if errs > 0 {
 			rows = append(rows, legendRow(swatch(render.ColError, 12, 12), "design-rule error"))
@@ -597,11 +597,11 @@ func (u *UI) showCursor(p r2.Point, ok bool) {
 		return
 	}
 	text := fmt.Sprintf("(%.3f, %.3f) nm", p.X, p.Y)
-	surf := u.S.Surface()
+	surf := u.Session.Surface()
 	if site, _, on := surf.Snap(p); on && surf.Field.ContainsPoint(p) {
 		text += fmt.Sprintf("  %s row %d dimer %d side %d", surf.Terraces[site.Terrace].Name, site.Row, site.Dimer, site.Side)
-		if i := u.S.RegionAt(p); i >= 0 {
-			text += " · " + u.S.Variant().Regions[i].Name
+		if i := u.Session.RegionAt(p); i >= 0 {
+			text += " · " + u.Session.Variant().Regions[i].Name
 		}
 	} else {
 		text += "  outside the field"
@@ -610,13 +610,13 @@ func (u *UI) showCursor(p r2.Point, ok bool) {
 }
 
 func (u *UI) refreshHistory() {
-	setEnabled(u.undoButton, u.S.CanUndo())
-	setEnabled(u.redoButton, u.S.CanRedo())
+	setEnabled(u.undoButton, u.Session.CanUndo())
+	setEnabled(u.redoButton, u.Session.CanRedo())
 	if u.undoItem != nil {
-		u.undoItem.Label = "Undo " + u.S.UndoLabel()
-		u.undoItem.Disabled = !u.S.CanUndo()
-		u.redoItem.Label = "Redo " + u.S.RedoLabel()
-		u.redoItem.Disabled = !u.S.CanRedo()
+		u.undoItem.Label = "Undo " + u.Session.UndoLabel()
+		u.undoItem.Disabled = !u.Session.CanUndo()
+		u.redoItem.Label = "Redo " + u.Session.RedoLabel()
+		u.redoItem.Disabled = !u.Session.CanRedo()
 		u.menu.Refresh()
 	}
 }
@@ -651,7 +651,7 @@ func (u *UI) typedRune(r rune) {
 	}
 	for _, ti := range editor.Tools {
 		if r == ti.Key || r == ti.Key-'a'+'A' {
-			u.S.SetTool(ti.Tool)
+			u.Session.SetTool(ti.Tool)
 			return
 		}
 	}
@@ -663,15 +663,15 @@ func (u *UI) typedKey(k *fyne.KeyEvent) {
 	step := float64(u.View.view.W) / 8
 	switch k.Name {
 	case fyne.KeyReturn, fyne.KeyEnter:
-		if err := u.S.FinishPath(); err != nil {
+		if err := u.Session.FinishPath(); err != nil {
 			u.hintLabel.SetText(err.Error())
 		}
 	case fyne.KeyEscape:
-		if u.S.Drawing() {
-			u.S.CancelPath()
-		} else if len(u.S.Selection()) > 0 {
+		if u.Session.Drawing() {
+			u.Session.CancelPath()
+		} else if len(u.Session.Selection()) > 0 {
 			// Nothing selected: the next stroke starts a new region.
-			u.S.Select()
+			u.Session.Select()
 		}
 	case fyne.KeyDelete, fyne.KeyBackspace:
 		u.deleteSelection()
@@ -702,9 +702,9 @@ func ctrlShift(k fyne.KeyName) *desktop.CustomShortcut {
 // where a main menu does not route them (and in tests).
 func (u *UI) addShortcuts() {
 	c := u.Win.Canvas()
-	c.AddShortcut(&fyne.ShortcutUndo{}, func(fyne.Shortcut) { u.S.Undo() })
-	c.AddShortcut(&fyne.ShortcutRedo{}, func(fyne.Shortcut) { u.S.Redo() })
-	c.AddShortcut(ctrlShift(fyne.KeyZ), func(fyne.Shortcut) { u.S.Redo() })
+	c.AddShortcut(&fyne.ShortcutUndo{}, func(fyne.Shortcut) { u.Session.Undo() })
+	c.AddShortcut(&fyne.ShortcutRedo{}, func(fyne.Shortcut) { u.Session.Redo() })
+	c.AddShortcut(ctrlShift(fyne.KeyZ), func(fyne.Shortcut) { u.Session.Redo() })
 	c.AddShortcut(ctrl(fyne.KeyS), func(fyne.Shortcut) { u.save(nil) })
 	c.AddShortcut(ctrlShift(fyne.KeyS), func(fyne.Shortcut) { u.saveAs(nil) })
 	c.AddShortcut(ctrl(fyne.KeyO), func(fyne.Shortcut) { u.openDialog() })
@@ -746,19 +746,19 @@ func (u *UI) buildMenu() {
 	file.Items = append(file.Items, u.exportMenu...)
 	file.Items = append(file.Items, fyne.NewMenuItemSeparator(), quit)
 
-	u.undoItem = item("Undo", &fyne.ShortcutUndo{}, func() { u.S.Undo() })
-	u.redoItem = item("Redo", ctrlShift(fyne.KeyZ), func() { u.S.Redo() })
+	u.undoItem = item("Undo", &fyne.ShortcutUndo{}, func() { u.Session.Undo() })
+	u.redoItem = item("Redo", ctrlShift(fyne.KeyZ), func() { u.Session.Redo() })
 	edit := fyne.NewMenu("Edit", u.undoItem, u.redoItem,
-		item("Redo (Ctrl+Y)", &fyne.ShortcutRedo{}, func() { u.S.Redo() }),
+		item("Redo (Ctrl+Y)", &fyne.ShortcutRedo{}, func() { u.Session.Redo() }),
 		fyne.NewMenuItemSeparator(),
-		fyne.NewMenuItem("Delete selected shape (Delete)", func() { u.S.DeleteSelectedShape() }),
-		fyne.NewMenuItem("Delete selected regions", func() { u.S.DeleteRegions(u.S.Selection()...) }),
-		fyne.NewMenuItem("Select nothing (Esc)", func() { u.S.Select() }),
+		fyne.NewMenuItem("Delete selected shape (Delete)", func() { u.Session.DeleteSelectedShape() }),
+		fyne.NewMenuItem("Delete selected regions", func() { u.Session.DeleteRegions(u.Session.Selection()...) }),
+		fyne.NewMenuItem("Select nothing (Esc)", func() { u.Session.Select() }),
 	)
 	var toolItems []*fyne.MenuItem
 	for _, ti := range editor.Tools {
 		t := ti.Tool
-		toolItems = append(toolItems, fyne.NewMenuItem(fmt.Sprintf("%s (%c)", ti.Name, ti.Key-'a'+'A'), func() { u.S.SetTool(t) }))
+		toolItems = append(toolItems, fyne.NewMenuItem(fmt.Sprintf("%s (%c)", ti.Name, ti.Key-'a'+'A'), func() { u.Session.SetTool(t) }))
 	}
 	tools := fyne.NewMenu("Tools", toolItems...)
 	view := fyne.NewMenu("View",
@@ -786,8 +786,8 @@ func (u *UI) buildMenu() {
 
 func (u *UI) zoomToSelection() {
 	b := r2.EmptyRect()
-	for _, i := range u.S.Selection() {
-		b = b.Union(u.S.RegionBounds(i))
+	for _, i := range u.Session.Selection() {
+		b = b.Union(u.Session.RegionBounds(i))
 	}
 	if !b.IsEmpty() {
 		u.View.ZoomTo(b)

@@ -4,10 +4,11 @@ import (
 	"image/color"
 	"testing"
 
+	"github.com/golang/geo/r2"
+
 	"dimerpath/app/editor"
 	"dimerpath/app/editor/editortest"
 	"dimerpath/app/render"
-	"github.com/golang/geo/r2"
 )
 
 // TestDemoAtEveryZoom draws the demo design from the whole field down to

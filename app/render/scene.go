@@ -1,11 +1,79 @@
 package render
 
 import (
+	"image/color"
+
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
 	"dimerpath/planner"
 )
+
+// Scene is what one frame of the lattice view shows. The renderer only
+// reads it. Layers and overlays are prepared by the editor state when the
+// design, plan or selection change, not per frame.
+type Scene struct {
+	Surface *lattice.Surface
+	// Layers are the regions of the current variant, bottom first: where
+	// two overlap, the one with more sites in a pixel colours it.
+	Layers []Layer
+	// DimLayers mutes the region colours so that a route drawn over them
+	// stands out.
+	DimLayers bool
+	Route     *RouteOverlay
+	Fiducials []r2.Point
+	Marks     []Mark
+	Preview   *Preview
+	// Selected outlines, in field nm.
+	Selected []r2.Rect
+	// SelectedShape is the extent of the selected shape (nm), drawn with
+	// corner handles, or nil.
+	SelectedShape *r2.Rect
+}
+
+// Layer is one region's sites as the view draws them.
+type Layer struct {
+	Sites *lattice.SiteSet
+	Color color.NRGBA
+	// Bounds is the field rectangle (nm) holding every site of Sites; the
+	// renderer skips the pixels outside it.
+	Bounds   r2.Rect
+	Selected bool
+}
+
+// Mark is a design-rule finding drawn on the view.
+type Mark struct {
+	Bounds   r2.Rect // field nm; a point finding has a degenerate rectangle
+	Error    bool    // error (red) or warning (amber)
+	Selected bool
+}
+
+// Preview is a tool's shape while it is being drawn, in field nm.
+type Preview struct {
+	Points  []r2.Point
+	Closed  bool    // a polygon rather than a polyline
+	WidthNM float64 // a line's width; 0 draws the centre line only
+	Rect    bool    // Points[0] and Points[1] are opposite corners
+	// BrushNM, when > 0, draws a circle of this radius at Points[0].
+	BrushNM float64
+}
+
+// RouteOverlay is a plan's route reduced to what the view draws.
+type RouteOverlay struct {
+	Strokes []RouteStroke
+	Moves   [][2]r2.Point
+	// Registrations are the fiducial positions segments register on.
+	Registrations []r2.Point
+}
+
+// RouteStroke is one written stroke: a path of a given width, or a dwell
+// point when Path has one point.
+type RouteStroke struct {
+	Path    []r2.Point
+	WidthNM float64
+	Segment int
+	Bounds  r2.Rect
+}
 
 // RouteOf reduces a plan to the route overlay: strokes coloured by
 // segment and as wide as their mode's line, idle moves, and the

@@ -8,40 +8,11 @@ import (
 
 	"github.com/golang/geo/r2"
 
-	"dimerpath/assets"
 	"dimerpath/export"
 	"dimerpath/internal/atomicfile"
-	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
-
-// This file is the one place where the GUI calls the pure packages for
-// anything beyond reading their types: surfaces, rasterised regions,
-// design-rule findings, plans, profiles and files. The GUI computes none
-// of these itself.
-
-// surfaceOf returns the lattice surface of d's field and terraces.
-func surfaceOf(d *design.Design) (*lattice.Surface, error) { return d.Surface() }
-
-// regionSites returns the H sites of region r: its shapes and painted
-// sites, minus its erased sites.
-func regionSites(surf *lattice.Surface, d *design.Design, r *design.Region) (*lattice.SiteSet, error) {
-	return r.Sites(surf, d.Templates())
-}
-
-// ShapeSites rasterises one shape onto the lattice.
-func ShapeSites(surf *lattice.Surface, d *design.Design, s *design.Shape) (*lattice.SiteSet, error) {
-	r := design.Region{Name: "new shape", Shapes: []design.Shape{*s}}
-	return r.Sites(surf, d.Templates())
-}
-
-// TemplateOf returns the window template named name: the design's own
-// or a built-in one.
-func TemplateOf(d *design.Design, name string) (lattice.WindowTemplate, bool) {
-	t, ok := d.Templates()[name]
-	return t, ok
-}
 
 // Finding is a design-rule finding as the GUI lists and draws it.
 type Finding struct {
@@ -101,20 +72,6 @@ func BuildPlan(ctx context.Context, d *design.Design, variant string, prof plann
 	return planner.Build(ctx, d, variant, prof, opt)
 }
 
-// defaultProfile returns the instrument profile planning starts from.
-func defaultProfile() planner.Profile { return planner.DefaultProfile() }
-
-// LoadDesign reads and validates a design file.
-func LoadDesign(path string) (*design.Design, error) { return design.Load(path) }
-
-// SaveDesign validates d and writes it atomically to path.
-func SaveDesign(path string, d *design.Design) error { return design.Save(path, d) }
-
-// DemoDesign returns the built-in demo design.
-func DemoDesign() (*design.Design, error) {
-	return design.Parse(assets.DemoName, assets.DemoDesign)
-}
-
 // ExportSettings are the choices an export needs besides the plan.
 type ExportSettings struct {
 	Paper     export.Paper
@@ -144,21 +101,3 @@ func ExportComparison(ctx context.Context, path string, res []export.VariantResu
 		return export.WriteComparisonPDF(ctx, w, res, opt)
 	})
 }
-
-// ValidateProfile reports every field of p that is not physical, then
-// the first tip condition beyond the profile's own instrument limits.
-func ValidateProfile(p planner.Profile) error {
-	if err := p.Validate(); err != nil {
-		return err
-	}
-	return p.CheckLimits(nil)
-}
-
-// LoadProfile reads and validates an instrument-profile file.
-func LoadProfile(path string) (planner.Profile, error) { return planner.LoadProfile(path) }
-
-// SaveProfile writes a valid profile atomically to path.
-func SaveProfile(path string, p planner.Profile) error { return planner.SaveProfile(path, p) }
-
-// PresetProfile returns the built-in profile of that name.
-func PresetProfile(name string) (planner.Profile, error) { return planner.Preset(name) }
