@@ -240,6 +240,13 @@ func TestReadPlanJSONRejects(t *testing.T) {
 			at(m, "strokes", 3)["end_nm"] = []any{1e9, 5.0}
 		}), ErrInvalid, "strokes[3].path_nm[0]"},
 		{"field too large", mutate(t, p, func(m map[string]any) { m["field_nm"] = []any{1e12, 80.0} }), ErrInvalid, "field_nm[0]"},
+		// Issue 16: a plan without yield read as log10_all = -Inf, and
+		// encoding/json matched keys in any case.
+		{"no yield", mutate(t, p, func(m map[string]any) { delete(m, "yield") }), ErrInvalid, "yield: missing"},
+		{"key in another case", mutate(t, p, func(m map[string]any) { m["vAriAnt"] = m["variant"]; delete(m, "variant") }), ErrInvalid,
+			`vAriAnt: unknown field: names are case-sensitive, did you mean "variant"?`},
+		{"NaN total is still a plan", bytes.Replace(mutate(t, p, func(m map[string]any) { m["total_s"] = "NAN" }), []byte(`"NAN"`), []byte("NaN"), 1),
+			ErrInvalid, "total_s: NaN is not a finite number"},
 		{"quantiles reversed", mutate(t, p, func(m map[string]any) { m["p10_s"] = m["p90_s"].(float64) + 1 }), ErrInvalid, "p50_s"},
 	}
 	for _, tc := range cases {

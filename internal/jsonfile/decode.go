@@ -694,6 +694,13 @@ func (si *structInfo) unknown(key string) string {
 	return "unknown field (known here: " + strings.Join(names, ", ") + ")"
 }
 
+// Key returns the path of the member key of the object at path, written
+// as Decode writes paths: "regions.pad", or regions["pad/ap"] for a key
+// that is not a plain name.
+func Key(path, key string) string {
+	return joinPath(path, formatPath([]segment{{key: key, index: -1}}))
+}
+
 // Under reports whether path is at or inside the value at prefix ("" is
 // the whole file).
 func Under(path, prefix string) bool {
