@@ -12,7 +12,6 @@ import (
 
 	"github.com/golang/geo/r2"
 
-	"dimerpath/lattice"
 	"dimerpath/planner"
 )
 
@@ -802,11 +801,7 @@ func rowsNote(sc *scene, win r2.Rect) string {
 				continue
 			}
 			seen[t] = true
-			dir := "along x"
-			if sc.surf.Terraces[t].Rows == lattice.RowsAlongY {
-				dir = "along y"
-			}
-			parts = append(parts, fmt.Sprintf("%s rows %s", sc.surf.Terraces[t].Name, dir))
+			parts = append(parts, fmt.Sprintf("%s rows along %s", sc.surf.Terraces[t].Name, sc.surf.Terraces[t].Rows))
 		}
 	}
 	slices.Sort(parts)

@@ -166,17 +166,10 @@ func runRects(surf *lattice.Surface, set *lattice.SiteSet) []r2.Rect {
 	return out
 }
 
-// runRect returns the field rectangle of one run: its dimers along the
-// row, one row spacing across it.
+// runRect returns the field rectangle of one run: the cells of its
+// dimers, one row spacing across.
 func runRect(surf *lattice.Surface, run lattice.Run) r2.Rect {
-	d0, d1 := run.Start>>1, (run.End()-1)>>1
-	a := surf.DimerCentre(run.Terrace, run.Row, d0)
-	b := surf.DimerCentre(run.Terrace, run.Row, d1)
-	hp, hr := lattice.DimerPitch/2, lattice.RowSpacing/2
-	if surf.Terraces[run.Terrace].Rows == lattice.RowsAlongY {
-		return r2.RectFromPoints(r2.Point{X: a.X - hr, Y: math.Min(a.Y, b.Y) - hp}, r2.Point{X: a.X + hr, Y: math.Max(a.Y, b.Y) + hp})
-	}
-	return r2.RectFromPoints(r2.Point{X: math.Min(a.X, b.X) - hp, Y: a.Y - hr}, r2.Point{X: math.Max(a.X, b.X) + hp, Y: a.Y + hr})
+	return surf.DimerCells(run.Terrace, run.Row, lattice.DimerRange{Lo: run.Start >> 1, Hi: (run.End()-1)>>1 + 1})
 }
 
 // view maps a field window in nm onto device units: device y grows

@@ -26,10 +26,11 @@
 // change of lattice geometry is made in this package alone: a terrace's
 // Frame converts field points to distances along and across its rows
 // from its origin and back (ToLocal, ToField, LocalRect, FieldRect),
-// DimerAlong, RowAcross and SiteAcross place dimers, rows and sites in
-// it, RowDirection.Split and Join exchange the axes without moving the
-// origin, Frame.SnapRect and LatticeVector snap rectangles and moves to
-// whole dimers and rows, and Frame.DimersIn, Surface.RowDimers,
+// DimerAlong, RowAcross, SiteAcross and DimerEdge place dimers, rows,
+// sites and cell edges in it, RowDirection.Split and Join exchange the
+// axes without moving the origin, Frame.SnapRect and LatticeVector snap
+// rectangles and moves to whole dimers and rows, and DimersIn,
+// Surface.RowDimers,
 // Surface.TerraceSpans and Surface.Dimers answer which dimers lie in an
 // interval, exist on a row or meet a window.
 //

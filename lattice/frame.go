@@ -119,7 +119,7 @@ func (f Frame) LatticeVector(d r2.Point) r2.Point {
 func (f Frame) SnapRect(a, b r2.Point) r2.Rect {
 	cells := func(u, v, pitch float64) (float64, float64) {
 		ku, kv := math.Round(u/pitch), math.Round(v/pitch)
-		return (math.Min(ku, kv) - 0.5) * pitch, (math.Max(ku, kv) + 0.5) * pitch
+		return (math.Min(ku, kv) - 0.5) * pitch, (math.Max(ku, kv) + 0.5) * pitch // cell edges
 	}
 	aa, ac := f.ToLocal(a)
 	ba, bc := f.ToLocal(b)
@@ -140,17 +140,20 @@ func (d DimerRange) Sites() (from, to int) { return 2 * d.Lo, 2 * d.Hi }
 func (d DimerRange) IsEmpty() bool { return d.Hi <= d.Lo }
 
 // DimersIn returns the dimers whose centres lie in the interval of the
-// along-row field coordinate, to within 10⁻⁹ of a dimer pitch: those
-// that a span of an Area on a row's centre line covers. The range may
-// reach beyond the dimers that exist (negative or past DimerCount);
-// clip it to the row.
-func (f Frame) DimersIn(along r1.Interval) DimerRange {
-	o, _ := f.Rows.Split(f.Origin)
+// along-row coordinate of a terrace's frame, to within 10⁻⁹ of a dimer
+// pitch. The range may reach beyond the dimers that exist (negative or
+// past DimerCount); clip it to the row.
+func DimersIn(along r1.Interval) DimerRange {
 	return DimerRange{
-		Lo: int(math.Ceil((along.Lo-o)/DimerPitch - 1e-9)),
-		Hi: int(math.Ceil((along.Hi-o)/DimerPitch + 1e-9)),
+		Lo: int(math.Ceil(along.Lo/DimerPitch - 1e-9)),
+		Hi: int(math.Ceil(along.Hi/DimerPitch + 1e-9)),
 	}
 }
+
+// DimerEdge returns the distance along the rows, from the frame's
+// origin, of the edge between the cells of dimers d-1 and d:
+// (d - ½)·DimerPitch.
+func DimerEdge(d int) float64 { return (float64(d) - 0.5) * DimerPitch }
 
 // RowDimers appends to dst the ranges of dimers of row r of terrace t
 // that exist (their centres lie in the field and on terrace t, as
@@ -161,11 +164,11 @@ func (s *Surface) RowDimers(dst []DimerRange, t, r int) []DimerRange {
 		return dst
 	}
 	f := s.Frame(t)
-	_, c := f.Rows.Split(f.Origin)
+	o, c := f.Rows.Split(f.Origin)
 	var buf [8]r1.Interval
 	n := s.DimerCount(t)
 	for _, iv := range s.TerraceSpans(buf[:0], t, c+RowAcross(r)) {
-		d := f.DimersIn(iv)
+		d := DimersIn(r1.Interval{Lo: iv.Lo - o, Hi: iv.Hi - o})
 		d.Lo, d.Hi = max(d.Lo, 0), min(d.Hi, n)
 		if !d.IsEmpty() {
 			dst = append(dst, d)

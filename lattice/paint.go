@@ -77,7 +77,7 @@ func (s *Surface) rasterise(a Area, emit func(t, r, d0, d1, side int)) {
 	var terr, s0, s1, i0, i1, both, only []r1.Interval
 	for ti := range s.Terraces {
 		f := s.Frame(ti)
-		_, offAcross := f.Rows.Split(f.Origin)
+		offAlong, offAcross := f.Rows.Split(f.Origin)
 		bAcross := b.Y
 		if f.Rows == RowsAlongY {
 			bAcross = b.X
@@ -100,7 +100,7 @@ func (s *Surface) rasterise(a Area, emit func(t, r, d0, d1, side int)) {
 				// [d0, d1+1); empty ranges are dropped.
 				out := sp[:0]
 				for _, x := range sp {
-					d := f.DimersIn(x)
+					d := DimersIn(r1.Interval{Lo: x.Lo - offAlong, Hi: x.Hi - offAlong})
 					d.Lo, d.Hi = max(d.Lo, 0), min(d.Hi, nDimers)
 					if !d.IsEmpty() {
 						out = append(out, r1.Interval{Lo: float64(d.Lo), Hi: float64(d.Hi)})
@@ -253,8 +253,8 @@ func (s *Surface) cell(terrace, row, d0, d1, side0, side1 int) r2.Rect {
 	t := &s.Terraces[terrace]
 	offAlong, offAcross := t.Rows.Split(t.Offset)
 	c := offAcross + RowAcross(row)
-	alongLo := offAlong + (float64(d0)-0.5)*DimerPitch
-	alongHi := offAlong + (float64(d1)+0.5)*DimerPitch
+	alongLo := offAlong + DimerEdge(d0)
+	alongHi := offAlong + DimerEdge(d1+1)
 	acrossLo := c - RowSpacing/2 + float64(side0)*RowSpacing/2
 	acrossHi := c + float64(side1)*RowSpacing/2
 	return r2.RectFromPoints(t.Rows.Join(alongLo, acrossLo), t.Rows.Join(alongHi, acrossHi))

@@ -55,25 +55,24 @@ func minWidth(segs []runSeg, lineWidth float64) (float64, r2.Point) {
 		return 0, at
 	}
 	step := math.Max(lineWidth/2, lattice.RowSpacing)
-	for axis := 0; axis < 2; axis++ {
-		other := 1 - axis
-		ix := newChordIndex(segs, axis)
+	for _, dir := range []lattice.RowDirection{lattice.RowsAlongX, lattice.RowsAlongY} {
+		ix := newChordIndex(segs, dir)
 		lo, hi := math.Inf(1), math.Inf(-1)
 		for _, s := range segs {
 			for _, p := range []r2.Point{s.a, s.b} {
-				c := coord(p, other)
+				_, c := dir.Split(p)
 				lo, hi = math.Min(lo, c), math.Max(hi, c)
 			}
 		}
 		lo -= lattice.RowSpacing / 2
 		hi += lattice.RowSpacing / 2
 		if hi-lo < best {
-			best, at = hi-lo, pointOnAxes(0, (lo+hi)/2, other)
+			best, at = hi-lo, dir.Turned().Join(0, (lo+hi)/2)
 		}
 		for c := lo + lineWidth/2; c <= hi-lineWidth/2; c += step {
 			for _, ch := range ix.chords(c, lattice.RowSpacing/2, lattice.RowSpacing, true) {
-				if ch.length() < best {
-					best, at = ch.length(), pointOnAxes((ch.lo+ch.hi)/2, c, axis)
+				if ch.Length() < best {
+					best, at = ch.Length(), dir.Join(ch.Center(), c)
 				}
 			}
 		}
