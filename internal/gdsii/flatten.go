@@ -112,8 +112,11 @@ var DefaultFlattenLimits = FlattenLimits{Elements: 10_000_000, Points: 50_000_00
 type FlattenOptions struct {
 	// Keep reports whether to keep elements of a layer and data (or
 	// text) type; nil keeps everything. Dropped layers cost nothing.
-	Keep   func(layer, datatype int16) bool
-	Limits FlattenLimits // zero fields take DefaultFlattenLimits'
+	Keep func(layer, datatype int16) bool
+	// KeepText reports whether to keep labels of a layer and text type;
+	// nil leaves labels to Keep.
+	KeepText func(layer, texttype int16) bool
+	Limits   FlattenLimits // zero fields take DefaultFlattenLimits'
 }
 
 // ErrCycle is wrapped by the error for structures that reference
@@ -144,6 +147,10 @@ func (l *Library) Flatten(top string, opt FlattenOptions) (*Flat, error) {
 	keep := opt.Keep
 	if keep == nil {
 		keep = func(int16, int16) bool { return true }
+	}
+	keepText := opt.KeepText
+	if keepText == nil {
+		keepText = keep
 	}
 	byName := make(map[string]*Structure, len(l.Structures))
 	for _, s := range l.Structures {
@@ -192,7 +199,7 @@ func (l *Library) Flatten(top string, opt FlattenOptions) (*Flat, error) {
 			}
 		}
 		for _, t := range s.Texts {
-			if keep(t.Layer, t.TextType) {
+			if keepText(t.Layer, t.TextType) {
 				c.elements++
 				c.points++
 			}
@@ -284,7 +291,7 @@ func (l *Library) Flatten(top string, opt FlattenOptions) (*Flat, error) {
 			f.Paths = append(f.Paths, FlatPath{Layer: p.Layer, Datatype: p.Datatype, PathType: p.PathType, Width: w, XY: xy})
 		}
 		for _, t := range s.Texts {
-			if keep(t.Layer, t.TextType) {
+			if keepText(t.Layer, t.TextType) {
 				f.Texts = append(f.Texts, FlatText{Layer: t.Layer, TextType: t.TextType, At: m.Apply(float64(t.At.X), float64(t.At.Y)), String: t.String})
 			}
 		}

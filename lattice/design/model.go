@@ -29,6 +29,30 @@ type Design struct {
 	// given. Use the Templates method for the merged set.
 	WindowTemplates []lattice.WindowTemplate `json:"templates,omitempty"`
 	Variants        []Variant                `json:"variants"`
+	// References are chip layouts kept beside the design as an overlay:
+	// drawn on the lattice and printed on the plan's overview, never
+	// written (dimerpath import-gds --as reference).
+	References []Reference `json:"references,omitempty"`
+}
+
+// Reference is geometry imported from a mask layout (GDSII) and mapped
+// into the field, kept for orientation: the contact layer, registration
+// markers, another device. The polygons are stored, so the design does
+// not depend on the layout file; File, Layers and the chip frame say
+// where they came from.
+type Reference struct {
+	Name string `json:"name"`
+	// File is the layout file as it was given to the import.
+	File string `json:"file,omitempty"`
+	// Layers are the layers read, "L/D" or "L" (every data type).
+	Layers []string `json:"layers,omitempty"`
+	// ChipOffsetNM and ChipRotationDeg are the chip frame the import used
+	// (see lattice.ChipFrame): a field point p lies at offset + R·p on
+	// the chip.
+	ChipOffsetNM    [2]float64 `json:"chip_offset_nm"`
+	ChipRotationDeg float64    `json:"chip_rotation_deg,omitempty"`
+	// PolygonsNM are the layout's polygons in field nm.
+	PolygonsNM [][][2]float64 `json:"polygons_nm"`
 }
 
 // Field is the scan field, with its lower-left corner at the origin.

@@ -3,6 +3,7 @@ package design
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"dimerpath/lattice"
 )
@@ -113,6 +114,65 @@ func (d *Design) validate(ps *problems) {
 	for i := range d.Variants {
 		d.validateVariant(ps, i, templates, species, surf)
 	}
+	d.validateReferences(ps)
+}
+
+// MaxReferencePoints bounds the points of all references of a design
+// together: an overlay is for orientation, a few layers of a contact
+// mask, not a whole chip.
+const MaxReferencePoints = 1_000_000
+
+func (d *Design) validateReferences(ps *problems) {
+	total := 0
+	for i, r := range d.References {
+		path := fmt.Sprintf("references[%d]", i)
+		if r.Name == "" {
+			ps.add(path+".name", "missing")
+		}
+		for j := range i {
+			if r.Name != "" && d.References[j].Name == r.Name {
+				ps.add(path+".name", "%q is also the name of references[%d]", r.Name, j)
+			}
+		}
+		for k, l := range r.Layers {
+			if !validLayerSpec(l) {
+				ps.add(fmt.Sprintf("%s.layers[%d]", path, k), "%q is not a GDSII layer: want L or L/D, whole numbers 0 to 32767", l)
+			}
+		}
+		if !finite(r.ChipRotationDeg) {
+			ps.add(path+".chip_rotation_deg", "%g is not a finite angle", r.ChipRotationDeg)
+		}
+		for k, p := range r.PolygonsNM {
+			if len(p) < 3 {
+				ps.add(fmt.Sprintf("%s.polygons_nm[%d]", path, k), "has %d points; a polygon needs 3 or more", len(p))
+			}
+			total += len(p)
+		}
+		if total > MaxReferencePoints {
+			ps.add(path+".polygons_nm", "the references hold more than %d points, the limit: import fewer layers, or import them as a region", MaxReferencePoints)
+			return
+		}
+	}
+}
+
+// validLayerSpec reports whether s is "L" or "L/D" with whole numbers
+// 0 to 32767.
+func validLayerSpec(s string) bool {
+	num := func(v string) bool {
+		if v == "" || len(v) > 5 {
+			return false
+		}
+		n := 0
+		for _, c := range v {
+			if c < '0' || c > '9' {
+				return false
+			}
+			n = 10*n + int(c-'0')
+		}
+		return n <= 32767
+	}
+	l, dt, has := strings.Cut(s, "/")
+	return num(l) && (!has || num(dt))
 }
 
 func (d *Design) validateTerraces(ps *problems) bool {
