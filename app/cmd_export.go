@@ -155,7 +155,7 @@ func planDesign(ctx context.Context, env Env, name string, data []byte, fl expor
 		return nil, nil, err
 	}
 	prog := newProgress(env.Stderr, "export")
-	p, err := planner.Build(ctx, d, layout.Variant.Name, prof, planner.Options{Seed: fl.seed, Progress: prog.report})
+	p, err := planner.Build(ctx, layout, prof, planner.Options{Seed: fl.seed, Progress: prog.report})
 	prog.done()
 	if err != nil {
 		return nil, nil, fmt.Errorf("%s, variant %s: %w", name, layout.Variant.Name, err)

@@ -53,7 +53,11 @@ cleanly.`,
 					return code
 				}
 				defer run.stop()
-				p, err := planner.Build(run.ctx, run.design, *variant, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
+				lay, err := run.design.Lay(*variant)
+				if err != nil {
+					return planError(env, "plan", args[0], err)
+				}
+				p, err := planner.Build(run.ctx, lay, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
 				if err != nil {
 					return planError(env, "plan", args[0], err)
 				}
@@ -110,7 +114,7 @@ func interruptible() (context.Context, context.CancelFunc) {
 }
 
 // planError reports a failed plan or comparison: an interruption, a
-// refusal (a *planner.LimitError or *planner.ProfileError names the value
+// refusal (a *planner.LimitError or the profile's *jsonfile.Error names the value
 // and the limit or field), or a design that cannot be laid out.
 func planError(env Env, cmd, file string, err error) int {
 	if errors.Is(err, context.Canceled) {
