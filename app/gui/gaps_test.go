@@ -55,12 +55,15 @@ func TestTunnelGapsDeclaredMeasuredAndKeptConsistent(t *testing.T) {
 	if !ok {
 		t.Fatal("the check did not measure the gap")
 	}
-	if want := bruteGap(s, 0, 1); math.Abs(w-want) > 1e-6 {
-		t.Errorf("gap measured %.4f nm, brute force over site cells %.4f nm", w, want)
+	if want := bruteGap(s, 0, 1); math.Abs(w.NM-want) > 1e-6 {
+		t.Errorf("gap measured %.4f nm, brute force over site cells %.4f nm", w.NM, want)
+	}
+	if !strings.Contains(w.Text, "dimer rows across the rows") {
+		t.Errorf("gap described as %q, want it counted in dimer rows across the rows", w.Text)
 	}
 	// The Regions panel shows it on the island.
 	s.Select(0)
-	if got := texts(u.regions.gaps); !strings.Contains(got, "Tunnel gap to lead: "+formatLength(w)) {
+	if got := texts(u.regions.gaps); !strings.Contains(got, "Tunnel gap to lead: "+w.Text) {
 		t.Errorf("Regions panel shows %q", got)
 	}
 
