@@ -1,6 +1,7 @@
 package gui
 
 import (
+	"fmt"
 	"math"
 	"path/filepath"
 	"strings"
@@ -58,8 +59,8 @@ func TestTunnelGapsDeclaredMeasuredAndKeptConsistent(t *testing.T) {
 	if want := bruteGap(s, 0, 1); math.Abs(w.NM-want) > 1e-6 {
 		t.Errorf("gap measured %.4f nm, brute force over site cells %.4f nm", w.NM, want)
 	}
-	if !strings.Contains(w.Text, "dimer rows across the rows") {
-		t.Errorf("gap described as %q, want it counted in dimer rows across the rows", w.Text)
+	if want := fmt.Sprintf("%.2f nm (diagonal: ", w.NM); !strings.HasPrefix(w.Text, want) {
+		t.Errorf("gap described as %q, want %q…: the lead sits off the island's corner", w.Text, want)
 	}
 	// The Regions panel shows it on the island.
 	s.Select(0)
