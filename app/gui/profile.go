@@ -14,6 +14,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 
 	"dimerpath/app/editor"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -47,9 +48,16 @@ func modeFields(group, prefix string, m func(p *planner.Profile) *planner.ModePr
 	return fs
 }
 
+// modeGroup names the profile group of a write mode's settings:
+// "Atomic-precision mode".
+func modeGroup(m design.Mode) string {
+	a := m.Adjective()
+	return strings.ToUpper(a[:1]) + a[1:] + " mode"
+}
+
 func profileFields() []profileField {
-	fs := modeFields("Atomic-precision mode", "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)
-	fs = append(fs, modeFields("Field-emission mode", "fe", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
+	fs := modeFields(modeGroup(design.ModeAP), "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)
+	fs = append(fs, modeFields(modeGroup(design.ModeFE), "fe", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
 	g := "Dwell (single points)"
 	fs = append(fs,
 		profileField{group: g, path: "dwell.bias_v", label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.BiasV }},
@@ -141,9 +149,9 @@ func (u *UI) openProfileEditor() *profileEditor {
 			groups = append(groups, heading(f.group))
 			form = widget.NewForm()
 			switch f.group {
-			case "Atomic-precision mode":
+			case modeGroup(design.ModeAP):
 				form.Append("Outline", e.apOut)
-			case "Field-emission mode":
+			case modeGroup(design.ModeFE):
 				form.Append("Outline", e.feOut)
 			}
 			last = f.group
