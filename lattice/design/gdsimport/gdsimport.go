@@ -138,12 +138,20 @@ func Read(r io.Reader, name string, opt Options) (*Layout, error) {
 	}
 	out := &Layout{File: name, Top: opt.Top, Layers: opt.Layers, Skipped: lib.Skipped, Found: found(lib)}
 	nm := func(v gdsii.Vec) r2.Point { return r2.Point{X: v.X * nmPerUnit, Y: v.Y * nmPerUnit} }
+	// One backing array for every polygon's points: a flattened array of
+	// 10^6 windows would otherwise cost 10^6 allocations.
+	n := 0
 	for _, p := range flat.Polygons {
-		pts := make([]r2.Point, len(p.XY))
-		for i, v := range p.XY {
-			pts[i] = nm(v)
+		n += len(p.XY)
+	}
+	backing := make([]r2.Point, 0, n)
+	out.Polygons = make([]Polygon, 0, len(flat.Polygons))
+	for _, p := range flat.Polygons {
+		start := len(backing)
+		for _, v := range p.XY {
+			backing = append(backing, nm(v))
 		}
-		out.Polygons = append(out.Polygons, Polygon{Layer: p.Layer, Datatype: p.Datatype, Points: pts})
+		out.Polygons = append(out.Polygons, Polygon{Layer: p.Layer, Datatype: p.Datatype, Points: backing[start:len(backing):len(backing)]})
 	}
 	for _, p := range flat.Paths {
 		pts := make([]r2.Point, len(p.XY))
@@ -294,13 +302,18 @@ func (l *Layout) labelList() string {
 
 // FieldPolygons returns the layout's polygons in field nm through f.
 func (l *Layout) FieldPolygons(f lattice.ChipFrame) []lattice.Polygon {
+	n := 0
+	for _, p := range l.Polygons {
+		n += len(p.Points)
+	}
+	backing := make([]r2.Point, 0, n)
 	out := make([]lattice.Polygon, len(l.Polygons))
 	for i, p := range l.Polygons {
-		q := make(lattice.Polygon, len(p.Points))
-		for j, v := range p.Points {
-			q[j] = f.ToField(v)
+		start := len(backing)
+		for _, v := range p.Points {
+			backing = append(backing, f.ToField(v))
 		}
-		out[i] = q
+		out[i] = lattice.Polygon(backing[start:len(backing):len(backing)])
 	}
 	return out
 }
