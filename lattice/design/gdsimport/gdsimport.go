@@ -386,3 +386,58 @@ func AddReference(d *design.Design, r design.Reference) error {
 	d.References = append(d.References, r)
 	return nil
 }
+
+// Contents is what a layout holds, for choosing what to import: its
+// layers with their element counts (each element once, not per
+// placement), sorted by layer and data type, and its labels flattened
+// to chip nm.
+type Contents struct {
+	Layers []LayerCount
+	Labels []Label
+	Tops   []string
+}
+
+// LayerCount is one layer/data type and how many polygons and paths it
+// holds.
+type LayerCount struct {
+	Layer    Layer
+	Elements int
+}
+
+// Inspect reads the layout at path and says what it holds.
+func Inspect(path string) (*Contents, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	lib, err := gdsii.Read(f)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	c := &Contents{}
+	for k, n := range found(lib) {
+		l, err := ParseLayer(k)
+		if err == nil {
+			c.Layers = append(c.Layers, LayerCount{Layer: l, Elements: n})
+		}
+	}
+	slices.SortFunc(c.Layers, func(a, b LayerCount) int {
+		if a.Layer.Layer != b.Layer.Layer {
+			return int(a.Layer.Layer) - int(b.Layer.Layer)
+		}
+		return int(a.Layer.Datatype) - int(b.Layer.Datatype)
+	})
+	for _, t := range lib.Tops() {
+		c.Tops = append(c.Tops, t.Name)
+	}
+	flat, err := lib.Flatten("", gdsii.FlattenOptions{Keep: func(int16, int16) bool { return false }, KeepText: func(int16, int16) bool { return true }})
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	nmPerUnit := lib.MetresPerUnit * 1e9
+	for _, t := range flat.Texts {
+		c.Labels = append(c.Labels, Label{Text: t.String, Layer: t.Layer, TextType: t.TextType, At: r2.Point{X: t.At.X * nmPerUnit, Y: t.At.Y * nmPerUnit}})
+	}
+	return c, nil
+}
