@@ -37,7 +37,7 @@ func TestBuildAbsurdProfileIsAnError(t *testing.T) {
 						t.Fatalf("Build panicked: %v", r)
 					}
 				}()
-				plan, err = Build(context.Background(), d, "", p, Options{Seed: 1, MonteCarloRuns: 200})
+				plan, err = buildVariant(context.Background(), d, "", p, Options{Seed: 1, MonteCarloRuns: 200})
 			}()
 			if err == nil {
 				// A plan is acceptable only if every figure is a number.
@@ -67,7 +67,7 @@ func TestBuildRecoversPanics(t *testing.T) {
 			panic("a bug in a progress callback")
 		}
 	}}
-	plan, err := Build(context.Background(), demo(t), "", DefaultProfile(), opt)
+	plan, err := buildVariant(context.Background(), demo(t), "", DefaultProfile(), opt)
 	var ie *InternalError
 	if plan != nil || !errors.As(err, &ie) || !errors.Is(err, ErrInternal) {
 		t.Fatalf("Build = %v, %v; want nil and an *InternalError", plan, err)

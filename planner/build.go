@@ -35,7 +35,7 @@ var stages = []struct {
 	name string
 	at   float64
 }{
-	{"layout", 0}, {"modes", 0.05}, {"strokes", 0.15}, {"coverage", 0.25},
+	{"modes", 0.05}, {"strokes", 0.15}, {"coverage", 0.25},
 	{"route", 0.4}, {"segments", 0.7}, {"spread", 0.8}, {"yield", 0.95},
 }
 
@@ -50,28 +50,29 @@ func (o *Options) stage(name string) {
 	}
 }
 
-// Build plans one variant of d (the first when variant is "") with the
+// Build plans the laid-out variant lay (see design.Design.Lay, which the
+// caller shares with the checks, the export and the GUI) with the
 // instrument profile prof: it chooses each region's mode, generates the
 // strokes, proves their coverage, orders them with package route, splits
 // the writing order into drift-safe segments, lays out the timeline and
 // estimates its spread and the dopant yield. It returns ctx.Err() when
-// cancelled, a *ProfileError for an invalid profile, and a *LimitError
+// cancelled, a *jsonfile.Error for an invalid profile, and a *LimitError
 // when the plan would need a value beyond prof.Limits. It never panics: a
 // broken invariant of its own, or any panic on the way, comes back as an
 // *InternalError (errors.Is(err, ErrInternal)).
-func Build(ctx context.Context, d *design.Design, variant string, prof Profile, opt Options) (plan *Plan, err error) {
+func Build(ctx context.Context, lay *design.Layout, prof Profile, opt Options) (plan *Plan, err error) {
 	defer recoverInternal(&plan, &err)
-	b := &builder{ctx: ctx, d: d, prof: prof, opt: opt}
-	return b.build(variant)
+	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof, opt: opt}
+	return b.build()
 }
 
 type builder struct {
 	ctx  context.Context
-	d    *design.Design
+	lay  *design.Layout
+	d    *design.Design // lay.Design
 	prof Profile
 	opt  Options
 
-	lay      *design.Layout
 	gen      *strokeGen
 	regions  []*regionWork
 	fids     []Fiducial
@@ -79,20 +80,14 @@ type builder struct {
 	warnings []string
 }
 
-func (b *builder) build(variant string) (*Plan, error) {
-	prof := &b.prof
+func (b *builder) build() (*Plan, error) {
+	prof, lay := &b.prof, b.lay
 	if err := prof.Validate(); err != nil {
 		return nil, err
 	}
 	if err := prof.checkField(b.d.Field.WidthNM, b.d.Field.HeightNM); err != nil {
 		return nil, err
 	}
-	b.opt.stage("layout")
-	lay, err := b.d.Lay(variant)
-	if err != nil {
-		return nil, err
-	}
-	b.lay = lay
 	if err := b.ctx.Err(); err != nil {
 		return nil, err
 	}

@@ -15,7 +15,14 @@ func ExampleBuild() {
 		fmt.Println(err)
 		return
 	}
-	p, err := planner.Build(context.Background(), d, "gap-9", planner.DefaultProfile(), planner.Options{Seed: 1})
+	// Lay the variant out once: the checks, the plan and the export all
+	// start from the layout.
+	lay, err := d.Lay("gap-9")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	p, err := planner.Build(context.Background(), lay, planner.DefaultProfile(), planner.Options{Seed: 1})
 	if err != nil {
 		fmt.Println(err)
 		return

@@ -14,16 +14,31 @@ import (
 	"dimerpath/planner"
 )
 
+// Jobs is the background work the editor's window runs, each on a copy
+// of the design. The window calls these fields rather than the
+// functions, so a test can put in a job that panics or blocks.
+type Jobs struct {
+	Check            func(ctx context.Context, d *design.Design, variant string) (CheckResult, error)
+	Plan             func(ctx context.Context, d *design.Design, variant string, prof planner.Profile, opt planner.Options) (*planner.Plan, error)
+	Export           func(ctx context.Context, path string, d *design.Design, p *planner.Plan, es ExportSettings, progress func(string, float64)) error
+	ExportComparison func(ctx context.Context, path string, res []export.VariantResult, es ExportSettings) error
+	// SaveRecovery writes the autosaved recovery copy of the design.
+	SaveRecovery func(path string, d *design.Design) error
+}
+
+// DefaultJobs returns the real work: CheckDesign, BuildPlan, ExportPlan,
+// ExportComparison and SaveDesign.
+func DefaultJobs() Jobs {
+	return Jobs{Check: CheckDesign, Plan: BuildPlan, Export: ExportPlan, ExportComparison: ExportComparison, SaveRecovery: SaveDesign}
+}
+
 // Finding is a design-rule finding as the GUI lists and draws it.
 type Finding struct {
 	Rule    string
 	Error   bool // an error rather than a warning
 	Message string
 	Regions []string
-	// At is the position the finding names, in field nm; Bounds the area
-	// to zoom to (empty for a point finding).
-	At     r2.Point
-	Bounds r2.Rect
+	At      r2.Point // the position the finding names, field nm
 }
 
 // CheckResult is what a design-rule check of one variant finds: the
@@ -39,27 +54,23 @@ type CheckResult struct {
 // laid out at all.
 func CheckDesign(ctx context.Context, d *design.Design, variant string) (CheckResult, error) {
 	var res CheckResult
-	fs, err := design.Check(d, variant)
+	l, err := d.Lay(variant)
 	if err != nil {
 		return res, err
 	}
+	fs := l.Check()
 	if err := ctx.Err(); err != nil {
 		return res, err
 	}
 	res.Findings = make([]Finding, len(fs))
 	for i, f := range fs {
-		res.Findings[i] = Finding{Rule: f.Rule, Error: f.Severity == design.SeverityError, Message: f.Message, Regions: f.Regions, At: f.AtNM, Bounds: r2.EmptyRect()}
+		res.Findings[i] = Finding{Rule: f.Rule, Error: f.Severity == design.SeverityError, Message: f.Message, Regions: f.Regions, At: f.AtNM}
 	}
-	v, err := d.Variant(variant)
-	if err != nil || len(v.TunnelGaps) == 0 {
+	if len(l.Variant.TunnelGaps) == 0 {
 		return res, nil
 	}
-	l, err := d.Lay(variant)
-	if err != nil {
-		return res, nil // the findings say what is wrong
-	}
 	res.GapWidths = map[[2]string]float64{}
-	for _, g := range v.TunnelGaps {
+	for _, g := range l.Variant.TunnelGaps {
 		if a, b := l.Region(g.A), l.Region(g.B); a != nil && b != nil {
 			res.GapWidths[[2]string{g.A, g.B}] = l.GapNM(a, b)
 		}
@@ -67,9 +78,13 @@ func CheckDesign(ctx context.Context, d *design.Design, variant string) (CheckRe
 	return res, ctx.Err()
 }
 
-// BuildPlan plans one variant of d.
+// BuildPlan lays out one variant of d and plans it.
 func BuildPlan(ctx context.Context, d *design.Design, variant string, prof planner.Profile, opt planner.Options) (*planner.Plan, error) {
-	return planner.Build(ctx, d, variant, prof, opt)
+	lay, err := d.Lay(variant)
+	if err != nil {
+		return nil, err
+	}
+	return planner.Build(ctx, lay, prof, opt)
 }
 
 // ExportSettings are the choices an export needs besides the plan.

@@ -47,11 +47,7 @@ func (s *Session) Scene(o SceneOptions) *render.Scene {
 	}
 	if o.Findings {
 		for i, f := range s.findings {
-			b := f.Bounds
-			if b.IsEmpty() {
-				b = r2.RectFromPoints(f.At)
-			}
-			sc.Marks = append(sc.Marks, render.Mark{Bounds: b, Error: f.Error, Selected: i == s.chosen})
+			sc.Marks = append(sc.Marks, render.Mark{At: f.At, Error: f.Error, Selected: i == s.chosen})
 		}
 	}
 	sc.Preview = s.Preview()

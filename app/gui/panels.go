@@ -472,7 +472,7 @@ func newFindingsPanel(u *UI) *findingsPanel {
 		})
 	p.list.OnSelected = func(i widget.ListItemID) {
 		u.Session.ChooseFinding(i)
-		u.View.ZoomTo(u.Session.FindingBounds(i))
+		u.View.ZoomTo(r2.RectFromPoints(u.Session.FindingAt(i)))
 	}
 	recheck := widget.NewButtonWithIcon("Check now", theme.ViewRefreshIcon(), u.CheckNow)
 	top := container.NewVBox(container.NewBorder(nil, nil, heading("Design-rule checks"), recheck), p.summary)

@@ -95,8 +95,15 @@ type UI struct {
 	autosaving   bool             // a recovery copy is being written
 	recovery     *recoveryFiles
 
-	// jobDone, when set (by tests), is called after a background plan or
-	// comparison has reported back.
+	// jobs is the background work; tests put in their own.
+	jobs editor.Jobs
+	// bugsShown holds the bug reports already shown for the automatic
+	// jobs (checks, autosave), so one bug is not reported after every
+	// edit.
+	bugsShown map[string]bool
+
+	// jobDone, when set (by tests), is called after a background plan,
+	// check, export or comparison has reported back.
 	jobDone func()
 }
 
@@ -108,7 +115,7 @@ func New(a fyne.App, w fyne.Window, s *editor.Session, o Options) *UI {
 	}
 	// Before any file dialog: saving must never empty a file first.
 	installLazyFiles()
-	u := &UI{App: a, Win: w, Session: s, opts: o, toolButtons: map[editor.Tool]*widget.Button{}, recovery: &recoveryFiles{}}
+	u := &UI{App: a, Win: w, Session: s, opts: o, toolButtons: map[editor.Tool]*widget.Button{}, recovery: &recoveryFiles{}, jobs: editor.DefaultJobs(), bugsShown: map[string]bool{}}
 	u.View = NewLatticeView(s)
 	u.View.OnCursor = u.showCursor
 	u.View.OnRune = u.typedRune

@@ -68,17 +68,9 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 		if m.Error {
 			c = ColError
 		}
-		ax, ay := v.ToScreen(r2.Point{X: m.Bounds.X.Lo, Y: m.Bounds.Y.Hi})
-		bx, by := v.ToScreen(r2.Point{X: m.Bounds.X.Hi, Y: m.Bounds.Y.Lo})
-		// At least 16 px, so a point finding shows.
-		if bx-ax < 16 {
-			cx := (ax + bx) / 2
-			ax, bx = cx-8, cx+8
-		}
-		if by-ay < 16 {
-			cy := (ay + by) / 2
-			ay, by = cy-8, cy+8
-		}
+		// A 16 px box around the point, so it shows at any zoom.
+		x, y := v.ToScreen(m.At)
+		ax, ay, bx, by := x-8, y-8, x+8, y+8
 		wd := 2
 		if m.Selected {
 			wd = 4

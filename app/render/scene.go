@@ -52,8 +52,8 @@ type Layer struct {
 
 // Mark is a design-rule finding drawn on the view.
 type Mark struct {
-	Bounds   r2.Rect // field nm; a point finding has a degenerate rectangle
-	Error    bool    // error (red) or warning (amber)
+	At       r2.Point // the position the finding names, field nm
+	Error    bool     // error (red) or warning (amber)
 	Selected bool
 }
 
