@@ -14,6 +14,7 @@ import (
 	"fyne.io/fyne/v2/storage"
 	"fyne.io/fyne/v2/widget"
 
+	"dimerpath/app/editor"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 	"dimerpath/lattice/design/gdsimport"
@@ -40,7 +41,7 @@ func (u *UI) importLayoutDialog() {
 			fyne.Do(func() {
 				u.hintLabel.SetText("")
 				if err != nil {
-					dialog.ShowError(err, u.Win)
+					u.showJobError("Reading the layout", err)
 					return
 				}
 				u.askImport(path, c)
@@ -55,15 +56,15 @@ func (u *UI) importLayoutDialog() {
 	d.Show()
 }
 
-// safely runs f, turning a panic into an error so a bug in reading a
-// layout never takes the window (and unsaved work) down.
+// safely runs f under editor.Guard, so a bug in reading a layout is
+// reported as one and never takes the window (and unsaved work) down.
 func safely[T any](f func() (T, error)) (v T, err error) {
-	defer func() {
-		if p := recover(); p != nil {
-			err = fmt.Errorf("internal error while reading the layout: %v", p)
-		}
-	}()
-	return f()
+	err = editor.Guard(func() error {
+		var e error
+		v, e = f()
+		return e
+	})
+	return v, err
 }
 
 const (
@@ -237,7 +238,7 @@ func (u *UI) runImport(req importRequest) {
 		fyne.Do(func() {
 			u.hintLabel.SetText("")
 			if err != nil {
-				dialog.ShowError(err, u.Win)
+				u.showJobError("Importing the layout", err)
 				return
 			}
 			u.finishImport(req, l)
