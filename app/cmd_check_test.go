@@ -30,9 +30,9 @@ func TestCheckCommand(t *testing.T) {
 		{"unknown variant", []string{"check", "../assets/demo.json", "--variant", "gap-10"}, ExitFailure,
 			nil, []string{`has no variant "gap-10" (it has "gap-9", "gap-12-source")`}, true},
 		{"malformed", []string{"check", "../testdata/designs/nan-point.json"}, ExitFailure, nil, []string{
-			"nan-point.json: variants[1].regions[1].shapes[0].points_nm[1][0]: NaN is not a finite number",
-			"nan-point.json: variants[1].regions[2].painted.sites: 1000000000 is out of range",
-			"nan-point.json: field.height_nm: -300 must be more than 0",
+			"nan-point.json:10:112: variants[1].regions[1].shapes[0].points_nm[1][0]: NaN is not a finite number",
+			"nan-point.json:11:62: variants[1].regions[2].painted.sites: 1000000000 is out of range",
+			"nan-point.json:3:43: field.height_nm: -300 must be more than 0",
 		}, true},
 		{"truncated", []string{"check", "../testdata/designs/truncated.json"}, ExitFailure, nil, []string{"truncated.json: the file ends before the design does"}, true},
 		{"missing file", []string{"check", "no-such.json"}, ExitFailure, nil, []string{"no-such.json: no such file"}, true},

@@ -1,9 +1,7 @@
 package app
 
 import (
-	"bytes"
 	"context"
-	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
@@ -13,6 +11,7 @@ import (
 	"time"
 
 	"dimerpath/export"
+	"dimerpath/internal/jsonfile"
 	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
@@ -105,10 +104,7 @@ func runExport(env Env, args []string, fl exportFlags) int {
 				return fail("%s is a plan file: --%s applies only when planning a design", in, name)
 			}
 		}
-		if p, err = export.ReadPlanJSON(bytes.NewReader(data)); err != nil {
-			if pe, ok := errors.AsType[*export.PlanError](err); ok {
-				pe.File = in
-			}
+		if p, err = export.ParsePlan(in, data); err != nil {
 			return fail("%v", err)
 		}
 	} else {
@@ -136,12 +132,10 @@ func runExport(env Env, args []string, fl exportFlags) int {
 }
 
 // isPlanFile reports whether data is a dimerpath plan file rather than a
-// design (by its "format" field).
+// design, by its "format" field alone (the rest may be malformed).
 func isPlanFile(data []byte) bool {
-	var head struct {
-		Format string `json:"format"`
-	}
-	return json.Unmarshal(data, &head) == nil && head.Format == export.PlanFormat
+	format, _ := jsonfile.TopString(data, "format")
+	return format == export.PlanFormat
 }
 
 // planDesign plans the chosen variant of the design in data, reporting

@@ -2,7 +2,6 @@ package app
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
@@ -15,6 +14,7 @@ import (
 	"text/tabwriter"
 	"time"
 
+	"dimerpath/export"
 	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
@@ -63,9 +63,7 @@ cleanly.`,
 				}
 				run.progress.done()
 				if *asJSON {
-					enc := json.NewEncoder(env.Stdout)
-					enc.SetIndent("", "  ")
-					if err := enc.Encode(summarise(p)); err != nil {
+					if err := export.WritePlanSummary(env.Stdout, p); err != nil {
 						fmt.Fprintln(env.Stderr, "dimerpath plan:", err)
 						return ExitFailure
 					}
@@ -116,7 +114,7 @@ func interruptible() (context.Context, context.CancelFunc) {
 }
 
 // planError reports a failed plan or comparison: an interruption, a
-// refusal (a *planner.LimitError or *planner.ProfileError names the value
+// refusal (a *planner.LimitError or the profile's *jsonfile.Error names the value
 // and the limit or field), or a design that cannot be laid out.
 func planError(env Env, cmd, file string, err error) int {
 	if errors.Is(err, context.Canceled) {
@@ -156,88 +154,6 @@ func (p *progress) done() {
 	if p.shown {
 		fmt.Fprintf(p.w, "dimerpath %s: done in %s\n", p.cmd, time.Since(p.start).Round(time.Millisecond))
 	}
-}
-
-// planSummary is what "plan --json" prints.
-type planSummary struct {
-	Design    string                 `json:"design"`
-	Variant   string                 `json:"variant"`
-	Profile   string                 `json:"profile"`
-	Seed      int64                  `json:"seed"`
-	Caution   string                 `json:"caution"`
-	TotalS    float64                `json:"total_s"`
-	Breakdown planner.Breakdown      `json:"breakdown"`
-	P10S      float64                `json:"p10_s"`
-	P50S      float64                `json:"p50_s"`
-	P90S      float64                `json:"p90_s"`
-	FloorS    float64                `json:"floor_s"`
-	ByHandS   float64                `json:"by_hand_s"`
-	Strokes   int                    `json:"strokes"`
-	Segments  []segmentSummary       `json:"segments"`
-	Windows   []windowSummary        `json:"windows"`
-	YieldAll  float64                `json:"yield_all"`
-	Yield     yieldSummary           `json:"yield"`
-	Modes     map[string]modeSummary `json:"modes"`
-	Coverage  planner.Coverage       `json:"coverage"`
-	Warnings  []string               `json:"warnings"`
-}
-
-type segmentSummary struct {
-	Index    int     `json:"index"`
-	Fiducial string  `json:"fiducial"`
-	StartS   float64 `json:"start_s"`
-	EndS     float64 `json:"end_s"`
-	BudgetS  float64 `json:"budget_s"`
-	Strokes  []int   `json:"strokes"`
-}
-
-type windowSummary struct {
-	Region      string     `json:"region"`
-	Species     string     `json:"species"`
-	Template    string     `json:"template"`
-	AtNM        [2]float64 `json:"at_nm"`
-	Probability float64    `json:"probability"`
-}
-
-type yieldSummary struct {
-	Windows           int     `json:"windows"`
-	All               float64 `json:"all"`
-	Log10All          float64 `json:"log10_all"`
-	MeanGood          float64 `json:"mean_good"`
-	SDGood            float64 `json:"sd_good"`
-	DevicesPerPerfect float64 `json:"devices_per_perfect"`
-}
-
-type modeSummary struct {
-	Requested string `json:"requested"`
-	Mode      string `json:"mode"`
-	Reason    string `json:"reason"`
-}
-
-func summarise(p *planner.Plan) planSummary {
-	s := planSummary{
-		Design: p.Design, Variant: p.Variant, Profile: p.Profile, Seed: p.Seed, Caution: planner.Caution,
-		TotalS: p.TotalS, Breakdown: p.Breakdown, P10S: p.P10S, P50S: p.P50S, P90S: p.P90S,
-		FloorS: p.FloorS, ByHandS: p.ByHandS, Strokes: len(p.Strokes),
-		Segments: []segmentSummary{}, Windows: []windowSummary{},
-		YieldAll: p.Yield.All,
-		Yield: yieldSummary{Windows: p.Yield.Windows, All: p.Yield.All, Log10All: p.Yield.Log10All, MeanGood: p.Yield.MeanGood,
-			SDGood: p.Yield.SDGood, DevicesPerPerfect: p.Yield.DevicesPerPerfect},
-		Modes: map[string]modeSummary{}, Coverage: p.Coverage, Warnings: p.Warnings,
-	}
-	if s.Warnings == nil {
-		s.Warnings = []string{}
-	}
-	for _, g := range p.Segments {
-		s.Segments = append(s.Segments, segmentSummary{Index: g.Index, Fiducial: g.Fiducial, StartS: g.StartS, EndS: g.EndS, BudgetS: g.BudgetS, Strokes: g.Strokes})
-	}
-	for _, w := range p.Windows {
-		s.Windows = append(s.Windows, windowSummary{Region: w.Region, Species: w.Species, Template: w.Template, AtNM: [2]float64{w.At.X, w.At.Y}, Probability: w.Probability})
-	}
-	for _, m := range p.Modes {
-		s.Modes[m.Region] = modeSummary{Requested: m.Requested, Mode: m.Mode, Reason: m.Reason}
-	}
-	return s
 }
 
 // printSegments lists each segment: its fiducial, how long its

@@ -252,12 +252,13 @@ func TestParseGDSLayers(t *testing.T) {
 		{`{"format": "dimerpath-gds-layers", "version": 1, "windws": "4/0"}`, "windws"},
 		{`{"format": "dimerpath-gds-layers", "version": 1, "regions": {"pads": "4/0"}}`, `unknown role "pads"`},
 		{`{"format": "dimerpath-gds-layers", "version": 1, "regions": {"pad/xx": "4/0"}}`, `unknown mode "xx"`},
-		{`{"format": "dimerpath-gds-layers", "version": 1, "field": "4/-1"}`, "field: layer"},
-		{`{"format": "dimerpath-gds-layers", "version": 1, "field": "70000"}`, "field: layer"},
-		{`{"format": "dimerpath-gds-layers", "version": 2}`, "version 2"},
+		{`{"format": "dimerpath-gds-layers", "version": 1, "field": "4/-1"}`, `field = "4/-1": layer`},
+		{`{"format": "dimerpath-gds-layers", "version": 1, "field": "70000"}`, `field = "70000": layer`},
+		{`{"format": "dimerpath-gds-layers", "version": 2}`, "version = 2: this dimerpath reads layer map version 1"},
+		{`{"format": "dimerpath-gds-layers", "version": 1, "Windows": "4/0"}`, `Windows: unknown field: names are case-sensitive, did you mean "windows"?`},
 		{`{"format": "dimerpath-gds-layers", "version": 1, "mark_size_nm": -1}`, "mark_size_nm"},
 	} {
-		if _, err := ParseGDSLayers("map.json", []byte(bad.src)); err == nil || !strings.Contains(err.Error(), bad.want) || !strings.HasPrefix(err.Error(), "map.json: ") {
+		if _, err := ParseGDSLayers("map.json", []byte(bad.src)); err == nil || !strings.Contains(err.Error(), bad.want) || !strings.HasPrefix(err.Error(), "map.json:") {
 			t.Errorf("ParseGDSLayers(%s) error %v, want one naming map.json and %q", bad.src, err, bad.want)
 		}
 	}

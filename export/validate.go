@@ -7,6 +7,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/planner"
 )
 
@@ -232,7 +233,7 @@ func (v *checker) at(arr string, i int) string {
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
-func (v *checker) fail(e *PlanError) {
+func (v *checker) fail(e *jsonfile.Error) {
 	if v.err == nil {
 		v.err = e
 	}
@@ -275,7 +276,7 @@ func (v *checker) point(f string, p r2.Point) {
 	v.finite(f+"[0]", p.X)
 	v.finite(f+"[1]", p.Y)
 	if v.err == nil && !v.near.IsEmpty() && !v.near.ContainsPoint(p) {
-		v.fail(invalid(f, fmt.Sprintf("[%g, %g]", p.X, p.Y), "more than one field size outside the scan field"))
+		v.fail(invalid(f, [2]float64{p.X, p.Y}, "more than one field size outside the scan field"))
 	}
 }
 

@@ -56,7 +56,7 @@ func (o *Options) stage(name string) {
 // strokes, proves their coverage, orders them with package route, splits
 // the writing order into drift-safe segments, lays out the timeline and
 // estimates its spread and the dopant yield. It returns ctx.Err() when
-// cancelled, a *ProfileError for an invalid profile, and a *LimitError
+// cancelled, a *jsonfile.Error for an invalid profile, and a *LimitError
 // when the plan would need a value beyond prof.Limits. It never panics: a
 // broken invariant of its own, or any panic on the way, comes back as an
 // *InternalError (errors.Is(err, ErrInternal)).

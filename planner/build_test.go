@@ -2,6 +2,7 @@ package planner
 
 import (
 	"context"
+	"dimerpath/internal/jsonfile"
 	"errors"
 	"math"
 	"reflect"
@@ -131,9 +132,9 @@ func TestBuildRefusesBeyondLimits(t *testing.T) {
 	}
 	prof = DefaultProfile()
 	prof.MoveSpeedNMPerS = math.NaN()
-	var pe *ProfileError
+	var pe *jsonfile.Error
 	if _, err := buildVariant(context.Background(), d, "", prof, Options{}); !errors.As(err, &pe) {
-		t.Errorf("NaN move speed: %v, want a ProfileError", err)
+		t.Errorf("NaN move speed: %v, want a *jsonfile.Error", err)
 	}
 }
 

@@ -14,6 +14,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 
 	"dimerpath/app/editor"
+	"dimerpath/internal/jsonfile"
 	"dimerpath/planner"
 )
 
@@ -266,15 +267,14 @@ func (e *profileEditor) explain(err error) error {
 		}
 		return strconv.FormatFloat(v, 'g', 6, 64)
 	}
-	var pe *planner.ProfileError
-	if errors.As(err, &pe) {
+	if pe, ok := errors.AsType[*jsonfile.Error](err); ok {
 		var lines []string
 		for _, pr := range pe.Problems {
-			val := fmt.Sprint(pr.Value)
+			val := jsonfile.Quote(pr.Value)
 			if x, ok := pr.Value.(float64); ok {
 				val = shown(pr.Path, x)
 			}
-			lines = append(lines, fmt.Sprintf("%s = %s: %s", name(pr.Path), val, pr.Problem))
+			lines = append(lines, fmt.Sprintf("%s = %s: %s", name(pr.Path), val, pr.Message))
 		}
 		return errors.New(strings.Join(lines, "\n"))
 	}

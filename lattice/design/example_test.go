@@ -99,6 +99,6 @@ func ExampleParse() {
 			"shapes": [{"kind": "rect", "points_nm": [[0, 0], [NaN, 5]]}]}]}]}`))
 	fmt.Println(err)
 	// Output:
-	// broken.json: variants[0].regions[0].shapes[0].points_nm[1][0]: NaN is not a finite number
-	// broken.json: field.height_nm: -1 must be more than 0 and at most 10000 nm
+	// broken.json:4:55: variants[0].regions[0].shapes[0].points_nm[1][0]: NaN is not a finite number
+	// broken.json:2:43: field.height_nm: -1 must be more than 0 and at most 10000 nm
 }
