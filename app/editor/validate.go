@@ -4,6 +4,7 @@ import (
 	"errors"
 	"strings"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice/design"
 )
 
@@ -15,7 +16,7 @@ type EditError struct {
 	Edit string
 	// Problems are what the rules say of the edited design that they did
 	// not say before it, each at its path in the design file.
-	Problems []design.Problem
+	Problems []jsonfile.Problem
 }
 
 // Error returns the edit and the rules' messages.
@@ -23,6 +24,9 @@ func (e *EditError) Error() string {
 	msgs := make([]string, len(e.Problems))
 	for i, p := range e.Problems {
 		msgs[i] = p.Message
+		if p.Value != nil {
+			msgs[i] = jsonfile.Quote(p.Value) + ": " + p.Message
+		}
 	}
 	return e.Edit + ": " + strings.Join(msgs, "; ")
 }
@@ -31,10 +35,10 @@ func (e *EditError) Error() string {
 func (e *EditError) Unwrap() error { return design.ErrInvalid }
 
 // problems returns what the design's rules say of the design now.
-func (s *Session) problems() []design.Problem {
-	var ve *design.ValidationError
-	if err := s.d.Validate(); errors.As(err, &ve) {
-		return ve.Problems
+func (s *Session) problems() []jsonfile.Problem {
+	var e *jsonfile.Error
+	if err := s.d.Validate(); errors.As(err, &e) {
+		return e.Problems
 	}
 	return nil
 }
@@ -49,14 +53,14 @@ func (s *Session) problems() []design.Problem {
 // painted sites), which is fine for the edits made from panels and
 // dialogs; gestures do not come through here.
 func (s *Session) validEdit(what string, apply func() (undo func())) error {
-	had := map[design.Problem]bool{}
+	had := map[string]bool{}
 	for _, p := range s.problems() {
-		had[p] = true
+		had[p.String()] = true
 	}
 	undo := apply()
-	var added []design.Problem
+	var added []jsonfile.Problem
 	for _, p := range s.problems() {
-		if !had[p] {
+		if !had[p.String()] {
 			added = append(added, p)
 		}
 	}
