@@ -232,7 +232,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	p.role = widget.NewSelect(roles, func(s string) {
 		for _, rn := range roleNames {
 			if rn.name == s && !p.updating && p.shown >= 0 {
-				p.u.Session.SetRegionRole(p.shown, rn.role)
+				showErr(p.msg, p.u.Session.SetRegionRole(p.shown, rn.role))
 			}
 		}
 	})
@@ -243,7 +243,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	p.mode = widget.NewSelect(modes, func(s string) {
 		for _, mn := range modeNames {
 			if mn.name == s && !p.updating && p.shown >= 0 {
-				p.u.Session.SetRegionMode(p.shown, mn.mode)
+				showErr(p.msg, p.u.Session.SetRegionMode(p.shown, mn.mode))
 			}
 		}
 	})
@@ -258,7 +258,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		case strings.HasPrefix(s, "As"):
 			sp = "As"
 		}
-		p.u.Session.SetRegionSpecies(p.shown, sp)
+		showErr(p.msg, p.u.Session.SetRegionSpecies(p.shown, sp))
 	})
 	p.tol = widget.NewEntry()
 	p.tol.SetPlaceHolder("mode default")
@@ -578,13 +578,7 @@ func (u *UI) renameVariant(i int) {
 	e := widget.NewEntry()
 	e.SetText(u.Session.Design().Variants[i].Name)
 	e.Validator = func(s string) error {
-		s = strings.TrimSpace(s)
-		for j, v := range u.Session.Design().Variants {
-			if s == "" || (j != i && v.Name == s) {
-				return fmt.Errorf("%q: %w", s, editor.ErrName)
-			}
-		}
-		return nil
+		return u.Session.CheckVariantName(i, s)
 	}
 	d := dialog.NewForm("Rename variant", "Rename", "Cancel", []*widget.FormItem{widget.NewFormItem("Name", e)}, func(ok bool) {
 		if ok {

@@ -82,7 +82,7 @@ func HasErrors(fs []Finding) bool {
 }
 
 // Check lays out the named variant of d (empty: the first) and runs
-// every design rule on it; see CheckLayout. The error is for a variant
+// every design rule on it; see Layout.Check. The error is for a variant
 // that cannot be laid out (unknown name, invalid design), not for rule
 // violations, which are findings.
 func Check(d *Design, variant string) ([]Finding, error) {
