@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+	"strings"
 
 	"github.com/golang/geo/r2"
 
@@ -45,6 +46,7 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 
 	drawRegions(c, sc, v, frame)
 	drawTerraceEdges(c, sc, v)
+	drawReferences(c, sc, v)
 
 	pts := make([]vec, 0, 16)
 	path := func(s *planner.Stroke) []vec {
@@ -190,6 +192,30 @@ func drawTerraceEdges(c canvas, sc *scene, v view) {
 			pts = append(pts, v.pt(q))
 		}
 		c.polyline(pts, true, penTerrace, noPaint, tag{class: "terrace"})
+	}
+	c.endGroup()
+}
+
+// drawReferences draws the reference overlays' polygons as dash-dot
+// outlines: layout geometry for orientation, not written.
+func drawReferences(c canvas, sc *scene, v view) {
+	if len(sc.refs) == 0 {
+		return
+	}
+	c.group(tag{id: "references", class: "references"}, penReference, noPaint)
+	for _, r := range sc.refs {
+		c.group(tag{id: "reference-" + xmlID(r.Name), class: "reference"}, penReference, noPaint)
+		for _, poly := range r.Polygons {
+			if len(poly) < 2 {
+				continue
+			}
+			pts := make([]vec, len(poly))
+			for i, q := range poly {
+				pts[i] = v.pt(q)
+			}
+			c.polyline(pts, true, penReference, noPaint, tag{})
+		}
+		c.endGroup()
 	}
 	c.endGroup()
 }
@@ -483,6 +509,13 @@ func overviewLegend(c canvas, sc *scene, s float64) []legendEntry {
 				break
 			}
 		}
+	}
+	if len(sc.refs) > 0 {
+		names := make([]string, len(sc.refs))
+		for i, r := range sc.refs {
+			names[i] = r.Name
+		}
+		out = append(out, legendEntry{"reference layout, not written: " + strings.Join(names, ", "), line(penReference)})
 	}
 	return out
 }

@@ -203,7 +203,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	p.role = widget.NewSelect(roles, func(s string) {
 		for _, r := range design.Roles {
 			if roleOf(r) == s && !p.updating && p.shown >= 0 {
-				p.u.Session.SetRegionRole(p.shown, r)
+				showErr(p.msg, p.u.Session.SetRegionRole(p.shown, r))
 			}
 		}
 	})
@@ -214,7 +214,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	p.mode = widget.NewSelect(modes, func(s string) {
 		for _, m := range design.Modes {
 			if modeOf(m) == s && !p.updating && p.shown >= 0 {
-				p.u.Session.SetRegionMode(p.shown, m)
+				showErr(p.msg, p.u.Session.SetRegionMode(p.shown, m))
 			}
 		}
 	})
@@ -229,7 +229,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		case strings.HasPrefix(s, "As"):
 			sp = "As"
 		}
-		p.u.Session.SetRegionSpecies(p.shown, sp)
+		showErr(p.msg, p.u.Session.SetRegionSpecies(p.shown, sp))
 	})
 	p.tol = widget.NewEntry()
 	p.tol.SetPlaceHolder("mode default")
@@ -549,13 +549,7 @@ func (u *UI) renameVariant(i int) {
 	e := widget.NewEntry()
 	e.SetText(u.Session.Design().Variants[i].Name)
 	e.Validator = func(s string) error {
-		s = strings.TrimSpace(s)
-		for j, v := range u.Session.Design().Variants {
-			if s == "" || (j != i && v.Name == s) {
-				return fmt.Errorf("%q: %w", s, editor.ErrName)
-			}
-		}
-		return nil
+		return u.Session.CheckVariantName(i, s)
 	}
 	d := dialog.NewForm("Rename variant", "Rename", "Cancel", []*widget.FormItem{widget.NewFormItem("Name", e)}, func(ok bool) {
 		if ok {

@@ -30,6 +30,15 @@ type Scene struct {
 	// SelectedShape is the extent of the selected shape (nm), drawn with
 	// corner handles, or nil.
 	SelectedShape *r2.Rect
+	// References are the design's reference overlays (imported chip
+	// layouts), polygons in field nm, drawn as dashed outlines.
+	References []Reference
+}
+
+// Reference is one reference overlay: its polygons and their extent.
+type Reference struct {
+	Polygons [][]r2.Point
+	Bounds   []r2.Rect // of each polygon, so the view skips those out of sight
 }
 
 // Layer is one region's sites as the view draws them.

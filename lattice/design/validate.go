@@ -342,8 +342,15 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 	if copies > MaxArrayCopies {
 		ps.add(path, "its arrays hold %d copies together, more than the limit of %d", copies, MaxArrayCopies)
 	}
+	declared := make(map[[2]string]int, len(v.TunnelGaps)) // a gap's regions, in name order
 	for gi, g := range v.TunnelGaps {
 		gp := fmt.Sprintf("%s.tunnel_gaps[%d]", path, gi)
+		pair := [2]string{min(g.A, g.B), max(g.A, g.B)}
+		if j, dup := declared[pair]; dup {
+			ps.add(gp, "the gap between %q and %q is also declared as tunnel_gaps[%d]", g.A, g.B, j)
+		} else {
+			declared[pair] = gi
+		}
 		for _, end := range []struct{ field, name string }{{"a", g.A}, {"b", g.B}} {
 			if _, ok := names[end.name]; !ok {
 				ps.add(gp+"."+end.field, "%q names no region of variant %q", end.name, v.Name)
