@@ -75,6 +75,9 @@ func TestParseRefuses(t *testing.T) {
 		{"tunnel gap to nowhere", strings.Replace(minimal, `]}]
 }`, `], "tunnel_gaps": [{"a": "pad", "b": "island"}]}]
 }`, 1), []string{`variants[0].tunnel_gaps[0].b: "island" names no region of variant "A"`}},
+		{"tunnel gap declared twice", strings.Replace(minimal, `]}]
+}`, `], "tunnel_gaps": [{"a": "pad", "b": "lead"}, {"a": "lead", "b": "pad"}]}]
+}`, 1), []string{`variants[0].tunnel_gaps[1]: the gap between "lead" and "pad" is also declared as tunnel_gaps[0]`}},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {

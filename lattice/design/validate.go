@@ -8,8 +8,6 @@ import (
 	"dimerpath/lattice"
 )
 
-var knownRoles = []Role{RoleDevice, RoleGate, RoleLead, RolePad, RoleDonor, RoleOther}
-var knownModes = []Mode{ModeAuto, ModeAP, ModeFE, ModeHybrid}
 var knownKinds = []ShapeKind{ShapeSite, ShapeDimer, ShapeRect, ShapePolygon, ShapePolyline, ShapeWindow, ShapeArray}
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
@@ -308,11 +306,11 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 		} else {
 			names[r.Name] = ri
 		}
-		if !contains(knownRoles, r.Role) {
-			ps.add(rp+".role", "%q is not a role (%s)", r.Role, listOf(knownRoles))
+		if !contains(Roles, r.Role) {
+			ps.add(rp+".role", "%q is not a role (%s)", r.Role, listOf(Roles))
 		}
-		if r.Mode != "" && !contains(knownModes, r.Mode) {
-			ps.add(rp+".mode", "%q is not a write mode (%s)", r.Mode, listOf(knownModes))
+		if r.Mode != "" && !contains(Modes, r.Mode) {
+			ps.add(rp+".mode", "%q is not a write mode (%s)", r.Mode, listOf(Modes))
 		}
 		if r.Species != "" && !species[r.Species] {
 			ps.add(rp+".species", "%q is the species of no window template", r.Species)
@@ -344,8 +342,15 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 	if copies > MaxArrayCopies {
 		ps.add(path, "its arrays hold %d copies together, more than the limit of %d", copies, MaxArrayCopies)
 	}
+	declared := make(map[[2]string]int, len(v.TunnelGaps)) // a gap's regions, in name order
 	for gi, g := range v.TunnelGaps {
 		gp := fmt.Sprintf("%s.tunnel_gaps[%d]", path, gi)
+		pair := [2]string{min(g.A, g.B), max(g.A, g.B)}
+		if j, dup := declared[pair]; dup {
+			ps.add(gp, "the gap between %q and %q is also declared as tunnel_gaps[%d]", g.A, g.B, j)
+		} else {
+			declared[pair] = gi
+		}
 		for _, end := range []struct{ field, name string }{{"a", g.A}, {"b", g.B}} {
 			if _, ok := names[end.name]; !ok {
 				ps.add(gp+"."+end.field, "%q names no region of variant %q", end.name, v.Name)
