@@ -66,9 +66,9 @@ type scene struct {
 	surf    *lattice.Surface // nil without a pattern
 	refs    []PatternReference
 	regions []regionShape
-	modeOf  map[string]string // region name -> planned mode (ap, fe, hybrid)
-	apWidth float64           // AP line width, nm
-	feWidth float64           // FE line width, nm
+	modeOf  map[string]design.Mode // region name -> planned mode (ap, fe, hybrid)
+	apWidth float64                // AP line width, nm
+	feWidth float64                // FE line width, nm
 	// toFiducial[i] reports whether action i is the move to a fiducial
 	// before a registration.
 	toFiducial []bool
@@ -82,19 +82,19 @@ type scene struct {
 // sites on a row, with runs of equal extent on neighbouring rows merged.
 type regionShape struct {
 	name  string
-	mode  string
+	mode  design.Mode
 	sites *lattice.SiteSet
 	rects []r2.Rect
 }
 
 func newScene(p *planner.Plan, pat *Pattern) *scene {
-	sc := &scene{plan: p, modeOf: map[string]string{}, apWidth: 0.8, feWidth: 4}
+	sc := &scene{plan: p, modeOf: map[string]design.Mode{}, apWidth: 0.8, feWidth: 4}
 	for _, m := range p.Modes {
 		sc.modeOf[m.Region] = m.Mode
 	}
 	for _, c := range p.Conditions {
 		if c.LineWidthNM > 0 {
-			if c.Mode == planner.FE {
+			if c.Mode == design.ModeFE {
 				sc.feWidth = c.LineWidthNM
 			} else {
 				sc.apWidth = c.LineWidthNM
@@ -260,11 +260,11 @@ func outlinePen(c canvas, sc *scene, s float64) pen {
 	return pen{width: 0.35, grey: 0.25, dash: []float64{2, 0.8, 0.4, 0.8}}
 }
 
-func regionPaint(mode string) paint {
+func regionPaint(mode design.Mode) paint {
 	switch mode {
-	case "fe":
+	case design.ModeFE:
 		return fillFERegion
-	case "hybrid":
+	case design.ModeHybrid:
 		return fillHybrid
 	}
 	return fillAPRegion

@@ -94,8 +94,8 @@ func (u *UI) askImport(path string, c *gdsimport.Contents) {
 	as := widget.NewRadioGroup([]string{importAsReference, importAsRegion}, nil)
 	as.SetSelected(importAsReference)
 	var roleOpts []string
-	for _, rn := range roleNames {
-		roleOpts = append(roleOpts, rn.name)
+	for _, r := range design.Roles {
+		roleOpts = append(roleOpts, roleOf(r))
 	}
 	role := widget.NewSelect(roleOpts, nil)
 	role.SetSelected(roleOf(design.RolePad))
@@ -169,9 +169,9 @@ func (u *UI) askImport(path string, c *gdsimport.Contents) {
 			return
 		}
 		req := importRequest{path: path, layers: chosen, name: strings.TrimSpace(name.Text), region: as.Selected == importAsRegion}
-		for _, rn := range roleNames {
-			if rn.name == role.Selected {
-				req.role = rn.role
+		for _, r := range design.Roles {
+			if roleOf(r) == role.Selected {
+				req.role = r
 			}
 		}
 		if frame.Selected == frameByMarks {

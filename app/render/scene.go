@@ -6,6 +6,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -88,8 +89,8 @@ type RouteStroke struct {
 // segment and as wide as their mode's line, idle moves, and the
 // fiducials segments register on.
 func RouteOf(p *planner.Plan) *RouteOverlay {
-	width := map[planner.WriteMode]float64{}
-	raster := map[planner.WriteMode]float64{}
+	width := map[design.Mode]float64{}
+	raster := map[design.Mode]float64{}
 	for _, c := range p.Conditions {
 		// A mode may be listed more than once (AP lines and AP dwells);
 		// lines are drawn as wide as the widest.
@@ -116,7 +117,7 @@ func RouteOf(p *planner.Plan) *RouteOverlay {
 		switch {
 		case st.Kind == planner.StrokeRaster:
 			w = raster[st.Mode]
-		case st.Mode == planner.AP:
+		case st.Mode == design.ModeAP:
 			// AP lines follow dimer rows; drawn at most a row wide they
 			// do not overlap their neighbours.
 			w = min(w, 0.9*lattice.RowSpacing)
