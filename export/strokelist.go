@@ -66,7 +66,7 @@ func pdfStrokeList(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []in
 		}
 		switch a.Kind {
 		case planner.ActRegister:
-			seg = -1 // a new segment's first row needs no "continued" above it
+			seg = -1         // a new segment's first row needs no "continued" above it
 			d.need(3 * rowH) // never a segment's heading alone at a page's foot
 			s := &p.Segments[a.Segment]
 			head := fmt.Sprintf("Segment %d: register on %s at %s, %s nm", a.Segment+1, s.Fiducial, nm1(s.FiducialAt.X), nm1(s.FiducialAt.Y))
