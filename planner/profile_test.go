@@ -250,7 +250,11 @@ func TestValidatePlausibleRanges(t *testing.T) {
 		{"current of 1 mA", func(p *Profile) { p.FE.CurrentA = 1e-3 }, "fe.current_a = 0.001: must be from 1 fA to 1 µA (1e-15 to 1e-06 A)"},
 		{"current of 1e-300 A", func(p *Profile) { p.AP.CurrentA = 1e-300; p.AP.LineDoseCPerCm = 1e300 }, "ap.current_a = 1e-300: must be from 1 fA to 1 µA"},
 		{"dose of 1e300 C/cm", func(p *Profile) { p.AP.LineDoseCPerCm = 1e300 }, "ap.line_dose_c_per_cm = 1e+300: must be from 1e-09 to 0.1 C/cm"},
-		{"writing slower than 1 pm/s", func(p *Profile) { p.AP.CurrentA = 1e-15; p.AP.LineDoseCPerCm = 0.1; p.AP.Width.ThresholdDoseCPerCm = 1e-3 },
+		{"writing slower than 1 pm/s", func(p *Profile) {
+			p.AP.CurrentA = 1e-15
+			p.AP.LineDoseCPerCm = 0.1
+			p.AP.Width.ThresholdDoseCPerCm = 1e-3
+		},
 			"ap.line_dose_c_per_cm = 0.1: with ap.current_a = 1e-15 A the tip would write at 1e-07 nm/s; a writing speed must be from 0.001"},
 		{"FE overlap 0.999999999", func(p *Profile) { p.FE.Overlap = 0.999999999 }, "fe.overlap = 0.999999999: must be from 0 to 0.95"},
 		{"dwell of years", func(p *Profile) { p.Dwell.YieldPerElectron = 1e-15; p.Dwell.CurrentA = 1e-12 }, "dwell.yield_per_electron = 1e-15: with dwell.current_a = 1e-12 A a dwell reaches its completion after"},
