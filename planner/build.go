@@ -437,8 +437,8 @@ func (b *builder) splitLong() error {
 		if !(kf <= MaxPieces) {
 			return &CountError{What: fmt.Sprintf("pieces of a %s stroke of region %q cut at registrations", s.Kind, s.Region), Count: kf, Max: MaxPieces,
 				Cause: fmt.Sprintf("it takes %s s against a drift budget of %s s (tolerance ±%s nm at drift.rate_nm_per_min = %s) less %s s to reach it from a fiducial; %s",
-					jsonfile.Number(s.DurationS), jsonfile.Number(budget), jsonfile.Number(s.ToleranceNM), jsonfile.Number(b.prof.Drift.RateNMPerMin),
-					jsonfile.Number(approach), speedCause(s.Mode, b.prof.modeOf(s.Mode)))}
+					jsonfile.Approx(s.DurationS), jsonfile.Approx(budget), jsonfile.Number(s.ToleranceNM), jsonfile.Number(b.prof.Drift.RateNMPerMin),
+					jsonfile.Approx(approach), speedCause(s.Mode, b.prof.modeOf(s.Mode)))}
 		}
 		if pieces += kf - 1; !(pieces <= MaxStrokes) {
 			return checkStrokes(pieces, "strokes longer than their drift budget are cut into pieces at registrations; "+speedCause(s.Mode, b.prof.modeOf(s.Mode)))

@@ -67,7 +67,7 @@ func (b *builder) checkRaster() error {
 		return &CountError{What: fmt.Sprintf("FE raster lines across the %s nm field", jsonfile.Number(math.Round(extent))), Count: n, Max: MaxRasterLines,
 			Cause: fmt.Sprintf("fe.width (sigma_nm = %s, threshold_dose_c_per_cm = %s at line_dose_c_per_cm = %s) and fe.overlap = %s give a raster pitch of %s nm",
 				jsonfile.Number(fe.Width.SigmaNM), jsonfile.Number(fe.Width.ThresholdDoseCPerCm), jsonfile.Number(fe.LineDoseCPerCm),
-				jsonfile.Number(fe.Overlap), jsonfile.Number(fe.Pitch()))}
+				jsonfile.Number(fe.Overlap), jsonfile.Approx(fe.Pitch()))}
 	}
 	return nil
 }
@@ -99,7 +99,7 @@ func checkStrokes(n float64, cause string) error {
 // speedCause names the fields that set a mode's writing speed.
 func speedCause(mode WriteMode, m ModeProfile) string {
 	return fmt.Sprintf("%s.current_a = %s A over %s.line_dose_c_per_cm = %s C/cm writes at %s nm/s",
-		mode, jsonfile.Number(m.CurrentA), mode, jsonfile.Number(m.LineDoseCPerCm), jsonfile.Number(m.Speed()))
+		mode, jsonfile.Number(m.CurrentA), mode, jsonfile.Number(m.LineDoseCPerCm), jsonfile.Approx(m.Speed()))
 }
 
 // modeOf returns the profile of write mode m.

@@ -350,7 +350,7 @@ func (p Profile) Validate() error {
 		if d := p.Dwell.CapS(); !(d <= MaxDwellS) {
 			v.add("dwell.yield_per_electron", p.Dwell.YieldPerElectron, fmt.Sprintf(
 				"with dwell.current_a = %s A a dwell reaches its completion after %s s per site, more than the %d s a dwell may take",
-				jsonfile.Number(p.Dwell.CurrentA), jsonfile.Number(d), MaxDwellS))
+				jsonfile.Number(p.Dwell.CurrentA), jsonfile.Approx(d), MaxDwellS))
 		}
 	}
 
@@ -437,7 +437,7 @@ func (v *validator) mode(prefix string, m ModeProfile, fe bool) {
 		if sp := m.Speed(); !(sp >= MinSpeedNMPerS && sp <= MaxSpeedNMPerS) {
 			v.add(prefix+".line_dose_c_per_cm", m.LineDoseCPerCm, fmt.Sprintf(
 				"with %s.current_a = %s A the tip would write at %s nm/s; a writing speed must be from %s to %s nm/s",
-				prefix, jsonfile.Number(m.CurrentA), jsonfile.Number(sp), jsonfile.Number(MinSpeedNMPerS), jsonfile.Number(MaxSpeedNMPerS)))
+				prefix, jsonfile.Number(m.CurrentA), jsonfile.Approx(sp), jsonfile.Number(MinSpeedNMPerS), jsonfile.Number(MaxSpeedNMPerS)))
 		}
 	}
 	if m.Passes < 1 || m.Passes > maxPasses {
@@ -447,7 +447,7 @@ func (v *validator) mode(prefix string, m ModeProfile, fe bool) {
 	thr := v.within(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm, minThresholdDose, MaxLineDoseCPerCm, "C/cm")
 	if dose && thr && m.Width.ThresholdDoseCPerCm >= m.LineDoseCPerCm*float64(max(m.Passes, 1)) {
 		v.add(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm,
-			fmt.Sprintf("must be below the delivered dose (%s C/cm): lines would clear nothing", jsonfile.Number(m.LineDoseCPerCm*float64(max(m.Passes, 1)))))
+			fmt.Sprintf("must be below the delivered dose (%s C/cm): lines would clear nothing", jsonfile.Approx(m.LineDoseCPerCm*float64(max(m.Passes, 1)))))
 	}
 	if fe {
 		if o := m.Overlap; !(o >= 0 && o <= MaxOverlap) {

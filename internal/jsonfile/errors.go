@@ -227,6 +227,17 @@ func Number(x float64) string {
 	return strconv.FormatFloat(x, 'f', -1, 64)
 }
 
+// Approx formats a computed value for a message with 4 significant
+// digits (6.364e-06, 4.082e+08, 1773): a model's output, where the exact
+// digits mean nothing to the reader.
+func Approx(x float64) string {
+	switch {
+	case math.IsNaN(x), math.IsInf(x, 0):
+		return Number(x)
+	}
+	return strconv.FormatFloat(x, 'g', 4, 64)
+}
+
 // Prefix returns s cut to at most n bytes on a rune boundary, with "…"
 // appended when it was cut.
 func Prefix(s string, n int) string {
