@@ -232,7 +232,7 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "  region\tsites\tdrawn\tplanned\twhy")
 	for _, m := range p.Modes {
-		fmt.Fprintf(tw, "  %s\t%d\t%s\t%s\t%s\n", m.Region, m.Sites, m.Requested, m.Mode, m.Reason)
+		fmt.Fprintf(tw, "  %s\t%d\t%s\t%s\t%s\n", m.Region, m.Sites, m.Requested.Abbrev(), m.Mode.Abbrev(), m.Reason)
 	}
 	tw.Flush()
 
@@ -241,12 +241,12 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	for _, c := range p.Conditions {
 		switch c.Kind {
 		case planner.StrokeDwell:
-			fmt.Fprintf(tw, "  AP dwell\t%+.2f V\t%.3g nA\texpected %s per site, stop at %s\n", c.BiasV, c.CurrentA*1e9, units.Duration(c.DwellS), units.Duration(c.DwellCapS))
+			fmt.Fprintf(tw, "  %s dwell\t%+.2f V\t%.3g nA\texpected %s per site, stop at %s\n", c.Mode.Abbrev(), c.BiasV, c.CurrentA*1e9, units.Duration(c.DwellS), units.Duration(c.DwellCapS))
 		default:
-			name := "AP line"
+			name := c.Mode.Abbrev() + " " + string(c.Kind)
 			extra := ""
-			if c.Mode == planner.FE {
-				name, extra = "FE raster", fmt.Sprintf(", pitch %.2f nm", c.PitchNM)
+			if c.Mode == design.ModeFE {
+				extra = fmt.Sprintf(", pitch %.2f nm", c.PitchNM)
 			}
 			fmt.Fprintf(tw, "  %s\t%+.2f V\t%.3g nA\t%.3g mC/cm, %.4g nm/s, line %.2f nm, %d pass(es)%s\n",
 				name, c.BiasV, c.CurrentA*1e9, c.LineDoseCPerCm*1e3, c.SpeedNMPerS, c.LineWidthNM, c.Passes, extra)
@@ -257,25 +257,22 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	fmt.Fprintf(w, "\nTime: %s expected (P10 %s, P50 %s, P90 %s)\n", units.Duration(p.TotalS), units.Duration(p.P10S), units.Duration(p.P50S), units.Duration(p.P90S))
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	b := p.Breakdown
-	for _, part := range []struct {
-		name string
-		s    float64
-	}{{"AP writing", b.APWriteS}, {"FE writing", b.FEWriteS}, {"dwells", b.DwellS}, {"travel and settling", b.TravelS},
-		{"mode switches", b.ModeSwitchS}, {"registrations", b.RegistrationS}, {"verification", b.VerificationS}} {
+	for _, k := range planner.TimeKinds {
+		s := b.Seconds(k)
 		share := 0.0
 		if p.TotalS > 0 {
-			share = 100 * part.s / p.TotalS
+			share = 100 * s / p.TotalS
 		}
 		note := ""
-		if part.name == "registrations" && len(p.Segments) > 0 && part.s > 0 {
+		if k == planner.TimeRegistration && len(p.Segments) > 0 && s > 0 {
 			n := len(p.Segments)
 			what := "registrations"
 			if n == 1 {
 				what = "registration"
 			}
-			note = fmt.Sprintf("  %d %s of %s", n, what, units.Duration(part.s/float64(n)))
+			note = fmt.Sprintf("  %d %s of %s", n, what, units.Duration(s/float64(n)))
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%.1f %%\t%s\n", part.name, units.Duration(part.s), share, note)
+		fmt.Fprintf(tw, "  %s\t%s\t%.1f %%\t%s\n", k, units.Duration(s), share, note)
 	}
 	tw.Flush()
 	if p.FloorS > 0 {

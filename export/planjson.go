@@ -11,6 +11,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/internal/jsonfile"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -248,7 +249,7 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 	})
 	jw.List("modes", len(p.Modes), func(i int) any {
 		m := p.Modes[i]
-		return regionModeJSON{Region: m.Region, Role: m.Role, Requested: m.Requested, Mode: m.Mode, Reason: m.Reason, Sites: m.Sites}
+		return regionModeJSON{Region: m.Region, Role: string(m.Role), Requested: string(m.Requested), Mode: string(m.Mode), Reason: m.Reason, Sites: m.Sites}
 	})
 	jw.List("fiducials", len(p.Fiducials), func(i int) any {
 		return fiducialJSON{Name: p.Fiducials[i].Name, AtNM: xyOf(p.Fiducials[i].At)}
@@ -452,11 +453,11 @@ func (f *planFile) plan() (*planner.Plan, error) {
 		FieldWidthNM: f.FieldNM[0], FieldHeightNM: f.FieldNM[1],
 		TotalS: f.TotalS, P10S: f.P10S, P50S: f.P50S, P90S: f.P90S, FloorS: f.FloorS, ByHandS: f.ByHandS, Warnings: f.Warnings}
 	p.Conditions = mapSlice(f.Conditions, func(c conditionsJSON) planner.Conditions {
-		return planner.Conditions{Mode: planner.WriteMode(c.Mode), Kind: planner.StrokeKind(c.Kind), DwellS: c.DwellS, DwellCapS: c.DwellCapS, BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
+		return planner.Conditions{Mode: design.Mode(c.Mode), Kind: planner.StrokeKind(c.Kind), DwellS: c.DwellS, DwellCapS: c.DwellCapS, BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
 			SpeedNMPerS: c.SpeedNMPerS, LineWidthNM: c.LineWidthNM, Passes: c.Passes, PitchNM: c.PitchNM}
 	})
 	p.Modes = mapSlice(f.Modes, func(m regionModeJSON) planner.RegionMode {
-		return planner.RegionMode{Region: m.Region, Role: m.Role, Requested: m.Requested, Mode: m.Mode, Reason: m.Reason, Sites: m.Sites}
+		return planner.RegionMode{Region: m.Region, Role: design.Role(m.Role), Requested: design.Mode(m.Requested), Mode: design.Mode(m.Mode), Reason: m.Reason, Sites: m.Sites}
 	})
 	p.Fiducials = mapSlice(f.Fiducials, func(d fiducialJSON) planner.Fiducial {
 		return planner.Fiducial{Name: d.Name, At: d.AtNM.point()}
@@ -467,7 +468,7 @@ func (f *planFile) plan() (*planner.Plan, error) {
 			return nil, invalid(fmt.Sprintf("strokes[%d].start_nm", i), fmt.Sprint(s.StartNM[:]),
 				"start_nm and end_nm must be the first and last points of path_nm")
 		}
-		p.Strokes[i] = planner.Stroke{ID: s.ID, Region: s.Region, Mode: planner.WriteMode(s.Mode), Kind: planner.StrokeKind(s.Kind),
+		p.Strokes[i] = planner.Stroke{ID: s.ID, Region: s.Region, Mode: design.Mode(s.Mode), Kind: planner.StrokeKind(s.Kind),
 			Path: mapSlice(s.PathNM, xy.point), Passes: s.Passes, LengthNM: s.LengthNM, DurationS: s.DurationS,
 			Sites: s.Sites, ToleranceNM: s.ToleranceNM, Segment: s.Segment, Window: s.Window}
 	}
@@ -481,7 +482,7 @@ func (f *planFile) plan() (*planner.Plan, error) {
 			return nil, invalid(fmt.Sprintf("actions[%d].fiducial", i), a.Fiducial, "not the fiducial of segment %d", a.Segment)
 		}
 		p.Actions[i] = planner.Action{Index: a.Index, Kind: planner.ActionKind(a.Kind), Segment: a.Segment, Stroke: a.Stroke,
-			From: a.FromNM.point(), To: a.ToNM.point(), StartS: a.StartS, DurationS: a.DurationS, Mode: planner.WriteMode(a.Mode),
+			From: a.FromNM.point(), To: a.ToNM.point(), StartS: a.StartS, DurationS: a.DurationS, Mode: design.Mode(a.Mode),
 			BiasV: a.BiasV, CurrentA: a.CurrentA, SpeedNMPS: a.SpeedNMPS, Note: a.Note}
 	}
 	b := f.Breakdown

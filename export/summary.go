@@ -103,7 +103,7 @@ func WritePlanSummary(w io.Writer, p *planner.Plan) error {
 		s.Windows = append(s.Windows, windowSummary{Region: win.Region, Species: win.Species, Template: win.Template, AtNM: xyOf(win.At), Probability: win.Probability})
 	}
 	for _, m := range p.Modes {
-		s.Modes[m.Region] = modeSummary{Requested: m.Requested, Mode: m.Mode, Reason: m.Reason}
+		s.Modes[m.Region] = modeSummary{Requested: string(m.Requested), Mode: string(m.Mode), Reason: m.Reason}
 	}
 	data, err := jsonfile.Marshal(s, jsonfile.Indented)
 	if err != nil {

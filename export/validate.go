@@ -8,6 +8,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/internal/jsonfile"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -303,8 +304,8 @@ func (v *checker) kind(f string, k planner.StrokeKind, empty bool) {
 	}
 }
 
-func (v *checker) mode(f string, m planner.WriteMode, empty bool) {
-	if v.err != nil || m == planner.AP || m == planner.FE || (empty && m == "") {
+func (v *checker) mode(f string, m design.Mode, empty bool) {
+	if v.err != nil || m == design.ModeAP || m == design.ModeFE || (empty && m == "") {
 		return
 	}
 	v.fail(invalid(f, string(m), "unknown write mode (want ap or fe)"))

@@ -12,6 +12,7 @@ import (
 
 	"dimerpath/internal/unionfind"
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -53,7 +54,7 @@ func apAreas(p *planner.Plan) (areas []apArea, omitted int) {
 	var ids []int
 	var bounds []r2.Rect
 	for i := range p.Strokes {
-		if p.Strokes[i].Mode == planner.AP {
+		if p.Strokes[i].Mode == design.ModeAP {
 			ids = append(ids, i)
 			bounds = append(bounds, strokeBounds(&p.Strokes[i]))
 		}
@@ -275,7 +276,7 @@ func drawZoom(c canvas, sc *scene, a apArea, dev box, idx int) {
 	// FE strokes passing through, for context: footprint and centre.
 	for i := range p.Strokes {
 		s := &p.Strokes[i]
-		if s.Mode != planner.FE || !strokeBounds(s).ExpandedByMargin(sc.feWidth).Intersects(win) {
+		if s.Mode != design.ModeFE || !strokeBounds(s).ExpandedByMargin(sc.feWidth).Intersects(win) {
 			continue
 		}
 		pts := zoomPath(v, s)
@@ -287,7 +288,7 @@ func drawZoom(c canvas, sc *scene, a apArea, dev box, idx int) {
 	// are numbered.
 	var inWin []int
 	for i := range p.Strokes {
-		if s := &p.Strokes[i]; s.Mode == planner.AP && strokeBounds(s).ExpandedByMargin(sc.apWidth).Intersects(win) {
+		if s := &p.Strokes[i]; s.Mode == design.ModeAP && strokeBounds(s).ExpandedByMargin(sc.apWidth).Intersects(win) {
 			inWin = append(inWin, i)
 		}
 	}
@@ -412,7 +413,7 @@ func latticeDots(sc *scene, win r2.Rect) (all, clear, bonds []r2.Point) {
 // site.
 func (sc *scene) clears(site lattice.Site) bool {
 	for _, r := range sc.regions {
-		if r.mode != "fe" && r.sites.Contains(site) {
+		if r.mode != design.ModeFE && r.sites.Contains(site) {
 			return true
 		}
 	}

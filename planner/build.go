@@ -210,11 +210,11 @@ func (b *builder) build() (*Plan, error) {
 	}
 	plan.Yield = YieldOf(windows)
 	for _, r := range b.regions {
-		req := string(r.requested)
+		req := r.requested
 		if req == "" {
-			req = string(design.ModeAuto)
+			req = design.ModeAuto
 		}
-		plan.Modes = append(plan.Modes, RegionMode{Region: r.name, Role: string(r.role), Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
+		plan.Modes = append(plan.Modes, RegionMode{Region: r.name, Role: r.role, Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
 	}
 	byHand, err := b.byHand(mc)
 	if err != nil {
@@ -312,7 +312,7 @@ func (b *builder) makeStrokes() []Window {
 		if r.fePart != nil && !r.fePart.IsEmpty() {
 			ss := b.gen.feStrokes(r.name, r.fePart)
 			tol := r.tolFE
-			if r.mode == modeHybrid {
+			if r.mode == design.ModeHybrid {
 				tol = b.prof.ToleranceFENM // the fill's edge is inside the AP band
 			}
 			n := r.plainCount
@@ -359,7 +359,7 @@ func (b *builder) modesUsed() ModeUse {
 		switch {
 		case s.Kind == StrokeDwell:
 			u.Dwell = true
-		case s.Mode == FE:
+		case s.Mode == design.ModeFE:
 			u.FE = true
 		default:
 			u.AP = true
@@ -372,17 +372,17 @@ func (b *builder) conditions(u ModeUse) []Conditions {
 	var cs []Conditions
 	if u.AP {
 		m := b.prof.AP
-		cs = append(cs, Conditions{Mode: AP, Kind: StrokeLine, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
+		cs = append(cs, Conditions{Mode: design.ModeAP, Kind: StrokeLine, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
 			SpeedNMPerS: m.Speed(), LineWidthNM: m.LineWidth(), Passes: max(m.Passes, 1)})
 	}
 	if u.Dwell {
 		d := b.prof.Dwell
-		cs = append(cs, Conditions{Mode: AP, Kind: StrokeDwell, BiasV: d.BiasV, CurrentA: d.CurrentA, Passes: 1,
+		cs = append(cs, Conditions{Mode: design.ModeAP, Kind: StrokeDwell, BiasV: d.BiasV, CurrentA: d.CurrentA, Passes: 1,
 			DwellS: d.ExpectedS(), DwellCapS: d.CapS()})
 	}
 	if u.FE {
 		m := b.prof.FE
-		cs = append(cs, Conditions{Mode: FE, Kind: StrokeRaster, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
+		cs = append(cs, Conditions{Mode: design.ModeFE, Kind: StrokeRaster, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
 			SpeedNMPerS: m.Speed(), LineWidthNM: m.LineWidth(), Passes: max(m.Passes, 1), PitchNM: m.Pitch()})
 	}
 	return cs
@@ -493,10 +493,10 @@ func (b *builder) coverageRegions() []CoverageRegion {
 
 // modeGroup returns the route group of a stroke: 0 for the mode written
 // first, 1 for the other.
-func (b *builder) modeGroup(m WriteMode) int {
-	first := AP
+func (b *builder) modeGroup(m design.Mode) int {
+	first := design.ModeAP
 	if b.prof.Order == OrderFEFirst {
-		first = FE
+		first = design.ModeFE
 	}
 	if m == first {
 		return 0
@@ -695,7 +695,7 @@ func (b *builder) byHand(mc *modeChooser) (float64, error) {
 		byRegion[s.Region] = append(byRegion[s.Region], s)
 	}
 	for _, r := range b.regions {
-		if r.mode == modeHybrid {
+		if r.mode == design.ModeHybrid {
 			var ss []Stroke
 			for _, s := range byRegion[r.name] {
 				if s.Window >= 0 {

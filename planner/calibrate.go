@@ -14,6 +14,7 @@ import (
 
 	"dimerpath/internal/csvfile"
 	"dimerpath/internal/jsonfile"
+	"dimerpath/lattice/design"
 )
 
 // Measurement is one test line a lab wrote and measured: the tip
@@ -26,7 +27,7 @@ type Measurement struct {
 	WidthNM     float64 // measured line width; 0 when no line was written
 	// Mode is the write mode the line was written in, or "" when the
 	// file has no mode column.
-	Mode WriteMode
+	Mode design.Mode
 }
 
 // DoseCPerCm returns the line dose I/v in C/cm.
@@ -164,9 +165,9 @@ func ReadMeasurements(r io.Reader, name string) ([]Measurement, error) {
 		if i, ok := index[colMode]; ok {
 			switch strings.ToLower(strings.TrimSpace(rec[i])) {
 			case "ap":
-				m.Mode = AP
+				m.Mode = design.ModeAP
 			case "fe":
-				m.Mode = FE
+				m.Mode = design.ModeFE
 			default:
 				return nil, fail(line, colMode, rec[i], errors.New(`mode must be "ap" or "fe"`))
 			}
@@ -191,10 +192,10 @@ type Residual struct {
 // WidthFit is the least-squares fit of the width-vs-dose model to a
 // lab's lines: w² = A + B·ln λ, so σ = sqrt(B/8) and λ_thr = exp(-A/B).
 type WidthFit struct {
-	Mode  WriteMode  `json:"mode"`
-	Model WidthModel `json:"model"`
-	A     float64    `json:"a_nm2"`
-	B     float64    `json:"b_nm2"`
+	Mode  design.Mode `json:"mode"`
+	Model WidthModel  `json:"model"`
+	A     float64     `json:"a_nm2"`
+	B     float64     `json:"b_nm2"`
 	// RSquared is the coefficient of determination of the linear fit of
 	// w² on ln λ.
 	RSquared  float64    `json:"r_squared"`
@@ -294,14 +295,14 @@ func FitWidth(ms []Measurement) (WidthFit, error) {
 // to that mode when it has one; an empty mode with a mode column fits
 // every mode present. The result is validated: a fitted threshold above
 // the profile's line dose is refused with a message saying so.
-func Calibrate(base Profile, ms []Measurement, mode WriteMode, source string) (Profile, []WidthFit, error) {
-	byMode := map[WriteMode][]Measurement{}
+func Calibrate(base Profile, ms []Measurement, mode design.Mode, source string) (Profile, []WidthFit, error) {
+	byMode := map[design.Mode][]Measurement{}
 	for _, m := range ms {
 		md := m.Mode
 		if md == "" {
 			md = mode
 			if md == "" {
-				md = AP
+				md = design.ModeAP
 			}
 		}
 		if mode != "" && md != mode {
@@ -315,7 +316,7 @@ func Calibrate(base Profile, ms []Measurement, mode WriteMode, source string) (P
 	}
 	p := base
 	var fits []WidthFit
-	for _, md := range []WriteMode{AP, FE} {
+	for _, md := range []design.Mode{design.ModeAP, design.ModeFE} {
 		group, ok := byMode[md]
 		if !ok {
 			continue
@@ -326,7 +327,7 @@ func Calibrate(base Profile, ms []Measurement, mode WriteMode, source string) (P
 			return base, append(fits, fit), fmt.Errorf("%s lines: %w", md, err)
 		}
 		mp := &p.AP
-		if md == FE {
+		if md == design.ModeFE {
 			mp = &p.FE
 		}
 		mp.Width = fit.Model

@@ -10,6 +10,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 )
 
 // CoverageRegion is one region as the coverage check sees it: its name
@@ -206,7 +207,7 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 			continue
 		}
 		m := prof.AP
-		if st.Mode == FE {
+		if st.Mode == design.ModeFE {
 			m = prof.FE
 		}
 		ratio := float64(max(st.Passes, 1)) * m.LineDoseCPerCm / m.Width.ThresholdDoseCPerCm
@@ -518,7 +519,7 @@ next:
 		tried[n] = ri
 		n++
 		allow := ck.prof.AP.EdgeAllowanceNM
-		if ck.strokes[p.stroke].Mode == FE {
+		if ck.strokes[p.stroke].Mode == design.ModeFE {
 			allow = ck.prof.FE.EdgeAllowanceNM
 		}
 		if allow <= 0 {
@@ -767,7 +768,7 @@ func (ck *coverageCheck) allowedFor(si int32, t, r int) []r1.Interval {
 		return nil
 	}
 	allow := ck.prof.AP.EdgeAllowanceNM
-	if ck.strokes[si].Mode == FE {
+	if ck.strokes[si].Mode == design.ModeFE {
 		allow = ck.prof.FE.EdgeAllowanceNM
 	}
 	if allow <= 0 {
@@ -828,7 +829,7 @@ func (ck *coverageCheck) over(site lattice.Site, who int32, e float64, active []
 			nTried++
 		}
 		allow := ck.prof.AP.EdgeAllowanceNM
-		if ck.strokes[si].Mode == FE {
+		if ck.strokes[si].Mode == design.ModeFE {
 			allow = ck.prof.FE.EdgeAllowanceNM
 		}
 		return allow > 0 && ck.near(ri, site, allow)

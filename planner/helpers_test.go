@@ -91,7 +91,7 @@ func bruteCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []St
 							continue
 						}
 						m := prof.AP
-						if s.Mode == FE {
+						if s.Mode == design.ModeFE {
 							m = prof.FE
 						}
 						ratio := float64(max(s.Passes, 1)) * m.LineDoseCPerCm / m.Width.ThresholdDoseCPerCm

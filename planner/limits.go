@@ -7,6 +7,7 @@ import (
 
 	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 )
 
 // Limits on the work one plan may hold. The planner counts what the
@@ -97,14 +98,14 @@ func checkStrokes(n float64, cause string) error {
 }
 
 // speedCause names the fields that set a mode's writing speed.
-func speedCause(mode WriteMode, m ModeProfile) string {
+func speedCause(mode design.Mode, m ModeProfile) string {
 	return fmt.Sprintf("%s.current_a = %s A over %s.line_dose_c_per_cm = %s C/cm writes at %s nm/s",
 		mode, jsonfile.Number(m.CurrentA), mode, jsonfile.Number(m.LineDoseCPerCm), jsonfile.Approx(m.Speed()))
 }
 
 // modeOf returns the profile of write mode m.
-func (p *Profile) modeOf(m WriteMode) ModeProfile {
-	if m == FE {
+func (p *Profile) modeOf(m design.Mode) ModeProfile {
+	if m == design.ModeFE {
 		return p.FE
 	}
 	return p.AP

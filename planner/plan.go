@@ -1,22 +1,17 @@
 package planner
 
 import (
+	"fmt"
+
 	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice/design"
 )
 
 // Caution is printed by the command line, shown in the GUI's Help and
 // before any export, and printed on every plan.
 const Caution = "CAUTION: a dimerpath plan is advisory. Check every bias, current, speed, dose and position " +
 	"against your instrument's limits and your lab's procedures before writing."
-
-// WriteMode is the mode a stroke is written in. A hybrid region yields
-// strokes of both modes.
-type WriteMode string
-
-const (
-	AP WriteMode = "ap" // atomic-precision: low bias, tunnelling current, one dimer row wide
-	FE WriteMode = "fe" // field-emission: high bias, wide fast lines
-)
 
 // StrokeKind is how a stroke is written.
 type StrokeKind string
@@ -81,7 +76,7 @@ type Plan struct {
 
 // Conditions are the tip settings of one write mode.
 type Conditions struct {
-	Mode WriteMode
+	Mode design.Mode
 	// Kind is the kind of stroke written with these conditions: line
 	// (AP), dwell (AP conditions for parking on single sites) or raster
 	// (FE).
@@ -102,9 +97,9 @@ type Conditions struct {
 // RegionMode records the mode given to one region and the reason.
 type RegionMode struct {
 	Region    string
-	Role      string
-	Requested string // auto, ap, fe or hybrid as drawn
-	Mode      string // ap, fe or hybrid as planned
+	Role      design.Role
+	Requested design.Mode // auto, ap, fe or hybrid as drawn
+	Mode      design.Mode // ap, fe or hybrid as planned
 	Reason    string
 	Sites     int
 }
@@ -120,7 +115,7 @@ type Fiducial struct {
 type Stroke struct {
 	ID     int
 	Region string
-	Mode   WriteMode
+	Mode   design.Mode
 	Kind   StrokeKind
 	// Path is the tip path in nm in the order it is written (the route
 	// engine has chosen the direction); a dwell has one point.
@@ -176,7 +171,7 @@ type Action struct {
 	To        r2.Point
 	StartS    float64
 	DurationS float64
-	Mode      WriteMode
+	Mode      design.Mode
 	BiasV     float64
 	CurrentA  float64
 	SpeedNMPS float64
@@ -197,6 +192,74 @@ type Breakdown struct {
 // Total returns the sum of the parts.
 func (b Breakdown) Total() float64 {
 	return b.APWriteS + b.FEWriteS + b.DwellS + b.TravelS + b.ModeSwitchS + b.RegistrationS + b.VerificationS
+}
+
+// TimeKind is one kind of time in a Breakdown.
+type TimeKind int
+
+const (
+	TimeAPWrite      TimeKind = iota // writing AP lines (APWriteS)
+	TimeFEWrite                      // writing FE rasters and outlines (FEWriteS)
+	TimeDwell                        // dwells on single sites (DwellS)
+	TimeTravel                       // idle moves and settling (TravelS)
+	TimeModeSwitch                   // bias and setpoint changes between modes (ModeSwitchS)
+	TimeRegistration                 // imaging a fiducial and correcting the offset (RegistrationS)
+	TimeVerification                 // the verification image of each segment (VerificationS)
+)
+
+// TimeKinds lists every kind of time in the order Breakdown holds them.
+var TimeKinds = []TimeKind{TimeAPWrite, TimeFEWrite, TimeDwell, TimeTravel, TimeModeSwitch, TimeRegistration, TimeVerification}
+
+// timeNames holds each kind's display name and column header, the one
+// wording the command line, the GUI and the printed plan use.
+var timeNames = [...]struct{ name, short string }{
+	TimeAPWrite:      {design.ModeAP.Abbrev() + " writing", design.ModeAP.Abbrev()},
+	TimeFEWrite:      {design.ModeFE.Abbrev() + " writing", design.ModeFE.Abbrev()},
+	TimeDwell:        {"dwells", "dwell"},
+	TimeTravel:       {"travel and settling", "travel"},
+	TimeModeSwitch:   {"mode switches", "switch"},
+	TimeRegistration: {"registrations", "register"},
+	TimeVerification: {"verification images", "verify"},
+}
+
+// String returns the kind's display name: "AP writing", "FE writing",
+// "dwells", "travel and settling", "mode switches", "registrations",
+// "verification images".
+func (k TimeKind) String() string {
+	if k < 0 || int(k) >= len(timeNames) {
+		return fmt.Sprintf("TimeKind(%d)", int(k))
+	}
+	return timeNames[k].name
+}
+
+// Short returns the kind's name as a column header: "AP", "FE",
+// "dwell", "travel", "switch", "register", "verify".
+func (k TimeKind) Short() string {
+	if k < 0 || int(k) >= len(timeNames) {
+		return k.String()
+	}
+	return timeNames[k].short
+}
+
+// Seconds returns the time of kind k in b, 0 for an unknown kind.
+func (b Breakdown) Seconds(k TimeKind) float64 {
+	switch k {
+	case TimeAPWrite:
+		return b.APWriteS
+	case TimeFEWrite:
+		return b.FEWriteS
+	case TimeDwell:
+		return b.DwellS
+	case TimeTravel:
+		return b.TravelS
+	case TimeModeSwitch:
+		return b.ModeSwitchS
+	case TimeRegistration:
+		return b.RegistrationS
+	case TimeVerification:
+		return b.VerificationS
+	}
+	return 0
 }
 
 // Window is one dopant window of the plan with its single-donor

@@ -6,6 +6,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 )
 
 // strokeGen turns region sites into strokes. Stroke IDs are assigned by
@@ -96,13 +97,13 @@ func (g *strokeGen) lineStroke(region string, t, row, d0, d1 int) Stroke {
 	path := []r2.Point{a.Sub(dir.Mul(ext)), b.Add(dir.Mul(ext))}
 	l := pathLength(path)
 	m := g.prof.AP
-	return Stroke{Region: region, Mode: AP, Kind: StrokeLine, Path: path, Passes: max(m.Passes, 1),
+	return Stroke{Region: region, Mode: design.ModeAP, Kind: StrokeLine, Path: path, Passes: max(m.Passes, 1),
 		LengthNM: l, DurationS: float64(max(m.Passes, 1)) * l / m.Speed(), Sites: 2 * n, Window: -1}
 }
 
 // dwellStroke parks the tip over one H site.
 func (g *strokeGen) dwellStroke(region string, site lattice.Site) Stroke {
-	return Stroke{Region: region, Mode: AP, Kind: StrokeDwell, Path: []r2.Point{g.surf.Position(site)}, Passes: 1,
+	return Stroke{Region: region, Mode: design.ModeAP, Kind: StrokeDwell, Path: []r2.Point{g.surf.Position(site)}, Passes: 1,
 		DurationS: g.prof.Dwell.ExpectedS(), Sites: 1, Window: -1}
 }
 
@@ -275,7 +276,7 @@ func (g *strokeGen) feStroke(region string, kind StrokeKind, path []r2.Point) St
 	m := g.prof.FE
 	l := pathLength(path)
 	sites := 0 // filled in by the caller from the region
-	return Stroke{Region: region, Mode: FE, Kind: kind, Path: path, Passes: max(m.Passes, 1),
+	return Stroke{Region: region, Mode: design.ModeFE, Kind: kind, Path: path, Passes: max(m.Passes, 1),
 		LengthNM: l, DurationS: float64(max(m.Passes, 1)) * l / m.Speed(), Sites: sites, Window: -1}
 }
 

@@ -38,6 +38,7 @@ func (s *Session) Scene(o SceneOptions) *render.Scene {
 	for _, f := range s.d.Fiducials {
 		sc.Fiducials = append(sc.Fiducials, r2.Point{X: f.AtNM[0], Y: f.AtNM[1]})
 	}
+	sc.References = s.referenceOverlays()
 	if o.Route {
 		if p, _ := s.Plan(); p != nil {
 			sc.Route = render.RouteOf(p)

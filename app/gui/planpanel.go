@@ -19,16 +19,17 @@ import (
 
 // Colours of the time breakdown, shared by the plan panel and the
 // comparison view.
-var (
-	colAPWrite = render.RGB(0xff, 0x9f, 0x1c)
-	colFEWrite = render.RGB(0x2e, 0xc4, 0xf0)
-	colDwell   = render.RGB(0xe8, 0x43, 0x93)
-	colTravel  = render.RGB(0x9a, 0xa4, 0xb4)
-	colSwitch  = render.RGB(0x9b, 0x6c, 0xff)
-	colRegist  = render.RGB(0xff, 0xd2, 0x3f)
-	colVerify  = render.RGB(0x1d, 0xd3, 0xb0)
-	colYield   = render.RGB(0x51, 0xcf, 0x66)
-)
+var timeColours = map[planner.TimeKind]color.Color{
+	planner.TimeAPWrite:      render.RGB(0xff, 0x9f, 0x1c),
+	planner.TimeFEWrite:      render.RGB(0x2e, 0xc4, 0xf0),
+	planner.TimeDwell:        render.RGB(0xe8, 0x43, 0x93),
+	planner.TimeTravel:       render.RGB(0x9a, 0xa4, 0xb4),
+	planner.TimeModeSwitch:   render.RGB(0x9b, 0x6c, 0xff),
+	planner.TimeRegistration: render.RGB(0xff, 0xd2, 0x3f),
+	planner.TimeVerification: render.RGB(0x1d, 0xd3, 0xb0),
+}
+
+var colYield = render.RGB(0x51, 0xcf, 0x66)
 
 // formatProbability prints a probability as a percentage with three
 // significant digits, or in scientific notation when tiny.
@@ -47,26 +48,14 @@ func formatProbability(p float64) string {
 
 // breakdownBars returns the bars of a time breakdown.
 func breakdownBars(b planner.Breakdown, total float64) []Bar {
-	kinds := []struct {
-		label string
-		s     float64
-		c     color.Color
-	}{
-		{"AP writing", b.APWriteS, colAPWrite},
-		{"FE writing", b.FEWriteS, colFEWrite},
-		{"dwell", b.DwellS, colDwell},
-		{"travel", b.TravelS, colTravel},
-		{"mode switches", b.ModeSwitchS, colSwitch},
-		{"registrations", b.RegistrationS, colRegist},
-		{"verification", b.VerificationS, colVerify},
-	}
 	var bars []Bar
-	for _, k := range kinds {
+	for _, k := range planner.TimeKinds {
+		s := b.Seconds(k)
 		pct := 0.0
 		if total > 0 {
-			pct = 100 * k.s / total
+			pct = 100 * s / total
 		}
-		bars = append(bars, Bar{Label: k.label, Value: k.s, Text: fmt.Sprintf("%s  %.0f %%", units.Duration(k.s), pct), Color: k.c})
+		bars = append(bars, Bar{Label: k.String(), Value: s, Text: fmt.Sprintf("%s  %.0f %%", units.Duration(s), pct), Color: timeColours[k]})
 	}
 	return bars
 }
@@ -176,7 +165,7 @@ func (p *planPanel) refresh() {
 	if len(pl.Modes) > 0 {
 		objs = append(objs, widget.NewSeparator(), heading("Write modes"))
 		for _, m := range pl.Modes {
-			objs = append(objs, wrapLabel(fmt.Sprintf("%s — %s: %s", m.Region, strings.ToUpper(m.Mode), m.Reason)))
+			objs = append(objs, wrapLabel(fmt.Sprintf("%s — %s: %s", m.Region, m.Mode.Abbrev(), m.Reason)))
 		}
 	}
 	objs = append(objs, widget.NewSeparator(), mutedLabel(planner.Caution))

@@ -15,6 +15,7 @@ import (
 
 	"dimerpath/app/editor"
 	"dimerpath/internal/jsonfile"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -48,9 +49,16 @@ func modeFields(group, prefix string, m func(p *planner.Profile) *planner.ModePr
 	return fs
 }
 
+// modeGroup names the profile group of a write mode's settings:
+// "Atomic-precision mode".
+func modeGroup(m design.Mode) string {
+	a := m.Adjective()
+	return strings.ToUpper(a[:1]) + a[1:] + " mode"
+}
+
 func profileFields() []profileField {
-	fs := modeFields("Atomic-precision mode", "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)
-	fs = append(fs, modeFields("Field-emission mode", "fe", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
+	fs := modeFields(modeGroup(design.ModeAP), "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)
+	fs = append(fs, modeFields(modeGroup(design.ModeFE), "fe", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
 	g := "Dwell (single points)"
 	fs = append(fs,
 		profileField{group: g, path: "dwell.bias_v", label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.BiasV }},
@@ -142,9 +150,9 @@ func (u *UI) openProfileEditor() *profileEditor {
 			groups = append(groups, heading(f.group))
 			form = widget.NewForm()
 			switch f.group {
-			case "Atomic-precision mode":
+			case modeGroup(design.ModeAP):
 				form.Append("Outline", e.apOut)
-			case "Field-emission mode":
+			case modeGroup(design.ModeFE):
 				form.Append("Outline", e.feOut)
 			}
 			last = f.group

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"image/color"
+	"strings"
 	"time"
 
 	"fyne.io/fyne/v2"
@@ -561,6 +562,9 @@ func (u *UI) refreshLegend() {
 	if len(u.Session.Design().Fiducials) > 0 {
 		rows = append(rows, legendRow(legendText("⊕"), "fiducial mark"))
 	}
+	if refs := u.Session.References(); len(refs) > 0 {
+		rows = append(rows, legendRow(swatch(render.ColReference, 14, 2), "layout overlay (not written): "+legendName(strings.Join(refs, ", "))))
+	}
 	if surf := u.Session.Surface(); surf != nil && len(surf.Terraces) > 1 {
 		rows = append(rows, widget.NewSeparator())
 		for i, t := range surf.Terraces {
@@ -748,6 +752,9 @@ func (u *UI) buildMenu() {
 		fyne.NewMenuItemSeparator(),
 		item("Save", ctrl(fyne.KeyS), func() { u.save(nil) }),
 		item("Save as…", ctrlShift(fyne.KeyS), func() { u.saveAs(nil) }),
+		fyne.NewMenuItemSeparator(),
+		item("Import layout (GDSII)…", nil, u.importLayoutDialog),
+		item("Remove layout overlays…", nil, u.removeReferences),
 		fyne.NewMenuItemSeparator(),
 	)
 	file.Items = append(file.Items, u.exportMenu...)

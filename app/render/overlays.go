@@ -23,6 +23,7 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 		}
 		drawPath(pb, v, t.Boundary, true, 2, ColStep, 200)
 	}
+	drawReferences(pb, v, sc.References)
 	if rt := sc.Route; rt != nil {
 		vb := v.Bounds()
 		for _, m := range rt.Moves {
@@ -112,6 +113,24 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 			for _, q := range p.Points {
 				x, y := v.ToScreen(q)
 				pb.fillRect(int(x)-2, int(y)-2, int(x)+3, int(y)+3, ColPreview, 256)
+			}
+		}
+	}
+}
+
+// drawReferences outlines the reference overlays' polygons, dashed, so
+// they read as guides rather than as sites to write.
+func drawReferences(pb *pixbuf, v View, refs []Reference) {
+	vb := v.Bounds()
+	for _, r := range refs {
+		for i, poly := range r.Polygons {
+			if i < len(r.Bounds) && !r.Bounds[i].Intersects(vb) {
+				continue
+			}
+			for k := range poly {
+				ax, ay := v.ToScreen(poly[k])
+				bx, by := v.ToScreen(poly[(k+1)%len(poly)])
+				pb.dashed(ax, ay, bx, by, 6, 3, ColReference, 230)
 			}
 		}
 	}

@@ -9,8 +9,6 @@ import (
 	"dimerpath/lattice"
 )
 
-var knownRoles = []Role{RoleDevice, RoleGate, RoleLead, RolePad, RoleDonor, RoleOther}
-var knownModes = []Mode{ModeAuto, ModeAP, ModeFE, ModeHybrid}
 var knownKinds = []ShapeKind{ShapeSite, ShapeDimer, ShapeRect, ShapePolygon, ShapePolyline, ShapeWindow, ShapeArray}
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
@@ -308,11 +306,11 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 		} else {
 			names[r.Name] = ri
 		}
-		if !contains(knownRoles, r.Role) {
-			ps.add(rp+".role", "%q is not a role (%s)", r.Role, listOf(knownRoles))
+		if !contains(Roles, r.Role) {
+			ps.add(rp+".role", "%q is not a role (%s)", r.Role, listOf(Roles))
 		}
-		if r.Mode != "" && !contains(knownModes, r.Mode) {
-			ps.add(rp+".mode", "%q is not a write mode (%s)", r.Mode, listOf(knownModes))
+		if r.Mode != "" && !contains(Modes, r.Mode) {
+			ps.add(rp+".mode", "%q is not a write mode (%s)", r.Mode, listOf(Modes))
 		}
 		if r.Species != "" && !species[r.Species] {
 			ps.add(rp+".species", "%q is the species of no window template", r.Species)
