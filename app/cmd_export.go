@@ -134,7 +134,6 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	return ExitOK
 }
 
-
 // planDesign plans the chosen variant of the design in data, reporting
 // the planning stages on stderr when it takes a while, and returns the
 // plan and its pattern.

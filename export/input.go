@@ -59,4 +59,3 @@ func ReadInput(path string) (data []byte, isPlan bool, err error) {
 	data, err = jsonfile.ReadAll(f, path, limit, kind)
 	return data, isPlan, err
 }
-

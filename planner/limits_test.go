@@ -25,7 +25,7 @@ func TestBuildRefusesAbsurdWork(t *testing.T) {
 			[]string{"FE raster lines across the 2828 nm field would number", "more than the limit of 1000000", "fe.overlap = 0.1", "raster pitch of"}},
 		{"a serpentine cut into 10^8 pieces", func(p *Profile) {
 			p.FE.CurrentA, p.FE.LineDoseCPerCm = 2e-15, 1e-5 // 2 pm/s
-			p.Drift.RateNMPerMin, p.ToleranceFENM = 100, 10 // a 6 s budget
+			p.Drift.RateNMPerMin, p.ToleranceFENM = 100, 10  // a 6 s budget
 			p.MoveSpeedNMPerS, p.SettleS, p.Limits.MaxSpeedNMPS = 1e6, 0, 0
 		}, []string{`pieces of a raster stroke of region "pad" cut at registrations would number`, "more than the limit of 10000",
 			"drift.rate_nm_per_min = 100", "fe.current_a = 2e-15 A over fe.line_dose_c_per_cm = 1e-05 C/cm writes at 0.002 nm/s"}},
