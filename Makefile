@@ -5,19 +5,22 @@ SHELL := /bin/bash
 export PATH := $(PATH):/usr/local/go/bin
 export LANG := C.UTF-8
 
-GO      ?= go
+# scripts/go runs the Go release go.mod names: the go on PATH when it is new
+# enough, else that release fetched from the Go module proxy (see the script).
+GO      ?= ./scripts/go
 BIN     := bin/dimerpath
 # Run apt-get through sudo unless we are root already.
 SUDO    := $(shell [ "$$(id -u)" = 0 ] || echo sudo)
 # cgo and the GL/X11 headers build the Fyne GUI; xvfb, xauth and imagemagick
 # run and screenshot it headless; poppler-utils reads exported PDFs back;
 # python3-gdspy, an independent GDSII library, reads back the GDSII files
-# dimerpath writes (export/gds_gdspy_test.go).
+# dimerpath writes (export/gds_gdspy_test.go); curl, unzip and ca-certificates
+# let scripts/go fetch Go where the machine has none (or too old a one).
 DEB_PKGS := gcc pkg-config libgl1-mesa-dev libx11-dev libxcursor-dev libxrandr-dev \
             libxinerama-dev libxi-dev libxxf86vm-dev xvfb xauth imagemagick poppler-utils \
-            python3-gdspy
+            python3-gdspy curl unzip ca-certificates
 
-.PHONY: all run test bench build deps lint fuzz clean
+.PHONY: all run test bench build deps toolchain lint fuzz clean
 
 all: build
 
@@ -31,8 +34,13 @@ deps:
 	  $(SUDO) apt-get update -qq && \
 	  $(SUDO) env DEBIAN_FRONTEND=noninteractive apt-get install -y -qq --no-install-recommends $$missing; \
 	fi
-	@command -v $(GO) >/dev/null || { echo "dimerpath: Go is not installed (see README)"; exit 1; }
+	@$(GO) version
 	@$(GO) mod download
+
+# The Go that builds dimerpath, installed by scripts/go when the machine has
+# none new enough (deps does the same after the system packages).
+toolchain:
+	@$(GO) version
 
 build: deps
 	$(GO) build -o $(BIN) .
@@ -41,7 +49,7 @@ run: build
 	./$(BIN)
 
 lint:
-	@out=$$(gofmt -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go')); \
+	@out=$$("$$($(GO) env GOROOT)/bin/gofmt" -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go')); \
 	if [ -n "$$out" ]; then echo "gofmt would change:"; echo "$$out"; exit 1; fi
 	$(GO) vet ./...
 	@# The README names the Go release go.mod needs.

@@ -6,6 +6,8 @@ import (
 	"os"
 	"text/tabwriter"
 
+	"dimerpath/internal/atomicfile"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -42,15 +44,13 @@ name, rt or lt; default rt), and the result is written to -o for
 					fmt.Fprintln(env.Stderr, "dimerpath calibrate: -o PROFILE.json is required")
 					return ExitFailure
 				}
-				var m planner.WriteMode
-				switch *mode {
-				case "":
-				case "ap":
-					m = planner.AP
-				case "fe":
-					m = planner.FE
-				default:
-					fmt.Fprintf(env.Stderr, "dimerpath calibrate: --mode %q: want ap or fe\n", *mode)
+				if err := atomicfile.Check(*out); err != nil {
+					fmt.Fprintln(env.Stderr, "dimerpath calibrate:", err)
+					return ExitFailure
+				}
+				m := design.Mode(*mode)
+				if m != "" && m != design.ModeAP && m != design.ModeFE {
+					fmt.Fprintf(env.Stderr, "dimerpath calibrate: --mode %q: want %s or %s\n", *mode, design.ModeAP, design.ModeFE)
 					return ExitFailure
 				}
 				prof, err := loadProfileArg(*base)
@@ -91,7 +91,7 @@ name, rt or lt; default rt), and the result is written to -o for
 
 func printFit(env Env, fit planner.LineFit) {
 	w := env.Stdout
-	what := modeLabel(fit.Mode) + " lines"
+	what := fit.Mode.Abbrev() + " lines"
 	if fit.Direction != "" {
 		what += " " + fit.Direction + " the dimer rows"
 	}
@@ -137,13 +137,6 @@ func printFit(env Env, fit planner.LineFit) {
 	for _, warn := range fit.Warnings {
 		fmt.Fprintln(env.Stderr, "dimerpath calibrate: warning:", warn)
 	}
-}
-
-func modeLabel(m planner.WriteMode) string {
-	if m == planner.FE {
-		return "FE"
-	}
-	return "AP"
 }
 
 // loadProfileArg returns the profile named by a --profile argument: a

@@ -2,7 +2,6 @@ package app
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
@@ -15,6 +14,7 @@ import (
 	"text/tabwriter"
 	"time"
 
+	"dimerpath/export"
 	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
@@ -63,16 +63,14 @@ cleanly.`,
 				}
 				run.progress.done()
 				if *asJSON {
-					enc := json.NewEncoder(env.Stdout)
-					enc.SetIndent("", "  ")
-					if err := enc.Encode(summarise(p)); err != nil {
+					if err := export.WritePlanSummary(env.Stdout, p); err != nil {
 						fmt.Fprintln(env.Stderr, "dimerpath plan:", err)
 						return ExitFailure
 					}
-					return ExitOK
+					return coverageExit(env, "plan", p)
 				}
 				printPlan(env.Stdout, p, run.profile.Drift.RateNMPerMin)
-				return ExitOK
+				return coverageExit(env, "plan", p)
 			}
 		},
 	})
@@ -116,9 +114,12 @@ func interruptible() (context.Context, context.CancelFunc) {
 }
 
 // planError reports a failed plan or comparison: an interruption, a
-// refusal (a *planner.LimitError or *planner.ProfileError names the value
+// refusal (a *planner.LimitError or the profile's *jsonfile.Error names the value
 // and the limit or field), or a design that cannot be laid out.
 func planError(env Env, cmd, file string, err error) int {
+	if code := internalError(env, cmd, err); code != 0 {
+		return code
+	}
 	if errors.Is(err, context.Canceled) {
 		fmt.Fprintf(env.Stderr, "dimerpath %s: interrupted; nothing was written\n", cmd)
 	} else {
@@ -156,88 +157,6 @@ func (p *progress) done() {
 	if p.shown {
 		fmt.Fprintf(p.w, "dimerpath %s: done in %s\n", p.cmd, time.Since(p.start).Round(time.Millisecond))
 	}
-}
-
-// planSummary is what "plan --json" prints.
-type planSummary struct {
-	Design    string                 `json:"design"`
-	Variant   string                 `json:"variant"`
-	Profile   string                 `json:"profile"`
-	Seed      int64                  `json:"seed"`
-	Caution   string                 `json:"caution"`
-	TotalS    float64                `json:"total_s"`
-	Breakdown planner.Breakdown      `json:"breakdown"`
-	P10S      float64                `json:"p10_s"`
-	P50S      float64                `json:"p50_s"`
-	P90S      float64                `json:"p90_s"`
-	FloorS    float64                `json:"floor_s"`
-	ByHandS   float64                `json:"by_hand_s"`
-	Strokes   int                    `json:"strokes"`
-	Segments  []segmentSummary       `json:"segments"`
-	Windows   []windowSummary        `json:"windows"`
-	YieldAll  float64                `json:"yield_all"`
-	Yield     yieldSummary           `json:"yield"`
-	Modes     map[string]modeSummary `json:"modes"`
-	Coverage  planner.Coverage       `json:"coverage"`
-	Warnings  []string               `json:"warnings"`
-}
-
-type segmentSummary struct {
-	Index    int     `json:"index"`
-	Fiducial string  `json:"fiducial"`
-	StartS   float64 `json:"start_s"`
-	EndS     float64 `json:"end_s"`
-	BudgetS  float64 `json:"budget_s"`
-	Strokes  []int   `json:"strokes"`
-}
-
-type windowSummary struct {
-	Region      string     `json:"region"`
-	Species     string     `json:"species"`
-	Template    string     `json:"template"`
-	AtNM        [2]float64 `json:"at_nm"`
-	Probability float64    `json:"probability"`
-}
-
-type yieldSummary struct {
-	Windows           int     `json:"windows"`
-	All               float64 `json:"all"`
-	Log10All          float64 `json:"log10_all"`
-	MeanGood          float64 `json:"mean_good"`
-	SDGood            float64 `json:"sd_good"`
-	DevicesPerPerfect float64 `json:"devices_per_perfect"`
-}
-
-type modeSummary struct {
-	Requested string `json:"requested"`
-	Mode      string `json:"mode"`
-	Reason    string `json:"reason"`
-}
-
-func summarise(p *planner.Plan) planSummary {
-	s := planSummary{
-		Design: p.Design, Variant: p.Variant, Profile: p.Profile, Seed: p.Seed, Caution: planner.Caution,
-		TotalS: p.TotalS, Breakdown: p.Breakdown, P10S: p.P10S, P50S: p.P50S, P90S: p.P90S,
-		FloorS: p.FloorS, ByHandS: p.ByHandS, Strokes: len(p.Strokes),
-		Segments: []segmentSummary{}, Windows: []windowSummary{},
-		YieldAll: p.Yield.All,
-		Yield: yieldSummary{Windows: p.Yield.Windows, All: p.Yield.All, Log10All: p.Yield.Log10All, MeanGood: p.Yield.MeanGood,
-			SDGood: p.Yield.SDGood, DevicesPerPerfect: p.Yield.DevicesPerPerfect},
-		Modes: map[string]modeSummary{}, Coverage: p.Coverage, Warnings: p.Warnings,
-	}
-	if s.Warnings == nil {
-		s.Warnings = []string{}
-	}
-	for _, g := range p.Segments {
-		s.Segments = append(s.Segments, segmentSummary{Index: g.Index, Fiducial: g.Fiducial, StartS: g.StartS, EndS: g.EndS, BudgetS: g.BudgetS, Strokes: g.Strokes})
-	}
-	for _, w := range p.Windows {
-		s.Windows = append(s.Windows, windowSummary{Region: w.Region, Species: w.Species, Template: w.Template, AtNM: [2]float64{w.At.X, w.At.Y}, Probability: w.Probability})
-	}
-	for _, m := range p.Modes {
-		s.Modes[m.Region] = modeSummary{Requested: m.Requested, Mode: m.Mode, Reason: m.Reason}
-	}
-	return s
 }
 
 // printSegments lists each segment: its fiducial, how long its
@@ -313,7 +232,7 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "  region\tsites\tdrawn\tplanned\twhy")
 	for _, m := range p.Modes {
-		fmt.Fprintf(tw, "  %s\t%d\t%s\t%s\t%s\n", m.Region, m.Sites, m.Requested, m.Mode, m.Reason)
+		fmt.Fprintf(tw, "  %s\t%d\t%s\t%s\t%s\n", m.Region, m.Sites, m.Requested.Abbrev(), m.Mode.Abbrev(), m.Reason)
 	}
 	tw.Flush()
 
@@ -322,12 +241,12 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	for _, c := range p.Conditions {
 		switch c.Kind {
 		case planner.StrokeDwell:
-			fmt.Fprintf(tw, "  AP dwell\t%+.2f V\t%.3g nA\texpected %s per site, stop at %s\n", c.BiasV, c.CurrentA*1e9, units.Duration(c.DwellS), units.Duration(c.DwellCapS))
+			fmt.Fprintf(tw, "  %s dwell\t%+.2f V\t%.3g nA\texpected %s per site, stop at %s\n", c.Mode.Abbrev(), c.BiasV, c.CurrentA*1e9, units.Duration(c.DwellS), units.Duration(c.DwellCapS))
 		default:
-			name := "AP line"
+			name := c.Mode.Abbrev() + " " + string(c.Kind)
 			extra := ""
-			if c.Mode == planner.FE {
-				name, extra = "FE raster", fmt.Sprintf(", pitch %.2f nm", c.PitchNM)
+			if c.Mode == design.ModeFE {
+				extra = fmt.Sprintf(", pitch %.2f nm", c.PitchNM)
 			}
 			fmt.Fprintf(tw, "  %s\t%+.2f V\t%.3g nA\t%.3g mC/cm, %.4g nm/s, line %.2f nm, %d pass(es)%s\n",
 				name, c.BiasV, c.CurrentA*1e9, c.LineDoseCPerCm*1e3, c.SpeedNMPerS, c.LineWidthNM, c.Passes, extra)
@@ -338,25 +257,22 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	fmt.Fprintf(w, "\nTime: %s expected (P10 %s, P50 %s, P90 %s)\n", units.Duration(p.TotalS), units.Duration(p.P10S), units.Duration(p.P50S), units.Duration(p.P90S))
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	b := p.Breakdown
-	for _, part := range []struct {
-		name string
-		s    float64
-	}{{"AP writing", b.APWriteS}, {"FE writing", b.FEWriteS}, {"dwells", b.DwellS}, {"travel and settling", b.TravelS},
-		{"mode switches", b.ModeSwitchS}, {"registrations", b.RegistrationS}, {"verification", b.VerificationS}} {
+	for _, k := range planner.TimeKinds {
+		s := b.Seconds(k)
 		share := 0.0
 		if p.TotalS > 0 {
-			share = 100 * part.s / p.TotalS
+			share = 100 * s / p.TotalS
 		}
 		note := ""
-		if part.name == "registrations" && len(p.Segments) > 0 && part.s > 0 {
+		if k == planner.TimeRegistration && len(p.Segments) > 0 && s > 0 {
 			n := len(p.Segments)
 			what := "registrations"
 			if n == 1 {
 				what = "registration"
 			}
-			note = fmt.Sprintf("  %d %s of %s", n, what, units.Duration(part.s/float64(n)))
+			note = fmt.Sprintf("  %d %s of %s", n, what, units.Duration(s/float64(n)))
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%.1f %%\t%s\n", part.name, units.Duration(part.s), share, note)
+		fmt.Fprintf(tw, "  %s\t%s\t%.1f %%\t%s\n", k, units.Duration(s), share, note)
 	}
 	tw.Flush()
 	if p.FloorS > 0 {
@@ -380,24 +296,28 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 			parts = append(parts, fmt.Sprintf("%s %d", sp, count[sp]))
 		}
 		fmt.Fprintf(w, " (%s)\n", strings.Join(parts, ", "))
-		all := fmt.Sprintf("%.4g", y.All)
-		if y.All == 0 {
-			all = fmt.Sprintf("10^%.1f", y.Log10All)
-		}
+		all := units.Probability(y.All, y.Log10All)
 		devices := fmt.Sprintf("%.3g", y.DevicesPerPerfect)
 		if y.DevicesPerPerfect == 0 {
 			devices = "more than can be written"
 		}
-		fmt.Fprintf(w, "  P(every window takes exactly one donor) = %s; good windows %.2f ± %.2f of %d; devices per perfect device %s\n",
-			all, y.MeanGood, y.SDGood, y.Windows, devices)
+		fmt.Fprintf(w, "  P(every window opened as drawn with exactly one donor) = %s (68 %%: %s, 95 %%: %s, from the templates' uncertainties)\n",
+			all, units.ProbabilityRange(y.All68, y.Log10All68), units.ProbabilityRange(y.All95, y.Log10All95))
+		fmt.Fprintf(w, "  good windows %.2f ± %.2f of %d; expected %.3g without a donor, %.3g with two or more, %.3g not opened as drawn; devices per perfect device %s\n",
+			y.MeanGood, y.SDGood, y.Windows, y.ExpectedEmpty, y.ExpectedMultiple, y.ExpectedMisopened, devices)
 		tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-		fmt.Fprintln(tw, "  region\tspecies\tat (nm)\tP(one donor)")
+		fmt.Fprintln(tw, "  region\tspecies\tat (nm)\topened as drawn\tp0\tp1\tp≥2\tP(good)")
 		for i, win := range p.Windows {
 			if i == maxListed {
 				fmt.Fprintf(tw, "  ... %d more\n", len(p.Windows)-maxListed)
 				break
 			}
-			fmt.Fprintf(tw, "  %s\t%s\t(%.2f, %.2f)\t%.3g\n", win.Region, win.Species, win.At.X, win.At.Y, win.Probability)
+			p1 := fmt.Sprintf("%.3g", win.P1)
+			if win.P1SD > 0 {
+				p1 += fmt.Sprintf(" ± %.2g", win.P1SD)
+			}
+			fmt.Fprintf(tw, "  %s\t%s\t(%.2f, %.2f)\t%.3g\t%.3g\t%s\t%.3g\t%.3g\n", win.Region, win.Species, win.At.X, win.At.Y,
+				win.OpenProbability, win.P0, p1, win.P2Plus, win.Probability)
 		}
 		tw.Flush()
 	} else {
@@ -406,13 +326,21 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 
 	c := p.Coverage
 	if c.OK {
-		fmt.Fprintf(w, "\nCoverage: OK, every one of %d sites clears and none outside the regions beyond the edge allowance\n", c.Sites)
+		fmt.Fprintf(w, "\nCoverage: OK, no site outside the regions clears with more than %.3g %% (exposure model)\n", 100*c.StrayLimit)
 	} else {
-		fmt.Fprintf(w, "\nCoverage: NOT OK, %d of %d sites uncovered, %d overcleared\n", c.Uncovered, c.Sites, c.Overcleared)
+		fmt.Fprintf(w, "\nCoverage: NOT OK, %d site(s) outside every region clear with more than %.3g %%\n", c.OverLimit, 100*c.StrayLimit)
 		for _, is := range c.Issues {
 			fmt.Fprintln(w, "  "+is)
 		}
 	}
+	fmt.Fprintf(w, "  expected: %.4g of %d sites left with their H, %.4g stray sites cleared outside the regions\n", c.ExpectedMissed, c.Sites, c.ExpectedStray)
+	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "  region\tsites\tmissed\tstray\tof them spurious\tP(no error)\t")
+	for _, r := range c.Regions {
+		fmt.Fprintf(tw, "  %s\t%d\t%s\t%s\t%s\t%s\t\n", r.Region, r.Sites, expected(r.ExpectedMissed), expected(r.ExpectedStray),
+			expected(r.ExpectedSpurious), units.Probability(r.Probability, r.Log10Probability))
+	}
+	tw.Flush()
 	if len(p.Warnings) > 0 {
 		fmt.Fprintln(w, "\nWarnings")
 		for _, warn := range p.Warnings {
@@ -428,4 +356,13 @@ func sortedKeys(m map[string]int) []string {
 	}
 	sort.Strings(ks)
 	return ks
+}
+
+// expected formats an expected number of sites: three significant digits,
+// small ones with the typographic minus ("3.1e−07").
+func expected(x float64) string {
+	if x != 0 && x < 0.001 {
+		return strings.Replace(fmt.Sprintf("%.2g", x), "-", "−", 1)
+	}
+	return fmt.Sprintf("%.3g", x)
 }

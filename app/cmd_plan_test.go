@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"dimerpath/internal/units"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -42,6 +43,8 @@ func TestPlanJSON(t *testing.T) {
 		} `json:"segments"`
 		Windows []struct {
 			Species     string  `json:"species"`
+			Open        float64 `json:"open_probability"`
+			P1          float64 `json:"p1"`
 			Probability float64 `json:"probability"`
 		} `json:"windows"`
 		YieldAll float64 `json:"yield_all"`
@@ -62,8 +65,22 @@ func TestPlanJSON(t *testing.T) {
 	if len(s.Segments) == 0 || s.Segments[0].Fiducial == "" || s.Segments[len(s.Segments)-1].EndS != s.TotalS {
 		t.Errorf("segments %+v", s.Segments)
 	}
-	if len(s.Windows) != 2 || s.Windows[0].Species != "P" || math.Abs(s.YieldAll-0.63*0.97) > 1e-12 {
-		t.Errorf("windows %+v, yield_all %v", s.Windows, s.YieldAll)
+	// A window is good when it opened as drawn and took one donor: the
+	// template's p1 (Ivie et al. 0.63 for P, Stock et al. 0.97 for As)
+	// times the exposure model's chance of opening it as drawn.
+	if len(s.Windows) != 2 || s.Windows[0].Species != "P" || s.Windows[0].P1 != 0.63 || s.Windows[1].P1 != 0.97 {
+		t.Errorf("windows %+v", s.Windows)
+	} else {
+		all := 1.0
+		for _, w := range s.Windows {
+			if w.Open <= 0.5 || w.Open > 1 || math.Abs(w.Probability-w.Open*w.P1) > 1e-12 {
+				t.Errorf("window %+v: probability is not open_probability × p1", w)
+			}
+			all *= w.Probability
+		}
+		if math.Abs(s.YieldAll-all) > 1e-12 {
+			t.Errorf("yield_all %v, product of the windows %v", s.YieldAll, all)
+		}
 	}
 	if m := s.Modes["pad-drain"]; m.Mode != "fe" || m.Reason == "" {
 		t.Errorf("modes[pad-drain] = %+v", m)
@@ -126,7 +143,7 @@ func TestCompareTable(t *testing.T) {
 	if code != ExitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	for _, want := range []string{"gap-9", "gap-12-source", "P(all windows good)", "0.6111"} {
+	for _, want := range []string{"gap-9", "gap-12-source", "P(all windows good)", "0.5364"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("compare output lacks %q:\n%s", want, out)
 		}
@@ -134,31 +151,31 @@ func TestCompareTable(t *testing.T) {
 }
 
 func TestCalibrateThenPlan(t *testing.T) {
-	// Lines written at 4 V, 2 nA from an exposure model with σ = 0.15 nm
+	// Lines written at 4 V, 2 nA from an exposure model with σ = 0.12 nm
 	// and Y = 3·10⁻⁸ H/e (widths from the model's P = ½ band, plus a line
 	// that wrote nothing); the calibrated profile recovers them and plan
 	// uses it.
 	var b strings.Builder
 	b.WriteString("# test lines\nbias_v,current_na,speed_nm_per_s,width_nm\n")
 	truth := planner.DefaultProfile()
-	truth.AP.SigmaNM = 0.15
+	truth.AP.SigmaNM = 0.12
 	truth.Exposure.Vibrational.YieldPerElectron = 3e-8
 	for _, v := range []float64{4, 6, 8, 12, 16, 24, 2000} {
 		truth.AP.LineDoseCPerCm = 2e-9 / v * 1e7
-		fmt.Fprintf(&b, "4,2,%g,%.10g\n", v, truth.Line(planner.AP).Width())
+		fmt.Fprintf(&b, "4,2,%g,%.10g\n", v, truth.Line(design.ModeAP).Width())
 	}
 	meas := writeFile(t, "lines.csv", b.String())
 	prof := filepath.Join(filepath.Dir(meas), "cal.json")
 	out, errs, code := runMain(t, "calibrate", meas, "-o", prof)
-	if code != ExitOK || !strings.Contains(out, "footprint σ                      0.15 nm") || !strings.Contains(out, "1 that wrote nothing censored") {
+	if code != ExitOK || !strings.Contains(out, "footprint σ                      0.12 nm") || !strings.Contains(out, "1 that wrote nothing censored") {
 		t.Fatalf("calibrate: exit %d\n%s\n%s", code, out, errs)
 	}
 	p, err := planner.LoadProfile(prof)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if math.Abs(p.AP.SigmaNM-0.15) > 1e-6 || math.Abs(p.Exposure.Vibrational.YieldPerElectron-3e-8) > 1e-12 {
-		t.Errorf("calibrated σ %v, Y %v; want 0.15 nm, 3e-8", p.AP.SigmaNM, p.Exposure.Vibrational.YieldPerElectron)
+	if math.Abs(p.AP.SigmaNM-0.12) > 1e-6 || math.Abs(p.Exposure.Vibrational.YieldPerElectron-3e-8) > 1e-12 {
+		t.Errorf("calibrated σ %v, Y %v; want 0.12 nm, 3e-8", p.AP.SigmaNM, p.Exposure.Vibrational.YieldPerElectron)
 	}
 	out, errs, code = runMain(t, "plan", demoPath, "--profile", prof, "--json")
 	if code != ExitOK || !strings.Contains(out, "calibrated from lines.csv") {

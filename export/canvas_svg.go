@@ -162,7 +162,7 @@ func (c *svgCanvas) fillAttrs(f paint) {
 	switch {
 	case f.hatch != hatchNone:
 		// A hatched shape is drawn as fill then pattern; the pattern
-		// carries its own background (see hatchDef).
+		// carries its own background (see hatchDefs).
 		id := f.patternID()
 		if !c.hatchID[id] {
 			if c.hatchID == nil {

@@ -11,6 +11,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/assets"
+	"dimerpath/export/internal/planfixture"
 	"dimerpath/internal/gdsii"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
@@ -252,13 +253,41 @@ func TestParseGDSLayers(t *testing.T) {
 		{`{"format": "dimerpath-gds-layers", "version": 1, "windws": "4/0"}`, "windws"},
 		{`{"format": "dimerpath-gds-layers", "version": 1, "regions": {"pads": "4/0"}}`, `unknown role "pads"`},
 		{`{"format": "dimerpath-gds-layers", "version": 1, "regions": {"pad/xx": "4/0"}}`, `unknown mode "xx"`},
-		{`{"format": "dimerpath-gds-layers", "version": 1, "field": "4/-1"}`, "field: layer"},
-		{`{"format": "dimerpath-gds-layers", "version": 1, "field": "70000"}`, "field: layer"},
-		{`{"format": "dimerpath-gds-layers", "version": 2}`, "version 2"},
+		{`{"format": "dimerpath-gds-layers", "version": 1, "field": "4/-1"}`, `field = "4/-1": layer`},
+		{`{"format": "dimerpath-gds-layers", "version": 1, "field": "70000"}`, `field = "70000": layer`},
+		{`{"format": "dimerpath-gds-layers", "version": 2}`, "version = 2: this dimerpath reads layer map version 1"},
+		{`{"format": "dimerpath-gds-layers", "version": 1, "Windows": "4/0"}`, `Windows: unknown field: names are case-sensitive, did you mean "windows"?`},
 		{`{"format": "dimerpath-gds-layers", "version": 1, "mark_size_nm": -1}`, "mark_size_nm"},
 	} {
-		if _, err := ParseGDSLayers("map.json", []byte(bad.src)); err == nil || !strings.Contains(err.Error(), bad.want) || !strings.HasPrefix(err.Error(), "map.json: ") {
+		if _, err := ParseGDSLayers("map.json", []byte(bad.src)); err == nil || !strings.Contains(err.Error(), bad.want) || !strings.HasPrefix(err.Error(), "map.json:") {
 			t.Errorf("ParseGDSLayers(%s) error %v, want one naming map.json and %q", bad.src, err, bad.want)
 		}
+	}
+}
+
+// A reference overlay is drawn on the overview as its own group, one
+// closed outline per polygon, and named in the legend.
+func TestReferenceOnTheOverview(t *testing.T) {
+	d := planfixture.SET()
+	opt := fixtureOptions(d)
+	opt.Pattern.References = []PatternReference{{Name: "contact mask", Polygons: [][]r2.Point{
+		{{X: 10, Y: 10}, {X: 40, Y: 10}, {X: 40, Y: 30}}, {{X: 50, Y: 50}, {X: 60, Y: 50}, {X: 60, Y: 60}, {X: 50, Y: 60}},
+	}}}
+	var buf bytes.Buffer
+	if err := WriteSVG(&buf, d.Plan, opt); err != nil {
+		t.Fatal(err)
+	}
+	svg := buf.String()
+	start := strings.Index(svg, `id="reference-contact_mask"`)
+	if start < 0 {
+		t.Fatal("no reference group in the SVG")
+	}
+	group := svg[start:]
+	group = group[:strings.Index(group, "</g>")]
+	if n := strings.Count(group, "<path") + strings.Count(group, "<polygon") + strings.Count(group, "<polyline"); n != 2 {
+		t.Errorf("reference group holds %d outlines, want 2:\n%s", n, group)
+	}
+	if !strings.Contains(svg, "reference layout, not written: contact mask") {
+		t.Error("the legend does not name the reference")
 	}
 }

@@ -1,14 +1,13 @@
 package export
 
 import (
-	"bytes"
-	"encoding/json"
+	"errors"
 	"fmt"
-	"os"
 	"slices"
 	"strconv"
 	"strings"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice/design"
 )
 
@@ -99,11 +98,19 @@ type gdsLayerFile struct {
 	MarkSizeNM *float64          `json:"mark_size_nm,omitempty"`
 }
 
+// ErrGDSLayers is wrapped by the *jsonfile.Error of a layer map file
+// that cannot be read.
+var ErrGDSLayers = errors.New("invalid GDSII layer map")
+
+// maxGDSLayerBytes bounds a layer map file (a few hundred bytes).
+const maxGDSLayerBytes = 1 << 20
+
 // ReadGDSLayers reads a layer map file over the default table: each
 // field it gives replaces the default; a "regions" key is "role/mode" or
-// "role" (every mode of the role). Errors name the file and field.
+// "role" (every mode of the role). Errors name the file, the field, its
+// line and column.
 func ReadGDSLayers(path string) (GDSLayers, error) {
-	data, err := os.ReadFile(path)
+	data, err := jsonfile.ReadFile(path, maxGDSLayerBytes, ErrGDSLayers)
 	if err != nil {
 		return GDSLayers{}, err
 	}
@@ -114,27 +121,32 @@ func ReadGDSLayers(path string) (GDSLayers, error) {
 func ParseGDSLayers(name string, data []byte) (GDSLayers, error) {
 	g := DefaultGDSLayers()
 	var f gdsLayerFile
-	dec := json.NewDecoder(bytes.NewReader(data))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&f); err != nil {
-		return g, fmt.Errorf("%s: %v", name, err)
+	var ps jsonfile.Problems
+	fail := func() (GDSLayers, error) {
+		jsonfile.Locate(data, ps.List())
+		return g, ps.Err(name, ErrGDSLayers)
+	}
+	if !jsonfile.Decode(data, &f, &ps, jsonfile.Options{What: "the layer map", MaxString: 1000, MaxList: 1000, MaxDepth: 4}) || ps.Len() > 0 {
+		return fail()
 	}
 	if f.Format != GDSLayerMapFormat {
-		return g, fmt.Errorf("%s: format %q, want %q", name, f.Format, GDSLayerMapFormat)
+		ps.AddValue("format", f.Format, "not a layer map file (want %q)", GDSLayerMapFormat)
+		return fail()
 	}
 	if f.Version != 1 {
-		return g, fmt.Errorf("%s: version %d, want 1", name, f.Version)
+		ps.AddValue("version", f.Version, "this dimerpath reads layer map version 1")
+		return fail()
 	}
-	set := func(field string, dst *GDSLayer, src *string) error {
+	set := func(field string, dst *GDSLayer, src *string) {
 		if src == nil {
-			return nil
+			return
 		}
 		l, err := ParseGDSLayer(*src)
 		if err != nil {
-			return fmt.Errorf("%s: %s: %v", name, field, err)
+			ps.AddValue(field, *src, "%v", err)
+			return
 		}
 		*dst = l
-		return nil
 	}
 	for _, x := range []struct {
 		field string
@@ -142,27 +154,31 @@ func ParseGDSLayers(name string, data []byte) (GDSLayers, error) {
 		src   *string
 	}{{"field", &g.Field, f.Field}, {"scan_field", &g.ScanField, f.ScanField}, {"terraces", &g.Terraces, f.Terraces},
 		{"fiducials", &g.Fiducials, f.Fiducials}, {"windows", &g.Windows, f.Windows}} {
-		if err := set(x.field, x.dst, x.src); err != nil {
-			return g, err
-		}
+		set(x.field, x.dst, x.src)
 	}
 	keys := make([]string, 0, len(f.Regions))
 	for k := range f.Regions {
 		keys = append(keys, k)
 	}
-	// "role" first, so "role/mode" overrides it.
-	slices.SortFunc(keys, func(a, b string) int { return strings.Count(a, "/") - strings.Count(b, "/") })
+	// "role" first, so "role/mode" overrides it; sorted within, so the
+	// problems come in one order.
+	slices.Sort(keys)
+	slices.SortStableFunc(keys, func(a, b string) int { return strings.Count(a, "/") - strings.Count(b, "/") })
 	for _, k := range keys {
+		path := jsonfile.Key("regions", k)
 		role, mode, hasMode := strings.Cut(k, "/")
 		if !slices.Contains(GDSRoles, design.Role(role)) {
-			return g, fmt.Errorf("%s: regions[%q]: unknown role %q (want one of %s)", name, k, role, joinAny(GDSRoles))
+			ps.Addf(path, "unknown role %q (want one of %s)", jsonfile.Prefix(role, jsonfile.MaxQuote), joinAny(GDSRoles))
+			continue
 		}
 		if hasMode && !slices.Contains(GDSModes, design.Mode(mode)) {
-			return g, fmt.Errorf("%s: regions[%q]: unknown mode %q (want one of %s)", name, k, mode, joinAny(GDSModes))
+			ps.Addf(path, "unknown mode %q (want one of %s)", jsonfile.Prefix(mode, jsonfile.MaxQuote), joinAny(GDSModes))
+			continue
 		}
 		l, err := ParseGDSLayer(f.Regions[k])
 		if err != nil {
-			return g, fmt.Errorf("%s: regions[%q]: %v", name, k, err)
+			ps.AddValue(path, f.Regions[k], "%v", err)
+			continue
 		}
 		for _, m := range GDSModes {
 			if !hasMode || design.Mode(mode) == m {
@@ -172,9 +188,13 @@ func ParseGDSLayers(name string, data []byte) (GDSLayers, error) {
 	}
 	if f.MarkSizeNM != nil {
 		if v := *f.MarkSizeNM; !(v > 0 && v <= 10000) {
-			return g, fmt.Errorf("%s: mark_size_nm %g: want more than 0 and at most 10000", name, v)
+			ps.AddValue("mark_size_nm", v, "want more than 0 and at most 10000 nm")
+		} else {
+			g.MarkSizeNM = v
 		}
-		g.MarkSizeNM = *f.MarkSizeNM
+	}
+	if ps.Len() > 0 {
+		return fail()
 	}
 	return g, nil
 }

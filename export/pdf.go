@@ -12,6 +12,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -46,8 +47,13 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 			}
 			return nil
 		}},
-		{"segments", func() error { return pdfSegments(ctx, d, p) }},
-		{"estimates", func() error { pdfEstimates(d, p); return nil }},
+		{"segments", func() error {
+			if err := pdfSegments(ctx, d, p, sc.number); err != nil {
+				return err
+			}
+			return pdfStrokeList(ctx, d, p, sc.number)
+		}},
+		{"estimates", func() error { pdfEstimates(d, p); pdfCoverage(d, p); return nil }},
 		{"atomic-precision areas", func() error {
 			return pdfZooms(ctx, d, sc, func(f float64) { opt.progress("pdf: atomic-precision areas", (4+f)/5) })
 		}},
@@ -69,7 +75,7 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 // points, 2 FE rasters".
 func strokeSummary(p *planner.Plan) string {
 	type k struct {
-		m planner.WriteMode
+		m design.Mode
 		s planner.StrokeKind
 	}
 	n := map[k]int{}
@@ -77,11 +83,11 @@ func strokeSummary(p *planner.Plan) string {
 		n[k{p.Strokes[i].Mode, p.Strokes[i].Kind}]++
 	}
 	var parts []string
-	for _, key := range []k{{planner.AP, planner.StrokeLine}, {planner.AP, planner.StrokeDwell}, {planner.AP, planner.StrokeOutline},
-		{planner.FE, planner.StrokeRaster}, {planner.FE, planner.StrokeOutline}, {planner.FE, planner.StrokeLine}, {planner.FE, planner.StrokeDwell},
-		{planner.AP, planner.StrokeRaster}} {
+	for _, key := range []k{{design.ModeAP, planner.StrokeLine}, {design.ModeAP, planner.StrokeDwell}, {design.ModeAP, planner.StrokeOutline},
+		{design.ModeFE, planner.StrokeRaster}, {design.ModeFE, planner.StrokeOutline}, {design.ModeFE, planner.StrokeLine}, {design.ModeFE, planner.StrokeDwell},
+		{design.ModeAP, planner.StrokeRaster}} {
 		if c := n[key]; c > 0 {
-			parts = append(parts, fmt.Sprintf("%s %s %s", thousands(c), strings.ToUpper(string(key.m)), plural(kindNoun(key.s), c)))
+			parts = append(parts, fmt.Sprintf("%s %s %s", thousands(c), key.m.Abbrev(), plural(kindNoun(key.s), c)))
 		}
 	}
 	return strings.Join(parts, ", ")
@@ -151,6 +157,9 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	}
 	d.keyValues(rows, 0.28)
 	d.cautionBox()
+	if !p.Coverage.OK {
+		d.errorBox("COVERAGE ERROR: do not write this plan as it stands", coverageErrorLines(p))
+	}
 
 	d.heading("At a glance", 30)
 	fids := map[string]bool{}
@@ -173,10 +182,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	if len(sp) > 0 {
 		windows += " (" + strings.Join(sp, ", ") + ")"
 	}
-	cov := "passed: every painted site is cleared, none outside the regions beyond the edge allowance"
-	if !p.Coverage.OK {
-		cov = fmt.Sprintf("FAILED: %d sites uncovered, %d over-cleared (see below)", p.Coverage.Uncovered, p.Coverage.Overcleared)
-	}
+	cov := coverageLine(p.Coverage)
 	glance := [][2]string{
 		{"Expected write time", fmt.Sprintf("%s (%s)", clock(p.TotalS), duration(p.TotalS))},
 		{"Against the floor and by hand", floorLine(p)},
@@ -188,8 +194,9 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	}
 	if len(p.Windows) > 0 {
 		glance = append(glance,
-			[2]string{"All windows good", fmt.Sprintf("%s (probability that every window takes exactly one donor)", allGood(p.Yield))},
+			[2]string{"All windows good", fmt.Sprintf("%s (opened as drawn and holding exactly one donor; %s)", allGood(p.Yield), intervals(p.Yield))},
 			[2]string{"Good windows", meanGood(p.Yield)},
+			[2]string{"Bad windows expected", badWindows(p.Yield)},
 			[2]string{"Devices per perfect one", devicesPerPerfect(p.Yield)},
 		)
 	}
@@ -217,14 +224,14 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 			if cd.DwellCapS > 0 {
 				dwell += "\nat most " + duration(cd.DwellCapS)
 			}
-			t.row(modeName(cd.Mode)+", dwell points", signedV(cd.BiasV), nanoAmps(cd.CurrentA), "–", dwell, "–", "–", "–")
+			t.row(cd.Mode.Label()+", dwell points", signedV(cd.BiasV), nanoAmps(cd.CurrentA), "–", dwell, "–", "–", "–")
 			continue
 		}
 		pitch := "–"
 		if cd.PitchNM > 0 {
 			pitch = sig(cd.PitchNM, 3)
 		}
-		name := modeName(cd.Mode)
+		name := cd.Mode.Label()
 		if cd.Kind != "" {
 			name += ", " + plural(kindNoun(cd.Kind), 2)
 		}
@@ -234,7 +241,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	if !hasDwell {
 		// An older plan without dwell conditions: take them from the actions.
 		for _, g := range dwellConditions(p) {
-			t.row(modeName(g.mode)+", dwell points", signedV(g.bias), nanoAmps(g.current), "–", "dwell "+duration(g.dwell), "–", "–", "–")
+			t.row(g.mode.Label()+", dwell points", signedV(g.bias), nanoAmps(g.current), "–", "dwell "+duration(g.dwell), "–", "–", "–")
 		}
 	}
 	t.end()
@@ -250,7 +257,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	)
 	t.start()
 	for _, m := range p.Modes {
-		t.row(m.Region, m.Role, m.Requested, m.Mode, thousands(m.Sites), m.Reason)
+		t.row(m.Region, m.Role.Name(), m.Requested.Abbrev(), m.Mode.Abbrev(), thousands(m.Sites), m.Reason)
 	}
 	t.end()
 
@@ -264,9 +271,60 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		}
 	}
 	d.y += 2
-	d.para("Segments and strokes are numbered from 1 on paper; the JSON and CSV exports count them from 0. "+
+	d.para("Segments are numbered from 1 on paper (from 0 in the JSON and CSV exports). Strokes are numbered from 1 in the order "+
+		"they are written; the JSON and CSV exports give that number beside each stroke's id, which counts from 0 in the order the planner made them. "+
 		"Positions are field coordinates in nm, origin at the lower-left corner of the scan field. "+
 		"Times are on the plan clock, from the start of the session.", font{size: 7.5, grey: 0.25})
+}
+
+// coverageLine says in one line what the coverage expectation found.
+func coverageLine(c planner.Coverage) string {
+	s := fmt.Sprintf("%s of %s sites expected to keep their H, %s stray sites expected outside the regions",
+		sig(c.ExpectedMissed, 3), thousands(c.Sites), sig(c.ExpectedStray, 3))
+	if !c.OK {
+		return fmt.Sprintf("FAILED: %s site(s) outside every region clear with more than %s (see the box above); %s", thousands(c.OverLimit), percent(c.StrayLimit), s)
+	}
+	return fmt.Sprintf("passed: no site outside the regions clears with more than %s; %s (exposure model)", percent(c.StrayLimit), s)
+}
+
+// coverageErrorLines lists what the coverage check found wrong, for the
+// first page.
+func coverageErrorLines(p *planner.Plan) []string {
+	c := p.Coverage
+	numbers := StrokeNumbers(p)
+	lines := []string{fmt.Sprintf("%s site(s) outside every region, beyond the edge allowance, clear with a probability above the %s limit. "+
+		"The strokes that reach them are named below; change the design or the profile and plan again.", thousands(c.OverLimit), percent(c.StrayLimit))}
+	for i, s := range c.StraySites {
+		if i == 8 {
+			lines = append(lines, fmt.Sprintf("… and %s more (all of them in the plan file's coverage.stray_sites)", thousands(c.OverLimit-8)))
+			break
+		}
+		who := "no stroke known"
+		if s.Stroke >= 0 && s.Stroke < len(numbers) {
+			who = fmt.Sprintf("stroke %d (writing order) of region %s", numbers[s.Stroke], s.Region)
+		}
+		lines = append(lines, fmt.Sprintf("• site %v at (%s, %s) nm: %s, from %s", s.Site, sig(s.At.X, 6), sig(s.At.Y, 6), percent(s.Probability), who))
+	}
+	if len(c.Issues) > 0 {
+		lines = append(lines, "What to do: "+c.Issues[0][strings.Index(c.Issues[0], ": ")+2:])
+	}
+	return lines
+}
+
+// intervals formats the 68 % and 95 % intervals of P(all good).
+func intervals(y planner.Yield) string {
+	f := func(iv [2]float64, l [2]float64) string {
+		if iv[1] == 0 && !math.IsInf(l[1], -1) {
+			return pow10(l[0]) + "–" + pow10(l[1])
+		}
+		return probability(iv[0]) + "–" + probability(iv[1])
+	}
+	return fmt.Sprintf("68 %%: %s, 95 %%: %s from the templates' uncertainties", f(y.All68, y.Log10All68), f(y.All95, y.Log10All95))
+}
+
+// badWindows formats the expected numbers of windows that go wrong.
+func badWindows(y planner.Yield) string {
+	return fmt.Sprintf("%s without a donor, %s with two or more, %s not opened as drawn", sig(y.ExpectedEmpty, 3), sig(y.ExpectedMultiple, 3), sig(y.ExpectedMisopened, 3))
 }
 
 // floorLine compares the plan with the physical floor (the writing
@@ -340,16 +398,6 @@ func listShort(names []string, n int) string {
 	return strings.Join(names[:n], ", ") + fmt.Sprintf(" and %d more", len(names)-n)
 }
 
-func modeName(m planner.WriteMode) string {
-	switch m {
-	case planner.AP:
-		return "AP (atomic precision)"
-	case planner.FE:
-		return "FE (field emission)"
-	}
-	return string(m)
-}
-
 func signedV(v float64) string {
 	if v > 0 {
 		return "+" + sig(v, 3)
@@ -359,7 +407,7 @@ func signedV(v float64) string {
 
 // dwellGroup is one set of dwell conditions used by the plan.
 type dwellGroup struct {
-	mode    planner.WriteMode
+	mode    design.Mode
 	bias    float64
 	current float64
 	dwell   float64 // mean dwell time per point, s
@@ -461,7 +509,7 @@ func insideField(win, field r2.Rect) r2.Rect {
 // condGroup is one line of a segment's table row: the strokes written
 // with one set of tip conditions.
 type condGroup struct {
-	mode    planner.WriteMode
+	mode    design.Mode
 	dwell   bool
 	bias    float64
 	current float64
@@ -519,35 +567,42 @@ func countOf[T comparable](s []T, v T) int {
 	return n
 }
 
-// idRanges formats stroke IDs (shown from 1) as "4–9, 12", cut after a
-// few ranges.
-func idRanges(ids []int) string {
+// numberRanges formats stroke numbers on paper as "4–9, 12": every
+// number, however many ranges (a long list wraps in its cell, never cut).
+func numberRanges(nums []int) string {
+	nums = slices.Sorted(slices.Values(nums))
 	var parts []string
-	for i := 0; i < len(ids); {
+	for i := 0; i < len(nums); {
 		j := i
-		for j+1 < len(ids) && ids[j+1] == ids[j]+1 {
+		for j+1 < len(nums) && nums[j+1] == nums[j]+1 {
 			j++
 		}
 		if j > i {
-			parts = append(parts, fmt.Sprintf("%d–%d", ids[i]+1, ids[j]+1))
+			parts = append(parts, fmt.Sprintf("%d–%d", nums[i], nums[j]))
 		} else {
-			parts = append(parts, strconv.Itoa(ids[i]+1))
+			parts = append(parts, strconv.Itoa(nums[i]))
 		}
 		i = j + 1
-	}
-	if len(parts) > 2 {
-		return parts[0] + ", " + parts[1] + ", …"
 	}
 	return strings.Join(parts, ", ")
 }
 
-func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan) error {
+// segmentNumbers returns the paper numbers of a segment's strokes.
+func segmentNumbers(s *planner.Segment, numbers []int) []int {
+	out := make([]int, len(s.Strokes))
+	for k, id := range s.Strokes {
+		out[k] = numbers[id]
+	}
+	return out
+}
+
+func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int) error {
 	d.page()
 	d.heading("Segments", 0)
 	d.para("Write the segments in order. For each: move to its fiducial, image it and correct the offset, "+
-		"then write its strokes in order from the start position (stroke numbers as in the figures), "+
-		"and tick the box. Each line within a row is one set of tip conditions and the strokes written with it. "+
-		"Duration runs from the registration to the end of the segment; \"ends at\" is on the plan clock.", fontBody)
+		"then write its strokes in order of their numbers from the start position (the stroke list below gives each one; "+
+		"the figures show each number at its stroke's start), and tick the box. Each line within a row is one set of tip conditions "+
+		"and the strokes written with it. Duration runs from the registration to the end of the segment; \"ends at\" is on the plan clock.", fontBody)
 	f := font{size: 7.5}
 	t := newTable(d, f,
 		tableColumn{title: "Done", share: 6},
@@ -584,7 +639,7 @@ func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan) error {
 		var strokes, modes, bias, cur, speed []string
 		for _, g := range groups {
 			strokes = append(strokes, g.kindCounts())
-			modes = append(modes, strings.ToUpper(string(g.mode)))
+			modes = append(modes, g.mode.Abbrev())
 			bias = append(bias, signedV(g.bias))
 			cur = append(cur, nanoAmps(g.current))
 			if g.dwell {
@@ -596,7 +651,7 @@ func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan) error {
 		start := ""
 		if len(s.Strokes) > 0 {
 			q := p.Strokes[s.Strokes[0]].Path[0]
-			start = nm1(q.X) + ", " + nm1(q.Y) + "\n" + plural("stroke", len(s.Strokes)) + " " + idRanges(slices.Sorted(slices.Values(s.Strokes)))
+			start = nm1(q.X) + ", " + nm1(q.Y) + "\n" + plural("stroke", len(s.Strokes)) + " " + numberRanges(segmentNumbers(&s, numbers))
 		}
 		fid := s.Fiducial + "\n(" + nm1(s.FiducialAt.X) + ", " + nm1(s.FiducialAt.Y) + ")"
 		top, _ := t.row("", strconv.Itoa(i+1), fid, start, strings.Join(strokes, "\n"), strings.Join(modes, "\n"),
@@ -641,27 +696,34 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	y := p.Yield
 	d.keyValues([][2]string{
 		{"Windows", thousands(y.Windows)},
-		{"All windows good", fmt.Sprintf("%s: the probability that every window takes exactly one donor", allGood(y))},
+		{"All windows good", fmt.Sprintf("%s: the probability that every window is opened as drawn and takes exactly one donor; %s", allGood(y), intervals(y))},
 		{"Good windows", meanGood(y)},
+		{"Bad windows expected", badWindows(y)},
 		{"Devices per perfect one", devicesPerPerfect(y)},
 	}, 0.28)
+	d.para("A window is good when it is opened as drawn (every site cleared and none of its neighbours, from the exposure model) and then "+
+		"takes exactly one donor (the template's p1). p0, p1 and p≥2 are the template's probabilities of 0, 1 and 2 or more donors in a window opened as drawn.", font{size: 7.5, grey: 0.25})
 	t := newTable(d, fontBody,
-		tableColumn{title: "Species", share: 10},
-		tableColumn{title: "Template", share: 12},
-		tableColumn{title: "Windows", share: 10, right: true},
-		tableColumn{title: "P(all sites open)", share: 14, right: true},
-		tableColumn{title: "P(exactly one donor)", share: 16, right: true},
-		tableColumn{title: "Regions", share: 38},
+		tableColumn{title: "Species", share: 8},
+		tableColumn{title: "Template", share: 9},
+		tableColumn{title: "Windows", share: 8, right: true},
+		tableColumn{title: "P(opened as drawn)", share: 12, right: true},
+		tableColumn{title: "p0", share: 7, right: true},
+		tableColumn{title: "p1", share: 11, right: true},
+		tableColumn{title: "p≥2", share: 7, right: true},
+		tableColumn{title: "P(good)", share: 9, right: true},
+		tableColumn{title: "Regions", share: 29},
 	)
 	type key struct {
-		species, template string
-		open, p           float64
+		species, template   string
+		open, p0, p1, p2, p float64
+		sd                  float64
 	}
 	groups := map[key][]string{}
 	counts := map[key]int{}
 	var order []key
 	for _, w := range p.Windows {
-		k := key{w.Species, w.Template, w.OpenProbability, w.Probability}
+		k := key{w.Species, w.Template, w.OpenProbability, w.P0, w.P1, w.P2Plus, w.Probability, w.P1SD}
 		if counts[k] == 0 {
 			order = append(order, k)
 		}
@@ -676,7 +738,11 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 		if k.open > 0 {
 			open = probability(k.open)
 		}
-		t.row(k.species, k.template, thousands(counts[k]), open, probability(k.p), listShort(groups[k], 6))
+		p1 := probability(k.p1)
+		if k.sd > 0 {
+			p1 += " ± " + sig(k.sd, 2)
+		}
+		t.row(k.species, k.template, thousands(counts[k]), open, probability(k.p0), p1, probability(k.p2), probability(k.p), listShort(groups[k], 6))
 	}
 	t.end()
 	d.need(62)
@@ -684,6 +750,36 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	d.y += 5
 	h = drawDistribution(d.c, y.Distribution, box{d.left(), d.y, d.width(), 55})
 	d.y += h + 2
+}
+
+// pdfCoverage prints the coverage expectation region by region.
+func pdfCoverage(d *pdfDoc, p *planner.Plan) {
+	c := p.Coverage
+	if len(c.Regions) == 0 {
+		return
+	}
+	d.heading("Coverage: what the strokes are expected to clear", 40)
+	d.para(fmt.Sprintf("Each H site clears with probability 1 − exp(−Y·N), N the electrons its strokes' footprints deliver to it and Y the "+
+		"desorption yield per electron at their bias and current (Shen et al., Science 268, 1590 (1995)). Missed: a region's sites expected to keep "+
+		"their H. Stray: sites outside every region expected to clear beyond the edge allowance, with the background of spurious dangling bonds along "+
+		"AP lines. P(no error): the probability that the region is written exactly. %s.", capitalise(coverageLine(c))), font{size: 7.5, grey: 0.25})
+	t := newTable(d, fontBody,
+		tableColumn{title: "Region", share: 22},
+		tableColumn{title: "Sites", share: 14, right: true},
+		tableColumn{title: "Missed", share: 14, right: true},
+		tableColumn{title: "Stray", share: 14, right: true},
+		tableColumn{title: "of them spurious", share: 16, right: true},
+		tableColumn{title: "P(no error)", share: 20, right: true},
+	)
+	t.start()
+	for _, r := range c.Regions {
+		pr := probability(r.Probability)
+		if r.Probability == 0 && !math.IsInf(r.Log10Probability, -1) {
+			pr = pow10(r.Log10Probability)
+		}
+		t.row(r.Region, thousands(r.Sites), sig(r.ExpectedMissed, 3), sig(r.ExpectedStray, 3), sig(r.ExpectedSpurious, 3), pr)
+	}
+	t.end()
 }
 
 func capitalise(s string) string {
@@ -740,7 +836,7 @@ func zoomLegend(sc *scene) []legendEntry {
 
 func pdfZooms(ctx context.Context, d *pdfDoc, sc *scene, progress func(float64)) error {
 	p := sc.plan
-	areas, omitted := apAreas(p)
+	areas, omitted := apAreas(p, sc.number)
 	if len(areas) == 0 {
 		return nil
 	}
@@ -762,7 +858,7 @@ func pdfZooms(ctx context.Context, d *pdfDoc, sc *scene, progress func(float64))
 			d.page()
 		}
 		h := math.Min(figH, d.remains()-16)
-		regions, strokes := areaCaption(p, a)
+		regions, strokes := areaCaption(p, a, sc.number)
 		win := a.win
 		cap := fmt.Sprintf("AP area %d of %d: %s", i+1, len(areas)+omitted, regions)
 		for _, l := range wrapText(d.c, cap, fontBold, d.width()) {

@@ -252,24 +252,31 @@ func (t *table) row(texts ...string) (top, h float64) {
 }
 
 // spanRow prints a row whose first cell is first and whose second cell,
-// rest, spans all the other columns.
-func (t *table) spanRow(first, rest string) {
+// rest, spans all the other columns. It returns the row's top y.
+func (t *table) spanRow(first, rest string) (top float64) {
+	return t.spanRowFont(first, rest, t.f)
+}
+
+// spanRowFont is spanRow with rest in font f.
+func (t *table) spanRowFont(first, rest string, f font) (top float64) {
 	d := t.d
 	w0 := t.widths[0]
-	cells := [][]string{wrapText(d.c, first, t.f, w0-2*t.pad), wrapText(d.c, rest, t.f, d.width()-w0-2*t.pad)}
+	cells := [][]string{wrapText(d.c, first, t.f, w0-2*t.pad), wrapText(d.c, rest, f, d.width()-w0-2*t.pad)}
 	h := t.height(cells)
 	d.need(h)
 	for i, lines := range cells {
-		x := d.left() + t.pad
+		x, cf := d.left()+t.pad, t.f
 		if i == 1 {
-			x += w0
+			x, cf = x+w0, f
 		}
 		for k, l := range lines {
-			d.c.text(vec{x, d.y + t.pad + float64(k)*t.lh + t.lh*0.78}, l, t.f, anchorStart, tag{})
+			d.c.text(vec{x, d.y + t.pad + float64(k)*t.lh + t.lh*0.78}, l, cf, anchorStart, tag{})
 		}
 	}
 	d.c.polyline([]vec{{d.left(), d.y + h}, {d.left() + d.width(), d.y + h}}, false, pen{width: 0.12, grey: 0.55}, noPaint, tag{})
+	top = d.y
 	d.y += h
+	return top
 }
 
 // colX returns the left edge of column i.
@@ -317,6 +324,29 @@ func (d *pdfDoc) cautionBox() {
 	y := d.y + 4 + lh*0.8
 	for _, l := range lines {
 		d.c.text(vec{d.left() + 6, y}, l, f, anchorStart, tag{})
+		y += lh
+	}
+	d.y += h + 5
+}
+
+// errorBox draws a boxed block of lines, heavier than the caution: what
+// the operator must see before anything else on the page.
+func (d *pdfDoc) errorBox(title string, lines []string) {
+	ft, f := font{size: 12, bold: true}, font{size: 8.5}
+	lh := f.size * ptMM * 1.35
+	var wrapped []string
+	for _, l := range lines {
+		wrapped = append(wrapped, wrapText(d.c, l, f, d.width()-14)...)
+	}
+	h := ft.size*ptMM*1.4 + float64(len(wrapped))*lh + 8
+	d.need(h + 4)
+	b := box{d.left(), d.y, d.width(), h}
+	d.c.rect(b, pen{width: 2}, solid(0.8), tag{})
+	y := d.y + 4 + ft.size*ptMM
+	d.c.text(vec{d.left() + 6, y}, title, ft, anchorStart, tag{})
+	y += ft.size*ptMM*0.4 + lh
+	for _, l := range wrapped {
+		d.c.text(vec{d.left() + 7, y}, l, f, anchorStart, tag{})
 		y += lh
 	}
 	d.y += h + 5

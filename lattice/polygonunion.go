@@ -56,7 +56,7 @@ func NewPolygonUnion(polys []Polygon) *PolygonUnion {
 	return u
 }
 
-// across returns a box's extent across rows running in direction d.
+// acrossOf returns a box's extent across rows running in direction d.
 func acrossOf(b r2.Rect, d RowDirection) r1.Interval {
 	if d == RowsAlongY {
 		return b.X

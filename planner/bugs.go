@@ -43,26 +43,16 @@ func recoverInternal(plan **Plan, err *error) {
 	*err = &InternalError{Message: fmt.Sprintf("panic: %v", r), Stack: debug.Stack()}
 }
 
-// breakdownParts names each part of a Breakdown with the profile fields
-// its time comes from, for errors about a time that overflows.
-func breakdownParts(b Breakdown) []struct {
-	name   string
-	s      float64
-	fields []string
-} {
-	return []struct {
-		name   string
-		s      float64
-		fields []string
-	}{
-		{"AP writing", b.APWriteS, []string{"ap.current_a", "ap.line_dose_c_per_cm", "ap.passes"}},
-		{"FE writing", b.FEWriteS, []string{"fe.current_a", "fe.line_dose_c_per_cm", "fe.passes"}},
-		{"dwells", b.DwellS, []string{"dwell.current_a", "dwell.yield_per_electron", "dwell.completion"}},
-		{"travel", b.TravelS, []string{"move_speed_nm_per_s", "settle_s"}},
-		{"mode switches", b.ModeSwitchS, []string{"mode_switch_s"}},
-		{"registrations", b.RegistrationS, []string{"drift.registration_s"}},
-		{"verification images", b.VerificationS, []string{"drift.verification_s"}},
-	}
+// timeSources names, for each kind of time, the profile fields it comes
+// from, for errors about a time that overflows.
+var timeSources = map[TimeKind][]string{
+	TimeAPWrite:      {"ap.current_a", "ap.line_dose_c_per_cm", "ap.passes"},
+	TimeFEWrite:      {"fe.current_a", "fe.line_dose_c_per_cm", "fe.passes"},
+	TimeDwell:        {"dwell.current_a", "dwell.yield_per_electron", "dwell.completion"},
+	TimeTravel:       {"move_speed_nm_per_s", "settle_s"},
+	TimeModeSwitch:   {"mode_switch_s"},
+	TimeRegistration: {"drift.registration_s"},
+	TimeVerification: {"drift.verification_s"},
 }
 
 // checkFiniteTime returns an error naming the profile fields behind the
@@ -74,21 +64,20 @@ func checkFiniteTime(b Breakdown) error {
 	if finite(b.Total()) {
 		return nil
 	}
-	parts := breakdownParts(b)
 	var bad []string
-	for _, p := range parts {
-		if !finite(p.s) {
-			bad = append(bad, fmt.Sprintf("%s (%v s; from %s)", p.name, p.s, strings.Join(p.fields, ", ")))
+	for _, k := range TimeKinds {
+		if s := b.Seconds(k); !finite(s) {
+			bad = append(bad, fmt.Sprintf("%s (%v s; from %s)", k, s, strings.Join(timeSources[k], ", ")))
 		}
 	}
 	if len(bad) == 0 {
-		largest := parts[0]
-		for _, p := range parts[1:] {
-			if p.s > largest.s {
-				largest = p
+		largest := TimeKinds[0]
+		for _, k := range TimeKinds[1:] {
+			if b.Seconds(k) > b.Seconds(largest) {
+				largest = k
 			}
 		}
-		bad = append(bad, fmt.Sprintf("%s (%.3g s; from %s)", largest.name, largest.s, strings.Join(largest.fields, ", ")))
+		bad = append(bad, fmt.Sprintf("%s (%.3g s; from %s)", largest, b.Seconds(largest), strings.Join(timeSources[largest], ", ")))
 	}
 	return fmt.Errorf("planner: the write time is not a finite number of seconds: %s; the profile's values there are beyond any instrument", strings.Join(bad, "; "))
 }

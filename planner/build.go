@@ -7,6 +7,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 	"dimerpath/planner/route"
@@ -56,7 +57,7 @@ func (o *Options) stage(name string) {
 // strokes, proves their coverage, orders them with package route, splits
 // the writing order into drift-safe segments, lays out the timeline and
 // estimates its spread and the dopant yield. It returns ctx.Err() when
-// cancelled, a *ProfileError for an invalid profile, and a *LimitError
+// cancelled, a *jsonfile.Error for an invalid profile, and a *LimitError
 // when the plan would need a value beyond prof.Limits. It never panics: a
 // broken invariant of its own, or any panic on the way, comes back as an
 // *InternalError (errors.Is(err, ErrInternal)).
@@ -89,11 +90,16 @@ func (b *builder) build() (*Plan, error) {
 	if err := prof.checkField(b.d.Field.WidthNM, b.d.Field.HeightNM); err != nil {
 		return nil, err
 	}
+	if err := b.checkRaster(); err != nil {
+		return nil, err
+	}
 	if err := b.ctx.Err(); err != nil {
 		return nil, err
 	}
 	b.gen = newStrokeGen(lay.Surface, prof)
-	b.regionWork()
+	if err := b.regionWork(); err != nil {
+		return nil, err
+	}
 
 	b.opt.stage("modes")
 	mc := &modeChooser{g: b.gen, prof: prof, keepOut: lay.Rules.FEKeepOutNM, regions: b.regions, feCache: map[*lattice.SiteSet][]Stroke{}}
@@ -107,12 +113,17 @@ func (b *builder) build() (*Plan, error) {
 
 	b.opt.stage("strokes")
 	windows := b.makeStrokes()
+	if err := checkStrokes(float64(len(b.strokes)), "one or more per run of sites and per FE serpentine; split the design"); err != nil {
+		return nil, err
+	}
 	use := b.modesUsed()
 	if err := prof.CheckLimits(&use); err != nil {
 		return nil, err
 	}
 	b.fiducials()
-	b.splitLong()
+	if err := b.splitLong(); err != nil {
+		return nil, err
+	}
 	for i := range b.strokes {
 		b.strokes[i].ID = i
 	}
@@ -149,6 +160,12 @@ func (b *builder) build() (*Plan, error) {
 		st := b.strokes[jobs[j].stroke]
 		b.warnings = append(b.warnings, fmt.Sprintf("stroke %d (region %q) takes longer than its drift budget of %.3g s even right after a registration: expect drift beyond ±%g nm",
 			st.ID, st.Region, jobs[j].budgetS, st.ToleranceNM))
+	}
+	// A timeline holds a write or dwell per stroke, a move before each,
+	// and a registration, a switch and a verification per segment.
+	if n := 2*len(b.strokes) + 4*len(starts) + 2; n > MaxActions {
+		return nil, &CountError{What: "actions of the timeline", Count: float64(n), Max: MaxActions,
+			Cause: fmt.Sprintf("%d strokes in %d segments", len(b.strokes), len(starts))}
 	}
 	tl := schedule(sg, starts, b.strokes, prof)
 	if err := checkFiniteTime(tl.breakdown); err != nil {
@@ -196,11 +213,11 @@ func (b *builder) build() (*Plan, error) {
 	}
 	plan.Yield = YieldOf(windows, b.opt.Seed)
 	for _, r := range b.regions {
-		req := string(r.requested)
+		req := r.requested
 		if req == "" {
-			req = string(design.ModeAuto)
+			req = design.ModeAuto
 		}
-		plan.Modes = append(plan.Modes, RegionMode{Region: r.name, Role: string(r.role), Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
+		plan.Modes = append(plan.Modes, RegionMode{Region: r.name, Role: r.role, Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
 	}
 	byHand, err := b.byHand(mc)
 	if err != nil {
@@ -214,9 +231,18 @@ func (b *builder) build() (*Plan, error) {
 	return plan, nil
 }
 
-// regionWork lays out every region of the variant.
-func (b *builder) regionWork() {
+// regionWork lays out every region of the variant, once their runs of
+// sites are known to be within MaxRuns.
+func (b *builder) regionWork() error {
 	rules := b.d.Rules
+	names := make([]string, len(b.lay.Regions))
+	sets := make([]*lattice.SiteSet, len(b.lay.Regions))
+	for i := range b.lay.Regions {
+		names[i], sets[i] = b.lay.Regions[i].Region.Name, b.lay.Regions[i].Sites
+	}
+	if err := checkRuns(names, sets); err != nil {
+		return err
+	}
 	for i := range b.lay.Regions {
 		rl := &b.lay.Regions[i]
 		r := rl.Region
@@ -251,6 +277,7 @@ func (b *builder) regionWork() {
 		}
 		b.regions = append(b.regions, rw)
 	}
+	return nil
 }
 
 // makeStrokes generates every region's strokes and returns the plan's
@@ -285,7 +312,7 @@ func (b *builder) makeStrokes() []Window {
 		if r.fePart != nil && !r.fePart.IsEmpty() {
 			ss := b.gen.feStrokes(r.name, r.fePart)
 			tol := r.tolFE
-			if r.mode == modeHybrid {
+			if r.mode == design.ModeHybrid {
 				tol = b.prof.ToleranceFENM // the fill's edge is inside the AP band
 			}
 			n := r.plainCount
@@ -332,7 +359,7 @@ func (b *builder) modesUsed() ModeUse {
 		switch {
 		case s.Kind == StrokeDwell:
 			u.Dwell = true
-		case s.Mode == FE:
+		case s.Mode == design.ModeFE:
 			u.FE = true
 		default:
 			u.AP = true
@@ -343,20 +370,24 @@ func (b *builder) modesUsed() ModeUse {
 
 func (b *builder) conditions(u ModeUse) []Conditions {
 	var cs []Conditions
+	line := func(mode design.Mode, kind StrokeKind) Conditions {
+		m, l := b.prof.modeOf(mode), b.prof.Line(mode)
+		return Conditions{Mode: mode, Kind: kind, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
+			SpeedNMPerS: m.Speed(), LineWidthNM: l.Width(), Passes: max(m.Passes, 1),
+			YieldPerElectron: l.Yield, SigmaNM: l.SigmaNM, ElectronsPerSite: ElectronsPerRowSite(m.LineDoseCPerCm) * float64(max(m.Passes, 1))}
+	}
 	if u.AP {
-		m := b.prof.AP
-		cs = append(cs, Conditions{Mode: AP, Kind: StrokeLine, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
-			SpeedNMPerS: m.Speed(), LineWidthNM: b.prof.Line(AP).Width(), Passes: max(m.Passes, 1)})
+		cs = append(cs, line(design.ModeAP, StrokeLine))
 	}
 	if u.Dwell {
 		d := b.prof.Dwell
-		cs = append(cs, Conditions{Mode: AP, Kind: StrokeDwell, BiasV: d.BiasV, CurrentA: d.CurrentA, Passes: 1,
-			DwellS: b.prof.DwellExpectedS(), DwellCapS: b.prof.DwellCapS()})
+		cs = append(cs, Conditions{Mode: design.ModeAP, Kind: StrokeDwell, BiasV: d.BiasV, CurrentA: d.CurrentA, Passes: 1,
+			DwellS: b.prof.DwellExpectedS(), DwellCapS: b.prof.DwellCapS(), YieldPerElectron: b.prof.DwellYield(), SigmaNM: d.SigmaNM})
 	}
 	if u.FE {
-		m := b.prof.FE
-		cs = append(cs, Conditions{Mode: FE, Kind: StrokeRaster, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
-			SpeedNMPerS: m.Speed(), LineWidthNM: b.prof.Line(FE).Width(), Passes: max(m.Passes, 1), PitchNM: b.prof.FEPitch()})
+		c := line(design.ModeFE, StrokeRaster)
+		c.PitchNM = b.prof.FEPitch()
+		cs = append(cs, c)
 	}
 	return cs
 }
@@ -377,9 +408,10 @@ func (b *builder) fiducials() {
 // splitLong cuts every stroke whose writing outlasts its drift budget,
 // less the approach from the nearest fiducial, into equal pieces that
 // each fit, so that a registration can fall between them.
-func (b *builder) splitLong() {
+func (b *builder) splitLong() error {
 	c := newCosts(&b.prof, b.fids)
 	var out []Stroke
+	pieces := float64(len(b.strokes))
 	for _, s := range b.strokes {
 		budget := DriftBudget(s.ToleranceNM, b.prof.Drift.RateNMPerMin)
 		if s.Kind == StrokeDwell || math.IsInf(budget, 1) || s.DurationS <= 0 {
@@ -405,7 +437,17 @@ func (b *builder) splitLong() {
 			out = append(out, s)
 			continue // reported by the segmenter as over budget
 		}
-		k := int(math.Ceil(s.DurationS / room))
+		kf := math.Ceil(s.DurationS / room)
+		if !(kf <= MaxPieces) {
+			return &CountError{What: fmt.Sprintf("pieces of a %s stroke of region %q cut at registrations", s.Kind, s.Region), Count: kf, Max: MaxPieces,
+				Cause: fmt.Sprintf("it takes %s s against a drift budget of %s s (tolerance ±%s nm at drift.rate_nm_per_min = %s) less %s s to reach it from a fiducial; %s",
+					jsonfile.Approx(s.DurationS), jsonfile.Approx(budget), jsonfile.Number(s.ToleranceNM), jsonfile.Number(b.prof.Drift.RateNMPerMin),
+					jsonfile.Approx(approach), speedCause(s.Mode, b.prof.modeOf(s.Mode)))}
+		}
+		if pieces += kf - 1; !(pieces <= MaxStrokes) {
+			return checkStrokes(pieces, "strokes longer than their drift budget are cut into pieces at registrations; "+speedCause(s.Mode, b.prof.modeOf(s.Mode)))
+		}
+		k := int(kf)
 		pieces := splitPath(s.Path, k)
 		b.warnings = append(b.warnings, fmt.Sprintf("a %s stroke of region %q takes %.0f s, longer than its %.0f s drift budget (±%g nm at %g nm/min): split into %d pieces at registrations",
 			s.Kind, s.Region, s.DurationS, budget, s.ToleranceNM, b.prof.Drift.RateNMPerMin, k))
@@ -419,6 +461,7 @@ func (b *builder) splitLong() {
 		}
 	}
 	b.strokes = out
+	return nil
 }
 
 // splitPath cuts a polyline into k pieces of equal length.
@@ -454,10 +497,10 @@ func (b *builder) coverageRegions() []CoverageRegion {
 
 // modeGroup returns the route group of a stroke: 0 for the mode written
 // first, 1 for the other.
-func (b *builder) modeGroup(m WriteMode) int {
-	first := AP
+func (b *builder) modeGroup(m design.Mode) int {
+	first := design.ModeAP
 	if b.prof.Order == OrderFEFirst {
-		first = FE
+		first = design.ModeFE
 	}
 	if m == first {
 		return 0
@@ -656,7 +699,7 @@ func (b *builder) byHand(mc *modeChooser) (float64, error) {
 		byRegion[s.Region] = append(byRegion[s.Region], s)
 	}
 	for _, r := range b.regions {
-		if r.mode == modeHybrid {
+		if r.mode == design.ModeHybrid {
 			var ss []Stroke
 			for _, s := range byRegion[r.name] {
 				if s.Window >= 0 {

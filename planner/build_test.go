@@ -7,6 +7,7 @@ import (
 	"reflect"
 	"testing"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice/design"
 )
 
@@ -141,9 +142,9 @@ func TestBuildRefusesBeyondLimits(t *testing.T) {
 	}
 	prof = DefaultProfile()
 	prof.MoveSpeedNMPerS = math.NaN()
-	var pe *ProfileError
+	var pe *jsonfile.Error
 	if _, err := buildVariant(context.Background(), d, "", prof, Options{}); !errors.As(err, &pe) {
-		t.Errorf("NaN move speed: %v, want a ProfileError", err)
+		t.Errorf("NaN move speed: %v, want a *jsonfile.Error", err)
 	}
 }
 
@@ -159,13 +160,13 @@ func TestModeChoice(t *testing.T) {
 	cases := []struct {
 		name   string
 		region design.Region
-		want   string
+		want   design.Mode
 	}{
-		{"narrow lead", design.Region{Name: "x", Role: design.RoleLead, Shapes: []design.Shape{rect(100, 100, 300, 106)}}, modeAP},
-		{"wide pad", design.Region{Name: "x", Role: design.RolePad, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, modeFE},
-		{"wide pad, tight tolerance", design.Region{Name: "x", Role: design.RolePad, ToleranceNM: 0.5, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, modeHybrid},
-		{"device", design.Region{Name: "x", Role: design.RoleDevice, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, modeAP},
-		{"windows", design.Region{Name: "x", Role: design.RoleOther, Shapes: []design.Shape{{Kind: design.ShapeWindow, Template: "P", Points: [][2]float64{{200, 200}}}}}, modeAP},
+		{"narrow lead", design.Region{Name: "x", Role: design.RoleLead, Shapes: []design.Shape{rect(100, 100, 300, 106)}}, design.ModeAP},
+		{"wide pad", design.Region{Name: "x", Role: design.RolePad, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, design.ModeFE},
+		{"wide pad, tight tolerance", design.Region{Name: "x", Role: design.RolePad, ToleranceNM: 0.5, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, design.ModeHybrid},
+		{"device", design.Region{Name: "x", Role: design.RoleDevice, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, design.ModeAP},
+		{"windows", design.Region{Name: "x", Role: design.RoleOther, Shapes: []design.Shape{{Kind: design.ShapeWindow, Template: "P", Points: [][2]float64{{200, 200}}}}}, design.ModeAP},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -195,7 +196,7 @@ func TestModeKeepOut(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if m := p.Modes[1]; m.Mode != modeHybrid {
+	if m := p.Modes[1]; m.Mode != design.ModeHybrid {
 		t.Errorf("pad near an AP wire: %q (%s), want hybrid", m.Mode, m.Reason)
 	}
 	// Drawn FE there is honoured, with a warning.
@@ -204,7 +205,7 @@ func TestModeKeepOut(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if p.Modes[1].Mode != modeFE || len(p.Warnings) == 0 {
+	if p.Modes[1].Mode != design.ModeFE || len(p.Warnings) == 0 {
 		t.Errorf("drawn FE: mode %q, warnings %v", p.Modes[1].Mode, p.Warnings)
 	}
 }

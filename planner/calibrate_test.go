@@ -12,6 +12,8 @@ import (
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat"
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"dimerpath/lattice/design"
 )
 
 // truth is a known exposure model for synthetic test lines.
@@ -376,7 +378,7 @@ func TestCalibrateWritesModel(t *testing.T) {
 	}
 	// Lines between the regimes cannot be attributed to either.
 	mid := truth{sigma: 0.5, yield: 1e-6, bias: 5.8, current: 2e-9, order: 1, decadeV: 1}.lines(doseRange(1e-4, 1e-3, 5), [][2]float64{{5.8, 2e-9}}, rng)
-	if _, _, err := Calibrate(DefaultProfile(), mid, AP, "lab.csv"); err == nil || !strings.Contains(err.Error(), "between the vibrational") {
+	if _, _, err := Calibrate(DefaultProfile(), mid, design.ModeAP, "lab.csv"); err == nil || !strings.Contains(err.Error(), "between the vibrational") {
 		t.Errorf("Calibrate(5.8 V) = %v, want refused", err)
 	}
 }
@@ -387,7 +389,7 @@ func TestReadMeasurements(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(ms) != 3 || ms[0].CurrentA != 2e-9 || ms[2].Mode != FE || ms[1].Line != 5 || ms[1].Direction != DirectionAcross {
+	if len(ms) != 3 || ms[0].CurrentA != 2e-9 || ms[2].Mode != design.ModeFE || ms[1].Line != 5 || ms[1].Direction != DirectionAcross {
 		t.Fatalf("ReadMeasurements = %+v", ms)
 	}
 	// Dose I/v: 2 nA / 10 nm/s = 2 mC/cm (Schmucker 2012 example).

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 
+	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -79,9 +80,11 @@ func fitCensored(x [][]float64, y []float64, censored []bool) (censoredFit, erro
 		d := y[i] - mat.Dot(xu.RowView(r), &beta)
 		rss += d * d
 	}
-	if fit.Censored == 0 {
-		fit.Beta = beta.RawVector().Data
-		fit.S = math.Sqrt(rss / float64(fit.DOF))
+	// leastSquares returns the least-squares fit of the uncensored rows
+	// with dof degrees of freedom.
+	leastSquares := func(dof int) (censoredFit, error) {
+		fit.Beta, fit.DOF = beta.RawVector().Data, dof
+		fit.S = math.Sqrt(rss / float64(dof))
 		var xtx mat.SymDense
 		xtx.SymOuterK(1, xu.T())
 		var inv mat.SymDense
@@ -91,6 +94,28 @@ func fitCensored(x [][]float64, y []float64, censored []bool) (censoredFit, erro
 		inv.ScaleSym(fit.S*fit.S, &inv)
 		fit.Cov = &inv
 		return fit, nil
+	}
+	if fit.Censored == 0 {
+		return leastSquares(fit.DOF)
+	}
+	if nu := len(unc); nu > p {
+		// Censored rows predicted far below 0 by the uncensored rows'
+		// least-squares fit (8 residual SDs: Φ(−8) ≈ 6·10⁻¹⁶) add nothing
+		// to the likelihood, its gradient or its curvature: the fit is the
+		// least-squares fit of the uncensored rows, with their degrees of
+		// freedom. (With nearly exact data, Newton's method in h = 1/s
+		// would run into a singular information matrix.)
+		su := math.Sqrt(rss / float64(nu-p))
+		far := true
+		for i := range x {
+			if censored[i] && floats.Dot(x[i], beta.RawVector().Data) > -8*su {
+				far = false
+				break
+			}
+		}
+		if far {
+			return leastSquares(nu - p)
+		}
 	}
 	if rss <= 0 {
 		// The uncensored rows fit exactly: start from a small noise.

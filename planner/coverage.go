@@ -9,6 +9,7 @@ import (
 	"github.com/golang/geo/r1"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 )
 
 // CoverageRegion is one region as the coverage check sees it: its name
@@ -136,7 +137,7 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 	}
 	ck.pieces = make([][]piece, len(surf.Terraces))
 	ck.region = make([]int, len(strokes))
-	lines := map[WriteMode]LineModel{AP: prof.Line(AP), FE: prof.Line(FE)}
+	lines := map[design.Mode]LineModel{design.ModeAP: prof.Line(design.ModeAP), design.ModeFE: prof.Line(design.ModeFE)}
 	spurious := prof.AP.SpuriousPer100NM / 100
 	for i := range strokes {
 		st := &strokes[i]
@@ -163,7 +164,7 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 		}
 		l := lines[st.Mode]
 		amp := l.PassPeak * float64(max(st.Passes, 1))
-		if st.Mode == AP && spurious > 0 {
+		if st.Mode == design.ModeAP && spurious > 0 {
 			// The background of spurious dangling bonds along AP lines.
 			n := spurious * st.LengthNM * float64(max(st.Passes, 1))
 			ck.stray[i] += n
@@ -919,7 +920,7 @@ func (ck *coverageCheck) advice(who int32) string {
 	switch {
 	case st.Kind == StrokeDwell:
 		return what + " reaches it: a dwell's footprint (dwell.sigma_nm) clears its neighbours; keep them inside the region or leave them a dimer away"
-	case st.Mode == FE:
+	case st.Mode == design.ModeFE:
 		return what + fmt.Sprintf(" reaches it beyond the %g nm FE edge allowance: keep it farther from the region, or write the region's edge in AP (hybrid)", ck.prof.FE.EdgeAllowanceNM)
 	}
 	return what + " reaches it: an AP line's footprint (ap.sigma_nm) clears the next site along or across the row; keep that site inside the region, end the region on whole dimers, or lower ap.line_dose_c_per_cm"

@@ -10,6 +10,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 )
 
 // The edge allowance: a site outside every region may clear when it lies
@@ -116,7 +117,7 @@ func (ck *coverageCheck) siteTolerated(site lattice.Site, who int32, active []*p
 
 // allowance returns the edge allowance of stroke si's mode (nm).
 func (ck *coverageCheck) allowance(si int32) float64 {
-	if ck.strokes[si].Mode == FE {
+	if ck.strokes[si].Mode == design.ModeFE {
 		return ck.prof.FE.EdgeAllowanceNM
 	}
 	return ck.prof.AP.EdgeAllowanceNM

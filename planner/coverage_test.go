@@ -183,7 +183,7 @@ func TestCoverageCatchesBrokenStrokes(t *testing.T) {
 			return s
 		}, true, true},
 		{"a dwell on a site outside every region", func(s []Stroke) []Stroke {
-			return append(s, Stroke{Region: "island", Mode: AP, Kind: StrokeDwell, Path: []r2.Point{lay.Surface.Position(siteAt(lay, 5, 5))}, Passes: 1})
+			return append(s, Stroke{Region: "island", Mode: design.ModeAP, Kind: StrokeDwell, Path: []r2.Point{lay.Surface.Position(siteAt(lay, 5, 5))}, Passes: 1})
 		}, false, true},
 	}
 	for _, c := range cases {

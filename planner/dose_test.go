@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 
 	"gonum.org/v1/gonum/stat/distuv"
 )
@@ -94,7 +95,7 @@ func TestLineWidthIsHalfProbabilityContour(t *testing.T) {
 	// width from the centre with probability exactly ½, computed here from
 	// the along-and-across footprint of one straight piece.
 	p := DefaultProfile()
-	for _, mode := range []WriteMode{AP, FE} {
+	for _, mode := range []design.Mode{design.ModeAP, design.ModeFE} {
 		l := p.Line(mode)
 		w := l.Width()
 		x := lineExposure(l.Peak, l.SigmaNM, 1e6, 5e5, w/2)
@@ -113,7 +114,7 @@ func TestFEPitchFillsBetweenLines(t *testing.T) {
 	// each summed from its straight piece, give the site midway between
 	// two of them the fill completion.
 	p := DefaultProfile()
-	l, pitch := p.Line(FE), p.FEPitch()
+	l, pitch := p.Line(design.ModeFE), p.FEPitch()
 	x := 0.0
 	for k := -20; k <= 20; k++ {
 		x += lineExposure(l.Peak, l.SigmaNM, 1e6, 5e5, math.Abs((float64(k)+0.5)*pitch))
@@ -121,7 +122,7 @@ func TestFEPitchFillsBetweenLines(t *testing.T) {
 	if got := ClearProbability(x); math.Abs(got-p.FE.FillCompletion) > 1e-9 {
 		t.Errorf("midway between FE lines %.3f nm apart: P(clear) = %v, want %v", pitch, got, p.FE.FillCompletion)
 	}
-	if got, want := p.ArealRate(FE), p.FE.Speed()*pitch; math.Abs(got-want) > 1e-9*want {
+	if got, want := p.ArealRate(design.ModeFE), p.FE.Speed()*pitch; math.Abs(got-want) > 1e-9*want {
 		t.Errorf("FE areal rate %v, want speed × pitch %v", got, want)
 	}
 }
@@ -149,15 +150,15 @@ func TestPublishedWorkingPoints(t *testing.T) {
 	if own < 0.99 || next > 0.01 {
 		t.Errorf("Schmucker's line clears its own row with %v and the next row with %v, want ≥ 0.99 and ≤ 0.01: one row wide", own, next)
 	}
-	t.Logf("Schmucker 2012, 4 V 2 nA 2 mC/cm: own row P = %.5f, next row P = %.2g, width (P = ½) %.2f nm, %.3g electrons per row site", own, next, p.Line(AP).Width(), ElectronsPerRowSite(p.AP.LineDoseCPerCm))
+	t.Logf("Schmucker 2012, 4 V 2 nA 2 mC/cm: own row P = %.5f, next row P = %.2g, width (P = ½) %.2f nm, %.3g electrons per row site", own, next, p.Line(design.ModeAP).Width(), ElectronsPerRowSite(p.AP.LineDoseCPerCm))
 	// Rudolph 2014, FE: ~10⁴ nm²/s with the fill cleared.
-	fe := p.ArealRate(FE)
+	fe := p.ArealRate(design.ModeFE)
 	if fe < 0.8e4 || fe > 1.25e4 {
 		t.Errorf("FE areal rate %.0f nm²/s, want about 10⁴ (Rudolph 2014)", fe)
 	}
 	t.Logf("Rudolph 2014, FE: %.0f nm²/s (pitch %.2f nm) against ~10⁴ nm²/s", fe, p.FEPitch())
 	// Rudolph 2014, AP: the defaults follow Schmucker instead, 13 × below.
-	ap := p.ArealRate(AP)
+	ap := p.ArealRate(design.ModeAP)
 	if ratio := 1e2 / ap; ratio < 10 || ratio > 16 {
 		t.Errorf("AP areal rate %.2f nm²/s is %.1f× below Rudolph's 10², want the 13× the Schmucker-based default gives", ap, ratio)
 	}

@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 )
 
 // The exposure model: how likely an H site is to be cleared by the tip.
@@ -133,7 +134,7 @@ func ElectronsPerRowSite(lineDoseCPerCm float64) float64 {
 // an infinitely long line of the mode's passes gives a site at
 // perpendicular distance d the exposure Peak·exp(−d²/2σ²).
 type LineModel struct {
-	Mode WriteMode `json:"mode"`
+	Mode design.Mode `json:"mode"`
 	// Yield is Y at the mode's bias and current (H per electron).
 	Yield   float64 `json:"yield_per_electron"`
 	SigmaNM float64 `json:"sigma_nm"`
@@ -158,7 +159,7 @@ func dotAmplitude(yield, chargeC, sigma float64) float64 {
 }
 
 // Line returns the line model of mode (AP or FE).
-func (p *Profile) Line(mode WriteMode) LineModel {
+func (p *Profile) Line(mode design.Mode) LineModel {
 	m := p.modeOf(mode)
 	y := p.Exposure.Yield(m.BiasV, m.CurrentA)
 	passes := max(m.Passes, 1)
@@ -188,8 +189,8 @@ func (l LineModel) Width() float64 { return 2 * l.Reach(math.Ln2) }
 // ArealRate returns the area per second a mode clears: for AP one dimer
 // row per line (speed × row spacing), for FE the raster (speed × pitch
 // / passes).
-func (p *Profile) ArealRate(mode WriteMode) float64 {
-	if mode == FE {
+func (p *Profile) ArealRate(mode design.Mode) float64 {
+	if mode == design.ModeFE {
 		return p.FE.Speed() * p.FEPitch() / float64(max(p.FE.Passes, 1))
 	}
 	return p.AP.Speed() * lattice.RowSpacing / float64(max(p.AP.Passes, 1))
@@ -200,7 +201,7 @@ func (p *Profile) ArealRate(mode WriteMode) float64 {
 // exposure that clears it with probability FE.FillCompletion. The least
 // exposure lies midway between two lines; lines further out add to it.
 func (p *Profile) FEPitch() float64 {
-	l := p.Line(FE)
+	l := p.Line(design.ModeFE)
 	target := exposureFor(p.FE.FillCompletion)
 	if !(l.Peak > 0) || !(l.SigmaNM > 0) || math.IsNaN(target) {
 		return 0
@@ -237,12 +238,12 @@ func (p *Profile) FEPitch() float64 {
 
 // OwnRowExposure returns the exposure of the H sites of the row an AP
 // line runs along (HOffset from its centre line), all passes.
-func (p *Profile) OwnRowExposure() float64 { return p.Line(AP).At(lattice.HOffset) }
+func (p *Profile) OwnRowExposure() float64 { return p.Line(design.ModeAP).At(lattice.HOffset) }
 
 // NextRowExposure returns the exposure of the nearest H sites of the
 // neighbouring row (RowSpacing − HOffset from the line), all passes.
 func (p *Profile) NextRowExposure() float64 {
-	return p.Line(AP).At(lattice.RowSpacing - lattice.HOffset)
+	return p.Line(design.ModeAP).At(lattice.RowSpacing - lattice.HOffset)
 }
 
 // DwellYield returns Y at the dwell's bias and current.

@@ -4,6 +4,8 @@ import (
 	"math"
 
 	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice/design"
 )
 
 // exposureIndex sums the exposure (see ExposureModel) of every stroke at
@@ -68,7 +70,7 @@ func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64, p
 			}
 		}
 	}
-	lines := map[WriteMode]LineModel{AP: prof.Line(AP), FE: prof.Line(FE)}
+	lines := map[design.Mode]LineModel{design.ModeAP: prof.Line(design.ModeAP), design.ModeFE: prof.Line(design.ModeFE)}
 	dotReach := prof.Dwell.SigmaNM * math.Sqrt(2*math.Log(prof.Dwell.Completion/exposureNeglect))
 	for si := range strokes {
 		st := &strokes[si]

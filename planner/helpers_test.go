@@ -157,7 +157,7 @@ func bruteCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []St
 					tolerated := false
 					for _, si := range dosing {
 						allow := prof.AP.EdgeAllowanceNM
-						if strokes[si].Mode == FE {
+						if strokes[si].Mode == design.ModeFE {
 							allow = prof.FE.EdgeAllowanceNM
 						}
 						if ri, ok := regionOf[strokes[si].Region]; ok && allow > 0 && within(ri, q, allow) {

@@ -1,17 +1,16 @@
 package planner
 
 import (
-	"bytes"
-	"encoding/json"
 	"errors"
 	"fmt"
-	"io"
 	"math"
-	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 
 	"dimerpath/internal/atomicfile"
+	"dimerpath/internal/jsonfile"
+	"dimerpath/lattice/design"
 )
 
 // ProfileFormat and ProfileVersion identify instrument-profile files.
@@ -105,6 +104,11 @@ type ModeProfile struct {
 	// probability below the profile's StrayLimit, and the FE fill insets
 	// its paths so that it does.
 	EdgeAllowanceNM float64 `json:"edge_allowance_nm"`
+	// V1Width and V1Overlap are the version 1 fields "width" and
+	// "overlap", read from version 1 files and converted by ParseProfile
+	// (profile_v1.go); nil in every version 2 profile.
+	V1Width   *V1Width `json:"width,omitempty"`
+	V1Overlap *float64 `json:"overlap,omitempty"`
 }
 
 // DwellProfile describes single-point depassivation by parking the tip
@@ -117,6 +121,9 @@ type DwellProfile struct {
 	// Completion is the completion probability the planned dwell time
 	// reaches (default 0.99): the dwell is capped there.
 	Completion float64 `json:"completion"`
+	// V1Yield is the version 1 field "yield_per_electron" (see
+	// ModeProfile.V1Width); nil in every version 2 profile.
+	V1Yield *float64 `json:"yield_per_electron,omitempty"`
 }
 
 // DriftProfile describes thermal drift and the cost of correcting it.
@@ -332,50 +339,52 @@ func Preset(name string) (Profile, error) {
 	return Profile{}, fmt.Errorf("planner: unknown profile preset %q (known: %s)", name, strings.Join(Presets(), ", "))
 }
 
-// FieldProblem is one bad field of a profile: its JSON path, its value
-// and what is wrong.
-type FieldProblem struct {
-	Path    string
-	Value   any
-	Problem string
-}
-
-func (p FieldProblem) String() string {
-	return fmt.Sprintf("%s = %v: %s", p.Path, p.Value, p.Problem)
-}
-
-// ErrInvalidProfile is wrapped by every *ProfileError.
+// ErrInvalidProfile is wrapped by the *jsonfile.Error of every profile
+// that cannot be read or does not validate.
 var ErrInvalidProfile = errors.New("invalid instrument profile")
 
-// ProfileError lists every bad field of a profile. File is empty for a
-// profile that did not come from a file.
-type ProfileError struct {
-	File     string
-	Problems []FieldProblem
-}
+// MaxProfileBytes bounds a profile file (1 MiB: a profile is a few
+// hundred bytes); a larger file is refused before it is read.
+const MaxProfileBytes = 1 << 20
 
-func (e *ProfileError) Error() string {
-	var b strings.Builder
-	if e.File != "" {
-		b.WriteString(e.File)
-		b.WriteString(": ")
-	}
-	fmt.Fprintf(&b, "%s (%d problem", ErrInvalidProfile, len(e.Problems))
-	if len(e.Problems) != 1 {
-		b.WriteString("s")
-	}
-	b.WriteString(")")
-	for _, p := range e.Problems {
-		b.WriteString("\n  ")
-		b.WriteString(p.String())
-	}
-	return b.String()
-}
+// Plausible ranges of the profile's fields. A value outside one is a
+// typo, not an instrument (issue 16): a settle of more than an hour, a
+// move slower than 1 pm/s, a current above 1 µA or a bias beyond ±100 V.
+// The ranges are wide on purpose (common practice: several orders of
+// magnitude around the published working points cited in
+// DefaultProfile), and with them every time the planner derives is
+// finite.
+const (
+	MaxBiasV            = 100   // |bias|, V
+	MinCurrentA         = 1e-15 // 1 fA
+	MaxCurrentA         = 1e-6  // 1 µA
+	MinLineDoseCPerCm   = 1e-9  // 1 nC/cm
+	MaxLineDoseCPerCm   = 0.1   // 100 mC/cm
+	MinSpeedNMPerS      = 1e-3  // 1 pm/s, writing or moving
+	MaxSpeedNMPerS      = 1e7   // 1 cm/s
+	MinSigmaNM          = 0.01  // footprint σ
+	MaxSigmaNM          = 100
+	MinFillCompletion   = 0.5 // FE raster: the sites between lines clear at least half the time
+	MaxFillCompletion   = 0.99999999
+	MaxSpuriousPer100NM = 1000
+	MaxOrder            = 50    // the vibrational regime's n
+	MinDecadeV          = 0.05  // bias step per tenfold yield
+	MaxAllowanceNM      = 100   // edge allowance, hybrid band
+	MinYield            = 1e-15 // H atoms per electron
+	MaxSettleS          = 3600  // settle after a move
+	MaxStepS            = 86400 // a mode switch, a registration, a verification image
+	MaxDwellS           = 3600  // the planned (capped) dwell on one site
+	MaxDriftNMPerMin    = 100   // drift rate and its SD
+	MinToleranceNM      = 1e-3  // placement tolerance, ±nm
+	MaxToleranceNM      = 1000
+	MaxScanFieldNM      = 1e5 // 100 µm
+	maxPasses           = 1000
+)
 
-func (e *ProfileError) Unwrap() error { return ErrInvalidProfile }
-
-// Validate checks every field and returns a *ProfileError listing each
-// bad one with its JSON path and value, or nil.
+// Validate checks every field against its plausible range and the
+// relations between fields, and returns a *jsonfile.Error (wrapping
+// ErrInvalidProfile) listing each bad one with its JSON path, its value
+// and the range, or nil.
 func (p Profile) Validate() error {
 	var v validator
 	if p.Format != ProfileFormat {
@@ -389,114 +398,118 @@ func (p Profile) Validate() error {
 			v.add("base", p.Base, fmt.Sprintf("must name a preset (%s) or be empty", strings.Join(Presets(), ", ")))
 		}
 	}
-	v.exposure(p.Exposure)
+	p.v1Problems(&v)
+	model := v.exposure(p.Exposure)
 	v.mode("ap", p.AP, false)
 	v.mode("fe", p.FE, true)
 
-	v.nonZero("dwell.bias_v", p.Dwell.BiasV)
-	v.positive("dwell.current_a", p.Dwell.CurrentA)
-	v.footprint("dwell.sigma_nm", p.Dwell.SigmaNM)
-	if c := p.Dwell.Completion; !(c > 0 && c < 1) {
-		v.add("dwell.completion", c, "must lie strictly between 0 and 1")
+	v.bias("dwell.bias_v", p.Dwell.BiasV)
+	v.current("dwell.current_a", p.Dwell.CurrentA)
+	v.within("dwell.sigma_nm", p.Dwell.SigmaNM, MinSigmaNM, MaxSigmaNM, "nm")
+	if x := p.Dwell.Completion; !(x > 0 && x < 1) {
+		v.add("dwell.completion", x, "must lie strictly between 0 and 1")
 	}
 	if l := p.StrayLimit; !(l > 0 && l < 1) {
 		v.add("stray_limit", l, "must lie strictly between 0 and 1")
 	}
-	if len(v.problems) == 0 {
+	if model && v.Len() == 0 {
 		// Only a valid model can say whether the modes clear anything.
 		v.clears(p)
 	}
 
-	v.positive("move_speed_nm_per_s", p.MoveSpeedNMPerS)
-	v.nonNegative("settle_s", p.SettleS)
-	v.nonNegative("mode_switch_s", p.ModeSwitchS)
+	v.within("move_speed_nm_per_s", p.MoveSpeedNMPerS, MinSpeedNMPerS, MaxSpeedNMPerS, "nm/s")
+	v.within("settle_s", p.SettleS, 0, MaxSettleS, "s")
+	v.within("mode_switch_s", p.ModeSwitchS, 0, MaxStepS, "s")
 
-	v.nonNegative("drift.rate_nm_per_min", p.Drift.RateNMPerMin)
-	v.nonNegative("drift.rate_sd_nm_per_min", p.Drift.RateSDNMPerMin)
-	v.nonNegative("drift.registration_s", p.Drift.RegistrationS)
-	v.nonNegative("drift.verification_s", p.Drift.VerificationS)
+	v.within("drift.rate_nm_per_min", p.Drift.RateNMPerMin, 0, MaxDriftNMPerMin, "nm/min")
+	v.within("drift.rate_sd_nm_per_min", p.Drift.RateSDNMPerMin, 0, MaxDriftNMPerMin, "nm/min")
+	v.within("drift.registration_s", p.Drift.RegistrationS, 0, MaxStepS, "s")
+	v.within("drift.verification_s", p.Drift.VerificationS, 0, MaxStepS, "s")
 
-	v.positive("tolerance_ap_nm", p.ToleranceAPNM)
-	v.positive("tolerance_fe_nm", p.ToleranceFENM)
+	v.within("tolerance_ap_nm", p.ToleranceAPNM, MinToleranceNM, MaxToleranceNM, "nm")
+	v.within("tolerance_fe_nm", p.ToleranceFENM, MinToleranceNM, MaxToleranceNM, "nm")
 	if p.Order != OrderAPFirst && p.Order != OrderFEFirst {
 		v.add("order", p.Order, fmt.Sprintf("must be %q or %q", OrderAPFirst, OrderFEFirst))
 	}
 	if p.WindowStyle != WindowStyleLine && p.WindowStyle != WindowStyleDwell {
 		v.add("window_style", p.WindowStyle, fmt.Sprintf("must be %q or %q", WindowStyleLine, WindowStyleDwell))
 	}
-	if v.positive("hybrid_band_nm", p.HybridBandNM) && finite(p.FE.EdgeAllowanceNM) && p.HybridBandNM < p.FE.EdgeAllowanceNM {
-		v.add("hybrid_band_nm", p.HybridBandNM, fmt.Sprintf("must be at least fe.edge_allowance_nm (%g nm) so the FE fill stays inside the region", p.FE.EdgeAllowanceNM))
+	if v.positiveUpTo("hybrid_band_nm", p.HybridBandNM, MaxAllowanceNM, "nm") && finite(p.FE.EdgeAllowanceNM) && p.HybridBandNM < p.FE.EdgeAllowanceNM {
+		v.add("hybrid_band_nm", p.HybridBandNM, fmt.Sprintf("must be at least fe.edge_allowance_nm (%s nm) so the FE fill stays inside the region", jsonfile.Number(p.FE.EdgeAllowanceNM)))
 	}
 
-	v.positive("limits.max_bias_v", p.Limits.MaxBiasV)
-	v.positive("limits.max_current_a", p.Limits.MaxCurrentA)
-	v.positive("limits.scan_field_nm", p.Limits.ScanFieldNM)
+	v.positiveUpTo("limits.max_bias_v", p.Limits.MaxBiasV, MaxBiasV, "V")
+	v.positiveUpTo("limits.max_current_a", p.Limits.MaxCurrentA, MaxCurrentA, "A")
+	v.positiveUpTo("limits.scan_field_nm", p.Limits.ScanFieldNM, MaxScanFieldNM, "nm")
 	if p.Limits.MaxSpeedNMPS != 0 {
-		v.positive("limits.max_speed_nm_per_s", p.Limits.MaxSpeedNMPS)
+		v.within("limits.max_speed_nm_per_s", p.Limits.MaxSpeedNMPS, MinSpeedNMPerS, MaxSpeedNMPerS, "nm/s (or 0 for no limit)")
 	}
-	if len(v.problems) == 0 {
-		return nil
-	}
-	return &ProfileError{Problems: v.problems}
+	return v.Err("", ErrInvalidProfile)
 }
 
-type validator struct{ problems []FieldProblem }
+// validator collects a profile's problems, each with its JSON path, the
+// bad value and what is wrong.
+type validator struct{ jsonfile.Problems }
 
 func (v *validator) add(path string, value any, problem string) {
-	v.problems = append(v.problems, FieldProblem{Path: path, Value: value, Problem: problem})
+	v.AddValue(path, value, "%s", problem)
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
-// positive reports whether x is finite and > 0, recording a problem if not.
-func (v *validator) positive(path string, x float64) bool {
-	if !finite(x) || x <= 0 {
-		v.add(path, x, "must be a positive finite number")
-		return false
+// within reports whether lo <= x <= hi, recording a problem that gives
+// the range if not (NaN and infinities are outside every range).
+func (v *validator) within(path string, x, lo, hi float64, unit string) bool {
+	if x >= lo && x <= hi {
+		return true
 	}
-	return true
+	v.add(path, x, fmt.Sprintf("must be from %s to %s %s", jsonfile.Number(lo), jsonfile.Number(hi), unit))
+	return false
 }
 
-func (v *validator) nonNegative(path string, x float64) bool {
-	if !finite(x) || x < 0 {
-		v.add(path, x, "must be a finite number, zero or more")
-		return false
+// positiveUpTo reports whether 0 < x <= hi, recording a problem if not.
+func (v *validator) positiveUpTo(path string, x, hi float64, unit string) bool {
+	if x > 0 && x <= hi {
+		return true
 	}
-	return true
+	v.add(path, x, fmt.Sprintf("must be more than 0 and at most %s %s", jsonfile.Number(hi), unit))
+	return false
 }
 
-func (v *validator) nonZero(path string, x float64) bool {
-	if !finite(x) || x == 0 {
-		v.add(path, x, "must be a non-zero finite number")
-		return false
+func (v *validator) bias(path string, x float64) bool {
+	if x != 0 && math.Abs(x) <= MaxBiasV {
+		return true
 	}
-	return true
+	v.add(path, x, fmt.Sprintf("must be non-zero and within ±%d V", MaxBiasV))
+	return false
 }
 
-// Footprints narrower than this are below any tip's physics and make the
-// exposure sums ill-conditioned; wider than this they are not a tip.
-const (
-	minSigmaNM = 0.01
-	maxSigmaNM = 1000.0
-)
-
-func (v *validator) footprint(path string, sigma float64) {
-	if v.positive(path, sigma) && (sigma < minSigmaNM || sigma > maxSigmaNM) {
-		v.add(path, sigma, fmt.Sprintf("must lie within %g..%g nm", minSigmaNM, maxSigmaNM))
+func (v *validator) current(path string, x float64) bool {
+	if x >= MinCurrentA && x <= MaxCurrentA {
+		return true
 	}
+	v.add(path, x, "must be from 1 fA to 1 µA (1e-15 to 1e-06 A)")
+	return false
 }
 
 func (v *validator) mode(prefix string, m ModeProfile, fe bool) {
-	v.nonZero(prefix+".bias_v", m.BiasV)
-	v.positive(prefix+".current_a", m.CurrentA)
-	v.positive(prefix+".line_dose_c_per_cm", m.LineDoseCPerCm)
-	if m.Passes < 1 || m.Passes > 1000 {
-		v.add(prefix+".passes", m.Passes, "must be 1..1000")
+	v.bias(prefix+".bias_v", m.BiasV)
+	cur := v.current(prefix+".current_a", m.CurrentA)
+	dose := v.within(prefix+".line_dose_c_per_cm", m.LineDoseCPerCm, MinLineDoseCPerCm, MaxLineDoseCPerCm, "C/cm")
+	if cur && dose {
+		if sp := m.Speed(); !(sp >= MinSpeedNMPerS && sp <= MaxSpeedNMPerS) {
+			v.add(prefix+".line_dose_c_per_cm", m.LineDoseCPerCm, fmt.Sprintf(
+				"with %s.current_a = %s A the tip would write at %s nm/s; a writing speed must be from %s to %s nm/s",
+				prefix, jsonfile.Number(m.CurrentA), jsonfile.Approx(sp), jsonfile.Number(MinSpeedNMPerS), jsonfile.Number(MaxSpeedNMPerS)))
+		}
 	}
-	v.footprint(prefix+".sigma_nm", m.SigmaNM)
+	if m.Passes < 1 || m.Passes > maxPasses {
+		v.add(prefix+".passes", m.Passes, fmt.Sprintf("must be 1..%d", maxPasses))
+	}
+	v.within(prefix+".sigma_nm", m.SigmaNM, MinSigmaNM, MaxSigmaNM, "nm")
 	if fe {
-		if c := m.FillCompletion; !(c > 0 && c < 1) {
-			v.add(prefix+".fill_completion", c, "must lie strictly between 0 and 1")
+		if c := m.FillCompletion; !(c >= MinFillCompletion && c <= MaxFillCompletion) {
+			v.add(prefix+".fill_completion", c, fmt.Sprintf("must be from %g to %g", MinFillCompletion, MaxFillCompletion))
 		}
 		if m.SpuriousPer100NM != 0 {
 			v.add(prefix+".spurious_per_100nm", m.SpuriousPer100NM, "applies to AP lines only; leave it 0")
@@ -505,177 +518,133 @@ func (v *validator) mode(prefix string, m ModeProfile, fe bool) {
 		if m.FillCompletion != 0 {
 			v.add(prefix+".fill_completion", m.FillCompletion, "applies to the FE raster only; leave it 0")
 		}
-		if x := m.SpuriousPer100NM; !finite(x) || x < 0 || x > 1000 {
-			v.add(prefix+".spurious_per_100nm", x, "must be a finite number from 0 to 1000")
-		}
+		v.within(prefix+".spurious_per_100nm", m.SpuriousPer100NM, 0, MaxSpuriousPer100NM, "per 100 nm")
 	}
-	v.nonNegative(prefix+".edge_allowance_nm", m.EdgeAllowanceNM)
+	v.within(prefix+".edge_allowance_nm", m.EdgeAllowanceNM, 0, MaxAllowanceNM, "nm")
 }
 
-func (v *validator) exposure(m ExposureModel) {
+// exposure checks the exposure model and reports whether it is valid.
+func (v *validator) exposure(m ExposureModel) bool {
+	n := v.Len()
 	vib, el := m.Vibrational, m.Electronic
-	for _, y := range []struct {
-		path string
-		val  float64
-	}{{"exposure.vibrational.yield_per_electron", vib.YieldPerElectron}, {"exposure.electronic.yield_per_electron", el.YieldPerElectron}} {
-		if v.positive(y.path, y.val) && y.val > 1 {
-			v.add(y.path, y.val, "must be at most 1 H atom per electron")
-		}
-	}
-	v.positive("exposure.vibrational.bias_v", vib.BiasV)
-	v.positive("exposure.vibrational.current_a", vib.CurrentA)
-	if n := vib.Order; !finite(n) || n < 1 || n > 50 {
-		v.add("exposure.vibrational.order", n, "must lie within 1..50 (the rate grows as I^n)")
-	}
-	if v.positive("exposure.vibrational.decade_v", vib.DecadeV) && vib.DecadeV < 0.05 {
-		v.add("exposure.vibrational.decade_v", vib.DecadeV, "must be at least 0.05 V per decade")
-	}
-	maxV := v.positive("exposure.vibrational.max_bias_v", vib.MaxBiasV)
-	thr := v.positive("exposure.electronic.threshold_v", el.ThresholdV)
+	v.within("exposure.vibrational.yield_per_electron", vib.YieldPerElectron, MinYield, 1, "H atoms per electron")
+	v.within("exposure.electronic.yield_per_electron", el.YieldPerElectron, MinYield, 1, "H atoms per electron")
+	v.within("exposure.vibrational.bias_v", vib.BiasV, 0.1, MaxBiasV, "V")
+	v.current("exposure.vibrational.current_a", vib.CurrentA)
+	v.within("exposure.vibrational.order", vib.Order, 1, MaxOrder, "(the rate grows as I^n)")
+	v.within("exposure.vibrational.decade_v", vib.DecadeV, MinDecadeV, MaxBiasV, "V per tenfold yield")
+	maxV := v.within("exposure.vibrational.max_bias_v", vib.MaxBiasV, 0.1, MaxBiasV, "V")
+	thr := v.within("exposure.electronic.threshold_v", el.ThresholdV, 0.1, MaxBiasV, "V")
 	if maxV && thr && el.ThresholdV <= vib.MaxBiasV {
-		v.add("exposure.electronic.threshold_v", el.ThresholdV, fmt.Sprintf("must lie above exposure.vibrational.max_bias_v (%g V)", vib.MaxBiasV))
+		v.add("exposure.electronic.threshold_v", el.ThresholdV, fmt.Sprintf("must lie above exposure.vibrational.max_bias_v (%s V)", jsonfile.Number(vib.MaxBiasV)))
 	}
-	if maxV && finite(vib.BiasV) && vib.BiasV > vib.MaxBiasV {
-		v.add("exposure.vibrational.bias_v", vib.BiasV, fmt.Sprintf("must lie in the vibrational regime, at most max_bias_v (%g V)", vib.MaxBiasV))
+	if maxV && vib.BiasV > vib.MaxBiasV {
+		v.add("exposure.vibrational.bias_v", vib.BiasV, fmt.Sprintf("must lie in the vibrational regime, at most max_bias_v (%s V)", jsonfile.Number(vib.MaxBiasV)))
 	}
+	return v.Len() == n
 }
 
-// clears records a mode whose lines or dwells would clear nothing or
-// whose exposure is not a number (a yield or dose far out of scale).
+// clears records a mode whose lines would clear less than half their
+// sites, an exposure that is not a number (a yield or dose far out of
+// scale), and a dwell longer than a dwell may take.
 func (v *validator) clears(p Profile) {
-	for _, mode := range []WriteMode{AP, FE} {
-		l := p.Line(mode)
-		if !finite(l.Peak) || l.Peak <= math.Ln2 {
-			v.add(string(mode)+".line_dose_c_per_cm", p.modeOf(mode).LineDoseCPerCm,
-				fmt.Sprintf("gives a centre-line exposure of %.3g (Y = %.3g H/e at %g V): lines would clear less than half their sites", l.Peak, l.Yield, p.modeOf(mode).BiasV))
+	for _, mode := range []design.Mode{design.ModeAP, design.ModeFE} {
+		m := p.modeOf(mode)
+		if l := p.Line(mode); !finite(l.Peak) || l.Peak <= math.Ln2 {
+			v.add(string(mode)+".line_dose_c_per_cm", m.LineDoseCPerCm, fmt.Sprintf(
+				"gives a centre-line exposure of %s (Y = %s H/e at %s V): lines would clear less than half their sites",
+				jsonfile.Approx(l.Peak), jsonfile.Approx(l.Yield), jsonfile.Number(m.BiasV)))
 		}
 	}
-	if k := p.DwellRate(); !finite(k) || k <= 0 || !finite(p.DwellCapS()) {
-		v.add("dwell.current_a", p.Dwell.CurrentA, fmt.Sprintf("gives a dwell rate of %.3g /s: no finite dwell completes", k))
+	if d := p.DwellCapS(); !(d <= MaxDwellS) {
+		v.add("dwell.current_a", p.Dwell.CurrentA, fmt.Sprintf(
+			"a dwell at %s V and this current reaches its completion after %s s per site (the exposure model's yield is %s H/e), more than the %d s a dwell may take",
+			jsonfile.Number(p.Dwell.BiasV), jsonfile.Approx(d), jsonfile.Approx(p.DwellYield()), MaxDwellS))
 	}
-}
-
-// modeOf returns the mode's conditions.
-func (p *Profile) modeOf(mode WriteMode) ModeProfile {
-	if mode == FE {
-		return p.FE
-	}
-	return p.AP
 }
 
 // ParseProfile reads a profile from JSON. Fields the document leaves out
 // keep the value of the preset named by its "base" field (the
-// room-temperature default when absent); unknown fields are refused, so
-// a misspelt name is reported rather than ignored. name labels errors
-// (usually the file name). The result is validated.
+// room-temperature default when absent); unknown fields and fields in
+// another case are refused, so a misspelt name is reported rather than
+// ignored. name labels errors (usually the file name). The result is
+// validated; every problem is reported with its JSON path, line and
+// column in a *jsonfile.Error wrapping ErrInvalidProfile.
 func ParseProfile(data []byte, name string) (Profile, error) {
 	label := name
 	if label == "" {
 		label = "profile"
 	}
-	var head struct {
-		Format  *string `json:"format"`
-		Version *int    `json:"version"`
-		Base    string  `json:"base"`
+	fail := func(ps []jsonfile.Problem) error {
+		jsonfile.Locate(data, ps)
+		return &jsonfile.Error{File: label, Kind: ErrInvalidProfile, Problems: ps}
 	}
-	if err := json.Unmarshal(data, &head); err != nil {
-		return Profile{}, fmt.Errorf("%s: %w", label, jsonError(data, err))
+	if len(data) > MaxProfileBytes {
+		return Profile{}, fail([]jsonfile.Problem{{Message: "the file holds " + jsonfile.Bytes(int64(len(data))) +
+			", more than the " + jsonfile.Bytes(MaxProfileBytes) + " limit for a profile", Err: jsonfile.ErrTooLarge}})
 	}
-	if head.Format == nil || *head.Format != ProfileFormat {
-		got := "missing"
-		if head.Format != nil {
-			got = fmt.Sprintf("%q", *head.Format)
+	// Identify the file and its preset before decoding it strictly, so a
+	// design or a newer version gets the right message.
+	if p, bad := jsonfile.SyntaxProblem(data, "the profile"); bad {
+		return Profile{}, fail([]jsonfile.Problem{p})
+	}
+	format, ok := jsonfile.TopString(data, "format")
+	if !ok || format != ProfileFormat {
+		p := jsonfile.Problem{Path: "format", Message: fmt.Sprintf("not a dimerpath instrument profile (want %q)", ProfileFormat)}
+		if raw, found := jsonfile.TopField(data, "format"); found {
+			p.Value = jsonfile.Text(raw)
+		} else {
+			p.Message = "missing: " + p.Message
 		}
-		return Profile{}, fmt.Errorf("%s: not a dimerpath instrument profile: format is %s, want %q", label, got, ProfileFormat)
+		return Profile{}, fail([]jsonfile.Problem{p})
 	}
-	if head.Version == nil || *head.Version < 1 || *head.Version > ProfileVersion {
-		got := "missing"
-		if head.Version != nil {
-			got = fmt.Sprint(*head.Version)
+	raw, found := jsonfile.TopField(data, "version")
+	if v, err := strconv.Atoi(string(raw)); err != nil || v < 1 || v > ProfileVersion {
+		p := jsonfile.Problem{Path: "version", Message: fmt.Sprintf("this dimerpath reads profile versions 1 to %d", ProfileVersion)}
+		if found {
+			p.Value = jsonfile.Text(raw)
+		} else {
+			p.Message = "missing: " + p.Message
 		}
-		return Profile{}, fmt.Errorf("%s: profile version %s: this dimerpath reads versions 1..%d", label, got, ProfileVersion)
+		return Profile{}, fail([]jsonfile.Problem{p})
 	}
-	p, err := Preset(head.Base)
+	base, _ := jsonfile.TopString(data, "base")
+	p, err := Preset(base)
 	if err != nil {
-		return Profile{}, fmt.Errorf("%s: base: %w", label, err)
-	}
-	var v1 map[WriteMode]v1Threshold
-	var v1Notes []string
-	if *head.Version == 1 {
-		if data, v1, v1Notes, err = upgradeV1(data); err != nil {
-			return Profile{}, fmt.Errorf("%s: %w", label, jsonError(data, err))
-		}
+		return Profile{}, fail([]jsonfile.Problem{{Path: "base", Value: base,
+			Message: fmt.Sprintf("unknown profile preset (known: %s)", strings.Join(Presets(), ", "))}})
 	}
 	// Name and notes describe the file, not the preset it starts from.
 	p.Name, p.Notes = "", ""
-	dec := json.NewDecoder(bytes.NewReader(data))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&p); err != nil {
-		return Profile{}, fmt.Errorf("%s: %w", label, jsonError(data, err))
-	}
-	if dec.More() {
-		return Profile{}, fmt.Errorf("%s: unexpected data after the profile object", label)
+	var ps jsonfile.Problems
+	if !jsonfile.Decode(data, &p, &ps, jsonfile.Options{What: "the profile", MaxString: 10000, MaxList: 100, MaxDepth: 8}) || ps.Len() > 0 {
+		return Profile{}, ps.Err(label, ErrInvalidProfile)
 	}
 	if p.Name == "" && name != "" {
 		p.Name = strings.TrimSuffix(filepath.Base(name), filepath.Ext(name))
 	}
-	if v1 != nil || len(v1Notes) > 0 {
-		if err := p.applyV1(v1); err != nil {
-			return Profile{}, fmt.Errorf("%s: %w", label, err)
+	if p.Version == 1 {
+		notes, ps := p.upgradeV1()
+		if ps.Len() > 0 {
+			return Profile{}, fail(ps.List())
 		}
-		p.Notes = strings.TrimSpace(p.Notes + "\nread from a version 1 file: " + strings.Join(v1Notes, "; "))
+		if len(notes) > 0 {
+			p.Notes = strings.TrimSpace(p.Notes + "\nread from a version 1 file: " + strings.Join(notes, "; "))
+		}
 	}
 	if err := p.Validate(); err != nil {
-		var pe *ProfileError
-		if errors.As(err, &pe) {
-			pe.File = name
-		}
-		return Profile{}, err
+		e := err.(*jsonfile.Error)
+		e.File = label
+		jsonfile.Locate(data, e.Problems)
+		return Profile{}, e
 	}
 	return p, nil
 }
 
-// jsonError turns a decoding error into one that names the field or the
-// line and column.
-func jsonError(data []byte, err error) error {
-	var te *json.UnmarshalTypeError
-	if errors.As(err, &te) {
-		path := te.Field
-		if path == "" {
-			path = "(top level)"
-		}
-		return fmt.Errorf("%s: got a JSON %s, want %s (line %d)", path, te.Value, describeGoType(te.Type.String()), lineOf(data, te.Offset))
-	}
-	var se *json.SyntaxError
-	if errors.As(err, &se) {
-		return fmt.Errorf("malformed JSON at line %d: %v", lineOf(data, se.Offset), err)
-	}
-	if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
-		return fmt.Errorf("truncated JSON: %w", err)
-	}
-	return err
-}
-
-func describeGoType(t string) string {
-	switch t {
-	case "float64", "int":
-		return "a number"
-	case "string":
-		return "a string"
-	case "bool":
-		return "true or false"
-	}
-	return "an object"
-}
-
-func lineOf(data []byte, offset int64) int {
-	offset = min(max(offset, 0), int64(len(data)))
-	return bytes.Count(data[:offset], []byte("\n")) + 1
-}
-
-// LoadProfile reads and validates the profile file at path.
+// LoadProfile reads and validates the profile file at path; a file larger
+// than MaxProfileBytes is refused before it is read.
 func LoadProfile(path string) (Profile, error) {
-	data, err := os.ReadFile(path)
+	data, err := jsonfile.ReadFile(path, MaxProfileBytes, ErrInvalidProfile)
 	if err != nil {
 		return Profile{}, err
 	}
@@ -683,24 +652,21 @@ func LoadProfile(path string) (Profile, error) {
 }
 
 // SaveProfile validates p and writes it to path atomically (temp file +
-// rename), with the current format and version.
+// rename), with the current format and version, one field a line.
 func SaveProfile(path string, p Profile) error {
 	p.Format, p.Version = ProfileFormat, ProfileVersion
 	if p.Base == "" {
 		p.Base = defaultPresetName
 	}
 	if err := p.Validate(); err != nil {
-		var pe *ProfileError
-		if errors.As(err, &pe) {
-			pe.File = path
-		}
+		err.(*jsonfile.Error).File = path
 		return err
 	}
-	data, err := json.MarshalIndent(p, "", "  ")
+	data, err := jsonfile.Marshal(p, jsonfile.Indented)
 	if err != nil {
 		return fmt.Errorf("%s: %w", path, err)
 	}
-	return atomicfile.WriteBytes(path, append(data, '\n'), 0o644)
+	return atomicfile.WriteBytes(path, data, 0o644)
 }
 
 // LimitError reports a value a plan needs that lies beyond the

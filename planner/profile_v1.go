@@ -1,10 +1,11 @@
 package planner
 
 import (
-	"bytes"
-	"encoding/json"
 	"fmt"
 	"math"
+
+	"dimerpath/internal/jsonfile"
+	"dimerpath/lattice/design"
 )
 
 // Version 1 profiles described each mode's lines by a threshold width
@@ -16,90 +17,109 @@ import (
 // mode's bias. The FE overlap and the dwell yield have no place in the
 // model: the raster pitch follows fe.fill_completion, and the dwell its
 // bias and current.
+//
+// The version 1 fields are decoded in place (ModeProfile.V1Width and
+// V1Overlap, DwellProfile.V1Yield), so their errors carry the file's line
+// and column like any other; upgradeV1 checks them in their version 1
+// ranges, converts them and clears them.
 
-// v1Threshold is a version 1 mode's width model, if the file gave one.
-type v1Threshold struct {
-	sigma, threshold *float64
+// V1Width is a version 1 mode's "width" object.
+type V1Width struct {
+	SigmaNM             *float64 `json:"sigma_nm,omitempty"`
+	ThresholdDoseCPerCm *float64 `json:"threshold_dose_c_per_cm,omitempty"`
 }
 
-// upgradeV1 rewrites a version 1 profile document as version 2 and
-// returns the thresholds to apply after decoding (by mode) and notes on
-// what changed.
-func upgradeV1(data []byte) ([]byte, map[WriteMode]v1Threshold, []string, error) {
-	var doc map[string]any
-	dec := json.NewDecoder(bytes.NewReader(data))
-	dec.UseNumber()
-	if err := dec.Decode(&doc); err != nil {
-		return nil, nil, nil, err
+// Version 1 ranges.
+const (
+	v1MaxOverlap       = 0.95  // FE raster: a pitch of at least 5 % of the line width
+	v1MinThresholdDose = 1e-12 // C/cm
+)
+
+// hasV1 reports whether p holds any version 1 field.
+func (p *Profile) hasV1() bool {
+	return p.AP.V1Width != nil || p.AP.V1Overlap != nil || p.FE.V1Width != nil || p.FE.V1Overlap != nil || p.Dwell.V1Yield != nil
+}
+
+// v1Problems lists the version 1 fields of a version 2 profile.
+func (p *Profile) v1Problems(v *validator) {
+	for _, m := range []struct {
+		prefix string
+		m      *ModeProfile
+	}{{"ap", &p.AP}, {"fe", &p.FE}} {
+		if m.m.V1Width != nil {
+			v.add(m.prefix+".width", "{…}", fmt.Sprintf("a version 1 field: version %d profiles give %s.sigma_nm and the exposure model's yield (exposure.*)", ProfileVersion, m.prefix))
+		}
+		if m.m.V1Overlap != nil {
+			v.add(m.prefix+".overlap", *m.m.V1Overlap, fmt.Sprintf("a version 1 field: version %d profiles set the raster pitch by fe.fill_completion", ProfileVersion))
+		}
 	}
-	doc["version"] = json.Number(fmt.Sprint(ProfileVersion))
-	th := map[WriteMode]v1Threshold{}
+	if p.Dwell.V1Yield != nil {
+		v.add("dwell.yield_per_electron", *p.Dwell.V1Yield, fmt.Sprintf("a version 1 field: in version %d the dwell's yield follows the exposure model at its bias and current", ProfileVersion))
+	}
+}
+
+// upgradeV1 checks a version 1 profile's own fields in their version 1
+// ranges, turns them into the exposure model (see above), clears them and
+// returns notes on what changed; the problems name the fields' paths.
+func (p *Profile) upgradeV1() ([]string, jsonfile.Problems) {
+	var v validator
 	var notes []string
-	num := func(v any) *float64 {
-		if n, ok := v.(json.Number); ok {
-			if f, err := n.Float64(); err == nil {
-				return &f
+	for _, m := range []struct {
+		mode design.Mode
+		m    *ModeProfile
+	}{{design.ModeAP, &p.AP}, {design.ModeFE, &p.FE}} {
+		prefix := string(m.mode)
+		if o := m.m.V1Overlap; o != nil {
+			if m.mode != design.ModeFE {
+				v.add(prefix+".overlap", *o, "applies to the FE raster only; leave it 0")
+			} else if !(*o >= 0 && *o <= v1MaxOverlap) {
+				v.add(prefix+".overlap", *o, fmt.Sprintf("must be from 0 to %g (a raster pitch of at least %g %% of the line width)", v1MaxOverlap, 100*(1-v1MaxOverlap)))
+			} else {
+				notes = append(notes, "fe.overlap (version 1) dropped: the raster pitch follows fe.fill_completion")
 			}
+			m.m.V1Overlap = nil
 		}
-		return nil
-	}
-	for _, mode := range []WriteMode{AP, FE} {
-		m, ok := doc[string(mode)].(map[string]any)
-		if !ok {
+		w := m.m.V1Width
+		if w == nil {
 			continue
 		}
-		if w, ok := m["width"].(map[string]any); ok {
-			var t v1Threshold
-			if s, ok := w["sigma_nm"]; ok {
-				m["sigma_nm"] = s
-				t.sigma = num(s)
+		m.m.V1Width = nil
+		if w.SigmaNM != nil {
+			if !v.within(prefix+".width.sigma_nm", *w.SigmaNM, MinSigmaNM, MaxSigmaNM, "nm") {
+				continue
 			}
-			t.threshold = num(w["threshold_dose_c_per_cm"])
-			delete(w, "sigma_nm")
-			delete(w, "threshold_dose_c_per_cm")
-			if len(w) == 0 {
-				delete(m, "width")
-			}
-			th[mode] = t
-			notes = append(notes, fmt.Sprintf("%s.width (version 1) read as the exposure model: σ kept, the threshold dose turned into the yield at the %s bias and current", mode, mode))
+			m.m.SigmaNM = *w.SigmaNM
 		}
-		if _, ok := m["overlap"]; ok && mode == FE {
-			delete(m, "overlap")
-			notes = append(notes, "fe.overlap (version 1) dropped: the raster pitch follows fe.fill_completion")
-		}
-	}
-	if d, ok := doc["dwell"].(map[string]any); ok {
-		if _, ok := d["yield_per_electron"]; ok {
-			delete(d, "yield_per_electron")
-			notes = append(notes, "dwell.yield_per_electron (version 1) dropped: the dwell's yield follows the exposure model at its bias and current")
-		}
-	}
-	out, err := json.Marshal(doc)
-	return out, th, notes, err
-}
-
-// applyV1 sets the yield of each mode's regime from its version 1
-// threshold dose (see the comment above upgradeV1).
-func (p *Profile) applyV1(th map[WriteMode]v1Threshold) error {
-	for _, mode := range []WriteMode{AP, FE} {
-		t, ok := th[mode]
-		if !ok || t.threshold == nil {
+		if w.ThresholdDoseCPerCm == nil {
 			continue
 		}
-		m := p.modeOf(mode)
-		if !(*t.threshold > 0) || !(m.SigmaNM > 0) {
-			return fmt.Errorf("%s.width.threshold_dose_c_per_cm = %v: must be a positive number", mode, *t.threshold)
+		thr := *w.ThresholdDoseCPerCm
+		if !v.within(prefix+".width.threshold_dose_c_per_cm", thr, v1MinThresholdDose, MaxLineDoseCPerCm, "C/cm") {
+			continue
 		}
-		y := math.Ln2 / lineAmplitude(1, *t.threshold, m.SigmaNM)
-		switch p.Exposure.Regime(m.BiasV) {
+		if !(m.m.SigmaNM > 0) {
+			continue // reported by Validate
+		}
+		y := math.Ln2 / lineAmplitude(1, thr, m.m.SigmaNM)
+		switch p.Exposure.Regime(m.m.BiasV) {
 		case RegimeVibrational:
-			v := &p.Exposure.Vibrational
-			v.YieldPerElectron, v.BiasV, v.CurrentA = y, math.Abs(m.BiasV), m.CurrentA
+			e := &p.Exposure.Vibrational
+			e.YieldPerElectron, e.BiasV, e.CurrentA = y, math.Abs(m.m.BiasV), m.m.CurrentA
 		case RegimeElectronic:
 			p.Exposure.Electronic.YieldPerElectron = y
 		default:
-			return fmt.Errorf("%s.width.threshold_dose_c_per_cm: the %s bias %g V lies between the vibrational and electronic regimes, where a version 1 threshold cannot be turned into a yield: re-run dimerpath calibrate", mode, mode, m.BiasV)
+			v.add(prefix+".width.threshold_dose_c_per_cm", thr, fmt.Sprintf(
+				"the %s bias %s V lies between the vibrational and electronic regimes, where a version 1 threshold cannot be turned into a yield: re-run dimerpath calibrate", prefix, jsonfile.Number(m.m.BiasV)))
+			continue
 		}
+		notes = append(notes, fmt.Sprintf("%s.width (version 1) read as the exposure model: σ kept, the threshold dose turned into the yield at the %s bias and current", prefix, prefix))
 	}
-	return nil
+	if y := p.Dwell.V1Yield; y != nil {
+		if v.within("dwell.yield_per_electron", *y, MinYield, 1, "H atoms per electron") {
+			notes = append(notes, "dwell.yield_per_electron (version 1) dropped: the dwell's yield follows the exposure model at its bias and current")
+		}
+		p.Dwell.V1Yield = nil
+	}
+	p.Version = ProfileVersion
+	return notes, v.Problems
 }

@@ -8,6 +8,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 )
 
 // strokeGen turns region sites into strokes. Stroke IDs are assigned by
@@ -45,22 +46,47 @@ func newStrokeGen(surf *lattice.Surface, prof *Profile) *strokeGen {
 }
 
 // apExtension chooses how far an AP line over n dimers runs beyond the
-// centres of its end dimers: the extension (in steps of 0.0025 nm, up to
-// half a dimer pitch) that makes the fewest expected wrong sites at each
-// end, the end site left plus the next site along the row cleared, from
-// the exposure model (lineExposure). A longer line leaves the end site
-// less likely and clears the next site more likely.
+// centres of its end dimers (negative: it stops short of them): the
+// extension, in steps of 0.0025 nm within half a dimer pitch either way,
+// that makes the fewest expected wrong sites at each end — the end site
+// left plus the next site along the row cleared, from the exposure model
+// (lineExposure) — among those that clear the next site with less than
+// half the stray limit (the margin feInset keeps too), unless the edge
+// allowance reaches that site. A longer line leaves the end site less
+// likely and clears the next site more likely. When no extension keeps
+// the next site under the limit, the one that clears it least.
 func apExtension(prof *Profile, n int) float64 {
-	l := prof.Line(AP)
+	l := prof.Line(design.ModeAP)
 	span := lattice.DimerAlong(n - 1) // from the first dimer's centre to the last's
+	limit := prof.StrayLimit / 2
+	if prof.AP.EdgeAllowanceNM >= lattice.DimerPitch {
+		limit = 1
+	}
 	best, bestExt := math.Inf(1), 0.0
-	for ext := 0.0; ext <= lattice.DimerPitch/2+1e-12; ext += 0.0025 {
+	least, leastExt := math.Inf(1), 0.0
+	for i := -200; i <= 200; i++ {
+		ext := float64(i) * 0.0025
+		if math.Abs(ext) > lattice.DimerPitch/2+1e-12 {
+			continue
+		}
 		L := span + 2*ext
+		if L <= 0 {
+			continue
+		}
 		end := lineExposure(l.Peak, l.SigmaNM, L, ext, lattice.HOffset)
-		next := lineExposure(l.Peak, l.SigmaNM, L, ext-lattice.DimerPitch, lattice.HOffset)
-		if wrong := math.Exp(-end) + ClearProbability(next); wrong < best-1e-15 {
+		next := ClearProbability(lineExposure(l.Peak, l.SigmaNM, L, ext-lattice.DimerPitch, lattice.HOffset))
+		if next < least {
+			least, leastExt = next, ext
+		}
+		if next > limit {
+			continue
+		}
+		if wrong := math.Exp(-end) + next; wrong < best-1e-15 {
 			best, bestExt = wrong, ext
 		}
+	}
+	if math.IsInf(best, 1) {
+		return leastExt
 	}
 	return bestExt
 }
@@ -76,7 +102,7 @@ func apExtension(prof *Profile, n int) float64 {
 // its tail. feStrokes keeps a disk of the larger radius around every
 // point of its lines inside the region.
 func feInset(prof *Profile) (end, side float64) {
-	l := prof.Line(FE)
+	l := prof.Line(design.ModeFE)
 	pitch := prof.FEPitch()
 	limit := exposureFor(prof.StrayLimit / 2)
 	if !(l.Peak > 0) || !(pitch > 0) {
@@ -142,13 +168,13 @@ func (g *strokeGen) lineStroke(region string, t, row, d0, d1 int) Stroke {
 	path := []r2.Point{a.Sub(dir.Mul(ext)), b.Add(dir.Mul(ext))}
 	l := pathLength(path)
 	m := g.prof.AP
-	return Stroke{Region: region, Mode: AP, Kind: StrokeLine, Path: path, Passes: max(m.Passes, 1),
+	return Stroke{Region: region, Mode: design.ModeAP, Kind: StrokeLine, Path: path, Passes: max(m.Passes, 1),
 		LengthNM: l, DurationS: float64(max(m.Passes, 1)) * l / m.Speed(), Sites: 2 * n, Window: -1}
 }
 
 // dwellStroke parks the tip over one H site.
 func (g *strokeGen) dwellStroke(region string, site lattice.Site) Stroke {
-	return Stroke{Region: region, Mode: AP, Kind: StrokeDwell, Path: []r2.Point{g.surf.Position(site)}, Passes: 1,
+	return Stroke{Region: region, Mode: design.ModeAP, Kind: StrokeDwell, Path: []r2.Point{g.surf.Position(site)}, Passes: 1,
 		DurationS: g.prof.DwellExpectedS(), Sites: 1, Window: -1}
 }
 
@@ -369,7 +395,7 @@ func (g *strokeGen) feStroke(region string, kind StrokeKind, path []r2.Point) St
 	m := g.prof.FE
 	l := pathLength(path)
 	sites := 0 // filled in by the caller from the region
-	return Stroke{Region: region, Mode: FE, Kind: kind, Path: path, Passes: max(m.Passes, 1),
+	return Stroke{Region: region, Mode: design.ModeFE, Kind: kind, Path: path, Passes: max(m.Passes, 1),
 		LengthNM: l, DurationS: float64(max(m.Passes, 1)) * l / m.Speed(), Sites: sites, Window: -1}
 }
 

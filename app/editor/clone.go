@@ -35,6 +35,9 @@ func cloneDesignShell(d *design.Design) *design.Design {
 		c.Rules = &r
 	}
 	c.WindowTemplates = slices.Clone(d.WindowTemplates)
+	// References are never changed in place, only added or removed:
+	// share them, but let an append allocate anew.
+	c.References = slices.Clip(d.References)
 	c.Variants = slices.Clone(d.Variants)
 	for i, v := range c.Variants {
 		c.Variants[i].Regions = slices.Clone(v.Regions)

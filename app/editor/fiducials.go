@@ -27,26 +27,26 @@ func (s *Session) AddFiducial(p r2.Point) int {
 	return len(s.d.Fiducials) - 1
 }
 
-// SetFiducial renames and moves fiducial i. The name must be unique and
-// the position inside the field.
+// SetFiducial renames and moves fiducial i. The design's rules refuse an
+// empty name, one another fiducial has, and a position outside the
+// field.
 func (s *Session) SetFiducial(i int, name string, at r2.Point) error {
 	if i < 0 || i >= len(s.d.Fiducials) {
 		return fmt.Errorf("no fiducial %d", i)
 	}
 	name = strings.TrimSpace(name)
-	for j, f := range s.d.Fiducials {
-		if name == "" || (j != i && f.Name == name) {
-			return fmt.Errorf("fiducial name %q: %w", name, ErrName)
-		}
-	}
-	if !s.surf.Field.ContainsPoint(at) {
-		return fmt.Errorf("fiducial %s at (%g, %g) nm: outside the %g x %g nm field", name, at.X, at.Y, s.d.Field.WidthNM, s.d.Field.HeightNM)
-	}
+	old := s.d.Fiducials[i]
 	f := design.Fiducial{Name: name, AtNM: [2]float64{at.X, at.Y}}
-	if f == s.d.Fiducials[i] {
+	if f == old {
 		return nil
 	}
-	s.d.Fiducials[i] = f
+	err := s.validEdit(fmt.Sprintf("set fiducial %s to %q at (%g, %g) nm", old.Name, name, at.X, at.Y), func() func() {
+		s.d.Fiducials[i] = f
+		return func() { s.d.Fiducials[i] = old }
+	})
+	if err != nil {
+		return err
+	}
 	s.commit("edit fiducial "+name, fmt.Sprintf("fiducial-%d", i), ChangeFiducials|ChangeSites)
 	return nil
 }

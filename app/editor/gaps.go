@@ -1,7 +1,6 @@
 package editor
 
 import (
-	"fmt"
 	"slices"
 
 	"dimerpath/lattice/design"
@@ -10,21 +9,19 @@ import (
 // AddTunnelGap declares that regions a and b of the current variant are
 // meant to be tunnel-coupled across a gap (an SET island and its
 // leads): the checks then measure the gap against the rule's range and
-// count the pair as connected.
+// count the pair as connected. The design's rules refuse a gap to a
+// region the variant does not have, from a region to itself, or one
+// already declared.
 func (s *Session) AddTunnelGap(a, b string) error {
 	v := s.Variant()
-	if v.Region(a) == nil || v.Region(b) == nil {
-		return fmt.Errorf("tunnel gap %s – %s: both must be regions of variant %s", a, b, v.Name)
+	err := s.validEdit("declare tunnel gap "+a+" – "+b, func() func() {
+		gaps := v.TunnelGaps
+		v.TunnelGaps = append(slices.Clone(gaps), design.TunnelGap{A: a, B: b})
+		return func() { v.TunnelGaps = gaps }
+	})
+	if err != nil {
+		return err
 	}
-	if a == b {
-		return fmt.Errorf("tunnel gap %s – %s: a gap needs two different regions", a, b)
-	}
-	for _, g := range v.TunnelGaps {
-		if g.A == a && g.B == b || g.A == b && g.B == a {
-			return fmt.Errorf("the tunnel gap %s – %s is already declared", a, b)
-		}
-	}
-	v.TunnelGaps = append(slices.Clone(v.TunnelGaps), design.TunnelGap{A: a, B: b})
 	s.commit("declare tunnel gap "+a+" – "+b, "", ChangeRegions)
 	return nil
 }
@@ -40,12 +37,12 @@ func (s *Session) RemoveTunnelGap(i int) {
 	s.commit("remove tunnel gap "+g.A+" – "+g.B, "", ChangeRegions)
 }
 
-// GapWidth returns the width (nm) of the current variant's tunnel gap
+// GapWidth returns the width of the current variant's tunnel gap
 // between a and b measured by the last check, and whether it is known
 // and up to date.
-func (s *Session) GapWidth(a, b string) (float64, bool) {
+func (s *Session) GapWidth(a, b string) (GapMeasure, bool) {
 	if s.findState != s.hist.current() {
-		return 0, false
+		return GapMeasure{}, false
 	}
 	w, ok := s.gapWidths[[2]string{a, b}]
 	if !ok {

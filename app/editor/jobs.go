@@ -14,24 +14,48 @@ import (
 	"dimerpath/planner"
 )
 
+// Jobs is the background work the editor's window runs, each on a copy
+// of the design. The window calls these fields rather than the
+// functions, so a test can put in a job that panics or blocks.
+type Jobs struct {
+	Check            func(ctx context.Context, d *design.Design, variant string) (CheckResult, error)
+	Plan             func(ctx context.Context, d *design.Design, variant string, prof planner.Profile, opt planner.Options) (*planner.Plan, error)
+	Export           func(ctx context.Context, path string, d *design.Design, p *planner.Plan, es ExportSettings, progress func(string, float64)) error
+	ExportComparison func(ctx context.Context, path string, res []export.VariantResult, es ExportSettings) error
+	// SaveRecovery writes the autosaved recovery copy of the design.
+	SaveRecovery func(path string, d *design.Design) error
+}
+
+// DefaultJobs returns the real work: CheckDesign, BuildPlan, ExportPlan,
+// ExportComparison and SaveDesign.
+func DefaultJobs() Jobs {
+	return Jobs{Check: CheckDesign, Plan: BuildPlan, Export: ExportPlan, ExportComparison: ExportComparison, SaveRecovery: SaveDesign}
+}
+
 // Finding is a design-rule finding as the GUI lists and draws it.
 type Finding struct {
 	Rule    string
 	Error   bool // an error rather than a warning
 	Message string
 	Regions []string
-	// At is the position the finding names, in field nm; Bounds the area
-	// to zoom to (empty for a point finding).
-	At     r2.Point
-	Bounds r2.Rect
+	At      r2.Point // the position the finding names, field nm
 }
 
 // CheckResult is what a design-rule check of one variant finds: the
-// findings, and the measured width (nm) of each declared tunnel gap,
-// keyed by its two region names in the order declared.
+// findings, and the measured width of each declared tunnel gap, keyed
+// by its two region names in the order declared.
 type CheckResult struct {
 	Findings  []Finding
-	GapWidths map[[2]string]float64
+	GapWidths map[[2]string]GapMeasure
+}
+
+// GapMeasure is a tunnel gap's width as the check measured it: NM, and
+// Text, the width in nm with its count of dimer rows or dimers by the
+// gap's direction ("6.91 nm (9.0 dimer rows across the rows)", from
+// lattice.Surface.GapText).
+type GapMeasure struct {
+	NM   float64
+	Text string
 }
 
 // CheckDesign runs the design-rule checks on one variant of d and
@@ -49,15 +73,16 @@ func CheckDesign(ctx context.Context, d *design.Design, variant string) (CheckRe
 	}
 	res.Findings = make([]Finding, len(fs))
 	for i, f := range fs {
-		res.Findings[i] = Finding{Rule: f.Rule, Error: f.Severity == design.SeverityError, Message: f.Message, Regions: f.Regions, At: f.AtNM, Bounds: r2.EmptyRect()}
+		res.Findings[i] = Finding{Rule: f.Rule, Error: f.Severity == design.SeverityError, Message: f.Message, Regions: f.Regions, At: f.AtNM}
 	}
 	if len(l.Variant.TunnelGaps) == 0 {
 		return res, nil
 	}
-	res.GapWidths = map[[2]string]float64{}
+	res.GapWidths = map[[2]string]GapMeasure{}
 	for _, g := range l.Variant.TunnelGaps {
 		if a, b := l.Region(g.A), l.Region(g.B); a != nil && b != nil {
-			res.GapWidths[[2]string{g.A, g.B}] = l.GapNM(a, b)
+			gap := l.Gap(a, b)
+			res.GapWidths[[2]string{g.A, g.B}] = GapMeasure{NM: gap.NM, Text: l.Surface.GapText(gap)}
 		}
 	}
 	return res, ctx.Err()
@@ -100,4 +125,29 @@ func ExportComparison(ctx context.Context, path string, res []export.VariantResu
 		}
 		return export.WriteComparisonPDF(ctx, w, res, opt)
 	})
+}
+
+// VariantDifferences lays out every variant of d and says how each one
+// after the first differs from the first (design.Differences), keyed by
+// variant name; a variant that cannot be laid out is left out. The first
+// variant's layout is kept while the others are laid out one at a time.
+func VariantDifferences(ctx context.Context, d *design.Design) (map[string][]design.Difference, error) {
+	names := d.VariantNames()
+	out := map[string][]design.Difference{}
+	if len(names) < 2 {
+		return out, nil
+	}
+	first, err := d.Lay(names[0])
+	if err != nil {
+		return out, nil
+	}
+	for _, n := range names[1:] {
+		if err := ctx.Err(); err != nil {
+			return out, err
+		}
+		if l, err := d.Lay(n); err == nil {
+			out[n] = design.Differences(first, l)
+		}
+	}
+	return out, nil
 }

@@ -2,7 +2,6 @@ package editor
 
 import (
 	"fmt"
-	"math"
 	"slices"
 	"strings"
 
@@ -87,97 +86,85 @@ func (s *Session) DeleteRegions(regions ...int) {
 	s.commit(label, "", ChangeRegions|ChangeSelection|ChangeSites)
 }
 
-// RenameRegion renames region i; the name must be unique in the variant.
+// RenameRegion renames region i of the current variant; the design's
+// rules refuse an empty name or one another region of the variant has.
+// The variant's tunnel gaps follow the rename.
 func (s *Session) RenameRegion(i int, name string) error {
 	v := s.Variant()
 	if i < 0 || i >= len(v.Regions) {
 		return fmt.Errorf("no region %d", i)
 	}
 	name = strings.TrimSpace(name)
-	if name == v.Regions[i].Name {
+	old := v.Regions[i].Name
+	if name == old {
 		return nil
 	}
-	for j, r := range v.Regions {
-		if name == "" || (j != i && r.Name == name) {
-			return fmt.Errorf("region name %q: %w", name, ErrName)
+	err := s.validEdit(fmt.Sprintf("rename region %q to %q", old, name), func() func() {
+		gaps := v.TunnelGaps
+		v.Regions[i].Name = name
+		v.TunnelGaps = slices.Clone(gaps)
+		for g := range v.TunnelGaps {
+			if v.TunnelGaps[g].A == old {
+				v.TunnelGaps[g].A = name
+			}
+			if v.TunnelGaps[g].B == old {
+				v.TunnelGaps[g].B = name
+			}
 		}
+		return func() { v.Regions[i].Name, v.TunnelGaps = old, gaps }
+	})
+	if err != nil {
+		return err
 	}
 	s.touch(s.variant, i)
-	old := v.Regions[i].Name
-	v.Regions[i].Name = name
-	// Tunnel gaps name their regions: they follow the rename.
-	v.TunnelGaps = slices.Clone(v.TunnelGaps)
-	for g := range v.TunnelGaps {
-		if v.TunnelGaps[g].A == old {
-			v.TunnelGaps[g].A = name
-		}
-		if v.TunnelGaps[g].B == old {
-			v.TunnelGaps[g].B = name
-		}
-	}
 	s.commit("rename region", fmt.Sprintf("rename-region-%d-%d", s.variant, i), ChangeRegions)
 	return nil
 }
 
 // SetRegionRole sets region i's role in the device.
-func (s *Session) SetRegionRole(i int, role design.Role) {
-	s.setRegion(i, "role", func(r *design.Region) bool {
-		if r.Role == role {
-			return false
-		}
-		r.Role = role
-		return true
-	})
+func (s *Session) SetRegionRole(i int, role design.Role) error {
+	return s.setRegion(i, "role", func(r *design.Region) { r.Role = role })
 }
 
 // SetRegionMode sets the write mode asked for region i.
-func (s *Session) SetRegionMode(i int, mode design.Mode) {
-	s.setRegion(i, "mode", func(r *design.Region) bool {
-		if r.Mode == mode {
-			return false
-		}
-		r.Mode = mode
-		return true
-	})
+func (s *Session) SetRegionMode(i int, mode design.Mode) error {
+	return s.setRegion(i, "mode", func(r *design.Region) { r.Mode = mode })
 }
 
-// SetRegionSpecies sets region i's dopant species ("P", "As" or "").
-func (s *Session) SetRegionSpecies(i int, species string) {
-	s.setRegion(i, "species", func(r *design.Region) bool {
-		if r.Species == species {
-			return false
-		}
-		r.Species = species
-		return true
-	})
+// SetRegionSpecies sets region i's dopant species: that of a window
+// template of the design, or "" for none.
+func (s *Session) SetRegionSpecies(i int, species string) error {
+	return s.setRegion(i, "species", func(r *design.Region) { r.Species = species })
 }
 
 // SetRegionTolerance sets region i's placement tolerance in nm (0 takes
-// the mode's default). It refuses a negative or non-finite value.
+// the mode's default); the design's rules refuse a negative, non-finite
+// or larger than field-sized one.
 func (s *Session) SetRegionTolerance(i int, nm float64) error {
-	if !(nm >= 0) || math.IsInf(nm, 0) {
-		return fmt.Errorf("tolerance %g nm: must be 0 (the mode's default) or a positive number", nm)
-	}
-	s.setRegion(i, "tolerance", func(r *design.Region) bool {
-		if r.ToleranceNM == nm {
-			return false
-		}
-		r.ToleranceNM = nm
-		return true
-	})
-	return nil
+	return s.setRegion(i, "tolerance", func(r *design.Region) { r.ToleranceNM = nm })
 }
 
-func (s *Session) setRegion(i int, what string, f func(*design.Region) bool) {
+// setRegion applies f to a copy of region i of the current variant and
+// keeps the result if it differs and the design's rules accept it.
+func (s *Session) setRegion(i int, what string, f func(*design.Region)) error {
 	v := s.Variant()
 	if i < 0 || i >= len(v.Regions) {
-		return
+		return fmt.Errorf("no region %d", i)
 	}
-	r := v.Regions[i]
-	if !f(&r) {
-		return
+	old := v.Regions[i]
+	r := old
+	f(&r)
+	if r.Role == old.Role && r.Mode == old.Mode && r.Species == old.Species && r.ToleranceNM == old.ToleranceNM {
+		return nil
+	}
+	err := s.validEdit("set "+what+" of "+r.Name, func() func() {
+		v.Regions[i] = r
+		return func() { v.Regions[i] = old }
+	})
+	if err != nil {
+		return err
 	}
 	s.touch(s.variant, i)
-	v.Regions[i] = r
 	s.commit("set "+what+" of "+r.Name, fmt.Sprintf("%s-%d-%d", what, s.variant, i), ChangeRegions)
+	return nil
 }

@@ -57,11 +57,5 @@ func (s *Session) ChooseFinding(i int) {
 	s.notify(ChangeSites)
 }
 
-// FindingBounds returns the field area (nm) to show for finding i.
-func (s *Session) FindingBounds(i int) r2.Rect {
-	f := s.findings[i]
-	if !f.Bounds.IsEmpty() {
-		return f.Bounds
-	}
-	return r2.RectFromPoints(f.At)
-}
+// FindingAt returns the position (field nm) finding i names.
+func (s *Session) FindingAt(i int) r2.Point { return s.findings[i].At }

@@ -38,6 +38,7 @@ func (s *Session) Scene(o SceneOptions) *render.Scene {
 	for _, f := range s.d.Fiducials {
 		sc.Fiducials = append(sc.Fiducials, r2.Point{X: f.AtNM[0], Y: f.AtNM[1]})
 	}
+	sc.References = s.referenceOverlays()
 	if o.Route {
 		if p, _ := s.Plan(); p != nil {
 			sc.Route = render.RouteOf(p)
@@ -46,11 +47,7 @@ func (s *Session) Scene(o SceneOptions) *render.Scene {
 	}
 	if o.Findings {
 		for i, f := range s.findings {
-			b := f.Bounds
-			if b.IsEmpty() {
-				b = r2.RectFromPoints(f.At)
-			}
-			sc.Marks = append(sc.Marks, render.Mark{Bounds: b, Error: f.Error, Selected: i == s.chosen})
+			sc.Marks = append(sc.Marks, render.Mark{At: f.At, Error: f.Error, Selected: i == s.chosen})
 		}
 	}
 	sc.Preview = s.Preview()

@@ -50,7 +50,7 @@ type Session struct {
 	planVariant string
 	planState   *snapshot // the history state the plan was made from
 	findings    []Finding
-	gapWidths   map[[2]string]float64 // tunnel gaps measured by the last check
+	gapWidths   map[[2]string]GapMeasure // tunnel gaps measured by the last check
 	findState   *snapshot
 	chosen      int // index of the finding chosen in the list, or -1
 
@@ -206,20 +206,21 @@ func (s *Session) Title() string {
 	return t + " — dimerpath"
 }
 
-// ErrName is returned for an empty or duplicate name.
-var ErrName = errors.New("name is empty or already used")
-
 // SetDesignName renames the design; the name is printed on plans and
-// reports and must not be empty.
+// reports, and the design's rules refuse an empty one.
 func (s *Session) SetDesignName(name string) error {
 	name = strings.TrimSpace(name)
-	if name == "" {
-		return fmt.Errorf("design name: %w", ErrName)
-	}
-	if name == s.d.Name {
+	old := s.d.Name
+	if name == old {
 		return nil
 	}
-	s.d.Name = name
+	err := s.validEdit(fmt.Sprintf("rename the design to %q", name), func() func() {
+		s.d.Name = name
+		return func() { s.d.Name = old }
+	})
+	if err != nil {
+		return err
+	}
 	s.commit("rename design", "rename-design", ChangeFile)
 	return nil
 }

@@ -2,6 +2,7 @@ package editor_test
 
 import (
 	"errors"
+	"strings"
 	"testing"
 
 	"github.com/golang/geo/r2"
@@ -164,8 +165,8 @@ func TestVariantEdits(t *testing.T) {
 	if got := s.RegionSites(1).Count(); got != 60 {
 		t.Errorf("original lead has %d sites after erasing the copy, want 60", got)
 	}
-	if err := s.RenameVariant(1, "B"); !errors.Is(err, editor.ErrName) {
-		t.Errorf("renaming to a used name: %v, want ErrName", err)
+	if err := s.RenameVariant(1, "B"); !errors.Is(err, design.ErrInvalid) || !strings.Contains(err.Error(), `"B" is also the name of variants[`) {
+		t.Errorf("renaming to a used name: %v, want the design's refusal", err)
 	}
 	if err := s.RenameVariant(1, "wide gap"); err != nil {
 		t.Fatal(err)
@@ -189,7 +190,7 @@ func TestVariantEdits(t *testing.T) {
 
 func TestRegionProperties(t *testing.T) {
 	s := editortest.Tiny(t)
-	if err := s.RenameRegion(0, "lead"); !errors.Is(err, editor.ErrName) {
+	if err := s.RenameRegion(0, "lead"); !errors.Is(err, design.ErrInvalid) || !strings.Contains(err.Error(), `"lead" is also the name of regions[`) {
 		t.Errorf("duplicate region name: %v", err)
 	}
 	s.RenameRegion(0, "is")
@@ -229,7 +230,7 @@ func TestFiducialsAndTerraces(t *testing.T) {
 	if n := len(s.Design().Fiducials); n != 2 || s.Design().Fiducials[1].Name != "F2" {
 		t.Fatalf("fiducials %+v", s.Design().Fiducials)
 	}
-	if err := s.SetFiducial(1, "F1", r2.Point{X: 1, Y: 1}); !errors.Is(err, editor.ErrName) {
+	if err := s.SetFiducial(1, "F1", r2.Point{X: 1, Y: 1}); !errors.Is(err, design.ErrInvalid) || !strings.Contains(err.Error(), `"F1" is also the name of fiducials[`) {
 		t.Errorf("duplicate fiducial name: %v", err)
 	}
 	if err := s.SetFiducial(1, "corner", r2.Point{X: 500, Y: 1}); err == nil {

@@ -3,7 +3,6 @@ package editor
 import (
 	"errors"
 	"fmt"
-	"math"
 	"slices"
 	"strings"
 
@@ -33,14 +32,21 @@ func (s *Session) terracesChanged() error {
 }
 
 // editTerraces applies f to a copy of the terraces and keeps the result
-// only if it makes a valid surface.
+// only if the design's rules accept it (names, rows, offsets, outlines,
+// and every painted site still on the surface) and it makes a surface.
 func (s *Session) editTerraces(label, key string, f func(ts []design.Terrace) []design.Terrace) error {
 	old := s.d.Terraces
 	cp := slices.Clone(old)
 	for i := range cp {
 		cp[i].Boundary = slices.Clone(cp[i].Boundary)
 	}
-	s.d.Terraces = f(cp)
+	err := s.validEdit(label, func() func() {
+		s.d.Terraces = f(cp)
+		return func() { s.d.Terraces = old }
+	})
+	if err != nil {
+		return err
+	}
 	if err := s.terracesChanged(); err != nil {
 		s.d.Terraces = old
 		s.rebuildSurface()
@@ -95,23 +101,15 @@ func (s *Session) AddTerrace(poly []r2.Point) (int, error) {
 
 // SetTerrace changes terrace i's name, row direction ("x" or "y") and
 // lattice offset (nm). A terrace that steps from another takes its rows
-// from it; asking for other rows makes it stand on its own.
+// from it; asking for other rows makes it stand on its own. The design's
+// rules refuse an empty or used name, rows other than x or y, an offset
+// that is not finite, and a change that takes painted sites off the
+// surface.
 func (s *Session) SetTerrace(i int, name, rows string, offset r2.Point) error {
 	if i < 0 || i >= len(s.d.Terraces) {
 		return fmt.Errorf("no terrace %d", i)
 	}
-	if rows != "x" && rows != "y" {
-		return fmt.Errorf("terrace rows %q: must be x or y", rows)
-	}
 	name = strings.TrimSpace(name)
-	for j, t := range s.d.Terraces {
-		if name == "" || (j != i && t.Name == name) {
-			return fmt.Errorf("terrace name %q: %w", name, ErrName)
-		}
-	}
-	if math.IsNaN(offset.X) || math.IsNaN(offset.Y) || math.IsInf(offset.X, 0) || math.IsInf(offset.Y, 0) {
-		return fmt.Errorf("terrace offset (%g, %g) nm: must be finite", offset.X, offset.Y)
-	}
 	t := s.d.Terraces[i]
 	curRows := s.surf.Terraces[i].Rows.String()
 	if t.Name == name && curRows == rows && t.OffsetNM == [2]float64{offset.X, offset.Y} {

@@ -1,7 +1,6 @@
 package editor
 
 import (
-	"errors"
 	"fmt"
 	"slices"
 	"strings"
@@ -72,35 +71,62 @@ func (s *Session) DuplicateVariant(i int) int {
 	return i + 1
 }
 
-// RenameVariant renames variant i; names must be unique.
+// RenameVariant renames variant i; the design's rules refuse an empty
+// name or one another variant has.
 func (s *Session) RenameVariant(i int, name string) error {
-	if i < 0 || i >= len(s.d.Variants) {
-		return fmt.Errorf("no variant %d", i)
+	if err := s.renameVariant(i, name); err != nil {
+		return err
 	}
-	name = strings.TrimSpace(name)
-	if name == s.d.Variants[i].Name {
-		return nil
-	}
-	for j, v := range s.d.Variants {
-		if name == "" || (j != i && v.Name == name) {
-			return fmt.Errorf("variant name %q: %w", name, ErrName)
-		}
-	}
-	s.d.Variants[i].Name = name
 	s.commit("rename variant", fmt.Sprintf("rename-variant-%d", i), ChangeVariants)
 	return nil
 }
 
-// DeleteVariant removes variant i; the last variant cannot be deleted.
+// CheckVariantName returns what RenameVariant(i, name) would refuse,
+// without renaming anything.
+func (s *Session) CheckVariantName(i int, name string) error {
+	old := ""
+	if i >= 0 && i < len(s.d.Variants) {
+		old = s.d.Variants[i].Name
+	}
+	err := s.renameVariant(i, name)
+	if err == nil && old != "" {
+		s.d.Variants[i].Name = old
+	}
+	return err
+}
+
+// renameVariant renames variant i if the design's rules accept it,
+// without committing.
+func (s *Session) renameVariant(i int, name string) error {
+	if i < 0 || i >= len(s.d.Variants) {
+		return fmt.Errorf("no variant %d", i)
+	}
+	name = strings.TrimSpace(name)
+	old := s.d.Variants[i].Name
+	if name == old {
+		return nil
+	}
+	return s.validEdit(fmt.Sprintf("rename variant %q to %q", old, name), func() func() {
+		s.d.Variants[i].Name = name
+		return func() { s.d.Variants[i].Name = old }
+	})
+}
+
+// DeleteVariant removes variant i; the design's rules refuse to delete
+// the last one.
 func (s *Session) DeleteVariant(i int) error {
 	if i < 0 || i >= len(s.d.Variants) {
 		return fmt.Errorf("no variant %d", i)
 	}
-	if len(s.d.Variants) == 1 {
-		return errors.New("a design keeps at least one variant")
-	}
 	name := s.d.Variants[i].Name
-	s.d.Variants = slices.Delete(s.d.Variants, i, i+1)
+	err := s.validEdit("delete variant "+name, func() func() {
+		vs := s.d.Variants
+		s.d.Variants = slices.Delete(slices.Clone(vs), i, i+1)
+		return func() { s.d.Variants = vs }
+	})
+	if err != nil {
+		return err
+	}
 	s.ids = slices.Delete(s.ids, i, i+1)
 	if s.variant >= len(s.d.Variants) || s.variant > i {
 		s.variant = max(s.variant-1, 0)

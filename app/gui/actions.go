@@ -65,8 +65,13 @@ func (u *UI) StartPlan() {
 	u.planButton.Disable()
 	u.showProgress("Planning "+variant+"…", 0)
 	opt := planner.Options{Seed: u.opts.Seed, Progress: u.progressFunc(variant+": ", 1, 0)}
+	plan := u.jobs.Plan
 	go func() {
-		p, err := editor.BuildPlan(ctx, d, variant, prof, opt)
+		var p *planner.Plan
+		err := editor.Guard(func() (err error) {
+			p, err = plan(ctx, d, variant, prof, opt)
+			return err
+		})
 		fyne.Do(func() { u.planDone(s, p, variant, tok, err) })
 	}()
 }
@@ -75,6 +80,7 @@ func (u *UI) planDone(s *editor.Session, p *planner.Plan, variant string, tok ed
 	if u.jobDone != nil {
 		defer u.jobDone()
 	}
+	defer u.recoverUI("Showing the plan of variant " + variant)
 	u.planCancel = nil
 	u.planButton.Enable()
 	u.hideProgress()
@@ -87,7 +93,7 @@ func (u *UI) planDone(s *editor.Session, p *planner.Plan, variant string, tok ed
 	case errors.Is(err, context.Canceled):
 		u.hintLabel.SetText("Planning cancelled.")
 	case err != nil:
-		dialog.ShowError(fmt.Errorf("planning variant %s: %w", variant, err), u.Win)
+		u.showJobError("Planning variant "+variant, err)
 	default:
 		s.SetPlan(p, variant, tok)
 		u.tabs.Select(u.tabPlan)
@@ -102,7 +108,11 @@ func (u *UI) planDone(s *editor.Session, p *planner.Plan, variant string, tok ed
 // screenshot mode and tests).
 func (u *UI) PlanNow(ctx context.Context) error {
 	s := u.Session
-	p, err := editor.BuildPlan(ctx, s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: u.opts.Seed})
+	var p *planner.Plan
+	err := editor.Guard(func() (err error) {
+		p, err = u.jobs.Plan(ctx, s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: u.opts.Seed})
+		return err
+	})
 	if err != nil {
 		return err
 	}
@@ -139,29 +149,49 @@ func (u *UI) CheckNow() {
 	d, variant, tok := s.DesignCopy(), s.Variant().Name, s.Token()
 	ctx, cancel := context.WithCancel(context.Background())
 	u.checkCancel = cancel
+	check := u.jobs.Check
 	go func() {
-		res, err := editor.CheckDesign(ctx, d, variant)
+		res, err := guardedCheck(check, ctx, d, variant)
 		fyne.Do(func() {
+			if u.jobDone != nil {
+				defer u.jobDone()
+			}
 			if ctx.Err() != nil || s != u.Session || variant != s.Variant().Name {
 				return
 			}
+			defer u.recoverUI("Showing the design-rule check of variant " + variant)
 			u.checkCancel = nil
-			if err != nil {
-				res = editor.CheckResult{Findings: []editor.Finding{{Rule: "design", Error: true, Message: err.Error()}}}
-			}
-			s.SetCheck(res, tok)
+			u.checkDone(s, variant, res, err, tok)
 		})
 	}()
+}
+
+// guardedCheck runs the design-rule check job through Guard.
+func guardedCheck(check func(context.Context, *design.Design, string) (editor.CheckResult, error), ctx context.Context, d *design.Design, variant string) (res editor.CheckResult, err error) {
+	err = editor.Guard(func() (err error) {
+		res, err = check(ctx, d, variant)
+		return err
+	})
+	return res, err
+}
+
+// checkDone records a check's result; a variant that cannot be checked
+// becomes one finding saying why, and a bug is also reported once.
+func (u *UI) checkDone(s *editor.Session, variant string, res editor.CheckResult, err error, tok editor.PlanToken) {
+	if err != nil {
+		if _, bug := editor.BugDetails(err); bug {
+			u.showBugOnce("Checking the design rules of variant "+variant, err)
+		}
+		res = editor.CheckResult{Findings: []editor.Finding{{Rule: "design", Error: true, Message: err.Error()}}}
+	}
+	s.SetCheck(res, tok)
 }
 
 // CheckSync runs the checks on the calling goroutine (tests, screenshot).
 func (u *UI) CheckSync() {
 	s := u.Session
-	res, err := editor.CheckDesign(context.Background(), s.DesignCopy(), s.Variant().Name)
-	if err != nil {
-		res = editor.CheckResult{Findings: []editor.Finding{{Rule: "design", Error: true, Message: err.Error()}}}
-	}
-	s.SetCheck(res, s.Token())
+	res, err := guardedCheck(u.jobs.Check, context.Background(), s.DesignCopy(), s.Variant().Name)
+	u.checkDone(s, s.Variant().Name, res, err, s.Token())
 }
 
 // compareVariants plans every variant in the background and shows the
@@ -179,23 +209,43 @@ func (u *UI) compareVariants() {
 	u.showProgress("Comparing variants…", 0)
 	seed := u.opts.Seed
 	shown, tok := s.Variant().Name, s.Token()
+	plan, check := u.jobs.Plan, u.jobs.Check
 	go func() {
 		res := make([]export.VariantResult, len(names))
 		rules := make([]string, len(names))
 		for i, n := range names {
 			frac := 1 / float64(len(names))
 			opt := planner.Options{Seed: seed, Progress: u.progressFunc(fmt.Sprintf("variant %s (%d of %d): ", n, i+1, len(names)), frac, float64(i)*frac)}
-			p, err := editor.BuildPlan(ctx, d, n, prof, opt)
+			var p *planner.Plan
+			err := editor.Guard(func() (err error) {
+				p, err = plan(ctx, d, n, prof, opt)
+				return err
+			})
 			res[i] = export.VariantResult{Variant: n, Plan: p, Err: err}
-			rules[i] = rulesSummary(ctx, d, n)
+			rules[i] = rulesSummary(check, ctx, d, n)
 			if ctx.Err() != nil {
 				break
+			}
+		}
+		// How each variant differs from the first: two rows that look
+		// alike still say what changed.
+		var diffs map[string][]design.Difference
+		if ctx.Err() == nil {
+			_ = editor.Guard(func() (err error) {
+				diffs, err = editor.VariantDifferences(ctx, d)
+				return err
+			})
+		}
+		for i := range res {
+			if ds, ok := diffs[res[i].Variant]; ok {
+				res[i].Differences, res[i].Compared = ds, true
 			}
 		}
 		fyne.Do(func() {
 			if u.jobDone != nil {
 				defer u.jobDone()
 			}
+			defer u.recoverUI("Showing the comparison")
 			u.planCancel = nil
 			u.planButton.Enable()
 			u.hideProgress()
@@ -211,14 +261,22 @@ func (u *UI) compareVariants() {
 				}
 			}
 			u.showComparison(res, rules)
+			// A bug in planning a variant is reported over the comparison,
+			// which still shows the others.
+			for _, r := range res {
+				if _, bug := editor.BugDetails(r.Err); bug {
+					u.showJobError("Planning variant "+r.Variant+" for the comparison", r.Err)
+					break
+				}
+			}
 		})
 	}()
 }
 
 // rulesSummary says how variant fares under the design rules: "passes",
 // "2 errors", "1 warning".
-func rulesSummary(ctx context.Context, d *design.Design, variant string) string {
-	res, err := editor.CheckDesign(ctx, d, variant)
+func rulesSummary(check func(context.Context, *design.Design, string) (editor.CheckResult, error), ctx context.Context, d *design.Design, variant string) string {
+	res, err := guardedCheck(check, ctx, d, variant)
 	if err != nil {
 		return "cannot be checked"
 	}
@@ -239,7 +297,7 @@ func rulesSummary(ctx context.Context, d *design.Design, variant string) string 
 // rules, when given, is each variant's design-rule summary, shown in a
 // last column: a fast variant that breaks the rules is no choice.
 func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObject {
-	header := []string{"Variant", "Write time", "P10 – P90", "Registrations", "All windows good", "Devices / perfect"}
+	header := []string{"Variant", "Write time", "P10 – P90", "Registrations", "All windows good", "Devices / perfect", "Coverage"}
 	if rules != nil {
 		header = append(header, "Design rules")
 	}
@@ -281,6 +339,12 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 		for _, t := range []string{r.Variant, units.Duration(p.TotalS), units.Duration(p.P10S) + " – " + units.Duration(p.P90S), reg, all, dev} {
 			cells = append(cells, widget.NewLabel(t))
 		}
+		cov := widget.NewLabel("passed")
+		if !p.Coverage.OK {
+			cov.SetText("failed")
+			cov.Importance = widget.DangerImportance
+		}
+		cells = append(cells, cov)
 		if rules != nil {
 			l := widget.NewLabel(rules[i])
 			if rules[i] != "passes" {
@@ -295,7 +359,48 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 	charts := container.NewGridWithColumns(2,
 		container.NewVBox(heading("Write time per variant"), NewBarChart(timeBars)),
 		container.NewVBox(heading("Chance every window takes one donor"), NewBarChart(yieldBars)))
-	return container.NewVBox(table, widget.NewSeparator(), charts, widget.NewSeparator(), mutedLabel(planner.Caution))
+	parts := []fyne.CanvasObject{table}
+	if diffs := differencesView(res); diffs != nil {
+		parts = append(parts, widget.NewSeparator(), diffs)
+	}
+	parts = append(parts, widget.NewSeparator(), charts, widget.NewSeparator(), mutedLabel(planner.Caution))
+	return container.NewVBox(parts...)
+}
+
+// differencesView lists how each compared variant differs from the
+// first, a table of what, its value in the first variant and here; nil
+// when no variant was compared.
+func differencesView(res []export.VariantResult) fyne.CanvasObject {
+	if len(res) < 2 {
+		return nil
+	}
+	cells := []fyne.CanvasObject{heading("Variant"), heading("What differs from " + res[0].Variant), heading("In " + res[0].Variant), heading("In this variant")}
+	n := 0
+	for _, r := range res[1:] {
+		if !r.Compared {
+			continue
+		}
+		n++
+		if len(r.Differences) == 0 {
+			cells = append(cells, widget.NewLabel(r.Variant), widget.NewLabel("the same layout"), widget.NewLabel(""), widget.NewLabel(""))
+		}
+		for _, d := range r.Differences {
+			cells = append(cells, widget.NewLabel(r.Variant), widget.NewLabel(d.What), widget.NewLabel(d.From), widget.NewLabel(d.To))
+		}
+	}
+	if n == 0 {
+		return nil
+	}
+	return container.New(&tableLayout{cols: 4}, cells...)
+}
+
+// exportComparisonTo writes the comparison report of res to path in the
+// background.
+func (u *UI) exportComparisonTo(path string, res []export.VariantResult, es editor.ExportSettings) {
+	write := u.jobs.ExportComparison
+	u.runInBackground("Writing "+filepath.Base(path)+"…", func(ctx context.Context, _ func(string, float64)) error {
+		return write(ctx, path, res, es)
+	}, "Wrote "+path)
 }
 
 func (u *UI) showComparison(res []export.VariantResult, rules []string) {
@@ -306,14 +411,12 @@ func (u *UI) showComparison(res []export.VariantResult, rules []string) {
 	report := widget.NewButtonWithIcon("Export report…", theme.DocumentPrintIcon(), func() {
 		u.withCaution("the comparison report", func(es editor.ExportSettings) {
 			u.chooseFile(safeFileName(u.Session.Design().Name)+"-variants.pdf", []string{".pdf", ".svg"}, func(path string) {
-				u.runInBackground("Writing "+filepath.Base(path)+"…", func(ctx context.Context, _ func(string, float64)) error {
-					return editor.ExportComparison(ctx, path, res, es)
-				}, "Wrote "+path)
+				u.exportComparisonTo(path, res, es)
 			})
 		})
 	})
 	closeBtn := widget.NewButton("Close", func() { d.Hide() })
-	d = dialog.NewCustomWithoutButtons("Compare variants", container.New(&fixedSize{fyne.NewSize(1000, 520)}, content), u.Win)
+	d = dialog.NewCustomWithoutButtons("Compare variants", container.New(&fixedSize{fyne.NewSize(1100, 560)}, content), u.Win)
 	d.SetButtons([]fyne.CanvasObject{closeBtn, report})
 	d.Show()
 }

@@ -343,18 +343,25 @@ func (u *UI) Autosave() <-chan error {
 	info := recoveryInfo{Path: s.Path(), SavedAt: time.Now()}
 	rec := u.recovery
 	gen := rec.generation()
+	save := u.jobs.SaveRecovery
 	go func() {
-		err := rec.write(gen, func() error {
-			d := snap.Design()
-			info.Design = d.Name
-			return writeRecovery(dir, d, info)
+		err := editor.Guard(func() error {
+			return rec.write(gen, func() error {
+				d := snap.Design()
+				info.Design = d.Name
+				return writeRecovery(save, dir, d, info)
+			})
 		})
 		fyne.Do(func() {
 			u.autosaving = false
 			if err == nil && u.Session == s {
 				u.lastAutosave = snap
 			}
-			if err != nil {
+			if _, bug := editor.BugDetails(err); bug {
+				// Not again for this state: the next edit tries anew.
+				u.lastAutosave = snap
+				u.showBugOnce("Writing the recovery copy", err)
+			} else if err != nil {
 				u.hintLabel.SetText("Could not write the recovery copy to " + dir + ": " + err.Error())
 			}
 		})
@@ -392,11 +399,13 @@ func (r *recoveryFiles) remove(f func()) {
 	f()
 }
 
-func writeRecovery(dir string, d *design.Design, info recoveryInfo) error {
+// writeRecovery writes the recovery copy of d with save, and its
+// description beside it.
+func writeRecovery(save func(string, *design.Design) error, dir string, d *design.Design, info recoveryInfo) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return err
 	}
-	if err := editor.SaveDesign(filepath.Join(dir, recoveryName), d); err != nil {
+	if err := save(filepath.Join(dir, recoveryName), d); err != nil {
 		return err
 	}
 	meta, err := json.MarshalIndent(info, "", "  ")
@@ -526,12 +535,16 @@ func (u *UI) exportAs(kind string) {
 	d := u.Session.DesignCopy()
 	u.withCaution("the plan", func(es editor.ExportSettings) {
 		name := safeFileName(u.Session.Design().Name+"-"+p.Variant) + "." + kind
-		u.chooseFile(name, []string{"." + kind}, func(path string) {
-			u.runInBackground("Exporting "+filepath.Base(path)+"…", func(ctx context.Context, progress func(string, float64)) error {
-				return editor.ExportPlan(ctx, path, d, p, es, progress)
-			}, "Exported "+path)
-		})
+		u.chooseFile(name, []string{"." + kind}, func(path string) { u.exportPlanTo(path, d, p, es) })
 	})
+}
+
+// exportPlanTo writes plan p of design d to path in the background.
+func (u *UI) exportPlanTo(path string, d *design.Design, p *planner.Plan, es editor.ExportSettings) {
+	write := u.jobs.Export
+	u.runInBackground("Exporting "+filepath.Base(path)+"…", func(ctx context.Context, progress func(string, float64)) error {
+		return write(ctx, path, d, p, es, progress)
+	}, "Exported "+path)
 }
 
 // chooseFile asks for a file to write, suggesting name, and calls then
@@ -588,15 +601,18 @@ func (u *UI) runInBackground(msg string, job func(ctx context.Context, progress 
 	u.showProgress(msg, 0)
 	progress := u.progressFunc("", 1, 0)
 	go func() {
-		err := job(ctx, progress)
+		err := editor.Guard(func() error { return job(ctx, progress) })
 		fyne.Do(func() {
+			if u.jobDone != nil {
+				defer u.jobDone()
+			}
 			u.planCancel = nil
 			u.hideProgress()
 			switch {
 			case errors.Is(err, context.Canceled):
 				u.hintLabel.SetText("Cancelled; nothing was written.")
 			case err != nil:
-				dialog.ShowError(err, u.Win)
+				u.showJobError(strings.TrimSuffix(msg, "…"), err)
 			default:
 				u.hintLabel.SetText(done)
 			}

@@ -17,50 +17,20 @@ import (
 
 	"dimerpath/app/editor"
 	"dimerpath/app/render"
-	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
 
 // The side panels. Each is a view of the session rebuilt by refresh;
 // every change it offers is a Session method, so it can be undone.
 
-var roleNames = []struct {
-	role design.Role
-	name string
-}{
-	{design.RoleDevice, "device"}, {design.RoleGate, "gate"}, {design.RoleLead, "lead"},
-	{design.RolePad, "contact pad"}, {design.RoleDonor, "donor windows"}, {design.RoleOther, "other"},
-}
-
-var modeNames = []struct {
-	mode design.Mode
-	name string
-}{
-	{design.ModeAuto, "auto (the planner chooses)"},
-	{design.ModeAP, "atomic precision"},
-	{design.ModeFE, "field emission"},
-	{design.ModeHybrid, "hybrid (AP outline, FE fill)"},
-}
-
-func roleOf(r design.Role) string {
-	for _, rn := range roleNames {
-		if rn.role == r {
-			return rn.name
-		}
-	}
-	if r == "" {
-		return "no role"
-	}
-	return string(r)
-}
+// roleOf and modeOf name a role and a write mode as design's tables do.
+func roleOf(r design.Role) string { return r.Name() }
 
 func modeOf(m design.Mode) string {
-	for _, mn := range modeNames {
-		if mn.mode == m {
-			return mn.name
-		}
+	if m == "" {
+		m = design.ModeAuto
 	}
-	return string(m)
+	return m.Label()
 }
 
 // parseNumber parses a decimal number typed into field label.
@@ -226,24 +196,24 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		}
 	}
 	var roles []string
-	for _, rn := range roleNames {
-		roles = append(roles, rn.name)
+	for _, r := range design.Roles {
+		roles = append(roles, roleOf(r))
 	}
 	p.role = widget.NewSelect(roles, func(s string) {
-		for _, rn := range roleNames {
-			if rn.name == s && !p.updating && p.shown >= 0 {
-				p.u.Session.SetRegionRole(p.shown, rn.role)
+		for _, r := range design.Roles {
+			if roleOf(r) == s && !p.updating && p.shown >= 0 {
+				showErr(p.msg, p.u.Session.SetRegionRole(p.shown, r))
 			}
 		}
 	})
 	var modes []string
-	for _, mn := range modeNames {
-		modes = append(modes, mn.name)
+	for _, m := range design.Modes {
+		modes = append(modes, modeOf(m))
 	}
 	p.mode = widget.NewSelect(modes, func(s string) {
-		for _, mn := range modeNames {
-			if mn.name == s && !p.updating && p.shown >= 0 {
-				p.u.Session.SetRegionMode(p.shown, mn.mode)
+		for _, m := range design.Modes {
+			if modeOf(m) == s && !p.updating && p.shown >= 0 {
+				showErr(p.msg, p.u.Session.SetRegionMode(p.shown, m))
 			}
 		}
 	})
@@ -258,7 +228,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		case strings.HasPrefix(s, "As"):
 			sp = "As"
 		}
-		p.u.Session.SetRegionSpecies(p.shown, sp)
+		showErr(p.msg, p.u.Session.SetRegionSpecies(p.shown, sp))
 	})
 	p.tol = widget.NewEntry()
 	p.tol.SetPlaceHolder("mode default")
@@ -409,7 +379,7 @@ func (p *regionsPanel) refreshGaps() {
 		coupled[other] = true
 		width := "measuring…"
 		if w, ok := s.GapWidth(g.A, g.B); ok {
-			width = fmt.Sprintf("%s (%.1f dimer rows)", formatLength(w), w/lattice.RowSpacing)
+			width = w.Text
 		}
 		rm := widget.NewButtonWithIcon("", theme.ContentRemoveIcon(), func() { p.u.Session.RemoveTunnelGap(gi) })
 		rows = append(rows, container.NewBorder(nil, nil, nil, rm, wrapLabel("Tunnel gap to "+other+": "+width)))
@@ -472,7 +442,7 @@ func newFindingsPanel(u *UI) *findingsPanel {
 		})
 	p.list.OnSelected = func(i widget.ListItemID) {
 		u.Session.ChooseFinding(i)
-		u.View.ZoomTo(u.Session.FindingBounds(i))
+		u.View.ZoomTo(r2.RectFromPoints(u.Session.FindingAt(i)))
 	}
 	recheck := widget.NewButtonWithIcon("Check now", theme.ViewRefreshIcon(), u.CheckNow)
 	top := container.NewVBox(container.NewBorder(nil, nil, heading("Design-rule checks"), recheck), p.summary)
@@ -578,13 +548,7 @@ func (u *UI) renameVariant(i int) {
 	e := widget.NewEntry()
 	e.SetText(u.Session.Design().Variants[i].Name)
 	e.Validator = func(s string) error {
-		s = strings.TrimSpace(s)
-		for j, v := range u.Session.Design().Variants {
-			if s == "" || (j != i && v.Name == s) {
-				return fmt.Errorf("%q: %w", s, editor.ErrName)
-			}
-		}
-		return nil
+		return u.Session.CheckVariantName(i, s)
 	}
 	d := dialog.NewForm("Rename variant", "Rename", "Cancel", []*widget.FormItem{widget.NewFormItem("Name", e)}, func(ok bool) {
 		if ok {

@@ -19,16 +19,17 @@ import (
 
 // Colours of the time breakdown, shared by the plan panel and the
 // comparison view.
-var (
-	colAPWrite = render.RGB(0xff, 0x9f, 0x1c)
-	colFEWrite = render.RGB(0x2e, 0xc4, 0xf0)
-	colDwell   = render.RGB(0xe8, 0x43, 0x93)
-	colTravel  = render.RGB(0x9a, 0xa4, 0xb4)
-	colSwitch  = render.RGB(0x9b, 0x6c, 0xff)
-	colRegist  = render.RGB(0xff, 0xd2, 0x3f)
-	colVerify  = render.RGB(0x1d, 0xd3, 0xb0)
-	colYield   = render.RGB(0x51, 0xcf, 0x66)
-)
+var timeColours = map[planner.TimeKind]color.Color{
+	planner.TimeAPWrite:      render.RGB(0xff, 0x9f, 0x1c),
+	planner.TimeFEWrite:      render.RGB(0x2e, 0xc4, 0xf0),
+	planner.TimeDwell:        render.RGB(0xe8, 0x43, 0x93),
+	planner.TimeTravel:       render.RGB(0x9a, 0xa4, 0xb4),
+	planner.TimeModeSwitch:   render.RGB(0x9b, 0x6c, 0xff),
+	planner.TimeRegistration: render.RGB(0xff, 0xd2, 0x3f),
+	planner.TimeVerification: render.RGB(0x1d, 0xd3, 0xb0),
+}
+
+var colYield = render.RGB(0x51, 0xcf, 0x66)
 
 // formatProbability prints a probability as a percentage with three
 // significant digits, or in scientific notation when tiny.
@@ -47,26 +48,14 @@ func formatProbability(p float64) string {
 
 // breakdownBars returns the bars of a time breakdown.
 func breakdownBars(b planner.Breakdown, total float64) []Bar {
-	kinds := []struct {
-		label string
-		s     float64
-		c     color.Color
-	}{
-		{"AP writing", b.APWriteS, colAPWrite},
-		{"FE writing", b.FEWriteS, colFEWrite},
-		{"dwell", b.DwellS, colDwell},
-		{"travel", b.TravelS, colTravel},
-		{"mode switches", b.ModeSwitchS, colSwitch},
-		{"registrations", b.RegistrationS, colRegist},
-		{"verification", b.VerificationS, colVerify},
-	}
 	var bars []Bar
-	for _, k := range kinds {
+	for _, k := range planner.TimeKinds {
+		s := b.Seconds(k)
 		pct := 0.0
 		if total > 0 {
-			pct = 100 * k.s / total
+			pct = 100 * s / total
 		}
-		bars = append(bars, Bar{Label: k.label, Value: k.s, Text: fmt.Sprintf("%s  %.0f %%", units.Duration(k.s), pct), Color: k.c})
+		bars = append(bars, Bar{Label: k.String(), Value: s, Text: fmt.Sprintf("%s  %.0f %%", units.Duration(s), pct), Color: timeColours[k]})
 	}
 	return bars
 }
@@ -132,7 +121,8 @@ func (p *planPanel) refresh() {
 		}
 	}
 	if !pl.Coverage.OK {
-		l := wrapLabel("Coverage check FAILED: see Segments and strokes below.")
+		l := wrapLabel(fmt.Sprintf("Coverage check FAILED: %d site(s) outside every region clear with more than %s; they are marked on the lattice (see Coverage below).",
+			pl.Coverage.OverLimit, formatProbability(pl.Coverage.StrayLimit)))
 		l.Importance = widget.DangerImportance
 		objs = append(objs, l)
 	}
@@ -156,27 +146,61 @@ func (p *planPanel) refresh() {
 		} else if y.All == 0 {
 			dev = "no number of devices suffices"
 		}
-		objs = append(objs, wrapLabel(fmt.Sprintf("%d windows. Every window takes exactly one donor: %s.\nGood windows expected: %.1f of %d.\nDevices to write for one perfect device: %s.",
-			y.Windows, formatProbability(y.All), y.MeanGood, y.Windows, dev)))
+		intervals := ""
+		if y.All95[1] >= y.All && y.All95[1] > 0 {
+			intervals = fmt.Sprintf(" (68 %%: %s, 95 %%: %s, from the templates' uncertainties)",
+				units.ProbabilityRange(y.All68, y.Log10All68), units.ProbabilityRange(y.All95, y.Log10All95))
+		}
+		all := formatProbability(y.All)
+		if y.All == 0 {
+			all = units.Probability(y.All, y.Log10All)
+		}
+		objs = append(objs, wrapLabel(fmt.Sprintf("%d windows. Every window opened as drawn with exactly one donor: %s%s.\n"+
+			"Good windows expected: %.1f of %d. Expected bad: %.2g without a donor, %.2g with two or more, %.2g not opened as drawn.\nDevices to write for one perfect device: %s.",
+			y.Windows, all, intervals, y.MeanGood, y.Windows, y.ExpectedEmpty, y.ExpectedMultiple, y.ExpectedMisopened, dev)))
+		for i, w := range pl.Windows {
+			if i == 8 {
+				objs = append(objs, mutedLabel(fmt.Sprintf("… and %d more windows (all in the exported plan).", len(pl.Windows)-8)))
+				break
+			}
+			p1 := formatProbability(w.P1)
+			if w.P1SD > 0 {
+				p1 += " ± " + formatProbability(w.P1SD)
+			}
+			objs = append(objs, mutedLabel(fmt.Sprintf("%s window of %s at (%.1f, %.1f) nm: opened as drawn %s; p0 %s, p1 %s, p≥2 %s; good %s",
+				w.Template, w.Region, w.At.X, w.At.Y, formatProbability(w.OpenProbability), formatProbability(w.P0), p1,
+				formatProbability(w.P2Plus), formatProbability(w.Probability))))
+		}
 		if len(y.Distribution) > 1 {
 			objs = append(objs, NewBarChart(yieldBars(y)))
 		}
 	}
 	objs = append(objs, widget.NewSeparator(), heading("Segments and strokes"))
 	objs = append(objs, wrapLabel(fmt.Sprintf("%d drift-safe segments, %d strokes, %d tip actions. Profile: %s.", len(pl.Segments), len(pl.Strokes), len(pl.Actions), pl.Profile)))
-	cov := "Coverage check passed: every painted site is written and nothing outside the regions is cleared beyond the edge allowance."
-	if !pl.Coverage.OK {
-		cov = fmt.Sprintf("Coverage check FAILED: %d painted sites not written, %d sites cleared outside the regions. %s", pl.Coverage.Uncovered, pl.Coverage.Overcleared, strings.Join(pl.Coverage.Issues, "; "))
+	c := pl.Coverage
+	objs = append(objs, widget.NewSeparator(), heading("Coverage (exposure model)"))
+	cov := fmt.Sprintf("Passed: no site outside the regions clears with more than %s. Expected: %.3g of %d sites left with their H, %.3g stray sites cleared outside the regions.",
+		formatProbability(c.StrayLimit), c.ExpectedMissed, c.Sites, c.ExpectedStray)
+	if !c.OK {
+		cov = fmt.Sprintf("FAILED: %d site(s) outside every region clear with more than %s. %s", c.OverLimit, formatProbability(c.StrayLimit), strings.Join(c.Issues, "; "))
 	}
 	cl := wrapLabel(cov)
-	if !pl.Coverage.OK {
+	if !c.OK {
 		cl.Importance = widget.DangerImportance
 	}
 	objs = append(objs, cl)
+	for _, r := range c.Regions {
+		pr := formatProbability(r.Probability)
+		if r.Probability < 1e-4 {
+			pr = units.Probability(r.Probability, r.Log10Probability)
+		}
+		objs = append(objs, mutedLabel(fmt.Sprintf("%s: %d sites, %.3g expected missed, %.3g stray (%.3g spurious), P(no error) %s",
+			r.Region, r.Sites, r.ExpectedMissed, r.ExpectedStray, r.ExpectedSpurious, pr)))
+	}
 	if len(pl.Modes) > 0 {
 		objs = append(objs, widget.NewSeparator(), heading("Write modes"))
 		for _, m := range pl.Modes {
-			objs = append(objs, wrapLabel(fmt.Sprintf("%s — %s: %s", m.Region, strings.ToUpper(m.Mode), m.Reason)))
+			objs = append(objs, wrapLabel(fmt.Sprintf("%s — %s: %s", m.Region, m.Mode.Abbrev(), m.Reason)))
 		}
 	}
 	objs = append(objs, widget.NewSeparator(), mutedLabel(planner.Caution))

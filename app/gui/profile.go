@@ -14,6 +14,8 @@ import (
 	"fyne.io/fyne/v2/widget"
 
 	"dimerpath/app/editor"
+	"dimerpath/internal/jsonfile"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -48,9 +50,16 @@ func modeFields(group, prefix string, m func(p *planner.Profile) *planner.ModePr
 	return fs
 }
 
+// modeGroup names the profile group of a write mode's settings:
+// "Atomic-precision mode".
+func modeGroup(m design.Mode) string {
+	a := m.Adjective()
+	return strings.ToUpper(a[:1]) + a[1:] + " mode"
+}
+
 func profileFields() []profileField {
-	fs := modeFields("Atomic-precision mode", "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)
-	fs = append(fs, modeFields("Field-emission mode", "fe", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
+	fs := modeFields(modeGroup(design.ModeAP), "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)
+	fs = append(fs, modeFields(modeGroup(design.ModeFE), "fe", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
 	g := "Dwell (single points)"
 	fs = append(fs,
 		profileField{group: g, path: "dwell.bias_v", label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.BiasV }},
@@ -154,9 +163,9 @@ func (u *UI) openProfileEditor() *profileEditor {
 			groups = append(groups, heading(f.group))
 			form = widget.NewForm()
 			switch f.group {
-			case "Atomic-precision mode":
+			case modeGroup(design.ModeAP):
 				form.Append("Outline", e.apOut)
-			case "Field-emission mode":
+			case modeGroup(design.ModeFE):
 				form.Append("Outline", e.feOut)
 			}
 			last = f.group
@@ -279,15 +288,14 @@ func (e *profileEditor) explain(err error) error {
 		}
 		return strconv.FormatFloat(v, 'g', 6, 64)
 	}
-	var pe *planner.ProfileError
-	if errors.As(err, &pe) {
+	if pe, ok := errors.AsType[*jsonfile.Error](err); ok {
 		var lines []string
 		for _, pr := range pe.Problems {
-			val := fmt.Sprint(pr.Value)
+			val := jsonfile.Quote(pr.Value)
 			if x, ok := pr.Value.(float64); ok {
 				val = shown(pr.Path, x)
 			}
-			lines = append(lines, fmt.Sprintf("%s = %s: %s", name(pr.Path), val, pr.Problem))
+			lines = append(lines, fmt.Sprintf("%s = %s: %s", name(pr.Path), val, pr.Message))
 		}
 		return errors.New(strings.Join(lines, "\n"))
 	}

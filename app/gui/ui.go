@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"image/color"
+	"strings"
 	"time"
 
 	"fyne.io/fyne/v2"
@@ -94,8 +95,15 @@ type UI struct {
 	autosaving   bool             // a recovery copy is being written
 	recovery     *recoveryFiles
 
-	// jobDone, when set (by tests), is called after a background plan or
-	// comparison has reported back.
+	// jobs is the background work; tests put in their own.
+	jobs editor.Jobs
+	// bugsShown holds the bug reports already shown for the automatic
+	// jobs (checks, autosave), so one bug is not reported after every
+	// edit.
+	bugsShown map[string]bool
+
+	// jobDone, when set (by tests), is called after a background plan,
+	// check, export or comparison has reported back.
 	jobDone func()
 }
 
@@ -107,7 +115,7 @@ func New(a fyne.App, w fyne.Window, s *editor.Session, o Options) *UI {
 	}
 	// Before any file dialog: saving must never empty a file first.
 	installLazyFiles()
-	u := &UI{App: a, Win: w, Session: s, opts: o, toolButtons: map[editor.Tool]*widget.Button{}, recovery: &recoveryFiles{}}
+	u := &UI{App: a, Win: w, Session: s, opts: o, toolButtons: map[editor.Tool]*widget.Button{}, recovery: &recoveryFiles{}, jobs: editor.DefaultJobs(), bugsShown: map[string]bool{}}
 	u.View = NewLatticeView(s)
 	u.View.OnCursor = u.showCursor
 	u.View.OnRune = u.typedRune
@@ -554,6 +562,9 @@ func (u *UI) refreshLegend() {
 	if len(u.Session.Design().Fiducials) > 0 {
 		rows = append(rows, legendRow(legendText("⊕"), "fiducial mark"))
 	}
+	if refs := u.Session.References(); len(refs) > 0 {
+		rows = append(rows, legendRow(swatch(render.ColReference, 14, 2), "layout overlay (not written): "+legendName(strings.Join(refs, ", "))))
+	}
 	if surf := u.Session.Surface(); surf != nil && len(surf.Terraces) > 1 {
 		rows = append(rows, widget.NewSeparator())
 		for i, t := range surf.Terraces {
@@ -741,6 +752,9 @@ func (u *UI) buildMenu() {
 		fyne.NewMenuItemSeparator(),
 		item("Save", ctrl(fyne.KeyS), func() { u.save(nil) }),
 		item("Save as…", ctrlShift(fyne.KeyS), func() { u.saveAs(nil) }),
+		fyne.NewMenuItemSeparator(),
+		item("Import layout (GDSII)…", nil, u.importLayoutDialog),
+		item("Remove layout overlays…", nil, u.removeReferences),
 		fyne.NewMenuItemSeparator(),
 	)
 	file.Items = append(file.Items, u.exportMenu...)

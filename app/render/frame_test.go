@@ -1,6 +1,8 @@
 package render
 
 import (
+	"image/color"
+	"slices"
 	"testing"
 
 	"github.com/golang/geo/r2"
@@ -46,17 +48,68 @@ func bigScene(tb testing.TB, n int) *Scene {
 // set, for a look by eye.
 func savePNG(t *testing.T, name string, r *Renderer) { rendertest.SaveImage(t, name, r.Image()) }
 
+// TestFrameLooks draws the 10^7-site scene at the whole field, at
+// 0.25 nm/px and at atomic zoom, and checks pixels whose colour follows
+// from the scene alone: inside the painted block its layer's full
+// colour, unpainted terrace one of that terrace's background shades
+// (plain, trough, hatch), beyond the field the outside colour; zoomed in
+// to single sites a painted site in its layer's colour and the clean
+// site beside it in the clean-H colour. Set DIMERPATH_FRAME_DIR to keep
+// the frames.
 func TestFrameLooks(t *testing.T) {
 	sc := bigScene(t, 10_000_000)
+	surf := sc.Surface
+	shades := func(ti int) []color.NRGBA {
+		c := ColTerrace[ti%len(ColTerrace)]
+		return []color.NRGBA{c, Mix(c, RGB(0, 0, 0), 0.3), Mix(c, ColHatch, 0.6)}
+	}
+	one := func(c color.NRGBA) []color.NRGBA { return []color.NRGBA{c} }
+	// Terrace 1 (rows along y) holds layer 1: rows 2000-2009, dimers
+	// 1800-2099. Dimer 1799 of its row 2005 is clean.
+	painted := lattice.Site{Terrace: 1, Row: 2005, Dimer: 1800}
+	clean := lattice.Site{Terrace: 1, Row: 2005, Dimer: 1799}
+	whole := FitView(surf.Field, 1600, 1000, 20)
+	type probe struct {
+		name string
+		at   r2.Point
+		want []color.NRGBA
+	}
+	cases := []struct {
+		name   string
+		v      View
+		atomic bool
+		probes []probe
+	}{
+		{"whole", whole, false, []probe{
+			{"inside the block", r2.Point{X: 650, Y: 700}, one(RegionColor(0))},
+			{"terrace 0 unpainted", r2.Point{X: 650, Y: 1800}, shades(0)},
+			{"terrace 1 unpainted", r2.Point{X: 1900, Y: 200}, shades(1)},
+			{"beyond the field", r2.Point{X: -50, Y: 1000}, one(ColOutside)},
+		}},
+		{"mid", whole.CenteredOn(surf.DimerCentre(1, 2005, 1950), 0.25), false, []probe{
+			{"dimer inside layer 1", surf.DimerCentre(1, 2005, 1950), one(RegionColor(1))},
+			{"unpainted row beside it", surf.DimerCentre(1, 2015, 1950), shades(1)},
+		}},
+		{"atomic", whole.CenteredOn(surf.Position(painted), 0.04), true, []probe{
+			{"painted site", surf.Position(painted), one(RegionColor(1))},
+			{"clean site", surf.Position(clean), one(ColCleanH)},
+		}},
+	}
 	var r Renderer
-	v := FitView(sc.Surface.Field, 1600, 1000, 20)
-	r.Render(sc, v)
-	savePNG(t, "whole.png", &r)
-	v = v.CenteredOn(r2.Point{X: 1538, Y: 692}, 0.04)
-	r.Render(sc, v)
-	savePNG(t, "atomic.png", &r)
-	v = v.CenteredOn(r2.Point{X: 1538, Y: 692}, 0.04)
-	v.Scale = 0.25
-	r.Render(sc, v)
-	savePNG(t, "mid.png", &r)
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			img := r.Render(sc, c.v)
+			savePNG(t, c.name+".png", &r)
+			if r.Stats().Atomic != c.atomic {
+				t.Errorf("drawn site by site: %v, want %v", r.Stats().Atomic, c.atomic)
+			}
+			for _, p := range c.probes {
+				x, y := c.v.ToScreen(p.at)
+				got := color.NRGBAModel.Convert(img.At(int(x), int(y))).(color.NRGBA)
+				if !slices.Contains(p.want, got) {
+					t.Errorf("%s at %v: pixel (%d, %d) is %v, want one of %v", p.name, p.at, int(x), int(y), got, p.want)
+				}
+			}
+		})
+	}
 }

@@ -23,6 +23,7 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 		}
 		drawPath(pb, v, t.Boundary, true, 2, ColStep, 200)
 	}
+	drawReferences(pb, v, sc.References)
 	if rt := sc.Route; rt != nil {
 		vb := v.Bounds()
 		for _, m := range rt.Moves {
@@ -67,17 +68,9 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 		if m.Error {
 			c = ColError
 		}
-		ax, ay := v.ToScreen(r2.Point{X: m.Bounds.X.Lo, Y: m.Bounds.Y.Hi})
-		bx, by := v.ToScreen(r2.Point{X: m.Bounds.X.Hi, Y: m.Bounds.Y.Lo})
-		// At least 16 px, so a point finding shows.
-		if bx-ax < 16 {
-			cx := (ax + bx) / 2
-			ax, bx = cx-8, cx+8
-		}
-		if by-ay < 16 {
-			cy := (ay + by) / 2
-			ay, by = cy-8, cy+8
-		}
+		// A 16 px box around the point, so it shows at any zoom.
+		x, y := v.ToScreen(m.At)
+		ax, ay, bx, by := x-8, y-8, x+8, y+8
 		wd := 2
 		if m.Selected {
 			wd = 4
@@ -120,6 +113,24 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 			for _, q := range p.Points {
 				x, y := v.ToScreen(q)
 				pb.fillRect(int(x)-2, int(y)-2, int(x)+3, int(y)+3, ColPreview, 256)
+			}
+		}
+	}
+}
+
+// drawReferences outlines the reference overlays' polygons, dashed, so
+// they read as guides rather than as sites to write.
+func drawReferences(pb *pixbuf, v View, refs []Reference) {
+	vb := v.Bounds()
+	for _, r := range refs {
+		for i, poly := range r.Polygons {
+			if i < len(r.Bounds) && !r.Bounds[i].Intersects(vb) {
+				continue
+			}
+			for k := range poly {
+				ax, ay := v.ToScreen(poly[k])
+				bx, by := v.ToScreen(poly[(k+1)%len(poly)])
+				pb.dashed(ax, ay, bx, by, 6, 3, ColReference, 230)
 			}
 		}
 	}

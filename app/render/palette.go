@@ -23,6 +23,8 @@ var (
 	ColMove     = RGB(0xf0, 0xf0, 0xf0)
 	ColPreview  = RGB(0xff, 0xff, 0xff)
 	ColSelect   = RGB(0xff, 0xff, 0xff)
+	// ColReference outlines reference overlays (imported layouts).
+	ColReference = RGB(0x7c, 0xf0, 0xd8)
 )
 
 // regionPalette colours regions by their index in the variant; the

@@ -6,6 +6,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -29,6 +30,15 @@ type Scene struct {
 	// SelectedShape is the extent of the selected shape (nm), drawn with
 	// corner handles, or nil.
 	SelectedShape *r2.Rect
+	// References are the design's reference overlays (imported chip
+	// layouts), polygons in field nm, drawn as dashed outlines.
+	References []Reference
+}
+
+// Reference is one reference overlay: its polygons and their extent.
+type Reference struct {
+	Polygons [][]r2.Point
+	Bounds   []r2.Rect // of each polygon, so the view skips those out of sight
 }
 
 // Layer is one region's sites as the view draws them.
@@ -43,8 +53,8 @@ type Layer struct {
 
 // Mark is a design-rule finding drawn on the view.
 type Mark struct {
-	Bounds   r2.Rect // field nm; a point finding has a degenerate rectangle
-	Error    bool    // error (red) or warning (amber)
+	At       r2.Point // the position the finding names, field nm
+	Error    bool     // error (red) or warning (amber)
 	Selected bool
 }
 
@@ -79,8 +89,8 @@ type RouteStroke struct {
 // segment and as wide as their mode's line, idle moves, and the
 // fiducials segments register on.
 func RouteOf(p *planner.Plan) *RouteOverlay {
-	width := map[planner.WriteMode]float64{}
-	raster := map[planner.WriteMode]float64{}
+	width := map[design.Mode]float64{}
+	raster := map[design.Mode]float64{}
 	for _, c := range p.Conditions {
 		// A mode may be listed more than once (AP lines and AP dwells);
 		// lines are drawn as wide as the widest.
@@ -107,7 +117,7 @@ func RouteOf(p *planner.Plan) *RouteOverlay {
 		switch {
 		case st.Kind == planner.StrokeRaster:
 			w = raster[st.Mode]
-		case st.Mode == planner.AP:
+		case st.Mode == design.ModeAP:
 			// AP lines follow dimer rows; drawn at most a row wide they
 			// do not overlap their neighbours.
 			w = min(w, 0.9*lattice.RowSpacing)

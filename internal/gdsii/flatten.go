@@ -123,7 +123,7 @@ type FlattenOptions struct {
 // themselves, directly or through others.
 var ErrCycle = errors.New("reference cycle")
 
-type counts struct{ elements, points float64 }
+type counts struct{ elements, points, polygons float64 }
 
 // Flatten expands the structure named top (empty: every structure that
 // no other references, together) into polygons, paths and labels in its
@@ -189,6 +189,7 @@ func (l *Library) Flatten(top string, opt FlattenOptions) (*Flat, error) {
 		for _, b := range s.Boundaries {
 			if keep(b.Layer, b.Datatype) {
 				c.elements++
+				c.polygons++
 				c.points += float64(len(b.XY))
 			}
 		}
@@ -224,6 +225,7 @@ func (l *Library) Flatten(top string, opt FlattenOptions) (*Flat, error) {
 			}
 			n := float64(r.Instances())
 			c.elements += n * cc.elements
+			c.polygons += n * cc.polygons
 			c.points += n * cc.points
 			if c.elements > float64(lim.Elements) || c.points > float64(lim.Points) {
 				return counts{}, refErr("structure %q: expanding %s of %q (%d x %d) gives %.3g elements with %.3g points, more than the limits of %d and %d: %w",
@@ -242,6 +244,7 @@ func (l *Library) Flatten(top string, opt FlattenOptions) (*Flat, error) {
 			return nil, err
 		}
 		total.elements += c.elements
+		total.polygons += c.polygons
 		total.points += c.points
 		if total.elements > float64(lim.Elements) || total.points > float64(lim.Points) {
 			return nil, fmt.Errorf("gdsii: the top structures expand to %.3g elements with %.3g points, more than the limits of %d and %d: %w",
@@ -252,7 +255,7 @@ func (l *Library) Flatten(top string, opt FlattenOptions) (*Flat, error) {
 		return &Flat{}, nil
 	}
 	// Then expand into one backing array of points.
-	f := &Flat{}
+	f := &Flat{Polygons: make([]FlatPolygon, 0, int(total.polygons))}
 	pts := make([]Vec, 0, int(total.points))
 	take := func(n int) []Vec {
 		start := len(pts)

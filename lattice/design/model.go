@@ -114,7 +114,8 @@ type TunnelGap struct {
 	MaxNM float64 `json:"max_nm,omitempty"`
 }
 
-// Role is what a region is for in the device.
+// Role is what a region is for in the device. Its value is its spelling
+// in design and plan files; Name gives its display name (names.go).
 type Role string
 
 const (
@@ -126,7 +127,11 @@ const (
 	RoleOther  Role = "other"  // marks, test lines
 )
 
-// Mode is the write mode asked for a region.
+// Mode is a write mode: the mode asked for a region (ModeAuto lets the
+// planner choose), the mode the planner gives a region, and the mode a
+// stroke is written in (ModeAP or ModeFE). Its value is its spelling in
+// design and plan files; Abbrev, Name, Adjective and Label give its
+// display names (names.go).
 type Mode string
 
 const (

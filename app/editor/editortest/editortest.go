@@ -107,10 +107,10 @@ func HandPlan(s *editor.Session) *planner.Plan {
 	f := r2.Point{X: 20, Y: 20}
 	return &planner.Plan{
 		Design: "tiny", Variant: s.Variant().Name, Profile: "hand",
-		Conditions: []planner.Conditions{{Mode: planner.AP, LineWidthNM: 0.8}},
+		Conditions: []planner.Conditions{{Mode: design.ModeAP, LineWidthNM: 0.8}},
 		Strokes: []planner.Stroke{
-			{ID: 0, Region: "lead", Mode: planner.AP, Kind: planner.StrokeLine, Path: []r2.Point{a, b}, Segment: 0, Window: -1},
-			{ID: 1, Region: "lead", Mode: planner.AP, Kind: planner.StrokeLine, Path: []r2.Point{c, d}, Segment: 1, Window: -1},
+			{ID: 0, Region: "lead", Mode: design.ModeAP, Kind: planner.StrokeLine, Path: []r2.Point{a, b}, Segment: 0, Window: -1},
+			{ID: 1, Region: "lead", Mode: design.ModeAP, Kind: planner.StrokeLine, Path: []r2.Point{c, d}, Segment: 1, Window: -1},
 		},
 		Segments: []planner.Segment{
 			{Index: 0, Fiducial: "F1", FiducialAt: f, Strokes: []int{0}},

@@ -138,12 +138,20 @@ func Read(r io.Reader, name string, opt Options) (*Layout, error) {
 	}
 	out := &Layout{File: name, Top: opt.Top, Layers: opt.Layers, Skipped: lib.Skipped, Found: found(lib)}
 	nm := func(v gdsii.Vec) r2.Point { return r2.Point{X: v.X * nmPerUnit, Y: v.Y * nmPerUnit} }
+	// One backing array for every polygon's points: a flattened array of
+	// 10^6 windows would otherwise cost 10^6 allocations.
+	n := 0
 	for _, p := range flat.Polygons {
-		pts := make([]r2.Point, len(p.XY))
-		for i, v := range p.XY {
-			pts[i] = nm(v)
+		n += len(p.XY)
+	}
+	backing := make([]r2.Point, 0, n)
+	out.Polygons = make([]Polygon, 0, len(flat.Polygons))
+	for _, p := range flat.Polygons {
+		start := len(backing)
+		for _, v := range p.XY {
+			backing = append(backing, nm(v))
 		}
-		out.Polygons = append(out.Polygons, Polygon{Layer: p.Layer, Datatype: p.Datatype, Points: pts})
+		out.Polygons = append(out.Polygons, Polygon{Layer: p.Layer, Datatype: p.Datatype, Points: backing[start:len(backing):len(backing)]})
 	}
 	for _, p := range flat.Paths {
 		pts := make([]r2.Point, len(p.XY))
@@ -294,13 +302,18 @@ func (l *Layout) labelList() string {
 
 // FieldPolygons returns the layout's polygons in field nm through f.
 func (l *Layout) FieldPolygons(f lattice.ChipFrame) []lattice.Polygon {
+	n := 0
+	for _, p := range l.Polygons {
+		n += len(p.Points)
+	}
+	backing := make([]r2.Point, 0, n)
 	out := make([]lattice.Polygon, len(l.Polygons))
 	for i, p := range l.Polygons {
-		q := make(lattice.Polygon, len(p.Points))
-		for j, v := range p.Points {
-			q[j] = f.ToField(v)
+		start := len(backing)
+		for _, v := range p.Points {
+			backing = append(backing, f.ToField(v))
 		}
-		out[i] = q
+		out[i] = lattice.Polygon(backing[start:len(backing):len(backing)])
 	}
 	return out
 }
@@ -372,4 +385,59 @@ func AddReference(d *design.Design, r design.Reference) error {
 	}
 	d.References = append(d.References, r)
 	return nil
+}
+
+// Contents is what a layout holds, for choosing what to import: its
+// layers with their element counts (each element once, not per
+// placement), sorted by layer and data type, and its labels flattened
+// to chip nm.
+type Contents struct {
+	Layers []LayerCount
+	Labels []Label
+	Tops   []string
+}
+
+// LayerCount is one layer/data type and how many polygons and paths it
+// holds.
+type LayerCount struct {
+	Layer    Layer
+	Elements int
+}
+
+// Inspect reads the layout at path and says what it holds.
+func Inspect(path string) (*Contents, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	lib, err := gdsii.Read(f)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	c := &Contents{}
+	for k, n := range found(lib) {
+		l, err := ParseLayer(k)
+		if err == nil {
+			c.Layers = append(c.Layers, LayerCount{Layer: l, Elements: n})
+		}
+	}
+	slices.SortFunc(c.Layers, func(a, b LayerCount) int {
+		if a.Layer.Layer != b.Layer.Layer {
+			return int(a.Layer.Layer) - int(b.Layer.Layer)
+		}
+		return int(a.Layer.Datatype) - int(b.Layer.Datatype)
+	})
+	for _, t := range lib.Tops() {
+		c.Tops = append(c.Tops, t.Name)
+	}
+	flat, err := lib.Flatten("", gdsii.FlattenOptions{Keep: func(int16, int16) bool { return false }, KeepText: func(int16, int16) bool { return true }})
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	nmPerUnit := lib.MetresPerUnit * 1e9
+	for _, t := range flat.Texts {
+		c.Labels = append(c.Labels, Label{Text: t.String, Layer: t.Layer, TextType: t.TextType, At: r2.Point{X: t.At.X * nmPerUnit, Y: t.At.Y * nmPerUnit}})
+	}
+	return c, nil
 }
