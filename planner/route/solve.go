@@ -2,6 +2,8 @@ package route
 
 import (
 	"context"
+	"fmt"
+	"os"
 	"time"
 )
 
@@ -90,7 +92,24 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 		return nil, nil, err
 	}
 	tour := greedyTour(g, nb)
-	s := newSolver(g, nb, tour)
+	lists := nb
+	alpha := expAlpha && g.real == len(items) && g.n() <= alphaMax
+	if alpha {
+		pool := buildPool(g, expPoolK, expPoolQ)
+		if cand := alphaCandidates(g, pool, tour, expCandK, expIters(g.n())); cand != nil {
+			lists = cand
+		} else {
+			alpha = false
+		}
+	}
+	if expDebug {
+		fmt.Fprintf(os.Stderr, "n %d: candidates at %v\n", g.n(), time.Since(c.begin))
+	}
+	s := newSolver(g, lists, tour)
+	if alpha {
+		s.deep = expDeep
+		s.useLK = expLK
+	}
 	if g.oneWay >= 2 {
 		// Turning the backward one-way strokes of the greedy tour round
 		// can cost much, and the one-way edges block most reversals
@@ -132,6 +151,9 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 		return o, r, c.ctx.Err()
 	}
 	c.report("local", s.length-fixedLen, 0)
+	if expDebug {
+		fmt.Fprintf(os.Stderr, "n %d: local opt %.1f at %v\n", s.n, s.length, time.Since(c.begin))
+	}
 
 	r := newRNG(c.seed)
 	t0 := time.Now()
@@ -143,6 +165,7 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 	// search before its last gain, has converged.
 	stall := max(10_000, 50*int(s.n))
 	lastGain := 0
+	nk := 0
 	for i := 0; kicks <= 0 || i < kicks; i++ {
 		if i&15 == 0 {
 			if c.ctx.Err() != nil {
@@ -150,6 +173,9 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 			}
 			now := time.Now()
 			if !deadline.IsZero() && !now.Before(deadline) {
+				break
+			}
+			if expCPU > 0 && cpuNow() >= expCPU {
 				break
 			}
 			if kicks > 0 {
@@ -161,6 +187,7 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 				c.report("improve", s.length-fixedLen, frac)
 			}
 		}
+		nk++
 		if s.kick(r, kickSegMax) {
 			lastGain = i
 		} else if c.converge && i-lastGain > max(stall, lastGain) {
@@ -168,6 +195,9 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 		}
 	}
 	c.report("improve", s.length-fixedLen, 1)
+	if expDebug {
+		fmt.Fprintf(os.Stderr, "n %d: final %.1f at %v, %d kicks, last gain at %d\n", s.n, s.length, time.Since(c.begin), nk, lastGain)
+	}
 	o, rv := s.extract()
 	return o, rv, c.ctx.Err()
 }
