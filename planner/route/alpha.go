@@ -354,10 +354,51 @@ func alphaCandidates(g *graph, pool *neighbours, tour []int32, kc, iters int) *n
 	if !ok {
 		return nil
 	}
+	alpha := alphaValues(sg, t, pi)
+	type scored struct {
+		v     int32
+		alpha float64
+		d     float64
+	}
+	cand := &neighbours{k: kc, id: make([]int32, g.n()*kc), dst: make([]float64, g.n()*kc)}
+	for i := range cand.id {
+		cand.id[i] = -1
+	}
+	var buf []scored
+	for v := range sg.n {
+		buf = buf[:0]
+		for k := sg.off[v]; k < sg.off[v+1]; k++ {
+			if e := sg.adj[k]; !sg.fixed[e] {
+				buf = append(buf, scored{sg.other[k], alpha[e], sg.c[e]})
+			}
+		}
+		slices.SortFunc(buf, func(x, y scored) int {
+			if c := cmp.Compare(x.alpha, y.alpha); c != 0 {
+				return c
+			}
+			return cmp.Compare(x.d, y.d)
+		})
+		buf = buf[:min(len(buf), kc)]
+		slices.SortFunc(buf, func(x, y scored) int { return cmp.Compare(x.d, y.d) })
+		o := int(v) * kc
+		for j, s := range buf {
+			cand.id[o+j], cand.dst[o+j] = s.v, s.d
+		}
+	}
+	return cand
+}
+
+// alphaValues returns the α-value of every edge of sg for the spanning
+// tree t built with penalties pi: 0 for a tree edge, else its transformed
+// cost less the largest transformed cost on the tree path between its
+// ends (fixed edges, which every 1-tree holds, never count as the
+// largest). The special node's extra edge is left out, as in the
+// spanning-tree form of α (Helsgaun 2000, §4.1); O(m log n) by binary
+// lifting.
+func alphaValues(sg *sparseGraph, t *oneTree, pi []float64) []float64 {
 	n := sg.n
-	// Binary lifting over the tree: up[j][v] is v's 2^j-th ancestor and
-	// mx[j][v] the largest transformed cost on the way (fixed edges count
-	// as -Inf: they are in every 1-tree).
+	// up[j][v] is v's 2^j-th ancestor and mx[j][v] the largest
+	// transformed cost on the way there.
 	depth := make([]int32, n)
 	levels := 1
 	for (1 << levels) < int(n) {
@@ -411,44 +452,15 @@ func alphaCandidates(g *graph, pool *neighbours, tour []int32, kc, iters int) *n
 		}
 		return max(best, mx[0][u], mx[0][v])
 	}
-	type scored struct {
-		v     int32
-		alpha float64
-		d     float64
-	}
-	cand := &neighbours{k: kc, id: make([]int32, g.n()*kc), dst: make([]float64, g.n()*kc)}
-	for i := range cand.id {
-		cand.id[i] = -1
-	}
-	var buf []scored
-	for v := range n {
-		buf = buf[:0]
-		for k := sg.off[v]; k < sg.off[v+1]; k++ {
-			u := sg.other[k]
-			e := sg.adj[k]
-			if sg.fixed[e] {
-				continue
-			}
-			a := 0.0
-			if t.parent[u] != v && t.parent[v] != u {
-				a = sg.c[e] + pi[u] + pi[v] - pathMax(u, v)
-			}
-			buf = append(buf, scored{u, a, sg.c[e]})
+	alpha := make([]float64, len(sg.a))
+	for e := range sg.a {
+		u, v := sg.a[e], sg.b[e]
+		if sg.fixed[e] || t.parent[u] == v || t.parent[v] == u {
+			continue
 		}
-		slices.SortFunc(buf, func(x, y scored) int {
-			if c := cmp.Compare(x.alpha, y.alpha); c != 0 {
-				return c
-			}
-			return cmp.Compare(x.d, y.d)
-		})
-		buf = buf[:min(len(buf), kc)]
-		slices.SortFunc(buf, func(x, y scored) int { return cmp.Compare(x.d, y.d) })
-		o := int(v) * kc
-		for j, s := range buf {
-			cand.id[o+j], cand.dst[o+j] = s.v, s.d
-		}
+		alpha[e] = max(0, sg.c[e]+pi[u]+pi[v]-pathMax(u, v))
 	}
-	return cand
+	return alpha
 }
 
 // buildPool is the candidate pool α chooses from: each node's k nearest
@@ -466,7 +478,7 @@ func buildPool(g *graph, k, q int) *neighbours {
 	}
 	t := newKDTree(g.x, g.y, idx)
 	b := newKNNBuf(k)
-	qb := newKNNBuf(q)
+	qb := newKNNBuf(max(q, 1))
 	order := append([]int32(nil), t.idx...)
 	for _, v := range order {
 		b.qx, b.qy, b.ex1, b.ex2 = g.x[v], g.y[v], v, g.partner[v]
@@ -479,6 +491,9 @@ func buildPool(g *graph, k, q int) *neighbours {
 		}
 		qb.qx, qb.qy, qb.ex1, qb.ex2 = b.qx, b.qy, b.ex1, b.ex2
 		for quad := range int8(4) {
+			if q == 0 {
+				break
+			}
 			qb.quad = quad
 			t.nearest(qb)
 			for j, u := range qb.id {

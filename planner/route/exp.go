@@ -36,9 +36,13 @@ func cpuNow() time.Duration {
 	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 }
 
+var expStrokeAlpha = os.Getenv("RX_SA") == "1"
 var expLK = os.Getenv("RX_LK") == "1"
+var expLKOnly = os.Getenv("RX_LKONLY") == "1"
 
 func init() {
+	lkStepRev = int32(envInt("RX_STEPREV", int(lkStepRev)))
+	kickSegMax = int32(envInt("RX_SEG", int(kickSegMax)))
 	lkSteps = envInt("RX_STEPS", lkSteps)
 	lkBestMin = envInt("RX_BESTMIN", lkBestMin)
 	if v := os.Getenv("RX_BREADTH"); v != "" {

@@ -5,74 +5,19 @@ import (
 	"testing"
 	"time"
 
-	"bufio"
 	"math/rand/v2"
 	"math"
 	"context"
 	"slices"
-	"strconv"
-	"strings"
 )
-
-func loadExp(t *testing.T, name string) []Item {
-	b, err := os.ReadFile("../../testdata/tsplib/" + name + ".tsp")
-	if err != nil {
-		t.Fatal(err)
-	}
-	var items []Item
-	in := false
-	sc := bufio.NewScanner(strings.NewReader(string(b)))
-	for sc.Scan() {
-		l := strings.TrimSpace(sc.Text())
-		if l == "NODE_COORD_SECTION" {
-			in = true
-			continue
-		}
-		if !in || l == "EOF" || l == "" {
-			continue
-		}
-		f := strings.Fields(l)
-		x, _ := strconv.ParseFloat(f[1], 64)
-		y, _ := strconv.ParseFloat(f[2], 64)
-		items = append(items, Item{A: Point{x, y}, B: Point{x, y}})
-	}
-	return items
-}
-
-func loadTour(t *testing.T, name string) []int {
-	b, err := os.ReadFile("../../testdata/tsplib/" + name + ".opt.tour")
-	if err != nil {
-		t.Fatal(err)
-	}
-	var tour []int
-	in := false
-	for _, l := range strings.Split(string(b), "\n") {
-		l = strings.TrimSpace(l)
-		if l == "TOUR_SECTION" {
-			in = true
-			continue
-		}
-		if !in {
-			continue
-		}
-		for _, f := range strings.Fields(l) {
-			v, err := strconv.Atoi(f)
-			if err != nil || v < 0 {
-				return tour
-			}
-			tour = append(tour, v-1)
-		}
-	}
-	return tour
-}
 
 func TestExpAlpha(t *testing.T) {
 	for _, name := range []string{"pr1002", "pcb442", "a280"} {
-		items := loadExp(t, name)
+		items := loadTestTSPLIB(t, name)
 		g := newGraph(items, nil, nil, false)
 		nb := buildNeighbours(g, 10, false)
 		tour := greedyTour(g, nb)
-		opt := loadTour(t, name)
+		opt := loadTestTour(t, name)
 		for _, iters := range []int{0, 20, 50, 100, 300} {
 			t0 := time.Now()
 			pool := buildPool(g, 10, 2)
@@ -113,9 +58,9 @@ func TestExpProfile(t *testing.T) {
 	if name == "" {
 		t.Skip()
 	}
-	items := loadExp(t, name)
+	items := loadTestTSPLIB(t, name)
 	t0 := time.Now()
-	s, err := Solve(context.Background(), Problem{Items: items, Closed: true}, Options{Seed: 1, MaxKicks: envInt("RX_KICKS", 0), Budget: time.Duration(envInt("RX_BUDGET_MS", 0)) * time.Millisecond})
+	s, err := Solve(context.Background(), Problem{Items: items, Closed: true}, Options{Seed: int64(envInt("RX_SEED", 1)), MaxKicks: envInt("RX_KICKS", 0), Budget: time.Duration(envInt("RX_BUDGET_MS", 0)) * time.Millisecond})
 	defer func() { t.Logf("wall %v", time.Since(t0)) }()
 	if err != nil {
 		t.Fatal(err)
@@ -129,35 +74,30 @@ func TestExpProfile(t *testing.T) {
 	t.Logf("%s: %d", name, rl)
 }
 
-func TestExpLKKeepsTour(t *testing.T) {
-	r := rand.New(rand.NewPCG(1, 1))
-	for trial := range 200 {
-		n := 20 + r.IntN(60)
-		items := randomItems(r, n, 0, 10)
-		g := newGraph(items, nil, nil, false)
-		nb := buildNeighbours(g, 8, false)
-		order := r.Perm(n)
-		rev := make([]bool, n)
-		s := newSolver(g, nb, g.tourFromOrder(order, rev))
-		s.useLK = true
-		for range 100 {
-			v := int32(r.IntN(int(s.n)))
-			before := s.tourLength()
-			l0 := s.length
-			if s.lkSearch(v) {
-				after := s.tourLength()
-				if math.Abs(after-before-(s.length-l0)) > 1e-6 {
-					t.Fatalf("trial %d: predicted %v real %v", trial, s.length-l0, after-before)
-				}
-				if after > before {
-					t.Fatalf("worse")
-				}
-			} else if math.Abs(s.tourLength()-before) > 1e-9 || s.length != l0 {
-				t.Fatalf("trial %d: failed search changed the tour", trial)
-			}
-			if err := tourError(s); err != "" {
-				t.Fatal(err)
-			}
-		}
+func expStrokes(n int, seed uint64) []Item {
+	r := rand.New(rand.NewPCG(seed, 0x57c0))
+	side := math.Sqrt(float64(n))
+	items := make([]Item, n)
+	for i := range items {
+		mx, my := r.Float64()*side, r.Float64()*side
+		l := 0.5 + r.Float64()
+		a := r.Float64() * 2 * math.Pi
+		dx, dy := l/2*math.Cos(a), l/2*math.Sin(a)
+		items[i] = Item{A: Point{X: mx - dx, Y: my - dy}, B: Point{X: mx + dx, Y: my + dy}}
 	}
+	return items
+}
+
+func TestExpStrokes(t *testing.T) {
+	n := envInt("RX_STROKES", 0)
+	if n == 0 {
+		t.Skip()
+	}
+	inst := uint64(envInt("RX_INST", 1))
+	items := expStrokes(n, inst)
+	s, err := Solve(context.Background(), Problem{Items: items}, Options{Seed: int64(envInt("RX_SEED", 1)), MaxKicks: envInt("RX_KICKS", 0), Budget: time.Duration(envInt("RX_BUDGET_MS", 0)) * time.Millisecond})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("strokes %d inst %d: %.3f", n, inst, s.Length)
 }

@@ -105,8 +105,17 @@ func (s *solver) koptStep(i int, G float64) bool {
 func (s *solver) koptSegments(m int) {
 	k := &s.kopt
 	nodes := k.node[:2*m]
-	copy(nodes, k.t[1:2*m+1])
-	slices.SortFunc(nodes, func(a, b int32) int { return int(s.pos[a]) - int(s.pos[b]) })
+	// Insertion sort by position: at most 10 nodes.
+	var keys [2 * koptDepthMax]int32
+	for i, v := range k.t[1 : 2*m+1] {
+		p := s.pos[v]
+		j := i
+		for j > 0 && keys[j-1] > p {
+			keys[j], nodes[j] = keys[j-1], nodes[j-1]
+			j--
+		}
+		keys[j], nodes[j] = p, v
+	}
 	// The first sorted node heads a segment only if it is cut from its
 	// predecessor (at the end of the array); else it ends the segment
 	// that wraps round, which the last sorted node heads.

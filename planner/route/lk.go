@@ -27,10 +27,16 @@ type lkState struct {
 // lkSteps bounds the basic moves of one chain.
 var lkSteps = 8
 
+// lkStepRev bounds the reversals of a chain's tentative steps.
+var lkStepRev int32 = 1 << 30
+
 // lkBestMin is the smallest basic move recorded for the chain.
 var lkBestMin = koptDepthMax
 
 func hasEdge(es [][2]int32, a, b int32) bool {
+	if len(es) == 0 {
+		return false
+	}
 	for _, e := range es {
 		if (e[0] == a && e[1] == b) || (e[0] == b && e[1] == a) {
 			return true
@@ -59,8 +65,9 @@ func (s *solver) lkSearch(t1 int32) bool {
 		before := s.length
 		lk.before = before
 		G0 := g.d(t1, t2)
+		// The chain's earlier steps' edges (the current step's are in
+		// s.kopt.t, which no step repeats).
 		lk.added, lk.removed = lk.added[:0], lk.removed[:0]
-		lk.removed = append(lk.removed, [2]int32{t1, t2})
 		improved := false
 		for step := 0; step < lkSteps; step++ {
 			k.t[1], k.t[2] = t1, t2
@@ -74,13 +81,19 @@ func (s *solver) lkSearch(t1 int32) bool {
 			}
 			m := lk.bestM
 			k.t = lk.bestT
-			if !s.koptDo(m) {
+			// A step that does not close the chain yet may be undone:
+			// keep its reversals short.
+			mr := s.maxRev
+			s.maxRev = min(mr, lkStepRev)
+			ok := s.koptDo(m)
+			s.maxRev = mr
+			if !ok {
 				break
 			}
 			for j := 1; j < m; j++ {
 				lk.added = append(lk.added, [2]int32{k.t[2*j], k.t[2*j+1]})
 			}
-			for j := 2; j <= m; j++ {
+			for j := 1; j <= m; j++ {
 				lk.removed = append(lk.removed, [2]int32{k.t[2*j-1], k.t[2*j]})
 			}
 			for _, v := range k.t[1 : 2*m+1] {

@@ -93,7 +93,7 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 	}
 	tour := greedyTour(g, nb)
 	lists := nb
-	alpha := expAlpha && g.real == len(items) && g.n() <= alphaMax
+	alpha := expAlpha && (g.real == len(items) || expStrokeAlpha) && g.n() <= alphaMax
 	if alpha {
 		pool := buildPool(g, expPoolK, expPoolQ)
 		if cand := alphaCandidates(g, pool, tour, expCandK, expIters(g.n())); cand != nil {
@@ -103,13 +103,13 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 		}
 	}
 	if expDebug {
-		fmt.Fprintf(os.Stderr, "n %d: candidates at %v\n", g.n(), time.Since(c.begin))
+		fmt.Fprintf(os.Stderr, "n %d: candidates at %v cpu %v\n", g.n(), time.Since(c.begin), cpuNow())
 	}
 	s := newSolver(g, lists, tour)
 	if alpha {
 		s.deep = expDeep
-		s.useLK = expLK
 	}
+	s.useLK = expLK && (g.real == len(items) || expStrokeAlpha)
 	if g.oneWay >= 2 {
 		// Turning the backward one-way strokes of the greedy tour round
 		// can cost much, and the one-way edges block most reversals
@@ -152,7 +152,7 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 	}
 	c.report("local", s.length-fixedLen, 0)
 	if expDebug {
-		fmt.Fprintf(os.Stderr, "n %d: local opt %.1f at %v\n", s.n, s.length, time.Since(c.begin))
+		fmt.Fprintf(os.Stderr, "n %d: local opt %.1f at %v cpu %v\n", s.n, s.length, time.Since(c.begin), cpuNow())
 	}
 
 	r := newRNG(c.seed)
