@@ -5,9 +5,9 @@ import (
 	"testing"
 	"time"
 
-	"math/rand/v2"
-	"math"
 	"context"
+	"math"
+	"math/rand/v2"
 	"slices"
 )
 
@@ -51,7 +51,6 @@ func TestExpAlpha(t *testing.T) {
 		}
 	}
 }
-
 
 func TestExpProfile(t *testing.T) {
 	name := os.Getenv("RX_NAME")
@@ -100,4 +99,21 @@ func TestExpStrokes(t *testing.T) {
 		t.Fatal(err)
 	}
 	t.Logf("strokes %d inst %d: %.3f", n, inst, s.Length)
+}
+
+func TestExpUniform(t *testing.T) {
+	n := envInt("RX_UNIFORM", 0)
+	if n == 0 {
+		t.Skip()
+	}
+	r := rand.New(rand.NewPCG(1, 0x5eed))
+	side := math.Sqrt(float64(n))
+	items := make([]Item, n)
+	for i := range items {
+		p := Point{X: r.Float64() * side, Y: r.Float64() * side}
+		items[i] = Item{A: p, B: p}
+	}
+	t0 := time.Now()
+	s, _ := Solve(context.Background(), Problem{Items: items, Closed: true}, Options{Seed: 1, Budget: time.Duration(envInt("RX_BUDGET_MS", 0)) * time.Millisecond})
+	t.Logf("uniform %d: %.4f in %v (cpu %v)", n, s.Length/float64(n), time.Since(t0), cpuNow())
 }

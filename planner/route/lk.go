@@ -24,14 +24,10 @@ type lkState struct {
 	removed [][2]int32
 }
 
-// lkSteps bounds the basic moves of one chain.
+// lkSteps bounds the basic moves of one chain. Measured (TSPLIB
+// instances of 2,000-15,000 points, 2 s): 3 and 5 steps are clearly
+// worse, 8, 12 and 16 alike; 50 no better.
 var lkSteps = 8
-
-// lkStepRev bounds the reversals of a chain's tentative steps.
-var lkStepRev int32 = 1 << 30
-
-// lkBestMin is the smallest basic move recorded for the chain.
-var lkBestMin = koptDepthMax
 
 func hasEdge(es [][2]int32, a, b int32) bool {
 	if len(es) == 0 {
@@ -81,13 +77,7 @@ func (s *solver) lkSearch(t1 int32) bool {
 			}
 			m := lk.bestM
 			k.t = lk.bestT
-			// A step that does not close the chain yet may be undone:
-			// keep its reversals short.
-			mr := s.maxRev
-			s.maxRev = min(mr, lkStepRev)
-			ok := s.koptDo(m)
-			s.maxRev = mr
-			if !ok {
+			if !s.koptDo(m) {
 				break
 			}
 			for j := 1; j < m; j++ {
@@ -160,7 +150,7 @@ func (s *solver) lkStep(i int, G float64) bool {
 				s.length = lk.before - gain
 				return true
 			}
-			if m >= lkBestMin && G2 > lk.bestG && !hasEdge(lk.removed, t4, t1) && s.koptValid(m) {
+			if m == koptDepthMax && G2 > lk.bestG && !hasEdge(lk.removed, t4, t1) && s.koptValid(m) {
 				lk.bestG, lk.bestM, lk.bestT = G2, m, k.t
 			}
 			if m < koptDepthMax && s.lkStep(m, G2) {

@@ -63,4 +63,3 @@ func loadTestTour(t *testing.T, name string) []int {
 	}
 	return tour
 }
-
