@@ -41,3 +41,5 @@ func init() {
 		}
 	}
 }
+var expKick3 = envInt("RX_KICK3", 0)
+var expAsBudget = time.Duration(envInt("RX_ASBUDGET_MS", 0)) * time.Millisecond

@@ -22,6 +22,21 @@ type lkState struct {
 	bestM   int
 	added   [][2]int32
 	removed [][2]int32
+	// mark[v] == stamp when v ends an edge in added or removed, so that
+	// most tabu checks cost one comparison.
+	mark  []uint32
+	stamp uint32
+}
+
+// tabu reports whether (a, b) is in es, one of the chain's edge lists.
+func (lk *lkState) tabu(es [][2]int32, a, b int32) bool {
+	return lk.mark[a] == lk.stamp && lk.mark[b] == lk.stamp && hasEdge(es, a, b)
+}
+
+// note adds (a, b) to *es.
+func (lk *lkState) note(es *[][2]int32, a, b int32) {
+	*es = append(*es, [2]int32{a, b})
+	lk.mark[a], lk.mark[b] = lk.stamp, lk.stamp
 }
 
 // lkSteps bounds the basic moves of one chain. Measured (TSPLIB
@@ -64,6 +79,13 @@ func (s *solver) lkSearch(t1 int32) bool {
 		// The chain's earlier steps' edges (the current step's are in
 		// s.kopt.t, which no step repeats).
 		lk.added, lk.removed = lk.added[:0], lk.removed[:0]
+		if lk.mark == nil {
+			lk.mark = make([]uint32, s.n)
+		}
+		if lk.stamp++; lk.stamp == 0 {
+			clear(lk.mark)
+			lk.stamp = 1
+		}
 		improved := false
 		for step := 0; step < lkSteps; step++ {
 			k.t[1], k.t[2] = t1, t2
@@ -81,10 +103,10 @@ func (s *solver) lkSearch(t1 int32) bool {
 				break
 			}
 			for j := 1; j < m; j++ {
-				lk.added = append(lk.added, [2]int32{k.t[2*j], k.t[2*j+1]})
+				lk.note(&lk.added, k.t[2*j], k.t[2*j+1])
 			}
 			for j := 1; j <= m; j++ {
-				lk.removed = append(lk.removed, [2]int32{k.t[2*j-1], k.t[2*j]})
+				lk.note(&lk.removed, k.t[2*j-1], k.t[2*j])
 			}
 			for _, v := range k.t[1 : 2*m+1] {
 				s.lkTouched = append(s.lkTouched, v)
@@ -131,26 +153,26 @@ func (s *solver) lkStep(i int, G float64) bool {
 		if g1 <= s.eps {
 			break
 		}
-		if k.inK(t3, 2*i) || s.succ(t2i) == t3 || s.pred(t2i) == t3 || hasEdge(lk.removed, t2i, t3) {
+		if k.inK(t3, 2*i) || s.succ(t2i) == t3 || s.pred(t2i) == t3 || lk.tabu(lk.removed, t2i, t3) {
 			continue
 		}
 		tried++
 		for side := range 2 {
 			t4 := s.next(t3, side)
-			if g.fixed(t3, t4) || k.inK(t4, 2*i) || hasEdge(lk.added, t3, t4) {
+			if g.fixed(t3, t4) || k.inK(t4, 2*i) || lk.tabu(lk.added, t3, t4) {
 				continue
 			}
 			k.t[2*i+1], k.t[2*i+2] = t3, t4
 			G2 := g1 + g.d(t3, t4)
 			m := i + 1
-			if gain := G2 - g.d(t4, t1); gain > s.eps && !hasEdge(lk.removed, t4, t1) && s.koptDo(m) {
+			if gain := G2 - g.d(t4, t1); gain > s.eps && !lk.tabu(lk.removed, t4, t1) && s.koptDo(m) {
 				for _, v := range k.t[1 : 2*m+1] {
 					s.lkTouched = append(s.lkTouched, v)
 				}
 				s.length = lk.before - gain
 				return true
 			}
-			if m == koptDepthMax && G2 > lk.bestG && !hasEdge(lk.removed, t4, t1) && s.koptValid(m) {
+			if m == koptDepthMax && G2 > lk.bestG && !lk.tabu(lk.removed, t4, t1) && s.koptValid(m) {
 				lk.bestG, lk.bestM, lk.bestT = G2, m, k.t
 			}
 			if m < koptDepthMax && s.lkStep(m, G2) {
