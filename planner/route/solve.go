@@ -2,8 +2,6 @@ package route
 
 import (
 	"context"
-	"fmt"
-	"os"
 	"time"
 )
 
@@ -115,9 +113,6 @@ func (c *control) lkLimit() int {
 // default budget).
 func (c *control) fullSetupLimit() int {
 	b := c.budget
-	if expAsBudget > 0 {
-		b = expAsBudget
-	}
 	if b <= 0 {
 		b = DefaultBudget
 	}
@@ -169,9 +164,6 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 			lk = false
 		}
 	}
-	if expDebug {
-		fmt.Fprintf(os.Stderr, "n %d: candidates at %v cpu %v\n", g.n(), time.Since(c.begin), cpuNow())
-	}
 	s := newSolver(g, lists, tour)
 	s.useLK = lk
 	if g.oneWay >= 2 {
@@ -215,13 +207,7 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 		return o, r, c.ctx.Err()
 	}
 	c.report("local", s.length-fixedLen, 0)
-	if expDebug {
-		fmt.Fprintf(os.Stderr, "n %d: local opt %.1f at %v cpu %v\n", s.n, s.length, time.Since(c.begin), cpuNow())
-	}
 
-	if expKick3 > 0 && int(s.n) > expKick3 {
-		s.useLK = false
-	}
 	r := newRNG(c.seed)
 	t0 := time.Now()
 	total := deadline.Sub(t0)
@@ -232,7 +218,6 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 	// search before its last gain, has converged.
 	stall := max(10_000, 50*int(s.n))
 	lastGain := 0
-	nk := 0
 	for i := 0; kicks <= 0 || i < kicks; i++ {
 		if i&15 == 0 {
 			if c.ctx.Err() != nil {
@@ -240,9 +225,6 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 			}
 			now := time.Now()
 			if !deadline.IsZero() && !now.Before(deadline) {
-				break
-			}
-			if expCPU > 0 && cpuNow() >= expCPU {
 				break
 			}
 			if kicks > 0 {
@@ -254,7 +236,6 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 				c.report("improve", s.length-fixedLen, frac)
 			}
 		}
-		nk++
 		if s.kick(r, kickSegMax) {
 			lastGain = i
 		} else if c.converge && i-lastGain > max(stall, lastGain) {
@@ -262,9 +243,6 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 		}
 	}
 	c.report("improve", s.length-fixedLen, 1)
-	if expDebug {
-		fmt.Fprintf(os.Stderr, "n %d: final %.1f at %v, %d kicks, last gain at %d\n", s.n, s.length, time.Since(c.begin), nk, lastGain)
-	}
 	o, rv := s.extract()
 	return o, rv, c.ctx.Err()
 }
