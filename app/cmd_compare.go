@@ -4,9 +4,11 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"strings"
 	"text/tabwriter"
 
 	"dimerpath/export"
+	"dimerpath/internal/units"
 	"dimerpath/planner"
 )
 
@@ -82,21 +84,26 @@ file and renamed into place, also when some variant could not be planned
 // printComparison writes the comparison table, times in seconds.
 func printComparison(w io.Writer, results []planner.VariantResult) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "variant\ttotal\tP10\tP90\tAP s\tFE s\tdwell s\ttravel s\tswitch s\tregister s\tverify s\tsegments\tP(all windows good)\t")
+	fmt.Fprint(tw, "variant\ttotal\tP10\tP90\t")
+	for _, k := range planner.TimeKinds {
+		fmt.Fprintf(tw, "%s s\t", k.Short())
+	}
+	fmt.Fprintln(tw, "segments\tP(all windows good)\t")
 	for _, r := range results {
 		if r.Err != nil {
-			fmt.Fprintf(tw, "%s\tnot planned\t\t\t\t\t\t\t\t\t\t\t\t\n", r.Variant)
+			fmt.Fprintf(tw, "%s\tnot planned\t%s\n", r.Variant, strings.Repeat("\t", len(planner.TimeKinds)+4))
 			continue
 		}
 		p := r.Plan
-		b := p.Breakdown
 		all := fmt.Sprintf("%.4g", p.Yield.All)
 		if p.Yield.All == 0 && p.Yield.Windows > 0 {
 			all = fmt.Sprintf("10^%.1f", p.Yield.Log10All)
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%.0f\t%.0f\t%.0f\t%.0f\t%.0f\t%.0f\t%.0f\t%d\t%s\t\n", r.Variant,
-			fmtDuration(p.TotalS), fmtDuration(p.P10S), fmtDuration(p.P90S),
-			b.APWriteS, b.FEWriteS, b.DwellS, b.TravelS, b.ModeSwitchS, b.RegistrationS, b.VerificationS, len(p.Segments), all)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t", r.Variant, units.Duration(p.TotalS), units.Duration(p.P10S), units.Duration(p.P90S))
+		for _, k := range planner.TimeKinds {
+			fmt.Fprintf(tw, "%.0f\t", p.Breakdown.Seconds(k))
+		}
+		fmt.Fprintf(tw, "%d\t%s\t\n", len(p.Segments), all)
 	}
 	tw.Flush()
 }

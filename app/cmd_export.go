@@ -1,9 +1,7 @@
 package app
 
 import (
-	"bytes"
 	"context"
-	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
@@ -13,6 +11,8 @@ import (
 	"time"
 
 	"dimerpath/export"
+	"dimerpath/internal/jsonfile"
+	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
@@ -20,8 +20,8 @@ import (
 func init() {
 	Register(&Command{
 		Name:    "export",
-		Usage:   "export DESIGN.json|PLAN.json -o FILE.pdf|.svg|.json|.csv [--variant NAME] [--profile P.json] [--paper a4|letter] [--seed N] [--date YYYY-MM-DD]",
-		Summary: "write a plan as the operator's PDF, an SVG, the plan JSON or the action CSV",
+		Usage:   "export DESIGN.json|PLAN.json -o FILE.pdf|.svg|.json|.csv|.gds [--variant NAME] [--profile P.json] [--paper a4|letter] [--seed N] [--date YYYY-MM-DD] [--chip-offset X,Y] [--chip-rotation DEG] [--layers MAP.json]",
+		Summary: "write a plan as the operator's PDF, an SVG, the plan JSON or the action CSV, or a design as a GDSII layout",
 		Help: `Plans the variant (default: the first) of DESIGN.json with the instrument
 profile and writes it in the format the output file's extension names:
   .pdf   the operator's printed plan (cover, pattern and route, segment table
@@ -31,6 +31,13 @@ profile and writes it in the format the output file's extension names:
   .csv   one row per tip action, in order
 Given a plan file written with -o PLAN.json instead of a design, it exports
 that plan without planning again (the figures then show no lattice).
+
+  .gds   the variant's geometry as a GDSII library for the mask layout of
+         the contacts (no planning): regions as outlines of their sites on a
+         layer per role and write mode, dopant windows, fiducial marks with
+         their names, the field, the scan field and the terraces (README
+         "GDSII layouts"); --chip-offset and --chip-rotation place the STM
+         field on the chip, --layers MAP.json changes the layer table.
 
 The caution is printed on stderr before the file is written. The file is
 written to a temporary file and renamed into place: an export that fails or
@@ -42,6 +49,7 @@ Exit status 0 written, 2 anything else.`,
 			fs.StringVar(&fl.variant, "variant", "", "plan the variant `NAME` (default: the first)")
 			fs.StringVar(&fl.profile, "profile", "", "instrument profile: a file `P.json`, or a built-in preset rt or lt (default: rt)")
 			fs.Int64Var(&fl.seed, "seed", 1, "seed of the plan's random choices (same design, profile and seed: same plan)")
+			fl.gds.declare(fs)
 			return func(env Env, args []string) int {
 				fl.set = map[string]bool{}
 				fs.Visit(func(f *flag.Flag) { fl.set[f.Name] = true })
@@ -56,6 +64,7 @@ type exportFlags struct {
 	variant, profile string
 	seed             int64
 	set              map[string]bool // flags given on the command line
+	gds              gdsFlags
 }
 
 func runExport(env Env, args []string, fl exportFlags) int {
@@ -67,7 +76,13 @@ func runExport(env Env, args []string, fl exportFlags) int {
 		return fail("want one design or plan file, got %d (dimerpath export --help)", len(args))
 	}
 	if fl.report.out == "" {
-		return fail("-o FILE is required: the output file, .pdf, .svg, .json or .csv")
+		return fail("-o FILE is required: the output file, .pdf, .svg, .json, .csv or .gds")
+	}
+	if isGDSPath(fl.report.out) {
+		return runExportGDS(env, args[0], fl)
+	}
+	if err := fl.gds.onlyForGDS(fl.set); err != nil {
+		return fail("%v", err)
 	}
 	// Refuse a bad output name or flag before any planning.
 	opt, err := fl.report.options(export.FormatPDF, export.FormatSVG, export.FormatJSON, export.FormatCSV)
@@ -89,10 +104,7 @@ func runExport(env Env, args []string, fl exportFlags) int {
 				return fail("%s is a plan file: --%s applies only when planning a design", in, name)
 			}
 		}
-		if p, err = export.ReadPlanJSON(bytes.NewReader(data)); err != nil {
-			if pe, ok := errors.AsType[*export.PlanError](err); ok {
-				pe.File = in
-			}
+		if p, err = export.ParsePlan(in, data); err != nil {
 			return fail("%v", err)
 		}
 	} else {
@@ -115,17 +127,15 @@ func runExport(env Env, args []string, fl exportFlags) int {
 		size = fmt.Sprintf(", %d bytes", st.Size())
 	}
 	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, expected %s%s)\n",
-		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), fmtDuration(p.TotalS), size)
+		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), units.Duration(p.TotalS), size)
 	return ExitOK
 }
 
 // isPlanFile reports whether data is a dimerpath plan file rather than a
-// design (by its "format" field).
+// design, by its "format" field alone (the rest may be malformed).
 func isPlanFile(data []byte) bool {
-	var head struct {
-		Format string `json:"format"`
-	}
-	return json.Unmarshal(data, &head) == nil && head.Format == export.PlanFormat
+	format, _ := jsonfile.TopString(data, "format")
+	return format == export.PlanFormat
 }
 
 // planDesign plans the chosen variant of the design in data, reporting
@@ -145,7 +155,7 @@ func planDesign(ctx context.Context, env Env, name string, data []byte, fl expor
 		return nil, nil, err
 	}
 	prog := newProgress(env.Stderr, "export")
-	p, err := planner.Build(ctx, d, layout.Variant.Name, prof, planner.Options{Seed: fl.seed, Progress: prog.report})
+	p, err := planner.Build(ctx, layout, prof, planner.Options{Seed: fl.seed, Progress: prog.report})
 	prog.done()
 	if err != nil {
 		return nil, nil, fmt.Errorf("%s, variant %s: %w", name, layout.Variant.Name, err)

@@ -28,7 +28,11 @@ var demoPlans = sync.OnceValues(func() (map[string]*planner.Plan, error) {
 	}
 	out := map[string]*planner.Plan{}
 	for _, v := range d.VariantNames() {
-		p, err := planner.Build(context.Background(), d, v, planner.DefaultProfile(), planner.Options{Seed: 1})
+		lay, err := d.Lay(v)
+		if err != nil {
+			return nil, err
+		}
+		p, err := planner.Build(context.Background(), lay, planner.DefaultProfile(), planner.Options{Seed: 1})
 		if err != nil {
 			return nil, err
 		}

@@ -52,7 +52,7 @@ func ExampleReadPlanJSON() {
 	fmt.Println(err)
 	// Output:
 	// Kestrel Lab SET-K1 / baseline: 25 strokes in 5 segments, 67 actions, 1610 s
-	// version = 9: unsupported plan file version (this dimerpath reads versions 1 to 1)
+	// line 1, column 41: version = 9: unsupported plan file version (this dimerpath reads versions 1 to 1)
 }
 
 func ExampleWriteActionsCSV() {

@@ -7,28 +7,6 @@ import (
 	"testing"
 )
 
-func TestClockAndDuration(t *testing.T) {
-	for _, tc := range []struct {
-		s          float64
-		clock, dur string
-	}{
-		{0, "0:00:00", "0.00 s"},
-		{0.5, "0:00:01", "0.50 s"},
-		{59.96, "0:01:00", "60.0 s"},
-		{61, "0:01:01", "1 min 01 s"},
-		{3599.4, "0:59:59", "59 min 59 s"},
-		{3600, "1:00:00", "1 h 00 min"},
-		{100000, "27:46:40", "27 h 47 min"},
-	} {
-		if got := clock(tc.s); got != tc.clock {
-			t.Errorf("clock(%g) = %q, want %q", tc.s, got, tc.clock)
-		}
-		if got := duration(tc.s); got != tc.dur {
-			t.Errorf("duration(%g) = %q, want %q", tc.s, got, tc.dur)
-		}
-	}
-}
-
 // parseE reads back the e-notation the formatters print (with U+2212).
 func parseE(s string) (float64, error) {
 	return strconv.ParseFloat(strings.ReplaceAll(s, "−", "-"), 64)

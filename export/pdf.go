@@ -12,7 +12,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
-	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -70,7 +70,7 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 // points, 2 FE rasters".
 func strokeSummary(p *planner.Plan) string {
 	type k struct {
-		m planner.WriteMode
+		m design.Mode
 		s planner.StrokeKind
 	}
 	n := map[k]int{}
@@ -78,11 +78,11 @@ func strokeSummary(p *planner.Plan) string {
 		n[k{p.Strokes[i].Mode, p.Strokes[i].Kind}]++
 	}
 	var parts []string
-	for _, key := range []k{{planner.AP, planner.StrokeLine}, {planner.AP, planner.StrokeDwell}, {planner.AP, planner.StrokeOutline},
-		{planner.FE, planner.StrokeRaster}, {planner.FE, planner.StrokeOutline}, {planner.FE, planner.StrokeLine}, {planner.FE, planner.StrokeDwell},
-		{planner.AP, planner.StrokeRaster}} {
+	for _, key := range []k{{design.ModeAP, planner.StrokeLine}, {design.ModeAP, planner.StrokeDwell}, {design.ModeAP, planner.StrokeOutline},
+		{design.ModeFE, planner.StrokeRaster}, {design.ModeFE, planner.StrokeOutline}, {design.ModeFE, planner.StrokeLine}, {design.ModeFE, planner.StrokeDwell},
+		{design.ModeAP, planner.StrokeRaster}} {
 		if c := n[key]; c > 0 {
-			parts = append(parts, fmt.Sprintf("%s %s %s", thousands(c), strings.ToUpper(string(key.m)), plural(kindNoun(key.s), c)))
+			parts = append(parts, fmt.Sprintf("%s %s %s", thousands(c), key.m.Abbrev(), plural(kindNoun(key.s), c)))
 		}
 	}
 	return strings.Join(parts, ", ")
@@ -214,18 +214,18 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		if cd.Kind == planner.StrokeDwell || (cd.SpeedNMPerS == 0 && cd.DwellS > 0) {
 			// Parking on single sites: no speed, dose or width, a dwell time.
 			hasDwell = true
-			dwell := "dwell " + sig(cd.DwellS, 3) + " s"
+			dwell := "dwell " + duration(cd.DwellS)
 			if cd.DwellCapS > 0 {
-				dwell += "\nat most " + sig(cd.DwellCapS, 3) + " s"
+				dwell += "\nat most " + duration(cd.DwellCapS)
 			}
-			t.row(modeName(cd.Mode)+", dwell points", signedV(cd.BiasV), nanoAmps(cd.CurrentA), "–", dwell, "–", "–", "–")
+			t.row(cd.Mode.Label()+", dwell points", signedV(cd.BiasV), nanoAmps(cd.CurrentA), "–", dwell, "–", "–", "–")
 			continue
 		}
 		pitch := "–"
 		if cd.PitchNM > 0 {
 			pitch = sig(cd.PitchNM, 3)
 		}
-		name := modeName(cd.Mode)
+		name := cd.Mode.Label()
 		if cd.Kind != "" {
 			name += ", " + plural(kindNoun(cd.Kind), 2)
 		}
@@ -235,7 +235,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	if !hasDwell {
 		// An older plan without dwell conditions: take them from the actions.
 		for _, g := range dwellConditions(p) {
-			t.row(modeName(g.mode)+", dwell points", signedV(g.bias), nanoAmps(g.current), "–", "dwell "+sig(g.dwell, 3)+" s", "–", "–", "–")
+			t.row(g.mode.Label()+", dwell points", signedV(g.bias), nanoAmps(g.current), "–", "dwell "+duration(g.dwell), "–", "–", "–")
 		}
 	}
 	t.end()
@@ -251,7 +251,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	)
 	t.start()
 	for _, m := range p.Modes {
-		t.row(m.Region, m.Role, m.Requested, m.Mode, thousands(m.Sites), m.Reason)
+		t.row(m.Region, m.Role.Name(), m.Requested.Abbrev(), m.Mode.Abbrev(), thousands(m.Sites), m.Reason)
 	}
 	t.end()
 
@@ -341,16 +341,6 @@ func listShort(names []string, n int) string {
 	return strings.Join(names[:n], ", ") + fmt.Sprintf(" and %d more", len(names)-n)
 }
 
-func modeName(m planner.WriteMode) string {
-	switch m {
-	case planner.AP:
-		return "AP (atomic precision)"
-	case planner.FE:
-		return "FE (field emission)"
-	}
-	return string(m)
-}
-
 func signedV(v float64) string {
 	if v > 0 {
 		return "+" + sig(v, 3)
@@ -360,7 +350,7 @@ func signedV(v float64) string {
 
 // dwellGroup is one set of dwell conditions used by the plan.
 type dwellGroup struct {
-	mode    planner.WriteMode
+	mode    design.Mode
 	bias    float64
 	current float64
 	dwell   float64 // mean dwell time per point, s
@@ -462,7 +452,7 @@ func insideField(win, field r2.Rect) r2.Rect {
 // condGroup is one line of a segment's table row: the strokes written
 // with one set of tip conditions.
 type condGroup struct {
-	mode    planner.WriteMode
+	mode    design.Mode
 	dwell   bool
 	bias    float64
 	current float64
@@ -585,7 +575,7 @@ func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan) error {
 		var strokes, modes, bias, cur, speed []string
 		for _, g := range groups {
 			strokes = append(strokes, g.kindCounts())
-			modes = append(modes, strings.ToUpper(string(g.mode)))
+			modes = append(modes, g.mode.Abbrev())
 			bias = append(bias, signedV(g.bias))
 			cur = append(cur, nanoAmps(g.current))
 			if g.dwell {
@@ -802,11 +792,7 @@ func rowsNote(sc *scene, win r2.Rect) string {
 				continue
 			}
 			seen[t] = true
-			dir := "along x"
-			if sc.surf.Terraces[t].Rows == lattice.RowsAlongY {
-				dir = "along y"
-			}
-			parts = append(parts, fmt.Sprintf("%s rows %s", sc.surf.Terraces[t].Name, dir))
+			parts = append(parts, fmt.Sprintf("%s rows along %s", sc.surf.Terraces[t].Name, sc.surf.Terraces[t].Rows))
 		}
 	}
 	slices.Sort(parts)

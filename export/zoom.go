@@ -12,6 +12,7 @@ import (
 
 	"dimerpath/internal/unionfind"
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -53,7 +54,7 @@ func apAreas(p *planner.Plan) (areas []apArea, omitted int) {
 	var ids []int
 	var bounds []r2.Rect
 	for i := range p.Strokes {
-		if p.Strokes[i].Mode == planner.AP {
+		if p.Strokes[i].Mode == design.ModeAP {
 			ids = append(ids, i)
 			bounds = append(bounds, strokeBounds(&p.Strokes[i]))
 		}
@@ -275,7 +276,7 @@ func drawZoom(c canvas, sc *scene, a apArea, dev box, idx int) {
 	// FE strokes passing through, for context: footprint and centre.
 	for i := range p.Strokes {
 		s := &p.Strokes[i]
-		if s.Mode != planner.FE || !strokeBounds(s).ExpandedByMargin(sc.feWidth).Intersects(win) {
+		if s.Mode != design.ModeFE || !strokeBounds(s).ExpandedByMargin(sc.feWidth).Intersects(win) {
 			continue
 		}
 		pts := zoomPath(v, s)
@@ -287,7 +288,7 @@ func drawZoom(c canvas, sc *scene, a apArea, dev box, idx int) {
 	// are numbered.
 	var inWin []int
 	for i := range p.Strokes {
-		if s := &p.Strokes[i]; s.Mode == planner.AP && strokeBounds(s).ExpandedByMargin(sc.apWidth).Intersects(win) {
+		if s := &p.Strokes[i]; s.Mode == design.ModeAP && strokeBounds(s).ExpandedByMargin(sc.apWidth).Intersects(win) {
 			inWin = append(inWin, i)
 		}
 	}
@@ -386,41 +387,22 @@ func drawArrowHead(c canvas, from, to vec, size float64) {
 // two sites' positions.
 func latticeDots(sc *scene, win r2.Rect) (all, clear, bonds []r2.Point) {
 	surf := sc.surf
-	for t := range surf.Terraces {
-		ter := &surf.Terraces[t]
-		// Row and dimer ranges covering win (the offset is row 0, dimer 0).
-		alongLo, alongHi, acrossLo, acrossHi := win.X.Lo, win.X.Hi, win.Y.Lo, win.Y.Hi
-		offAlong, offAcross := ter.Offset.X, ter.Offset.Y
-		if ter.Rows == lattice.RowsAlongY {
-			alongLo, alongHi, acrossLo, acrossHi = win.Y.Lo, win.Y.Hi, win.X.Lo, win.X.Hi
-			offAlong, offAcross = ter.Offset.Y, ter.Offset.X
+	for dimer := range surf.Dimers(win) {
+		a := surf.Position(dimer)
+		b := surf.Position(surf.Partner(dimer))
+		if win.ContainsPoint(a) || win.ContainsPoint(b) {
+			bonds = append(bonds, a, b)
 		}
-		r0 := max(0, int(math.Floor((acrossLo-offAcross)/lattice.RowSpacing))-1)
-		r1 := min(surf.RowCount(t)-1, int(math.Ceil((acrossHi-offAcross)/lattice.RowSpacing))+1)
-		d0 := max(0, int(math.Floor((alongLo-offAlong)/lattice.DimerPitch))-1)
-		d1 := min(surf.DimerCount(t)-1, int(math.Ceil((alongHi-offAlong)/lattice.DimerPitch))+1)
-		for r := r0; r <= r1; r++ {
-			for d := d0; d <= d1; d++ {
-				if surf.TerraceAt(surf.DimerCentre(t, r, d)) != t {
-					continue
-				}
-				a := surf.Position(lattice.Site{Terrace: t, Row: r, Dimer: d, Side: 0})
-				b := surf.Position(lattice.Site{Terrace: t, Row: r, Dimer: d, Side: 1})
-				if win.ContainsPoint(a) || win.ContainsPoint(b) {
-					bonds = append(bonds, a, b)
-				}
-				for side := range 2 {
-					site := lattice.Site{Terrace: t, Row: r, Dimer: d, Side: side}
-					q := surf.Position(site)
-					if !win.ContainsPoint(q) {
-						continue
-					}
-					if sc.clears(site) {
-						clear = append(clear, q)
-					} else {
-						all = append(all, q)
-					}
-				}
+		for side, q := range [2]r2.Point{a, b} {
+			if !win.ContainsPoint(q) {
+				continue
+			}
+			site := dimer
+			site.Side = side
+			if sc.clears(site) {
+				clear = append(clear, q)
+			} else {
+				all = append(all, q)
 			}
 		}
 	}
@@ -431,7 +413,7 @@ func latticeDots(sc *scene, win r2.Rect) (all, clear, bonds []r2.Point) {
 // site.
 func (sc *scene) clears(site lattice.Site) bool {
 	for _, r := range sc.regions {
-		if r.mode != "fe" && r.sites.Contains(site) {
+		if r.mode != design.ModeFE && r.sites.Contains(site) {
 			return true
 		}
 	}

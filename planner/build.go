@@ -35,7 +35,7 @@ var stages = []struct {
 	name string
 	at   float64
 }{
-	{"layout", 0}, {"modes", 0.05}, {"strokes", 0.15}, {"coverage", 0.25},
+	{"modes", 0.05}, {"strokes", 0.15}, {"coverage", 0.25},
 	{"route", 0.4}, {"segments", 0.7}, {"spread", 0.8}, {"yield", 0.95},
 }
 
@@ -50,25 +50,29 @@ func (o *Options) stage(name string) {
 	}
 }
 
-// Build plans one variant of d (the first when variant is "") with the
+// Build plans the laid-out variant lay (see design.Design.Lay, which the
+// caller shares with the checks, the export and the GUI) with the
 // instrument profile prof: it chooses each region's mode, generates the
 // strokes, proves their coverage, orders them with package route, splits
 // the writing order into drift-safe segments, lays out the timeline and
 // estimates its spread and the dopant yield. It returns ctx.Err() when
-// cancelled, a *ProfileError for an invalid profile, and a *LimitError
-// when the plan would need a value beyond prof.Limits.
-func Build(ctx context.Context, d *design.Design, variant string, prof Profile, opt Options) (*Plan, error) {
-	b := &builder{ctx: ctx, d: d, prof: prof, opt: opt}
-	return b.build(variant)
+// cancelled, a *jsonfile.Error for an invalid profile, and a *LimitError
+// when the plan would need a value beyond prof.Limits. It never panics: a
+// broken invariant of its own, or any panic on the way, comes back as an
+// *InternalError (errors.Is(err, ErrInternal)).
+func Build(ctx context.Context, lay *design.Layout, prof Profile, opt Options) (plan *Plan, err error) {
+	defer recoverInternal(&plan, &err)
+	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof, opt: opt}
+	return b.build()
 }
 
 type builder struct {
 	ctx  context.Context
-	d    *design.Design
+	lay  *design.Layout
+	d    *design.Design // lay.Design
 	prof Profile
 	opt  Options
 
-	lay      *design.Layout
 	gen      *strokeGen
 	regions  []*regionWork
 	fids     []Fiducial
@@ -76,20 +80,14 @@ type builder struct {
 	warnings []string
 }
 
-func (b *builder) build(variant string) (*Plan, error) {
-	prof := &b.prof
+func (b *builder) build() (*Plan, error) {
+	prof, lay := &b.prof, b.lay
 	if err := prof.Validate(); err != nil {
 		return nil, err
 	}
 	if err := prof.checkField(b.d.Field.WidthNM, b.d.Field.HeightNM); err != nil {
 		return nil, err
 	}
-	b.opt.stage("layout")
-	lay, err := b.d.Lay(variant)
-	if err != nil {
-		return nil, err
-	}
-	b.lay = lay
 	if err := b.ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -150,6 +148,9 @@ func (b *builder) build(variant string) (*Plan, error) {
 			st.ID, st.Region, jobs[j].budgetS, st.ToleranceNM))
 	}
 	tl := schedule(sg, starts, b.strokes, prof)
+	if err := checkFiniteTime(tl.breakdown); err != nil {
+		return nil, err
+	}
 
 	b.opt.stage("spread")
 	dwells := 0
@@ -184,16 +185,19 @@ func (b *builder) build(variant string) (*Plan, error) {
 		plan.Segments[n-1].EndS = plan.TotalS
 	}
 	if math.Abs(plan.TotalS-total) > 1e-6*math.Max(total, 1) {
-		panic(fmt.Sprintf("planner: timeline total %v disagrees with the segmentation's %v", plan.TotalS, total))
+		return nil, &InternalError{Message: fmt.Sprintf("timeline total %v s disagrees with the segmentation's %v s", plan.TotalS, total)}
 	}
 	plan.FloorS = plan.Breakdown.APWriteS + plan.Breakdown.FEWriteS + plan.Breakdown.DwellS
+	if err := checkProbabilities(windows); err != nil {
+		return nil, err
+	}
 	plan.Yield = YieldOf(windows)
 	for _, r := range b.regions {
-		req := string(r.requested)
+		req := r.requested
 		if req == "" {
-			req = string(design.ModeAuto)
+			req = design.ModeAuto
 		}
-		plan.Modes = append(plan.Modes, RegionMode{Region: r.name, Role: string(r.role), Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
+		plan.Modes = append(plan.Modes, RegionMode{Region: r.name, Role: r.role, Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
 	}
 	byHand, err := b.byHand(mc)
 	if err != nil {
@@ -281,7 +285,7 @@ func (b *builder) makeStrokes() []Window {
 		if r.fePart != nil && !r.fePart.IsEmpty() {
 			ss := b.gen.feStrokes(r.name, r.fePart)
 			tol := r.tolFE
-			if r.mode == modeHybrid {
+			if r.mode == design.ModeHybrid {
 				tol = b.prof.ToleranceFENM // the fill's edge is inside the AP band
 			}
 			n := r.plainCount
@@ -328,7 +332,7 @@ func (b *builder) modesUsed() ModeUse {
 		switch {
 		case s.Kind == StrokeDwell:
 			u.Dwell = true
-		case s.Mode == FE:
+		case s.Mode == design.ModeFE:
 			u.FE = true
 		default:
 			u.AP = true
@@ -341,17 +345,17 @@ func (b *builder) conditions(u ModeUse) []Conditions {
 	var cs []Conditions
 	if u.AP {
 		m := b.prof.AP
-		cs = append(cs, Conditions{Mode: AP, Kind: StrokeLine, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
+		cs = append(cs, Conditions{Mode: design.ModeAP, Kind: StrokeLine, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
 			SpeedNMPerS: m.Speed(), LineWidthNM: m.LineWidth(), Passes: max(m.Passes, 1)})
 	}
 	if u.Dwell {
 		d := b.prof.Dwell
-		cs = append(cs, Conditions{Mode: AP, Kind: StrokeDwell, BiasV: d.BiasV, CurrentA: d.CurrentA, Passes: 1,
+		cs = append(cs, Conditions{Mode: design.ModeAP, Kind: StrokeDwell, BiasV: d.BiasV, CurrentA: d.CurrentA, Passes: 1,
 			DwellS: d.ExpectedS(), DwellCapS: d.CapS()})
 	}
 	if u.FE {
 		m := b.prof.FE
-		cs = append(cs, Conditions{Mode: FE, Kind: StrokeRaster, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
+		cs = append(cs, Conditions{Mode: design.ModeFE, Kind: StrokeRaster, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
 			SpeedNMPerS: m.Speed(), LineWidthNM: m.LineWidth(), Passes: max(m.Passes, 1), PitchNM: m.Pitch()})
 	}
 	return cs
@@ -450,10 +454,10 @@ func (b *builder) coverageRegions() []CoverageRegion {
 
 // modeGroup returns the route group of a stroke: 0 for the mode written
 // first, 1 for the other.
-func (b *builder) modeGroup(m WriteMode) int {
-	first := AP
+func (b *builder) modeGroup(m design.Mode) int {
+	first := design.ModeAP
 	if b.prof.Order == OrderFEFirst {
-		first = FE
+		first = design.ModeFE
 	}
 	if m == first {
 		return 0
@@ -652,7 +656,7 @@ func (b *builder) byHand(mc *modeChooser) (float64, error) {
 		byRegion[s.Region] = append(byRegion[s.Region], s)
 	}
 	for _, r := range b.regions {
-		if r.mode == modeHybrid {
+		if r.mode == design.ModeHybrid {
 			var ss []Stroke
 			for _, s := range byRegion[r.name] {
 				if s.Window >= 0 {

@@ -15,8 +15,8 @@ type VariantResult struct {
 	Err     error
 }
 
-// Compare plans every variant of d with prof, in file order, and returns
-// one result per variant. A variant that cannot be planned carries its
+// Compare lays out and plans every variant of d with prof, in file
+// order, and returns one result per variant. A variant that cannot be planned carries its
 // error and the others are still planned; Compare itself fails only when
 // ctx is cancelled or the profile is invalid. opt.Progress, if set, sees
 // each variant's stages with the fraction of the whole comparison done.
@@ -34,7 +34,11 @@ func Compare(ctx context.Context, d *design.Design, prof Profile, opt Options) (
 				opt.Progress(name+": "+stage, (float64(i)+f)/n)
 			}
 		}
-		p, err := Build(ctx, d, name, prof, o)
+		var p *Plan
+		lay, err := d.Lay(name)
+		if err == nil {
+			p, err = Build(ctx, lay, prof, o)
+		}
 		if err != nil && (errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded)) {
 			return out, err
 		}

@@ -1,17 +1,15 @@
 package planner
 
 import (
-	"bytes"
-	"encoding/json"
 	"errors"
 	"fmt"
-	"io"
 	"math"
-	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 
 	"dimerpath/internal/atomicfile"
+	"dimerpath/internal/jsonfile"
 )
 
 // ProfileFormat and ProfileVersion identify instrument-profile files.
@@ -95,8 +93,9 @@ type ModeProfile struct {
 //
 //	w(λ) = 2·σ·sqrt(2·ln(λ/λ_thr)) for λ > λ_thr, else 0.
 //
-// This is the form derived in physics.md §3 (no closed form is
-// published); calibrate fits it to a lab's own lines.
+// The form is our derivation from a Gaussian footprint and a clearing
+// threshold (no closed form has been published; see docs/sources.md);
+// calibrate fits it to a lab's own lines.
 type WidthModel struct {
 	SigmaNM             float64 `json:"sigma_nm"`
 	ThresholdDoseCPerCm float64 `json:"threshold_dose_c_per_cm"`
@@ -170,7 +169,8 @@ func DefaultProfile() Profile {
 			Passes: 1,
 			// σ = 0.3 nm and λ_thr = 0.5 mC/cm give w(2 mC/cm) = 1.0 nm,
 			// inside the 0.8–1.5 nm (1–2 dimer rows) typical AP width,
-			// from memory (physics.md §3); calibrate replaces them.
+			// from memory (cf. Randall et al., JVST B 27, 2764 (2009));
+			// calibrate replaces them.
 			Width: WidthModel{SigmaNM: 0.3, ThresholdDoseCPerCm: 0.5e-3},
 			// Atomic precision: no site outside the region may be cleared.
 			EdgeAllowanceNM: 0,
@@ -227,7 +227,7 @@ func DefaultProfile() Profile {
 			RateNMPerMin:   0.1,
 			RateSDNMPerMin: 0.05, // ±50 %, from memory
 			// A 50×50 nm² registration image of 256 lines at ~1 s/line
-			// (physics.md §5, derived/from memory).
+			// (a typical image, from memory).
 			RegistrationS: 256,
 			VerificationS: 0,
 		},
@@ -244,7 +244,7 @@ func DefaultProfile() Profile {
 		HybridBandNM: 6,
 		Limits: Limits{
 			MaxBiasV:     10,    // common instrument bias range ±10 V, from memory
-			MaxCurrentA:  10e-9, // ~10 nA FE cap, from memory (physics.md caps)
+			MaxCurrentA:  10e-9, // ~10 nA FE cap for a stable tip, from memory
 			ScanFieldNM:  2000,  // the design-rule default 2 µm scan field
 			MaxSpeedNMPS: 5000,  // few µm/s tip moves, from memory
 		},
@@ -252,8 +252,8 @@ func DefaultProfile() Profile {
 }
 
 // LowTemperatureProfile returns the 4 K preset ("lt"): the room-
-// temperature profile with liquid-helium drift, ≤ 0.1 nm/h (from memory,
-// physics.md §5). The dose model is left at the room-temperature values:
+// temperature profile with liquid-helium drift, ≤ 0.1 nm/h (from
+// memory). The dose model is left at the room-temperature values:
 // the low-bias yield rises ~300× at 11 K (Foley et al., PRL 80, 1336
 // (1998)), so calibrate at temperature before trusting write times.
 func LowTemperatureProfile() Profile {
@@ -279,50 +279,17 @@ func Preset(name string) (Profile, error) {
 	return Profile{}, fmt.Errorf("planner: unknown profile preset %q (known: %s)", name, strings.Join(Presets(), ", "))
 }
 
-// FieldProblem is one bad field of a profile: its JSON path, its value
-// and what is wrong.
-type FieldProblem struct {
-	Path    string
-	Value   any
-	Problem string
-}
-
-func (p FieldProblem) String() string {
-	return fmt.Sprintf("%s = %v: %s", p.Path, p.Value, p.Problem)
-}
-
-// ErrInvalidProfile is wrapped by every *ProfileError.
+// ErrInvalidProfile is wrapped by the *jsonfile.Error of every profile
+// that cannot be read or does not validate.
 var ErrInvalidProfile = errors.New("invalid instrument profile")
 
-// ProfileError lists every bad field of a profile. File is empty for a
-// profile that did not come from a file.
-type ProfileError struct {
-	File     string
-	Problems []FieldProblem
-}
+// MaxProfileBytes bounds a profile file (1 MiB: a profile is a few
+// hundred bytes); a larger file is refused before it is read.
+const MaxProfileBytes = 1 << 20
 
-func (e *ProfileError) Error() string {
-	var b strings.Builder
-	if e.File != "" {
-		b.WriteString(e.File)
-		b.WriteString(": ")
-	}
-	fmt.Fprintf(&b, "%s (%d problem", ErrInvalidProfile, len(e.Problems))
-	if len(e.Problems) != 1 {
-		b.WriteString("s")
-	}
-	b.WriteString(")")
-	for _, p := range e.Problems {
-		b.WriteString("\n  ")
-		b.WriteString(p.String())
-	}
-	return b.String()
-}
-
-func (e *ProfileError) Unwrap() error { return ErrInvalidProfile }
-
-// Validate checks every field and returns a *ProfileError listing each
-// bad one with its JSON path and value, or nil.
+// Validate checks every field and returns a *jsonfile.Error (wrapping
+// ErrInvalidProfile) listing each bad one with its JSON path and value,
+// or nil.
 func (p Profile) Validate() error {
 	var v validator
 	if p.Format != ProfileFormat {
@@ -376,16 +343,15 @@ func (p Profile) Validate() error {
 	if p.Limits.MaxSpeedNMPS != 0 {
 		v.positive("limits.max_speed_nm_per_s", p.Limits.MaxSpeedNMPS)
 	}
-	if len(v.problems) == 0 {
-		return nil
-	}
-	return &ProfileError{Problems: v.problems}
+	return v.Err("", ErrInvalidProfile)
 }
 
-type validator struct{ problems []FieldProblem }
+// validator collects a profile's problems, each with its JSON path, the
+// bad value and what is wrong.
+type validator struct{ jsonfile.Problems }
 
 func (v *validator) add(path string, value any, problem string) {
-	v.problems = append(v.problems, FieldProblem{Path: path, Value: value, Problem: problem})
+	v.AddValue(path, value, "%s", problem)
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
@@ -440,104 +406,77 @@ func (v *validator) mode(prefix string, m ModeProfile, fe bool) {
 
 // ParseProfile reads a profile from JSON. Fields the document leaves out
 // keep the value of the preset named by its "base" field (the
-// room-temperature default when absent); unknown fields are refused, so
-// a misspelt name is reported rather than ignored. name labels errors
-// (usually the file name). The result is validated.
+// room-temperature default when absent); unknown fields and fields in
+// another case are refused, so a misspelt name is reported rather than
+// ignored. name labels errors (usually the file name). The result is
+// validated; every problem is reported with its JSON path, line and
+// column in a *jsonfile.Error wrapping ErrInvalidProfile.
 func ParseProfile(data []byte, name string) (Profile, error) {
 	label := name
 	if label == "" {
 		label = "profile"
 	}
-	var head struct {
-		Format  *string `json:"format"`
-		Version *int    `json:"version"`
-		Base    string  `json:"base"`
+	fail := func(ps []jsonfile.Problem) error {
+		jsonfile.Locate(data, ps)
+		return &jsonfile.Error{File: label, Kind: ErrInvalidProfile, Problems: ps}
 	}
-	if err := json.Unmarshal(data, &head); err != nil {
-		return Profile{}, fmt.Errorf("%s: %w", label, jsonError(data, err))
+	if len(data) > MaxProfileBytes {
+		return Profile{}, fail([]jsonfile.Problem{{Message: "the file holds " + jsonfile.Bytes(int64(len(data))) +
+			", more than the " + jsonfile.Bytes(MaxProfileBytes) + " limit for a profile", Err: jsonfile.ErrTooLarge}})
 	}
-	if head.Format == nil || *head.Format != ProfileFormat {
-		got := "missing"
-		if head.Format != nil {
-			got = fmt.Sprintf("%q", *head.Format)
+	// Identify the file and its preset before decoding it strictly, so a
+	// design or a newer version gets the right message.
+	if p, bad := jsonfile.SyntaxProblem(data, "the profile"); bad {
+		return Profile{}, fail([]jsonfile.Problem{p})
+	}
+	format, ok := jsonfile.TopString(data, "format")
+	if !ok || format != ProfileFormat {
+		p := jsonfile.Problem{Path: "format", Message: fmt.Sprintf("not a dimerpath instrument profile (want %q)", ProfileFormat)}
+		if raw, found := jsonfile.TopField(data, "format"); found {
+			p.Value = jsonfile.Text(raw)
+		} else {
+			p.Message = "missing: " + p.Message
 		}
-		return Profile{}, fmt.Errorf("%s: not a dimerpath instrument profile: format is %s, want %q", label, got, ProfileFormat)
+		return Profile{}, fail([]jsonfile.Problem{p})
 	}
-	if head.Version == nil || *head.Version < 1 || *head.Version > ProfileVersion {
-		got := "missing"
-		if head.Version != nil {
-			got = fmt.Sprint(*head.Version)
+	raw, found := jsonfile.TopField(data, "version")
+	if v, err := strconv.Atoi(string(raw)); err != nil || v < 1 || v > ProfileVersion {
+		p := jsonfile.Problem{Path: "version", Message: fmt.Sprintf("this dimerpath reads profile versions 1 to %d", ProfileVersion)}
+		if found {
+			p.Value = jsonfile.Text(raw)
+		} else {
+			p.Message = "missing: " + p.Message
 		}
-		return Profile{}, fmt.Errorf("%s: profile version %s: this dimerpath reads versions 1..%d", label, got, ProfileVersion)
+		return Profile{}, fail([]jsonfile.Problem{p})
 	}
-	p, err := Preset(head.Base)
+	base, _ := jsonfile.TopString(data, "base")
+	p, err := Preset(base)
 	if err != nil {
-		return Profile{}, fmt.Errorf("%s: base: %w", label, err)
+		return Profile{}, fail([]jsonfile.Problem{{Path: "base", Value: base,
+			Message: fmt.Sprintf("unknown profile preset (known: %s)", strings.Join(Presets(), ", "))}})
 	}
 	// Name and notes describe the file, not the preset it starts from.
 	p.Name, p.Notes = "", ""
-	dec := json.NewDecoder(bytes.NewReader(data))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&p); err != nil {
-		return Profile{}, fmt.Errorf("%s: %w", label, jsonError(data, err))
-	}
-	if dec.More() {
-		return Profile{}, fmt.Errorf("%s: unexpected data after the profile object", label)
+	var ps jsonfile.Problems
+	if !jsonfile.Decode(data, &p, &ps, jsonfile.Options{What: "the profile", MaxString: 10000, MaxList: 100, MaxDepth: 8}) || ps.Len() > 0 {
+		return Profile{}, ps.Err(label, ErrInvalidProfile)
 	}
 	if p.Name == "" && name != "" {
 		p.Name = strings.TrimSuffix(filepath.Base(name), filepath.Ext(name))
 	}
 	if err := p.Validate(); err != nil {
-		var pe *ProfileError
-		if errors.As(err, &pe) {
-			pe.File = name
-		}
-		return Profile{}, err
+		e := err.(*jsonfile.Error)
+		e.File = label
+		jsonfile.Locate(data, e.Problems)
+		return Profile{}, e
 	}
 	return p, nil
 }
 
-// jsonError turns a decoding error into one that names the field or the
-// line and column.
-func jsonError(data []byte, err error) error {
-	var te *json.UnmarshalTypeError
-	if errors.As(err, &te) {
-		path := te.Field
-		if path == "" {
-			path = "(top level)"
-		}
-		return fmt.Errorf("%s: got a JSON %s, want %s (line %d)", path, te.Value, describeGoType(te.Type.String()), lineOf(data, te.Offset))
-	}
-	var se *json.SyntaxError
-	if errors.As(err, &se) {
-		return fmt.Errorf("malformed JSON at line %d: %v", lineOf(data, se.Offset), err)
-	}
-	if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
-		return fmt.Errorf("truncated JSON: %w", err)
-	}
-	return err
-}
-
-func describeGoType(t string) string {
-	switch t {
-	case "float64", "int":
-		return "a number"
-	case "string":
-		return "a string"
-	case "bool":
-		return "true or false"
-	}
-	return "an object"
-}
-
-func lineOf(data []byte, offset int64) int {
-	offset = min(max(offset, 0), int64(len(data)))
-	return bytes.Count(data[:offset], []byte("\n")) + 1
-}
-
-// LoadProfile reads and validates the profile file at path.
+// LoadProfile reads and validates the profile file at path; a file larger
+// than MaxProfileBytes is refused before it is read.
 func LoadProfile(path string) (Profile, error) {
-	data, err := os.ReadFile(path)
+	data, err := jsonfile.ReadFile(path, MaxProfileBytes, ErrInvalidProfile)
 	if err != nil {
 		return Profile{}, err
 	}
@@ -545,24 +484,21 @@ func LoadProfile(path string) (Profile, error) {
 }
 
 // SaveProfile validates p and writes it to path atomically (temp file +
-// rename), with the current format and version.
+// rename), with the current format and version, one field a line.
 func SaveProfile(path string, p Profile) error {
 	p.Format, p.Version = ProfileFormat, ProfileVersion
 	if p.Base == "" {
 		p.Base = defaultPresetName
 	}
 	if err := p.Validate(); err != nil {
-		var pe *ProfileError
-		if errors.As(err, &pe) {
-			pe.File = path
-		}
+		err.(*jsonfile.Error).File = path
 		return err
 	}
-	data, err := json.MarshalIndent(p, "", "  ")
+	data, err := jsonfile.Marshal(p, jsonfile.Indented)
 	if err != nil {
 		return fmt.Errorf("%s: %w", path, err)
 	}
-	return atomicfile.WriteBytes(path, append(data, '\n'), 0o644)
+	return atomicfile.WriteBytes(path, data, 0o644)
 }
 
 // LimitError reports a value a plan needs that lies beyond the

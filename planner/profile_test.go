@@ -1,6 +1,7 @@
 package planner
 
 import (
+	"dimerpath/internal/jsonfile"
 	"errors"
 	"math"
 	"os"
@@ -37,8 +38,9 @@ func TestDefaultProfileValues(t *testing.T) {
 	if got := p.FE.LineWidth(); math.Abs(got-10) > 1e-9 {
 		t.Errorf("FE line width = %v nm, want 10", got)
 	}
-	// The default dwell reaches 99 % within the 10 ms–1 s FCL range (from
-	// memory, physics.md §3).
+	// The default dwell reaches 99 % within the 10 ms–1 s of a
+	// feedback-controlled dwell (from memory; the technique: Walsh &
+	// Hersam, Annu. Rev. Phys. Chem. 60, 193 (2009)).
 	if c := p.Dwell.CapS(); c < 0.01 || c > 1 {
 		t.Errorf("dwell 99%% time = %v s, want within 0.01..1 s", c)
 	}
@@ -59,9 +61,9 @@ func TestValidateReportsEveryBadField(t *testing.T) {
 	p.Order = "sideways"
 	p.Limits.MaxBiasV = math.Inf(1)
 	err := p.Validate()
-	var pe *ProfileError
+	var pe *jsonfile.Error
 	if !errors.As(err, &pe) || !errors.Is(err, ErrInvalidProfile) {
-		t.Fatalf("Validate() = %v, want *ProfileError wrapping ErrInvalidProfile", err)
+		t.Fatalf("Validate() = %v, want *jsonfile.Error wrapping ErrInvalidProfile", err)
 	}
 	want := []string{"ap.current_a", "fe.bias_v", "move_speed_nm_per_s", "dwell.completion", "fe.overlap", "order", "limits.max_bias_v"}
 	if len(pe.Problems) != len(want) {
@@ -133,17 +135,17 @@ func TestParseProfile(t *testing.T) {
 			func(p Profile) bool { return p.AP.Passes == 2 && p.AP.CurrentA == 2e-9 && p.Drift.RateNMPerMin == 0.1 }},
 		{"low-temperature base", `{"format":"dimerpath-profile","version":1,"base":"lt"}`, "",
 			func(p Profile) bool { return p.Drift.RateNMPerMin < 0.01 && p.Name == "cal" }},
-		{"wrong format", `{"format":"other","version":1}`, `format is "other"`, nil},
-		{"missing format", `{"version":1}`, "format is missing", nil},
-		{"future version", `{"format":"dimerpath-profile","version":7}`, "version 7", nil},
-		{"unknown field", `{"format":"dimerpath-profile","version":1,"ap":{"bias":4}}`, `unknown field "bias"`, nil},
+		{"wrong format", `{"format":"other","version":1}`, `cal.json:1:11: format = "other": not a dimerpath instrument profile`, nil},
+		{"missing format", `{"version":1}`, "format: missing: not a dimerpath instrument profile", nil},
+		{"future version", `{"format":"dimerpath-profile","version":7}`, "version = 7: this dimerpath reads profile versions 1 to 1", nil},
+		{"unknown field", `{"format":"dimerpath-profile","version":1,"ap":{"bias":4}}`, "ap.bias: unknown field", nil},
 		{"wrong type", `{"format":"dimerpath-profile","version":1,"ap":{"current_a":"2 nA"}}`, "ap.current_a", nil},
 		{"truncated", `{"format":"dimerpath-profile","version":1,"ap":{`, "", nil},
 		{"negative speed", `{"format":"dimerpath-profile","version":1,"move_speed_nm_per_s":-5}`, "move_speed_nm_per_s = -5", nil},
 		{"zero current", `{"format":"dimerpath-profile","version":1,"fe":{"current_a":0}}`, "fe.current_a = 0", nil},
 		{"huge number", `{"format":"dimerpath-profile","version":1,"settle_s":1e400}`, "settle_s", nil},
-		{"unknown base", `{"format":"dimerpath-profile","version":1,"base":"moon"}`, `unknown profile preset "moon"`, nil},
-		{"trailing data", `{"format":"dimerpath-profile","version":1} {}`, "after top-level value", nil},
+		{"unknown base", `{"format":"dimerpath-profile","version":1,"base":"moon"}`, `base = "moon": unknown profile preset (known: lt, rt)`, nil},
+		{"trailing data", `{"format":"dimerpath-profile","version":1} {}`, "cal.json:1:44: not valid JSON: more data after the profile", nil},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -8,6 +8,7 @@ import (
 	"strings"
 	"testing"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice"
 )
 
@@ -40,11 +41,11 @@ func TestParseRefuses(t *testing.T) {
 	}{
 		{"empty", ``, []string{"bad.json: the file ends before the design does"}},
 		{"truncated", minimal[:len(minimal)/2], []string{"bad.json: the file ends before the design does"}},
-		{"syntax", `{"format": "dimerpath-design",, }`, []string{"bad.json: line 1, column 31: not valid JSON"}},
+		{"syntax", `{"format": "dimerpath-design",, }`, []string{"bad.json:1:31: not valid JSON"}},
 		{"trailing data", minimal + ` {}`, []string{"more data after"}},
-		{"not an object", `[1, 2]`, []string{"bad.json: want an object, not a list"}},
+		{"not an object", `[1, 2]`, []string{"bad.json:1:1: want an object, not a list"}},
 		{"NaN point", strings.Replace(minimal, "[[50, 50], [120, 120]]", "[[50, 50], [NaN, 120]]", 1),
-			[]string{"bad.json: variants[0].regions[1].shapes[0].points_nm[1][0]: NaN is not a finite number"}},
+			[]string{"bad.json:6:110: variants[0].regions[1].shapes[0].points_nm[1][0]: NaN is not a finite number"}},
 		{"Infinity width", strings.Replace(minimal, `"width_nm": 4`, `"width_nm": -Infinity`, 1),
 			[]string{"variants[0].regions[1].shapes[0].width_nm: -Infinity is not a finite number"}},
 		{"1e400", strings.Replace(minimal, `"width_nm": 200`, `"width_nm": 1e400`, 1), []string{"field.width_nm: 1e400 is not a finite number"}},
@@ -74,6 +75,9 @@ func TestParseRefuses(t *testing.T) {
 		{"tunnel gap to nowhere", strings.Replace(minimal, `]}]
 }`, `], "tunnel_gaps": [{"a": "pad", "b": "island"}]}]
 }`, 1), []string{`variants[0].tunnel_gaps[0].b: "island" names no region of variant "A"`}},
+		{"tunnel gap declared twice", strings.Replace(minimal, `]}]
+}`, `], "tunnel_gaps": [{"a": "pad", "b": "lead"}, {"a": "lead", "b": "pad"}]}]
+}`, 1), []string{`variants[0].tunnel_gaps[1]: the gap between "lead" and "pad" is also declared as tunnel_gaps[0]`}},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -101,7 +105,7 @@ func TestParseReportsEveryProblem(t *testing.T) {
 		`[[50, 50], [120, 120]]`, `[[50, "x"], [120, 120]]`,
 	).Replace(minimal)
 	_, err := Parse("bad.json", []byte(in))
-	var ve *ValidationError
+	var ve *jsonfile.Error
 	if !errors.As(err, &ve) {
 		t.Fatalf("err = %v", err)
 	}
