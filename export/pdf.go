@@ -356,7 +356,7 @@ func (g condGroup) kindCounts() string {
 	var parts []string
 	for _, k := range []planner.StrokeKind{planner.StrokeLine, planner.StrokeDwell, planner.StrokeRaster, planner.StrokeOutline} {
 		if n := countOf(g.kinds, k); n > 0 {
-			parts = append(parts, fmt.Sprintf("%d %s", n, shortKind(k)))
+			parts = append(parts, fmt.Sprintf("%d %s", n, k))
 		}
 	}
 	return strings.Join(parts, ", ")

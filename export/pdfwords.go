@@ -180,18 +180,6 @@ func idRanges(ids []int) string {
 	return strings.Join(parts, ", ")
 }
 
-func shortKind(k planner.StrokeKind) string {
-	switch k {
-	case planner.StrokeDwell:
-		return "dwell"
-	case planner.StrokeRaster:
-		return "raster"
-	case planner.StrokeOutline:
-		return "outline"
-	}
-	return "line"
-}
-
 func capitalise(s string) string {
 	if s == "" {
 		return s
