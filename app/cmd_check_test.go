@@ -76,7 +76,7 @@ func TestInfoCommand(t *testing.T) {
 		"Variant gap-12-source",
 		"sensor-island    device         AP    -        ±0.20 nm   1560",
 		"pad-source       contact pad    FE",
-		"tunnel gap sensor-island – source-lead: 9.22 nm (12.0 dimer rows)",
+		"tunnel gap sensor-island – source-lead: 9.22 nm (12.0 dimer rows across the rows)",
 	} {
 		if !strings.Contains(out, w) {
 			t.Errorf("info lacks %q:\n%s", w, out)

@@ -148,8 +148,7 @@ func printInfo(w io.Writer, file string, d *design.Design, variant string) error
 			if a == nil || b == nil {
 				continue
 			}
-			gap := l.GapNM(a, b)
-			fmt.Fprintf(w, "  tunnel gap %s – %s: %.2f nm (%.1f dimer rows)\n", g.A, g.B, gap, gap/lattice.RowSpacing)
+			fmt.Fprintf(w, "  tunnel gap %s – %s: %s\n", g.A, g.B, l.Surface.GapText(l.Gap(a, b)))
 		}
 	}
 	return nil

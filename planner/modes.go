@@ -51,16 +51,19 @@ func minWidth(segs []runSeg, lineWidth float64) (float64, r2.Point) {
 	for _, dir := range []lattice.RowDirection{lattice.RowsAlongX, lattice.RowsAlongY} {
 		ix := newChordIndex(segs, dir)
 		lo, hi := math.Inf(1), math.Inf(-1)
+		alo, ahi := math.Inf(1), math.Inf(-1)
 		for _, s := range segs {
 			for _, p := range []r2.Point{s.a, s.b} {
-				_, c := dir.Split(p)
+				a, c := dir.Split(p)
 				lo, hi = math.Min(lo, c), math.Max(hi, c)
+				alo, ahi = math.Min(alo, a), math.Max(ahi, a)
 			}
 		}
 		lo -= lattice.RowSpacing / 2
 		hi += lattice.RowSpacing / 2
 		if hi-lo < best {
-			best, at = hi-lo, dir.Turned().Join(0, (lo+hi)/2)
+			// The whole region is narrower than a raster line: its middle.
+			best, at = hi-lo, dir.Join((alo+ahi)/2, (lo+hi)/2)
 		}
 		for c := lo + lineWidth/2; c <= hi-lineWidth/2; c += step {
 			for _, ch := range ix.chords(c, lattice.RowSpacing/2, lattice.RowSpacing, true) {

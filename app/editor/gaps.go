@@ -37,12 +37,12 @@ func (s *Session) RemoveTunnelGap(i int) {
 	s.commit("remove tunnel gap "+g.A+" – "+g.B, "", ChangeRegions)
 }
 
-// GapWidth returns the width (nm) of the current variant's tunnel gap
+// GapWidth returns the width of the current variant's tunnel gap
 // between a and b measured by the last check, and whether it is known
 // and up to date.
-func (s *Session) GapWidth(a, b string) (float64, bool) {
+func (s *Session) GapWidth(a, b string) (GapMeasure, bool) {
 	if s.findState != s.hist.current() {
-		return 0, false
+		return GapMeasure{}, false
 	}
 	w, ok := s.gapWidths[[2]string{a, b}]
 	if !ok {

@@ -42,11 +42,20 @@ type Finding struct {
 }
 
 // CheckResult is what a design-rule check of one variant finds: the
-// findings, and the measured width (nm) of each declared tunnel gap,
-// keyed by its two region names in the order declared.
+// findings, and the measured width of each declared tunnel gap, keyed
+// by its two region names in the order declared.
 type CheckResult struct {
 	Findings  []Finding
-	GapWidths map[[2]string]float64
+	GapWidths map[[2]string]GapMeasure
+}
+
+// GapMeasure is a tunnel gap's width as the check measured it: NM, and
+// Text, the width in nm with its count of dimer rows or dimers by the
+// gap's direction ("6.91 nm (9.0 dimer rows across the rows)", from
+// lattice.Surface.GapText).
+type GapMeasure struct {
+	NM   float64
+	Text string
 }
 
 // CheckDesign runs the design-rule checks on one variant of d and
@@ -69,10 +78,11 @@ func CheckDesign(ctx context.Context, d *design.Design, variant string) (CheckRe
 	if len(l.Variant.TunnelGaps) == 0 {
 		return res, nil
 	}
-	res.GapWidths = map[[2]string]float64{}
+	res.GapWidths = map[[2]string]GapMeasure{}
 	for _, g := range l.Variant.TunnelGaps {
 		if a, b := l.Region(g.A), l.Region(g.B); a != nil && b != nil {
-			res.GapWidths[[2]string{g.A, g.B}] = l.GapNM(a, b)
+			gap := l.Gap(a, b)
+			res.GapWidths[[2]string{g.A, g.B}] = GapMeasure{NM: gap.NM, Text: l.Surface.GapText(gap)}
 		}
 	}
 	return res, ctx.Err()

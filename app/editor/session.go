@@ -50,7 +50,7 @@ type Session struct {
 	planVariant string
 	planState   *snapshot // the history state the plan was made from
 	findings    []Finding
-	gapWidths   map[[2]string]float64 // tunnel gaps measured by the last check
+	gapWidths   map[[2]string]GapMeasure // tunnel gaps measured by the last check
 	findState   *snapshot
 	chosen      int // index of the finding chosen in the list, or -1
 

@@ -1,6 +1,7 @@
 package gui
 
 import (
+	"fmt"
 	"math"
 	"path/filepath"
 	"strings"
@@ -55,12 +56,15 @@ func TestTunnelGapsDeclaredMeasuredAndKeptConsistent(t *testing.T) {
 	if !ok {
 		t.Fatal("the check did not measure the gap")
 	}
-	if want := bruteGap(s, 0, 1); math.Abs(w-want) > 1e-6 {
-		t.Errorf("gap measured %.4f nm, brute force over site cells %.4f nm", w, want)
+	if want := bruteGap(s, 0, 1); math.Abs(w.NM-want) > 1e-6 {
+		t.Errorf("gap measured %.4f nm, brute force over site cells %.4f nm", w.NM, want)
+	}
+	if want := fmt.Sprintf("%.2f nm (diagonal: ", w.NM); !strings.HasPrefix(w.Text, want) {
+		t.Errorf("gap described as %q, want %q…: the lead sits off the island's corner", w.Text, want)
 	}
 	// The Regions panel shows it on the island.
 	s.Select(0)
-	if got := texts(u.regions.gaps); !strings.Contains(got, "Tunnel gap to lead: "+formatLength(w)) {
+	if got := texts(u.regions.gaps); !strings.Contains(got, "Tunnel gap to lead: "+w.Text) {
 		t.Errorf("Regions panel shows %q", got)
 	}
 

@@ -17,7 +17,6 @@ import (
 
 	"dimerpath/app/editor"
 	"dimerpath/app/render"
-	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
 
@@ -380,7 +379,7 @@ func (p *regionsPanel) refreshGaps() {
 		coupled[other] = true
 		width := "measuring…"
 		if w, ok := s.GapWidth(g.A, g.B); ok {
-			width = fmt.Sprintf("%s (%.1f dimer rows)", formatLength(w), w/lattice.RowSpacing)
+			width = w.Text
 		}
 		rm := widget.NewButtonWithIcon("", theme.ContentRemoveIcon(), func() { p.u.Session.RemoveTunnelGap(gi) })
 		rows = append(rows, container.NewBorder(nil, nil, nil, rm, wrapLabel("Tunnel gap to "+other+": "+width)))

@@ -88,7 +88,7 @@ func ExampleCheck() {
 	}
 	fmt.Println("errors:", design.HasErrors(findings))
 	// Output:
-	// error   tunnel-gap     [sensor-island, source-lead]  at (1000.0, 1006.9) nm: tunnel gap 2.30 nm (3.0 dimer rows) is narrower than 5.38 nm
+	// error   tunnel-gap     [sensor-island, source-lead]  at (1000.0, 1006.9) nm: tunnel gap 2.30 nm (3.0 dimer rows across the rows) is narrower than 5.38 nm
 	// errors: true
 }
 
