@@ -47,7 +47,12 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 			}
 			return nil
 		}},
-		{"segments", func() error { return pdfSegments(ctx, d, p) }},
+		{"segments", func() error {
+			if err := pdfSegments(ctx, d, p, sc.number); err != nil {
+				return err
+			}
+			return pdfStrokeList(ctx, d, p, sc.number)
+		}},
 		{"estimates", func() error { pdfEstimates(d, p); return nil }},
 		{"atomic-precision areas", func() error {
 			return pdfZooms(ctx, d, sc, func(f float64) { opt.progress("pdf: atomic-precision areas", (4+f)/5) })
@@ -205,7 +210,8 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		}
 	}
 	d.y += 2
-	d.para("Segments and strokes are numbered from 1 on paper; the JSON and CSV exports count them from 0. "+
+	d.para("Segments are numbered from 1 on paper (from 0 in the JSON and CSV exports). Strokes are numbered from 1 in the order "+
+		"they are written; the JSON and CSV exports give that number beside each stroke's id, which counts from 0 in the order the planner made them. "+
 		"Positions are field coordinates in nm, origin at the lower-left corner of the scan field. "+
 		"Times are on the plan clock, from the start of the session.", font{size: 7.5, grey: 0.25})
 }
@@ -362,13 +368,22 @@ func (g condGroup) kindCounts() string {
 	return strings.Join(parts, ", ")
 }
 
-func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan) error {
+// segmentNumbers returns the paper numbers of a segment's strokes.
+func segmentNumbers(s *planner.Segment, numbers []int) []int {
+	out := make([]int, len(s.Strokes))
+	for k, id := range s.Strokes {
+		out[k] = numbers[id]
+	}
+	return out
+}
+
+func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int) error {
 	d.page()
 	d.heading("Segments", 0)
 	d.para("Write the segments in order. For each: move to its fiducial, image it and correct the offset, "+
-		"then write its strokes in order from the start position (stroke numbers as in the figures), "+
-		"and tick the box. Each line within a row is one set of tip conditions and the strokes written with it. "+
-		"Duration runs from the registration to the end of the segment; \"ends at\" is on the plan clock.", fontBody)
+		"then write its strokes in order of their numbers from the start position (the stroke list below gives each one; "+
+		"the figures show each number at its stroke's start), and tick the box. Each line within a row is one set of tip conditions "+
+		"and the strokes written with it. Duration runs from the registration to the end of the segment; \"ends at\" is on the plan clock.", fontBody)
 	f := font{size: 7.5}
 	t := newTable(d, f,
 		tableColumn{title: "Done", share: 6},
@@ -417,7 +432,7 @@ func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan) error {
 		start := ""
 		if len(s.Strokes) > 0 {
 			q := p.Strokes[s.Strokes[0]].Path[0]
-			start = nm1(q.X) + ", " + nm1(q.Y) + "\n" + plural("stroke", len(s.Strokes)) + " " + idRanges(slices.Sorted(slices.Values(s.Strokes)))
+			start = nm1(q.X) + ", " + nm1(q.Y) + "\n" + plural("stroke", len(s.Strokes)) + " " + numberRanges(segmentNumbers(&s, numbers))
 		}
 		fid := s.Fiducial + "\n(" + nm1(s.FiducialAt.X) + ", " + nm1(s.FiducialAt.Y) + ")"
 		top, _ := t.row("", strconv.Itoa(i+1), fid, start, strings.Join(strokes, "\n"), strings.Join(modes, "\n"),
@@ -534,7 +549,7 @@ func zoomLegend(sc *scene) []legendEntry {
 
 func pdfZooms(ctx context.Context, d *pdfDoc, sc *scene, progress func(float64)) error {
 	p := sc.plan
-	areas, omitted := apAreas(p)
+	areas, omitted := apAreas(p, sc.number)
 	if len(areas) == 0 {
 		return nil
 	}
@@ -556,7 +571,7 @@ func pdfZooms(ctx context.Context, d *pdfDoc, sc *scene, progress func(float64))
 			d.page()
 		}
 		h := math.Min(figH, d.remains()-16)
-		regions, strokes := areaCaption(p, a)
+		regions, strokes := areaCaption(p, a, sc.number)
 		win := a.win
 		cap := fmt.Sprintf("AP area %d of %d: %s", i+1, len(areas)+omitted, regions)
 		for _, l := range wrapText(d.c, cap, fontBold, d.width()) {

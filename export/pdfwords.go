@@ -3,6 +3,7 @@ package export
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -158,24 +159,22 @@ func countOf[T comparable](s []T, v T) int {
 	return n
 }
 
-// idRanges formats stroke IDs (shown from 1) as "4–9, 12", cut after a
-// few ranges.
-func idRanges(ids []int) string {
+// numberRanges formats stroke numbers on paper as "4–9, 12": every
+// number, however many ranges (a long list wraps in its cell, never cut).
+func numberRanges(nums []int) string {
+	nums = slices.Sorted(slices.Values(nums))
 	var parts []string
-	for i := 0; i < len(ids); {
+	for i := 0; i < len(nums); {
 		j := i
-		for j+1 < len(ids) && ids[j+1] == ids[j]+1 {
+		for j+1 < len(nums) && nums[j+1] == nums[j]+1 {
 			j++
 		}
 		if j > i {
-			parts = append(parts, fmt.Sprintf("%d–%d", ids[i]+1, ids[j]+1))
+			parts = append(parts, fmt.Sprintf("%d–%d", nums[i], nums[j]))
 		} else {
-			parts = append(parts, strconv.Itoa(ids[i]+1))
+			parts = append(parts, strconv.Itoa(nums[i]))
 		}
 		i = j + 1
-	}
-	if len(parts) > 2 {
-		return parts[0] + ", " + parts[1] + ", …"
 	}
 	return strings.Join(parts, ", ")
 }
