@@ -11,7 +11,7 @@ import (
 	"time"
 
 	"dimerpath/export"
-	"dimerpath/internal/jsonfile"
+	"dimerpath/internal/atomicfile"
 	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
@@ -90,7 +90,7 @@ func runExport(env Env, args []string, fl exportFlags) int {
 		return fail("%v", err)
 	}
 	in := args[0]
-	data, err := os.ReadFile(in)
+	data, isPlan, err := export.ReadInput(in)
 	if err != nil {
 		return fail("%v", err)
 	}
@@ -98,7 +98,7 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	defer stop()
 
 	var p *planner.Plan
-	if isPlanFile(data) {
+	if isPlan {
 		for _, name := range []string{"variant", "profile", "seed"} {
 			if fl.set[name] {
 				return fail("%s is a plan file: --%s applies only when planning a design", in, name)
@@ -110,6 +110,9 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	} else {
 		var pat *export.Pattern
 		if p, pat, err = planDesign(ctx, env, in, data, fl); err != nil {
+			if code := internalError(env, "export", err); code != 0 {
+				return code
+			}
 			return fail("%v", err)
 		}
 		opt.Pattern = pat
@@ -129,13 +132,6 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, expected %s%s)\n",
 		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), units.Duration(p.TotalS), size)
 	return ExitOK
-}
-
-// isPlanFile reports whether data is a dimerpath plan file rather than a
-// design, by its "format" field alone (the rest may be malformed).
-func isPlanFile(data []byte) bool {
-	format, _ := jsonfile.TopString(data, "format")
-	return format == export.PlanFormat
 }
 
 // planDesign plans the chosen variant of the design in data, reporting
@@ -181,12 +177,20 @@ func (r *reportFlags) options(formats ...export.Format) (export.Options, error) 
 	opt := export.Options{Date: time.Now(), Generator: "dimerpath " + Version}
 	var err error
 	if r.out != "" {
+		if st, err := os.Stat(r.out); err == nil && st.IsDir() {
+			return opt, fmt.Errorf("-o %s is a directory: give the file to write (%s)", r.out, formatList(formats))
+		}
 		f, err := export.FormatFromPath(r.out)
 		if err != nil {
 			return opt, err
 		}
 		if !slices.Contains(formats, f) {
 			return opt, fmt.Errorf("-o %s: %w: this command writes %s", r.out, export.ErrFormat, formatList(formats))
+		}
+		// A read-only, missing or full directory shows now, not after
+		// the planning.
+		if err := atomicfile.Check(r.out); err != nil {
+			return opt, err
 		}
 	}
 	if opt.Paper, err = export.ParsePaper(r.paper); err != nil {
