@@ -5,6 +5,9 @@ import (
 	"context"
 	"errors"
 	"math"
+	"os"
+	"path/filepath"
+	"strings"
 	"testing"
 
 	"dimerpath/lattice/design"
@@ -106,4 +109,40 @@ func FuzzPlanAndExport(f *testing.F) {
 			t.Fatalf("summary: %v", err)
 		}
 	})
+}
+
+// Issue 16: export read its input whole (1 GiB: 1.07 GB of memory)
+// before refusing it. A regular file beyond its kind's limit is now
+// refused by its size, unread; a plan is told from a design by its
+// format alone.
+func TestReadInputLimits(t *testing.T) {
+	dir := t.TempDir()
+	sparse := func(name, head string) string {
+		path := filepath.Join(dir, name)
+		f, err := os.Create(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		f.WriteString(head)
+		if err := f.Truncate(1 << 30); err != nil {
+			t.Skip("no sparse files here:", err)
+		}
+		f.Close()
+		return path
+	}
+	for _, c := range []struct{ name, head, want string }{
+		{"plan.json", `{"format": "dimerpath-plan", "version": 1, "x": "`, "plan.json: the file holds 1 GiB, more than the 512 MiB limit"},
+		{"design.json", `{"format": "dimerpath-design", "version": 1, "x": "`, "design.json: the file holds 1 GiB, more than the 64 MiB limit"},
+		{"noise.bin", "PK\x03\x04", "noise.bin: the file holds 1 GiB, more than the 64 MiB limit"},
+	} {
+		_, _, err := ReadInput(sparse(c.name, c.head))
+		if !errors.Is(err, ErrTooLarge) || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: %v, want %q", c.name, err, c.want)
+		}
+	}
+	small := filepath.Join(dir, "small.json")
+	os.WriteFile(small, []byte(`{"total_s": NaN, "format": "dimerpath-plan"}`), 0o644)
+	if _, isPlan, err := ReadInput(small); err != nil || !isPlan {
+		t.Errorf("a plan with a NaN total: plan %v, %v", isPlan, err)
+	}
 }
