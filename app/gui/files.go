@@ -20,6 +20,7 @@ import (
 
 	"dimerpath/app/editor"
 	"dimerpath/export"
+	"dimerpath/internal/atomicfile"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
@@ -534,10 +535,15 @@ func (u *UI) exportPlanTo(path string, d *design.Design, p *planner.Plan, es edi
 // with its path; a name without one of exts gets exts[0]. The file is
 // not touched here: the dialog's writer is closed unwritten (see
 // lazyFiles), and then writes the file through a temporary file, so a
-// write that fails leaves the old file as it was.
+// write that fails leaves the old file as it was. A path that cannot be
+// written (atomicfile.Check) is refused at once, before any work.
 func (u *UI) chooseFile(name string, exts []string, then func(path string)) {
 	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
 		path, err := chosenPath(w, err, exts)
+		if err == nil && path != "" {
+			// A read-only or full directory shows now, not after the work.
+			err = atomicfile.Check(path)
+		}
 		switch {
 		case err != nil:
 			dialog.ShowError(err, u.Win)
