@@ -6,6 +6,7 @@ import (
 	"flag"
 	"fmt"
 	"os"
+	"path/filepath"
 	"slices"
 	"strings"
 	"time"
@@ -85,7 +86,7 @@ func runExport(env Env, args []string, fl exportFlags) int {
 		return fail("%v", err)
 	}
 	// Refuse a bad output name or flag before any planning.
-	opt, err := fl.report.options(export.FormatPDF, export.FormatSVG, export.FormatJSON, export.FormatCSV)
+	opt, err := fl.report.options([]export.Format{export.FormatPDF, export.FormatSVG, export.FormatJSON, export.FormatCSV}, ".gds")
 	if err != nil {
 		return fail("%v", err)
 	}
@@ -173,19 +174,23 @@ func (r *reportFlags) declare(fs *flag.FlagSet, outHelp string) {
 
 // options checks the flags, the output's format among formats, and
 // returns the export options they give.
-func (r *reportFlags) options(formats ...export.Format) (export.Options, error) {
+// options checks the flags and returns the export options. formats are
+// the formats this command writes from its -o extension, and also names
+// the other extensions it takes (".gds"), for the message on a bad one.
+func (r *reportFlags) options(formats []export.Format, also ...string) (export.Options, error) {
 	opt := export.Options{Date: time.Now(), Generator: "dimerpath " + Version}
 	var err error
 	if r.out != "" {
 		if st, err := os.Stat(r.out); err == nil && st.IsDir() {
-			return opt, fmt.Errorf("-o %s is a directory: give the file to write (%s)", r.out, formatList(formats))
+			return opt, fmt.Errorf("-o %s is a directory: give the file to write (%s)", r.out, formatList(formats, also))
 		}
+		// The message names what this command writes, not every format
+		// export knows (compare -o x.txt once suggested .json or .csv).
 		f, err := export.FormatFromPath(r.out)
-		if err != nil {
-			return opt, err
-		}
-		if !slices.Contains(formats, f) {
-			return opt, fmt.Errorf("-o %s: %w: this command writes %s", r.out, export.ErrFormat, formatList(formats))
+		if ext := filepath.Ext(r.out); err != nil && ext == "" {
+			return opt, fmt.Errorf("-o %s: %w: the file name has no extension; this command writes %s", r.out, export.ErrFormat, formatList(formats, also))
+		} else if err != nil || !slices.Contains(formats, f) {
+			return opt, fmt.Errorf("-o %s: %w %q: this command writes %s", r.out, export.ErrFormat, ext, formatList(formats, also))
 		}
 		// A read-only, missing or full directory shows now, not after
 		// the planning.
@@ -204,10 +209,16 @@ func (r *reportFlags) options(formats ...export.Format) (export.Options, error) 
 	return opt, nil
 }
 
-func formatList(fs []export.Format) string {
+// formatList names the formats and the other extensions as ".pdf,
+// .svg or .gds".
+func formatList(fs []export.Format, also []string) string {
 	var names []string
 	for _, f := range fs {
 		names = append(names, "."+string(f))
 	}
-	return strings.Join(names, " or ")
+	names = append(names, also...)
+	if len(names) < 2 {
+		return strings.Join(names, "")
+	}
+	return strings.Join(names[:len(names)-1], ", ") + " or " + names[len(names)-1]
 }
