@@ -333,7 +333,7 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 			fmt.Fprintln(w, "  "+is)
 		}
 	}
-	fmt.Fprintf(w, "  expected: %.4g of %d sites left with their H, %.4g stray sites cleared outside the regions\n", c.ExpectedMissed, c.Sites, c.ExpectedStray)
+	fmt.Fprintf(w, "  expected: %s of %d sites left with their H, %s stray sites cleared outside the regions\n", expected(c.ExpectedMissed), c.Sites, expected(c.ExpectedStray))
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "  region\tsites\tmissed\tstray\tof them spurious\tP(no error)\t")
 	for _, r := range c.Regions {
@@ -358,10 +358,14 @@ func sortedKeys(m map[string]int) []string {
 	return ks
 }
 
-// expected formats an expected number of sites: three significant digits,
-// small ones with the typographic minus ("3.1e−07").
+// expected formats an expected number of sites: whole numbers from 1000
+// up ("59224"), three significant digits below ("3.55", "0.0288"), small
+// ones with the typographic minus ("3.1e−07").
 func expected(x float64) string {
-	if x != 0 && x < 0.001 {
+	switch {
+	case x >= 1000:
+		return fmt.Sprintf("%.0f", x)
+	case x != 0 && x < 0.001:
 		return strings.Replace(fmt.Sprintf("%.2g", x), "-", "−", 1)
 	}
 	return fmt.Sprintf("%.3g", x)
