@@ -108,7 +108,7 @@ func printFit(env Env, fit planner.LineFit) {
 		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 		est := func(name string, e planner.Estimate, scale float64, unit, format string) {
 			f := func(v float64) string { return fmt.Sprintf(format, v*scale) }
-			fmt.Fprintf(tw, "  %s\t%s %s\t± %s\t95%%: %s – %s\n", name, f(e.Value), unit, f(e.SE), f(e.Lo95), f(e.Hi95))
+			fmt.Fprintf(tw, "  %s\t%s %s\t± %.2g\t95%%: %s to %s\n", name, f(e.Value), unit, e.SE*scale, f(e.Lo95), f(e.Hi95))
 		}
 		est("footprint σ", fit.Sigma, 1, "nm", "%.4g")
 		est(fmt.Sprintf("yield Y at %.2f V, %.3g nA", fit.RefBiasV, fit.RefCurrentA*1e9), fit.Yield, 1, "H/e", "%.3g")

@@ -916,7 +916,7 @@ func (ck *coverageCheck) advice(who int32) string {
 		return "no stroke is known to reach it"
 	}
 	st := &ck.strokes[who]
-	what := fmt.Sprintf("stroke %d of region %q (%s %s)", who, st.Region, st.Mode, st.Kind)
+	what := fmt.Sprintf("stroke id %d of region %q (%s %s)", who, st.Region, st.Mode, st.Kind)
 	switch {
 	case st.Kind == StrokeDwell:
 		return what + " reaches it: a dwell's footprint (dwell.sigma_nm) clears its neighbours; keep them inside the region or leave them a dimer away"
