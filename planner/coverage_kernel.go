@@ -95,6 +95,58 @@ func (p *piece) uFactorAt(d int) float64 {
 	return 0
 }
 
+// alongRange adds amp times the piece's along factor at dimers [d0, d1)
+// to x[k] (k = d − d0), and records in best and who the largest term each
+// dimer gets and its stroke (not for slanted pieces or dots): the
+// factors come from the cache, filled where missing, and are 0 or 1
+// outside its windows.
+func (p *piece) alongRange(d0, d1 int, amp float64, x, best []float64, who []int32) {
+	if p.cache[0].v == nil && !p.cache[0].filled {
+		p.uFactorAt(d0) // allocates the windows
+	}
+	d := d0
+	add := func(to int, f float64) {
+		if e := amp * f; e > 0 {
+			for ; d < to; d++ {
+				k := d - d0
+				x[k] += e
+				if e > best[k] {
+					best[k], who[k] = e, p.stroke
+				}
+			}
+		}
+		d = max(d, to)
+	}
+	n := 1
+	if len(p.cache[1].v) > 0 {
+		n = 2
+	}
+	for w := range n {
+		c := &p.cache[w]
+		// Before the window: 0, or 1 between a parallel piece's windows.
+		outside := 0.0
+		if w == 1 && p.kind == pieceParallel {
+			outside = 1
+		}
+		add(min(c.d0, d1), outside)
+		for ; d < d1 && d < c.d0+len(c.v); d++ {
+			v := c.v[d-c.d0]
+			if v == 0 {
+				v = p.uFactor(lattice.DimerAlong(d))
+				c.v[d-c.d0] = v
+			}
+			if e := amp * v; e > 0 {
+				k := d - d0
+				x[k] += e
+				if e > best[k] {
+					best[k], who[k] = e, p.stroke
+				}
+			}
+		}
+	}
+	add(d1, 0)
+}
+
 const (
 	pieceParallel = iota
 	pieceSquare
@@ -239,6 +291,75 @@ func (p *piece) at(u, y float64) float64 {
 	s := (u-p.pu)*p.du + (y-p.py)*p.dy
 	x := (y-p.py)*p.du - (u-p.pu)*p.dy
 	return p.amp * gauss(x, p.sigma) * band(0, p.L, p.sigma, s)
+}
+
+// slantedDimers returns the range [k0, k1) of dimers d0+k (d0 ≤ d0+k <
+// d1) of the site line at y that lie within reach of slanted piece p:
+// both its across distance and its along position beyond the ends are
+// linear in the dimer, so the range is an intersection of two intervals.
+func (p *piece) slantedDimers(d0, d1 int, y float64) (k0, k1 int) {
+	reach := p.sigma * math.Sqrt(2*math.Log(max(p.amp/exposureNeglect, 1)))
+	lo, hi := 0.0, float64(d1-d0)
+	u0 := lattice.DimerAlong(d0)
+	// within returns the k with |c + k·m| ≤ r, or c + k·m in [a, b].
+	within := func(c, m, a, b float64) {
+		if m == 0 {
+			if c < a || c > b {
+				hi = lo
+			}
+			return
+		}
+		ka, kb := (a-c)/m, (b-c)/m
+		if ka > kb {
+			ka, kb = kb, ka
+		}
+		lo, hi = math.Max(lo, ka), math.Min(hi, kb)
+	}
+	h := lattice.DimerPitch
+	// Across: (y−py)·du − (u−pu)·dy; along: (u−pu)·du + (y−py)·dy.
+	within((y-p.py)*p.du-(u0-p.pu)*p.dy, -h*p.dy, -reach, reach)
+	within((u0-p.pu)*p.du+(y-p.py)*p.dy, h*p.du, -reach, p.L+reach)
+	if !(hi >= lo) {
+		return 0, 0
+	}
+	return max(0, int(math.Floor(lo))), min(d1-d0, int(math.Ceil(hi))+1)
+}
+
+// slantedRange adds slanted piece p's exposure at dimers d0+k, k in [k0,
+// k1), of the site line at y to x[k], recording the largest term in best
+// and who (see alongRange). The across distance is linear in k, so its
+// Gaussian follows the recurrence g(k+1) = g(k)·r(k), r(k+1) = r(k)·q,
+// re-anchored every 16 dimers against rounding; the band along the piece
+// comes from the Φ table.
+func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who []int32) {
+	if k0 >= k1 {
+		return
+	}
+	h := lattice.DimerPitch
+	u0 := lattice.DimerAlong(d0 + k0)
+	across := ((y-p.py)*p.du - (u0-p.pu)*p.dy) / p.sigma // at k0, in σ
+	step := -h * p.dy / p.sigma
+	along := (u0-p.pu)*p.du + (y-p.py)*p.dy // at k0, nm
+	alongStep := h * p.du
+	q := math.Exp(-step * step)
+	var g, r float64
+	for k := k0; k < k1; k++ {
+		j := k - k0
+		a := across + float64(j)*step
+		if j%16 == 0 {
+			g = math.Exp(-a * a / 2)
+			r = math.Exp(-(2*a*step + step*step) / 2)
+		}
+		s := along + float64(j)*alongStep
+		if e := p.amp * g * (fastPhi((p.L-s)/p.sigma) - fastPhi(-s/p.sigma)); e > 0 {
+			x[k] += e
+			if e > best[k] {
+				best[k], who[k] = e, p.stroke
+			}
+		}
+		g *= r
+		r *= q
+	}
 }
 
 // makeDot describes a dwell of stroke si at a on terrace t: its

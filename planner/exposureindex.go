@@ -28,9 +28,12 @@ type exposureIndex struct {
 	prof   *Profile
 }
 
-// expSeg is one straight piece of a line stroke: from a to b, all passes.
+// expSeg is one straight piece of a line stroke: from a to b (length L,
+// unit direction u), all passes; beyond reach across it or beyond its
+// ends it gives less than exposureNeglect.
 type expSeg struct {
-	a, b        r2.Point
+	a, u        r2.Point
+	L, reach    float64
 	peak, sigma float64
 	stroke      int32
 }
@@ -93,7 +96,8 @@ func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64, p
 			if a == b {
 				continue
 			}
-			ix.segs = append(ix.segs, expSeg{a: a, b: b, peak: peak, sigma: l.SigmaNM, stroke: int32(si)})
+			L := b.Sub(a).Norm()
+			ix.segs = append(ix.segs, expSeg{a: a, u: b.Sub(a).Mul(1 / L), L: L, reach: reach, peak: peak, sigma: l.SigmaNM, stroke: int32(si)})
 			ix.insert(a, b, reach, int32(len(ix.segs)-1))
 		}
 	}
@@ -150,11 +154,14 @@ func (ix *exposureIndex) at(p r2.Point) (x float64, most int32) {
 		var who int32
 		if item >= 0 {
 			s := &ix.segs[item]
-			ab := s.b.Sub(s.a)
-			L := ab.Norm()
-			u := ab.Mul(1 / L)
 			ap := p.Sub(s.a)
-			e, who = lineExposure(s.peak, s.sigma, L, ap.Dot(u), math.Abs(u.Cross(ap))), s.stroke
+			along, across := ap.Dot(s.u), math.Abs(s.u.Cross(ap))
+			if across > s.reach || along < -s.reach || along > s.L+s.reach {
+				continue
+			}
+			// lineExposure from the tables (relative error below 10⁻⁹).
+			e = s.peak * gauss(across, s.sigma) * (fastPhi((s.L-along)/s.sigma) - fastPhi(-along/s.sigma))
+			who = s.stroke
 		} else {
 			d := &ix.dots[^item]
 			dist := p.Sub(d.at).Norm()

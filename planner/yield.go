@@ -12,18 +12,22 @@ import (
 
 // PoissonBinomial returns the distribution of the number of successes
 // among independent trials with success probabilities p: dist[k] is the
-// probability of exactly k successes, for k = 0..len(p). It is exact in
-// floating point: trials of equal probability are taken together through
-// the binomial formula, and the groups are combined by direct
-// convolution; the only terms dropped are those that underflow float64
-// to zero in the tails. lo is the first k whose entry may be non-zero;
-// entries below lo and above the last non-zero one are 0.
+// probability of exactly k successes, for k = 0..len(p). Trials of equal
+// probability are taken together through the binomial formula, and the
+// groups are combined by direct convolution; the only terms dropped are
+// those that underflow float64 to zero in the tails. Probabilities that
+// differ by at most 10⁻¹² are taken as one, at their mean (windows alike
+// but for rounding), which moves the distribution by at most n·10⁻¹²; it
+// is otherwise exact in floating point. lo is the first k whose entry
+// may be non-zero; entries below lo and above the last non-zero one are
+// 0.
 //
 // Cost: O(G·W²) for G distinct probabilities and a support of width W
 // (W ≈ 80·sqrt(n·p(1-p)) before underflow), so 10^5 windows of two
 // templates take milliseconds. It panics if a probability lies outside
 // [0, 1]; callers validate first.
 func PoissonBinomial(p []float64) (dist []float64, lo int) {
+	const groupTolerance = 1e-12
 	n := len(p)
 	dist = make([]float64, n+1)
 	groups := map[float64]int{}
@@ -33,11 +37,28 @@ func PoissonBinomial(p []float64) (dist []float64, lo int) {
 		}
 		groups[q]++
 	}
-	keys := make([]float64, 0, len(groups))
+	sorted := make([]float64, 0, len(groups))
 	for q := range groups {
-		keys = append(keys, q)
+		sorted = append(sorted, q)
 	}
-	sort.Float64s(keys) // a fixed order makes the result reproducible to the bit
+	sort.Float64s(sorted) // a fixed order makes the result reproducible to the bit
+	// Probabilities within groupTolerance of a group's smallest join it,
+	// at the group's mean: windows alike but for rounding (the exposure
+	// model sums the same strokes at other coordinates) form one binomial.
+	var keys []float64
+	counts := map[float64]int{}
+	for i := 0; i < len(sorted); {
+		j, sum, m := i, 0.0, 0
+		for ; j < len(sorted) && sorted[j]-sorted[i] <= groupTolerance; j++ {
+			sum += sorted[j] * float64(groups[sorted[j]])
+			m += groups[sorted[j]]
+		}
+		q := min(max(sum/float64(m), sorted[i]), sorted[j-1])
+		keys = append(keys, q)
+		counts[q] += m
+		i = j
+	}
+	groups = counts
 
 	// cur holds P(k) for k = off..off+len(cur)-1.
 	cur, off := []float64{1}, 0
