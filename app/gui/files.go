@@ -17,6 +17,7 @@ import (
 	"fyne.io/fyne/v2/dialog"
 	"fyne.io/fyne/v2/storage"
 	"fyne.io/fyne/v2/widget"
+	"github.com/golang/geo/r2"
 
 	"dimerpath/app/editor"
 	"dimerpath/export"
@@ -29,10 +30,10 @@ import (
 // the recovery autosave, and exports.
 
 const (
-	prefRecent   = "recent-files"
-	maxRecent    = 8
-	recoveryName = editor.RecoveryName
-	recoveryMeta = editor.RecoveryMetaName
+	prefRecent       = "recent-files"
+	maxRecent        = 8
+	recoveryName     = editor.RecoveryName
+	recoveryMetaName = editor.RecoveryMetaName
 )
 
 // recoveryInfo is stored beside the recovery copy of the design.
@@ -312,20 +313,101 @@ func (u *UI) StopAutosave() {
 	}
 }
 
-// Autosave starts writing the recovery copy if the design changed since
-// the last copy and no copy is being written, and returns at once. On
-// Fyne's goroutine it only takes the current undo state, an immutable
-// snapshot that is already made; the design is assembled from it,
-// encoded and written in the background, so a design with millions of
-// hand-painted sites never stalls the window. One copy is written at a
-// time: a tick that finds one in flight leaves its state to the next
-// tick. The channel receives the write's result (nil when there was
-// nothing to write), for tests.
+// maxAutosaveWait bounds how long a change waits for its recovery copy
+// while changes keep coming: a user drawing without pause for a minute
+// still has a copy every 15 s.
+const maxAutosaveWait = 15 * time.Second
+
+// scheduleAutosave writes the recovery copy a few seconds after the last
+// change (an edit, another variant, a new plan, a pan or zoom; the wait
+// starts again with each), and at the latest maxAutosaveWait after the
+// first change it waits for. Autosave writes only unsaved work.
+func (u *UI) scheduleAutosave() {
+	delay := u.opts.AutosaveDelay
+	if u.opts.Autosave < 0 || delay < 0 {
+		return
+	}
+	if delay == 0 {
+		delay = 3 * time.Second
+	}
+	now := time.Now()
+	if u.autosaveTimer == nil {
+		u.autosaveFirst = now
+	} else {
+		u.autosaveTimer.Stop()
+	}
+	wait := min(delay, max(0, u.autosaveFirst.Add(maxAutosaveWait).Sub(now)))
+	var t *time.Timer
+	t = time.AfterFunc(wait, func() {
+		fyne.Do(func() {
+			if u.autosaveTimer == t {
+				u.autosaveTimer = nil
+				u.Autosave()
+			}
+		})
+	})
+	u.autosaveTimer = t
+}
+
+// workState is the working state the recovery copy's description
+// keeps besides the design: the variant shown, the view and the last
+// plan's inputs (editor.RecoveryInfo).
+type workState struct {
+	variant string
+	view    editor.RecoveryView
+	plan    editor.RecoveryPlan // zero without a plan
+	profile string              // the profile's name, to notice a change
+}
+
+// workingState returns the working state now.
+func (u *UI) workingState() workState {
+	s := u.Session
+	v := u.View.View()
+	m := workState{variant: s.Variant().Name, view: editor.RecoveryView{CentreNM: [2]float64{v.Center.X, v.Center.Y}, NMPerPixel: v.Scale},
+		profile: s.Profile.Name}
+	// The plan shown, also one an edit since made out of date: its inputs
+	// plan the recovered design again.
+	if p, _ := s.Plan(); p != nil {
+		m.plan = editor.RecoveryPlan{Variant: p.Variant, Seed: p.Seed}
+	}
+	return m
+}
+
+// info returns the description of a recovery copy with this state.
+func (m workState) info(path string) recoveryInfo {
+	info := recoveryInfo{Path: path, SavedAt: time.Now(), Variant: m.variant}
+	if m.view.NMPerPixel > 0 {
+		v := m.view
+		info.View = &v
+	}
+	if m.plan.Variant != "" {
+		p := m.plan
+		info.Plan = &p
+	}
+	return info
+}
+
+// Autosave starts writing the recovery copy if there is unsaved work
+// and it, or the working state around it (variant, view, last plan),
+// changed since the last copy, and no copy is being written; it returns
+// at once. On Fyne's goroutine it only takes the current undo state, an
+// immutable snapshot that is already made, and the working state; the
+// design is assembled from the snapshot, encoded and written in the
+// background, so a design with millions of hand-painted sites never
+// stalls the window. When only the working state changed, only the
+// description and the profile are written. One copy is written at a
+// time: a call that finds one in flight leaves its state to the next.
+// The channel receives the write's result (nil when there was nothing to
+// write), for tests.
 func (u *UI) Autosave() <-chan error {
 	done := make(chan error, 1)
 	s := u.Session
 	snap := s.Token()
-	if !s.Dirty() || snap == u.lastAutosave || u.autosaving {
+	meta := u.workingState()
+	if !s.Dirty() || (snap == u.lastAutosave && meta == u.lastMeta) || u.autosaving {
+		if u.autosaving {
+			u.scheduleAutosave() // try again once this write is done
+		}
 		done <- nil
 		return done
 	}
@@ -335,7 +417,9 @@ func (u *UI) Autosave() <-chan error {
 		return done
 	}
 	u.autosaving = true
-	info := recoveryInfo{Path: s.Path(), SavedAt: time.Now()}
+	info := meta.info(s.Path())
+	metaOnly := snap == u.lastAutosave
+	prof := s.Profile
 	rec := u.recovery
 	gen := rec.generation()
 	save := u.jobs.SaveRecovery
@@ -344,17 +428,22 @@ func (u *UI) Autosave() <-chan error {
 			return rec.write(gen, func() error {
 				d := snap.Design()
 				info.Design = d.Name
-				return writeRecovery(save, dir, d, info)
+				if !metaOnly {
+					if err := writeRecovery(save, dir, d, info); err != nil {
+						return err
+					}
+				}
+				return editor.WriteRecoveryInfo(dir, info, &prof)
 			})
 		})
 		fyne.Do(func() {
 			u.autosaving = false
 			if err == nil && u.Session == s {
-				u.lastAutosave = snap
+				u.lastAutosave, u.lastMeta = snap, meta
 			}
 			if _, bug := editor.BugDetails(err); bug {
 				// Not again for this state: the next edit tries anew.
-				u.lastAutosave = snap
+				u.lastAutosave, u.lastMeta = snap, meta
 				u.showBugOnce("Writing the recovery copy", err)
 			} else if err != nil {
 				u.hintLabel.SetText("Could not write the recovery copy to " + dir + ": " + err.Error())
@@ -464,7 +553,27 @@ func (u *UI) Recover() error {
 		return err
 	}
 	s.MarkUnsaved()
+	// The working state: the profile, the variant shown, the view, and
+	// the last plan, made again (the same design, profile and seed give
+	// the same plan).
+	if p, ok := editor.LoadRecoveryProfile(dir); ok {
+		s.SetProfile(p, "")
+	}
+	for i, n := range s.VariantNames() {
+		if n == info.Variant {
+			s.SetVariant(i)
+		}
+	}
 	u.SetSession(s)
+	if v := info.View; v != nil {
+		view := u.View.View()
+		view.Center, view.Scale = r2.Point{X: v.CentreNM[0], Y: v.CentreNM[1]}, v.NMPerPixel
+		u.View.SetView(view)
+	}
+	if p := info.Plan; p != nil && p.Variant == s.Variant().Name {
+		u.opts.Seed = p.Seed
+		u.StartPlan()
+	}
 	return nil
 }
 

@@ -30,9 +30,15 @@ type Options struct {
 	// Seed is the planning seed; the same design, profile and seed give
 	// the same plan.
 	Seed int64
-	// Autosave is the interval of the recovery autosave; 0 takes one
-	// minute, a negative value turns it off.
+	// Autosave is the interval of the recovery autosave's fallback
+	// ticker; 0 takes one minute, a negative value turns autosaving off
+	// altogether.
 	Autosave time.Duration
+	// AutosaveDelay is how long after an edit (or a change of variant,
+	// view or plan) the recovery copy is written, the wait starting again
+	// with each change but never beyond maxAutosaveWait; 0 takes 3 s, a
+	// negative value leaves it to the ticker.
+	AutosaveDelay time.Duration
 	// CheckDelay is how long after an edit the design rules are checked
 	// again; 0 takes 400 ms, a negative value checks only on request.
 	CheckDelay time.Duration
@@ -92,8 +98,13 @@ type UI struct {
 	checkTimer   *time.Timer
 	stopAutosave chan struct{}
 	lastAutosave editor.PlanToken // the undo state the recovery copy holds
+	lastMeta     workState        // the working state its description holds
 	autosaving   bool             // a recovery copy is being written
-	recovery     *recoveryFiles
+	// autosaveTimer is the pending debounced autosave, first when the
+	// first change it waits for was made.
+	autosaveTimer *time.Timer
+	autosaveFirst time.Time
+	recovery      *recoveryFiles
 
 	// jobs is the background work; tests put in their own.
 	jobs editor.Jobs
@@ -118,6 +129,7 @@ func New(a fyne.App, w fyne.Window, s *editor.Session, o Options) *UI {
 	u := &UI{App: a, Win: w, Session: s, opts: o, toolButtons: map[editor.Tool]*widget.Button{}, recovery: &recoveryFiles{}, jobs: editor.DefaultJobs(), bugsShown: map[string]bool{}}
 	u.View = NewLatticeView(s)
 	u.View.OnCursor = u.showCursor
+	u.View.OnViewChanged = u.scheduleAutosave
 	u.View.OnRune = u.typedRune
 	u.View.OnKey = u.typedKey
 	u.build()
@@ -199,6 +211,9 @@ func (u *UI) changed(c editor.Change) {
 	}
 	if c&editor.ChangeHistory != 0 {
 		u.scheduleCheck()
+	}
+	if c&(editor.ChangeHistory|editor.ChangeVariants|editor.ChangePlan) != 0 {
+		u.scheduleAutosave()
 	}
 	u.reclaimFocus()
 	if u.Session.Notice != "" {
