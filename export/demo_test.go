@@ -220,6 +220,13 @@ func TestDemoPDFListsStrokesInCSVOrder(t *testing.T) {
 			t.Errorf("segment %d: the PDF lists %d strokes %v,\nthe CSV writes %d: %v", s, len(got[s]), got[s], len(want[s]), want[s])
 		}
 	}
+	// The tip conditions print the AP line width as dimerpath plan does
+	// (issue 13: 0.999 nm on paper, 1.00 nm on the command line).
+	for _, l := range strings.Split(text, "\n") {
+		if strings.Contains(l, "AP (atomic precision), lines") && !strings.Contains(l, " 1.00 ") {
+			t.Errorf("conditions row %q: want the line width 1.00", strings.Join(strings.Fields(l), " "))
+		}
+	}
 	// And the segment table names each segment's numbers in full.
 	for i, s := range p.Segments {
 		if r := "strokes " + numberRanges(segmentNumbers(&s, StrokeNumbers(p))); !strings.Contains(text, r) {

@@ -2,8 +2,10 @@ package gui
 
 import (
 	"context"
+	"dimerpath/internal/jsonfile"
 	"errors"
 	"fmt"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"slices"
@@ -138,8 +140,26 @@ func (u *UI) OpenPath(path string) error {
 			return nil
 		}
 	}
-	dialog.ShowError(fmt.Errorf("could not open %s:\n%w", path, err), u.Win)
+	dialog.ShowError(errors.New(openErrorText(path, err)), u.Win)
 	return err
+}
+
+// openErrorText says why path could not be opened, naming the file once:
+// in the first line, the problems after it by line and column (the
+// design reader's errors name the file on every line, which the dialog
+// repeated after its own "could not open PATH").
+func openErrorText(path string, err error) string {
+	var je *jsonfile.Error
+	var pe *fs.PathError
+	switch {
+	case errors.As(err, &je):
+		c := *je
+		c.File = ""
+		return fmt.Sprintf("Could not open %s:\n%s", path, c.Error())
+	case errors.As(err, &pe):
+		return fmt.Sprintf("Could not open %s: %v", path, pe.Err)
+	}
+	return fmt.Sprintf("Could not open %s:\n%s", path, strings.ReplaceAll(err.Error(), path+": ", ""))
 }
 
 func (u *UI) newDesign() {
@@ -279,7 +299,8 @@ func (u *UI) refreshRecent() {
 // --- Autosave and recovery ---
 
 // StartAutosave writes the design to the recovery file every interval
-// while it has unsaved changes.
+// while it has unsaved changes (a fallback: scheduleAutosave writes it a
+// few seconds after each change).
 func (u *UI) StartAutosave() {
 	every := u.opts.Autosave
 	if every < 0 {
@@ -289,6 +310,7 @@ func (u *UI) StartAutosave() {
 		every = time.Minute
 	}
 	u.StopAutosave()
+	u.autosaveStopped = false
 	stop := make(chan struct{})
 	u.stopAutosave = stop
 	go func() {
@@ -305,12 +327,19 @@ func (u *UI) StartAutosave() {
 	}()
 }
 
-// StopAutosave stops the autosave ticker.
+// StopAutosave stops the autosave ticker and drops a pending debounced
+// autosave (on quitting, a copy written after the recovery files were
+// removed would be offered back next time).
 func (u *UI) StopAutosave() {
 	if u.stopAutosave != nil {
 		close(u.stopAutosave)
 		u.stopAutosave = nil
 	}
+	if u.autosaveTimer != nil {
+		u.autosaveTimer.Stop()
+		u.autosaveTimer = nil
+	}
+	u.autosaveStopped = true
 }
 
 // maxAutosaveWait bounds how long a change waits for its recovery copy
@@ -324,7 +353,7 @@ const maxAutosaveWait = 15 * time.Second
 // first change it waits for. Autosave writes only unsaved work.
 func (u *UI) scheduleAutosave() {
 	delay := u.opts.AutosaveDelay
-	if u.opts.Autosave < 0 || delay < 0 {
+	if u.opts.Autosave < 0 || delay < 0 || u.autosaveStopped {
 		return
 	}
 	if delay == 0 {
@@ -584,25 +613,44 @@ const prefPaper = "paper"
 // withCaution shows the caution before an export, with the paper size
 // for printed reports, and runs then with the settings if the user goes
 // on.
-func (u *UI) withCaution(what string, then func(editor.ExportSettings)) {
-	paper := widget.NewRadioGroup([]string{"A4", "US Letter"}, nil)
-	paper.Horizontal = true
-	if u.App.Preferences().StringWithFallback(prefPaper, string(export.A4)) == string(export.Letter) {
-		paper.SetSelected("US Letter")
-	} else {
-		paper.SetSelected("A4")
+func (u *UI) withCaution(what, kind string, then func(editor.ExportSettings)) {
+	carries := map[string]string{
+		"pdf":    "The printed plan carries this caution on its first page and at the foot of every page.",
+		"svg":    "The SVG carries this caution under the figure.",
+		"json":   `The plan file carries this caution in its "caution" field.`,
+		"csv":    "The action CSV holds the tip actions only, not this caution: keep the two together.",
+		"report": "The report carries this caution at its top.",
+	}[kind]
+	parts := []fyne.CanvasObject{wrapLabel(planner.Caution + "\n\n" + carries)}
+	// Only what is printed has a paper size.
+	var paper *widget.RadioGroup
+	if kind == "pdf" || kind == "report" {
+		paper = widget.NewRadioGroup([]string{"A4", "US Letter"}, nil)
+		paper.Horizontal = true
+		if u.App.Preferences().StringWithFallback(prefPaper, string(export.A4)) == string(export.Letter) {
+			paper.SetSelected("US Letter")
+		} else {
+			paper.SetSelected("A4")
+		}
+		label := "Paper"
+		if kind == "report" {
+			label = "Paper (PDF)"
+		}
+		parts = append(parts, widget.NewForm(widget.NewFormItem(label, paper)))
 	}
-	msg := wrapLabel(planner.Caution + "\n\nThe printed plan carries this caution on its first page.")
-	content := container.NewVBox(msg, widget.NewForm(widget.NewFormItem("Paper", paper)))
-	dialog.ShowCustomConfirm("Before you export "+what, "Continue…", "Cancel", container.New(&fixedWidth{w: 480}, content), func(ok bool) {
+	dialog.ShowCustomConfirm("Before you export "+what, "Continue…", "Cancel", container.New(&fixedWidth{w: 480}, container.NewVBox(parts...)), func(ok bool) {
 		if !ok {
 			return
 		}
 		es := editor.ExportSettings{Paper: export.A4, Generator: u.opts.Generator, Date: time.Now()}
-		if paper.Selected == "US Letter" {
+		if paper != nil {
+			if paper.Selected == "US Letter" {
+				es.Paper = export.Letter
+			}
+			u.App.Preferences().SetString(prefPaper, string(es.Paper))
+		} else if u.App.Preferences().StringWithFallback(prefPaper, string(export.A4)) == string(export.Letter) {
 			es.Paper = export.Letter
 		}
-		u.App.Preferences().SetString(prefPaper, string(es.Paper))
 		then(es)
 	}, u.Win)
 }
@@ -626,7 +674,7 @@ func (u *UI) exportAs(kind string) {
 		return
 	}
 	d := u.Session.DesignCopy()
-	u.withCaution("the plan", func(es editor.ExportSettings) {
+	u.withCaution("the plan", kind, func(es editor.ExportSettings) {
 		name := safeFileName(u.Session.Design().Name+"-"+p.Variant) + "." + kind
 		u.chooseFile(name, []string{"." + kind}, func(path string) { u.exportPlanTo(path, d, p, es) })
 	})

@@ -28,6 +28,13 @@ func TestRecoveryResumesTheWorkingState(t *testing.T) {
 		u := New(a, w, editortest.Tiny(t), Options{ConfigDir: dir, CheckDelay: -1, AutosaveDelay: 20 * time.Millisecond})
 		w.Resize(fyne.NewSize(1280, 800))
 		w.Canvas().Capture()
+		t.Cleanup(func() {
+			// No copy may be written once the test's directory goes.
+			u.StopAutosave()
+			for end := time.Now().Add(10 * time.Second); u.autosaving && time.Now().Before(end); {
+				time.Sleep(10 * time.Millisecond)
+			}
+		})
 		return u
 	}
 	u := open()
