@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strings"
 
 	"dimerpath/internal/atomicfile"
 	"dimerpath/planner"
@@ -50,7 +51,7 @@ func checkResults(rs []VariantResult) (string, error) {
 // compareRows returns the comparison table: a header and one row per
 // variant.
 func compareRows(rs []VariantResult) [][]string {
-	rows := [][]string{{"Variant", "Expected", "P10 – P90", "By hand", "Segments", "Strokes", "Windows", "All good", "Mean good", "Devices per perfect one"}}
+	rows := [][]string{{"Variant", "Session (mean)", "P10 – P90", "By hand", "Lithography steps", "Segments", "Strokes", "P(within tolerance)", "Windows", "All good", "Mean good", "Devices per perfect one"}}
 	for _, r := range rs {
 		if r.Plan == nil {
 			rows = append(rows, []string{r.Variant, "not planned: " + r.Err.Error()})
@@ -76,8 +77,15 @@ func compareRows(rs []VariantResult) [][]string {
 		if p.ByHandS > 0 {
 			byHand = clock(p.ByHandS)
 		}
+		var steps []string
+		for _, st := range p.Steps {
+			if st.Kind == planner.StepLithography {
+				steps = append(steps, st.Species)
+			}
+		}
 		rows = append(rows, []string{r.Variant, clock(p.TotalS), clock(p.P10S) + " – " + clock(p.P90S), byHand,
-			thousands(len(p.Segments)), thousands(len(p.Strokes)), thousands(len(p.Windows)), all, mean, dpp})
+			strings.Join(steps, ", "), thousands(len(p.Segments)), thousands(len(p.Strokes)), probability(p.PInTolerance),
+			thousands(len(p.Windows)), all, mean, dpp})
 	}
 	return rows
 }
@@ -284,16 +292,18 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 
 	rows := compareRows(results)
 	t := newTable(d, font{size: 7.5},
-		tableColumn{title: rows[0][0], share: 13},
+		tableColumn{title: rows[0][0], share: 11},
 		tableColumn{title: rows[0][1], share: 9, right: true},
-		tableColumn{title: rows[0][2], share: 14, right: true},
-		tableColumn{title: rows[0][3], share: 9, right: true},
+		tableColumn{title: rows[0][2], share: 12, right: true},
+		tableColumn{title: rows[0][3], share: 8, right: true},
 		tableColumn{title: rows[0][4], share: 9, right: true},
-		tableColumn{title: rows[0][5], share: 8, right: true},
-		tableColumn{title: rows[0][6], share: 8, right: true},
-		tableColumn{title: rows[0][7], share: 8, right: true},
-		tableColumn{title: rows[0][8], share: 11, right: true},
-		tableColumn{title: rows[0][9], share: 11, right: true},
+		tableColumn{title: rows[0][5], share: 7, right: true},
+		tableColumn{title: rows[0][6], share: 7, right: true},
+		tableColumn{title: rows[0][7], share: 9, right: true},
+		tableColumn{title: rows[0][8], share: 7, right: true},
+		tableColumn{title: rows[0][9], share: 7, right: true},
+		tableColumn{title: rows[0][10], share: 7, right: true},
+		tableColumn{title: rows[0][11], share: 9, right: true},
 	)
 	d.heading("Summary", 20)
 	t.start()
@@ -311,8 +321,8 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 		title string
 		draw  func(c canvas, rs []VariantResult, area box) float64
 	}{
-		{"Write time by kind", drawStackedBreakdown},
-		{"Spread of the write time", drawSpreadCompare},
+		{"Session time by kind", drawStackedBreakdown},
+		{"Spread of the session time", drawSpreadCompare},
 		{"Dopant yield", drawYieldCompare},
 	} {
 		if err := ctx.Err(); err != nil {
@@ -338,7 +348,7 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	inner := width - 2*margin
 	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
 	rows := compareRows(results)
-	cols := []float64{13, 9, 14, 9, 9, 8, 8, 8, 11, 11}
+	cols := []float64{11, 9, 12, 8, 9, 7, 7, 9, 7, 7, 7, 9}
 	colW := make([]float64, len(cols))
 	total := 0.0
 	for _, c := range cols {

@@ -108,7 +108,11 @@ func TestDemoPlanExports(t *testing.T) {
 		found := false
 		for _, l := range lines {
 			f := strings.Fields(l)
-			if len(f) >= 2 && f[0] == strconv.Itoa(i+1) && f[1] == s.Fiducial {
+			where := s.Fiducial
+			if s.Registration == planner.RegLocal {
+				where = "local"
+			}
+			if len(f) >= 2 && f[0] == strconv.Itoa(i+1) && f[1] == where {
 				found = true
 				break
 			}

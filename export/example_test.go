@@ -31,7 +31,7 @@ func ExampleWritePlanJSON() {
 	// Output:
 	// {
 	//   "format": "dimerpath-plan",
-	//   "version": 1,
+	//   "version": 2,
 	//   "generator": "dimerpath 0.1.0",
 	//   "caution": "CAUTION: a dimerpath plan is advisory. Check every bias, current, speed, dose and position against your instrument's limits and your lab's procedures before writing.",
 }
@@ -51,8 +51,8 @@ func ExampleReadPlanJSON() {
 	_, err = export.ReadPlanJSON(strings.NewReader(`{"format": "dimerpath-plan", "version": 9}`))
 	fmt.Println(err)
 	// Output:
-	// Kestrel Lab SET-K1 / baseline: 25 strokes in 5 segments, 67 actions, 1610 s
-	// line 1, column 41: version = 9: unsupported plan file version (this dimerpath reads versions 1 to 1)
+	// Kestrel Lab SET-K1 / baseline: 25 strokes in 6 segments, 80 actions, 12639 s
+	// line 1, column 41: version = 9: unsupported plan file version (this dimerpath reads versions 1 to 2)
 }
 
 func ExampleWriteActionsCSV() {
@@ -65,16 +65,18 @@ func ExampleWriteActionsCSV() {
 		log.Fatal(err)
 	}
 	fmt.Println(len(rows)-1, "actions")
-	for _, r := range rows[:4] {
-		// index, kind, segment, stroke, fiducial, bias_v, current_a
-		fmt.Println(strings.Join([]string{r[0], r[1], r[2], r[3], r[7], r[14], r[15]}, ","))
+	for _, r := range rows[:6] {
+		// index, kind, segment, stroke, fiducial, bias_v, current_a, step
+		fmt.Println(strings.Join([]string{r[0], r[1], r[2], r[3], r[7], r[14], r[15], r[20]}, ","))
 	}
 	// Output:
-	// 67 actions
-	// index,kind,segment,stroke,fiducial,bias_v,current_a
-	// 0,move,0,-1,,,
-	// 1,register,0,-1,F-SW,,
-	// 2,switch,0,-1,,4,2e-09
+	// 80 actions
+	// index,kind,segment,stroke,fiducial,bias_v,current_a,step
+	// 0,condition,-1,-1,,,,0
+	// 1,survey,-1,-1,,,,0
+	// 2,move,0,-1,,,,1
+	// 3,register,0,-1,F-SW,,,1
+	// 4,switch,0,-1,,4,2e-09,1
 }
 
 func ExampleWriteSVG() {
