@@ -21,14 +21,15 @@ func init() {
 and prints one table row per variant: the session time (the mean of the
 Monte Carlo on its plan) with its P10-P90 spread, its lithography steps, the
 number of segments, the probability that every stroke stays within its
-tolerance and that every dopant window takes exactly one donor; then the time
-by kind (writing, travel, registrations, survey, conditioning, tip changes,
-doses, anneals, ...). A variant that
+tolerance and that every dopant window takes exactly one donor, and the
+coverage check; then the time by kind (writing, travel, registrations,
+survey, conditioning, tip changes, doses, anneals, ...) and what differs
+from the first variant (tunnel gap widths, regions, window counts). A variant that
 cannot be planned (for example one needing values beyond the profile's
 limits) gets its reason in place of a row; the exit status is then 2.
 
 With -o REPORT.pdf or REPORT.svg it also writes the comparison report: a
-table of every variant and, side by side on shared axes, the time
+table of every variant, what differs from the first and, side by side on shared axes, the time
 breakdowns, the P10-P90 spreads and the yields (--paper and --date set the
 PDF's page size and printed date). The report is written to a temporary
 file and renamed into place, also when some variant could not be planned
@@ -40,7 +41,7 @@ file and renamed into place, also when some variant could not be planned
 			rep.declare(fs, "also write the report to `FILE` (.pdf or .svg)")
 			return func(env Env, args []string) int {
 				// A bad report name is refused before anything is read.
-				opt, err := rep.options(export.FormatPDF, export.FormatSVG)
+				opt, err := rep.options([]export.Format{export.FormatPDF, export.FormatSVG})
 				if err != nil {
 					fmt.Fprintf(env.Stderr, "dimerpath compare: %v\n", err)
 					return ExitFailure
@@ -86,14 +87,16 @@ file and renamed into place, also when some variant could not be planned
 // printComparison writes the comparison table: per variant the session
 // time (Monte Carlo mean) with its spread, the lithography steps, the
 // segments, the probability that every stroke stays within its tolerance
-// and that every window is good; then the time by kind, in seconds, for
-// the kinds any variant has.
+// and that every window is good, and the coverage check; then the time by
+// kind, in seconds, for the kinds any variant has; then how each variant
+// differs from the first, so two rows that look alike still tell what
+// changed.
 func printComparison(w io.Writer, results []planner.VariantResult) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "variant\tsession (mean)\tP10\tP90\tlithography steps\tsegments\tP(within tolerance)\tP(all windows good)\t")
+	fmt.Fprintln(tw, "variant\tsession (mean)\tP10\tP90\tlithography steps\tsegments\tP(within tolerance)\tP(all windows good)\tcoverage\t")
 	for _, r := range results {
 		if r.Err != nil {
-			fmt.Fprintf(tw, "%s\tnot planned\t\t\t\t\t\t\t\n", r.Variant)
+			fmt.Fprintf(tw, "%s\tnot planned\t\t\t\t\t\t\t\t\n", r.Variant)
 			continue
 		}
 		p := r.Plan
@@ -101,8 +104,8 @@ func printComparison(w io.Writer, results []planner.VariantResult) {
 		if p.Yield.All == 0 && p.Yield.Windows > 0 {
 			all = fmt.Sprintf("10^%.1f", p.Yield.Log10All)
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%d\t%.3f\t%s\t\n", r.Variant, units.Duration(p.TotalS), units.Duration(p.P10S), units.Duration(p.P90S),
-			lithographySteps(p), len(p.Segments), p.PInTolerance, all)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%d\t%.3f\t%s\t%s\t\n", r.Variant, units.Duration(p.TotalS), units.Duration(p.P10S), units.Duration(p.P90S),
+			lithographySteps(p), len(p.Segments), p.PInTolerance, all, coverageWord(p))
 	}
 	tw.Flush()
 	var kinds []planner.TimeKind
@@ -114,27 +117,51 @@ func printComparison(w io.Writer, results []planner.VariantResult) {
 			}
 		}
 	}
-	if len(kinds) == 0 {
-		return
-	}
-	fmt.Fprintln(w, "\ntime by kind, s (means over the Monte Carlo samples)")
-	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprint(tw, "variant\t")
-	for _, k := range kinds {
-		fmt.Fprintf(tw, "%s\t", k.Short())
-	}
-	fmt.Fprintln(tw)
-	for _, r := range results {
-		if r.Err != nil {
-			continue
-		}
-		fmt.Fprintf(tw, "%s\t", r.Variant)
+	if len(kinds) > 0 {
+		fmt.Fprintln(w, "\ntime by kind, s (means over the Monte Carlo samples)")
+		tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+		fmt.Fprint(tw, "variant\t")
 		for _, k := range kinds {
-			fmt.Fprintf(tw, "%.0f\t", r.Plan.Breakdown.Seconds(k))
+			fmt.Fprintf(tw, "%s\t", k.Short())
 		}
 		fmt.Fprintln(tw)
+		for _, r := range results {
+			if r.Err != nil {
+				continue
+			}
+			fmt.Fprintf(tw, "%s\t", r.Variant)
+			for _, k := range kinds {
+				fmt.Fprintf(tw, "%.0f\t", r.Plan.Breakdown.Seconds(k))
+			}
+			fmt.Fprintln(tw)
+		}
+		tw.Flush()
 	}
-	tw.Flush()
+	if len(results) < 2 {
+		return
+	}
+	fmt.Fprintf(w, "\nWhat differs from %s:\n", results[0].Variant)
+	for _, r := range results[1:] {
+		switch {
+		case !r.Compared:
+			fmt.Fprintf(w, "  %s: not compared (it could not be laid out)\n", r.Variant)
+		case len(r.Differences) == 0:
+			fmt.Fprintf(w, "  %s: the same layout\n", r.Variant)
+		default:
+			fmt.Fprintf(w, "  %s:\n", r.Variant)
+			for _, d := range r.Differences {
+				fmt.Fprintf(w, "    %s\n", d)
+			}
+		}
+	}
+}
+
+// coverageWord is the result of a plan's coverage check in a word.
+func coverageWord(p *planner.Plan) string {
+	if p.Coverage.OK {
+		return "passed"
+	}
+	return "FAILED"
 }
 
 // lithographySteps names a plan's lithography steps in order: "As, P".

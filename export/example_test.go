@@ -65,18 +65,29 @@ func ExampleWriteActionsCSV() {
 		log.Fatal(err)
 	}
 	fmt.Println(len(rows)-1, "actions")
-	for _, r := range rows[:6] {
-		// index, kind, segment, stroke, fiducial, bias_v, current_a, step
-		fmt.Println(strings.Join([]string{r[0], r[1], r[2], r[3], r[7], r[14], r[15], r[20]}, ","))
+	// Scripts find columns by their header name.
+	col := map[string]int{}
+	for i, name := range rows[0] {
+		col[name] = i
+	}
+	show := []string{"index", "kind", "segment", "stroke", "stroke_number", "fiducial", "bias_v", "current_a", "step"}
+	fmt.Println(strings.Join(show, ","))
+	for _, r := range rows[1:7] {
+		var cells []string
+		for _, name := range show {
+			cells = append(cells, r[col[name]])
+		}
+		fmt.Println(strings.Join(cells, ","))
 	}
 	// Output:
 	// 80 actions
-	// index,kind,segment,stroke,fiducial,bias_v,current_a,step
-	// 0,condition,-1,-1,,,,0
-	// 1,survey,-1,-1,,,,0
-	// 2,move,0,-1,,,,1
-	// 3,register,0,-1,F-SW,,,1
-	// 4,switch,0,-1,,4,2e-09,1
+	// index,kind,segment,stroke,stroke_number,fiducial,bias_v,current_a,step
+	// 0,condition,-1,-1,,,,,0
+	// 1,survey,-1,-1,,,,,0
+	// 2,move,0,-1,,,,,1
+	// 3,register,0,-1,,F-SW,,,1
+	// 4,switch,0,-1,,,4,2e-09,1
+	// 5,move,0,-1,,,,,1
 }
 
 func ExampleWriteSVG() {

@@ -68,7 +68,7 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 		if s.Kind == planner.StrokeOutline {
 			pn = ol
 		}
-		c.polyline(path(s), false, pn, noPaint, strokeTag(s))
+		c.polyline(path(s), false, pn, noPaint, sc.strokeTag(s))
 	}
 	c.endGroup()
 	c.endGroup()
@@ -95,11 +95,11 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 		}
 		switch s.Kind {
 		case planner.StrokeDwell:
-			c.circle(v.pt(s.Path[0]), dot, noPen, solid(0), strokeTag(s))
+			c.circle(v.pt(s.Path[0]), dot, noPen, solid(0), sc.strokeTag(s))
 		case planner.StrokeOutline:
-			c.polyline(path(s), false, ol, noPaint, strokeTag(s))
+			c.polyline(path(s), false, ol, noPaint, sc.strokeTag(s))
 		default:
-			c.polyline(path(s), false, ap, noPaint, strokeTag(s))
+			c.polyline(path(s), false, ap, noPaint, sc.strokeTag(s))
 		}
 	}
 	c.endGroup()
@@ -131,8 +131,11 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 	return res
 }
 
-func strokeTag(s *planner.Stroke) tag {
-	return tag{id: "stroke-" + strconv.Itoa(s.ID+1), class: fmt.Sprintf("stroke %s %s seg-%d", s.Mode, s.Kind, s.Segment+1)}
+// strokeTag names a stroke's element by its number on paper
+// ("stroke-12") and classes it by mode, kind, segment on paper and id in
+// the plan file ("stroke ap line seg-2 id-141").
+func (sc *scene) strokeTag(s *planner.Stroke) tag {
+	return tag{id: "stroke-" + strconv.Itoa(sc.number[s.ID]), class: fmt.Sprintf("stroke %s %s seg-%d id-%d", s.Mode, s.Kind, s.Segment+1, s.ID)}
 }
 
 // drawRegions fills each region's site rectangles, clipped to clip.
@@ -407,6 +410,23 @@ func (l *labeler) place(anchor vec, w, h, gap float64) (box, bool) {
 				l.block(b)
 				return b, true
 			}
+		}
+	}
+	return box{}, false
+}
+
+// placeBehind returns a free box w x h centred on the line through
+// anchor along dir, behind anchor (against dir), its near edge gap from
+// anchor and then further back, and blocks it; ok is false when none of
+// those places is free.
+func (l *labeler) placeBehind(anchor, dir vec, w, h, gap float64) (box, bool) {
+	half := math.Abs(dir.x)*w/2 + math.Abs(dir.y)*h/2 // the box's reach along dir
+	for _, dist := range []float64{1, 2.5, 4.5} {
+		c := anchor.sub(dir.scale(dist*gap + half))
+		b := box{c.x - w/2, c.y - h/2, w, h}
+		if l.free(b) {
+			l.block(b)
+			return b, true
 		}
 	}
 	return box{}, false

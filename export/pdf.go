@@ -48,7 +48,12 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 			return nil
 		}},
 		{"steps", func() error { pdfSteps(d, p); return nil }},
-		{"segments", func() error { return pdfSegments(ctx, d, p) }},
+		{"segments", func() error {
+			if err := pdfSegments(ctx, d, p, sc.number); err != nil {
+				return err
+			}
+			return pdfStrokeList(ctx, d, p, sc.number)
+		}},
 		{"estimates", func() error { pdfEstimates(d, p); return nil }},
 		{"atomic-precision areas", func() error {
 			return pdfZooms(ctx, d, sc, func(f float64) { opt.progress("pdf: atomic-precision areas", (5+f)/6) })
@@ -65,66 +70,6 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 	}
 	opt.progress("pdf: writing", 1)
 	return d.output(w)
-}
-
-// strokeSummary counts strokes by mode and kind: "12 AP lines, 6 dwell
-// points, 2 FE rasters".
-func strokeSummary(p *planner.Plan) string {
-	type k struct {
-		m design.Mode
-		s planner.StrokeKind
-	}
-	n := map[k]int{}
-	for i := range p.Strokes {
-		n[k{p.Strokes[i].Mode, p.Strokes[i].Kind}]++
-	}
-	var parts []string
-	for _, key := range []k{{design.ModeAP, planner.StrokeLine}, {design.ModeAP, planner.StrokeDwell}, {design.ModeAP, planner.StrokeOutline},
-		{design.ModeFE, planner.StrokeRaster}, {design.ModeFE, planner.StrokeOutline}, {design.ModeFE, planner.StrokeLine}, {design.ModeFE, planner.StrokeDwell},
-		{design.ModeAP, planner.StrokeRaster}} {
-		if c := n[key]; c > 0 {
-			parts = append(parts, fmt.Sprintf("%s %s %s", thousands(c), key.m.Abbrev(), plural(kindNoun(key.s), c)))
-		}
-	}
-	return strings.Join(parts, ", ")
-}
-
-func kindNoun(k planner.StrokeKind) string {
-	switch k {
-	case planner.StrokeDwell:
-		return "dwell point"
-	case planner.StrokeRaster:
-		return "raster fill"
-	case planner.StrokeOutline:
-		return "outline pass"
-	}
-	return "line"
-}
-
-func plural(s string, n int) string {
-	switch {
-	case n == 1:
-		return s
-	case strings.HasSuffix(s, "s"):
-		return s + "es"
-	}
-	return s + "s"
-}
-
-// thousands formats n with thin spaces between groups of three digits.
-func thousands(n int) string {
-	s := strconv.Itoa(n)
-	if len(s) <= 4 {
-		return s
-	}
-	var b strings.Builder
-	for i, r := range s {
-		if i > 0 && (len(s)-i)%3 == 0 {
-			b.WriteString("\u2009")
-		}
-		b.WriteRune(r)
-	}
-	return b.String()
 }
 
 func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
@@ -273,27 +218,10 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		}
 	}
 	d.y += 2
-	d.para("Segments and strokes are numbered from 1 on paper; the JSON and CSV exports count them from 0. "+
+	d.para("Segments are numbered from 1 on paper (from 0 in the JSON and CSV exports). Strokes are numbered from 1 in the order "+
+		"they are written; the JSON and CSV exports give that number beside each stroke's id, which counts from 0 in the order the planner made them. "+
 		"Positions are field coordinates in nm, origin at the lower-left corner of the scan field. "+
 		"Times are on the plan clock, from the start of the session.", font{size: 7.5, grey: 0.25})
-}
-
-// floorLine compares the plan with the physical floor (the writing
-// alone) and with the same work planned by hand.
-func floorLine(p *planner.Plan) string {
-	var parts []string
-	if p.FloorS > 0 {
-		parts = append(parts, fmt.Sprintf("%s× the physical floor of %s (writing alone, no travel, switches or registrations)",
-			sig(p.TotalS/p.FloorS, 3), clock(p.FloorS)))
-	}
-	if p.ByHandS > 0 {
-		parts = append(parts, fmt.Sprintf("planned by hand (regions in file order, rows in raster order, registrations at a fixed interval) it would take %s, %s× as long",
-			clock(p.ByHandS), sig(p.ByHandS/p.TotalS, 3)))
-	}
-	if len(parts) == 0 {
-		return "not estimated"
-	}
-	return strings.Join(parts, "; ")
 }
 
 func segmentsLine(n int, fiducials []string, local int) string {
@@ -367,59 +295,6 @@ func pdfSteps(d *pdfDoc, p *planner.Plan) {
 		}
 		d.para(fmt.Sprintf("The dopant windows stay open at most %s between the end of their write and the start of their dose.", duration(longest)), fontBody)
 	}
-}
-
-func devicesPerPerfect(y planner.Yield) string {
-	if y.DevicesPerPerfect == 0 {
-		if l := y.Log10All; !math.IsInf(l, -1) && l < 0 {
-			return "about " + pow10(-l) + ": a perfect device is practically out of reach"
-		}
-		return "no number suffices: some window can never be good"
-	}
-	return sig(y.DevicesPerPerfect, 3) + " devices written on average to get one with every window good"
-}
-
-// allGood formats the probability that every window is good, from its
-// log10 where the probability itself underflows.
-func allGood(y planner.Yield) string {
-	if y.All == 0 && !math.IsInf(y.Log10All, -1) {
-		return pow10(y.Log10All)
-	}
-	return probability(y.All)
-}
-
-// pow10 formats 10^l as "2.3e−1324", for any finite l.
-func pow10(l float64) string {
-	e := math.Floor(l)
-	m := math.Pow(10, l-e)
-	if m >= 9.95 {
-		m, e = 1, e+1
-	}
-	return strconv.FormatFloat(m, 'f', 1, 64) + "e" + strings.Replace(strconv.Itoa(int(e)), "-", "−", 1)
-}
-
-// meanGood formats the mean and spread of the number of good windows.
-func meanGood(y planner.Yield) string {
-	s := fmt.Sprintf("%s of %s on average", sig(y.MeanGood, 4), thousands(y.Windows))
-	if y.SDGood > 0 {
-		s += fmt.Sprintf(" (standard deviation %s)", sig(y.SDGood, 2))
-	}
-	return s
-}
-
-// listShort joins up to n names, then "and K more".
-func listShort(names []string, n int) string {
-	if len(names) <= n {
-		return strings.Join(names, ", ")
-	}
-	return strings.Join(names[:n], ", ") + fmt.Sprintf(" and %d more", len(names)-n)
-}
-
-func signedV(v float64) string {
-	if v > 0 {
-		return "+" + sig(v, 3)
-	}
-	return sig(v, 3)
 }
 
 // dwellGroup is one set of dwell conditions used by the plan.
@@ -568,52 +443,29 @@ func (g condGroup) kindCounts() string {
 	var parts []string
 	for _, k := range []planner.StrokeKind{planner.StrokeLine, planner.StrokeDwell, planner.StrokeRaster, planner.StrokeOutline} {
 		if n := countOf(g.kinds, k); n > 0 {
-			parts = append(parts, fmt.Sprintf("%d %s", n, shortKind(k)))
+			parts = append(parts, fmt.Sprintf("%d %s", n, k))
 		}
 	}
 	return strings.Join(parts, ", ")
 }
 
-func countOf[T comparable](s []T, v T) int {
-	n := 0
-	for _, x := range s {
-		if x == v {
-			n++
-		}
+// segmentNumbers returns the paper numbers of a segment's strokes.
+func segmentNumbers(s *planner.Segment, numbers []int) []int {
+	out := make([]int, len(s.Strokes))
+	for k, id := range s.Strokes {
+		out[k] = numbers[id]
 	}
-	return n
+	return out
 }
 
-// idRanges formats stroke IDs (shown from 1) as "4–9, 12", cut after a
-// few ranges.
-func idRanges(ids []int) string {
-	var parts []string
-	for i := 0; i < len(ids); {
-		j := i
-		for j+1 < len(ids) && ids[j+1] == ids[j]+1 {
-			j++
-		}
-		if j > i {
-			parts = append(parts, fmt.Sprintf("%d–%d", ids[i]+1, ids[j]+1))
-		} else {
-			parts = append(parts, strconv.Itoa(ids[i]+1))
-		}
-		i = j + 1
-	}
-	if len(parts) > 2 {
-		return parts[0] + ", " + parts[1] + ", …"
-	}
-	return strings.Join(parts, ", ")
-}
-
-func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan) error {
+func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int) error {
 	d.page()
 	d.heading("Segments", 0)
 	d.para("Write the segments in order, one table per lithography step. For each: register (coarse: move to the fiducial, image it "+
 		"and correct the offset; local: image the lattice and the features already written beside the first stroke and correct the offset), "+
-		"then write its strokes in order from the start position (stroke numbers as in the figures), "+
-		"and tick the box. Each line within a row is one set of tip conditions and the strokes written with it. "+
-		"P is the sampled probability that every stroke of the segment stays within its tolerance. "+
+		"then write its strokes in order of their numbers from the start position (the stroke list below gives each one; "+
+		"the figures show each number at its stroke's start), and tick the box. Each line within a row is one set of tip conditions "+
+		"and the strokes written with it. P is the sampled probability that every stroke of the segment stays within its tolerance. "+
 		"Duration runs from the start of the segment to its end; \"ends at\" is on the plan clock.", fontBody)
 	// Actions of each segment, found in one pass.
 	bounds := make([][2]int, len(p.Segments))
@@ -691,7 +543,7 @@ func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan) error {
 			start := ""
 			if len(s.Strokes) > 0 {
 				q := p.Strokes[s.Strokes[0]].Path[0]
-				start = nm1(q.X) + ", " + nm1(q.Y) + "\n" + plural("stroke", len(s.Strokes)) + " " + idRanges(slices.Sorted(slices.Values(s.Strokes)))
+				start = nm1(q.X) + ", " + nm1(q.Y) + "\n" + plural("stroke", len(s.Strokes)) + " " + numberRanges(segmentNumbers(&s, numbers))
 			}
 			reg := s.Fiducial + "\n(" + nm1(s.FiducialAt.X) + ", " + nm1(s.FiducialAt.Y) + ")"
 			if s.Registration == planner.RegLocal {
@@ -707,18 +559,6 @@ func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan) error {
 		t.end()
 	}
 	return nil
-}
-
-func shortKind(k planner.StrokeKind) string {
-	switch k {
-	case planner.StrokeDwell:
-		return "dwell"
-	case planner.StrokeRaster:
-		return "raster"
-	case planner.StrokeOutline:
-		return "outline"
-	}
-	return "line"
 }
 
 func pdfEstimates(d *pdfDoc, p *planner.Plan) {
@@ -812,21 +652,6 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	d.y += h + 2
 }
 
-func capitalise(s string) string {
-	if s == "" {
-		return s
-	}
-	r := []rune(s)
-	return strings.ToUpper(string(r[0])) + string(r[1:])
-}
-
-func safeDiv(a, b float64) float64 {
-	if b == 0 {
-		return 0
-	}
-	return a / b
-}
-
 // zoomLegend returns the key of the zoomed figures.
 func zoomLegend(sc *scene) []legendEntry {
 	var out []legendEntry
@@ -866,7 +691,7 @@ func zoomLegend(sc *scene) []legendEntry {
 
 func pdfZooms(ctx context.Context, d *pdfDoc, sc *scene, progress func(float64)) error {
 	p := sc.plan
-	areas, omitted := apAreas(p)
+	areas, omitted := apAreas(p, sc.number)
 	if len(areas) == 0 {
 		return nil
 	}
@@ -888,7 +713,7 @@ func pdfZooms(ctx context.Context, d *pdfDoc, sc *scene, progress func(float64))
 			d.page()
 		}
 		h := math.Min(figH, d.remains()-16)
-		regions, strokes := areaCaption(p, a)
+		regions, strokes := areaCaption(p, a, sc.number)
 		win := a.win
 		cap := fmt.Sprintf("AP area %d of %d: %s", i+1, len(areas)+omitted, regions)
 		for _, l := range wrapText(d.c, cap, fontBold, d.width()) {

@@ -108,6 +108,7 @@ type fiducialJSON struct {
 
 type strokeJSON struct {
 	ID          int     `json:"id"`
+	Number      int     `json:"number,omitempty"` // derived: its place in writing order, from 1, as printed (StrokeNumbers); version 2
 	Region      string  `json:"region"`
 	Mode        string  `json:"mode"`
 	Kind        string  `json:"kind"`
@@ -306,6 +307,7 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 		return fiducialJSON{Name: p.Fiducials[i].Name, AtNM: xyOf(p.Fiducials[i].At)}
 	})
 	writer := strokeActions(p)
+	numbers := StrokeNumbers(p)
 	var path []xy
 	jw.List("strokes", len(p.Strokes), func(i int) any {
 		s := &p.Strokes[i]
@@ -313,7 +315,7 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 		for _, q := range s.Path {
 			path = append(path, xyOf(q))
 		}
-		sj := strokeJSON{ID: s.ID, Region: s.Region, Mode: string(s.Mode), Kind: string(s.Kind),
+		sj := strokeJSON{ID: s.ID, Number: numbers[i], Region: s.Region, Mode: string(s.Mode), Kind: string(s.Kind),
 			StartNM: path[0], EndNM: path[len(path)-1], PathNM: path, Passes: s.Passes, LengthNM: s.LengthNM,
 			DurationS: s.DurationS, Sites: s.Sites, ToleranceNM: s.ToleranceNM, Segment: s.Segment, Window: s.Window}
 		if k := writer[i]; k >= 0 {
@@ -596,6 +598,12 @@ func (f *planFile) plan() (*planner.Plan, error) {
 		Distribution: y.Distribution, DistributionFrom: y.DistributionFrom, DevicesPerPerfect: y.DevicesPerPerfect}
 	c := f.Coverage
 	p.Coverage = planner.Coverage{OK: c.OK, Sites: c.Sites, Uncovered: c.Uncovered, Overcleared: c.Overcleared, Issues: c.Issues}
+	numbers := StrokeNumbers(p)
+	for i, s := range f.Strokes {
+		if s.Number != 0 && s.Number != numbers[i] {
+			return nil, invalid(fmt.Sprintf("strokes[%d].number", i), s.Number, "stroke %d is number %d in writing order", i, numbers[i])
+		}
+	}
 	return p, nil
 }
 

@@ -233,6 +233,25 @@ func at(m map[string]any, key string, i int) map[string]any {
 	return m[key].([]any)[i].(map[string]any)
 }
 
+// A version 1 file (written before strokes carried their number on
+// paper) reads as the same plan.
+func TestReadPlanJSONVersion1(t *testing.T) {
+	p := planfixture.SET().Plan
+	data := mutate(t, p, func(m map[string]any) {
+		m["version"] = 1
+		for _, s := range m["strokes"].([]any) {
+			delete(s.(map[string]any), "number")
+		}
+	})
+	got, err := ReadPlanJSON(bytes.NewReader(data))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(StrokeNumbers(got), StrokeNumbers(p)) || len(got.Strokes) != len(p.Strokes) {
+		t.Errorf("version 1 file read as another plan")
+	}
+}
+
 func TestReadPlanJSONRejects(t *testing.T) {
 	p := planfixture.SET().Plan
 	cases := []struct {
@@ -246,6 +265,7 @@ func TestReadPlanJSONRejects(t *testing.T) {
 		{"design file", []byte(`{"format":"dimerpath-design","version":1}`), ErrNotPlan, "format"},
 		{"no format", []byte(`{"version":1}`), ErrNotPlan, "format"},
 		{"future version", mutate(t, p, func(m map[string]any) { m["version"] = PlanVersion + 1 }), ErrVersion, "version"},
+		{"wrong paper number", mutate(t, p, func(m map[string]any) { at(m, "strokes", 2)["number"] = 9.0 }), ErrInvalid, "strokes[2].number = 9: stroke 2 is number 3 in writing order"},
 		{"version string", mutate(t, p, func(m map[string]any) { m["version"] = "1" }), ErrVersion, "version"},
 		{"unknown field", mutate(t, p, func(m map[string]any) { m["colour"] = "red" }), ErrInvalid, "colour"},
 		{"syntax error line", []byte("{\n\"format\": \"dimerpath-plan\",\n\"version\": 2,\n\"design\": ]\n}"), ErrSyntax, "line 4"},

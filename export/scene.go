@@ -76,6 +76,8 @@ type scene struct {
 	// hasWrite[s] whether it has one.
 	writeFrom []r2.Point
 	hasWrite  []bool
+	// number[id] is stroke id's number on paper (StrokeNumbers).
+	number []int
 }
 
 // regionShape is a region drawn as field rectangles, one per run of
@@ -88,7 +90,7 @@ type regionShape struct {
 }
 
 func newScene(p *planner.Plan, pat *Pattern) *scene {
-	sc := &scene{plan: p, modeOf: map[string]design.Mode{}, apWidth: 0.8, feWidth: 4}
+	sc := &scene{plan: p, modeOf: map[string]design.Mode{}, apWidth: 0.8, feWidth: 4, number: StrokeNumbers(p)}
 	for _, m := range p.Modes {
 		sc.modeOf[m.Region] = m.Mode
 	}

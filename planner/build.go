@@ -8,6 +8,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -95,11 +96,16 @@ func (b *builder) build() (*Plan, error) {
 	if err := prof.checkField(b.d.Field.WidthNM, b.d.Field.HeightNM); err != nil {
 		return nil, err
 	}
+	if err := b.checkRaster(); err != nil {
+		return nil, err
+	}
 	if err := b.ctx.Err(); err != nil {
 		return nil, err
 	}
 	b.gen = newStrokeGen(lay.Surface, prof)
-	b.regionWork()
+	if err := b.regionWork(); err != nil {
+		return nil, err
+	}
 	var drift DriftPlan
 	b.model, drift = planModel(prof)
 
@@ -115,6 +121,9 @@ func (b *builder) build() (*Plan, error) {
 
 	b.opt.stage("strokes")
 	windows := b.makeStrokes()
+	if err := checkStrokes(float64(len(b.strokes)), "one or more per run of sites and per FE serpentine; split the design"); err != nil {
+		return nil, err
+	}
 	use := b.modesUsed()
 	if err := prof.CheckLimits(&use); err != nil {
 		return nil, err
@@ -125,7 +134,9 @@ func (b *builder) build() (*Plan, error) {
 	b.fiducials()
 	b.costs = newCosts(prof, b.fids)
 	b.costs.creepFrac = b.model.creep
-	b.splitLong()
+	if err := b.splitLong(); err != nil {
+		return nil, err
+	}
 	for i := range b.strokes {
 		b.strokes[i].ID = i
 	}
@@ -182,6 +193,18 @@ func (b *builder) build() (*Plan, error) {
 			b.warnings = append(b.warnings, fmt.Sprintf("stroke %d (region %q) cannot be held within ±%g nm even right after a registration at the planned drift (%.3g nm/min) and creep: expect it to leave its tolerance",
 				s.ID, s.Region, s.ToleranceNM, drift.RateNMPerMin))
 		}
+	}
+	// A timeline holds a write or dwell per stroke, a move before each,
+	// a registration, a switch, a conditioning and a verification per
+	// segment, a verification and a repair per feature, and the session's
+	// steps.
+	nseg := 0
+	for _, st := range steps {
+		nseg += len(st.starts)
+	}
+	if n := 2*len(b.strokes) + 6*nseg + 2*len(b.regions)*len(steps) + 16; n > MaxActions {
+		return nil, &CountError{What: "actions of the timeline", Count: float64(n), Max: MaxActions,
+			Cause: fmt.Sprintf("%d strokes in %d segments", len(b.strokes), nseg)}
 	}
 	tl, stepList, tm := b.sessionTimeline(steps, windows)
 	if err := checkFiniteTime(tl.breakdown); err != nil {
@@ -251,8 +274,17 @@ func (b *builder) runs() int {
 	return DefaultMonteCarloRuns
 }
 
-// regionWork lays out every region of the variant.
-func (b *builder) regionWork() {
+// regionWork lays out every region of the variant, once their runs of
+// sites are known to be within MaxRuns.
+func (b *builder) regionWork() error {
+	names := make([]string, len(b.lay.Regions))
+	sets := make([]*lattice.SiteSet, len(b.lay.Regions))
+	for i := range b.lay.Regions {
+		names[i], sets[i] = b.lay.Regions[i].Region.Name, b.lay.Regions[i].Sites
+	}
+	if err := checkRuns(names, sets); err != nil {
+		return err
+	}
 	for i := range b.lay.Regions {
 		rl := &b.lay.Regions[i]
 		r := rl.Region
@@ -279,6 +311,7 @@ func (b *builder) regionWork() {
 		}
 		b.regions = append(b.regions, rw)
 	}
+	return nil
 }
 
 // tolerances sets a region's AP and FE tolerances and where each comes
@@ -477,11 +510,12 @@ func (b *builder) fiducials() {
 // coarse one and the approach from the nearest fiducial for FE work)
 // into equal pieces that each fit, so that a registration can fall
 // between them.
-func (b *builder) splitLong() {
+func (b *builder) splitLong() error {
 	c := &b.costs
 	m := b.model
 	rate := m.r0 * m.rateMul
 	var out []Stroke
+	pieces := float64(len(b.strokes))
 	for _, s := range b.strokes {
 		err, approach := m.errLocal, 0.0
 		if s.Mode == design.ModeFE {
@@ -504,11 +538,21 @@ func (b *builder) splitLong() {
 			out = append(out, s)
 			continue // reported by the segmenter as over budget
 		}
-		k := int(math.Ceil(s.DurationS / room))
-		pieces := splitPath(s.Path, k)
+		kf := math.Ceil(s.DurationS / room)
+		if !(kf <= MaxPieces) {
+			return &CountError{What: fmt.Sprintf("pieces of a %s stroke of region %q cut at registrations", s.Kind, s.Region), Count: kf, Max: MaxPieces,
+				Cause: fmt.Sprintf("it takes %s s against a drift budget of %s s (tolerance ±%s nm at the planned %s nm/min) less %s s to reach it from a fiducial; %s",
+					jsonfile.Approx(s.DurationS), jsonfile.Approx(budget), jsonfile.Number(s.ToleranceNM), jsonfile.Approx(rate),
+					jsonfile.Approx(approach), speedCause(s.Mode, b.prof.modeOf(s.Mode)))}
+		}
+		if pieces += kf - 1; !(pieces <= MaxStrokes) {
+			return checkStrokes(pieces, "strokes longer than their drift budget are cut into pieces at registrations; "+speedCause(s.Mode, b.prof.modeOf(s.Mode)))
+		}
+		k := int(kf)
+		parts := splitPath(s.Path, k)
 		b.warnings = append(b.warnings, fmt.Sprintf("a %s stroke of region %q takes %.0f s, longer than its %.0f s drift budget (±%g nm at %.3g nm/min): split into %d pieces at registrations",
 			s.Kind, s.Region, s.DurationS, budget, s.ToleranceNM, rate, k))
-		for _, p := range pieces {
+		for _, p := range parts {
 			piece := s
 			piece.Path = p
 			piece.LengthNM = pathLength(p)
@@ -518,6 +562,7 @@ func (b *builder) splitLong() {
 		}
 	}
 	b.strokes = out
+	return nil
 }
 
 // splitPath cuts a polyline into k pieces of equal length.

@@ -5,6 +5,7 @@ import (
 	"math"
 	"slices"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice"
 )
 
@@ -289,77 +290,90 @@ func sessionDefaults(p *Profile) {
 	p.TolerancePadNM = defaultPadToleranceNM
 }
 
+// Plausible ranges of the session's fields (as for the rest of the
+// profile: several orders of magnitude around the defaults; common
+// practice).
+const (
+	maxExposureL      = 1e4   // langmuir
+	minPressureTorr   = 1e-14 // below any UHV gauge
+	maxPressureTorr   = 1e-2
+	maxTemperatureC   = 1400 // below silicon's melting point (1414 °C)
+	maxPixelNM        = 1000
+	minPixelNM        = 1e-3
+	maxLineS          = 3600
+	maxImageMarginNM  = 1e5
+	maxMeanWriteS     = 1e7
+	maxOpenLimitS     = 1e6
+	maxLocalImageNM   = 1e4
+	minSpeciesOrderID = 1
+)
+
 // validateSession adds the problems of the session, process and
-// registration parts.
+// registration parts, each against its plausible range.
 func (v *validator) validateSession(p Profile) {
 	pr := p.Process
 	for i, s := range pr.SpeciesOrder {
 		path := fmt.Sprintf("process.species_order[%d]", i)
-		if s == "" {
+		if len(s) < minSpeciesOrderID {
 			v.add(path, s, "must name a species")
 		}
 		if slices.Index(pr.SpeciesOrder, s) < i {
 			v.add(path, s, "is listed twice")
 		}
 	}
-	v.positive("process.dose.exposure_l", pr.Dose.ExposureL)
-	v.positive("process.dose.pressure_torr", pr.Dose.PressureTorr)
-	v.nonNegative("process.dose.pumpdown_s", pr.Dose.PumpdownS)
-	if v.positive("process.anneal.temperature_c", pr.Anneal.TemperatureC) && pr.Anneal.TemperatureC > 1400 {
-		v.add("process.anneal.temperature_c", pr.Anneal.TemperatureC, "must be below silicon's melting point (1414 °C)")
+	v.positiveUpTo("process.dose.exposure_l", pr.Dose.ExposureL, maxExposureL, "L")
+	v.within("process.dose.pressure_torr", pr.Dose.PressureTorr, minPressureTorr, maxPressureTorr, "Torr")
+	v.within("process.dose.pumpdown_s", pr.Dose.PumpdownS, 0, MaxStepS, "s")
+	if pr.Dose.ExposureL > 0 && pr.Dose.PressureTorr >= minPressureTorr && !(pr.Dose.TimeS() <= 10*MaxStepS) {
+		v.add("process.dose.exposure_l", pr.Dose.ExposureL, fmt.Sprintf("at %s Torr the dose takes %s s, more than %d s",
+			jsonfile.Number(pr.Dose.PressureTorr), jsonfile.Approx(pr.Dose.TimeS()), 10*MaxStepS))
 	}
-	v.nonNegative("process.anneal.time_s", pr.Anneal.TimeS)
-	v.nonNegative("process.anneal.cooldown_s", pr.Anneal.CooldownS)
-	v.nonNegative("process.refind_s", pr.RefindS)
-	v.positive("process.window_open_limit_s", pr.WindowOpenLimitS)
-	if pr.Dose.ExposureL > 0 && pr.Dose.PressureTorr > 0 && finite(pr.Dose.PumpdownS) && !finite(pr.Dose.TimeS()) {
-		v.add("process.dose.exposure_l", pr.Dose.ExposureL, fmt.Sprintf("at %g Torr the dose takes %v s: not a finite time", pr.Dose.PressureTorr, pr.Dose.TimeS()))
-	}
+	v.positiveUpTo("process.anneal.temperature_c", pr.Anneal.TemperatureC, maxTemperatureC, "°C")
+	v.within("process.anneal.time_s", pr.Anneal.TimeS, 0, MaxStepS, "s")
+	v.within("process.anneal.cooldown_s", pr.Anneal.CooldownS, 0, MaxStepS, "s")
+	v.within("process.refind_s", pr.RefindS, 0, MaxStepS, "s")
+	v.positiveUpTo("process.window_open_limit_s", pr.WindowOpenLimitS, maxOpenLimitS, "s")
 
 	s := p.Session
 	for _, im := range []struct {
 		name string
 		im   ImageProfile
 	}{{"survey", s.Survey}, {"verification", s.Verification}, {"documentation", s.Documentation}} {
-		v.positive("session."+im.name+".pixel_nm", im.im.PixelNM)
-		v.nonNegative("session."+im.name+".line_s", im.im.LineS)
-		v.nonNegative("session."+im.name+".margin_nm", im.im.MarginNM)
+		v.within("session."+im.name+".pixel_nm", im.im.PixelNM, minPixelNM, maxPixelNM, "nm")
+		v.within("session."+im.name+".line_s", im.im.LineS, 0, maxLineS, "s")
+		v.within("session."+im.name+".margin_nm", im.im.MarginNM, 0, maxImageMarginNM, "nm")
 	}
-	v.nonNegative("session.conditioning.time_s", s.Conditioning.TimeS)
-	v.positive("session.tip_changes.mean_write_s", s.TipChanges.MeanWriteS)
-	v.positive("session.repair.reimage_nm", s.Repair.ReimageNM)
+	v.within("session.conditioning.time_s", s.Conditioning.TimeS, 0, MaxStepS, "s")
+	v.positiveUpTo("session.tip_changes.mean_write_s", s.TipChanges.MeanWriteS, maxMeanWriteS, "s")
+	v.positiveUpTo("session.repair.reimage_nm", s.Repair.ReimageNM, maxLocalImageNM, "nm")
 	if m := s.PInToleranceMin; !(m > 0 && m < 1) {
 		v.add("session.p_in_tolerance_min", m, "must lie strictly between 0 and 1")
 	}
 
 	r := p.Registration
-	v.nonNegative("registration.coarse_error_nm", r.CoarseErrorNM)
-	v.nonNegative("registration.local.error_nm", r.Local.ErrorNM)
-	v.positive("registration.local.size_nm", r.Local.SizeNM)
-	v.positive("registration.local.pixel_nm", r.Local.PixelNM)
-	v.nonNegative("registration.local.line_s", r.Local.LineS)
+	v.within("registration.coarse_error_nm", r.CoarseErrorNM, 0, MaxToleranceNM, "nm")
+	v.within("registration.local.error_nm", r.Local.ErrorNM, 0, MaxToleranceNM, "nm")
+	v.positiveUpTo("registration.local.size_nm", r.Local.SizeNM, maxLocalImageNM, "nm")
+	v.within("registration.local.pixel_nm", r.Local.PixelNM, minPixelNM, maxPixelNM, "nm")
+	v.within("registration.local.line_s", r.Local.LineS, 0, maxLineS, "s")
 	c := r.Creep
-	if v.nonNegative("registration.creep.fraction", c.Fraction) && c.Fraction > 1 {
-		v.add("registration.creep.fraction", c.Fraction, "must be at most 1 (a share of the move)")
-	}
-	v.nonNegative("registration.creep.fraction_sd", c.FractionSD)
-	v.positive("registration.creep.tau_s", c.TauS)
-	v.nonNegative("registration.creep.frame_nm", c.FrameNM)
+	v.within("registration.creep.fraction", c.Fraction, 0, 1, "(a share of the move)")
+	v.within("registration.creep.fraction_sd", c.FractionSD, 0, 1, "")
+	v.positiveUpTo("registration.creep.tau_s", c.TauS, MaxStepS, "s")
+	v.within("registration.creep.frame_nm", c.FrameNM, 0, MaxScanFieldNM, "nm")
 	if sh := c.SettleShare; !(sh > 0 && sh <= 1) {
 		v.add("registration.creep.settle_share", sh, "must lie in (0, 1]")
 	}
-	v.nonNegative("registration.creep.max_settle_s", c.MaxSettleS)
+	v.within("registration.creep.max_settle_s", c.MaxSettleS, 0, MaxSettleS, "s")
 
 	d := p.Drift
-	if sh := d.Compensation.ResidualShare; !(sh >= 0 && sh <= 1) {
-		v.add("drift.compensation.residual_share", sh, "must lie in [0, 1]")
-	}
-	v.nonNegative("drift.excess.after_move_nm_per_min_per_um", d.Excess.AfterMovePerUMNMPerMin)
-	v.positive("drift.excess.after_move_tau_s", d.Excess.AfterMoveTauS)
-	v.nonNegative("drift.excess.after_anneal_nm_per_min", d.Excess.AfterAnnealNMPerMin)
-	v.positive("drift.excess.after_anneal_tau_s", d.Excess.AfterAnnealTauS)
+	v.within("drift.compensation.residual_share", d.Compensation.ResidualShare, 0, 1, "(a share of the raw rate)")
+	v.within("drift.excess.after_move_nm_per_min_per_um", d.Excess.AfterMovePerUMNMPerMin, 0, MaxDriftNMPerMin, "nm/min per µm")
+	v.positiveUpTo("drift.excess.after_move_tau_s", d.Excess.AfterMoveTauS, MaxStepS, "s")
+	v.within("drift.excess.after_anneal_nm_per_min", d.Excess.AfterAnnealNMPerMin, 0, MaxDriftNMPerMin, "nm/min")
+	v.positiveUpTo("drift.excess.after_anneal_tau_s", d.Excess.AfterAnnealTauS, MaxStepS, "s")
 
-	v.positive("tolerance_lead_nm", p.ToleranceLeadNM)
-	v.positive("tolerance_gate_nm", p.ToleranceGateNM)
-	v.positive("tolerance_pad_nm", p.TolerancePadNM)
+	v.within("tolerance_lead_nm", p.ToleranceLeadNM, MinToleranceNM, MaxToleranceNM, "nm")
+	v.within("tolerance_gate_nm", p.ToleranceGateNM, MinToleranceNM, MaxToleranceNM, "nm")
+	v.within("tolerance_pad_nm", p.TolerancePadNM, MinToleranceNM, MaxToleranceNM, "nm")
 }

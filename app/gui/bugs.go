@@ -69,7 +69,7 @@ func (u *UI) bugReport(what string, details string) string {
 // the design is kept, and a button that copies the details (version,
 // message, stack) for a bug report.
 func (u *UI) showBug(what string, err error, details string) {
-	msg := widget.NewLabel(fmt.Sprintf("%s stopped on an internal error, a bug in dimerpath:\n\n%v\n\n"+
+	msg := widget.NewLabel(fmt.Sprintf("%s stopped on an internal error:\n\n%v\n\n"+
 		"Your design and its undo history are as they were: save your work. "+
 		"To report the bug, copy the details and send them, with the design if you can.", what, err))
 	msg.Wrapping = fyne.TextWrapWord

@@ -11,6 +11,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 
 	"dimerpath/app/editor"
+	"dimerpath/app/render/rendertest"
 	"dimerpath/export"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
@@ -113,6 +114,7 @@ func TestPanickingJobKeepsTheDesign(t *testing.T) {
 			if top == nil {
 				t.Fatal("no dialog after the job panicked")
 			}
+			rendertest.SaveImage(t, "bug-"+c.name+".png", w.Canvas().Capture())
 			if txt := texts(top); !strings.Contains(txt, "Internal error") || !strings.Contains(txt, boom(c.name)) {
 				t.Errorf("the dialog does not report the bug and its message %q:\n%s", boom(c.name), txt)
 			}
