@@ -43,7 +43,7 @@ func TestPlanJSON(t *testing.T) {
 			Species string `json:"species"`
 		} `json:"steps"`
 		PInTolerance float64 `json:"p_in_tolerance"`
-		Windows []struct {
+		Windows      []struct {
 			Species     string  `json:"species"`
 			Probability float64 `json:"probability"`
 		} `json:"windows"`

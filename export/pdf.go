@@ -134,7 +134,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		{"Process", processLine(p)},
 		{"Against the floor and by hand", floorLine(p)},
 		{"Spread", fmt.Sprintf("P10 %s · P50 %s · P90 %s", clock(p.P10S), clock(p.P50S), clock(p.P90S))},
-		{"Within tolerance", fmt.Sprintf("%s: the probability that every stroke and coupled pair stays within its tolerance, sampled on this plan", probability(p.PInTolerance))},
+		{"Within tolerance", withinLine(p)},
 		{"Segments", segmentsLine(len(p.Segments), fidNames, local)},
 		{"Strokes", fmt.Sprintf("%s: %s", thousands(len(p.Strokes)), strokeSummary(p))},
 		{"Tip actions", thousands(len(p.Actions))},
@@ -238,6 +238,14 @@ func segmentsLine(n int, fiducials []string, local int) string {
 	return fmt.Sprintf("%s: %s", thousands(n), strings.Join(parts, ", "))
 }
 
+// withinLine states the probability of staying within tolerance.
+func withinLine(p *planner.Plan) string {
+	if len(p.Steps) == 0 {
+		return "not estimated (a plan file of version 1, before the session model)"
+	}
+	return fmt.Sprintf("%s: the probability that every stroke and coupled pair stays within its tolerance, sampled on this plan", probability(p.PInTolerance))
+}
+
 // processLine names the lithography steps in order.
 func processLine(p *planner.Plan) string {
 	var species []string
@@ -245,6 +253,9 @@ func processLine(p *planner.Plan) string {
 		if st.Kind == planner.StepLithography && st.Species != "" {
 			species = append(species, st.Species)
 		}
+	}
+	if len(p.Steps) == 0 {
+		return "not planned (a plan file of version 1, before the process steps)"
 	}
 	if len(species) == 0 {
 		return "one lithography step, no dose"

@@ -89,7 +89,6 @@ func floorLine(p *planner.Plan) string {
 	return strings.Join(parts, "; ")
 }
 
-
 func devicesPerPerfect(y planner.Yield) string {
 	if y.DevicesPerPerfect == 0 {
 		if l := y.Log10All; !math.IsInf(l, -1) && l < 0 {

@@ -470,7 +470,14 @@ func ParsePlan(name string, data []byte) (*planner.Plan, error) {
 	}
 	var f planFile
 	var ps jsonfile.Problems
-	jsonfile.Decode(data, &f, &ps, planOptions)
+	opts := planOptions
+	if raw, _ := jsonfile.TopField(data, "version"); string(raw) == "1" {
+		// A version 1 plan has no session model (steps, session times,
+		// P(within tolerance)): read what it has; the plan then has no
+		// steps, which the exports say.
+		opts.Required = false
+	}
+	jsonfile.Decode(data, &f, &ps, opts)
 	if err := ps.Err(name, ErrInvalid); err != nil {
 		for _, p := range ps.List() {
 			if p.Err == ErrSyntax {
@@ -520,13 +527,6 @@ func CheckPlanHead(data []byte) error {
 		return notPlan(jsonfile.Problem{Path: "format", Message: fmt.Sprintf("missing: %s (a plan file starts with \"format\": %q)", ErrNotPlan, PlanFormat)})
 	}
 	raw, found := jsonfile.TopField(data, "version")
-	if v, err := strconv.Atoi(string(raw)); err == nil && v >= 1 && v < PlanVersion {
-		// Version 1 plans have no process steps, session times or
-		// probabilities of staying within tolerance: nothing to read them
-		// into honestly.
-		return &jsonfile.Error{Kind: ErrVersion, Problems: []jsonfile.Problem{{Path: "version", Value: jsonfile.Text(raw),
-			Message: fmt.Sprintf("%s: a version %d plan lacks the session model (process steps, session times, P(within tolerance)) of version %d; plan the design again", ErrVersion, v, PlanVersion)}}}
-	}
 	if v, err := strconv.Atoi(string(raw)); err != nil || v < 1 || v > PlanVersion {
 		p := jsonfile.Problem{Path: "version", Message: fmt.Sprintf("%s (this dimerpath reads versions 1 to %d)", ErrVersion, PlanVersion)}
 		if found {

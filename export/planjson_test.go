@@ -113,16 +113,16 @@ func TestPlanFileCoversPlan(t *testing.T) {
 			"ToleranceNM", "Segment", "Window"},
 		reflect.TypeFor[planner.Segment](): {"Index", "Step", "Registration", "Reason", "Fiducial", "FiducialAt", "StartS", "EndS", "BudgetS",
 			"Strokes", "Tightest", "PInTolerance"},
-		reflect.TypeFor[planner.Step](): {"Kind", "Species", "StartS", "DurationS", "Segments", "Precursor", "ExposureL", "TemperatureC", "Note"},
-		reflect.TypeFor[planner.Coupling](): {"Kind", "A", "B", "ToleranceNM", "Strokes", "SameStep", "PInTolerance"},
+		reflect.TypeFor[planner.Step]():      {"Kind", "Species", "StartS", "DurationS", "Segments", "Precursor", "ExposureL", "TemperatureC", "Note"},
+		reflect.TypeFor[planner.Coupling]():  {"Kind", "A", "B", "ToleranceNM", "Strokes", "SameStep", "PInTolerance"},
 		reflect.TypeFor[planner.DriftPlan](): {"RateNMPerMin", "CreepFraction", "ErrorZ", "Margin", "Compensated"},
 		reflect.TypeFor[planner.Action](): {"Index", "Kind", "Segment", "Stroke", "From", "To", "StartS", "DurationS", "Mode",
 			"BiasV", "CurrentA", "SpeedNMPS", "Note"},
 		reflect.TypeFor[planner.Breakdown](): {"APWriteS", "FEWriteS", "DwellS", "TravelS", "ModeSwitchS", "RegistrationS", "VerificationS",
 			"SurveyS", "ConditioningS", "TipChangeS", "RepairS", "DocumentationS", "DoseS", "AnnealS"},
-		reflect.TypeFor[planner.Window]():    {"Region", "Species", "Template", "At", "Sites", "OpenProbability", "Probability", "OpenS"},
-		reflect.TypeFor[planner.Yield]():     {"Windows", "All", "MeanGood", "Distribution", "DistributionFrom", "Log10All", "SDGood", "DevicesPerPerfect"},
-		reflect.TypeFor[planner.Coverage]():  {"OK", "Sites", "Uncovered", "Overcleared", "Issues"},
+		reflect.TypeFor[planner.Window]():   {"Region", "Species", "Template", "At", "Sites", "OpenProbability", "Probability", "OpenS"},
+		reflect.TypeFor[planner.Yield]():    {"Windows", "All", "MeanGood", "Distribution", "DistributionFrom", "Log10All", "SDGood", "DevicesPerPerfect"},
+		reflect.TypeFor[planner.Coverage](): {"OK", "Sites", "Uncovered", "Overcleared", "Issues"},
 	}
 	for typ, names := range known {
 		var got []string

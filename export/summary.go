@@ -12,32 +12,32 @@ import (
 // with the per-stroke and per-action detail left to the plan file.
 
 type planSummary struct {
-	Design    string                 `json:"design"`
-	Variant   string                 `json:"variant"`
-	Profile   string                 `json:"profile"`
-	Seed      int64                  `json:"seed"`
-	Caution   string                 `json:"caution"`
-	TotalS    float64                `json:"total_s"`
-	Breakdown breakdownJSON          `json:"breakdown"`
-	P10S      float64                `json:"p10_s"`
-	P50S      float64                `json:"p50_s"`
-	P90S      float64                `json:"p90_s"`
-	ScheduleS float64                `json:"schedule_s"`
-	FloorS    float64                `json:"floor_s"`
-	ByHandS   float64                `json:"by_hand_s"`
-	Strokes   int                    `json:"strokes"`
-	Steps     []stepJSON             `json:"steps"`
-	Segments  []segmentSummary       `json:"segments"`
+	Design    string           `json:"design"`
+	Variant   string           `json:"variant"`
+	Profile   string           `json:"profile"`
+	Seed      int64            `json:"seed"`
+	Caution   string           `json:"caution"`
+	TotalS    float64          `json:"total_s"`
+	Breakdown breakdownJSON    `json:"breakdown"`
+	P10S      float64          `json:"p10_s"`
+	P50S      float64          `json:"p50_s"`
+	P90S      float64          `json:"p90_s"`
+	ScheduleS float64          `json:"schedule_s"`
+	FloorS    float64          `json:"floor_s"`
+	ByHandS   float64          `json:"by_hand_s"`
+	Strokes   int              `json:"strokes"`
+	Steps     []stepJSON       `json:"steps"`
+	Segments  []segmentSummary `json:"segments"`
 	// PInTolerance is the probability that every stroke and coupled pair
 	// stays within its tolerance.
-	PInTolerance float64        `json:"p_in_tolerance"`
-	Couplings    []couplingJSON `json:"couplings"`
-	Windows   []windowSummary        `json:"windows"`
-	YieldAll  float64                `json:"yield_all"`
-	Yield     yieldSummary           `json:"yield"`
-	Modes     map[string]modeSummary `json:"modes"`
-	Coverage  coverageSummary        `json:"coverage"`
-	Warnings  []string               `json:"warnings"`
+	PInTolerance float64                `json:"p_in_tolerance"`
+	Couplings    []couplingJSON         `json:"couplings"`
+	Windows      []windowSummary        `json:"windows"`
+	YieldAll     float64                `json:"yield_all"`
+	Yield        yieldSummary           `json:"yield"`
+	Modes        map[string]modeSummary `json:"modes"`
+	Coverage     coverageSummary        `json:"coverage"`
+	Warnings     []string               `json:"warnings"`
 }
 
 type segmentSummary struct {
@@ -99,7 +99,7 @@ func WritePlanSummary(w io.Writer, p *planner.Plan) error {
 		FloorS: p.FloorS, ByHandS: p.ByHandS, Strokes: len(p.Strokes),
 		Steps: []stepJSON{}, Segments: []segmentSummary{}, Windows: []windowSummary{}, Couplings: []couplingJSON{},
 		PInTolerance: p.PInTolerance,
-		YieldAll: p.Yield.All,
+		YieldAll:     p.Yield.All,
 		Yield: yieldSummary{Windows: p.Yield.Windows, All: p.Yield.All, Log10All: log10JSON(p.Yield.Log10All), MeanGood: p.Yield.MeanGood,
 			SDGood: p.Yield.SDGood, DevicesPerPerfect: p.Yield.DevicesPerPerfect},
 		Modes: map[string]modeSummary{},

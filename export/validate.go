@@ -114,12 +114,15 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 			v.fail(invalid(f+".end_s", s.EndS, "ends before it starts (%g s)", s.StartS))
 		}
 		v.nonNeg(f+".budget_s", s.BudgetS)
-		v.index(f+".step", s.Step, len(p.Steps), false)
-		if v.err == nil && s.Step < len(p.Steps) && p.Steps[s.Step].Kind != planner.StepLithography {
-			v.fail(invalid(f+".step", s.Step, "step %d is a %s step, not a lithography step", s.Step, p.Steps[s.Step].Kind))
-		}
-		if v.err == nil && s.Registration != planner.RegCoarse && s.Registration != planner.RegLocal {
-			v.fail(invalid(f+".registration", string(s.Registration), "unknown registration kind (want coarse or local)"))
+		// A plan without steps is a version 1 plan: no session model.
+		if len(p.Steps) > 0 {
+			v.index(f+".step", s.Step, len(p.Steps), false)
+			if v.err == nil && s.Step < len(p.Steps) && p.Steps[s.Step].Kind != planner.StepLithography {
+				v.fail(invalid(f+".step", s.Step, "step %d is a %s step, not a lithography step", s.Step, p.Steps[s.Step].Kind))
+			}
+			if v.err == nil && s.Registration != planner.RegCoarse && s.Registration != planner.RegLocal {
+				v.fail(invalid(f+".registration", string(s.Registration), "unknown registration kind (want coarse or local)"))
+			}
 		}
 		if v.err == nil && s.Registration == planner.RegCoarse && s.Fiducial == "" {
 			v.fail(invalid(f+".fiducial", s.Fiducial, "a coarse registration names its fiducial"))

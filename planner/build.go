@@ -361,6 +361,12 @@ func (b *builder) tolerances(rw *regionWork, r *design.Region) {
 func (b *builder) checkTolerances() error {
 	reg := b.prof.Registration
 	for _, r := range b.regions {
+		// A hybrid region's FE fill lies inside its AP band: it is held
+		// to the FE tolerance (see makeStrokes).
+		feTol, feSrc := r.tolFE, r.srcFE
+		if r.mode == design.ModeHybrid {
+			feTol, feSrc = b.prof.ToleranceFENM, "the profile's tolerance_fe_nm"
+		}
 		checks := []struct {
 			used      bool
 			tol       float64
@@ -369,7 +375,7 @@ func (b *builder) checkTolerances() error {
 			errPath   string
 		}{
 			{r.apPart != nil && !r.apPart.IsEmpty() || len(r.windows) > 0, r.tolAP, r.srcAP, "local", reg.Local.ErrorNM, "registration.local.error_nm"},
-			{r.fePart != nil && !r.fePart.IsEmpty(), r.tolFE, r.srcFE, "coarse", reg.CoarseErrorNM, "registration.coarse_error_nm"},
+			{r.fePart != nil && !r.fePart.IsEmpty(), feTol, feSrc, "coarse", reg.CoarseErrorNM, "registration.coarse_error_nm"},
 		}
 		for _, c := range checks {
 			if c.used && c.tol <= c.err {

@@ -55,8 +55,8 @@ func ExampleCompare() {
 		}
 	}
 	// Output:
-	// gap-9: 1 segment(s), 2 windows
-	// gap-12-source: 1 segment(s), 2 windows
+	// gap-9: 6 segment(s), 2 windows
+	// gap-12-source: 6 segment(s), 2 windows
 	//    tunnel gap sensor-island – source-lead
 	//    region source-lead
 }

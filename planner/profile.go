@@ -284,6 +284,7 @@ func LowTemperatureProfile() Profile {
 	p.Base = PresetLowTemp
 	p.Drift.RateNMPerMin = 0.1 / 60
 	p.Drift.RateSDNMPerMin = 0.05 / 60
+	lowTemperatureSession(&p)
 	return p
 }
 

@@ -384,6 +384,13 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 			}
 			here = append(here, cand{key: prev + sg.B[k][e], s: e, kind: k, emax: emax})
 		}
+		if len(here) == 0 && (e == 0 || !sg.jobs[e].joined) {
+			// No registration meets every wish here (a job coupled to an
+			// earlier step that a local image cannot reach): a coarse one,
+			// over budget.
+			k := kCoarse
+			here = append(here, cand{key: prev + sg.B[k][e], s: e, kind: k, emax: e - 1})
+		}
 		if len(here) > 0 {
 			ok := false
 			for _, c := range here {

@@ -261,6 +261,12 @@ func segmentAll(steps []*stepWork, margin float64) {
 func (b *builder) chooseMargin(ctx context.Context, steps []*stepWork, cps []couplingWork, draws mcDraws) (float64, tolResult, []int, error) {
 	const maxMargins = 8
 	level := b.prof.Session.PInToleranceMin
+	// The search for the margin uses the first draws; the result is
+	// sampled again with all of them.
+	search := draws
+	if n := len(draws.rate); n > searchDraws {
+		search = mcDraws{rate: draws.rate[:searchDraws], creep: draws.creep[:searchDraws]}
+	}
 	margin, bestMargin := 1.0, 1.0
 	var best tolResult
 	var bestIndex []int
@@ -281,7 +287,7 @@ func (b *builder) chooseMargin(ctx context.Context, steps []*stepWork, cps []cou
 				leave = append(leave, forced[i])
 			}
 		}
-		res, err := pInTolerance(ctx, segs, pairs, draws, leave)
+		res, err := pInTolerance(ctx, segs, pairs, search, leave)
 		if err != nil {
 			return 0, tolResult{}, nil, err
 		}
@@ -296,8 +302,19 @@ func (b *builder) chooseMargin(ctx context.Context, steps []*stepWork, cps []cou
 		margin *= 1.25
 	}
 	segmentAll(steps, bestMargin)
+	if len(search.rate) < len(draws.rate) {
+		segs, pairs, index := b.loads(steps, cps)
+		res, err := pInTolerance(ctx, segs, pairs, draws, nil)
+		if err != nil {
+			return 0, tolResult{}, nil, err
+		}
+		best, bestIndex = res, index
+	}
 	return bestMargin, best, bestIndex, nil
 }
+
+// searchDraws is the number of draws the margin search samples with.
+const searchDraws = 500
 
 // features returns the step's atomic-precision features: each region's
 // AP strokes in the step, with the job of its last stroke.
@@ -357,6 +374,9 @@ func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline
 	}
 	end := func(st *Step) { st.DurationS = tl.clock - st.StartS }
 
+	if len(b.strokes) == 0 {
+		return tl, out, tm // nothing to write: no session
+	}
 	if ses.Conditioning.Enabled || ses.Survey.Enabled {
 		st := begin(StepSurvey, "", "")
 		var parts []string
