@@ -180,7 +180,11 @@ type Region struct {
 	// ToleranceNM is the placement tolerance (±nm); 0 takes the mode's
 	// default (AP ±0.2 nm, FE ±2 nm).
 	ToleranceNM float64 `json:"tolerance_nm,omitempty"`
-	Shapes      []Shape `json:"shapes,omitempty"`
+	// Colour is the colour the region is drawn in on screen, "#rrggbb";
+	// empty lets the program choose. It stays with the region, so
+	// deleting another region recolours none.
+	Colour string  `json:"colour,omitempty"`
+	Shapes []Shape `json:"shapes,omitempty"`
 	// Painted and Erased hold sites set or cleared by hand, stored in the
 	// file as runs per row.
 	Painted *lattice.SiteSet `json:"painted,omitempty"`

@@ -330,6 +330,9 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 				ps.add(rp+".lithography_step", "%q is the species of no window template, so no process step takes it", r.LithographyStep)
 			}
 		}
+		if r.Colour != "" && !IsColour(r.Colour) {
+			ps.add(rp+".colour", "%q is not a colour: write #rrggbb in hexadecimal, e.g. #e64980", r.Colour)
+		}
 		if !(r.ToleranceNM >= 0 && r.ToleranceNM <= MaxFieldNM) {
 			ps.add(rp+".tolerance_nm", "%g must be between 0 (the mode's default) and %g nm", r.ToleranceNM, MaxFieldNM)
 		}
@@ -526,4 +529,18 @@ func checkPoint(ps *problems, path string, p [2]float64) bool {
 		return true
 	}
 	return false
+}
+
+// IsColour reports whether s is a colour as design files write them:
+// "#" and six hexadecimal digits (red, green, blue).
+func IsColour(s string) bool {
+	if len(s) != 7 || s[0] != '#' {
+		return false
+	}
+	for _, c := range s[1:] {
+		if !(c >= '0' && c <= '9' || c >= 'a' && c <= 'f' || c >= 'A' && c <= 'F') {
+			return false
+		}
+	}
+	return true
 }
