@@ -294,6 +294,9 @@ func pdfSteps(d *pdfDoc, p *planner.Plan) {
 				first, last = st.Segments[0]+1, st.Segments[len(st.Segments)-1]+1
 			}
 			what = fmt.Sprintf("segments %d–%d: %s", first, last, st.Note)
+			if first == last {
+				what = fmt.Sprintf("segment %d: %s", first, st.Note)
+			}
 		}
 		top, _ := t.row("", strconv.Itoa(i+1), string(st.Kind), st.Species, clock(st.StartS), clock(st.DurationS), what)
 		d.tickBox(t.colX(0)+1.6, top+1.2, 3.6)

@@ -511,8 +511,11 @@ func (b *builder) stepNote(st *stepWork) string {
 		}
 	}
 	note := fmt.Sprintf("write %s", strings.Join(names, ", "))
-	if windows > 0 {
-		note += fmt.Sprintf("; the %d dopant window(s) last, to keep them open as short a time as possible", windows)
+	switch {
+	case windows == 1:
+		note += "; the dopant window last, to keep it open as short a time as possible"
+	case windows > 1:
+		note += fmt.Sprintf("; the %d dopant windows last, to keep them open as short a time as possible", windows)
 	}
 	return note
 }
