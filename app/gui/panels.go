@@ -221,7 +221,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			}
 		}
 	})
-	p.species = widget.NewSelect([]string{"none", "P (phosphine)", "As (arsine)"}, func(s string) {
+	p.species = widget.NewSelect([]string{dopantDefault, "P (phosphine)", "As (arsine)", dopantNone}, func(s string) {
 		if p.updating || p.shown < 0 {
 			return
 		}
@@ -231,6 +231,8 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			sp = "P"
 		case strings.HasPrefix(s, "As"):
 			sp = "As"
+		case s == dopantNone:
+			sp = design.NoDopant
 		}
 		showErr(p.msg, p.u.Session.SetRegionSpecies(p.shown, sp))
 	})
@@ -295,6 +297,15 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	p.content = container.NewBorder(top, nil, nil, nil, p.split)
 	return p
 }
+
+// The Dopant choices beside the species: the design's default dopant
+// (the region names none: its δ-layer takes the design's), and no dopant
+// (a region opened for another reason, written in the first step unless
+// the design file names another).
+const (
+	dopantDefault = "design default"
+	dopantNone    = "none (no dopant)"
+)
 
 // pickColour offers a colour for the selected region; the region keeps
 // it (it is saved with the design), whatever happens to the others.
@@ -390,8 +401,10 @@ func (p *regionsPanel) refresh() {
 		p.species.SetSelected("P (phosphine)")
 	case "As":
 		p.species.SetSelected("As (arsine)")
+	case design.NoDopant:
+		p.species.SetSelected(dopantNone)
 	default:
-		p.species.SetSelected("none")
+		p.species.SetSelected(dopantDefault)
 	}
 	tol := ""
 	if r.ToleranceNM > 0 {
