@@ -69,7 +69,7 @@ func pdfStrokeList(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []in
 		case planner.ActMove:
 			// Implied by the next row's position.
 		case planner.ActRegister:
-			seg = -1 // a new segment's first row needs no "continued" above it
+			seg = -1         // a new segment's first row needs no "continued" above it
 			d.need(5 * rowH) // never a segment's heading (two lines) alone at a page's foot
 			s := &p.Segments[a.Segment]
 			head := fmt.Sprintf("Segment %d: register locally at %s, %s nm", a.Segment+1, nm1(s.FiducialAt.X), nm1(s.FiducialAt.Y))
