@@ -5,16 +5,22 @@ SHELL := /bin/bash
 export PATH := $(PATH):/usr/local/go/bin
 export LANG := C.UTF-8
 
-GO      ?= go
+# scripts/go runs the Go release go.mod names: the go on PATH when it is new
+# enough, else that release fetched from the Go module proxy (see the script).
+GO      ?= ./scripts/go
 BIN     := bin/dimerpath
 # Run apt-get through sudo unless we are root already.
 SUDO    := $(shell [ "$$(id -u)" = 0 ] || echo sudo)
 # cgo and the GL/X11 headers build the Fyne GUI; xvfb, xauth and imagemagick
-# run and screenshot it headless; poppler-utils reads exported PDFs back.
+# run and screenshot it headless; poppler-utils reads exported PDFs back;
+# python3-gdspy, an independent GDSII library, reads back the GDSII files
+# dimerpath writes (export/gds_gdspy_test.go); curl, unzip and ca-certificates
+# let scripts/go fetch Go where the machine has none (or too old a one).
 DEB_PKGS := gcc pkg-config libgl1-mesa-dev libx11-dev libxcursor-dev libxrandr-dev \
-            libxinerama-dev libxi-dev libxxf86vm-dev xvfb xauth imagemagick poppler-utils
+            libxinerama-dev libxi-dev libxxf86vm-dev xvfb xauth imagemagick poppler-utils \
+            python3-gdspy curl unzip ca-certificates
 
-.PHONY: all run test bench build deps lint fuzz clean
+.PHONY: all run test bench build deps toolchain lint fuzz clean
 
 all: build
 
@@ -28,8 +34,13 @@ deps:
 	  $(SUDO) apt-get update -qq && \
 	  $(SUDO) env DEBIAN_FRONTEND=noninteractive apt-get install -y -qq --no-install-recommends $$missing; \
 	fi
-	@command -v $(GO) >/dev/null || { echo "dimerpath: Go is not installed (see README)"; exit 1; }
+	@$(GO) version
 	@$(GO) mod download
+
+# The Go that builds dimerpath, installed by scripts/go when the machine has
+# none new enough (deps does the same after the system packages).
+toolchain:
+	@$(GO) version
 
 build: deps
 	$(GO) build -o $(BIN) .
@@ -38,12 +49,23 @@ run: build
 	./$(BIN)
 
 lint:
-	@out=$$(gofmt -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go')); \
+	@out=$$("$$($(GO) env GOROOT)/bin/gofmt" -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go')); \
 	if [ -n "$$out" ]; then echo "gofmt would change:"; echo "$$out"; exit 1; fi
 	$(GO) vet ./...
+	@# The README names the Go release go.mod needs.
+	@want=$$(awk '$$1 == "go" {print $$2}' go.mod); grep -q "Go $$want or newer" README.md || \
+	  { echo "README.md does not say \"Go $$want or newer\", the release go.mod needs"; exit 1; }
+	@# go.mod and go.sum list exactly what the code imports.
+	@$(GO) mod tidy -diff >/dev/null || { echo "go.mod or go.sum is not tidy: run go mod tidy"; $(GO) mod tidy -diff; exit 1; }
 	@# Only app/ may import Fyne; the pure packages stay headless.
 	@bad=$$($(GO) list -deps ./lattice/... ./planner/... ./export/... | grep '^fyne.io/' || true); \
 	if [ -n "$$bad" ]; then echo "pure packages import Fyne:"; echo "$$bad"; exit 1; fi
+	@# The editor and the renderer are Fyne-free, tests included, so they
+	@# build and test without cgo or a display; the renderer knows no editor.
+	@bad=$$($(GO) list -deps -test ./app/editor/... ./app/render/... | grep '^fyne.io/' || true); \
+	if [ -n "$$bad" ]; then echo "app/editor or app/render imports Fyne:"; echo "$$bad"; exit 1; fi
+	@bad=$$($(GO) list -deps ./app/render/... | grep '^dimerpath/app/editor' || true); \
+	if [ -n "$$bad" ]; then echo "app/render imports the editor"; exit 1; fi
 	@bad=$$($(GO) list -deps ./lattice/... | grep '^dimerpath/planner' || true); \
 	if [ -n "$$bad" ]; then echo "lattice imports planner"; exit 1; fi
 	@bad=$$($(GO) list -deps ./planner/route/... | grep '^dimerpath/' | grep -v '^dimerpath/planner/route' || true); \

@@ -32,6 +32,10 @@ type Command struct {
 	Summary string
 	// Help is the longer text printed by --help, after the flags.
 	Help string
+	// NeedsDisplay marks a command that opens a window; the command list
+	// says which, so a user on a machine without a display knows what
+	// runs there.
+	NeedsDisplay bool
 	// Flags declares the command's flags on fs and returns the function
 	// that runs the command once fs has been parsed; args are the
 	// positional arguments, with flags removed wherever they stood.
@@ -55,11 +59,12 @@ const (
 	ExitOK       = 0 // success, and no error-level findings
 	ExitFindings = 1 // the command ran and found errors in the input (check)
 	ExitFailure  = 2 // bad usage, unreadable input, refused parameters
+	// ExitBug (3, bugs.go): a bug in dimerpath, reported with its details.
 )
 
 // Main runs the dimerpath command line and returns the exit status.
-// With no arguments it opens the GUI on the built-in demo design (or, in
-// a build without the GUI, prints the demo's summary).
+// With no arguments it opens the GUI on the built-in demo design
+// (without a display it says so in one line and returns ExitFailure).
 func Main(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	env := Env{Stdin: stdin, Stdout: stdout, Stderr: stderr}
 	if len(args) == 0 {
@@ -106,7 +111,9 @@ const defaultCommand = "gui"
 // every exported plan.
 var Version = "0.1.0"
 
-func runCommand(c *Command, args []string, env Env) int {
+func runCommand(c *Command, args []string, env Env) (code int) {
+	env.Args = args
+	defer recoverBug(env, c.Name, &code)
 	fs := flag.NewFlagSet(c.Name, flag.ContinueOnError)
 	fs.SetOutput(env.Stderr)
 	run := c.Flags(fs)
@@ -159,8 +166,15 @@ func printCommandList(w io.Writer) {
 		names = append(names, n)
 	}
 	sort.Strings(names)
+	var windowed []string
 	for _, n := range names {
 		fmt.Fprintf(w, "  %-10s %s\n", n, commands[n].Summary)
+		if commands[n].NeedsDisplay {
+			windowed = append(windowed, n)
+		}
+	}
+	if len(windowed) > 0 {
+		fmt.Fprintf(w, "\nThe window commands (%s) need a display; the others run without one.\n", strings.Join(windowed, ", "))
 	}
 	fmt.Fprintln(w, "\nRun \"dimerpath COMMAND --help\" for a command's flags.")
 	fmt.Fprintln(w, "\n"+planner.Caution)

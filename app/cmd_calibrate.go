@@ -6,6 +6,8 @@ import (
 	"os"
 	"text/tabwriter"
 
+	"dimerpath/internal/atomicfile"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -36,15 +38,13 @@ or a preset name, rt or lt; default rt), and the result is written to -o for
 					fmt.Fprintln(env.Stderr, "dimerpath calibrate: -o PROFILE.json is required")
 					return ExitFailure
 				}
-				var m planner.WriteMode
-				switch *mode {
-				case "":
-				case "ap":
-					m = planner.AP
-				case "fe":
-					m = planner.FE
-				default:
-					fmt.Fprintf(env.Stderr, "dimerpath calibrate: --mode %q: want ap or fe\n", *mode)
+				if err := atomicfile.Check(*out); err != nil {
+					fmt.Fprintln(env.Stderr, "dimerpath calibrate:", err)
+					return ExitFailure
+				}
+				m := design.Mode(*mode)
+				if m != "" && m != design.ModeAP && m != design.ModeFE {
+					fmt.Fprintf(env.Stderr, "dimerpath calibrate: --mode %q: want %s or %s\n", *mode, design.ModeAP, design.ModeFE)
 					return ExitFailure
 				}
 				prof, err := loadProfileArg(*base)
@@ -85,7 +85,7 @@ or a preset name, rt or lt; default rt), and the result is written to -o for
 
 func printFit(env Env, fit planner.WidthFit) {
 	w := env.Stdout
-	fmt.Fprintf(w, "%s width model: w² = %.4g nm² + %.4g nm² · ln(dose / 1 C/cm)\n", modeLabel(fit.Mode), fit.A, fit.B)
+	fmt.Fprintf(w, "%s width model: w² = %.4g nm² + %.4g nm² · ln(dose / 1 C/cm)\n", fit.Mode.Abbrev(), fit.A, fit.B)
 	if fit.Model.SigmaNM > 0 {
 		fmt.Fprintf(w, "  sigma %.4g nm, threshold dose %.4g mC/cm, R² %.4f, RMS residual %.3g nm, %d lines fitted",
 			fit.Model.SigmaNM, fit.Model.ThresholdDoseCPerCm*1e3, fit.RSquared, fit.RMSNM, fit.Points)
@@ -105,13 +105,6 @@ func printFit(env Env, fit planner.WidthFit) {
 	for _, warn := range fit.Warnings {
 		fmt.Fprintln(env.Stderr, "dimerpath calibrate: warning:", warn)
 	}
-}
-
-func modeLabel(m planner.WriteMode) string {
-	if m == planner.FE {
-		return "FE"
-	}
-	return "AP"
 }
 
 // loadProfileArg returns the profile named by a --profile argument: a

@@ -30,9 +30,9 @@ func TestCheckCommand(t *testing.T) {
 		{"unknown variant", []string{"check", "../assets/demo.json", "--variant", "gap-10"}, ExitFailure,
 			nil, []string{`has no variant "gap-10" (it has "gap-9", "gap-12-source")`}, true},
 		{"malformed", []string{"check", "../testdata/designs/nan-point.json"}, ExitFailure, nil, []string{
-			"nan-point.json: variants[1].regions[1].shapes[0].points_nm[1][0]: NaN is not a finite number",
-			"nan-point.json: variants[1].regions[2].painted.sites: 1000000000 is out of range",
-			"nan-point.json: field.height_nm: -300 must be more than 0",
+			"nan-point.json:10:112: variants[1].regions[1].shapes[0].points_nm[1][0]: NaN is not a finite number",
+			"nan-point.json:11:62: variants[1].regions[2].painted.sites: 1000000000 is out of range",
+			"nan-point.json:3:43: field.height_nm: -300 must be more than 0",
 		}, true},
 		{"truncated", []string{"check", "../testdata/designs/truncated.json"}, ExitFailure, nil, []string{"truncated.json: the file ends before the design does"}, true},
 		{"missing file", []string{"check", "no-such.json"}, ExitFailure, nil, []string{"no-such.json: no such file"}, true},
@@ -74,8 +74,9 @@ func TestInfoCommand(t *testing.T) {
 		"F-east at (1700, 1000) nm",
 		"P: P, 3 dimers (6 H sites), single-donor probability 0.63",
 		"Variant gap-12-source",
-		"sensor-island    device  ap    -        ±0.20 nm   1560",
-		"tunnel gap sensor-island – source-lead: 9.22 nm (12.0 dimer rows)",
+		"sensor-island    device         AP    -        ±0.20 nm   1560",
+		"pad-source       contact pad    FE",
+		"tunnel gap sensor-island – source-lead: 9.22 nm (12.0 dimer rows across the rows)",
 	} {
 		if !strings.Contains(out, w) {
 			t.Errorf("info lacks %q:\n%s", w, out)

@@ -1,18 +1,19 @@
 package app
 
 import (
-	"bytes"
 	"context"
-	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
 	"os"
+	"path/filepath"
 	"slices"
 	"strings"
 	"time"
 
 	"dimerpath/export"
+	"dimerpath/internal/atomicfile"
+	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
@@ -20,8 +21,8 @@ import (
 func init() {
 	Register(&Command{
 		Name:    "export",
-		Usage:   "export DESIGN.json|PLAN.json -o FILE.pdf|.svg|.json|.csv [--variant NAME] [--profile P.json] [--paper a4|letter] [--seed N] [--date YYYY-MM-DD]",
-		Summary: "write a plan as the operator's PDF, an SVG, the plan JSON or the action CSV",
+		Usage:   "export DESIGN.json|PLAN.json -o FILE.pdf|.svg|.json|.csv|.gds [--variant NAME] [--profile P.json] [--paper a4|letter] [--seed N] [--date YYYY-MM-DD] [--chip-offset X,Y] [--chip-rotation DEG] [--layers MAP.json]",
+		Summary: "write a plan as the operator's PDF, an SVG, the plan JSON or the action CSV, or a design as a GDSII layout",
 		Help: `Plans the variant (default: the first) of DESIGN.json with the instrument
 profile and writes it in the format the output file's extension names:
   .pdf   the operator's printed plan (cover, pattern and route, segment table
@@ -31,6 +32,13 @@ profile and writes it in the format the output file's extension names:
   .csv   one row per tip action, in order
 Given a plan file written with -o PLAN.json instead of a design, it exports
 that plan without planning again (the figures then show no lattice).
+
+  .gds   the variant's geometry as a GDSII library for the mask layout of
+         the contacts (no planning): regions as outlines of their sites on a
+         layer per role and write mode, dopant windows, fiducial marks with
+         their names, the field, the scan field and the terraces (README
+         "GDSII layouts"); --chip-offset and --chip-rotation place the STM
+         field on the chip, --layers MAP.json changes the layer table.
 
 The caution is printed on stderr before the file is written. The file is
 written to a temporary file and renamed into place: an export that fails or
@@ -42,6 +50,7 @@ Exit status 0 written, 2 anything else.`,
 			fs.StringVar(&fl.variant, "variant", "", "plan the variant `NAME` (default: the first)")
 			fs.StringVar(&fl.profile, "profile", "", "instrument profile: a file `P.json`, or a built-in preset rt or lt (default: rt)")
 			fs.Int64Var(&fl.seed, "seed", 1, "seed of the plan's random choices (same design, profile and seed: same plan)")
+			fl.gds.declare(fs)
 			return func(env Env, args []string) int {
 				fl.set = map[string]bool{}
 				fs.Visit(func(f *flag.Flag) { fl.set[f.Name] = true })
@@ -56,6 +65,7 @@ type exportFlags struct {
 	variant, profile string
 	seed             int64
 	set              map[string]bool // flags given on the command line
+	gds              gdsFlags
 }
 
 func runExport(env Env, args []string, fl exportFlags) int {
@@ -67,15 +77,21 @@ func runExport(env Env, args []string, fl exportFlags) int {
 		return fail("want one design or plan file, got %d (dimerpath export --help)", len(args))
 	}
 	if fl.report.out == "" {
-		return fail("-o FILE is required: the output file, .pdf, .svg, .json or .csv")
+		return fail("-o FILE is required: the output file, .pdf, .svg, .json, .csv or .gds")
+	}
+	if isGDSPath(fl.report.out) {
+		return runExportGDS(env, args[0], fl)
+	}
+	if err := fl.gds.onlyForGDS(fl.set); err != nil {
+		return fail("%v", err)
 	}
 	// Refuse a bad output name or flag before any planning.
-	opt, err := fl.report.options(export.FormatPDF, export.FormatSVG, export.FormatJSON, export.FormatCSV)
+	opt, err := fl.report.options([]export.Format{export.FormatPDF, export.FormatSVG, export.FormatJSON, export.FormatCSV}, ".gds")
 	if err != nil {
 		return fail("%v", err)
 	}
 	in := args[0]
-	data, err := os.ReadFile(in)
+	data, isPlan, err := export.ReadInput(in)
 	if err != nil {
 		return fail("%v", err)
 	}
@@ -83,21 +99,21 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	defer stop()
 
 	var p *planner.Plan
-	if isPlanFile(data) {
+	if isPlan {
 		for _, name := range []string{"variant", "profile", "seed"} {
 			if fl.set[name] {
 				return fail("%s is a plan file: --%s applies only when planning a design", in, name)
 			}
 		}
-		if p, err = export.ReadPlanJSON(bytes.NewReader(data)); err != nil {
-			if pe, ok := errors.AsType[*export.PlanError](err); ok {
-				pe.File = in
-			}
+		if p, err = export.ParsePlan(in, data); err != nil {
 			return fail("%v", err)
 		}
 	} else {
 		var pat *export.Pattern
 		if p, pat, err = planDesign(ctx, env, in, data, fl); err != nil {
+			if code := internalError(env, "export", err); code != 0 {
+				return code
+			}
 			return fail("%v", err)
 		}
 		opt.Pattern = pat
@@ -115,17 +131,8 @@ func runExport(env Env, args []string, fl exportFlags) int {
 		size = fmt.Sprintf(", %d bytes", st.Size())
 	}
 	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, expected %s%s)\n",
-		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), fmtDuration(p.TotalS), size)
+		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), units.Duration(p.TotalS), size)
 	return ExitOK
-}
-
-// isPlanFile reports whether data is a dimerpath plan file rather than a
-// design (by its "format" field).
-func isPlanFile(data []byte) bool {
-	var head struct {
-		Format string `json:"format"`
-	}
-	return json.Unmarshal(data, &head) == nil && head.Format == export.PlanFormat
 }
 
 // planDesign plans the chosen variant of the design in data, reporting
@@ -145,7 +152,7 @@ func planDesign(ctx context.Context, env Env, name string, data []byte, fl expor
 		return nil, nil, err
 	}
 	prog := newProgress(env.Stderr, "export")
-	p, err := planner.Build(ctx, d, layout.Variant.Name, prof, planner.Options{Seed: fl.seed, Progress: prog.report})
+	p, err := planner.Build(ctx, layout, prof, planner.Options{Seed: fl.seed, Progress: prog.report})
 	prog.done()
 	if err != nil {
 		return nil, nil, fmt.Errorf("%s, variant %s: %w", name, layout.Variant.Name, err)
@@ -167,16 +174,28 @@ func (r *reportFlags) declare(fs *flag.FlagSet, outHelp string) {
 
 // options checks the flags, the output's format among formats, and
 // returns the export options they give.
-func (r *reportFlags) options(formats ...export.Format) (export.Options, error) {
+// options checks the flags and returns the export options. formats are
+// the formats this command writes from its -o extension, and also names
+// the other extensions it takes (".gds"), for the message on a bad one.
+func (r *reportFlags) options(formats []export.Format, also ...string) (export.Options, error) {
 	opt := export.Options{Date: time.Now(), Generator: "dimerpath " + Version}
 	var err error
 	if r.out != "" {
-		f, err := export.FormatFromPath(r.out)
-		if err != nil {
-			return opt, err
+		if st, err := os.Stat(r.out); err == nil && st.IsDir() {
+			return opt, fmt.Errorf("-o %s is a directory: give the file to write (%s)", r.out, formatList(formats, also))
 		}
-		if !slices.Contains(formats, f) {
-			return opt, fmt.Errorf("-o %s: %w: this command writes %s", r.out, export.ErrFormat, formatList(formats))
+		// The message names what this command writes, not every format
+		// export knows (compare -o x.txt once suggested .json or .csv).
+		f, err := export.FormatFromPath(r.out)
+		if ext := filepath.Ext(r.out); err != nil && ext == "" {
+			return opt, fmt.Errorf("-o %s: %w: the file name has no extension; this command writes %s", r.out, export.ErrFormat, formatList(formats, also))
+		} else if err != nil || !slices.Contains(formats, f) {
+			return opt, fmt.Errorf("-o %s: %w %q: this command writes %s", r.out, export.ErrFormat, ext, formatList(formats, also))
+		}
+		// A read-only, missing or full directory shows now, not after
+		// the planning.
+		if err := atomicfile.Check(r.out); err != nil {
+			return opt, err
 		}
 	}
 	if opt.Paper, err = export.ParsePaper(r.paper); err != nil {
@@ -190,10 +209,16 @@ func (r *reportFlags) options(formats ...export.Format) (export.Options, error) 
 	return opt, nil
 }
 
-func formatList(fs []export.Format) string {
+// formatList names the formats and the other extensions as ".pdf,
+// .svg or .gds".
+func formatList(fs []export.Format, also []string) string {
 	var names []string
 	for _, f := range fs {
 		names = append(names, "."+string(f))
 	}
-	return strings.Join(names, " or ")
+	names = append(names, also...)
+	if len(names) < 2 {
+		return strings.Join(names, "")
+	}
+	return strings.Join(names[:len(names)-1], ", ") + " or " + names[len(names)-1]
 }

@@ -90,7 +90,7 @@ func TestExportRefuses(t *testing.T) {
 		{"bad date", []string{"export", goldenPlan, "-o", existing, "--date", "14/03/2026"}, "want YYYY-MM-DD"},
 		{"missing file", []string{"export", filepath.Join(dir, "none.json"), "-o", existing}, "no such file"},
 		{"planning flag on a plan", []string{"export", goldenPlan, "-o", existing, "--variant", "B"}, "--variant applies only when planning"},
-		{"broken plan", []string{"export", broken, "-o", existing}, "broken.json: "},
+		{"broken plan", []string{"export", broken, "-o", existing}, "broken.json:1:1: missing fields caution, design"},
 		{"output directory missing", []string{"export", goldenPlan, "-o", filepath.Join(dir, "nodir", "x.pdf")}, "nodir"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {

@@ -31,13 +31,18 @@ func init() {
 				return ExitFailure
 			}
 			o.Width, o.Height = w, h
+			if err := checkDisplay(); err != nil {
+				fmt.Fprintf(env.Stderr, "dimerpath: %v\n", err)
+				return ExitFailure
+			}
 			return gui.Run(o)
 		}
 	}
 	Register(&Command{
-		Name:    "gui",
-		Usage:   "gui [DESIGN.json] [--screenshot FILE.png] [--size WxH]",
-		Summary: "open the desktop window (the default when no command is given)",
+		Name:         "gui",
+		Usage:        "gui [DESIGN.json] [--screenshot FILE.png] [--size WxH]",
+		Summary:      "open the desktop window (the default when no command is given)",
+		NeedsDisplay: true,
 		Help: `Opens the design (the built-in demo without one) in the desktop window:
 paint on the lattice, check the design rules, plan, compare variants, export.
 With --screenshot it plans the design, renders the main window with the route
@@ -46,9 +51,10 @@ overlay, writes the PNG and exits (status 0), which needs an X display
 		Flags: run,
 	})
 	Register(&Command{
-		Name:    "open",
-		Usage:   "open DESIGN.json",
-		Summary: "open a design file in the desktop window",
+		Name:         "open",
+		Usage:        "open DESIGN.json",
+		Summary:      "open a design file in the desktop window",
+		NeedsDisplay: true,
 		Flags: func(fs *flag.FlagSet) func(Env, []string) int {
 			inner := run(fs)
 			return func(env Env, args []string) int {

@@ -137,7 +137,7 @@ func printInfo(w io.Writer, file string, d *design.Design, variant string) error
 			if !rl.Bounds.IsEmpty() {
 				box = rectString(rl.Bounds)
 			}
-			fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t±%.2f nm\t%d\t%d\t%s\n", r.Name, r.Role, r.EffectiveMode(), species, rl.ToleranceNM, rl.Sites.Count(), len(rl.Windows), box)
+			fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t±%.2f nm\t%d\t%d\t%s\n", r.Name, r.Role.Name(), r.EffectiveMode().Abbrev(), species, rl.ToleranceNM, rl.Sites.Count(), len(rl.Windows), box)
 			total += rl.Sites.Count()
 			windows += len(rl.Windows)
 		}
@@ -148,8 +148,7 @@ func printInfo(w io.Writer, file string, d *design.Design, variant string) error
 			if a == nil || b == nil {
 				continue
 			}
-			gap := l.GapNM(a, b)
-			fmt.Fprintf(w, "  tunnel gap %s – %s: %.2f nm (%.1f dimer rows)\n", g.A, g.B, gap, gap/lattice.RowSpacing)
+			fmt.Fprintf(w, "  tunnel gap %s – %s: %s\n", g.A, g.B, l.Surface.GapText(l.Gap(a, b)))
 		}
 	}
 	return nil

@@ -2,12 +2,10 @@ package app
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"os/signal"
 	"sort"
@@ -16,6 +14,8 @@ import (
 	"text/tabwriter"
 	"time"
 
+	"dimerpath/export"
+	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
@@ -53,15 +53,17 @@ cleanly.`,
 					return code
 				}
 				defer run.stop()
-				p, err := planner.Build(run.ctx, run.design, *variant, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
+				lay, err := run.design.Lay(*variant)
+				if err != nil {
+					return planError(env, "plan", args[0], err)
+				}
+				p, err := planner.Build(run.ctx, lay, run.profile, planner.Options{Seed: *seed, Progress: run.progress.report})
 				if err != nil {
 					return planError(env, "plan", args[0], err)
 				}
 				run.progress.done()
 				if *asJSON {
-					enc := json.NewEncoder(env.Stdout)
-					enc.SetIndent("", "  ")
-					if err := enc.Encode(summarise(p)); err != nil {
+					if err := export.WritePlanSummary(env.Stdout, p); err != nil {
 						fmt.Fprintln(env.Stderr, "dimerpath plan:", err)
 						return ExitFailure
 					}
@@ -112,9 +114,12 @@ func interruptible() (context.Context, context.CancelFunc) {
 }
 
 // planError reports a failed plan or comparison: an interruption, a
-// refusal (a *planner.LimitError or *planner.ProfileError names the value
+// refusal (a *planner.LimitError or the profile's *jsonfile.Error names the value
 // and the limit or field), or a design that cannot be laid out.
 func planError(env Env, cmd, file string, err error) int {
+	if code := internalError(env, cmd, err); code != 0 {
+		return code
+	}
 	if errors.Is(err, context.Canceled) {
 		fmt.Fprintf(env.Stderr, "dimerpath %s: interrupted; nothing was written\n", cmd)
 	} else {
@@ -152,102 +157,6 @@ func (p *progress) done() {
 	if p.shown {
 		fmt.Fprintf(p.w, "dimerpath %s: done in %s\n", p.cmd, time.Since(p.start).Round(time.Millisecond))
 	}
-}
-
-// planSummary is what "plan --json" prints.
-type planSummary struct {
-	Design    string                 `json:"design"`
-	Variant   string                 `json:"variant"`
-	Profile   string                 `json:"profile"`
-	Seed      int64                  `json:"seed"`
-	Caution   string                 `json:"caution"`
-	TotalS    float64                `json:"total_s"`
-	Breakdown planner.Breakdown      `json:"breakdown"`
-	P10S      float64                `json:"p10_s"`
-	P50S      float64                `json:"p50_s"`
-	P90S      float64                `json:"p90_s"`
-	FloorS    float64                `json:"floor_s"`
-	ByHandS   float64                `json:"by_hand_s"`
-	Strokes   int                    `json:"strokes"`
-	Segments  []segmentSummary       `json:"segments"`
-	Windows   []windowSummary        `json:"windows"`
-	YieldAll  float64                `json:"yield_all"`
-	Yield     yieldSummary           `json:"yield"`
-	Modes     map[string]modeSummary `json:"modes"`
-	Coverage  planner.Coverage       `json:"coverage"`
-	Warnings  []string               `json:"warnings"`
-}
-
-type segmentSummary struct {
-	Index    int     `json:"index"`
-	Fiducial string  `json:"fiducial"`
-	StartS   float64 `json:"start_s"`
-	EndS     float64 `json:"end_s"`
-	BudgetS  float64 `json:"budget_s"`
-	Strokes  []int   `json:"strokes"`
-}
-
-type windowSummary struct {
-	Region      string     `json:"region"`
-	Species     string     `json:"species"`
-	Template    string     `json:"template"`
-	AtNM        [2]float64 `json:"at_nm"`
-	Probability float64    `json:"probability"`
-}
-
-type yieldSummary struct {
-	Windows           int     `json:"windows"`
-	All               float64 `json:"all"`
-	Log10All          float64 `json:"log10_all"`
-	MeanGood          float64 `json:"mean_good"`
-	SDGood            float64 `json:"sd_good"`
-	DevicesPerPerfect float64 `json:"devices_per_perfect"`
-}
-
-type modeSummary struct {
-	Requested string `json:"requested"`
-	Mode      string `json:"mode"`
-	Reason    string `json:"reason"`
-}
-
-func summarise(p *planner.Plan) planSummary {
-	s := planSummary{
-		Design: p.Design, Variant: p.Variant, Profile: p.Profile, Seed: p.Seed, Caution: planner.Caution,
-		TotalS: p.TotalS, Breakdown: p.Breakdown, P10S: p.P10S, P50S: p.P50S, P90S: p.P90S,
-		FloorS: p.FloorS, ByHandS: p.ByHandS, Strokes: len(p.Strokes),
-		Segments: []segmentSummary{}, Windows: []windowSummary{},
-		YieldAll: p.Yield.All,
-		Yield: yieldSummary{Windows: p.Yield.Windows, All: p.Yield.All, Log10All: p.Yield.Log10All, MeanGood: p.Yield.MeanGood,
-			SDGood: p.Yield.SDGood, DevicesPerPerfect: p.Yield.DevicesPerPerfect},
-		Modes: map[string]modeSummary{}, Coverage: p.Coverage, Warnings: p.Warnings,
-	}
-	if s.Warnings == nil {
-		s.Warnings = []string{}
-	}
-	for _, g := range p.Segments {
-		s.Segments = append(s.Segments, segmentSummary{Index: g.Index, Fiducial: g.Fiducial, StartS: g.StartS, EndS: g.EndS, BudgetS: g.BudgetS, Strokes: g.Strokes})
-	}
-	for _, w := range p.Windows {
-		s.Windows = append(s.Windows, windowSummary{Region: w.Region, Species: w.Species, Template: w.Template, AtNM: [2]float64{w.At.X, w.At.Y}, Probability: w.Probability})
-	}
-	for _, m := range p.Modes {
-		s.Modes[m.Region] = modeSummary{Requested: m.Requested, Mode: m.Mode, Reason: m.Reason}
-	}
-	return s
-}
-
-// fmtDuration writes seconds the way an operator reads a schedule.
-func fmtDuration(s float64) string {
-	switch {
-	case math.IsNaN(s) || math.IsInf(s, 0):
-		return "-"
-	case s < 60:
-		return fmt.Sprintf("%.1f s", s)
-	case s < 3600:
-		return fmt.Sprintf("%d min %02d s", int(s)/60, int(math.Round(s))%60)
-	}
-	m := int(math.Round(s / 60))
-	return fmt.Sprintf("%d h %02d min", m/60, m%60)
 }
 
 // printSegments lists each segment: its fiducial, how long its
@@ -303,9 +212,9 @@ func printSegments(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 		}
 		tight := "no drift: no limit"
 		if driftNMPerMin > 0 && s.tol > 0 {
-			tight = fmt.Sprintf("%s / %s (±%g nm, %.0f %%)", fmtDuration(s.used), fmtDuration(planner.DriftBudget(s.tol, driftNMPerMin)), s.tol, 100*s.share)
+			tight = fmt.Sprintf("%s / %s (±%g nm, %.0f %%)", units.Duration(s.used), units.Duration(planner.DriftBudget(s.tol, driftNMPerMin)), s.tol, 100*s.share)
 		}
-		fmt.Fprintf(tw, "  %d\t%s\t%s\t%s\t%s\t%s\t%d\n", g.Index, g.Fiducial, fmtDuration(g.StartS), fmtDuration(regEnd-g.StartS), fmtDuration(g.EndS-regEnd), tight, len(g.Strokes))
+		fmt.Fprintf(tw, "  %d\t%s\t%s\t%s\t%s\t%s\t%d\n", g.Index, g.Fiducial, units.Duration(g.StartS), units.Duration(regEnd-g.StartS), units.Duration(g.EndS-regEnd), tight, len(g.Strokes))
 	}
 	tw.Flush()
 }
@@ -323,7 +232,7 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, "  region\tsites\tdrawn\tplanned\twhy")
 	for _, m := range p.Modes {
-		fmt.Fprintf(tw, "  %s\t%d\t%s\t%s\t%s\n", m.Region, m.Sites, m.Requested, m.Mode, m.Reason)
+		fmt.Fprintf(tw, "  %s\t%d\t%s\t%s\t%s\n", m.Region, m.Sites, m.Requested.Abbrev(), m.Mode.Abbrev(), m.Reason)
 	}
 	tw.Flush()
 
@@ -332,12 +241,12 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	for _, c := range p.Conditions {
 		switch c.Kind {
 		case planner.StrokeDwell:
-			fmt.Fprintf(tw, "  AP dwell\t%+.2f V\t%.3g nA\texpected %.3g s per site, stop at %.3g s\n", c.BiasV, c.CurrentA*1e9, c.DwellS, c.DwellCapS)
+			fmt.Fprintf(tw, "  %s dwell\t%+.2f V\t%.3g nA\texpected %s per site, stop at %s\n", c.Mode.Abbrev(), c.BiasV, c.CurrentA*1e9, units.Duration(c.DwellS), units.Duration(c.DwellCapS))
 		default:
-			name := "AP line"
+			name := c.Mode.Abbrev() + " " + string(c.Kind)
 			extra := ""
-			if c.Mode == planner.FE {
-				name, extra = "FE raster", fmt.Sprintf(", pitch %.2f nm", c.PitchNM)
+			if c.Mode == design.ModeFE {
+				extra = fmt.Sprintf(", pitch %.2f nm", c.PitchNM)
 			}
 			fmt.Fprintf(tw, "  %s\t%+.2f V\t%.3g nA\t%.3g mC/cm, %.4g nm/s, line %.2f nm, %d pass(es)%s\n",
 				name, c.BiasV, c.CurrentA*1e9, c.LineDoseCPerCm*1e3, c.SpeedNMPerS, c.LineWidthNM, c.Passes, extra)
@@ -345,35 +254,32 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	}
 	tw.Flush()
 
-	fmt.Fprintf(w, "\nTime: %s expected (P10 %s, P50 %s, P90 %s)\n", fmtDuration(p.TotalS), fmtDuration(p.P10S), fmtDuration(p.P50S), fmtDuration(p.P90S))
+	fmt.Fprintf(w, "\nTime: %s expected (P10 %s, P50 %s, P90 %s)\n", units.Duration(p.TotalS), units.Duration(p.P10S), units.Duration(p.P50S), units.Duration(p.P90S))
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	b := p.Breakdown
-	for _, part := range []struct {
-		name string
-		s    float64
-	}{{"AP writing", b.APWriteS}, {"FE writing", b.FEWriteS}, {"dwells", b.DwellS}, {"travel and settling", b.TravelS},
-		{"mode switches", b.ModeSwitchS}, {"registrations", b.RegistrationS}, {"verification", b.VerificationS}} {
+	for _, k := range planner.TimeKinds {
+		s := b.Seconds(k)
 		share := 0.0
 		if p.TotalS > 0 {
-			share = 100 * part.s / p.TotalS
+			share = 100 * s / p.TotalS
 		}
 		note := ""
-		if part.name == "registrations" && len(p.Segments) > 0 && part.s > 0 {
+		if k == planner.TimeRegistration && len(p.Segments) > 0 && s > 0 {
 			n := len(p.Segments)
 			what := "registrations"
 			if n == 1 {
 				what = "registration"
 			}
-			note = fmt.Sprintf("  %d %s of %s", n, what, fmtDuration(part.s/float64(n)))
+			note = fmt.Sprintf("  %d %s of %s", n, what, units.Duration(s/float64(n)))
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%.1f %%\t%s\n", part.name, fmtDuration(part.s), share, note)
+		fmt.Fprintf(tw, "  %s\t%s\t%.1f %%\t%s\n", k, units.Duration(s), share, note)
 	}
 	tw.Flush()
 	if p.FloorS > 0 {
-		fmt.Fprintf(w, "  writing alone (physical floor) %s: plan = %.2f x floor\n", fmtDuration(p.FloorS), p.TotalS/p.FloorS)
+		fmt.Fprintf(w, "  writing alone (physical floor) %s: plan = %.2f x floor\n", units.Duration(p.FloorS), p.TotalS/p.FloorS)
 	}
 	if p.ByHandS > 0 {
-		fmt.Fprintf(w, "  by hand (file order, raster rows, fixed-interval registration) %s: plan = %.2f x by hand\n", fmtDuration(p.ByHandS), p.TotalS/p.ByHandS)
+		fmt.Fprintf(w, "  by hand (file order, raster rows, fixed-interval registration) %s: plan = %.2f x by hand\n", units.Duration(p.ByHandS), p.TotalS/p.ByHandS)
 	}
 
 	printSegments(w, p, driftNMPerMin)

@@ -9,6 +9,7 @@ import (
 	"strings"
 	"testing"
 
+	"dimerpath/internal/units"
 	"dimerpath/planner"
 )
 
@@ -73,7 +74,7 @@ func TestPlanText(t *testing.T) {
 		t.Fatalf("exit %d", code)
 	}
 	// Each registration costs the profile's registration_s.
-	reg := "registrations of " + fmtDuration(planner.DefaultProfile().Drift.RegistrationS)
+	reg := "registrations of " + units.Duration(planner.DefaultProfile().Drift.RegistrationS)
 	for _, want := range []string{"gap-12-source", planner.Caution, "Write modes", "Time:", "P10", "Segments:", "Dopant windows: 2", "Coverage: OK", reg, "tightest stroke"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("summary lacks %q", want)

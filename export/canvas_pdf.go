@@ -14,6 +14,8 @@ type pdfCanvas struct {
 	fillGrey  int
 	dashed    bool
 	round     bool
+	font      font // the font last set, when fontSet
+	fontSet   bool
 }
 
 func newPDFCanvas(f *fpdf.Fpdf) *pdfCanvas {
@@ -24,6 +26,7 @@ func newPDFCanvas(f *fpdf.Fpdf) *pdfCanvas {
 // on each new page).
 func (c *pdfCanvas) reset() {
 	c.lineWidth, c.drawGrey, c.fillGrey, c.dashed, c.round = -1, -1, -1, true, true
+	c.fontSet = false
 }
 
 func (c *pdfCanvas) mm() float64 { return 1 }
@@ -162,6 +165,12 @@ func (c *pdfCanvas) circle(ctr vec, r float64, p pen, f paint, tg tag) {
 }
 
 func (c *pdfCanvas) setFont(f font) {
+	// fpdf's SetFont does real work on every call (a long table of text
+	// called it for every cell and every measure).
+	if c.fontSet && c.font == f {
+		return
+	}
+	c.font, c.fontSet = f, true
 	style := ""
 	if f.bold {
 		style = "B"

@@ -61,7 +61,7 @@ func (c *svgCanvas) err() error {
 	return c.werr
 }
 
-// num appends v rounded to 3 decimals without trailing zeros.
+// appendNum appends v rounded to 3 decimals without trailing zeros.
 func appendNum(b []byte, v float64) []byte {
 	if math.Abs(v) < 5e-4 {
 		return append(b, '0')
@@ -162,7 +162,7 @@ func (c *svgCanvas) fillAttrs(f paint) {
 	switch {
 	case f.hatch != hatchNone:
 		// A hatched shape is drawn as fill then pattern; the pattern
-		// carries its own background (see hatchDef).
+		// carries its own background (see hatchDefs).
 		id := f.patternID()
 		if !c.hatchID[id] {
 			if c.hatchID == nil {

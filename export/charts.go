@@ -18,27 +18,24 @@ type timePart struct {
 	fill paint
 }
 
-var partFills = [7]paint{
-	solid(0),   // AP writing
-	solid(0.5), // FE writing
-	{fill: true, grey: 0.8, hatch: hatchDiag, hatchGrey: 0, hatchStep: 1.1},          // dwell
-	{fill: true, grey: 1, hatch: hatchBackDiag, hatchGrey: 0.15, hatchStep: 1.1},     // travel
-	{fill: true, grey: 1, hatch: hatchCross, hatchGrey: 0.2, hatchStep: 1.3},         // mode switch
-	{fill: true, grey: 0.88, hatch: hatchHorizontal, hatchGrey: 0.1, hatchStep: 0.9}, // registration
-	{fill: true, grey: 1, hatch: hatchVertical, hatchGrey: 0.1, hatchStep: 0.9},      // verification
+var partFills = map[planner.TimeKind]paint{
+	planner.TimeAPWrite:      solid(0),
+	planner.TimeFEWrite:      solid(0.5),
+	planner.TimeDwell:        {fill: true, grey: 0.8, hatch: hatchDiag, hatchGrey: 0, hatchStep: 1.1},
+	planner.TimeTravel:       {fill: true, grey: 1, hatch: hatchBackDiag, hatchGrey: 0.15, hatchStep: 1.1},
+	planner.TimeModeSwitch:   {fill: true, grey: 1, hatch: hatchCross, hatchGrey: 0.2, hatchStep: 1.3},
+	planner.TimeRegistration: {fill: true, grey: 0.88, hatch: hatchHorizontal, hatchGrey: 0.1, hatchStep: 0.9},
+	planner.TimeVerification: {fill: true, grey: 1, hatch: hatchVertical, hatchGrey: 0.1, hatchStep: 0.9},
 }
 
-// timeParts returns the breakdown's seven categories in a fixed order.
+// timeParts returns the breakdown's categories in the order of
+// planner.TimeKinds, named as planner names them.
 func timeParts(b planner.Breakdown) []timePart {
-	return []timePart{
-		{"AP writing", b.APWriteS, partFills[0]},
-		{"FE writing", b.FEWriteS, partFills[1]},
-		{"dwell points", b.DwellS, partFills[2]},
-		{"tip travel", b.TravelS, partFills[3]},
-		{"mode switches", b.ModeSwitchS, partFills[4]},
-		{"registrations", b.RegistrationS, partFills[5]},
-		{"verification images", b.VerificationS, partFills[6]},
+	parts := make([]timePart, len(planner.TimeKinds))
+	for i, k := range planner.TimeKinds {
+		parts[i] = timePart{k.String(), b.Seconds(k), partFills[k]}
 	}
+	return parts
 }
 
 var (

@@ -14,7 +14,7 @@ import (
 // current A, speed nm/s; an empty cell means "not set by this action:
 // keep the current conditions".
 var ActionColumns = []string{
-	"index", "kind", "segment", "stroke", "region", "mode", "stroke_kind", "fiducial",
+	"index", "kind", "segment", "stroke", "stroke_number", "region", "mode", "stroke_kind", "fiducial",
 	"from_x_nm", "from_y_nm", "to_x_nm", "to_y_nm", "start_s", "duration_s",
 	"bias_v", "current_a", "speed_nm_per_s", "passes", "path_nm", "note",
 }
@@ -24,7 +24,8 @@ var ActionColumns = []string{
 // instrument from their own scripts. Numbers are written in full
 // precision (strconv 'g', shortest exact form). path_nm holds, for write
 // and dwell actions, the stroke's whole tip path as "x y" pairs separated
-// by ";". It refuses a plan checkPlan refuses. O(actions + points).
+// by ";"; stroke_number is the stroke's number on paper (StrokeNumbers)
+// beside its id. It refuses a plan checkPlan refuses. O(actions + points).
 func WriteActionsCSV(w io.Writer, p *planner.Plan) error {
 	if err := checkPlan(p); err != nil {
 		return err
@@ -34,6 +35,7 @@ func WriteActionsCSV(w io.Writer, p *planner.Plan) error {
 		return err
 	}
 	row := make([]string, len(ActionColumns))
+	numbers := StrokeNumbers(p)
 	var path strings.Builder
 	for _, a := range p.Actions {
 		for i := range row {
@@ -43,20 +45,21 @@ func WriteActionsCSV(w io.Writer, p *planner.Plan) error {
 		row[1] = string(a.Kind)
 		row[2] = strconv.Itoa(a.Segment)
 		row[3] = strconv.Itoa(a.Stroke)
-		row[5] = string(a.Mode)
+		row[6] = string(a.Mode)
 		if a.Kind == planner.ActRegister && a.Segment >= 0 {
-			row[7] = p.Segments[a.Segment].Fiducial
+			row[8] = p.Segments[a.Segment].Fiducial
 		}
-		row[8], row[9] = num(a.From.X), num(a.From.Y)
-		row[10], row[11] = num(a.To.X), num(a.To.Y)
-		row[12], row[13] = num(a.StartS), num(a.DurationS)
-		row[14], row[15], row[16] = optNum(a.BiasV), optNum(a.CurrentA), optNum(a.SpeedNMPS)
+		row[9], row[10] = num(a.From.X), num(a.From.Y)
+		row[11], row[12] = num(a.To.X), num(a.To.Y)
+		row[13], row[14] = num(a.StartS), num(a.DurationS)
+		row[15], row[16], row[17] = optNum(a.BiasV), optNum(a.CurrentA), optNum(a.SpeedNMPS)
 		if a.Stroke >= 0 {
 			s := &p.Strokes[a.Stroke]
-			row[4] = s.Region
-			row[6] = string(s.Kind)
+			row[4] = strconv.Itoa(numbers[a.Stroke])
+			row[5] = s.Region
+			row[7] = string(s.Kind)
 			if a.Kind == planner.ActWrite || a.Kind == planner.ActDwell {
-				row[17] = strconv.Itoa(s.Passes)
+				row[18] = strconv.Itoa(s.Passes)
 				path.Reset()
 				for k, q := range s.Path {
 					if k > 0 {
@@ -66,10 +69,10 @@ func WriteActionsCSV(w io.Writer, p *planner.Plan) error {
 					path.WriteByte(' ')
 					path.WriteString(num(q.Y))
 				}
-				row[18] = path.String()
+				row[19] = path.String()
 			}
 		}
-		row[19] = a.Note
+		row[20] = a.Note
 		if err := cw.Write(row); err != nil {
 			return err
 		}

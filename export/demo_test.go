@@ -5,9 +5,11 @@ import (
 	"context"
 	"encoding/csv"
 	"maps"
+	"os"
 	"os/exec"
 	"path/filepath"
 	"reflect"
+	"regexp"
 	"slices"
 	"strconv"
 	"strings"
@@ -28,7 +30,11 @@ var demoPlans = sync.OnceValues(func() (map[string]*planner.Plan, error) {
 	}
 	out := map[string]*planner.Plan{}
 	for _, v := range d.VariantNames() {
-		p, err := planner.Build(context.Background(), d, v, planner.DefaultProfile(), planner.Options{Seed: 1})
+		lay, err := d.Lay(v)
+		if err != nil {
+			return nil, err
+		}
+		p, err := planner.Build(context.Background(), lay, planner.DefaultProfile(), planner.Options{Seed: 1})
 		if err != nil {
 			return nil, err
 		}
@@ -129,4 +135,95 @@ func TestDemoComparison(t *testing.T) {
 		t.Fatal(err)
 	}
 	renderSVGNotBlank(t, buf.Bytes())
+}
+
+// Issue 13, one operator's test: with only the printed plan, every action
+// can be done and ticked in order. The PDF's text (pdftotext) lists the
+// strokes of each segment, by their number on paper and their id in the
+// files, in the same order as the action CSV writes them, every one of
+// them (no "…").
+func TestDemoPDFListsStrokesInCSVOrder(t *testing.T) {
+	needTool(t, "pdftotext")
+	plans, err := demoPlans()
+	if err != nil {
+		t.Fatal(err)
+	}
+	lay, err := demoLayout()
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := plans[lay.Variant.Name]
+	dir := t.TempDir()
+	pdf, csvPath := filepath.Join(dir, "demo.pdf"), filepath.Join(dir, "demo.csv")
+	for _, path := range []string{pdf, csvPath} {
+		if err := WriteFile(context.Background(), path, p, Options{Date: testDate, Pattern: PatternOf(lay)}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	// From the CSV: per segment (from 1), "number/id" of each written stroke.
+	data, err := os.ReadFile(csvPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(bytes.NewReader(data)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	col := map[string]int{}
+	for i, name := range rows[0] {
+		col[name] = i
+	}
+	want := map[int][]string{}
+	for _, r := range rows[1:] {
+		if k := r[col["kind"]]; k != "write" && k != "dwell" {
+			continue
+		}
+		seg, _ := strconv.Atoi(r[col["segment"]])
+		want[seg+1] = append(want[seg+1], r[col["stroke_number"]]+"/"+r[col["stroke"]])
+	}
+	// From the PDF: the rows of the stroke list under each segment's
+	// heading ("Segment 2: register on …", or "Segment 2, continued"
+	// after a page break).
+	out, err := exec.Command("pdftotext", "-layout", pdf, "-").Output()
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := string(out)
+	if strings.Contains(text, "…") {
+		t.Error("the PDF cuts a list short with an ellipsis")
+	}
+	start := strings.Index(text, "Strokes in writing order")
+	if start < 0 {
+		t.Fatal("the PDF has no stroke list")
+	}
+	heading := regexp.MustCompile(`^\s*Segment (\d+)(:|, continued)`)
+	strokeRow := regexp.MustCompile(`^\s*(\d+)\s+(\d+)\s+\S+\s+(AP|FE) `)
+	got := map[int][]string{}
+	seg := 0
+	for _, l := range strings.Split(text[start:], "\n") {
+		if strings.HasPrefix(strings.TrimSpace(l), "Write time") {
+			break
+		}
+		if m := heading.FindStringSubmatch(l); m != nil {
+			seg, _ = strconv.Atoi(m[1])
+			continue
+		}
+		if m := strokeRow.FindStringSubmatch(l); m != nil && seg > 0 {
+			got[seg] = append(got[seg], m[1]+"/"+m[2])
+		}
+	}
+	if len(want) != len(p.Segments) {
+		t.Fatalf("the CSV writes strokes in %d segments, the plan has %d", len(want), len(p.Segments))
+	}
+	for s := 1; s <= len(p.Segments); s++ {
+		if !slices.Equal(got[s], want[s]) {
+			t.Errorf("segment %d: the PDF lists %d strokes %v,\nthe CSV writes %d: %v", s, len(got[s]), got[s], len(want[s]), want[s])
+		}
+	}
+	// And the segment table names each segment's numbers in full.
+	for i, s := range p.Segments {
+		if r := "strokes " + numberRanges(segmentNumbers(&s, StrokeNumbers(p))); !strings.Contains(text, r) {
+			t.Errorf("segment %d: the PDF does not say %q", i+1, r)
+		}
+	}
 }

@@ -8,7 +8,7 @@
 //
 // Every writer takes an io.Writer and a read-only *planner.Plan, checks
 // the plan first (a NaN or a dangling reference is refused with a
-// *PlanError naming the field, never written), and is deterministic: the
+// *jsonfile.Error naming the field, never written), and is deterministic: the
 // same plan and Options give the same bytes. An optional Pattern (the
 // lattice and each region's sites, see PatternOf) lets the figures draw
 // the regions and, in the zoomed atomic-precision figures, the dimer rows.

@@ -31,7 +31,7 @@ func ExampleWritePlanJSON() {
 	// Output:
 	// {
 	//   "format": "dimerpath-plan",
-	//   "version": 1,
+	//   "version": 2,
 	//   "generator": "dimerpath 0.1.0",
 	//   "caution": "CAUTION: a dimerpath plan is advisory. Check every bias, current, speed, dose and position against your instrument's limits and your lab's procedures before writing.",
 }
@@ -52,7 +52,7 @@ func ExampleReadPlanJSON() {
 	fmt.Println(err)
 	// Output:
 	// Kestrel Lab SET-K1 / baseline: 25 strokes in 5 segments, 67 actions, 1610 s
-	// version = 9: unsupported plan file version (this dimerpath reads versions 1 to 1)
+	// line 1, column 41: version = 9: unsupported plan file version (this dimerpath reads versions 1 to 2)
 }
 
 func ExampleWriteActionsCSV() {
@@ -65,16 +65,28 @@ func ExampleWriteActionsCSV() {
 		log.Fatal(err)
 	}
 	fmt.Println(len(rows)-1, "actions")
-	for _, r := range rows[:4] {
-		// index, kind, segment, stroke, fiducial, bias_v, current_a
-		fmt.Println(strings.Join([]string{r[0], r[1], r[2], r[3], r[7], r[14], r[15]}, ","))
+	// Scripts find columns by their header name.
+	col := map[string]int{}
+	for i, name := range rows[0] {
+		col[name] = i
+	}
+	show := []string{"index", "kind", "segment", "stroke", "stroke_number", "fiducial", "bias_v", "current_a"}
+	fmt.Println(strings.Join(show, ","))
+	for _, r := range rows[1:6] {
+		var cells []string
+		for _, name := range show {
+			cells = append(cells, r[col[name]])
+		}
+		fmt.Println(strings.Join(cells, ","))
 	}
 	// Output:
 	// 67 actions
-	// index,kind,segment,stroke,fiducial,bias_v,current_a
-	// 0,move,0,-1,,,
-	// 1,register,0,-1,F-SW,,
-	// 2,switch,0,-1,,4,2e-09
+	// index,kind,segment,stroke,stroke_number,fiducial,bias_v,current_a
+	// 0,move,0,-1,,,,
+	// 1,register,0,-1,,F-SW,,
+	// 2,switch,0,-1,,,4,2e-09
+	// 3,move,0,-1,,,,
+	// 4,dwell,0,0,1,,3,1e-09
 }
 
 func ExampleWriteSVG() {

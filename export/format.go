@@ -1,43 +1,20 @@
 package export
 
 import (
-	"fmt"
 	"math"
 	"strconv"
 	"strings"
+
+	"dimerpath/internal/units"
 )
 
-// clock formats s seconds as h:mm:ss, rounded to the second.
-func clock(s float64) string {
-	if math.IsNaN(s) || math.IsInf(s, 0) {
-		return "–"
-	}
-	t := int64(math.Round(s))
-	sign := ""
-	if t < 0 {
-		sign, t = "−", -t
-	}
-	return fmt.Sprintf("%s%d:%02d:%02d", sign, t/3600, t/60%60, t%60)
-}
-
-// duration formats s seconds for reading: "0.50 s", "45.2 s",
-// "12 min 05 s", "3 h 07 min".
-func duration(s float64) string {
-	switch {
-	case math.IsNaN(s) || math.IsInf(s, 0):
-		return "–"
-	case s < 10:
-		return strconv.FormatFloat(s, 'f', 2, 64) + " s"
-	case s < 60:
-		return strconv.FormatFloat(s, 'f', 1, 64) + " s"
-	case s < 3600:
-		t := int64(math.Round(s))
-		return fmt.Sprintf("%d min %02d s", t/60, t%60)
-	default:
-		t := int64(math.Round(s / 60))
-		return fmt.Sprintf("%d h %02d min", t/60, t%60)
-	}
-}
+// clock (h:mm:ss on the plan's clock) and duration ("12 min 05 s") are
+// the formatters the command line and the GUI use too (internal/units),
+// under the short names the page builders use.
+var (
+	clock    = units.Clock
+	duration = units.Duration
+)
 
 // sig formats v with n significant digits, without trailing zeros or
 // an exponent for ordinary magnitudes.
@@ -74,7 +51,7 @@ func nanoAmps(a float64) string { return sig(a*1e9, 3) }
 // milliCoulombPerCm formats a line dose given in C/cm as mC/cm.
 func milliCoulombPerCm(d float64) string { return sig(d*1e3, 3) }
 
-// nm formats a length in nm with one decimal.
+// nm1 formats a length in nm with one decimal.
 func nm1(v float64) string { return strings.Replace(strconv.FormatFloat(v, 'f', 1, 64), "-", "−", 1) }
 
 // percent formats a fraction 0..1 as a percentage.

@@ -4,10 +4,12 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+	"strings"
 
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -44,6 +46,7 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 
 	drawRegions(c, sc, v, frame)
 	drawTerraceEdges(c, sc, v)
+	drawReferences(c, sc, v)
 
 	pts := make([]vec, 0, 16)
 	path := func(s *planner.Stroke) []vec {
@@ -58,14 +61,14 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 	c.group(tag{id: "strokes-fe", class: "fe"}, fe, noPaint)
 	for i := range p.Strokes {
 		s := &p.Strokes[i]
-		if s.Mode != planner.FE || !shown(s) {
+		if s.Mode != design.ModeFE || !shown(s) {
 			continue
 		}
 		pn := fe
 		if s.Kind == planner.StrokeOutline {
 			pn = ol
 		}
-		c.polyline(path(s), false, pn, noPaint, strokeTag(s))
+		c.polyline(path(s), false, pn, noPaint, sc.strokeTag(s))
 	}
 	c.endGroup()
 	c.endGroup()
@@ -87,16 +90,16 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 	dot := math.Max(0.55*c.mm(), sc.apWidth*v.s/2)
 	for i := range p.Strokes {
 		s := &p.Strokes[i]
-		if s.Mode == planner.FE || !shown(s) {
+		if s.Mode == design.ModeFE || !shown(s) {
 			continue
 		}
 		switch s.Kind {
 		case planner.StrokeDwell:
-			c.circle(v.pt(s.Path[0]), dot, noPen, solid(0), strokeTag(s))
+			c.circle(v.pt(s.Path[0]), dot, noPen, solid(0), sc.strokeTag(s))
 		case planner.StrokeOutline:
-			c.polyline(path(s), false, ol, noPaint, strokeTag(s))
+			c.polyline(path(s), false, ol, noPaint, sc.strokeTag(s))
 		default:
-			c.polyline(path(s), false, ap, noPaint, strokeTag(s))
+			c.polyline(path(s), false, ap, noPaint, sc.strokeTag(s))
 		}
 	}
 	c.endGroup()
@@ -128,8 +131,11 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 	return res
 }
 
-func strokeTag(s *planner.Stroke) tag {
-	return tag{id: "stroke-" + strconv.Itoa(s.ID+1), class: fmt.Sprintf("stroke %s %s seg-%d", s.Mode, s.Kind, s.Segment+1)}
+// strokeTag names a stroke's element by its number on paper
+// ("stroke-12") and classes it by mode, kind, segment on paper and id in
+// the plan file ("stroke ap line seg-2 id-141").
+func (sc *scene) strokeTag(s *planner.Stroke) tag {
+	return tag{id: "stroke-" + strconv.Itoa(sc.number[s.ID]), class: fmt.Sprintf("stroke %s %s seg-%d id-%d", s.Mode, s.Kind, s.Segment+1, s.ID)}
 }
 
 // drawRegions fills each region's site rectangles, clipped to clip.
@@ -140,7 +146,7 @@ func drawRegions(c canvas, sc *scene, v view, clip box) {
 	c.group(tag{id: "regions", class: "regions"}, noPen, noPaint)
 	for _, r := range sc.regions {
 		f := regionPaint(r.mode)
-		c.group(tag{id: "region-" + xmlID(r.name), class: "region " + r.mode}, noPen, f)
+		c.group(tag{id: "region-" + xmlID(r.name), class: "region " + r.mode.String()}, noPen, f)
 		for _, q := range r.rects {
 			b := v.box(q)
 			if !b.overlaps(clip) {
@@ -189,6 +195,30 @@ func drawTerraceEdges(c canvas, sc *scene, v view) {
 			pts = append(pts, v.pt(q))
 		}
 		c.polyline(pts, true, penTerrace, noPaint, tag{class: "terrace"})
+	}
+	c.endGroup()
+}
+
+// drawReferences draws the reference overlays' polygons as dash-dot
+// outlines: layout geometry for orientation, not written.
+func drawReferences(c canvas, sc *scene, v view) {
+	if len(sc.refs) == 0 {
+		return
+	}
+	c.group(tag{id: "references", class: "references"}, penReference, noPaint)
+	for _, r := range sc.refs {
+		c.group(tag{id: "reference-" + xmlID(r.Name), class: "reference"}, penReference, noPaint)
+		for _, poly := range r.Polygons {
+			if len(poly) < 2 {
+				continue
+			}
+			pts := make([]vec, len(poly))
+			for i, q := range poly {
+				pts[i] = v.pt(q)
+			}
+			c.polyline(pts, true, penReference, noPaint, tag{})
+		}
+		c.endGroup()
 	}
 	c.endGroup()
 }
@@ -385,6 +415,23 @@ func (l *labeler) place(anchor vec, w, h, gap float64) (box, bool) {
 	return box{}, false
 }
 
+// placeBehind returns a free box w x h centred on the line through
+// anchor along dir, behind anchor (against dir), its near edge gap from
+// anchor and then further back, and blocks it; ok is false when none of
+// those places is free.
+func (l *labeler) placeBehind(anchor, dir vec, w, h, gap float64) (box, bool) {
+	half := math.Abs(dir.x)*w/2 + math.Abs(dir.y)*h/2 // the box's reach along dir
+	for _, dist := range []float64{1, 2.5, 4.5} {
+		c := anchor.sub(dir.scale(dist*gap + half))
+		b := box{c.x - w/2, c.y - h/2, w, h}
+		if l.free(b) {
+			l.block(b)
+			return b, true
+		}
+	}
+	return box{}, false
+}
+
 // legendEntry is one symbol and its meaning.
 type legendEntry struct {
 	label string
@@ -401,7 +448,7 @@ func overviewLegend(c canvas, sc *scene, s float64) []legendEntry {
 			has.dwell = true
 		case st.Kind == planner.StrokeOutline:
 			has.outline = true
-		case st.Mode == planner.FE:
+		case st.Mode == design.ModeFE:
 			has.raster = true
 		default:
 			has.apLine = true
@@ -426,29 +473,30 @@ func overviewLegend(c canvas, sc *scene, s float64) []legendEntry {
 		return func(c canvas, b box) { c.rect(b.inset(0.3*c.mm()), pen{width: 0.15, grey: 0.4}, f, tag{}) }
 	}
 	var out []legendEntry
-	modes := map[string]bool{}
+	modes := map[design.Mode]bool{}
 	for _, r := range sc.regions {
 		modes[r.mode] = true
 	}
-	if modes["ap"] || modes[""] {
-		out = append(out, legendEntry{"AP region (sites to clear)", swatch(fillAPRegion)})
+	ap, fe := design.ModeAP.Abbrev(), design.ModeFE.Abbrev()
+	if modes[design.ModeAP] || modes[""] {
+		out = append(out, legendEntry{ap + " region (sites to clear)", swatch(fillAPRegion)})
 	}
-	if modes["fe"] {
-		out = append(out, legendEntry{"FE region", swatch(fillFERegion)})
+	if modes[design.ModeFE] {
+		out = append(out, legendEntry{fe + " region", swatch(fillFERegion)})
 	}
-	if modes["hybrid"] {
-		out = append(out, legendEntry{"hybrid region", swatch(fillHybrid)})
+	if modes[design.ModeHybrid] {
+		out = append(out, legendEntry{design.ModeHybrid.Abbrev() + " region", swatch(fillHybrid)})
 	}
 	if has.apLine {
-		out = append(out, legendEntry{"AP stroke (along a dimer row)", line(pen{width: 0.6, round: true})})
+		out = append(out, legendEntry{ap + " stroke (along a dimer row)", line(pen{width: 0.6, round: true})})
 	}
 	if has.dwell {
-		out = append(out, legendEntry{"AP dwell point (dopant window)", func(c canvas, b box) {
+		out = append(out, legendEntry{ap + " dwell point (dopant window)", func(c canvas, b box) {
 			c.circle(b.centre(), 0.6*c.mm(), noPen, solid(0), tag{})
 		}})
 	}
 	if has.raster {
-		out = append(out, legendEntry{"FE raster fill", line(pen{width: 1.2, grey: 0.55, round: true})})
+		out = append(out, legendEntry{fe + " raster fill", line(pen{width: 1.2, grey: 0.55, round: true})})
 	}
 	if has.outline {
 		out = append(out, legendEntry{"outline pass", line(outlinePen(c, sc, s))})
@@ -481,6 +529,13 @@ func overviewLegend(c canvas, sc *scene, s float64) []legendEntry {
 				break
 			}
 		}
+	}
+	if len(sc.refs) > 0 {
+		names := make([]string, len(sc.refs))
+		for i, r := range sc.refs {
+			names[i] = r.Name
+		}
+		out = append(out, legendEntry{"reference layout, not written: " + strings.Join(names, ", "), line(penReference)})
 	}
 	return out
 }
@@ -515,7 +570,7 @@ func drawLegend(c canvas, entries []legendEntry, at vec, width float64) float64 
 func deviceArea(sc *scene) (r2.Rect, bool) {
 	bb := r2.EmptyRect()
 	for i := range sc.plan.Strokes {
-		if s := &sc.plan.Strokes[i]; s.Mode == planner.AP {
+		if s := &sc.plan.Strokes[i]; s.Mode == design.ModeAP {
 			bb = bb.Union(strokeBounds(s))
 		}
 	}

@@ -12,7 +12,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
-	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -47,7 +47,12 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 			}
 			return nil
 		}},
-		{"segments", func() error { return pdfSegments(ctx, d, p) }},
+		{"segments", func() error {
+			if err := pdfSegments(ctx, d, p, sc.number); err != nil {
+				return err
+			}
+			return pdfStrokeList(ctx, d, p, sc.number)
+		}},
 		{"estimates", func() error { pdfEstimates(d, p); return nil }},
 		{"atomic-precision areas", func() error {
 			return pdfZooms(ctx, d, sc, func(f float64) { opt.progress("pdf: atomic-precision areas", (4+f)/5) })
@@ -70,7 +75,7 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 // points, 2 FE rasters".
 func strokeSummary(p *planner.Plan) string {
 	type k struct {
-		m planner.WriteMode
+		m design.Mode
 		s planner.StrokeKind
 	}
 	n := map[k]int{}
@@ -78,11 +83,11 @@ func strokeSummary(p *planner.Plan) string {
 		n[k{p.Strokes[i].Mode, p.Strokes[i].Kind}]++
 	}
 	var parts []string
-	for _, key := range []k{{planner.AP, planner.StrokeLine}, {planner.AP, planner.StrokeDwell}, {planner.AP, planner.StrokeOutline},
-		{planner.FE, planner.StrokeRaster}, {planner.FE, planner.StrokeOutline}, {planner.FE, planner.StrokeLine}, {planner.FE, planner.StrokeDwell},
-		{planner.AP, planner.StrokeRaster}} {
+	for _, key := range []k{{design.ModeAP, planner.StrokeLine}, {design.ModeAP, planner.StrokeDwell}, {design.ModeAP, planner.StrokeOutline},
+		{design.ModeFE, planner.StrokeRaster}, {design.ModeFE, planner.StrokeOutline}, {design.ModeFE, planner.StrokeLine}, {design.ModeFE, planner.StrokeDwell},
+		{design.ModeAP, planner.StrokeRaster}} {
 		if c := n[key]; c > 0 {
-			parts = append(parts, fmt.Sprintf("%s %s %s", thousands(c), strings.ToUpper(string(key.m)), plural(kindNoun(key.s), c)))
+			parts = append(parts, fmt.Sprintf("%s %s %s", thousands(c), key.m.Abbrev(), plural(kindNoun(key.s), c)))
 		}
 	}
 	return strings.Join(parts, ", ")
@@ -214,18 +219,18 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		if cd.Kind == planner.StrokeDwell || (cd.SpeedNMPerS == 0 && cd.DwellS > 0) {
 			// Parking on single sites: no speed, dose or width, a dwell time.
 			hasDwell = true
-			dwell := "dwell " + sig(cd.DwellS, 3) + " s"
+			dwell := "dwell " + duration(cd.DwellS)
 			if cd.DwellCapS > 0 {
-				dwell += "\nat most " + sig(cd.DwellCapS, 3) + " s"
+				dwell += "\nat most " + duration(cd.DwellCapS)
 			}
-			t.row(modeName(cd.Mode)+", dwell points", signedV(cd.BiasV), nanoAmps(cd.CurrentA), "–", dwell, "–", "–", "–")
+			t.row(cd.Mode.Label()+", dwell points", signedV(cd.BiasV), nanoAmps(cd.CurrentA), "–", dwell, "–", "–", "–")
 			continue
 		}
 		pitch := "–"
 		if cd.PitchNM > 0 {
 			pitch = sig(cd.PitchNM, 3)
 		}
-		name := modeName(cd.Mode)
+		name := cd.Mode.Label()
 		if cd.Kind != "" {
 			name += ", " + plural(kindNoun(cd.Kind), 2)
 		}
@@ -235,7 +240,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	if !hasDwell {
 		// An older plan without dwell conditions: take them from the actions.
 		for _, g := range dwellConditions(p) {
-			t.row(modeName(g.mode)+", dwell points", signedV(g.bias), nanoAmps(g.current), "–", "dwell "+sig(g.dwell, 3)+" s", "–", "–", "–")
+			t.row(g.mode.Label()+", dwell points", signedV(g.bias), nanoAmps(g.current), "–", "dwell "+duration(g.dwell), "–", "–", "–")
 		}
 	}
 	t.end()
@@ -251,7 +256,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	)
 	t.start()
 	for _, m := range p.Modes {
-		t.row(m.Region, m.Role, m.Requested, m.Mode, thousands(m.Sites), m.Reason)
+		t.row(m.Region, m.Role.Name(), m.Requested.Abbrev(), m.Mode.Abbrev(), thousands(m.Sites), m.Reason)
 	}
 	t.end()
 
@@ -265,7 +270,8 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		}
 	}
 	d.y += 2
-	d.para("Segments and strokes are numbered from 1 on paper; the JSON and CSV exports count them from 0. "+
+	d.para("Segments are numbered from 1 on paper (from 0 in the JSON and CSV exports). Strokes are numbered from 1 in the order "+
+		"they are written; the JSON and CSV exports give that number beside each stroke's id, which counts from 0 in the order the planner made them. "+
 		"Positions are field coordinates in nm, origin at the lower-left corner of the scan field. "+
 		"Times are on the plan clock, from the start of the session.", font{size: 7.5, grey: 0.25})
 }
@@ -341,16 +347,6 @@ func listShort(names []string, n int) string {
 	return strings.Join(names[:n], ", ") + fmt.Sprintf(" and %d more", len(names)-n)
 }
 
-func modeName(m planner.WriteMode) string {
-	switch m {
-	case planner.AP:
-		return "AP (atomic precision)"
-	case planner.FE:
-		return "FE (field emission)"
-	}
-	return string(m)
-}
-
 func signedV(v float64) string {
 	if v > 0 {
 		return "+" + sig(v, 3)
@@ -360,7 +356,7 @@ func signedV(v float64) string {
 
 // dwellGroup is one set of dwell conditions used by the plan.
 type dwellGroup struct {
-	mode    planner.WriteMode
+	mode    design.Mode
 	bias    float64
 	current float64
 	dwell   float64 // mean dwell time per point, s
@@ -462,7 +458,7 @@ func insideField(win, field r2.Rect) r2.Rect {
 // condGroup is one line of a segment's table row: the strokes written
 // with one set of tip conditions.
 type condGroup struct {
-	mode    planner.WriteMode
+	mode    design.Mode
 	dwell   bool
 	bias    float64
 	current float64
@@ -520,35 +516,42 @@ func countOf[T comparable](s []T, v T) int {
 	return n
 }
 
-// idRanges formats stroke IDs (shown from 1) as "4–9, 12", cut after a
-// few ranges.
-func idRanges(ids []int) string {
+// numberRanges formats stroke numbers on paper as "4–9, 12": every
+// number, however many ranges (a long list wraps in its cell, never cut).
+func numberRanges(nums []int) string {
+	nums = slices.Sorted(slices.Values(nums))
 	var parts []string
-	for i := 0; i < len(ids); {
+	for i := 0; i < len(nums); {
 		j := i
-		for j+1 < len(ids) && ids[j+1] == ids[j]+1 {
+		for j+1 < len(nums) && nums[j+1] == nums[j]+1 {
 			j++
 		}
 		if j > i {
-			parts = append(parts, fmt.Sprintf("%d–%d", ids[i]+1, ids[j]+1))
+			parts = append(parts, fmt.Sprintf("%d–%d", nums[i], nums[j]))
 		} else {
-			parts = append(parts, strconv.Itoa(ids[i]+1))
+			parts = append(parts, strconv.Itoa(nums[i]))
 		}
 		i = j + 1
-	}
-	if len(parts) > 2 {
-		return parts[0] + ", " + parts[1] + ", …"
 	}
 	return strings.Join(parts, ", ")
 }
 
-func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan) error {
+// segmentNumbers returns the paper numbers of a segment's strokes.
+func segmentNumbers(s *planner.Segment, numbers []int) []int {
+	out := make([]int, len(s.Strokes))
+	for k, id := range s.Strokes {
+		out[k] = numbers[id]
+	}
+	return out
+}
+
+func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int) error {
 	d.page()
 	d.heading("Segments", 0)
 	d.para("Write the segments in order. For each: move to its fiducial, image it and correct the offset, "+
-		"then write its strokes in order from the start position (stroke numbers as in the figures), "+
-		"and tick the box. Each line within a row is one set of tip conditions and the strokes written with it. "+
-		"Duration runs from the registration to the end of the segment; \"ends at\" is on the plan clock.", fontBody)
+		"then write its strokes in order of their numbers from the start position (the stroke list below gives each one; "+
+		"the figures show each number at its stroke's start), and tick the box. Each line within a row is one set of tip conditions "+
+		"and the strokes written with it. Duration runs from the registration to the end of the segment; \"ends at\" is on the plan clock.", fontBody)
 	f := font{size: 7.5}
 	t := newTable(d, f,
 		tableColumn{title: "Done", share: 6},
@@ -585,7 +588,7 @@ func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan) error {
 		var strokes, modes, bias, cur, speed []string
 		for _, g := range groups {
 			strokes = append(strokes, g.kindCounts())
-			modes = append(modes, strings.ToUpper(string(g.mode)))
+			modes = append(modes, g.mode.Abbrev())
 			bias = append(bias, signedV(g.bias))
 			cur = append(cur, nanoAmps(g.current))
 			if g.dwell {
@@ -597,7 +600,7 @@ func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan) error {
 		start := ""
 		if len(s.Strokes) > 0 {
 			q := p.Strokes[s.Strokes[0]].Path[0]
-			start = nm1(q.X) + ", " + nm1(q.Y) + "\n" + plural("stroke", len(s.Strokes)) + " " + idRanges(slices.Sorted(slices.Values(s.Strokes)))
+			start = nm1(q.X) + ", " + nm1(q.Y) + "\n" + plural("stroke", len(s.Strokes)) + " " + numberRanges(segmentNumbers(&s, numbers))
 		}
 		fid := s.Fiducial + "\n(" + nm1(s.FiducialAt.X) + ", " + nm1(s.FiducialAt.Y) + ")"
 		top, _ := t.row("", strconv.Itoa(i+1), fid, start, strings.Join(strokes, "\n"), strings.Join(modes, "\n"),
@@ -741,7 +744,7 @@ func zoomLegend(sc *scene) []legendEntry {
 
 func pdfZooms(ctx context.Context, d *pdfDoc, sc *scene, progress func(float64)) error {
 	p := sc.plan
-	areas, omitted := apAreas(p)
+	areas, omitted := apAreas(p, sc.number)
 	if len(areas) == 0 {
 		return nil
 	}
@@ -763,7 +766,7 @@ func pdfZooms(ctx context.Context, d *pdfDoc, sc *scene, progress func(float64))
 			d.page()
 		}
 		h := math.Min(figH, d.remains()-16)
-		regions, strokes := areaCaption(p, a)
+		regions, strokes := areaCaption(p, a, sc.number)
 		win := a.win
 		cap := fmt.Sprintf("AP area %d of %d: %s", i+1, len(areas)+omitted, regions)
 		for _, l := range wrapText(d.c, cap, fontBold, d.width()) {
@@ -802,11 +805,7 @@ func rowsNote(sc *scene, win r2.Rect) string {
 				continue
 			}
 			seen[t] = true
-			dir := "along x"
-			if sc.surf.Terraces[t].Rows == lattice.RowsAlongY {
-				dir = "along y"
-			}
-			parts = append(parts, fmt.Sprintf("%s rows %s", sc.surf.Terraces[t].Name, dir))
+			parts = append(parts, fmt.Sprintf("%s rows along %s", sc.surf.Terraces[t].Name, sc.surf.Terraces[t].Rows))
 		}
 	}
 	slices.Sort(parts)

@@ -252,24 +252,31 @@ func (t *table) row(texts ...string) (top, h float64) {
 }
 
 // spanRow prints a row whose first cell is first and whose second cell,
-// rest, spans all the other columns.
-func (t *table) spanRow(first, rest string) {
+// rest, spans all the other columns. It returns the row's top y.
+func (t *table) spanRow(first, rest string) (top float64) {
+	return t.spanRowFont(first, rest, t.f)
+}
+
+// spanRowFont is spanRow with rest in font f.
+func (t *table) spanRowFont(first, rest string, f font) (top float64) {
 	d := t.d
 	w0 := t.widths[0]
-	cells := [][]string{wrapText(d.c, first, t.f, w0-2*t.pad), wrapText(d.c, rest, t.f, d.width()-w0-2*t.pad)}
+	cells := [][]string{wrapText(d.c, first, t.f, w0-2*t.pad), wrapText(d.c, rest, f, d.width()-w0-2*t.pad)}
 	h := t.height(cells)
 	d.need(h)
 	for i, lines := range cells {
-		x := d.left() + t.pad
+		x, cf := d.left()+t.pad, t.f
 		if i == 1 {
-			x += w0
+			x, cf = x+w0, f
 		}
 		for k, l := range lines {
-			d.c.text(vec{x, d.y + t.pad + float64(k)*t.lh + t.lh*0.78}, l, t.f, anchorStart, tag{})
+			d.c.text(vec{x, d.y + t.pad + float64(k)*t.lh + t.lh*0.78}, l, cf, anchorStart, tag{})
 		}
 	}
 	d.c.polyline([]vec{{d.left(), d.y + h}, {d.left() + d.width(), d.y + h}}, false, pen{width: 0.12, grey: 0.55}, noPaint, tag{})
+	top = d.y
 	d.y += h
+	return top
 }
 
 // colX returns the left edge of column i.

@@ -1,19 +1,17 @@
 package export
 
 import (
-	"bufio"
 	"bytes"
-	"encoding/json"
-	"errors"
 	"fmt"
 	"io"
 	"math"
 	"os"
-	"reflect"
-	"strings"
+	"strconv"
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/internal/jsonfile"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -21,12 +19,14 @@ import (
 // higher version is refused, never half-read.
 const (
 	PlanFormat  = "dimerpath-plan"
-	PlanVersion = 1
+	PlanVersion = 2
 )
 
-// MaxPlanFileBytes bounds what ReadPlanJSON reads (1 GiB), so a wrong
-// file cannot exhaust memory.
-const MaxPlanFileBytes = 1 << 30
+// MaxPlanFileBytes bounds what ReadPlanJSON reads (512 MiB, about five
+// times the file of a plan of 10^5 strokes), so a wrong file cannot
+// exhaust memory; a larger file is refused by its size before it is
+// read.
+const MaxPlanFileBytes = 512 << 20
 
 // The plan file's own schema. It mirrors planner.Plan field by field but
 // is declared here, so the file format changes only when this file does;
@@ -102,6 +102,7 @@ type fiducialJSON struct {
 
 type strokeJSON struct {
 	ID          int     `json:"id"`
+	Number      int     `json:"number,omitempty"` // derived: its place in writing order, from 1, as printed (StrokeNumbers); version 2
 	Region      string  `json:"region"`
 	Mode        string  `json:"mode"`
 	Kind        string  `json:"kind"`
@@ -221,51 +222,49 @@ func strokeActions(p *planner.Plan) []int {
 // PlanFormat, version PlanVersion; the schema is in the README): the
 // full plan, every stroke with its path and tip conditions, every action
 // in order, the estimates and the caution. Top-level fields stand one a
-// line and array elements one a line, so the file diffs well and
-// streams. generator names the program ("dimerpath 0.1.0"), or is empty.
-// It refuses, with a *PlanError naming the field, a plan the file cannot
-// carry (NaN, negative durations, broken references). O(size of p).
+// line and array elements one a line (jsonfile.Compact), so the file
+// diffs well and streams. generator names the program ("dimerpath
+// 0.1.0"), or is empty. It refuses, with a *jsonfile.Error wrapping
+// ErrInvalid and naming the field, a plan the file cannot carry (NaN,
+// negative durations, broken references). O(size of p).
 func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 	if err := checkPlan(p); err != nil {
 		return err
 	}
-	jw := &jsonWriter{w: bufio.NewWriterSize(w, 1<<16)}
-	jw.enc = json.NewEncoder(&jw.buf)
-	jw.enc.SetEscapeHTML(false)
-
-	jw.raw("{\n")
-	jw.field("format", PlanFormat)
-	jw.field("version", PlanVersion)
+	jw := jsonfile.NewWriter(w, jsonfile.Compact)
+	jw.Field("format", PlanFormat)
+	jw.Field("version", PlanVersion)
 	if generator != "" {
-		jw.field("generator", generator)
+		jw.Field("generator", generator)
 	}
-	jw.field("caution", planner.Caution)
-	jw.field("design", p.Design)
-	jw.field("variant", p.Variant)
-	jw.field("profile", p.Profile)
-	jw.field("seed", p.Seed)
-	jw.field("field_nm", xy{p.FieldWidthNM, p.FieldHeightNM})
-	jw.array("conditions", len(p.Conditions), func(i int) any {
+	jw.Field("caution", planner.Caution)
+	jw.Field("design", p.Design)
+	jw.Field("variant", p.Variant)
+	jw.Field("profile", p.Profile)
+	jw.Field("seed", p.Seed)
+	jw.Field("field_nm", xy{p.FieldWidthNM, p.FieldHeightNM})
+	jw.List("conditions", len(p.Conditions), func(i int) any {
 		c := p.Conditions[i]
 		return conditionsJSON{Mode: string(c.Mode), Kind: string(c.Kind), DwellS: c.DwellS, DwellCapS: c.DwellCapS, BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
 			SpeedNMPerS: c.SpeedNMPerS, LineWidthNM: c.LineWidthNM, Passes: c.Passes, PitchNM: c.PitchNM}
 	})
-	jw.array("modes", len(p.Modes), func(i int) any {
+	jw.List("modes", len(p.Modes), func(i int) any {
 		m := p.Modes[i]
-		return regionModeJSON{Region: m.Region, Role: m.Role, Requested: m.Requested, Mode: m.Mode, Reason: m.Reason, Sites: m.Sites}
+		return regionModeJSON{Region: m.Region, Role: string(m.Role), Requested: string(m.Requested), Mode: string(m.Mode), Reason: m.Reason, Sites: m.Sites}
 	})
-	jw.array("fiducials", len(p.Fiducials), func(i int) any {
+	jw.List("fiducials", len(p.Fiducials), func(i int) any {
 		return fiducialJSON{Name: p.Fiducials[i].Name, AtNM: xyOf(p.Fiducials[i].At)}
 	})
 	writer := strokeActions(p)
+	numbers := StrokeNumbers(p)
 	var path []xy
-	jw.array("strokes", len(p.Strokes), func(i int) any {
+	jw.List("strokes", len(p.Strokes), func(i int) any {
 		s := &p.Strokes[i]
 		path = path[:0]
 		for _, q := range s.Path {
 			path = append(path, xyOf(q))
 		}
-		sj := strokeJSON{ID: s.ID, Region: s.Region, Mode: string(s.Mode), Kind: string(s.Kind),
+		sj := strokeJSON{ID: s.ID, Number: numbers[i], Region: s.Region, Mode: string(s.Mode), Kind: string(s.Kind),
 			StartNM: path[0], EndNM: path[len(path)-1], PathNM: path, Passes: s.Passes, LengthNM: s.LengthNM,
 			DurationS: s.DurationS, Sites: s.Sites, ToleranceNM: s.ToleranceNM, Segment: s.Segment, Window: s.Window}
 		if k := writer[i]; k >= 0 {
@@ -274,12 +273,12 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 		}
 		return sj
 	})
-	jw.array("segments", len(p.Segments), func(i int) any {
+	jw.List("segments", len(p.Segments), func(i int) any {
 		s := p.Segments[i]
 		return segmentJSON{Index: s.Index, Fiducial: s.Fiducial, FiducialAtNM: xyOf(s.FiducialAt), StartS: s.StartS,
 			EndS: s.EndS, BudgetS: s.BudgetS, Strokes: nonNil(s.Strokes)}
 	})
-	jw.array("actions", len(p.Actions), func(i int) any {
+	jw.List("actions", len(p.Actions), func(i int) any {
 		a := p.Actions[i]
 		aj := actionJSON{Index: a.Index, Kind: string(a.Kind), Segment: a.Segment, Stroke: a.Stroke,
 			FromNM: xyOf(a.From), ToNM: xyOf(a.To), StartS: a.StartS, DurationS: a.DurationS, Mode: string(a.Mode),
@@ -289,32 +288,30 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 		}
 		return aj
 	})
-	b := p.Breakdown
-	jw.field("breakdown", breakdownJSON{APWriteS: b.APWriteS, FEWriteS: b.FEWriteS, DwellS: b.DwellS, TravelS: b.TravelS,
-		ModeSwitchS: b.ModeSwitchS, RegistrationS: b.RegistrationS, VerificationS: b.VerificationS})
-	jw.field("total_s", p.TotalS)
-	jw.field("p10_s", p.P10S)
-	jw.field("p50_s", p.P50S)
-	jw.field("p90_s", p.P90S)
-	jw.field("floor_s", p.FloorS)
-	jw.field("by_hand_s", p.ByHandS)
-	jw.array("windows", len(p.Windows), func(i int) any {
+	jw.Field("breakdown", breakdownOf(p.Breakdown))
+	jw.Field("total_s", p.TotalS)
+	jw.Field("p10_s", p.P10S)
+	jw.Field("p50_s", p.P50S)
+	jw.Field("p90_s", p.P90S)
+	jw.Field("floor_s", p.FloorS)
+	jw.Field("by_hand_s", p.ByHandS)
+	jw.List("windows", len(p.Windows), func(i int) any {
 		w := p.Windows[i]
 		return windowJSON{Region: w.Region, Species: w.Species, Template: w.Template, AtNM: xyOf(w.At), Sites: w.Sites,
 			OpenProbability: w.OpenProbability, Probability: w.Probability}
 	})
 	y := p.Yield
-	jw.field("yield", yieldJSON{Windows: y.Windows, All: y.All, Log10All: log10JSON(y.Log10All), MeanGood: y.MeanGood, SDGood: y.SDGood,
+	jw.Field("yield", yieldJSON{Windows: y.Windows, All: y.All, Log10All: log10JSON(y.Log10All), MeanGood: y.MeanGood, SDGood: y.SDGood,
 		Distribution: nonNil(y.Distribution), DistributionFrom: y.DistributionFrom, DevicesPerPerfect: y.DevicesPerPerfect})
 	c := p.Coverage
-	jw.field("coverage", coverageJSON{OK: c.OK, Sites: c.Sites, Uncovered: c.Uncovered, Overcleared: c.Overcleared, Issues: nonNil(c.Issues)})
-	jw.last = true
-	jw.field("warnings", nonNil(p.Warnings))
-	jw.raw("}\n")
-	if jw.err != nil {
-		return jw.err
-	}
-	return jw.w.Flush()
+	jw.Field("coverage", coverageJSON{OK: c.OK, Sites: c.Sites, Uncovered: c.Uncovered, Overcleared: c.Overcleared, Issues: nonNil(c.Issues)})
+	jw.Field("warnings", nonNil(p.Warnings))
+	return jw.Close()
+}
+
+func breakdownOf(b planner.Breakdown) breakdownJSON {
+	return breakdownJSON{APWriteS: b.APWriteS, FEWriteS: b.FEWriteS, DwellS: b.DwellS, TravelS: b.TravelS,
+		ModeSwitchS: b.ModeSwitchS, RegistrationS: b.RegistrationS, VerificationS: b.VerificationS}
 }
 
 // nonNil returns s, or an empty slice for nil, so the file always holds
@@ -326,229 +323,130 @@ func nonNil[T any](s []T) []T {
 	return s
 }
 
-// jsonWriter writes the plan file's layout: top-level fields one a line,
-// array elements one a line.
-type jsonWriter struct {
-	w    *bufio.Writer
-	buf  bytes.Buffer
-	enc  *json.Encoder
-	err  error
-	last bool // the next field is the last one (no trailing comma)
-}
-
-func (j *jsonWriter) raw(s string) {
-	if j.err == nil {
-		_, j.err = j.w.WriteString(s)
-	}
-}
-
-// value encodes v compactly, without the encoder's newline.
-func (j *jsonWriter) value(v any) {
-	if j.err != nil {
-		return
-	}
-	j.buf.Reset()
-	if err := j.enc.Encode(v); err != nil {
-		j.err = err
-		return
-	}
-	_, j.err = j.w.Write(bytes.TrimSuffix(j.buf.Bytes(), []byte("\n")))
-}
-
-func (j *jsonWriter) field(name string, v any) {
-	j.raw("  \"" + name + "\": ")
-	j.value(v)
-	j.comma()
-}
-
-func (j *jsonWriter) comma() {
-	if j.last {
-		j.raw("\n")
-	} else {
-		j.raw(",\n")
-	}
-}
-
-func (j *jsonWriter) array(name string, n int, elem func(i int) any) {
-	if n == 0 {
-		j.field(name, []int{})
-		return
-	}
-	j.raw("  \"" + name + "\": [\n")
-	for i := range n {
-		j.raw("    ")
-		j.value(elem(i))
-		if i < n-1 {
-			j.raw(",\n")
-		} else {
-			j.raw("\n")
-		}
-		if j.err != nil {
-			return
-		}
-	}
-	j.raw("  ]")
-	j.comma()
-}
+// planOptions are the plan file's limits for jsonfile.Decode: every
+// field the schema does not mark optional must be present.
+var planOptions = jsonfile.Options{What: "the plan", MaxString: 1 << 20, MaxList: 1 << 26, MaxDepth: 8, Required: true}
 
 // ReadPlanJSON reads a plan file written by WritePlanJSON and returns
-// the plan. It refuses, with a *PlanError naming the line or the field
-// and value, anything else: not JSON (ErrSyntax), not a plan file
-// (ErrNotPlan), a newer
-// version (ErrVersion), unknown fields, values out of range or
+// the plan. It refuses, with a *jsonfile.Error naming the field, its
+// value and its line and column, anything else: not JSON (ErrSyntax), not
+// a plan file (ErrNotPlan, decided by the "format" field alone, however
+// malformed the rest), a newer version (ErrVersion), unknown fields or
+// fields in another case, missing fields, values out of range or
 // references that do not resolve (ErrInvalid), more than
-// MaxPlanFileBytes (ErrTooLarge). The derived fields (start_nm, end_nm,
-// a register action's fiducial) must agree with the rest of the file.
+// MaxPlanFileBytes (ErrTooLarge, refused before reading when r is a
+// file). The derived fields (start_nm, end_nm, a register action's
+// fiducial) must agree with the rest of the file.
 func ReadPlanJSON(r io.Reader) (*planner.Plan, error) {
-	data, err := io.ReadAll(io.LimitReader(r, MaxPlanFileBytes+1))
-	if err != nil {
-		return nil, &PlanError{Err: err}
-	}
-	if len(data) > MaxPlanFileBytes {
-		return nil, &PlanError{Err: fmt.Errorf("%w: more than %d bytes", ErrTooLarge, MaxPlanFileBytes)}
-	}
-	// Identify the file before decoding it strictly, so a design file or
-	// a future version gets the right message.
-	format, version, err := sniffHead(data)
-	if err != nil {
-		return nil, syntaxError(data, err)
-	}
-	if format != PlanFormat {
-		return nil, &PlanError{Field: "format", Value: jsonText(format),
-			Err: fmt.Errorf("%w (want %q)", ErrNotPlan, PlanFormat)}
-	}
-	ver, ok := version.(float64)
-	if !ok || ver != float64(int(ver)) || ver < 1 || ver > PlanVersion {
-		return nil, &PlanError{Field: "version", Value: jsonText(version),
-			Err: fmt.Errorf("%w (this dimerpath reads versions 1 to %d)", ErrVersion, PlanVersion)}
-	}
-	var f planFile
-	dec := json.NewDecoder(bytes.NewReader(data))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&f); err != nil {
-		return nil, syntaxError(data, err)
-	}
-	if dec.More() {
-		return nil, &PlanError{Err: fmt.Errorf("%w: data after the plan object", ErrSyntax)}
-	}
-	p, err := f.plan()
-	if err != nil {
-		return nil, err
-	}
-	if err := checkPlan(p); err != nil {
-		return nil, err
-	}
-	return p, nil
+	return readPlan(r, "")
 }
 
 // ReadPlanFile reads the plan file at path (see ReadPlanJSON); errors
 // name the file.
 func ReadPlanFile(path string) (*planner.Plan, error) {
-	fh, err := os.Open(path)
+	f, err := os.Open(path)
 	if err != nil {
 		return nil, err
 	}
-	defer fh.Close()
-	p, err := ReadPlanJSON(fh)
-	if pe, ok := errors.AsType[*PlanError](err); ok {
-		pe.File = path
-	}
-	return p, err
+	defer f.Close()
+	return readPlan(f, path)
 }
 
-// sniffHead returns the top-level "format" and "version" values of the
-// JSON object in data (nil where absent). It stops as soon as it has
-// both, which in a file dimerpath wrote is after the first two fields,
-// and otherwise skips over the other values without decoding them.
-func sniffHead(data []byte) (format, version any, err error) {
-	dec := json.NewDecoder(bytes.NewReader(data))
-	tok, err := dec.Token()
+func readPlan(r io.Reader, name string) (*planner.Plan, error) {
+	data, err := jsonfile.ReadAll(r, name, MaxPlanFileBytes, nil)
 	if err != nil {
-		return nil, nil, err
+		return nil, err
 	}
-	if d, ok := tok.(json.Delim); !ok || d != '{' {
-		return nil, nil, fmt.Errorf("the file holds a JSON %s, not an object", jsonKindOfToken(tok))
-	}
-	var haveF, haveV bool
-	for dec.More() && !(haveF && haveV) {
-		tok, err := dec.Token()
-		if err != nil {
-			return nil, nil, err
-		}
-		key, _ := tok.(string)
-		switch key {
-		case "format":
-			err, haveF = dec.Decode(&format), true
-		case "version":
-			err, haveV = dec.Decode(&version), true
-		default:
-			var skip json.RawMessage
-			err = dec.Decode(&skip)
-		}
-		if err != nil {
-			return nil, nil, err
-		}
-	}
-	return format, version, nil
+	return ParsePlan(name, data)
 }
 
-func jsonKindOfToken(tok json.Token) string {
-	switch tok.(type) {
-	case json.Delim:
-		return "array"
-	case string:
-		return "string"
-	case float64:
-		return "number"
-	case bool:
-		return "boolean"
+// ParsePlan reads a plan file from data (see ReadPlanJSON); name labels
+// errors.
+func ParsePlan(name string, data []byte) (*planner.Plan, error) {
+	fail := func(kind error, p jsonfile.Problem) error {
+		ps := []jsonfile.Problem{p}
+		jsonfile.Locate(data, ps)
+		return &jsonfile.Error{File: name, Kind: kind, Problems: ps}
 	}
-	return "null"
+	if len(data) > MaxPlanFileBytes {
+		return nil, &jsonfile.Error{File: name, Problems: []jsonfile.Problem{{Message: "the file holds " + jsonfile.Bytes(int64(len(data))) +
+			", more than the " + jsonfile.Bytes(MaxPlanFileBytes) + " limit for a plan", Err: ErrTooLarge}}}
+	}
+	// Identify the file before decoding it strictly, so a design file or
+	// a future version gets the right message.
+	if err := CheckPlanHead(data); err != nil {
+		if e, ok := err.(*jsonfile.Error); ok && len(e.Problems) > 0 {
+			return nil, fail(e.Kind, e.Problems[0])
+		}
+		return nil, err
+	}
+	var f planFile
+	var ps jsonfile.Problems
+	jsonfile.Decode(data, &f, &ps, planOptions)
+	if err := ps.Err(name, ErrInvalid); err != nil {
+		for _, p := range ps.List() {
+			if p.Err == ErrSyntax {
+				err.(*jsonfile.Error).Kind = nil // not JSON: say so alone
+			}
+		}
+		return nil, err
+	}
+	p, err := f.plan()
+	if err == nil {
+		err = checkPlan(p)
+	}
+	if e, ok := err.(*jsonfile.Error); ok {
+		e.File = name
+		jsonfile.Locate(data, e.Problems)
+		return nil, e
+	}
+	if err != nil {
+		return nil, err
+	}
+	return p, nil
 }
 
-func jsonText(v any) string {
-	if v == nil {
-		return "(missing)"
+// CheckPlanHead reports whether data starts like a plan file this
+// program reads: a "format" of PlanFormat (ErrNotPlan otherwise) and a
+// whole "version" from 1 to PlanVersion (ErrVersion otherwise), found by
+// a scan that tolerates a malformed rest of the file. Input that is not
+// a JSON object at all gets its syntax error (ErrSyntax).
+func CheckPlanHead(data []byte) error {
+	notPlan := func(p jsonfile.Problem) error {
+		return &jsonfile.Error{Kind: ErrNotPlan, Problems: []jsonfile.Problem{p}}
 	}
-	b, _ := json.Marshal(v)
-	return string(b)
-}
-
-// syntaxError turns a decoding error into a *PlanError with the line of
-// the offending byte.
-func syntaxError(data []byte, err error) error {
-	pe := &PlanError{Err: fmt.Errorf("%w: %v", ErrSyntax, strings.TrimPrefix(err.Error(), "json: "))}
-	var se *json.SyntaxError
-	var te *json.UnmarshalTypeError
+	format, ok := jsonfile.TopString(data, "format")
 	switch {
-	case errors.As(err, &se):
-		pe.Line = 1 + bytes.Count(data[:min(int(se.Offset), len(data))], []byte("\n"))
-	case errors.As(err, &te):
-		pe.Line = 1 + bytes.Count(data[:min(int(te.Offset), len(data))], []byte("\n"))
-		pe.Field = te.Field
-		pe.Err = fmt.Errorf("%w: a JSON %s where the schema wants %s", ErrInvalid, te.Value, jsonKind(te.Type))
-	case strings.HasPrefix(err.Error(), "json: unknown field"):
-		pe.Err = fmt.Errorf("%w: %s", ErrInvalid, strings.TrimPrefix(err.Error(), "json: "))
+	case ok && format != PlanFormat:
+		return notPlan(jsonfile.Problem{Path: "format", Value: format, Message: fmt.Sprintf("%s (want %q)", ErrNotPlan, PlanFormat)})
+	case !ok:
+		if p, bad := jsonfile.SyntaxProblem(data, "the plan"); bad {
+			return &jsonfile.Error{Problems: []jsonfile.Problem{p}}
+		}
+		if raw, found := jsonfile.TopField(data, "format"); found {
+			return notPlan(jsonfile.Problem{Path: "format", Value: jsonfile.Text(raw), Message: fmt.Sprintf("%s (want the string %q)", ErrNotPlan, PlanFormat)})
+		}
+		if !startsObject(data) {
+			return notPlan(jsonfile.Problem{Message: ErrNotPlan.Error() + ": a plan file holds a JSON object"})
+		}
+		return notPlan(jsonfile.Problem{Path: "format", Message: fmt.Sprintf("missing: %s (a plan file starts with \"format\": %q)", ErrNotPlan, PlanFormat)})
 	}
-	return pe
+	raw, found := jsonfile.TopField(data, "version")
+	if v, err := strconv.Atoi(string(raw)); err != nil || v < 1 || v > PlanVersion {
+		p := jsonfile.Problem{Path: "version", Message: fmt.Sprintf("%s (this dimerpath reads versions 1 to %d)", ErrVersion, PlanVersion)}
+		if found {
+			p.Value = jsonfile.Text(raw)
+		} else {
+			p.Message = "missing: " + p.Message
+		}
+		return &jsonfile.Error{Kind: ErrVersion, Problems: []jsonfile.Problem{p}}
+	}
+	return nil
 }
 
-// jsonKind names the JSON value a Go type decodes from.
-func jsonKind(t reflect.Type) string {
-	switch t.Kind() {
-	case reflect.Float32, reflect.Float64:
-		return "a number"
-	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64,
-		reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64:
-		return "a whole number"
-	case reflect.String:
-		return "a string"
-	case reflect.Bool:
-		return "true or false"
-	case reflect.Slice, reflect.Array:
-		return "an array"
-	}
-	return "an object"
+func startsObject(data []byte) bool {
+	t := bytes.TrimLeft(data, " \t\r\n")
+	return len(t) > 0 && t[0] == '{'
 }
 
 // plan converts the file to a Plan, checking the derived fields.
@@ -557,11 +455,11 @@ func (f *planFile) plan() (*planner.Plan, error) {
 		FieldWidthNM: f.FieldNM[0], FieldHeightNM: f.FieldNM[1],
 		TotalS: f.TotalS, P10S: f.P10S, P50S: f.P50S, P90S: f.P90S, FloorS: f.FloorS, ByHandS: f.ByHandS, Warnings: f.Warnings}
 	p.Conditions = mapSlice(f.Conditions, func(c conditionsJSON) planner.Conditions {
-		return planner.Conditions{Mode: planner.WriteMode(c.Mode), Kind: planner.StrokeKind(c.Kind), DwellS: c.DwellS, DwellCapS: c.DwellCapS, BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
+		return planner.Conditions{Mode: design.Mode(c.Mode), Kind: planner.StrokeKind(c.Kind), DwellS: c.DwellS, DwellCapS: c.DwellCapS, BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
 			SpeedNMPerS: c.SpeedNMPerS, LineWidthNM: c.LineWidthNM, Passes: c.Passes, PitchNM: c.PitchNM}
 	})
 	p.Modes = mapSlice(f.Modes, func(m regionModeJSON) planner.RegionMode {
-		return planner.RegionMode{Region: m.Region, Role: m.Role, Requested: m.Requested, Mode: m.Mode, Reason: m.Reason, Sites: m.Sites}
+		return planner.RegionMode{Region: m.Region, Role: design.Role(m.Role), Requested: design.Mode(m.Requested), Mode: design.Mode(m.Mode), Reason: m.Reason, Sites: m.Sites}
 	})
 	p.Fiducials = mapSlice(f.Fiducials, func(d fiducialJSON) planner.Fiducial {
 		return planner.Fiducial{Name: d.Name, At: d.AtNM.point()}
@@ -572,7 +470,7 @@ func (f *planFile) plan() (*planner.Plan, error) {
 			return nil, invalid(fmt.Sprintf("strokes[%d].start_nm", i), fmt.Sprint(s.StartNM[:]),
 				"start_nm and end_nm must be the first and last points of path_nm")
 		}
-		p.Strokes[i] = planner.Stroke{ID: s.ID, Region: s.Region, Mode: planner.WriteMode(s.Mode), Kind: planner.StrokeKind(s.Kind),
+		p.Strokes[i] = planner.Stroke{ID: s.ID, Region: s.Region, Mode: design.Mode(s.Mode), Kind: planner.StrokeKind(s.Kind),
 			Path: mapSlice(s.PathNM, xy.point), Passes: s.Passes, LengthNM: s.LengthNM, DurationS: s.DurationS,
 			Sites: s.Sites, ToleranceNM: s.ToleranceNM, Segment: s.Segment, Window: s.Window}
 	}
@@ -586,7 +484,7 @@ func (f *planFile) plan() (*planner.Plan, error) {
 			return nil, invalid(fmt.Sprintf("actions[%d].fiducial", i), a.Fiducial, "not the fiducial of segment %d", a.Segment)
 		}
 		p.Actions[i] = planner.Action{Index: a.Index, Kind: planner.ActionKind(a.Kind), Segment: a.Segment, Stroke: a.Stroke,
-			From: a.FromNM.point(), To: a.ToNM.point(), StartS: a.StartS, DurationS: a.DurationS, Mode: planner.WriteMode(a.Mode),
+			From: a.FromNM.point(), To: a.ToNM.point(), StartS: a.StartS, DurationS: a.DurationS, Mode: design.Mode(a.Mode),
 			BiasV: a.BiasV, CurrentA: a.CurrentA, SpeedNMPS: a.SpeedNMPS, Note: a.Note}
 	}
 	b := f.Breakdown
@@ -601,6 +499,12 @@ func (f *planFile) plan() (*planner.Plan, error) {
 		Distribution: y.Distribution, DistributionFrom: y.DistributionFrom, DevicesPerPerfect: y.DevicesPerPerfect}
 	c := f.Coverage
 	p.Coverage = planner.Coverage{OK: c.OK, Sites: c.Sites, Uncovered: c.Uncovered, Overcleared: c.Overcleared, Issues: c.Issues}
+	numbers := StrokeNumbers(p)
+	for i, s := range f.Strokes {
+		if s.Number != 0 && s.Number != numbers[i] {
+			return nil, invalid(fmt.Sprintf("strokes[%d].number", i), s.Number, "stroke %d is number %d in writing order", i, numbers[i])
+		}
+	}
 	return p, nil
 }
 

@@ -14,6 +14,7 @@ import (
 	"testing"
 
 	"dimerpath/export/internal/planfixture"
+	"dimerpath/internal/jsonfile"
 	"dimerpath/planner"
 )
 
@@ -35,33 +36,33 @@ func emptyPlan() *planner.Plan {
 
 // normalised returns a deep copy of p with empty slices made nil, the
 // one difference a JSON round trip may make (the file always holds [],
-// the reader leaves nil for absent fields).
+// the reader leaves nil for absent fields). It copies by reflection, not
+// through JSON, so it works on any plan, one with an infinite log10 of
+// the yield too (issue 16: the JSON copy failed on those, silently).
 func normalised(p *planner.Plan) *planner.Plan {
-	var q planner.Plan
-	b, _ := json.Marshal(p)
-	if err := json.Unmarshal(b, &q); err != nil {
-		panic(err)
-	}
-	nilEmpty(reflect.ValueOf(&q).Elem())
-	return &q
+	q := reflect.New(reflect.TypeFor[planner.Plan]())
+	copyNormalised(q.Elem(), reflect.ValueOf(p).Elem())
+	return q.Interface().(*planner.Plan)
 }
 
-func nilEmpty(v reflect.Value) {
-	switch v.Kind() {
+func copyNormalised(dst, src reflect.Value) {
+	switch src.Kind() {
 	case reflect.Slice:
-		if v.Len() == 0 {
-			v.Set(reflect.Zero(v.Type()))
-			return
+		if src.Len() == 0 {
+			return // dst stays nil
 		}
-		for i := range v.Len() {
-			nilEmpty(v.Index(i))
+		dst.Set(reflect.MakeSlice(src.Type(), src.Len(), src.Len()))
+		for i := range src.Len() {
+			copyNormalised(dst.Index(i), src.Index(i))
 		}
 	case reflect.Struct:
-		for i := range v.NumField() {
-			if v.Type().Field(i).IsExported() {
-				nilEmpty(v.Field(i))
+		for i := range src.NumField() {
+			if src.Type().Field(i).IsExported() {
+				copyNormalised(dst.Field(i), src.Field(i))
 			}
 		}
+	default:
+		dst.Set(src)
 	}
 }
 
@@ -194,6 +195,25 @@ func at(m map[string]any, key string, i int) map[string]any {
 	return m[key].([]any)[i].(map[string]any)
 }
 
+// A version 1 file (written before strokes carried their number on
+// paper) reads as the same plan.
+func TestReadPlanJSONVersion1(t *testing.T) {
+	p := planfixture.SET().Plan
+	data := mutate(t, p, func(m map[string]any) {
+		m["version"] = 1
+		for _, s := range m["strokes"].([]any) {
+			delete(s.(map[string]any), "number")
+		}
+	})
+	got, err := ReadPlanJSON(bytes.NewReader(data))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(StrokeNumbers(got), StrokeNumbers(p)) || len(got.Strokes) != len(p.Strokes) {
+		t.Errorf("version 1 file read as another plan")
+	}
+}
+
 func TestReadPlanJSONRejects(t *testing.T) {
 	p := planfixture.SET().Plan
 	cases := []struct {
@@ -206,7 +226,8 @@ func TestReadPlanJSONRejects(t *testing.T) {
 		{"empty", []byte(""), ErrSyntax, ""},
 		{"design file", []byte(`{"format":"dimerpath-design","version":1}`), ErrNotPlan, "format"},
 		{"no format", []byte(`{"version":1}`), ErrNotPlan, "format"},
-		{"future version", mutate(t, p, func(m map[string]any) { m["version"] = 2 }), ErrVersion, "version"},
+		{"future version", mutate(t, p, func(m map[string]any) { m["version"] = PlanVersion + 1 }), ErrVersion, "version"},
+		{"wrong paper number", mutate(t, p, func(m map[string]any) { at(m, "strokes", 2)["number"] = 9.0 }), ErrInvalid, "strokes[2].number = 9: stroke 2 is number 3 in writing order"},
 		{"version string", mutate(t, p, func(m map[string]any) { m["version"] = "1" }), ErrVersion, "version"},
 		{"unknown field", mutate(t, p, func(m map[string]any) { m["colour"] = "red" }), ErrInvalid, "colour"},
 		{"syntax error line", []byte("{\n\"format\": \"dimerpath-plan\",\n\"version\": 1,\n\"design\": ]\n}"), ErrSyntax, "line 4"},
@@ -239,6 +260,13 @@ func TestReadPlanJSONRejects(t *testing.T) {
 			at(m, "strokes", 3)["end_nm"] = []any{1e9, 5.0}
 		}), ErrInvalid, "strokes[3].path_nm[0]"},
 		{"field too large", mutate(t, p, func(m map[string]any) { m["field_nm"] = []any{1e12, 80.0} }), ErrInvalid, "field_nm[0]"},
+		// Issue 16: a plan without yield read as log10_all = -Inf, and
+		// encoding/json matched keys in any case.
+		{"no yield", mutate(t, p, func(m map[string]any) { delete(m, "yield") }), ErrInvalid, "yield: missing"},
+		{"key in another case", mutate(t, p, func(m map[string]any) { m["vAriAnt"] = m["variant"]; delete(m, "variant") }), ErrInvalid,
+			`vAriAnt: unknown field: names are case-sensitive, did you mean "variant"?`},
+		{"NaN total is still a plan", bytes.Replace(mutate(t, p, func(m map[string]any) { m["total_s"] = "NAN" }), []byte(`"NAN"`), []byte("NaN"), 1),
+			ErrInvalid, "total_s: NaN is not a finite number"},
 		{"quantiles reversed", mutate(t, p, func(m map[string]any) { m["p10_s"] = m["p90_s"].(float64) + 1 }), ErrInvalid, "p50_s"},
 	}
 	for _, tc := range cases {
@@ -247,8 +275,8 @@ func TestReadPlanJSONRejects(t *testing.T) {
 			if !errors.Is(err, tc.is) {
 				t.Fatalf("ReadPlanJSON = %v, want an error wrapping %v", err, tc.is)
 			}
-			if _, ok := errors.AsType[*PlanError](err); !ok {
-				t.Errorf("error %v is not a *PlanError", err)
+			if _, ok := errors.AsType[*jsonfile.Error](err); !ok {
+				t.Errorf("error %v is not a *jsonfile.Error", err)
 			}
 			if !strings.Contains(err.Error(), tc.field) {
 				t.Errorf("error %q does not name %q", err, tc.field)
@@ -406,8 +434,8 @@ func FuzzReadPlanJSON(f *testing.F) {
 	f.Fuzz(func(t *testing.T, data []byte) {
 		p, err := ReadPlanJSON(bytes.NewReader(data))
 		if err != nil {
-			if _, ok := errors.AsType[*PlanError](err); !ok {
-				t.Fatalf("error %v is not a *PlanError", err)
+			if _, ok := errors.AsType[*jsonfile.Error](err); !ok {
+				t.Fatalf("error %v is not a *jsonfile.Error", err)
 			}
 			return
 		}

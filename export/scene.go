@@ -19,6 +19,16 @@ import (
 type Pattern struct {
 	Surface *lattice.Surface
 	Regions []PatternRegion
+	// References are chip-layout overlays (design.Reference), drawn as
+	// outlines on the overview: for orientation, never written.
+	References []PatternReference
+}
+
+// PatternReference is one reference overlay's name and polygons in
+// field nm.
+type PatternReference struct {
+	Name     string
+	Polygons [][]r2.Point
 }
 
 // PatternOf returns the pattern of a laid-out design variant: its
@@ -27,6 +37,17 @@ func PatternOf(l *design.Layout) *Pattern {
 	pat := &Pattern{Surface: l.Surface}
 	for _, r := range l.Regions {
 		pat.Regions = append(pat.Regions, PatternRegion{Name: r.Region.Name, Sites: r.Sites})
+	}
+	for _, ref := range l.Design.References {
+		pr := PatternReference{Name: ref.Name}
+		for _, poly := range ref.PolygonsNM {
+			q := make([]r2.Point, len(poly))
+			for i, v := range poly {
+				q[i] = r2.Point{X: v[0], Y: v[1]}
+			}
+			pr.Polygons = append(pr.Polygons, q)
+		}
+		pat.References = append(pat.References, pr)
 	}
 	return pat
 }
@@ -43,10 +64,11 @@ type PatternRegion struct {
 type scene struct {
 	plan    *planner.Plan
 	surf    *lattice.Surface // nil without a pattern
+	refs    []PatternReference
 	regions []regionShape
-	modeOf  map[string]string // region name -> planned mode (ap, fe, hybrid)
-	apWidth float64           // AP line width, nm
-	feWidth float64           // FE line width, nm
+	modeOf  map[string]design.Mode // region name -> planned mode (ap, fe, hybrid)
+	apWidth float64                // AP line width, nm
+	feWidth float64                // FE line width, nm
 	// toFiducial[i] reports whether action i is the move to a fiducial
 	// before a registration.
 	toFiducial []bool
@@ -54,30 +76,35 @@ type scene struct {
 	// hasWrite[s] whether it has one.
 	writeFrom []r2.Point
 	hasWrite  []bool
+	// number[id] is stroke id's number on paper (StrokeNumbers).
+	number []int
 }
 
 // regionShape is a region drawn as field rectangles, one per run of
 // sites on a row, with runs of equal extent on neighbouring rows merged.
 type regionShape struct {
 	name  string
-	mode  string
+	mode  design.Mode
 	sites *lattice.SiteSet
 	rects []r2.Rect
 }
 
 func newScene(p *planner.Plan, pat *Pattern) *scene {
-	sc := &scene{plan: p, modeOf: map[string]string{}, apWidth: 0.8, feWidth: 4}
+	sc := &scene{plan: p, modeOf: map[string]design.Mode{}, apWidth: 0.8, feWidth: 4, number: StrokeNumbers(p)}
 	for _, m := range p.Modes {
 		sc.modeOf[m.Region] = m.Mode
 	}
 	for _, c := range p.Conditions {
 		if c.LineWidthNM > 0 {
-			if c.Mode == planner.FE {
+			if c.Mode == design.ModeFE {
 				sc.feWidth = c.LineWidthNM
 			} else {
 				sc.apWidth = c.LineWidthNM
 			}
 		}
+	}
+	if pat != nil {
+		sc.refs = pat.References
 	}
 	if pat != nil && pat.Surface != nil {
 		sc.surf = pat.Surface
@@ -166,17 +193,10 @@ func runRects(surf *lattice.Surface, set *lattice.SiteSet) []r2.Rect {
 	return out
 }
 
-// runRect returns the field rectangle of one run: its dimers along the
-// row, one row spacing across it.
+// runRect returns the field rectangle of one run: the cells of its
+// dimers, one row spacing across.
 func runRect(surf *lattice.Surface, run lattice.Run) r2.Rect {
-	d0, d1 := run.Start>>1, (run.End()-1)>>1
-	a := surf.DimerCentre(run.Terrace, run.Row, d0)
-	b := surf.DimerCentre(run.Terrace, run.Row, d1)
-	hp, hr := lattice.DimerPitch/2, lattice.RowSpacing/2
-	if surf.Terraces[run.Terrace].Rows == lattice.RowsAlongY {
-		return r2.RectFromPoints(r2.Point{X: a.X - hr, Y: math.Min(a.Y, b.Y) - hp}, r2.Point{X: a.X + hr, Y: math.Max(a.Y, b.Y) + hp})
-	}
-	return r2.RectFromPoints(r2.Point{X: math.Min(a.X, b.X) - hp, Y: a.Y - hr}, r2.Point{X: math.Max(a.X, b.X) + hp, Y: a.Y + hr})
+	return surf.DimerCells(run.Terrace, run.Row, lattice.DimerRange{Lo: run.Start >> 1, Hi: (run.End()-1)>>1 + 1})
 }
 
 // view maps a field window in nm onto device units: device y grows
@@ -213,6 +233,7 @@ func (v view) frame() box { return v.box(v.win) }
 var (
 	penField     = pen{width: 0.3, grey: 0}
 	penTerrace   = pen{width: 0.6, grey: 0.55, dash: []float64{4, 1.5}}
+	penReference = pen{width: 0.45, grey: 0.1, dash: []float64{2.4, 0.7, 0.5, 0.7}}
 	penMove      = pen{width: 0.2, grey: 0.15, dash: []float64{1.4, 0.9}}
 	penToFid     = pen{width: 0.25, grey: 0.15, dash: []float64{0.2, 0.7}, round: true}
 	penFiducial  = pen{width: 0.35, grey: 0}
@@ -241,11 +262,11 @@ func outlinePen(c canvas, sc *scene, s float64) pen {
 	return pen{width: 0.35, grey: 0.25, dash: []float64{2, 0.8, 0.4, 0.8}}
 }
 
-func regionPaint(mode string) paint {
+func regionPaint(mode design.Mode) paint {
 	switch mode {
-	case "fe":
+	case design.ModeFE:
 		return fillFERegion
-	case "hybrid":
+	case design.ModeHybrid:
 		return fillHybrid
 	}
 	return fillAPRegion

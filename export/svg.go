@@ -18,7 +18,8 @@ const svgFigureWidthMM = 170
 // field: the SVG's own y axis is flipped). It holds groups with ids
 // "regions" (one "region-NAME" each, when opt.Pattern is given),
 // "terraces", "strokes" ("strokes-fe" and "strokes-ap", one element
-// "stroke-N" per stroke, classes naming mode, kind and segment), "moves",
+// "stroke-N" per stroke, N its number on paper, classes naming mode,
+// kind, segment and its id in the plan file as "id-I"), "moves",
 // "fiducials", "segment-labels", "axes", "scale-bar", "legend" and
 // "caution". Only opt.Pattern and opt.Generator are used. O(strokes +
 // actions + region runs).

@@ -7,6 +7,8 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/internal/jsonfile"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -232,7 +234,7 @@ func (v *checker) at(arr string, i int) string {
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
-func (v *checker) fail(e *PlanError) {
+func (v *checker) fail(e *jsonfile.Error) {
 	if v.err == nil {
 		v.err = e
 	}
@@ -275,7 +277,7 @@ func (v *checker) point(f string, p r2.Point) {
 	v.finite(f+"[0]", p.X)
 	v.finite(f+"[1]", p.Y)
 	if v.err == nil && !v.near.IsEmpty() && !v.near.ContainsPoint(p) {
-		v.fail(invalid(f, fmt.Sprintf("[%g, %g]", p.X, p.Y), "more than one field size outside the scan field"))
+		v.fail(invalid(f, [2]float64{p.X, p.Y}, "more than one field size outside the scan field"))
 	}
 }
 
@@ -302,8 +304,8 @@ func (v *checker) kind(f string, k planner.StrokeKind, empty bool) {
 	}
 }
 
-func (v *checker) mode(f string, m planner.WriteMode, empty bool) {
-	if v.err != nil || m == planner.AP || m == planner.FE || (empty && m == "") {
+func (v *checker) mode(f string, m design.Mode, empty bool) {
+	if v.err != nil || m == design.ModeAP || m == design.ModeFE || (empty && m == "") {
 		return
 	}
 	v.fail(invalid(f, string(m), "unknown write mode (want ap or fe)"))

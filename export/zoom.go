@@ -12,6 +12,7 @@ import (
 
 	"dimerpath/internal/unionfind"
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -33,7 +34,7 @@ const (
 // apArea is one zoomed figure: a field window and the AP strokes in it.
 type apArea struct {
 	win     r2.Rect
-	strokes []int // stroke IDs, ascending
+	strokes []int // stroke IDs, in writing order
 }
 
 func strokeBounds(s *planner.Stroke) r2.Rect {
@@ -47,17 +48,19 @@ func strokeBounds(s *planner.Stroke) r2.Rect {
 // apAreas clusters the plan's AP strokes by single linkage on a grid of
 // apClusterGapNM cells (strokes whose bounding boxes, grown by half the
 // gap, share a cell are joined), tiles large clusters, and returns the
-// areas in writing order (by their first stroke) with the number left
-// out beyond maxZoomAreas. O(strokes · cells per stroke).
-func apAreas(p *planner.Plan) (areas []apArea, omitted int) {
+// areas in writing order (by their first stroke, number[id] giving each
+// stroke's place, as StrokeNumbers does) with the number left out beyond
+// maxZoomAreas. O(strokes · cells per stroke).
+func apAreas(p *planner.Plan, number []int) (areas []apArea, omitted int) {
 	var ids []int
 	var bounds []r2.Rect
-	for i := range p.Strokes {
-		if p.Strokes[i].Mode == planner.AP {
+	for _, i := range writingOrder(number) {
+		if p.Strokes[i].Mode == design.ModeAP {
 			ids = append(ids, i)
 			bounds = append(bounds, strokeBounds(&p.Strokes[i]))
 		}
 	}
+	byNumber := func(a, b int) int { return cmp.Compare(number[a], number[b]) }
 	if len(ids) == 0 {
 		return nil, 0
 	}
@@ -101,7 +104,7 @@ func apAreas(p *planner.Plan) (areas []apArea, omitted int) {
 		}
 		clusters[r] = append(clusters[r], i)
 	}
-	slices.Sort(roots) // the root is the cluster's first stroke
+	slices.Sort(roots) // the root is the cluster's first stroke written
 	pk := newPacker()
 	for _, r := range roots {
 		members := clusters[r]
@@ -145,16 +148,16 @@ func apAreas(p *planner.Plan) (areas []apArea, omitted int) {
 				// Tiles overlap by the padding, so a stroke cut at a tile
 				// edge shows on both.
 				win = atLeast(win.ExpandedByMargin(apZoomPadNM), apZoomMinNM)
-				slices.Sort(st)
+				slices.SortFunc(st, byNumber)
 				areas = append(areas, apArea{win: win, strokes: st})
 			}
 		}
 	}
 	for _, g := range pk.groups {
-		slices.Sort(g.strokes)
+		slices.SortFunc(g.strokes, byNumber)
 		areas = append(areas, apArea{win: atLeast(g.bb.ExpandedByMargin(apZoomPadNM), apZoomMinNM), strokes: g.strokes})
 	}
-	slices.SortStableFunc(areas, func(a, b apArea) int { return cmp.Compare(a.strokes[0], b.strokes[0]) })
+	slices.SortStableFunc(areas, func(a, b apArea) int { return byNumber(a.strokes[0], b.strokes[0]) })
 	if len(areas) > maxZoomAreas {
 		omitted = len(areas) - maxZoomAreas
 		areas = areas[:maxZoomAreas]
@@ -226,7 +229,7 @@ func withAspect(r r2.Rect, b box) r2.Rect {
 }
 
 // areaCaption describes an area: its regions, strokes and segments.
-func areaCaption(p *planner.Plan, a apArea) (regions, strokes string) {
+func areaCaption(p *planner.Plan, a apArea, number []int) (regions, strokes string) {
 	seen := map[string]bool{}
 	var names []string
 	segLo, segHi := math.MaxInt, -1
@@ -248,7 +251,11 @@ func areaCaption(p *planner.Plan, a apArea) (regions, strokes string) {
 	if n == 1 {
 		word = "stroke"
 	}
-	return strings.Join(names, ", "), fmt.Sprintf("%d %s in %s", n, word, segs)
+	nums := make([]int, len(a.strokes))
+	for i, id := range a.strokes {
+		nums[i] = number[id]
+	}
+	return strings.Join(names, ", "), fmt.Sprintf("%d %s (%s) in %s", n, word, numberRanges(nums), segs)
 }
 
 // Styles of the zoomed figures.
@@ -275,7 +282,7 @@ func drawZoom(c canvas, sc *scene, a apArea, dev box, idx int) {
 	// FE strokes passing through, for context: footprint and centre.
 	for i := range p.Strokes {
 		s := &p.Strokes[i]
-		if s.Mode != planner.FE || !strokeBounds(s).ExpandedByMargin(sc.feWidth).Intersects(win) {
+		if s.Mode != design.ModeFE || !strokeBounds(s).ExpandedByMargin(sc.feWidth).Intersects(win) {
 			continue
 		}
 		pts := zoomPath(v, s)
@@ -287,7 +294,7 @@ func drawZoom(c canvas, sc *scene, a apArea, dev box, idx int) {
 	// are numbered.
 	var inWin []int
 	for i := range p.Strokes {
-		if s := &p.Strokes[i]; s.Mode == planner.AP && strokeBounds(s).ExpandedByMargin(sc.apWidth).Intersects(win) {
+		if s := &p.Strokes[i]; s.Mode == design.ModeAP && strokeBounds(s).ExpandedByMargin(sc.apWidth).Intersects(win) {
 			inWin = append(inWin, i)
 		}
 	}
@@ -320,7 +327,7 @@ func drawZoom(c canvas, sc *scene, a apArea, dev box, idx int) {
 			c.circle(q, d*0.65, pen{width: 0.3}, noPaint, tag{class: "dwell"})
 			continue
 		}
-		c.polyline(pts, false, penCentre, noPaint, strokeTag(s))
+		c.polyline(pts, false, penCentre, noPaint, sc.strokeTag(s))
 		if n := len(pts); n >= 2 {
 			drawArrowHead(c, pts[n-2], pts[n-1], arrow)
 		}
@@ -328,35 +335,89 @@ func drawZoom(c canvas, sc *scene, a apArea, dev box, idx int) {
 	c.endClip()
 	c.rect(frame, penField, noPaint, tag{})
 
-	// Stroke numbers at the start points where they fit.
+	// Stroke numbers on paper at each stroke's start.
 	if len(a.strokes) <= 150 {
-		lab := &labeler{bounds: frame}
-		f := font{size: 6}
-		for _, id := range a.strokes {
-			if s := &p.Strokes[id]; s.Kind == planner.StrokeDwell {
-				q, d := v.pt(s.Path[0]), math.Max(1.4*u, 0.3*v.s)
-				lab.block(box{q.x - d, q.y - d, 2 * d, 2 * d})
-			}
-		}
-		for _, id := range a.strokes {
-			s := &p.Strokes[id]
-			q := v.pt(s.Path[0])
-			if !frame.containsPt(q) {
-				continue
-			}
-			txt := strconv.Itoa(id + 1)
-			w, h := c.textWidth(txt, f)+0.8*u, textHeight(c, f)+0.8*u
-			gap := 0.6 * u
-			if s.Kind == planner.StrokeDwell {
-				gap = math.Max(1.4*u, 0.3*v.s) // clear of the marker
-			}
-			if b, ok := lab.place(q, w, h, gap); ok {
-				c.rect(b, noPen, paint{fill: true, grey: 1}, tag{})
-				c.text(vec{b.x + 0.4*u, b.bottom() - 0.4*u}, txt, f, anchorStart, tag{class: "stroke-number"})
-			}
-		}
+		drawStrokeNumbers(c, sc, v, frame, a.strokes, inWin, arrow)
 	}
 	c.endGroup()
+}
+
+// drawStrokeNumbers labels each stroke of ids (in writing order) whose
+// start lies in frame with its number on paper, boxed in white. A label
+// stands on its stroke's own row, in line with the stroke just before its
+// start, so it never sits between two rows nor on the arrowhead of a
+// stroke written the other way (every arrowhead and dwell marker of the
+// strokes drawn, drawn, is kept clear); where that place is taken it
+// moves further back along the line, and only then around the start.
+func drawStrokeNumbers(c canvas, sc *scene, v view, frame box, ids, drawn []int, arrow float64) {
+	p, u := sc.plan, c.mm()
+	lab := &labeler{bounds: frame}
+	f := font{size: 6}
+	dwellSize := math.Max(1.4*u, 0.3*v.s)
+	for _, id := range drawn {
+		s := &p.Strokes[id]
+		pts := zoomPath(v, s)
+		if s.Kind == planner.StrokeDwell {
+			q := pts[0]
+			lab.block(box{q.x - dwellSize, q.y - dwellSize, 2 * dwellSize, 2 * dwellSize})
+			continue
+		}
+		if n := len(pts); n >= 2 {
+			lab.block(arrowHeadBox(pts[n-2], pts[n-1], arrow))
+		}
+	}
+	for _, id := range ids {
+		s := &p.Strokes[id]
+		pts := zoomPath(v, s)
+		q := pts[0]
+		if !frame.containsPt(q) {
+			continue
+		}
+		txt := strconv.Itoa(sc.number[id])
+		w, h := c.textWidth(txt, f)+0.8*u, textHeight(c, f)+0.8*u
+		gap := 0.6 * u
+		dir := vec{1, 0} // a dwell's label stands left of it
+		if s.Kind == planner.StrokeDwell {
+			gap = dwellSize
+		} else if k := firstStep(pts); k > 0 {
+			dir = pts[k].sub(q).scale(1 / pts[k].sub(q).norm())
+		}
+		b, ok := lab.placeBehind(q, dir, w, h, gap)
+		if !ok {
+			b, ok = lab.place(q, w, h, gap)
+		}
+		if ok {
+			c.rect(b, noPen, paint{fill: true, grey: 1}, tag{})
+			c.text(vec{b.x + 0.4*u, b.bottom() - 0.4*u}, txt, f, anchorStart, tag{class: "stroke-number"})
+		}
+	}
+}
+
+// firstStep returns the index of the first point of pts away from
+// pts[0], or 0 when there is none.
+func firstStep(pts []vec) int {
+	for k := 1; k < len(pts); k++ {
+		if pts[k].sub(pts[0]).norm() > 1e-9 {
+			return k
+		}
+	}
+	return 0
+}
+
+// arrowHeadBox is the bounding box of the arrowhead drawArrowHead draws.
+func arrowHeadBox(from, to vec, size float64) box {
+	d := to.sub(from)
+	l := d.norm()
+	if l < 1e-9 {
+		return box{to.x, to.y, 0, 0}
+	}
+	d = d.scale(1 / l)
+	n := vec{-d.y, d.x}
+	back := to.sub(d.scale(size))
+	a, b := back.add(n.scale(size*0.45)), back.sub(n.scale(size*0.45))
+	x0, x1 := math.Min(to.x, math.Min(a.x, b.x)), math.Max(to.x, math.Max(a.x, b.x))
+	y0, y1 := math.Min(to.y, math.Min(a.y, b.y)), math.Max(to.y, math.Max(a.y, b.y))
+	return box{x0, y0, x1 - x0, y1 - y0}
 }
 
 func zoomPath(v view, s *planner.Stroke) []vec { return mapPts(v, s.Path) }
@@ -386,41 +447,22 @@ func drawArrowHead(c canvas, from, to vec, size float64) {
 // two sites' positions.
 func latticeDots(sc *scene, win r2.Rect) (all, clear, bonds []r2.Point) {
 	surf := sc.surf
-	for t := range surf.Terraces {
-		ter := &surf.Terraces[t]
-		// Row and dimer ranges covering win (the offset is row 0, dimer 0).
-		alongLo, alongHi, acrossLo, acrossHi := win.X.Lo, win.X.Hi, win.Y.Lo, win.Y.Hi
-		offAlong, offAcross := ter.Offset.X, ter.Offset.Y
-		if ter.Rows == lattice.RowsAlongY {
-			alongLo, alongHi, acrossLo, acrossHi = win.Y.Lo, win.Y.Hi, win.X.Lo, win.X.Hi
-			offAlong, offAcross = ter.Offset.Y, ter.Offset.X
+	for dimer := range surf.Dimers(win) {
+		a := surf.Position(dimer)
+		b := surf.Position(surf.Partner(dimer))
+		if win.ContainsPoint(a) || win.ContainsPoint(b) {
+			bonds = append(bonds, a, b)
 		}
-		r0 := max(0, int(math.Floor((acrossLo-offAcross)/lattice.RowSpacing))-1)
-		r1 := min(surf.RowCount(t)-1, int(math.Ceil((acrossHi-offAcross)/lattice.RowSpacing))+1)
-		d0 := max(0, int(math.Floor((alongLo-offAlong)/lattice.DimerPitch))-1)
-		d1 := min(surf.DimerCount(t)-1, int(math.Ceil((alongHi-offAlong)/lattice.DimerPitch))+1)
-		for r := r0; r <= r1; r++ {
-			for d := d0; d <= d1; d++ {
-				if surf.TerraceAt(surf.DimerCentre(t, r, d)) != t {
-					continue
-				}
-				a := surf.Position(lattice.Site{Terrace: t, Row: r, Dimer: d, Side: 0})
-				b := surf.Position(lattice.Site{Terrace: t, Row: r, Dimer: d, Side: 1})
-				if win.ContainsPoint(a) || win.ContainsPoint(b) {
-					bonds = append(bonds, a, b)
-				}
-				for side := range 2 {
-					site := lattice.Site{Terrace: t, Row: r, Dimer: d, Side: side}
-					q := surf.Position(site)
-					if !win.ContainsPoint(q) {
-						continue
-					}
-					if sc.clears(site) {
-						clear = append(clear, q)
-					} else {
-						all = append(all, q)
-					}
-				}
+		for side, q := range [2]r2.Point{a, b} {
+			if !win.ContainsPoint(q) {
+				continue
+			}
+			site := dimer
+			site.Side = side
+			if sc.clears(site) {
+				clear = append(clear, q)
+			} else {
+				all = append(all, q)
 			}
 		}
 	}
@@ -431,7 +473,7 @@ func latticeDots(sc *scene, win r2.Rect) (all, clear, bonds []r2.Point) {
 // site.
 func (sc *scene) clears(site lattice.Site) bool {
 	for _, r := range sc.regions {
-		if r.mode != "fe" && r.sites.Contains(site) {
+		if r.mode != design.ModeFE && r.sites.Contains(site) {
 			return true
 		}
 	}

@@ -3,6 +3,7 @@ package lattice
 import (
 	"math"
 
+	"github.com/golang/geo/r1"
 	"github.com/golang/geo/r2"
 )
 
@@ -14,12 +15,13 @@ type Area interface {
 	// Bounds returns a rectangle holding the whole area (it may be
 	// larger than the area, never smaller).
 	Bounds() r2.Rect
-	// Spans appends to dst the spans of the along-row coordinate that the
-	// area covers on the line where the across-row coordinate equals
-	// across, for rows running in direction d (for RowsAlongX the line is
-	// y = across and the spans are in x). The appended spans are sorted
-	// and disjoint. It returns the extended slice.
-	Spans(dst []Span, d RowDirection, across float64) []Span
+	// Spans appends to dst the intervals of the along-row field
+	// coordinate that the area covers on the line where the across-row
+	// field coordinate equals across, for rows running in direction d
+	// (for RowsAlongX the line is y = across and the intervals are in x).
+	// The appended intervals are normalized (see NormalizeIntervals). It
+	// returns the extended slice.
+	Spans(dst []r1.Interval, d RowDirection, across float64) []r1.Interval
 }
 
 // Compile-time checks that the shapes implement Area.
@@ -45,7 +47,7 @@ func RectFromCorners(a, b r2.Point) Rect { return Rect{r2.RectFromPoints(a, b)} 
 func (r Rect) Bounds() r2.Rect { return r.Rect }
 
 // Spans implements Area.
-func (r Rect) Spans(dst []Span, d RowDirection, across float64) []Span {
+func (r Rect) Spans(dst []r1.Interval, d RowDirection, across float64) []r1.Interval {
 	if r.IsEmpty() {
 		return dst
 	}
@@ -56,7 +58,7 @@ func (r Rect) Spans(dst []Span, d RowDirection, across float64) []Span {
 	if across < acrossI.Lo-spanEps || across > acrossI.Hi+spanEps {
 		return dst
 	}
-	return append(dst, closedSpan(alongI.Lo-spanEps, alongI.Hi+spanEps))
+	return append(dst, r1.Interval{Lo: alongI.Lo - spanEps, Hi: alongI.Hi + spanEps})
 }
 
 // Polygon is a simple or self-intersecting polygon in field nm, its
@@ -69,7 +71,7 @@ type Polygon []r2.Point
 func (p Polygon) Bounds() r2.Rect { return r2.RectFromPoints(p...) }
 
 // Spans implements Area.
-func (p Polygon) Spans(dst []Span, d RowDirection, across float64) []Span {
+func (p Polygon) Spans(dst []r1.Interval, d RowDirection, across float64) []r1.Interval {
 	if len(p) < 3 {
 		return dst
 	}
@@ -96,10 +98,10 @@ func (p Polygon) Spans(dst []Span, d RowDirection, across float64) []Span {
 	}
 	sortFloats(cross)
 	for k := 0; k+1 < len(cross); k += 2 {
-		dst = append(dst, Span{cross[k] - spanEps, cross[k+1] + spanEps})
+		dst = append(dst, r1.Interval{Lo: cross[k] - spanEps, Hi: cross[k+1] + spanEps})
 	}
 	// Widening may make neighbouring spans touch; keep them disjoint.
-	merged := normalizeSpans(dst[start:])
+	merged := NormalizeIntervals(dst[start:])
 	return dst[:start+len(merged)]
 }
 
@@ -135,7 +137,7 @@ func (l Polyline) Bounds() r2.Rect {
 }
 
 // Spans implements Area.
-func (l Polyline) Spans(dst []Span, d RowDirection, across float64) []Span {
+func (l Polyline) Spans(dst []r1.Interval, d RowDirection, across float64) []r1.Interval {
 	h := l.WidthNM / 2
 	if !(h > 0) || len(l.Points) == 0 {
 		return dst
@@ -151,10 +153,10 @@ func (l Polyline) Spans(dst []Span, d RowDirection, across float64) []Span {
 			a, b = r2.Point{X: a.Y, Y: a.X}, r2.Point{X: b.Y, Y: b.X}
 		}
 		if lo, hi, ok := capsuleSpan(a, b, h, across); ok {
-			dst = append(dst, closedSpan(lo-spanEps, hi+spanEps))
+			dst = append(dst, r1.Interval{Lo: lo - spanEps, Hi: hi + spanEps})
 		}
 	}
-	merged := normalizeSpans(dst[start:])
+	merged := NormalizeIntervals(dst[start:])
 	return dst[:start+len(merged)]
 }
 

@@ -169,7 +169,7 @@ func BenchmarkRLERoundTrip(b *testing.B) {
 	}
 }
 
-// BenchmarkPaintPolygon paints a 1 µm² diamond (every row needs its own
+// BenchmarkPaintShapes paints a 1 µm² diamond (every row needs its own
 // span) and a 1 µm long, 40 nm wide polyline.
 func BenchmarkPaintShapes(b *testing.B) {
 	s := benchSurface(b)

@@ -1,6 +1,7 @@
 package lattice
 
 import (
+	"fmt"
 	"math"
 
 	"github.com/golang/geo/r2"
@@ -109,6 +110,12 @@ func (ix *CellIndex) gridRange(r r2.Rect) (x0, y0, x1, y1 int) {
 // when they touch or overlap), and the midpoint of the shortest segment
 // between them (the middle of their overlap where they overlap).
 func rectGap(a, b r2.Rect) (float64, r2.Point) {
+	g := rectSpan(a, b)
+	return g.NM, g.At
+}
+
+// rectSpan returns the shortest segment between two rectangles as a Gap.
+func rectSpan(a, b r2.Rect) Gap {
 	gap := func(alo, ahi, blo, bhi float64) (float64, float64) {
 		switch {
 		case bhi < alo:
@@ -121,7 +128,7 @@ func rectGap(a, b r2.Rect) (float64, r2.Point) {
 	}
 	dx, mx := gap(a.X.Lo, a.X.Hi, b.X.Lo, b.X.Hi)
 	dy, my := gap(a.Y.Lo, a.Y.Hi, b.Y.Lo, b.Y.Hi)
-	return math.Hypot(dx, dy), r2.Point{X: mx, Y: my}
+	return Gap{NM: math.Hypot(dx, dy), At: r2.Point{X: mx, Y: my}, Extent: r2.Point{X: dx, Y: dy}}
 }
 
 // boundsGap is the distance between the bounding boxes of a and b, a
@@ -143,13 +150,20 @@ func boundsGap(a, b *CellIndex) float64 {
 // cost is O(rects · (limit/8 nm + rect length/8 nm)² · local density),
 // independent of the sets' site counts.
 func (a *CellIndex) GapWithin(b *CellIndex, limit float64) (d float64, at r2.Point, ok bool) {
+	g, ok := a.SpanWithin(b, limit)
+	return g.NM, g.At, ok
+}
+
+// SpanWithin is GapWithin with the whole shortest segment: its length,
+// midpoint and extent along x and y (see Gap).
+func (a *CellIndex) SpanWithin(b *CellIndex, limit float64) (Gap, bool) {
 	if len(b.rects) < len(a.rects) {
-		return b.GapWithin(a, limit)
+		return b.SpanWithin(a, limit)
 	}
 	if !(boundsGap(a, b) <= limit) {
-		return 0, r2.Point{}, false
+		return Gap{}, false
 	}
-	best := math.Inf(1)
+	best := Gap{NM: math.Inf(1)}
 	// seen[j] == k+1 when a's rectangle k has looked at b's rectangle j,
 	// which sits in several grid cells.
 	seen := make([]int32, len(b.rects))
@@ -168,17 +182,17 @@ func (a *CellIndex) GapWithin(b *CellIndex, limit float64) (d float64, at r2.Poi
 						continue
 					}
 					seen[j] = stamp
-					if g, p := rectGap(r, b.rects[j]); g < best {
-						best, at = g, p
+					if s := rectSpan(r, b.rects[j]); s.NM < best.NM {
+						best = s
 					}
 				}
 			}
 		}
 	}
-	if best > limit {
-		return 0, r2.Point{}, false
+	if best.NM > limit {
+		return Gap{}, false
 	}
-	return best, at, true
+	return best, true
 }
 
 // Gap returns the least distance, in nm, between the cells of a and b
@@ -187,13 +201,77 @@ func (a *CellIndex) GapWithin(b *CellIndex, limit float64) (d float64, at r2.Poi
 // bounding boxes' distance until it finds the nearest cells, so sets far
 // apart cost little more than near ones.
 func (a *CellIndex) Gap(b *CellIndex) (float64, r2.Point) {
+	g := a.Span(b)
+	return g.NM, g.At
+}
+
+// Span is Gap with the whole shortest segment (see Gap); its NM is +Inf
+// when either index is empty.
+func (a *CellIndex) Span(b *CellIndex) Gap {
 	lower := boundsGap(a, b)
 	if math.IsInf(lower, 1) {
-		return lower, r2.Point{}
+		return Gap{NM: lower}
 	}
 	for limit := lower + 1; ; limit *= 2 {
-		if d, at, ok := a.GapWithin(b, limit); ok {
-			return d, at
+		if g, ok := a.SpanWithin(b, limit); ok {
+			return g
 		}
 	}
+}
+
+// Gap is the intact surface between two site sets, as a CellIndex
+// measures it: the shortest segment between their cells, of length NM,
+// midpoint At (field nm) and extent Extent along x and along y (each ≥ 0,
+// nm). Where the segment crosses the dimer rows its width counts intact
+// rows (n rows measure n·RowSpacing); where it runs along a row, intact
+// dimers (n·DimerPitch); see Surface.GapInLattice.
+type Gap struct {
+	NM     float64
+	At     r2.Point
+	Extent r2.Point
+}
+
+// GapInLattice returns g's width in the lattice of the terrace at g.At:
+// rows, the intact dimer rows it crosses (its extent across the rows over
+// RowSpacing), and dimers, the intact dimers it spans along them (its
+// extent along the rows over DimerPitch). ok is false where no terrace
+// holds g.At.
+func (s *Surface) GapInLattice(g Gap) (rows, dimers float64, ok bool) {
+	t := s.TerraceAt(g.At)
+	if t < 0 {
+		return 0, 0, false
+	}
+	along, across := s.Terraces[t].Rows.Split(g.Extent)
+	return across / RowSpacing, along / DimerPitch, true
+}
+
+// DescribeGap states g's width in the lattice unit of its direction,
+// saying which: "9.0 dimer rows across the rows" for a gap that crosses
+// rows, "17.0 dimers along a row" for one that runs along a row, both
+// counts for a diagonal one, and "" where no terrace holds g.At. Callers
+// put it beside the width in nm: "6.91 nm (9.0 dimer rows across the
+// rows)".
+func (s *Surface) DescribeGap(g Gap) string {
+	rows, dimers, ok := s.GapInLattice(g)
+	// Cell edges are shared by neighbouring sites, so a straight gap has
+	// no extent at all the other way; 0.01 nm forgives rounding.
+	const flat = 0.01
+	switch {
+	case !ok:
+		return ""
+	case dimers*DimerPitch < flat:
+		return fmt.Sprintf("%.1f dimer rows across the rows", rows)
+	case rows*RowSpacing < flat:
+		return fmt.Sprintf("%.1f dimers along a row", dimers)
+	}
+	return fmt.Sprintf("diagonal: %.1f dimer rows across, %.1f dimers along the rows", rows, dimers)
+}
+
+// GapText formats g as its width in nm with DescribeGap's count beside
+// it: "6.91 nm (9.0 dimer rows across the rows)".
+func (s *Surface) GapText(g Gap) string {
+	if d := s.DescribeGap(g); d != "" {
+		return fmt.Sprintf("%.2f nm (%s)", g.NM, d)
+	}
+	return fmt.Sprintf("%.2f nm", g.NM)
 }

@@ -106,3 +106,42 @@ func TestCellIndexGapMatchesBruteForce(t *testing.T) {
 		}
 	}
 }
+
+// A gap is counted in the unit of its direction: intact dimer rows where
+// it crosses the rows, intact dimers where it runs along a row (the
+// issue's "6.53 nm (8.5 dimer rows)" was 17 dimers along a row), on
+// terraces with rows along x and along y, where the same sets turn.
+func TestDescribeGap(t *testing.T) {
+	run := func(row, d0, d1 int) *SiteSet {
+		set := NewSiteSet()
+		set.AddRun(0, row, 2*d0, 2*d1+2)
+		return set
+	}
+	tests := []struct {
+		name   string
+		a, b   *SiteSet
+		nm     float64
+		rows   float64
+		dimers float64
+		text   string
+	}{
+		{"across nine rows", run(10, 5, 20), run(20, 5, 20), 9 * RowSpacing, 9, 0, "6.91 nm (9.0 dimer rows across the rows)"},
+		{"along seventeen dimers", run(10, 5, 20), run(10, 38, 50), 17 * DimerPitch, 0, 17, "6.53 nm (17.0 dimers along a row)"},
+		{"diagonal", run(10, 5, 20), run(14, 25, 30), math.Hypot(3*RowSpacing, 4*DimerPitch), 3, 4, "2.77 nm (diagonal: 3.0 dimer rows across, 4.0 dimers along the rows)"},
+	}
+	for _, rows := range []RowDirection{RowsAlongX, RowsAlongY} {
+		s := mustSurface(t, 100, 100, Terrace{Name: "t", Rows: rows})
+		for _, tc := range tests {
+			t.Run(rows.String()+"/"+tc.name, func(t *testing.T) {
+				g := NewCellIndex(s, tc.a).Span(NewCellIndex(s, tc.b))
+				r, d, ok := s.GapInLattice(g)
+				if !ok || math.Abs(g.NM-tc.nm) > 1e-9 || math.Abs(r-tc.rows) > 1e-9 || math.Abs(d-tc.dimers) > 1e-9 {
+					t.Errorf("gap %+v: %g rows, %g dimers (ok %v); want %g nm, %g rows, %g dimers", g, r, d, ok, tc.nm, tc.rows, tc.dimers)
+				}
+				if got := s.GapText(g); got != tc.text {
+					t.Errorf("GapText = %q, want %q", got, tc.text)
+				}
+			})
+		}
+	}
+}

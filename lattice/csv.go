@@ -1,8 +1,6 @@
 package lattice
 
 import (
-	"encoding/csv"
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -10,6 +8,8 @@ import (
 	"strings"
 
 	"github.com/golang/geo/r2"
+
+	"dimerpath/internal/csvfile"
 )
 
 // OffLatticeNM is the distance from the nearest site (or window centre)
@@ -26,54 +26,38 @@ type CSVPoint struct {
 	At   r2.Point
 }
 
-// CSVError reports a malformed line of a CSV file.
-type CSVError struct {
-	File  string
-	Line  int
-	Field int // 1-based column, 0 for the whole line
-	Err   error
-}
-
-func (e *CSVError) Error() string {
-	if e.Field > 0 {
-		return fmt.Sprintf("%s: line %d, field %d: %v", e.File, e.Line, e.Field, e.Err)
-	}
-	return fmt.Sprintf("%s: line %d: %v", e.File, e.Line, e.Err)
-}
-
-func (e *CSVError) Unwrap() error { return e.Err }
+// MaxCSVBytes bounds a point file (256 MiB: MaxCSVPoints short lines);
+// a larger file is refused before it is read.
+const MaxCSVBytes = 256 << 20
 
 // ReadPointsCSV reads positions in nm, one "x,y" per line, as written by
 // a script that lays out an array. Lines starting with # are comments;
 // the first line may be a header (any line whose fields are not both
 // numbers, before the first point). name is used in errors. A malformed
-// line stops the read with a *CSVError naming its line and field.
+// line stops the read with a *csvfile.Error naming its line and column
+// (x or y). At most MaxCSVPoints points, MaxCSVBytes bytes and
+// csvfile.MaxLine bytes a line are read.
 func ReadPointsCSV(r io.Reader, name string) ([]CSVPoint, error) {
-	cr := csv.NewReader(r)
-	cr.Comment = '#'
-	cr.FieldsPerRecord = -1
-	cr.TrimLeadingSpace = true
-	cr.ReuseRecord = true
+	cr, err := csvfile.NewReader(r, name, MaxCSVBytes, nil)
+	if err != nil {
+		return nil, err
+	}
+	columns := [2]string{"x", "y"}
 	var pts []CSVPoint
 	first := true
 	for {
-		rec, err := cr.Read()
+		rec, line, err := cr.Read()
 		if err == io.EOF {
 			return pts, nil
 		}
 		if err != nil {
-			var pe *csv.ParseError
-			if errors.As(err, &pe) {
-				return nil, &CSVError{File: name, Line: pe.Line, Field: pe.Column, Err: pe.Err}
-			}
-			return nil, fmt.Errorf("%s: %w", name, err)
+			return nil, err
 		}
-		line, _ := cr.FieldPos(0)
 		if len(rec) == 1 && strings.TrimSpace(rec[0]) == "" {
 			continue
 		}
 		if len(rec) != 2 {
-			return nil, &CSVError{File: name, Line: line, Err: fmt.Errorf("has %d fields; want 2, x and y in nm", len(rec))}
+			return nil, cr.Errorf(line, "", "", "has %d fields; want 2, x and y in nm", len(rec))
 		}
 		var xy [2]float64
 		bad := -1
@@ -90,11 +74,11 @@ func ReadPointsCSV(r io.Reader, name string) ([]CSVPoint, error) {
 				first = false
 				continue // a header line
 			}
-			return nil, &CSVError{File: name, Line: line, Field: bad + 1, Err: fmt.Errorf("%q is not a finite number of nm", rec[bad])}
+			return nil, cr.Errorf(line, columns[bad], rec[bad], "not a finite number of nm")
 		}
 		first = false
 		if len(pts) >= MaxCSVPoints {
-			return nil, &CSVError{File: name, Line: line, Err: fmt.Errorf("more than %d points, the limit", MaxCSVPoints)}
+			return nil, cr.Errorf(line, "", "", "more than %d points, the limit", MaxCSVPoints)
 		}
 		pts = append(pts, CSVPoint{Line: line, At: r2.Point{X: xy[0], Y: xy[1]}})
 	}

@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"strings"
 	"testing"
+
+	"dimerpath/internal/csvfile"
 )
 
 func TestReadPointsCSV(t *testing.T) {
@@ -40,20 +42,22 @@ func TestReadPointsCSV(t *testing.T) {
 
 func TestReadPointsCSVRefuses(t *testing.T) {
 	tests := []struct {
-		in        string
-		line, fld int
-		msg       string
+		in     string
+		line   int
+		column string
+		msg    string
 	}{
-		{"1,2\n3,x\n", 2, 2, `"x" is not a finite number`},
-		{"x,y\n1,2\n3,NaN\n", 3, 2, "not a finite number"},
-		{"1,2,3\n", 1, 0, "has 3 fields"},
-		{"1,2\n\"3,4\n", 2, 0, ""},
+		{"1,2\n3,x\n", 2, "y", `bad.csv:2: y = "x": not a finite number of nm`},
+		{"x,y\n1,2\n3,NaN\n", 3, "y", "not a finite number"},
+		{"1,2,3\n", 1, "", "bad.csv:1: has 3 fields"},
+		{"1,2\n\"3,4\n", 2, "", ""},
+		{"x,y\n" + strings.Repeat("1", 100000) + ",2\n", 2, "", "bad.csv:2: line longer than 64 KiB, the limit"},
 	}
 	for _, tc := range tests {
 		_, err := ReadPointsCSV(strings.NewReader(tc.in), "bad.csv")
-		var ce *CSVError
-		if !errors.As(err, &ce) || ce.Line != tc.line || (tc.fld > 0 && ce.Field != tc.fld) || !strings.Contains(err.Error(), tc.msg) {
-			t.Errorf("ReadPointsCSV(%q) = %v; want line %d field %d %q", tc.in, err, tc.line, tc.fld, tc.msg)
+		ce, ok := errors.AsType[*csvfile.Error](err)
+		if !ok || ce.Line != tc.line || ce.Column != tc.column || !strings.Contains(err.Error(), tc.msg) {
+			t.Errorf("ReadPointsCSV(%.40q) = %v; want line %d column %q %q", tc.in, err, tc.line, tc.column, tc.msg)
 		}
 	}
 	s := mustSurface(t, 100, 100)

@@ -22,6 +22,18 @@
 // offset is reduced into one lattice cell, so index 0 lies at or just
 // inside the field's lower-left corner.
 //
+// Every conversion between the field and a terrace's rows is here, so a
+// change of lattice geometry is made in this package alone: a terrace's
+// Frame converts field points to distances along and across its rows
+// from its origin and back (ToLocal, ToField, LocalRect, FieldRect),
+// DimerAlong, RowAcross, SiteAcross and DimerEdge place dimers, rows,
+// sites and cell edges in it, RowDirection.Split and Join exchange the
+// axes without moving the origin, Frame.SnapRect and LatticeVector snap
+// rectangles and moves to whole dimers and rows, and DimersIn,
+// Surface.RowDimers,
+// Surface.TerraceSpans and Surface.Dimers answer which dimers lie in an
+// interval, exist on a row or meet a window.
+//
 // # Terraces and steps
 //
 // A Surface holds one or more terraces. A terrace with a Boundary polygon
@@ -34,7 +46,13 @@
 //
 // # Site sets and shapes
 //
-// A SiteSet is a bitset per dimer row, ordered terrace, row, index. Areas
+// A SiteSet is a bitset per dimer row, ordered terrace, row, index; a
+// row (RowBits) answers range queries a word at a time: counts, whether
+// any or all sites of a side are in a range, the sites or gaps of a
+// range, its runs. Lines are cut into intervals (r1.Interval, closed,
+// in nm) with linear-time list operations: NormalizeIntervals,
+// MergeIntervals, IntersectIntervals, SubtractIntervals and
+// SearchIntervals. Areas
 // (Rect, Polygon, Polyline with a width) are rasterised by Surface.Paint
 // one lattice line at a time: the area's spans on the line are clipped to
 // the terrace and set a 64-bit word at a time, so painting a 1 µm² square

@@ -5,7 +5,7 @@ import (
 	"testing"
 )
 
-// Check values from physics.md §1 and §7: the Si lattice constant is
+// Check values: the Si lattice constant is
 // CODATA 2018 (5.431 020 511 Å); the derived Si(100)-2x1 spacings are
 // 7.6806 Å between dimer rows and 3.8403 Å between dimers along a row
 // (7.68 Å and 3.84 Å measured, arXiv cond-mat/0611417); the H density of
@@ -27,7 +27,8 @@ func TestGeometryAgainstPublishedValues(t *testing.T) {
 		{"StepHeight a/4 = 1.3578 Å", StepHeight * 10, 1.3578, 0.5e-4},
 		{"StepShift a/(2√2) = 1.920 Å", StepShift * 10, 1.920, 0.5e-3},
 		// Wang et al., Commun. Phys. 3, 82 (2020): 7–16 dimer rows are
-		// 5.4–12.3 nm; physics.md §7.5: 11 rows = 8.45 nm.
+		// 5.4–12.3 nm, and 11 rows (8.45 nm) is their example where ±1
+		// row changes the resistance about tenfold.
 		{"7 rows = 5.4 nm (Wang 2020)", 7 * RowSpacing, 5.4, 0.05},
 		{"16 rows = 12.3 nm (Wang 2020)", 16 * RowSpacing, 12.3, 0.05},
 		{"11 rows = 8.45 nm", 11 * RowSpacing, 8.45, 0.005},

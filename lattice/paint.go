@@ -2,7 +2,9 @@ package lattice
 
 import (
 	"math"
+	"slices"
 
+	"github.com/golang/geo/r1"
 	"github.com/golang/geo/r2"
 )
 
@@ -72,43 +74,42 @@ func (s *Surface) rasterise(a Area, emit func(t, r, d0, d1, side int)) {
 	if b.IsEmpty() || !b.Intersects(s.Field.ExpandedByMargin(HOffset)) {
 		return
 	}
-	var terr, s0, s1, i0, i1, both, only []Span
+	var terr, s0, s1, i0, i1, both, only []r1.Interval
 	for ti := range s.Terraces {
-		t := &s.Terraces[ti]
-		offAlong, offAcross := s.axes(t.Rows, t.Offset)
+		f := s.Frame(ti)
+		offAlong, offAcross := f.Rows.Split(f.Origin)
 		bAcross := b.Y
-		if t.Rows == RowsAlongY {
+		if f.Rows == RowsAlongY {
 			bAcross = b.X
 		}
 		nRows, nDimers := s.RowCount(ti), s.DimerCount(ti)
-		r0 := max(0, int(math.Ceil((bAcross.Lo-HOffset-offAcross)/RowSpacing-1e-9)))
-		r1 := min(nRows-1, int(math.Floor((bAcross.Hi+HOffset-offAcross)/RowSpacing+1e-9)))
-		for r := r0; r <= r1; r++ {
-			c := offAcross + float64(r)*RowSpacing
-			terr = s.terraceSpans(terr[:0], ti, c)
+		rowLo := max(0, int(math.Ceil((bAcross.Lo-HOffset-offAcross)/RowSpacing-1e-9)))
+		rowHi := min(nRows-1, int(math.Floor((bAcross.Hi+HOffset-offAcross)/RowSpacing+1e-9)))
+		for r := rowLo; r <= rowHi; r++ {
+			c := offAcross + RowAcross(r)
+			terr = s.TerraceSpans(terr[:0], ti, c)
 			if len(terr) == 0 {
 				continue
 			}
-			s0 = a.Spans(s0[:0], t.Rows, c-HOffset)
-			s1 = a.Spans(s1[:0], t.Rows, c+HOffset)
-			i0 = intersectSpans(i0[:0], s0, terr)
-			i1 = intersectSpans(i1[:0], s1, terr)
-			toDimers := func(sp []Span) []Span {
-				// Reuse the slice: Lo and Hi become the half-open dimer
-				// range [d0, d1+1); empty ranges are dropped.
+			s0 = a.Spans(s0[:0], f.Rows, c-HOffset)
+			s1 = a.Spans(s1[:0], f.Rows, c+HOffset)
+			i0 = IntersectIntervals(i0[:0], s0, terr)
+			i1 = IntersectIntervals(i1[:0], s1, terr)
+			toDimers := func(sp []r1.Interval) []r1.Interval {
+				// Reuse the slice: Lo and Hi become the dimer range
+				// [d0, d1+1); empty ranges are dropped.
 				out := sp[:0]
 				for _, x := range sp {
-					d0 := int(math.Ceil((x.Lo-offAlong)/DimerPitch - 1e-9))
-					d1 := int(math.Ceil((x.Hi-offAlong)/DimerPitch+1e-9)) - 1
-					d0, d1 = max(d0, 0), min(d1, nDimers-1)
-					if d0 <= d1 {
-						out = append(out, Span{float64(d0), float64(d1 + 1)})
+					d := DimersIn(r1.Interval{Lo: x.Lo - offAlong, Hi: x.Hi - offAlong})
+					d.Lo, d.Hi = max(d.Lo, 0), min(d.Hi, nDimers)
+					if !d.IsEmpty() {
+						out = append(out, r1.Interval{Lo: float64(d.Lo), Hi: float64(d.Hi)})
 					}
 				}
 				return out
 			}
 			i0, i1 = toDimers(i0), toDimers(i1)
-			if equalSpans(i0, i1) {
+			if slices.Equal(i0, i1) {
 				for _, x := range i0 {
 					emit(ti, r, int(x.Lo), int(x.Hi)-1, -1)
 				}
@@ -116,12 +117,12 @@ func (s *Surface) rasterise(a Area, emit func(t, r, d0, d1, side int)) {
 			}
 			// Where the sides differ (slanted edges), emit the dimers both
 			// sides cover as whole runs and only the rest side by side.
-			both = intersectSpans(both[:0], i0, i1)
+			both = IntersectIntervals(both[:0], i0, i1)
 			for _, x := range both {
 				emit(ti, r, int(x.Lo), int(x.Hi)-1, -1)
 			}
-			for side, sp := range [2][]Span{i0, i1} {
-				only = subtractSpans(only[:0], sp, both)
+			for side, sp := range [2][]r1.Interval{i0, i1} {
+				only = SubtractIntervals(only[:0], sp, both)
 				for _, x := range only {
 					emit(ti, r, int(x.Lo), int(x.Hi)-1, side)
 				}
@@ -130,55 +131,47 @@ func (s *Surface) rasterise(a Area, emit func(t, r, d0, d1, side int)) {
 	}
 }
 
-func equalSpans(a, b []Span) bool {
-	if len(a) != len(b) {
-		return false
-	}
-	for i := range a {
-		if a[i] != b[i] {
-			return false
-		}
-	}
-	return true
-}
-
-// terraceSpans appends to dst the spans of the along-row coordinate on
-// the line across = c (in terrace ti's row direction) where a point lies
-// on terrace ti by the rule of TerraceAt, clipped to the field.
-func (s *Surface) terraceSpans(dst []Span, ti int, c float64) []Span {
-	t := &s.Terraces[ti]
+// TerraceSpans appends to dst the intervals of the along-row field
+// coordinate, on the line where the across-row field coordinate equals
+// across (in terrace t's row direction), whose points lie on terrace t
+// by the rule of TerraceAt, clipped to the field, and returns dst. The
+// intervals are normalized and widened by 10⁻⁹ nm, as Area spans are, so
+// that a point exactly on an edge counts as on the terrace. Complexity:
+// O(vertices of t and of the bounded terraces before it).
+func (s *Surface) TerraceSpans(dst []r1.Interval, t int, across float64) []r1.Interval {
+	tr := &s.Terraces[t]
 	fieldAlong, fieldAcross := s.Field.X, s.Field.Y
-	if t.Rows == RowsAlongY {
+	if tr.Rows == RowsAlongY {
 		fieldAlong, fieldAcross = s.Field.Y, s.Field.X
 	}
-	if c < fieldAcross.Lo-spanEps || c > fieldAcross.Hi+spanEps {
+	if across < fieldAcross.Lo-spanEps || across > fieldAcross.Hi+spanEps {
 		return dst
 	}
-	field := []Span{closedSpan(fieldAlong.Lo-spanEps, fieldAlong.Hi+spanEps)}
-	var own []Span
+	field := []r1.Interval{{Lo: fieldAlong.Lo - spanEps, Hi: fieldAlong.Hi + spanEps}}
+	var own []r1.Interval
 	var earlier []int
 	switch {
-	case len(t.Boundary) >= 3:
-		own = Polygon(t.Boundary).Spans(nil, t.Rows, c)
+	case len(tr.Boundary) >= 3:
+		own = Polygon(tr.Boundary).Spans(nil, tr.Rows, across)
 		for _, j := range s.bounded {
-			if j == ti {
+			if j == t {
 				break
 			}
 			earlier = append(earlier, j)
 		}
-	case ti == s.fallback:
+	case t == s.fallback:
 		own = field
 		earlier = s.bounded
 	default:
 		return dst // a second terrace without boundary holds nothing
 	}
-	var taken []Span
+	var taken []r1.Interval
 	for _, j := range earlier {
-		taken = Polygon(s.Terraces[j].Boundary).Spans(taken, t.Rows, c)
+		taken = Polygon(s.Terraces[j].Boundary).Spans(taken, tr.Rows, across)
 	}
-	taken = normalizeSpans(taken)
-	clipped := intersectSpans(nil, own, field)
-	return subtractSpans(dst, clipped, taken)
+	taken = NormalizeIntervals(taken)
+	clipped := IntersectIntervals(nil, own, field)
+	return SubtractIntervals(dst, clipped, taken)
 }
 
 // Missing returns the sites of set that do not exist on the surface:
@@ -186,24 +179,19 @@ func (s *Surface) terraceSpans(dst []Span, ti int, c float64) []Span {
 // another terrace. Complexity O(rows·(terraces + words)).
 func (s *Surface) Missing(set *SiteSet) *SiteSet {
 	out := set.Clone()
-	var terr []Span
+	var dims []DimerRange
 	for t := range out.terraces {
 		if t >= len(s.Terraces) {
 			continue // every site of an unknown terrace is missing
 		}
-		tr := &s.Terraces[t]
-		offAlong, offAcross := s.axes(tr.Rows, tr.Offset)
-		nRows, nDimers := s.RowCount(t), s.DimerCount(t)
 		for r, w := range out.terraces[t] {
-			if len(w) == 0 || r >= nRows {
+			if len(w) == 0 {
 				continue
 			}
-			terr = s.terraceSpans(terr[:0], t, offAcross+float64(r)*RowSpacing)
-			for _, x := range terr {
-				d0 := max(0, int(math.Ceil((x.Lo-offAlong)/DimerPitch-1e-9)))
-				d1 := min(nDimers-1, int(math.Ceil((x.Hi-offAlong)/DimerPitch+1e-9))-1)
-				from, to := 2*d0, min(2*d1+2, len(w)*64)
-				if from < to {
+			dims = s.RowDimers(dims[:0], t, r)
+			for _, d := range dims {
+				from, to := d.Sites()
+				if to = min(to, len(w)*64); from < to {
 					setRange(w, from, to, false)
 				}
 			}
@@ -248,15 +236,26 @@ func (s *Surface) RunCells(dst []r2.Rect, run Run) []r2.Rect {
 	return dst
 }
 
+// DimerCells returns the union of the 2x1 cells of the dimers of one row
+// of a terrace, in field nm: DimerPitch along the row for each dimer and
+// RowSpacing across it, centred on the dimers. It is empty for an empty
+// range.
+func (s *Surface) DimerCells(terrace, row int, dimers DimerRange) r2.Rect {
+	if dimers.IsEmpty() {
+		return r2.EmptyRect()
+	}
+	return s.cell(terrace, row, dimers.Lo, dimers.Hi-1, 0, 1)
+}
+
 // cell returns the rectangle of the cells of dimers d0..d1 of a row,
 // sides side0..side1.
 func (s *Surface) cell(terrace, row, d0, d1, side0, side1 int) r2.Rect {
 	t := &s.Terraces[terrace]
-	offAlong, offAcross := s.axes(t.Rows, t.Offset)
-	c := offAcross + float64(row)*RowSpacing
-	alongLo := offAlong + (float64(d0)-0.5)*DimerPitch
-	alongHi := offAlong + (float64(d1)+0.5)*DimerPitch
+	offAlong, offAcross := t.Rows.Split(t.Offset)
+	c := offAcross + RowAcross(row)
+	alongLo := offAlong + DimerEdge(d0)
+	alongHi := offAlong + DimerEdge(d1+1)
 	acrossLo := c - RowSpacing/2 + float64(side0)*RowSpacing/2
 	acrossHi := c + float64(side1)*RowSpacing/2
-	return r2.RectFromPoints(fromAxes(t.Rows, alongLo, acrossLo), fromAxes(t.Rows, alongHi, acrossHi))
+	return r2.RectFromPoints(t.Rows.Join(alongLo, acrossLo), t.Rows.Join(alongHi, acrossHi))
 }

@@ -189,7 +189,8 @@ func TestTemplateValidate(t *testing.T) {
 			t.Errorf("built-in %s: %v", tmpl.Name, err)
 		}
 	}
-	// physics.md §4/§7: P 63 ± 10 % (Ivie 2021), As 97 ± 2 % (Stock 2024).
+	// P 63 ± 10 % for a 3-dimer window (Ivie et al., arXiv 2105.12074,
+	// 2021); As 97 ± 2 % (Stock et al., arXiv 2311.05752, 2024).
 	if PhosphineWindow.Probability != 0.63 || PhosphineWindow.Sites() != 6 {
 		t.Errorf("P template %+v", PhosphineWindow)
 	}

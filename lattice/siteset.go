@@ -16,11 +16,8 @@ import (
 // The zero value is an empty set ready to use. A SiteSet is not safe for
 // concurrent mutation.
 type SiteSet struct {
-	terraces [][]rowBits // [terrace][row]
+	terraces [][]RowBits // [terrace][row]
 }
-
-// rowBits is one row's bitset; nil is an empty row.
-type rowBits []uint64
 
 // Run is a maximal run of consecutive sites on one row: indices
 // Start..Start+Len-1.
@@ -35,7 +32,7 @@ func (r Run) End() int { return r.Start + r.Len }
 // NewSiteSet returns an empty set.
 func NewSiteSet() *SiteSet { return &SiteSet{} }
 
-func (s *SiteSet) row(terrace, row int, grow bool) *rowBits {
+func (s *SiteSet) row(terrace, row int, grow bool) *RowBits {
 	if terrace < 0 || row < 0 {
 		panic("lattice: negative site address")
 	}
@@ -46,20 +43,20 @@ func (s *SiteSet) row(terrace, row int, grow bool) *rowBits {
 		if !grow {
 			return nil
 		}
-		s.terraces = append(s.terraces, make([][]rowBits, terrace+1-len(s.terraces))...)
+		s.terraces = append(s.terraces, make([][]RowBits, terrace+1-len(s.terraces))...)
 	}
 	rows := s.terraces[terrace]
 	if row >= len(rows) {
 		if !grow {
 			return nil
 		}
-		rows = append(rows, make([]rowBits, row+1-len(rows))...)
+		rows = append(rows, make([]RowBits, row+1-len(rows))...)
 		s.terraces[terrace] = rows
 	}
 	return &rows[row]
 }
 
-func (r *rowBits) ensure(words int) {
+func (r *RowBits) ensure(words int) {
 	if words > MaxRowIndex/64 {
 		panic("lattice: site index beyond MaxRowIndex")
 	}
@@ -228,7 +225,7 @@ func UnionOf(sets ...*SiteSet) *SiteSet {
 		}
 		for t, rows := range o.terraces {
 			if len(rows) > len(u.terraces[t]) {
-				u.terraces[t] = append(u.terraces[t], make([]rowBits, len(rows)-len(u.terraces[t]))...)
+				u.terraces[t] = append(u.terraces[t], make([]RowBits, len(rows)-len(u.terraces[t]))...)
 			}
 		}
 	}
@@ -242,7 +239,7 @@ func UnionOf(sets ...*SiteSet) *SiteSet {
 				}
 			}
 			if n > 0 {
-				rows[r] = make(rowBits, n)
+				rows[r] = make(RowBits, n)
 			}
 		}
 	}
@@ -286,7 +283,7 @@ func (s *SiteSet) Intersect(o *SiteSet) *SiteSet {
 	for t, rows := range s.terraces {
 		for r := range rows {
 			a := rows[r]
-			var b rowBits
+			var b RowBits
 			if t < len(o.terraces) && r < len(o.terraces[t]) {
 				b = o.terraces[t][r]
 			}
@@ -352,12 +349,12 @@ func (s *SiteSet) IsEmpty() bool {
 
 // Clone returns an independent copy of s.
 func (s *SiteSet) Clone() *SiteSet {
-	c := &SiteSet{terraces: make([][]rowBits, len(s.terraces))}
+	c := &SiteSet{terraces: make([][]RowBits, len(s.terraces))}
 	for t, rows := range s.terraces {
-		c.terraces[t] = make([]rowBits, len(rows))
+		c.terraces[t] = make([]RowBits, len(rows))
 		for r, b := range rows {
 			if len(b) > 0 {
-				c.terraces[t][r] = append(rowBits(nil), b...)
+				c.terraces[t][r] = append(RowBits(nil), b...)
 			}
 		}
 	}
@@ -387,9 +384,10 @@ func (s *SiteSet) Equal(o *SiteSet) bool {
 	return true
 }
 
-// Row returns the bitset of one row, bit i for in-row index i, or nil.
-// The slice aliases the set's storage: read it, do not keep or change it.
-func (s *SiteSet) Row(terrace, row int) []uint64 {
+// Row returns the sites of one row as a bitset, bit i for in-row index
+// i, or nil. It aliases the set's storage: read it, do not keep or
+// change it.
+func (s *SiteSet) Row(terrace, row int) RowBits {
 	if terrace < 0 || row < 0 || terrace >= len(s.terraces) || row >= len(s.terraces[terrace]) {
 		return nil
 	}
@@ -446,7 +444,7 @@ func (s *SiteSet) Runs() iter.Seq[Run] {
 
 // eachRun calls f(start, end) for each maximal run of set bits of w, and
 // reports whether it ran to the end.
-func eachRun(w rowBits, f func(start, end int) bool) bool {
+func eachRun(w RowBits, f func(start, end int) bool) bool {
 	n := len(w) * 64
 	i := nextBit(w, 0, true)
 	for i < n {
@@ -461,7 +459,7 @@ func eachRun(w rowBits, f func(start, end int) bool) bool {
 
 // nextBit returns the first index >= from whose bit equals on, or
 // len(w)*64 if none.
-func nextBit(w rowBits, from int, on bool) int {
+func nextBit(w RowBits, from int, on bool) int {
 	n := len(w) * 64
 	if from >= n {
 		return n

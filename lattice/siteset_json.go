@@ -95,7 +95,7 @@ func (s *SiteSet) MarshalJSON() ([]byte, error) {
 	return b, nil
 }
 
-func isZero(w rowBits) bool {
+func isZero(w RowBits) bool {
 	for _, x := range w {
 		if x != 0 {
 			return false

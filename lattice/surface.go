@@ -152,10 +152,10 @@ func NewSurface(width, height float64, terraces ...Terrace) (*Surface, error) {
 		fallback: -1,
 	}
 	for i, t := range terraces {
-		along, across := s.axes(t.Rows, t.Offset)
+		along, across := t.Rows.Split(t.Offset)
 		along = reduce(along, DimerPitch)
 		across = reduce(across, RowSpacing)
-		t.Offset = fromAxes(t.Rows, along, across)
+		t.Offset = t.Rows.Join(along, across)
 		s.Terraces[i] = t
 		if len(t.Boundary) >= 3 {
 			s.bounded = append(s.bounded, i)
@@ -177,21 +177,6 @@ func reduce(v, period float64) float64 {
 	return v
 }
 
-// axes splits p into its along-row and across-row components.
-func (s *Surface) axes(d RowDirection, p r2.Point) (along, across float64) {
-	if d == RowsAlongY {
-		return p.Y, p.X
-	}
-	return p.X, p.Y
-}
-
-func fromAxes(d RowDirection, along, across float64) r2.Point {
-	if d == RowsAlongY {
-		return r2.Point{X: across, Y: along}
-	}
-	return r2.Point{X: along, Y: across}
-}
-
 // Width and Height return the field size in nm.
 func (s *Surface) Width() float64  { return s.Field.X.Hi }
 func (s *Surface) Height() float64 { return s.Field.Y.Hi }
@@ -199,31 +184,31 @@ func (s *Surface) Height() float64 { return s.Field.Y.Hi }
 // Position returns the field position in nm of the H site.
 func (s *Surface) Position(site Site) r2.Point {
 	t := &s.Terraces[site.Terrace]
-	along, across := s.axes(t.Rows, t.Offset)
-	along += float64(site.Dimer) * DimerPitch
-	across += float64(site.Row) * RowSpacing
+	along, across := t.Rows.Split(t.Offset)
+	along += DimerAlong(site.Dimer)
+	across += RowAcross(site.Row)
 	if site.Side == 0 {
 		across -= HOffset
 	} else {
 		across += HOffset
 	}
-	return fromAxes(t.Rows, along, across)
+	return t.Rows.Join(along, across)
 }
 
 // DimerCentre returns the centre of the dimer carrying site: the point on
 // its row's centre line midway between the two H sites.
 func (s *Surface) DimerCentre(terrace, row, dimer int) r2.Point {
 	t := &s.Terraces[terrace]
-	along, across := s.axes(t.Rows, t.Offset)
-	return fromAxes(t.Rows, along+float64(dimer)*DimerPitch, across+float64(row)*RowSpacing)
+	along, across := t.Rows.Split(t.Offset)
+	return t.Rows.Join(along+DimerAlong(dimer), across+RowAcross(row))
 }
 
 // RowCount returns the number of dimer rows of the terrace whose centre
 // lines lie inside the field.
 func (s *Surface) RowCount(terrace int) int {
 	t := &s.Terraces[terrace]
-	_, across := s.axes(t.Rows, t.Offset)
-	_, extent := s.axes(t.Rows, r2.Point{X: s.Width(), Y: s.Height()})
+	_, across := t.Rows.Split(t.Offset)
+	_, extent := t.Rows.Split(r2.Point{X: s.Width(), Y: s.Height()})
 	return int(math.Floor((extent-across)/RowSpacing)) + 1
 }
 
@@ -231,8 +216,8 @@ func (s *Surface) RowCount(terrace int) int {
 // centres lie inside the field.
 func (s *Surface) DimerCount(terrace int) int {
 	t := &s.Terraces[terrace]
-	along, _ := s.axes(t.Rows, t.Offset)
-	extent, _ := s.axes(t.Rows, r2.Point{X: s.Width(), Y: s.Height()})
+	along, _ := t.Rows.Split(t.Offset)
+	extent, _ := t.Rows.Split(r2.Point{X: s.Width(), Y: s.Height()})
 	return int(math.Floor((extent-along)/DimerPitch)) + 1
 }
 
@@ -286,12 +271,11 @@ func (s *Surface) SnapDimer(p r2.Point) (terrace, row, dimer int, ok bool) {
 }
 
 func (s *Surface) nearestOnTerrace(ti int, p r2.Point) Site {
-	t := &s.Terraces[ti]
-	along, across := s.axes(t.Rows, p.Sub(t.Offset))
+	along, across := s.Frame(ti).ToLocal(p)
 	row := clamp(int(math.Round(across/RowSpacing)), 0, s.RowCount(ti)-1)
 	dimer := clamp(int(math.Round(along/DimerPitch)), 0, s.DimerCount(ti)-1)
 	side := 0
-	if across >= float64(row)*RowSpacing {
+	if across >= RowAcross(row) {
 		side = 1
 	}
 	best := Site{Terrace: ti, Row: row, Dimer: dimer, Side: side}

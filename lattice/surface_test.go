@@ -51,8 +51,8 @@ func TestAcrossStep(t *testing.T) {
 	if high.Rows != RowsAlongY {
 		t.Fatalf("rows across a step = %v, want y", high.Rows)
 	}
-	// The lattice shifts by a/(2√2) along the new rows (diamond lattice,
-	// physics.md §1).
+	// The lattice shifts by a/(2√2) along the new rows (the diamond
+	// structure).
 	if d := high.Offset.Sub(low.Offset); math.Abs(d.X) > 1e-12 || math.Abs(d.Y-SiLatticeConstant/(2*math.Sqrt2)) > 1e-12 {
 		t.Errorf("offset shift = %v, want (0, a/(2√2))", d)
 	}

@@ -120,8 +120,7 @@ func (s *Surface) PlaceWindow(t WindowTemplate, p r2.Point) (w Window, ok bool) 
 	if ti < 0 {
 		return Window{}, false
 	}
-	tr := &s.Terraces[ti]
-	along, across := s.axes(tr.Rows, p.Sub(tr.Offset))
+	along, across := s.Frame(ti).ToLocal(p)
 	row := clamp(int(math.Round(across/RowSpacing)), 0, s.RowCount(ti)-1)
 	first := int(math.Round(along/DimerPitch - float64(t.Dimers-1)/2))
 	return Window{Template: t, Terrace: ti, Row: row, FirstDimer: first}, true

@@ -53,7 +53,7 @@ func BenchmarkPlan(b *testing.B) {
 			b.ResetTimer()
 			for i := 0; i < b.N; i++ {
 				var err error
-				p, err = Build(context.Background(), c.d, "", DefaultProfile(), Options{Seed: 1})
+				p, err = buildVariant(context.Background(), c.d, "", DefaultProfile(), Options{Seed: 1})
 				if err != nil {
 					b.Fatal(err)
 				}

@@ -7,6 +7,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 	"dimerpath/planner/route"
@@ -35,7 +36,7 @@ var stages = []struct {
 	name string
 	at   float64
 }{
-	{"layout", 0}, {"modes", 0.05}, {"strokes", 0.15}, {"coverage", 0.25},
+	{"modes", 0.05}, {"strokes", 0.15}, {"coverage", 0.25},
 	{"route", 0.4}, {"segments", 0.7}, {"spread", 0.8}, {"yield", 0.95},
 }
 
@@ -50,25 +51,29 @@ func (o *Options) stage(name string) {
 	}
 }
 
-// Build plans one variant of d (the first when variant is "") with the
+// Build plans the laid-out variant lay (see design.Design.Lay, which the
+// caller shares with the checks, the export and the GUI) with the
 // instrument profile prof: it chooses each region's mode, generates the
 // strokes, proves their coverage, orders them with package route, splits
 // the writing order into drift-safe segments, lays out the timeline and
 // estimates its spread and the dopant yield. It returns ctx.Err() when
-// cancelled, a *ProfileError for an invalid profile, and a *LimitError
-// when the plan would need a value beyond prof.Limits.
-func Build(ctx context.Context, d *design.Design, variant string, prof Profile, opt Options) (*Plan, error) {
-	b := &builder{ctx: ctx, d: d, prof: prof, opt: opt}
-	return b.build(variant)
+// cancelled, a *jsonfile.Error for an invalid profile, and a *LimitError
+// when the plan would need a value beyond prof.Limits. It never panics: a
+// broken invariant of its own, or any panic on the way, comes back as an
+// *InternalError (errors.Is(err, ErrInternal)).
+func Build(ctx context.Context, lay *design.Layout, prof Profile, opt Options) (plan *Plan, err error) {
+	defer recoverInternal(&plan, &err)
+	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof, opt: opt}
+	return b.build()
 }
 
 type builder struct {
 	ctx  context.Context
-	d    *design.Design
+	lay  *design.Layout
+	d    *design.Design // lay.Design
 	prof Profile
 	opt  Options
 
-	lay      *design.Layout
 	gen      *strokeGen
 	regions  []*regionWork
 	fids     []Fiducial
@@ -76,25 +81,24 @@ type builder struct {
 	warnings []string
 }
 
-func (b *builder) build(variant string) (*Plan, error) {
-	prof := &b.prof
+func (b *builder) build() (*Plan, error) {
+	prof, lay := &b.prof, b.lay
 	if err := prof.Validate(); err != nil {
 		return nil, err
 	}
 	if err := prof.checkField(b.d.Field.WidthNM, b.d.Field.HeightNM); err != nil {
 		return nil, err
 	}
-	b.opt.stage("layout")
-	lay, err := b.d.Lay(variant)
-	if err != nil {
+	if err := b.checkRaster(); err != nil {
 		return nil, err
 	}
-	b.lay = lay
 	if err := b.ctx.Err(); err != nil {
 		return nil, err
 	}
 	b.gen = newStrokeGen(lay.Surface, prof)
-	b.regionWork()
+	if err := b.regionWork(); err != nil {
+		return nil, err
+	}
 
 	b.opt.stage("modes")
 	mc := &modeChooser{g: b.gen, prof: prof, keepOut: lay.Rules.FEKeepOutNM, regions: b.regions, feCache: map[*lattice.SiteSet][]Stroke{}}
@@ -108,12 +112,17 @@ func (b *builder) build(variant string) (*Plan, error) {
 
 	b.opt.stage("strokes")
 	windows := b.makeStrokes()
+	if err := checkStrokes(float64(len(b.strokes)), "one or more per run of sites and per FE serpentine; split the design"); err != nil {
+		return nil, err
+	}
 	use := b.modesUsed()
 	if err := prof.CheckLimits(&use); err != nil {
 		return nil, err
 	}
 	b.fiducials()
-	b.splitLong()
+	if err := b.splitLong(); err != nil {
+		return nil, err
+	}
 	for i := range b.strokes {
 		b.strokes[i].ID = i
 	}
@@ -149,7 +158,16 @@ func (b *builder) build(variant string) (*Plan, error) {
 		b.warnings = append(b.warnings, fmt.Sprintf("stroke %d (region %q) takes longer than its drift budget of %.3g s even right after a registration: expect drift beyond ±%g nm",
 			st.ID, st.Region, jobs[j].budgetS, st.ToleranceNM))
 	}
+	// A timeline holds a write or dwell per stroke, a move before each,
+	// and a registration, a switch and a verification per segment.
+	if n := 2*len(b.strokes) + 4*len(starts) + 2; n > MaxActions {
+		return nil, &CountError{What: "actions of the timeline", Count: float64(n), Max: MaxActions,
+			Cause: fmt.Sprintf("%d strokes in %d segments", len(b.strokes), len(starts))}
+	}
 	tl := schedule(sg, starts, b.strokes, prof)
+	if err := checkFiniteTime(tl.breakdown); err != nil {
+		return nil, err
+	}
 
 	b.opt.stage("spread")
 	dwells := 0
@@ -184,16 +202,19 @@ func (b *builder) build(variant string) (*Plan, error) {
 		plan.Segments[n-1].EndS = plan.TotalS
 	}
 	if math.Abs(plan.TotalS-total) > 1e-6*math.Max(total, 1) {
-		panic(fmt.Sprintf("planner: timeline total %v disagrees with the segmentation's %v", plan.TotalS, total))
+		return nil, &InternalError{Message: fmt.Sprintf("timeline total %v s disagrees with the segmentation's %v s", plan.TotalS, total)}
 	}
 	plan.FloorS = plan.Breakdown.APWriteS + plan.Breakdown.FEWriteS + plan.Breakdown.DwellS
+	if err := checkProbabilities(windows); err != nil {
+		return nil, err
+	}
 	plan.Yield = YieldOf(windows)
 	for _, r := range b.regions {
-		req := string(r.requested)
+		req := r.requested
 		if req == "" {
-			req = string(design.ModeAuto)
+			req = design.ModeAuto
 		}
-		plan.Modes = append(plan.Modes, RegionMode{Region: r.name, Role: string(r.role), Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
+		plan.Modes = append(plan.Modes, RegionMode{Region: r.name, Role: r.role, Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
 	}
 	byHand, err := b.byHand(mc)
 	if err != nil {
@@ -207,9 +228,18 @@ func (b *builder) build(variant string) (*Plan, error) {
 	return plan, nil
 }
 
-// regionWork lays out every region of the variant.
-func (b *builder) regionWork() {
+// regionWork lays out every region of the variant, once their runs of
+// sites are known to be within MaxRuns.
+func (b *builder) regionWork() error {
 	rules := b.d.Rules
+	names := make([]string, len(b.lay.Regions))
+	sets := make([]*lattice.SiteSet, len(b.lay.Regions))
+	for i := range b.lay.Regions {
+		names[i], sets[i] = b.lay.Regions[i].Region.Name, b.lay.Regions[i].Sites
+	}
+	if err := checkRuns(names, sets); err != nil {
+		return err
+	}
 	for i := range b.lay.Regions {
 		rl := &b.lay.Regions[i]
 		r := rl.Region
@@ -244,6 +274,7 @@ func (b *builder) regionWork() {
 		}
 		b.regions = append(b.regions, rw)
 	}
+	return nil
 }
 
 // makeStrokes generates every region's strokes and returns the plan's
@@ -281,7 +312,7 @@ func (b *builder) makeStrokes() []Window {
 		if r.fePart != nil && !r.fePart.IsEmpty() {
 			ss := b.gen.feStrokes(r.name, r.fePart)
 			tol := r.tolFE
-			if r.mode == modeHybrid {
+			if r.mode == design.ModeHybrid {
 				tol = b.prof.ToleranceFENM // the fill's edge is inside the AP band
 			}
 			n := r.plainCount
@@ -328,7 +359,7 @@ func (b *builder) modesUsed() ModeUse {
 		switch {
 		case s.Kind == StrokeDwell:
 			u.Dwell = true
-		case s.Mode == FE:
+		case s.Mode == design.ModeFE:
 			u.FE = true
 		default:
 			u.AP = true
@@ -341,17 +372,17 @@ func (b *builder) conditions(u ModeUse) []Conditions {
 	var cs []Conditions
 	if u.AP {
 		m := b.prof.AP
-		cs = append(cs, Conditions{Mode: AP, Kind: StrokeLine, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
+		cs = append(cs, Conditions{Mode: design.ModeAP, Kind: StrokeLine, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
 			SpeedNMPerS: m.Speed(), LineWidthNM: m.LineWidth(), Passes: max(m.Passes, 1)})
 	}
 	if u.Dwell {
 		d := b.prof.Dwell
-		cs = append(cs, Conditions{Mode: AP, Kind: StrokeDwell, BiasV: d.BiasV, CurrentA: d.CurrentA, Passes: 1,
+		cs = append(cs, Conditions{Mode: design.ModeAP, Kind: StrokeDwell, BiasV: d.BiasV, CurrentA: d.CurrentA, Passes: 1,
 			DwellS: d.ExpectedS(), DwellCapS: d.CapS()})
 	}
 	if u.FE {
 		m := b.prof.FE
-		cs = append(cs, Conditions{Mode: FE, Kind: StrokeRaster, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
+		cs = append(cs, Conditions{Mode: design.ModeFE, Kind: StrokeRaster, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
 			SpeedNMPerS: m.Speed(), LineWidthNM: m.LineWidth(), Passes: max(m.Passes, 1), PitchNM: m.Pitch()})
 	}
 	return cs
@@ -373,9 +404,10 @@ func (b *builder) fiducials() {
 // splitLong cuts every stroke whose writing outlasts its drift budget,
 // less the approach from the nearest fiducial, into equal pieces that
 // each fit, so that a registration can fall between them.
-func (b *builder) splitLong() {
+func (b *builder) splitLong() error {
 	c := newCosts(&b.prof, b.fids)
 	var out []Stroke
+	pieces := float64(len(b.strokes))
 	for _, s := range b.strokes {
 		budget := DriftBudget(s.ToleranceNM, b.prof.Drift.RateNMPerMin)
 		if s.Kind == StrokeDwell || math.IsInf(budget, 1) || s.DurationS <= 0 {
@@ -401,7 +433,17 @@ func (b *builder) splitLong() {
 			out = append(out, s)
 			continue // reported by the segmenter as over budget
 		}
-		k := int(math.Ceil(s.DurationS / room))
+		kf := math.Ceil(s.DurationS / room)
+		if !(kf <= MaxPieces) {
+			return &CountError{What: fmt.Sprintf("pieces of a %s stroke of region %q cut at registrations", s.Kind, s.Region), Count: kf, Max: MaxPieces,
+				Cause: fmt.Sprintf("it takes %s s against a drift budget of %s s (tolerance ±%s nm at drift.rate_nm_per_min = %s) less %s s to reach it from a fiducial; %s",
+					jsonfile.Approx(s.DurationS), jsonfile.Approx(budget), jsonfile.Number(s.ToleranceNM), jsonfile.Number(b.prof.Drift.RateNMPerMin),
+					jsonfile.Approx(approach), speedCause(s.Mode, b.prof.modeOf(s.Mode)))}
+		}
+		if pieces += kf - 1; !(pieces <= MaxStrokes) {
+			return checkStrokes(pieces, "strokes longer than their drift budget are cut into pieces at registrations; "+speedCause(s.Mode, b.prof.modeOf(s.Mode)))
+		}
+		k := int(kf)
 		pieces := splitPath(s.Path, k)
 		b.warnings = append(b.warnings, fmt.Sprintf("a %s stroke of region %q takes %.0f s, longer than its %.0f s drift budget (±%g nm at %g nm/min): split into %d pieces at registrations",
 			s.Kind, s.Region, s.DurationS, budget, s.ToleranceNM, b.prof.Drift.RateNMPerMin, k))
@@ -415,6 +457,7 @@ func (b *builder) splitLong() {
 		}
 	}
 	b.strokes = out
+	return nil
 }
 
 // splitPath cuts a polyline into k pieces of equal length.
@@ -450,10 +493,10 @@ func (b *builder) coverageRegions() []CoverageRegion {
 
 // modeGroup returns the route group of a stroke: 0 for the mode written
 // first, 1 for the other.
-func (b *builder) modeGroup(m WriteMode) int {
-	first := AP
+func (b *builder) modeGroup(m design.Mode) int {
+	first := design.ModeAP
 	if b.prof.Order == OrderFEFirst {
-		first = FE
+		first = design.ModeFE
 	}
 	if m == first {
 		return 0
@@ -652,7 +695,7 @@ func (b *builder) byHand(mc *modeChooser) (float64, error) {
 		byRegion[s.Region] = append(byRegion[s.Region], s)
 	}
 	for _, r := range b.regions {
-		if r.mode == modeHybrid {
+		if r.mode == design.ModeHybrid {
 			var ss []Stroke
 			for _, s := range byRegion[r.name] {
 				if s.Window >= 0 {

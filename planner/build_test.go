@@ -2,6 +2,7 @@ package planner
 
 import (
 	"context"
+	"dimerpath/internal/jsonfile"
 	"errors"
 	"math"
 	"reflect"
@@ -12,7 +13,7 @@ import (
 
 func buildTest(t testing.TB, d *design.Design, variant string) (*Plan, error) {
 	t.Helper()
-	return Build(context.Background(), d, variant, DefaultProfile(), Options{Seed: 7, MonteCarloRuns: 200})
+	return buildVariant(context.Background(), d, variant, DefaultProfile(), Options{Seed: 7, MonteCarloRuns: 200})
 }
 
 func TestBuildDemoInvariants(t *testing.T) {
@@ -114,33 +115,33 @@ func TestBuildRefusesBeyondLimits(t *testing.T) {
 	d := demo(t)
 	prof := DefaultProfile()
 	prof.FE.BiasV = 11
-	_, err := Build(context.Background(), d, "", prof, Options{})
+	_, err := buildVariant(context.Background(), d, "", prof, Options{})
 	var le *LimitError
 	if !errors.As(err, &le) || le.Quantity != "fe.bias_v" || le.Max != 10 {
 		t.Errorf("Build with FE at 11 V = %v, want a LimitError naming fe.bias_v and 10 V", err)
 	}
 	// A variant without FE work does not need the FE limits.
 	ap := testDesign(200, 200, design.Region{Name: "wire", Role: design.RoleDevice, Mode: design.ModeAP, Shapes: []design.Shape{rect(50, 50, 80, 52)}})
-	if _, err := Build(context.Background(), ap, "", prof, Options{}); err != nil {
+	if _, err := buildVariant(context.Background(), ap, "", prof, Options{}); err != nil {
 		t.Errorf("AP-only plan refused for an FE limit: %v", err)
 	}
 	prof = DefaultProfile()
 	prof.Limits.ScanFieldNM = 1000
-	if _, err := Build(context.Background(), d, "", prof, Options{}); !errors.As(err, &le) || le.Limit != "limits.scan_field_nm" {
+	if _, err := buildVariant(context.Background(), d, "", prof, Options{}); !errors.As(err, &le) || le.Limit != "limits.scan_field_nm" {
 		t.Errorf("2 µm field with a 1 µm scan limit: %v", err)
 	}
 	prof = DefaultProfile()
 	prof.MoveSpeedNMPerS = math.NaN()
-	var pe *ProfileError
-	if _, err := Build(context.Background(), d, "", prof, Options{}); !errors.As(err, &pe) {
-		t.Errorf("NaN move speed: %v, want a ProfileError", err)
+	var pe *jsonfile.Error
+	if _, err := buildVariant(context.Background(), d, "", prof, Options{}); !errors.As(err, &pe) {
+		t.Errorf("NaN move speed: %v, want a *jsonfile.Error", err)
 	}
 }
 
 func TestBuildCancelled(t *testing.T) {
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	if _, err := Build(ctx, demo(t), "", DefaultProfile(), Options{}); !errors.Is(err, context.Canceled) {
+	if _, err := buildVariant(ctx, demo(t), "", DefaultProfile(), Options{}); !errors.Is(err, context.Canceled) {
 		t.Errorf("Build on a cancelled context = %v", err)
 	}
 }
@@ -149,13 +150,13 @@ func TestModeChoice(t *testing.T) {
 	cases := []struct {
 		name   string
 		region design.Region
-		want   string
+		want   design.Mode
 	}{
-		{"narrow lead", design.Region{Name: "x", Role: design.RoleLead, Shapes: []design.Shape{rect(100, 100, 300, 106)}}, modeAP},
-		{"wide pad", design.Region{Name: "x", Role: design.RolePad, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, modeFE},
-		{"wide pad, tight tolerance", design.Region{Name: "x", Role: design.RolePad, ToleranceNM: 0.5, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, modeHybrid},
-		{"device", design.Region{Name: "x", Role: design.RoleDevice, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, modeAP},
-		{"windows", design.Region{Name: "x", Role: design.RoleOther, Shapes: []design.Shape{{Kind: design.ShapeWindow, Template: "P", Points: [][2]float64{{200, 200}}}}}, modeAP},
+		{"narrow lead", design.Region{Name: "x", Role: design.RoleLead, Shapes: []design.Shape{rect(100, 100, 300, 106)}}, design.ModeAP},
+		{"wide pad", design.Region{Name: "x", Role: design.RolePad, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, design.ModeFE},
+		{"wide pad, tight tolerance", design.Region{Name: "x", Role: design.RolePad, ToleranceNM: 0.5, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, design.ModeHybrid},
+		{"device", design.Region{Name: "x", Role: design.RoleDevice, Shapes: []design.Shape{rect(100, 100, 400, 400)}}, design.ModeAP},
+		{"windows", design.Region{Name: "x", Role: design.RoleOther, Shapes: []design.Shape{{Kind: design.ShapeWindow, Template: "P", Points: [][2]float64{{200, 200}}}}}, design.ModeAP},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -185,7 +186,7 @@ func TestModeKeepOut(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if m := p.Modes[1]; m.Mode != modeHybrid {
+	if m := p.Modes[1]; m.Mode != design.ModeHybrid {
 		t.Errorf("pad near an AP wire: %q (%s), want hybrid", m.Mode, m.Reason)
 	}
 	// Drawn FE there is honoured, with a warning.
@@ -194,7 +195,7 @@ func TestModeKeepOut(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if p.Modes[1].Mode != modeFE || len(p.Warnings) == 0 {
+	if p.Modes[1].Mode != design.ModeFE || len(p.Warnings) == 0 {
 		t.Errorf("drawn FE: mode %q, warnings %v", p.Modes[1].Mode, p.Warnings)
 	}
 }

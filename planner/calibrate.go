@@ -1,7 +1,6 @@
 package planner
 
 import (
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
@@ -12,6 +11,10 @@ import (
 	"strings"
 
 	"gonum.org/v1/gonum/stat"
+
+	"dimerpath/internal/csvfile"
+	"dimerpath/internal/jsonfile"
+	"dimerpath/lattice/design"
 )
 
 // Measurement is one test line a lab wrote and measured: the tip
@@ -24,38 +27,15 @@ type Measurement struct {
 	WidthNM     float64 // measured line width; 0 when no line was written
 	// Mode is the write mode the line was written in, or "" when the
 	// file has no mode column.
-	Mode WriteMode
+	Mode design.Mode
 }
 
 // DoseCPerCm returns the line dose I/v in C/cm.
 func (m Measurement) DoseCPerCm() float64 { return m.CurrentA / m.SpeedNMPerS * nmPerCm }
 
-// CSVError reports a bad record or field of a measurement file.
-type CSVError struct {
-	File   string
-	Line   int
-	Column string // header name, or "" for a whole-line problem
-	Value  string
-	Err    error
-}
-
-// ErrBadMeasurement is wrapped by every *CSVError.
+// ErrBadMeasurement is wrapped by the *csvfile.Error of every bad
+// measurement file.
 var ErrBadMeasurement = errors.New("bad measurement")
-
-func (e *CSVError) Error() string {
-	var b strings.Builder
-	if e.File != "" {
-		fmt.Fprintf(&b, "%s:", e.File)
-	}
-	fmt.Fprintf(&b, "%d: ", e.Line)
-	if e.Column != "" {
-		fmt.Fprintf(&b, "%s = %q: ", e.Column, e.Value)
-	}
-	b.WriteString(e.Err.Error())
-	return b.String()
-}
-
-func (e *CSVError) Unwrap() []error { return []error{ErrBadMeasurement, e.Err} }
 
 // Measurement file columns. The header names the current's unit:
 // current_a in amperes or current_na in nanoamperes.
@@ -72,38 +52,43 @@ const (
 // tens of lines, not millions.
 const maxMeasurements = 100000
 
+// MaxMeasurementBytes bounds a measurement file (16 MiB); a larger file
+// is refused before it is read.
+const MaxMeasurementBytes = 16 << 20
+
 // ReadMeasurements reads a calibration CSV: a header line naming the
 // columns bias_v, current_a or current_na, speed_nm_per_s and width_nm
 // (and optionally mode, "ap" or "fe"), in any order, then one test line
 // per record. Lines starting with '#' and blank lines are skipped. Every
-// error names the file (name), the line and the column.
+// error is a *csvfile.Error wrapping ErrBadMeasurement that names the
+// file (name), the line and the column. At most MaxMeasurementBytes and
+// csvfile.MaxLine bytes a line are read.
 func ReadMeasurements(r io.Reader, name string) ([]Measurement, error) {
-	cr := csv.NewReader(r)
-	cr.Comment = '#'
-	cr.FieldsPerRecord = -1
-	cr.TrimLeadingSpace = true
-	cr.ReuseRecord = true
-	fail := func(line int, col, val string, err error) error {
-		return &CSVError{File: name, Line: line, Column: col, Value: val, Err: err}
+	cr, err := csvfile.NewReader(r, name, MaxMeasurementBytes, ErrBadMeasurement)
+	if err != nil {
+		return nil, err
 	}
-	header, err := cr.Read()
+	fail := func(line int, col, val string, err error) error {
+		return cr.Errorf(line, col, val, "%w", err)
+	}
+	header, line, err := cr.Read()
 	if err == io.EOF {
 		return nil, fail(1, "", "", errors.New("empty file: want a header line with bias_v, current_a or current_na, speed_nm_per_s, width_nm"))
 	}
 	if err != nil {
-		return nil, csvReadError(name, err)
+		return nil, err
 	}
-	line, _ := cr.FieldPos(0)
+	header = slices.Clone(header)
 	index := map[string]int{}
 	for i, h := range header {
-		h = strings.ToLower(strings.TrimSpace(strings.TrimPrefix(h, "\ufeff")))
+		h = strings.ToLower(strings.TrimSpace(h))
 		switch h {
 		case colBias, colCurrentA, colCurrentNA, colSpeed, colWidth, colMode:
 		default:
-			return nil, fail(line, "", h, fmt.Errorf("unknown column %q in the header (want bias_v, current_a or current_na, speed_nm_per_s, width_nm, optional mode)", h))
+			return nil, fail(line, "", h, fmt.Errorf("unknown column %q in the header (want bias_v, current_a or current_na, speed_nm_per_s, width_nm, optional mode)", jsonfile.Prefix(h, jsonfile.MaxQuote)))
 		}
 		if _, dup := index[h]; dup {
-			return nil, fail(line, "", h, fmt.Errorf("column %q appears twice in the header", h))
+			return nil, fail(line, "", h, fmt.Errorf("column %q appears twice in the header", jsonfile.Prefix(h, jsonfile.MaxQuote)))
 		}
 		index[h] = i
 	}
@@ -122,14 +107,14 @@ func ReadMeasurements(r io.Reader, name string) ([]Measurement, error) {
 	}
 	var out []Measurement
 	for {
-		rec, err := cr.Read()
+		rec, recLine, err := cr.Read()
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
-			return nil, csvReadError(name, err)
+			return nil, err
 		}
-		line, _ := cr.FieldPos(0)
+		line = recLine
 		if len(rec) != len(header) {
 			return nil, fail(line, "", "", fmt.Errorf("%d fields, want %d as in the header", len(rec), len(header)))
 		}
@@ -180,9 +165,9 @@ func ReadMeasurements(r io.Reader, name string) ([]Measurement, error) {
 		if i, ok := index[colMode]; ok {
 			switch strings.ToLower(strings.TrimSpace(rec[i])) {
 			case "ap":
-				m.Mode = AP
+				m.Mode = design.ModeAP
 			case "fe":
-				m.Mode = FE
+				m.Mode = design.ModeFE
 			default:
 				return nil, fail(line, colMode, rec[i], errors.New(`mode must be "ap" or "fe"`))
 			}
@@ -193,14 +178,6 @@ func ReadMeasurements(r io.Reader, name string) ([]Measurement, error) {
 		return nil, fail(line, "", "", errors.New("no measurements after the header"))
 	}
 	return out, nil
-}
-
-func csvReadError(name string, err error) error {
-	var pe *csv.ParseError
-	if errors.As(err, &pe) {
-		return &CSVError{File: name, Line: pe.Line, Err: pe.Err}
-	}
-	return fmt.Errorf("%s: %w", name, err)
 }
 
 // Residual is one measurement's fit result.
@@ -215,10 +192,10 @@ type Residual struct {
 // WidthFit is the least-squares fit of the width-vs-dose model to a
 // lab's lines: w² = A + B·ln λ, so σ = sqrt(B/8) and λ_thr = exp(-A/B).
 type WidthFit struct {
-	Mode  WriteMode  `json:"mode"`
-	Model WidthModel `json:"model"`
-	A     float64    `json:"a_nm2"`
-	B     float64    `json:"b_nm2"`
+	Mode  design.Mode `json:"mode"`
+	Model WidthModel  `json:"model"`
+	A     float64     `json:"a_nm2"`
+	B     float64     `json:"b_nm2"`
 	// RSquared is the coefficient of determination of the linear fit of
 	// w² on ln λ.
 	RSquared  float64    `json:"r_squared"`
@@ -318,14 +295,14 @@ func FitWidth(ms []Measurement) (WidthFit, error) {
 // to that mode when it has one; an empty mode with a mode column fits
 // every mode present. The result is validated: a fitted threshold above
 // the profile's line dose is refused with a message saying so.
-func Calibrate(base Profile, ms []Measurement, mode WriteMode, source string) (Profile, []WidthFit, error) {
-	byMode := map[WriteMode][]Measurement{}
+func Calibrate(base Profile, ms []Measurement, mode design.Mode, source string) (Profile, []WidthFit, error) {
+	byMode := map[design.Mode][]Measurement{}
 	for _, m := range ms {
 		md := m.Mode
 		if md == "" {
 			md = mode
 			if md == "" {
-				md = AP
+				md = design.ModeAP
 			}
 		}
 		if mode != "" && md != mode {
@@ -339,7 +316,7 @@ func Calibrate(base Profile, ms []Measurement, mode WriteMode, source string) (P
 	}
 	p := base
 	var fits []WidthFit
-	for _, md := range []WriteMode{AP, FE} {
+	for _, md := range []design.Mode{design.ModeAP, design.ModeFE} {
 		group, ok := byMode[md]
 		if !ok {
 			continue
@@ -350,7 +327,7 @@ func Calibrate(base Profile, ms []Measurement, mode WriteMode, source string) (P
 			return base, append(fits, fit), fmt.Errorf("%s lines: %w", md, err)
 		}
 		mp := &p.AP
-		if md == FE {
+		if md == design.ModeFE {
 			mp = &p.FE
 		}
 		mp.Width = fit.Model

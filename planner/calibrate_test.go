@@ -9,6 +9,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
+
+	"dimerpath/lattice/design"
 )
 
 // synthetic returns measurements written at doses from λ_thr·1.3 to
@@ -115,7 +117,7 @@ func TestCalibrateWritesModel(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(fits) != 1 || fits[0].Mode != AP {
+	if len(fits) != 1 || fits[0].Mode != design.ModeAP {
 		t.Fatalf("fits = %+v, want one AP fit", fits)
 	}
 	if math.Abs(p.AP.Width.SigmaNM-want.SigmaNM) > 1e-9 || p.FE.Width != DefaultProfile().FE.Width {
@@ -124,7 +126,7 @@ func TestCalibrateWritesModel(t *testing.T) {
 	// A threshold above the profile's dose makes a profile that clears
 	// nothing: refused.
 	high := synthetic(WidthModel{SigmaNM: 0.3, ThresholdDoseCPerCm: 5e-3}, 6, 0, 3)
-	if _, _, err := Calibrate(DefaultProfile(), high, AP, "lab.csv"); err == nil || !strings.Contains(err.Error(), "clear nothing") {
+	if _, _, err := Calibrate(DefaultProfile(), high, design.ModeAP, "lab.csv"); err == nil || !strings.Contains(err.Error(), "clear nothing") {
 		t.Errorf("Calibrate(threshold 5 mC/cm) = %v, want refused", err)
 	}
 }
@@ -135,7 +137,7 @@ func TestReadMeasurements(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(ms) != 3 || ms[0].CurrentA != 2e-9 || ms[2].Mode != FE || ms[1].Line != 5 {
+	if len(ms) != 3 || ms[0].CurrentA != 2e-9 || ms[2].Mode != design.ModeFE || ms[1].Line != 5 {
 		t.Fatalf("ReadMeasurements = %+v", ms)
 	}
 	// Dose I/v: 2 nA / 10 nm/s = 2 mC/cm (Schmucker 2012 example).

@@ -1,15 +1,16 @@
 package planner
 
 import (
+	"cmp"
 	"fmt"
 	"math"
-	"math/bits"
 	"slices"
-	"sort"
 
+	"github.com/golang/geo/r1"
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 )
 
 // CoverageRegion is one region as the coverage check sees it: its name
@@ -158,15 +159,14 @@ type coverageCheck struct {
 	dwelled  *lattice.SiteSet
 	pieces   [][]piece       // per terrace
 	grid     *terraceGrid    // nil on a one-terrace surface
-	exist    []rowSpans      // terrace -> where each row's dimers exist
-	existDim [][][][2]int    // terrace -> row -> the same as dimer ranges
+	exist    []rowDimers     // terrace -> the dimers of each row that exist
 	allowed  []rowSpans      // [region·terraces + terrace]: allowed spans per row
 	rows     []regionExtents // [region·terraces + terrace]: run extents per row
 	arena    []float64       // cached factors of decide's nested ranges
 	ptrs     []*piece        // active lists of decide's nested ranges
-	spanBuf  []span          // scratch for allowedSpans
-	spanBuf2 []span
-	slab     []span // storage of the cached span lists
+	spanBuf  []r1.Interval   // scratch for allowedSpans
+	spanBuf2 []r1.Interval
+	slab     []r1.Interval // storage of the cached span lists
 	cov      Coverage
 	nUnc     int
 	nOver    int
@@ -175,10 +175,9 @@ type coverageCheck struct {
 func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof *Profile) *coverageCheck {
 	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: strokes,
 		dwelled: lattice.NewSiteSet(),
-		exist:   make([]rowSpans, len(surf.Terraces)), allowed: make([]rowSpans, len(regions)*len(surf.Terraces)), rows: make([]regionExtents, len(regions)*len(surf.Terraces))}
+		exist:   make([]rowDimers, len(surf.Terraces)), allowed: make([]rowSpans, len(regions)*len(surf.Terraces)), rows: make([]regionExtents, len(regions)*len(surf.Terraces))}
 	for t := range surf.Terraces {
-		ck.exist[t] = newRowSpans(surf.RowCount(t))
-		ck.existDim = append(ck.existDim, make([][][2]int, surf.RowCount(t)))
+		ck.exist[t] = rowDimers{dimers: make([][]lattice.DimerRange, surf.RowCount(t)), done: make([]bool, surf.RowCount(t))}
 	}
 	byName := map[string]int{}
 	sets := make([]*lattice.SiteSet, len(regions))
@@ -208,7 +207,7 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 			continue
 		}
 		m := prof.AP
-		if st.Mode == FE {
+		if st.Mode == design.ModeFE {
 			m = prof.FE
 		}
 		ratio := float64(max(st.Passes, 1)) * m.LineDoseCPerCm / m.Width.ThresholdDoseCPerCm
@@ -235,8 +234,9 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 
 // makePiece describes the piece a→b of stroke si on terrace t.
 func makePiece(surf *lattice.Surface, t int, si int32, a, b r2.Point, ratio, sigma, reach float64) piece {
-	ua, ya := terraceAxes(surf, t, a)
-	ub, yb := terraceAxes(surf, t, b)
+	f := surf.Frame(t)
+	ua, ya := f.ToLocal(a)
+	ub, yb := f.ToLocal(b)
 	p := piece{stroke: si, ratio: ratio, sigma: sigma,
 		uLo: min(ua, ub) - reach, uHi: max(ua, ub) + reach,
 		yLo: min(ya, yb) - reach, yHi: max(ya, yb) + reach}
@@ -256,27 +256,10 @@ func makePiece(surf *lattice.Surface, t int, si int32, a, b r2.Point, ratio, sig
 	return p
 }
 
-// terraceAxes returns p's along-row and across-row coordinates on
-// terrace t, relative to the terrace's lattice offset.
-func terraceAxes(surf *lattice.Surface, t int, p r2.Point) (along, across float64) {
-	tr := &surf.Terraces[t]
-	q := p.Sub(tr.Offset)
-	if tr.Rows == lattice.RowsAlongY {
-		return q.Y, q.X
-	}
-	return q.X, q.Y
-}
-
 // lineY is the across coordinate of site line l: the sites of side l%2
 // of row l/2. It rises with l, since the two sides of a row lie 2·HOffset
 // apart, less than a row spacing.
-func lineY(l int) float64 {
-	y := float64(l/2) * lattice.RowSpacing
-	if l%2 == 0 {
-		return y - lattice.HOffset
-	}
-	return y + lattice.HOffset
-}
+func lineY(l int) float64 { return lattice.SiteAcross(l/2, l%2) }
 
 // siteRect is a range of sites of one terrace: site lines [l0, l1), dimers
 // [d0, d1), bounded by the box [u0, u1] x [y0, y1] (which holds them and
@@ -297,7 +280,7 @@ func (ck *coverageCheck) run() {
 		l0, l1, d0, d1 := 2*rows, 0, dimers, 0
 		for r := 0; r < ck.painted.RowCount(t) && r < rows; r++ {
 			for side := 0; side < 2; side++ {
-				if first, last := paintedExtent(ck.painted.Row(t, r), side); first >= 0 {
+				if first, last := ck.painted.Row(t, r).DimerExtent(lattice.SideOf(side)); first >= 0 {
 					l0, l1 = min(l0, 2*r+side), max(l1, 2*r+side+1)
 					d0, d1 = min(d0, first), max(d1, last+1)
 				}
@@ -318,7 +301,7 @@ func (ck *coverageCheck) run() {
 			all[i] = &ck.pieces[t][i]
 		}
 		root := siteRect{t: t, l0: l0, l1: l1, d0: d0, d1: d1,
-			u0: float64(d0) * lattice.DimerPitch, u1: float64(d1-1) * lattice.DimerPitch, y0: lineY(l0), y1: lineY(l1 - 1)}
+			u0: lattice.DimerAlong(d0), u1: lattice.DimerAlong(d1 - 1), y0: lineY(l0), y1: lineY(l1 - 1)}
 		fu0, fu1, fy0, fy1 := ck.factors(all, root)
 		ck.decide(root, all, fu0, fu1, fy0, fy1)
 	}
@@ -457,7 +440,7 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 	splitU := gapU > gapY || (gapU == gapY && r.u1-r.u0 >= r.y1-r.y0)
 	if (splitU && r.d1-r.d0 > 1) || r.l1-r.l0 == 1 {
 		mid := (r.d0 + r.d1) / 2
-		us := (float64(mid) - 0.5) * lattice.DimerPitch
+		us := lattice.DimerEdge(mid)
 		a.d1, a.u1 = mid, us
 		b.d0, b.u0 = mid, us
 		for i, p := range active {
@@ -488,6 +471,17 @@ func (ck *coverageCheck) grow(n int) {
 	ck.arena = slices.Grow(ck.arena, n)[:len(ck.arena)+n]
 }
 
+// lineSides returns the sides of row's sites that r's site lines hold.
+func lineSides(r siteRect, row int) lattice.Sides {
+	switch {
+	case 2*row < r.l0:
+		return lattice.Side1
+	case 2*row+1 >= r.l1:
+		return lattice.Side0
+	}
+	return lattice.BothSides
+}
+
 // paintedIn reports whether r holds a painted site.
 func (ck *coverageCheck) paintedIn(r siteRect) bool {
 	// A row at a time: both sides' bits where r holds both lines.
@@ -496,13 +490,7 @@ func (ck *coverageCheck) paintedIn(r siteRect) bool {
 		if w == nil {
 			continue
 		}
-		mask := ^uint64(0)
-		if 2*row < r.l0 {
-			mask = 0xAAAAAAAAAAAAAAAA // side 1 only
-		} else if 2*row+1 >= r.l1 {
-			mask = 0x5555555555555555 // side 0 only
-		}
-		if anyParity(w, 2*r.d0, 2*r.d1, mask) {
+		if w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
 			return true
 		}
 	}
@@ -531,18 +519,18 @@ next:
 		tried[n] = ri
 		n++
 		allow := ck.prof.AP.EdgeAllowanceNM
-		if ck.strokes[p.stroke].Mode == FE {
+		if ck.strokes[p.stroke].Mode == design.ModeFE {
 			allow = ck.prof.FE.EdgeAllowanceNM
 		}
 		if allow <= 0 {
 			continue
 		}
-		u0, u1 := float64(r.d0)*lattice.DimerPitch, float64(r.d1-1)*lattice.DimerPitch
+		u0, u1 := lattice.DimerAlong(r.d0), lattice.DimerAlong(r.d1-1)
 		ok := true
 		for row := r.l0 / 2; row <= (r.l1-1)/2 && ok; row++ {
 			sp := ck.allowedCached(ri, r.t, row, allow)
 			i := firstReaching(sp, u1)
-			ok = i < len(sp) && sp[i].lo-1e-9 <= u0
+			ok = i < len(sp) && sp[i].Lo-1e-9 <= u0
 		}
 		if ok {
 			return true
@@ -671,7 +659,7 @@ func bandBounds(L, sigma, s float64) (lo, hi float64) {
 func (ck *coverageCheck) leaf(r siteRect, active []*piece) {
 	row, side := r.l0/2, r.l0%2
 	site := lattice.Site{Terrace: r.t, Row: row, Dimer: r.d0, Side: side}
-	u, y := float64(r.d0)*lattice.DimerPitch, lineY(r.l0)
+	u, y := lattice.DimerAlong(r.d0), lineY(r.l0)
 	sum, best, who := 0.0, 0.0, int32(-1)
 	for _, p := range active {
 		e := p.at(u, y)
@@ -680,7 +668,7 @@ func (ck *coverageCheck) leaf(r siteRect, active []*piece) {
 			best, who = e, p.stroke
 		}
 	}
-	ck.classify(site, ck.painted.Row(r.t, row), ck.existSpans(r.t, row), sum, who, active)
+	ck.classify(site, ck.painted.Row(r.t, row), ck.existDimers(r.t, row), sum, who, active)
 }
 
 // classifyRect classifies every site of r as cleared or not, line by
@@ -698,26 +686,26 @@ func (ck *coverageCheck) classifyRect(r siteRect, active []*piece, cleared bool,
 // rowLine is the line of one side's sites of one row.
 type rowLine struct {
 	t, r, side int
-	pw         []uint64 // the row's painted bits
+	pw         lattice.RowBits // the row's painted sites
 }
 
 // classifyRange classifies every site of dimers [d0, d1) of a row line
 // as cleared or not: a painted site not cleared is uncovered, an existing
 // unpainted site cleared may be overcleared. Only those sites are
 // visited, a word at a time; for a cleared range only the dimers that
-// exist on the row's terrace (existSpans) are looked at.
+// exist on the row's terrace (existDimers) are looked at.
 func (ck *coverageCheck) classifyRange(row *rowLine, active []*piece, d0, d1 int, cleared bool, e float64, who int32) {
 	if !cleared {
 		from, to := 2*d0+row.side, 2*(d1-1)+row.side+1
-		if !anyParity(row.pw, from, to, uint64(0x5555555555555555)<<uint(row.side)) {
+		if !row.pw.Any(from, to, lattice.SideOf(row.side)) {
 			return // nothing painted here to be uncovered
 		}
 		ck.classifyWords(row, active, d0, d1, false, e, who, nil)
 		return
 	}
-	exist := ck.existSpans(row.t, row.r)
-	for _, dr := range ck.existDimers(row.t, row.r) {
-		if lo, hi := max(dr[0], d0), min(dr[1], d1); lo < hi {
+	exist := ck.existDimers(row.t, row.r)
+	for _, dr := range exist {
+		if lo, hi := max(dr.Lo, d0), min(dr.Hi, d1); lo < hi {
 			ck.classifyWords(row, active, lo, hi, true, e, who, exist)
 		}
 	}
@@ -727,15 +715,10 @@ func (ck *coverageCheck) classifyRange(row *rowLine, active []*piece, d0, d1 int
 // painted.
 func (ck *coverageCheck) unpaintedIn(r siteRect) bool {
 	for row := r.l0 / 2; row <= (r.l1-1)/2; row++ {
-		mask := ^uint64(0)
-		if 2*row < r.l0 {
-			mask = 0xAAAAAAAAAAAAAAAA // side 1 only
-		} else if 2*row+1 >= r.l1 {
-			mask = 0x5555555555555555 // side 0 only
-		}
+		sides := lineSides(r, row)
 		w := ck.painted.Row(r.t, row)
 		for _, dr := range ck.existDimers(r.t, row) {
-			if lo, hi := max(dr[0], r.d0), min(dr[1], r.d1); lo < hi && anyClear(w, 2*lo, 2*hi, mask) {
+			if lo, hi := max(dr.Lo, r.d0), min(dr.Hi, r.d1); lo < hi && !w.All(2*lo, 2*hi, sides) {
 				return true
 			}
 		}
@@ -743,102 +726,49 @@ func (ck *coverageCheck) unpaintedIn(r siteRect) bool {
 	return false
 }
 
-// anyClear reports whether w (taken as 0 beyond its end) has a clear bit
-// of the mask in [from, to).
-func anyClear(w []uint64, from, to int, mask uint64) bool {
-	if to > len(w)*64 {
-		return true
-	}
-	for k := from / 64; k*64 < to; k++ {
-		if ^w[k]&mask&rangeMask(k, from, to) != 0 {
-			return true
-		}
-	}
-	return false
-}
-
-// rangeMask returns the bits of word k (indices 64k..64k+63) that lie in
-// [from, to).
-func rangeMask(k, from, to int) uint64 {
-	m := ^uint64(0)
-	if lo := from - k*64; lo > 0 {
-		m <<= uint(lo)
-	}
-	if hi := to - k*64; hi < 64 {
-		m &= (1 << uint(hi)) - 1
-	}
-	return m
-}
-
-// dimersIn returns the dimers [lo, hi) whose along coordinate d·DimerPitch
-// lies in sp to within 1e-9 nm, the test inSpans makes.
-func dimersIn(sp span) (lo, hi int) {
-	lo = int(math.Ceil((sp.lo - 1e-9) / lattice.DimerPitch))
-	for float64(lo-1)*lattice.DimerPitch >= sp.lo-1e-9 {
-		lo--
-	}
-	for float64(lo)*lattice.DimerPitch < sp.lo-1e-9 {
-		lo++
-	}
-	hi = int(math.Floor((sp.hi+1e-9)/lattice.DimerPitch)) + 1
-	for float64(hi)*lattice.DimerPitch <= sp.hi+1e-9 {
-		hi++
-	}
-	for float64(hi-1)*lattice.DimerPitch > sp.hi+1e-9 {
-		hi--
-	}
-	return max(lo, 0), hi
-}
-
 // classifyWords classifies the painted sites (not cleared) or the
 // unpainted sites (cleared) of dimers [d0, d1) of a row line, a word at a
 // time; for cleared ones those dimers all exist (exist is the row's
-// existSpans).
-func (ck *coverageCheck) classifyWords(row *rowLine, active []*piece, d0, d1 int, cleared bool, e float64, who int32, exist []span) {
-	from, to := 2*d0+row.side, 2*(d1-1)+row.side+1 // bit indices [from, to)
-	parity := uint64(0x5555555555555555) << uint(row.side)
-	// Cleared unpainted sites are usually within the edge allowance of
-	// the region dosing them most: look that up once for the row.
-	var allowed []span
-	haveAllowed := false
-	for k := from / 64; k*64 < to; k++ {
-		var word uint64
-		if k < len(row.pw) {
-			word = row.pw[k]
-		}
-		target := word & parity // painted sites: uncovered when not cleared
-		if cleared {
-			target = ^word & parity // unpainted sites: overcleared candidates
-		}
-		target &= rangeMask(k, from, to)
-		for target != 0 {
-			b := trailingZeros(target)
-			target &= target - 1
-			site := lattice.SiteAt(row.t, row.r, k*64+b)
-			if cleared {
-				if !haveAllowed {
-					allowed, haveAllowed = ck.allowedFor(who, row.t, row.r), true
-				}
-				if inSpans(allowed, float64(site.Dimer)*lattice.DimerPitch) {
-					continue
-				}
-			} else if exist == nil {
-				exist = ck.existSpans(row.t, row.r)
+// existDimers).
+func (ck *coverageCheck) classifyWords(row *rowLine, active []*piece, d0, d1 int, cleared bool, e float64, who int32, exist []lattice.DimerRange) {
+	from, to := 2*d0+row.side, 2*(d1-1)+row.side+1 // in-row indices [from, to)
+	sides := lattice.SideOf(row.side)
+	if !cleared {
+		// Painted sites: uncovered when not cleared.
+		for i := range row.pw.Sites(from, to, sides) {
+			if exist == nil {
+				exist = ck.existDimers(row.t, row.r)
 			}
-			ck.classify(site, row.pw, exist, e, who, active)
+			ck.classify(lattice.SiteAt(row.t, row.r, i), row.pw, exist, e, who, active)
 		}
+		return
+	}
+	// Unpainted sites: overcleared candidates. They are usually within
+	// the edge allowance of the region dosing them most: look that up
+	// once for the row.
+	var allowed []r1.Interval
+	haveAllowed := false
+	for i := range row.pw.Gaps(from, to, sides) {
+		site := lattice.SiteAt(row.t, row.r, i)
+		if !haveAllowed {
+			allowed, haveAllowed = ck.allowedFor(who, row.t, row.r), true
+		}
+		if inSpans(allowed, lattice.DimerAlong(site.Dimer)) {
+			continue
+		}
+		ck.classify(site, row.pw, exist, e, who, active)
 	}
 }
 
 // allowedFor returns the allowed spans (see allowedSpans) on row r of
 // terrace t for the region of stroke si, within its mode's edge
 // allowance; nil when there is none.
-func (ck *coverageCheck) allowedFor(si int32, t, r int) []span {
+func (ck *coverageCheck) allowedFor(si int32, t, r int) []r1.Interval {
 	if si < 0 || ck.region[si] < 0 {
 		return nil
 	}
 	allow := ck.prof.AP.EdgeAllowanceNM
-	if ck.strokes[si].Mode == FE {
+	if ck.strokes[si].Mode == design.ModeFE {
 		allow = ck.prof.FE.EdgeAllowanceNM
 	}
 	if allow <= 0 {
@@ -848,9 +778,8 @@ func (ck *coverageCheck) allowedFor(si int32, t, r int) []span {
 	return ck.allowedCached(ri, t, r, allow)
 }
 
-func (ck *coverageCheck) classify(site lattice.Site, pw []uint64, exist []span, e float64, who int32, active []*piece) {
-	i := site.Index()
-	painted := i/64 < len(pw) && pw[i/64]&(1<<(uint(i)%64)) != 0
+func (ck *coverageCheck) classify(site lattice.Site, pw lattice.RowBits, exist []lattice.DimerRange, e float64, who int32, active []*piece) {
+	painted := pw.Contains(site.Index())
 	cleared := e >= 1
 	if painted {
 		if !cleared && !ck.dwelled.Contains(site) {
@@ -862,7 +791,7 @@ func (ck *coverageCheck) classify(site lattice.Site, pw []uint64, exist []span, 
 		}
 		return
 	}
-	if !cleared || !inSpans(exist, float64(site.Dimer)*lattice.DimerPitch) {
+	if !cleared || !holdsDimer(exist, site.Dimer) {
 		return
 	}
 	ck.over(site, who, e, active)
@@ -872,7 +801,7 @@ func (ck *coverageCheck) classify(site lattice.Site, pw []uint64, exist []span, 
 // (those that reach the range it was classified in): the value an issue
 // quotes, where the classification itself may have used a bound.
 func (ck *coverageCheck) doseAt(site lattice.Site, active []*piece) float64 {
-	u, y := float64(site.Dimer)*lattice.DimerPitch, lineY(2*site.Row+site.Side)
+	u, y := lattice.DimerAlong(site.Dimer), lineY(2*site.Row+site.Side)
 	sum := 0.0
 	for _, p := range active {
 		sum += p.at(u, y)
@@ -900,7 +829,7 @@ func (ck *coverageCheck) over(site lattice.Site, who int32, e float64, active []
 			nTried++
 		}
 		allow := ck.prof.AP.EdgeAllowanceNM
-		if ck.strokes[si].Mode == FE {
+		if ck.strokes[si].Mode == design.ModeFE {
 			allow = ck.prof.FE.EdgeAllowanceNM
 		}
 		return allow > 0 && ck.near(ri, site, allow)
@@ -930,19 +859,26 @@ func (ck *coverageCheck) over(site lattice.Site, who int32, e float64, active []
 
 // rowSpans caches one sorted span list per row, computed on first use.
 type rowSpans struct {
-	spans [][]span
+	spans [][]r1.Interval
 	done  []bool
 }
 
 func newRowSpans(rows int) rowSpans {
-	return rowSpans{spans: make([][]span, rows), done: make([]bool, rows)}
+	return rowSpans{spans: make([][]r1.Interval, rows), done: make([]bool, rows)}
+}
+
+// rowDimers caches the dimer ranges of each row that exist, computed on
+// first use.
+type rowDimers struct {
+	dimers [][]lattice.DimerRange
+	done   []bool
 }
 
 // keep copies sp into the check's span storage, which cached lists share
 // (a few allocations in all instead of one per row).
-func (ck *coverageCheck) keep(sp []span) []span {
+func (ck *coverageCheck) keep(sp []r1.Interval) []r1.Interval {
 	if len(sp) > cap(ck.slab)-len(ck.slab) {
-		ck.slab = make([]span, 0, max(4096, len(sp)))
+		ck.slab = make([]r1.Interval, 0, max(4096, len(sp)))
 	}
 	start := len(ck.slab)
 	ck.slab = append(ck.slab, sp...)
@@ -952,7 +888,7 @@ func (ck *coverageCheck) keep(sp []span) []span {
 // allowedCached returns allowedSpans(ri, t, r, dist), computed once per
 // row and region (dist is the same for every call with one region's
 // mode).
-func (ck *coverageCheck) allowedCached(ri, t, r int, dist float64) []span {
+func (ck *coverageCheck) allowedCached(ri, t, r int, dist float64) []r1.Interval {
 	rows := &ck.allowed[ri*len(ck.surf.Terraces)+t]
 	if rows.spans == nil {
 		*rows = newRowSpans(ck.surf.RowCount(t))
@@ -977,7 +913,7 @@ func (ck *coverageCheck) near(ri int, q lattice.Site, dist float64) bool {
 		return false
 	}
 	sp := ck.allowedCached(ri, q.Terrace, q.Row, dist)
-	if inSpans(sp, float64(q.Dimer)*lattice.DimerPitch) {
+	if inSpans(sp, lattice.DimerAlong(q.Dimer)) {
 		return true
 	}
 	if len(ck.surf.Terraces) == 1 {
@@ -996,7 +932,7 @@ func (ck *coverageCheck) near(ri int, q lattice.Site, dist float64) bool {
 // dimer centres lie within dist of a site of region ri on the rows of t
 // within dist (the across distance counted between row centres less
 // twice HOffset, a slight overestimate of nearness by at most HOffset).
-func (ck *coverageCheck) allowedSpans(ri, t, r int, dist float64) []span {
+func (ck *coverageCheck) allowedSpans(ri, t, r int, dist float64) []r1.Interval {
 	rows := ck.regionRows(ri, t)
 	// Each row's extents are sorted and disjoint: merge them into the
 	// union row by row (a row with every other site painted has a run per
@@ -1004,7 +940,7 @@ func (ck *coverageCheck) allowedSpans(ri, t, r int, dist float64) []span {
 	acc, next := ck.spanBuf[:0], ck.spanBuf2[:0]
 	k := int(math.Ceil((dist + 2*lattice.HOffset) / lattice.RowSpacing))
 	for rr := max(0, r-k); rr <= r+k && rr < len(rows); rr++ {
-		dy := max(0, math.Abs(float64(rr-r))*lattice.RowSpacing-2*lattice.HOffset)
+		dy := max(0, lattice.RowAcross(max(rr-r, r-rr))-2*lattice.HOffset)
 		if dy > dist || len(rows[rr]) == 0 {
 			continue
 		}
@@ -1018,21 +954,21 @@ func (ck *coverageCheck) allowedSpans(ri, t, r int, dist float64) []span {
 // unionWidened appends to dst the union of the sorted, disjoint spans a
 // and the sorted spans b each widened by h at both ends, joining spans
 // that meet, and returns dst.
-func unionWidened(dst, a, b []span, h float64) []span {
-	add := func(s span) {
-		if n := len(dst); n > 0 && s.lo <= dst[n-1].hi {
-			dst[n-1].hi = max(dst[n-1].hi, s.hi)
+func unionWidened(dst, a, b []r1.Interval, h float64) []r1.Interval {
+	add := func(s r1.Interval) {
+		if n := len(dst); n > 0 && s.Lo <= dst[n-1].Hi {
+			dst[n-1].Hi = max(dst[n-1].Hi, s.Hi)
 			return
 		}
 		dst = append(dst, s)
 	}
 	i, j := 0, 0
 	for i < len(a) || j < len(b) {
-		if j == len(b) || (i < len(a) && a[i].lo <= b[j].lo-h) {
+		if j == len(b) || (i < len(a) && a[i].Lo <= b[j].Lo-h) {
 			add(a[i])
 			i++
 		} else {
-			add(span{b[j].lo - h, b[j].hi + h})
+			add(r1.Interval{Lo: b[j].Lo - h, Hi: b[j].Hi + h})
 			j++
 		}
 	}
@@ -1041,7 +977,7 @@ func unionWidened(dst, a, b []span, h float64) []span {
 
 // regionRows returns, per row of terrace t, the along extents (dimer
 // centres, nm from the terrace offset) of region ri's runs, computed once.
-func (ck *coverageCheck) regionRows(ri, t int) [][]span {
+func (ck *coverageCheck) regionRows(ri, t int) [][]r1.Interval {
 	e := &ck.rows[ri*len(ck.surf.Terraces)+t]
 	if e.done {
 		return e.rows
@@ -1049,8 +985,8 @@ func (ck *coverageCheck) regionRows(ri, t int) [][]span {
 	// The rows' extents share one slice, about one run per row (slices
 	// of it stay valid when it grows).
 	set := ck.regions[ri].Sites
-	rows := make([][]span, set.RowCount(t))
-	all := make([]span, 0, len(rows))
+	rows := make([][]r1.Interval, set.RowCount(t))
+	all := make([]r1.Interval, 0, len(rows))
 	for r := range rows {
 		start := len(all)
 		all = appendRunExtents(all, set.Row(t, r))
@@ -1064,105 +1000,41 @@ func (ck *coverageCheck) regionRows(ri, t int) [][]span {
 
 // regionExtents caches regionRows for one region and terrace.
 type regionExtents struct {
-	rows [][]span
+	rows [][]r1.Interval
 	done bool
 }
 
-// appendRunExtents appends, for each maximal run of set bits of a row's
-// bitset (sites start..end-1), the along extent of its dimer centres,
-// [start/2, (end-1)/2]·DimerPitch, and returns dst.
-func appendRunExtents(dst []span, w []uint64) []span {
-	start := -1 // the open run's first site
-	for k, x := range w {
-		if x == 0 {
-			continue
-		}
-		var prev, next uint64
-		if k > 0 {
-			prev = w[k-1] >> 63
-		}
-		if k+1 < len(w) {
-			next = w[k+1] << 63
-		}
-		starts := x &^ (x<<1 | prev) // first sites of runs
-		lasts := x &^ (x>>1 | next)  // last sites of runs
-		for starts|lasts != 0 {
-			// The lower of the next start and the next last: a start
-			// comes first where both are the same site (a run of one).
-			if starts != 0 && (lasts == 0 || bits.TrailingZeros64(starts) <= bits.TrailingZeros64(lasts)) {
-				start = k*64 + bits.TrailingZeros64(starts)
-				starts &= starts - 1
-				continue
-			}
-			end := k*64 + bits.TrailingZeros64(lasts) + 1
-			lasts &= lasts - 1
-			dst = append(dst, span{float64(start/2) * lattice.DimerPitch, float64((end-1)/2) * lattice.DimerPitch})
-		}
+// appendRunExtents appends, for each maximal run of a row's sites, the
+// along extent of its dimer centres, from its first site's dimer to its
+// last site's, and returns dst.
+func appendRunExtents(dst []r1.Interval, w lattice.RowBits) []r1.Interval {
+	for start, end := range w.Runs() {
+		dst = append(dst, r1.Interval{Lo: lattice.DimerAlong(start / 2), Hi: lattice.DimerAlong((end - 1) / 2)})
 	}
 	return dst
 }
 
 // nearOn reports whether set has a site on terrace t within dist of p.
 func (ck *coverageCheck) nearOn(set *lattice.SiteSet, t int, p r2.Point, dist float64) bool {
-	al, ac := terraceAxes(ck.surf, t, p)
-	r0 := max(0, int(math.Floor((ac-dist-lattice.HOffset)/lattice.RowSpacing)))
-	r1 := min(set.RowCount(t)-1, int(math.Ceil((ac+dist+lattice.HOffset)/lattice.RowSpacing)))
-	for r := r0; r <= r1; r++ {
+	al, ac := ck.surf.Frame(t).ToLocal(p)
+	rowLo := max(0, int(math.Floor((ac-dist-lattice.HOffset)/lattice.RowSpacing)))
+	rowHi := min(set.RowCount(t)-1, int(math.Ceil((ac+dist+lattice.HOffset)/lattice.RowSpacing)))
+	for r := rowLo; r <= rowHi; r++ {
 		w := set.Row(t, r)
 		if w == nil {
 			continue
 		}
-		dy := max(0, math.Abs(ac-float64(r)*lattice.RowSpacing)-lattice.HOffset)
+		dy := max(0, math.Abs(ac-lattice.RowAcross(r))-lattice.HOffset)
 		if dy > dist {
 			continue
 		}
 		h := math.Sqrt(dist*dist - dy*dy)
-		d0 := int(math.Ceil((al - h) / lattice.DimerPitch))
-		d1 := int(math.Floor((al + h) / lattice.DimerPitch))
-		if anyBit(w, max(0, 2*d0), 2*d1+2) {
+		from, to := lattice.DimersIn(r1.Interval{Lo: al - h, Hi: al + h}).Sites()
+		if w.Any(from, to, lattice.BothSides) {
 			return true
 		}
 	}
 	return false
-}
-
-// anyBit reports whether any bit in [from, to) of w is set.
-func anyBit(w []uint64, from, to int) bool {
-	to = min(to, len(w)*64)
-	for i := from; i < to; {
-		k := i / 64
-		word := w[k] >> (uint(i) % 64)
-		n := min(64-i%64, to-i)
-		if n < 64 {
-			word &= (1 << uint(n)) - 1
-		}
-		if word != 0 {
-			return true
-		}
-		i += n
-	}
-	return false
-}
-
-// paintedExtent returns the first and last dimer with a painted site on
-// the given side of a row, or -1, -1.
-func paintedExtent(w []uint64, side int) (first, last int) {
-	mask := uint64(0x5555555555555555) << uint(side)
-	for k, word := range w {
-		if m := word & mask; m != 0 {
-			first = (k*64 + trailingZeros(m)) / 2
-			break
-		}
-		if k == len(w)-1 {
-			return -1, -1
-		}
-	}
-	for k := len(w) - 1; k >= 0; k-- {
-		if m := w[k] & mask; m != 0 {
-			return first, (k*64 + 63 - leadingZeros(m)) / 2
-		}
-	}
-	return -1, -1
 }
 
 func (ck *coverageCheck) regionOf(site lattice.Site) string {
@@ -1174,131 +1046,33 @@ func (ck *coverageCheck) regionOf(site lattice.Site) string {
 	return "?"
 }
 
-// existSpans returns the along-row intervals (relative to the terrace
-// offset) where row r's dimer centres lie on terrace t: the field, within
-// the terrace's boundary, outside earlier bounded terraces (a terrace
-// without a boundary takes what no bounded terrace holds), as
-// Surface.TerraceAt decides.
-func (ck *coverageCheck) existSpans(t, r int) []span {
+// existDimers returns the dimer ranges of row r of terrace t that exist
+// (Surface.RowDimers), computed once per row.
+func (ck *coverageCheck) existDimers(t, r int) []lattice.DimerRange {
 	e := &ck.exist[t]
 	if !e.done[r] {
-		sp := ck.computeExist(t, r)
-		e.spans[r], e.done[r] = sp, true
-		ds := make([][2]int, 0, len(sp))
-		for _, x := range sp {
-			if lo, hi := dimersIn(x); lo < hi {
-				ds = append(ds, [2]int{lo, hi})
-			}
-		}
-		ck.existDim[t][r] = ds
+		e.dimers[r], e.done[r] = ck.surf.RowDimers(nil, t, r), true
 	}
-	return e.spans[r]
+	return e.dimers[r]
 }
 
-// existDimers returns the dimer ranges [lo, hi) of existSpans(t, r).
-func (ck *coverageCheck) existDimers(t, r int) [][2]int {
-	ck.existSpans(t, r)
-	return ck.existDim[t][r]
-}
-
-func (ck *coverageCheck) computeExist(t, r int) []span {
-	surf := ck.surf
-	tr := &surf.Terraces[t]
-	across := float64(r) * lattice.RowSpacing
-	// The field along this line.
-	a0, _ := terraceAxes(surf, t, surf.Field.Lo())
-	a1, _ := terraceAxes(surf, t, surf.Field.Hi())
-	spans := []span{{min(a0, a1), max(a0, a1)}}
-	if len(surf.Terraces) == 1 {
-		return spans
-	}
-	polySpans := func(poly []r2.Point) []span {
-		var xs []float64
-		for i := range poly {
-			p, q := poly[i], poly[(i+1)%len(poly)]
-			pa, pc := terraceAxes(surf, t, p)
-			qa, qc := terraceAxes(surf, t, q)
-			if (pc > across) != (qc > across) {
-				xs = append(xs, pa+(across-pc)*(qa-pa)/(qc-pc))
-			}
-		}
-		sort.Float64s(xs)
-		var out []span
-		for i := 0; i+1 < len(xs); i += 2 {
-			out = append(out, span{xs[i], xs[i+1]})
-		}
-		return out
-	}
-	bounded := len(tr.Boundary) >= 3
-	if bounded {
-		spans = intersectSpans(spans, polySpans(tr.Boundary))
-	}
-	for j := range surf.Terraces {
-		if j == t && bounded {
-			break
-		}
-		if j != t && len(surf.Terraces[j].Boundary) >= 3 {
-			spans = subtractSpans(spans, polySpans(surf.Terraces[j].Boundary))
-		}
-	}
-	return spans
+// holdsDimer reports whether dimer d lies in one of the sorted, disjoint
+// ranges.
+func holdsDimer(rs []lattice.DimerRange, d int) bool {
+	i, _ := slices.BinarySearchFunc(rs, d, func(r lattice.DimerRange, d int) int { return cmp.Compare(r.Hi-1, d) })
+	return i < len(rs) && rs[i].Lo <= d
 }
 
 // inSpans reports whether x lies in one of the sorted, disjoint spans
 // (to within 1e-9 nm).
-func inSpans(sp []span, x float64) bool {
+func inSpans(sp []r1.Interval, x float64) bool {
 	i := firstReaching(sp, x)
-	return i < len(sp) && x >= sp[i].lo-1e-9
+	return i < len(sp) && x >= sp[i].Lo-1e-9
 }
 
 // firstReaching returns the first of the sorted, disjoint spans whose end
 // reaches x (to within 1e-9 nm), or len(sp).
-func firstReaching(sp []span, x float64) int {
-	lo, hi := 0, len(sp)
-	for lo < hi {
-		m := int(uint(lo+hi) >> 1)
-		if sp[m].hi+1e-9 >= x {
-			hi = m
-		} else {
-			lo = m + 1
-		}
-	}
-	return lo
-}
-
-func intersectSpans(a, b []span) []span {
-	var out []span
-	for _, x := range a {
-		for _, y := range b {
-			lo, hi := max(x.lo, y.lo), min(x.hi, y.hi)
-			if hi > lo {
-				out = append(out, span{lo, hi})
-			}
-		}
-	}
-	return out
-}
-
-func subtractSpans(a, b []span) []span {
-	out := a
-	for _, y := range b {
-		var next []span
-		for _, x := range out {
-			if y.hi <= x.lo || y.lo >= x.hi {
-				next = append(next, x)
-				continue
-			}
-			if y.lo > x.lo {
-				next = append(next, span{x.lo, y.lo})
-			}
-			if y.hi < x.hi {
-				next = append(next, span{y.hi, x.hi})
-			}
-		}
-		out = next
-	}
-	return out
-}
+func firstReaching(sp []r1.Interval, x float64) int { return lattice.SearchIntervals(sp, x-1e-9) }
 
 func fmtPoint(p r2.Point) string { return fmt.Sprintf("(%.2f, %.2f) nm", p.X, p.Y) }
 
@@ -1381,30 +1155,14 @@ func (g *terraceGrid) marked(t, i, j int) bool {
 
 // holds reports whether the box of r may hold a site of its terrace.
 func (g *terraceGrid) holds(surf *lattice.Surface, r siteRect) bool {
-	tr := &surf.Terraces[r.t]
-	x0, x1, y0, y1 := r.u0, r.u1, r.y0, r.y1
-	if tr.Rows == lattice.RowsAlongY {
-		x0, x1, y0, y1 = r.y0, r.y1, r.u0, r.u1
-	}
-	i0, i1 := int(math.Floor((x0+tr.Offset.X)/terraceCellNM)), int(math.Floor((x1+tr.Offset.X)/terraceCellNM))
-	j0, j1 := int(math.Floor((y0+tr.Offset.Y)/terraceCellNM)), int(math.Floor((y1+tr.Offset.Y)/terraceCellNM))
+	box := surf.Frame(r.t).FieldRect(r1.Interval{Lo: r.u0, Hi: r.u1}, r1.Interval{Lo: r.y0, Hi: r.y1})
+	i0, i1 := int(math.Floor(box.X.Lo/terraceCellNM)), int(math.Floor(box.X.Hi/terraceCellNM))
+	j0, j1 := int(math.Floor(box.Y.Lo/terraceCellNM)), int(math.Floor(box.Y.Hi/terraceCellNM))
 	for j := max(j0, 0); j <= j1 && j < g.ny; j++ {
 		for i := max(i0, 0); i <= i1 && i < g.nx; i++ {
 			if g.cells[r.t][j*g.nx+i] {
 				return true
 			}
-		}
-	}
-	return false
-}
-
-// anyParity reports whether w has a set bit of the given parity mask in
-// [from, to).
-func anyParity(w []uint64, from, to int, parity uint64) bool {
-	to = min(to, len(w)*64)
-	for k := from / 64; k*64 < to; k++ {
-		if w[k]&parity&rangeMask(k, from, to) != 0 {
-			return true
 		}
 	}
 	return false

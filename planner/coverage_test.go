@@ -1,13 +1,13 @@
 package planner
 
 import (
-	"cmp"
 	"math"
 	"math/rand/v2"
 	"slices"
 	"strings"
 	"testing"
 
+	"github.com/golang/geo/r1"
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
@@ -120,7 +120,7 @@ func TestCoverageCatchesBrokenStrokes(t *testing.T) {
 			return s
 		}, true, true},
 		{"a dwell on a site outside every region", func(s []Stroke) []Stroke {
-			return append(s, Stroke{Region: "island", Mode: AP, Kind: StrokeDwell, Path: []r2.Point{lay.Surface.Position(siteAt(lay, 5, 5))}, Passes: 1})
+			return append(s, Stroke{Region: "island", Mode: design.ModeAP, Kind: StrokeDwell, Path: []r2.Point{lay.Surface.Position(siteAt(lay, 5, 5))}, Passes: 1})
 		}, false, true},
 	}
 	for _, c := range cases {
@@ -226,11 +226,11 @@ func TestRunExtentsMatchRuns(t *testing.T) {
 			row, from := rng.IntN(4), rng.IntN(300)
 			set.RemoveRun(0, row, from, from+1+rng.IntN(8))
 		}
-		var want []span
+		var want []r1.Interval
 		for run := range set.Runs() {
-			want = append(want, span{float64(run.Start/2) * lattice.DimerPitch, float64((run.End()-1)/2) * lattice.DimerPitch})
+			want = append(want, r1.Interval{Lo: float64(run.Start/2) * lattice.DimerPitch, Hi: float64((run.End()-1)/2) * lattice.DimerPitch})
 		}
-		var got []span
+		var got []r1.Interval
 		for row := range set.RowCount(0) {
 			got = appendRunExtents(got, set.Row(0, row))
 		}
@@ -244,29 +244,28 @@ func TestRunExtentsMatchRuns(t *testing.T) {
 // merging them gives.
 func TestUnionWidenedMatchesSortAndMerge(t *testing.T) {
 	rng := rand.New(rand.NewPCG(4, 40))
-	sorted := func(n int) []span {
-		var sp []span
+	sorted := func(n int) []r1.Interval {
+		var sp []r1.Interval
 		x := 0.0
 		for range n {
 			x += rng.Float64() * 3
 			lo := x
 			x += rng.Float64() * 2
-			sp = append(sp, span{lo, x})
+			sp = append(sp, r1.Interval{Lo: lo, Hi: x})
 		}
 		return sp
 	}
 	for range 200 {
-		var acc []span
-		var all []span
+		var acc []r1.Interval
+		var all []r1.Interval
 		for range 1 + rng.IntN(6) {
 			b, h := sorted(rng.IntN(12)), rng.Float64()*1.5
 			for _, s := range b {
-				all = append(all, span{s.lo - h, s.hi + h})
+				all = append(all, r1.Interval{Lo: s.Lo - h, Hi: s.Hi + h})
 			}
 			acc = unionWidened(nil, acc, b, h)
 		}
-		slices.SortFunc(all, func(a, b span) int { return cmp.Compare(a.lo, b.lo) })
-		want := mergeSpans(all, 0)
+		want := lattice.MergeIntervals(all, 0)
 		if len(acc) == 0 && len(want) == 0 {
 			continue
 		}
@@ -297,25 +296,5 @@ func TestBoundTablesBracket(t *testing.T) {
 	// On a table point the bracket is the point.
 	if lo, hi := phiBounds(0); lo != 0.5 || hi != 0.5 {
 		t.Errorf("Φ(0) in [%g, %g]", lo, hi)
-	}
-}
-
-// dimersIn picks exactly the dimers inSpans accepts.
-func TestDimersInMatchesInSpans(t *testing.T) {
-	rng := rand.New(rand.NewPCG(7, 70))
-	for range 500 {
-		lo := 50 * rng.Float64()
-		if rng.IntN(4) == 0 {
-			lo = float64(rng.IntN(100)) * lattice.DimerPitch // on a dimer
-		}
-		hi := lo + 10*rng.Float64()
-		sp := span{lo, hi}
-		a, b := dimersIn(sp)
-		for d := 0; d < 200; d++ {
-			in := inSpans([]span{sp}, float64(d)*lattice.DimerPitch)
-			if in != (d >= a && d < b) {
-				t.Fatalf("span %v: dimer %d inSpans %v, dimersIn [%d, %d)", sp, d, in, a, b)
-			}
-		}
 	}
 }

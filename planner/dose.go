@@ -10,7 +10,7 @@ const ElementaryCharge = 1.602176634e-19
 const nmPerCm = 1e7
 
 // WritingSpeed returns the tip speed in nm/s that delivers the line dose
-// lineDose (C/cm) at current (A): v = I/λ, A / (C/cm) = cm/s. For
+// lineDoseCPerCm (C/cm) at currentA (A): v = I/λ, A / (C/cm) = cm/s. For
 // example 2 nA at 2 mC/cm gives 10 nm/s (Schmucker et al., Nat. Commun.
 // 3 (2012)).
 func WritingSpeed(currentA, lineDoseCPerCm float64) float64 {

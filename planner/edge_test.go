@@ -31,7 +31,7 @@ func TestBuildEdgeCases(t *testing.T) {
 	// No drift: one segment, no budget.
 	prof := DefaultProfile()
 	prof.Drift.RateNMPerMin, prof.Drift.RateSDNMPerMin = 0, 0
-	p, err = Build(context.Background(), demo(t), "", prof, Options{Seed: 1, MonteCarloRuns: 50})
+	p, err = buildVariant(context.Background(), demo(t), "", prof, Options{Seed: 1, MonteCarloRuns: 50})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -41,7 +41,7 @@ func TestBuildEdgeCases(t *testing.T) {
 	// Dwell-written windows carry their completion in the probability.
 	prof = DefaultProfile()
 	prof.WindowStyle = WindowStyleDwell
-	p, err = Build(context.Background(), demo(t), "", prof, Options{Seed: 1, MonteCarloRuns: 50})
+	p, err = buildVariant(context.Background(), demo(t), "", prof, Options{Seed: 1, MonteCarloRuns: 50})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -15,7 +15,14 @@ func ExampleBuild() {
 		fmt.Println(err)
 		return
 	}
-	p, err := planner.Build(context.Background(), d, "gap-9", planner.DefaultProfile(), planner.Options{Seed: 1})
+	// Lay the variant out once: the checks, the plan and the export all
+	// start from the layout.
+	lay, err := d.Lay("gap-9")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	p, err := planner.Build(context.Background(), lay, planner.DefaultProfile(), planner.Options{Seed: 1})
 	if err != nil {
 		fmt.Println(err)
 		return
@@ -43,10 +50,15 @@ func ExampleCompare() {
 	}
 	for _, r := range results {
 		fmt.Printf("%s: %d segment(s), %d windows\n", r.Variant, len(r.Plan.Segments), r.Plan.Yield.Windows)
+		for _, diff := range r.Differences {
+			fmt.Println("  ", diff.What)
+		}
 	}
 	// Output:
 	// gap-9: 1 segment(s), 2 windows
 	// gap-12-source: 1 segment(s), 2 windows
+	//    tunnel gap sensor-island – source-lead
+	//    region source-lead
 }
 
 func ExampleWritingSpeed() {
@@ -59,4 +71,20 @@ func ExampleDriftBudget() {
 	// An AP stroke held to ±0.2 nm at 0.1 nm/min of drift.
 	fmt.Printf("%.0f s\n", planner.DriftBudget(0.2, 0.1))
 	// Output: 120 s
+}
+
+// The breakdown of a plan's time, kind by kind, as every view names it.
+func ExampleTimeKind() {
+	b := planner.Breakdown{APWriteS: 346, FEWriteS: 241, TravelS: 132, ModeSwitchS: 30, RegistrationS: 1024}
+	for _, k := range planner.TimeKinds {
+		if s := b.Seconds(k); s > 0 {
+			fmt.Printf("%-8s %-20s %5.0f s\n", k.Short(), k, s)
+		}
+	}
+	// Output:
+	// AP       AP writing             346 s
+	// FE       FE writing             241 s
+	// travel   travel and settling    132 s
+	// switch   mode switches           30 s
+	// register registrations         1024 s
 }

@@ -3,22 +3,22 @@ package planner
 import (
 	"cmp"
 	"math"
-	"math/bits"
 	"slices"
 	"sort"
 
+	"github.com/golang/geo/r1"
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
 )
 
 // runSeg is one run of sites as a segment in field nm: the line through
-// the run's dimer centres, from its first dimer to its last. along says
-// which field axis the segment runs along (0 x, 1 y).
+// the run's dimer centres, from its first dimer to its last, along its
+// terrace's rows.
 type runSeg struct {
-	a, b  r2.Point
-	along int
-	run   lattice.Run
+	a, b r2.Point
+	rows lattice.RowDirection
+	run  lattice.Run
 }
 
 // runSegments returns the runs of set as field segments.
@@ -40,72 +40,49 @@ func runSegments(surf *lattice.Surface, set *lattice.SiteSet) []runSeg {
 		d0, d1 := run.Start/2, (run.End()-1)/2
 		a := surf.DimerCentre(run.Terrace, run.Row, d0)
 		b := surf.DimerCentre(run.Terrace, run.Row, d1)
-		along := 0
-		if surf.Terraces[run.Terrace].Rows == lattice.RowsAlongY {
-			along = 1
-		}
-		out = append(out, runSeg{a: a, b: b, along: along, run: run})
+		out = append(out, runSeg{a: a, b: b, rows: surf.Terraces[run.Terrace].Rows, run: run})
 	}
 	return out
 }
 
-func coord(p r2.Point, axis int) float64 {
-	if axis == 1 {
-		return p.Y
-	}
-	return p.X
-}
-
-func pointOnAxes(along, across float64, axis int) r2.Point {
-	if axis == 1 {
-		return r2.Point{X: across, Y: along}
-	}
-	return r2.Point{X: along, Y: across}
-}
-
-// span is a closed interval [lo, hi] of one coordinate, in nm.
-type span struct{ lo, hi float64 }
-
-func (s span) length() float64 { return s.hi - s.lo }
-
-// chordIndex holds run segments for chord queries along one field
-// axis: the rows along that axis sorted by their across coordinate, so a
-// query looks only at the rows near its line, and the rows across it.
-// Each segment is kept as its key and extent only.
+// chordIndex holds run segments for chord queries along lines of one
+// field axis (dir: lines along x or along y): the rows along the lines
+// sorted by their across coordinate, so a query looks only at the rows
+// near its line, and the rows across them. Each segment is kept as its
+// key and extent only.
 type chordIndex struct {
-	along  []chordSeg // rows along axis, by key: the other coordinate
-	keys   []float64  // their keys
-	across []chordSeg // rows across axis, by key: the coordinate along axis
-	buf    []span     // chords' result
+	along  []chordSeg    // rows along the lines, by key: the across coordinate
+	keys   []float64     // their keys
+	across []chordSeg    // rows across the lines, by key: the along coordinate
+	buf    []r1.Interval // chords' result
 }
 
 // chordSeg is one run segment: its line's coordinate (key) and the
 // extent of its dimer centres along that line (lo, hi).
 type chordSeg struct{ key, lo, hi float64 }
 
-func newChordIndex(segs []runSeg, axis int) *chordIndex {
+func newChordIndex(segs []runSeg, dir lattice.RowDirection) *chordIndex {
 	ix := &chordIndex{}
-	other := 1 - axis
 	n := 0
 	for _, s := range segs {
-		if s.along == axis {
+		if s.rows == dir {
 			n++
 		}
 	}
 	ix.along = make([]chordSeg, 0, n)
 	ix.across = make([]chordSeg, 0, len(segs)-n)
 	for _, s := range segs {
-		if s.along == axis {
-			a, b := coord(s.a, axis), coord(s.b, axis)
-			ix.along = append(ix.along, chordSeg{coord(s.a, other), min(a, b), max(a, b)})
+		au, ac := dir.Split(s.a)
+		bu, bc := dir.Split(s.b)
+		if s.rows == dir {
+			ix.along = append(ix.along, chordSeg{ac, min(au, bu), max(au, bu)})
 		} else {
-			a, b := coord(s.a, other), coord(s.b, other)
-			ix.across = append(ix.across, chordSeg{coord(s.a, axis), min(a, b), max(a, b)})
+			ix.across = append(ix.across, chordSeg{au, min(ac, bc), max(ac, bc)})
 		}
 	}
 	byKey := func(a, b chordSeg) int { return cmp.Compare(a.key, b.key) }
 	slices.SortFunc(ix.along, byKey)
-	// Rows across the axis in order along it, so their chords come sorted.
+	// Rows across the lines in order along them, so their chords come sorted.
 	slices.SortFunc(ix.across, byKey)
 	ix.keys = make([]float64, len(ix.along))
 	for i, s := range ix.along {
@@ -114,53 +91,33 @@ func newChordIndex(segs []runSeg, axis int) *chordIndex {
 	return ix
 }
 
-// chords returns the merged intervals, along the index's axis, covered by
-// the sites that lie within half of the line where the other coordinate
-// equals c; intervals closer than gap are joined. With cells, each site
-// counts with the extent of its lattice cell (half a dimer pitch along its
-// row, half a row across); without, intervals run between site
-// positions.
+// chords returns the merged intervals, along the index's lines, covered
+// by the sites that lie within half of the line at across coordinate c;
+// intervals closer than gap are joined. With cells, each site counts with
+// the extent of its lattice cell (half a dimer pitch along its row, half
+// a row across); without, intervals run between site positions.
 // The result is valid until the next call.
-func (ix *chordIndex) chords(c, half, gap float64, cells bool) []span {
+func (ix *chordIndex) chords(c, half, gap float64, cells bool) []r1.Interval {
 	alongPad, acrossPad := 0.0, lattice.HOffset
 	if cells {
 		alongPad, acrossPad = lattice.DimerPitch/2, lattice.RowSpacing/2
 	}
 	sp := ix.buf[:0]
 	defer func() { ix.buf = sp[:0] }()
-	// Rows along the axis: their sites lie at the row centre ± HOffset.
+	// Rows along the lines: their sites lie at the row centre ± HOffset.
 	lo := sort.SearchFloat64s(ix.keys, c-half-lattice.HOffset)
 	for i := lo; i < len(ix.along) && ix.keys[i] <= c+half+lattice.HOffset; i++ {
 		s := ix.along[i]
-		sp = append(sp, span{s.lo - alongPad, s.hi + alongPad})
+		sp = append(sp, r1.Interval{Lo: s.lo - alongPad, Hi: s.hi + alongPad})
 	}
-	// Rows across the axis meet the line if their extent does.
+	// Rows across the lines meet the line if their extent does.
 	for _, s := range ix.across {
 		if s.hi+lattice.DimerPitch/2 < c-half || s.lo-lattice.DimerPitch/2 > c+half {
 			continue
 		}
-		sp = append(sp, span{s.key - acrossPad, s.key + acrossPad})
+		sp = append(sp, r1.Interval{Lo: s.key - acrossPad, Hi: s.key + acrossPad})
 	}
-	return mergeSpans(sp, gap)
-}
-
-func mergeSpans(sp []span, gap float64) []span {
-	if len(sp) == 0 {
-		return nil
-	}
-	if !slices.IsSortedFunc(sp, func(a, b span) int { return cmp.Compare(a.lo, b.lo) }) {
-		slices.SortFunc(sp, func(a, b span) int { return cmp.Compare(a.lo, b.lo) })
-	}
-	out := sp[:1]
-	for _, s := range sp[1:] {
-		last := &out[len(out)-1]
-		if s.lo <= last.hi+gap {
-			last.hi = math.Max(last.hi, s.hi)
-		} else {
-			out = append(out, s)
-		}
-	}
-	return out
+	return lattice.MergeIntervals(sp, gap)
 }
 
 // erode returns the sites of set whose every lattice neighbour within
@@ -171,29 +128,13 @@ func mergeSpans(sp []span, gap float64) []span {
 func erode(set *lattice.SiteSet, r float64) *lattice.SiteSet {
 	out := lattice.NewSiteSet()
 	kmax := int(r / lattice.RowSpacing)
-	type dimerRun struct{ lo, hi int } // whole dimers [lo, hi)
+	type dimerRun = lattice.DimerRange // whole dimers
 	rowRuns := func(t, row int) []dimerRun {
 		var rs []dimerRun
-		w := set.Row(t, row)
-		if w == nil {
-			return nil
-		}
-		i, n := 0, len(w)*64
-		for i < n {
-			for i < n && w[i/64]&(1<<(uint(i)%64)) == 0 {
-				i++
+		for i, j := range set.Row(t, row).Runs() {
+			if lo, hi := (i+1)/2, j/2; hi > lo {
+				rs = append(rs, dimerRun{Lo: lo, Hi: hi})
 			}
-			j := i
-			for j < n && w[j/64]&(1<<(uint(j)%64)) != 0 {
-				j++
-			}
-			if j > i {
-				lo, hi := (i+1)/2, j/2
-				if hi > lo {
-					rs = append(rs, dimerRun{lo, hi})
-				}
-			}
-			i = j
 		}
 		return rs
 	}
@@ -214,7 +155,7 @@ func erode(set *lattice.SiteSet, r float64) *lattice.SiteSet {
 		for row := 0; row < rows; row++ {
 			cur := get(row)
 			for k := -kmax; k <= kmax && len(cur) > 0; k++ {
-				dy := float64(k) * lattice.RowSpacing
+				dy := lattice.RowAcross(k)
 				h := math.Sqrt(math.Max(0, r*r-dy*dy))
 				m := int(math.Ceil(h/lattice.DimerPitch - 1e-9))
 				var next []dimerRun
@@ -222,26 +163,23 @@ func erode(set *lattice.SiteSet, r float64) *lattice.SiteSet {
 				// Dimers d of cur with [d-m, d+m] inside one run of other.
 				i := 0
 				for _, c := range cur {
-					for i < len(other) && other[i].hi <= c.lo {
+					for i < len(other) && other[i].Hi <= c.Lo {
 						i++
 					}
-					for j := i; j < len(other) && other[j].lo < c.hi; j++ {
-						lo := max(c.lo, other[j].lo+m)
-						hi := min(c.hi, other[j].hi-m)
+					for j := i; j < len(other) && other[j].Lo < c.Hi; j++ {
+						lo := max(c.Lo, other[j].Lo+m)
+						hi := min(c.Hi, other[j].Hi-m)
 						if hi > lo {
-							next = append(next, dimerRun{lo, hi})
+							next = append(next, dimerRun{Lo: lo, Hi: hi})
 						}
 					}
 				}
 				cur = next
 			}
 			for _, c := range cur {
-				out.AddRun(t, row, 2*c.lo, 2*c.hi)
+				out.AddRun(t, row, 2*c.Lo, 2*c.Hi)
 			}
 		}
 	}
 	return out
 }
-
-func trailingZeros(x uint64) int { return bits.TrailingZeros64(x) }
-func leadingZeros(x uint64) int  { return bits.LeadingZeros64(x) }

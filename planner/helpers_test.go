@@ -1,6 +1,7 @@
 package planner
 
 import (
+	"context"
 	"testing"
 
 	"dimerpath/assets"
@@ -31,6 +32,15 @@ func demo(t testing.TB) *design.Design {
 		t.Fatal(err)
 	}
 	return d
+}
+
+// buildVariant lays out the variant of d (the first for "") and plans it.
+func buildVariant(ctx context.Context, d *design.Design, variant string, prof Profile, opt Options) (*Plan, error) {
+	lay, err := d.Lay(variant)
+	if err != nil {
+		return nil, err
+	}
+	return Build(ctx, lay, prof, opt)
 }
 
 // layRegions lays out d's first variant for the coverage check.
@@ -81,7 +91,7 @@ func bruteCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []St
 							continue
 						}
 						m := prof.AP
-						if s.Mode == FE {
+						if s.Mode == design.ModeFE {
 							m = prof.FE
 						}
 						ratio := float64(max(s.Passes, 1)) * m.LineDoseCPerCm / m.Width.ThresholdDoseCPerCm

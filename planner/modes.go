@@ -10,13 +10,6 @@ import (
 	"dimerpath/lattice/design"
 )
 
-// Planned region modes, as in RegionMode.Mode.
-const (
-	modeAP     = "ap"
-	modeFE     = "fe"
-	modeHybrid = "hybrid"
-)
-
 // ballard is the source of the hybrid practice.
 const ballard = "Ballard et al., JVST B 32, 041804 (2014)"
 
@@ -36,7 +29,7 @@ type regionWork struct {
 	width      float64 // narrowest chord, nm (see minWidth)
 	widthAt    r2.Point
 
-	mode           string
+	mode           design.Mode
 	reason         string
 	apPart, fePart *lattice.SiteSet // plain sites written in each mode
 	tolAP, tolFE   float64
@@ -55,25 +48,27 @@ func minWidth(segs []runSeg, lineWidth float64) (float64, r2.Point) {
 		return 0, at
 	}
 	step := math.Max(lineWidth/2, lattice.RowSpacing)
-	for axis := 0; axis < 2; axis++ {
-		other := 1 - axis
-		ix := newChordIndex(segs, axis)
+	for _, dir := range []lattice.RowDirection{lattice.RowsAlongX, lattice.RowsAlongY} {
+		ix := newChordIndex(segs, dir)
 		lo, hi := math.Inf(1), math.Inf(-1)
+		alo, ahi := math.Inf(1), math.Inf(-1)
 		for _, s := range segs {
 			for _, p := range []r2.Point{s.a, s.b} {
-				c := coord(p, other)
+				a, c := dir.Split(p)
 				lo, hi = math.Min(lo, c), math.Max(hi, c)
+				alo, ahi = math.Min(alo, a), math.Max(ahi, a)
 			}
 		}
 		lo -= lattice.RowSpacing / 2
 		hi += lattice.RowSpacing / 2
 		if hi-lo < best {
-			best, at = hi-lo, pointOnAxes(0, (lo+hi)/2, other)
+			// The whole region is narrower than a raster line: its middle.
+			best, at = hi-lo, dir.Join((alo+ahi)/2, (lo+hi)/2)
 		}
 		for c := lo + lineWidth/2; c <= hi-lineWidth/2; c += step {
 			for _, ch := range ix.chords(c, lattice.RowSpacing/2, lattice.RowSpacing, true) {
-				if ch.length() < best {
-					best, at = ch.length(), pointOnAxes((ch.lo+ch.hi)/2, c, axis)
+				if ch.Length() < best {
+					best, at = ch.Length(), dir.Join(ch.Center(), c)
 				}
 			}
 		}
@@ -135,9 +130,9 @@ func (mc *modeChooser) choose() {
 	for _, r := range mc.regions {
 		switch r.requested {
 		case design.ModeAP:
-			mc.set(r, modeAP, "atomic-precision as drawn")
+			mc.set(r, design.ModeAP, design.ModeAP.Adjective()+" as drawn")
 		case design.ModeFE:
-			mc.set(r, modeFE, "field-emission as drawn")
+			mc.set(r, design.ModeFE, design.ModeFE.Adjective()+" as drawn")
 			mc.forcedFE = true
 			if len(r.windows) > 0 {
 				r.warnings = append(r.warnings, fmt.Sprintf("region %q is drawn FE but holds %d dopant window(s): the windows are written in AP, the rest in FE", r.name, len(r.windows)))
@@ -146,7 +141,7 @@ func (mc *modeChooser) choose() {
 				r.warnings = append(r.warnings, fmt.Sprintf("region %q is drawn FE with tolerance ±%g nm, tighter than FE holds (±%g nm)", r.name, r.tolGiven, mc.prof.ToleranceFENM))
 			}
 		case design.ModeHybrid:
-			mc.set(r, modeHybrid, fmt.Sprintf("hybrid as drawn: AP edge band %.1f nm + FE fill (%s)", band, ballard))
+			mc.set(r, design.ModeHybrid, fmt.Sprintf("hybrid as drawn: AP edge band %.1f nm + FE fill (%s)", band, ballard))
 			mc.forcedFE = true
 		default:
 			mc.auto1(r)
@@ -155,7 +150,7 @@ func (mc *modeChooser) choose() {
 	// Keep-out, against every AP feature decided so far.
 	ap := mc.apFeatures()
 	for _, r := range mc.regions {
-		if r.mode == modeAP || (r.requested != design.ModeAuto && r.requested != "" && r.requested != design.ModeFE) {
+		if r.mode == design.ModeAP || (r.requested != design.ModeAuto && r.requested != "" && r.requested != design.ModeFE) {
 			continue
 		}
 		if mc.keepOut <= 0 || len(ap) == 0 {
@@ -172,14 +167,14 @@ func (mc *modeChooser) choose() {
 		// An FE region too near: its core may still be FE behind an AP
 		// band; a hybrid whose core is too near is written in AP.
 		what := fmt.Sprintf("%.1f nm from an AP feature at %s, inside the %g nm FE keep-out", d, fmtPoint(at), mc.keepOut)
-		if r.mode == modeFE {
+		if r.mode == design.ModeFE {
 			core := erode(r.plain, band)
 			if _, _, coreNear := mc.gap(ap, r, core); !coreNear && !core.IsEmpty() && mc.hybridPays(r, core) {
 				mc.setHybrid(r, core, what+fmt.Sprintf(": AP edge band %.1f nm + FE fill (%s)", band, ballard))
 				continue
 			}
 		}
-		mc.set(r, modeAP, what)
+		mc.set(r, design.ModeAP, what)
 	}
 	// The mode switch is paid once for all FE work: without any region
 	// drawn FE, auto FE must save more than it.
@@ -187,14 +182,14 @@ func (mc *modeChooser) choose() {
 		saved := 0.0
 		var auto []*regionWork
 		for _, r := range mc.regions {
-			if r.mode != modeAP {
+			if r.mode != design.ModeAP {
 				saved += mc.g.apTime(r.plain) - mc.partsTime(r)
 				auto = append(auto, r)
 			}
 		}
 		if len(auto) > 0 && saved < mc.prof.ModeSwitchS {
 			for _, r := range auto {
-				mc.set(r, modeAP, fmt.Sprintf("FE would save only %.0f s in all, less than the %.0f s mode switch", saved, mc.prof.ModeSwitchS))
+				mc.set(r, design.ModeAP, fmt.Sprintf("FE would save only %.0f s in all, less than the %.0f s mode switch", saved, mc.prof.ModeSwitchS))
 			}
 		}
 	}
@@ -206,22 +201,22 @@ func (mc *modeChooser) auto1(r *regionWork) {
 	band := mc.prof.HybridBandNM
 	switch {
 	case r.plain.IsEmpty() && len(r.windows) > 0:
-		mc.set(r, modeAP, fmt.Sprintf("holds %d dopant window(s): windows need atomic precision", len(r.windows)))
+		mc.set(r, design.ModeAP, fmt.Sprintf("holds %d dopant window(s): windows need atomic precision", len(r.windows)))
 		return
 	case len(r.windows) > 0:
-		mc.set(r, modeAP, fmt.Sprintf("holds %d dopant window(s) among its sites: written atom by atom", len(r.windows)))
+		mc.set(r, design.ModeAP, fmt.Sprintf("holds %d dopant window(s) among its sites: written atom by atom", len(r.windows)))
 		return
 	case r.role == design.RoleDonor || r.role == design.RoleDevice:
-		mc.set(r, modeAP, fmt.Sprintf("%s region: written atom by atom", r.role))
+		mc.set(r, design.ModeAP, fmt.Sprintf("%s region: written atom by atom", r.role))
 		return
 	case r.plain.IsEmpty():
-		mc.set(r, modeAP, "no sites to write")
+		mc.set(r, design.ModeAP, "no sites to write")
 		return
 	}
 	r.width, r.widthAt = minWidth(r.segs, w)
 	switch {
 	case r.width < w:
-		mc.set(r, modeAP, fmt.Sprintf("narrowest part %.1f nm (at %s) is below the %.1f nm FE line width", r.width, fmtPoint(r.widthAt), w))
+		mc.set(r, design.ModeAP, fmt.Sprintf("narrowest part %.1f nm (at %s) is below the %.1f nm FE line width", r.width, fmtPoint(r.widthAt), w))
 		return
 	}
 	apT := mc.g.apTime(r.plain)
@@ -232,15 +227,15 @@ func (mc *modeChooser) auto1(r *regionWork) {
 			mc.setHybrid(r, core, fmt.Sprintf("wide (narrowest %.0f nm) but %s: AP edge band %.1f nm + FE fill (%s)", r.width, why, band, ballard))
 			return
 		}
-		mc.set(r, modeAP, why)
+		mc.set(r, design.ModeAP, why)
 		return
 	}
 	feT := strokesTime(mc.fe(r.plain))
 	if apT <= feT {
-		mc.set(r, modeAP, fmt.Sprintf("AP is as fast here (%.0f s vs %.0f s in FE)", apT, feT))
+		mc.set(r, design.ModeAP, fmt.Sprintf("AP is as fast here (%.0f s vs %.0f s in FE)", apT, feT))
 		return
 	}
-	mc.set(r, modeFE, fmt.Sprintf("wide (narrowest %.0f nm, FE line %.1f nm) and tolerance allows FE: %.0f s in FE instead of %.0f s in AP", r.width, w, feT, apT))
+	mc.set(r, design.ModeFE, fmt.Sprintf("wide (narrowest %.0f nm, FE line %.1f nm) and tolerance allows FE: %.0f s in FE instead of %.0f s in AP", r.width, w, feT, apT))
 }
 
 // hybridPays reports whether an AP band plus FE core beats AP alone.
@@ -260,14 +255,14 @@ func (mc *modeChooser) partsTime(r *regionWork) float64 {
 	return t
 }
 
-func (mc *modeChooser) set(r *regionWork, mode, reason string) {
+func (mc *modeChooser) set(r *regionWork, mode design.Mode, reason string) {
 	r.mode, r.reason = mode, reason
 	switch mode {
-	case modeAP:
+	case design.ModeAP:
 		r.apPart, r.fePart = r.plain, nil
-	case modeFE:
+	case design.ModeFE:
 		r.apPart, r.fePart = nil, r.plain
-	case modeHybrid:
+	case design.ModeHybrid:
 		core := erode(r.plain, mc.prof.HybridBandNM)
 		r.apPart, r.fePart = r.plain.Clone().Difference(core), core
 		if core.IsEmpty() {
@@ -277,7 +272,7 @@ func (mc *modeChooser) set(r *regionWork, mode, reason string) {
 }
 
 func (mc *modeChooser) setHybrid(r *regionWork, core *lattice.SiteSet, reason string) {
-	r.mode, r.reason = modeHybrid, reason
+	r.mode, r.reason = design.ModeHybrid, reason
 	r.apPart, r.fePart = r.plain.Clone().Difference(core), core
 }
 
@@ -292,11 +287,11 @@ type apFeature struct {
 func (mc *modeChooser) apFeatures() []apFeature {
 	var out []apFeature
 	for _, r := range mc.regions {
-		if r.mode != modeAP && r.mode != modeHybrid && len(r.windows) == 0 {
+		if r.mode != design.ModeAP && r.mode != design.ModeHybrid && len(r.windows) == 0 {
 			continue
 		}
 		owned := r.sites
-		if r.mode == modeHybrid && r.fePart != nil {
+		if r.mode == design.ModeHybrid && r.fePart != nil {
 			owned = r.sites.Clone().Difference(r.fePart)
 		}
 		if ix := lattice.NewCellIndex(mc.g.surf, owned); !ix.IsEmpty() {

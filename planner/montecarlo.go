@@ -2,6 +2,7 @@ package planner
 
 import (
 	"context"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"sort"
@@ -137,11 +138,16 @@ func monteCarlo(ctx context.Context, sg *segmenter, prof *Profile, runs int, see
 			}
 		}
 	}
+	for i, s := range totals {
+		if !finite(s) {
+			return res, fmt.Errorf("planner: the write time at a drift rate of %.3g nm/min is not a finite number of seconds (%v): the profile's times (drift.registration_s, drift.verification_s, settle_s, mode_switch_s) or rates are beyond any instrument", rates[i], s)
+		}
+	}
 	res.samples = totals
 	sort.Float64s(res.samples)
 	res.p10 = stat.Quantile(0.1, stat.Empirical, res.samples, nil)
 	if res.p10 != res.samples[quantileIndex(0.1, runs)] {
-		panic("planner: quantile index disagrees with gonum's empirical quantile")
+		return res, &InternalError{Message: fmt.Sprintf("P10 %v s from gonum's empirical quantile disagrees with sample %d of %d (%v s)", res.p10, quantileIndex(0.1, runs), runs, res.samples[quantileIndex(0.1, runs)])}
 	}
 	res.p50 = stat.Quantile(0.5, stat.Empirical, res.samples, nil)
 	res.p90 = stat.Quantile(0.9, stat.Empirical, res.samples, nil)

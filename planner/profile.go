@@ -1,17 +1,15 @@
 package planner
 
 import (
-	"bytes"
-	"encoding/json"
 	"errors"
 	"fmt"
-	"io"
 	"math"
-	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 
 	"dimerpath/internal/atomicfile"
+	"dimerpath/internal/jsonfile"
 )
 
 // ProfileFormat and ProfileVersion identify instrument-profile files.
@@ -95,8 +93,9 @@ type ModeProfile struct {
 //
 //	w(λ) = 2·σ·sqrt(2·ln(λ/λ_thr)) for λ > λ_thr, else 0.
 //
-// This is the form derived in physics.md §3 (no closed form is
-// published); calibrate fits it to a lab's own lines.
+// The form is our derivation from a Gaussian footprint and a clearing
+// threshold (no closed form has been published; see docs/sources.md);
+// calibrate fits it to a lab's own lines.
 type WidthModel struct {
 	SigmaNM             float64 `json:"sigma_nm"`
 	ThresholdDoseCPerCm float64 `json:"threshold_dose_c_per_cm"`
@@ -170,7 +169,8 @@ func DefaultProfile() Profile {
 			Passes: 1,
 			// σ = 0.3 nm and λ_thr = 0.5 mC/cm give w(2 mC/cm) = 1.0 nm,
 			// inside the 0.8–1.5 nm (1–2 dimer rows) typical AP width,
-			// from memory (physics.md §3); calibrate replaces them.
+			// from memory (cf. Randall et al., JVST B 27, 2764 (2009));
+			// calibrate replaces them.
 			Width: WidthModel{SigmaNM: 0.3, ThresholdDoseCPerCm: 0.5e-3},
 			// Atomic precision: no site outside the region may be cleared.
 			EdgeAllowanceNM: 0,
@@ -227,7 +227,7 @@ func DefaultProfile() Profile {
 			RateNMPerMin:   0.1,
 			RateSDNMPerMin: 0.05, // ±50 %, from memory
 			// A 50×50 nm² registration image of 256 lines at ~1 s/line
-			// (physics.md §5, derived/from memory).
+			// (a typical image, from memory).
 			RegistrationS: 256,
 			VerificationS: 0,
 		},
@@ -244,7 +244,7 @@ func DefaultProfile() Profile {
 		HybridBandNM: 6,
 		Limits: Limits{
 			MaxBiasV:     10,    // common instrument bias range ±10 V, from memory
-			MaxCurrentA:  10e-9, // ~10 nA FE cap, from memory (physics.md caps)
+			MaxCurrentA:  10e-9, // ~10 nA FE cap for a stable tip, from memory
 			ScanFieldNM:  2000,  // the design-rule default 2 µm scan field
 			MaxSpeedNMPS: 5000,  // few µm/s tip moves, from memory
 		},
@@ -252,8 +252,8 @@ func DefaultProfile() Profile {
 }
 
 // LowTemperatureProfile returns the 4 K preset ("lt"): the room-
-// temperature profile with liquid-helium drift, ≤ 0.1 nm/h (from memory,
-// physics.md §5). The dose model is left at the room-temperature values:
+// temperature profile with liquid-helium drift, ≤ 0.1 nm/h (from
+// memory). The dose model is left at the room-temperature values:
 // the low-bias yield rises ~300× at 11 K (Foley et al., PRL 80, 1336
 // (1998)), so calibrate at temperature before trusting write times.
 func LowTemperatureProfile() Profile {
@@ -279,50 +279,49 @@ func Preset(name string) (Profile, error) {
 	return Profile{}, fmt.Errorf("planner: unknown profile preset %q (known: %s)", name, strings.Join(Presets(), ", "))
 }
 
-// FieldProblem is one bad field of a profile: its JSON path, its value
-// and what is wrong.
-type FieldProblem struct {
-	Path    string
-	Value   any
-	Problem string
-}
-
-func (p FieldProblem) String() string {
-	return fmt.Sprintf("%s = %v: %s", p.Path, p.Value, p.Problem)
-}
-
-// ErrInvalidProfile is wrapped by every *ProfileError.
+// ErrInvalidProfile is wrapped by the *jsonfile.Error of every profile
+// that cannot be read or does not validate.
 var ErrInvalidProfile = errors.New("invalid instrument profile")
 
-// ProfileError lists every bad field of a profile. File is empty for a
-// profile that did not come from a file.
-type ProfileError struct {
-	File     string
-	Problems []FieldProblem
-}
+// MaxProfileBytes bounds a profile file (1 MiB: a profile is a few
+// hundred bytes); a larger file is refused before it is read.
+const MaxProfileBytes = 1 << 20
 
-func (e *ProfileError) Error() string {
-	var b strings.Builder
-	if e.File != "" {
-		b.WriteString(e.File)
-		b.WriteString(": ")
-	}
-	fmt.Fprintf(&b, "%s (%d problem", ErrInvalidProfile, len(e.Problems))
-	if len(e.Problems) != 1 {
-		b.WriteString("s")
-	}
-	b.WriteString(")")
-	for _, p := range e.Problems {
-		b.WriteString("\n  ")
-		b.WriteString(p.String())
-	}
-	return b.String()
-}
+// Plausible ranges of the profile's fields. A value outside one is a
+// typo, not an instrument (issue 16): a settle of more than an hour, a
+// move slower than 1 pm/s, a current above 1 µA or a bias beyond ±100 V.
+// The ranges are wide on purpose (common practice: several orders of
+// magnitude around the published working points cited in
+// DefaultProfile), and with them every time the planner derives is
+// finite.
+const (
+	MaxBiasV          = 100   // |bias|, V
+	MinCurrentA       = 1e-15 // 1 fA
+	MaxCurrentA       = 1e-6  // 1 µA
+	MinLineDoseCPerCm = 1e-9  // 1 nC/cm
+	MaxLineDoseCPerCm = 0.1   // 100 mC/cm
+	MinSpeedNMPerS    = 1e-3  // 1 pm/s, writing or moving
+	MaxSpeedNMPerS    = 1e7   // 1 cm/s
+	MinSigmaNM        = 0.01  // footprint σ
+	MaxSigmaNM        = 100
+	MaxOverlap        = 0.95  // FE raster: a pitch of at least 5 % of the line width
+	MaxAllowanceNM    = 100   // edge allowance, hybrid band
+	MinYield          = 1e-15 // H atoms per electron
+	MaxSettleS        = 3600  // settle after a move
+	MaxStepS          = 86400 // a mode switch, a registration, a verification image
+	MaxDwellS         = 3600  // the planned (capped) dwell on one site
+	MaxDriftNMPerMin  = 100   // drift rate and its SD
+	MinToleranceNM    = 1e-3  // placement tolerance, ±nm
+	MaxToleranceNM    = 1000
+	MaxScanFieldNM    = 1e5 // 100 µm
+	maxPasses         = 1000
+	minThresholdDose  = 1e-12 // C/cm
+)
 
-func (e *ProfileError) Unwrap() error { return ErrInvalidProfile }
-
-// Validate checks every field and returns a *ProfileError listing each
-// bad one with its JSON path and value, or nil.
+// Validate checks every field against its plausible range and the
+// relations between fields, and returns a *jsonfile.Error (wrapping
+// ErrInvalidProfile) listing each bad one with its JSON path, its value
+// and the range, or nil.
 func (p Profile) Validate() error {
 	var v validator
 	if p.Format != ProfileFormat {
@@ -339,205 +338,200 @@ func (p Profile) Validate() error {
 	v.mode("ap", p.AP, false)
 	v.mode("fe", p.FE, true)
 
-	v.nonZero("dwell.bias_v", p.Dwell.BiasV)
-	v.positive("dwell.current_a", p.Dwell.CurrentA)
-	v.positive("dwell.yield_per_electron", p.Dwell.YieldPerElectron)
-	if y := p.Dwell.YieldPerElectron; y > 1 && !math.IsNaN(y) {
-		v.add("dwell.yield_per_electron", y, "must be at most 1 H atom per electron")
+	v.bias("dwell.bias_v", p.Dwell.BiasV)
+	cur := v.current("dwell.current_a", p.Dwell.CurrentA)
+	y := v.within("dwell.yield_per_electron", p.Dwell.YieldPerElectron, MinYield, 1, "H atoms per electron")
+	c := true
+	if x := p.Dwell.Completion; !(x > 0 && x < 1) {
+		v.add("dwell.completion", x, "must lie strictly between 0 and 1")
+		c = false
 	}
-	if c := p.Dwell.Completion; !(c > 0 && c < 1) {
-		v.add("dwell.completion", c, "must lie strictly between 0 and 1")
+	if cur && y && c {
+		if d := p.Dwell.CapS(); !(d <= MaxDwellS) {
+			v.add("dwell.yield_per_electron", p.Dwell.YieldPerElectron, fmt.Sprintf(
+				"with dwell.current_a = %s A a dwell reaches its completion after %s s per site, more than the %d s a dwell may take",
+				jsonfile.Number(p.Dwell.CurrentA), jsonfile.Approx(d), MaxDwellS))
+		}
 	}
 
-	v.positive("move_speed_nm_per_s", p.MoveSpeedNMPerS)
-	v.nonNegative("settle_s", p.SettleS)
-	v.nonNegative("mode_switch_s", p.ModeSwitchS)
+	v.within("move_speed_nm_per_s", p.MoveSpeedNMPerS, MinSpeedNMPerS, MaxSpeedNMPerS, "nm/s")
+	v.within("settle_s", p.SettleS, 0, MaxSettleS, "s")
+	v.within("mode_switch_s", p.ModeSwitchS, 0, MaxStepS, "s")
 
-	v.nonNegative("drift.rate_nm_per_min", p.Drift.RateNMPerMin)
-	v.nonNegative("drift.rate_sd_nm_per_min", p.Drift.RateSDNMPerMin)
-	v.nonNegative("drift.registration_s", p.Drift.RegistrationS)
-	v.nonNegative("drift.verification_s", p.Drift.VerificationS)
+	v.within("drift.rate_nm_per_min", p.Drift.RateNMPerMin, 0, MaxDriftNMPerMin, "nm/min")
+	v.within("drift.rate_sd_nm_per_min", p.Drift.RateSDNMPerMin, 0, MaxDriftNMPerMin, "nm/min")
+	v.within("drift.registration_s", p.Drift.RegistrationS, 0, MaxStepS, "s")
+	v.within("drift.verification_s", p.Drift.VerificationS, 0, MaxStepS, "s")
 
-	v.positive("tolerance_ap_nm", p.ToleranceAPNM)
-	v.positive("tolerance_fe_nm", p.ToleranceFENM)
+	v.within("tolerance_ap_nm", p.ToleranceAPNM, MinToleranceNM, MaxToleranceNM, "nm")
+	v.within("tolerance_fe_nm", p.ToleranceFENM, MinToleranceNM, MaxToleranceNM, "nm")
 	if p.Order != OrderAPFirst && p.Order != OrderFEFirst {
 		v.add("order", p.Order, fmt.Sprintf("must be %q or %q", OrderAPFirst, OrderFEFirst))
 	}
 	if p.WindowStyle != WindowStyleLine && p.WindowStyle != WindowStyleDwell {
 		v.add("window_style", p.WindowStyle, fmt.Sprintf("must be %q or %q", WindowStyleLine, WindowStyleDwell))
 	}
-	if v.positive("hybrid_band_nm", p.HybridBandNM) && finite(p.FE.EdgeAllowanceNM) && p.HybridBandNM < p.FE.EdgeAllowanceNM {
-		v.add("hybrid_band_nm", p.HybridBandNM, fmt.Sprintf("must be at least fe.edge_allowance_nm (%g nm) so the FE fill stays inside the region", p.FE.EdgeAllowanceNM))
+	if v.positiveUpTo("hybrid_band_nm", p.HybridBandNM, MaxAllowanceNM, "nm") && finite(p.FE.EdgeAllowanceNM) && p.HybridBandNM < p.FE.EdgeAllowanceNM {
+		v.add("hybrid_band_nm", p.HybridBandNM, fmt.Sprintf("must be at least fe.edge_allowance_nm (%s nm) so the FE fill stays inside the region", jsonfile.Number(p.FE.EdgeAllowanceNM)))
 	}
 
-	v.positive("limits.max_bias_v", p.Limits.MaxBiasV)
-	v.positive("limits.max_current_a", p.Limits.MaxCurrentA)
-	v.positive("limits.scan_field_nm", p.Limits.ScanFieldNM)
+	v.positiveUpTo("limits.max_bias_v", p.Limits.MaxBiasV, MaxBiasV, "V")
+	v.positiveUpTo("limits.max_current_a", p.Limits.MaxCurrentA, MaxCurrentA, "A")
+	v.positiveUpTo("limits.scan_field_nm", p.Limits.ScanFieldNM, MaxScanFieldNM, "nm")
 	if p.Limits.MaxSpeedNMPS != 0 {
-		v.positive("limits.max_speed_nm_per_s", p.Limits.MaxSpeedNMPS)
+		v.within("limits.max_speed_nm_per_s", p.Limits.MaxSpeedNMPS, MinSpeedNMPerS, MaxSpeedNMPerS, "nm/s (or 0 for no limit)")
 	}
-	if len(v.problems) == 0 {
-		return nil
-	}
-	return &ProfileError{Problems: v.problems}
+	return v.Err("", ErrInvalidProfile)
 }
 
-type validator struct{ problems []FieldProblem }
+// validator collects a profile's problems, each with its JSON path, the
+// bad value and what is wrong.
+type validator struct{ jsonfile.Problems }
 
 func (v *validator) add(path string, value any, problem string) {
-	v.problems = append(v.problems, FieldProblem{Path: path, Value: value, Problem: problem})
+	v.AddValue(path, value, "%s", problem)
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
-// positive reports whether x is finite and > 0, recording a problem if not.
-func (v *validator) positive(path string, x float64) bool {
-	if !finite(x) || x <= 0 {
-		v.add(path, x, "must be a positive finite number")
-		return false
+// within reports whether lo <= x <= hi, recording a problem that gives
+// the range if not (NaN and infinities are outside every range).
+func (v *validator) within(path string, x, lo, hi float64, unit string) bool {
+	if x >= lo && x <= hi {
+		return true
 	}
-	return true
+	v.add(path, x, fmt.Sprintf("must be from %s to %s %s", jsonfile.Number(lo), jsonfile.Number(hi), unit))
+	return false
 }
 
-func (v *validator) nonNegative(path string, x float64) bool {
-	if !finite(x) || x < 0 {
-		v.add(path, x, "must be a finite number, zero or more")
-		return false
+// positiveUpTo reports whether 0 < x <= hi, recording a problem if not.
+func (v *validator) positiveUpTo(path string, x, hi float64, unit string) bool {
+	if x > 0 && x <= hi {
+		return true
 	}
-	return true
+	v.add(path, x, fmt.Sprintf("must be more than 0 and at most %s %s", jsonfile.Number(hi), unit))
+	return false
 }
 
-func (v *validator) nonZero(path string, x float64) bool {
-	if !finite(x) || x == 0 {
-		v.add(path, x, "must be a non-zero finite number")
-		return false
+func (v *validator) bias(path string, x float64) bool {
+	if x != 0 && math.Abs(x) <= MaxBiasV {
+		return true
 	}
-	return true
+	v.add(path, x, fmt.Sprintf("must be non-zero and within ±%d V", MaxBiasV))
+	return false
+}
+
+func (v *validator) current(path string, x float64) bool {
+	if x >= MinCurrentA && x <= MaxCurrentA {
+		return true
+	}
+	v.add(path, x, "must be from 1 fA to 1 µA (1e-15 to 1e-06 A)")
+	return false
 }
 
 func (v *validator) mode(prefix string, m ModeProfile, fe bool) {
-	v.nonZero(prefix+".bias_v", m.BiasV)
-	v.positive(prefix+".current_a", m.CurrentA)
-	dose := v.positive(prefix+".line_dose_c_per_cm", m.LineDoseCPerCm)
-	if m.Passes < 1 || m.Passes > 1000 {
-		v.add(prefix+".passes", m.Passes, "must be 1..1000")
+	v.bias(prefix+".bias_v", m.BiasV)
+	cur := v.current(prefix+".current_a", m.CurrentA)
+	dose := v.within(prefix+".line_dose_c_per_cm", m.LineDoseCPerCm, MinLineDoseCPerCm, MaxLineDoseCPerCm, "C/cm")
+	if cur && dose {
+		if sp := m.Speed(); !(sp >= MinSpeedNMPerS && sp <= MaxSpeedNMPerS) {
+			v.add(prefix+".line_dose_c_per_cm", m.LineDoseCPerCm, fmt.Sprintf(
+				"with %s.current_a = %s A the tip would write at %s nm/s; a writing speed must be from %s to %s nm/s",
+				prefix, jsonfile.Number(m.CurrentA), jsonfile.Approx(sp), jsonfile.Number(MinSpeedNMPerS), jsonfile.Number(MaxSpeedNMPerS)))
+		}
 	}
-	v.positive(prefix+".width.sigma_nm", m.Width.SigmaNM)
-	thr := v.positive(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm)
+	if m.Passes < 1 || m.Passes > maxPasses {
+		v.add(prefix+".passes", m.Passes, fmt.Sprintf("must be 1..%d", maxPasses))
+	}
+	v.within(prefix+".width.sigma_nm", m.Width.SigmaNM, MinSigmaNM, MaxSigmaNM, "nm")
+	thr := v.within(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm, minThresholdDose, MaxLineDoseCPerCm, "C/cm")
 	if dose && thr && m.Width.ThresholdDoseCPerCm >= m.LineDoseCPerCm*float64(max(m.Passes, 1)) {
 		v.add(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm,
-			fmt.Sprintf("must be below the delivered dose (%g C/cm): lines would clear nothing", m.LineDoseCPerCm*float64(max(m.Passes, 1))))
+			fmt.Sprintf("must be below the delivered dose (%s C/cm): lines would clear nothing", jsonfile.Approx(m.LineDoseCPerCm*float64(max(m.Passes, 1)))))
 	}
 	if fe {
-		if o := m.Overlap; !(o >= 0 && o < 1) {
-			v.add(prefix+".overlap", o, "must be at least 0 and below 1")
+		if o := m.Overlap; !(o >= 0 && o <= MaxOverlap) {
+			v.add(prefix+".overlap", o, fmt.Sprintf("must be from 0 to %g (a raster pitch of at least %g %% of the line width)", MaxOverlap, 100*(1-MaxOverlap)))
 		}
 	} else if m.Overlap != 0 {
 		v.add(prefix+".overlap", m.Overlap, "applies to the FE raster only; leave it 0")
 	}
-	v.nonNegative(prefix+".edge_allowance_nm", m.EdgeAllowanceNM)
+	v.within(prefix+".edge_allowance_nm", m.EdgeAllowanceNM, 0, MaxAllowanceNM, "nm")
 }
 
 // ParseProfile reads a profile from JSON. Fields the document leaves out
 // keep the value of the preset named by its "base" field (the
-// room-temperature default when absent); unknown fields are refused, so
-// a misspelt name is reported rather than ignored. name labels errors
-// (usually the file name). The result is validated.
+// room-temperature default when absent); unknown fields and fields in
+// another case are refused, so a misspelt name is reported rather than
+// ignored. name labels errors (usually the file name). The result is
+// validated; every problem is reported with its JSON path, line and
+// column in a *jsonfile.Error wrapping ErrInvalidProfile.
 func ParseProfile(data []byte, name string) (Profile, error) {
 	label := name
 	if label == "" {
 		label = "profile"
 	}
-	var head struct {
-		Format  *string `json:"format"`
-		Version *int    `json:"version"`
-		Base    string  `json:"base"`
+	fail := func(ps []jsonfile.Problem) error {
+		jsonfile.Locate(data, ps)
+		return &jsonfile.Error{File: label, Kind: ErrInvalidProfile, Problems: ps}
 	}
-	if err := json.Unmarshal(data, &head); err != nil {
-		return Profile{}, fmt.Errorf("%s: %w", label, jsonError(data, err))
+	if len(data) > MaxProfileBytes {
+		return Profile{}, fail([]jsonfile.Problem{{Message: "the file holds " + jsonfile.Bytes(int64(len(data))) +
+			", more than the " + jsonfile.Bytes(MaxProfileBytes) + " limit for a profile", Err: jsonfile.ErrTooLarge}})
 	}
-	if head.Format == nil || *head.Format != ProfileFormat {
-		got := "missing"
-		if head.Format != nil {
-			got = fmt.Sprintf("%q", *head.Format)
+	// Identify the file and its preset before decoding it strictly, so a
+	// design or a newer version gets the right message.
+	if p, bad := jsonfile.SyntaxProblem(data, "the profile"); bad {
+		return Profile{}, fail([]jsonfile.Problem{p})
+	}
+	format, ok := jsonfile.TopString(data, "format")
+	if !ok || format != ProfileFormat {
+		p := jsonfile.Problem{Path: "format", Message: fmt.Sprintf("not a dimerpath instrument profile (want %q)", ProfileFormat)}
+		if raw, found := jsonfile.TopField(data, "format"); found {
+			p.Value = jsonfile.Text(raw)
+		} else {
+			p.Message = "missing: " + p.Message
 		}
-		return Profile{}, fmt.Errorf("%s: not a dimerpath instrument profile: format is %s, want %q", label, got, ProfileFormat)
+		return Profile{}, fail([]jsonfile.Problem{p})
 	}
-	if head.Version == nil || *head.Version < 1 || *head.Version > ProfileVersion {
-		got := "missing"
-		if head.Version != nil {
-			got = fmt.Sprint(*head.Version)
+	raw, found := jsonfile.TopField(data, "version")
+	if v, err := strconv.Atoi(string(raw)); err != nil || v < 1 || v > ProfileVersion {
+		p := jsonfile.Problem{Path: "version", Message: fmt.Sprintf("this dimerpath reads profile versions 1 to %d", ProfileVersion)}
+		if found {
+			p.Value = jsonfile.Text(raw)
+		} else {
+			p.Message = "missing: " + p.Message
 		}
-		return Profile{}, fmt.Errorf("%s: profile version %s: this dimerpath reads versions 1..%d", label, got, ProfileVersion)
+		return Profile{}, fail([]jsonfile.Problem{p})
 	}
-	p, err := Preset(head.Base)
+	base, _ := jsonfile.TopString(data, "base")
+	p, err := Preset(base)
 	if err != nil {
-		return Profile{}, fmt.Errorf("%s: base: %w", label, err)
+		return Profile{}, fail([]jsonfile.Problem{{Path: "base", Value: base,
+			Message: fmt.Sprintf("unknown profile preset (known: %s)", strings.Join(Presets(), ", "))}})
 	}
 	// Name and notes describe the file, not the preset it starts from.
 	p.Name, p.Notes = "", ""
-	dec := json.NewDecoder(bytes.NewReader(data))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&p); err != nil {
-		return Profile{}, fmt.Errorf("%s: %w", label, jsonError(data, err))
-	}
-	if dec.More() {
-		return Profile{}, fmt.Errorf("%s: unexpected data after the profile object", label)
+	var ps jsonfile.Problems
+	if !jsonfile.Decode(data, &p, &ps, jsonfile.Options{What: "the profile", MaxString: 10000, MaxList: 100, MaxDepth: 8}) || ps.Len() > 0 {
+		return Profile{}, ps.Err(label, ErrInvalidProfile)
 	}
 	if p.Name == "" && name != "" {
 		p.Name = strings.TrimSuffix(filepath.Base(name), filepath.Ext(name))
 	}
 	if err := p.Validate(); err != nil {
-		var pe *ProfileError
-		if errors.As(err, &pe) {
-			pe.File = name
-		}
-		return Profile{}, err
+		e := err.(*jsonfile.Error)
+		e.File = label
+		jsonfile.Locate(data, e.Problems)
+		return Profile{}, e
 	}
 	return p, nil
 }
 
-// jsonError turns a decoding error into one that names the field or the
-// line and column.
-func jsonError(data []byte, err error) error {
-	var te *json.UnmarshalTypeError
-	if errors.As(err, &te) {
-		path := te.Field
-		if path == "" {
-			path = "(top level)"
-		}
-		return fmt.Errorf("%s: got a JSON %s, want %s (line %d)", path, te.Value, describeGoType(te.Type.String()), lineOf(data, te.Offset))
-	}
-	var se *json.SyntaxError
-	if errors.As(err, &se) {
-		return fmt.Errorf("malformed JSON at line %d: %v", lineOf(data, se.Offset), err)
-	}
-	if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
-		return fmt.Errorf("truncated JSON: %w", err)
-	}
-	return err
-}
-
-func describeGoType(t string) string {
-	switch t {
-	case "float64", "int":
-		return "a number"
-	case "string":
-		return "a string"
-	case "bool":
-		return "true or false"
-	}
-	return "an object"
-}
-
-func lineOf(data []byte, offset int64) int {
-	offset = min(max(offset, 0), int64(len(data)))
-	return bytes.Count(data[:offset], []byte("\n")) + 1
-}
-
-// LoadProfile reads and validates the profile file at path.
+// LoadProfile reads and validates the profile file at path; a file larger
+// than MaxProfileBytes is refused before it is read.
 func LoadProfile(path string) (Profile, error) {
-	data, err := os.ReadFile(path)
+	data, err := jsonfile.ReadFile(path, MaxProfileBytes, ErrInvalidProfile)
 	if err != nil {
 		return Profile{}, err
 	}
@@ -545,24 +539,21 @@ func LoadProfile(path string) (Profile, error) {
 }
 
 // SaveProfile validates p and writes it to path atomically (temp file +
-// rename), with the current format and version.
+// rename), with the current format and version, one field a line.
 func SaveProfile(path string, p Profile) error {
 	p.Format, p.Version = ProfileFormat, ProfileVersion
 	if p.Base == "" {
 		p.Base = defaultPresetName
 	}
 	if err := p.Validate(); err != nil {
-		var pe *ProfileError
-		if errors.As(err, &pe) {
-			pe.File = path
-		}
+		err.(*jsonfile.Error).File = path
 		return err
 	}
-	data, err := json.MarshalIndent(p, "", "  ")
+	data, err := jsonfile.Marshal(p, jsonfile.Indented)
 	if err != nil {
 		return fmt.Errorf("%s: %w", path, err)
 	}
-	return atomicfile.WriteBytes(path, append(data, '\n'), 0o644)
+	return atomicfile.WriteBytes(path, data, 0o644)
 }
 
 // LimitError reports a value a plan needs that lies beyond the

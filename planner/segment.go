@@ -4,6 +4,8 @@ import (
 	"math"
 
 	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice/design"
 )
 
 // job is one stroke as the segmenter and the timeline see it, in
@@ -13,7 +15,7 @@ type job struct {
 	start, end r2.Point // tip position where the write starts and ends
 	writeS     float64  // write or dwell duration
 	budgetS    float64  // drift budget at the nominal rate; +Inf without drift
-	mode       WriteMode
+	mode       design.Mode
 	dwell      bool
 }
 
@@ -36,7 +38,7 @@ func newCosts(p *Profile, fids []Fiducial) costs {
 func (c *costs) move(a, b r2.Point) float64 { return a.Sub(b).Norm()/c.speed + c.settle }
 
 // switchCost is the mode switch paid between two consecutive writes.
-func (c *costs) switchCost(a, b WriteMode) float64 {
+func (c *costs) switchCost(a, b design.Mode) float64 {
 	if a != b {
 		return c.modeSwitch
 	}

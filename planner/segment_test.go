@@ -10,6 +10,8 @@ import (
 	"testing"
 
 	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice/design"
 )
 
 func TestDriftBudgetByHand(t *testing.T) {
@@ -39,9 +41,9 @@ func randomJobs(rng *rand.Rand, n int) ([]job, []Stroke, costs) {
 	strokes := make([]Stroke, n)
 	x := 10.0
 	for i := range jobs {
-		mode := AP
+		mode := design.ModeAP
 		if rng.IntN(3) == 0 {
-			mode = FE
+			mode = design.ModeFE
 		}
 		w := 5 + rng.Float64()*60
 		jobs[i] = job{stroke: i, start: r2.Point{X: x, Y: rng.Float64() * 40}, writeS: w,
@@ -150,9 +152,9 @@ func TestOverBudgetJobGetsOwnSegment(t *testing.T) {
 	p := DefaultProfile()
 	c := newCosts(&p, []Fiducial{{Name: "F", At: r2.Point{}}})
 	jobs := []job{
-		{stroke: 0, start: r2.Point{X: 1}, end: r2.Point{X: 2}, writeS: 10, budgetS: 100, mode: AP},
-		{stroke: 1, start: r2.Point{X: 3}, end: r2.Point{X: 4}, writeS: 500, budgetS: 100, mode: AP},
-		{stroke: 2, start: r2.Point{X: 5}, end: r2.Point{X: 6}, writeS: 10, budgetS: 100, mode: AP},
+		{stroke: 0, start: r2.Point{X: 1}, end: r2.Point{X: 2}, writeS: 10, budgetS: 100, mode: design.ModeAP},
+		{stroke: 1, start: r2.Point{X: 3}, end: r2.Point{X: 4}, writeS: 500, budgetS: 100, mode: design.ModeAP},
+		{stroke: 2, start: r2.Point{X: 5}, end: r2.Point{X: 6}, writeS: 10, budgetS: 100, mode: design.ModeAP},
 	}
 	starts, _, forced := newSegmenter(jobs, c, 0).solve(1)
 	if len(forced) != 1 || forced[0] != 1 || len(starts) != 3 {

@@ -6,6 +6,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 )
 
 // strokeGen turns region sites into strokes. Stroke IDs are assigned by
@@ -56,9 +57,9 @@ func modeRatio(m ModeProfile) float64 {
 // Gaussian footprint (see exposure).
 func apExtension(m ModeProfile, n int) float64 {
 	ratio, sigma := modeRatio(m), m.Width.SigmaNM
-	span := float64(n-1) * lattice.DimerPitch
+	centres := lattice.DimerAlong(n - 1) // from the first dimer's centre to the last's
 	for ext := 0.0; ext <= lattice.DimerPitch/2; ext += 0.005 {
-		L := span + 2*ext
+		L := centres + 2*ext
 		if exposure(ratio, sigma, L, ext, lattice.HOffset) >= 1.25 {
 			return ext
 		}
@@ -92,20 +93,17 @@ func (g *strokeGen) lineStroke(region string, t, row, d0, d1 int) Stroke {
 	ext := g.apExt[min(n, len(g.apExt))-1]
 	a := g.surf.DimerCentre(t, row, d0)
 	b := g.surf.DimerCentre(t, row, d1)
-	dir := r2.Point{X: 1}
-	if g.surf.Terraces[t].Rows == lattice.RowsAlongY {
-		dir = r2.Point{Y: 1}
-	}
+	dir := g.surf.Terraces[t].Rows.Join(1, 0)
 	path := []r2.Point{a.Sub(dir.Mul(ext)), b.Add(dir.Mul(ext))}
 	l := pathLength(path)
 	m := g.prof.AP
-	return Stroke{Region: region, Mode: AP, Kind: StrokeLine, Path: path, Passes: max(m.Passes, 1),
+	return Stroke{Region: region, Mode: design.ModeAP, Kind: StrokeLine, Path: path, Passes: max(m.Passes, 1),
 		LengthNM: l, DurationS: float64(max(m.Passes, 1)) * l / m.Speed(), Sites: 2 * n, Window: -1}
 }
 
 // dwellStroke parks the tip over one H site.
 func (g *strokeGen) dwellStroke(region string, site lattice.Site) Stroke {
-	return Stroke{Region: region, Mode: AP, Kind: StrokeDwell, Path: []r2.Point{g.surf.Position(site)}, Passes: 1,
+	return Stroke{Region: region, Mode: design.ModeAP, Kind: StrokeDwell, Path: []r2.Point{g.surf.Position(site)}, Passes: 1,
 		DurationS: g.prof.Dwell.ExpectedS(), Sites: 1, Window: -1}
 }
 
@@ -200,14 +198,10 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 		}
 		segs := all[:n]
 		all = all[n:]
-		axis := 0
-		if g.surf.Terraces[t].Rows == lattice.RowsAlongY {
-			axis = 1
-		}
-		other := 1 - axis
+		rows := g.surf.Terraces[t].Rows
 		cmin, cmax := math.Inf(1), math.Inf(-1)
 		for _, s := range segs {
-			c := coord(s.a, other)
+			_, c := rows.Split(s.a)
 			cmin, cmax = math.Min(cmin, c-lattice.HOffset), math.Max(cmax, c+lattice.HOffset)
 		}
 		var cs []float64
@@ -220,13 +214,13 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 				cs = append(cs, cmin+side+float64(k)*step)
 			}
 		}
-		ix := newChordIndex(segs, axis)
+		ix := newChordIndex(segs, rows)
 		lineAt := func(c float64) []feLine {
 			var ls []feLine
 			for _, iv := range ix.chords(c, lattice.RowSpacing/2, 2*lattice.RowSpacing, false) {
-				lo, hi := iv.lo+end, iv.hi-end
+				lo, hi := iv.Lo+end, iv.Hi-end
 				if hi-lo < m.Width.SigmaNM {
-					mid := (iv.lo + iv.hi) / 2
+					mid := iv.Center()
 					lo, hi = mid-m.Width.SigmaNM/2, mid+m.Width.SigmaNM/2
 				}
 				ls = append(ls, feLine{c: c, lo: lo, hi: hi})
@@ -259,16 +253,16 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 				if i%2 == 1 {
 					a, b = b, a
 				}
-				path = append(path, pointOnAxes(a, ln.c, axis), pointOnAxes(b, ln.c, axis))
+				path = append(path, rows.Join(a, ln.c), rows.Join(b, ln.c))
 			}
 			out = append(out, g.feStroke(region, StrokeRaster, path))
 			if m.Outline {
 				var ol []r2.Point
 				for _, ln := range chain {
-					ol = append(ol, pointOnAxes(ln.hi, ln.c, axis))
+					ol = append(ol, rows.Join(ln.hi, ln.c))
 				}
 				for i := len(chain) - 1; i >= 0; i-- {
-					ol = append(ol, pointOnAxes(chain[i].lo, chain[i].c, axis))
+					ol = append(ol, rows.Join(chain[i].lo, chain[i].c))
 				}
 				ol = append(ol, ol[0])
 				out = append(out, g.feStroke(region, StrokeOutline, ol))
@@ -282,7 +276,7 @@ func (g *strokeGen) feStroke(region string, kind StrokeKind, path []r2.Point) St
 	m := g.prof.FE
 	l := pathLength(path)
 	sites := 0 // filled in by the caller from the region
-	return Stroke{Region: region, Mode: FE, Kind: kind, Path: path, Passes: max(m.Passes, 1),
+	return Stroke{Region: region, Mode: design.ModeFE, Kind: kind, Path: path, Passes: max(m.Passes, 1),
 		LengthNM: l, DurationS: float64(max(m.Passes, 1)) * l / m.Speed(), Sites: sites, Window: -1}
 }
 

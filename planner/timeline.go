@@ -3,6 +3,8 @@ package planner
 import (
 	"fmt"
 	"math"
+
+	"dimerpath/lattice/design"
 )
 
 // timeline is the schedule of one segmented writing order.
@@ -50,7 +52,7 @@ func schedule(sg *segmenter, starts []int, strokes []Stroke, prof *Profile) time
 		case ActDwell:
 			tl.breakdown.DwellS += a.DurationS
 		case ActWrite:
-			if a.Mode == FE {
+			if a.Mode == design.ModeFE {
 				tl.breakdown.FEWriteS += a.DurationS
 			} else {
 				tl.breakdown.APWriteS += a.DurationS
@@ -58,7 +60,7 @@ func schedule(sg *segmenter, starts []int, strokes []Stroke, prof *Profile) time
 		}
 	}
 	next := 1 // index into starts of the next segment
-	var prevMode WriteMode
+	var prevMode design.Mode
 	for j, jb := range jobs {
 		st := &strokes[jb.stroke]
 		if j == 0 || (next < len(starts) && starts[next] == j) {
@@ -92,7 +94,7 @@ func schedule(sg *segmenter, starts []int, strokes []Stroke, prof *Profile) time
 		st.Segment = seg
 		a := Action{Kind: ActWrite, Stroke: st.ID, From: jb.start, To: jb.end, DurationS: jb.writeS, Mode: jb.mode}
 		cond := prof.AP
-		if jb.mode == FE {
+		if jb.mode == design.ModeFE {
 			cond = prof.FE
 		}
 		a.BiasV, a.CurrentA, a.SpeedNMPS = cond.BiasV, cond.CurrentA, cond.Speed()
@@ -117,18 +119,11 @@ func schedule(sg *segmenter, starts []int, strokes []Stroke, prof *Profile) time
 	return tl
 }
 
-func switchAction(c *costs, to WriteMode, prof *Profile, at Fiducial) Action {
+func switchAction(c *costs, to design.Mode, prof *Profile, at Fiducial) Action {
 	cond := prof.AP
-	if to == FE {
+	if to == design.ModeFE {
 		cond = prof.FE
 	}
 	return Action{Kind: ActSwitch, Stroke: -1, From: at.At, To: at.At, DurationS: c.modeSwitch, Mode: to,
-		BiasV: cond.BiasV, CurrentA: cond.CurrentA, Note: "switch to " + modeName(to) + " conditions"}
-}
-
-func modeName(m WriteMode) string {
-	if m == FE {
-		return "field-emission"
-	}
-	return "atomic-precision"
+		BiasV: cond.BiasV, CurrentA: cond.CurrentA, Note: "switch to " + to.Adjective() + " conditions"}
 }

@@ -13,7 +13,10 @@ import (
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/render"
 	"dimerpath/export"
+	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
@@ -54,7 +57,7 @@ func (u *UI) StartPlan() {
 	if u.Busy() {
 		return
 	}
-	s := u.S
+	s := u.Session
 	d, variant, tok, prof := s.DesignCopy(), s.Variant().Name, s.Token(), s.Profile
 	ctx, cancel := context.WithCancel(context.Background())
 	u.planCancel = cancel
@@ -62,33 +65,39 @@ func (u *UI) StartPlan() {
 	u.planButton.Disable()
 	u.showProgress("Planning "+variant+"…", 0)
 	opt := planner.Options{Seed: u.opts.Seed, Progress: u.progressFunc(variant+": ", 1, 0)}
+	plan := u.jobs.Plan
 	go func() {
-		p, err := buildPlan(ctx, d, variant, prof, opt)
+		var p *planner.Plan
+		err := editor.Guard(func() (err error) {
+			p, err = plan(ctx, d, variant, prof, opt)
+			return err
+		})
 		fyne.Do(func() { u.planDone(s, p, variant, tok, err) })
 	}()
 }
 
-func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken, err error) {
+func (u *UI) planDone(s *editor.Session, p *planner.Plan, variant string, tok editor.PlanToken, err error) {
 	if u.jobDone != nil {
 		defer u.jobDone()
 	}
+	defer u.recoverUI("Showing the plan of variant " + variant)
 	u.planCancel = nil
 	u.planButton.Enable()
 	u.hideProgress()
 	then := u.afterPlan
 	u.afterPlan = nil
-	if s != u.S {
+	if s != u.Session {
 		return // another design was opened meanwhile
 	}
 	switch {
 	case errors.Is(err, context.Canceled):
 		u.hintLabel.SetText("Planning cancelled.")
 	case err != nil:
-		dialog.ShowError(fmt.Errorf("planning variant %s: %w", variant, err), u.Win)
+		u.showJobError("Planning variant "+variant, err)
 	default:
 		s.SetPlan(p, variant, tok)
 		u.tabs.Select(u.tabPlan)
-		u.hintLabel.SetText(fmt.Sprintf("Planned variant %s in %s.", variant, formatDuration(time.Since(u.planStarted).Seconds())))
+		u.hintLabel.SetText(fmt.Sprintf("Planned variant %s in %s.", variant, units.Duration(time.Since(u.planStarted).Seconds())))
 		if then != nil {
 			then()
 		}
@@ -98,8 +107,12 @@ func (u *UI) planDone(s *Session, p *planner.Plan, variant string, tok PlanToken
 // PlanNow plans the current variant on the calling goroutine (for the
 // screenshot mode and tests).
 func (u *UI) PlanNow(ctx context.Context) error {
-	s := u.S
-	p, err := buildPlan(ctx, s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: u.opts.Seed})
+	s := u.Session
+	var p *planner.Plan
+	err := editor.Guard(func() (err error) {
+		p, err = u.jobs.Plan(ctx, s.DesignCopy(), s.Variant().Name, s.Profile, planner.Options{Seed: u.opts.Seed})
+		return err
+	})
 	if err != nil {
 		return err
 	}
@@ -132,33 +145,53 @@ func (u *UI) CheckNow() {
 	if u.checkCancel != nil {
 		u.checkCancel()
 	}
-	s := u.S
+	s := u.Session
 	d, variant, tok := s.DesignCopy(), s.Variant().Name, s.Token()
 	ctx, cancel := context.WithCancel(context.Background())
 	u.checkCancel = cancel
+	check := u.jobs.Check
 	go func() {
-		res, err := checkDesign(ctx, d, variant)
+		res, err := guardedCheck(check, ctx, d, variant)
 		fyne.Do(func() {
-			if ctx.Err() != nil || s != u.S || variant != s.Variant().Name {
+			if u.jobDone != nil {
+				defer u.jobDone()
+			}
+			if ctx.Err() != nil || s != u.Session || variant != s.Variant().Name {
 				return
 			}
+			defer u.recoverUI("Showing the design-rule check of variant " + variant)
 			u.checkCancel = nil
-			if err != nil {
-				res = CheckResult{Findings: []Finding{{Rule: "design", Error: true, Message: err.Error()}}}
-			}
-			s.SetCheck(res, tok)
+			u.checkDone(s, variant, res, err, tok)
 		})
 	}()
 }
 
+// guardedCheck runs the design-rule check job through Guard.
+func guardedCheck(check func(context.Context, *design.Design, string) (editor.CheckResult, error), ctx context.Context, d *design.Design, variant string) (res editor.CheckResult, err error) {
+	err = editor.Guard(func() (err error) {
+		res, err = check(ctx, d, variant)
+		return err
+	})
+	return res, err
+}
+
+// checkDone records a check's result; a variant that cannot be checked
+// becomes one finding saying why, and a bug is also reported once.
+func (u *UI) checkDone(s *editor.Session, variant string, res editor.CheckResult, err error, tok editor.PlanToken) {
+	if err != nil {
+		if _, bug := editor.BugDetails(err); bug {
+			u.showBugOnce("Checking the design rules of variant "+variant, err)
+		}
+		res = editor.CheckResult{Findings: []editor.Finding{{Rule: "design", Error: true, Message: err.Error()}}}
+	}
+	s.SetCheck(res, tok)
+}
+
 // CheckSync runs the checks on the calling goroutine (tests, screenshot).
 func (u *UI) CheckSync() {
-	s := u.S
-	res, err := checkDesign(context.Background(), s.DesignCopy(), s.Variant().Name)
-	if err != nil {
-		res = CheckResult{Findings: []Finding{{Rule: "design", Error: true, Message: err.Error()}}}
-	}
-	s.SetCheck(res, s.Token())
+	s := u.Session
+	res, err := guardedCheck(u.jobs.Check, context.Background(), s.DesignCopy(), s.Variant().Name)
+	u.checkDone(s, s.Variant().Name, res, err, s.Token())
 }
 
 // compareVariants plans every variant in the background and shows the
@@ -167,7 +200,7 @@ func (u *UI) compareVariants() {
 	if u.Busy() {
 		return
 	}
-	s := u.S
+	s := u.Session
 	d, prof := s.DesignCopy(), s.Profile
 	names := s.VariantNames()
 	ctx, cancel := context.WithCancel(context.Background())
@@ -176,23 +209,43 @@ func (u *UI) compareVariants() {
 	u.showProgress("Comparing variants…", 0)
 	seed := u.opts.Seed
 	shown, tok := s.Variant().Name, s.Token()
+	plan, check := u.jobs.Plan, u.jobs.Check
 	go func() {
 		res := make([]export.VariantResult, len(names))
 		rules := make([]string, len(names))
 		for i, n := range names {
 			frac := 1 / float64(len(names))
 			opt := planner.Options{Seed: seed, Progress: u.progressFunc(fmt.Sprintf("variant %s (%d of %d): ", n, i+1, len(names)), frac, float64(i)*frac)}
-			p, err := buildPlan(ctx, d, n, prof, opt)
+			var p *planner.Plan
+			err := editor.Guard(func() (err error) {
+				p, err = plan(ctx, d, n, prof, opt)
+				return err
+			})
 			res[i] = export.VariantResult{Variant: n, Plan: p, Err: err}
-			rules[i] = rulesSummary(ctx, d, n)
+			rules[i] = rulesSummary(check, ctx, d, n)
 			if ctx.Err() != nil {
 				break
+			}
+		}
+		// How each variant differs from the first: two rows that look
+		// alike still say what changed.
+		var diffs map[string][]design.Difference
+		if ctx.Err() == nil {
+			_ = editor.Guard(func() (err error) {
+				diffs, err = editor.VariantDifferences(ctx, d)
+				return err
+			})
+		}
+		for i := range res {
+			if ds, ok := diffs[res[i].Variant]; ok {
+				res[i].Differences, res[i].Compared = ds, true
 			}
 		}
 		fyne.Do(func() {
 			if u.jobDone != nil {
 				defer u.jobDone()
 			}
+			defer u.recoverUI("Showing the comparison")
 			u.planCancel = nil
 			u.planButton.Enable()
 			u.hideProgress()
@@ -203,19 +256,27 @@ func (u *UI) compareVariants() {
 			// The variant shown keeps its plan from the comparison, so it
 			// can be exported without planning it again.
 			for _, r := range res {
-				if r.Variant == shown && r.Err == nil && r.Plan != nil && s == u.S {
+				if r.Variant == shown && r.Err == nil && r.Plan != nil && s == u.Session {
 					s.SetPlan(r.Plan, shown, tok)
 				}
 			}
 			u.showComparison(res, rules)
+			// A bug in planning a variant is reported over the comparison,
+			// which still shows the others.
+			for _, r := range res {
+				if _, bug := editor.BugDetails(r.Err); bug {
+					u.showJobError("Planning variant "+r.Variant+" for the comparison", r.Err)
+					break
+				}
+			}
 		})
 	}()
 }
 
 // rulesSummary says how variant fares under the design rules: "passes",
 // "2 errors", "1 warning".
-func rulesSummary(ctx context.Context, d *design.Design, variant string) string {
-	res, err := checkDesign(ctx, d, variant)
+func rulesSummary(check func(context.Context, *design.Design, string) (editor.CheckResult, error), ctx context.Context, d *design.Design, variant string) string {
+	res, err := guardedCheck(check, ctx, d, variant)
 	if err != nil {
 		return "cannot be checked"
 	}
@@ -236,7 +297,7 @@ func rulesSummary(ctx context.Context, d *design.Design, variant string) string 
 // rules, when given, is each variant's design-rule summary, shown in a
 // last column: a fast variant that breaks the rules is no choice.
 func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObject {
-	header := []string{"Variant", "Write time", "P10 – P90", "Registrations", "All windows good", "Devices / perfect"}
+	header := []string{"Variant", "Write time", "P10 – P90", "Registrations", "All windows good", "Devices / perfect", "Coverage"}
 	if rules != nil {
 		header = append(header, "Design rules")
 	}
@@ -271,13 +332,19 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 		if p.Yield.Windows > 0 {
 			all = formatProbability(p.Yield.All)
 		}
-		reg := formatDuration(p.Breakdown.RegistrationS)
+		reg := units.Duration(p.Breakdown.RegistrationS)
 		if p.TotalS > 0 {
 			reg += fmt.Sprintf(" (%.0f %%)", 100*p.Breakdown.RegistrationS/p.TotalS)
 		}
-		for _, t := range []string{r.Variant, formatDuration(p.TotalS), formatDuration(p.P10S) + " – " + formatDuration(p.P90S), reg, all, dev} {
+		for _, t := range []string{r.Variant, units.Duration(p.TotalS), units.Duration(p.P10S) + " – " + units.Duration(p.P90S), reg, all, dev} {
 			cells = append(cells, widget.NewLabel(t))
 		}
+		cov := widget.NewLabel("passed")
+		if !p.Coverage.OK {
+			cov.SetText("failed")
+			cov.Importance = widget.DangerImportance
+		}
+		cells = append(cells, cov)
 		if rules != nil {
 			l := widget.NewLabel(rules[i])
 			if rules[i] != "passes" {
@@ -285,14 +352,55 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 			}
 			cells = append(cells, l)
 		}
-		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: formatDuration(p.TotalS), Color: SegmentColor(i)})
+		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: units.Duration(p.TotalS), Color: render.SegmentColor(i)})
 		yieldBars = append(yieldBars, Bar{Label: r.Variant, Value: p.Yield.All, Text: all, Color: colYield})
 	}
 	table := container.New(&tableLayout{cols: cols}, cells...)
 	charts := container.NewGridWithColumns(2,
 		container.NewVBox(heading("Write time per variant"), NewBarChart(timeBars)),
 		container.NewVBox(heading("Chance every window takes one donor"), NewBarChart(yieldBars)))
-	return container.NewVBox(table, widget.NewSeparator(), charts, widget.NewSeparator(), mutedLabel(planner.Caution))
+	parts := []fyne.CanvasObject{table}
+	if diffs := differencesView(res); diffs != nil {
+		parts = append(parts, widget.NewSeparator(), diffs)
+	}
+	parts = append(parts, widget.NewSeparator(), charts, widget.NewSeparator(), mutedLabel(planner.Caution))
+	return container.NewVBox(parts...)
+}
+
+// differencesView lists how each compared variant differs from the
+// first, a table of what, its value in the first variant and here; nil
+// when no variant was compared.
+func differencesView(res []export.VariantResult) fyne.CanvasObject {
+	if len(res) < 2 {
+		return nil
+	}
+	cells := []fyne.CanvasObject{heading("Variant"), heading("What differs from " + res[0].Variant), heading("In " + res[0].Variant), heading("In this variant")}
+	n := 0
+	for _, r := range res[1:] {
+		if !r.Compared {
+			continue
+		}
+		n++
+		if len(r.Differences) == 0 {
+			cells = append(cells, widget.NewLabel(r.Variant), widget.NewLabel("the same layout"), widget.NewLabel(""), widget.NewLabel(""))
+		}
+		for _, d := range r.Differences {
+			cells = append(cells, widget.NewLabel(r.Variant), widget.NewLabel(d.What), widget.NewLabel(d.From), widget.NewLabel(d.To))
+		}
+	}
+	if n == 0 {
+		return nil
+	}
+	return container.New(&tableLayout{cols: 4}, cells...)
+}
+
+// exportComparisonTo writes the comparison report of res to path in the
+// background.
+func (u *UI) exportComparisonTo(path string, res []export.VariantResult, es editor.ExportSettings) {
+	write := u.jobs.ExportComparison
+	u.runInBackground("Writing "+filepath.Base(path)+"…", func(ctx context.Context, _ func(string, float64)) error {
+		return write(ctx, path, res, es)
+	}, "Wrote "+path)
 }
 
 func (u *UI) showComparison(res []export.VariantResult, rules []string) {
@@ -301,16 +409,14 @@ func (u *UI) showComparison(res []export.VariantResult, rules []string) {
 	content := container.NewScroll(comparisonView(res, rules))
 	var d *dialog.CustomDialog
 	report := widget.NewButtonWithIcon("Export report…", theme.DocumentPrintIcon(), func() {
-		u.withCaution("the comparison report", func(es ExportSettings) {
-			u.chooseFile(safeFileName(u.S.Design().Name)+"-variants.pdf", []string{".pdf", ".svg"}, func(path string) {
-				u.runInBackground("Writing "+filepath.Base(path)+"…", func(ctx context.Context, _ func(string, float64)) error {
-					return exportComparison(ctx, path, res, es)
-				}, "Wrote "+path)
+		u.withCaution("the comparison report", func(es editor.ExportSettings) {
+			u.chooseFile(safeFileName(u.Session.Design().Name)+"-variants.pdf", []string{".pdf", ".svg"}, func(path string) {
+				u.exportComparisonTo(path, res, es)
 			})
 		})
 	})
 	closeBtn := widget.NewButton("Close", func() { d.Hide() })
-	d = dialog.NewCustomWithoutButtons("Compare variants", container.New(&fixedSize{fyne.NewSize(1000, 520)}, content), u.Win)
+	d = dialog.NewCustomWithoutButtons("Compare variants", container.New(&fixedSize{fyne.NewSize(1100, 560)}, content), u.Win)
 	d.SetButtons([]fyne.CanvasObject{closeBtn, report})
 	d.Show()
 }

@@ -63,7 +63,7 @@ func TestFailedSaveAsKeepsTheOldFile(t *testing.T) {
 		t.Fatalf("chosenPath = %q, %v; want %q", chosen, err, path)
 	}
 	// The write fails: a fiducial at NaN does not validate.
-	u.S.d.Fiducials = append(u.S.d.Fiducials, design.Fiducial{Name: "bad", AtNM: [2]float64{math.NaN(), 1}})
+	u.Session.Design().Fiducials = append(u.Session.Design().Fiducials, design.Fiducial{Name: "bad", AtNM: [2]float64{math.NaN(), 1}})
 	if err := u.SaveTo(chosen); err == nil {
 		t.Fatal("a design with a NaN fiducial was saved")
 	}
@@ -75,8 +75,8 @@ func TestFailedSaveAsKeepsTheOldFile(t *testing.T) {
 		t.Errorf("the folder holds %d files after the failed save, want the design alone", len(entries))
 	}
 	// Put right, the save replaces the file.
-	u.S.d.Fiducials = u.S.d.Fiducials[:len(u.S.d.Fiducials)-1]
-	u.S.AddRegion("after", design.RoleOther)
+	u.Session.Design().Fiducials = u.Session.Design().Fiducials[:len(u.Session.Design().Fiducials)-1]
+	u.Session.AddRegion("after", design.RoleOther)
 	if err := u.SaveTo(chosen); err != nil {
 		t.Fatal(err)
 	}

@@ -19,6 +19,7 @@ import (
 	"fyne.io/fyne/v2/storage"
 	"fyne.io/fyne/v2/widget"
 
+	"dimerpath/app/editor"
 	"dimerpath/export"
 	"dimerpath/internal/atomicfile"
 	"dimerpath/lattice/design"
@@ -56,12 +57,12 @@ func (u *UI) configDir() (string, error) {
 // confirmDiscard runs then at once when nothing is unsaved, else after
 // asking whether to save, discard or cancel.
 func (u *UI) confirmDiscard(action string, then func()) {
-	if !u.S.Dirty() {
+	if !u.Session.Dirty() {
 		then()
 		return
 	}
-	name := fmt.Sprintf("%q", u.S.Design().Name)
-	if p := u.S.Path(); p != "" {
+	name := fmt.Sprintf("%q", u.Session.Design().Name)
+	if p := u.Session.Path(); p != "" {
 		name += " (" + filepath.Base(p) + ")"
 	}
 	msg := widget.NewLabel(fmt.Sprintf("The design %s has changes that are not saved. Save them before you %s?", name, action))
@@ -113,7 +114,7 @@ func (u *UI) openDialog() {
 // lastDir is the folder of the current or most recent file, for the file
 // dialogs.
 func (u *UI) lastDir() fyne.ListableURI {
-	p := u.S.Path()
+	p := u.Session.Path()
 	if p == "" {
 		if r := u.recent(); len(r) > 0 {
 			p = r[0]
@@ -132,10 +133,10 @@ func (u *UI) lastDir() fyne.ListableURI {
 // OpenPath opens the design file at path, replacing the one shown. A
 // file that fails to load leaves the current design and shows why.
 func (u *UI) OpenPath(path string) error {
-	d, err := loadDesign(path)
+	d, err := editor.LoadDesign(path)
 	if err == nil {
-		var s *Session
-		if s, err = NewSession(d, path); err == nil {
+		var s *editor.Session
+		if s, err = editor.NewSession(d, path); err == nil {
 			u.SetSession(s)
 			u.addRecent(path)
 			return nil
@@ -147,7 +148,7 @@ func (u *UI) OpenPath(path string) error {
 
 func (u *UI) newDesign() {
 	u.confirmDiscard("start a new design", func() {
-		s, err := NewSession(NewDesign(), "")
+		s, err := editor.NewSession(editor.NewDesign(), "")
 		if err != nil {
 			dialog.ShowError(err, u.Win)
 			return
@@ -158,10 +159,10 @@ func (u *UI) newDesign() {
 
 func (u *UI) openDemo() {
 	u.confirmDiscard("open the demo", func() {
-		d, err := demoDesign()
+		d, err := editor.DemoDesign()
 		if err == nil {
-			var s *Session
-			if s, err = NewSession(d, ""); err == nil {
+			var s *editor.Session
+			if s, err = editor.NewSession(d, ""); err == nil {
 				u.SetSession(s)
 				return
 			}
@@ -173,11 +174,11 @@ func (u *UI) openDemo() {
 // save writes the design to its file (or asks for one), then runs then
 // if it succeeded.
 func (u *UI) save(then func()) {
-	if u.S.Path() == "" {
+	if u.Session.Path() == "" {
 		u.saveAs(then)
 		return
 	}
-	if err := u.SaveTo(u.S.Path()); err != nil {
+	if err := u.SaveTo(u.Session.Path()); err != nil {
 		dialog.ShowError(err, u.Win)
 		return
 	}
@@ -188,10 +189,10 @@ func (u *UI) save(then func()) {
 
 // SaveTo writes the design atomically to path and records it as saved.
 func (u *UI) SaveTo(path string) error {
-	if err := saveDesign(path, u.S.Design()); err != nil {
+	if err := editor.SaveDesign(path, u.Session.Design()); err != nil {
 		return fmt.Errorf("could not save %s:\n%w", path, err)
 	}
-	u.S.MarkSaved(path)
+	u.Session.MarkSaved(path)
 	u.addRecent(path)
 	u.removeRecovery()
 	u.hintLabel.SetText("Saved " + path)
@@ -199,8 +200,8 @@ func (u *UI) SaveTo(path string) error {
 }
 
 func (u *UI) saveAs(then func()) {
-	name := u.S.Design().Name
-	if p := u.S.Path(); p != "" {
+	name := u.Session.Design().Name
+	if p := u.Session.Path(); p != "" {
 		name = strings.TrimSuffix(filepath.Base(p), filepath.Ext(p))
 	}
 	u.chooseFile(safeFileName(name)+".json", []string{".json"}, func(path string) { u.saveAsTo(path, then) })
@@ -209,8 +210,8 @@ func (u *UI) saveAs(then func()) {
 // saveAsTo saves the design to the path chosen in Save As and runs then
 // when that worked. An untitled design takes the file's name.
 func (u *UI) saveAsTo(path string, then func()) {
-	if n := u.S.Design().Name; n == "" || n == NewDesign().Name {
-		u.S.SetDesignName(strings.TrimSuffix(filepath.Base(path), filepath.Ext(path)))
+	if n := u.Session.Design().Name; n == "" || n == editor.NewDesign().Name {
+		u.Session.SetDesignName(strings.TrimSuffix(filepath.Base(path), filepath.Ext(path)))
 	}
 	if err := u.SaveTo(path); err != nil {
 		dialog.ShowError(err, u.Win)
@@ -327,8 +328,8 @@ func (u *UI) StopAutosave() {
 // nothing to write), for tests.
 func (u *UI) Autosave() <-chan error {
 	done := make(chan error, 1)
-	s := u.S
-	snap := s.hist.current()
+	s := u.Session
+	snap := s.Token()
 	if !s.Dirty() || snap == u.lastAutosave || u.autosaving {
 		done <- nil
 		return done
@@ -339,17 +340,28 @@ func (u *UI) Autosave() <-chan error {
 		return done
 	}
 	u.autosaving = true
-	info := recoveryInfo{Path: s.Path(), SavedAt: time.Now(), Design: snap.shell.Name}
+	info := recoveryInfo{Path: s.Path(), SavedAt: time.Now()}
 	rec := u.recovery
 	gen := rec.generation()
+	save := u.jobs.SaveRecovery
 	go func() {
-		err := rec.write(gen, func() error { return writeRecovery(dir, designOf(snap), info) })
+		err := editor.Guard(func() error {
+			return rec.write(gen, func() error {
+				d := snap.Design()
+				info.Design = d.Name
+				return writeRecovery(save, dir, d, info)
+			})
+		})
 		fyne.Do(func() {
 			u.autosaving = false
-			if err == nil && u.S == s {
+			if err == nil && u.Session == s {
 				u.lastAutosave = snap
 			}
-			if err != nil {
+			if _, bug := editor.BugDetails(err); bug {
+				// Not again for this state: the next edit tries anew.
+				u.lastAutosave = snap
+				u.showBugOnce("Writing the recovery copy", err)
+			} else if err != nil {
 				u.hintLabel.SetText("Could not write the recovery copy to " + dir + ": " + err.Error())
 			}
 		})
@@ -387,26 +399,13 @@ func (r *recoveryFiles) remove(f func()) {
 	f()
 }
 
-// designOf assembles the design of an undo state for reading: the
-// regions are the snapshot's own, which nothing changes.
-func designOf(snap *snapshot) *design.Design {
-	d := *snap.shell
-	d.Variants = slices.Clone(snap.shell.Variants)
-	for v := range d.Variants {
-		rs := make([]design.Region, len(snap.regions[v]))
-		for i, sr := range snap.regions[v] {
-			rs[i] = sr.region
-		}
-		d.Variants[v].Regions = rs
-	}
-	return &d
-}
-
-func writeRecovery(dir string, d *design.Design, info recoveryInfo) error {
+// writeRecovery writes the recovery copy of d with save, and its
+// description beside it.
+func writeRecovery(save func(string, *design.Design) error, dir string, d *design.Design, info recoveryInfo) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return err
 	}
-	if err := saveDesign(filepath.Join(dir, recoveryName), d); err != nil {
+	if err := save(filepath.Join(dir, recoveryName), d); err != nil {
 		return err
 	}
 	meta, err := json.MarshalIndent(info, "", "  ")
@@ -425,7 +424,7 @@ func (u *UI) removeRecovery() {
 		os.Remove(filepath.Join(dir, recoveryName))
 		os.Remove(filepath.Join(dir, recoveryMeta))
 	})
-	u.lastAutosave = nil
+	u.lastAutosave = editor.PlanToken{}
 }
 
 // OfferRecovery asks whether to restore a recovery file left by a
@@ -472,11 +471,11 @@ func (u *UI) Recover() error {
 	if meta, err := os.ReadFile(filepath.Join(dir, recoveryMeta)); err == nil {
 		json.Unmarshal(meta, &info)
 	}
-	d, err := loadDesign(filepath.Join(dir, recoveryName))
+	d, err := editor.LoadDesign(filepath.Join(dir, recoveryName))
 	if err != nil {
 		return fmt.Errorf("the recovery copy could not be read: %w", err)
 	}
-	s, err := NewSession(d, info.Path)
+	s, err := editor.NewSession(d, info.Path)
 	if err != nil {
 		return err
 	}
@@ -492,7 +491,7 @@ const prefPaper = "paper"
 // withCaution shows the caution before an export, with the paper size
 // for printed reports, and runs then with the settings if the user goes
 // on.
-func (u *UI) withCaution(what string, then func(ExportSettings)) {
+func (u *UI) withCaution(what string, then func(editor.ExportSettings)) {
 	paper := widget.NewRadioGroup([]string{"A4", "US Letter"}, nil)
 	paper.Horizontal = true
 	if u.App.Preferences().StringWithFallback(prefPaper, string(export.A4)) == string(export.Letter) {
@@ -506,7 +505,7 @@ func (u *UI) withCaution(what string, then func(ExportSettings)) {
 		if !ok {
 			return
 		}
-		es := ExportSettings{Paper: export.A4, Generator: u.opts.Generator, Date: time.Now()}
+		es := editor.ExportSettings{Paper: export.A4, Generator: u.opts.Generator, Date: time.Now()}
 		if paper.Selected == "US Letter" {
 			es.Paper = export.Letter
 		}
@@ -519,13 +518,13 @@ func (u *UI) withCaution(what string, then func(ExportSettings)) {
 // or csv) after the caution. A missing or out-of-date plan is offered to
 // be made first.
 func (u *UI) exportAs(kind string) {
-	p, stale := u.S.Plan()
+	p, stale := u.Session.Plan()
 	if p == nil || stale {
 		what := "has not been planned"
 		if stale {
 			what = "changed since it was planned"
 		}
-		dialog.ShowConfirm("Plan first", fmt.Sprintf("Variant %s %s. Plan it now? The export goes on when the plan is ready.", u.S.Variant().Name, what), func(ok bool) {
+		dialog.ShowConfirm("Plan first", fmt.Sprintf("Variant %s %s. Plan it now? The export goes on when the plan is ready.", u.Session.Variant().Name, what), func(ok bool) {
 			if ok && !u.Busy() {
 				u.afterPlan = func() { u.exportAs(kind) }
 				u.StartPlan()
@@ -533,15 +532,19 @@ func (u *UI) exportAs(kind string) {
 		}, u.Win)
 		return
 	}
-	d := u.S.DesignCopy()
-	u.withCaution("the plan", func(es ExportSettings) {
-		name := safeFileName(u.S.Design().Name+"-"+p.Variant) + "." + kind
-		u.chooseFile(name, []string{"." + kind}, func(path string) {
-			u.runInBackground("Exporting "+filepath.Base(path)+"…", func(ctx context.Context, progress func(string, float64)) error {
-				return exportPlan(ctx, path, d, p, es, progress)
-			}, "Exported "+path)
-		})
+	d := u.Session.DesignCopy()
+	u.withCaution("the plan", func(es editor.ExportSettings) {
+		name := safeFileName(u.Session.Design().Name+"-"+p.Variant) + "." + kind
+		u.chooseFile(name, []string{"." + kind}, func(path string) { u.exportPlanTo(path, d, p, es) })
 	})
+}
+
+// exportPlanTo writes plan p of design d to path in the background.
+func (u *UI) exportPlanTo(path string, d *design.Design, p *planner.Plan, es editor.ExportSettings) {
+	write := u.jobs.Export
+	u.runInBackground("Exporting "+filepath.Base(path)+"…", func(ctx context.Context, progress func(string, float64)) error {
+		return write(ctx, path, d, p, es, progress)
+	}, "Exported "+path)
 }
 
 // chooseFile asks for a file to write, suggesting name, and calls then
@@ -598,15 +601,18 @@ func (u *UI) runInBackground(msg string, job func(ctx context.Context, progress 
 	u.showProgress(msg, 0)
 	progress := u.progressFunc("", 1, 0)
 	go func() {
-		err := job(ctx, progress)
+		err := editor.Guard(func() error { return job(ctx, progress) })
 		fyne.Do(func() {
+			if u.jobDone != nil {
+				defer u.jobDone()
+			}
 			u.planCancel = nil
 			u.hideProgress()
 			switch {
 			case errors.Is(err, context.Canceled):
 				u.hintLabel.SetText("Cancelled; nothing was written.")
 			case err != nil:
-				dialog.ShowError(err, u.Win)
+				u.showJobError(strings.TrimSuffix(msg, "…"), err)
 			default:
 				u.hintLabel.SetText(done)
 			}

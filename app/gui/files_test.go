@@ -5,23 +5,24 @@ import (
 	"path/filepath"
 	"testing"
 
+	"dimerpath/app/editor"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
 
 func TestSaveOpenRoundTrip(t *testing.T) {
 	u, _ := newTestUI(t, nil)
-	u.S.SetTool(ToolSite)
-	u.S.Select(1)
+	u.Session.SetTool(editor.ToolSite)
+	u.Session.Select(1)
 	site := lattice.Site{Row: 70, Dimer: 33, Side: 1}
-	u.S.Click(u.S.Surface().Position(site), 1)
-	want := u.S.RegionSites(1).Count()
+	u.Session.Click(u.Session.Surface().Position(site), 1)
+	want := u.Session.RegionSites(1).Count()
 	path := filepath.Join(t.TempDir(), "tiny.json")
 	if err := u.SaveTo(path); err != nil {
 		t.Fatal(err)
 	}
-	if u.S.Dirty() || u.S.Path() != path {
-		t.Errorf("after saving: dirty %v, path %q", u.S.Dirty(), u.S.Path())
+	if u.Session.Dirty() || u.Session.Path() != path {
+		t.Errorf("after saving: dirty %v, path %q", u.Session.Dirty(), u.Session.Path())
 	}
 	if got := u.recent(); len(got) == 0 || got[0] != path {
 		t.Errorf("recent files %v, want %s first", got, path)
@@ -29,10 +30,10 @@ func TestSaveOpenRoundTrip(t *testing.T) {
 	if err := u.OpenPath(path); err != nil {
 		t.Fatal(err)
 	}
-	if got := u.S.RegionSites(1).Count(); got != want {
+	if got := u.Session.RegionSites(1).Count(); got != want {
 		t.Errorf("reopened lead has %d sites, want %d", got, want)
 	}
-	if !u.S.RegionSites(1).Contains(site) {
+	if !u.Session.RegionSites(1).Contains(site) {
 		t.Error("the painted site did not survive the round trip")
 	}
 	// A broken file leaves the open design alone.
@@ -41,8 +42,8 @@ func TestSaveOpenRoundTrip(t *testing.T) {
 	if err := u.OpenPath(bad); err == nil {
 		t.Error("a design with a negative field opened")
 	}
-	if u.S.Path() != path {
-		t.Errorf("after a failed open the design is %q, want %q", u.S.Path(), path)
+	if u.Session.Path() != path {
+		t.Errorf("after a failed open the design is %q, want %q", u.Session.Path(), path)
 	}
 }
 
@@ -55,7 +56,7 @@ func TestAutosaveAndRecover(t *testing.T) {
 	if _, err := os.Stat(filepath.Join(dir, recoveryName)); err == nil {
 		t.Fatal("a clean design was autosaved")
 	}
-	u.S.AddRegion("late idea", design.RoleOther)
+	u.Session.AddRegion("late idea", design.RoleOther)
 	if err := <-u.Autosave(); err != nil {
 		t.Fatal(err)
 	}
@@ -73,11 +74,11 @@ func TestAutosaveAndRecover(t *testing.T) {
 	if err := v.Recover(); err != nil {
 		t.Fatal(err)
 	}
-	regions := v.S.Variant().Regions
+	regions := v.Session.Variant().Regions
 	if got := regions[len(regions)-1].Name; got != "late idea" {
 		t.Errorf("recovered design's last region is %q, want the autosaved edit", got)
 	}
-	if !v.S.Dirty() {
+	if !v.Session.Dirty() {
 		t.Error("a recovered design should count as unsaved")
 	}
 	// Saving removes the recovery copy.
@@ -92,8 +93,8 @@ func TestAutosaveAndRecover(t *testing.T) {
 func TestAutosaveWritesInTheBackgroundOneAtATime(t *testing.T) {
 	u, _ := newTestUI(t, nil)
 	dir := u.opts.ConfigDir
-	u.S.AddRegion("first idea", design.RoleOther)
-	first := u.S.hist.current()
+	u.Session.AddRegion("first idea", design.RoleOther)
+	first := u.Session.Token()
 
 	// Hold the recovery files so the first write waits in the background.
 	u.recovery.mu.Lock()
@@ -101,7 +102,7 @@ func TestAutosaveWritesInTheBackgroundOneAtATime(t *testing.T) {
 	if !u.autosaving {
 		t.Fatal("Autosave did not start a background write")
 	}
-	u.S.AddRegion("second idea", design.RoleOther)
+	u.Session.AddRegion("second idea", design.RoleOther)
 	select {
 	case err := <-u.Autosave():
 		if err != nil {
@@ -117,7 +118,7 @@ func TestAutosaveWritesInTheBackgroundOneAtATime(t *testing.T) {
 	if u.lastAutosave != first {
 		t.Fatal("the recovery copy is not recorded as the state it was taken from")
 	}
-	d, err := loadDesign(filepath.Join(dir, recoveryName))
+	d, err := editor.LoadDesign(filepath.Join(dir, recoveryName))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -129,7 +130,7 @@ func TestAutosaveWritesInTheBackgroundOneAtATime(t *testing.T) {
 	if err := <-u.Autosave(); err != nil {
 		t.Fatal(err)
 	}
-	d, _ = loadDesign(filepath.Join(dir, recoveryName))
+	d, _ = editor.LoadDesign(filepath.Join(dir, recoveryName))
 	regions = d.Variants[0].Regions
 	if got := regions[len(regions)-1].Name; got != "second idea" {
 		t.Errorf("after the next tick the copy ends with %q, want \"second idea\"", got)

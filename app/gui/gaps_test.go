@@ -1,11 +1,13 @@
 package gui
 
 import (
+	"fmt"
 	"math"
 	"path/filepath"
 	"strings"
 	"testing"
 
+	"dimerpath/app/editor"
 	"github.com/golang/geo/r2"
 )
 
@@ -13,7 +15,7 @@ import (
 // any of b, by trying every pair: the definition the tunnel-gap rule
 // states (README, "tunnel-gap"), computed independently of the design
 // package's spatial index.
-func bruteGap(s *Session, a, b int) float64 {
+func bruteGap(s *editor.Session, a, b int) float64 {
 	surf := s.Surface()
 	var bc []r2.Rect
 	for site := range s.RegionSites(b).All() {
@@ -33,7 +35,7 @@ func bruteGap(s *Session, a, b int) float64 {
 
 func TestTunnelGapsDeclaredMeasuredAndKeptConsistent(t *testing.T) {
 	u, _ := newTestUI(t, nil)
-	s := u.S
+	s := u.Session
 	if err := s.AddTunnelGap("island", "island"); err == nil {
 		t.Error("a gap from a region to itself was accepted")
 	}
@@ -54,12 +56,15 @@ func TestTunnelGapsDeclaredMeasuredAndKeptConsistent(t *testing.T) {
 	if !ok {
 		t.Fatal("the check did not measure the gap")
 	}
-	if want := bruteGap(s, 0, 1); math.Abs(w-want) > 1e-6 {
-		t.Errorf("gap measured %.4f nm, brute force over site cells %.4f nm", w, want)
+	if want := bruteGap(s, 0, 1); math.Abs(w.NM-want) > 1e-6 {
+		t.Errorf("gap measured %.4f nm, brute force over site cells %.4f nm", w.NM, want)
+	}
+	if want := fmt.Sprintf("%.2f nm (diagonal: ", w.NM); !strings.HasPrefix(w.Text, want) {
+		t.Errorf("gap described as %q, want %q…: the lead sits off the island's corner", w.Text, want)
 	}
 	// The Regions panel shows it on the island.
 	s.Select(0)
-	if got := texts(u.regions.gaps); !strings.Contains(got, "Tunnel gap to lead: "+formatLength(w)) {
+	if got := texts(u.regions.gaps); !strings.Contains(got, "Tunnel gap to lead: "+w.Text) {
 		t.Errorf("Regions panel shows %q", got)
 	}
 

@@ -11,6 +11,9 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/editor/editortest"
+	"dimerpath/app/render"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -19,11 +22,11 @@ import (
 // in-memory window drawn by the software painter) and check both the
 // model and the rendered image.
 
-func newTestUI(t *testing.T, s *Session) (*UI, fyne.Window) {
+func newTestUI(t *testing.T, s *editor.Session) (*UI, fyne.Window) {
 	t.Helper()
 	a := test.NewTempApp(t)
 	if s == nil {
-		s = newTestSession(t)
+		s = editortest.Tiny(t)
 	}
 	w := test.NewTempWindow(t, widget.NewLabel(""))
 	u := New(a, w, s, Options{ConfigDir: t.TempDir(), CheckDelay: -1, Autosave: -1})
@@ -70,7 +73,7 @@ func zoomOn(w fyne.Window, u *UI, p r2.Point, scale float64) image.Image {
 
 func TestDragPaintsAndUndoRedo(t *testing.T) {
 	u, w := newTestUI(t, nil)
-	surf := u.S.Surface()
+	surf := u.Session.Surface()
 	a := lattice.Site{Row: 50, Dimer: 10}
 	b := lattice.Site{Row: 50, Dimer: 19}
 	mid := surf.Position(lattice.Site{Row: 50, Dimer: 15})
@@ -78,51 +81,51 @@ func TestDragPaintsAndUndoRedo(t *testing.T) {
 	if !u.View.rend.Stats().Atomic {
 		t.Fatal("0.03 nm/px should draw single sites")
 	}
-	if got := pixelAt(before, u, surf.Position(a)); got != colCleanH {
-		t.Fatalf("site before painting is %v, want the clean-H colour %v", got, colCleanH)
+	if got := pixelAt(before, u, surf.Position(a)); got != render.ColCleanH {
+		t.Fatalf("site before painting is %v, want the clean-H colour %v", got, render.ColCleanH)
 	}
-	test.Tap(u.toolButtons[ToolSite])
-	if u.S.Tool != ToolSite {
-		t.Fatalf("tapping the Site button chose %v", u.S.Tool)
+	test.Tap(u.toolButtons[editor.ToolSite])
+	if u.Session.Tool != editor.ToolSite {
+		t.Fatalf("tapping the Site button chose %v", u.Session.Tool)
 	}
 	u.regions.list.Select(1) // the lead
-	if u.S.Active() != 1 {
-		t.Fatalf("selecting the lead in the list made region %d active", u.S.Active())
+	if u.Session.Active() != 1 {
+		t.Fatalf("selecting the lead in the list made region %d active", u.Session.Active())
 	}
-	n0 := u.S.RegionSites(1).Count()
+	n0 := u.Session.RegionSites(1).Count()
 	drag(w, u, surf.Position(a), surf.Position(b))
-	if got := u.S.RegionSites(1).Count() - n0; got != 10 {
+	if got := u.Session.RegionSites(1).Count() - n0; got != 10 {
 		t.Fatalf("drag painted %d sites, want 10", got)
 	}
 	after := w.Canvas().Capture()
 	painted := pixelAt(after, u, surf.Position(a))
-	if painted == colCleanH {
+	if painted == render.ColCleanH {
 		t.Fatal("painted site still drawn as clean H")
 	}
 	// The lead is selected, so it is drawn in its colour lightened.
-	if want := mix(RegionColor(1), rgb(0xff, 0xff, 0xff), 0.3); painted != want {
+	if want := render.Mix(render.RegionColor(1), render.RGB(0xff, 0xff, 0xff), 0.3); painted != want {
 		t.Errorf("painted site drawn %v, want the lead's selected colour %v", painted, want)
 	}
 	// The other side of the row was not painted.
 	other := lattice.Site{Row: 50, Dimer: 12, Side: 1}
-	if got := pixelAt(after, u, surf.Position(other)); got != colCleanH {
+	if got := pixelAt(after, u, surf.Position(other)); got != render.ColCleanH {
 		t.Errorf("site on the other side drawn %v, want clean H", got)
 	}
 
 	shortcut(w, &fyne.ShortcutUndo{})
-	if got := u.S.RegionSites(1).Count(); got != n0 {
+	if got := u.Session.RegionSites(1).Count(); got != n0 {
 		t.Fatalf("after Ctrl+Z %d sites, want %d", got, n0)
 	}
-	if got := pixelAt(w.Canvas().Capture(), u, surf.Position(a)); got != colCleanH {
+	if got := pixelAt(w.Canvas().Capture(), u, surf.Position(a)); got != render.ColCleanH {
 		t.Errorf("after undo the site is drawn %v, want clean H", got)
 	}
 	shortcut(w, ctrlShift(fyne.KeyZ))
-	if got := u.S.RegionSites(1).Count(); got != n0+10 {
+	if got := u.Session.RegionSites(1).Count(); got != n0+10 {
 		t.Fatalf("after Ctrl+Shift+Z %d sites, want %d", got, n0+10)
 	}
 	shortcut(w, &fyne.ShortcutUndo{})
 	shortcut(w, &fyne.ShortcutRedo{}) // Ctrl+Y
-	if got := u.S.RegionSites(1).Count(); got != n0+10 {
+	if got := u.Session.RegionSites(1).Count(); got != n0+10 {
 		t.Fatalf("after Ctrl+Y %d sites, want %d", got, n0+10)
 	}
 	if w.Title() == "" || w.Title()[0] != '*' {
@@ -133,32 +136,32 @@ func TestDragPaintsAndUndoRedo(t *testing.T) {
 func TestKeysChooseToolsAndRectangle(t *testing.T) {
 	u, w := newTestUI(t, nil)
 	test.TypeOnCanvas(w.Canvas(), "r")
-	if u.S.Tool != ToolRect {
-		t.Fatalf("typing r chose %v, want the rectangle tool", u.S.Tool)
+	if u.Session.Tool != editor.ToolRect {
+		t.Fatalf("typing r chose %v, want the rectangle tool", u.Session.Tool)
 	}
-	if u.toolButtons[ToolRect].Importance != widget.HighImportance {
+	if u.toolButtons[editor.ToolRect].Importance != widget.HighImportance {
 		t.Error("the rectangle button is not marked as the current tool")
 	}
-	u.S.Select()
-	surf := u.S.Surface()
+	u.Session.Select()
+	surf := u.Session.Surface()
 	a, b := surf.DimerCentre(0, 30, 100), surf.DimerCentre(0, 39, 149)
 	zoomOn(w, u, a.Add(b).Mul(0.5), 0.1)
-	n := len(u.S.Variant().Regions)
+	n := len(u.Session.Variant().Regions)
 	drag(w, u, a, b)
-	if len(u.S.Variant().Regions) != n+1 {
-		t.Fatalf("a rectangle drag with nothing selected made %d regions, want %d", len(u.S.Variant().Regions), n+1)
+	if len(u.Session.Variant().Regions) != n+1 {
+		t.Fatalf("a rectangle drag with nothing selected made %d regions, want %d", len(u.Session.Variant().Regions), n+1)
 	}
 	// 10 rows x 50 dimers x 2 sites, by hand.
-	if got := u.S.RegionSites(n).Count(); got != 1000 {
+	if got := u.Session.RegionSites(n).Count(); got != 1000 {
 		t.Errorf("rectangle holds %d sites, want 1000", got)
 	}
 	img := w.Canvas().Capture()
-	if got := pixelAt(img, u, surf.DimerCentre(0, 35, 120)); got == colTerrace[0] {
+	if got := pixelAt(img, u, surf.DimerCentre(0, 35, 120)); got == render.ColTerrace[0] {
 		t.Error("inside of the rectangle drawn as bare terrace")
 	}
 	test.TypeOnCanvas(w.Canvas(), "s")
-	if u.S.Tool != ToolSite {
-		t.Errorf("typing s chose %v", u.S.Tool)
+	if u.Session.Tool != editor.ToolSite {
+		t.Errorf("typing s chose %v", u.Session.Tool)
 	}
 }
 
@@ -184,25 +187,25 @@ func TestWheelZoomsAroundPointer(t *testing.T) {
 
 func TestVariantSwitchShowsItsRegions(t *testing.T) {
 	u, w := newTestUI(t, nil)
-	surf := u.S.Surface()
+	surf := u.Session.Surface()
 	leadAt := surf.Position(lattice.Site{Row: 100, Dimer: 110})
 	img := zoomOn(w, u, leadAt, 0.05)
-	if got := pixelAt(img, u, leadAt); got == colCleanH {
+	if got := pixelAt(img, u, leadAt); got == render.ColCleanH {
 		t.Fatal("variant A's lead not drawn")
 	}
 	u.variantSelect.SetSelected("B")
-	if u.S.Variant().Name != "B" {
-		t.Fatalf("variant %q shown, want B", u.S.Variant().Name)
+	if u.Session.Variant().Name != "B" {
+		t.Fatalf("variant %q shown, want B", u.Session.Variant().Name)
 	}
 	if got := u.regions.list.Length(); got != 1 {
 		t.Errorf("region list shows %d rows, want variant B's 1", got)
 	}
-	if got := pixelAt(w.Canvas().Capture(), u, leadAt); got != colCleanH {
+	if got := pixelAt(w.Canvas().Capture(), u, leadAt); got != render.ColCleanH {
 		t.Errorf("variant B has no lead, but the site is drawn %v", got)
 	}
-	test.Tap(u.toolButtons[ToolEraser])
-	test.Tap(u.toolButtons[ToolSelect])
-	u.S.DuplicateVariant(u.S.VariantIndex())
+	test.Tap(u.toolButtons[editor.ToolEraser])
+	test.Tap(u.toolButtons[editor.ToolSelect])
+	u.Session.DuplicateVariant(u.Session.VariantIndex())
 	if got := u.variantSelect.Selected; got != "B copy" {
 		t.Errorf("after duplicating, the variant box shows %q", got)
 	}
@@ -212,32 +215,32 @@ func TestRegionsPanelEdits(t *testing.T) {
 	u, _ := newTestUI(t, nil)
 	u.regions.list.Select(0)
 	u.regions.name.SetText("sensor island")
-	if got := u.S.Variant().Regions[0].Name; got != "sensor island" {
+	if got := u.Session.Variant().Regions[0].Name; got != "sensor island" {
 		t.Errorf("typing a name renamed the region to %q", got)
 	}
 	u.regions.name.SetText("lead")
 	if u.regions.msg.Hidden {
 		t.Error("a duplicate name showed no message")
 	}
-	if got := u.S.Variant().Regions[0].Name; got != "sensor island" {
+	if got := u.Session.Variant().Regions[0].Name; got != "sensor island" {
 		t.Errorf("a duplicate name was applied: %q", got)
 	}
 	u.regions.mode.SetSelected(modeOf(design.ModeHybrid))
 	u.regions.role.SetSelected(roleOf(design.RoleGate))
 	u.regions.tol.SetText("-3")
-	r := u.S.Variant().Regions[0]
+	r := u.Session.Variant().Regions[0]
 	if r.Mode != design.ModeHybrid || r.Role != design.RoleGate || r.ToleranceNM != 0 {
 		t.Errorf("region %+v: want hybrid gate with the default tolerance (a negative one refused)", r)
 	}
 	u.regions.tol.SetText("0.5")
-	if got := u.S.Variant().Regions[0].ToleranceNM; got != 0.5 {
+	if got := u.Session.Variant().Regions[0].ToleranceNM; got != 0.5 {
 		t.Errorf("tolerance %g, want 0.5", got)
 	}
 }
 
 func TestCloseAsksAboutUnsavedChanges(t *testing.T) {
 	u, w := newTestUI(t, nil)
-	u.S.AddRegion("extra", design.RoleOther)
+	u.Session.AddRegion("extra", design.RoleOther)
 	u.quit()
 	if w.Canvas().Overlays().Top() == nil {
 		t.Fatal("closing with unsaved changes showed no prompt")

@@ -13,6 +13,8 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/render"
 	"dimerpath/planner"
 )
 
@@ -24,20 +26,20 @@ import (
 type LatticeView struct {
 	widget.BaseWidget
 
-	s    *Session
-	Opts SceneOptions
+	s    *editor.Session
+	Opts editor.SceneOptions
 
-	view     View
+	view     render.View
 	pxPerDot float32 // device pixels per Fyne unit, from the last frame
 	fitted   bool
 	// atFit says the view shows the whole field as Fit made it, and the
 	// user has not panned or zoomed since: it is fitted again when the
 	// view is resized or the legend beside the field changes size.
 	atFit   bool
-	rend    Renderer
+	rend    render.Renderer
 	raster  *canvas.Raster
-	scene   *Scene
-	route   *RouteOverlay
+	scene   *render.Scene
+	route   *render.RouteOverlay
 	routeOf *planner.Plan
 
 	button   desktop.MouseButton
@@ -64,8 +66,8 @@ type LatticeView struct {
 }
 
 // NewLatticeView returns the canvas of session s.
-func NewLatticeView(s *Session) *LatticeView {
-	lv := &LatticeView{s: s, Opts: SceneOptions{Route: true, Findings: true}, pxPerDot: 1}
+func NewLatticeView(s *editor.Session) *LatticeView {
+	lv := &LatticeView{s: s, Opts: editor.SceneOptions{Route: true, Findings: true}, pxPerDot: 1}
 	lv.raster = canvas.NewRaster(lv.generate)
 	lv.raster.ScaleMode = canvas.ImageScalePixels
 	lv.scaleBar = canvas.NewRectangle(color.White)
@@ -79,12 +81,12 @@ func NewLatticeView(s *Session) *LatticeView {
 }
 
 // View returns the current view.
-func (lv *LatticeView) View() View { return lv.view }
+func (lv *LatticeView) View() render.View { return lv.view }
 
 // SetView replaces the view and redraws.
-func (lv *LatticeView) SetView(v View) {
+func (lv *LatticeView) SetView(v render.View) {
 	v.W, v.H = lv.view.W, lv.view.H
-	v.Scale = clampf(v.Scale, MinScale, MaxScale)
+	v.Scale = min(max(v.Scale, render.MinScale), render.MaxScale)
 	lv.view = v
 	lv.fitted, lv.atFit = true, false
 	lv.changed()
@@ -111,15 +113,15 @@ func (lv *LatticeView) changed() {
 }
 
 // buildScene returns the scene, rebuilding it when the session changed.
-func (lv *LatticeView) buildScene() *Scene {
+func (lv *LatticeView) buildScene() *render.Scene {
 	if lv.scene != nil {
 		return lv.scene
 	}
-	sc := lv.s.Scene(SceneOptions{Findings: lv.Opts.Findings})
+	sc := lv.s.Scene(editor.SceneOptions{Findings: lv.Opts.Findings})
 	if lv.Opts.Route {
 		if p, _ := lv.s.Plan(); p != nil {
 			if lv.routeOf != p {
-				lv.route, lv.routeOf = RouteOf(p), p
+				lv.route, lv.routeOf = render.RouteOf(p), p
 			}
 			sc.Route = lv.route
 			sc.DimLayers = true
@@ -192,7 +194,7 @@ func (lv *LatticeView) legendCoversField() bool {
 // the field is fitted into the part of the view the legend leaves free,
 // unless that would leave it less than 40 % of the view's width (then
 // the legend, which can be hidden, overlaps it).
-func (lv *LatticeView) fitView() View {
+func (lv *LatticeView) fitView() render.View {
 	w, h := lv.view.W, lv.view.H
 	free := w
 	if lv.legend != nil && lv.legend.Visible() {
@@ -201,7 +203,7 @@ func (lv *LatticeView) fitView() View {
 			free = w - lw
 		}
 	}
-	v := FitView(lv.s.Surface().Field, free, h, 24)
+	v := render.FitView(lv.s.Surface().Field, free, h, 24)
 	v.Center.X += float64(w-free) / 2 * v.Scale
 	v.W = w
 	return v
@@ -214,7 +216,7 @@ func (lv *LatticeView) ZoomTo(rect r2.Rect) {
 		return
 	}
 	grown := rect.ExpandedByMargin(math.Max(rect.Size().X, rect.Size().Y)*0.3 + 5)
-	v := FitView(grown, lv.view.W, lv.view.H, 40)
+	v := render.FitView(grown, lv.view.W, lv.view.H, 40)
 	lv.view = v
 	lv.fitted, lv.atFit = true, false
 	lv.changed()
@@ -280,7 +282,7 @@ func (lv *LatticeView) Dragged(ev *fyne.DragEvent) {
 	if !lv.pressed {
 		lv.pressed = true
 		start := ev.Position.Subtract(fyne.NewPos(ev.Dragged.DX, ev.Dragged.DY))
-		lv.panning = lv.s.Tool == ToolPan || lv.button == desktop.MouseButtonTertiary
+		lv.panning = lv.s.Tool == editor.ToolPan || lv.button == desktop.MouseButtonTertiary
 		if !lv.panning {
 			lv.s.Press(lv.FieldAt(start))
 		}
@@ -308,7 +310,7 @@ func (lv *LatticeView) DragEnd() {
 // Tapped is a click with the current tool.
 func (lv *LatticeView) Tapped(ev *fyne.PointEvent) {
 	lv.takeFocus()
-	if lv.s.Tool == ToolPan {
+	if lv.s.Tool == editor.ToolPan {
 		return
 	}
 	lv.s.Click(lv.FieldAt(ev.Position), lv.nearNM())
@@ -498,3 +500,19 @@ func (r *latticeRenderer) Objects() []fyne.CanvasObject {
 }
 
 func (r *latticeRenderer) Destroy() {}
+
+// niceLength returns the largest 1, 2 or 5 x 10^k that is at most max,
+// for the length of a scale bar (max > 0).
+func niceLength(max float64) float64 {
+	if !(max > 0) {
+		return 0
+	}
+	e := math.Floor(math.Log10(max))
+	base := math.Pow(10, e)
+	for _, m := range []float64{5, 2, 1} {
+		if m*base <= max*(1+1e-12) {
+			return m * base
+		}
+	}
+	return base
+}

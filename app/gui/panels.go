@@ -15,50 +15,22 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
 
-	"dimerpath/lattice"
+	"dimerpath/app/editor"
+	"dimerpath/app/render"
 	"dimerpath/lattice/design"
 )
 
 // The side panels. Each is a view of the session rebuilt by refresh;
 // every change it offers is a Session method, so it can be undone.
 
-var roleNames = []struct {
-	role design.Role
-	name string
-}{
-	{design.RoleDevice, "device"}, {design.RoleGate, "gate"}, {design.RoleLead, "lead"},
-	{design.RolePad, "contact pad"}, {design.RoleDonor, "donor windows"}, {design.RoleOther, "other"},
-}
-
-var modeNames = []struct {
-	mode design.Mode
-	name string
-}{
-	{design.ModeAuto, "auto (the planner chooses)"},
-	{design.ModeAP, "atomic precision"},
-	{design.ModeFE, "field emission"},
-	{design.ModeHybrid, "hybrid (AP outline, FE fill)"},
-}
-
-func roleOf(r design.Role) string {
-	for _, rn := range roleNames {
-		if rn.role == r {
-			return rn.name
-		}
-	}
-	if r == "" {
-		return "no role"
-	}
-	return string(r)
-}
+// roleOf and modeOf name a role and a write mode as design's tables do.
+func roleOf(r design.Role) string { return r.Name() }
 
 func modeOf(m design.Mode) string {
-	for _, mn := range modeNames {
-		if mn.mode == m {
-			return mn.name
-		}
+	if m == "" {
+		m = design.ModeAuto
 	}
-	return string(m)
+	return m.Label()
 }
 
 // parseNumber parses a decimal number typed into field label.
@@ -189,7 +161,7 @@ type regionsPanel struct {
 func newRegionsPanel(u *UI) *regionsPanel {
 	p := &regionsPanel{u: u, shown: -1}
 	p.list = widget.NewList(
-		func() int { return len(p.u.S.Variant().Regions) },
+		func() int { return len(p.u.Session.Variant().Regions) },
 		func() fyne.CanvasObject {
 			sw := canvas.NewRectangle(color.White)
 			sw.SetMinSize(fyne.NewSize(14, 14))
@@ -200,19 +172,19 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			return container.NewBorder(nil, nil, container.NewCenter(sw), info, name)
 		},
 		func(i widget.ListItemID, o fyne.CanvasObject) {
-			v := p.u.S.Variant()
+			v := p.u.Session.Variant()
 			if i >= len(v.Regions) {
 				return
 			}
 			c := o.(*fyne.Container)
 			c.Objects[0].(*widget.Label).SetText(v.Regions[i].Name)
-			c.Objects[1].(*fyne.Container).Objects[0].(*canvas.Rectangle).FillColor = RegionColor(i)
+			c.Objects[1].(*fyne.Container).Objects[0].(*canvas.Rectangle).FillColor = render.RegionColor(i)
 			c.Objects[1].(*fyne.Container).Objects[0].Refresh()
-			c.Objects[2].(*widget.Label).SetText(shortCount(p.u.S.RegionSites(i).Count()) + " sites")
+			c.Objects[2].(*widget.Label).SetText(shortCount(p.u.Session.RegionSites(i).Count()) + " sites")
 		})
 	p.list.OnSelected = func(i widget.ListItemID) {
 		if !p.updating {
-			p.u.S.Select(i)
+			p.u.Session.Select(i)
 		}
 	}
 	p.empty = mutedLabel("No regions yet. Pick a painting tool on the left (Site S, Dimer D, Window W, Rectangle R, …) and draw on the lattice: the first stroke makes a region. Or press Add.")
@@ -220,28 +192,28 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	p.name = widget.NewEntry()
 	p.name.OnChanged = func(s string) {
 		if !p.updating && p.shown >= 0 {
-			showErr(p.msg, p.u.S.RenameRegion(p.shown, s))
+			showErr(p.msg, p.u.Session.RenameRegion(p.shown, s))
 		}
 	}
 	var roles []string
-	for _, rn := range roleNames {
-		roles = append(roles, rn.name)
+	for _, r := range design.Roles {
+		roles = append(roles, roleOf(r))
 	}
 	p.role = widget.NewSelect(roles, func(s string) {
-		for _, rn := range roleNames {
-			if rn.name == s && !p.updating && p.shown >= 0 {
-				p.u.S.SetRegionRole(p.shown, rn.role)
+		for _, r := range design.Roles {
+			if roleOf(r) == s && !p.updating && p.shown >= 0 {
+				showErr(p.msg, p.u.Session.SetRegionRole(p.shown, r))
 			}
 		}
 	})
 	var modes []string
-	for _, mn := range modeNames {
-		modes = append(modes, mn.name)
+	for _, m := range design.Modes {
+		modes = append(modes, modeOf(m))
 	}
 	p.mode = widget.NewSelect(modes, func(s string) {
-		for _, mn := range modeNames {
-			if mn.name == s && !p.updating && p.shown >= 0 {
-				p.u.S.SetRegionMode(p.shown, mn.mode)
+		for _, m := range design.Modes {
+			if modeOf(m) == s && !p.updating && p.shown >= 0 {
+				showErr(p.msg, p.u.Session.SetRegionMode(p.shown, m))
 			}
 		}
 	})
@@ -256,7 +228,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		case strings.HasPrefix(s, "As"):
 			sp = "As"
 		}
-		p.u.S.SetRegionSpecies(p.shown, sp)
+		showErr(p.msg, p.u.Session.SetRegionSpecies(p.shown, sp))
 	})
 	p.tol = widget.NewEntry()
 	p.tol.SetPlaceHolder("mode default")
@@ -265,19 +237,19 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			return
 		}
 		if strings.TrimSpace(s) == "" {
-			showErr(p.msg, p.u.S.SetRegionTolerance(p.shown, 0))
+			showErr(p.msg, p.u.Session.SetRegionTolerance(p.shown, 0))
 			return
 		}
 		v, err := parseNumber("tolerance", s)
 		if err == nil {
-			err = p.u.S.SetRegionTolerance(p.shown, v)
+			err = p.u.Session.SetRegionTolerance(p.shown, v)
 		}
 		showErr(p.msg, err)
 	}
 	p.info = mutedLabel("")
 	p.msg = errorLabel()
 	p.shape = wrapLabel("")
-	delShape := widget.NewButtonWithIcon("Delete shape", theme.DeleteIcon(), func() { p.u.S.DeleteSelectedShape() })
+	delShape := widget.NewButtonWithIcon("Delete shape", theme.DeleteIcon(), func() { p.u.Session.DeleteSelectedShape() })
 	p.shapeBox = container.NewBorder(nil, nil, nil, delShape, p.shape)
 	p.shapeBox.Hide()
 	p.gaps = container.NewVBox()
@@ -285,7 +257,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		if p.updating || p.shown < 0 || other == "" {
 			return
 		}
-		err := p.u.S.AddTunnelGap(p.u.S.Variant().Regions[p.shown].Name, other)
+		err := p.u.Session.AddTunnelGap(p.u.Session.Variant().Regions[p.shown].Name, other)
 		showErr(p.msg, err)
 		p.addGap.ClearSelected()
 	})
@@ -303,11 +275,11 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			widget.NewButtonWithIcon("Zoom to", theme.ZoomFitIcon(), u.zoomToSelection),
 			widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() {
 				if p.shown >= 0 {
-					p.u.S.DeleteRegions(p.u.S.Selection()...)
+					p.u.Session.DeleteRegions(p.u.Session.Selection()...)
 				}
 			})))
 	add := widget.NewButtonWithIcon("Add region", theme.ContentAddIcon(), func() {
-		u.S.AddRegion("region", design.RoleDevice)
+		u.Session.AddRegion("region", design.RoleDevice)
 	})
 	top := container.NewVBox(container.NewBorder(nil, nil, heading("Regions of this variant"), add), p.empty)
 	p.content = container.NewBorder(top, p.form, nil, nil, p.list)
@@ -315,7 +287,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 }
 
 func (p *regionsPanel) refresh() {
-	s := p.u.S
+	s := p.u.Session
 	v := s.Variant()
 	p.updating = true
 	defer func() { p.updating = false }()
@@ -377,7 +349,7 @@ func (p *regionsPanel) refresh() {
 	p.refreshGaps()
 	if i, k := s.SelectedShape(); i == a && k >= 0 {
 		b := s.SelectedShapeBounds()
-		p.shape.SetText(fmt.Sprintf("Shape %d of %d: %s, %s x %s. Drag it with the Select tool to move it.", k+1, len(r.Shapes), ShapeName(r.Shapes[k]), formatLength(b.Size().X), formatLength(b.Size().Y)))
+		p.shape.SetText(fmt.Sprintf("Shape %d of %d: %s, %s x %s. Drag it with the Select tool to move it.", k+1, len(r.Shapes), editor.ShapeName(r.Shapes[k]), formatLength(b.Size().X), formatLength(b.Size().Y)))
 		p.shapeBox.Show()
 	} else {
 		p.shapeBox.Hide()
@@ -387,7 +359,7 @@ func (p *regionsPanel) refresh() {
 // refreshGaps lists the selected region's tunnel gaps with their
 // measured widths, and offers the other regions for a new one.
 func (p *regionsPanel) refreshGaps() {
-	s := p.u.S
+	s := p.u.Session
 	a := s.Active()
 	if a < 0 {
 		return
@@ -407,9 +379,9 @@ func (p *regionsPanel) refreshGaps() {
 		coupled[other] = true
 		width := "measuring…"
 		if w, ok := s.GapWidth(g.A, g.B); ok {
-			width = fmt.Sprintf("%s (%.1f dimer rows)", formatLength(w), w/lattice.RowSpacing)
+			width = w.Text
 		}
-		rm := widget.NewButtonWithIcon("", theme.ContentRemoveIcon(), func() { p.u.S.RemoveTunnelGap(gi) })
+		rm := widget.NewButtonWithIcon("", theme.ContentRemoveIcon(), func() { p.u.Session.RemoveTunnelGap(gi) })
 		rows = append(rows, container.NewBorder(nil, nil, nil, rm, wrapLabel("Tunnel gap to "+other+": "+width)))
 	}
 	p.gaps.Objects = rows
@@ -437,25 +409,25 @@ func newFindingsPanel(u *UI) *findingsPanel {
 	p := &findingsPanel{u: u}
 	p.summary = wrapLabel("")
 	p.list = widget.NewList(
-		func() int { f, _ := p.u.S.Findings(); return len(f) },
+		func() int { f, _ := p.u.Session.Findings(); return len(f) },
 		func() fyne.CanvasObject {
-			sw := canvas.NewRectangle(colError)
+			sw := canvas.NewRectangle(render.ColError)
 			sw.SetMinSize(fyne.NewSize(10, 10))
 			l := widget.NewLabel("rule: message")
 			l.Wrapping = fyne.TextWrapWord
 			return container.NewBorder(nil, nil, container.NewCenter(sw), nil, l)
 		},
 		func(i widget.ListItemID, o fyne.CanvasObject) {
-			f, _ := p.u.S.Findings()
+			f, _ := p.u.Session.Findings()
 			if i >= len(f) {
 				return
 			}
 			c := o.(*fyne.Container)
 			sw := c.Objects[1].(*fyne.Container).Objects[0].(*canvas.Rectangle)
 			if f[i].Error {
-				sw.FillColor = colError
+				sw.FillColor = render.ColError
 			} else {
-				sw.FillColor = colWarning
+				sw.FillColor = render.ColWarning
 			}
 			sw.Refresh()
 			text := f[i].Rule + ": " + f[i].Message
@@ -469,8 +441,8 @@ func newFindingsPanel(u *UI) *findingsPanel {
 			p.list.SetItemHeight(i, c.Objects[0].MinSize().Height)
 		})
 	p.list.OnSelected = func(i widget.ListItemID) {
-		u.S.ChooseFinding(i)
-		u.View.ZoomTo(u.S.FindingBounds(i))
+		u.Session.ChooseFinding(i)
+		u.View.ZoomTo(r2.RectFromPoints(u.Session.FindingAt(i)))
 	}
 	recheck := widget.NewButtonWithIcon("Check now", theme.ViewRefreshIcon(), u.CheckNow)
 	top := container.NewVBox(container.NewBorder(nil, nil, heading("Design-rule checks"), recheck), p.summary)
@@ -479,20 +451,20 @@ func newFindingsPanel(u *UI) *findingsPanel {
 }
 
 func (p *findingsPanel) refresh() {
-	f, stale := p.u.S.Findings()
+	f, stale := p.u.Session.Findings()
 	p.list.UnselectAll()
 	p.list.Refresh()
 	errs, warns := countFindings(f)
 	var text string
 	switch {
-	case p.u.S.findState == nil:
+	case !p.u.Session.Checked():
 		text = "Not checked yet."
 	case len(f) == 0:
-		text = "No findings: variant " + p.u.S.Variant().Name + " passes every design rule."
+		text = "No findings: variant " + p.u.Session.Variant().Name + " passes every design rule."
 	default:
-		text = fmt.Sprintf("%s and %s in variant %s.", plural(errs, "error"), plural(warns, "warning"), p.u.S.Variant().Name)
+		text = fmt.Sprintf("%s and %s in variant %s.", plural(errs, "error"), plural(warns, "warning"), p.u.Session.Variant().Name)
 	}
-	if stale && p.u.S.findState != nil {
+	if stale && p.u.Session.Checked() {
 		text += " (The design changed since; checking again…)"
 	}
 	p.summary.SetText(text)
@@ -534,7 +506,7 @@ type variantsPanel struct {
 func newVariantsPanel(u *UI) *variantsPanel {
 	p := &variantsPanel{u: u}
 	p.list = widget.NewList(
-		func() int { return len(p.u.S.Design().Variants) },
+		func() int { return len(p.u.Session.Design().Variants) },
 		func() fyne.CanvasObject {
 			name := widget.NewLabel("variant")
 			info := widget.NewLabel("00 regions")
@@ -542,21 +514,21 @@ func newVariantsPanel(u *UI) *variantsPanel {
 			return container.NewBorder(nil, nil, nil, info, name)
 		},
 		func(i widget.ListItemID, o fyne.CanvasObject) {
-			vs := p.u.S.Design().Variants
+			vs := p.u.Session.Design().Variants
 			if i >= len(vs) {
 				return
 			}
 			c := o.(*fyne.Container)
 			name := c.Objects[0].(*widget.Label)
 			name.SetText(vs[i].Name)
-			name.TextStyle.Bold = i == p.u.S.VariantIndex()
+			name.TextStyle.Bold = i == p.u.Session.VariantIndex()
 			name.Refresh()
 			c.Objects[1].(*widget.Label).SetText(fmt.Sprintf("%d regions", len(vs[i].Regions)))
 		})
-	p.list.OnSelected = func(i widget.ListItemID) { u.S.SetVariant(i) }
-	rename := widget.NewButtonWithIcon("Rename", theme.DocumentCreateIcon(), func() { u.renameVariant(u.S.VariantIndex()) })
-	dup := widget.NewButtonWithIcon("Duplicate", theme.ContentCopyIcon(), func() { u.S.DuplicateVariant(u.S.VariantIndex()) })
-	del := widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() { u.deleteVariant(u.S.VariantIndex()) })
+	p.list.OnSelected = func(i widget.ListItemID) { u.Session.SetVariant(i) }
+	rename := widget.NewButtonWithIcon("Rename", theme.DocumentCreateIcon(), func() { u.renameVariant(u.Session.VariantIndex()) })
+	dup := widget.NewButtonWithIcon("Duplicate", theme.ContentCopyIcon(), func() { u.Session.DuplicateVariant(u.Session.VariantIndex()) })
+	del := widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() { u.deleteVariant(u.Session.VariantIndex()) })
 	cmp := widget.NewButtonWithIcon("Compare all variants…", theme.ListIcon(), u.compareVariants)
 	cmp.Importance = widget.HighImportance
 	help := mutedLabel("A variant is one layout alternative: duplicate one, change a gap or a window, then compare their write time and yield.")
@@ -569,24 +541,18 @@ func newVariantsPanel(u *UI) *variantsPanel {
 
 func (p *variantsPanel) refresh() {
 	p.list.Refresh()
-	p.list.Select(p.u.S.VariantIndex())
+	p.list.Select(p.u.Session.VariantIndex())
 }
 
 func (u *UI) renameVariant(i int) {
 	e := widget.NewEntry()
-	e.SetText(u.S.Design().Variants[i].Name)
+	e.SetText(u.Session.Design().Variants[i].Name)
 	e.Validator = func(s string) error {
-		s = strings.TrimSpace(s)
-		for j, v := range u.S.Design().Variants {
-			if s == "" || (j != i && v.Name == s) {
-				return fmt.Errorf("%q: %w", s, ErrName)
-			}
-		}
-		return nil
+		return u.Session.CheckVariantName(i, s)
 	}
 	d := dialog.NewForm("Rename variant", "Rename", "Cancel", []*widget.FormItem{widget.NewFormItem("Name", e)}, func(ok bool) {
 		if ok {
-			if err := u.S.RenameVariant(i, e.Text); err != nil {
+			if err := u.Session.RenameVariant(i, e.Text); err != nil {
 				dialog.ShowError(err, u.Win)
 			}
 		}
@@ -598,14 +564,14 @@ func (u *UI) renameVariant(i int) {
 }
 
 func (u *UI) deleteVariant(i int) {
-	if len(u.S.Design().Variants) == 1 {
+	if len(u.Session.Design().Variants) == 1 {
 		dialog.ShowInformation("Delete variant", "A design keeps at least one variant.", u.Win)
 		return
 	}
-	name := u.S.Design().Variants[i].Name
-	dialog.ShowConfirm("Delete variant", fmt.Sprintf("Delete variant %q and its %d regions? (Undo brings it back.)", name, len(u.S.Design().Variants[i].Regions)), func(ok bool) {
+	name := u.Session.Design().Variants[i].Name
+	dialog.ShowConfirm("Delete variant", fmt.Sprintf("Delete variant %q and its %d regions? (Undo brings it back.)", name, len(u.Session.Design().Variants[i].Regions)), func(ok bool) {
 		if ok {
-			u.S.DeleteVariant(i)
+			u.Session.DeleteVariant(i)
 		}
 	}, u.Win)
 }
@@ -640,14 +606,14 @@ type marksPanel struct {
 func newMarksPanel(u *UI) *marksPanel {
 	p := &marksPanel{u: u, fidSel: -1, terrSel: -1}
 	p.fids = widget.NewList(
-		func() int { return len(p.u.S.Design().Fiducials) },
+		func() int { return len(p.u.Session.Design().Fiducials) },
 		func() fyne.CanvasObject {
 			l := widget.NewLabel("F1 at (0000.00, 0000.00) nm")
 			l.Truncation = fyne.TextTruncateEllipsis
 			return l
 		},
 		func(i widget.ListItemID, o fyne.CanvasObject) {
-			fs := p.u.S.Design().Fiducials
+			fs := p.u.Session.Design().Fiducials
 			if i < len(fs) {
 				o.(*widget.Label).SetText(fmt.Sprintf("%s at (%.2f, %.2f) nm", fs[i].Name, fs[i].AtNM[0], fs[i].AtNM[1]))
 			}
@@ -662,21 +628,21 @@ func newMarksPanel(u *UI) *marksPanel {
 			widget.NewButtonWithIcon("Apply", theme.ConfirmIcon(), p.applyFiducial),
 			widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() {
 				if p.fidSel >= 0 {
-					p.u.S.DeleteFiducial(p.fidSel)
+					p.u.Session.DeleteFiducial(p.fidSel)
 					p.fidSel = -1
 				}
 			})))
 	p.fidEmpty = mutedLabel("No fiducials. Place them with the Fiducial tool (F): segments re-register on the nearest one.")
 
 	p.terrs = widget.NewList(
-		func() int { return len(p.u.S.Design().Terraces) },
+		func() int { return len(p.u.Session.Design().Terraces) },
 		func() fyne.CanvasObject {
 			l := widget.NewLabel("T0: rows along x, outline of 00 points")
 			l.Truncation = fyne.TextTruncateEllipsis
 			return l
 		},
 		func(i widget.ListItemID, o fyne.CanvasObject) {
-			ts := p.u.S.Design().Terraces
+			ts := p.u.Session.Design().Terraces
 			if i < len(ts) {
 				t := ts[i]
 				where := "the rest of the field"
@@ -684,7 +650,7 @@ func newMarksPanel(u *UI) *marksPanel {
 					where = fmt.Sprintf("outline of %d points", len(t.Boundary))
 				}
 				rows := t.Rows
-				if surf := p.u.S.Surface(); i < len(surf.Terraces) {
+				if surf := p.u.Session.Surface(); i < len(surf.Terraces) {
 					rows = surf.Terraces[i].Rows.String()
 				}
 				step := ""
@@ -707,7 +673,7 @@ func newMarksPanel(u *UI) *marksPanel {
 			widget.NewButtonWithIcon("Apply", theme.ConfirmIcon(), p.applyTerrace),
 			widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() {
 				if p.terrSel >= 0 {
-					if err := p.u.S.DeleteTerrace(p.terrSel); err != nil {
+					if err := p.u.Session.DeleteTerrace(p.terrSel); err != nil {
 						showErr(p.terrMsg, err)
 						return
 					}
@@ -721,7 +687,7 @@ func newMarksPanel(u *UI) *marksPanel {
 	p.name = widget.NewEntry()
 	p.name.OnChanged = func(s string) {
 		if !p.updating {
-			showErr(p.nameMsg, p.u.S.SetDesignName(s))
+			showErr(p.nameMsg, p.u.Session.SetDesignName(s))
 		}
 	}
 	p.nameMsg = errorLabel()
@@ -732,7 +698,7 @@ func newMarksPanel(u *UI) *marksPanel {
 }
 
 func (p *marksPanel) refresh() {
-	d := p.u.S.Design()
+	d := p.u.Session.Design()
 	p.updating = true
 	if p.name.Text != d.Name && strings.TrimSpace(p.name.Text) != d.Name {
 		p.name.SetText(d.Name)
@@ -742,16 +708,16 @@ func (p *marksPanel) refresh() {
 		formatLength(d.Field.WidthNM), formatLength(d.Field.HeightNM), plural(len(d.Terraces), "terrace"), plural(len(d.Variants), "variant")))
 	p.fids.Refresh()
 	p.terrs.Refresh()
-	if len(p.u.S.Design().Fiducials) == 0 {
+	if len(p.u.Session.Design().Fiducials) == 0 {
 		p.fidEmpty.Show()
 	} else {
 		p.fidEmpty.Hide()
 	}
-	if p.fidSel >= len(p.u.S.Design().Fiducials) {
+	if p.fidSel >= len(p.u.Session.Design().Fiducials) {
 		p.fidSel = -1
 		p.fids.UnselectAll()
 	}
-	if p.terrSel >= len(p.u.S.Design().Terraces) {
+	if p.terrSel >= len(p.u.Session.Design().Terraces) {
 		p.terrSel = -1
 		p.terrs.UnselectAll()
 	}
@@ -760,7 +726,7 @@ func (p *marksPanel) refresh() {
 }
 
 func (p *marksPanel) showFiducial() {
-	fs := p.u.S.Design().Fiducials
+	fs := p.u.Session.Design().Fiducials
 	if p.fidSel < 0 || p.fidSel >= len(fs) {
 		p.fidForm.Hide()
 		return
@@ -785,18 +751,18 @@ func (p *marksPanel) applyFiducial() {
 		showErr(p.fidMsg, err)
 		return
 	}
-	showErr(p.fidMsg, p.u.S.SetFiducial(p.fidSel, p.fidName.Text, r2.Point{X: x, Y: y}))
+	showErr(p.fidMsg, p.u.Session.SetFiducial(p.fidSel, p.fidName.Text, r2.Point{X: x, Y: y}))
 }
 
 func (p *marksPanel) showTerrace() {
-	ts := p.u.S.Design().Terraces
+	ts := p.u.Session.Design().Terraces
 	if p.terrSel < 0 || p.terrSel >= len(ts) {
 		p.terrForm.Hide()
 		return
 	}
 	t := ts[p.terrSel]
 	p.terrName.SetText(t.Name)
-	p.terrRows.SetSelected(p.u.S.Surface().Terraces[p.terrSel].Rows.String())
+	p.terrRows.SetSelected(p.u.Session.Surface().Terraces[p.terrSel].Rows.String())
 	p.terrX.SetText(trimZeros(fmt.Sprintf("%.4f", t.OffsetNM[0])))
 	p.terrY.SetText(trimZeros(fmt.Sprintf("%.4f", t.OffsetNM[1])))
 	p.terrMsg.Hide()
@@ -814,5 +780,5 @@ func (p *marksPanel) applyTerrace() {
 		showErr(p.terrMsg, err)
 		return
 	}
-	showErr(p.terrMsg, p.u.S.SetTerrace(p.terrSel, p.terrName.Text, p.terrRows.Selected, r2.Point{X: x, Y: y}))
+	showErr(p.terrMsg, p.u.Session.SetTerrace(p.terrSel, p.terrName.Text, p.terrRows.Selected, r2.Point{X: x, Y: y}))
 }

@@ -9,45 +9,13 @@ import (
 	"fyne.io/fyne/v2/canvas"
 	"fyne.io/fyne/v2/test"
 	"fyne.io/fyne/v2/widget"
-	"github.com/golang/geo/r2"
 
+	"dimerpath/app/editor/editortest"
+	"dimerpath/app/render"
+	"dimerpath/app/render/rendertest"
 	"dimerpath/export"
-	"dimerpath/planner"
+	"dimerpath/internal/units"
 )
-
-// handPlan is a plan written out by hand for the tiny design: two AP
-// strokes along row 50, one per segment, registering on fiducial F1. It
-// stands in for the planner's output so these tests check only how the
-// GUI shows a plan, not what the planner computes.
-func handPlan(s *Session) *planner.Plan {
-	surf := s.Surface()
-	a, b := surf.DimerCentre(0, 50, 10), surf.DimerCentre(0, 50, 40)
-	c, d := surf.DimerCentre(0, 60, 10), surf.DimerCentre(0, 60, 40)
-	f := r2.Point{X: 20, Y: 20}
-	return &planner.Plan{
-		Design: "tiny", Variant: s.Variant().Name, Profile: "hand",
-		Conditions: []planner.Conditions{{Mode: planner.AP, LineWidthNM: 0.8}},
-		Strokes: []planner.Stroke{
-			{ID: 0, Region: "lead", Mode: planner.AP, Kind: planner.StrokeLine, Path: []r2.Point{a, b}, Segment: 0, Window: -1},
-			{ID: 1, Region: "lead", Mode: planner.AP, Kind: planner.StrokeLine, Path: []r2.Point{c, d}, Segment: 1, Window: -1},
-		},
-		Segments: []planner.Segment{
-			{Index: 0, Fiducial: "F1", FiducialAt: f, Strokes: []int{0}},
-			{Index: 1, Fiducial: "F1", FiducialAt: f, Strokes: []int{1}},
-		},
-		Actions: []planner.Action{
-			{Kind: planner.ActRegister, Stroke: -1, From: f, To: f},
-			{Kind: planner.ActMove, Stroke: -1, From: f, To: a},
-			{Kind: planner.ActWrite, Stroke: 0, From: a, To: b},
-			{Kind: planner.ActMove, Stroke: -1, From: b, To: c},
-			{Kind: planner.ActWrite, Stroke: 1, Segment: 1, From: c, To: d},
-		},
-		Breakdown: planner.Breakdown{APWriteS: 3000, TravelS: 600, RegistrationS: 120},
-		TotalS:    3720, P10S: 3500, P50S: 3700, P90S: 4100,
-		Yield:    planner.Yield{Windows: 2, All: 0.4, MeanGood: 1.26, Distribution: []float64{0.14, 0.46, 0.4}, DevicesPerPerfect: 2.5},
-		Coverage: planner.Coverage{OK: true},
-	}
-}
 
 // texts returns every text shown under o.
 func texts(o fyne.CanvasObject) string {
@@ -76,29 +44,29 @@ func texts(o fyne.CanvasObject) string {
 
 func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 	u, w := newTestUI(t, nil)
-	p := handPlan(u.S)
-	u.S.SetPlan(p, p.Variant, u.S.Token())
+	p := editortest.HandPlan(u.Session)
+	u.Session.SetPlan(p, p.Variant, u.Session.Token())
 	mid := p.Strokes[0].Path[0].Add(p.Strokes[0].Path[1]).Mul(0.5)
 	// Zoomed out, strokes are drawn opaque in their segment's colour.
 	img := zoomOn(w, u, mid, 0.5)
-	if got, want := pixelAt(img, u, mid), SegmentColor(0); got != want {
+	if got, want := pixelAt(img, u, mid), render.SegmentColor(0); got != want {
 		t.Errorf("stroke of segment 0 drawn %v, want %v", got, want)
 	}
 	mid1 := p.Strokes[1].Path[0].Add(p.Strokes[1].Path[1]).Mul(0.5)
-	if got, want := pixelAt(img, u, mid1), SegmentColor(1); got != want {
+	if got, want := pixelAt(img, u, mid1), render.SegmentColor(1); got != want {
 		t.Errorf("stroke of segment 1 drawn %v, want %v", got, want)
 	}
 	// Zoomed in, they are see-through: the segment colour over the lead.
 	img = zoomOn(w, u, mid, 0.03)
-	if got := pixelAt(img, u, mid); got == SegmentColor(0) || got.R <= got.B {
+	if got := pixelAt(img, u, mid); got == render.SegmentColor(0) || got.R <= got.B {
 		t.Errorf("wide stroke drawn %v, want segment 0's red laid over the sites", got)
 	}
 	u.View.Fit()
 	u.tabs.Select(u.tabPlan)
-	saveImage(t, "window-plan.png", w.Canvas().Capture())
+	rendertest.SaveImage(t, "window-plan.png", w.Canvas().Capture())
 	zoomOn(w, u, mid, 0.5)
 	panel := texts(u.planView.content)
-	for _, want := range []string{formatDuration(3720), "P10 " + formatDuration(3500), "Every window takes exactly one donor: 40 %", "2 drift-safe segments"} {
+	for _, want := range []string{units.Duration(3720), "P10 " + units.Duration(3500), "Every window takes exactly one donor: 40 %", "2 drift-safe segments"} {
 		if !strings.Contains(panel, want) {
 			t.Errorf("plan panel lacks %q:\n%s", want, panel)
 		}
@@ -109,14 +77,14 @@ func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 
 	// Hiding the route shows the lead again.
 	u.routeCheck.SetChecked(false)
-	if got := pixelAt(w.Canvas().Capture(), u, mid); got == SegmentColor(0) {
+	if got := pixelAt(w.Canvas().Capture(), u, mid); got == render.SegmentColor(0) {
 		t.Error("route still drawn after hiding it")
 	}
 	u.routeCheck.SetChecked(true)
 
 	// An edit makes the plan stale, and the views say so.
-	u.S.AddRegion("afterthought", "other")
-	if _, stale := u.S.Plan(); !stale {
+	u.Session.AddRegion("afterthought", "other")
+	if _, stale := u.Session.Plan(); !stale {
 		t.Fatal("plan not stale after an edit")
 	}
 	if !strings.Contains(texts(u.planView.content), "changed since this plan") {
@@ -126,8 +94,8 @@ func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 		t.Error("legend does not say the route is out of date")
 	}
 	// Another variant has no plan.
-	u.S.SetVariant(1)
-	if got, _ := u.S.Plan(); got != nil {
+	u.Session.SetVariant(1)
+	if got, _ := u.Session.Plan(); got != nil {
 		t.Error("variant B shows variant A's plan")
 	}
 	if !strings.Contains(texts(u.planView.content), "has not been planned") {
@@ -137,14 +105,14 @@ func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 
 func TestComparisonView(t *testing.T) {
 	u, _ := newTestUI(t, nil)
-	p := handPlan(u.S)
+	p := editortest.HandPlan(u.Session)
 	res := []exportResult{{Variant: "A", Plan: p}, {Variant: "B", Err: errPlanTest}}
 	view := comparisonView(res, nil)
 	if w := view.MinSize().Width; w > 1000 {
 		t.Errorf("comparison is %g units wide, more than its 1000-unit dialog", w)
 	}
 	text := texts(view)
-	for _, want := range []string{"A", formatDuration(3720), "40 %", "B", errPlanTest.Error()} {
+	for _, want := range []string{"A", units.Duration(3720), "40 %", "B", errPlanTest.Error()} {
 		if !strings.Contains(text, want) {
 			t.Errorf("comparison lacks %q:\n%s", want, text)
 		}

@@ -12,43 +12,24 @@ import (
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 
+	"dimerpath/app/render"
+	"dimerpath/internal/units"
 	"dimerpath/planner"
 )
 
 // Colours of the time breakdown, shared by the plan panel and the
 // comparison view.
-var (
-	colAPWrite = rgb(0xff, 0x9f, 0x1c)
-	colFEWrite = rgb(0x2e, 0xc4, 0xf0)
-	colDwell   = rgb(0xe8, 0x43, 0x93)
-	colTravel  = rgb(0x9a, 0xa4, 0xb4)
-	colSwitch  = rgb(0x9b, 0x6c, 0xff)
-	colRegist  = rgb(0xff, 0xd2, 0x3f)
-	colVerify  = rgb(0x1d, 0xd3, 0xb0)
-	colYield   = rgb(0x51, 0xcf, 0x66)
-)
-
-// formatDuration prints seconds as the user reads a write time.
-func formatDuration(s float64) string {
-	switch {
-	case math.IsNaN(s) || math.IsInf(s, 0):
-		return "—"
-	case s == 0:
-		return "0 s"
-	case s < 0.1:
-		return fmt.Sprintf("%.0f ms", s*1000)
-	case s < 60:
-		return fmt.Sprintf("%.1f s", s)
-	case s < 600:
-		m := math.Floor(s / 60)
-		return fmt.Sprintf("%.0f min %02.0f s", m, math.Floor(s-60*m))
-	case s < 3600:
-		return fmt.Sprintf("%.0f min", math.Round(s/60))
-	default:
-		h := math.Floor(s / 3600)
-		return fmt.Sprintf("%.0f h %02.0f min", h, math.Floor((s-3600*h)/60))
-	}
+var timeColours = map[planner.TimeKind]color.Color{
+	planner.TimeAPWrite:      render.RGB(0xff, 0x9f, 0x1c),
+	planner.TimeFEWrite:      render.RGB(0x2e, 0xc4, 0xf0),
+	planner.TimeDwell:        render.RGB(0xe8, 0x43, 0x93),
+	planner.TimeTravel:       render.RGB(0x9a, 0xa4, 0xb4),
+	planner.TimeModeSwitch:   render.RGB(0x9b, 0x6c, 0xff),
+	planner.TimeRegistration: render.RGB(0xff, 0xd2, 0x3f),
+	planner.TimeVerification: render.RGB(0x1d, 0xd3, 0xb0),
 }
+
+var colYield = render.RGB(0x51, 0xcf, 0x66)
 
 // formatProbability prints a probability as a percentage with three
 // significant digits, or in scientific notation when tiny.
@@ -67,26 +48,14 @@ func formatProbability(p float64) string {
 
 // breakdownBars returns the bars of a time breakdown.
 func breakdownBars(b planner.Breakdown, total float64) []Bar {
-	kinds := []struct {
-		label string
-		s     float64
-		c     color.Color
-	}{
-		{"AP writing", b.APWriteS, colAPWrite},
-		{"FE writing", b.FEWriteS, colFEWrite},
-		{"dwell", b.DwellS, colDwell},
-		{"travel", b.TravelS, colTravel},
-		{"mode switches", b.ModeSwitchS, colSwitch},
-		{"registrations", b.RegistrationS, colRegist},
-		{"verification", b.VerificationS, colVerify},
-	}
 	var bars []Bar
-	for _, k := range kinds {
+	for _, k := range planner.TimeKinds {
+		s := b.Seconds(k)
 		pct := 0.0
 		if total > 0 {
-			pct = 100 * k.s / total
+			pct = 100 * s / total
 		}
-		bars = append(bars, Bar{Label: k.label, Value: k.s, Text: fmt.Sprintf("%s  %.0f %%", formatDuration(k.s), pct), Color: k.c})
+		bars = append(bars, Bar{Label: k.String(), Value: s, Text: fmt.Sprintf("%s  %.0f %%", units.Duration(s), pct), Color: timeColours[k]})
 	}
 	return bars
 }
@@ -123,7 +92,7 @@ func bigText(s string) fyne.CanvasObject {
 }
 
 func (p *planPanel) refresh() {
-	s := p.u.S
+	s := p.u.Session
 	pl, stale := s.Plan()
 	var objs []fyne.CanvasObject
 	if pl == nil {
@@ -142,8 +111,8 @@ func (p *planPanel) refresh() {
 	}
 	objs = append(objs,
 		wrapLabel("Expected write time, variant "+pl.Variant),
-		bigText(formatDuration(pl.TotalS)),
-		wrapLabel(fmt.Sprintf("Spread  P10 %s · P50 %s · P90 %s", formatDuration(pl.P10S), formatDuration(pl.P50S), formatDuration(pl.P90S))),
+		bigText(units.Duration(pl.TotalS)),
+		wrapLabel(fmt.Sprintf("Spread  P10 %s · P50 %s · P90 %s", units.Duration(pl.P10S), units.Duration(pl.P50S), units.Duration(pl.P90S))),
 	)
 	// What needs the user's attention comes before the details.
 	if f, fstale := s.Findings(); !fstale {
@@ -196,7 +165,7 @@ func (p *planPanel) refresh() {
 	if len(pl.Modes) > 0 {
 		objs = append(objs, widget.NewSeparator(), heading("Write modes"))
 		for _, m := range pl.Modes {
-			objs = append(objs, wrapLabel(fmt.Sprintf("%s — %s: %s", m.Region, strings.ToUpper(m.Mode), m.Reason)))
+			objs = append(objs, wrapLabel(fmt.Sprintf("%s — %s: %s", m.Region, m.Mode.Abbrev(), m.Reason)))
 		}
 	}
 	objs = append(objs, widget.NewSeparator(), mutedLabel(planner.Caution))

@@ -5,21 +5,11 @@ import (
 	"testing"
 	"time"
 
+	"dimerpath/app/editor/editortest"
+	"dimerpath/app/render"
+	"dimerpath/internal/units"
 	"fyne.io/fyne/v2/test"
 )
-
-func demoSession(t testing.TB) *Session {
-	t.Helper()
-	d, err := demoDesign()
-	if err != nil {
-		t.Fatal(err)
-	}
-	s, err := NewSession(d, "")
-	if err != nil {
-		t.Fatal(err)
-	}
-	return s
-}
 
 // waitJob runs start and waits until the background job it starts has
 // reported back.
@@ -39,20 +29,20 @@ func waitJob(t *testing.T, u *UI, start func()) {
 // TestPlanButtonPlansDemo taps Plan on the demo: the real planner runs in
 // the background, and its plan reaches the panel and the canvas.
 func TestPlanButtonPlansDemo(t *testing.T) {
-	u, w := newTestUI(t, demoSession(t))
+	u, w := newTestUI(t, editortest.Demo(t))
 	waitJob(t, u, func() { test.Tap(u.planButton) })
-	p, stale := u.S.Plan()
+	p, stale := u.Session.Plan()
 	if p == nil || stale {
 		t.Fatalf("after Plan: plan %v, stale %v", p != nil, stale)
 	}
-	if p.Variant != u.S.Variant().Name || len(p.Strokes) == 0 || !p.Coverage.OK {
+	if p.Variant != u.Session.Variant().Name || len(p.Strokes) == 0 || !p.Coverage.OK {
 		t.Fatalf("plan of %q with %d strokes, coverage ok %v", p.Variant, len(p.Strokes), p.Coverage.OK)
 	}
 	if u.tabs.Selected() != u.tabPlan {
 		t.Error("the Plan tab is not shown after planning")
 	}
-	if panel := texts(u.planView.content); !strings.Contains(panel, formatDuration(p.TotalS)) {
-		t.Errorf("plan panel lacks the total %s", formatDuration(p.TotalS))
+	if panel := texts(u.planView.content); !strings.Contains(panel, units.Duration(p.TotalS)) {
+		t.Errorf("plan panel lacks the total %s", units.Duration(p.TotalS))
 	}
 	// The first AP line stroke is drawn in its segment's colour.
 	for _, st := range p.Strokes {
@@ -61,7 +51,7 @@ func TestPlanButtonPlansDemo(t *testing.T) {
 		}
 		mid := st.Path[0].Add(st.Path[1]).Mul(0.5)
 		img := zoomOn(w, u, mid, 0.5)
-		if got, want := pixelAt(img, u, mid), SegmentColor(st.Segment); got != want {
+		if got, want := pixelAt(img, u, mid), render.SegmentColor(st.Segment); got != want {
 			t.Errorf("stroke %d drawn %v, want segment %d's %v", st.ID, got, st.Segment, want)
 		}
 		break
@@ -71,20 +61,30 @@ func TestPlanButtonPlansDemo(t *testing.T) {
 	}
 
 	// Planning the other variant and comparing both.
-	u.variantSelect.SetSelected(u.S.VariantNames()[1])
-	if got, _ := u.S.Plan(); got != nil {
+	u.variantSelect.SetSelected(u.Session.VariantNames()[1])
+	if got, _ := u.Session.Plan(); got != nil {
 		t.Error("the second variant shows the first one's plan")
 	}
 	waitJob(t, u, u.compareVariants)
-	if w.Canvas().Overlays().Top() == nil {
-		t.Error("comparison shows no dialog")
+	top := w.Canvas().Overlays().Top()
+	if top == nil {
+		t.Fatal("comparison shows no dialog")
+	}
+	// Issue 13: the two rows looked the same; the dialog says what
+	// differs and each variant's coverage check.
+	got := texts(top)
+	for _, want := range []string{"What differs from gap-9", "tunnel gap sensor-island – source-lead",
+		"6.91 nm (9.0 dimer rows across the rows)", "9.22 nm (12.0 dimer rows across the rows)", "Coverage", "passed"} {
+		if !strings.Contains(got, want) {
+			t.Errorf("comparison dialog lacks %q:\n%s", want, got)
+		}
 	}
 }
 
 // TestCancelPlanning cancels a plan just started: nothing is planned, the
 // status says so, and the progress bar goes away.
 func TestCancelPlanning(t *testing.T) {
-	u, _ := newTestUI(t, demoSession(t))
+	u, _ := newTestUI(t, editortest.Demo(t))
 	waitJob(t, u, func() {
 		u.StartPlan()
 		if !u.Busy() || u.progressBox.Hidden {
@@ -92,7 +92,7 @@ func TestCancelPlanning(t *testing.T) {
 		}
 		u.cancelPlan()
 	})
-	if p, _ := u.S.Plan(); p != nil {
+	if p, _ := u.Session.Plan(); p != nil {
 		t.Error("a cancelled plan was shown")
 	}
 	if got := u.hintLabel.Text; got != "Planning cancelled." {

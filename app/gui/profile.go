@@ -13,6 +13,9 @@ import (
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 
+	"dimerpath/app/editor"
+	"dimerpath/internal/jsonfile"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -46,9 +49,16 @@ func modeFields(group, prefix string, m func(p *planner.Profile) *planner.ModePr
 	return fs
 }
 
+// modeGroup names the profile group of a write mode's settings:
+// "Atomic-precision mode".
+func modeGroup(m design.Mode) string {
+	a := m.Adjective()
+	return strings.ToUpper(a[:1]) + a[1:] + " mode"
+}
+
 func profileFields() []profileField {
-	fs := modeFields("Atomic-precision mode", "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)
-	fs = append(fs, modeFields("Field-emission mode", "fe", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
+	fs := modeFields(modeGroup(design.ModeAP), "ap", func(p *planner.Profile) *planner.ModeProfile { return &p.AP }, false)
+	fs = append(fs, modeFields(modeGroup(design.ModeFE), "fe", func(p *planner.Profile) *planner.ModeProfile { return &p.FE }, true)...)
 	g := "Dwell (single points)"
 	fs = append(fs,
 		profileField{group: g, path: "dwell.bias_v", label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.BiasV }},
@@ -113,7 +123,7 @@ func (u *UI) editProfile() { u.openProfileEditor() }
 
 // openProfileEditor shows the editor and returns it.
 func (u *UI) openProfileEditor() *profileEditor {
-	e := &profileEditor{u: u, fields: profileFields(), path: u.S.ProfilePath}
+	e := &profileEditor{u: u, fields: profileFields(), path: u.Session.ProfilePath}
 	e.name = widget.NewEntry()
 	e.notes = widget.NewEntry()
 	e.apOut = widget.NewCheck("extra outline pass", nil)
@@ -125,7 +135,7 @@ func (u *UI) openProfileEditor() *profileEditor {
 	for i := range e.fields {
 		e.entries[i] = widget.NewEntry()
 	}
-	e.fill(u.S.Profile)
+	e.fill(u.Session.Profile)
 
 	var groups []fyne.CanvasObject
 	groups = append(groups, widget.NewForm(widget.NewFormItem("Name", e.name), widget.NewFormItem("Notes", e.notes),
@@ -140,9 +150,9 @@ func (u *UI) openProfileEditor() *profileEditor {
 			groups = append(groups, heading(f.group))
 			form = widget.NewForm()
 			switch f.group {
-			case "Atomic-precision mode":
+			case modeGroup(design.ModeAP):
 				form.Append("Outline", e.apOut)
-			case "Field-emission mode":
+			case modeGroup(design.ModeFE):
 				form.Append("Outline", e.feOut)
 			}
 			last = f.group
@@ -156,7 +166,7 @@ func (u *UI) openProfileEditor() *profileEditor {
 	load := widget.NewButtonWithIcon("Load…", theme.FolderOpenIcon(), e.load)
 	save := widget.NewButtonWithIcon("Save as…", theme.DocumentSaveIcon(), e.saveAs)
 	preset := widget.NewSelect(planner.Presets(), func(name string) {
-		if p, err := presetProfile(name); err == nil {
+		if p, err := editor.PresetProfile(name); err == nil {
 			e.fill(p)
 		}
 	})
@@ -240,7 +250,7 @@ func (e *profileEditor) parse() (planner.Profile, error) {
 	if len(bad) > 0 {
 		return p, errors.New(strings.Join(bad, "\n"))
 	}
-	if err := validateProfile(p); err != nil {
+	if err := editor.ValidateProfile(p); err != nil {
 		return p, e.explain(err)
 	}
 	return p, nil
@@ -265,15 +275,14 @@ func (e *profileEditor) explain(err error) error {
 		}
 		return strconv.FormatFloat(v, 'g', 6, 64)
 	}
-	var pe *planner.ProfileError
-	if errors.As(err, &pe) {
+	if pe, ok := errors.AsType[*jsonfile.Error](err); ok {
 		var lines []string
 		for _, pr := range pe.Problems {
-			val := fmt.Sprint(pr.Value)
+			val := jsonfile.Quote(pr.Value)
 			if x, ok := pr.Value.(float64); ok {
 				val = shown(pr.Path, x)
 			}
-			lines = append(lines, fmt.Sprintf("%s = %s: %s", name(pr.Path), val, pr.Problem))
+			lines = append(lines, fmt.Sprintf("%s = %s: %s", name(pr.Path), val, pr.Message))
 		}
 		return errors.New(strings.Join(lines, "\n"))
 	}
@@ -290,7 +299,7 @@ func (e *profileEditor) apply() {
 		showErr(e.msg, fmt.Errorf("Not applied:\n%w", err))
 		return
 	}
-	e.u.S.SetProfile(p, e.path)
+	e.u.Session.SetProfile(p, e.path)
 	e.dlg.Hide()
 	e.u.hintLabel.SetText("Instrument profile " + p.Name + " applied; plan again for its figures.")
 }
@@ -305,7 +314,7 @@ func (e *profileEditor) load() {
 		}
 		path := r.URI().Path()
 		r.Close()
-		p, err := loadProfile(path)
+		p, err := editor.LoadProfile(path)
 		if err != nil {
 			dialog.ShowError(fmt.Errorf("could not load %s:\n%w", path, err), e.u.Win)
 			return
@@ -326,7 +335,7 @@ func (e *profileEditor) saveAs() {
 		return
 	}
 	e.u.chooseFile(safeFileName(p.Name)+".json", []string{".json"}, func(path string) {
-		if err := saveProfile(path, p); err != nil {
+		if err := editor.SaveProfile(path, p); err != nil {
 			dialog.ShowError(fmt.Errorf("could not save %s:\n%w", path, err), e.u.Win)
 			return
 		}

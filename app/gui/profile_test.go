@@ -10,7 +10,7 @@ import (
 
 func TestProfileEditorRefusesBadValues(t *testing.T) {
 	u, _ := newTestUI(t, nil)
-	before := u.S.Profile
+	before := u.Session.Profile
 	e := u.openProfileEditor()
 	cur := e.entry("ap.current_a")
 	if cur == nil {
@@ -25,8 +25,9 @@ func TestProfileEditorRefusesBadValues(t *testing.T) {
 		name, text, msg string
 	}{
 		{"not a number", "two", "not a number"},
-		{"negative", "-1", "positive"},
-		{"beyond the limit", "1e6", "more than the instrument allows (Instrument limits / Largest current (nA) = "},
+		{"negative", "-1", "must be from 1 fA to 1 µA"},
+		{"no instrument has it", "1e6", "Setpoint current (nA) = 1e+06: must be from 1 fA to 1 µA"},
+		{"beyond the limit", "50", "more than the instrument allows (Instrument limits / Largest current (nA) = "},
 	}
 	for _, c := range cases {
 		cur.SetText(c.text)
@@ -34,7 +35,7 @@ func TestProfileEditorRefusesBadValues(t *testing.T) {
 		if e.msg.Hidden || !strings.Contains(e.msg.Text, c.msg) {
 			t.Errorf("%s (%q): message %q (hidden %v), want one containing %q", c.name, c.text, e.msg.Text, e.msg.Hidden, c.msg)
 		}
-		if u.S.Profile != before {
+		if u.Session.Profile != before {
 			t.Fatalf("%s: the profile changed although Apply was refused", c.name)
 		}
 	}
@@ -47,13 +48,13 @@ func TestProfileEditorRefusesBadValues(t *testing.T) {
 
 	cur.SetText("0.05")
 	e.apply()
-	if got := u.S.Profile.AP.CurrentA; math.Abs(got-0.05e-9) > 1e-21 {
+	if got := u.Session.Profile.AP.CurrentA; math.Abs(got-0.05e-9) > 1e-21 {
 		t.Errorf("after a valid Apply the AP current is %g A, want 5e-11 A", got)
 	}
-	if err := u.S.Profile.Validate(); err != nil {
+	if err := u.Session.Profile.Validate(); err != nil {
 		t.Errorf("applied profile does not validate: %v", err)
 	}
-	if _, stale := u.S.Plan(); stale {
+	if _, stale := u.Session.Plan(); stale {
 		t.Error("no plan, so none can be stale")
 	}
 }
@@ -67,7 +68,7 @@ func TestProfilePresetFillsEditor(t *testing.T) {
 	}
 	e.fill(lt)
 	e.apply()
-	if u.S.Profile.Drift.RateNMPerMin != lt.Drift.RateNMPerMin || u.S.Profile.Name != lt.Name {
-		t.Errorf("applied %+v, want the low-temperature preset", u.S.Profile.Drift)
+	if u.Session.Profile.Drift.RateNMPerMin != lt.Drift.RateNMPerMin || u.Session.Profile.Name != lt.Name {
+		t.Errorf("applied %+v, want the low-temperature preset", u.Session.Profile.Drift)
 	}
 }

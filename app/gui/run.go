@@ -13,6 +13,8 @@ import (
 	"fyne.io/fyne/v2/canvas"
 	"fyne.io/fyne/v2/driver/software"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/render"
 	"dimerpath/internal/atomicfile"
 )
 
@@ -47,17 +49,17 @@ func Run(o RunOptions) int {
 		// size asked for whatever the X server reports.
 		os.Setenv("FYNE_SCALE", "1")
 	}
-	d, err := demoDesign()
+	d, err := editor.DemoDesign()
 	path := ""
 	if o.Design != "" {
-		d, err = loadDesign(o.Design)
+		d, err = editor.LoadDesign(o.Design)
 		path = o.Design
 	}
 	if err != nil {
 		fmt.Fprintf(o.Stderr, "dimerpath: %v\n", err)
 		return 2
 	}
-	s, err := NewSession(d, path)
+	s, err := editor.NewSession(d, path)
 	if err != nil {
 		fmt.Fprintf(o.Stderr, "dimerpath: %s: %v\n", o.Design, err)
 		return 2
@@ -104,7 +106,7 @@ func (u *UI) screenshot(o RunOptions) int {
 	// software GL under Xvfb returns empty; Fyne's software painter draws
 	// the same widgets exactly, so the window's content is drawn with it.
 	content := u.Win.Content()
-	u.Win.SetContent(canvas.NewRectangle(colOutside))
+	u.Win.SetContent(canvas.NewRectangle(render.ColOutside))
 	c := software.NewCanvas()
 	c.SetPadded(false)
 	c.SetContent(content)

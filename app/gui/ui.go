@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"image/color"
+	"strings"
 	"time"
 
 	"fyne.io/fyne/v2"
@@ -16,6 +17,8 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/editor"
+	"dimerpath/app/render"
 	"dimerpath/planner"
 )
 
@@ -41,11 +44,11 @@ type Options struct {
 // UI is the main window: the views of one Session and the actions that
 // call into it. Widgets hold no design state of their own.
 type UI struct {
-	App  fyne.App
-	Win  fyne.Window
-	S    *Session
-	View *LatticeView
-	opts Options
+	App     fyne.App
+	Win     fyne.Window
+	Session *editor.Session
+	View    *LatticeView
+	opts    Options
 
 	cursorLabel *widget.Label
 	hintLabel   *widget.Label
@@ -60,7 +63,7 @@ type UI struct {
 	tabVariants *container.TabItem
 	tabMarks    *container.TabItem
 
-	toolButtons   map[Tool]*widget.Button
+	toolButtons   map[editor.Tool]*widget.Button
 	toolOptions   *fyne.Container
 	variantSelect *widget.Select
 	undoButton    *widget.Button
@@ -88,24 +91,31 @@ type UI struct {
 	checkCancel  context.CancelFunc
 	checkTimer   *time.Timer
 	stopAutosave chan struct{}
-	lastAutosave *snapshot // the undo state the recovery copy holds
-	autosaving   bool      // a recovery copy is being written
+	lastAutosave editor.PlanToken // the undo state the recovery copy holds
+	autosaving   bool             // a recovery copy is being written
 	recovery     *recoveryFiles
 
-	// jobDone, when set (by tests), is called after a background plan or
-	// comparison has reported back.
+	// jobs is the background work; tests put in their own.
+	jobs editor.Jobs
+	// bugsShown holds the bug reports already shown for the automatic
+	// jobs (checks, autosave), so one bug is not reported after every
+	// edit.
+	bugsShown map[string]bool
+
+	// jobDone, when set (by tests), is called after a background plan,
+	// check, export or comparison has reported back.
 	jobDone func()
 }
 
 // New builds the main window's content in w for session s and wires the
 // menus, shortcuts and close prompt. It does not show the window.
-func New(a fyne.App, w fyne.Window, s *Session, o Options) *UI {
+func New(a fyne.App, w fyne.Window, s *editor.Session, o Options) *UI {
 	if o.CheckDelay == 0 {
 		o.CheckDelay = 400 * time.Millisecond
 	}
 	// Before any file dialog: saving must never empty a file first.
 	installLazyFiles()
-	u := &UI{App: a, Win: w, S: s, opts: o, toolButtons: map[Tool]*widget.Button{}, recovery: &recoveryFiles{}}
+	u := &UI{App: a, Win: w, Session: s, opts: o, toolButtons: map[editor.Tool]*widget.Button{}, recovery: &recoveryFiles{}, jobs: editor.DefaultJobs(), bugsShown: map[string]bool{}}
 	u.View = NewLatticeView(s)
 	u.View.OnCursor = u.showCursor
 	u.View.OnRune = u.typedRune
@@ -123,11 +133,11 @@ func New(a fyne.App, w fyne.Window, s *Session, o Options) *UI {
 }
 
 // attach makes s the session the window shows.
-func (u *UI) attach(s *Session) {
-	if u.S != nil && u.S != s {
-		u.S.OnChange = nil
+func (u *UI) attach(s *editor.Session) {
+	if u.Session != nil && u.Session != s {
+		u.Session.OnChange = nil
 	}
-	u.S = s
+	u.Session = s
 	u.View.s = s
 	u.View.fitted = false
 	u.View.scene = nil
@@ -135,64 +145,64 @@ func (u *UI) attach(s *Session) {
 }
 
 // SetSession replaces the design shown (after File > Open or New).
-func (u *UI) SetSession(s *Session) {
+func (u *UI) SetSession(s *editor.Session) {
 	u.cancelPlan()
 	u.attach(s)
-	u.lastAutosave = nil
+	u.lastAutosave = editor.PlanToken{}
 	u.refreshAll()
 	u.View.Refresh()
 	u.scheduleCheck()
 }
 
 func (u *UI) refreshAll() {
-	u.changed(ChangeAll)
+	u.changed(editor.ChangeAll)
 }
 
 // changed updates the views that show what changed.
-func (u *UI) changed(c Change) {
-	if c&(ChangeSites|ChangeSelection|ChangePlan|ChangeFindings|ChangePreview|ChangeTerraces|ChangeFiducials|ChangeVariants|ChangeRegions) != 0 {
+func (u *UI) changed(c editor.Change) {
+	if c&(editor.ChangeSites|editor.ChangeSelection|editor.ChangePlan|editor.ChangeFindings|editor.ChangePreview|editor.ChangeTerraces|editor.ChangeFiducials|editor.ChangeVariants|editor.ChangeRegions) != 0 {
 		u.View.Invalidate()
 	}
-	if c&(ChangeRegions|ChangeSelection|ChangeVariants) != 0 {
+	if c&(editor.ChangeRegions|editor.ChangeSelection|editor.ChangeVariants) != 0 {
 		u.regions.refresh()
 	}
-	if c&(ChangeFindings|ChangeVariants|ChangeHistory) != 0 {
+	if c&(editor.ChangeFindings|editor.ChangeVariants|editor.ChangeHistory) != 0 {
 		u.findings.refresh()
 	}
-	if c&ChangeFindings != 0 && c&(ChangeRegions|ChangeSelection|ChangeVariants) == 0 {
+	if c&editor.ChangeFindings != 0 && c&(editor.ChangeRegions|editor.ChangeSelection|editor.ChangeVariants) == 0 {
 		u.regions.refreshGaps() // the widths measured by the check
 	}
-	if c&(ChangePlan|ChangeVariants|ChangeHistory) != 0 {
+	if c&(editor.ChangePlan|editor.ChangeVariants|editor.ChangeHistory) != 0 {
 		u.planView.refresh()
 	}
-	if c&(ChangeVariants|ChangeHistory) != 0 {
+	if c&(editor.ChangeVariants|editor.ChangeHistory) != 0 {
 		u.variants.refresh()
-		u.variantSelect.Options = u.S.VariantNames()
-		u.variantSelect.Selected = u.S.Variant().Name
+		u.variantSelect.Options = u.Session.VariantNames()
+		u.variantSelect.Selected = u.Session.Variant().Name
 		u.variantSelect.Refresh()
 	}
-	if c&(ChangeFiducials|ChangeTerraces|ChangeFile|ChangeVariants) != 0 {
+	if c&(editor.ChangeFiducials|editor.ChangeTerraces|editor.ChangeFile|editor.ChangeVariants) != 0 {
 		u.marks.refresh()
 	}
-	if c&ChangeTool != 0 {
+	if c&editor.ChangeTool != 0 {
 		u.refreshTools()
 	}
-	if c&(ChangeTool|ChangeSelection|ChangeRegions|ChangeVariants) != 0 {
+	if c&(editor.ChangeTool|editor.ChangeSelection|editor.ChangeRegions|editor.ChangeVariants) != 0 {
 		u.refreshHint()
 	}
-	if c&(ChangeRegions|ChangePlan|ChangeFindings|ChangeVariants|ChangeHistory|ChangeTerraces|ChangeFiducials) != 0 {
+	if c&(editor.ChangeRegions|editor.ChangePlan|editor.ChangeFindings|editor.ChangeVariants|editor.ChangeHistory|editor.ChangeTerraces|editor.ChangeFiducials) != 0 {
 		u.refreshLegend()
 	}
-	if c&(ChangeFile|ChangeHistory) != 0 {
-		u.Win.SetTitle(u.S.Title())
+	if c&(editor.ChangeFile|editor.ChangeHistory) != 0 {
+		u.Win.SetTitle(u.Session.Title())
 		u.refreshHistory()
 	}
-	if c&ChangeHistory != 0 {
+	if c&editor.ChangeHistory != 0 {
 		u.scheduleCheck()
 	}
-	if u.S.Err != nil {
-		u.hintLabel.SetText("Problem: " + u.S.Err.Error())
-		u.S.Err = nil
+	if u.Session.Err != nil {
+		u.hintLabel.SetText("Problem: " + u.Session.Err.Error())
+		u.Session.Err = nil
 	}
 }
 
@@ -222,9 +232,9 @@ func (u *UI) build() {
 	u.tabs = container.NewAppTabs(u.tabRegions, u.tabFindings, u.tabPlan, u.tabVariants, u.tabMarks)
 
 	u.variantSelect = widget.NewSelect(nil, func(name string) {
-		for i, n := range u.S.VariantNames() {
+		for i, n := range u.Session.VariantNames() {
 			if n == name {
-				u.S.SetVariant(i)
+				u.Session.SetVariant(i)
 			}
 		}
 	})
@@ -235,8 +245,8 @@ func (u *UI) build() {
 // content lays the window out: toolbar on top, tools on the left, the
 // lattice in the middle, panels on the right, status at the bottom.
 func (u *UI) content() fyne.CanvasObject {
-	u.undoButton = widget.NewButtonWithIcon("", theme.ContentUndoIcon(), func() { u.S.Undo() })
-	u.redoButton = widget.NewButtonWithIcon("", theme.ContentRedoIcon(), func() { u.S.Redo() })
+	u.undoButton = widget.NewButtonWithIcon("", theme.ContentUndoIcon(), func() { u.Session.Undo() })
+	u.redoButton = widget.NewButtonWithIcon("", theme.ContentRedoIcon(), func() { u.Session.Redo() })
 	u.planButton = widget.NewButtonWithIcon("Plan", theme.MediaPlayIcon(), u.StartPlan)
 	u.planButton.Importance = widget.HighImportance
 	toolbar := container.NewHBox(
@@ -246,7 +256,7 @@ func (u *UI) content() fyne.CanvasObject {
 		u.undoButton, u.redoButton,
 		widget.NewSeparator(),
 		widget.NewLabel("Variant"), container.New(&fixedWidth{w: 200}, u.variantSelect),
-		widget.NewButtonWithIcon("", theme.ContentCopyIcon(), func() { u.S.DuplicateVariant(u.S.VariantIndex()) }),
+		widget.NewButtonWithIcon("", theme.ContentCopyIcon(), func() { u.Session.DuplicateVariant(u.Session.VariantIndex()) }),
 		widget.NewSeparator(),
 		widget.NewButtonWithIcon("Check", theme.ConfirmIcon(), u.CheckNow),
 		u.planButton,
@@ -259,7 +269,7 @@ func (u *UI) content() fyne.CanvasObject {
 	left := container.NewVScroll(container.NewThemeOverride(u.toolPalette(), compactTheme()))
 	right := container.New(&fixedWidth{w: 350}, container.New(layout.NewCustomPaddedLayout(0, 0, 0, 6), u.tabs))
 	status := container.NewBorder(nil, nil, container.New(&fixedWidth{w: 520}, u.cursorLabel), u.progressBox, u.hintLabel)
-	viewFrame := container.NewStack(canvas.NewRectangle(colOutside), u.View)
+	viewFrame := container.NewStack(canvas.NewRectangle(render.ColOutside), u.View)
 	return container.NewBorder(
 		container.NewVBox(toolbar, widget.NewSeparator()),
 		container.NewVBox(widget.NewSeparator(), status),
@@ -292,9 +302,9 @@ func heading(s string) *widget.Label {
 // options, and what the view overlays.
 func (u *UI) toolPalette() fyne.CanvasObject {
 	var buttons []fyne.CanvasObject
-	for _, ti := range Tools {
+	for _, ti := range editor.Tools {
 		t := ti.Tool
-		b := widget.NewButton(fmt.Sprintf("%s  %c", ti.Name, ti.Key-'a'+'A'), func() { u.S.SetTool(t) })
+		b := widget.NewButton(fmt.Sprintf("%s  %c", ti.Name, ti.Key-'a'+'A'), func() { u.Session.SetTool(t) })
 		b.Alignment = widget.ButtonAlignLeading
 		u.toolButtons[t] = b
 		buttons = append(buttons, b)
@@ -337,7 +347,7 @@ func (u *UI) toolPalette() fyne.CanvasObject {
 func (u *UI) refreshTools() {
 	for t, b := range u.toolButtons {
 		imp := widget.LowImportance
-		if t == u.S.Tool {
+		if t == u.Session.Tool {
 			imp = widget.HighImportance
 		}
 		if b.Importance != imp {
@@ -345,26 +355,26 @@ func (u *UI) refreshTools() {
 			b.Refresh()
 		}
 	}
-	u.toolOptions.Objects = u.optionsFor(u.S.Tool)
+	u.toolOptions.Objects = u.optionsFor(u.Session.Tool)
 	u.toolOptions.Refresh()
 }
 
 // refreshHint shows what the tool does and, for the painting tools,
 // which region the next stroke goes into.
 func (u *UI) refreshHint() {
-	s := u.S
+	s := u.Session
 	hint := s.Tool.Info().Hint
 	switch s.Tool {
-	case ToolSite, ToolDimer, ToolRect, ToolPolygon, ToolLine:
+	case editor.ToolSite, editor.ToolDimer, editor.ToolRect, editor.ToolPolygon, editor.ToolLine:
 		if a := s.Active(); a >= 0 {
 			hint = fmt.Sprintf("Adds to %s (Esc for a new region). %s", s.Variant().Regions[a].Name, hint)
 		} else {
 			hint = "Starts a new region. " + hint
 		}
-	case ToolSelect:
+	case editor.ToolSelect:
 		if i, k := s.SelectedShape(); i >= 0 {
 			r := s.Variant().Regions[i]
-			hint = fmt.Sprintf("Selected %s %d of %d in %s: drag to move, Delete removes, Esc deselects.", ShapeName(r.Shapes[k]), k+1, len(r.Shapes), r.Name)
+			hint = fmt.Sprintf("Selected %s %d of %d in %s: drag to move, Delete removes, Esc deselects.", editor.ShapeName(r.Shapes[k]), k+1, len(r.Shapes), r.Name)
 		}
 	}
 	u.hintLabel.SetText(hint)
@@ -373,9 +383,9 @@ func (u *UI) refreshHint() {
 // deleteSelection removes the selected shape, or else the selected
 // regions.
 func (u *UI) deleteSelection() {
-	if !u.S.DeleteSelectedShape() {
-		if sel := u.S.Selection(); len(sel) > 0 {
-			u.S.DeleteRegions(sel...)
+	if !u.Session.DeleteSelectedShape() {
+		if sel := u.Session.Selection(); len(sel) > 0 {
+			u.Session.DeleteRegions(sel...)
 		}
 	}
 }
@@ -402,64 +412,64 @@ func (u *UI) optionEntry(label string, value string, apply func(string) error) f
 	return container.NewVBox(l, e, msg)
 }
 
-func (u *UI) setOpt(f func(o *ToolOptions) error) error {
-	o := u.S.Opts
+func (u *UI) setOpt(f func(o *editor.ToolOptions) error) error {
+	o := u.Session.Opts
 	if err := f(&o); err != nil {
 		return err
 	}
-	return u.S.SetOptions(o)
+	return u.Session.SetOptions(o)
 }
 
-func (u *UI) optionsFor(t Tool) []fyne.CanvasObject {
-	o := u.S.Opts
-	num := func(label string, v float64, set func(o *ToolOptions, v float64)) fyne.CanvasObject {
+func (u *UI) optionsFor(t editor.Tool) []fyne.CanvasObject {
+	o := u.Session.Opts
+	num := func(label string, v float64, set func(o *editor.ToolOptions, v float64)) fyne.CanvasObject {
 		return u.optionEntry(label, trimZeros(fmt.Sprintf("%.3f", v)), func(s string) error {
 			x, err := parseNumber(label, s)
 			if err != nil {
 				return err
 			}
-			return u.setOpt(func(o *ToolOptions) error { set(o, x); return nil })
+			return u.setOpt(func(o *editor.ToolOptions) error { set(o, x); return nil })
 		})
 	}
 	template := func() fyne.CanvasObject {
 		sel := widget.NewSelect(u.templateNames(), func(name string) {
-			u.setOpt(func(o *ToolOptions) error { o.Template = name; return nil })
+			u.setOpt(func(o *editor.ToolOptions) error { o.Template = name; return nil })
 		})
 		sel.Selected = o.Template
 		return container.NewVBox(widget.NewLabel("Window template"), sel, u.templateInfo(o.Template))
 	}
 	switch t {
-	case ToolSite, ToolDimer, ToolEraser:
-		return []fyne.CanvasObject{num("Brush radius, nm (0: one at a time)", o.BrushNM, func(o *ToolOptions, v float64) { o.BrushNM = v })}
-	case ToolLine:
-		return []fyne.CanvasObject{num("Line width (nm)", o.LineWidthNM, func(o *ToolOptions, v float64) { o.LineWidthNM = v })}
-	case ToolWindow:
+	case editor.ToolSite, editor.ToolDimer, editor.ToolEraser:
+		return []fyne.CanvasObject{num("Brush radius, nm (0: one at a time)", o.BrushNM, func(o *editor.ToolOptions, v float64) { o.BrushNM = v })}
+	case editor.ToolLine:
+		return []fyne.CanvasObject{num("Line width (nm)", o.LineWidthNM, func(o *editor.ToolOptions, v float64) { o.LineWidthNM = v })}
+	case editor.ToolWindow:
 		return []fyne.CanvasObject{template()}
-	case ToolArray:
+	case editor.ToolArray:
 		of := widget.NewSelect([]string{"window", "dimer", "site"}, func(s string) {
-			u.setOpt(func(o *ToolOptions) error { o.ArrayOf = s; return nil })
+			u.setOpt(func(o *editor.ToolOptions) error { o.ArrayOf = s; return nil })
 		})
 		of.Selected = o.ArrayOf
 		// Label and field side by side: the four numbers then fit the
 		// column of a laptop screen without scrolling.
 		msg := errorLabel()
 		form := widget.NewForm()
-		field := func(label string, v int, set func(o *ToolOptions, v int)) {
+		field := func(label string, v int, set func(o *editor.ToolOptions, v int)) {
 			e := widget.NewEntry()
 			e.SetText(fmt.Sprint(v))
 			e.OnChanged = func(s string) {
 				x, err := parseInt(label, s)
 				if err == nil {
-					err = u.setOpt(func(o *ToolOptions) error { set(o, x); return nil })
+					err = u.setOpt(func(o *editor.ToolOptions) error { set(o, x); return nil })
 				}
 				showErr(msg, err)
 			}
 			form.Append(label, e)
 		}
-		field("Columns", o.ArrayCols, func(o *ToolOptions, v int) { o.ArrayCols = v })
-		field("Rows", o.ArrayRows, func(o *ToolOptions, v int) { o.ArrayRows = v })
-		field("Dimer pitch", o.ArrayPitchDimers, func(o *ToolOptions, v int) { o.ArrayPitchDimers = v })
-		field("Row pitch", o.ArrayPitchRows, func(o *ToolOptions, v int) { o.ArrayPitchRows = v })
+		field("Columns", o.ArrayCols, func(o *editor.ToolOptions, v int) { o.ArrayCols = v })
+		field("Rows", o.ArrayRows, func(o *editor.ToolOptions, v int) { o.ArrayRows = v })
+		field("Dimer pitch", o.ArrayPitchDimers, func(o *editor.ToolOptions, v int) { o.ArrayPitchDimers = v })
+		field("Row pitch", o.ArrayPitchRows, func(o *editor.ToolOptions, v int) { o.ArrayPitchRows = v })
 		return []fyne.CanvasObject{
 			container.NewBorder(nil, nil, widget.NewLabel("Repeat"), nil, of), template(), form, msg,
 			mutedLabel("Pitches count dimers along the row and rows across it."),
@@ -471,11 +481,11 @@ func (u *UI) optionsFor(t Tool) []fyne.CanvasObject {
 }
 
 func (u *UI) templateNames() []string {
-	return u.S.Design().Templates().Names()
+	return u.Session.Design().Templates().Names()
 }
 
 func (u *UI) templateInfo(name string) fyne.CanvasObject {
-	t, ok := templateOf(u.S.Design(), name)
+	t, ok := editor.TemplateOf(u.Session.Design(), name)
 	if !ok {
 		return widget.NewLabel("")
 	}
@@ -524,48 +534,51 @@ func legendName(s string) string {
 // refreshLegend lists what the view's colours mean right now.
 func (u *UI) refreshLegend() {
 	var rows []fyne.CanvasObject
-	v := u.S.Variant()
+	v := u.Session.Variant()
 	const maxRegions = 8
 	for i, r := range v.Regions {
 		if i == maxRegions {
 			rows = append(rows, legendRow(swatch(color.Transparent, 12, 12), fmt.Sprintf("… %d more in Regions", len(v.Regions)-maxRegions)))
 			break
 		}
-		rows = append(rows, legendRow(swatch(RegionColor(i), 12, 12), fmt.Sprintf("%s (%s)", legendName(r.Name), roleOf(r.Role))))
+		rows = append(rows, legendRow(swatch(render.RegionColor(i), 12, 12), fmt.Sprintf("%s (%s)", legendName(r.Name), roleOf(r.Role))))
 	}
 	if len(v.Regions) == 0 {
-		rows = append(rows, legendRow(swatch(colCleanH, 12, 12), "clean H-terminated surface"))
+		rows = append(rows, legendRow(swatch(render.ColCleanH, 12, 12), "clean H-terminated surface"))
 	}
-	if p, stale := u.S.Plan(); p != nil && u.View.Opts.Route {
+	if p, stale := u.Session.Plan(); p != nil && u.View.Opts.Route {
 		rows = append(rows, widget.NewSeparator())
 		segs := container.NewHBox()
 		for i := 0; i < min(len(p.Segments), 6); i++ {
-			segs.Add(swatch(SegmentColor(i), 8, 12))
+			segs.Add(swatch(render.SegmentColor(i), 8, 12))
 		}
 		rows = append(rows, container.NewHBox(segs, legendText(fmt.Sprintf("strokes by segment (%d)", len(p.Segments)))))
 		if stale {
 			rows = append(rows, legendRow(swatch(color.Transparent, 12, 12), "route out of date: plan again"))
 		}
-		rows = append(rows, legendRow(swatch(colMove, 14, 1), "tip moves"))
+		rows = append(rows, legendRow(swatch(render.ColMove, 14, 1), "tip moves"))
 		rows = append(rows, legendRow(legendText("◇"), "registration on a fiducial"))
 	}
-	if len(u.S.Design().Fiducials) > 0 {
+	if len(u.Session.Design().Fiducials) > 0 {
 		rows = append(rows, legendRow(legendText("⊕"), "fiducial mark"))
 	}
-	if surf := u.S.Surface(); surf != nil && len(surf.Terraces) > 1 {
+	if refs := u.Session.References(); len(refs) > 0 {
+		rows = append(rows, legendRow(swatch(render.ColReference, 14, 2), "layout overlay (not written): "+legendName(strings.Join(refs, ", "))))
+	}
+	if surf := u.Session.Surface(); surf != nil && len(surf.Terraces) > 1 {
 		rows = append(rows, widget.NewSeparator())
 		for i, t := range surf.Terraces {
-			rows = append(rows, legendRow(swatch(colTerrace[i%len(colTerrace)], 12, 12), fmt.Sprintf("terrace %s: rows along %s", legendName(t.Name), t.Rows)))
+			rows = append(rows, legendRow(swatch(render.ColTerrace[i%len(render.ColTerrace)], 12, 12), fmt.Sprintf("terrace %s: rows along %s", legendName(t.Name), t.Rows)))
 		}
-		rows = append(rows, legendRow(swatch(colStep, 14, 2), "step edge"))
+		rows = append(rows, legendRow(swatch(render.ColStep, 14, 2), "step edge"))
 	}
-	if f, _ := u.S.Findings(); len(f) > 0 && u.View.Opts.Findings {
+	if f, _ := u.Session.Findings(); len(f) > 0 && u.View.Opts.Findings {
 		errs, warns := countFindings(f)
 		if errs > 0 {
-			rows = append(rows, legendRow(swatch(colError, 12, 12), "design-rule error"))
+			rows = append(rows, legendRow(swatch(render.ColError, 12, 12), "design-rule error"))
 		}
 		if warns > 0 {
-			rows = append(rows, legendRow(swatch(colWarning, 12, 12), "design-rule warning"))
+			rows = append(rows, legendRow(swatch(render.ColWarning, 12, 12), "design-rule warning"))
 		}
 	}
 	u.legend.Objects = rows
@@ -575,7 +588,7 @@ func (u *UI) refreshLegend() {
 }
 
 // countFindings returns the numbers of errors and of warnings.
-func countFindings(f []Finding) (errs, warns int) {
+func countFindings(f []editor.Finding) (errs, warns int) {
 	for _, x := range f {
 		if x.Error {
 			errs++
@@ -595,11 +608,11 @@ func (u *UI) showCursor(p r2.Point, ok bool) {
 		return
 	}
 	text := fmt.Sprintf("(%.3f, %.3f) nm", p.X, p.Y)
-	surf := u.S.Surface()
+	surf := u.Session.Surface()
 	if site, _, on := surf.Snap(p); on && surf.Field.ContainsPoint(p) {
 		text += fmt.Sprintf("  %s row %d dimer %d side %d", surf.Terraces[site.Terrace].Name, site.Row, site.Dimer, site.Side)
-		if i := u.S.RegionAt(p); i >= 0 {
-			text += " · " + u.S.Variant().Regions[i].Name
+		if i := u.Session.RegionAt(p); i >= 0 {
+			text += " · " + u.Session.Variant().Regions[i].Name
 		}
 	} else {
 		text += "  outside the field"
@@ -608,13 +621,13 @@ func (u *UI) showCursor(p r2.Point, ok bool) {
 }
 
 func (u *UI) refreshHistory() {
-	setEnabled(u.undoButton, u.S.CanUndo())
-	setEnabled(u.redoButton, u.S.CanRedo())
+	setEnabled(u.undoButton, u.Session.CanUndo())
+	setEnabled(u.redoButton, u.Session.CanRedo())
 	if u.undoItem != nil {
-		u.undoItem.Label = "Undo " + u.S.UndoLabel()
-		u.undoItem.Disabled = !u.S.CanUndo()
-		u.redoItem.Label = "Redo " + u.S.RedoLabel()
-		u.redoItem.Disabled = !u.S.CanRedo()
+		u.undoItem.Label = "Undo " + u.Session.UndoLabel()
+		u.undoItem.Disabled = !u.Session.CanUndo()
+		u.redoItem.Label = "Redo " + u.Session.RedoLabel()
+		u.redoItem.Disabled = !u.Session.CanRedo()
 		u.menu.Refresh()
 	}
 }
@@ -647,9 +660,9 @@ func (u *UI) typedRune(r rune) {
 		u.View.Fit()
 		return
 	}
-	for _, ti := range Tools {
+	for _, ti := range editor.Tools {
 		if r == ti.Key || r == ti.Key-'a'+'A' {
-			u.S.SetTool(ti.Tool)
+			u.Session.SetTool(ti.Tool)
 			return
 		}
 	}
@@ -661,15 +674,15 @@ func (u *UI) typedKey(k *fyne.KeyEvent) {
 	step := float64(u.View.view.W) / 8
 	switch k.Name {
 	case fyne.KeyReturn, fyne.KeyEnter:
-		if err := u.S.FinishPath(); err != nil {
+		if err := u.Session.FinishPath(); err != nil {
 			u.hintLabel.SetText(err.Error())
 		}
 	case fyne.KeyEscape:
-		if u.S.Drawing() {
-			u.S.CancelPath()
-		} else if len(u.S.Selection()) > 0 {
+		if u.Session.Drawing() {
+			u.Session.CancelPath()
+		} else if len(u.Session.Selection()) > 0 {
 			// Nothing selected: the next stroke starts a new region.
-			u.S.Select()
+			u.Session.Select()
 		}
 	case fyne.KeyDelete, fyne.KeyBackspace:
 		u.deleteSelection()
@@ -700,9 +713,9 @@ func ctrlShift(k fyne.KeyName) *desktop.CustomShortcut {
 // where a main menu does not route them (and in tests).
 func (u *UI) addShortcuts() {
 	c := u.Win.Canvas()
-	c.AddShortcut(&fyne.ShortcutUndo{}, func(fyne.Shortcut) { u.S.Undo() })
-	c.AddShortcut(&fyne.ShortcutRedo{}, func(fyne.Shortcut) { u.S.Redo() })
-	c.AddShortcut(ctrlShift(fyne.KeyZ), func(fyne.Shortcut) { u.S.Redo() })
+	c.AddShortcut(&fyne.ShortcutUndo{}, func(fyne.Shortcut) { u.Session.Undo() })
+	c.AddShortcut(&fyne.ShortcutRedo{}, func(fyne.Shortcut) { u.Session.Redo() })
+	c.AddShortcut(ctrlShift(fyne.KeyZ), func(fyne.Shortcut) { u.Session.Redo() })
 	c.AddShortcut(ctrl(fyne.KeyS), func(fyne.Shortcut) { u.save(nil) })
 	c.AddShortcut(ctrlShift(fyne.KeyS), func(fyne.Shortcut) { u.saveAs(nil) })
 	c.AddShortcut(ctrl(fyne.KeyO), func(fyne.Shortcut) { u.openDialog() })
@@ -740,23 +753,26 @@ func (u *UI) buildMenu() {
 		item("Save", ctrl(fyne.KeyS), func() { u.save(nil) }),
 		item("Save as…", ctrlShift(fyne.KeyS), func() { u.saveAs(nil) }),
 		fyne.NewMenuItemSeparator(),
+		item("Import layout (GDSII)…", nil, u.importLayoutDialog),
+		item("Remove layout overlays…", nil, u.removeReferences),
+		fyne.NewMenuItemSeparator(),
 	)
 	file.Items = append(file.Items, u.exportMenu...)
 	file.Items = append(file.Items, fyne.NewMenuItemSeparator(), quit)
 
-	u.undoItem = item("Undo", &fyne.ShortcutUndo{}, func() { u.S.Undo() })
-	u.redoItem = item("Redo", ctrlShift(fyne.KeyZ), func() { u.S.Redo() })
+	u.undoItem = item("Undo", &fyne.ShortcutUndo{}, func() { u.Session.Undo() })
+	u.redoItem = item("Redo", ctrlShift(fyne.KeyZ), func() { u.Session.Redo() })
 	edit := fyne.NewMenu("Edit", u.undoItem, u.redoItem,
-		item("Redo (Ctrl+Y)", &fyne.ShortcutRedo{}, func() { u.S.Redo() }),
+		item("Redo (Ctrl+Y)", &fyne.ShortcutRedo{}, func() { u.Session.Redo() }),
 		fyne.NewMenuItemSeparator(),
-		fyne.NewMenuItem("Delete selected shape (Delete)", func() { u.S.DeleteSelectedShape() }),
-		fyne.NewMenuItem("Delete selected regions", func() { u.S.DeleteRegions(u.S.Selection()...) }),
-		fyne.NewMenuItem("Select nothing (Esc)", func() { u.S.Select() }),
+		fyne.NewMenuItem("Delete selected shape (Delete)", func() { u.Session.DeleteSelectedShape() }),
+		fyne.NewMenuItem("Delete selected regions", func() { u.Session.DeleteRegions(u.Session.Selection()...) }),
+		fyne.NewMenuItem("Select nothing (Esc)", func() { u.Session.Select() }),
 	)
 	var toolItems []*fyne.MenuItem
-	for _, ti := range Tools {
+	for _, ti := range editor.Tools {
 		t := ti.Tool
-		toolItems = append(toolItems, fyne.NewMenuItem(fmt.Sprintf("%s (%c)", ti.Name, ti.Key-'a'+'A'), func() { u.S.SetTool(t) }))
+		toolItems = append(toolItems, fyne.NewMenuItem(fmt.Sprintf("%s (%c)", ti.Name, ti.Key-'a'+'A'), func() { u.Session.SetTool(t) }))
 	}
 	tools := fyne.NewMenu("Tools", toolItems...)
 	view := fyne.NewMenu("View",
@@ -784,8 +800,8 @@ func (u *UI) buildMenu() {
 
 func (u *UI) zoomToSelection() {
 	b := r2.EmptyRect()
-	for _, i := range u.S.Selection() {
-		b = b.Union(u.S.RegionBounds(i))
+	for _, i := range u.Session.Selection() {
+		b = b.Union(u.Session.RegionBounds(i))
 	}
 	if !b.IsEmpty() {
 		u.View.ZoomTo(b)
@@ -805,7 +821,7 @@ func (u *UI) showCaution() {
 // it does.
 func keyHelp() [][2]string {
 	var rows [][2]string
-	for _, ti := range Tools {
+	for _, ti := range editor.Tools {
 		rows = append(rows, [2]string{string(ti.Key - 'a' + 'A'), ti.Name + ": " + ti.Hint})
 	}
 	return append(rows,

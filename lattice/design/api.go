@@ -342,6 +342,9 @@ func appendWindows(out []lattice.Window, surf *lattice.Surface, templates Templa
 			return out, err
 		}
 		a := sh.Array
+		// One allocation for the whole array: growing a 10^6-window list
+		// by doubling cost most of laying such a variant out.
+		out = slices.Grow(out, a.Rows*a.Cols)
 		for j := 0; j < a.Rows; j++ {
 			for i := 0; i < a.Cols; i++ {
 				out = append(out, w.Shifted(i*a.PitchDimers, j*a.PitchRows))
@@ -452,12 +455,14 @@ func addArray(set *lattice.SiteSet, surf *lattice.Surface, templates Templates, 
 			}
 		}
 	case ShapeWindow:
-		ws, err := appendWindows(nil, surf, templates, &Shape{Kind: ShapeArray, Array: a})
-		if err != nil {
+		w, ok, err := placeWindow(surf, templates, of)
+		if err != nil || !ok {
 			return err
 		}
-		for _, w := range ws {
-			surf.AddWindow(set, w)
+		for j := 0; j < a.Rows; j++ {
+			for i := 0; i < a.Cols; i++ {
+				surf.AddWindow(set, w.Shifted(i*a.PitchDimers, j*a.PitchRows))
+			}
 		}
 	default:
 		return fmt.Errorf("array: of: kind %q cannot be arrayed (site, dimer or window)", of.Kind)

@@ -18,7 +18,8 @@ func TestSurfaceAcrossStep(t *testing.T) {
 	if lower.Rows != lattice.RowsAlongX || upper.Rows != lattice.RowsAlongY {
 		t.Errorf("rows %v, %v; want x then y (turned across the step)", lower.Rows, upper.Rows)
 	}
-	// a/(2√2) along the new rows (diamond lattice; physics.md §1).
+	// a/(2√2) along the new rows (the diamond structure: one single-height
+	// step, a/4, down).
 	if dy := upper.Offset.Y - lower.Offset.Y; math.Abs(dy-lattice.StepShift) > 1e-12 {
 		t.Errorf("step shift %g, want %g", dy, lattice.StepShift)
 	}

@@ -28,8 +28,8 @@ const (
 	RuleWindow = "window-lattice"
 	// RuleWindowSpacing: at least Rules.WindowGapDimers intact dimers
 	// between a window and the next window or written site on its row,
-	// and no window in the facing segment of the Rules.WindowFacingRows
-	// rows on either side.
+	// and no window or other written site in the facing segment (the
+	// window's dimers) of the Rules.WindowFacingRows rows on either side.
 	RuleWindowSpacing = "window-spacing"
 	// RuleFEKeepOut: field-emission regions keep Rules.FEKeepOutNM from
 	// atomic-precision features (see Layout.KeepOutClass).
@@ -37,8 +37,10 @@ const (
 	// RuleScanField: every shape lies inside the field (its sites beyond
 	// are not written) and everything inside the scan field.
 	RuleScanField = "scan-field"
-	// RuleFloating: every device, gate and lead region is connected to a
-	// pad through touching regions or declared tunnel gaps.
+	// RuleFloating: every gate and lead region is connected to a pad
+	// through touching regions (a galvanic path; a tunnel gap passes no
+	// DC current); a device region (an island) may instead hang on
+	// declared tunnel gaps to regions so connected.
 	RuleFloating = "floating"
 	// RuleTunnelGap: each declared tunnel gap is within its range.
 	RuleTunnelGap = "tunnel-gap"
@@ -82,7 +84,7 @@ func HasErrors(fs []Finding) bool {
 }
 
 // Check lays out the named variant of d (empty: the first) and runs
-// every design rule on it; see CheckLayout. The error is for a variant
+// every design rule on it; see Layout.Check. The error is for a variant
 // that cannot be laid out (unknown name, invalid design), not for rule
 // violations, which are findings.
 func Check(d *Design, variant string) ([]Finding, error) {
@@ -241,6 +243,9 @@ func (c *checker) windowSpacing() {
 				c.add(RuleWindowSpacing, SeverityError, surf.DimerCentre(site.Terrace, site.Row, d), fmt.Sprintf("dimer %d next to window %v is written by region %q: keep %d intact dimers beside a window", d, p.w, c.name(owner), rs.WindowGapDimers), c.regionNames(p.region, owner)...)
 				break
 			}
+			// Across: other written sites in the facing segment (the
+			// window's own dimers) of the neighbouring rows, both ways.
+			c.facingSites(p, others)
 			// Across: windows in the facing segment of the next rows up
 			// (looking one way finds each pair once).
 			for dr := 1; dr <= rs.WindowFacingRows; dr++ {
@@ -256,6 +261,27 @@ func (c *checker) windowSpacing() {
 					at := surf.WindowCentre(p.w).Add(surf.WindowCentre(q.w)).Mul(0.5)
 					c.add(RuleWindowSpacing, SeverityError, at, fmt.Sprintf("window %v faces window %v %d row(s) away: keep the facing segment of the next %d row(s) free", q.w, p.w, dr, rs.WindowFacingRows), c.regionNames(p.region, q.region)...)
 				}
+			}
+		}
+	}
+}
+
+// facingSites reports the first site written outside any window in the
+// facing segment of p's window (its own dimers) on the
+// Rules.WindowFacingRows rows on either side, nearest row first: a
+// written site one intact trough away is as close to the window as a
+// written dimer beside it along the row.
+func (c *checker) facingSites(p placed, others *lattice.SiteSet) {
+	rs, surf := c.l.Rules, c.l.Surface
+	from, to := 2*p.w.FirstDimer, 2*(p.w.LastDimer()+1)
+	for dr := 1; dr <= rs.WindowFacingRows; dr++ {
+		for _, row := range []int{p.w.Row - dr, p.w.Row + dr} {
+			for i := range others.Row(p.w.Terrace, row).Sites(from, to, lattice.BothSides) {
+				site := lattice.SiteAt(p.w.Terrace, row, i)
+				owner := c.owner(site)
+				c.add(RuleWindowSpacing, SeverityError, surf.Position(site), fmt.Sprintf("window %v faces sites written by region %q %d row(s) away (row %d, dimer %d): keep the facing segment of the next %d row(s) free of written sites",
+					p.w, c.name(owner), dr, row, site.Dimer, rs.WindowFacingRows), c.regionNames(p.region, owner)...)
+				return
 			}
 		}
 	}
@@ -411,13 +437,16 @@ func outsidePoint(surf *lattice.Surface, sh *Shape, field r2.Rect) (r2.Point, bo
 	return r2.Point{}, false
 }
 
-// floating joins touching regions and declared tunnel gaps with
-// union-find and reports each device, gate or lead region whose group
-// holds no pad.
+// floating joins touching regions with union-find (a galvanic path)
+// and reports each gate or lead region whose group holds no pad, and
+// each device region (an island) that neither has such a path nor
+// hangs, through declared tunnel gaps, on regions that have one. A
+// tunnel gap passes no DC current, so it never connects a lead or a
+// gate to a pad.
 func (c *checker) floating() {
 	n := len(c.l.Regions)
 	sets := unionfind.New(n)
-	find, union := sets.Find, func(a, b int) { sets.Union(a, b) }
+	find := sets.Find
 	for i := range n {
 		if c.l.Regions[i].Sites.IsEmpty() {
 			continue
@@ -427,14 +456,8 @@ func (c *checker) floating() {
 				continue
 			}
 			if _, _, ok := c.cells(i).GapWithin(c.cells(j), TouchNM); ok {
-				union(i, j)
+				sets.Union(i, j)
 			}
-		}
-	}
-	for _, g := range c.l.Variant.TunnelGaps {
-		a, b := c.regionIndex(g.A), c.regionIndex(g.B)
-		if a >= 0 && b >= 0 {
-			union(a, b)
 		}
 	}
 	padGroup := map[int]bool{}
@@ -443,20 +466,52 @@ func (c *checker) floating() {
 			padGroup[find(i)] = true
 		}
 	}
-	for i, rl := range c.l.Regions {
-		switch rl.Region.Role {
-		case RoleDevice, RoleGate, RoleLead:
-		default:
+	// Islands may hang on declared tunnel gaps: a second grouping joins
+	// the galvanic groups across them, and a device region passes when
+	// its group there holds a pad. viaGap marks galvanic groups some
+	// tunnel gap links to another, for the message.
+	coupled := unionfind.New(n)
+	viaGap := map[int]bool{}
+	for i := range n {
+		coupled.Union(i, find(i))
+	}
+	for _, g := range c.l.Variant.TunnelGaps {
+		a, b := c.regionIndex(g.A), c.regionIndex(g.B)
+		if a < 0 || b < 0 {
 			continue
 		}
+		coupled.Union(a, b)
+		viaGap[find(a)], viaGap[find(b)] = true, true
+	}
+	coupledPad := map[int]bool{}
+	for i := range n {
 		if padGroup[find(i)] {
+			coupledPad[coupled.Find(i)] = true
+		}
+	}
+	for i, rl := range c.l.Regions {
+		role := rl.Region.Role
+		if role != RoleDevice && role != RoleGate && role != RoleLead {
+			continue
+		}
+		g := find(i)
+		if padGroup[g] || (role == RoleDevice && coupledPad[coupled.Find(i)]) {
 			continue
 		}
 		at := rl.Bounds.Center()
 		if rl.Bounds.IsEmpty() {
 			at = r2.Point{}
 		}
-		c.add(RuleFloating, SeverityError, at, fmt.Sprintf("%s region is floating: no touching region or tunnel gap connects it to a pad", rl.Region.Role), c.name(i))
+		var msg string
+		switch {
+		case role == RoleDevice:
+			msg = "device region is floating: no touching region connects it to a pad, and no tunnel gap couples it to a region that has one"
+		case viaGap[g]:
+			msg = fmt.Sprintf("%s region is floating: only a tunnel gap links it towards a pad, and a tunnel gap passes no DC current; connect it to a pad through touching regions", role)
+		default:
+			msg = fmt.Sprintf("%s region is floating: no touching region connects it to a pad", role)
+		}
+		c.add(RuleFloating, SeverityError, at, msg, c.name(i))
 	}
 }
 
@@ -491,8 +546,8 @@ func (c *checker) tunnelGaps() {
 			continue
 		}
 		limit := 2*hi + 10
-		d, at, ok := c.cells(a).GapWithin(c.cells(b), limit)
-		rows := d / lattice.RowSpacing
+		gap, ok := c.cells(a).SpanWithin(c.cells(b), limit)
+		d, at, width := gap.NM, gap.At, c.l.Surface.GapText(gap)
 		switch {
 		case !ok:
 			mid := c.l.Regions[a].Bounds.Center().Add(c.l.Regions[b].Bounds.Center()).Mul(0.5)
@@ -500,9 +555,9 @@ func (c *checker) tunnelGaps() {
 		case d <= TouchNM:
 			c.add(RuleTunnelGap, SeverityError, at, "the regions touch: there is no tunnel gap", names...)
 		case d < lo-1e-9:
-			c.add(RuleTunnelGap, SeverityError, at, fmt.Sprintf("tunnel gap %.2f nm (%.1f dimer rows) is narrower than %.2f nm", d, rows, lo), names...)
+			c.add(RuleTunnelGap, SeverityError, at, fmt.Sprintf("tunnel gap %s is narrower than %.2f nm", width, lo), names...)
 		case d > hi+1e-9:
-			c.add(RuleTunnelGap, SeverityError, at, fmt.Sprintf("tunnel gap %.2f nm (%.1f dimer rows) is wider than %.2f nm", d, rows, hi), names...)
+			c.add(RuleTunnelGap, SeverityError, at, fmt.Sprintf("tunnel gap %s is wider than %.2f nm", width, hi), names...)
 		}
 	}
 }
@@ -511,6 +566,13 @@ func (c *checker) tunnelGaps() {
 // laid-out regions (0 when they touch or overlap), or +Inf when either
 // is empty. It is what the tunnel-gap rule measures (lattice.CellIndex).
 func (l *Layout) GapNM(a, b *RegionLayout) float64 {
-	d, _ := lattice.NewCellIndex(l.Surface, a.Sites).Gap(lattice.NewCellIndex(l.Surface, b.Sites))
-	return d
+	return l.Gap(a, b).NM
+}
+
+// Gap returns the shortest segment between the site cells of two
+// laid-out regions (its NM is +Inf when either is empty), which
+// Surface.GapText states in nm and in dimer rows or dimers by its
+// direction.
+func (l *Layout) Gap(a, b *RegionLayout) lattice.Gap {
+	return lattice.NewCellIndex(l.Surface, a.Sites).Span(lattice.NewCellIndex(l.Surface, b.Sites))
 }

@@ -71,6 +71,13 @@ func TestRulesBreakOnce(t *testing.T) {
 					Shape{Kind: ShapeRect, Points: [][2]float64{{2485 * lattice.DimerPitch, donorRowY - 0.3}, {1000, donorRowY + 0.3}}})
 				region(d, "donor-As").Shapes[0].Points[0] = [2]float64{2480 * lattice.DimerPitch, donorRowY + 20}
 			}},
+		{"window one row below the island", RuleWindowSpacing, []string{"donor-P", "sensor-island"}, "faces sites written by region \"sensor-island\" 1 row(s) away (row 1295",
+			func(d *Design) {
+				// The island's lowest row is 1295; a P window on row 1294
+				// under its middle has only one intact trough (about 0.4
+				// nm) between them.
+				region(d, "donor-P").Shapes[0].Points[0] = [2]float64{2604 * lattice.DimerPitch, 1294 * lattice.RowSpacing}
+			}},
 		{"FE fan too close to the island", RuleFEKeepOut, []string{"sensor-island", "source-fan"}, "keep at least 5 nm",
 			func(d *Design) {
 				// The 40 nm fan's round end now reaches y = 1010, 4.2 nm above the island.
@@ -79,18 +86,17 @@ func TestRulesBreakOnce(t *testing.T) {
 		{"pad beyond the field", RuleScanField, []string{"pad-source"}, "reaches outside the field",
 			func(d *Design) { region(d, "pad-source").Shapes[0].Points[1] = [2]float64{2050, 1940} }},
 		{"gate without its fan-out", RuleFloating, []string{"gate-island"}, "floating",
-			func(d *Design) {
-				v := &d.Variants[0]
-				for i, r := range v.Regions {
-					if r.Name == "gate-island-fan" {
-						v.Regions = append(v.Regions[:i], v.Regions[i+1:]...)
-						break
-					}
-				}
-			}},
-		{"tunnel gap of 6 rows", RuleTunnelGap, []string{"sensor-island", "source-lead"}, "4.61 nm (6.0 dimer rows) is narrower",
+			func(d *Design) { removeRegion(d, "gate-island-fan") }},
+		// A tunnel gap is no DC path: without its fan-out the drain lead
+		// reaches a pad only through the island's two tunnel gaps and
+		// the source lead, and is floating.
+		{"drain lead behind tunnel gaps only", RuleFloating, []string{"drain-lead"}, "only a tunnel gap links it towards a pad",
+			func(d *Design) { removeRegion(d, "drain-fan") }},
+		{"island without its tunnel gaps", RuleFloating, []string{"sensor-island"}, "device region is floating",
+			func(d *Design) { d.Variants[0].TunnelGaps = nil }},
+		{"tunnel gap of 6 rows", RuleTunnelGap, []string{"sensor-island", "source-lead"}, "4.61 nm (6.0 dimer rows across the rows) is narrower",
 			func(d *Design) { region(d, "source-lead").Shapes[0].Points[0][1] = 1315.5 * lattice.RowSpacing }},
-		{"tunnel gap of 20 rows", RuleTunnelGap, []string{"sensor-island", "source-lead"}, "15.36 nm (20.0 dimer rows) is wider",
+		{"tunnel gap of 20 rows", RuleTunnelGap, []string{"sensor-island", "source-lead"}, "15.36 nm (20.0 dimer rows across the rows) is wider",
 			func(d *Design) { region(d, "source-lead").Shapes[0].Points[0][1] = 1329.5 * lattice.RowSpacing }},
 		{"tunnel gap closed", RuleTunnelGap, []string{"sensor-island", "drain-lead"}, "no tunnel gap",
 			func(d *Design) { region(d, "drain-lead").Shapes[0].Points[1][1] = 1000 }},
@@ -117,6 +123,17 @@ func TestRulesBreakOnce(t *testing.T) {
 				t.Errorf("finding at %v, outside the field", f.AtNM)
 			}
 		})
+	}
+}
+
+// removeRegion drops the named region from the first variant.
+func removeRegion(d *Design, name string) {
+	v := &d.Variants[0]
+	for i, r := range v.Regions {
+		if r.Name == name {
+			v.Regions = append(v.Regions[:i], v.Regions[i+1:]...)
+			return
+		}
 	}
 }
 

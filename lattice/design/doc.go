@@ -3,7 +3,8 @@
 // format, and the design-rule checks run before planning.
 //
 // Parse and Load read a design file and report every problem with its
-// JSON path (a *ValidationError); Save writes one atomically. A Design
+// JSON path, line and column (a *jsonfile.Error wrapping ErrInvalid); Save
+// writes one atomically. A Design
 // answers the questions the planner and the GUI ask: Surface (its
 // lattice), Variant (by name, "" for the first), Templates (built-in P
 // and As windows merged with the file's), EffectiveRules (the design

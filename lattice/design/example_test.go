@@ -88,7 +88,7 @@ func ExampleCheck() {
 	}
 	fmt.Println("errors:", design.HasErrors(findings))
 	// Output:
-	// error   tunnel-gap     [sensor-island, source-lead]  at (1000.0, 1006.9) nm: tunnel gap 2.30 nm (3.0 dimer rows) is narrower than 5.38 nm
+	// error   tunnel-gap     [sensor-island, source-lead]  at (1000.0, 1006.9) nm: tunnel gap 2.30 nm (3.0 dimer rows across the rows) is narrower than 5.38 nm
 	// errors: true
 }
 
@@ -99,6 +99,17 @@ func ExampleParse() {
 			"shapes": [{"kind": "rect", "points_nm": [[0, 0], [NaN, 5]]}]}]}]}`))
 	fmt.Println(err)
 	// Output:
-	// broken.json: variants[0].regions[0].shapes[0].points_nm[1][0]: NaN is not a finite number
-	// broken.json: field.height_nm: -1 must be more than 0 and at most 10000 nm
+	// broken.json:4:55: variants[0].regions[0].shapes[0].points_nm[1][0]: NaN is not a finite number
+	// broken.json:2:43: field.height_nm: -1 must be more than 0 and at most 10000 nm
+}
+
+// A region's role and mode are spelled one way in the file and named
+// another way for users.
+func ExampleMode_Label() {
+	r := design.Region{Name: "pad-1", Role: design.RolePad, Mode: design.ModeFE}
+	fmt.Printf("file: role %q, mode %q\n", r.Role, r.Mode)
+	fmt.Printf("shown: %s, %s; in tables %s\n", r.Role.Name(), r.Mode.Label(), r.Mode.Abbrev())
+	// Output:
+	// file: role "pad", mode "fe"
+	// shown: contact pad, FE (field emission); in tables FE
 }

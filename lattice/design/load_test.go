@@ -8,6 +8,7 @@ import (
 	"strings"
 	"testing"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice"
 )
 
@@ -40,11 +41,11 @@ func TestParseRefuses(t *testing.T) {
 	}{
 		{"empty", ``, []string{"bad.json: the file ends before the design does"}},
 		{"truncated", minimal[:len(minimal)/2], []string{"bad.json: the file ends before the design does"}},
-		{"syntax", `{"format": "dimerpath-design",, }`, []string{"bad.json: line 1, column 31: not valid JSON"}},
+		{"syntax", `{"format": "dimerpath-design",, }`, []string{"bad.json:1:31: not valid JSON"}},
 		{"trailing data", minimal + ` {}`, []string{"more data after"}},
-		{"not an object", `[1, 2]`, []string{"bad.json: want an object, not a list"}},
+		{"not an object", `[1, 2]`, []string{"bad.json:1:1: want an object, not a list"}},
 		{"NaN point", strings.Replace(minimal, "[[50, 50], [120, 120]]", "[[50, 50], [NaN, 120]]", 1),
-			[]string{"bad.json: variants[0].regions[1].shapes[0].points_nm[1][0]: NaN is not a finite number"}},
+			[]string{"bad.json:6:110: variants[0].regions[1].shapes[0].points_nm[1][0]: NaN is not a finite number"}},
 		{"Infinity width", strings.Replace(minimal, `"width_nm": 4`, `"width_nm": -Infinity`, 1),
 			[]string{"variants[0].regions[1].shapes[0].width_nm: -Infinity is not a finite number"}},
 		{"1e400", strings.Replace(minimal, `"width_nm": 200`, `"width_nm": 1e400`, 1), []string{"field.width_nm: 1e400 is not a finite number"}},
@@ -71,9 +72,18 @@ func TestParseRefuses(t *testing.T) {
 			[]string{`variants[0].regions[0].shapes[0].template: "Sb" is not a template ("As", "P")`}},
 		{"huge array", strings.Replace(minimal, `{"kind": "rect", "points_nm": [[10, 10], [60, 60]]}`, `{"kind": "array", "array": {"of": {"kind": "site", "points_nm": [[1, 1]]}, "cols": 100000, "rows": 100000, "pitch_dimers": 1, "pitch_rows": 1}}`, 1),
 			[]string{"variants[0].regions[0].shapes[0].array: 100000 x 100000 = 10000000000 copies, more than the limit"}},
+		// Issue 16: a rectangle to 1e19 nm laid out as nothing and planned
+		// with exit status 0.
+		{"rect to 1e19 nm", strings.Replace(minimal, `[[10, 10], [60, 60]]`, `[[10, 10], [1e19, 60]]`, 1),
+			[]string{"bad.json:5:102: variants[0].regions[0].shapes[0].points_nm[1]: [1e+19, 60] lies beyond ±10000 nm, farther out than the largest field reaches"}},
+		{"terrace corner at 1e308 nm", strings.Replace(minimal, `"variants"`, `"terraces": [{"name": "t", "rows": "x", "boundary_nm": [[0, 0], [1e308, 0], [0, 5]]}], "variants"`, 1),
+			[]string{"terraces[0].boundary_nm[1]: [1e+308, 0] lies beyond ±10000 nm"}},
 		{"tunnel gap to nowhere", strings.Replace(minimal, `]}]
 }`, `], "tunnel_gaps": [{"a": "pad", "b": "island"}]}]
 }`, 1), []string{`variants[0].tunnel_gaps[0].b: "island" names no region of variant "A"`}},
+		{"tunnel gap declared twice", strings.Replace(minimal, `]}]
+}`, `], "tunnel_gaps": [{"a": "pad", "b": "lead"}, {"a": "lead", "b": "pad"}]}]
+}`, 1), []string{`variants[0].tunnel_gaps[1]: the gap between "lead" and "pad" is also declared as tunnel_gaps[0]`}},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -101,7 +111,7 @@ func TestParseReportsEveryProblem(t *testing.T) {
 		`[[50, 50], [120, 120]]`, `[[50, "x"], [120, 120]]`,
 	).Replace(minimal)
 	_, err := Parse("bad.json", []byte(in))
-	var ve *ValidationError
+	var ve *jsonfile.Error
 	if !errors.As(err, &ve) {
 		t.Fatalf("err = %v", err)
 	}

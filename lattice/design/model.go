@@ -29,6 +29,30 @@ type Design struct {
 	// given. Use the Templates method for the merged set.
 	WindowTemplates []lattice.WindowTemplate `json:"templates,omitempty"`
 	Variants        []Variant                `json:"variants"`
+	// References are chip layouts kept beside the design as an overlay:
+	// drawn on the lattice and printed on the plan's overview, never
+	// written (dimerpath import-gds --as reference).
+	References []Reference `json:"references,omitempty"`
+}
+
+// Reference is geometry imported from a mask layout (GDSII) and mapped
+// into the field, kept for orientation: the contact layer, registration
+// markers, another device. The polygons are stored, so the design does
+// not depend on the layout file; File, Layers and the chip frame say
+// where they came from.
+type Reference struct {
+	Name string `json:"name"`
+	// File is the layout file as it was given to the import.
+	File string `json:"file,omitempty"`
+	// Layers are the layers read, "L/D" or "L" (every data type).
+	Layers []string `json:"layers,omitempty"`
+	// ChipOffsetNM and ChipRotationDeg are the chip frame the import used
+	// (see lattice.ChipFrame): a field point p lies at offset + R·p on
+	// the chip.
+	ChipOffsetNM    [2]float64 `json:"chip_offset_nm"`
+	ChipRotationDeg float64    `json:"chip_rotation_deg,omitempty"`
+	// PolygonsNM are the layout's polygons in field nm.
+	PolygonsNM [][][2]float64 `json:"polygons_nm"`
 }
 
 // Field is the scan field, with its lower-left corner at the origin.
@@ -85,7 +109,8 @@ type TunnelGap struct {
 	MaxNM float64 `json:"max_nm,omitempty"`
 }
 
-// Role is what a region is for in the device.
+// Role is what a region is for in the device. Its value is its spelling
+// in design and plan files; Name gives its display name (names.go).
 type Role string
 
 const (
@@ -97,7 +122,11 @@ const (
 	RoleOther  Role = "other"  // marks, test lines
 )
 
-// Mode is the write mode asked for a region.
+// Mode is a write mode: the mode asked for a region (ModeAuto lets the
+// planner choose), the mode the planner gives a region, and the mode a
+// stroke is written in (ModeAP or ModeFE). Its value is its spelling in
+// design and plan files; Abbrev, Name, Adjective and Label give its
+// display names (names.go).
 type Mode string
 
 const (

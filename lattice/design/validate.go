@@ -3,12 +3,12 @@ package design
 import (
 	"fmt"
 	"math"
+	"strings"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice"
 )
 
-var knownRoles = []Role{RoleDevice, RoleGate, RoleLead, RolePad, RoleDonor, RoleOther}
-var knownModes = []Mode{ModeAuto, ModeAP, ModeFE, ModeHybrid}
 var knownKinds = []ShapeKind{ShapeSite, ShapeDimer, ShapeRect, ShapePolygon, ShapePolyline, ShapeWindow, ShapeArray}
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
@@ -113,6 +113,65 @@ func (d *Design) validate(ps *problems) {
 	for i := range d.Variants {
 		d.validateVariant(ps, i, templates, species, surf)
 	}
+	d.validateReferences(ps)
+}
+
+// MaxReferencePoints bounds the points of all references of a design
+// together: an overlay is for orientation, a few layers of a contact
+// mask, not a whole chip.
+const MaxReferencePoints = 1_000_000
+
+func (d *Design) validateReferences(ps *problems) {
+	total := 0
+	for i, r := range d.References {
+		path := fmt.Sprintf("references[%d]", i)
+		if r.Name == "" {
+			ps.add(path+".name", "missing")
+		}
+		for j := range i {
+			if r.Name != "" && d.References[j].Name == r.Name {
+				ps.add(path+".name", "%q is also the name of references[%d]", r.Name, j)
+			}
+		}
+		for k, l := range r.Layers {
+			if !validLayerSpec(l) {
+				ps.add(fmt.Sprintf("%s.layers[%d]", path, k), "%q is not a GDSII layer: want L or L/D, whole numbers 0 to 32767", l)
+			}
+		}
+		if !finite(r.ChipRotationDeg) {
+			ps.add(path+".chip_rotation_deg", "%g is not a finite angle", r.ChipRotationDeg)
+		}
+		for k, p := range r.PolygonsNM {
+			if len(p) < 3 {
+				ps.add(fmt.Sprintf("%s.polygons_nm[%d]", path, k), "has %d points; a polygon needs 3 or more", len(p))
+			}
+			total += len(p)
+		}
+		if total > MaxReferencePoints {
+			ps.add(path+".polygons_nm", "the references hold more than %d points, the limit: import fewer layers, or import them as a region", MaxReferencePoints)
+			return
+		}
+	}
+}
+
+// validLayerSpec reports whether s is "L" or "L/D" with whole numbers
+// 0 to 32767.
+func validLayerSpec(s string) bool {
+	num := func(v string) bool {
+		if v == "" || len(v) > 5 {
+			return false
+		}
+		n := 0
+		for _, c := range v {
+			if c < '0' || c > '9' {
+				return false
+			}
+			n = 10*n + int(c-'0')
+		}
+		return n <= 32767
+	}
+	l, dt, has := strings.Cut(s, "/")
+	return num(l) && (!has || num(dt))
 }
 
 func (d *Design) validateTerraces(ps *problems) bool {
@@ -172,8 +231,7 @@ func (d *Design) validateTerraces(ps *problems) bool {
 			ok = false
 		}
 		for k, p := range t.Boundary {
-			if !finite(p[0]) || !finite(p[1]) {
-				ps.add(fmt.Sprintf("%s.boundary_nm[%d]", path, k), "%v is not a finite point", p)
+			if !checkPoint(ps, fmt.Sprintf("%s.boundary_nm[%d]", path, k), p) {
 				ok = false
 			}
 		}
@@ -248,11 +306,11 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 		} else {
 			names[r.Name] = ri
 		}
-		if !contains(knownRoles, r.Role) {
-			ps.add(rp+".role", "%q is not a role (%s)", r.Role, listOf(knownRoles))
+		if !contains(Roles, r.Role) {
+			ps.add(rp+".role", "%q is not a role (%s)", r.Role, listOf(Roles))
 		}
-		if r.Mode != "" && !contains(knownModes, r.Mode) {
-			ps.add(rp+".mode", "%q is not a write mode (%s)", r.Mode, listOf(knownModes))
+		if r.Mode != "" && !contains(Modes, r.Mode) {
+			ps.add(rp+".mode", "%q is not a write mode (%s)", r.Mode, listOf(Modes))
 		}
 		if r.Species != "" && !species[r.Species] {
 			ps.add(rp+".species", "%q is the species of no window template", r.Species)
@@ -284,8 +342,15 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 	if copies > MaxArrayCopies {
 		ps.add(path, "its arrays hold %d copies together, more than the limit of %d", copies, MaxArrayCopies)
 	}
+	declared := make(map[[2]string]int, len(v.TunnelGaps)) // a gap's regions, in name order
 	for gi, g := range v.TunnelGaps {
 		gp := fmt.Sprintf("%s.tunnel_gaps[%d]", path, gi)
+		pair := [2]string{min(g.A, g.B), max(g.A, g.B)}
+		if j, dup := declared[pair]; dup {
+			ps.add(gp, "the gap between %q and %q is also declared as tunnel_gaps[%d]", g.A, g.B, j)
+		} else {
+			declared[pair] = gi
+		}
 		for _, end := range []struct{ field, name string }{{"a", g.A}, {"b", g.B}} {
 			if _, ok := names[end.name]; !ok {
 				ps.add(gp+"."+end.field, "%q names no region of variant %q", end.name, v.Name)
@@ -340,9 +405,7 @@ func validateShape(ps *problems, path string, sh *Shape, r *Region, templates Te
 		ps.add(path+".points_nm", "has %d points, more than the limit of %d", n, MaxPoints)
 	}
 	for k, p := range sh.Points {
-		if !finite(p[0]) || !finite(p[1]) {
-			ps.add(fmt.Sprintf("%s.points_nm[%d]", path, k), "%v is not a finite point", p)
-		}
+		checkPoint(ps, fmt.Sprintf("%s.points_nm[%d]", path, k), p)
 	}
 	if sh.Kind == ShapePolyline {
 		if !(sh.WidthNM > 0 && sh.WidthNM <= MaxFieldNM) {
@@ -407,4 +470,21 @@ func validateShape(ps *problems, path string, sh *Shape, r *Region, templates Te
 		return a.Cols * a.Rows
 	}
 	return 0
+}
+
+// checkPoint reports whether p is a finite point within reach of the
+// largest field (MaxFieldNM from the origin on either axis), recording a
+// problem at path if not. A coordinate beyond that (a rectangle to 1e19
+// nm) lays out as nothing on the lattice, so it is a typo to report,
+// not a shape to drop silently.
+func checkPoint(ps *problems, path string, p [2]float64) bool {
+	switch {
+	case !finite(p[0]) || !finite(p[1]):
+		ps.add(path, "%s is not a finite point", jsonfile.Quote(p))
+	case math.Abs(p[0]) > MaxFieldNM || math.Abs(p[1]) > MaxFieldNM:
+		ps.add(path, "%s lies beyond ±%g nm, farther out than the largest field reaches", jsonfile.Quote(p), MaxFieldNM)
+	default:
+		return true
+	}
+	return false
 }

@@ -16,14 +16,15 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
 // Region is one region of a fixture device with its lattice sites.
 type Region struct {
 	Name  string
-	Role  string
-	Mode  string // ap, fe or hybrid
+	Role  design.Role
+	Mode  design.Mode // ap, fe or hybrid
 	Sites *lattice.SiteSet
 }
 
@@ -34,17 +35,18 @@ type Device struct {
 	Plan    *planner.Plan
 }
 
-// Tip conditions of the fixtures (values in the ranges physics.md §3
-// gives; AP: Schmucker et al. 2012's +4 V, 2 nA, 2 mC/cm, hence 10 nm/s).
+// Tip conditions of the fixtures (AP: the +4 V, 2 nA, 2 mC/cm of
+// Schmucker et al., Nat. Commun. 3 (2012), hence 10 nm/s; FE: inside the
+// usual +7–10 V, 1–10 nA, from memory).
 var (
-	apConditions = planner.Conditions{Mode: planner.AP, Kind: planner.StrokeLine, BiasV: 4, CurrentA: 2e-9, LineDoseCPerCm: 2e-3,
+	apConditions = planner.Conditions{Mode: design.ModeAP, Kind: planner.StrokeLine, BiasV: 4, CurrentA: 2e-9, LineDoseCPerCm: 2e-3,
 		SpeedNMPerS: 10, LineWidthNM: 0.8, Passes: 2}
-	feConditions = planner.Conditions{Mode: planner.FE, Kind: planner.StrokeRaster, BiasV: 8, CurrentA: 5e-9, LineDoseCPerCm: 5e-5,
+	feConditions = planner.Conditions{Mode: design.ModeFE, Kind: planner.StrokeRaster, BiasV: 8, CurrentA: 5e-9, LineDoseCPerCm: 5e-5,
 		SpeedNMPerS: 1000, LineWidthNM: 4, Passes: 1, PitchNM: 3}
 )
 
 // dwellConditions are the AP conditions for parking on single sites.
-var dwellConditions = planner.Conditions{Mode: planner.AP, Kind: planner.StrokeDwell, BiasV: dwellBiasV, CurrentA: dwellCurrentA,
+var dwellConditions = planner.Conditions{Mode: design.ModeAP, Kind: planner.StrokeDwell, BiasV: dwellBiasV, CurrentA: dwellCurrentA,
 	Passes: 1, DwellS: dwellS, DwellCapS: 3 * dwellS}
 
 const (
@@ -84,7 +86,7 @@ func SET() *Device {
 		{Name: "F-NE", At: r2.Point{X: 116, Y: 76}}, {Name: "F-SE", At: r2.Point{X: 116, Y: 4}},
 	}
 
-	addRegion := func(name, role, mode, reason string) *lattice.SiteSet {
+	addRegion := func(name string, role design.Role, mode design.Mode, reason string) *lattice.SiteSet {
 		s := lattice.NewSiteSet()
 		d.Regions = append(d.Regions, Region{Name: name, Role: role, Mode: mode, Sites: s})
 		b.p.Modes = append(b.p.Modes, planner.RegionMode{Region: name, Role: role, Requested: "auto", Mode: mode, Reason: reason})
@@ -221,7 +223,7 @@ type builder struct {
 	p    *planner.Plan
 	t    float64
 	at   r2.Point
-	mode planner.WriteMode
+	mode design.Mode
 }
 
 func newBuilder(design, variant string, w, h float64) *builder {
@@ -249,7 +251,7 @@ func (b *builder) add(s planner.Stroke) int {
 
 func (b *builder) line(region string, path []r2.Point, sites int) int {
 	l := pathLength(path)
-	return b.add(planner.Stroke{Region: region, Mode: planner.AP, Kind: planner.StrokeLine, Path: path,
+	return b.add(planner.Stroke{Region: region, Mode: design.ModeAP, Kind: planner.StrokeLine, Path: path,
 		Passes: apConditions.Passes, LengthNM: l, DurationS: float64(apConditions.Passes) * l / apConditions.SpeedNMPerS,
 		Sites: sites, ToleranceNM: 0.2, Window: -1})
 }
@@ -260,7 +262,7 @@ func (b *builder) dwell(region string, at r2.Point, species, template string, pr
 	open := math.Pow(0.99, float64(sites))
 	b.p.Windows = append(b.p.Windows, planner.Window{Region: region, Species: species, Template: template,
 		At: at, Sites: sites, OpenProbability: open, Probability: prob * open})
-	return b.add(planner.Stroke{Region: region, Mode: planner.AP, Kind: planner.StrokeDwell, Path: []r2.Point{at},
+	return b.add(planner.Stroke{Region: region, Mode: design.ModeAP, Kind: planner.StrokeDwell, Path: []r2.Point{at},
 		Passes: 1, DurationS: dwellS, Sites: sites, ToleranceNM: 0.2, Window: len(b.p.Windows) - 1})
 }
 
@@ -278,7 +280,7 @@ func (b *builder) raster(region string, r r2.Rect) int {
 		k++
 	}
 	l := pathLength(path)
-	return b.add(planner.Stroke{Region: region, Mode: planner.FE, Kind: planner.StrokeRaster, Path: path,
+	return b.add(planner.Stroke{Region: region, Mode: design.ModeFE, Kind: planner.StrokeRaster, Path: path,
 		Passes: 1, LengthNM: l, DurationS: l / feConditions.SpeedNMPerS, Sites: int(r.Size().X * r.Size().Y * lattice.HDensity),
 		ToleranceNM: 2, Window: -1})
 }
@@ -302,7 +304,7 @@ func (b *builder) pad(region string, set *lattice.SiteSet, surf *lattice.Surface
 	in := r.ExpandedByMargin(-feConditions.LineWidthNM / 2)
 	ring := []r2.Point{in.Lo(), {X: in.X.Hi, Y: in.Y.Lo}, in.Hi(), {X: in.X.Lo, Y: in.Y.Hi}, in.Lo()}
 	l := pathLength(ring)
-	o := b.add(planner.Stroke{Region: region, Mode: planner.FE, Kind: planner.StrokeOutline, Path: ring,
+	o := b.add(planner.Stroke{Region: region, Mode: design.ModeFE, Kind: planner.StrokeOutline, Path: ring,
 		Passes: 1, LengthNM: l, DurationS: l / feConditions.SpeedNMPerS, ToleranceNM: 2, Window: -1})
 	return []int{id, o}
 }
@@ -325,7 +327,7 @@ func (b *builder) act(a planner.Action) {
 	case planner.ActDwell:
 		b.p.Breakdown.DwellS += a.DurationS
 	case planner.ActWrite:
-		if a.Mode == planner.FE {
+		if a.Mode == design.ModeFE {
 			b.p.Breakdown.FEWriteS += a.DurationS
 		} else {
 			b.p.Breakdown.APWriteS += a.DurationS
@@ -360,13 +362,13 @@ func (b *builder) segment(ids []int) {
 	for _, id := range ids {
 		st := &b.p.Strokes[id]
 		st.Segment = seg
-		if st.Mode == planner.AP {
+		if st.Mode == design.ModeAP {
 			s.BudgetS = min(s.BudgetS, apBudgetS)
 		} else {
 			s.BudgetS = min(s.BudgetS, feBudgetS)
 		}
 		cond := apConditions
-		if st.Mode == planner.FE {
+		if st.Mode == design.ModeFE {
 			cond = feConditions
 		}
 		if st.Mode != b.mode {

@@ -1,0 +1,170 @@
+package editor
+
+import (
+	"fmt"
+	"slices"
+	"strings"
+
+	"dimerpath/lattice"
+	"dimerpath/lattice/design"
+)
+
+// uniqueRegionName returns base, or base with a number, not yet used in
+// the current variant.
+func (s *Session) uniqueRegionName(base string) string {
+	used := map[string]bool{}
+	for _, r := range s.Variant().Regions {
+		used[r.Name] = true
+	}
+	if !used[base] {
+		return base
+	}
+	for k := 2; ; k++ {
+		if n := fmt.Sprintf("%s %d", base, k); !used[n] {
+			return n
+		}
+	}
+}
+
+// AddRegion appends a region with the given name (made unique) and
+// role, selects it and returns its index.
+func (s *Session) AddRegion(name string, role design.Role) int {
+	i := s.addRegion(name, role)
+	s.commit("add region "+s.Variant().Regions[i].Name, "", ChangeRegions|ChangeSelection|ChangeSites)
+	return i
+}
+
+// addRegion appends a region without committing.
+func (s *Session) addRegion(name string, role design.Role) int {
+	if strings.TrimSpace(name) == "" {
+		name = "region"
+	}
+	r := design.Region{Name: s.uniqueRegionName(name), Role: role, Mode: design.ModeAuto}
+	v := s.Variant()
+	v.Regions = append(v.Regions, r)
+	s.ids[s.variant] = append(s.ids[s.variant], s.newID())
+	i := len(v.Regions) - 1
+	s.caches[s.ids[s.variant][i]] = s.newCache(lattice.NewSiteSet())
+	s.sel = []int{i}
+	s.shapeSel = nil
+	return i
+}
+
+// DeleteRegions removes the given regions of the current variant.
+func (s *Session) DeleteRegions(regions ...int) {
+	v := s.Variant()
+	var names []string
+	del := map[int]bool{}
+	for _, i := range regions {
+		if i >= 0 && i < len(v.Regions) && !del[i] {
+			del[i] = true
+			names = append(names, v.Regions[i].Name)
+		}
+	}
+	if len(del) == 0 {
+		return
+	}
+	var keep []design.Region
+	var ids []regionID
+	for i, r := range v.Regions {
+		if !del[i] {
+			keep = append(keep, r)
+			ids = append(ids, s.ids[s.variant][i])
+		}
+	}
+	v.Regions, s.ids[s.variant] = keep, ids
+	// A tunnel gap to a deleted region goes with it.
+	v.TunnelGaps = slices.DeleteFunc(slices.Clone(v.TunnelGaps), func(g design.TunnelGap) bool {
+		return slices.Contains(names, g.A) || slices.Contains(names, g.B)
+	})
+	s.sel = nil
+	s.shapeSel = nil
+	label := "delete region " + names[0]
+	if len(names) > 1 {
+		label = fmt.Sprintf("delete %d regions", len(names))
+	}
+	s.commit(label, "", ChangeRegions|ChangeSelection|ChangeSites)
+}
+
+// RenameRegion renames region i of the current variant; the design's
+// rules refuse an empty name or one another region of the variant has.
+// The variant's tunnel gaps follow the rename.
+func (s *Session) RenameRegion(i int, name string) error {
+	v := s.Variant()
+	if i < 0 || i >= len(v.Regions) {
+		return fmt.Errorf("no region %d", i)
+	}
+	name = strings.TrimSpace(name)
+	old := v.Regions[i].Name
+	if name == old {
+		return nil
+	}
+	err := s.validEdit(fmt.Sprintf("rename region %q to %q", old, name), func() func() {
+		gaps := v.TunnelGaps
+		v.Regions[i].Name = name
+		v.TunnelGaps = slices.Clone(gaps)
+		for g := range v.TunnelGaps {
+			if v.TunnelGaps[g].A == old {
+				v.TunnelGaps[g].A = name
+			}
+			if v.TunnelGaps[g].B == old {
+				v.TunnelGaps[g].B = name
+			}
+		}
+		return func() { v.Regions[i].Name, v.TunnelGaps = old, gaps }
+	})
+	if err != nil {
+		return err
+	}
+	s.touch(s.variant, i)
+	s.commit("rename region", fmt.Sprintf("rename-region-%d-%d", s.variant, i), ChangeRegions)
+	return nil
+}
+
+// SetRegionRole sets region i's role in the device.
+func (s *Session) SetRegionRole(i int, role design.Role) error {
+	return s.setRegion(i, "role", func(r *design.Region) { r.Role = role })
+}
+
+// SetRegionMode sets the write mode asked for region i.
+func (s *Session) SetRegionMode(i int, mode design.Mode) error {
+	return s.setRegion(i, "mode", func(r *design.Region) { r.Mode = mode })
+}
+
+// SetRegionSpecies sets region i's dopant species: that of a window
+// template of the design, or "" for none.
+func (s *Session) SetRegionSpecies(i int, species string) error {
+	return s.setRegion(i, "species", func(r *design.Region) { r.Species = species })
+}
+
+// SetRegionTolerance sets region i's placement tolerance in nm (0 takes
+// the mode's default); the design's rules refuse a negative, non-finite
+// or larger than field-sized one.
+func (s *Session) SetRegionTolerance(i int, nm float64) error {
+	return s.setRegion(i, "tolerance", func(r *design.Region) { r.ToleranceNM = nm })
+}
+
+// setRegion applies f to a copy of region i of the current variant and
+// keeps the result if it differs and the design's rules accept it.
+func (s *Session) setRegion(i int, what string, f func(*design.Region)) error {
+	v := s.Variant()
+	if i < 0 || i >= len(v.Regions) {
+		return fmt.Errorf("no region %d", i)
+	}
+	old := v.Regions[i]
+	r := old
+	f(&r)
+	if r.Role == old.Role && r.Mode == old.Mode && r.Species == old.Species && r.ToleranceNM == old.ToleranceNM {
+		return nil
+	}
+	err := s.validEdit("set "+what+" of "+r.Name, func() func() {
+		v.Regions[i] = r
+		return func() { v.Regions[i] = old }
+	})
+	if err != nil {
+		return err
+	}
+	s.touch(s.variant, i)
+	s.commit("set "+what+" of "+r.Name, fmt.Sprintf("%s-%d-%d", what, s.variant, i), ChangeRegions)
+	return nil
+}

@@ -1,0 +1,55 @@
+package editor
+
+import (
+	"github.com/golang/geo/r2"
+
+	"dimerpath/app/render"
+)
+
+// SceneOptions choose what the lattice view overlays.
+type SceneOptions struct {
+	Route    bool // the plan's route, when the current variant has one
+	Findings bool // design-rule findings
+}
+
+// Scene returns what the lattice view draws for the current variant.
+func (s *Session) Scene(o SceneOptions) *render.Scene {
+	sc := &render.Scene{Surface: s.surf}
+	sel := map[int]bool{}
+	for _, i := range s.sel {
+		sel[i] = true
+	}
+	for i := range s.Variant().Regions {
+		sc.Layers = append(sc.Layers, render.Layer{
+			Sites:    s.RegionSites(i),
+			Color:    render.RegionColor(i),
+			Bounds:   s.RegionBounds(i),
+			Selected: sel[i],
+		})
+		if sel[i] {
+			if b := s.RegionBounds(i); !b.IsEmpty() {
+				sc.Selected = append(sc.Selected, b)
+			}
+		}
+	}
+	if b := s.SelectedShapeBounds(); !b.IsEmpty() {
+		sc.SelectedShape = &b
+	}
+	for _, f := range s.d.Fiducials {
+		sc.Fiducials = append(sc.Fiducials, r2.Point{X: f.AtNM[0], Y: f.AtNM[1]})
+	}
+	sc.References = s.referenceOverlays()
+	if o.Route {
+		if p, _ := s.Plan(); p != nil {
+			sc.Route = render.RouteOf(p)
+			sc.DimLayers = true
+		}
+	}
+	if o.Findings {
+		for i, f := range s.findings {
+			sc.Marks = append(sc.Marks, render.Mark{At: f.At, Error: f.Error, Selected: i == s.chosen})
+		}
+	}
+	sc.Preview = s.Preview()
+	return sc
+}

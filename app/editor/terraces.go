@@ -1,0 +1,161 @@
+package editor
+
+import (
+	"errors"
+	"fmt"
+	"slices"
+	"strings"
+
+	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice"
+	"dimerpath/lattice/design"
+)
+
+// terracesChanged re-makes the surface after an edit of the field or the
+// terraces; every region is rasterised again.
+func (s *Session) terracesChanged() error {
+	surf, err := surfaceOf(s.d)
+	if err != nil {
+		return err
+	}
+	s.surf, s.surfErr = surf, nil
+	s.shapeSel = nil
+	for v := range s.ids {
+		for i := range s.ids[v] {
+			s.ids[v][i] = s.newID()
+		}
+	}
+	s.pruneCaches()
+	s.ensureCaches()
+	return nil
+}
+
+// editTerraces applies f to a copy of the terraces and keeps the result
+// only if the design's rules accept it (names, rows, offsets, outlines,
+// and every painted site still on the surface) and it makes a surface.
+func (s *Session) editTerraces(label, key string, f func(ts []design.Terrace) []design.Terrace) error {
+	old := s.d.Terraces
+	cp := slices.Clone(old)
+	for i := range cp {
+		cp[i].Boundary = slices.Clone(cp[i].Boundary)
+	}
+	err := s.validEdit(label, func() func() {
+		s.d.Terraces = f(cp)
+		return func() { s.d.Terraces = old }
+	})
+	if err != nil {
+		return err
+	}
+	if err := s.terracesChanged(); err != nil {
+		s.d.Terraces = old
+		s.rebuildSurface()
+		return err
+	}
+	s.commit(label, key, ChangeTerraces|ChangeSites|ChangeRegions)
+	return nil
+}
+
+// AddTerrace adds a terrace bounded by poly (nm, 3 or more vertices),
+// one single-height step from the terrace under the first vertex: its
+// rows turn by 90° and its lattice shifts (design.Terrace.StepFrom).
+func (s *Session) AddTerrace(poly []r2.Point) (int, error) {
+	if len(poly) < 3 {
+		return -1, errors.New("a terrace outline needs at least 3 points")
+	}
+	from := s.surf.TerraceAt(poly[0])
+	if from < 0 {
+		return -1, fmt.Errorf("the first point (%.1f, %.1f) nm of a terrace outline must lie on a terrace of the field", poly[0].X, poly[0].Y)
+	}
+	used := map[string]bool{}
+	for _, t := range s.d.Terraces {
+		used[t.Name] = true
+	}
+	name := ""
+	for k := len(s.d.Terraces); ; k++ {
+		if name = fmt.Sprintf("T%d", k); !used[name] {
+			break
+		}
+	}
+	b := make([][2]float64, len(poly))
+	for i, p := range poly {
+		b[i] = [2]float64{round2(p.X), round2(p.Y)}
+	}
+	base := s.surf.Terraces[from].Name
+	err := s.editTerraces("add terrace "+name, "", func(ts []design.Terrace) []design.Terrace {
+		if len(ts) == 0 {
+			// A design without terraces is one terrace with rows along
+			// x; write it out so the new one can step from it.
+			ts = []design.Terrace{{Name: base, Rows: "x"}}
+		}
+		// Appended, so painted sites keep their terrace indices. The
+		// first bounded terrace holding a point wins, so an outline drawn
+		// inside another bounded terrace stays under it.
+		return append(ts, design.Terrace{Name: name, StepFrom: base, Boundary: b})
+	})
+	if err != nil {
+		return -1, err
+	}
+	return len(s.d.Terraces) - 1, nil
+}
+
+// SetTerrace changes terrace i's name, row direction ("x" or "y") and
+// lattice offset (nm). A terrace that steps from another takes its rows
+// from it; asking for other rows makes it stand on its own. The design's
+// rules refuse an empty or used name, rows other than x or y, an offset
+// that is not finite, and a change that takes painted sites off the
+// surface.
+func (s *Session) SetTerrace(i int, name, rows string, offset r2.Point) error {
+	if i < 0 || i >= len(s.d.Terraces) {
+		return fmt.Errorf("no terrace %d", i)
+	}
+	name = strings.TrimSpace(name)
+	t := s.d.Terraces[i]
+	curRows := s.surf.Terraces[i].Rows.String()
+	if t.Name == name && curRows == rows && t.OffsetNM == [2]float64{offset.X, offset.Y} {
+		return nil
+	}
+	old := t.Name
+	return s.editTerraces("edit terrace "+name, fmt.Sprintf("terrace-%d", i), func(ts []design.Terrace) []design.Terrace {
+		if ts[i].StepFrom != "" && rows != curRows {
+			ts[i].StepFrom = ""
+		}
+		if ts[i].StepFrom == "" {
+			ts[i].Rows = rows
+		}
+		ts[i].Name, ts[i].OffsetNM = name, [2]float64{offset.X, offset.Y}
+		for k := range ts {
+			if ts[k].StepFrom == old {
+				ts[k].StepFrom = name
+			}
+		}
+		return ts
+	})
+}
+
+// DeleteTerrace removes terrace i. A terrace that holds painted sites of
+// any region cannot be deleted (the sites' addresses would be lost), nor
+// the last terrace.
+func (s *Session) DeleteTerrace(i int) error {
+	if i < 0 || i >= len(s.d.Terraces) {
+		return fmt.Errorf("no terrace %d", i)
+	}
+	if len(s.d.Terraces) == 1 {
+		return errors.New("a design keeps at least one terrace")
+	}
+	for _, v := range s.d.Variants {
+		for _, r := range v.Regions {
+			for _, set := range []*lattice.SiteSet{r.Painted, r.Erased} {
+				for t := i; set != nil && t < set.TerraceCount(); t++ {
+					if set.CountTerrace(t) > 0 {
+						return fmt.Errorf("terrace %s: region %q of variant %q has painted sites on it or a later terrace; erase them first", s.d.Terraces[i].Name, r.Name, v.Name)
+					}
+				}
+			}
+		}
+	}
+	name := s.d.Terraces[i].Name
+	return s.editTerraces("delete terrace "+name, "", func(ts []design.Terrace) []design.Terrace {
+		return slices.Delete(ts, i, i+1)
+	})
+}

@@ -1,0 +1,140 @@
+package render
+
+import (
+	"image/color"
+
+	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice"
+	"dimerpath/lattice/design"
+	"dimerpath/planner"
+)
+
+// Scene is what one frame of the lattice view shows. The renderer only
+// reads it. Layers and overlays are prepared by the editor state when the
+// design, plan or selection change, not per frame.
+type Scene struct {
+	Surface *lattice.Surface
+	// Layers are the regions of the current variant, bottom first: where
+	// two overlap, the one with more sites in a pixel colours it.
+	Layers []Layer
+	// DimLayers mutes the region colours so that a route drawn over them
+	// stands out.
+	DimLayers bool
+	Route     *RouteOverlay
+	Fiducials []r2.Point
+	Marks     []Mark
+	Preview   *Preview
+	// Selected outlines, in field nm.
+	Selected []r2.Rect
+	// SelectedShape is the extent of the selected shape (nm), drawn with
+	// corner handles, or nil.
+	SelectedShape *r2.Rect
+	// References are the design's reference overlays (imported chip
+	// layouts), polygons in field nm, drawn as dashed outlines.
+	References []Reference
+}
+
+// Reference is one reference overlay: its polygons and their extent.
+type Reference struct {
+	Polygons [][]r2.Point
+	Bounds   []r2.Rect // of each polygon, so the view skips those out of sight
+}
+
+// Layer is one region's sites as the view draws them.
+type Layer struct {
+	Sites *lattice.SiteSet
+	Color color.NRGBA
+	// Bounds is the field rectangle (nm) holding every site of Sites; the
+	// renderer skips the pixels outside it.
+	Bounds   r2.Rect
+	Selected bool
+}
+
+// Mark is a design-rule finding drawn on the view.
+type Mark struct {
+	At       r2.Point // the position the finding names, field nm
+	Error    bool     // error (red) or warning (amber)
+	Selected bool
+}
+
+// Preview is a tool's shape while it is being drawn, in field nm.
+type Preview struct {
+	Points  []r2.Point
+	Closed  bool    // a polygon rather than a polyline
+	WidthNM float64 // a line's width; 0 draws the centre line only
+	Rect    bool    // Points[0] and Points[1] are opposite corners
+	// BrushNM, when > 0, draws a circle of this radius at Points[0].
+	BrushNM float64
+}
+
+// RouteOverlay is a plan's route reduced to what the view draws.
+type RouteOverlay struct {
+	Strokes []RouteStroke
+	Moves   [][2]r2.Point
+	// Registrations are the fiducial positions segments register on.
+	Registrations []r2.Point
+}
+
+// RouteStroke is one written stroke: a path of a given width, or a dwell
+// point when Path has one point.
+type RouteStroke struct {
+	Path    []r2.Point
+	WidthNM float64
+	Segment int
+	Bounds  r2.Rect
+}
+
+// RouteOf reduces a plan to the route overlay: strokes coloured by
+// segment and as wide as their mode's line, idle moves, and the
+// fiducials segments register on.
+func RouteOf(p *planner.Plan) *RouteOverlay {
+	width := map[design.Mode]float64{}
+	raster := map[design.Mode]float64{}
+	for _, c := range p.Conditions {
+		// A mode may be listed more than once (AP lines and AP dwells);
+		// lines are drawn as wide as the widest.
+		width[c.Mode] = max(width[c.Mode], c.LineWidthNM)
+		// Raster lines are drawn narrower than written, at most 60 % of
+		// their pitch, so the gaps show the raster's direction instead of
+		// a solid block hiding the region.
+		if c.PitchNM > 0 {
+			raster[c.Mode] = min(c.LineWidthNM, 0.6*c.PitchNM)
+		} else if _, ok := raster[c.Mode]; !ok {
+			raster[c.Mode] = c.LineWidthNM
+		}
+	}
+	rt := &RouteOverlay{}
+	for _, st := range p.Strokes {
+		if len(st.Path) == 0 {
+			continue
+		}
+		b := r2.EmptyRect()
+		for _, q := range st.Path {
+			b = b.AddPoint(q)
+		}
+		w := width[st.Mode]
+		switch {
+		case st.Kind == planner.StrokeRaster:
+			w = raster[st.Mode]
+		case st.Mode == design.ModeAP:
+			// AP lines follow dimer rows; drawn at most a row wide they
+			// do not overlap their neighbours.
+			w = min(w, 0.9*lattice.RowSpacing)
+		}
+		rt.Strokes = append(rt.Strokes, RouteStroke{Path: st.Path, WidthNM: w, Segment: st.Segment, Bounds: b})
+	}
+	for _, a := range p.Actions {
+		if a.Kind == planner.ActMove && a.From != a.To {
+			rt.Moves = append(rt.Moves, [2]r2.Point{a.From, a.To})
+		}
+	}
+	seen := map[r2.Point]bool{}
+	for _, sg := range p.Segments {
+		if !seen[sg.FiducialAt] {
+			seen[sg.FiducialAt] = true
+			rt.Registrations = append(rt.Registrations, sg.FiducialAt)
+		}
+	}
+	return rt
+}

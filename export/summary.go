@@ -1,0 +1,114 @@
+package export
+
+import (
+	"io"
+
+	"dimerpath/internal/jsonfile"
+	"dimerpath/planner"
+)
+
+// The plan summary is what "dimerpath plan --json" prints: a digest of
+// the plan for scripts, in the plan file's field names (see planFile),
+// with the per-stroke and per-action detail left to the plan file.
+
+type planSummary struct {
+	Design    string                 `json:"design"`
+	Variant   string                 `json:"variant"`
+	Profile   string                 `json:"profile"`
+	Seed      int64                  `json:"seed"`
+	Caution   string                 `json:"caution"`
+	TotalS    float64                `json:"total_s"`
+	Breakdown breakdownJSON          `json:"breakdown"`
+	P10S      float64                `json:"p10_s"`
+	P50S      float64                `json:"p50_s"`
+	P90S      float64                `json:"p90_s"`
+	FloorS    float64                `json:"floor_s"`
+	ByHandS   float64                `json:"by_hand_s"`
+	Strokes   int                    `json:"strokes"`
+	Segments  []segmentSummary       `json:"segments"`
+	Windows   []windowSummary        `json:"windows"`
+	YieldAll  float64                `json:"yield_all"`
+	Yield     yieldSummary           `json:"yield"`
+	Modes     map[string]modeSummary `json:"modes"`
+	Coverage  coverageSummary        `json:"coverage"`
+	Warnings  []string               `json:"warnings"`
+}
+
+type segmentSummary struct {
+	Index    int     `json:"index"`
+	Fiducial string  `json:"fiducial"`
+	StartS   float64 `json:"start_s"`
+	EndS     float64 `json:"end_s"`
+	BudgetS  float64 `json:"budget_s"`
+	Strokes  []int   `json:"strokes"`
+}
+
+type windowSummary struct {
+	Region      string  `json:"region"`
+	Species     string  `json:"species"`
+	Template    string  `json:"template"`
+	AtNM        xy      `json:"at_nm"`
+	Probability float64 `json:"probability"`
+}
+
+type yieldSummary struct {
+	Windows           int      `json:"windows"`
+	All               float64  `json:"all"`
+	Log10All          *float64 `json:"log10_all"` // null for -Inf, as in the plan file
+	MeanGood          float64  `json:"mean_good"`
+	SDGood            float64  `json:"sd_good"`
+	DevicesPerPerfect float64  `json:"devices_per_perfect"`
+}
+
+type modeSummary struct {
+	Requested string `json:"requested"`
+	Mode      string `json:"mode"`
+	Reason    string `json:"reason"`
+}
+
+type coverageSummary struct {
+	OK          bool     `json:"ok"`
+	Sites       int      `json:"sites"`
+	Uncovered   int      `json:"uncovered"`
+	Overcleared int      `json:"overcleared"`
+	Issues      []string `json:"issues,omitempty"`
+}
+
+// WritePlanSummary writes the digest of p that "dimerpath plan --json"
+// prints, indented one field a line (jsonfile.Indented): totals, the
+// breakdown, the spread, segments, windows, yield, each region's mode
+// and why, coverage and warnings, in the plan file's field names. It
+// refuses a plan checkPlan refuses.
+func WritePlanSummary(w io.Writer, p *planner.Plan) error {
+	if err := checkPlan(p); err != nil {
+		return err
+	}
+	s := planSummary{
+		Design: p.Design, Variant: p.Variant, Profile: p.Profile, Seed: p.Seed, Caution: planner.Caution,
+		TotalS: p.TotalS, Breakdown: breakdownOf(p.Breakdown), P10S: p.P10S, P50S: p.P50S, P90S: p.P90S,
+		FloorS: p.FloorS, ByHandS: p.ByHandS, Strokes: len(p.Strokes),
+		Segments: []segmentSummary{}, Windows: []windowSummary{},
+		YieldAll: p.Yield.All,
+		Yield: yieldSummary{Windows: p.Yield.Windows, All: p.Yield.All, Log10All: log10JSON(p.Yield.Log10All), MeanGood: p.Yield.MeanGood,
+			SDGood: p.Yield.SDGood, DevicesPerPerfect: p.Yield.DevicesPerPerfect},
+		Modes: map[string]modeSummary{},
+		Coverage: coverageSummary{OK: p.Coverage.OK, Sites: p.Coverage.Sites, Uncovered: p.Coverage.Uncovered,
+			Overcleared: p.Coverage.Overcleared, Issues: p.Coverage.Issues},
+		Warnings: nonNil(p.Warnings),
+	}
+	for _, g := range p.Segments {
+		s.Segments = append(s.Segments, segmentSummary{Index: g.Index, Fiducial: g.Fiducial, StartS: g.StartS, EndS: g.EndS, BudgetS: g.BudgetS, Strokes: g.Strokes})
+	}
+	for _, win := range p.Windows {
+		s.Windows = append(s.Windows, windowSummary{Region: win.Region, Species: win.Species, Template: win.Template, AtNM: xyOf(win.At), Probability: win.Probability})
+	}
+	for _, m := range p.Modes {
+		s.Modes[m.Region] = modeSummary{Requested: string(m.Requested), Mode: string(m.Mode), Reason: m.Reason}
+	}
+	data, err := jsonfile.Marshal(s, jsonfile.Indented)
+	if err != nil {
+		return err
+	}
+	_, err = w.Write(data)
+	return err
+}
