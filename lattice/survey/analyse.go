@@ -2,15 +2,14 @@ package survey
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"math"
 	"math/cmplx"
+	"runtime"
 	"slices"
 
 	"github.com/golang/geo/r2"
 
-	"dimerpath/internal/edt"
 	"dimerpath/lattice"
 )
 
@@ -215,21 +214,12 @@ func Analyse(ctx context.Context, t *Topograph, opt Options) (*Analysis, error) 
 		return nil, err
 	}
 	progress("calibrating on the lattice", 0.1)
-	cal, b, err := calibrate(g, an.NominalNMPerPx)
+	meas, err := measure(g, nil, an.NominalNMPerPx)
 	if err != nil {
 		return fail(err)
 	}
-	if an.NominalNMPerPx[0] > 0 {
-		for i := range 2 {
-			if r := cal.ScaleNMPerPx[i] / an.NominalNMPerPx[i]; r < 0.7 || r > 1.43 {
-				an.Notes = append(an.Notes, fmt.Sprintf("the measured scale differs from the nominal by %+.0f %% in %c: check the size given", 100*(r-1), "xy"[i]))
-			}
-		}
-	}
-	an.Calibration = cal
-	if cal.Isotropic {
-		an.Notes = append(an.Notes, "only one lattice direction is resolved (one terrace, dimers not resolved): the scale is taken equal in x and y, without skew")
-	}
+	b := meas.b
+	cal := calibrationFromBasis(b)
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -239,8 +229,8 @@ func Analyse(ctx context.Context, t *Topograph, opt Options) (*Analysis, error) 
 	rowPx := lattice.RowSpacing / meanPx
 	segSigma := 1.2 * rowPx
 	modelSigma := 2.5 * rowPx
-	p := padZero(g, int(math.Ceil(4*modelSigma)))
-	spec := forward2D(p.v, p.w, p.h)
+	p := padFor(g.w, g.h, int(math.Ceil(4*modelSigma)))
+	spec := forwardRows(p.w, p.h, p.rows(g, nil))
 	spec.dropLineOffsets()
 	pxArea := cal.ScaleNMPerPx[0] * cal.ScaleNMPerPx[1]
 	sg := segment(spec, p, b, segSigma, minArea/pxArea)
@@ -255,18 +245,17 @@ func Analyse(ctx context.Context, t *Topograph, opt Options) (*Analysis, error) 
 	// terraces on their sides.
 	comp := pixelTerraces(sg, g.w, g.h)
 	steps := stepLines(sg, cal.Affine)
-	stepDist := distanceToLines(steps, g.w, g.h, cal.ScaleNMPerPx)
+	stepDist := distanceToLines(steps, g.w, g.h, cal.Affine)
 	if len(steps) > 0 {
 		// The lattice is blurred away (its row period is damped 200-fold
 		// by a Gaussian of SD 0.4 nm); the blurred step keeps its middle.
 		hf := terraceHeights(g, g, comp, len(sg.comps), stepDist)
-		y := &grid{w: g.w, h: g.h, v: gaussBlur(g.v, g.w, g.h, 0.4/meanPx)}
-		for i := range y.v {
-			y.v[i] -= hf.plane(i%g.w, i/g.w)
-		}
-		refineSteps(steps, y, hf.offset, cal.Affine, 0.6)
+		blurred := &grid{w: g.w, h: g.h, v: gaussBlur(g.v, g.w, g.h, 0.4/meanPx)}
+		refineSteps(steps, heights{blurred, g.w, g.h, hf.plane}, hf.offset, cal.Affine, 0.6)
+		blurred = nil
 		assignNearSteps(comp, steps, stepDist, g.w, g.h, 1.5)
-		stepDist = distanceToLines(steps, g.w, g.h, cal.ScaleNMPerPx)
+		stepDist = distanceToLines(steps, g.w, g.h, cal.Affine)
+		release(g)
 	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
@@ -276,79 +265,90 @@ func Analyse(ctx context.Context, t *Topograph, opt Options) (*Analysis, error) 
 	kindOf := make([]bool, len(comp))
 	kinds := 0
 	for i, c := range comp {
-		k := sg.comps[c].kind
-		kindOf[i] = k == 1
-		kinds |= 1 << k
+		kk := sg.comps[c].kind
+		kindOf[i] = kk == 1
+		kinds |= 1 << kk
 	}
-	model := latticeModel(p, spec, b, kindOf, kinds, modelSigma)
-	p, spec, kindOf = nil, nil, nil
-	r := newGrid(g.w, g.h)
-	copy(r.v, g.v)
-	for _, m := range model {
-		for i, v := range m {
-			r.v[i] -= v
-		}
+	model := latticeModel(g, p, spec, b, kindOf, kinds, modelSigma, nil)
+	spec, kindOf = nil, nil
+	// The lattice's phase on each terrace, from the model; then the model's
+	// array becomes the residual (at 4096 x 4096 pixels each image is
+	// 128 MiB).
+	phases := make([]phase, len(sg.comps))
+	for c := range sg.comps {
+		kind := sg.comps[c].kind
+		phases[c] = dimerPhase(comp, int32(c), model, g.w, b, kind, cal.DimersResolved[kind])
 	}
-	heights := terraceHeights(g, r, comp, len(sg.comps), stepDist)
+	r := &grid{w: g.w, h: g.h, v: model}
+	for i, v := range g.v {
+		r.v[i] = v - r.v[i]
+	}
+	model = nil
+	release(g)
+	progress("levelling the terraces", 0.65)
+	hf := terraceHeights(g, r, comp, len(sg.comps), stepDist)
 	// Scan-line offsets, fitted with the terraces' heights, once the
 	// lattice and the plane are out.
-	lev := newGrid(g.w, g.h)
-	for i := range lev.v {
-		lev.v[i] = r.v[i] - heights.plane(i%g.w, i/g.w)
-	}
-	off, _ := lineOffsets(lev, comp, len(sg.comps), stepDist)
-	lev = nil
+	off, _ := lineOffsets(heights{r, g.w, g.h, hf.plane}, comp, len(sg.comps), stepDist)
 	for j, o := range off {
 		for i := 0; i < g.w; i++ {
 			g.v[j*g.w+i] -= o
 			r.v[j*g.w+i] -= o
 		}
 	}
-	heights = terraceHeights(g, r, comp, len(sg.comps), stepDist)
+	hf = terraceHeights(g, r, comp, len(sg.comps), stepDist)
+	progress("placing the step edges", 0.7)
 	// With the lattice and the scan lines' offsets out, the edges are
 	// placed again, now to about a pixel.
 	if len(steps) > 0 {
-		y := newGrid(g.w, g.h)
-		for i := range y.v {
-			y.v[i] = r.v[i] - heights.plane(i%g.w, i/g.w)
-		}
-		old := stepDist
-		refineSteps(steps, y, heights.offset, cal.Affine, 0.3)
-		stepDist = distanceToLines(steps, g.w, g.h, cal.ScaleNMPerPx)
-		near := make([]float64, len(old))
-		for i := range near {
-			near[i] = math.Min(old[i], stepDist[i])
-		}
-		assignNearSteps(comp, steps, near, g.w, g.h, 1.5)
-		heights = terraceHeights(g, r, comp, len(sg.comps), stepDist)
+		refineSteps(steps, heights{r, g.w, g.h, hf.plane}, hf.offset, cal.Affine, 0.3)
+		// The edges moved 0.3 nm at most: the pixels within 1.5 nm of the
+		// old ones hold those within 1.2 nm of the new.
+		assignNearSteps(comp, steps, stepDist, g.w, g.h, 1.5)
+		stepDist = nil
+		stepDist = distanceToLines(steps, g.w, g.h, cal.Affine)
+		hf = terraceHeights(g, r, comp, len(sg.comps), stepDist)
+		release(g)
 	}
 	// g loses the plane (the terraces keep their heights, for display);
 	// r, the residual, loses the plane and the terraces' heights.
 	for i := range r.v {
-		p := heights.plane(i%g.w, i/g.w)
+		p := hf.plane(i%g.w, i/g.w)
 		g.v[i] -= p
-		r.v[i] -= p + heights.offset[comp[i]]
+		r.v[i] -= p + hf.offset[comp[i]]
 	}
-	// A step's height jump puts a streak through the spectrum, at right
-	// angles to the edge; where it crosses a lattice peak (the rows of
-	// the upper terrace run along a smooth step edge) it pulls the peak.
-	// With the terraces' heights known, the lattice is measured again on
-	// the image without them.
+	// The calibration is made precise now. A step's height jump puts a
+	// streak through the spectrum, at right angles to the edge; where it
+	// crosses a lattice peak (the rows of the upper terrace run along a
+	// smooth step edge) it pulls the peak. With the terraces' heights
+	// known, the lattice is measured again on the image without them.
+	progress("calibrating on the lattice", 0.75)
+	final := meas
 	if len(sg.comps) > 1 {
-		flat := newGrid(g.w, g.h)
-		for i := range flat.v {
-			flat.v[i] = g.v[i] - heights.offset[comp[i]]
+		terraceHeight := func(q int) float64 { return hf.offset[comp[q]] }
+		if m2, err := measure(g, terraceHeight, an.NominalNMPerPx); err == nil && m2.b.alignTo(b) {
+			final = m2
 		}
-		if cal2, b2, err := calibrate(flat, an.NominalNMPerPx); err == nil && b2.alignTo(b) {
-			cal, b = calibrationFromBasis(b2), b2
-			cal.ScaleSD, cal.SkewSD, cal.RowsSD = cal2.ScaleSD, cal2.SkewSD, cal2.RowsSD
-			an.Calibration = cal
+	}
+	calF, bF := final.finish()
+	bF.alignTo(meas.b) // kinds keep their numbers
+	b, cal = bF, calibrationFromBasis(bF)
+	cal.ScaleSD, cal.SkewSD, cal.RowsSD = calF.ScaleSD, calF.SkewSD, calF.RowsSD
+	an.Calibration = cal
+	if an.NominalNMPerPx[0] > 0 {
+		for i := range 2 {
+			if r := cal.ScaleNMPerPx[i] / an.NominalNMPerPx[i]; r < 0.7 || r > 1.43 {
+				an.Notes = append(an.Notes, fmt.Sprintf("the measured scale differs from the nominal by %+.0f %% in %c: check the size given", 100*(r-1), "xy"[i]))
+			}
 		}
+	}
+	if cal.Isotropic {
+		an.Notes = append(an.Notes, "only one lattice direction is resolved (one terrace, dimers not resolved): the scale is taken equal in x and y, without skew")
 	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
-	an.ZSource, err = an.heightScale(t, sg, steps, heights, g, r)
+	an.ZSource, err = an.heightScale(t, sg, steps, hf, g, r)
 	if err != nil {
 		return fail(err)
 	}
@@ -357,30 +357,55 @@ func Analyse(ctx context.Context, t *Topograph, opt Options) (*Analysis, error) 
 	}
 
 	progress("finding defects", 0.8)
-	allowed := make([]bool, len(r.v))
-	const border = 2
-	for j := border; j < g.h-border; j++ {
-		for i := border; i < g.w-border; i++ {
-			q := j*g.w + i
-			allowed[q] = true
+	found, _ := detectDefects(r, stepDist, nil, cal.Affine, k)
+	// The lattice model, a local average, took part of each defect for
+	// lattice (and left a faint ring of it round strong ones): it is made
+	// again with the defects left out, the lattice round them standing in,
+	// and the residual made again from it (the image has its plane and
+	// scan lines' offsets out already; the terraces' heights go too).
+	var exclude []bool
+	if len(found) > 0 {
+		progress("finding defects", 0.85)
+		exclude = defectMask(found, g.w, g.h, cal.Affine)
+		r = nil
+		release(g)
+		kindOf = make([]bool, len(comp))
+		for i, c := range comp {
+			kindOf[i] = sg.comps[c].kind == 1
 		}
+		model := latticeModel(g, p, nil, b, kindOf, kinds, modelSigma, exclude)
+		kindOf = nil
+		r = &grid{w: g.w, h: g.h, v: model}
+		for i, v := range g.v {
+			r.v[i] = v - r.v[i] - hf.offset[comp[i]]
+		}
+		model = nil
+		release(g)
 	}
-	removeStepContrast(r, steps, cal.Affine)
-	found, sd := detectDefects(r, allowed, stepDist, cal.Affine, k)
+	removeStepContrast(r, steps, cal.Affine, exclude)
+	found, sd := detectDefects(r, stepDist, exclude, cal.Affine, k)
 	an.NoiseNM = sd
 
 	progress("describing terraces", 0.9)
-	an.describe(sg, comp, model, b, steps, heights, found)
+	an.describe(sg, comp, phases, steps, hf, found)
 	progress("done", 1)
 	return an, nil
 }
 
-// pixelTerraces returns the terrace (component) of every pixel.
+// pixelTerraces returns the terrace (component) of every pixel: its
+// nearest node's. Near a step edge this is refined (assignNearSteps).
 func pixelTerraces(sg *segmentation, w, h int) []int32 {
 	comp := make([]int32, w*h)
+	fx := float64(sg.nx-1) / float64(w)
+	fy := float64(sg.ny-1) / float64(h)
+	col := make([]int, w)
+	for i := range col {
+		col[i] = min(sg.nx-1, int(math.Round((float64(i)+0.5)*fx)))
+	}
 	for j := 0; j < h; j++ {
+		row := min(sg.ny-1, int(math.Round((float64(j)+0.5)*fy))) * sg.nx
 		for i := 0; i < w; i++ {
-			comp[j*w+i] = int32(sg.terraceAt(float64(i)+0.5, float64(j)+0.5))
+			comp[j*w+i] = int32(sg.comp[row+col[i]])
 		}
 	}
 	return comp
@@ -433,31 +458,50 @@ func stepLines(sg *segmentation, a [2][2]float64) []stepLine {
 	return out
 }
 
-// distanceToLines returns every pixel's distance in nm (true, skew left
-// out) from the nearest step edge: the edges are drawn into a grid a
-// quarter pixel at a time and the grid's exact distance transform taken.
-func distanceToLines(steps []stepLine, w, h int, scale [2]float64) []float64 {
-	f := make([]float64, w*h)
-	for i := range f {
-		f[i] = math.Inf(1)
+// stepReachNM is how far from a step edge distances are measured; every
+// use of them (the bands kept out of fits and searches) lies within it.
+const stepReachNM = 2.0
+
+// distanceToLines returns every pixel's true distance in nm from the
+// nearest step edge, up to stepReachNM (+Inf beyond): each edge's
+// segments are visited in turn over the pixels of their bounding box
+// widened by the reach, so the cost grows with the edges' length, not the
+// image's area.
+func distanceToLines(steps []stepLine, w, h int, a [2][2]float64) []float32 {
+	d := make([]float32, w*h)
+	inf := float32(math.Inf(1))
+	for i := range d {
+		d[i] = inf
 	}
+	reachX := stepReachNM/a[0][0] + 1
+	reachY := stepReachNM/a[1][1] + 1
 	for _, s := range steps {
 		for k := 1; k < len(s.line); k++ {
-			a, b := s.line[k-1], s.line[k]
-			n := int(math.Ceil(4*math.Hypot(b.x-a.x, b.y-a.y))) + 1
-			for q := 0; q <= n; q++ {
-				t := float64(q) / float64(n)
-				i := int(math.Floor(a.x + t*(b.x-a.x)))
-				j := int(math.Floor(a.y + t*(b.y-a.y)))
-				if i >= 0 && j >= 0 && i < w && j < h {
-					f[j*w+i] = 0
+			p, q := s.line[k-1], s.line[k]
+			x0 := max(0, int(math.Floor(math.Min(p.x, q.x)-reachX)))
+			x1 := min(w-1, int(math.Ceil(math.Max(p.x, q.x)+reachX)))
+			y0 := max(0, int(math.Floor(math.Min(p.y, q.y)-reachY)))
+			y1 := min(h-1, int(math.Ceil(math.Max(p.y, q.y)+reachY)))
+			// The segment in true nm, and each pixel centre.
+			px, py := a[0][0]*p.x+a[0][1]*p.y, a[1][1]*p.y
+			qx, qy := a[0][0]*q.x+a[0][1]*q.y, a[1][1]*q.y
+			dx, dy := qx-px, qy-py
+			l2 := dx*dx + dy*dy
+			for j := y0; j <= y1; j++ {
+				cy := a[1][1] * (float64(j) + 0.5)
+				for i := x0; i <= x1; i++ {
+					cx := a[0][0]*(float64(i)+0.5) + a[0][1]*(float64(j)+0.5)
+					t := 0.0
+					if l2 > 0 {
+						t = math.Max(0, math.Min(1, ((cx-px)*dx+(cy-py)*dy)/l2))
+					}
+					e := float32(math.Hypot(cx-px-t*dx, cy-py-t*dy))
+					if e <= stepReachNM && e < d[j*w+i] {
+						d[j*w+i] = e
+					}
 				}
 			}
 		}
-	}
-	d := edt.Squared(f, w, h, scale[0], scale[1])
-	for i, v := range d {
-		d[i] = math.Sqrt(v)
 	}
 	return d
 }
@@ -483,7 +527,7 @@ const maxHeightTerraces = 64
 // image with the lattice out) by least squares over the pixels more than
 // a nanometre from a step edge and within 4 robust SDs of their terrace's
 // median (no defects).
-func terraceHeights(g, r *grid, comp []int32, nc int, stepDist []float64) *heightFit {
+func terraceHeights(g, r *grid, comp []int32, nc int, stepDist []float32) *heightFit {
 	hf := &heightFit{cx: float64(g.w-1) / 2, cy: float64(g.h-1) / 2, offset: make([]float64, nc), fitted: make([]bool, nc)}
 	nt := min(nc, maxHeightTerraces)
 	// Each terrace's median and robust SD, from a sample.
@@ -507,9 +551,15 @@ func terraceHeights(g, r *grid, comp []int32, nc int, stepDist []float64) *heigh
 		m[i] = make([]float64, n+1)
 	}
 	count := make([]int, nc)
-	for j := 0; j < g.h; j++ {
+	// Every other pixel each way on large images: the fit has a handful
+	// of unknowns and a quarter of a million pixels pin them down.
+	stride := 1
+	if g.w*g.h > 1<<19 {
+		stride = 2
+	}
+	for j := 0; j < g.h; j += stride {
 		y := float64(j) - hf.cy
-		for i := 0; i < g.w; i++ {
+		for i := 0; i < g.w; i += stride {
 			q := j*g.w + i
 			c := int(comp[q])
 			if c >= nt || stepDist[q] < 1 {
@@ -586,7 +636,7 @@ func (an *Analysis) heightScale(t *Topograph, sg *segmentation, steps []stepLine
 }
 
 // describe fills in the terraces, steps and defects in true nm.
-func (an *Analysis) describe(sg *segmentation, comp []int32, model [2][]float64, b basis, steps []stepLine, hf *heightFit, found []foundDefect) {
+func (an *Analysis) describe(sg *segmentation, comp []int32, phases []phase, steps []stepLine, hf *heightFit, found []foundDefect) {
 	a := an.Affine
 	toNM := func(p pt) r2.Point { return r2.Point{X: a[0][0]*p.x + a[0][1]*p.y, Y: a[1][1] * p.y} }
 	// Terraces by area, largest first.
@@ -612,7 +662,9 @@ func (an *Analysis) describe(sg *segmentation, comp []int32, model [2][]float64,
 			t.Polygon = append(t.Polygon, toNM(q))
 		}
 		t.AreaNM2 = math.Abs(polygonAreaNM(t.Polygon))
-		t.DimerNM, t.AlongKnown = dimerPhase(comp, int32(c), model[kind], an.Width, b, kind, an.DimersResolved[kind], a)
+		ph := phases[c]
+		t.DimerNM = reduceToCorner(toNM(ph.at), a, ph.row, ph.alongKnown)
+		t.AlongKnown = ph.alongKnown
 		an.Terraces = append(an.Terraces, t)
 	}
 	an.RotationDeg = an.Terraces[0].RowsDeg
@@ -680,16 +732,22 @@ func polygonAreaNM(p []r2.Point) float64 {
 	return s / 2
 }
 
-// dimerPhase returns the position (true nm) of a dimer centre of terrace
-// c from the phases of its lattice model at the row frequency and, when
-// resolved, the dimer frequency: the lattice is a sum of waves
-// A_g·cos(2π g·(p − p0)) with A_g > 0 for a dimer centre p0 (the dimer is
-// the bright feature of the cell, symmetric about its centre), so
-// g·p0 = −arg(Σ L(p)·e^{−2πi g·p})/2π (mod 1). The dimer returned is the
-// one whose (along, across) position in the terrace's row frame is the
-// least non-negative, row 0 and dimer 0 counted from the image's
-// lower-left corner.
-func dimerPhase(comp []int32, c int32, model []float64, w int, b basis, kind int, resolved bool, a [2][2]float64) (r2.Point, bool) {
+// phase is where one dimer centre of a terrace's lattice lies, in image
+// pixel-edge units, with the row frequency (cycles per pixel) it was
+// measured with; alongKnown says whether its place along the rows was
+// measured (the dimer pitch resolved) or only across them.
+type phase struct {
+	at         pt
+	row        [2]float64
+	alongKnown bool
+}
+
+// dimerPhase returns the phase of terrace c from its lattice model at the
+// row frequency and, when resolved, the dimer frequency: the lattice is a
+// sum of waves A_g·cos(2π g·(p − p0)) with A_g > 0 for a dimer centre p0
+// (the dimer is the bright feature of the cell, symmetric about its
+// centre), so g·p0 = −arg(Σ L(p)·e^{−2πi g·p})/2π (mod 1).
+func dimerPhase(comp []int32, c int32, model []float64, w int, b basis, kind int, resolved bool) phase {
 	row := b.b1
 	dimer := [2]float64{2 * b.b2[0], 2 * b.b2[1]}
 	if kind == 1 {
@@ -712,22 +770,18 @@ func dimerPhase(comp []int32, c int32, model []float64, w int, b basis, kind int
 		}
 		return s
 	}
-	phase := func(f [2]float64) float64 { return -cmplx.Phase(sum(f)) / (2 * math.Pi) }
-	pr := phase(row)
-	var p [2]float64 // pixel-edge units
+	ph := func(f [2]float64) float64 { return -cmplx.Phase(sum(f)) / (2 * math.Pi) }
+	pr := ph(row)
+	var p pt
 	if resolved {
-		pd := phase(dimer)
+		pd := ph(dimer)
 		det := row[0]*dimer[1] - row[1]*dimer[0]
-		p = [2]float64{(pr*dimer[1] - pd*row[1]) / det, (row[0]*pd - dimer[0]*pr) / det}
+		p = pt{(pr*dimer[1] - pd*row[1]) / det, (row[0]*pd - dimer[0]*pr) / det}
 	} else {
 		n2 := row[0]*row[0] + row[1]*row[1]
-		p = [2]float64{pr * row[0] / n2, pr * row[1] / n2}
+		p = pt{pr * row[0] / n2, pr * row[1] / n2}
 	}
-	at := r2.Point{X: a[0][0]*p[0] + a[0][1]*p[1], Y: a[1][1] * p[1]}
-	// Reduce into the first cell from the corner in the row frame.
-	rowsDeg := math.Atan2(0, 1)
-	_ = rowsDeg
-	return reduceToCorner(at, a, row, resolved), resolved
+	return phase{at: p, row: row, alongKnown: resolved}
 }
 
 // reduceToCorner moves the dimer centre at (true nm) by whole lattice
@@ -757,4 +811,12 @@ func reduceToCorner(at r2.Point, a [2][2]float64, row [2]float64, resolved bool)
 	return along.Mul(u).Add(across.Mul(v))
 }
 
-var _ = errors.New
+
+// release returns freed images to the heap at once on large images (the
+// big arrays hold no pointers, so a collection is cheap), so that the
+// analysis of a 4096 x 4096 image stays within its memory goal.
+func release(g *grid) {
+	if g.w*g.h >= 2048*2048 {
+		runtime.GC()
+	}
+}

@@ -23,27 +23,28 @@ func hann(n int) []float64 {
 	return w
 }
 
-// windowed returns the spectrum of the w x h crop of g at (x0, y0), its
-// mean removed and Hann-windowed in x and y.
-func windowed(g *grid, x0, y0, w, h int) *spectrum {
-	return forward2D(windowedData(g, x0, y0, w, h), w, h)
-}
-
-// windowedData returns the w x h crop of g at (x0, y0), its mean removed
-// and Hann-windowed in x and y.
-func windowedData(g *grid, x0, y0, w, h int) []float64 {
+// windowedData returns the w x h crop of g at (x0, y0) less sub (when not
+// nil: a height to take off each pixel, by its index in g), its mean
+// removed and Hann-windowed in x and y.
+func windowedData(g *grid, sub func(q int) float64, x0, y0, w, h int) []float64 {
 	f := make([]float64, w*h)
 	var mean float64
 	for j := 0; j < h; j++ {
 		for i := 0; i < w; i++ {
-			mean += g.v[(y0+j)*g.w+x0+i]
+			q := (y0+j)*g.w + x0 + i
+			v := g.v[q]
+			if sub != nil {
+				v -= sub(q)
+			}
+			f[j*w+i] = v
+			mean += v
 		}
 	}
 	mean /= float64(w * h)
 	wx, wy := hann(w), hann(h)
 	for j := 0; j < h; j++ {
 		for i := 0; i < w; i++ {
-			f[j*w+i] = (g.v[(y0+j)*g.w+x0+i] - mean) * wx[i] * wy[j]
+			f[j*w+i] = (f[j*w+i] - mean) * wx[i] * wy[j]
 		}
 	}
 	return f
@@ -280,6 +281,11 @@ func partners(c peak, peaks []peak) []partner {
 	r90 := [2]float64{-c.f[1], c.f[0]}
 	lc := norm(c.f)
 	for _, mult := range []float64{1, 2} {
+		// Dimers beyond the Nyquist limit show up aliased, anywhere: a
+		// dimer peak is looked for only where it can be seen.
+		if mult == 2 && (math.Abs(2*r90[0]) > 0.45 || math.Abs(2*r90[1]) > 0.45) {
+			continue
+		}
 		for _, q := range peaks {
 			for _, sgn := range []float64{1, -1} {
 				f := [2]float64{sgn * q.f[0] / mult, sgn * q.f[1] / mult}
@@ -328,6 +334,9 @@ func (b *basis) indexWithin(f [2]float64, tol float64) (m, n int, ok bool) {
 	}
 	px := float64(m)*b.b1[0] + float64(n)*b.b2[0]
 	py := float64(m)*b.b1[1] + float64(n)*b.b2[1]
+	if math.Abs(px) >= 0.5 || math.Abs(py) >= 0.5 {
+		return m, n, false // beyond the Nyquist limit: what is seen there is aliased
+	}
 	return m, n, math.Hypot(f[0]-px, f[1]-py) < tol
 }
 

@@ -90,50 +90,82 @@ func lineDeg(a float64) float64 {
 // angleDiff returns a − b for line angles, in (−90, 90].
 func angleDiff(a, b float64) float64 { return lineDeg(a - b) }
 
-// calibrate measures the lattice on the levelled image g: the basis from
-// the Hann-windowed spectrum of its largest crop of smooth size, and the
-// uncertainties from the spread of the same fit on its four quadrants.
-// nominal is the nominal pixel size (nm, x and y) or zero.
-func calibrate(g *grid, nominal [2]float64) (Calibration, basis, error) {
-	w, h := smoothBelow(g.w), smoothBelow(g.h)
-	data := windowedData(g, (g.w-w)/2, (g.h-h)/2, w, h)
-	s := forward2D(data, w, h)
+// maxCalibSide bounds the side of the crop the lattice is measured on:
+// a 2048-pixel crop holds hundreds of row periods, enough for a few 10⁻⁵
+// of the scale, and larger transforms would only cost time.
+const maxCalibSide = 2048
+
+// measurement is a first calibration on the lattice: the basis from the
+// Hann-windowed spectrum of the image's central crop (of smooth size, at
+// most maxCalibSide a side), the peaks placed between bins by the Hann
+// rule. finish makes it precise.
+type measurement struct {
+	g       *grid
+	sub     func(q int) float64
+	x0, y0  int // the crop
+	w, h    int
+	data    []float64 // the windowed crop
+	peaks   []peak
+	b       basis
+	nominal [2]float64
+}
+
+// measure finds the lattice in the levelled image g, less sub (when not
+// nil: a height to take off each pixel). nominal is the nominal pixel
+// size (nm, x and y) or zero.
+func measure(g *grid, sub func(q int) float64, nominal [2]float64) (*measurement, error) {
+	w, h := smoothBelow(min(g.w, maxCalibSide)), smoothBelow(min(g.h, maxCalibSide))
+	m := &measurement{g: g, sub: sub, x0: (g.w - w) / 2, y0: (g.h - h) / 2, w: w, h: h, nominal: nominal}
+	m.data = windowedData(g, sub, m.x0, m.y0, w, h)
+	s := forward2D(m.data, w, h)
 	var nomF [2]float64
 	if nominal[0] > 0 && nominal[1] > 0 {
 		nomF = [2]float64{nominal[0] / lattice.RowSpacing, nominal[1] / lattice.RowSpacing}
 	}
-	minF := 6 / float64(min(w, h))
-	peaks := findPeaks(s, minF, 30, 40)
-	b, err := findBasis(peaks, nomF, 1/float64(min(w, h)))
+	m.peaks = findPeaks(s, 6/float64(min(w, h)), 30, 40)
+	b, err := findBasis(m.peaks, nomF, 1/float64(min(w, h)))
 	if err != nil {
-		return Calibration{}, basis{}, err
+		return nil, err
 	}
-	// Place the lattice's own peaks by the transform itself, then fit
-	// again.
-	onGrid := peaks[:0]
-	for _, p := range peaks {
-		if _, _, ok := b.index(p.f); ok {
+	m.b = b
+	return m, nil
+}
+
+// maxRefined is how many of the lattice's peaks (the strongest) finish
+// places by the transform itself.
+const maxRefined = 8
+
+// finish places the strongest lattice peaks by the transform itself,
+// fits the basis again and measures the uncertainties on the quadrants.
+func (m *measurement) finish() (Calibration, basis) {
+	var onGrid []peak
+	for _, p := range m.peaks {
+		if _, _, ok := m.b.index(p.f); ok {
 			onGrid = append(onGrid, p)
 		}
 	}
-	refinePeaks(data, w, h, onGrid)
-	b.refine(onGrid)
-	cal := calibrationFromBasis(b)
-	quadrantSpread(g, b, &cal)
-	return cal, b, nil
+	// peaks are sorted by power, strongest first.
+	refinePeaks(m.data, m.w, m.h, onGrid[:min(len(onGrid), maxRefined)])
+	m.b.refine(onGrid)
+	cal := calibrationFromBasis(m.b)
+	m.quadrantSpread(&cal)
+	return cal, m.b
 }
 
 // quadrantSpread sets the calibration's uncertainties from the scatter of
 // the basis fitted on each quadrant of the image alone (indices kept from
-// the whole image's fit): SD over the quadrants / √(quadrants), in
+// the whole image's fit, peaks placed by the Hann rule, so that the
+// scatter includes that rule's error): SD over the quadrants / √(quadrants), in
 // quadrature with a floor for the peak interpolation (0.02 bin on the
 // whole image's longest fitted peak).
-func quadrantSpread(g *grid, b basis, cal *Calibration) {
-	qw, qh := smoothBelow(g.w/2), smoothBelow(g.h/2)
+func (m *measurement) quadrantSpread(cal *Calibration) {
+	g, b := m.g, m.b
+	qw, qh := smoothBelow(m.w/2), smoothBelow(m.h/2)
 	var sx, sy, sk, rot []float64
 	if qw >= 32 && qh >= 32 {
-		for _, o := range [][2]int{{0, 0}, {g.w - qw, 0}, {0, g.h - qh}, {g.w - qw, g.h - qh}} {
-			data := windowedData(g, o[0], o[1], qw, qh)
+		x1, y1 := m.x0+m.w-qw, m.y0+m.h-qh
+		for _, o := range [][2]int{{m.x0, m.y0}, {x1, m.y0}, {m.x0, y1}, {x1, y1}} {
+			data := windowedData(g, m.sub, o[0], o[1], qw, qh)
 			peaks := findPeaks(forward2D(data, qw, qh), 6/float64(min(qw, qh)), 30, 40)
 			qb := b
 			qb.peaks = nil
@@ -146,11 +178,7 @@ func quadrantSpread(g *grid, b basis, cal *Calibration) {
 				}
 				ls = append(ls, labelled{peak: p, m: m, n: n})
 			}
-			for k := range ls {
-				one := []peak{ls[k].peak}
-				refinePeaks(data, qw, qh, one)
-				ls[k].peak = one[0]
-			}
+
 			ls = singleSource(ls)
 			for _, p := range ls {
 				seen1 = seen1 || p.m != 0
@@ -172,7 +200,7 @@ func quadrantSpread(g *grid, b basis, cal *Calibration) {
 	}
 	longest := 0.0
 	for _, p := range b.peaks {
-		longest = math.Max(longest, math.Hypot(p.f[0]*float64(g.w), p.f[1]*float64(g.h)))
+		longest = math.Max(longest, math.Hypot(p.f[0]*float64(m.w), p.f[1]*float64(m.h)))
 	}
 	floorRel := 0.02 / math.Max(longest, 1)
 	floorDeg := floorRel * 180 / math.Pi

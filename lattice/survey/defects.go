@@ -21,9 +21,10 @@ const (
 	// contrast; what of it is left in the residual looks like specks.
 	// Placement keeps away from step edges anyway.
 	stepBandNM = 0.5
-	// minSizeNM: a feature fitted narrower than this (full width at half
-	// maximum) is noise, not a defect: an STM tip images nothing on the
-	// surface sharper (common practice).
+	// minSizeNM: a feature fitted narrower than this or two pixels (full
+	// width at half maximum) is noise, not a defect: an STM tip images
+	// nothing on the surface sharper, and a glitch along one scan line
+	// looks like that (common practice).
 	minSizeNM = 0.25
 	// DefaultThresholdSD is the default detection threshold: a defect is
 	// an extreme of the smoothed residual beyond this many robust SDs of
@@ -39,28 +40,76 @@ type foundDefect struct {
 	score  float64 // smoothed residual over its SD, signed
 }
 
-// detectDefects finds the local extremes of the residual r (lattice
-// removed, terraces levelled) beyond k robust SDs after smoothing and
-// background removal, on the pixels allowed, and fits each with a
-// Gaussian for its position, apparent height and size. a is the
-// calibration's pixel-to-true map. It returns the defects and the robust
-// SD of the smoothed residual.
-func detectDefects(r *grid, allowed []bool, stepDist []float64, a [2][2]float64, k float64) ([]foundDefect, float64) {
-	px := math.Sqrt(a[0][0] * a[1][1]) // nm per pixel, geometric mean
-	fine := gaussBlur(r.v, r.w, r.h, smoothNM/px)
-	coarse := gaussBlur(r.v, r.w, r.h, backgroundNM/px)
-	d := make([]float64, len(fine))
-	var sample []float64
-	for i := range d {
-		d[i] = fine[i] - coarse[i]
-		if allowed[i] && stepDist[i] >= stepBandNM {
-			sample = append(sample, d[i])
+// subtractBackground takes from d the blur of r by a Gaussian of SD sigma
+// pixels, leaving out the pixels where exclude is true (when not nil: the
+// defects found so far, whose own height would otherwise raise the
+// surface round them and leave a moat), by normalised convolution on a
+// grid sigma/4 pixels apart read back by bilinear interpolation.
+func subtractBackground(d []float64, r *grid, sigma float64, exclude []bool) {
+	f := max(1, int(sigma/4))
+	cw, ch := (r.w+f-1)/f, (r.h+f-1)/f
+	sum := make([]float64, cw*ch)
+	count := make([]float64, cw*ch)
+	for j := 0; j < r.h; j++ {
+		for i := 0; i < r.w; i++ {
+			q := j*r.w + i
+			if exclude != nil && exclude[q] {
+				continue
+			}
+			k := (j/f)*cw + i/f
+			sum[k] += r.v[q]
+			count[k]++
 		}
 	}
-	coarse = nil
-	if dbgHook != nil {
-		dbgHook("D", &grid{w: r.w, h: r.h, v: d})
-		dbgHook("r", r)
+	bs := gaussBlur(sum, cw, ch, sigma/float64(f))
+	bc := gaussBlur(count, cw, ch, sigma/float64(f))
+	blur := make([]float64, cw*ch)
+	for k := range blur {
+		if bc[k] > 1e-9 {
+			blur[k] = bs[k] / bc[k]
+		}
+	}
+	for j := 0; j < r.h; j++ {
+		v := (float64(j)+0.5)/float64(f) - 0.5
+		j0 := int(math.Floor(v))
+		fv := v - float64(j0)
+		ja, jb := min(max(j0, 0), ch-1), min(max(j0+1, 0), ch-1)
+		for i := 0; i < r.w; i++ {
+			u := (float64(i)+0.5)/float64(f) - 0.5
+			i0 := int(math.Floor(u))
+			fu := u - float64(i0)
+			ia, ib := min(max(i0, 0), cw-1), min(max(i0+1, 0), cw-1)
+			b := (1-fu)*(1-fv)*blur[ja*cw+ia] + fu*(1-fv)*blur[ja*cw+ib] + (1-fu)*fv*blur[jb*cw+ia] + fu*fv*blur[jb*cw+ib]
+			d[j*r.w+i] -= b
+		}
+	}
+}
+
+// detectDefects finds the local extremes of the residual r (lattice
+// removed, terraces levelled) beyond k robust SDs after smoothing and
+// background removal (the background leaves out the pixels where exclude,
+// when not nil, is true), away from the image's border and step edges
+// (stepDist, nm), and fits each with a Gaussian for its position,
+// apparent height and size. a is the calibration's pixel-to-true map. It
+// returns the defects and the robust SD of the smoothed residual.
+func detectDefects(r *grid, stepDist []float32, exclude []bool, a [2][2]float64, k float64) ([]foundDefect, float64) {
+	px := math.Sqrt(a[0][0] * a[1][1]) // nm per pixel, geometric mean
+	// The smoothed residual less its local surface, in place; the surface
+	// is smooth on a scale of nanometres and is blurred on a coarse grid.
+	d := gaussBlur(r.v, r.w, r.h, smoothNM/px)
+	release(r)
+	subtractBackground(d, r, backgroundNM/px, exclude)
+	const border = 2
+	allowed := func(q int) bool {
+		i, j := q%r.w, q/r.w
+		return i >= border && j >= border && i < r.w-border && j < r.h-border && stepDist[q] >= stepBandNM
+	}
+	var sample []float64
+	step := max(1, len(d)/400000)
+	for i := 0; i < len(d); i += step {
+		if allowed(i) {
+			sample = append(sample, d[i])
+		}
 	}
 	sd := robustSD(sample)
 	if !(sd > 0) {
@@ -75,7 +124,7 @@ func detectDefects(r *grid, allowed []bool, stepDist []float64, a [2][2]float64,
 		for i := 1; i < r.w-1; i++ {
 			q := j*r.w + i
 			v := d[q]
-			if !allowed[q] || stepDist[q] < stepBandNM || math.Abs(v) < k*sd {
+			if math.Abs(v) < k*sd || !allowed(q) {
 				continue
 			}
 			ext := true
@@ -109,6 +158,13 @@ func detectDefects(r *grid, allowed []bool, stepDist []float64, a [2][2]float64,
 		}
 		f, fitted := fitDefect(r, a, c.i, c.j, c.score > 0)
 		f.score = c.score
+		// Two extremes of one feature fit to one place.
+		for _, o := range out {
+			if (o.score > 0) == (c.score > 0) && trueDist(a, f.x-o.x, f.y-o.y) < mergeNM {
+				f.height = 0
+				break
+			}
+		}
 		// A feature no Gaussian fits is kept only when it stands out
 		// twice as far as the threshold.
 		if f.height == 0 || (!fitted && math.Abs(c.score) < 2*k) {
@@ -119,34 +175,7 @@ func detectDefects(r *grid, allowed []bool, stepDist []float64, a [2][2]float64,
 			break
 		}
 	}
-	return dropEchoes(out, a, k), sd
-}
-
-// echoNM: the lattice model, averaged over about this radius, takes part
-// of a strong defect for lattice and leaves a faint ring of it round the
-// defect.
-const echoNM = 3.5
-
-// dropEchoes removes weak features (below twice the threshold) that lie
-// within echoNM of a defect four times as strong: the rings the lattice
-// model leaves round strong defects.
-func dropEchoes(ds []foundDefect, a [2][2]float64, k float64) []foundDefect {
-	out := ds[:0:0]
-	for _, d := range ds {
-		echo := false
-		if math.Abs(d.score) < 2*k {
-			for _, o := range ds {
-				if math.Abs(o.score) > 4*math.Abs(d.score) && trueDist(a, d.x-o.x, d.y-o.y) < echoNM {
-					echo = true
-					break
-				}
-			}
-		}
-		if !echo {
-			out = append(out, d)
-		}
-	}
-	return out
+	return out, sd
 }
 
 // MaxDefects bounds the defects one image reports.
@@ -252,8 +281,8 @@ func fitDefect(r *grid, a [2][2]float64, i0, j0 int, bright bool) (foundDefect, 
 	if (th[1] > 0) != bright || sigma < 0.4*px || sigma > 2.5 || shift > 0.8 || math.IsNaN(c0) {
 		return fallback, false
 	}
-	if 2*math.Sqrt(2*math.Ln2)*sigma < minSizeNM {
-		return foundDefect{}, false // narrower than the tip can image: noise
+	if 2*math.Sqrt(2*math.Ln2)*sigma < math.Max(minSizeNM, 2*px) {
+		return foundDefect{}, false // narrower than the tip or two pixels: noise
 	}
 	// Back from true nm to pixel units: solve a·(du, dv) = (x, y).
 	dv := th[3] / a[1][1]
@@ -262,4 +291,25 @@ func fitDefect(r *grid, a [2][2]float64, i0, j0 int, bright bool) (foundDefect, 
 		x: float64(i0) + 0.5 + du, y: float64(j0) + 0.5 + dv,
 		height: th[1], sizeNM: 2 * math.Sqrt(2*math.Ln2) * sigma,
 	}, true
+}
+
+// defectMask marks the pixels within each defect's reach: one and a half
+// times its full width at half maximum (where a Gaussian has fallen to
+// 0.2 %), at least 0.6 nm and at most 2.5 nm (the lattice model, a local
+// average over about 2 nm, has to reach across the hole) from its
+// centre.
+func defectMask(ds []foundDefect, w, h int, a [2][2]float64) []bool {
+	m := make([]bool, w*h)
+	for _, d := range ds {
+		r := math.Min(2.5, math.Max(0.6, 1.5*d.sizeNM))
+		rx, ry := r/a[0][0]+1, r/a[1][1]+1
+		for j := max(0, int(d.y-ry)); j <= min(h-1, int(d.y+ry)); j++ {
+			for i := max(0, int(d.x-rx)); i <= min(w-1, int(d.x+rx)); i++ {
+				if trueDist(a, float64(i)+0.5-d.x, float64(j)+0.5-d.y) <= r {
+					m[j*w+i] = true
+				}
+			}
+		}
+	}
+	return m
 }

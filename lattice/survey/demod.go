@@ -6,24 +6,44 @@ import (
 	"gonum.org/v1/gonum/dsp/fourier"
 )
 
-// padded is an image placed in a larger array of smooth size, zero
-// outside it, so that filters reach past its edges without wrapping round
-// to the far edge.
-type padded struct {
-	*grid
+// padding places an image in a larger frame of smooth size, zero outside
+// it, so that filters reach past its edges without wrapping round to the
+// far edge.
+type padding struct {
+	w, h   int // the padded frame
 	x0, y0 int // where the image's pixel (0, 0) lies
 	iw, ih int // the image's size
 }
 
-// padZero returns g with at least margin pixels of zeros on each side, to
-// a smooth size. g should have a mean near zero (it is levelled).
-func padZero(g *grid, margin int) *padded {
-	w, h := smoothAbove(g.w+2*margin), smoothAbove(g.h+2*margin)
-	p := &padded{grid: newGrid(w, h), x0: (w - g.w) / 2, y0: (h - g.h) / 2, iw: g.w, ih: g.h}
-	for j := 0; j < g.h; j++ {
-		copy(p.v[(j+p.y0)*w+p.x0:], g.v[j*g.w:j*g.w+g.w])
+// padFor returns the frame with at least margin pixels on each side of an
+// iw x ih image.
+func padFor(iw, ih, margin int) padding {
+	w, h := smoothAbove(iw+2*margin), smoothAbove(ih+2*margin)
+	return padding{w: w, h: h, x0: (w - iw) / 2, y0: (h - ih) / 2, iw: iw, ih: ih}
+}
+
+// rows returns the rows of g in the padded frame for forwardRows: zero
+// outside the image and at pixels where keep (when not nil) is false. g
+// should have a mean near zero (it is levelled).
+func (p padding) rows(g *grid, keep func(q int) bool) func(y int, dst []float64) {
+	return func(y int, dst []float64) {
+		clear(dst)
+		j := y - p.y0
+		if j < 0 || j >= p.ih {
+			return
+		}
+		src := g.v[j*p.iw : j*p.iw+p.iw]
+		out := dst[p.x0 : p.x0+p.iw]
+		if keep == nil {
+			copy(out, src)
+			return
+		}
+		for i, v := range src {
+			if keep(j*p.iw + i) {
+				out[i] = v
+			}
+		}
 	}
-	return p
 }
 
 // reflect maps any index into [0, n) by mirroring at the ends.

@@ -10,11 +10,13 @@ import (
 // spectrum is the 2-D discrete Fourier transform of a real w x h image,
 // kept for the non-negative x frequencies only (the others are their
 // complex conjugates): c[ky*hw+kx] for kx in [0, w/2], ky in [0, h),
+// stored in single precision (a 4096 x 4096 image's spectrum takes 70 MB;
+// the transforms themselves run in double precision line by line),
 //
 //	c(kx, ky) = Σ_x Σ_y f(x, y) · exp(−2πi (kx·x/w + ky·y/h)).
 type spectrum struct {
 	w, h, hw int
-	c        []complex128
+	c        []complex64
 }
 
 // colBlock is how many columns the column pass copies at a time, so that
@@ -22,33 +24,39 @@ type spectrum struct {
 const colBlock = 16
 
 // forward2D transforms the real w x h image f (row-major, w and h smooth
-// numbers: see smoothBelow) with gonum's FFT, two rows at a time as the
-// real and imaginary parts of one complex sequence.
+// numbers: see smoothBelow) with gonum's FFT.
 func forward2D(f []float64, w, h int) *spectrum {
+	return forwardRows(w, h, func(y int, dst []float64) { copy(dst, f[y*w:y*w+w]) })
+}
+
+// forwardRows transforms the real w x h image whose row y the function
+// row writes into dst, two rows at a time as the real and imaginary parts
+// of one complex sequence, then the columns. The image itself is never
+// held whole.
+func forwardRows(w, h int, row func(y int, dst []float64)) *spectrum {
 	hw := w/2 + 1
-	s := &spectrum{w: w, h: h, hw: hw, c: make([]complex128, hw*h)}
+	s := &spectrum{w: w, h: h, hw: hw, c: make([]complex64, hw*h)}
 	rowFFT := fourier.NewCmplxFFT(w)
 	buf := make([]complex128, w)
+	a, b := make([]float64, w), make([]float64, w)
 	for y := 0; y < h; y += 2 {
-		a := f[y*w : y*w+w]
+		row(y, a)
 		if y+1 < h {
-			b := f[(y+1)*w : (y+1)*w+w]
-			for x := range buf {
-				buf[x] = complex(a[x], b[x])
-			}
+			row(y+1, b)
 		} else {
-			for x := range buf {
-				buf[x] = complex(a[x], 0)
-			}
+			clear(b)
+		}
+		for x := range buf {
+			buf[x] = complex(a[x], b[x])
 		}
 		rowFFT.Coefficients(buf, buf)
 		ra := s.c[y*hw : y*hw+hw]
 		for k := 0; k < hw; k++ {
 			z := buf[k]
 			zm := cmplx.Conj(buf[(w-k)%w])
-			ra[k] = (z + zm) / 2
+			ra[k] = complex64((z + zm) / 2)
 			if y+1 < h {
-				s.c[(y+1)*hw+k] = (z - zm) / complex(0, 2)
+				s.c[(y+1)*hw+k] = complex64((z - zm) / complex(0, 2))
 			}
 		}
 	}
@@ -68,7 +76,7 @@ func (s *spectrum) columns(inverse bool) {
 		for y := 0; y < s.h; y++ {
 			row := s.c[y*s.hw+x0 : y*s.hw+x0+n]
 			for i, v := range row {
-				block[i][y] = v
+				block[i][y] = complex128(v)
 			}
 		}
 		for i := 0; i < n; i++ {
@@ -81,7 +89,7 @@ func (s *spectrum) columns(inverse bool) {
 		for y := 0; y < s.h; y++ {
 			row := s.c[y*s.hw+x0 : y*s.hw+x0+n]
 			for i := range row {
-				row[i] = block[i][y]
+				row[i] = complex64(block[i][y])
 			}
 		}
 	}
@@ -92,44 +100,53 @@ func (s *spectrum) columns(inverse bool) {
 // is overwritten. The spectrum must be that of a real image, as every
 // filter here keeps it (their weights depend on ±k alike).
 func (s *spectrum) inverse2D(dst []float64) []float64 {
-	w, h, hw := s.w, s.h, s.hw
 	if dst == nil {
-		dst = make([]float64, w*h)
+		dst = make([]float64, s.w*s.h)
 	}
+	s.inverseRows(func(y int, v []float64) { copy(dst[y*s.w:], v) })
+	return dst
+}
+
+// inverseRows transforms s back, handing each row of the real image
+// (normalised) to the function row; s is overwritten.
+func (s *spectrum) inverseRows(row func(y int, v []float64)) {
+	w, h, hw := s.w, s.h, s.hw
 	s.columns(true)
 	rowFFT := fourier.NewCmplxFFT(w)
 	buf := make([]complex128, w)
+	ra, rb := make([]float64, w), make([]float64, w)
 	norm := 1 / float64(w*h)
 	for y := 0; y < h; y += 2 {
 		a := s.c[y*hw : y*hw+hw]
-		var b []complex128
+		var b []complex64
 		if y+1 < h {
 			b = s.c[(y+1)*hw : (y+1)*hw+hw]
 		}
 		for k := 0; k < w; k++ {
 			var za, zb complex128
 			if k < hw {
-				za = a[k]
+				za = complex128(a[k])
 				if b != nil {
-					zb = b[k]
+					zb = complex128(b[k])
 				}
 			} else {
-				za = cmplx.Conj(a[w-k])
+				za = cmplx.Conj(complex128(a[w-k]))
 				if b != nil {
-					zb = cmplx.Conj(b[w-k])
+					zb = cmplx.Conj(complex128(b[w-k]))
 				}
 			}
 			buf[k] = za + complex(0, 1)*zb
 		}
 		rowFFT.Sequence(buf, buf)
 		for x := 0; x < w; x++ {
-			dst[y*w+x] = real(buf[x]) * norm
-			if y+1 < h {
-				dst[(y+1)*w+x] = imag(buf[x]) * norm
-			}
+			ra[x] = real(buf[x]) * norm
+			rb[x] = imag(buf[x]) * norm
+		}
+		row(y, ra)
+		if y+1 < h {
+			row(y+1, rb)
 		}
 	}
-	return dst
 }
 
 // dropLineOffsets zeroes the column of zero x frequency: a scan line's
@@ -147,9 +164,9 @@ func (s *spectrum) at(kx, ky int) complex128 {
 	kx = ((kx % s.w) + s.w) % s.w
 	ky = ((ky % s.h) + s.h) % s.h
 	if kx < s.hw {
-		return s.c[ky*s.hw+kx]
+		return complex128(s.c[ky*s.hw+kx])
 	}
-	return cmplx.Conj(s.c[((s.h-ky)%s.h)*s.hw+(s.w-kx)])
+	return cmplx.Conj(complex128(s.c[((s.h-ky)%s.h)*s.hw+(s.w-kx)]))
 }
 
 // power returns |c(kx, ky)|².

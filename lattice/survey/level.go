@@ -1,6 +1,9 @@
 package survey
 
-import "math"
+import (
+	"math"
+	"slices"
+)
 
 // grid is a real image, row-major with line 0 at the bottom.
 type grid struct {
@@ -174,7 +177,7 @@ func selectKth(s []float64, k int) float64 {
 // (robust to defects) until it settles. Terraces no line shares with a
 // measured one keep height NaN. Common practice is the line-by-line
 // median offset; this is that with the terraces levelled.
-func lineOffsets(r *grid, comp []int32, nc int, stepDist []float64) (line, terrace []float64) {
+func lineOffsets(r heights, comp []int32, nc int, stepDist []float32) (line, terrace []float64) {
 	w, h := r.w, r.h
 	type cell struct {
 		c   int
@@ -182,19 +185,27 @@ func lineOffsets(r *grid, comp []int32, nc int, stepDist []float64) (line, terra
 		n   int
 	}
 	cells := make([][]cell, h)
-	byTerrace := map[int32][]float64{}
+	// One buffer per terrace, reused line after line.
+	byTerrace := make([][]float64, nc)
+	var seen []int32
 	for j := 0; j < h; j++ {
-		clear(byTerrace)
+		seen = seen[:0]
 		for i := 0; i < w; i++ {
 			q := j*w + i
 			if stepDist[q] >= 1 {
-				byTerrace[comp[q]] = append(byTerrace[comp[q]], r.v[q])
+				c := comp[q]
+				if len(byTerrace[c]) == 0 {
+					seen = append(seen, c)
+				}
+				byTerrace[c] = append(byTerrace[c], r.at(i, j))
 			}
 		}
-		for c, v := range byTerrace {
-			if len(v) >= 8 {
+		slices.Sort(seen)
+		for _, c := range seen {
+			if v := byTerrace[c]; len(v) >= 8 {
 				cells[j] = append(cells[j], cell{int(c), median(v), len(v)})
 			}
+			byTerrace[c] = byTerrace[c][:0]
 		}
 	}
 	line = make([]float64, h)

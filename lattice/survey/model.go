@@ -63,40 +63,45 @@ func bandPass(s *spectrum, freqs [][2]float64, sigma float64) {
 		if v == 0 {
 			s.c[i] = 0
 		} else if v < 1 {
-			s.c[i] *= complex(float64(v), 0)
+			s.c[i] *= complex(v, 0)
 		}
 	}
 }
 
-// latticeModel returns the lattice seen in the zero-padded image p, as
-// images the size of the original, one for each kind of terrace (nil for a
-// kind not present; kindOf says each pixel's kind, true for kind 1, and
-// the bits of kinds which are present): the band of each kind's lattice frequencies (Gaussian
-// bands of spatial SD sigma) taken over that kind's terraces alone and
-// divided by the blurred mask of those terraces (normalised convolution,
-// Knutsson and Westin, CVPR 1993), so that the model keeps the lattice's
-// full amplitude up to each step edge and to the image's border instead
-// of fading across them. s is p's spectrum and is overwritten.
-func latticeModel(p *padded, s *spectrum, b basis, kindOf []bool, kinds int, sigma float64) [2][]float64 {
-	var out [2][]float64
+// latticeModel returns the lattice seen in g: each pixel holds the model
+// of its own kind of terrace (kindOf: true for kind 1; kinds: the bits of
+// the kinds present). The model of a kind is the band of its lattice
+// frequencies (Gaussian bands of spatial SD sigma) taken over that kind's
+// terraces alone and divided by the blurred mask of those terraces
+// (normalised convolution, Knutsson and Westin, CVPR 1993), so that it
+// keeps the lattice's full amplitude up to each step edge and to the
+// image's border instead of fading across them. Pixels where exclude is
+// true (defects, when not nil) are left out the same way: the model there
+// is the lattice around them. s, when not nil, is the spectrum of g in
+// the padded frame p (line offsets dropped) and is overwritten; it serves
+// only when nothing is excluded.
+func latticeModel(g *grid, p padding, s *spectrum, b basis, kindOf []bool, kinds int, sigma float64, exclude []bool) []float64 {
+	model := make([]float64, p.iw*p.ih)
+	in := func(k int) func(q int) bool {
+		return func(q int) bool { return kindOf[q] == (k == 1) && (exclude == nil || !exclude[q]) }
+	}
 	var spectra [2]*spectrum
-	switch kinds {
-	case 1:
-		spectra[0] = s
-	case 2:
-		spectra[1] = s
-	default:
-		masked := make([]float64, p.w*p.h)
-		for j := 0; j < p.ih; j++ {
-			for i := 0; i < p.iw; i++ {
-				if kindOf[j*p.iw+i] {
-					q := (j+p.y0)*p.w + i + p.x0
-					masked[q] = p.v[q]
-				}
-			}
+	for k := 0; k < 2; k++ {
+		if kinds&(1<<k) == 0 {
+			continue
 		}
-		spectra[1] = forward2D(masked, p.w, p.h)
-		for i := range s.c { // kind 0's share: what the mask left out
+		switch {
+		case s != nil && kinds != 3:
+			spectra[k] = s // one kind, nothing left out: the whole image
+		case s != nil && k == 0:
+			continue // kind 0 is the whole less kind 1, below
+		default:
+			spectra[k] = forwardRows(p.w, p.h, p.rows(g, in(k)))
+			spectra[k].dropLineOffsets()
+		}
+	}
+	if s != nil && kinds == 3 {
+		for i := range s.c { // kind 0's share: what kind 1's mask left out
 			s.c[i] -= spectra[1].c[i]
 		}
 		spectra[0] = s
@@ -105,28 +110,96 @@ func latticeModel(p *padded, s *spectrum, b basis, kindOf []bool, kinds int, sig
 		if sp == nil {
 			continue
 		}
-		mask := make([]float64, p.w*p.h)
-		for j := 0; j < p.ih; j++ {
-			for i := 0; i < p.iw; i++ {
-				if kindOf[j*p.iw+i] == (k == 1) {
-					mask[(j+p.y0)*p.w+i+p.x0] = 1
-				}
-			}
-		}
-		share := gaussBlur(mask, p.w, p.h, sigma)
-		mask = nil
+		share := maskShare(in(k), p, sigma)
 		bandPass(sp, latticePeaks(b, k), sigma)
-		band := sp.inverse2D(nil)
-		model := make([]float64, p.iw*p.ih)
-		for j := 0; j < p.ih; j++ {
+		sp.inverseRows(func(y int, v []float64) {
+			j := y - p.y0
+			if j < 0 || j >= p.ih {
+				return
+			}
 			for i := 0; i < p.iw; i++ {
-				q := (j+p.y0)*p.w + i + p.x0
-				if kindOf[j*p.iw+i] == (k == 1) && share[q] > 0.05 {
-					model[j*p.iw+i] = band[q] / share[q]
+				q := j*p.iw + i
+				if kindOf[q] == (k == 1) {
+					if sh := share(i, j); sh > 0.01 {
+						model[q] = v[i+p.x0] / sh
+					}
 				}
 			}
+		})
+		spectra[k] = nil
+		release(g)
+	}
+	return model
+}
+
+// maskShare returns the blur by a Gaussian of SD sigma pixels of the mask
+// of the image pixels where in is true (zero outside the image), as a
+// function of the image pixel (i, j). The mask is blurred on a grid
+// sigma/4 pixels apart (its cells hold the share of their pixels) and
+// read back by bilinear interpolation: the blur is smooth on that scale.
+func maskShare(in func(q int) bool, p padding, sigma float64) func(i, j int) float64 {
+	f := max(1, int(sigma/4))
+	cw, ch := (p.w+f-1)/f, (p.h+f-1)/f
+	coarse := make([]float64, cw*ch)
+	inv := 1 / float64(f*f)
+	for j := 0; j < p.ih; j++ {
+		cj := (j + p.y0) / f
+		for i := 0; i < p.iw; i++ {
+			if in(j*p.iw + i) {
+				coarse[cj*cw+(i+p.x0)/f] += inv
+			}
 		}
-		out[k] = model
+	}
+	// A true Gaussian here (the grid is small): the band-pass filter is
+	// exactly one, and the two must agree for the division to be exact.
+	blur := gaussKernelBlur(coarse, cw, ch, sigma/float64(f))
+	return func(i, j int) float64 {
+		// The cell centres sit at f·(c + ½) − ½ in pixels.
+		u := (float64(i+p.x0)+0.5)/float64(f) - 0.5
+		v := (float64(j+p.y0)+0.5)/float64(f) - 0.5
+		i0, j0 := int(math.Floor(u)), int(math.Floor(v))
+		fu, fv := u-float64(i0), v-float64(j0)
+		at := func(a, b int) float64 {
+			a, b = min(max(a, 0), cw-1), min(max(b, 0), ch-1)
+			return blur[b*cw+a]
+		}
+		return (1-fu)*(1-fv)*at(i0, j0) + fu*(1-fv)*at(i0+1, j0) + (1-fu)*fv*at(i0, j0+1) + fu*fv*at(i0+1, j0+1)
+	}
+}
+
+// gaussKernelBlur returns f blurred by a sampled Gaussian of SD sigma in x
+// and y (kernel to ±4 SD, the edges clamped).
+func gaussKernelBlur(f []float64, w, h int, sigma float64) []float64 {
+	r := int(math.Ceil(4 * sigma))
+	k := make([]float64, 2*r+1)
+	var sum float64
+	for i := range k {
+		d := float64(i - r)
+		k[i] = math.Exp(-d * d / (2 * sigma * sigma))
+		sum += k[i]
+	}
+	for i := range k {
+		k[i] /= sum
+	}
+	tmp := make([]float64, w*h)
+	for j := 0; j < h; j++ {
+		for i := 0; i < w; i++ {
+			var s float64
+			for d := -r; d <= r; d++ {
+				s += k[d+r] * f[j*w+min(max(i+d, 0), w-1)]
+			}
+			tmp[j*w+i] = s
+		}
+	}
+	out := make([]float64, w*h)
+	for j := 0; j < h; j++ {
+		for i := 0; i < w; i++ {
+			var s float64
+			for d := -r; d <= r; d++ {
+				s += k[d+r] * tmp[min(max(j+d, 0), h-1)*w+i]
+			}
+			out[j*w+i] = s
+		}
 	}
 	return out
 }

@@ -73,6 +73,14 @@ func decodePNG(r io.Reader, name string) (*Topograph, error) {
 	if len(data) > MaxFileBytes {
 		return nil, &ReadError{File: name, Err: fmt.Errorf("file is larger than %d bytes", MaxFileBytes)}
 	}
+	// The size stands in the header: checked before the decoder, which
+	// refuses a 0 x 0 image with a less helpful message.
+	if len(data) >= 24 && string(data[12:16]) == "IHDR" {
+		w, h := binary.BigEndian.Uint32(data[16:]), binary.BigEndian.Uint32(data[20:])
+		if err := checkSize(int(min(w, 1<<20)), int(min(h, 1<<20))); err != nil {
+			return nil, &ReadError{File: name, Err: err}
+		}
+	}
 	cfg, err := png.DecodeConfig(bytes.NewReader(data))
 	if err != nil {
 		return nil, &ReadError{File: name, Err: imageError("PNG", err)}
@@ -144,8 +152,12 @@ func decodeTIFFImage(data []byte) (img image.Image, err error) {
 }
 
 func imageError(format string, err error) error {
-	if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
+	msg := err.Error()
+	if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) || strings.Contains(msg, "not enough pixel data") {
 		return fmt.Errorf("%w: %s data ends early", ErrTruncated, format)
+	}
+	if strings.Contains(msg, "invalid image size: 0x") || strings.HasSuffix(msg, "x0") {
+		return fmt.Errorf("%w: %s: %v", ErrEmpty, format, err)
 	}
 	return fmt.Errorf("%w: %s: %v", ErrFormat, format, err)
 }

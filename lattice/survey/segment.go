@@ -46,7 +46,7 @@ const (
 // typical value on its own terraces; the sign of their difference says
 // which way the rows run. Terraces smaller than minAreaPx pixels join
 // their surroundings.
-func segment(s *spectrum, p *padded, b basis, sigma, minAreaPx float64) *segmentation {
+func segment(s *spectrum, p padding, b basis, sigma, minAreaPx float64) *segmentation {
 	step := sigma / 2
 	nx := max(2, int(math.Round(float64(p.iw)/step))+1)
 	ny := max(2, int(math.Round(float64(p.ih)/step))+1)

@@ -5,6 +5,16 @@ import (
 	"slices"
 )
 
+// heights is an image read pixel by pixel: a grid less a plane, without
+// making the difference a whole image.
+type heights struct {
+	g     *grid
+	w, h  int
+	plane func(i, j int) float64
+}
+
+func (y heights) at(i, j int) float64 { return y.g.at(i, j) - y.plane(i, j) }
+
 // refineSteps moves each step edge to where the heights jump. The
 // lattice places an edge to a few tenths of a nm; the heights of the two
 // terraces, a/4 apart, place it to about a pixel. y is the image with the
@@ -16,7 +26,7 @@ import (
 // deviations, so a defect on the edge does not pull it), by at most reach nm; the moves are smoothed by a
 // running median of nine (4 nm) along the edge, so that a defect by the
 // edge, which looks like a bit of the other terrace, does not bend it.
-func refineSteps(steps []stepLine, y *grid, offset []float64, a [2][2]float64, reach float64) {
+func refineSteps(steps []stepLine, y heights, offset []float64, a [2][2]float64, reach float64) {
 	px := math.Min(a[0][0], a[1][1])
 	for si := range steps {
 		s := &steps[si]
@@ -24,7 +34,7 @@ func refineSteps(steps []stepLine, y *grid, offset []float64, a [2][2]float64, r
 		if math.Abs(hl-hr) == 0 {
 			continue
 		}
-		line := resample(s.line, 0.5/px, a)
+		line := resample(s.line, 0.5/px)
 		moves := make([]float64, len(line))
 		for k := range line {
 			// The normal at the vertex (left of the direction of travel),
@@ -96,9 +106,6 @@ func refineSteps(steps []stepLine, y *grid, offset []float64, a [2][2]float64, r
 			}
 			moves[k] = best / nlen // back to pixel units along the normal
 		}
-		if dbgStep != nil {
-			dbgStep(line, moves, hl, hr)
-		}
 		med := slices.Clone(moves)
 		for k := range moves {
 			win := slices.Clone(moves[max(0, k-4):min(len(moves), k+5)])
@@ -159,10 +166,9 @@ func unfold(line []pt) []pt {
 	}
 }
 
-// resample returns points along line about step pixels apart (at least
-// the line's own vertices' ends).
-func resample(line []pt, step float64, a [2][2]float64) []pt {
-	_ = a
+// resample returns points along line about step pixels apart, its ends
+// kept.
+func resample(line []pt, step float64) []pt {
 	out := []pt{line[0]}
 	for k := 1; k < len(line); k++ {
 		p, q := line[k-1], line[k]
@@ -200,11 +206,11 @@ func clampToBorder(p *pt, w, h int) {
 // terrace on its side of the nearest edge: the segmentation's terraces
 // follow the lattice, known to a few tenths of a nm at an edge, the
 // refined edges the heights.
-func assignNearSteps(comp []int32, steps []stepLine, dist []float64, w, h int, band float64) {
+func assignNearSteps(comp []int32, steps []stepLine, dist []float32, w, h int, band float64) {
 	for j := 0; j < h; j++ {
 		for i := 0; i < w; i++ {
 			q := j*w + i
-			if dist[q] > band {
+			if float64(dist[q]) > band {
 				continue
 			}
 			p := pt{float64(i) + 0.5, float64(j) + 0.5}
@@ -263,15 +269,17 @@ func sideOf(p pt, line []pt) (float64, bool) {
 }
 
 // stepContrastNM is how far from a step edge its own contrast (a dark
-// groove or a bright rim, and the lattice cut off at the edge) is taken
+// groove or a bright rim, and the lattice cut off at the edge: where the
+// rows run along the edge, the last rows look unlike the rest) is taken
 // out of the residual before defects are sought.
-const stepContrastNM = 0.8
+const stepContrastNM = 3.0
 
 // removeStepContrast subtracts from r, near each step edge, the edge's
 // own profile across it: the median of r over pixels at the same distance
-// from the edge (bins of 0.05 nm) within ±2 nm along it. A defect on the
-// edge is local and stays; a groove or rim that runs along the edge goes.
-func removeStepContrast(r *grid, steps []stepLine, a [2][2]float64) {
+// from the edge (bins of 0.05 nm) within ±2 nm along it, the defects found
+// so far (exclude, when not nil) left out. A defect by the edge is local
+// and stays; a groove or rim that runs along the edge goes.
+func removeStepContrast(r *grid, steps []stepLine, a [2][2]float64, exclude []bool) {
 	const binD, binS, window = 0.05, 1.0, 2
 	nd := int(math.Ceil(stepContrastNM / binD))
 	type where struct {
@@ -319,6 +327,9 @@ func removeStepContrast(r *grid, steps []stepLine, a [2][2]float64) {
 	type cell struct{ step, arc, dbin int }
 	values := map[cell][]float64{}
 	for key, w := range at {
+		if exclude != nil && exclude[key] {
+			continue // a defect by the edge is no part of the edge's profile
+		}
 		c := cell{w.step, w.arc, w.dbin}
 		values[c] = append(values[c], r.v[key])
 	}
@@ -339,5 +350,3 @@ func removeStepContrast(r *grid, steps []stepLine, a [2][2]float64) {
 		r.v[key] -= profile[cell{w.step, w.arc, w.dbin}]
 	}
 }
-
-var dbgStep func(line []pt, moves []float64, hl, hr float64)

@@ -239,7 +239,10 @@ func Render(p Params) (*Image, error) {
 	}
 	// Defects: dark ones snap to their dimer and remove the dimers under
 	// them.
-	type blob struct{ x, y, amp, sd float64 }
+	type blob struct {
+		x, y, amp, sd float64
+		dark          bool
+	}
 	var blobs []blob
 	for _, d := range p.Defects {
 		if !(d.SizeNM > 0) {
@@ -259,9 +262,9 @@ func Render(p Params) (*Image, error) {
 					}
 				}
 			}
-			blobs = append(blobs, blob{d.AtNM[0], d.AtNM[1], -d.HeightNM, sd})
+			blobs = append(blobs, blob{d.AtNM[0], d.AtNM[1], -d.HeightNM, sd, true})
 		} else {
-			blobs = append(blobs, blob{d.AtNM[0], d.AtNM[1], d.HeightNM, sd})
+			blobs = append(blobs, blob{d.AtNM[0], d.AtNM[1], d.HeightNM, sd, false})
 		}
 		img.Defects = append(img.Defects, d)
 	}
@@ -277,6 +280,28 @@ func Render(p Params) (*Image, error) {
 	rowAmp := c.RowNM * math.Exp(-2*math.Pi*math.Pi*c.TipSD*c.TipSD/(ts[0].acrossPeriod*ts[0].acrossPeriod))
 	hOff := hOffset()
 	g := func(d, sd float64) float64 { return math.Exp(-d * d / (2 * sd * sd)) }
+	// Blobs in a grid of cells as wide as the widest reach (5 SD, or the
+	// removed dimers' reach for dark ones), so that a pixel looks at its
+	// own cell's neighbours only.
+	cell := 1.0
+	for _, b := range blobs {
+		cell = math.Max(cell, 5*b.sd+2)
+	}
+	buckets := map[[2]int][]int{}
+	for k, b := range blobs {
+		key := [2]int{int(math.Floor(b.x / cell)), int(math.Floor(b.y / cell))}
+		buckets[key] = append(buckets[key], k)
+	}
+	near := func(x, y float64, fn func(b blob)) {
+		cx, cy := int(math.Floor(x/cell)), int(math.Floor(y/cell))
+		for dy := -1; dy <= 1; dy++ {
+			for dx := -1; dx <= 1; dx++ {
+				for _, k := range buckets[[2]int{cx + dx, cy + dy}] {
+					fn(blobs[k])
+				}
+			}
+		}
+	}
 	rng := rand.New(rand.NewPCG(p.Seed, 0x5eed))
 	for j := 0; j < p.Height; j++ {
 		line := p.LineNoiseNM * rng.NormFloat64()
@@ -291,11 +316,22 @@ func Render(p Params) (*Image, error) {
 			// Terrace lattice: the 3 x 3 dimers around the point whose
 			// centres lie on this terrace.
 			k0, l0 := t.cell(x, y)
+			nearDark := false
+			var bump float64
+			if len(blobs) > 0 {
+				near(x, y, func(bl blob) {
+					nearDark = nearDark || bl.dark
+					ddx, ddy := x-bl.x, y-bl.y
+					if r2 := ddx*ddx + ddy*ddy; r2 < 25*bl.sd*bl.sd {
+						bump += bl.amp * math.Exp(-r2/(2*bl.sd*bl.sd))
+					}
+				})
+			}
 			var lat float64
 			for dk := -1; dk <= 1; dk++ {
 				for dl := -1; dl <= 1; dl++ {
 					k, l := k0+dk, l0+dl
-					if len(t.missing) > 0 && t.missing[[2]int{k, l}] {
+					if nearDark && t.missing[[2]int{k, l}] {
 						continue
 					}
 					q := t.centre(k, l)
@@ -314,12 +350,7 @@ func Render(p Params) (*Image, error) {
 			b := dx*t.across[0] + dy*t.across[1]
 			lat += rowAmp * math.Cos(2*math.Pi*b/t.acrossPeriod)
 			z += lat
-			for _, bl := range blobs {
-				ddx, ddy := x-bl.x, y-bl.y
-				if r2 := ddx*ddx + ddy*ddy; r2 < 25*bl.sd*bl.sd {
-					z += bl.amp * math.Exp(-r2/(2*bl.sd*bl.sd))
-				}
-			}
+			z += bump
 			z += p.NoiseNM * rng.NormFloat64()
 			img.Z[j*p.Width+i] = z
 		}
