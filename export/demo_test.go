@@ -110,7 +110,11 @@ func TestDemoPlanExports(t *testing.T) {
 		found := false
 		for _, l := range lines {
 			f := strings.Fields(l)
-			if len(f) >= 2 && f[0] == strconv.Itoa(i+1) && f[1] == s.Fiducial {
+			where := s.Fiducial
+			if s.Registration == planner.RegLocal {
+				where = "local"
+			}
+			if len(f) >= 2 && f[0] == strconv.Itoa(i+1) && f[1] == where {
 				found = true
 				break
 			}
@@ -201,7 +205,7 @@ func TestDemoPDFListsStrokesInCSVOrder(t *testing.T) {
 	got := map[int][]string{}
 	seg := 0
 	for _, l := range strings.Split(text[start:], "\n") {
-		if strings.HasPrefix(strings.TrimSpace(l), "Write time") {
+		if strings.HasPrefix(strings.TrimSpace(l), "Session time") {
 			break
 		}
 		if m := heading.FindStringSubmatch(l); m != nil {
@@ -222,7 +226,7 @@ func TestDemoPDFListsStrokesInCSVOrder(t *testing.T) {
 	}
 	// And the segment table names each segment's numbers in full.
 	for i, s := range p.Segments {
-		if r := "strokes " + numberRanges(segmentNumbers(&s, StrokeNumbers(p))); !strings.Contains(text, r) {
+		if r := plural("stroke", len(s.Strokes)) + " " + numberRanges(segmentNumbers(&s, StrokeNumbers(p))); !strings.Contains(text, r) {
 			t.Errorf("segment %d: the PDF does not say %q", i+1, r)
 		}
 	}

@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 )
@@ -103,7 +104,7 @@ func TestProfileSaveLoadRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got != p {
+	if !reflect.DeepEqual(got, p) {
 		t.Errorf("LoadProfile(SaveProfile(p)) = %+v\nwant %+v", got, p)
 	}
 	// No temporary file is left behind.
@@ -279,5 +280,20 @@ func TestValidatePlausibleRanges(t *testing.T) {
 		if err := p.Validate(); err != nil {
 			t.Errorf("preset %s: %v", name, err)
 		}
+	}
+}
+
+// Issue 16: --profile read a 1 GiB file whole before refusing it.
+func TestLoadProfileRefusesAGigabyte(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "big.json")
+	f, _ := os.Create(path)
+	f.WriteString(`{"format": "dimerpath-profile", "version": 1, "notes": "`)
+	if err := f.Truncate(1 << 30); err != nil {
+		t.Skip("no sparse files here:", err)
+	}
+	f.Close()
+	_, err := LoadProfile(path)
+	if !errors.Is(err, ErrInvalidProfile) || !strings.Contains(err.Error(), "big.json: the file holds 1 GiB, more than the 1 MiB limit") {
+		t.Errorf("LoadProfile(1 GiB) = %v", err)
 	}
 }

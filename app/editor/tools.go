@@ -46,7 +46,7 @@ var Tools = []ToolInfo{
 	{ToolSite, "Site", 's', "Click or drag to depassivate single H sites."},
 	{ToolDimer, "Dimer", 'd', "Click or drag to depassivate both H sites of each dimer."},
 	{ToolWindow, "Window", 'w', "Click to place a dopant window on whole dimers of one row."},
-	{ToolRect, "Rectangle", 'r', "Drag from corner to corner; corners snap between dimers and between rows."},
+	{ToolRect, "Rectangle", 'r', "Drag from corner to corner; each edge snaps to the nearest edge between dimers or between rows."},
 	{ToolPolygon, "Polygon", 'p', "Click the vertices; click the first again or press Enter to close, Esc to cancel."},
 	{ToolLine, "Line", 'l', "Drag, or click the vertices and press Enter (or click the last again); width in the options."},
 	{ToolArray, "Array", 'a', "Click to place an n x m array at a pitch counted in dimers and rows."},
@@ -203,7 +203,7 @@ func (s *Session) Press(p r2.Point) {
 		g := &gesture{tool: s.Tool, start: p, last: p, pressed: true, target: -1}
 		s.gesture = g
 		if s.Tool != ToolEraser {
-			g.target, g.created = s.paintTarget(false)
+			g.target, g.created = s.paintTarget(nil)
 		}
 		s.brush(p, p)
 	case ToolRect:
@@ -404,18 +404,63 @@ func pts(ps ...r2.Point) [][2]float64 {
 	return out
 }
 
-// paintTarget returns the region a painting tool draws into: the active
-// region, or (for windows, an active donor region or the first donor
-// region of the template's species) a new one. created says a region was
-// added; it is committed with the edit that paints it.
-func (s *Session) paintTarget(window bool) (int, bool) {
+// PadMinNM is the side from which a rectangle or polygon drawn into a
+// new region is taken for a contact pad: pads are hundreds of nm across,
+// islands and gates tens (the demo's pads are 700 nm, its island 20 nm).
+const PadMinNM = 100
+
+// newRegionRole guesses the role of a region made for shape sh (nil for
+// brush strokes) and says why, for the notice: a window (or an array of
+// them) goes to a donor region, a line is a lead, a rectangle or polygon
+// PadMinNM or more a side a pad, anything else a device.
+func newRegionRole(sh *design.Shape) (design.Role, string) {
+	if sh == nil {
+		return design.RoleDevice, "painted sites"
+	}
+	switch sh.Kind {
+	case design.ShapePolyline:
+		return design.RoleLead, "a line"
+	case design.ShapeRect, design.ShapePolygon:
+		b := r2.EmptyRect()
+		for _, q := range sh.Points {
+			b = b.AddPoint(r2.Point{X: q[0], Y: q[1]})
+		}
+		if sz := b.Size(); sz.X >= PadMinNM && sz.Y >= PadMinNM {
+			return design.RolePad, fmt.Sprintf("a %s %d nm or more a side", ShapeName(*sh), PadMinNM)
+		}
+		return design.RoleDevice, fmt.Sprintf("a %s under %d nm a side", ShapeName(*sh), PadMinNM)
+	}
+	return design.RoleDevice, "a " + ShapeName(*sh)
+}
+
+// regionBaseName is the name a new region of role r starts from, made
+// unique by a number: "lead", "lead 2".
+func regionBaseName(r design.Role) string {
+	switch r {
+	case design.RoleDevice, design.RoleGate, design.RoleLead, design.RolePad:
+		return string(r)
+	}
+	return "region"
+}
+
+// paintTarget returns the region a painting tool draws shape sh into
+// (nil for brush strokes): the active region, or (for windows, an active
+// donor region or the first donor region of the template's species) a
+// new one, named uniquely after the role newRegionRole infers from sh,
+// with a Notice saying so. created says a region was added; it is
+// committed with the edit that paints it.
+func (s *Session) paintTarget(sh *design.Shape) (int, bool) {
 	v := s.Variant()
 	a := s.Active()
+	window := sh != nil && (sh.Kind == design.ShapeWindow || (sh.Kind == design.ShapeArray && sh.Array != nil && sh.Array.Of != nil && sh.Array.Of.Kind == design.ShapeWindow))
 	if !window {
 		if a >= 0 {
 			return a, false
 		}
-		return s.addRegion("region", design.RoleDevice), true
+		role, why := newRegionRole(sh)
+		i := s.addRegion(regionBaseName(role), role)
+		s.Notice = fmt.Sprintf("New region %q, role %s (from %s): rename it or change its role in Regions.", v.Regions[i].Name, role.Name(), why)
+		return i, true
 	}
 	tpl, _ := TemplateOf(s.d, s.Opts.Template)
 	if a >= 0 && v.Regions[a].Role == design.RoleDonor {
@@ -430,14 +475,14 @@ func (s *Session) paintTarget(window bool) (int, bool) {
 	i := s.addRegion(tpl.Species+" donors", design.RoleDonor)
 	v.Regions[i].Species = tpl.Species
 	v.Regions[i].Mode = design.ModeAP
+	s.Notice = fmt.Sprintf("New region %q for %s windows, role %s, atomic precision.", v.Regions[i].Name, tpl.Species, design.RoleDonor.Name())
 	return i, true
 }
 
 // addShape adds sh to the paint target and commits. The shape's sites
 // are taken off the region's erased sites, so a new shape shows whole.
 func (s *Session) addShape(sh design.Shape, what string) {
-	window := sh.Kind == design.ShapeWindow || (sh.Kind == design.ShapeArray && sh.Array.Of.Kind == design.ShapeWindow)
-	i, _ := s.paintTarget(window)
+	i, _ := s.paintTarget(&sh)
 	sites, err := ShapeSites(s.surf, s.d, &sh)
 	if err != nil {
 		s.Err = err
@@ -554,18 +599,23 @@ func (s *Session) snapDimerCentre(p r2.Point) r2.Point {
 	return p
 }
 
-// snapRect returns the corners of the smallest rectangle made of whole
-// lattice cells (one dimer of one row each) that holds the cells under a
-// and b, on the terrace under a (else under b, else the first): its
-// edges run midway between dimers and midway between rows, so it holds
-// whole dimers of whole rows.
+// snapRect returns the corners of the rectangle drawn from a to b with
+// each edge moved to the nearest cell edge (midway between dimers along
+// the rows, midway between rows across them), on the terrace under a
+// (else under b, else the first): it holds whole dimers of whole rows,
+// and is the area it writes (lattice.Frame.NearestCellRect).
 func (s *Session) snapRect(a, b r2.Point) (lo, hi r2.Point) {
+	r := s.surf.Frame(s.terraceFor(a, b)).NearestCellRect(a, b)
+	return r.Lo(), r.Hi()
+}
+
+// terraceFor returns the terrace under a, else under b, else the first.
+func (s *Session) terraceFor(a, b r2.Point) int {
 	ti := s.surf.TerraceAt(a)
 	if ti < 0 {
 		ti = max(s.surf.TerraceAt(b), 0)
 	}
-	r := s.surf.Frame(ti).SnapRect(a, b)
-	return r.Lo(), r.Hi()
+	return ti
 }
 
 // Preview returns the shape the current tool is drawing, or the brush

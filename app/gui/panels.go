@@ -15,7 +15,6 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
 
-	"dimerpath/app/editor"
 	"dimerpath/app/render"
 	"dimerpath/lattice/design"
 )
@@ -138,24 +137,27 @@ func showErr(l *widget.Label, err error) {
 // --- Regions ---
 
 type regionsPanel struct {
-	u        *UI
-	content  fyne.CanvasObject
-	list     *widget.List
-	empty    *widget.Label
-	form     *fyne.Container
-	name     *widget.Entry
-	role     *widget.Select
-	mode     *widget.Select
-	species  *widget.Select
-	tol      *widget.Entry
-	info     *widget.Label
-	msg      *widget.Label
-	shape    *widget.Label
-	shapeBox *fyne.Container
-	gaps     *fyne.Container
-	addGap   *widget.Select
-	shown    int // region the form shows
-	updating bool
+	u       *UI
+	content fyne.CanvasObject
+	list    *widget.List
+	empty   *widget.Label
+	form    *fyne.Container
+	split   *container.Split
+	// formScroll holds form under the list, shown while a region is.
+	formScroll *container.Scroll
+	name       *keyEntry
+	role       *widget.Select
+	mode       *widget.Select
+	species    *widget.Select
+	tol        *keyEntry
+	colour     *canvas.Rectangle // the selected region's swatch
+	info       *widget.Label
+	msg        *widget.Label
+	shape      *shapeEditor
+	gaps       *fyne.Container
+	addGap     *widget.Select
+	shown      int // region the form shows
+	updating   bool
 }
 
 func newRegionsPanel(u *UI) *regionsPanel {
@@ -178,7 +180,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			}
 			c := o.(*fyne.Container)
 			c.Objects[0].(*widget.Label).SetText(v.Regions[i].Name)
-			c.Objects[1].(*fyne.Container).Objects[0].(*canvas.Rectangle).FillColor = render.RegionColor(i)
+			c.Objects[1].(*fyne.Container).Objects[0].(*canvas.Rectangle).FillColor = p.u.Session.RegionColour(i)
 			c.Objects[1].(*fyne.Container).Objects[0].Refresh()
 			c.Objects[2].(*widget.Label).SetText(shortCount(p.u.Session.RegionSites(i).Count()) + " sites")
 		})
@@ -189,7 +191,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	}
 	p.empty = mutedLabel("No regions yet. Pick a painting tool on the left (Site S, Dimer D, Window W, Rectangle R, …) and draw on the lattice: the first stroke makes a region. Or press Add.")
 
-	p.name = widget.NewEntry()
+	p.name = u.newEntry()
 	p.name.OnChanged = func(s string) {
 		if !p.updating && p.shown >= 0 {
 			showErr(p.msg, p.u.Session.RenameRegion(p.shown, s))
@@ -217,7 +219,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			}
 		}
 	})
-	p.species = widget.NewSelect([]string{"none", "P (phosphine)", "As (arsine)"}, func(s string) {
+	p.species = widget.NewSelect([]string{dopantDefault, "P (phosphine)", "As (arsine)", dopantNone}, func(s string) {
 		if p.updating || p.shown < 0 {
 			return
 		}
@@ -227,10 +229,12 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			sp = "P"
 		case strings.HasPrefix(s, "As"):
 			sp = "As"
+		case s == dopantNone:
+			sp = design.NoDopant
 		}
 		showErr(p.msg, p.u.Session.SetRegionSpecies(p.shown, sp))
 	})
-	p.tol = widget.NewEntry()
+	p.tol = u.newEntry()
 	p.tol.SetPlaceHolder("mode default")
 	p.tol.OnChanged = func(s string) {
 		if p.updating || p.shown < 0 {
@@ -248,10 +252,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	}
 	p.info = mutedLabel("")
 	p.msg = errorLabel()
-	p.shape = wrapLabel("")
-	delShape := widget.NewButtonWithIcon("Delete shape", theme.DeleteIcon(), func() { p.u.Session.DeleteSelectedShape() })
-	p.shapeBox = container.NewBorder(nil, nil, nil, delShape, p.shape)
-	p.shapeBox.Hide()
+	p.shape = newShapeEditor(u)
 	p.gaps = container.NewVBox()
 	p.addGap = widget.NewSelect(nil, func(other string) {
 		if p.updating || p.shown < 0 || other == "" {
@@ -262,14 +263,19 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		p.addGap.ClearSelected()
 	})
 	p.addGap.PlaceHolder = "Declare a tunnel gap to…"
+	p.colour = canvas.NewRectangle(color.Black)
+	p.colour.SetMinSize(fyne.NewSize(40, 20))
+	p.colour.CornerRadius = 3
+	pick := widget.NewButton("Change…", p.pickColour)
 	form := widget.NewForm(
 		widget.NewFormItem("Name", p.name),
+		widget.NewFormItem("Colour", container.NewHBox(container.NewCenter(p.colour), pick)),
 		widget.NewFormItem("Role", p.role),
 		widget.NewFormItem("Write mode", p.mode),
 		widget.NewFormItem("Dopant", p.species),
 		widget.NewFormItem("Tolerance ± nm", p.tol),
 	)
-	p.form = container.NewVBox(widget.NewSeparator(), heading("Selected region"), form, p.msg, p.info, p.shapeBox,
+	p.form = container.NewVBox(widget.NewSeparator(), heading("Selected region"), form, p.msg, p.info, p.shape.box,
 		p.gaps, p.addGap,
 		container.NewGridWithColumns(2,
 			widget.NewButtonWithIcon("Zoom to", theme.ZoomFitIcon(), u.zoomToSelection),
@@ -278,12 +284,78 @@ func newRegionsPanel(u *UI) *regionsPanel {
 					p.u.Session.DeleteRegions(p.u.Session.Selection()...)
 				}
 			})))
-	add := widget.NewButtonWithIcon("Add region", theme.ContentAddIcon(), func() {
-		u.Session.AddRegion("region", design.RoleDevice)
-	})
+	add := widget.NewButtonWithIcon("Add region", theme.ContentAddIcon(), p.askNewRegion)
 	top := container.NewVBox(container.NewBorder(nil, nil, heading("Regions of this variant"), add), p.empty)
-	p.content = container.NewBorder(top, p.form, nil, nil, p.list)
+	// The selected region's card scrolls under the list: with a shape's
+	// fields it is taller than a laptop's panel.
+	p.formScroll = container.NewVScroll(p.form)
+	p.formScroll.Hide()
+	p.split = container.NewVSplit(p.list, p.formScroll)
+	p.split.Offset = 1
+	p.content = container.NewBorder(top, nil, nil, nil, p.split)
 	return p
+}
+
+// The Dopant choices beside the species: the design's default dopant
+// (the region names none: its δ-layer takes the design's), and no dopant
+// (a region opened for another reason, written in the first step unless
+// the design file names another).
+const (
+	dopantDefault = "design default"
+	dopantNone    = "none (no dopant)"
+)
+
+// pickColour offers a colour for the selected region; the region keeps
+// it (it is saved with the design), whatever happens to the others.
+func (p *regionsPanel) pickColour() {
+	s, i := p.u.Session, p.shown
+	if i < 0 {
+		return
+	}
+	name := s.Variant().Regions[i].Name
+	d := dialog.NewColorPicker("Colour of "+name, "The region is drawn in this colour; it is saved with the design.", func(c color.Color) {
+		showErr(p.msg, s.SetRegionColour(i, render.ColourHex(color.NRGBAModel.Convert(c).(color.NRGBA))))
+	}, p.u.Win)
+	d.Advanced = true
+	d.SetColor(s.RegionColour(i))
+	d.Show()
+}
+
+// askNewRegion asks for a new region's role and name (offering a
+// unique name for the role chosen) and adds it, selected.
+func (p *regionsPanel) askNewRegion() {
+	s := p.u.Session
+	name := widget.NewEntry()
+	var roles []string
+	for _, r := range design.Roles {
+		roles = append(roles, roleOf(r))
+	}
+	roleOfName := func(n string) design.Role {
+		for _, r := range design.Roles {
+			if roleOf(r) == n {
+				return r
+			}
+		}
+		return design.RoleDevice
+	}
+	typed := false
+	name.OnChanged = func(string) { typed = true }
+	role := widget.NewSelect(roles, func(n string) {
+		if !typed || strings.TrimSpace(name.Text) == "" {
+			name.SetText(s.NewRegionName(roleOfName(n)))
+			typed = false
+		}
+	})
+	role.SetSelected(roleOf(design.RoleDevice))
+	items := []*widget.FormItem{widget.NewFormItem("Role", role), widget.NewFormItem("Name", name)}
+	d := dialog.NewForm("Add a region", "Add", "Cancel", items, func(ok bool) {
+		if ok {
+			s.AddRegion(strings.TrimSpace(name.Text), roleOfName(role.Selected))
+		}
+	}, p.u.Win)
+	d.Resize(fyne.NewSize(420, 220))
+	d.Show()
+	p.u.Win.Canvas().Focus(name)
 }
 
 func (p *regionsPanel) refresh() {
@@ -300,19 +372,26 @@ func (p *regionsPanel) refresh() {
 	a := s.Active()
 	if a < 0 {
 		p.list.UnselectAll()
-		p.form.Hide()
+		p.formScroll.Hide()
+		p.split.SetOffset(1) // the list alone
 		p.shown = -1
 		return
 	}
 	p.list.Select(a)
 	p.list.ScrollTo(a)
-	p.form.Show()
+	if !p.formScroll.Visible() {
+		p.formScroll.Show()
+		p.split.SetOffset(0.3)
+		p.split.Refresh()
+	}
 	r := v.Regions[a]
 	if p.shown != a || p.name.Text != r.Name {
 		// Rewriting the entry while the user types in it would move the
 		// cursor; only do it for another region or an undone rename.
 		p.name.SetText(r.Name)
 	}
+	p.colour.FillColor = s.RegionColour(a)
+	p.colour.Refresh()
 	p.role.SetSelected(roleOf(r.Role))
 	p.mode.SetSelected(modeOf(r.Mode))
 	switch r.Species {
@@ -320,8 +399,10 @@ func (p *regionsPanel) refresh() {
 		p.species.SetSelected("P (phosphine)")
 	case "As":
 		p.species.SetSelected("As (arsine)")
+	case design.NoDopant:
+		p.species.SetSelected(dopantNone)
 	default:
-		p.species.SetSelected("none")
+		p.species.SetSelected(dopantDefault)
 	}
 	tol := ""
 	if r.ToleranceNM > 0 {
@@ -340,20 +421,18 @@ func (p *regionsPanel) refresh() {
 		info += fmt.Sprintf(", %s erased", groupDigits(r.Erased.Count()))
 	}
 	if b := s.RegionBounds(a); !b.IsEmpty() {
-		info += fmt.Sprintf("; extent %s x %s", formatLength(b.Size().X), formatLength(b.Size().Y))
+		info += fmt.Sprintf("; writes %s × %s", formatLength(b.Size().X), formatLength(b.Size().Y))
 	}
 	if len(s.Selection()) > 1 {
 		info += fmt.Sprintf(". %d regions selected.", len(s.Selection()))
 	}
 	p.info.SetText(info)
 	p.refreshGaps()
-	if i, k := s.SelectedShape(); i == a && k >= 0 {
-		b := s.SelectedShapeBounds()
-		p.shape.SetText(fmt.Sprintf("Shape %d of %d: %s, %s x %s. Drag it with the Select tool to move it.", k+1, len(r.Shapes), editor.ShapeName(r.Shapes[k]), formatLength(b.Size().X), formatLength(b.Size().Y)))
-		p.shapeBox.Show()
-	} else {
-		p.shapeBox.Hide()
-	}
+	p.shape.refresh(a)
+	// The card may have been shown, hidden or rebuilt for another kind
+	// of shape: lay the form out again (a container shown later keeps
+	// the zero size it was laid out with while hidden).
+	p.form.Refresh()
 }
 
 // refreshGaps lists the selected region's tunnel gaps with their
@@ -583,23 +662,28 @@ type marksPanel struct {
 	content  fyne.CanvasObject
 	fids     *widget.List
 	fidSel   int
-	fidName  *widget.Entry
-	fidX     *widget.Entry
-	fidY     *widget.Entry
+	fidName  *keyEntry
+	fidX     *keyEntry
+	fidY     *keyEntry
 	fidMsg   *widget.Label
 	fidForm  *fyne.Container
 	terrs    *widget.List
 	terrSel  int
-	terrName *widget.Entry
+	terrName *keyEntry
 	terrRows *widget.RadioGroup
-	terrX    *widget.Entry
-	terrY    *widget.Entry
+	terrX    *keyEntry
+	terrY    *keyEntry
 	terrMsg  *widget.Label
 	terrForm *fyne.Container
 	fidEmpty *widget.Label
-	name     *widget.Entry
+	name     *keyEntry
 	nameMsg  *widget.Label
 	field    *widget.Label
+	fieldW   *keyEntry
+	fieldH   *keyEntry
+	fieldMsg *widget.Label
+	shownW   float64 // the field size the entries were last filled with
+	shownH   float64
 	updating bool
 }
 
@@ -619,7 +703,7 @@ func newMarksPanel(u *UI) *marksPanel {
 			}
 		})
 	p.fids.OnSelected = func(i widget.ListItemID) { p.fidSel = i; p.showFiducial() }
-	p.fidName, p.fidX, p.fidY = widget.NewEntry(), widget.NewEntry(), widget.NewEntry()
+	p.fidName, p.fidX, p.fidY = u.newEntry(), u.newEntry(), u.newEntry()
 	p.fidMsg = errorLabel()
 	p.fidForm = container.NewVBox(
 		widget.NewForm(widget.NewFormItem("Name", p.fidName), widget.NewFormItem("x (nm)", p.fidX), widget.NewFormItem("y (nm)", p.fidY)),
@@ -661,7 +745,7 @@ func newMarksPanel(u *UI) *marksPanel {
 			}
 		})
 	p.terrs.OnSelected = func(i widget.ListItemID) { p.terrSel = i; p.showTerrace() }
-	p.terrName, p.terrX, p.terrY = widget.NewEntry(), widget.NewEntry(), widget.NewEntry()
+	p.terrName, p.terrX, p.terrY = u.newEntry(), u.newEntry(), u.newEntry()
 	p.terrRows = widget.NewRadioGroup([]string{"x", "y"}, nil)
 	p.terrRows.Horizontal = true
 	p.terrMsg = errorLabel()
@@ -684,7 +768,7 @@ func newMarksPanel(u *UI) *marksPanel {
 	terrBox := container.NewBorder(container.NewVBox(heading("Terraces"), mutedLabel("Across a single-height step the dimer rows turn by 90°. Outline a terrace with the Terrace tool (T).")), p.terrForm, nil, nil, p.terrs)
 	split := container.NewVSplit(fidBox, terrBox)
 	split.Offset = 0.45
-	p.name = widget.NewEntry()
+	p.name = u.newEntry()
 	p.name.OnChanged = func(s string) {
 		if !p.updating {
 			showErr(p.nameMsg, p.u.Session.SetDesignName(s))
@@ -692,7 +776,14 @@ func newMarksPanel(u *UI) *marksPanel {
 	}
 	p.nameMsg = errorLabel()
 	p.field = mutedLabel("")
-	top := container.NewVBox(heading("Design"), widget.NewForm(widget.NewFormItem("Name", p.name)), p.nameMsg, p.field, widget.NewSeparator())
+	p.fieldW, p.fieldH = u.newEntry(), u.newEntry()
+	p.fieldMsg = errorLabel()
+	p.fieldW.OnSubmitted = func(string) { p.applyField() }
+	p.fieldH.OnSubmitted = func(string) { p.applyField() }
+	applyField := widget.NewButtonWithIcon("Apply", theme.ConfirmIcon(), p.applyField)
+	fieldRow := container.NewBorder(nil, nil, nil, applyField, container.NewGridWithColumns(2,
+		widget.NewForm(widget.NewFormItem("Field width (nm)", p.fieldW)), widget.NewForm(widget.NewFormItem("height (nm)", p.fieldH))))
+	top := container.NewVBox(heading("Design"), widget.NewForm(widget.NewFormItem("Name", p.name)), p.nameMsg, fieldRow, p.fieldMsg, p.field, widget.NewSeparator())
 	p.content = container.NewBorder(top, nil, nil, nil, split)
 	return p
 }
@@ -706,6 +797,14 @@ func (p *marksPanel) refresh() {
 	p.updating = false
 	p.field.SetText(fmt.Sprintf("Field %s x %s, %s, %s. The name is printed on every plan and report.",
 		formatLength(d.Field.WidthNM), formatLength(d.Field.HeightNM), plural(len(d.Terraces), "terrace"), plural(len(d.Variants), "variant")))
+	if d.Field.WidthNM != p.shownW || d.Field.HeightNM != p.shownH {
+		// Only when the field changed (an edit, undo, another design), so
+		// a size being typed is not overwritten.
+		p.shownW, p.shownH = d.Field.WidthNM, d.Field.HeightNM
+		p.fieldW.SetText(trimZeros(fmt.Sprintf("%.3f", d.Field.WidthNM)))
+		p.fieldH.SetText(trimZeros(fmt.Sprintf("%.3f", d.Field.HeightNM)))
+		p.fieldMsg.Hide()
+	}
 	p.fids.Refresh()
 	p.terrs.Refresh()
 	if len(p.u.Session.Design().Fiducials) == 0 {
@@ -723,6 +822,22 @@ func (p *marksPanel) refresh() {
 	}
 	p.showFiducial()
 	p.showTerrace()
+}
+
+// applyField sets the field size typed, if both values are numbers the
+// design accepts.
+func (p *marksPanel) applyField() {
+	w, err := parseNumber("field width", p.fieldW.Text)
+	if err != nil {
+		showErr(p.fieldMsg, err)
+		return
+	}
+	h, err := parseNumber("field height", p.fieldH.Text)
+	if err != nil {
+		showErr(p.fieldMsg, err)
+		return
+	}
+	showErr(p.fieldMsg, p.u.Session.SetFieldSize(w, h))
 }
 
 func (p *marksPanel) showFiducial() {

@@ -2,6 +2,7 @@ package gui
 
 import (
 	"math"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -35,7 +36,7 @@ func TestProfileEditorRefusesBadValues(t *testing.T) {
 		if e.msg.Hidden || !strings.Contains(e.msg.Text, c.msg) {
 			t.Errorf("%s (%q): message %q (hidden %v), want one containing %q", c.name, c.text, e.msg.Text, e.msg.Hidden, c.msg)
 		}
-		if u.Session.Profile != before {
+		if !reflect.DeepEqual(u.Session.Profile, before) {
 			t.Fatalf("%s: the profile changed although Apply was refused", c.name)
 		}
 	}

@@ -200,6 +200,11 @@ func (u *UI) changed(c editor.Change) {
 	if c&editor.ChangeHistory != 0 {
 		u.scheduleCheck()
 	}
+	u.reclaimFocus()
+	if u.Session.Notice != "" {
+		u.hintLabel.SetText(u.Session.Notice)
+		u.Session.Notice = ""
+	}
 	if u.Session.Err != nil {
 		u.hintLabel.SetText("Problem: " + u.Session.Err.Error())
 		u.Session.Err = nil
@@ -369,7 +374,7 @@ func (u *UI) refreshHint() {
 		if a := s.Active(); a >= 0 {
 			hint = fmt.Sprintf("Adds to %s (Esc for a new region). %s", s.Variant().Regions[a].Name, hint)
 		} else {
-			hint = "Starts a new region. " + hint
+			hint = newRegionHint(s.Tool) + hint
 		}
 	case editor.ToolSelect:
 		if i, k := s.SelectedShape(); i >= 0 {
@@ -378,6 +383,18 @@ func (u *UI) refreshHint() {
 		}
 	}
 	u.hintLabel.SetText(hint)
+}
+
+// newRegionHint says what region a tool's next stroke makes when none
+// is selected: its role comes from the tool (editor.Session's guess).
+func newRegionHint(t editor.Tool) string {
+	switch t {
+	case editor.ToolLine:
+		return "Starts a new lead. "
+	case editor.ToolRect, editor.ToolPolygon:
+		return fmt.Sprintf("Starts a new region: a contact pad when %d nm or more a side, else a device. ", editor.PadMinNM)
+	}
+	return "Starts a new device region. "
 }
 
 // deleteSelection removes the selected shape, or else the selected
@@ -393,7 +410,7 @@ func (u *UI) deleteSelection() {
 // optionEntry is a numeric option field: it applies the value when it
 // parses and the session accepts it, and says why not otherwise.
 func (u *UI) optionEntry(label string, value string, apply func(string) error) fyne.CanvasObject {
-	e := widget.NewEntry()
+	e := u.newEntry()
 	e.SetText(value)
 	msg := widget.NewLabel("")
 	msg.Wrapping = fyne.TextWrapWord
@@ -455,7 +472,7 @@ func (u *UI) optionsFor(t editor.Tool) []fyne.CanvasObject {
 		msg := errorLabel()
 		form := widget.NewForm()
 		field := func(label string, v int, set func(o *editor.ToolOptions, v int)) {
-			e := widget.NewEntry()
+			e := u.newEntry()
 			e.SetText(fmt.Sprint(v))
 			e.OnChanged = func(s string) {
 				x, err := parseInt(label, s)
@@ -541,7 +558,7 @@ func (u *UI) refreshLegend() {
 			rows = append(rows, legendRow(swatch(color.Transparent, 12, 12), fmt.Sprintf("… %d more in Regions", len(v.Regions)-maxRegions)))
 			break
 		}
-		rows = append(rows, legendRow(swatch(render.RegionColor(i), 12, 12), fmt.Sprintf("%s (%s)", legendName(r.Name), roleOf(r.Role))))
+		rows = append(rows, legendRow(swatch(u.Session.RegionColour(i), 12, 12), fmt.Sprintf("%s (%s)", legendName(r.Name), roleOf(r.Role))))
 	}
 	if len(v.Regions) == 0 {
 		rows = append(rows, legendRow(swatch(render.ColCleanH, 12, 12), "clean H-terminated surface"))

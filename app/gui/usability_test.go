@@ -15,6 +15,7 @@ import (
 	"dimerpath/app/editor"
 	"dimerpath/app/editor/editortest"
 	"dimerpath/export"
+	"dimerpath/lattice/design"
 )
 
 // Tests of what a lab user tripped over in a real session (see the GUI
@@ -40,6 +41,69 @@ func TestClickOnTheLatticeTakesTheKeys(t *testing.T) {
 	if got := u.Session.Variant().Regions[0].Name; got != "island" {
 		t.Errorf("the region was renamed to %q by a key meant for the lattice", got)
 	}
+}
+
+// Issue 13: Esc did nothing once a panel field had the focus. Esc,
+// Delete and the tool keys act on the lattice whenever the pointer is
+// over it or nothing is being typed.
+func TestKeysReachTheLatticeAfterPanels(t *testing.T) {
+	t.Run("Esc in a text field", func(t *testing.T) {
+		u, w := newTestUI(t, nil)
+		u.Session.Select(0)
+		c := w.Canvas()
+		c.Focus(u.regions.name)
+		c.Focused().TypedKey(&fyne.KeyEvent{Name: fyne.KeyEscape})
+		if len(u.Session.Selection()) != 0 {
+			t.Error("Esc in the region's name field did not deselect")
+		}
+		if c.Focused() != u.View {
+			t.Errorf("after Esc the keys go to %T, want the lattice view", c.Focused())
+		}
+	})
+	t.Run("a list, then Delete", func(t *testing.T) {
+		u, w := newTestUI(t, nil)
+		c := w.Canvas()
+		c.Focus(u.regions.list) // a click on the list focuses it
+		u.regions.list.Select(1)
+		if c.Focused() != u.View {
+			t.Fatalf("after choosing a region in the list the keys go to %T, want the lattice view", c.Focused())
+		}
+		c.Focused().TypedKey(&fyne.KeyEvent{Name: fyne.KeyDelete})
+		if n := len(u.Session.Variant().Regions); n != 1 {
+			t.Errorf("Delete after choosing a region in the list left %d regions, want 1", n)
+		}
+	})
+	t.Run("a choice, then a tool key", func(t *testing.T) {
+		u, w := newTestUI(t, nil)
+		u.Session.Select(0)
+		c := w.Canvas()
+		c.Focus(u.regions.role)
+		u.regions.role.SetSelected(roleOf(design.RoleGate))
+		if c.Focused() != u.View {
+			t.Fatalf("after choosing a role the keys go to %T, want the lattice view", c.Focused())
+		}
+		c.Focused().(fyne.Focusable).TypedRune('l')
+		if u.Session.Tool != editor.ToolLine {
+			t.Errorf("typing l picked %v, want the line tool", u.Session.Tool.Info().Name)
+		}
+	})
+	t.Run("the pointer over the lattice", func(t *testing.T) {
+		u, w := newTestUI(t, nil)
+		u.Session.Select(0)
+		c := w.Canvas()
+		c.Focus(u.regions.tol)
+		test.MoveMouse(c, screenPos(u, r2.Point{X: 150, Y: 150}))
+		if c.Focused() != u.View {
+			t.Fatalf("with the pointer over the lattice the keys go to %T, want the lattice view", c.Focused())
+		}
+		c.Focused().(fyne.Focusable).TypedRune('w')
+		if u.Session.Tool != editor.ToolWindow {
+			t.Errorf("typing w picked %v, want the window tool", u.Session.Tool.Info().Name)
+		}
+		if u.regions.tol.Text != "" {
+			t.Errorf("the tolerance field took the key: %q", u.regions.tol.Text)
+		}
+	})
 }
 
 // fieldAndLegend returns the field's and the legend's rectangles in
