@@ -31,7 +31,7 @@ and y, the rotation and the skew, each with its standard uncertainty. The
 local row direction divides the image into terraces (rows turn by 90° at a
 single-height step); their heights say which side of each step is up. What
 stands out once the lattice's Fourier peaks are taken out, beyond --threshold
-K robust standard deviations (default 5), is reported as a defect: bright or
+K robust standard deviations (default 6), is reported as a defect: bright or
 dark, with its position, apparent height and size, and a coarse class by
 appearance.
 

@@ -811,7 +811,6 @@ func reduceToCorner(at r2.Point, a [2][2]float64, row [2]float64, resolved bool)
 	return along.Mul(u).Add(across.Mul(v))
 }
 
-
 // release returns freed images to the heap at once on large images (the
 // big arrays hold no pointers, so a collection is cheap), so that the
 // analysis of a 4096 x 4096 image stays within its memory goal.

@@ -20,7 +20,7 @@ const (
 	// follows the dimers (kinks a dimer or a row deep) and has its own
 	// contrast; what of it is left in the residual looks like specks.
 	// Placement keeps away from step edges anyway.
-	stepBandNM = 0.5
+	stepBandNM = 0.4
 	// minSizeNM: a feature fitted narrower than this or two pixels (full
 	// width at half maximum) is noise, not a defect: an STM tip images
 	// nothing on the surface sharper, and a glitch along one scan line
@@ -28,8 +28,9 @@ const (
 	minSizeNM = 0.25
 	// DefaultThresholdSD is the default detection threshold: a defect is
 	// an extreme of the smoothed residual beyond this many robust SDs of
-	// it (common practice for peak finding on noisy images).
-	DefaultThresholdSD = 5.0
+	// it (common practice for peak finding on noisy images: 5–6; the
+	// residual near steps and strong defects is not quite noise).
+	DefaultThresholdSD = 6.0
 )
 
 // foundDefect is one defect, positions in image pixel-edge units.
@@ -166,8 +167,8 @@ func detectDefects(r *grid, stepDist []float32, exclude []bool, a [2][2]float64,
 			}
 		}
 		// A feature no Gaussian fits is kept only when it stands out
-		// twice as far as the threshold.
-		if f.height == 0 || (!fitted && math.Abs(c.score) < 2*k) {
+		// four times as far as the threshold.
+		if f.height == 0 || (!fitted && math.Abs(c.score) < 4*k) {
 			continue
 		}
 		out = append(out, f)
