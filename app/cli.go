@@ -59,6 +59,7 @@ const (
 	ExitOK       = 0 // success, and no error-level findings
 	ExitFindings = 1 // the command ran and found errors in the input (check)
 	ExitFailure  = 2 // bad usage, unreadable input, refused parameters
+	// ExitBug (3, bugs.go): a bug in dimerpath, reported with its details.
 )
 
 // Main runs the dimerpath command line and returns the exit status.
@@ -110,7 +111,9 @@ const defaultCommand = "gui"
 // every exported plan.
 var Version = "0.1.0"
 
-func runCommand(c *Command, args []string, env Env) int {
+func runCommand(c *Command, args []string, env Env) (code int) {
+	env.Args = args
+	defer recoverBug(env, c.Name, &code)
 	fs := flag.NewFlagSet(c.Name, flag.ContinueOnError)
 	fs.SetOutput(env.Stderr)
 	run := c.Flags(fs)

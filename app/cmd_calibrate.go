@@ -6,6 +6,7 @@ import (
 	"os"
 	"text/tabwriter"
 
+	"dimerpath/internal/atomicfile"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
@@ -35,6 +36,10 @@ or a preset name, rt or lt; default rt), and the result is written to -o for
 				}
 				if *out == "" {
 					fmt.Fprintln(env.Stderr, "dimerpath calibrate: -o PROFILE.json is required")
+					return ExitFailure
+				}
+				if err := atomicfile.Check(*out); err != nil {
+					fmt.Fprintln(env.Stderr, "dimerpath calibrate:", err)
 					return ExitFailure
 				}
 				m := design.Mode(*mode)

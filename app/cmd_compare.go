@@ -20,13 +20,15 @@ func init() {
 		Help: `Plans every variant of the design with the same instrument profile and seed,
 and prints one table row per variant: expected total write time with its
 P10-P90 spread, the time by kind (AP and FE writing, dwells, travel, mode
-switches, registrations, verification), the number of segments, and the
-probability that every dopant window takes exactly one donor. A variant that
+switches, registrations, verification), the number of segments, the
+probability that every dopant window takes exactly one donor and the
+coverage check; then what differs from the first variant (tunnel gap
+widths, regions, window counts). A variant that
 cannot be planned (for example one needing values beyond the profile's
 limits) gets its reason in place of a row; the exit status is then 2.
 
 With -o REPORT.pdf or REPORT.svg it also writes the comparison report: a
-table of every variant and, side by side on shared axes, the time
+table of every variant, what differs from the first and, side by side on shared axes, the time
 breakdowns, the P10-P90 spreads and the yields (--paper and --date set the
 PDF's page size and printed date). The report is written to a temporary
 file and renamed into place, also when some variant could not be planned
@@ -38,7 +40,7 @@ file and renamed into place, also when some variant could not be planned
 			rep.declare(fs, "also write the report to `FILE` (.pdf or .svg)")
 			return func(env Env, args []string) int {
 				// A bad report name is refused before anything is read.
-				opt, err := rep.options(export.FormatPDF, export.FormatSVG)
+				opt, err := rep.options([]export.Format{export.FormatPDF, export.FormatSVG})
 				if err != nil {
 					fmt.Fprintf(env.Stderr, "dimerpath compare: %v\n", err)
 					return ExitFailure
@@ -81,17 +83,19 @@ file and renamed into place, also when some variant could not be planned
 	})
 }
 
-// printComparison writes the comparison table, times in seconds.
+// printComparison writes the comparison table (times to the second),
+// each variant's coverage check, and then how each variant differs from
+// the first, so two rows that look alike still tell what changed.
 func printComparison(w io.Writer, results []planner.VariantResult) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprint(tw, "variant\ttotal\tP10\tP90\t")
 	for _, k := range planner.TimeKinds {
 		fmt.Fprintf(tw, "%s s\t", k.Short())
 	}
-	fmt.Fprintln(tw, "segments\tP(all windows good)\t")
+	fmt.Fprintln(tw, "segments\tP(all windows good)\tcoverage\t")
 	for _, r := range results {
 		if r.Err != nil {
-			fmt.Fprintf(tw, "%s\tnot planned\t%s\n", r.Variant, strings.Repeat("\t", len(planner.TimeKinds)+4))
+			fmt.Fprintf(tw, "%s\tnot planned\t%s\n", r.Variant, strings.Repeat("\t", len(planner.TimeKinds)+5))
 			continue
 		}
 		p := r.Plan
@@ -103,7 +107,32 @@ func printComparison(w io.Writer, results []planner.VariantResult) {
 		for _, k := range planner.TimeKinds {
 			fmt.Fprintf(tw, "%.0f\t", p.Breakdown.Seconds(k))
 		}
-		fmt.Fprintf(tw, "%d\t%s\t\n", len(p.Segments), all)
+		fmt.Fprintf(tw, "%d\t%s\t%s\t\n", len(p.Segments), all, coverageWord(p))
 	}
 	tw.Flush()
+	if len(results) < 2 {
+		return
+	}
+	fmt.Fprintf(w, "\nWhat differs from %s:\n", results[0].Variant)
+	for _, r := range results[1:] {
+		switch {
+		case !r.Compared:
+			fmt.Fprintf(w, "  %s: not compared (it could not be laid out)\n", r.Variant)
+		case len(r.Differences) == 0:
+			fmt.Fprintf(w, "  %s: the same layout\n", r.Variant)
+		default:
+			fmt.Fprintf(w, "  %s:\n", r.Variant)
+			for _, d := range r.Differences {
+				fmt.Fprintf(w, "    %s\n", d)
+			}
+		}
+	}
+}
+
+// coverageWord is the result of a plan's coverage check in a word.
+func coverageWord(p *planner.Plan) string {
+	if p.Coverage.OK {
+		return "passed"
+	}
+	return "FAILED"
 }

@@ -10,6 +10,30 @@ import (
 	"dimerpath/planner"
 )
 
+// Issue 13: two variants that differ in a gap printed two rows that
+// looked the same; the table now gives times to the second, each
+// variant's coverage check, and what differs from the first variant.
+func TestCompareSaysWhatDiffers(t *testing.T) {
+	out, errs, code := runMain(t, "compare", "../assets/demo.json")
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, want := range []string{
+		"29 min 33 s", // gap-9, to the second
+		"coverage",
+		"What differs from gap-9:",
+		"tunnel gap sensor-island – source-lead: 6.91 nm (9.0 dimer rows across the rows) → 9.22 nm (12.0 dimer rows across the rows)",
+		"region source-lead: H sites 2604",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("compare output lacks %q:\n%s", want, out)
+		}
+	}
+	if n := strings.Count(out, "passed"); n != 2 {
+		t.Errorf("%d coverage results passed, want one per variant:\n%s", n, out)
+	}
+}
+
 func TestCompareReport(t *testing.T) {
 	dir := t.TempDir()
 	pdf, svg := filepath.Join(dir, "cmp.pdf"), filepath.Join(dir, "cmp.svg")
@@ -31,17 +55,25 @@ func TestCompareReport(t *testing.T) {
 			t.Fatal(err)
 		}
 		flat := strings.Join(strings.Fields(string(text)), " ")
-		for _, want := range []string{planner.Caution, "gap-9", "gap-12-source", "Saturday 14 March 2026"} {
+		// Issue 13: the report says what differs between the variants
+		// and each one's coverage check.
+		for _, want := range []string{planner.Caution, "gap-9", "gap-12-source", "Saturday 14 March 2026",
+			"What differs from gap-9", "6.91 nm (9.0 dimer rows across the rows)", "9.22 nm (12.0 dimer rows across the rows)", "Coverage check", "passed"} {
 			if !strings.Contains(flat, want) {
 				t.Errorf("comparison PDF lacks %q", want)
 			}
 		}
 	}
 	// A report format compare does not write is refused before planning.
-	for _, bad := range []string{"cmp.csv", "cmp.json", "cmp.png"} {
+	// Issue 13: the message names what compare writes, not what export
+	// writes (-o x.txt suggested ".json or .csv").
+	for _, bad := range []string{"cmp.csv", "cmp.json", "cmp.png", "cmp.txt", "cmp"} {
 		out, errs, code := runMain(t, "compare", "../assets/demo.json", "-o", filepath.Join(dir, bad))
 		if code != ExitFailure || !strings.Contains(errs, bad) || out != "" {
 			t.Errorf("-o %s: exit %d, stderr %q", bad, code, errs)
+		}
+		if !strings.Contains(errs, "this command writes .pdf or .svg") || strings.Contains(errs, ".csv)") || strings.Contains(errs, "or .csv") {
+			t.Errorf("-o %s: stderr %q, want it to say compare writes .pdf or .svg, and nothing else", bad, errs)
 		}
 	}
 	if entries, _ := os.ReadDir(dir); len(entries) != 2 {

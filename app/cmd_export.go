@@ -6,12 +6,13 @@ import (
 	"flag"
 	"fmt"
 	"os"
+	"path/filepath"
 	"slices"
 	"strings"
 	"time"
 
 	"dimerpath/export"
-	"dimerpath/internal/jsonfile"
+	"dimerpath/internal/atomicfile"
 	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
@@ -85,12 +86,12 @@ func runExport(env Env, args []string, fl exportFlags) int {
 		return fail("%v", err)
 	}
 	// Refuse a bad output name or flag before any planning.
-	opt, err := fl.report.options(export.FormatPDF, export.FormatSVG, export.FormatJSON, export.FormatCSV)
+	opt, err := fl.report.options([]export.Format{export.FormatPDF, export.FormatSVG, export.FormatJSON, export.FormatCSV}, ".gds")
 	if err != nil {
 		return fail("%v", err)
 	}
 	in := args[0]
-	data, err := os.ReadFile(in)
+	data, isPlan, err := export.ReadInput(in)
 	if err != nil {
 		return fail("%v", err)
 	}
@@ -98,7 +99,7 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	defer stop()
 
 	var p *planner.Plan
-	if isPlanFile(data) {
+	if isPlan {
 		for _, name := range []string{"variant", "profile", "seed"} {
 			if fl.set[name] {
 				return fail("%s is a plan file: --%s applies only when planning a design", in, name)
@@ -110,6 +111,9 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	} else {
 		var pat *export.Pattern
 		if p, pat, err = planDesign(ctx, env, in, data, fl); err != nil {
+			if code := internalError(env, "export", err); code != 0 {
+				return code
+			}
 			return fail("%v", err)
 		}
 		opt.Pattern = pat
@@ -129,13 +133,6 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, expected %s%s)\n",
 		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), units.Duration(p.TotalS), size)
 	return ExitOK
-}
-
-// isPlanFile reports whether data is a dimerpath plan file rather than a
-// design, by its "format" field alone (the rest may be malformed).
-func isPlanFile(data []byte) bool {
-	format, _ := jsonfile.TopString(data, "format")
-	return format == export.PlanFormat
 }
 
 // planDesign plans the chosen variant of the design in data, reporting
@@ -177,16 +174,28 @@ func (r *reportFlags) declare(fs *flag.FlagSet, outHelp string) {
 
 // options checks the flags, the output's format among formats, and
 // returns the export options they give.
-func (r *reportFlags) options(formats ...export.Format) (export.Options, error) {
+// options checks the flags and returns the export options. formats are
+// the formats this command writes from its -o extension, and also names
+// the other extensions it takes (".gds"), for the message on a bad one.
+func (r *reportFlags) options(formats []export.Format, also ...string) (export.Options, error) {
 	opt := export.Options{Date: time.Now(), Generator: "dimerpath " + Version}
 	var err error
 	if r.out != "" {
-		f, err := export.FormatFromPath(r.out)
-		if err != nil {
-			return opt, err
+		if st, err := os.Stat(r.out); err == nil && st.IsDir() {
+			return opt, fmt.Errorf("-o %s is a directory: give the file to write (%s)", r.out, formatList(formats, also))
 		}
-		if !slices.Contains(formats, f) {
-			return opt, fmt.Errorf("-o %s: %w: this command writes %s", r.out, export.ErrFormat, formatList(formats))
+		// The message names what this command writes, not every format
+		// export knows (compare -o x.txt once suggested .json or .csv).
+		f, err := export.FormatFromPath(r.out)
+		if ext := filepath.Ext(r.out); err != nil && ext == "" {
+			return opt, fmt.Errorf("-o %s: %w: the file name has no extension; this command writes %s", r.out, export.ErrFormat, formatList(formats, also))
+		} else if err != nil || !slices.Contains(formats, f) {
+			return opt, fmt.Errorf("-o %s: %w %q: this command writes %s", r.out, export.ErrFormat, ext, formatList(formats, also))
+		}
+		// A read-only, missing or full directory shows now, not after
+		// the planning.
+		if err := atomicfile.Check(r.out); err != nil {
+			return opt, err
 		}
 	}
 	if opt.Paper, err = export.ParsePaper(r.paper); err != nil {
@@ -200,10 +209,16 @@ func (r *reportFlags) options(formats ...export.Format) (export.Options, error) 
 	return opt, nil
 }
 
-func formatList(fs []export.Format) string {
+// formatList names the formats and the other extensions as ".pdf,
+// .svg or .gds".
+func formatList(fs []export.Format, also []string) string {
 	var names []string
 	for _, f := range fs {
 		names = append(names, "."+string(f))
 	}
-	return strings.Join(names, " or ")
+	names = append(names, also...)
+	if len(names) < 2 {
+		return strings.Join(names, "")
+	}
+	return strings.Join(names[:len(names)-1], ", ") + " or " + names[len(names)-1]
 }

@@ -14,6 +14,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/export"
+	"dimerpath/internal/atomicfile"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -91,11 +92,14 @@ func runExportGDS(env Env, in string, fl exportFlags) int {
 			return fail("%v", err)
 		}
 	}
-	data, err := os.ReadFile(in)
+	if err := atomicfile.Check(fl.report.out); err != nil {
+		return fail("%v", err)
+	}
+	data, isPlan, err := export.ReadInput(in)
 	if err != nil {
 		return fail("%v", err)
 	}
-	if isPlanFile(data) {
+	if isPlan {
 		return fail("%s is a plan file: a GDSII export needs the design it was planned from", in)
 	}
 	d, err := design.Parse(in, data)

@@ -11,6 +11,7 @@ import (
 	"strings"
 	"time"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/planner/route"
 	"dimerpath/planner/route/tsplib"
 )
@@ -76,6 +77,11 @@ func runOrder(env Env, args []string, fl orderFlags) int {
 	f, err := os.Open(path)
 	if err != nil {
 		return fail("%v", err)
+	}
+	// A regular file beyond the limit is refused by its size, unread.
+	if st, err := f.Stat(); err == nil && st.Mode().IsRegular() && st.Size() > maxOrderFileBytes {
+		f.Close()
+		return fail("%s: the file holds %s, more than the %s limit for an item file", path, jsonfile.Bytes(st.Size()), jsonfile.Bytes(maxOrderFileBytes))
 	}
 	var items []route.Item
 	var inst *tsplib.Instance
@@ -220,3 +226,8 @@ func parsePoint(s string) (route.Point, error) {
 	}
 	return route.Point{X: v[0], Y: v[1]}, nil
 }
+
+// maxOrderFileBytes bounds an item or TSPLIB file (64 MiB: about 10^6
+// strokes written with full precision, the largest problems the route
+// engine is measured on).
+const maxOrderFileBytes = 64 << 20

@@ -117,6 +117,9 @@ func interruptible() (context.Context, context.CancelFunc) {
 // refusal (a *planner.LimitError or the profile's *jsonfile.Error names the value
 // and the limit or field), or a design that cannot be laid out.
 func planError(env Env, cmd, file string, err error) int {
+	if code := internalError(env, cmd, err); code != 0 {
+		return code
+	}
 	if errors.Is(err, context.Canceled) {
 		fmt.Fprintf(env.Stderr, "dimerpath %s: interrupted; nothing was written\n", cmd)
 	} else {

@@ -51,7 +51,7 @@ planned at once (default: every core). A value that cannot be planned shows
 			var rep reportFlags
 			rep.declare(fs, "also write the sweep report to `FILE` (.pdf or .svg)")
 			return func(env Env, args []string) int {
-				opt, err := rep.options(export.FormatPDF, export.FormatSVG)
+				opt, err := rep.options([]export.Format{export.FormatPDF, export.FormatSVG})
 				if err != nil {
 					fmt.Fprintf(env.Stderr, "dimerpath sweep: %v\n", err)
 					return ExitFailure

@@ -137,10 +137,18 @@ type canvas interface {
 // text vertically (about 0.72 em for Liberation Sans).
 func textHeight(c canvas, f font) float64 { return 0.72 * f.size * ptMM * c.mm() }
 
+// maxHatchLines bounds the hatch lines of one box. A zoomed figure may
+// hatch a region far larger than the page (clipped to it), so the bound
+// is generous; it is there so that a box of absurd or infinite size ends.
+const maxHatchLines = 200_000
+
 // hatchLines returns the hatch line segments of kind h covering b, step
 // apart (device units), for backends that clip them to the shape.
+//
+// A box that would need more than maxHatchLines lines (an absurd plan's
+// bar, or a non-finite one) gets none: the loop must end and stay small.
 func hatchLines(b box, h hatch, step float64) [][2]vec {
-	if step <= 0 || h == hatchNone {
+	if !(step > 0) || h == hatchNone || !((b.w+b.h)/step <= maxHatchLines) {
 		return nil
 	}
 	var out [][2]vec

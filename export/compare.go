@@ -50,7 +50,7 @@ func checkResults(rs []VariantResult) (string, error) {
 // compareRows returns the comparison table: a header and one row per
 // variant.
 func compareRows(rs []VariantResult) [][]string {
-	rows := [][]string{{"Variant", "Expected", "P10 – P90", "By hand", "Segments", "Strokes", "Windows", "All good", "Mean good", "Devices per perfect one"}}
+	rows := [][]string{{"Variant", "Expected", "P10 – P90", "By hand", "Segments", "Strokes", "Windows", "All good", "Mean good", "Devices per perfect one", "Coverage check"}}
 	for _, r := range rs {
 		if r.Plan == nil {
 			rows = append(rows, []string{r.Variant, "not planned: " + r.Err.Error()})
@@ -77,7 +77,36 @@ func compareRows(rs []VariantResult) [][]string {
 			byHand = clock(p.ByHandS)
 		}
 		rows = append(rows, []string{r.Variant, clock(p.TotalS), clock(p.P10S) + " – " + clock(p.P90S), byHand,
-			thousands(len(p.Segments)), thousands(len(p.Strokes)), thousands(len(p.Windows)), all, mean, dpp})
+			thousands(len(p.Segments)), thousands(len(p.Strokes)), thousands(len(p.Windows)), all, mean, dpp, coverageWord(p.Coverage)})
+	}
+	return rows
+}
+
+// coverageWord is a coverage check's result in a word.
+func coverageWord(c planner.Coverage) string {
+	if c.OK {
+		return "passed"
+	}
+	return "failed"
+}
+
+// differenceRows returns how each variant after the first differs from
+// it (planner.VariantResult.Differences), one row per difference:
+// variant, what, its value in the first variant, its value here; a
+// variant compared and found the same as the first gets one row saying
+// so. Nothing when no variant was compared.
+func differenceRows(rs []VariantResult) [][4]string {
+	var rows [][4]string
+	for _, r := range rs {
+		if !r.Compared {
+			continue
+		}
+		if len(r.Differences) == 0 {
+			rows = append(rows, [4]string{r.Variant, "the same layout", "", ""})
+		}
+		for _, d := range r.Differences {
+			rows = append(rows, [4]string{r.Variant, d.What, d.From, d.To})
+		}
 	}
 	return rows
 }
@@ -284,16 +313,17 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 
 	rows := compareRows(results)
 	t := newTable(d, font{size: 7.5},
-		tableColumn{title: rows[0][0], share: 13},
-		tableColumn{title: rows[0][1], share: 9, right: true},
+		tableColumn{title: rows[0][0], share: 12},
+		tableColumn{title: rows[0][1], share: 10, right: true},
 		tableColumn{title: rows[0][2], share: 14, right: true},
-		tableColumn{title: rows[0][3], share: 9, right: true},
-		tableColumn{title: rows[0][4], share: 9, right: true},
+		tableColumn{title: rows[0][3], share: 8, right: true},
+		tableColumn{title: rows[0][4], share: 10, right: true},
 		tableColumn{title: rows[0][5], share: 8, right: true},
-		tableColumn{title: rows[0][6], share: 8, right: true},
+		tableColumn{title: rows[0][6], share: 10, right: true},
 		tableColumn{title: rows[0][7], share: 8, right: true},
-		tableColumn{title: rows[0][8], share: 11, right: true},
-		tableColumn{title: rows[0][9], share: 11, right: true},
+		tableColumn{title: rows[0][8], share: 8, right: true},
+		tableColumn{title: rows[0][9], share: 10, right: true},
+		tableColumn{title: rows[0][10], share: 10, right: true},
 	)
 	d.heading("Summary", 20)
 	t.start()
@@ -305,6 +335,20 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 		t.row(r...)
 	}
 	t.end()
+	if diffs := differenceRows(results); len(diffs) > 0 {
+		d.heading("What differs from "+results[0].Variant, 20)
+		dt := newTable(d, font{size: 7.5},
+			tableColumn{title: "Variant", share: 14},
+			tableColumn{title: "What", share: 24},
+			tableColumn{title: "In " + results[0].Variant, share: 31},
+			tableColumn{title: "In this variant", share: 31},
+		)
+		dt.start()
+		for _, r := range diffs {
+			dt.row(r[:]...)
+		}
+		dt.end()
+	}
 
 	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
 	for _, ch := range []struct {
@@ -338,7 +382,19 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	inner := width - 2*margin
 	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
 	rows := compareRows(results)
-	cols := []float64{13, 9, 14, 9, 9, 8, 8, 8, 11, 11}
+	cols := []float64{12, 10, 14, 8, 10, 8, 10, 8, 8, 10, 10}
+	if diffs := differenceRows(results); len(diffs) > 0 {
+		// Below the summary, across the table: how each variant differs
+		// from the first.
+		rows = append(rows, []string{"", "What differs from " + results[0].Variant})
+		for _, r := range diffs {
+			text := r[1]
+			if r[2] != "" || r[3] != "" {
+				text += ": " + r[2] + " → " + r[3]
+			}
+			rows = append(rows, []string{r[0], text})
+		}
+	}
 	colW := make([]float64, len(cols))
 	total := 0.0
 	for _, c := range cols {

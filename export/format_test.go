@@ -1,6 +1,9 @@
 package export
 
 import (
+	"bytes"
+	"context"
+	"dimerpath/export/internal/planfixture"
 	"math"
 	"strconv"
 	"strings"
@@ -55,6 +58,53 @@ func TestNiceSteps(t *testing.T) {
 	for _, span := range []float64{0, 5e-324, math.MaxFloat64} {
 		if got := niceStep(span, 5); !(got > 0) || math.IsInf(got, 0) {
 			t.Errorf("niceStep(%g) = %g: axis loops need a positive finite step", span, got)
+		}
+	}
+}
+
+// Issue 16: a plan whose times were absurd (settle_s = 1e305) gave a
+// chart bar of near-infinite width, and hatching it never ended.
+func TestHatchLinesEnd(t *testing.T) {
+	for _, b := range []box{{x: 0, y: 0, w: 1e305, h: 10}, {x: 0, y: 0, w: math.Inf(1), h: 10}, {x: 0, y: 0, w: math.NaN(), h: 1}} {
+		for _, h := range []hatch{hatchHorizontal, hatchVertical, hatchDiag, hatchBackDiag, hatchCross} {
+			if n := len(hatchLines(b, h, 1)); n > maxHatchLines*2 {
+				t.Errorf("hatchLines(%v, %v) = %d lines", b, h, n)
+			}
+		}
+	}
+	if n := len(hatchLines(box{w: 100, h: 10}, hatchVertical, 1)); n != 100 {
+		t.Errorf("a 100 x 10 box hatched every 1: %d vertical lines, want 100", n)
+	}
+}
+
+// A plan file may hold absurd but finite times (nothing in the file
+// format bounds them): every exporter still ends, and prints them as
+// durations.
+func TestExportAbsurdButFiniteTimes(t *testing.T) {
+	p := planfixture.SET().Plan
+	const k = 1e300
+	for i := range p.Actions {
+		p.Actions[i].StartS *= k
+		p.Actions[i].DurationS *= k
+	}
+	for i := range p.Strokes {
+		p.Strokes[i].DurationS *= k
+	}
+	for i := range p.Segments {
+		p.Segments[i].StartS *= k
+		p.Segments[i].EndS *= k
+		p.Segments[i].BudgetS *= k
+	}
+	b := &p.Breakdown
+	for _, x := range []*float64{&b.APWriteS, &b.FEWriteS, &b.DwellS, &b.TravelS, &b.ModeSwitchS, &b.RegistrationS, &b.VerificationS,
+		&p.TotalS, &p.P10S, &p.P50S, &p.P90S, &p.FloorS, &p.ByHandS} {
+		*x *= k
+	}
+	p.TotalS = b.Total()
+	for _, f := range []Format{FormatPDF, FormatSVG, FormatJSON, FormatCSV} {
+		var buf bytes.Buffer
+		if err := Write(context.Background(), &buf, f, p, Options{}); err != nil {
+			t.Errorf("%s: %v", f, err)
 		}
 	}
 }

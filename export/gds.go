@@ -291,10 +291,7 @@ func (g *gdsBuilder) place(sh *design.Shape) (lattice.Window, bool) {
 // windowRect returns the rectangle of a window's dimer cells centred on
 // the origin, in the field's orientation.
 func (g *gdsBuilder) windowRect(w lattice.Window) r2.Rect {
-	half := r2.Point{X: float64(w.Template.Dimers) * lattice.DimerPitch / 2, Y: lattice.RowSpacing / 2}
-	if g.surf.Terraces[w.Terrace].Rows == lattice.RowsAlongY {
-		half = r2.Point{X: half.Y, Y: half.X}
-	}
+	half := g.surf.Terraces[w.Terrace].Rows.Join(float64(w.Template.Dimers)*lattice.DimerPitch/2, lattice.RowSpacing/2)
 	return r2.RectFromCenterSize(r2.Point{}, half.Mul(2))
 }
 
@@ -312,10 +309,7 @@ func (g *gdsBuilder) window(w lattice.Window) {
 // aref writes an array of windows as AREFs of a window cell (more than
 // one when the array has more than 32767 columns or rows).
 func (g *gdsBuilder) aref(w lattice.Window, a *design.Array, layer GDSLayer) {
-	along := lattice.RowsAlongX
-	if g.surf.Terraces[w.Terrace].Rows == lattice.RowsAlongY {
-		along = lattice.RowsAlongY
-	}
+	along := g.surf.Terraces[w.Terrace].Rows
 	name := fmt.Sprintf("WIN%d%s_%d_%d", w.Template.Dimers, strings.ToUpper(along.String()), layer.Layer, layer.Datatype)
 	if _, ok := g.cells[name]; !ok {
 		cell := &gdsii.Structure{Name: name}

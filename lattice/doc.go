@@ -28,8 +28,10 @@
 // from its origin and back (ToLocal, ToField, LocalRect, FieldRect),
 // DimerAlong, RowAcross, SiteAcross and DimerEdge place dimers, rows,
 // sites and cell edges in it, RowDirection.Split and Join exchange the
-// axes without moving the origin, Frame.SnapRect and LatticeVector snap
-// rectangles and moves to whole dimers and rows, and DimersIn,
+// axes without moving the origin, Frame.NearestCellRect (the editor's
+// rectangles: edges to the nearest cell edges), Frame.SnapRect (the
+// whole cells under two corners) and LatticeVector snap rectangles and
+// moves to whole dimers and rows, and DimersIn,
 // Surface.RowDimers,
 // Surface.TerraceSpans and Surface.Dimers answer which dimers lie in an
 // interval, exist on a row or meet a window.

@@ -128,6 +128,39 @@ func (f Frame) SnapRect(a, b r2.Point) r2.Rect {
 	return r2.RectFromPoints(f.ToField(alo, clo), f.ToField(ahi, chi))
 }
 
+// NearestCellRect returns the rectangle whose edges are the dimer-cell
+// edges (midway between dimers along the rows, midway between rows
+// across them) nearest to a and b: a rectangle drawn from a to b snapped
+// to the nearest boundaries, neither grown nor shrunk by more than half
+// a cell on each side, so a 10 nm drag gives 9.98 nm (26 dimer pitches)
+// rather than the 10.37 nm SnapRect's whole cells would. It holds whole
+// dimers of whole rows, at least one: where both edges of an axis snap
+// to the same boundary, the cell of the pair's midpoint is taken.
+func (f Frame) NearestCellRect(a, b r2.Point) r2.Rect {
+	edges := func(u, v, pitch float64) (float64, float64) {
+		// Cell edges lie at (k + ½)·pitch.
+		ku, kv := math.Round(u/pitch-0.5), math.Round(v/pitch-0.5)
+		lo, hi := math.Min(ku, kv), math.Max(ku, kv)
+		if lo == hi {
+			k := math.Round((u + v) / 2 / pitch)
+			return (k - 0.5) * pitch, (k + 0.5) * pitch
+		}
+		return (lo + 0.5) * pitch, (hi + 0.5) * pitch
+	}
+	aa, ac := f.ToLocal(a)
+	ba, bc := f.ToLocal(b)
+	alo, ahi := edges(aa, ba, DimerPitch)
+	clo, chi := edges(ac, bc, RowSpacing)
+	return r2.RectFromPoints(f.ToField(alo, clo), f.ToField(ahi, chi))
+}
+
+// CellCount returns how many dimers (along the rows) and rows (across
+// them) a rectangle of whole dimer cells of the frame spans.
+func (f Frame) CellCount(r r2.Rect) (dimers, rows int) {
+	along, across := f.Rows.Split(r.Size())
+	return int(math.Round(along / DimerPitch)), int(math.Round(across / RowSpacing))
+}
+
 // DimerRange is the dimers Lo..Hi-1 of one row; it is empty when Hi <=
 // Lo.
 type DimerRange struct{ Lo, Hi int }

@@ -212,3 +212,57 @@ func TestDimerCells(t *testing.T) {
 		t.Errorf("DimerCells of an empty range = %v, want empty", e)
 	}
 }
+
+// Issue 13: a rectangle drawn 10 nm wide and 8 nm tall snapped outward
+// by up to a cell a side (10 nm became 11.52 nm); NearestCellRect moves
+// each edge to the nearest cell edge, at most half a cell, and what the
+// rectangle writes (CellBounds of its sites) is the rectangle itself, on
+// terraces with rows along x and along y.
+func TestNearestCellRect(t *testing.T) {
+	// With the lattice at the origin the 10 x 8 nm drag from (20, 30)
+	// gives 26 dimer pitches (9.98 nm) by 10 rows (7.68 nm): its edges
+	// 20 and 30 nm lie nearest the cell edges 52.5 and 78.5 pitches, 30
+	// and 38 nm nearest 39.5 and 49.5 row spacings.
+	plain := mustSurface(t, 100, 100)
+	r := plain.Frame(0).NearestCellRect(r2.Point{X: 20, Y: 30}, r2.Point{X: 30, Y: 38})
+	if d, rows := plain.Frame(0).CellCount(r); d != 26 || rows != 10 {
+		t.Errorf("10 x 8 nm drag: %d dimers x %d rows (%.2f x %.2f nm), want 26 x 10", d, rows, r.Size().X, r.Size().Y)
+	}
+	s := twoTerraces(t)
+	tests := []struct {
+		name    string
+		terrace int
+		a, b    r2.Point
+	}{
+		{"rows along x", 0, r2.Point{X: 20, Y: 30}, r2.Point{X: 30, Y: 38}},
+		{"corners swapped", 0, r2.Point{X: 30, Y: 38}, r2.Point{X: 20, Y: 30}},
+		{"rows along y", 1, r2.Point{X: 150, Y: 40}, r2.Point{X: 160, Y: 48}},
+		{"thinner than a cell", 0, r2.Point{X: 20, Y: 30}, r2.Point{X: 20.1, Y: 30.1}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			f := s.Frame(tc.terrace)
+			r := f.NearestCellRect(tc.a, tc.b)
+			dimers, rows := f.CellCount(r)
+			if dimers < 1 || rows < 1 {
+				t.Fatalf("NearestCellRect(%v, %v) = %v: %d dimers x %d rows", tc.a, tc.b, r, dimers, rows)
+			}
+			drawn := r2.RectFromPoints(tc.a, tc.b)
+			if tc.name != "thinner than a cell" {
+				for _, e := range [][2]float64{{r.X.Lo, drawn.X.Lo}, {r.X.Hi, drawn.X.Hi}, {r.Y.Lo, drawn.Y.Lo}, {r.Y.Hi, drawn.Y.Hi}} {
+					if math.Abs(e[0]-e[1]) > RowSpacing/2+1e-9 {
+						t.Errorf("%v: edge %.3f is more than half a cell from the corner drawn at %.3f", r, e[0], e[1])
+					}
+				}
+			}
+			set := NewSiteSet()
+			s.Paint(set, Rect{r})
+			if got := set.CellBounds(s); math.Abs(got.X.Lo-r.X.Lo)+math.Abs(got.X.Hi-r.X.Hi)+math.Abs(got.Y.Lo-r.Y.Lo)+math.Abs(got.Y.Hi-r.Y.Hi) > 1e-9 {
+				t.Errorf("the sites it writes span %v, not the rectangle %v", got, r)
+			}
+			if n := set.Count(); n != 2*dimers*rows {
+				t.Errorf("%d sites, want 2 x %d dimers x %d rows", n, dimers, rows)
+			}
+		})
+	}
+}

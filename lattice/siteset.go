@@ -489,6 +489,27 @@ func nextBit(w RowBits, from int, on bool) int {
 // positions of every site of the set on surf; it is empty for an empty
 // set.
 func (s *SiteSet) Bounds(surf *Surface) r2.Rect {
+	return s.bounds(surf, func(first, last Site) r2.Rect {
+		return r2.RectFromPoints(surf.Position(first), surf.Position(last))
+	})
+}
+
+// CellBounds returns the bounding box, in field nm, of the cells (see
+// Surface.SiteCell) of the set's sites on surf: the extent of the area
+// they write, so a rectangle snapped to cell edges has itself as its
+// CellBounds. It is empty for an empty set.
+func (s *SiteSet) CellBounds(surf *Surface) r2.Rect {
+	return s.bounds(surf, func(first, last Site) r2.Rect {
+		return surf.SiteCell(first).Union(surf.SiteCell(last))
+	})
+}
+
+// bounds unions, over the set's terraces, the rectangle corner gives for
+// the terrace's two extreme sites: side 0 of the lowest dimer on the
+// first row and side 1 of the highest dimer on the last row. Side 0 is
+// the low side across the row, so these are the corners of the box (a
+// loose bound by at most one side's offset when that side is absent).
+func (s *SiteSet) bounds(surf *Surface, corner func(first, last Site) r2.Rect) r2.Rect {
 	b := r2.EmptyRect()
 	for t, rows := range s.terraces {
 		if t >= len(surf.Terraces) {
@@ -516,11 +537,7 @@ func (s *SiteSet) Bounds(surf *Surface) r2.Rect {
 		if rlo < 0 {
 			continue
 		}
-		// Corner sites of the box: side 0 is the low side across the row,
-		// so the extremes are side 0 on the first row and side 1 on the
-		// last (a loose bound by at most 2·HOffset when that side is absent).
-		b = b.AddPoint(surf.Position(Site{Terrace: t, Row: rlo, Dimer: lo >> 1, Side: 0}))
-		b = b.AddPoint(surf.Position(Site{Terrace: t, Row: rhi, Dimer: hi >> 1, Side: 1}))
+		b = b.Union(corner(Site{Terrace: t, Row: rlo, Dimer: lo >> 1, Side: 0}, Site{Terrace: t, Row: rhi, Dimer: hi >> 1, Side: 1}))
 	}
 	return b
 }

@@ -7,6 +7,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 	"dimerpath/planner/route"
@@ -88,11 +89,16 @@ func (b *builder) build() (*Plan, error) {
 	if err := prof.checkField(b.d.Field.WidthNM, b.d.Field.HeightNM); err != nil {
 		return nil, err
 	}
+	if err := b.checkRaster(); err != nil {
+		return nil, err
+	}
 	if err := b.ctx.Err(); err != nil {
 		return nil, err
 	}
 	b.gen = newStrokeGen(lay.Surface, prof)
-	b.regionWork()
+	if err := b.regionWork(); err != nil {
+		return nil, err
+	}
 
 	b.opt.stage("modes")
 	mc := &modeChooser{g: b.gen, prof: prof, keepOut: lay.Rules.FEKeepOutNM, regions: b.regions, feCache: map[*lattice.SiteSet][]Stroke{}}
@@ -106,12 +112,17 @@ func (b *builder) build() (*Plan, error) {
 
 	b.opt.stage("strokes")
 	windows := b.makeStrokes()
+	if err := checkStrokes(float64(len(b.strokes)), "one or more per run of sites and per FE serpentine; split the design"); err != nil {
+		return nil, err
+	}
 	use := b.modesUsed()
 	if err := prof.CheckLimits(&use); err != nil {
 		return nil, err
 	}
 	b.fiducials()
-	b.splitLong()
+	if err := b.splitLong(); err != nil {
+		return nil, err
+	}
 	for i := range b.strokes {
 		b.strokes[i].ID = i
 	}
@@ -146,6 +157,12 @@ func (b *builder) build() (*Plan, error) {
 		st := b.strokes[jobs[j].stroke]
 		b.warnings = append(b.warnings, fmt.Sprintf("stroke %d (region %q) takes longer than its drift budget of %.3g s even right after a registration: expect drift beyond ±%g nm",
 			st.ID, st.Region, jobs[j].budgetS, st.ToleranceNM))
+	}
+	// A timeline holds a write or dwell per stroke, a move before each,
+	// and a registration, a switch and a verification per segment.
+	if n := 2*len(b.strokes) + 4*len(starts) + 2; n > MaxActions {
+		return nil, &CountError{What: "actions of the timeline", Count: float64(n), Max: MaxActions,
+			Cause: fmt.Sprintf("%d strokes in %d segments", len(b.strokes), len(starts))}
 	}
 	tl := schedule(sg, starts, b.strokes, prof)
 	if err := checkFiniteTime(tl.breakdown); err != nil {
@@ -211,9 +228,18 @@ func (b *builder) build() (*Plan, error) {
 	return plan, nil
 }
 
-// regionWork lays out every region of the variant.
-func (b *builder) regionWork() {
+// regionWork lays out every region of the variant, once their runs of
+// sites are known to be within MaxRuns.
+func (b *builder) regionWork() error {
 	rules := b.d.Rules
+	names := make([]string, len(b.lay.Regions))
+	sets := make([]*lattice.SiteSet, len(b.lay.Regions))
+	for i := range b.lay.Regions {
+		names[i], sets[i] = b.lay.Regions[i].Region.Name, b.lay.Regions[i].Sites
+	}
+	if err := checkRuns(names, sets); err != nil {
+		return err
+	}
 	for i := range b.lay.Regions {
 		rl := &b.lay.Regions[i]
 		r := rl.Region
@@ -248,6 +274,7 @@ func (b *builder) regionWork() {
 		}
 		b.regions = append(b.regions, rw)
 	}
+	return nil
 }
 
 // makeStrokes generates every region's strokes and returns the plan's
@@ -377,9 +404,10 @@ func (b *builder) fiducials() {
 // splitLong cuts every stroke whose writing outlasts its drift budget,
 // less the approach from the nearest fiducial, into equal pieces that
 // each fit, so that a registration can fall between them.
-func (b *builder) splitLong() {
+func (b *builder) splitLong() error {
 	c := newCosts(&b.prof, b.fids)
 	var out []Stroke
+	pieces := float64(len(b.strokes))
 	for _, s := range b.strokes {
 		budget := DriftBudget(s.ToleranceNM, b.prof.Drift.RateNMPerMin)
 		if s.Kind == StrokeDwell || math.IsInf(budget, 1) || s.DurationS <= 0 {
@@ -405,7 +433,17 @@ func (b *builder) splitLong() {
 			out = append(out, s)
 			continue // reported by the segmenter as over budget
 		}
-		k := int(math.Ceil(s.DurationS / room))
+		kf := math.Ceil(s.DurationS / room)
+		if !(kf <= MaxPieces) {
+			return &CountError{What: fmt.Sprintf("pieces of a %s stroke of region %q cut at registrations", s.Kind, s.Region), Count: kf, Max: MaxPieces,
+				Cause: fmt.Sprintf("it takes %s s against a drift budget of %s s (tolerance ±%s nm at drift.rate_nm_per_min = %s) less %s s to reach it from a fiducial; %s",
+					jsonfile.Approx(s.DurationS), jsonfile.Approx(budget), jsonfile.Number(s.ToleranceNM), jsonfile.Number(b.prof.Drift.RateNMPerMin),
+					jsonfile.Approx(approach), speedCause(s.Mode, b.prof.modeOf(s.Mode)))}
+		}
+		if pieces += kf - 1; !(pieces <= MaxStrokes) {
+			return checkStrokes(pieces, "strokes longer than their drift budget are cut into pieces at registrations; "+speedCause(s.Mode, b.prof.modeOf(s.Mode)))
+		}
+		k := int(kf)
 		pieces := splitPath(s.Path, k)
 		b.warnings = append(b.warnings, fmt.Sprintf("a %s stroke of region %q takes %.0f s, longer than its %.0f s drift budget (±%g nm at %g nm/min): split into %d pieces at registrations",
 			s.Kind, s.Region, s.DurationS, budget, s.ToleranceNM, b.prof.Drift.RateNMPerMin, k))
@@ -419,6 +457,7 @@ func (b *builder) splitLong() {
 		}
 	}
 	b.strokes = out
+	return nil
 }
 
 // splitPath cuts a polyline into k pieces of equal length.

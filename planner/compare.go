@@ -13,10 +13,16 @@ type VariantResult struct {
 	Variant string
 	Plan    *Plan
 	Err     error
+	// Differences says how the variant's layout differs from the first
+	// variant's (design.Differences), when Compared: none for the first,
+	// or where either could not be laid out.
+	Differences []design.Difference
+	Compared    bool
 }
 
 // Compare lays out and plans every variant of d with prof, in file
-// order, and returns one result per variant. A variant that cannot be planned carries its
+// order, and returns one result per variant, each after the first with
+// how its layout differs from the first's. A variant that cannot be planned carries its
 // error and the others are still planned; Compare itself fails only when
 // ctx is cancelled or the profile is invalid. opt.Progress, if set, sees
 // each variant's stages with the fraction of the whole comparison done.
@@ -26,6 +32,7 @@ func Compare(ctx context.Context, d *design.Design, prof Profile, opt Options) (
 	}
 	names := d.VariantNames()
 	out := make([]VariantResult, 0, len(names))
+	var first *design.Layout
 	for i, name := range names {
 		o := opt
 		if opt.Progress != nil {
@@ -42,7 +49,14 @@ func Compare(ctx context.Context, d *design.Design, prof Profile, opt Options) (
 		if err != nil && (errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded)) {
 			return out, err
 		}
-		out = append(out, VariantResult{Variant: name, Plan: p, Err: err})
+		r := VariantResult{Variant: name, Plan: p, Err: err}
+		switch {
+		case i == 0:
+			first = lay
+		case first != nil && lay != nil:
+			r.Differences, r.Compared = design.Differences(first, lay), true
+		}
+		out = append(out, r)
 	}
 	return out, nil
 }

@@ -50,10 +50,15 @@ func ExampleCompare() {
 	}
 	for _, r := range results {
 		fmt.Printf("%s: %d segment(s), %d windows\n", r.Variant, len(r.Plan.Segments), r.Plan.Yield.Windows)
+		for _, diff := range r.Differences {
+			fmt.Println("  ", diff.What)
+		}
 	}
 	// Output:
 	// gap-9: 1 segment(s), 2 windows
 	// gap-12-source: 1 segment(s), 2 windows
+	//    tunnel gap sensor-island – source-lead
+	//    region source-lead
 }
 
 func ExampleWritingSpeed() {

@@ -287,9 +287,41 @@ var ErrInvalidProfile = errors.New("invalid instrument profile")
 // hundred bytes); a larger file is refused before it is read.
 const MaxProfileBytes = 1 << 20
 
-// Validate checks every field and returns a *jsonfile.Error (wrapping
-// ErrInvalidProfile) listing each bad one with its JSON path and value,
-// or nil.
+// Plausible ranges of the profile's fields. A value outside one is a
+// typo, not an instrument (issue 16): a settle of more than an hour, a
+// move slower than 1 pm/s, a current above 1 µA or a bias beyond ±100 V.
+// The ranges are wide on purpose (common practice: several orders of
+// magnitude around the published working points cited in
+// DefaultProfile), and with them every time the planner derives is
+// finite.
+const (
+	MaxBiasV          = 100   // |bias|, V
+	MinCurrentA       = 1e-15 // 1 fA
+	MaxCurrentA       = 1e-6  // 1 µA
+	MinLineDoseCPerCm = 1e-9  // 1 nC/cm
+	MaxLineDoseCPerCm = 0.1   // 100 mC/cm
+	MinSpeedNMPerS    = 1e-3  // 1 pm/s, writing or moving
+	MaxSpeedNMPerS    = 1e7   // 1 cm/s
+	MinSigmaNM        = 0.01  // footprint σ
+	MaxSigmaNM        = 100
+	MaxOverlap        = 0.95  // FE raster: a pitch of at least 5 % of the line width
+	MaxAllowanceNM    = 100   // edge allowance, hybrid band
+	MinYield          = 1e-15 // H atoms per electron
+	MaxSettleS        = 3600  // settle after a move
+	MaxStepS          = 86400 // a mode switch, a registration, a verification image
+	MaxDwellS         = 3600  // the planned (capped) dwell on one site
+	MaxDriftNMPerMin  = 100   // drift rate and its SD
+	MinToleranceNM    = 1e-3  // placement tolerance, ±nm
+	MaxToleranceNM    = 1000
+	MaxScanFieldNM    = 1e5 // 100 µm
+	maxPasses         = 1000
+	minThresholdDose  = 1e-12 // C/cm
+)
+
+// Validate checks every field against its plausible range and the
+// relations between fields, and returns a *jsonfile.Error (wrapping
+// ErrInvalidProfile) listing each bad one with its JSON path, its value
+// and the range, or nil.
 func (p Profile) Validate() error {
 	var v validator
 	if p.Format != ProfileFormat {
@@ -306,42 +338,48 @@ func (p Profile) Validate() error {
 	v.mode("ap", p.AP, false)
 	v.mode("fe", p.FE, true)
 
-	v.nonZero("dwell.bias_v", p.Dwell.BiasV)
-	v.positive("dwell.current_a", p.Dwell.CurrentA)
-	v.positive("dwell.yield_per_electron", p.Dwell.YieldPerElectron)
-	if y := p.Dwell.YieldPerElectron; y > 1 && !math.IsNaN(y) {
-		v.add("dwell.yield_per_electron", y, "must be at most 1 H atom per electron")
+	v.bias("dwell.bias_v", p.Dwell.BiasV)
+	cur := v.current("dwell.current_a", p.Dwell.CurrentA)
+	y := v.within("dwell.yield_per_electron", p.Dwell.YieldPerElectron, MinYield, 1, "H atoms per electron")
+	c := true
+	if x := p.Dwell.Completion; !(x > 0 && x < 1) {
+		v.add("dwell.completion", x, "must lie strictly between 0 and 1")
+		c = false
 	}
-	if c := p.Dwell.Completion; !(c > 0 && c < 1) {
-		v.add("dwell.completion", c, "must lie strictly between 0 and 1")
+	if cur && y && c {
+		if d := p.Dwell.CapS(); !(d <= MaxDwellS) {
+			v.add("dwell.yield_per_electron", p.Dwell.YieldPerElectron, fmt.Sprintf(
+				"with dwell.current_a = %s A a dwell reaches its completion after %s s per site, more than the %d s a dwell may take",
+				jsonfile.Number(p.Dwell.CurrentA), jsonfile.Approx(d), MaxDwellS))
+		}
 	}
 
-	v.positive("move_speed_nm_per_s", p.MoveSpeedNMPerS)
-	v.nonNegative("settle_s", p.SettleS)
-	v.nonNegative("mode_switch_s", p.ModeSwitchS)
+	v.within("move_speed_nm_per_s", p.MoveSpeedNMPerS, MinSpeedNMPerS, MaxSpeedNMPerS, "nm/s")
+	v.within("settle_s", p.SettleS, 0, MaxSettleS, "s")
+	v.within("mode_switch_s", p.ModeSwitchS, 0, MaxStepS, "s")
 
-	v.nonNegative("drift.rate_nm_per_min", p.Drift.RateNMPerMin)
-	v.nonNegative("drift.rate_sd_nm_per_min", p.Drift.RateSDNMPerMin)
-	v.nonNegative("drift.registration_s", p.Drift.RegistrationS)
-	v.nonNegative("drift.verification_s", p.Drift.VerificationS)
+	v.within("drift.rate_nm_per_min", p.Drift.RateNMPerMin, 0, MaxDriftNMPerMin, "nm/min")
+	v.within("drift.rate_sd_nm_per_min", p.Drift.RateSDNMPerMin, 0, MaxDriftNMPerMin, "nm/min")
+	v.within("drift.registration_s", p.Drift.RegistrationS, 0, MaxStepS, "s")
+	v.within("drift.verification_s", p.Drift.VerificationS, 0, MaxStepS, "s")
 
-	v.positive("tolerance_ap_nm", p.ToleranceAPNM)
-	v.positive("tolerance_fe_nm", p.ToleranceFENM)
+	v.within("tolerance_ap_nm", p.ToleranceAPNM, MinToleranceNM, MaxToleranceNM, "nm")
+	v.within("tolerance_fe_nm", p.ToleranceFENM, MinToleranceNM, MaxToleranceNM, "nm")
 	if p.Order != OrderAPFirst && p.Order != OrderFEFirst {
 		v.add("order", p.Order, fmt.Sprintf("must be %q or %q", OrderAPFirst, OrderFEFirst))
 	}
 	if p.WindowStyle != WindowStyleLine && p.WindowStyle != WindowStyleDwell {
 		v.add("window_style", p.WindowStyle, fmt.Sprintf("must be %q or %q", WindowStyleLine, WindowStyleDwell))
 	}
-	if v.positive("hybrid_band_nm", p.HybridBandNM) && finite(p.FE.EdgeAllowanceNM) && p.HybridBandNM < p.FE.EdgeAllowanceNM {
-		v.add("hybrid_band_nm", p.HybridBandNM, fmt.Sprintf("must be at least fe.edge_allowance_nm (%g nm) so the FE fill stays inside the region", p.FE.EdgeAllowanceNM))
+	if v.positiveUpTo("hybrid_band_nm", p.HybridBandNM, MaxAllowanceNM, "nm") && finite(p.FE.EdgeAllowanceNM) && p.HybridBandNM < p.FE.EdgeAllowanceNM {
+		v.add("hybrid_band_nm", p.HybridBandNM, fmt.Sprintf("must be at least fe.edge_allowance_nm (%s nm) so the FE fill stays inside the region", jsonfile.Number(p.FE.EdgeAllowanceNM)))
 	}
 
-	v.positive("limits.max_bias_v", p.Limits.MaxBiasV)
-	v.positive("limits.max_current_a", p.Limits.MaxCurrentA)
-	v.positive("limits.scan_field_nm", p.Limits.ScanFieldNM)
+	v.positiveUpTo("limits.max_bias_v", p.Limits.MaxBiasV, MaxBiasV, "V")
+	v.positiveUpTo("limits.max_current_a", p.Limits.MaxCurrentA, MaxCurrentA, "A")
+	v.positiveUpTo("limits.scan_field_nm", p.Limits.ScanFieldNM, MaxScanFieldNM, "nm")
 	if p.Limits.MaxSpeedNMPS != 0 {
-		v.positive("limits.max_speed_nm_per_s", p.Limits.MaxSpeedNMPS)
+		v.within("limits.max_speed_nm_per_s", p.Limits.MaxSpeedNMPS, MinSpeedNMPerS, MaxSpeedNMPerS, "nm/s (or 0 for no limit)")
 	}
 	return v.Err("", ErrInvalidProfile)
 }
@@ -356,52 +394,69 @@ func (v *validator) add(path string, value any, problem string) {
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
-// positive reports whether x is finite and > 0, recording a problem if not.
-func (v *validator) positive(path string, x float64) bool {
-	if !finite(x) || x <= 0 {
-		v.add(path, x, "must be a positive finite number")
-		return false
+// within reports whether lo <= x <= hi, recording a problem that gives
+// the range if not (NaN and infinities are outside every range).
+func (v *validator) within(path string, x, lo, hi float64, unit string) bool {
+	if x >= lo && x <= hi {
+		return true
 	}
-	return true
+	v.add(path, x, fmt.Sprintf("must be from %s to %s %s", jsonfile.Number(lo), jsonfile.Number(hi), unit))
+	return false
 }
 
-func (v *validator) nonNegative(path string, x float64) bool {
-	if !finite(x) || x < 0 {
-		v.add(path, x, "must be a finite number, zero or more")
-		return false
+// positiveUpTo reports whether 0 < x <= hi, recording a problem if not.
+func (v *validator) positiveUpTo(path string, x, hi float64, unit string) bool {
+	if x > 0 && x <= hi {
+		return true
 	}
-	return true
+	v.add(path, x, fmt.Sprintf("must be more than 0 and at most %s %s", jsonfile.Number(hi), unit))
+	return false
 }
 
-func (v *validator) nonZero(path string, x float64) bool {
-	if !finite(x) || x == 0 {
-		v.add(path, x, "must be a non-zero finite number")
-		return false
+func (v *validator) bias(path string, x float64) bool {
+	if x != 0 && math.Abs(x) <= MaxBiasV {
+		return true
 	}
-	return true
+	v.add(path, x, fmt.Sprintf("must be non-zero and within ±%d V", MaxBiasV))
+	return false
+}
+
+func (v *validator) current(path string, x float64) bool {
+	if x >= MinCurrentA && x <= MaxCurrentA {
+		return true
+	}
+	v.add(path, x, "must be from 1 fA to 1 µA (1e-15 to 1e-06 A)")
+	return false
 }
 
 func (v *validator) mode(prefix string, m ModeProfile, fe bool) {
-	v.nonZero(prefix+".bias_v", m.BiasV)
-	v.positive(prefix+".current_a", m.CurrentA)
-	dose := v.positive(prefix+".line_dose_c_per_cm", m.LineDoseCPerCm)
-	if m.Passes < 1 || m.Passes > 1000 {
-		v.add(prefix+".passes", m.Passes, "must be 1..1000")
+	v.bias(prefix+".bias_v", m.BiasV)
+	cur := v.current(prefix+".current_a", m.CurrentA)
+	dose := v.within(prefix+".line_dose_c_per_cm", m.LineDoseCPerCm, MinLineDoseCPerCm, MaxLineDoseCPerCm, "C/cm")
+	if cur && dose {
+		if sp := m.Speed(); !(sp >= MinSpeedNMPerS && sp <= MaxSpeedNMPerS) {
+			v.add(prefix+".line_dose_c_per_cm", m.LineDoseCPerCm, fmt.Sprintf(
+				"with %s.current_a = %s A the tip would write at %s nm/s; a writing speed must be from %s to %s nm/s",
+				prefix, jsonfile.Number(m.CurrentA), jsonfile.Approx(sp), jsonfile.Number(MinSpeedNMPerS), jsonfile.Number(MaxSpeedNMPerS)))
+		}
 	}
-	v.positive(prefix+".width.sigma_nm", m.Width.SigmaNM)
-	thr := v.positive(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm)
+	if m.Passes < 1 || m.Passes > maxPasses {
+		v.add(prefix+".passes", m.Passes, fmt.Sprintf("must be 1..%d", maxPasses))
+	}
+	v.within(prefix+".width.sigma_nm", m.Width.SigmaNM, MinSigmaNM, MaxSigmaNM, "nm")
+	thr := v.within(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm, minThresholdDose, MaxLineDoseCPerCm, "C/cm")
 	if dose && thr && m.Width.ThresholdDoseCPerCm >= m.LineDoseCPerCm*float64(max(m.Passes, 1)) {
 		v.add(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm,
-			fmt.Sprintf("must be below the delivered dose (%g C/cm): lines would clear nothing", m.LineDoseCPerCm*float64(max(m.Passes, 1))))
+			fmt.Sprintf("must be below the delivered dose (%s C/cm): lines would clear nothing", jsonfile.Approx(m.LineDoseCPerCm*float64(max(m.Passes, 1)))))
 	}
 	if fe {
-		if o := m.Overlap; !(o >= 0 && o < 1) {
-			v.add(prefix+".overlap", o, "must be at least 0 and below 1")
+		if o := m.Overlap; !(o >= 0 && o <= MaxOverlap) {
+			v.add(prefix+".overlap", o, fmt.Sprintf("must be from 0 to %g (a raster pitch of at least %g %% of the line width)", MaxOverlap, 100*(1-MaxOverlap)))
 		}
 	} else if m.Overlap != 0 {
 		v.add(prefix+".overlap", m.Overlap, "applies to the FE raster only; leave it 0")
 	}
-	v.nonNegative(prefix+".edge_allowance_nm", m.EdgeAllowanceNM)
+	v.within(prefix+".edge_allowance_nm", m.EdgeAllowanceNM, 0, MaxAllowanceNM, "nm")
 }
 
 // ParseProfile reads a profile from JSON. Fields the document leaves out

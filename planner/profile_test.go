@@ -231,3 +231,68 @@ func TestCheckLimits(t *testing.T) {
 		t.Errorf("checkField(2500, 1000) = %v, want a scan-field limit error", err)
 	}
 }
+
+// Issue 16: validation accepted values no instrument has, and the planner
+// then overflowed or allocated without bound. Each is refused with the
+// field, the value and the range.
+func TestValidatePlausibleRanges(t *testing.T) {
+	cases := []struct {
+		name string
+		edit func(*Profile)
+		want string
+	}{
+		{"settle of 1e306 s", func(p *Profile) { p.SettleS = 1e306 }, "settle_s = 1e+306: must be from 0 to 3600 s"},
+		{"move at 5e-324 nm/s", func(p *Profile) { p.MoveSpeedNMPerS = 5e-324 }, "move_speed_nm_per_s = 5e-324: must be from 0.001 to 1e+07 nm/s"},
+		{"registration of 1e308 s", func(p *Profile) { p.Drift.RegistrationS = 1e308 }, "drift.registration_s = 1e+308: must be from 0 to 86400 s"},
+		{"yield of 5e-324", func(p *Profile) { p.Dwell.YieldPerElectron = 5e-324 }, "dwell.yield_per_electron = 5e-324: must be from 1e-15 to 1 H atoms per electron"},
+		{"bias of 1e307 V", func(p *Profile) { p.AP.BiasV = 1e307; p.Limits.MaxBiasV = 1e308 }, "ap.bias_v = 1e+307: must be non-zero and within ±100 V"},
+		{"bias limit of 1e308 V", func(p *Profile) { p.Limits.MaxBiasV = 1e308 }, "limits.max_bias_v = 1e+308: must be more than 0 and at most 100 V"},
+		{"current of 1 mA", func(p *Profile) { p.FE.CurrentA = 1e-3 }, "fe.current_a = 0.001: must be from 1 fA to 1 µA (1e-15 to 1e-06 A)"},
+		{"current of 1e-300 A", func(p *Profile) { p.AP.CurrentA = 1e-300; p.AP.LineDoseCPerCm = 1e300 }, "ap.current_a = 1e-300: must be from 1 fA to 1 µA"},
+		{"dose of 1e300 C/cm", func(p *Profile) { p.AP.LineDoseCPerCm = 1e300 }, "ap.line_dose_c_per_cm = 1e+300: must be from 1e-09 to 0.1 C/cm"},
+		{"writing slower than 1 pm/s", func(p *Profile) {
+			p.AP.CurrentA = 1e-15
+			p.AP.LineDoseCPerCm = 0.1
+			p.AP.Width.ThresholdDoseCPerCm = 1e-3
+		},
+			"ap.line_dose_c_per_cm = 0.1: with ap.current_a = 1e-15 A the tip would write at 1e-07 nm/s; a writing speed must be from 0.001"},
+		{"FE overlap 0.999999999", func(p *Profile) { p.FE.Overlap = 0.999999999 }, "fe.overlap = 0.999999999: must be from 0 to 0.95"},
+		{"dwell of years", func(p *Profile) { p.Dwell.YieldPerElectron = 1e-15; p.Dwell.CurrentA = 1e-12 }, "dwell.yield_per_electron = 1e-15: with dwell.current_a = 1e-12 A a dwell reaches its completion after"},
+		{"drift of 1e6 nm/min", func(p *Profile) { p.Drift.RateNMPerMin = 1e6 }, "drift.rate_nm_per_min = 1e+06: must be from 0 to 100 nm/min"},
+		{"tolerance of 1e-300 nm", func(p *Profile) { p.ToleranceAPNM = 1e-300 }, "tolerance_ap_nm = 1e-300: must be from 0.001 to 1000 nm"},
+		{"sigma of 1e9 nm", func(p *Profile) { p.FE.Width.SigmaNM = 1e9 }, "fe.width.sigma_nm = 1e+09: must be from 0.01 to 100 nm"},
+		{"scan field of 1 m", func(p *Profile) { p.Limits.ScanFieldNM = 1e9 }, "limits.scan_field_nm = 1e+09: must be more than 0 and at most 100000 nm"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			p := DefaultProfile()
+			c.edit(&p)
+			err := p.Validate()
+			if err == nil || !strings.Contains(err.Error(), c.want) {
+				t.Errorf("Validate() = %v\nwant a problem containing %q", err, c.want)
+			}
+		})
+	}
+	// Both presets sit well inside every range.
+	for _, name := range Presets() {
+		p, _ := Preset(name)
+		if err := p.Validate(); err != nil {
+			t.Errorf("preset %s: %v", name, err)
+		}
+	}
+}
+
+// Issue 16: --profile read a 1 GiB file whole before refusing it.
+func TestLoadProfileRefusesAGigabyte(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "big.json")
+	f, _ := os.Create(path)
+	f.WriteString(`{"format": "dimerpath-profile", "version": 1, "notes": "`)
+	if err := f.Truncate(1 << 30); err != nil {
+		t.Skip("no sparse files here:", err)
+	}
+	f.Close()
+	_, err := LoadProfile(path)
+	if !errors.Is(err, ErrInvalidProfile) || !strings.Contains(err.Error(), "big.json: the file holds 1 GiB, more than the 1 MiB limit") {
+		t.Errorf("LoadProfile(1 GiB) = %v", err)
+	}
+}

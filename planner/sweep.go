@@ -248,7 +248,11 @@ func sweepValue(d *design.Design, variant string, prof Profile, sp SweepParamete
 		var je *jsonfile.Error
 		if errors.As(err, &je) {
 			for _, pr := range je.Problems {
-				bad = append(bad, fmt.Sprintf("%s = %s: %s", sp.Name, v, pr.String()))
+				if pr.Path == sp.Name {
+					bad = append(bad, pr.String()) // names the field and the value itself
+				} else {
+					bad = append(bad, fmt.Sprintf("%s = %s: %s", sp.Name, v, pr.String()))
+				}
 			}
 		} else {
 			bad = append(bad, fmt.Sprintf("%s = %s: %v", sp.Name, v, err))

@@ -74,7 +74,7 @@ func TestSweepRefusesBadInputAndPlansNothing(t *testing.T) {
 		{"current beyond the instrument's limit", "ap.current_a", []string{"2e-9", "2e-8"},
 			[]string{"ap.current_a = 2e-8", "limits.max_current_a = 10 nA", "20 nA"}},
 		{"negative drift rate", "drift.rate_nm_per_min", []string{"0.1", "-0.5"},
-			[]string{"drift.rate_nm_per_min = -0.5", "zero or more"}},
+			[]string{"drift.rate_nm_per_min = -0.5: must be"}},
 		{"every bad value is listed", "drift.registration_s", []string{"-1", "x", "100"},
 			[]string{"2 values refused", "drift.registration_s = -1", `drift.registration_s = "x": not a number`}},
 		{"passes must be whole", "ap.passes", []string{"1.5"}, []string{"whole number"}},

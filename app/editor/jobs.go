@@ -187,3 +187,28 @@ func SuggestSweepValues(d *design.Design, variant string, prof planner.Profile, 
 	}
 	return strings.Join(vals, ",")
 }
+
+// VariantDifferences lays out every variant of d and says how each one
+// after the first differs from the first (design.Differences), keyed by
+// variant name; a variant that cannot be laid out is left out. The first
+// variant's layout is kept while the others are laid out one at a time.
+func VariantDifferences(ctx context.Context, d *design.Design) (map[string][]design.Difference, error) {
+	names := d.VariantNames()
+	out := map[string][]design.Difference{}
+	if len(names) < 2 {
+		return out, nil
+	}
+	first, err := d.Lay(names[0])
+	if err != nil {
+		return out, nil
+	}
+	for _, n := range names[1:] {
+		if err := ctx.Err(); err != nil {
+			return out, err
+		}
+		if l, err := d.Lay(n); err == nil {
+			out[n] = design.Differences(first, l)
+		}
+	}
+	return out, nil
+}

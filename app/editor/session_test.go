@@ -104,9 +104,13 @@ func TestRectangleSnapsToWholeDimers(t *testing.T) {
 	s := editortest.Tiny(t)
 	s.SetTool(editor.ToolRect)
 	s.Select()
-	// Corners anywhere inside lattice cells snap to cell corners.
-	a := s.Surface().DimerCentre(0, 10, 10).Add(r2.Point{X: 0.05, Y: 0.1})
-	b := s.Surface().DimerCentre(0, 13, 19).Add(r2.Point{X: 0.1, Y: -0.05})
+	// Corners snap to the nearest cell corner (issue 13: not outward, a
+	// 10 nm drag once became 11.52 nm): a point just inside the lower
+	// left corner of the cell of row 10, dimer 10 and one just inside the
+	// upper right corner of row 13, dimer 19.
+	half := r2.Point{X: lattice.DimerPitch / 2, Y: lattice.RowSpacing / 2}
+	a := s.Surface().DimerCentre(0, 10, 10).Sub(half).Add(r2.Point{X: 0.05, Y: 0.1})
+	b := s.Surface().DimerCentre(0, 13, 19).Add(half).Sub(r2.Point{X: 0.1, Y: 0.05})
 	s.Press(a)
 	s.Drag(b)
 	s.Release(b)

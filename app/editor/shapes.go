@@ -41,8 +41,8 @@ func (s *Session) SelectedShape() (region, shape int) {
 	return s.shapeSel.ref.Region, s.shapeSel.ref.Shape
 }
 
-// SelectedShapeBounds returns the field extent (nm) of the selected
-// shape's sites, empty when none is selected.
+// SelectedShapeBounds returns the field extent (nm) of the area the
+// selected shape writes (its sites' cells), empty when none is selected.
 func (s *Session) SelectedShapeBounds() r2.Rect {
 	if s.shapeSel == nil {
 		return r2.EmptyRect()
@@ -63,7 +63,7 @@ func (s *Session) SelectShape(i, k int) bool {
 		return false
 	}
 	s.sel = []int{i}
-	s.shapeSel = &selectedShape{ref: shapeRef{i, k}, sites: sites, bounds: sites.Bounds(s.surf)}
+	s.shapeSel = &selectedShape{ref: shapeRef{i, k}, sites: sites, bounds: sites.CellBounds(s.surf)}
 	s.notify(ChangeSelection | ChangeSites)
 	return true
 }
@@ -225,7 +225,7 @@ func (s *Session) MoveSelectedShape(d r2.Point) r2.Point {
 	if err := s.rasterise(c, &v.Regions[i]); err != nil {
 		s.Err = err
 	}
-	s.shapeSel = &selectedShape{ref: shapeRef{i, k}, sites: sites, bounds: sites.Bounds(s.surf)}
+	s.shapeSel = &selectedShape{ref: shapeRef{i, k}, sites: sites, bounds: sites.CellBounds(s.surf)}
 	s.commit(fmt.Sprintf("move %s of %s by (%.2f, %.2f) nm", ShapeName(sh), r.Name, step.X, step.Y), "", ChangeSites|ChangeRegions|ChangeSelection)
 	return step
 }

@@ -71,11 +71,13 @@ func (s *Session) RegionSites(i int) *lattice.SiteSet {
 	return s.cacheOf(s.variant, i).sites
 }
 
-// RegionBounds returns the field rectangle (nm) of region i's sites.
+// RegionBounds returns the field rectangle (nm) of the area region i
+// writes: the bounding box of its sites' cells, so a rectangle drawn by
+// the tool reports its own size.
 func (s *Session) RegionBounds(i int) r2.Rect {
 	c := s.cacheOf(s.variant, i)
 	if c.stale {
-		c.bounds = c.sites.Bounds(s.surf)
+		c.bounds = c.sites.CellBounds(s.surf)
 		c.stale = false
 	}
 	return c.bounds

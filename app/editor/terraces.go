@@ -159,3 +159,31 @@ func (s *Session) DeleteTerrace(i int) error {
 		return slices.Delete(ts, i, i+1)
 	})
 }
+
+// SetFieldSize sets the field to w x h nm, one undo step: the surface is
+// made again and every region rasterised on it. The design's rules
+// refuse a size that is not positive and finite, beyond 10 µm a side, or
+// that would leave painted sites off the field; shapes reaching beyond
+// it are the scan-field rule's finding, not a refusal.
+func (s *Session) SetFieldSize(w, h float64) error {
+	old := s.d.Field
+	f := design.Field{WidthNM: w, HeightNM: h}
+	if f == old {
+		return nil
+	}
+	label := fmt.Sprintf("set the field to %g x %g nm", w, h)
+	err := s.validEdit(label, func() func() {
+		s.d.Field = f
+		return func() { s.d.Field = old }
+	})
+	if err != nil {
+		return err
+	}
+	if err := s.terracesChanged(); err != nil {
+		s.d.Field = old
+		s.rebuildSurface()
+		return err
+	}
+	s.commit(label, "", ChangeTerraces|ChangeSites|ChangeRegions)
+	return nil
+}

@@ -46,7 +46,7 @@ var Tools = []ToolInfo{
 	{ToolSite, "Site", 's', "Click or drag to depassivate single H sites."},
 	{ToolDimer, "Dimer", 'd', "Click or drag to depassivate both H sites of each dimer."},
 	{ToolWindow, "Window", 'w', "Click to place a dopant window on whole dimers of one row."},
-	{ToolRect, "Rectangle", 'r', "Drag from corner to corner; corners snap between dimers and between rows."},
+	{ToolRect, "Rectangle", 'r', "Drag from corner to corner; each edge snaps to the nearest edge between dimers or between rows."},
 	{ToolPolygon, "Polygon", 'p', "Click the vertices; click the first again or press Enter to close, Esc to cancel."},
 	{ToolLine, "Line", 'l', "Drag, or click the vertices and press Enter (or click the last again); width in the options."},
 	{ToolArray, "Array", 'a', "Click to place an n x m array at a pitch counted in dimers and rows."},
@@ -554,18 +554,23 @@ func (s *Session) snapDimerCentre(p r2.Point) r2.Point {
 	return p
 }
 
-// snapRect returns the corners of the smallest rectangle made of whole
-// lattice cells (one dimer of one row each) that holds the cells under a
-// and b, on the terrace under a (else under b, else the first): its
-// edges run midway between dimers and midway between rows, so it holds
-// whole dimers of whole rows.
+// snapRect returns the corners of the rectangle drawn from a to b with
+// each edge moved to the nearest cell edge (midway between dimers along
+// the rows, midway between rows across them), on the terrace under a
+// (else under b, else the first): it holds whole dimers of whole rows,
+// and is the area it writes (lattice.Frame.NearestCellRect).
 func (s *Session) snapRect(a, b r2.Point) (lo, hi r2.Point) {
+	r := s.surf.Frame(s.terraceFor(a, b)).NearestCellRect(a, b)
+	return r.Lo(), r.Hi()
+}
+
+// terraceFor returns the terrace under a, else under b, else the first.
+func (s *Session) terraceFor(a, b r2.Point) int {
 	ti := s.surf.TerraceAt(a)
 	if ti < 0 {
 		ti = max(s.surf.TerraceAt(b), 0)
 	}
-	r := s.surf.Frame(ti).SnapRect(a, b)
-	return r.Lo(), r.Hi()
+	return ti
 }
 
 // Preview returns the shape the current tool is drawing, or the brush

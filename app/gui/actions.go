@@ -227,6 +227,20 @@ func (u *UI) compareVariants() {
 				break
 			}
 		}
+		// How each variant differs from the first: two rows that look
+		// alike still say what changed.
+		var diffs map[string][]design.Difference
+		if ctx.Err() == nil {
+			_ = editor.Guard(func() (err error) {
+				diffs, err = editor.VariantDifferences(ctx, d)
+				return err
+			})
+		}
+		for i := range res {
+			if ds, ok := diffs[res[i].Variant]; ok {
+				res[i].Differences, res[i].Compared = ds, true
+			}
+		}
 		fyne.Do(func() {
 			if u.jobDone != nil {
 				defer u.jobDone()
@@ -283,7 +297,7 @@ func rulesSummary(check func(context.Context, *design.Design, string) (editor.Ch
 // rules, when given, is each variant's design-rule summary, shown in a
 // last column: a fast variant that breaks the rules is no choice.
 func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObject {
-	header := []string{"Variant", "Write time", "P10 – P90", "Registrations", "All windows good", "Devices / perfect"}
+	header := []string{"Variant", "Write time", "P10 – P90", "Registrations", "All windows good", "Devices / perfect", "Coverage"}
 	if rules != nil {
 		header = append(header, "Design rules")
 	}
@@ -325,6 +339,12 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 		for _, t := range []string{r.Variant, units.Duration(p.TotalS), units.Duration(p.P10S) + " – " + units.Duration(p.P90S), reg, all, dev} {
 			cells = append(cells, widget.NewLabel(t))
 		}
+		cov := widget.NewLabel("passed")
+		if !p.Coverage.OK {
+			cov.SetText("failed")
+			cov.Importance = widget.DangerImportance
+		}
+		cells = append(cells, cov)
 		if rules != nil {
 			l := widget.NewLabel(rules[i])
 			if rules[i] != "passes" {
@@ -339,7 +359,39 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 	charts := container.NewGridWithColumns(2,
 		container.NewVBox(heading("Write time per variant"), NewBarChart(timeBars)),
 		container.NewVBox(heading("Chance every window takes one donor"), NewBarChart(yieldBars)))
-	return container.NewVBox(table, widget.NewSeparator(), charts, widget.NewSeparator(), mutedLabel(planner.Caution))
+	parts := []fyne.CanvasObject{table}
+	if diffs := differencesView(res); diffs != nil {
+		parts = append(parts, widget.NewSeparator(), diffs)
+	}
+	parts = append(parts, widget.NewSeparator(), charts, widget.NewSeparator(), mutedLabel(planner.Caution))
+	return container.NewVBox(parts...)
+}
+
+// differencesView lists how each compared variant differs from the
+// first, a table of what, its value in the first variant and here; nil
+// when no variant was compared.
+func differencesView(res []export.VariantResult) fyne.CanvasObject {
+	if len(res) < 2 {
+		return nil
+	}
+	cells := []fyne.CanvasObject{heading("Variant"), heading("What differs from " + res[0].Variant), heading("In " + res[0].Variant), heading("In this variant")}
+	n := 0
+	for _, r := range res[1:] {
+		if !r.Compared {
+			continue
+		}
+		n++
+		if len(r.Differences) == 0 {
+			cells = append(cells, widget.NewLabel(r.Variant), widget.NewLabel("the same layout"), widget.NewLabel(""), widget.NewLabel(""))
+		}
+		for _, d := range r.Differences {
+			cells = append(cells, widget.NewLabel(r.Variant), widget.NewLabel(d.What), widget.NewLabel(d.From), widget.NewLabel(d.To))
+		}
+	}
+	if n == 0 {
+		return nil
+	}
+	return container.New(&tableLayout{cols: 4}, cells...)
 }
 
 // exportComparisonTo writes the comparison report of res to path in the
@@ -364,7 +416,7 @@ func (u *UI) showComparison(res []export.VariantResult, rules []string) {
 		})
 	})
 	closeBtn := widget.NewButton("Close", func() { d.Hide() })
-	d = dialog.NewCustomWithoutButtons("Compare variants", container.New(&fixedSize{fyne.NewSize(1000, 520)}, content), u.Win)
+	d = dialog.NewCustomWithoutButtons("Compare variants", container.New(&fixedSize{fyne.NewSize(1100, 560)}, content), u.Win)
 	d.SetButtons([]fyne.CanvasObject{closeBtn, report})
 	d.Show()
 }

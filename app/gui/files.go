@@ -2,7 +2,6 @@ package gui
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"os"
@@ -32,16 +31,12 @@ import (
 const (
 	prefRecent   = "recent-files"
 	maxRecent    = 8
-	recoveryName = "recovery.json"
-	recoveryMeta = "recovery-meta.json"
+	recoveryName = editor.RecoveryName
+	recoveryMeta = editor.RecoveryMetaName
 )
 
 // recoveryInfo is stored beside the recovery copy of the design.
-type recoveryInfo struct {
-	Path    string    `json:"path"` // the file the design belongs to, or ""
-	SavedAt time.Time `json:"saved_at"`
-	Design  string    `json:"design"`
-}
+type recoveryInfo = editor.RecoveryInfo
 
 func (u *UI) configDir() (string, error) {
 	if u.opts.ConfigDir != "" {
@@ -402,17 +397,7 @@ func (r *recoveryFiles) remove(f func()) {
 // writeRecovery writes the recovery copy of d with save, and its
 // description beside it.
 func writeRecovery(save func(string, *design.Design) error, dir string, d *design.Design, info recoveryInfo) error {
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return err
-	}
-	if err := save(filepath.Join(dir, recoveryName), d); err != nil {
-		return err
-	}
-	meta, err := json.MarshalIndent(info, "", "  ")
-	if err != nil {
-		return err
-	}
-	return atomicfile.WriteBytes(filepath.Join(dir, recoveryMeta), meta, 0o644)
+	return editor.WriteRecovery(dir, d, info, save)
 }
 
 func (u *UI) removeRecovery() {
@@ -420,27 +405,30 @@ func (u *UI) removeRecovery() {
 	if err != nil {
 		return
 	}
-	u.recovery.remove(func() {
-		os.Remove(filepath.Join(dir, recoveryName))
-		os.Remove(filepath.Join(dir, recoveryMeta))
-	})
+	u.recovery.remove(func() { editor.RemoveRecovery(dir) })
 	u.lastAutosave = editor.PlanToken{}
 }
 
 // OfferRecovery asks whether to restore a recovery file left by a
-// session that did not close cleanly.
+// session that did not close cleanly. It first removes the temporary
+// files that a save or export killed mid-write left beside the recent
+// files (the recovery copy's directory is cleaned by FindRecovery).
 func (u *UI) OfferRecovery() {
+	var dirs []string
+	for _, f := range u.recent() {
+		dirs = append(dirs, filepath.Dir(f))
+	}
+	editor.CleanStaleFiles(dirs...)
 	dir, err := u.configDir()
 	if err != nil {
 		return
 	}
-	meta, err := os.ReadFile(filepath.Join(dir, recoveryMeta))
-	if err != nil {
+	info, found := editor.FindRecovery(dir)
+	if !found {
 		return
 	}
-	var info recoveryInfo
-	if json.Unmarshal(meta, &info) != nil {
-		return
+	if info.Design == "" {
+		info.Design = "(its description was lost)"
 	}
 	what := fmt.Sprintf("dimerpath did not close cleanly last time. It kept a copy of the unsaved design %q from %s.", info.Design, info.SavedAt.Local().Format("2 Jan 2006 15:04"))
 	then := "Recover opens it as unsaved work; save it where you like. Discard deletes the copy."
@@ -467,11 +455,7 @@ func (u *UI) Recover() error {
 	if err != nil {
 		return err
 	}
-	var info recoveryInfo
-	if meta, err := os.ReadFile(filepath.Join(dir, recoveryMeta)); err == nil {
-		json.Unmarshal(meta, &info)
-	}
-	d, err := editor.LoadDesign(filepath.Join(dir, recoveryName))
+	d, info, err := editor.LoadRecovery(dir)
 	if err != nil {
 		return fmt.Errorf("the recovery copy could not be read: %w", err)
 	}
@@ -551,10 +535,15 @@ func (u *UI) exportPlanTo(path string, d *design.Design, p *planner.Plan, es edi
 // with its path; a name without one of exts gets exts[0]. The file is
 // not touched here: the dialog's writer is closed unwritten (see
 // lazyFiles), and then writes the file through a temporary file, so a
-// write that fails leaves the old file as it was.
+// write that fails leaves the old file as it was. A path that cannot be
+// written (atomicfile.Check) is refused at once, before any work.
 func (u *UI) chooseFile(name string, exts []string, then func(path string)) {
 	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
 		path, err := chosenPath(w, err, exts)
+		if err == nil && path != "" {
+			// A read-only or full directory shows now, not after the work.
+			err = atomicfile.Check(path)
+		}
 		switch {
 		case err != nil:
 			dialog.ShowError(err, u.Win)

@@ -144,7 +144,11 @@ func TestKeysChooseToolsAndRectangle(t *testing.T) {
 	}
 	u.Session.Select()
 	surf := u.Session.Surface()
-	a, b := surf.DimerCentre(0, 30, 100), surf.DimerCentre(0, 39, 149)
+	// From the lower left corner of the cell of row 30, dimer 100 to the
+	// upper right corner of row 39, dimer 149: each corner snaps to the
+	// nearest cell edge.
+	half := r2.Point{X: lattice.DimerPitch / 2, Y: lattice.RowSpacing / 2}
+	a, b := surf.DimerCentre(0, 30, 100).Sub(half), surf.DimerCentre(0, 39, 149).Add(half)
 	zoomOn(w, u, a.Add(b).Mul(0.5), 0.1)
 	n := len(u.Session.Variant().Regions)
 	drag(w, u, a, b)

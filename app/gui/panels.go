@@ -15,7 +15,6 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
 
-	"dimerpath/app/editor"
 	"dimerpath/app/render"
 	"dimerpath/lattice/design"
 )
@@ -138,24 +137,26 @@ func showErr(l *widget.Label, err error) {
 // --- Regions ---
 
 type regionsPanel struct {
-	u        *UI
-	content  fyne.CanvasObject
-	list     *widget.List
-	empty    *widget.Label
-	form     *fyne.Container
-	name     *widget.Entry
-	role     *widget.Select
-	mode     *widget.Select
-	species  *widget.Select
-	tol      *widget.Entry
-	info     *widget.Label
-	msg      *widget.Label
-	shape    *widget.Label
-	shapeBox *fyne.Container
-	gaps     *fyne.Container
-	addGap   *widget.Select
-	shown    int // region the form shows
-	updating bool
+	u       *UI
+	content fyne.CanvasObject
+	list    *widget.List
+	empty   *widget.Label
+	form    *fyne.Container
+	split   *container.Split
+	// formScroll holds form under the list, shown while a region is.
+	formScroll *container.Scroll
+	name       *widget.Entry
+	role       *widget.Select
+	mode       *widget.Select
+	species    *widget.Select
+	tol        *widget.Entry
+	info       *widget.Label
+	msg        *widget.Label
+	shape      *shapeEditor
+	gaps       *fyne.Container
+	addGap     *widget.Select
+	shown      int // region the form shows
+	updating   bool
 }
 
 func newRegionsPanel(u *UI) *regionsPanel {
@@ -248,10 +249,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	}
 	p.info = mutedLabel("")
 	p.msg = errorLabel()
-	p.shape = wrapLabel("")
-	delShape := widget.NewButtonWithIcon("Delete shape", theme.DeleteIcon(), func() { p.u.Session.DeleteSelectedShape() })
-	p.shapeBox = container.NewBorder(nil, nil, nil, delShape, p.shape)
-	p.shapeBox.Hide()
+	p.shape = newShapeEditor(u)
 	p.gaps = container.NewVBox()
 	p.addGap = widget.NewSelect(nil, func(other string) {
 		if p.updating || p.shown < 0 || other == "" {
@@ -269,7 +267,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		widget.NewFormItem("Dopant", p.species),
 		widget.NewFormItem("Tolerance ± nm", p.tol),
 	)
-	p.form = container.NewVBox(widget.NewSeparator(), heading("Selected region"), form, p.msg, p.info, p.shapeBox,
+	p.form = container.NewVBox(widget.NewSeparator(), heading("Selected region"), form, p.msg, p.info, p.shape.box,
 		p.gaps, p.addGap,
 		container.NewGridWithColumns(2,
 			widget.NewButtonWithIcon("Zoom to", theme.ZoomFitIcon(), u.zoomToSelection),
@@ -282,7 +280,13 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		u.Session.AddRegion("region", design.RoleDevice)
 	})
 	top := container.NewVBox(container.NewBorder(nil, nil, heading("Regions of this variant"), add), p.empty)
-	p.content = container.NewBorder(top, p.form, nil, nil, p.list)
+	// The selected region's card scrolls under the list: with a shape's
+	// fields it is taller than a laptop's panel.
+	p.formScroll = container.NewVScroll(p.form)
+	p.formScroll.Hide()
+	p.split = container.NewVSplit(p.list, p.formScroll)
+	p.split.Offset = 1
+	p.content = container.NewBorder(top, nil, nil, nil, p.split)
 	return p
 }
 
@@ -300,13 +304,18 @@ func (p *regionsPanel) refresh() {
 	a := s.Active()
 	if a < 0 {
 		p.list.UnselectAll()
-		p.form.Hide()
+		p.formScroll.Hide()
+		p.split.SetOffset(1) // the list alone
 		p.shown = -1
 		return
 	}
 	p.list.Select(a)
 	p.list.ScrollTo(a)
-	p.form.Show()
+	if !p.formScroll.Visible() {
+		p.formScroll.Show()
+		p.split.SetOffset(0.3)
+		p.split.Refresh()
+	}
 	r := v.Regions[a]
 	if p.shown != a || p.name.Text != r.Name {
 		// Rewriting the entry while the user types in it would move the
@@ -340,20 +349,18 @@ func (p *regionsPanel) refresh() {
 		info += fmt.Sprintf(", %s erased", groupDigits(r.Erased.Count()))
 	}
 	if b := s.RegionBounds(a); !b.IsEmpty() {
-		info += fmt.Sprintf("; extent %s x %s", formatLength(b.Size().X), formatLength(b.Size().Y))
+		info += fmt.Sprintf("; writes %s × %s", formatLength(b.Size().X), formatLength(b.Size().Y))
 	}
 	if len(s.Selection()) > 1 {
 		info += fmt.Sprintf(". %d regions selected.", len(s.Selection()))
 	}
 	p.info.SetText(info)
 	p.refreshGaps()
-	if i, k := s.SelectedShape(); i == a && k >= 0 {
-		b := s.SelectedShapeBounds()
-		p.shape.SetText(fmt.Sprintf("Shape %d of %d: %s, %s x %s. Drag it with the Select tool to move it.", k+1, len(r.Shapes), editor.ShapeName(r.Shapes[k]), formatLength(b.Size().X), formatLength(b.Size().Y)))
-		p.shapeBox.Show()
-	} else {
-		p.shapeBox.Hide()
-	}
+	p.shape.refresh(a)
+	// The card may have been shown, hidden or rebuilt for another kind
+	// of shape: lay the form out again (a container shown later keeps
+	// the zero size it was laid out with while hidden).
+	p.form.Refresh()
 }
 
 // refreshGaps lists the selected region's tunnel gaps with their
@@ -603,6 +610,11 @@ type marksPanel struct {
 	name     *widget.Entry
 	nameMsg  *widget.Label
 	field    *widget.Label
+	fieldW   *widget.Entry
+	fieldH   *widget.Entry
+	fieldMsg *widget.Label
+	shownW   float64 // the field size the entries were last filled with
+	shownH   float64
 	updating bool
 }
 
@@ -695,7 +707,14 @@ func newMarksPanel(u *UI) *marksPanel {
 	}
 	p.nameMsg = errorLabel()
 	p.field = mutedLabel("")
-	top := container.NewVBox(heading("Design"), widget.NewForm(widget.NewFormItem("Name", p.name)), p.nameMsg, p.field, widget.NewSeparator())
+	p.fieldW, p.fieldH = widget.NewEntry(), widget.NewEntry()
+	p.fieldMsg = errorLabel()
+	p.fieldW.OnSubmitted = func(string) { p.applyField() }
+	p.fieldH.OnSubmitted = func(string) { p.applyField() }
+	applyField := widget.NewButtonWithIcon("Apply", theme.ConfirmIcon(), p.applyField)
+	fieldRow := container.NewBorder(nil, nil, nil, applyField, container.NewGridWithColumns(2,
+		widget.NewForm(widget.NewFormItem("Field width (nm)", p.fieldW)), widget.NewForm(widget.NewFormItem("height (nm)", p.fieldH))))
+	top := container.NewVBox(heading("Design"), widget.NewForm(widget.NewFormItem("Name", p.name)), p.nameMsg, fieldRow, p.fieldMsg, p.field, widget.NewSeparator())
 	p.content = container.NewBorder(top, nil, nil, nil, split)
 	return p
 }
@@ -709,6 +728,14 @@ func (p *marksPanel) refresh() {
 	p.updating = false
 	p.field.SetText(fmt.Sprintf("Field %s x %s, %s, %s. The name is printed on every plan and report.",
 		formatLength(d.Field.WidthNM), formatLength(d.Field.HeightNM), plural(len(d.Terraces), "terrace"), plural(len(d.Variants), "variant")))
+	if d.Field.WidthNM != p.shownW || d.Field.HeightNM != p.shownH {
+		// Only when the field changed (an edit, undo, another design), so
+		// a size being typed is not overwritten.
+		p.shownW, p.shownH = d.Field.WidthNM, d.Field.HeightNM
+		p.fieldW.SetText(trimZeros(fmt.Sprintf("%.3f", d.Field.WidthNM)))
+		p.fieldH.SetText(trimZeros(fmt.Sprintf("%.3f", d.Field.HeightNM)))
+		p.fieldMsg.Hide()
+	}
 	p.fids.Refresh()
 	p.terrs.Refresh()
 	if len(p.u.Session.Design().Fiducials) == 0 {
@@ -726,6 +753,22 @@ func (p *marksPanel) refresh() {
 	}
 	p.showFiducial()
 	p.showTerrace()
+}
+
+// applyField sets the field size typed, if both values are numbers the
+// design accepts.
+func (p *marksPanel) applyField() {
+	w, err := parseNumber("field width", p.fieldW.Text)
+	if err != nil {
+		showErr(p.fieldMsg, err)
+		return
+	}
+	h, err := parseNumber("field height", p.fieldH.Text)
+	if err != nil {
+		showErr(p.fieldMsg, err)
+		return
+	}
+	showErr(p.fieldMsg, p.u.Session.SetFieldSize(w, h))
 }
 
 func (p *marksPanel) showFiducial() {

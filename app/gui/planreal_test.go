@@ -66,8 +66,18 @@ func TestPlanButtonPlansDemo(t *testing.T) {
 		t.Error("the second variant shows the first one's plan")
 	}
 	waitJob(t, u, u.compareVariants)
-	if w.Canvas().Overlays().Top() == nil {
-		t.Error("comparison shows no dialog")
+	top := w.Canvas().Overlays().Top()
+	if top == nil {
+		t.Fatal("comparison shows no dialog")
+	}
+	// Issue 13: the two rows looked the same; the dialog says what
+	// differs and each variant's coverage check.
+	got := texts(top)
+	for _, want := range []string{"What differs from gap-9", "tunnel gap sensor-island – source-lead",
+		"6.91 nm (9.0 dimer rows across the rows)", "9.22 nm (12.0 dimer rows across the rows)", "Coverage", "passed"} {
+		if !strings.Contains(got, want) {
+			t.Errorf("comparison dialog lacks %q:\n%s", want, got)
+		}
 	}
 }
 

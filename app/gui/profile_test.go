@@ -25,8 +25,9 @@ func TestProfileEditorRefusesBadValues(t *testing.T) {
 		name, text, msg string
 	}{
 		{"not a number", "two", "not a number"},
-		{"negative", "-1", "positive"},
-		{"beyond the limit", "1e6", "more than the instrument allows (Instrument limits / Largest current (nA) = "},
+		{"negative", "-1", "must be from 1 fA to 1 µA"},
+		{"no instrument has it", "1e6", "Setpoint current (nA) = 1e+06: must be from 1 fA to 1 µA"},
+		{"beyond the limit", "50", "more than the instrument allows (Instrument limits / Largest current (nA) = "},
 	}
 	for _, c := range cases {
 		cur.SetText(c.text)

@@ -86,8 +86,8 @@ type Reader struct {
 func NewReader(r io.Reader, file string, limit int64, kind error) (*Reader, error) {
 	if f, ok := r.(*os.File); ok {
 		if st, err := f.Stat(); err == nil && st.Mode().IsRegular() && st.Size() > limit {
-			return nil, &Error{File: file, Kind: kind, Err: fmt.Errorf("%w: the file holds %s, more than the %s limit for this kind of file",
-				ErrTooLarge, jsonfile.Bytes(st.Size()), jsonfile.Bytes(limit))}
+			return nil, &Error{File: file, Kind: kind, Err: tooLarge(fmt.Sprintf("the file holds %s, more than the %s limit for this kind of file",
+				jsonfile.Bytes(st.Size()), jsonfile.Bytes(limit)))}
 		}
 	}
 	in := &boundedReader{r: r, left: limit, line: 1}
@@ -148,7 +148,7 @@ func (b *boundedReader) Read(p []byte) (int, error) {
 		if n, _ := io.ReadFull(b.r, one[:]); n == 0 {
 			return 0, io.EOF
 		}
-		b.err = fmt.Errorf("%w: more bytes than the limit for this kind of file", ErrTooLarge)
+		b.err = tooLarge("more bytes than the limit for this kind of file")
 		return 0, b.err
 	}
 	if int64(len(p)) > b.left {
@@ -170,3 +170,9 @@ func (b *boundedReader) Read(p []byte) (int, error) {
 	}
 	return n, err
 }
+
+// tooLarge is an error that says msg and wraps ErrTooLarge.
+type tooLarge string
+
+func (e tooLarge) Error() string { return string(e) }
+func (e tooLarge) Unwrap() error { return ErrTooLarge }

@@ -209,8 +209,8 @@ func Quote(v any) string {
 	return Prefix(fmt.Sprint(v), MaxQuote)
 }
 
-// Number formats x in its shortest form that reads back exactly: at most
-// 17 significant digits and an exponent beyond 1e21, so a message never
+// Number formats x in its shortest form that reads back exactly, with an
+// exponent from 1e+06 and below 1e-04 (strconv's 'g'), so a message never
 // holds a 309-digit number.
 func Number(x float64) string {
 	switch {
@@ -221,10 +221,18 @@ func Number(x float64) string {
 	case math.IsInf(x, -1):
 		return "-Inf"
 	}
-	if a := math.Abs(x); a != 0 && (a < 1e-6 || a >= 1e21) {
-		return strconv.FormatFloat(x, 'g', -1, 64)
+	return strconv.FormatFloat(x, 'g', -1, 64)
+}
+
+// Approx formats a computed value for a message with 4 significant
+// digits (6.364e-06, 4.082e+08, 1773): a model's output, where the exact
+// digits mean nothing to the reader.
+func Approx(x float64) string {
+	switch {
+	case math.IsNaN(x), math.IsInf(x, 0):
+		return Number(x)
 	}
-	return strconv.FormatFloat(x, 'f', -1, 64)
+	return strconv.FormatFloat(x, 'g', 4, 64)
 }
 
 // Prefix returns s cut to at most n bytes on a rune boundary, with "…"

@@ -212,7 +212,10 @@ func TestQuote(t *testing.T) {
 		{5e-324, "5e-324"},
 		{0.9999999999, "0.9999999999"},
 		{1772.9388372405147, "1772.9388372405147"},
-		{1e20, "100000000000000000000"},
+		{1e20, "1e+20"},
+		{86400, "86400"},
+		{1e6, "1e+06"},
+		{0.0001, "0.0001"},
 		{1e21, "1e+21"},
 		{math.MaxFloat64, "1.7976931348623157e+308"},
 		{math.NaN(), "NaN"},
@@ -339,6 +342,14 @@ func TestWriterLayout(t *testing.T) {
 `
 	if buf.String() != want {
 		t.Errorf("Writer wrote\n%s\nwant\n%s", buf.String(), want)
+	}
+}
+
+func TestBytes(t *testing.T) {
+	for n, want := range map[int64]string{812: "812 bytes", 64 << 20: "64 MiB", 1<<30 - 18: "1 GiB", 3 << 29: "1.5 GiB", 1 << 20: "1 MiB", 1536: "1.5 KiB"} {
+		if got := Bytes(n); got != want {
+			t.Errorf("Bytes(%d) = %q, want %q", n, got, want)
+		}
 	}
 }
 

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"strconv"
 )
 
 // ReadFile reads the file at path whole. A regular file larger than
@@ -85,19 +86,16 @@ func tooLarge(file string, size, limit int64, kind error) error {
 // Bytes formats a size in bytes for a message: "64 MiB", "1.5 GiB",
 // "812 bytes".
 func Bytes(n int64) string {
-	const unit = 1024
-	if n < unit {
+	if n < 1024 {
 		return fmt.Sprintf("%d bytes", n)
 	}
 	f := float64(n)
-	for _, u := range []string{"KiB", "MiB", "GiB", "TiB"} {
-		f /= unit
-		if f < unit || u == "TiB" {
-			if f == float64(int64(f)) {
-				return fmt.Sprintf("%d %s", int64(f), u)
-			}
-			return fmt.Sprintf("%.3g %s", f, u)
+	units := []string{"KiB", "MiB", "GiB", "TiB", "PiB", "EiB"}
+	for i, u := range units {
+		f /= 1024
+		if f < 999.5 || i == len(units)-1 {
+			return strconv.FormatFloat(f, 'g', 3, 64) + " " + u
 		}
 	}
-	return fmt.Sprintf("%d bytes", n)
+	return ""
 }

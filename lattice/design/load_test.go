@@ -72,6 +72,12 @@ func TestParseRefuses(t *testing.T) {
 			[]string{`variants[0].regions[0].shapes[0].template: "Sb" is not a template ("As", "P")`}},
 		{"huge array", strings.Replace(minimal, `{"kind": "rect", "points_nm": [[10, 10], [60, 60]]}`, `{"kind": "array", "array": {"of": {"kind": "site", "points_nm": [[1, 1]]}, "cols": 100000, "rows": 100000, "pitch_dimers": 1, "pitch_rows": 1}}`, 1),
 			[]string{"variants[0].regions[0].shapes[0].array: 100000 x 100000 = 10000000000 copies, more than the limit"}},
+		// Issue 16: a rectangle to 1e19 nm laid out as nothing and planned
+		// with exit status 0.
+		{"rect to 1e19 nm", strings.Replace(minimal, `[[10, 10], [60, 60]]`, `[[10, 10], [1e19, 60]]`, 1),
+			[]string{"bad.json:5:102: variants[0].regions[0].shapes[0].points_nm[1]: [1e+19, 60] lies beyond ±10000 nm, farther out than the largest field reaches"}},
+		{"terrace corner at 1e308 nm", strings.Replace(minimal, `"variants"`, `"terraces": [{"name": "t", "rows": "x", "boundary_nm": [[0, 0], [1e308, 0], [0, 5]]}], "variants"`, 1),
+			[]string{"terraces[0].boundary_nm[1]: [1e+308, 0] lies beyond ±10000 nm"}},
 		{"tunnel gap to nowhere", strings.Replace(minimal, `]}]
 }`, `], "tunnel_gaps": [{"a": "pad", "b": "island"}]}]
 }`, 1), []string{`variants[0].tunnel_gaps[0].b: "island" names no region of variant "A"`}},

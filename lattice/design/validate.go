@@ -5,6 +5,7 @@ import (
 	"math"
 	"strings"
 
+	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice"
 )
 
@@ -230,8 +231,7 @@ func (d *Design) validateTerraces(ps *problems) bool {
 			ok = false
 		}
 		for k, p := range t.Boundary {
-			if !finite(p[0]) || !finite(p[1]) {
-				ps.add(fmt.Sprintf("%s.boundary_nm[%d]", path, k), "%v is not a finite point", p)
+			if !checkPoint(ps, fmt.Sprintf("%s.boundary_nm[%d]", path, k), p) {
 				ok = false
 			}
 		}
@@ -405,9 +405,7 @@ func validateShape(ps *problems, path string, sh *Shape, r *Region, templates Te
 		ps.add(path+".points_nm", "has %d points, more than the limit of %d", n, MaxPoints)
 	}
 	for k, p := range sh.Points {
-		if !finite(p[0]) || !finite(p[1]) {
-			ps.add(fmt.Sprintf("%s.points_nm[%d]", path, k), "%v is not a finite point", p)
-		}
+		checkPoint(ps, fmt.Sprintf("%s.points_nm[%d]", path, k), p)
 	}
 	if sh.Kind == ShapePolyline {
 		if !(sh.WidthNM > 0 && sh.WidthNM <= MaxFieldNM) {
@@ -472,4 +470,21 @@ func validateShape(ps *problems, path string, sh *Shape, r *Region, templates Te
 		return a.Cols * a.Rows
 	}
 	return 0
+}
+
+// checkPoint reports whether p is a finite point within reach of the
+// largest field (MaxFieldNM from the origin on either axis), recording a
+// problem at path if not. A coordinate beyond that (a rectangle to 1e19
+// nm) lays out as nothing on the lattice, so it is a typo to report,
+// not a shape to drop silently.
+func checkPoint(ps *problems, path string, p [2]float64) bool {
+	switch {
+	case !finite(p[0]) || !finite(p[1]):
+		ps.add(path, "%s is not a finite point", jsonfile.Quote(p))
+	case math.Abs(p[0]) > MaxFieldNM || math.Abs(p[1]) > MaxFieldNM:
+		ps.add(path, "%s lies beyond ±%g nm, farther out than the largest field reaches", jsonfile.Quote(p), MaxFieldNM)
+	default:
+		return true
+	}
+	return false
 }

@@ -21,7 +21,8 @@ func Marshal(d *Design) ([]byte, error) {
 // Save validates d and writes it to path atomically: to a temporary file
 // in the same directory, renamed over path only once it is complete, so
 // a failed save leaves the old file untouched. It sets Format and Version
-// to this program's. A design that does not validate is not written.
+// to this program's. A design that does not validate is not written, nor
+// one whose file would be larger than MaxFileBytes, which Load refuses.
 func Save(path string, d *Design) error {
 	d.Format, d.Version = FormatName, FormatVersion
 	if err := d.Validate(); err != nil {
@@ -33,6 +34,13 @@ func Save(path string, d *Design) error {
 	data, err := Marshal(d)
 	if err != nil {
 		return err
+	}
+	// Never write a file Load refuses.
+	if len(data) > MaxFileBytes {
+		ps := problems{}
+		ps.Add(jsonfile.Problem{Message: "the design would take " + jsonfile.Bytes(int64(len(data))) + ", more than the " +
+			jsonfile.Bytes(MaxFileBytes) + " a design file may hold (paint fewer scattered sites, or use shapes)", Err: jsonfile.ErrTooLarge})
+		return ps.err(path)
 	}
 	return atomicfile.WriteBytes(path, data, 0o644)
 }

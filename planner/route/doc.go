@@ -30,6 +30,14 @@
 //     layouts joins each cluster's edge to the next clusters.
 //   - Construction: greedy edge matching (Bentley 1992), fixed edges first,
 //     fragments joined by the same rule on their ends.
+//   - Candidates for the Lin-Kernighan search (problems up to 15,000
+//     nodes per second of budget, 30,000 at the default or when bounded
+//     by kicks, and without two or more one-way strokes): the 7 α-nearest
+//     of each node (Helsgaun 2000) among its 10 nearest and 2 nearest per
+//     quadrant and the greedy tour's edges; α from minimum 1-trees on that
+//     sparse graph, with node penalties from 25 steps of subgradient
+//     optimisation (Held & Karp 1970; a lighter set-up, 8 + 1 per quadrant
+//     and 10 steps, above 4,000 nodes per second of budget).
 //   - Local search from a queue of nodes (don't-look bits, Bentley 1992):
 //     2-opt (Croes 1958), Or-opt moves of segments of up to three nodes
 //     either way round (Or 1976) and sequential 3-opt moves, the depth-3
@@ -37,7 +45,12 @@
 //     with the gain criterion. The tour is an array with a position index;
 //     a reversal turns the shorter side. Above 50,000 nodes the nodes are
 //     renumbered along a Hilbert curve (cache locality); above 100,000 a
-//     reversal is capped at 50,000 positions.
+//     reversal is capped at 50,000 positions. Where those find nothing,
+//     the Lin-Kernighan search on the α candidates (Lin & Kernighan 1973;
+//     the chaining of 5-opt basic moves as in Helsgaun 2000): the first
+//     improving sequential move of up to five edges, else the valid
+//     5-opt move of greatest partial gain, continued from its last node,
+//     up to eight basic moves deep; a chain that never gains is undone.
 //   - Improvement until the budget is spent: segment-local double-bridge
 //     kicks (Martin, Otto & Felten 1991): four edges cut close together,
 //     X B C D reconnected as X D C B (or, for half the kicks, X C B D)
@@ -47,9 +60,10 @@
 //     local search (Johnson & McGeoch 1997, "The traveling salesman
 //     problem: a case study in local optimization").
 //   - Strokes: after the construction, the directions of all strokes are
-//     chosen at once by dynamic programming along the tour. When there
-//     are strokes the local search also tries sequential 4- and 5-opt
-//     moves (the deeper Lin-Kernighan steps, with breadth 5, 3, 2, 1 at
+//     chosen at once by dynamic programming along the tour. Where the
+//     Lin-Kernighan search is not set up (larger problems, one-way
+//     strokes), a problem with strokes gets single sequential 4- and
+//     5-opt moves on the neighbour lists instead (breadth 5, 3, 2, 1 at
 //     the first levels) where the shallower moves find nothing.
 //   - Groups are ordered greedily: of the groups whose predecessors are all
 //     written, the one with an item nearest the tip goes next, solved as an

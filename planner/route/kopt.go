@@ -25,6 +25,7 @@ var koptBreadth = [koptDepthMax]int{0, 5, 3, 2, 1}
 type koptState struct {
 	t    [2*koptDepthMax + 1]int32 // t[1..2k]
 	node [2 * koptDepthMax]int32   // the 2k nodes by position, from a segment head
+	key  uint32                    // the checked move's new segment order (koptValid)
 }
 
 // bestKOpt searches sequential 4- and 5-opt moves from t1 and makes the
@@ -104,8 +105,17 @@ func (s *solver) koptStep(i int, G float64) bool {
 func (s *solver) koptSegments(m int) {
 	k := &s.kopt
 	nodes := k.node[:2*m]
-	copy(nodes, k.t[1:2*m+1])
-	slices.SortFunc(nodes, func(a, b int32) int { return int(s.pos[a]) - int(s.pos[b]) })
+	// Insertion sort by position: at most 10 nodes.
+	var keys [2 * koptDepthMax]int32
+	for i, v := range k.t[1 : 2*m+1] {
+		p := s.pos[v]
+		j := i
+		for j > 0 && keys[j-1] > p {
+			keys[j], nodes[j] = keys[j-1], nodes[j-1]
+			j--
+		}
+		keys[j], nodes[j] = p, v
+	}
 	// The first sorted node heads a segment only if it is cut from its
 	// predecessor (at the end of the array); else it ends the segment
 	// that wraps round, which the last sorted node heads.
@@ -160,8 +170,22 @@ func (s *solver) koptMate(v int32, m int) int32 {
 }
 
 // koptMake checks that the closed m-opt move in s.kopt leaves one tour
-// and, if so and its reversals are short enough, makes it.
+// and, if so and its reversals are short enough, makes it and queues its
+// nodes.
 func (s *solver) koptMake(m int) bool {
+	if !s.koptDo(m) {
+		return false
+	}
+	for _, v := range s.kopt.t[1 : 2*m+1] {
+		s.push(v)
+	}
+	return true
+}
+
+// koptValid reports whether the closed m-opt move in s.kopt leaves one
+// tour (a walk over its segments), leaving the segments' new order in
+// s.kopt.key.
+func (s *solver) koptValid(m int) bool {
 	k := &s.kopt
 	s.koptSegments(m)
 	// Sorted index i is segment i/2's head (even) or last node (odd),
@@ -183,11 +207,6 @@ func (s *solver) koptMake(m int) bool {
 		}
 		at = nx
 	}
-	// The segments' lengths, for the reversal bound.
-	var length [koptDepthMax]int32
-	for sg := range m {
-		length[sg] = s.pathLen(s.pos[k.node[2*sg]], s.pos[k.node[2*sg+1]])
-	}
 	// Signed permutation of segments 1..m-1 in the new order.
 	var key uint32
 	for c := 1; c < m; c++ {
@@ -197,7 +216,23 @@ func (s *solver) koptMake(m int) bool {
 		}
 		key |= e << (4 * (c - 1))
 	}
-	steps := reversalPlan(m-1, key)
+	k.key = key
+	return true
+}
+
+// koptDo makes the closed m-opt move in s.kopt if it leaves one tour and
+// its reversals are short enough.
+func (s *solver) koptDo(m int) bool {
+	if !s.koptValid(m) {
+		return false
+	}
+	k := &s.kopt
+	// The segments' lengths, for the reversal bound.
+	var length [koptDepthMax]int32
+	for sg := range m {
+		length[sg] = s.pathLen(s.pos[k.node[2*sg]], s.pos[k.node[2*sg+1]])
+	}
+	steps := reversalPlan(m-1, k.key)
 	// Check every reversal's length first, then make them.
 	cur := [koptDepthMax]int8{}
 	cr := [koptDepthMax]bool{}
@@ -237,9 +272,6 @@ func (s *solver) koptMake(m int) bool {
 		i, j := int(st[0]), int(st[1])
 		s.flip(exit(i-1), entry(i), exit(j), entry(j+1))
 		reverseBlock(cur[:], cr[:], i, j)
-	}
-	for _, v := range k.t[1 : 2*m+1] {
-		s.push(v)
 	}
 	return true
 }

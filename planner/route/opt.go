@@ -55,6 +55,9 @@ func (s *solver) improve(v int32) bool {
 		m := move3{delta: -s.eps}
 		s.bestOr3(v, &m)
 		if m.kind == 0 {
+			if s.useLK {
+				return s.lkSearch(v)
+			}
 			return s.deep && s.bestKOpt(v)
 		}
 		s.applyOr3(&m)

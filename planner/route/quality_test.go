@@ -26,7 +26,7 @@ func TestQualityTSPLIB(t *testing.T) {
 				t.Fatal(err)
 			}
 			p := route.Problem{Items: in.Items(), Closed: true}
-			s, err := route.Solve(context.Background(), p, route.Options{MaxKicks: 20 * in.Len(), Seed: 1})
+			s, err := route.Solve(context.Background(), p, route.Options{MaxKicks: 3 * in.Len(), Seed: 1})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -37,8 +37,8 @@ func TestQualityTSPLIB(t *testing.T) {
 			if got < opt {
 				t.Errorf("%s: tour %d shorter than the published optimum %d", name, got, opt)
 			}
-			if gap > 2 {
-				t.Errorf("%s: gap %.2f%% to the published optimum, want <= 2%%", name, gap)
+			if gap > 1 {
+				t.Errorf("%s: gap %.2f%% to the published optimum, want <= 1%%", name, gap)
 			}
 		})
 	}

@@ -294,7 +294,7 @@ func TestValidLarge(t *testing.T) {
 						if start {
 							p.Start = &route.Point{X: -5, Y: 50}
 						}
-						s, err := route.Solve(context.Background(), p, route.Options{MaxKicks: 2 * n})
+						s, err := route.Solve(context.Background(), p, route.Options{MaxKicks: min(2*n, 1000)})
 						if err != nil {
 							t.Fatal(err)
 						}
@@ -350,11 +350,18 @@ func TestSpatialOrder(t *testing.T) {
 
 func TestDeterministic(t *testing.T) {
 	r := rand.New(rand.NewPCG(1, 2))
-	p := route.Problem{Items: randomItems(r, 500, true, false)}
-	a, _ := route.Solve(context.Background(), p, route.Options{MaxKicks: 3000, Seed: 7})
-	b, _ := route.Solve(context.Background(), p, route.Options{MaxKicks: 3000, Seed: 7})
-	if fmt.Sprint(a.Order, a.Reversed) != fmt.Sprint(b.Order, b.Reversed) {
-		t.Error("Solve with the same seed and MaxKicks gave different orders")
+	for _, p := range []route.Problem{
+		{Items: randomItems(r, 500, true, false)},
+		// Points, closed: the Lin-Kernighan search on α candidates.
+		{Items: randomItems(r, 1500, false, false), Closed: true},
+		// One-way strokes: the single deep moves on nearest neighbours.
+		{Items: randomItems(r, 500, true, true)},
+	} {
+		a, _ := route.Solve(context.Background(), p, route.Options{MaxKicks: 3000, Seed: 7})
+		b, _ := route.Solve(context.Background(), p, route.Options{MaxKicks: 3000, Seed: 7})
+		if fmt.Sprint(a.Order, a.Reversed) != fmt.Sprint(b.Order, b.Reversed) {
+			t.Errorf("%d items: Solve with the same seed and MaxKicks gave different orders", len(p.Items))
+		}
 	}
 }
 

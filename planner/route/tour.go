@@ -22,6 +22,9 @@ type solver struct {
 	or3       bool  // also try sequential 3-opt moves
 	deep      bool  // also try sequential 4- and 5-opt moves
 	kopt      koptState
+	lk        lkState
+	lkTouched []int32
+	useLK     bool // chained k-opt (lk.go) instead of single 4-/5-opt moves
 	units     []int32
 	dpCost    []float64
 	dpFrom    []int8

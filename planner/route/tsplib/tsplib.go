@@ -142,7 +142,12 @@ func Read(r io.Reader, file string) (*Instance, error) {
 			x, err1 := strconv.ParseFloat(f[1], 64)
 			y, err2 := strconv.ParseFloat(f[2], 64)
 			if err1 != nil || err2 != nil || math.IsNaN(x) || math.IsNaN(y) || math.IsInf(x, 0) || math.IsInf(y, 0) {
-				return nil, fail("NODE_COORD_SECTION", fmt.Errorf("%w: coordinates %q %q are not finite numbers", ErrFormat, f[1], f[2]))
+				return nil, fail("NODE_COORD_SECTION", fmt.Errorf("%w: coordinates %q %q are not finite numbers", ErrFormat, short(f[1]), short(f[2])))
+			}
+			// The route engine refuses larger coordinates; say so here,
+			// where the file and line are known.
+			if math.Abs(x) > route.MaxCoordinate || math.Abs(y) > route.MaxCoordinate {
+				return nil, fail("NODE_COORD_SECTION", fmt.Errorf("%w: coordinates %s %s: a magnitude above %g, more than the route engine takes", ErrFormat, short(f[1]), short(f[2]), route.MaxCoordinate))
 			}
 			have[id-1] = true
 			in.X[id-1], in.Y[id-1] = x, y
@@ -266,4 +271,12 @@ func ReadTour(r io.Reader, file string, n int) ([]int, error) {
 		return nil, fail("TOUR_SECTION", fmt.Errorf("%w: %d nodes, want %d", ErrFormat, len(tour), n))
 	}
 	return tour, nil
+}
+
+// short cuts a field quoted in a message to 40 bytes.
+func short(s string) string {
+	if len(s) > 40 {
+		return s[:40] + "…"
+	}
+	return s
 }

@@ -154,3 +154,13 @@ func FuzzReadTour(f *testing.F) {
 		}
 	})
 }
+
+// Issue 16: a coordinate of 1e308 passed the reader and was refused by
+// the route engine without the file or the line.
+func TestReadRefusesHugeCoordinates(t *testing.T) {
+	in := "NAME: x\nTYPE: TSP\nDIMENSION: 3\nEDGE_WEIGHT_TYPE: EUC_2D\nNODE_COORD_SECTION\n1 0 0\n2 1e308 5\n3 4 4\nEOF\n"
+	_, err := tsplib.Read(strings.NewReader(in), "big.tsp")
+	if err == nil || !strings.HasPrefix(err.Error(), "big.tsp:7") || !strings.Contains(err.Error(), "1e308") {
+		t.Errorf("Read = %v, want an error naming big.tsp, line 7 and 1e308", err)
+	}
+}

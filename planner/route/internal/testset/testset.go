@@ -26,8 +26,12 @@ func Dir() string {
 
 // Optima returns the published optimal tour lengths, by instance name,
 // from testdata/tsplib/OPTIMA.tsv (TSPLIB95's list of optima).
-func Optima() (map[string]int, error) {
-	f, err := os.Open(filepath.Join(Dir(), "OPTIMA.tsv"))
+func Optima() (map[string]int, error) { return OptimaIn(Dir()) }
+
+// OptimaIn reads dir/OPTIMA.tsv: a header line, then name, n, edge weight
+// type and optimal length, tab-separated.
+func OptimaIn(dir string) (map[string]int, error) {
+	f, err := os.Open(filepath.Join(dir, "OPTIMA.tsv"))
 	if err != nil {
 		return nil, err
 	}
@@ -49,8 +53,11 @@ func Optima() (map[string]int, error) {
 }
 
 // Load reads testdata/tsplib/NAME.tsp.
-func Load(name string) (*tsplib.Instance, error) {
-	path := filepath.Join(Dir(), name+".tsp")
+func Load(name string) (*tsplib.Instance, error) { return LoadIn(Dir(), name) }
+
+// LoadIn reads dir/NAME.tsp.
+func LoadIn(dir, name string) (*tsplib.Instance, error) {
+	path := filepath.Join(dir, name+".tsp")
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, err

@@ -1,17 +1,24 @@
 // Command yardstick measures the route engine against published optima
 // and baselines in one run, and prints the tables `make bench` shows:
 //
-//   - the TSPLIB instances of 1,000-20,000 nodes in testdata/tsplib
-//     (closed tours, TSPLIB's rounded distance, gap to the published
-//     optimum) beside the nearest-neighbour tour;
+//   - every TSPLIB instance of 1,000-20,000 nodes in testdata/tsplib (or
+//     -dir, with its OPTIMA.tsv) whose optimum is listed: closed tours,
+//     TSPLIB's rounded distance, gap to the published optimum, mean and
+//     worst, beside the nearest-neighbour tour, with the ratios of gap and
+//     time to it measured in the same run;
 //   - random uniform points (10^5, and 10^6 with -huge): time, peak memory
 //     and length beside nearest neighbour;
 //   - random reversible strokes (10^3 on 12 instances, 10^4 on 4): idle
 //     travel beside the greedy nearest-endpoint order, the gain's mean and
-//     worst over the instances, and the Held-Karp lower bound.
+//     worst over the instances, the Held-Karp lower bound, and with
+//     -longrun the gap to a long run on each instance.
 //
-// Usage: go run ./planner/route/internal/yardstick [-budget 2s] [-huge] [-only a,b]
-// [-strokes 1000:12,10000:4] [-bound]
+// The load average is printed at the start and the end: the machine may
+// be shared, so compare ratios measured in one run.
+//
+// Usage: go run ./planner/route/internal/yardstick [-budget 2s] [-seeds 1] [-huge]
+// [-only a,b] [-dir DIR] [-min 1000] [-max 20000] [-strokes 1000:12,10000:4]
+// [-longrun 60s] [-bound]
 package main
 
 import (
@@ -19,13 +26,16 @@ import (
 	"flag"
 	"fmt"
 	"os"
+	"path/filepath"
 	"runtime"
+	"slices"
 	"strings"
 	"text/tabwriter"
 	"time"
 
 	"dimerpath/planner/route"
 	"dimerpath/planner/route/internal/testset"
+	"dimerpath/planner/route/tsplib"
 )
 
 func main() {
@@ -35,6 +45,11 @@ func main() {
 	seed := flag.Int64("seed", 1, "Solve's seed")
 	strokes := flag.String("strokes", "1000:12,10000:4", "stroke instances: n:count,... (instance seeds 1..count)")
 	allBounds := flag.Bool("bound", false, "the Held-Karp bound on every stroke instance up to 2000 strokes, not only the first (about 5 s each)")
+	dir := flag.String("dir", testset.Dir(), "directory of TSPLIB NAME.tsp files and their OPTIMA.tsv")
+	minN := flag.Int("min", 1000, "smallest TSPLIB instance measured, in nodes")
+	maxN := flag.Int("max", 20000, "largest TSPLIB instance measured, in nodes")
+	seeds := flag.Int("seeds", 1, "TSPLIB: solve each instance with this many seeds from -seed on (mean and worst)")
+	longRun := flag.Duration("longrun", 0, "strokes: also solve each instance with this budget and report the gap to that long run")
 	flag.Parse()
 	sizes, err := parseSizes(*strokes)
 	if err != nil {
@@ -58,11 +73,14 @@ func main() {
 	if *budget == route.DefaultBudget {
 		opt.Budget = 0 // as callers get it: stops early once converged
 	}
-	fmt.Printf("route yardstick: budget %v, seed %d, GOMAXPROCS %d, %s\n\n", *budget, *seed, runtime.GOMAXPROCS(0), runtime.Version())
-	if err := tsplibTable(want, opt); err != nil {
+	fmt.Printf("route yardstick: budget %v, seed %d, GOMAXPROCS %d, %s, load average at start %s\n\n", *budget, *seed, runtime.GOMAXPROCS(0), runtime.Version(), loadAvg())
+	defer func() { fmt.Printf("load average at the end %s\n", loadAvg()) }()
+	set, err := tsplibSet(*dir, *minN, *maxN, want)
+	if err != nil {
 		fmt.Fprintln(os.Stderr, "yardstick:", err)
 		os.Exit(1)
 	}
+	tsplibTable(set, opt, *seeds)
 	if want("uniform") {
 		sizes := []int{100_000}
 		if *huge {
@@ -71,8 +89,21 @@ func main() {
 		uniformTable(sizes, opt)
 	}
 	if want("strokes") {
-		strokesTable(opt, sizes, *allBounds)
+		strokesTable(opt, sizes, *allBounds, *longRun)
 	}
+}
+
+// loadAvg is the system's load average (Linux), or "?".
+func loadAvg() string {
+	b, err := os.ReadFile("/proc/loadavg")
+	if err != nil {
+		return "?"
+	}
+	f := strings.Fields(string(b))
+	if len(f) < 3 {
+		return "?"
+	}
+	return strings.Join(f[:3], " ")
 }
 
 func timed(f func()) time.Duration {
@@ -81,50 +112,93 @@ func timed(f func()) time.Duration {
 	return time.Since(t0)
 }
 
-func tsplibTable(want func(...string) bool, opt route.Options) error {
-	optima, err := testset.Optima()
+// instance is one TSPLIB file to measure.
+type instance struct {
+	name string
+	in   *tsplib.Instance
+	opt  int
+}
+
+// tsplibSet reads every NAME.tsp in dir with minN..maxN nodes whose
+// optimum OPTIMA.tsv lists, smallest first.
+func tsplibSet(dir string, minN, maxN int, want func(...string) bool) ([]instance, error) {
+	optima, err := testset.OptimaIn(dir)
 	if err != nil {
-		return err
+		return nil, err
 	}
-	tw := tabwriter.NewWriter(os.Stdout, 2, 0, 2, ' ', tabwriter.AlignRight)
-	header := false
-	var sumGap, sumNN float64
-	count := 0
-	for _, name := range testset.Quality {
-		if !want("tsplib", name) {
+	files, _ := filepath.Glob(filepath.Join(dir, "*.tsp"))
+	var set []instance
+	for _, f := range files {
+		name := strings.TrimSuffix(filepath.Base(f), ".tsp")
+		o, ok := optima[name]
+		if !ok || !want("tsplib", name) {
 			continue
 		}
-		in, err := testset.Load(name)
+		in, err := testset.LoadIn(dir, name)
 		if err != nil {
-			return err
+			return nil, err
 		}
-		if !header {
-			fmt.Println("TSPLIB closed tours (Reinelt 1991; length with TSPLIB's nint distance; optimum from TSPLIB's published list)")
-			fmt.Fprintln(tw, "instance\tn\tlength\toptimum\tgap %\ttime\tNN length\tNN gap %\tNN time\t")
-			header = true
+		if in.Len() >= minN && in.Len() <= maxN {
+			set = append(set, instance{name, in, o})
 		}
-		p := route.Problem{Items: in.Items(), Closed: true}
-		var s, nn route.Solution
-		var serr error
+	}
+	slices.SortFunc(set, func(a, b instance) int { return a.in.Len() - b.in.Len() })
+	return set, nil
+}
+
+// tsplibTable solves each instance with seeds opt.Seed.. (seeds of them) and prints its
+// gap to the published optimum beside the nearest-neighbour tour's, with
+// the ratios of gap and time to the nearest-neighbour tour measured in
+// the same run, and the mean and worst over the instances.
+func tsplibTable(set []instance, opt route.Options, seeds int) {
+	if len(set) == 0 {
+		return
+	}
+	fmt.Println("TSPLIB closed tours (Reinelt 1991; length with TSPLIB's nint distance; optimum from TSPLIB's published list);")
+	fmt.Println("NN: the nearest-neighbour tour (route.Nearest) measured in the same run; gap ratio = gap / NN gap, time ratio = time / NN time;")
+	fmt.Println("CPU: the process's CPU time during the solve (below the wall time when other work shares the cores)")
+	tw := tabwriter.NewWriter(os.Stdout, 2, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "instance\tn\tlength\toptimum\tgap %\tworst seed gap %\ttime\tCPU\tNN length\tNN gap %\tNN time\tgap ratio\ttime ratio\t")
+	var sumGap, sumNN, sumRatio, sumTRatio, worst float64
+	worstName := ""
+	for _, x := range set {
+		p := route.Problem{Items: x.in.Items(), Closed: true}
+		var nn route.Solution
 		tn := timed(func() { nn, _ = route.Nearest(p) })
-		ts := timed(func() { s, serr = route.Solve(context.Background(), p, opt) })
-		if serr != nil {
-			return serr
+		ln := x.in.TourLength(nn.Order)
+		gapNN := 100 * float64(ln-x.opt) / float64(x.opt)
+		var gapSum, gapWorst, tSum, cSum float64
+		var l int
+		for i := range seeds {
+			o := opt
+			o.Seed = opt.Seed + int64(i)
+			var s route.Solution
+			c0 := cpuTime()
+			ts := timed(func() { s, _ = route.Solve(context.Background(), p, o) })
+			cSum += (cpuTime() - c0).Seconds()
+			l = x.in.TourLength(s.Order)
+			gap := 100 * float64(l-x.opt) / float64(x.opt)
+			gapSum += gap
+			gapWorst = max(gapWorst, gap)
+			tSum += ts.Seconds()
 		}
-		o := optima[name]
-		l, ln := in.TourLength(s.Order), in.TourLength(nn.Order)
-		gap, gapNN := 100*float64(l-o)/float64(o), 100*float64(ln-o)/float64(o)
+		k := float64(seeds)
+		gap, ts := gapSum/k, tSum/k
+		if gapWorst > worst {
+			worst, worstName = gapWorst, x.name
+		}
 		sumGap += gap
 		sumNN += gapNN
-		count++
-		fmt.Fprintf(tw, "%s\t%d\t%d\t%d\t%.2f\t%.2fs\t%d\t%.2f\t%.3fs\t\n", name, in.Len(), l, o, gap, ts.Seconds(), ln, gapNN, tn.Seconds())
+		sumRatio += gap / gapNN
+		tnS := max(tn.Seconds(), 1e-6)
+		sumTRatio += ts / tnS
+		fmt.Fprintf(tw, "%s\t%d\t%d\t%d\t%.2f\t%.2f\t%.2fs\t%.2fs\t%d\t%.2f\t%.3fs\t%.4f\t%.0f\t\n",
+			x.name, x.in.Len(), l, x.opt, gap, gapWorst, ts, cSum/k, ln, gapNN, tn.Seconds(), gap/gapNN, ts/tnS)
 	}
-	if count > 0 {
-		fmt.Fprintf(tw, "mean\t\t\t\t%.2f\t\t\t%.2f\t\t\n", sumGap/float64(count), sumNN/float64(count))
-		tw.Flush()
-		fmt.Println()
-	}
-	return nil
+	c := float64(len(set))
+	fmt.Fprintf(tw, "mean\t\t\t\t%.3f\t\t\t\t\t%.2f\t\t%.4f\t%.0f\t\n", sumGap/c, sumNN/c, sumRatio/c, sumTRatio/c)
+	tw.Flush()
+	fmt.Printf("worst gap %.2f%% (%s); %d instance(s), %d seed(s) each (length column: the last seed's)\n\n", worst, worstName, len(set), seeds)
 }
 
 // peakRSS is the process's peak resident memory in MB (Linux), or the
@@ -184,14 +258,18 @@ func parseSizes(spec string) ([]strokeSize, error) {
 // mean, worst and best over the instances (the gain depends much on how
 // good the baseline happens to be on an instance, so one instance says
 // little), and the Held-Karp bound.
-func strokesTable(opt route.Options, sizes []strokeSize, allBounds bool) {
+//
+// With longRun > 0 each instance is also solved with that budget, and the
+// row gives the default run's idle travel above the best of the two (the
+// best tour found with a long run), mean and worst.
+func strokesTable(opt route.Options, sizes []strokeSize, allBounds bool, longRun time.Duration) {
 	fmt.Println("Random reversible strokes (midpoints uniform, lengths 0.5-1.5 x mean spacing; testset.Strokes, instance seeds 1..k), open paths: idle")
 	fmt.Println("travel against the greedy nearest-endpoint order. Held-Karp: a lower bound on every ordering's idle travel (instance 1, or all with -bound)")
 	tw := tabwriter.NewWriter(os.Stdout, 2, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "n	instances	mean time	gain % mean	worst (seed)	best	above HK bound %	most gain possible %	")
+	fmt.Fprintln(tw, "n	instances	mean time	gain % mean	worst (seed)	best	above HK bound %	most gain possible %	above long run % mean	worst	")
 	var lines []string
 	for _, sz := range sizes {
-		var sumGain, sumTime, sumAbove, sumPossible float64
+		var sumGain, sumTime, sumAbove, sumPossible, sumLong, worstLong float64
 		worst, worstSeed, best := 100.0, 0, -100.0
 		bounds := 0
 		gains := make([]string, 0, sz.count)
@@ -208,6 +286,15 @@ func strokesTable(opt route.Options, sizes []strokeSize, allBounds bool) {
 			}
 			best = max(best, gain)
 			gains = append(gains, fmt.Sprintf("%.1f", gain))
+			if longRun > 0 {
+				lo := opt
+				lo.Budget = longRun
+				ls, _ := route.Solve(context.Background(), p, lo)
+				above := 100 * (s.Length/min(ls.Length, s.Length) - 1)
+				sumLong += above
+				worstLong = max(worstLong, above)
+				gains[len(gains)-1] += fmt.Sprintf(" (%.2f%% above the %v run)", above, longRun)
+			}
 			if sz.n <= 2000 && (seed == 1 || allBounds) {
 				lb := testset.HeldKarpBound(p.Items, s.Length, 300)
 				sumAbove += 100 * (s.Length/lb - 1)
@@ -220,7 +307,11 @@ func strokesTable(opt route.Options, sizes []strokeSize, allBounds bool) {
 		if bounds > 0 {
 			bound = fmt.Sprintf("%.1f\t%.1f", sumAbove/float64(bounds), sumPossible/float64(bounds))
 		}
-		fmt.Fprintf(tw, "%d\t%d\t%.2fs\t%.2f\t%.2f (%d)\t%.2f\t%s\t\n", sz.n, sz.count, sumTime/k, sumGain/k, worst, worstSeed, best, bound)
+		long := "\t"
+		if longRun > 0 {
+			long = fmt.Sprintf("%.2f\t%.2f", sumLong/k, worstLong)
+		}
+		fmt.Fprintf(tw, "%d\t%d\t%.2fs\t%.2f\t%.2f (%d)\t%.2f\t%s\t%s\t\n", sz.n, sz.count, sumTime/k, sumGain/k, worst, worstSeed, best, bound, long)
 		lines = append(lines, fmt.Sprintf("%d strokes, gain %% by instance seed 1..%d: %s", sz.n, sz.count, strings.Join(gains, " ")))
 	}
 	tw.Flush()

@@ -3,132 +3,11 @@ package design
 import (
 	"fmt"
 	"slices"
-	"strings"
 
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
 )
-
-// Defaults of the design rules, used where a design's Rules leave a
-// setting out.
-const (
-	// DefaultScanFieldNM is the side of the square the instrument scans
-	// without a coarse move: 2 µm, at the low end of room-temperature
-	// STM scan ranges (1–10 µm, from memory; ±1 µm for a 4 mm tube at
-	// ±200 V, Aarhus STM).
-	DefaultScanFieldNM = 2000.0
-	// DefaultWindowGapDimers: at least one intact dimer between windows
-	// on a row (common practice).
-	DefaultWindowGapDimers = 1
-	// DefaultWindowFacingRows: no window in the facing segment of the
-	// next row on either side (common practice).
-	DefaultWindowFacingRows = 1
-	// DefaultFEKeepOutNM is the least gap between field-emission regions
-	// and atomic-precision features (common practice; the FE spot is
-	// ~40 nm and its electrical definition ~10 nm, Rudolph et al., APL
-	// 2014).
-	DefaultFEKeepOutNM = 5.0
-	// DefaultTunnelGapMinNM and DefaultTunnelGapMaxNM bound SET tunnel
-	// gaps: 7 to 16 intact dimer rows (5.4–12.3 nm), Wang et al.,
-	// Commun. Phys. 3, 82 (2020).
-	DefaultTunnelGapMinNM = 7 * lattice.RowSpacing
-	DefaultTunnelGapMaxNM = 16 * lattice.RowSpacing
-	// DefaultAPToleranceNM is the placement tolerance of atomic-precision
-	// work, ±0.2 nm: about half a dimer pitch, so that a window lands on
-	// the dimer meant (common practice; Fuechsle et al., Nat.
-	// Nanotechnol. 7, 242 (2012) place to ±1 lattice site).
-	DefaultAPToleranceNM = 0.2
-	// DefaultFEToleranceNM is the placement tolerance of field-emission
-	// work, ±2 nm (common practice; FE lines are 3–10 nm wide, from
-	// memory).
-	DefaultFEToleranceNM = 2.0
-)
-
-// RuleSettings are the design-rule settings with every default filled
-// in; see Rules for what each means. All lengths are in nm.
-type RuleSettings struct {
-	ScanFieldNM      [2]float64
-	WindowGapDimers  int
-	WindowFacingRows int
-	FEKeepOutNM      float64
-	TunnelGapMinNM   float64
-	TunnelGapMaxNM   float64
-	APToleranceNM    float64
-	FEToleranceNM    float64
-}
-
-// DefaultRules returns the rule settings of a design without Rules.
-func DefaultRules() RuleSettings {
-	return RuleSettings{
-		ScanFieldNM:      [2]float64{DefaultScanFieldNM, DefaultScanFieldNM},
-		WindowGapDimers:  DefaultWindowGapDimers,
-		WindowFacingRows: DefaultWindowFacingRows,
-		FEKeepOutNM:      DefaultFEKeepOutNM,
-		TunnelGapMinNM:   DefaultTunnelGapMinNM,
-		TunnelGapMaxNM:   DefaultTunnelGapMaxNM,
-		APToleranceNM:    DefaultAPToleranceNM,
-		FEToleranceNM:    DefaultFEToleranceNM,
-	}
-}
-
-// EffectiveRules returns the design's rule settings: its Rules over
-// DefaultRules.
-func (d *Design) EffectiveRules() RuleSettings {
-	rs := DefaultRules()
-	r := d.Rules
-	if r == nil {
-		return rs
-	}
-	set := func(dst *float64, src *float64) {
-		if src != nil {
-			*dst = *src
-		}
-	}
-	if r.ScanFieldNM != nil {
-		rs.ScanFieldNM = *r.ScanFieldNM
-	}
-	if r.WindowGapDimers != nil {
-		rs.WindowGapDimers = *r.WindowGapDimers
-	}
-	if r.WindowFacingRows != nil {
-		rs.WindowFacingRows = *r.WindowFacingRows
-	}
-	set(&rs.FEKeepOutNM, r.FEKeepOutNM)
-	set(&rs.TunnelGapMinNM, r.TunnelGapMinNM)
-	set(&rs.TunnelGapMaxNM, r.TunnelGapMaxNM)
-	set(&rs.APToleranceNM, r.APToleranceNM)
-	set(&rs.FEToleranceNM, r.FEToleranceNM)
-	return rs
-}
-
-// DefaultTolerance returns the placement tolerance (±nm) of a region in
-// mode m that gives none: FEToleranceNM for ModeFE, APToleranceNM for
-// every other mode (auto and hybrid keep the tighter AP value, since
-// their edges may be written atom by atom).
-func (rs RuleSettings) DefaultTolerance(m Mode) float64 {
-	if m == ModeFE {
-		return rs.FEToleranceNM
-	}
-	return rs.APToleranceNM
-}
-
-// Tolerance returns the region's placement tolerance (±nm): its own
-// ToleranceNM, or the default for its mode.
-func (r *Region) Tolerance(rs RuleSettings) float64 {
-	if r.ToleranceNM > 0 {
-		return r.ToleranceNM
-	}
-	return rs.DefaultTolerance(r.EffectiveMode())
-}
-
-// EffectiveMode returns the region's mode, ModeAuto when none is given.
-func (r *Region) EffectiveMode() Mode {
-	if r.Mode == "" {
-		return ModeAuto
-	}
-	return r.Mode
-}
 
 // Templates maps template names to dopant-window templates.
 type Templates map[string]lattice.WindowTemplate
@@ -206,51 +85,6 @@ func (d *Design) Surface() (*lattice.Surface, error) {
 		return nil, fmt.Errorf("design: %w", err)
 	}
 	return surf, nil
-}
-
-// Variant returns the variant with the given name; the empty name means
-// the first variant. An unknown name gives an error listing the known
-// ones.
-func (d *Design) Variant(name string) (*Variant, error) {
-	if len(d.Variants) == 0 {
-		return nil, fmt.Errorf("design %q has no variants", d.Name)
-	}
-	if name == "" {
-		return &d.Variants[0], nil
-	}
-	for i := range d.Variants {
-		if d.Variants[i].Name == name {
-			return &d.Variants[i], nil
-		}
-	}
-	return nil, fmt.Errorf("design %q has no variant %q (it has %s)", d.Name, name, quoteList(d.VariantNames()))
-}
-
-// VariantNames returns the names of the variants in file order.
-func (d *Design) VariantNames() []string {
-	names := make([]string, len(d.Variants))
-	for i, v := range d.Variants {
-		names[i] = v.Name
-	}
-	return names
-}
-
-// Region returns the region of the variant with the given name, or nil.
-func (v *Variant) Region(name string) *Region {
-	for i := range v.Regions {
-		if v.Regions[i].Name == name {
-			return &v.Regions[i]
-		}
-	}
-	return nil
-}
-
-func quoteList(names []string) string {
-	q := make([]string, len(names))
-	for i, n := range names {
-		q[i] = fmt.Sprintf("%q", n)
-	}
-	return strings.Join(q, ", ")
 }
 
 func point(p [2]float64) r2.Point { return r2.Point{X: p[0], Y: p[1]} }

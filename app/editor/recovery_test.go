@@ -1,0 +1,75 @@
+package editor
+
+import (
+	"errors"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"dimerpath/internal/jsonfile"
+)
+
+func TestRecoveryRoundTrip(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "config")
+	d, _ := DemoDesign()
+	info := RecoveryInfo{Path: "/home/lab/kestrel.json", SavedAt: time.Date(2026, 3, 14, 9, 26, 53, 0, time.UTC), Design: d.Name}
+	if err := WriteRecovery(dir, d, info, SaveDesign); err != nil {
+		t.Fatal(err)
+	}
+	got, gotInfo, err := LoadRecovery(dir)
+	if err != nil || got.Name != d.Name || gotInfo != info {
+		t.Fatalf("LoadRecovery = %v, %+v, %v", got != nil, gotInfo, err)
+	}
+	// A lost or broken description still offers the copy, named by the
+	// design and dated by the file.
+	for _, meta := range []string{"", `{"path": "x", "saved_at": "yesterday", "design": 7}`, strings.Repeat(" ", 100<<10)} {
+		os.WriteFile(filepath.Join(dir, RecoveryMetaName), []byte(meta), 0o644)
+		got, gotInfo, err := LoadRecovery(dir)
+		if err != nil || got.Name != d.Name || gotInfo.Design != d.Name || gotInfo.SavedAt.IsZero() {
+			t.Errorf("description %.20q: %+v, %v", meta, gotInfo, err)
+		}
+	}
+	RemoveRecovery(dir)
+	if _, found := FindRecovery(dir); found {
+		t.Error("recovery copy found after RemoveRecovery")
+	}
+}
+
+func TestParseRecoveryInfoRefuses(t *testing.T) {
+	for _, c := range []struct{ in, want string }{
+		{`{"path": "", "saved_at": "2026-03-14T09:00:00Z"}`, "meta.json:1:1: design: missing"},
+		{`{"path": "", "saved_at": "2026-03-14T09:00:00Z", "design": "d", "Design": "e"}`, `Design: unknown field: names are case-sensitive`},
+		{`{"path": "", "saved_at": "soon", "design": "d"}`, `saved_at: parsing time "soon"`},
+		{`[]`, "want an object, not a list"},
+	} {
+		_, err := ParseRecoveryInfo("meta.json", []byte(c.in))
+		if !errors.Is(err, ErrRecoveryMeta) || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("ParseRecoveryInfo(%s) = %v, want %q", c.in, err, c.want)
+		}
+	}
+}
+
+// FuzzParseRecoveryInfo: the description the window reads at start-up
+// never panics the reader, and what it accepts writes and reads back the
+// same.
+func FuzzParseRecoveryInfo(f *testing.F) {
+	f.Add([]byte(`{"path": "/a/b.json", "saved_at": "2026-03-14T09:26:53Z", "design": "Kestrel"}`))
+	f.Add([]byte(`{"path": "", "saved_at": "2026-03-14T09:26:53.123456789+01:00", "design": ""}`))
+	f.Add([]byte(`{"saved_at": NaN}`))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		info, err := ParseRecoveryInfo("f.json", data)
+		if err != nil {
+			return
+		}
+		again, err := jsonfile.Marshal(info, jsonfile.Indented) // as WriteRecovery writes it
+		if err != nil {
+			t.Fatalf("accepted description does not write: %v", err)
+		}
+		back, err := ParseRecoveryInfo("again.json", again)
+		if err != nil || back.Path != info.Path || back.Design != info.Design || !back.SavedAt.Equal(info.SavedAt) {
+			t.Fatalf("round trip: %+v -> %+v, %v", info, back, err)
+		}
+	})
+}
