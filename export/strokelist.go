@@ -21,6 +21,10 @@ func pdfStrokeList(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []in
 	if len(p.Strokes) == 0 {
 		return nil
 	}
+	if len(p.Strokes) > maxListedStrokes {
+		pdfStrokeListSummary(d, p)
+		return nil
+	}
 	d.heading("Strokes in writing order", 20)
 	d.para("Every action of the write, in order, with a box to tick: register on the segment's fiducial, switch conditions where "+
 		"a row says so, then move to each stroke's start and write it towards its end. No. is the stroke's number on paper "+
