@@ -19,7 +19,7 @@ func TestCompareSaysWhatDiffers(t *testing.T) {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
 	for _, want := range []string{
-		"29 min 33 s", // gap-9, to the second
+		"session (mean)", "As, P", "P(within tolerance)",
 		"coverage",
 		"What differs from gap-9:",
 		"tunnel gap sensor-island – source-lead: 6.91 nm (9.0 dimer rows across the rows) → 9.22 nm (12.0 dimer rows across the rows)",

@@ -26,6 +26,14 @@ var partFills = map[planner.TimeKind]paint{
 	planner.TimeModeSwitch:   {fill: true, grey: 1, hatch: hatchCross, hatchGrey: 0.2, hatchStep: 1.3},
 	planner.TimeRegistration: {fill: true, grey: 0.88, hatch: hatchHorizontal, hatchGrey: 0.1, hatchStep: 0.9},
 	planner.TimeVerification: {fill: true, grey: 1, hatch: hatchVertical, hatchGrey: 0.1, hatchStep: 0.9},
+	// The session around the writing.
+	planner.TimeSurvey:        solid(0.25),
+	planner.TimeConditioning:  {fill: true, grey: 0.7, hatch: hatchDiag, hatchGrey: 0.2, hatchStep: 0.9},
+	planner.TimeTipChange:     {fill: true, grey: 1, hatch: hatchDiag, hatchGrey: 0, hatchStep: 0.5},
+	planner.TimeRepair:        {fill: true, grey: 0.6, hatch: hatchCross, hatchGrey: 0, hatchStep: 1.1},
+	planner.TimeDocumentation: solid(0.75),
+	planner.TimeDose:          {fill: true, grey: 0.55, hatch: hatchHorizontal, hatchGrey: 0, hatchStep: 0.9},
+	planner.TimeAnneal:        {fill: true, grey: 0.4, hatch: hatchVertical, hatchGrey: 1, hatchStep: 0.9},
 }
 
 // timeParts returns the breakdown's categories in the order of

@@ -12,35 +12,44 @@ import (
 // with the per-stroke and per-action detail left to the plan file.
 
 type planSummary struct {
-	Design    string                 `json:"design"`
-	Variant   string                 `json:"variant"`
-	Profile   string                 `json:"profile"`
-	Seed      int64                  `json:"seed"`
-	Caution   string                 `json:"caution"`
-	TotalS    float64                `json:"total_s"`
-	Breakdown breakdownJSON          `json:"breakdown"`
-	P10S      float64                `json:"p10_s"`
-	P50S      float64                `json:"p50_s"`
-	P90S      float64                `json:"p90_s"`
-	FloorS    float64                `json:"floor_s"`
-	ByHandS   float64                `json:"by_hand_s"`
-	Strokes   int                    `json:"strokes"`
-	Segments  []segmentSummary       `json:"segments"`
-	Windows   []windowSummary        `json:"windows"`
-	YieldAll  float64                `json:"yield_all"`
-	Yield     yieldSummary           `json:"yield"`
-	Modes     map[string]modeSummary `json:"modes"`
-	Coverage  coverageSummary        `json:"coverage"`
-	Warnings  []string               `json:"warnings"`
+	Design    string           `json:"design"`
+	Variant   string           `json:"variant"`
+	Profile   string           `json:"profile"`
+	Seed      int64            `json:"seed"`
+	Caution   string           `json:"caution"`
+	TotalS    float64          `json:"total_s"`
+	Breakdown breakdownJSON    `json:"breakdown"`
+	P10S      float64          `json:"p10_s"`
+	P50S      float64          `json:"p50_s"`
+	P90S      float64          `json:"p90_s"`
+	ScheduleS float64          `json:"schedule_s"`
+	FloorS    float64          `json:"floor_s"`
+	ByHandS   float64          `json:"by_hand_s"`
+	Strokes   int              `json:"strokes"`
+	Steps     []stepJSON       `json:"steps"`
+	Segments  []segmentSummary `json:"segments"`
+	// PInTolerance is the probability that every stroke and coupled pair
+	// stays within its tolerance.
+	PInTolerance float64                `json:"p_in_tolerance"`
+	Couplings    []couplingJSON         `json:"couplings"`
+	Windows      []windowSummary        `json:"windows"`
+	YieldAll     float64                `json:"yield_all"`
+	Yield        yieldSummary           `json:"yield"`
+	Modes        map[string]modeSummary `json:"modes"`
+	Coverage     coverageSummary        `json:"coverage"`
+	Warnings     []string               `json:"warnings"`
 }
 
 type segmentSummary struct {
-	Index    int     `json:"index"`
-	Fiducial string  `json:"fiducial"`
-	StartS   float64 `json:"start_s"`
-	EndS     float64 `json:"end_s"`
-	BudgetS  float64 `json:"budget_s"`
-	Strokes  []int   `json:"strokes"`
+	Index        int     `json:"index"`
+	Step         int     `json:"step"`
+	Registration string  `json:"registration"`
+	Fiducial     string  `json:"fiducial"`
+	StartS       float64 `json:"start_s"`
+	EndS         float64 `json:"end_s"`
+	BudgetS      float64 `json:"budget_s"`
+	Strokes      []int   `json:"strokes"`
+	PInTolerance float64 `json:"p_in_tolerance"`
 }
 
 type windowSummary struct {
@@ -49,6 +58,7 @@ type windowSummary struct {
 	Template    string  `json:"template"`
 	AtNM        xy      `json:"at_nm"`
 	Probability float64 `json:"probability"`
+	OpenS       float64 `json:"open_s"`
 }
 
 type yieldSummary struct {
@@ -85,10 +95,11 @@ func WritePlanSummary(w io.Writer, p *planner.Plan) error {
 	}
 	s := planSummary{
 		Design: p.Design, Variant: p.Variant, Profile: p.Profile, Seed: p.Seed, Caution: planner.Caution,
-		TotalS: p.TotalS, Breakdown: breakdownOf(p.Breakdown), P10S: p.P10S, P50S: p.P50S, P90S: p.P90S,
+		TotalS: p.TotalS, Breakdown: breakdownOf(p.Breakdown), P10S: p.P10S, P50S: p.P50S, P90S: p.P90S, ScheduleS: p.ScheduleS,
 		FloorS: p.FloorS, ByHandS: p.ByHandS, Strokes: len(p.Strokes),
-		Segments: []segmentSummary{}, Windows: []windowSummary{},
-		YieldAll: p.Yield.All,
+		Steps: []stepJSON{}, Segments: []segmentSummary{}, Windows: []windowSummary{}, Couplings: []couplingJSON{},
+		PInTolerance: p.PInTolerance,
+		YieldAll:     p.Yield.All,
 		Yield: yieldSummary{Windows: p.Yield.Windows, All: p.Yield.All, Log10All: log10JSON(p.Yield.Log10All), MeanGood: p.Yield.MeanGood,
 			SDGood: p.Yield.SDGood, DevicesPerPerfect: p.Yield.DevicesPerPerfect},
 		Modes: map[string]modeSummary{},
@@ -96,11 +107,19 @@ func WritePlanSummary(w io.Writer, p *planner.Plan) error {
 			Overcleared: p.Coverage.Overcleared, Issues: p.Coverage.Issues},
 		Warnings: nonNil(p.Warnings),
 	}
+	for _, st := range p.Steps {
+		s.Steps = append(s.Steps, stepOf(st))
+	}
 	for _, g := range p.Segments {
-		s.Segments = append(s.Segments, segmentSummary{Index: g.Index, Fiducial: g.Fiducial, StartS: g.StartS, EndS: g.EndS, BudgetS: g.BudgetS, Strokes: g.Strokes})
+		s.Segments = append(s.Segments, segmentSummary{Index: g.Index, Step: g.Step, Registration: string(g.Registration), Fiducial: g.Fiducial,
+			StartS: g.StartS, EndS: g.EndS, BudgetS: g.BudgetS, Strokes: g.Strokes, PInTolerance: g.PInTolerance})
+	}
+	for _, c := range p.Couplings {
+		s.Couplings = append(s.Couplings, couplingOf(c))
 	}
 	for _, win := range p.Windows {
-		s.Windows = append(s.Windows, windowSummary{Region: win.Region, Species: win.Species, Template: win.Template, AtNM: xyOf(win.At), Probability: win.Probability})
+		s.Windows = append(s.Windows, windowSummary{Region: win.Region, Species: win.Species, Template: win.Template, AtNM: xyOf(win.At),
+			Probability: win.Probability, OpenS: win.OpenS})
 	}
 	for _, m := range p.Modes {
 		s.Modes[m.Region] = modeSummary{Requested: string(m.Requested), Mode: string(m.Mode), Reason: m.Reason}

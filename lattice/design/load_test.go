@@ -58,6 +58,7 @@ func TestParseRefuses(t *testing.T) {
 		{"huge field", strings.Replace(minimal, `"height_nm": 200`, `"height_nm": 1e6`, 1), []string{"field.height_nm: 1e+06 must be more than 0 and at most 10000"}},
 		{"point pair", strings.Replace(minimal, `[[10, 10], [60, 60]]`, `[[10, 10, 3], [60, 60]]`, 1), []string{"variants[0].regions[0].shapes[0].points_nm[0]: want 2 numbers, has 3"}},
 		{"bad role", strings.Replace(minimal, `"role": "lead"`, `"role": "wire"`, 1), []string{`variants[0].regions[1].role: "wire" is not a role`}},
+		{"bad colour", strings.Replace(minimal, `"role": "lead",`, `"role": "lead", "colour": "red",`, 1), []string{`variants[0].regions[1].colour: "red" is not a colour: write #rrggbb`}},
 		{"bad kind", strings.Replace(minimal, `"kind": "rect"`, `"kind": "blob"`, 1), []string{`variants[0].regions[0].shapes[0].kind: "blob" is not a shape kind`}},
 		{"negative width", strings.Replace(minimal, `"width_nm": 4`, `"width_nm": -4`, 1), []string{"variants[0].regions[1].shapes[0].width_nm: -4 must be more than 0"}},
 		{"10^9 painted sites", strings.Replace(minimal, `"role": "lead",`, `"role": "lead", "painted": {"sites": 1000000000, "rows": [[0, 1, 0, 1]]},`, 1),
