@@ -45,109 +45,132 @@ func segmentBlock(n int) int {
 // of more than maxDrawnStrokes strokes. The SVG draws every stroke.
 func (sc *scene) summarised() bool { return sc.summary && len(sc.plan.Strokes) > maxDrawnStrokes }
 
-// pdfSegmentRanges prints the segment table of a plan with more than
-// maxSegmentRows segments: one row per range of consecutive segments,
-// with the fiducials they register on, the paper numbers of their
-// strokes, the tip conditions they use, their duration and when the last
-// ends. O(actions).
+// pdfSegmentRanges prints the segment tables of a plan with more than
+// maxSegmentRows segments, one per lithography step as pdfSegments does,
+// with one row per range of consecutive segments: how they register
+// (the fiducials, or local registration, and the least probability of a
+// segment to stay within tolerance), the paper numbers of their strokes,
+// the tip conditions they use, their duration and when the last ends.
+// O(actions).
 func pdfSegmentRanges(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int) error {
 	n := len(p.Segments)
 	k := segmentBlock(n)
 	d.page()
 	d.heading("Segments", 0)
-	d.para(fmt.Sprintf("This plan has %s segments, more than a table can list one by one: each row below covers %d consecutive segments. "+
-		"Write them in order. For each segment: move to its fiducial, image it and correct the offset, then write its strokes in order "+
-		"of their numbers. The fiducial of each segment, its strokes and every action are listed in the action CSV and the plan JSON "+
-		"(dimerpath export DESIGN.json -o PLAN.csv); tick a row's box when all its segments are written. Each line within a row is one "+
-		"set of tip conditions and the strokes written with it; duration is the rows' segments together.",
+	d.para(fmt.Sprintf("This plan has %s segments, more than a table can list one by one: each row below covers up to %d consecutive "+
+		"segments, one table per lithography step. Write them in order. For each segment: register on its fiducial (or locally, "+
+		"on the lattice beside its first stroke), then write its strokes in order of their numbers. How each segment registers, "+
+		"its strokes and every action are listed in the action CSV and the plan JSON (dimerpath export DESIGN.json -o PLAN.csv); "+
+		"tick a row's box when all its segments are written. Each line within a row is one set of tip conditions and the strokes "+
+		"written with it; P is the least probability, over the row's segments, that every stroke of a segment stays within its "+
+		"tolerance; duration runs from the start of the row's first segment to the end of its last.",
 		thousands(n), k), fontBody)
-	f := font{size: 7.5}
-	t := newTable(d, f,
-		tableColumn{title: "Done", share: 6},
-		tableColumn{title: "Segments", share: 12, right: true},
-		tableColumn{title: "Register on fiducials", share: 12},
-		tableColumn{title: "First start x, y (nm); strokes", share: 17},
-		tableColumn{title: "Strokes", share: 12},
-		tableColumn{title: "Mode", share: 6},
-		tableColumn{title: "Bias (V)", share: 7, right: true},
-		tableColumn{title: "Setpoint (nA)", share: 8, right: true},
-		tableColumn{title: "Speed (nm/s)", share: 9, right: true},
-		tableColumn{title: "Duration (h:mm:ss)", share: 10, right: true},
-		tableColumn{title: "Ends at (h:mm:ss)", share: 10, right: true},
-	)
-	// Actions of each block of segments, found in one pass.
-	blocks := (n + k - 1) / k
-	bounds := make([][2]int, blocks)
+	// Actions of each segment, found in one pass.
+	bounds := make([][2]int, n)
 	for i := range bounds {
 		bounds[i] = [2]int{len(p.Actions), 0}
 	}
 	for i, a := range p.Actions {
 		if a.Segment >= 0 && a.Segment < n {
-			b := &bounds[a.Segment/k]
+			b := &bounds[a.Segment]
 			b[0], b[1] = min(b[0], i), max(b[1], i+1)
 		}
 	}
-	t.start()
-	for bi := range blocks {
-		if err := ctx.Err(); err != nil {
-			return err
+	f := font{size: 7.5}
+	for _, g := range segmentTables(p) {
+		if g.title != "" {
+			d.heading(g.title, 30)
 		}
-		first, last := bi*k, min((bi+1)*k, n)-1
-		var groups []condGroup
-		var nums []int
-		var fids []string
-		fidCount := map[string]int{}
-		for si := first; si <= last; si++ {
-			s := &p.Segments[si]
-			if fidCount[s.Fiducial] == 0 {
-				fids = append(fids, s.Fiducial)
+		t := newTable(d, f,
+			tableColumn{title: "Done", share: 6},
+			tableColumn{title: "Segments", share: 12, right: true},
+			tableColumn{title: "Register", share: 13},
+			tableColumn{title: "First start x, y (nm); strokes", share: 17},
+			tableColumn{title: "Strokes", share: 11},
+			tableColumn{title: "Mode", share: 6},
+			tableColumn{title: "Bias (V)", share: 7, right: true},
+			tableColumn{title: "Setpoint (nA)", share: 8, right: true},
+			tableColumn{title: "Speed (nm/s)", share: 8, right: true},
+			tableColumn{title: "Duration (h:mm:ss)", share: 10, right: true},
+			tableColumn{title: "Ends at (h:mm:ss)", share: 10, right: true},
+		)
+		t.start()
+		last := 0.0
+		for from := 0; from < len(g.segs); from += k {
+			if err := ctx.Err(); err != nil {
+				return err
 			}
-			fidCount[s.Fiducial]++
-			for _, id := range s.Strokes {
-				nums = append(nums, numbers[id])
+			rng := g.segs[from:min(from+k, len(g.segs))]
+			var groups []condGroup
+			var nums []int
+			var regs []string
+			regCount := map[string]int{}
+			pMin := 1.0
+			for _, si := range rng {
+				s := &p.Segments[si]
+				reg := s.Fiducial
+				if s.Registration == planner.RegLocal {
+					reg = "local"
+				}
+				if regCount[reg] == 0 {
+					regs = append(regs, reg)
+				}
+				regCount[reg]++
+				pMin = min(pMin, s.PInTolerance)
+				for _, id := range s.Strokes {
+					nums = append(nums, numbers[id])
+				}
+				groups = mergeGroups(groups, segmentGroups(p, si, min(bounds[si][0], bounds[si][1]), bounds[si][1]))
 			}
-			groups = mergeGroups(groups, segmentGroups(p, si, min(bounds[bi][0], bounds[bi][1]), bounds[bi][1]))
-		}
-		var fidText []string
-		for i, name := range fids {
-			if i == 3 {
-				fidText = append(fidText, fmt.Sprintf("and %d more", len(fids)-3))
-				break
+			var regText []string
+			for i, name := range regs {
+				if i == 3 {
+					regText = append(regText, fmt.Sprintf("and %d more", len(regs)-3))
+					break
+				}
+				regText = append(regText, fmt.Sprintf("%s ×%d", name, regCount[name]))
 			}
-			fidText = append(fidText, fmt.Sprintf("%s ×%d", name, fidCount[name]))
-		}
-		var strokes, modes, bias, cur, speed []string
-		for _, g := range groups {
-			strokes = append(strokes, g.kindCounts())
-			modes = append(modes, g.mode.Abbrev())
-			bias = append(bias, signedV(g.bias))
-			cur = append(cur, nanoAmps(g.current))
-			if g.dwell {
-				speed = append(speed, sig(g.time/float64(len(g.kinds)), 3)+" s/pt")
-			} else {
-				speed = append(speed, sig(g.speed, 4))
+			regText = append(regText, "P "+probability(pMin))
+			var strokes, modes, bias, cur, speed []string
+			for _, cg := range groups {
+				strokes = append(strokes, cg.kindCounts())
+				modes = append(modes, cg.mode.Abbrev())
+				bias = append(bias, signedV(cg.bias))
+				cur = append(cur, nanoAmps(cg.current))
+				if cg.dwell {
+					speed = append(speed, sig(cg.time/float64(len(cg.kinds)), 3)+" s/pt")
+				} else {
+					speed = append(speed, sig(cg.speed, 4))
+				}
 			}
+			first, end := &p.Segments[rng[0]], &p.Segments[rng[len(rng)-1]]
+			start := ""
+			if len(first.Strokes) > 0 {
+				q := p.Strokes[first.Strokes[0]].Path[0]
+				start = nm1(q.X) + ", " + nm1(q.Y)
+			}
+			if len(nums) > 0 {
+				start += "\n" + plural("stroke", len(nums)) + " " + numberRanges(nums)
+			}
+			segs := numberRanges(rangeSegments(rng))
+			top, _ := t.row("", segs, strings.Join(regText, "\n"), start, strings.Join(strokes, "\n"), strings.Join(modes, "\n"),
+				strings.Join(bias, "\n"), strings.Join(cur, "\n"), strings.Join(speed, "\n"), clock(end.EndS-first.StartS), clock(end.EndS))
+			d.tickBox(t.colX(0)+1.6, top+1.2, 3.6)
+			last = end.EndS
 		}
-		start := ""
-		if s := &p.Segments[first]; len(s.Strokes) > 0 {
-			q := p.Strokes[s.Strokes[0]].Path[0]
-			start = nm1(q.X) + ", " + nm1(q.Y)
-		}
-		if len(nums) > 0 {
-			start += "\n" + plural("stroke", len(nums)) + " " + numberRanges(nums)
-		}
-		segs := strconv.Itoa(first + 1)
-		if last > first {
-			segs += "–" + strconv.Itoa(last+1)
-		}
-		top, _ := t.row("", segs, strings.Join(fidText, "\n"), start, strings.Join(strokes, "\n"), strings.Join(modes, "\n"),
-			strings.Join(bias, "\n"), strings.Join(cur, "\n"), strings.Join(speed, "\n"),
-			clock(p.Segments[last].EndS-p.Segments[first].StartS), clock(p.Segments[last].EndS))
-		d.tickBox(t.colX(0)+1.6, top+1.2, 3.6)
+		t.row("", "", "Step ends", "", "", "", "", "", "", "", clock(last))
+		t.end()
 	}
-	t.row("", "", "Total", "", "", "", "", "", "", "", clock(p.TotalS))
-	t.end()
 	return nil
+}
+
+// rangeSegments returns the paper numbers (from 1) of segments segs.
+func rangeSegments(segs []int) []int {
+	out := make([]int, len(segs))
+	for i, s := range segs {
+		out[i] = s + 1
+	}
+	return out
 }
 
 // mergeGroups adds the condition groups of add to into, merging those of

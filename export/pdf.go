@@ -478,6 +478,36 @@ func segmentNumbers(s *planner.Segment, numbers []int) []int {
 	return out
 }
 
+// segmentTable is the segments of one lithography step, printed as one
+// table under its title.
+type segmentTable struct {
+	title string
+	segs  []int
+}
+
+// segmentTables returns one table per lithography step (a plan without
+// steps: one table of every segment, untitled).
+func segmentTables(p *planner.Plan) []segmentTable {
+	var groups []segmentTable
+	for i, st := range p.Steps {
+		if st.Kind == planner.StepLithography && len(st.Segments) > 0 {
+			title := fmt.Sprintf("Step %d: lithography %s", i+1, st.Species)
+			if st.Species == "" {
+				title = fmt.Sprintf("Step %d: lithography", i+1)
+			}
+			groups = append(groups, segmentTable{title, st.Segments})
+		}
+	}
+	if len(groups) == 0 {
+		all := make([]int, len(p.Segments))
+		for i := range all {
+			all[i] = i
+		}
+		groups = []segmentTable{{"", all}}
+	}
+	return groups
+}
+
 func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int) error {
 	if len(p.Segments) > maxSegmentRows {
 		return pdfSegmentRanges(ctx, d, p, numbers)
@@ -501,30 +531,8 @@ func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int)
 			b[0], b[1] = min(b[0], i), max(b[1], i+1)
 		}
 	}
-	// One table per lithography step (plans without steps: one table).
-	type group struct {
-		title string
-		segs  []int
-	}
-	var groups []group
-	for i, st := range p.Steps {
-		if st.Kind == planner.StepLithography && len(st.Segments) > 0 {
-			title := fmt.Sprintf("Step %d: lithography %s", i+1, st.Species)
-			if st.Species == "" {
-				title = fmt.Sprintf("Step %d: lithography", i+1)
-			}
-			groups = append(groups, group{title, st.Segments})
-		}
-	}
-	if len(groups) == 0 {
-		all := make([]int, len(p.Segments))
-		for i := range all {
-			all[i] = i
-		}
-		groups = []group{{"", all}}
-	}
 	f := font{size: 7.5}
-	for _, g := range groups {
+	for _, g := range segmentTables(p) {
 		if g.title != "" {
 			d.heading(g.title, 30)
 		}
