@@ -215,9 +215,9 @@ func ExamplePlanSweep() {
 		fmt.Printf("%s = %s %s: %d segment(s)\n", sw.Param.Name, p.Value, sw.Param.Unit, len(p.Plan.Segments))
 	}
 	// Output:
-	// drift.rate_nm_per_min = 0.02 nm/min: 1 segment(s)
-	// drift.rate_nm_per_min = 0.5 nm/min: 5 segment(s)
-	// drift.rate_nm_per_min = 2 nm/min: 21 segment(s)
+	// drift.rate_nm_per_min = 0.02 nm/min: 3 segment(s)
+	// drift.rate_nm_per_min = 0.5 nm/min: 3 segment(s)
+	// drift.rate_nm_per_min = 2 nm/min: 11 segment(s)
 }
 
 // TestSweepOfTheDemoSharesItsLayoutSafely plans the demo (FE pads,

@@ -327,7 +327,7 @@ func (u *UI) showSweep(sw *planner.Sweep) {
 	content := container.NewScroll(sweepView(sw))
 	var d *dialog.CustomDialog
 	report := widget.NewButtonWithIcon("Export report…", theme.DocumentPrintIcon(), func() {
-		u.withCaution("the sweep report", func(es editor.ExportSettings) {
+		u.withCaution("the sweep report", "report", func(es editor.ExportSettings) {
 			name := safeFileName(u.Session.Design().Name) + "-sweep-" + safeFileName(sw.Param.Name) + ".pdf"
 			u.chooseFile(name, []string{".pdf", ".svg"}, func(path string) {
 				write := u.jobs.ExportSweep
