@@ -194,11 +194,11 @@ func mergeGroups(into, add []condGroup) []condGroup {
 	return into
 }
 
-// pdfStrokeListSummary stands for the stroke list of a plan with more
-// than maxListedStrokes strokes: what the list would hold, and where it
-// is.
+// pdfStrokeListSummary stands for the list of every action of a plan
+// with more than maxListedStrokes strokes: what the list would hold, and
+// where it is.
 func pdfStrokeListSummary(d *pdfDoc, p *planner.Plan) {
-	d.heading("Strokes in writing order", 20)
+	d.heading("Every action, in order", 20)
 	kinds := map[string]int{}
 	var order []string
 	for i := range p.Strokes {

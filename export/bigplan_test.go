@@ -53,7 +53,7 @@ func TestLargePlanIsSummarisedOnPaper(t *testing.T) {
 		t.Errorf("%d pages for a summarised plan", pages)
 	}
 	// The rows' stroke ranges cover every paper number exactly once.
-	table := text[strings.Index(text, "This plan has 350 segments"):strings.Index(text, "Strokes in writing order")]
+	table := text[strings.Index(text, "This plan has 350 segments"):strings.Index(text, "Every action, in order")]
 	var covered []int
 	for _, m := range regexp.MustCompile(`strokes ([0-9][0-9–, ]*)`).FindAllStringSubmatch(table, -1) {
 		for _, part := range strings.Split(m[1], ",") {

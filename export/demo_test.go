@@ -196,7 +196,7 @@ func TestDemoPDFListsStrokesInCSVOrder(t *testing.T) {
 	if strings.Contains(text, "…") {
 		t.Error("the PDF cuts a list short with an ellipsis")
 	}
-	start := strings.Index(text, "Strokes in writing order")
+	start := strings.Index(text, "Every action, in order")
 	if start < 0 {
 		t.Fatal("the PDF has no stroke list")
 	}
