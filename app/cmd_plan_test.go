@@ -11,7 +11,6 @@ import (
 	"strings"
 	"testing"
 
-	"dimerpath/internal/units"
 	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
@@ -36,12 +35,18 @@ func TestPlanJSON(t *testing.T) {
 		TotalS    float64            `json:"total_s"`
 		Breakdown map[string]float64 `json:"breakdown"`
 		Segments  []struct {
-			Strokes  []int   `json:"strokes"`
-			Fiducial string  `json:"fiducial"`
-			StartS   float64 `json:"start_s"`
-			EndS     float64 `json:"end_s"`
+			Strokes      []int   `json:"strokes"`
+			Fiducial     string  `json:"fiducial"`
+			Registration string  `json:"registration"`
+			StartS       float64 `json:"start_s"`
+			EndS         float64 `json:"end_s"`
 		} `json:"segments"`
-		Windows []struct {
+		Steps []struct {
+			Kind    string `json:"kind"`
+			Species string `json:"species"`
+		} `json:"steps"`
+		PInTolerance float64 `json:"p_in_tolerance"`
+		Windows      []struct {
 			Species     string  `json:"species"`
 			Open        float64 `json:"open_probability"`
 			P1          float64 `json:"p1"`
@@ -59,11 +64,27 @@ func TestPlanJSON(t *testing.T) {
 	for _, v := range s.Breakdown {
 		sum += v
 	}
-	if math.Abs(sum-s.TotalS) > 1e-9*s.TotalS || len(s.Breakdown) != 7 {
+	// The breakdown's keys are the issue's names scripts rely on, and
+	// they sum to total_s, the Monte Carlo mean.
+	for _, k := range []string{"ap_write_s", "fe_write_s", "dwell_s", "travel_s", "mode_switch_s", "registration_s", "verification_s",
+		"survey_s", "conditioning_s", "tip_change_s", "repair_s", "documentation_s", "dose_s", "anneal_s"} {
+		if _, ok := s.Breakdown[k]; !ok {
+			t.Errorf("breakdown lacks %s", k)
+		}
+	}
+	if math.Abs(sum-s.TotalS) > 1e-9*s.TotalS || len(s.Breakdown) != 14 {
 		t.Errorf("breakdown %v sums to %v, total %v", s.Breakdown, sum, s.TotalS)
 	}
-	if len(s.Segments) == 0 || s.Segments[0].Fiducial == "" || s.Segments[len(s.Segments)-1].EndS != s.TotalS {
+	if len(s.Segments) == 0 || s.Segments[len(s.Segments)-1].EndS > s.TotalS {
 		t.Errorf("segments %+v", s.Segments)
+	}
+	for i, g := range s.Segments {
+		if g.Registration == "coarse" && g.Fiducial == "" || g.Registration != "coarse" && g.Registration != "local" {
+			t.Errorf("segments[%d]: registration %q at fiducial %q", i, g.Registration, g.Fiducial)
+		}
+	}
+	if len(s.Steps) < 4 || s.Steps[1].Kind != "lithography" || s.PInTolerance <= 0 || s.PInTolerance > 1 {
+		t.Errorf("steps %+v, p_in_tolerance %v", s.Steps, s.PInTolerance)
 	}
 	// A window is good when it opened as drawn and took one donor: the
 	// template's p1 (Ivie et al. 0.63 for P, Stock et al. 0.97 for As)
@@ -92,22 +113,22 @@ func TestPlanText(t *testing.T) {
 	if code != ExitOK {
 		t.Fatalf("exit %d", code)
 	}
-	// Each registration costs the profile's registration_s.
-	reg := "registrations of " + units.Duration(planner.DefaultProfile().Drift.RegistrationS)
-	for _, want := range []string{"gap-12-source", planner.Caution, "Write modes", "Time:", "P10", "Segments:", "Dopant windows: 2", "Coverage: OK", reg, "tightest stroke"} {
+	for _, want := range []string{"gap-12-source", planner.Caution, "Write modes", "Session time:", "P10", "Process steps", "lithography    As",
+		"lithography    P", "Segments:", "Dopant windows: 2", "Coverage: OK", "tightest stroke", "P(every stroke and coupled pair within tolerance)",
+		"tunnel-gap", "open before its dose"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("summary lacks %q", want)
 		}
 	}
-	// Every segment's tightest stroke ends within its budget: AP ±0.2 nm at
-	// 0.1 nm/min is 2 min (tolerance / drift by hand).
-	shares := regexp.MustCompile(`/ 2 min 00 s \(±0\.2 nm, (\d+) %\)`).FindAllStringSubmatch(out, -1)
-	if len(shares) == 0 {
-		t.Errorf("no segment lists its tightest AP stroke:\n%s", out)
+	// Every listed segment states its probability of staying within
+	// tolerance, a number in [0, 1].
+	ps := regexp.MustCompile(`\)\s+(\d\.\d{3})\s+\d+\n`).FindAllStringSubmatch(out, -1)
+	if len(ps) == 0 {
+		t.Errorf("no segment lists its probability:\n%s", out)
 	}
-	for _, m := range shares {
-		if n, _ := strconv.Atoi(m[1]); n > 100 {
-			t.Errorf("a segment's tightest stroke uses %d %% of its drift budget", n)
+	for _, m := range ps {
+		if p, _ := strconv.ParseFloat(m[1], 64); p < 0 || p > 1 {
+			t.Errorf("a segment's P(within) is %v", p)
 		}
 	}
 }

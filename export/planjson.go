@@ -59,13 +59,19 @@ type planFile struct {
 	Segments   []segmentJSON    `json:"segments"`
 	Actions    []actionJSON     `json:"actions"`
 
+	Steps     []stepJSON    `json:"steps"`
 	Breakdown breakdownJSON `json:"breakdown"`
 	TotalS    float64       `json:"total_s"`
 	P10S      float64       `json:"p10_s"`
 	P50S      float64       `json:"p50_s"`
 	P90S      float64       `json:"p90_s"`
+	ScheduleS float64       `json:"schedule_s"`
 	FloorS    float64       `json:"floor_s"`
 	ByHandS   float64       `json:"by_hand_s"`
+
+	PInTolerance float64        `json:"p_in_tolerance"`
+	Couplings    []couplingJSON `json:"couplings"`
+	Drift        driftPlanJSON  `json:"drift_plan"`
 
 	Windows  []windowJSON `json:"windows"`
 	Yield    yieldJSON    `json:"yield"`
@@ -133,12 +139,48 @@ type strokeJSON struct {
 
 type segmentJSON struct {
 	Index        int     `json:"index"`
+	Step         int     `json:"step"`
+	Registration string  `json:"registration"`
+	Reason       string  `json:"reason"`
 	Fiducial     string  `json:"fiducial"`
 	FiducialAtNM xy      `json:"fiducial_at_nm"`
 	StartS       float64 `json:"start_s"`
 	EndS         float64 `json:"end_s"`
 	BudgetS      float64 `json:"budget_s"`
 	Strokes      []int   `json:"strokes"`
+	Tightest     int     `json:"tightest"`
+	PInTolerance float64 `json:"p_in_tolerance"`
+}
+
+// stepJSON is one process step (session_plan.go in the planner).
+type stepJSON struct {
+	Kind         string  `json:"kind"`
+	Species      string  `json:"species"`
+	StartS       float64 `json:"start_s"`
+	DurationS    float64 `json:"duration_s"`
+	Segments     []int   `json:"segments"`
+	Precursor    string  `json:"precursor,omitempty"`
+	ExposureL    float64 `json:"exposure_l,omitempty"`
+	TemperatureC float64 `json:"temperature_c,omitempty"`
+	Note         string  `json:"note"`
+}
+
+type couplingJSON struct {
+	Kind         string  `json:"kind"`
+	A            string  `json:"a"`
+	B            string  `json:"b"`
+	ToleranceNM  float64 `json:"tolerance_nm"`
+	Strokes      []int   `json:"strokes"`
+	SameStep     bool    `json:"same_step"`
+	PInTolerance float64 `json:"p_in_tolerance"`
+}
+
+type driftPlanJSON struct {
+	RateNMPerMin  float64 `json:"rate_nm_per_min"`
+	CreepFraction float64 `json:"creep_fraction"`
+	ErrorZ        float64 `json:"error_z"`
+	Margin        float64 `json:"margin"`
+	Compensated   bool    `json:"compensated"`
 }
 
 type actionJSON struct {
@@ -166,6 +208,14 @@ type breakdownJSON struct {
 	ModeSwitchS   float64 `json:"mode_switch_s"`
 	RegistrationS float64 `json:"registration_s"`
 	VerificationS float64 `json:"verification_s"`
+	// version 2: the session around the writing
+	SurveyS        float64 `json:"survey_s"`
+	ConditioningS  float64 `json:"conditioning_s"`
+	TipChangeS     float64 `json:"tip_change_s"`
+	RepairS        float64 `json:"repair_s"`
+	DocumentationS float64 `json:"documentation_s"`
+	DoseS          float64 `json:"dose_s"`
+	AnnealS        float64 `json:"anneal_s"`
 }
 
 type windowJSON struct {
@@ -182,6 +232,7 @@ type windowJSON struct {
 	P2Plus      *float64 `json:"p2plus,omitempty"`
 	P1SD        *float64 `json:"p1_sd,omitempty"`
 	Probability float64  `json:"probability"`
+	OpenS       float64  `json:"open_s"`
 }
 
 type yieldJSON struct {
@@ -338,8 +389,9 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 	})
 	jw.List("segments", len(p.Segments), func(i int) any {
 		s := p.Segments[i]
-		return segmentJSON{Index: s.Index, Fiducial: s.Fiducial, FiducialAtNM: xyOf(s.FiducialAt), StartS: s.StartS,
-			EndS: s.EndS, BudgetS: s.BudgetS, Strokes: nonNil(s.Strokes)}
+		return segmentJSON{Index: s.Index, Step: s.Step, Registration: string(s.Registration), Reason: s.Reason, Fiducial: s.Fiducial,
+			FiducialAtNM: xyOf(s.FiducialAt), StartS: s.StartS, EndS: s.EndS, BudgetS: s.BudgetS, Strokes: nonNil(s.Strokes),
+			Tightest: s.Tightest, PInTolerance: s.PInTolerance}
 	})
 	jw.List("actions", len(p.Actions), func(i int) any {
 		a := p.Actions[i]
@@ -351,17 +403,22 @@ func WritePlanJSON(w io.Writer, p *planner.Plan, generator string) error {
 		}
 		return aj
 	})
+	jw.List("steps", len(p.Steps), func(i int) any { return stepOf(p.Steps[i]) })
 	jw.Field("breakdown", breakdownOf(p.Breakdown))
 	jw.Field("total_s", p.TotalS)
 	jw.Field("p10_s", p.P10S)
 	jw.Field("p50_s", p.P50S)
 	jw.Field("p90_s", p.P90S)
+	jw.Field("schedule_s", p.ScheduleS)
 	jw.Field("floor_s", p.FloorS)
 	jw.Field("by_hand_s", p.ByHandS)
+	jw.Field("p_in_tolerance", p.PInTolerance)
+	jw.List("couplings", len(p.Couplings), func(i int) any { return couplingOf(p.Couplings[i]) })
+	jw.Field("drift_plan", driftPlanOf(p.Drift))
 	jw.List("windows", len(p.Windows), func(i int) any {
 		w := p.Windows[i]
 		return windowJSON{Region: w.Region, Species: w.Species, Template: w.Template, AtNM: xyOf(w.At), Sites: w.Sites,
-			OpenProbability: w.OpenProbability, P0: &w.P0, P1: &w.P1, P2Plus: &w.P2Plus, P1SD: &w.P1SD, Probability: w.Probability}
+			OpenProbability: w.OpenProbability, P0: &w.P0, P1: &w.P1, P2Plus: &w.P2Plus, P1SD: &w.P1SD, Probability: w.Probability, OpenS: w.OpenS}
 	})
 	y := p.Yield
 	jw.Field("yield", yieldJSON{Windows: y.Windows, All: y.All, Log10All: log10JSON(y.Log10All),
@@ -417,7 +474,38 @@ func coverageFrom(c coverageJSON) planner.Coverage {
 
 func breakdownOf(b planner.Breakdown) breakdownJSON {
 	return breakdownJSON{APWriteS: b.APWriteS, FEWriteS: b.FEWriteS, DwellS: b.DwellS, TravelS: b.TravelS,
-		ModeSwitchS: b.ModeSwitchS, RegistrationS: b.RegistrationS, VerificationS: b.VerificationS}
+		ModeSwitchS: b.ModeSwitchS, RegistrationS: b.RegistrationS, VerificationS: b.VerificationS,
+		SurveyS: b.SurveyS, ConditioningS: b.ConditioningS, TipChangeS: b.TipChangeS, RepairS: b.RepairS,
+		DocumentationS: b.DocumentationS, DoseS: b.DoseS, AnnealS: b.AnnealS}
+}
+
+func (b breakdownJSON) breakdown() planner.Breakdown {
+	return planner.Breakdown{APWriteS: b.APWriteS, FEWriteS: b.FEWriteS, DwellS: b.DwellS, TravelS: b.TravelS,
+		ModeSwitchS: b.ModeSwitchS, RegistrationS: b.RegistrationS, VerificationS: b.VerificationS,
+		SurveyS: b.SurveyS, ConditioningS: b.ConditioningS, TipChangeS: b.TipChangeS, RepairS: b.RepairS,
+		DocumentationS: b.DocumentationS, DoseS: b.DoseS, AnnealS: b.AnnealS}
+}
+
+func stepOf(s planner.Step) stepJSON {
+	return stepJSON{Kind: string(s.Kind), Species: s.Species, StartS: s.StartS, DurationS: s.DurationS, Segments: nonNil(s.Segments),
+		Precursor: s.Precursor, ExposureL: s.ExposureL, TemperatureC: s.TemperatureC, Note: s.Note}
+}
+
+func (s stepJSON) step() planner.Step {
+	return planner.Step{Kind: planner.StepKind(s.Kind), Species: s.Species, StartS: s.StartS, DurationS: s.DurationS, Segments: s.Segments,
+		Precursor: s.Precursor, ExposureL: s.ExposureL, TemperatureC: s.TemperatureC, Note: s.Note}
+}
+
+func couplingOf(c planner.Coupling) couplingJSON {
+	return couplingJSON{Kind: string(c.Kind), A: c.A, B: c.B, ToleranceNM: c.ToleranceNM, Strokes: nonNil(c.Strokes), SameStep: c.SameStep, PInTolerance: c.PInTolerance}
+}
+
+func (c couplingJSON) coupling() planner.Coupling {
+	return planner.Coupling{Kind: planner.CouplingKind(c.Kind), A: c.A, B: c.B, ToleranceNM: c.ToleranceNM, Strokes: c.Strokes, SameStep: c.SameStep, PInTolerance: c.PInTolerance}
+}
+
+func driftPlanOf(d planner.DriftPlan) driftPlanJSON {
+	return driftPlanJSON{RateNMPerMin: d.RateNMPerMin, CreepFraction: d.CreepFraction, ErrorZ: d.ErrorZ, Margin: d.Margin, Compensated: d.Compensated}
 }
 
 // nonNil returns s, or an empty slice for nil, so the file always holds
@@ -488,7 +576,14 @@ func ParsePlan(name string, data []byte) (*planner.Plan, error) {
 	}
 	var f planFile
 	var ps jsonfile.Problems
-	jsonfile.Decode(data, &f, &ps, planOptions)
+	opts := planOptions
+	if raw, _ := jsonfile.TopField(data, "version"); string(raw) == "1" {
+		// A version 1 plan has no session model (steps, session times,
+		// P(within tolerance)): read what it has; the plan then has no
+		// steps, which the exports say.
+		opts.Required = false
+	}
+	jsonfile.Decode(data, &f, &ps, opts)
 	if err := ps.Err(name, ErrInvalid); err != nil {
 		for _, p := range ps.List() {
 			if p.Err == ErrSyntax {
@@ -559,7 +654,12 @@ func startsObject(data []byte) bool {
 func (f *planFile) plan() (*planner.Plan, error) {
 	p := &planner.Plan{Design: f.Design, Variant: f.Variant, Profile: f.Profile, Seed: f.Seed,
 		FieldWidthNM: f.FieldNM[0], FieldHeightNM: f.FieldNM[1],
-		TotalS: f.TotalS, P10S: f.P10S, P50S: f.P50S, P90S: f.P90S, FloorS: f.FloorS, ByHandS: f.ByHandS, Warnings: f.Warnings}
+		TotalS: f.TotalS, P10S: f.P10S, P50S: f.P50S, P90S: f.P90S, ScheduleS: f.ScheduleS, FloorS: f.FloorS, ByHandS: f.ByHandS, Warnings: f.Warnings,
+		PInTolerance: f.PInTolerance}
+	p.Steps = mapSlice(f.Steps, stepJSON.step)
+	p.Couplings = mapSlice(f.Couplings, couplingJSON.coupling)
+	d := f.Drift
+	p.Drift = planner.DriftPlan{RateNMPerMin: d.RateNMPerMin, CreepFraction: d.CreepFraction, ErrorZ: d.ErrorZ, Margin: d.Margin, Compensated: d.Compensated}
 	p.Conditions = mapSlice(f.Conditions, func(c conditionsJSON) planner.Conditions {
 		return planner.Conditions{Mode: design.Mode(c.Mode), Kind: planner.StrokeKind(c.Kind), DwellS: c.DwellS, DwellCapS: c.DwellCapS, BiasV: c.BiasV, CurrentA: c.CurrentA, LineDoseCPerCm: c.LineDoseCPerCm,
 			SpeedNMPerS: c.SpeedNMPerS, LineWidthNM: c.LineWidthNM, Passes: c.Passes, PitchNM: c.PitchNM,
@@ -583,8 +683,9 @@ func (f *planFile) plan() (*planner.Plan, error) {
 			ExpectedMissed: deref(s.ExpectedMissed), ExpectedStray: deref(s.ExpectedStray)}
 	}
 	p.Segments = mapSlice(f.Segments, func(s segmentJSON) planner.Segment {
-		return planner.Segment{Index: s.Index, Fiducial: s.Fiducial, FiducialAt: s.FiducialAtNM.point(), StartS: s.StartS,
-			EndS: s.EndS, BudgetS: s.BudgetS, Strokes: s.Strokes}
+		return planner.Segment{Index: s.Index, Step: s.Step, Registration: planner.RegistrationKind(s.Registration), Reason: s.Reason,
+			Fiducial: s.Fiducial, FiducialAt: s.FiducialAtNM.point(), StartS: s.StartS,
+			EndS: s.EndS, BudgetS: s.BudgetS, Strokes: s.Strokes, Tightest: s.Tightest, PInTolerance: s.PInTolerance}
 	})
 	p.Actions = make([]planner.Action, len(f.Actions))
 	for i, a := range f.Actions {
@@ -595,12 +696,10 @@ func (f *planFile) plan() (*planner.Plan, error) {
 			From: a.FromNM.point(), To: a.ToNM.point(), StartS: a.StartS, DurationS: a.DurationS, Mode: design.Mode(a.Mode),
 			BiasV: a.BiasV, CurrentA: a.CurrentA, SpeedNMPS: a.SpeedNMPS, Note: a.Note}
 	}
-	b := f.Breakdown
-	p.Breakdown = planner.Breakdown{APWriteS: b.APWriteS, FEWriteS: b.FEWriteS, DwellS: b.DwellS, TravelS: b.TravelS,
-		ModeSwitchS: b.ModeSwitchS, RegistrationS: b.RegistrationS, VerificationS: b.VerificationS}
+	p.Breakdown = f.Breakdown.breakdown()
 	p.Windows = mapSlice(f.Windows, func(w windowJSON) planner.Window {
 		win := planner.Window{Region: w.Region, Species: w.Species, Template: w.Template, At: w.AtNM.point(), Sites: w.Sites,
-			OpenProbability: w.OpenProbability, Probability: w.Probability}
+			OpenProbability: w.OpenProbability, Probability: w.Probability, OpenS: w.OpenS}
 		if w.P1 == nil {
 			// Version 1: probability = open_probability · p1, the rest
 			// empty windows, no uncertainty.

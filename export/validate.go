@@ -3,7 +3,9 @@ package export
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
+	"strings"
 
 	"github.com/golang/geo/r2"
 
@@ -112,6 +114,21 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 			v.fail(invalid(f+".end_s", s.EndS, "ends before it starts (%g s)", s.StartS))
 		}
 		v.nonNeg(f+".budget_s", s.BudgetS)
+		// A plan without steps is a version 1 plan: no session model.
+		if len(p.Steps) > 0 {
+			v.index(f+".step", s.Step, len(p.Steps), false)
+			if v.err == nil && s.Step < len(p.Steps) && p.Steps[s.Step].Kind != planner.StepLithography {
+				v.fail(invalid(f+".step", s.Step, "step %d is a %s step, not a lithography step", s.Step, p.Steps[s.Step].Kind))
+			}
+			if v.err == nil && s.Registration != planner.RegCoarse && s.Registration != planner.RegLocal {
+				v.fail(invalid(f+".registration", string(s.Registration), "unknown registration kind (want coarse or local)"))
+			}
+		}
+		if v.err == nil && s.Registration == planner.RegCoarse && s.Fiducial == "" {
+			v.fail(invalid(f+".fiducial", s.Fiducial, "a coarse registration names its fiducial"))
+		}
+		v.index(f+".tightest", s.Tightest, len(p.Strokes), true)
+		v.probability(f+".p_in_tolerance", s.PInTolerance)
 		for k, id := range s.Strokes {
 			if id < 0 || id >= len(p.Strokes) || p.Strokes[id].Segment != i {
 				g := fmt.Sprintf("%s.strokes[%d]", f, k)
@@ -133,10 +150,8 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 		if a.Index != i {
 			v.fail(invalid(f+".index", a.Index, "action %d must have index %d", i, i))
 		}
-		switch a.Kind {
-		case planner.ActRegister, planner.ActMove, planner.ActSwitch, planner.ActWrite, planner.ActDwell, planner.ActVerify:
-		default:
-			v.fail(invalid(f+".kind", string(a.Kind), "unknown action kind (want register, move, switch, write, dwell or verify)"))
+		if v.err == nil && !slices.Contains(planner.ActionKinds, a.Kind) {
+			v.fail(invalid(f+".kind", string(a.Kind), "unknown action kind (want %s)", actionKindList()))
 		}
 		v.index(f+".segment", a.Segment, len(p.Segments), true)
 		v.index(f+".stroke", a.Stroke, len(p.Strokes), true)
@@ -161,13 +176,33 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 			return v.err
 		}
 	}
+	for i, st := range p.Steps {
+		f := v.at("steps", i)
+		switch st.Kind {
+		case planner.StepSurvey, planner.StepLithography, planner.StepDose, planner.StepAnneal, planner.StepReregister, planner.StepDocumentation:
+		default:
+			v.fail(invalid(f+".kind", string(st.Kind), "unknown step kind (want survey, lithography, dose, anneal, reregister or documentation)"))
+		}
+		v.nonNeg(f+".start_s", st.StartS)
+		v.nonNeg(f+".duration_s", st.DurationS)
+		v.nonNeg(f+".exposure_l", st.ExposureL)
+		v.finite(f+".temperature_c", st.TemperatureC)
+		if v.err == nil && len(st.Segments) > 0 && st.Kind != planner.StepLithography {
+			v.fail(invalid(f+".segments", len(st.Segments), "only a lithography step holds segments"))
+		}
+		for k, g := range st.Segments {
+			v.index(fmt.Sprintf("%s.segments[%d]", f, k), g, len(p.Segments), false)
+			if v.err == nil && p.Segments[g].Step != i {
+				v.fail(invalid(fmt.Sprintf("%s.segments[%d]", f, k), g, "segment %d says it is in step %d", g, p.Segments[g].Step))
+			}
+		}
+		if v.err != nil {
+			return v.err
+		}
+	}
 	b := p.Breakdown
-	for _, part := range []struct {
-		name string
-		v    float64
-	}{{"ap_write_s", b.APWriteS}, {"fe_write_s", b.FEWriteS}, {"dwell_s", b.DwellS}, {"travel_s", b.TravelS},
-		{"mode_switch_s", b.ModeSwitchS}, {"registration_s", b.RegistrationS}, {"verification_s", b.VerificationS}} {
-		v.nonNeg("breakdown."+part.name, part.v)
+	for _, k := range planner.TimeKinds {
+		v.nonNeg("breakdown."+breakdownKey(k), b.Seconds(k))
 	}
 	v.nonNeg("total_s", p.TotalS)
 	if v.err == nil && math.Abs(b.Total()-p.TotalS) > 1e-6*math.Max(1, p.TotalS) {
@@ -178,6 +213,24 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 	v.nonNeg("p90_s", p.P90S)
 	v.nonNeg("floor_s", p.FloorS)
 	v.nonNeg("by_hand_s", p.ByHandS)
+	v.nonNeg("schedule_s", p.ScheduleS)
+	v.probability("p_in_tolerance", p.PInTolerance)
+	for i, c := range p.Couplings {
+		f := v.at("couplings", i)
+		if v.err == nil && c.Kind != planner.CoupledGap && c.Kind != planner.CoupledPlacement {
+			v.fail(invalid(f+".kind", string(c.Kind), "unknown coupling kind (want tunnel-gap or placement)"))
+		}
+		v.positive(f+".tolerance_nm", c.ToleranceNM)
+		v.probability(f+".p_in_tolerance", c.PInTolerance)
+		for k, id := range c.Strokes {
+			v.index(fmt.Sprintf("%s.strokes[%d]", f, k), id, len(p.Strokes), false)
+		}
+	}
+	d := p.Drift
+	v.nonNeg("drift_plan.rate_nm_per_min", d.RateNMPerMin)
+	v.nonNeg("drift_plan.creep_fraction", d.CreepFraction)
+	v.nonNeg("drift_plan.error_z", d.ErrorZ)
+	v.nonNeg("drift_plan.margin", d.Margin)
 	if v.err == nil && !(p.P10S <= p.P50S && p.P50S <= p.P90S) {
 		v.fail(invalid("p50_s", p.P50S, "quantiles out of order (p10 %g s, p90 %g s)", p.P10S, p.P90S))
 	}
@@ -199,6 +252,7 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 		if v.err == nil && math.Abs(w.Probability-w.OpenProbability*w.P1) > 1e-9 {
 			v.fail(invalid(f+".probability", w.Probability, "not open_probability · p1 = %g", w.OpenProbability*w.P1))
 		}
+		v.nonNeg(f+".open_s", w.OpenS)
 	}
 	y := p.Yield
 	v.count("yield.windows", y.Windows)
@@ -263,6 +317,24 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 		}
 	}
 	return v.err
+}
+
+// breakdownKey returns the plan file's key of a kind of time.
+func breakdownKey(k planner.TimeKind) string {
+	return [...]string{planner.TimeAPWrite: "ap_write_s", planner.TimeFEWrite: "fe_write_s", planner.TimeDwell: "dwell_s",
+		planner.TimeTravel: "travel_s", planner.TimeModeSwitch: "mode_switch_s", planner.TimeRegistration: "registration_s",
+		planner.TimeVerification: "verification_s", planner.TimeSurvey: "survey_s", planner.TimeConditioning: "conditioning_s",
+		planner.TimeTipChange: "tip_change_s", planner.TimeRepair: "repair_s", planner.TimeDocumentation: "documentation_s",
+		planner.TimeDose: "dose_s", planner.TimeAnneal: "anneal_s"}[k]
+}
+
+// actionKindList lists the action kinds for messages.
+func actionKindList() string {
+	var ks []string
+	for _, k := range planner.ActionKinds {
+		ks = append(ks, string(k))
+	}
+	return strings.Join(ks, ", ")
 }
 
 // checker keeps the first failure; later checks are skipped.

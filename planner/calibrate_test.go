@@ -96,18 +96,18 @@ func TestFitLinesRecoversModel(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if !close(fit.Sigma.Value, c.tr.sigma, 1e-8) {
+			if !nearlyEqual(fit.Sigma.Value, c.tr.sigma, 1e-8) {
 				t.Errorf("σ = %v, want %v", fit.Sigma.Value, c.tr.sigma)
 			}
 			// Y at the fit's reference point against the truth there.
 			want := c.tr.model().Yield(fit.RefBiasV, fit.RefCurrentA)
-			if !close(fit.Yield.Value, want, 1e-7) {
+			if !nearlyEqual(fit.Yield.Value, want, 1e-7) {
 				t.Errorf("Y = %v, want %v", fit.Yield.Value, want)
 			}
-			if fit.Order != nil && !close(fit.Order.Value, c.tr.order, 1e-7) {
+			if fit.Order != nil && !nearlyEqual(fit.Order.Value, c.tr.order, 1e-7) {
 				t.Errorf("n = %v, want %v", fit.Order.Value, c.tr.order)
 			}
-			if fit.DecadeV != nil && !close(fit.DecadeV.Value, c.tr.decadeV, 1e-7) {
+			if fit.DecadeV != nil && !nearlyEqual(fit.DecadeV.Value, c.tr.decadeV, 1e-7) {
 				t.Errorf("D = %v, want %v", fit.DecadeV.Value, c.tr.decadeV)
 			}
 			if fit.ResidualSDNM2 > 1e-9 {
@@ -117,7 +117,7 @@ func TestFitLinesRecoversModel(t *testing.T) {
 	}
 }
 
-func close(got, want, rel float64) bool { return math.Abs(got-want) <= rel*math.Abs(want) }
+func nearlyEqual(got, want, rel float64) bool { return math.Abs(got-want) <= rel*math.Abs(want) }
 
 func TestFitLinesMatchesLeastSquares(t *testing.T) {
 	rng := rand.New(rand.NewPCG(7, 7))
@@ -136,7 +136,7 @@ func TestFitLinesMatchesLeastSquares(t *testing.T) {
 		ys = append(ys, m.WidthNM*m.WidthNM)
 	}
 	a, b := stat.LinearRegression(xs, ys, nil, false)
-	if !close(fit.Coef[0], a, 1e-9) || !close(fit.Coef[1], b, 1e-9) {
+	if !nearlyEqual(fit.Coef[0], a, 1e-9) || !nearlyEqual(fit.Coef[1], b, 1e-9) {
 		t.Errorf("FitLines coefficients %v, stat.LinearRegression %v, %v", fit.Coef, a, b)
 	}
 	// Residual SD with n − 2 degrees of freedom.
@@ -145,7 +145,7 @@ func TestFitLinesMatchesLeastSquares(t *testing.T) {
 		r := ys[i] - a - b*xs[i]
 		rss += r * r
 	}
-	if want := math.Sqrt(rss / float64(len(xs)-2)); fit.DOF != len(xs)-2 || !close(fit.ResidualSDNM2, want, 1e-9) {
+	if want := math.Sqrt(rss / float64(len(xs)-2)); fit.DOF != len(xs)-2 || !nearlyEqual(fit.ResidualSDNM2, want, 1e-9) {
 		t.Errorf("residual SD %v with %d dof, want %v with %d", fit.ResidualSDNM2, fit.DOF, want, len(xs)-2)
 	}
 	// Three currents and two biases: against gonum/mat's least-squares
@@ -166,7 +166,7 @@ func TestFitLinesMatchesLeastSquares(t *testing.T) {
 		t.Fatal(err)
 	}
 	for j := range 4 {
-		if !close(fit.Coef[j], beta.AtVec(j), 1e-8) {
+		if !nearlyEqual(fit.Coef[j], beta.AtVec(j), 1e-8) {
 			t.Errorf("coefficient %s = %v, mat.SolveVec %v", fit.Terms[j], fit.Coef[j], beta.AtVec(j))
 		}
 	}
@@ -369,11 +369,11 @@ func TestCalibrateWritesModel(t *testing.T) {
 	if len(fits) != 2 || fits[0].Direction != DirectionAlong || fits[1].Direction != DirectionAcross {
 		t.Fatalf("fits = %+v, want along and across", fits)
 	}
-	if !close(fits[1].Sigma.Value, 0.25, 1e-6) {
+	if !nearlyEqual(fits[1].Sigma.Value, 0.25, 1e-6) {
 		t.Errorf("across σ = %v, want 0.25", fits[1].Sigma.Value)
 	}
 	def := DefaultProfile()
-	if !close(p.AP.SigmaNM, 0.15, 1e-6) || !close(p.Exposure.Vibrational.YieldPerElectron, 3e-8, 1e-6) || p.FE != def.FE || p.Exposure.Electronic != def.Exposure.Electronic {
+	if !nearlyEqual(p.AP.SigmaNM, 0.15, 1e-6) || !nearlyEqual(p.Exposure.Vibrational.YieldPerElectron, 3e-8, 1e-6) || p.FE != def.FE || p.Exposure.Electronic != def.Exposure.Electronic {
 		t.Errorf("calibrated AP σ %v, Y %v (want 0.15, 3e-8); FE %+v, electronic %+v (want unchanged)", p.AP.SigmaNM, p.Exposure.Vibrational.YieldPerElectron, p.FE, p.Exposure.Electronic)
 	}
 	// Lines between the regimes cannot be attributed to either.

@@ -30,7 +30,7 @@ func TestBuildRefusesAbsurdWork(t *testing.T) {
 			p.Drift.RateNMPerMin, p.ToleranceFENM = 100, 10  // a 6 s budget
 			p.MoveSpeedNMPerS, p.SettleS, p.Limits.MaxSpeedNMPS = 1e6, 0, 0
 		}, []string{`pieces of a raster stroke of region "pad" cut at registrations would number`, "more than the limit of 10000",
-			"drift.rate_nm_per_min = 100", "fe.current_a = 2e-15 A over fe.line_dose_c_per_cm = 1e-05 C/cm writes at 0.002 nm/s"}},
+			"at the planned 100.1 nm/min", "fe.current_a = 2e-15 A over fe.line_dose_c_per_cm = 1e-05 C/cm writes at 0.002 nm/s"}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -33,6 +33,9 @@ type regionWork struct {
 	reason         string
 	apPart, fePart *lattice.SiteSet // plain sites written in each mode
 	tolAP, tolFE   float64
+	srcAP, srcFE   string // where each tolerance comes from (a JSON path)
+	dopant         string // the species it receives, design.NoDopant for none
+	stepNamed      string // the step a region without dopant names
 	warnings       []string
 }
 

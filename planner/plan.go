@@ -50,13 +50,28 @@ type Plan struct {
 	Segments []Segment
 	Actions  []Action
 
-	// Breakdown sums to TotalS, the expected write time; P10S, P50S and
-	// P90S are quantiles of the Monte Carlo spread.
+	// Steps are the process steps in order (session_plan.go): survey,
+	// lithography of each dopant with its dose and anneal, finding the
+	// area again, documentation.
+	Steps []Step
+
+	// Breakdown sums to TotalS, the mean of the Monte Carlo samples of
+	// the session's time on the fixed plan; P10S, P50S and P90S are their
+	// quantiles. ScheduleS is the end of the plan clock: the actions as
+	// printed, every random part at its expected value and no tip change.
 	Breakdown Breakdown
 	TotalS    float64
 	P10S      float64
 	P50S      float64
 	P90S      float64
+	ScheduleS float64
+	// PInTolerance is the probability that every stroke and every coupled
+	// pair stays within its tolerance, sampled on the fixed plan;
+	// Couplings are the coupled pairs with theirs, and Drift says what
+	// the segments were planned for.
+	PInTolerance float64
+	Couplings    []Coupling
+	Drift        DriftPlan
 	// FloorS is the physical floor: the writing time alone (AP, FE and
 	// dwell), without travel, switches or registrations.
 	FloorS float64
@@ -151,16 +166,29 @@ type Stroke struct {
 // Segment is a run of strokes written after one registration, short
 // enough that drift stays inside every stroke's placement tolerance.
 type Segment struct {
-	Index      int
+	Index int
+	// Step is the index into Plan.Steps of its lithography step.
+	Step int
+	// Registration is the kind of its registration, and Reason why.
+	Registration RegistrationKind
+	Reason       string
+	// Fiducial names the mark of a coarse registration ("" for a local
+	// one); FiducialAt is where the registration is made.
 	Fiducial   string
 	FiducialAt r2.Point
-	StartS     float64 // plan clock at the start of the registration
+	StartS     float64 // plan clock at the start of the segment
 	EndS       float64
-	// BudgetS is the drift budget: the least tolerance / drift rate over
-	// the segment's strokes; 0 when the profile has no drift (no limit:
-	// JSON cannot carry +Inf).
+	// BudgetS is the drift budget of its tightest stroke at the planned
+	// drift rate: (tolerance − registration error − creep) / rate; 0 when
+	// the profile has no drift (no limit: JSON cannot carry +Inf).
 	BudgetS float64
 	Strokes []int // stroke IDs in writing order
+	// Tightest is the stroke whose displacement at the planning values
+	// uses the largest share of its tolerance; PInTolerance the sampled
+	// probability that every stroke of the segment stays within its
+	// tolerance.
+	Tightest     int
+	PInTolerance float64
 }
 
 // ActionKind is one kind of tip action.
@@ -173,7 +201,20 @@ const (
 	ActWrite    ActionKind = "write"    // write a stroke
 	ActDwell    ActionKind = "dwell"    // park and pulse for a dwell stroke
 	ActVerify   ActionKind = "verify"   // the operator's verification image
+	// Session actions around the writing (session.go).
+	ActSurvey    ActionKind = "survey"    // image of the write area before the first lithography
+	ActCondition ActionKind = "condition" // tip conditioning
+	ActRepair    ActionKind = "repair"    // dwells on the missed sites the verification finds, each re-imaged
+	ActDose      ActionKind = "dose"      // precursor exposure after a lithography step
+	ActAnneal    ActionKind = "anneal"    // incorporation anneal and cool-down
+	ActRefind    ActionKind = "refind"    // approach and find the write area again after an anneal
+	ActDocument  ActionKind = "document"  // documentation image at the end
 )
+
+// ActionKinds lists every action kind, in the order the README's table
+// gives them.
+var ActionKinds = []ActionKind{ActMove, ActRegister, ActSwitch, ActWrite, ActDwell, ActVerify,
+	ActSurvey, ActCondition, ActRepair, ActDose, ActAnneal, ActRefind, ActDocument}
 
 // Action is one step of the timeline. Actions cover the plan without gaps:
 // each starts when the previous one ends.
@@ -193,53 +234,82 @@ type Action struct {
 	Note      string
 }
 
-// Breakdown is the expected write time by kind, in seconds.
+// Breakdown is the session's mean time by kind, in seconds.
 type Breakdown struct {
 	APWriteS      float64
 	FEWriteS      float64
 	DwellS        float64
 	TravelS       float64
 	ModeSwitchS   float64
-	RegistrationS float64
-	VerificationS float64
+	RegistrationS float64 // registrations and finding the area again
+	VerificationS float64 // verification images of segments and features
+	// The session around the writing (session.go).
+	SurveyS        float64
+	ConditioningS  float64
+	TipChangeS     float64
+	RepairS        float64
+	DocumentationS float64
+	DoseS          float64
+	AnnealS        float64
 }
 
 // Total returns the sum of the parts.
 func (b Breakdown) Total() float64 {
-	return b.APWriteS + b.FEWriteS + b.DwellS + b.TravelS + b.ModeSwitchS + b.RegistrationS + b.VerificationS
+	t := 0.0
+	for _, k := range TimeKinds {
+		t += b.Seconds(k)
+	}
+	return t
 }
 
 // TimeKind is one kind of time in a Breakdown.
 type TimeKind int
 
 const (
-	TimeAPWrite      TimeKind = iota // writing AP lines (APWriteS)
-	TimeFEWrite                      // writing FE rasters and outlines (FEWriteS)
-	TimeDwell                        // dwells on single sites (DwellS)
-	TimeTravel                       // idle moves and settling (TravelS)
-	TimeModeSwitch                   // bias and setpoint changes between modes (ModeSwitchS)
-	TimeRegistration                 // imaging a fiducial and correcting the offset (RegistrationS)
-	TimeVerification                 // the verification image of each segment (VerificationS)
+	TimeAPWrite       TimeKind = iota // writing AP lines (APWriteS)
+	TimeFEWrite                       // writing FE rasters and outlines (FEWriteS)
+	TimeDwell                         // dwells on single sites (DwellS)
+	TimeTravel                        // idle moves and settling (TravelS)
+	TimeModeSwitch                    // bias and setpoint changes between modes (ModeSwitchS)
+	TimeRegistration                  // imaging a fiducial and correcting the offset (RegistrationS)
+	TimeVerification                  // verification images of segments and features (VerificationS)
+	TimeSurvey                        // the survey image (SurveyS)
+	TimeConditioning                  // tip conditioning (ConditioningS)
+	TimeTipChange                     // tip changes, random (TipChangeS)
+	TimeRepair                        // repair of missed sites (RepairS)
+	TimeDocumentation                 // the documentation image (DocumentationS)
+	TimeDose                          // precursor doses (DoseS)
+	TimeAnneal                        // incorporation anneals and cool-downs (AnnealS)
 )
 
 // TimeKinds lists every kind of time in the order Breakdown holds them.
-var TimeKinds = []TimeKind{TimeAPWrite, TimeFEWrite, TimeDwell, TimeTravel, TimeModeSwitch, TimeRegistration, TimeVerification}
+var TimeKinds = []TimeKind{TimeAPWrite, TimeFEWrite, TimeDwell, TimeTravel, TimeModeSwitch, TimeRegistration, TimeVerification,
+	TimeSurvey, TimeConditioning, TimeTipChange, TimeRepair, TimeDocumentation, TimeDose, TimeAnneal}
 
 // timeNames holds each kind's display name and column header, the one
 // wording the command line, the GUI and the printed plan use.
 var timeNames = [...]struct{ name, short string }{
-	TimeAPWrite:      {design.ModeAP.Abbrev() + " writing", design.ModeAP.Abbrev()},
-	TimeFEWrite:      {design.ModeFE.Abbrev() + " writing", design.ModeFE.Abbrev()},
-	TimeDwell:        {"dwells", "dwell"},
-	TimeTravel:       {"travel and settling", "travel"},
-	TimeModeSwitch:   {"mode switches", "switch"},
-	TimeRegistration: {"registrations", "register"},
-	TimeVerification: {"verification images", "verify"},
+	TimeAPWrite:       {design.ModeAP.Abbrev() + " writing", design.ModeAP.Abbrev()},
+	TimeFEWrite:       {design.ModeFE.Abbrev() + " writing", design.ModeFE.Abbrev()},
+	TimeDwell:         {"dwells", "dwell"},
+	TimeTravel:        {"travel and settling", "travel"},
+	TimeModeSwitch:    {"mode switches", "switch"},
+	TimeRegistration:  {"registrations", "register"},
+	TimeVerification:  {"verification images", "verify"},
+	TimeSurvey:        {"survey image", "survey"},
+	TimeConditioning:  {"tip conditioning", "condition"},
+	TimeTipChange:     {"tip changes", "tip"},
+	TimeRepair:        {"repairs", "repair"},
+	TimeDocumentation: {"documentation image", "document"},
+	TimeDose:          {"doses", "dose"},
+	TimeAnneal:        {"anneals and cool-down", "anneal"},
 }
 
 // String returns the kind's display name: "AP writing", "FE writing",
 // "dwells", "travel and settling", "mode switches", "registrations",
-// "verification images".
+// "verification images", "survey image", "tip conditioning", "tip
+// changes", "repairs", "documentation image", "doses", "anneals and
+// cool-down".
 func (k TimeKind) String() string {
 	if k < 0 || int(k) >= len(timeNames) {
 		return fmt.Sprintf("TimeKind(%d)", int(k))
@@ -248,7 +318,8 @@ func (k TimeKind) String() string {
 }
 
 // Short returns the kind's name as a column header: "AP", "FE",
-// "dwell", "travel", "switch", "register", "verify".
+// "dwell", "travel", "switch", "register", "verify", "survey",
+// "condition", "tip", "repair", "document", "dose", "anneal".
 func (k TimeKind) Short() string {
 	if k < 0 || int(k) >= len(timeNames) {
 		return k.String()
@@ -258,23 +329,46 @@ func (k TimeKind) Short() string {
 
 // Seconds returns the time of kind k in b, 0 for an unknown kind.
 func (b Breakdown) Seconds(k TimeKind) float64 {
-	switch k {
-	case TimeAPWrite:
-		return b.APWriteS
-	case TimeFEWrite:
-		return b.FEWriteS
-	case TimeDwell:
-		return b.DwellS
-	case TimeTravel:
-		return b.TravelS
-	case TimeModeSwitch:
-		return b.ModeSwitchS
-	case TimeRegistration:
-		return b.RegistrationS
-	case TimeVerification:
-		return b.VerificationS
+	if f := b.field(k); f != nil {
+		return *f
 	}
 	return 0
+}
+
+// field returns a pointer to the time of kind k in b, nil for an unknown
+// kind.
+func (b *Breakdown) field(k TimeKind) *float64 {
+	switch k {
+	case TimeAPWrite:
+		return &b.APWriteS
+	case TimeFEWrite:
+		return &b.FEWriteS
+	case TimeDwell:
+		return &b.DwellS
+	case TimeTravel:
+		return &b.TravelS
+	case TimeModeSwitch:
+		return &b.ModeSwitchS
+	case TimeRegistration:
+		return &b.RegistrationS
+	case TimeVerification:
+		return &b.VerificationS
+	case TimeSurvey:
+		return &b.SurveyS
+	case TimeConditioning:
+		return &b.ConditioningS
+	case TimeTipChange:
+		return &b.TipChangeS
+	case TimeRepair:
+		return &b.RepairS
+	case TimeDocumentation:
+		return &b.DocumentationS
+	case TimeDose:
+		return &b.DoseS
+	case TimeAnneal:
+		return &b.AnnealS
+	}
+	return nil
 }
 
 // Window is one dopant window of the plan with its donor-count
@@ -300,6 +394,9 @@ type Window struct {
 	// Probability is the probability that the window is good: opened as
 	// drawn and then holding exactly one donor, OpenProbability·P1.
 	Probability float64
+	// OpenS is how long the window stays open: from the end of its write
+	// to the start of its step's dose.
+	OpenS float64
 }
 
 // Yield summarises the dopant windows' outcome.

@@ -56,12 +56,27 @@ type Profile struct {
 
 	Drift DriftProfile `json:"drift"`
 
+	// Registration, Process and Session describe the session around the
+	// writing (session_profile.go): the two kinds of registration and
+	// piezo creep, the process steps per dopant, and the survey,
+	// conditioning, tip changes, verification, repair and documentation.
+	Registration RegistrationProfile `json:"registration"`
+	Process      ProcessProfile      `json:"process"`
+	Session      SessionProfile      `json:"session"`
+
 	// ToleranceAPNM and ToleranceFENM are the default placement
 	// tolerances (±nm) for regions that give none. ToleranceFENM is also
 	// what FE writing can hold: auto mode writes a region in FE only when
 	// its own tolerance (if it gives one) is at least this.
 	ToleranceAPNM float64 `json:"tolerance_ap_nm"`
 	ToleranceFENM float64 `json:"tolerance_fe_nm"`
+	// ToleranceLeadNM, ToleranceGateNM and TolerancePadNM are the default
+	// placement tolerances (±nm) of leads, gates and pads (a design's
+	// rules come first); field-emission work is never held tighter than
+	// ToleranceFENM.
+	ToleranceLeadNM float64 `json:"tolerance_lead_nm"`
+	ToleranceGateNM float64 `json:"tolerance_gate_nm"`
+	TolerancePadNM  float64 `json:"tolerance_pad_nm"`
 
 	// Order says which mode is written first: "ap-first" or "fe-first".
 	Order string `json:"order"`
@@ -136,6 +151,11 @@ type DriftProfile struct {
 	// VerificationS is the operator's verification image after each
 	// segment (0 for none).
 	VerificationS float64 `json:"verification_s"`
+	// Compensation is optional feed-forward drift compensation, Excess
+	// the faster drift soon after a long move or an anneal
+	// (session_profile.go).
+	Compensation DriftCompensation `json:"compensation"`
+	Excess       DriftExcess       `json:"excess"`
 }
 
 // Limits are the instrument's hard limits; a plan that needs more is
@@ -163,7 +183,7 @@ const (
 // literature but not checked against a stored source, to be replaced by
 // the lab's own calibration (dimerpath calibrate).
 func DefaultProfile() Profile {
-	return Profile{
+	p := Profile{
 		Format:  ProfileFormat,
 		Version: ProfileVersion,
 		Name:    "room-temperature default",
@@ -309,6 +329,8 @@ func DefaultProfile() Profile {
 			MaxSpeedNMPS: 5000,  // few µm/s tip moves, from memory
 		},
 	}
+	sessionDefaults(&p)
+	return p
 }
 
 // LowTemperatureProfile returns the 4 K preset ("lt"): the room-
@@ -322,6 +344,7 @@ func LowTemperatureProfile() Profile {
 	p.Base = PresetLowTemp
 	p.Drift.RateNMPerMin = 0.1 / 60
 	p.Drift.RateSDNMPerMin = 0.05 / 60
+	lowTemperatureSession(&p)
 	return p
 }
 
@@ -437,6 +460,8 @@ func (p Profile) Validate() error {
 	if v.positiveUpTo("hybrid_band_nm", p.HybridBandNM, MaxAllowanceNM, "nm") && finite(p.FE.EdgeAllowanceNM) && p.HybridBandNM < p.FE.EdgeAllowanceNM {
 		v.add("hybrid_band_nm", p.HybridBandNM, fmt.Sprintf("must be at least fe.edge_allowance_nm (%s nm) so the FE fill stays inside the region", jsonfile.Number(p.FE.EdgeAllowanceNM)))
 	}
+
+	v.validateSession(p)
 
 	v.positiveUpTo("limits.max_bias_v", p.Limits.MaxBiasV, MaxBiasV, "V")
 	v.positiveUpTo("limits.max_current_a", p.Limits.MaxCurrentA, MaxCurrentA, "A")

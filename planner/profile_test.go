@@ -5,6 +5,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -131,7 +132,7 @@ func TestProfileSaveLoadRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got != p {
+	if !reflect.DeepEqual(got, p) {
 		t.Errorf("LoadProfile(SaveProfile(p)) = %+v\nwant %+v", got, p)
 	}
 	// No temporary file is left behind.

@@ -22,8 +22,10 @@ import (
 // The side panels. Each is a view of the session rebuilt by refresh;
 // every change it offers is a Session method, so it can be undone.
 
-// roleOf and modeOf name a role and a write mode as design's tables do.
-func roleOf(r design.Role) string { return r.Name() }
+// roleOf and modeOf name a role and a write mode as design's tables do;
+// a role with its file spelling where that differs ("contact pad
+// (pad)"), as the choice shows it next to what the design file says.
+func roleOf(r design.Role) string { return r.Label() }
 
 func modeOf(m design.Mode) string {
 	if m == "" {
@@ -219,7 +221,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			}
 		}
 	})
-	p.species = widget.NewSelect([]string{"none", "P (phosphine)", "As (arsine)"}, func(s string) {
+	p.species = widget.NewSelect([]string{dopantDefault, "P (phosphine)", "As (arsine)", dopantNone}, func(s string) {
 		if p.updating || p.shown < 0 {
 			return
 		}
@@ -229,6 +231,8 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			sp = "P"
 		case strings.HasPrefix(s, "As"):
 			sp = "As"
+		case s == dopantNone:
+			sp = design.NoDopant
 		}
 		showErr(p.msg, p.u.Session.SetRegionSpecies(p.shown, sp))
 	})
@@ -293,6 +297,15 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	p.content = container.NewBorder(top, nil, nil, nil, p.split)
 	return p
 }
+
+// The Dopant choices beside the species: the design's default dopant
+// (the region names none: its δ-layer takes the design's), and no dopant
+// (a region opened for another reason, written in the first step unless
+// the design file names another).
+const (
+	dopantDefault = "design default"
+	dopantNone    = "none (no dopant)"
+)
 
 // pickColour offers a colour for the selected region; the region keeps
 // it (it is saved with the design), whatever happens to the others.
@@ -388,8 +401,10 @@ func (p *regionsPanel) refresh() {
 		p.species.SetSelected("P (phosphine)")
 	case "As":
 		p.species.SetSelected("As (arsine)")
+	case design.NoDopant:
+		p.species.SetSelected(dopantNone)
 	default:
-		p.species.SetSelected("none")
+		p.species.SetSelected(dopantDefault)
 	}
 	tol := ""
 	if r.ToleranceNM > 0 {
@@ -567,6 +582,7 @@ type variantsPanel struct {
 	u       *UI
 	content fyne.CanvasObject
 	list    *widget.List
+	sweep   *sweepForm
 }
 
 func newVariantsPanel(u *UI) *variantsPanel {
@@ -598,9 +614,10 @@ func newVariantsPanel(u *UI) *variantsPanel {
 	cmp := widget.NewButtonWithIcon("Compare all variants…", theme.ListIcon(), u.compareVariants)
 	cmp.Importance = widget.HighImportance
 	help := mutedLabel("A variant is one layout alternative: duplicate one, change a gap or a window, then compare their write time and yield.")
+	p.sweep = newSweepForm(u)
 	p.content = container.NewBorder(
 		container.NewVBox(heading("Layout variants"), help),
-		container.NewVBox(container.NewGridWithColumns(3, dup, rename, del), cmp),
+		container.NewVBox(container.NewGridWithColumns(3, dup, rename, del), cmp, p.sweep.box),
 		nil, nil, p.list)
 	return p
 }
@@ -608,6 +625,7 @@ func newVariantsPanel(u *UI) *variantsPanel {
 func (p *variantsPanel) refresh() {
 	p.list.Refresh()
 	p.list.Select(p.u.Session.VariantIndex())
+	p.sweep.refresh()
 }
 
 func (u *UI) renameVariant(i int) {

@@ -27,23 +27,52 @@ var timeColours = map[planner.TimeKind]color.Color{
 	planner.TimeModeSwitch:   render.RGB(0x9b, 0x6c, 0xff),
 	planner.TimeRegistration: render.RGB(0xff, 0xd2, 0x3f),
 	planner.TimeVerification: render.RGB(0x1d, 0xd3, 0xb0),
+	// The session around the writing.
+	planner.TimeSurvey:        render.RGB(0x4c, 0x6e, 0xf5),
+	planner.TimeConditioning:  render.RGB(0xc0, 0x8b, 0x5c),
+	planner.TimeTipChange:     render.RGB(0xf0, 0x3e, 0x3e),
+	planner.TimeRepair:        render.RGB(0xae, 0x3e, 0xc9),
+	planner.TimeDocumentation: render.RGB(0x74, 0xb8, 0x16),
+	planner.TimeDose:          render.RGB(0x15, 0xaa, 0xbf),
+	planner.TimeAnneal:        render.RGB(0xd9, 0x48, 0x0f),
 }
 
 var colYield = render.RGB(0x51, 0xcf, 0x66)
 
-// formatProbability prints a probability as a percentage with three
-// significant digits, or in scientific notation when tiny.
+// formatProbability prints a probability as a percentage, always: three
+// significant digits ("61.1 %", "0.0312 %"), and below 0.001 % two
+// digits times a power of ten ("8.1·10⁻⁵ %"), so a yield table never mixes
+// raw probabilities ("8.1e-07") with percentages.
 func formatProbability(p float64) string {
+	pct := 100 * p
 	switch {
 	case math.IsNaN(p):
 		return "—"
 	case p == 0:
 		return "0 %"
-	case p < 1e-4:
-		return fmt.Sprintf("%.2g", p)
-	default:
-		return trimZeros(fmt.Sprintf("%.3g", 100*p)) + " %"
+	case pct >= 1e-3:
+		return trimZeros(fmt.Sprintf("%.3g", pct)) + " %"
 	}
+	e := int(math.Floor(math.Log10(pct)))
+	m := pct / math.Pow(10, float64(e))
+	if math.Round(m*10)/10 >= 10 { // 9.96 rounds to 10.0: one more power
+		m, e = m/10, e+1
+	}
+	return trimZeros(fmt.Sprintf("%.1f", m)) + "·10" + superscript(e) + " %"
+}
+
+// superscript writes n in superscript digits: -5 as ⁻⁵.
+func superscript(n int) string {
+	digits := []rune("⁰¹²³⁴⁵⁶⁷⁸⁹")
+	var b strings.Builder
+	if n < 0 {
+		b.WriteRune('⁻')
+		n = -n
+	}
+	for _, c := range fmt.Sprint(n) {
+		b.WriteRune(digits[c-'0'])
+	}
+	return b.String()
 }
 
 // breakdownBars returns the bars of a time breakdown.
@@ -96,7 +125,7 @@ func (p *planPanel) refresh() {
 	pl, stale := s.Plan()
 	var objs []fyne.CanvasObject
 	if pl == nil {
-		objs = append(objs, mutedLabel(fmt.Sprintf("Variant %s has not been planned yet. Plan (Ctrl+Enter) chooses the write modes, orders the strokes, splits the write into drift-safe segments and estimates the time and the dopant yield, in the background.", s.Variant().Name)))
+		objs = append(objs, mutedLabel(fmt.Sprintf("Variant %s has not been planned yet. Plan (Ctrl+Return) chooses the write modes, orders the strokes, splits the write into drift-safe segments and estimates the time and the dopant yield, in the background.", s.Variant().Name)))
 		p.body.Objects = objs
 		p.body.Refresh()
 		return
@@ -110,9 +139,10 @@ func (p *planPanel) refresh() {
 		objs = append(objs, warningLabel("The design or profile changed since this plan was made: plan again for current figures."))
 	}
 	objs = append(objs,
-		wrapLabel("Expected write time, variant "+pl.Variant),
+		wrapLabel("Session time (mean of the Monte Carlo on this plan), variant "+pl.Variant),
 		bigText(units.Duration(pl.TotalS)),
 		wrapLabel(fmt.Sprintf("Spread  P10 %s · P50 %s · P90 %s", units.Duration(pl.P10S), units.Duration(pl.P50S), units.Duration(pl.P90S))),
+		wrapLabel(fmt.Sprintf("Every stroke and coupled pair within tolerance: %s (sampled on this plan).", formatProbability(pl.PInTolerance))),
 	)
 	// What needs the user's attention comes before the details.
 	if f, fstale := s.Findings(); !fstale {
@@ -133,6 +163,14 @@ func (p *planPanel) refresh() {
 		widget.NewSeparator(),
 		heading("Time by kind"),
 		NewBarChart(breakdownBars(pl.Breakdown, pl.TotalS)),
+	)
+	if len(pl.Steps) > 0 {
+		objs = append(objs, widget.NewSeparator(), heading("Process steps"))
+		for i, st := range pl.Steps {
+			objs = append(objs, wrapLabel(stepLine(i, st)))
+		}
+	}
+	objs = append(objs,
 		widget.NewSeparator(),
 		heading("Dopant yield"),
 	)
@@ -176,7 +214,17 @@ func (p *planPanel) refresh() {
 		}
 	}
 	objs = append(objs, widget.NewSeparator(), heading("Segments and strokes"))
-	objs = append(objs, wrapLabel(fmt.Sprintf("%d drift-safe segments, %d strokes, %d tip actions. Profile: %s.", len(pl.Segments), len(pl.Strokes), len(pl.Actions), pl.Profile)))
+	local := 0
+	for _, g := range pl.Segments {
+		if g.Registration == planner.RegLocal {
+			local++
+		}
+	}
+	objs = append(objs, wrapLabel(fmt.Sprintf("%d drift-safe segments (%d registered on fiducials, %d on the lattice beside the work), %d strokes, %d tip actions. Profile: %s.",
+		len(pl.Segments), len(pl.Segments)-local, local, len(pl.Strokes), len(pl.Actions), pl.Profile)))
+	for _, c := range pl.Couplings {
+		objs = append(objs, wrapLabel(fmt.Sprintf("%s %s / %s ±%.2g nm: within tolerance %s.", c.Kind, c.A, c.B, c.ToleranceNM, formatProbability(c.PInTolerance))))
+	}
 	c := pl.Coverage
 	objs = append(objs, widget.NewSeparator(), heading("Coverage (exposure model)"))
 	cov := fmt.Sprintf("Passed: no site outside the regions clears with more than %s. Expected: %.3g of %d sites left with their H, %.3g stray sites cleared outside the regions.",
@@ -206,6 +254,19 @@ func (p *planPanel) refresh() {
 	objs = append(objs, widget.NewSeparator(), mutedLabel(planner.Caution))
 	p.body.Objects = objs
 	p.body.Refresh()
+}
+
+// stepLine describes one process step for the plan panel.
+func stepLine(i int, st planner.Step) string {
+	what := st.Note
+	if st.Kind == planner.StepLithography {
+		what = fmt.Sprintf("%d segment(s): %s", len(st.Segments), st.Note)
+	}
+	sp := ""
+	if st.Species != "" {
+		sp = " " + st.Species
+	}
+	return fmt.Sprintf("%d. %s%s at %s, %s: %s", i+1, st.Kind, sp, units.Duration(st.StartS), units.Duration(st.DurationS), what)
 }
 
 // yieldBars shows the distribution of the number of good windows around
