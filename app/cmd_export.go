@@ -130,7 +130,7 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	if st, err := os.Stat(fl.report.out); err == nil {
 		size = fmt.Sprintf(", %d bytes", st.Size())
 	}
-	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, expected %s%s)\n",
+	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, session %s on average%s)\n",
 		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), units.Duration(p.TotalS), size)
 	return coverageExit(env, "export", p)
 }

@@ -450,7 +450,7 @@ func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline
 			continue
 		}
 		dose := begin(StepDose, stw.species, "")
-		dose.Precursor, dose.ExposureL = Precursor(stw.species), prof.Process.Dose.ExposureL
+		dose.Precursor, dose.ExposureL = design.Precursor(stw.species), prof.Process.Dose.ExposureL
 		dose.Note = fmt.Sprintf("%s, %g L at %.2g Torr, then pump down", dose.Precursor, prof.Process.Dose.ExposureL, prof.Process.Dose.PressureTorr)
 		tl.add(Action{Kind: ActDose, From: at, To: at, DurationS: prof.Process.Dose.TimeS(), Note: "dose " + dose.Note + "; tip retracted"}, -1)
 		end(dose)

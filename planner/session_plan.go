@@ -41,23 +41,6 @@ type Step struct {
 	Note string
 }
 
-// Precursor returns the gas that delivers species: phosphine for P,
-// arsine for As, diborane for B (Škereň et al., Nat. Electron. 2020),
-// stibine for Sb; "<species> precursor" for any other.
-func Precursor(species string) string {
-	switch species {
-	case "P":
-		return "phosphine (PH3)"
-	case "As":
-		return "arsine (AsH3)"
-	case "B":
-		return "diborane (B2H6)"
-	case "Sb":
-		return "stibine (SbH3)"
-	}
-	return species + " precursor"
-}
-
 // CouplingKind says why two regions are coupled.
 type CouplingKind string
 

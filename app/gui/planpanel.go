@@ -205,9 +205,13 @@ func (p *planPanel) refresh() {
 			if w.P1SD > 0 {
 				p1 += " ± " + formatProbability(w.P1SD)
 			}
-			objs = append(objs, mutedLabel(fmt.Sprintf("%s window of %s at (%.1f, %.1f) nm: opened as drawn %s; p0 %s, p1 %s, p≥2 %s; good %s",
+			open := ""
+			if w.OpenS > 0 {
+				open = "; open " + units.Duration(w.OpenS) + " before its dose"
+			}
+			objs = append(objs, mutedLabel(fmt.Sprintf("%s window of %s at (%.1f, %.1f) nm: opened as drawn %s; p0 %s, p1 %s, p≥2 %s; good %s%s",
 				w.Template, w.Region, w.At.X, w.At.Y, formatProbability(w.OpenProbability), formatProbability(w.P0), p1,
-				formatProbability(w.P2Plus), formatProbability(w.Probability))))
+				formatProbability(w.P2Plus), formatProbability(w.Probability), open)))
 		}
 		if len(y.Distribution) > 1 {
 			objs = append(objs, NewBarChart(yieldBars(y)))
@@ -260,13 +264,13 @@ func (p *planPanel) refresh() {
 func stepLine(i int, st planner.Step) string {
 	what := st.Note
 	if st.Kind == planner.StepLithography {
-		what = fmt.Sprintf("%d segment(s): %s", len(st.Segments), st.Note)
+		what = fmt.Sprintf("%s: %s", plural(len(st.Segments), "segment"), st.Note)
 	}
 	sp := ""
 	if st.Species != "" {
 		sp = " " + st.Species
 	}
-	return fmt.Sprintf("%d. %s%s at %s, %s: %s", i+1, st.Kind, sp, units.Duration(st.StartS), units.Duration(st.DurationS), what)
+	return fmt.Sprintf("%d. %s%s, from %s for %s: %s", i+1, st.Kind, sp, units.Duration(st.StartS), units.Duration(st.DurationS), what)
 }
 
 // yieldBars shows the distribution of the number of good windows around
