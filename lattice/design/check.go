@@ -44,10 +44,15 @@ const (
 	RuleFloating = "floating"
 	// RuleTunnelGap: each declared tunnel gap is within its range.
 	RuleTunnelGap = "tunnel-gap"
+	// RuleSurfaceClearance: with a survey, dopant windows keep
+	// Rules.DefectWindowClearanceNM and other atomic-precision features
+	// Rules.DefectClearanceNM from the edge of every defect it found, and
+	// no atomic-precision feature crosses one of its step edges.
+	RuleSurfaceClearance = "surface-clearance"
 )
 
 // Rules lists the rule names in the order Check runs them.
-var RuleNames = []string{RuleWindow, RuleWindowSpacing, RuleFEKeepOut, RuleScanField, RuleFloating, RuleTunnelGap}
+var RuleNames = []string{RuleWindow, RuleWindowSpacing, RuleFEKeepOut, RuleScanField, RuleFloating, RuleTunnelGap, RuleSurfaceClearance}
 
 // MaxFindingsPerRule caps the findings one rule reports; a last finding
 // then says how many more there were.
@@ -107,6 +112,7 @@ func (l *Layout) Check() []Finding {
 	c.scanField()
 	c.floating()
 	c.tunnelGaps()
+	c.surfaceClearance()
 	return c.findings
 }
 
