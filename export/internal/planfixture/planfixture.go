@@ -455,14 +455,15 @@ func (b *builder) lithography(species string, segs [][]int) {
 func (b *builder) process(species string) {
 	b.p.Steps = append(b.p.Steps, planner.Step{Kind: planner.StepDose, Species: species, StartS: b.t,
 		Precursor: planner.Precursor(species), ExposureL: 2, Note: "dose"})
-	for i, w := range b.p.Windows {
-		if w.Species != species {
+	// Each window has been open since the end of its last stroke's
+	// action: one pass over the actions (a pass per window was
+	// quadratic, minutes for the large fixtures).
+	for _, a := range b.p.Actions {
+		if a.Stroke < 0 {
 			continue
 		}
-		for _, a := range b.p.Actions {
-			if a.Stroke >= 0 && b.p.Strokes[a.Stroke].Window == i {
-				b.p.Windows[i].OpenS = b.t - (a.StartS + a.DurationS)
-			}
+		if i := b.p.Strokes[a.Stroke].Window; i >= 0 && b.p.Windows[i].Species == species {
+			b.p.Windows[i].OpenS = b.t - (a.StartS + a.DurationS)
 		}
 	}
 	b.act(planner.Action{Kind: planner.ActDose, Segment: -1, Stroke: -1, From: b.at, To: b.at, DurationS: doseS, Note: "dose " + species})
