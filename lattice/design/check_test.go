@@ -147,7 +147,9 @@ var surveyOffset = [2]float64{880, 880}
 
 // surveyPoint returns the survey-frame point of field point (x, y) for a
 // survey added by addSurvey (turned by 0°).
-func surveyPoint(x, y float64) [2]float64 { return [2]float64{x - surveyOffset[0], y - surveyOffset[1]} }
+func surveyPoint(x, y float64) [2]float64 {
+	return [2]float64{x - surveyOffset[0], y - surveyOffset[1]}
+}
 
 // addSurvey gives d a 240 x 240 nm survey over the device with the given
 // defects, their positions given in field nm.
