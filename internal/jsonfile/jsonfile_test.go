@@ -227,9 +227,11 @@ func TestQuote(t *testing.T) {
 		{strings.Repeat("ü", 50), `"` + strings.Repeat("ü", 20) + `…"`},
 	}
 	for _, c := range cases {
-		if got := Quote(c.v); got != c.want {
-			t.Errorf("Quote(%v) = %s, want %s", c.v, got, c.want)
-		}
+		t.Run(c.want, func(t *testing.T) {
+			if got := Quote(c.v); got != c.want {
+				t.Errorf("Quote(%v) = %s, want %s", c.v, got, c.want)
+			}
+		})
 	}
 }
 
@@ -267,10 +269,12 @@ func TestTopString(t *testing.T) {
 		{`{"form\u0061t": "escaped"}`, "escaped", true},
 	}
 	for _, c := range cases {
-		got, ok := TopString([]byte(c.in), "format")
-		if got != c.want || ok != c.ok {
-			t.Errorf("TopString(%s) = %q, %v; want %q, %v", c.in, got, ok, c.want, c.ok)
-		}
+		t.Run(c.in, func(t *testing.T) {
+			got, ok := TopString([]byte(c.in), "format")
+			if got != c.want || ok != c.ok {
+				t.Errorf("TopString(%s) = %q, %v; want %q, %v", c.in, got, ok, c.want, c.ok)
+			}
+		})
 	}
 }
 
@@ -348,10 +352,15 @@ func TestWriterLayout(t *testing.T) {
 }
 
 func TestBytes(t *testing.T) {
-	for n, want := range map[int64]string{812: "812 bytes", 64 << 20: "64 MiB", 1<<30 - 18: "1 GiB", 3 << 29: "1.5 GiB", 1 << 20: "1 MiB", 1536: "1.5 KiB"} {
-		if got := Bytes(n); got != want {
-			t.Errorf("Bytes(%d) = %q, want %q", n, got, want)
-		}
+	for _, c := range []struct {
+		n    int64
+		want string
+	}{{812, "812 bytes"}, {1536, "1.5 KiB"}, {1 << 20, "1 MiB"}, {64 << 20, "64 MiB"}, {1<<30 - 18, "1 GiB"}, {3 << 29, "1.5 GiB"}} {
+		t.Run(c.want, func(t *testing.T) {
+			if got := Bytes(c.n); got != c.want {
+				t.Errorf("Bytes(%d) = %q, want %q", c.n, got, c.want)
+			}
+		})
 	}
 }
 
