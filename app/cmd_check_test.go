@@ -74,8 +74,8 @@ func TestInfoCommand(t *testing.T) {
 		"F-east at (1700, 1000) nm",
 		"P: P, 3 dimers (6 H sites), single-donor probability 0.63",
 		"Variant gap-12-source",
-		"sensor-island    device         AP    -        ±0.20 nm   1560",
-		"pad-source       contact pad    FE",
+		"sensor-island    device                 AP    -        ±0.20 nm   1560",
+		"pad-source       contact pad (pad)      FE",
 		"tunnel gap sensor-island – source-lead: 9.22 nm (12.0 dimer rows across the rows)",
 	} {
 		if !strings.Contains(out, w) {

@@ -137,7 +137,7 @@ func printInfo(w io.Writer, file string, d *design.Design, variant string) error
 			if !rl.Bounds.IsEmpty() {
 				box = rectString(rl.Bounds)
 			}
-			fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t±%.2f nm\t%d\t%d\t%s\n", r.Name, r.Role.Name(), r.EffectiveMode().Abbrev(), species, rl.ToleranceNM, rl.Sites.Count(), len(rl.Windows), box)
+			fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t±%.2f nm\t%d\t%d\t%s\n", r.Name, r.Role.Label(), r.EffectiveMode().Abbrev(), species, rl.ToleranceNM, rl.Sites.Count(), len(rl.Windows), box)
 			total += rl.Sites.Count()
 			windows += len(rl.Windows)
 		}

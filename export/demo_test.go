@@ -196,7 +196,7 @@ func TestDemoPDFListsStrokesInCSVOrder(t *testing.T) {
 	if strings.Contains(text, "…") {
 		t.Error("the PDF cuts a list short with an ellipsis")
 	}
-	start := strings.Index(text, "Strokes in writing order")
+	start := strings.Index(text, "Every action, in order")
 	if start < 0 {
 		t.Fatal("the PDF has no stroke list")
 	}
@@ -222,6 +222,13 @@ func TestDemoPDFListsStrokesInCSVOrder(t *testing.T) {
 	for s := 1; s <= len(p.Segments); s++ {
 		if !slices.Equal(got[s], want[s]) {
 			t.Errorf("segment %d: the PDF lists %d strokes %v,\nthe CSV writes %d: %v", s, len(got[s]), got[s], len(want[s]), want[s])
+		}
+	}
+	// The tip conditions print the AP line width as dimerpath plan does
+	// (issue 13: 0.999 nm on paper, 1.00 nm on the command line).
+	for _, l := range strings.Split(text, "\n") {
+		if strings.Contains(l, "AP (atomic precision), lines") && !strings.Contains(l, " 1.00 ") {
+			t.Errorf("conditions row %q: want the line width 1.00", strings.Join(strings.Fields(l), " "))
 		}
 	}
 	// And the segment table names each segment's numbers in full.

@@ -51,6 +51,11 @@ func nanoAmps(a float64) string { return sig(a*1e9, 3) }
 // milliCoulombPerCm formats a line dose given in C/cm as mC/cm.
 func milliCoulombPerCm(d float64) string { return sig(d*1e3, 3) }
 
+// nm2 prints a width in nm to 0.01 nm, as dimerpath plan prints the
+// line widths and the FE pitch ("1.00": the default AP line is 0.999 nm
+// wide, which the PDF once printed while the command line said 1.00).
+func nm2(v float64) string { return strings.Replace(strconv.FormatFloat(v, 'f', 2, 64), "-", "−", 1) }
+
 // nm1 formats a length in nm with one decimal.
 func nm1(v float64) string { return strings.Replace(strconv.FormatFloat(v, 'f', 1, 64), "-", "−", 1) }
 

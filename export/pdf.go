@@ -176,14 +176,14 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		}
 		pitch := "–"
 		if cd.PitchNM > 0 {
-			pitch = sig(cd.PitchNM, 3)
+			pitch = nm2(cd.PitchNM)
 		}
 		name := cd.Mode.Label()
 		if cd.Kind != "" {
 			name += ", " + plural(kindNoun(cd.Kind), 2)
 		}
 		t.row(name, signedV(cd.BiasV), nanoAmps(cd.CurrentA), milliCoulombPerCm(cd.LineDoseCPerCm),
-			sig(cd.SpeedNMPerS, 4), sig(cd.LineWidthNM, 3), strconv.Itoa(cd.Passes), pitch)
+			sig(cd.SpeedNMPerS, 4), nm2(cd.LineWidthNM), strconv.Itoa(cd.Passes), pitch)
 	}
 	if !hasDwell {
 		// An older plan without dwell conditions: take them from the actions.

@@ -113,3 +113,87 @@ func TestNewRegionTakesItsRoleFromTheTool(t *testing.T) {
 		t.Errorf("NewRegionName(lead) = %q, want lead 2", got)
 	}
 }
+
+// Issue 13: the Terrace tool refused a first click on the field edge
+// only at Enter, losing every point, and nothing snapped to the border,
+// leaving thin strips of the old terrace along the edges.
+func TestTerraceOutlineSnapsToTheFieldEdge(t *testing.T) {
+	s := editortest.Tiny(t)
+	s.SetTool(editor.ToolTerrace)
+	near := 2.0
+	for _, p := range []r2.Point{{X: 201, Y: 50}, {X: 120, Y: 50}, {X: 120.004, Y: 199}, {X: 199.2, Y: 200.7}} {
+		s.Click(p, near)
+		if s.Err != nil {
+			t.Fatalf("click at %v refused: %v", p, s.Err)
+		}
+	}
+	if err := s.FinishPath(); err != nil {
+		t.Fatal(err)
+	}
+	ts := s.Design().Terraces
+	got := ts[len(ts)-1].Boundary
+	want := [][2]float64{{200, 50}, {120, 50}, {120, 200}, {200, 200}}
+	if len(got) != len(want) {
+		t.Fatalf("outline %v, want %v", got, want)
+	}
+	for i := range want {
+		if got[i] != want[i] {
+			t.Errorf("outline point %d at %v, want %v (on the field's border)", i, got[i], want[i])
+		}
+	}
+	// A path that cannot be finished keeps its points.
+	s.SetTool(editor.ToolPolygon)
+	s.Click(r2.Point{X: 30, Y: 30}, near)
+	s.Click(r2.Point{X: 60, Y: 30}, near)
+	if err := s.FinishPath(); err == nil || !s.Drawing() {
+		t.Errorf("a 2-vertex polygon: error %v, still drawing %v; want an error and the points kept", err, s.Drawing())
+	}
+	s.Click(r2.Point{X: 45, Y: 60}, near)
+	if err := s.FinishPath(); err != nil {
+		t.Errorf("the polygon with a third vertex: %v", err)
+	}
+}
+
+// Issue 13: the Array tool showed nothing before the click. Hovering
+// shows the array a click would place: its extent and each element,
+// where the click then puts them.
+func TestArrayToolPreviewsBeforeTheClick(t *testing.T) {
+	s := editortest.Tiny(t)
+	s.Select()
+	s.SetTool(editor.ToolArray)
+	o := s.Opts
+	o.ArrayOf, o.ArrayCols, o.ArrayRows, o.ArrayPitchDimers, o.ArrayPitchRows = "window", 3, 2, 6, 3
+	if err := s.SetOptions(o); err != nil {
+		t.Fatal(err)
+	}
+	at := r2.Point{X: 150.1, Y: 40.2}
+	if s.Preview() != nil {
+		t.Fatal("a preview before the pointer is over the lattice")
+	}
+	s.Hover(at)
+	pv := s.Preview()
+	if pv == nil || !pv.Rect || len(pv.Cells) != 6 {
+		t.Fatalf("preview %+v, want the extent and 6 elements", pv)
+	}
+	s.Click(at, 1)
+	v := s.Variant()
+	sites := s.RegionSites(len(v.Regions) - 1)
+	ext := pv.Points
+	box := r2.RectFromPoints(ext[0], ext[1]).ExpandedByMargin(1e-6)
+	for site := range sites.All() {
+		q := s.Surface().Position(site)
+		if !box.ContainsPoint(q) {
+			t.Fatalf("the array writes site %v at %v outside the previewed extent %v", site, q, box)
+		}
+		in := false
+		for _, c := range pv.Cells {
+			in = in || c.ExpandedByMargin(1e-6).ContainsPoint(q)
+		}
+		if !in {
+			t.Fatalf("site %v at %v lies in no previewed element", site, q)
+		}
+	}
+	if n := sites.Count(); n != 6*6 {
+		t.Errorf("the array wrote %d sites, want 6 windows of 6", n)
+	}
+}

@@ -45,6 +45,7 @@ type Session struct {
 
 	gesture *gesture
 	hoverAt hoverState
+	near    float64 // the last click's snapping distance, nm, for previews
 
 	plan        *planner.Plan
 	planVariant string

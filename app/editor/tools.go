@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 
+	"github.com/golang/geo/r1"
 	"github.com/golang/geo/r2"
 
 	"dimerpath/app/render"
@@ -184,6 +185,8 @@ func (s *Session) Hover(p r2.Point) {
 		s.notify(ChangePreview) // the rubber band to the pointer
 	case s.Opts.BrushNM > 0 && (s.Tool == ToolSite || s.Tool == ToolDimer || s.Tool == ToolEraser):
 		s.notify(ChangePreview) // the brush outline
+	case s.Tool == ToolArray:
+		s.notify(ChangePreview) // the array a click would place
 	}
 }
 
@@ -300,6 +303,7 @@ func (s *Session) Release(p r2.Point) {
 // close (nm) a click must be to a path's first or last vertex to close
 // or end it.
 func (s *Session) Click(p r2.Point, near float64) {
+	s.near = near
 	switch s.Tool {
 	case ToolSite, ToolDimer, ToolEraser:
 		s.Press(p)
@@ -335,12 +339,18 @@ func (s *Session) Click(p r2.Point, near float64) {
 	case ToolPolygon, ToolLine, ToolTerrace:
 		q := s.snapDimerCentre(p)
 		if s.Tool == ToolTerrace {
-			q = r2.Point{X: round2(p.X), Y: round2(p.Y)}
+			q = s.snapToFieldEdge(p, near)
 		}
 		g := s.gesture
 		if g == nil || g.tool != s.Tool {
 			g = &gesture{tool: s.Tool}
 			s.gesture = g
+		}
+		if s.Tool == ToolTerrace && len(g.points) == 0 && s.terraceUnder(q) < 0 {
+			// Refused now, not after the outline is done.
+			s.Err = fmt.Errorf("a terrace outline starts on the terrace it steps from: (%.2f, %.2f) nm is on none", q.X, q.Y)
+			s.notify(ChangePreview)
+			return
 		}
 		if n := len(g.points); n > 0 {
 			closing := s.Tool != ToolLine && n >= 3 && p.Sub(g.points[0]).Norm() <= near
@@ -366,20 +376,26 @@ func (s *Session) FinishPath() error {
 	}
 	s.gesture = nil
 	defer s.notify(ChangePreview)
+	// A path that cannot be finished keeps its points, to add to or Esc.
+	keep := func(err error) error {
+		s.gesture = g
+		return err
+	}
 	switch g.tool {
 	case ToolPolygon:
 		if len(g.points) < 3 {
-			return errors.New("a polygon needs at least 3 vertices")
+			return keep(errors.New("a polygon needs at least 3 vertices"))
 		}
 		s.addShape(design.Shape{Kind: design.ShapePolygon, Points: pts(g.points...)}, "polygon")
 	case ToolLine:
 		if len(g.points) < 2 {
-			return errors.New("a line needs at least 2 vertices")
+			return keep(errors.New("a line needs at least 2 vertices"))
 		}
 		s.addShape(design.Shape{Kind: design.ShapePolyline, Points: pts(g.points...), WidthNM: s.Opts.LineWidthNM}, "line")
 	case ToolTerrace:
-		_, err := s.AddTerrace(g.points)
-		return err
+		if _, err := s.AddTerrace(g.points); err != nil {
+			return keep(err)
+		}
 	}
 	return nil
 }
@@ -618,6 +634,36 @@ func (s *Session) terraceFor(a, b r2.Point) int {
 	return ti
 }
 
+// snapToFieldEdge returns p for a terrace outline: on the field's border
+// when it lies within near nm of it or beyond it (so an outline drawn to
+// the edge leaves no strip of the old terrace along it), rounded to
+// 0.01 nm.
+func (s *Session) snapToFieldEdge(p r2.Point, near float64) r2.Point {
+	f := s.surf.Field
+	snap := func(v, lo, hi float64) float64 {
+		switch {
+		case v <= lo+near:
+			return lo
+		case v >= hi-near:
+			return hi
+		}
+		return round2(v)
+	}
+	return r2.Point{X: snap(p.X, f.X.Lo, f.X.Hi), Y: snap(p.Y, f.Y.Lo, f.Y.Hi)}
+}
+
+// terraceUnder returns the terrace under p, looking a hair inside the
+// field for a point on its border, or -1.
+func (s *Session) terraceUnder(p r2.Point) int {
+	if t := s.surf.TerraceAt(p); t >= 0 {
+		return t
+	}
+	const hair = 0.01 // nm
+	f := s.surf.Field
+	q := r2.Point{X: min(max(p.X, f.X.Lo+hair), f.X.Hi-hair), Y: min(max(p.Y, f.Y.Lo+hair), f.Y.Hi-hair)}
+	return s.surf.TerraceAt(q)
+}
+
 // Preview returns the shape the current tool is drawing, or the brush
 // outline under the pointer, or nil.
 func (s *Session) Preview() *render.Preview {
@@ -638,7 +684,7 @@ func (s *Session) Preview() *render.Preview {
 			if s.hoverAt.ok {
 				q := s.snapDimerCentre(s.hoverAt.at)
 				if g.tool == ToolTerrace {
-					q = s.hoverAt.at
+					q = s.snapToFieldEdge(s.hoverAt.at, s.near)
 				}
 				p.Points = append(p.Points, q)
 			}
@@ -654,6 +700,56 @@ func (s *Session) Preview() *render.Preview {
 		if s.hoverAt.ok && s.Opts.BrushNM > 0 {
 			return &render.Preview{Points: []r2.Point{s.hoverAt.at}, BrushNM: s.Opts.BrushNM}
 		}
+	case ToolArray:
+		if s.hoverAt.ok {
+			return s.arrayPreview(s.hoverAt.at)
+		}
 	}
 	return nil
+}
+
+// maxPreviewCells bounds the elements an array preview fills; a larger
+// array shows its extent alone.
+const maxPreviewCells = 4096
+
+// arrayPreview is what a click of the Array tool at p would place: the
+// extent of the array and, up to maxPreviewCells, each element's cells
+// (whole dimers of one row, or one site's half of a dimer), snapped as
+// the click snaps them.
+func (s *Session) arrayPreview(p r2.Point) *render.Preview {
+	o := s.Opts
+	at := s.snapDimerCentre(p)
+	if o.ArrayOf == "site" {
+		at = s.snapSite(p)
+	}
+	t := s.surf.TerraceAt(at)
+	if t < 0 {
+		return nil
+	}
+	f := s.surf.Frame(t)
+	a0, c0 := f.ToLocal(at)
+	halfAlong, halfAcross := lattice.DimerPitch/2, lattice.RowSpacing/2
+	if o.ArrayOf == "window" {
+		if tpl, ok := TemplateOf(s.d, o.Template); ok {
+			halfAlong = float64(tpl.Dimers) * lattice.DimerPitch / 2
+		}
+	}
+	if o.ArrayOf == "site" {
+		halfAcross = lattice.RowSpacing / 4
+	}
+	cell := func(i, j int) r2.Rect {
+		a := a0 + float64(i*o.ArrayPitchDimers)*lattice.DimerPitch
+		c := c0 + float64(j*o.ArrayPitchRows)*lattice.RowSpacing
+		return f.FieldRect(r1.Interval{Lo: a - halfAlong, Hi: a + halfAlong}, r1.Interval{Lo: c - halfAcross, Hi: c + halfAcross})
+	}
+	ext := cell(0, 0).Union(cell(o.ArrayCols-1, o.ArrayRows-1))
+	pv := &render.Preview{Points: []r2.Point{ext.Lo(), ext.Hi()}, Rect: true}
+	if o.ArrayCols*o.ArrayRows <= maxPreviewCells {
+		for j := range o.ArrayRows {
+			for i := range o.ArrayCols {
+				pv.Cells = append(pv.Cells, cell(i, j))
+			}
+		}
+	}
+	return pv
 }

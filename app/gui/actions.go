@@ -33,9 +33,25 @@ func (u *UI) showProgress(msg string, f float64) {
 	u.progressMsg.SetText(msg)
 	u.progress.SetValue(f)
 	u.progressBox.Show()
+	u.refreshBusy()
 }
 
-func (u *UI) hideProgress() { u.progressBox.Hide() }
+func (u *UI) hideProgress() {
+	u.progressBox.Hide()
+	u.refreshBusy()
+}
+
+// refreshBusy enables Plan > Cancel planning while a plan or comparison
+// runs, and only then.
+func (u *UI) refreshBusy() {
+	if u.cancelItem == nil || u.cancelItem.Disabled == !u.Busy() {
+		return
+	}
+	u.cancelItem.Disabled = !u.Busy()
+	if u.menu != nil {
+		u.menu.Refresh()
+	}
+}
 
 // Busy reports whether a plan or comparison is running.
 func (u *UI) Busy() bool { return u.planCancel != nil }
@@ -410,7 +426,7 @@ func (u *UI) showComparison(res []export.VariantResult, rules []string) {
 	content := container.NewScroll(comparisonView(res, rules))
 	var d *dialog.CustomDialog
 	report := widget.NewButtonWithIcon("Export report…", theme.DocumentPrintIcon(), func() {
-		u.withCaution("the comparison report", func(es editor.ExportSettings) {
+		u.withCaution("the comparison report", "report", func(es editor.ExportSettings) {
 			u.chooseFile(safeFileName(u.Session.Design().Name)+"-variants.pdf", []string{".pdf", ".svg"}, func(path string) {
 				u.exportComparisonTo(path, res, es)
 			})

@@ -22,8 +22,10 @@ import (
 // The side panels. Each is a view of the session rebuilt by refresh;
 // every change it offers is a Session method, so it can be undone.
 
-// roleOf and modeOf name a role and a write mode as design's tables do.
-func roleOf(r design.Role) string { return r.Name() }
+// roleOf and modeOf name a role and a write mode as design's tables do;
+// a role with its file spelling where that differs ("contact pad
+// (pad)"), as the choice shows it next to what the design file says.
+func roleOf(r design.Role) string { return r.Label() }
 
 func modeOf(m design.Mode) string {
 	if m == "" {

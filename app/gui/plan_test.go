@@ -124,3 +124,25 @@ type exportResult = export.VariantResult
 var errPlanTest = errors.New("refused: fe.bias_v beyond the limit")
 
 func widgetRenderer(w fyne.Widget) fyne.WidgetRenderer { return test.WidgetRenderer(w) }
+
+// Issue 13: the yield rows mixed raw probabilities ("8.1e-07") with
+// percentages; every probability is a percentage.
+func TestProbabilitiesArePercentages(t *testing.T) {
+	for _, c := range []struct {
+		p    float64
+		want string
+	}{
+		{0.611, "61.1 %"},
+		{0.0111, "1.11 %"},
+		{3.12e-4, "0.0312 %"},
+		{1e-5, "0.001 %"},
+		{8.1e-7, "8.1·10⁻⁵ %"},
+		{9.96e-9, "1·10⁻⁶ %"},
+		{2.5e-20, "2.5·10⁻¹⁸ %"},
+		{0, "0 %"},
+	} {
+		if got := formatProbability(c.p); got != c.want {
+			t.Errorf("formatProbability(%g) = %q, want %q", c.p, got, c.want)
+		}
+	}
+}

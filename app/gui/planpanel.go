@@ -39,19 +39,40 @@ var timeColours = map[planner.TimeKind]color.Color{
 
 var colYield = render.RGB(0x51, 0xcf, 0x66)
 
-// formatProbability prints a probability as a percentage with three
-// significant digits, or in scientific notation when tiny.
+// formatProbability prints a probability as a percentage, always: three
+// significant digits ("61.1 %", "0.0312 %"), and below 0.001 % two
+// digits times a power of ten ("8.1·10⁻⁵ %"), so a yield table never mixes
+// raw probabilities ("8.1e-07") with percentages.
 func formatProbability(p float64) string {
+	pct := 100 * p
 	switch {
 	case math.IsNaN(p):
 		return "—"
 	case p == 0:
 		return "0 %"
-	case p < 1e-4:
-		return fmt.Sprintf("%.2g", p)
-	default:
-		return trimZeros(fmt.Sprintf("%.3g", 100*p)) + " %"
+	case pct >= 1e-3:
+		return trimZeros(fmt.Sprintf("%.3g", pct)) + " %"
 	}
+	e := int(math.Floor(math.Log10(pct)))
+	m := pct / math.Pow(10, float64(e))
+	if math.Round(m*10)/10 >= 10 { // 9.96 rounds to 10.0: one more power
+		m, e = m/10, e+1
+	}
+	return trimZeros(fmt.Sprintf("%.1f", m)) + "·10" + superscript(e) + " %"
+}
+
+// superscript writes n in superscript digits: -5 as ⁻⁵.
+func superscript(n int) string {
+	digits := []rune("⁰¹²³⁴⁵⁶⁷⁸⁹")
+	var b strings.Builder
+	if n < 0 {
+		b.WriteRune('⁻')
+		n = -n
+	}
+	for _, c := range fmt.Sprint(n) {
+		b.WriteRune(digits[c-'0'])
+	}
+	return b.String()
 }
 
 // breakdownBars returns the bars of a time breakdown.
@@ -104,7 +125,7 @@ func (p *planPanel) refresh() {
 	pl, stale := s.Plan()
 	var objs []fyne.CanvasObject
 	if pl == nil {
-		objs = append(objs, mutedLabel(fmt.Sprintf("Variant %s has not been planned yet. Plan (Ctrl+Enter) chooses the write modes, orders the strokes, splits the write into drift-safe segments and estimates the time and the dopant yield, in the background.", s.Variant().Name)))
+		objs = append(objs, mutedLabel(fmt.Sprintf("Variant %s has not been planned yet. Plan (Ctrl+Return) chooses the write modes, orders the strokes, splits the write into drift-safe segments and estimates the time and the dopant yield, in the background.", s.Variant().Name)))
 		p.body.Objects = objs
 		p.body.Refresh()
 		return

@@ -3,6 +3,7 @@ package gui
 import (
 	"errors"
 	"fmt"
+	"math"
 	"strconv"
 	"strings"
 
@@ -92,12 +93,27 @@ func profileFields() []profileField {
 	return fs
 }
 
-// formatField prints a stored value in the field's display unit.
+// formatField prints a stored value in the field's display unit, to
+// four significant digits (a threshold of 0.0067668 mC/cm shows as
+// 0.006767, not 0.00676676); a field left as shown keeps the exact value
+// (profileEditor.parse).
 func formatField(f profileField, p *planner.Profile) string {
 	if f.i != nil {
 		return strconv.Itoa(*f.i(p))
 	}
-	return strconv.FormatFloat(*f.f(p)*f.scale, 'g', 6, 64)
+	return sigDigits(*f.f(p)*f.scale, 4)
+}
+
+// sigDigits prints v to n significant digits (more for numbers of more
+// whole digits than n, which keep them all), in plain decimals from
+// 0.001 to a million and with an exponent beyond.
+func sigDigits(v float64, n int) string {
+	a := math.Abs(v)
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) || a < 1e-3 || a >= 1e6 {
+		return strconv.FormatFloat(v, 'g', n, 64)
+	}
+	decimals := max(0, n-1-int(math.Floor(math.Log10(a))))
+	return trimZeros(strconv.FormatFloat(v, 'f', decimals, 64))
 }
 
 // profileEditor is the editor's state: one entry per field over a copy
@@ -271,9 +287,9 @@ func (e *profileEditor) explain(err error) error {
 	}
 	shown := func(path string, v float64) string {
 		if f, ok := byPath[path]; ok && f.scale != 0 {
-			return strconv.FormatFloat(v*f.scale, 'g', 6, 64)
+			return sigDigits(v*f.scale, 4)
 		}
-		return strconv.FormatFloat(v, 'g', 6, 64)
+		return sigDigits(v, 4)
 	}
 	if pe, ok := errors.AsType[*jsonfile.Error](err); ok {
 		var lines []string

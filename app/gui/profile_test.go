@@ -73,3 +73,24 @@ func TestProfilePresetFillsEditor(t *testing.T) {
 		t.Errorf("applied %+v, want the low-temperature preset", u.Session.Profile.Drift)
 	}
 }
+
+// Issue 13: the profile dialog showed a threshold as "0.00676676";
+// values show four significant digits, and a field left alone keeps its
+// exact value when applied.
+func TestProfileShowsSignificantDigits(t *testing.T) {
+	for _, c := range []struct {
+		v    float64
+		want string
+	}{
+		{0.05 / math.Exp(2), "0.006767"},
+		{2, "2"},
+		{0.999, "0.999"},
+		{2000, "2000"},
+		{1.5e-9, "1.5e-09"},
+		{12345.6, "12346"}, // whole digits are never dropped
+	} {
+		if got := sigDigits(c.v, 4); got != c.want {
+			t.Errorf("sigDigits(%g) = %q, want %q", c.v, got, c.want)
+		}
+	}
+}
