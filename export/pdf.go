@@ -32,6 +32,7 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 		return err
 	}
 	sc := newScene(p, opt.Pattern)
+	sc.summary = true // on paper, a huge plan is summarised (bigplan.go)
 	header := fmt.Sprintf("dimerpath write plan · variant %s · %s", p.Variant, p.Design)
 	d := newPDFDoc(opt.Paper, header, opt, fmt.Sprintf("Write plan: %s, variant %s", p.Design, p.Variant))
 
@@ -390,8 +391,13 @@ func pdfOverview(d *pdfDoc, sc *scene, win r2.Rect, title string) {
 		what = fmt.Sprintf("x %s to %s nm, y %s to %s nm of the %s × %s nm field.", nm1(win.X.Lo), nm1(win.X.Hi), nm1(win.Y.Lo), nm1(win.Y.Hi),
 			sig(p.FieldWidthNM, 6), sig(p.FieldHeightNM, 6))
 	}
-	d.para(what+fmt.Sprintf(" %s strokes in %s segments; the number at each segment marks where its first stroke starts. "+
-		"Moves are drawn straight from point to point.", thousands(len(p.Strokes)), thousands(len(p.Segments))), font{size: 7.5, grey: 0.25})
+	moves := " Moves are drawn straight from point to point."
+	marks := "the number at each segment marks where its first stroke starts."
+	if sc.summarised() {
+		moves = summaryNote(sc)
+		marks = fmt.Sprintf("segments 1, %d, %d, … (every %s) are numbered where their first stroke starts.", sc.segmentLabelStep()+1, 2*sc.segmentLabelStep()+1, ordinal(sc.segmentLabelStep()))
+	}
+	d.para(what+fmt.Sprintf(" %s strokes in %s segments; %s%s", thousands(len(p.Strokes)), thousands(len(p.Segments)), marks, moves), font{size: 7.5, grey: 0.25})
 }
 
 // insideField shifts win, where it is smaller than the field, so that it
@@ -472,7 +478,40 @@ func segmentNumbers(s *planner.Segment, numbers []int) []int {
 	return out
 }
 
+// segmentTable is the segments of one lithography step, printed as one
+// table under its title.
+type segmentTable struct {
+	title string
+	segs  []int
+}
+
+// segmentTables returns one table per lithography step (a plan without
+// steps: one table of every segment, untitled).
+func segmentTables(p *planner.Plan) []segmentTable {
+	var groups []segmentTable
+	for i, st := range p.Steps {
+		if st.Kind == planner.StepLithography && len(st.Segments) > 0 {
+			title := fmt.Sprintf("Step %d: lithography %s", i+1, st.Species)
+			if st.Species == "" {
+				title = fmt.Sprintf("Step %d: lithography", i+1)
+			}
+			groups = append(groups, segmentTable{title, st.Segments})
+		}
+	}
+	if len(groups) == 0 {
+		all := make([]int, len(p.Segments))
+		for i := range all {
+			all[i] = i
+		}
+		groups = []segmentTable{{"", all}}
+	}
+	return groups
+}
+
 func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int) error {
+	if len(p.Segments) > maxSegmentRows {
+		return pdfSegmentRanges(ctx, d, p, numbers)
+	}
 	d.page()
 	d.heading("Segments", 0)
 	d.para("Write the segments in order, one table per lithography step. For each: register (coarse: move to the fiducial, image it "+
@@ -492,30 +531,8 @@ func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int)
 			b[0], b[1] = min(b[0], i), max(b[1], i+1)
 		}
 	}
-	// One table per lithography step (plans without steps: one table).
-	type group struct {
-		title string
-		segs  []int
-	}
-	var groups []group
-	for i, st := range p.Steps {
-		if st.Kind == planner.StepLithography && len(st.Segments) > 0 {
-			title := fmt.Sprintf("Step %d: lithography %s", i+1, st.Species)
-			if st.Species == "" {
-				title = fmt.Sprintf("Step %d: lithography", i+1)
-			}
-			groups = append(groups, group{title, st.Segments})
-		}
-	}
-	if len(groups) == 0 {
-		all := make([]int, len(p.Segments))
-		for i := range all {
-			all[i] = i
-		}
-		groups = []group{{"", all}}
-	}
 	f := font{size: 7.5}
-	for _, g := range groups {
+	for _, g := range segmentTables(p) {
 		if g.title != "" {
 			d.heading(g.title, 30)
 		}

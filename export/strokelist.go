@@ -22,6 +22,10 @@ func pdfStrokeList(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []in
 	if len(p.Strokes) == 0 {
 		return nil
 	}
+	if len(p.Strokes) > maxListedStrokes {
+		pdfStrokeListSummary(d, p)
+		return nil
+	}
 	d.heading("Every action, in order", 20)
 	d.para("Every action of the session, in order, with a box to tick: the process actions between the lithography, and for each "+
 		"segment its registration, the conditions where a row gives them, then each stroke: move to its start and write it towards its end. "+

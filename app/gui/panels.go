@@ -582,6 +582,7 @@ type variantsPanel struct {
 	u       *UI
 	content fyne.CanvasObject
 	list    *widget.List
+	sweep   *sweepForm
 }
 
 func newVariantsPanel(u *UI) *variantsPanel {
@@ -613,9 +614,10 @@ func newVariantsPanel(u *UI) *variantsPanel {
 	cmp := widget.NewButtonWithIcon("Compare all variants…", theme.ListIcon(), u.compareVariants)
 	cmp.Importance = widget.HighImportance
 	help := mutedLabel("A variant is one layout alternative: duplicate one, change a gap or a window, then compare their write time and yield.")
+	p.sweep = newSweepForm(u)
 	p.content = container.NewBorder(
 		container.NewVBox(heading("Layout variants"), help),
-		container.NewVBox(container.NewGridWithColumns(3, dup, rename, del), cmp),
+		container.NewVBox(container.NewGridWithColumns(3, dup, rename, del), cmp, p.sweep.box),
 		nil, nil, p.list)
 	return p
 }
@@ -623,6 +625,7 @@ func newVariantsPanel(u *UI) *variantsPanel {
 func (p *variantsPanel) refresh() {
 	p.list.Refresh()
 	p.list.Select(p.u.Session.VariantIndex())
+	p.sweep.refresh()
 }
 
 func (u *UI) renameVariant(i int) {

@@ -455,22 +455,15 @@ func (b *builder) lithography(species string, segs [][]int) {
 func (b *builder) process(species string) {
 	b.p.Steps = append(b.p.Steps, planner.Step{Kind: planner.StepDose, Species: species, StartS: b.t,
 		Precursor: planner.Precursor(species), ExposureL: 2, Note: "dose"})
-	// Each window stays open from the end of its last action to the dose:
-	// those ends in one pass over the actions (a pass per window made the
-	// 10^5-stroke fixture take minutes).
-	lastEnd := make([]float64, len(b.p.Windows))
-	written := make([]bool, len(b.p.Windows))
+	// Each window has been open since the end of its last stroke's
+	// action: one pass over the actions (a pass per window was
+	// quadratic, minutes for the large fixtures).
 	for _, a := range b.p.Actions {
 		if a.Stroke < 0 {
 			continue
 		}
-		if i := b.p.Strokes[a.Stroke].Window; i >= 0 && i < len(lastEnd) {
-			lastEnd[i], written[i] = a.StartS+a.DurationS, true
-		}
-	}
-	for i, w := range b.p.Windows {
-		if w.Species == species && written[i] {
-			b.p.Windows[i].OpenS = b.t - lastEnd[i]
+		if i := b.p.Strokes[a.Stroke].Window; i >= 0 && b.p.Windows[i].Species == species {
+			b.p.Windows[i].OpenS = b.t - (a.StartS + a.DurationS)
 		}
 	}
 	b.act(planner.Action{Kind: planner.ActDose, Segment: -1, Stroke: -1, From: b.at, To: b.at, DurationS: doseS, Note: "dose " + species})
