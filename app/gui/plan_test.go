@@ -66,7 +66,7 @@ func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 	rendertest.SaveImage(t, "window-plan.png", w.Canvas().Capture())
 	zoomOn(w, u, mid, 0.5)
 	panel := texts(u.planView.content)
-	for _, want := range []string{units.Duration(3720), "P10 " + units.Duration(3500), "Every window takes exactly one donor: 40 %", "2 drift-safe segments"} {
+	for _, want := range []string{units.Duration(3720), "P10 " + units.Duration(3500), "Every window opened as drawn with exactly one donor: 40 %.", "2 drift-safe segments"} {
 		if !strings.Contains(panel, want) {
 			t.Errorf("plan panel lacks %q:\n%s", want, panel)
 		}
