@@ -4,6 +4,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -31,6 +32,18 @@ func TestCompareSaysWhatDiffers(t *testing.T) {
 	}
 	if n := strings.Count(out, "passed"); n != 2 {
 		t.Errorf("%d coverage results passed, want one per variant:\n%s", n, out)
+	}
+	// Each variant's session time, P10 and P90 to the second (h:mm:ss),
+	// and the two totals, seconds apart, differ on the page.
+	clock := regexp.MustCompile(`^\s*(gap-9|gap-12-source)\s+(\d+:\d\d:\d\d)\s+\d+:\d\d:\d\d\s+\d+:\d\d:\d\d\s`)
+	totals := map[string]string{}
+	for _, l := range strings.Split(out, "\n") {
+		if m := clock.FindStringSubmatch(l); m != nil {
+			totals[m[1]] = m[2]
+		}
+	}
+	if len(totals) != 2 || totals["gap-9"] == totals["gap-12-source"] {
+		t.Errorf("session times %v: want both variants' to the second, and different:\n%s", totals, out)
 	}
 }
 

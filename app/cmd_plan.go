@@ -67,10 +67,10 @@ cleanly.`,
 						fmt.Fprintln(env.Stderr, "dimerpath plan:", err)
 						return ExitFailure
 					}
-					return ExitOK
+					return coverageExit(env, "plan", p)
 				}
 				printPlan(env.Stdout, p)
-				return ExitOK
+				return coverageExit(env, "plan", p)
 			}
 		},
 	})
@@ -339,24 +339,28 @@ func printPlan(w io.Writer, p *planner.Plan) {
 			parts = append(parts, fmt.Sprintf("%s %d", sp, count[sp]))
 		}
 		fmt.Fprintf(w, " (%s)\n", strings.Join(parts, ", "))
-		all := fmt.Sprintf("%.4g", y.All)
-		if y.All == 0 {
-			all = fmt.Sprintf("10^%.1f", y.Log10All)
-		}
+		all := units.Probability(y.All, y.Log10All)
 		devices := fmt.Sprintf("%.3g", y.DevicesPerPerfect)
 		if y.DevicesPerPerfect == 0 {
 			devices = "more than can be written"
 		}
-		fmt.Fprintf(w, "  P(every window takes exactly one donor) = %s; good windows %.2f ± %.2f of %d; devices per perfect device %s\n",
-			all, y.MeanGood, y.SDGood, y.Windows, devices)
+		fmt.Fprintf(w, "  P(every window opened as drawn with exactly one donor) = %s (68 %%: %s, 95 %%: %s, from the templates' uncertainties)\n",
+			all, units.ProbabilityRange(y.All68, y.Log10All68), units.ProbabilityRange(y.All95, y.Log10All95))
+		fmt.Fprintf(w, "  good windows %.2f ± %.2f of %d; expected %.3g without a donor, %.3g with two or more, %.3g not opened as drawn; devices per perfect device %s\n",
+			y.MeanGood, y.SDGood, y.Windows, y.ExpectedEmpty, y.ExpectedMultiple, y.ExpectedMisopened, devices)
 		tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-		fmt.Fprintln(tw, "  region\tspecies\tat (nm)\tP(one donor)\topen before its dose")
+		fmt.Fprintln(tw, "  region\tspecies\tat (nm)\topened as drawn\tp0\tp1\tp≥2\tP(good)\topen before its dose")
 		for i, win := range p.Windows {
 			if i == maxListed {
 				fmt.Fprintf(tw, "  ... %d more\n", len(p.Windows)-maxListed)
 				break
 			}
-			fmt.Fprintf(tw, "  %s\t%s\t(%.2f, %.2f)\t%.3g\t%s\n", win.Region, win.Species, win.At.X, win.At.Y, win.Probability, units.Duration(win.OpenS))
+			p1 := fmt.Sprintf("%.3g", win.P1)
+			if win.P1SD > 0 {
+				p1 += fmt.Sprintf(" ± %.2g", win.P1SD)
+			}
+			fmt.Fprintf(tw, "  %s\t%s\t(%.2f, %.2f)\t%.3g\t%.3g\t%s\t%.3g\t%.3g\t%s\n", win.Region, win.Species, win.At.X, win.At.Y,
+				win.OpenProbability, win.P0, p1, win.P2Plus, win.Probability, units.Duration(win.OpenS))
 		}
 		tw.Flush()
 	} else {
@@ -365,13 +369,21 @@ func printPlan(w io.Writer, p *planner.Plan) {
 
 	c := p.Coverage
 	if c.OK {
-		fmt.Fprintf(w, "\nCoverage: OK, every one of %d sites clears and none outside the regions beyond the edge allowance\n", c.Sites)
+		fmt.Fprintf(w, "\nCoverage: OK, no site outside the regions clears with more than %.3g %% (exposure model)\n", 100*c.StrayLimit)
 	} else {
-		fmt.Fprintf(w, "\nCoverage: NOT OK, %d of %d sites uncovered, %d overcleared\n", c.Uncovered, c.Sites, c.Overcleared)
+		fmt.Fprintf(w, "\nCoverage: NOT OK, %d site(s) outside every region clear with more than %.3g %%\n", c.OverLimit, 100*c.StrayLimit)
 		for _, is := range c.Issues {
 			fmt.Fprintln(w, "  "+is)
 		}
 	}
+	fmt.Fprintf(w, "  expected: %s of %d sites left with their H, %s stray sites cleared outside the regions\n", expected(c.ExpectedMissed), c.Sites, expected(c.ExpectedStray))
+	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "  region\tsites\tmissed\tstray\tof them spurious\tP(no error)\t")
+	for _, r := range c.Regions {
+		fmt.Fprintf(tw, "  %s\t%d\t%s\t%s\t%s\t%s\t\n", r.Region, r.Sites, expected(r.ExpectedMissed), expected(r.ExpectedStray),
+			expected(r.ExpectedSpurious), units.Probability(r.Probability, r.Log10Probability))
+	}
+	tw.Flush()
 	if len(p.Warnings) > 0 {
 		fmt.Fprintln(w, "\nWarnings")
 		for _, warn := range p.Warnings {
@@ -387,4 +399,17 @@ func sortedKeys(m map[string]int) []string {
 	}
 	sort.Strings(ks)
 	return ks
+}
+
+// expected formats an expected number of sites: whole numbers from 1000
+// up ("59224"), three significant digits below ("3.55", "0.0288"), small
+// ones with the typographic minus ("3.1e−07").
+func expected(x float64) string {
+	switch {
+	case x >= 1000:
+		return fmt.Sprintf("%.0f", x)
+	case x != 0 && x < 0.001:
+		return strings.Replace(fmt.Sprintf("%.2g", x), "-", "−", 1)
+	}
+	return fmt.Sprintf("%.3g", x)
 }

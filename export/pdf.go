@@ -55,7 +55,7 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 			}
 			return pdfStrokeList(ctx, d, p, sc.number)
 		}},
-		{"estimates", func() error { pdfEstimates(d, p); return nil }},
+		{"estimates", func() error { pdfEstimates(d, p); pdfCoverage(d, p); return nil }},
 		{"atomic-precision areas", func() error {
 			return pdfZooms(ctx, d, sc, func(f float64) { opt.progress("pdf: atomic-precision areas", (5+f)/6) })
 		}},
@@ -99,6 +99,9 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	}
 	d.keyValues(rows, 0.28)
 	d.cautionBox()
+	if !p.Coverage.OK {
+		d.errorBox("COVERAGE ERROR: do not write this plan as it stands", coverageErrorLines(p))
+	}
 
 	d.heading("At a glance", 30)
 	fids := map[string]bool{}
@@ -126,10 +129,7 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	if len(sp) > 0 {
 		windows += " (" + strings.Join(sp, ", ") + ")"
 	}
-	cov := "passed: every painted site is cleared, none outside the regions beyond the edge allowance"
-	if !p.Coverage.OK {
-		cov = fmt.Sprintf("FAILED: %d sites uncovered, %d over-cleared (see below)", p.Coverage.Uncovered, p.Coverage.Overcleared)
-	}
+	cov := coverageLine(p.Coverage)
 	glance := [][2]string{
 		{"Session time", fmt.Sprintf("%s (%s) on average over the Monte Carlo samples of this plan; the schedule below runs %s", clock(p.TotalS), duration(p.TotalS), clock(p.ScheduleS))},
 		{"Process", processLine(p)},
@@ -143,8 +143,9 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	}
 	if len(p.Windows) > 0 {
 		glance = append(glance,
-			[2]string{"All windows good", fmt.Sprintf("%s (probability that every window takes exactly one donor)", allGood(p.Yield))},
+			[2]string{"All windows good", fmt.Sprintf("%s (opened as drawn and holding exactly one donor; %s)", allGood(p.Yield), intervals(p.Yield))},
 			[2]string{"Good windows", meanGood(p.Yield)},
+			[2]string{"Bad windows expected", badWindows(p.Yield)},
 			[2]string{"Devices per perfect one", devicesPerPerfect(p.Yield)},
 		)
 	}
@@ -223,6 +224,56 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		"they are written; the JSON and CSV exports give that number beside each stroke's id, which counts from 0 in the order the planner made them. "+
 		"Positions are field coordinates in nm, origin at the lower-left corner of the scan field. "+
 		"Times are on the plan clock, from the start of the session.", font{size: 7.5, grey: 0.25})
+}
+
+// coverageLine says in one line what the coverage expectation found.
+func coverageLine(c planner.Coverage) string {
+	s := fmt.Sprintf("%s of %s sites expected to keep their H, %s stray sites expected outside the regions",
+		sig(c.ExpectedMissed, 3), thousands(c.Sites), sig(c.ExpectedStray, 3))
+	if !c.OK {
+		return fmt.Sprintf("FAILED: %s site(s) outside every region clear with more than %s (see the box above); %s", thousands(c.OverLimit), percent(c.StrayLimit), s)
+	}
+	return fmt.Sprintf("passed: no site outside the regions clears with more than %s; %s (exposure model)", percent(c.StrayLimit), s)
+}
+
+// coverageErrorLines lists what the coverage check found wrong, for the
+// first page.
+func coverageErrorLines(p *planner.Plan) []string {
+	c := p.Coverage
+	numbers := StrokeNumbers(p)
+	lines := []string{fmt.Sprintf("%s site(s) outside every region, beyond the edge allowance, clear with a probability above the %s limit. "+
+		"The strokes that reach them are named below; change the design or the profile and plan again.", thousands(c.OverLimit), percent(c.StrayLimit))}
+	for i, s := range c.StraySites {
+		if i == 8 {
+			lines = append(lines, fmt.Sprintf("… and %s more (all of them in the plan file's coverage.stray_sites)", thousands(c.OverLimit-8)))
+			break
+		}
+		who := "no stroke known"
+		if s.Stroke >= 0 && s.Stroke < len(numbers) {
+			who = fmt.Sprintf("stroke %d (writing order) of region %s", numbers[s.Stroke], s.Region)
+		}
+		lines = append(lines, fmt.Sprintf("• site %v at (%s, %s) nm: %s, from %s", s.Site, sig(s.At.X, 6), sig(s.At.Y, 6), percent(s.Probability), who))
+	}
+	if len(c.Issues) > 0 {
+		lines = append(lines, "What to do: "+c.Issues[0][strings.Index(c.Issues[0], ": ")+2:])
+	}
+	return lines
+}
+
+// intervals formats the 68 % and 95 % intervals of P(all good).
+func intervals(y planner.Yield) string {
+	f := func(iv [2]float64, l [2]float64) string {
+		if iv[1] == 0 && !math.IsInf(l[1], -1) {
+			return pow10(l[0]) + "–" + pow10(l[1])
+		}
+		return probability(iv[0]) + "–" + probability(iv[1])
+	}
+	return fmt.Sprintf("68 %%: %s, 95 %%: %s from the templates' uncertainties", f(y.All68, y.Log10All68), f(y.All95, y.Log10All95))
+}
+
+// badWindows formats the expected numbers of windows that go wrong.
+func badWindows(y planner.Yield) string {
+	return fmt.Sprintf("%s without a donor, %s with two or more, %s not opened as drawn", sig(y.ExpectedEmpty, 3), sig(y.ExpectedMultiple, 3), sig(y.ExpectedMisopened, 3))
 }
 
 func segmentsLine(n int, fiducials []string, local int) string {
@@ -638,27 +689,34 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	y := p.Yield
 	d.keyValues([][2]string{
 		{"Windows", thousands(y.Windows)},
-		{"All windows good", fmt.Sprintf("%s: the probability that every window takes exactly one donor", allGood(y))},
+		{"All windows good", fmt.Sprintf("%s: the probability that every window is opened as drawn and takes exactly one donor; %s", allGood(y), intervals(y))},
 		{"Good windows", meanGood(y)},
+		{"Bad windows expected", badWindows(y)},
 		{"Devices per perfect one", devicesPerPerfect(y)},
 	}, 0.28)
+	d.para("A window is good when it is opened as drawn (every site cleared and none of its neighbours, from the exposure model) and then "+
+		"takes exactly one donor (the template's p1). p0, p1 and p≥2 are the template's probabilities of 0, 1 and 2 or more donors in a window opened as drawn.", font{size: 7.5, grey: 0.25})
 	t := newTable(d, fontBody,
-		tableColumn{title: "Species", share: 10},
-		tableColumn{title: "Template", share: 12},
-		tableColumn{title: "Windows", share: 10, right: true},
-		tableColumn{title: "P(all sites open)", share: 14, right: true},
-		tableColumn{title: "P(exactly one donor)", share: 16, right: true},
-		tableColumn{title: "Regions", share: 38},
+		tableColumn{title: "Species", share: 8},
+		tableColumn{title: "Template", share: 9},
+		tableColumn{title: "Windows", share: 8, right: true},
+		tableColumn{title: "P(opened as drawn)", share: 12, right: true},
+		tableColumn{title: "p0", share: 7, right: true},
+		tableColumn{title: "p1", share: 11, right: true},
+		tableColumn{title: "p≥2", share: 7, right: true},
+		tableColumn{title: "P(good)", share: 9, right: true},
+		tableColumn{title: "Regions", share: 29},
 	)
 	type key struct {
-		species, template string
-		open, p           float64
+		species, template   string
+		open, p0, p1, p2, p float64
+		sd                  float64
 	}
 	groups := map[key][]string{}
 	counts := map[key]int{}
 	var order []key
 	for _, w := range p.Windows {
-		k := key{w.Species, w.Template, w.OpenProbability, w.Probability}
+		k := key{w.Species, w.Template, w.OpenProbability, w.P0, w.P1, w.P2Plus, w.Probability, w.P1SD}
 		if counts[k] == 0 {
 			order = append(order, k)
 		}
@@ -673,7 +731,11 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 		if k.open > 0 {
 			open = probability(k.open)
 		}
-		t.row(k.species, k.template, thousands(counts[k]), open, probability(k.p), listShort(groups[k], 6))
+		p1 := probability(k.p1)
+		if k.sd > 0 {
+			p1 += " ± " + sig(k.sd, 2)
+		}
+		t.row(k.species, k.template, thousands(counts[k]), open, probability(k.p0), p1, probability(k.p2), probability(k.p), listShort(groups[k], 6))
 	}
 	t.end()
 	d.need(62)
@@ -681,6 +743,36 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	d.y += 5
 	h = drawDistribution(d.c, y.Distribution, box{d.left(), d.y, d.width(), 55})
 	d.y += h + 2
+}
+
+// pdfCoverage prints the coverage expectation region by region.
+func pdfCoverage(d *pdfDoc, p *planner.Plan) {
+	c := p.Coverage
+	if len(c.Regions) == 0 {
+		return
+	}
+	d.heading("Coverage: what the strokes are expected to clear", 40)
+	d.para(fmt.Sprintf("Each H site clears with probability 1 − exp(−Y·N), N the electrons its strokes' footprints deliver to it and Y the "+
+		"desorption yield per electron at their bias and current (Shen et al., Science 268, 1590 (1995)). Missed: a region's sites expected to keep "+
+		"their H. Stray: sites outside every region expected to clear beyond the edge allowance, with the background of spurious dangling bonds along "+
+		"AP lines. P(no error): the probability that the region is written exactly. %s.", capitalise(coverageLine(c))), font{size: 7.5, grey: 0.25})
+	t := newTable(d, fontBody,
+		tableColumn{title: "Region", share: 22},
+		tableColumn{title: "Sites", share: 14, right: true},
+		tableColumn{title: "Missed", share: 14, right: true},
+		tableColumn{title: "Stray", share: 14, right: true},
+		tableColumn{title: "of them spurious", share: 16, right: true},
+		tableColumn{title: "P(no error)", share: 20, right: true},
+	)
+	t.start()
+	for _, r := range c.Regions {
+		pr := probability(r.Probability)
+		if r.Probability == 0 && !math.IsInf(r.Log10Probability, -1) {
+			pr = pow10(r.Log10Probability)
+		}
+		t.row(r.Region, thousands(r.Sites), sig(r.ExpectedMissed, 3), sig(r.ExpectedStray, 3), sig(r.ExpectedSpurious, 3), pr)
+	}
+	t.end()
 }
 
 // zoomLegend returns the key of the zoomed figures.

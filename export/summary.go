@@ -53,21 +53,30 @@ type segmentSummary struct {
 }
 
 type windowSummary struct {
-	Region      string  `json:"region"`
-	Species     string  `json:"species"`
-	Template    string  `json:"template"`
-	AtNM        xy      `json:"at_nm"`
-	Probability float64 `json:"probability"`
-	OpenS       float64 `json:"open_s"`
+	Region          string  `json:"region"`
+	Species         string  `json:"species"`
+	Template        string  `json:"template"`
+	AtNM            xy      `json:"at_nm"`
+	OpenProbability float64 `json:"open_probability"`
+	P0              float64 `json:"p0"`
+	P1              float64 `json:"p1"`
+	P2Plus          float64 `json:"p2plus"`
+	Probability     float64 `json:"probability"`
+	OpenS           float64 `json:"open_s"`
 }
 
 type yieldSummary struct {
-	Windows           int      `json:"windows"`
-	All               float64  `json:"all"`
-	Log10All          *float64 `json:"log10_all"` // null for -Inf, as in the plan file
-	MeanGood          float64  `json:"mean_good"`
-	SDGood            float64  `json:"sd_good"`
-	DevicesPerPerfect float64  `json:"devices_per_perfect"`
+	Windows           int        `json:"windows"`
+	All               float64    `json:"all"`
+	All68             [2]float64 `json:"all_68"`
+	All95             [2]float64 `json:"all_95"`
+	Log10All          *float64   `json:"log10_all"` // null for -Inf, as in the plan file
+	ExpectedEmpty     float64    `json:"expected_empty"`
+	ExpectedMultiple  float64    `json:"expected_multiple"`
+	ExpectedMisopened float64    `json:"expected_misopened"`
+	MeanGood          float64    `json:"mean_good"`
+	SDGood            float64    `json:"sd_good"`
+	DevicesPerPerfect float64    `json:"devices_per_perfect"`
 }
 
 type modeSummary struct {
@@ -76,12 +85,17 @@ type modeSummary struct {
 	Reason    string `json:"reason"`
 }
 
+// coverageSummary is the plan file's coverage without the list of stray
+// sites (over_limit counts them).
 type coverageSummary struct {
-	OK          bool     `json:"ok"`
-	Sites       int      `json:"sites"`
-	Uncovered   int      `json:"uncovered"`
-	Overcleared int      `json:"overcleared"`
-	Issues      []string `json:"issues,omitempty"`
+	OK             bool                 `json:"ok"`
+	Sites          int                  `json:"sites"`
+	StrayLimit     float64              `json:"stray_limit"`
+	ExpectedMissed float64              `json:"expected_missed"`
+	ExpectedStray  float64              `json:"expected_stray"`
+	Regions        []regionCoverageJSON `json:"regions"`
+	OverLimit      int                  `json:"over_limit"`
+	Issues         []string             `json:"issues,omitempty"`
 }
 
 // WritePlanSummary writes the digest of p that "dimerpath plan --json"
@@ -100,11 +114,11 @@ func WritePlanSummary(w io.Writer, p *planner.Plan) error {
 		Steps: []stepJSON{}, Segments: []segmentSummary{}, Windows: []windowSummary{}, Couplings: []couplingJSON{},
 		PInTolerance: p.PInTolerance,
 		YieldAll:     p.Yield.All,
-		Yield: yieldSummary{Windows: p.Yield.Windows, All: p.Yield.All, Log10All: log10JSON(p.Yield.Log10All), MeanGood: p.Yield.MeanGood,
-			SDGood: p.Yield.SDGood, DevicesPerPerfect: p.Yield.DevicesPerPerfect},
-		Modes: map[string]modeSummary{},
-		Coverage: coverageSummary{OK: p.Coverage.OK, Sites: p.Coverage.Sites, Uncovered: p.Coverage.Uncovered,
-			Overcleared: p.Coverage.Overcleared, Issues: p.Coverage.Issues},
+		Yield: yieldSummary{Windows: p.Yield.Windows, All: p.Yield.All, All68: p.Yield.All68, All95: p.Yield.All95, Log10All: log10JSON(p.Yield.Log10All),
+			ExpectedEmpty: p.Yield.ExpectedEmpty, ExpectedMultiple: p.Yield.ExpectedMultiple, ExpectedMisopened: p.Yield.ExpectedMisopened,
+			MeanGood: p.Yield.MeanGood, SDGood: p.Yield.SDGood, DevicesPerPerfect: p.Yield.DevicesPerPerfect},
+		Modes:    map[string]modeSummary{},
+		Coverage: coverageSummaryOf(p.Coverage),
 		Warnings: nonNil(p.Warnings),
 	}
 	for _, st := range p.Steps {
@@ -119,7 +133,7 @@ func WritePlanSummary(w io.Writer, p *planner.Plan) error {
 	}
 	for _, win := range p.Windows {
 		s.Windows = append(s.Windows, windowSummary{Region: win.Region, Species: win.Species, Template: win.Template, AtNM: xyOf(win.At),
-			Probability: win.Probability, OpenS: win.OpenS})
+			OpenProbability: win.OpenProbability, P0: win.P0, P1: win.P1, P2Plus: win.P2Plus, Probability: win.Probability, OpenS: win.OpenS})
 	}
 	for _, m := range p.Modes {
 		s.Modes[m.Region] = modeSummary{Requested: string(m.Requested), Mode: string(m.Mode), Reason: m.Reason}
@@ -130,4 +144,10 @@ func WritePlanSummary(w io.Writer, p *planner.Plan) error {
 	}
 	_, err = w.Write(data)
 	return err
+}
+
+func coverageSummaryOf(c planner.Coverage) coverageSummary {
+	cj := coverageOf(c)
+	return coverageSummary{OK: c.OK, Sites: c.Sites, StrayLimit: c.StrayLimit, ExpectedMissed: c.ExpectedMissed, ExpectedStray: c.ExpectedStray,
+		Regions: cj.Regions, OverLimit: c.OverLimit, Issues: cj.Issues}
 }

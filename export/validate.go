@@ -239,7 +239,19 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 		v.point(f+".at_nm", w.At)
 		v.count(f+".sites", w.Sites)
 		v.probability(f+".open_probability", w.OpenProbability)
+		v.probability(f+".p0", w.P0)
+		v.probability(f+".p1", w.P1)
+		v.probability(f+".p2plus", w.P2Plus)
 		v.probability(f+".probability", w.Probability)
+		if v.err == nil && math.Abs(w.P0+w.P1+w.P2Plus-1) > 1e-9 {
+			v.fail(invalid(f+".p2plus", w.P2Plus, "p0 + p1 + p2plus = %g, not 1", w.P0+w.P1+w.P2Plus))
+		}
+		if v.err == nil && !(w.P1SD >= 0 && w.P1SD < 1) {
+			v.fail(invalid(f+".p1_sd", w.P1SD, "an uncertainty must lie in [0, 1)"))
+		}
+		if v.err == nil && math.Abs(w.Probability-w.OpenProbability*w.P1) > 1e-9 {
+			v.fail(invalid(f+".probability", w.Probability, "not open_probability · p1 = %g", w.OpenProbability*w.P1))
+		}
 		v.nonNeg(f+".open_s", w.OpenS)
 	}
 	y := p.Yield
@@ -263,10 +275,47 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 	if v.err == nil && (y.DistributionFrom < 0 || y.DistributionFrom > max(0, len(y.Distribution))) {
 		v.fail(invalid("yield.distribution_from", y.DistributionFrom, "must lie between 0 and the distribution's length %d", len(y.Distribution)))
 	}
+	for k, iv := range [][2]float64{y.All68, y.All95} {
+		name := []string{"yield.all_68", "yield.all_95"}[k]
+		v.probability(name, iv[0])
+		v.probability(name, iv[1])
+		if v.err == nil && iv[0] > iv[1] {
+			v.fail(invalid(name, fmt.Sprint(iv), "an interval's low end must not lie above its high end"))
+		}
+	}
+	v.nonNeg("yield.expected_empty", y.ExpectedEmpty)
+	v.nonNeg("yield.expected_multiple", y.ExpectedMultiple)
+	v.nonNeg("yield.expected_misopened", y.ExpectedMisopened)
 	c := p.Coverage
 	v.count("coverage.sites", c.Sites)
-	v.count("coverage.uncovered", c.Uncovered)
-	v.count("coverage.overcleared", c.Overcleared)
+	v.nonNeg("coverage.expected_missed", c.ExpectedMissed)
+	v.nonNeg("coverage.expected_stray", c.ExpectedStray)
+	v.count("coverage.over_limit", c.OverLimit)
+	if v.err == nil && len(c.StraySites) > c.OverLimit {
+		v.fail(invalid("coverage.stray_sites", len(c.StraySites), "more stray sites listed than over_limit (%d)", c.OverLimit))
+	}
+	for i, r := range c.Regions {
+		f := v.at("coverage.regions", i)
+		v.count(f+".sites", r.Sites)
+		v.nonNeg(f+".expected_missed", r.ExpectedMissed)
+		v.nonNeg(f+".expected_stray", r.ExpectedStray)
+		v.nonNeg(f+".expected_spurious", r.ExpectedSpurious)
+		v.probability(f+".probability", r.Probability)
+	}
+	for i, s := range c.StraySites {
+		f := v.at("coverage.stray_sites", i)
+		v.point(f+".at_nm", s.At)
+		v.probability(f+".probability", s.Probability)
+		if v.err == nil && (s.Stroke < -1 || s.Stroke >= len(p.Strokes)) {
+			v.fail(invalid(f+".stroke", s.Stroke, "names no stroke"))
+		}
+	}
+	for i, s := range p.Strokes {
+		if s.ExpectedMissed < 0 || s.ExpectedStray < 0 || math.IsNaN(s.ExpectedMissed+s.ExpectedStray) {
+			v.nonNeg(v.at("strokes", i)+".expected_missed", s.ExpectedMissed)
+			v.nonNeg(v.at("strokes", i)+".expected_stray", s.ExpectedStray)
+		}
+	}
 	return v.err
 }
 

@@ -75,6 +75,7 @@ type builder struct {
 	opt  Options
 
 	gen      *strokeGen
+	placed   []lattice.Window // the plan's windows on the lattice, as Plan.Windows
 	regions  []*regionWork
 	fids     []Fiducial
 	strokes  []Stroke
@@ -145,9 +146,11 @@ func (b *builder) build() (*Plan, error) {
 	if err := b.ctx.Err(); err != nil {
 		return nil, err
 	}
-	cov := CheckCoverage(lay.Surface, b.coverageRegions(), b.strokes, *prof)
+	b.openWindows(windows)
+	cov, strokes := CheckCoverage(lay.Surface, b.coverageRegions(), b.strokes, *prof)
+	b.strokes = strokes
 	if !cov.OK {
-		b.warnings = append(b.warnings, fmt.Sprintf("coverage check: %d uncovered and %d overcleared site(s); see coverage.issues", cov.Uncovered, cov.Overcleared))
+		b.warnings = append(b.warnings, fmt.Sprintf("coverage check: %d site(s) outside every region clear with more than %.2g %%; see coverage.stray_sites", cov.OverLimit, 100*cov.StrayLimit))
 	}
 
 	b.opt.stage("route")
@@ -246,7 +249,7 @@ func (b *builder) build() (*Plan, error) {
 	if err := checkProbabilities(windows); err != nil {
 		return nil, err
 	}
-	plan.Yield = YieldOf(windows)
+	plan.Yield = YieldOf(windows, b.opt.Seed)
 	for _, r := range b.regions {
 		req := r.requested
 		if req == "" {
@@ -401,16 +404,13 @@ func (b *builder) makeStrokes() []Window {
 				sites += ss[i].Sites
 			}
 			b.strokes = append(b.strokes, ss...)
-			p := w.Template.Probability
-			open := 1.0
-			if b.prof.WindowStyle == WindowStyleDwell {
-				open = math.Pow(b.prof.Dwell.Completion, float64(sites))
-			}
 			if sites < w.Template.Sites() {
 				b.warnings = append(b.warnings, fmt.Sprintf("window %v of region %q reaches beyond its terrace: %d of its %d sites exist", w, r.name, sites, w.Template.Sites()))
 			}
-			windows = append(windows, Window{Region: r.name, Species: w.Template.Species, Template: w.Template.Name,
-				At: surf.WindowCentre(w), Sites: sites, OpenProbability: open, Probability: p * open})
+			t := w.Template
+			windows = append(windows, Window{Region: r.name, Species: t.Species, Template: t.Name,
+				At: surf.WindowCentre(w), Sites: sites, P0: t.P0, P1: t.P1, P2Plus: t.P2Plus, P1SD: t.P1SD})
+			b.placed = append(b.placed, w)
 		}
 		if r.apPart != nil && !r.apPart.IsEmpty() {
 			ss := b.gen.apStrokes(r.name, r.apPart)
@@ -480,20 +480,24 @@ func (b *builder) modesUsed() ModeUse {
 
 func (b *builder) conditions(u ModeUse) []Conditions {
 	var cs []Conditions
+	line := func(mode design.Mode, kind StrokeKind) Conditions {
+		m, l := b.prof.modeOf(mode), b.prof.Line(mode)
+		return Conditions{Mode: mode, Kind: kind, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
+			SpeedNMPerS: m.Speed(), LineWidthNM: l.Width(), Passes: max(m.Passes, 1),
+			YieldPerElectron: l.Yield, SigmaNM: l.SigmaNM, ElectronsPerSite: ElectronsPerRowSite(m.LineDoseCPerCm) * float64(max(m.Passes, 1))}
+	}
 	if u.AP {
-		m := b.prof.AP
-		cs = append(cs, Conditions{Mode: design.ModeAP, Kind: StrokeLine, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
-			SpeedNMPerS: m.Speed(), LineWidthNM: m.LineWidth(), Passes: max(m.Passes, 1)})
+		cs = append(cs, line(design.ModeAP, StrokeLine))
 	}
 	if u.Dwell {
 		d := b.prof.Dwell
 		cs = append(cs, Conditions{Mode: design.ModeAP, Kind: StrokeDwell, BiasV: d.BiasV, CurrentA: d.CurrentA, Passes: 1,
-			DwellS: d.ExpectedS(), DwellCapS: d.CapS()})
+			DwellS: b.prof.DwellExpectedS(), DwellCapS: b.prof.DwellCapS(), YieldPerElectron: b.prof.DwellYield(), SigmaNM: d.SigmaNM})
 	}
 	if u.FE {
-		m := b.prof.FE
-		cs = append(cs, Conditions{Mode: design.ModeFE, Kind: StrokeRaster, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
-			SpeedNMPerS: m.Speed(), LineWidthNM: m.LineWidth(), Passes: max(m.Passes, 1), PitchNM: m.Pitch()})
+		c := line(design.ModeFE, StrokeRaster)
+		c.PitchNM = b.prof.FEPitch()
+		cs = append(cs, c)
 	}
 	return cs
 }

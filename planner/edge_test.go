@@ -50,7 +50,8 @@ func TestBuildEdgeCases(t *testing.T) {
 	if n := len(p.Segments); n > 8 || p.PInTolerance < 0.99 {
 		t.Errorf("no drift: %d segments, P(within tolerance) %v", n, p.PInTolerance)
 	}
-	// Dwell-written windows carry their completion in the probability.
+	// Dwell-written windows: each site clears with the dwell's completion
+	// (0.99), its neighbours now and then as well.
 	prof = DefaultProfile()
 	prof.WindowStyle = WindowStyleDwell
 	p, err = buildVariant(context.Background(), demo(t), "", prof, Options{Seed: 1, MonteCarloRuns: 50})
@@ -62,8 +63,8 @@ func TestBuildEdgeCases(t *testing.T) {
 		if w.Species == "As" {
 			want = 0.97
 		}
-		if open := pow(0.99, w.Sites); abs(w.Probability-want*open) > 1e-12 || abs(w.OpenProbability-open) > 1e-12 {
-			t.Errorf("window %+v: want %v × 0.99^%d", w, want, w.Sites)
+		if open := pow(0.99, w.Sites); abs(w.Probability-want*w.OpenProbability) > 1e-12 || w.OpenProbability > open || w.OpenProbability < 0.95*open {
+			t.Errorf("window %+v: want %v × at most 0.99^%d", w, want, w.Sites)
 		}
 	}
 	if !p.Coverage.OK {

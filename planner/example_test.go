@@ -38,7 +38,7 @@ func ExampleBuild() {
 	// sensor-island: ap
 	// source-lead: ap
 	// breakdown sums to the total: true
-	// coverage OK: true, P(all windows good) = 0.6111
+	// coverage OK: true, P(all windows good) = 0.5364
 }
 
 func ExampleCompare() {
@@ -55,8 +55,8 @@ func ExampleCompare() {
 		}
 	}
 	// Output:
-	// gap-9: 6 segment(s), 2 windows
-	// gap-12-source: 6 segment(s), 2 windows
+	// gap-9: 5 segment(s), 2 windows
+	// gap-12-source: 5 segment(s), 2 windows
 	//    tunnel gap sensor-island – source-lead
 	//    region source-lead
 }

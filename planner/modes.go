@@ -200,7 +200,7 @@ func (mc *modeChooser) choose() {
 
 // auto1 is the first, keep-out-free pass of the auto choice.
 func (mc *modeChooser) auto1(r *regionWork) {
-	w := mc.prof.FE.LineWidth()
+	w := mc.prof.Line(design.ModeFE).Width()
 	band := mc.prof.HybridBandNM
 	switch {
 	case r.plain.IsEmpty() && len(r.windows) > 0:

@@ -311,8 +311,8 @@ func sampleTimes(ctx context.Context, tm timeModel, prof *Profile, runs int, see
 		}
 	}
 	if tm.dwells > 0 {
-		k, capS := prof.Dwell.Rate(), prof.Dwell.CapS()
-		mean := prof.Dwell.ExpectedS()
+		k, capS := prof.DwellRate(), prof.DwellCapS()
+		mean := prof.DwellExpectedS()
 		src := rand.NewPCG(uint64(seed), 0x6477656c6c)
 		if tm.dwells <= exactDwellSamples {
 			// Exponential with rate k, as distuv.Exponential draws it

@@ -5,6 +5,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
 
@@ -100,13 +101,20 @@ type Conditions struct {
 	CurrentA       float64 // setpoint current
 	LineDoseCPerCm float64 // charge per unit length
 	SpeedNMPerS    float64 // = current / line dose
-	LineWidthNM    float64 // from the width-vs-dose model
+	LineWidthNM    float64 // the band a line clears with probability ≥ ½ (LineModel.Width)
 	Passes         int
 	PitchNM        float64 // FE raster line pitch
 	// DwellS is the expected time of one feedback-ended dwell and
 	// DwellCapS the longest the plan lets it run (its Completion time).
 	DwellS    float64
 	DwellCapS float64
+	// YieldPerElectron is the exposure model's yield at these conditions
+	// (H per electron), SigmaNM the footprint, and ElectronsPerSite the
+	// electrons a line delivers per H site of the dimer row it is written
+	// along (ElectronsPerRowSite; lines only).
+	YieldPerElectron float64
+	SigmaNM          float64
+	ElectronsPerSite float64
 }
 
 // RegionMode records the mode given to one region and the reason.
@@ -146,6 +154,13 @@ type Stroke struct {
 	// Window is the index into Plan.Windows of the dopant window this
 	// stroke opens, or -1.
 	Window int
+	// ExpectedMissed is the expected number of sites this stroke was the
+	// main writer of (it gives them the most exposure) that keep their H;
+	// ExpectedStray the expected number of sites outside every region,
+	// beyond the edge allowance, it clears (with the spurious background
+	// along an AP line). From the coverage check.
+	ExpectedMissed float64
+	ExpectedStray  float64
 }
 
 // Segment is a run of strokes written after one registration, short
@@ -356,19 +371,29 @@ func (b *Breakdown) field(k TimeKind) *float64 {
 	return nil
 }
 
-// Window is one dopant window of the plan with its single-donor
-// probability.
+// Window is one dopant window of the plan with its donor-count
+// probabilities.
 type Window struct {
 	Region   string
 	Species  string
 	Template string
 	At       r2.Point // window centre
 	Sites    int
-	// OpenProbability is the chance that every site of the window is
-	// cleared (1 for a line; Completion^sites for dwells), and
-	// Probability the template's single-donor probability times it.
+	// OpenProbability is the probability that the window is opened as
+	// drawn: every one of its sites cleared, none of its neighbours (the
+	// unpainted sites within one row spacing) and no spurious dangling
+	// bond along its line, from the exposure model.
 	OpenProbability float64
-	Probability     float64
+	// P0, P1 and P2Plus are the template's probabilities of 0, 1 and 2 or
+	// more donors in a window opened as drawn, and P1SD the uncertainty
+	// of P1.
+	P0     float64
+	P1     float64
+	P2Plus float64
+	P1SD   float64
+	// Probability is the probability that the window is good: opened as
+	// drawn and then holding exactly one donor, OpenProbability·P1.
+	Probability float64
 	// OpenS is how long the window stays open: from the end of its write
 	// to the start of its step's dose.
 	OpenS float64
@@ -377,8 +402,24 @@ type Window struct {
 // Yield summarises the dopant windows' outcome.
 type Yield struct {
 	Windows int
-	// All is the probability that every window takes exactly one donor.
+	// All is the probability that every window is good (the product of
+	// their probabilities: exact).
 	All float64
+	// All68 and All95 are the 68 % and 95 % intervals of All from the
+	// templates' uncertainties: each template's P1 drawn from a beta
+	// distribution of its mean and spread (shared by every window of the
+	// template), YieldSamples times; Log10All68 and Log10All95 are the
+	// same in log10, finite where All underflows.
+	All68      [2]float64
+	All95      [2]float64
+	Log10All68 [2]float64
+	Log10All95 [2]float64
+	// ExpectedEmpty and ExpectedMultiple are the expected numbers of
+	// windows opened as drawn that take no donor and two or more;
+	// ExpectedMisopened the expected number not opened as drawn.
+	ExpectedEmpty     float64
+	ExpectedMultiple  float64
+	ExpectedMisopened float64
 	// MeanGood is the expected number of windows with exactly one donor.
 	MeanGood float64
 	// Distribution[k] is the probability that exactly k windows are good
@@ -398,13 +439,62 @@ type Yield struct {
 	DevicesPerPerfect float64
 }
 
-// Coverage is the result of the independent coverage check: every
-// painted site is cleared by some stroke, and no stroke clears sites
-// outside its region beyond the model's edge allowance.
+// Coverage is the result of the independent coverage check: from the
+// strokes' geometry alone and the exposure model (see ExposureModel),
+// the expected number of each region's sites left (missed) and of sites
+// outside every region cleared (stray), and every site outside the
+// regions, beyond their edge allowance, that clears more likely than the
+// profile's stray limit: each such site is an error.
 type Coverage struct {
-	OK          bool
-	Sites       int // painted sites to clear
-	Uncovered   int // painted sites no stroke clears
-	Overcleared int // sites outside any region cleared beyond the allowance
-	Issues      []string
+	// OK reports whether no site outside every region clears with a
+	// probability above StrayLimit.
+	OK         bool
+	Sites      int     // painted sites to clear
+	StrayLimit float64 // the profile's limit
+	// ExpectedMissed and ExpectedStray are the sums over the regions.
+	ExpectedMissed float64
+	ExpectedStray  float64
+	Regions        []RegionCoverage
+	// OverLimit is the number of sites outside every region that clear
+	// with a probability above StrayLimit; StraySites lists them (the
+	// first MaxStraySites), each an error.
+	OverLimit  int
+	StraySites []StraySite
+	// Issues describes the first few errors in words.
+	Issues []string
+}
+
+// MaxStraySites caps Coverage.StraySites.
+const MaxStraySites = 10000
+
+// RegionCoverage is the coverage expectation of one region.
+type RegionCoverage struct {
+	Region string
+	Sites  int
+	// ExpectedMissed is the expected number of the region's sites left
+	// with their H.
+	ExpectedMissed float64
+	// ExpectedStray is the expected number of sites outside every region
+	// that the region's strokes clear beyond its edge allowance, with the
+	// spurious dangling bonds along its AP lines (ExpectedSpurious, the
+	// profile's background rate).
+	ExpectedStray    float64
+	ExpectedSpurious float64
+	// Probability is the probability that the region is written without
+	// error: every site cleared, no stray site and no spurious dangling
+	// bond; Log10Probability its log10, finite where it underflows.
+	Probability      float64
+	Log10Probability float64
+}
+
+// StraySite is a site outside every region, beyond the edge allowance,
+// that clears with a probability above the stray limit.
+type StraySite struct {
+	Site        lattice.Site
+	At          r2.Point
+	Probability float64
+	// Region and Stroke name the region and the stroke that give the
+	// site most of its exposure (Stroke −1 when none is known).
+	Region string
+	Stroke int
 }

@@ -325,7 +325,7 @@ func TestParetoLoadsKeepTheBinding(t *testing.T) {
 func TestSampleTimesMatchesGonum(t *testing.T) {
 	p := DefaultProfile()
 	tm := timeModel{schedule: Breakdown{APWriteS: 600, FEWriteS: 600, RegistrationS: 900, AnnealS: 3720}, writeS: 1200, dwells: 40}
-	tm.schedule.DwellS = 40 * p.Dwell.ExpectedS()
+	tm.schedule.DwellS = 40 * p.DwellExpectedS()
 	tm.tipChange.enabled, tm.tipChange.meanS, tm.tipChange.costS = true, 1800, 856
 	tm.repairs = []repairModel{{missed: 3, perSiteS: 25}, {missed: 0.5, perSiteS: 25}}
 	tm.schedule.RepairS = 3.5 * 25

@@ -34,9 +34,8 @@ type feature struct {
 }
 
 // strokeMissed is the expected number of the stroke's own sites it
-// leaves (the exposure model of the lithography-physics work; 0 until a
-// stroke carries it).
-func strokeMissed(s *Stroke) float64 { return 0 }
+// leaves, from the exposure model (the coverage expectation).
+func strokeMissed(s *Stroke) float64 { return s.ExpectedMissed }
 
 // planModel returns the values the segments are planned for: drift rate
 // and creep fraction at the level quantile of their log-normal spread,
@@ -395,7 +394,7 @@ func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline
 	}
 	verifyOn := ses.Verification.Enabled
 	repairOn := ses.Repair.Enabled
-	perSite := prof.Dwell.ExpectedS() + ImageProfile{PixelNM: ses.Verification.PixelNM, LineS: ses.Verification.LineS}.TimeS(ses.Repair.ReimageNM, ses.Repair.ReimageNM)
+	perSite := prof.DwellExpectedS() + ImageProfile{PixelNM: ses.Verification.PixelNM, LineS: ses.Verification.LineS}.TimeS(ses.Repair.ReimageNM, ses.Repair.ReimageNM)
 	seg := 0
 	windowEnd := map[int]float64{} // window index -> end of its write
 	for k, stw := range steps {

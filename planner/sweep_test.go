@@ -78,8 +78,8 @@ func TestSweepRefusesBadInputAndPlansNothing(t *testing.T) {
 		{"every bad value is listed", "drift.registration_s", []string{"-1", "x", "100"},
 			[]string{"2 values refused", "drift.registration_s = -1", `drift.registration_s = "x": not a number`}},
 		{"passes must be whole", "ap.passes", []string{"1.5"}, []string{"whole number"}},
-		{"a value the dose model refuses", "ap.line_dose_c_per_cm", []string{"1e-4"},
-			[]string{"ap.width.threshold_dose_c_per_cm", "must be below the delivered dose"}},
+		{"a value the dose model refuses", "ap.line_dose_c_per_cm", []string{"1e-5"},
+			[]string{"ap.line_dose_c_per_cm = 1e-05", "lines would clear less than half their sites"}},
 		{"array beyond the field", "array:donors", []string{"6x4", "400x4"},
 			[]string{"array donors = 400x4", "column 400", "off the lattice", "at most"}},
 		{"array beyond the file's limit", "array:donors", []string{"3000x3000"},
@@ -216,8 +216,8 @@ func ExamplePlanSweep() {
 	}
 	// Output:
 	// drift.rate_nm_per_min = 0.02 nm/min: 3 segment(s)
-	// drift.rate_nm_per_min = 0.5 nm/min: 3 segment(s)
-	// drift.rate_nm_per_min = 2 nm/min: 11 segment(s)
+	// drift.rate_nm_per_min = 0.5 nm/min: 5 segment(s)
+	// drift.rate_nm_per_min = 2 nm/min: 10 segment(s)
 }
 
 // TestSweepOfTheDemoSharesItsLayoutSafely plans the demo (FE pads,

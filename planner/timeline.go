@@ -166,7 +166,7 @@ func (tl *timeline) scheduleStep(sg *segmenter, starts []int, kinds []Registrati
 		if jb.dwell {
 			a.Kind = ActDwell
 			a.BiasV, a.CurrentA, a.SpeedNMPS = prof.Dwell.BiasV, prof.Dwell.CurrentA, 0
-			a.Note = fmt.Sprintf("expected %.3g s; stop at completion or after %.3g s", jb.writeS, prof.Dwell.CapS())
+			a.Note = fmt.Sprintf("expected %.3g s; stop at completion or after %.3g s", jb.writeS, prof.DwellCapS())
 		}
 		tl.add(a, seg)
 		prevMode = jb.mode

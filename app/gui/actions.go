@@ -363,7 +363,9 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 				steps = append(steps, st.Species)
 			}
 		}
-		for _, t := range []string{r.Variant, units.Duration(p.TotalS), units.Duration(p.P10S) + " – " + units.Duration(p.P90S),
+		// Times to the second (h:mm:ss): variants a few seconds apart read
+		// alike in whole minutes.
+		for _, t := range []string{r.Variant, units.Clock(p.TotalS), units.Clock(p.P10S) + " – " + units.Clock(p.P90S),
 			strings.Join(steps, ", "), formatProbability(p.PInTolerance), all} {
 			cells = append(cells, widget.NewLabel(t))
 		}
@@ -380,7 +382,7 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 			}
 			cells = append(cells, l)
 		}
-		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: units.Duration(p.TotalS), Color: render.SegmentColor(i)})
+		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: units.Clock(p.TotalS), Color: render.SegmentColor(i)})
 		yieldBars = append(yieldBars, Bar{Label: r.Variant, Value: p.Yield.All, Text: all, Color: colYield})
 	}
 	table := container.New(&tableLayout{cols: cols}, cells...)

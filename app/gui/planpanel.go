@@ -151,7 +151,8 @@ func (p *planPanel) refresh() {
 		}
 	}
 	if !pl.Coverage.OK {
-		l := wrapLabel("Coverage check FAILED: see Segments and strokes below.")
+		l := wrapLabel(fmt.Sprintf("Coverage check FAILED: %d site(s) outside every region clear with more than %s; they are marked on the lattice (see Coverage below).",
+			pl.Coverage.OverLimit, formatProbability(pl.Coverage.StrayLimit)))
 		l.Importance = widget.DangerImportance
 		objs = append(objs, l)
 	}
@@ -183,8 +184,31 @@ func (p *planPanel) refresh() {
 		} else if y.All == 0 {
 			dev = "no number of devices suffices"
 		}
-		objs = append(objs, wrapLabel(fmt.Sprintf("%d windows. Every window takes exactly one donor: %s.\nGood windows expected: %.1f of %d.\nDevices to write for one perfect device: %s.",
-			y.Windows, formatProbability(y.All), y.MeanGood, y.Windows, dev)))
+		intervals := ""
+		if y.All95[1] >= y.All && y.All95[1] > 0 {
+			intervals = fmt.Sprintf(" (68 %%: %s, 95 %%: %s, from the templates' uncertainties)",
+				units.ProbabilityRange(y.All68, y.Log10All68), units.ProbabilityRange(y.All95, y.Log10All95))
+		}
+		all := formatProbability(y.All)
+		if y.All == 0 {
+			all = units.Probability(y.All, y.Log10All)
+		}
+		objs = append(objs, wrapLabel(fmt.Sprintf("%d windows. Every window opened as drawn with exactly one donor: %s%s.\n"+
+			"Good windows expected: %.1f of %d. Expected bad: %.2g without a donor, %.2g with two or more, %.2g not opened as drawn.\nDevices to write for one perfect device: %s.",
+			y.Windows, all, intervals, y.MeanGood, y.Windows, y.ExpectedEmpty, y.ExpectedMultiple, y.ExpectedMisopened, dev)))
+		for i, w := range pl.Windows {
+			if i == 8 {
+				objs = append(objs, mutedLabel(fmt.Sprintf("… and %d more windows (all in the exported plan).", len(pl.Windows)-8)))
+				break
+			}
+			p1 := formatProbability(w.P1)
+			if w.P1SD > 0 {
+				p1 += " ± " + formatProbability(w.P1SD)
+			}
+			objs = append(objs, mutedLabel(fmt.Sprintf("%s window of %s at (%.1f, %.1f) nm: opened as drawn %s; p0 %s, p1 %s, p≥2 %s; good %s",
+				w.Template, w.Region, w.At.X, w.At.Y, formatProbability(w.OpenProbability), formatProbability(w.P0), p1,
+				formatProbability(w.P2Plus), formatProbability(w.Probability))))
+		}
 		if len(y.Distribution) > 1 {
 			objs = append(objs, NewBarChart(yieldBars(y)))
 		}
@@ -201,15 +225,26 @@ func (p *planPanel) refresh() {
 	for _, c := range pl.Couplings {
 		objs = append(objs, wrapLabel(fmt.Sprintf("%s %s / %s ±%.2g nm: within tolerance %s.", c.Kind, c.A, c.B, c.ToleranceNM, formatProbability(c.PInTolerance))))
 	}
-	cov := "Coverage check passed: every painted site is written and nothing outside the regions is cleared beyond the edge allowance."
-	if !pl.Coverage.OK {
-		cov = fmt.Sprintf("Coverage check FAILED: %d painted sites not written, %d sites cleared outside the regions. %s", pl.Coverage.Uncovered, pl.Coverage.Overcleared, strings.Join(pl.Coverage.Issues, "; "))
+	c := pl.Coverage
+	objs = append(objs, widget.NewSeparator(), heading("Coverage (exposure model)"))
+	cov := fmt.Sprintf("Passed: no site outside the regions clears with more than %s. Expected: %.3g of %d sites left with their H, %.3g stray sites cleared outside the regions.",
+		formatProbability(c.StrayLimit), c.ExpectedMissed, c.Sites, c.ExpectedStray)
+	if !c.OK {
+		cov = fmt.Sprintf("FAILED: %d site(s) outside every region clear with more than %s. %s", c.OverLimit, formatProbability(c.StrayLimit), strings.Join(c.Issues, "; "))
 	}
 	cl := wrapLabel(cov)
-	if !pl.Coverage.OK {
+	if !c.OK {
 		cl.Importance = widget.DangerImportance
 	}
 	objs = append(objs, cl)
+	for _, r := range c.Regions {
+		pr := formatProbability(r.Probability)
+		if r.Probability < 1e-4 {
+			pr = units.Probability(r.Probability, r.Log10Probability)
+		}
+		objs = append(objs, mutedLabel(fmt.Sprintf("%s: %d sites, %.3g expected missed, %.3g stray (%.3g spurious), P(no error) %s",
+			r.Region, r.Sites, r.ExpectedMissed, r.ExpectedStray, r.ExpectedSpurious, pr)))
+	}
 	if len(pl.Modes) > 0 {
 		objs = append(objs, widget.NewSeparator(), heading("Write modes"))
 		for _, m := range pl.Modes {

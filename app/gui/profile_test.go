@@ -47,10 +47,10 @@ func TestProfileEditorRefusesBadValues(t *testing.T) {
 		t.Errorf("message %q does not name the field", e.msg.Text)
 	}
 
-	cur.SetText("0.05")
+	cur.SetText("1")
 	e.apply()
-	if got := u.Session.Profile.AP.CurrentA; math.Abs(got-0.05e-9) > 1e-21 {
-		t.Errorf("after a valid Apply the AP current is %g A, want 5e-11 A", got)
+	if got := u.Session.Profile.AP.CurrentA; math.Abs(got-1e-9) > 1e-21 {
+		t.Errorf("after a valid Apply the AP current is %g A, want 1e-9 A", got)
 	}
 	if err := u.Session.Profile.Validate(); err != nil {
 		t.Errorf("applied profile does not validate: %v", err)

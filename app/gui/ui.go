@@ -531,7 +531,12 @@ func (u *UI) templateInfo(name string) fyne.CanvasObject {
 	if !ok {
 		return widget.NewLabel("")
 	}
-	l := widget.NewLabel(fmt.Sprintf("%d dimers on one row, %d sites; single-donor probability %.0f %%", t.Dimers, 2*t.Dimers, 100*t.Probability))
+	p1 := fmt.Sprintf("%.0f %%", 100*t.P1)
+	if t.P1SD > 0 {
+		p1 = fmt.Sprintf("%.0f ± %.0f %%", 100*t.P1, 100*t.P1SD)
+	}
+	l := widget.NewLabel(fmt.Sprintf("%d dimers on one row, %d sites; one donor %s, none %.0f %%, two or more %.0f %%",
+		t.Dimers, t.Sites(), p1, 100*t.P0, 100*t.P2Plus))
 	l.Wrapping = fyne.TextWrapWord
 	l.Importance = widget.LowImportance
 	return l

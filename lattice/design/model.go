@@ -83,6 +83,11 @@ type Terrace struct {
 	// this terrace's rows are then turned by 90° from that one's and its
 	// lattice shifted by lattice.StepShift (see lattice.Terrace.AcrossStep).
 	StepFrom string `json:"step_from,omitempty"`
+	// Step says which way the step from StepFrom goes: "up" (this
+	// terrace lies one atomic layer higher) or "down". The two give
+	// lattices a/2 (0.27 nm) apart. Files that leave it out (version 1)
+	// are read as "down", and the step-registry rule warns.
+	Step string `json:"step,omitempty"`
 }
 
 // Fiducial is a mark the operator images to re-register the tip's

@@ -82,8 +82,8 @@ func (d *Design) validate(ps *problems) {
 	d.validateRules(ps)
 	for i, t := range d.WindowTemplates {
 		path := fmt.Sprintf("templates[%d]", i)
-		if err := t.Validate(); err != nil {
-			ps.add(path, "%v", err)
+		for _, p := range t.Normalized().Problems() {
+			ps.add(path+"."+p.Field, "%v: %s", p.Value, p.Problem)
 		}
 		for j := range i {
 			if d.WindowTemplates[j].Name == t.Name {
@@ -211,6 +211,13 @@ func (d *Design) validateTerraces(ps *problems) bool {
 					ok = false
 				}
 			}
+			if _, err := ParseStep(t.Step); err != nil {
+				ps.add(path+".step", "%v", err)
+				ok = false
+			}
+		} else if t.Step != "" {
+			ps.add(path+".step", "%q needs step_from: the terrace it steps from", t.Step)
+			ok = false
 		} else if _, err := ParseRows(t.Rows); err != nil {
 			ps.add(path+".rows", "%v (or give step_from)", err)
 			ok = false

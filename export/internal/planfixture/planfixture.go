@@ -279,7 +279,7 @@ func (b *builder) dwell(region string, at r2.Point, species, template string, pr
 	// completion), a fixture value.
 	open := math.Pow(0.99, float64(sites))
 	b.p.Windows = append(b.p.Windows, planner.Window{Region: region, Species: species, Template: template,
-		At: at, Sites: sites, OpenProbability: open, Probability: prob * open})
+		At: at, Sites: sites, OpenProbability: open, P0: 1 - prob, P1: prob, P1SD: 0.05, Probability: prob * open})
 	return b.add(planner.Stroke{Region: region, Mode: design.ModeAP, Kind: planner.StrokeDwell, Path: []r2.Point{at},
 		Passes: 1, DurationS: dwellS, Sites: sites, ToleranceNM: 0.2, Window: len(b.p.Windows) - 1})
 }
@@ -507,11 +507,27 @@ func (b *builder) finish() *planner.Plan {
 		probs[i] = w.Probability
 	}
 	p.Yield = yieldOf(probs)
+	// Fixture intervals (a tenth either side in log10), not a sampling.
+	l := p.Yield.Log10All
+	p.Yield.Log10All68 = [2]float64{1.1 * l, 0.9 * l}
+	p.Yield.Log10All95 = [2]float64{1.2 * l, 0.8 * l}
+	for k := range 2 {
+		p.Yield.All68[k], p.Yield.All95[k] = math.Pow(10, p.Yield.Log10All68[k]), math.Pow(10, p.Yield.Log10All95[k])
+	}
+	for _, w := range p.Windows {
+		p.Yield.ExpectedEmpty += w.OpenProbability * w.P0
+		p.Yield.ExpectedMisopened += 1 - w.OpenProbability
+	}
 	sites := 0
 	for _, m := range p.Modes {
 		sites += m.Sites
 	}
-	p.Coverage = planner.Coverage{OK: true, Sites: sites}
+	// A fixture expectation: a thousandth of the sites missed, none stray.
+	p.Coverage = planner.Coverage{OK: true, Sites: sites, StrayLimit: 0.01, ExpectedMissed: 1e-3 * float64(sites)}
+	for _, m := range p.Modes {
+		p.Coverage.Regions = append(p.Coverage.Regions, planner.RegionCoverage{Region: m.Region, Sites: m.Sites,
+			ExpectedMissed: 1e-3 * float64(m.Sites), Probability: math.Exp(-1e-3 * float64(m.Sites)), Log10Probability: -1e-3 * float64(m.Sites) / math.Ln10})
+	}
 	return p
 }
 
