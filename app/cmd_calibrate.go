@@ -15,16 +15,22 @@ func init() {
 	Register(&Command{
 		Name:    "calibrate",
 		Usage:   "calibrate MEAS.csv -o PROFILE.json [--profile BASE.json] [--mode ap|fe]",
-		Summary: "fit the line-width-vs-dose model to your test lines and write an instrument profile",
+		Summary: "fit the exposure model (footprint σ, yield per electron) to your test lines and write an instrument profile",
 		Help: `MEAS.csv holds one written test line per record, with a header naming the
 columns: bias_v, current_a (amperes) or current_na (nanoamperes),
 speed_nm_per_s, width_nm (0 for no visible line) and optionally mode (ap or
-fe). '#' lines are comments. The dose of each line is current / speed; the
-fit is linear least squares on width² = a + b·ln(dose), which gives the
-Gaussian footprint σ = sqrt(b/8) and the threshold dose exp(-a/b). The fitted
-model replaces the width model of the base profile (--profile: a profile file
-or a preset name, rt or lt; default rt), and the result is written to -o for
-"dimerpath plan --profile".`,
+fe) and direction (along or across the dimer rows). '#' lines are comments.
+The dose of each line is current / speed. A line clears its sites with
+probability 1 − exp(−Y·N_e), so its width obeys
+width² = 8σ²·ln(Y·(dose/e)·(1/n_H)/(√(2π)σ·ln 2)): the fit gives the footprint
+σ and the yield per electron Y at the lines' bias and current (and how Y
+grows with current and bias, when the lines span several), each with its
+standard error and 95 % interval. Lines that wrote nothing are censored
+observations (maximum likelihood); otherwise the fit is least squares.
+Lines along and across the rows are fitted apart. The fitted values
+replace those of the base profile (--profile: a profile file or a preset
+name, rt or lt; default rt), and the result is written to -o for
+"dimerpath plan --profile". Nothing is written when the fit fails.`,
 		Flags: func(fs *flag.FlagSet) func(Env, []string) int {
 			out := fs.String("o", "", "write the calibrated profile to `PROFILE.json` (required)")
 			base := fs.String("profile", "", "base profile: a `FILE` or a preset (rt, lt); default rt")
@@ -83,22 +89,48 @@ or a preset name, rt or lt; default rt), and the result is written to -o for
 	})
 }
 
-func printFit(env Env, fit planner.WidthFit) {
+func printFit(env Env, fit planner.LineFit) {
 	w := env.Stdout
-	fmt.Fprintf(w, "%s width model: w² = %.4g nm² + %.4g nm² · ln(dose / 1 C/cm)\n", fit.Mode.Abbrev(), fit.A, fit.B)
-	if fit.Model.SigmaNM > 0 {
-		fmt.Fprintf(w, "  sigma %.4g nm, threshold dose %.4g mC/cm, R² %.4f, RMS residual %.3g nm, %d lines fitted",
-			fit.Model.SigmaNM, fit.Model.ThresholdDoseCPerCm*1e3, fit.RSquared, fit.RMSNM, fit.Points)
-		if fit.Skipped > 0 {
-			fmt.Fprintf(w, " (%d without a line left out)", fit.Skipped)
+	what := fit.Mode.Abbrev() + " lines"
+	if fit.Direction != "" {
+		what += " " + fit.Direction + " the dimer rows"
+	}
+	method := "least squares"
+	if fit.Censored > 0 {
+		method = fmt.Sprintf("maximum likelihood, %d that wrote nothing censored", fit.Censored)
+	}
+	fmt.Fprintf(w, "%s: %d lines (%s)", what, fit.Lines, method)
+	if fit.Regime != "" {
+		fmt.Fprintf(w, ", %s regime", fit.Regime)
+	}
+	fmt.Fprintln(w)
+	if fit.Sigma.Value > 0 {
+		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+		est := func(name string, e planner.Estimate, scale float64, unit, format string) {
+			f := func(v float64) string { return fmt.Sprintf(format, v*scale) }
+			fmt.Fprintf(tw, "  %s\t%s %s\t± %.2g\t95%%: %s to %s\n", name, f(e.Value), unit, e.SE*scale, f(e.Lo95), f(e.Hi95))
 		}
-		fmt.Fprintln(w)
+		est("footprint σ", fit.Sigma, 1, "nm", "%.4g")
+		est(fmt.Sprintf("yield Y at %.2f V, %.3g nA", fit.RefBiasV, fit.RefCurrentA*1e9), fit.Yield, 1, "H/e", "%.3g")
+		est("threshold dose (a line appears)", fit.ThresholdDose, 1e3, "mC/cm", "%.3g")
+		if fit.Order != nil {
+			est("order n (rate ∝ I^n)", *fit.Order, 1, "", "%.3g")
+		}
+		if fit.DecadeV != nil {
+			est("bias per decade of Y", *fit.DecadeV, 1, "V", "%.3g")
+		}
+		tw.Flush()
+		fmt.Fprintf(w, "  residual SD of width² %.3g nm² (%d degrees of freedom); correlation of σ and ln Y %+.2f\n", fit.ResidualSDNM2, fit.DOF, fit.CorrSigmaYield)
 	}
 	if len(fit.Residuals) > 0 {
 		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-		fmt.Fprintln(tw, "  line\tdose mC/cm\tmeasured nm\tfitted nm\tresidual nm\t")
+		fmt.Fprintln(tw, "  line\tdose mC/cm\tcurrent nA\tbias V\tmeasured nm\tfitted nm\tresidual nm\t")
 		for _, r := range fit.Residuals {
-			fmt.Fprintf(tw, "  %d\t%.4g\t%.3f\t%.3f\t%+.3f\t\n", r.Line, r.DoseCPerCm*1e3, r.WidthNM, r.FitNM, r.ResidualNM)
+			res := fmt.Sprintf("%+.3f", r.ResidualNM)
+			if r.Censored {
+				res = "no line"
+			}
+			fmt.Fprintf(tw, "  %d\t%.4g\t%.3g\t%.2f\t%.3f\t%.3f\t%s\t\n", r.Line, r.DoseCPerCm*1e3, r.CurrentA*1e9, r.BiasV, r.WidthNM, r.FitNM, res)
 		}
 		tw.Flush()
 	}

@@ -70,12 +70,12 @@ func TestInfoCommand(t *testing.T) {
 	}
 	for _, w := range []string{
 		"Kestrel-7 donor-pair sensor",
-		"upper: rows along y, one step from lower, offset (0.000, 0.192) nm",
+		"upper: rows along y, one step up from lower, offset (0.192, 0.000) nm",
 		"F-east at (1700, 1000) nm",
-		"P: P, 3 dimers (6 H sites), single-donor probability 0.63",
+		"P: P, 3 dimers (6 H sites), donors taken: one 0.63 ± 0.10, none 0.37 ± 0.10, two or more 0.00",
 		"Variant gap-12-source",
-		"sensor-island    device         AP    -        ±0.20 nm   1560",
-		"pad-source       contact pad    FE",
+		"sensor-island    device                 AP    -        ±0.20 nm   1560",
+		"pad-source       contact pad (pad)      FE",
 		"tunnel gap sensor-island – source-lead: 9.22 nm (12.0 dimer rows across the rows)",
 	} {
 		if !strings.Contains(out, w) {

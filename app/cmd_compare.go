@@ -18,12 +18,13 @@ func init() {
 		Usage:   "compare DESIGN.json [--profile P.json] [--seed N] [-o REPORT.pdf|.svg] [--paper a4|letter] [--date YYYY-MM-DD]",
 		Summary: "plan every variant of a design and compare write time, breakdown and yield",
 		Help: `Plans every variant of the design with the same instrument profile and seed,
-and prints one table row per variant: expected total write time with its
-P10-P90 spread, the time by kind (AP and FE writing, dwells, travel, mode
-switches, registrations, verification), the number of segments, the
-probability that every dopant window takes exactly one donor and the
-coverage check; then what differs from the first variant (tunnel gap
-widths, regions, window counts). A variant that
+and prints one table row per variant: the session time (the mean of the
+Monte Carlo on its plan) with its P10-P90 spread, its lithography steps, the
+number of segments, the probability that every stroke stays within its
+tolerance and that every dopant window takes exactly one donor, and the
+coverage check; then the time by kind (writing, travel, registrations,
+survey, conditioning, tip changes, doses, anneals, ...) and what differs
+from the first variant (tunnel gap widths, regions, window counts). A variant that
 cannot be planned (for example one needing values beyond the profile's
 limits) gets its reason in place of a row; the exit status is then 2.
 
@@ -83,19 +84,19 @@ file and renamed into place, also when some variant could not be planned
 	})
 }
 
-// printComparison writes the comparison table (times to the second),
-// each variant's coverage check, and then how each variant differs from
-// the first, so two rows that look alike still tell what changed.
+// printComparison writes the comparison table: per variant the session
+// time (Monte Carlo mean) with its spread, the lithography steps, the
+// segments, the probability that every stroke stays within its tolerance
+// and that every window is good, and the coverage check; then the time by
+// kind, in seconds, for the kinds any variant has; then how each variant
+// differs from the first, so two rows that look alike still tell what
+// changed.
 func printComparison(w io.Writer, results []planner.VariantResult) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprint(tw, "variant\ttotal\tP10\tP90\t")
-	for _, k := range planner.TimeKinds {
-		fmt.Fprintf(tw, "%s s\t", k.Short())
-	}
-	fmt.Fprintln(tw, "segments\tP(all windows good)\tcoverage\t")
+	fmt.Fprintln(tw, "variant\tsession (mean)\tP10\tP90\tlithography steps\tsegments\tP(within tolerance)\tP(all windows good)\tcoverage\t")
 	for _, r := range results {
 		if r.Err != nil {
-			fmt.Fprintf(tw, "%s\tnot planned\t%s\n", r.Variant, strings.Repeat("\t", len(planner.TimeKinds)+5))
+			fmt.Fprintf(tw, "%s\tnot planned\t\t\t\t\t\t\t\t\n", r.Variant)
 			continue
 		}
 		p := r.Plan
@@ -103,13 +104,41 @@ func printComparison(w io.Writer, results []planner.VariantResult) {
 		if p.Yield.All == 0 && p.Yield.Windows > 0 {
 			all = fmt.Sprintf("10^%.1f", p.Yield.Log10All)
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t", r.Variant, units.Duration(p.TotalS), units.Duration(p.P10S), units.Duration(p.P90S))
-		for _, k := range planner.TimeKinds {
-			fmt.Fprintf(tw, "%.0f\t", p.Breakdown.Seconds(k))
-		}
-		fmt.Fprintf(tw, "%d\t%s\t%s\t\n", len(p.Segments), all, coverageWord(p))
+		// Times to the second (h:mm:ss): two variants a few seconds apart
+		// read alike in whole minutes.
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%d\t%.3f\t%s\t%s\t\n", r.Variant, units.Clock(p.TotalS), units.Clock(p.P10S), units.Clock(p.P90S),
+			lithographySteps(p), len(p.Segments), p.PInTolerance, all, coverageWord(p))
 	}
 	tw.Flush()
+	var kinds []planner.TimeKind
+	for _, k := range planner.TimeKinds {
+		for _, r := range results {
+			if r.Err == nil && r.Plan.Breakdown.Seconds(k) > 0 {
+				kinds = append(kinds, k)
+				break
+			}
+		}
+	}
+	if len(kinds) > 0 {
+		fmt.Fprintln(w, "\ntime by kind, s (means over the Monte Carlo samples)")
+		tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+		fmt.Fprint(tw, "variant\t")
+		for _, k := range kinds {
+			fmt.Fprintf(tw, "%s\t", k.Short())
+		}
+		fmt.Fprintln(tw)
+		for _, r := range results {
+			if r.Err != nil {
+				continue
+			}
+			fmt.Fprintf(tw, "%s\t", r.Variant)
+			for _, k := range kinds {
+				fmt.Fprintf(tw, "%.0f\t", r.Plan.Breakdown.Seconds(k))
+			}
+			fmt.Fprintln(tw)
+		}
+		tw.Flush()
+	}
 	if len(results) < 2 {
 		return
 	}
@@ -135,4 +164,22 @@ func coverageWord(p *planner.Plan) string {
 		return "passed"
 	}
 	return "FAILED"
+}
+
+// lithographySteps names a plan's lithography steps in order: "As, P".
+func lithographySteps(p *planner.Plan) string {
+	var sp []string
+	for _, st := range p.Steps {
+		if st.Kind == planner.StepLithography {
+			name := st.Species
+			if name == "" {
+				name = "no dopant"
+			}
+			sp = append(sp, name)
+		}
+	}
+	if len(sp) == 0 {
+		return "–"
+	}
+	return strings.Join(sp, ", ")
 }

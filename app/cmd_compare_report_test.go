@@ -4,6 +4,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -19,7 +20,7 @@ func TestCompareSaysWhatDiffers(t *testing.T) {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
 	for _, want := range []string{
-		"29 min 33 s", // gap-9, to the second
+		"session (mean)", "As, P", "P(within tolerance)",
 		"coverage",
 		"What differs from gap-9:",
 		"tunnel gap sensor-island – source-lead: 6.91 nm (9.0 dimer rows across the rows) → 9.22 nm (12.0 dimer rows across the rows)",
@@ -31,6 +32,18 @@ func TestCompareSaysWhatDiffers(t *testing.T) {
 	}
 	if n := strings.Count(out, "passed"); n != 2 {
 		t.Errorf("%d coverage results passed, want one per variant:\n%s", n, out)
+	}
+	// Each variant's session time, P10 and P90 to the second (h:mm:ss),
+	// and the two totals, seconds apart, differ on the page.
+	clock := regexp.MustCompile(`^\s*(gap-9|gap-12-source)\s+(\d+:\d\d:\d\d)\s+\d+:\d\d:\d\d\s+\d+:\d\d:\d\d\s`)
+	totals := map[string]string{}
+	for _, l := range strings.Split(out, "\n") {
+		if m := clock.FindStringSubmatch(l); m != nil {
+			totals[m[1]] = m[2]
+		}
+	}
+	if len(totals) != 2 || totals["gap-9"] == totals["gap-12-source"] {
+		t.Errorf("session times %v: want both variants' to the second, and different:\n%s", totals, out)
 	}
 }
 

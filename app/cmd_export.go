@@ -132,7 +132,23 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	}
 	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, expected %s%s)\n",
 		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), units.Duration(p.TotalS), size)
-	return ExitOK
+	return coverageExit(env, "export", p)
+}
+
+// coverageExit reports a plan whose coverage check failed (a site outside
+// every region clears above the stray limit) and returns ExitFindings for
+// it, ExitOK otherwise: the plan is written all the same, with the error
+// on its first page.
+func coverageExit(env Env, cmd string, p *planner.Plan) int {
+	c := p.Coverage
+	if c.OK {
+		return ExitOK
+	}
+	fmt.Fprintf(env.Stderr, "dimerpath %s: coverage error: %d site(s) outside every region clear with more than %.3g %%:\n", cmd, c.OverLimit, 100*c.StrayLimit)
+	for _, is := range c.Issues {
+		fmt.Fprintln(env.Stderr, "  "+is)
+	}
+	return ExitFindings
 }
 
 // planDesign plans the chosen variant of the design in data, reporting

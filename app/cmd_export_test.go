@@ -76,7 +76,7 @@ func TestExportRefuses(t *testing.T) {
 	if err := os.WriteFile(existing, []byte("old"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	broken := writeFile(t, "broken.json", `{"format": "dimerpath-plan", "version": 1, "strokes": [{"id": 3}]}`)
+	broken := writeFile(t, "broken.json", `{"format": "dimerpath-plan", "version": 2, "strokes": [{"id": 3}]}`)
 	for _, tc := range []struct {
 		name string
 		args []string

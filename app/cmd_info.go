@@ -84,7 +84,11 @@ func printInfo(w io.Writer, file string, d *design.Design, variant string) error
 		}
 		step := ""
 		if i < len(d.Terraces) && d.Terraces[i].StepFrom != "" {
-			step = fmt.Sprintf(", one step from %s", d.Terraces[i].StepFrom)
+			dir := d.Terraces[i].Step
+			if dir == "" {
+				dir = "down (no \"step\" given)"
+			}
+			step = fmt.Sprintf(", one step %s from %s", dir, d.Terraces[i].StepFrom)
 		}
 		fmt.Fprintf(tw, "%s\t%s: rows along %s%s, offset (%.3f, %.3f) nm, %d H sites; %s\n",
 			label, t.Name, t.Rows, step, t.Offset.X, t.Offset.Y, perTerrace[i], extent)
@@ -106,7 +110,8 @@ func printInfo(w io.Writer, file string, d *design.Design, variant string) error
 		if i == 0 {
 			label = "Templates"
 		}
-		fmt.Fprintf(tw, "%s\t%s: %s, %d dimers (%d H sites), single-donor probability %.2f (%s)\n", label, n, t.Species, t.Dimers, t.Sites(), t.Probability, t.Source)
+		fmt.Fprintf(tw, "%s\t%s: %s, %d dimers (%d H sites), donors taken: one %s, none %s, two or more %s (%s)\n",
+			label, n, t.Species, t.Dimers, t.Sites(), withSD(t.P1, t.P1SD), withSD(t.P0, t.P0SD), withSD(t.P2Plus, t.P2PlusSD), t.Source)
 	}
 	fmt.Fprintf(tw, "Rules\t>= %d intact dimer(s) between windows, facing rows %d, FE keep-out %g nm, tunnel gaps %.2f–%.2f nm\n",
 		rs.WindowGapDimers, rs.WindowFacingRows, rs.FEKeepOutNM, rs.TunnelGapMinNM, rs.TunnelGapMaxNM)
@@ -137,7 +142,7 @@ func printInfo(w io.Writer, file string, d *design.Design, variant string) error
 			if !rl.Bounds.IsEmpty() {
 				box = rectString(rl.Bounds)
 			}
-			fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t±%.2f nm\t%d\t%d\t%s\n", r.Name, r.Role.Name(), r.EffectiveMode().Abbrev(), species, rl.ToleranceNM, rl.Sites.Count(), len(rl.Windows), box)
+			fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t±%.2f nm\t%d\t%d\t%s\n", r.Name, r.Role.Label(), r.EffectiveMode().Abbrev(), species, rl.ToleranceNM, rl.Sites.Count(), len(rl.Windows), box)
 			total += rl.Sites.Count()
 			windows += len(rl.Windows)
 		}
@@ -174,4 +179,12 @@ func wrap(text string, width int, prefix string) string {
 		line += len(word)
 	}
 	return b.String()
+}
+
+// withSD prints a probability with its standard deviation when it has one.
+func withSD(p, sd float64) string {
+	if sd == 0 {
+		return fmt.Sprintf("%.2f", p)
+	}
+	return fmt.Sprintf("%.2f ± %.2f", p, sd)
 }

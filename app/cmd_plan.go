@@ -67,10 +67,10 @@ cleanly.`,
 						fmt.Fprintln(env.Stderr, "dimerpath plan:", err)
 						return ExitFailure
 					}
-					return ExitOK
+					return coverageExit(env, "plan", p)
 				}
-				printPlan(env.Stdout, p, run.profile.Drift.RateNMPerMin)
-				return ExitOK
+				printPlan(env.Stdout, p)
+				return coverageExit(env, "plan", p)
 			}
 		},
 	})
@@ -159,72 +159,109 @@ func (p *progress) done() {
 	}
 }
 
-// printSegments lists each segment: its fiducial, how long its
-// registration and its writing take, and its tightest stroke: the one
-// whose drift clock (from the end of the registration to the end of the
-// stroke) uses the largest share of that stroke's own budget, tolerance /
-// drift rate. A segment may hold AP strokes (±0.2 nm: minutes) and FE
-// strokes (±2 nm: tens of minutes), so it can last longer than the AP
-// budget while every stroke keeps its own.
-func printSegments(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
+// printSteps lists the process steps on the plan clock.
+func printSteps(w io.Writer, p *planner.Plan) {
+	if len(p.Steps) == 0 {
+		return
+	}
+	var order []string
+	for _, st := range p.Steps {
+		if st.Kind == planner.StepLithography && st.Species != "" {
+			order = append(order, st.Species)
+		}
+	}
+	fmt.Fprintf(w, "\nProcess steps (%d lithography step(s)%s; an open window takes any precursor, so each species has its own)\n", len(order), func() string {
+		if len(order) == 0 {
+			return ""
+		}
+		return ": " + strings.Join(order, ", then ")
+	}())
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "  #\tstep\tspecies\tstarts at\ttakes\twhat")
+	for i, st := range p.Steps {
+		what := st.Note
+		if st.Kind == planner.StepLithography {
+			what = fmt.Sprintf("%d segment(s); %s", len(st.Segments), st.Note)
+		}
+		fmt.Fprintf(tw, "  %d\t%s\t%s\t%s\t%s\t%s\n", i+1, st.Kind, st.Species, units.Duration(st.StartS), units.Duration(st.DurationS), what)
+	}
+	tw.Flush()
+}
+
+// printSegments lists each lithography step's segments: the kind of
+// registration and where, when the segment starts, how long it takes, its
+// tightest stroke (the one whose displacement at the planned drift,
+// creep and registration error uses the largest share of its tolerance)
+// with the budget that stroke leaves, and the sampled probability that
+// every stroke of the segment stays within its tolerance.
+func printSegments(w io.Writer, p *planner.Plan) {
 	segs := "segments"
 	if len(p.Segments) == 1 {
 		segs = "segment"
 	}
-	fmt.Fprintf(w, "\nSegments: %d strokes in %d drift-safe %s (each starts with a registration at its fiducial)\n", len(p.Strokes), len(p.Segments), segs)
-	type seg struct {
-		regEnd     float64
-		used, tol  float64 // tightest stroke: drift clock at its end, its tolerance
-		share      float64 // its clock over its budget
-		registered bool
-	}
-	ss := make([]seg, len(p.Segments))
-	for _, a := range p.Actions {
-		if a.Segment < 0 || a.Segment >= len(ss) {
+	fmt.Fprintf(w, "\nSegments: %d strokes in %d drift-safe %s (each starts with a registration: coarse on a fiducial, or local on the lattice and written features)\n", len(p.Strokes), len(p.Segments), segs)
+	listed := 0
+	for si, st := range p.Steps {
+		if st.Kind != planner.StepLithography || len(st.Segments) == 0 {
 			continue
 		}
-		g := &ss[a.Segment]
-		switch a.Kind {
-		case planner.ActRegister:
-			g.regEnd, g.registered = a.StartS+a.DurationS, true
-		case planner.ActWrite, planner.ActDwell:
-			if a.Stroke < 0 || a.Stroke >= len(p.Strokes) {
-				continue
+		fmt.Fprintf(w, "  step %d, lithography %s:\n", si+1, st.Species)
+		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+		fmt.Fprintln(tw, "    #\tregistration\tat\tstarts at\ttakes\ttightest stroke (budget)\tP(within)\tstrokes")
+		for _, gi := range st.Segments {
+			if listed == maxListed {
+				fmt.Fprintf(tw, "    ... %d more\n", len(p.Segments)-maxListed)
+				listed++
+				break
 			}
-			st := p.Strokes[a.Stroke]
-			clock := a.StartS + a.DurationS - g.regEnd
-			if b := planner.DriftBudget(st.ToleranceNM, driftNMPerMin); b > 0 && clock/b >= g.share {
-				g.used, g.tol, g.share = clock, st.ToleranceNM, clock/b
+			if listed > maxListed {
+				break
 			}
+			listed++
+			g := p.Segments[gi]
+			at := g.Fiducial
+			if at == "" {
+				at = fmt.Sprintf("(%.1f, %.1f)", g.FiducialAt.X, g.FiducialAt.Y)
+			}
+			tight := ""
+			if g.Tightest >= 0 && g.Tightest < len(p.Strokes) {
+				s := p.Strokes[g.Tightest]
+				budget := "no drift limit"
+				if g.BudgetS > 0 {
+					budget = units.Duration(g.BudgetS)
+				}
+				tight = fmt.Sprintf("%s ±%g nm (%s)", s.Region, s.ToleranceNM, budget)
+			}
+			fmt.Fprintf(tw, "    %d\t%s\t%s\t%s\t%s\t%s\t%.3f\t%d\n", g.Index+1, g.Registration, at, units.Duration(g.StartS), units.Duration(g.EndS-g.StartS), tight, g.PInTolerance, len(g.Strokes))
 		}
+		tw.Flush()
 	}
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "  #\tfiducial\tstarts at\tregistration\twriting\ttightest stroke: drift clock / budget\tstrokes")
-	for i, g := range p.Segments {
-		if i == maxListed {
-			fmt.Fprintf(tw, "  ... %d more\n", len(p.Segments)-maxListed)
-			break
-		}
-		s := ss[i]
-		regEnd := g.StartS
-		if s.registered {
-			regEnd = s.regEnd
-		}
-		tight := "no drift: no limit"
-		if driftNMPerMin > 0 && s.tol > 0 {
-			tight = fmt.Sprintf("%s / %s (±%g nm, %.0f %%)", units.Duration(s.used), units.Duration(planner.DriftBudget(s.tol, driftNMPerMin)), s.tol, 100*s.share)
-		}
-		fmt.Fprintf(tw, "  %d\t%s\t%s\t%s\t%s\t%s\t%d\n", g.Index, g.Fiducial, units.Duration(g.StartS), units.Duration(regEnd-g.StartS), units.Duration(g.EndS-regEnd), tight, len(g.Strokes))
+	d := p.Drift
+	fmt.Fprintf(w, "  P(every stroke and coupled pair within tolerance) = %.3f, sampled on this plan; segments planned for %.3g nm/min of drift, %.3g of creep and registration errors at %.2f σ, margin ×%.2f",
+		p.PInTolerance, d.RateNMPerMin, d.CreepFraction, d.ErrorZ, d.Margin)
+	if d.Compensated {
+		fmt.Fprint(w, ", feed-forward drift compensation")
 	}
-	tw.Flush()
+	fmt.Fprintln(w)
+	if len(p.Couplings) > 0 {
+		fmt.Fprintln(w, "  coupled pairs (relative tolerance):")
+		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+		for _, c := range p.Couplings {
+			how := "one drift window"
+			if !c.SameStep {
+				how = "later step registers locally on the earlier"
+			}
+			fmt.Fprintf(tw, "    %s\t%s / %s\t±%.3g nm\t%s\tP(within) %.3f\n", c.Kind, c.A, c.B, c.ToleranceNM, how, c.PInTolerance)
+		}
+		tw.Flush()
+	}
 }
 
 // maxListed bounds the segments and windows listed in the summary.
 const maxListed = 12
 
-// printPlan writes the readable summary; driftNMPerMin is the profile's
-// drift rate, from which each stroke's budget (tolerance / rate) follows.
-func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
+// printPlan writes the readable summary.
+func printPlan(w io.Writer, p *planner.Plan) {
 	fmt.Fprintf(w, "%s, variant %s: plan with profile %q (seed %d)\n", p.Design, p.Variant, p.Profile, p.Seed)
 	fmt.Fprintln(w, planner.Caution)
 
@@ -254,9 +291,16 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 	}
 	tw.Flush()
 
-	fmt.Fprintf(w, "\nTime: %s expected (P10 %s, P50 %s, P90 %s)\n", units.Duration(p.TotalS), units.Duration(p.P10S), units.Duration(p.P50S), units.Duration(p.P90S))
+	fmt.Fprintf(w, "\nSession time: %s mean of the Monte Carlo on this plan (P10 %s, P50 %s, P90 %s); the printed schedule %s\n",
+		units.Duration(p.TotalS), units.Duration(p.P10S), units.Duration(p.P50S), units.Duration(p.P90S), units.Duration(p.ScheduleS))
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	b := p.Breakdown
+	registrations := 0
+	for _, a := range p.Actions {
+		if a.Kind == planner.ActRegister {
+			registrations++
+		}
+	}
 	for _, k := range planner.TimeKinds {
 		s := b.Seconds(k)
 		share := 0.0
@@ -264,25 +308,24 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 			share = 100 * s / p.TotalS
 		}
 		note := ""
-		if k == planner.TimeRegistration && len(p.Segments) > 0 && s > 0 {
-			n := len(p.Segments)
-			what := "registrations"
-			if n == 1 {
-				what = "registration"
-			}
-			note = fmt.Sprintf("  %d %s of %s", n, what, units.Duration(s/float64(n)))
+		if k == planner.TimeRegistration && registrations > 0 && s > 0 {
+			note = fmt.Sprintf("  %d registrations, and finding the area again after each anneal", registrations)
+		}
+		if k == planner.TimeTipChange && s > 0 {
+			note = "  mean over the samples: tip failures come at random"
 		}
 		fmt.Fprintf(tw, "  %s\t%s\t%.1f %%\t%s\n", k, units.Duration(s), share, note)
 	}
 	tw.Flush()
 	if p.FloorS > 0 {
-		fmt.Fprintf(w, "  writing alone (physical floor) %s: plan = %.2f x floor\n", units.Duration(p.FloorS), p.TotalS/p.FloorS)
+		fmt.Fprintf(w, "  writing alone (physical floor) %s: session = %.2f x floor\n", units.Duration(p.FloorS), p.TotalS/p.FloorS)
 	}
 	if p.ByHandS > 0 {
 		fmt.Fprintf(w, "  by hand (file order, raster rows, fixed-interval registration) %s: plan = %.2f x by hand\n", units.Duration(p.ByHandS), p.TotalS/p.ByHandS)
 	}
 
-	printSegments(w, p, driftNMPerMin)
+	printSteps(w, p)
+	printSegments(w, p)
 
 	y := p.Yield
 	fmt.Fprintf(w, "\nDopant windows: %d", y.Windows)
@@ -296,24 +339,28 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 			parts = append(parts, fmt.Sprintf("%s %d", sp, count[sp]))
 		}
 		fmt.Fprintf(w, " (%s)\n", strings.Join(parts, ", "))
-		all := fmt.Sprintf("%.4g", y.All)
-		if y.All == 0 {
-			all = fmt.Sprintf("10^%.1f", y.Log10All)
-		}
+		all := units.Probability(y.All, y.Log10All)
 		devices := fmt.Sprintf("%.3g", y.DevicesPerPerfect)
 		if y.DevicesPerPerfect == 0 {
 			devices = "more than can be written"
 		}
-		fmt.Fprintf(w, "  P(every window takes exactly one donor) = %s; good windows %.2f ± %.2f of %d; devices per perfect device %s\n",
-			all, y.MeanGood, y.SDGood, y.Windows, devices)
+		fmt.Fprintf(w, "  P(every window opened as drawn with exactly one donor) = %s (68 %%: %s, 95 %%: %s, from the templates' uncertainties)\n",
+			all, units.ProbabilityRange(y.All68, y.Log10All68), units.ProbabilityRange(y.All95, y.Log10All95))
+		fmt.Fprintf(w, "  good windows %.2f ± %.2f of %d; expected %.3g without a donor, %.3g with two or more, %.3g not opened as drawn; devices per perfect device %s\n",
+			y.MeanGood, y.SDGood, y.Windows, y.ExpectedEmpty, y.ExpectedMultiple, y.ExpectedMisopened, devices)
 		tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-		fmt.Fprintln(tw, "  region\tspecies\tat (nm)\tP(one donor)")
+		fmt.Fprintln(tw, "  region\tspecies\tat (nm)\topened as drawn\tp0\tp1\tp≥2\tP(good)\topen before its dose")
 		for i, win := range p.Windows {
 			if i == maxListed {
 				fmt.Fprintf(tw, "  ... %d more\n", len(p.Windows)-maxListed)
 				break
 			}
-			fmt.Fprintf(tw, "  %s\t%s\t(%.2f, %.2f)\t%.3g\n", win.Region, win.Species, win.At.X, win.At.Y, win.Probability)
+			p1 := fmt.Sprintf("%.3g", win.P1)
+			if win.P1SD > 0 {
+				p1 += fmt.Sprintf(" ± %.2g", win.P1SD)
+			}
+			fmt.Fprintf(tw, "  %s\t%s\t(%.2f, %.2f)\t%.3g\t%.3g\t%s\t%.3g\t%.3g\t%s\n", win.Region, win.Species, win.At.X, win.At.Y,
+				win.OpenProbability, win.P0, p1, win.P2Plus, win.Probability, units.Duration(win.OpenS))
 		}
 		tw.Flush()
 	} else {
@@ -322,13 +369,21 @@ func printPlan(w io.Writer, p *planner.Plan, driftNMPerMin float64) {
 
 	c := p.Coverage
 	if c.OK {
-		fmt.Fprintf(w, "\nCoverage: OK, every one of %d sites clears and none outside the regions beyond the edge allowance\n", c.Sites)
+		fmt.Fprintf(w, "\nCoverage: OK, no site outside the regions clears with more than %.3g %% (exposure model)\n", 100*c.StrayLimit)
 	} else {
-		fmt.Fprintf(w, "\nCoverage: NOT OK, %d of %d sites uncovered, %d overcleared\n", c.Uncovered, c.Sites, c.Overcleared)
+		fmt.Fprintf(w, "\nCoverage: NOT OK, %d site(s) outside every region clear with more than %.3g %%\n", c.OverLimit, 100*c.StrayLimit)
 		for _, is := range c.Issues {
 			fmt.Fprintln(w, "  "+is)
 		}
 	}
+	fmt.Fprintf(w, "  expected: %s of %d sites left with their H, %s stray sites cleared outside the regions\n", expected(c.ExpectedMissed), c.Sites, expected(c.ExpectedStray))
+	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "  region\tsites\tmissed\tstray\tof them spurious\tP(no error)\t")
+	for _, r := range c.Regions {
+		fmt.Fprintf(tw, "  %s\t%d\t%s\t%s\t%s\t%s\t\n", r.Region, r.Sites, expected(r.ExpectedMissed), expected(r.ExpectedStray),
+			expected(r.ExpectedSpurious), units.Probability(r.Probability, r.Log10Probability))
+	}
+	tw.Flush()
 	if len(p.Warnings) > 0 {
 		fmt.Fprintln(w, "\nWarnings")
 		for _, warn := range p.Warnings {
@@ -344,4 +399,17 @@ func sortedKeys(m map[string]int) []string {
 	}
 	sort.Strings(ks)
 	return ks
+}
+
+// expected formats an expected number of sites: whole numbers from 1000
+// up ("59224"), three significant digits below ("3.55", "0.0288"), small
+// ones with the typographic minus ("3.1e−07").
+func expected(x float64) string {
+	switch {
+	case x >= 1000:
+		return fmt.Sprintf("%.0f", x)
+	case x != 0 && x < 0.001:
+		return strings.Replace(fmt.Sprintf("%.2g", x), "-", "−", 1)
+	}
+	return fmt.Sprintf("%.3g", x)
 }

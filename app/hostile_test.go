@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"flag"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -37,6 +38,8 @@ func TestCommandsRefuseHostileInput(t *testing.T) {
 	}
 	planText, _ := os.ReadFile(plan)
 	nanPlan := writeFile(t, "nan.plan.json", strings.Replace(string(planText), `"total_s": `, `"total_s": NaN, "x": `, 1))
+	// The line of total_s in the plan file, where the reader must point.
+	totalLine := strings.Count(string(planText[:strings.Index(string(planText), `"total_s": `)]), "\n") + 1
 	noLF := writeFile(t, "nolf.csv", "bias_v"+strings.Repeat("x", 1<<20))
 	dir := t.TempDir()
 	outDir := filepath.Join(dir, "out.pdf")
@@ -52,7 +55,7 @@ func TestCommandsRefuseHostileInput(t *testing.T) {
 		{"overlap 0.999999999", []string{"plan", demoDesign, "--profile", profile(map[string]any{"fe": map[string]any{"overlap": 0.999999999}})}, "fe.overlap = 0.999999999: must be from 0 to 0.95"},
 		{"settle 1e305 on the PDF path", []string{"export", demoDesign, "-o", filepath.Join(dir, "s.pdf"), "--profile", profile(map[string]any{"settle_s": 1e305})}, "settle_s = 1e+305"},
 		{"NaN in a profile", []string{"plan", demoDesign, "--profile", writeFile(t, "nan.json", `{"format": "dimerpath-profile", "version": 1, "settle_s": NaN}`)}, "nan.json:1:59: settle_s: NaN is not a finite number"},
-		{"a plan with a NaN total", []string{"export", nanPlan, "-o", filepath.Join(dir, "n.pdf")}, "nan.plan.json:744:14: total_s: NaN is not a finite number"},
+		{"a plan with a NaN total", []string{"export", nanPlan, "-o", filepath.Join(dir, "n.pdf")}, fmt.Sprintf("nan.plan.json:%d:14: total_s: NaN is not a finite number", totalLine)},
 		{"calibrate without line breaks", []string{"calibrate", noLF, "-o", filepath.Join(dir, "p.json")}, "nolf.csv:1: line longer than 64 KiB, the limit"},
 		{"-o a directory", []string{"export", demoDesign, "-o", outDir}, "-o " + outDir + " is a directory"},
 		{"-o in a missing directory", []string{"export", demoDesign, "-o", filepath.Join(dir, "none", "x.pdf")}, "x.pdf: the directory " + filepath.Join(dir, "none") + " does not exist"},
@@ -89,7 +92,7 @@ func mustRead(t *testing.T, path string) string {
 // "json: unsupported value: +Inf").
 func TestHugeLegalTimes(t *testing.T) {
 	prof := writeJSON(t, "slow.json", map[string]any{"format": "dimerpath-profile", "version": 1,
-		"drift": map[string]any{"registration_s": 86400, "verification_s": 86400, "rate_nm_per_min": 100}, "tolerance_ap_nm": 0.001, "mode_switch_s": 86400})
+		"drift": map[string]any{"registration_s": 86400, "verification_s": 86400, "rate_nm_per_min": 100}, "tolerance_ap_nm": 0.05, "mode_switch_s": 86400})
 	out, errs, code := runMain(t, "plan", demoDesign, "--profile", prof)
 	if code != ExitOK {
 		t.Fatalf("exit %d: %s", code, errs)

@@ -9,6 +9,8 @@ import (
 	"testing"
 
 	"dimerpath/export/internal/planfixture"
+	"dimerpath/internal/peakmem"
+	"dimerpath/lattice/design/designtest"
 	"dimerpath/planner"
 )
 
@@ -96,4 +98,80 @@ func BenchmarkPDFSET(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
+}
+
+// BenchmarkExportArray1e6 exports the plan of the million-window donor
+// array (issue 14 §2: designtest.WindowArray(1000, 1000), planned once
+// with the rt preset) as the operator's PDF, with the lattice pattern,
+// and as the action CSV, which holds every action. The baseline is
+// encoding/json's Marshal of the same plan, measured first in this run.
+// Goal: the PDF in at most 30 s, readable (segments summarised in
+// ranges, every one still in the CSV and JSON).
+func BenchmarkExportArray1e6(b *testing.B) {
+	p, pat := arrayPlan(b)
+	baseline := 0.0
+	for _, c := range []struct {
+		name string
+		fn   func(w io.Writer) error
+	}{
+		{"baseline-encoding-json", func(w io.Writer) error {
+			data, err := json.Marshal(p)
+			if err == nil {
+				_, err = w.Write(data)
+			}
+			return err
+		}},
+		{"pdf", func(w io.Writer) error { return WritePDF(context.Background(), w, p, Options{Pattern: pat}) }},
+		{"actions-csv", func(w io.Writer) error { return WriteActionsCSV(w, p) }},
+	} {
+		b.Run(c.name, func(b *testing.B) {
+			var size int64
+			var peak peakmem.Peak
+			for b.Loop() {
+				cw := &countingWriter{}
+				pk := peakmem.Measure(func() {
+					if err := c.fn(cw); err != nil {
+						b.Fatal(err)
+					}
+				})
+				peak.RSS, peak.Go = max(peak.RSS, pk.RSS), max(peak.Go, pk.Go)
+				size = cw.n
+			}
+			b.ReportMetric(float64(size)/1e6, "MB/file")
+			b.ReportMetric(peakmem.MB(peak.Go), "peak-Go-MB")
+			perOp := b.Elapsed().Seconds() / float64(b.N)
+			if c.name == "baseline-encoding-json" {
+				baseline = perOp
+			} else if baseline > 0 {
+				b.ReportMetric(perOp/baseline, "x_baseline")
+			}
+		})
+	}
+}
+
+var (
+	arrayOnce    sync.Once
+	arrayPlanned *planner.Plan
+	arrayPattern *Pattern
+	arrayErr     error
+)
+
+// arrayPlan plans the million-window array once per process.
+func arrayPlan(b *testing.B) (*planner.Plan, *Pattern) {
+	arrayOnce.Do(func() {
+		d := designtest.WindowArray(1000, 1000)
+		lay, err := d.Lay("")
+		if err != nil {
+			arrayErr = err
+			return
+		}
+		prof := planner.DefaultProfile()
+		prof.Limits.ScanFieldNM = designtest.FieldNM(d)
+		arrayPlanned, arrayErr = planner.Build(context.Background(), lay, prof, planner.Options{Seed: 1})
+		arrayPattern = PatternOf(lay)
+	})
+	if arrayErr != nil {
+		b.Fatal(arrayErr)
+	}
+	return arrayPlanned, arrayPattern
 }

@@ -26,6 +26,14 @@ var partFills = map[planner.TimeKind]paint{
 	planner.TimeModeSwitch:   {fill: true, grey: 1, hatch: hatchCross, hatchGrey: 0.2, hatchStep: 1.3},
 	planner.TimeRegistration: {fill: true, grey: 0.88, hatch: hatchHorizontal, hatchGrey: 0.1, hatchStep: 0.9},
 	planner.TimeVerification: {fill: true, grey: 1, hatch: hatchVertical, hatchGrey: 0.1, hatchStep: 0.9},
+	// The session around the writing.
+	planner.TimeSurvey:        solid(0.25),
+	planner.TimeConditioning:  {fill: true, grey: 0.7, hatch: hatchDiag, hatchGrey: 0.2, hatchStep: 0.9},
+	planner.TimeTipChange:     {fill: true, grey: 1, hatch: hatchDiag, hatchGrey: 0, hatchStep: 0.5},
+	planner.TimeRepair:        {fill: true, grey: 0.6, hatch: hatchCross, hatchGrey: 0, hatchStep: 1.1},
+	planner.TimeDocumentation: solid(0.75),
+	planner.TimeDose:          {fill: true, grey: 0.55, hatch: hatchHorizontal, hatchGrey: 0, hatchStep: 0.9},
+	planner.TimeAnneal:        {fill: true, grey: 0.4, hatch: hatchVertical, hatchGrey: 1, hatchStep: 0.9},
 }
 
 // timeParts returns the breakdown's categories in the order of
@@ -214,17 +222,24 @@ func drawDistribution(c canvas, dist []float64, area box) float64 {
 	}
 	c.polyline([]vec{{plot.x, plot.bottom()}, {plot.right(), plot.bottom()}}, false, penAxis, noPaint, tag{})
 	c.polyline([]vec{{plot.x, plot.y}, {plot.x, plot.bottom()}}, false, penAxis, noPaint, tag{})
-	// k labels: a few, never overlapping
-	every := int(math.Ceil(float64(len(bins)) * (c.textWidth(fmt.Sprint(k1), fontAxis) + 2*u) / plot.w))
+	// k labels: a few, never overlapping. A bar of several k is
+	// labelled with its range; the spacing follows the widest label.
+	label := func(b bin) string {
+		if b.k1 > b.k0 {
+			return fmt.Sprintf("%d–%d", b.k0, b.k1)
+		}
+		return fmt.Sprint(b.k0)
+	}
+	widest := 0.0
+	for _, b := range bins {
+		widest = math.Max(widest, c.textWidth(label(b), fontAxis))
+	}
+	every := max(1, int(math.Ceil((widest+2*u)/bw)))
 	for i, b := range bins {
-		if i%max(1, every) != 0 && i != len(bins)-1 {
+		if i%every != 0 {
 			continue
 		}
-		lbl := fmt.Sprint(b.k0)
-		if b.k1 > b.k0 {
-			lbl = fmt.Sprintf("%d–%d", b.k0, b.k1)
-		}
-		c.text(vec{plot.x + (float64(i)+0.5)*bw, plot.bottom() + textHeight(c, fontAxis) + 1.5*u}, lbl, fontAxis, anchorMiddle, tag{})
+		c.text(vec{plot.x + (float64(i)+0.5)*bw, plot.bottom() + textHeight(c, fontAxis) + 1.5*u}, label(b), fontAxis, anchorMiddle, tag{})
 	}
 	c.text(vec{plot.x + plot.w/2, plot.bottom() + 2*textHeight(c, fontAxis) + 4*u}, "number of windows with exactly one donor",
 		fontAxis, anchorMiddle, tag{})

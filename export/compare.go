@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strings"
 
 	"dimerpath/internal/atomicfile"
 	"dimerpath/planner"
@@ -50,7 +51,8 @@ func checkResults(rs []VariantResult) (string, error) {
 // compareRows returns the comparison table: a header and one row per
 // variant.
 func compareRows(rs []VariantResult) [][]string {
-	rows := [][]string{{"Variant", "Expected", "P10 – P90", "By hand", "Segments", "Strokes", "Windows", "All good", "Mean good", "Devices per perfect one", "Coverage check"}}
+	rows := [][]string{{"Variant", "Session (mean)", "P10 – P90", "By hand", "Lithography steps", "Segments", "Strokes", "P(within tolerance)",
+		"Windows", "All good", "Mean good", "Devices per perfect one", "Coverage check"}}
 	for _, r := range rs {
 		if r.Plan == nil {
 			rows = append(rows, []string{r.Variant, "not planned: " + r.Err.Error()})
@@ -76,8 +78,15 @@ func compareRows(rs []VariantResult) [][]string {
 		if p.ByHandS > 0 {
 			byHand = clock(p.ByHandS)
 		}
+		var steps []string
+		for _, st := range p.Steps {
+			if st.Kind == planner.StepLithography {
+				steps = append(steps, st.Species)
+			}
+		}
 		rows = append(rows, []string{r.Variant, clock(p.TotalS), clock(p.P10S) + " – " + clock(p.P90S), byHand,
-			thousands(len(p.Segments)), thousands(len(p.Strokes)), thousands(len(p.Windows)), all, mean, dpp, coverageWord(p.Coverage)})
+			strings.Join(steps, ", "), thousands(len(p.Segments)), thousands(len(p.Strokes)), probability(p.PInTolerance),
+			thousands(len(p.Windows)), all, mean, dpp, coverageWord(p.Coverage)})
 	}
 	return rows
 }
@@ -313,17 +322,19 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 
 	rows := compareRows(results)
 	t := newTable(d, font{size: 7.5},
-		tableColumn{title: rows[0][0], share: 12},
-		tableColumn{title: rows[0][1], share: 10, right: true},
-		tableColumn{title: rows[0][2], share: 14, right: true},
-		tableColumn{title: rows[0][3], share: 8, right: true},
-		tableColumn{title: rows[0][4], share: 10, right: true},
-		tableColumn{title: rows[0][5], share: 8, right: true},
-		tableColumn{title: rows[0][6], share: 10, right: true},
+		tableColumn{title: rows[0][0], share: 10},
+		tableColumn{title: rows[0][1], share: 8, right: true},
+		tableColumn{title: rows[0][2], share: 11, right: true},
+		tableColumn{title: rows[0][3], share: 7, right: true},
+		tableColumn{title: rows[0][4], share: 8, right: true},
+		tableColumn{title: rows[0][5], share: 6, right: true},
+		tableColumn{title: rows[0][6], share: 6, right: true},
 		tableColumn{title: rows[0][7], share: 8, right: true},
-		tableColumn{title: rows[0][8], share: 8, right: true},
-		tableColumn{title: rows[0][9], share: 10, right: true},
-		tableColumn{title: rows[0][10], share: 10, right: true},
+		tableColumn{title: rows[0][8], share: 6, right: true},
+		tableColumn{title: rows[0][9], share: 6, right: true},
+		tableColumn{title: rows[0][10], share: 7, right: true},
+		tableColumn{title: rows[0][11], share: 8, right: true},
+		tableColumn{title: rows[0][12], share: 9, right: true},
 	)
 	d.heading("Summary", 20)
 	t.start()
@@ -355,8 +366,8 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 		title string
 		draw  func(c canvas, rs []VariantResult, area box) float64
 	}{
-		{"Write time by kind", drawStackedBreakdown},
-		{"Spread of the write time", drawSpreadCompare},
+		{"Session time by kind", drawStackedBreakdown},
+		{"Spread of the session time", drawSpreadCompare},
 		{"Dopant yield", drawYieldCompare},
 	} {
 		if err := ctx.Err(); err != nil {
@@ -382,19 +393,7 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	inner := width - 2*margin
 	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
 	rows := compareRows(results)
-	cols := []float64{12, 10, 14, 8, 10, 8, 10, 8, 8, 10, 10}
-	if diffs := differenceRows(results); len(diffs) > 0 {
-		// Below the summary, across the table: how each variant differs
-		// from the first.
-		rows = append(rows, []string{"", "What differs from " + results[0].Variant})
-		for _, r := range diffs {
-			text := r[1]
-			if r[2] != "" || r[3] != "" {
-				text += ": " + r[2] + " → " + r[3]
-			}
-			rows = append(rows, []string{r[0], text})
-		}
-	}
+	cols := []float64{10, 8, 11, 7, 8, 6, 6, 8, 6, 6, 7, 8, 9}
 	colW := make([]float64, len(cols))
 	total := 0.0
 	for _, c := range cols {

@@ -16,7 +16,7 @@ import (
 var ActionColumns = []string{
 	"index", "kind", "segment", "stroke", "stroke_number", "region", "mode", "stroke_kind", "fiducial",
 	"from_x_nm", "from_y_nm", "to_x_nm", "to_y_nm", "start_s", "duration_s",
-	"bias_v", "current_a", "speed_nm_per_s", "passes", "path_nm", "note",
+	"bias_v", "current_a", "speed_nm_per_s", "passes", "path_nm", "note", "step",
 }
 
 // WriteActionsCSV writes one CSV row per tip action of p, in execution
@@ -37,7 +37,8 @@ func WriteActionsCSV(w io.Writer, p *planner.Plan) error {
 	row := make([]string, len(ActionColumns))
 	numbers := StrokeNumbers(p)
 	var path strings.Builder
-	for _, a := range p.Actions {
+	steps := ActionSteps(p)
+	for ai, a := range p.Actions {
 		for i := range row {
 			row[i] = ""
 		}
@@ -73,12 +74,37 @@ func WriteActionsCSV(w io.Writer, p *planner.Plan) error {
 			}
 		}
 		row[20] = a.Note
+		if steps[ai] >= 0 {
+			row[21] = strconv.Itoa(steps[ai])
+		}
 		if err := cw.Write(row); err != nil {
 			return err
 		}
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// ActionSteps returns, for each action of p, the index of the process
+// step it belongs to (its segment's step, else the step whose span holds
+// its start), or -1 for an action in no step.
+func ActionSteps(p *planner.Plan) []int {
+	out := make([]int, len(p.Actions))
+	k := 0
+	for i, a := range p.Actions {
+		out[i] = -1
+		if a.Segment >= 0 && a.Segment < len(p.Segments) {
+			out[i] = p.Segments[a.Segment].Step
+			continue
+		}
+		for k < len(p.Steps) && a.StartS >= p.Steps[k].StartS+p.Steps[k].DurationS && !(a.DurationS == 0 && a.StartS == p.Steps[k].StartS) {
+			k++
+		}
+		if k < len(p.Steps) && a.StartS >= p.Steps[k].StartS {
+			out[i] = k
+		}
+	}
+	return out
 }
 
 func num(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }

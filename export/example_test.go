@@ -51,7 +51,7 @@ func ExampleReadPlanJSON() {
 	_, err = export.ReadPlanJSON(strings.NewReader(`{"format": "dimerpath-plan", "version": 9}`))
 	fmt.Println(err)
 	// Output:
-	// Kestrel Lab SET-K1 / baseline: 25 strokes in 5 segments, 67 actions, 1610 s
+	// Kestrel Lab SET-K1 / baseline: 25 strokes in 6 segments, 80 actions, 12639 s
 	// line 1, column 41: version = 9: unsupported plan file version (this dimerpath reads versions 1 to 2)
 }
 
@@ -70,9 +70,9 @@ func ExampleWriteActionsCSV() {
 	for i, name := range rows[0] {
 		col[name] = i
 	}
-	show := []string{"index", "kind", "segment", "stroke", "stroke_number", "fiducial", "bias_v", "current_a"}
+	show := []string{"index", "kind", "segment", "stroke", "stroke_number", "fiducial", "bias_v", "current_a", "step"}
 	fmt.Println(strings.Join(show, ","))
-	for _, r := range rows[1:6] {
+	for _, r := range rows[1:7] {
 		var cells []string
 		for _, name := range show {
 			cells = append(cells, r[col[name]])
@@ -80,13 +80,14 @@ func ExampleWriteActionsCSV() {
 		fmt.Println(strings.Join(cells, ","))
 	}
 	// Output:
-	// 67 actions
-	// index,kind,segment,stroke,stroke_number,fiducial,bias_v,current_a
-	// 0,move,0,-1,,,,
-	// 1,register,0,-1,,F-SW,,
-	// 2,switch,0,-1,,,4,2e-09
-	// 3,move,0,-1,,,,
-	// 4,dwell,0,0,1,,3,1e-09
+	// 80 actions
+	// index,kind,segment,stroke,stroke_number,fiducial,bias_v,current_a,step
+	// 0,condition,-1,-1,,,,,0
+	// 1,survey,-1,-1,,,,,0
+	// 2,move,0,-1,,,,,1
+	// 3,register,0,-1,,F-SW,,,1
+	// 4,switch,0,-1,,,4,2e-09,1
+	// 5,move,0,-1,,,,,1
 }
 
 func ExampleWriteSVG() {

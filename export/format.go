@@ -5,6 +5,7 @@ import (
 	"strconv"
 	"strings"
 
+	"dimerpath/internal/chartaxis"
 	"dimerpath/internal/units"
 )
 
@@ -14,6 +15,15 @@ import (
 var (
 	clock    = units.Clock
 	duration = units.Duration
+)
+
+// The axes' steps and ticks are package chartaxis's, which the window's
+// charts share.
+var (
+	niceStep     = chartaxis.NiceStep
+	niceBelow    = chartaxis.NiceBelow
+	niceTimeStep = chartaxis.NiceTimeStep
+	ticks        = chartaxis.Ticks
 )
 
 // sig formats v with n significant digits, without trailing zeros or
@@ -51,6 +61,11 @@ func nanoAmps(a float64) string { return sig(a*1e9, 3) }
 // milliCoulombPerCm formats a line dose given in C/cm as mC/cm.
 func milliCoulombPerCm(d float64) string { return sig(d*1e3, 3) }
 
+// nm2 prints a width in nm to 0.01 nm, as dimerpath plan prints the
+// line widths and the FE pitch ("1.00": the default AP line is 0.999 nm
+// wide, which the PDF once printed while the command line said 1.00).
+func nm2(v float64) string { return strings.Replace(strconv.FormatFloat(v, 'f', 2, 64), "-", "−", 1) }
+
 // nm1 formats a length in nm with one decimal.
 func nm1(v float64) string { return strings.Replace(strconv.FormatFloat(v, 'f', 1, 64), "-", "−", 1) }
 
@@ -73,75 +88,10 @@ func probability(p float64) string {
 	return sig(p, 2)
 }
 
-// niceStep returns a 1, 2 or 5 × 10^k step near span/target.
-func niceStep(span float64, target int) float64 {
-	if !(span > 0) {
-		return 1
-	}
-	raw := span / float64(max(1, target))
-	p := math.Pow(10, math.Floor(math.Log10(raw)))
-	if !(p > 0) || math.IsInf(p, 0) {
-		return math.Max(span, math.SmallestNonzeroFloat64) // degenerate spans: one step
-	}
-	for _, m := range []float64{1, 2, 5} {
-		if m*p >= raw && !math.IsInf(m*p, 0) {
-			return m * p
-		}
-	}
-	if math.IsInf(10*p, 0) {
-		return p
-	}
-	return 10 * p
-}
-
-// niceBelow returns the largest 1, 2 or 5 × 10^k not above v.
-func niceBelow(v float64) float64 {
-	if !(v > 0) {
-		return 1
-	}
-	p := math.Pow(10, math.Floor(math.Log10(v)))
-	best := p
-	for _, m := range []float64{2, 5} {
-		if m*p <= v {
-			best = m * p
-		}
-	}
-	return best
-}
-
 // lengthLabel formats a scale-bar length given in nm.
 func lengthLabel(v float64) string {
 	if v >= 1000 {
 		return sig(v/1000, 3) + " µm"
 	}
 	return sig(v, 3) + " nm"
-}
-
-// niceTimeStep returns a clock-friendly tick step (1, 2, 5, 10, 15, 20,
-// 30 s or min, 1, 2, 3, 6, 12 h, then whole days) near span/target
-// seconds.
-func niceTimeStep(span float64, target int) float64 {
-	raw := span / float64(max(1, target))
-	for _, s := range []float64{1, 2, 5, 10, 15, 20, 30, 60, 120, 300, 600, 900, 1200, 1800,
-		3600, 7200, 10800, 21600, 43200, 86400} {
-		if s >= raw {
-			return s
-		}
-	}
-	return 86400 * math.Ceil(raw/86400)
-}
-
-// ticks returns the multiples of step from lo to hi (inclusive, with a
-// little slack for rounding), at most 200 of them; for a degenerate step
-// (not positive, or too small to advance at lo's magnitude) it returns
-// lo and hi.
-func ticks(lo, hi, step float64) []float64 {
-	if !(step > 0) || !(hi >= lo) || (hi-lo)/step > 200 || lo+step == lo {
-		return []float64{lo, hi}
-	}
-	var out []float64
-	for k := math.Ceil(lo/step - 1e-9); k*step <= hi+1e-9*step; k++ {
-		out = append(out, k*step)
-	}
-	return out
 }

@@ -48,6 +48,44 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 	drawTerraceEdges(c, sc, v)
 	drawReferences(c, sc, v)
 
+	if sc.summarised() {
+		drawSegmentAreas(c, sc, v)
+	} else {
+		drawStrokesAndMoves(c, sc, v, shown)
+	}
+
+	// Labels go on top of the strokes, so nothing covers them.
+	lab := &labeler{bounds: frame}
+	drawTerraceLabels(c, sc, v, lab)
+	drawFiducials(c, p.Fiducials, v, lab)
+	res := overviewResult{}
+	c.group(tag{id: "segment-labels", class: "labels"}, penLabel, fillLabel)
+	step, tried := sc.segmentLabelStep(), 0
+	for i := range p.Segments {
+		if i%step != 0 || !sc.hasWrite[i] || !frame.containsPt(v.pt(sc.writeFrom[i])) {
+			continue
+		}
+		if tried++; tried > maxSegmentLabels {
+			res.unlabelled++
+			continue
+		}
+		if !segmentMarker(c, lab, v.pt(sc.writeFrom[i]), strconv.Itoa(i+1), tag{id: fmt.Sprintf("segment-label-%d", i+1)}) {
+			res.unlabelled++
+		}
+	}
+	c.endGroup()
+	if !whole {
+		c.endClip()
+	}
+	c.rect(frame, penField, noPaint, tag{id: "field-edge"})
+	drawAxes(c, v)
+	return res
+}
+
+// drawStrokesAndMoves draws every stroke shown and every move: FE
+// strokes, then the moves, then AP strokes and dwells on top.
+func drawStrokesAndMoves(c canvas, sc *scene, v view, shown func(*planner.Stroke) bool) {
+	p := sc.plan
 	pts := make([]vec, 0, 16)
 	path := func(s *planner.Stroke) []vec {
 		pts = pts[:0]
@@ -103,32 +141,6 @@ func drawOverview(c canvas, sc *scene, v view) overviewResult {
 		}
 	}
 	c.endGroup()
-
-	// Labels go on top of the strokes, so nothing covers them.
-	lab := &labeler{bounds: frame}
-	drawTerraceLabels(c, sc, v, lab)
-	drawFiducials(c, p.Fiducials, v, lab)
-	res := overviewResult{}
-	c.group(tag{id: "segment-labels", class: "labels"}, penLabel, fillLabel)
-	for i := range p.Segments {
-		if !sc.hasWrite[i] || !frame.containsPt(v.pt(sc.writeFrom[i])) {
-			continue
-		}
-		if i >= maxSegmentLabels {
-			res.unlabelled++
-			continue
-		}
-		if !segmentMarker(c, lab, v.pt(sc.writeFrom[i]), strconv.Itoa(i+1), tag{id: fmt.Sprintf("segment-label-%d", i+1)}) {
-			res.unlabelled++
-		}
-	}
-	c.endGroup()
-	if !whole {
-		c.endClip()
-	}
-	c.rect(frame, penField, noPaint, tag{id: "field-edge"})
-	drawAxes(c, v)
-	return res
 }
 
 // strokeTag names a stroke's element by its number on paper
@@ -147,6 +159,13 @@ func drawRegions(c canvas, sc *scene, v view, clip box) {
 	for _, r := range sc.regions {
 		f := regionPaint(r.mode)
 		c.group(tag{id: "region-" + xmlID(r.name), class: "region " + r.mode.String()}, noPen, f)
+		if sc.summarised() && len(r.rects) > maxRegionRects {
+			if b := v.box(regionBounds(r)); b.overlaps(clip) {
+				c.rect(clipBox(b, clip), noPen, f, tag{})
+			}
+			c.endGroup()
+			continue
+		}
 		for _, q := range r.rects {
 			b := v.box(q)
 			if !b.overlaps(clip) {
@@ -486,6 +505,15 @@ func overviewLegend(c canvas, sc *scene, s float64) []legendEntry {
 	}
 	if modes[design.ModeHybrid] {
 		out = append(out, legendEntry{design.ModeHybrid.Abbrev() + " region", swatch(fillHybrid)})
+	}
+	if sc.summarised() {
+		// Segment areas stand for the strokes and moves (bigplan.go).
+		has = struct{ apLine, dwell, raster, outline, move, toFid bool }{}
+		out = append(out, legendEntry{"area of one segment's strokes (alternately dark and light)", func(c canvas, b box) {
+			h := b.inset(0.3 * c.mm())
+			c.rect(box{h.x, h.y, h.w / 2, h.h}, noPen, solid(0.25), tag{})
+			c.rect(box{h.x + h.w/2, h.y, h.w / 2, h.h}, noPen, solid(0.55), tag{})
+		}})
 	}
 	if has.apLine {
 		out = append(out, legendEntry{ap + " stroke (along a dimer row)", line(pen{width: 0.6, round: true})})

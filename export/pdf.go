@@ -32,6 +32,7 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 		return err
 	}
 	sc := newScene(p, opt.Pattern)
+	sc.summary = true // on paper, a huge plan is summarised (bigplan.go)
 	header := fmt.Sprintf("dimerpath write plan · variant %s · %s", p.Variant, p.Design)
 	d := newPDFDoc(opt.Paper, header, opt, fmt.Sprintf("Write plan: %s, variant %s", p.Design, p.Variant))
 
@@ -47,15 +48,16 @@ func WritePDF(ctx context.Context, w io.Writer, p *planner.Plan, opt Options) er
 			}
 			return nil
 		}},
+		{"steps", func() error { pdfSteps(d, p); return nil }},
 		{"segments", func() error {
 			if err := pdfSegments(ctx, d, p, sc.number); err != nil {
 				return err
 			}
 			return pdfStrokeList(ctx, d, p, sc.number)
 		}},
-		{"estimates", func() error { pdfEstimates(d, p); return nil }},
+		{"estimates", func() error { pdfEstimates(d, p); pdfCoverage(d, p); return nil }},
 		{"atomic-precision areas", func() error {
-			return pdfZooms(ctx, d, sc, func(f float64) { opt.progress("pdf: atomic-precision areas", (4+f)/5) })
+			return pdfZooms(ctx, d, sc, func(f float64) { opt.progress("pdf: atomic-precision areas", (5+f)/6) })
 		}},
 	}
 	for i, s := range steps {
@@ -97,11 +99,19 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	}
 	d.keyValues(rows, 0.28)
 	d.cautionBox()
+	if !p.Coverage.OK {
+		d.errorBox("COVERAGE ERROR: do not write this plan as it stands", coverageErrorLines(p))
+	}
 
 	d.heading("At a glance", 30)
 	fids := map[string]bool{}
 	var fidNames []string
+	local := 0
 	for _, s := range p.Segments {
+		if s.Registration == planner.RegLocal {
+			local++
+			continue
+		}
 		if !fids[s.Fiducial] {
 			fids[s.Fiducial] = true
 			fidNames = append(fidNames, s.Fiducial)
@@ -119,23 +129,23 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 	if len(sp) > 0 {
 		windows += " (" + strings.Join(sp, ", ") + ")"
 	}
-	cov := "passed: every painted site is cleared, none outside the regions beyond the edge allowance"
-	if !p.Coverage.OK {
-		cov = fmt.Sprintf("FAILED: %d sites uncovered, %d over-cleared (see below)", p.Coverage.Uncovered, p.Coverage.Overcleared)
-	}
+	cov := coverageLine(p.Coverage)
 	glance := [][2]string{
-		{"Expected write time", fmt.Sprintf("%s (%s)", clock(p.TotalS), duration(p.TotalS))},
+		{"Session time", fmt.Sprintf("%s (%s) on average over the Monte Carlo samples of this plan; the schedule below runs %s", clock(p.TotalS), duration(p.TotalS), clock(p.ScheduleS))},
+		{"Process", processLine(p)},
 		{"Against the floor and by hand", floorLine(p)},
 		{"Spread", fmt.Sprintf("P10 %s · P50 %s · P90 %s", clock(p.P10S), clock(p.P50S), clock(p.P90S))},
-		{"Segments", segmentsLine(len(p.Segments), fidNames)},
+		{"Within tolerance", withinLine(p)},
+		{"Segments", segmentsLine(len(p.Segments), fidNames, local)},
 		{"Strokes", fmt.Sprintf("%s: %s", thousands(len(p.Strokes)), strokeSummary(p))},
 		{"Tip actions", thousands(len(p.Actions))},
 		{"Dopant windows", windows},
 	}
 	if len(p.Windows) > 0 {
 		glance = append(glance,
-			[2]string{"All windows good", fmt.Sprintf("%s (probability that every window takes exactly one donor)", allGood(p.Yield))},
+			[2]string{"All windows good", fmt.Sprintf("%s (opened as drawn and holding exactly one donor; %s)", allGood(p.Yield), intervals(p.Yield))},
 			[2]string{"Good windows", meanGood(p.Yield)},
+			[2]string{"Bad windows expected", badWindows(p.Yield)},
 			[2]string{"Devices per perfect one", devicesPerPerfect(p.Yield)},
 		)
 	}
@@ -168,14 +178,14 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		}
 		pitch := "–"
 		if cd.PitchNM > 0 {
-			pitch = sig(cd.PitchNM, 3)
+			pitch = nm2(cd.PitchNM)
 		}
 		name := cd.Mode.Label()
 		if cd.Kind != "" {
 			name += ", " + plural(kindNoun(cd.Kind), 2)
 		}
 		t.row(name, signedV(cd.BiasV), nanoAmps(cd.CurrentA), milliCoulombPerCm(cd.LineDoseCPerCm),
-			sig(cd.SpeedNMPerS, 4), sig(cd.LineWidthNM, 3), strconv.Itoa(cd.Passes), pitch)
+			sig(cd.SpeedNMPerS, 4), nm2(cd.LineWidthNM), strconv.Itoa(cd.Passes), pitch)
 	}
 	if !hasDwell {
 		// An older plan without dwell conditions: take them from the actions.
@@ -214,6 +224,143 @@ func pdfCover(d *pdfDoc, p *planner.Plan, opt Options) {
 		"they are written; the JSON and CSV exports give that number beside each stroke's id, which counts from 0 in the order the planner made them. "+
 		"Positions are field coordinates in nm, origin at the lower-left corner of the scan field. "+
 		"Times are on the plan clock, from the start of the session.", font{size: 7.5, grey: 0.25})
+}
+
+// coverageLine says in one line what the coverage expectation found.
+func coverageLine(c planner.Coverage) string {
+	s := fmt.Sprintf("%s of %s sites expected to keep their H, %s stray sites expected outside the regions",
+		sig(c.ExpectedMissed, 3), thousands(c.Sites), sig(c.ExpectedStray, 3))
+	if !c.OK {
+		return fmt.Sprintf("FAILED: %s site(s) outside every region clear with more than %s (see the box above); %s", thousands(c.OverLimit), percent(c.StrayLimit), s)
+	}
+	return fmt.Sprintf("passed: no site outside the regions clears with more than %s; %s (exposure model)", percent(c.StrayLimit), s)
+}
+
+// coverageErrorLines lists what the coverage check found wrong, for the
+// first page.
+func coverageErrorLines(p *planner.Plan) []string {
+	c := p.Coverage
+	numbers := StrokeNumbers(p)
+	lines := []string{fmt.Sprintf("%s site(s) outside every region, beyond the edge allowance, clear with a probability above the %s limit. "+
+		"The strokes that reach them are named below; change the design or the profile and plan again.", thousands(c.OverLimit), percent(c.StrayLimit))}
+	for i, s := range c.StraySites {
+		if i == 8 {
+			lines = append(lines, fmt.Sprintf("… and %s more (all of them in the plan file's coverage.stray_sites)", thousands(c.OverLimit-8)))
+			break
+		}
+		who := "no stroke known"
+		if s.Stroke >= 0 && s.Stroke < len(numbers) {
+			who = fmt.Sprintf("stroke %d (writing order) of region %s", numbers[s.Stroke], s.Region)
+		}
+		lines = append(lines, fmt.Sprintf("• site %v at (%s, %s) nm: %s, from %s", s.Site, sig(s.At.X, 6), sig(s.At.Y, 6), percent(s.Probability), who))
+	}
+	if len(c.Issues) > 0 {
+		lines = append(lines, "What to do: "+c.Issues[0][strings.Index(c.Issues[0], ": ")+2:])
+	}
+	return lines
+}
+
+// intervals formats the 68 % and 95 % intervals of P(all good).
+func intervals(y planner.Yield) string {
+	f := func(iv [2]float64, l [2]float64) string {
+		if iv[1] == 0 && !math.IsInf(l[1], -1) {
+			return pow10(l[0]) + "–" + pow10(l[1])
+		}
+		return probability(iv[0]) + "–" + probability(iv[1])
+	}
+	return fmt.Sprintf("68 %%: %s, 95 %%: %s from the templates' uncertainties", f(y.All68, y.Log10All68), f(y.All95, y.Log10All95))
+}
+
+// badWindows formats the expected numbers of windows that go wrong.
+func badWindows(y planner.Yield) string {
+	return fmt.Sprintf("%s without a donor, %s with two or more, %s not opened as drawn", sig(y.ExpectedEmpty, 3), sig(y.ExpectedMultiple, 3), sig(y.ExpectedMisopened, 3))
+}
+
+func segmentsLine(n int, fiducials []string, local int) string {
+	var parts []string
+	if len(fiducials) > 0 {
+		parts = append(parts, fmt.Sprintf("%s on fiducials (%s)", thousands(n-local), listShort(fiducials, 8)))
+	}
+	if local > 0 {
+		parts = append(parts, fmt.Sprintf("%s on the lattice and written features beside the work", thousands(local)))
+	}
+	if len(parts) == 0 {
+		return thousands(n)
+	}
+	return fmt.Sprintf("%s: %s", thousands(n), strings.Join(parts, ", "))
+}
+
+// withinLine states the probability of staying within tolerance.
+func withinLine(p *planner.Plan) string {
+	if len(p.Steps) == 0 {
+		return "not estimated (a plan file of version 1, before the session model)"
+	}
+	return fmt.Sprintf("%s: the probability that every stroke and coupled pair stays within its tolerance, sampled on this plan", probability(p.PInTolerance))
+}
+
+// processLine names the lithography steps in order.
+func processLine(p *planner.Plan) string {
+	var species []string
+	for _, st := range p.Steps {
+		if st.Kind == planner.StepLithography && st.Species != "" {
+			species = append(species, st.Species)
+		}
+	}
+	if len(p.Steps) == 0 {
+		return "not planned (a plan file of version 1, before the process steps)"
+	}
+	if len(species) == 0 {
+		return "one lithography step, no dose"
+	}
+	return fmt.Sprintf("%s: %s, each followed by its dose and incorporation anneal (an open window takes any precursor)",
+		plural("lithography step", len(species)), strings.Join(species, ", then "))
+}
+
+// pdfSteps prints the process steps on a page of their own, before the
+// segment tables: what the operator does, in order, with a tick box.
+func pdfSteps(d *pdfDoc, p *planner.Plan) {
+	if len(p.Steps) == 0 {
+		return
+	}
+	d.page()
+	d.heading("Process steps", 0)
+	d.para("An open dangling-bond window takes whichever precursor reaches it first, so each dopant species is written in a "+
+		"lithography step of its own, dosed, and incorporated by an anneal before the next is written. Within a step the "+
+		"dopant windows are written last, to stay open as short a time as possible before the dose. Tick each step when done; "+
+		"the segment tables that follow list each lithography step's segments.", fontBody)
+	t := newTable(d, fontBody,
+		tableColumn{title: "Done", share: 6},
+		tableColumn{title: "Step", share: 5, right: true},
+		tableColumn{title: "Kind", share: 12},
+		tableColumn{title: "Species", share: 8},
+		tableColumn{title: "Starts at (h:mm:ss)", share: 11, right: true},
+		tableColumn{title: "Takes (h:mm:ss)", share: 11, right: true},
+		tableColumn{title: "What", share: 47},
+	)
+	t.start()
+	for i, st := range p.Steps {
+		what := st.Note
+		if st.Kind == planner.StepLithography {
+			first, last := 0, 0
+			if len(st.Segments) > 0 {
+				first, last = st.Segments[0]+1, st.Segments[len(st.Segments)-1]+1
+			}
+			what = fmt.Sprintf("segments %d–%d: %s", first, last, st.Note)
+			if first == last {
+				what = fmt.Sprintf("segment %d: %s", first, st.Note)
+			}
+		}
+		top, _ := t.row("", strconv.Itoa(i+1), string(st.Kind), st.Species, clock(st.StartS), clock(st.DurationS), what)
+		d.tickBox(t.colX(0)+1.6, top+1.2, 3.6)
+	}
+	t.end()
+	if len(p.Windows) > 0 {
+		longest := 0.0
+		for _, w := range p.Windows {
+			longest = math.Max(longest, w.OpenS)
+		}
+		d.para(fmt.Sprintf("The dopant windows stay open at most %s between the end of their write and the start of their dose.", duration(longest)), fontBody)
+	}
 }
 
 // dwellGroup is one set of dwell conditions used by the plan.
@@ -295,8 +442,13 @@ func pdfOverview(d *pdfDoc, sc *scene, win r2.Rect, title string) {
 		what = fmt.Sprintf("x %s to %s nm, y %s to %s nm of the %s × %s nm field.", nm1(win.X.Lo), nm1(win.X.Hi), nm1(win.Y.Lo), nm1(win.Y.Hi),
 			sig(p.FieldWidthNM, 6), sig(p.FieldHeightNM, 6))
 	}
-	d.para(what+fmt.Sprintf(" %s strokes in %s segments; the number at each segment marks where its first stroke starts. "+
-		"Moves are drawn straight from point to point.", thousands(len(p.Strokes)), thousands(len(p.Segments))), font{size: 7.5, grey: 0.25})
+	moves := " Moves are drawn straight from point to point."
+	marks := "the number at each segment marks where its first stroke starts."
+	if sc.summarised() {
+		moves = summaryNote(sc)
+		marks = fmt.Sprintf("segments 1, %d, %d, … (every %s) are numbered where their first stroke starts.", sc.segmentLabelStep()+1, 2*sc.segmentLabelStep()+1, ordinal(sc.segmentLabelStep()))
+	}
+	d.para(what+fmt.Sprintf(" %s strokes in %s segments; %s%s", thousands(len(p.Strokes)), thousands(len(p.Segments)), marks, moves), font{size: 7.5, grey: 0.25})
 }
 
 // insideField shifts win, where it is smaller than the field, so that it
@@ -377,27 +529,48 @@ func segmentNumbers(s *planner.Segment, numbers []int) []int {
 	return out
 }
 
+// segmentTable is the segments of one lithography step, printed as one
+// table under its title.
+type segmentTable struct {
+	title string
+	segs  []int
+}
+
+// segmentTables returns one table per lithography step (a plan without
+// steps: one table of every segment, untitled).
+func segmentTables(p *planner.Plan) []segmentTable {
+	var groups []segmentTable
+	for i, st := range p.Steps {
+		if st.Kind == planner.StepLithography && len(st.Segments) > 0 {
+			title := fmt.Sprintf("Step %d: lithography %s", i+1, st.Species)
+			if st.Species == "" {
+				title = fmt.Sprintf("Step %d: lithography", i+1)
+			}
+			groups = append(groups, segmentTable{title, st.Segments})
+		}
+	}
+	if len(groups) == 0 {
+		all := make([]int, len(p.Segments))
+		for i := range all {
+			all[i] = i
+		}
+		groups = []segmentTable{{"", all}}
+	}
+	return groups
+}
+
 func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int) error {
+	if len(p.Segments) > maxSegmentRows {
+		return pdfSegmentRanges(ctx, d, p, numbers)
+	}
 	d.page()
 	d.heading("Segments", 0)
-	d.para("Write the segments in order. For each: move to its fiducial, image it and correct the offset, "+
+	d.para("Write the segments in order, one table per lithography step. For each: register (coarse: move to the fiducial, image it "+
+		"and correct the offset; local: image the lattice and the features already written beside the first stroke and correct the offset), "+
 		"then write its strokes in order of their numbers from the start position (the stroke list below gives each one; "+
 		"the figures show each number at its stroke's start), and tick the box. Each line within a row is one set of tip conditions "+
-		"and the strokes written with it. Duration runs from the registration to the end of the segment; \"ends at\" is on the plan clock.", fontBody)
-	f := font{size: 7.5}
-	t := newTable(d, f,
-		tableColumn{title: "Done", share: 6},
-		tableColumn{title: "Seg", share: 5, right: true},
-		tableColumn{title: "Register on fiducial", share: 15},
-		tableColumn{title: "Start at x, y (nm); strokes", share: 17},
-		tableColumn{title: "Strokes", share: 14},
-		tableColumn{title: "Mode", share: 6},
-		tableColumn{title: "Bias (V)", share: 7, right: true},
-		tableColumn{title: "Setpoint (nA)", share: 9, right: true},
-		tableColumn{title: "Speed (nm/s)", share: 10, right: true},
-		tableColumn{title: "Duration (h:mm:ss)", share: 10, right: true},
-		tableColumn{title: "Ends at (h:mm:ss)", share: 10, right: true},
-	)
+		"and the strokes written with it. P is the sampled probability that every stroke of the segment stays within its tolerance. "+
+		"Duration runs from the start of the segment to its end; \"ends at\" is on the plan clock.", fontBody)
 	// Actions of each segment, found in one pass.
 	bounds := make([][2]int, len(p.Segments))
 	for i := range bounds {
@@ -409,53 +582,104 @@ func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int)
 			b[0], b[1] = min(b[0], i), max(b[1], i+1)
 		}
 	}
-	t.start()
-	for i, s := range p.Segments {
-		if i%200 == 0 {
-			if err := ctx.Err(); err != nil {
-				return err
+	f := font{size: 7.5}
+	for _, g := range segmentTables(p) {
+		if g.title != "" {
+			d.heading(g.title, 30)
+		}
+		t := newTable(d, f,
+			tableColumn{title: "Done", share: 6},
+			tableColumn{title: "Seg", share: 5, right: true},
+			tableColumn{title: "Register", share: 15},
+			tableColumn{title: "Start at x, y (nm); strokes", share: 17},
+			tableColumn{title: "Strokes", share: 14},
+			tableColumn{title: "Mode", share: 6},
+			tableColumn{title: "Bias (V)", share: 7, right: true},
+			tableColumn{title: "Setpoint (nA)", share: 9, right: true},
+			tableColumn{title: "Speed (nm/s)", share: 10, right: true},
+			tableColumn{title: "Duration (h:mm:ss)", share: 10, right: true},
+			tableColumn{title: "Ends at (h:mm:ss)", share: 10, right: true},
+		)
+		t.start()
+		last := 0.0
+		for n, i := range g.segs {
+			if n%200 == 0 {
+				if err := ctx.Err(); err != nil {
+					return err
+				}
 			}
-		}
-		groups := segmentGroups(p, i, min(bounds[i][0], bounds[i][1]), bounds[i][1])
-		var strokes, modes, bias, cur, speed []string
-		for _, g := range groups {
-			strokes = append(strokes, g.kindCounts())
-			modes = append(modes, g.mode.Abbrev())
-			bias = append(bias, signedV(g.bias))
-			cur = append(cur, nanoAmps(g.current))
-			if g.dwell {
-				speed = append(speed, sig(g.time/float64(len(g.kinds)), 3)+" s/pt")
-			} else {
-				speed = append(speed, sig(g.speed, 4))
+			s := p.Segments[i]
+			groups := segmentGroups(p, i, min(bounds[i][0], bounds[i][1]), bounds[i][1])
+			var strokes, modes, bias, cur, speed []string
+			for _, g := range groups {
+				strokes = append(strokes, g.kindCounts())
+				modes = append(modes, g.mode.Abbrev())
+				bias = append(bias, signedV(g.bias))
+				cur = append(cur, nanoAmps(g.current))
+				if g.dwell {
+					speed = append(speed, sig(g.time/float64(len(g.kinds)), 3)+" s/pt")
+				} else {
+					speed = append(speed, sig(g.speed, 4))
+				}
 			}
+			start := ""
+			if len(s.Strokes) > 0 {
+				q := p.Strokes[s.Strokes[0]].Path[0]
+				start = nm1(q.X) + ", " + nm1(q.Y) + "\n" + plural("stroke", len(s.Strokes)) + " " + numberRanges(segmentNumbers(&s, numbers))
+			}
+			reg := s.Fiducial + "\n(" + nm1(s.FiducialAt.X) + ", " + nm1(s.FiducialAt.Y) + ")"
+			if s.Registration == planner.RegLocal {
+				reg = "local\n(" + nm1(s.FiducialAt.X) + ", " + nm1(s.FiducialAt.Y) + ")"
+			}
+			reg += "\nP " + probability(s.PInTolerance)
+			top, _ := t.row("", strconv.Itoa(i+1), reg, start, strings.Join(strokes, "\n"), strings.Join(modes, "\n"),
+				strings.Join(bias, "\n"), strings.Join(cur, "\n"), strings.Join(speed, "\n"), clock(s.EndS-s.StartS), clock(s.EndS))
+			d.tickBox(t.colX(0)+1.6, top+1.2, 3.6)
+			last = s.EndS
 		}
-		start := ""
-		if len(s.Strokes) > 0 {
-			q := p.Strokes[s.Strokes[0]].Path[0]
-			start = nm1(q.X) + ", " + nm1(q.Y) + "\n" + plural("stroke", len(s.Strokes)) + " " + numberRanges(segmentNumbers(&s, numbers))
-		}
-		fid := s.Fiducial + "\n(" + nm1(s.FiducialAt.X) + ", " + nm1(s.FiducialAt.Y) + ")"
-		top, _ := t.row("", strconv.Itoa(i+1), fid, start, strings.Join(strokes, "\n"), strings.Join(modes, "\n"),
-			strings.Join(bias, "\n"), strings.Join(cur, "\n"), strings.Join(speed, "\n"), clock(s.EndS-s.StartS), clock(s.EndS))
-		d.tickBox(t.colX(0)+1.6, top+1.2, 3.6)
+		t.row("", "", "Step ends", "", "", "", "", "", "", "", clock(last))
+		t.end()
 	}
-	t.row("", "", "Total", "", "", "", "", "", "", "", clock(p.TotalS))
-	t.end()
 	return nil
 }
 
 func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	d.page()
-	d.heading("Write time", 60)
-	d.para(fmt.Sprintf("Expected total %s (%s), the sum of the parts below. Writing alone (AP, FE and dwell) is %s of it. %s.",
+	d.heading("Session time", 60)
+	d.para(fmt.Sprintf("Mean %s (%s) over the Monte Carlo samples of this plan, the sum of the parts below (tip changes are random: "+
+		"their part is their mean). Writing alone (AP, FE and dwell) is %s of it. %s.",
 		clock(p.TotalS), duration(p.TotalS), percent(safeDiv(p.Breakdown.APWriteS+p.Breakdown.FEWriteS+p.Breakdown.DwellS, p.TotalS)),
 		capitalise(floorLine(p))), fontBody)
 	h := drawBreakdownBars(d.c, p.Breakdown, box{d.left(), d.y, d.width(), 50})
 	d.y += h + 6
-	d.heading("Spread of the write time", 30)
+	d.heading("Spread of the session time", 30)
 	h = drawSpread(d.c, p.P10S, p.P50S, p.P90S, p.TotalS, box{d.left() + 10, d.y, d.width() - 20, 25})
 	d.y += h + 2
 	d.y += spreadLegend(d.c, vec{d.left() + 10, d.y}, p.P50S, p.TotalS) + 4
+
+	d.heading("Staying within tolerance", 30)
+	dp := p.Drift
+	d.para(fmt.Sprintf("The probability that every stroke and every coupled pair stays within its tolerance is %s, sampled on this plan "+
+		"(drift rate, creep, registration errors). The segments were planned for %s nm/min of drift, %s of creep and registration errors of %s σ, "+
+		"with a margin of ×%s.", probability(p.PInTolerance), sig(dp.RateNMPerMin, 3), sig(dp.CreepFraction, 3), sig(dp.ErrorZ, 3), sig(dp.Margin, 3)), fontBody)
+	if len(p.Couplings) > 0 {
+		t := newTable(d, fontBody,
+			tableColumn{title: "Coupled", share: 14},
+			tableColumn{title: "Regions", share: 36},
+			tableColumn{title: "Tolerance (nm)", share: 14, right: true},
+			tableColumn{title: "Held by", share: 24},
+			tableColumn{title: "P(within)", share: 12, right: true},
+		)
+		t.start()
+		for _, c := range p.Couplings {
+			how := "one drift window"
+			if !c.SameStep {
+				how = "local registration on the earlier step"
+			}
+			t.row(string(c.Kind), c.A+" / "+c.B, "±"+sig(c.ToleranceNM, 3), how, probability(c.PInTolerance))
+		}
+		t.end()
+	}
 
 	d.heading("Dopant yield", 40)
 	if len(p.Windows) == 0 {
@@ -465,27 +689,34 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	y := p.Yield
 	d.keyValues([][2]string{
 		{"Windows", thousands(y.Windows)},
-		{"All windows good", fmt.Sprintf("%s: the probability that every window takes exactly one donor", allGood(y))},
+		{"All windows good", fmt.Sprintf("%s: the probability that every window is opened as drawn and takes exactly one donor; %s", allGood(y), intervals(y))},
 		{"Good windows", meanGood(y)},
+		{"Bad windows expected", badWindows(y)},
 		{"Devices per perfect one", devicesPerPerfect(y)},
 	}, 0.28)
+	d.para("A window is good when it is opened as drawn (every site cleared and none of its neighbours, from the exposure model) and then "+
+		"takes exactly one donor (the template's p1). p0, p1 and p≥2 are the template's probabilities of 0, 1 and 2 or more donors in a window opened as drawn.", font{size: 7.5, grey: 0.25})
 	t := newTable(d, fontBody,
-		tableColumn{title: "Species", share: 10},
-		tableColumn{title: "Template", share: 12},
-		tableColumn{title: "Windows", share: 10, right: true},
-		tableColumn{title: "P(all sites open)", share: 14, right: true},
-		tableColumn{title: "P(exactly one donor)", share: 16, right: true},
-		tableColumn{title: "Regions", share: 38},
+		tableColumn{title: "Species", share: 8},
+		tableColumn{title: "Template", share: 9},
+		tableColumn{title: "Windows", share: 8, right: true},
+		tableColumn{title: "P(opened as drawn)", share: 12, right: true},
+		tableColumn{title: "p0", share: 7, right: true},
+		tableColumn{title: "p1", share: 11, right: true},
+		tableColumn{title: "p≥2", share: 7, right: true},
+		tableColumn{title: "P(good)", share: 9, right: true},
+		tableColumn{title: "Regions", share: 29},
 	)
 	type key struct {
-		species, template string
-		open, p           float64
+		species, template   string
+		open, p0, p1, p2, p float64
+		sd                  float64
 	}
 	groups := map[key][]string{}
 	counts := map[key]int{}
 	var order []key
 	for _, w := range p.Windows {
-		k := key{w.Species, w.Template, w.OpenProbability, w.Probability}
+		k := key{w.Species, w.Template, w.OpenProbability, w.P0, w.P1, w.P2Plus, w.Probability, w.P1SD}
 		if counts[k] == 0 {
 			order = append(order, k)
 		}
@@ -500,7 +731,11 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 		if k.open > 0 {
 			open = probability(k.open)
 		}
-		t.row(k.species, k.template, thousands(counts[k]), open, probability(k.p), listShort(groups[k], 6))
+		p1 := probability(k.p1)
+		if k.sd > 0 {
+			p1 += " ± " + sig(k.sd, 2)
+		}
+		t.row(k.species, k.template, thousands(counts[k]), open, probability(k.p0), p1, probability(k.p2), probability(k.p), listShort(groups[k], 6))
 	}
 	t.end()
 	d.need(62)
@@ -508,6 +743,36 @@ func pdfEstimates(d *pdfDoc, p *planner.Plan) {
 	d.y += 5
 	h = drawDistribution(d.c, y.Distribution, box{d.left(), d.y, d.width(), 55})
 	d.y += h + 2
+}
+
+// pdfCoverage prints the coverage expectation region by region.
+func pdfCoverage(d *pdfDoc, p *planner.Plan) {
+	c := p.Coverage
+	if len(c.Regions) == 0 {
+		return
+	}
+	d.heading("Coverage: what the strokes are expected to clear", 40)
+	d.para(fmt.Sprintf("Each H site clears with probability 1 − exp(−Y·N), N the electrons its strokes' footprints deliver to it and Y the "+
+		"desorption yield per electron at their bias and current (Shen et al., Science 268, 1590 (1995)). Missed: a region's sites expected to keep "+
+		"their H. Stray: sites outside every region expected to clear beyond the edge allowance, with the background of spurious dangling bonds along "+
+		"AP lines. P(no error): the probability that the region is written exactly. %s.", capitalise(coverageLine(c))), font{size: 7.5, grey: 0.25})
+	t := newTable(d, fontBody,
+		tableColumn{title: "Region", share: 22},
+		tableColumn{title: "Sites", share: 14, right: true},
+		tableColumn{title: "Missed", share: 14, right: true},
+		tableColumn{title: "Stray", share: 14, right: true},
+		tableColumn{title: "of them spurious", share: 16, right: true},
+		tableColumn{title: "P(no error)", share: 20, right: true},
+	)
+	t.start()
+	for _, r := range c.Regions {
+		pr := probability(r.Probability)
+		if r.Probability == 0 && !math.IsInf(r.Log10Probability, -1) {
+			pr = pow10(r.Log10Probability)
+		}
+		t.row(r.Region, thousands(r.Sites), sig(r.ExpectedMissed, 3), sig(r.ExpectedStray, 3), sig(r.ExpectedSpurious, 3), pr)
+	}
+	t.end()
 }
 
 // zoomLegend returns the key of the zoomed figures.

@@ -329,6 +329,29 @@ func (d *pdfDoc) cautionBox() {
 	d.y += h + 5
 }
 
+// errorBox draws a boxed block of lines, heavier than the caution: what
+// the operator must see before anything else on the page.
+func (d *pdfDoc) errorBox(title string, lines []string) {
+	ft, f := font{size: 12, bold: true}, font{size: 8.5}
+	lh := f.size * ptMM * 1.35
+	var wrapped []string
+	for _, l := range lines {
+		wrapped = append(wrapped, wrapText(d.c, l, f, d.width()-14)...)
+	}
+	h := ft.size*ptMM*1.4 + float64(len(wrapped))*lh + 8
+	d.need(h + 4)
+	b := box{d.left(), d.y, d.width(), h}
+	d.c.rect(b, pen{width: 2}, solid(0.8), tag{})
+	y := d.y + 4 + ft.size*ptMM
+	d.c.text(vec{d.left() + 6, y}, title, ft, anchorStart, tag{})
+	y += ft.size*ptMM*0.4 + lh
+	for _, l := range wrapped {
+		d.c.text(vec{d.left() + 7, y}, l, f, anchorStart, tag{})
+		y += lh
+	}
+	d.y += h + 5
+}
+
 // tickBox draws an empty square for the operator to tick.
 func (d *pdfDoc) tickBox(x, y, size float64) {
 	d.c.rect(box{x, y, size, size}, pen{width: 0.35}, solid(1), tag{})

@@ -89,13 +89,6 @@ func floorLine(p *planner.Plan) string {
 	return strings.Join(parts, "; ")
 }
 
-func segmentsLine(n int, fiducials []string) string {
-	if len(fiducials) == 0 {
-		return thousands(n)
-	}
-	return fmt.Sprintf("%s, registering on %s", thousands(n), listShort(fiducials, 8))
-}
-
 func devicesPerPerfect(y planner.Yield) string {
 	if y.DevicesPerPerfect == 0 {
 		if l := y.Log10All; !math.IsInf(l, -1) && l < 0 {

@@ -103,21 +103,29 @@ func diffPlans(t *testing.T, got, want *planner.Plan) {
 func TestPlanFileCoversPlan(t *testing.T) {
 	known := map[reflect.Type][]string{
 		reflect.TypeFor[planner.Plan](): {"Design", "Variant", "Profile", "Seed", "FieldWidthNM", "FieldHeightNM", "Conditions",
-			"Modes", "Fiducials", "Strokes", "Segments", "Actions", "Breakdown", "TotalS", "P10S", "P50S", "P90S", "FloorS", "ByHandS", "Windows",
-			"Yield", "Coverage", "Warnings"},
+			"Modes", "Fiducials", "Strokes", "Segments", "Actions", "Steps", "Breakdown", "TotalS", "P10S", "P50S", "P90S", "ScheduleS",
+			"PInTolerance", "Couplings", "Drift", "FloorS", "ByHandS", "Windows", "Yield", "Coverage", "Warnings"},
 		reflect.TypeFor[planner.Conditions](): {"Mode", "Kind", "BiasV", "CurrentA", "LineDoseCPerCm", "SpeedNMPerS", "LineWidthNM", "Passes", "PitchNM",
-			"DwellS", "DwellCapS"},
+			"DwellS", "DwellCapS", "YieldPerElectron", "SigmaNM", "ElectronsPerSite"},
 		reflect.TypeFor[planner.RegionMode](): {"Region", "Role", "Requested", "Mode", "Reason", "Sites"},
 		reflect.TypeFor[planner.Fiducial]():   {"Name", "At"},
 		reflect.TypeFor[planner.Stroke](): {"ID", "Region", "Mode", "Kind", "Path", "Passes", "LengthNM", "DurationS", "Sites",
-			"ToleranceNM", "Segment", "Window"},
-		reflect.TypeFor[planner.Segment](): {"Index", "Fiducial", "FiducialAt", "StartS", "EndS", "BudgetS", "Strokes"},
+			"ToleranceNM", "Segment", "Window", "ExpectedMissed", "ExpectedStray"},
+		reflect.TypeFor[planner.Segment](): {"Index", "Step", "Registration", "Reason", "Fiducial", "FiducialAt", "StartS", "EndS", "BudgetS",
+			"Strokes", "Tightest", "PInTolerance"},
+		reflect.TypeFor[planner.Step]():      {"Kind", "Species", "StartS", "DurationS", "Segments", "Precursor", "ExposureL", "TemperatureC", "Note"},
+		reflect.TypeFor[planner.Coupling]():  {"Kind", "A", "B", "ToleranceNM", "Strokes", "SameStep", "PInTolerance"},
+		reflect.TypeFor[planner.DriftPlan](): {"RateNMPerMin", "CreepFraction", "ErrorZ", "Margin", "Compensated"},
 		reflect.TypeFor[planner.Action](): {"Index", "Kind", "Segment", "Stroke", "From", "To", "StartS", "DurationS", "Mode",
 			"BiasV", "CurrentA", "SpeedNMPS", "Note"},
-		reflect.TypeFor[planner.Breakdown](): {"APWriteS", "FEWriteS", "DwellS", "TravelS", "ModeSwitchS", "RegistrationS", "VerificationS"},
-		reflect.TypeFor[planner.Window]():    {"Region", "Species", "Template", "At", "Sites", "OpenProbability", "Probability"},
-		reflect.TypeFor[planner.Yield]():     {"Windows", "All", "MeanGood", "Distribution", "DistributionFrom", "Log10All", "SDGood", "DevicesPerPerfect"},
-		reflect.TypeFor[planner.Coverage]():  {"OK", "Sites", "Uncovered", "Overcleared", "Issues"},
+		reflect.TypeFor[planner.Breakdown](): {"APWriteS", "FEWriteS", "DwellS", "TravelS", "ModeSwitchS", "RegistrationS", "VerificationS",
+			"SurveyS", "ConditioningS", "TipChangeS", "RepairS", "DocumentationS", "DoseS", "AnnealS"},
+		reflect.TypeFor[planner.Window](): {"Region", "Species", "Template", "At", "Sites", "OpenProbability", "P0", "P1", "P2Plus", "P1SD", "Probability", "OpenS"},
+		reflect.TypeFor[planner.Yield](): {"Windows", "All", "All68", "All95", "Log10All68", "Log10All95", "ExpectedEmpty", "ExpectedMultiple", "ExpectedMisopened",
+			"MeanGood", "Distribution", "DistributionFrom", "Log10All", "SDGood", "DevicesPerPerfect"},
+		reflect.TypeFor[planner.Coverage]():       {"OK", "Sites", "StrayLimit", "ExpectedMissed", "ExpectedStray", "Regions", "OverLimit", "StraySites", "Issues"},
+		reflect.TypeFor[planner.RegionCoverage](): {"Region", "Sites", "ExpectedMissed", "ExpectedStray", "ExpectedSpurious", "Probability", "Log10Probability"},
+		reflect.TypeFor[planner.StraySite]():      {"Site", "At", "Probability", "Region", "Stroke"},
 	}
 	for typ, names := range known {
 		var got []string
@@ -130,6 +138,39 @@ func TestPlanFileCoversPlan(t *testing.T) {
 			t.Errorf("%v has fields %v; the plan file carries %v", typ, got, names)
 		}
 	}
+}
+
+// TestBreakdownKeys checks that the breakdown's keys in messages are the
+// plan file's own: one per kind of time, in TimeKinds' order.
+func TestBreakdownKeys(t *testing.T) {
+	typ := reflect.TypeFor[breakdownJSON]()
+	if typ.NumField() != len(planner.TimeKinds) {
+		t.Fatalf("breakdownJSON has %d fields, planner.TimeKinds %d", typ.NumField(), len(planner.TimeKinds))
+	}
+	for i, k := range planner.TimeKinds {
+		if tag := strings.Split(typ.Field(i).Tag.Get("json"), ",")[0]; breakdownKey(k) != tag {
+			t.Errorf("breakdownKey(%v) = %q, the file's field is %q", k, breakdownKey(k), tag)
+		}
+	}
+	b := planner.Breakdown{}
+	for i, k := range planner.TimeKinds {
+		*fieldOf(&b, k) = float64(i + 1)
+	}
+	bj := breakdownOf(b)
+	if got := bj.breakdown(); got != b {
+		t.Errorf("breakdown round trip %+v, want %+v", got, b)
+	}
+}
+
+// fieldOf returns the field of kind k of b (test helper over Seconds).
+func fieldOf(b *planner.Breakdown, k planner.TimeKind) *float64 {
+	v := reflect.ValueOf(b).Elem()
+	for i, kk := range planner.TimeKinds {
+		if kk == k {
+			return v.Field(i).Addr().Interface().(*float64)
+		}
+	}
+	return nil
 }
 
 func TestPlanJSONDerivedFields(t *testing.T) {
@@ -230,7 +271,7 @@ func TestReadPlanJSONRejects(t *testing.T) {
 		{"wrong paper number", mutate(t, p, func(m map[string]any) { at(m, "strokes", 2)["number"] = 9.0 }), ErrInvalid, "strokes[2].number = 9: stroke 2 is number 3 in writing order"},
 		{"version string", mutate(t, p, func(m map[string]any) { m["version"] = "1" }), ErrVersion, "version"},
 		{"unknown field", mutate(t, p, func(m map[string]any) { m["colour"] = "red" }), ErrInvalid, "colour"},
-		{"syntax error line", []byte("{\n\"format\": \"dimerpath-plan\",\n\"version\": 1,\n\"design\": ]\n}"), ErrSyntax, "line 4"},
+		{"syntax error line", []byte("{\n\"format\": \"dimerpath-plan\",\n\"version\": 2,\n\"design\": ]\n}"), ErrSyntax, "line 4"},
 		{"trailing data", append(mutate(t, p, func(map[string]any) {}), []byte(" {}")...), ErrSyntax, ""},
 		{"wrong type", mutate(t, p, func(m map[string]any) { m["total_s"] = "long" }), ErrInvalid, "total_s"},
 		{"negative duration", mutate(t, p, func(m map[string]any) { at(m, "strokes", 2)["duration_s"] = -1.0 }), ErrInvalid, "strokes[2].duration_s"},

@@ -78,6 +78,9 @@ type scene struct {
 	hasWrite  []bool
 	// number[id] is stroke id's number on paper (StrokeNumbers).
 	number []int
+	// summary lets the overview summarise a plan too large to draw
+	// stroke by stroke (the printed plan; see summarised).
+	summary bool
 }
 
 // regionShape is a region drawn as field rectangles, one per run of

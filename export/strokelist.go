@@ -9,22 +9,27 @@ import (
 	"dimerpath/planner"
 )
 
-// pdfStrokeList prints every tip action an operator does, in the order
-// they are done, each with a box to tick: per segment the registration,
-// then each mode switch, stroke and verification image. Strokes carry
-// their number on paper (numbers, from StrokeNumbers) and their id in the
-// plan file and action CSV; moves are implied by each stroke's start.
-// A segment that runs onto the next page is announced again there
-// ("continued"), and nothing is left out however long the plan.
-// O(actions).
+// pdfStrokeList prints every action an operator does, in the order they
+// are done, each with a box to tick: the process actions (conditioning,
+// survey, dose, anneal, …) between the lithography, and per segment the
+// registration, then each change of conditions, stroke and verification
+// image. Strokes carry their number on paper (numbers, from
+// StrokeNumbers) and their id in the plan file and action CSV; moves are
+// implied by each stroke's start. A segment that runs onto the next page
+// is announced again there ("continued"), and nothing is left out however
+// long the plan. O(actions).
 func pdfStrokeList(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int) error {
 	if len(p.Strokes) == 0 {
 		return nil
 	}
-	d.heading("Strokes in writing order", 20)
-	d.para("Every action of the write, in order, with a box to tick: register on the segment's fiducial, switch conditions where "+
-		"a row says so, then move to each stroke's start and write it towards its end. No. is the stroke's number on paper "+
-		"(as in the figures); \"id\" is the same stroke's id in the plan file and the action CSV.", fontBody)
+	if len(p.Strokes) > maxListedStrokes {
+		pdfStrokeListSummary(d, p)
+		return nil
+	}
+	d.heading("Every action, in order", 20)
+	d.para("Every action of the session, in order, with a box to tick: the process actions between the lithography, and for each "+
+		"segment its registration, the conditions where a row gives them, then each stroke: move to its start and write it towards its end. "+
+		"No. is the stroke's number on paper (as in the figures); \"id\" is the same stroke's id in the plan file and the action CSV.", fontBody)
 	f := font{size: 7}
 	t := newTable(d, f,
 		tableColumn{title: "Done", share: 5},
@@ -65,20 +70,27 @@ func pdfStrokeList(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []in
 			}
 		}
 		switch a.Kind {
+		case planner.ActMove:
+			// Implied by the next row's position.
 		case planner.ActRegister:
 			seg = -1         // a new segment's first row needs no "continued" above it
-			d.need(3 * rowH) // never a segment's heading alone at a page's foot
+			d.need(5 * rowH) // never a segment's heading (two lines) alone at a page's foot
 			s := &p.Segments[a.Segment]
-			head := fmt.Sprintf("Segment %d: register on %s at %s, %s nm", a.Segment+1, s.Fiducial, nm1(s.FiducialAt.X), nm1(s.FiducialAt.Y))
+			head := fmt.Sprintf("Segment %d: register locally at %s, %s nm", a.Segment+1, nm1(s.FiducialAt.X), nm1(s.FiducialAt.Y))
+			if s.Fiducial != "" {
+				head = fmt.Sprintf("Segment %d: register on %s at %s, %s nm", a.Segment+1, s.Fiducial, nm1(s.FiducialAt.X), nm1(s.FiducialAt.Y))
+			}
 			if len(s.Strokes) > 0 {
 				head += "; " + plural("stroke", len(s.Strokes)) + " " + numberRanges(segmentNumbers(s, numbers))
+			}
+			if a.Note != "" {
+				head += " (" + a.Note + ")"
 			}
 			tick(t.spanRowFont("", head, fontBold))
 			seg, said = a.Segment, nil // registering images: say the writing conditions again
 		case planner.ActSwitch:
 			tick(t.spanRow("", fmt.Sprintf("Switch to %s conditions: %s V, %s nA", a.Mode.Adjective(), signedV(a.BiasV), nanoAmps(a.CurrentA))))
-		case planner.ActVerify:
-			tick(t.spanRow("", "Verification image"))
+			said = nil
 		case planner.ActWrite, planner.ActDwell:
 			now := cond{mode: a.Mode, dwell: a.Kind == planner.ActDwell, bias: a.BiasV, current: a.CurrentA, speed: a.SpeedNMPS}
 			if now.dwell {
@@ -102,6 +114,18 @@ func pdfStrokeList(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []in
 			top, _ := t.row("", strconv.Itoa(numbers[a.Stroke]), strconv.Itoa(s.ID), s.Region, strokeKindName(s.Mode, s.Kind),
 				nm1(start.X)+", "+nm1(start.Y), nm1(end.X)+", "+nm1(end.Y), length, strconv.Itoa(s.Passes), sig(a.DurationS, 3))
 			tick(top)
+		default:
+			// A verification image, or a process action (conditioning,
+			// survey, dose, anneal, refind, repair, documentation).
+			if a.Segment < 0 {
+				seg = -1 // between segments: nothing continues
+			}
+			what := a.Note
+			if what == "" {
+				what = string(a.Kind)
+			}
+			tick(t.spanRow("", capitalise(what)+" ("+clock(a.DurationS)+")"))
+			said = nil
 		}
 	}
 	seg = -1

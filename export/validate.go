@@ -3,7 +3,9 @@ package export
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
+	"strings"
 
 	"github.com/golang/geo/r2"
 
@@ -112,6 +114,21 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 			v.fail(invalid(f+".end_s", s.EndS, "ends before it starts (%g s)", s.StartS))
 		}
 		v.nonNeg(f+".budget_s", s.BudgetS)
+		// A plan without steps is a version 1 plan: no session model.
+		if len(p.Steps) > 0 {
+			v.index(f+".step", s.Step, len(p.Steps), false)
+			if v.err == nil && s.Step < len(p.Steps) && p.Steps[s.Step].Kind != planner.StepLithography {
+				v.fail(invalid(f+".step", s.Step, "step %d is a %s step, not a lithography step", s.Step, p.Steps[s.Step].Kind))
+			}
+			if v.err == nil && s.Registration != planner.RegCoarse && s.Registration != planner.RegLocal {
+				v.fail(invalid(f+".registration", string(s.Registration), "unknown registration kind (want coarse or local)"))
+			}
+		}
+		if v.err == nil && s.Registration == planner.RegCoarse && s.Fiducial == "" {
+			v.fail(invalid(f+".fiducial", s.Fiducial, "a coarse registration names its fiducial"))
+		}
+		v.index(f+".tightest", s.Tightest, len(p.Strokes), true)
+		v.probability(f+".p_in_tolerance", s.PInTolerance)
 		for k, id := range s.Strokes {
 			if id < 0 || id >= len(p.Strokes) || p.Strokes[id].Segment != i {
 				g := fmt.Sprintf("%s.strokes[%d]", f, k)
@@ -133,10 +150,8 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 		if a.Index != i {
 			v.fail(invalid(f+".index", a.Index, "action %d must have index %d", i, i))
 		}
-		switch a.Kind {
-		case planner.ActRegister, planner.ActMove, planner.ActSwitch, planner.ActWrite, planner.ActDwell, planner.ActVerify:
-		default:
-			v.fail(invalid(f+".kind", string(a.Kind), "unknown action kind (want register, move, switch, write, dwell or verify)"))
+		if v.err == nil && !slices.Contains(planner.ActionKinds, a.Kind) {
+			v.fail(invalid(f+".kind", string(a.Kind), "unknown action kind (want %s)", actionKindList()))
 		}
 		v.index(f+".segment", a.Segment, len(p.Segments), true)
 		v.index(f+".stroke", a.Stroke, len(p.Strokes), true)
@@ -161,13 +176,33 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 			return v.err
 		}
 	}
+	for i, st := range p.Steps {
+		f := v.at("steps", i)
+		switch st.Kind {
+		case planner.StepSurvey, planner.StepLithography, planner.StepDose, planner.StepAnneal, planner.StepReregister, planner.StepDocumentation:
+		default:
+			v.fail(invalid(f+".kind", string(st.Kind), "unknown step kind (want survey, lithography, dose, anneal, reregister or documentation)"))
+		}
+		v.nonNeg(f+".start_s", st.StartS)
+		v.nonNeg(f+".duration_s", st.DurationS)
+		v.nonNeg(f+".exposure_l", st.ExposureL)
+		v.finite(f+".temperature_c", st.TemperatureC)
+		if v.err == nil && len(st.Segments) > 0 && st.Kind != planner.StepLithography {
+			v.fail(invalid(f+".segments", len(st.Segments), "only a lithography step holds segments"))
+		}
+		for k, g := range st.Segments {
+			v.index(fmt.Sprintf("%s.segments[%d]", f, k), g, len(p.Segments), false)
+			if v.err == nil && p.Segments[g].Step != i {
+				v.fail(invalid(fmt.Sprintf("%s.segments[%d]", f, k), g, "segment %d says it is in step %d", g, p.Segments[g].Step))
+			}
+		}
+		if v.err != nil {
+			return v.err
+		}
+	}
 	b := p.Breakdown
-	for _, part := range []struct {
-		name string
-		v    float64
-	}{{"ap_write_s", b.APWriteS}, {"fe_write_s", b.FEWriteS}, {"dwell_s", b.DwellS}, {"travel_s", b.TravelS},
-		{"mode_switch_s", b.ModeSwitchS}, {"registration_s", b.RegistrationS}, {"verification_s", b.VerificationS}} {
-		v.nonNeg("breakdown."+part.name, part.v)
+	for _, k := range planner.TimeKinds {
+		v.nonNeg("breakdown."+breakdownKey(k), b.Seconds(k))
 	}
 	v.nonNeg("total_s", p.TotalS)
 	if v.err == nil && math.Abs(b.Total()-p.TotalS) > 1e-6*math.Max(1, p.TotalS) {
@@ -178,6 +213,24 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 	v.nonNeg("p90_s", p.P90S)
 	v.nonNeg("floor_s", p.FloorS)
 	v.nonNeg("by_hand_s", p.ByHandS)
+	v.nonNeg("schedule_s", p.ScheduleS)
+	v.probability("p_in_tolerance", p.PInTolerance)
+	for i, c := range p.Couplings {
+		f := v.at("couplings", i)
+		if v.err == nil && c.Kind != planner.CoupledGap && c.Kind != planner.CoupledPlacement {
+			v.fail(invalid(f+".kind", string(c.Kind), "unknown coupling kind (want tunnel-gap or placement)"))
+		}
+		v.positive(f+".tolerance_nm", c.ToleranceNM)
+		v.probability(f+".p_in_tolerance", c.PInTolerance)
+		for k, id := range c.Strokes {
+			v.index(fmt.Sprintf("%s.strokes[%d]", f, k), id, len(p.Strokes), false)
+		}
+	}
+	d := p.Drift
+	v.nonNeg("drift_plan.rate_nm_per_min", d.RateNMPerMin)
+	v.nonNeg("drift_plan.creep_fraction", d.CreepFraction)
+	v.nonNeg("drift_plan.error_z", d.ErrorZ)
+	v.nonNeg("drift_plan.margin", d.Margin)
 	if v.err == nil && !(p.P10S <= p.P50S && p.P50S <= p.P90S) {
 		v.fail(invalid("p50_s", p.P50S, "quantiles out of order (p10 %g s, p90 %g s)", p.P10S, p.P90S))
 	}
@@ -186,7 +239,20 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 		v.point(f+".at_nm", w.At)
 		v.count(f+".sites", w.Sites)
 		v.probability(f+".open_probability", w.OpenProbability)
+		v.probability(f+".p0", w.P0)
+		v.probability(f+".p1", w.P1)
+		v.probability(f+".p2plus", w.P2Plus)
 		v.probability(f+".probability", w.Probability)
+		if v.err == nil && math.Abs(w.P0+w.P1+w.P2Plus-1) > 1e-9 {
+			v.fail(invalid(f+".p2plus", w.P2Plus, "p0 + p1 + p2plus = %g, not 1", w.P0+w.P1+w.P2Plus))
+		}
+		if v.err == nil && !(w.P1SD >= 0 && w.P1SD < 1) {
+			v.fail(invalid(f+".p1_sd", w.P1SD, "an uncertainty must lie in [0, 1)"))
+		}
+		if v.err == nil && math.Abs(w.Probability-w.OpenProbability*w.P1) > 1e-9 {
+			v.fail(invalid(f+".probability", w.Probability, "not open_probability · p1 = %g", w.OpenProbability*w.P1))
+		}
+		v.nonNeg(f+".open_s", w.OpenS)
 	}
 	y := p.Yield
 	v.count("yield.windows", y.Windows)
@@ -209,11 +275,66 @@ func checkPlanWith(p *planner.Plan, named bool) error {
 	if v.err == nil && (y.DistributionFrom < 0 || y.DistributionFrom > max(0, len(y.Distribution))) {
 		v.fail(invalid("yield.distribution_from", y.DistributionFrom, "must lie between 0 and the distribution's length %d", len(y.Distribution)))
 	}
+	for k, iv := range [][2]float64{y.All68, y.All95} {
+		name := []string{"yield.all_68", "yield.all_95"}[k]
+		v.probability(name, iv[0])
+		v.probability(name, iv[1])
+		if v.err == nil && iv[0] > iv[1] {
+			v.fail(invalid(name, fmt.Sprint(iv), "an interval's low end must not lie above its high end"))
+		}
+	}
+	v.nonNeg("yield.expected_empty", y.ExpectedEmpty)
+	v.nonNeg("yield.expected_multiple", y.ExpectedMultiple)
+	v.nonNeg("yield.expected_misopened", y.ExpectedMisopened)
 	c := p.Coverage
 	v.count("coverage.sites", c.Sites)
-	v.count("coverage.uncovered", c.Uncovered)
-	v.count("coverage.overcleared", c.Overcleared)
+	v.nonNeg("coverage.expected_missed", c.ExpectedMissed)
+	v.nonNeg("coverage.expected_stray", c.ExpectedStray)
+	v.count("coverage.over_limit", c.OverLimit)
+	if v.err == nil && len(c.StraySites) > c.OverLimit {
+		v.fail(invalid("coverage.stray_sites", len(c.StraySites), "more stray sites listed than over_limit (%d)", c.OverLimit))
+	}
+	for i, r := range c.Regions {
+		f := v.at("coverage.regions", i)
+		v.count(f+".sites", r.Sites)
+		v.nonNeg(f+".expected_missed", r.ExpectedMissed)
+		v.nonNeg(f+".expected_stray", r.ExpectedStray)
+		v.nonNeg(f+".expected_spurious", r.ExpectedSpurious)
+		v.probability(f+".probability", r.Probability)
+	}
+	for i, s := range c.StraySites {
+		f := v.at("coverage.stray_sites", i)
+		v.point(f+".at_nm", s.At)
+		v.probability(f+".probability", s.Probability)
+		if v.err == nil && (s.Stroke < -1 || s.Stroke >= len(p.Strokes)) {
+			v.fail(invalid(f+".stroke", s.Stroke, "names no stroke"))
+		}
+	}
+	for i, s := range p.Strokes {
+		if s.ExpectedMissed < 0 || s.ExpectedStray < 0 || math.IsNaN(s.ExpectedMissed+s.ExpectedStray) {
+			v.nonNeg(v.at("strokes", i)+".expected_missed", s.ExpectedMissed)
+			v.nonNeg(v.at("strokes", i)+".expected_stray", s.ExpectedStray)
+		}
+	}
 	return v.err
+}
+
+// breakdownKey returns the plan file's key of a kind of time.
+func breakdownKey(k planner.TimeKind) string {
+	return [...]string{planner.TimeAPWrite: "ap_write_s", planner.TimeFEWrite: "fe_write_s", planner.TimeDwell: "dwell_s",
+		planner.TimeTravel: "travel_s", planner.TimeModeSwitch: "mode_switch_s", planner.TimeRegistration: "registration_s",
+		planner.TimeVerification: "verification_s", planner.TimeSurvey: "survey_s", planner.TimeConditioning: "conditioning_s",
+		planner.TimeTipChange: "tip_change_s", planner.TimeRepair: "repair_s", planner.TimeDocumentation: "documentation_s",
+		planner.TimeDose: "dose_s", planner.TimeAnneal: "anneal_s"}[k]
+}
+
+// actionKindList lists the action kinds for messages.
+func actionKindList() string {
+	var ks []string
+	for _, k := range planner.ActionKinds {
+		ks = append(ks, string(k))
+	}
+	return strings.Join(ks, ", ")
 }
 
 // checker keeps the first failure; later checks are skipped.

@@ -62,7 +62,7 @@ func TestCellIndexGapByHand(t *testing.T) {
 // rectangles over two terraces.
 func TestCellIndexGapMatchesBruteForce(t *testing.T) {
 	lower := Terrace{Name: "lower", Rows: RowsAlongX}
-	upper := lower.AcrossStep()
+	upper := lower.AcrossStep(StepUp)
 	upper.Name = "upper"
 	upper.Boundary = []r2.Point{{X: 40, Y: 0}, {X: 60, Y: 0}, {X: 60, Y: 60}, {X: 40, Y: 60}}
 	s, err := NewSurface(60, 60, lower, upper)

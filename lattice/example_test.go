@@ -27,14 +27,18 @@ func ExampleSurface_Paint() {
 	// 344 in all
 }
 
-// Across a single-height step the dimer rows turn by 90° and the lattice
-// shifts by a/(2√2).
+// Across a single-height step the dimer rows turn by 90° and the dimer
+// centres move by a/(2√2): across the new rows for a step up, along them
+// for a step down.
 func ExampleTerrace_AcrossStep() {
 	lower := lattice.Terrace{Name: "lower", Rows: lattice.RowsAlongX}
-	upper := lower.AcrossStep()
-	fmt.Printf("rows along %v, offset (%.4f, %.4f) nm\n", upper.Rows, upper.Offset.X, upper.Offset.Y)
+	for _, dir := range []lattice.StepDirection{lattice.StepUp, lattice.StepDown} {
+		t := lower.AcrossStep(dir)
+		fmt.Printf("%s: rows along %v, offset (%.4f, %.4f) nm\n", dir, t.Rows, t.Offset.X, t.Offset.Y)
+	}
 	// Output:
-	// rows along y, offset (0.0000, 0.1920) nm
+	// up: rows along y, offset (0.1920, 0.0000) nm
+	// down: rows along y, offset (0.0000, 0.1920) nm
 }
 
 func ExampleSiteSet_MarshalJSON() {
@@ -93,7 +97,7 @@ func ExampleCellIndex_Gap() {
 // beyond a step the rows run along y.
 func ExampleFrame() {
 	lower := lattice.Terrace{Name: "lower", Rows: lattice.RowsAlongX}
-	f := lower.AcrossStep().Frame()
+	f := lower.AcrossStep(lattice.StepDown).Frame()
 	along, across := f.ToLocal(r2.Point{X: 10, Y: 20})
 	fmt.Printf("along %.4f nm = %.2f dimer pitches, across %.4f nm = %.2f rows\n",
 		along, along/lattice.DimerPitch, across, across/lattice.RowSpacing)
@@ -131,7 +135,7 @@ func ExampleFrame_LatticeVector() {
 // the lower terrace.
 func ExampleSurface_RowDimers() {
 	lower := lattice.Terrace{Name: "lower", Rows: lattice.RowsAlongX}
-	upper := lower.AcrossStep()
+	upper := lower.AcrossStep(lattice.StepUp)
 	upper.Name = "upper"
 	upper.Boundary = []r2.Point{{X: 30, Y: 0}, {X: 50, Y: 0}, {X: 50, Y: 20}, {X: 20, Y: 20}}
 	surf, _ := lattice.NewSurface(50, 20, lower, upper)

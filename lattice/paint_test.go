@@ -189,25 +189,47 @@ func TestTemplateValidate(t *testing.T) {
 			t.Errorf("built-in %s: %v", tmpl.Name, err)
 		}
 	}
-	// P 63 ± 10 % for a 3-dimer window (Ivie et al., arXiv 2105.12074,
-	// 2021); As 97 ± 2 % (Stock et al., arXiv 2311.05752, 2024).
-	if PhosphineWindow.Probability != 0.63 || PhosphineWindow.Sites() != 6 {
-		t.Errorf("P template %+v", PhosphineWindow)
+	// Ivie et al. 2021: one P in 63 ± 10 % of 3-dimer windows, two in
+	// none. Stock et al. 2024: one As in 97 ± 2 %.
+	if p := PhosphineWindow; p.P1 != 0.63 || p.P1SD != 0.10 || p.P2Plus != 0 || p.Sites() != 6 {
+		t.Errorf("P template %+v", p)
 	}
-	if ArsineWindow.Probability != 0.97 || ArsineWindow.Sites() != 4 {
-		t.Errorf("As template %+v", ArsineWindow)
+	if a := ArsineWindow; a.P1 != 0.97 || a.P1SD != 0.02 || a.Sites() != 4 {
+		t.Errorf("As template %+v", a)
 	}
-	bad := []WindowTemplate{
-		{Species: "P", Dimers: 3, Probability: 0.5},
-		{Name: "x", Dimers: 3, Probability: 0.5},
-		{Name: "x", Species: "P", Dimers: 0, Probability: 0.5},
-		{Name: "x", Species: "P", Dimers: 3, Probability: 1.5},
-		{Name: "x", Species: "P", Dimers: 3, Probability: math.NaN()},
+	ok := WindowTemplate{Name: "x", Species: "P", Dimers: 3, P0: 0.2, P1: 0.5, P2Plus: 0.3, P1SD: 0.1}
+	bad := []struct {
+		name, field string
+		edit        func(*WindowTemplate)
+	}{
+		{"no name", "name", func(t *WindowTemplate) { t.Name = "" }},
+		{"no species", "species", func(t *WindowTemplate) { t.Species = "" }},
+		{"no dimers", "dimers", func(t *WindowTemplate) { t.Dimers = 0 }},
+		{"p1 above 1", "p1", func(t *WindowTemplate) { t.P1 = 1.5 }},
+		{"p0 NaN", "p0", func(t *WindowTemplate) { t.P0 = math.NaN() }},
+		{"sum not 1", "p0 + p1 + p2plus", func(t *WindowTemplate) { t.P2Plus = 0.3 + 2e-9 }},
+		{"negative sd", "p1_sd", func(t *WindowTemplate) { t.P1SD = -0.01 }},
+		{"sd too large for a beta", "p1_sd", func(t *WindowTemplate) { t.P1SD = 0.5 }},
+		{"sd at p = 0", "p2plus_sd", func(t *WindowTemplate) { t.P0, t.P2Plus, t.P2PlusSD = 0.5, 0, 0.01 }},
+		{"both spellings", "probability", func(t *WindowTemplate) { t.Probability = 0.5 }},
 	}
-	for _, tmpl := range bad {
-		if tmpl.Validate() == nil {
-			t.Errorf("Validate(%+v) = nil", tmpl)
-		}
+	for _, c := range bad {
+		t.Run(c.name, func(t *testing.T) {
+			tmpl := ok
+			c.edit(&tmpl)
+			ps := tmpl.Problems()
+			if len(ps) != 1 || ps[0].Field != c.field {
+				t.Errorf("Problems(%+v) = %v, want one problem with %s", tmpl, ps, c.field)
+			}
+		})
+	}
+	if ps := ok.Problems(); len(ps) != 0 {
+		t.Errorf("Problems(%+v) = %v, want none", ok, ps)
+	}
+	// Version 1: probability alone is p1, the rest empty windows.
+	v1 := WindowTemplate{Name: "x", Species: "P", Dimers: 3, Probability: 0.4}.Normalized()
+	if v1.P1 != 0.4 || v1.P0 != 0.6 || v1.P2Plus != 0 || v1.Probability != 0 || len(v1.Problems()) != 0 {
+		t.Errorf("Normalized version 1 template %+v", v1)
 	}
 }
 

@@ -66,25 +66,50 @@ type Terrace struct {
 	Offset r2.Point
 }
 
+// StepDirection says which way a single-height step goes from a terrace
+// to the terrace beyond it.
+type StepDirection uint8
+
+const (
+	// StepDown: the terrace beyond lies one atomic layer (a/4) lower.
+	StepDown StepDirection = iota
+	// StepUp: the terrace beyond lies one atomic layer higher.
+	StepUp
+)
+
+// String returns "down" or "up", the spelling used in design files.
+func (s StepDirection) String() string {
+	if s == StepUp {
+		return "up"
+	}
+	return "down"
+}
+
 // AcrossStep returns the lattice of the terrace one single-height step
-// away from t: its dimer rows turn by 90° and its lattice shifts by
-// StepShift (a/(2√2)) along the new row direction, the in-plane shift of
-// the diamond lattice from one atomic layer to the next. The name and
-// boundary are t's; set them for the new terrace.
+// away from t, up or down: its dimer rows turn by 90° and its dimer
+// centres move by StepShift (a/(2√2)). In the diamond structure (FCC with
+// the basis (0,0,0) and (¼,¼,¼)a) the atomic layer above a top layer
+// lies at (¼,¼,0)a from it and the layer below at (¼,−¼,0)a, and the
+// dimer centres of a terrace lie above the atoms of the layer its top
+// layer has lost. So a step down moves the dimer centres along the new
+// rows and a step up moves them across the new rows (by RowSpacing/4).
+// The name and boundary are t's; set them for the new terrace.
 //
 // The step fixes the new lattice only up to a whole row: dimers can pair
 // either way across the new rows (the two antiphase registries), so add
 // RowSpacing/2 across the new rows to the offset for the other one. The
-// same result follows whether the step goes up or down, because a shift
-// by -StepShift differs from +StepShift by one whole dimer pitch.
-func (t Terrace) AcrossStep() Terrace {
+// sign of the shift does not matter: −StepShift differs from +StepShift
+// by a whole dimer pitch along the rows, or by one registry across them.
+func (t Terrace) AcrossStep(dir StepDirection) Terrace {
 	n := t
 	n.Rows = t.Rows.Turned()
-	if n.Rows == RowsAlongY {
-		n.Offset = r2.Point{X: t.Offset.X, Y: t.Offset.Y + StepShift}
+	along, across := n.Rows.Split(t.Offset)
+	if dir == StepUp {
+		across += StepShift
 	} else {
-		n.Offset = r2.Point{X: t.Offset.X + StepShift, Y: t.Offset.Y}
+		along += StepShift
 	}
+	n.Offset = n.Rows.Join(along, across)
 	return n
 }
 

@@ -22,7 +22,7 @@ func mustSurface(t testing.TB, w, h float64, terraces ...Terrace) *Surface {
 // step edge from (120, 0) to (100, 100).
 func twoTerraces(t testing.TB) *Surface {
 	low := Terrace{Name: "low", Rows: RowsAlongX, Offset: r2.Point{X: 0.1, Y: 0.3}}
-	high := low.AcrossStep()
+	high := low.AcrossStep(StepUp)
 	high.Name = "high"
 	high.Boundary = []r2.Point{{X: 120, Y: 0}, {X: 200, Y: 0}, {X: 200, Y: 100}, {X: 100, Y: 100}}
 	return mustSurface(t, 200, 100, low, high)
@@ -47,16 +47,20 @@ func TestCountsOnDefaultSurface(t *testing.T) {
 
 func TestAcrossStep(t *testing.T) {
 	low := Terrace{Rows: RowsAlongX, Offset: r2.Point{X: 0.1, Y: 0.3}}
-	high := low.AcrossStep()
+	high := low.AcrossStep(StepUp)
 	if high.Rows != RowsAlongY {
 		t.Fatalf("rows across a step = %v, want y", high.Rows)
 	}
-	// The lattice shifts by a/(2√2) along the new rows (the diamond
-	// structure).
-	if d := high.Offset.Sub(low.Offset); math.Abs(d.X) > 1e-12 || math.Abs(d.Y-SiLatticeConstant/(2*math.Sqrt2)) > 1e-12 {
-		t.Errorf("offset shift = %v, want (0, a/(2√2))", d)
+	// Up, the lattice shifts by a/(2√2) across the new rows (x here);
+	// down, along them (y). TestAcrossStepMatchesDiamondLattice derives
+	// both from the atoms.
+	if d := high.Offset.Sub(low.Offset); math.Abs(d.Y) > 1e-12 || math.Abs(d.X-SiLatticeConstant/(2*math.Sqrt2)) > 1e-12 {
+		t.Errorf("step up: offset shift = %v, want (a/(2√2), 0)", d)
 	}
-	back := high.AcrossStep()
+	if d := low.AcrossStep(StepDown).Offset.Sub(low.Offset); math.Abs(d.X) > 1e-12 || math.Abs(d.Y-SiLatticeConstant/(2*math.Sqrt2)) > 1e-12 {
+		t.Errorf("step down: offset shift = %v, want (0, a/(2√2))", d)
+	}
+	back := high.AcrossStep(StepUp)
 	if back.Rows != RowsAlongX {
 		t.Errorf("two steps: rows %v, want x", back.Rows)
 	}
@@ -128,6 +132,9 @@ func TestSnapRoundTrip(t *testing.T) {
 			continue
 		}
 		p := s.Position(site)
+		if !s.Field.ContainsPoint(p) {
+			continue // a site at the field's edge whose H lies just beyond it: Snap takes field points only
+		}
 		got, dist, ok := s.Snap(p)
 		if !ok || got != site || dist > 1e-9 {
 			t.Fatalf("Snap(Position(%v)) = %v, %g, %v", site, got, dist, ok)

@@ -23,7 +23,7 @@ func TestBuildAbsurdProfileIsAnError(t *testing.T) {
 		{"move speed 5e-324 nm/s", func(p *Profile) { p.MoveSpeedNMPerS = 5e-324 }},
 		{"registration 1e308 s", func(p *Profile) { p.Drift.RegistrationS = 1e308 }},
 		{"verification 1e308 s", func(p *Profile) { p.Drift.VerificationS = 1e308 }},
-		{"dwell yield 5e-324", func(p *Profile) { p.Dwell.YieldPerElectron = 5e-324; p.WindowStyle = WindowStyleDwell }},
+		{"dwell footprint 1000 nm", func(p *Profile) { p.Dwell.SigmaNM = 1000; p.WindowStyle = WindowStyleDwell }},
 		{"dwell current 5e-324 A", func(p *Profile) { p.Dwell.CurrentA = 5e-324; p.WindowStyle = WindowStyleDwell }},
 	} {
 		t.Run(tc.name, func(t *testing.T) {

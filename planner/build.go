@@ -4,13 +4,13 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"slices"
 
 	"github.com/golang/geo/r2"
 
 	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
-	"dimerpath/planner/route"
 )
 
 // Options control how a plan is built.
@@ -75,10 +75,18 @@ type builder struct {
 	opt  Options
 
 	gen      *strokeGen
+	placed   []lattice.Window // the plan's windows on the lattice, as Plan.Windows
 	regions  []*regionWork
 	fids     []Fiducial
 	strokes  []Stroke
 	warnings []string
+
+	model  segModel // the planning values (session.go)
+	costs  costs
+	stepOf []int // the step of each stroke
+
+	lastCouplings []couplingWork
+	marginUsed    float64
 }
 
 func (b *builder) build() (*Plan, error) {
@@ -99,6 +107,8 @@ func (b *builder) build() (*Plan, error) {
 	if err := b.regionWork(); err != nil {
 		return nil, err
 	}
+	var drift DriftPlan
+	b.model, drift = planModel(prof)
 
 	b.opt.stage("modes")
 	mc := &modeChooser{g: b.gen, prof: prof, keepOut: lay.Rules.FEKeepOutNM, regions: b.regions, feCache: map[*lattice.SiteSet][]Stroke{}}
@@ -119,7 +129,12 @@ func (b *builder) build() (*Plan, error) {
 	if err := prof.CheckLimits(&use); err != nil {
 		return nil, err
 	}
+	if err := b.checkTolerances(); err != nil {
+		return nil, err
+	}
 	b.fiducials()
+	b.costs = newCosts(prof, b.fids)
+	b.costs.creepFrac = b.model.creep
 	if err := b.splitLong(); err != nil {
 		return nil, err
 	}
@@ -131,52 +146,76 @@ func (b *builder) build() (*Plan, error) {
 	if err := b.ctx.Err(); err != nil {
 		return nil, err
 	}
-	cov := CheckCoverage(lay.Surface, b.coverageRegions(), b.strokes, *prof)
+	b.openWindows(windows)
+	cov, strokes := CheckCoverage(lay.Surface, b.coverageRegions(), b.strokes, *prof)
+	b.strokes = strokes
 	if !cov.OK {
-		b.warnings = append(b.warnings, fmt.Sprintf("coverage check: %d uncovered and %d overcleared site(s); see coverage.issues", cov.Uncovered, cov.Overcleared))
+		b.warnings = append(b.warnings, fmt.Sprintf("coverage check: %d site(s) outside every region clear with more than %.2g %%; see coverage.stray_sites", cov.OverLimit, 100*cov.StrayLimit))
 	}
 
 	b.opt.stage("route")
-	first, order, err := b.route()
+	steps, err := b.assignSteps(windows)
 	if err != nil {
+		return nil, err
+	}
+	b.stepOf = make([]int, len(b.strokes))
+	for k, st := range steps {
+		for _, i := range st.strokes {
+			b.stepOf[i] = k
+		}
+	}
+	cps := b.couplings()
+	b.lastCouplings = cps
+	for _, cp := range cps {
+		if cp.sa >= 0 && cp.sb >= 0 && b.stepOf[cp.sa] != b.stepOf[cp.sb] {
+			// The later side registers locally on the earlier: its
+			// tolerance relative to it is the coupling's.
+			later := cp.sa
+			if b.stepOf[cp.sb] > b.stepOf[cp.sa] {
+				later = cp.sb
+			}
+			s := &b.strokes[later]
+			s.ToleranceNM = math.Min(s.ToleranceNM, cp.ToleranceNM)
+		}
+	}
+	if err := b.planSteps(steps, cps); err != nil {
 		return nil, err
 	}
 
 	b.opt.stage("segments")
-	c := newCosts(prof, b.fids)
-	jobs := b.jobs(order)
-	sg := newSegmenter(jobs, c, first)
-	starts, _, _ := sg.solve(1)
-	jobs, err = b.reoptimise(sg, starts)
+	draws := drawMotion(prof, b.runs(), b.opt.Seed)
+	margin, tol, pairIndex, err := b.chooseMargin(b.ctx, steps, cps, draws)
 	if err != nil {
 		return nil, err
 	}
-	sg = newSegmenter(jobs, c, first)
-	starts, total, forced := sg.solve(1)
-	for _, j := range forced {
-		st := b.strokes[jobs[j].stroke]
-		b.warnings = append(b.warnings, fmt.Sprintf("stroke %d (region %q) takes longer than its drift budget of %.3g s even right after a registration: expect drift beyond ±%g nm",
-			st.ID, st.Region, jobs[j].budgetS, st.ToleranceNM))
+	drift.Margin = margin
+	b.marginUsed = margin
+	for _, st := range steps {
+		for _, j := range st.forced {
+			s := b.strokes[st.jobs[j].stroke]
+			b.warnings = append(b.warnings, fmt.Sprintf("stroke %d (region %q) cannot be held within ±%g nm even right after a registration at the planned drift (%.3g nm/min) and creep: expect it to leave its tolerance",
+				s.ID, s.Region, s.ToleranceNM, drift.RateNMPerMin))
+		}
 	}
 	// A timeline holds a write or dwell per stroke, a move before each,
-	// and a registration, a switch and a verification per segment.
-	if n := 2*len(b.strokes) + 4*len(starts) + 2; n > MaxActions {
-		return nil, &CountError{What: "actions of the timeline", Count: float64(n), Max: MaxActions,
-			Cause: fmt.Sprintf("%d strokes in %d segments", len(b.strokes), len(starts))}
+	// a registration, a switch, a conditioning and a verification per
+	// segment, a verification and a repair per feature, and the session's
+	// steps.
+	nseg := 0
+	for _, st := range steps {
+		nseg += len(st.starts)
 	}
-	tl := schedule(sg, starts, b.strokes, prof)
+	if n := 2*len(b.strokes) + 6*nseg + 2*len(b.regions)*len(steps) + 16; n > MaxActions {
+		return nil, &CountError{What: "actions of the timeline", Count: float64(n), Max: MaxActions,
+			Cause: fmt.Sprintf("%d strokes in %d segments", len(b.strokes), nseg)}
+	}
+	tl, stepList, tm := b.sessionTimeline(steps, windows)
 	if err := checkFiniteTime(tl.breakdown); err != nil {
 		return nil, err
 	}
 
 	b.opt.stage("spread")
-	dwells := 0
-	for _, j := range jobs {
-		if j.dwell {
-			dwells++
-		}
-	}
-	mcr, err := monteCarlo(b.ctx, sg, prof, b.opt.MonteCarloRuns, b.opt.Seed, dwells, nil)
+	mct, err := sampleTimes(b.ctx, tm, prof, b.runs(), b.opt.Seed)
 	if err != nil {
 		return nil, err
 	}
@@ -190,25 +229,27 @@ func (b *builder) build() (*Plan, error) {
 		Strokes:    b.strokes,
 		Segments:   tl.segments,
 		Actions:    tl.actions,
-		Breakdown:  tl.breakdown,
-		P10S:       mcr.p10, P50S: mcr.p50, P90S: mcr.p90,
-		Windows:  windows,
-		Coverage: cov,
+		Steps:      stepList,
+		Breakdown:  mct.breakdown,
+		P10S:       mct.p10, P50S: mct.p50, P90S: mct.p90,
+		ScheduleS:    tl.clock,
+		PInTolerance: tol.all,
+		Drift:        drift,
+		Windows:      windows,
+		Coverage:     cov,
 	}
 	plan.TotalS = plan.Breakdown.Total()
-	if n := len(plan.Segments); n > 0 {
-		// The clock summed action by action may differ from the sum by
-		// kind in the last bits; the plan ends at TotalS.
-		plan.Segments[n-1].EndS = plan.TotalS
+	if math.Abs(plan.TotalS-mct.mean) > 1e-6*math.Max(mct.mean, 1) {
+		return nil, &InternalError{Message: fmt.Sprintf("the breakdown sums to %v s, the Monte Carlo mean is %v s", plan.TotalS, mct.mean)}
 	}
-	if math.Abs(plan.TotalS-total) > 1e-6*math.Max(total, 1) {
-		return nil, &InternalError{Message: fmt.Sprintf("timeline total %v s disagrees with the segmentation's %v s", plan.TotalS, total)}
-	}
-	plan.FloorS = plan.Breakdown.APWriteS + plan.Breakdown.FEWriteS + plan.Breakdown.DwellS
+	b.describeSegments(plan, steps, tol)
+	b.describeCouplings(plan, cps, tol, pairIndex)
+	b.windowWarnings(plan)
+	plan.FloorS = tl.breakdown.APWriteS + tl.breakdown.FEWriteS + tl.breakdown.DwellS
 	if err := checkProbabilities(windows); err != nil {
 		return nil, err
 	}
-	plan.Yield = YieldOf(windows)
+	plan.Yield = YieldOf(windows, b.opt.Seed)
 	for _, r := range b.regions {
 		req := r.requested
 		if req == "" {
@@ -216,7 +257,7 @@ func (b *builder) build() (*Plan, error) {
 		}
 		plan.Modes = append(plan.Modes, RegionMode{Region: r.name, Role: r.role, Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
 	}
-	byHand, err := b.byHand(mc)
+	byHand, err := b.byHand(steps, margin, plan.TotalS)
 	if err != nil {
 		return nil, err
 	}
@@ -228,10 +269,17 @@ func (b *builder) build() (*Plan, error) {
 	return plan, nil
 }
 
+// runs returns the number of Monte Carlo samples.
+func (b *builder) runs() int {
+	if b.opt.MonteCarloRuns > 0 {
+		return b.opt.MonteCarloRuns
+	}
+	return DefaultMonteCarloRuns
+}
+
 // regionWork lays out every region of the variant, once their runs of
 // sites are known to be within MaxRuns.
 func (b *builder) regionWork() error {
-	rules := b.d.Rules
 	names := make([]string, len(b.lay.Regions))
 	sets := make([]*lattice.SiteSet, len(b.lay.Regions))
 	for i := range b.lay.Regions {
@@ -253,16 +301,8 @@ func (b *builder) regionWork() error {
 		}
 		rw := &regionWork{index: i, name: r.Name, role: r.Role, requested: r.Mode, sites: rl.Sites, windows: rl.Windows,
 			plain: plain, tolGiven: r.ToleranceNM, segs: b.gen.segsOf(plain)}
-		rw.tolAP, rw.tolFE = b.prof.ToleranceAPNM, b.prof.ToleranceFENM
-		if rules != nil && rules.APToleranceNM != nil {
-			rw.tolAP = *rules.APToleranceNM
-		}
-		if rules != nil && rules.FEToleranceNM != nil {
-			rw.tolFE = *rules.FEToleranceNM
-		}
-		if r.ToleranceNM > 0 {
-			rw.tolAP, rw.tolFE = r.ToleranceNM, r.ToleranceNM
-		}
+		rw.dopant, rw.stepNamed = b.d.DopantOf(r), r.LithographyStep
+		b.tolerances(rw, r)
 		// The runs are at hand: their lengths count the sites without
 		// another pass over the bitsets.
 		for _, sg := range rw.segs {
@@ -273,6 +313,79 @@ func (b *builder) regionWork() error {
 			rw.count = rl.Sites.Count()
 		}
 		b.regions = append(b.regions, rw)
+	}
+	return nil
+}
+
+// tolerances sets a region's AP and FE tolerances and where each comes
+// from: its own tolerance_nm, else its role's (leads, gates, pads: the
+// design's rules, else the profile's), else the mode's (the design's
+// rules, else the profile's); field-emission work is never held tighter
+// than the FE tolerance unless the region asks for it.
+func (b *builder) tolerances(rw *regionWork, r *design.Region) {
+	rules := b.d.Rules
+	if rules == nil {
+		rules = &design.Rules{}
+	}
+	pick := func(rule *float64, rulePath string, prof float64, profPath string) (float64, string) {
+		if rule != nil {
+			return *rule, "rules." + rulePath
+		}
+		return prof, "the profile's " + profPath
+	}
+	rw.tolAP, rw.srcAP = pick(rules.APToleranceNM, "ap_tolerance_nm", b.prof.ToleranceAPNM, "tolerance_ap_nm")
+	rw.tolFE, rw.srcFE = pick(rules.FEToleranceNM, "fe_tolerance_nm", b.prof.ToleranceFENM, "tolerance_fe_nm")
+	var role float64
+	var src string
+	switch r.Role {
+	case design.RoleLead:
+		role, src = pick(rules.LeadToleranceNM, "lead_tolerance_nm", b.prof.ToleranceLeadNM, "tolerance_lead_nm")
+	case design.RoleGate:
+		role, src = pick(rules.GateToleranceNM, "gate_tolerance_nm", b.prof.ToleranceGateNM, "tolerance_gate_nm")
+	case design.RolePad:
+		role, src = pick(rules.PadToleranceNM, "pad_tolerance_nm", b.prof.TolerancePadNM, "tolerance_pad_nm")
+	}
+	if role > 0 {
+		rw.tolAP, rw.srcAP = role, src
+		if role > rw.tolFE {
+			rw.tolFE, rw.srcFE = role, src
+		}
+	}
+	if r.ToleranceNM > 0 {
+		vi := slices.IndexFunc(b.d.Variants, func(v design.Variant) bool { return v.Name == b.lay.Variant.Name })
+		src := fmt.Sprintf("variants[%d].regions[%d].tolerance_nm", vi, rw.index)
+		rw.tolAP, rw.tolFE, rw.srcAP, rw.srcFE = r.ToleranceNM, r.ToleranceNM, src, src
+	}
+}
+
+// checkTolerances refuses a tolerance no registration can ever hold: an
+// atomic-precision stroke's below the local registration's error, a
+// field-emission stroke's below the coarse registration's.
+func (b *builder) checkTolerances() error {
+	reg := b.prof.Registration
+	for _, r := range b.regions {
+		// A hybrid region's FE fill lies inside its AP band: it is held
+		// to the FE tolerance (see makeStrokes).
+		feTol, feSrc := r.tolFE, r.srcFE
+		if r.mode == design.ModeHybrid {
+			feTol, feSrc = b.prof.ToleranceFENM, "the profile's tolerance_fe_nm"
+		}
+		checks := []struct {
+			used      bool
+			tol       float64
+			src, kind string
+			err       float64
+			errPath   string
+		}{
+			{r.apPart != nil && !r.apPart.IsEmpty() || len(r.windows) > 0, r.tolAP, r.srcAP, "local", reg.Local.ErrorNM, "registration.local.error_nm"},
+			{r.fePart != nil && !r.fePart.IsEmpty(), feTol, feSrc, "coarse", reg.CoarseErrorNM, "registration.coarse_error_nm"},
+		}
+		for _, c := range checks {
+			if c.used && c.tol <= c.err {
+				return fmt.Errorf("planner: %s = %g nm (region %q): a tolerance no %s registration can hold, its error alone is ±%g nm (%s); widen the tolerance or calibrate the registration",
+					c.src, c.tol, r.name, c.kind, c.err, c.errPath)
+			}
+		}
 	}
 	return nil
 }
@@ -291,16 +404,13 @@ func (b *builder) makeStrokes() []Window {
 				sites += ss[i].Sites
 			}
 			b.strokes = append(b.strokes, ss...)
-			p := w.Template.Probability
-			open := 1.0
-			if b.prof.WindowStyle == WindowStyleDwell {
-				open = math.Pow(b.prof.Dwell.Completion, float64(sites))
-			}
 			if sites < w.Template.Sites() {
 				b.warnings = append(b.warnings, fmt.Sprintf("window %v of region %q reaches beyond its terrace: %d of its %d sites exist", w, r.name, sites, w.Template.Sites()))
 			}
-			windows = append(windows, Window{Region: r.name, Species: w.Template.Species, Template: w.Template.Name,
-				At: surf.WindowCentre(w), Sites: sites, OpenProbability: open, Probability: p * open})
+			t := w.Template
+			windows = append(windows, Window{Region: r.name, Species: t.Species, Template: t.Name,
+				At: surf.WindowCentre(w), Sites: sites, P0: t.P0, P1: t.P1, P2Plus: t.P2Plus, P1SD: t.P1SD})
+			b.placed = append(b.placed, w)
 		}
 		if r.apPart != nil && !r.apPart.IsEmpty() {
 			ss := b.gen.apStrokes(r.name, r.apPart)
@@ -370,20 +480,24 @@ func (b *builder) modesUsed() ModeUse {
 
 func (b *builder) conditions(u ModeUse) []Conditions {
 	var cs []Conditions
+	line := func(mode design.Mode, kind StrokeKind) Conditions {
+		m, l := b.prof.modeOf(mode), b.prof.Line(mode)
+		return Conditions{Mode: mode, Kind: kind, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
+			SpeedNMPerS: m.Speed(), LineWidthNM: l.Width(), Passes: max(m.Passes, 1),
+			YieldPerElectron: l.Yield, SigmaNM: l.SigmaNM, ElectronsPerSite: ElectronsPerRowSite(m.LineDoseCPerCm) * float64(max(m.Passes, 1))}
+	}
 	if u.AP {
-		m := b.prof.AP
-		cs = append(cs, Conditions{Mode: design.ModeAP, Kind: StrokeLine, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
-			SpeedNMPerS: m.Speed(), LineWidthNM: m.LineWidth(), Passes: max(m.Passes, 1)})
+		cs = append(cs, line(design.ModeAP, StrokeLine))
 	}
 	if u.Dwell {
 		d := b.prof.Dwell
 		cs = append(cs, Conditions{Mode: design.ModeAP, Kind: StrokeDwell, BiasV: d.BiasV, CurrentA: d.CurrentA, Passes: 1,
-			DwellS: d.ExpectedS(), DwellCapS: d.CapS()})
+			DwellS: b.prof.DwellExpectedS(), DwellCapS: b.prof.DwellCapS(), YieldPerElectron: b.prof.DwellYield(), SigmaNM: d.SigmaNM})
 	}
 	if u.FE {
-		m := b.prof.FE
-		cs = append(cs, Conditions{Mode: design.ModeFE, Kind: StrokeRaster, BiasV: m.BiasV, CurrentA: m.CurrentA, LineDoseCPerCm: m.LineDoseCPerCm,
-			SpeedNMPerS: m.Speed(), LineWidthNM: m.LineWidth(), Passes: max(m.Passes, 1), PitchNM: m.Pitch()})
+		c := line(design.ModeFE, StrokeRaster)
+		c.PitchNM = b.prof.FEPitch()
+		cs = append(cs, c)
 	}
 	return cs
 }
@@ -401,34 +515,35 @@ func (b *builder) fiducials() {
 	}
 }
 
-// splitLong cuts every stroke whose writing outlasts its drift budget,
-// less the approach from the nearest fiducial, into equal pieces that
-// each fit, so that a registration can fall between them.
+// splitLong cuts every stroke whose writing outlasts its drift budget at
+// the planning values (after a local registration for AP work; after a
+// coarse one and the approach from the nearest fiducial for FE work)
+// into equal pieces that each fit, so that a registration can fall
+// between them.
 func (b *builder) splitLong() error {
-	c := newCosts(&b.prof, b.fids)
+	c := &b.costs
+	m := b.model
+	rate := m.r0 * m.rateMul
 	var out []Stroke
 	pieces := float64(len(b.strokes))
 	for _, s := range b.strokes {
-		budget := DriftBudget(s.ToleranceNM, b.prof.Drift.RateNMPerMin)
-		if s.Kind == StrokeDwell || math.IsInf(budget, 1) || s.DurationS <= 0 {
+		err, approach := m.errLocal, 0.0
+		if s.Mode == design.ModeFE {
+			err = m.errCoase
+			// The farthest the tip may have to come from a fiducial to
+			// reach any point of the stroke.
+			far := 0.0
+			for _, p := range []r2.Point{s.Path[0], s.Path[len(s.Path)-1]} {
+				far = math.Max(far, b.fids[c.nearest(p)].At.Sub(p).Norm())
+			}
+			approach = (far+s.LengthNM)/c.speed + c.settle
+		}
+		budget := DriftBudget(s.ToleranceNM, err, 0, rate)
+		if s.Kind == StrokeDwell || math.IsInf(budget, 1) || s.DurationS <= 0 || s.DurationS <= budget-approach {
 			out = append(out, s)
 			continue
 		}
-		// The farthest the tip may have to come from a fiducial to reach
-		// any point of the stroke, and the mode switch that may precede it
-		// inside the drift clock (a switch at a boundary is made before
-		// registering, so only a switch within a segment counts).
-		far := 0.0
-		for _, p := range []r2.Point{s.Path[0], s.Path[len(s.Path)-1]} {
-			f := b.fids[c.nearest(p)]
-			far = math.Max(far, f.At.Sub(p).Norm())
-		}
-		approach := (far+s.LengthNM)/c.speed + c.settle
 		room := budget - approach
-		if s.DurationS <= budget-c.move(b.fids[c.nearest(s.Path[0])].At, s.Path[0]) {
-			out = append(out, s)
-			continue
-		}
 		if room <= 0 {
 			out = append(out, s)
 			continue // reported by the segmenter as over budget
@@ -436,18 +551,18 @@ func (b *builder) splitLong() error {
 		kf := math.Ceil(s.DurationS / room)
 		if !(kf <= MaxPieces) {
 			return &CountError{What: fmt.Sprintf("pieces of a %s stroke of region %q cut at registrations", s.Kind, s.Region), Count: kf, Max: MaxPieces,
-				Cause: fmt.Sprintf("it takes %s s against a drift budget of %s s (tolerance ±%s nm at drift.rate_nm_per_min = %s) less %s s to reach it from a fiducial; %s",
-					jsonfile.Approx(s.DurationS), jsonfile.Approx(budget), jsonfile.Number(s.ToleranceNM), jsonfile.Number(b.prof.Drift.RateNMPerMin),
+				Cause: fmt.Sprintf("it takes %s s against a drift budget of %s s (tolerance ±%s nm at the planned %s nm/min) less %s s to reach it from a fiducial; %s",
+					jsonfile.Approx(s.DurationS), jsonfile.Approx(budget), jsonfile.Number(s.ToleranceNM), jsonfile.Approx(rate),
 					jsonfile.Approx(approach), speedCause(s.Mode, b.prof.modeOf(s.Mode)))}
 		}
 		if pieces += kf - 1; !(pieces <= MaxStrokes) {
 			return checkStrokes(pieces, "strokes longer than their drift budget are cut into pieces at registrations; "+speedCause(s.Mode, b.prof.modeOf(s.Mode)))
 		}
 		k := int(kf)
-		pieces := splitPath(s.Path, k)
-		b.warnings = append(b.warnings, fmt.Sprintf("a %s stroke of region %q takes %.0f s, longer than its %.0f s drift budget (±%g nm at %g nm/min): split into %d pieces at registrations",
-			s.Kind, s.Region, s.DurationS, budget, s.ToleranceNM, b.prof.Drift.RateNMPerMin, k))
-		for _, p := range pieces {
+		parts := splitPath(s.Path, k)
+		b.warnings = append(b.warnings, fmt.Sprintf("a %s stroke of region %q takes %.0f s, longer than its %.0f s drift budget (±%g nm at %.3g nm/min): split into %d pieces at registrations",
+			s.Kind, s.Region, s.DurationS, budget, s.ToleranceNM, rate, k))
+		for _, p := range parts {
 			piece := s
 			piece.Path = p
 			piece.LengthNM = pathLength(p)
@@ -504,62 +619,6 @@ func (b *builder) modeGroup(m design.Mode) int {
 	return 1
 }
 
-// route orders the strokes, each mode's strokes together and in the
-// profile's order, from the fiducial nearest the first group's centre.
-// It returns that fiducial and the order (stroke indices, with paths
-// reversed where the engine says so).
-func (b *builder) route() (int, []int, error) {
-	c := newCosts(&b.prof, b.fids)
-	n := len(b.strokes)
-	if n == 0 {
-		return 0, nil, nil
-	}
-	groups := make([]int, n)
-	var centre r2.Point
-	count := 0
-	hasGroup := [2]bool{}
-	for i, s := range b.strokes {
-		groups[i] = b.modeGroup(s.Mode)
-		hasGroup[groups[i]] = true
-	}
-	firstGroup := 0
-	if !hasGroup[0] {
-		firstGroup = 1
-	}
-	for i, s := range b.strokes {
-		if groups[i] == firstGroup {
-			centre = centre.Add(s.Path[0])
-			count++
-		}
-	}
-	centre = centre.Mul(1 / float64(count))
-	first := c.nearest(centre)
-	start := route.Point{X: b.fids[first].At.X, Y: b.fids[first].At.Y}
-	p := route.Problem{Start: &start, MoveSpeed: b.prof.MoveSpeedNMPerS, SettleS: b.prof.SettleS}
-	p.Items = make([]route.Item, n)
-	for i, s := range b.strokes {
-		a, z := s.Path[0], s.Path[len(s.Path)-1]
-		p.Items[i] = route.Item{A: route.Point{X: a.X, Y: a.Y}, B: route.Point{X: z.X, Y: z.Y}}
-	}
-	if hasGroup[0] && hasGroup[1] {
-		p.Group = groups
-		p.Before = [][2]int{{0, 1}}
-	}
-	sol, err := route.Solve(b.ctx, p, route.Options{MaxKicks: b.kicks(n), Seed: b.opt.Seed})
-	if err != nil {
-		return 0, nil, err
-	}
-	if len(sol.Order) != n {
-		return 0, nil, fmt.Errorf("planner: the route engine returned %d of %d strokes", len(sol.Order), n)
-	}
-	for k, i := range sol.Order {
-		if k < len(sol.Reversed) && sol.Reversed[k] {
-			reversePath(b.strokes[i].Path)
-		}
-	}
-	return first, sol.Order, nil
-}
-
 func (b *builder) kicks(n int) int {
 	if b.opt.RouteKicks > 0 {
 		return b.opt.RouteKicks
@@ -575,163 +634,97 @@ func reversePath(p []r2.Point) {
 	}
 }
 
-// jobs lists the strokes in writing order for the segmenter.
-func (b *builder) jobs(order []int) []job {
-	jobs := make([]job, len(order))
-	for k, i := range order {
-		s := &b.strokes[i]
-		jobs[k] = job{stroke: i, start: s.Path[0], end: s.Path[len(s.Path)-1], writeS: s.DurationS,
-			budgetS: DriftBudget(s.ToleranceNM, b.prof.Drift.RateNMPerMin), mode: s.Mode, dwell: s.Kind == StrokeDwell}
-	}
-	return jobs
-}
-
-// reoptimise re-orders the strokes of each segment from its fiducial
-// with the route engine (keeping the mode groups in order) and keeps the
-// new order where it is shorter, counting the move on to the next
-// fiducial, and every stroke still meets its drift budget.
-func (b *builder) reoptimise(sg *segmenter, starts []int) ([]job, error) {
-	jobs := append([]job(nil), sg.jobs...)
-	c := &sg.c
-	for si, s := range starts {
-		e := len(jobs)
-		if si+1 < len(starts) {
-			e = starts[si+1]
-		}
-		if e-s < 3 {
-			continue
-		}
-		if err := b.ctx.Err(); err != nil {
-			return nil, err
-		}
-		f := c.fiducials[sg.fid[s]].At
-		var exit *r2.Point
-		if e < len(jobs) {
-			x := c.fiducials[sg.fid[e]].At
-			exit = &x
-		}
-		seg := jobs[s:e]
-		cost := func(js []job) (float64, bool) {
-			t := c.move(f, js[0].start)
-			clock := t
-			ok := true
-			for k, j := range js {
-				if k > 0 {
-					m := c.move(js[k-1].end, j.start) + c.switchCost(js[k-1].mode, j.mode)
-					t += m
-					clock += m
-				}
-				t += j.writeS
-				clock += j.writeS
-				if clock > j.budgetS+1e-9 {
-					ok = false
-				}
-			}
-			if exit != nil {
-				t += c.move(js[len(js)-1].end, *exit)
-			}
-			return t, ok
-		}
-		old, _ := cost(seg)
-		start := route.Point{X: f.X, Y: f.Y}
-		p := route.Problem{Start: &start, MoveSpeed: c.speed, SettleS: c.settle, Items: make([]route.Item, len(seg))}
-		groups := make([]int, len(seg))
-		two := [2]bool{}
-		for k, j := range seg {
-			p.Items[k] = route.Item{A: route.Point{X: j.start.X, Y: j.start.Y}, B: route.Point{X: j.end.X, Y: j.end.Y}}
-			groups[k] = b.modeGroup(j.mode)
-			two[groups[k]] = true
-		}
-		if two[0] && two[1] {
-			p.Group, p.Before = groups, [][2]int{{0, 1}}
-		}
-		sol, err := route.Solve(b.ctx, p, route.Options{MaxKicks: min(max(len(seg)/8, 10), 100), Seed: b.opt.Seed + int64(si)})
-		if err != nil {
-			return nil, err
-		}
-		if len(sol.Order) != len(seg) {
-			continue
-		}
-		cand := make([]job, len(seg))
-		for k, i := range sol.Order {
-			j := seg[i]
-			if k < len(sol.Reversed) && sol.Reversed[k] {
-				j.start, j.end = j.end, j.start
-			}
-			cand[k] = j
-		}
-		if t, ok := cost(cand); ok && t < old-1e-9 {
-			for _, j := range cand {
-				if st := &b.strokes[j.stroke]; st.Path[0] != j.start {
-					reversePath(st.Path)
-				}
-			}
-			copy(jobs[s:e], cand)
-		}
-	}
-	return jobs, nil
-}
-
-// byHand returns the total time of the plan a user would make by hand:
-// regions in file order, each region's strokes in raster order as
-// generated (rows bottom to top, each written left to right), one mode
-// per region (hybrid regions written in AP), and a registration at the
-// fixed interval of the tightest drift budget of the variant.
-func (b *builder) byHand(mc *modeChooser) (float64, error) {
-	var strokes []Stroke
-	var jobs []job
-	c := newCosts(&b.prof, b.fids)
-	tightest := math.Inf(1)
-	add := func(ss []Stroke) {
-		for _, s := range ss {
-			if s.Kind != StrokeDwell && !math.IsInf(DriftBudget(s.ToleranceNM, b.prof.Drift.RateNMPerMin), 1) {
-				tightest = math.Min(tightest, DriftBudget(s.ToleranceNM, b.prof.Drift.RateNMPerMin))
-			}
-			strokes = append(strokes, s)
-		}
-	}
+// byHand returns the session time of the plan a user would make by
+// hand: the same steps and session around them, but in each lithography
+// step the regions in file order, each region's strokes in raster order
+// as generated (rows bottom to top, each written left to right), one
+// mode per region (hybrid regions written in AP), the windows last, and a
+// registration at the fixed interval of the tightest budget at the
+// planned values (local before atomic-precision work, coarse before
+// field-emission work).
+func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, error) {
+	total := session
 	byRegion := map[string][]Stroke{}
-	for _, s := range b.strokes {
+	for i, s := range b.strokes {
+		s.ID = i
 		byRegion[s.Region] = append(byRegion[s.Region], s)
 	}
-	for _, r := range b.regions {
-		if r.mode == design.ModeHybrid {
-			var ss []Stroke
-			for _, s := range byRegion[r.name] {
-				if s.Window >= 0 {
-					ss = append(ss, s)
-				}
-			}
-			ap := b.gen.apStrokes(r.name, r.plain)
-			for i := range ap {
-				ap[i].ToleranceNM = r.tolAP
-			}
-			add(append(ss, ap...))
+	for k, st := range steps {
+		if st.sg == nil || st.sg.n == 0 {
 			continue
 		}
-		add(byRegion[r.name])
-	}
-	if len(strokes) == 0 {
-		return 0, nil
-	}
-	// Generated order is raster order; put every stroke back the way it
-	// was generated (left to right, bottom to top).
-	for i := range strokes {
-		s := &strokes[i]
-		p := append([]r2.Point(nil), s.Path...)
-		a, z := p[0], p[len(p)-1]
-		if z.X < a.X || (z.X == a.X && z.Y < a.Y) {
-			reversePath(p)
+		total -= st.sg.totalOf(st.starts, st.kinds)
+		inStep := map[int]bool{}
+		for _, i := range st.strokes {
+			inStep[i] = true
 		}
-		s.Path = p
-		jobs = append(jobs, job{stroke: i, start: p[0], end: p[len(p)-1], writeS: s.DurationS,
-			budgetS: DriftBudget(s.ToleranceNM, b.prof.Drift.RateNMPerMin), mode: s.Mode, dwell: s.Kind == StrokeDwell})
+		var plain, wins []Stroke
+		for _, r := range b.regions {
+			for _, s := range byRegion[r.name] {
+				if inStep[s.ID] && s.Window >= 0 {
+					wins = append(wins, s)
+				}
+			}
+			if r.mode == design.ModeHybrid {
+				if b.plainStep(byRegion[r.name]) == k {
+					ap := b.gen.apStrokes(r.name, r.plain)
+					for i := range ap {
+						ap[i].ToleranceNM = r.tolAP
+						ap[i].Window = -1
+					}
+					plain = append(plain, ap...)
+				}
+				continue
+			}
+			for _, s := range byRegion[r.name] {
+				if inStep[s.ID] && s.Window < 0 {
+					plain = append(plain, s)
+				}
+			}
+		}
+		all := append(plain, wins...)
+		if len(all) == 0 {
+			continue
+		}
+		jobs := make([]job, len(all))
+		tightest := math.Inf(1)
+		m := st.sg.model
+		for i := range all {
+			s := &all[i]
+			// Generated order is raster order; put every stroke back the
+			// way it was generated (left to right, bottom to top).
+			p := append([]r2.Point(nil), s.Path...)
+			a, z := p[0], p[len(p)-1]
+			if z.X < a.X || (z.X == a.X && z.Y < a.Y) {
+				reversePath(p)
+			}
+			err := m.errLocal
+			if s.Mode == design.ModeFE {
+				err = m.errCoase
+			}
+			if bud := DriftBudget(s.ToleranceNM/margin, err, 0, m.r0*m.rateMul); s.Kind != StrokeDwell && !math.IsInf(bud, 1) {
+				tightest = math.Min(tightest, bud)
+			}
+			jobs[i] = job{stroke: i, start: p[0], end: p[len(p)-1], writeS: s.DurationS, tolNM: s.ToleranceNM, mode: s.Mode,
+				dwell: s.Kind == StrokeDwell, group: b.groupOf(s)}
+		}
+		sg := newSegmenter(jobs, b.costs, st.sg.model, b.costs.nearest(jobs[0].start))
+		starts, kinds := sg.fixedInterval(tightest)
+		total += sg.totalOf(starts, kinds)
 	}
-	first := c.nearest(jobs[0].start)
-	sg := newSegmenter(jobs, c, first)
-	interval := tightest
-	if math.IsInf(interval, 1) {
-		return sg.totalOf([]int{0}), nil
+	if err := b.ctx.Err(); err != nil {
+		return 0, err
 	}
-	return sg.totalOf(sg.fixedInterval(interval)), nil
+	return total, nil
+}
+
+// plainStep returns the step of a region's strokes outside its windows
+// (-1 when it has none).
+func (b *builder) plainStep(ss []Stroke) int {
+	for _, s := range ss {
+		if s.Window < 0 {
+			return b.stepOf[s.ID]
+		}
+	}
+	return -1
 }

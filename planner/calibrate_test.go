@@ -8,136 +8,388 @@ import (
 	"strings"
 	"testing"
 
+	"gonum.org/v1/gonum/diff/fd"
 	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/stat"
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"dimerpath/lattice/design"
 )
 
-// synthetic returns measurements written at doses from λ_thr·1.3 to
-// λ_thr·20 whose widths follow the model exactly, plus Gaussian noise of
-// standard deviation noise nm.
-func synthetic(m WidthModel, n int, noise float64, seed uint64) []Measurement {
-	rng := rand.New(rand.NewPCG(seed, 1))
+// truth is a known exposure model for synthetic test lines.
+type truth struct {
+	sigma, yield   float64 // nm, H/e at bias, current
+	bias, current  float64
+	order, decadeV float64 // n and D; used when lines vary current or bias
+	noise          float64 // SD of w², nm²
+}
+
+// width2 returns the model's w² (nm²) of a line at dose (C/cm), bias and
+// current, computed from the exposure model's definitions (LineModel),
+// not from the fit's algebra.
+func (tr truth) width2(dose, bias, current float64) float64 {
+	y := tr.model().Yield(bias, current)
+	x := y * dose / 1e7 / ElementaryCharge * SiteAreaNM2 / (math.Sqrt(2*math.Pi) * tr.sigma)
+	return 8 * tr.sigma * tr.sigma * math.Log(x/math.Ln2)
+}
+
+// model returns the truth as an exposure model (n = 1 and a decade per
+// volt where the truth leaves them 0: lines at one current and bias).
+func (tr truth) model() ExposureModel {
+	n, d := tr.order, tr.decadeV
+	if n == 0 {
+		n = 1
+	}
+	if d == 0 {
+		d = 1
+	}
+	return ExposureModel{
+		Vibrational: VibrationalYield{YieldPerElectron: tr.yield, BiasV: tr.bias, CurrentA: tr.current, Order: n, DecadeV: d, MaxBiasV: 5},
+		Electronic:  ElectronicYield{YieldPerElectron: tr.yield, ThresholdV: 6.5},
+	}
+}
+
+// lines returns test lines at the given doses (C/cm), each at every
+// (bias, current) pair, with Gaussian noise on w²; a line whose noisy w²
+// is not positive wrote nothing (width 0).
+func (tr truth) lines(doses []float64, conds [][2]float64, rng *rand.Rand) []Measurement {
 	var ms []Measurement
-	for i := range n {
-		dose := m.ThresholdDoseCPerCm * 1.3 * math.Pow(20/1.3, float64(i)/float64(n-1))
-		current := 2e-9
-		ms = append(ms, Measurement{
-			Line: i + 2, BiasV: 4, CurrentA: current,
-			SpeedNMPerS: current / dose * 1e7,
-			WidthNM:     m.Width(dose) + noise*rng.NormFloat64(),
-		})
+	for _, c := range conds {
+		for _, dose := range doses {
+			w2 := tr.width2(dose, c[0], c[1])
+			if tr.noise > 0 {
+				w2 += tr.noise * rng.NormFloat64()
+			}
+			ms = append(ms, Measurement{Line: len(ms) + 2, BiasV: c[0], CurrentA: c[1], SpeedNMPerS: c[1] / dose * 1e7, WidthNM: math.Sqrt(math.Max(w2, 0))})
+		}
 	}
 	return ms
 }
 
-func TestFitWidthRecoversModel(t *testing.T) {
-	for _, want := range []WidthModel{
-		{SigmaNM: 0.3, ThresholdDoseCPerCm: 0.5e-3},
-		{SigmaNM: 2.5, ThresholdDoseCPerCm: 7e-6},
-		{SigmaNM: 0.8, ThresholdDoseCPerCm: 1.2e-3},
-	} {
-		fit, err := FitWidth(synthetic(want, 8, 0, 1))
-		if err != nil {
-			t.Fatalf("FitWidth(%+v points) = %v", want, err)
-		}
-		if math.Abs(fit.Model.SigmaNM-want.SigmaNM) > 1e-9*want.SigmaNM ||
-			math.Abs(fit.Model.ThresholdDoseCPerCm-want.ThresholdDoseCPerCm) > 1e-9*want.ThresholdDoseCPerCm {
-			t.Errorf("FitWidth recovers %+v, want %+v", fit.Model, want)
-		}
-		if fit.RSquared < 1-1e-12 || fit.RMSNM > 1e-9 {
-			t.Errorf("exact points: R² = %v, RMS = %v nm, want 1 and 0", fit.RSquared, fit.RMSNM)
-		}
+// doseRange returns n doses spread evenly in log from lo to hi (C/cm).
+func doseRange(lo, hi float64, n int) []float64 {
+	d := make([]float64, n)
+	for i := range d {
+		d[i] = lo * math.Pow(hi/lo, float64(i)/float64(n-1))
+	}
+	return d
+}
+
+var apTruth = truth{sigma: 0.3, yield: 2e-8, bias: 4, current: 2e-9, order: 3, decadeV: 1}
+
+func TestFitLinesRecoversModel(t *testing.T) {
+	rng := rand.New(rand.NewPCG(1, 1))
+	cases := []struct {
+		name  string
+		tr    truth
+		doses []float64
+		conds [][2]float64
+	}{
+		{"AP, one current", apTruth, doseRange(1e-3, 2e-2, 8), [][2]float64{{4, 2e-9}}},
+		{"FE", truth{sigma: 2.5, yield: 1.6e-5, bias: 8, current: 5e-9}, doseRange(2e-5, 2e-4, 6), [][2]float64{{8, 5e-9}}},
+		{"AP, three currents", apTruth, doseRange(1e-3, 2e-2, 5), [][2]float64{{4, 1e-9}, {4, 2e-9}, {4, 4e-9}}},
+		{"AP, two biases and currents", apTruth, doseRange(1e-3, 2e-2, 5), [][2]float64{{3.8, 1e-9}, {4, 2e-9}, {4.2, 3e-9}, {3.9, 3e-9}}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			fit, err := FitLines(c.tr.lines(c.doses, c.conds, rng), "lab.csv")
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !nearlyEqual(fit.Sigma.Value, c.tr.sigma, 1e-8) {
+				t.Errorf("σ = %v, want %v", fit.Sigma.Value, c.tr.sigma)
+			}
+			// Y at the fit's reference point against the truth there.
+			want := c.tr.model().Yield(fit.RefBiasV, fit.RefCurrentA)
+			if !nearlyEqual(fit.Yield.Value, want, 1e-7) {
+				t.Errorf("Y = %v, want %v", fit.Yield.Value, want)
+			}
+			if fit.Order != nil && !nearlyEqual(fit.Order.Value, c.tr.order, 1e-7) {
+				t.Errorf("n = %v, want %v", fit.Order.Value, c.tr.order)
+			}
+			if fit.DecadeV != nil && !nearlyEqual(fit.DecadeV.Value, c.tr.decadeV, 1e-7) {
+				t.Errorf("D = %v, want %v", fit.DecadeV.Value, c.tr.decadeV)
+			}
+			if fit.ResidualSDNM2 > 1e-9 {
+				t.Errorf("exact lines: residual SD %v nm², want 0", fit.ResidualSDNM2)
+			}
+		})
 	}
 }
 
-func TestFitWidthMatchesLeastSquares(t *testing.T) {
-	// Independent check: the normal equations of w² = A + B·ln λ solved
-	// with gonum/mat (QR), not stat.LinearRegression.
-	ms := synthetic(WidthModel{SigmaNM: 0.5, ThresholdDoseCPerCm: 0.8e-3}, 12, 0.05, 7)
-	fit, err := FitWidth(ms)
+func nearlyEqual(got, want, rel float64) bool { return math.Abs(got-want) <= rel*math.Abs(want) }
+
+func TestFitLinesMatchesLeastSquares(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 7))
+	tr := apTruth
+	tr.noise = 0.05
+	// One current: the two-coefficient fit is gonum's stat.LinearRegression
+	// of w² on ln(dose/λ_ref).
+	ms := tr.lines(doseRange(1.5e-3, 2e-2, 12), [][2]float64{{4, 2e-9}}, rng)
+	fit, err := FitLines(ms, "lab.csv")
 	if err != nil {
 		t.Fatal(err)
 	}
-	X := mat.NewDense(len(ms), 2, nil)
+	var xs, ys []float64
+	for _, m := range ms {
+		xs = append(xs, math.Log(m.DoseCPerCm()/fit.RefDoseCPerCm))
+		ys = append(ys, m.WidthNM*m.WidthNM)
+	}
+	a, b := stat.LinearRegression(xs, ys, nil, false)
+	if !nearlyEqual(fit.Coef[0], a, 1e-9) || !nearlyEqual(fit.Coef[1], b, 1e-9) {
+		t.Errorf("FitLines coefficients %v, stat.LinearRegression %v, %v", fit.Coef, a, b)
+	}
+	// Residual SD with n − 2 degrees of freedom.
+	rss := 0.0
+	for i := range xs {
+		r := ys[i] - a - b*xs[i]
+		rss += r * r
+	}
+	if want := math.Sqrt(rss / float64(len(xs)-2)); fit.DOF != len(xs)-2 || !nearlyEqual(fit.ResidualSDNM2, want, 1e-9) {
+		t.Errorf("residual SD %v with %d dof, want %v with %d", fit.ResidualSDNM2, fit.DOF, want, len(xs)-2)
+	}
+	// Three currents and two biases: against gonum/mat's least-squares
+	// solve of the same design.
+	ms = tr.lines(doseRange(1.5e-3, 2e-2, 6), [][2]float64{{3.9, 2e-9}, {4, 1e-9}, {4.1, 4e-9}, {4, 4e-9}}, rng)
+	fit, err = FitLines(ms, "lab.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	X := mat.NewDense(len(ms), 4, nil)
 	y := mat.NewVecDense(len(ms), nil)
 	for i, m := range ms {
-		X.Set(i, 0, 1)
-		X.Set(i, 1, math.Log(m.DoseCPerCm()))
+		X.SetRow(i, []float64{1, math.Log(m.DoseCPerCm() / fit.RefDoseCPerCm), math.Log(m.CurrentA / fit.RefCurrentA), m.BiasV - fit.RefBiasV})
 		y.SetVec(i, m.WidthNM*m.WidthNM)
 	}
 	var beta mat.VecDense
 	if err := beta.SolveVec(X, y); err != nil {
 		t.Fatal(err)
 	}
-	if math.Abs(beta.AtVec(0)-fit.A) > 1e-9*math.Abs(fit.A) || math.Abs(beta.AtVec(1)-fit.B) > 1e-9*fit.B {
-		t.Errorf("FitWidth A, B = %v, %v; mat least squares %v, %v", fit.A, fit.B, beta.AtVec(0), beta.AtVec(1))
-	}
-	if fit.RSquared < 0.9 || len(fit.Residuals) != len(ms) {
-		t.Errorf("noisy fit: R² = %v, %d residuals", fit.RSquared, len(fit.Residuals))
-	}
-	for _, r := range fit.Residuals {
-		if math.Abs(r.ResidualNM-(r.WidthNM-r.FitNM)) > 1e-12 {
-			t.Errorf("residual %+v is not measured - fitted", r)
+	for j := range 4 {
+		if !nearlyEqual(fit.Coef[j], beta.AtVec(j), 1e-8) {
+			t.Errorf("coefficient %s = %v, mat.SolveVec %v", fit.Terms[j], fit.Coef[j], beta.AtVec(j))
 		}
 	}
 }
 
-func TestFitWidthRefuses(t *testing.T) {
-	good := synthetic(WidthModel{SigmaNM: 0.3, ThresholdDoseCPerCm: 0.5e-3}, 5, 0, 1)
-	sameDose := append([]Measurement(nil), good[:3]...)
-	for i := range sameDose {
-		sameDose[i].SpeedNMPerS = good[0].SpeedNMPerS
+// TestFitLinesCensoredLikelihood checks the Tobit fit against the
+// textbook likelihood written here with gonum's distributions: at the fit
+// its gradient in (β, ln s), taken by gonum/diff/fd, vanishes, and its
+// Hessian there is negative definite (a maximum).
+func TestFitLinesCensoredLikelihood(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 9))
+	tr := apTruth
+	tr.noise = 0.08
+	ms := tr.lines(doseRange(1e-4, 1e-2, 14), [][2]float64{{4, 2e-9}}, rng)
+	fit, err := FitLines(ms, "lab.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if fit.Censored < 2 {
+		t.Fatalf("want censored lines in the test data, got %d", fit.Censored)
+	}
+	logL := func(v []float64) float64 {
+		a, b, s := v[0], v[1], math.Exp(v[2])
+		ll := 0.0
+		for _, m := range ms {
+			mu := a + b*math.Log(m.DoseCPerCm()/fit.RefDoseCPerCm)
+			if m.WidthNM == 0 {
+				ll += math.Log(distuv.UnitNormal.CDF(-mu / s))
+				continue
+			}
+			ll += distuv.Normal{Mu: mu, Sigma: s}.LogProb(m.WidthNM * m.WidthNM)
+		}
+		return ll
+	}
+	// The reported SD is the maximum-likelihood one scaled by √(n/(n−p)).
+	n, p := float64(len(ms)), 2.0
+	sML := fit.ResidualSDNM2 / math.Sqrt(n/(n-p))
+	at := []float64{fit.Coef[0], fit.Coef[1], math.Log(sML)}
+	g := fd.Gradient(nil, logL, at, &fd.Settings{Formula: fd.Central})
+	for j, v := range g {
+		if math.Abs(v) > 1e-5 {
+			t.Errorf("∂ log L/∂θ%d = %v at the fit, want 0 (gradient %v)", j, v, g)
+		}
+	}
+	h := mat.NewSymDense(3, nil)
+	fd.Hessian(h, logL, at, nil)
+	var eig mat.EigenSym
+	if !eig.Factorize(h, false) {
+		t.Fatal("eigen decomposition failed")
+	}
+	for _, v := range eig.Values(nil) {
+		if v >= 0 {
+			t.Errorf("Hessian eigenvalues %v at the fit: not a maximum", eig.Values(nil))
+		}
+	}
+}
+
+// TestFitLinesIntervalCoverage fits data sets generated from known
+// parameters with noise and counts how often each 95 % interval holds the
+// truth: 95 % of the sets, within the binomial spread.
+func TestFitLinesIntervalCoverage(t *testing.T) {
+	if testing.Short() {
+		t.Skip("coverage study")
+	}
+	const sets = 400
+	// 4 binomial standard deviations of the count at p = 0.95.
+	sd := math.Sqrt(sets * 0.95 * 0.05)
+	lo, hi := sets*0.95-4*sd, sets*0.95+4*sd
+	cases := []struct {
+		name  string
+		tr    truth
+		doses []float64
+		conds [][2]float64
+	}{
+		// Least squares: every line written.
+		{"uncensored", truth{sigma: 0.3, yield: 2e-8, bias: 4, current: 2e-9, noise: 0.05}, doseRange(1.5e-3, 2e-2, 8), [][2]float64{{4, 2e-9}}},
+		// Tobit: the lowest doses write nothing.
+		{"censored", truth{sigma: 0.3, yield: 2e-8, bias: 4, current: 2e-9, noise: 0.05}, doseRange(1e-4, 2e-2, 12), [][2]float64{{4, 2e-9}}},
+		// Three currents: n fitted too.
+		{"currents", truth{sigma: 0.3, yield: 2e-8, bias: 4, current: 2e-9, order: 3, decadeV: 1, noise: 0.05}, doseRange(1.5e-3, 2e-2, 5), [][2]float64{{4, 1e-9}, {4, 2e-9}, {4, 4e-9}}},
+	}
+	for ci, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			hits := map[string]int{}
+			censored := 0
+			for s := range sets {
+				rng := rand.New(rand.NewPCG(uint64(1000*ci+s), 42))
+				fit, err := FitLines(c.tr.lines(c.doses, c.conds, rng), "synthetic.csv")
+				if err != nil {
+					t.Fatalf("set %d: %v", s, err)
+				}
+				censored += fit.Censored
+				in := func(name string, e Estimate, want float64) {
+					if e.Lo95 <= want && want <= e.Hi95 {
+						hits[name]++
+					}
+				}
+				in("sigma", fit.Sigma, c.tr.sigma)
+				in("yield", fit.Yield, c.tr.model().Yield(fit.RefBiasV, fit.RefCurrentA))
+				if fit.Order != nil {
+					in("order", *fit.Order, c.tr.order)
+				}
+			}
+			if c.name == "censored" && censored < sets {
+				t.Errorf("only %d censored lines in %d sets: the case does not test censoring", censored, sets)
+			}
+			for name, h := range hits {
+				t.Logf("%s: %d of %d intervals hold the truth", name, h, sets)
+				if float64(h) < lo || float64(h) > hi {
+					t.Errorf("%s: %d of %d 95%% intervals hold the truth, want %.0f–%.0f", name, h, sets, lo, hi)
+				}
+			}
+		})
+	}
+}
+
+func TestFitLinesRefuses(t *testing.T) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	good := apTruth.lines(doseRange(1e-3, 2e-2, 5), [][2]float64{{4, 2e-9}}, rng)
+	allZero := apTruth.lines(doseRange(1e-3, 2e-2, 5), [][2]float64{{4, 2e-9}}, rng)
+	for i := range allZero {
+		allZero[i].WidthNM = 0
 	}
 	shrinking := append([]Measurement(nil), good...)
 	for i := range shrinking {
 		shrinking[i].WidthNM = 3 - float64(i)*0.2
 	}
+	sameDose := append([]Measurement(nil), good[:3]...)
+	for i := range sameDose {
+		sameDose[i].SpeedNMPerS = good[0].SpeedNMPerS
+	}
+	// Every line at 10 nm/s: dose and current vary together.
+	together := apTruth.lines([]float64{2e-3}, [][2]float64{{4, 1e-9}, {4, 2e-9}, {4, 3e-9}, {4, 4e-9}, {4, 5e-9}}, rng)
+	for i := range together {
+		together[i].SpeedNMPerS = 10
+	}
 	cases := []struct {
 		name string
 		ms   []Measurement
 		want error
+		msg  string
 	}{
-		{"two points", good[:2], ErrTooFewPoints},
-		{"zero widths are not points", append(good[:2:2], Measurement{Line: 9, BiasV: 4, CurrentA: 2e-9, SpeedNMPerS: 100}), ErrTooFewPoints},
-		{"one dose", sameDose, ErrTooFewPoints},
-		{"width falls with dose", shrinking, ErrNonPhysical},
+		{"two lines", good[:2], ErrTooFewPoints, "lab.csv: too few usable lines to fit: 2 line(s) for 2 coefficients"},
+		{"all censored", allZero, ErrTooFewPoints, "all 5 lines wrote nothing"},
+		{"one dose", sameDose, ErrTooFewPoints, "all at one dose"},
+		{"width falls with dose", shrinking, ErrNonPhysical, "does not grow with dose"},
+		{"dose and current together", together, ErrNonPhysical, "vary together"},
 	}
 	for _, c := range cases {
-		if _, err := FitWidth(c.ms); !errors.Is(err, c.want) {
-			t.Errorf("%s: FitWidth = %v, want %v", c.name, err, c.want)
-		}
+		t.Run(c.name, func(t *testing.T) {
+			_, err := FitLines(c.ms, "lab.csv")
+			if !errors.Is(err, c.want) || !strings.Contains(err.Error(), c.msg) {
+				t.Errorf("FitLines = %v, want %v containing %q", err, c.want, c.msg)
+			}
+		})
+	}
+}
+
+func TestFitLinesWarnsOnCurrent(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 5))
+	doses := doseRange(1.5e-3, 2e-2, 4)
+	conds := [][2]float64{{4, 1e-9}, {4, 4e-9}}
+	// Multi-electron regime, n = 3: lines at one dose widen with current.
+	tr := apTruth
+	tr.noise = 0.02
+	fit, err := FitLines(tr.lines(doses, conds, rng), "lab.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(strings.Join(fit.Warnings, "\n"), "disagree in width") {
+		t.Errorf("n = 3: warnings %q, want one about lines at one dose disagreeing", fit.Warnings)
+	}
+	// n = 1: the yield per electron does not depend on the current.
+	tr.order = 1
+	fit, err = FitLines(tr.lines(doses, conds, rng), "lab.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Contains(strings.Join(fit.Warnings, "\n"), "disagree in width") {
+		t.Errorf("n = 1: warnings %q, want none about currents", fit.Warnings)
 	}
 }
 
 func TestCalibrateWritesModel(t *testing.T) {
-	want := WidthModel{SigmaNM: 0.35, ThresholdDoseCPerCm: 0.6e-3}
-	ms := synthetic(want, 6, 0, 3)
-	p, fits, err := Calibrate(DefaultProfile(), ms, "", "lab.csv")
+	rng := rand.New(rand.NewPCG(3, 3))
+	tr := truth{sigma: 0.15, yield: 3e-8, bias: 4, current: 2e-9}
+	ms := tr.lines(doseRange(1e-3, 1e-2, 6), [][2]float64{{4, 2e-9}}, rng)
+	// The same lines measured across the rows, wider: fitted apart.
+	across := truth{sigma: 0.25, yield: 3e-8, bias: 4, current: 2e-9}.lines(doseRange(1e-3, 1e-2, 5), [][2]float64{{4, 2e-9}}, rng)
+	for i := range ms {
+		ms[i].Direction = DirectionAlong
+	}
+	for i := range across {
+		across[i].Direction = DirectionAcross
+	}
+	p, fits, err := Calibrate(DefaultProfile(), append(ms, across...), "", "lab.csv")
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(fits) != 1 || fits[0].Mode != design.ModeAP {
-		t.Fatalf("fits = %+v, want one AP fit", fits)
+	if len(fits) != 2 || fits[0].Direction != DirectionAlong || fits[1].Direction != DirectionAcross {
+		t.Fatalf("fits = %+v, want along and across", fits)
 	}
-	if math.Abs(p.AP.Width.SigmaNM-want.SigmaNM) > 1e-9 || p.FE.Width != DefaultProfile().FE.Width {
-		t.Errorf("calibrated AP width %+v (want %+v), FE %+v (want unchanged)", p.AP.Width, want, p.FE.Width)
+	if !nearlyEqual(fits[1].Sigma.Value, 0.25, 1e-6) {
+		t.Errorf("across σ = %v, want 0.25", fits[1].Sigma.Value)
 	}
-	// A threshold above the profile's dose makes a profile that clears
-	// nothing: refused.
-	high := synthetic(WidthModel{SigmaNM: 0.3, ThresholdDoseCPerCm: 5e-3}, 6, 0, 3)
-	if _, _, err := Calibrate(DefaultProfile(), high, design.ModeAP, "lab.csv"); err == nil || !strings.Contains(err.Error(), "clear nothing") {
-		t.Errorf("Calibrate(threshold 5 mC/cm) = %v, want refused", err)
+	def := DefaultProfile()
+	if !nearlyEqual(p.AP.SigmaNM, 0.15, 1e-6) || !nearlyEqual(p.Exposure.Vibrational.YieldPerElectron, 3e-8, 1e-6) || p.FE != def.FE || p.Exposure.Electronic != def.Exposure.Electronic {
+		t.Errorf("calibrated AP σ %v, Y %v (want 0.15, 3e-8); FE %+v, electronic %+v (want unchanged)", p.AP.SigmaNM, p.Exposure.Vibrational.YieldPerElectron, p.FE, p.Exposure.Electronic)
+	}
+	// Lines between the regimes cannot be attributed to either.
+	mid := truth{sigma: 0.5, yield: 1e-6, bias: 5.8, current: 2e-9, order: 1, decadeV: 1}.lines(doseRange(1e-4, 1e-3, 5), [][2]float64{{5.8, 2e-9}}, rng)
+	if _, _, err := Calibrate(DefaultProfile(), mid, design.ModeAP, "lab.csv"); err == nil || !strings.Contains(err.Error(), "between the vibrational") {
+		t.Errorf("Calibrate(5.8 V) = %v, want refused", err)
 	}
 }
 
 func TestReadMeasurements(t *testing.T) {
-	const good = "# lab test lines, 2026-11-30\nbias_v,current_na,speed_nm_per_s,width_nm,mode\n4,2,10,1.0,ap\n\n4, 2, 20, 0.8, AP\n8,5,1000,10,fe\n"
+	const good = "# lab test lines, 2026-11-30\nbias_v,current_na,speed_nm_per_s,width_nm,mode,direction\n4,2,10,1.0,ap,along\n\n4, 2, 20, 0.8, AP, Across\n8,5,1000,10,fe,along\n"
 	ms, err := ReadMeasurements(strings.NewReader(good), "lab.csv")
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(ms) != 3 || ms[0].CurrentA != 2e-9 || ms[2].Mode != design.ModeFE || ms[1].Line != 5 {
+	if len(ms) != 3 || ms[0].CurrentA != 2e-9 || ms[2].Mode != design.ModeFE || ms[1].Line != 5 || ms[1].Direction != DirectionAcross {
 		t.Fatalf("ReadMeasurements = %+v", ms)
 	}
 	// Dose I/v: 2 nA / 10 nm/s = 2 mC/cm (Schmucker 2012 example).
@@ -159,6 +411,7 @@ func TestReadMeasurements(t *testing.T) {
 		{"negative width", "bias_v,current_a,speed_nm_per_s,width_nm\n4,2e-9,10,-1\n", "width must not be negative"},
 		{"short record", "bias_v,current_a,speed_nm_per_s,width_nm\n4,2e-9,10\n", "lab.csv:2: 3 fields, want 4"},
 		{"bad mode", "bias_v,current_a,speed_nm_per_s,width_nm,mode\n4,2e-9,10,1,stm\n", `mode = "stm"`},
+		{"bad direction", "bias_v,current_a,speed_nm_per_s,width_nm,direction\n4,2e-9,10,1,diagonal\n", `lab.csv:2: direction = "diagonal"`},
 		{"header only", "bias_v,current_a,speed_nm_per_s,width_nm\n", "no measurements"},
 		{"bad quote", "bias_v,current_a,speed_nm_per_s,width_nm\n4,\"2e-9,10,1\n", "lab.csv:"},
 	}
@@ -190,26 +443,33 @@ func FuzzReadMeasurements(f *testing.F) {
 			}
 		}
 		// Fitting whatever was read must not panic.
-		_, _ = FitWidth(ms)
+		_, _ = FitLines(ms, "fuzz.csv")
 		_, _, _ = Calibrate(DefaultProfile(), ms, "", "fuzz.csv")
 	})
 }
 
-func ExampleFitWidth() {
-	// Four test lines written at 4 V and 2 nA at different speeds.
+func ExampleFitLines() {
+	// Six test lines written at 4 V and 2 nA at different speeds; the
+	// slowest wrote nothing and counts as censored.
 	csv := `bias_v,current_na,speed_nm_per_s,width_nm
+4,2,2.5,1.32
 4,2,5,1.22
 4,2,10,1.00
 4,2,20,0.71
 4,2,30,0.46
+4,2,60,0
 `
 	ms, _ := ReadMeasurements(strings.NewReader(csv), "lines.csv")
-	fit, err := FitWidth(ms)
+	fit, err := FitLines(ms, "lines.csv")
 	if err != nil {
 		fmt.Println(err)
 		return
 	}
-	fmt.Printf("sigma %.3f nm, threshold %.3f mC/cm, R² %.3f\n", fit.Model.SigmaNM, fit.Model.ThresholdDoseCPerCm*1e3, fit.RSquared)
+	fmt.Printf("%d lines, %d censored\n", fit.Lines, fit.Censored)
+	fmt.Printf("sigma %.3f nm (95%%: %.3f–%.3f)\n", fit.Sigma.Value, fit.Sigma.Lo95, fit.Sigma.Hi95)
+	fmt.Printf("threshold %.2f mC/cm\n", fit.ThresholdDose.Value*1e3)
 	// Output:
-	// sigma 0.298 nm, threshold 0.494 mC/cm, R² 1.000
+	// 6 lines, 1 censored
+	// sigma 0.281 nm (95%: 0.256–0.305)
+	// threshold 0.44 mC/cm
 }

@@ -1,13 +1,12 @@
 package planner
 
 import (
-	"cmp"
 	"fmt"
 	"math"
+	"math/bits"
 	"slices"
 
 	"github.com/golang/geo/r1"
-	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
@@ -20,47 +19,61 @@ type CoverageRegion struct {
 	Sites *lattice.SiteSet
 }
 
-// coverageNeglect is the share of the clearing dose below which one
-// stroke segment's contribution to a site is left out of the sum.
-const coverageNeglect = 0.01
+// Accuracy of the coverage expectation. A range of sites is taken at
+// once when the probability its bounds allow for each of its sites
+// varies by less than coverageRel of itself or coverageAbs (so a sum over
+// 10⁶ sites is off by at most one site); below exposureNone (the
+// exposure a single piece is neglected at) a site outside the regions is
+// not counted, above exposureSure a painted site is taken as cleared.
+const (
+	coverageRel  = 0.02
+	coverageAbs  = 1e-6
+	exposureNone = 1e-6
+	exposureSure = 36 // exp(−36) = 2·10⁻¹⁶
+)
 
-// coverageExamples is the number of uncovered and overcleared sites the
-// check describes in Coverage.Issues.
+// dwellSnapNM is how close a dwell must be to a site to be parked on it.
+const dwellSnapNM = 0.05
+
+// coverageExamples is the number of errors the check describes in
+// Coverage.Issues.
 const coverageExamples = 6
 
-// CheckCoverage proves, independently of how the strokes were made, that
-// they clear every site of the regions and nothing outside them beyond
-// the edge allowance. It rasterises the strokes' footprints from their
-// geometry alone: each straight piece of a stroke's path delivers the
-// mode's dose passes·λ with a Gaussian footprint of the width model's σ,
-// so a site at along-distance s and across-distance d from a piece of
-// length L gets (passes·λ/λ_thr)·exp(-d²/2σ²)·[Φ((L-s)/σ) - Φ(-s/σ)] of
-// the clearing dose, summed over every piece of every stroke (pieces
-// below 1 % of it are neglected); a site clears at 1 or more. This is
-// exactly the width model for a long line: it clears out to w(λ)/2. A
-// dwell clears the one site it is parked on (within 0.05 nm).
+// CheckCoverage is the coverage expectation of the strokes, independent
+// of how they were made. It sums each site's exposure (see ExposureModel)
+// from the strokes' geometry alone: a straight piece of length L of a
+// line gives a site at along-distance s and across-distance d the
+// exposure X·exp(−d²/2σ²)·[Φ((L−s)/σ) − Φ(−s/σ)] (X the line's
+// centre-line exposure over all its passes, σ its mode's footprint), a
+// dwell its own site −ln(1 − completion) and its neighbours
+// completion·exp(−d²/2σ²) (Profile.dwellExposure), summed over every
+// piece of every stroke (pieces giving less than exposureNeglect left
+// out). A site of exposure x clears with probability 1 − exp(−x).
 //
-// A painted site that does not clear is uncovered. A cleared site that
-// lies in no region is overcleared unless a site of a region whose
-// strokes dose it lies within that stroke mode's EdgeAllowanceNM.
+// For each region it returns the expected number of its sites left
+// (missed), of sites outside every region its strokes clear beyond its
+// mode's edge allowance (stray, with the spurious dangling bonds along
+// its AP lines) and within it (edge, tolerated), and the probability that
+// it is written without error; for each stroke the expected missed sites
+// it is the main writer of and the stray sites it clears. Every site
+// outside the regions and beyond the allowance that clears with a
+// probability above the profile's StrayLimit is listed as an error
+// (Coverage.StraySites), and then Coverage.OK is false.
 //
 // The sum is never taken site by site over a region: a range of sites
 // (site lines x dimers of one terrace) is bounded from the pieces that
-// reach it (a piece parallel or square to the rows is a product of two
-// one-peaked factors; a slanted one is bounded by the range's corners),
-// classified at once when the bounds agree, and halved along the side
-// that leaves them furthest apart otherwise, down to single sites dosed
-// exactly. Only sites near a clearing edge are dosed one by one, and the
-// sites of a decided range are visited a 64-bit word at a time (a
-// cleared range only when it holds an unpainted site, a range known to
-// hold no painted site never). Bounds of slanted pieces bracket Φ and
-// the Gaussian from tables, which keeps them rigorous; sites are dosed
-// with the exact functions. Cost: O(pieces · depth + sites near clearing
-// edges + words of the painted rows + overclearing candidates).
-func CheckCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) Coverage {
+// reach it (a parallel, square or dot piece is a product of two one-peaked
+// factors; a slanted one is bounded by the range's corners), and taken at
+// once when its bounds pin every site's probabilities down closely
+// enough (coverageRel, coverageAbs) and no site of it can be an error;
+// otherwise it is halved along the side that leaves the bounds furthest
+// apart, down to single sites summed exactly. A range taken at once
+// counts its sites a 64-bit word at a time. Cost: O(pieces · depth +
+// sites where the exposure changes fast + words of the ranges taken).
+func CheckCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) (Coverage, []Stroke) {
 	ck := newCoverageCheck(surf, regions, strokes, &prof)
 	ck.run()
-	return ck.cov
+	return ck.cov, ck.strokes
 }
 
 type coverageCheck struct {
@@ -76,20 +89,40 @@ type coverageCheck struct {
 	exist    []rowDimers     // terrace -> the dimers of each row that exist
 	allowed  []rowSpans      // [region·terraces + terrace]: allowed spans per row
 	rows     []regionExtents // [region·terraces + terrace]: run extents per row
+	rowRegs  [][][]int32     // terrace -> row -> regions with sites on the row (nil: not yet)
 	arena    []float64       // cached factors of decide's nested ranges
+	who      []int32         // scanLine's strokes per dimer
 	ptrs     []*piece        // active lists of decide's nested ranges
 	spanBuf  []r1.Interval   // scratch for allowedSpans
 	spanBuf2 []r1.Interval
 	slab     []r1.Interval // storage of the cached span lists
-	cov      Coverage
-	nUnc     int
-	nOver    int
+
+	// own is the exposure of the site a dwell is parked on.
+	own float64
+	// acc accumulates per region, other (index len(regions)) what no
+	// region's stroke is the main writer of.
+	acc       []regionAcc
+	missed    []float64 // per stroke
+	stray     []float64 // per stroke
+	nOver     int
+	straySite []StraySite
+	issues    []string
+	cov       Coverage
+}
+
+// regionAcc accumulates one region's expectation; logP is the natural
+// log of the probability that it is written without error.
+type regionAcc struct {
+	missed, stray, spurious, logP float64
 }
 
 func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof *Profile) *coverageCheck {
-	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: strokes,
+	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: slices.Clone(strokes),
 		dwelled: lattice.NewSiteSet(),
-		exist:   make([]rowDimers, len(surf.Terraces)), allowed: make([]rowSpans, len(regions)*len(surf.Terraces)), rows: make([]regionExtents, len(regions)*len(surf.Terraces))}
+		exist:   make([]rowDimers, len(surf.Terraces)), allowed: make([]rowSpans, len(regions)*len(surf.Terraces)),
+		rows: make([]regionExtents, len(regions)*len(surf.Terraces)), rowRegs: make([][][]int32, len(surf.Terraces)),
+		acc: make([]regionAcc, len(regions)+1), missed: make([]float64, len(strokes)), stray: make([]float64, len(strokes))}
+	ck.own = prof.dwellOwnExposure()
 	for t := range surf.Terraces {
 		ck.exist[t] = rowDimers{dimers: make([][]lattice.DimerRange, surf.RowCount(t)), done: make([]bool, surf.RowCount(t))}
 	}
@@ -105,6 +138,8 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 	}
 	ck.pieces = make([][]piece, len(surf.Terraces))
 	ck.region = make([]int, len(strokes))
+	lines := map[design.Mode]LineModel{design.ModeAP: prof.Line(design.ModeAP), design.ModeFE: prof.Line(design.ModeFE)}
+	spurious := prof.AP.SpuriousPer100NM / 100
 	for i := range strokes {
 		st := &strokes[i]
 		ri, ok := byName[st.Region]
@@ -113,23 +148,35 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 		}
 		ck.region[i] = ri
 		if st.Kind == StrokeDwell {
-			if len(st.Path) > 0 {
-				if site, d, ok := surf.Snap(st.Path[0]); ok && d <= 0.05 {
-					ck.dwelled.Add(site)
+			if len(st.Path) == 0 {
+				continue
+			}
+			if site, d, ok := surf.Snap(st.Path[0]); ok && d <= dwellSnapNM {
+				ck.dwelled.Add(site)
+			}
+			amp, sigma := prof.Dwell.Completion, prof.Dwell.SigmaNM
+			reach := sigma * math.Sqrt(2*math.Log(amp/exposureNeglect))
+			for t := range surf.Terraces {
+				if ck.grid == nil || ck.grid.reaches(t, st.Path[0], st.Path[0]) {
+					ck.pieces[t] = append(ck.pieces[t], makeDot(surf, t, int32(i), st.Path[0], amp, sigma, reach))
 				}
 			}
 			continue
 		}
-		m := prof.AP
-		if st.Mode == design.ModeFE {
-			m = prof.FE
+		l := lines[st.Mode]
+		amp := l.PassPeak * float64(max(st.Passes, 1))
+		if st.Mode == design.ModeAP && spurious > 0 {
+			// The background of spurious dangling bonds along AP lines.
+			n := spurious * st.LengthNM * float64(max(st.Passes, 1))
+			ck.stray[i] += n
+			if ri >= 0 {
+				ck.acc[ri].spurious += n
+			}
 		}
-		ratio := float64(max(st.Passes, 1)) * m.LineDoseCPerCm / m.Width.ThresholdDoseCPerCm
-		sigma := m.Width.SigmaNM
-		if ratio <= coverageNeglect || !(sigma > 0) {
+		if amp <= exposureNeglect || !(l.SigmaNM > 0) {
 			continue
 		}
-		reach := sigma * math.Sqrt(2*math.Log(ratio/coverageNeglect))
+		reach := l.SigmaNM * math.Sqrt(2*math.Log(amp/exposureNeglect))
 		for k := 0; k+1 < len(st.Path); k++ {
 			a, b := st.Path[k], st.Path[k+1]
 			if a == b {
@@ -139,7 +186,7 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 				if ck.grid != nil && !ck.grid.reaches(t, a, b) {
 					continue
 				}
-				ck.pieces[t] = append(ck.pieces[t], makePiece(surf, t, int32(i), a, b, ratio, sigma, reach))
+				ck.pieces[t] = append(ck.pieces[t], makePiece(surf, t, int32(i), a, b, amp, l.SigmaNM, reach))
 			}
 		}
 	}
@@ -161,8 +208,11 @@ type siteRect struct {
 	bare           bool // known to hold no painted site (so its parts hold none)
 }
 
+// size returns the number of site positions of r (an upper bound of its
+// sites).
+func (r siteRect) size() int { return (r.l1 - r.l0) * (r.d1 - r.d0) }
+
 func (ck *coverageCheck) run() {
-	ck.cov.Sites = ck.painted.Count()
 	for t := range ck.surf.Terraces {
 		rows, dimers := ck.surf.RowCount(t), ck.surf.DimerCount(t)
 		// Everything anything reaches: the painted sites and the pieces'
@@ -195,27 +245,89 @@ func (ck *coverageCheck) run() {
 		fu0, fu1, fy0, fy1 := ck.factors(all, root)
 		ck.decide(root, all, fu0, fu1, fy0, fy1)
 	}
-	// A dwell on a site outside every region.
-	for site := range ck.dwelled.All() {
-		if !ck.painted.Contains(site) {
-			ck.over(site, -1, math.Inf(1), nil)
-		}
-	}
-	ck.cov.Uncovered, ck.cov.Overcleared = ck.nUnc, ck.nOver
-	ck.cov.OK = ck.nUnc == 0 && ck.nOver == 0
+	ck.finish()
 }
 
-// decide classifies every site of r: it bounds the dose over r's box
-// from the pieces that reach it (each parallel or square piece is a
-// product of a one-peaked factor along and one across; a slanted piece's
-// along and across distances are linear, so they are bounded by the
-// box's corners), classifies all of r at once when the bounds agree, and
-// otherwise halves r across its longer side, down to single sites dosed
-// exactly. The factor slices hold each piece's factors at r's box edges,
-// so a halving computes only those at the new edge.
+// finish assembles the Coverage from the accumulators.
+func (ck *coverageCheck) finish() {
+	cov := Coverage{Sites: ck.painted.Count(), StrayLimit: ck.prof.StrayLimit, OverLimit: ck.nOver, StraySites: ck.straySite, Issues: ck.issues}
+	for i, r := range ck.regions {
+		a := ck.acc[i]
+		logP := a.logP - a.spurious
+		rc := RegionCoverage{Region: r.Name, ExpectedMissed: a.missed, ExpectedStray: a.stray + a.spurious, ExpectedSpurious: a.spurious,
+			Probability: math.Exp(logP), Log10Probability: logP / math.Ln10}
+		if r.Sites != nil {
+			rc.Sites = r.Sites.Count()
+		}
+		cov.Regions = append(cov.Regions, rc)
+		cov.ExpectedMissed += rc.ExpectedMissed
+		cov.ExpectedStray += rc.ExpectedStray
+	}
+	other := ck.acc[len(ck.regions)]
+	cov.ExpectedMissed += other.missed
+	cov.ExpectedStray += other.stray
+	cov.OK = ck.nOver == 0
+	for i := range ck.strokes {
+		ck.strokes[i].ExpectedMissed, ck.strokes[i].ExpectedStray = ck.missed[i], ck.stray[i]
+	}
+	slices.SortStableFunc(cov.StraySites, func(a, b StraySite) int { return -cmpFloat(a.Probability, b.Probability) })
+	ck.cov = cov
+}
+
+func cmpFloat(a, b float64) int {
+	switch {
+	case a < b:
+		return -1
+	case a > b:
+		return 1
+	}
+	return 0
+}
+
+// accOf returns the accumulator of stroke who's region (other when who
+// is no region's).
+func (ck *coverageCheck) accOf(who int32) *regionAcc {
+	if who >= 0 && ck.region[who] >= 0 {
+		return &ck.acc[ck.region[who]]
+	}
+	return &ck.acc[len(ck.regions)]
+}
+
+// accurate reports whether a quantity known to lie in [lo, hi] for each
+// of up to n sites is pinned down well enough to be summed at its middle:
+// to coverageRel of itself, or to coverageAbs a site.
+func accurate(lo, hi float64, n int) bool {
+	return hi-lo <= max(coverageRel*lo, coverageAbs)
+}
+
+// factors returns each piece's along factor at the box's two along ends
+// and its across factor at the two across ends (unused for slanted
+// pieces), from the arena.
+func (ck *coverageCheck) factors(ps []*piece, r siteRect) (fu0, fu1, fy0, fy1 []float64) {
+	n := len(ps)
+	top := len(ck.arena)
+	ck.grow(4 * n)
+	buf := ck.arena[top:]
+	fu0, fu1, fy0, fy1 = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n]
+	for i, p := range ps {
+		if p.kind == pieceSlanted {
+			continue
+		}
+		fu0[i], fu1[i] = p.uFactor(r.u0), p.uFactor(r.u1)
+		fy0[i], fy1[i] = p.yFactor(r.y0), p.yFactor(r.y1)
+	}
+	return fu0, fu1, fy0, fy1
+}
+
+// decide sums the expectation over r: it bounds the exposure over r's
+// box from the pieces that reach it, takes all of r at once when the
+// bounds allow (see CheckCoverage), and otherwise halves r along the
+// side that leaves the bounds furthest apart, down to single sites
+// summed exactly. The factor slices hold each piece's factors at r's box
+// edges, so a halving computes only those at the new edge.
 func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []float64) {
 	if ck.grid != nil && !ck.grid.holds(ck.surf, r) {
-		return // no site of this terrace in r: nothing to cover or overclear
+		return // no site of this terrace in r
 	}
 	// Keep the pieces that reach r's box.
 	atop, ptop := len(ck.arena), len(ck.ptrs)
@@ -244,45 +356,361 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		ck.leaf(r, active)
 		return
 	}
+	if len(active) == 0 && r.bare {
+		return
+	}
+	// A range of one site line (or one dimer) is bounded at that line's
+	// across position (dimer's along position), not over the half
+	// spacings its box was split at.
+	if y := lineY(r.l0); r.l1-r.l0 == 1 && (r.y0 != y || r.y1 != y) {
+		r.y0, r.y1 = y, y
+		n := len(active)
+		top := len(ck.arena)
+		ck.grow(n)
+		fy := ck.arena[top : top+n]
+		for i, p := range active {
+			if p.kind != pieceSlanted {
+				fy[i] = p.yFactor(y)
+			}
+		}
+		fy0, fy1 = fy, fy
+	}
+	if u := lattice.DimerAlong(r.d0); r.d1-r.d0 == 1 && (r.u0 != u || r.u1 != u) {
+		r.u0, r.u1 = u, u
+		n := len(active)
+		top := len(ck.arena)
+		ck.grow(n)
+		fu := ck.arena[top : top+n]
+		for i, p := range active {
+			if p.kind != pieceSlanted {
+				fu[i] = p.uFactor(u)
+			}
+		}
+		fu0, fu1 = fu, fu
+	}
 	lo, hi := 0.0, 0.0
 	best, who := 0.0, int32(-1)
+	ltop := len(ck.arena)
+	ck.grow(len(active))
+	low := ck.arena[ltop:]
 	for i, p := range active {
 		var plo, phi float64
 		if p.kind != pieceSlanted {
 			ul, uh := unimodal(fu0[i], fu1[i], r.u0, r.u1, p.uPeak(), p.uTop)
 			yl, yh := unimodal(fy0[i], fy1[i], r.y0, r.y1, p.yPeak(), p.yTop)
-			plo, phi = p.ratio*ul*yl, p.ratio*uh*yh
+			plo, phi = p.amp*ul*yl, p.amp*uh*yh
 		} else {
 			plo, phi = p.slantedBounds(r)
 		}
+		low[i] = plo
 		lo += plo
 		hi += phi
-		if plo > best {
-			best, who = plo, p.stroke
+		if phi > best {
+			best, who = phi, p.stroke
 		}
 	}
-	switch {
-	case lo >= 1:
-		ck.classifyRect(r, active, true, lo, who)
-		return
-	case hi < 1:
-		if !r.bare {
-			ck.classifyRect(r, active, false, hi, who)
+	if !ck.dwellIn(r) {
+		if hi <= exposureNone {
+			// Nothing reaches r: its painted sites stay (if any), and
+			// nothing outside is worth counting.
+			if !r.bare {
+				ck.takePainted(r, lo, hi, who)
+			}
+			return
 		}
+		if !r.bare && !ck.paintedIn(r) {
+			r.bare = true
+		}
+		// Every site within the allowance: it may clear. Where one may
+		// clear above the limit, its tolerance must be certain.
+		var strict []float64
+		if clearFast(hi) > ck.prof.StrayLimit {
+			strict = low
+		}
+		if r.bare && ck.tolerated(r, active, strict) {
+			return
+		}
+		n := r.size()
+		paintedOK := r.bare || lo >= exposureSure || accurate(math.Exp(-hi), math.Exp(-lo), n)
+		strayLo, strayHi := clearFast(lo), clearFast(hi)
+		limit := ck.prof.StrayLimit
+		switch {
+		case !paintedOK:
+		case strayHi <= limit && accurate(strayLo, strayHi, n):
+			ck.take(r, lo, hi, who, active, false)
+			return
+		case strayLo > limit:
+			// Every unpainted site here is an error unless tolerated:
+			// listed one by one.
+			ck.take(r, lo, hi, who, active, true)
+			return
+		}
+	}
+	if (r.l1-r.l0 == 1 && r.d1-r.d0 <= scanDimers) || r.size() <= scanSites {
+		ck.scan(r, active, fy0)
 		return
 	}
-	// Undecided, but nothing here matters: no painted site, and every site
-	// within the edge allowance of a region dosing it (cleared or not,
-	// such a site is tolerated). FE edges are mostly this.
-	if !r.bare && !ck.paintedIn(r) {
-		r.bare = true
+	ck.split(r, active, fu0, fu1, fy0, fy1)
+}
+
+// scanDimers is the longest range of one site line, scanSites the most
+// sites of any range, that decide sums site by site rather than halving
+// further: where the exposure changes too fast for bounds to pin it
+// down, a scan is cheaper than more halvings.
+const (
+	scanDimers = 48
+	scanSites  = 64
+)
+
+// scan sums the sites of r one by one, a site line at a time: each
+// piece's across factor is the same along the line (fy for r's first
+// line, computed afresh for the others), so only its along factor is
+// computed per site.
+func (ck *coverageCheck) scan(r siteRect, active []*piece, fy []float64) {
+	if r.l1-r.l0 > 1 {
+		fy = make([]float64, len(active))
 	}
-	if r.bare && ck.tolerated(r, active) {
+	for l := r.l0; l < r.l1; l++ {
+		if r.l1-r.l0 > 1 {
+			y := lineY(l)
+			for i, p := range active {
+				if p.kind != pieceSlanted {
+					fy[i] = p.yFactor(y)
+				}
+			}
+		}
+		ck.scanLine(r.t, l, r.d0, r.d1, active, fy)
+	}
+}
+
+// scanLine sums dimers [d0, d1) of site line l of terrace t (see scan):
+// the exposure of every dimer is summed piece by piece into a buffer (an
+// along factor from each piece's cache times its amplitude on this line),
+// then each site is counted: painted ones as missed, unpainted ones that
+// exist beyond the allowance as stray.
+func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fy []float64) {
+	row, side := l/2, l%2
+	y := lineY(l)
+	n := d1 - d0
+	atop := len(ck.arena)
+	ck.grow(2 * n)
+	x, best := ck.arena[atop:atop+n], ck.arena[atop+n:atop+2*n]
+	defer func() { ck.arena = ck.arena[:atop] }()
+	clear(x)
+	clear(best)
+	if cap(ck.who) < n {
+		ck.who = make([]int32, n)
+	}
+	who := ck.who[:n]
+	for k := range who {
+		who[k] = -1
+	}
+	for i, p := range active {
+		switch {
+		case p.kind == pieceSlanted:
+			// Across and along distances are linear along the line: only
+			// the dimers within the piece's reach of it are summed.
+			k0, k1 := p.slantedDimers(d0, d1, y)
+			p.slantedRange(d0, k0, k1, y, x, best, who)
+		case p.kind == pieceDot:
+			for k := range n {
+				u := lattice.DimerAlong(d0 + k)
+				e := p.amp * fy[i] * p.uFactorAt(d0+k)
+				if math.Hypot(u-p.pu, y-p.py) <= dwellSnapNM {
+					e = ck.own
+				}
+				if e > 0 {
+					x[k] += e
+					if e > best[k] {
+						best[k], who[k] = e, p.stroke
+					}
+				}
+			}
+		default:
+			if amp := p.amp * fy[i]; amp > exposureNeglect {
+				p.alongRange(d0, d1, amp, x, best, who)
+			}
+		}
+	}
+	pw := ck.painted.Row(t, row)
+	exist := ck.existDimers(t, row)
+	// The regions painted on this row, for the missed sites: with one,
+	// every painted site is its.
+	regs := ck.regionsOnRow(t, row)
+	var regBits [8]lattice.RowBits
+	for k, ri := range regs[:min(len(regs), len(regBits))] {
+		regBits[k] = ck.regions[ri].Sites.Row(t, row)
+	}
+	var oneMissed, oneLog float64
+	var allowed []r1.Interval
+	allowedFor := int32(-2)
+	for k := range n {
+		d := d0 + k
+		xi := x[k]
+		i := 2*d + side
+		if i>>6 < len(pw) && pw[i>>6]>>(uint(i)&63)&1 != 0 {
+			if xi >= exposureSure {
+				continue
+			}
+			miss := expNeg(xi)
+			logOK := logNotMissedTable(xi, miss)
+			if len(regs) == 1 {
+				oneMissed += miss
+				oneLog += logOK
+			} else {
+				site := lattice.Site{Terrace: t, Row: row, Dimer: d, Side: side}
+				for k, ri := range regs {
+					if k < len(regBits) && !regBits[k].Contains(i) || k >= len(regBits) && !ck.regions[ri].Sites.Contains(site) {
+						continue
+					}
+					ck.acc[ri].missed += miss
+					ck.acc[ri].logP += logOK
+				}
+			}
+			if w := who[k]; w >= 0 {
+				ck.missed[w] += miss
+			}
+			continue
+		}
+		if xi <= exposureNone || !holdsDimer(exist, d) {
+			continue
+		}
+		w := who[k]
+		if w != allowedFor {
+			allowed, allowedFor = ck.allowedFor(w, t, l), w
+		}
+		u := lattice.DimerAlong(d)
+		p := clearFast(xi)
+		site := lattice.Site{Terrace: t, Row: row, Dimer: d, Side: side}
+		if inSpans(allowed, u) || (p > ck.prof.StrayLimit && ck.siteTolerated(site, w, active)) {
+			continue
+		}
+		ck.countStray(site, xi, p, w)
+	}
+	if len(regs) == 1 {
+		ck.acc[regs[0]].missed += oneMissed
+		ck.acc[regs[0]].logP += oneLog
+	}
+}
+
+// clearFast is ClearProbability for the coverage check's sums: the
+// series below 10⁻³, 1 − expNeg(x) above (relative error below 10⁻⁶).
+func clearFast(x float64) float64 {
+	if x < 1e-3 {
+		return x * (1 - x/2*(1-x/3))
+	}
+	return 1 - expNeg(x)
+}
+
+// expNeg returns exp(−x) for 0 ≤ x ≤ exposureSure by cubic Hermite
+// interpolation in a table at steps of 1/expSteps (relative error below
+// 10⁻⁹), math.Exp elsewhere.
+func expNeg(x float64) float64 {
+	t := x * expSteps
+	if !(t >= 0 && t < float64(len(expValue)-1)) {
+		return math.Exp(-x)
+	}
+	i := int(t)
+	f := t - float64(i)
+	f2 := f * f
+	f3 := f2 * f
+	v0, v1 := expValue[i], expValue[i+1]
+	// d/dt exp(−t/expSteps) = −exp(·)/expSteps.
+	return (2*f3-3*f2+1)*v0 - (f3-2*f2+f)*v0/expSteps + (-2*f3+3*f2)*v1 - (f3-f2)*v1/expSteps
+}
+
+const expSteps = 64
+
+var expValue = func() []float64 {
+	v := make([]float64, exposureSure*expSteps+1)
+	for k := range v {
+		v[k] = math.Exp(-float64(k) / expSteps)
+	}
+	return v
+}()
+
+// logNotMissed returns log(1 − miss) for miss = exp(−x): the series below
+// 10⁻⁴, log1p above.
+func logNotMissed(x, miss float64) float64 {
+	if miss < 1e-4 {
+		return -miss - miss*miss/2
+	}
+	return math.Log1p(-miss)
+}
+
+// logNotMissedTable is logNotMissed for miss = exp(−x), from a table of
+// log(1 − exp(−x)) on [logTableFrom, 10] (cubic Hermite, absolute error
+// below 10⁻⁸) where the series does not serve.
+func logNotMissedTable(x, miss float64) float64 {
+	if miss < 1e-4 {
+		return -miss - miss*miss/2
+	}
+	t := (x - logTableFrom) * logSteps
+	if !(t >= 0 && t < float64(len(logValue)-1)) {
+		return math.Log1p(-miss)
+	}
+	i := int(t)
+	f := t - float64(i)
+	f2 := f * f
+	f3 := f2 * f
+	return (2*f3-3*f2+1)*logValue[i] + (f3-2*f2+f)*logSlope[i] + (-2*f3+3*f2)*logValue[i+1] + (f3-f2)*logSlope[i+1]
+}
+
+const (
+	logTableFrom = 0.5
+	logSteps     = 64
+)
+
+// logValue holds log(1 − exp(−x)) at the table's points, logSlope its
+// derivative 1/(exp(x) − 1) per table step.
+var logValue, logSlope = func() (v, d []float64) {
+	n := int((10-logTableFrom)*logSteps) + 1
+	v, d = make([]float64, n), make([]float64, n)
+	for k := range v {
+		x := logTableFrom + float64(k)/logSteps
+		v[k] = math.Log(-math.Expm1(-x))
+		d[k] = 1 / math.Expm1(x) / logSteps
+	}
+	return v, d
+}()
+
+// countPainted counts a painted site of exposure x.
+func (ck *coverageCheck) countPainted(site lattice.Site, x float64, who int32) {
+	if x >= exposureSure {
 		return
 	}
-	// Halve the side that leaves the bounds furthest apart: the gap the
-	// along factors leave against the gap the across factors leave. The
-	// halves share the new edge, so one new factor per piece serves both.
+	miss := expNeg(x)
+	logOK := logNotMissed(x, miss)
+	for _, ri := range ck.regionsOnRow(site.Terrace, site.Row) {
+		if ck.regions[ri].Sites.Row(site.Terrace, site.Row).Contains(site.Index()) {
+			ck.acc[ri].missed += miss
+			ck.acc[ri].logP += logOK
+		}
+	}
+	if who >= 0 {
+		ck.missed[who] += miss
+	}
+}
+
+// countStray counts an unpainted site beyond the allowance that clears
+// with probability p (exposure x); above the limit it is an error.
+func (ck *coverageCheck) countStray(site lattice.Site, x, p float64, who int32) {
+	acc := ck.accOf(who)
+	acc.stray += p
+	acc.logP -= x
+	if who >= 0 {
+		ck.stray[who] += p
+	}
+	if p > ck.prof.StrayLimit {
+		ck.overLimit(site, p, who)
+	}
+}
+
+// split halves r along the side that leaves the bounds furthest apart:
+// the gap the along factors leave against the gap the across factors
+// leave. The halves share the new edge, so one new factor per piece
+// serves both.
+func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 []float64) {
 	gapU, gapY := 0.0, 0.0
 	for i, p := range active {
 		if p.kind == pieceSlanted {
@@ -290,8 +718,8 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		}
 		ul, uh := min(fu0[i], fu1[i]), max(fu0[i], fu1[i])
 		yl, yh := min(fy0[i], fy1[i]), max(fy0[i], fy1[i])
-		gapU += p.ratio * (uh - ul) * yh
-		gapY += p.ratio * uh * (yh - yl)
+		gapU += p.amp * (uh - ul) * yh
+		gapY += p.amp * uh * (yh - yl)
 	}
 	a, b := r, r
 	n := len(active)
@@ -345,234 +773,233 @@ func lineSides(r siteRect, row int) lattice.Sides {
 
 // paintedIn reports whether r holds a painted site.
 func (ck *coverageCheck) paintedIn(r siteRect) bool {
-	// A row at a time: both sides' bits where r holds both lines.
 	for row := r.l0 / 2; row <= (r.l1-1)/2; row++ {
-		w := ck.painted.Row(r.t, row)
-		if w == nil {
-			continue
-		}
-		if w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
+		if w := ck.painted.Row(r.t, row); w != nil && w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
 			return true
 		}
 	}
 	return false
 }
 
-// leaf doses the one site of r exactly.
-func (ck *coverageCheck) leaf(r siteRect, active []*piece) {
-	row, side := r.l0/2, r.l0%2
-	site := lattice.Site{Terrace: r.t, Row: row, Dimer: r.d0, Side: side}
-	u, y := lattice.DimerAlong(r.d0), lineY(r.l0)
-	sum, best, who := 0.0, 0.0, int32(-1)
-	for _, p := range active {
-		e := p.at(u, y)
-		sum += e
-		if e > best {
-			best, who = e, p.stroke
-		}
+// dwellIn reports whether r holds a dwelled site (whose exposure only a
+// single-site sum gets right).
+func (ck *coverageCheck) dwellIn(r siteRect) bool {
+	if ck.dwelled.IsEmpty() {
+		return false
 	}
-	ck.classify(site, ck.painted.Row(r.t, row), ck.existDimers(r.t, row), sum, who, active)
-}
-
-// classifyRect classifies every site of r as cleared or not, line by
-// line (see classifyRange).
-func (ck *coverageCheck) classifyRect(r siteRect, active []*piece, cleared bool, e float64, who int32) {
-	if cleared && (!ck.unpaintedIn(r) || ck.tolerated(r, active)) {
-		return // painted sites clear, and the rest (if any) are within the allowance
-	}
-	for l := r.l0; l < r.l1; l++ {
-		row := rowLine{t: r.t, r: l / 2, side: l % 2, pw: ck.painted.Row(r.t, l/2)}
-		ck.classifyRange(&row, active, r.d0, r.d1, cleared, e, who)
-	}
-}
-
-// rowLine is the line of one side's sites of one row.
-type rowLine struct {
-	t, r, side int
-	pw         lattice.RowBits // the row's painted sites
-}
-
-// classifyRange classifies every site of dimers [d0, d1) of a row line
-// as cleared or not: a painted site not cleared is uncovered, an existing
-// unpainted site cleared may be overcleared. Only those sites are
-// visited, a word at a time; for a cleared range only the dimers that
-// exist on the row's terrace (existDimers) are looked at.
-func (ck *coverageCheck) classifyRange(row *rowLine, active []*piece, d0, d1 int, cleared bool, e float64, who int32) {
-	if !cleared {
-		from, to := 2*d0+row.side, 2*(d1-1)+row.side+1
-		if !row.pw.Any(from, to, lattice.SideOf(row.side)) {
-			return // nothing painted here to be uncovered
-		}
-		ck.classifyWords(row, active, d0, d1, false, e, who, nil)
-		return
-	}
-	exist := ck.existDimers(row.t, row.r)
-	for _, dr := range exist {
-		if lo, hi := max(dr.Lo, d0), min(dr.Hi, d1); lo < hi {
-			ck.classifyWords(row, active, lo, hi, true, e, who, exist)
-		}
-	}
-}
-
-// unpaintedIn reports whether r holds an existing site that is not
-// painted.
-func (ck *coverageCheck) unpaintedIn(r siteRect) bool {
 	for row := r.l0 / 2; row <= (r.l1-1)/2; row++ {
-		sides := lineSides(r, row)
-		w := ck.painted.Row(r.t, row)
-		for _, dr := range ck.existDimers(r.t, row) {
-			if lo, hi := max(dr.Lo, r.d0), min(dr.Hi, r.d1); lo < hi && !w.All(2*lo, 2*hi, sides) {
-				return true
-			}
+		if w := ck.dwelled.Row(r.t, row); w != nil && w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
+			return true
 		}
 	}
 	return false
 }
 
-// classifyWords classifies the painted sites (not cleared) or the
-// unpainted sites (cleared) of dimers [d0, d1) of a row line, a word at a
-// time; for cleared ones those dimers all exist (exist is the row's
-// existDimers).
-func (ck *coverageCheck) classifyWords(row *rowLine, active []*piece, d0, d1 int, cleared bool, e float64, who int32, exist []lattice.DimerRange) {
-	from, to := 2*d0+row.side, 2*(d1-1)+row.side+1 // in-row indices [from, to)
-	sides := lattice.SideOf(row.side)
-	if !cleared {
-		// Painted sites: uncovered when not cleared.
-		for i := range row.pw.Sites(from, to, sides) {
-			if exist == nil {
-				exist = ck.existDimers(row.t, row.r)
-			}
-			ck.classify(lattice.SiteAt(row.t, row.r, i), row.pw, exist, e, who, active)
+// countSide returns the number of sites of one side in [d0, d1) of a
+// row's bits.
+func countSide(w lattice.RowBits, side, d0, d1 int) int {
+	from, to := max(2*d0+side, 0), min(2*(d1-1)+side+1, len(w)*64)
+	if from >= to {
+		return 0
+	}
+	mask := uint64(0x5555555555555555) << uint(side)
+	c := 0
+	for k := from >> 6; k <= (to-1)>>6; k++ {
+		m := mask
+		if k == from>>6 {
+			m &= ^uint64(0) << (uint(from) & 63)
 		}
+		if k == (to-1)>>6 {
+			m &= ^uint64(0) >> (63 - (uint(to-1) & 63))
+		}
+		c += bits.OnesCount64(w[k] & m)
+	}
+	return c
+}
+
+// regionsOnRow returns the regions with sites on row row of terrace t.
+func (ck *coverageCheck) regionsOnRow(t, row int) []int32 {
+	if ck.rowRegs[t] == nil {
+		ck.rowRegs[t] = make([][]int32, ck.surf.RowCount(t))
+		for ri, reg := range ck.regions {
+			if reg.Sites == nil {
+				continue
+			}
+			for rr := 0; rr < reg.Sites.RowCount(t) && rr < len(ck.rowRegs[t]); rr++ {
+				if w := reg.Sites.Row(t, rr); w.Any(0, len(w)*64, lattice.BothSides) {
+					ck.rowRegs[t][rr] = append(ck.rowRegs[t][rr], int32(ri))
+				}
+			}
+		}
+	}
+	if row >= len(ck.rowRegs[t]) {
+		return nil
+	}
+	return ck.rowRegs[t][row]
+}
+
+// takePainted counts r's painted sites at the exposure lo..hi (at its
+// middle): missed sites and the regions' log-probability.
+func (ck *coverageCheck) takePainted(r siteRect, lo, hi float64, who int32) {
+	x := (lo + hi) / 2
+	miss := math.Exp(-x)
+	if lo >= exposureSure {
 		return
 	}
-	// Unpainted sites: overcleared candidates. They are usually within
-	// the edge allowance of the region dosing them most: look that up
-	// once for the row.
-	var allowed []r1.Interval
-	haveAllowed := false
-	for i := range row.pw.Gaps(from, to, sides) {
-		site := lattice.SiteAt(row.t, row.r, i)
-		if !haveAllowed {
-			allowed, haveAllowed = ck.allowedFor(who, row.t, row.r), true
+	logOK := math.Log1p(-miss)
+	total := 0
+	for l := r.l0; l < r.l1; l++ {
+		row, side := l/2, l%2
+		for _, ri := range ck.regionsOnRow(r.t, row) {
+			n := countSide(ck.regions[ri].Sites.Row(r.t, row), side, r.d0, r.d1)
+			if n == 0 {
+				continue
+			}
+			a := &ck.acc[ri]
+			a.missed += float64(n) * miss
+			a.logP += float64(n) * logOK
 		}
-		if inSpans(allowed, lattice.DimerAlong(site.Dimer)) {
-			continue
-		}
-		ck.classify(site, row.pw, exist, e, who, active)
+		total += countSide(ck.painted.Row(r.t, row), side, r.d0, r.d1)
+	}
+	if who >= 0 {
+		ck.missed[who] += float64(total) * miss
 	}
 }
 
-func (ck *coverageCheck) classify(site lattice.Site, pw lattice.RowBits, exist []lattice.DimerRange, e float64, who int32, active []*piece) {
-	painted := pw.Contains(site.Index())
-	cleared := e >= 1
-	if painted {
-		if !cleared && !ck.dwelled.Contains(site) {
-			ck.nUnc++
-			if ck.nUnc <= coverageExamples {
-				ck.cov.Issues = append(ck.cov.Issues, fmt.Sprintf("uncovered: site %v of region %q at %s gets %.2f of the clearing dose",
-					site, ck.regionOf(site), fmtPoint(ck.surf.Position(site)), ck.doseAt(site, active)))
+// take counts every site of r at the exposure lo..hi: painted sites by
+// takePainted, then the unpainted sites that exist and lie beyond the
+// edge allowance of the region of stroke who as stray. With each, every
+// such site is looked at alone (it may clear above the limit: an error).
+func (ck *coverageCheck) take(r siteRect, lo, hi float64, who int32, active []*piece, each bool) {
+	if !r.bare {
+		ck.takePainted(r, lo, hi, who)
+	}
+	if hi <= exposureNone {
+		return
+	}
+	x := (lo + hi) / 2
+	p := clearFast(x)
+	acc := ck.accOf(who)
+	for l := r.l0; l < r.l1; l++ {
+		row, side := l/2, l%2
+		pw := ck.painted.Row(r.t, row)
+		allowed := ck.allowedFor(who, r.t, l)
+		for _, dr := range ck.existDimers(r.t, row) {
+			d0, d1 := max(dr.Lo, r.d0), min(dr.Hi, r.d1)
+			if d0 >= d1 {
+				continue
+			}
+			unpainted := (d1 - d0) - countSide(pw, side, d0, d1)
+			if unpainted == 0 {
+				continue
+			}
+			tolerated := 0
+			for _, sp := range allowed {
+				dd := lattice.DimersIn(sp)
+				if e0, e1 := max(dd.Lo, d0), min(dd.Hi, d1); e0 < e1 {
+					tolerated += (e1 - e0) - countSide(pw, side, e0, e1)
+				}
+			}
+			if tolerated == unpainted {
+				continue
+			}
+			if !each {
+				n := float64(unpainted - tolerated)
+				acc.stray += n * p
+				acc.logP -= n * x
+				if who >= 0 {
+					ck.stray[who] += n * p
+				}
+				continue
+			}
+			from, to := 2*d0+side, 2*(d1-1)+side+1
+			for i := range pw.Gaps(from, to, lattice.SideOf(side)) {
+				site := lattice.SiteAt(r.t, row, i)
+				if !inSpans(allowed, lattice.DimerAlong(site.Dimer)) {
+					ck.site(site, active)
+				}
 			}
 		}
-		return
 	}
-	if !cleared || !holdsDimer(exist, site.Dimer) {
-		return
-	}
-	ck.over(site, who, e, active)
 }
 
-// doseAt returns the site's dose share summed exactly over the pieces
-// (those that reach the range it was classified in): the value an issue
-// quotes, where the classification itself may have used a bound.
-func (ck *coverageCheck) doseAt(site lattice.Site, active []*piece) float64 {
+// leaf sums the exposure of r's one site exactly.
+func (ck *coverageCheck) leaf(r siteRect, active []*piece) {
+	ck.site(lattice.Site{Terrace: r.t, Row: r.l0 / 2, Dimer: r.d0, Side: r.l0 % 2}, active)
+}
+
+// exposureAt returns a site's exposure summed exactly over the active
+// pieces, and the stroke that gives it the most.
+func (ck *coverageCheck) exposureAt(site lattice.Site, active []*piece) (x float64, who int32) {
 	u, y := lattice.DimerAlong(site.Dimer), lineY(2*site.Row+site.Side)
-	sum := 0.0
+	best := 0.0
+	who = -1
 	for _, p := range active {
-		sum += p.at(u, y)
+		var e float64
+		if p.kind == pieceDot && math.Hypot(u-p.pu, y-p.py) <= dwellSnapNM {
+			e = ck.own // the dwell is parked on this site
+		} else {
+			e = p.at(u, y)
+		}
+		x += e
+		if e > best {
+			best, who = e, p.stroke
+		}
 	}
-	return sum
+	return x, who
 }
 
-// over records a cleared site outside every region unless a region
-// whose strokes dose it lies within that mode's edge allowance.
-func (ck *coverageCheck) over(site lattice.Site, who int32, e float64, active []*piece) {
-	var tried [8]int
-	nTried := 0
-	try := func(si int32) bool {
-		ri := ck.region[si]
-		if ri < 0 {
-			return false
-		}
-		for _, x := range tried[:nTried] {
-			if x == ri {
-				return false
-			}
-		}
-		if nTried < len(tried) {
-			tried[nTried] = ri
-			nTried++
-		}
-		allow := ck.prof.AP.EdgeAllowanceNM
-		if ck.strokes[si].Mode == design.ModeFE {
-			allow = ck.prof.FE.EdgeAllowanceNM
-		}
-		return allow > 0 && ck.near(ri, site, allow)
-	}
-	if who >= 0 && try(who) {
+// site counts one site at its exact exposure: a painted site as missed
+// or not, an unpainted one that exists as an edge site, a stray one, or,
+// above the stray limit, an error.
+func (ck *coverageCheck) site(site lattice.Site, active []*piece) {
+	x, who := ck.exposureAt(site, active)
+	if ck.painted.Row(site.Terrace, site.Row).Contains(site.Index()) {
+		ck.countPainted(site, x, who)
 		return
 	}
-	for _, c := range active {
-		if try(c.stroke) {
-			return
-		}
+	if x <= exposureNone || !holdsDimer(ck.existDimers(site.Terrace, site.Row), site.Dimer) {
+		return
 	}
-	name := "?"
-	if who >= 0 && ck.region[who] >= 0 {
-		name = ck.regions[ck.region[who]].Name
+	if ck.siteTolerated(site, who, active) {
+		return
 	}
+	ck.countStray(site, x, clearFast(x), who)
+}
+
+// overLimit records a site outside every region, beyond the allowance,
+// that clears above the stray limit.
+func (ck *coverageCheck) overLimit(site lattice.Site, p float64, who int32) {
 	ck.nOver++
+	name, id := "", -1
+	if who >= 0 {
+		id = int(who)
+		if ck.region[who] >= 0 {
+			name = ck.regions[ck.region[who]].Name
+		}
+	}
+	at := ck.surf.Position(site)
+	if len(ck.straySite) < MaxStraySites {
+		ck.straySite = append(ck.straySite, StraySite{Site: site, At: at, Probability: p, Region: name, Stroke: id})
+	}
 	if ck.nOver <= coverageExamples {
-		what := "a dwell"
-		if !math.IsInf(e, 1) {
-			what = fmt.Sprintf("%.2f of the clearing dose", ck.doseAt(site, active))
-		}
-		ck.cov.Issues = append(ck.cov.Issues, fmt.Sprintf("overcleared: site %v at %s, outside every region and beyond the edge allowance of region %q, gets %s",
-			site, fmtPoint(ck.surf.Position(site)), name, what))
+		ck.issues = append(ck.issues, fmt.Sprintf("site %v at %s, outside every region, clears with %.2g %% (limit %.2g %%): %s",
+			site, fmtPoint(at), 100*p, 100*ck.prof.StrayLimit, ck.advice(who)))
 	}
 }
 
-// rowDimers caches the dimer ranges of each row that exist, computed on
-// first use.
-type rowDimers struct {
-	dimers [][]lattice.DimerRange
-	done   []bool
-}
-
-func (ck *coverageCheck) regionOf(site lattice.Site) string {
-	for _, r := range ck.regions {
-		if r.Sites != nil && r.Sites.Contains(site) {
-			return r.Name
-		}
+// advice says which stroke reaches a stray site and what to change.
+func (ck *coverageCheck) advice(who int32) string {
+	if who < 0 {
+		return "no stroke is known to reach it"
 	}
-	return "?"
-}
-
-// existDimers returns the dimer ranges of row r of terrace t that exist
-// (Surface.RowDimers), computed once per row.
-func (ck *coverageCheck) existDimers(t, r int) []lattice.DimerRange {
-	e := &ck.exist[t]
-	if !e.done[r] {
-		e.dimers[r], e.done[r] = ck.surf.RowDimers(nil, t, r), true
+	st := &ck.strokes[who]
+	what := fmt.Sprintf("stroke id %d of region %q (%s %s)", who, st.Region, st.Mode, st.Kind)
+	switch {
+	case st.Kind == StrokeDwell:
+		return what + " reaches it: a dwell's footprint (dwell.sigma_nm) clears its neighbours; keep them inside the region or leave them a dimer away"
+	case st.Mode == design.ModeFE:
+		return what + fmt.Sprintf(" reaches it beyond the %g nm FE edge allowance: keep it farther from the region, or write the region's edge in AP (hybrid)", ck.prof.FE.EdgeAllowanceNM)
 	}
-	return e.dimers[r]
+	return what + " reaches it: an AP line's footprint (ap.sigma_nm) clears the next site along or across the row; keep that site inside the region, end the region on whole dimers, or lower ap.line_dose_c_per_cm"
 }
-
-// holdsDimer reports whether dimer d lies in one of the sorted, disjoint
-// ranges.
-func holdsDimer(rs []lattice.DimerRange, d int) bool {
-	i, _ := slices.BinarySearchFunc(rs, d, func(r lattice.DimerRange, d int) int { return cmp.Compare(r.Hi-1, d) })
-	return i < len(rs) && rs[i].Lo <= d
-}
-
-func fmtPoint(p r2.Point) string { return fmt.Sprintf("(%.2f, %.2f) nm", p.X, p.Y) }

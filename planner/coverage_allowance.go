@@ -1,7 +1,10 @@
 package planner
 
 import (
+	"cmp"
+	"fmt"
 	"math"
+	"slices"
 
 	"github.com/golang/geo/r1"
 	"github.com/golang/geo/r2"
@@ -10,13 +13,22 @@ import (
 	"dimerpath/lattice/design"
 )
 
+// The edge allowance: a site outside every region may clear when it lies
+// within its mode's EdgeAllowanceNM of a region whose strokes dose it.
+
 // tolerated reports whether every site of r lies within the edge
-// allowance of one region whose strokes dose r.
-func (ck *coverageCheck) tolerated(r siteRect, active []*piece) bool {
+// allowance of one region whose strokes dose r: with low (each active
+// piece's least exposure over r), whose pieces dose every site of r with
+// at least exposureNeglect, as siteTolerated asks of a site; without,
+// whose pieces reach r's box.
+func (ck *coverageCheck) tolerated(r siteRect, active []*piece, low []float64) bool {
 	var tried [4]int
 	n := 0
 next:
-	for _, p := range active {
+	for i, p := range active {
+		if low != nil && low[i] < exposureNeglect {
+			continue // it may not dose every site of r
+		}
 		ri := ck.region[p.stroke]
 		if ri < 0 {
 			continue
@@ -31,17 +43,14 @@ next:
 		}
 		tried[n] = ri
 		n++
-		allow := ck.prof.AP.EdgeAllowanceNM
-		if ck.strokes[p.stroke].Mode == design.ModeFE {
-			allow = ck.prof.FE.EdgeAllowanceNM
-		}
+		allow := ck.allowance(p.stroke)
 		if allow <= 0 {
 			continue
 		}
 		u0, u1 := lattice.DimerAlong(r.d0), lattice.DimerAlong(r.d1-1)
 		ok := true
-		for row := r.l0 / 2; row <= (r.l1-1)/2 && ok; row++ {
-			sp := ck.allowedCached(ri, r.t, row, allow)
+		for l := r.l0; l < r.l1 && ok; l++ {
+			sp := ck.allowedCached(ri, r.t, l, allow)
 			i := firstReaching(sp, u1)
 			ok = i < len(sp) && sp[i].Lo-1e-9 <= u0
 		}
@@ -52,22 +61,66 @@ next:
 	return false
 }
 
-// allowedFor returns the allowed spans (see allowedSpans) on row r of
-// terrace t for the region of stroke si, within its mode's edge
+// allowedFor returns the allowed spans (see allowedSpans) on site line l
+// of terrace t for the region of stroke si, within its mode's edge
 // allowance; nil when there is none.
-func (ck *coverageCheck) allowedFor(si int32, t, r int) []r1.Interval {
+func (ck *coverageCheck) allowedFor(si int32, t, l int) []r1.Interval {
 	if si < 0 || ck.region[si] < 0 {
 		return nil
 	}
-	allow := ck.prof.AP.EdgeAllowanceNM
-	if ck.strokes[si].Mode == design.ModeFE {
-		allow = ck.prof.FE.EdgeAllowanceNM
-	}
+	allow := ck.allowance(si)
 	if allow <= 0 {
 		return nil
 	}
 	ri := ck.region[si]
-	return ck.allowedCached(ri, t, r, allow)
+	return ck.allowedCached(ri, t, l, allow)
+}
+
+// siteTolerated reports whether the site lies within the edge allowance
+// of a region whose strokes dose it (a piece of theirs gives it at least
+// exposureNeglect): the region of stroke who (the one that doses it
+// most) first, then those of the other active pieces.
+func (ck *coverageCheck) siteTolerated(site lattice.Site, who int32, active []*piece) bool {
+	var tried [8]int
+	nTried := 0
+	try := func(si int32) bool {
+		if si < 0 {
+			return false
+		}
+		ri := ck.region[si]
+		if ri < 0 {
+			return false
+		}
+		for _, x := range tried[:nTried] {
+			if x == ri {
+				return false
+			}
+		}
+		if nTried < len(tried) {
+			tried[nTried] = ri
+			nTried++
+		}
+		allow := ck.allowance(si)
+		return allow > 0 && ck.near(ri, site, allow)
+	}
+	if try(who) {
+		return true
+	}
+	u, y := lattice.DimerAlong(site.Dimer), lineY(2*site.Row+site.Side)
+	for _, c := range active {
+		if c.at(u, y) >= exposureNeglect && try(c.stroke) {
+			return true
+		}
+	}
+	return false
+}
+
+// allowance returns the edge allowance of stroke si's mode (nm).
+func (ck *coverageCheck) allowance(si int32) float64 {
+	if ck.strokes[si].Mode == design.ModeFE {
+		return ck.prof.FE.EdgeAllowanceNM
+	}
+	return ck.prof.AP.EdgeAllowanceNM
 }
 
 // rowSpans caches one sorted span list per row, computed on first use.
@@ -78,6 +131,13 @@ type rowSpans struct {
 
 func newRowSpans(rows int) rowSpans {
 	return rowSpans{spans: make([][]r1.Interval, rows), done: make([]bool, rows)}
+}
+
+// rowDimers caches the dimer ranges of each row that exist, computed on
+// first use.
+type rowDimers struct {
+	dimers [][]lattice.DimerRange
+	done   []bool
 }
 
 // keep copies sp into the check's span storage, which cached lists share
@@ -91,34 +151,34 @@ func (ck *coverageCheck) keep(sp []r1.Interval) []r1.Interval {
 	return ck.slab[start:len(ck.slab):len(ck.slab)]
 }
 
-// allowedCached returns allowedSpans(ri, t, r, dist), computed once per
-// row and region (dist is the same for every call with one region's
-// mode).
-func (ck *coverageCheck) allowedCached(ri, t, r int, dist float64) []r1.Interval {
-	rows := &ck.allowed[ri*len(ck.surf.Terraces)+t]
-	if rows.spans == nil {
-		*rows = newRowSpans(ck.surf.RowCount(t))
+// allowedCached returns allowedSpans(ri, t, l, dist), computed once per
+// site line and region (dist is the same for every call with one
+// region's mode).
+func (ck *coverageCheck) allowedCached(ri, t, l int, dist float64) []r1.Interval {
+	lines := &ck.allowed[ri*len(ck.surf.Terraces)+t]
+	if lines.spans == nil {
+		*lines = newRowSpans(2 * ck.surf.RowCount(t))
 	}
-	if r >= len(rows.spans) {
-		return ck.keep(ck.allowedSpans(ri, t, r, dist))
+	if l >= len(lines.spans) {
+		return ck.keep(ck.allowedSpans(ri, t, l, dist))
 	}
-	if !rows.done[r] {
-		rows.spans[r], rows.done[r] = ck.keep(ck.allowedSpans(ri, t, r, dist)), true
+	if !lines.done[l] {
+		lines.spans[l], lines.done[l] = ck.keep(ck.allowedSpans(ri, t, l, dist)), true
 	}
-	return rows.spans[r]
+	return lines.spans[l]
 }
 
 // near reports whether region ri has a site within dist of the site q
 // (between site positions). On q's own terrace it looks the answer up
-// in the row's allowed spans, built once per row and region: the along
-// intervals within dist of a region site on the rows within dist. Other
-// terraces are searched site by site.
+// in the site line's allowed spans, built once per line and region: the
+// along intervals within dist of a region site on the lines within dist.
+// Other terraces are searched site line by site line.
 func (ck *coverageCheck) near(ri int, q lattice.Site, dist float64) bool {
 	set := ck.regions[ri].Sites
 	if set == nil {
 		return false
 	}
-	sp := ck.allowedCached(ri, q.Terrace, q.Row, dist)
+	sp := ck.allowedCached(ri, q.Terrace, 2*q.Row+q.Side, dist)
 	if inSpans(sp, lattice.DimerAlong(q.Dimer)) {
 		return true
 	}
@@ -134,23 +194,24 @@ func (ck *coverageCheck) near(ri int, q lattice.Site, dist float64) bool {
 	return false
 }
 
-// allowedSpans returns the along intervals of row r of terrace t whose
-// dimer centres lie within dist of a site of region ri on the rows of t
-// within dist (the across distance counted between row centres less
-// twice HOffset, a slight overestimate of nearness by at most HOffset).
-func (ck *coverageCheck) allowedSpans(ri, t, r int, dist float64) []r1.Interval {
-	rows := ck.regionRows(ri, t)
-	// Each row's extents are sorted and disjoint: merge them into the
-	// union row by row (a row with every other site painted has a run per
-	// site, so sorting them all would cost more).
+// allowedSpans returns the along intervals of site line l of terrace t
+// whose sites lie within dist of a site of region ri: the region's
+// extents on every site line within dist, each widened by the along
+// distance the across distance leaves.
+func (ck *coverageCheck) allowedSpans(ri, t, l int, dist float64) []r1.Interval {
+	lines := ck.regionLines(ri, t)
+	// Each line's extents are sorted and disjoint: merge them into the
+	// union line by line (a line with every other site painted has an
+	// extent per site, so sorting them all would cost more).
 	acc, next := ck.spanBuf[:0], ck.spanBuf2[:0]
-	k := int(math.Ceil((dist + 2*lattice.HOffset) / lattice.RowSpacing))
-	for rr := max(0, r-k); rr <= r+k && rr < len(rows); rr++ {
-		dy := max(0, lattice.RowAcross(max(rr-r, r-rr))-2*lattice.HOffset)
-		if dy > dist || len(rows[rr]) == 0 {
+	y := lineY(l)
+	k := 2*int(math.Ceil(dist/lattice.RowSpacing)) + 2
+	for ll := max(0, l-k); ll <= l+k && ll < len(lines); ll++ {
+		dy := math.Abs(lineY(ll) - y)
+		if dy > dist || len(lines[ll]) == 0 {
 			continue
 		}
-		next = unionWidened(next[:0], acc, rows[rr], math.Sqrt(dist*dist-dy*dy))
+		next = unionWidened(next[:0], acc, lines[ll], math.Sqrt(dist*dist-dy*dy))
 		acc, next = next, acc
 	}
 	ck.spanBuf, ck.spanBuf2 = acc, next
@@ -181,41 +242,53 @@ func unionWidened(dst, a, b []r1.Interval, h float64) []r1.Interval {
 	return dst
 }
 
-// regionRows returns, per row of terrace t, the along extents (dimer
-// centres, nm from the terrace offset) of region ri's runs, computed once.
-func (ck *coverageCheck) regionRows(ri, t int) [][]r1.Interval {
+// regionLines returns, per site line of terrace t (2·row + side), the
+// along extents (dimer centres, nm from the terrace offset) of region
+// ri's runs of that side's sites, computed once.
+func (ck *coverageCheck) regionLines(ri, t int) [][]r1.Interval {
 	e := &ck.rows[ri*len(ck.surf.Terraces)+t]
 	if e.done {
 		return e.rows
 	}
-	// The rows' extents share one slice, about one run per row (slices
-	// of it stay valid when it grows).
+	// The lines' extents share one slice (slices of it stay valid when
+	// it grows).
 	set := ck.regions[ri].Sites
-	rows := make([][]r1.Interval, set.RowCount(t))
-	all := make([]r1.Interval, 0, len(rows))
-	for r := range rows {
-		start := len(all)
-		all = appendRunExtents(all, set.Row(t, r))
-		if len(all) > start {
-			rows[r] = all[start:len(all):len(all)]
+	lines := make([][]r1.Interval, 2*set.RowCount(t))
+	all := make([]r1.Interval, 0, len(lines))
+	for r := 0; r < set.RowCount(t); r++ {
+		w := set.Row(t, r)
+		for side := range 2 {
+			start := len(all)
+			all = appendSideExtents(all, w, side)
+			if len(all) > start {
+				lines[2*r+side] = all[start:len(all):len(all)]
+			}
 		}
 	}
-	e.rows, e.done = rows, true
-	return rows
+	e.rows, e.done = lines, true
+	return lines
 }
 
-// regionExtents caches regionRows for one region and terrace.
+// regionExtents caches regionLines for one region and terrace.
 type regionExtents struct {
 	rows [][]r1.Interval
 	done bool
 }
 
-// appendRunExtents appends, for each maximal run of a row's sites, the
-// along extent of its dimer centres, from its first site's dimer to its
-// last site's, and returns dst.
-func appendRunExtents(dst []r1.Interval, w lattice.RowBits) []r1.Interval {
+// appendSideExtents appends, for each maximal run of a row's sites, the
+// along extent of the dimers of its side-side sites, and returns dst.
+func appendSideExtents(dst []r1.Interval, w lattice.RowBits, side int) []r1.Interval {
 	for start, end := range w.Runs() {
-		dst = append(dst, r1.Interval{Lo: lattice.DimerAlong(start / 2), Hi: lattice.DimerAlong((end - 1) / 2)})
+		i0, i1 := start, end-1
+		if i0%2 != side {
+			i0++
+		}
+		if i1%2 != side {
+			i1--
+		}
+		if i0 <= i1 {
+			dst = append(dst, r1.Interval{Lo: lattice.DimerAlong(i0 / 2), Hi: lattice.DimerAlong(i1 / 2)})
+		}
 	}
 	return dst
 }
@@ -230,17 +303,45 @@ func (ck *coverageCheck) nearOn(set *lattice.SiteSet, t int, p r2.Point, dist fl
 		if w == nil {
 			continue
 		}
-		dy := max(0, math.Abs(ac-lattice.RowAcross(r))-lattice.HOffset)
-		if dy > dist {
-			continue
-		}
-		h := math.Sqrt(dist*dist - dy*dy)
-		from, to := lattice.DimersIn(r1.Interval{Lo: al - h, Hi: al + h}).Sites()
-		if w.Any(from, to, lattice.BothSides) {
-			return true
+		for side := range 2 {
+			dy := math.Abs(ac - lattice.SiteAcross(r, side))
+			if dy > dist {
+				continue
+			}
+			h := math.Sqrt(dist*dist - dy*dy)
+			from, to := lattice.DimersIn(r1.Interval{Lo: al - h, Hi: al + h}).Sites()
+			if w.Any(from, to, lattice.SideOf(side)) {
+				return true
+			}
 		}
 	}
 	return false
+}
+
+func (ck *coverageCheck) regionOf(site lattice.Site) string {
+	for _, r := range ck.regions {
+		if r.Sites != nil && r.Sites.Contains(site) {
+			return r.Name
+		}
+	}
+	return "?"
+}
+
+// existDimers returns the dimer ranges of row r of terrace t that exist
+// (Surface.RowDimers), computed once per row.
+func (ck *coverageCheck) existDimers(t, r int) []lattice.DimerRange {
+	e := &ck.exist[t]
+	if !e.done[r] {
+		e.dimers[r], e.done[r] = ck.surf.RowDimers(nil, t, r), true
+	}
+	return e.dimers[r]
+}
+
+// holdsDimer reports whether dimer d lies in one of the sorted, disjoint
+// ranges.
+func holdsDimer(rs []lattice.DimerRange, d int) bool {
+	i, _ := slices.BinarySearchFunc(rs, d, func(r lattice.DimerRange, d int) int { return cmp.Compare(r.Hi-1, d) })
+	return i < len(rs) && rs[i].Lo <= d
 }
 
 // inSpans reports whether x lies in one of the sorted, disjoint spans
@@ -253,3 +354,5 @@ func inSpans(sp []r1.Interval, x float64) bool {
 // firstReaching returns the first of the sorted, disjoint spans whose end
 // reaches x (to within 1e-9 nm), or len(sp).
 func firstReaching(sp []r1.Interval, x float64) int { return lattice.SearchIntervals(sp, x-1e-9) }
+
+func fmtPoint(p r2.Point) string { return fmt.Sprintf("(%.2f, %.2f) nm", p.X, p.Y) }

@@ -25,20 +25,33 @@ func TestBuildEdgeCases(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(p.Segments) == 0 || p.Segments[0].Fiducial != "field-centre" || !strings.Contains(strings.Join(p.Warnings, " "), "no fiducial") {
+	toCentre := false
+	for _, a := range p.Actions {
+		toCentre = toCentre || strings.Contains(a.Note, "field-centre")
+	}
+	if len(p.Segments) == 0 || !toCentre || !strings.Contains(strings.Join(p.Warnings, " "), "no fiducial") {
 		t.Errorf("no fiducials: segments %+v, warnings %v", p.Segments, p.Warnings)
 	}
-	// No drift: one segment, no budget.
+	// No drift and no creep: no budget; a lithography step needs a new
+	// registration only where the tip is conditioned (after FE work) or
+	// field-emission work far from written features starts.
 	prof := DefaultProfile()
 	prof.Drift.RateNMPerMin, prof.Drift.RateSDNMPerMin = 0, 0
+	prof.Registration.Creep.Fraction, prof.Registration.Creep.FractionSD = 0, 0
 	p, err = buildVariant(context.Background(), demo(t), "", prof, Options{Seed: 1, MonteCarloRuns: 50})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(p.Segments) != 1 || p.Segments[0].BudgetS != 0 || p.Breakdown.RegistrationS != prof.Drift.RegistrationS {
-		t.Errorf("no drift: %d segments, budget %v, registrations %v s", len(p.Segments), p.Segments[0].BudgetS, p.Breakdown.RegistrationS)
+	for _, g := range p.Segments {
+		if g.BudgetS != 0 {
+			t.Errorf("no drift: segment %d has a budget of %v s", g.Index, g.BudgetS)
+		}
 	}
-	// Dwell-written windows carry their completion in the probability.
+	if n := len(p.Segments); n > 8 || p.PInTolerance < 0.99 {
+		t.Errorf("no drift: %d segments, P(within tolerance) %v", n, p.PInTolerance)
+	}
+	// Dwell-written windows: each site clears with the dwell's completion
+	// (0.99), its neighbours now and then as well.
 	prof = DefaultProfile()
 	prof.WindowStyle = WindowStyleDwell
 	p, err = buildVariant(context.Background(), demo(t), "", prof, Options{Seed: 1, MonteCarloRuns: 50})
@@ -50,8 +63,8 @@ func TestBuildEdgeCases(t *testing.T) {
 		if w.Species == "As" {
 			want = 0.97
 		}
-		if open := pow(0.99, w.Sites); abs(w.Probability-want*open) > 1e-12 || abs(w.OpenProbability-open) > 1e-12 {
-			t.Errorf("window %+v: want %v × 0.99^%d", w, want, w.Sites)
+		if open := pow(0.99, w.Sites); abs(w.Probability-want*w.OpenProbability) > 1e-12 || w.OpenProbability > open || w.OpenProbability < 0.95*open {
+			t.Errorf("window %+v: want %v × at most 0.99^%d", w, want, w.Sites)
 		}
 	}
 	if !p.Coverage.OK {

@@ -38,7 +38,7 @@ func ExampleBuild() {
 	// sensor-island: ap
 	// source-lead: ap
 	// breakdown sums to the total: true
-	// coverage OK: true, P(all windows good) = 0.6111
+	// coverage OK: true, P(all windows good) = 0.5364
 }
 
 func ExampleCompare() {
@@ -55,8 +55,8 @@ func ExampleCompare() {
 		}
 	}
 	// Output:
-	// gap-9: 1 segment(s), 2 windows
-	// gap-12-source: 1 segment(s), 2 windows
+	// gap-9: 5 segment(s), 2 windows
+	// gap-12-source: 5 segment(s), 2 windows
 	//    tunnel gap sensor-island – source-lead
 	//    region source-lead
 }
@@ -68,9 +68,10 @@ func ExampleWritingSpeed() {
 }
 
 func ExampleDriftBudget() {
-	// An AP stroke held to ±0.2 nm at 0.1 nm/min of drift.
-	fmt.Printf("%.0f s\n", planner.DriftBudget(0.2, 0.1))
-	// Output: 120 s
+	// An AP stroke held to ±0.2 nm at 0.1 nm/min of drift, after a local
+	// registration of ±0.05 nm with 0.01 nm of creep still to come.
+	fmt.Printf("%.0f s\n", planner.DriftBudget(0.2, 0.05, 0.01, 0.1))
+	// Output: 84 s
 }
 
 // The breakdown of a plan's time, kind by kind, as every view names it.

@@ -2,7 +2,10 @@ package planner
 
 import (
 	"context"
+	"math"
 	"testing"
+
+	"github.com/golang/geo/r2"
 
 	"dimerpath/assets"
 	"dimerpath/lattice"
@@ -57,24 +60,54 @@ func layRegions(t testing.TB, d *design.Design) (*design.Layout, []CoverageRegio
 	return lay, cr
 }
 
-// bruteCoverage classifies every site of the surface by summing every
-// stroke piece's dose directly (no bounds, no row bookkeeping): the
-// reference the fast check must agree with. marginal counts the painted
-// sites it finds cleared that would not be without the pieces giving them
-// less than coverageNeglect each: the check, which leaves such pieces
-// out, may call those uncovered.
-func bruteCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) (uncovered, cleared, marginal int) {
+// bruteResult is the coverage expectation summed site by site.
+type bruteResult struct {
+	missed, stray float64
+	overLimit     int
+	overSites     map[lattice.Site]float64
+}
+
+// bruteCoverage sums every site's exposure over every stroke piece and
+// dwell directly (no bounds, no ranges, nothing neglected) and counts the
+// expectation: the reference the fast check must agree with. A site
+// outside every region is tolerated (edge) when a region whose strokes
+// give it an exposure above exposureNeglect has a site within that
+// stroke's mode's edge allowance, found by comparing with every site of
+// the region nearby.
+func bruteCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) bruteResult {
+	res := bruteResult{overSites: map[lattice.Site]float64{}}
 	painted := lattice.NewSiteSet()
 	for _, r := range regions {
 		painted.Union(r.Sites)
 	}
-	dwelled := lattice.NewSiteSet()
-	for _, s := range strokes {
-		if s.Kind == StrokeDwell {
-			if site, d, ok := surf.Snap(s.Path[0]); ok && d <= 0.05 {
-				dwelled.Add(site)
+	regionOf := map[string]int{}
+	for i, r := range regions {
+		regionOf[r.Name] = i
+	}
+	// Every region's site positions in 2 nm buckets, for the allowance.
+	type bucket struct{ i, j int }
+	near := make([]map[bucket][]r2.Point, len(regions))
+	for i, r := range regions {
+		near[i] = map[bucket][]r2.Point{}
+		for site := range r.Sites.All() {
+			p := surf.Position(site)
+			k := bucket{int(math.Floor(p.X / 2)), int(math.Floor(p.Y / 2))}
+			near[i][k] = append(near[i][k], p)
+		}
+	}
+	within := func(ri int, q r2.Point, dist float64) bool {
+		n := int(math.Ceil(dist/2)) + 1
+		ci, cj := int(math.Floor(q.X/2)), int(math.Floor(q.Y/2))
+		for i := ci - n; i <= ci+n; i++ {
+			for j := cj - n; j <= cj+n; j++ {
+				for _, p := range near[ri][bucket{i, j}] {
+					if p.Sub(q).Norm() <= dist+1e-9 {
+						return true
+					}
+				}
 			}
 		}
+		return false
 	}
 	for t := range surf.Terraces {
 		for r := 0; r < surf.RowCount(t); r++ {
@@ -85,49 +118,64 @@ func bruteCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []St
 						continue
 					}
 					q := surf.Position(site)
-					e, small := 0.0, 0.0
-					for _, s := range strokes {
+					x := 0.0
+					var dosing []int
+					for si, s := range strokes {
+						e := 0.0
 						if s.Kind == StrokeDwell {
-							continue
-						}
-						m := prof.AP
-						if s.Mode == design.ModeFE {
-							m = prof.FE
-						}
-						ratio := float64(max(s.Passes, 1)) * m.LineDoseCPerCm / m.Width.ThresholdDoseCPerCm
-						for i := 0; i+1 < len(s.Path); i++ {
-							a, b := s.Path[i], s.Path[i+1]
-							ab := b.Sub(a)
-							L := ab.Norm()
-							if L == 0 {
-								continue
+							dist := s.Path[0].Sub(q).Norm()
+							if dist <= 0.05 {
+								e = exposureFor(prof.Dwell.Completion)
+							} else {
+								e = prof.Dwell.Completion * gauss(dist, prof.Dwell.SigmaNM)
 							}
-							u := ab.Mul(1 / L)
-							aq := q.Sub(a)
-							dd := u.Cross(aq)
-							if dd < 0 {
-								dd = -dd
-							}
-							x := exposure(ratio, m.Width.SigmaNM, L, aq.Dot(u), dd)
-							e += x
-							if x < coverageNeglect {
-								small += x
+						} else {
+							l := prof.Line(s.Mode)
+							amp := float64(max(s.Passes, 1)) * l.PassPeak
+							for i := 0; i+1 < len(s.Path); i++ {
+								a, b := s.Path[i], s.Path[i+1]
+								ab := b.Sub(a)
+								L := ab.Norm()
+								if L == 0 {
+									continue
+								}
+								u := ab.Mul(1 / L)
+								aq := q.Sub(a)
+								e += lineExposure(amp, l.SigmaNM, L, aq.Dot(u), math.Abs(u.Cross(aq)))
 							}
 						}
+						x += e
+						if e > exposureNeglect {
+							dosing = append(dosing, si)
+						}
 					}
-					clear := e >= 1 || dwelled.Contains(site)
-					if painted.Contains(site) && !clear {
-						uncovered++
+					if painted.Contains(site) {
+						res.missed += math.Exp(-x)
+						continue
 					}
-					if painted.Contains(site) && clear && !dwelled.Contains(site) && e-small < 1 {
-						marginal++
+					pc := ClearProbability(x)
+					tolerated := false
+					for _, si := range dosing {
+						allow := prof.AP.EdgeAllowanceNM
+						if strokes[si].Mode == design.ModeFE {
+							allow = prof.FE.EdgeAllowanceNM
+						}
+						if ri, ok := regionOf[strokes[si].Region]; ok && allow > 0 && within(ri, q, allow) {
+							tolerated = true
+							break
+						}
 					}
-					if clear {
-						cleared++
+					if tolerated {
+						continue
+					}
+					res.stray += pc
+					if pc > prof.StrayLimit {
+						res.overLimit++
+						res.overSites[site] = pc
 					}
 				}
 			}
 		}
 	}
-	return uncovered, cleared, marginal
+	return res
 }

@@ -64,11 +64,11 @@ func (e *CountError) Unwrap() error { return ErrTooMuchWork }
 func (b *builder) checkRaster() error {
 	fe := b.prof.FE
 	extent := math.Hypot(b.d.Field.WidthNM, b.d.Field.HeightNM)
-	if n := extent / fe.Pitch(); !(n <= MaxRasterLines) {
+	pitch := b.prof.FEPitch()
+	if n := extent / pitch; !(n <= MaxRasterLines) {
 		return &CountError{What: fmt.Sprintf("FE raster lines across the %s nm field", jsonfile.Number(math.Round(extent))), Count: n, Max: MaxRasterLines,
-			Cause: fmt.Sprintf("fe.width (sigma_nm = %s, threshold_dose_c_per_cm = %s at line_dose_c_per_cm = %s) and fe.overlap = %s give a raster pitch of %s nm",
-				jsonfile.Number(fe.Width.SigmaNM), jsonfile.Number(fe.Width.ThresholdDoseCPerCm), jsonfile.Number(fe.LineDoseCPerCm),
-				jsonfile.Number(fe.Overlap), jsonfile.Approx(fe.Pitch()))}
+			Cause: fmt.Sprintf("fe.sigma_nm = %s and fe.fill_completion = %s at line_dose_c_per_cm = %s give a raster pitch of %s nm",
+				jsonfile.Number(fe.SigmaNM), jsonfile.Number(fe.FillCompletion), jsonfile.Number(fe.LineDoseCPerCm), jsonfile.Approx(pitch))}
 	}
 	return nil
 }

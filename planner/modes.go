@@ -33,6 +33,9 @@ type regionWork struct {
 	reason         string
 	apPart, fePart *lattice.SiteSet // plain sites written in each mode
 	tolAP, tolFE   float64
+	srcAP, srcFE   string // where each tolerance comes from (a JSON path)
+	dopant         string // the species it receives, design.NoDopant for none
+	stepNamed      string // the step a region without dopant names
 	warnings       []string
 }
 
@@ -197,7 +200,7 @@ func (mc *modeChooser) choose() {
 
 // auto1 is the first, keep-out-free pass of the auto choice.
 func (mc *modeChooser) auto1(r *regionWork) {
-	w := mc.prof.FE.LineWidth()
+	w := mc.prof.Line(design.ModeFE).Width()
 	band := mc.prof.HybridBandNM
 	switch {
 	case r.plain.IsEmpty() && len(r.windows) > 0:

@@ -12,20 +12,14 @@ import (
 )
 
 // DefaultMonteCarloRuns is the number of Monte Carlo samples of the
-// write time when Options.MonteCarloRuns is 0.
-const DefaultMonteCarloRuns = 1000
+// session when Options.MonteCarloRuns is 0.
+const DefaultMonteCarloRuns = 2000
 
 // exactDwellSamples is the number of dwells up to which each run draws
 // every dwell's completion time; beyond it the sum of the (independent,
 // identically distributed) capped completion times is drawn from its
-// normal approximation (central limit theorem), whose error is far below
-// the spread of the drift term.
+// normal approximation (central limit theorem).
 const exactDwellSamples = 256
-
-// spreadRanks is the number of intervals between the drift-rate ranks
-// at which the segmentation is computed exactly when dwells add their own
-// spread (see monteCarlo).
-const spreadRanks = 16
 
 // quantileIndex is the 0-based index of the empirical p-quantile of n
 // sorted samples: the smallest value whose empirical CDF reaches p, as
@@ -34,115 +28,326 @@ func quantileIndex(p float64, n int) int {
 	return min(max(int(math.Ceil(p*float64(n)))-1, 0), n-1)
 }
 
-// mcResult holds the Monte Carlo samples of the total write time.
-type mcResult struct {
-	samples       []float64 // sorted
-	p10, p50, p90 float64
-	evaluations   int // segmentations computed
+// The Monte Carlo samples the fixed, printed plan: the segmentation, the
+// registrations and the order stay as printed, and each sample draws what
+// the operator cannot know in advance: the drift rate (log-normal with
+// the profile's mean and spread), the creep fraction (log-normal), every
+// registration's error (normal, σ of its kind: integrated exactly given
+// the sample's rate and creep, which has the same mean as drawing it and
+// less noise), the dwell times (exponential, capped), the tip changes
+// (Poisson in the writing time) and the missed sites the verification
+// finds (Poisson with the exposure model's expectation), each repaired.
+
+// mcDraws are the samples of the inputs that move the tip.
+type mcDraws struct {
+	rate  []float64 // drift rate over the profile's mean (1 without drift)
+	creep []float64 // creep fraction
 }
 
-// monteCarlo samples the total write time over the drift-rate
-// uncertainty (log-normal with the profile's mean and standard
-// deviation, re-segmenting the writing order at each sampled rate) and
-// over the feedback-ended dwell times (exponential with rate Y·I/e,
-// capped at the dwell's 99 % time; the plan counts each at its mean).
-// The drift and dwell terms are drawn from separate streams of seed.
-func monteCarlo(ctx context.Context, sg *segmenter, prof *Profile, runs int, seed int64, dwells int, progress func(float64)) (mcResult, error) {
+// drawMotion draws runs drift rates and creep fractions from separate
+// streams of seed.
+func drawMotion(prof *Profile, runs int, seed int64) mcDraws {
+	d := mcDraws{rate: make([]float64, runs), creep: make([]float64, runs)}
+	r0, sd := prof.Drift.RateNMPerMin, prof.Drift.RateSDNMPerMin
+	fillLogNormal(d.rate, r0, sd, rand.NewPCG(uint64(seed), 0x6472696674))
+	if r0 > 0 {
+		for i := range d.rate {
+			d.rate[i] /= r0
+		}
+	}
+	c := prof.Registration.Creep
+	fillLogNormal(d.creep, c.Fraction, c.FractionSD, rand.NewPCG(uint64(seed), 0x6372656570))
+	return d
+}
+
+// fillLogNormal fills xs with draws from the log-normal distribution of
+// mean m and standard deviation sd (gonum distuv): drift rates and creep
+// are positive and their spread multiplicative. Without spread every
+// draw is m.
+func fillLogNormal(xs []float64, m, sd float64, src rand.Source) {
+	if m > 0 && sd > 0 {
+		mu, sigma := logNormalParams(m, sd)
+		ln := distuv.LogNormal{Mu: mu, Sigma: sigma, Src: src}
+		for i := range xs {
+			xs[i] = ln.Rand()
+		}
+		return
+	}
+	for i := range xs {
+		xs[i] = m
+	}
+}
+
+// logNormalParams returns μ and σ of the log-normal distribution with
+// mean m and standard deviation sd.
+func logNormalParams(m, sd float64) (mu, sigma float64) {
+	s2 := math.Log1p(sd * sd / (m * m))
+	return math.Log(m) - s2/2, math.Sqrt(s2)
+}
+
+// logNormalQuantile returns the p-quantile of the log-normal
+// distribution of mean m and standard deviation sd (m without spread).
+func logNormalQuantile(p, m, sd float64) float64 {
+	if m <= 0 || sd <= 0 {
+		return m
+	}
+	mu, sigma := logNormalParams(m, sd)
+	return distuv.LogNormal{Mu: mu, Sigma: sigma}.Quantile(p)
+}
+
+// strokeLoad is what moves one stroke at unit creep fraction and at the
+// profile's mean drift rate, from its segment's registration to its end,
+// and its tolerance.
+type strokeLoad struct {
+	tol, creep, drift float64
+}
+
+// segLoad is one segment for the tolerance sampling: its registration's
+// σ and the strokes that can bind (those no other stroke dominates: one
+// with a tolerance no larger and at least as much creep and drift binds
+// first in every sample).
+type segLoad struct {
+	sigma float64
+	loads []strokeLoad
+}
+
+// paretoLoads keeps the loads no other dominates.
+func paretoLoads(ls []strokeLoad) []strokeLoad {
+	sort.Slice(ls, func(i, j int) bool {
+		if ls[i].tol != ls[j].tol {
+			return ls[i].tol < ls[j].tol
+		}
+		if ls[i].creep != ls[j].creep {
+			return ls[i].creep > ls[j].creep
+		}
+		return ls[i].drift > ls[j].drift
+	})
+	var kept []strokeLoad
+	for _, l := range ls {
+		dominated := false
+		for _, k := range kept {
+			if k.creep >= l.creep && k.drift >= l.drift {
+				dominated = true
+				break
+			}
+		}
+		if !dominated {
+			kept = append(kept, l)
+		}
+	}
+	return kept
+}
+
+// pairLoad is one coupled pair: its relative tolerance, the creep and
+// drift over its drift window, and the σ of a registration that stands
+// between its sides (0 when both lie in one drift window).
+type pairLoad struct {
+	tol, creep, drift, sigma float64
+}
+
+// withinProb returns P(|e| ≤ room) for e ~ N(0, σ²): erf(room/(σ√2)),
+// the indicator of room ≥ 0 when σ = 0.
+func withinProb(room, sigma float64) float64 {
+	if room < 0 {
+		return 0
+	}
+	if sigma <= 0 {
+		return 1
+	}
+	return fastErf(room / (sigma * math.Sqrt2))
+}
+
+// erfTable holds erf on [0, erfTableMax] at steps of 1/erfTableStep, for
+// fastErf: the tolerance sampling evaluates it for every segment of
+// every sample (10^7 times for a large plan).
+const (
+	erfTableStep = 1024
+	erfTableMax  = 6 // erf(6) = 1 − 2·10⁻¹⁷
+)
+
+var erfTable = func() []float64 {
+	t := make([]float64, erfTableMax*erfTableStep+2)
+	for i := range t {
+		t[i] = math.Erf(float64(i) / erfTableStep)
+	}
+	return t
+}()
+
+// fastErf returns erf(x) for x ≥ 0 by linear interpolation in erfTable:
+// within 1.2·10⁻⁷ of math.Erf (h²/8 · max|erf”| with h = 1/1024;
+// TestFastErf checks it), 1 beyond 6.
+func fastErf(x float64) float64 {
+	if x >= erfTableMax {
+		return 1
+	}
+	f := x * erfTableStep
+	i := int(f)
+	return erfTable[i] + (f-float64(i))*(erfTable[i+1]-erfTable[i])
+}
+
+// tolResult holds the sampled probabilities of staying within tolerance.
+type tolResult struct {
+	all   float64   // every segment and pair
+	some  float64   // every pair and every segment not left out (see pInTolerance)
+	segs  []float64 // each segment's strokes
+	pairs []float64
+}
+
+// pInTolerance estimates the probabilities of staying within tolerance
+// over the draws: per sample, a segment's strokes all stay within
+// theirs when its registration error fits the least room any leaves,
+// min over strokes of tol − creep − drift, which for a normal error has
+// probability erf(room/(σ√2)).
+// Segments whose leave[s] is true are left out of res.some.
+func pInTolerance(ctx context.Context, segs []segLoad, pairs []pairLoad, d mcDraws, leave []bool) (tolResult, error) {
+	res := tolResult{segs: make([]float64, len(segs)), pairs: make([]float64, len(pairs))}
+	n := len(d.rate)
+	if n == 0 {
+		return res, nil
+	}
+	for i := range n {
+		if i%256 == 0 {
+			if err := ctx.Err(); err != nil {
+				return res, err
+			}
+		}
+		r, c := d.rate[i], d.creep[i]
+		all, some := 1.0, 1.0
+		for s, g := range segs {
+			room := math.Inf(1)
+			for _, l := range g.loads {
+				room = math.Min(room, l.tol-c*l.creep-r*l.drift)
+			}
+			p := withinProb(room, g.sigma)
+			res.segs[s] += p
+			all *= p
+			if s >= len(leave) || !leave[s] {
+				some *= p
+			}
+		}
+		for k, pl := range pairs {
+			p := withinProb(pl.tol-c*pl.creep-r*pl.drift, pl.sigma)
+			res.pairs[k] += p
+			all *= p
+			some *= p
+		}
+		res.all += all
+		res.some += some
+	}
+	res.all /= float64(n)
+	res.some /= float64(n)
+	for s := range res.segs {
+		res.segs[s] /= float64(n)
+	}
+	for k := range res.pairs {
+		res.pairs[k] /= float64(n)
+	}
+	return res, nil
+}
+
+// timeModel is what the session's time depends on beyond the fixed
+// schedule: the random parts and their expected values in the schedule.
+type timeModel struct {
+	schedule  Breakdown // the printed schedule's times by kind
+	writeS    float64   // writing time (AP, FE, dwells): tip failures come with it
+	tipChange struct {
+		enabled bool
+		meanS   float64 // mean writing time between failures
+		costS   float64 // conditioning and a coarse registration
+	}
+	repairs []repairModel
+	dwells  int // dwell strokes, each at its mean in the schedule
+}
+
+// repairModel is one feature's repair: the expected number of missed
+// sites (in the schedule at its expectation) and the time per site.
+type repairModel struct {
+	missed, perSiteS float64
+}
+
+// mcTimes holds the sampled session times.
+type mcTimes struct {
+	samples       []float64 // sorted
+	mean          float64
+	p10, p50, p90 float64
+	breakdown     Breakdown // the schedule's plus the mean of each random part
+}
+
+// sampleTimes samples the session's time on the fixed plan: the
+// schedule, plus in each run the tip changes (Poisson with mean writing
+// time / mean time between failures, each costing a conditioning and a
+// registration), the repairs (each feature's missed sites Poisson with
+// the exposure model's expectation, less the expectation the schedule
+// holds) and the dwells (exponential with rate Y·I/e capped at the
+// completion time, less the mean the schedule holds). The breakdown is
+// the schedule's plus each random part's sample mean, so it sums to the
+// mean of the samples.
+func sampleTimes(ctx context.Context, tm timeModel, prof *Profile, runs int, seed int64) (mcTimes, error) {
+	var res mcTimes
 	if runs <= 0 {
 		runs = DefaultMonteCarloRuns
 	}
-	var res mcResult
-	r0 := prof.Drift.RateNMPerMin
-	rates := driftSamples(prof, runs, seed)
-	// The optimal total never falls as the drift rate rises, so the
-	// total at the k-th smallest sampled rate is the k-th smallest total.
-	// The segmentation is computed exactly at the ranks the quantiles
-	// pick and, when dwells add their own spread, at spreadRanks ranks
-	// evenly spaced between; totals at other ranks are interpolated
-	// between their evaluated neighbours, which bound them. Without
-	// dwells the quantiles are therefore exact.
-	order := make([]int, runs)
-	for i := range order {
-		order[i] = i
-	}
-	sort.SliceStable(order, func(a, b int) bool { return rates[order[a]] < rates[order[b]] })
-	ranks := map[int]bool{}
-	for _, q := range []float64{0.1, 0.5, 0.9} {
-		ranks[quantileIndex(q, runs)] = true
-	}
-	if dwells > 0 {
-		for k := 0; k <= spreadRanks; k++ {
-			ranks[k*(runs-1)/spreadRanks] = true
+	base := tm.schedule.Total()
+	tips := make([]float64, runs)
+	repair := make([]float64, runs)
+	dwell := make([]float64, runs)
+	if tm.tipChange.enabled && tm.writeS > 0 && tm.tipChange.meanS > 0 {
+		lambda := tm.writeS / tm.tipChange.meanS
+		pois := distuv.Poisson{Lambda: lambda, Src: rand.NewPCG(uint64(seed), 0x7469707321)}
+		for i := range tips {
+			tips[i] = pois.Rand() * tm.tipChange.costS
 		}
 	}
-	evaluated := make([]int, 0, len(ranks))
-	for k := range ranks {
-		evaluated = append(evaluated, k)
-	}
-	sort.Ints(evaluated)
-	byRank := make([]float64, runs)
-	for n, k := range evaluated {
-		if err := ctx.Err(); err != nil {
-			return res, err
-		}
-		r := rates[order[k]]
-		scale := math.Inf(1)
-		if r > 0 {
-			scale = r0 / r
-		}
-		_, byRank[k], _ = sg.solve(scale)
-		res.evaluations++
-		if progress != nil {
-			progress(float64(n+1) / float64(len(evaluated)))
+	if len(tm.repairs) > 0 {
+		src := rand.NewPCG(uint64(seed), 0x726570616972)
+		for _, rp := range tm.repairs {
+			if rp.missed <= 0 {
+				continue
+			}
+			pois := distuv.Poisson{Lambda: rp.missed, Src: src}
+			for i := range repair {
+				repair[i] += (pois.Rand() - rp.missed) * rp.perSiteS
+			}
 		}
 	}
-	for n := 0; n+1 < len(evaluated); n++ {
-		a, b := evaluated[n], evaluated[n+1]
-		for k := a + 1; k < b; k++ {
-			byRank[k] = byRank[a] + (byRank[b]-byRank[a])*float64(k-a)/float64(b-a)
-		}
-	}
-	for k := 0; k < evaluated[0]; k++ {
-		byRank[k] = byRank[evaluated[0]]
-	}
-	for k := evaluated[len(evaluated)-1] + 1; k < runs; k++ {
-		byRank[k] = byRank[evaluated[len(evaluated)-1]]
-	}
-	totals := make([]float64, runs)
-	for k, i := range order {
-		totals[i] = byRank[k]
-	}
-
-	if dwells > 0 {
-		k, capS := prof.Dwell.Rate(), prof.Dwell.CapS()
-		mean := prof.Dwell.ExpectedS()
+	if tm.dwells > 0 {
+		k, capS := prof.DwellRate(), prof.DwellCapS()
+		mean := prof.DwellExpectedS()
 		src := rand.NewPCG(uint64(seed), 0x6477656c6c)
-		if dwells <= exactDwellSamples {
+		if tm.dwells <= exactDwellSamples {
 			// Exponential with rate k, as distuv.Exponential draws it
 			// (ExpFloat64/k), from one generator rather than one per draw.
 			rng := rand.New(src)
-			for i := range totals {
-				d := 0.0
-				for range dwells {
-					d += math.Min(rng.ExpFloat64()/k, capS) - mean
+			for i := range dwell {
+				for range tm.dwells {
+					dwell[i] += math.Min(rng.ExpFloat64()/k, capS) - mean
 				}
-				totals[i] += d
 			}
 		} else {
 			// E[min(T,c)²] = 2/k²·(1 - e^{-kc}(1+kc)) for T ~ Exp(k).
 			m2 := 2 / (k * k) * (1 - math.Exp(-k*capS)*(1+k*capS))
 			v := math.Max(m2-mean*mean, 0)
-			norm := distuv.Normal{Mu: 0, Sigma: math.Sqrt(v * float64(dwells)), Src: src}
-			for i := range totals {
-				totals[i] += norm.Rand()
+			norm := distuv.Normal{Mu: 0, Sigma: math.Sqrt(v * float64(tm.dwells)), Src: src}
+			for i := range dwell {
+				dwell[i] = norm.Rand()
 			}
 		}
 	}
-	for i, s := range totals {
-		if !finite(s) {
-			return res, fmt.Errorf("planner: the write time at a drift rate of %.3g nm/min is not a finite number of seconds (%v): the profile's times (drift.registration_s, drift.verification_s, settle_s, mode_switch_s) or rates are beyond any instrument", rates[i], s)
+	if err := ctx.Err(); err != nil {
+		return res, err
+	}
+	totals := make([]float64, runs)
+	for i := range totals {
+		totals[i] = base + tips[i] + repair[i] + dwell[i]
+		if !finite(totals[i]) {
+			return res, fmt.Errorf("planner: the session time of a Monte Carlo sample is not a finite number of seconds (%v): the profile's times (session, process, drift.registration_s, settle_s, mode_switch_s) or rates are beyond any instrument", totals[i])
 		}
 	}
+	res.breakdown = tm.schedule
+	res.breakdown.TipChangeS += stat.Mean(tips, nil)
+	res.breakdown.RepairS += stat.Mean(repair, nil)
+	res.breakdown.DwellS += stat.Mean(dwell, nil)
+	res.mean = stat.Mean(totals, nil)
 	res.samples = totals
 	sort.Float64s(res.samples)
 	res.p10 = stat.Quantile(0.1, stat.Empirical, res.samples, nil)
@@ -152,25 +357,4 @@ func monteCarlo(ctx context.Context, sg *segmenter, prof *Profile, runs int, see
 	res.p50 = stat.Quantile(0.5, stat.Empirical, res.samples, nil)
 	res.p90 = stat.Quantile(0.9, stat.Empirical, res.samples, nil)
 	return res, nil
-}
-
-// driftSamples draws runs drift rates (nm/min) from a log-normal
-// distribution with the profile's mean and standard deviation: drift
-// rates are positive and their spread is multiplicative. Without spread
-// every sample is the mean.
-func driftSamples(prof *Profile, runs int, seed int64) []float64 {
-	r0, sd := prof.Drift.RateNMPerMin, prof.Drift.RateSDNMPerMin
-	rates := make([]float64, runs)
-	if r0 > 0 && sd > 0 {
-		s2 := math.Log1p(sd * sd / (r0 * r0))
-		ln := distuv.LogNormal{Mu: math.Log(r0) - s2/2, Sigma: math.Sqrt(s2), Src: rand.NewPCG(uint64(seed), 0x6472696674)}
-		for i := range rates {
-			rates[i] = ln.Rand()
-		}
-		return rates
-	}
-	for i := range rates {
-		rates[i] = r0
-	}
-	return rates
 }

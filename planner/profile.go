@@ -10,12 +10,13 @@ import (
 
 	"dimerpath/internal/atomicfile"
 	"dimerpath/internal/jsonfile"
+	"dimerpath/lattice/design"
 )
 
 // ProfileFormat and ProfileVersion identify instrument-profile files.
 const (
 	ProfileFormat  = "dimerpath-profile"
-	ProfileVersion = 1
+	ProfileVersion = 2
 )
 
 // Profile describes one instrument and tip as the planner needs it: the
@@ -31,9 +32,20 @@ type Profile struct {
 	// empty): fields the file leaves out keep the preset's value.
 	Base string `json:"base,omitempty"`
 
+	// Exposure gives the desorption yield per electron at any bias and
+	// current; with each mode's footprint it decides how likely every
+	// site is to clear (see ExposureModel).
+	Exposure ExposureModel `json:"exposure"`
+
 	AP    ModeProfile  `json:"ap"`
 	FE    ModeProfile  `json:"fe"`
 	Dwell DwellProfile `json:"dwell"`
+
+	// StrayLimit is the largest probability with which a site outside
+	// every region (beyond the edge allowance) may clear: a plan or
+	// design whose strokes clear such a site more likely than this fails
+	// its coverage check.
+	StrayLimit float64 `json:"stray_limit"`
 
 	// MoveSpeedNMPerS is the tip speed for idle moves in imaging
 	// conditions; SettleS is the wait after each move; ModeSwitchS is
@@ -44,12 +56,27 @@ type Profile struct {
 
 	Drift DriftProfile `json:"drift"`
 
+	// Registration, Process and Session describe the session around the
+	// writing (session_profile.go): the two kinds of registration and
+	// piezo creep, the process steps per dopant, and the survey,
+	// conditioning, tip changes, verification, repair and documentation.
+	Registration RegistrationProfile `json:"registration"`
+	Process      ProcessProfile      `json:"process"`
+	Session      SessionProfile      `json:"session"`
+
 	// ToleranceAPNM and ToleranceFENM are the default placement
 	// tolerances (±nm) for regions that give none. ToleranceFENM is also
 	// what FE writing can hold: auto mode writes a region in FE only when
 	// its own tolerance (if it gives one) is at least this.
 	ToleranceAPNM float64 `json:"tolerance_ap_nm"`
 	ToleranceFENM float64 `json:"tolerance_fe_nm"`
+	// ToleranceLeadNM, ToleranceGateNM and TolerancePadNM are the default
+	// placement tolerances (±nm) of leads, gates and pads (a design's
+	// rules come first); field-emission work is never held tighter than
+	// ToleranceFENM.
+	ToleranceLeadNM float64 `json:"tolerance_lead_nm"`
+	ToleranceGateNM float64 `json:"tolerance_gate_nm"`
+	TolerancePadNM  float64 `json:"tolerance_pad_nm"`
 
 	// Order says which mode is written first: "ap-first" or "fe-first".
 	Order string `json:"order"`
@@ -67,50 +94,51 @@ type Profile struct {
 	Limits Limits `json:"limits"`
 }
 
-// ModeProfile holds the tip conditions and dose model of one write mode.
+// ModeProfile holds the tip conditions and footprint of one write mode.
 type ModeProfile struct {
 	BiasV          float64 `json:"bias_v"`
 	CurrentA       float64 `json:"current_a"`
 	LineDoseCPerCm float64 `json:"line_dose_c_per_cm"`
 	Passes         int     `json:"passes"`
-	// Width is the line width as a function of line dose.
-	Width WidthModel `json:"width"`
-	// Overlap is the fraction of the line width by which neighbouring
-	// raster lines overlap (FE fill); the pitch is width·(1-overlap).
-	Overlap float64 `json:"overlap,omitempty"`
+	// SigmaNM is the standard deviation of the footprint through which
+	// the tip's electrons act on the H sites (the effective footprint:
+	// in the multi-electron regime the rate goes as a power of the local
+	// current, so it is narrower than the current's own).
+	SigmaNM float64 `json:"sigma_nm"`
+	// FillCompletion is the probability with which the FE raster clears
+	// the sites between two lines; it sets the raster pitch (FE only).
+	FillCompletion float64 `json:"fill_completion,omitempty"`
+	// SpuriousPer100NM is the background of spurious dangling bonds
+	// along lines of this mode, per 100 nm of line, beyond what the
+	// footprint explains (AP only).
+	SpuriousPer100NM float64 `json:"spurious_per_100nm,omitempty"`
 	// Outline asks for an extra pass along the region edge (FE).
 	Outline bool `json:"outline,omitempty"`
 	// EdgeAllowanceNM is how far beyond its region's sites a stroke of
-	// this mode may clear H (nm): the coverage check reports every
-	// cleared site farther than this from the region, and the FE fill
-	// insets its paths so that it stays within it.
+	// this mode may clear H (nm): beyond it, a site must clear with
+	// probability below the profile's StrayLimit, and the FE fill insets
+	// its paths so that it does.
 	EdgeAllowanceNM float64 `json:"edge_allowance_nm"`
+	// V1Width and V1Overlap are the version 1 fields "width" and
+	// "overlap", read from version 1 files and converted by ParseProfile
+	// (profile_v1.go); nil in every version 2 profile.
+	V1Width   *V1Width `json:"width,omitempty"`
+	V1Overlap *float64 `json:"overlap,omitempty"`
 }
 
-// WidthModel gives the written line width from the line dose λ for a
-// Gaussian beam footprint of standard deviation SigmaNM and a threshold
-// dose below which no site is cleared:
-//
-//	w(λ) = 2·σ·sqrt(2·ln(λ/λ_thr)) for λ > λ_thr, else 0.
-//
-// The form is our derivation from a Gaussian footprint and a clearing
-// threshold (no closed form has been published; see docs/sources.md);
-// calibrate fits it to a lab's own lines.
-type WidthModel struct {
-	SigmaNM             float64 `json:"sigma_nm"`
-	ThresholdDoseCPerCm float64 `json:"threshold_dose_c_per_cm"`
-}
-
-// DwellProfile describes single-point depassivation by parking the tip.
+// DwellProfile describes single-point depassivation by parking the tip
+// (feedback-controlled: the dwell ends when the current rises).
 type DwellProfile struct {
 	BiasV    float64 `json:"bias_v"`
 	CurrentA float64 `json:"current_a"`
-	// YieldPerElectron is the desorption yield Y (H atoms per electron);
-	// a dwell of t seconds completes with probability 1-exp(-Y·I·t/e).
-	YieldPerElectron float64 `json:"yield_per_electron"`
+	// SigmaNM is the footprint of the parked tip (see ModeProfile).
+	SigmaNM float64 `json:"sigma_nm"`
 	// Completion is the completion probability the planned dwell time
-	// reaches (default 0.99).
+	// reaches (default 0.99): the dwell is capped there.
 	Completion float64 `json:"completion"`
+	// V1Yield is the version 1 field "yield_per_electron" (see
+	// ModeProfile.V1Width); nil in every version 2 profile.
+	V1Yield *float64 `json:"yield_per_electron,omitempty"`
 }
 
 // DriftProfile describes thermal drift and the cost of correcting it.
@@ -123,6 +151,11 @@ type DriftProfile struct {
 	// VerificationS is the operator's verification image after each
 	// segment (0 for none).
 	VerificationS float64 `json:"verification_s"`
+	// Compensation is optional feed-forward drift compensation, Excess
+	// the faster drift soon after a long move or an anneal
+	// (session_profile.go).
+	Compensation DriftCompensation `json:"compensation"`
+	Excess       DriftExcess       `json:"excess"`
 }
 
 // Limits are the instrument's hard limits; a plan that needs more is
@@ -150,12 +183,43 @@ const (
 // literature but not checked against a stored source, to be replaced by
 // the lab's own calibration (dimerpath calibrate).
 func DefaultProfile() Profile {
-	return Profile{
+	p := Profile{
 		Format:  ProfileFormat,
 		Version: ProfileVersion,
 		Name:    "room-temperature default",
 		Notes:   "literature defaults; calibrate to your own tip and instrument",
 		Base:    PresetRoomTemp,
+		Exposure: ExposureModel{
+			Vibrational: VibrationalYield{
+				// Derived: with the 0.1 nm AP footprint below, Schmucker et
+				// al.'s working point (+4 V, 2 nA, 2 mC/cm; Nat. Commun. 3
+				// (2012)) then clears the sites of its own dimer row with
+				// probability 0.999 (exposure ln 1000) and those of the
+				// next rows with < 10⁻⁶: a line one dimer row wide, as
+				// published. The 99.9 % is from memory (AP lines show a
+				// few missing H per 100 nm).
+				YieldPerElectron: 4.5e-8,
+				BiasV:            4,
+				CurrentA:         2e-9,
+				// Multi-electron regime below ~5 V: rate ∝ I^n with n of
+				// order several, growing as the bias drops (Shen et al.,
+				// Science 268, 1590 (1995); Foley et al., PRL 80, 1336
+				// (1998)). n = 3 and a decade per volt are from memory.
+				Order:    3,
+				DecadeV:  1,
+				MaxBiasV: 5,
+			},
+			Electronic: ElectronicYield{
+				// Derived: makes the FE default below fill at the ~10⁴
+				// nm²/s of Rudolph et al., APL (2014) with every site
+				// cleared with 0.99 (a 9.0 nm raster pitch at 1 µm/s).
+				// Shen 1995 put the electronic-regime yield at 10⁻⁶–10⁻⁵
+				// H/e (from memory): this is at the top of that range.
+				YieldPerElectron: 1.6e-5,
+				// Electronic threshold ≈ +6.5–7 V (Shen 1995).
+				ThresholdV: 6.5,
+			},
+		},
 		AP: ModeProfile{
 			// Schmucker et al., Nat. Commun. 3 (2012): +4 V, 2 nA and a
 			// 2 mC/cm line dose give one-dimer-row-wide lines, i.e. a tip
@@ -167,11 +231,20 @@ func DefaultProfile() Profile {
 			// 5 passes over its area, and full removal can need a
 			// multiple of the first dose (Owen et al., JVST B 2011).
 			Passes: 1,
-			// σ = 0.3 nm and λ_thr = 0.5 mC/cm give w(2 mC/cm) = 1.0 nm,
-			// inside the 0.8–1.5 nm (1–2 dimer rows) typical AP width,
-			// from memory (cf. Randall et al., JVST B 27, 2764 (2009));
-			// calibrate replaces them.
-			Width: WidthModel{SigmaNM: 0.3, ThresholdDoseCPerCm: 0.5e-3},
+			// An effective footprint of 0.1 nm, from memory: the
+			// narrowest Gaussian that lets a line clear its own row's H
+			// (0.177 nm from its centre) and not the next row's (0.591
+			// nm), and end within one dimer pitch (0.384 nm) at a line's
+			// end with < 1 % on the next site. With one Gaussian the
+			// lines then widen slowly with dose (0.5 nm at the P = 1/2
+			// contour), slower than the 0.8–1.5 nm over 1–10 mC/cm
+			// typical (from memory): the defaults follow the published
+			// one-row line; calibrate fits σ to your own lines.
+			SigmaNM: 0.1,
+			// Background of spurious dangling bonds along AP lines at
+			// room temperature, 1–10 per 100 nm (from memory): the
+			// middle of that range on a log scale.
+			SpuriousPer100NM: 3,
 			// Atomic precision: no site outside the region may be cleared.
 			EdgeAllowanceNM: 0,
 		},
@@ -186,30 +259,37 @@ func DefaultProfile() Profile {
 			// at 5 nA it gives 1 µm/s (0.1–1 µm/s typical, from memory).
 			LineDoseCPerCm: 5e-5,
 			Passes:         1,
-			// σ = 2.5 nm and λ_thr = λ/e² give 10 nm lines at the
+			// σ = 2.5 nm gives 12 nm lines (the P = 1/2 width) at the
 			// default dose: Rudolph 2014 report ~10 nm electrical
 			// definition in FE (their spot above 10 V is ~40 nm); 3–10 nm
 			// lines at +7–10 V are typical, from memory.
-			Width:   WidthModel{SigmaNM: 2.5, ThresholdDoseCPerCm: 5e-5 / (math.E * math.E)},
-			Overlap: 0.1, // common practice
-			// A Gaussian FE line clears out to half its width from its
-			// path, and the fill runs its paths along the region's
-			// outermost sites, so an FE region grows by up to w/2 = 5 nm:
-			// the same 5 nm the FE keep-out design rule assumes (FE lines
-			// ~10 nm, Rudolph 2014).
+			SigmaNM: 2.5,
+			// Every site between two raster lines clears with 0.99
+			// (common practice: a pad needs no atomic perfection); this
+			// sets the pitch.
+			FillCompletion: 0.99,
+			// The FE fill keeps its paths far enough inside the region
+			// that beyond 5 nm of it every site clears with less than the
+			// stray limit: the same 5 nm the FE keep-out design rule
+			// assumes (FE lines ~10 nm, Rudolph 2014).
 			EdgeAllowanceNM: 5,
 		},
 		Dwell: DwellProfile{
 			// Feedback-controlled single-H removal: tip parked, +2.5–4.5 V,
 			// dwell 10 ms–1 s (Walsh & Hersam 2009; details from memory).
+			// With the exposure model above: Y = 3.6·10⁻⁹ H/e (the
+			// vibrational range 10⁻¹⁰–10⁻⁸ H/e, Shen 1995, Foley 1998,
+			// from memory), a 99 % dwell of 0.09 s.
 			BiasV:    3.5,
 			CurrentA: 1e-9,
-			// Vibrational-regime yield 10^-10–10^-8 H/e (Shen 1995; Foley
-			// et al. 1998; from memory): 1.5e-9 H/e at 1 nA gives a
-			// 99 % dwell of 0.49 s.
-			YieldPerElectron: 1.5e-9,
-			Completion:       0.99,
+			// The AP footprint (from memory, see ap.sigma_nm): the dimer
+			// partner (0.354 nm away) clears first with 0.2 %.
+			SigmaNM:    0.1,
+			Completion: 0.99,
 		},
+		// A site outside every region may clear with at most 1 %: a
+		// design margin (common practice), not a published value.
+		StrayLimit: 0.01,
 		// Idle moves 0.1–few µm/s, from memory.
 		MoveSpeedNMPerS: 500,
 		// Small moves settle in well under a second; large offsets take
@@ -249,6 +329,8 @@ func DefaultProfile() Profile {
 			MaxSpeedNMPS: 5000,  // few µm/s tip moves, from memory
 		},
 	}
+	sessionDefaults(&p)
+	return p
 }
 
 // LowTemperatureProfile returns the 4 K preset ("lt"): the room-
@@ -262,6 +344,7 @@ func LowTemperatureProfile() Profile {
 	p.Base = PresetLowTemp
 	p.Drift.RateNMPerMin = 0.1 / 60
 	p.Drift.RateSDNMPerMin = 0.05 / 60
+	lowTemperatureSession(&p)
 	return p
 }
 
@@ -295,27 +378,30 @@ const MaxProfileBytes = 1 << 20
 // DefaultProfile), and with them every time the planner derives is
 // finite.
 const (
-	MaxBiasV          = 100   // |bias|, V
-	MinCurrentA       = 1e-15 // 1 fA
-	MaxCurrentA       = 1e-6  // 1 µA
-	MinLineDoseCPerCm = 1e-9  // 1 nC/cm
-	MaxLineDoseCPerCm = 0.1   // 100 mC/cm
-	MinSpeedNMPerS    = 1e-3  // 1 pm/s, writing or moving
-	MaxSpeedNMPerS    = 1e7   // 1 cm/s
-	MinSigmaNM        = 0.01  // footprint σ
-	MaxSigmaNM        = 100
-	MaxOverlap        = 0.95  // FE raster: a pitch of at least 5 % of the line width
-	MaxAllowanceNM    = 100   // edge allowance, hybrid band
-	MinYield          = 1e-15 // H atoms per electron
-	MaxSettleS        = 3600  // settle after a move
-	MaxStepS          = 86400 // a mode switch, a registration, a verification image
-	MaxDwellS         = 3600  // the planned (capped) dwell on one site
-	MaxDriftNMPerMin  = 100   // drift rate and its SD
-	MinToleranceNM    = 1e-3  // placement tolerance, ±nm
-	MaxToleranceNM    = 1000
-	MaxScanFieldNM    = 1e5 // 100 µm
-	maxPasses         = 1000
-	minThresholdDose  = 1e-12 // C/cm
+	MaxBiasV            = 100   // |bias|, V
+	MinCurrentA         = 1e-15 // 1 fA
+	MaxCurrentA         = 1e-6  // 1 µA
+	MinLineDoseCPerCm   = 1e-9  // 1 nC/cm
+	MaxLineDoseCPerCm   = 0.1   // 100 mC/cm
+	MinSpeedNMPerS      = 1e-3  // 1 pm/s, writing or moving
+	MaxSpeedNMPerS      = 1e7   // 1 cm/s
+	MinSigmaNM          = 0.01  // footprint σ
+	MaxSigmaNM          = 100
+	MinFillCompletion   = 0.5 // FE raster: the sites between lines clear at least half the time
+	MaxFillCompletion   = 0.99999999
+	MaxSpuriousPer100NM = 1000
+	MaxOrder            = 50    // the vibrational regime's n
+	MinDecadeV          = 0.05  // bias step per tenfold yield
+	MaxAllowanceNM      = 100   // edge allowance, hybrid band
+	MinYield            = 1e-15 // H atoms per electron
+	MaxSettleS          = 3600  // settle after a move
+	MaxStepS            = 86400 // a mode switch, a registration, a verification image
+	MaxDwellS           = 3600  // the planned (capped) dwell on one site
+	MaxDriftNMPerMin    = 100   // drift rate and its SD
+	MinToleranceNM      = 1e-3  // placement tolerance, ±nm
+	MaxToleranceNM      = 1000
+	MaxScanFieldNM      = 1e5 // 100 µm
+	maxPasses           = 1000
 )
 
 // Validate checks every field against its plausible range and the
@@ -335,23 +421,23 @@ func (p Profile) Validate() error {
 			v.add("base", p.Base, fmt.Sprintf("must name a preset (%s) or be empty", strings.Join(Presets(), ", ")))
 		}
 	}
+	p.v1Problems(&v)
+	model := v.exposure(p.Exposure)
 	v.mode("ap", p.AP, false)
 	v.mode("fe", p.FE, true)
 
 	v.bias("dwell.bias_v", p.Dwell.BiasV)
-	cur := v.current("dwell.current_a", p.Dwell.CurrentA)
-	y := v.within("dwell.yield_per_electron", p.Dwell.YieldPerElectron, MinYield, 1, "H atoms per electron")
-	c := true
+	v.current("dwell.current_a", p.Dwell.CurrentA)
+	v.within("dwell.sigma_nm", p.Dwell.SigmaNM, MinSigmaNM, MaxSigmaNM, "nm")
 	if x := p.Dwell.Completion; !(x > 0 && x < 1) {
 		v.add("dwell.completion", x, "must lie strictly between 0 and 1")
-		c = false
 	}
-	if cur && y && c {
-		if d := p.Dwell.CapS(); !(d <= MaxDwellS) {
-			v.add("dwell.yield_per_electron", p.Dwell.YieldPerElectron, fmt.Sprintf(
-				"with dwell.current_a = %s A a dwell reaches its completion after %s s per site, more than the %d s a dwell may take",
-				jsonfile.Number(p.Dwell.CurrentA), jsonfile.Approx(d), MaxDwellS))
-		}
+	if l := p.StrayLimit; !(l > 0 && l < 1) {
+		v.add("stray_limit", l, "must lie strictly between 0 and 1")
+	}
+	if model && v.Len() == 0 {
+		// Only a valid model can say whether the modes clear anything.
+		v.clears(p)
 	}
 
 	v.within("move_speed_nm_per_s", p.MoveSpeedNMPerS, MinSpeedNMPerS, MaxSpeedNMPerS, "nm/s")
@@ -374,6 +460,8 @@ func (p Profile) Validate() error {
 	if v.positiveUpTo("hybrid_band_nm", p.HybridBandNM, MaxAllowanceNM, "nm") && finite(p.FE.EdgeAllowanceNM) && p.HybridBandNM < p.FE.EdgeAllowanceNM {
 		v.add("hybrid_band_nm", p.HybridBandNM, fmt.Sprintf("must be at least fe.edge_allowance_nm (%s nm) so the FE fill stays inside the region", jsonfile.Number(p.FE.EdgeAllowanceNM)))
 	}
+
+	v.validateSession(p)
 
 	v.positiveUpTo("limits.max_bias_v", p.Limits.MaxBiasV, MaxBiasV, "V")
 	v.positiveUpTo("limits.max_current_a", p.Limits.MaxCurrentA, MaxCurrentA, "A")
@@ -443,20 +531,61 @@ func (v *validator) mode(prefix string, m ModeProfile, fe bool) {
 	if m.Passes < 1 || m.Passes > maxPasses {
 		v.add(prefix+".passes", m.Passes, fmt.Sprintf("must be 1..%d", maxPasses))
 	}
-	v.within(prefix+".width.sigma_nm", m.Width.SigmaNM, MinSigmaNM, MaxSigmaNM, "nm")
-	thr := v.within(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm, minThresholdDose, MaxLineDoseCPerCm, "C/cm")
-	if dose && thr && m.Width.ThresholdDoseCPerCm >= m.LineDoseCPerCm*float64(max(m.Passes, 1)) {
-		v.add(prefix+".width.threshold_dose_c_per_cm", m.Width.ThresholdDoseCPerCm,
-			fmt.Sprintf("must be below the delivered dose (%s C/cm): lines would clear nothing", jsonfile.Approx(m.LineDoseCPerCm*float64(max(m.Passes, 1)))))
-	}
+	v.within(prefix+".sigma_nm", m.SigmaNM, MinSigmaNM, MaxSigmaNM, "nm")
 	if fe {
-		if o := m.Overlap; !(o >= 0 && o <= MaxOverlap) {
-			v.add(prefix+".overlap", o, fmt.Sprintf("must be from 0 to %g (a raster pitch of at least %g %% of the line width)", MaxOverlap, 100*(1-MaxOverlap)))
+		if c := m.FillCompletion; !(c >= MinFillCompletion && c <= MaxFillCompletion) {
+			v.add(prefix+".fill_completion", c, fmt.Sprintf("must be from %g to %g", MinFillCompletion, MaxFillCompletion))
 		}
-	} else if m.Overlap != 0 {
-		v.add(prefix+".overlap", m.Overlap, "applies to the FE raster only; leave it 0")
+		if m.SpuriousPer100NM != 0 {
+			v.add(prefix+".spurious_per_100nm", m.SpuriousPer100NM, "applies to AP lines only; leave it 0")
+		}
+	} else {
+		if m.FillCompletion != 0 {
+			v.add(prefix+".fill_completion", m.FillCompletion, "applies to the FE raster only; leave it 0")
+		}
+		v.within(prefix+".spurious_per_100nm", m.SpuriousPer100NM, 0, MaxSpuriousPer100NM, "per 100 nm")
 	}
 	v.within(prefix+".edge_allowance_nm", m.EdgeAllowanceNM, 0, MaxAllowanceNM, "nm")
+}
+
+// exposure checks the exposure model and reports whether it is valid.
+func (v *validator) exposure(m ExposureModel) bool {
+	n := v.Len()
+	vib, el := m.Vibrational, m.Electronic
+	v.within("exposure.vibrational.yield_per_electron", vib.YieldPerElectron, MinYield, 1, "H atoms per electron")
+	v.within("exposure.electronic.yield_per_electron", el.YieldPerElectron, MinYield, 1, "H atoms per electron")
+	v.within("exposure.vibrational.bias_v", vib.BiasV, 0.1, MaxBiasV, "V")
+	v.current("exposure.vibrational.current_a", vib.CurrentA)
+	v.within("exposure.vibrational.order", vib.Order, 1, MaxOrder, "(the rate grows as I^n)")
+	v.within("exposure.vibrational.decade_v", vib.DecadeV, MinDecadeV, MaxBiasV, "V per tenfold yield")
+	maxV := v.within("exposure.vibrational.max_bias_v", vib.MaxBiasV, 0.1, MaxBiasV, "V")
+	thr := v.within("exposure.electronic.threshold_v", el.ThresholdV, 0.1, MaxBiasV, "V")
+	if maxV && thr && el.ThresholdV <= vib.MaxBiasV {
+		v.add("exposure.electronic.threshold_v", el.ThresholdV, fmt.Sprintf("must lie above exposure.vibrational.max_bias_v (%s V)", jsonfile.Number(vib.MaxBiasV)))
+	}
+	if maxV && vib.BiasV > vib.MaxBiasV {
+		v.add("exposure.vibrational.bias_v", vib.BiasV, fmt.Sprintf("must lie in the vibrational regime, at most max_bias_v (%s V)", jsonfile.Number(vib.MaxBiasV)))
+	}
+	return v.Len() == n
+}
+
+// clears records a mode whose lines would clear less than half their
+// sites, an exposure that is not a number (a yield or dose far out of
+// scale), and a dwell longer than a dwell may take.
+func (v *validator) clears(p Profile) {
+	for _, mode := range []design.Mode{design.ModeAP, design.ModeFE} {
+		m := p.modeOf(mode)
+		if l := p.Line(mode); !finite(l.Peak) || l.Peak <= math.Ln2 {
+			v.add(string(mode)+".line_dose_c_per_cm", m.LineDoseCPerCm, fmt.Sprintf(
+				"gives a centre-line exposure of %s (Y = %s H/e at %s V): lines would clear less than half their sites",
+				jsonfile.Approx(l.Peak), jsonfile.Approx(l.Yield), jsonfile.Number(m.BiasV)))
+		}
+	}
+	if d := p.DwellCapS(); !(d <= MaxDwellS) {
+		v.add("dwell.current_a", p.Dwell.CurrentA, fmt.Sprintf(
+			"a dwell at %s V and this current reaches its completion after %s s per site (the exposure model's yield is %s H/e), more than the %d s a dwell may take",
+			jsonfile.Number(p.Dwell.BiasV), jsonfile.Approx(d), jsonfile.Approx(p.DwellYield()), MaxDwellS))
+	}
 }
 
 // ParseProfile reads a profile from JSON. Fields the document leaves out
@@ -518,6 +647,15 @@ func ParseProfile(data []byte, name string) (Profile, error) {
 	}
 	if p.Name == "" && name != "" {
 		p.Name = strings.TrimSuffix(filepath.Base(name), filepath.Ext(name))
+	}
+	if p.Version == 1 {
+		notes, ps := p.upgradeV1()
+		if ps.Len() > 0 {
+			return Profile{}, fail(ps.List())
+		}
+		if len(notes) > 0 {
+			p.Notes = strings.TrimSpace(p.Notes + "\nread from a version 1 file: " + strings.Join(notes, "; "))
+		}
 	}
 	if err := p.Validate(); err != nil {
 		e := err.(*jsonfile.Error)

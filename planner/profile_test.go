@@ -1,13 +1,16 @@
 package planner
 
 import (
-	"dimerpath/internal/jsonfile"
 	"errors"
 	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
+
+	"dimerpath/internal/jsonfile"
+	"dimerpath/lattice/design"
 )
 
 func TestDefaultProfileIsValid(t *testing.T) {
@@ -34,14 +37,14 @@ func TestDefaultProfileValues(t *testing.T) {
 	if got := p.AP.Speed(); math.Abs(got-10) > 1e-9 {
 		t.Errorf("AP speed = %v nm/s, want 10 (Schmucker 2012)", got)
 	}
-	// Default FE line width ~10 nm (Rudolph et al. 2014).
-	if got := p.FE.LineWidth(); math.Abs(got-10) > 1e-9 {
-		t.Errorf("FE line width = %v nm, want 10", got)
+	// Default FE line width ~10 nm (Rudolph et al. 2014): 3–15 nm.
+	if got := p.Line(design.ModeFE).Width(); got < 3 || got > 15 {
+		t.Errorf("FE line width = %v nm, want about 10", got)
 	}
 	// The default dwell reaches 99 % within the 10 ms–1 s of a
 	// feedback-controlled dwell (from memory; the technique: Walsh &
 	// Hersam, Annu. Rev. Phys. Chem. 60, 193 (2009)).
-	if c := p.Dwell.CapS(); c < 0.01 || c > 1 {
+	if c := p.DwellCapS(); c < 0.01 || c > 1 {
 		t.Errorf("dwell 99%% time = %v s, want within 0.01..1 s", c)
 	}
 	// 4 K drift ≤ 0.1 nm/h (from memory): the LT preset must not exceed it.
@@ -57,7 +60,7 @@ func TestValidateReportsEveryBadField(t *testing.T) {
 	p.FE.BiasV = math.NaN()
 	p.MoveSpeedNMPerS = -3
 	p.Dwell.Completion = 1
-	p.FE.Overlap = 1.2
+	p.FE.FillCompletion = 1.2
 	p.Order = "sideways"
 	p.Limits.MaxBiasV = math.Inf(1)
 	err := p.Validate()
@@ -65,7 +68,7 @@ func TestValidateReportsEveryBadField(t *testing.T) {
 	if !errors.As(err, &pe) || !errors.Is(err, ErrInvalidProfile) {
 		t.Fatalf("Validate() = %v, want *jsonfile.Error wrapping ErrInvalidProfile", err)
 	}
-	want := []string{"ap.current_a", "fe.bias_v", "move_speed_nm_per_s", "dwell.completion", "fe.overlap", "order", "limits.max_bias_v"}
+	want := []string{"ap.current_a", "fe.bias_v", "move_speed_nm_per_s", "dwell.completion", "fe.fill_completion", "order", "limits.max_bias_v"}
 	if len(pe.Problems) != len(want) {
 		t.Errorf("Validate() found %d problems, want %d:\n%v", len(pe.Problems), len(want), err)
 	}
@@ -80,12 +83,38 @@ func TestValidateReportsEveryBadField(t *testing.T) {
 	}
 }
 
-func TestValidateThresholdAboveDose(t *testing.T) {
+func TestValidateLinesThatClearNothing(t *testing.T) {
 	p := DefaultProfile()
-	p.AP.Width.ThresholdDoseCPerCm = 3e-3 // above the 2 mC/cm line dose
+	p.AP.LineDoseCPerCm = 1e-6 // 2000 times below Schmucker's 2 mC/cm
 	err := p.Validate()
-	if err == nil || !strings.Contains(err.Error(), "ap.width.threshold_dose_c_per_cm") || !strings.Contains(err.Error(), "clear nothing") {
-		t.Errorf("Validate() = %v, want a threshold-above-dose problem", err)
+	if err == nil || !strings.Contains(err.Error(), "ap.line_dose_c_per_cm") || !strings.Contains(err.Error(), "clear less than half") {
+		t.Errorf("Validate() = %v, want a lines-clear-nothing problem", err)
+	}
+	p = DefaultProfile()
+	p.Exposure.Electronic.ThresholdV = 4
+	if err := p.Validate(); err == nil || !strings.Contains(err.Error(), "exposure.electronic.threshold_v = 4") {
+		t.Errorf("Validate() = %v, want the electronic threshold below the vibrational regime refused", err)
+	}
+}
+
+func TestReadVersion1Profile(t *testing.T) {
+	// A version 1 file with the old threshold width model: the width it
+	// described is the model's P = ½ band, so the converted profile gives
+	// the same line width at the same dose.
+	const v1 = `{"format":"dimerpath-profile","version":1,"name":"old",
+		"ap":{"width":{"sigma_nm":0.3,"threshold_dose_c_per_cm":0.0005}},
+		"fe":{"overlap":0.2},"dwell":{"yield_per_electron":1e-9}}`
+	p, err := ParseProfile([]byte(v1), "old.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	// By hand: w = 2σ·√(2 ln(λ/λ_thr)) = 0.6·√(2 ln 4) at 2 mC/cm.
+	want := 0.6 * math.Sqrt(2*math.Log(4))
+	if got := p.Line(design.ModeAP).Width(); math.Abs(got-want) > 1e-9 {
+		t.Errorf("converted AP width %v nm, want %v (the version 1 model)", got, want)
+	}
+	if p.AP.SigmaNM != 0.3 || !strings.Contains(p.Notes, "fe.overlap") || !strings.Contains(p.Notes, "dwell.yield_per_electron") {
+		t.Errorf("converted σ %v, notes %q", p.AP.SigmaNM, p.Notes)
 	}
 }
 
@@ -103,7 +132,7 @@ func TestProfileSaveLoadRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got != p {
+	if !reflect.DeepEqual(got, p) {
 		t.Errorf("LoadProfile(SaveProfile(p)) = %+v\nwant %+v", got, p)
 	}
 	// No temporary file is left behind.
@@ -137,7 +166,7 @@ func TestParseProfile(t *testing.T) {
 			func(p Profile) bool { return p.Drift.RateNMPerMin < 0.01 && p.Name == "cal" }},
 		{"wrong format", `{"format":"other","version":1}`, `cal.json:1:11: format = "other": not a dimerpath instrument profile`, nil},
 		{"missing format", `{"version":1}`, "format: missing: not a dimerpath instrument profile", nil},
-		{"future version", `{"format":"dimerpath-profile","version":7}`, "version = 7: this dimerpath reads profile versions 1 to 1", nil},
+		{"future version", `{"format":"dimerpath-profile","version":7}`, "version = 7: this dimerpath reads profile versions 1 to 2", nil},
 		{"unknown field", `{"format":"dimerpath-profile","version":1,"ap":{"bias":4}}`, "ap.bias: unknown field", nil},
 		{"wrong type", `{"format":"dimerpath-profile","version":1,"ap":{"current_a":"2 nA"}}`, "ap.current_a", nil},
 		{"truncated", `{"format":"dimerpath-profile","version":1,"ap":{`, "", nil},
@@ -175,6 +204,7 @@ func TestParseProfile(t *testing.T) {
 func FuzzParseProfile(f *testing.F) {
 	f.Add([]byte(`{"format":"dimerpath-profile","version":1}`))
 	f.Add([]byte(`{"format":"dimerpath-profile","version":1,"ap":{"passes":2,"width":{"sigma_nm":0.4}}}`))
+	f.Add([]byte(`{"format":"dimerpath-profile","version":2,"exposure":{"vibrational":{"order":2}},"ap":{"sigma_nm":0.2}}`))
 	f.Add([]byte(`{"format":"dimerpath-profile","version":1,"base":"lt","drift":{"rate_nm_per_min":-1}}`))
 	f.Add([]byte(`[]`))
 	f.Fuzz(func(t *testing.T, data []byte) {
@@ -198,7 +228,7 @@ func TestCheckLimits(t *testing.T) {
 		{"FE bias", func(p *Profile) { p.FE.BiasV = 12 }, nil, "fe.bias_v", "limits.max_bias_v"},
 		{"negative AP bias counts by magnitude", func(p *Profile) { p.AP.BiasV = -11 }, nil, "ap.bias_v", "limits.max_bias_v"},
 		{"AP current", func(p *Profile) { p.AP.CurrentA = 20e-9 }, nil, "ap.current_a", "limits.max_current_a"},
-		{"FE speed", func(p *Profile) { p.FE.LineDoseCPerCm = 5e-6; p.FE.Width.ThresholdDoseCPerCm = 1e-6 }, nil, "fe writing speed", "limits.max_speed_nm_per_s"},
+		{"FE speed", func(p *Profile) { p.FE.LineDoseCPerCm = 5e-6; p.Exposure.Electronic.YieldPerElectron = 1e-3 }, nil, "fe writing speed", "limits.max_speed_nm_per_s"},
 		{"move speed", func(p *Profile) { p.MoveSpeedNMPerS = 9000 }, nil, "move_speed_nm_per_s", "limits.max_speed_nm_per_s"},
 		{"dwell current", func(p *Profile) { p.Dwell.CurrentA = 11e-9 }, nil, "dwell.current_a", "limits.max_current_a"},
 		{"unused FE is not checked", func(p *Profile) { p.FE.BiasV = 12 }, &ModeUse{AP: true}, "", ""},
@@ -244,7 +274,7 @@ func TestValidatePlausibleRanges(t *testing.T) {
 		{"settle of 1e306 s", func(p *Profile) { p.SettleS = 1e306 }, "settle_s = 1e+306: must be from 0 to 3600 s"},
 		{"move at 5e-324 nm/s", func(p *Profile) { p.MoveSpeedNMPerS = 5e-324 }, "move_speed_nm_per_s = 5e-324: must be from 0.001 to 1e+07 nm/s"},
 		{"registration of 1e308 s", func(p *Profile) { p.Drift.RegistrationS = 1e308 }, "drift.registration_s = 1e+308: must be from 0 to 86400 s"},
-		{"yield of 5e-324", func(p *Profile) { p.Dwell.YieldPerElectron = 5e-324 }, "dwell.yield_per_electron = 5e-324: must be from 1e-15 to 1 H atoms per electron"},
+		{"yield of 5e-324", func(p *Profile) { p.Exposure.Vibrational.YieldPerElectron = 5e-324 }, "exposure.vibrational.yield_per_electron = 5e-324: must be from 1e-15 to 1 H atoms per electron"},
 		{"bias of 1e307 V", func(p *Profile) { p.AP.BiasV = 1e307; p.Limits.MaxBiasV = 1e308 }, "ap.bias_v = 1e+307: must be non-zero and within ±100 V"},
 		{"bias limit of 1e308 V", func(p *Profile) { p.Limits.MaxBiasV = 1e308 }, "limits.max_bias_v = 1e+308: must be more than 0 and at most 100 V"},
 		{"current of 1 mA", func(p *Profile) { p.FE.CurrentA = 1e-3 }, "fe.current_a = 0.001: must be from 1 fA to 1 µA (1e-15 to 1e-06 A)"},
@@ -253,14 +283,13 @@ func TestValidatePlausibleRanges(t *testing.T) {
 		{"writing slower than 1 pm/s", func(p *Profile) {
 			p.AP.CurrentA = 1e-15
 			p.AP.LineDoseCPerCm = 0.1
-			p.AP.Width.ThresholdDoseCPerCm = 1e-3
 		},
 			"ap.line_dose_c_per_cm = 0.1: with ap.current_a = 1e-15 A the tip would write at 1e-07 nm/s; a writing speed must be from 0.001"},
-		{"FE overlap 0.999999999", func(p *Profile) { p.FE.Overlap = 0.999999999 }, "fe.overlap = 0.999999999: must be from 0 to 0.95"},
-		{"dwell of years", func(p *Profile) { p.Dwell.YieldPerElectron = 1e-15; p.Dwell.CurrentA = 1e-12 }, "dwell.yield_per_electron = 1e-15: with dwell.current_a = 1e-12 A a dwell reaches its completion after"},
+		{"FE fill completion 1", func(p *Profile) { p.FE.FillCompletion = 1 }, "fe.fill_completion = 1: must be from 0.5 to 0.99999999"},
+		{"dwell of years", func(p *Profile) { p.Dwell.CurrentA = 1e-12 }, "dwell.current_a = 1e-12: a dwell at 3.5 V and this current reaches its completion after"},
 		{"drift of 1e6 nm/min", func(p *Profile) { p.Drift.RateNMPerMin = 1e6 }, "drift.rate_nm_per_min = 1e+06: must be from 0 to 100 nm/min"},
 		{"tolerance of 1e-300 nm", func(p *Profile) { p.ToleranceAPNM = 1e-300 }, "tolerance_ap_nm = 1e-300: must be from 0.001 to 1000 nm"},
-		{"sigma of 1e9 nm", func(p *Profile) { p.FE.Width.SigmaNM = 1e9 }, "fe.width.sigma_nm = 1e+09: must be from 0.01 to 100 nm"},
+		{"sigma of 1e9 nm", func(p *Profile) { p.FE.SigmaNM = 1e9 }, "fe.sigma_nm = 1e+09: must be from 0.01 to 100 nm"},
 		{"scan field of 1 m", func(p *Profile) { p.Limits.ScanFieldNM = 1e9 }, "limits.scan_field_nm = 1e+09: must be more than 0 and at most 100000 nm"},
 	}
 	for _, c := range cases {

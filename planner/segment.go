@@ -14,35 +14,65 @@ type job struct {
 	stroke     int      // index into the plan's strokes
 	start, end r2.Point // tip position where the write starts and ends
 	writeS     float64  // write or dwell duration
-	budgetS    float64  // drift budget at the nominal rate; +Inf without drift
+	tolNM      float64  // placement tolerance, ±nm
 	mode       design.Mode
 	dwell      bool
+	group      int  // the route group within its step (see builder.groupOf)
+	joined     bool // inside a coupled block: no registration before it
+	localOnly  bool // coupled to work of an earlier step: its segment registers locally
+	// nearAP: an FE job that starts beside atomic-precision features
+	// written before it, on which a local registration can be made
+	nearAP bool
 }
+
+// RegistrationKind is how a segment finds its position.
+type RegistrationKind string
+
+const (
+	// RegCoarse registers on a fiducial mark: a move there and back and
+	// an image of the mark; its error is registration.coarse_error_nm
+	// plus the creep of the move that follows.
+	RegCoarse RegistrationKind = "coarse"
+	// RegLocal registers on the lattice or on features already written
+	// right beside the atomic-precision work: a small atomic-resolution
+	// image, no move; its error is a fraction of a dimer pitch.
+	RegLocal RegistrationKind = "local"
+)
 
 // costs turns tip motion and instrument steps into time, the same way
 // for the segmenter, the timeline and the by-hand baseline.
 type costs struct {
-	speed, settle, modeSwitch, register, verify float64
-	fiducials                                   []Fiducial
+	motion
+	modeSwitch, register, verify, local, condition float64
+	fiducials                                      []Fiducial
+	coarseErrNM                                    float64
 }
 
 func newCosts(p *Profile, fids []Fiducial) costs {
-	return costs{
-		speed: p.MoveSpeedNMPerS, settle: p.SettleS, modeSwitch: p.ModeSwitchS,
-		register: p.Drift.RegistrationS, verify: p.Drift.VerificationS,
-		fiducials: fids,
+	c := costs{
+		motion:     newMotion(p, p.Registration.Creep.Fraction),
+		modeSwitch: p.ModeSwitchS, register: p.Drift.RegistrationS, verify: p.Drift.VerificationS,
+		local:       p.Registration.Local.TimeS(),
+		fiducials:   fids,
+		coarseErrNM: p.Registration.CoarseErrorNM,
 	}
+	if p.Session.Conditioning.Enabled {
+		c.condition = p.Session.Conditioning.TimeS
+	}
+	return c
 }
 
-// move is the time of one idle move: distance/speed + settle.
-func (c *costs) move(a, b r2.Point) float64 { return a.Sub(b).Norm()/c.speed + c.settle }
-
-// switchCost is the mode switch paid between two consecutive writes.
+// switchCost is what is paid between two consecutive writes of modes a
+// and b: the mode switch, and the tip conditioning after field-emission
+// work.
 func (c *costs) switchCost(a, b design.Mode) float64 {
-	if a != b {
-		return c.modeSwitch
+	if a == b {
+		return 0
 	}
-	return 0
+	if a == design.ModeFE {
+		return c.modeSwitch + c.condition
+	}
+	return c.modeSwitch
 }
 
 // nearest returns the index of the fiducial nearest p.
@@ -56,193 +86,421 @@ func (c *costs) nearest(p r2.Point) int {
 	return best
 }
 
-// segmenter holds, for one writing order, everything the choice of
-// segment boundaries depends on. With n jobs and the first registration
-// at fiducial f0:
+// segModel holds the values the segmenter plans with: the drift rate and
+// creep fraction at the level the profile asks (see planValues), the
+// registration errors times z, and the drift model's switches.
+type segModel struct {
+	r0       float64 // the profile's mean drift rate, nm/min
+	rateMul  float64 // planning rate / r0
+	creep    float64 // planning creep fraction
+	errLocal float64 // z·σ of a local registration, nm
+	errCoase float64 // z·σ of a coarse registration, nm
+	// compensation: share of the base rate left after the first segment
+	residual float64
+	// excess drift after the anneal before the step: its level at
+	// clock 0 (nm/min) and time constant
+	annealLevel, annealTau float64
+	moveTau                float64
+	// compensatedStart: the first segment already has a measured rate
+	// (a segment re-ordered on its own, see reoptimise)
+	compensatedStart bool
+}
+
+// segmenter holds, for one step's writing order, everything the choice of
+// segment boundaries and registration kinds depends on. With n jobs and
+// the tip at fiducial f0 before the first:
 //
-//	T[j]  time from the start of job 0 to the end of job j, moves and
-//	      switches between them included, without registrations;
-//	m[j]  the direct move from job j to job j+1;
-//	sw[j] the mode switch before job j;
-//	fid[s], a[s] the fiducial of a segment starting at job s (the one
-//	      nearest the job's start; f0 for s = 0) and the move from it;
-//	B[s]  the extra time of a boundary before job s: verification, the
-//	      detour through fid[s] and the registration, less the direct
-//	      move it replaces.
+//	T[j]      writing clock at the end of job j: writes, moves (with their
+//	          creep waits) and switches, no registrations;
+//	ts[j]     writing clock at the start of job j (T[j] − writeS);
+//	m[j], sw[j] the move into job j from job j−1 and the switch before it;
+//	fid[s], a[s] the fiducial of a coarse registration before job s (the
+//	          one nearest it; f0 for s = 0) and the approach from it;
+//	B[k][s]   the extra time of a registration of kind k before job s:
+//	          local: the image; coarse: the detour through fid[s] and
+//	          the image, less the direct move it replaces.
 //
-// A segment starting at s may hold job j when the drift clock, started
-// at the end of its registration, reads at most budget[j] when j ends:
-// a[s] + T[j] - T[s-1] - m[s-1] - sw[s] <= budget[j] (the switch at a
-// boundary is made at the fiducial, before registering).
+// A segment of kind k starting at s may hold job j when, at the planning
+// values, the registration error, the creep and the drift from the end
+// of the registration to the end of j stay within j's tolerance (divided
+// by the margin):
+//
+//	err[k] + creep(s..j) + drift(s..j) ≤ tol[j]/margin,
+//
+// with creep and drift read off fields of the writing clock (creepF,
+// drift), so the condition separates into q[j] ≤ cst[k][s] and
+// feasibility is a prefix in j: the exact dynamic programme over the last
+// boundary of the former segmenter stays.
 type segmenter struct {
 	jobs  []job
 	c     costs
-	T, m  []float64
-	sw    []float64
-	fid   []int
-	a, B  []float64
-	cst   []float64 // c[s]: the segment may hold j while T[j]-budget[j] <= cst[s]
-	base  float64   // first registration + approach + T[n-1] + final verification
-	first int       // fiducial of the first registration
+	model segModel
+	n     int
+
+	T, ts, m, sw []float64
+	moveCreep    []float64 // creep per unit fraction left by the move into j
+	moveExcess   []float64 // excess drift rate it starts, nm/min at r0
+	fid          []int
+	a            []float64 // approach from fid[s] to job s
+	aCreep       []float64 // its creep per unit fraction
+	aExcess      []float64 // its excess drift rate, nm/min at r0
+	detour       []float64 // move from job s−1 to fid[s]
+	B            [2][]float64
+	first        int // f0
+
+	creepF           decay      // creep per unit fraction, nm
+	driftRaw, driftC driftField // drift at r0: uncompensated, compensated
 }
 
-func newSegmenter(jobs []job, c costs, first int) *segmenter {
+const (
+	kLocal  = 0
+	kCoarse = 1
+)
+
+var regKinds = [2]RegistrationKind{RegLocal, RegCoarse}
+
+func newSegmenter(jobs []job, c costs, model segModel, first int) *segmenter {
 	n := len(jobs)
-	sg := &segmenter{jobs: jobs, c: c, first: first,
-		T: make([]float64, n), m: make([]float64, n), sw: make([]float64, n),
-		fid: make([]int, n), a: make([]float64, n), B: make([]float64, n), cst: make([]float64, n)}
+	sg := &segmenter{jobs: jobs, c: c, model: model, n: n, first: first,
+		T: make([]float64, n), ts: make([]float64, n), m: make([]float64, n), sw: make([]float64, n),
+		moveCreep: make([]float64, n), moveExcess: make([]float64, n), fid: make([]int, n), a: make([]float64, n), aCreep: make([]float64, n),
+		aExcess: make([]float64, n), detour: make([]float64, n)}
+	sg.B[kLocal], sg.B[kCoarse] = make([]float64, n), make([]float64, n)
+	sg.creepF.tau = c.creepTau
+	base := model.r0 / 60
+	sg.driftRaw = driftField{basePerS: base, moves: decay{tau: model.moveTau}, anneal: decay{tau: model.annealTau}}
+	sg.driftC = driftField{basePerS: base * model.residual, moves: decay{tau: model.moveTau}, anneal: decay{tau: model.annealTau}}
+	if model.annealLevel > 0 {
+		sg.driftRaw.anneal.add(0, model.annealLevel/60)
+		// The excess after an anneal changes slowly (tens of minutes):
+		// a rate measured between registrations follows it, so
+		// compensation leaves the same share of it as of the base.
+		sg.driftC.anneal.add(0, model.annealLevel*model.residual/60)
+	}
 	if n == 0 {
 		return sg
 	}
 	t := 0.0
 	for j := range jobs {
 		if j > 0 {
-			sg.m[j-1] = c.move(jobs[j-1].end, jobs[j].start)
+			mv := c.move(jobs[j-1].end, jobs[j].start, jobs[j].tolNM)
+			sg.m[j] = mv.timeS
+			sg.moveCreep[j] = mv.creepUnit
+			sg.moveExcess[j] = mv.excess
 			sg.sw[j] = c.switchCost(jobs[j-1].mode, jobs[j].mode)
-			t += sg.m[j-1] + sg.sw[j]
+			t += mv.timeS
+			// The creep and the excess start when the move has settled.
+			sg.creepF.add(t, mv.creepUnit/c.creepTau)
+			sg.driftRaw.moves.add(t, mv.excess/60)
+			sg.driftC.moves.add(t, mv.excess/60)
+			t += sg.sw[j]
 		}
+		sg.ts[j] = t
 		t += jobs[j].writeS
 		sg.T[j] = t
 	}
+	f0 := c.fiducials[first].At
 	for s := range jobs {
 		f := first
 		if s > 0 {
 			f = c.nearest(jobs[s].start)
 		}
 		sg.fid[s] = f
-		sg.a[s] = c.move(c.fiducials[f].At, jobs[s].start)
+		at := c.fiducials[f].At
+		ap := c.move(at, jobs[s].start, jobs[s].tolNM)
+		sg.a[s], sg.aCreep[s], sg.aExcess[s] = ap.timeS, ap.creepUnit, ap.excess
 		if s == 0 {
-			sg.cst[0] = -sg.a[0]
+			sg.B[kCoarse][0] = c.register + ap.timeS
+			sg.B[kLocal][0] = c.move(f0, jobs[0].start, jobs[0].tolNM).timeS + c.local
 			continue
 		}
-		sg.cst[s] = sg.T[s-1] + sg.m[s-1] + sg.sw[s] - sg.a[s]
-		sg.B[s] = c.verify + c.move(jobs[s-1].end, c.fiducials[f].At) + c.register + sg.a[s] - sg.m[s-1]
+		// The image of the fiducial waits for the creep of the move there
+		// to fall to share·(coarse error).
+		sg.detour[s] = c.move(jobs[s-1].end, at, c.coarseErrNM).timeS
+		sg.B[kCoarse][s] = c.verify + sg.detour[s] + c.register + ap.timeS - sg.m[s]
+		sg.B[kLocal][s] = c.verify + c.local
 	}
-	sg.base = c.register + sg.a[0] + sg.T[n-1] + c.verify
 	return sg
 }
 
-// solve returns the segment starts (job indices, starts[0] = 0) that
-// minimise the total time with every budget multiplied by scale (the
-// nominal drift rate over the rate assumed), the total, and the jobs
-// that do not fit their budget even right after a registration (they get
-// a segment of their own). It is exact for the given order: a dynamic
-// programme over the last boundary, D[e] = min over feasible s of
-// D[s-1] + B[s], where the feasible s for e are those whose first
-// budget-breaking job lies beyond e (found by descending a max tree), kept
-// in a heap keyed by D[s-1]+B[s] and dropped once expired.
-// O(n log n) time, O(n) memory.
-func (sg *segmenter) solve(scale float64) (starts []int, total float64, forced []int) {
-	n := len(sg.jobs)
-	if n == 0 {
-		return nil, 0, nil
+// clockStart returns the writing clock at which a registration of kind k
+// before job s leaves the tip: at the job's start for a local image (an
+// FE job switches to its conditions after the image, at AP-imaging
+// conditions), the approach earlier for a coarse one.
+func (sg *segmenter) clockStart(s, k int) float64 {
+	switch {
+	case k == kCoarse:
+		return sg.ts[s] - sg.a[s]
+	case sg.jobs[s].mode == design.ModeFE:
+		return sg.ts[s] - sg.sw[s]
 	}
-	q := make([]float64, n)
-	for j, jb := range sg.jobs {
-		b := jb.budgetS * scale
-		if math.IsInf(jb.budgetS, 1) || math.IsNaN(b) {
-			q[j] = math.Inf(-1)
-		} else {
-			q[j] = sg.T[j] - b
+	return sg.ts[s]
+}
+
+// field returns the drift field a segment starting at s uses: the first
+// segment of a step has no measured rate to compensate with.
+func (sg *segmenter) field(s int) *driftField {
+	if sg.model.residual == 1 || (s == 0 && !sg.model.compensatedStart) {
+		return &sg.driftRaw
+	}
+	return &sg.driftC
+}
+
+// regError returns z·σ of registration kind k.
+func (sg *segmenter) regError(k int) float64 {
+	if k == kCoarse {
+		return sg.model.errCoase
+	}
+	return sg.model.errLocal
+}
+
+// startTerms returns, for a segment of kind k starting at s, the creep
+// per unit fraction and the drift at r0 that count against every stroke
+// of the segment beyond what the fields hold from its clock start on:
+// for a coarse registration, what its approach from the fiducial leaves
+// beyond what the direct move into s (which the approach replaces, and
+// whose creep and excess the fields hold) leaves, all of it at most;
+// less, for either kind, what the creep and excess of earlier moves lose
+// while the registration's own time passes, which the writing clock does
+// not hold (counted up to the end of job s only, a lower bound).
+func (sg *segmenter) startTerms(s, k int) (creepUnit, drift float64) {
+	t0 := sg.clockStart(s, k)
+	delay := sg.B[k][s]
+	if s > 0 {
+		delay -= sg.c.verify
+	}
+	f := sg.field(s)
+	creepUnit = -sg.creepF.saved(t0, sg.T[s], delay)
+	drift = -f.moves.saved(t0, sg.T[s], delay)
+	if k == kCoarse {
+		direct, excess := 0.0, 0.0
+		if s > 0 {
+			direct, excess = sg.moveCreep[s], sg.moveExcess[s]
+		}
+		creepUnit += math.Max(sg.aCreep[s]-direct, 0)
+		drift += math.Max(sg.aExcess[s]-excess, 0) / 60 * sg.model.moveTau
+	}
+	return creepUnit, drift
+}
+
+// load returns the creep per unit fraction and the drift at r0 from the
+// registration of a segment (s, k) to the end of job j (j ≥ s).
+func (sg *segmenter) load(s, k, j int) (creepUnit, drift float64) {
+	t0 := sg.clockStart(s, k)
+	f := sg.field(s)
+	c0, d0 := sg.startTerms(s, k)
+	return math.Max(c0+sg.creepF.integral(sg.T[j])-sg.creepF.integral(t0), 0), math.Max(d0+f.at(sg.T[j])-f.at(t0), 0)
+}
+
+// planLoad returns the displacement (nm) at the planning values from the
+// registration of (s, k) to the end of j, error included.
+func (sg *segmenter) planLoad(s, k, j int) float64 {
+	cu, d := sg.load(s, k, j)
+	return sg.regError(k) + sg.model.creep*cu + sg.model.rateMul*d
+}
+
+// allowed reports whether a registration of kind k may stand before job
+// s: a local image needs the lattice beside atomic-precision work, or
+// atomic-precision features already written beside the field-emission
+// work that follows (a lead's end for its fan-out): elsewhere the tip's
+// position after a long move is known only to what a fiducial finds; a
+// job coupled to an earlier step's work needs a local one; no
+// registration breaks a coupled block.
+func (sg *segmenter) allowed(s, k int) bool {
+	jb := sg.jobs[s]
+	if s > 0 && jb.joined {
+		return false
+	}
+	if k == kLocal {
+		return jb.mode != design.ModeFE || jb.nearAP
+	}
+	return !jb.localOnly
+}
+
+// solve returns the segment starts (job indices, starts[0] = 0) and the
+// kind of each registration that minimise the step's time with every
+// tolerance divided by margin, the time (from the tip at f0 to the end
+// of the last job and its verification), and the jobs that could not be
+// held even right after a registration (they start a segment of their
+// own, or close a coupled block that could not be). It is exact for the
+// given order: D[e] = min over feasible (s, k) of D[s−1] + B[k][s], the
+// feasible segments of each (s, k) found by descending a max tree of
+// q[j] = planning load at j's end − tol[j]/margin against the load at
+// the segment's start, candidates kept in a heap keyed by D[s−1]+B[k][s]
+// and dropped once expired. O(n log n) time, O(n) memory.
+func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKind, total float64, forced []int) {
+	n := sg.n
+	if n == 0 {
+		return nil, nil, 0, nil
+	}
+	md := sg.model
+	// q over the two drift fields; the tree of the field a start uses.
+	value := func(f *driftField, t float64) float64 {
+		return md.creep*sg.creepF.integral(t) + md.rateMul*f.at(t)
+	}
+	var trees [2]*maxTree
+	for v, f := range []*driftField{&sg.driftRaw, &sg.driftC} {
+		q := make([]float64, n)
+		for j, jb := range sg.jobs {
+			q[j] = value(f, sg.T[j]) - jb.tolNM/margin
+		}
+		trees[v] = newMaxTree(q)
+	}
+	// nextLocal[s]: the first job at or after s that needs a local
+	// registration (n when none).
+	nextLocal := make([]int, n+1)
+	nextLocal[n] = n
+	for j := n - 1; j >= 0; j-- {
+		nextLocal[j] = nextLocal[j+1]
+		if sg.jobs[j].localOnly {
+			nextLocal[j] = j
 		}
 	}
-	tree := newMaxTree(q)
 	D := make([]float64, n)
-	from := make([]int, n)
+	from := make([]cand, n)
 	var h candHeap
+	var latest []cand // the candidates of the latest allowed start
 	for e := 0; e < n; e++ {
 		prev := 0.0
 		if e > 0 {
 			prev = D[e-1]
 		}
-		emax := tree.firstAbove(e, sg.cst[e]) - 1
-		if emax < e {
-			emax = e // over budget even alone: its own segment
-			forced = append(forced, e)
+		var here []cand
+		for k := 0; k < 2; k++ {
+			if !sg.allowed(e, k) {
+				continue
+			}
+			f := sg.field(e)
+			tree := trees[0]
+			if f == &sg.driftC {
+				tree = trees[1]
+			}
+			t0 := sg.clockStart(e, k)
+			c0, d0 := sg.startTerms(e, k)
+			cst := value(f, t0) - sg.regError(k) - md.creep*c0 - md.rateMul*d0
+			emax := tree.firstAbove(e, cst) - 1
+			if k == kCoarse {
+				emax = min(emax, nextLocal[e]-1)
+			}
+			here = append(here, cand{key: prev + sg.B[k][e], s: e, kind: k, emax: emax})
 		}
-		h.push(cand{key: prev + sg.B[e], s: e, emax: emax})
-		for h[0].emax < e {
+		if len(here) == 0 && (e == 0 || !sg.jobs[e].joined) {
+			// No registration meets every wish here (a job coupled to an
+			// earlier step that a local image cannot reach): a coarse one,
+			// over budget.
+			k := kCoarse
+			here = append(here, cand{key: prev + sg.B[k][e], s: e, kind: k, emax: e - 1})
+		}
+		if len(here) > 0 {
+			ok := false
+			for _, c := range here {
+				if c.emax >= e {
+					h.push(c)
+					ok = true
+				}
+			}
+			if !ok {
+				// Over budget even alone: its own segment, with the
+				// cheaper registration allowed.
+				best := here[0]
+				for _, c := range here[1:] {
+					if c.key < best.key {
+						best = c
+					}
+				}
+				best.emax = e
+				h.push(best)
+				forced = append(forced, e)
+			}
+			latest = here
+		}
+		for len(h) > 0 && h[0].emax < e {
 			h.pop()
 		}
-		D[e], from[e] = h[0].key, h[0].s
+		if len(h) == 0 {
+			// A coupled block outlasts every segment that could hold it:
+			// the latest start carries it on, over budget.
+			for _, c := range latest {
+				c.emax = e
+				h.push(c)
+			}
+			forced = append(forced, e)
+		}
+		D[e], from[e] = h[0].key, h[0]
 	}
-	for e := n - 1; e >= 0; e = from[e] - 1 {
-		starts = append(starts, from[e])
+	var ks []RegistrationKind
+	for e := n - 1; e >= 0; e = from[e].s - 1 {
+		starts = append(starts, from[e].s)
+		ks = append(ks, regKinds[from[e].kind])
 	}
 	for i, j := 0, len(starts)-1; i < j; i, j = i+1, j-1 {
 		starts[i], starts[j] = starts[j], starts[i]
+		ks[i], ks[j] = ks[j], ks[i]
 	}
-	return starts, sg.base + D[n-1], forced
+	return starts, ks, D[n-1] + sg.T[n-1] + sg.c.verify, dedupe(forced)
 }
 
-// minScale returns the least budget scale at which the segmentation
-// starts is still allowed: every job of a segment of two or more jobs
-// within its scaled budget (a job alone in its segment is always
-// allowed). It is 0 when no budget binds.
-func (sg *segmenter) minScale(starts []int) float64 {
-	rho := 0.0
-	n := len(sg.jobs)
-	for k, s := range starts {
-		e := n
-		if k+1 < len(starts) {
-			e = starts[k+1]
-		}
-		if e-s < 2 {
-			continue
-		}
-		base := sg.a[s]
-		if s > 0 {
-			base -= sg.T[s-1] + sg.m[s-1] + sg.sw[s]
-		}
-		for j := s; j < e; j++ {
-			b := sg.jobs[j].budgetS
-			if math.IsInf(b, 1) {
-				continue
-			}
-			rho = math.Max(rho, (base+sg.T[j])/b)
+func dedupe(xs []int) []int {
+	var out []int
+	for i, x := range xs {
+		if i == 0 || x != xs[i-1] {
+			out = append(out, x)
 		}
 	}
-	return rho
+	return out
+}
+
+// kindIndex returns the index of registration kind k in regKinds.
+func kindIndex(k RegistrationKind) int {
+	if k == RegCoarse {
+		return kCoarse
+	}
+	return kLocal
+}
+
+// totalOf returns the time of a segmentation (as solve counts it).
+func (sg *segmenter) totalOf(starts []int, kinds []RegistrationKind) float64 {
+	if sg.n == 0 {
+		return 0
+	}
+	t := sg.T[sg.n-1] + sg.c.verify
+	for i, s := range starts {
+		t += sg.B[kindIndex(kinds[i])][s]
+	}
+	return t
 }
 
 // fixedInterval returns the segment starts of the by-hand practice: a
 // registration whenever the next job would end more than interval after
-// the last one.
-func (sg *segmenter) fixedInterval(interval float64) []int {
-	n := len(sg.jobs)
-	if n == 0 {
-		return nil
+// the last one, local before atomic-precision work, coarse before
+// field-emission work.
+func (sg *segmenter) fixedInterval(interval float64) ([]int, []RegistrationKind) {
+	if sg.n == 0 {
+		return nil, nil
+	}
+	kindOf := func(s int) RegistrationKind {
+		if sg.allowed(s, kLocal) {
+			return RegLocal
+		}
+		return RegCoarse
 	}
 	starts := []int{0}
+	kinds := []RegistrationKind{kindOf(0)}
 	s := 0
-	for j := 1; j < n; j++ {
-		elapsed := sg.a[s] + sg.T[j]
-		if s > 0 {
-			elapsed -= sg.T[s-1] + sg.m[s-1] + sg.sw[s]
-		}
-		if elapsed > interval {
+	for j := 1; j < sg.n; j++ {
+		if sg.T[j]-sg.clockStart(s, kindIndex(kinds[len(kinds)-1])) > interval && !sg.jobs[j].joined {
 			starts = append(starts, j)
+			kinds = append(kinds, kindOf(j))
 			s = j
 		}
 	}
-	return starts
-}
-
-// totalOf returns the total time of a segmentation.
-func (sg *segmenter) totalOf(starts []int) float64 {
-	if len(sg.jobs) == 0 {
-		return 0
-	}
-	t := sg.base
-	for _, s := range starts[1:] {
-		t += sg.B[s]
-	}
-	return t
+	return starts, kinds
 }
 
 type cand struct {
 	key  float64
 	s    int
+	kind int
 	emax int
 }
 
@@ -253,7 +511,10 @@ func (h candHeap) less(i, j int) bool {
 	if h[i].key != h[j].key {
 		return h[i].key < h[j].key
 	}
-	return h[i].s < h[j].s
+	if h[i].s != h[j].s {
+		return h[i].s < h[j].s
+	}
+	return h[i].kind < h[j].kind
 }
 
 func (h *candHeap) push(c cand) {
@@ -335,13 +596,19 @@ func (t *maxTree) descend(node, lo, hi, from int, c float64) int {
 	return t.descend(2*node+1, mid, hi, from, c)
 }
 
-// DriftBudget returns the time in seconds after a registration within
-// which a stroke of placement tolerance toleranceNM (±nm) must be
-// written at a drift rate of rateNMPerMin: tolerance / rate. It is +Inf
-// without drift.
-func DriftBudget(toleranceNM, rateNMPerMin float64) float64 {
+// DriftBudget returns the time in seconds within which a stroke of
+// placement tolerance toleranceNM (±nm) must be written after a
+// registration of error registrationNM, with creepNM of creep still to
+// come, at a drift rate of rateNMPerMin: (tolerance − registration error
+// − creep) / rate. It is +Inf without drift and 0 when the error and the
+// creep alone use the tolerance up.
+func DriftBudget(toleranceNM, registrationNM, creepNM, rateNMPerMin float64) float64 {
+	room := toleranceNM - registrationNM - creepNM
+	if room <= 0 {
+		return 0
+	}
 	if rateNMPerMin <= 0 {
 		return math.Inf(1)
 	}
-	return toleranceNM / rateNMPerMin * 60
+	return room / rateNMPerMin * 60
 }

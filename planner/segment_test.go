@@ -4,35 +4,105 @@ import (
 	"context"
 	"math"
 	"math/rand/v2"
-	"sort"
-
-	"gonum.org/v1/gonum/stat"
 	"testing"
 
 	"github.com/golang/geo/r2"
+	"gonum.org/v1/gonum/stat"
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"dimerpath/lattice/design"
 )
 
 func TestDriftBudgetByHand(t *testing.T) {
 	cases := []struct {
-		tol, rate, want float64
+		tol, reg, creep, rate, want float64
 	}{
-		{0.2, 0.1, 120},       // AP ±0.2 nm at 0.1 nm/min: 2 min
-		{2, 0.1, 1200},        // FE ±2 nm at 0.1 nm/min: 20 min
-		{0.2, 1, 12},          // AP at 1 nm/min: 12 s
-		{0.2, 0.1 / 60, 7200}, // AP at 0.1 nm/h: 2 h
-		{0.2, 0, math.Inf(1)}, // no drift
+		{0.2, 0, 0, 0.1, 120},          // AP ±0.2 nm at 0.1 nm/min, no error: 2 min
+		{0.2, 0.05, 0.01, 0.1, 84},     // (0.2 − 0.05 − 0.01) / 0.1 nm/min
+		{2, 0.5, 0.5, 0.1, 600},        // FE after a coarse registration
+		{0.2, 0.05, 0, 0.1 / 60, 5400}, // AP at 0.1 nm/h
+		{0.2, 0, 0, 0, math.Inf(1)},    // no drift
+		{0.2, 0.2, 0, 0.1, 0},          // the error uses the tolerance up
 	}
 	for _, c := range cases {
-		if got := DriftBudget(c.tol, c.rate); !(got == c.want || math.Abs(got-c.want) < 1e-9*c.want) {
-			t.Errorf("DriftBudget(%v, %v) = %v, want %v", c.tol, c.rate, got, c.want)
+		if got := DriftBudget(c.tol, c.reg, c.creep, c.rate); !(got == c.want || math.Abs(got-c.want) < 1e-9*c.want) {
+			t.Errorf("DriftBudget(%v, %v, %v, %v) = %v, want %v", c.tol, c.reg, c.creep, c.rate, got, c.want)
 		}
 	}
 }
 
-// randomJobs returns n jobs along a line with random write times and
-// budgets, and two fiducials.
+// TestDecayIntegralMatchesNumeric checks the running integral of
+// exponentially decaying sources against a numerical integration of the
+// summed rate (trapezoid rule, 10^5 steps).
+func TestDecayIntegralMatchesNumeric(t *testing.T) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	d := decay{tau: 37}
+	type src struct{ t, a float64 }
+	var srcs []src
+	at := 0.0
+	for range 20 {
+		at += rng.Float64() * 30
+		a := rng.Float64() * 0.2
+		d.add(at, a)
+		srcs = append(srcs, src{at, a})
+	}
+	rate := func(x float64) float64 {
+		r := 0.0
+		for _, s := range srcs {
+			if x >= s.t {
+				r += s.a * math.Exp(-(x-s.t)/d.tau)
+			}
+		}
+		return r
+	}
+	for _, end := range []float64{5, 50, 200, at, at + 100} {
+		const n = 100000
+		h := end / n
+		num := 0.0
+		for i := range n {
+			num += h * (rate(float64(i)*h) + rate(float64(i+1)*h)) / 2
+		}
+		if got := d.integral(end); math.Abs(got-num) > 1e-3*math.Max(num, 1e-3) {
+			t.Errorf("integral to %.1f s = %v, numeric %v", end, got, num)
+		}
+	}
+	// What a delay saves never exceeds what the earlier sources bring.
+	for _, t0 := range []float64{10, 100, at} {
+		pre := d.levelAt(t0) * d.tau * (-math.Expm1(-60 / d.tau))
+		if s := d.saved(t0, t0+60, 1e9); math.Abs(s-pre) > 1e-12 || d.saved(t0, t0+60, 0) != 0 {
+			t.Errorf("saved(%v) = %v, want %v", t0, s, pre)
+		}
+	}
+}
+
+// TestMoveWaitsForCreep checks the settle after a long move: it lasts
+// until the creep still to come (at the planning fraction) is
+// SettleShare of the next tolerance, so it grows with the move's length;
+// moves within the frame wait only settle_s.
+func TestMoveWaitsForCreep(t *testing.T) {
+	p := DefaultProfile()
+	m := newMotion(&p, 0.03)
+	short := m.move(r2.Point{}, r2.Point{X: 50}, 0.2)
+	if short.waitS != 0 || short.creepUnit != 0 || math.Abs(short.timeS-(50/p.MoveSpeedNMPerS+p.SettleS)) > 1e-12 {
+		t.Errorf("a move within the frame: %+v", short)
+	}
+	prev := 0.0
+	for _, d := range []float64{300, 700, 1500} {
+		mv := m.move(r2.Point{}, r2.Point{X: d}, 0.2)
+		left := 0.03 * mv.creepUnit
+		if math.Abs(left-p.Registration.Creep.SettleShare*0.2) > 1e-9 || mv.waitS <= prev {
+			t.Errorf("%v nm move: %v nm of creep left, wait %v s (previous %v s)", d, left, mv.waitS, prev)
+		}
+		prev = mv.waitS
+	}
+	// A wider tolerance waits less.
+	if wide := m.move(r2.Point{}, r2.Point{X: 700}, 10); wide.waitS >= m.move(r2.Point{}, r2.Point{X: 700}, 0.2).waitS {
+		t.Errorf("±10 nm waits %v s, no less than ±0.2 nm", wide.waitS)
+	}
+}
+
+// randomJobs returns n jobs along a line with random write times,
+// tolerances and modes, and two fiducials.
 func randomJobs(rng *rand.Rand, n int) ([]job, []Stroke, costs) {
 	p := DefaultProfile()
 	p.Drift.VerificationS = 5
@@ -42,36 +112,50 @@ func randomJobs(rng *rand.Rand, n int) ([]job, []Stroke, costs) {
 	x := 10.0
 	for i := range jobs {
 		mode := design.ModeAP
+		tol := []float64{0.2, 1}[rng.IntN(2)]
 		if rng.IntN(3) == 0 {
-			mode = design.ModeFE
+			mode, tol = design.ModeFE, []float64{2, 10}[rng.IntN(2)]
 		}
-		w := 5 + rng.Float64()*60
-		jobs[i] = job{stroke: i, start: r2.Point{X: x, Y: rng.Float64() * 40}, writeS: w,
-			budgetS: 40 + rng.Float64()*150, mode: mode}
-		x += rng.Float64() * 60
+		w := 2 + rng.Float64()*40
+		jobs[i] = job{stroke: i, start: r2.Point{X: x, Y: rng.Float64() * 40}, writeS: w, tolNM: tol, mode: mode, nearAP: rng.IntN(2) == 0}
+		x += rng.Float64() * 160
 		jobs[i].end = r2.Point{X: x, Y: rng.Float64() * 40}
 		strokes[i] = Stroke{ID: i, Mode: mode}
 	}
 	return jobs, strokes, c
 }
 
-// elapsedOK checks a schedule against the budgets directly from its
-// actions: each write must end within its budget of the end of the last
-// registration, unless it is alone in its segment.
-func elapsedOK(tl timeline, jobs []job) bool {
-	regEnd := 0.0
-	count := map[int]int{}
-	for _, a := range tl.actions {
-		if a.Kind == ActWrite || a.Kind == ActDwell {
-			count[a.Segment]++
+func testModel(p *Profile) segModel {
+	m, _ := planModel(p)
+	m.annealLevel = 0.5
+	return m
+}
+
+// feasible reports whether a segmentation holds every job of a segment
+// of two or more within its tolerance / margin at the planning values,
+// and uses only registrations allowed where they stand.
+func feasible(sg *segmenter, starts []int, kinds []RegistrationKind, margin float64) bool {
+	for i, s := range starts {
+		e := sg.n
+		if i+1 < len(starts) {
+			e = starts[i+1]
 		}
-	}
-	for _, a := range tl.actions {
-		switch a.Kind {
-		case ActRegister:
-			regEnd = a.StartS + a.DurationS
-		case ActWrite, ActDwell:
-			if a.StartS+a.DurationS-regEnd > jobs[a.Stroke].budgetS+1e-9 && count[a.Segment] > 1 {
+		k := kindIndex(kinds[i])
+		if !sg.allowed(s, k) {
+			return false
+		}
+		if k == kCoarse {
+			for j := s; j < e; j++ {
+				if sg.jobs[j].localOnly {
+					return false
+				}
+			}
+		}
+		if e-s < 2 {
+			continue
+		}
+		for j := s; j < e; j++ {
+			if sg.planLoad(s, k, j) > sg.jobs[j].tolNM/margin+1e-12 {
 				return false
 			}
 		}
@@ -79,22 +163,32 @@ func elapsedOK(tl timeline, jobs []job) bool {
 	return true
 }
 
+// TestSegmenterMatchesBruteForce compares the dynamic programme with
+// every set of boundaries and every choice of registration kinds for up
+// to 8 jobs.
 func TestSegmenterMatchesBruteForce(t *testing.T) {
 	rng := rand.New(rand.NewPCG(3, 4))
-	for trial := 0; trial < 200; trial++ {
-		n := 1 + rng.IntN(9)
-		jobs, strokes, c := randomJobs(rng, n)
-		sg := newSegmenter(jobs, c, 0)
-		prof := DefaultProfile()
-		starts, total, _ := sg.solve(1)
-		tl := schedule(sg, starts, strokes, &prof)
-		if got := tl.breakdown.Total(); math.Abs(got-total) > 1e-9*total {
-			t.Fatalf("trial %d: schedule total %v != DP total %v", trial, got, total)
+	p := DefaultProfile()
+	p.Drift.Compensation.Enabled = true
+	for trial := 0; trial < 150; trial++ {
+		n := 1 + rng.IntN(8)
+		jobs, _, c := randomJobs(rng, n)
+		if trial%3 == 0 {
+			jobs[rng.IntN(n)].localOnly = true
 		}
-		if !elapsedOK(tl, jobs) {
-			t.Fatalf("trial %d: DP segmentation %v breaks a budget", trial, starts)
+		model := testModel(&p)
+		if trial%2 == 0 {
+			model.residual = 1
 		}
-		// Brute force over every set of boundaries.
+		sg := newSegmenter(jobs, c, model, 0)
+		margin := 1 + rng.Float64()
+		starts, kinds, total, forced := sg.solve(margin)
+		if got := sg.totalOf(starts, kinds); math.Abs(got-total) > 1e-9*total {
+			t.Fatalf("trial %d: totalOf %v != solve's %v", trial, got, total)
+		}
+		if len(forced) == 0 && !feasible(sg, starts, kinds, margin) {
+			t.Fatalf("trial %d: DP segmentation %v %v breaks a tolerance", trial, starts, kinds)
+		}
 		best := math.Inf(1)
 		for mask := 0; mask < 1<<(n-1); mask++ {
 			st := []int{0}
@@ -103,131 +197,183 @@ func TestSegmenterMatchesBruteForce(t *testing.T) {
 					st = append(st, j)
 				}
 			}
-			tl := schedule(sg, st, strokes, &prof)
-			if elapsedOK(tl, jobs) {
-				best = math.Min(best, tl.breakdown.Total())
+			for km := 0; km < 1<<len(st); km++ {
+				ks := make([]RegistrationKind, len(st))
+				for i := range st {
+					ks[i] = regKinds[(km>>i)&1]
+				}
+				if feasible(sg, st, ks, margin) {
+					best = math.Min(best, sg.totalOf(st, ks))
+				}
 			}
 		}
-		if math.Abs(best-total) > 1e-9*best {
+		if len(forced) == 0 && math.Abs(best-total) > 1e-9*best {
 			t.Fatalf("trial %d (n=%d): DP total %v, brute force optimum %v", trial, n, total, best)
+		}
+		if len(forced) > 0 && !math.IsInf(best, 1) && total > best+1e-9*best {
+			t.Fatalf("trial %d: forced jobs %v, but a feasible plan of %v beats %v", trial, forced, best, total)
 		}
 	}
 }
 
-func TestScheduleCoversTimeline(t *testing.T) {
+// TestScheduleMatchesSegmenter lays a step out and checks that its
+// writing, travel, switches and registrations take what the segmenter
+// counted, actions follow each other without gaps, and each segment
+// starts with its registration.
+func TestScheduleMatchesSegmenter(t *testing.T) {
 	rng := rand.New(rand.NewPCG(5, 6))
 	jobs, strokes, c := randomJobs(rng, 40)
-	sg := newSegmenter(jobs, c, 1)
-	prof := DefaultProfile()
-	starts, total, _ := sg.solve(1)
-	tl := schedule(sg, starts, strokes, &prof)
+	p := DefaultProfile()
+	p.Drift.VerificationS = 5
+	sg := newSegmenter(jobs, c, testModel(&p), 1)
+	starts, kinds, total, _ := sg.solve(1)
+	var tl timeline
+	tl.scheduleStep(sg, starts, kinds, strokes, &p, 0, 0, nil)
 	clock := 0.0
 	for i, a := range tl.actions {
-		if a.Index != i || a.StartS != clock {
+		if a.Index != i || math.Abs(a.StartS-clock) > 1e-9*math.Max(clock, 1) {
 			t.Fatalf("action %d starts at %v, previous ended at %v", i, a.StartS, clock)
 		}
 		clock += a.DurationS
 	}
-	if math.Abs(clock-total) > 1e-9*total || tl.breakdown.Total() != tl.breakdown.Total() {
-		t.Errorf("timeline ends at %v, total %v", clock, total)
+	if math.Abs(clock-total) > 1e-9*total || math.Abs(tl.breakdown.Total()-total) > 1e-9*total {
+		t.Errorf("timeline ends at %v (breakdown %v), segmenter total %v", clock, tl.breakdown.Total(), total)
 	}
-	if tl.actions[0].Kind != ActRegister || tl.actions[0].From != c.fiducials[1].At {
-		t.Errorf("plan starts with %+v, want a registration at the first fiducial", tl.actions[0])
+	if len(tl.segments) != len(starts) {
+		t.Fatalf("%d segments, %d starts", len(tl.segments), len(starts))
 	}
-	// Segments tile the timeline and each names its fiducial.
 	for i, s := range tl.segments {
+		if s.Registration != kinds[i] || (s.Registration == RegCoarse) != (s.Fiducial != "") {
+			t.Errorf("segment %d: %+v, kind %v", i, s, kinds[i])
+		}
 		if i > 0 && s.StartS != tl.segments[i-1].EndS {
 			t.Errorf("segment %d starts at %v, previous ended at %v", i, s.StartS, tl.segments[i-1].EndS)
 		}
-		if s.Fiducial == "" || len(s.Strokes) == 0 {
-			t.Errorf("segment %d: %+v", i, s)
-		}
-	}
-	if last := tl.segments[len(tl.segments)-1]; math.Abs(last.EndS-clock) > 1e-9 {
-		t.Errorf("last segment ends at %v, plan at %v", last.EndS, clock)
 	}
 }
 
-func TestOverBudgetJobGetsOwnSegment(t *testing.T) {
-	p := DefaultProfile()
-	c := newCosts(&p, []Fiducial{{Name: "F", At: r2.Point{}}})
-	jobs := []job{
-		{stroke: 0, start: r2.Point{X: 1}, end: r2.Point{X: 2}, writeS: 10, budgetS: 100, mode: design.ModeAP},
-		{stroke: 1, start: r2.Point{X: 3}, end: r2.Point{X: 4}, writeS: 500, budgetS: 100, mode: design.ModeAP},
-		{stroke: 2, start: r2.Point{X: 5}, end: r2.Point{X: 6}, writeS: 10, budgetS: 100, mode: design.ModeAP},
+// TestPInToleranceMatchesClosedForm checks the tolerance sampling
+// against closed forms where both apply: a constant-rate drift with a
+// normal rate R and no registration error stays within ±tol over Δt with
+// probability Φ((tol·60/Δt − μ)/σ_R); a fixed displacement d and a
+// normal registration error of σ with 2Φ((tol − d)/σ) − 1 (gonum distuv
+// for Φ).
+func TestPInToleranceMatchesClosedForm(t *testing.T) {
+	const n = 200000
+	mu, sd, tol, dt := 0.1, 0.04, 0.2, 100.0 // nm/min, nm, s
+	rates := distuv.Normal{Mu: mu, Sigma: sd, Src: rand.NewPCG(9, 9)}
+	d := mcDraws{rate: make([]float64, n), creep: make([]float64, n)}
+	for i := range d.rate {
+		d.rate[i] = rates.Rand() / mu // over the mean, as drawMotion gives it
 	}
-	starts, _, forced := newSegmenter(jobs, c, 0).solve(1)
-	if len(forced) != 1 || forced[0] != 1 || len(starts) != 3 {
-		t.Errorf("starts %v forced %v, want job 1 alone and forced", starts, forced)
-	}
-}
-
-func TestMonteCarloDeterministicAndOrdered(t *testing.T) {
-	rng := rand.New(rand.NewPCG(7, 8))
-	jobs, _, c := randomJobs(rng, 300)
-	for i := range jobs {
-		if i%4 == 0 {
-			jobs[i].dwell = true
-		}
-	}
-	p := DefaultProfile()
-	sg := newSegmenter(jobs, c, 0)
-	a, err := monteCarlo(context.Background(), sg, &p, 500, 42, 75, nil)
+	seg := segLoad{sigma: 0, loads: []strokeLoad{{tol: tol, drift: mu * dt / 60}}}
+	res, err := pInTolerance(context.Background(), []segLoad{seg}, nil, d, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	b, _ := monteCarlo(context.Background(), sg, &p, 500, 42, 75, nil)
-	if a.p10 != b.p10 || a.p50 != b.p50 || a.p90 != b.p90 {
-		t.Errorf("same seed, different spread: %v %v", a, b)
+	want := distuv.Normal{Mu: mu, Sigma: sd}.CDF(tol * 60 / dt)
+	if se := math.Sqrt(want * (1 - want) / n); math.Abs(res.all-want) > 4*se {
+		t.Errorf("P(within) = %v, closed form %v (±%v)", res.all, want, se)
 	}
-	if !(a.p10 <= a.p50 && a.p50 <= a.p90) || a.p10 == a.p90 {
-		t.Errorf("P10 %v P50 %v P90 %v", a.p10, a.p50, a.p90)
+	// A fixed displacement and a normal error: exact, not sampled.
+	one := mcDraws{rate: []float64{1}, creep: []float64{0}}
+	seg = segLoad{sigma: 0.05, loads: []strokeLoad{{tol: 0.2, drift: 0.07}}}
+	res, _ = pInTolerance(context.Background(), []segLoad{seg}, nil, one, nil)
+	if want := 2*distuv.UnitNormal.CDF(0.13/0.05) - 1; math.Abs(res.all-want) > 2e-7 {
+		t.Errorf("P(|e| ≤ 0.13 nm) = %v, closed form %v", res.all, want)
 	}
-	// Without drift uncertainty and dwells every sample is the plan.
-	p.Drift.RateSDNMPerMin = 0
-	_, nominal, _ := sg.solve(1)
-	z, _ := monteCarlo(context.Background(), sg, &p, 100, 1, 0, nil)
-	if z.p10 != nominal || z.p90 != nominal {
-		t.Errorf("no spread: P10 %v P90 %v, want %v", z.p10, z.p90, nominal)
+}
+
+func TestFastErf(t *testing.T) {
+	for x := 0.0; x < 7; x += 0.0007 {
+		if d := math.Abs(fastErf(x) - math.Erf(x)); d > 1.2e-7 {
+			t.Fatalf("fastErf(%v) = %v, math.Erf %v", x, fastErf(x), math.Erf(x))
+		}
+	}
+}
+
+// TestParetoLoadsKeepTheBinding checks that the loads left out of a
+// segment never bind: over random rates and creeps the least room is the
+// same with all strokes as with the kept ones.
+func TestParetoLoadsKeepTheBinding(t *testing.T) {
+	rng := rand.New(rand.NewPCG(4, 4))
+	for trial := 0; trial < 200; trial++ {
+		var all []strokeLoad
+		for range 1 + rng.IntN(30) {
+			all = append(all, strokeLoad{tol: []float64{0.2, 1, 2}[rng.IntN(3)], creep: rng.Float64() * 5, drift: rng.Float64() * 0.3})
+		}
+		kept := paretoLoads(append([]strokeLoad(nil), all...))
+		for range 20 {
+			r, c := rng.Float64()*3, rng.Float64()*0.1
+			room := func(ls []strokeLoad) float64 {
+				m := math.Inf(1)
+				for _, l := range ls {
+					m = math.Min(m, l.tol-c*l.creep-r*l.drift)
+				}
+				return m
+			}
+			if room(all) != room(kept) {
+				t.Fatalf("trial %d: room %v with all, %v with the kept %d of %d", trial, room(all), room(kept), len(kept), len(all))
+			}
+		}
+	}
+}
+
+// TestSampleTimesMatchesGonum checks the session's spread against gonum's
+// stat on the same samples (mean, empirical quantiles), and the tip
+// changes' mean against the Poisson expectation.
+func TestSampleTimesMatchesGonum(t *testing.T) {
+	p := DefaultProfile()
+	tm := timeModel{schedule: Breakdown{APWriteS: 600, FEWriteS: 600, RegistrationS: 900, AnnealS: 3720}, writeS: 1200, dwells: 40}
+	tm.schedule.DwellS = 40 * p.DwellExpectedS()
+	tm.tipChange.enabled, tm.tipChange.meanS, tm.tipChange.costS = true, 1800, 856
+	tm.repairs = []repairModel{{missed: 3, perSiteS: 25}, {missed: 0.5, perSiteS: 25}}
+	tm.schedule.RepairS = 3.5 * 25
+	const runs = 4000
+	res, err := sampleTimes(context.Background(), tm, &p, runs, 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m := stat.Mean(res.samples, nil); math.Abs(m-res.mean) > 1e-9*m || math.Abs(res.breakdown.Total()-m) > 1e-6*m {
+		t.Errorf("mean %v, gonum %v, breakdown %v", res.mean, m, res.breakdown.Total())
+	}
+	for _, q := range []struct{ p, got float64 }{{0.1, res.p10}, {0.5, res.p50}, {0.9, res.p90}} {
+		if want := stat.Quantile(q.p, stat.Empirical, res.samples, nil); want != q.got {
+			t.Errorf("P%.0f = %v, gonum %v", 100*q.p, q.got, want)
+		}
+	}
+	// Tip changes: Poisson with mean writing time / mean time between
+	// failures, each costing conditioning and a registration.
+	want := 1200.0 / 1800 * 856
+	if se := math.Sqrt(1200.0/1800) * 856 / math.Sqrt(runs); math.Abs(res.breakdown.TipChangeS-want) > 4*se {
+		t.Errorf("tip changes %v s on average, want %v ± %v", res.breakdown.TipChangeS, want, se)
+	}
+	if !(res.p10 < res.p90) {
+		t.Errorf("no spread: P10 %v, P90 %v", res.p10, res.p90)
+	}
+	b, _ := sampleTimes(context.Background(), tm, &p, runs, 3)
+	if b.mean != res.mean || b.p90 != res.p90 {
+		t.Error("same seed, different samples")
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	p.Drift.RateSDNMPerMin = 0.05
-	if _, err := monteCarlo(ctx, sg, &p, 100, 1, 0, nil); err == nil {
-		t.Error("monteCarlo ignores a cancelled context")
+	if _, err := sampleTimes(ctx, tm, &p, 100, 1); err == nil {
+		t.Error("sampleTimes ignores a cancelled context")
 	}
 }
 
-func TestMonteCarloQuantilesExact(t *testing.T) {
-	// Without dwells the quantiles come from exact segmentations at the
-	// ranks they pick; compare with re-segmenting at every sampled rate
-	// and gonum's empirical quantile.
-	rng := rand.New(rand.NewPCG(9, 10))
-	jobs, _, c := randomJobs(rng, 400)
-	p := DefaultProfile()
-	sg := newSegmenter(jobs, c, 0)
-	res, err := monteCarlo(context.Background(), sg, &p, 300, 11, 0, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if res.evaluations > 3 {
-		t.Errorf("%d segmentations, want 3", res.evaluations)
-	}
-	rates := driftSamples(&p, 300, 11)
-	exact := make([]float64, len(rates))
-	for i, r := range rates {
-		_, exact[i], _ = sg.solve(p.Drift.RateNMPerMin / r)
-	}
-	sort.Float64s(exact)
-	for _, q := range []struct {
-		p   float64
-		got float64
-	}{{0.1, res.p10}, {0.5, res.p50}, {0.9, res.p90}} {
-		if want := stat.Quantile(q.p, stat.Empirical, exact, nil); q.got != want {
-			t.Errorf("P%.0f = %v, exact %v", q.p*100, q.got, want)
+// TestJoinBlocksKeepsPairsTogether checks the reordering of coupled
+// strokes: each block stands together at its latest member's place.
+func TestJoinBlocksKeepsPairsTogether(t *testing.T) {
+	order := []int{10, 11, 12, 13, 14, 15, 16}
+	got, joined := joinBlocks(order, [][2]int{{11, 15}, {15, 13}})
+	want := []int{10, 12, 14, 11, 13, 15, 16}
+	for i := range want {
+		if got[i] != want[i] {
+			t.Fatalf("joinBlocks = %v, want %v", got, want)
 		}
 	}
-	if exact[0] == exact[len(exact)-1] {
-		t.Error("drift spread changes nothing: the test is too weak")
+	if joined[11] || !joined[13] || !joined[15] || joined[10] {
+		t.Errorf("joined = %v", joined)
 	}
 }

@@ -2,7 +2,9 @@ package planner
 
 import (
 	"math"
+	"slices"
 
+	"github.com/golang/geo/r1"
 	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
@@ -37,45 +39,114 @@ func (g *strokeGen) segsOf(set *lattice.SiteSet) []runSeg {
 func newStrokeGen(surf *lattice.Surface, prof *Profile) *strokeGen {
 	g := &strokeGen{surf: surf, prof: prof, segs: map[*lattice.SiteSet][]runSeg{}}
 	for n := 1; n <= 4; n++ {
-		g.apExt = append(g.apExt, apExtension(prof.AP, n))
+		g.apExt = append(g.apExt, apExtension(prof, n))
 	}
-	g.feEnd, g.feSide = feInset(prof.FE)
+	g.feEnd, g.feSide = feInset(prof)
 	return g
 }
 
-// modeRatio returns the delivered dose over the clearing threshold of a
-// mode's strokes: passes·λ/λ_thr.
-func modeRatio(m ModeProfile) float64 {
-	return float64(max(m.Passes, 1)) * m.LineDoseCPerCm / m.Width.ThresholdDoseCPerCm
-}
-
 // apExtension chooses how far an AP line over n dimers runs beyond the
-// centres of its end dimers: the least extension (in steps of 0.005 nm,
-// up to half a dimer pitch) at which the end sites get at least 1.25 times
-// the clearing dose, so that they clear with margin; at most half a pitch,
-// so that the next dimer along stays short of it. From the width model's
-// Gaussian footprint (see exposure).
-func apExtension(m ModeProfile, n int) float64 {
-	ratio, sigma := modeRatio(m), m.Width.SigmaNM
-	centres := lattice.DimerAlong(n - 1) // from the first dimer's centre to the last's
-	for ext := 0.0; ext <= lattice.DimerPitch/2; ext += 0.005 {
-		L := centres + 2*ext
-		if exposure(ratio, sigma, L, ext, lattice.HOffset) >= 1.25 {
-			return ext
+// centres of its end dimers (negative: it stops short of them): the
+// extension, in steps of 0.0025 nm within half a dimer pitch either way,
+// that makes the fewest expected wrong sites at each end — the end site
+// left plus the next site along the row cleared, from the exposure model
+// (lineExposure) — among those that clear the next site with less than
+// half the stray limit (the margin feInset keeps too), unless the edge
+// allowance reaches that site. A longer line leaves the end site less
+// likely and clears the next site more likely. When no extension keeps
+// the next site under the limit, the one that clears it least.
+func apExtension(prof *Profile, n int) float64 {
+	l := prof.Line(design.ModeAP)
+	span := lattice.DimerAlong(n - 1) // from the first dimer's centre to the last's
+	limit := prof.StrayLimit / 2
+	if prof.AP.EdgeAllowanceNM >= lattice.DimerPitch {
+		limit = 1
+	}
+	best, bestExt := math.Inf(1), 0.0
+	least, leastExt := math.Inf(1), 0.0
+	for i := -200; i <= 200; i++ {
+		ext := float64(i) * 0.0025
+		if math.Abs(ext) > lattice.DimerPitch/2+1e-12 {
+			continue
+		}
+		L := span + 2*ext
+		if L <= 0 {
+			continue
+		}
+		end := lineExposure(l.Peak, l.SigmaNM, L, ext, lattice.HOffset)
+		next := ClearProbability(lineExposure(l.Peak, l.SigmaNM, L, ext-lattice.DimerPitch, lattice.HOffset))
+		if next < least {
+			least, leastExt = next, ext
+		}
+		if next > limit {
+			continue
+		}
+		if wrong := math.Exp(-end) + next; wrong < best-1e-15 {
+			best, bestExt = wrong, ext
 		}
 	}
-	return lattice.DimerPitch / 2
+	if math.IsInf(best, 1) {
+		return leastExt
+	}
+	return bestExt
 }
 
-// feInset returns how far the FE fill keeps its paths inside the
-// region's outermost sites: enough that a line's half width (where it
-// stops clearing) reaches no farther than the edge allowance beyond them,
-// plus a margin for the dose the neighbouring lines add. The margin is a
-// quarter σ at line ends, where the sites between two line ends need
-// both lines' dose, and half a σ along the outermost lines.
-func feInset(m ModeProfile) (end, side float64) {
-	base := math.Max(0, m.LineWidth()/2-m.EdgeAllowanceNM)
-	return base + m.Width.SigmaNM/4, base + m.Width.SigmaNM/2
+// feInset returns how far the FE fill keeps its paths inside the region's
+// outermost sites: far enough that every site beyond the edge allowance
+// clears with less than half the stray limit, counting the neighbouring
+// raster lines (the half is a margin for corners and round ends, where
+// lines and turns come together in ways this one-dimensional sum does
+// not follow). Along the outermost line (side) the lines further in add
+// their tails; beyond the line ends (end) the serpentine's turn runs
+// along the ends like a line, and every raster line ending there adds
+// its tail. feStrokes keeps a disk of the larger radius around every
+// point of its lines inside the region.
+func feInset(prof *Profile) (end, side float64) {
+	l := prof.Line(design.ModeFE)
+	pitch := prof.FEPitch()
+	limit := exposureFor(prof.StrayLimit / 2)
+	if !(l.Peak > 0) || !(pitch > 0) {
+		return 0, 0
+	}
+	// Σ_k over the lines at d + k·pitch, k ≥ 0, and over all lines.
+	sideAt := func(d float64) float64 {
+		sum := 0.0
+		for k := 0; k < 1000; k++ {
+			x := l.At(d + float64(k)*pitch)
+			sum += x
+			if x < 1e-300 {
+				break
+			}
+		}
+		return sum
+	}
+	across := l.At(0)
+	for k := 1; k < 1000; k++ {
+		x := 2 * l.At(float64(k)*pitch)
+		across += x
+		if x < 1e-300 {
+			break
+		}
+	}
+	reach := func(f func(float64) float64) float64 {
+		lo, hi := 0.0, 100*l.SigmaNM
+		if f(lo) <= limit {
+			return 0
+		}
+		for range 100 {
+			mid := (lo + hi) / 2
+			if f(mid) > limit {
+				lo = mid
+			} else {
+				hi = mid
+			}
+		}
+		return hi
+	}
+	dSide := reach(sideAt)
+	dEnd := reach(func(s float64) float64 { return l.At(s) + across*normalCDF(-s/l.SigmaNM) })
+	allow := prof.FE.EdgeAllowanceNM
+	return math.Max(0, dEnd-allow), math.Max(0, dSide-allow)
 }
 
 func pathLength(p []r2.Point) float64 {
@@ -104,7 +175,7 @@ func (g *strokeGen) lineStroke(region string, t, row, d0, d1 int) Stroke {
 // dwellStroke parks the tip over one H site.
 func (g *strokeGen) dwellStroke(region string, site lattice.Site) Stroke {
 	return Stroke{Region: region, Mode: design.ModeAP, Kind: StrokeDwell, Path: []r2.Point{g.surf.Position(site)}, Passes: 1,
-		DurationS: g.prof.Dwell.ExpectedS(), Sites: 1, Window: -1}
+		DurationS: g.prof.DwellExpectedS(), Sites: 1, Window: -1}
 }
 
 // apStrokes writes set atom by atom: a line along the row centre over
@@ -186,10 +257,12 @@ type feLine struct {
 // a pass around its ends.
 func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 	m := g.prof.FE
-	pitch := m.Pitch()
+	pitch := g.prof.FEPitch()
 	end, side := g.feEnd, g.feSide
 	var out []Stroke
-	all := g.segsOf(set) // in terrace order
+	whole := g.segsOf(set) // in terrace order
+	all := whole
+	radius := math.Max(end, side)
 	for len(all) > 0 {
 		t := all[0].run.Terrace
 		n := 1
@@ -199,29 +272,76 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 		segs := all[:n]
 		all = all[n:]
 		rows := g.surf.Terraces[t].Rows
+		// This terrace's part of the region, and the whole region, in
+		// the terrace's frame (across coordinates of both).
 		cmin, cmax := math.Inf(1), math.Inf(-1)
 		for _, s := range segs {
 			_, c := rows.Split(s.a)
 			cmin, cmax = math.Min(cmin, c-lattice.HOffset), math.Max(cmax, c+lattice.HOffset)
 		}
+		ix := newChordIndex(segs, rows)
+		wix := ix
+		if len(segs) < len(whole) {
+			wix = newChordIndex(whole, rows)
+		}
+		chords := func(ix *chordIndex, c float64) []r1.Interval {
+			return slices.Clone(ix.chords(c, lattice.RowSpacing/2, 2*lattice.RowSpacing, false))
+		}
+		// The outermost lines keep the side inset from the region's edge;
+		// where this terrace's part ends at a step inside the region (the
+		// region goes on just beyond its outermost row) they need not.
+		goesOn := func(c, beyond float64) bool {
+			return len(lattice.IntersectIntervals(nil, chords(ix, c), chords(wix, beyond))) > 0
+		}
+		insetLo, insetHi := side, side
+		if goesOn(cmin+lattice.HOffset, cmin-radius/2) {
+			insetLo = 0
+		}
+		if goesOn(cmax-lattice.HOffset, cmax+radius/2) {
+			insetHi = 0
+		}
 		var cs []float64
-		if cmax-cmin <= 2*side {
-			cs = []float64{(cmin + cmax) / 2}
+		if span := cmax - cmin - insetLo - insetHi; span <= 0 {
+			cs = []float64{(cmin + insetLo + cmax - insetHi) / 2}
 		} else {
-			n := int(math.Ceil((cmax-cmin-2*side)/pitch-1e-9)) + 1
-			step := (cmax - cmin - 2*side) / float64(max(n-1, 1))
+			n := int(math.Ceil(span/pitch-1e-9)) + 1
+			step := span / float64(max(n-1, 1))
 			for k := 0; k < n; k++ {
-				cs = append(cs, cmin+side+float64(k)*step)
+				cs = append(cs, cmin+insetLo+float64(k)*step)
 			}
 		}
-		ix := newChordIndex(segs, rows)
+		// A line runs where a disk of the inset's radius around it lies
+		// within the region (all terraces): the region's chords on the
+		// rows within the radius, each shortened by what the disk
+		// reaches along it, intersected, and then within this terrace's
+		// chord. So a line stops the inset short of the region's edge
+		// whether the edge is square to it, slanted or curved, and runs up
+		// to a step inside the region, where the other terrace's lines
+		// take over.
 		lineAt := func(c float64) []feLine {
+			eroded := chords(ix, c)
+			for k := 0; float64(k)*lattice.RowSpacing/2 <= radius+1e-9 && len(eroded) > 0; k++ {
+				dc := float64(k) * lattice.RowSpacing / 2
+				h := math.Sqrt(math.Max(0, radius*radius-dc*dc))
+				for _, sgn := range []float64{-1, 1} {
+					if k == 0 && sgn > 0 {
+						continue
+					}
+					var shrunk []r1.Interval
+					for _, iv := range chords(wix, c+sgn*dc) {
+						if iv.Hi-h > iv.Lo+h {
+							shrunk = append(shrunk, r1.Interval{Lo: iv.Lo + h, Hi: iv.Hi - h})
+						}
+					}
+					eroded = lattice.IntersectIntervals(nil, eroded, shrunk)
+				}
+			}
 			var ls []feLine
-			for _, iv := range ix.chords(c, lattice.RowSpacing/2, 2*lattice.RowSpacing, false) {
-				lo, hi := iv.Lo+end, iv.Hi-end
-				if hi-lo < m.Width.SigmaNM {
+			for _, iv := range eroded {
+				lo, hi := iv.Lo, iv.Hi
+				if hi-lo < m.SigmaNM {
 					mid := iv.Center()
-					lo, hi = mid-m.Width.SigmaNM/2, mid+m.Width.SigmaNM/2
+					lo, hi = mid-m.SigmaNM/2, mid+m.SigmaNM/2
 				}
 				ls = append(ls, feLine{c: c, lo: lo, hi: hi})
 			}
@@ -245,7 +365,6 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 			}
 			prev = cur
 		}
-		slantInset(lines, end)
 		for _, chain := range serpentines(lines) {
 			path := make([]r2.Point, 0, 2*len(chain))
 			for i, ln := range chain {
@@ -283,7 +402,8 @@ func (g *strokeGen) feStroke(region string, kind StrokeKind, path []r2.Point) St
 // slantInset moves line ends in where the region's edge slants across
 // the raster: the inset is meant perpendicular to the edge, so along the
 // line it grows by sqrt(1+slope²), with the slope taken from the
-// neighbouring lines' ends (capped at 4).
+// neighbouring lines' ends (capped at 4); a line the inset would turn
+// inside out shrinks to its middle.
 func slantInset(lines [][]feLine, inset float64) {
 	orig := make([][]feLine, len(lines))
 	for k := range lines {
@@ -308,9 +428,13 @@ func slantInset(lines [][]feLine, inset float64) {
 			}
 			lo := x.lo + inset*(math.Sqrt(1+math.Min(sLo, 4)*math.Min(sLo, 4))-1)
 			hi := x.hi - inset*(math.Sqrt(1+math.Min(sHi, 4)*math.Min(sHi, 4))-1)
-			if hi > lo {
-				ln.lo, ln.hi = lo, hi
+			if hi <= lo {
+				// The edge is nearly parallel to the line: what the inset
+				// leaves of it is its middle.
+				lo = (x.lo + x.hi) / 2
+				hi = lo
 			}
+			ln.lo, ln.hi = lo, hi
 		}
 	}
 }

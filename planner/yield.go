@@ -3,23 +3,31 @@ package planner
 import (
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"sort"
+
+	"gonum.org/v1/gonum/stat"
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // PoissonBinomial returns the distribution of the number of successes
 // among independent trials with success probabilities p: dist[k] is the
-// probability of exactly k successes, for k = 0..len(p). It is exact in
-// floating point: trials of equal probability are taken together through
-// the binomial formula, and the groups are combined by direct
-// convolution; the only terms dropped are those that underflow float64
-// to zero in the tails. lo is the first k whose entry may be non-zero;
-// entries below lo and above the last non-zero one are 0.
+// probability of exactly k successes, for k = 0..len(p). Trials of equal
+// probability are taken together through the binomial formula, and the
+// groups are combined by direct convolution; the only terms dropped are
+// those that underflow float64 to zero in the tails. Probabilities that
+// differ by at most 10⁻¹² are taken as one, at their mean (windows alike
+// but for rounding), which moves the distribution by at most n·10⁻¹²; it
+// is otherwise exact in floating point. lo is the first k whose entry
+// may be non-zero; entries below lo and above the last non-zero one are
+// 0.
 //
 // Cost: O(G·W²) for G distinct probabilities and a support of width W
 // (W ≈ 80·sqrt(n·p(1-p)) before underflow), so 10^5 windows of two
 // templates take milliseconds. It panics if a probability lies outside
 // [0, 1]; callers validate first.
 func PoissonBinomial(p []float64) (dist []float64, lo int) {
+	const groupTolerance = 1e-12
 	n := len(p)
 	dist = make([]float64, n+1)
 	groups := map[float64]int{}
@@ -29,11 +37,28 @@ func PoissonBinomial(p []float64) (dist []float64, lo int) {
 		}
 		groups[q]++
 	}
-	keys := make([]float64, 0, len(groups))
+	sorted := make([]float64, 0, len(groups))
 	for q := range groups {
-		keys = append(keys, q)
+		sorted = append(sorted, q)
 	}
-	sort.Float64s(keys) // a fixed order makes the result reproducible to the bit
+	sort.Float64s(sorted) // a fixed order makes the result reproducible to the bit
+	// Probabilities within groupTolerance of a group's smallest join it,
+	// at the group's mean: windows alike but for rounding (the exposure
+	// model sums the same strokes at other coordinates) form one binomial.
+	var keys []float64
+	counts := map[float64]int{}
+	for i := 0; i < len(sorted); {
+		j, sum, m := i, 0.0, 0
+		for ; j < len(sorted) && sorted[j]-sorted[i] <= groupTolerance; j++ {
+			sum += sorted[j] * float64(groups[sorted[j]])
+			m += groups[sorted[j]]
+		}
+		q := min(max(sum/float64(m), sorted[i]), sorted[j-1])
+		keys = append(keys, q)
+		counts[q] += m
+		i = j
+	}
+	groups = counts
 
 	// cur holds P(k) for k = off..off+len(cur)-1.
 	cur, off := []float64{1}, 0
@@ -130,12 +155,21 @@ func AllProbability(p []float64) (all, log10All float64) {
 	return math.Pow(10, ls), ls
 }
 
-// YieldOf summarises the windows' outcome: P(every window good), the
-// Poisson-binomial distribution of the number of good windows, its mean
-// and standard deviation, and the expected number of devices to write
-// for one perfect device (1/P(all), geometric; 0 when P(all) underflows
-// or is 0).
-func YieldOf(windows []Window) Yield {
+// YieldSamples is the number of draws of the templates' P1 behind the
+// intervals of P(all good).
+const YieldSamples = 20000
+
+// YieldOf summarises the windows' outcome: P(every window good), exact,
+// with its 68 % and 95 % intervals from the templates' uncertainties
+// (each template's P1 drawn from a beta distribution with its mean and
+// standard deviation, one draw per template shared by its windows, since
+// the uncertainty is in the template's rate; YieldSamples draws from
+// seed), the expected numbers of windows left empty, with two or more
+// donors and not opened as drawn, the Poisson-binomial distribution of the
+// number of good windows with its mean and standard deviation, and the
+// expected number of devices to write for one perfect device (1/P(all),
+// geometric; 0 when P(all) underflows or is 0).
+func YieldOf(windows []Window, seed int64) Yield {
 	p := make([]float64, len(windows))
 	for i, w := range windows {
 		p[i] = w.Probability
@@ -151,9 +185,13 @@ func YieldOf(windows []Window) Yield {
 	y.Distribution = y.Distribution[:last+1]
 	y.All, y.Log10All = AllProbability(p)
 	varSum := 0.0
-	for _, q := range p {
+	for i, q := range p {
 		y.MeanGood += q
 		varSum += q * (1 - q)
+		w := windows[i]
+		y.ExpectedEmpty += w.OpenProbability * w.P0
+		y.ExpectedMultiple += w.OpenProbability * w.P2Plus
+		y.ExpectedMisopened += 1 - w.OpenProbability
 	}
 	y.SDGood = math.Sqrt(varSum)
 	switch {
@@ -162,5 +200,67 @@ func YieldOf(windows []Window) Yield {
 	case y.All > 0:
 		y.DevicesPerPerfect = 1 / y.All
 	}
+	y.Log10All68, y.Log10All95 = allIntervals(windows, y.Log10All, seed)
+	for i := range 2 {
+		y.All68[i], y.All95[i] = math.Pow(10, y.Log10All68[i]), math.Pow(10, y.Log10All95[i])
+	}
 	return y
+}
+
+// allIntervals returns the 68 % and 95 % intervals of log10 P(all good)
+// from the templates' uncertainties (see YieldOf); both are the point
+// value when no template is uncertain.
+func allIntervals(windows []Window, log10All float64, seed int64) (i68, i95 [2]float64) {
+	point := [2]float64{log10All, log10All}
+	// Windows that share a template share its P1: the sum of log10 P1 is
+	// count·log10 P1 per template, the open probabilities a constant.
+	type group struct {
+		n        int
+		mean, sd float64
+	}
+	type key struct {
+		template string
+		mean, sd float64
+	}
+	groups := map[key]*group{}
+	var keys []key
+	fixed := 0.0
+	for _, w := range windows {
+		if w.P1SD == 0 || w.P1 <= 0 || w.P1 >= 1 {
+			fixed += math.Log10(w.Probability)
+			continue
+		}
+		// Probability = OpenProbability·P1: P1 is drawn, the rest fixed.
+		fixed += math.Log10(w.Probability / w.P1)
+		k := key{w.Template, w.P1, w.P1SD}
+		g, ok := groups[k]
+		if !ok {
+			g = &group{mean: w.P1, sd: w.P1SD}
+			groups[k] = g
+			keys = append(keys, k)
+		}
+		g.n++
+	}
+	if len(keys) == 0 || math.IsInf(log10All, -1) || math.IsNaN(log10All) {
+		return point, point
+	}
+	src := rand.NewPCG(uint64(seed), 0x7969656c64)
+	betas := make([]distuv.Beta, len(keys))
+	for i, k := range keys {
+		g := groups[k]
+		// A beta of mean m and variance s²: α + β = m(1−m)/s² − 1.
+		nu := g.mean*(1-g.mean)/(g.sd*g.sd) - 1
+		betas[i] = distuv.Beta{Alpha: g.mean * nu, Beta: (1 - g.mean) * nu, Src: src}
+	}
+	samples := make([]float64, YieldSamples)
+	for s := range samples {
+		v := fixed
+		for i, k := range keys {
+			v += float64(groups[k].n) * math.Log10(betas[i].Rand())
+		}
+		samples[s] = v
+	}
+	sort.Float64s(samples)
+	q := func(f float64) float64 { return stat.Quantile(f, stat.Empirical, samples, nil) }
+	return [2]float64{q(0.16), q(0.84)}, [2]float64{q(0.025), q(0.975)}
 }

@@ -5,6 +5,10 @@ import (
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"dimerpath/lattice"
 )
 
 func TestYieldIdenticalWindowsMatchesBinomial(t *testing.T) {
@@ -20,9 +24,9 @@ func TestYieldIdenticalWindowsMatchesBinomial(t *testing.T) {
 	for _, c := range cases {
 		ws := make([]Window, 16)
 		for i := range ws {
-			ws[i].Probability = c.p
+			ws[i] = Window{OpenProbability: 1, P1: c.p, P0: 1 - c.p, Probability: c.p}
 		}
-		y := YieldOf(ws)
+		y := YieldOf(ws, 1)
 		if math.Abs(y.All-c.want) > c.tol {
 			t.Errorf("16 windows at %v: All = %v, want %v", c.p, y.All, c.want)
 		}
@@ -120,10 +124,10 @@ func TestPoissonBinomialLarge(t *testing.T) {
 	y := YieldOf(func() []Window {
 		ws := make([]Window, len(p))
 		for i := range ws {
-			ws[i].Probability = p[i]
+			ws[i] = Window{OpenProbability: 1, P1: p[i], Probability: p[i]}
 		}
 		return ws
-	}())
+	}(), 1)
 	// P(all) underflows; its logarithm does not.
 	wantLog := 0.0
 	for _, q := range p {
@@ -135,7 +139,7 @@ func TestPoissonBinomialLarge(t *testing.T) {
 }
 
 func TestYieldNoWindows(t *testing.T) {
-	y := YieldOf(nil)
+	y := YieldOf(nil, 1)
 	if y.All != 1 || y.DevicesPerPerfect != 1 || len(y.Distribution) != 1 || y.Distribution[0] != 1 {
 		t.Errorf("YieldOf(nil) = %+v", y)
 	}
@@ -157,10 +161,81 @@ func ExamplePoissonBinomial() {
 func ExampleYieldOf() {
 	ws := make([]Window, 16)
 	for i := range ws {
-		ws[i] = Window{Species: "As", Probability: 0.97}
+		t := lattice.ArsineWindow
+		ws[i] = Window{Species: "As", OpenProbability: 1, P0: t.P0, P1: t.P1, P2Plus: t.P2Plus, P1SD: t.P1SD, Probability: t.P1}
 	}
-	y := YieldOf(ws)
-	fmt.Printf("P(all 16 good) = %.3f, mean good %.2f, devices per perfect device %.2f\n", y.All, y.MeanGood, y.DevicesPerPerfect)
+	y := YieldOf(ws, 1)
+	fmt.Printf("P(all 16 good) = %.3f (68%%: %.2f–%.2f), mean good %.2f, expected empty %.2f\n", y.All, y.All68[0], y.All68[1], y.MeanGood, y.ExpectedEmpty)
 	// Output:
-	// P(all 16 good) = 0.614, mean good 15.52, devices per perfect device 1.63
+	// P(all 16 good) = 0.614 (68%: 0.45–0.83), mean good 15.52, expected empty 0.48
+}
+
+// TestYieldIntervalsMatchBeta checks the sampled intervals of P(all good)
+// against the beta distribution's own quantiles (gonum distuv): with one
+// template, P(all) = (open·P1)^n rises with P1, so its quantiles are those
+// of P1 carried through.
+func TestYieldIntervalsMatchBeta(t *testing.T) {
+	cases := []struct {
+		name string
+		tmpl lattice.WindowTemplate
+		n    int
+		open float64
+	}{
+		// Ivie et al. 2021: P, one donor in 63 ± 10 %.
+		{"two P windows", lattice.PhosphineWindow, 2, 0.98},
+		// Stock et al. 2024: As, 97 ± 2 %.
+		{"16 As windows", lattice.ArsineWindow, 16, 1},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			tm := c.tmpl
+			ws := make([]Window, c.n)
+			for i := range ws {
+				ws[i] = Window{Template: tm.Name, OpenProbability: c.open, P0: tm.P0, P1: tm.P1, P2Plus: tm.P2Plus, P1SD: tm.P1SD, Probability: c.open * tm.P1}
+			}
+			y := YieldOf(ws, 7)
+			nu := tm.P1*(1-tm.P1)/(tm.P1SD*tm.P1SD) - 1
+			beta := distuv.Beta{Alpha: tm.P1 * nu, Beta: (1 - tm.P1) * nu}
+			all := func(q float64) float64 { return math.Pow(c.open*beta.Quantile(q), float64(c.n)) }
+			for _, iv := range []struct {
+				got    [2]float64
+				lo, hi float64
+			}{{y.All68, 0.16, 0.84}, {y.All95, 0.025, 0.975}} {
+				want := [2]float64{all(iv.lo), all(iv.hi)}
+				for k := range 2 {
+					// Sampling error of a quantile from 20 000 draws: well
+					// under 2 % here.
+					if math.Abs(iv.got[k]-want[k]) > 0.02*want[k]+1e-4 {
+						t.Errorf("interval %v, want %v (beta quantiles)", iv.got, want)
+					}
+				}
+			}
+			if !(y.All95[0] <= y.All68[0] && y.All68[0] <= y.All && y.All <= y.All68[1] && y.All68[1] <= y.All95[1]) {
+				t.Errorf("intervals do not nest around the point value: 95 %v, 68 %v, point %v", y.All95, y.All68, y.All)
+			}
+			// Expected counts, by hand.
+			if want := float64(c.n) * c.open * tm.P0; math.Abs(y.ExpectedEmpty-want) > 1e-12 {
+				t.Errorf("expected empty %v, want %v", y.ExpectedEmpty, want)
+			}
+			if want := float64(c.n) * (1 - c.open); math.Abs(y.ExpectedMisopened-want) > 1e-12 {
+				t.Errorf("expected misopened %v, want %v", y.ExpectedMisopened, want)
+			}
+		})
+	}
+	// No uncertainty: the intervals are the point value.
+	y := YieldOf([]Window{{OpenProbability: 1, P1: 0.5, P0: 0.5, Probability: 0.5}}, 1)
+	if y.All68 != [2]float64{0.5, 0.5} || y.All95 != [2]float64{0.5, 0.5} {
+		t.Errorf("certain template: intervals %v, %v, want [0.5 0.5]", y.All68, y.All95)
+	}
+}
+
+func TestYieldMultipleDonors(t *testing.T) {
+	// A window that usually takes two or more donors (as Campbell et al.
+	// 2022 find for 2 x 3 dimers, where at least one donor is nearly
+	// certain): rarely good, counted as multiple.
+	ws := []Window{{Template: "big", OpenProbability: 0.9, P0: 0.02, P1: 0.28, P2Plus: 0.7, Probability: 0.9 * 0.28}}
+	y := YieldOf(ws, 1)
+	if math.Abs(y.All-0.252) > 1e-12 || math.Abs(y.ExpectedMultiple-0.63) > 1e-12 || math.Abs(y.ExpectedEmpty-0.018) > 1e-12 {
+		t.Errorf("all %v (want 0.252), multiple %v (want 0.63), empty %v (want 0.018)", y.All, y.ExpectedMultiple, y.ExpectedEmpty)
+	}
 }

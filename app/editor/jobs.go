@@ -2,7 +2,10 @@ package editor
 
 import (
 	"context"
+	"fmt"
 	"io"
+	"math"
+	"strconv"
 	"strings"
 	"time"
 
@@ -22,14 +25,19 @@ type Jobs struct {
 	Plan             func(ctx context.Context, d *design.Design, variant string, prof planner.Profile, opt planner.Options) (*planner.Plan, error)
 	Export           func(ctx context.Context, path string, d *design.Design, p *planner.Plan, es ExportSettings, progress func(string, float64)) error
 	ExportComparison func(ctx context.Context, path string, res []export.VariantResult, es ExportSettings) error
+	// Sweep plans one variant for each value of a parameter
+	// (planner.PlanSweep); ExportSweep writes its report.
+	Sweep       func(ctx context.Context, d *design.Design, variant string, prof planner.Profile, param string, values []string, opt planner.SweepOptions) (*planner.Sweep, error)
+	ExportSweep func(ctx context.Context, path string, sw *planner.Sweep, es ExportSettings) error
 	// SaveRecovery writes the autosaved recovery copy of the design.
 	SaveRecovery func(path string, d *design.Design) error
 }
 
 // DefaultJobs returns the real work: CheckDesign, BuildPlan, ExportPlan,
-// ExportComparison and SaveDesign.
+// ExportComparison, planner.PlanSweep, ExportSweep and SaveDesign.
 func DefaultJobs() Jobs {
-	return Jobs{Check: CheckDesign, Plan: BuildPlan, Export: ExportPlan, ExportComparison: ExportComparison, SaveRecovery: SaveDesign}
+	return Jobs{Check: CheckDesign, Plan: BuildPlan, Export: ExportPlan, ExportComparison: ExportComparison,
+		Sweep: planner.PlanSweep, ExportSweep: ExportSweep, SaveRecovery: SaveDesign}
 }
 
 // Finding is a design-rule finding as the GUI lists and draws it.
@@ -125,6 +133,59 @@ func ExportComparison(ctx context.Context, path string, res []export.VariantResu
 		}
 		return export.WriteComparisonPDF(ctx, w, res, opt)
 	})
+}
+
+// ExportSweep writes the report of a sweep to path (.pdf or .svg).
+func ExportSweep(ctx context.Context, path string, sw *planner.Sweep, es ExportSettings) error {
+	return export.WriteSweepFile(ctx, path, sw, export.Options{Paper: es.Paper, Date: es.Date, Generator: es.Generator})
+}
+
+// SweepParameters lists what a sweep of the variant can vary with prof
+// (planner.SweepParameters).
+func SweepParameters(d *design.Design, variant string, prof planner.Profile) []planner.SweepParameter {
+	return planner.SweepParameters(d, variant, prof)
+}
+
+// CheckSweep checks a sweep without planning it (planner.CheckSweep): a
+// *planner.SweepError lists every refused value.
+func CheckSweep(d *design.Design, variant string, prof planner.Profile, param string, values []string) error {
+	_, err := planner.CheckSweep(d, variant, prof, param, values)
+	return err
+}
+
+// SuggestSweepValues returns values to start a sweep of p from, as the
+// sweep form shows them, leaving out any the sweep would refuse: a
+// profile number at half, once, twice and four times its present value
+// (a whole number at once to four times); an array at about a tenth, a
+// third and the whole of its present size (at least 1 x 1). It returns
+// "" when nothing fits (a parameter at 0).
+func SuggestSweepValues(d *design.Design, variant string, prof planner.Profile, p planner.SweepParameter) string {
+	var vals []string
+	seen := map[string]bool{}
+	try := func(v string) {
+		if !seen[v] && CheckSweep(d, variant, prof, p.Name, []string{v}) == nil {
+			vals = append(vals, v)
+		}
+		seen[v] = true
+	}
+	if p.Array != nil {
+		for _, f := range []float64{0.1, 0.3, 1} {
+			try(fmt.Sprintf("%dx%d", max(1, int(math.Round(float64(p.Array.Cols)*f))), max(1, int(math.Round(float64(p.Array.Rows)*f)))))
+		}
+		return strings.Join(vals, ",")
+	}
+	x, err := strconv.ParseFloat(p.Current, 64)
+	if err != nil || x == 0 {
+		return ""
+	}
+	factors := []float64{0.5, 1, 2, 4}
+	if p.Whole {
+		factors = []float64{1, 2, 3, 4}
+	}
+	for _, f := range factors {
+		try(strconv.FormatFloat(x*f, 'g', 6, 64))
+	}
+	return strings.Join(vals, ",")
 }
 
 // VariantDifferences lays out every variant of d and says how each one

@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"dimerpath/internal/jsonfile"
+	"dimerpath/planner"
 )
 
 func TestRecoveryRoundTrip(t *testing.T) {
@@ -37,12 +38,45 @@ func TestRecoveryRoundTrip(t *testing.T) {
 	}
 }
 
+// Issue 13: the recovery copy keeps the working state around the design:
+// the variant shown, the view, the last plan's inputs and the profile;
+// a description written before these were kept still reads.
+func TestRecoveryKeepsTheWorkingState(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "config")
+	d, _ := DemoDesign()
+	prof := planner.LowTemperatureProfile()
+	info := RecoveryInfo{Path: "", SavedAt: time.Date(2026, 3, 14, 9, 26, 53, 0, time.UTC), Design: d.Name, Variant: "gap-12-source",
+		View: &RecoveryView{CentreNM: [2]float64{1000, 1009.2}, NMPerPixel: 0.04}, Plan: &RecoveryPlan{Variant: "gap-12-source", Seed: 7}}
+	if err := WriteRecovery(dir, d, info, SaveDesign); err != nil {
+		t.Fatal(err)
+	}
+	if err := WriteRecoveryInfo(dir, info, &prof); err != nil {
+		t.Fatal(err)
+	}
+	_, got, err := LoadRecovery(dir)
+	if err != nil || got.Variant != info.Variant || got.View == nil || *got.View != *info.View || got.Plan == nil || *got.Plan != *info.Plan {
+		t.Fatalf("LoadRecovery = %+v, %v; want %+v", got, err, info)
+	}
+	if p, ok := LoadRecoveryProfile(dir); !ok || p.Name != prof.Name {
+		t.Errorf("recovery profile %q (ok %v), want %q", p.Name, ok, prof.Name)
+	}
+	old := `{"path": "", "saved_at": "2026-03-14T09:00:00Z", "design": "d"}`
+	if in, err := ParseRecoveryInfo("old.json", []byte(old)); err != nil || in.View != nil || in.Plan != nil || in.Variant != "" {
+		t.Errorf("a description of before: %+v, %v", in, err)
+	}
+	RemoveRecovery(dir)
+	if _, ok := LoadRecoveryProfile(dir); ok {
+		t.Error("the recovery profile outlived RemoveRecovery")
+	}
+}
+
 func TestParseRecoveryInfoRefuses(t *testing.T) {
 	for _, c := range []struct{ in, want string }{
 		{`{"path": "", "saved_at": "2026-03-14T09:00:00Z"}`, "meta.json:1:1: design: missing"},
 		{`{"path": "", "saved_at": "2026-03-14T09:00:00Z", "design": "d", "Design": "e"}`, `Design: unknown field: names are case-sensitive`},
 		{`{"path": "", "saved_at": "soon", "design": "d"}`, `saved_at: parsing time "soon"`},
 		{`[]`, "want an object, not a list"},
+		{`{"path": "", "saved_at": "2026-03-14T09:00:00Z", "design": "d", "view": {"centre_nm": [1, 2], "nm_per_pixel": 0}}`, "view.nm_per_pixel = 0: must be more than 0"},
 	} {
 		_, err := ParseRecoveryInfo("meta.json", []byte(c.in))
 		if !errors.Is(err, ErrRecoveryMeta) || !strings.Contains(err.Error(), c.want) {
@@ -58,6 +92,7 @@ func FuzzParseRecoveryInfo(f *testing.F) {
 	f.Add([]byte(`{"path": "/a/b.json", "saved_at": "2026-03-14T09:26:53Z", "design": "Kestrel"}`))
 	f.Add([]byte(`{"path": "", "saved_at": "2026-03-14T09:26:53.123456789+01:00", "design": ""}`))
 	f.Add([]byte(`{"saved_at": NaN}`))
+	f.Add([]byte(`{"path": "", "saved_at": "2026-03-14T09:26:53Z", "design": "K", "variant": "B", "view": {"centre_nm": [1, 2], "nm_per_pixel": 0.5}, "plan": {"variant": "B", "seed": 3}}`))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		info, err := ParseRecoveryInfo("f.json", data)
 		if err != nil {
@@ -68,7 +103,9 @@ func FuzzParseRecoveryInfo(f *testing.F) {
 			t.Fatalf("accepted description does not write: %v", err)
 		}
 		back, err := ParseRecoveryInfo("again.json", again)
-		if err != nil || back.Path != info.Path || back.Design != info.Design || !back.SavedAt.Equal(info.SavedAt) {
+		if err != nil || back.Path != info.Path || back.Design != info.Design || !back.SavedAt.Equal(info.SavedAt) || back.Variant != info.Variant ||
+			(back.View == nil) != (info.View == nil) || (back.View != nil && *back.View != *info.View) ||
+			(back.Plan == nil) != (info.Plan == nil) || (back.Plan != nil && *back.Plan != *info.Plan) {
 			t.Fatalf("round trip: %+v -> %+v, %v", info, back, err)
 		}
 	})

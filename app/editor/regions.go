@@ -2,9 +2,11 @@ package editor
 
 import (
 	"fmt"
+	"image/color"
 	"slices"
 	"strings"
 
+	"dimerpath/app/render"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -26,6 +28,13 @@ func (s *Session) uniqueRegionName(base string) string {
 	}
 }
 
+// NewRegionName returns the name a new region of role r would get: the
+// role's base name ("lead", "pad", "device"), made unique in the
+// current variant ("lead 2").
+func (s *Session) NewRegionName(r design.Role) string {
+	return s.uniqueRegionName(regionBaseName(r))
+}
+
 // AddRegion appends a region with the given name (made unique) and
 // role, selects it and returns its index.
 func (s *Session) AddRegion(name string, role design.Role) int {
@@ -37,9 +46,9 @@ func (s *Session) AddRegion(name string, role design.Role) int {
 // addRegion appends a region without committing.
 func (s *Session) addRegion(name string, role design.Role) int {
 	if strings.TrimSpace(name) == "" {
-		name = "region"
+		name = regionBaseName(role)
 	}
-	r := design.Region{Name: s.uniqueRegionName(name), Role: role, Mode: design.ModeAuto}
+	r := design.Region{Name: s.uniqueRegionName(name), Role: role, Mode: design.ModeAuto, Colour: s.freeColour()}
 	v := s.Variant()
 	v.Regions = append(v.Regions, r)
 	s.ids[s.variant] = append(s.ids[s.variant], s.newID())
@@ -154,7 +163,7 @@ func (s *Session) setRegion(i int, what string, f func(*design.Region)) error {
 	old := v.Regions[i]
 	r := old
 	f(&r)
-	if r.Role == old.Role && r.Mode == old.Mode && r.Species == old.Species && r.ToleranceNM == old.ToleranceNM {
+	if r.Role == old.Role && r.Mode == old.Mode && r.Species == old.Species && r.ToleranceNM == old.ToleranceNM && r.Colour == old.Colour {
 		return nil
 	}
 	err := s.validEdit("set "+what+" of "+r.Name, func() func() {
@@ -167,4 +176,53 @@ func (s *Session) setRegion(i int, what string, f func(*design.Region)) error {
 	s.touch(s.variant, i)
 	s.commit("set "+what+" of "+r.Name, fmt.Sprintf("%s-%d-%d", what, s.variant, i), ChangeRegions)
 	return nil
+}
+
+// RegionColour returns the colour region i of the current variant is
+// drawn in: its own (design.Region.Colour), which stays with it, or the
+// palette's colour for its place when it has none or an unreadable one.
+func (s *Session) RegionColour(i int) color.NRGBA {
+	v := s.Variant()
+	if i >= 0 && i < len(v.Regions) {
+		if c, ok := render.ParseColour(v.Regions[i].Colour); ok {
+			return c
+		}
+	}
+	return render.RegionColor(i)
+}
+
+// SetRegionColour sets region i's colour, "#rrggbb".
+func (s *Session) SetRegionColour(i int, colour string) error {
+	return s.setRegion(i, "colour", func(r *design.Region) { r.Colour = colour })
+}
+
+// giveColours gives every region without a colour the palette's colour
+// for its place in its variant, as it was drawn before regions kept
+// their own: opening a design changes nothing on screen, and from then
+// on deleting a region recolours no other.
+func giveColours(d *design.Design) {
+	for v := range d.Variants {
+		for i := range d.Variants[v].Regions {
+			if r := &d.Variants[v].Regions[i]; r.Colour == "" {
+				r.Colour = render.ColourHex(render.RegionColor(i))
+			}
+		}
+	}
+}
+
+// freeColour returns the first palette colour no region of the current
+// variant has, or the palette's colour for the next place when all are
+// taken.
+func (s *Session) freeColour() string {
+	used := map[string]bool{}
+	v := s.Variant()
+	for _, r := range v.Regions {
+		used[strings.ToLower(r.Colour)] = true
+	}
+	for _, c := range render.RegionPalette() {
+		if h := render.ColourHex(c); !used[h] {
+			return h
+		}
+	}
+	return render.ColourHex(render.RegionColor(len(v.Regions)))
 }

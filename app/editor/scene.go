@@ -22,7 +22,7 @@ func (s *Session) Scene(o SceneOptions) *render.Scene {
 	for i := range s.Variant().Regions {
 		sc.Layers = append(sc.Layers, render.Layer{
 			Sites:    s.RegionSites(i),
-			Color:    render.RegionColor(i),
+			Color:    s.RegionColour(i),
 			Bounds:   s.RegionBounds(i),
 			Selected: sel[i],
 		})

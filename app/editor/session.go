@@ -45,6 +45,7 @@ type Session struct {
 
 	gesture *gesture
 	hoverAt hoverState
+	near    float64 // the last click's snapping distance, nm, for previews
 
 	plan        *planner.Plan
 	planVariant string
@@ -65,6 +66,10 @@ type Session struct {
 	// Err is the last problem an edit or rasterisation reported, for the
 	// status bar; edits that fail also return it.
 	Err error
+	// Notice is what the last edit did that the user should know of
+	// (a region made for a stroke, with the role guessed for it), for
+	// the status bar, which clears it.
+	Notice string
 }
 
 // Change says which part of the session changed, so views redraw only
@@ -97,6 +102,7 @@ func NewSession(d *design.Design, path string) (*Session, error) {
 	if len(d.Variants) == 0 {
 		d.Variants = []design.Variant{{Name: "A"}}
 	}
+	giveColours(d)
 	s := &Session{
 		d: d, path: path,
 		fresh:  map[regionID]bool{},

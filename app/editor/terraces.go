@@ -63,7 +63,7 @@ func (s *Session) AddTerrace(poly []r2.Point) (int, error) {
 	if len(poly) < 3 {
 		return -1, errors.New("a terrace outline needs at least 3 points")
 	}
-	from := s.surf.TerraceAt(poly[0])
+	from := s.terraceUnder(poly[0])
 	if from < 0 {
 		return -1, fmt.Errorf("the first point (%.1f, %.1f) nm of a terrace outline must lie on a terrace of the field", poly[0].X, poly[0].Y)
 	}

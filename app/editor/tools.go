@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 
+	"github.com/golang/geo/r1"
 	"github.com/golang/geo/r2"
 
 	"dimerpath/app/render"
@@ -184,6 +185,8 @@ func (s *Session) Hover(p r2.Point) {
 		s.notify(ChangePreview) // the rubber band to the pointer
 	case s.Opts.BrushNM > 0 && (s.Tool == ToolSite || s.Tool == ToolDimer || s.Tool == ToolEraser):
 		s.notify(ChangePreview) // the brush outline
+	case s.Tool == ToolArray:
+		s.notify(ChangePreview) // the array a click would place
 	}
 }
 
@@ -203,7 +206,7 @@ func (s *Session) Press(p r2.Point) {
 		g := &gesture{tool: s.Tool, start: p, last: p, pressed: true, target: -1}
 		s.gesture = g
 		if s.Tool != ToolEraser {
-			g.target, g.created = s.paintTarget(false)
+			g.target, g.created = s.paintTarget(nil)
 		}
 		s.brush(p, p)
 	case ToolRect:
@@ -300,6 +303,7 @@ func (s *Session) Release(p r2.Point) {
 // close (nm) a click must be to a path's first or last vertex to close
 // or end it.
 func (s *Session) Click(p r2.Point, near float64) {
+	s.near = near
 	switch s.Tool {
 	case ToolSite, ToolDimer, ToolEraser:
 		s.Press(p)
@@ -335,12 +339,18 @@ func (s *Session) Click(p r2.Point, near float64) {
 	case ToolPolygon, ToolLine, ToolTerrace:
 		q := s.snapDimerCentre(p)
 		if s.Tool == ToolTerrace {
-			q = r2.Point{X: round2(p.X), Y: round2(p.Y)}
+			q = s.snapToFieldEdge(p, near)
 		}
 		g := s.gesture
 		if g == nil || g.tool != s.Tool {
 			g = &gesture{tool: s.Tool}
 			s.gesture = g
+		}
+		if s.Tool == ToolTerrace && len(g.points) == 0 && s.terraceUnder(q) < 0 {
+			// Refused now, not after the outline is done.
+			s.Err = fmt.Errorf("a terrace outline starts on the terrace it steps from: (%.2f, %.2f) nm is on none", q.X, q.Y)
+			s.notify(ChangePreview)
+			return
 		}
 		if n := len(g.points); n > 0 {
 			closing := s.Tool != ToolLine && n >= 3 && p.Sub(g.points[0]).Norm() <= near
@@ -366,20 +376,26 @@ func (s *Session) FinishPath() error {
 	}
 	s.gesture = nil
 	defer s.notify(ChangePreview)
+	// A path that cannot be finished keeps its points, to add to or Esc.
+	keep := func(err error) error {
+		s.gesture = g
+		return err
+	}
 	switch g.tool {
 	case ToolPolygon:
 		if len(g.points) < 3 {
-			return errors.New("a polygon needs at least 3 vertices")
+			return keep(errors.New("a polygon needs at least 3 vertices"))
 		}
 		s.addShape(design.Shape{Kind: design.ShapePolygon, Points: pts(g.points...)}, "polygon")
 	case ToolLine:
 		if len(g.points) < 2 {
-			return errors.New("a line needs at least 2 vertices")
+			return keep(errors.New("a line needs at least 2 vertices"))
 		}
 		s.addShape(design.Shape{Kind: design.ShapePolyline, Points: pts(g.points...), WidthNM: s.Opts.LineWidthNM}, "line")
 	case ToolTerrace:
-		_, err := s.AddTerrace(g.points)
-		return err
+		if _, err := s.AddTerrace(g.points); err != nil {
+			return keep(err)
+		}
 	}
 	return nil
 }
@@ -404,18 +420,63 @@ func pts(ps ...r2.Point) [][2]float64 {
 	return out
 }
 
-// paintTarget returns the region a painting tool draws into: the active
-// region, or (for windows, an active donor region or the first donor
-// region of the template's species) a new one. created says a region was
-// added; it is committed with the edit that paints it.
-func (s *Session) paintTarget(window bool) (int, bool) {
+// PadMinNM is the side from which a rectangle or polygon drawn into a
+// new region is taken for a contact pad: pads are hundreds of nm across,
+// islands and gates tens (the demo's pads are 700 nm, its island 20 nm).
+const PadMinNM = 100
+
+// newRegionRole guesses the role of a region made for shape sh (nil for
+// brush strokes) and says why, for the notice: a window (or an array of
+// them) goes to a donor region, a line is a lead, a rectangle or polygon
+// PadMinNM or more a side a pad, anything else a device.
+func newRegionRole(sh *design.Shape) (design.Role, string) {
+	if sh == nil {
+		return design.RoleDevice, "painted sites"
+	}
+	switch sh.Kind {
+	case design.ShapePolyline:
+		return design.RoleLead, "a line"
+	case design.ShapeRect, design.ShapePolygon:
+		b := r2.EmptyRect()
+		for _, q := range sh.Points {
+			b = b.AddPoint(r2.Point{X: q[0], Y: q[1]})
+		}
+		if sz := b.Size(); sz.X >= PadMinNM && sz.Y >= PadMinNM {
+			return design.RolePad, fmt.Sprintf("a %s %d nm or more a side", ShapeName(*sh), PadMinNM)
+		}
+		return design.RoleDevice, fmt.Sprintf("a %s under %d nm a side", ShapeName(*sh), PadMinNM)
+	}
+	return design.RoleDevice, "a " + ShapeName(*sh)
+}
+
+// regionBaseName is the name a new region of role r starts from, made
+// unique by a number: "lead", "lead 2".
+func regionBaseName(r design.Role) string {
+	switch r {
+	case design.RoleDevice, design.RoleGate, design.RoleLead, design.RolePad:
+		return string(r)
+	}
+	return "region"
+}
+
+// paintTarget returns the region a painting tool draws shape sh into
+// (nil for brush strokes): the active region, or (for windows, an active
+// donor region or the first donor region of the template's species) a
+// new one, named uniquely after the role newRegionRole infers from sh,
+// with a Notice saying so. created says a region was added; it is
+// committed with the edit that paints it.
+func (s *Session) paintTarget(sh *design.Shape) (int, bool) {
 	v := s.Variant()
 	a := s.Active()
+	window := sh != nil && (sh.Kind == design.ShapeWindow || (sh.Kind == design.ShapeArray && sh.Array != nil && sh.Array.Of != nil && sh.Array.Of.Kind == design.ShapeWindow))
 	if !window {
 		if a >= 0 {
 			return a, false
 		}
-		return s.addRegion("region", design.RoleDevice), true
+		role, why := newRegionRole(sh)
+		i := s.addRegion(regionBaseName(role), role)
+		s.Notice = fmt.Sprintf("New region %q, role %s (from %s): rename it or change its role in Regions.", v.Regions[i].Name, role.Name(), why)
+		return i, true
 	}
 	tpl, _ := TemplateOf(s.d, s.Opts.Template)
 	if a >= 0 && v.Regions[a].Role == design.RoleDonor {
@@ -430,14 +491,14 @@ func (s *Session) paintTarget(window bool) (int, bool) {
 	i := s.addRegion(tpl.Species+" donors", design.RoleDonor)
 	v.Regions[i].Species = tpl.Species
 	v.Regions[i].Mode = design.ModeAP
+	s.Notice = fmt.Sprintf("New region %q for %s windows, role %s, atomic precision.", v.Regions[i].Name, tpl.Species, design.RoleDonor.Name())
 	return i, true
 }
 
 // addShape adds sh to the paint target and commits. The shape's sites
 // are taken off the region's erased sites, so a new shape shows whole.
 func (s *Session) addShape(sh design.Shape, what string) {
-	window := sh.Kind == design.ShapeWindow || (sh.Kind == design.ShapeArray && sh.Array.Of.Kind == design.ShapeWindow)
-	i, _ := s.paintTarget(window)
+	i, _ := s.paintTarget(&sh)
 	sites, err := ShapeSites(s.surf, s.d, &sh)
 	if err != nil {
 		s.Err = err
@@ -573,6 +634,36 @@ func (s *Session) terraceFor(a, b r2.Point) int {
 	return ti
 }
 
+// snapToFieldEdge returns p for a terrace outline: on the field's border
+// when it lies within near nm of it or beyond it (so an outline drawn to
+// the edge leaves no strip of the old terrace along it), rounded to
+// 0.01 nm.
+func (s *Session) snapToFieldEdge(p r2.Point, near float64) r2.Point {
+	f := s.surf.Field
+	snap := func(v, lo, hi float64) float64 {
+		switch {
+		case v <= lo+near:
+			return lo
+		case v >= hi-near:
+			return hi
+		}
+		return round2(v)
+	}
+	return r2.Point{X: snap(p.X, f.X.Lo, f.X.Hi), Y: snap(p.Y, f.Y.Lo, f.Y.Hi)}
+}
+
+// terraceUnder returns the terrace under p, looking a hair inside the
+// field for a point on its border, or -1.
+func (s *Session) terraceUnder(p r2.Point) int {
+	if t := s.surf.TerraceAt(p); t >= 0 {
+		return t
+	}
+	const hair = 0.01 // nm
+	f := s.surf.Field
+	q := r2.Point{X: min(max(p.X, f.X.Lo+hair), f.X.Hi-hair), Y: min(max(p.Y, f.Y.Lo+hair), f.Y.Hi-hair)}
+	return s.surf.TerraceAt(q)
+}
+
 // Preview returns the shape the current tool is drawing, or the brush
 // outline under the pointer, or nil.
 func (s *Session) Preview() *render.Preview {
@@ -593,7 +684,7 @@ func (s *Session) Preview() *render.Preview {
 			if s.hoverAt.ok {
 				q := s.snapDimerCentre(s.hoverAt.at)
 				if g.tool == ToolTerrace {
-					q = s.hoverAt.at
+					q = s.snapToFieldEdge(s.hoverAt.at, s.near)
 				}
 				p.Points = append(p.Points, q)
 			}
@@ -609,6 +700,56 @@ func (s *Session) Preview() *render.Preview {
 		if s.hoverAt.ok && s.Opts.BrushNM > 0 {
 			return &render.Preview{Points: []r2.Point{s.hoverAt.at}, BrushNM: s.Opts.BrushNM}
 		}
+	case ToolArray:
+		if s.hoverAt.ok {
+			return s.arrayPreview(s.hoverAt.at)
+		}
 	}
 	return nil
+}
+
+// maxPreviewCells bounds the elements an array preview fills; a larger
+// array shows its extent alone.
+const maxPreviewCells = 4096
+
+// arrayPreview is what a click of the Array tool at p would place: the
+// extent of the array and, up to maxPreviewCells, each element's cells
+// (whole dimers of one row, or one site's half of a dimer), snapped as
+// the click snaps them.
+func (s *Session) arrayPreview(p r2.Point) *render.Preview {
+	o := s.Opts
+	at := s.snapDimerCentre(p)
+	if o.ArrayOf == "site" {
+		at = s.snapSite(p)
+	}
+	t := s.surf.TerraceAt(at)
+	if t < 0 {
+		return nil
+	}
+	f := s.surf.Frame(t)
+	a0, c0 := f.ToLocal(at)
+	halfAlong, halfAcross := lattice.DimerPitch/2, lattice.RowSpacing/2
+	if o.ArrayOf == "window" {
+		if tpl, ok := TemplateOf(s.d, o.Template); ok {
+			halfAlong = float64(tpl.Dimers) * lattice.DimerPitch / 2
+		}
+	}
+	if o.ArrayOf == "site" {
+		halfAcross = lattice.RowSpacing / 4
+	}
+	cell := func(i, j int) r2.Rect {
+		a := a0 + float64(i*o.ArrayPitchDimers)*lattice.DimerPitch
+		c := c0 + float64(j*o.ArrayPitchRows)*lattice.RowSpacing
+		return f.FieldRect(r1.Interval{Lo: a - halfAlong, Hi: a + halfAlong}, r1.Interval{Lo: c - halfAcross, Hi: c + halfAcross})
+	}
+	ext := cell(0, 0).Union(cell(o.ArrayCols-1, o.ArrayRows-1))
+	pv := &render.Preview{Points: []r2.Point{ext.Lo(), ext.Hi()}, Rect: true}
+	if o.ArrayCols*o.ArrayRows <= maxPreviewCells {
+		for j := range o.ArrayRows {
+			for i := range o.ArrayCols {
+				pv.Cells = append(pv.Cells, cell(i, j))
+			}
+		}
+	}
+	return pv
 }

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"path/filepath"
+	"strings"
 	"time"
 
 	"fyne.io/fyne/v2"
@@ -32,9 +33,25 @@ func (u *UI) showProgress(msg string, f float64) {
 	u.progressMsg.SetText(msg)
 	u.progress.SetValue(f)
 	u.progressBox.Show()
+	u.refreshBusy()
 }
 
-func (u *UI) hideProgress() { u.progressBox.Hide() }
+func (u *UI) hideProgress() {
+	u.progressBox.Hide()
+	u.refreshBusy()
+}
+
+// refreshBusy enables Plan > Cancel planning while a plan or comparison
+// runs, and only then.
+func (u *UI) refreshBusy() {
+	if u.cancelItem == nil || u.cancelItem.Disabled == !u.Busy() {
+		return
+	}
+	u.cancelItem.Disabled = !u.Busy()
+	if u.menu != nil {
+		u.menu.Refresh()
+	}
+}
 
 // Busy reports whether a plan or comparison is running.
 func (u *UI) Busy() bool { return u.planCancel != nil }
@@ -291,13 +308,14 @@ func rulesSummary(check func(context.Context, *design.Design, string) (editor.Ch
 }
 
 // comparisonView is the table and charts of a comparison: per variant
-// the write time with its spread, the share spent on registrations, and
-// the dopant yield. The full breakdown is in the exported report.
+// the session time with its spread, the lithography steps, the
+// probability of staying within tolerance, and the dopant yield. The
+// full breakdown is in the exported report.
 //
 // rules, when given, is each variant's design-rule summary, shown in a
 // last column: a fast variant that breaks the rules is no choice.
 func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObject {
-	header := []string{"Variant", "Write time", "P10 – P90", "Registrations", "All windows good", "Devices / perfect", "Coverage"}
+	header := []string{"Variant", "Session (mean)", "P10 – P90", "Steps", "Within tolerance", "All windows good", "Coverage"}
 	if rules != nil {
 		header = append(header, "Design rules")
 	}
@@ -324,19 +342,20 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 			continue
 		}
 		p := r.Plan
-		dev := "—"
-		if p.Yield.DevicesPerPerfect > 0 {
-			dev = fmt.Sprintf("%.1f", p.Yield.DevicesPerPerfect)
-		}
 		all := "no windows"
 		if p.Yield.Windows > 0 {
 			all = formatProbability(p.Yield.All)
 		}
-		reg := units.Duration(p.Breakdown.RegistrationS)
-		if p.TotalS > 0 {
-			reg += fmt.Sprintf(" (%.0f %%)", 100*p.Breakdown.RegistrationS/p.TotalS)
+		var steps []string
+		for _, st := range p.Steps {
+			if st.Kind == planner.StepLithography {
+				steps = append(steps, st.Species)
+			}
 		}
-		for _, t := range []string{r.Variant, units.Duration(p.TotalS), units.Duration(p.P10S) + " – " + units.Duration(p.P90S), reg, all, dev} {
+		// Times to the second (h:mm:ss): variants a few seconds apart read
+		// alike in whole minutes.
+		for _, t := range []string{r.Variant, units.Clock(p.TotalS), units.Clock(p.P10S) + " – " + units.Clock(p.P90S),
+			strings.Join(steps, ", "), formatProbability(p.PInTolerance), all} {
 			cells = append(cells, widget.NewLabel(t))
 		}
 		cov := widget.NewLabel("passed")
@@ -352,12 +371,12 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 			}
 			cells = append(cells, l)
 		}
-		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: units.Duration(p.TotalS), Color: render.SegmentColor(i)})
+		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: units.Clock(p.TotalS), Color: render.SegmentColor(i)})
 		yieldBars = append(yieldBars, Bar{Label: r.Variant, Value: p.Yield.All, Text: all, Color: colYield})
 	}
 	table := container.New(&tableLayout{cols: cols}, cells...)
 	charts := container.NewGridWithColumns(2,
-		container.NewVBox(heading("Write time per variant"), NewBarChart(timeBars)),
+		container.NewVBox(heading("Session time per variant"), NewBarChart(timeBars)),
 		container.NewVBox(heading("Chance every window takes one donor"), NewBarChart(yieldBars)))
 	parts := []fyne.CanvasObject{table}
 	if diffs := differencesView(res); diffs != nil {
@@ -409,7 +428,7 @@ func (u *UI) showComparison(res []export.VariantResult, rules []string) {
 	content := container.NewScroll(comparisonView(res, rules))
 	var d *dialog.CustomDialog
 	report := widget.NewButtonWithIcon("Export report…", theme.DocumentPrintIcon(), func() {
-		u.withCaution("the comparison report", func(es editor.ExportSettings) {
+		u.withCaution("the comparison report", "report", func(es editor.ExportSettings) {
 			u.chooseFile(safeFileName(u.Session.Design().Name)+"-variants.pdf", []string{".pdf", ".svg"}, func(path string) {
 				u.exportComparisonTo(path, res, es)
 			})

@@ -115,7 +115,10 @@ func (r *barRenderer) Layout(size fyne.Size) {
 
 func (r *barRenderer) MinSize() fyne.Size {
 	lw, tw, rowH := r.columns()
-	return fyne.NewSize(lw+tw+120, rowH*float32(len(r.c.bars)))
+	// Bars need little room to be read; the labels and figures set the
+	// width, so a chart of long names (the session's fourteen kinds of
+	// time) still fits a narrow panel.
+	return fyne.NewSize(lw+tw+48, rowH*float32(len(r.c.bars)))
 }
 
 func (r *barRenderer) Refresh() {

@@ -2,8 +2,10 @@ package gui
 
 import (
 	"context"
+	"dimerpath/internal/jsonfile"
 	"errors"
 	"fmt"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"slices"
@@ -17,6 +19,7 @@ import (
 	"fyne.io/fyne/v2/dialog"
 	"fyne.io/fyne/v2/storage"
 	"fyne.io/fyne/v2/widget"
+	"github.com/golang/geo/r2"
 
 	"dimerpath/app/editor"
 	"dimerpath/export"
@@ -29,10 +32,10 @@ import (
 // the recovery autosave, and exports.
 
 const (
-	prefRecent   = "recent-files"
-	maxRecent    = 8
-	recoveryName = editor.RecoveryName
-	recoveryMeta = editor.RecoveryMetaName
+	prefRecent       = "recent-files"
+	maxRecent        = 8
+	recoveryName     = editor.RecoveryName
+	recoveryMetaName = editor.RecoveryMetaName
 )
 
 // recoveryInfo is stored beside the recovery copy of the design.
@@ -137,8 +140,26 @@ func (u *UI) OpenPath(path string) error {
 			return nil
 		}
 	}
-	dialog.ShowError(fmt.Errorf("could not open %s:\n%w", path, err), u.Win)
+	dialog.ShowError(errors.New(openErrorText(path, err)), u.Win)
 	return err
+}
+
+// openErrorText says why path could not be opened, naming the file once:
+// in the first line, the problems after it by line and column (the
+// design reader's errors name the file on every line, which the dialog
+// repeated after its own "could not open PATH").
+func openErrorText(path string, err error) string {
+	var je *jsonfile.Error
+	var pe *fs.PathError
+	switch {
+	case errors.As(err, &je):
+		c := *je
+		c.File = ""
+		return fmt.Sprintf("Could not open %s:\n%s", path, c.Error())
+	case errors.As(err, &pe):
+		return fmt.Sprintf("Could not open %s: %v", path, pe.Err)
+	}
+	return fmt.Sprintf("Could not open %s:\n%s", path, strings.ReplaceAll(err.Error(), path+": ", ""))
 }
 
 func (u *UI) newDesign() {
@@ -278,7 +299,8 @@ func (u *UI) refreshRecent() {
 // --- Autosave and recovery ---
 
 // StartAutosave writes the design to the recovery file every interval
-// while it has unsaved changes.
+// while it has unsaved changes (a fallback: scheduleAutosave writes it a
+// few seconds after each change).
 func (u *UI) StartAutosave() {
 	every := u.opts.Autosave
 	if every < 0 {
@@ -288,6 +310,7 @@ func (u *UI) StartAutosave() {
 		every = time.Minute
 	}
 	u.StopAutosave()
+	u.autosaveStopped = false
 	stop := make(chan struct{})
 	u.stopAutosave = stop
 	go func() {
@@ -304,28 +327,116 @@ func (u *UI) StartAutosave() {
 	}()
 }
 
-// StopAutosave stops the autosave ticker.
+// StopAutosave stops the autosave ticker and drops a pending debounced
+// autosave (on quitting, a copy written after the recovery files were
+// removed would be offered back next time).
 func (u *UI) StopAutosave() {
 	if u.stopAutosave != nil {
 		close(u.stopAutosave)
 		u.stopAutosave = nil
 	}
+	if u.autosaveTimer != nil {
+		u.autosaveTimer.Stop()
+		u.autosaveTimer = nil
+	}
+	u.autosaveStopped = true
 }
 
-// Autosave starts writing the recovery copy if the design changed since
-// the last copy and no copy is being written, and returns at once. On
-// Fyne's goroutine it only takes the current undo state, an immutable
-// snapshot that is already made; the design is assembled from it,
-// encoded and written in the background, so a design with millions of
-// hand-painted sites never stalls the window. One copy is written at a
-// time: a tick that finds one in flight leaves its state to the next
-// tick. The channel receives the write's result (nil when there was
-// nothing to write), for tests.
+// maxAutosaveWait bounds how long a change waits for its recovery copy
+// while changes keep coming: a user drawing without pause for a minute
+// still has a copy every 15 s.
+const maxAutosaveWait = 15 * time.Second
+
+// scheduleAutosave writes the recovery copy a few seconds after the last
+// change (an edit, another variant, a new plan, a pan or zoom; the wait
+// starts again with each), and at the latest maxAutosaveWait after the
+// first change it waits for. Autosave writes only unsaved work.
+func (u *UI) scheduleAutosave() {
+	delay := u.opts.AutosaveDelay
+	if u.opts.Autosave < 0 || delay < 0 || u.autosaveStopped {
+		return
+	}
+	if delay == 0 {
+		delay = 3 * time.Second
+	}
+	now := time.Now()
+	if u.autosaveTimer == nil {
+		u.autosaveFirst = now
+	} else {
+		u.autosaveTimer.Stop()
+	}
+	wait := min(delay, max(0, u.autosaveFirst.Add(maxAutosaveWait).Sub(now)))
+	var t *time.Timer
+	t = time.AfterFunc(wait, func() {
+		fyne.Do(func() {
+			if u.autosaveTimer == t {
+				u.autosaveTimer = nil
+				u.Autosave()
+			}
+		})
+	})
+	u.autosaveTimer = t
+}
+
+// workState is the working state the recovery copy's description
+// keeps besides the design: the variant shown, the view and the last
+// plan's inputs (editor.RecoveryInfo).
+type workState struct {
+	variant string
+	view    editor.RecoveryView
+	plan    editor.RecoveryPlan // zero without a plan
+	profile string              // the profile's name, to notice a change
+}
+
+// workingState returns the working state now.
+func (u *UI) workingState() workState {
+	s := u.Session
+	v := u.View.View()
+	m := workState{variant: s.Variant().Name, view: editor.RecoveryView{CentreNM: [2]float64{v.Center.X, v.Center.Y}, NMPerPixel: v.Scale},
+		profile: s.Profile.Name}
+	// The plan shown, also one an edit since made out of date: its inputs
+	// plan the recovered design again.
+	if p, _ := s.Plan(); p != nil {
+		m.plan = editor.RecoveryPlan{Variant: p.Variant, Seed: p.Seed}
+	}
+	return m
+}
+
+// info returns the description of a recovery copy with this state.
+func (m workState) info(path string) recoveryInfo {
+	info := recoveryInfo{Path: path, SavedAt: time.Now(), Variant: m.variant}
+	if m.view.NMPerPixel > 0 {
+		v := m.view
+		info.View = &v
+	}
+	if m.plan.Variant != "" {
+		p := m.plan
+		info.Plan = &p
+	}
+	return info
+}
+
+// Autosave starts writing the recovery copy if there is unsaved work
+// and it, or the working state around it (variant, view, last plan),
+// changed since the last copy, and no copy is being written; it returns
+// at once. On Fyne's goroutine it only takes the current undo state, an
+// immutable snapshot that is already made, and the working state; the
+// design is assembled from the snapshot, encoded and written in the
+// background, so a design with millions of hand-painted sites never
+// stalls the window. When only the working state changed, only the
+// description and the profile are written. One copy is written at a
+// time: a call that finds one in flight leaves its state to the next.
+// The channel receives the write's result (nil when there was nothing to
+// write), for tests.
 func (u *UI) Autosave() <-chan error {
 	done := make(chan error, 1)
 	s := u.Session
 	snap := s.Token()
-	if !s.Dirty() || snap == u.lastAutosave || u.autosaving {
+	meta := u.workingState()
+	if !s.Dirty() || (snap == u.lastAutosave && meta == u.lastMeta) || u.autosaving {
+		if u.autosaving {
+			u.scheduleAutosave() // try again once this write is done
+		}
 		done <- nil
 		return done
 	}
@@ -335,7 +446,9 @@ func (u *UI) Autosave() <-chan error {
 		return done
 	}
 	u.autosaving = true
-	info := recoveryInfo{Path: s.Path(), SavedAt: time.Now()}
+	info := meta.info(s.Path())
+	metaOnly := snap == u.lastAutosave
+	prof := s.Profile
 	rec := u.recovery
 	gen := rec.generation()
 	save := u.jobs.SaveRecovery
@@ -344,17 +457,22 @@ func (u *UI) Autosave() <-chan error {
 			return rec.write(gen, func() error {
 				d := snap.Design()
 				info.Design = d.Name
-				return writeRecovery(save, dir, d, info)
+				if !metaOnly {
+					if err := writeRecovery(save, dir, d, info); err != nil {
+						return err
+					}
+				}
+				return editor.WriteRecoveryInfo(dir, info, &prof)
 			})
 		})
 		fyne.Do(func() {
 			u.autosaving = false
 			if err == nil && u.Session == s {
-				u.lastAutosave = snap
+				u.lastAutosave, u.lastMeta = snap, meta
 			}
 			if _, bug := editor.BugDetails(err); bug {
 				// Not again for this state: the next edit tries anew.
-				u.lastAutosave = snap
+				u.lastAutosave, u.lastMeta = snap, meta
 				u.showBugOnce("Writing the recovery copy", err)
 			} else if err != nil {
 				u.hintLabel.SetText("Could not write the recovery copy to " + dir + ": " + err.Error())
@@ -464,7 +582,27 @@ func (u *UI) Recover() error {
 		return err
 	}
 	s.MarkUnsaved()
+	// The working state: the profile, the variant shown, the view, and
+	// the last plan, made again (the same design, profile and seed give
+	// the same plan).
+	if p, ok := editor.LoadRecoveryProfile(dir); ok {
+		s.SetProfile(p, "")
+	}
+	for i, n := range s.VariantNames() {
+		if n == info.Variant {
+			s.SetVariant(i)
+		}
+	}
 	u.SetSession(s)
+	if v := info.View; v != nil {
+		view := u.View.View()
+		view.Center, view.Scale = r2.Point{X: v.CentreNM[0], Y: v.CentreNM[1]}, v.NMPerPixel
+		u.View.SetView(view)
+	}
+	if p := info.Plan; p != nil && p.Variant == s.Variant().Name {
+		u.opts.Seed = p.Seed
+		u.StartPlan()
+	}
 	return nil
 }
 
@@ -475,25 +613,44 @@ const prefPaper = "paper"
 // withCaution shows the caution before an export, with the paper size
 // for printed reports, and runs then with the settings if the user goes
 // on.
-func (u *UI) withCaution(what string, then func(editor.ExportSettings)) {
-	paper := widget.NewRadioGroup([]string{"A4", "US Letter"}, nil)
-	paper.Horizontal = true
-	if u.App.Preferences().StringWithFallback(prefPaper, string(export.A4)) == string(export.Letter) {
-		paper.SetSelected("US Letter")
-	} else {
-		paper.SetSelected("A4")
+func (u *UI) withCaution(what, kind string, then func(editor.ExportSettings)) {
+	carries := map[string]string{
+		"pdf":    "The printed plan carries this caution on its first page and at the foot of every page.",
+		"svg":    "The SVG carries this caution under the figure.",
+		"json":   `The plan file carries this caution in its "caution" field.`,
+		"csv":    "The action CSV holds the tip actions only, not this caution: keep the two together.",
+		"report": "The report carries this caution at its top.",
+	}[kind]
+	parts := []fyne.CanvasObject{wrapLabel(planner.Caution + "\n\n" + carries)}
+	// Only what is printed has a paper size.
+	var paper *widget.RadioGroup
+	if kind == "pdf" || kind == "report" {
+		paper = widget.NewRadioGroup([]string{"A4", "US Letter"}, nil)
+		paper.Horizontal = true
+		if u.App.Preferences().StringWithFallback(prefPaper, string(export.A4)) == string(export.Letter) {
+			paper.SetSelected("US Letter")
+		} else {
+			paper.SetSelected("A4")
+		}
+		label := "Paper"
+		if kind == "report" {
+			label = "Paper (PDF)"
+		}
+		parts = append(parts, widget.NewForm(widget.NewFormItem(label, paper)))
 	}
-	msg := wrapLabel(planner.Caution + "\n\nThe printed plan carries this caution on its first page.")
-	content := container.NewVBox(msg, widget.NewForm(widget.NewFormItem("Paper", paper)))
-	dialog.ShowCustomConfirm("Before you export "+what, "Continue…", "Cancel", container.New(&fixedWidth{w: 480}, content), func(ok bool) {
+	dialog.ShowCustomConfirm("Before you export "+what, "Continue…", "Cancel", container.New(&fixedWidth{w: 480}, container.NewVBox(parts...)), func(ok bool) {
 		if !ok {
 			return
 		}
 		es := editor.ExportSettings{Paper: export.A4, Generator: u.opts.Generator, Date: time.Now()}
-		if paper.Selected == "US Letter" {
+		if paper != nil {
+			if paper.Selected == "US Letter" {
+				es.Paper = export.Letter
+			}
+			u.App.Preferences().SetString(prefPaper, string(es.Paper))
+		} else if u.App.Preferences().StringWithFallback(prefPaper, string(export.A4)) == string(export.Letter) {
 			es.Paper = export.Letter
 		}
-		u.App.Preferences().SetString(prefPaper, string(es.Paper))
 		then(es)
 	}, u.Win)
 }
@@ -517,7 +674,7 @@ func (u *UI) exportAs(kind string) {
 		return
 	}
 	d := u.Session.DesignCopy()
-	u.withCaution("the plan", func(es editor.ExportSettings) {
+	u.withCaution("the plan", kind, func(es editor.ExportSettings) {
 		name := safeFileName(u.Session.Design().Name+"-"+p.Variant) + "." + kind
 		u.chooseFile(name, []string{"." + kind}, func(path string) { u.exportPlanTo(path, d, p, es) })
 	})

@@ -3,6 +3,7 @@ package gui
 import (
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"dimerpath/app/editor"
@@ -151,5 +152,28 @@ func TestRemovalVoidsAnEarlierWrite(t *testing.T) {
 	}
 	if err := r.write(r.generation(), func() error { wrote = true; return nil }); err != nil || !wrote {
 		t.Errorf("a write after the removal did not happen (%v)", err)
+	}
+}
+
+// Issue 13: the open-error dialog repeated the path on every line; it
+// names the file once, then each problem by line and column.
+func TestOpenErrorNamesTheFileOnce(t *testing.T) {
+	bad := filepath.Join(t.TempDir(), "bad.json")
+	os.WriteFile(bad, []byte(`{"format": "dimerpath-design", "version": 1, "name": "x", "field": {"width_nm": -5, "height_nm": -7}}`), 0o644)
+	_, err := editor.LoadDesign(bad)
+	if err == nil {
+		t.Fatal("a design with a negative field loaded")
+	}
+	text := openErrorText(bad, err)
+	if n := strings.Count(text, bad); n != 1 {
+		t.Errorf("the message names the file %d times:\n%s", n, text)
+	}
+	if !strings.Contains(text, "line 1, column") || !strings.Contains(text, "field.width_nm") {
+		t.Errorf("the message lacks the problem's place:\n%s", text)
+	}
+	missing := filepath.Join(t.TempDir(), "gone.json")
+	_, err = editor.LoadDesign(missing)
+	if text := openErrorText(missing, err); strings.Count(text, missing) != 1 || !strings.Contains(text, "no such file") {
+		t.Errorf("missing file: %q", text)
 	}
 }

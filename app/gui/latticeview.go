@@ -317,8 +317,14 @@ func (lv *LatticeView) Tapped(ev *fyne.PointEvent) {
 }
 
 // MouseIn, MouseMoved and MouseOut track the pointer for the status bar
-// and the tool previews; a right-button drag pans.
-func (lv *LatticeView) MouseIn(ev *desktop.MouseEvent) { lv.MouseMoved(ev) }
+// and the tool previews; a right-button drag pans. The pointer coming
+// over the view takes the keyboard focus: Esc, Delete and the tool keys
+// then act on the lattice, whatever panel field was used last (see
+// keys.go).
+func (lv *LatticeView) MouseIn(ev *desktop.MouseEvent) {
+	lv.takeFocus()
+	lv.MouseMoved(ev)
+}
 
 // MouseMoved reports the pointer and pans during a right-button drag.
 func (lv *LatticeView) MouseMoved(ev *desktop.MouseEvent) {

@@ -22,8 +22,10 @@ import (
 // The side panels. Each is a view of the session rebuilt by refresh;
 // every change it offers is a Session method, so it can be undone.
 
-// roleOf and modeOf name a role and a write mode as design's tables do.
-func roleOf(r design.Role) string { return r.Name() }
+// roleOf and modeOf name a role and a write mode as design's tables do;
+// a role with its file spelling where that differs ("contact pad
+// (pad)"), as the choice shows it next to what the design file says.
+func roleOf(r design.Role) string { return r.Label() }
 
 func modeOf(m design.Mode) string {
 	if m == "" {
@@ -145,11 +147,12 @@ type regionsPanel struct {
 	split   *container.Split
 	// formScroll holds form under the list, shown while a region is.
 	formScroll *container.Scroll
-	name       *widget.Entry
+	name       *keyEntry
 	role       *widget.Select
 	mode       *widget.Select
 	species    *widget.Select
-	tol        *widget.Entry
+	tol        *keyEntry
+	colour     *canvas.Rectangle // the selected region's swatch
 	info       *widget.Label
 	msg        *widget.Label
 	shape      *shapeEditor
@@ -179,7 +182,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			}
 			c := o.(*fyne.Container)
 			c.Objects[0].(*widget.Label).SetText(v.Regions[i].Name)
-			c.Objects[1].(*fyne.Container).Objects[0].(*canvas.Rectangle).FillColor = render.RegionColor(i)
+			c.Objects[1].(*fyne.Container).Objects[0].(*canvas.Rectangle).FillColor = p.u.Session.RegionColour(i)
 			c.Objects[1].(*fyne.Container).Objects[0].Refresh()
 			c.Objects[2].(*widget.Label).SetText(shortCount(p.u.Session.RegionSites(i).Count()) + " sites")
 		})
@@ -190,7 +193,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	}
 	p.empty = mutedLabel("No regions yet. Pick a painting tool on the left (Site S, Dimer D, Window W, Rectangle R, …) and draw on the lattice: the first stroke makes a region. Or press Add.")
 
-	p.name = widget.NewEntry()
+	p.name = u.newEntry()
 	p.name.OnChanged = func(s string) {
 		if !p.updating && p.shown >= 0 {
 			showErr(p.msg, p.u.Session.RenameRegion(p.shown, s))
@@ -218,7 +221,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			}
 		}
 	})
-	p.species = widget.NewSelect([]string{"none", "P (phosphine)", "As (arsine)"}, func(s string) {
+	p.species = widget.NewSelect([]string{dopantDefault, "P (phosphine)", "As (arsine)", dopantNone}, func(s string) {
 		if p.updating || p.shown < 0 {
 			return
 		}
@@ -228,10 +231,12 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			sp = "P"
 		case strings.HasPrefix(s, "As"):
 			sp = "As"
+		case s == dopantNone:
+			sp = design.NoDopant
 		}
 		showErr(p.msg, p.u.Session.SetRegionSpecies(p.shown, sp))
 	})
-	p.tol = widget.NewEntry()
+	p.tol = u.newEntry()
 	p.tol.SetPlaceHolder("mode default")
 	p.tol.OnChanged = func(s string) {
 		if p.updating || p.shown < 0 {
@@ -260,8 +265,13 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		p.addGap.ClearSelected()
 	})
 	p.addGap.PlaceHolder = "Declare a tunnel gap to…"
+	p.colour = canvas.NewRectangle(color.Black)
+	p.colour.SetMinSize(fyne.NewSize(40, 20))
+	p.colour.CornerRadius = 3
+	pick := widget.NewButton("Change…", p.pickColour)
 	form := widget.NewForm(
 		widget.NewFormItem("Name", p.name),
+		widget.NewFormItem("Colour", container.NewHBox(container.NewCenter(p.colour), pick)),
 		widget.NewFormItem("Role", p.role),
 		widget.NewFormItem("Write mode", p.mode),
 		widget.NewFormItem("Dopant", p.species),
@@ -276,9 +286,7 @@ func newRegionsPanel(u *UI) *regionsPanel {
 					p.u.Session.DeleteRegions(p.u.Session.Selection()...)
 				}
 			})))
-	add := widget.NewButtonWithIcon("Add region", theme.ContentAddIcon(), func() {
-		u.Session.AddRegion("region", design.RoleDevice)
-	})
+	add := widget.NewButtonWithIcon("Add region", theme.ContentAddIcon(), p.askNewRegion)
 	top := container.NewVBox(container.NewBorder(nil, nil, heading("Regions of this variant"), add), p.empty)
 	// The selected region's card scrolls under the list: with a shape's
 	// fields it is taller than a laptop's panel.
@@ -288,6 +296,68 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	p.split.Offset = 1
 	p.content = container.NewBorder(top, nil, nil, nil, p.split)
 	return p
+}
+
+// The Dopant choices beside the species: the design's default dopant
+// (the region names none: its δ-layer takes the design's), and no dopant
+// (a region opened for another reason, written in the first step unless
+// the design file names another).
+const (
+	dopantDefault = "design default"
+	dopantNone    = "none (no dopant)"
+)
+
+// pickColour offers a colour for the selected region; the region keeps
+// it (it is saved with the design), whatever happens to the others.
+func (p *regionsPanel) pickColour() {
+	s, i := p.u.Session, p.shown
+	if i < 0 {
+		return
+	}
+	name := s.Variant().Regions[i].Name
+	d := dialog.NewColorPicker("Colour of "+name, "The region is drawn in this colour; it is saved with the design.", func(c color.Color) {
+		showErr(p.msg, s.SetRegionColour(i, render.ColourHex(color.NRGBAModel.Convert(c).(color.NRGBA))))
+	}, p.u.Win)
+	d.Advanced = true
+	d.SetColor(s.RegionColour(i))
+	d.Show()
+}
+
+// askNewRegion asks for a new region's role and name (offering a
+// unique name for the role chosen) and adds it, selected.
+func (p *regionsPanel) askNewRegion() {
+	s := p.u.Session
+	name := widget.NewEntry()
+	var roles []string
+	for _, r := range design.Roles {
+		roles = append(roles, roleOf(r))
+	}
+	roleOfName := func(n string) design.Role {
+		for _, r := range design.Roles {
+			if roleOf(r) == n {
+				return r
+			}
+		}
+		return design.RoleDevice
+	}
+	typed := false
+	name.OnChanged = func(string) { typed = true }
+	role := widget.NewSelect(roles, func(n string) {
+		if !typed || strings.TrimSpace(name.Text) == "" {
+			name.SetText(s.NewRegionName(roleOfName(n)))
+			typed = false
+		}
+	})
+	role.SetSelected(roleOf(design.RoleDevice))
+	items := []*widget.FormItem{widget.NewFormItem("Role", role), widget.NewFormItem("Name", name)}
+	d := dialog.NewForm("Add a region", "Add", "Cancel", items, func(ok bool) {
+		if ok {
+			s.AddRegion(strings.TrimSpace(name.Text), roleOfName(role.Selected))
+		}
+	}, p.u.Win)
+	d.Resize(fyne.NewSize(420, 220))
+	d.Show()
+	p.u.Win.Canvas().Focus(name)
 }
 
 func (p *regionsPanel) refresh() {
@@ -322,6 +392,8 @@ func (p *regionsPanel) refresh() {
 		// cursor; only do it for another region or an undone rename.
 		p.name.SetText(r.Name)
 	}
+	p.colour.FillColor = s.RegionColour(a)
+	p.colour.Refresh()
 	p.role.SetSelected(roleOf(r.Role))
 	p.mode.SetSelected(modeOf(r.Mode))
 	switch r.Species {
@@ -329,8 +401,10 @@ func (p *regionsPanel) refresh() {
 		p.species.SetSelected("P (phosphine)")
 	case "As":
 		p.species.SetSelected("As (arsine)")
+	case design.NoDopant:
+		p.species.SetSelected(dopantNone)
 	default:
-		p.species.SetSelected("none")
+		p.species.SetSelected(dopantDefault)
 	}
 	tol := ""
 	if r.ToleranceNM > 0 {
@@ -508,6 +582,7 @@ type variantsPanel struct {
 	u       *UI
 	content fyne.CanvasObject
 	list    *widget.List
+	sweep   *sweepForm
 }
 
 func newVariantsPanel(u *UI) *variantsPanel {
@@ -539,9 +614,10 @@ func newVariantsPanel(u *UI) *variantsPanel {
 	cmp := widget.NewButtonWithIcon("Compare all variants…", theme.ListIcon(), u.compareVariants)
 	cmp.Importance = widget.HighImportance
 	help := mutedLabel("A variant is one layout alternative: duplicate one, change a gap or a window, then compare their write time and yield.")
+	p.sweep = newSweepForm(u)
 	p.content = container.NewBorder(
 		container.NewVBox(heading("Layout variants"), help),
-		container.NewVBox(container.NewGridWithColumns(3, dup, rename, del), cmp),
+		container.NewVBox(container.NewGridWithColumns(3, dup, rename, del), cmp, p.sweep.box),
 		nil, nil, p.list)
 	return p
 }
@@ -549,6 +625,7 @@ func newVariantsPanel(u *UI) *variantsPanel {
 func (p *variantsPanel) refresh() {
 	p.list.Refresh()
 	p.list.Select(p.u.Session.VariantIndex())
+	p.sweep.refresh()
 }
 
 func (u *UI) renameVariant(i int) {
@@ -590,25 +667,25 @@ type marksPanel struct {
 	content  fyne.CanvasObject
 	fids     *widget.List
 	fidSel   int
-	fidName  *widget.Entry
-	fidX     *widget.Entry
-	fidY     *widget.Entry
+	fidName  *keyEntry
+	fidX     *keyEntry
+	fidY     *keyEntry
 	fidMsg   *widget.Label
 	fidForm  *fyne.Container
 	terrs    *widget.List
 	terrSel  int
-	terrName *widget.Entry
+	terrName *keyEntry
 	terrRows *widget.RadioGroup
-	terrX    *widget.Entry
-	terrY    *widget.Entry
+	terrX    *keyEntry
+	terrY    *keyEntry
 	terrMsg  *widget.Label
 	terrForm *fyne.Container
 	fidEmpty *widget.Label
-	name     *widget.Entry
+	name     *keyEntry
 	nameMsg  *widget.Label
 	field    *widget.Label
-	fieldW   *widget.Entry
-	fieldH   *widget.Entry
+	fieldW   *keyEntry
+	fieldH   *keyEntry
 	fieldMsg *widget.Label
 	shownW   float64 // the field size the entries were last filled with
 	shownH   float64
@@ -631,7 +708,7 @@ func newMarksPanel(u *UI) *marksPanel {
 			}
 		})
 	p.fids.OnSelected = func(i widget.ListItemID) { p.fidSel = i; p.showFiducial() }
-	p.fidName, p.fidX, p.fidY = widget.NewEntry(), widget.NewEntry(), widget.NewEntry()
+	p.fidName, p.fidX, p.fidY = u.newEntry(), u.newEntry(), u.newEntry()
 	p.fidMsg = errorLabel()
 	p.fidForm = container.NewVBox(
 		widget.NewForm(widget.NewFormItem("Name", p.fidName), widget.NewFormItem("x (nm)", p.fidX), widget.NewFormItem("y (nm)", p.fidY)),
@@ -673,7 +750,7 @@ func newMarksPanel(u *UI) *marksPanel {
 			}
 		})
 	p.terrs.OnSelected = func(i widget.ListItemID) { p.terrSel = i; p.showTerrace() }
-	p.terrName, p.terrX, p.terrY = widget.NewEntry(), widget.NewEntry(), widget.NewEntry()
+	p.terrName, p.terrX, p.terrY = u.newEntry(), u.newEntry(), u.newEntry()
 	p.terrRows = widget.NewRadioGroup([]string{"x", "y"}, nil)
 	p.terrRows.Horizontal = true
 	p.terrMsg = errorLabel()
@@ -696,7 +773,7 @@ func newMarksPanel(u *UI) *marksPanel {
 	terrBox := container.NewBorder(container.NewVBox(heading("Terraces"), mutedLabel("Across a single-height step the dimer rows turn by 90°. Outline a terrace with the Terrace tool (T).")), p.terrForm, nil, nil, p.terrs)
 	split := container.NewVSplit(fidBox, terrBox)
 	split.Offset = 0.45
-	p.name = widget.NewEntry()
+	p.name = u.newEntry()
 	p.name.OnChanged = func(s string) {
 		if !p.updating {
 			showErr(p.nameMsg, p.u.Session.SetDesignName(s))
@@ -704,7 +781,7 @@ func newMarksPanel(u *UI) *marksPanel {
 	}
 	p.nameMsg = errorLabel()
 	p.field = mutedLabel("")
-	p.fieldW, p.fieldH = widget.NewEntry(), widget.NewEntry()
+	p.fieldW, p.fieldH = u.newEntry(), u.newEntry()
 	p.fieldMsg = errorLabel()
 	p.fieldW.OnSubmitted = func(string) { p.applyField() }
 	p.fieldH.OnSubmitted = func(string) { p.applyField() }

@@ -66,7 +66,7 @@ func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 	rendertest.SaveImage(t, "window-plan.png", w.Canvas().Capture())
 	zoomOn(w, u, mid, 0.5)
 	panel := texts(u.planView.content)
-	for _, want := range []string{units.Duration(3720), "P10 " + units.Duration(3500), "Every window takes exactly one donor: 40 %", "2 drift-safe segments"} {
+	for _, want := range []string{units.Duration(3720), "P10 " + units.Duration(3500), "Every window opened as drawn with exactly one donor: 40 %.", "2 drift-safe segments"} {
 		if !strings.Contains(panel, want) {
 			t.Errorf("plan panel lacks %q:\n%s", want, panel)
 		}
@@ -108,11 +108,11 @@ func TestComparisonView(t *testing.T) {
 	p := editortest.HandPlan(u.Session)
 	res := []exportResult{{Variant: "A", Plan: p}, {Variant: "B", Err: errPlanTest}}
 	view := comparisonView(res, nil)
-	if w := view.MinSize().Width; w > 1000 {
-		t.Errorf("comparison is %g units wide, more than its 1000-unit dialog", w)
+	if w := view.MinSize().Width; w > 1100 {
+		t.Errorf("comparison is %g units wide, more than its 1100-unit dialog", w)
 	}
 	text := texts(view)
-	for _, want := range []string{"A", units.Duration(3720), "40 %", "B", errPlanTest.Error()} {
+	for _, want := range []string{"A", units.Clock(3720), "40 %", "B", errPlanTest.Error()} { // times to the second (issue 13)
 		if !strings.Contains(text, want) {
 			t.Errorf("comparison lacks %q:\n%s", want, text)
 		}
@@ -124,3 +124,25 @@ type exportResult = export.VariantResult
 var errPlanTest = errors.New("refused: fe.bias_v beyond the limit")
 
 func widgetRenderer(w fyne.Widget) fyne.WidgetRenderer { return test.WidgetRenderer(w) }
+
+// Issue 13: the yield rows mixed raw probabilities ("8.1e-07") with
+// percentages; every probability is a percentage.
+func TestProbabilitiesArePercentages(t *testing.T) {
+	for _, c := range []struct {
+		p    float64
+		want string
+	}{
+		{0.611, "61.1 %"},
+		{0.0111, "1.11 %"},
+		{3.12e-4, "0.0312 %"},
+		{1e-5, "0.001 %"},
+		{8.1e-7, "8.1·10⁻⁵ %"},
+		{9.96e-9, "1·10⁻⁶ %"},
+		{2.5e-20, "2.5·10⁻¹⁸ %"},
+		{0, "0 %"},
+	} {
+		if got := formatProbability(c.p); got != c.want {
+			t.Errorf("formatProbability(%g) = %q, want %q", c.p, got, c.want)
+		}
+	}
+}

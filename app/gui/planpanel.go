@@ -27,23 +27,52 @@ var timeColours = map[planner.TimeKind]color.Color{
 	planner.TimeModeSwitch:   render.RGB(0x9b, 0x6c, 0xff),
 	planner.TimeRegistration: render.RGB(0xff, 0xd2, 0x3f),
 	planner.TimeVerification: render.RGB(0x1d, 0xd3, 0xb0),
+	// The session around the writing.
+	planner.TimeSurvey:        render.RGB(0x4c, 0x6e, 0xf5),
+	planner.TimeConditioning:  render.RGB(0xc0, 0x8b, 0x5c),
+	planner.TimeTipChange:     render.RGB(0xf0, 0x3e, 0x3e),
+	planner.TimeRepair:        render.RGB(0xae, 0x3e, 0xc9),
+	planner.TimeDocumentation: render.RGB(0x74, 0xb8, 0x16),
+	planner.TimeDose:          render.RGB(0x15, 0xaa, 0xbf),
+	planner.TimeAnneal:        render.RGB(0xd9, 0x48, 0x0f),
 }
 
 var colYield = render.RGB(0x51, 0xcf, 0x66)
 
-// formatProbability prints a probability as a percentage with three
-// significant digits, or in scientific notation when tiny.
+// formatProbability prints a probability as a percentage, always: three
+// significant digits ("61.1 %", "0.0312 %"), and below 0.001 % two
+// digits times a power of ten ("8.1·10⁻⁵ %"), so a yield table never mixes
+// raw probabilities ("8.1e-07") with percentages.
 func formatProbability(p float64) string {
+	pct := 100 * p
 	switch {
 	case math.IsNaN(p):
 		return "—"
 	case p == 0:
 		return "0 %"
-	case p < 1e-4:
-		return fmt.Sprintf("%.2g", p)
-	default:
-		return trimZeros(fmt.Sprintf("%.3g", 100*p)) + " %"
+	case pct >= 1e-3:
+		return trimZeros(fmt.Sprintf("%.3g", pct)) + " %"
 	}
+	e := int(math.Floor(math.Log10(pct)))
+	m := pct / math.Pow(10, float64(e))
+	if math.Round(m*10)/10 >= 10 { // 9.96 rounds to 10.0: one more power
+		m, e = m/10, e+1
+	}
+	return trimZeros(fmt.Sprintf("%.1f", m)) + "·10" + superscript(e) + " %"
+}
+
+// superscript writes n in superscript digits: -5 as ⁻⁵.
+func superscript(n int) string {
+	digits := []rune("⁰¹²³⁴⁵⁶⁷⁸⁹")
+	var b strings.Builder
+	if n < 0 {
+		b.WriteRune('⁻')
+		n = -n
+	}
+	for _, c := range fmt.Sprint(n) {
+		b.WriteRune(digits[c-'0'])
+	}
+	return b.String()
 }
 
 // breakdownBars returns the bars of a time breakdown.
@@ -96,7 +125,7 @@ func (p *planPanel) refresh() {
 	pl, stale := s.Plan()
 	var objs []fyne.CanvasObject
 	if pl == nil {
-		objs = append(objs, mutedLabel(fmt.Sprintf("Variant %s has not been planned yet. Plan (Ctrl+Enter) chooses the write modes, orders the strokes, splits the write into drift-safe segments and estimates the time and the dopant yield, in the background.", s.Variant().Name)))
+		objs = append(objs, mutedLabel(fmt.Sprintf("Variant %s has not been planned yet. Plan (Ctrl+Return) chooses the write modes, orders the strokes, splits the write into drift-safe segments and estimates the time and the dopant yield, in the background.", s.Variant().Name)))
 		p.body.Objects = objs
 		p.body.Refresh()
 		return
@@ -110,9 +139,10 @@ func (p *planPanel) refresh() {
 		objs = append(objs, warningLabel("The design or profile changed since this plan was made: plan again for current figures."))
 	}
 	objs = append(objs,
-		wrapLabel("Expected write time, variant "+pl.Variant),
+		wrapLabel("Session time (mean of the Monte Carlo on this plan), variant "+pl.Variant),
 		bigText(units.Duration(pl.TotalS)),
 		wrapLabel(fmt.Sprintf("Spread  P10 %s · P50 %s · P90 %s", units.Duration(pl.P10S), units.Duration(pl.P50S), units.Duration(pl.P90S))),
+		wrapLabel(fmt.Sprintf("Every stroke and coupled pair within tolerance: %s (sampled on this plan).", formatProbability(pl.PInTolerance))),
 	)
 	// What needs the user's attention comes before the details.
 	if f, fstale := s.Findings(); !fstale {
@@ -121,7 +151,8 @@ func (p *planPanel) refresh() {
 		}
 	}
 	if !pl.Coverage.OK {
-		l := wrapLabel("Coverage check FAILED: see Segments and strokes below.")
+		l := wrapLabel(fmt.Sprintf("Coverage check FAILED: %d site(s) outside every region clear with more than %s; they are marked on the lattice (see Coverage below).",
+			pl.Coverage.OverLimit, formatProbability(pl.Coverage.StrayLimit)))
 		l.Importance = widget.DangerImportance
 		objs = append(objs, l)
 	}
@@ -132,6 +163,14 @@ func (p *planPanel) refresh() {
 		widget.NewSeparator(),
 		heading("Time by kind"),
 		NewBarChart(breakdownBars(pl.Breakdown, pl.TotalS)),
+	)
+	if len(pl.Steps) > 0 {
+		objs = append(objs, widget.NewSeparator(), heading("Process steps"))
+		for i, st := range pl.Steps {
+			objs = append(objs, wrapLabel(stepLine(i, st)))
+		}
+	}
+	objs = append(objs,
 		widget.NewSeparator(),
 		heading("Dopant yield"),
 	)
@@ -145,23 +184,67 @@ func (p *planPanel) refresh() {
 		} else if y.All == 0 {
 			dev = "no number of devices suffices"
 		}
-		objs = append(objs, wrapLabel(fmt.Sprintf("%d windows. Every window takes exactly one donor: %s.\nGood windows expected: %.1f of %d.\nDevices to write for one perfect device: %s.",
-			y.Windows, formatProbability(y.All), y.MeanGood, y.Windows, dev)))
+		intervals := ""
+		if y.All95[1] >= y.All && y.All95[1] > 0 {
+			intervals = fmt.Sprintf(" (68 %%: %s, 95 %%: %s, from the templates' uncertainties)",
+				units.ProbabilityRange(y.All68, y.Log10All68), units.ProbabilityRange(y.All95, y.Log10All95))
+		}
+		all := formatProbability(y.All)
+		if y.All == 0 {
+			all = units.Probability(y.All, y.Log10All)
+		}
+		objs = append(objs, wrapLabel(fmt.Sprintf("%d windows. Every window opened as drawn with exactly one donor: %s%s.\n"+
+			"Good windows expected: %.1f of %d. Expected bad: %.2g without a donor, %.2g with two or more, %.2g not opened as drawn.\nDevices to write for one perfect device: %s.",
+			y.Windows, all, intervals, y.MeanGood, y.Windows, y.ExpectedEmpty, y.ExpectedMultiple, y.ExpectedMisopened, dev)))
+		for i, w := range pl.Windows {
+			if i == 8 {
+				objs = append(objs, mutedLabel(fmt.Sprintf("… and %d more windows (all in the exported plan).", len(pl.Windows)-8)))
+				break
+			}
+			p1 := formatProbability(w.P1)
+			if w.P1SD > 0 {
+				p1 += " ± " + formatProbability(w.P1SD)
+			}
+			objs = append(objs, mutedLabel(fmt.Sprintf("%s window of %s at (%.1f, %.1f) nm: opened as drawn %s; p0 %s, p1 %s, p≥2 %s; good %s",
+				w.Template, w.Region, w.At.X, w.At.Y, formatProbability(w.OpenProbability), formatProbability(w.P0), p1,
+				formatProbability(w.P2Plus), formatProbability(w.Probability))))
+		}
 		if len(y.Distribution) > 1 {
 			objs = append(objs, NewBarChart(yieldBars(y)))
 		}
 	}
 	objs = append(objs, widget.NewSeparator(), heading("Segments and strokes"))
-	objs = append(objs, wrapLabel(fmt.Sprintf("%d drift-safe segments, %d strokes, %d tip actions. Profile: %s.", len(pl.Segments), len(pl.Strokes), len(pl.Actions), pl.Profile)))
-	cov := "Coverage check passed: every painted site is written and nothing outside the regions is cleared beyond the edge allowance."
-	if !pl.Coverage.OK {
-		cov = fmt.Sprintf("Coverage check FAILED: %d painted sites not written, %d sites cleared outside the regions. %s", pl.Coverage.Uncovered, pl.Coverage.Overcleared, strings.Join(pl.Coverage.Issues, "; "))
+	local := 0
+	for _, g := range pl.Segments {
+		if g.Registration == planner.RegLocal {
+			local++
+		}
+	}
+	objs = append(objs, wrapLabel(fmt.Sprintf("%d drift-safe segments (%d registered on fiducials, %d on the lattice beside the work), %d strokes, %d tip actions. Profile: %s.",
+		len(pl.Segments), len(pl.Segments)-local, local, len(pl.Strokes), len(pl.Actions), pl.Profile)))
+	for _, c := range pl.Couplings {
+		objs = append(objs, wrapLabel(fmt.Sprintf("%s %s / %s ±%.2g nm: within tolerance %s.", c.Kind, c.A, c.B, c.ToleranceNM, formatProbability(c.PInTolerance))))
+	}
+	c := pl.Coverage
+	objs = append(objs, widget.NewSeparator(), heading("Coverage (exposure model)"))
+	cov := fmt.Sprintf("Passed: no site outside the regions clears with more than %s. Expected: %.3g of %d sites left with their H, %.3g stray sites cleared outside the regions.",
+		formatProbability(c.StrayLimit), c.ExpectedMissed, c.Sites, c.ExpectedStray)
+	if !c.OK {
+		cov = fmt.Sprintf("FAILED: %d site(s) outside every region clear with more than %s. %s", c.OverLimit, formatProbability(c.StrayLimit), strings.Join(c.Issues, "; "))
 	}
 	cl := wrapLabel(cov)
-	if !pl.Coverage.OK {
+	if !c.OK {
 		cl.Importance = widget.DangerImportance
 	}
 	objs = append(objs, cl)
+	for _, r := range c.Regions {
+		pr := formatProbability(r.Probability)
+		if r.Probability < 1e-4 {
+			pr = units.Probability(r.Probability, r.Log10Probability)
+		}
+		objs = append(objs, mutedLabel(fmt.Sprintf("%s: %d sites, %.3g expected missed, %.3g stray (%.3g spurious), P(no error) %s",
+			r.Region, r.Sites, r.ExpectedMissed, r.ExpectedStray, r.ExpectedSpurious, pr)))
+	}
 	if len(pl.Modes) > 0 {
 		objs = append(objs, widget.NewSeparator(), heading("Write modes"))
 		for _, m := range pl.Modes {
@@ -171,6 +254,19 @@ func (p *planPanel) refresh() {
 	objs = append(objs, widget.NewSeparator(), mutedLabel(planner.Caution))
 	p.body.Objects = objs
 	p.body.Refresh()
+}
+
+// stepLine describes one process step for the plan panel.
+func stepLine(i int, st planner.Step) string {
+	what := st.Note
+	if st.Kind == planner.StepLithography {
+		what = fmt.Sprintf("%d segment(s): %s", len(st.Segments), st.Note)
+	}
+	sp := ""
+	if st.Species != "" {
+		sp = " " + st.Species
+	}
+	return fmt.Sprintf("%d. %s%s at %s, %s: %s", i+1, st.Kind, sp, units.Duration(st.StartS), units.Duration(st.DurationS), what)
 }
 
 // yieldBars shows the distribution of the number of good windows around

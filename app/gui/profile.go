@@ -3,6 +3,7 @@ package gui
 import (
 	"errors"
 	"fmt"
+	"math"
 	"strconv"
 	"strings"
 
@@ -39,11 +40,12 @@ func modeFields(group, prefix string, m func(p *planner.Profile) *planner.ModePr
 		{group: group, path: prefix + ".current_a", label: "Setpoint current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &m(p).CurrentA }},
 		{group: group, path: prefix + ".line_dose_c_per_cm", label: "Line dose (mC/cm)", scale: 1e3, f: func(p *planner.Profile) *float64 { return &m(p).LineDoseCPerCm }},
 		{group: group, path: prefix + ".passes", label: "Passes", i: func(p *planner.Profile) *int { return &m(p).Passes }},
-		{group: group, path: prefix + ".width.sigma_nm", label: "Beam σ of the width model (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).Width.SigmaNM }},
-		{group: group, path: prefix + ".width.threshold_dose_c_per_cm", label: "Threshold dose (mC/cm)", scale: 1e3, f: func(p *planner.Profile) *float64 { return &m(p).Width.ThresholdDoseCPerCm }},
+		{group: group, path: prefix + ".sigma_nm", label: "Footprint σ (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).SigmaNM }},
 	}
 	if fe {
-		fs = append(fs, profileField{group: group, path: prefix + ".overlap", label: "Raster overlap (fraction of the width)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).Overlap }})
+		fs = append(fs, profileField{group: group, path: prefix + ".fill_completion", label: "Raster fill: P(clear) between lines", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).FillCompletion }})
+	} else {
+		fs = append(fs, profileField{group: group, path: prefix + ".spurious_per_100nm", label: "Spurious dangling bonds per 100 nm", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).SpuriousPer100NM }})
 	}
 	fs = append(fs, profileField{group: group, path: prefix + ".edge_allowance_nm", label: "Edge allowance (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &m(p).EdgeAllowanceNM }})
 	return fs
@@ -63,9 +65,21 @@ func profileFields() []profileField {
 	fs = append(fs,
 		profileField{group: g, path: "dwell.bias_v", label: "Sample bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.BiasV }},
 		profileField{group: g, path: "dwell.current_a", label: "Setpoint current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &p.Dwell.CurrentA }},
-		profileField{group: g, path: "dwell.yield_per_electron", label: "Desorption yield (H per electron)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.YieldPerElectron }},
+		profileField{group: g, path: "dwell.sigma_nm", label: "Footprint σ (nm)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.SigmaNM }},
 		profileField{group: g, path: "dwell.completion", label: "Completion probability", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Dwell.Completion }},
 	)
+	g = "Desorption yield (Shen et al. 1995)"
+	fs = append(fs, []profileField{
+		{group: g, path: "exposure.vibrational.yield_per_electron", label: "Low-bias yield Y_ref (H per electron)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.YieldPerElectron }},
+		{group: g, path: "exposure.vibrational.bias_v", label: "…at bias (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.BiasV }},
+		{group: g, path: "exposure.vibrational.current_a", label: "…and current (nA)", scale: 1e9, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.CurrentA }},
+		{group: g, path: "exposure.vibrational.order", label: "Order n (rate ∝ Iⁿ)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.Order }},
+		{group: g, path: "exposure.vibrational.decade_v", label: "Bias per decade of yield (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.DecadeV }},
+		{group: g, path: "exposure.vibrational.max_bias_v", label: "Low-bias regime up to (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Vibrational.MaxBiasV }},
+		{group: g, path: "exposure.electronic.yield_per_electron", label: "Field-emission yield (H per electron)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Electronic.YieldPerElectron }},
+		{group: g, path: "exposure.electronic.threshold_v", label: "Electronic threshold (V)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.Exposure.Electronic.ThresholdV }},
+		{group: g, path: "stray_limit", label: "Stray limit: P(clear) outside regions", scale: 1, f: func(p *planner.Profile) *float64 { return &p.StrayLimit }},
+	}...)
 	g = "Motion"
 	fs = append(fs,
 		profileField{group: g, path: "move_speed_nm_per_s", label: "Move speed (nm/s)", scale: 1, f: func(p *planner.Profile) *float64 { return &p.MoveSpeedNMPerS }},
@@ -92,12 +106,27 @@ func profileFields() []profileField {
 	return fs
 }
 
-// formatField prints a stored value in the field's display unit.
+// formatField prints a stored value in the field's display unit, to
+// four significant digits (a threshold of 0.0067668 mC/cm shows as
+// 0.006767, not 0.00676676); a field left as shown keeps the exact value
+// (profileEditor.parse).
 func formatField(f profileField, p *planner.Profile) string {
 	if f.i != nil {
 		return strconv.Itoa(*f.i(p))
 	}
-	return strconv.FormatFloat(*f.f(p)*f.scale, 'g', 6, 64)
+	return sigDigits(*f.f(p)*f.scale, 4)
+}
+
+// sigDigits prints v to n significant digits (more for numbers of more
+// whole digits than n, which keep them all), in plain decimals from
+// 0.001 to a million and with an exponent beyond.
+func sigDigits(v float64, n int) string {
+	a := math.Abs(v)
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) || a < 1e-3 || a >= 1e6 {
+		return strconv.FormatFloat(v, 'g', n, 64)
+	}
+	decimals := max(0, n-1-int(math.Floor(math.Log10(a))))
+	return trimZeros(strconv.FormatFloat(v, 'f', decimals, 64))
 }
 
 // profileEditor is the editor's state: one entry per field over a copy
@@ -271,9 +300,9 @@ func (e *profileEditor) explain(err error) error {
 	}
 	shown := func(path string, v float64) string {
 		if f, ok := byPath[path]; ok && f.scale != 0 {
-			return strconv.FormatFloat(v*f.scale, 'g', 6, 64)
+			return sigDigits(v*f.scale, 4)
 		}
-		return strconv.FormatFloat(v, 'g', 6, 64)
+		return sigDigits(v, 4)
 	}
 	if pe, ok := errors.AsType[*jsonfile.Error](err); ok {
 		var lines []string

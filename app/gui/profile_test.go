@@ -2,6 +2,7 @@ package gui
 
 import (
 	"math"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -35,7 +36,7 @@ func TestProfileEditorRefusesBadValues(t *testing.T) {
 		if e.msg.Hidden || !strings.Contains(e.msg.Text, c.msg) {
 			t.Errorf("%s (%q): message %q (hidden %v), want one containing %q", c.name, c.text, e.msg.Text, e.msg.Hidden, c.msg)
 		}
-		if u.Session.Profile != before {
+		if !reflect.DeepEqual(u.Session.Profile, before) {
 			t.Fatalf("%s: the profile changed although Apply was refused", c.name)
 		}
 	}
@@ -46,10 +47,10 @@ func TestProfileEditorRefusesBadValues(t *testing.T) {
 		t.Errorf("message %q does not name the field", e.msg.Text)
 	}
 
-	cur.SetText("0.05")
+	cur.SetText("1")
 	e.apply()
-	if got := u.Session.Profile.AP.CurrentA; math.Abs(got-0.05e-9) > 1e-21 {
-		t.Errorf("after a valid Apply the AP current is %g A, want 5e-11 A", got)
+	if got := u.Session.Profile.AP.CurrentA; math.Abs(got-1e-9) > 1e-21 {
+		t.Errorf("after a valid Apply the AP current is %g A, want 1e-9 A", got)
 	}
 	if err := u.Session.Profile.Validate(); err != nil {
 		t.Errorf("applied profile does not validate: %v", err)
@@ -70,5 +71,26 @@ func TestProfilePresetFillsEditor(t *testing.T) {
 	e.apply()
 	if u.Session.Profile.Drift.RateNMPerMin != lt.Drift.RateNMPerMin || u.Session.Profile.Name != lt.Name {
 		t.Errorf("applied %+v, want the low-temperature preset", u.Session.Profile.Drift)
+	}
+}
+
+// Issue 13: the profile dialog showed a threshold as "0.00676676";
+// values show four significant digits, and a field left alone keeps its
+// exact value when applied.
+func TestProfileShowsSignificantDigits(t *testing.T) {
+	for _, c := range []struct {
+		v    float64
+		want string
+	}{
+		{0.05 / math.Exp(2), "0.006767"},
+		{2, "2"},
+		{0.999, "0.999"},
+		{2000, "2000"},
+		{1.5e-9, "1.5e-09"},
+		{12345.6, "12346"}, // whole digits are never dropped
+	} {
+		if got := sigDigits(c.v, 4); got != c.want {
+			t.Errorf("sigDigits(%g) = %q, want %q", c.v, got, c.want)
+		}
 	}
 }

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"image/png"
 	"io"
+	"log"
 	"os"
 	"time"
 
@@ -64,6 +65,9 @@ func Run(o RunOptions) int {
 		fmt.Fprintf(o.Stderr, "dimerpath: %s: %v\n", o.Design, err)
 		return 2
 	}
+	// Fyne logs through the standard logger; see fynelog.go for the one
+	// report it makes on every file dialog and what it means.
+	log.SetOutput(&fyneLog{out: o.Stderr})
 	a := app.NewWithID(AppID)
 	a.Settings().SetTheme(newLabTheme())
 	w := a.NewWindow(s.Title())

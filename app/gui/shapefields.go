@@ -27,7 +27,7 @@ type shapeEditor struct {
 	fields  *fyne.Container
 	snapped *widget.Label
 	msg     *widget.Label
-	entries map[string]*widget.Entry
+	entries map[string]*keyEntry
 	order   []string
 	// shown is the shape the entries were filled from or last set to.
 	ref   [2]int
@@ -86,12 +86,12 @@ func (e *shapeEditor) build(sh design.Shape) {
 	if sh.Kind == design.ShapeArray && f.Of != design.ShapeWindow {
 		names = names[:len(names)-1] // no template for dimers or sites
 	}
-	e.entries, e.order = map[string]*widget.Entry{}, names
+	e.entries, e.order = map[string]*keyEntry{}, names
 	form := widget.NewForm()
 	for _, n := range names {
-		en := widget.NewEntry()
+		en := e.u.newEntry()
 		if strings.HasPrefix(n, "points") {
-			en = widget.NewMultiLineEntry()
+			en = e.u.newMultiLineEntry()
 			en.SetMinRowsVisible(3)
 		} else {
 			en.OnSubmitted = func(string) { e.apply() }

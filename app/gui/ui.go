@@ -28,11 +28,17 @@ type Options struct {
 	// directory (os.UserConfigDir()/dimerpath).
 	ConfigDir string
 	// Seed is the planning seed; the same design, profile and seed give
-	// the same plan.
+	// the same plan. 0 takes 1, the command line's default.
 	Seed int64
-	// Autosave is the interval of the recovery autosave; 0 takes one
-	// minute, a negative value turns it off.
+	// Autosave is the interval of the recovery autosave's fallback
+	// ticker; 0 takes one minute, a negative value turns autosaving off
+	// altogether.
 	Autosave time.Duration
+	// AutosaveDelay is how long after an edit (or a change of variant,
+	// view or plan) the recovery copy is written, the wait starting again
+	// with each change but never beyond maxAutosaveWait; 0 takes 3 s, a
+	// negative value leaves it to the ticker.
+	AutosaveDelay time.Duration
 	// CheckDelay is how long after an edit the design rules are checked
 	// again; 0 takes 400 ms, a negative value checks only on request.
 	CheckDelay time.Duration
@@ -79,11 +85,15 @@ type UI struct {
 	marks    *marksPanel
 	legend   *fyne.Container
 
-	menu       *fyne.MainMenu
-	undoItem   *fyne.MenuItem
-	redoItem   *fyne.MenuItem
-	recentMenu *fyne.MenuItem
-	exportMenu []*fyne.MenuItem
+	menu     *fyne.MainMenu
+	undoItem *fyne.MenuItem
+	redoItem *fyne.MenuItem
+	// legendAtomic says the view is at atomic zoom, where the legend is
+	// folded unless legendOpen.
+	legendAtomic, legendOpen bool
+	cancelItem               *fyne.MenuItem // "Cancel planning", enabled while a job runs
+	recentMenu               *fyne.MenuItem
+	exportMenu               []*fyne.MenuItem
 
 	planCancel   context.CancelFunc
 	planStarted  time.Time
@@ -92,8 +102,14 @@ type UI struct {
 	checkTimer   *time.Timer
 	stopAutosave chan struct{}
 	lastAutosave editor.PlanToken // the undo state the recovery copy holds
+	lastMeta     workState        // the working state its description holds
 	autosaving   bool             // a recovery copy is being written
-	recovery     *recoveryFiles
+	// autosaveTimer is the pending debounced autosave, first when the
+	// first change it waits for was made.
+	autosaveTimer   *time.Timer
+	autosaveFirst   time.Time
+	autosaveStopped bool // StopAutosave was called: no more copies
+	recovery        *recoveryFiles
 
 	// jobs is the background work; tests put in their own.
 	jobs editor.Jobs
@@ -113,11 +129,17 @@ func New(a fyne.App, w fyne.Window, s *editor.Session, o Options) *UI {
 	if o.CheckDelay == 0 {
 		o.CheckDelay = 400 * time.Millisecond
 	}
+	if o.Seed == 0 {
+		// The command line's default: the same design and profile plan
+		// the same in the window as with dimerpath plan.
+		o.Seed = 1
+	}
 	// Before any file dialog: saving must never empty a file first.
 	installLazyFiles()
 	u := &UI{App: a, Win: w, Session: s, opts: o, toolButtons: map[editor.Tool]*widget.Button{}, recovery: &recoveryFiles{}, jobs: editor.DefaultJobs(), bugsShown: map[string]bool{}}
 	u.View = NewLatticeView(s)
 	u.View.OnCursor = u.showCursor
+	u.View.OnViewChanged = u.viewChanged
 	u.View.OnRune = u.typedRune
 	u.View.OnKey = u.typedKey
 	u.build()
@@ -199,6 +221,14 @@ func (u *UI) changed(c editor.Change) {
 	}
 	if c&editor.ChangeHistory != 0 {
 		u.scheduleCheck()
+	}
+	if c&(editor.ChangeHistory|editor.ChangeVariants|editor.ChangePlan) != 0 {
+		u.scheduleAutosave()
+	}
+	u.reclaimFocus()
+	if u.Session.Notice != "" {
+		u.hintLabel.SetText(u.Session.Notice)
+		u.Session.Notice = ""
 	}
 	if u.Session.Err != nil {
 		u.hintLabel.SetText("Problem: " + u.Session.Err.Error())
@@ -369,7 +399,7 @@ func (u *UI) refreshHint() {
 		if a := s.Active(); a >= 0 {
 			hint = fmt.Sprintf("Adds to %s (Esc for a new region). %s", s.Variant().Regions[a].Name, hint)
 		} else {
-			hint = "Starts a new region. " + hint
+			hint = newRegionHint(s.Tool) + hint
 		}
 	case editor.ToolSelect:
 		if i, k := s.SelectedShape(); i >= 0 {
@@ -378,6 +408,18 @@ func (u *UI) refreshHint() {
 		}
 	}
 	u.hintLabel.SetText(hint)
+}
+
+// newRegionHint says what region a tool's next stroke makes when none
+// is selected: its role comes from the tool (editor.Session's guess).
+func newRegionHint(t editor.Tool) string {
+	switch t {
+	case editor.ToolLine:
+		return "Starts a new lead. "
+	case editor.ToolRect, editor.ToolPolygon:
+		return fmt.Sprintf("Starts a new region: a contact pad when %d nm or more a side, else a device. ", editor.PadMinNM)
+	}
+	return "Starts a new device region. "
 }
 
 // deleteSelection removes the selected shape, or else the selected
@@ -393,7 +435,7 @@ func (u *UI) deleteSelection() {
 // optionEntry is a numeric option field: it applies the value when it
 // parses and the session accepts it, and says why not otherwise.
 func (u *UI) optionEntry(label string, value string, apply func(string) error) fyne.CanvasObject {
-	e := widget.NewEntry()
+	e := u.newEntry()
 	e.SetText(value)
 	msg := widget.NewLabel("")
 	msg.Wrapping = fyne.TextWrapWord
@@ -455,7 +497,7 @@ func (u *UI) optionsFor(t editor.Tool) []fyne.CanvasObject {
 		msg := errorLabel()
 		form := widget.NewForm()
 		field := func(label string, v int, set func(o *editor.ToolOptions, v int)) {
-			e := widget.NewEntry()
+			e := u.newEntry()
 			e.SetText(fmt.Sprint(v))
 			e.OnChanged = func(s string) {
 				x, err := parseInt(label, s)
@@ -489,7 +531,12 @@ func (u *UI) templateInfo(name string) fyne.CanvasObject {
 	if !ok {
 		return widget.NewLabel("")
 	}
-	l := widget.NewLabel(fmt.Sprintf("%d dimers on one row, %d sites; single-donor probability %.0f %%", t.Dimers, 2*t.Dimers, 100*t.Probability))
+	p1 := fmt.Sprintf("%.0f %%", 100*t.P1)
+	if t.P1SD > 0 {
+		p1 = fmt.Sprintf("%.0f ± %.0f %%", 100*t.P1, 100*t.P1SD)
+	}
+	l := widget.NewLabel(fmt.Sprintf("%d dimers on one row, %d sites; one donor %s, none %.0f %%, two or more %.0f %%",
+		t.Dimers, t.Sites(), p1, 100*t.P0, 100*t.P2Plus))
 	l.Wrapping = fyne.TextWrapWord
 	l.Importance = widget.LowImportance
 	return l
@@ -532,8 +579,34 @@ func legendName(s string) string {
 }
 
 // refreshLegend lists what the view's colours mean right now.
+// viewChanged follows a pan or zoom: the recovery copy keeps the view,
+// and the legend folds away at atomic zoom (and opens again beyond it).
+func (u *UI) viewChanged() {
+	u.scheduleAutosave()
+	if atomic := u.View.View().Atomic(); atomic != u.legendAtomic {
+		u.legendAtomic = atomic
+		u.legendOpen = false
+		u.refreshLegend()
+	}
+}
+
 func (u *UI) refreshLegend() {
+	// At atomic zoom the legend would hide the very sites being drawn:
+	// it folds into one button, which opens it on demand.
+	if u.legendAtomic && !u.legendOpen {
+		open := widget.NewButton("Legend ▾", func() { u.legendOpen = true; u.refreshLegend() })
+		open.Importance = widget.LowImportance
+		u.legend.Objects = []fyne.CanvasObject{open}
+		u.legend.Refresh()
+		u.View.Refresh()
+		return
+	}
 	var rows []fyne.CanvasObject
+	if u.legendAtomic {
+		fold := widget.NewButton("Fold the legend ▴", func() { u.legendOpen = false; u.refreshLegend() })
+		fold.Importance = widget.LowImportance
+		rows = append(rows, fold)
+	}
 	v := u.Session.Variant()
 	const maxRegions = 8
 	for i, r := range v.Regions {
@@ -541,7 +614,7 @@ func (u *UI) refreshLegend() {
 			rows = append(rows, legendRow(swatch(color.Transparent, 12, 12), fmt.Sprintf("… %d more in Regions", len(v.Regions)-maxRegions)))
 			break
 		}
-		rows = append(rows, legendRow(swatch(render.RegionColor(i), 12, 12), fmt.Sprintf("%s (%s)", legendName(r.Name), roleOf(r.Role))))
+		rows = append(rows, legendRow(swatch(u.Session.RegionColour(i), 12, 12), fmt.Sprintf("%s (%s)", legendName(r.Name), r.Role.Name())))
 	}
 	if len(v.Regions) == 0 {
 		rows = append(rows, legendRow(swatch(render.ColCleanH, 12, 12), "clean H-terminated surface"))
@@ -760,10 +833,14 @@ func (u *UI) buildMenu() {
 	file.Items = append(file.Items, u.exportMenu...)
 	file.Items = append(file.Items, fyne.NewMenuItemSeparator(), quit)
 
+	u.cancelItem = fyne.NewMenuItem("Cancel planning", u.cancelPlan)
+	u.cancelItem.Disabled = !u.Busy()
 	u.undoItem = item("Undo", &fyne.ShortcutUndo{}, func() { u.Session.Undo() })
+	// One Redo: Ctrl+Shift+Z in the menu, Ctrl+Y as well (a canvas
+	// shortcut, see addShortcuts; the Help lists both). A second menu
+	// item for Ctrl+Y was never disabled with nothing to redo.
 	u.redoItem = item("Redo", ctrlShift(fyne.KeyZ), func() { u.Session.Redo() })
 	edit := fyne.NewMenu("Edit", u.undoItem, u.redoItem,
-		item("Redo (Ctrl+Y)", &fyne.ShortcutRedo{}, func() { u.Session.Redo() }),
 		fyne.NewMenuItemSeparator(),
 		fyne.NewMenuItem("Delete selected shape (Delete)", func() { u.Session.DeleteSelectedShape() }),
 		fyne.NewMenuItem("Delete selected regions", func() { u.Session.DeleteRegions(u.Session.Selection()...) }),
@@ -784,7 +861,7 @@ func (u *UI) buildMenu() {
 	plan := fyne.NewMenu("Plan",
 		item("Check design rules (F5)", nil, u.CheckNow),
 		item("Plan this variant", ctrl(fyne.KeyReturn), u.StartPlan),
-		fyne.NewMenuItem("Cancel planning", u.cancelPlan),
+		u.cancelItem,
 		fyne.NewMenuItemSeparator(),
 		fyne.NewMenuItem("Compare variants…", u.compareVariants),
 		fyne.NewMenuItem("Instrument profile…", u.editProfile),
@@ -832,7 +909,7 @@ func keyHelp() [][2]string {
 		[2]string{"Delete", "remove the selected shape, or the selected regions"},
 		[2]string{"Ctrl+Z", "undo; Ctrl+Shift+Z or Ctrl+Y redo"},
 		[2]string{"Ctrl+S", "save; Ctrl+Shift+S save as; Ctrl+O open; Ctrl+N new"},
-		[2]string{"Ctrl+Enter", "plan the variant; F5 checks the design rules; Ctrl+E exports the operator's PDF"},
+		[2]string{"Ctrl+Return", "plan the variant (the Return or Enter key); F5 checks the design rules; Ctrl+E exports the operator's PDF"},
 	)
 }
 
@@ -846,7 +923,11 @@ func (u *UI) showKeys() {
 }
 
 func (u *UI) showAbout() {
-	l := widget.NewLabel("dimerpath plans STM hydrogen-depassivation lithography on Si(100)-2x1:H: paint a device on the real lattice, check its design rules, plan the write in atomic-precision and field-emission modes, split it into drift-safe segments and estimate the time and the dopant yield.\n\n" + planner.Caution)
+	version := u.opts.Generator
+	if version == "" {
+		version = "dimerpath (version not recorded)"
+	}
+	l := widget.NewLabel(version + "\n\ndimerpath plans STM hydrogen-depassivation lithography on Si(100)-2x1:H: paint a device on the real lattice, check its design rules, plan the write in atomic-precision and field-emission modes, split it into drift-safe segments and estimate the time and the dopant yield.\n\n" + planner.Caution)
 	l.Wrapping = fyne.TextWrapWord
 	dialog.NewCustom("About dimerpath", "Close", container.New(&fixedWidth{w: 460}, l), u.Win).Show()
 }

@@ -100,6 +100,11 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 			x, y := v.ToScreen(p.Points[0])
 			pb.ring(x, y, math.Max(3, p.BrushNM/v.Scale), ColPreview, 200)
 		case p.Rect && len(p.Points) == 2:
+			for _, c := range p.Cells {
+				cx, cy := v.ToScreen(r2.Point{X: c.X.Lo, Y: c.Y.Hi})
+				dx, dy := v.ToScreen(r2.Point{X: c.X.Hi, Y: c.Y.Lo})
+				pb.fillRect(int(cx), int(cy), max(int(dx), int(cx)+1), max(int(dy), int(cy)+1), ColPreview, 140)
+			}
 			a, b := p.Points[0], p.Points[1]
 			ax, ay := v.ToScreen(r2.Point{X: math.Min(a.X, b.X), Y: math.Max(a.Y, b.Y)})
 			bx, by := v.ToScreen(r2.Point{X: math.Max(a.X, b.X), Y: math.Min(a.Y, b.Y)})

@@ -1,6 +1,11 @@
 package render
 
-import "image/color"
+import (
+	"fmt"
+	"image/color"
+	"slices"
+	"strconv"
+)
 
 // The colours of the lattice view. The canvas is dark so that
 // depassivated sites, the bright thing a user paints, stand out; every
@@ -67,6 +72,25 @@ func RegionColor(i int) color.NRGBA {
 	}
 	return regionPalette[i%len(regionPalette)]
 }
+
+// RegionPalette returns the colours offered to new regions, in order.
+func RegionPalette() []color.NRGBA { return slices.Clone(regionPalette) }
+
+// ParseColour reads a colour written "#rrggbb" (as design files hold a
+// region's colour); ok is false for anything else.
+func ParseColour(s string) (c color.NRGBA, ok bool) {
+	if len(s) != 7 || s[0] != '#' {
+		return c, false
+	}
+	v, err := strconv.ParseUint(s[1:], 16, 32)
+	if err != nil {
+		return c, false
+	}
+	return RGB(uint8(v>>16), uint8(v>>8), uint8(v)), true
+}
+
+// ColourHex writes c as "#rrggbb", ignoring its alpha.
+func ColourHex(c color.NRGBA) string { return fmt.Sprintf("#%02x%02x%02x", c.R, c.G, c.B) }
 
 // SegmentColor returns the colour of write segment i of a plan.
 func SegmentColor(i int) color.NRGBA {

@@ -66,6 +66,9 @@ type Preview struct {
 	Rect    bool    // Points[0] and Points[1] are opposite corners
 	// BrushNM, when > 0, draws a circle of this radius at Points[0].
 	BrushNM float64
+	// Cells are filled under the outline: the elements an array about to
+	// be placed would write.
+	Cells []r2.Rect
 }
 
 // RouteOverlay is a plan's route reduced to what the view draws.

@@ -30,6 +30,11 @@ const (
 // pixels wide, enough to tell its two sites apart.
 const atomicScale = 0.08
 
+// Atomic reports whether the frame draws single H sites and dimer bonds
+// at this scale (atomic zoom), where anything laid over the view hides
+// sites.
+func (v View) Atomic() bool { return v.Scale <= atomicScale }
+
 // ToScreen returns the frame position, in device pixels, of field point p.
 func (v View) ToScreen(p r2.Point) (x, y float64) {
 	x = (p.X-v.Center.X)/v.Scale + float64(v.W)/2

@@ -23,3 +23,15 @@ func ExampleClock() {
 	fmt.Println(units.Clock(100000))
 	// Output: 27:46:40
 }
+
+func ExampleProbability() {
+	fmt.Println(units.Probability(0.53639, 0))
+	fmt.Println(units.Probability(2.37e-14, 0))
+	fmt.Println(units.Probability(0, -1429.3))
+	fmt.Println(units.ProbabilityRange([2]float64{0.45, 0.6234}, [2]float64{}))
+	// Output:
+	// 0.536
+	// 2.4e−14
+	// 5.0e−1430
+	// 0.45 to 0.623
+}

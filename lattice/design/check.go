@@ -44,10 +44,13 @@ const (
 	RuleFloating = "floating"
 	// RuleTunnelGap: each declared tunnel gap is within its range.
 	RuleTunnelGap = "tunnel-gap"
+	// RuleStepRegistry: a terrace that steps from another says whether
+	// the step goes up or down (the two lattices lie 0.27 nm apart).
+	RuleStepRegistry = "step-registry"
 )
 
 // Rules lists the rule names in the order Check runs them.
-var RuleNames = []string{RuleWindow, RuleWindowSpacing, RuleFEKeepOut, RuleScanField, RuleFloating, RuleTunnelGap}
+var RuleNames = []string{RuleWindow, RuleWindowSpacing, RuleFEKeepOut, RuleScanField, RuleFloating, RuleTunnelGap, RuleStepRegistry}
 
 // MaxFindingsPerRule caps the findings one rule reports; a last finding
 // then says how many more there were.
@@ -107,7 +110,40 @@ func (l *Layout) Check() []Finding {
 	c.scanField()
 	c.floating()
 	c.tunnelGaps()
+	c.stepRegistry()
 	return c.findings
+}
+
+// stepRegistry warns about each terrace that steps from another without
+// saying up or down: it is laid out as a step down, as version 1 files
+// were, which puts every site 0.27 nm (a/2) from where it lies if the
+// step goes up. It warns only where a region has sites on that terrace.
+func (c *checker) stepRegistry() {
+	d := c.l.Design
+	if d == nil {
+		return
+	}
+	for ti, t := range d.Terraces {
+		if t.StepFrom == "" || t.Step != "" || ti >= len(c.l.Surface.Terraces) {
+			continue
+		}
+		var names []string
+		for i := range c.l.Regions {
+			if c.l.Regions[i].Sites.CountTerrace(ti) > 0 {
+				names = append(names, c.name(i))
+			}
+		}
+		if len(names) == 0 {
+			continue
+		}
+		at := c.l.Surface.Terraces[ti].Offset
+		if b := c.l.Surface.Terraces[ti].Boundary; len(b) > 0 {
+			at = b[0]
+		}
+		c.add(RuleStepRegistry, SeverityWarning, at,
+			fmt.Sprintf("terrace %q steps from %q without saying up or down: its lattice is taken as one step down; if the step goes up every site lies 0.27 nm elsewhere. Add \"step\": \"up\" or \"down\" to terraces[%d] (in the GUI: Design tab, or the Terrace tool)",
+				t.Name, t.StepFrom, ti), names...)
+	}
 }
 
 type checker struct {

@@ -3,6 +3,7 @@ package design
 import (
 	"math"
 	"os"
+	"slices"
 	"strings"
 	"testing"
 
@@ -134,6 +135,38 @@ func removeRegion(d *Design, name string) {
 			v.Regions = append(v.Regions[:i], v.Regions[i+1:]...)
 			return
 		}
+	}
+}
+
+func TestStepRegistryRule(t *testing.T) {
+	// The demo says its upper terrace is one step up; a file that does
+	// not say (version 1) is laid out as a step down, with a warning that
+	// names the terrace and the regions on it.
+	d := loadDemo(t)
+	d.Terraces[1].Step = ""
+	fs, err := Check(d, "gap-9")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(fs) != 1 || fs[0].Rule != RuleStepRegistry || fs[0].Severity != SeverityWarning ||
+		!strings.Contains(fs[0].Message, `terrace "upper" steps from "lower" without saying up or down`) || !slices.Contains(fs[0].Regions, "pad-source") {
+		t.Errorf("findings %v, want one step-registry warning about the upper terrace", fs)
+	}
+	// Up and down lay the terrace's sites out a/2 = 0.27 nm apart.
+	up, _ := loadDemo(t).Surface()
+	down, _ := d.Surface()
+	site := lattice.Site{Terrace: 1, Row: 100, Dimer: 1000}
+	if dist := up.Position(site).Sub(down.Position(site)).Norm(); math.Abs(dist-lattice.SiLatticeConstant/2) > 1e-9 {
+		t.Errorf("up and down lattices %.4f nm apart, want a/2", dist)
+	}
+	d.Terraces[1].Step = "sideways"
+	if err := d.Validate(); err == nil || !strings.Contains(err.Error(), `terraces[1].step: step "sideways" is not "up" or "down"`) {
+		t.Errorf("Validate = %v, want the bad step named", err)
+	}
+	d.Terraces[1].Step = "up"
+	d.Terraces[0].Step = "up"
+	if err := d.Validate(); err == nil || !strings.Contains(err.Error(), "terraces[0].step") {
+		t.Errorf("Validate = %v, want a step without step_from refused", err)
 	}
 }
 

@@ -41,11 +41,11 @@ func ExampleDesign_Templates() {
 	d, _ := design.Parse(assets.DemoName, assets.DemoDesign)
 	for _, name := range d.Templates().Names() {
 		t := d.Templates()[name]
-		fmt.Printf("%s: %d dimers, %d H sites, p = %.2f\n", name, t.Dimers, t.Sites(), t.Probability)
+		fmt.Printf("%s: %d dimers, %d H sites, p1 = %.2f ± %.2f\n", name, t.Dimers, t.Sites(), t.P1, t.P1SD)
 	}
 	// Output:
-	// As: 2 dimers, 4 H sites, p = 0.97
-	// P: 3 dimers, 6 H sites, p = 0.63
+	// As: 2 dimers, 4 H sites, p1 = 0.97 ± 0.02
+	// P: 3 dimers, 6 H sites, p1 = 0.63 ± 0.10
 }
 
 func ExampleDesign_EffectiveRules() {

@@ -58,6 +58,7 @@ func TestParseRefuses(t *testing.T) {
 		{"huge field", strings.Replace(minimal, `"height_nm": 200`, `"height_nm": 1e6`, 1), []string{"field.height_nm: 1e+06 must be more than 0 and at most 10000"}},
 		{"point pair", strings.Replace(minimal, `[[10, 10], [60, 60]]`, `[[10, 10, 3], [60, 60]]`, 1), []string{"variants[0].regions[0].shapes[0].points_nm[0]: want 2 numbers, has 3"}},
 		{"bad role", strings.Replace(minimal, `"role": "lead"`, `"role": "wire"`, 1), []string{`variants[0].regions[1].role: "wire" is not a role`}},
+		{"bad colour", strings.Replace(minimal, `"role": "lead",`, `"role": "lead", "colour": "red",`, 1), []string{`variants[0].regions[1].colour: "red" is not a colour: write #rrggbb`}},
 		{"bad kind", strings.Replace(minimal, `"kind": "rect"`, `"kind": "blob"`, 1), []string{`variants[0].regions[0].shapes[0].kind: "blob" is not a shape kind`}},
 		{"negative width", strings.Replace(minimal, `"width_nm": 4`, `"width_nm": -4`, 1), []string{"variants[0].regions[1].shapes[0].width_nm: -4 must be more than 0"}},
 		{"10^9 painted sites", strings.Replace(minimal, `"role": "lead",`, `"role": "lead", "painted": {"sites": 1000000000, "rows": [[0, 1, 0, 1]]},`, 1),
@@ -78,6 +79,10 @@ func TestParseRefuses(t *testing.T) {
 			[]string{"bad.json:5:102: variants[0].regions[0].shapes[0].points_nm[1]: [1e+19, 60] lies beyond ±10000 nm, farther out than the largest field reaches"}},
 		{"terrace corner at 1e308 nm", strings.Replace(minimal, `"variants"`, `"terraces": [{"name": "t", "rows": "x", "boundary_nm": [[0, 0], [1e308, 0], [0, 5]]}], "variants"`, 1),
 			[]string{"terraces[0].boundary_nm[1]: [1e+308, 0] lies beyond ±10000 nm"}},
+		{"template probabilities do not sum to 1", strings.Replace(minimal, `"variants": [`, `"templates": [{"name": "P", "species": "P", "dimers": 3, "p0": 0.3, "p1": 0.63, "p2plus": 0.1}], "variants": [`, 1),
+			[]string{"templates[0].p0 + p1 + p2plus: 1.03: must be 1 (within 1e-9)"}},
+		{"template spread too large", strings.Replace(minimal, `"variants": [`, `"templates": [{"name": "P", "species": "P", "dimers": 3, "p0": 0.37, "p1": 0.63, "p2plus": 0, "p1_sd": -0.1}], "variants": [`, 1),
+			[]string{"templates[0].p1_sd: -0.1: must be a finite number, zero or more"}},
 		{"tunnel gap to nowhere", strings.Replace(minimal, `]}]
 }`, `], "tunnel_gaps": [{"a": "pad", "b": "island"}]}]
 }`, 1), []string{`variants[0].tunnel_gaps[0].b: "island" names no region of variant "A"`}},
@@ -144,7 +149,7 @@ func TestSaveLoadRoundTrip(t *testing.T) {
 	r.Painted, r.Erased = painted, erased
 	gap := 3
 	d.Rules = &Rules{WindowGapDimers: &gap}
-	d.WindowTemplates = []lattice.WindowTemplate{{Name: "P", Species: "P", Dimers: 3, Probability: 0.5, Source: "our lab, run 12"}}
+	d.WindowTemplates = []lattice.WindowTemplate{{Name: "P", Species: "P", Dimers: 3, P0: 0.45, P1: 0.5, P2Plus: 0.05, P1SD: 0.04, Source: "our lab, run 12"}}
 
 	path := filepath.Join(t.TempDir(), "round.json")
 	if err := Save(path, d); err != nil {
@@ -162,7 +167,7 @@ func TestSaveLoadRoundTrip(t *testing.T) {
 	if !back.Variants[0].Regions[1].Painted.Equal(painted) || !back.Variants[0].Regions[1].Erased.Equal(erased) {
 		t.Errorf("painted or erased sites changed")
 	}
-	if *back.Rules.WindowGapDimers != 3 || back.Templates()["P"].Probability != 0.5 {
+	if *back.Rules.WindowGapDimers != 3 || back.Templates()["P"].P1 != 0.5 || back.Templates()["P"].P1SD != 0.04 {
 		t.Errorf("rules or templates changed: %+v", back.Rules)
 	}
 }

@@ -29,6 +29,10 @@ type Design struct {
 	// given. Use the Templates method for the merged set.
 	WindowTemplates []lattice.WindowTemplate `json:"templates,omitempty"`
 	Variants        []Variant                `json:"variants"`
+	// Dopant is the species a region receives when it names none (its
+	// Species is empty): the δ-layer of leads, islands, gates and pads.
+	// Empty means DefaultDopant ("P").
+	Dopant string `json:"dopant,omitempty"`
 	// References are chip layouts kept beside the design as an overlay:
 	// drawn on the lattice and printed on the plan's overview, never
 	// written (dimerpath import-gds --as reference).
@@ -79,6 +83,11 @@ type Terrace struct {
 	// this terrace's rows are then turned by 90° from that one's and its
 	// lattice shifted by lattice.StepShift (see lattice.Terrace.AcrossStep).
 	StepFrom string `json:"step_from,omitempty"`
+	// Step says which way the step from StepFrom goes: "up" (this
+	// terrace lies one atomic layer higher) or "down". The two give
+	// lattices a/2 (0.27 nm) apart. Files that leave it out (version 1)
+	// are read as "down", and the step-registry rule warns.
+	Step string `json:"step,omitempty"`
 }
 
 // Fiducial is a mark the operator images to re-register the tip's
@@ -98,6 +107,22 @@ type Variant struct {
 	// gap width is checked and the pair counts as connected for the
 	// floating-region rule.
 	TunnelGaps []TunnelGap `json:"tunnel_gaps,omitempty"`
+	// Couplings name pairs of regions whose placement relative to each
+	// other matters more than their absolute placement (a dopant window
+	// and the island that senses it, two windows of a pair): the planner
+	// writes the facing parts of the two inside one drift window, or, when
+	// they are written in different process steps, registers the later on
+	// the earlier.
+	Couplings []Coupling `json:"couplings,omitempty"`
+}
+
+// Coupling is a relative placement tolerance between two regions.
+type Coupling struct {
+	A string `json:"a"`
+	B string `json:"b"`
+	// ToleranceNM is the tolerance (±nm) of the two regions' placement
+	// relative to each other.
+	ToleranceNM float64 `json:"tolerance_nm"`
 }
 
 // TunnelGap is a designed tunnel barrier between two regions.
@@ -107,6 +132,10 @@ type TunnelGap struct {
 	// MinNM and MaxNM override the rule's range for this gap; 0 keeps it.
 	MinNM float64 `json:"min_nm,omitempty"`
 	MaxNM float64 `json:"max_nm,omitempty"`
+	// ToleranceNM is the tolerance (±nm) of the gap's width: the two
+	// edges' placement relative to each other; 0 keeps the rule's
+	// (tunnel_gap_tolerance_nm).
+	ToleranceNM float64 `json:"tolerance_nm,omitempty"`
 }
 
 // Role is what a region is for in the device. Its value is its spelling
@@ -143,13 +172,24 @@ type Region struct {
 	Role Role   `json:"role"`
 	// Mode is the write mode asked for; empty means ModeAuto.
 	Mode Mode `json:"mode,omitempty"`
-	// Species is the dopant precursor the region's windows are meant
-	// for ("P" from phosphine, "As" from arsine), or empty.
+	// Species is the dopant the region receives ("P" from phosphine, "As"
+	// from arsine): that of its windows, and of its δ-layer. Empty takes
+	// the design's Dopant; NoDopant ("none") marks a region opened for
+	// another reason, written in the lithography step LithographyStep
+	// names.
 	Species string `json:"species,omitempty"`
+	// LithographyStep names, by its species, the process step in which a
+	// region without dopant (Species "none") is written; empty means the
+	// first step.
+	LithographyStep string `json:"lithography_step,omitempty"`
 	// ToleranceNM is the placement tolerance (±nm); 0 takes the mode's
 	// default (AP ±0.2 nm, FE ±2 nm).
 	ToleranceNM float64 `json:"tolerance_nm,omitempty"`
-	Shapes      []Shape `json:"shapes,omitempty"`
+	// Colour is the colour the region is drawn in on screen, "#rrggbb";
+	// empty lets the program choose. It stays with the region, so
+	// deleting another region recolours none.
+	Colour string  `json:"colour,omitempty"`
+	Shapes []Shape `json:"shapes,omitempty"`
 	// Painted and Erased hold sites set or cleared by hand, stored in the
 	// file as runs per row.
 	Painted *lattice.SiteSet `json:"painted,omitempty"`
@@ -216,4 +256,34 @@ type Rules struct {
 	// of regions that give none, by mode (defaults 0.2 and 2 nm).
 	APToleranceNM *float64 `json:"ap_tolerance_nm,omitempty"`
 	FEToleranceNM *float64 `json:"fe_tolerance_nm,omitempty"`
+	// LeadToleranceNM, GateToleranceNM and PadToleranceNM are the
+	// placement tolerances (±nm) of leads, gates and pads that give none;
+	// nil takes the instrument profile's (tolerance_lead_nm, ...). A lead
+	// matters by its ends, not to a fraction of a dimer.
+	LeadToleranceNM *float64 `json:"lead_tolerance_nm,omitempty"`
+	GateToleranceNM *float64 `json:"gate_tolerance_nm,omitempty"`
+	PadToleranceNM  *float64 `json:"pad_tolerance_nm,omitempty"`
+	// TunnelGapToleranceNM is the tolerance (±nm) of a tunnel gap's width
+	// (default half a dimer-row spacing, 0.38 nm).
+	TunnelGapToleranceNM *float64 `json:"tunnel_gap_tolerance_nm,omitempty"`
+}
+
+// NoDopant is the Species of a region that receives no dopant.
+const NoDopant = "none"
+
+// DefaultDopant is the dopant of regions when the design names none:
+// phosphorus δ-layers are the usual leads, islands, gates and pads of
+// hydrogen-resist lithography (common practice).
+const DefaultDopant = "P"
+
+// DopantOf returns the dopant the region receives: its Species, else the
+// design's Dopant, else DefaultDopant; NoDopant for a region without.
+func (d *Design) DopantOf(r *Region) string {
+	switch {
+	case r.Species != "":
+		return r.Species
+	case d.Dopant != "":
+		return d.Dopant
+	}
+	return DefaultDopant
 }

@@ -38,6 +38,16 @@ func (r Role) Name() string {
 	return string(r)
 }
 
+// Label returns the role's display name with its file spelling where
+// the two differ, for where a user meets both (the window's role choice,
+// dimerpath info beside a design file): "contact pad (pad)", "gate".
+func (r Role) Label() string {
+	if n := r.Name(); n != string(r) && r != "" {
+		return n + " (" + string(r) + ")"
+	}
+	return r.Name()
+}
+
 // modeName holds a write mode's display names.
 type modeName struct {
 	abbrev    string // in tables and short labels: "AP"

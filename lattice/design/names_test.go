@@ -43,6 +43,21 @@ func TestRoleNames(t *testing.T) {
 	}
 }
 
+// Issue 13: the window says "contact pad" where the file says "pad";
+// where a user meets both, the label shows both.
+func TestRoleLabels(t *testing.T) {
+	for _, tc := range []struct {
+		role Role
+		want string
+	}{
+		{RolePad, "contact pad (pad)"}, {RoleDonor, "donor windows (donor)"}, {RoleGate, "gate"}, {RoleDevice, "device"}, {"", "no role"},
+	} {
+		if got := tc.role.Label(); got != tc.want {
+			t.Errorf("Role(%q).Label() = %q, want %q", tc.role, got, tc.want)
+		}
+	}
+}
+
 // Every role and mode offered to users has a display name of its own,
 // so two never read alike in a choice list.
 func TestDisplayNamesAreComplete(t *testing.T) {

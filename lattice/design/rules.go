@@ -37,6 +37,11 @@ const (
 	// work, ±2 nm (common practice; FE lines are 3–10 nm wide, from
 	// memory).
 	DefaultFEToleranceNM = 2.0
+	// DefaultTunnelGapToleranceNM is the tolerance of a tunnel gap's
+	// width, ±half a dimer-row spacing (0.38 nm), so that the gap keeps
+	// its number of rows: one row more or less changes the tunnel
+	// resistance about tenfold (Wang et al., Commun. Phys. 3, 82 (2020)).
+	DefaultTunnelGapToleranceNM = lattice.RowSpacing / 2
 )
 
 // RuleSettings are the design-rule settings with every default filled
@@ -50,6 +55,9 @@ type RuleSettings struct {
 	TunnelGapMaxNM   float64
 	APToleranceNM    float64
 	FEToleranceNM    float64
+	// TunnelGapToleranceNM is the tolerance (±nm) of a tunnel gap's
+	// width.
+	TunnelGapToleranceNM float64
 }
 
 // DefaultRules returns the rule settings of a design without Rules.
@@ -63,6 +71,8 @@ func DefaultRules() RuleSettings {
 		TunnelGapMaxNM:   DefaultTunnelGapMaxNM,
 		APToleranceNM:    DefaultAPToleranceNM,
 		FEToleranceNM:    DefaultFEToleranceNM,
+
+		TunnelGapToleranceNM: DefaultTunnelGapToleranceNM,
 	}
 }
 
@@ -93,6 +103,7 @@ func (d *Design) EffectiveRules() RuleSettings {
 	set(&rs.TunnelGapMaxNM, r.TunnelGapMaxNM)
 	set(&rs.APToleranceNM, r.APToleranceNM)
 	set(&rs.FEToleranceNM, r.FEToleranceNM)
+	set(&rs.TunnelGapToleranceNM, r.TunnelGapToleranceNM)
 	return rs
 }
 

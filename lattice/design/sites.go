@@ -32,9 +32,21 @@ func (d *Design) Templates() Templates {
 		t[w.Name] = w
 	}
 	for _, w := range d.WindowTemplates {
-		t[w.Name] = w
+		t[w.Name] = w.Normalized()
 	}
 	return t
+}
+
+// ParseStep parses the direction of a step as written in design files:
+// "up", "down", or "" (a version 1 file), which is read as down.
+func ParseStep(s string) (lattice.StepDirection, error) {
+	switch s {
+	case "up":
+		return lattice.StepUp, nil
+	case "down", "":
+		return lattice.StepDown, nil
+	}
+	return lattice.StepDown, fmt.Errorf("step %q is not \"up\" or \"down\"", s)
 }
 
 // ParseRows parses a row direction as written in design files, "x" or
@@ -63,7 +75,11 @@ func (d *Design) Surface() (*lattice.Surface, error) {
 			if j < 0 {
 				return nil, fmt.Errorf("design: terraces[%d] %q: step_from %q names no earlier terrace", i, t.Name, t.StepFrom)
 			}
-			lt = terraces[j].AcrossStep()
+			dir, err := ParseStep(t.Step)
+			if err != nil {
+				return nil, fmt.Errorf("design: terraces[%d] %q: %v", i, t.Name, err)
+			}
+			lt = terraces[j].AcrossStep(dir)
 			lt.Name = t.Name
 			lt.Offset = lt.Offset.Add(point(t.OffsetNM))
 			if t.Rows != "" && t.Rows != lt.Rows.String() {

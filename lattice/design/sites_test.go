@@ -18,10 +18,12 @@ func TestSurfaceAcrossStep(t *testing.T) {
 	if lower.Rows != lattice.RowsAlongX || upper.Rows != lattice.RowsAlongY {
 		t.Errorf("rows %v, %v; want x then y (turned across the step)", lower.Rows, upper.Rows)
 	}
-	// a/(2√2) along the new rows (the diamond structure: one single-height
-	// step, a/4, down).
-	if dy := upper.Offset.Y - lower.Offset.Y; math.Abs(dy-lattice.StepShift) > 1e-12 {
-		t.Errorf("step shift %g, want %g", dy, lattice.StepShift)
+	// The demo's upper terrace is one step up: a/(2√2) across the new
+	// rows (the diamond structure; see lattice's
+	// TestAcrossStepMatchesDiamondLattice), reduced into one cell.
+	shift := upper.Offset.Sub(lower.Offset)
+	if dx := math.Mod(shift.X+10*lattice.RowSpacing, lattice.RowSpacing/2); math.Abs(dx-lattice.StepShift) > 1e-9 || math.Abs(math.Remainder(shift.Y, lattice.DimerPitch)) > 1e-9 {
+		t.Errorf("step shift %v, want a/(2√2) across the rows (x), whole pitches along (y)", shift)
 	}
 	d.Terraces[1].Rows = "x"
 	if err := d.Validate(); err == nil || !strings.Contains(err.Error(), `rows "x" disagrees with the step from "lower"`) {
@@ -63,11 +65,11 @@ func TestRegionSitesUnionMinusErased(t *testing.T) {
 func TestTemplatesAndTolerance(t *testing.T) {
 	d := loadDemo(t)
 	d.WindowTemplates = []lattice.WindowTemplate{
-		{Name: "P", Species: "P", Dimers: 3, Probability: 0.55, Source: "lab"},
-		{Name: "P2x3", Species: "P", Dimers: 6, Probability: 0.1, Source: "lab"},
+		{Name: "P", Species: "P", Dimers: 3, Probability: 0.55, Source: "lab, version 1 file"},
+		{Name: "P6", Species: "P", Dimers: 6, P0: 0.05, P1: 0.35, P2Plus: 0.6, Source: "lab"},
 	}
 	ts := d.Templates()
-	if ts["P"].Probability != 0.55 || ts["As"].Probability != 0.97 || ts["P2x3"].Dimers != 6 || len(ts) != 3 {
+	if ts["P"].P1 != 0.55 || math.Abs(ts["P"].P0-0.45) > 1e-12 || ts["As"].P1 != 0.97 || ts["P6"].P2Plus != 0.6 || len(ts) != 3 {
 		t.Errorf("merged templates %v", ts)
 	}
 	rs := d.EffectiveRules()

@@ -82,8 +82,8 @@ func (d *Design) validate(ps *problems) {
 	d.validateRules(ps)
 	for i, t := range d.WindowTemplates {
 		path := fmt.Sprintf("templates[%d]", i)
-		if err := t.Validate(); err != nil {
-			ps.add(path, "%v", err)
+		for _, p := range t.Normalized().Problems() {
+			ps.add(path+"."+p.Field, "%v: %s", p.Value, p.Problem)
 		}
 		for j := range i {
 			if d.WindowTemplates[j].Name == t.Name {
@@ -95,6 +95,9 @@ func (d *Design) validate(ps *problems) {
 	species := map[string]bool{}
 	for _, t := range templates {
 		species[t.Species] = true
+	}
+	if d.Dopant != "" && !species[d.Dopant] {
+		ps.add("dopant", "%q is the species of no window template", d.Dopant)
 	}
 	var surf *lattice.Surface
 	if fieldOK && terracesOK {
@@ -208,6 +211,13 @@ func (d *Design) validateTerraces(ps *problems) bool {
 					ok = false
 				}
 			}
+			if _, err := ParseStep(t.Step); err != nil {
+				ps.add(path+".step", "%v", err)
+				ok = false
+			}
+		} else if t.Step != "" {
+			ps.add(path+".step", "%q needs step_from: the terrace it steps from", t.Step)
+			ok = false
 		} else if _, err := ParseRows(t.Rows); err != nil {
 			ps.add(path+".rows", "%v (or give step_from)", err)
 			ok = false
@@ -274,6 +284,10 @@ func (d *Design) validateRules(ps *problems) {
 	positive("tunnel_gap_max_nm", r.TunnelGapMaxNM)
 	positive("ap_tolerance_nm", r.APToleranceNM)
 	positive("fe_tolerance_nm", r.FEToleranceNM)
+	positive("lead_tolerance_nm", r.LeadToleranceNM)
+	positive("gate_tolerance_nm", r.GateToleranceNM)
+	positive("pad_tolerance_nm", r.PadToleranceNM)
+	positive("tunnel_gap_tolerance_nm", r.TunnelGapToleranceNM)
 	if rs := d.EffectiveRules(); rs.TunnelGapMaxNM < rs.TunnelGapMinNM {
 		ps.add("rules", "tunnel gap range %g–%g nm is empty: the maximum is below the minimum", rs.TunnelGapMinNM, rs.TunnelGapMaxNM)
 	}
@@ -312,8 +326,19 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 		if r.Mode != "" && !contains(Modes, r.Mode) {
 			ps.add(rp+".mode", "%q is not a write mode (%s)", r.Mode, listOf(Modes))
 		}
-		if r.Species != "" && !species[r.Species] {
-			ps.add(rp+".species", "%q is the species of no window template", r.Species)
+		if r.Species != "" && r.Species != NoDopant && !species[r.Species] {
+			ps.add(rp+".species", "%q is the species of no window template (or %q for a region without dopant)", r.Species, NoDopant)
+		}
+		if r.LithographyStep != "" {
+			switch {
+			case r.Species != NoDopant:
+				ps.add(rp+".lithography_step", "%q: only a region without dopant (species %q) names its step; the others are written in their dopant's", r.LithographyStep, NoDopant)
+			case !species[r.LithographyStep]:
+				ps.add(rp+".lithography_step", "%q is the species of no window template, so no process step takes it", r.LithographyStep)
+			}
+		}
+		if r.Colour != "" && !IsColour(r.Colour) {
+			ps.add(rp+".colour", "%q is not a colour: write #rrggbb in hexadecimal, e.g. #e64980", r.Colour)
 		}
 		if !(r.ToleranceNM >= 0 && r.ToleranceNM <= MaxFieldNM) {
 			ps.add(rp+".tolerance_nm", "%g must be between 0 (the mode's default) and %g nm", r.ToleranceNM, MaxFieldNM)
@@ -367,6 +392,30 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 		}
 		if g.MinNM > 0 && g.MaxNM > 0 && g.MaxNM < g.MinNM {
 			ps.add(gp, "range %g–%g nm is empty", g.MinNM, g.MaxNM)
+		}
+		if !(g.ToleranceNM >= 0 && g.ToleranceNM <= MaxFieldNM) {
+			ps.add(gp+".tolerance_nm", "%g must be between 0 (the rule's) and %g nm", g.ToleranceNM, MaxFieldNM)
+		}
+	}
+	coupled := make(map[[2]string]int, len(v.Couplings))
+	for ci, c := range v.Couplings {
+		cp := fmt.Sprintf("%s.couplings[%d]", path, ci)
+		pair := [2]string{min(c.A, c.B), max(c.A, c.B)}
+		if j, dup := coupled[pair]; dup {
+			ps.add(cp, "the coupling of %q and %q is also declared as couplings[%d]", c.A, c.B, j)
+		} else {
+			coupled[pair] = ci
+		}
+		for _, end := range []struct{ field, name string }{{"a", c.A}, {"b", c.B}} {
+			if _, ok := names[end.name]; !ok {
+				ps.add(cp+"."+end.field, "%q names no region of variant %q", end.name, v.Name)
+			}
+		}
+		if c.A == c.B && c.A != "" {
+			ps.add(cp, "a coupling needs two different regions, not %q twice", c.A)
+		}
+		if !(c.ToleranceNM > 0 && c.ToleranceNM <= MaxFieldNM) {
+			ps.add(cp+".tolerance_nm", "%g must be more than 0 and at most %g nm", c.ToleranceNM, MaxFieldNM)
 		}
 	}
 }
@@ -487,4 +536,18 @@ func checkPoint(ps *problems, path string, p [2]float64) bool {
 		return true
 	}
 	return false
+}
+
+// IsColour reports whether s is a colour as design files write them:
+// "#" and six hexadecimal digits (red, green, blue).
+func IsColour(s string) bool {
+	if len(s) != 7 || s[0] != '#' {
+		return false
+	}
+	for _, c := range s[1:] {
+		if !(c >= '0' && c <= '9' || c >= 'a' && c <= 'f' || c >= 'A' && c <= 'F') {
+			return false
+		}
+	}
+	return true
 }

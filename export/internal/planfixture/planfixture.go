@@ -58,6 +58,11 @@ const (
 	switchS        = 5
 	registrationS  = 240
 	verificationS  = 60
+	conditionS     = 600
+	surveyS        = 1200
+	refindS        = 900
+	doseS          = 800
+	annealS        = 1860
 	windowP        = 0.63 // Ivie et al. 2021, single-P 3-dimer window
 	windowAs       = 0.97 // Stock et al. 2024, single As
 	apBudgetS      = 120  // 0.2 nm / 0.1 nm/min
@@ -69,7 +74,10 @@ const (
 // SET returns a small single-electron-transistor device on two terraces
 // (the row direction turns at the step at x = 70 nm): an AP island with
 // source, drain and gate leads, six donor windows, and three FE contact
-// pads, written in five segments.
+// pads, written as a two-step session: a survey; the two arsenic windows
+// (one segment), their dose and anneal; the rest with the four
+// phosphorus windows last (four segments), their dose and anneal; a
+// documentation image.
 func SET() *Device {
 	surf, err := lattice.NewSurface(120, 80,
 		lattice.Terrace{Name: "T0", Rows: lattice.RowsAlongX,
@@ -115,21 +123,23 @@ func SET() *Device {
 	padD := addRegion("pad-D", "pad", "fe", "wide and ±2 nm tolerance: FE is 100x faster")
 	padG := addRegion("pad-G", "pad", "fe", "wide and ±2 nm tolerance: FE is 100x faster")
 
-	// Segment 0: the donor windows and the island.
-	var seg0 []int
-	for _, dm := range []int{84, 88, 92, 96} {
-		w := lattice.Window{Template: lattice.PhosphineWindow, Terrace: 0, Row: 30, FirstDimer: dm}
-		w.AddTo(donors)
-		at := surf.DimerCentre(0, 30, dm+1)
-		seg0 = append(seg0, b.dwell("donors", at, "P", "P", windowP, 6))
-	}
+	// Step As: the two arsenic windows.
+	var segAs []int
 	for _, dm := range []int{86, 93} {
 		w := lattice.Window{Template: lattice.ArsineWindow, Terrace: 0, Row: 26, FirstDimer: dm}
 		w.AddTo(donors)
 		at := surf.DimerCentre(0, 26, dm).Add(surf.DimerCentre(0, 26, dm+1)).Mul(0.5)
-		seg0 = append(seg0, b.dwell("donors", at, "As", "As", windowAs, 4))
+		segAs = append(segAs, b.dwell("donors", at, "As", "As", windowAs, 4))
 	}
-	seg0 = append(seg0, apBlock("island", island, [2]int{48, 53}, [2]int{80, 95})...)
+	// Step P, segment 0: the island, then the phosphorus windows last.
+	seg0 := apBlock("island", island, [2]int{48, 53}, [2]int{80, 95})
+	var winsP []int
+	for _, dm := range []int{84, 88, 92, 96} {
+		w := lattice.Window{Template: lattice.PhosphineWindow, Terrace: 0, Row: 30, FirstDimer: dm}
+		w.AddTo(donors)
+		at := surf.DimerCentre(0, 30, dm+1)
+		winsP = append(winsP, b.dwell("donors", at, "P", "P", windowP, 6))
+	}
 	seg1 := apBlock("source", source, [2]int{50, 51}, [2]int{20, 68})
 	seg1 = append(seg1, apBlock("drain", drain, [2]int{50, 51}, [2]int{108, 180})...)
 	seg2 := apBlock("gate", gate, [2]int{70, 72}, [2]int{70, 105})
@@ -140,9 +150,14 @@ func SET() *Device {
 	seg3 = append(seg3, b.pad("pad-G", padG, surf, r2.RectFromPoints(r2.Point{X: 20, Y: 55.5}, r2.Point{X: 36, Y: 72}))...)
 	seg4 = append(seg4, b.pad("pad-D", padD, surf, r2.RectFromPoints(r2.Point{X: 66, Y: 28}, r2.Point{X: 100, Y: 50}))...)
 
-	for _, seg := range [][]int{seg0, seg1, seg2, seg3, seg4} {
-		b.segment(seg)
-	}
+	b.survey()
+	b.lithography("As", [][]int{segAs})
+	b.process("As")
+	b.lithography("P", [][]int{seg0, seg1, seg2, seg3, append(seg4, winsP...)})
+	b.process("P")
+	b.document()
+	b.p.Couplings = []planner.Coupling{{Kind: planner.CoupledGap, A: "island", B: "source", ToleranceNM: 0.384,
+		Strokes: []int{seg0[0], seg1[0]}, SameStep: true, PInTolerance: 0.99}}
 	b.p.Warnings = []string{"stroke 21 (drain) was split at a registration to keep within its drift budget"}
 	for i := range d.Regions {
 		b.p.Modes[i].Sites = d.Regions[i].Sites.Count()
@@ -193,6 +208,7 @@ func Large(n int, seed int64) *planner.Plan {
 		}
 		return cmp.Compare(c.at.X, a.at.X)
 	})
+	b.p.Steps = []planner.Step{{Kind: planner.StepLithography, Species: "P", Note: "write everything"}}
 	var seg []int
 	for _, it := range items {
 		var id int
@@ -214,6 +230,8 @@ func Large(n int, seed int64) *planner.Plan {
 	if len(seg) > 0 {
 		b.segment(seg)
 	}
+	b.p.Steps[0].DurationS = b.t
+	b.process("P")
 	return b.finish()
 }
 
@@ -261,7 +279,7 @@ func (b *builder) dwell(region string, at r2.Point, species, template string, pr
 	// completion), a fixture value.
 	open := math.Pow(0.99, float64(sites))
 	b.p.Windows = append(b.p.Windows, planner.Window{Region: region, Species: species, Template: template,
-		At: at, Sites: sites, OpenProbability: open, Probability: prob * open})
+		At: at, Sites: sites, OpenProbability: open, P0: 1 - prob, P1: prob, P1SD: 0.05, Probability: prob * open})
 	return b.add(planner.Stroke{Region: region, Mode: design.ModeAP, Kind: planner.StrokeDwell, Path: []r2.Point{at},
 		Passes: 1, DurationS: dwellS, Sites: sites, ToleranceNM: 0.2, Window: len(b.p.Windows) - 1})
 }
@@ -318,8 +336,18 @@ func (b *builder) act(a planner.Action) {
 	switch a.Kind {
 	case planner.ActMove:
 		b.p.Breakdown.TravelS += a.DurationS
-	case planner.ActRegister:
+	case planner.ActRegister, planner.ActRefind:
 		b.p.Breakdown.RegistrationS += a.DurationS
+	case planner.ActSurvey:
+		b.p.Breakdown.SurveyS += a.DurationS
+	case planner.ActCondition:
+		b.p.Breakdown.ConditioningS += a.DurationS
+	case planner.ActDose:
+		b.p.Breakdown.DoseS += a.DurationS
+	case planner.ActAnneal:
+		b.p.Breakdown.AnnealS += a.DurationS
+	case planner.ActDocument:
+		b.p.Breakdown.DocumentationS += a.DurationS
 	case planner.ActSwitch:
 		b.p.Breakdown.ModeSwitchS += a.DurationS
 	case planner.ActVerify:
@@ -356,7 +384,9 @@ func (b *builder) segment(ids []int) {
 		}
 	}
 	b.move(fid.At, seg, "to fiducial "+fid.Name)
-	s := planner.Segment{Index: seg, Fiducial: fid.Name, FiducialAt: fid.At, StartS: b.t, Strokes: ids, BudgetS: math.Inf(1)}
+	s := planner.Segment{Index: seg, Step: len(b.p.Steps) - 1, Registration: planner.RegCoarse, Reason: "fixture: fiducial " + fid.Name,
+		Fiducial: fid.Name, FiducialAt: fid.At, StartS: b.t, Strokes: ids, BudgetS: math.Inf(1), Tightest: ids[0], PInTolerance: 0.99}
+	b.p.Steps[len(b.p.Steps)-1].Segments = append(b.p.Steps[len(b.p.Steps)-1].Segments, seg)
 	b.act(planner.Action{Kind: planner.ActRegister, Segment: seg, Stroke: -1, From: fid.At, To: fid.At,
 		DurationS: registrationS, Note: "register on " + fid.Name})
 	for _, id := range ids {
@@ -393,24 +423,111 @@ func (b *builder) segment(ids []int) {
 	b.p.Segments = append(b.p.Segments, s)
 }
 
+// survey adds the survey step: a conditioning and a survey image.
+func (b *builder) survey() {
+	b.p.Steps = append(b.p.Steps, planner.Step{Kind: planner.StepSurvey, StartS: b.t, Note: "condition the tip, then survey"})
+	b.act(planner.Action{Kind: planner.ActCondition, Segment: -1, Stroke: -1, From: b.at, To: b.at, DurationS: conditionS, Note: "condition the tip"})
+	b.act(planner.Action{Kind: planner.ActSurvey, Segment: -1, Stroke: -1, From: b.at, To: b.at, DurationS: surveyS, Note: "survey image"})
+	b.endStep()
+}
+
+// lithography adds a lithography step of species with the given
+// segments (stroke IDs each), after finding the area again when it is
+// not the first.
+func (b *builder) lithography(species string, segs [][]int) {
+	for _, st := range b.p.Steps {
+		if st.Kind == planner.StepLithography {
+			b.p.Steps = append(b.p.Steps, planner.Step{Kind: planner.StepReregister, Species: species, StartS: b.t, Note: "find the area again"})
+			b.act(planner.Action{Kind: planner.ActRefind, Segment: -1, Stroke: -1, From: b.at, To: b.at, DurationS: refindS, Note: "find the area again"})
+			b.endStep()
+			break
+		}
+	}
+	b.p.Steps = append(b.p.Steps, planner.Step{Kind: planner.StepLithography, Species: species, StartS: b.t, Note: "write the " + species + " regions, windows last"})
+	for _, ids := range segs {
+		b.segment(ids)
+	}
+	b.endStep()
+}
+
+// process adds the dose and the anneal of species; the windows of the
+// species stay open until the dose.
+func (b *builder) process(species string) {
+	b.p.Steps = append(b.p.Steps, planner.Step{Kind: planner.StepDose, Species: species, StartS: b.t,
+		Precursor: planner.Precursor(species), ExposureL: 2, Note: "dose"})
+	// Each window has been open since the end of its last stroke's
+	// action: one pass over the actions (a pass per window was
+	// quadratic, minutes for the large fixtures).
+	for _, a := range b.p.Actions {
+		if a.Stroke < 0 {
+			continue
+		}
+		if i := b.p.Strokes[a.Stroke].Window; i >= 0 && b.p.Windows[i].Species == species {
+			b.p.Windows[i].OpenS = b.t - (a.StartS + a.DurationS)
+		}
+	}
+	b.act(planner.Action{Kind: planner.ActDose, Segment: -1, Stroke: -1, From: b.at, To: b.at, DurationS: doseS, Note: "dose " + species})
+	b.endStep()
+	b.p.Steps = append(b.p.Steps, planner.Step{Kind: planner.StepAnneal, Species: species, StartS: b.t, TemperatureC: 350, Note: "anneal"})
+	b.act(planner.Action{Kind: planner.ActAnneal, Segment: -1, Stroke: -1, From: b.at, To: b.at, DurationS: annealS, Note: "anneal 350 °C"})
+	b.endStep()
+}
+
+// document adds the documentation step.
+func (b *builder) document() {
+	b.p.Steps = append(b.p.Steps, planner.Step{Kind: planner.StepDocumentation, StartS: b.t, Note: "documentation image"})
+	b.act(planner.Action{Kind: planner.ActRefind, Segment: -1, Stroke: -1, From: b.at, To: b.at, DurationS: refindS, Note: "find the area again"})
+	b.act(planner.Action{Kind: planner.ActDocument, Segment: -1, Stroke: -1, From: b.at, To: b.at, DurationS: surveyS, Note: "documentation image"})
+	b.endStep()
+}
+
+func (b *builder) endStep() {
+	st := &b.p.Steps[len(b.p.Steps)-1]
+	st.DurationS = b.t - st.StartS
+}
+
 // finish fills the totals, the spread and the yield.
 func (b *builder) finish() *planner.Plan {
 	p := b.p
-	p.TotalS = b.t
+	p.ScheduleS = b.t
+	// A fixture tip change: 5 % of the schedule on average.
+	p.Breakdown.TipChangeS = 0.05 * b.t
+	p.TotalS = p.Breakdown.Total()
+	p.PInTolerance = 0.95
+	p.Drift = planner.DriftPlan{RateNMPerMin: 0.16, CreepFraction: 0.03, ErrorZ: 1.64, Margin: 1.25}
 	p.FloorS = p.Breakdown.APWriteS + p.Breakdown.FEWriteS + p.Breakdown.DwellS
 	p.ByHandS = 1.8 * p.TotalS // a fixture ratio, not a by-hand plan
 	// A fixture spread, not a Monte Carlo.
 	p.P10S, p.P50S, p.P90S = 0.97*p.TotalS, 0.995*p.TotalS, 1.06*p.TotalS
+	for i := range p.Segments {
+		p.Segments[i].BudgetS = min(p.Segments[i].BudgetS, feBudgetS)
+	}
 	probs := make([]float64, len(p.Windows))
 	for i, w := range p.Windows {
 		probs[i] = w.Probability
 	}
 	p.Yield = yieldOf(probs)
+	// Fixture intervals (a tenth either side in log10), not a sampling.
+	l := p.Yield.Log10All
+	p.Yield.Log10All68 = [2]float64{1.1 * l, 0.9 * l}
+	p.Yield.Log10All95 = [2]float64{1.2 * l, 0.8 * l}
+	for k := range 2 {
+		p.Yield.All68[k], p.Yield.All95[k] = math.Pow(10, p.Yield.Log10All68[k]), math.Pow(10, p.Yield.Log10All95[k])
+	}
+	for _, w := range p.Windows {
+		p.Yield.ExpectedEmpty += w.OpenProbability * w.P0
+		p.Yield.ExpectedMisopened += 1 - w.OpenProbability
+	}
 	sites := 0
 	for _, m := range p.Modes {
 		sites += m.Sites
 	}
-	p.Coverage = planner.Coverage{OK: true, Sites: sites}
+	// A fixture expectation: a thousandth of the sites missed, none stray.
+	p.Coverage = planner.Coverage{OK: true, Sites: sites, StrayLimit: 0.01, ExpectedMissed: 1e-3 * float64(sites)}
+	for _, m := range p.Modes {
+		p.Coverage.Regions = append(p.Coverage.Regions, planner.RegionCoverage{Region: m.Region, Sites: m.Sites,
+			ExpectedMissed: 1e-3 * float64(m.Sites), Probability: math.Exp(-1e-3 * float64(m.Sites)), Log10Probability: -1e-3 * float64(m.Sites) / math.Ln10})
+	}
 	return p
 }
 

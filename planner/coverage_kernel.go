@@ -1,0 +1,524 @@
+package planner
+
+import (
+	"math"
+
+	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice"
+)
+
+// The exposure of one stroke piece at a site, and bounds of it over a
+// range of sites (coverage.go's classifier works on these).
+
+// piece is one straight piece of a stroke's path, or a dwell, as seen
+// from one terrace: coordinates are along and across that terrace's rows,
+// from its lattice offset. A piece parallel to the rows lies at across c
+// from along a0 to a1; one square to them at along c from across a0 to
+// a1; any other starts at (pu, py) with unit direction (du, dy) and
+// length L; a dwell (dot) sits at (pu, py). Its exposure at (u, y) is
+// amp times a Gaussian across it and the band of its length along it
+// (see lineExposure), or for a dot amp times the 2-D Gaussian.
+type piece struct {
+	kind      uint8
+	stroke    int32
+	amp       float64 // exposure on the centre line (a dot: at its centre)
+	sigma     float64
+	c, a0, a1 float64
+	pu, py    float64
+	du, dy, L float64
+	uLo, uHi  float64 // the box beyond which the piece gives less than the neglect share
+	yLo, yHi  float64
+	// uTop and yTop are the along and across factors at their peaks
+	// (uPeak, yPeak), and sTop a slanted piece's band at its middle,
+	// computed once.
+	uTop, yTop, sTop float64
+	// cache holds the along factor at the dimers where it is neither 0
+	// nor 1 (within 8σ of an end of a parallel piece, of the centre of a
+	// square piece or dot), filled on first use: a piece is met on every
+	// site line it reaches.
+	cache [2]alongCache
+}
+
+// alongCache is a piece's along factor at dimers [d0, d0+len(v)).
+type alongCache struct {
+	d0     int
+	v      []float64
+	filled bool
+}
+
+// alongWindows returns the dimer windows in which the piece's along
+// factor is neither 0 nor 1, and the factor outside them (at dimers
+// between the windows, for a parallel piece, and beyond them).
+func (p *piece) alongWindows() (w [2][2]int, n int) {
+	span := func(lo, hi float64) [2]int {
+		return [2]int{int(math.Floor(lo / lattice.DimerPitch)), int(math.Ceil(hi/lattice.DimerPitch)) + 1}
+	}
+	r := 8 * p.sigma
+	switch p.kind {
+	case pieceParallel:
+		if p.a1-p.a0 <= 2*r {
+			return [2][2]int{span(p.a0-r, p.a1+r)}, 1
+		}
+		return [2][2]int{span(p.a0-r, p.a0+r), span(p.a1-r, p.a1+r)}, 2
+	case pieceSquare:
+		return [2][2]int{span(p.c-r, p.c+r)}, 1
+	}
+	return [2][2]int{span(p.pu-r, p.pu+r)}, 1
+}
+
+// uFactorAt returns uFactor at dimer d's centre (not for slanted
+// pieces), from the cache.
+func (p *piece) uFactorAt(d int) float64 {
+	if p.cache[0].v == nil && !p.cache[0].filled {
+		w, n := p.alongWindows()
+		for k := range n {
+			p.cache[k] = alongCache{d0: w[k][0], v: make([]float64, w[k][1]-w[k][0])}
+		}
+		p.cache[0].filled = true
+	}
+	for k := range p.cache {
+		c := &p.cache[k]
+		if i := d - c.d0; i >= 0 && i < len(c.v) {
+			if c.v[i] == 0 {
+				// 0 marks "not yet": a factor that is truly 0 is met
+				// again, at the cost of computing it again.
+				c.v[i] = p.uFactor(lattice.DimerAlong(d))
+			}
+			return c.v[i]
+		}
+	}
+	// Outside the windows: 1 between a parallel piece's two ends, else 0.
+	if p.kind == pieceParallel && len(p.cache[1].v) > 0 && d >= p.cache[0].d0+len(p.cache[0].v) && d < p.cache[1].d0 {
+		return 1
+	}
+	return 0
+}
+
+// alongRange adds amp times the piece's along factor at dimers [d0, d1)
+// to x[k] (k = d − d0), and records in best and who the largest term each
+// dimer gets and its stroke (not for slanted pieces or dots): the
+// factors come from the cache, filled where missing, and are 0 or 1
+// outside its windows.
+func (p *piece) alongRange(d0, d1 int, amp float64, x, best []float64, who []int32) {
+	if p.cache[0].v == nil && !p.cache[0].filled {
+		p.uFactorAt(d0) // allocates the windows
+	}
+	d := d0
+	add := func(to int, f float64) {
+		if e := amp * f; e > 0 {
+			for ; d < to; d++ {
+				k := d - d0
+				x[k] += e
+				if e > best[k] {
+					best[k], who[k] = e, p.stroke
+				}
+			}
+		}
+		d = max(d, to)
+	}
+	n := 1
+	if len(p.cache[1].v) > 0 {
+		n = 2
+	}
+	for w := range n {
+		c := &p.cache[w]
+		// Before the window: 0, or 1 between a parallel piece's windows.
+		outside := 0.0
+		if w == 1 && p.kind == pieceParallel {
+			outside = 1
+		}
+		add(min(c.d0, d1), outside)
+		for ; d < d1 && d < c.d0+len(c.v); d++ {
+			v := c.v[d-c.d0]
+			if v == 0 {
+				v = p.uFactor(lattice.DimerAlong(d))
+				c.v[d-c.d0] = v
+			}
+			if e := amp * v; e > 0 {
+				k := d - d0
+				x[k] += e
+				if e > best[k] {
+					best[k], who[k] = e, p.stroke
+				}
+			}
+		}
+	}
+	add(d1, 0)
+}
+
+const (
+	pieceParallel = iota
+	pieceSquare
+	pieceSlanted
+	pieceDot
+)
+
+// band is the unimodal factor Φ((hi-x)/σ) - Φ((lo-x)/σ): the share of a
+// Gaussian of width σ centred at x that falls on [lo, hi]. Far beyond an
+// end (8σ) that end's term is 0 or 1 to within 1e-15 and is skipped; to
+// the right of both ends the upper tail is taken as Φ(−a) − Φ(−b), which
+// keeps its digits.
+func band(lo, hi, sigma, x float64) float64 {
+	a, b := (lo-x)/sigma, (hi-x)/sigma
+	switch {
+	case a < -8 && b > 8:
+		return 1
+	case a < -8:
+		return fastPhi(b)
+	case b > 8:
+		return fastPhi(-a)
+	case a > 0:
+		return fastPhi(-a) - fastPhi(-b)
+	}
+	return fastPhi(b) - fastPhi(a)
+}
+
+// fastPhi returns Φ(x) by cubic Hermite interpolation in a table of Φ
+// and its density at steps of 1/phiSteps on [−8, 8] (absolute error below
+// 10⁻¹⁰), and from erfc beyond: the coverage check evaluates Φ tens of
+// millions of times.
+func fastPhi(x float64) float64 {
+	t := (x + 8) * phiSteps
+	if !(t >= 0 && t < float64(len(phiValue)-1)) {
+		return normalCDF(x)
+	}
+	i := int(t)
+	f := t - float64(i)
+	f2 := f * f
+	f3 := f2 * f
+	return (2*f3-3*f2+1)*phiValue[i] + (f3-2*f2+f)*phiSlope[i] + (-2*f3+3*f2)*phiValue[i+1] + (f3-f2)*phiSlope[i+1]
+}
+
+const phiSteps = 64
+
+// phiValue holds Φ at the table's points, phiSlope its derivative per
+// table step (the density over phiSteps).
+var phiValue, phiSlope = func() (v, d []float64) {
+	n := 16*phiSteps + 1
+	v, d = make([]float64, n), make([]float64, n)
+	for k := range v {
+		x := -8 + float64(k)/phiSteps
+		v[k] = normalCDF(x)
+		d[k] = math.Exp(-x*x/2) / math.Sqrt(2*math.Pi) / phiSteps
+	}
+	return v, d
+}()
+
+// gauss returns exp(−d²/2σ²), by cubic Hermite interpolation in a table
+// at steps of 1/gaussSteps of d/σ up to gaussMax (absolute error below
+// 10⁻⁹), 0 beyond.
+func gauss(d, sigma float64) float64 {
+	t := math.Abs(d/sigma) * gaussSteps
+	if !(t < float64(len(gaussValue)-1)) {
+		if t != t { // NaN
+			return t
+		}
+		return 0
+	}
+	i := int(t)
+	f := t - float64(i)
+	f2 := f * f
+	f3 := f2 * f
+	return (2*f3-3*f2+1)*gaussValue[i] + (f3-2*f2+f)*gaussSlope[i] + (-2*f3+3*f2)*gaussValue[i+1] + (f3-f2)*gaussSlope[i+1]
+}
+
+// gaussMax is where gauss is taken as 0: exp(−40²/2) underflows.
+const (
+	gaussSteps = 64
+	gaussMax   = 40
+)
+
+var gaussValue, gaussSlope = func() (v, d []float64) {
+	n := gaussMax*gaussSteps + 1
+	v, d = make([]float64, n), make([]float64, n)
+	for k := range v {
+		x := float64(k) / gaussSteps
+		v[k] = math.Exp(-x * x / 2)
+		d[k] = -x * v[k] / gaussSteps
+	}
+	return v, d
+}()
+
+// uFactor and yFactor split a parallel, square or dot piece's exposure
+// into a factor of the along position and one of the across position.
+func (p *piece) uFactor(u float64) float64 {
+	switch p.kind {
+	case pieceParallel:
+		return band(p.a0, p.a1, p.sigma, u)
+	case pieceDot:
+		return gauss(u-p.pu, p.sigma)
+	}
+	return gauss(u-p.c, p.sigma)
+}
+
+func (p *piece) yFactor(y float64) float64 {
+	switch p.kind {
+	case pieceParallel:
+		return gauss(y-p.c, p.sigma)
+	case pieceDot:
+		return gauss(y-p.py, p.sigma)
+	}
+	return band(p.a0, p.a1, p.sigma, y)
+}
+
+// uPeak and yPeak are where the factors peak.
+func (p *piece) uPeak() float64 {
+	switch p.kind {
+	case pieceParallel:
+		return (p.a0 + p.a1) / 2
+	case pieceDot:
+		return p.pu
+	}
+	return p.c
+}
+
+func (p *piece) yPeak() float64 {
+	switch p.kind {
+	case pieceParallel:
+		return p.c
+	case pieceDot:
+		return p.py
+	}
+	return (p.a0 + p.a1) / 2
+}
+
+// at returns the piece's exposure at (u, y).
+func (p *piece) at(u, y float64) float64 {
+	if p.kind != pieceSlanted {
+		return p.amp * p.uFactor(u) * p.yFactor(y)
+	}
+	s := (u-p.pu)*p.du + (y-p.py)*p.dy
+	x := (y-p.py)*p.du - (u-p.pu)*p.dy
+	return p.amp * gauss(x, p.sigma) * band(0, p.L, p.sigma, s)
+}
+
+// slantedDimers returns the range [k0, k1) of dimers d0+k (d0 ≤ d0+k <
+// d1) of the site line at y that lie within reach of slanted piece p:
+// both its across distance and its along position beyond the ends are
+// linear in the dimer, so the range is an intersection of two intervals.
+func (p *piece) slantedDimers(d0, d1 int, y float64) (k0, k1 int) {
+	reach := p.sigma * math.Sqrt(2*math.Log(max(p.amp/exposureNeglect, 1)))
+	lo, hi := 0.0, float64(d1-d0)
+	u0 := lattice.DimerAlong(d0)
+	// within returns the k with |c + k·m| ≤ r, or c + k·m in [a, b].
+	within := func(c, m, a, b float64) {
+		if m == 0 {
+			if c < a || c > b {
+				hi = lo
+			}
+			return
+		}
+		ka, kb := (a-c)/m, (b-c)/m
+		if ka > kb {
+			ka, kb = kb, ka
+		}
+		lo, hi = math.Max(lo, ka), math.Min(hi, kb)
+	}
+	h := lattice.DimerPitch
+	// Across: (y−py)·du − (u−pu)·dy; along: (u−pu)·du + (y−py)·dy.
+	within((y-p.py)*p.du-(u0-p.pu)*p.dy, -h*p.dy, -reach, reach)
+	within((u0-p.pu)*p.du+(y-p.py)*p.dy, h*p.du, -reach, p.L+reach)
+	if !(hi >= lo) {
+		return 0, 0
+	}
+	return max(0, int(math.Floor(lo))), min(d1-d0, int(math.Ceil(hi))+1)
+}
+
+// slantedRange adds slanted piece p's exposure at dimers d0+k, k in [k0,
+// k1), of the site line at y to x[k], recording the largest term in best
+// and who (see alongRange). The across distance is linear in k, so its
+// Gaussian follows the recurrence g(k+1) = g(k)·r(k), r(k+1) = r(k)·q,
+// re-anchored every 16 dimers against rounding; the band along the piece
+// comes from the Φ table.
+func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who []int32) {
+	if k0 >= k1 {
+		return
+	}
+	h := lattice.DimerPitch
+	u0 := lattice.DimerAlong(d0 + k0)
+	across := ((y-p.py)*p.du - (u0-p.pu)*p.dy) / p.sigma // at k0, in σ
+	step := -h * p.dy / p.sigma
+	along := (u0-p.pu)*p.du + (y-p.py)*p.dy // at k0, nm
+	alongStep := h * p.du
+	q := math.Exp(-step * step)
+	var g, r float64
+	for k := k0; k < k1; k++ {
+		j := k - k0
+		a := across + float64(j)*step
+		if j%16 == 0 {
+			g = math.Exp(-a * a / 2)
+			r = math.Exp(-(2*a*step + step*step) / 2)
+		}
+		s := along + float64(j)*alongStep
+		if e := p.amp * g * (fastPhi((p.L-s)/p.sigma) - fastPhi(-s/p.sigma)); e > 0 {
+			x[k] += e
+			if e > best[k] {
+				best[k], who[k] = e, p.stroke
+			}
+		}
+		g *= r
+		r *= q
+	}
+}
+
+// makeDot describes a dwell of stroke si at a on terrace t: its
+// neighbours get the linearised exposure amp·exp(−d²/2σ²) (see
+// Profile.dwellExposure).
+func makeDot(surf *lattice.Surface, t int, si int32, a r2.Point, amp, sigma, reach float64) piece {
+	u, y := surf.Frame(t).ToLocal(a)
+	p := piece{kind: pieceDot, stroke: si, amp: amp, sigma: sigma, pu: u, py: y,
+		uLo: u - reach, uHi: u + reach, yLo: y - reach, yHi: y + reach}
+	p.uTop, p.yTop = 1, 1
+	return p
+}
+
+// makePiece describes the piece a→b of stroke si on terrace t.
+func makePiece(surf *lattice.Surface, t int, si int32, a, b r2.Point, amp, sigma, reach float64) piece {
+	f := surf.Frame(t)
+	ua, ya := f.ToLocal(a)
+	ub, yb := f.ToLocal(b)
+	p := piece{stroke: si, amp: amp, sigma: sigma,
+		uLo: min(ua, ub) - reach, uHi: max(ua, ub) + reach,
+		yLo: min(ya, yb) - reach, yHi: max(ya, yb) + reach}
+	switch {
+	case math.Abs(ya-yb) < 1e-9:
+		p.kind, p.c, p.a0, p.a1 = pieceParallel, ya, min(ua, ub), max(ua, ub)
+	case math.Abs(ua-ub) < 1e-9:
+		p.kind, p.c, p.a0, p.a1 = pieceSquare, ua, min(ya, yb), max(ya, yb)
+	default:
+		p.kind = pieceSlanted
+		p.L = math.Hypot(ub-ua, yb-ya)
+		p.pu, p.py, p.du, p.dy = ua, ya, (ub-ua)/p.L, (yb-ya)/p.L
+		p.sTop = band(0, p.L, p.sigma, p.L/2)
+		return p
+	}
+	p.uTop, p.yTop = p.uFactor(p.uPeak()), p.yFactor(p.yPeak())
+	return p
+}
+
+// unimodal bounds a one-peaked factor over [a, b] from its values there
+// and the position and value of its peak.
+func unimodal(fa, fb, a, b, peak, top float64) (lo, hi float64) {
+	lo, hi = min(fa, fb), max(fa, fb)
+	if peak > a && peak < b {
+		hi = top
+	}
+	return lo, hi
+}
+
+// slantedBounds bounds a slanted piece's exposure over r's box from its
+// corners: along and across distances are linear in the box.
+func (p *piece) slantedBounds(r siteRect) (lo, hi float64) {
+	// Along and across distances are linear in (u, y): their extremes
+	// over the box are at the corners each coefficient's sign picks.
+	ua, ub := r.u0-p.pu, r.u1-p.pu
+	ya, yb := r.y0-p.py, r.y1-p.py
+	if p.du < 0 {
+		ua, ub = ub, ua
+	}
+	smin, smax := ua*p.du, ub*p.du
+	if p.dy >= 0 {
+		smin, smax = smin+ya*p.dy, smax+yb*p.dy
+	} else {
+		smin, smax = smin+yb*p.dy, smax+ya*p.dy
+	}
+	// x = (y-py)·du - (u-pu)·dy
+	xa, xb := r.y0-p.py, r.y1-p.py
+	if p.du < 0 {
+		xa, xb = xb, xa
+	}
+	xmin, xmax := xa*p.du, xb*p.du
+	if p.dy >= 0 {
+		xmin, xmax = xmin-(r.u1-p.pu)*p.dy, xmax-(r.u0-p.pu)*p.dy
+	} else {
+		xmin, xmax = xmin-(r.u0-p.pu)*p.dy, xmax-(r.u1-p.pu)*p.dy
+	}
+	dfar := max(math.Abs(xmin), math.Abs(xmax))
+	dnear := 0.0
+	if xmin > 0 || xmax < 0 {
+		dnear = min(math.Abs(xmin), math.Abs(xmax))
+	}
+	// The band at the ends of the along range, bracketed from tables
+	// (the band is one-peaked, so its least value over the range is at an
+	// end and its greatest at an end or the peak).
+	loMin, hiMin := bandBounds(p.L, p.sigma, smin)
+	loMax, hiMax := bandBounds(p.L, p.sigma, smax)
+	fl, fh := min(loMin, loMax), max(hiMin, hiMax)
+	if p.L/2 > smin && p.L/2 < smax {
+		fh = p.sTop
+	}
+	gl, _ := gaussBounds(dfar / p.sigma)
+	_, gh := gaussBounds(dnear / p.sigma)
+	return p.amp * gl * fl, p.amp * gh * fh
+}
+
+// Tables for the bounds of slanted pieces: Φ(x) and exp(-x²/2) at steps
+// of 1/boundSteps, so that a bound costs two lookups instead of erfc and
+// exp. Both functions are monotone between table points, so the values at
+// the points on either side bracket the value between them; the bounds
+// stay rigorous and are looser by at most one step's change.
+const boundSteps = 128
+
+var phiTable, gaussTable = boundTables()
+
+func boundTables() (phi, gauss []float64) {
+	phi = make([]float64, 16*boundSteps+1) // x from -8 to 8
+	for k := range phi {
+		phi[k] = normalCDF(-8 + float64(k)/boundSteps)
+	}
+	gauss = make([]float64, 40*boundSteps+1) // x from 0 to 40
+	for k := range gauss {
+		x := float64(k) / boundSteps
+		gauss[k] = math.Exp(-x * x / 2)
+	}
+	return phi, gauss
+}
+
+// bracket returns table indices k, k+1 whose points x0 + k/boundSteps lie
+// at or below and at or above x, for x inside the table.
+func bracket(x, x0 float64, n int) (int, int) {
+	k := min(int((x-x0)*boundSteps), n-1)
+	if x0+float64(k)/boundSteps > x {
+		k--
+	}
+	if k+1 < n && x0+float64(k+1)/boundSteps <= x {
+		k++
+	}
+	k = max(k, 0)
+	if x0+float64(k)/boundSteps == x {
+		return k, k
+	}
+	return k, min(k+1, n-1)
+}
+
+// phiBounds returns lo <= Φ(x) <= hi.
+func phiBounds(x float64) (lo, hi float64) {
+	t := phiTable
+	switch {
+	case x <= -8:
+		return 0, t[0]
+	case x >= 8:
+		return t[len(t)-1], 1
+	}
+	a, b := bracket(x, -8, len(t))
+	return t[a], t[b]
+}
+
+// gaussBounds returns lo <= exp(-x²/2) <= hi for x >= 0.
+func gaussBounds(x float64) (lo, hi float64) {
+	t := gaussTable
+	if x >= 40 {
+		return 0, t[len(t)-1]
+	}
+	a, b := bracket(x, 0, len(t))
+	return t[b], t[a]
+}
+
+// bandBounds returns lo <= band(0, L, σ, s) <= hi: the share Φ((L-s)/σ) -
+// Φ(-s/σ).
+func bandBounds(L, sigma, s float64) (lo, hi float64) {
+	bl, bh := phiBounds((L - s) / sigma)
+	al, ah := phiBounds(-s / sigma)
+	return max(0, bl-ah), min(1, bh-al)
+}

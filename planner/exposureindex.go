@@ -1,0 +1,181 @@
+package planner
+
+import (
+	"math"
+
+	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice/design"
+)
+
+// exposureIndex sums the exposure (see ExposureModel) of every stroke at
+// the points the planner asks about one by one (the sites of dopant
+// windows and their neighbours). Strokes are kept as straight pieces and
+// dwell points in a uniform grid of small cells, each listing the pieces
+// whose reach (where a piece's exposure falls below exposureNeglect)
+// touches it; only cells near the points of interest (given when the
+// index is made) are filled, so strokes far from them cost a look at a
+// coarse mask.
+type exposureIndex struct {
+	cell   float64
+	nx, ny int
+	cells  map[int32][]int32 // per wanted cell: indices into segs (≥ 0) or ^dots (< 0)
+	want   []bool            // per coarse cell: holds a point of interest
+	cnx    int               // coarse cells across
+	segs   []expSeg
+	dots   []expDot
+	own    float64 // exposure of a dwell's own site
+	prof   *Profile
+}
+
+// expSeg is one straight piece of a line stroke: from a to b (length L,
+// unit direction u), all passes; beyond reach across it or beyond its
+// ends it gives less than exposureNeglect.
+type expSeg struct {
+	a, u        r2.Point
+	L, reach    float64
+	peak, sigma float64
+	stroke      int32
+}
+
+// expDot is a dwell.
+type expDot struct {
+	at     r2.Point
+	stroke int32
+}
+
+// exposureNeglect is the exposure of one piece below which it is left out
+// of a sum: 10⁻⁶ clears a site with probability 10⁻⁶.
+const exposureNeglect = 1e-6
+
+// indexCellNM is the side of the index's cells, indexCoarse how many of
+// them a coarse cell of the mask holds along each axis.
+const (
+	indexCellNM = 2.0
+	indexCoarse = 16
+)
+
+// newExposureIndex indexes the strokes around the points of interest
+// (within reach of any of them, up to indexCellNM·indexCoarse nm).
+func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64, points []r2.Point) *exposureIndex {
+	ix := &exposureIndex{cell: indexCellNM, prof: prof, own: prof.dwellOwnExposure(), cells: map[int32][]int32{}}
+	ix.nx = max(1, int(math.Ceil(fieldW/ix.cell)))
+	ix.ny = max(1, int(math.Ceil(fieldH/ix.cell)))
+	ix.cnx = ix.nx/indexCoarse + 1
+	ix.want = make([]bool, ix.cnx*(ix.ny/indexCoarse+1))
+	for _, p := range points {
+		i, j := ix.col(p.X)/indexCoarse, ix.row(p.Y)/indexCoarse
+		for dj := -1; dj <= 1; dj++ {
+			for di := -1; di <= 1; di++ {
+				if ii, jj := i+di, j+dj; ii >= 0 && jj >= 0 && ii < ix.cnx && jj*ix.cnx+ii < len(ix.want) {
+					ix.want[jj*ix.cnx+ii] = true
+				}
+			}
+		}
+	}
+	lines := map[design.Mode]LineModel{design.ModeAP: prof.Line(design.ModeAP), design.ModeFE: prof.Line(design.ModeFE)}
+	dotReach := prof.Dwell.SigmaNM * math.Sqrt(2*math.Log(prof.Dwell.Completion/exposureNeglect))
+	for si := range strokes {
+		st := &strokes[si]
+		if st.Kind == StrokeDwell {
+			if len(st.Path) == 0 {
+				continue
+			}
+			ix.dots = append(ix.dots, expDot{at: st.Path[0], stroke: int32(si)})
+			ix.insert(st.Path[0], st.Path[0], dotReach, ^int32(len(ix.dots)-1))
+			continue
+		}
+		l := lines[st.Mode]
+		peak := l.PassPeak * float64(max(st.Passes, 1))
+		if !(peak > exposureNeglect) {
+			continue
+		}
+		reach := l.SigmaNM * math.Sqrt(2*math.Log(peak/exposureNeglect))
+		for k := 0; k+1 < len(st.Path); k++ {
+			a, b := st.Path[k], st.Path[k+1]
+			if a == b {
+				continue
+			}
+			L := b.Sub(a).Norm()
+			ix.segs = append(ix.segs, expSeg{a: a, u: b.Sub(a).Mul(1 / L), L: L, reach: reach, peak: peak, sigma: l.SigmaNM, stroke: int32(si)})
+			ix.insert(a, b, reach, int32(len(ix.segs)-1))
+		}
+	}
+	return ix
+}
+
+// insert lists item in every wanted cell within reach of the piece a→b:
+// the cells of its box widened by reach, in wanted coarse cells, and
+// within reach of the line through a and b.
+func (ix *exposureIndex) insert(a, b r2.Point, reach float64, item int32) {
+	i0, i1 := ix.col(math.Min(a.X, b.X)-reach), ix.col(math.Max(a.X, b.X)+reach)
+	j0, j1 := ix.row(math.Min(a.Y, b.Y)-reach), ix.row(math.Max(a.Y, b.Y)+reach)
+	ab := b.Sub(a)
+	L := ab.Norm()
+	half := ix.cell * math.Sqrt2 / 2 // a cell's centre to its corner
+	for cj := j0 / indexCoarse; cj <= j1/indexCoarse; cj++ {
+		for ci := i0 / indexCoarse; ci <= i1/indexCoarse; ci++ {
+			if !ix.want[cj*ix.cnx+ci] {
+				continue
+			}
+			for j := max(j0, cj*indexCoarse); j <= min(j1, cj*indexCoarse+indexCoarse-1); j++ {
+				for i := max(i0, ci*indexCoarse); i <= min(i1, ci*indexCoarse+indexCoarse-1); i++ {
+					if L > 0 {
+						c := r2.Point{X: (float64(i) + 0.5) * ix.cell, Y: (float64(j) + 0.5) * ix.cell}
+						if math.Abs(ab.Cross(c.Sub(a)))/L > reach+half {
+							continue
+						}
+					}
+					k := int32(j*ix.nx + i)
+					ix.cells[k] = append(ix.cells[k], item)
+				}
+			}
+		}
+	}
+}
+
+func (ix *exposureIndex) col(x float64) int {
+	return min(max(int(math.Floor(x/ix.cell)), 0), ix.nx-1)
+}
+
+func (ix *exposureIndex) row(y float64) int {
+	return min(max(int(math.Floor(y/ix.cell)), 0), ix.ny-1)
+}
+
+// at returns the exposure at p summed over every stroke: each straight
+// piece by lineExposure, each dwell by its linearised neighbour exposure,
+// except that a dwell parked on p (within 0.05 nm) gives its own site's
+// exposure −ln(1 − completion). most is the stroke that gives the most.
+func (ix *exposureIndex) at(p r2.Point) (x float64, most int32) {
+	most = -1
+	best := 0.0
+	for _, item := range ix.cells[int32(ix.row(p.Y)*ix.nx+ix.col(p.X))] {
+		var e float64
+		var who int32
+		if item >= 0 {
+			s := &ix.segs[item]
+			ap := p.Sub(s.a)
+			along, across := ap.Dot(s.u), math.Abs(s.u.Cross(ap))
+			if across > s.reach || along < -s.reach || along > s.L+s.reach {
+				continue
+			}
+			// lineExposure from the tables (relative error below 10⁻⁹).
+			e = s.peak * gauss(across, s.sigma) * (fastPhi((s.L-along)/s.sigma) - fastPhi(-along/s.sigma))
+			who = s.stroke
+		} else {
+			d := &ix.dots[^item]
+			dist := p.Sub(d.at).Norm()
+			if dist <= 0.05 {
+				e = ix.own
+			} else {
+				e = ix.prof.dwellExposure(gauss(dist, ix.prof.Dwell.SigmaNM))
+			}
+			who = d.stroke
+		}
+		x += e
+		if e > best {
+			best, most = e, who
+		}
+	}
+	return x, most
+}

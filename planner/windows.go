@@ -1,0 +1,86 @@
+package planner
+
+import (
+	"math"
+
+	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice"
+)
+
+// openWindows sets each window's OpenProbability and Probability from the
+// exposure model: the probability that every one of its sites clears,
+// that none of its neighbours does (the sites within one row spacing of
+// its sites that no region paints: a cleared neighbour makes a bigger
+// window than drawn), and that no spurious dangling bond appears along
+// its own AP line (the profile's background, counted in full on the
+// window: where along a line it lands is not known).
+func (b *builder) openWindows(windows []Window) {
+	if len(windows) == 0 {
+		return
+	}
+	surf := b.lay.Surface
+	points := make([]r2.Point, len(windows))
+	for i, w := range windows {
+		points[i] = w.At
+	}
+	ix := newExposureIndex(b.strokes, &b.prof, surf.Width(), surf.Height(), points)
+	sets := make([]*lattice.SiteSet, len(b.regions))
+	for i, r := range b.regions {
+		sets[i] = r.sites
+	}
+	painted := lattice.UnionOf(sets...)
+	lineNM := make([]float64, len(windows))
+	for _, st := range b.strokes {
+		if st.Window >= 0 && st.Kind != StrokeDwell {
+			lineNM[st.Window] += st.LengthNM * float64(max(st.Passes, 1))
+		}
+	}
+	spurious := b.prof.AP.SpuriousPer100NM / 100
+	const reach = lattice.RowSpacing + 1e-9
+	var own []r2.Point
+	for i := range windows {
+		w := b.placed[i]
+		logP := -spurious * lineNM[i]
+		own = own[:0]
+		for d := w.FirstDimer; d <= w.LastDimer(); d++ {
+			for side := range 2 {
+				if site := (lattice.Site{Terrace: w.Terrace, Row: w.Row, Dimer: d, Side: side}); d >= 0 && surf.Valid(site) {
+					own = append(own, surf.Position(site))
+				}
+			}
+		}
+		for row := w.Row - 1; row <= w.Row+1; row++ {
+			for d := w.FirstDimer - 2; d <= w.LastDimer()+2; d++ {
+				for side := range 2 {
+					site := lattice.Site{Terrace: w.Terrace, Row: row, Dimer: d, Side: side}
+					if row < 0 || d < 0 || !surf.Valid(site) {
+						continue
+					}
+					mine := row == w.Row && d >= w.FirstDimer && d <= w.LastDimer()
+					p := surf.Position(site)
+					if !mine && (painted.Contains(site) || nearest(own, p) > reach) {
+						continue
+					}
+					x, _ := ix.at(p)
+					if mine {
+						logP += math.Log(ClearProbability(x))
+					} else {
+						logP -= x
+					}
+				}
+			}
+		}
+		windows[i].OpenProbability = math.Exp(logP)
+		windows[i].Probability = windows[i].OpenProbability * windows[i].P1
+	}
+}
+
+// nearest returns the distance from p to the nearest of ps.
+func nearest(ps []r2.Point, p r2.Point) float64 {
+	best := math.Inf(1)
+	for _, q := range ps {
+		best = math.Min(best, q.Sub(p).Norm())
+	}
+	return best
+}
