@@ -28,16 +28,23 @@ func init() {
 		Help: `Plans the write of one variant (default: the first) with an instrument
 profile (--profile: a profile file, or a preset: rt room temperature, lt 4 K;
 default rt). Prints each region's write mode and why, the tip conditions, the
-expected write time with its breakdown and its P10/P50/P90 spread, the
-drift-safe segments with their fiducials, the dopant windows with the chance
-that every one takes exactly one donor, and the coverage check.
+session time (the mean of a Monte Carlo on the printed plan) with its
+breakdown and its P10/P50/P90 spread, the process steps (one lithography step
+per dopant, each followed by its dose and anneal), the drift-safe segments of
+each step with their registration (coarse on a fiducial, or local beside the
+work) and the probability that their strokes stay within tolerance, the
+coupled pairs, the dopant windows with the chance that every one takes
+exactly one donor and how long each stays open before its dose, and the
+coverage check.
 
---json prints one JSON object instead: total_s, breakdown (seconds by kind,
-summing to total_s), p10_s, p50_s, p90_s, floor_s, by_hand_s, segments (each
-with its strokes, fiducial, start_s, end_s), windows (each with species and
-probability), yield_all, yield, modes (region -> mode and reason), coverage,
-warnings. The full plan (every stroke and action) is written by
-"dimerpath export".
+--json prints one JSON object instead: total_s (the Monte Carlo mean),
+breakdown (seconds by kind, summing to total_s), p10_s, p50_s, p90_s,
+schedule_s, floor_s, by_hand_s, steps (kind, species, start_s, duration_s,
+segments), segments (each with its step, registration, strokes, fiducial,
+start_s, end_s, p_in_tolerance), p_in_tolerance, couplings, windows (each with
+species, probability and open_s), yield_all, yield, modes (region -> mode and
+reason), coverage, warnings. The full plan (every stroke and action) is
+written by "dimerpath export".
 
 A plan that needs a bias, current or speed beyond the profile's limits is
 refused (exit status 2). Long plans report progress on stderr; Ctrl-C stops
