@@ -503,14 +503,7 @@ func (d *decoder) object(v reflect.Value) {
 		if d.err != nil {
 			return
 		}
-		switch d.peek() {
-		case ',':
-			d.pos++
-		case '}':
-			d.pos++
-			return
-		default:
-			d.expect('}', "',' or '}'")
+		if !d.more('}') {
 			return
 		}
 	}
@@ -567,14 +560,7 @@ func (d *decoder) list(v reflect.Value) {
 		if d.err != nil {
 			return
 		}
-		switch d.peek() {
-		case ',':
-			d.pos++
-		case ']':
-			d.pos++
-			return
-		default:
-			d.expect(']', "',' or ']'")
+		if !d.more(']') {
 			return
 		}
 	}
@@ -608,11 +594,10 @@ func (d *decoder) array(v reflect.Value) {
 			if d.err != nil {
 				return
 			}
-			if d.peek() == ',' {
-				d.pos++
+			if d.more(']') {
 				continue
 			}
-			if !d.expect(']', "',' or ']'") {
+			if d.err != nil {
 				return
 			}
 			break

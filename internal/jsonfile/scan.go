@@ -114,6 +114,18 @@ func (s *scanner) nonFinite() string {
 	return ""
 }
 
+// more steps past the ',' after a member or entry of an object or list
+// and reports true, or past close, the object's or list's end, and
+// reports false; anything else there is a syntax error (false).
+func (s *scanner) more(close byte) bool {
+	if s.peek() == ',' {
+		s.pos++
+		return true
+	}
+	s.expect(close, "',' or '"+string(close)+"'")
+	return false
+}
+
 // number scans a JSON number at the position and returns its text, or
 // records a syntax error.
 func (s *scanner) number() []byte {
