@@ -114,18 +114,6 @@ func (s *scanner) nonFinite() string {
 	return ""
 }
 
-// more steps past the ',' after a member or entry of an object or list
-// and reports true, or past close, the object's or list's end, and
-// reports false; anything else there is a syntax error (false).
-func (s *scanner) more(close byte) bool {
-	if s.peek() == ',' {
-		s.pos++
-		return true
-	}
-	s.expect(close, "',' or '"+string(close)+"'")
-	return false
-}
-
 // number scans a JSON number at the position and returns its text, or
 // records a syntax error.
 func (s *scanner) number() []byte {
@@ -413,6 +401,22 @@ func (s *scanner) skipValue() (start, end int) {
 		}
 	}
 	return start, s.pos
+}
+
+// next reads what follows a member of the object or list that closer
+// ends: a comma, and reports true (another member follows), or closer,
+// and reports false; anything else is a syntax error (false).
+func (s *scanner) next(closer byte) bool {
+	switch s.peek() {
+	case ',':
+		s.pos++
+		return true
+	case closer:
+		s.pos++
+		return false
+	}
+	s.expect(closer, "',' or '"+string(closer)+"'")
+	return false
 }
 
 // key scans an object key and its colon.
