@@ -261,3 +261,55 @@ func TestLongStrokeSplitAtRegistration(t *testing.T) {
 		t.Errorf("split line: coverage %+v", p.Coverage)
 	}
 }
+
+// A tolerance the registration error nearly uses up makes every stroke
+// of the island fail alike; the plan says so once per region, naming
+// the strokes, not once per stroke (the demo printed 60 such lines).
+func TestStrokeWarningsOncePerRegion(t *testing.T) {
+	prof := DefaultProfile()
+	prof.Registration.Local.ErrorNM = 0.12
+	p, err := buildVariant(context.Background(), demo(t), "", prof, Options{Seed: 7, MonteCarloRuns: 200})
+	if err != nil {
+		t.Fatal(err)
+	}
+	seen := map[string]string{}
+	held := 0
+	for _, w := range p.Warnings {
+		var kind string
+		switch {
+		case strings.Contains(w, "cannot be held within"):
+			kind = "held"
+			held++
+		case strings.Contains(w, "at registrations"):
+			kind = "split"
+		default:
+			continue
+		}
+		region := w[strings.Index(w, "region \"")+8:]
+		region = region[:strings.Index(region, "\"")]
+		if prev, ok := seen[kind+region]; ok {
+			t.Errorf("region %s warned twice:\n%s\n%s", region, prev, w)
+		}
+		seen[kind+region] = w
+	}
+	if held == 0 || !strings.Contains(seen["heldsensor-island"], "strokes of region \"sensor-island\" (ids ") {
+		t.Errorf("no grouped warning for the island's strokes: %q", p.Warnings)
+	}
+}
+
+func TestIDRanges(t *testing.T) {
+	tests := []struct {
+		ids  []int
+		want string
+	}{
+		{[]int{5}, "5"},
+		{[]int{3, 2, 4, 9}, "2–4, 9"},
+		{[]int{1, 1, 2}, "1–2"},
+		{[]int{1, 3, 5, 7, 9, 11, 13, 15}, "1, 3, 5, 7, 9, 11, …"},
+	}
+	for _, tc := range tests {
+		if got := idRanges(tc.ids); got != tc.want {
+			t.Errorf("idRanges(%v) = %q, want %q", tc.ids, got, tc.want)
+		}
+	}
+}
