@@ -299,3 +299,24 @@ func TestPlanHoldsTheLevel(t *testing.T) {
 		t.Errorf("no segment warning: %s", w)
 	}
 }
+
+// Every action of the demo's session lies inside one process step, so
+// the action list and the CSV's step column leave none outside (the
+// move to the first fiducial fell between the survey and the first
+// lithography step).
+func TestEveryActionInAStep(t *testing.T) {
+	p, err := buildTest(t, demo(t), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	const eps = 1e-9
+	k := 0
+	for _, a := range p.Actions {
+		for k < len(p.Steps) && a.StartS >= p.Steps[k].StartS+p.Steps[k].DurationS-eps && a.DurationS > 0 {
+			k++
+		}
+		if k == len(p.Steps) || a.StartS < p.Steps[k].StartS-eps || a.StartS+a.DurationS > p.Steps[k].StartS+p.Steps[k].DurationS+eps {
+			t.Fatalf("action %d (%s at %.3f s for %.3f s: %s) lies in no step", a.Index, a.Kind, a.StartS, a.DurationS, a.Note)
+		}
+	}
+}
