@@ -5,12 +5,11 @@ import (
 	"fmt"
 	"math"
 	"slices"
-	"strconv"
-	"strings"
 
 	"github.com/golang/geo/r2"
 
 	"dimerpath/internal/jsonfile"
+	"dimerpath/internal/units"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -205,9 +204,9 @@ func (b *builder) build() (*Plan, error) {
 	for _, n := range forced {
 		what := fmt.Sprintf("stroke %d (region %q) cannot be held", n.ids[0], n.region)
 		if len(n.ids) > 1 {
-			what = fmt.Sprintf("%d strokes of region %q (ids %s) cannot be held", len(n.ids), n.region, idRanges(n.ids))
+			what = fmt.Sprintf("%d strokes of region %q (ids %s) cannot be held", len(n.ids), n.region, units.Ranges(n.ids, 6))
 		}
-		b.warnings = append(b.warnings, fmt.Sprintf("%s within ±%g nm even right after a registration at the planned drift (%.3g nm/min) and creep: expect %s to leave %s tolerance",
+		b.warnings = append(b.warnings, fmt.Sprintf("%s within ±%.3g nm even right after a registration at the planned drift (%.3g nm/min) and creep: expect %s to leave %s tolerance",
 			what, n.tolNM, drift.RateNMPerMin, map[bool]string{true: "them", false: "it"}[len(n.ids) > 1], map[bool]string{true: "their", false: "its"}[len(n.ids) > 1]))
 	}
 	// A timeline holds a write or dwell per stroke, a move before each,
@@ -540,32 +539,6 @@ func noteFor(notes *[]*strokeNote, region, kind string, tolNM float64) *strokeNo
 	return n
 }
 
-// idRanges writes stroke ids as sorted ranges, "2–47, 170"; beyond six
-// ranges the rest is "…".
-func idRanges(ids []int) string {
-	ids = slices.Clone(ids)
-	slices.Sort(ids)
-	ids = slices.Compact(ids)
-	var parts []string
-	for i := 0; i < len(ids); {
-		j := i
-		for j+1 < len(ids) && ids[j+1] == ids[j]+1 {
-			j++
-		}
-		if len(parts) == 6 {
-			parts = append(parts, "…")
-			break
-		}
-		if j == i {
-			parts = append(parts, strconv.Itoa(ids[i]))
-		} else {
-			parts = append(parts, strconv.Itoa(ids[i])+"–"+strconv.Itoa(ids[j]))
-		}
-		i = j + 1
-	}
-	return strings.Join(parts, ", ")
-}
-
 // fiducials takes the design's marks; a design without any gets one at
 // the field centre, with a warning.
 func (b *builder) fiducials() {
@@ -644,11 +617,11 @@ func (b *builder) splitLong() error {
 	// Said once per region and kind of stroke, not once per stroke.
 	for _, n := range split {
 		if len(n.ids) == 1 {
-			b.warnings = append(b.warnings, fmt.Sprintf("a %s stroke of region %q takes %.3g s, longer than its %.3g s drift budget (±%g nm at %.3g nm/min): split into %d pieces at registrations",
+			b.warnings = append(b.warnings, fmt.Sprintf("a %s stroke of region %q takes %.3g s, longer than its %.3g s drift budget (±%.3g nm at %.3g nm/min): split into %d pieces at registrations",
 				n.kind, n.region, n.longestS, n.budgetS, n.tolNM, rate, n.pieces))
 			continue
 		}
-		b.warnings = append(b.warnings, fmt.Sprintf("%d %s strokes of region %q outlast their drift budget (±%g nm at %.3g nm/min; the longest takes %.3g s against %.3g s): split into %d pieces in all, at registrations",
+		b.warnings = append(b.warnings, fmt.Sprintf("%d %s strokes of region %q outlast their drift budget (±%.3g nm at %.3g nm/min; the longest takes %.3g s against %.3g s): split into %d pieces in all, at registrations",
 			len(n.ids), n.kind, n.region, n.tolNM, rate, n.longestS, n.budgetS, n.pieces))
 	}
 	return nil

@@ -296,20 +296,3 @@ func TestStrokeWarningsOncePerRegion(t *testing.T) {
 		t.Errorf("no grouped warning for the island's strokes: %q", p.Warnings)
 	}
 }
-
-func TestIDRanges(t *testing.T) {
-	tests := []struct {
-		ids  []int
-		want string
-	}{
-		{[]int{5}, "5"},
-		{[]int{3, 2, 4, 9}, "2–4, 9"},
-		{[]int{1, 1, 2}, "1–2"},
-		{[]int{1, 3, 5, 7, 9, 11, 13, 15}, "1, 3, 5, 7, 9, 11, …"},
-	}
-	for _, tc := range tests {
-		if got := idRanges(tc.ids); got != tc.want {
-			t.Errorf("idRanges(%v) = %q, want %q", tc.ids, got, tc.want)
-		}
-	}
-}

@@ -84,3 +84,33 @@ type DriftPlan struct {
 	Margin        float64
 	Compensated   bool // feed-forward compensation used
 }
+
+// RegistrationReason is one reason the plan gives for a segment's kind
+// of registration, with the segments (indices into Plan.Segments) it is
+// given for.
+type RegistrationReason struct {
+	Kind     RegistrationKind
+	Reason   string
+	Segments []int
+}
+
+// RegistrationReasons groups the segments by their kind of registration
+// and its reason (Segment.Registration, Segment.Reason), in the order of
+// each group's first segment: what the command line, the printed plan
+// and the window say about why each segment registers as it does,
+// without a line per segment.
+func (p *Plan) RegistrationReasons() []RegistrationReason {
+	var out []RegistrationReason
+	at := map[[2]string]int{}
+	for i, g := range p.Segments {
+		k := [2]string{string(g.Registration), g.Reason}
+		j, ok := at[k]
+		if !ok {
+			j = len(out)
+			at[k] = j
+			out = append(out, RegistrationReason{Kind: g.Registration, Reason: g.Reason})
+		}
+		out[j].Segments = append(out[j].Segments, i)
+	}
+	return out
+}

@@ -320,3 +320,35 @@ func TestEveryActionInAStep(t *testing.T) {
 		}
 	}
 }
+
+// RegistrationReasons covers every segment once, under its own kind and
+// reason, in the order of each group's first segment.
+func TestRegistrationReasonsCoverEverySegment(t *testing.T) {
+	p, err := buildTest(t, demo(t), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	rs := p.RegistrationReasons()
+	seen := make([]int, len(p.Segments))
+	first := -1
+	for _, r := range rs {
+		if r.Segments[0] <= first {
+			t.Errorf("group %q starts at segment %d, after a group starting at %d", r.Reason, r.Segments[0], first)
+		}
+		first = r.Segments[0]
+		for _, g := range r.Segments {
+			seen[g]++
+			if s := p.Segments[g]; s.Registration != r.Kind || s.Reason != r.Reason || r.Reason == "" {
+				t.Errorf("segment %d (%s: %q) grouped under %s: %q", g, s.Registration, s.Reason, r.Kind, r.Reason)
+			}
+		}
+	}
+	for g, n := range seen {
+		if n != 1 {
+			t.Errorf("segment %d in %d groups", g, n)
+		}
+	}
+	if len(rs) < 2 || len(rs) >= len(p.Segments) {
+		t.Errorf("%d reasons for %d segments: want the demo's few kinds of reason grouped", len(rs), len(p.Segments))
+	}
+}

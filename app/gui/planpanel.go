@@ -226,6 +226,18 @@ func (p *planPanel) refresh() {
 	}
 	objs = append(objs, wrapLabel(fmt.Sprintf("%d drift-safe segments (%d registered on fiducials, %d on the lattice beside the work), %d strokes, %d tip actions. Profile: %s.",
 		len(pl.Segments), len(pl.Segments)-local, local, len(pl.Strokes), len(pl.Actions), pl.Profile)))
+	// Why the segments register as they do, one line per reason.
+	for i, r := range pl.RegistrationReasons() {
+		if i == maxReasonLines {
+			objs = append(objs, mutedLabel("… and more reasons (each segment's is in the exported plan)."))
+			break
+		}
+		nums := make([]int, len(r.Segments))
+		for k, g := range r.Segments {
+			nums[k] = g + 1
+		}
+		objs = append(objs, mutedLabel(fmt.Sprintf("%s registration, %s %s: %s", r.Kind, map[bool]string{true: "segments", false: "segment"}[len(nums) > 1], units.Ranges(nums, 8), r.Reason)))
+	}
 	for _, c := range pl.Couplings {
 		objs = append(objs, wrapLabel(fmt.Sprintf("%s %s / %s ±%.2g nm: within tolerance %s.", c.Kind, c.A, c.B, c.ToleranceNM, formatProbability(c.PInTolerance))))
 	}
@@ -259,6 +271,10 @@ func (p *planPanel) refresh() {
 	p.body.Objects = objs
 	p.body.Refresh()
 }
+
+// maxReasonLines is how many reasons for the kinds of registration the
+// plan panel lists.
+const maxReasonLines = 12
 
 // stepLine describes one process step for the plan panel.
 func stepLine(i int, st planner.Step) string {

@@ -47,7 +47,7 @@ func TestPlanButtonPlansDemo(t *testing.T) {
 	}
 	// Issue 11: the panel shows the process steps and how long each
 	// window stays open before its dose.
-	for _, want := range []string{"Process steps", "lithography As, from ", "dose P, from ", "before its dose"} {
+	for _, want := range []string{"Process steps", "lithography As, from ", "dose P, from ", "before its dose", "local registration, segment"} {
 		if !strings.Contains(panel, want) {
 			t.Errorf("plan panel lacks %q:\n%s", want, panel)
 		}
