@@ -58,7 +58,7 @@ lint:
 	@# go.mod and go.sum list exactly what the code imports.
 	@$(GO) mod tidy -diff >/dev/null || { echo "go.mod or go.sum is not tidy: run go mod tidy"; $(GO) mod tidy -diff; exit 1; }
 	@# Only app/ may import Fyne; the pure packages stay headless.
-	@bad=$$($(GO) list -deps ./lattice/... ./planner/... ./export/... | grep '^fyne.io/' || true); \
+	@bad=$$($(GO) list -deps ./lattice/... ./planner/... ./export/... ./internal/... | grep '^fyne.io/' || true); \
 	if [ -n "$$bad" ]; then echo "pure packages import Fyne:"; echo "$$bad"; exit 1; fi
 	@# The editor and the renderer are Fyne-free, tests included, so they
 	@# build and test without cgo or a display; the renderer knows no editor.

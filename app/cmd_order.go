@@ -1,10 +1,13 @@
 package app
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
+	"errors"
 	"flag"
 	"fmt"
+	"io"
 	"os"
 	"os/signal"
 	"strconv"
@@ -83,6 +86,7 @@ func runOrder(env Env, args []string, fl orderFlags) int {
 		f.Close()
 		return fail("%s: the file holds %s, more than the %s limit for an item file", path, jsonfile.Bytes(st.Size()), jsonfile.Bytes(maxOrderFileBytes))
 	}
+	src := &orderInput{r: f}
 	var items []route.Item
 	var inst *tsplib.Instance
 	if strings.HasSuffix(strings.ToLower(path), ".tsp") {
@@ -90,14 +94,17 @@ func runOrder(env Env, args []string, fl orderFlags) int {
 			f.Close()
 			return fail("%s: a TSPLIB file holds points; leave out --strokes", path)
 		}
-		inst, err = tsplib.Read(f, path)
+		inst, err = tsplib.Read(src, path)
 		if err == nil {
 			items = inst.Items()
 		}
 	} else {
-		items, err = route.ReadCSV(f, path, fl.strokes)
+		items, err = route.ReadCSV(src, path, fl.strokes)
 	}
 	f.Close()
+	if src.over != "" {
+		return fail("%s: %s", path, src.over)
+	}
 	if err != nil {
 		return fail("%v", err)
 	}
@@ -231,3 +238,37 @@ func parsePoint(s string) (route.Point, error) {
 // strokes written with full precision, the largest problems the route
 // engine is measured on).
 const maxOrderFileBytes = 64 << 20
+
+// maxOrderLines bounds the lines of an item or TSPLIB file, and so its
+// items: 64 MiB of short lines ("1,2") hold 16 million points, which the
+// route engine cannot order in any memory a desktop has (10^6 points take
+// about 400 MB). Twice the largest problem it is measured on.
+const maxOrderLines = 2_000_000
+
+// orderInput passes an item file through to its reader within
+// maxOrderFileBytes and maxOrderLines, also when the file is a pipe that
+// its size could not be checked by; over says which was exceeded.
+type orderInput struct {
+	r            io.Reader
+	bytes, lines int64
+	over         string
+}
+
+func (in *orderInput) Read(p []byte) (int, error) {
+	if in.over != "" {
+		return 0, errors.New(in.over)
+	}
+	n, err := in.r.Read(p)
+	in.bytes += int64(n)
+	in.lines += int64(bytes.Count(p[:n], []byte{'\n'}))
+	switch {
+	case in.bytes > maxOrderFileBytes:
+		in.over = fmt.Sprintf("more than %s, the limit for an item file", jsonfile.Bytes(maxOrderFileBytes))
+	case in.lines > maxOrderLines:
+		in.over = fmt.Sprintf("more than %d lines, the limit for an item file (the route engine is measured up to 10^6 items)", maxOrderLines)
+	}
+	if in.over != "" {
+		return 0, errors.New(in.over)
+	}
+	return n, err
+}

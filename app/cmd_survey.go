@@ -10,15 +10,17 @@ import (
 	"strconv"
 	"strings"
 
+	"dimerpath/internal/atomicfile"
 	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice"
+	"dimerpath/lattice/design"
 	"dimerpath/lattice/survey"
 )
 
 func init() {
 	Register(&Command{
 		Name:    "survey",
-		Usage:   "survey IMAGE [--size W,H] [--threshold K] [--json]",
+		Usage:   "survey IMAGE [--size W,H] [--threshold K] [--json] [--into DESIGN.json [--at X,Y] [--rotation DEG] [-o OUT.json]]",
 		Summary: "calibrate a survey topograph on the lattice; find its terraces, step edges and defects",
 		Help: `Reads a survey topograph of Si(100)-2x1:H: a grey-scale PNG or TIFF (8 or 16
 bits a pixel) or a plain-text height matrix (numbers separated by spaces, tabs
@@ -39,6 +41,16 @@ appearance.
 Positions are in nm from the image's lower-left corner, x along the image's
 x axis, by the measured scale. --json prints one object (keys in README).
 
+--into DESIGN.json puts the image and what was found into the design's
+survey (replacing one it had), which the design-rule check (rule
+surface-clearance) and dimerpath place then use, and writes the design back
+(or to -o OUT.json; through a temporary file renamed into place, only if it
+still validates). The survey sits where the design's old survey sat, or
+--at X,Y (the field position of the image's lower-left corner, nm) and
+--rotation DEG (the field angle of its x axis); by default it is centred on
+the device's atomic-precision core and turned so that the dimer rows of the
+image's largest terrace run along the core terrace's rows.
+
 Exit status: 0 analysed, 2 the image could not be read (truncated, 0 x 0,
 more than 8192 x 8192 pixels, NaN heights, ragged matrix lines) or shows no
 lattice to calibrate on.`,
@@ -46,6 +58,10 @@ lattice to calibrate on.`,
 			size := fs.String("size", "", "nominal scan size `W,H` in nm")
 			threshold := fs.Float64("threshold", survey.DefaultThresholdSD, "defect threshold `K` in robust standard deviations of the residual")
 			asJSON := fs.Bool("json", false, "print the analysis as one JSON object")
+			into := fs.String("into", "", "put the survey into the design `DESIGN.json`")
+			at := fs.String("at", "", "with --into: the field position `X,Y` (nm) of the image's lower-left corner")
+			rotation := fs.Float64("rotation", math.NaN(), "with --into: the field angle (`DEG`) of the image's x axis")
+			out := fs.String("o", "", "with --into: write the design to `OUT.json` (default: back to DESIGN.json)")
 			return func(env Env, args []string) int {
 				if len(args) != 1 {
 					fmt.Fprintln(env.Stderr, "dimerpath survey: want one image: dimerpath survey IMAGE [--size W,H] [--json]")
@@ -70,6 +86,13 @@ lattice to calibrate on.`,
 					fmt.Fprintf(env.Stderr, "dimerpath survey: %v\n", err)
 					return ExitFailure
 				}
+				if *into != "" {
+					return surveyInto(env, an, args[0], *into, *at, *rotation, *out)
+				}
+				if *at != "" || !math.IsNaN(*rotation) || *out != "" {
+					fmt.Fprintln(env.Stderr, "dimerpath survey: --at, --rotation and -o go with --into DESIGN.json")
+					return ExitFailure
+				}
 				if *asJSON {
 					data, err := jsonfile.Marshal(an.Report(), jsonfile.Indented)
 					if err != nil {
@@ -84,6 +107,62 @@ lattice to calibrate on.`,
 			}
 		},
 	})
+}
+
+// surveyInto puts the analysis into a design's survey and writes the
+// design.
+func surveyInto(env Env, an *survey.Analysis, image, path, at string, rotation float64, out string) int {
+	fail := func(format string, a ...any) int {
+		fmt.Fprintf(env.Stderr, "dimerpath survey: "+format+"\n", a...)
+		return ExitFailure
+	}
+	if out == "" {
+		out = path
+	}
+	if err := atomicfile.Check(out); err != nil {
+		return fail("%v", err)
+	}
+	d, err := design.Load(path)
+	if err != nil {
+		return fail("%v", err)
+	}
+	l, err := d.Lay("")
+	if err != nil {
+		return fail("%s: %v", path, err)
+	}
+	old := d.Survey
+	if at != "" || !math.IsNaN(rotation) {
+		if old == nil {
+			old = &design.Survey{}
+		} else {
+			cp := *old
+			old = &cp
+		}
+		if at != "" {
+			p, err := parsePointNM(at)
+			if err != nil {
+				return fail("--at %v", err)
+			}
+			old.OffsetNM = [2]float64{p.X, p.Y}
+		}
+		if !math.IsNaN(rotation) {
+			if math.IsInf(rotation, 0) || math.Abs(rotation) > 360 {
+				return fail("--rotation %g: want an angle within ±360°", rotation)
+			}
+			old.RotationDeg = rotation
+		}
+	}
+	d.Survey = laySurvey(l, an, old, relativeTo(out, image), nil)
+	if err := d.Validate(); err != nil {
+		return fail("%v", err)
+	}
+	if err := design.Save(out, d); err != nil {
+		return fail("%v", err)
+	}
+	s := d.Survey
+	fmt.Fprintf(env.Stdout, "%s: survey %s at (%.2f, %.2f) nm, turned %.3f°: %d terraces, %d step edges, %d defects\n",
+		out, s.Image, s.OffsetNM[0], s.OffsetNM[1], s.RotationDeg, len(s.Terraces), len(s.Steps), len(s.Defects))
+	return ExitOK
 }
 
 // analyseFile reads and analyses one topograph.

@@ -41,6 +41,9 @@ func TestCommandsRefuseHostileInput(t *testing.T) {
 	// The line of total_s in the plan file, where the reader must point.
 	totalLine := strings.Count(string(planText[:strings.Index(string(planText), `"total_s": `)]), "\n") + 1
 	noLF := writeFile(t, "nolf.csv", "bias_v"+strings.Repeat("x", 1<<20))
+	// 8 MB of short lines: 2·10^6 points, more than order takes (it
+	// tried to order them, or 16·10^6 in 64 MiB, until memory ran out).
+	shortLines := writeFile(t, "short.csv", strings.Repeat("1,2\n", maxOrderLines+1))
 	dir := t.TempDir()
 	outDir := filepath.Join(dir, "out.pdf")
 	os.Mkdir(outDir, 0o755)
@@ -56,6 +59,7 @@ func TestCommandsRefuseHostileInput(t *testing.T) {
 		{"settle 1e305 on the PDF path", []string{"export", demoDesign, "-o", filepath.Join(dir, "s.pdf"), "--profile", profile(map[string]any{"settle_s": 1e305})}, "settle_s = 1e+305"},
 		{"NaN in a profile", []string{"plan", demoDesign, "--profile", writeFile(t, "nan.json", `{"format": "dimerpath-profile", "version": 1, "settle_s": NaN}`)}, "nan.json:1:59: settle_s: NaN is not a finite number"},
 		{"a plan with a NaN total", []string{"export", nanPlan, "-o", filepath.Join(dir, "n.pdf")}, fmt.Sprintf("nan.plan.json:%d:14: total_s: NaN is not a finite number", totalLine)},
+		{"order of too many short lines", []string{"order", shortLines, "--kicks", "1"}, "short.csv: more than 2000000 lines, the limit for an item file"},
 		{"calibrate without line breaks", []string{"calibrate", noLF, "-o", filepath.Join(dir, "p.json")}, "nolf.csv:1: line longer than 64 KiB, the limit"},
 		{"-o a directory", []string{"export", demoDesign, "-o", outDir}, "-o " + outDir + " is a directory"},
 		{"-o in a missing directory", []string{"export", demoDesign, "-o", filepath.Join(dir, "none", "x.pdf")}, "x.pdf: the directory " + filepath.Join(dir, "none") + " does not exist"},

@@ -146,3 +146,41 @@ func TestReadInputLimits(t *testing.T) {
 		t.Errorf("a plan with a NaN total: plan %v, %v", isPlan, err)
 	}
 }
+
+// FuzzParseGDSLayers checks the layer map reader: it never panics, each
+// line of its error names the file and stays short whatever the input
+// holds, and a map it accepts has layers and data types GDSII can write
+// (0 to 32767) and a positive mark size.
+func FuzzParseGDSLayers(f *testing.F) {
+	for _, s := range []string{
+		`{"format": "dimerpath-gds-layers", "version": 1, "windows": "40/2", "regions": {"pad": "50/0", "pad/ap": "51/7"}, "mark_size_nm": 5}`,
+		`{"format": "dimerpath-gds-layers", "version": 1, "field": "4/-1", "regions": {"pads/x": "1"}}`,
+		`{"format": "dimerpath-gds-layers", "version": 1, "field": "` + strings.Repeat("9", 900) + `"}`,
+		`{"format": "dimerpath-gds-layers", "version": 2, "Windows": "4/0", "mark_size_nm": NaN}`, `[`, ``,
+	} {
+		f.Add([]byte(s))
+	}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		g, err := ParseGDSLayers("map.json", data)
+		if err != nil {
+			for _, line := range strings.Split(err.Error(), "\n") {
+				if !strings.HasPrefix(line, "map.json") || len(line) > 400 {
+					t.Fatalf("error line of %d bytes: %.500s", len(line), line)
+				}
+			}
+			return
+		}
+		layers := []GDSLayer{g.Field, g.ScanField, g.Terraces, g.Fiducials, g.Windows}
+		for _, l := range g.Regions {
+			layers = append(layers, l)
+		}
+		for _, l := range layers {
+			if l.Layer < 0 || l.Datatype < 0 {
+				t.Fatalf("accepted layer %+v", l)
+			}
+		}
+		if !(g.MarkSizeNM > 0 && g.MarkSizeNM <= 10000) {
+			t.Fatalf("accepted mark size %v", g.MarkSizeNM)
+		}
+	})
+}

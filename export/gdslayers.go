@@ -24,12 +24,12 @@ func ParseGDSLayer(s string) (GDSLayer, error) {
 	ls, ds, hasD := strings.Cut(strings.TrimSpace(s), "/")
 	l, err := strconv.ParseInt(ls, 10, 16)
 	if err != nil || l < 0 {
-		return GDSLayer{}, fmt.Errorf("layer %q: want L or L/D, whole numbers 0 to 32767", s)
+		return GDSLayer{}, fmt.Errorf("layer %q: want L or L/D, whole numbers 0 to 32767", jsonfile.Prefix(s, jsonfile.MaxQuote))
 	}
 	d := int64(0)
 	if hasD {
 		if d, err = strconv.ParseInt(ds, 10, 16); err != nil || d < 0 {
-			return GDSLayer{}, fmt.Errorf("layer %q: want L or L/D, whole numbers 0 to 32767", s)
+			return GDSLayer{}, fmt.Errorf("layer %q: want L or L/D, whole numbers 0 to 32767", jsonfile.Prefix(s, jsonfile.MaxQuote))
 		}
 	}
 	return GDSLayer{int16(l), int16(d)}, nil

@@ -275,3 +275,102 @@ func (s *Surface) GapText(g Gap) string {
 	}
 	return fmt.Sprintf("%.2f nm", g.NM)
 }
+
+// NearestWithin returns the least distance, in nm, from p to the indexed
+// cells when it is at most limit, with the nearest point of those cells;
+// ok is false when no cell lies within limit (or the index is empty).
+// Only the grid cells within limit of p are looked at.
+func (ix *CellIndex) NearestWithin(p r2.Point, limit float64) (d float64, at r2.Point, ok bool) {
+	return ix.SegmentWithin(p, p, limit)
+}
+
+// SegmentWithin returns the least distance, in nm, from the segment ab to
+// the indexed cells when it is at most limit (0 where the segment crosses
+// a cell), with the point of the cells nearest the segment; ok is false
+// when no cell lies within limit. Only the grid cells within limit of the
+// segment's bounding box are looked at.
+func (ix *CellIndex) SegmentWithin(a, b r2.Point, limit float64) (d float64, at r2.Point, ok bool) {
+	if ix.IsEmpty() {
+		return 0, r2.Point{}, false
+	}
+	q := r2.RectFromPoints(a, b).ExpandedByMargin(limit)
+	if !q.Intersects(ix.bounds) {
+		return 0, r2.Point{}, false
+	}
+	best := math.Inf(1)
+	x0, y0, x1, y1 := ix.gridRange(q)
+	for gy := y0; gy <= y1; gy++ {
+		for gx := x0; gx <= x1; gx++ {
+			g := gy*ix.nx + gx
+			for _, j := range ix.items[ix.start[g]:ix.start[g+1]] {
+				if dd, pt := segmentRect(a, b, ix.rects[j]); dd < best {
+					best, at = dd, pt
+				}
+			}
+		}
+	}
+	if best > limit {
+		return 0, r2.Point{}, false
+	}
+	return best, at, true
+}
+
+// segmentRect returns the distance from the segment ab to the rectangle r
+// (0 when they meet) and the point of r nearest the segment.
+func segmentRect(a, b r2.Point, r r2.Rect) (float64, r2.Point) {
+	clampTo := func(p r2.Point) r2.Point { return r.ClampPoint(p) }
+	if r.ContainsPoint(a) {
+		return 0, a
+	}
+	if r.ContainsPoint(b) {
+		return 0, b
+	}
+	// The segment crosses the rectangle when it crosses one of its sides.
+	corners := r.Vertices()
+	for k := range 4 {
+		c, e := corners[k], corners[(k+1)%4]
+		if p, ok := segmentsMeet(a, b, c, e); ok {
+			return 0, p
+		}
+	}
+	best := math.Inf(1)
+	var at r2.Point
+	for _, p := range []r2.Point{a, b} {
+		c := clampTo(p)
+		if d := p.Sub(c).Norm(); d < best {
+			best, at = d, c
+		}
+	}
+	for _, c := range corners {
+		if d := pointSegment(c, a, b); d < best {
+			best, at = d, c
+		}
+	}
+	return best, at
+}
+
+// pointSegment returns the distance from p to the segment ab.
+func pointSegment(p, a, b r2.Point) float64 {
+	ab := b.Sub(a)
+	l2 := ab.Dot(ab)
+	t := 0.0
+	if l2 > 0 {
+		t = math.Max(0, math.Min(1, p.Sub(a).Dot(ab)/l2))
+	}
+	return p.Sub(a.Add(ab.Mul(t))).Norm()
+}
+
+// segmentsMeet returns where the segments ab and cd cross, if they do.
+func segmentsMeet(a, b, c, d r2.Point) (r2.Point, bool) {
+	r, s := b.Sub(a), d.Sub(c)
+	den := r.Cross(s)
+	if den == 0 {
+		return r2.Point{}, false
+	}
+	t := c.Sub(a).Cross(s) / den
+	u := c.Sub(a).Cross(r) / den
+	if t < 0 || t > 1 || u < 0 || u > 1 {
+		return r2.Point{}, false
+	}
+	return a.Add(r.Mul(t)), true
+}

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -109,4 +110,31 @@ func FuzzParseRecoveryInfo(f *testing.F) {
 			t.Fatalf("round trip: %+v -> %+v, %v", info, back, err)
 		}
 	})
+}
+
+// CleanStaleFiles removes what a killed writer left in each directory
+// (its process is gone) and keeps a live writer's file and other files.
+func TestCleanStaleFiles(t *testing.T) {
+	dirs := []string{t.TempDir(), t.TempDir()}
+	// No process has id 2^31-2 (Linux's pid_max is at most 2^22).
+	dead := ".design.json.dimerpath-unfinished-2147483646-17"
+	live := ".plan.pdf.dimerpath-unfinished-" + strconv.Itoa(os.Getpid()) + "-18"
+	for _, d := range dirs {
+		for _, name := range []string{dead, live, "design.json"} {
+			if err := os.WriteFile(filepath.Join(d, name), []byte("x"), 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+	}
+	CleanStaleFiles(dirs[0], "", dirs[1], dirs[0])
+	for _, d := range dirs {
+		entries, _ := os.ReadDir(d)
+		var names []string
+		for _, e := range entries {
+			names = append(names, e.Name())
+		}
+		if want := live + " design.json"; strings.Join(names, " ") != want {
+			t.Errorf("%s holds %v, want %s", d, names, want)
+		}
+	}
 }

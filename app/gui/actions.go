@@ -85,11 +85,22 @@ func (u *UI) StartPlan() {
 	plan := u.jobs.Plan
 	go func() {
 		var p *planner.Plan
+		var rt *render.RouteOverlay
 		err := editor.Guard(func() (err error) {
 			p, err = plan(ctx, d, variant, prof, opt)
+			if err == nil && p != nil {
+				// The route overlay of a million strokes takes a good part
+				// of a second: made here, not on Fyne's goroutine.
+				rt = render.RouteOf(p)
+			}
 			return err
 		})
-		fyne.Do(func() { u.planDone(s, p, variant, tok, err) })
+		fyne.Do(func() {
+			if rt != nil {
+				u.View.SetRoute(p, rt)
+			}
+			u.planDone(s, p, variant, tok, err)
+		})
 	}()
 }
 

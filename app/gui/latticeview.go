@@ -98,6 +98,13 @@ func (lv *LatticeView) SetLegend(obj fyne.CanvasObject) {
 	lv.Refresh()
 }
 
+// SetRoute gives the view the route overlay of plan p, made by the
+// caller (render.RouteOf) off Fyne's goroutine; the view uses it while
+// p is the session's plan, instead of making its own.
+func (lv *LatticeView) SetRoute(p *planner.Plan, rt *render.RouteOverlay) {
+	lv.route, lv.routeOf = rt, p
+}
+
 // Invalidate rebuilds the scene from the session and redraws.
 func (lv *LatticeView) Invalidate() {
 	lv.scene = nil

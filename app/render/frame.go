@@ -32,6 +32,7 @@ type Renderer struct {
 	alut  []uint32  // atomic mode: dot, bond, tint per layer
 	bg    *backgrounds
 	stats FrameStats
+	near  []int32 // route items near the view (routeGrid), reused
 }
 
 // FrameStats describes the last frame, for the status bar and tests.

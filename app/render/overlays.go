@@ -3,6 +3,7 @@ package render
 import (
 	"image/color"
 	"math"
+	"slices"
 
 	"github.com/golang/geo/r2"
 )
@@ -25,37 +26,7 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 	}
 	drawReferences(pb, v, sc.References)
 	if rt := sc.Route; rt != nil {
-		vb := v.Bounds()
-		for _, m := range rt.Moves {
-			ax, ay := v.ToScreen(m[0])
-			bx, by := v.ToScreen(m[1])
-			pb.dashed(ax, ay, bx, by, 4, 3, ColMove, 170)
-		}
-		for _, st := range rt.Strokes {
-			if !st.Bounds.IsEmpty() && !st.Bounds.ExpandedByMargin(4*v.Scale+st.WidthNM).Intersects(vb) {
-				continue
-			}
-			c := SegmentColor(st.Segment)
-			// At least 2 px so a stroke shows; thin lines get no more, so a
-			// dense raster does not merge into a block when zoomed out.
-			wpx := math.Max(2, st.WidthNM/v.Scale)
-			// Wide strokes (zoomed in) are see-through, so the sites they
-			// clear stay visible under them.
-			alpha := 256
-			if wpx >= 8 {
-				alpha = 150
-			}
-			if len(st.Path) == 1 {
-				x, y := v.ToScreen(st.Path[0])
-				pb.disk(x, y, math.Max(2.5, wpx/2), c, alpha)
-				continue
-			}
-			drawPath(pb, v, st.Path, false, wpx, c, alpha)
-		}
-		for _, p := range rt.Registrations {
-			x, y := v.ToScreen(p)
-			pb.diamond(x, y, 11, ColMove, 256)
-		}
+		r.near = drawRoute(pb, v, rt, r.near[:0])
 	}
 	for _, p := range sc.Fiducials {
 		x, y := v.ToScreen(p)
@@ -156,4 +127,161 @@ func drawPath(pb *pixbuf, v View, pts []r2.Point, closed bool, w float64, c colo
 		bx, by := v.ToScreen(pts[(i+1)%n])
 		pb.thickLine(ax, ay, bx, by, w, c, a)
 	}
+}
+
+// drawRoute draws the route: moves dashed, then strokes in their
+// segment's colour, then the registration diamonds. A plan of a million
+// windows has a million strokes and moves, so the work per item is kept
+// small. Zoomed out, the moves too short to show (under 2 pixels: no
+// dash pattern shows) are never visited (RouteOf sorts them by length),
+// and a stroke under a pixel long and at most 2 pixels wide is set as a
+// 2 x 2 block from RouteOf's packed dots rather than drawn as a capsule.
+// Zoomed in, only the items RouteOf's grids file near the view are
+// visited, in the plan's order. near is scratch space, returned for
+// reuse.
+func drawRoute(pb *pixbuf, v View, rt *RouteOverlay, near []int32) []int32 {
+	vb := v.Bounds()
+	// The view's bounds grown by a pixel or two, in nm: what may touch a
+	// pixel of the frame.
+	grown := vb.ExpandedByMargin(2 * v.Scale)
+	move := func(m [2]r2.Point) {
+		if max(m[0].X, m[1].X) < grown.X.Lo || min(m[0].X, m[1].X) > grown.X.Hi ||
+			max(m[0].Y, m[1].Y) < grown.Y.Lo || min(m[0].Y, m[1].Y) > grown.Y.Hi {
+			return
+		}
+		ax, ay := v.ToScreen(m[0])
+		bx, by := v.ToScreen(m[1])
+		if math.Abs(bx-ax) < 2 && math.Abs(by-ay) < 2 {
+			return
+		}
+		pb.dashed(ax, ay, bx, by, 4, 3, ColMove, 170)
+	}
+	// A grid pays where the view shows a small part of the route.
+	zoomed := func(g *routeGrid) bool { return g != nil && g.covers(grown) < 0.25 }
+	switch {
+	case zoomed(rt.moveGrid):
+		near = rt.moveGrid.near(grown.ExpandedByMargin(2*v.Scale), near[:0])
+		for _, i := range near {
+			move(rt.Moves[i])
+		}
+	case len(rt.longMoves) == len(rt.Moves):
+		for _, lm := range rt.longMoves {
+			if float64(lm.span) < 2*v.Scale {
+				break // the rest are shorter still
+			}
+			move(rt.Moves[lm.i])
+		}
+	default:
+		for _, m := range rt.Moves {
+			move(m)
+		}
+	}
+
+	dots := len(rt.dots) == len(rt.Strokes)
+	// The frame transform for the packed path, in float32 (zoomed out,
+	// where it is used, a field of 10^4 nm spans a few thousand pixels):
+	// x = X·inv + ox, y = oy − Y·inv (View.ToScreen), less half a pixel
+	// so that a block covers the centre.
+	inv := float32(1 / v.Scale)
+	ox := float32(float64(v.W)/2 - v.Center.X/v.Scale - 0.5)
+	oy := float32(float64(v.H)/2 + v.Center.Y/v.Scale - 0.5)
+	small, thin := float32(v.Scale), float32(2*v.Scale)
+	w, h := pb.w, pb.h
+	// block sets the 2 x 2 pixels of a dot; it reports false for a dot
+	// too large for it.
+	block := func(d *routeDot) bool {
+		if d.extent >= small || d.width > thin {
+			return false
+		}
+		fx, fy := d.x*inv+ox, oy-d.y*inv
+		if fx < -1 || fy < -1 || fx >= float32(w) || fy >= float32(h) {
+			return true
+		}
+		xi, yi := int(fx+1)-1, int(fy+1)-1 // floor, for fx, fy >= -1
+		if xi >= 0 && yi >= 0 && xi+1 < w && yi+1 < h {
+			k := yi*w + xi
+			px := pb.pix[k : k+w+2]
+			px[0], px[1], px[w], px[w+1] = d.col, d.col, d.col, d.col
+			return true
+		}
+		for y := max(yi, 0); y < min(yi+2, h); y++ {
+			row := pb.pix[y*w : y*w+w]
+			for x := max(xi, 0); x < min(xi+2, w); x++ {
+				row[x] = d.col
+			}
+		}
+		return true
+	}
+	// The view's centre and half size, nm, for culling on the dots.
+	cx, cy := float32(vb.Center().X), float32(vb.Center().Y)
+	hx, hy := float32(vb.Size().X/2+4*v.Scale), float32(vb.Size().Y/2+4*v.Scale)
+	stroke := func(i int) {
+		if dots {
+			d := &rt.dots[i]
+			if block(d) {
+				return
+			}
+			// Out of sight: the bounds' half extent and the stroke's width
+			// from the view's edge (a dwell's disk: its width, the margin).
+			m := d.width
+			if !math.IsInf(float64(d.extent), 1) {
+				m += d.extent / 2
+			}
+			if abs32(d.x-cx) > hx+m || abs32(d.y-cy) > hy+m {
+				return
+			}
+		}
+		st := &rt.Strokes[i]
+		if !st.Bounds.IsEmpty() && !st.Bounds.ExpandedByMargin(4*v.Scale+st.WidthNM).Intersects(vb) {
+			return
+		}
+		c := SegmentColor(st.Segment)
+		// At least 2 px so a stroke shows; thin lines get no more, so a
+		// dense raster does not merge into a block when zoomed out.
+		wpx := math.Max(2, st.WidthNM/v.Scale)
+		// Wide strokes (zoomed in) are see-through, so the sites they
+		// clear stay visible under them.
+		alpha := 256
+		if wpx >= 8 {
+			alpha = 150
+		}
+		if len(st.Path) == 1 {
+			x, y := v.ToScreen(st.Path[0])
+			pb.disk(x, y, math.Max(2.5, wpx/2), c, alpha)
+			return
+		}
+		drawPath(pb, v, st.Path, false, wpx, c, alpha)
+	}
+	switch {
+	case zoomed(rt.strokeGrid):
+		// In the plan's order, as without the grid, so that where strokes
+		// overlap the same one shows on top.
+		near = rt.strokeGrid.near(grown.ExpandedByMargin(4*v.Scale), near[:0])
+		slices.Sort(near)
+		for _, i := range near {
+			stroke(int(i))
+		}
+	case dots:
+		for i := range rt.dots {
+			if !block(&rt.dots[i]) {
+				stroke(i)
+			}
+		}
+	default:
+		for i := range rt.Strokes {
+			stroke(i)
+		}
+	}
+	for _, p := range rt.Registrations {
+		x, y := v.ToScreen(p)
+		pb.diamond(x, y, 11, ColMove, 256)
+	}
+	return near
+}
+
+func abs32(x float32) float32 {
+	if x < 0 {
+		return -x
+	}
+	return x
 }

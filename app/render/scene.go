@@ -1,7 +1,10 @@
 package render
 
 import (
+	"cmp"
 	"image/color"
+	"math"
+	"slices"
 
 	"github.com/golang/geo/r2"
 
@@ -77,6 +80,35 @@ type RouteOverlay struct {
 	Moves   [][2]r2.Point
 	// Registrations are the fiducial positions segments register on.
 	Registrations []r2.Point
+
+	// dots, filled by RouteOf, hold each stroke as the zoomed-out frame
+	// needs it, packed for a pass over a million strokes (drawRoute);
+	// without them every stroke takes the general path.
+	dots []routeDot
+	// longMoves lists the moves by their span (the larger of a move's
+	// extents along x and y, nm), longest first, so a frame visits only
+	// the moves long enough to show.
+	longMoves []spanned
+	// strokeGrid and moveGrid find the strokes and moves near a zoomed
+	// view (nil for a small plan).
+	strokeGrid, moveGrid *routeGrid
+}
+
+// spanned is a move's index and span, nm.
+type spanned struct {
+	i    int32
+	span float32
+}
+
+// routeDot is one stroke reduced to what decides whether it is drawn as
+// a 2 x 2 block: its centre and extent, its width, its colour packed.
+// A dwell (a one-point path) is drawn as a disk of at least 2.5 pixels
+// however small: its extent is +Inf, so it never is a block.
+type routeDot struct {
+	x, y   float32 // centre of the bounds, nm
+	extent float32 // the larger side of the bounds, nm
+	width  float32 // WidthNM
+	col    uint32  // SegmentColor, packed as the frame's pixels
 }
 
 // RouteStroke is one written stroke: a path of a given width, or a dwell
@@ -126,12 +158,35 @@ func RouteOf(p *planner.Plan) *RouteOverlay {
 			w = min(w, 0.9*lattice.RowSpacing)
 		}
 		rt.Strokes = append(rt.Strokes, RouteStroke{Path: st.Path, WidthNM: w, Segment: st.Segment, Bounds: b})
+		c, sz := b.Center(), b.Size()
+		ext := float32(max(sz.X, sz.Y))
+		if len(st.Path) == 1 {
+			ext = float32(math.Inf(1))
+		}
+		rt.dots = append(rt.dots, routeDot{x: float32(c.X), y: float32(c.Y), extent: ext, width: float32(w),
+			col: packRGBA(SegmentColor(st.Segment))})
 	}
 	for _, a := range p.Actions {
 		if a.Kind == planner.ActMove && a.From != a.To {
+			rt.longMoves = append(rt.longMoves, spanned{int32(len(rt.Moves)), float32(max(math.Abs(a.To.X-a.From.X), math.Abs(a.To.Y-a.From.Y)))})
 			rt.Moves = append(rt.Moves, [2]r2.Point{a.From, a.To})
 		}
 	}
+	// Moves are all drawn alike, so the order they are drawn in does not
+	// change the frame.
+	slices.SortFunc(rt.longMoves, func(a, b spanned) int { return cmp.Compare(b.span, a.span) })
+	bounds := make([]r2.Rect, len(rt.Strokes))
+	for i, st := range rt.Strokes {
+		// Dwells are drawn as disks of at least 2.5 px: grown by the
+		// width here, by the pixels in drawRoute's margin.
+		bounds[i] = st.Bounds.ExpandedByMargin(st.WidthNM)
+	}
+	rt.strokeGrid = newRouteGrid(bounds)
+	bounds = bounds[:0]
+	for _, m := range rt.Moves {
+		bounds = append(bounds, r2.RectFromPoints(m[0], m[1]))
+	}
+	rt.moveGrid = newRouteGrid(bounds)
 	seen := map[r2.Point]bool{}
 	for _, sg := range p.Segments {
 		if !seen[sg.FiducialAt] {

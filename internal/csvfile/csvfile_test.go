@@ -52,21 +52,24 @@ func TestReaderLimits(t *testing.T) {
 		{"a bad quote", strings.NewReader("1,2\n3,\"4\n"), 100, `in.csv:2: extraneous or missing " in quoted-field`},
 	}
 	for _, c := range cases {
-		_, err := readAll(t, c.in, c.limit)
-		if err == nil || err.Error() != c.want || !errors.Is(err, errKind) {
-			t.Errorf("%s: %v, want %q", c.name, err, c.want)
+		t.Run(c.name, func(t *testing.T) {
+			_, err := readAll(t, c.in, c.limit)
+			if err == nil || err.Error() != c.want || !errors.Is(err, errKind) {
+				t.Errorf("%v, want %q", err, c.want)
+			}
+		})
+	}
+	t.Run("a regular file beyond the limit is refused by its size, unread", func(t *testing.T) {
+		path := filepath.Join(t.TempDir(), "big.csv")
+		f, _ := os.Create(path)
+		f.Truncate(1 << 30)
+		f.Seek(0, io.SeekStart)
+		defer f.Close()
+		if _, err := NewReader(f, "big.csv", 16<<20, errKind); err == nil || !errors.Is(err, ErrTooLarge) ||
+			err.Error() != "big.csv: the file holds 1 GiB, more than the 16 MiB limit for this kind of file" {
+			t.Errorf("1 GiB file: %v", err)
 		}
-	}
-	// A regular file beyond the limit is refused by its size, unread.
-	path := filepath.Join(t.TempDir(), "big.csv")
-	f, _ := os.Create(path)
-	f.Truncate(1 << 30)
-	f.Seek(0, io.SeekStart)
-	defer f.Close()
-	if _, err := NewReader(f, "big.csv", 16<<20, errKind); err == nil || !errors.Is(err, ErrTooLarge) ||
-		err.Error() != "big.csv: the file holds 1 GiB, more than the 16 MiB limit for this kind of file" {
-		t.Errorf("1 GiB file: %v", err)
-	}
+	})
 }
 
 func TestErrorQuotesAShortPrefix(t *testing.T) {

@@ -500,17 +500,7 @@ func (d *decoder) object(v reflect.Value) {
 			d.value(v.Field(info.fields[idx].index))
 		}
 		d.path = d.path[:len(d.path)-1]
-		if d.err != nil {
-			return
-		}
-		switch d.peek() {
-		case ',':
-			d.pos++
-		case '}':
-			d.pos++
-			return
-		default:
-			d.expect('}', "',' or '}'")
+		if d.err != nil || !d.next('}') {
 			return
 		}
 	}
@@ -564,17 +554,7 @@ func (d *decoder) list(v reflect.Value) {
 		d.value(e)
 		d.path = d.path[:len(d.path)-1]
 		n++
-		if d.err != nil {
-			return
-		}
-		switch d.peek() {
-		case ',':
-			d.pos++
-		case ']':
-			d.pos++
-			return
-		default:
-			d.expect(']', "',' or ']'")
+		if d.err != nil || !d.next(']') {
 			return
 		}
 	}
@@ -605,18 +585,13 @@ func (d *decoder) array(v reflect.Value) {
 				d.skipValue()
 			}
 			n++
-			if d.err != nil {
-				return
+			if d.err != nil || !d.next(']') {
+				break
 			}
-			if d.peek() == ',' {
-				d.pos++
-				continue
-			}
-			if !d.expect(']', "',' or ']'") {
-				return
-			}
-			break
 		}
+	}
+	if d.err != nil {
+		return
 	}
 	if n != v.Len() {
 		v.SetZero()
@@ -659,16 +634,9 @@ func structInfoOf(t reflect.Type) *structInfo {
 	}
 	si := &structInfo{byName: map[string]int{}, lower: map[string]string{}}
 	for i := range t.NumField() {
-		f := t.Field(i)
-		if !f.IsExported() {
+		name, opts, ok := jsonName(t.Field(i))
+		if !ok {
 			continue
-		}
-		name, opts, _ := strings.Cut(f.Tag.Get("json"), ",")
-		if name == "-" {
-			continue
-		}
-		if name == "" {
-			name = f.Name
 		}
 		si.byName[name] = len(si.fields)
 		si.lower[strings.ToLower(name)] = name
@@ -680,6 +648,23 @@ func structInfoOf(t reflect.Type) *structInfo {
 	}
 	structInfos.Store(t, si)
 	return si
+}
+
+// jsonName returns the name of struct field f in JSON and the options
+// of its json tag; ok is false for a field JSON leaves out (unexported,
+// or tagged "-").
+func jsonName(f reflect.StructField) (name, opts string, ok bool) {
+	if !f.IsExported() {
+		return "", "", false
+	}
+	name, opts, _ = strings.Cut(f.Tag.Get("json"), ",")
+	if name == "-" {
+		return "", "", false
+	}
+	if name == "" {
+		name = f.Name
+	}
+	return name, opts, true
 }
 
 // unknown explains an unknown key.

@@ -12,8 +12,8 @@
 // limit. It reports every problem of a file in one run, up to a limit,
 // and never quotes more than a short prefix of a value. Locate finds the
 // line and column of problems found later, by a check of the decoded
-// value's meaning. Sniff reads a file's "format" field even when the rest
-// is malformed.
+// value's meaning. TopString reads a file's "format" field even when the
+// rest is malformed.
 //
 // Errors: every problem is a Problem (path, line, column, value, message)
 // and every failed read an *Error that lists them and wraps the caller's

@@ -32,7 +32,7 @@ type Problem struct {
 	// file as a whole.
 	Path string
 	// Line and Column are the 1-based position of the value in the file
-	// (the column counts bytes), or 0 when unknown.
+	// (the column counts characters, not bytes), or 0 when unknown.
 	Line, Column int
 	// Value is the bad value (a float64, an int, a string, a bool) when
 	// Message does not quote it itself, else nil. Keeping the Go value

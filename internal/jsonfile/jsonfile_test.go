@@ -4,10 +4,12 @@ import (
 	"bytes"
 	"encoding/json"
 	"errors"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
 	"reflect"
+	"runtime"
 	"strconv"
 	"strings"
 	"testing"
@@ -225,9 +227,11 @@ func TestQuote(t *testing.T) {
 		{strings.Repeat("ü", 50), `"` + strings.Repeat("ü", 20) + `…"`},
 	}
 	for _, c := range cases {
-		if got := Quote(c.v); got != c.want {
-			t.Errorf("Quote(%v) = %s, want %s", c.v, got, c.want)
-		}
+		t.Run(c.want, func(t *testing.T) {
+			if got := Quote(c.v); got != c.want {
+				t.Errorf("Quote(%v) = %s, want %s", c.v, got, c.want)
+			}
+		})
 	}
 }
 
@@ -265,10 +269,12 @@ func TestTopString(t *testing.T) {
 		{`{"form\u0061t": "escaped"}`, "escaped", true},
 	}
 	for _, c := range cases {
-		got, ok := TopString([]byte(c.in), "format")
-		if got != c.want || ok != c.ok {
-			t.Errorf("TopString(%s) = %q, %v; want %q, %v", c.in, got, ok, c.want, c.ok)
-		}
+		t.Run(c.in, func(t *testing.T) {
+			got, ok := TopString([]byte(c.in), "format")
+			if got != c.want || ok != c.ok {
+				t.Errorf("TopString(%s) = %q, %v; want %q, %v", c.in, got, ok, c.want, c.ok)
+			}
+		})
 	}
 }
 
@@ -346,10 +352,15 @@ func TestWriterLayout(t *testing.T) {
 }
 
 func TestBytes(t *testing.T) {
-	for n, want := range map[int64]string{812: "812 bytes", 64 << 20: "64 MiB", 1<<30 - 18: "1 GiB", 3 << 29: "1.5 GiB", 1 << 20: "1 MiB", 1536: "1.5 KiB"} {
-		if got := Bytes(n); got != want {
-			t.Errorf("Bytes(%d) = %q, want %q", n, got, want)
-		}
+	for _, c := range []struct {
+		n    int64
+		want string
+	}{{812, "812 bytes"}, {1536, "1.5 KiB"}, {1 << 20, "1 MiB"}, {64 << 20, "64 MiB"}, {1<<30 - 18, "1 GiB"}, {3 << 29, "1.5 GiB"}} {
+		t.Run(c.want, func(t *testing.T) {
+			if got := Bytes(c.n); got != c.want {
+				t.Errorf("Bytes(%d) = %q, want %q", c.n, got, c.want)
+			}
+		})
 	}
 }
 
@@ -382,5 +393,54 @@ func TestReadFileLimit(t *testing.T) {
 	}
 	if _, err := ReadFile(dir, 100, errSample); err == nil || !strings.Contains(err.Error(), "is a directory") {
 		t.Errorf("ReadFile(dir) = %v", err)
+	}
+}
+
+// endless yields 'x' bytes without end and without allocating: a pipe
+// that never closes.
+type endless struct{}
+
+func (endless) Read(p []byte) (int, error) {
+	for i := range p {
+		p[i] = 'x'
+	}
+	return len(p), nil
+}
+
+// Issue 16 (review): an input of unknown size (a pipe) was read into a
+// buffer grown by append, which allocated about five times what it held:
+// 2 GB of RSS to refuse a 1 GiB pipe at the plan's 512 MiB limit. Read in
+// chunks, a refused input is allocated about once and an accepted one
+// at most three times (the chunks, the last one's unused part, and the
+// joined copy).
+func TestReadAllOfUnknownSizeAllocatesItOnce(t *testing.T) {
+	const limit = 16 << 20
+	cases := []struct {
+		name     string
+		in       io.Reader
+		size     int64 // what ReadAll returns, or -1 for a refusal
+		maxAlloc int64
+	}{
+		{"refused at the limit", endless{}, -1, limit * 5 / 4},
+		{"accepted below the limit", io.LimitReader(endless{}, limit/2), limit / 2, limit * 3 / 2},
+		{"exactly the limit", io.LimitReader(endless{}, limit), limit, limit * 3},
+		{"one byte", strings.NewReader("x"), 1, 1 << 20},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			var before, after runtime.MemStats
+			runtime.ReadMemStats(&before)
+			data, err := ReadAll(c.in, "pipe", limit, errSample)
+			runtime.ReadMemStats(&after)
+			switch {
+			case c.size < 0 && !errors.Is(err, ErrTooLarge):
+				t.Fatalf("ReadAll = %d bytes, %v; want ErrTooLarge", len(data), err)
+			case c.size >= 0 && (err != nil || int64(len(data)) != c.size):
+				t.Fatalf("ReadAll = %d bytes, %v; want %d bytes", len(data), err, c.size)
+			}
+			if got := int64(after.TotalAlloc - before.TotalAlloc); got > c.maxAlloc {
+				t.Errorf("ReadAll allocated %s, more than %s", Bytes(got), Bytes(c.maxAlloc))
+			}
+		})
 	}
 }

@@ -96,11 +96,9 @@ func locate(s *scanner, want []*wanted, depth int) {
 			} else {
 				s.skipValue()
 			}
-			if s.peek() != ',' {
-				s.expect('}', "'}'")
+			if !s.next('}') {
 				return
 			}
-			s.pos++
 		}
 	case '[':
 		byIndex := map[int][]*wanted{}
@@ -120,11 +118,9 @@ func locate(s *scanner, want []*wanted, depth int) {
 			} else {
 				s.skipValue()
 			}
-			if s.peek() != ',' {
-				s.expect(']', "']'")
+			if !s.next(']') {
 				return
 			}
-			s.pos++
 		}
 	default:
 		s.skipValue()

@@ -1,6 +1,7 @@
 package jsonfile
 
 import (
+	"bytes"
 	"fmt"
 	"io"
 	"os"
@@ -9,8 +10,9 @@ import (
 
 // ReadFile reads the file at path whole. A regular file larger than
 // limit bytes is refused by its size before anything is read; any other
-// input (a pipe, a device) is read up to limit+1 bytes and refused there,
-// so memory stays within the limit whatever the input. The error of a
+// input (a pipe, a device) is read, in chunks, up to limit+1 bytes and
+// refused there, so memory holds at most about the limit whatever the
+// input (and an accepted input twice, while its chunks are joined). The error of a
 // refusal is an *Error naming path and wrapping ErrTooLarge and kind.
 func ReadFile(path string, limit int64, kind error) ([]byte, error) {
 	f, err := os.Open(path)
@@ -28,8 +30,15 @@ func ReadAll(r io.Reader, file string, limit int64, kind error) ([]byte, error) 
 	return readLimited(r, file, limit, kind)
 }
 
+// Chunk sizes of readLimited: the first chunk of an input of unknown size,
+// and the largest.
+const (
+	firstChunk = 64 << 10
+	maxChunk   = 8 << 20
+)
+
 func readLimited(r io.Reader, file string, limit int64, kind error) ([]byte, error) {
-	size := int64(-1)
+	next := int64(firstChunk)
 	if f, ok := r.(*os.File); ok {
 		st, err := f.Stat()
 		if err != nil {
@@ -39,33 +48,42 @@ func readLimited(r io.Reader, file string, limit int64, kind error) ([]byte, err
 			return nil, fmt.Errorf("%s: is a directory, not a file", orInput(file))
 		}
 		if st.Mode().IsRegular() {
-			size = st.Size()
-			if size > limit {
-				return nil, tooLarge(file, size, limit, kind)
+			if st.Size() > limit {
+				return nil, tooLarge(file, st.Size(), limit, kind)
 			}
+			// One chunk of the size and a byte, to see the end: a regular
+			// file is read into one buffer, returned as it is.
+			next = st.Size() + 1
 		}
 	}
-	// Grow the buffer as the data comes rather than trusting the size:
-	// a file may change while it is read.
-	buf := make([]byte, 0, min(max(size+1, 512), limit+1))
+	// Read in chunks rather than into one growing buffer: growing by
+	// append keeps the old arrays until the collector runs, so a pipe
+	// refused at a 512 MiB limit held 2 GB; chunks hold the input once,
+	// and a file that changes while it is read is still read to its end
+	// (or to the limit).
 	lr := io.LimitReader(r, limit+1)
+	var chunks [][]byte
+	var total int64
 	for {
-		if len(buf) == cap(buf) {
-			buf = append(buf, 0)[:len(buf)]
-		}
-		n, err := lr.Read(buf[len(buf):cap(buf)])
-		buf = buf[:len(buf)+n]
-		if err == io.EOF {
+		chunk := make([]byte, min(next, limit+1-total))
+		n, err := io.ReadFull(lr, chunk)
+		chunks = append(chunks, chunk[:n])
+		total += int64(n)
+		if err == io.EOF || err == io.ErrUnexpectedEOF || total > limit {
 			break
 		}
 		if err != nil {
 			return nil, fmt.Errorf("%s: %w", orInput(file), err)
 		}
+		next = min(2*next, maxChunk)
 	}
-	if int64(len(buf)) > limit {
+	if total > limit {
 		return nil, tooLarge(file, -1, limit, kind)
 	}
-	return buf, nil
+	if len(chunks) == 1 {
+		return chunks[0], nil
+	}
+	return bytes.Join(chunks, nil), nil
 }
 
 func orInput(file string) string {

@@ -403,6 +403,22 @@ func (s *scanner) skipValue() (start, end int) {
 	return start, s.pos
 }
 
+// next reads what follows a member of the object or list that closer
+// ends: a comma, and reports true (another member follows), or closer,
+// and reports false; anything else is a syntax error (false).
+func (s *scanner) next(closer byte) bool {
+	switch s.peek() {
+	case ',':
+		s.pos++
+		return true
+	case closer:
+		s.pos++
+		return false
+	}
+	s.expect(closer, "',' or '"+string(closer)+"'")
+	return false
+}
+
 // key scans an object key and its colon.
 func (s *scanner) key() bool {
 	if s.peek() != '"' {

@@ -9,7 +9,6 @@ import (
 	"math"
 	"reflect"
 	"strconv"
-	"strings"
 )
 
 // Style lays out the JSON dimerpath writes. Whatever the style, the
@@ -104,16 +103,9 @@ func nonFinitePath(v reflect.Value, path []segment, depth int) (string, float64,
 	case reflect.Struct:
 		t := v.Type()
 		for i := range t.NumField() {
-			f := t.Field(i)
-			if !f.IsExported() {
+			name, _, ok := jsonName(t.Field(i))
+			if !ok {
 				continue
-			}
-			name, _, _ := strings.Cut(f.Tag.Get("json"), ",")
-			if name == "-" {
-				continue
-			}
-			if name == "" {
-				name = f.Name
 			}
 			if p, x, ok := nonFinitePath(v.Field(i), append(path, segment{key: name, index: -1}), depth+1); ok {
 				return p, x, true

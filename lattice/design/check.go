@@ -47,10 +47,15 @@ const (
 	// RuleStepRegistry: a terrace that steps from another says whether
 	// the step goes up or down (the two lattices lie 0.27 nm apart).
 	RuleStepRegistry = "step-registry"
+	// RuleSurfaceClearance: with a survey, dopant windows keep
+	// Rules.DefectWindowClearanceNM and other atomic-precision features
+	// Rules.DefectClearanceNM from the edge of every defect it found, and
+	// no atomic-precision feature crosses one of its step edges.
+	RuleSurfaceClearance = "surface-clearance"
 )
 
 // Rules lists the rule names in the order Check runs them.
-var RuleNames = []string{RuleWindow, RuleWindowSpacing, RuleFEKeepOut, RuleScanField, RuleFloating, RuleTunnelGap, RuleStepRegistry}
+var RuleNames = []string{RuleWindow, RuleWindowSpacing, RuleFEKeepOut, RuleScanField, RuleFloating, RuleTunnelGap, RuleStepRegistry, RuleSurfaceClearance}
 
 // MaxFindingsPerRule caps the findings one rule reports; a last finding
 // then says how many more there were.
@@ -111,6 +116,7 @@ func (l *Layout) Check() []Finding {
 	c.floating()
 	c.tunnelGaps()
 	c.stepRegistry()
+	c.surfaceClearance()
 	return c.findings
 }
 

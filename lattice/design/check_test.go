@@ -101,6 +101,22 @@ func TestRulesBreakOnce(t *testing.T) {
 			func(d *Design) { region(d, "source-lead").Shapes[0].Points[0][1] = 1329.5 * lattice.RowSpacing }},
 		{"tunnel gap closed", RuleTunnelGap, []string{"sensor-island", "drain-lead"}, "no tunnel gap",
 			func(d *Design) { region(d, "drain-lead").Shapes[0].Points[1][1] = 1000 }},
+		// The P window's cells reach y = donorRowY + 0.38 nm: a defect
+		// 0.8 nm wide at 2.5 nm above the row leaves 1.7 nm of surface.
+		{"defect beside the P window", RuleSurfaceClearance, []string{"donor-P"}, "a dopant window of \"donor-P\" lies 1.7",
+			func(d *Design) {
+				addSurvey(d, SurveyDefect{AtNM: [2]float64{955, donorRowY + 2.5}, Kind: DefectBright, SizeNM: 0.8, Class: "dangling bond"})
+			}},
+		// The island's top edge is at y = 1005.78 nm.
+		{"defect beside the island", RuleSurfaceClearance, []string{"sensor-island"}, "comes 0.92 nm from the edge of a dark defect",
+			func(d *Design) {
+				addSurvey(d, SurveyDefect{AtNM: [2]float64{999.9, 1007.0}, Kind: DefectDark, SizeNM: 0.6, Class: "vacancy"})
+			}},
+		{"step edge through the island", RuleSurfaceClearance, []string{"sensor-island"}, "crosses a step edge",
+			func(d *Design) {
+				addSurvey(d)
+				d.Survey.Steps = []SurveyStep{{PolylineNM: [][2]float64{surveyPoint(1000, 980), surveyPoint(1001, 1020)}}}
+			}},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -125,6 +141,24 @@ func TestRulesBreakOnce(t *testing.T) {
 			}
 		})
 	}
+}
+
+// surveyOffset is where addSurvey puts a survey's lower-left corner.
+var surveyOffset = [2]float64{880, 880}
+
+// surveyPoint returns the survey-frame point of field point (x, y) for a
+// survey added by addSurvey (turned by 0°).
+func surveyPoint(x, y float64) [2]float64 {
+	return [2]float64{x - surveyOffset[0], y - surveyOffset[1]}
+}
+
+// addSurvey gives d a 240 x 240 nm survey over the device with the given
+// defects, their positions given in field nm.
+func addSurvey(d *Design, defects ...SurveyDefect) {
+	for i := range defects {
+		defects[i].AtNM = surveyPoint(defects[i].AtNM[0], defects[i].AtNM[1])
+	}
+	d.Survey = &Survey{Image: "survey.png", OffsetNM: surveyOffset, SizePx: [2]int{1600, 1600}, ScaleNMPerPx: [2]float64{0.15, 0.15}, Defects: defects}
 }
 
 // removeRegion drops the named region from the first variant.

@@ -37,6 +37,9 @@ type Design struct {
 	// drawn on the lattice and printed on the plan's overview, never
 	// written (dimerpath import-gds --as reference).
 	References []Reference `json:"references,omitempty"`
+	// Survey is a survey topograph of the surface under the design and
+	// what its analysis found (dimerpath survey); nil without one.
+	Survey *Survey `json:"survey,omitempty"`
 }
 
 // Reference is geometry imported from a mask layout (GDSII) and mapped
@@ -266,6 +269,12 @@ type Rules struct {
 	// TunnelGapToleranceNM is the tolerance (±nm) of a tunnel gap's width
 	// (default half a dimer-row spacing, 0.38 nm).
 	TunnelGapToleranceNM *float64 `json:"tunnel_gap_tolerance_nm,omitempty"`
+	// DefectWindowClearanceNM and DefectClearanceNM are the least
+	// distances from the edge of a survey's defect to dopant windows
+	// (default 3 nm) and to other atomic-precision features (default
+	// 1.5 nm), both from memory.
+	DefectWindowClearanceNM *float64 `json:"defect_window_clearance_nm,omitempty"`
+	DefectClearanceNM       *float64 `json:"defect_clearance_nm,omitempty"`
 }
 
 // NoDopant is the Species of a region that receives no dopant.

@@ -42,6 +42,14 @@ const (
 	// its number of rows: one row more or less changes the tunnel
 	// resistance about tenfold (Wang et al., Commun. Phys. 3, 82 (2020)).
 	DefaultTunnelGapToleranceNM = lattice.RowSpacing / 2
+	// DefaultDefectWindowClearanceNM is the least distance from a dopant
+	// window to the edge of a defect of the survey, 3 nm, and
+	// DefaultDefectClearanceNM that of other atomic-precision features,
+	// 1.5 nm: a dangling bond or adsorbate next to a window can take the
+	// precursor or the donor, next to a wire it can short or scatter (from
+	// memory: defaults to set by a lab's own yields, not check values).
+	DefaultDefectWindowClearanceNM = 3.0
+	DefaultDefectClearanceNM       = 1.5
 )
 
 // RuleSettings are the design-rule settings with every default filled
@@ -58,6 +66,11 @@ type RuleSettings struct {
 	// TunnelGapToleranceNM is the tolerance (±nm) of a tunnel gap's
 	// width.
 	TunnelGapToleranceNM float64
+	// DefectWindowClearanceNM and DefectClearanceNM are the least
+	// distances from the edge of a survey's defect to dopant windows and
+	// to other atomic-precision features.
+	DefectWindowClearanceNM float64
+	DefectClearanceNM       float64
 }
 
 // DefaultRules returns the rule settings of a design without Rules.
@@ -73,6 +86,9 @@ func DefaultRules() RuleSettings {
 		FEToleranceNM:    DefaultFEToleranceNM,
 
 		TunnelGapToleranceNM: DefaultTunnelGapToleranceNM,
+
+		DefectWindowClearanceNM: DefaultDefectWindowClearanceNM,
+		DefectClearanceNM:       DefaultDefectClearanceNM,
 	}
 }
 
@@ -104,6 +120,8 @@ func (d *Design) EffectiveRules() RuleSettings {
 	set(&rs.APToleranceNM, r.APToleranceNM)
 	set(&rs.FEToleranceNM, r.FEToleranceNM)
 	set(&rs.TunnelGapToleranceNM, r.TunnelGapToleranceNM)
+	set(&rs.DefectWindowClearanceNM, r.DefectWindowClearanceNM)
+	set(&rs.DefectClearanceNM, r.DefectClearanceNM)
 	return rs
 }
 

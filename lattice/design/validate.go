@@ -117,6 +117,7 @@ func (d *Design) validate(ps *problems) {
 		d.validateVariant(ps, i, templates, species, surf)
 	}
 	d.validateReferences(ps)
+	d.validateSurvey(ps)
 }
 
 // MaxReferencePoints bounds the points of all references of a design
@@ -288,6 +289,8 @@ func (d *Design) validateRules(ps *problems) {
 	positive("gate_tolerance_nm", r.GateToleranceNM)
 	positive("pad_tolerance_nm", r.PadToleranceNM)
 	positive("tunnel_gap_tolerance_nm", r.TunnelGapToleranceNM)
+	nonNeg("defect_window_clearance_nm", r.DefectWindowClearanceNM)
+	nonNeg("defect_clearance_nm", r.DefectClearanceNM)
 	if rs := d.EffectiveRules(); rs.TunnelGapMaxNM < rs.TunnelGapMinNM {
 		ps.add("rules", "tunnel gap range %g–%g nm is empty: the maximum is below the minimum", rs.TunnelGapMinNM, rs.TunnelGapMaxNM)
 	}

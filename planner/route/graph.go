@@ -108,6 +108,19 @@ func (g *graph) d(i, j int32) float64 {
 	return math.Sqrt(dx*dx + dy*dy)
 }
 
+// within reports whether the edge (i, j) is shorter than r (without a
+// square root: the searches test far more closing edges than they make).
+func (g *graph) within(i, j int32, r float64) bool {
+	if r <= 0 {
+		return false
+	}
+	if i == g.dummy || j == g.dummy {
+		return true
+	}
+	dx, dy := g.x[i]-g.x[j], g.y[i]-g.y[j]
+	return dx*dx+dy*dy < r*r
+}
+
 // fixed reports whether (i, j) is a fixed edge.
 func (g *graph) fixed(i, j int32) bool { return g.partner[i] == j }
 

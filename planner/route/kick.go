@@ -70,13 +70,22 @@ func (s *solver) kick(r *rng, segMax int32) bool {
 	if p[3]-p[0] >= n-1 {
 		return false
 	}
+	return s.doubleBridge(r, u, w)
+}
+
+// doubleBridge makes the double bridge (or, for half the kicks, the
+// segment swap) of the tour edges (u[k], w[k]), w[k] = succ u[k], in tour
+// order, re-optimises and keeps or undoes the result.
+func (s *solver) doubleBridge(r *rng, u, w [4]int32) bool {
+	g := s.g
 	// X ends at u0; B = w0..u1, C = w1..u2, D = w2..u3; X resumes at w3.
 	before := s.length
 	mark := len(s.journal)
 	s.recording = true
 	delta := g.d(u[0], w[2]) + g.d(u[3], w[1]) + g.d(u[2], w[0]) + g.d(u[1], w[3]) -
 		g.d(u[0], w[0]) - g.d(u[1], w[1]) - g.d(u[2], w[2]) - g.d(u[3], w[3])
-	if r.uint64()&1 == 0 {
+	swap := r.uint64()&1 == 0
+	if swap {
 		// X C B D: move B = w0..u1 to between u2 and w2.
 		delta = g.d(u[0], w[1]) + g.d(u[2], w[0]) + g.d(u[1], w[2]) -
 			g.d(u[0], w[0]) - g.d(u[1], w[1]) - g.d(u[2], w[2])
@@ -94,7 +103,7 @@ func (s *solver) kick(r *rng, segMax int32) bool {
 		s.push(u[k])
 		s.push(w[k])
 	}
-	s.localSearch(nil)
+	s.repair(before, u, w, swap)
 	s.recording = false
 	if s.length <= before+s.eps {
 		s.journal = s.journal[:mark]
@@ -103,4 +112,39 @@ func (s *solver) kick(r *rng, segMax int32) bool {
 	s.undo(mark)
 	s.length = before
 	return false
+}
+
+// repair runs the local search after a kick until the queue is empty or
+// the tour is back where it was: the kick's removed edges all restored
+// and the length what it was before. Then the tour is the one before the
+// kick, a local optimum, and searching on from the queued nodes would
+// find nothing (measured: the local search undoes about nine kicks in
+// ten this way).
+func (s *solver) repair(before float64, u, w [4]int32, swap bool) {
+	cuts := 4
+	if swap {
+		cuts = 3
+	}
+	for s.qn > 0 {
+		v := s.pop()
+		if !s.improve(v) {
+			continue
+		}
+		if s.length > before+s.eps || s.length < before-s.eps {
+			continue
+		}
+		back := true
+		for k := range cuts {
+			if s.succ(u[k]) != w[k] && s.pred(u[k]) != w[k] {
+				back = false
+				break
+			}
+		}
+		if back {
+			for s.qn > 0 {
+				s.pop()
+			}
+			return
+		}
+	}
 }

@@ -25,7 +25,19 @@ var koptBreadth = [koptDepthMax]int{0, 5, 3, 2, 1}
 type koptState struct {
 	t    [2*koptDepthMax + 1]int32 // t[1..2k]
 	node [2 * koptDepthMax]int32   // the 2k nodes by position, from a segment head
+	idx  [2 * koptDepthMax]int8    // the index j in t of node[q]
+	rank [2*koptDepthMax + 1]int8  // the index q in node of t[j]
 	key  uint32                    // the checked move's new segment order (koptValid)
+	// in[v] is set while v is one of the search's current t[1..2i], so
+	// that the test costs one load.
+	in []bool
+}
+
+// mark sets or clears the in-move mark of t[1..2m].
+func (k *koptState) mark(m int, on bool) {
+	for _, v := range k.t[1 : 2*m+1] {
+		k.in[v] = on
+	}
 }
 
 // bestKOpt searches sequential 4- and 5-opt moves from t1 and makes the
@@ -35,7 +47,7 @@ func (s *solver) bestKOpt(t1 int32) bool {
 	if g.oneWay >= 2 || s.n < 12 {
 		return false
 	}
-	k := &s.kopt
+	k := s.koptScratch()
 	k.t[1] = t1
 	for dir := range 2 {
 		t2 := s.next(t1, dir)
@@ -43,16 +55,23 @@ func (s *solver) bestKOpt(t1 int32) bool {
 			continue
 		}
 		k.t[2] = t2
-		if s.koptStep(1, g.d(t1, t2)) {
+		k.mark(1, true)
+		ok := s.koptStep(1, g.d(t1, t2))
+		k.mark(1, false)
+		if ok {
 			return true
 		}
 	}
 	return false
 }
 
-// inK reports whether v is one of t[1..m].
-func (k *koptState) inK(v int32, m int) bool {
-	return slices.Contains(k.t[1:m+1], v)
+// koptScratch returns the k-opt scratch, its marks allocated.
+func (s *solver) koptScratch() *koptState {
+	k := &s.kopt
+	if len(k.in) != int(s.n) {
+		k.in = make([]bool, s.n)
+	}
+	return k
 }
 
 // koptStep extends a chain of i removed and i-1 added edges with gain G
@@ -71,13 +90,13 @@ func (s *solver) koptStep(i int, G float64) bool {
 		if g1 <= s.eps {
 			break
 		}
-		if k.inK(t3, 2*i) || s.succ(t2i) == t3 || s.pred(t2i) == t3 {
+		if k.in[t3] || s.succ(t2i) == t3 || s.pred(t2i) == t3 {
 			continue
 		}
 		tried++
 		for side := range 2 {
 			t4 := s.next(t3, side)
-			if g.fixed(t3, t4) || k.inK(t4, 2*i) {
+			if g.fixed(t3, t4) || k.in[t4] {
 				continue
 			}
 			k.t[2*i+1], k.t[2*i+2] = t3, t4
@@ -88,8 +107,13 @@ func (s *solver) koptStep(i int, G float64) bool {
 					return true
 				}
 			}
-			if i+1 < koptDepthMax && s.koptStep(i+1, G2) {
-				return true
+			if i+1 < koptDepthMax {
+				k.in[t3], k.in[t4] = true, true
+				ok := s.koptStep(i+1, G2)
+				k.in[t3], k.in[t4] = false, false
+				if ok {
+					return true
+				}
 			}
 		}
 		if tried >= koptBreadth[i] {
@@ -101,72 +125,35 @@ func (s *solver) koptStep(i int, G float64) bool {
 
 // koptSegments sorts the 2k nodes of the move by tour position so that
 // node[2i] and node[2i+1] are the first and last node of the i-th
-// stretch of tour between the removed edges.
+// stretch of tour between the removed edges, and records each node's
+// index in t (idx) and each t's place in node (rank).
 func (s *solver) koptSegments(m int) {
 	k := &s.kopt
-	nodes := k.node[:2*m]
-	// Insertion sort by position: at most 10 nodes.
+	// Insertion sort of t's indices by position: at most 10 of them.
 	var keys [2 * koptDepthMax]int32
-	for i, v := range k.t[1 : 2*m+1] {
-		p := s.pos[v]
-		j := i
-		for j > 0 && keys[j-1] > p {
-			keys[j], nodes[j] = keys[j-1], nodes[j-1]
-			j--
+	var js [2 * koptDepthMax]int8
+	for j := 1; j <= 2*m; j++ {
+		p := s.pos[k.t[j]]
+		q := j - 1
+		for q > 0 && keys[q-1] > p {
+			keys[q], js[q] = keys[q-1], js[q-1]
+			q--
 		}
-		keys[j], nodes[j] = p, v
+		keys[q], js[q] = p, int8(j)
 	}
 	// The first sorted node heads a segment only if it is cut from its
-	// predecessor (at the end of the array); else it ends the segment
-	// that wraps round, which the last sorted node heads.
-	if !s.removedPair(nodes[0], s.pred(nodes[0]), m) {
-		first := nodes[0]
-		copy(nodes, nodes[1:])
-		nodes[2*m-1] = first
+	// predecessor (at the end of the array), not from its successor (the
+	// second sorted node); else it ends the segment that wraps round,
+	// which the last sorted node heads. t[j]'s removed edge joins it to
+	// t[j+1] (j odd) or t[j-1] (j even).
+	first := 0
+	if j0 := js[0]; (j0&1 == 1 && js[1] == j0+1) || (j0&1 == 0 && js[1] == j0-1) {
+		first = 1
 	}
-}
-
-// removedPair reports whether (a, b) is one of the m removed edges.
-func (s *solver) removedPair(a, b int32, m int) bool {
-	k := &s.kopt
-	for j := 1; j <= m; j++ {
-		x, y := k.t[2*j-1], k.t[2*j]
-		if (x == a && y == b) || (x == b && y == a) {
-			return true
-		}
+	for q := range 2 * m {
+		j := js[(q+first)%(2*m)]
+		k.idx[q], k.node[q], k.rank[j] = j, k.t[j], int8(q)
 	}
-	return false
-}
-
-// koptEnd returns the index in the sorted nodes of v.
-func (s *solver) koptEnd(v int32, m int) int {
-	k := &s.kopt
-	for i, x := range k.node[:2*m] {
-		if x == v {
-			return i
-		}
-	}
-	return -1
-}
-
-// koptMate is the node the move's added edges join v to.
-func (s *solver) koptMate(v int32, m int) int32 {
-	k := &s.kopt
-	if v == k.t[1] {
-		return k.t[2*m]
-	}
-	if v == k.t[2*m] {
-		return k.t[1]
-	}
-	for j := 1; j < m; j++ {
-		if v == k.t[2*j] {
-			return k.t[2*j+1]
-		}
-		if v == k.t[2*j+1] {
-			return k.t[2*j]
-		}
-	}
-	return -1
 }
 
 // koptMake checks that the closed m-opt move in s.kopt leaves one tour
@@ -188,33 +175,42 @@ func (s *solver) koptMake(m int) bool {
 func (s *solver) koptValid(m int) bool {
 	k := &s.kopt
 	s.koptSegments(m)
-	// Sorted index i is segment i/2's head (even) or last node (odd),
-	// segments in tour order. Walk: along a segment, then an added edge.
-	var order [koptDepthMax]int8 // the new order of the segments...
-	var rev [koptDepthMax]bool   // ...and whether each is read backwards
-	at := 0                      // sorted index where the walk enters a segment
+	// Sorted index q is segment q/2's head (even) or last node (odd),
+	// segments in tour order. Walk: along a segment, then an added edge:
+	// (t[2j], t[2j+1]) for j < m, and (t[2m], t[1]).
+	last := int8(2 * m)
+	var key uint32 // the signed permutation of segments 1..m-1 in the new order
+	at := int8(0)  // sorted index where the walk enters a segment
 	for c := 0; ; c++ {
-		order[c], rev[c] = int8(at/2), at%2 == 1
-		nx := s.koptEnd(s.koptMate(k.node[at^1], m), m)
+		if c > 0 {
+			e := uint32(at / 2)
+			if at&1 == 1 {
+				e |= 8
+			}
+			key |= e << (4 * (c - 1))
+		}
+		j := k.idx[at^1] // the segment's exit, as an index into t
+		switch {
+		case j == 1:
+			j = last
+		case j == last:
+			j = 1
+		case j&1 == 0:
+			j++
+		default:
+			j--
+		}
+		nx := k.rank[j]
 		if nx == 0 {
 			if c != m-1 {
 				return false // a shorter cycle
 			}
 			break
 		}
-		if nx < 0 || c == m-1 {
+		if c == m-1 {
 			return false
 		}
 		at = nx
-	}
-	// Signed permutation of segments 1..m-1 in the new order.
-	var key uint32
-	for c := 1; c < m; c++ {
-		e := uint32(order[c])
-		if rev[c] {
-			e |= 8
-		}
-		key |= e << (4 * (c - 1))
 	}
 	k.key = key
 	return true
@@ -227,11 +223,6 @@ func (s *solver) koptDo(m int) bool {
 		return false
 	}
 	k := &s.kopt
-	// The segments' lengths, for the reversal bound.
-	var length [koptDepthMax]int32
-	for sg := range m {
-		length[sg] = s.pathLen(s.pos[k.node[2*sg]], s.pos[k.node[2*sg+1]])
-	}
 	steps := reversalPlan(m-1, k.key)
 	// Check every reversal's length first, then make them.
 	cur := [koptDepthMax]int8{}
@@ -240,6 +231,11 @@ func (s *solver) koptDo(m int) bool {
 		cur[c] = int8(c)
 	}
 	if s.maxRev < s.n {
+		// The segments' lengths, for the reversal bound.
+		var length [koptDepthMax]int32
+		for sg := range m {
+			length[sg] = s.pathLen(s.pos[k.node[2*sg]], s.pos[k.node[2*sg+1]])
+		}
 		for _, st := range steps {
 			span := int32(0)
 			for c := st[0]; c <= st[1]; c++ {

@@ -63,7 +63,7 @@ func (s *solver) lkSearch(t1 int32) bool {
 	if g.oneWay >= 2 || s.n < 12 {
 		return false
 	}
-	k := &s.kopt
+	k := s.koptScratch()
 	lk := &s.lk
 	for dir := range 2 {
 		t2 := s.next(t1, dir)
@@ -90,14 +90,17 @@ func (s *solver) lkSearch(t1 int32) bool {
 		for step := 0; step < lkSteps; step++ {
 			k.t[1], k.t[2] = t1, t2
 			lk.bestM, lk.bestG = 0, s.eps
-			if s.lkStep(1, G0) {
+			k.in[t1], k.in[t2] = true, true
+			ok := s.lkStep(1, G0)
+			k.in[t1], k.in[t2] = false, false
+			if ok {
 				improved = true
 				break
 			}
 			if lk.bestM == 0 {
 				break
 			}
-			m := lk.bestM
+			m, G := lk.bestM, lk.bestG
 			k.t = lk.bestT
 			if !s.koptDo(m) {
 				break
@@ -111,8 +114,8 @@ func (s *solver) lkSearch(t1 int32) bool {
 			for _, v := range k.t[1 : 2*m+1] {
 				s.lkTouched = append(s.lkTouched, v)
 			}
-			s.length = before - (lk.bestG - g.d(k.t[2*m], t1))
-			G0 = lk.bestG
+			s.length = before - (G - g.d(k.t[2*m], t1))
+			G0 = G
 			t2 = k.t[2*m]
 		}
 		if improved {
@@ -153,19 +156,20 @@ func (s *solver) lkStep(i int, G float64) bool {
 		if g1 <= s.eps {
 			break
 		}
-		if k.inK(t3, 2*i) || s.succ(t2i) == t3 || s.pred(t2i) == t3 || lk.tabu(lk.removed, t2i, t3) {
+		if k.in[t3] || s.succ(t2i) == t3 || s.pred(t2i) == t3 || lk.tabu(lk.removed, t2i, t3) {
 			continue
 		}
 		tried++
 		for side := range 2 {
 			t4 := s.next(t3, side)
-			if g.fixed(t3, t4) || k.inK(t4, 2*i) || lk.tabu(lk.added, t3, t4) {
+			if g.fixed(t3, t4) || k.in[t4] || lk.tabu(lk.added, t3, t4) {
 				continue
 			}
 			k.t[2*i+1], k.t[2*i+2] = t3, t4
 			G2 := g1 + g.d(t3, t4)
 			m := i + 1
-			if gain := G2 - g.d(t4, t1); gain > s.eps && !lk.tabu(lk.removed, t4, t1) && s.koptDo(m) {
+			if g.within(t4, t1, G2-s.eps) && !lk.tabu(lk.removed, t4, t1) && s.koptDo(m) {
+				gain := G2 - g.d(t4, t1)
 				for _, v := range k.t[1 : 2*m+1] {
 					s.lkTouched = append(s.lkTouched, v)
 				}
@@ -175,8 +179,13 @@ func (s *solver) lkStep(i int, G float64) bool {
 			if m == koptDepthMax && G2 > lk.bestG && !lk.tabu(lk.removed, t4, t1) && s.koptValid(m) {
 				lk.bestG, lk.bestM, lk.bestT = G2, m, k.t
 			}
-			if m < koptDepthMax && s.lkStep(m, G2) {
-				return true
+			if m < koptDepthMax {
+				k.in[t3], k.in[t4] = true, true
+				ok := s.lkStep(m, G2)
+				k.in[t3], k.in[t4] = false, false
+				if ok {
+					return true
+				}
 			}
 		}
 		if tried >= koptBreadth[i] {

@@ -141,12 +141,12 @@ func (s *solver) bestOrOpt(v int32, best *move) {
 				if ds[k] >= removed-s.eps {
 					break
 				}
-				if s.inSegment(c, first, int32(l)) {
+				if s.between(first, c, last, 0) {
 					continue
 				}
 				for side := range 2 {
 					w := s.next(c, side)
-					if s.inSegment(w, first, int32(l)) || g.fixed(c, w) {
+					if s.between(first, w, last, 0) || g.fixed(c, w) {
 						continue
 					}
 					delta := ds[k] + g.d(e, w) - g.d(c, w) - removed
@@ -169,24 +169,17 @@ func (s *solver) bestOrOpt(v int32, best *move) {
 					}
 					// The flips reverse about the shorter way round from
 					// the segment to (a, b).
-					y := s.pathLen(s.pos[nx], s.pos[a])
-					if min(y, n-y-int32(l)) > s.maxRev {
-						continue
+					if s.maxRev < n {
+						y := s.pathLen(s.pos[nx], s.pos[a])
+						if min(y, n-y-int32(l)) > s.maxRev {
+							continue
+						}
 					}
 					*best = move{kind: moveOr, delta: delta, a: a, b: b, first: first, last: last, rev: rev}
 				}
 			}
 		}
 	}
-}
-
-// inSegment reports whether node c lies on the l positions from first.
-func (s *solver) inSegment(c, first int32, l int32) bool {
-	d := s.pos[c] - s.pos[first]
-	if d < 0 {
-		d += s.n
-	}
-	return d < l
 }
 
 // localSearch improves from the queued nodes until none improves or

@@ -5,6 +5,10 @@ import (
 	"time"
 )
 
+// now is the clock of budgets and progress: a variable so that a
+// measurement can bound runs by CPU time on a shared machine.
+var now = time.Now
+
 // control carries one Solve call's limits and reporting.
 type control struct {
 	ctx      context.Context
@@ -20,7 +24,7 @@ type control struct {
 }
 
 func newControl(ctx context.Context, p Problem, opt Options) *control {
-	c := &control{ctx: ctx, begin: time.Now(), kicks: opt.MaxKicks, items: len(p.Items),
+	c := &control{ctx: ctx, begin: now(), kicks: opt.MaxKicks, items: len(p.Items),
 		seed: opt.Seed, progress: opt.Progress}
 	budget := opt.Budget
 	if budget == 0 && opt.MaxKicks <= 0 {
@@ -38,9 +42,9 @@ func (c *control) report(phase string, length, fraction float64) {
 	if c.progress == nil {
 		return
 	}
-	now := time.Now()
-	c.lastProg = now
-	c.progress(Progress{Phase: phase, Length: length, Elapsed: now.Sub(c.begin), Fraction: min(max(fraction, 0), 1)})
+	t := now()
+	c.lastProg = t
+	c.progress(Progress{Phase: phase, Length: length, Elapsed: t.Sub(c.begin), Fraction: min(max(fraction, 0), 1)})
 }
 
 // solve orders one group's items: exactly when there are few, else by
@@ -55,8 +59,9 @@ func (c *control) solve(items []Item, start, end *Point, closed bool, share floa
 	}
 	deadline := c.deadline
 	if !deadline.IsZero() {
-		left := time.Until(deadline)
-		deadline = time.Now().Add(time.Duration(float64(left) * share))
+		t := now()
+		left := deadline.Sub(t)
+		deadline = t.Add(time.Duration(float64(left) * share))
 	}
 	kicks := 0
 	if c.kicks > 0 {
@@ -209,7 +214,7 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 	c.report("local", s.length-fixedLen, 0)
 
 	r := newRNG(c.seed)
-	t0 := time.Now()
+	t0 := now()
 	total := deadline.Sub(t0)
 	frac := 0.0
 	// Measured on the yardstick (2 s runs): the longest run of failed
@@ -223,16 +228,16 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 			if c.ctx.Err() != nil {
 				break
 			}
-			now := time.Now()
-			if !deadline.IsZero() && !now.Before(deadline) {
+			t := now()
+			if !deadline.IsZero() && !t.Before(deadline) {
 				break
 			}
 			if kicks > 0 {
 				frac = float64(i) / float64(kicks)
 			} else if total > 0 {
-				frac = float64(now.Sub(t0)) / float64(total)
+				frac = float64(t.Sub(t0)) / float64(total)
 			}
-			if c.progress != nil && now.Sub(c.lastProg) > 100*time.Millisecond {
+			if c.progress != nil && t.Sub(c.lastProg) > 100*time.Millisecond {
 				c.report("improve", s.length-fixedLen, frac)
 			}
 		}

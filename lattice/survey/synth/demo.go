@@ -22,8 +22,9 @@ const (
 )
 
 // DemoDefectsField lists the demo survey's defects in field nm: dangling
-// bonds and vacancies scattered over the device area, none within reach
-// of the dopant windows and the island, one vacancy near the drain lead.
+// bonds, vacancies and an adsorbate over the device area, four of them a
+// few nm from the dopant windows and the island, none within the
+// surface-clearance rule's reach of them.
 var DemoDefectsField = []Defect{
 	{Kind: Bright, AtNM: [2]float64{941.3, 1046.2}, HeightNM: 0.14, SizeNM: 1.0},
 	{Kind: Bright, AtNM: [2]float64{1032.7, 1061.9}, HeightNM: 0.16, SizeNM: 0.9},
@@ -39,6 +40,11 @@ var DemoDefectsField = []Defect{
 	{Kind: Dark, AtNM: [2]float64{985.1, 1053.0}, HeightNM: 0.06, SizeNM: 0.6},
 	{Kind: Dark, AtNM: [2]float64{1040.2, 934.6}, HeightNM: 0.07, SizeNM: 0.7},
 	{Kind: Dark, AtNM: [2]float64{933.0, 1003.5}, HeightNM: 0.06, SizeNM: 0.6},
+	// Near the core, but clear of the surface-clearance rule's defaults.
+	{Kind: Bright, AtNM: [2]float64{958.0, 1006.5}, HeightNM: 0.15, SizeNM: 1.0},
+	{Kind: Dark, AtNM: [2]float64{1013.6, 1001.2}, HeightNM: 0.07, SizeNM: 0.7},
+	{Kind: Bright, AtNM: [2]float64{975.0, 993.0}, HeightNM: 0.14, SizeNM: 0.9},
+	{Kind: Bright, AtNM: [2]float64{996.0, 990.5}, HeightNM: 0.13, SizeNM: 0.8},
 }
 
 // DemoParams returns the parameters of the demo survey. The lattice is

@@ -1,0 +1,76 @@
+package design
+
+import (
+	"math"
+	"strings"
+	"testing"
+
+	"github.com/golang/geo/r2"
+)
+
+// A survey loads, saves and loads back, and every bad field is reported
+// at its JSON path.
+func TestSurveyInDesignFile(t *testing.T) {
+	sv := `"survey": {"image": "scan.png", "offset_nm": [900, 910], "rotation_deg": -3, "size_px": [900, 900],
+	  "scale_nm_per_px": [0.152, 0.149], "skew_deg": 0.4,
+	  "terraces": [{"rows_deg": 3, "polygon_nm": [[0, 0], [136, 0], [136, 134], [0, 134]], "dimer_nm": [0.2, 0.1]}],
+	  "steps": [{"polyline_nm": [[10, 0], [12, 134]]}],
+	  "defects": [{"at_nm": [40.6, 8.4], "kind": "bright", "height_nm": 0.15, "size_nm": 0.9, "class": "dangling bond"},
+	              {"at_nm": [75.7, 29.3], "kind": "dark", "size_nm": 0.6, "by_hand": true}]},`
+	src := strings.Replace(minimal, `"variants"`, sv+`"variants"`, 1)
+	d, err := Parse("sv.json", []byte(src))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.Survey == nil || len(d.Survey.Defects) != 2 || !d.Survey.Defects[1].ByHand || d.Survey.SkewDeg != 0.4 {
+		t.Fatalf("survey %+v", d.Survey)
+	}
+	data, err := Marshal(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	again, err := Parse("sv.json", data)
+	if err != nil || again.Survey == nil || again.Survey.Defects[0].Class != "dangling bond" || len(again.Survey.Steps[0].PolylineNM) != 2 {
+		t.Fatalf("reloaded survey %+v, %v", again.Survey, err)
+	}
+
+	bad := strings.Replace(minimal, `"variants"`, `"survey": {"offset_nm": [0, 1e9], "size_px": [0, 9000], "scale_nm_per_px": [0.1, -1],
+	  "steps": [{"polyline_nm": [[1, 1]]}], "defects": [{"at_nm": [1, 2], "kind": "grey", "size_nm": -1}]},"variants"`, 1)
+	_, err = Parse("sv.json", []byte(bad))
+	if err == nil {
+		t.Fatal("bad survey accepted")
+	}
+	for _, want := range []string{
+		`survey.offset_nm: [0, 1e+09] lies beyond`,
+		`survey.size_px[0]: 0 pixels`,
+		`survey.size_px[1]: 9000 pixels`,
+		`survey.scale_nm_per_px[1]: -1 is not a scale`,
+		`survey.steps[0].polyline_nm: has 1 points`,
+		`survey.defects[0].kind: "grey" is not "bright" or "dark"`,
+		`survey.defects[0].size_nm: -1 is not a size`,
+	} {
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("error %q\nlacks %q", err, want)
+		}
+	}
+}
+
+// TestSurveyFrames checks the survey's frames against hand arithmetic: a
+// survey turned by 90° at (100, 200) puts its point (1, 0) at (100, 201),
+// and pixel (10, 0) with skew 0 at 10 x its x scale.
+func TestSurveyFrames(t *testing.T) {
+	s := &Survey{OffsetNM: [2]float64{100, 200}, RotationDeg: 90, SizePx: [2]int{20, 10}, ScaleNMPerPx: [2]float64{0.5, 0.25}, SkewDeg: 30}
+	if p := s.ToField(r2.Point{X: 1, Y: 0}); math.Abs(p.X-100) > 1e-12 || math.Abs(p.Y-201) > 1e-12 {
+		t.Errorf("ToField(1, 0) = %v, want (100, 201)", p)
+	}
+	if q := s.FromField(s.ToField(r2.Point{X: 3, Y: -4})); math.Abs(q.X-3) > 1e-12 || math.Abs(q.Y+4) > 1e-12 {
+		t.Errorf("FromField(ToField(3, -4)) = %v", q)
+	}
+	// y pixel steps lean by the skew: (0, 4) px is 1 nm long at 30° from the normal.
+	if p := s.PixelToSurvey(0, 4); math.Abs(p.X-0.5) > 1e-12 || math.Abs(p.Y-math.Sqrt(3)/2) > 1e-12 {
+		t.Errorf("PixelToSurvey(0, 4) = %v, want (0.5, 0.866)", p)
+	}
+	if o := s.Outline(); len(o) != 4 || o[0] != (r2.Point{X: 100, Y: 200}) {
+		t.Errorf("outline %v", o)
+	}
+}
