@@ -350,10 +350,10 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 		tableColumn{title: rows[0][7], share: 8, right: true},
 		tableColumn{title: rows[0][8], share: 6, right: true},
 		tableColumn{title: rows[0][9], share: 6, right: true},
-		tableColumn{title: rows[0][10], share: 12, right: true},
+		tableColumn{title: rows[0][10], share: 11, right: true},
 		tableColumn{title: rows[0][11], share: 6, right: true},
 		tableColumn{title: rows[0][12], share: 7, right: true},
-		tableColumn{title: rows[0][13], share: 8, right: true},
+		tableColumn{title: rows[0][13], share: 10, right: true},
 	)
 	d.heading("Summary", 20)
 	t.start()
@@ -412,7 +412,7 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	inner := width - 2*margin
 	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
 	rows := compareRows(results)
-	cols := []float64{10, 8, 11, 7, 8, 6, 6, 8, 6, 6, 12, 6, 7, 8}
+	cols := []float64{10, 8, 11, 7, 8, 6, 6, 8, 6, 6, 11, 6, 7, 10}
 	colW := make([]float64, len(cols))
 	total := 0.0
 	for _, c := range cols {
