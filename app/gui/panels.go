@@ -681,20 +681,20 @@ type marksPanel struct {
 	terrStep     *widget.RadioGroup
 	terrStepItem *widget.FormItem
 	terrStepForm *widget.Form
-	terrX    *keyEntry
-	terrY    *keyEntry
-	terrMsg  *widget.Label
-	terrForm *fyne.Container
-	fidEmpty *widget.Label
-	name     *keyEntry
-	nameMsg  *widget.Label
-	field    *widget.Label
-	fieldW   *keyEntry
-	fieldH   *keyEntry
-	fieldMsg *widget.Label
-	shownW   float64 // the field size the entries were last filled with
-	shownH   float64
-	updating bool
+	terrX        *keyEntry
+	terrY        *keyEntry
+	terrMsg      *widget.Label
+	terrForm     *fyne.Container
+	fidEmpty     *widget.Label
+	name         *keyEntry
+	nameMsg      *widget.Label
+	field        *widget.Label
+	fieldW       *keyEntry
+	fieldH       *keyEntry
+	fieldMsg     *widget.Label
+	shownW       float64 // the field size the entries were last filled with
+	shownH       float64
+	updating     bool
 }
 
 func newMarksPanel(u *UI) *marksPanel {
