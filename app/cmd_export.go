@@ -50,7 +50,7 @@ Exit status 0 written, 2 anything else.`,
 			fs.StringVar(&fl.variant, "variant", "", "plan the variant `NAME` (default: the first)")
 			fs.StringVar(&fl.profile, "profile", "", "instrument profile: a file `P.json`, or a built-in preset rt or lt (default: rt)")
 			fs.Int64Var(&fl.seed, "seed", 1, "seed of the plan's random choices (same design, profile and seed: same plan)")
-			fl.gds.declare(fs)
+			fl.gds.declare(fs, true)
 			return func(env Env, args []string) int {
 				fl.set = map[string]bool{}
 				fs.Visit(func(f *flag.Flag) { fl.set[f.Name] = true })

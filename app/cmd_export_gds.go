@@ -16,18 +16,21 @@ import (
 	"dimerpath/lattice/design"
 )
 
-// gdsFlags are the flags that place the field on the chip and pick the
-// layer table (export to GDSII, import-gds).
+// gdsFlags are the flags that place the field on the chip (export to
+// GDSII, import-gds) and pick the layer table (export only: import-gds
+// names its layers with --layer).
 type gdsFlags struct {
 	offset   string
 	rotation float64
 	layers   string
 }
 
-func (g *gdsFlags) declare(fs *flag.FlagSet) {
+func (g *gdsFlags) declare(fs *flag.FlagSet, layerMap bool) {
 	fs.StringVar(&g.offset, "chip-offset", "0,0", "GDSII: chip position `X,Y` in nm of the field's lower-left corner")
 	fs.Float64Var(&g.rotation, "chip-rotation", 0, "GDSII: rotation in `DEG`rees, counter-clockwise, of the field on the chip")
-	fs.StringVar(&g.layers, "layers", "", "GDSII: layer map `MAP.json` over the default table (README \"GDSII layouts\")")
+	if layerMap {
+		fs.StringVar(&g.layers, "layers", "", "GDSII: layer map `MAP.json` over the default table (README \"GDSII layouts\")")
+	}
 }
 
 // onlyForGDS refuses the GDSII flags on an export to another format.

@@ -46,7 +46,7 @@ match, a name already used).`,
 			fs.StringVar(&fl.top, "top", "", "flatten the structure `CELL` (default: every top structure)")
 			fs.StringVar(&fl.marks, "marks", "", "map chip to field by two marks: `LABEL=FIDUCIAL,LABEL=FIDUCIAL`")
 			fs.StringVar(&fl.out, "o", "", "write the design to `OUT.json` (default: back to DESIGN.json)")
-			fl.gds.declare(fs)
+			fl.gds.declare(fs, false)
 			return func(env Env, args []string) int {
 				fl.set = map[string]bool{}
 				fs.Visit(func(f *flag.Flag) { fl.set[f.Name] = true })
