@@ -135,11 +135,7 @@ func drawSweepTime(c canvas, sw *planner.Sweep, area box) float64 {
 	ty := plotAxis{Scale: chartaxis.ForTimes(lo, hi, ax.Log), x0: area.y, w: plotH, vertical: true}
 	y := ty.at
 	c.group(tag{id: "sweep-time", class: "chart"}, penBar, noPaint)
-	for _, t := range ty.Marks {
-		c.polyline([]vec{{ax.x0, y(t)}, {ax.x0 + ax.w, y(t)}}, false, penGrid, noPaint, tag{})
-		c.text(vec{ax.x0 - 1.5*u, y(t) + textHeight(c, fontAxis)/2}, clock(t), fontAxis, anchorEnd, tag{})
-	}
-	c.polyline([]vec{{ax.x0, area.y}, {ax.x0, area.y + plotH}}, false, penAxis, noPaint, tag{})
+	drawSweepYAxis(c, ax, ty, clock)
 	if len(pts) > 0 {
 		// The band: P90 left to right, then P10 back.
 		band := make([]vec, 0, 2*len(pts))
@@ -216,11 +212,7 @@ func drawSweepYield(c canvas, sw *planner.Sweep, area box) float64 {
 	}
 	y := py.at
 	c.group(tag{id: "sweep-yield", class: "chart"}, penBar, noPaint)
-	for _, t := range ys.Marks {
-		c.polyline([]vec{{ax.x0, y(t)}, {ax.x0 + ax.w, y(t)}}, false, penGrid, noPaint, tag{})
-		c.text(vec{ax.x0 - 1.5*u, y(t) + textHeight(c, fontAxis)/2}, yLabel(t), fontAxis, anchorEnd, tag{})
-	}
-	c.polyline([]vec{{ax.x0, area.y}, {ax.x0, area.y + plotH}}, false, penAxis, noPaint, tag{})
+	drawSweepYAxis(c, ax, py, yLabel)
 	line := make([]vec, len(pts))
 	for i, p := range pts {
 		line[i] = vec{ax.at(p.x), y(value(p.plan))}
@@ -238,6 +230,18 @@ func drawSweepYield(c canvas, sw *planner.Sweep, area box) float64 {
 	h += textHeight(c, fontAxis) + 3*u
 	c.endGroup()
 	return h
+}
+
+// drawSweepYAxis draws a chart's vertical axis ty against the
+// horizontal ax: a grid line across the plot and a label (by label) at
+// each mark, and the axis line.
+func drawSweepYAxis(c canvas, ax, ty plotAxis, label func(float64) string) {
+	u := c.mm()
+	for _, t := range ty.Marks {
+		c.polyline([]vec{{ax.x0, ty.at(t)}, {ax.x0 + ax.w, ty.at(t)}}, false, penGrid, noPaint, tag{})
+		c.text(vec{ax.x0 - 1.5*u, ty.at(t) + textHeight(c, fontAxis)/2}, label(t), fontAxis, anchorEnd, tag{})
+	}
+	c.polyline([]vec{{ax.x0, ty.x0}, {ax.x0, ty.x0 + ty.w}}, false, penAxis, noPaint, tag{})
 }
 
 // sweepCharts are the report's charts in order, with their titles.
