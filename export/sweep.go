@@ -272,17 +272,10 @@ func WriteSweepPDF(ctx context.Context, w io.Writer, sw *planner.Sweep, opt Opti
 	d.page()
 	d.c.text(vec{d.left(), d.y + 8}, title, font{size: 20, bold: true}, anchorStart, tag{})
 	d.y += 13
-	date := "(not given)"
-	if !opt.Date.IsZero() {
-		date = opt.Date.Format("Monday 2 January 2006")
-	}
+	date := printedDate(opt)
 	kv := [][2]string{{"Design", sw.Design}, {"Variant", sw.Variant}, {"Instrument profile", sw.Profile},
 		{"Parameter", sweepParamText(sw)}, {"Seed", fmt.Sprint(sw.Seed)}, {"Date", date}}
-	if opt.Generator != "" {
-		kv = append(kv, [2]string{"Planned with", opt.Generator})
-	}
-	d.keyValues(kv, 0.28)
-	d.cautionBox()
+	reportFacts(d, opt, kv)
 	for _, warn := range sw.Warnings {
 		d.para("Note: "+warn, fontBody)
 	}
