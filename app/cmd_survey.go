@@ -152,7 +152,7 @@ func surveyInto(env Env, an *survey.Analysis, image, path, at string, rotation f
 			old.RotationDeg = rotation
 		}
 	}
-	d.Survey = laySurvey(l, an, old, relativeTo(out, image), nil)
+	d.Survey = an.Lay(l, old, relativeTo(out, image), nil)
 	if err := d.Validate(); err != nil {
 		return fail("%v", err)
 	}
