@@ -41,9 +41,8 @@ file and renamed into place, also when some variant could not be planned
 			rep.declare(fs, "also write the report to `FILE` (.pdf or .svg)")
 			return func(env Env, args []string) int {
 				// A bad report name is refused before anything is read.
-				opt, err := rep.options([]export.Format{export.FormatPDF, export.FormatSVG})
-				if err != nil {
-					fmt.Fprintf(env.Stderr, "dimerpath compare: %v\n", err)
+				opt, ok := rep.reportOptions(env, "compare")
+				if !ok {
 					return ExitFailure
 				}
 				run, code := startPlanning(env, "compare", args, *profile, "dimerpath compare DESIGN.json [--profile P.json] [-o REPORT.pdf|.svg]")
@@ -61,12 +60,10 @@ file and renamed into place, also when some variant could not be planned
 				fmt.Fprintln(env.Stdout, planner.Caution)
 				fmt.Fprintln(env.Stdout)
 				printComparison(env.Stdout, results)
-				if rep.out != "" {
-					if err := export.WriteComparisonFile(ctx, rep.out, results, opt); err != nil {
-						fmt.Fprintf(env.Stderr, "dimerpath compare: %v\n", err)
-						return ExitFailure
-					}
-					fmt.Fprintf(env.Stderr, "dimerpath compare: wrote %s\n", rep.out)
+				if !rep.writeReport(env, "compare", func(path string) error {
+					return export.WriteComparisonFile(ctx, path, results, opt)
+				}) {
+					return ExitFailure
 				}
 				failed := false
 				for _, r := range results {

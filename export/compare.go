@@ -7,7 +7,6 @@ import (
 	"math"
 	"strings"
 
-	"dimerpath/internal/atomicfile"
 	"dimerpath/planner"
 )
 
@@ -47,6 +46,10 @@ func checkResults(rs []VariantResult) (string, error) {
 	}
 	return design, nil
 }
+
+// compareShares are the widths of compareRows' columns, in shares of
+// the table's width (the PDF and the SVG alike).
+var compareShares = []float64{10, 8, 11, 7, 8, 6, 6, 8, 6, 6, 7, 8, 9}
 
 // compareRows returns the comparison table: a header and one row per
 // variant.
@@ -320,32 +323,7 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 	d.keyValues(kv, 0.28)
 	d.cautionBox()
 
-	rows := compareRows(results)
-	t := newTable(d, font{size: 7.5},
-		tableColumn{title: rows[0][0], share: 10},
-		tableColumn{title: rows[0][1], share: 8, right: true},
-		tableColumn{title: rows[0][2], share: 11, right: true},
-		tableColumn{title: rows[0][3], share: 7, right: true},
-		tableColumn{title: rows[0][4], share: 8, right: true},
-		tableColumn{title: rows[0][5], share: 6, right: true},
-		tableColumn{title: rows[0][6], share: 6, right: true},
-		tableColumn{title: rows[0][7], share: 8, right: true},
-		tableColumn{title: rows[0][8], share: 6, right: true},
-		tableColumn{title: rows[0][9], share: 6, right: true},
-		tableColumn{title: rows[0][10], share: 7, right: true},
-		tableColumn{title: rows[0][11], share: 8, right: true},
-		tableColumn{title: rows[0][12], share: 9, right: true},
-	)
-	d.heading("Summary", 20)
-	t.start()
-	for _, r := range rows[1:] {
-		if len(r) == 2 {
-			t.spanRow(r[0], r[1]) // a refused variant: its reason across the row
-			continue
-		}
-		t.row(r...)
-	}
-	t.end()
+	summaryTable(d, compareRows(results), compareShares)
 	if diffs := differenceRows(results); len(diffs) > 0 {
 		d.heading("What differs from "+results[0].Variant, 20)
 		dt := newTable(d, font{size: 7.5},
@@ -392,42 +370,9 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	const width, margin = 210.0, 12.0
 	inner := width - 2*margin
 	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
-	rows := compareRows(results)
-	cols := []float64{10, 8, 11, 7, 8, 6, 6, 8, 6, 6, 7, 8, 9}
-	colW := make([]float64, len(cols))
-	total := 0.0
-	for _, c := range cols {
-		total += c
-	}
-	for i, c := range cols {
-		colW[i] = inner * c / total
-	}
-	tableFont := font{size: 6.5}
-	// Row heights: wrapped cells (a refused variant's reason spans the row).
-	cells := make([][][]string, len(rows))
-	heights := make([]float64, len(rows))
-	for i, r := range rows {
-		cells[i] = make([][]string, len(r))
-		n := 1
-		for j, s := range r {
-			cw := colW[j]
-			if len(r) == 2 && j == 1 {
-				cw = inner - colW[0]
-			}
-			f := tableFont
-			if i == 0 {
-				f.bold = true
-			}
-			cells[i][j] = wrapText(m, s, f, cw-2)
-			n = max(n, len(cells[i][j]))
-		}
-		heights[i] = float64(n)*3.2 + 1.6
-	}
+	table := layoutSVGTable(m, compareRows(results), compareShares, inner)
 	charts := []func(c canvas, rs []VariantResult, area box) float64{drawStackedBreakdown, drawSpreadCompare, drawYieldCompare}
-	y := 22.0
-	for _, h := range heights {
-		y += h
-	}
+	y := table.below(22.0)
 	y += 6
 	for _, ch := range charts {
 		y += 8 + ch(m, results, box{margin, 0, inner, 0}) + 4
@@ -435,83 +380,22 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	caution := wrapText(m, planner.Caution, fontCaution, inner)
 	height := y + float64(len(caution))*4.2 + 8
 
-	c := newSVGCanvas(w, 1)
-	c.raw(`<?xml version="1.0" encoding="UTF-8"?>` + "\n")
-	c.buf = append(c.buf, `<svg xmlns="http://www.w3.org/2000/svg" version="1.1"`...)
-	c.attrStr("viewBox", fmt.Sprintf("0 0 %s %s", fnum(width), fnum(height)))
-	c.attrStr("width", fnum(width)+"mm")
-	c.attrStr("height", fnum(height)+"mm")
-	c.attrStr("font-family", svgFontFamily)
-	c.buf = append(c.buf, ">\n"...)
-	c.flushBuf()
-	title := "Variant comparison: " + design
-	c.raw("<title>" + string(appendEscaped(nil, title)) + "</title>\n")
-	c.raw("<desc>" + string(appendEscaped(nil, planner.Caution)) + "</desc>\n")
-	c.rect(box{0, 0, width, height}, noPen, solid(1), tag{id: "background"})
-	c.text(vec{margin, 12}, title, font{size: 13, bold: true}, anchorStart, tag{id: "title"})
-	if !opt.Date.IsZero() {
-		c.text(vec{width - margin, 12}, opt.Date.Format("2 January 2006"), fontBody, anchorEnd, tag{id: "date"})
-	}
-	y = 18
-	c.group(tag{id: "summary", class: "table"}, noPen, noPaint)
-	for i, r := range rows {
-		if i == 0 {
-			c.rect(box{margin, y, inner, heights[i]}, noPen, solid(0.88), tag{})
-		}
-		x := margin
-		for j := range r {
-			f := tableFont
-			if i == 0 || j == 0 {
-				f.bold = true
-			}
-			right := j > 0 && len(r) > 2
-			for k, l := range cells[i][j] {
-				yy := y + 0.8 + float64(k)*3.2 + 2.5
-				if right {
-					c.text(vec{x + colW[j] - 1, yy}, l, f, anchorEnd, tag{})
-				} else {
-					c.text(vec{x + 1, yy}, l, f, anchorStart, tag{})
-				}
-			}
-			x += colW[j]
-		}
-		y += heights[i]
-		c.polyline([]vec{{margin, y}, {margin + inner, y}}, false, pen{width: 0.12, grey: 0.55}, noPaint, tag{})
-	}
-	c.endGroup()
+	c := startSVGReport(w, width, height, margin, "Variant comparison: "+design, 13, opt.Date)
+	y = table.draw(c, margin, 18, inner)
 	y += 6
 	for i, ch := range charts {
 		c.text(vec{margin, y + 4}, []string{"Write time by kind", "Spread of the write time", "Dopant yield"}[i], font{size: 10, bold: true}, anchorStart, tag{})
 		y += 8
 		y += ch(c, results, box{margin, y, inner, 0}) + 4
 	}
-	c.group(tag{id: "caution", class: "caution"}, noPen, noPaint)
-	for _, l := range caution {
-		y += 4.2
-		c.text(vec{margin, y}, l, fontCaution, anchorStart, tag{})
-	}
-	c.endGroup()
-	c.hatchDefs()
-	c.raw("</svg>\n")
-	return c.err()
+	return endSVGReport(c, caution, margin, y)
 }
 
 // WriteComparisonFile writes the comparison report to path, PDF or SVG
 // by its extension (any other is an error wrapping ErrFormat), through a
 // temporary file renamed into place (see WriteFile).
 func WriteComparisonFile(ctx context.Context, path string, results []VariantResult, opt Options) error {
-	f, err := FormatFromPath(path)
-	if err != nil {
-		return err
-	}
-	if f != FormatPDF && f != FormatSVG {
-		return fmt.Errorf("%s: %w: a comparison report is .pdf or .svg", path, ErrFormat)
-	}
-	return atomicfile.Write(path, 0o644, func(w io.Writer) error {
-		w = wrapWriter(w)
-		if f == FormatPDF {
-			return WriteComparisonPDF(ctx, w, results, opt)
-		}
-		return WriteComparisonSVG(w, results, opt)
-	})
+	return writeReportFile(path, "a comparison report",
+		func(w io.Writer) error { return WriteComparisonPDF(ctx, w, results, opt) },
+		func(w io.Writer) error { return WriteComparisonSVG(w, results, opt) })
 }

@@ -373,20 +373,7 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 	declared := make(map[[2]string]int, len(v.TunnelGaps)) // a gap's regions, in name order
 	for gi, g := range v.TunnelGaps {
 		gp := fmt.Sprintf("%s.tunnel_gaps[%d]", path, gi)
-		pair := [2]string{min(g.A, g.B), max(g.A, g.B)}
-		if j, dup := declared[pair]; dup {
-			ps.add(gp, "the gap between %q and %q is also declared as tunnel_gaps[%d]", g.A, g.B, j)
-		} else {
-			declared[pair] = gi
-		}
-		for _, end := range []struct{ field, name string }{{"a", g.A}, {"b", g.B}} {
-			if _, ok := names[end.name]; !ok {
-				ps.add(gp+"."+end.field, "%q names no region of variant %q", end.name, v.Name)
-			}
-		}
-		if g.A == g.B && g.A != "" {
-			ps.add(gp, "a gap needs two different regions, not %q twice", g.A)
-		}
+		validatePair(ps, declared, regionPair{path: gp, list: "tunnel_gaps", index: gi, a: g.A, b: g.B, noun: "gap", of: "between"}, names, v.Name)
 		if !(g.MinNM >= 0 && g.MinNM <= MaxFieldNM) {
 			ps.add(gp+".min_nm", "%g must be between 0 (the rule's) and %g nm", g.MinNM, MaxFieldNM)
 		}
@@ -403,23 +390,40 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 	coupled := make(map[[2]string]int, len(v.Couplings))
 	for ci, c := range v.Couplings {
 		cp := fmt.Sprintf("%s.couplings[%d]", path, ci)
-		pair := [2]string{min(c.A, c.B), max(c.A, c.B)}
-		if j, dup := coupled[pair]; dup {
-			ps.add(cp, "the coupling of %q and %q is also declared as couplings[%d]", c.A, c.B, j)
-		} else {
-			coupled[pair] = ci
-		}
-		for _, end := range []struct{ field, name string }{{"a", c.A}, {"b", c.B}} {
-			if _, ok := names[end.name]; !ok {
-				ps.add(cp+"."+end.field, "%q names no region of variant %q", end.name, v.Name)
-			}
-		}
-		if c.A == c.B && c.A != "" {
-			ps.add(cp, "a coupling needs two different regions, not %q twice", c.A)
-		}
+		validatePair(ps, coupled, regionPair{path: cp, list: "couplings", index: ci, a: c.A, b: c.B, noun: "coupling", of: "of"}, names, v.Name)
 		if !(c.ToleranceNM > 0 && c.ToleranceNM <= MaxFieldNM) {
 			ps.add(cp+".tolerance_nm", "%g must be more than 0 and at most %g nm", c.ToleranceNM, MaxFieldNM)
 		}
+	}
+}
+
+// regionPair is one of a variant's pairs of regions, a tunnel gap or a
+// coupling: its path, its list's field and index, its two ends, and the
+// words that name it in messages ("gap" "between", "coupling" "of").
+type regionPair struct {
+	path, list string
+	index      int
+	a, b       string
+	noun, of   string
+}
+
+// validatePair adds the problems of a pair of regions: declared twice
+// (seen holds the pairs so far, ends in name order, with their index), an
+// end that names no region of the variant, or the same region twice.
+func validatePair(ps *problems, seen map[[2]string]int, p regionPair, names map[string]int, variant string) {
+	key := [2]string{min(p.a, p.b), max(p.a, p.b)}
+	if j, dup := seen[key]; dup {
+		ps.add(p.path, "the %s %s %q and %q is also declared as %s[%d]", p.noun, p.of, p.a, p.b, p.list, j)
+	} else {
+		seen[key] = p.index
+	}
+	for _, end := range []struct{ field, name string }{{"a", p.a}, {"b", p.b}} {
+		if _, ok := names[end.name]; !ok {
+			ps.add(p.path+"."+end.field, "%q names no region of variant %q", end.name, variant)
+		}
+	}
+	if p.a == p.b && p.a != "" {
+		ps.add(p.path, "a %s needs two different regions, not %q twice", p.noun, p.a)
 	}
 }
 
