@@ -17,6 +17,9 @@ type SceneOptions struct {
 	SurveyOpacity float64
 }
 
+// MaxStrayMarks caps the stray sites of a plan drawn on the lattice.
+const MaxStrayMarks = 2000
+
 // Scene returns what the lattice view draws for the current variant.
 func (s *Session) Scene(o SceneOptions) *render.Scene {
 	sc := &render.Scene{Surface: s.surf}
@@ -54,6 +57,17 @@ func (s *Session) Scene(o SceneOptions) *render.Scene {
 	if o.Findings {
 		for i, f := range s.findings {
 			sc.Marks = append(sc.Marks, render.Mark{At: f.At, Error: f.Error, Selected: i == s.chosen})
+		}
+		// The plan's coverage errors at their places: each site outside
+		// every region that clears above the stray limit (the first
+		// MaxStrayMarks; the plan panel and files name them all).
+		if p, stale := s.Plan(); p != nil && !stale {
+			for i, st := range p.Coverage.StraySites {
+				if i == MaxStrayMarks {
+					break
+				}
+				sc.Marks = append(sc.Marks, render.Mark{At: st.At, Error: true})
+			}
 		}
 	}
 	sc.Preview = s.Preview()
