@@ -22,8 +22,9 @@ const (
 	// maxSegmentRows is the most rows of the segment table: beyond it a
 	// row covers a range of consecutive segments.
 	maxSegmentRows = 300
-	// maxListedStrokes is the most strokes the stroke list prints one a
-	// row (about 85 pages); beyond it the list is left to the files.
+	// maxListedStrokes is the most strokes the action list prints one a
+	// row (about 85 pages); beyond it the list prints ranges of segments
+	// as the segment table does, and every action is left to the files.
 	maxListedStrokes = 5000
 	// maxDrawnStrokes is the most strokes the overview draws one by one;
 	// beyond it each segment is drawn as the area its strokes cover, and
@@ -194,10 +195,16 @@ func mergeGroups(into, add []condGroup) []condGroup {
 	return into
 }
 
-// pdfStrokeListSummary stands for the list of every action of a plan
-// with more than maxListedStrokes strokes: what the list would hold, and
-// where it is.
-func pdfStrokeListSummary(d *pdfDoc, p *planner.Plan) {
+// pdfActionRanges prints the list of every action of a plan with more
+// than maxListedStrokes strokes in order, summarised: each action between
+// the segments (conditioning, survey, dose, anneal, …) on a row of its
+// own with a box to tick, as the full list has it, and the segments'
+// actions in ranges of up to segmentBlock consecutive segments of one
+// lithography step, the segment table's ranges: what the row's segments
+// do (registrations, strokes by their paper numbers, changes of
+// conditions, verification images, …) and when. Every action is still in
+// the action CSV and the plan JSON. O(actions).
+func pdfActionRanges(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int) error {
 	d.heading("Every action, in order", 20)
 	kinds := map[string]int{}
 	var order []string
@@ -213,12 +220,124 @@ func pdfStrokeListSummary(d *pdfDoc, p *planner.Plan) {
 	for _, name := range order {
 		parts = append(parts, thousands(kinds[name])+" "+name)
 	}
-	d.para(fmt.Sprintf("This plan has %s strokes (%s) and %s actions: a list of every one would run to thousands of pages, so it is "+
-		"not printed. The action CSV (dimerpath export DESIGN.json -o PLAN.csv) lists every action in writing order, one a row, with "+
-		"each stroke's number on paper (stroke_number), its id, its start and end, its conditions and its whole path; the plan JSON "+
-		"holds the same. The segment table above gives each range of segments its stroke numbers, and the figures below number the "+
-		"strokes of each atomic-precision area shown.",
-		thousands(len(p.Strokes)), strings.Join(parts, ", "), thousands(len(p.Actions))), fontBody)
+	k := segmentBlock(len(p.Segments))
+	d.para(fmt.Sprintf("This plan has %s strokes (%s) and %s actions: a list of every one would run to thousands of pages. Below, "+
+		"each action between the segments has a row of its own, and each row of the segments' actions covers up to %d consecutive "+
+		"segments, as the segment table does: its registrations, the paper numbers of its strokes, its changes of conditions and "+
+		"verification images. The action CSV (dimerpath export DESIGN.json -o PLAN.csv) lists every action in writing order, one a row, "+
+		"with each stroke's number on paper (stroke_number), its id, its start and end, its conditions and its whole path; the plan JSON "+
+		"holds the same.",
+		thousands(len(p.Strokes)), strings.Join(parts, ", "), thousands(len(p.Actions)), k), fontBody)
+	t := newTable(d, font{size: 7.5},
+		tableColumn{title: "Done", share: 6},
+		tableColumn{title: "Segments", share: 12, right: true},
+		tableColumn{title: "Actions", share: 58},
+		tableColumn{title: "Starts at (h:mm:ss)", share: 12, right: true},
+		tableColumn{title: "Duration (h:mm:ss)", share: 12, right: true},
+	)
+	t.start()
+	tick := func(top float64) { d.tickBox(t.colX(0)+1.6, top+1.2, 3.6) }
+	// The range being gathered: its segments, its actions by kind (in
+	// the order they first come), its strokes' paper numbers, its times.
+	var (
+		segs       []int
+		counts     = map[planner.ActionKind]int{}
+		kindOrder  []planner.ActionKind
+		fids       = map[string]int{}
+		fidOrder   []string
+		nums       []int
+		from, upto float64
+	)
+	flush := func() {
+		if len(segs) == 0 {
+			return
+		}
+		var what []string
+		strokesSaid := false
+		for _, kind := range kindOrder {
+			n := counts[kind]
+			switch kind {
+			case planner.ActRegister:
+				var on []string
+				for _, f := range fidOrder {
+					on = append(on, fmt.Sprintf("%s ×%s", f, thousands(fids[f])))
+				}
+				what = append(what, "register on "+strings.Join(on, ", "))
+			case planner.ActWrite, planner.ActDwell:
+				if strokesSaid {
+					continue // written strokes and dwell points share one list
+				}
+				strokesSaid = true
+				what = append(what, "write "+plural("stroke", len(nums))+" "+numberRanges(nums))
+			case planner.ActSwitch:
+				what = append(what, thousands(n)+" "+plural("change", n)+" of conditions")
+			case planner.ActVerify:
+				what = append(what, thousands(n)+" "+plural("verification image", n))
+			default:
+				what = append(what, fmt.Sprintf("%s ×%s", kind, thousands(n)))
+			}
+		}
+		top, _ := t.row("", numberRanges(rangeSegments(segs)), capitalise(strings.Join(what, "; ")), clock(from), clock(upto-from))
+		tick(top)
+		segs, nums, kindOrder, fidOrder = segs[:0], nums[:0], kindOrder[:0], fidOrder[:0]
+		clear(counts)
+		clear(fids)
+	}
+	for i := range p.Actions {
+		if i%2000 == 0 {
+			if err := ctx.Err(); err != nil {
+				return err
+			}
+		}
+		a := &p.Actions[i]
+		if a.Segment < 0 || a.Segment >= len(p.Segments) {
+			// Between the segments: a row of its own.
+			flush()
+			what := a.Note
+			if what == "" {
+				what = string(a.Kind)
+			}
+			top, _ := t.row("", "–", capitalise(what), clock(a.StartS), clock(a.DurationS))
+			tick(top)
+			continue
+		}
+		if n := len(segs); n == 0 || segs[n-1] != a.Segment {
+			if n == k || (n > 0 && p.Segments[segs[0]].Step != p.Segments[a.Segment].Step) {
+				flush()
+			}
+			if len(segs) == 0 {
+				from = a.StartS
+			}
+			segs = append(segs, a.Segment)
+		}
+		upto = a.StartS + a.DurationS
+		if a.Kind == planner.ActMove {
+			continue // implied by the next stroke's start, as in the full list
+		}
+		if counts[a.Kind] == 0 {
+			kindOrder = append(kindOrder, a.Kind)
+		}
+		counts[a.Kind]++
+		switch a.Kind {
+		case planner.ActRegister:
+			s := &p.Segments[a.Segment]
+			on := s.Fiducial
+			if s.Registration == planner.RegLocal || on == "" {
+				on = "local"
+			}
+			if fids[on] == 0 {
+				fidOrder = append(fidOrder, on)
+			}
+			fids[on]++
+		case planner.ActWrite, planner.ActDwell:
+			if a.Stroke >= 0 && a.Stroke < len(numbers) {
+				nums = append(nums, numbers[a.Stroke])
+			}
+		}
+	}
+	flush()
+	t.end()
+	return nil
 }
 
 // drawSegmentAreas draws, in place of the strokes and moves of a plan

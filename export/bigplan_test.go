@@ -43,7 +43,7 @@ func TestLargePlanIsSummarisedOnPaper(t *testing.T) {
 	k := segmentBlock(len(p.Segments))
 	for _, want := range []string{
 		"This plan has 350 segments", "each row below covers up to " + strconv.Itoa(k) + " consecutive segments",
-		"This plan has 70 000 strokes", "action CSV", "each segment is drawn as the area its strokes cover",
+		"This plan has 70 000 strokes", "each row of the segments' actions covers up to " + strconv.Itoa(k) + " consecutive", "action CSV", "each segment is drawn as the area its strokes cover",
 	} {
 		if !strings.Contains(flat, want) {
 			t.Errorf("the printed plan lacks %q", want)
@@ -52,10 +52,47 @@ func TestLargePlanIsSummarisedOnPaper(t *testing.T) {
 	if pages := strings.Count(text, "\f"); pages > 60 { // listed in full: some 1 200 pages
 		t.Errorf("%d pages for a summarised plan", pages)
 	}
-	// The rows' stroke ranges cover every paper number exactly once.
-	table := text[strings.Index(text, "This plan has 350 segments"):strings.Index(text, "Every action, in order")]
+	// The rows' stroke ranges cover every paper number exactly once, in
+	// the segment table and in the summarised action list.
+	listAt := strings.Index(text, "Every action, in order")
+	for name, part := range map[string]string{
+		"segment table": text[strings.Index(text, "This plan has 350 segments"):listAt],
+		"action list":   text[listAt:],
+	} {
+		covered := strokeNumbersIn(part)
+		if len(covered) != len(p.Strokes) || covered[0] != 1 || covered[len(covered)-1] != len(p.Strokes) {
+			t.Errorf("the %s's ranges list %d stroke numbers from %v, want 1 to %d once each", name, len(covered), covered[:min(3, len(covered))], len(p.Strokes))
+		}
+		for i := 1; i < len(covered); i++ {
+			if covered[i] != covered[i-1]+1 {
+				t.Errorf("%s: stroke number %d listed after %d", name, covered[i], covered[i-1])
+				break
+			}
+		}
+	}
+	if !strings.Contains(flat, "Register on ") || !strings.Contains(flat, "verification images") {
+		t.Errorf("the summarised action list does not say what the segments do")
+	}
+	// Each range row's last segment ends when the table says; the last
+	// row ends at the plan's end.
+	if !strings.Contains(flat, clock(p.Segments[len(p.Segments)-1].EndS)) {
+		t.Errorf("the table lacks the last segment's end %s", clock(p.Segments[len(p.Segments)-1].EndS))
+	}
+
+	var svg bytes.Buffer
+	if err := WriteSVG(&svg, p, Options{}); err != nil {
+		t.Fatal(err)
+	}
+	if n := strings.Count(svg.String(), `id="stroke-`); n != len(p.Strokes) {
+		t.Errorf("the SVG has %d strokes, want all %d", n, len(p.Strokes))
+	}
+}
+
+// strokeNumbersIn returns the paper numbers that the "strokes 1–38, 40"
+// ranges of a printed text name, sorted.
+func strokeNumbersIn(text string) []int {
 	var covered []int
-	for _, m := range regexp.MustCompile(`strokes ([0-9][0-9–, ]*)`).FindAllStringSubmatch(table, -1) {
+	for _, m := range regexp.MustCompile(`strokes ([0-9][0-9–, ]*)`).FindAllStringSubmatch(text, -1) {
 		for _, part := range strings.Split(m[1], ",") {
 			part = strings.TrimSpace(part)
 			a, b, isRange := strings.Cut(part, "–")
@@ -74,28 +111,7 @@ func TestLargePlanIsSummarisedOnPaper(t *testing.T) {
 		}
 	}
 	sort.Ints(covered)
-	if len(covered) != len(p.Strokes) || covered[0] != 1 || covered[len(covered)-1] != len(p.Strokes) {
-		t.Errorf("the segment ranges list %d stroke numbers from %v, want 1 to %d once each", len(covered), covered[:min(3, len(covered))], len(p.Strokes))
-	}
-	for i := 1; i < len(covered); i++ {
-		if covered[i] != covered[i-1]+1 {
-			t.Errorf("stroke number %d listed after %d", covered[i], covered[i-1])
-			break
-		}
-	}
-	// Each range row's last segment ends when the table says; the last
-	// row ends at the plan's end.
-	if !strings.Contains(flat, clock(p.Segments[len(p.Segments)-1].EndS)) {
-		t.Errorf("the table lacks the last segment's end %s", clock(p.Segments[len(p.Segments)-1].EndS))
-	}
-
-	var svg bytes.Buffer
-	if err := WriteSVG(&svg, p, Options{}); err != nil {
-		t.Fatal(err)
-	}
-	if n := strings.Count(svg.String(), `id="stroke-`); n != len(p.Strokes) {
-		t.Errorf("the SVG has %d strokes, want all %d", n, len(p.Strokes))
-	}
+	return covered
 }
 
 func TestOrdinal(t *testing.T) {

@@ -23,8 +23,7 @@ func pdfStrokeList(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []in
 		return nil
 	}
 	if len(p.Strokes) > maxListedStrokes {
-		pdfStrokeListSummary(d, p)
-		return nil
+		return pdfActionRanges(ctx, d, p, numbers)
 	}
 	d.heading("Every action, in order", 20)
 	d.para("Every action of the session, in order, with a box to tick: the process actions between the lithography, and for each "+
