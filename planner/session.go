@@ -273,9 +273,16 @@ func (b *builder) chooseMargin(ctx context.Context, steps []*stepWork, cps []cou
 	var best tolResult
 	var bestIndex []int
 	bestAdj := -1.0
+	// The segmentation and loads last made: when the search ends on the
+	// margin it chose, they are those of that margin (the segmenter's
+	// solve depends only on the margin), and are not made again.
+	lastMargin := math.NaN()
+	var lastSegs []segLoad
+	var lastPairs []pairLoad
 	for try := 0; try < maxMargins; try++ {
 		segmentAll(steps, margin)
 		segs, pairs, index := b.loads(steps, cps)
+		lastMargin, lastSegs, lastPairs = margin, segs, pairs
 		var leave []bool
 		for _, st := range steps {
 			if st.sg == nil || st.sg.n == 0 {
@@ -303,9 +310,15 @@ func (b *builder) chooseMargin(ctx context.Context, steps []*stepWork, cps []cou
 		}
 		margin *= 1.25
 	}
-	segmentAll(steps, bestMargin)
+	if bestMargin != lastMargin {
+		segmentAll(steps, bestMargin)
+		lastSegs, lastPairs = nil, nil
+	}
 	if len(search.rate) < len(draws.rate) {
-		segs, pairs, index := b.loads(steps, cps)
+		segs, pairs, index := lastSegs, lastPairs, bestIndex
+		if segs == nil {
+			segs, pairs, index = b.loads(steps, cps)
+		}
 		res, err := pInTolerance(ctx, segs, pairs, draws, nil)
 		if err != nil {
 			return 0, tolResult{}, nil, err
