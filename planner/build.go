@@ -393,7 +393,18 @@ func (b *builder) checkTolerances() error {
 // makeStrokes generates every region's strokes and returns the plan's
 // windows.
 func (b *builder) makeStrokes() []Window {
-	var windows []Window
+	// Room for the windows and their strokes at once: 10^6 windows grown
+	// by doubling leave some hundreds of MB of copies behind.
+	nwin := 0
+	for _, r := range b.regions {
+		nwin += len(r.windows)
+	}
+	var windows []Window // nil without windows, as before
+	if nwin > 0 {
+		windows = make([]Window, 0, nwin)
+	}
+	b.placed = slices.Grow(b.placed, nwin)
+	b.strokes = slices.Grow(b.strokes, nwin)
 	surf := b.lay.Surface
 	for _, r := range b.regions {
 		for _, w := range r.windows {
@@ -525,6 +536,9 @@ func (b *builder) splitLong() error {
 	m := b.model
 	rate := m.r0 * m.rateMul
 	var out []Stroke
+	if len(b.strokes) > 0 {
+		out = make([]Stroke, 0, len(b.strokes))
+	}
 	pieces := float64(len(b.strokes))
 	for _, s := range b.strokes {
 		err, approach := m.errLocal, 0.0

@@ -365,6 +365,14 @@ func (b *builder) features(st *stepWork) []feature {
 // returns it with its steps and the time model of the random parts.
 func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline, []Step, timeModel) {
 	var tl timeline
+	// Room for every action at once (Build's bound on their count): a
+	// slice grown by doubling to 2·10^6 actions holds some 450 MB of
+	// copies on the way.
+	nseg := 0
+	for _, st := range steps {
+		nseg += len(st.starts)
+	}
+	tl.actions = make([]Action, 0, 2*len(b.strokes)+6*nseg+2*len(b.regions)*len(steps)+16)
 	var out []Step
 	prof := &b.prof
 	ses := &prof.Session
