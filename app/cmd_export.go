@@ -50,7 +50,7 @@ Exit status 0 written, 2 anything else.`,
 			fs.StringVar(&fl.variant, "variant", "", "plan the variant `NAME` (default: the first)")
 			fs.StringVar(&fl.profile, "profile", "", "instrument profile: a file `P.json`, or a built-in preset rt or lt (default: rt)")
 			fs.Int64Var(&fl.seed, "seed", 1, "seed of the plan's random choices (same design, profile and seed: same plan)")
-			fl.gds.declare(fs)
+			fl.gds.declare(fs, true)
 			return func(env Env, args []string) int {
 				fl.set = map[string]bool{}
 				fs.Visit(func(f *flag.Flag) { fl.set[f.Name] = true })
@@ -69,10 +69,7 @@ type exportFlags struct {
 }
 
 func runExport(env Env, args []string, fl exportFlags) int {
-	fail := func(format string, a ...any) int {
-		fmt.Fprintf(env.Stderr, "dimerpath export: "+format+"\n", a...)
-		return ExitFailure
-	}
+	fail := failer(env, "export")
 	if len(args) != 1 {
 		return fail("want one design or plan file, got %d (dimerpath export --help)", len(args))
 	}
@@ -121,17 +118,10 @@ func runExport(env Env, args []string, fl exportFlags) int {
 
 	fmt.Fprintln(env.Stderr, planner.Caution)
 	if err := export.WriteFile(ctx, fl.report.out, p, opt); err != nil {
-		if errors.Is(err, context.Canceled) {
-			return fail("interrupted: %s was not written", fl.report.out)
-		}
-		return fail("%v", err)
-	}
-	size := ""
-	if st, err := os.Stat(fl.report.out); err == nil {
-		size = fmt.Sprintf(", %d bytes", st.Size())
+		return writeFailed(fail, fl.report.out, err)
 	}
 	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, expected %s%s)\n",
-		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), units.Duration(p.TotalS), size)
+		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), units.Duration(p.TotalS), sizeNote(fl.report.out))
 	return coverageExit(env, "export", p)
 }
 
@@ -188,8 +178,6 @@ func (r *reportFlags) declare(fs *flag.FlagSet, outHelp string) {
 	fs.StringVar(&r.date, "date", "", "date printed on the PDF, `YYYY-MM-DD` (default: today)")
 }
 
-// options checks the flags, the output's format among formats, and
-// returns the export options they give.
 // options checks the flags and returns the export options. formats are
 // the formats this command writes from its -o extension, and also names
 // the other extensions it takes (".gds"), for the message on a bad one.
@@ -223,6 +211,61 @@ func (r *reportFlags) options(formats []export.Format, also ...string) (export.O
 		}
 	}
 	return opt, nil
+}
+
+// reportOptions checks the flags of a command that writes a PDF or SVG
+// report (compare, sweep) before anything is read; a bad one is printed
+// on env.Stderr and ok is false.
+func (r *reportFlags) reportOptions(env Env, cmd string) (opt export.Options, ok bool) {
+	opt, err := r.options([]export.Format{export.FormatPDF, export.FormatSVG})
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "dimerpath %s: %v\n", cmd, err)
+		return opt, false
+	}
+	return opt, true
+}
+
+// writeReport writes the report to -o with write when -o was given and
+// says so on env.Stderr; it returns false, the error printed, when the
+// report could not be written.
+func (r *reportFlags) writeReport(env Env, cmd string, write func(path string) error) bool {
+	if r.out == "" {
+		return true
+	}
+	if err := write(r.out); err != nil {
+		fmt.Fprintf(env.Stderr, "dimerpath %s: %v\n", cmd, err)
+		return false
+	}
+	fmt.Fprintf(env.Stderr, "dimerpath %s: wrote %s\n", cmd, r.out)
+	return true
+}
+
+// failer returns the failure of command cmd: it prints "dimerpath CMD: "
+// and the message on env.Stderr and returns ExitFailure.
+func failer(env Env, cmd string) func(format string, a ...any) int {
+	return func(format string, a ...any) int {
+		fmt.Fprintf(env.Stderr, "dimerpath "+cmd+": "+format+"\n", a...)
+		return ExitFailure
+	}
+}
+
+// writeFailed reports a file that could not be written to path: the
+// error, or that Ctrl-C stopped the writing before the file was renamed
+// into place.
+func writeFailed(fail func(format string, a ...any) int, path string, err error) int {
+	if errors.Is(err, context.Canceled) {
+		return fail("interrupted: %s was not written", path)
+	}
+	return fail("%v", err)
+}
+
+// sizeNote is ", N bytes" for the file at path, or "" when it cannot be
+// read: the tail of a "wrote FILE (...)" message.
+func sizeNote(path string) string {
+	if st, err := os.Stat(path); err == nil {
+		return fmt.Sprintf(", %d bytes", st.Size())
+	}
+	return ""
 }
 
 // formatList names the formats and the other extensions as ".pdf,

@@ -1,12 +1,9 @@
 package app
 
 import (
-	"context"
-	"errors"
 	"flag"
 	"fmt"
 	"math"
-	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -19,18 +16,21 @@ import (
 	"dimerpath/lattice/design"
 )
 
-// gdsFlags are the flags that place the field on the chip and pick the
-// layer table (export to GDSII, import-gds).
+// gdsFlags are the flags that place the field on the chip (export to
+// GDSII, import-gds) and pick the layer table (export only: import-gds
+// names its layers with --layer).
 type gdsFlags struct {
 	offset   string
 	rotation float64
 	layers   string
 }
 
-func (g *gdsFlags) declare(fs *flag.FlagSet) {
+func (g *gdsFlags) declare(fs *flag.FlagSet, layerMap bool) {
 	fs.StringVar(&g.offset, "chip-offset", "0,0", "GDSII: chip position `X,Y` in nm of the field's lower-left corner")
 	fs.Float64Var(&g.rotation, "chip-rotation", 0, "GDSII: rotation in `DEG`rees, counter-clockwise, of the field on the chip")
-	fs.StringVar(&g.layers, "layers", "", "GDSII: layer map `MAP.json` over the default table (README \"GDSII layouts\")")
+	if layerMap {
+		fs.StringVar(&g.layers, "layers", "", "GDSII: layer map `MAP.json` over the default table (README \"GDSII layouts\")")
+	}
 }
 
 // onlyForGDS refuses the GDSII flags on an export to another format.
@@ -73,10 +73,7 @@ func isGDSPath(path string) bool { return strings.EqualFold(filepath.Ext(path), 
 
 // runExportGDS writes the variant of a design as a GDSII library.
 func runExportGDS(env Env, in string, fl exportFlags) int {
-	fail := func(format string, a ...any) int {
-		fmt.Fprintf(env.Stderr, "dimerpath export: "+format+"\n", a...)
-		return ExitFailure
-	}
+	fail := failer(env, "export")
 	for _, n := range []string{"profile", "seed", "paper", "date"} {
 		if fl.set[n] {
 			return fail("--%s does not apply to a GDSII export, which writes the design's geometry without planning", n)
@@ -114,21 +111,14 @@ func runExportGDS(env Env, in string, fl exportFlags) int {
 	defer stop()
 	sum, err := export.WriteGDSFile(ctx, fl.report.out, l, export.GDSOptions{Layers: layers, Chip: frame})
 	if err != nil {
-		if errors.Is(err, context.Canceled) {
-			return fail("interrupted: %s was not written", fl.report.out)
-		}
-		return fail("%v", err)
-	}
-	size := ""
-	if st, err := os.Stat(fl.report.out); err == nil {
-		size = fmt.Sprintf(", %d bytes", st.Size())
+		return writeFailed(fail, fl.report.out, err)
 	}
 	arrays := ""
 	if sum.ArrayRefs > 0 {
 		arrays = fmt.Sprintf(", %d windows in %d arrays (AREF)", sum.ArrayWindows, sum.ArrayRefs)
 	}
 	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d polygons, %d labels, %d windows%s; 1 pm database unit, 1 nm user unit%s)\n",
-		fl.report.out, d.Name, l.Variant.Name, sum.Polygons, sum.Texts, sum.Windows, arrays, size)
+		fl.report.out, d.Name, l.Variant.Name, sum.Polygons, sum.Texts, sum.Windows, arrays, sizeNote(fl.report.out))
 	if sum.SkippedWindows > 0 {
 		fmt.Fprintf(env.Stderr, "dimerpath export: warning: %d windows left out: some of their dimers are not on their terrace (dimerpath check reports them)\n", sum.SkippedWindows)
 	}

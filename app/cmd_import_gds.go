@@ -3,7 +3,8 @@ package app
 import (
 	"flag"
 	"fmt"
-	"sort"
+	"maps"
+	"slices"
 	"strings"
 
 	"dimerpath/lattice"
@@ -45,7 +46,7 @@ match, a name already used).`,
 			fs.StringVar(&fl.top, "top", "", "flatten the structure `CELL` (default: every top structure)")
 			fs.StringVar(&fl.marks, "marks", "", "map chip to field by two marks: `LABEL=FIDUCIAL,LABEL=FIDUCIAL`")
 			fs.StringVar(&fl.out, "o", "", "write the design to `OUT.json` (default: back to DESIGN.json)")
-			fl.gds.declare(fs)
+			fl.gds.declare(fs, false)
 			return func(env Env, args []string) int {
 				fl.set = map[string]bool{}
 				fs.Visit(func(f *flag.Flag) { fl.set[f.Name] = true })
@@ -84,10 +85,7 @@ type importFlags struct {
 }
 
 func runImportGDS(env Env, args []string, fl importFlags) int {
-	fail := func(format string, a ...any) int {
-		fmt.Fprintf(env.Stderr, "dimerpath import-gds: "+format+"\n", a...)
-		return ExitFailure
-	}
+	fail := failer(env, "import-gds")
 	if len(args) != 2 {
 		return fail("want a layout and a design file, got %d arguments (dimerpath import-gds --help)", len(args))
 	}
@@ -192,14 +190,15 @@ func layerCounts(found map[string]int) string {
 	if len(found) == 0 {
 		return "no polygons or paths at all"
 	}
-	keys := make([]string, 0, len(found))
-	for k := range found {
-		keys = append(keys, k)
-	}
-	sort.Strings(keys)
+	return "polygons on " + strings.Join(countsByName(found, "%s (%d)"), ", ")
+}
+
+// countsByName formats each name of counts with its count by format (a
+// %s, then a %d), in the order of the names.
+func countsByName(counts map[string]int, format string) []string {
 	var parts []string
-	for _, k := range keys {
-		parts = append(parts, fmt.Sprintf("%s (%d)", k, found[k]))
+	for _, k := range slices.Sorted(maps.Keys(counts)) {
+		parts = append(parts, fmt.Sprintf(format, k, counts[k]))
 	}
-	return "polygons on " + strings.Join(parts, ", ")
+	return parts
 }

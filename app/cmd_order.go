@@ -63,10 +63,7 @@ type orderFlags struct {
 }
 
 func runOrder(env Env, args []string, fl orderFlags) int {
-	fail := func(format string, a ...any) int {
-		fmt.Fprintf(env.Stderr, "dimerpath order: "+format+"\n", a...)
-		return ExitFailure
-	}
+	fail := failer(env, "order")
 	if len(args) != 1 {
 		return fail("want one input file, got %d (dimerpath order --help)", len(args))
 	}

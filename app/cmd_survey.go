@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"sort"
 	"strconv"
 	"strings"
 
@@ -248,15 +247,7 @@ func printSurvey(w io.Writer, an *survey.Analysis) {
 			bright++
 		}
 	}
-	names := make([]string, 0, len(classes))
-	for c := range classes {
-		names = append(names, c)
-	}
-	sort.Strings(names)
-	var byClass []string
-	for _, c := range names {
-		byClass = append(byClass, fmt.Sprintf("%s %d", c, classes[c]))
-	}
+	byClass := countsByName(classes, "%s %d")
 	fmt.Fprintf(w, "\ndefects (%d: %d bright, %d dark; %s), beyond %.1f SD of the residual (SD %.4g):\n",
 		len(an.Defects), bright, len(an.Defects)-bright, strings.Join(byClass, ", "), an.ThresholdSD, an.NoiseNM)
 	if len(an.Defects) > 0 {

@@ -51,9 +51,8 @@ planned at once (default: every core). A value that cannot be planned shows
 			var rep reportFlags
 			rep.declare(fs, "also write the sweep report to `FILE` (.pdf or .svg)")
 			return func(env Env, args []string) int {
-				opt, err := rep.options([]export.Format{export.FormatPDF, export.FormatSVG})
-				if err != nil {
-					fmt.Fprintf(env.Stderr, "dimerpath sweep: %v\n", err)
+				opt, ok := rep.reportOptions(env, "sweep")
+				if !ok {
 					return ExitFailure
 				}
 				if *jobs < 0 {
@@ -103,12 +102,10 @@ planned at once (default: every core). A value that cannot be planned shows
 				for _, w := range sw.Warnings {
 					fmt.Fprintf(env.Stdout, "note: %s\n", w)
 				}
-				if rep.out != "" {
-					if err := export.WriteSweepFile(run.ctx, rep.out, sw, opt); err != nil {
-						fmt.Fprintf(env.Stderr, "dimerpath sweep: %v\n", err)
-						return ExitFailure
-					}
-					fmt.Fprintf(env.Stderr, "dimerpath sweep: wrote %s\n", rep.out)
+				if !rep.writeReport(env, "sweep", func(path string) error {
+					return export.WriteSweepFile(run.ctx, path, sw, opt)
+				}) {
+					return ExitFailure
 				}
 				failed := false
 				for _, pt := range sw.Points {

@@ -7,7 +7,6 @@ import (
 	"math"
 	"strings"
 
-	"dimerpath/internal/atomicfile"
 	"dimerpath/planner"
 )
 
@@ -48,11 +47,15 @@ func checkResults(rs []VariantResult) (string, error) {
 	return design, nil
 }
 
+// compareShares are the widths of compareRows' columns, in shares of
+// the table's width (the PDF and the SVG alike).
+var compareShares = []float64{10, 8, 11, 7, 8, 6, 6, 8, 6, 6, 11, 6, 7, 10}
+
 // compareRows returns the comparison table: a header and one row per
 // variant.
 func compareRows(rs []VariantResult) [][]string {
 	rows := [][]string{{"Variant", "Session (mean)", "P10 – P90", "By hand", "Lithography steps", "Segments", "Strokes", "P(within tolerance)",
-		"Windows", "All good", "Mean good", "Devices per perfect one", "Coverage check"}}
+		"Windows", "All good", "All good: 95 % interval", "Mean good", "Devices per perfect one", "Coverage check"}}
 	for _, r := range rs {
 		if r.Plan == nil {
 			rows = append(rows, []string{r.Variant, "not planned: " + r.Err.Error()})
@@ -69,9 +72,10 @@ func compareRows(rs []VariantResult) [][]string {
 				}
 			}
 		}
-		all, mean := "–", "–"
+		all, all95, mean := "–", "–", "–"
 		if len(p.Windows) > 0 {
 			all = allGood(p.Yield)
+			all95 = probabilityRange(p.Yield.All95, p.Yield.Log10All95)
 			mean = fmt.Sprintf("%s of %s", sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))
 		}
 		byHand := "–"
@@ -86,7 +90,7 @@ func compareRows(rs []VariantResult) [][]string {
 		}
 		rows = append(rows, []string{r.Variant, clock(p.TotalS), clock(p.P10S) + " – " + clock(p.P90S), byHand,
 			strings.Join(steps, ", "), thousands(len(p.Segments)), thousands(len(p.Strokes)), probability(p.PInTolerance),
-			thousands(len(p.Windows)), all, mean, dpp, coverageWord(p.Coverage)})
+			thousands(len(p.Windows)), all, all95, mean, dpp, coverageWord(p.Coverage)})
 	}
 	return rows
 }
@@ -231,8 +235,10 @@ func spreadKey(c canvas, at vec) float64 {
 }
 
 // drawYieldCompare draws each variant's probability that every window
-// is good as a bar on a 0–1 axis, labelled with it and the mean number
-// of good windows; returns the height used.
+// is good as a bar on a 0–1 axis, with its 68 % (thick) and 95 % (thin)
+// intervals from the templates' uncertainties as whiskers, labelled with
+// the value, the 95 % interval and the mean number of good windows;
+// returns the height used.
 func drawYieldCompare(c canvas, rs []VariantResult, area box) float64 {
 	u := c.mm()
 	labelW := 0.0
@@ -240,7 +246,7 @@ func drawYieldCompare(c canvas, rs []VariantResult, area box) float64 {
 		labelW = math.Max(labelW, c.textWidth(r.Variant, fontBold))
 	}
 	labelW += 3 * u
-	valueW := c.textWidth("0.000 (mean 0000 of 0000 good)", fontBody) + 3*u
+	valueW := c.textWidth("0.000 (95 %: 0.000–0.000; mean 0000 of 0000 good)", fontBody) + 3*u
 	plot := box{area.x + labelW, area.y, area.w - labelW - valueW, 0}
 	rowH := 7 * u
 	c.group(tag{id: "yield-compare", class: "chart"}, penBar, noPaint)
@@ -253,9 +259,24 @@ func drawYieldCompare(c canvas, rs []VariantResult, area box) float64 {
 			if len(p.Windows) == 0 {
 				label = "no dopant windows"
 			} else {
-				w = plot.w * p.Yield.All
-				label = fmt.Sprintf("%s (mean %s of %s good)", allGood(p.Yield), sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))
+				yl := p.Yield
+				w = plot.w * yl.All
+				label = fmt.Sprintf("%s (95 %%: %s; mean %s of %s good)", allGood(yl), probabilityRange(yl.All95, yl.Log10All95), sig(yl.MeanGood, 4), thousands(yl.Windows))
 				c.rect(box{plot.x, y + 1.5*u, math.Max(w, 0.3*u), rowH - 3*u}, penBar, paint{fill: true, grey: 0.45}, tag{class: "bar"})
+				// The intervals as whiskers across the bar's end; the
+				// label starts after the 95 % whisker.
+				mid := y + rowH/2
+				for _, iv := range []struct {
+					r    [2]float64
+					half float64
+					pen  pen
+				}{{yl.All95, 1.2 * u, pen{width: 0.25}}, {yl.All68, 0.8 * u, pen{width: 0.7}}} {
+					x0, x1 := plot.x+plot.w*iv.r[0], plot.x+plot.w*iv.r[1]
+					c.polyline([]vec{{x0, mid}, {x1, mid}}, false, iv.pen, noPaint, tag{class: "interval"})
+					c.polyline([]vec{{x0, mid - iv.half}, {x0, mid + iv.half}}, false, iv.pen, noPaint, tag{})
+					c.polyline([]vec{{x1, mid - iv.half}, {x1, mid + iv.half}}, false, iv.pen, noPaint, tag{})
+				}
+				w = math.Max(w, plot.w*yl.All95[1])
 			}
 		}
 		c.text(vec{plot.x + w + 1.5*u, y + rowH/2 + textHeight(c, fontBody)/2}, label, fontBody, anchorStart, tag{})
@@ -271,7 +292,7 @@ func drawYieldCompare(c canvas, rs []VariantResult, area box) float64 {
 	c.polyline([]vec{{plot.x, y}, {plot.x + plot.w, y}}, false, penAxis, noPaint, tag{})
 	c.polyline([]vec{{plot.x, area.y}, {plot.x, y}}, false, penAxis, noPaint, tag{})
 	y += 1.2*u + textHeight(c, fontAxis) + 3*u
-	c.text(vec{plot.x + plot.w/2, y + textHeight(c, fontAxis)}, "probability that every window takes exactly one donor", fontAxis, anchorMiddle, tag{})
+	c.text(vec{plot.x + plot.w/2, y + textHeight(c, fontAxis)}, "probability that every window is opened as drawn and takes exactly one donor (whiskers: 68 % and 95 % intervals)", fontAxis, anchorMiddle, tag{})
 	y += textHeight(c, fontAxis) + 2*u
 	c.endGroup()
 	return y - area.y
@@ -320,32 +341,7 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 	d.keyValues(kv, 0.28)
 	d.cautionBox()
 
-	rows := compareRows(results)
-	t := newTable(d, font{size: 7.5},
-		tableColumn{title: rows[0][0], share: 10},
-		tableColumn{title: rows[0][1], share: 8, right: true},
-		tableColumn{title: rows[0][2], share: 11, right: true},
-		tableColumn{title: rows[0][3], share: 7, right: true},
-		tableColumn{title: rows[0][4], share: 8, right: true},
-		tableColumn{title: rows[0][5], share: 6, right: true},
-		tableColumn{title: rows[0][6], share: 6, right: true},
-		tableColumn{title: rows[0][7], share: 8, right: true},
-		tableColumn{title: rows[0][8], share: 6, right: true},
-		tableColumn{title: rows[0][9], share: 6, right: true},
-		tableColumn{title: rows[0][10], share: 7, right: true},
-		tableColumn{title: rows[0][11], share: 8, right: true},
-		tableColumn{title: rows[0][12], share: 9, right: true},
-	)
-	d.heading("Summary", 20)
-	t.start()
-	for _, r := range rows[1:] {
-		if len(r) == 2 {
-			t.spanRow(r[0], r[1]) // a refused variant: its reason across the row
-			continue
-		}
-		t.row(r...)
-	}
-	t.end()
+	summaryTable(d, compareRows(results), compareShares)
 	if diffs := differenceRows(results); len(diffs) > 0 {
 		d.heading("What differs from "+results[0].Variant, 20)
 		dt := newTable(d, font{size: 7.5},
@@ -392,42 +388,9 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	const width, margin = 210.0, 12.0
 	inner := width - 2*margin
 	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
-	rows := compareRows(results)
-	cols := []float64{10, 8, 11, 7, 8, 6, 6, 8, 6, 6, 7, 8, 9}
-	colW := make([]float64, len(cols))
-	total := 0.0
-	for _, c := range cols {
-		total += c
-	}
-	for i, c := range cols {
-		colW[i] = inner * c / total
-	}
-	tableFont := font{size: 6.5}
-	// Row heights: wrapped cells (a refused variant's reason spans the row).
-	cells := make([][][]string, len(rows))
-	heights := make([]float64, len(rows))
-	for i, r := range rows {
-		cells[i] = make([][]string, len(r))
-		n := 1
-		for j, s := range r {
-			cw := colW[j]
-			if len(r) == 2 && j == 1 {
-				cw = inner - colW[0]
-			}
-			f := tableFont
-			if i == 0 {
-				f.bold = true
-			}
-			cells[i][j] = wrapText(m, s, f, cw-2)
-			n = max(n, len(cells[i][j]))
-		}
-		heights[i] = float64(n)*3.2 + 1.6
-	}
+	table := layoutSVGTable(m, compareRows(results), compareShares, inner)
 	charts := []func(c canvas, rs []VariantResult, area box) float64{drawStackedBreakdown, drawSpreadCompare, drawYieldCompare}
-	y := 22.0
-	for _, h := range heights {
-		y += h
-	}
+	y := table.below(22.0)
 	y += 6
 	for _, ch := range charts {
 		y += 8 + ch(m, results, box{margin, 0, inner, 0}) + 4
@@ -435,83 +398,22 @@ func WriteComparisonSVG(w io.Writer, results []VariantResult, opt Options) error
 	caution := wrapText(m, planner.Caution, fontCaution, inner)
 	height := y + float64(len(caution))*4.2 + 8
 
-	c := newSVGCanvas(w, 1)
-	c.raw(`<?xml version="1.0" encoding="UTF-8"?>` + "\n")
-	c.buf = append(c.buf, `<svg xmlns="http://www.w3.org/2000/svg" version="1.1"`...)
-	c.attrStr("viewBox", fmt.Sprintf("0 0 %s %s", fnum(width), fnum(height)))
-	c.attrStr("width", fnum(width)+"mm")
-	c.attrStr("height", fnum(height)+"mm")
-	c.attrStr("font-family", svgFontFamily)
-	c.buf = append(c.buf, ">\n"...)
-	c.flushBuf()
-	title := "Variant comparison: " + design
-	c.raw("<title>" + string(appendEscaped(nil, title)) + "</title>\n")
-	c.raw("<desc>" + string(appendEscaped(nil, planner.Caution)) + "</desc>\n")
-	c.rect(box{0, 0, width, height}, noPen, solid(1), tag{id: "background"})
-	c.text(vec{margin, 12}, title, font{size: 13, bold: true}, anchorStart, tag{id: "title"})
-	if !opt.Date.IsZero() {
-		c.text(vec{width - margin, 12}, opt.Date.Format("2 January 2006"), fontBody, anchorEnd, tag{id: "date"})
-	}
-	y = 18
-	c.group(tag{id: "summary", class: "table"}, noPen, noPaint)
-	for i, r := range rows {
-		if i == 0 {
-			c.rect(box{margin, y, inner, heights[i]}, noPen, solid(0.88), tag{})
-		}
-		x := margin
-		for j := range r {
-			f := tableFont
-			if i == 0 || j == 0 {
-				f.bold = true
-			}
-			right := j > 0 && len(r) > 2
-			for k, l := range cells[i][j] {
-				yy := y + 0.8 + float64(k)*3.2 + 2.5
-				if right {
-					c.text(vec{x + colW[j] - 1, yy}, l, f, anchorEnd, tag{})
-				} else {
-					c.text(vec{x + 1, yy}, l, f, anchorStart, tag{})
-				}
-			}
-			x += colW[j]
-		}
-		y += heights[i]
-		c.polyline([]vec{{margin, y}, {margin + inner, y}}, false, pen{width: 0.12, grey: 0.55}, noPaint, tag{})
-	}
-	c.endGroup()
+	c := startSVGReport(w, width, height, margin, "Variant comparison: "+design, 13, opt.Date)
+	y = table.draw(c, margin, 18, inner)
 	y += 6
 	for i, ch := range charts {
 		c.text(vec{margin, y + 4}, []string{"Write time by kind", "Spread of the write time", "Dopant yield"}[i], font{size: 10, bold: true}, anchorStart, tag{})
 		y += 8
 		y += ch(c, results, box{margin, y, inner, 0}) + 4
 	}
-	c.group(tag{id: "caution", class: "caution"}, noPen, noPaint)
-	for _, l := range caution {
-		y += 4.2
-		c.text(vec{margin, y}, l, fontCaution, anchorStart, tag{})
-	}
-	c.endGroup()
-	c.hatchDefs()
-	c.raw("</svg>\n")
-	return c.err()
+	return endSVGReport(c, caution, margin, y)
 }
 
 // WriteComparisonFile writes the comparison report to path, PDF or SVG
 // by its extension (any other is an error wrapping ErrFormat), through a
 // temporary file renamed into place (see WriteFile).
 func WriteComparisonFile(ctx context.Context, path string, results []VariantResult, opt Options) error {
-	f, err := FormatFromPath(path)
-	if err != nil {
-		return err
-	}
-	if f != FormatPDF && f != FormatSVG {
-		return fmt.Errorf("%s: %w: a comparison report is .pdf or .svg", path, ErrFormat)
-	}
-	return atomicfile.Write(path, 0o644, func(w io.Writer) error {
-		w = wrapWriter(w)
-		if f == FormatPDF {
-			return WriteComparisonPDF(ctx, w, results, opt)
-		}
-		return WriteComparisonSVG(w, results, opt)
-	})
+	return writeReportFile(path, "a comparison report",
+		func(w io.Writer) error { return WriteComparisonPDF(ctx, w, results, opt) },
+		func(w io.Writer) error { return WriteComparisonSVG(w, results, opt) })
 }

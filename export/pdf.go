@@ -262,13 +262,16 @@ func coverageErrorLines(p *planner.Plan) []string {
 
 // intervals formats the 68 % and 95 % intervals of P(all good).
 func intervals(y planner.Yield) string {
-	f := func(iv [2]float64, l [2]float64) string {
-		if iv[1] == 0 && !math.IsInf(l[1], -1) {
-			return pow10(l[0]) + "–" + pow10(l[1])
-		}
-		return probability(iv[0]) + "–" + probability(iv[1])
+	return fmt.Sprintf("68 %%: %s, 95 %%: %s from the templates' uncertainties", probabilityRange(y.All68, y.Log10All68), probabilityRange(y.All95, y.Log10All95))
+}
+
+// probabilityRange formats an interval of P(all good), "0.361–0.694",
+// by its log10 where the probabilities underflow.
+func probabilityRange(iv, log10 [2]float64) string {
+	if iv[1] == 0 && !math.IsInf(log10[1], -1) {
+		return pow10(log10[0]) + "–" + pow10(log10[1])
 	}
-	return fmt.Sprintf("68 %%: %s, 95 %%: %s from the templates' uncertainties", f(y.All68, y.Log10All68), f(y.All95, y.Log10All95))
+	return probability(iv[0]) + "–" + probability(iv[1])
 }
 
 // badWindows formats the expected numbers of windows that go wrong.

@@ -7,7 +7,6 @@ import (
 	"math"
 	"sort"
 
-	"dimerpath/internal/atomicfile"
 	"dimerpath/internal/chartaxis"
 	"dimerpath/planner"
 )
@@ -34,6 +33,10 @@ func checkSweep(sw *planner.Sweep) error {
 	}
 	return nil
 }
+
+// sweepShares are the widths of SweepRows' columns, in shares of the
+// table's width (the PDF and the SVG alike).
+var sweepShares = []float64{13, 9, 10, 10, 10, 9, 9, 13, 11}
 
 // SweepRows returns the sweep's table as the command line prints it and
 // the reports lay it out: a header and one row per value, in the order
@@ -280,23 +283,7 @@ func WriteSweepPDF(ctx context.Context, w io.Writer, sw *planner.Sweep, opt Opti
 		d.para("Note: "+warn, fontBody)
 	}
 
-	rows := SweepRows(sw)
-	shares := []float64{13, 9, 10, 10, 10, 9, 9, 13, 11}
-	cols := make([]tableColumn, len(shares))
-	for i, s := range shares {
-		cols[i] = tableColumn{title: rows[0][i], share: s, right: i > 0}
-	}
-	t := newTable(d, font{size: 7.5}, cols...)
-	d.heading("Summary", 20)
-	t.start()
-	for _, r := range rows[1:] {
-		if len(r) == 2 {
-			t.spanRow(r[0], r[1])
-			continue
-		}
-		t.row(r...)
-	}
-	t.end()
+	summaryTable(d, SweepRows(sw), sweepShares)
 
 	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
 	for _, ch := range sweepCharts {
@@ -340,36 +327,7 @@ func WriteSweepSVG(w io.Writer, sw *planner.Sweep, opt Options) error {
 	const width, margin = 210.0, 12.0
 	inner := width - 2*margin
 	m := &measureCanvas{unit: 1, metrics: sansMetrics()}
-	rows := SweepRows(sw)
-	shares := []float64{13, 9, 10, 10, 10, 9, 9, 13, 11}
-	colW := make([]float64, len(shares))
-	total := 0.0
-	for _, s := range shares {
-		total += s
-	}
-	for i, s := range shares {
-		colW[i] = inner * s / total
-	}
-	tableFont := font{size: 6.5}
-	cells := make([][][]string, len(rows))
-	heights := make([]float64, len(rows))
-	for i, r := range rows {
-		cells[i] = make([][]string, len(r))
-		n := 1
-		for j, s := range r {
-			cw := colW[j]
-			if len(r) == 2 && j == 1 {
-				cw = inner - colW[0]
-			}
-			f := tableFont
-			if i == 0 {
-				f.bold = true
-			}
-			cells[i][j] = wrapText(m, s, f, cw-2)
-			n = max(n, len(cells[i][j]))
-		}
-		heights[i] = float64(n)*3.2 + 1.6
-	}
+	table := layoutSVGTable(m, SweepRows(sw), sweepShares, inner)
 	notes := make([][]string, len(sw.Warnings))
 	for i, warn := range sw.Warnings {
 		notes[i] = wrapText(m, "Note: "+warn, fontBody, inner)
@@ -378,9 +336,7 @@ func WriteSweepSVG(w io.Writer, sw *planner.Sweep, opt Options) error {
 	for _, n := range notes {
 		y += float64(len(n)) * 4
 	}
-	for _, h := range heights {
-		y += h
-	}
+	y = table.below(y)
 	y += 6
 	for _, ch := range sweepCharts {
 		if h := ch.draw(m, sw, box{margin, 0, inner, 0}); h > 0 {
@@ -390,23 +346,7 @@ func WriteSweepSVG(w io.Writer, sw *planner.Sweep, opt Options) error {
 	caution := wrapText(m, planner.Caution, fontCaution, inner)
 	height := y + float64(len(caution))*4.2 + 8
 
-	c := newSVGCanvas(w, 1)
-	c.raw(`<?xml version="1.0" encoding="UTF-8"?>` + "\n")
-	c.buf = append(c.buf, `<svg xmlns="http://www.w3.org/2000/svg" version="1.1"`...)
-	c.attrStr("viewBox", fmt.Sprintf("0 0 %s %s", fnum(width), fnum(height)))
-	c.attrStr("width", fnum(width)+"mm")
-	c.attrStr("height", fnum(height)+"mm")
-	c.attrStr("font-family", svgFontFamily)
-	c.buf = append(c.buf, ">\n"...)
-	c.flushBuf()
-	title := "Sweep of " + sw.Param.Name + ": " + sw.Design + ", variant " + sw.Variant
-	c.raw("<title>" + string(appendEscaped(nil, title)) + "</title>\n")
-	c.raw("<desc>" + string(appendEscaped(nil, planner.Caution)) + "</desc>\n")
-	c.rect(box{0, 0, width, height}, noPen, solid(1), tag{id: "background"})
-	c.text(vec{margin, 12}, title, font{size: 12, bold: true}, anchorStart, tag{id: "title"})
-	if !opt.Date.IsZero() {
-		c.text(vec{width - margin, 12}, opt.Date.Format("2 January 2006"), fontBody, anchorEnd, tag{id: "date"})
-	}
+	c := startSVGReport(w, width, height, margin, "Sweep of "+sw.Param.Name+": "+sw.Design+", variant "+sw.Variant, 12, opt.Date)
 	c.text(vec{margin, 18}, fmt.Sprintf("Profile %s, seed %d; %s", sw.Profile, sw.Seed, sweepParamText(sw)), fontAxis, anchorStart, tag{id: "parameter"})
 	y = 22
 	for _, n := range notes {
@@ -415,33 +355,7 @@ func WriteSweepSVG(w io.Writer, sw *planner.Sweep, opt Options) error {
 			c.text(vec{margin, y}, l, fontBody, anchorStart, tag{class: "note"})
 		}
 	}
-	y += 2
-	c.group(tag{id: "summary", class: "table"}, noPen, noPaint)
-	for i, r := range rows {
-		if i == 0 {
-			c.rect(box{margin, y, inner, heights[i]}, noPen, solid(0.88), tag{})
-		}
-		x := margin
-		for j := range r {
-			f := tableFont
-			if i == 0 || j == 0 {
-				f.bold = true
-			}
-			right := j > 0 && len(r) > 2
-			for k, l := range cells[i][j] {
-				yy := y + 0.8 + float64(k)*3.2 + 2.5
-				if right {
-					c.text(vec{x + colW[j] - 1, yy}, l, f, anchorEnd, tag{})
-				} else {
-					c.text(vec{x + 1, yy}, l, f, anchorStart, tag{})
-				}
-			}
-			x += colW[j]
-		}
-		y += heights[i]
-		c.polyline([]vec{{margin, y}, {margin + inner, y}}, false, pen{width: 0.12, grey: 0.55}, noPaint, tag{})
-	}
-	c.endGroup()
+	y = table.draw(c, margin, y+2, inner)
 	y += 6
 	for _, ch := range sweepCharts {
 		if h := ch.draw(m, sw, box{margin, 0, inner, 0}); h == 0 {
@@ -451,33 +365,14 @@ func WriteSweepSVG(w io.Writer, sw *planner.Sweep, opt Options) error {
 		y += 8
 		y += ch.draw(c, sw, box{margin, y, inner, 0}) + 4
 	}
-	c.group(tag{id: "caution", class: "caution"}, noPen, noPaint)
-	for _, l := range caution {
-		y += 4.2
-		c.text(vec{margin, y}, l, fontCaution, anchorStart, tag{})
-	}
-	c.endGroup()
-	c.hatchDefs()
-	c.raw("</svg>\n")
-	return c.err()
+	return endSVGReport(c, caution, margin, y)
 }
 
 // WriteSweepFile writes the sweep report to path, PDF or SVG by its
 // extension (any other is an error wrapping ErrFormat), through a
 // temporary file renamed into place (see WriteFile).
 func WriteSweepFile(ctx context.Context, path string, sw *planner.Sweep, opt Options) error {
-	f, err := FormatFromPath(path)
-	if err != nil {
-		return err
-	}
-	if f != FormatPDF && f != FormatSVG {
-		return fmt.Errorf("%s: %w: a sweep report is .pdf or .svg", path, ErrFormat)
-	}
-	return atomicfile.Write(path, 0o644, func(w io.Writer) error {
-		w = wrapWriter(w)
-		if f == FormatPDF {
-			return WriteSweepPDF(ctx, w, sw, opt)
-		}
-		return WriteSweepSVG(w, sw, opt)
-	})
+	return writeReportFile(path, "a sweep report",
+		func(w io.Writer) error { return WriteSweepPDF(ctx, w, sw, opt) },
+		func(w io.Writer) error { return WriteSweepSVG(w, sw, opt) })
 }

@@ -5,6 +5,8 @@ import (
 	"math"
 
 	"github.com/golang/geo/r2"
+
+	"dimerpath/internal/angle"
 )
 
 // ChipFrame places the STM field on the chip: a field point p lies at
@@ -19,23 +21,7 @@ type ChipFrame struct {
 
 // sinCos returns the rotation's sine and cosine, exact at multiples of
 // 90°.
-func (f ChipFrame) sinCos() (s, c float64) {
-	r := math.Mod(f.RotationDeg, 360)
-	if r < 0 {
-		r += 360
-	}
-	switch r {
-	case 0:
-		return 0, 1
-	case 90:
-		return 1, 0
-	case 180:
-		return 0, -1
-	case 270:
-		return -1, 0
-	}
-	return math.Sincos(r * math.Pi / 180)
-}
+func (f ChipFrame) sinCos() (s, c float64) { return angle.SinCos(f.RotationDeg) }
 
 // ToChip returns the chip position of field point p.
 func (f ChipFrame) ToChip(p r2.Point) r2.Point {

@@ -25,6 +25,12 @@ func TestBuildAbsurdProfileIsAnError(t *testing.T) {
 		{"verification 1e308 s", func(p *Profile) { p.Drift.VerificationS = 1e308 }},
 		{"dwell footprint 1000 nm", func(p *Profile) { p.Dwell.SigmaNM = 1000; p.WindowStyle = WindowStyleDwell }},
 		{"dwell current 5e-324 A", func(p *Profile) { p.Dwell.CurrentA = 5e-324; p.WindowStyle = WindowStyleDwell }},
+		// Legal values whose log-normal spread overflowed: (sd/mean)² is
+		// +Inf, the draws were NaN and fastErf indexed its table at
+		// -2^63 (found by review9 sweeping every parameter).
+		{"creep fraction 1e-300 with a spread", func(p *Profile) { p.Registration.Creep.Fraction = 1e-300 }},
+		{"creep fraction 5e-324 with a spread", func(p *Profile) { p.Registration.Creep.Fraction = 5e-324 }},
+		{"drift rate 5e-324 nm/min with a spread", func(p *Profile) { p.Drift.RateNMPerMin = 5e-324 }},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			p := DefaultProfile()
@@ -85,7 +91,7 @@ func TestCheckFiniteTime(t *testing.T) {
 	}{
 		{"finite", Breakdown{APWriteS: 100, TravelS: 20}, ""},
 		{"infinite travel", Breakdown{APWriteS: 100, TravelS: math.Inf(1)}, "travel and settling (+Inf s; from move_speed_nm_per_s, settle_s)"},
-		{"NaN dwells", Breakdown{DwellS: math.NaN()}, "dwells (NaN s; from dwell.current_a"},
+		{"NaN dwells", Breakdown{DwellS: math.NaN()}, "dwells (NaN s; from dwell.bias_v, dwell.current_a, dwell.completion, exposure.vibrational)"},
 		{"finite parts, infinite sum", Breakdown{RegistrationS: 1e308, VerificationS: 1.5e308}, "verification images (1.5e+308 s; from drift.verification_s)"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {

@@ -67,6 +67,37 @@ func Build(ctx context.Context, lay *design.Layout, prof Profile, opt Options) (
 	return b.build()
 }
 
+// CheckWriting runs the part of Build that decides what is written, on
+// the same layout and profile: each region's write mode, the strokes and
+// their coverage expectation, with every site outside the regions that
+// clears above prof.StrayLimit (Coverage.StraySites, with the region and
+// stroke that reach it). A design whose CheckWriting finds no such site
+// plans without a coverage error: Build computes the same strokes and
+// the same expectation. The modes are returned for the messages.
+func CheckWriting(ctx context.Context, lay *design.Layout, prof Profile) (cov Coverage, modes []RegionMode, err error) {
+	var unused *Plan
+	defer recoverInternal(&unused, &err)
+	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof}
+	_, cov, err = b.writing()
+	if err != nil {
+		return Coverage{}, nil, err
+	}
+	return cov, b.regionModes(), nil
+}
+
+// regionModes returns each region's mode as drawn and as planned.
+func (b *builder) regionModes() []RegionMode {
+	var modes []RegionMode
+	for _, r := range b.regions {
+		req := r.requested
+		if req == "" {
+			req = design.ModeAuto
+		}
+		modes = append(modes, RegionMode{Region: r.name, Role: r.role, Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
+	}
+	return modes
+}
+
 type builder struct {
 	ctx  context.Context
 	lay  *design.Layout
@@ -89,26 +120,29 @@ type builder struct {
 	marginUsed    float64
 }
 
-func (b *builder) build() (*Plan, error) {
+// writing runs the stages that decide what is written: the profile's
+// checks, each region's mode, the strokes (split at their drift budgets)
+// and their coverage expectation. Build goes on from here; CheckWriting
+// stops here.
+func (b *builder) writing() ([]Window, Coverage, error) {
 	prof, lay := &b.prof, b.lay
 	if err := prof.Validate(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	if err := prof.checkField(b.d.Field.WidthNM, b.d.Field.HeightNM); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	if err := b.checkRaster(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	if err := b.ctx.Err(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	b.gen = newStrokeGen(lay.Surface, prof)
 	if err := b.regionWork(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
-	var drift DriftPlan
-	b.model, drift = planModel(prof)
+	b.model, _ = planModel(prof) // the stroke splits need its values
 
 	b.opt.stage("modes")
 	mc := &modeChooser{g: b.gen, prof: prof, keepOut: lay.Rules.FEKeepOutNM, regions: b.regions, feCache: map[*lattice.SiteSet][]Stroke{}}
@@ -117,26 +151,26 @@ func (b *builder) build() (*Plan, error) {
 		b.warnings = append(b.warnings, r.warnings...)
 	}
 	if err := b.ctx.Err(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 
 	b.opt.stage("strokes")
 	windows := b.makeStrokes()
 	if err := checkStrokes(float64(len(b.strokes)), "one or more per run of sites and per FE serpentine; split the design"); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	use := b.modesUsed()
 	if err := prof.CheckLimits(&use); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	if err := b.checkTolerances(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	b.fiducials()
 	b.costs = newCosts(prof, b.fids)
 	b.costs.creepFrac = b.model.creep
 	if err := b.splitLong(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	for i := range b.strokes {
 		b.strokes[i].ID = i
@@ -144,7 +178,7 @@ func (b *builder) build() (*Plan, error) {
 
 	b.opt.stage("coverage")
 	if err := b.ctx.Err(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	b.openWindows(windows)
 	cov, strokes := CheckCoverage(lay.Surface, b.coverageRegions(), b.strokes, *prof)
@@ -152,6 +186,18 @@ func (b *builder) build() (*Plan, error) {
 	if !cov.OK {
 		b.warnings = append(b.warnings, fmt.Sprintf("coverage check: %d site(s) outside every region clear with more than %.2g %%; see coverage.stray_sites", cov.OverLimit, 100*cov.StrayLimit))
 	}
+	return windows, cov, nil
+}
+
+func (b *builder) build() (*Plan, error) {
+	prof, lay := &b.prof, b.lay
+	windows, cov, err := b.writing()
+	if err != nil {
+		return nil, err
+	}
+	var drift DriftPlan
+	b.model, drift = planModel(prof)
+	use := b.modesUsed()
 
 	b.opt.stage("route")
 	steps, err := b.assignSteps(windows)
@@ -250,13 +296,7 @@ func (b *builder) build() (*Plan, error) {
 		return nil, err
 	}
 	plan.Yield = YieldOf(windows, b.opt.Seed)
-	for _, r := range b.regions {
-		req := r.requested
-		if req == "" {
-			req = design.ModeAuto
-		}
-		plan.Modes = append(plan.Modes, RegionMode{Region: r.name, Role: r.role, Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
-	}
+	plan.Modes = b.regionModes()
 	byHand, err := b.byHand(steps, margin, plan.TotalS)
 	if err != nil {
 		return nil, err

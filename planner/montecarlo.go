@@ -79,9 +79,16 @@ func fillLogNormal(xs []float64, m, sd float64, src rand.Source) {
 }
 
 // logNormalParams returns μ and σ of the log-normal distribution with
-// mean m and standard deviation sd.
+// mean m and standard deviation sd: σ² = ln(1 + (sd/m)²). When (sd/m)²
+// overflows (a mean of 1e-300 with a spread of 0.01, which the profile's
+// ranges allow) it is 2·ln(sd/m) + ln(1 + (m/sd)²), finite, so that the
+// draws are tiny numbers and never NaN.
 func logNormalParams(m, sd float64) (mu, sigma float64) {
 	s2 := math.Log1p(sd * sd / (m * m))
+	if math.IsInf(s2, 0) {
+		lr := math.Log(sd) - math.Log(m)
+		s2 = 2*lr + math.Log1p(math.Exp(-2*lr))
+	}
 	return math.Log(m) - s2/2, math.Sqrt(s2)
 }
 

@@ -291,6 +291,7 @@ func TestValidatePlausibleRanges(t *testing.T) {
 		{"tolerance of 1e-300 nm", func(p *Profile) { p.ToleranceAPNM = 1e-300 }, "tolerance_ap_nm = 1e-300: must be from 0.001 to 1000 nm"},
 		{"sigma of 1e9 nm", func(p *Profile) { p.FE.SigmaNM = 1e9 }, "fe.sigma_nm = 1e+09: must be from 0.01 to 100 nm"},
 		{"scan field of 1 m", func(p *Profile) { p.Limits.ScanFieldNM = 1e9 }, "limits.scan_field_nm = 1e+09: must be more than 0 and at most 100000 nm"},
+		{"a tip change every 5e-324 s", func(p *Profile) { p.Session.TipChanges.MeanWriteS = 5e-324 }, "session.tip_changes.mean_write_s = 5e-324: must be from 1 to 1e+07 s"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

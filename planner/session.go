@@ -3,8 +3,11 @@ package planner
 import (
 	"context"
 	"fmt"
+	"iter"
+	"maps"
 	"math"
 	"runtime"
+	"slices"
 	"sort"
 	"strings"
 	"sync"
@@ -156,15 +159,8 @@ func (b *builder) loads(steps []*stepWork, cps []couplingWork) ([]segLoad, []pai
 	r := &b.prof.Registration
 	for _, st := range steps {
 		sg := st.sg
-		if sg == nil || sg.n == 0 {
-			continue
-		}
-		for i, s := range st.starts {
-			e := sg.n
-			if i+1 < len(st.starts) {
-				e = st.starts[i+1]
-			}
-			k := kindIndex(st.kinds[i])
+		for sp := range st.spans() {
+			s, e, k := sp.s, sp.e, sp.k
 			g := segLoad{sigma: r.Local.ErrorNM}
 			if k == kCoarse {
 				g.sigma = r.CoarseErrorNM
@@ -231,6 +227,30 @@ func (st *stepWork) jobIndex(i int) int {
 		}
 	}
 	return -1
+}
+
+// segSpan is one segment of a step: its index in st.starts, its jobs
+// [s, e) in the step's order and its registration's kind index.
+type segSpan struct{ i, s, e, k int }
+
+// spans yields the step's segments in writing order; none when the
+// step writes nothing.
+func (st *stepWork) spans() iter.Seq[segSpan] {
+	return func(yield func(segSpan) bool) {
+		sg := st.sg
+		if sg == nil || sg.n == 0 {
+			return
+		}
+		for i, s := range st.starts {
+			e := sg.n
+			if i+1 < len(st.starts) {
+				e = st.starts[i+1]
+			}
+			if !yield(segSpan{i: i, s: s, e: e, k: kindIndex(st.kinds[i])}) {
+				return
+			}
+		}
+	}
 }
 
 // segmentOf returns the index into st.starts of the segment holding job j.
@@ -543,6 +563,20 @@ func (b *builder) stepNote(st *stepWork) string {
 	return note
 }
 
+// groupsInOrder makes p route its items group by group, in ascending
+// group number (groups[i] is item i's; present, the groups there are),
+// when there is more than one group.
+func groupsInOrder(p *route.Problem, groups []int, present map[int]bool) {
+	if len(present) < 2 {
+		return
+	}
+	p.Group = groups
+	gs := slices.Sorted(maps.Keys(present))
+	for i := 0; i+1 < len(gs); i++ {
+		p.Before = append(p.Before, [2]int{gs[i], gs[i+1]})
+	}
+}
+
 // route orders the strokes (indices into b.strokes) of one step: each
 // mode's strokes together in the profile's order and the dopant windows
 // last, from the fiducial nearest the first group's centre. It returns
@@ -582,17 +616,7 @@ func (b *builder) route(ids []int) (int, []int, error) {
 		a, z := s.Path[0], s.Path[len(s.Path)-1]
 		p.Items[k] = route.Item{A: route.Point{X: a.X, Y: a.Y}, B: route.Point{X: z.X, Y: z.Y}}
 	}
-	if len(present) > 1 {
-		p.Group = groups
-		var gs []int
-		for g := range present {
-			gs = append(gs, g)
-		}
-		sort.Ints(gs)
-		for i := 0; i+1 < len(gs); i++ {
-			p.Before = append(p.Before, [2]int{gs[i], gs[i+1]})
-		}
-	}
+	groupsInOrder(&p, groups, present)
 	sol, err := route.Solve(b.ctx, p, route.Options{MaxKicks: b.kicks(n), Seed: b.opt.Seed})
 	if err != nil {
 		return 0, nil, err
@@ -847,17 +871,7 @@ func (b *builder) reoptimiseSegment(sg *segmenter, jobs []job, si, s, e int, kin
 		groups[i] = j.group
 		present[j.group] = true
 	}
-	if len(present) > 1 {
-		p.Group = groups
-		var gs []int
-		for g := range present {
-			gs = append(gs, g)
-		}
-		sort.Ints(gs)
-		for i := 0; i+1 < len(gs); i++ {
-			p.Before = append(p.Before, [2]int{gs[i], gs[i+1]})
-		}
-	}
+	groupsInOrder(&p, groups, present)
 	sol, err := route.Solve(b.ctx, p, route.Options{MaxKicks: min(max(len(seg)/8, 10), 100), Seed: b.opt.Seed + int64(si)})
 	if err != nil {
 		return nil, err

@@ -302,6 +302,7 @@ const (
 	minPixelNM        = 1e-3
 	maxLineS          = 3600
 	maxImageMarginNM  = 1e5
+	minMeanWriteS     = 1 // a tip that lasts less than a second of writing is a typo (common practice: tips last minutes to hours)
 	maxMeanWriteS     = 1e7
 	maxOpenLimitS     = 1e6
 	maxLocalImageNM   = 1e4
@@ -357,7 +358,7 @@ func (v *validator) validateSession(p Profile) {
 		v.within("session."+im.name+".margin_nm", im.im.MarginNM, 0, maxImageMarginNM, "nm")
 	}
 	v.within("session.conditioning.time_s", s.Conditioning.TimeS, 0, MaxStepS, "s")
-	v.positiveUpTo("session.tip_changes.mean_write_s", s.TipChanges.MeanWriteS, maxMeanWriteS, "s")
+	v.within("session.tip_changes.mean_write_s", s.TipChanges.MeanWriteS, minMeanWriteS, maxMeanWriteS, "s")
 	v.positiveUpTo("session.repair.reimage_nm", s.Repair.ReimageNM, maxLocalImageNM, "nm")
 	if m := s.PInToleranceMin; !(m > 0 && m < 1) {
 		v.add("session.p_in_tolerance_min", m, "must lie strictly between 0 and 1")

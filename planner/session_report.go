@@ -33,16 +33,9 @@ func (b *builder) describeSegments(plan *Plan, steps []*stepWork, tol tolResult)
 	g := 0 // index into tol.segs
 	for _, st := range steps {
 		sg := st.sg
-		if sg == nil || sg.n == 0 {
-			continue
-		}
-		for i, s := range st.starts {
-			e := sg.n
-			if i+1 < len(st.starts) {
-				e = st.starts[i+1]
-			}
+		for sp := range st.spans() {
+			i, s, e, k := sp.i, sp.s, sp.e, sp.k
 			seg := &plan.Segments[st.seg0+i]
-			k := kindIndex(st.kinds[i])
 			// The tightest stroke: the largest share of its tolerance used
 			// at the planning values.
 			tight, share := s, -1.0

@@ -12,6 +12,9 @@ type SceneOptions struct {
 	Findings bool // design-rule findings
 }
 
+// MaxStrayMarks caps the stray sites of a plan drawn on the lattice.
+const MaxStrayMarks = 2000
+
 // Scene returns what the lattice view draws for the current variant.
 func (s *Session) Scene(o SceneOptions) *render.Scene {
 	sc := &render.Scene{Surface: s.surf}
@@ -48,6 +51,17 @@ func (s *Session) Scene(o SceneOptions) *render.Scene {
 	if o.Findings {
 		for i, f := range s.findings {
 			sc.Marks = append(sc.Marks, render.Mark{At: f.At, Error: f.Error, Selected: i == s.chosen})
+		}
+		// The plan's coverage errors at their places: each site outside
+		// every region that clears above the stray limit (the first
+		// MaxStrayMarks; the plan panel and files name them all).
+		if p, stale := s.Plan(); p != nil && !stale {
+			for i, st := range p.Coverage.StraySites {
+				if i == MaxStrayMarks {
+					break
+				}
+				sc.Marks = append(sc.Marks, render.Mark{At: st.At, Error: true})
+			}
 		}
 	}
 	sc.Preview = s.Preview()

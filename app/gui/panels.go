@@ -676,20 +676,25 @@ type marksPanel struct {
 	terrSel  int
 	terrName *keyEntry
 	terrRows *widget.RadioGroup
-	terrX    *keyEntry
-	terrY    *keyEntry
-	terrMsg  *widget.Label
-	terrForm *fyne.Container
-	fidEmpty *widget.Label
-	name     *keyEntry
-	nameMsg  *widget.Label
-	field    *widget.Label
-	fieldW   *keyEntry
-	fieldH   *keyEntry
-	fieldMsg *widget.Label
-	shownW   float64 // the field size the entries were last filled with
-	shownH   float64
-	updating bool
+	// terrStep asks which way the step from the terrace this one steps
+	// from goes (up or down); hidden for a terrace that steps from none.
+	terrStep     *widget.RadioGroup
+	terrStepItem *widget.FormItem
+	terrStepForm *widget.Form
+	terrX        *keyEntry
+	terrY        *keyEntry
+	terrMsg      *widget.Label
+	terrForm     *fyne.Container
+	fidEmpty     *widget.Label
+	name         *keyEntry
+	nameMsg      *widget.Label
+	field        *widget.Label
+	fieldW       *keyEntry
+	fieldH       *keyEntry
+	fieldMsg     *widget.Label
+	shownW       float64 // the field size the entries were last filled with
+	shownH       float64
+	updating     bool
 }
 
 func newMarksPanel(u *UI) *marksPanel {
@@ -743,8 +748,11 @@ func newMarksPanel(u *UI) *marksPanel {
 					rows = surf.Terraces[i].Rows.String()
 				}
 				step := ""
-				if t.StepFrom != "" {
-					step = ", a step from " + t.StepFrom
+				switch {
+				case t.StepFrom != "" && t.Step != "":
+					step = ", a step " + t.Step + " from " + t.StepFrom
+				case t.StepFrom != "":
+					step = ", a step from " + t.StepFrom + " (up or down? not said)"
 				}
 				o.(*widget.Label).SetText(fmt.Sprintf("%s: rows along %s, %s%s", t.Name, rows, where, step))
 			}
@@ -754,9 +762,20 @@ func newMarksPanel(u *UI) *marksPanel {
 	p.terrRows = widget.NewRadioGroup([]string{"x", "y"}, nil)
 	p.terrRows.Horizontal = true
 	p.terrMsg = errorLabel()
+	p.terrStep = widget.NewRadioGroup([]string{"up", "down"}, func(step string) {
+		if p.updating || p.terrSel < 0 || step == "" {
+			return
+		}
+		showErr(p.terrMsg, p.u.Session.SetTerraceStep(p.terrSel, step))
+	})
+	p.terrStep.Horizontal = true
+	p.terrStepItem = widget.NewFormItem("Step", p.terrStep)
+	p.terrStepItem.HintText = "which way from the terrace it steps from: the lattices lie 0.27 nm apart"
+	p.terrStepForm = widget.NewForm(p.terrStepItem)
 	p.terrForm = container.NewVBox(
 		widget.NewForm(widget.NewFormItem("Name", p.terrName), widget.NewFormItem("Rows along", p.terrRows),
 			widget.NewFormItem("Offset x (nm)", p.terrX), widget.NewFormItem("Offset y (nm)", p.terrY)),
+		p.terrStepForm,
 		p.terrMsg,
 		container.NewGridWithColumns(2,
 			widget.NewButtonWithIcon("Apply", theme.ConfirmIcon(), p.applyTerrace),
@@ -885,6 +904,16 @@ func (p *marksPanel) showTerrace() {
 	p.terrRows.SetSelected(p.u.Session.Surface().Terraces[p.terrSel].Rows.String())
 	p.terrX.SetText(trimZeros(fmt.Sprintf("%.4f", t.OffsetNM[0])))
 	p.terrY.SetText(trimZeros(fmt.Sprintf("%.4f", t.OffsetNM[1])))
+	if t.StepFrom != "" {
+		p.terrStepItem.Text = "Step from " + t.StepFrom
+		p.updating = true
+		p.terrStep.SetSelected(t.Step)
+		p.updating = false
+		p.terrStepForm.Refresh()
+		p.terrStepForm.Show()
+	} else {
+		p.terrStepForm.Hide()
+	}
 	p.terrMsg.Hide()
 	p.terrForm.Show()
 }

@@ -61,6 +61,16 @@ func formatProbability(p float64) string {
 	return trimZeros(fmt.Sprintf("%.1f", m)) + "·10" + superscript(e) + " %"
 }
 
+// formatProbabilityRange prints an interval of probabilities as
+// percentages, "36.1 – 69.4 %"; where the probabilities underflow to 0
+// it prints them from their log10 (units.ProbabilityRange).
+func formatProbabilityRange(p, log10 [2]float64) string {
+	if p[1] == 0 && !math.IsInf(log10[1], -1) {
+		return units.ProbabilityRange(p, log10)
+	}
+	return strings.TrimSuffix(formatProbability(p[0]), " %") + " – " + formatProbability(p[1])
+}
+
 // superscript writes n in superscript digits: -5 as ⁻⁵.
 func superscript(n int) string {
 	digits := []rune("⁰¹²³⁴⁵⁶⁷⁸⁹")
@@ -186,8 +196,8 @@ func (p *planPanel) refresh() {
 		}
 		intervals := ""
 		if y.All95[1] >= y.All && y.All95[1] > 0 {
-			intervals = fmt.Sprintf(" (68 %%: %s, 95 %%: %s, from the templates' uncertainties)",
-				units.ProbabilityRange(y.All68, y.Log10All68), units.ProbabilityRange(y.All95, y.Log10All95))
+			intervals = fmt.Sprintf(" (68 %% interval %s, 95 %% interval %s, from the templates' uncertainties)",
+				formatProbabilityRange(y.All68, y.Log10All68), formatProbabilityRange(y.All95, y.Log10All95))
 		}
 		all := formatProbability(y.All)
 		if y.All == 0 {

@@ -485,6 +485,17 @@ func (u *UI) optionsFor(t editor.Tool) []fyne.CanvasObject {
 		return []fyne.CanvasObject{num("Brush radius, nm (0: one at a time)", o.BrushNM, func(o *editor.ToolOptions, v float64) { o.BrushNM = v })}
 	case editor.ToolLine:
 		return []fyne.CanvasObject{num("Line width (nm)", o.LineWidthNM, func(o *editor.ToolOptions, v float64) { o.LineWidthNM = v })}
+	case editor.ToolTerrace:
+		// The tool asks before it finishes an outline (editor.ErrTerraceStep).
+		step := widget.NewRadioGroup([]string{"up", "down"}, func(s string) {
+			u.setOpt(func(o *editor.ToolOptions) error { o.TerraceStep = s; return nil })
+		})
+		step.Horizontal = true
+		step.Selected = o.TerraceStep
+		return []fyne.CanvasObject{
+			wrapLabel("The step from the terrace under the first point to the new terrace goes"), step,
+			mutedLabel("Up and down put the new lattice 0.27 nm apart: check it on your survey image. Enter finishes the outline."),
+		}
 	case editor.ToolWindow:
 		return []fyne.CanvasObject{template()}
 	case editor.ToolArray:

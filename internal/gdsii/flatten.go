@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"strings"
+
+	"dimerpath/internal/angle"
 )
 
 // Vec is a point in database units after flattening (rotation and
@@ -40,32 +42,12 @@ func (a Affine) Scale() float64 { return math.Sqrt(math.Abs(a.A*a.D - a.B*a.C)) 
 // whole multiples of 90° give exact matrices.
 func (t Transform) Matrix(origin Vec) Affine {
 	m := t.Scale()
-	s, c := sinCosDeg(t.AngleDeg)
+	s, c := angle.SinCos(t.AngleDeg)
 	ry := 1.0
 	if t.Reflect {
 		ry = -1
 	}
 	return Affine{A: m * c, B: -m * s * ry, C: m * s, D: m * c * ry, E: origin.X, F: origin.Y}
-}
-
-// sinCosDeg returns the sine and cosine of an angle in degrees, exact
-// at multiples of 90°.
-func sinCosDeg(deg float64) (s, c float64) {
-	r := math.Mod(deg, 360)
-	if r < 0 {
-		r += 360
-	}
-	switch r {
-	case 0:
-		return 0, 1
-	case 90:
-		return 1, 0
-	case 180:
-		return 0, -1
-	case 270:
-		return -1, 0
-	}
-	return math.Sincos(r * math.Pi / 180)
 }
 
 // FlatPolygon is a boundary in the top structure's coordinates.

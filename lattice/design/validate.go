@@ -65,14 +65,7 @@ func (d *Design) validate(ps *problems) {
 	terracesOK := d.validateTerraces(ps)
 	for i, f := range d.Fiducials {
 		path := fmt.Sprintf("fiducials[%d]", i)
-		if f.Name == "" {
-			ps.add(path+".name", "missing")
-		}
-		for j := range i {
-			if f.Name != "" && d.Fiducials[j].Name == f.Name {
-				ps.add(path+".name", "%q is also the name of fiducials[%d]", f.Name, j)
-			}
-		}
+		validateName(ps, path, "fiducials", d.Fiducials, i, func(f Fiducial) string { return f.Name })
 		if !finite(f.AtNM[0]) || !finite(f.AtNM[1]) {
 			ps.add(path+".at_nm", "%v is not a finite position", f.AtNM)
 		} else if fieldOK && (f.AtNM[0] < 0 || f.AtNM[1] < 0 || f.AtNM[0] > d.Field.WidthNM || f.AtNM[1] > d.Field.HeightNM) {
@@ -129,14 +122,7 @@ func (d *Design) validateReferences(ps *problems) {
 	total := 0
 	for i, r := range d.References {
 		path := fmt.Sprintf("references[%d]", i)
-		if r.Name == "" {
-			ps.add(path+".name", "missing")
-		}
-		for j := range i {
-			if r.Name != "" && d.References[j].Name == r.Name {
-				ps.add(path+".name", "%q is also the name of references[%d]", r.Name, j)
-			}
-		}
+		validateName(ps, path, "references", d.References, i, func(r Reference) string { return r.Name })
 		for k, l := range r.Layers {
 			if !validLayerSpec(l) {
 				ps.add(fmt.Sprintf("%s.layers[%d]", path, k), "%q is not a GDSII layer: want L or L/D, whole numbers 0 to 32767", l)
@@ -187,15 +173,8 @@ func (d *Design) validateTerraces(ps *problems) bool {
 	unbounded := -1
 	for i, t := range d.Terraces {
 		path := fmt.Sprintf("terraces[%d]", i)
-		if t.Name == "" {
-			ps.add(path+".name", "missing")
+		if !validateName(ps, path, "terraces", d.Terraces, i, func(t Terrace) string { return t.Name }) {
 			ok = false
-		}
-		for j := range i {
-			if t.Name != "" && d.Terraces[j].Name == t.Name {
-				ps.add(path+".name", "%q is also the name of terraces[%d]", t.Name, j)
-				ok = false
-			}
 		}
 		if t.StepFrom != "" {
 			found := false
@@ -299,14 +278,7 @@ func (d *Design) validateRules(ps *problems) {
 func (d *Design) validateVariant(ps *problems, vi int, templates Templates, species map[string]bool, surf *lattice.Surface) {
 	v := &d.Variants[vi]
 	path := fmt.Sprintf("variants[%d]", vi)
-	if v.Name == "" {
-		ps.add(path+".name", "missing")
-	}
-	for j := range vi {
-		if v.Name != "" && d.Variants[j].Name == v.Name {
-			ps.add(path+".name", "%q is also the name of variants[%d]", v.Name, j)
-		}
-	}
+	validateName(ps, path, "variants", d.Variants, vi, func(v Variant) string { return v.Name })
 	if len(v.Regions) > MaxRegions {
 		ps.add(path+".regions", "%d regions, more than the limit of %d", len(v.Regions), MaxRegions)
 		return
@@ -373,20 +345,7 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 	declared := make(map[[2]string]int, len(v.TunnelGaps)) // a gap's regions, in name order
 	for gi, g := range v.TunnelGaps {
 		gp := fmt.Sprintf("%s.tunnel_gaps[%d]", path, gi)
-		pair := [2]string{min(g.A, g.B), max(g.A, g.B)}
-		if j, dup := declared[pair]; dup {
-			ps.add(gp, "the gap between %q and %q is also declared as tunnel_gaps[%d]", g.A, g.B, j)
-		} else {
-			declared[pair] = gi
-		}
-		for _, end := range []struct{ field, name string }{{"a", g.A}, {"b", g.B}} {
-			if _, ok := names[end.name]; !ok {
-				ps.add(gp+"."+end.field, "%q names no region of variant %q", end.name, v.Name)
-			}
-		}
-		if g.A == g.B && g.A != "" {
-			ps.add(gp, "a gap needs two different regions, not %q twice", g.A)
-		}
+		validatePair(ps, declared, regionPair{path: gp, list: "tunnel_gaps", index: gi, a: g.A, b: g.B, noun: "gap", of: "between"}, names, v.Name)
 		if !(g.MinNM >= 0 && g.MinNM <= MaxFieldNM) {
 			ps.add(gp+".min_nm", "%g must be between 0 (the rule's) and %g nm", g.MinNM, MaxFieldNM)
 		}
@@ -403,23 +362,58 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 	coupled := make(map[[2]string]int, len(v.Couplings))
 	for ci, c := range v.Couplings {
 		cp := fmt.Sprintf("%s.couplings[%d]", path, ci)
-		pair := [2]string{min(c.A, c.B), max(c.A, c.B)}
-		if j, dup := coupled[pair]; dup {
-			ps.add(cp, "the coupling of %q and %q is also declared as couplings[%d]", c.A, c.B, j)
-		} else {
-			coupled[pair] = ci
-		}
-		for _, end := range []struct{ field, name string }{{"a", c.A}, {"b", c.B}} {
-			if _, ok := names[end.name]; !ok {
-				ps.add(cp+"."+end.field, "%q names no region of variant %q", end.name, v.Name)
-			}
-		}
-		if c.A == c.B && c.A != "" {
-			ps.add(cp, "a coupling needs two different regions, not %q twice", c.A)
-		}
+		validatePair(ps, coupled, regionPair{path: cp, list: "couplings", index: ci, a: c.A, b: c.B, noun: "coupling", of: "of"}, names, v.Name)
 		if !(c.ToleranceNM > 0 && c.ToleranceNM <= MaxFieldNM) {
 			ps.add(cp+".tolerance_nm", "%g must be more than 0 and at most %g nm", c.ToleranceNM, MaxFieldNM)
 		}
+	}
+}
+
+// validateName adds the problems of the name of items[i], at path in
+// the list named list: missing, or the name of an earlier entry (each
+// one named). It reports whether the name is good.
+func validateName[T any](ps *problems, path, list string, items []T, i int, name func(T) string) bool {
+	n := name(items[i])
+	ok := n != ""
+	if !ok {
+		ps.add(path+".name", "missing")
+	}
+	for j := range i {
+		if n != "" && name(items[j]) == n {
+			ps.add(path+".name", "%q is also the name of %s[%d]", n, list, j)
+			ok = false
+		}
+	}
+	return ok
+}
+
+// regionPair is one of a variant's pairs of regions, a tunnel gap or a
+// coupling: its path, its list's field and index, its two ends, and the
+// words that name it in messages ("gap" "between", "coupling" "of").
+type regionPair struct {
+	path, list string
+	index      int
+	a, b       string
+	noun, of   string
+}
+
+// validatePair adds the problems of a pair of regions: declared twice
+// (seen holds the pairs so far, ends in name order, with their index), an
+// end that names no region of the variant, or the same region twice.
+func validatePair(ps *problems, seen map[[2]string]int, p regionPair, names map[string]int, variant string) {
+	key := [2]string{min(p.a, p.b), max(p.a, p.b)}
+	if j, dup := seen[key]; dup {
+		ps.add(p.path, "the %s %s %q and %q is also declared as %s[%d]", p.noun, p.of, p.a, p.b, p.list, j)
+	} else {
+		seen[key] = p.index
+	}
+	for _, end := range []struct{ field, name string }{{"a", p.a}, {"b", p.b}} {
+		if _, ok := names[end.name]; !ok {
+			ps.add(p.path+"."+end.field, "%q names no region of variant %q", end.name, variant)
+		}
+	}
+	if p.a == p.b && p.a != "" {
+		ps.add(p.path, "a %s needs two different regions, not %q twice", p.noun, p.a)
 	}
 }
 

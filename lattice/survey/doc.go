@@ -12,8 +12,10 @@
 // headers). A Topograph's pixel (i, j) counts from the lower-left corner,
 // x right and y up, like the design's field. Every error is a *ReadError
 // naming the file (and the line of a matrix) and wrapping one of ErrEmpty,
-// ErrTruncated, ErrTooLarge, ErrNotFinite, ErrRagged or ErrFormat; the
-// readers never hold more than MaxSide x MaxSide heights. WritePNG writes
+// ErrTruncated, ErrTooLarge, ErrTooManyBytes, ErrNotFinite, ErrRagged or
+// ErrFormat; the readers never hold more than MaxSide x MaxSide heights,
+// and refuse an image file (or the pixels its header declares) beyond
+// MaxImageBytes before reading it whole. WritePNG writes
 // a topograph back with its scale in PNG text chunks.
 //
 // # Frames and units

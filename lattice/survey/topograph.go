@@ -41,6 +41,9 @@ var (
 	ErrEmpty = errors.New("image is 0 x 0 pixels")
 	// ErrTooLarge: the image is larger than MaxSide pixels on a side.
 	ErrTooLarge = fmt.Errorf("image is larger than %d x %d pixels", MaxSide, MaxSide)
+	// ErrTooManyBytes: an image file, or the pixels it declares, would
+	// take more than MaxImageBytes.
+	ErrTooManyBytes = errors.New("image is too large to read")
 	// ErrNotFinite: a height is NaN or infinite.
 	ErrNotFinite = errors.New("height is not a finite number")
 	// ErrRagged: the lines of a height matrix differ in length.

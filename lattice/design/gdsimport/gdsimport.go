@@ -28,6 +28,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/internal/gdsii"
+	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -107,9 +108,37 @@ type Options struct {
 	Limits gdsii.FlattenLimits
 }
 
+// MaxFileBytes is the largest layout ReadFile, Inspect and Read take:
+// far more than the cells around one scan field hold (the largest field
+// is 20 µm across), and small enough that a layout at the limit is read
+// in seconds. A larger file is refused by its size before it is read.
+const MaxFileBytes = 256 << 20
+
+// readLimits are gdsii's default limits within MaxFileBytes.
+var readLimits = func() gdsii.ReadLimits {
+	l := gdsii.DefaultReadLimits
+	l.Bytes = MaxFileBytes
+	return l
+}()
+
+// openLayout opens the layout at path, refusing a regular file larger
+// than MaxFileBytes by its size; errors name the file.
+func openLayout(path string) (*os.File, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	if st, err := f.Stat(); err == nil && st.Mode().IsRegular() && st.Size() > MaxFileBytes {
+		f.Close()
+		return nil, fmt.Errorf("%s: the file holds %s, more than the %s limit for a GDSII layout (save the cells around the scan field as a layout of their own)",
+			path, jsonfile.Bytes(st.Size()), jsonfile.Bytes(MaxFileBytes))
+	}
+	return f, nil
+}
+
 // ReadFile reads the layout at path; errors name the file.
 func ReadFile(path string, opt Options) (*Layout, error) {
-	f, err := os.Open(path)
+	f, err := openLayout(path)
 	if err != nil {
 		return nil, err
 	}
@@ -124,7 +153,7 @@ func Read(r io.Reader, name string, opt Options) (*Layout, error) {
 	if len(opt.Layers) == 0 {
 		return nil, errors.New("no layer chosen: give at least one layer to import")
 	}
-	lib, err := gdsii.Read(r)
+	lib, err := gdsii.ReadLimited(r, readLimits)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
@@ -406,12 +435,12 @@ type LayerCount struct {
 
 // Inspect reads the layout at path and says what it holds.
 func Inspect(path string) (*Contents, error) {
-	f, err := os.Open(path)
+	f, err := openLayout(path)
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	lib, err := gdsii.Read(f)
+	lib, err := gdsii.ReadLimited(f, readLimits)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", path, err)
 	}

@@ -3,6 +3,9 @@ package gdsimport
 import (
 	"bytes"
 	"math"
+	"os"
+	"path/filepath"
+	"strings"
 	"testing"
 
 	"github.com/golang/geo/r2"
@@ -128,4 +131,25 @@ func FuzzRead(f *testing.F) {
 		l.Sites(surf, lattice.ChipFrame{OffsetNM: r2.Point{X: 10000, Y: 11000}})
 		l.Reference("r", lattice.ChipFrame{})
 	})
+}
+
+// Issue 16: a layout larger than MaxFileBytes is refused by its size,
+// before a byte is read (a valid 1 GiB layout took 48 s and 1.5 GB
+// before its 10^7th element was refused).
+func TestReadRefusesALargeLayout(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "chip.gds")
+	f, err := os.Create(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f.Write(micronLayout(t))
+	f.Truncate(1 << 30) // sparse: no disk, no time
+	f.Close()
+	want := "chip.gds: the file holds 1 GiB, more than the 256 MiB limit for a GDSII layout"
+	if _, err := ReadFile(path, Options{Layers: []Layer{{Layer: 5, AnyDatatype: true}}}); err == nil || !strings.Contains(err.Error(), want) {
+		t.Errorf("ReadFile = %v; want %q", err, want)
+	}
+	if _, err := Inspect(path); err == nil || !strings.Contains(err.Error(), want) {
+		t.Errorf("Inspect = %v; want %q", err, want)
+	}
 }
