@@ -25,6 +25,7 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 		drawPath(pb, v, t.Boundary, true, 2, ColStep, 200)
 	}
 	drawReferences(pb, v, sc.References)
+	drawSurveyMarks(pb, v, sc.Survey)
 	if rt := sc.Route; rt != nil {
 		r.near = drawRoute(pb, v, rt, r.near[:0])
 	}
