@@ -54,6 +54,19 @@ type Layer struct {
 	Selected bool
 }
 
+// layerColor is the colour the view gives layer L of sc: muted when
+// the scene dims its layers, lightened when L is selected.
+func (sc *Scene) layerColor(L Layer) color.NRGBA {
+	c := L.Color
+	if sc.DimLayers {
+		c = desaturate(c)
+	}
+	if L.Selected {
+		c = Mix(c, RGB(0xff, 0xff, 0xff), 0.3)
+	}
+	return c
+}
+
 // Mark is a design-rule finding drawn on the view.
 type Mark struct {
 	At       r2.Point // the position the finding names, field nm
