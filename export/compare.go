@@ -322,10 +322,7 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 		d.y += 7
 	}
 	d.y += 2
-	date := "(not given)"
-	if !opt.Date.IsZero() {
-		date = opt.Date.Format("Monday 2 January 2006")
-	}
+	date := printedDate(opt)
 	profiles := map[string]bool{}
 	var profList []string
 	for _, r := range results {
@@ -335,11 +332,7 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 		}
 	}
 	kv := [][2]string{{"Date", date}, {"Instrument profile", listShort(profList, 4)}, {"Variants", fmt.Sprint(len(results))}}
-	if opt.Generator != "" {
-		kv = append(kv, [2]string{"Planned with", opt.Generator})
-	}
-	d.keyValues(kv, 0.28)
-	d.cautionBox()
+	reportFacts(d, opt, kv)
 
 	summaryTable(d, compareRows(results), compareShares)
 	if diffs := differenceRows(results); len(diffs) > 0 {

@@ -9,6 +9,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/internal/jsonfile"
+	"dimerpath/internal/units"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -236,12 +237,23 @@ func (b *builder) build() (*Plan, error) {
 	}
 	drift.Margin = margin
 	b.marginUsed = margin
+	// Said once per region: a tolerance too tight for the registration
+	// error makes every stroke of a region fail alike.
+	var forced []*strokeNote
 	for _, st := range steps {
 		for _, j := range st.forced {
 			s := b.strokes[st.jobs[j].stroke]
-			b.warnings = append(b.warnings, fmt.Sprintf("stroke %d (region %q) cannot be held within ±%g nm even right after a registration at the planned drift (%.3g nm/min) and creep: expect it to leave its tolerance",
-				s.ID, s.Region, s.ToleranceNM, drift.RateNMPerMin))
+			n := noteFor(&forced, s.Region, "", s.ToleranceNM)
+			n.ids = append(n.ids, s.ID)
 		}
+	}
+	for _, n := range forced {
+		what := fmt.Sprintf("stroke %d (region %q) cannot be held", n.ids[0], n.region)
+		if len(n.ids) > 1 {
+			what = fmt.Sprintf("%d strokes of region %q (ids %s) cannot be held", len(n.ids), n.region, units.Ranges(n.ids, 6))
+		}
+		b.warnings = append(b.warnings, fmt.Sprintf("%s within ±%.3g nm even right after a registration at the planned drift (%.3g nm/min) and creep: expect %s to leave %s tolerance",
+			what, n.tolNM, drift.RateNMPerMin, map[bool]string{true: "them", false: "it"}[len(n.ids) > 1], map[bool]string{true: "their", false: "its"}[len(n.ids) > 1]))
 	}
 	// A timeline holds a write or dwell per stroke, a move before each,
 	// a registration, a switch, a conditioning and a verification per
@@ -542,6 +554,31 @@ func (b *builder) conditions(u ModeUse) []Conditions {
 	return cs
 }
 
+// strokeNote gathers the strokes of one region (and kind, and
+// tolerance) that share a warning, so that it is said once for them.
+type strokeNote struct {
+	region, kind string
+	tolNM        float64
+	ids          []int
+	// longestS is the longest stroke's duration, budgetS its drift
+	// budget; pieces counts the pieces they were cut into.
+	longestS, budgetS float64
+	pieces            int
+}
+
+// noteFor returns the note of notes for the region, kind and tolerance,
+// appending a new one (notes keep the order they were first met in).
+func noteFor(notes *[]*strokeNote, region, kind string, tolNM float64) *strokeNote {
+	for _, n := range *notes {
+		if n.region == region && n.kind == kind && n.tolNM == tolNM {
+			return n
+		}
+	}
+	n := &strokeNote{region: region, kind: kind, tolNM: tolNM}
+	*notes = append(*notes, n)
+	return n
+}
+
 // fiducials takes the design's marks; a design without any gets one at
 // the field centre, with a warning.
 func (b *builder) fiducials() {
@@ -565,6 +602,7 @@ func (b *builder) splitLong() error {
 	m := b.model
 	rate := m.r0 * m.rateMul
 	var out []Stroke
+	var split []*strokeNote
 	pieces := float64(len(b.strokes))
 	for _, s := range b.strokes {
 		err, approach := m.errLocal, 0.0
@@ -600,8 +638,12 @@ func (b *builder) splitLong() error {
 		}
 		k := int(kf)
 		parts := splitPath(s.Path, k)
-		b.warnings = append(b.warnings, fmt.Sprintf("a %s stroke of region %q takes %.0f s, longer than its %.0f s drift budget (±%g nm at %.3g nm/min): split into %d pieces at registrations",
-			s.Kind, s.Region, s.DurationS, budget, s.ToleranceNM, rate, k))
+		n := noteFor(&split, s.Region, string(s.Kind), s.ToleranceNM)
+		n.ids = append(n.ids, s.ID)
+		n.pieces += k
+		if s.DurationS > n.longestS {
+			n.longestS, n.budgetS = s.DurationS, budget
+		}
 		for _, p := range parts {
 			piece := s
 			piece.Path = p
@@ -612,6 +654,16 @@ func (b *builder) splitLong() error {
 		}
 	}
 	b.strokes = out
+	// Said once per region and kind of stroke, not once per stroke.
+	for _, n := range split {
+		if len(n.ids) == 1 {
+			b.warnings = append(b.warnings, fmt.Sprintf("a %s stroke of region %q takes %.3g s, longer than its %.3g s drift budget (±%.3g nm at %.3g nm/min): split into %d pieces at registrations",
+				n.kind, n.region, n.longestS, n.budgetS, n.tolNM, rate, n.pieces))
+			continue
+		}
+		b.warnings = append(b.warnings, fmt.Sprintf("%d %s strokes of region %q outlast their drift budget (±%.3g nm at %.3g nm/min; the longest takes %.3g s against %.3g s): split into %d pieces in all, at registrations",
+			len(n.ids), n.kind, n.region, n.tolNM, rate, n.longestS, n.budgetS, n.pieces))
+	}
 	return nil
 }
 

@@ -426,10 +426,12 @@ func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline
 			st := begin(StepReregister, stw.species, "find the write area again after the anneal; the first registration of the next step re-registers on the fiducials and the features already written")
 			tl.add(Action{Kind: ActRefind, From: at, To: f0, DurationS: prof.Process.RefindS, Note: "approach and find the write area again at fiducial " + c.fiducials[stw.first].Name}, -1)
 			end(st)
-		} else if at != f0 {
-			tl.add(Action{Kind: ActMove, From: at, To: f0, DurationS: c.plainMove(at, f0), Note: "to fiducial " + c.fiducials[stw.first].Name}, -1)
 		}
 		lit := begin(StepLithography, stw.species, "")
+		if k == 0 && at != f0 {
+			// The move to the first fiducial is the step's first action.
+			tl.add(Action{Kind: ActMove, From: at, To: f0, DurationS: c.plainMove(at, f0), Note: "to fiducial " + c.fiducials[stw.first].Name}, -1)
+		}
 		stw.seg0 = seg
 		stw.features = b.features(stw)
 		pending := map[int][]feature{} // segment (in step) -> features completed in it
@@ -470,7 +472,7 @@ func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline
 			continue
 		}
 		dose := begin(StepDose, stw.species, "")
-		dose.Precursor, dose.ExposureL = Precursor(stw.species), prof.Process.Dose.ExposureL
+		dose.Precursor, dose.ExposureL = design.Precursor(stw.species), prof.Process.Dose.ExposureL
 		dose.Note = fmt.Sprintf("%s, %g L at %.2g Torr, then pump down", dose.Precursor, prof.Process.Dose.ExposureL, prof.Process.Dose.PressureTorr)
 		tl.add(Action{Kind: ActDose, From: at, To: at, DurationS: prof.Process.Dose.TimeS(), Note: "dose " + dose.Note + "; tip retracted"}, -1)
 		end(dose)

@@ -40,15 +40,27 @@ func (s *Session) editTerraces(label, key string, f func(ts []design.Terrace) []
 	for i := range cp {
 		cp[i].Boundary = slices.Clone(cp[i].Boundary)
 	}
-	err := s.validEdit(label, func() func() {
+	return s.editSurface(label, key, func() func() {
 		s.d.Terraces = f(cp)
 		return func() { s.d.Terraces = old }
+	})
+}
+
+// editSurface applies an edit of the surface (terraces or field; apply
+// returns its undo) as one undo step, kept only if the design's rules
+// accept it and the surface can be made again with every region
+// rasterised on it; otherwise it is undone and the error returned.
+func (s *Session) editSurface(label, key string, apply func() (undo func())) error {
+	var undo func()
+	err := s.validEdit(label, func() func() {
+		undo = apply()
+		return undo
 	})
 	if err != nil {
 		return err
 	}
 	if err := s.terracesChanged(); err != nil {
-		s.d.Terraces = old
+		undo()
 		s.rebuildSurface()
 		return err
 	}
@@ -196,18 +208,8 @@ func (s *Session) SetFieldSize(w, h float64) error {
 		return nil
 	}
 	label := fmt.Sprintf("set the field to %g x %g nm", w, h)
-	err := s.validEdit(label, func() func() {
+	return s.editSurface(label, "", func() func() {
 		s.d.Field = f
 		return func() { s.d.Field = old }
 	})
-	if err != nil {
-		return err
-	}
-	if err := s.terracesChanged(); err != nil {
-		s.d.Field = old
-		s.rebuildSurface()
-		return err
-	}
-	s.commit(label, "", ChangeTerraces|ChangeSites|ChangeRegions)
-	return nil
 }
