@@ -10,6 +10,11 @@ import (
 type SceneOptions struct {
 	Route    bool // the plan's route, when the current variant has one
 	Findings bool // design-rule findings
+	// Survey shows the design's survey: its image at SurveyOpacity (0
+	// to 1; 0 shows only its outline, step edges, defects and the
+	// placements found).
+	Survey        bool
+	SurveyOpacity float64
 }
 
 // MaxStrayMarks caps the stray sites of a plan drawn on the lattice.
@@ -42,6 +47,7 @@ func (s *Session) Scene(o SceneOptions) *render.Scene {
 		sc.Fiducials = append(sc.Fiducials, r2.Point{X: f.AtNM[0], Y: f.AtNM[1]})
 	}
 	sc.References = s.referenceOverlays()
+	sc.Survey = s.surveyOverlay(o)
 	if o.Route {
 		if p, _ := s.Plan(); p != nil {
 			sc.Route = render.RouteOf(p)
