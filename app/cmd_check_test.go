@@ -2,8 +2,13 @@ package app
 
 import (
 	"bytes"
+	"encoding/json"
+	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
+
+	"dimerpath/planner"
 )
 
 func run(args ...string) (code int, stdout, stderr string) {
@@ -87,5 +92,57 @@ func TestInfoCommand(t *testing.T) {
 	}
 	if code, _, errs := run("info", "../testdata/designs/truncated.json"); code != ExitFailure || errs == "" {
 		t.Errorf("info on a truncated file: exit %d, stderr %q", code, errs)
+	}
+}
+
+// TestCheckOverclearingAgreesWithPlan: check runs the plan's own
+// over-clearing test (issue 10 §3), so with a profile whose stray limit
+// the demo's lead ends exceed, check and plan both exit 1 and name the
+// same sites' regions; with the default profile both pass.
+func TestCheckOverclearingAgreesWithPlan(t *testing.T) {
+	prof := planner.DefaultProfile()
+	prof.StrayLimit = 1e-6
+	strict := filepath.Join(t.TempDir(), "strict.json")
+	if err := planner.SaveProfile(strict, prof); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs := run("check", demoPath, "--variant", "gap-9", "--profile", strict)
+	if code != ExitFindings {
+		t.Fatalf("check with stray limit 1e-6: exit %d, want %d\n%s%s", code, ExitFindings, out, errs)
+	}
+	for _, w := range []string{"error   over-clearing  [source-lead]", "error   over-clearing  [drain-lead]", "outside every region clear with more than 0.0001 %"} {
+		if !strings.Contains(out, w) {
+			t.Errorf("check lacks %q:\n%s", w, out)
+		}
+	}
+	pcode, pout, perrs := run("plan", demoPath, "--variant", "gap-9", "--profile", strict, "--json")
+	if pcode != ExitFindings {
+		t.Fatalf("plan with stray limit 1e-6: exit %d, want %d: %s", pcode, ExitFindings, perrs)
+	}
+	var plan struct {
+		Coverage struct {
+			OverLimit int      `json:"over_limit"`
+			Issues    []string `json:"issues"`
+		} `json:"coverage"`
+	}
+	if err := json.Unmarshal([]byte(pout), &plan); err != nil {
+		t.Fatal(err)
+	}
+	if plan.Coverage.OverLimit == 0 || len(plan.Coverage.Issues) == 0 {
+		t.Fatalf("the plan finds no stray site: %+v", plan.Coverage)
+	}
+	// Each issue names the region whose stroke reaches the site.
+	region := regexp.MustCompile(`of region "([^"]+)"`)
+	for _, is := range plan.Coverage.Issues {
+		m := region.FindStringSubmatch(is)
+		if m == nil || !strings.Contains(out, "over-clearing  ["+m[1]+"]") {
+			t.Errorf("the plan's stray site %q is not in check's findings:\n%s", is, out)
+		}
+	}
+	if code, out, errs := run("check", demoPath, "--profile", "rt"); code != ExitOK || strings.Contains(out, "over-clearing") {
+		t.Errorf("check with the rt preset: exit %d\n%s%s", code, out, errs)
+	}
+	if code, _, errs := run("check", demoPath, "--profile", "no-such-profile.json"); code != ExitFailure || !strings.Contains(errs, "no-such-profile.json") {
+		t.Errorf("check with a missing profile: exit %d, stderr %q", code, errs)
 	}
 }

@@ -90,23 +90,28 @@ file and renamed into place, also when some variant could not be planned
 // changed.
 func printComparison(w io.Writer, results []planner.VariantResult) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "variant\tsession (mean)\tP10\tP90\tlithography steps\tsegments\tP(within tolerance)\tP(all windows good)\tcoverage\t")
+	fmt.Fprintln(tw, "variant\tsession (mean)\tP10\tP90\tlithography steps\tsegments\tP(within tolerance)\tP(all windows good)\t68 % interval\t95 % interval\tcoverage\t")
 	for _, r := range results {
 		if r.Err != nil {
-			fmt.Fprintf(tw, "%s\tnot planned\t\t\t\t\t\t\t\t\n", r.Variant)
+			fmt.Fprintf(tw, "%s\tnot planned\t\t\t\t\t\t\t\t\t\t\n", r.Variant)
 			continue
 		}
 		p := r.Plan
-		all := fmt.Sprintf("%.4g", p.Yield.All)
-		if p.Yield.All == 0 && p.Yield.Windows > 0 {
-			all = fmt.Sprintf("10^%.1f", p.Yield.Log10All)
+		y := p.Yield
+		// The point value is exact (Poisson-binomial); the intervals come
+		// from sampling the templates' probabilities in their
+		// uncertainties. A variant without windows has nothing to sample.
+		all, i68, i95 := units.Probability(y.All, y.Log10All), "—", "—"
+		if y.Windows > 0 {
+			i68, i95 = units.ProbabilityRange(y.All68, y.Log10All68), units.ProbabilityRange(y.All95, y.Log10All95)
 		}
 		// Times to the second (h:mm:ss): two variants a few seconds apart
 		// read alike in whole minutes.
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%d\t%.3f\t%s\t%s\t\n", r.Variant, units.Clock(p.TotalS), units.Clock(p.P10S), units.Clock(p.P90S),
-			lithographySteps(p), len(p.Segments), p.PInTolerance, all, coverageWord(p))
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%d\t%.3f\t%s\t%s\t%s\t%s\t\n", r.Variant, units.Clock(p.TotalS), units.Clock(p.P10S), units.Clock(p.P90S),
+			lithographySteps(p), len(p.Segments), p.PInTolerance, all, i68, i95, coverageWord(p))
 	}
 	tw.Flush()
+	fmt.Fprintln(w, "P(all windows good): every window opened as drawn with exactly one donor; its intervals from the window templates' uncertainties")
 	var kinds []planner.TimeKind
 	for _, k := range planner.TimeKinds {
 		for _, r := range results {

@@ -120,7 +120,7 @@ func runExport(env Env, args []string, fl exportFlags) int {
 	if err := export.WriteFile(ctx, fl.report.out, p, opt); err != nil {
 		return writeFailed(fail, fl.report.out, err)
 	}
-	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, expected %s%s)\n",
+	fmt.Fprintf(env.Stderr, "dimerpath export: wrote %s (%s, variant %s: %d strokes in %d segments, session %s on average%s)\n",
 		fl.report.out, p.Design, p.Variant, len(p.Strokes), len(p.Segments), units.Duration(p.TotalS), sizeNote(fl.report.out))
 	return coverageExit(env, "export", p)
 }

@@ -98,7 +98,7 @@ design has no survey, or the core does not fit.`,
 					if err != nil {
 						return fail("%v", err)
 					}
-					d.Survey = laySurvey(l, an, d.Survey, relativeTo(args[0], *image), opt.Regions)
+					d.Survey = an.Lay(l, d.Survey, relativeTo(args[0], *image), opt.Regions)
 					if l, err = d.Lay(*variant); err != nil {
 						return fail("%s: %v", args[0], err)
 					}
@@ -154,55 +154,6 @@ func relativeTo(designPath, image string) string {
 		return filepath.ToSlash(rel)
 	}
 	return image
-}
-
-// laySurvey turns an analysis into the design's survey: where the old
-// survey sat, or centred on the core and turned so that the rows of the
-// image's largest terrace run along the core terrace's rows.
-func laySurvey(l *design.Layout, an *survey.Analysis, old *design.Survey, image string, regions []string) *design.Survey {
-	if old != nil {
-		return an.DesignSurvey(image, r2.Point{X: old.OffsetNM[0], Y: old.OffsetNM[1]}, old.RotationDeg)
-	}
-	centre, terrace := coreCentre(l, regions)
-	rot := an.AlignRotation()
-	if terrace >= 0 && an.RowsInField(rot) != l.Surface.Terraces[terrace].Rows {
-		rot += 90
-		if rot > 90 {
-			rot -= 180
-		}
-	}
-	s := an.DesignSurvey(image, r2.Point{}, rot)
-	mid := s.ToField(s.PixelToSurvey(float64(an.Width)/2, float64(an.Height)/2))
-	s.OffsetNM = [2]float64{centre.X - mid.X, centre.Y - mid.Y}
-	return s
-}
-
-// coreCentre returns the centre of the core's bounding box and the
-// terrace at it (-1 off every terrace); the core is the named regions,
-// or every atomic-precision region.
-func coreCentre(l *design.Layout, regions []string) (r2.Point, int) {
-	want := map[string]bool{}
-	for _, n := range regions {
-		want[n] = true
-	}
-	b := r2.EmptyRect()
-	for i := range l.Regions {
-		rl := &l.Regions[i]
-		if len(regions) > 0 && !want[rl.Region.Name] {
-			continue
-		}
-		if _, ap := design.KeepOutClass(rl); len(regions) == 0 && !ap {
-			continue
-		}
-		if !rl.Bounds.IsEmpty() {
-			b = b.Union(rl.Bounds)
-		}
-	}
-	if b.IsEmpty() {
-		b = l.Surface.Field
-	}
-	c := b.Center()
-	return c, l.Surface.TerraceAt(c)
 }
 
 // placeJSON is one placement as place --json prints it.

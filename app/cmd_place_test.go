@@ -2,6 +2,7 @@ package app
 
 import (
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -94,5 +95,84 @@ func TestSurveyInto(t *testing.T) {
 	}
 	if code, _, errs := run("survey", img, "--at", "1,2"); code != ExitFailure || !strings.Contains(errs, "go with --into") {
 		t.Errorf("--at without --into: exit %d, %s", code, errs)
+	}
+}
+
+// TestSurveyIntoTerraces makes the survey's terraces the design's: the
+// synthetic survey has one single-height step, so the design gets two
+// terraces, the second a step from the first, up or down as the survey's
+// heights say (its up_from), rows turned by 90°; and the tilted image is
+// refused when laid 2° off the axes.
+func TestSurveyIntoTerraces(t *testing.T) {
+	dir := t.TempDir()
+	img := writeSurvey(t, dir)
+	data, err := os.ReadFile("../testdata/designs/floating-gate.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	des := filepath.Join(dir, "d.json")
+	os.WriteFile(des, data, 0o644)
+	out := filepath.Join(dir, "out.json")
+	if code, _, errs := run("survey", img, "--into", des, "--terraces", "-o", out); code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var d struct {
+		Terraces []struct {
+			Name, Rows, StepFrom, Step string
+			Boundary                   [][2]float64 `json:"boundary_nm"`
+		} `json:"terraces"`
+		Survey struct {
+			Terraces []struct {
+				UpFrom    *int         `json:"up_from"`
+				PolygonNM [][2]float64 `json:"polygon_nm"`
+			} `json:"terraces"`
+		} `json:"survey"`
+	}
+	raw, _ := os.ReadFile(out)
+	if err := json.Unmarshal(raw, &d); err != nil {
+		t.Fatal(err)
+	}
+	// json's field matching ignores case but not underscores.
+	var steps struct {
+		Terraces []struct {
+			StepFrom string `json:"step_from"`
+		} `json:"terraces"`
+	}
+	json.Unmarshal(raw, &steps)
+	if len(d.Terraces) != 2 || len(d.Survey.Terraces) != 2 {
+		t.Fatalf("design terraces %+v from survey terraces %+v", d.Terraces, d.Survey.Terraces)
+	}
+	if steps.Terraces[1].StepFrom != d.Terraces[0].Name || len(d.Terraces[0].Boundary) != 0 || len(d.Terraces[1].Boundary) < 3 {
+		t.Errorf("terraces %+v: want the second a step from the first, with an outline", d.Terraces)
+	}
+	// The base is the larger survey terrace; the other is a step up from
+	// it exactly when its up_from names the base.
+	area := func(p [][2]float64) float64 {
+		a := 0.0
+		for k := range p {
+			q := p[(k+1)%len(p)]
+			a += p[k][0]*q[1] - q[0]*p[k][1]
+		}
+		return math.Abs(a) / 2
+	}
+	st := d.Survey.Terraces
+	base, other := 0, 1
+	if area(st[1].PolygonNM) > area(st[0].PolygonNM) {
+		base, other = 1, 0
+	}
+	want := ""
+	switch {
+	case st[other].UpFrom != nil && *st[other].UpFrom == base:
+		want = "up"
+	case st[base].UpFrom != nil && *st[base].UpFrom == other:
+		want = "down"
+	default:
+		t.Fatal("the analysis said neither terrace is up from the other")
+	}
+	if d.Terraces[1].Step != want {
+		t.Errorf("step %q, the survey's heights say %q", d.Terraces[1].Step, want)
+	}
+	if code, _, errs := run("survey", img, "--into", des, "--terraces", "--at", "900,900", "--rotation", "2", "-o", out); code != ExitFailure || !strings.Contains(errs, "rotation") {
+		t.Errorf("rows 7° off the axes: exit %d, %s", code, errs)
 	}
 }

@@ -28,16 +28,23 @@ func init() {
 		Help: `Plans the write of one variant (default: the first) with an instrument
 profile (--profile: a profile file, or a preset: rt room temperature, lt 4 K;
 default rt). Prints each region's write mode and why, the tip conditions, the
-expected write time with its breakdown and its P10/P50/P90 spread, the
-drift-safe segments with their fiducials, the dopant windows with the chance
-that every one takes exactly one donor, and the coverage check.
+session time (the mean of a Monte Carlo on the printed plan) with its
+breakdown and its P10/P50/P90 spread, the process steps (one lithography step
+per dopant, each followed by its dose and anneal), the drift-safe segments of
+each step with their registration (coarse on a fiducial, or local beside the
+work) and the probability that their strokes stay within tolerance, the
+coupled pairs, the dopant windows with the chance that every one takes
+exactly one donor and how long each stays open before its dose, and the
+coverage check.
 
---json prints one JSON object instead: total_s, breakdown (seconds by kind,
-summing to total_s), p10_s, p50_s, p90_s, floor_s, by_hand_s, segments (each
-with its strokes, fiducial, start_s, end_s), windows (each with species and
-probability), yield_all, yield, modes (region -> mode and reason), coverage,
-warnings. The full plan (every stroke and action) is written by
-"dimerpath export".
+--json prints one JSON object instead: total_s (the Monte Carlo mean),
+breakdown (seconds by kind, summing to total_s), p10_s, p50_s, p90_s,
+schedule_s, floor_s, by_hand_s, steps (kind, species, start_s, duration_s,
+segments), segments (each with its step, registration and its reason,
+strokes, fiducial, start_s, end_s, p_in_tolerance), p_in_tolerance,
+couplings, windows (each with species, probability and open_s), yield_all,
+yield, modes (region -> mode and reason), coverage, warnings. The full plan (every stroke and action) is
+written by "dimerpath export".
 
 A plan that needs a bias, current or speed beyond the profile's limits is
 refused (exit status 2). Long plans report progress on stderr; Ctrl-C stops
@@ -181,11 +188,41 @@ func printSteps(w io.Writer, p *planner.Plan) {
 	for i, st := range p.Steps {
 		what := st.Note
 		if st.Kind == planner.StepLithography {
-			what = fmt.Sprintf("%d segment(s); %s", len(st.Segments), st.Note)
+			what = fmt.Sprintf("%d segment%s; %s", len(st.Segments), map[bool]string{true: "s", false: ""}[len(st.Segments) != 1], st.Note)
 		}
 		fmt.Fprintf(tw, "  %d\t%s\t%s\t%s\t%s\t%s\n", i+1, st.Kind, st.Species, units.Duration(st.StartS), units.Duration(st.DurationS), what)
 	}
 	tw.Flush()
+}
+
+// maxReasons is how many reasons for the kinds of registration the
+// summary lists; the plan file gives each segment's.
+const maxReasons = 12
+
+// printRegistrationReasons says why the segments register as they do:
+// each kind of registration with its reason and the segments (by their
+// number on the printed plan) it is given for.
+func printRegistrationReasons(w io.Writer, p *planner.Plan) {
+	rs := p.RegistrationReasons()
+	if len(rs) == 0 {
+		return
+	}
+	fmt.Fprintln(w, "  why each segment registers as it does:")
+	for i, r := range rs {
+		if i == maxReasons {
+			fmt.Fprintf(w, "    ... %d more reasons (each segment's is in the plan file: dimerpath export -o PLAN.json)\n", len(rs)-maxReasons)
+			break
+		}
+		nums := make([]int, len(r.Segments))
+		for k, g := range r.Segments {
+			nums[k] = g + 1
+		}
+		what := "segment"
+		if len(nums) > 1 {
+			what = "segments"
+		}
+		fmt.Fprintf(w, "    %s, %s %s: %s\n", r.Kind, what, units.Ranges(nums, 8), r.Reason)
+	}
 }
 
 // printSegments lists each lithography step's segments: the kind of
@@ -230,12 +267,13 @@ func printSegments(w io.Writer, p *planner.Plan) {
 				if g.BudgetS > 0 {
 					budget = units.Duration(g.BudgetS)
 				}
-				tight = fmt.Sprintf("%s ±%g nm (%s)", s.Region, s.ToleranceNM, budget)
+				tight = fmt.Sprintf("%s ±%.3g nm (%s)", s.Region, s.ToleranceNM, budget)
 			}
 			fmt.Fprintf(tw, "    %d\t%s\t%s\t%s\t%s\t%s\t%.3f\t%d\n", g.Index+1, g.Registration, at, units.Duration(g.StartS), units.Duration(g.EndS-g.StartS), tight, g.PInTolerance, len(g.Strokes))
 		}
 		tw.Flush()
 	}
+	printRegistrationReasons(w, p)
 	d := p.Drift
 	fmt.Fprintf(w, "  P(every stroke and coupled pair within tolerance) = %.3f, sampled on this plan; segments planned for %.3g nm/min of drift, %.3g of creep and registration errors at %.2f σ, margin ×%.2f",
 		p.PInTolerance, d.RateNMPerMin, d.CreepFraction, d.ErrorZ, d.Margin)

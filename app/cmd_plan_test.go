@@ -164,7 +164,29 @@ func TestCompareTable(t *testing.T) {
 	if code != ExitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	for _, want := range []string{"gap-9", "gap-12-source", "P(all windows good)", "0.5364"} {
+	// Each row shows P(all windows good) with its 68 % and 95 % intervals,
+	// the same as the variant's own plan (issue 10 §4).
+	pout, errs, code := runMain(t, "plan", demoPath, "--profile", "lt", "--variant", "gap-9", "--json")
+	if code != ExitOK {
+		t.Fatalf("plan: exit %d: %s", code, errs)
+	}
+	var plan struct {
+		Yield struct {
+			All   float64    `json:"all"`
+			All68 [2]float64 `json:"all_68"`
+			All95 [2]float64 `json:"all_95"`
+		} `json:"yield"`
+	}
+	if err := json.Unmarshal([]byte(pout), &plan); err != nil {
+		t.Fatal(err)
+	}
+	y := plan.Yield
+	if !(y.All95[0] < y.All68[0] && y.All68[0] < y.All && y.All < y.All68[1] && y.All68[1] < y.All95[1]) {
+		t.Fatalf("plan's yield intervals not nested around the point value: %+v", y)
+	}
+	g3 := func(v float64) string { return strconv.FormatFloat(v, 'g', 3, 64) }
+	row := fmt.Sprintf("%s  %s to %s  %s to %s", g3(y.All), g3(y.All68[0]), g3(y.All68[1]), g3(y.All95[0]), g3(y.All95[1]))
+	for _, want := range []string{"gap-9", "gap-12-source", "P(all windows good)  68 % interval   95 % interval", row} {
 		if !strings.Contains(out, want) {
 			t.Errorf("compare output lacks %q:\n%s", want, out)
 		}

@@ -19,7 +19,7 @@ import (
 func init() {
 	Register(&Command{
 		Name:    "survey",
-		Usage:   "survey IMAGE [--size W,H] [--threshold K] [--json] [--into DESIGN.json [--at X,Y] [--rotation DEG] [-o OUT.json]]",
+		Usage:   "survey IMAGE [--size W,H] [--threshold K] [--json] [--into DESIGN.json [--at X,Y] [--rotation DEG] [--terraces] [-o OUT.json]]",
 		Summary: "calibrate a survey topograph on the lattice; find its terraces, step edges and defects",
 		Help: `Reads a survey topograph of Si(100)-2x1:H: a grey-scale PNG or TIFF (8 or 16
 bits a pixel) or a plain-text height matrix (numbers separated by spaces, tabs
@@ -48,7 +48,12 @@ still validates). The survey sits where the design's old survey sat, or
 --at X,Y (the field position of the image's lower-left corner, nm) and
 --rotation DEG (the field angle of its x axis); by default it is centred on
 the device's atomic-precision core and turned so that the dimer rows of the
-image's largest terrace run along the core terrace's rows.
+image's largest terrace run along the core terrace's rows. With --terraces the
+design's terraces become the survey's: the largest takes the rest of the
+field, the others their outlines, each step_from the terrace beside it with
+step up or down as the survey's heights say, in the antiphase registry nearer
+the imaged dimers (refused when the survey's rows run more than 1° from the
+field's axes: give --rotation).
 
 Exit status: 0 analysed, 2 the image could not be read (truncated, 0 x 0,
 more than 8192 x 8192 pixels, NaN heights, ragged matrix lines) or shows no
@@ -61,6 +66,7 @@ lattice to calibrate on.`,
 			at := fs.String("at", "", "with --into: the field position `X,Y` (nm) of the image's lower-left corner")
 			rotation := fs.Float64("rotation", math.NaN(), "with --into: the field angle (`DEG`) of the image's x axis")
 			out := fs.String("o", "", "with --into: write the design to `OUT.json` (default: back to DESIGN.json)")
+			terraces := fs.Bool("terraces", false, "with --into: make the survey's terraces the design's")
 			return func(env Env, args []string) int {
 				if len(args) != 1 {
 					fmt.Fprintln(env.Stderr, "dimerpath survey: want one image: dimerpath survey IMAGE [--size W,H] [--json]")
@@ -86,10 +92,10 @@ lattice to calibrate on.`,
 					return ExitFailure
 				}
 				if *into != "" {
-					return surveyInto(env, an, args[0], *into, *at, *rotation, *out)
+					return surveyInto(env, an, args[0], *into, *at, *rotation, *out, *terraces)
 				}
-				if *at != "" || !math.IsNaN(*rotation) || *out != "" {
-					fmt.Fprintln(env.Stderr, "dimerpath survey: --at, --rotation and -o go with --into DESIGN.json")
+				if *at != "" || !math.IsNaN(*rotation) || *out != "" || *terraces {
+					fmt.Fprintln(env.Stderr, "dimerpath survey: --at, --rotation, --terraces and -o go with --into DESIGN.json")
 					return ExitFailure
 				}
 				if *asJSON {
@@ -110,7 +116,7 @@ lattice to calibrate on.`,
 
 // surveyInto puts the analysis into a design's survey and writes the
 // design.
-func surveyInto(env Env, an *survey.Analysis, image, path, at string, rotation float64, out string) int {
+func surveyInto(env Env, an *survey.Analysis, image, path, at string, rotation float64, out string, terraces bool) int {
 	fail := func(format string, a ...any) int {
 		fmt.Fprintf(env.Stderr, "dimerpath survey: "+format+"\n", a...)
 		return ExitFailure
@@ -151,7 +157,14 @@ func surveyInto(env Env, an *survey.Analysis, image, path, at string, rotation f
 			old.RotationDeg = rotation
 		}
 	}
-	d.Survey = laySurvey(l, an, old, relativeTo(out, image), nil)
+	d.Survey = an.Lay(l, old, relativeTo(out, image), nil)
+	if terraces {
+		ts, err := d.Survey.DesignTerraces()
+		if err != nil {
+			return fail("%s: --terraces: %v", image, err)
+		}
+		d.Terraces = ts
+	}
 	if err := d.Validate(); err != nil {
 		return fail("%v", err)
 	}

@@ -49,13 +49,13 @@ func checkResults(rs []VariantResult) (string, error) {
 
 // compareShares are the widths of compareRows' columns, in shares of
 // the table's width (the PDF and the SVG alike).
-var compareShares = []float64{10, 8, 11, 7, 8, 6, 6, 8, 6, 6, 7, 8, 9}
+var compareShares = []float64{10, 8, 11, 7, 8, 6, 6, 8, 6, 6, 11, 6, 7, 10}
 
 // compareRows returns the comparison table: a header and one row per
 // variant.
 func compareRows(rs []VariantResult) [][]string {
 	rows := [][]string{{"Variant", "Session (mean)", "P10 – P90", "By hand", "Lithography steps", "Segments", "Strokes", "P(within tolerance)",
-		"Windows", "All good", "Mean good", "Devices per perfect one", "Coverage check"}}
+		"Windows", "All good", "All good: 95 % interval", "Mean good", "Devices per perfect one", "Coverage check"}}
 	for _, r := range rs {
 		if r.Plan == nil {
 			rows = append(rows, []string{r.Variant, "not planned: " + r.Err.Error()})
@@ -72,9 +72,10 @@ func compareRows(rs []VariantResult) [][]string {
 				}
 			}
 		}
-		all, mean := "–", "–"
+		all, all95, mean := "–", "–", "–"
 		if len(p.Windows) > 0 {
 			all = allGood(p.Yield)
+			all95 = probabilityRange(p.Yield.All95, p.Yield.Log10All95)
 			mean = fmt.Sprintf("%s of %s", sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))
 		}
 		byHand := "–"
@@ -89,7 +90,7 @@ func compareRows(rs []VariantResult) [][]string {
 		}
 		rows = append(rows, []string{r.Variant, clock(p.TotalS), clock(p.P10S) + " – " + clock(p.P90S), byHand,
 			strings.Join(steps, ", "), thousands(len(p.Segments)), thousands(len(p.Strokes)), probability(p.PInTolerance),
-			thousands(len(p.Windows)), all, mean, dpp, coverageWord(p.Coverage)})
+			thousands(len(p.Windows)), all, all95, mean, dpp, coverageWord(p.Coverage)})
 	}
 	return rows
 }
@@ -234,8 +235,10 @@ func spreadKey(c canvas, at vec) float64 {
 }
 
 // drawYieldCompare draws each variant's probability that every window
-// is good as a bar on a 0–1 axis, labelled with it and the mean number
-// of good windows; returns the height used.
+// is good as a bar on a 0–1 axis, with its 68 % (thick) and 95 % (thin)
+// intervals from the templates' uncertainties as whiskers, labelled with
+// the value, the 95 % interval and the mean number of good windows;
+// returns the height used.
 func drawYieldCompare(c canvas, rs []VariantResult, area box) float64 {
 	u := c.mm()
 	labelW := 0.0
@@ -243,7 +246,7 @@ func drawYieldCompare(c canvas, rs []VariantResult, area box) float64 {
 		labelW = math.Max(labelW, c.textWidth(r.Variant, fontBold))
 	}
 	labelW += 3 * u
-	valueW := c.textWidth("0.000 (mean 0000 of 0000 good)", fontBody) + 3*u
+	valueW := c.textWidth("0.000 (95 %: 0.000–0.000; mean 0000 of 0000 good)", fontBody) + 3*u
 	plot := box{area.x + labelW, area.y, area.w - labelW - valueW, 0}
 	rowH := 7 * u
 	c.group(tag{id: "yield-compare", class: "chart"}, penBar, noPaint)
@@ -256,9 +259,24 @@ func drawYieldCompare(c canvas, rs []VariantResult, area box) float64 {
 			if len(p.Windows) == 0 {
 				label = "no dopant windows"
 			} else {
-				w = plot.w * p.Yield.All
-				label = fmt.Sprintf("%s (mean %s of %s good)", allGood(p.Yield), sig(p.Yield.MeanGood, 4), thousands(p.Yield.Windows))
+				yl := p.Yield
+				w = plot.w * yl.All
+				label = fmt.Sprintf("%s (95 %%: %s; mean %s of %s good)", allGood(yl), probabilityRange(yl.All95, yl.Log10All95), sig(yl.MeanGood, 4), thousands(yl.Windows))
 				c.rect(box{plot.x, y + 1.5*u, math.Max(w, 0.3*u), rowH - 3*u}, penBar, paint{fill: true, grey: 0.45}, tag{class: "bar"})
+				// The intervals as whiskers across the bar's end; the
+				// label starts after the 95 % whisker.
+				mid := y + rowH/2
+				for _, iv := range []struct {
+					r    [2]float64
+					half float64
+					pen  pen
+				}{{yl.All95, 1.2 * u, pen{width: 0.25}}, {yl.All68, 0.8 * u, pen{width: 0.7}}} {
+					x0, x1 := plot.x+plot.w*iv.r[0], plot.x+plot.w*iv.r[1]
+					c.polyline([]vec{{x0, mid}, {x1, mid}}, false, iv.pen, noPaint, tag{class: "interval"})
+					c.polyline([]vec{{x0, mid - iv.half}, {x0, mid + iv.half}}, false, iv.pen, noPaint, tag{})
+					c.polyline([]vec{{x1, mid - iv.half}, {x1, mid + iv.half}}, false, iv.pen, noPaint, tag{})
+				}
+				w = math.Max(w, plot.w*yl.All95[1])
 			}
 		}
 		c.text(vec{plot.x + w + 1.5*u, y + rowH/2 + textHeight(c, fontBody)/2}, label, fontBody, anchorStart, tag{})
@@ -274,7 +292,7 @@ func drawYieldCompare(c canvas, rs []VariantResult, area box) float64 {
 	c.polyline([]vec{{plot.x, y}, {plot.x + plot.w, y}}, false, penAxis, noPaint, tag{})
 	c.polyline([]vec{{plot.x, area.y}, {plot.x, y}}, false, penAxis, noPaint, tag{})
 	y += 1.2*u + textHeight(c, fontAxis) + 3*u
-	c.text(vec{plot.x + plot.w/2, y + textHeight(c, fontAxis)}, "probability that every window takes exactly one donor", fontAxis, anchorMiddle, tag{})
+	c.text(vec{plot.x + plot.w/2, y + textHeight(c, fontAxis)}, "probability that every window is opened as drawn and takes exactly one donor (whiskers: 68 % and 95 % intervals)", fontAxis, anchorMiddle, tag{})
 	y += textHeight(c, fontAxis) + 2*u
 	c.endGroup()
 	return y - area.y
@@ -304,10 +322,7 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 		d.y += 7
 	}
 	d.y += 2
-	date := "(not given)"
-	if !opt.Date.IsZero() {
-		date = opt.Date.Format("Monday 2 January 2006")
-	}
+	date := printedDate(opt)
 	profiles := map[string]bool{}
 	var profList []string
 	for _, r := range results {
@@ -317,11 +332,7 @@ func WriteComparisonPDF(ctx context.Context, w io.Writer, results []VariantResul
 		}
 	}
 	kv := [][2]string{{"Date", date}, {"Instrument profile", listShort(profList, 4)}, {"Variants", fmt.Sprint(len(results))}}
-	if opt.Generator != "" {
-		kv = append(kv, [2]string{"Planned with", opt.Generator})
-	}
-	d.keyValues(kv, 0.28)
-	d.cautionBox()
+	reportFacts(d, opt, kv)
 
 	summaryTable(d, compareRows(results), compareShares)
 	if diffs := differenceRows(results); len(diffs) > 0 {

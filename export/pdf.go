@@ -262,13 +262,16 @@ func coverageErrorLines(p *planner.Plan) []string {
 
 // intervals formats the 68 % and 95 % intervals of P(all good).
 func intervals(y planner.Yield) string {
-	f := func(iv [2]float64, l [2]float64) string {
-		if iv[1] == 0 && !math.IsInf(l[1], -1) {
-			return pow10(l[0]) + "–" + pow10(l[1])
-		}
-		return probability(iv[0]) + "–" + probability(iv[1])
+	return fmt.Sprintf("68 %%: %s, 95 %%: %s from the templates' uncertainties", probabilityRange(y.All68, y.Log10All68), probabilityRange(y.All95, y.Log10All95))
+}
+
+// probabilityRange formats an interval of P(all good), "0.361–0.694",
+// by its log10 where the probabilities underflow.
+func probabilityRange(iv, log10 [2]float64) string {
+	if iv[1] == 0 && !math.IsInf(log10[1], -1) {
+		return pow10(log10[0]) + "–" + pow10(log10[1])
 	}
-	return fmt.Sprintf("68 %%: %s, 95 %%: %s from the templates' uncertainties", f(y.All68, y.Log10All68), f(y.All95, y.Log10All95))
+	return probability(iv[0]) + "–" + probability(iv[1])
 }
 
 // badWindows formats the expected numbers of windows that go wrong.
@@ -640,7 +643,41 @@ func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int)
 		t.row("", "", "Step ends", "", "", "", "", "", "", "", clock(last))
 		t.end()
 	}
+	pdfRegistrationReasons(d, p)
 	return nil
+}
+
+// maxReasonRows is how many reasons for the kinds of registration the
+// printed plan lists; the plan JSON gives each segment's.
+const maxReasonRows = 20
+
+// pdfRegistrationReasons says why the segments register as they do:
+// each kind of registration with its reason and the segments it is
+// given for (planner.Plan.RegistrationReasons).
+func pdfRegistrationReasons(d *pdfDoc, p *planner.Plan) {
+	rs := p.RegistrationReasons()
+	if len(rs) == 0 {
+		return
+	}
+	d.heading("Why each segment registers as it does", 30)
+	t := newTable(d, font{size: 7.5},
+		tableColumn{title: "Registration", share: 12},
+		tableColumn{title: "Segments", share: 18},
+		tableColumn{title: "Why", share: 70},
+	)
+	t.start()
+	for i, r := range rs {
+		if i == maxReasonRows {
+			t.row("", "", fmt.Sprintf("%d more reasons: each segment's is in the plan JSON (dimerpath export DESIGN.json -o PLAN.json)", len(rs)-maxReasonRows))
+			break
+		}
+		nums := make([]int, len(r.Segments))
+		for k, g := range r.Segments {
+			nums[k] = g + 1
+		}
+		t.row(string(r.Kind), numberRanges(nums), r.Reason)
+	}
+	t.end()
 }
 
 func pdfEstimates(d *pdfDoc, p *planner.Plan) {

@@ -15,6 +15,25 @@ import (
 // could not be planned with its reason across the row; the SVG's head and
 // caution; and the file writer that picks PDF or SVG by extension.
 
+// printedDate is the date a report prints among its facts: opt.Date
+// in words, or "(not given)".
+func printedDate(opt Options) string {
+	if opt.Date.IsZero() {
+		return "(not given)"
+	}
+	return opt.Date.Format("Monday 2 January 2006")
+}
+
+// reportFacts prints a report's facts (kv, then what planned it when
+// opt names it) and the caution box below them.
+func reportFacts(d *pdfDoc, opt Options, kv [][2]string) {
+	if opt.Generator != "" {
+		kv = append(kv, [2]string{"Planned with", opt.Generator})
+	}
+	d.keyValues(kv, 0.28)
+	d.cautionBox()
+}
+
 // summaryTable prints rows under the heading "Summary" as a table of
 // columns sized by shares: the first column left-aligned, the others
 // right-aligned.

@@ -44,6 +44,7 @@ type segmentSummary struct {
 	Index        int     `json:"index"`
 	Step         int     `json:"step"`
 	Registration string  `json:"registration"`
+	Reason       string  `json:"reason"`
 	Fiducial     string  `json:"fiducial"`
 	StartS       float64 `json:"start_s"`
 	EndS         float64 `json:"end_s"`
@@ -125,7 +126,7 @@ func WritePlanSummary(w io.Writer, p *planner.Plan) error {
 		s.Steps = append(s.Steps, stepOf(st))
 	}
 	for _, g := range p.Segments {
-		s.Segments = append(s.Segments, segmentSummary{Index: g.Index, Step: g.Step, Registration: string(g.Registration), Fiducial: g.Fiducial,
+		s.Segments = append(s.Segments, segmentSummary{Index: g.Index, Step: g.Step, Registration: string(g.Registration), Reason: g.Reason, Fiducial: g.Fiducial,
 			StartS: g.StartS, EndS: g.EndS, BudgetS: g.BudgetS, Strokes: g.Strokes, PInTolerance: g.PInTolerance})
 	}
 	for _, c := range p.Couplings {

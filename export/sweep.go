@@ -135,11 +135,7 @@ func drawSweepTime(c canvas, sw *planner.Sweep, area box) float64 {
 	ty := plotAxis{Scale: chartaxis.ForTimes(lo, hi, ax.Log), x0: area.y, w: plotH, vertical: true}
 	y := ty.at
 	c.group(tag{id: "sweep-time", class: "chart"}, penBar, noPaint)
-	for _, t := range ty.Marks {
-		c.polyline([]vec{{ax.x0, y(t)}, {ax.x0 + ax.w, y(t)}}, false, penGrid, noPaint, tag{})
-		c.text(vec{ax.x0 - 1.5*u, y(t) + textHeight(c, fontAxis)/2}, clock(t), fontAxis, anchorEnd, tag{})
-	}
-	c.polyline([]vec{{ax.x0, area.y}, {ax.x0, area.y + plotH}}, false, penAxis, noPaint, tag{})
+	drawSweepYAxis(c, ax, ty, clock)
 	if len(pts) > 0 {
 		// The band: P90 left to right, then P10 back.
 		band := make([]vec, 0, 2*len(pts))
@@ -216,11 +212,7 @@ func drawSweepYield(c canvas, sw *planner.Sweep, area box) float64 {
 	}
 	y := py.at
 	c.group(tag{id: "sweep-yield", class: "chart"}, penBar, noPaint)
-	for _, t := range ys.Marks {
-		c.polyline([]vec{{ax.x0, y(t)}, {ax.x0 + ax.w, y(t)}}, false, penGrid, noPaint, tag{})
-		c.text(vec{ax.x0 - 1.5*u, y(t) + textHeight(c, fontAxis)/2}, yLabel(t), fontAxis, anchorEnd, tag{})
-	}
-	c.polyline([]vec{{ax.x0, area.y}, {ax.x0, area.y + plotH}}, false, penAxis, noPaint, tag{})
+	drawSweepYAxis(c, ax, py, yLabel)
 	line := make([]vec, len(pts))
 	for i, p := range pts {
 		line[i] = vec{ax.at(p.x), y(value(p.plan))}
@@ -238,6 +230,18 @@ func drawSweepYield(c canvas, sw *planner.Sweep, area box) float64 {
 	h += textHeight(c, fontAxis) + 3*u
 	c.endGroup()
 	return h
+}
+
+// drawSweepYAxis draws a chart's vertical axis ty against the
+// horizontal ax: a grid line across the plot and a label (by label) at
+// each mark, and the axis line.
+func drawSweepYAxis(c canvas, ax, ty plotAxis, label func(float64) string) {
+	u := c.mm()
+	for _, t := range ty.Marks {
+		c.polyline([]vec{{ax.x0, ty.at(t)}, {ax.x0 + ax.w, ty.at(t)}}, false, penGrid, noPaint, tag{})
+		c.text(vec{ax.x0 - 1.5*u, ty.at(t) + textHeight(c, fontAxis)/2}, label(t), fontAxis, anchorEnd, tag{})
+	}
+	c.polyline([]vec{{ax.x0, ty.x0}, {ax.x0, ty.x0 + ty.w}}, false, penAxis, noPaint, tag{})
 }
 
 // sweepCharts are the report's charts in order, with their titles.
@@ -268,17 +272,10 @@ func WriteSweepPDF(ctx context.Context, w io.Writer, sw *planner.Sweep, opt Opti
 	d.page()
 	d.c.text(vec{d.left(), d.y + 8}, title, font{size: 20, bold: true}, anchorStart, tag{})
 	d.y += 13
-	date := "(not given)"
-	if !opt.Date.IsZero() {
-		date = opt.Date.Format("Monday 2 January 2006")
-	}
+	date := printedDate(opt)
 	kv := [][2]string{{"Design", sw.Design}, {"Variant", sw.Variant}, {"Instrument profile", sw.Profile},
 		{"Parameter", sweepParamText(sw)}, {"Seed", fmt.Sprint(sw.Seed)}, {"Date", date}}
-	if opt.Generator != "" {
-		kv = append(kv, [2]string{"Planned with", opt.Generator})
-	}
-	d.keyValues(kv, 0.28)
-	d.cautionBox()
+	reportFacts(d, opt, kv)
 	for _, warn := range sw.Warnings {
 		d.para("Note: "+warn, fontBody)
 	}

@@ -48,7 +48,7 @@ func recoverInternal(plan **Plan, err *error) {
 var timeSources = map[TimeKind][]string{
 	TimeAPWrite:      {"ap.current_a", "ap.line_dose_c_per_cm", "ap.passes"},
 	TimeFEWrite:      {"fe.current_a", "fe.line_dose_c_per_cm", "fe.passes"},
-	TimeDwell:        {"dwell.current_a", "dwell.yield_per_electron", "dwell.completion"},
+	TimeDwell:        {"dwell.bias_v", "dwell.current_a", "dwell.completion", "exposure.vibrational"},
 	TimeTravel:       {"move_speed_nm_per_s", "settle_s"},
 	TimeModeSwitch:   {"mode_switch_s"},
 	TimeRegistration: {"drift.registration_s"},

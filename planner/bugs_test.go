@@ -91,7 +91,7 @@ func TestCheckFiniteTime(t *testing.T) {
 	}{
 		{"finite", Breakdown{APWriteS: 100, TravelS: 20}, ""},
 		{"infinite travel", Breakdown{APWriteS: 100, TravelS: math.Inf(1)}, "travel and settling (+Inf s; from move_speed_nm_per_s, settle_s)"},
-		{"NaN dwells", Breakdown{DwellS: math.NaN()}, "dwells (NaN s; from dwell.current_a"},
+		{"NaN dwells", Breakdown{DwellS: math.NaN()}, "dwells (NaN s; from dwell.bias_v, dwell.current_a, dwell.completion, exposure.vibrational)"},
 		{"finite parts, infinite sum", Breakdown{RegistrationS: 1e308, VerificationS: 1.5e308}, "verification images (1.5e+308 s; from drift.verification_s)"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {

@@ -9,6 +9,7 @@ import (
 	"github.com/golang/geo/r2"
 
 	"dimerpath/internal/jsonfile"
+	"dimerpath/internal/units"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -67,6 +68,37 @@ func Build(ctx context.Context, lay *design.Layout, prof Profile, opt Options) (
 	return b.build()
 }
 
+// CheckWriting runs the part of Build that decides what is written, on
+// the same layout and profile: each region's write mode, the strokes and
+// their coverage expectation, with every site outside the regions that
+// clears above prof.StrayLimit (Coverage.StraySites, with the region and
+// stroke that reach it). A design whose CheckWriting finds no such site
+// plans without a coverage error: Build computes the same strokes and
+// the same expectation. The modes are returned for the messages.
+func CheckWriting(ctx context.Context, lay *design.Layout, prof Profile) (cov Coverage, modes []RegionMode, err error) {
+	var unused *Plan
+	defer recoverInternal(&unused, &err)
+	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof}
+	_, cov, err = b.writing()
+	if err != nil {
+		return Coverage{}, nil, err
+	}
+	return cov, b.regionModes(), nil
+}
+
+// regionModes returns each region's mode as drawn and as planned.
+func (b *builder) regionModes() []RegionMode {
+	var modes []RegionMode
+	for _, r := range b.regions {
+		req := r.requested
+		if req == "" {
+			req = design.ModeAuto
+		}
+		modes = append(modes, RegionMode{Region: r.name, Role: r.role, Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
+	}
+	return modes
+}
+
 type builder struct {
 	ctx  context.Context
 	lay  *design.Layout
@@ -89,26 +121,29 @@ type builder struct {
 	marginUsed    float64
 }
 
-func (b *builder) build() (*Plan, error) {
+// writing runs the stages that decide what is written: the profile's
+// checks, each region's mode, the strokes (split at their drift budgets)
+// and their coverage expectation. Build goes on from here; CheckWriting
+// stops here.
+func (b *builder) writing() ([]Window, Coverage, error) {
 	prof, lay := &b.prof, b.lay
 	if err := prof.Validate(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	if err := prof.checkField(b.d.Field.WidthNM, b.d.Field.HeightNM); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	if err := b.checkRaster(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	if err := b.ctx.Err(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	b.gen = newStrokeGen(lay.Surface, prof)
 	if err := b.regionWork(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
-	var drift DriftPlan
-	b.model, drift = planModel(prof)
+	b.model, _ = planModel(prof) // the stroke splits need its values
 
 	b.opt.stage("modes")
 	mc := &modeChooser{g: b.gen, prof: prof, keepOut: lay.Rules.FEKeepOutNM, regions: b.regions, feCache: map[*lattice.SiteSet][]Stroke{}}
@@ -117,26 +152,26 @@ func (b *builder) build() (*Plan, error) {
 		b.warnings = append(b.warnings, r.warnings...)
 	}
 	if err := b.ctx.Err(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 
 	b.opt.stage("strokes")
 	windows := b.makeStrokes()
 	if err := checkStrokes(float64(len(b.strokes)), "one or more per run of sites and per FE serpentine; split the design"); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	use := b.modesUsed()
 	if err := prof.CheckLimits(&use); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	if err := b.checkTolerances(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	b.fiducials()
 	b.costs = newCosts(prof, b.fids)
 	b.costs.creepFrac = b.model.creep
 	if err := b.splitLong(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	for i := range b.strokes {
 		b.strokes[i].ID = i
@@ -144,7 +179,7 @@ func (b *builder) build() (*Plan, error) {
 
 	b.opt.stage("coverage")
 	if err := b.ctx.Err(); err != nil {
-		return nil, err
+		return nil, Coverage{}, err
 	}
 	b.openWindows(windows)
 	cov, strokes := CheckCoverage(lay.Surface, b.coverageRegions(), b.strokes, *prof)
@@ -152,6 +187,18 @@ func (b *builder) build() (*Plan, error) {
 	if !cov.OK {
 		b.warnings = append(b.warnings, fmt.Sprintf("coverage check: %d site(s) outside every region clear with more than %.2g %%; see coverage.stray_sites", cov.OverLimit, 100*cov.StrayLimit))
 	}
+	return windows, cov, nil
+}
+
+func (b *builder) build() (*Plan, error) {
+	prof, lay := &b.prof, b.lay
+	windows, cov, err := b.writing()
+	if err != nil {
+		return nil, err
+	}
+	var drift DriftPlan
+	b.model, drift = planModel(prof)
+	use := b.modesUsed()
 
 	b.opt.stage("route")
 	steps, err := b.assignSteps(windows)
@@ -190,12 +237,23 @@ func (b *builder) build() (*Plan, error) {
 	}
 	drift.Margin = margin
 	b.marginUsed = margin
+	// Said once per region: a tolerance too tight for the registration
+	// error makes every stroke of a region fail alike.
+	var forced []*strokeNote
 	for _, st := range steps {
 		for _, j := range st.forced {
 			s := b.strokes[st.jobs[j].stroke]
-			b.warnings = append(b.warnings, fmt.Sprintf("stroke %d (region %q) cannot be held within ±%g nm even right after a registration at the planned drift (%.3g nm/min) and creep: expect it to leave its tolerance",
-				s.ID, s.Region, s.ToleranceNM, drift.RateNMPerMin))
+			n := noteFor(&forced, s.Region, "", s.ToleranceNM)
+			n.ids = append(n.ids, s.ID)
 		}
+	}
+	for _, n := range forced {
+		what := fmt.Sprintf("stroke %d (region %q) cannot be held", n.ids[0], n.region)
+		if len(n.ids) > 1 {
+			what = fmt.Sprintf("%d strokes of region %q (ids %s) cannot be held", len(n.ids), n.region, units.Ranges(n.ids, 6))
+		}
+		b.warnings = append(b.warnings, fmt.Sprintf("%s within ±%.3g nm even right after a registration at the planned drift (%.3g nm/min) and creep: expect %s to leave %s tolerance",
+			what, n.tolNM, drift.RateNMPerMin, map[bool]string{true: "them", false: "it"}[len(n.ids) > 1], map[bool]string{true: "their", false: "its"}[len(n.ids) > 1]))
 	}
 	// A timeline holds a write or dwell per stroke, a move before each,
 	// a registration, a switch, a conditioning and a verification per
@@ -250,13 +308,7 @@ func (b *builder) build() (*Plan, error) {
 		return nil, err
 	}
 	plan.Yield = YieldOf(windows, b.opt.Seed)
-	for _, r := range b.regions {
-		req := r.requested
-		if req == "" {
-			req = design.ModeAuto
-		}
-		plan.Modes = append(plan.Modes, RegionMode{Region: r.name, Role: r.role, Requested: req, Mode: r.mode, Reason: r.reason, Sites: r.count})
-	}
+	plan.Modes = b.regionModes()
 	byHand, err := b.byHand(steps, margin, plan.TotalS)
 	if err != nil {
 		return nil, err
@@ -393,7 +445,18 @@ func (b *builder) checkTolerances() error {
 // makeStrokes generates every region's strokes and returns the plan's
 // windows.
 func (b *builder) makeStrokes() []Window {
-	var windows []Window
+	// Room for the windows and their strokes at once: 10^6 windows grown
+	// by doubling leave some hundreds of MB of copies behind.
+	nwin := 0
+	for _, r := range b.regions {
+		nwin += len(r.windows)
+	}
+	var windows []Window // nil without windows, as before
+	if nwin > 0 {
+		windows = make([]Window, 0, nwin)
+	}
+	b.placed = slices.Grow(b.placed, nwin)
+	b.strokes = slices.Grow(b.strokes, nwin)
 	surf := b.lay.Surface
 	for _, r := range b.regions {
 		for _, w := range r.windows {
@@ -502,6 +565,31 @@ func (b *builder) conditions(u ModeUse) []Conditions {
 	return cs
 }
 
+// strokeNote gathers the strokes of one region (and kind, and
+// tolerance) that share a warning, so that it is said once for them.
+type strokeNote struct {
+	region, kind string
+	tolNM        float64
+	ids          []int
+	// longestS is the longest stroke's duration, budgetS its drift
+	// budget; pieces counts the pieces they were cut into.
+	longestS, budgetS float64
+	pieces            int
+}
+
+// noteFor returns the note of notes for the region, kind and tolerance,
+// appending a new one (notes keep the order they were first met in).
+func noteFor(notes *[]*strokeNote, region, kind string, tolNM float64) *strokeNote {
+	for _, n := range *notes {
+		if n.region == region && n.kind == kind && n.tolNM == tolNM {
+			return n
+		}
+	}
+	n := &strokeNote{region: region, kind: kind, tolNM: tolNM}
+	*notes = append(*notes, n)
+	return n
+}
+
 // fiducials takes the design's marks; a design without any gets one at
 // the field centre, with a warning.
 func (b *builder) fiducials() {
@@ -525,6 +613,10 @@ func (b *builder) splitLong() error {
 	m := b.model
 	rate := m.r0 * m.rateMul
 	var out []Stroke
+	if len(b.strokes) > 0 {
+		out = make([]Stroke, 0, len(b.strokes))
+	}
+	var split []*strokeNote
 	pieces := float64(len(b.strokes))
 	for _, s := range b.strokes {
 		err, approach := m.errLocal, 0.0
@@ -560,8 +652,12 @@ func (b *builder) splitLong() error {
 		}
 		k := int(kf)
 		parts := splitPath(s.Path, k)
-		b.warnings = append(b.warnings, fmt.Sprintf("a %s stroke of region %q takes %.0f s, longer than its %.0f s drift budget (±%g nm at %.3g nm/min): split into %d pieces at registrations",
-			s.Kind, s.Region, s.DurationS, budget, s.ToleranceNM, rate, k))
+		n := noteFor(&split, s.Region, string(s.Kind), s.ToleranceNM)
+		n.ids = append(n.ids, s.ID)
+		n.pieces += k
+		if s.DurationS > n.longestS {
+			n.longestS, n.budgetS = s.DurationS, budget
+		}
 		for _, p := range parts {
 			piece := s
 			piece.Path = p
@@ -572,6 +668,16 @@ func (b *builder) splitLong() error {
 		}
 	}
 	b.strokes = out
+	// Said once per region and kind of stroke, not once per stroke.
+	for _, n := range split {
+		if len(n.ids) == 1 {
+			b.warnings = append(b.warnings, fmt.Sprintf("a %s stroke of region %q takes %.3g s, longer than its %.3g s drift budget (±%.3g nm at %.3g nm/min): split into %d pieces at registrations",
+				n.kind, n.region, n.longestS, n.budgetS, n.tolNM, rate, n.pieces))
+			continue
+		}
+		b.warnings = append(b.warnings, fmt.Sprintf("%d %s strokes of region %q outlast their drift budget (±%.3g nm at %.3g nm/min; the longest takes %.3g s against %.3g s): split into %d pieces in all, at registrations",
+			len(n.ids), n.kind, n.region, n.tolNM, rate, n.longestS, n.budgetS, n.pieces))
+	}
 	return nil
 }
 
@@ -644,25 +750,28 @@ func reversePath(p []r2.Point) {
 // field-emission work).
 func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, error) {
 	total := session
-	byRegion := map[string][]Stroke{}
-	for i, s := range b.strokes {
-		s.ID = i
-		byRegion[s.Region] = append(byRegion[s.Region], s)
+	// The plan's strokes by index (a copy of each would hold the whole
+	// plan again: 10^6 strokes are some 200 MB).
+	byRegion := map[string][]int{}
+	for i := range b.strokes {
+		s := &b.strokes[i]
+		byRegion[s.Region] = append(byRegion[s.Region], i)
 	}
+	inStep := make([]bool, len(b.strokes))
 	for k, st := range steps {
 		if st.sg == nil || st.sg.n == 0 {
 			continue
 		}
 		total -= st.sg.totalOf(st.starts, st.kinds)
-		inStep := map[int]bool{}
+		clear(inStep)
 		for _, i := range st.strokes {
 			inStep[i] = true
 		}
-		var plain, wins []Stroke
+		var plain, wins []*Stroke
 		for _, r := range b.regions {
-			for _, s := range byRegion[r.name] {
-				if inStep[s.ID] && s.Window >= 0 {
-					wins = append(wins, s)
+			for _, i := range byRegion[r.name] {
+				if inStep[i] && b.strokes[i].Window >= 0 {
+					wins = append(wins, &b.strokes[i])
 				}
 			}
 			if r.mode == design.ModeHybrid {
@@ -671,14 +780,14 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 					for i := range ap {
 						ap[i].ToleranceNM = r.tolAP
 						ap[i].Window = -1
+						plain = append(plain, &ap[i])
 					}
-					plain = append(plain, ap...)
 				}
 				continue
 			}
-			for _, s := range byRegion[r.name] {
-				if inStep[s.ID] && s.Window < 0 {
-					plain = append(plain, s)
+			for _, i := range byRegion[r.name] {
+				if inStep[i] && b.strokes[i].Window < 0 {
+					plain = append(plain, &b.strokes[i])
 				}
 			}
 		}
@@ -689,14 +798,12 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 		jobs := make([]job, len(all))
 		tightest := math.Inf(1)
 		m := st.sg.model
-		for i := range all {
-			s := &all[i]
+		for i, s := range all {
 			// Generated order is raster order; put every stroke back the
 			// way it was generated (left to right, bottom to top).
-			p := append([]r2.Point(nil), s.Path...)
-			a, z := p[0], p[len(p)-1]
-			if z.X < a.X || (z.X == a.X && z.Y < a.Y) {
-				reversePath(p)
+			start, end := s.Path[0], s.Path[len(s.Path)-1]
+			if end.X < start.X || (end.X == start.X && end.Y < start.Y) {
+				start, end = end, start
 			}
 			err := m.errLocal
 			if s.Mode == design.ModeFE {
@@ -705,7 +812,7 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 			if bud := DriftBudget(s.ToleranceNM/margin, err, 0, m.r0*m.rateMul); s.Kind != StrokeDwell && !math.IsInf(bud, 1) {
 				tightest = math.Min(tightest, bud)
 			}
-			jobs[i] = job{stroke: i, start: p[0], end: p[len(p)-1], writeS: s.DurationS, tolNM: s.ToleranceNM, mode: s.Mode,
+			jobs[i] = job{stroke: i, start: start, end: end, writeS: s.DurationS, tolNM: s.ToleranceNM, mode: s.Mode,
 				dwell: s.Kind == StrokeDwell, group: b.groupOf(s)}
 		}
 		sg := newSegmenter(jobs, b.costs, st.sg.model, b.costs.nearest(jobs[0].start))
@@ -720,10 +827,10 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 
 // plainStep returns the step of a region's strokes outside its windows
 // (-1 when it has none).
-func (b *builder) plainStep(ss []Stroke) int {
-	for _, s := range ss {
-		if s.Window < 0 {
-			return b.stepOf[s.ID]
+func (b *builder) plainStep(ids []int) int {
+	for _, i := range ids {
+		if b.strokes[i].Window < 0 {
+			return b.stepOf[i]
 		}
 	}
 	return -1

@@ -261,3 +261,38 @@ func TestLongStrokeSplitAtRegistration(t *testing.T) {
 		t.Errorf("split line: coverage %+v", p.Coverage)
 	}
 }
+
+// A tolerance the registration error nearly uses up makes every stroke
+// of the island fail alike; the plan says so once per region, naming
+// the strokes, not once per stroke (the demo printed 60 such lines).
+func TestStrokeWarningsOncePerRegion(t *testing.T) {
+	prof := DefaultProfile()
+	prof.Registration.Local.ErrorNM = 0.12
+	p, err := buildVariant(context.Background(), demo(t), "", prof, Options{Seed: 7, MonteCarloRuns: 200})
+	if err != nil {
+		t.Fatal(err)
+	}
+	seen := map[string]string{}
+	held := 0
+	for _, w := range p.Warnings {
+		var kind string
+		switch {
+		case strings.Contains(w, "cannot be held within"):
+			kind = "held"
+			held++
+		case strings.Contains(w, "at registrations"):
+			kind = "split"
+		default:
+			continue
+		}
+		region := w[strings.Index(w, "region \"")+8:]
+		region = region[:strings.Index(region, "\"")]
+		if prev, ok := seen[kind+region]; ok {
+			t.Errorf("region %s warned twice:\n%s\n%s", region, prev, w)
+		}
+		seen[kind+region] = w
+	}
+	if held == 0 || !strings.Contains(seen["heldsensor-island"], "strokes of region \"sensor-island\" (ids ") {
+		t.Errorf("no grouped warning for the island's strokes: %q", p.Warnings)
+	}
+}

@@ -41,23 +41,6 @@ type Step struct {
 	Note string
 }
 
-// Precursor returns the gas that delivers species: phosphine for P,
-// arsine for As, diborane for B (Škereň et al., Nat. Electron. 2020),
-// stibine for Sb; "<species> precursor" for any other.
-func Precursor(species string) string {
-	switch species {
-	case "P":
-		return "phosphine (PH3)"
-	case "As":
-		return "arsine (AsH3)"
-	case "B":
-		return "diborane (B2H6)"
-	case "Sb":
-		return "stibine (SbH3)"
-	}
-	return species + " precursor"
-}
-
 // CouplingKind says why two regions are coupled.
 type CouplingKind string
 
@@ -100,4 +83,34 @@ type DriftPlan struct {
 	ErrorZ        float64 // the registration errors' multiple of σ
 	Margin        float64
 	Compensated   bool // feed-forward compensation used
+}
+
+// RegistrationReason is one reason the plan gives for a segment's kind
+// of registration, with the segments (indices into Plan.Segments) it is
+// given for.
+type RegistrationReason struct {
+	Kind     RegistrationKind
+	Reason   string
+	Segments []int
+}
+
+// RegistrationReasons groups the segments by their kind of registration
+// and its reason (Segment.Registration, Segment.Reason), in the order of
+// each group's first segment: what the command line, the printed plan
+// and the window say about why each segment registers as it does,
+// without a line per segment.
+func (p *Plan) RegistrationReasons() []RegistrationReason {
+	var out []RegistrationReason
+	at := map[[2]string]int{}
+	for i, g := range p.Segments {
+		k := [2]string{string(g.Registration), g.Reason}
+		j, ok := at[k]
+		if !ok {
+			j = len(out)
+			at[k] = j
+			out = append(out, RegistrationReason{Kind: g.Registration, Reason: g.Reason})
+		}
+		out[j].Segments = append(out[j].Segments, i)
+	}
+	return out
 }

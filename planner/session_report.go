@@ -27,7 +27,7 @@ func (b *builder) describeSegments(plan *Plan, steps []*stepWork, tol tolResult)
 		if b.stepOf[cp.sb] > b.stepOf[cp.sa] {
 			later, earlier, region = cp.sb, cp.sa, cp.A
 		}
-		coupledTo[later] = fmt.Sprintf("registers on %s, written in step %s (coupled ±%g nm)", region, stepName(steps[b.stepOf[earlier]].species), cp.ToleranceNM)
+		coupledTo[later] = fmt.Sprintf("registers on %s, written in step %s (coupled ±%.3g nm)", region, stepName(steps[b.stepOf[earlier]].species), cp.ToleranceNM)
 	}
 	below, named := 0, 0
 	g := 0 // index into tol.segs
@@ -65,7 +65,7 @@ func (b *builder) describeSegments(plan *Plan, steps []*stepWork, tol tolResult)
 						fix = "a registration of smaller error (" + map[bool]string{true: "registration.coarse_error_nm", false: "registration.local.error_nm"}[k == kCoarse] + ") or a wider tolerance: the error alone uses most of it"
 					}
 					s := b.strokes[jb.stroke]
-					b.warnings = append(b.warnings, fmt.Sprintf("segment %d (step %s, %s registration): P(every stroke within tolerance) = %.3f, below %.2f; tightest stroke in %s (±%g nm); what would help: %s",
+					b.warnings = append(b.warnings, fmt.Sprintf("segment %d (step %s, %s registration): P(every stroke within tolerance) = %.3f, below %.2f; tightest stroke in %s (±%.3g nm); what would help: %s",
 						seg.Index+1, stepName(st.species), st.kinds[i], seg.PInTolerance, level, s.Region, s.ToleranceNM, fix))
 				}
 			}
@@ -89,9 +89,9 @@ func (b *builder) registrationReason(sg *segmenter, s, e, k int, coupledTo map[i
 	if k == kCoarse {
 		f := c.fiducials[sg.fid[s]].Name
 		if jb.mode == design.ModeFE {
-			return fmt.Sprintf("field-emission work (±%g nm): fiducial %s; a local lattice image needs atomic-precision conditions", jb.tolNM, f)
+			return fmt.Sprintf("field-emission work (±%.3g nm): fiducial %s; a local lattice image needs atomic-precision conditions", jb.tolNM, f)
 		}
-		return fmt.Sprintf("fiducial %s holds ±%g nm here (±%.2g nm and the approach's creep)", f, jb.tolNM, sg.model.errCoase)
+		return fmt.Sprintf("fiducial %s holds ±%.3g nm here (±%.2g nm and the approach's creep)", f, jb.tolNM, sg.model.errCoase)
 	}
 	for j := s; j < e; j++ {
 		if why, ok := coupledTo[sg.jobs[j].stroke]; ok {
@@ -99,12 +99,12 @@ func (b *builder) registrationReason(sg *segmenter, s, e, k int, coupledTo map[i
 		}
 	}
 	if jb.mode == design.ModeFE {
-		return fmt.Sprintf("field-emission work (±%g nm) beside atomic-precision features already written: a %s image of them instead of the detour to fiducial %s (%s)",
+		return fmt.Sprintf("field-emission work (±%.3g nm) beside atomic-precision features already written: a %s image of them instead of the detour to fiducial %s (%s)",
 			jb.tolNM, units.Duration(c.local), c.fiducials[sg.fid[s]].Name, units.Duration(sg.B[kCoarse][s]))
 	}
 	coarse := sg.model.errCoase + sg.model.creep*sg.aCreep[s]
 	if coarse >= jb.tolNM/b.marginUsed {
-		return fmt.Sprintf("±%g nm is tighter than a fiducial registration holds (±%.2g nm with the approach's creep): lattice image beside the stroke", jb.tolNM, coarse)
+		return fmt.Sprintf("±%.3g nm is tighter than a fiducial registration holds (±%.2g nm with the approach's creep): lattice image beside the stroke", jb.tolNM, coarse)
 	}
 	return fmt.Sprintf("atomic-precision work: a %s lattice image instead of the detour to fiducial %s (%s)",
 		units.Duration(c.local), c.fiducials[sg.fid[s]].Name, units.Duration(sg.B[kCoarse][s]))
@@ -135,7 +135,7 @@ func (b *builder) describeCouplings(plan *Plan, cps []couplingWork, tol tolResul
 			if !c.SameStep {
 				how = "the later registered locally on the earlier"
 			}
-			b.warnings = append(b.warnings, fmt.Sprintf("%s of %s and %s (±%g nm, %s): P(within tolerance) = %.3f, below %.2f",
+			b.warnings = append(b.warnings, fmt.Sprintf("%s of %s and %s (±%.3g nm, %s): P(within tolerance) = %.3f, below %.2f",
 				c.Kind, c.A, c.B, c.ToleranceNM, how, c.PInTolerance, level))
 		}
 	}

@@ -299,3 +299,56 @@ func TestPlanHoldsTheLevel(t *testing.T) {
 		t.Errorf("no segment warning: %s", w)
 	}
 }
+
+// Every action of the demo's session lies inside one process step, so
+// the action list and the CSV's step column leave none outside (the
+// move to the first fiducial fell between the survey and the first
+// lithography step).
+func TestEveryActionInAStep(t *testing.T) {
+	p, err := buildTest(t, demo(t), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	const eps = 1e-9
+	k := 0
+	for _, a := range p.Actions {
+		for k < len(p.Steps) && a.StartS >= p.Steps[k].StartS+p.Steps[k].DurationS-eps && a.DurationS > 0 {
+			k++
+		}
+		if k == len(p.Steps) || a.StartS < p.Steps[k].StartS-eps || a.StartS+a.DurationS > p.Steps[k].StartS+p.Steps[k].DurationS+eps {
+			t.Fatalf("action %d (%s at %.3f s for %.3f s: %s) lies in no step", a.Index, a.Kind, a.StartS, a.DurationS, a.Note)
+		}
+	}
+}
+
+// RegistrationReasons covers every segment once, under its own kind and
+// reason, in the order of each group's first segment.
+func TestRegistrationReasonsCoverEverySegment(t *testing.T) {
+	p, err := buildTest(t, demo(t), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	rs := p.RegistrationReasons()
+	seen := make([]int, len(p.Segments))
+	first := -1
+	for _, r := range rs {
+		if r.Segments[0] <= first {
+			t.Errorf("group %q starts at segment %d, after a group starting at %d", r.Reason, r.Segments[0], first)
+		}
+		first = r.Segments[0]
+		for _, g := range r.Segments {
+			seen[g]++
+			if s := p.Segments[g]; s.Registration != r.Kind || s.Reason != r.Reason || r.Reason == "" {
+				t.Errorf("segment %d (%s: %q) grouped under %s: %q", g, s.Registration, s.Reason, r.Kind, r.Reason)
+			}
+		}
+	}
+	for g, n := range seen {
+		if n != 1 {
+			t.Errorf("segment %d in %d groups", g, n)
+		}
+	}
+	if len(rs) < 2 || len(rs) >= len(p.Segments) {
+		t.Errorf("%d reasons for %d segments: want the demo's few kinds of reason grouped", len(rs), len(p.Segments))
+	}
+}

@@ -42,6 +42,7 @@ func cloneDesignShell(d *design.Design) *design.Design {
 	for i, v := range c.Variants {
 		c.Variants[i].Regions = slices.Clone(v.Regions)
 		c.Variants[i].TunnelGaps = slices.Clone(v.TunnelGaps)
+		c.Variants[i].Couplings = slices.Clone(v.Couplings)
 	}
 	return &c
 }
@@ -82,6 +83,7 @@ func cloneVariant(v design.Variant) design.Variant {
 		c.Regions[i] = cloneRegion(r)
 	}
 	c.TunnelGaps = slices.Clone(v.TunnelGaps)
+	c.Couplings = slices.Clone(v.Couplings)
 	return c
 }
 

@@ -171,7 +171,7 @@ func sameTerraces(a, b *design.Design) bool {
 	}
 	for i := range a.Terraces {
 		x, y := a.Terraces[i], b.Terraces[i]
-		if x.Name != y.Name || x.Rows != y.Rows || x.StepFrom != y.StepFrom || x.OffsetNM != y.OffsetNM || len(x.Boundary) != len(y.Boundary) {
+		if x.Name != y.Name || x.Rows != y.Rows || x.StepFrom != y.StepFrom || x.Step != y.Step || x.OffsetNM != y.OffsetNM || len(x.Boundary) != len(y.Boundary) {
 			return false
 		}
 		for k := range x.Boundary {

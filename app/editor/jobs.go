@@ -2,6 +2,7 @@ package editor
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -21,7 +22,7 @@ import (
 // of the design. The window calls these fields rather than the
 // functions, so a test can put in a job that panics or blocks.
 type Jobs struct {
-	Check            func(ctx context.Context, d *design.Design, variant string) (CheckResult, error)
+	Check            func(ctx context.Context, d *design.Design, variant string, prof planner.Profile) (CheckResult, error)
 	Plan             func(ctx context.Context, d *design.Design, variant string, prof planner.Profile, opt planner.Options) (*planner.Plan, error)
 	Export           func(ctx context.Context, path string, d *design.Design, p *planner.Plan, es ExportSettings, progress func(string, float64)) error
 	ExportComparison func(ctx context.Context, path string, res []export.VariantResult, es ExportSettings) error
@@ -66,10 +67,13 @@ type GapMeasure struct {
 	Text string
 }
 
-// CheckDesign runs the design-rule checks on one variant of d and
-// measures its tunnel gaps. The error is for a variant that cannot be
-// laid out at all.
-func CheckDesign(ctx context.Context, d *design.Design, variant string) (CheckResult, error) {
+// CheckDesign runs the design-rule checks on one variant of d, with the
+// over-clearing rule of the exposure model for prof
+// (planner.CheckExposure: the plan's own coverage test, so a variant
+// that passes plans without a coverage error), and measures its tunnel
+// gaps. The error is for a variant that cannot be laid out at all; one
+// the planner refuses with prof is an over-clearing finding saying why.
+func CheckDesign(ctx context.Context, d *design.Design, variant string, prof planner.Profile) (CheckResult, error) {
 	var res CheckResult
 	l, err := d.Lay(variant)
 	if err != nil {
@@ -79,6 +83,18 @@ func CheckDesign(ctx context.Context, d *design.Design, variant string) (CheckRe
 	if err := ctx.Err(); err != nil {
 		return res, err
 	}
+	over, err := planner.CheckExposure(ctx, l, prof)
+	if err != nil {
+		if ctx.Err() != nil {
+			return res, ctx.Err()
+		}
+		if errors.Is(err, planner.ErrInternal) {
+			return res, err
+		}
+		over = []design.Finding{{Rule: planner.RuleOverclearing, Severity: design.SeverityError,
+			Message: "cannot be planned with this profile: " + err.Error()}}
+	}
+	fs = append(fs, over...)
 	res.Findings = make([]Finding, len(fs))
 	for i, f := range fs {
 		res.Findings[i] = Finding{Rule: f.Rule, Error: f.Severity == design.SeverityError, Message: f.Message, Regions: f.Regions, At: f.AtNM}

@@ -32,18 +32,7 @@ func (s *Session) uniqueReferenceName(base string) string {
 	if strings.TrimSpace(base) == "" {
 		base = "layout"
 	}
-	used := map[string]bool{}
-	for _, r := range s.d.References {
-		used[r.Name] = true
-	}
-	if !used[base] {
-		return base
-	}
-	for k := 2; ; k++ {
-		if n := fmt.Sprintf("%s %d", base, k); !used[n] {
-			return n
-		}
-	}
+	return uniqueName(base, s.d.References, func(r design.Reference) string { return r.Name })
 }
 
 // ImportRegion rasterises the layout's polygons, mapped into the field

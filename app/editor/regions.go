@@ -82,9 +82,12 @@ func (s *Session) DeleteRegions(regions ...int) {
 		}
 	}
 	v.Regions, s.ids[s.variant] = keep, ids
-	// A tunnel gap to a deleted region goes with it.
+	// A tunnel gap or coupling to a deleted region goes with it.
 	v.TunnelGaps = slices.DeleteFunc(slices.Clone(v.TunnelGaps), func(g design.TunnelGap) bool {
 		return slices.Contains(names, g.A) || slices.Contains(names, g.B)
+	})
+	v.Couplings = slices.DeleteFunc(slices.Clone(v.Couplings), func(c design.Coupling) bool {
+		return slices.Contains(names, c.A) || slices.Contains(names, c.B)
 	})
 	s.sel = nil
 	s.shapeSel = nil
@@ -97,7 +100,7 @@ func (s *Session) DeleteRegions(regions ...int) {
 
 // RenameRegion renames region i of the current variant; the design's
 // rules refuse an empty name or one another region of the variant has.
-// The variant's tunnel gaps follow the rename.
+// The variant's tunnel gaps and couplings follow the rename.
 func (s *Session) RenameRegion(i int, name string) error {
 	v := s.Variant()
 	if i < 0 || i >= len(v.Regions) {
@@ -109,18 +112,19 @@ func (s *Session) RenameRegion(i int, name string) error {
 		return nil
 	}
 	err := s.validEdit(fmt.Sprintf("rename region %q to %q", old, name), func() func() {
-		gaps := v.TunnelGaps
+		gaps, cs := v.TunnelGaps, v.Couplings
 		v.Regions[i].Name = name
 		v.TunnelGaps = slices.Clone(gaps)
 		for g := range v.TunnelGaps {
-			if v.TunnelGaps[g].A == old {
-				v.TunnelGaps[g].A = name
-			}
-			if v.TunnelGaps[g].B == old {
-				v.TunnelGaps[g].B = name
-			}
+			rename(&v.TunnelGaps[g].A, old, name)
+			rename(&v.TunnelGaps[g].B, old, name)
 		}
-		return func() { v.Regions[i].Name, v.TunnelGaps = old, gaps }
+		v.Couplings = slices.Clone(cs)
+		for c := range v.Couplings {
+			rename(&v.Couplings[c].A, old, name)
+			rename(&v.Couplings[c].B, old, name)
+		}
+		return func() { v.Regions[i].Name, v.TunnelGaps, v.Couplings = old, gaps, cs }
 	})
 	if err != nil {
 		return err
@@ -128,6 +132,13 @@ func (s *Session) RenameRegion(i int, name string) error {
 	s.touch(s.variant, i)
 	s.commit("rename region", fmt.Sprintf("rename-region-%d-%d", s.variant, i), ChangeRegions)
 	return nil
+}
+
+// rename sets *ref to name where it names old.
+func rename(ref *string, old, name string) {
+	if *ref == old {
+		*ref = name
+	}
 }
 
 // SetRegionRole sets region i's role in the device.
@@ -140,10 +151,17 @@ func (s *Session) SetRegionMode(i int, mode design.Mode) error {
 	return s.setRegion(i, "mode", func(r *design.Region) { r.Mode = mode })
 }
 
-// SetRegionSpecies sets region i's dopant species: that of a window
-// template of the design, or "" for none.
+// SetRegionSpecies sets the dopant region i receives: the species of a
+// window template of the design, "" for the design's dopant, or
+// design.NoDopant for none. A region with a dopant is written in its
+// dopant's step, so it forgets the lithography step it named without.
 func (s *Session) SetRegionSpecies(i int, species string) error {
-	return s.setRegion(i, "species", func(r *design.Region) { r.Species = species })
+	return s.setRegion(i, "dopant", func(r *design.Region) {
+		r.Species = species
+		if species != design.NoDopant {
+			r.LithographyStep = ""
+		}
+	})
 }
 
 // SetRegionTolerance sets region i's placement tolerance in nm (0 takes
@@ -163,7 +181,7 @@ func (s *Session) setRegion(i int, what string, f func(*design.Region)) error {
 	old := v.Regions[i]
 	r := old
 	f(&r)
-	if r.Role == old.Role && r.Mode == old.Mode && r.Species == old.Species && r.ToleranceNM == old.ToleranceNM && r.Colour == old.Colour {
+	if r.Role == old.Role && r.Mode == old.Mode && r.Species == old.Species && r.LithographyStep == old.LithographyStep && r.ToleranceNM == old.ToleranceNM && r.Colour == old.Colour {
 		return nil
 	}
 	err := s.validEdit("set "+what+" of "+r.Name, func() func() {

@@ -120,6 +120,11 @@ func TestNewRegionTakesItsRoleFromTheTool(t *testing.T) {
 func TestTerraceOutlineSnapsToTheFieldEdge(t *testing.T) {
 	s := editortest.Tiny(t)
 	s.SetTool(editor.ToolTerrace)
+	o := s.Opts
+	o.TerraceStep = "down"
+	if err := s.SetOptions(o); err != nil {
+		t.Fatal(err)
+	}
 	near := 2.0
 	for _, p := range []r2.Point{{X: 201, Y: 50}, {X: 120, Y: 50}, {X: 120.004, Y: 199}, {X: 199.2, Y: 200.7}} {
 		s.Click(p, near)

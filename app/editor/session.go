@@ -59,6 +59,9 @@ type Session struct {
 	Profile     planner.Profile
 	ProfilePath string
 
+	surveyImg  *SurveyImage // the survey's image, shaded (survey.go)
+	placements *Placements  // the last placement search's result
+
 	// OnChange, when set, is told what changed after every method that
 	// changes something.
 	OnChange func(Change)
@@ -89,6 +92,7 @@ const (
 	ChangeTerraces                     // field or terraces
 	ChangePreview                      // a tool's preview shape
 	ChangeHistory                      // undo/redo availability
+	ChangeSurvey                       // the survey, its image or the placements found
 
 	ChangeAll Change = 1<<iota - 1
 )

@@ -244,12 +244,48 @@ func TestFiducialsAndTerraces(t *testing.T) {
 	for _, p := range []r2.Point{{X: 150, Y: 0}, {X: 200, Y: 0}, {X: 200, Y: 200}, {X: 160, Y: 200}} {
 		s.Click(p, 1)
 	}
+	// The tool asks which way the step goes before it adds the terrace,
+	// and keeps the outline meanwhile.
+	if err := s.FinishPath(); !errors.Is(err, editor.ErrTerraceStep) || !s.Drawing() {
+		t.Fatalf("finishing a terrace without its step: %v (still drawing %v)", err, s.Drawing())
+	}
+	o := s.Opts
+	o.TerraceStep = "sideways"
+	if err := s.SetOptions(o); err == nil {
+		t.Error("terrace step sideways accepted")
+	}
+	o.TerraceStep = "up"
+	if err := s.SetOptions(o); err != nil {
+		t.Fatal(err)
+	}
 	if err := s.FinishPath(); err != nil {
 		t.Fatal(err)
 	}
 	ts := s.Surface().Terraces
-	if len(ts) != 2 || ts[1].Rows != lattice.RowsAlongY {
-		t.Fatalf("terraces %+v: want a second terrace with rows along y", ts)
+	if len(ts) != 2 || ts[1].Rows != lattice.RowsAlongY || s.Design().Terraces[1].Step != "up" {
+		t.Fatalf("terraces %+v: want a second terrace with rows along y, a step up", ts)
+	}
+	// Up and down put the new lattice in two places (lattice's diamond
+	// test); the Design tab's choice moves it, and undo moves it back.
+	up := ts[0].AcrossStep(lattice.StepUp).Offset
+	if ts[1].Offset != up {
+		t.Errorf("step up: offset %v, want %v", ts[1].Offset, up)
+	}
+	if err := s.SetTerraceStep(1, "down"); err != nil {
+		t.Fatal(err)
+	}
+	if got, want := s.Surface().Terraces[1].Offset, ts[0].AcrossStep(lattice.StepDown).Offset; got != want || got == up {
+		t.Errorf("step down: offset %v, want %v (not %v)", got, want, up)
+	}
+	if err := s.SetTerraceStep(1, "left"); !errors.Is(err, design.ErrInvalid) {
+		t.Errorf("step left: %v", err)
+	}
+	if err := s.SetTerraceStep(0, "up"); err == nil {
+		t.Error("a step set on the terrace that steps from none")
+	}
+	s.Undo()
+	if got := s.Surface().Terraces[1].Offset; got != up || s.Design().Terraces[1].Step != "up" {
+		t.Errorf("undo of the step: offset %v, step %q; want %v, up", got, s.Design().Terraces[1].Step, up)
 	}
 	if got := s.Surface().TerraceAt(r2.Point{X: 190, Y: 100}); got != 1 {
 		t.Errorf("TerraceAt inside the new outline = %d, want 1", got)

@@ -40,15 +40,27 @@ func (s *Session) editTerraces(label, key string, f func(ts []design.Terrace) []
 	for i := range cp {
 		cp[i].Boundary = slices.Clone(cp[i].Boundary)
 	}
-	err := s.validEdit(label, func() func() {
+	return s.editSurface(label, key, func() func() {
 		s.d.Terraces = f(cp)
 		return func() { s.d.Terraces = old }
+	})
+}
+
+// editSurface applies an edit of the surface (terraces or field; apply
+// returns its undo) as one undo step, kept only if the design's rules
+// accept it and the surface can be made again with every region
+// rasterised on it; otherwise it is undone and the error returned.
+func (s *Session) editSurface(label, key string, apply func() (undo func())) error {
+	var undo func()
+	err := s.validEdit(label, func() func() {
+		undo = apply()
+		return undo
 	})
 	if err != nil {
 		return err
 	}
 	if err := s.terracesChanged(); err != nil {
-		s.d.Terraces = old
+		undo()
 		s.rebuildSurface()
 		return err
 	}
@@ -58,7 +70,9 @@ func (s *Session) editTerraces(label, key string, f func(ts []design.Terrace) []
 
 // AddTerrace adds a terrace bounded by poly (nm, 3 or more vertices),
 // one single-height step from the terrace under the first vertex: its
-// rows turn by 90° and its lattice shifts (design.Terrace.StepFrom).
+// rows turn by 90° and its lattice shifts (design.Terrace.StepFrom), up
+// or down as Opts.TerraceStep says ("" leaves it unsaid: laid out as a
+// step down, and the step-registry rule warns).
 func (s *Session) AddTerrace(poly []r2.Point) (int, error) {
 	if len(poly) < 3 {
 		return -1, errors.New("a terrace outline needs at least 3 points")
@@ -91,7 +105,7 @@ func (s *Session) AddTerrace(poly []r2.Point) (int, error) {
 		// Appended, so painted sites keep their terrace indices. The
 		// first bounded terrace holding a point wins, so an outline drawn
 		// inside another bounded terrace stays under it.
-		return append(ts, design.Terrace{Name: name, StepFrom: base, Boundary: b})
+		return append(ts, design.Terrace{Name: name, StepFrom: base, Step: s.Opts.TerraceStep, Boundary: b})
 	})
 	if err != nil {
 		return -1, err
@@ -118,7 +132,7 @@ func (s *Session) SetTerrace(i int, name, rows string, offset r2.Point) error {
 	old := t.Name
 	return s.editTerraces("edit terrace "+name, fmt.Sprintf("terrace-%d", i), func(ts []design.Terrace) []design.Terrace {
 		if ts[i].StepFrom != "" && rows != curRows {
-			ts[i].StepFrom = ""
+			ts[i].StepFrom, ts[i].Step = "", ""
 		}
 		if ts[i].StepFrom == "" {
 			ts[i].Rows = rows
@@ -129,6 +143,28 @@ func (s *Session) SetTerrace(i int, name, rows string, offset r2.Point) error {
 				ts[k].StepFrom = name
 			}
 		}
+		return ts
+	})
+}
+
+// SetTerraceStep says which way the step from the terrace that terrace i
+// steps from goes: "up" or "down" (design.Terrace.Step). The lattice of
+// the terrace moves by a/(2√2) = 0.192 nm across or along its rows
+// (lattice.Terrace.AcrossStep); a change that takes painted sites off
+// the surface is refused, as is a terrace that steps from none.
+func (s *Session) SetTerraceStep(i int, step string) error {
+	if i < 0 || i >= len(s.d.Terraces) {
+		return fmt.Errorf("no terrace %d", i)
+	}
+	t := s.d.Terraces[i]
+	if t.StepFrom == "" {
+		return fmt.Errorf("terrace %s steps from no other terrace: its lattice is its own (rows and offset)", t.Name)
+	}
+	if t.Step == step {
+		return nil
+	}
+	return s.editTerraces("step "+step+" to terrace "+t.Name, fmt.Sprintf("terrace-%d", i), func(ts []design.Terrace) []design.Terrace {
+		ts[i].Step = step
 		return ts
 	})
 }
@@ -172,18 +208,8 @@ func (s *Session) SetFieldSize(w, h float64) error {
 		return nil
 	}
 	label := fmt.Sprintf("set the field to %g x %g nm", w, h)
-	err := s.validEdit(label, func() func() {
+	return s.editSurface(label, "", func() func() {
 		s.d.Field = f
 		return func() { s.d.Field = old }
 	})
-	if err != nil {
-		return err
-	}
-	if err := s.terracesChanged(); err != nil {
-		s.d.Field = old
-		s.rebuildSurface()
-		return err
-	}
-	s.commit(label, "", ChangeTerraces|ChangeSites|ChangeRegions)
-	return nil
 }

@@ -76,6 +76,11 @@ type ToolOptions struct {
 	// BrushNM is the radius of the site, dimer and eraser brushes; 0
 	// paints one site or dimer at a time.
 	BrushNM float64
+	// TerraceStep is which way the step goes from the terrace under the
+	// first point of a terrace outline to the new terrace: "up" or
+	// "down" (design.Terrace.Step). The two lattices differ by 0.27 nm,
+	// so the terrace tool asks: "" finishes no outline until it is set.
+	TerraceStep string
 	// ArrayOf is what the array tool repeats: "window", "dimer" or "site".
 	ArrayOf                          string
 	ArrayCols, ArrayRows             int
@@ -100,6 +105,8 @@ func (o ToolOptions) Validate() error {
 		return fmt.Errorf("line width %g nm: must be between 0.1 and 2000 nm", o.LineWidthNM)
 	case !(o.BrushNM >= 0 && o.BrushNM <= 500):
 		return fmt.Errorf("brush radius %g nm: must be between 0 and 500 nm", o.BrushNM)
+	case o.TerraceStep != "" && o.TerraceStep != "up" && o.TerraceStep != "down":
+		return fmt.Errorf("terrace step %q: must be up or down", o.TerraceStep)
 	case o.ArrayOf != "window" && o.ArrayOf != "dimer" && o.ArrayOf != "site":
 		return fmt.Errorf("array element %q: must be window, dimer or site", o.ArrayOf)
 	case o.ArrayCols < 1 || o.ArrayCols > 1000 || o.ArrayRows < 1 || o.ArrayRows > 1000:
@@ -109,6 +116,10 @@ func (o ToolOptions) Validate() error {
 	}
 	return nil
 }
+
+// ErrTerraceStep is the terrace tool's question: an outline is finished
+// only once the tool's options say which way the step goes.
+var ErrTerraceStep = errors.New("which way does the step go from the terrace under the first point to the new one, up or down? Choose it in the Terrace tool's options (the two lattices lie 0.27 nm apart)")
 
 // SetTool picks the tool, dropping any shape half drawn.
 func (s *Session) SetTool(t Tool) {
@@ -393,6 +404,9 @@ func (s *Session) FinishPath() error {
 		}
 		s.addShape(design.Shape{Kind: design.ShapePolyline, Points: pts(g.points...), WidthNM: s.Opts.LineWidthNM}, "line")
 	case ToolTerrace:
+		if s.Opts.TerraceStep == "" {
+			return keep(ErrTerraceStep)
+		}
 		if _, err := s.AddTerrace(g.points); err != nil {
 			return keep(err)
 		}

@@ -38,9 +38,15 @@ func (s *Session) SetVariant(i int) {
 }
 
 func (s *Session) uniqueVariantName(base string) string {
-	used := map[string]bool{}
-	for _, v := range s.d.Variants {
-		used[v.Name] = true
+	return uniqueName(base, s.d.Variants, func(v design.Variant) string { return v.Name })
+}
+
+// uniqueName returns base, or base with a number ("base 2", "base 3",
+// ...), whichever first is the name of none of items.
+func uniqueName[T any](base string, items []T, name func(T) string) string {
+	used := make(map[string]bool, len(items))
+	for _, it := range items {
+		used[name(it)] = true
 	}
 	if !used[base] {
 		return base

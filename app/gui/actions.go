@@ -174,12 +174,12 @@ func (u *UI) CheckNow() {
 		u.checkCancel()
 	}
 	s := u.Session
-	d, variant, tok := s.DesignCopy(), s.Variant().Name, s.Token()
+	d, variant, tok, prof := s.DesignCopy(), s.Variant().Name, s.Token(), s.Profile
 	ctx, cancel := context.WithCancel(context.Background())
 	u.checkCancel = cancel
 	check := u.jobs.Check
 	go func() {
-		res, err := guardedCheck(check, ctx, d, variant)
+		res, err := guardedCheck(check, ctx, d, variant, prof)
 		fyne.Do(func() {
 			if u.jobDone != nil {
 				defer u.jobDone()
@@ -194,10 +194,13 @@ func (u *UI) CheckNow() {
 	}()
 }
 
+// checkJob is the design-rule check (editor.Jobs.Check).
+type checkJob = func(context.Context, *design.Design, string, planner.Profile) (editor.CheckResult, error)
+
 // guardedCheck runs the design-rule check job through Guard.
-func guardedCheck(check func(context.Context, *design.Design, string) (editor.CheckResult, error), ctx context.Context, d *design.Design, variant string) (res editor.CheckResult, err error) {
+func guardedCheck(check checkJob, ctx context.Context, d *design.Design, variant string, prof planner.Profile) (res editor.CheckResult, err error) {
 	err = editor.Guard(func() (err error) {
-		res, err = check(ctx, d, variant)
+		res, err = check(ctx, d, variant, prof)
 		return err
 	})
 	return res, err
@@ -218,7 +221,7 @@ func (u *UI) checkDone(s *editor.Session, variant string, res editor.CheckResult
 // CheckSync runs the checks on the calling goroutine (tests, screenshot).
 func (u *UI) CheckSync() {
 	s := u.Session
-	res, err := guardedCheck(u.jobs.Check, context.Background(), s.DesignCopy(), s.Variant().Name)
+	res, err := guardedCheck(u.jobs.Check, context.Background(), s.DesignCopy(), s.Variant().Name, s.Profile)
 	u.checkDone(s, s.Variant().Name, res, err, s.Token())
 }
 
@@ -250,7 +253,7 @@ func (u *UI) compareVariants() {
 				return err
 			})
 			res[i] = export.VariantResult{Variant: n, Plan: p, Err: err}
-			rules[i] = rulesSummary(check, ctx, d, n)
+			rules[i] = rulesSummary(check, ctx, d, n, prof)
 			if ctx.Err() != nil {
 				break
 			}
@@ -303,8 +306,8 @@ func (u *UI) compareVariants() {
 
 // rulesSummary says how variant fares under the design rules: "passes",
 // "2 errors", "1 warning".
-func rulesSummary(check func(context.Context, *design.Design, string) (editor.CheckResult, error), ctx context.Context, d *design.Design, variant string) string {
-	res, err := guardedCheck(check, ctx, d, variant)
+func rulesSummary(check checkJob, ctx context.Context, d *design.Design, variant string, prof planner.Profile) string {
+	res, err := guardedCheck(check, ctx, d, variant, prof)
 	if err != nil {
 		return "cannot be checked"
 	}
@@ -326,7 +329,7 @@ func rulesSummary(check func(context.Context, *design.Design, string) (editor.Ch
 // rules, when given, is each variant's design-rule summary, shown in a
 // last column: a fast variant that breaks the rules is no choice.
 func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObject {
-	header := []string{"Variant", "Session (mean)", "P10 – P90", "Steps", "Within tolerance", "All windows good", "Coverage"}
+	header := []string{"Variant", "Session (mean)", "P10 – P90", "Steps", "Within tolerance", "All windows good", "95 % interval", "Coverage"}
 	if rules != nil {
 		header = append(header, "Design rules")
 	}
@@ -353,9 +356,13 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 			continue
 		}
 		p := r.Plan
-		all := "no windows"
-		if p.Yield.Windows > 0 {
-			all = formatProbability(p.Yield.All)
+		// P(all windows good) is exact for the templates' mean
+		// probabilities; the interval comes from their uncertainties.
+		all, interval, bar := "no windows", "—", "no windows"
+		if y := p.Yield; y.Windows > 0 {
+			all = formatProbability(y.All)
+			interval = formatProbabilityRange(y.All95, y.Log10All95)
+			bar = all + " (95 %: " + interval + ")"
 		}
 		var steps []string
 		for _, st := range p.Steps {
@@ -366,7 +373,7 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 		// Times to the second (h:mm:ss): variants a few seconds apart read
 		// alike in whole minutes.
 		for _, t := range []string{r.Variant, units.Clock(p.TotalS), units.Clock(p.P10S) + " – " + units.Clock(p.P90S),
-			strings.Join(steps, ", "), formatProbability(p.PInTolerance), all} {
+			strings.Join(steps, ", "), formatProbability(p.PInTolerance), all, interval} {
 			cells = append(cells, widget.NewLabel(t))
 		}
 		cov := widget.NewLabel("passed")
@@ -383,12 +390,12 @@ func comparisonView(res []export.VariantResult, rules []string) fyne.CanvasObjec
 			cells = append(cells, l)
 		}
 		timeBars = append(timeBars, Bar{Label: r.Variant, Value: p.TotalS, Text: units.Clock(p.TotalS), Color: render.SegmentColor(i)})
-		yieldBars = append(yieldBars, Bar{Label: r.Variant, Value: p.Yield.All, Text: all, Color: colYield})
+		yieldBars = append(yieldBars, Bar{Label: r.Variant, Value: p.Yield.All, Text: bar, Color: colYield})
 	}
 	table := container.New(&tableLayout{cols: cols}, cells...)
 	charts := container.NewGridWithColumns(2,
 		container.NewVBox(heading("Session time per variant"), NewBarChart(timeBars)),
-		container.NewVBox(heading("Chance every window takes one donor"), NewBarChart(yieldBars)))
+		container.NewVBox(heading("Chance every window is opened as drawn and takes one donor"), NewBarChart(yieldBars)))
 	parts := []fyne.CanvasObject{table}
 	if diffs := differencesView(res); diffs != nil {
 		parts = append(parts, widget.NewSeparator(), diffs)

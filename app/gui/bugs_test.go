@@ -62,7 +62,9 @@ func TestPanickingJobKeepsTheDesign(t *testing.T) {
 			}
 		}, func(t *testing.T, u *UI) { waitJob(t, u, u.StartPlan) }},
 		{"check", func(j *editor.Jobs) {
-			j.Check = func(context.Context, *design.Design, string) (editor.CheckResult, error) { panic(boom("check")) }
+			j.Check = func(context.Context, *design.Design, string, planner.Profile) (editor.CheckResult, error) {
+				panic(boom("check"))
+			}
 		}, func(t *testing.T, u *UI) { waitJob(t, u, u.CheckNow) }},
 		{"compare", func(j *editor.Jobs) {
 			j.Plan = func(context.Context, *design.Design, string, planner.Profile, planner.Options) (*planner.Plan, error) {
@@ -152,7 +154,9 @@ func TestPanickingJobKeepsTheDesign(t *testing.T) {
 // and the findings list says the variant could not be checked.
 func TestBugInACheckIsReportedOnce(t *testing.T) {
 	u, w := newTestUI(t, nil)
-	u.jobs.Check = func(context.Context, *design.Design, string) (editor.CheckResult, error) { panic("test bug in check") }
+	u.jobs.Check = func(context.Context, *design.Design, string, planner.Profile) (editor.CheckResult, error) {
+		panic("test bug in check")
+	}
 	u.CheckSync()
 	top := w.Canvas().Overlays().Top()
 	if top == nil {

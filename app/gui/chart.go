@@ -52,7 +52,7 @@ type barRenderer struct {
 	rects  []*canvas.Rectangle
 	texts  []*canvas.Text
 	track  []*canvas.Rectangle
-	objs   []fyne.CanvasObject
+	objectList
 }
 
 const barHeight = 14
@@ -127,5 +127,9 @@ func (r *barRenderer) Refresh() {
 	canvas.Refresh(r.c)
 }
 
-func (r *barRenderer) Objects() []fyne.CanvasObject { return r.objs }
-func (r *barRenderer) Destroy()                     {}
+// objectList gives the charts' renderers the Objects and Destroy of
+// fyne.WidgetRenderer over the objects they draw (rebuilt on Refresh).
+type objectList struct{ objs []fyne.CanvasObject }
+
+func (o *objectList) Objects() []fyne.CanvasObject { return o.objs }
+func (o *objectList) Destroy()                     {}

@@ -88,25 +88,32 @@ func (u *UI) quit() {
 
 func (u *UI) openDialog() {
 	u.confirmDiscard("open another design", func() {
-		d := dialog.NewFileOpen(func(r fyne.URIReadCloser, err error) {
-			if err != nil {
-				dialog.ShowError(err, u.Win)
-				return
-			}
-			if r == nil {
-				return
-			}
-			path := r.URI().Path()
-			r.Close()
-			u.OpenPath(path)
-		}, u.Win)
-		d.SetFilter(storage.NewExtensionFileFilter([]string{".json"}))
-		if dir := u.lastDir(); dir != nil {
-			d.SetLocation(dir)
-		}
-		d.Resize(fyne.NewSize(900, 600))
-		d.Show()
+		u.chooseOpenFile([]string{".json"}, func(path string) { u.OpenPath(path) })
 	})
+}
+
+// chooseOpenFile asks for a file to read, one of exts, starting in the
+// folder of the current or most recent file, and calls then with its
+// path (not when the dialog is cancelled).
+func (u *UI) chooseOpenFile(exts []string, then func(path string)) {
+	d := dialog.NewFileOpen(func(r fyne.URIReadCloser, err error) {
+		if err != nil {
+			dialog.ShowError(err, u.Win)
+			return
+		}
+		if r == nil {
+			return
+		}
+		path := r.URI().Path()
+		r.Close()
+		then(path)
+	}, u.Win)
+	d.SetFilter(storage.NewExtensionFileFilter(exts))
+	if dir := u.lastDir(); dir != nil {
+		d.SetLocation(dir)
+	}
+	d.Resize(fyne.NewSize(900, 600))
+	d.Show()
 }
 
 // lastDir is the folder of the current or most recent file, for the file

@@ -11,7 +11,6 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/dialog"
-	"fyne.io/fyne/v2/storage"
 	"fyne.io/fyne/v2/widget"
 
 	"dimerpath/app/editor"
@@ -25,16 +24,7 @@ import (
 // reading and mapping are gdsimport's, the edit the session's.
 
 func (u *UI) importLayoutDialog() {
-	d := dialog.NewFileOpen(func(r fyne.URIReadCloser, err error) {
-		if err != nil {
-			dialog.ShowError(err, u.Win)
-			return
-		}
-		if r == nil {
-			return
-		}
-		path := r.URI().Path()
-		r.Close()
+	u.chooseOpenFile([]string{".gds", ".GDS", ".gds2", ".gdsii"}, func(path string) {
 		u.hintLabel.SetText("Reading " + filepath.Base(path) + "…")
 		go func() {
 			c, err := safely(func() (*gdsimport.Contents, error) { return gdsimport.Inspect(path) })
@@ -47,13 +37,7 @@ func (u *UI) importLayoutDialog() {
 				u.askImport(path, c)
 			})
 		}()
-	}, u.Win)
-	d.SetFilter(storage.NewExtensionFileFilter([]string{".gds", ".GDS", ".gds2", ".gdsii"}))
-	if dir := u.lastDir(); dir != nil {
-		d.SetLocation(dir)
-	}
-	d.Resize(fyne.NewSize(900, 600))
-	d.Show()
+	})
 }
 
 // safely runs f under editor.Guard, so a bug in reading a layout is

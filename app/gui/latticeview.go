@@ -124,7 +124,9 @@ func (lv *LatticeView) buildScene() *render.Scene {
 	if lv.scene != nil {
 		return lv.scene
 	}
-	sc := lv.s.Scene(editor.SceneOptions{Findings: lv.Opts.Findings})
+	opts := lv.Opts
+	opts.Route = false // the overlay is kept here, made in the planning goroutine
+	sc := lv.s.Scene(opts)
 	if lv.Opts.Route {
 		if p, _ := lv.s.Plan(); p != nil {
 			if lv.routeOf != p {

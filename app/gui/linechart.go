@@ -60,7 +60,7 @@ type lineChartRenderer struct {
 	lines  []*canvas.Line // the main line's segments
 	second []*canvas.Line
 	marks  []*canvas.Circle
-	objs   []fyne.CanvasObject
+	objectList
 	// plot is the plot area, set by Layout: the band's raster covers it.
 	plotW, plotH float32
 }
@@ -234,6 +234,3 @@ func (r *lineChartRenderer) Refresh() {
 	r.Layout(r.c.Size())
 	canvas.Refresh(r.c)
 }
-
-func (r *lineChartRenderer) Objects() []fyne.CanvasObject { return r.objs }
-func (r *lineChartRenderer) Destroy()                     {}

@@ -15,6 +15,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"github.com/golang/geo/r2"
 
+	"dimerpath/app/editor"
 	"dimerpath/app/render"
 	"dimerpath/lattice/design"
 )
@@ -151,13 +152,19 @@ type regionsPanel struct {
 	role       *widget.Select
 	mode       *widget.Select
 	species    *widget.Select
+	dopants    []string // the species value of each species option
+	step       *widget.Select
+	steps      []string // the lithography step of each step option
 	tol        *keyEntry
 	colour     *canvas.Rectangle // the selected region's swatch
 	info       *widget.Label
 	msg        *widget.Label
 	shape      *shapeEditor
 	gaps       *fyne.Container
+	gapRows    *linkRows
 	addGap     *widget.Select
+	couplings  *linkRows
+	addCouple  *widget.Select
 	shown      int // region the form shows
 	updating   bool
 }
@@ -221,20 +228,17 @@ func newRegionsPanel(u *UI) *regionsPanel {
 			}
 		}
 	})
-	p.species = widget.NewSelect([]string{dopantDefault, "P (phosphine)", "As (arsine)", dopantNone}, func(s string) {
-		if p.updating || p.shown < 0 {
+	p.species = widget.NewSelect(nil, func(string) {
+		if p.updating || p.shown < 0 || p.species.SelectedIndex() < 0 {
 			return
 		}
-		sp := ""
-		switch {
-		case strings.HasPrefix(s, "P "):
-			sp = "P"
-		case strings.HasPrefix(s, "As"):
-			sp = "As"
-		case s == dopantNone:
-			sp = design.NoDopant
+		showErr(p.msg, p.u.Session.SetRegionSpecies(p.shown, p.dopants[p.species.SelectedIndex()]))
+	})
+	p.step = widget.NewSelect(nil, func(string) {
+		if p.updating || p.shown < 0 || p.step.SelectedIndex() < 0 {
+			return
 		}
-		showErr(p.msg, p.u.Session.SetRegionSpecies(p.shown, sp))
+		showErr(p.msg, p.u.Session.SetRegionLithographyStep(p.shown, p.steps[p.step.SelectedIndex()]))
 	})
 	p.tol = u.newEntry()
 	p.tol.SetPlaceHolder("mode default")
@@ -256,6 +260,35 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	p.msg = errorLabel()
 	p.shape = newShapeEditor(u)
 	p.gaps = container.NewVBox()
+	p.gapRows = &linkRows{u: u, box: container.NewVBox(), field: "width ±",
+		set: func(i int, typed string) error {
+			nm, err := parseTolerance(typed)
+			if err != nil {
+				return err
+			}
+			return p.u.Session.SetTunnelGapTolerance(i, nm)
+		},
+		remove: func(i int) { p.u.Session.RemoveTunnelGap(i) },
+		msg:    func(err error) { showErr(p.msg, err) }}
+	p.gaps.Add(p.gapRows.box)
+	p.couplings = &linkRows{u: u, box: container.NewVBox(), field: "relative ±",
+		set: func(i int, typed string) error {
+			nm, err := parseTolerance(typed)
+			if err != nil {
+				return err
+			}
+			return p.u.Session.SetCouplingTolerance(i, nm)
+		},
+		remove: func(i int) { p.u.Session.RemoveCoupling(i) },
+		msg:    func(err error) { showErr(p.msg, err) }}
+	p.addCouple = widget.NewSelect(nil, func(other string) {
+		if p.updating || p.shown < 0 || other == "" {
+			return
+		}
+		showErr(p.msg, p.u.Session.AddCoupling(p.u.Session.Variant().Regions[p.shown].Name, other))
+		p.addCouple.ClearSelected()
+	})
+	p.addCouple.PlaceHolder = "Couple placement to…"
 	p.addGap = widget.NewSelect(nil, func(other string) {
 		if p.updating || p.shown < 0 || other == "" {
 			return
@@ -275,10 +308,11 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		widget.NewFormItem("Role", p.role),
 		widget.NewFormItem("Write mode", p.mode),
 		widget.NewFormItem("Dopant", p.species),
+		widget.NewFormItem("Written in", p.step),
 		widget.NewFormItem("Tolerance ± nm", p.tol),
 	)
 	p.form = container.NewVBox(widget.NewSeparator(), heading("Selected region"), form, p.msg, p.info, p.shape.box,
-		p.gaps, p.addGap,
+		p.gaps, p.addGap, p.couplings.box, p.addCouple,
 		container.NewGridWithColumns(2,
 			widget.NewButtonWithIcon("Zoom to", theme.ZoomFitIcon(), u.zoomToSelection),
 			widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() {
@@ -298,14 +332,41 @@ func newRegionsPanel(u *UI) *regionsPanel {
 	return p
 }
 
-// The Dopant choices beside the species: the design's default dopant
-// (the region names none: its δ-layer takes the design's), and no dopant
-// (a region opened for another reason, written in the first step unless
-// the design file names another).
-const (
-	dopantDefault = "design default"
-	dopantNone    = "none (no dopant)"
-)
+// dopantChoices returns the Dopant choices of a region and the species
+// each stands for: the design's dopant (the region names none, so its
+// δ-layer takes the design's), each species the design's templates
+// deliver, and no dopant (a region opened for another reason).
+func dopantChoices(s *editor.Session) (labels, species []string) {
+	labels = append(labels, "design default ("+s.DesignDopant()+")")
+	species = append(species, "")
+	for _, sp := range append(s.Species(), design.NoDopant) {
+		labels = append(labels, design.DopantLabel(sp))
+		species = append(species, sp)
+	}
+	return labels, species
+}
+
+// stepChoices returns the choices of the lithography step a region
+// without dopant is written in, and the step each stands for.
+func stepChoices(s *editor.Session) (labels, steps []string) {
+	labels, steps = []string{"first step"}, []string{""}
+	for _, sp := range s.Species() {
+		labels = append(labels, sp+" step")
+		steps = append(steps, sp)
+	}
+	return labels, steps
+}
+
+// selectValue selects in sel the option whose value (in values) is v.
+func selectValue(sel *widget.Select, values []string, v string) {
+	for i, x := range values {
+		if x == v {
+			sel.SetSelectedIndex(i)
+			return
+		}
+	}
+	sel.ClearSelected()
+}
 
 // pickColour offers a colour for the selected region; the region keeps
 // it (it is saved with the design), whatever happens to the others.
@@ -396,15 +457,24 @@ func (p *regionsPanel) refresh() {
 	p.colour.Refresh()
 	p.role.SetSelected(roleOf(r.Role))
 	p.mode.SetSelected(modeOf(r.Mode))
-	switch r.Species {
-	case "P":
-		p.species.SetSelected("P (phosphine)")
-	case "As":
-		p.species.SetSelected("As (arsine)")
-	case design.NoDopant:
-		p.species.SetSelected(dopantNone)
-	default:
-		p.species.SetSelected(dopantDefault)
+	var labels []string
+	labels, p.dopants = dopantChoices(s)
+	p.species.SetOptions(labels)
+	selectValue(p.species, p.dopants, r.Species)
+	// A region without dopant names its step; the others are written in
+	// their dopant's, which the choice shows, disabled.
+	if r.Species == design.NoDopant {
+		labels, p.steps = stepChoices(s)
+		p.step.Enable()
+	} else {
+		dopant := s.Design().DopantOf(&r)
+		labels, p.steps = []string{dopant + " step (its dopant's)"}, []string{dopant}
+		p.step.Disable()
+	}
+	p.step.SetOptions(labels)
+	selectValue(p.step, p.steps, r.LithographyStep)
+	if r.Species != design.NoDopant {
+		p.step.SetSelectedIndex(0)
 	}
 	tol := ""
 	if r.ToleranceNM > 0 {
@@ -447,34 +517,56 @@ func (p *regionsPanel) refreshGaps() {
 	}
 	v := s.Variant()
 	name := v.Regions[a].Name
-	var rows []fyne.CanvasObject
-	coupled := map[string]bool{name: true}
+	otherOf := func(a, b string) string {
+		if a == name {
+			return b
+		}
+		return a
+	}
+	var gaps []link
+	gapped := map[string]bool{name: true}
 	for gi, g := range v.TunnelGaps {
 		if g.A != name && g.B != name {
 			continue
 		}
-		other := g.B
-		if other == name {
-			other = g.A
-		}
-		coupled[other] = true
+		other := otherOf(g.A, g.B)
+		gapped[other] = true
 		width := "measuring…"
 		if w, ok := s.GapWidth(g.A, g.B); ok {
 			width = w.Text
 		}
-		rm := widget.NewButtonWithIcon("", theme.ContentRemoveIcon(), func() { p.u.Session.RemoveTunnelGap(gi) })
-		rows = append(rows, container.NewBorder(nil, nil, nil, rm, wrapLabel("Tunnel gap to "+other+": "+width)))
+		rule := s.Design().EffectiveRules().TunnelGapToleranceNM
+		gaps = append(gaps, link{index: gi, a: g.A, b: g.B, text: "Tunnel gap to " + other + ": " + width,
+			tolNM: g.ToleranceNM, placeholder: "rule's " + trimZeros(fmt.Sprintf("%.3f", rule))})
 	}
-	p.gaps.Objects = rows
-	p.gaps.Refresh()
-	var others []string
+	p.gapRows.show(gaps)
+	var couplings []link
+	coupled := map[string]bool{name: true}
+	for ci, c := range v.Couplings {
+		if c.A != name && c.B != name {
+			continue
+		}
+		other := otherOf(c.A, c.B)
+		coupled[other] = true
+		couplings = append(couplings, link{index: ci, a: c.A, b: c.B, text: "Placement coupled to " + other,
+			tolNM: c.ToleranceNM, placeholder: "required"})
+	}
+	p.couplings.show(couplings)
+	p.addGap.SetOptions(others(v, gapped))
+	p.addGap.ClearSelected()
+	p.addCouple.SetOptions(others(v, coupled))
+	p.addCouple.ClearSelected()
+}
+
+// others returns the names of the variant's regions not in taken.
+func others(v *design.Variant, taken map[string]bool) []string {
+	var out []string
 	for _, r := range v.Regions {
-		if !coupled[r.Name] {
-			others = append(others, r.Name)
+		if !taken[r.Name] {
+			out = append(out, r.Name)
 		}
 	}
-	p.addGap.SetOptions(others)
-	p.addGap.ClearSelected()
+	return out
 }
 
 // --- Findings ---
@@ -676,20 +768,27 @@ type marksPanel struct {
 	terrSel  int
 	terrName *keyEntry
 	terrRows *widget.RadioGroup
-	terrX    *keyEntry
-	terrY    *keyEntry
-	terrMsg  *widget.Label
-	terrForm *fyne.Container
-	fidEmpty *widget.Label
-	name     *keyEntry
-	nameMsg  *widget.Label
-	field    *widget.Label
-	fieldW   *keyEntry
-	fieldH   *keyEntry
-	fieldMsg *widget.Label
-	shownW   float64 // the field size the entries were last filled with
-	shownH   float64
-	updating bool
+	// terrStep asks which way the step from the terrace this one steps
+	// from goes (up or down); hidden for a terrace that steps from none.
+	terrStep     *widget.RadioGroup
+	terrStepItem *widget.FormItem
+	terrStepForm *widget.Form
+	terrX        *keyEntry
+	terrY        *keyEntry
+	terrMsg      *widget.Label
+	terrForm     *fyne.Container
+	fidEmpty     *widget.Label
+	name         *keyEntry
+	nameMsg      *widget.Label
+	dopant       *widget.Select
+	dopants      []string // the species of each dopant option
+	field        *widget.Label
+	fieldW       *keyEntry
+	fieldH       *keyEntry
+	fieldMsg     *widget.Label
+	shownW       float64 // the field size the entries were last filled with
+	shownH       float64
+	updating     bool
 }
 
 func newMarksPanel(u *UI) *marksPanel {
@@ -743,8 +842,11 @@ func newMarksPanel(u *UI) *marksPanel {
 					rows = surf.Terraces[i].Rows.String()
 				}
 				step := ""
-				if t.StepFrom != "" {
-					step = ", a step from " + t.StepFrom
+				switch {
+				case t.StepFrom != "" && t.Step != "":
+					step = ", a step " + t.Step + " from " + t.StepFrom
+				case t.StepFrom != "":
+					step = ", a step from " + t.StepFrom + " (up or down? not said)"
 				}
 				o.(*widget.Label).SetText(fmt.Sprintf("%s: rows along %s, %s%s", t.Name, rows, where, step))
 			}
@@ -754,9 +856,20 @@ func newMarksPanel(u *UI) *marksPanel {
 	p.terrRows = widget.NewRadioGroup([]string{"x", "y"}, nil)
 	p.terrRows.Horizontal = true
 	p.terrMsg = errorLabel()
+	p.terrStep = widget.NewRadioGroup([]string{"up", "down"}, func(step string) {
+		if p.updating || p.terrSel < 0 || step == "" {
+			return
+		}
+		showErr(p.terrMsg, p.u.Session.SetTerraceStep(p.terrSel, step))
+	})
+	p.terrStep.Horizontal = true
+	p.terrStepItem = widget.NewFormItem("Step", p.terrStep)
+	p.terrStepItem.HintText = "which way from the terrace it steps from: the lattices lie 0.27 nm apart"
+	p.terrStepForm = widget.NewForm(p.terrStepItem)
 	p.terrForm = container.NewVBox(
 		widget.NewForm(widget.NewFormItem("Name", p.terrName), widget.NewFormItem("Rows along", p.terrRows),
 			widget.NewFormItem("Offset x (nm)", p.terrX), widget.NewFormItem("Offset y (nm)", p.terrY)),
+		p.terrStepForm,
 		p.terrMsg,
 		container.NewGridWithColumns(2,
 			widget.NewButtonWithIcon("Apply", theme.ConfirmIcon(), p.applyTerrace),
@@ -780,15 +893,25 @@ func newMarksPanel(u *UI) *marksPanel {
 		}
 	}
 	p.nameMsg = errorLabel()
+	p.dopant = widget.NewSelect(nil, func(string) {
+		if !p.updating && p.dopant.SelectedIndex() >= 0 {
+			showErr(p.nameMsg, p.u.Session.SetDesignDopant(p.dopants[p.dopant.SelectedIndex()]))
+		}
+	})
 	p.field = mutedLabel("")
 	p.fieldW, p.fieldH = u.newEntry(), u.newEntry()
 	p.fieldMsg = errorLabel()
 	p.fieldW.OnSubmitted = func(string) { p.applyField() }
 	p.fieldH.OnSubmitted = func(string) { p.applyField() }
 	applyField := widget.NewButtonWithIcon("Apply", theme.ConfirmIcon(), p.applyField)
-	fieldRow := container.NewBorder(nil, nil, nil, applyField, container.NewGridWithColumns(2,
-		widget.NewForm(widget.NewFormItem("Field width (nm)", p.fieldW)), widget.NewForm(widget.NewFormItem("height (nm)", p.fieldH))))
-	top := container.NewVBox(heading("Design"), widget.NewForm(widget.NewFormItem("Name", p.name)), p.nameMsg, fieldRow, p.fieldMsg, p.field, widget.NewSeparator())
+	dopantItem := widget.NewFormItem("Dopant", p.dopant)
+	dopantItem.HintText = "of regions that name none"
+	// One form, so the labels line up and the size fields keep their
+	// width (two forms side by side squeezed the numbers under the labels).
+	form := widget.NewForm(widget.NewFormItem("Name", p.name), dopantItem,
+		widget.NewFormItem("Field width (nm)", p.fieldW), widget.NewFormItem("Field height (nm)", p.fieldH))
+	top := container.NewVBox(heading("Design"), form, p.nameMsg, container.NewBorder(nil, nil, nil, applyField, p.fieldMsg),
+		p.field, widget.NewSeparator())
 	p.content = container.NewBorder(top, nil, nil, nil, split)
 	return p
 }
@@ -799,6 +922,13 @@ func (p *marksPanel) refresh() {
 	if p.name.Text != d.Name && strings.TrimSpace(p.name.Text) != d.Name {
 		p.name.SetText(d.Name)
 	}
+	p.dopants = p.u.Session.Species()
+	labels := make([]string, len(p.dopants))
+	for i, sp := range p.dopants {
+		labels[i] = design.DopantLabel(sp)
+	}
+	p.dopant.SetOptions(labels)
+	selectValue(p.dopant, p.dopants, p.u.Session.DesignDopant())
 	p.updating = false
 	p.field.SetText(fmt.Sprintf("Field %s x %s, %s, %s. The name is printed on every plan and report.",
 		formatLength(d.Field.WidthNM), formatLength(d.Field.HeightNM), plural(len(d.Terraces), "terrace"), plural(len(d.Variants), "variant")))
@@ -885,6 +1015,16 @@ func (p *marksPanel) showTerrace() {
 	p.terrRows.SetSelected(p.u.Session.Surface().Terraces[p.terrSel].Rows.String())
 	p.terrX.SetText(trimZeros(fmt.Sprintf("%.4f", t.OffsetNM[0])))
 	p.terrY.SetText(trimZeros(fmt.Sprintf("%.4f", t.OffsetNM[1])))
+	if t.StepFrom != "" {
+		p.terrStepItem.Text = "Step from " + t.StepFrom
+		p.updating = true
+		p.terrStep.SetSelected(t.Step)
+		p.updating = false
+		p.terrStepForm.Refresh()
+		p.terrStepForm.Show()
+	} else {
+		p.terrStepForm.Hide()
+	}
 	p.terrMsg.Hide()
 	p.terrForm.Show()
 }

@@ -66,7 +66,7 @@ func TestPlanShownOnCanvasAndPanel(t *testing.T) {
 	rendertest.SaveImage(t, "window-plan.png", w.Canvas().Capture())
 	zoomOn(w, u, mid, 0.5)
 	panel := texts(u.planView.content)
-	for _, want := range []string{units.Duration(3720), "P10 " + units.Duration(3500), "Every window opened as drawn with exactly one donor: 40 %.", "2 drift-safe segments"} {
+	for _, want := range []string{units.Duration(3720), "P10 " + units.Duration(3500), "Every window opened as drawn with exactly one donor: 40 % (68 % interval 33 – 47 %, 95 % interval 26 – 54 %", "2 drift-safe segments"} {
 		if !strings.Contains(panel, want) {
 			t.Errorf("plan panel lacks %q:\n%s", want, panel)
 		}
@@ -112,7 +112,8 @@ func TestComparisonView(t *testing.T) {
 		t.Errorf("comparison is %g units wide, more than its 1100-unit dialog", w)
 	}
 	text := texts(view)
-	for _, want := range []string{"A", units.Clock(3720), "40 %", "B", errPlanTest.Error()} { // times to the second (issue 13)
+	// P(all windows good) with its 95 % interval (issue 10 §4).
+	for _, want := range []string{"A", units.Clock(3720), "40 %", "95 % interval", "26 – 54 %", "40 % (95 %: 26 – 54 %)", "B", errPlanTest.Error()} { // times to the second (issue 13)
 		if !strings.Contains(text, want) {
 			t.Errorf("comparison lacks %q:\n%s", want, text)
 		}

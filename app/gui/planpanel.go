@@ -61,6 +61,16 @@ func formatProbability(p float64) string {
 	return trimZeros(fmt.Sprintf("%.1f", m)) + "·10" + superscript(e) + " %"
 }
 
+// formatProbabilityRange prints an interval of probabilities as
+// percentages, "36.1 – 69.4 %"; where the probabilities underflow to 0
+// it prints them from their log10 (units.ProbabilityRange).
+func formatProbabilityRange(p, log10 [2]float64) string {
+	if p[1] == 0 && !math.IsInf(log10[1], -1) {
+		return units.ProbabilityRange(p, log10)
+	}
+	return strings.TrimSuffix(formatProbability(p[0]), " %") + " – " + formatProbability(p[1])
+}
+
 // superscript writes n in superscript digits: -5 as ⁻⁵.
 func superscript(n int) string {
 	digits := []rune("⁰¹²³⁴⁵⁶⁷⁸⁹")
@@ -186,8 +196,8 @@ func (p *planPanel) refresh() {
 		}
 		intervals := ""
 		if y.All95[1] >= y.All && y.All95[1] > 0 {
-			intervals = fmt.Sprintf(" (68 %%: %s, 95 %%: %s, from the templates' uncertainties)",
-				units.ProbabilityRange(y.All68, y.Log10All68), units.ProbabilityRange(y.All95, y.Log10All95))
+			intervals = fmt.Sprintf(" (68 %% interval %s, 95 %% interval %s, from the templates' uncertainties)",
+				formatProbabilityRange(y.All68, y.Log10All68), formatProbabilityRange(y.All95, y.Log10All95))
 		}
 		all := formatProbability(y.All)
 		if y.All == 0 {
@@ -205,9 +215,13 @@ func (p *planPanel) refresh() {
 			if w.P1SD > 0 {
 				p1 += " ± " + formatProbability(w.P1SD)
 			}
-			objs = append(objs, mutedLabel(fmt.Sprintf("%s window of %s at (%.1f, %.1f) nm: opened as drawn %s; p0 %s, p1 %s, p≥2 %s; good %s",
+			open := ""
+			if w.OpenS > 0 {
+				open = "; open " + units.Duration(w.OpenS) + " before its dose"
+			}
+			objs = append(objs, mutedLabel(fmt.Sprintf("%s window of %s at (%.1f, %.1f) nm: opened as drawn %s; p0 %s, p1 %s, p≥2 %s; good %s%s",
 				w.Template, w.Region, w.At.X, w.At.Y, formatProbability(w.OpenProbability), formatProbability(w.P0), p1,
-				formatProbability(w.P2Plus), formatProbability(w.Probability))))
+				formatProbability(w.P2Plus), formatProbability(w.Probability), open)))
 		}
 		if len(y.Distribution) > 1 {
 			objs = append(objs, NewBarChart(yieldBars(y)))
@@ -222,6 +236,18 @@ func (p *planPanel) refresh() {
 	}
 	objs = append(objs, wrapLabel(fmt.Sprintf("%d drift-safe segments (%d registered on fiducials, %d on the lattice beside the work), %d strokes, %d tip actions. Profile: %s.",
 		len(pl.Segments), len(pl.Segments)-local, local, len(pl.Strokes), len(pl.Actions), pl.Profile)))
+	// Why the segments register as they do, one line per reason.
+	for i, r := range pl.RegistrationReasons() {
+		if i == maxReasonLines {
+			objs = append(objs, mutedLabel("… and more reasons (each segment's is in the exported plan)."))
+			break
+		}
+		nums := make([]int, len(r.Segments))
+		for k, g := range r.Segments {
+			nums[k] = g + 1
+		}
+		objs = append(objs, wrapLabel(fmt.Sprintf("%s registration, %s %s: %s", r.Kind, map[bool]string{true: "segments", false: "segment"}[len(nums) > 1], units.Ranges(nums, 8), r.Reason)))
+	}
 	for _, c := range pl.Couplings {
 		objs = append(objs, wrapLabel(fmt.Sprintf("%s %s / %s ±%.2g nm: within tolerance %s.", c.Kind, c.A, c.B, c.ToleranceNM, formatProbability(c.PInTolerance))))
 	}
@@ -256,17 +282,21 @@ func (p *planPanel) refresh() {
 	p.body.Refresh()
 }
 
+// maxReasonLines is how many reasons for the kinds of registration the
+// plan panel lists.
+const maxReasonLines = 12
+
 // stepLine describes one process step for the plan panel.
 func stepLine(i int, st planner.Step) string {
 	what := st.Note
 	if st.Kind == planner.StepLithography {
-		what = fmt.Sprintf("%d segment(s): %s", len(st.Segments), st.Note)
+		what = fmt.Sprintf("%s: %s", plural(len(st.Segments), "segment"), st.Note)
 	}
 	sp := ""
 	if st.Species != "" {
 		sp = " " + st.Species
 	}
-	return fmt.Sprintf("%d. %s%s at %s, %s: %s", i+1, st.Kind, sp, units.Duration(st.StartS), units.Duration(st.DurationS), what)
+	return fmt.Sprintf("%d. %s%s, from %s for %s: %s", i+1, st.Kind, sp, units.Duration(st.StartS), units.Duration(st.DurationS), what)
 }
 
 // yieldBars shows the distribution of the number of good windows around

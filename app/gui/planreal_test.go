@@ -41,8 +41,16 @@ func TestPlanButtonPlansDemo(t *testing.T) {
 	if u.tabs.Selected() != u.tabPlan {
 		t.Error("the Plan tab is not shown after planning")
 	}
-	if panel := texts(u.planView.content); !strings.Contains(panel, units.Duration(p.TotalS)) {
+	panel := texts(u.planView.content)
+	if !strings.Contains(panel, units.Duration(p.TotalS)) {
 		t.Errorf("plan panel lacks the total %s", units.Duration(p.TotalS))
+	}
+	// Issue 11: the panel shows the process steps and how long each
+	// window stays open before its dose.
+	for _, want := range []string{"Process steps", "lithography As, from ", "dose P, from ", "before its dose", "local registration, segment"} {
+		if !strings.Contains(panel, want) {
+			t.Errorf("plan panel lacks %q:\n%s", want, panel)
+		}
 	}
 	// The first AP line stroke is drawn in its segment's colour.
 	for _, st := range p.Strokes {

@@ -329,6 +329,7 @@ func (e *profileEditor) apply() {
 		return
 	}
 	e.u.Session.SetProfile(p, e.path)
+	e.u.scheduleCheck() // the over-clearing rule depends on the profile
 	e.dlg.Hide()
 	e.u.hintLabel.SetText("Instrument profile " + p.Name + " applied; plan again for its figures.")
 }

@@ -68,6 +68,7 @@ type UI struct {
 	tabPlan     *container.TabItem
 	tabVariants *container.TabItem
 	tabMarks    *container.TabItem
+	tabSurvey   *container.TabItem
 
 	toolButtons   map[editor.Tool]*widget.Button
 	toolOptions   *fyne.Container
@@ -83,6 +84,7 @@ type UI struct {
 	planView *planPanel
 	variants *variantsPanel
 	marks    *marksPanel
+	survey   *surveyPanel
 	legend   *fyne.Container
 
 	menu     *fyne.MainMenu
@@ -182,8 +184,11 @@ func (u *UI) refreshAll() {
 
 // changed updates the views that show what changed.
 func (u *UI) changed(c editor.Change) {
-	if c&(editor.ChangeSites|editor.ChangeSelection|editor.ChangePlan|editor.ChangeFindings|editor.ChangePreview|editor.ChangeTerraces|editor.ChangeFiducials|editor.ChangeVariants|editor.ChangeRegions) != 0 {
+	if c&(editor.ChangeSites|editor.ChangeSelection|editor.ChangePlan|editor.ChangeFindings|editor.ChangePreview|editor.ChangeTerraces|editor.ChangeFiducials|editor.ChangeVariants|editor.ChangeRegions|editor.ChangeSurvey) != 0 {
 		u.View.Invalidate()
+	}
+	if c&(editor.ChangeSurvey|editor.ChangeHistory|editor.ChangeFile|editor.ChangeVariants) != 0 {
+		u.survey.refresh()
 	}
 	if c&(editor.ChangeRegions|editor.ChangeSelection|editor.ChangeVariants) != 0 {
 		u.regions.refresh()
@@ -254,12 +259,14 @@ func (u *UI) build() {
 	u.planView = newPlanPanel(u)
 	u.variants = newVariantsPanel(u)
 	u.marks = newMarksPanel(u)
+	u.survey = newSurveyPanel(u)
 	u.tabRegions = container.NewTabItem("Regions", u.regions.content)
 	u.tabFindings = container.NewTabItem("Checks", u.findings.content)
 	u.tabPlan = container.NewTabItem("Plan", u.planView.content)
 	u.tabVariants = container.NewTabItem("Variants", u.variants.content)
 	u.tabMarks = container.NewTabItem("Design", u.marks.content)
-	u.tabs = container.NewAppTabs(u.tabRegions, u.tabFindings, u.tabPlan, u.tabVariants, u.tabMarks)
+	u.tabSurvey = container.NewTabItem("Survey", u.survey.content)
+	u.tabs = container.NewAppTabs(u.tabRegions, u.tabFindings, u.tabPlan, u.tabVariants, u.tabMarks, u.tabSurvey)
 
 	u.variantSelect = widget.NewSelect(nil, func(name string) {
 		for i, n := range u.Session.VariantNames() {
@@ -485,6 +492,17 @@ func (u *UI) optionsFor(t editor.Tool) []fyne.CanvasObject {
 		return []fyne.CanvasObject{num("Brush radius, nm (0: one at a time)", o.BrushNM, func(o *editor.ToolOptions, v float64) { o.BrushNM = v })}
 	case editor.ToolLine:
 		return []fyne.CanvasObject{num("Line width (nm)", o.LineWidthNM, func(o *editor.ToolOptions, v float64) { o.LineWidthNM = v })}
+	case editor.ToolTerrace:
+		// The tool asks before it finishes an outline (editor.ErrTerraceStep).
+		step := widget.NewRadioGroup([]string{"up", "down"}, func(s string) {
+			u.setOpt(func(o *editor.ToolOptions) error { o.TerraceStep = s; return nil })
+		})
+		step.Horizontal = true
+		step.Selected = o.TerraceStep
+		return []fyne.CanvasObject{
+			wrapLabel("The step from the terrace under the first point to the new terrace goes"), step,
+			mutedLabel("Up and down put the new lattice 0.27 nm apart: check it on your survey image. Enter finishes the outline."),
+		}
 	case editor.ToolWindow:
 		return []fyne.CanvasObject{template()}
 	case editor.ToolArray:
@@ -631,6 +649,7 @@ func (u *UI) refreshLegend() {
 		}
 		rows = append(rows, legendRow(swatch(render.ColMove, 14, 1), "tip moves"))
 		rows = append(rows, legendRow(legendText("◇"), "registration on a fiducial"))
+		rows = append(rows, legendRow(legendText("□"), "local registration (lattice beside the work)"))
 	}
 	if len(u.Session.Design().Fiducials) > 0 {
 		rows = append(rows, legendRow(legendText("⊕"), "fiducial mark"))
@@ -828,6 +847,7 @@ func (u *UI) buildMenu() {
 		fyne.NewMenuItemSeparator(),
 		item("Import layout (GDSII)…", nil, u.importLayoutDialog),
 		item("Remove layout overlays…", nil, u.removeReferences),
+		item("Add survey image…", nil, func() { u.tabs.Select(u.tabSurvey); u.survey.addDialog() }),
 		fyne.NewMenuItemSeparator(),
 	)
 	file.Items = append(file.Items, u.exportMenu...)

@@ -114,13 +114,7 @@ func (r *Renderer) drawAtomic(sc *Scene, v View) {
 	r.alut = grow(r.alut, 3*len(sc.Layers))
 	base := ColTerrace[0]
 	for li, L := range sc.Layers {
-		c := L.Color
-		if sc.DimLayers {
-			c = desaturate(c)
-		}
-		if L.Selected {
-			c = Mix(c, RGB(0xff, 0xff, 0xff), 0.3)
-		}
+		c := sc.layerColor(L)
 		r.alut[3*li] = packRGBA(c)
 		r.alut[3*li+1] = packRGBA(Mix(base, c, 0.6))
 		r.alut[3*li+2] = packRGBA(Mix(base, c, 0.22))

@@ -206,13 +206,7 @@ func (r *Renderer) buildLUT(sc *Scene) {
 	n := len(sc.Layers) * (levels + 1)
 	r.lut = grow(r.lut, n)
 	for li, L := range sc.Layers {
-		c := L.Color
-		if sc.DimLayers {
-			c = desaturate(c)
-		}
-		if L.Selected {
-			c = Mix(c, RGB(0xff, 0xff, 0xff), 0.3)
-		}
+		c := sc.layerColor(L)
 		for l := 0; l <= levels; l++ {
 			f := 0.3 + 0.7*float64(l)/levels
 			r.lut[li*(levels+1)+l] = packRGBA(Mix(ColTerrace[0], c, f))

@@ -72,6 +72,7 @@ func (r *Renderer) Render(sc *Scene, v View) *image.RGBA {
 	} else {
 		r.drawCoverage(sc, v)
 	}
+	r.drawSurveyImage(sc.Survey, v)
 	r.drawOverlays(sc, v)
 	return r.img
 }

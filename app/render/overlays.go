@@ -25,6 +25,7 @@ func (r *Renderer) drawOverlays(sc *Scene, v View) {
 		drawPath(pb, v, t.Boundary, true, 2, ColStep, 200)
 	}
 	drawReferences(pb, v, sc.References)
+	drawSurveyMarks(pb, v, sc.Survey)
 	if rt := sc.Route; rt != nil {
 		r.near = drawRoute(pb, v, rt, r.near[:0])
 	}
@@ -275,6 +276,10 @@ func drawRoute(pb *pixbuf, v View, rt *RouteOverlay, near []int32) []int32 {
 	for _, p := range rt.Registrations {
 		x, y := v.ToScreen(p)
 		pb.diamond(x, y, 11, ColMove, 256)
+	}
+	for _, p := range rt.LocalRegistrations {
+		x, y := v.ToScreen(p)
+		pb.square(x, y, 5, ColMove, 256)
 	}
 	return near
 }

@@ -36,6 +36,42 @@ type Scene struct {
 	// References are the design's reference overlays (imported chip
 	// layouts), polygons in field nm, drawn as dashed outlines.
 	References []Reference
+	// Survey is the design's survey topograph and what it found, or nil.
+	Survey *SurveyOverlay
+}
+
+// SurveyOverlay is a survey as the view draws it, in field nm: its image
+// under the lattice, its outline, its step edges, its defects and the
+// placements found on it.
+type SurveyOverlay struct {
+	// Grey holds W x H grey levels, line 0 at the bottom (nil: no image).
+	// Pixel point (u, v) lies at Origin + u·U + v·V; pixel (i, j) covers
+	// [i, i+1) x [j, j+1).
+	Grey         []uint8
+	W, H         int
+	Origin, U, V r2.Point
+	Opacity      float64 // of the image, 0 to 1
+	Outline      []r2.Point
+	Steps        [][]r2.Point
+	Defects      []DefectMark
+	Placements   []PlacementMark
+}
+
+// DefectMark is one defect of a survey.
+type DefectMark struct {
+	At       r2.Point
+	RadiusNM float64 // half its apparent width
+	Bright   bool
+	ByHand   bool // added or moved by hand
+	Selected bool
+}
+
+// PlacementMark is one placement found for the core: the core's extent
+// moved there, and its rank (1 is the best).
+type PlacementMark struct {
+	Bounds r2.Rect
+	Rank   int
+	Chosen bool
 }
 
 // Reference is one reference overlay: its polygons and their extent.
@@ -52,6 +88,19 @@ type Layer struct {
 	// renderer skips the pixels outside it.
 	Bounds   r2.Rect
 	Selected bool
+}
+
+// layerColor is the colour the view gives layer L of sc: muted when
+// the scene dims its layers, lightened when L is selected.
+func (sc *Scene) layerColor(L Layer) color.NRGBA {
+	c := L.Color
+	if sc.DimLayers {
+		c = desaturate(c)
+	}
+	if L.Selected {
+		c = Mix(c, RGB(0xff, 0xff, 0xff), 0.3)
+	}
+	return c
 }
 
 // Mark is a design-rule finding drawn on the view.
@@ -78,8 +127,12 @@ type Preview struct {
 type RouteOverlay struct {
 	Strokes []RouteStroke
 	Moves   [][2]r2.Point
-	// Registrations are the fiducial positions segments register on.
-	Registrations []r2.Point
+	// Registrations are the fiducial positions segments register on
+	// (coarse registrations), LocalRegistrations where segments image
+	// the lattice and the written features beside their first stroke
+	// (local ones): the view draws them apart.
+	Registrations      []r2.Point
+	LocalRegistrations []r2.Point
 
 	// dots, filled by RouteOf, hold each stroke as the zoomed-out frame
 	// needs it, packed for a pass over a million strokes (drawRoute);
@@ -191,7 +244,11 @@ func RouteOf(p *planner.Plan) *RouteOverlay {
 	for _, sg := range p.Segments {
 		if !seen[sg.FiducialAt] {
 			seen[sg.FiducialAt] = true
-			rt.Registrations = append(rt.Registrations, sg.FiducialAt)
+			if sg.Registration == planner.RegLocal {
+				rt.LocalRegistrations = append(rt.LocalRegistrations, sg.FiducialAt)
+			} else {
+				rt.Registrations = append(rt.Registrations, sg.FiducialAt)
+			}
 		}
 	}
 	return rt

@@ -239,10 +239,15 @@ func (l *Library) Flatten(top string, opt FlattenOptions) (*Flat, error) {
 	// Then expand into one backing array of points.
 	f := &Flat{Polygons: make([]FlatPolygon, 0, int(total.polygons))}
 	pts := make([]Vec, 0, int(total.points))
-	take := func(n int) []Vec {
+	// mapped returns the images of xy under m in the next len(xy) points.
+	mapped := func(xy []Point, m Affine) []Vec {
 		start := len(pts)
-		pts = pts[:start+n]
-		return pts[start : start+n : start+n]
+		pts = pts[:start+len(xy)]
+		out := pts[start : start+len(xy) : start+len(xy)]
+		for i, p := range xy {
+			out[i] = m.Apply(float64(p.X), float64(p.Y))
+		}
+		return out
 	}
 	var expand func(s *Structure, m Affine)
 	expand = func(s *Structure, m Affine) {
@@ -253,20 +258,14 @@ func (l *Library) Flatten(top string, opt FlattenOptions) (*Flat, error) {
 			if !keep(b.Layer, b.Datatype) {
 				continue
 			}
-			xy := take(len(b.XY))
-			for i, p := range b.XY {
-				xy[i] = m.Apply(float64(p.X), float64(p.Y))
-			}
+			xy := mapped(b.XY, m)
 			f.Polygons = append(f.Polygons, FlatPolygon{Layer: b.Layer, Datatype: b.Datatype, XY: xy})
 		}
 		for _, p := range s.Paths {
 			if !keep(p.Layer, p.Datatype) {
 				continue
 			}
-			xy := take(len(p.XY))
-			for i, q := range p.XY {
-				xy[i] = m.Apply(float64(q.X), float64(q.Y))
-			}
+			xy := mapped(p.XY, m)
 			w := float64(p.Width)
 			if w < 0 {
 				w = -w

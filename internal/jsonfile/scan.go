@@ -126,21 +126,16 @@ func (s *scanner) number() []byte {
 	case i < len(d) && d[i] == '0':
 		i++
 	case i < len(d) && d[i] >= '1' && d[i] <= '9':
-		for i < len(d) && d[i] >= '0' && d[i] <= '9' {
-			i++
-		}
+		i, _ = digits(d, i)
 	default:
 		s.badNumber(start, i)
 		return nil
 	}
+	var ok bool
 	if i < len(d) && d[i] == '.' {
-		i++
-		if i >= len(d) || d[i] < '0' || d[i] > '9' {
+		if i, ok = digits(d, i+1); !ok {
 			s.badNumber(start, i)
 			return nil
-		}
-		for i < len(d) && d[i] >= '0' && d[i] <= '9' {
-			i++
 		}
 	}
 	if i < len(d) && (d[i] == 'e' || d[i] == 'E') {
@@ -148,12 +143,9 @@ func (s *scanner) number() []byte {
 		if i < len(d) && (d[i] == '+' || d[i] == '-') {
 			i++
 		}
-		if i >= len(d) || d[i] < '0' || d[i] > '9' {
+		if i, ok = digits(d, i); !ok {
 			s.badNumber(start, i)
 			return nil
-		}
-		for i < len(d) && d[i] >= '0' && d[i] <= '9' {
-			i++
 		}
 	}
 	if i < len(d) && !isDelimiter(d[i]) {
@@ -162,6 +154,16 @@ func (s *scanner) number() []byte {
 	}
 	s.pos = i
 	return d[start:i]
+}
+
+// digits returns the end of the run of decimal digits at d[i:] and
+// whether it holds at least one.
+func digits(d []byte, i int) (end int, ok bool) {
+	end = i
+	for end < len(d) && d[end] >= '0' && d[end] <= '9' {
+		end++
+	}
+	return end, end > i
 }
 
 func (s *scanner) badNumber(start, at int) {

@@ -24,10 +24,11 @@ type Difference struct {
 func (d Difference) String() string { return d.What + ": " + d.From + " → " + d.To }
 
 // Differences lists how l differs from base, two layouts of one design:
-// first the declared tunnel gaps (presence, measured width, range), then
-// each region in l's order and those only base has (presence, role,
-// mode, species, tolerance, H sites, extent, position, sites), then the
-// count of dopant windows by species. Identical layouts give none. Cost:
+// first the declared tunnel gaps (presence, measured width, range, width
+// tolerance), then the couplings (presence, tolerance), then each region
+// in l's order and those only base has (presence, role, mode, dopant
+// and the step of a region without, tolerance, H sites, extent,
+// position, sites), then the count of dopant windows by species. Identical layouts give none. Cost:
 // a gap measurement per declared gap and a comparison of each region's
 // sites.
 func Differences(base, l *Layout) []Difference {
@@ -60,6 +61,9 @@ func Differences(base, l *Layout) []Difference {
 		if g.MinNM > 0 || g.MaxNM > 0 {
 			s += fmt.Sprintf(", range %s–%s nm", rangeEnd(g.MinNM), rangeEnd(g.MaxNM))
 		}
+		if g.ToleranceNM > 0 {
+			s += fmt.Sprintf(", width ±%.2f nm", g.ToleranceNM)
+		}
 		return s
 	}
 	for _, g := range l.Variant.TunnelGaps {
@@ -76,6 +80,29 @@ func Differences(base, l *Layout) []Difference {
 	for _, g := range base.Variant.TunnelGaps {
 		if !seen[key(g)] {
 			add("tunnel gap "+g.A+" – "+g.B, gapText(base, g), "none")
+		}
+	}
+
+	// Couplings of relative placement, by their pair in either order.
+	baseCouplings := map[pair]Coupling{}
+	for _, c := range base.Variant.Couplings {
+		baseCouplings[key(TunnelGap{A: c.A, B: c.B})] = c
+	}
+	coupled := map[pair]bool{}
+	for _, c := range l.Variant.Couplings {
+		k := key(TunnelGap{A: c.A, B: c.B})
+		coupled[k] = true
+		what := "coupling " + c.A + " – " + c.B
+		to := fmt.Sprintf("±%.2f nm", c.ToleranceNM)
+		if bc, ok := baseCouplings[k]; !ok {
+			add(what, "none", to)
+		} else if from := fmt.Sprintf("±%.2f nm", bc.ToleranceNM); from != to {
+			add(what, from, to)
+		}
+	}
+	for _, c := range base.Variant.Couplings {
+		if !coupled[key(TunnelGap{A: c.A, B: c.B})] {
+			add("coupling "+c.A+" – "+c.B, fmt.Sprintf("±%.2f nm", c.ToleranceNM), "none")
 		}
 	}
 
@@ -96,7 +123,7 @@ func Differences(base, l *Layout) []Difference {
 		}
 		diff("role", b.Region.Role.String(), r.Region.Role.String())
 		diff("mode", b.Region.EffectiveMode().String(), r.Region.EffectiveMode().String())
-		diff("species", orNone(b.Region.Species), orNone(r.Region.Species))
+		diff("dopant", dopantText(base, b.Region), dopantText(l, r.Region))
 		diff("tolerance", fmt.Sprintf("±%.2f nm", b.ToleranceNM), fmt.Sprintf("±%.2f nm", r.ToleranceNM))
 		nb, nr := b.Sites.Count(), r.Sites.Count()
 		diff("H sites", fmt.Sprint(nb), fmt.Sprint(nr))
@@ -134,11 +161,21 @@ func rangeEnd(v float64) string {
 	return fmt.Sprintf("%.2f", v)
 }
 
-func orNone(s string) string {
-	if s == "" {
-		return "none"
+// dopantText is the dopant the region receives (Design.DopantOf), and
+// for a region without the step it is written in: "P", "none (As
+// step)", "none (first step)".
+func dopantText(l *Layout, r *Region) string {
+	sp := r.Species
+	if l.Design != nil {
+		sp = l.Design.DopantOf(r)
 	}
-	return s
+	if sp != NoDopant {
+		return sp
+	}
+	if r.LithographyStep != "" {
+		return "none (" + r.LithographyStep + " step)"
+	}
+	return "none (first step)"
 }
 
 // extentText is the size of the area a region writes, the bounding box

@@ -56,6 +56,17 @@ func TestDifferencesByKind(t *testing.T) {
 			r.Shapes = append(r.Shapes, Shape{Kind: ShapeWindow, Template: "As", Points: [][2]float64{{2450 * lattice.DimerPitch, donorRowY}}})
 		}, "dopant windows: 2 (As 1, P 1) → 3 (As 2, P 1)"},
 		{"gap undeclared", func(d *Design) { d.Variants[0].TunnelGaps = d.Variants[0].TunnelGaps[:1] }, "tunnel gap sensor-island – drain-lead: 6.91 nm (9.0 dimer rows across the rows) → none"},
+		{"gap tolerance", func(d *Design) { d.Variants[0].TunnelGaps[0].ToleranceNM = 0.2 }, "tunnel gap sensor-island – source-lead: 6.91 nm (9.0 dimer rows across the rows) → 6.91 nm (9.0 dimer rows across the rows), width ±0.20 nm"},
+		{"coupling tightened", func(d *Design) { d.Variants[0].Couplings[0].ToleranceNM = 0.15 }, "coupling donor-P – donor-As: ±0.30 nm → ±0.15 nm"},
+		{"coupling added", func(d *Design) {
+			d.Variants[0].Couplings = append(d.Variants[0].Couplings, Coupling{A: "donor-P", B: "sensor-island", ToleranceNM: 0.5})
+		}, "coupling donor-P – sensor-island: none → ±0.50 nm"},
+		{"coupling removed", func(d *Design) { d.Variants[0].Couplings = nil }, "coupling donor-P – donor-As: ±0.30 nm → none"},
+		{"dopant changed", func(d *Design) { d.Variants[0].Region("gate-donor").Species = "As" }, "region gate-donor: dopant P → dopant As"},
+		{"no dopant, later step", func(d *Design) {
+			r := d.Variants[0].Region("gate-donor")
+			r.Species, r.LithographyStep = NoDopant, "As"
+		}, "region gate-donor: dopant P → dopant none (As step)"},
 		{"region moved", func(d *Design) {
 			r := d.Variants[0].Region("gate-island")
 			for i := range r.Shapes {

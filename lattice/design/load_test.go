@@ -89,6 +89,8 @@ func TestParseRefuses(t *testing.T) {
 		{"tunnel gap declared twice", strings.Replace(minimal, `]}]
 }`, `], "tunnel_gaps": [{"a": "pad", "b": "lead"}, {"a": "lead", "b": "pad"}]}]
 }`, 1), []string{`variants[0].tunnel_gaps[1]: the gap between "lead" and "pad" is also declared as tunnel_gaps[0]`}},
+		{"terrace named twice and one unnamed", strings.Replace(minimal, `"variants"`, `"terraces": [{"name": "t", "rows": "x", "boundary_nm": [[0, 0], [50, 0], [0, 50]]}, {"name": "t", "rows": "x", "boundary_nm": [[60, 60], [90, 60], [60, 90]]}, {"rows": "x", "boundary_nm": [[0, 90], [20, 90], [0, 110]]}], "variants"`, 1),
+			[]string{`terraces[1].name: "t" is also the name of terraces[0]`, "terraces[2].name: missing"}},
 		{"coupling declared twice and to itself", strings.Replace(minimal, `]}]
 }`, `], "couplings": [{"a": "pad", "b": "lead", "tolerance_nm": 1}, {"a": "lead", "b": "pad", "tolerance_nm": 1}, {"a": "pad", "b": "pad", "tolerance_nm": 1}]}]
 }`, 1), []string{`variants[0].couplings[1]: the coupling of "lead" and "pad" is also declared as couplings[0]`,

@@ -100,3 +100,36 @@ func (m Mode) Label() string {
 	}
 	return n.noun
 }
+
+// precursors names the gas that delivers each donor species, and its
+// formula: phosphine for P, arsine for As, diborane for B (Škereň et
+// al., Nat. Electron. 2020), stibine for Sb.
+var precursors = map[string][2]string{
+	"P":  {"phosphine", "PH3"},
+	"As": {"arsine", "AsH3"},
+	"B":  {"diborane", "B2H6"},
+	"Sb": {"stibine", "SbH3"},
+}
+
+// Precursor returns the gas that delivers species with its formula
+// ("phosphine (PH3)" for "P"), or "<species> precursor" for a species
+// not in the table.
+func Precursor(species string) string {
+	if p, ok := precursors[species]; ok {
+		return p[0] + " (" + p[1] + ")"
+	}
+	return species + " precursor"
+}
+
+// DopantLabel returns the display name of what a region receives, for
+// choice lists: "P (phosphine)", "none (no dopant)" for NoDopant, the
+// species alone for a lab's own.
+func DopantLabel(species string) string {
+	switch p, ok := precursors[species]; {
+	case species == NoDopant:
+		return "none (no dopant)"
+	case ok:
+		return species + " (" + p[0] + ")"
+	}
+	return species
+}

@@ -76,3 +76,28 @@ func TestDisplayNamesAreComplete(t *testing.T) {
 		seen[m.Label()] = true
 	}
 }
+
+// The precursors are the hydrides named in the literature: phosphine
+// and arsine (Schofield 2003; Stock 2024), diborane (Škereň 2020).
+func TestDopantNames(t *testing.T) {
+	tests := []struct {
+		species, precursor, label string
+	}{
+		{"P", "phosphine (PH3)", "P (phosphine)"},
+		{"As", "arsine (AsH3)", "As (arsine)"},
+		{"B", "diborane (B2H6)", "B (diborane)"},
+		{"Sb", "stibine (SbH3)", "Sb (stibine)"},
+		{"Bi", "Bi precursor", "Bi"},
+		{NoDopant, "none precursor", "none (no dopant)"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.species, func(t *testing.T) {
+			if got := Precursor(tc.species); got != tc.precursor {
+				t.Errorf("Precursor(%q) = %q, want %q", tc.species, got, tc.precursor)
+			}
+			if got := DopantLabel(tc.species); got != tc.label {
+				t.Errorf("DopantLabel(%q) = %q, want %q", tc.species, got, tc.label)
+			}
+		})
+	}
+}

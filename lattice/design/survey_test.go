@@ -6,6 +6,8 @@ import (
 	"testing"
 
 	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice"
 )
 
 // A survey loads, saves and loads back, and every bad field is reported
@@ -72,5 +74,81 @@ func TestSurveyFrames(t *testing.T) {
 	}
 	if o := s.Outline(); len(o) != 4 || o[0] != (r2.Point{X: 100, Y: 200}) {
 		t.Errorf("outline %v", o)
+	}
+}
+
+// DesignTerraces lays the survey's terraces on the lattice the diamond
+// structure gives (lattice.Terrace.AcrossStep, derived in
+// lattice/step_test.go): a survey whose upper terrace's dimer sits where
+// a step up (in the other antiphase registry) puts it must come back as
+// step_from the base, step "up", and the half-row offset; a step down
+// likewise; the base keeps the measured dimer as its offset.
+func TestDesignTerracesFromSurvey(t *testing.T) {
+	base := lattice.Terrace{Rows: lattice.RowsAlongX, Offset: r2.Point{X: 0.21, Y: 0.13}}
+	for _, c := range []struct {
+		name      string
+		dir       lattice.StepDirection
+		antiphase bool
+	}{{"up", lattice.StepUp, false}, {"up, other registry", lattice.StepUp, true}, {"down", lattice.StepDown, false}} {
+		t.Run(c.name, func(t *testing.T) {
+			upper := base.AcrossStep(c.dir)
+			want := upper.Offset
+			if c.antiphase {
+				want = want.Add(upper.Rows.Join(0, lattice.RowSpacing/2))
+			}
+			// A dimer of the upper lattice a few cells away, as the
+			// analysis would report it, with 0.03 nm of error.
+			dimer := want.Add(upper.Rows.Join(7*lattice.DimerPitch+0.03, 3*lattice.RowSpacing-0.02))
+			s := &Survey{OffsetNM: [2]float64{100, 50}, SizePx: [2]int{100, 100}, ScaleNMPerPx: [2]float64{0.2, 0.2}}
+			// Survey frame = field − offset (no rotation).
+			local := func(p r2.Point) [2]float64 { return [2]float64{p.X - 100, p.Y - 50} }
+			lower, higher := 0, 1
+			if c.dir == lattice.StepDown {
+				lower, higher = 1, 0 // terrace 0 (the larger) is the upper one: up_from says so
+			}
+			small := [][2]float64{{0, 0}, {5, 0}, {5, 20}, {0, 20}}
+			large := [][2]float64{{5, 0}, {20, 0}, {20, 20}, {5, 20}}
+			s.Terraces = []SurveyTerrace{
+				{RowsDeg: 0, PolygonNM: large, DimerNM: local(base.Offset.Add(r2.Point{X: 3 * lattice.DimerPitch, Y: 2 * lattice.RowSpacing}))},
+				{RowsDeg: 90, PolygonNM: small, DimerNM: local(dimer)},
+			}
+			// Which terrace is up: for a step down from the base, the
+			// base (terrace 0) is up from terrace 1.
+			up := lower
+			s.Terraces[higher].UpFrom = &up
+			if c.dir == lattice.StepDown {
+				one := 1
+				s.Terraces[0].UpFrom, s.Terraces[1].UpFrom = &one, nil
+			}
+			ts, err := s.DesignTerraces()
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(ts) != 2 || ts[0].Rows != "x" || len(ts[0].Boundary) != 0 || ts[1].StepFrom != ts[0].Name || ts[1].Step != c.dir.String() || len(ts[1].Boundary) != 4 {
+				t.Fatalf("terraces %+v", ts)
+			}
+			if math.Abs(ts[0].OffsetNM[0]-(base.Offset.X+3*lattice.DimerPitch)) > 1e-9 {
+				t.Errorf("base offset %v, want the measured dimer", ts[0].OffsetNM)
+			}
+			d := &Design{Field: Field{WidthNM: 200, HeightNM: 200}, Terraces: ts}
+			surf, err := d.Surface()
+			if err != nil {
+				t.Fatal(err)
+			}
+			// The upper terrace's lattice must hold the wanted dimer: its
+			// offset equals want modulo one lattice cell.
+			got := surf.Terraces[1].Offset
+			along, across := upper.Rows.Split(got.Sub(want))
+			if r := math.Remainder(along, lattice.DimerPitch); math.Abs(r) > 1e-9 {
+				t.Errorf("upper lattice off along its rows by %g nm", r)
+			}
+			if r := math.Remainder(across, lattice.RowSpacing); math.Abs(r) > 1e-9 {
+				t.Errorf("upper lattice off across its rows by %g nm (registry)", r)
+			}
+		})
+	}
+	tilted := &Survey{RotationDeg: 4, Terraces: []SurveyTerrace{{PolygonNM: [][2]float64{{0, 0}, {1, 0}, {1, 1}}}}}
+	if _, err := tilted.DesignTerraces(); err == nil || !strings.Contains(err.Error(), "rotation_deg") {
+		t.Errorf("rows 4° off the axis: %v, want a refusal", err)
 	}
 }

@@ -65,14 +65,7 @@ func (d *Design) validate(ps *problems) {
 	terracesOK := d.validateTerraces(ps)
 	for i, f := range d.Fiducials {
 		path := fmt.Sprintf("fiducials[%d]", i)
-		if f.Name == "" {
-			ps.add(path+".name", "missing")
-		}
-		for j := range i {
-			if f.Name != "" && d.Fiducials[j].Name == f.Name {
-				ps.add(path+".name", "%q is also the name of fiducials[%d]", f.Name, j)
-			}
-		}
+		validateName(ps, path, "fiducials", d.Fiducials, i, func(f Fiducial) string { return f.Name })
 		if !finite(f.AtNM[0]) || !finite(f.AtNM[1]) {
 			ps.add(path+".at_nm", "%v is not a finite position", f.AtNM)
 		} else if fieldOK && (f.AtNM[0] < 0 || f.AtNM[1] < 0 || f.AtNM[0] > d.Field.WidthNM || f.AtNM[1] > d.Field.HeightNM) {
@@ -129,14 +122,7 @@ func (d *Design) validateReferences(ps *problems) {
 	total := 0
 	for i, r := range d.References {
 		path := fmt.Sprintf("references[%d]", i)
-		if r.Name == "" {
-			ps.add(path+".name", "missing")
-		}
-		for j := range i {
-			if r.Name != "" && d.References[j].Name == r.Name {
-				ps.add(path+".name", "%q is also the name of references[%d]", r.Name, j)
-			}
-		}
+		validateName(ps, path, "references", d.References, i, func(r Reference) string { return r.Name })
 		for k, l := range r.Layers {
 			if !validLayerSpec(l) {
 				ps.add(fmt.Sprintf("%s.layers[%d]", path, k), "%q is not a GDSII layer: want L or L/D, whole numbers 0 to 32767", l)
@@ -187,15 +173,8 @@ func (d *Design) validateTerraces(ps *problems) bool {
 	unbounded := -1
 	for i, t := range d.Terraces {
 		path := fmt.Sprintf("terraces[%d]", i)
-		if t.Name == "" {
-			ps.add(path+".name", "missing")
+		if !validateName(ps, path, "terraces", d.Terraces, i, func(t Terrace) string { return t.Name }) {
 			ok = false
-		}
-		for j := range i {
-			if t.Name != "" && d.Terraces[j].Name == t.Name {
-				ps.add(path+".name", "%q is also the name of terraces[%d]", t.Name, j)
-				ok = false
-			}
 		}
 		if t.StepFrom != "" {
 			found := false
@@ -299,14 +278,7 @@ func (d *Design) validateRules(ps *problems) {
 func (d *Design) validateVariant(ps *problems, vi int, templates Templates, species map[string]bool, surf *lattice.Surface) {
 	v := &d.Variants[vi]
 	path := fmt.Sprintf("variants[%d]", vi)
-	if v.Name == "" {
-		ps.add(path+".name", "missing")
-	}
-	for j := range vi {
-		if v.Name != "" && d.Variants[j].Name == v.Name {
-			ps.add(path+".name", "%q is also the name of variants[%d]", v.Name, j)
-		}
-	}
+	validateName(ps, path, "variants", d.Variants, vi, func(v Variant) string { return v.Name })
 	if len(v.Regions) > MaxRegions {
 		ps.add(path+".regions", "%d regions, more than the limit of %d", len(v.Regions), MaxRegions)
 		return
@@ -395,6 +367,24 @@ func (d *Design) validateVariant(ps *problems, vi int, templates Templates, spec
 			ps.add(cp+".tolerance_nm", "%g must be more than 0 and at most %g nm", c.ToleranceNM, MaxFieldNM)
 		}
 	}
+}
+
+// validateName adds the problems of the name of items[i], at path in
+// the list named list: missing, or the name of an earlier entry (each
+// one named). It reports whether the name is good.
+func validateName[T any](ps *problems, path, list string, items []T, i int, name func(T) string) bool {
+	n := name(items[i])
+	ok := n != ""
+	if !ok {
+		ps.add(path+".name", "missing")
+	}
+	for j := range i {
+		if n != "" && name(items[j]) == n {
+			ps.add(path+".name", "%q is also the name of %s[%d]", n, list, j)
+			ok = false
+		}
+	}
+	return ok
 }
 
 // regionPair is one of a variant's pairs of regions, a tunnel gap or a

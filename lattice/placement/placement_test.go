@@ -4,10 +4,12 @@ import (
 	"context"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
 
@@ -104,3 +106,65 @@ func TestSearchRefuses(t *testing.T) {
 		t.Error("a box smaller than the core accepted")
 	}
 }
+
+// Applying a placement moves the core's sites by exactly its lattice
+// vector (the laid-out sites of the moved design equal the old ones
+// shifted by Dimers and Rows), leaves the pad where it was, and the moved
+// design measures as the placement said.
+func TestMovedRegions(t *testing.T) {
+	d := testDesign(t, []design.SurveyDefect{{AtNM: [2]float64{23.5, 21.6}, Kind: design.DefectDark, SizeNM: 0.8}}, nil)
+	l, err := d.Lay("")
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Paint one site by hand just beyond the island, so painted sets move
+	// too.
+	for run := range l.Regions[0].Sites.Runs() {
+		d.Variants[0].Regions[0].Painted = lattice.NewSiteSet()
+		d.Variants[0].Regions[0].Painted.AddRun(run.Terrace, run.Row, run.End()+4, run.End()+5)
+		break
+	}
+	if l, err = d.Lay(""); err != nil {
+		t.Fatal(err)
+	}
+	_, best, err := Search(context.Background(), l, Options{Best: 1})
+	if err != nil || len(best) != 1 {
+		t.Fatal(best, err)
+	}
+	p := best[0]
+	if p.Dimers == 0 && p.Rows == 0 {
+		t.Fatal("the best placement does not move: the test needs a move")
+	}
+	idx, regions, err := Moved(l, nil, p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(idx) != 2 || idx[0] != 0 || idx[1] != 1 {
+		t.Fatalf("moved regions %v, want the island and the donor window", idx)
+	}
+	before := []*lattice.SiteSet{l.Regions[0].Sites, l.Regions[1].Sites, l.Regions[2].Sites}
+	moved := *d
+	moved.Variants = []design.Variant{d.Variants[0]}
+	moved.Variants[0].Regions = slices.Clone(d.Variants[0].Regions)
+	for k, i := range idx {
+		moved.Variants[0].Regions[i] = regions[k]
+	}
+	if d.Variants[0].Regions[0].Shapes[0].Points[0] != [2]float64{60.1, 60.1} {
+		t.Fatal("Moved changed the design it was given")
+	}
+	lm, err := moved.Lay("")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, want := range []*lattice.SiteSet{moved2(before[0], p), moved2(before[1], p), before[2]} {
+		if !lm.Regions[i].Sites.Equal(want) {
+			t.Errorf("region %d: moved sites differ from the old ones shifted by %d dimers, %d rows", i, p.Dimers, p.Rows)
+		}
+	}
+	again, _, err := Search(context.Background(), lm, Options{Best: 1})
+	if err != nil || math.Abs(again.MarginNM-p.MarginNM) > 1e-9 {
+		t.Errorf("moved design measures margin %g, the placement said %g (%v)", again.MarginNM, p.MarginNM, err)
+	}
+}
+
+func moved2(s *lattice.SiteSet, p Placement) *lattice.SiteSet { return moved(s, 0, p.Dimers, p.Rows) }

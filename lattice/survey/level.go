@@ -79,9 +79,17 @@ func subtractPlane(g *grid) {
 	if !(sd > 0) {
 		return
 	}
+	// Around the residuals' median: outliers pull the first fit's level
+	// off zero as much as its slopes.
+	step := max(1, len(g.v)/200000)
+	sample := make([]float64, 0, len(g.v)/step+1)
+	for i := 0; i < len(g.v); i += step {
+		sample = append(sample, g.v[i])
+	}
+	m := median(sample)
 	keep := make([]bool, len(g.v))
 	for i, v := range g.v {
-		keep[i] = math.Abs(v) < 3*sd
+		keep[i] = math.Abs(v-m) < 3*sd
 	}
 	apply(fitPlane(g, keep))
 }

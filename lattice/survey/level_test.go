@@ -30,3 +30,31 @@ func TestMedianMatchesSort(t *testing.T) {
 		}
 	}
 }
+
+// Shade takes out a tilted plane: a ramp with a checker pattern of one
+// unit and one bright pixel shades to the checker alone (black and white
+// by parity, whatever the ramp adds) and the bright pixel white.
+func TestShadeLevels(t *testing.T) {
+	top := ramp(50, 40)
+	for j := 0; j < 40; j++ {
+		for i := 0; i < 50; i++ {
+			top.Z[j*50+i] += float32((i + j) % 2)
+		}
+	}
+	top.Z[20*50+25] += 1000
+	g := Shade(top)
+	if len(g) != 50*40 || g[20*50+25] != 255 {
+		t.Fatalf("bright pixel shaded %d, want 255", g[20*50+25])
+	}
+	for j := 0; j < 40; j++ {
+		for i := 0; i < 50; i++ {
+			want := uint8(0)
+			if (i+j)%2 == 1 {
+				want = 255
+			}
+			if v := g[j*50+i]; v != want && !(i == 25 && j == 20) {
+				t.Fatalf("pixel (%d, %d) shaded %d, want %d: the plane is not taken out", i, j, v, want)
+			}
+		}
+	}
+}

@@ -76,3 +76,54 @@ func (a *Analysis) RowsInField(rotationDeg float64) lattice.RowDirection {
 	}
 	return lattice.RowsAlongX
 }
+
+// Lay turns the analysis into the design's survey: where the old survey
+// sat (when old is not nil), or else centred on the layout's core (the
+// named regions, or every atomic-precision region) and turned so that
+// the rows of the image's largest terrace run along the rows of the
+// terrace under the core.
+func (a *Analysis) Lay(l *design.Layout, old *design.Survey, image string, regions []string) *design.Survey {
+	if old != nil {
+		return a.DesignSurvey(image, r2.Point{X: old.OffsetNM[0], Y: old.OffsetNM[1]}, old.RotationDeg)
+	}
+	centre, terrace := coreCentre(l, regions)
+	rot := a.AlignRotation()
+	if terrace >= 0 && a.RowsInField(rot) != l.Surface.Terraces[terrace].Rows {
+		rot += 90
+		if rot > 90 {
+			rot -= 180
+		}
+	}
+	s := a.DesignSurvey(image, r2.Point{}, rot)
+	mid := s.ToField(s.PixelToSurvey(float64(a.Width)/2, float64(a.Height)/2))
+	s.OffsetNM = [2]float64{centre.X - mid.X, centre.Y - mid.Y}
+	return s
+}
+
+// coreCentre returns the centre of the core's bounding box and the
+// terrace at it (-1 off every terrace); the core is the named regions,
+// or every atomic-precision region.
+func coreCentre(l *design.Layout, regions []string) (r2.Point, int) {
+	want := map[string]bool{}
+	for _, n := range regions {
+		want[n] = true
+	}
+	b := r2.EmptyRect()
+	for i := range l.Regions {
+		rl := &l.Regions[i]
+		if len(regions) > 0 && !want[rl.Region.Name] {
+			continue
+		}
+		if _, ap := design.KeepOutClass(rl); len(regions) == 0 && !ap {
+			continue
+		}
+		if !rl.Bounds.IsEmpty() {
+			b = b.Union(rl.Bounds)
+		}
+	}
+	if b.IsEmpty() {
+		b = l.Surface.Field
+	}
+	c := b.Center()
+	return c, l.Surface.TerraceAt(c)
+}

@@ -4,6 +4,7 @@
 package editortest
 
 import (
+	"math"
 	"testing"
 
 	"github.com/golang/geo/r2"
@@ -125,7 +126,9 @@ func HandPlan(s *editor.Session) *planner.Plan {
 		},
 		Breakdown: planner.Breakdown{APWriteS: 3000, TravelS: 600, RegistrationS: 120},
 		TotalS:    3720, P10S: 3500, P50S: 3700, P90S: 4100,
-		Yield:    planner.Yield{Windows: 2, All: 0.4, MeanGood: 1.26, Distribution: []float64{0.14, 0.46, 0.4}, DevicesPerPerfect: 2.5},
+		Yield: planner.Yield{Windows: 2, All: 0.4, MeanGood: 1.26, Distribution: []float64{0.14, 0.46, 0.4}, DevicesPerPerfect: 2.5,
+			All68: [2]float64{0.33, 0.47}, All95: [2]float64{0.26, 0.54},
+			Log10All68: [2]float64{math.Log10(0.33), math.Log10(0.47)}, Log10All95: [2]float64{math.Log10(0.26), math.Log10(0.54)}},
 		Coverage: planner.Coverage{OK: true},
 	}
 }

@@ -454,7 +454,7 @@ func (b *builder) lithography(species string, segs [][]int) {
 // species stay open until the dose.
 func (b *builder) process(species string) {
 	b.p.Steps = append(b.p.Steps, planner.Step{Kind: planner.StepDose, Species: species, StartS: b.t,
-		Precursor: planner.Precursor(species), ExposureL: 2, Note: "dose"})
+		Precursor: design.Precursor(species), ExposureL: 2, Note: "dose"})
 	// Each window has been open since the end of its last stroke's
 	// action: one pass over the actions (a pass per window was
 	// quadratic, minutes for the large fixtures).

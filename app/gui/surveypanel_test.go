@@ -1,0 +1,64 @@
+package gui
+
+import (
+	"strings"
+	"testing"
+	"time"
+
+	"fyne.io/fyne/v2/test"
+
+	"dimerpath/app/editor/editortest"
+)
+
+// waitFor polls cond (background jobs report through fyne.Do) for up to
+// 20 s.
+func waitFor(t *testing.T, what string, cond func() bool) {
+	t.Helper()
+	for end := time.Now().Add(20 * time.Second); time.Now().Before(end); time.Sleep(20 * time.Millisecond) {
+		if cond() {
+			return
+		}
+	}
+	t.Fatalf("timed out waiting for %s", what)
+}
+
+// The Survey tab on the demo: its image loads in the background and is
+// drawn (the opacity slider reaches the view), placements are found and
+// listed, and applying the first moves the core as one undo step.
+func TestSurveyPanel(t *testing.T) {
+	u, w := newTestUI(t, editortest.Demo(t))
+	p := u.survey
+	waitFor(t, "the demo's survey image", func() bool { return u.Session.SurveyImageShown() != nil })
+	if !strings.Contains(p.summary.Text, "16 defects") || p.defects.Length() != 16 {
+		t.Errorf("summary %q, %d defects listed", p.summary.Text, p.defects.Length())
+	}
+	p.opacity.SetValue(1)
+	if u.View.Opts.SurveyOpacity != 1 || !u.View.Opts.Survey {
+		t.Errorf("view options %+v after the slider moved to 1", u.View.Opts)
+	}
+	sv := u.Session.Design().Survey
+	at := sv.ToField(sv.PixelToSurvey(20.5, 20.5))
+	img := zoomOn(w, u, at, 0.02)
+	got := pixelAt(img, u, at)
+	want := u.Session.SurveyImageShown().Grey[20*sv.SizePx[0]+20]
+	if d := int(got.R) - int(want); got.R != got.G || d < -12 || d > 12 {
+		t.Errorf("survey pixel drawn %v, the image's grey is %d", got, want)
+	}
+
+	test.Tap(p.find)
+	waitFor(t, "placements", func() bool { return u.Session.Placements() != nil })
+	if p.places.Length() == 0 {
+		t.Fatal("no placements listed")
+	}
+	p.places.Select(0)
+	if p.apply.Disabled() {
+		t.Fatal("Move the core there is disabled with a placement chosen")
+	}
+	test.Tap(p.apply)
+	if l := u.Session.UndoLabel(); !strings.HasPrefix(l, "move the core by") {
+		t.Errorf("undo label %q after applying a placement", l)
+	}
+	if u.Session.Placements() != nil || !p.apply.Disabled() {
+		t.Error("placements still offered after the core moved")
+	}
+}
