@@ -70,7 +70,7 @@ type scene struct {
 	apWidth float64                // AP line width, nm
 	feWidth float64                // FE line width, nm
 	// toFiducial[i] reports whether action i is the move to a fiducial
-	// before a registration.
+	// before a coarse registration.
 	toFiducial []bool
 	// writeFrom[s] is the start of segment s's first write or dwell, and
 	// hasWrite[s] whether it has one.
@@ -121,7 +121,11 @@ func newScene(p *planner.Plan, pat *Pattern) *scene {
 	}
 	sc.toFiducial = make([]bool, len(p.Actions))
 	for i := 0; i+1 < len(p.Actions); i++ {
-		sc.toFiducial[i] = p.Actions[i].Kind == planner.ActMove && p.Actions[i+1].Kind == planner.ActRegister
+		next := p.Actions[i+1]
+		// A local registration images the lattice where the tip is: the
+		// move before it goes to the work, not to a fiducial.
+		local := next.Segment >= 0 && next.Segment < len(p.Segments) && p.Segments[next.Segment].Registration == planner.RegLocal
+		sc.toFiducial[i] = p.Actions[i].Kind == planner.ActMove && next.Kind == planner.ActRegister && !local
 	}
 	sc.writeFrom = make([]r2.Point, len(p.Segments))
 	sc.hasWrite = make([]bool, len(p.Segments))

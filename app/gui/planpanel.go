@@ -246,7 +246,7 @@ func (p *planPanel) refresh() {
 		for k, g := range r.Segments {
 			nums[k] = g + 1
 		}
-		objs = append(objs, mutedLabel(fmt.Sprintf("%s registration, %s %s: %s", r.Kind, map[bool]string{true: "segments", false: "segment"}[len(nums) > 1], units.Ranges(nums, 8), r.Reason)))
+		objs = append(objs, wrapLabel(fmt.Sprintf("%s registration, %s %s: %s", r.Kind, map[bool]string{true: "segments", false: "segment"}[len(nums) > 1], units.Ranges(nums, 8), r.Reason)))
 	}
 	for _, c := range pl.Couplings {
 		objs = append(objs, wrapLabel(fmt.Sprintf("%s %s / %s ±%.2g nm: within tolerance %s.", c.Kind, c.A, c.B, c.ToleranceNM, formatProbability(c.PInTolerance))))

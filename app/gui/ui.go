@@ -649,6 +649,7 @@ func (u *UI) refreshLegend() {
 		}
 		rows = append(rows, legendRow(swatch(render.ColMove, 14, 1), "tip moves"))
 		rows = append(rows, legendRow(legendText("◇"), "registration on a fiducial"))
+		rows = append(rows, legendRow(legendText("□"), "local registration (lattice beside the work)"))
 	}
 	if len(u.Session.Design().Fiducials) > 0 {
 		rows = append(rows, legendRow(legendText("⊕"), "fiducial mark"))

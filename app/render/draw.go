@@ -319,6 +319,14 @@ func (b *pixbuf) fillConvex(pts [][2]float64, c color.NRGBA, a int) {
 	}
 }
 
+// square draws a square outline of half-size r around (cx, cy).
+func (b *pixbuf) square(cx, cy, r float64, c color.NRGBA, a int) {
+	b.thickLine(cx-r, cy-r, cx+r, cy-r, 2, c, a)
+	b.thickLine(cx+r, cy-r, cx+r, cy+r, 2, c, a)
+	b.thickLine(cx+r, cy+r, cx-r, cy+r, 2, c, a)
+	b.thickLine(cx-r, cy+r, cx-r, cy-r, 2, c, a)
+}
+
 // diamond draws a diamond outline of half-size r around (cx, cy).
 func (b *pixbuf) diamond(cx, cy, r float64, c color.NRGBA, a int) {
 	b.thickLine(cx, cy-r, cx+r, cy, 2, c, a)

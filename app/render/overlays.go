@@ -277,6 +277,10 @@ func drawRoute(pb *pixbuf, v View, rt *RouteOverlay, near []int32) []int32 {
 		x, y := v.ToScreen(p)
 		pb.diamond(x, y, 11, ColMove, 256)
 	}
+	for _, p := range rt.LocalRegistrations {
+		x, y := v.ToScreen(p)
+		pb.square(x, y, 5, ColMove, 256)
+	}
 	return near
 }
 

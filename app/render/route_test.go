@@ -56,7 +56,7 @@ func TestRouteFastPathsDrawTheSameRoute(t *testing.T) {
 	if fast.strokeGrid == nil || fast.moveGrid == nil || len(fast.dots) != len(fast.Strokes) {
 		t.Fatal("RouteOf made no grids or dots for 12 000 strokes")
 	}
-	plain := &RouteOverlay{Strokes: fast.Strokes, Moves: fast.Moves, Registrations: fast.Registrations}
+	plain := &RouteOverlay{Strokes: fast.Strokes, Moves: fast.Moves, Registrations: fast.Registrations, LocalRegistrations: fast.LocalRegistrations}
 	whole := FitView(sc.Surface.Field, 800, 600, 20)
 	mid := sc.Surface.Field.Center()
 	corner := r2.Point{X: 60, Y: 60}
@@ -173,4 +173,23 @@ func closePixels(a, b uint32, d int) bool {
 		}
 	}
 	return true
+}
+
+// Issue 11: coarse registrations (on a fiducial) and local ones (the
+// lattice beside the work) are drawn apart, each place once.
+func TestRouteRegistrationsByKind(t *testing.T) {
+	fid, here := r2.Point{X: 10, Y: 10}, r2.Point{X: 50, Y: 60}
+	p := &planner.Plan{Segments: []planner.Segment{
+		{Registration: planner.RegCoarse, Fiducial: "F", FiducialAt: fid},
+		{Registration: planner.RegLocal, FiducialAt: here},
+		{Registration: planner.RegLocal, FiducialAt: here},
+		{Registration: planner.RegCoarse, Fiducial: "F", FiducialAt: fid},
+	}}
+	rt := RouteOf(p)
+	if len(rt.Registrations) != 1 || rt.Registrations[0] != fid {
+		t.Errorf("coarse registrations %v, want [%v]", rt.Registrations, fid)
+	}
+	if len(rt.LocalRegistrations) != 1 || rt.LocalRegistrations[0] != here {
+		t.Errorf("local registrations %v, want [%v]", rt.LocalRegistrations, here)
+	}
 }

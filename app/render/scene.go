@@ -127,8 +127,12 @@ type Preview struct {
 type RouteOverlay struct {
 	Strokes []RouteStroke
 	Moves   [][2]r2.Point
-	// Registrations are the fiducial positions segments register on.
-	Registrations []r2.Point
+	// Registrations are the fiducial positions segments register on
+	// (coarse registrations), LocalRegistrations where segments image
+	// the lattice and the written features beside their first stroke
+	// (local ones): the view draws them apart.
+	Registrations      []r2.Point
+	LocalRegistrations []r2.Point
 
 	// dots, filled by RouteOf, hold each stroke as the zoomed-out frame
 	// needs it, packed for a pass over a million strokes (drawRoute);
@@ -240,7 +244,11 @@ func RouteOf(p *planner.Plan) *RouteOverlay {
 	for _, sg := range p.Segments {
 		if !seen[sg.FiducialAt] {
 			seen[sg.FiducialAt] = true
-			rt.Registrations = append(rt.Registrations, sg.FiducialAt)
+			if sg.Registration == planner.RegLocal {
+				rt.LocalRegistrations = append(rt.LocalRegistrations, sg.FiducialAt)
+			} else {
+				rt.Registrations = append(rt.Registrations, sg.FiducialAt)
+			}
 		}
 	}
 	return rt
