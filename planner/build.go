@@ -445,7 +445,18 @@ func (b *builder) checkTolerances() error {
 // makeStrokes generates every region's strokes and returns the plan's
 // windows.
 func (b *builder) makeStrokes() []Window {
-	var windows []Window
+	// Room for the windows and their strokes at once: 10^6 windows grown
+	// by doubling leave some hundreds of MB of copies behind.
+	nwin := 0
+	for _, r := range b.regions {
+		nwin += len(r.windows)
+	}
+	var windows []Window // nil without windows, as before
+	if nwin > 0 {
+		windows = make([]Window, 0, nwin)
+	}
+	b.placed = slices.Grow(b.placed, nwin)
+	b.strokes = slices.Grow(b.strokes, nwin)
 	surf := b.lay.Surface
 	for _, r := range b.regions {
 		for _, w := range r.windows {
@@ -602,6 +613,9 @@ func (b *builder) splitLong() error {
 	m := b.model
 	rate := m.r0 * m.rateMul
 	var out []Stroke
+	if len(b.strokes) > 0 {
+		out = make([]Stroke, 0, len(b.strokes))
+	}
 	var split []*strokeNote
 	pieces := float64(len(b.strokes))
 	for _, s := range b.strokes {
@@ -736,25 +750,28 @@ func reversePath(p []r2.Point) {
 // field-emission work).
 func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, error) {
 	total := session
-	byRegion := map[string][]Stroke{}
-	for i, s := range b.strokes {
-		s.ID = i
-		byRegion[s.Region] = append(byRegion[s.Region], s)
+	// The plan's strokes by index (a copy of each would hold the whole
+	// plan again: 10^6 strokes are some 200 MB).
+	byRegion := map[string][]int{}
+	for i := range b.strokes {
+		s := &b.strokes[i]
+		byRegion[s.Region] = append(byRegion[s.Region], i)
 	}
+	inStep := make([]bool, len(b.strokes))
 	for k, st := range steps {
 		if st.sg == nil || st.sg.n == 0 {
 			continue
 		}
 		total -= st.sg.totalOf(st.starts, st.kinds)
-		inStep := map[int]bool{}
+		clear(inStep)
 		for _, i := range st.strokes {
 			inStep[i] = true
 		}
-		var plain, wins []Stroke
+		var plain, wins []*Stroke
 		for _, r := range b.regions {
-			for _, s := range byRegion[r.name] {
-				if inStep[s.ID] && s.Window >= 0 {
-					wins = append(wins, s)
+			for _, i := range byRegion[r.name] {
+				if inStep[i] && b.strokes[i].Window >= 0 {
+					wins = append(wins, &b.strokes[i])
 				}
 			}
 			if r.mode == design.ModeHybrid {
@@ -763,14 +780,14 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 					for i := range ap {
 						ap[i].ToleranceNM = r.tolAP
 						ap[i].Window = -1
+						plain = append(plain, &ap[i])
 					}
-					plain = append(plain, ap...)
 				}
 				continue
 			}
-			for _, s := range byRegion[r.name] {
-				if inStep[s.ID] && s.Window < 0 {
-					plain = append(plain, s)
+			for _, i := range byRegion[r.name] {
+				if inStep[i] && b.strokes[i].Window < 0 {
+					plain = append(plain, &b.strokes[i])
 				}
 			}
 		}
@@ -781,14 +798,12 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 		jobs := make([]job, len(all))
 		tightest := math.Inf(1)
 		m := st.sg.model
-		for i := range all {
-			s := &all[i]
+		for i, s := range all {
 			// Generated order is raster order; put every stroke back the
 			// way it was generated (left to right, bottom to top).
-			p := append([]r2.Point(nil), s.Path...)
-			a, z := p[0], p[len(p)-1]
-			if z.X < a.X || (z.X == a.X && z.Y < a.Y) {
-				reversePath(p)
+			start, end := s.Path[0], s.Path[len(s.Path)-1]
+			if end.X < start.X || (end.X == start.X && end.Y < start.Y) {
+				start, end = end, start
 			}
 			err := m.errLocal
 			if s.Mode == design.ModeFE {
@@ -797,7 +812,7 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 			if bud := DriftBudget(s.ToleranceNM/margin, err, 0, m.r0*m.rateMul); s.Kind != StrokeDwell && !math.IsInf(bud, 1) {
 				tightest = math.Min(tightest, bud)
 			}
-			jobs[i] = job{stroke: i, start: p[0], end: p[len(p)-1], writeS: s.DurationS, tolNM: s.ToleranceNM, mode: s.Mode,
+			jobs[i] = job{stroke: i, start: start, end: end, writeS: s.DurationS, tolNM: s.ToleranceNM, mode: s.Mode,
 				dwell: s.Kind == StrokeDwell, group: b.groupOf(s)}
 		}
 		sg := newSegmenter(jobs, b.costs, st.sg.model, b.costs.nearest(jobs[0].start))
@@ -812,10 +827,10 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 
 // plainStep returns the step of a region's strokes outside its windows
 // (-1 when it has none).
-func (b *builder) plainStep(ss []Stroke) int {
-	for _, s := range ss {
-		if s.Window < 0 {
-			return b.stepOf[s.ID]
+func (b *builder) plainStep(ids []int) int {
+	for _, i := range ids {
+		if b.strokes[i].Window < 0 {
+			return b.stepOf[i]
 		}
 	}
 	return -1

@@ -6,9 +6,12 @@ import (
 	"iter"
 	"maps"
 	"math"
+	"runtime"
 	"slices"
 	"sort"
 	"strings"
+	"sync"
+	"sync/atomic"
 
 	"github.com/golang/geo/r2"
 	"gonum.org/v1/gonum/stat/distuv"
@@ -290,9 +293,16 @@ func (b *builder) chooseMargin(ctx context.Context, steps []*stepWork, cps []cou
 	var best tolResult
 	var bestIndex []int
 	bestAdj := -1.0
+	// The segmentation and loads last made: when the search ends on the
+	// margin it chose, they are those of that margin (the segmenter's
+	// solve depends only on the margin), and are not made again.
+	lastMargin := math.NaN()
+	var lastSegs []segLoad
+	var lastPairs []pairLoad
 	for try := 0; try < maxMargins; try++ {
 		segmentAll(steps, margin)
 		segs, pairs, index := b.loads(steps, cps)
+		lastMargin, lastSegs, lastPairs = margin, segs, pairs
 		var leave []bool
 		for _, st := range steps {
 			if st.sg == nil || st.sg.n == 0 {
@@ -320,9 +330,15 @@ func (b *builder) chooseMargin(ctx context.Context, steps []*stepWork, cps []cou
 		}
 		margin *= 1.25
 	}
-	segmentAll(steps, bestMargin)
+	if bestMargin != lastMargin {
+		segmentAll(steps, bestMargin)
+		lastSegs, lastPairs = nil, nil
+	}
 	if len(search.rate) < len(draws.rate) {
-		segs, pairs, index := b.loads(steps, cps)
+		segs, pairs, index := lastSegs, lastPairs, bestIndex
+		if segs == nil {
+			segs, pairs, index = b.loads(steps, cps)
+		}
 		res, err := pInTolerance(ctx, segs, pairs, draws, nil)
 		if err != nil {
 			return 0, tolResult{}, nil, err
@@ -369,6 +385,14 @@ func (b *builder) features(st *stepWork) []feature {
 // returns it with its steps and the time model of the random parts.
 func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline, []Step, timeModel) {
 	var tl timeline
+	// Room for every action at once (Build's bound on their count): a
+	// slice grown by doubling to 2·10^6 actions holds some 450 MB of
+	// copies on the way.
+	nseg := 0
+	for _, st := range steps {
+		nseg += len(st.starts)
+	}
+	tl.actions = make([]Action, 0, 2*len(b.strokes)+6*nseg+2*len(b.regions)*len(steps)+16)
 	var out []Step
 	prof := &b.prof
 	ses := &prof.Session
@@ -675,129 +699,201 @@ func (g *apGrid) near(p r2.Point) bool {
 // move on to the next segment, and every stroke still holds its
 // tolerance at the planning values. Segments holding coupled strokes
 // keep their order.
+//
+// Segments are taken in order, and a segment's entry is where the one
+// before it ends, so each depends on the outcome of the one before. On
+// more than one core the segments are first solved side by side from
+// the entries of the order as it stands (speculatively): a new order is
+// rare, and one that ends elsewhere rarer still (on donor arrays of
+// 10^4-10^5 windows, 3 of about 1,100 solved segments and none), so in
+// the pass in order a segment whose entry is still the one it was
+// solved from takes that result, which is exactly what solving it then
+// would give; any other is solved again. The plan is the same on any
+// number of cores (TestReoptimiseSameOnAnyCores).
 func (b *builder) reoptimise(sg *segmenter, starts []int, kinds []RegistrationKind) ([]job, error) {
 	jobs := append([]job(nil), sg.jobs...)
-	c := &sg.c
-	for si, s := range starts {
-		e := len(jobs)
+	end := func(si int) int {
 		if si+1 < len(starts) {
-			e = starts[si+1]
+			return starts[si+1]
 		}
-		if e-s < 3 {
-			continue
+		return len(jobs)
+	}
+	type guess struct {
+		entry r2.Point
+		cand  []job
+		ok    bool
+	}
+	var spec []guess
+	if workers := runtime.GOMAXPROCS(0); workers > 1 && len(starts) >= parallelSegmentsMin {
+		spec = make([]guess, len(starts))
+		var next atomic.Int64
+		var wg sync.WaitGroup
+		for range workers {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				defer func() {
+					// A panic here leaves its segments unsolved: the pass in
+					// order solves them again and recovers it as Build does.
+					_ = recover()
+				}()
+				for {
+					si := int(next.Add(1) - 1)
+					if si >= len(starts) || b.ctx.Err() != nil {
+						return
+					}
+					// sg.jobs is never changed: the order as it stands.
+					entry := b.segmentEntry(sg, sg.jobs, starts[si], kinds[si])
+					cand, err := b.reoptimiseSegment(sg, sg.jobs, si, starts[si], end(si), kinds[si], entry)
+					spec[si] = guess{entry: entry, cand: cand, ok: err == nil}
+				}
+			}()
 		}
-		seg := jobs[s:e]
-		fixed := false
-		for _, j := range seg {
-			if j.joined || j.localOnly {
-				fixed = true
-			}
-		}
-		for j := s + 1; j < e && !fixed; j++ {
-			fixed = jobs[j].joined
-		}
-		if e < len(jobs) && jobs[e].joined {
-			fixed = true
-		}
-		if fixed {
-			continue
-		}
+		wg.Wait()
+	}
+	for si, s := range starts {
+		e := end(si)
 		if err := b.ctx.Err(); err != nil {
 			return nil, err
 		}
-		k := kindIndex(kinds[si])
-		var entry r2.Point
-		switch {
-		case k == kCoarse:
-			entry = c.fiducials[sg.fid[s]].At
-		case s > 0:
-			entry = jobs[s-1].end
-		default:
-			entry = c.fiducials[sg.first].At
+		entry := b.segmentEntry(sg, jobs, s, kinds[si])
+		var cand []job
+		if spec != nil && spec[si].ok && spec[si].entry == entry {
+			cand = spec[si].cand
+		} else {
+			var err error
+			if cand, err = b.reoptimiseSegment(sg, jobs, si, s, e, kinds[si], entry); err != nil {
+				return nil, err
+			}
 		}
-		var exit *r2.Point
-		if e < len(jobs) {
-			x := jobs[e].start
-			exit = &x
-		}
-		// The segment alone, as a step of its own starting at its
-		// registration: feasible when one segment of the same kind holds
-		// it at the planning values.
-		model := sg.model
-		cost := func(js []job) (float64, bool) {
-			t := c.move(entry, js[0].start, js[0].tolNM).timeS
-			for i := 1; i < len(js); i++ {
-				t += c.move(js[i-1].end, js[i].start, js[i].tolNM).timeS + c.switchCost(js[i-1].mode, js[i].mode)
-			}
-			for _, j := range js {
-				t += j.writeS
-			}
-			if exit != nil {
-				t += c.move(js[len(js)-1].end, *exit, jobs[e].tolNM).timeS
-			}
-			// Feasibility from the segment's own start, in a segmenter of
-			// its jobs alone (the anneal's excess at the segment's clock).
-			m := model
-			m.annealLevel *= math.Exp(-sg.ts[s] / math.Max(m.annealTau, 1e-9))
-			if s > 0 && m.residual != 1 {
-				m.compensatedStart = true
-			}
-			f := c.fiducials
-			fi := sg.fid[s]
-			if k == kLocal {
-				f = []Fiducial{{At: entry}}
-				fi = 0
-			}
-			cc := *c
-			cc.fiducials = f
-			tmp := newSegmenter(js, cc, m, fi)
-			for j := range js {
-				if tmp.planLoad(0, k, j) > js[j].tolNM*(1+1e-9) {
-					return t, false
-				}
-			}
-			return t, true
-		}
-		old, ok := cost(seg)
-		if !ok {
+		if cand == nil {
 			continue
 		}
-		start := route.Point{X: entry.X, Y: entry.Y}
-		p := route.Problem{Start: &start, MoveSpeed: c.speed, SettleS: c.settle, Items: make([]route.Item, len(seg))}
-		groups := make([]int, len(seg))
-		present := map[int]bool{}
-		for i, j := range seg {
-			p.Items[i] = route.Item{A: route.Point{X: j.start.X, Y: j.start.Y}, B: route.Point{X: j.end.X, Y: j.end.Y}}
-			groups[i] = j.group
-			present[j.group] = true
-		}
-		groupsInOrder(&p, groups, present)
-		sol, err := route.Solve(b.ctx, p, route.Options{MaxKicks: min(max(len(seg)/8, 10), 100), Seed: b.opt.Seed + int64(si)})
-		if err != nil {
-			return nil, err
-		}
-		if len(sol.Order) != len(seg) {
-			continue
-		}
-		cand := make([]job, len(seg))
-		for i, idx := range sol.Order {
-			j := seg[idx]
-			if i < len(sol.Reversed) && sol.Reversed[i] {
-				j.start, j.end = j.end, j.start
+		for _, j := range cand {
+			if st := &b.strokes[j.stroke]; st.Path[0] != j.start {
+				reversePath(st.Path)
 			}
-			cand[i] = j
 		}
-		if k == kLocal && cand[0].mode == design.ModeFE {
-			continue
-		}
-		if t, ok := cost(cand); ok && t < old-1e-9 {
-			for _, j := range cand {
-				if st := &b.strokes[j.stroke]; st.Path[0] != j.start {
-					reversePath(st.Path)
-				}
-			}
-			copy(jobs[s:e], cand)
-		}
+		copy(jobs[s:e], cand)
 	}
 	return jobs, nil
+}
+
+// parallelSegmentsMin is the fewest segments of a step that reoptimise
+// solves side by side: below it (the demo has a few dozen) the
+// goroutines cost more than they save, and a sweep already plans its
+// values in parallel.
+const parallelSegmentsMin = 64
+
+// segmentEntry returns where the tip is when segment s (its first job)
+// starts writing: at its fiducial after a coarse registration, else where
+// the job before it ended (at the first fiducial for the step's first).
+func (b *builder) segmentEntry(sg *segmenter, jobs []job, s int, kind RegistrationKind) r2.Point {
+	switch {
+	case kindIndex(kind) == kCoarse:
+		return sg.c.fiducials[sg.fid[s]].At
+	case s > 0:
+		return jobs[s-1].end
+	default:
+		return sg.c.fiducials[sg.first].At
+	}
+}
+
+// reoptimiseSegment returns the new order of the jobs of segment si,
+// jobs[s:e], entered at entry, or nil to keep theirs (see reoptimise).
+// It reads jobs[s:e] and jobs[e] and changes nothing.
+func (b *builder) reoptimiseSegment(sg *segmenter, jobs []job, si, s, e int, kind RegistrationKind, entry r2.Point) ([]job, error) {
+	if e-s < 3 {
+		return nil, nil
+	}
+	seg := jobs[s:e]
+	for _, j := range seg {
+		if j.joined || j.localOnly {
+			return nil, nil
+		}
+	}
+	if e < len(jobs) && jobs[e].joined {
+		return nil, nil
+	}
+	c := &sg.c
+	k := kindIndex(kind)
+	var exit *r2.Point
+	if e < len(jobs) {
+		x := jobs[e].start
+		exit = &x
+	}
+	// The segment alone, as a step of its own starting at its
+	// registration: feasible when one segment of the same kind holds
+	// it at the planning values.
+	model := sg.model
+	cost := func(js []job) (float64, bool) {
+		t := c.move(entry, js[0].start, js[0].tolNM).timeS
+		for i := 1; i < len(js); i++ {
+			t += c.move(js[i-1].end, js[i].start, js[i].tolNM).timeS + c.switchCost(js[i-1].mode, js[i].mode)
+		}
+		for _, j := range js {
+			t += j.writeS
+		}
+		if exit != nil {
+			t += c.move(js[len(js)-1].end, *exit, jobs[e].tolNM).timeS
+		}
+		// Feasibility from the segment's own start, in a segmenter of
+		// its jobs alone (the anneal's excess at the segment's clock).
+		m := model
+		m.annealLevel *= math.Exp(-sg.ts[s] / math.Max(m.annealTau, 1e-9))
+		if s > 0 && m.residual != 1 {
+			m.compensatedStart = true
+		}
+		f := c.fiducials
+		fi := sg.fid[s]
+		if k == kLocal {
+			f = []Fiducial{{At: entry}}
+			fi = 0
+		}
+		cc := *c
+		cc.fiducials = f
+		tmp := newSegmenter(js, cc, m, fi)
+		for j := range js {
+			if tmp.planLoad(0, k, j) > js[j].tolNM*(1+1e-9) {
+				return t, false
+			}
+		}
+		return t, true
+	}
+	old, ok := cost(seg)
+	if !ok {
+		return nil, nil
+	}
+	start := route.Point{X: entry.X, Y: entry.Y}
+	p := route.Problem{Start: &start, MoveSpeed: c.speed, SettleS: c.settle, Items: make([]route.Item, len(seg))}
+	groups := make([]int, len(seg))
+	present := map[int]bool{}
+	for i, j := range seg {
+		p.Items[i] = route.Item{A: route.Point{X: j.start.X, Y: j.start.Y}, B: route.Point{X: j.end.X, Y: j.end.Y}}
+		groups[i] = j.group
+		present[j.group] = true
+	}
+	groupsInOrder(&p, groups, present)
+	sol, err := route.Solve(b.ctx, p, route.Options{MaxKicks: min(max(len(seg)/8, 10), 100), Seed: b.opt.Seed + int64(si)})
+	if err != nil {
+		return nil, err
+	}
+	if len(sol.Order) != len(seg) {
+		return nil, nil
+	}
+	cand := make([]job, len(seg))
+	for i, idx := range sol.Order {
+		j := seg[idx]
+		if i < len(sol.Reversed) && sol.Reversed[i] {
+			j.start, j.end = j.end, j.start
+		}
+		cand[i] = j
+	}
+	if k == kLocal && cand[0].mode == design.ModeFE {
+		return nil, nil
+	}
+	if t, ok := cost(cand); ok && t < old-1e-9 {
+		return cand, nil
+	}
+	return nil, nil
 }
