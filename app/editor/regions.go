@@ -14,18 +14,7 @@ import (
 // uniqueRegionName returns base, or base with a number, not yet used in
 // the current variant.
 func (s *Session) uniqueRegionName(base string) string {
-	used := map[string]bool{}
-	for _, r := range s.Variant().Regions {
-		used[r.Name] = true
-	}
-	if !used[base] {
-		return base
-	}
-	for k := 2; ; k++ {
-		if n := fmt.Sprintf("%s %d", base, k); !used[n] {
-			return n
-		}
-	}
+	return uniqueName(base, s.Variant().Regions, func(r design.Region) string { return r.Name })
 }
 
 // NewRegionName returns the name a new region of role r would get: the

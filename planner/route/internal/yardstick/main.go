@@ -19,6 +19,10 @@
 // Usage: go run ./planner/route/internal/yardstick [-budget 2s] [-seeds 1] [-huge]
 // [-only a,b] [-dir DIR] [-min 1000] [-max 20000] [-strokes 1000:12,10000:4]
 // [-longrun 60s] [-bound]
+//
+// Built with -tags routecpu (go run -tags routecpu ./planner/route/internal/yardstick)
+// the budgets count the process's CPU time, not the wall clock: on a
+// shared machine every solve then gets the same work whatever the load.
 package main
 
 import (
@@ -73,7 +77,7 @@ func main() {
 	if *budget == route.DefaultBudget {
 		opt.Budget = 0 // as callers get it: stops early once converged
 	}
-	fmt.Printf("route yardstick: budget %v, seed %d, GOMAXPROCS %d, %s, load average at start %s\n\n", *budget, *seed, runtime.GOMAXPROCS(0), runtime.Version(), loadAvg())
+	fmt.Printf("route yardstick: budget %v (%s), seed %d, GOMAXPROCS %d, %s, load average at start %s\n\n", *budget, budgetClock, *seed, runtime.GOMAXPROCS(0), runtime.Version(), loadAvg())
 	defer func() { fmt.Printf("load average at the end %s\n", loadAvg()) }()
 	set, err := tsplibSet(*dir, *minN, *maxN, want)
 	if err != nil {
