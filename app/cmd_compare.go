@@ -21,7 +21,8 @@ func init() {
 and prints one table row per variant: the session time (the mean of the
 Monte Carlo on its plan) with its P10-P90 spread, its lithography steps, the
 number of segments, the probability that every stroke stays within its
-tolerance and that every dopant window takes exactly one donor, and the
+tolerance and that every dopant window takes exactly one donor (with its 68 %
+and 95 % intervals from the window templates' uncertainties), and the
 coverage check; then the time by kind (writing, travel, registrations,
 survey, conditioning, tip changes, doses, anneals, ...) and what differs
 from the first variant (tunnel gap widths, regions, window counts). A variant that

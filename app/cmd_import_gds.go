@@ -7,6 +7,7 @@ import (
 	"slices"
 	"strings"
 
+	"dimerpath/internal/atomicfile"
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 	"dimerpath/lattice/design/gdsimport"
@@ -113,6 +114,14 @@ func runImportGDS(env Env, args []string, fl importFlags) int {
 	if fl.marks != "" && (fl.set["chip-offset"] || fl.set["chip-rotation"]) {
 		return fail("give the chip frame either by --marks or by --chip-offset and --chip-rotation, not both")
 	}
+	out := fl.out
+	if out == "" {
+		out = designPath
+	}
+	// Before the work: a read-only, full or missing destination shows now.
+	if err := atomicfile.Check(out); err != nil {
+		return fail("%v", err)
+	}
 	d, err := design.Load(designPath)
 	if err != nil {
 		return fail("%v", err)
@@ -144,10 +153,6 @@ func runImportGDS(env Env, args []string, fl importFlags) int {
 	name := fl.name
 	if name == "" {
 		name = layout.DefaultName()
-	}
-	out := fl.out
-	if out == "" {
-		out = designPath
 	}
 	var what string
 	if fl.as == "reference" {

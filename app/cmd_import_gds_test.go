@@ -81,6 +81,9 @@ func TestImportGDS(t *testing.T) {
 		{[]string{"import-gds", gds, "--layer", "13/2", "--marks", "X=F-north,F-east=F-east", "../assets/demo.json", "-o", out2}, `no label "X"`},
 		{[]string{"import-gds", gds, "--layer", "13/2", "--as", "region", "--role", "pad", "../assets/demo.json", "-o", out2}, "cover no H site"},
 		{[]string{"import-gds", "../assets/demo.json", gds, "--layer", "1"}, "the layout comes first"},
+		// -o is checked before any work: the missing layout is not read.
+		{[]string{"import-gds", filepath.Join(dir, "missing.gds"), "--layer", "1", "../assets/demo.json", "-o", filepath.Join(dir, "none", "d.json")},
+			"d.json: the directory " + filepath.Join(dir, "none") + " does not exist"},
 		// --layers (the export's layer map) was accepted and ignored.
 		{[]string{"import-gds", gds, "--layer", "1", "--layers", "map.json", "../assets/demo.json", "-o", out2}, "flag provided but not defined: -layers"},
 		{[]string{"import-gds", "../export/testdata/set.plan.json", "--layer", "1", "../assets/demo.json", "-o", out2}, "not a GDSII stream"},

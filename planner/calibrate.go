@@ -63,6 +63,10 @@ const (
 // tens of lines, not millions.
 const maxMeasurements = 100000
 
+// maxMeasuredWidthNM bounds a test line's width: 10 µm, far wider than
+// the widest line the exposure model gives (σ ≤ MaxSigmaNM).
+const maxMeasuredWidthNM = 1e4
+
 // MaxMeasurementBytes bounds a measurement file (16 MiB); a larger file
 // is refused before it is read.
 const MaxMeasurementBytes = 16 << 20
@@ -148,6 +152,9 @@ func ReadMeasurements(r io.Reader, name string) ([]Measurement, error) {
 		if m.BiasV == 0 {
 			return nil, fail(line, colBias, rec[index[colBias]], errors.New("bias must not be zero"))
 		}
+		if math.Abs(m.BiasV) > MaxBiasV {
+			return nil, fail(line, colBias, rec[index[colBias]], fmt.Errorf("bias beyond ±%d V, more than any tip is biased", MaxBiasV))
+		}
 		curCol, scale := colCurrentA, 1.0
 		if hasNA {
 			curCol, scale = colCurrentNA, 1e-9
@@ -162,17 +169,26 @@ func ReadMeasurements(r io.Reader, name string) ([]Measurement, error) {
 		if hasA && m.CurrentA > 1e-6 {
 			return nil, fail(line, curCol, rec[index[curCol]], errors.New("current above 1 µA: is the column in nA? name it current_na"))
 		}
+		if m.CurrentA < MinCurrentA || m.CurrentA > MaxCurrentA {
+			return nil, fail(line, curCol, rec[index[curCol]], errors.New("current outside 1 fA to 1 µA, the range a profile takes"))
+		}
 		if m.SpeedNMPerS, err = num(colSpeed); err != nil {
 			return nil, err
 		}
 		if !(m.SpeedNMPerS > 0) {
 			return nil, fail(line, colSpeed, rec[index[colSpeed]], errors.New("speed must be positive"))
 		}
+		if m.SpeedNMPerS < MinSpeedNMPerS || m.SpeedNMPerS > MaxSpeedNMPerS {
+			return nil, fail(line, colSpeed, rec[index[colSpeed]], fmt.Errorf("speed outside %s to %s nm/s, the range a profile takes", jsonfile.Number(MinSpeedNMPerS), jsonfile.Number(MaxSpeedNMPerS)))
+		}
 		if m.WidthNM, err = num(colWidth); err != nil {
 			return nil, err
 		}
 		if m.WidthNM < 0 {
 			return nil, fail(line, colWidth, rec[index[colWidth]], errors.New("width must not be negative (write 0 for no line)"))
+		}
+		if m.WidthNM > maxMeasuredWidthNM {
+			return nil, fail(line, colWidth, rec[index[colWidth]], fmt.Errorf("width above %s nm: no written test line is that wide", jsonfile.Number(maxMeasuredWidthNM)))
 		}
 		if i, ok := index[colMode]; ok {
 			switch strings.ToLower(strings.TrimSpace(rec[i])) {

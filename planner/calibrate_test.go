@@ -414,6 +414,13 @@ func TestReadMeasurements(t *testing.T) {
 		{"bad direction", "bias_v,current_a,speed_nm_per_s,width_nm,direction\n4,2e-9,10,1,diagonal\n", `lab.csv:2: direction = "diagonal"`},
 		{"header only", "bias_v,current_a,speed_nm_per_s,width_nm\n", "no measurements"},
 		{"bad quote", "bias_v,current_a,speed_nm_per_s,width_nm\n4,\"2e-9,10,1\n", "lab.csv:"},
+		// Values no instrument gives (issue 16 §2): the fit took them and
+		// failed with a NaN slope that named no line.
+		{"width 1e308 nm", "bias_v,current_a,speed_nm_per_s,width_nm\n4,2e-9,10,1e308\n", `lab.csv:2: width_nm = "1e308": width above 10000 nm`},
+		{"bias 1e308 V", "bias_v,current_a,speed_nm_per_s,width_nm\n1e308,2e-9,10,1\n", `lab.csv:2: bias_v = "1e308": bias beyond ±100 V`},
+		{"current 1e308 nA", "bias_v,current_na,speed_nm_per_s,width_nm\n4,1e308,10,1\n", `lab.csv:2: current_na = "1e308": current outside 1 fA to 1 µA`},
+		{"current 1e-300 A", "bias_v,current_a,speed_nm_per_s,width_nm\n4,1e-300,10,1\n", `current_a = "1e-300": current outside 1 fA to 1 µA`},
+		{"speed 5e-324 nm/s", "bias_v,current_a,speed_nm_per_s,width_nm\n4,2e-9,5e-324,1\n", `speed_nm_per_s = "5e-324": speed outside 0.001 to 1e+07 nm/s`},
 	}
 	for _, c := range bad {
 		t.Run(c.name, func(t *testing.T) {

@@ -53,7 +53,7 @@ var Tools = []ToolInfo{
 	{ToolArray, "Array", 'a', "Click to place an n x m array at a pitch counted in dimers and rows."},
 	{ToolEraser, "Eraser", 'e', "Click or drag to restore hydrogen on the sites under the brush, in every region."},
 	{ToolFiducial, "Fiducial", 'f', "Click to place a fiducial mark for re-registration."},
-	{ToolTerrace, "Terrace", 't', "Click the outline of a terrace beyond a step; Enter closes it."},
+	{ToolTerrace, "Terrace", 't', "Click the outline of a terrace beyond a step, say in Options whether the step goes up or down; Enter closes it."},
 }
 
 // Info returns the tool's description.

@@ -18,6 +18,7 @@ import (
 	"dimerpath/app/editor"
 	"dimerpath/app/render"
 	"dimerpath/lattice/design"
+	"dimerpath/planner"
 )
 
 // The side panels. Each is a view of the session rebuilt by refresh;
@@ -664,6 +665,10 @@ func findingHint(rule string) string {
 		return "move the field-emission region away from the atomic-precision features, or change a region's write mode."
 	case design.RuleScanField:
 		return "move the shape inside the field and the scan field."
+	case design.RuleStepRegistry:
+		return "select the terrace in the Design tab and say whether the step goes up or down (compare with your survey image)."
+	case planner.RuleOverclearing:
+		return "the strokes that would write the region clear sites outside every region above the profile's stray limit: end the region on whole dimers and rows, move it away from its neighbours, change its write mode, or lower the dose in the instrument profile."
 	}
 	return ""
 }

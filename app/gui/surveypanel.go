@@ -36,6 +36,9 @@ type surveyPanel struct {
 	defSel   int
 	defX     *keyEntry
 	defY     *keyEntry
+	atX      *keyEntry
+	atY      *keyEntry
+	turn     *keyEntry
 	places   *widget.List
 	placeSel int
 	find     *widget.Button
@@ -68,6 +71,16 @@ func newSurveyPanel(u *UI) *surveyPanel {
 		showErr(p.msg, p.u.Session.TerracesFromSurvey())
 	})
 	remove := widget.NewButtonWithIcon("Remove", theme.DeleteIcon(), func() { p.u.Session.RemoveSurvey() })
+	// Registration on the field: where the image's lower-left corner
+	// sits and the field angle of its x axis.
+	p.atX, p.atY, p.turn = u.newEntry(), u.newEntry(), u.newEntry()
+	place := widget.NewButtonWithIcon("Apply", theme.ConfirmIcon(), p.applyPlace)
+	for _, e := range []*keyEntry{p.atX, p.atY, p.turn} {
+		e.OnSubmitted = func(string) { p.applyPlace() }
+	}
+	placeRow := widget.NewForm(
+		widget.NewFormItem("Corner x, y (nm)", container.NewGridWithColumns(2, p.atX, p.atY)),
+		widget.NewFormItem("Turned (°)", container.NewBorder(nil, nil, nil, place, p.turn)))
 
 	p.defects = widget.NewList(
 		func() int { return p.defectCount() },
@@ -174,7 +187,7 @@ func newSurveyPanel(u *UI) *surveyPanel {
 
 	top := container.NewVBox(heading("Survey"), p.summary,
 		container.NewBorder(nil, nil, p.show, nil, container.NewBorder(nil, nil, widget.NewLabel("Image opacity"), nil, p.opacity)),
-		container.NewGridWithColumns(3, add, terr, remove), p.msg, widget.NewSeparator())
+		container.NewGridWithColumns(3, add, terr, remove), placeRow, p.msg, widget.NewSeparator())
 	placeBox := container.NewBorder(container.NewVBox(heading("Placement of the atomic-precision core"),
 		mutedLabel("Moves by whole lattice vectors that keep the core clearest of defects and step edges (rule surface-clearance); its fan-outs and pads stay."),
 		container.NewGridWithColumns(2, p.find, p.apply)), nil, nil, nil, p.places)
@@ -184,6 +197,20 @@ func newSurveyPanel(u *UI) *surveyPanel {
 	split.Offset = 0.45
 	p.content = container.NewBorder(top, nil, nil, nil, split)
 	return p
+}
+
+// applyPlace moves the survey to the corner and angle entered.
+func (p *surveyPanel) applyPlace() {
+	x, errX := parseNumber("corner x", p.atX.Text)
+	y, errY := parseNumber("corner y", p.atY.Text)
+	a, errA := parseNumber("turned", p.turn.Text)
+	for _, err := range []error{errX, errY, errA} {
+		if err != nil {
+			showErr(p.msg, err)
+			return
+		}
+	}
+	showErr(p.msg, p.u.Session.MoveSurvey(r2.Point{X: x, Y: y}, a))
 }
 
 // placementText says what a placement does and leaves.
@@ -238,6 +265,11 @@ func (p *surveyPanel) refresh() {
 		p.summary.SetText(fmt.Sprintf("%s, %d x %d px at %.4f x %.4f nm/px (measured on the lattice), skew %.2f°; lower-left corner at (%.1f, %.1f) nm, turned %.2f°. %d terraces, %d step edges, %d defects (%d by hand).",
 			img, sv.SizePx[0], sv.SizePx[1], sv.ScaleNMPerPx[0], sv.ScaleNMPerPx[1], sv.SkewDeg, sv.OffsetNM[0], sv.OffsetNM[1], sv.RotationDeg,
 			len(sv.Terraces), len(sv.Steps), len(sv.Defects), hand))
+	}
+	if sv != nil {
+		p.atX.SetText(fmt.Sprintf("%.2f", sv.OffsetNM[0]))
+		p.atY.SetText(fmt.Sprintf("%.2f", sv.OffsetNM[1]))
+		p.turn.SetText(fmt.Sprintf("%.3f", sv.RotationDeg))
 	}
 	if p.defSel >= p.defectCount() {
 		p.defSel = -1

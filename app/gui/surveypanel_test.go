@@ -45,6 +45,20 @@ func TestSurveyPanel(t *testing.T) {
 		t.Errorf("survey pixel drawn %v, the image's grey is %d", got, want)
 	}
 
+	// Registering the survey: the corner and angle entered move it, one
+	// undo step.
+	p.atX.SetText("940")
+	p.atY.SetText("930.5")
+	p.turn.SetText("-2.5")
+	p.applyPlace()
+	if sv := u.Session.Design().Survey; sv.OffsetNM != [2]float64{940, 930.5} || sv.RotationDeg != -2.5 {
+		t.Errorf("survey at %v turned %g after Apply", sv.OffsetNM, sv.RotationDeg)
+	}
+	u.Session.Undo()
+	if sv := u.Session.Design().Survey; sv.OffsetNM != [2]float64{932.5, 932.5} || p.atX.Text != "932.50" {
+		t.Errorf("undo left the survey at %v, the entry says %q", sv.OffsetNM, p.atX.Text)
+	}
+
 	test.Tap(p.find)
 	waitFor(t, "placements", func() bool { return u.Session.Placements() != nil })
 	if p.places.Length() == 0 {

@@ -262,14 +262,12 @@ func isHex(c byte) bool {
 	return (c >= '0' && c <= '9') || (c >= 'a' && c <= 'f') || (c >= 'A' && c <= 'F')
 }
 
-// unescape decodes the content of a JSON string; invalid UTF-8 becomes
-// U+FFFD, as encoding/json does.
+// unescape decodes the content of a JSON string; each byte of invalid
+// UTF-8 becomes U+FFFD, as encoding/json does (bytes.ToValidUTF8 would
+// give one U+FFFD for a run of them).
 func unescape(raw []byte, escaped bool) string {
-	if !escaped {
-		if utf8.Valid(raw) {
-			return string(raw)
-		}
-		return string(bytes.ToValidUTF8(raw, []byte("\uFFFD")))
+	if !escaped && utf8.Valid(raw) {
+		return string(raw)
 	}
 	out := make([]byte, 0, len(raw))
 	for i := 0; i < len(raw); {
