@@ -79,8 +79,14 @@ func TestInfoCommand(t *testing.T) {
 		"F-east at (1700, 1000) nm",
 		"P: P, 3 dimers (6 H sites), donors taken: one 0.63 ± 0.10, none 0.37 ± 0.10, two or more 0.00",
 		"Variant gap-12-source",
-		"sensor-island    device                 AP    -        ±0.20 nm   1560",
-		"pad-source       contact pad (pad)      FE",
+		"Dopant     P (phosphine), for the regions that name none",
+		// Issue 11: the dopant each region receives (the design's for those
+		// naming none) and the tolerance the planner holds it to: leads
+		// and gates their role's (1 nm) in AP work, pads theirs (10 nm).
+		"sensor-island    device                 AP    P       ±0.20 nm       1560",
+		"source-lead      lead                   auto  P       ±1.00/2.00 nm  2478",
+		"pad-source       contact pad (pad)      FE    P       ±10.00 nm      3323401",
+		"coupling donor-P – donor-As: placement relative to each other ±0.30 nm",
 		"tunnel gap sensor-island – source-lead: 9.22 nm (12.0 dimer rows across the rows)",
 	} {
 		if !strings.Contains(out, w) {

@@ -4,6 +4,7 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"slices"
 	"strings"
 	"text/tabwriter"
 
@@ -11,6 +12,7 @@ import (
 
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
+	"dimerpath/planner"
 )
 
 func init() {
@@ -20,9 +22,14 @@ func init() {
 		Summary: "print a summary of a design: field, terraces, fiducials, variants and regions",
 		Help: `Prints the design's field, terraces (row direction, offset, extent), fiducial
 marks, window templates and rule settings, then for every variant (or only
---variant NAME) a table of its regions: role, write mode, species, placement
-tolerance, H-site count, dopant windows and bounding box, and the width of each
-declared tunnel gap. Exit status 2 when the design cannot be read.`,
+--variant NAME) a table of its regions: role, write mode, the dopant it
+receives (its own species, else the design's dopant; a region without one
+names the lithography step it is written in), the placement tolerance the
+planner holds it to with the default profile (its own, else its role's for
+leads, gates and pads, else its mode's; "AP/FE" where the planner chooses
+the mode and the two differ), H-site
+count, dopant windows and bounding box, then the width of each declared
+tunnel gap and each coupling's tolerance. Exit status 2 when the design cannot be read.`,
 		Flags: func(fs *flag.FlagSet) func(Env, []string) int {
 			variant := fs.String("variant", "", "show only the variant `NAME` (default: every variant)")
 			return func(env Env, args []string) int {
@@ -116,9 +123,11 @@ func printInfo(w io.Writer, file string, d *design.Design, variant string) error
 	fmt.Fprintf(tw, "Rules\t>= %d intact dimer(s) between windows, facing rows %d, FE keep-out %g nm, tunnel gaps %.2f–%.2f nm\n",
 		rs.WindowGapDimers, rs.WindowFacingRows, rs.FEKeepOutNM, rs.TunnelGapMinNM, rs.TunnelGapMaxNM)
 	fmt.Fprintf(tw, "\tdefault tolerance AP ±%g nm, FE ±%g nm\n", rs.APToleranceNM, rs.FEToleranceNM)
+	fmt.Fprintf(tw, "Dopant\t%s, for the regions that name none\n", design.DopantLabel(d.DopantOf(&design.Region{})))
 	fmt.Fprintf(tw, "Variants\t%s\n", strings.Join(d.VariantNames(), ", "))
 	tw.Flush()
 
+	prof := planner.DefaultProfile()
 	for _, name := range names {
 		l, err := d.Lay(name)
 		if err != nil {
@@ -130,19 +139,28 @@ func printInfo(w io.Writer, file string, d *design.Design, variant string) error
 		}
 		fmt.Fprintln(w)
 		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-		fmt.Fprintln(tw, "  region\trole\tmode\tspecies\ttolerance\tH sites\twindows\tbounding box (nm)")
+		fmt.Fprintln(tw, "  region\trole\tmode\tdopant\ttolerance\tH sites\twindows\tbounding box (nm)")
 		total, windows := 0, 0
-		for _, rl := range l.Regions {
+		vi := slices.IndexFunc(d.Variants, func(v design.Variant) bool { return v.Name == l.Variant.Name })
+		for ri := range l.Regions {
+			rl := &l.Regions[ri]
 			r := rl.Region
-			species := r.Species
-			if species == "" {
-				species = "-"
+			species := d.DopantText(r)
+			t := planner.RegionTolerances(d, vi, ri, r, &prof)
+			// The tolerance of the mode the region is written in; both
+			// (AP/FE) for one the planner may write either way.
+			tol := fmt.Sprintf("±%.2f nm", t.AP)
+			switch m := r.EffectiveMode(); {
+			case m == design.ModeFE:
+				tol = fmt.Sprintf("±%.2f nm", t.FE)
+			case m != design.ModeAP && t.AP != t.FE:
+				tol = fmt.Sprintf("±%.2f/%.2f nm", t.AP, t.FE)
 			}
 			box := "(empty)"
 			if !rl.Bounds.IsEmpty() {
 				box = rectString(rl.Bounds)
 			}
-			fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t±%.2f nm\t%d\t%d\t%s\n", r.Name, r.Role.Label(), r.EffectiveMode().Abbrev(), species, rl.ToleranceNM, rl.Sites.Count(), len(rl.Windows), box)
+			fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\t%d\t%d\t%s\n", r.Name, r.Role.Label(), r.EffectiveMode().Abbrev(), species, tol, rl.Sites.Count(), len(rl.Windows), box)
 			total += rl.Sites.Count()
 			windows += len(rl.Windows)
 		}
@@ -154,6 +172,9 @@ func printInfo(w io.Writer, file string, d *design.Design, variant string) error
 				continue
 			}
 			fmt.Fprintf(w, "  tunnel gap %s – %s: %s\n", g.A, g.B, l.Surface.GapText(l.Gap(a, b)))
+		}
+		for _, c := range l.Variant.Couplings {
+			fmt.Fprintf(w, "  coupling %s – %s: placement relative to each other ±%.2f nm\n", c.A, c.B, c.ToleranceNM)
 		}
 	}
 	return nil

@@ -370,12 +370,29 @@ func (b *builder) regionWork() error {
 }
 
 // tolerances sets a region's AP and FE tolerances and where each comes
-// from: its own tolerance_nm, else its role's (leads, gates, pads: the
-// design's rules, else the profile's), else the mode's (the design's
-// rules, else the profile's); field-emission work is never held tighter
-// than the FE tolerance unless the region asks for it.
+// from (RegionTolerances).
 func (b *builder) tolerances(rw *regionWork, r *design.Region) {
-	rules := b.d.Rules
+	vi := slices.IndexFunc(b.d.Variants, func(v design.Variant) bool { return v.Name == b.lay.Variant.Name })
+	t := RegionTolerances(b.d, vi, rw.index, r, &b.prof)
+	rw.tolAP, rw.tolFE, rw.srcAP, rw.srcFE = t.AP, t.FE, t.SourceAP, t.SourceFE
+}
+
+// Tolerances are the placement tolerances (±nm) a region is held to in
+// atomic-precision and in field-emission work, and where each comes
+// from (a design or profile field).
+type Tolerances struct {
+	AP, FE             float64
+	SourceAP, SourceFE string
+}
+
+// RegionTolerances returns the tolerances the planner holds region r
+// (region index of variant variant of d) to: its own tolerance_nm, else
+// its role's (leads, gates, pads: the design's rules, else the
+// profile's), else the mode's (the design's rules, else the profile's);
+// field-emission work is never held tighter than the FE tolerance unless
+// the region asks for it.
+func RegionTolerances(d *design.Design, variant, index int, r *design.Region, prof *Profile) Tolerances {
+	rules := d.Rules
 	if rules == nil {
 		rules = &design.Rules{}
 	}
@@ -385,29 +402,30 @@ func (b *builder) tolerances(rw *regionWork, r *design.Region) {
 		}
 		return prof, "the profile's " + profPath
 	}
-	rw.tolAP, rw.srcAP = pick(rules.APToleranceNM, "ap_tolerance_nm", b.prof.ToleranceAPNM, "tolerance_ap_nm")
-	rw.tolFE, rw.srcFE = pick(rules.FEToleranceNM, "fe_tolerance_nm", b.prof.ToleranceFENM, "tolerance_fe_nm")
+	var t Tolerances
+	t.AP, t.SourceAP = pick(rules.APToleranceNM, "ap_tolerance_nm", prof.ToleranceAPNM, "tolerance_ap_nm")
+	t.FE, t.SourceFE = pick(rules.FEToleranceNM, "fe_tolerance_nm", prof.ToleranceFENM, "tolerance_fe_nm")
 	var role float64
 	var src string
 	switch r.Role {
 	case design.RoleLead:
-		role, src = pick(rules.LeadToleranceNM, "lead_tolerance_nm", b.prof.ToleranceLeadNM, "tolerance_lead_nm")
+		role, src = pick(rules.LeadToleranceNM, "lead_tolerance_nm", prof.ToleranceLeadNM, "tolerance_lead_nm")
 	case design.RoleGate:
-		role, src = pick(rules.GateToleranceNM, "gate_tolerance_nm", b.prof.ToleranceGateNM, "tolerance_gate_nm")
+		role, src = pick(rules.GateToleranceNM, "gate_tolerance_nm", prof.ToleranceGateNM, "tolerance_gate_nm")
 	case design.RolePad:
-		role, src = pick(rules.PadToleranceNM, "pad_tolerance_nm", b.prof.TolerancePadNM, "tolerance_pad_nm")
+		role, src = pick(rules.PadToleranceNM, "pad_tolerance_nm", prof.TolerancePadNM, "tolerance_pad_nm")
 	}
 	if role > 0 {
-		rw.tolAP, rw.srcAP = role, src
-		if role > rw.tolFE {
-			rw.tolFE, rw.srcFE = role, src
+		t.AP, t.SourceAP = role, src
+		if role > t.FE {
+			t.FE, t.SourceFE = role, src
 		}
 	}
 	if r.ToleranceNM > 0 {
-		vi := slices.IndexFunc(b.d.Variants, func(v design.Variant) bool { return v.Name == b.lay.Variant.Name })
-		src := fmt.Sprintf("variants[%d].regions[%d].tolerance_nm", vi, rw.index)
-		rw.tolAP, rw.tolFE, rw.srcAP, rw.srcFE = r.ToleranceNM, r.ToleranceNM, src, src
+		src := fmt.Sprintf("variants[%d].regions[%d].tolerance_nm", variant, index)
+		t.AP, t.FE, t.SourceAP, t.SourceFE = r.ToleranceNM, r.ToleranceNM, src, src
 	}
+	return t
 }
 
 // checkTolerances refuses a tolerance no registration can ever hold: an

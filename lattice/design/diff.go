@@ -161,21 +161,13 @@ func rangeEnd(v float64) string {
 	return fmt.Sprintf("%.2f", v)
 }
 
-// dopantText is the dopant the region receives (Design.DopantOf), and
-// for a region without the step it is written in: "P", "none (As
-// step)", "none (first step)".
+// dopantText is Design.DopantText of the layout's design (the region's
+// own species without one).
 func dopantText(l *Layout, r *Region) string {
-	sp := r.Species
-	if l.Design != nil {
-		sp = l.Design.DopantOf(r)
+	if l.Design == nil {
+		return (&Design{}).DopantText(r)
 	}
-	if sp != NoDopant {
-		return sp
-	}
-	if r.LithographyStep != "" {
-		return "none (" + r.LithographyStep + " step)"
-	}
-	return "none (first step)"
+	return l.Design.DopantText(r)
 }
 
 // extentText is the size of the area a region writes, the bounding box

@@ -285,6 +285,19 @@ const NoDopant = "none"
 // hydrogen-resist lithography (common practice).
 const DefaultDopant = "P"
 
+// DopantText describes what the region receives for a table: its
+// dopant (DopantOf), and for a region without one the step it is
+// written in: "P", "none (As step)", "none (first step)".
+func (d *Design) DopantText(r *Region) string {
+	if sp := d.DopantOf(r); sp != NoDopant {
+		return sp
+	}
+	if r.LithographyStep != "" {
+		return "none (" + r.LithographyStep + " step)"
+	}
+	return "none (first step)"
+}
+
 // DopantOf returns the dopant the region receives: its Species, else the
 // design's Dopant, else DefaultDopant; NoDopant for a region without.
 func (d *Design) DopantOf(r *Region) string {
