@@ -134,8 +134,8 @@ func TestSurveyCommandRefusesBadImages(t *testing.T) {
 		args []string
 		want string
 	}{
-		{"ragged", []string{write("ragged.txt", "1 2 3\n4 5\n")}, "ragged.txt: line 2: lines of the matrix differ in length"},
-		{"NaN", []string{write("nan.txt", "1 NaN\n3 4\n")}, "nan.txt: line 1: height is not a finite number"},
+		{"ragged", []string{write("ragged.txt", "1 2 3\n4 5\n")}, "ragged.txt:2: lines of the matrix differ in length"},
+		{"NaN", []string{write("nan.txt", "1 NaN\n3 4\n")}, "nan.txt:1: height is not a finite number"},
 		{"truncated", []string{write("cut.png", "\x89PNG\r\n\x1a\n\x00\x00")}, "cut.png"},
 		{"flat", []string{write("flat.txt", strings.Repeat(strings.Repeat("1 ", 64)+"\n", 64))}, "no dimer-row period"},
 		{"missing", []string{filepath.Join(dir, "none.png")}, "none.png"},

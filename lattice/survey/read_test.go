@@ -165,12 +165,12 @@ func TestBadTopographs(t *testing.T) {
 		{"PNG wider than 8192", string(pngHeader(9000, 10)), ErrTooLarge, "8192"},
 		{"empty file", "", ErrEmpty, "empty"},
 		{"matrix of comments", "# width_nm: 4\n", ErrEmpty, "no numbers"},
-		{"NaN height", "1 2\n3 NaN\n", ErrNotFinite, "line 2"},
-		{"infinite height", "1 2\n3 -Inf\n", ErrNotFinite, "line 2"},
-		{"ragged line", "1 2 3\n4 5 6\n7 8\n", ErrRagged, "line 3"},
-		{"word in the matrix", "1 2\nthree 4\n", ErrFormat, "line 2"},
-		{"bad unit", "# unit: pm\n1 2\n", nil, "line 1: header unit"},
-		{"bad width", "# width_nm: -3\n1 2\n", nil, "line 1: header width_nm"},
+		{"NaN height", "1 2\n3 NaN\n", ErrNotFinite, "scan.bin:2:"},
+		{"infinite height", "1 2\n3 -Inf\n", ErrNotFinite, "scan.bin:2:"},
+		{"ragged line", "1 2 3\n4 5 6\n7 8\n", ErrRagged, "scan.bin:3:"},
+		{"word in the matrix", "1 2\nthree 4\n", ErrFormat, "scan.bin:2:"},
+		{"bad unit", "# unit: pm\n1 2\n", nil, "scan.bin:1: header unit"},
+		{"bad width", "# width_nm: -3\n1 2\n", nil, "scan.bin:1: header width_nm"},
 		{"colour PNG", colourPNG.String(), ErrFormat, "coloured"},
 	} {
 		t.Run(c.name, func(t *testing.T) {

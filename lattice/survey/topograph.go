@@ -53,7 +53,8 @@ var (
 )
 
 // ReadError reports what is wrong with a topograph file: the file, the
-// line of a matrix (0 for images or the whole file) and the problem.
+// line of a matrix (0 for images or the whole file) and the problem,
+// written FILE:LINE: like every other reader's errors.
 type ReadError struct {
 	File string
 	Line int
@@ -62,7 +63,7 @@ type ReadError struct {
 
 func (e *ReadError) Error() string {
 	if e.Line > 0 {
-		return fmt.Sprintf("%s: line %d: %v", e.File, e.Line, e.Err)
+		return fmt.Sprintf("%s:%d: %v", e.File, e.Line, e.Err)
 	}
 	return fmt.Sprintf("%s: %v", e.File, e.Err)
 }
