@@ -195,6 +195,10 @@ func mergeGroups(into, add []condGroup) []condGroup {
 	return into
 }
 
+// localRegistration stands for a local registration among the fiducials
+// of pdfActionRanges' rows (no fiducial has an empty name).
+const localRegistration = ""
+
 // pdfActionRanges prints the list of every action of a plan with more
 // than maxListedStrokes strokes in order, summarised: each action between
 // the segments (conditioning, survey, dose, anneal, …) on a row of its
@@ -260,9 +264,13 @@ func pdfActionRanges(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []
 			case planner.ActRegister:
 				var on []string
 				for _, f := range fidOrder {
-					on = append(on, fmt.Sprintf("%s ×%s", f, thousands(fids[f])))
+					where := "on " + f
+					if f == localRegistration {
+						where = "locally"
+					}
+					on = append(on, fmt.Sprintf("%s ×%s", where, thousands(fids[f])))
 				}
-				what = append(what, "register on "+strings.Join(on, ", "))
+				what = append(what, "register "+strings.Join(on, ", "))
 			case planner.ActWrite, planner.ActDwell:
 				if strokesSaid {
 					continue // written strokes and dwell points share one list
@@ -323,7 +331,7 @@ func pdfActionRanges(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []
 			s := &p.Segments[a.Segment]
 			on := s.Fiducial
 			if s.Registration == planner.RegLocal || on == "" {
-				on = "local"
+				on = localRegistration
 			}
 			if fids[on] == 0 {
 				fidOrder = append(fidOrder, on)

@@ -70,7 +70,7 @@ func TestLargePlanIsSummarisedOnPaper(t *testing.T) {
 			}
 		}
 	}
-	if !strings.Contains(flat, "Register on ") || !strings.Contains(flat, "verification images") {
+	if !strings.Contains(flat, "Register on F") || !strings.Contains(flat, "verification images") {
 		t.Errorf("the summarised action list does not say what the segments do")
 	}
 	// Each range row's last segment ends when the table says; the last

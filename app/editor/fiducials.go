@@ -40,15 +40,10 @@ func (s *Session) SetFiducial(i int, name string, at r2.Point) error {
 	if f == old {
 		return nil
 	}
-	err := s.validEdit(fmt.Sprintf("set fiducial %s to %q at (%g, %g) nm", old.Name, name, at.X, at.Y), func() func() {
+	return s.validCommit(fmt.Sprintf("set fiducial %s to %q at (%g, %g) nm", old.Name, name, at.X, at.Y), "edit fiducial "+name, fmt.Sprintf("fiducial-%d", i), ChangeFiducials|ChangeSites, func() func() {
 		s.d.Fiducials[i] = f
 		return func() { s.d.Fiducials[i] = old }
 	})
-	if err != nil {
-		return err
-	}
-	s.commit("edit fiducial "+name, fmt.Sprintf("fiducial-%d", i), ChangeFiducials|ChangeSites)
-	return nil
 }
 
 // DeleteFiducial removes fiducial i.

@@ -14,16 +14,11 @@ import (
 // already declared.
 func (s *Session) AddTunnelGap(a, b string) error {
 	v := s.Variant()
-	err := s.validEdit("declare tunnel gap "+a+" – "+b, func() func() {
+	return s.validCommit("declare tunnel gap "+a+" – "+b, "declare tunnel gap "+a+" – "+b, "", ChangeRegions, func() func() {
 		gaps := v.TunnelGaps
 		v.TunnelGaps = append(slices.Clone(gaps), design.TunnelGap{A: a, B: b})
 		return func() { v.TunnelGaps = gaps }
 	})
-	if err != nil {
-		return err
-	}
-	s.commit("declare tunnel gap "+a+" – "+b, "", ChangeRegions)
-	return nil
 }
 
 // RemoveTunnelGap removes tunnel gap i of the current variant.

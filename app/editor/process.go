@@ -61,15 +61,10 @@ func (s *Session) SetDesignDopant(species string) error {
 		return nil
 	}
 	old := s.d.Dopant
-	err := s.validEdit(fmt.Sprintf("set the design's dopant to %q", species), func() func() {
+	return s.validCommit(fmt.Sprintf("set the design's dopant to %q", species), "set the design's dopant", "", ChangeRegions, func() func() {
 		s.d.Dopant = species
 		return func() { s.d.Dopant = old }
 	})
-	if err != nil {
-		return err
-	}
-	s.commit("set the design's dopant", "", ChangeRegions)
-	return nil
 }
 
 // SetRegionLithographyStep sets the process step, by its species, in
@@ -92,16 +87,11 @@ func (s *Session) AddCoupling(a, b string) error {
 	v := s.Variant()
 	c := design.Coupling{A: a, B: b, ToleranceNM: s.NewCouplingTolerance(a, b)}
 	label := "couple " + a + " – " + b
-	err := s.validEdit(label, func() func() {
+	return s.validCommit(label, label, "", ChangeRegions, func() func() {
 		cs := v.Couplings
 		v.Couplings = append(slices.Clone(cs), c)
 		return func() { v.Couplings = cs }
 	})
-	if err != nil {
-		return err
-	}
-	s.commit(label, "", ChangeRegions)
-	return nil
 }
 
 // NewCouplingTolerance is the tolerance a new coupling of a and b
@@ -149,17 +139,12 @@ func (s *Session) SetCouplingTolerance(i int, nm float64) error {
 		return nil
 	}
 	label := "set tolerance of coupling " + c.A + " – " + c.B
-	err := s.validEdit(label, func() func() {
+	return s.validCommit(label, label, fmt.Sprintf("coupling-tolerance-%d-%d", s.variant, i), ChangeRegions, func() func() {
 		cs := v.Couplings
 		v.Couplings = slices.Clone(cs)
 		v.Couplings[i].ToleranceNM = nm
 		return func() { v.Couplings = cs }
 	})
-	if err != nil {
-		return err
-	}
-	s.commit(label, fmt.Sprintf("coupling-tolerance-%d-%d", s.variant, i), ChangeRegions)
-	return nil
 }
 
 // SetTunnelGapTolerance sets the tolerance (±nm) of the width of tunnel
@@ -176,17 +161,12 @@ func (s *Session) SetTunnelGapTolerance(i int, nm float64) error {
 		return nil
 	}
 	label := "set tolerance of tunnel gap " + g.A + " – " + g.B
-	err := s.validEdit(label, func() func() {
+	return s.validCommit(label, label, fmt.Sprintf("gap-tolerance-%d-%d", s.variant, i), ChangeRegions, func() func() {
 		gs := v.TunnelGaps
 		v.TunnelGaps = slices.Clone(gs)
 		v.TunnelGaps[i].ToleranceNM = nm
 		return func() { v.TunnelGaps = gs }
 	})
-	if err != nil {
-		return err
-	}
-	s.commit(label, fmt.Sprintf("gap-tolerance-%d-%d", s.variant, i), ChangeRegions)
-	return nil
 }
 
 // DefaultTolerances returns the tolerances (±nm) the planner holds

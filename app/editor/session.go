@@ -225,15 +225,10 @@ func (s *Session) SetDesignName(name string) error {
 	if name == old {
 		return nil
 	}
-	err := s.validEdit(fmt.Sprintf("rename the design to %q", name), func() func() {
+	return s.validCommit(fmt.Sprintf("rename the design to %q", name), "rename design", "rename-design", ChangeFile, func() func() {
 		s.d.Name = name
 		return func() { s.d.Name = old }
 	})
-	if err != nil {
-		return err
-	}
-	s.commit("rename design", "rename-design", ChangeFile)
-	return nil
 }
 
 func round2(v float64) float64 { return math.Round(v*100) / 100 }

@@ -43,6 +43,17 @@ func (s *Session) problems() []jsonfile.Problem {
 	return nil
 }
 
+// validCommit applies an edit (apply returns its undo) as validEdit does,
+// refused as what when the design's rules do not accept it, and commits
+// it as one undo step (label, key and the change c: see commit).
+func (s *Session) validCommit(what, label, key string, c Change, apply func() (undo func())) error {
+	if err := s.validEdit(what, apply); err != nil {
+		return err
+	}
+	s.commit(label, key, c)
+	return nil
+}
+
 // validEdit applies an edit to the design (apply returns how to take it
 // back) and asks the design's own rules about the result. When they find
 // a problem the design did not have before, the edit is taken back and

@@ -813,11 +813,7 @@ func newMarksPanel(u *UI) *marksPanel {
 	p := &marksPanel{u: u, fidSel: -1, terrSel: -1}
 	p.fids = widget.NewList(
 		func() int { return len(p.u.Session.Design().Fiducials) },
-		func() fyne.CanvasObject {
-			l := widget.NewLabel("F1 at (0000.00, 0000.00) nm")
-			l.Truncation = fyne.TextTruncateEllipsis
-			return l
-		},
+		func() fyne.CanvasObject { return listLabel("F1 at (0000.00, 0000.00) nm") },
 		func(i widget.ListItemID, o fyne.CanvasObject) {
 			fs := p.u.Session.Design().Fiducials
 			if i < len(fs) {
@@ -842,11 +838,7 @@ func newMarksPanel(u *UI) *marksPanel {
 
 	p.terrs = widget.NewList(
 		func() int { return len(p.u.Session.Design().Terraces) },
-		func() fyne.CanvasObject {
-			l := widget.NewLabel("T0: rows along x, outline of 00 points")
-			l.Truncation = fyne.TextTruncateEllipsis
-			return l
-		},
+		func() fyne.CanvasObject { return listLabel("T0: rows along x, outline of 00 points") },
 		func(i widget.ListItemID, o fyne.CanvasObject) {
 			ts := p.u.Session.Design().Terraces
 			if i < len(ts) {
@@ -1059,4 +1051,12 @@ func (p *marksPanel) applyTerrace() {
 		return
 	}
 	showErr(p.terrMsg, p.u.Session.SetTerrace(p.terrSel, p.terrName.Text, p.terrRows.Selected, r2.Point{X: x, Y: y}))
+}
+
+// listLabel is a list row's label: template sets the row's size, and a
+// text too long for the list ends in an ellipsis.
+func listLabel(template string) fyne.CanvasObject {
+	l := widget.NewLabel(template)
+	l.Truncation = fyne.TextTruncateEllipsis
+	return l
 }

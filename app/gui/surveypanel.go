@@ -85,9 +85,7 @@ func newSurveyPanel(u *UI) *surveyPanel {
 	p.defects = widget.NewList(
 		func() int { return p.defectCount() },
 		func() fyne.CanvasObject {
-			l := widget.NewLabel("00 bright dangling bond at (0000.00, 0000.00) nm, 0.00 nm wide")
-			l.Truncation = fyne.TextTruncateEllipsis
-			return l
+			return listLabel("00 bright dangling bond at (0000.00, 0000.00) nm, 0.00 nm wide")
 		},
 		func(i widget.ListItemID, o fyne.CanvasObject) {
 			sv := p.u.Session.Design().Survey
@@ -155,9 +153,7 @@ func newSurveyPanel(u *UI) *surveyPanel {
 			return 0
 		},
 		func() fyne.CanvasObject {
-			l := widget.NewLabel("0  move (+000.00, +000.00) nm: margin 00.00 nm; windows 00.00, others 00.00, steps 00.00")
-			l.Truncation = fyne.TextTruncateEllipsis
-			return l
+			return listLabel("0  move (+000.00, +000.00) nm: margin 00.00 nm; windows 00.00, others 00.00, steps 00.00")
 		},
 		func(i widget.ListItemID, o fyne.CanvasObject) {
 			ps := p.u.Session.Placements()

@@ -80,6 +80,12 @@ const (
 	MaxSurveyDefects = 100_000
 	MaxSurveyPoints  = 1_000_000 // polygon and polyline points together
 	MaxSurveySide    = 8192      // pixels
+	// A topograph's pixel is between a picometre (far below any STM's
+	// resolution) and a micrometre (far above a survey that shows dimer
+	// rows): outside that, a scale is a typing error, and a tiny one
+	// makes every survey point collapse onto the offset.
+	MinSurveyScaleNM = 1e-3
+	MaxSurveyScaleNM = 1000.0
 )
 
 // ToField returns the field position of the survey point p.
@@ -160,8 +166,8 @@ func (d *Design) validateSurvey(ps *problems) {
 		}
 	}
 	for k, v := range s.ScaleNMPerPx {
-		if !(v > 0) || v > 1000 {
-			ps.add(fmt.Sprintf("%s.scale_nm_per_px[%d]", path, k), "%g is not a scale in (0, 1000] nm per pixel", v)
+		if !(v >= MinSurveyScaleNM && v <= MaxSurveyScaleNM) {
+			ps.add(fmt.Sprintf("%s.scale_nm_per_px[%d]", path, k), "%g is not a scale in [%g, %g] nm per pixel", v, MinSurveyScaleNM, MaxSurveyScaleNM)
 		}
 	}
 	points := 0

@@ -36,7 +36,7 @@ func TestSurveyInDesignFile(t *testing.T) {
 		t.Fatalf("reloaded survey %+v, %v", again.Survey, err)
 	}
 
-	bad := strings.Replace(minimal, `"variants"`, `"survey": {"offset_nm": [0, 1e9], "size_px": [0, 9000], "scale_nm_per_px": [0.1, -1],
+	bad := strings.Replace(minimal, `"variants"`, `"survey": {"offset_nm": [0, 1e9], "size_px": [0, 9000], "scale_nm_per_px": [5e-324, -1],
 	  "steps": [{"polyline_nm": [[1, 1]]}], "defects": [{"at_nm": [1, 2], "kind": "grey", "size_nm": -1}]},"variants"`, 1)
 	_, err = Parse("sv.json", []byte(bad))
 	if err == nil {
@@ -46,6 +46,7 @@ func TestSurveyInDesignFile(t *testing.T) {
 		`survey.offset_nm: [0, 1e+09] lies beyond`,
 		`survey.size_px[0]: 0 pixels`,
 		`survey.size_px[1]: 9000 pixels`,
+		`survey.scale_nm_per_px[0]: 5e-324 is not a scale in [0.001, 1000] nm per pixel`,
 		`survey.scale_nm_per_px[1]: -1 is not a scale`,
 		`survey.steps[0].polyline_nm: has 1 points`,
 		`survey.defects[0].kind: "grey" is not "bright" or "dark"`,

@@ -38,6 +38,19 @@ func (e *CSVError) Error() string {
 
 func (e *CSVError) Unwrap() error { return ErrCSV }
 
+// MaxLineBytes bounds one line of an item or TSPLIB file, so a file
+// without line breaks is refused after a bounded read.
+const MaxLineBytes = 1 << 20
+
+// ScanError words a line scanner's error for a user: an over-long line
+// names the limit instead of bufio's "token too long".
+func ScanError(err error) error {
+	if errors.Is(err, bufio.ErrTooLong) {
+		return fmt.Errorf("line longer than %d KiB, the limit", MaxLineBytes>>10)
+	}
+	return err
+}
+
 var (
 	pointFields  = []string{"x", "y"}
 	strokeFields = []string{"x1", "y1", "x2", "y2"}
@@ -55,7 +68,7 @@ func ReadCSV(r io.Reader, file string, strokes bool) ([]Item, error) {
 		names = strokeFields
 	}
 	sc := bufio.NewScanner(r)
-	sc.Buffer(make([]byte, 64*1024), 1<<20)
+	sc.Buffer(make([]byte, 64*1024), MaxLineBytes)
 	var items []Item
 	line := 0
 	header := true // a header may still come
@@ -106,7 +119,7 @@ func ReadCSV(r io.Reader, file string, strokes bool) ([]Item, error) {
 		items = append(items, Item{A: a, B: b})
 	}
 	if err := sc.Err(); err != nil {
-		return nil, &CSVError{File: file, Line: line + 1, Msg: err.Error()}
+		return nil, &CSVError{File: file, Line: line + 1, Msg: ScanError(err).Error()}
 	}
 	return items, nil
 }

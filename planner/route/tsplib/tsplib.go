@@ -101,11 +101,16 @@ func header(line string) (key, value string) {
 	return strings.ToUpper(f[0]), strings.TrimSpace(strings.TrimPrefix(line, f[0]))
 }
 
+func newScanner(r io.Reader) *bufio.Scanner {
+	sc := bufio.NewScanner(r)
+	sc.Buffer(make([]byte, 64*1024), route.MaxLineBytes)
+	return sc
+}
+
 // Read reads an instance from r; file names the input in errors. Node
 // numbers must be 1..DIMENSION, each once.
 func Read(r io.Reader, file string) (*Instance, error) {
-	sc := bufio.NewScanner(r)
-	sc.Buffer(make([]byte, 64*1024), 1<<20)
+	sc := newScanner(r)
 	in := &Instance{}
 	dim := -1
 	line := 0
@@ -200,7 +205,7 @@ func Read(r io.Reader, file string) (*Instance, error) {
 		}
 	}
 	if err := sc.Err(); err != nil {
-		return nil, &ParseError{File: file, Line: line, What: "read", Err: err}
+		return nil, &ParseError{File: file, Line: line + 1, What: "read", Err: route.ScanError(err)}
 	}
 	line = 0
 	if in.WeightType == "" {
@@ -219,7 +224,7 @@ func Read(r io.Reader, file string) (*Instance, error) {
 // 0-based. n is the instance's dimension: the tour must visit each of
 // 1..n once.
 func ReadTour(r io.Reader, file string, n int) ([]int, error) {
-	sc := bufio.NewScanner(r)
+	sc := newScanner(r)
 	line := 0
 	fail := func(what string, err error) error { return &ParseError{File: file, Line: line, What: what, Err: err} }
 	var tour []int
@@ -264,7 +269,7 @@ func ReadTour(r io.Reader, file string, n int) ([]int, error) {
 		}
 	}
 	if err := sc.Err(); err != nil {
-		return nil, &ParseError{File: file, Line: line, What: "read", Err: err}
+		return nil, &ParseError{File: file, Line: line + 1, What: "read", Err: route.ScanError(err)}
 	}
 	line = 0
 	if len(tour) != n {
