@@ -6,6 +6,7 @@ import (
 
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
+	"dimerpath/planner"
 )
 
 // The design's fields for the session as a lab runs it: the dopant each
@@ -166,4 +167,19 @@ func (s *Session) SetTunnelGapTolerance(i int, nm float64) error {
 		v.TunnelGaps[i].ToleranceNM = nm
 		return func() { v.TunnelGaps = gs }
 	})
+}
+
+// DefaultTolerances returns the tolerances (±nm) the planner holds
+// region i of the current variant to when the region names none of its
+// own: its role's for leads, gates and pads, else its mode's, each from
+// the design's rules, else the session's profile
+// (planner.RegionTolerances).
+func (s *Session) DefaultTolerances(i int) planner.Tolerances {
+	v := s.Variant()
+	if i < 0 || i >= len(v.Regions) {
+		return planner.Tolerances{}
+	}
+	r := v.Regions[i]
+	r.ToleranceNM = 0
+	return planner.RegionTolerances(s.d, s.variant, i, &r, &s.Profile)
 }

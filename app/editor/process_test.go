@@ -258,3 +258,33 @@ func TestSetTunnelGapTolerance(t *testing.T) {
 		t.Error("SetTunnelGapTolerance of no gap: no error")
 	}
 }
+
+// The tolerance a region takes without its own is the planner's:
+// leads and gates their role's (the profile's 1 nm) in AP work, pads
+// theirs (10 nm), the rest their mode's (design rules: AP 0.2, FE 2).
+func TestDefaultTolerances(t *testing.T) {
+	s := editortest.Demo(t)
+	tests := []struct {
+		region string
+		ap, fe float64
+	}{
+		{"sensor-island", 0.2, 2},
+		{"source-lead", 1, 2},
+		{"gate-donor", 1, 2},
+		{"pad-source", 10, 10},
+	}
+	for _, tc := range tests {
+		i := regionIndex(t, s, tc.region)
+		if got := s.DefaultTolerances(i); got.AP != tc.ap || got.FE != tc.fe || got.SourceAP == "" {
+			t.Errorf("%s: default tolerances %+v, want AP %g, FE %g", tc.region, got, tc.ap, tc.fe)
+		}
+	}
+	// A region's own tolerance does not change its default.
+	i := regionIndex(t, s, "source-lead")
+	if err := s.SetRegionTolerance(i, 0.5); err != nil {
+		t.Fatal(err)
+	}
+	if got := s.DefaultTolerances(i); got.AP != 1 {
+		t.Errorf("with its own 0.5 nm the lead's default is %g, want 1", got.AP)
+	}
+}

@@ -192,11 +192,12 @@ func (s *Session) MarkUnsaved() {
 }
 
 // SetProfile makes p the instrument profile plans use; path is the file
-// it came from, or "". The plan shown becomes out of date.
+// it came from, or "". The plan shown becomes out of date, and the
+// regions' default tolerances (DefaultTolerances) may change.
 func (s *Session) SetProfile(p planner.Profile, path string) {
 	s.Profile, s.ProfilePath = p, path
 	s.planState = nil
-	s.notify(ChangePlan)
+	s.notify(ChangePlan | ChangeRegions)
 }
 
 // Title is the window title: design name, file and an asterisk when

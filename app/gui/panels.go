@@ -242,7 +242,6 @@ func newRegionsPanel(u *UI) *regionsPanel {
 		showErr(p.msg, p.u.Session.SetRegionLithographyStep(p.shown, p.steps[p.step.SelectedIndex()]))
 	})
 	p.tol = u.newEntry()
-	p.tol.SetPlaceHolder("mode default")
 	p.tol.OnChanged = func(s string) {
 		if p.updating || p.shown < 0 {
 			return
@@ -356,6 +355,19 @@ func stepChoices(s *editor.Session) (labels, steps []string) {
 		steps = append(steps, sp)
 	}
 	return labels, steps
+}
+
+// defaultToleranceHint says, in an empty tolerance field, the tolerance
+// the region takes without its own: that of the mode it is written in,
+// both where the planner chooses the mode and they differ.
+func defaultToleranceHint(m design.Mode, t planner.Tolerances) string {
+	switch {
+	case m == design.ModeAP || t.AP == t.FE:
+		return "default " + trimZeros(fmt.Sprintf("%.3f", t.AP))
+	case m == design.ModeFE:
+		return "default " + trimZeros(fmt.Sprintf("%.3f", t.FE))
+	}
+	return fmt.Sprintf("default %s AP, %s FE", trimZeros(fmt.Sprintf("%.3f", t.AP)), trimZeros(fmt.Sprintf("%.3f", t.FE)))
 }
 
 // selectValue selects in sel the option whose value (in values) is v.
@@ -477,6 +489,7 @@ func (p *regionsPanel) refresh() {
 	if r.Species != design.NoDopant {
 		p.step.SetSelectedIndex(0)
 	}
+	p.tol.SetPlaceHolder(defaultToleranceHint(r.EffectiveMode(), s.DefaultTolerances(a)))
 	tol := ""
 	if r.ToleranceNM > 0 {
 		tol = trimZeros(fmt.Sprintf("%.3f", r.ToleranceNM))

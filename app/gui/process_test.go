@@ -42,6 +42,9 @@ func TestProcessFieldsInThePanels(t *testing.T) {
 	if want := "design default (P)"; p.species.Selected != want {
 		t.Errorf("the gate shows dopant %q, want %q", p.species.Selected, want)
 	}
+	if got := p.tol.PlaceHolder; got != "default 1 AP, 2 FE" {
+		t.Errorf("an auto gate's empty tolerance says %q, want the planner's role and mode defaults", got)
+	}
 	p.species.SetSelected(design.DopantLabel(design.NoDopant))
 	if p.step.Disabled() || p.step.Selected != "first step" {
 		t.Fatalf("a region without dopant: step %q (disabled %v)", p.step.Selected, p.step.Disabled())
