@@ -7,10 +7,7 @@ import (
 	"io"
 	"math"
 	"path/filepath"
-	"strconv"
 	"strings"
-
-	"github.com/golang/geo/r2"
 
 	"dimerpath/internal/jsonfile"
 	"dimerpath/lattice/design"
@@ -65,18 +62,12 @@ design has no survey, or the core does not fit.`,
 					return fail("--best %d: want 1 to 50", *best)
 				}
 				opt := placement.Options{Best: *best}
-				if *regions != "" {
-					for _, r := range strings.Split(*regions, ",") {
-						opt.Regions = append(opt.Regions, strings.TrimSpace(r))
-					}
+				opt.Regions = placement.ParseRegions(*regions)
+				b, err := placement.ParseBox(*box)
+				if err != nil {
+					return fail("--box %v", err)
 				}
-				if *box != "" {
-					b, err := parseBox(*box)
-					if err != nil {
-						return fail("--box %v", err)
-					}
-					opt.Box = b
-				}
+				opt.Box = b
 				d, err := design.Load(args[0])
 				if err != nil {
 					return fail("%v", err)
@@ -123,27 +114,6 @@ design has no survey, or the core does not fit.`,
 			}
 		},
 	})
-}
-
-// parseBox reads "X0,Y0,X1,Y1" in field nm.
-func parseBox(s string) (r2.Rect, error) {
-	parts := strings.Split(s, ",")
-	if len(parts) != 4 {
-		return r2.Rect{}, fmt.Errorf("%q: want X0,Y0,X1,Y1 in nm", s)
-	}
-	var v [4]float64
-	for i, p := range parts {
-		x, err := strconv.ParseFloat(strings.TrimSpace(p), 64)
-		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) || math.Abs(x) > design.MaxFieldNM {
-			return r2.Rect{}, fmt.Errorf("%q: want X0,Y0,X1,Y1, four positions within ±%g nm", s, design.MaxFieldNM)
-		}
-		v[i] = x
-	}
-	r := r2.RectFromPoints(r2.Point{X: v[0], Y: v[1]}, r2.Point{X: v[2], Y: v[3]})
-	if r.X.Length() <= 0 || r.Y.Length() <= 0 {
-		return r2.Rect{}, fmt.Errorf("%q: the box is empty", s)
-	}
-	return r, nil
 }
 
 // relativeTo names image from the folder of the design file.

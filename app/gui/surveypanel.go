@@ -41,8 +41,13 @@ type surveyPanel struct {
 	turn     *keyEntry
 	places   *widget.List
 	placeSel int
-	find     *widget.Button
-	apply    *widget.Button
+	// searchBox and coreRegions narrow the placement search: a field
+	// box "X0,Y0,X1,Y1" and region names "A,B" (empty: the survey's area
+	// and every atomic-precision region), as the place command's flags.
+	searchBox   *keyEntry
+	coreRegions *keyEntry
+	find        *widget.Button
+	apply       *widget.Button
 	// loading is the image being read in the background, so it is read
 	// once.
 	loading string
@@ -172,6 +177,15 @@ func newSurveyPanel(u *UI) *surveyPanel {
 		p.refreshButtons()
 	}
 	p.find = widget.NewButtonWithIcon("Find placements", theme.SearchIcon(), p.findPlacements)
+	p.searchBox, p.coreRegions = u.newEntry(), u.newEntry()
+	p.searchBox.SetPlaceHolder("the survey's area")
+	p.coreRegions.SetPlaceHolder("every atomic-precision region")
+	for _, e := range []*keyEntry{p.searchBox, p.coreRegions} {
+		e.OnSubmitted = func(string) { p.findPlacements() }
+	}
+	searchForm := widget.NewForm(
+		widget.NewFormItem("Within x0, y0, x1, y1 (nm)", p.searchBox),
+		widget.NewFormItem("Core regions", p.coreRegions))
 	p.apply = widget.NewButtonWithIcon("Move the core there", theme.ConfirmIcon(), func() {
 		if err := p.u.Session.ApplyPlacement(p.placeSel); err != nil {
 			showErr(p.msg, err)
@@ -186,7 +200,7 @@ func newSurveyPanel(u *UI) *surveyPanel {
 		container.NewGridWithColumns(3, add, terr, remove), placeRow, p.msg, widget.NewSeparator())
 	placeBox := container.NewBorder(container.NewVBox(heading("Placement of the atomic-precision core"),
 		mutedLabel("Moves by whole lattice vectors that keep the core clearest of defects and step edges (rule surface-clearance); its fan-outs and pads stay."),
-		container.NewGridWithColumns(2, p.find, p.apply)), nil, nil, nil, p.places)
+		searchForm, container.NewGridWithColumns(2, p.find, p.apply)), nil, nil, nil, p.places)
 	defBox := container.NewBorder(container.NewVBox(heading("Defects"),
 		mutedLabel("Classes are by appearance. Add, move or delete defects by hand: one undo step each.")), defForm, nil, nil, p.defects)
 	split := container.NewVSplit(placeBox, defBox)
@@ -376,6 +390,12 @@ func (p *surveyPanel) findPlacements() {
 	if p.busy {
 		return
 	}
+	box, err := placement.ParseBox(p.searchBox.Text)
+	if err != nil {
+		showErr(p.msg, fmt.Errorf("search box %w", err))
+		return
+	}
+	opt := placement.Options{Best: 8, Box: box, Regions: placement.ParseRegions(p.coreRegions.Text)}
 	s := p.u.Session
 	d, variant, tok := s.DesignCopy(), s.Variant().Name, s.Token()
 	p.busy = true
@@ -383,7 +403,7 @@ func (p *surveyPanel) findPlacements() {
 	p.u.hintLabel.SetText("Searching placements of the core…")
 	go func() {
 		ps, err := safely(func() (*editor.Placements, error) {
-			return editor.FindPlacements(context.Background(), d, variant, placement.Options{Best: 8})
+			return editor.FindPlacements(context.Background(), d, variant, opt)
 		})
 		fyne.Do(func() {
 			p.busy = false

@@ -1,11 +1,13 @@
 package gui
 
 import (
+	"fmt"
 	"strings"
 	"testing"
 	"time"
 
 	"fyne.io/fyne/v2/test"
+	"github.com/golang/geo/r2"
 
 	"dimerpath/app/editor/editortest"
 )
@@ -59,10 +61,30 @@ func TestSurveyPanel(t *testing.T) {
 		t.Errorf("undo left the survey at %v, the entry says %q", sv.OffsetNM, p.atX.Text)
 	}
 
+	p.searchBox.SetText("1, 2, 3")
+	test.Tap(p.find)
+	if !strings.Contains(p.msg.Text, "want X0,Y0,X1,Y1") || u.Session.Placements() != nil {
+		t.Errorf("a box of three numbers searched; message %q", p.msg.Text)
+	}
+	p.searchBox.SetText("")
 	test.Tap(p.find)
 	waitFor(t, "placements", func() bool { return u.Session.Placements() != nil })
 	if p.places.Length() == 0 {
 		t.Fatal("no placements listed")
+	}
+	// A box just around the core as drawn keeps every placement found in it.
+	first := u.Session.Placements()
+	box := first.Core.ExpandedByMargin(3)
+	p.searchBox.SetText(fmt.Sprintf("%g,%g,%g,%g", box.X.Lo, box.Y.Lo, box.X.Hi, box.Y.Hi))
+	test.Tap(p.find)
+	waitFor(t, "placements in the box", func() bool { ps := u.Session.Placements(); return ps != nil && ps != first })
+	for i, pl := range u.Session.Placements().Best {
+		moved := r2.Rect{X: first.Core.X, Y: first.Core.Y}
+		moved.X.Lo, moved.X.Hi = moved.X.Lo+pl.MoveNM.X, moved.X.Hi+pl.MoveNM.X
+		moved.Y.Lo, moved.Y.Hi = moved.Y.Lo+pl.MoveNM.Y, moved.Y.Hi+pl.MoveNM.Y
+		if !box.ExpandedByMargin(1e-6).Contains(moved) {
+			t.Errorf("placement %d moves the core to %v, outside the search box %v", i+1, moved, box)
+		}
 	}
 	p.places.Select(0)
 	if p.apply.Disabled() {
