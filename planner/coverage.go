@@ -370,7 +370,7 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		fy := ck.arena[top : top+n]
 		for i, p := range active {
 			if p.kind != pieceSlanted {
-				fy[i] = p.yFactor(y)
+				fy[i] = p.yFactorLine(r.l0)
 			}
 		}
 		fy0, fy1 = fy, fy
@@ -472,10 +472,9 @@ func (ck *coverageCheck) scan(r siteRect, active []*piece, fy []float64) {
 	}
 	for l := r.l0; l < r.l1; l++ {
 		if r.l1-r.l0 > 1 {
-			y := lineY(l)
 			for i, p := range active {
 				if p.kind != pieceSlanted {
-					fy[i] = p.yFactor(y)
+					fy[i] = p.yFactorLine(l)
 				}
 			}
 		}

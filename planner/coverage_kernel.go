@@ -33,6 +33,13 @@ type piece struct {
 	// (uPeak, yPeak), and sTop a slanted piece's band at its middle,
 	// computed once.
 	uTop, yTop, sTop float64
+	// sReach is a slanted piece's reach for slantedDimers, computed once.
+	sReach float64
+	// lines caches the across factor at site lines lines0+i (0: not yet),
+	// filled on first use: decide and scan meet a piece on each line it
+	// reaches many times.
+	lines0 int
+	lines  []float64
 	// cache holds the along factor at the dimers where it is neither 0
 	// nor 1 (within 8σ of an end of a parallel piece, of the centre of a
 	// square piece or dot), filled on first use: a piece is met on every
@@ -262,6 +269,26 @@ func (p *piece) yFactor(y float64) float64 {
 	return band(p.a0, p.a1, p.sigma, y)
 }
 
+// yFactorLine returns yFactor at site line l's across position, from
+// the piece's small cache of lines.
+func (p *piece) yFactorLine(l int) float64 {
+	if p.lines == nil {
+		l0 := max(0, int(math.Floor((p.yLo+lattice.HOffset)/lattice.RowSpacing))*2)
+		l1 := (int(math.Ceil((p.yHi-lattice.HOffset)/lattice.RowSpacing)) + 1) * 2
+		p.lines0, p.lines = l0, make([]float64, max(l1-l0, 1))
+	}
+	i := l - p.lines0
+	if i < 0 || i >= len(p.lines) {
+		return p.yFactor(lineY(l))
+	}
+	if v := p.lines[i]; v != 0 {
+		return v
+	}
+	v := p.yFactor(lineY(l))
+	p.lines[i] = v
+	return v
+}
+
 // uPeak and yPeak are where the factors peak.
 func (p *piece) uPeak() float64 {
 	switch p.kind {
@@ -298,7 +325,7 @@ func (p *piece) at(u, y float64) float64 {
 // both its across distance and its along position beyond the ends are
 // linear in the dimer, so the range is an intersection of two intervals.
 func (p *piece) slantedDimers(d0, d1 int, y float64) (k0, k1 int) {
-	reach := p.sigma * math.Sqrt(2*math.Log(max(p.amp/exposureNeglect, 1)))
+	reach := p.sReach
 	lo, hi := 0.0, float64(d1-d0)
 	u0 := lattice.DimerAlong(d0)
 	// within returns the k with |c + k·m| ≤ r, or c + k·m in [a, b].
@@ -391,6 +418,7 @@ func makePiece(surf *lattice.Surface, t int, si int32, a, b r2.Point, amp, sigma
 		p.L = math.Hypot(ub-ua, yb-ya)
 		p.pu, p.py, p.du, p.dy = ua, ya, (ub-ua)/p.L, (yb-ya)/p.L
 		p.sTop = band(0, p.L, p.sigma, p.L/2)
+		p.sReach = p.sigma * math.Sqrt(2*math.Log(max(p.amp/exposureNeglect, 1)))
 		return p
 	}
 	p.uTop, p.yTop = p.uFactor(p.uPeak()), p.yFactor(p.yPeak())
