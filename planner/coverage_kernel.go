@@ -111,14 +111,17 @@ func (p *piece) alongRange(d0, d1 int, amp float64, x, best []float64, who []int
 	if p.cache[0].v == nil && !p.cache[0].filled {
 		p.uFactorAt(d0) // allocates the windows
 	}
+	stroke := p.stroke
 	d := d0
+	// add adds amp·f to the dimers from d up to to.
 	add := func(to int, f float64) {
-		if e := amp * f; e > 0 {
-			for ; d < to; d++ {
-				k := d - d0
-				x[k] += e
-				if e > best[k] {
-					best[k], who[k] = e, p.stroke
+		if e := amp * f; e > 0 && d < to {
+			xs, bs, ws := x[d-d0:to-d0], best[d-d0:to-d0], who[d-d0:to-d0]
+			bs, ws = bs[:len(xs)], ws[:len(xs)]
+			for k := range xs {
+				xs[k] += e
+				if e > bs[k] {
+					bs[k], ws[k] = e, stroke
 				}
 			}
 		}
@@ -136,20 +139,26 @@ func (p *piece) alongRange(d0, d1 int, amp float64, x, best []float64, who []int
 			outside = 1
 		}
 		add(min(c.d0, d1), outside)
-		for ; d < d1 && d < c.d0+len(c.v); d++ {
-			v := c.v[d-c.d0]
+		end := min(d1, c.d0+len(c.v))
+		if d >= end {
+			continue
+		}
+		vs := c.v[d-c.d0 : end-c.d0]
+		xs, bs, ws := x[d-d0:end-d0], best[d-d0:end-d0], who[d-d0:end-d0]
+		xs, bs, ws = xs[:len(vs)], bs[:len(vs)], ws[:len(vs)]
+		for k, v := range vs {
 			if v == 0 {
-				v = p.uFactor(lattice.DimerAlong(d))
-				c.v[d-c.d0] = v
+				v = p.uFactor(lattice.DimerAlong(d + k))
+				vs[k] = v
 			}
 			if e := amp * v; e > 0 {
-				k := d - d0
-				x[k] += e
-				if e > best[k] {
-					best[k], who[k] = e, p.stroke
+				xs[k] += e
+				if e > bs[k] {
+					bs[k], ws[k] = e, stroke
 				}
 			}
 		}
+		d = end
 	}
 	add(d1, 0)
 }
