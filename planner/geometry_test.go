@@ -1,6 +1,7 @@
 package planner
 
 import (
+	"math"
 	"math/rand/v2"
 	"slices"
 	"testing"
@@ -74,6 +75,40 @@ func TestChordsMatchNaive(t *testing.T) {
 			if !slices.Equal(got, want) {
 				t.Fatalf("trial %d, line at %g (gap %g, cells %v): chords %v, want %v", trial, c, gap, cells, got, want)
 			}
+		}
+	}
+}
+
+// TestSlantBandExact checks slantBand's shortcuts against the plain
+// difference of fastPhi, bit for bit, across and beyond the tails.
+func TestSlantBandExact(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	check := func(b, a float64) {
+		if got, want := slantBand(b, a), fastPhi(b)-fastPhi(a); got != want {
+			t.Fatalf("slantBand(%v, %v) = %v, want %v", b, a, got, want)
+		}
+	}
+	for range 200000 {
+		a := -40 + rng.Float64()*45
+		check(a+rng.Float64()*50, a)
+	}
+	for _, x := range []float64{phiOne, phiNil, 8.29, 8.3, 8.4, 8.5, 8.6, 9, 12, 38, 39, 40} {
+		check(x, -x)
+		check(x, -phiNil)
+		check(0, -x)
+		check(0.5, -x)
+	}
+}
+
+// TestMissAccurateExact checks missAccurate's shortcut against accurate
+// on the exponentials.
+func TestMissAccurateExact(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	for range 200000 {
+		lo := rng.Float64() * 40
+		hi := lo + rng.ExpFloat64()*0.05
+		if got, want := missAccurate(lo, hi, 1), accurate(math.Exp(-hi), math.Exp(-lo), 1); got != want {
+			t.Fatalf("missAccurate(%v, %v) = %v, want %v", lo, hi, got, want)
 		}
 	}
 }
