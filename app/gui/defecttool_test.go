@@ -138,6 +138,12 @@ func TestDefectToolOnTheCanvas(t *testing.T) {
 	if u.Session.Design().Survey != sv || p.defects.Length() != n {
 		t.Errorf("after undoing each: %d listed, the survey as loaded: %v", p.defects.Length(), u.Session.Design().Survey == sv)
 	}
+
+	// With the survey removed the panel keeps none of its numbers.
+	u.Session.RemoveSurvey()
+	if p.defects.Length() != 0 || p.defX.Text != "" || p.atX.Text != "" {
+		t.Errorf("survey removed: %d listed, x field %q, corner %q", p.defects.Length(), p.defX.Text, p.atX.Text)
+	}
 }
 
 // Without a survey the Defect tool says so in the status line and a

@@ -290,6 +290,12 @@ func (p *surveyPanel) refresh() {
 		p.atX.SetText(fmt.Sprintf("%.2f", sv.OffsetNM[0]))
 		p.atY.SetText(fmt.Sprintf("%.2f", sv.OffsetNM[1]))
 		p.turn.SetText(fmt.Sprintf("%.3f", sv.RotationDeg))
+	} else {
+		// Nothing to register or move: no numbers of another design's survey.
+		for _, e := range []*keyEntry{p.atX, p.atY, p.turn, p.defX, p.defY} {
+			e.SetText("")
+		}
+		p.shownAt = r2.Point{}
 	}
 	p.defects.Refresh()
 	p.followSelection()
