@@ -91,3 +91,49 @@ func itoa(n int) string {
 	}
 	return "n"
 }
+
+// smallArrayProblems are problems like the planner's per-segment
+// re-route of a window array: ~33 short strokes on a lattice of window
+// sites, a start, an open path.
+func smallArrayProblems(count int) []route.Problem {
+	ps := make([]route.Problem, count)
+	for i := range ps {
+		// A deterministic scatter of windows 7.68 nm apart, four strokes each.
+		var items []route.Item
+		w := 0
+		for len(items) < 33 {
+			x, y := float64(w%4)*7.68, float64(w/4)*7.68+float64(i%5)*0.384
+			for s := range 4 {
+				if len(items) == 33 {
+					break
+				}
+				a := route.Point{X: x + float64(s%2)*0.768, Y: y + float64(s/2)*0.384}
+				items = append(items, route.Item{A: a, B: route.Point{X: a.X + 0.768, Y: a.Y}})
+			}
+			w++
+		}
+		ps[i] = route.Problem{Start: &route.Point{X: -3, Y: float64(i % 7)}, Items: items, MoveSpeed: 100, SettleS: 0.1}
+	}
+	return ps
+}
+
+// BenchmarkSmallProblems solves many small problems, as the planner's
+// re-route of a million-window array does (~30,000 of them), bounded by
+// kicks as the planner bounds them; it reports the mean tour length.
+func BenchmarkSmallProblems(b *testing.B) {
+	ps := smallArrayProblems(64)
+	var total float64
+	b.ReportAllocs()
+	for b.Loop() {
+		total = 0
+		for i, p := range ps {
+			s, err := route.Solve(context.Background(), p, route.Options{MaxKicks: 10, Seed: int64(i)})
+			if err != nil {
+				b.Fatal(err)
+			}
+			total += s.Length
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(ps))/1e3, "µs/problem")
+	b.ReportMetric(total/float64(len(ps)), "mean-length")
+}

@@ -192,21 +192,33 @@ func sortedOrder(edges []cand) []uint32 {
 		keys[i] = uint64(math.Float32bits(float32(e.d)))<<32 | uint64(i)
 	}
 	tmp := make([]uint64, n)
-	var count [1 << 16]int
-	for shift := uint(32); shift < 64; shift += 16 {
-		clear(count[:])
+	// Digits of 16 bits on large inputs, of 8 below 2^16 edges: the
+	// re-route's small problems (~1,000 edges) spent most of this
+	// function clearing and summing 2^16 counters. Either way a stable
+	// sort on the same 32-bit key, so the same order.
+	bits := uint(16)
+	var small [1 << 8]int
+	cnt := small[:]
+	if n < 1<<16 {
+		bits = 8
+	} else {
+		cnt = make([]int, 1<<16)
+	}
+	mask := uint64(1)<<bits - 1
+	for shift := uint(32); shift < 64; shift += bits {
+		clear(cnt)
 		for _, k := range keys {
-			count[(k>>shift)&0xffff]++
+			cnt[(k>>shift)&mask]++
 		}
 		sum := 0
-		for i, c := range count {
-			count[i] = sum
+		for i, c := range cnt {
+			cnt[i] = sum
 			sum += c
 		}
 		for _, k := range keys {
-			b := (k >> shift) & 0xffff
-			tmp[count[b]] = k
-			count[b]++
+			b := (k >> shift) & mask
+			tmp[cnt[b]] = k
+			cnt[b]++
 		}
 		keys, tmp = tmp, keys
 	}

@@ -1,6 +1,9 @@
 package route
 
-import "math"
+import (
+	"math"
+	"slices"
+)
 
 // neighbours holds each node's k nearest other nodes (leaving out its
 // fixed-edge partner and the dummy), nearest first, with their
@@ -84,4 +87,88 @@ func buildNeighbours(g *graph, k int, quad bool) *neighbours {
 		}
 	}
 	return nb
+}
+
+// buildNeighboursPool returns what buildNeighbours(g, k, quad) and
+// buildPool(g, pk, q) return (pk <= k), from one kd-tree and one
+// k-nearest query per node instead of two of each: the pk nearest are
+// the first pk of the k nearest, and a quadrant's nearest is the first
+// of its q nearest (the queries break ties by the order the tree offers
+// the points, the same in both). On the
+// planner's re-route problems (~70 nodes, tens of thousands of them in a
+// large plan) the queries were a quarter of the set-up.
+func buildNeighboursPool(g *graph, k, pk, q int, quad bool) (*neighbours, *neighbours) {
+	n := g.n()
+	kk := k
+	if quad {
+		kk += 4
+	}
+	nb := &neighbours{k: kk, id: make([]int32, n*kk), dst: make([]float64, n*kk)}
+	pool := &neighbours{k: pk + 4*q, id: make([]int32, n*(pk+4*q)), dst: make([]float64, n*(pk+4*q))}
+	for i := range nb.id {
+		nb.id[i] = -1
+	}
+	for i := range pool.id {
+		pool.id[i] = -1
+	}
+	idx := make([]int32, 0, g.real)
+	for v := range int32(g.real) {
+		idx = append(idx, v)
+	}
+	t := newKDTree(g.x, g.y, idx)
+	b := newKNNBuf(k)
+	qb := newKNNBuf(max(q, 1))
+	order := append([]int32(nil), t.idx...)
+	for _, v := range order {
+		b.qx, b.qy, b.ex1, b.ex2 = g.x[v], g.y[v], v, g.partner[v]
+		t.nearest(b)
+		o, po := int(v)*kk, int(v)*pool.k
+		for j, u := range b.id {
+			d := math.Sqrt(b.d2[j])
+			nb.id[o+j], nb.dst[o+j] = u, d
+			if j < pk {
+				pool.id[po+j], pool.dst[po+j] = u, d
+			}
+		}
+		m, pm := k, min(len(b.id), pk)
+		withQuad := quad && len(b.id) >= k
+		far := 0.0
+		if withQuad {
+			far = quadFar * quadFar * b.d2[k-1]
+		}
+		qb.qx, qb.qy, qb.ex1, qb.ex2 = b.qx, b.qy, b.ex1, b.ex2
+		for qd := range int8(4) {
+			if q == 0 && !withQuad {
+				break
+			}
+			qb.quad = qd
+			t.nearest(qb)
+			if withQuad && len(qb.id) > 0 && qb.d2[0] > far {
+				// As buildNeighbours: farther than the k nearest, kept in order.
+				d := math.Sqrt(qb.d2[0])
+				j := o + m
+				for j > o+k && nb.dst[j-1] > d {
+					nb.id[j], nb.dst[j] = nb.id[j-1], nb.dst[j-1]
+					j--
+				}
+				nb.id[j], nb.dst[j] = qb.id[0], d
+				m++
+			}
+			// As buildPool.
+			for j, u := range qb.id[:min(len(qb.id), q)] {
+				if slices.Contains(pool.id[po:po+pm], u) {
+					continue
+				}
+				d := math.Sqrt(qb.d2[j])
+				i := po + pm
+				for i > po && pool.dst[i-1] > d {
+					pool.id[i], pool.dst[i] = pool.id[i-1], pool.dst[i-1]
+					i--
+				}
+				pool.id[i], pool.dst[i] = u, d
+				pm++
+			}
+		}
+	}
+	return nb, pool
 }

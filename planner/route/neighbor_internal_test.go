@@ -101,3 +101,54 @@ func TestNeighbourLists(t *testing.T) {
 		}
 	}
 }
+
+// TestNeighboursPoolSame checks that the one-pass buildNeighboursPool
+// gives exactly the lists (ties in the same order) of buildNeighbours and
+// buildPool, on random points and on lattice points (short strokes on a
+// grid, as in the planner's window arrays, where many distances tie).
+func TestNeighboursPoolSame(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 5))
+	for trial := range 120 {
+		var items []Item
+		n := 2 + r.IntN(60)
+		if trial%10 == 9 {
+			n = 300 + r.IntN(300) // deeper trees
+		}
+		for range n {
+			var p, q Point
+			if trial%2 == 0 {
+				p = Point{X: r.Float64() * 100, Y: r.Float64() * 100}
+				q = Point{X: p.X + r.Float64()*3, Y: p.Y + r.Float64()*3}
+			} else {
+				p = Point{X: float64(r.IntN(6+n/10)) * 7.68, Y: float64(r.IntN(6+n/10)) * 7.68}
+				p.Y += float64(r.IntN(3)) * 0.384
+				q = Point{X: p.X + 0.768, Y: p.Y}
+			}
+			if r.IntN(5) == 0 {
+				q = p
+			}
+			items = append(items, Item{A: p, B: q})
+		}
+		var start *Point
+		if trial%3 != 0 {
+			start = &Point{X: 1, Y: 2}
+		}
+		g := newGraph(items, start, nil, trial%4 < 2)
+		for _, k := range []int{8, 10} {
+			for q := range 3 {
+				for _, quad := range []bool{false, true} {
+					for _, pk := range []int{k - 2, k} {
+						nb, pool := buildNeighboursPool(g, k, pk, q, quad)
+						wantNB, wantPool := buildNeighbours(g, k, quad), buildPool(g, pk, q)
+						if nb.k != wantNB.k || !slices.Equal(nb.id, wantNB.id) || !slices.Equal(nb.dst, wantNB.dst) {
+							t.Fatalf("trial %d k=%d q=%d quad=%v: neighbour lists differ", trial, k, q, quad)
+						}
+						if pool.k != wantPool.k || !slices.Equal(pool.id, wantPool.id) || !slices.Equal(pool.dst, wantPool.dst) {
+							t.Fatalf("trial %d k=%d q=%d quad=%v: pools differ", trial, k, q, quad)
+						}
+					}
+				}
+			}
+		}
+	}
+}

@@ -146,23 +146,31 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 	// on the TSPLIB points they made the gaps worse. Not above 200,000
 	// nodes, where their queries cost more than they bring (10^6 random
 	// strokes: 3 s more, 0.5 point less gain at the default budget).
-	nb := buildNeighbours(g, k, g.real > len(items) && g.n() <= 200_000)
+	withQuad := g.real > len(items) && g.n() <= 200_000
+	lk := g.oneWay < 2 && g.n() <= c.lkLimit()
+	// Where the set-up takes a large share of the budget, a lighter one
+	// for the search: a smaller pool and fewer subgradient steps leave
+	// more time to search (measured, 2 s: on 13,000-15,000 points 0.52%
+	// mean gap against 0.65%, on 2,000-6,000 points 0.43% against 0.28%).
+	nearest, quad, iters := poolNearest, poolQuadrant, ascentIters
+	if g.n() > c.fullSetupLimit() {
+		nearest, quad, iters = lightPoolNearest, lightPoolQuadrant, lightAscentIters
+	}
+	var nb, pool *neighbours
+	if lk && nearest <= k {
+		nb, pool = buildNeighboursPool(g, k, nearest, quad, withQuad)
+	} else {
+		nb = buildNeighbours(g, k, withQuad)
+	}
 	if err := c.ctx.Err(); err != nil {
 		return nil, nil, err
 	}
 	tour := greedyTour(g, nb)
 	lists := nb
-	lk := g.oneWay < 2 && g.n() <= c.lkLimit()
 	if lk {
-		// Where the set-up takes a large share of the budget, a lighter
-		// one: a smaller pool and fewer subgradient steps leave more time
-		// to search (measured, 2 s: on 13,000-15,000 points 0.52% mean
-		// gap against 0.65%, on 2,000-6,000 points 0.43% against 0.28%).
-		nearest, quad, iters := poolNearest, poolQuadrant, ascentIters
-		if g.n() > c.fullSetupLimit() {
-			nearest, quad, iters = lightPoolNearest, lightPoolQuadrant, lightAscentIters
+		if pool == nil {
+			pool = buildPool(g, nearest, quad)
 		}
-		pool := buildPool(g, nearest, quad)
 		if cand := alphaCandidates(g, pool, tour, alphaCands, iters); cand != nil {
 			lists = cand
 		} else {
