@@ -46,6 +46,7 @@ func markerPixels(img image.Image, u *UI, p r2.Point, bright bool) int {
 func TestDefectToolOnTheCanvas(t *testing.T) {
 	u, w := newTestUI(t, editortest.Demo(t))
 	p := u.survey
+	p.imageJobs.Wait() // the demo's image, loaded in the background
 	c := w.Canvas()
 	test.TypeOnCanvas(c, "k")
 	if u.Session.Tool != editor.ToolDefect {

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"path/filepath"
+	"sync"
 
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/container"
@@ -61,6 +62,10 @@ type surveyPanel struct {
 	// once.
 	loading string
 	busy    bool
+	// imageJobs counts the image loads running, until their report is
+	// done (tests wait on it: Fyne's test driver runs the report on the
+	// job's goroutine).
+	imageJobs sync.WaitGroup
 }
 
 func newSurveyPanel(u *UI) *surveyPanel {
@@ -349,9 +354,11 @@ func (p *surveyPanel) loadImage() {
 		return
 	}
 	p.loading = path
+	p.imageJobs.Add(1)
 	go func() {
 		img, err := safely(func() (*editor.SurveyImage, error) { return editor.LoadSurveyImage(path, embedded) })
 		fyne.Do(func() {
+			defer p.imageJobs.Done()
 			p.loading = ""
 			if s != p.u.Session {
 				return
@@ -448,6 +455,9 @@ func (p *surveyPanel) findPlacements() {
 			return editor.FindPlacements(context.Background(), d, variant, opt)
 		})
 		fyne.Do(func() {
+			if p.u.jobDone != nil {
+				defer p.u.jobDone()
+			}
 			p.busy = false
 			p.u.hintLabel.SetText("")
 			if err != nil {
