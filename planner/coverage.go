@@ -300,6 +300,18 @@ func accurate(lo, hi float64, n int) bool {
 	return hi-lo <= max(coverageRel*lo, coverageAbs)
 }
 
+// missAccurate is accurate(exp(−hi), exp(−lo), n) for the probability
+// of a miss, without the exponentials where the exposures' gap alone
+// says no: for hi − lo ≥ 0.05 and lo ≤ 10 the gap exp(−lo)·(1 −
+// exp(−(hi−lo))) is over 4.8 % of exp(−lo) (> coverageRel·exp(−hi)) and
+// over 2·10⁻⁶ (> coverageAbs).
+func missAccurate(lo, hi float64, n int) bool {
+	if hi-lo >= 0.05 && lo <= 10 {
+		return false
+	}
+	return accurate(math.Exp(-hi), math.Exp(-lo), n)
+}
+
 // factors returns each piece's along factor at the box's two along ends
 // and its across factor at the two across ends (unused for slanted
 // pieces), from the arena.
@@ -370,7 +382,7 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		fy := ck.arena[top : top+n]
 		for i, p := range active {
 			if p.kind != pieceSlanted {
-				fy[i] = p.yFactor(y)
+				fy[i] = p.yFactorLine(r.l0)
 			}
 		}
 		fy0, fy1 = fy, fy
@@ -431,7 +443,7 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 			return
 		}
 		n := r.size()
-		paintedOK := r.bare || lo >= exposureSure || accurate(math.Exp(-hi), math.Exp(-lo), n)
+		paintedOK := r.bare || lo >= exposureSure || missAccurate(lo, hi, n)
 		strayLo, strayHi := clearFast(lo), clearFast(hi)
 		limit := ck.prof.StrayLimit
 		switch {
@@ -468,14 +480,16 @@ const (
 // computed per site.
 func (ck *coverageCheck) scan(r siteRect, active []*piece, fy []float64) {
 	if r.l1-r.l0 > 1 {
-		fy = make([]float64, len(active))
+		top := len(ck.arena)
+		ck.grow(len(active))
+		defer func() { ck.arena = ck.arena[:top] }()
+		fy = ck.arena[top:]
 	}
 	for l := r.l0; l < r.l1; l++ {
 		if r.l1-r.l0 > 1 {
-			y := lineY(l)
 			for i, p := range active {
 				if p.kind != pieceSlanted {
-					fy[i] = p.yFactor(y)
+					fy[i] = p.yFactorLine(l)
 				}
 			}
 		}

@@ -55,6 +55,78 @@ type chordIndex struct {
 	keys   []float64     // their keys
 	across []chordSeg    // rows across the lines, by key: the along coordinate
 	buf    []r1.Interval // chords' result
+	mbuf   []r1.Interval // its rows across, merged
+	// blocks bound the extents of the rows across in runs of
+	// chordBlockRows, so that a query takes a run that its line meets
+	// entirely (or misses entirely) at once; merged holds each run's own
+	// merged intervals per (gap, pad) asked for.
+	blocks []chordBlock
+	merged []chordMerged
+}
+
+const chordBlockRows = 32
+
+// chordBlock holds the least and greatest lo and hi of a run of rows.
+type chordBlock struct{ minLo, maxLo, minHi, maxHi float64 }
+
+// chordMerged is every block's intervals merged with gap, each row
+// across the lines at key ± pad.
+type chordMerged struct {
+	gap, pad float64
+	ivs      [][]r1.Interval
+}
+
+// blockMerged returns block b's rows across as intervals key ± pad,
+// merged with gap (computed once per gap and pad).
+func (ix *chordIndex) blockMerged(b int, gap, pad float64) []r1.Interval {
+	var m *chordMerged
+	for i := range ix.merged {
+		if ix.merged[i].gap == gap && ix.merged[i].pad == pad {
+			m = &ix.merged[i]
+		}
+	}
+	if m == nil {
+		ix.merged = append(ix.merged, chordMerged{gap: gap, pad: pad, ivs: make([][]r1.Interval, len(ix.blocks))})
+		m = &ix.merged[len(ix.merged)-1]
+	}
+	if m.ivs[b] == nil {
+		var mg intervalMerger
+		for _, s := range ix.across[b*chordBlockRows : min((b+1)*chordBlockRows, len(ix.across))] {
+			mg.push(r1.Interval{Lo: s.key - pad, Hi: s.key + pad}, gap)
+		}
+		m.ivs[b] = mg.flush()
+	}
+	return m.ivs[b]
+}
+
+// intervalMerger merges intervals given in order of Lo as
+// lattice.MergeIntervals does: an interval starting within gap of the
+// greatest end so far joins it. Merging parts of a list first and then
+// their results gives the same intervals (a merged interval is a
+// connected part of the union of the [Lo, Hi+gap]).
+type intervalMerger struct {
+	out []r1.Interval
+	cur r1.Interval
+	has bool
+}
+
+func (m *intervalMerger) push(iv r1.Interval, gap float64) {
+	if m.has && iv.Lo <= m.cur.Hi+gap {
+		m.cur.Hi = max(m.cur.Hi, iv.Hi)
+		return
+	}
+	if m.has {
+		m.out = append(m.out, m.cur)
+	}
+	m.cur, m.has = iv, true
+}
+
+func (m *intervalMerger) flush() []r1.Interval {
+	if m.has {
+		m.out = append(m.out, m.cur)
+		m.has = false
+	}
+	return m.out
 }
 
 // chordSeg is one run segment: its line's coordinate (key) and the
@@ -88,6 +160,15 @@ func newChordIndex(segs []runSeg, dir lattice.RowDirection) *chordIndex {
 	for i, s := range ix.along {
 		ix.keys[i] = s.key
 	}
+	for b := 0; b*chordBlockRows < len(ix.across); b++ {
+		run := ix.across[b*chordBlockRows : min((b+1)*chordBlockRows, len(ix.across))]
+		blk := chordBlock{minLo: run[0].lo, maxLo: run[0].lo, minHi: run[0].hi, maxHi: run[0].hi}
+		for _, s := range run[1:] {
+			blk.minLo, blk.maxLo = min(blk.minLo, s.lo), max(blk.maxLo, s.lo)
+			blk.minHi, blk.maxHi = min(blk.minHi, s.hi), max(blk.maxHi, s.hi)
+		}
+		ix.blocks = append(ix.blocks, blk)
+	}
 	return ix
 }
 
@@ -110,13 +191,29 @@ func (ix *chordIndex) chords(c, half, gap float64, cells bool) []r1.Interval {
 		s := ix.along[i]
 		sp = append(sp, r1.Interval{Lo: s.lo - alongPad, Hi: s.hi + alongPad})
 	}
-	// Rows across the lines meet the line if their extent does.
-	for _, s := range ix.across {
-		if s.hi+lattice.DimerPitch/2 < c-half || s.lo-lattice.DimerPitch/2 > c+half {
+	// Rows across the lines meet the line if their extent does: merged
+	// here, in order along the line, a block of rows at once where the
+	// line meets every row of it.
+	mg := intervalMerger{out: ix.mbuf[:0]}
+	for b, blk := range ix.blocks {
+		if blk.maxHi+lattice.DimerPitch/2 < c-half || blk.minLo-lattice.DimerPitch/2 > c+half {
+			continue // meets none
+		}
+		if blk.minHi+lattice.DimerPitch/2 >= c-half && blk.maxLo-lattice.DimerPitch/2 <= c+half {
+			for _, iv := range ix.blockMerged(b, gap, acrossPad) {
+				mg.push(iv, gap)
+			}
 			continue
 		}
-		sp = append(sp, r1.Interval{Lo: s.key - acrossPad, Hi: s.key + acrossPad})
+		for _, s := range ix.across[b*chordBlockRows : min((b+1)*chordBlockRows, len(ix.across))] {
+			if s.hi+lattice.DimerPitch/2 < c-half || s.lo-lattice.DimerPitch/2 > c+half {
+				continue
+			}
+			mg.push(r1.Interval{Lo: s.key - acrossPad, Hi: s.key + acrossPad}, gap)
+		}
 	}
+	ix.mbuf = mg.flush()
+	sp = append(sp, ix.mbuf...)
 	return lattice.MergeIntervals(sp, gap)
 }
 

@@ -1,0 +1,114 @@
+package planner
+
+import (
+	"math"
+	"math/rand/v2"
+	"slices"
+	"testing"
+
+	"github.com/golang/geo/r1"
+	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice"
+)
+
+// naiveChords is chordIndex.chords written out plainly: every row
+// segment is tested on its own and the intervals merged by
+// lattice.MergeIntervals.
+func naiveChords(segs []runSeg, dir lattice.RowDirection, c, half, gap float64, cells bool) []r1.Interval {
+	alongPad, acrossPad := 0.0, lattice.HOffset
+	if cells {
+		alongPad, acrossPad = lattice.DimerPitch/2, lattice.RowSpacing/2
+	}
+	var sp []r1.Interval
+	for _, s := range segs {
+		au, ac := dir.Split(s.a)
+		bu, bc := dir.Split(s.b)
+		if s.rows == dir {
+			if ac >= c-half-lattice.HOffset && ac <= c+half+lattice.HOffset {
+				sp = append(sp, r1.Interval{Lo: min(au, bu) - alongPad, Hi: max(au, bu) + alongPad})
+			}
+			continue
+		}
+		lo, hi := min(ac, bc), max(ac, bc)
+		if hi+lattice.DimerPitch/2 < c-half || lo-lattice.DimerPitch/2 > c+half {
+			continue
+		}
+		sp = append(sp, r1.Interval{Lo: au - acrossPad, Hi: au + acrossPad})
+	}
+	return lattice.MergeIntervals(sp, gap)
+}
+
+// TestChordsMatchNaive checks that the index's blocks of rows across the
+// lines (taken whole where a line meets or misses all of them) give
+// exactly the intervals of testing every row alone.
+func TestChordsMatchNaive(t *testing.T) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	for trial := range 40 {
+		var segs []runSeg
+		n := 1 + rng.IntN(300)
+		// Rows across the lines (along y) at increasing x, with extents
+		// in y that are often equal (a rectangle) and sometimes ragged;
+		// some rows along the lines (along x) mixed in.
+		ragged := trial%2 == 1
+		for k := range n {
+			x := float64(k)*lattice.RowSpacing + float64(rng.IntN(3))*lattice.RowSpacing*3*float64(trial%3)
+			lo, hi := 10.0, 60.0
+			if ragged {
+				lo, hi = 10+rng.Float64()*20, 40+rng.Float64()*20
+			}
+			segs = append(segs, runSeg{a: r2.Point{X: x, Y: lo}, b: r2.Point{X: x, Y: hi}, rows: lattice.RowsAlongY})
+			if rng.IntN(10) == 0 {
+				y := rng.Float64() * 70
+				segs = append(segs, runSeg{a: r2.Point{X: rng.Float64() * 50, Y: y}, b: r2.Point{X: 50 + rng.Float64()*50, Y: y}, rows: lattice.RowsAlongX})
+			}
+		}
+		ix := newChordIndex(segs, lattice.RowsAlongX)
+		for q := range 50 {
+			c := rng.Float64()*80 - 5
+			gap, cells := 2*lattice.RowSpacing, q%2 == 0
+			if q%3 == 0 {
+				gap = lattice.RowSpacing
+			}
+			got := slices.Clone(ix.chords(c, lattice.RowSpacing/2, gap, cells))
+			want := naiveChords(segs, lattice.RowsAlongX, c, lattice.RowSpacing/2, gap, cells)
+			if !slices.Equal(got, want) {
+				t.Fatalf("trial %d, line at %g (gap %g, cells %v): chords %v, want %v", trial, c, gap, cells, got, want)
+			}
+		}
+	}
+}
+
+// TestSlantBandExact checks slantBand's shortcuts against the plain
+// difference of fastPhi, bit for bit, across and beyond the tails.
+func TestSlantBandExact(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	check := func(b, a float64) {
+		if got, want := slantBand(b, a), fastPhi(b)-fastPhi(a); got != want {
+			t.Fatalf("slantBand(%v, %v) = %v, want %v", b, a, got, want)
+		}
+	}
+	for range 200000 {
+		a := -40 + rng.Float64()*45
+		check(a+rng.Float64()*50, a)
+	}
+	for _, x := range []float64{phiOne, phiNil, 8.29, 8.3, 8.4, 8.5, 8.6, 9, 12, 38, 39, 40} {
+		check(x, -x)
+		check(x, -phiNil)
+		check(0, -x)
+		check(0.5, -x)
+	}
+}
+
+// TestMissAccurateExact checks missAccurate's shortcut against accurate
+// on the exponentials.
+func TestMissAccurateExact(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	for range 200000 {
+		lo := rng.Float64() * 40
+		hi := lo + rng.ExpFloat64()*0.05
+		if got, want := missAccurate(lo, hi, 1), accurate(math.Exp(-hi), math.Exp(-lo), 1); got != want {
+			t.Fatalf("missAccurate(%v, %v) = %v, want %v", lo, hi, got, want)
+		}
+	}
+}
