@@ -440,7 +440,7 @@ func defectHint(s *editor.Session) string {
 	adds := fmt.Sprintf("A click on the survey image adds a %s defect %s nm wide (Options).", s.Opts.DefectKind, trimZeros(fmt.Sprintf("%.2f", s.Opts.DefectSizeNM)))
 	if i := s.SelectedDefect(); i >= 0 {
 		d := sv.FieldDefects()[i]
-		return fmt.Sprintf("Selected defect %d, %s %s at (%.2f, %.2f) nm: drag to move it, Delete removes it, Esc deselects. %s", i+1, d.Kind, d.Class, d.At.X, d.At.Y, adds)
+		return fmt.Sprintf("Selected defect %d, %s %s at (%.2f, %.2f) nm: drag to move it, Delete removes it, Esc deselects.", i+1, d.Kind, d.Class, d.At.X, d.At.Y)
 	}
 	return adds + " Click a defect to select it, drag one to move it."
 }
