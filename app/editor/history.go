@@ -242,6 +242,9 @@ func (s *Session) afterRestore(variant int) {
 	n := len(s.Variant().Regions)
 	s.sel = slices.DeleteFunc(s.sel, func(i int) bool { return i >= n })
 	s.shapeSel = nil
+	if s.d.Survey == nil || s.defectSel >= len(s.d.Survey.Defects) {
+		s.defectSel = -1
+	}
 	s.ensureCaches()
 	s.notify(ChangeAll)
 }

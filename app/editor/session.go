@@ -61,6 +61,7 @@ type Session struct {
 
 	surveyImg  *SurveyImage // the survey's image, shaded (survey.go)
 	placements *Placements  // the last placement search's result
+	defectSel  int          // the survey's selected defect, or -1
 
 	// OnChange, when set, is told what changed after every method that
 	// changes something.
@@ -112,7 +113,7 @@ func NewSession(d *design.Design, path string) (*Session, error) {
 		fresh:  map[regionID]bool{},
 		caches: map[regionID]*siteCache{},
 		Opts:   DefaultToolOptions(),
-		chosen: -1,
+		chosen: -1, defectSel: -1,
 	}
 	s.Profile = defaultProfile()
 	s.ids = make([][]regionID, len(d.Variants))

@@ -133,7 +133,8 @@ func (s *Session) SnapShape(f ShapeFields) (design.Shape, error) {
 		}
 		return sh, nil
 	case design.ShapeArray:
-		o := ToolOptions{Template: f.Template, LineWidthNM: 1, ArrayOf: string(f.Of), ArrayCols: f.Cols, ArrayRows: f.Rows, ArrayPitchDimers: f.PitchDimers, ArrayPitchRows: f.PitchRows}
+		o := DefaultToolOptions()
+		o.Template, o.ArrayOf, o.ArrayCols, o.ArrayRows, o.ArrayPitchDimers, o.ArrayPitchRows = f.Template, string(f.Of), f.Cols, f.Rows, f.PitchDimers, f.PitchRows
 		if err := o.Validate(); err != nil {
 			return design.Shape{}, err
 		}

@@ -5,7 +5,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"math"
 	"path/filepath"
 	"slices"
 
@@ -28,7 +27,17 @@ import (
 // share the old one keep it.
 
 // ErrNoSurvey: the design has no survey.
-var ErrNoSurvey = errors.New("the design has no survey: add one with Survey > Add survey image")
+var ErrNoSurvey = errors.New("the design has no survey: add a survey image first (File > Add survey image…, or Add image… in the Survey tab)")
+
+// Widths of a defect added by hand (its apparent full width at half
+// maximum, design.SurveyDefect.SizeNM). The default is one dangling
+// bond's as filled-state images show it, about 1 nm (from memory, as
+// survey.ClassOf's bounds); the limits keep a typing error out.
+const (
+	DefaultDefectSizeNM = 1.0
+	MinDefectSizeNM     = 0.1
+	MaxDefectSizeNM     = 100.0
+)
 
 // SurveyImage is a survey topograph shaded for display: W x H grey
 // levels, line 0 at the bottom (survey.Shade).
@@ -123,6 +132,7 @@ func (s *Session) PutSurvey(an *survey.Analysis, img *SurveyImage, path string) 
 	}
 	s.surveyImg = img
 	s.placements = nil
+	s.defectSel = -1
 	s.commit("add survey "+filepath.Base(path), "", ChangeSurvey|ChangeSites)
 	return nil
 }
@@ -135,6 +145,7 @@ func (s *Session) RemoveSurvey() {
 	s.d.Survey = nil
 	s.surveyImg = nil
 	s.placements = nil
+	s.defectSel = -1
 	s.commit("remove survey", "", ChangeSurvey|ChangeSites)
 }
 
@@ -173,8 +184,9 @@ func (s *Session) TerracesFromSurvey() error {
 	return s.editTerraces(fmt.Sprintf("terraces from survey (%d)", len(ts)), "", func([]design.Terrace) []design.Terrace { return ts })
 }
 
-// editDefects applies f to a copy of the survey's defects as one edit.
-func (s *Session) editDefects(label string, f func([]design.SurveyDefect) []design.SurveyDefect) error {
+// editDefects applies f to a copy of the survey's defects as one edit,
+// selecting defect sel after it (-1: none).
+func (s *Session) editDefects(label string, f func([]design.SurveyDefect) []design.SurveyDefect, sel int) error {
 	if s.d.Survey == nil {
 		return ErrNoSurvey
 	}
@@ -188,55 +200,168 @@ func (s *Session) editDefects(label string, f func([]design.SurveyDefect) []desi
 		return err
 	}
 	s.placements = nil
+	s.defectSel = sel
 	s.commit(label, "", ChangeSurvey|ChangeSites)
 	return nil
 }
 
+// onSurvey refuses a field point off the survey's image: its defects
+// lie on it.
+func (s *Session) onSurvey(p r2.Point) error {
+	if !s.d.Survey.Covers(p) {
+		return fmt.Errorf("(%.2f, %.2f) nm lies off the survey image: its defects lie on it", p.X, p.Y)
+	}
+	return nil
+}
+
 // AddDefect adds a defect by hand at field point at, of the given kind
-// (design.DefectBright or DefectDark) and apparent width sizeNM.
+// (design.DefectBright or DefectDark) and apparent width sizeNM, its
+// class by appearance (survey.ClassOf), and selects it.
 func (s *Session) AddDefect(at r2.Point, kind string, sizeNM float64) error {
-	return s.editDefects("add defect", func(ds []design.SurveyDefect) []design.SurveyDefect {
+	if s.d.Survey == nil {
+		return ErrNoSurvey
+	}
+	if err := s.onSurvey(at); err != nil {
+		return err
+	}
+	n := len(s.d.Survey.Defects)
+	err := s.editDefects(fmt.Sprintf("add %s defect %d at (%.2f, %.2f) nm", kind, n+1, at.X, at.Y), func(ds []design.SurveyDefect) []design.SurveyDefect {
 		p := s.d.Survey.FromField(at)
-		return append(ds, design.SurveyDefect{AtNM: [2]float64{p.X, p.Y}, Kind: kind, SizeNM: sizeNM, Class: "by hand", ByHand: true})
-	})
+		return append(ds, design.SurveyDefect{AtNM: [2]float64{p.X, p.Y}, Kind: kind, SizeNM: sizeNM,
+			Class: survey.ClassOf(kind == design.DefectBright, sizeNM), ByHand: true})
+	}, n)
+	return err
 }
 
 // MoveDefect moves defect i to field point to; it is then marked as
-// placed by hand.
+// placed by hand, and selected.
 func (s *Session) MoveDefect(i int, to r2.Point) error {
 	if s.d.Survey == nil || i < 0 || i >= len(s.d.Survey.Defects) {
-		return fmt.Errorf("no defect %d", i)
+		return fmt.Errorf("no defect %d", i+1)
 	}
-	return s.editDefects(fmt.Sprintf("move defect %d", i+1), func(ds []design.SurveyDefect) []design.SurveyDefect {
+	if err := s.onSurvey(to); err != nil {
+		return err
+	}
+	return s.editDefects(fmt.Sprintf("move defect %d to (%.2f, %.2f) nm", i+1, to.X, to.Y), func(ds []design.SurveyDefect) []design.SurveyDefect {
 		p := s.d.Survey.FromField(to)
 		ds[i].AtNM, ds[i].ByHand = [2]float64{p.X, p.Y}, true
 		return ds
-	})
+	}, i)
 }
 
-// DeleteDefect deletes defect i.
+// DeleteDefect deletes defect i; the selection stays on the defect it
+// was on, or none if that was i.
 func (s *Session) DeleteDefect(i int) error {
 	if s.d.Survey == nil || i < 0 || i >= len(s.d.Survey.Defects) {
-		return fmt.Errorf("no defect %d", i)
+		return fmt.Errorf("no defect %d", i+1)
+	}
+	sel := s.defectSel
+	switch {
+	case sel == i:
+		sel = -1
+	case sel > i:
+		sel--
 	}
 	return s.editDefects(fmt.Sprintf("delete defect %d", i+1), func(ds []design.SurveyDefect) []design.SurveyDefect {
 		return slices.Delete(ds, i, i+1)
-	})
+	}, sel)
 }
 
-// DefectAt returns the defect nearest field point p within near nm (or
-// within its own radius), or -1.
+// SelectedDefect returns the selected defect of the survey, or -1.
+func (s *Session) SelectedDefect() int {
+	if s.d.Survey == nil || s.defectSel >= len(s.d.Survey.Defects) {
+		return -1
+	}
+	return s.defectSel
+}
+
+// SelectDefect selects defect i of the survey (-1: none). The view rings
+// it; the Survey panel's list follows.
+func (s *Session) SelectDefect(i int) {
+	if s.d.Survey == nil || i < 0 || i >= len(s.d.Survey.Defects) {
+		i = -1
+	}
+	if i == s.defectSel {
+		return
+	}
+	s.defectSel = i
+	s.notify(ChangeSurvey)
+}
+
+// DeleteSelectedDefect deletes the selected defect, if any, and reports
+// whether there was one.
+func (s *Session) DeleteSelectedDefect() (bool, error) {
+	i := s.SelectedDefect()
+	if i < 0 {
+		return false, nil
+	}
+	return true, s.DeleteDefect(i)
+}
+
+// DefectAt returns the defect whose marker lies under field point p
+// (render.DefectMarkAt: within near nm, or its own radius and more), or
+// -1.
 func (s *Session) DefectAt(p r2.Point, near float64) int {
 	if s.d.Survey == nil {
 		return -1
 	}
-	best, bestD := -1, math.Inf(1)
-	for _, d := range s.d.Survey.FieldDefects() {
-		if dist := d.At.Sub(p).Norm(); dist <= max(near, d.RadiusNM) && dist < bestD {
-			best, bestD = d.Index, dist
-		}
+	return render.DefectMarkAt(defectMarks(s.d.Survey), p, near)
+}
+
+// defectMarks returns the survey's defects as the view marks them, in
+// the survey's order.
+func defectMarks(sv *design.Survey) []render.DefectMark {
+	fd := sv.FieldDefects()
+	marks := make([]render.DefectMark, len(fd))
+	for i, d := range fd {
+		marks[i] = render.DefectMark{At: d.At, RadiusNM: d.RadiusNM, Bright: d.Kind == design.DefectBright, ByHand: d.ByHand}
 	}
-	return best
+	return marks
+}
+
+// --- The Defect tool (tools.go routes its gestures here) ---
+
+// defectClick adds a defect of the tool's kind and width at p, or selects
+// the one whose marker is under p.
+func (s *Session) defectClick(p r2.Point, near float64) {
+	if s.d.Survey == nil {
+		s.Err = ErrNoSurvey
+		s.notify(ChangePreview)
+		return
+	}
+	if i := s.DefectAt(p, near); i >= 0 {
+		s.SelectDefect(i)
+		return
+	}
+	if err := s.AddDefect(p, s.Opts.DefectKind, s.Opts.DefectSizeNM); err != nil {
+		s.Err = err
+		s.notify(ChangePreview)
+	}
+}
+
+// defectPress starts a drag with the Defect tool: on a defect's marker
+// it selects the defect and will move it; elsewhere it does nothing.
+func (s *Session) defectPress(g *gesture, p r2.Point) {
+	g.target = -1
+	if s.d.Survey == nil {
+		s.Err = ErrNoSurvey
+		return
+	}
+	if i := s.DefectAt(p, s.near); i >= 0 {
+		s.SelectDefect(i)
+		g.target, g.moving = i, true
+	}
+}
+
+// defectRelease moves the defect dragged by the drag's length.
+func (s *Session) defectRelease(g *gesture) {
+	if !g.moving || !g.dragged || g.last == g.start || s.d.Survey == nil || g.target >= len(s.d.Survey.Defects) {
+		return
+	}
+	at := s.d.Survey.FieldDefects()[g.target].At
+	if err := s.MoveDefect(g.target, at.Add(g.last.Sub(g.start))); err != nil {
+		s.Err = err
+	}
 }
 
 // Placements are the placements of the current variant's core the last
@@ -362,8 +487,13 @@ func (s *Session) surveyOverlay(o SceneOptions) *render.SurveyOverlay {
 		so.V = sv.ToField(sv.PixelToSurvey(0, 1)).Sub(so.Origin)
 		so.Opacity = o.SurveyOpacity
 	}
-	for _, d := range sv.FieldDefects() {
-		so.Defects = append(so.Defects, render.DefectMark{At: d.At, RadiusNM: d.RadiusNM, Bright: d.Kind == design.DefectBright, ByHand: d.ByHand})
+	so.Defects = defectMarks(sv)
+	if i := s.SelectedDefect(); i >= 0 {
+		so.Defects[i].Selected = true
+	}
+	if g := s.gesture; g != nil && g.tool == ToolDefect && g.moving && g.dragged && g.target < len(so.Defects) {
+		// The defect being dragged, where the drag has it so far.
+		so.Defects[g.target].At = so.Defects[g.target].At.Add(g.last.Sub(g.start))
 	}
 	if ps := s.Placements(); ps != nil {
 		for k, p := range ps.Best {

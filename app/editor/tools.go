@@ -29,6 +29,7 @@ const (
 	ToolEraser               // restore H under the brush, in every region
 	ToolFiducial             // place a fiducial mark
 	ToolTerrace              // outline a terrace beyond a step
+	ToolDefect               // add, select, move and delete a survey's defects
 )
 
 // ToolInfo describes a tool for the palette, the menus and the status
@@ -54,6 +55,7 @@ var Tools = []ToolInfo{
 	{ToolEraser, "Eraser", 'e', "Click or drag to restore hydrogen on the sites under the brush, in every region."},
 	{ToolFiducial, "Fiducial", 'f', "Click to place a fiducial mark for re-registration."},
 	{ToolTerrace, "Terrace", 't', "Click the outline of a terrace beyond a step, say in Options whether the step goes up or down; Enter closes it."},
+	{ToolDefect, "Defect", 'k', "Click the survey image to add a defect (bright or dark in Options), click a defect to select it, drag one to move it; Delete removes the selected one, Esc deselects."},
 }
 
 // Info returns the tool's description.
@@ -81,6 +83,10 @@ type ToolOptions struct {
 	// "down" (design.Terrace.Step). The two lattices differ by 0.27 nm,
 	// so the terrace tool asks: "" finishes no outline until it is set.
 	TerraceStep string
+	// DefectKind is what the defect tool adds: design.DefectBright or
+	// DefectDark; DefectSizeNM its apparent width (design.SurveyDefect).
+	DefectKind   string
+	DefectSizeNM float64
 	// ArrayOf is what the array tool repeats: "window", "dimer" or "site".
 	ArrayOf                          string
 	ArrayCols, ArrayRows             int
@@ -90,10 +96,12 @@ type ToolOptions struct {
 // DefaultToolOptions returns the options a new session starts with. The
 // array pitch leaves two intact dimers between phosphine windows on a
 // row and skips a row between window rows, inside the default spacing
-// rule (common practice).
+// rule (common practice). The defect tool adds bright defects (dangling
+// bonds, adsorbates) DefaultDefectSizeNM wide until told otherwise.
 func DefaultToolOptions() ToolOptions {
 	return ToolOptions{
 		Template: "P", LineWidthNM: 2, BrushNM: 0,
+		DefectKind: design.DefectBright, DefectSizeNM: DefaultDefectSizeNM,
 		ArrayOf: "window", ArrayCols: 4, ArrayRows: 4, ArrayPitchDimers: 5, ArrayPitchRows: 2,
 	}
 }
@@ -107,6 +115,10 @@ func (o ToolOptions) Validate() error {
 		return fmt.Errorf("brush radius %g nm: must be between 0 and 500 nm", o.BrushNM)
 	case o.TerraceStep != "" && o.TerraceStep != "up" && o.TerraceStep != "down":
 		return fmt.Errorf("terrace step %q: must be up or down", o.TerraceStep)
+	case o.DefectKind != design.DefectBright && o.DefectKind != design.DefectDark:
+		return fmt.Errorf("defect kind %q: must be %s or %s", o.DefectKind, design.DefectBright, design.DefectDark)
+	case !(o.DefectSizeNM >= MinDefectSizeNM && o.DefectSizeNM <= MaxDefectSizeNM):
+		return fmt.Errorf("defect width %g nm: must be between %g and %g nm", o.DefectSizeNM, MinDefectSizeNM, MaxDefectSizeNM)
 	case o.ArrayOf != "window" && o.ArrayOf != "dimer" && o.ArrayOf != "site":
 		return fmt.Errorf("array element %q: must be window, dimer or site", o.ArrayOf)
 	case o.ArrayCols < 1 || o.ArrayCols > 1000 || o.ArrayRows < 1 || o.ArrayRows > 1000:
@@ -207,6 +219,11 @@ func (s *Session) Unhover() {
 	s.notify(ChangePreview)
 }
 
+// SetNear tells the session how close (nm, at the view's zoom) the
+// pointer must come to a mark to take it: a drag's press uses the last
+// one set (Click sets it too).
+func (s *Session) SetNear(near float64) { s.near = near }
+
 // Press starts a drag at p (nm) with the current tool.
 func (s *Session) Press(p r2.Point) {
 	if s.gesture != nil && s.gesture.pressed {
@@ -237,6 +254,10 @@ func (s *Session) Press(p r2.Point) {
 			c := s.snapDimerCentre(p)
 			s.gesture = &gesture{tool: s.Tool, start: c, last: c, pressed: true}
 		}
+	case ToolDefect:
+		g := &gesture{tool: s.Tool, start: p, last: p, pressed: true}
+		s.defectPress(g, p)
+		s.gesture = g
 	}
 	s.notify(ChangePreview)
 }
@@ -252,7 +273,7 @@ func (s *Session) Drag(p r2.Point) {
 	case ToolSite, ToolDimer, ToolEraser:
 		s.brush(g.last, p)
 		g.last = p
-	case ToolRect, ToolSelect:
+	case ToolRect, ToolSelect, ToolDefect:
 		g.last = p
 	case ToolLine:
 		g.last = s.snapDimerCentre(p)
@@ -306,6 +327,8 @@ func (s *Session) Release(p r2.Point) {
 			// A click: start a clicked path at the pressed point.
 			s.gesture = &gesture{tool: ToolLine, points: []r2.Point{g.start}}
 		}
+	case ToolDefect:
+		s.defectRelease(g)
 	}
 	s.notify(ChangePreview)
 }
@@ -343,6 +366,8 @@ func (s *Session) Click(p r2.Point, near float64) {
 		}
 		o := s.Opts
 		s.addShape(design.Shape{Kind: design.ShapeArray, Array: &design.Array{Of: &of, Cols: o.ArrayCols, Rows: o.ArrayRows, PitchDimers: o.ArrayPitchDimers, PitchRows: o.ArrayPitchRows}}, "array")
+	case ToolDefect:
+		s.defectClick(p, near)
 	case ToolFiducial:
 		if s.surf.Field.ContainsPoint(p) {
 			s.AddFiducial(p)

@@ -293,6 +293,7 @@ func (lv *LatticeView) Dragged(ev *fyne.DragEvent) {
 		start := ev.Position.Subtract(fyne.NewPos(ev.Dragged.DX, ev.Dragged.DY))
 		lv.panning = lv.s.Tool == editor.ToolPan || lv.button == desktop.MouseButtonTertiary
 		if !lv.panning {
+			lv.s.SetNear(lv.nearNM())
 			lv.s.Press(lv.FieldAt(start))
 		}
 	}

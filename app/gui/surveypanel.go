@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"path/filepath"
+	"sync"
 
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/container"
@@ -26,14 +27,23 @@ import (
 // analysis, the search and every edit are the editor's; this is widgets.
 
 type surveyPanel struct {
-	u        *UI
-	content  fyne.CanvasObject
-	summary  *widget.Label
-	show     *widget.Check
-	opacity  *widget.Slider
-	msg      *widget.Label
-	defects  *widget.List
-	defSel   int
+	u       *UI
+	content fyne.CanvasObject
+	summary *widget.Label
+	show    *widget.Check
+	opacity *widget.Slider
+	msg     *widget.Label
+	defects *widget.List
+	// listSel is the defect the list shows selected (-1: none); it
+	// follows the session's selection, made here or on the canvas.
+	listSel int
+	// following says the list is being set from the session's
+	// selection: the view stays where it is (the user is looking there).
+	following bool
+	// shownAt is the field position the x and y fields were last given
+	// from a defect: they are set again only when it moves, so what is
+	// being typed there stays.
+	shownAt  r2.Point
 	defX     *keyEntry
 	defY     *keyEntry
 	atX      *keyEntry
@@ -52,10 +62,14 @@ type surveyPanel struct {
 	// once.
 	loading string
 	busy    bool
+	// imageJobs counts the image loads running, until their report is
+	// done (tests wait on it: Fyne's test driver runs the report on the
+	// job's goroutine).
+	imageJobs sync.WaitGroup
 }
 
 func newSurveyPanel(u *UI) *surveyPanel {
-	p := &surveyPanel{u: u, defSel: -1, placeSel: -1}
+	p := &surveyPanel{u: u, listSel: -1, placeSel: -1}
 	p.summary = wrapLabel("")
 	p.msg = errorLabel()
 	p.show = widget.NewCheck("Show the survey", func(on bool) {
@@ -106,16 +120,19 @@ func newSurveyPanel(u *UI) *surveyPanel {
 			o.(*widget.Label).SetText(fmt.Sprintf("%d %s %s at (%.2f, %.2f) nm, %.2f nm wide%s", i+1, d.Kind, d.Class, at.X, at.Y, d.SizeNM, hand))
 		})
 	p.defects.OnSelected = func(i widget.ListItemID) {
-		p.defSel = i
+		p.listSel = i
 		sv := p.u.Session.Design().Survey
 		if sv == nil || i >= len(sv.Defects) {
 			return
 		}
-		at := sv.ToField(r2.Point{X: sv.Defects[i].AtNM[0], Y: sv.Defects[i].AtNM[1]})
-		p.defX.SetText(fmt.Sprintf("%.2f", at.X))
-		p.defY.SetText(fmt.Sprintf("%.2f", at.Y))
-		p.u.View.ZoomTo(r2.RectFromCenterSize(at, r2.Point{X: 12, Y: 12}))
+		p.showDefectAt(i)
+		if !p.following {
+			p.u.Session.SelectDefect(i)
+			at := sv.FieldDefects()[i].At
+			p.u.View.ZoomTo(r2.RectFromCenterSize(at, r2.Point{X: 12, Y: 12}))
+		}
 	}
+	p.defects.OnUnselected = func(widget.ListItemID) { p.listSel = -1 }
 	p.defX, p.defY = u.newEntry(), u.newEntry()
 	moveDef := widget.NewButton("Move", func() {
 		x, errX := parseNumber("x", p.defX.Text)
@@ -125,24 +142,22 @@ func newSurveyPanel(u *UI) *surveyPanel {
 			showErr(p.msg, errX)
 		case errY != nil:
 			showErr(p.msg, errY)
-		case p.defSel < 0:
-			showErr(p.msg, fmt.Errorf("choose a defect in the list first"))
+		case p.u.Session.SelectedDefect() < 0:
+			showErr(p.msg, fmt.Errorf("choose a defect in the list or with the Defect tool first"))
 		default:
-			showErr(p.msg, p.u.Session.MoveDefect(p.defSel, r2.Point{X: x, Y: y}))
+			showErr(p.msg, p.u.Session.MoveDefect(p.u.Session.SelectedDefect(), r2.Point{X: x, Y: y}))
 		}
 	})
 	addDef := func(kind string) func() {
 		return func() {
-			// At the view's centre: pan there, then add.
-			showErr(p.msg, p.u.Session.AddDefect(p.u.View.View().Center, kind, 0.8))
+			// At the view's centre: pan there, then add (or click there
+			// with the Defect tool).
+			showErr(p.msg, p.u.Session.AddDefect(p.u.View.View().Center, kind, p.u.Session.Opts.DefectSizeNM))
 		}
 	}
 	delDef := widget.NewButtonWithIcon("Delete", theme.DeleteIcon(), func() {
-		if p.defSel >= 0 {
-			showErr(p.msg, p.u.Session.DeleteDefect(p.defSel))
-			p.defSel = -1
-			p.defects.UnselectAll()
-		}
+		_, err := p.u.Session.DeleteSelectedDefect()
+		showErr(p.msg, err)
 	})
 	defForm := container.NewVBox(
 		container.NewGridWithColumns(2, widget.NewForm(widget.NewFormItem("x (nm)", p.defX)), widget.NewForm(widget.NewFormItem("y (nm)", p.defY))),
@@ -202,7 +217,7 @@ func newSurveyPanel(u *UI) *surveyPanel {
 		mutedLabel("Moves by whole lattice vectors that keep the core clearest of defects and step edges (rule surface-clearance); its fan-outs and pads stay."),
 		searchForm, container.NewGridWithColumns(2, p.find, p.apply)), nil, nil, nil, p.places)
 	defBox := container.NewBorder(container.NewVBox(heading("Defects"),
-		mutedLabel("Classes are by appearance. Add, move or delete defects by hand: one undo step each.")), defForm, nil, nil, p.defects)
+		mutedLabel("Classes are by appearance. Add, move or delete defects by hand, here or with the Defect tool (K) on the view: one undo step each.")), defForm, nil, nil, p.defects)
 	split := container.NewVSplit(placeBox, defBox)
 	split.Offset = 0.45
 	p.content = container.NewBorder(top, nil, nil, nil, split)
@@ -280,12 +295,15 @@ func (p *surveyPanel) refresh() {
 		p.atX.SetText(fmt.Sprintf("%.2f", sv.OffsetNM[0]))
 		p.atY.SetText(fmt.Sprintf("%.2f", sv.OffsetNM[1]))
 		p.turn.SetText(fmt.Sprintf("%.3f", sv.RotationDeg))
-	}
-	if p.defSel >= p.defectCount() {
-		p.defSel = -1
-		p.defects.UnselectAll()
+	} else {
+		// Nothing to register or move: no numbers of another design's survey.
+		for _, e := range []*keyEntry{p.atX, p.atY, p.turn, p.defX, p.defY} {
+			e.SetText("")
+		}
+		p.shownAt = r2.Point{}
 	}
 	p.defects.Refresh()
+	p.followSelection()
 	if s.Placements() == nil && p.placeSel >= 0 {
 		p.placeSel = -1
 		p.places.UnselectAll()
@@ -293,6 +311,35 @@ func (p *surveyPanel) refresh() {
 	p.places.Refresh()
 	p.refreshButtons()
 	p.loadImage()
+}
+
+// followSelection makes the defect list show the session's selected
+// defect (scrolled to it, its place in the x and y fields), without
+// moving the view.
+func (p *surveyPanel) followSelection() {
+	sel := p.u.Session.SelectedDefect()
+	p.following = true
+	defer func() { p.following = false }()
+	switch {
+	case sel < 0:
+		p.defects.UnselectAll()
+	case sel != p.listSel:
+		p.defects.Select(sel)
+	case sel < len(p.u.Session.Design().Survey.Defects) && p.u.Session.Design().Survey.FieldDefects()[sel].At != p.shownAt:
+		p.showDefectAt(sel) // it moved
+	}
+}
+
+// showDefectAt puts defect i's field position in the x and y fields.
+func (p *surveyPanel) showDefectAt(i int) {
+	sv := p.u.Session.Design().Survey
+	if sv == nil || i < 0 || i >= len(sv.Defects) {
+		return
+	}
+	at := sv.FieldDefects()[i].At
+	p.shownAt = at
+	p.defX.SetText(fmt.Sprintf("%.2f", at.X))
+	p.defY.SetText(fmt.Sprintf("%.2f", at.Y))
 }
 
 // loadImage reads and shades the survey's image in the background when
@@ -307,9 +354,11 @@ func (p *surveyPanel) loadImage() {
 		return
 	}
 	p.loading = path
+	p.imageJobs.Add(1)
 	go func() {
 		img, err := safely(func() (*editor.SurveyImage, error) { return editor.LoadSurveyImage(path, embedded) })
 		fyne.Do(func() {
+			defer p.imageJobs.Done()
 			p.loading = ""
 			if s != p.u.Session {
 				return
@@ -406,6 +455,9 @@ func (p *surveyPanel) findPlacements() {
 			return editor.FindPlacements(context.Background(), d, variant, opt)
 		})
 		fyne.Do(func() {
+			if p.u.jobDone != nil {
+				defer p.u.jobDone()
+			}
 			p.busy = false
 			p.u.hintLabel.SetText("")
 			if err != nil {

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"strings"
 	"testing"
-	"time"
 
 	"fyne.io/fyne/v2/test"
 	"github.com/golang/geo/r2"
@@ -12,25 +11,16 @@ import (
 	"dimerpath/app/editor/editortest"
 )
 
-// waitFor polls cond (background jobs report through fyne.Do) for up to
-// 20 s.
-func waitFor(t *testing.T, what string, cond func() bool) {
-	t.Helper()
-	for end := time.Now().Add(20 * time.Second); time.Now().Before(end); time.Sleep(20 * time.Millisecond) {
-		if cond() {
-			return
-		}
-	}
-	t.Fatalf("timed out waiting for %s", what)
-}
-
 // The Survey tab on the demo: its image loads in the background and is
 // drawn (the opacity slider reaches the view), placements are found and
 // listed, and applying the first moves the core as one undo step.
 func TestSurveyPanel(t *testing.T) {
 	u, w := newTestUI(t, editortest.Demo(t))
 	p := u.survey
-	waitFor(t, "the demo's survey image", func() bool { return u.Session.SurveyImageShown() != nil })
+	p.imageJobs.Wait()
+	if u.Session.SurveyImageShown() == nil {
+		t.Fatal("the demo's survey image was not loaded")
+	}
 	if !strings.Contains(p.summary.Text, "16 defects") || p.defects.Length() != 16 {
 		t.Errorf("summary %q, %d defects listed", p.summary.Text, p.defects.Length())
 	}
@@ -67,8 +57,12 @@ func TestSurveyPanel(t *testing.T) {
 		t.Errorf("a box of three numbers searched; message %q", p.msg.Text)
 	}
 	p.searchBox.SetText("")
-	test.Tap(p.find)
-	waitFor(t, "placements", func() bool { return u.Session.Placements() != nil })
+	// The test driver runs the job's report on the job's goroutine: the
+	// test touches no widget until it is done.
+	waitJob(t, u, func() { test.Tap(p.find) })
+	if u.Session.Placements() == nil {
+		t.Fatal("no placements kept")
+	}
 	if p.places.Length() == 0 {
 		t.Fatal("no placements listed")
 	}
@@ -76,8 +70,10 @@ func TestSurveyPanel(t *testing.T) {
 	first := u.Session.Placements()
 	box := first.Core.ExpandedByMargin(3)
 	p.searchBox.SetText(fmt.Sprintf("%g,%g,%g,%g", box.X.Lo, box.Y.Lo, box.X.Hi, box.Y.Hi))
-	test.Tap(p.find)
-	waitFor(t, "placements in the box", func() bool { ps := u.Session.Placements(); return ps != nil && ps != first })
+	waitJob(t, u, func() { test.Tap(p.find) })
+	if ps := u.Session.Placements(); ps == nil || ps == first {
+		t.Fatal("no new placements kept for the box")
+	}
 	for i, pl := range u.Session.Placements().Best {
 		moved := r2.Rect{X: first.Core.X, Y: first.Core.Y}
 		moved.X.Lo, moved.X.Hi = moved.X.Lo+pl.MoveNM.X, moved.X.Hi+pl.MoveNM.X

@@ -19,6 +19,7 @@ import (
 
 	"dimerpath/app/editor"
 	"dimerpath/app/render"
+	"dimerpath/lattice/design"
 	"dimerpath/planner"
 )
 
@@ -72,6 +73,7 @@ type UI struct {
 
 	toolButtons   map[editor.Tool]*widget.Button
 	toolOptions   *fyne.Container
+	toolShown     editor.Tool // the tool whose options are shown
 	variantSelect *widget.Select
 	undoButton    *widget.Button
 	redoButton    *widget.Button
@@ -214,7 +216,8 @@ func (u *UI) changed(c editor.Change) {
 	if c&editor.ChangeTool != 0 {
 		u.refreshTools()
 	}
-	if c&(editor.ChangeTool|editor.ChangeSelection|editor.ChangeRegions|editor.ChangeVariants) != 0 {
+	if c&(editor.ChangeTool|editor.ChangeSelection|editor.ChangeRegions|editor.ChangeVariants) != 0 ||
+		(c&editor.ChangeSurvey != 0 && u.Session.Tool == editor.ToolDefect) {
 		u.refreshHint()
 	}
 	if c&(editor.ChangeRegions|editor.ChangePlan|editor.ChangeFindings|editor.ChangeVariants|editor.ChangeHistory|editor.ChangeTerraces|editor.ChangeFiducials) != 0 {
@@ -394,6 +397,14 @@ func (u *UI) refreshTools() {
 	}
 	u.toolOptions.Objects = u.optionsFor(u.Session.Tool)
 	u.toolOptions.Refresh()
+	if t := u.Session.Tool; t != u.toolShown {
+		u.toolShown = t
+		if t == editor.ToolDefect {
+			// The defects it edits: on the view and in the Survey tab's list.
+			u.tabs.Select(u.tabSurvey)
+			u.survey.show.SetChecked(true)
+		}
+	}
 }
 
 // refreshHint shows what the tool does and, for the painting tools,
@@ -408,6 +419,8 @@ func (u *UI) refreshHint() {
 		} else {
 			hint = newRegionHint(s.Tool) + hint
 		}
+	case editor.ToolDefect:
+		hint = defectHint(s)
 	case editor.ToolSelect:
 		if i, k := s.SelectedShape(); i >= 0 {
 			r := s.Variant().Regions[i]
@@ -415,6 +428,21 @@ func (u *UI) refreshHint() {
 		}
 	}
 	u.hintLabel.SetText(hint)
+}
+
+// defectHint says what the Defect tool will do: nothing without a
+// survey; else what is selected and what a click adds.
+func defectHint(s *editor.Session) string {
+	sv := s.Design().Survey
+	if sv == nil {
+		return "Defect tool: " + editor.ErrNoSurvey.Error() + "."
+	}
+	adds := fmt.Sprintf("A click on the survey image adds a %s defect %s nm wide (Options).", s.Opts.DefectKind, trimZeros(fmt.Sprintf("%.2f", s.Opts.DefectSizeNM)))
+	if i := s.SelectedDefect(); i >= 0 {
+		d := sv.FieldDefects()[i]
+		return fmt.Sprintf("Selected defect %d, %s %s at (%.2f, %.2f) nm: drag to move it, Delete removes it, Esc deselects.", i+1, d.Kind, d.Class, d.At.X, d.At.Y)
+	}
+	return adds + " Click a defect to select it, drag one to move it."
 }
 
 // newRegionHint says what region a tool's next stroke makes when none
@@ -429,9 +457,15 @@ func newRegionHint(t editor.Tool) string {
 	return "Starts a new device region. "
 }
 
-// deleteSelection removes the selected shape, or else the selected
-// regions.
+// deleteSelection removes the selected defect with the Defect tool;
+// else the selected shape, or else the selected regions.
 func (u *UI) deleteSelection() {
+	if u.Session.Tool == editor.ToolDefect {
+		if _, err := u.Session.DeleteSelectedDefect(); err != nil {
+			u.hintLabel.SetText("Problem: " + err.Error())
+		}
+		return
+	}
 	if !u.Session.DeleteSelectedShape() {
 		if sel := u.Session.Selection(); len(sel) > 0 {
 			u.Session.DeleteRegions(sel...)
@@ -502,6 +536,20 @@ func (u *UI) optionsFor(t editor.Tool) []fyne.CanvasObject {
 		return []fyne.CanvasObject{
 			wrapLabel("The step from the terrace under the first point to the new terrace goes"), step,
 			mutedLabel("Up and down put the new lattice 0.27 nm apart: check it on your survey image. Enter finishes the outline."),
+		}
+	case editor.ToolDefect:
+		kind := widget.NewRadioGroup([]string{design.DefectBright, design.DefectDark}, func(k string) {
+			if k != "" {
+				u.setOpt(func(o *editor.ToolOptions) error { o.DefectKind = k; return nil })
+			}
+		})
+		kind.Horizontal = true
+		kind.Required = true
+		kind.Selected = o.DefectKind
+		return []fyne.CanvasObject{
+			widget.NewLabel("A click adds a defect"), kind,
+			num("Apparent width (nm)", o.DefectSizeNM, func(o *editor.ToolOptions, v float64) { o.DefectSizeNM = v }),
+			mutedLabel("Bright: dangling bonds, adsorbates, clusters; dark: vacancies, missing dimers. Its class follows from the kind and the width, by appearance."),
 		}
 	case editor.ToolWindow:
 		return []fyne.CanvasObject{template()}
@@ -772,6 +820,8 @@ func (u *UI) typedKey(k *fyne.KeyEvent) {
 	case fyne.KeyEscape:
 		if u.Session.Drawing() {
 			u.Session.CancelPath()
+		} else if u.Session.Tool == editor.ToolDefect && u.Session.SelectedDefect() >= 0 {
+			u.Session.SelectDefect(-1)
 		} else if len(u.Session.Selection()) > 0 {
 			// Nothing selected: the next stroke starts a new region.
 			u.Session.Select()
@@ -926,7 +976,7 @@ func keyHelp() [][2]string {
 		[2]string{"Drag", "with the Pan tool, the middle or the right button: move the view; the arrow keys pan"},
 		[2]string{"Enter / Esc", "finish / cancel a polygon, line or terrace outline; Esc otherwise selects nothing, so the next stroke starts a new region"},
 		[2]string{"Select tool", "click a shape to select it, drag it to move it by whole dimers and rows"},
-		[2]string{"Delete", "remove the selected shape, or the selected regions"},
+		[2]string{"Delete", "remove the selected shape, or the selected regions; with the Defect tool, the selected defect"},
 		[2]string{"Ctrl+Z", "undo; Ctrl+Shift+Z or Ctrl+Y redo"},
 		[2]string{"Ctrl+S", "save; Ctrl+Shift+S save as; Ctrl+O open; Ctrl+N new"},
 		[2]string{"Ctrl+Return", "plan the variant (the Return or Enter key); F5 checks the design rules; Ctrl+E exports the operator's PDF"},

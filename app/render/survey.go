@@ -63,6 +63,32 @@ func (r *Renderer) drawSurveyImage(so *SurveyOverlay, v View) {
 	}
 }
 
+// defectMinRingPx is the smallest ring a defect is drawn as, in pixels,
+// so a defect never vanishes when zoomed out.
+const defectMinRingPx = 5
+
+// defectRingPx is the radius (px) of defect d's ring at scale nm/px: its
+// apparent width when it shows, defectMinRingPx at least.
+func defectRingPx(d DefectMark, scale float64) float64 {
+	return math.Max(defectMinRingPx, d.RadiusNM/scale)
+}
+
+// DefectMarkAt returns the index of the defect marker under field point
+// p, or -1: the nearest whose centre lies within max(its apparent
+// radius, near) + 3/4 near of p. near is the click's tolerance in nm:
+// when it is at least 8 screen pixels, a click anywhere on a marker as
+// drawn (its ring, at least defectMinRingPx, and the by-hand and
+// selection rings up to 6 px outside it) takes that defect.
+func DefectMarkAt(marks []DefectMark, p r2.Point, near float64) int {
+	best, bestD := -1, math.Inf(1)
+	for i, d := range marks {
+		if dist := d.At.Sub(p).Norm(); dist <= math.Max(d.RadiusNM, near)+0.75*near && dist < bestD {
+			best, bestD = i, dist
+		}
+	}
+	return best
+}
+
 // drawSurveyMarks draws the survey's outline, step edges and defects and
 // the placements found.
 func drawSurveyMarks(pb *pixbuf, v View, so *SurveyOverlay) {
@@ -89,9 +115,7 @@ func drawSurveyMarks(pb *pixbuf, v View, so *SurveyOverlay) {
 			c = ColDefectBright
 		}
 		x, y := v.ToScreen(d.At)
-		// Its apparent width when it shows; a 5 px ring at least, so a
-		// defect never vanishes when zoomed out.
-		rad := math.Max(5, d.RadiusNM/v.Scale)
+		rad := defectRingPx(d, v.Scale)
 		pb.ring(x, y, rad, c, 256)
 		if d.ByHand {
 			pb.ring(x, y, rad+3, c, 160)

@@ -108,6 +108,21 @@ func (s *Survey) PixelToSurvey(u, v float64) r2.Point {
 	return r2.Point{X: s.ScaleNMPerPx[0]*u + s.ScaleNMPerPx[1]*sn*v, Y: s.ScaleNMPerPx[1] * cs * v}
 }
 
+// SurveyToPixel returns the image's pixel point of the survey point p
+// (PixelToSurvey's inverse).
+func (s *Survey) SurveyToPixel(p r2.Point) (u, v float64) {
+	sn, cs := math.Sincos(s.SkewDeg * math.Pi / 180)
+	v = p.Y / (s.ScaleNMPerPx[1] * cs)
+	u = (p.X - s.ScaleNMPerPx[1]*sn*v) / s.ScaleNMPerPx[0]
+	return u, v
+}
+
+// Covers reports whether the field point f lies on the survey's image.
+func (s *Survey) Covers(f r2.Point) bool {
+	u, v := s.SurveyToPixel(s.FromField(f))
+	return u >= 0 && v >= 0 && u <= float64(s.SizePx[0]) && v <= float64(s.SizePx[1])
+}
+
 // Outline returns the image's outline in the field, counter-clockwise
 // from its lower-left corner.
 func (s *Survey) Outline() []r2.Point {

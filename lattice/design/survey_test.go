@@ -76,6 +76,18 @@ func TestSurveyFrames(t *testing.T) {
 	if o := s.Outline(); len(o) != 4 || o[0] != (r2.Point{X: 100, Y: 200}) {
 		t.Errorf("outline %v", o)
 	}
+	if u, v := s.SurveyToPixel(s.PixelToSurvey(7, 3)); math.Abs(u-7) > 1e-12 || math.Abs(v-3) > 1e-12 {
+		t.Errorf("SurveyToPixel(PixelToSurvey(7, 3)) = (%g, %g)", u, v)
+	}
+	// Covers: the image's pixel points inside it, and just outside each edge.
+	for _, c := range []struct {
+		u, v float64
+		in   bool
+	}{{10, 5, true}, {0.01, 0.01, true}, {19.99, 9.99, true}, {-0.1, 5, false}, {20.1, 5, false}, {10, -0.1, false}, {10, 10.1, false}} {
+		if got := s.Covers(s.ToField(s.PixelToSurvey(c.u, c.v))); got != c.in {
+			t.Errorf("Covers(pixel %g, %g) = %v, want %v", c.u, c.v, got, c.in)
+		}
+	}
 }
 
 // DesignTerraces lays the survey's terraces on the lattice the diamond

@@ -68,7 +68,7 @@ func newSparseGraph(g *graph, pool *neighbours, tour []int32) *sparseGraph {
 	for i, v := range tour {
 		add(v, tour[(i+1)%len(tour)])
 	}
-	slices.Sort(keys)
+	keys = sortKeysByNode(keys, n)
 	keys = slices.Compact(keys)
 	m := len(keys)
 	sg := &sparseGraph{n: n, a: make([]int32, m), b: make([]int32, m), c: make([]float64, m),
@@ -95,6 +95,41 @@ func newSparseGraph(g *graph, pool *neighbours, tour []int32) *sparseGraph {
 		fill[v]++
 	}
 	return sg
+}
+
+// sortKeysByNode sorts edge keys u<<32|v (u < v < n) ascending: a
+// counting sort on u, then each node's few keys by insertion. The same
+// result as slices.Sort at a fraction of its cost on the ~1,000 keys of
+// the planner's small re-route problems, where the sort was a fifth of
+// the α set-up.
+func sortKeysByNode(keys []uint64, n int32) []uint64 {
+	start := make([]int32, n+1)
+	for _, k := range keys {
+		start[(k>>32)+1]++
+	}
+	for u := range n {
+		start[u+1] += start[u]
+	}
+	out := make([]uint64, len(keys))
+	fill := slices.Clone(start[:n])
+	for _, k := range keys {
+		u := k >> 32
+		out[fill[u]] = k
+		fill[u]++
+	}
+	for u := range n {
+		b := out[start[u]:start[u+1]]
+		if len(b) > 32 {
+			slices.Sort(b)
+			continue
+		}
+		for i := 1; i < len(b); i++ {
+			for j := i; j > 0 && b[j-1] > b[j]; j-- {
+				b[j-1], b[j] = b[j], b[j-1]
+			}
+		}
+	}
+	return out
 }
 
 // oneTree is a minimum spanning tree of the sparse graph under the costs

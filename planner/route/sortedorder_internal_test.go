@@ -35,3 +35,22 @@ func TestSortedOrder(t *testing.T) {
 		}
 	}
 }
+
+// TestSortKeysByNode checks sortKeysByNode against slices.Sort on edge
+// keys with repeats, few and many per node.
+func TestSortKeysByNode(t *testing.T) {
+	r := rand.New(rand.NewSource(3))
+	for _, c := range []struct{ n, m, spread int }{{1, 0, 1}, {2, 1, 1}, {70, 900, 70}, {500, 20000, 500}, {40, 3000, 40}} {
+		keys := make([]uint64, c.m)
+		for i := range keys {
+			u := r.Intn(c.n)
+			v := u + 1 + r.Intn(c.spread)
+			keys[i] = uint64(u)<<32 | uint64(v)
+		}
+		want := slices.Clone(keys)
+		slices.Sort(want)
+		if got := sortKeysByNode(keys, int32(c.n)); !slices.Equal(got, want) {
+			t.Errorf("n=%d m=%d: not sorted as slices.Sort sorts", c.n, c.m)
+		}
+	}
+}
