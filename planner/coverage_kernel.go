@@ -33,8 +33,9 @@ type piece struct {
 	// (uPeak, yPeak), and sTop a slanted piece's band at its middle,
 	// computed once.
 	uTop, yTop, sTop float64
-	// sReach is a slanted piece's reach for slantedDimers, computed once.
-	sReach float64
+	// sReach is a slanted piece's reach for slantedDimers, sQ the ratio
+	// exp(−step²) of slantedRange's recurrence, computed once.
+	sReach, sQ float64
 	// lines caches the across factor at site lines lines0+i (0: not yet),
 	// filled on first use: decide and scan meet a piece on each line it
 	// reaches many times.
@@ -377,7 +378,7 @@ func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who [
 	step := -h * p.dy / p.sigma
 	along := (u0-p.pu)*p.du + (y-p.py)*p.dy // at k0, nm
 	alongStep := h * p.du
-	q := math.Exp(-step * step)
+	q := p.sQ // math.Exp(-step * step), computed once
 	var g, r float64
 	for k := k0; k < k1; k++ {
 		j := k - k0
@@ -448,6 +449,8 @@ func makePiece(surf *lattice.Surface, t int, si int32, a, b r2.Point, amp, sigma
 		p.pu, p.py, p.du, p.dy = ua, ya, (ub-ua)/p.L, (yb-ya)/p.L
 		p.sTop = band(0, p.L, p.sigma, p.L/2)
 		p.sReach = p.sigma * math.Sqrt(2*math.Log(max(p.amp/exposureNeglect, 1)))
+		step := -lattice.DimerPitch * p.dy / p.sigma
+		p.sQ = math.Exp(-step * step)
 		return p
 	}
 	p.uTop, p.yTop = p.uFactor(p.uPeak()), p.yFactor(p.yPeak())
