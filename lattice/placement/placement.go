@@ -21,13 +21,13 @@ package placement
 
 import (
 	"context"
+	"dimerpath/internal/fft2"
 	"errors"
 	"fmt"
 	"math"
 	"slices"
 
 	"github.com/golang/geo/r2"
-	"gonum.org/v1/gonum/dsp/fourier"
 
 	"dimerpath/internal/edt"
 	"dimerpath/lattice"
@@ -538,7 +538,7 @@ func (c *correlator) transform(obst []bool) []complex128 {
 			}
 		}
 	}
-	fft2(a, c.w, c.h, false)
+	fft2.Transform(a, c.w, c.h, false)
 	return a
 }
 
@@ -549,7 +549,7 @@ func (c *correlator) shape(cells [][2]int) []complex128 {
 	for _, q := range cells {
 		b[(q[1]-c.sj0)*c.w+q[0]-c.si0] = 1
 	}
-	fft2(b, c.w, c.h, false)
+	fft2.Transform(b, c.w, c.h, false)
 	return b
 }
 
@@ -560,7 +560,7 @@ func (c *correlator) clearance(fx, fs []complex128) []float64 {
 	for k := range a {
 		a[k] = fx[k] * complex(real(fs[k]), -imag(fs[k])) // correlation: X·conj(S)
 	}
-	fft2(a, c.w, c.h, true)
+	fft2.Transform(a, c.w, c.h, true)
 	norm := 1 / float64(c.w*c.h)
 	// The correlation at offset (u, v) is Σ_s X(u + s − s0): translation
 	// t puts core cell s at s + t, on obstacle-grid index s + t − og0.
@@ -581,34 +581,6 @@ func (c *correlator) clearance(fx, fs []complex128) []float64 {
 		d[k] = math.Sqrt(v)
 	}
 	return d
-}
-
-// fft2 transforms the complex w x h array in place, rows then columns.
-func fft2(c []complex128, w, h int, inverse bool) {
-	rf := fourier.NewCmplxFFT(w)
-	for y := 0; y < h; y++ {
-		row := c[y*w : y*w+w]
-		if inverse {
-			rf.Sequence(row, row)
-		} else {
-			rf.Coefficients(row, row)
-		}
-	}
-	cf := fourier.NewCmplxFFT(h)
-	col := make([]complex128, h)
-	for x := 0; x < w; x++ {
-		for y := range col {
-			col[y] = c[y*w+x]
-		}
-		if inverse {
-			cf.Sequence(col, col)
-		} else {
-			cf.Coefficients(col, col)
-		}
-		for y := range col {
-			c[y*w+x] = col[y]
-		}
-	}
 }
 
 // smooth returns the least n' ≥ n whose only prime factors are 2, 3 and

@@ -1,9 +1,8 @@
 package survey
 
 import (
+	"dimerpath/internal/fft2"
 	"math"
-
-	"gonum.org/v1/gonum/dsp/fourier"
 )
 
 // padding places an image in a larger frame of smooth size, zero outside
@@ -62,35 +61,6 @@ func reflect(i, n int) int {
 	return i
 }
 
-// cfft2 transforms the complex w x h array c in place (rows, then
-// columns), inverse when asked (unnormalised).
-func cfft2(c []complex128, w, h int, inverse bool) {
-	rf := fourier.NewCmplxFFT(w)
-	for y := 0; y < h; y++ {
-		row := c[y*w : y*w+w]
-		if inverse {
-			rf.Sequence(row, row)
-		} else {
-			rf.Coefficients(row, row)
-		}
-	}
-	cf := fourier.NewCmplxFFT(h)
-	col := make([]complex128, h)
-	for x := 0; x < w; x++ {
-		for y := range col {
-			col[y] = c[y*w+x]
-		}
-		if inverse {
-			cf.Sequence(col, col)
-		} else {
-			cf.Coefficients(col, col)
-		}
-		for y := range col {
-			c[y*w+x] = col[y]
-		}
-	}
-}
-
 // amplitudeMap is the local amplitude of one lattice component on a
 // coarse grid over a padded image.
 type amplitudeMap struct {
@@ -130,7 +100,7 @@ func demodulate(s *spectrum, f [2]float64, sigma float64) *amplitudeMap {
 			c[((dy+mh)%mh)*mw+(dx+mw)%mw] = s.at(kx, ky) * complex(g, 0)
 		}
 	}
-	cfft2(c, mw, mh, true)
+	fft2.Transform(c, mw, mh, true)
 	m := &amplitudeMap{mw: mw, mh: mh, step: [2]float64{float64(w) / float64(mw), float64(h) / float64(mh)}, a: make([]float64, mw*mh)}
 	norm := 1 / float64(w*h)
 	for i, v := range c {
