@@ -67,16 +67,7 @@ func pdfSegmentRanges(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers [
 		"tolerance; duration runs from the start of the row's first segment to the end of its last.",
 		thousands(n), k), fontBody)
 	// Actions of each segment, found in one pass.
-	bounds := make([][2]int, n)
-	for i := range bounds {
-		bounds[i] = [2]int{len(p.Actions), 0}
-	}
-	for i, a := range p.Actions {
-		if a.Segment >= 0 && a.Segment < n {
-			b := &bounds[a.Segment]
-			b[0], b[1] = min(b[0], i), max(b[1], i+1)
-		}
-	}
+	bounds := segmentActionBounds(p)
 	f := font{size: 7.5}
 	for _, g := range segmentTables(p) {
 		if g.title != "" {
@@ -441,4 +432,21 @@ func ordinal(n int) string {
 		}
 	}
 	return strconv.Itoa(n) + suffix
+}
+
+// segmentActionBounds returns, per segment, the half-open range of the
+// plan's actions that belong to it, found in one pass ([len, 0) for a
+// segment without actions).
+func segmentActionBounds(p *planner.Plan) [][2]int {
+	bounds := make([][2]int, len(p.Segments))
+	for i := range bounds {
+		bounds[i] = [2]int{len(p.Actions), 0}
+	}
+	for i, a := range p.Actions {
+		if a.Segment >= 0 && a.Segment < len(bounds) {
+			b := &bounds[a.Segment]
+			b[0], b[1] = min(b[0], i), max(b[1], i+1)
+		}
+	}
+	return bounds
 }

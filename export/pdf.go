@@ -575,16 +575,7 @@ func pdfSegments(ctx context.Context, d *pdfDoc, p *planner.Plan, numbers []int)
 		"and the strokes written with it. P is the sampled probability that every stroke of the segment stays within its tolerance. "+
 		"Duration runs from the start of the segment to its end; \"ends at\" is on the plan clock.", fontBody)
 	// Actions of each segment, found in one pass.
-	bounds := make([][2]int, len(p.Segments))
-	for i := range bounds {
-		bounds[i] = [2]int{len(p.Actions), 0}
-	}
-	for i, a := range p.Actions {
-		if a.Segment >= 0 {
-			b := &bounds[a.Segment]
-			b[0], b[1] = min(b[0], i), max(b[1], i+1)
-		}
-	}
+	bounds := segmentActionBounds(p)
 	f := font{size: 7.5}
 	for _, g := range segmentTables(p) {
 		if g.title != "" {
