@@ -815,6 +815,11 @@ func (b *builder) reoptimiseSegment(sg *segmenter, jobs []job, si, s, e int, kin
 	if e < len(jobs) && jobs[e].joined {
 		return nil, nil
 	}
+	if travelOptimal(seg, entry) {
+		// No order is shorter: the engine would give this one back (or
+		// one as short), so the order stands (see reroute.go).
+		return nil, nil
+	}
 	c := &sg.c
 	k := kindIndex(kind)
 	var exit *r2.Point
