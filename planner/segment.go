@@ -2,6 +2,7 @@ package planner
 
 import (
 	"math"
+	"sync"
 
 	"github.com/golang/geo/r2"
 
@@ -150,6 +151,12 @@ type segmenter struct {
 
 	creepF           decay      // creep per unit fraction, nm
 	driftRaw, driftC driftField // drift at r0: uncompensated, compensated
+
+	// What solve needs that does not depend on the margin, made on its
+	// first call (chooseMargin solves the same segmenter at several).
+	solveOnce sync.Once
+	value     [2][]float64 // planning load at each job's end: raw, compensated field
+	cst       [2][]float64 // per kind, the load a segment starting at s starts from
 }
 
 const (
@@ -286,17 +293,45 @@ func (sg *segmenter) startTerms(s, k int) (creepUnit, drift float64) {
 // load returns the creep per unit fraction and the drift at r0 from the
 // registration of a segment (s, k) to the end of job j (j ≥ s).
 func (sg *segmenter) load(s, k, j int) (creepUnit, drift float64) {
+	return sg.segmentLoads(s, k).at(j)
+}
+
+// segmentLoads returns the loads of segment (s, k), whose start terms
+// are worked out once for all its jobs.
+func (sg *segmenter) segmentLoads(s, k int) segLoads {
 	t0 := sg.clockStart(s, k)
 	f := sg.field(s)
 	c0, d0 := sg.startTerms(s, k)
-	return math.Max(c0+sg.creepF.integral(sg.T[j])-sg.creepF.integral(t0), 0), math.Max(d0+f.at(sg.T[j])-f.at(t0), 0)
+	return segLoads{sg: sg, k: k, f: f, c0: c0, d0: d0, creep0: sg.creepF.integral(t0), drift0: f.at(t0)}
+}
+
+// segLoads reads the loads of one segment's jobs (see load).
+type segLoads struct {
+	sg             *segmenter
+	k              int
+	f              *driftField
+	c0, d0         float64
+	creep0, drift0 float64
+}
+
+// at returns the creep per unit fraction and the drift at r0 from the
+// segment's registration to the end of job j.
+func (l segLoads) at(j int) (creepUnit, drift float64) {
+	t := l.sg.T[j]
+	return math.Max(l.c0+l.sg.creepF.integral(t)-l.creep0, 0), math.Max(l.d0+l.f.at(t)-l.drift0, 0)
 }
 
 // planLoad returns the displacement (nm) at the planning values from the
 // registration of (s, k) to the end of j, error included.
 func (sg *segmenter) planLoad(s, k, j int) float64 {
-	cu, d := sg.load(s, k, j)
-	return sg.regError(k) + sg.model.creep*cu + sg.model.rateMul*d
+	return sg.segmentLoads(s, k).plan(j)
+}
+
+// plan returns the displacement (nm) at the planning values from the
+// segment's registration to the end of job j (see planLoad).
+func (l segLoads) plan(j int) float64 {
+	cu, d := l.at(j)
+	return l.sg.regError(l.k) + l.sg.model.creep*cu + l.sg.model.rateMul*d
 }
 
 // allowed reports whether a registration of kind k may stand before job
@@ -333,16 +368,13 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 	if n == 0 {
 		return nil, nil, 0, nil
 	}
-	md := sg.model
+	sg.solveOnce.Do(sg.prepareSolve)
 	// q over the two drift fields; the tree of the field a start uses.
-	value := func(f *driftField, t float64) float64 {
-		return md.creep*sg.creepF.integral(t) + md.rateMul*f.at(t)
-	}
 	var trees [2]*maxTree
-	for v, f := range []*driftField{&sg.driftRaw, &sg.driftC} {
-		q := make([]float64, n)
+	q := make([]float64, n)
+	for v := range trees {
 		for j, jb := range sg.jobs {
-			q[j] = value(f, sg.T[j]) - jb.tolNM/margin
+			q[j] = sg.value[v][j] - jb.tolNM/margin
 		}
 		trees[v] = newMaxTree(q)
 	}
@@ -370,15 +402,11 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 			if !sg.allowed(e, k) {
 				continue
 			}
-			f := sg.field(e)
 			tree := trees[0]
-			if f == &sg.driftC {
+			if sg.field(e) == &sg.driftC {
 				tree = trees[1]
 			}
-			t0 := sg.clockStart(e, k)
-			c0, d0 := sg.startTerms(e, k)
-			cst := value(f, t0) - sg.regError(k) - md.creep*c0 - md.rateMul*d0
-			emax := tree.firstAbove(e, cst) - 1
+			emax := tree.firstAbove(e, sg.cst[k][e]) - 1
 			if k == kCoarse {
 				emax = min(emax, nextLocal[e]-1)
 			}
@@ -438,6 +466,34 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 		ks[i], ks[j] = ks[j], ks[i]
 	}
 	return starts, ks, D[n-1] + sg.T[n-1] + sg.c.verify, dedupe(forced)
+}
+
+// prepareSolve makes solve's margin-independent terms: the planning
+// load at each job's end on either drift field, and for each start s and
+// kind k the load its segment starts from (less the registration error
+// and the start terms), against which the loads of its jobs are read.
+func (sg *segmenter) prepareSolve() {
+	n := sg.n
+	md := sg.model
+	value := func(f *driftField, t float64) float64 {
+		return md.creep*sg.creepF.integral(t) + md.rateMul*f.at(t)
+	}
+	for v, f := range []*driftField{&sg.driftRaw, &sg.driftC} {
+		sg.value[v] = make([]float64, n)
+		for j := range n {
+			sg.value[v][j] = value(f, sg.T[j])
+		}
+	}
+	for k := range sg.cst {
+		sg.cst[k] = make([]float64, n)
+		for s := range n {
+			if !sg.allowed(s, k) {
+				continue
+			}
+			c0, d0 := sg.startTerms(s, k)
+			sg.cst[k][s] = value(sg.field(s), sg.clockStart(s, k)) - sg.regError(k) - md.creep*c0 - md.rateMul*d0
+		}
+	}
 }
 
 func dedupe(xs []int) []int {
