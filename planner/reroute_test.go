@@ -83,3 +83,29 @@ func TestTravelOptimalOnARow(t *testing.T) {
 		t.Errorf("bound of nothing = %v, want 0", got)
 	}
 }
+
+// firstAbove against a scan, on every start and a spread of thresholds.
+func TestMaxTreeFirstAbove(t *testing.T) {
+	r := rand.New(rand.NewPCG(3, 4))
+	for _, n := range []int{1, 2, 3, 5, 8, 13, 64, 100} {
+		vals := make([]float64, n)
+		for i := range vals {
+			vals[i] = math.Round(r.NormFloat64() * 4)
+		}
+		tr := newMaxTree(vals)
+		for from := 0; from <= n+1; from++ {
+			for c := -12.0; c <= 12; c += 0.5 {
+				want := n
+				for j := max(from, 0); j < n; j++ {
+					if vals[j] > c {
+						want = j
+						break
+					}
+				}
+				if got := tr.firstAbove(from, c); got != want {
+					t.Fatalf("n %d: firstAbove(%d, %v) = %d, want %d (%v)", n, from, c, got, want, vals)
+				}
+			}
+		}
+	}
+}

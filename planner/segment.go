@@ -391,13 +391,17 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 	D := make([]float64, n)
 	from := make([]cand, n)
 	var h candHeap
-	var latest []cand // the candidates of the latest allowed start
+	// here: the candidates starting at e; latest: those of the latest
+	// allowed start (fixed buffers: one pair per job was most of the
+	// allocations of a 10^6-job solve).
+	var hereBuf, latestBuf [2]cand
+	var latest []cand
 	for e := 0; e < n; e++ {
 		prev := 0.0
 		if e > 0 {
 			prev = D[e-1]
 		}
-		var here []cand
+		here := hereBuf[:0]
 		for k := 0; k < 2; k++ {
 			if !sg.allowed(e, k) {
 				continue
@@ -440,7 +444,7 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 				h.push(best)
 				forced = append(forced, e)
 			}
-			latest = here
+			latest = latestBuf[:copy(latestBuf[:], here)]
 		}
 		for len(h) > 0 && h[0].emax < e {
 			h.pop()
@@ -631,25 +635,35 @@ func newMaxTree(vals []float64) *maxTree {
 }
 
 // firstAbove returns the least j >= from with vals[j] > c, or n.
+// It climbs from the leaf of from to the first subtree to its right
+// holding such a value and descends into it: O(log(j − from)), where
+// the answer is a segment's length away.
 func (t *maxTree) firstAbove(from int, c float64) int {
-	if r := t.descend(1, 0, t.size, from, c); r >= 0 {
-		return r
+	if from >= t.n {
+		return t.n
 	}
-	return t.n
-}
-
-func (t *maxTree) descend(node, lo, hi, from int, c float64) int {
-	if hi <= from || t.v[node] <= c {
-		return -1
+	i := from + t.size
+	if !(t.v[i] > c) {
+		for {
+			for i&1 == 1 { // a right child: up to the first left one
+				i >>= 1
+			}
+			if i == 0 {
+				return t.n // climbed past the root
+			}
+			i++ // its right sibling
+			if t.v[i] > c {
+				break
+			}
+		}
+		for i < t.size {
+			i *= 2
+			if !(t.v[i] > c) {
+				i++
+			}
+		}
 	}
-	if hi-lo == 1 {
-		return lo
-	}
-	mid := (lo + hi) / 2
-	if r := t.descend(2*node, lo, mid, from, c); r >= 0 {
-		return r
-	}
-	return t.descend(2*node+1, mid, hi, from, c)
+	return min(i-t.size, t.n)
 }
 
 // DriftBudget returns the time in seconds within which a stroke of
