@@ -237,6 +237,11 @@ func (b *builder) build() (*Plan, error) {
 	}
 	drift.Margin = margin
 	b.marginUsed = margin
+	for _, st := range steps {
+		if st.sg != nil {
+			st.sg.releaseSolve() // segmentations are done: free its memory
+		}
+	}
 	// Said once per region: a tolerance too tight for the registration
 	// error makes every stroke of a region fail alike.
 	var forced []*strokeNote

@@ -2,7 +2,6 @@ package planner
 
 import (
 	"math"
-	"sync"
 
 	"github.com/golang/geo/r2"
 
@@ -152,12 +151,24 @@ type segmenter struct {
 	creepF           decay      // creep per unit fraction, nm
 	driftRaw, driftC driftField // drift at r0: uncompensated, compensated
 
-	// What solve needs that does not depend on the margin, made on its
-	// first call (chooseMargin solves the same segmenter at several).
-	solveOnce sync.Once
+	// What solve needs that does not depend on the margin, and its
+	// working arrays: made on its first call (chooseMargin solves the
+	// same segmenter at several margins), dropped by releaseSolve.
+	cache *solveCache
+}
+
+// solveCache is solve's margin-independent terms and working memory.
+type solveCache struct {
 	value     [2][]float64 // planning load at each job's end: raw, compensated field
 	cst       [2][]float64 // per kind, the load a segment starting at s starts from
+	nextLocal []int        // the first job at or after s that needs a local registration
+	trees     [2]maxTree
+	D         []float64
+	from      []cand
 }
+
+// releaseSolve drops solve's cache (solve makes it again if called).
+func (sg *segmenter) releaseSolve() { sg.cache = nil }
 
 const (
 	kLocal  = 0
@@ -368,28 +379,21 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 	if n == 0 {
 		return nil, nil, 0, nil
 	}
-	sg.solveOnce.Do(sg.prepareSolve)
+	if sg.cache == nil {
+		sg.cache = sg.prepareSolve()
+	}
+	sc := sg.cache
 	// q over the two drift fields; the tree of the field a start uses.
-	var trees [2]*maxTree
-	q := make([]float64, n)
-	for v := range trees {
+	trees := [2]*maxTree{&sc.trees[0], &sc.trees[1]}
+	for v, t := range trees {
+		q := t.leaves()
 		for j, jb := range sg.jobs {
-			q[j] = sg.value[v][j] - jb.tolNM/margin
+			q[j] = sc.value[v][j] - jb.tolNM/margin
 		}
-		trees[v] = newMaxTree(q)
+		t.build()
 	}
-	// nextLocal[s]: the first job at or after s that needs a local
-	// registration (n when none).
-	nextLocal := make([]int, n+1)
-	nextLocal[n] = n
-	for j := n - 1; j >= 0; j-- {
-		nextLocal[j] = nextLocal[j+1]
-		if sg.jobs[j].localOnly {
-			nextLocal[j] = j
-		}
-	}
-	D := make([]float64, n)
-	from := make([]cand, n)
+	nextLocal := sc.nextLocal
+	D, from := sc.D, sc.from
 	var h candHeap
 	// here: the candidates starting at e; latest: those of the latest
 	// allowed start (fixed buffers: one pair per job was most of the
@@ -410,7 +414,7 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 			if sg.field(e) == &sg.driftC {
 				tree = trees[1]
 			}
-			emax := tree.firstAbove(e, sg.cst[k][e]) - 1
+			emax := tree.firstAbove(e, sc.cst[k][e]) - 1
 			if k == kCoarse {
 				emax = min(emax, nextLocal[e]-1)
 			}
@@ -476,28 +480,41 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 // load at each job's end on either drift field, and for each start s and
 // kind k the load its segment starts from (less the registration error
 // and the start terms), against which the loads of its jobs are read.
-func (sg *segmenter) prepareSolve() {
+func (sg *segmenter) prepareSolve() *solveCache {
 	n := sg.n
 	md := sg.model
+	sc := &solveCache{D: make([]float64, n), from: make([]cand, n)}
 	value := func(f *driftField, t float64) float64 {
 		return md.creep*sg.creepF.integral(t) + md.rateMul*f.at(t)
 	}
 	for v, f := range []*driftField{&sg.driftRaw, &sg.driftC} {
-		sg.value[v] = make([]float64, n)
+		sc.value[v] = make([]float64, n)
 		for j := range n {
-			sg.value[v][j] = value(f, sg.T[j])
+			sc.value[v][j] = value(f, sg.T[j])
 		}
+		sc.trees[v] = makeMaxTree(n)
 	}
-	for k := range sg.cst {
-		sg.cst[k] = make([]float64, n)
+	for k := range sc.cst {
+		sc.cst[k] = make([]float64, n)
 		for s := range n {
 			if !sg.allowed(s, k) {
 				continue
 			}
 			c0, d0 := sg.startTerms(s, k)
-			sg.cst[k][s] = value(sg.field(s), sg.clockStart(s, k)) - sg.regError(k) - md.creep*c0 - md.rateMul*d0
+			sc.cst[k][s] = value(sg.field(s), sg.clockStart(s, k)) - sg.regError(k) - md.creep*c0 - md.rateMul*d0
 		}
 	}
+	// nextLocal[s]: the first job at or after s that needs a local
+	// registration (n when none).
+	sc.nextLocal = make([]int, n+1)
+	sc.nextLocal[n] = n
+	for j := n - 1; j >= 0; j-- {
+		sc.nextLocal[j] = sc.nextLocal[j+1]
+		if sg.jobs[j].localOnly {
+			sc.nextLocal[j] = j
+		}
+	}
+	return sc
 }
 
 func dedupe(xs []int) []int {
@@ -619,19 +636,34 @@ type maxTree struct {
 }
 
 func newMaxTree(vals []float64) *maxTree {
+	t := makeMaxTree(len(vals))
+	copy(t.leaves(), vals)
+	t.build()
+	return &t
+}
+
+// makeMaxTree returns a tree of n values, all −Inf until set through
+// leaves and build.
+func makeMaxTree(n int) maxTree {
 	size := 1
-	for size < len(vals) {
+	for size < n {
 		size *= 2
 	}
-	t := &maxTree{n: len(vals), size: size, v: make([]float64, 2*size)}
+	t := maxTree{n: n, size: size, v: make([]float64, 2*size)}
 	for i := range t.v {
 		t.v[i] = math.Inf(-1)
 	}
-	copy(t.v[size:], vals)
-	for i := size - 1; i >= 1; i-- {
+	return t
+}
+
+// leaves returns the n values, to be set before build.
+func (t *maxTree) leaves() []float64 { return t.v[t.size : t.size+t.n] }
+
+// build makes the inner nodes from the leaves.
+func (t *maxTree) build() {
+	for i := t.size - 1; i >= 1; i-- {
 		t.v[i] = math.Max(t.v[2*i], t.v[2*i+1])
 	}
-	return t
 }
 
 // firstAbove returns the least j >= from with vals[j] > c, or n.
