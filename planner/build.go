@@ -483,13 +483,14 @@ func (b *builder) makeStrokes() []Window {
 	surf := b.lay.Surface
 	for _, r := range b.regions {
 		for _, w := range r.windows {
-			ss := b.gen.windowStrokes(r.name, w, len(windows))
+			n0 := len(b.strokes)
+			b.strokes = b.gen.appendWindowStrokes(b.strokes, r.name, w, len(windows))
+			ss := b.strokes[n0:]
 			sites := 0
 			for i := range ss {
 				ss[i].ToleranceNM = r.tolAP
 				sites += ss[i].Sites
 			}
-			b.strokes = append(b.strokes, ss...)
 			if sites < w.Template.Sites() {
 				b.warnings = append(b.warnings, fmt.Sprintf("window %v of region %q reaches beyond its terrace: %d of its %d sites exist", w, r.name, sites, w.Template.Sites()))
 			}
