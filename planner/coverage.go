@@ -140,6 +140,7 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 	ck.region = make([]int, len(strokes))
 	lines := map[design.Mode]LineModel{design.ModeAP: prof.Line(design.ModeAP), design.ModeFE: prof.Line(design.ModeFE)}
 	spurious := prof.AP.SpuriousPer100NM / 100
+	starts := make([]int, len(surf.Terraces)) // each terrace's first piece of the stroke
 	for i := range strokes {
 		st := &strokes[i]
 		ri, ok := byName[st.Region]
@@ -177,6 +178,12 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 			continue
 		}
 		reach := l.SigmaNM * math.Sqrt(2*math.Log(amp/exposureNeglect))
+		grouped := combs && len(st.Path) > combMin
+		if grouped {
+			for t := range surf.Terraces {
+				starts[t] = len(ck.pieces[t])
+			}
+		}
 		for k := 0; k+1 < len(st.Path); k++ {
 			a, b := st.Path[k], st.Path[k+1]
 			if a == b {
@@ -187,6 +194,12 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 					continue
 				}
 				ck.pieces[t] = append(ck.pieces[t], makePiece(surf, t, int32(i), a, b, amp, l.SigmaNM, reach))
+			}
+		}
+		if grouped {
+			for t := range surf.Terraces {
+				ps := groupCombs(ck.pieces[t][starts[t]:])
+				ck.pieces[t] = append(ck.pieces[t][:starts[t]], ps...)
 			}
 		}
 	}
@@ -326,6 +339,11 @@ func (ck *coverageCheck) factors(ps []*piece, r siteRect) (fu0, fu1, fy0, fy1 []
 			continue
 		}
 		fu0[i], fu1[i] = p.uFactor(r.u0), p.uFactor(r.u1)
+		if p.comb != nil {
+			// Bounded from its table of lines; these serve a range of one line.
+			fy0[i], fy1[i] = p.yFactorLine(r.l0), p.yFactorLine(r.l1-1)
+			continue
+		}
 		fy0[i], fy1[i] = p.yFactor(r.y0), p.yFactor(r.y1)
 	}
 	return fu0, fu1, fy0, fy1
@@ -406,19 +424,26 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 	ck.grow(len(active))
 	low := ck.arena[ltop:]
 	for i, p := range active {
-		var plo, phi float64
-		if p.kind != pieceSlanted {
+		var plo, phi, top float64
+		switch {
+		case p.comb != nil:
+			ul, uh := unimodal(fu0[i], fu1[i], r.u0, r.u1, p.uPeak(), p.uTop)
+			yl, yh, yt := p.comb.bounds(r.l0, r.l1)
+			plo, phi, top = p.amp*ul*yl, p.amp*uh*yh, p.amp*uh*yt
+		case p.kind != pieceSlanted:
 			ul, uh := unimodal(fu0[i], fu1[i], r.u0, r.u1, p.uPeak(), p.uTop)
 			yl, yh := unimodal(fy0[i], fy1[i], r.y0, r.y1, p.yPeak(), p.yTop)
 			plo, phi = p.amp*ul*yl, p.amp*uh*yh
-		} else {
+			top = phi
+		default:
 			plo, phi = p.slantedBounds(r)
+			top = phi
 		}
 		low[i] = plo
 		lo += plo
 		hi += phi
-		if phi > best {
-			best, who = phi, p.stroke
+		if top > best {
+			best, who = top, p.stroke
 		}
 	}
 	if !ck.dwellIn(r) {
@@ -540,9 +565,14 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fy []float6
 					}
 				}
 			}
+		case p.comb != nil:
+			if amp := p.amp * fy[i]; amp > exposureNeglect {
+				_, top := p.comb.at(l)
+				p.alongRange(d0, d1, amp, p.amp*top, x, best, who)
+			}
 		default:
 			if amp := p.amp * fy[i]; amp > exposureNeglect {
-				p.alongRange(d0, d1, amp, x, best, who)
+				p.alongRange(d0, d1, amp, amp, x, best, who)
 			}
 		}
 	}
@@ -732,6 +762,9 @@ func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 [
 		}
 		ul, uh := min(fu0[i], fu1[i]), max(fu0[i], fu1[i])
 		yl, yh := min(fy0[i], fy1[i]), max(fy0[i], fy1[i])
+		if p.comb != nil {
+			yl, yh, _ = p.comb.bounds(r.l0, r.l1)
+		}
 		gapU += p.amp * (uh - ul) * yh
 		gapY += p.amp * uh * (yh - yl)
 	}
@@ -760,7 +793,7 @@ func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 [
 	a.l1, a.y1 = mid, ys
 	b.l0, b.y0 = mid, ys
 	for i, p := range active {
-		if p.kind != pieceSlanted {
+		if p.kind != pieceSlanted && p.comb == nil {
 			fm[i] = p.yFactor(ys)
 		}
 	}
@@ -945,19 +978,21 @@ func (ck *coverageCheck) leaf(r siteRect, active []*piece) {
 // exposureAt returns a site's exposure summed exactly over the active
 // pieces, and the stroke that gives it the most.
 func (ck *coverageCheck) exposureAt(site lattice.Site, active []*piece) (x float64, who int32) {
-	u, y := lattice.DimerAlong(site.Dimer), lineY(2*site.Row+site.Side)
+	l := 2*site.Row + site.Side
+	u, y := lattice.DimerAlong(site.Dimer), lineY(l)
 	best := 0.0
 	who = -1
 	for _, p := range active {
-		var e float64
+		var e, top float64
 		if p.kind == pieceDot && math.Hypot(u-p.pu, y-p.py) <= dwellSnapNM {
 			e = ck.own // the dwell is parked on this site
+			top = e
 		} else {
-			e = p.at(u, y)
+			e, top = p.atLine(u, l)
 		}
 		x += e
-		if e > best {
-			best, who = e, p.stroke
+		if top > best {
+			best, who = top, p.stroke
 		}
 	}
 	return x, who
