@@ -141,6 +141,11 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 	lines := map[design.Mode]LineModel{design.ModeAP: prof.Line(design.ModeAP), design.ModeFE: prof.Line(design.ModeFE)}
 	spurious := prof.AP.SpuriousPer100NM / 100
 	starts := make([]int, len(surf.Terraces)) // each terrace's first piece of the stroke
+	// The pieces, counted first so that each terrace's list is allocated
+	// once (a 10⁶-window plan has millions of them).
+	for t, n := range ck.countPieces(strokes, lines) {
+		ck.pieces[t] = make([]piece, 0, n)
+	}
 	for i := range strokes {
 		st := &strokes[i]
 		ri, ok := byName[st.Region]
@@ -204,6 +209,42 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 		}
 	}
 	return ck
+}
+
+// countPieces returns the number of pieces newCoverageCheck makes on
+// each terrace (before combs are grouped).
+func (ck *coverageCheck) countPieces(strokes []Stroke, lines map[design.Mode]LineModel) []int {
+	n := make([]int, len(ck.surf.Terraces))
+	for i := range strokes {
+		st := &strokes[i]
+		if st.Kind == StrokeDwell {
+			if len(st.Path) == 0 {
+				continue
+			}
+			for t := range n {
+				if ck.grid == nil || ck.grid.reaches(t, st.Path[0], st.Path[0]) {
+					n[t]++
+				}
+			}
+			continue
+		}
+		l := lines[st.Mode]
+		if amp := l.PassPeak * float64(max(st.Passes, 1)); amp <= exposureNeglect || !(l.SigmaNM > 0) {
+			continue
+		}
+		for k := 0; k+1 < len(st.Path); k++ {
+			a, b := st.Path[k], st.Path[k+1]
+			if a == b {
+				continue
+			}
+			for t := range n {
+				if ck.grid == nil || ck.grid.reaches(t, a, b) {
+					n[t]++
+				}
+			}
+		}
+	}
+	return n
 }
 
 // lineY is the across coordinate of site line l: the sites of side l%2
@@ -499,6 +540,10 @@ const (
 	scanSites  = 64
 )
 
+// flatLines is the most site lines split decides one by one where every
+// along factor is flat (rather than halving).
+const flatLines = 32
+
 // scan sums the sites of r one by one, a site line at a time: each
 // piece's across factor is the same along the line (fy for r's first
 // line, computed afresh for the others), so only its along factor is
@@ -756,8 +801,10 @@ func (ck *coverageCheck) countStray(site lattice.Site, x, p float64, who int32) 
 // serves both.
 func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 []float64) {
 	gapU, gapY := 0.0, 0.0
+	slanted := false
 	for i, p := range active {
 		if p.kind == pieceSlanted {
+			slanted = true
 			continue
 		}
 		ul, uh := min(fu0[i], fu1[i]), max(fu0[i], fu1[i])
@@ -767,6 +814,23 @@ func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 [
 		}
 		gapU += p.amp * (uh - ul) * yh
 		gapY += p.amp * uh * (yh - yl)
+	}
+	if gapU == 0 && gapY > 0 && r.l1-r.l0 <= flatLines && !slanted {
+		// Every along factor is the same over r's dimers: the exposure
+		// changes from line to line only, so r's lines are decided one
+		// by one, as halving would end up doing.
+		for l := r.l0; l < r.l1; l++ {
+			a := r
+			a.l0, a.l1 = l, l+1
+			if l > r.l0 {
+				a.y0 = (lineY(l-1) + lineY(l)) / 2
+			}
+			if l+1 < r.l1 {
+				a.y1 = (lineY(l) + lineY(l+1)) / 2
+			}
+			ck.decide(a, active, fu0, fu1, fy0, fy1)
+		}
+		return
 	}
 	a, b := r, r
 	n := len(active)
