@@ -165,9 +165,10 @@ func (b *builder) loads(steps []*stepWork, cps []couplingWork) ([]segLoad, []pai
 			if k == kCoarse {
 				g.sigma = r.CoarseErrorNM
 			}
-			var ls []strokeLoad
+			ls := make([]strokeLoad, 0, e-s)
+			at := sg.segmentLoads(s, k)
 			for j := s; j < e; j++ {
-				cu, d := sg.load(s, k, j)
+				cu, d := at.at(j)
 				ls = append(ls, strokeLoad{tol: sg.jobs[j].tolNM, creep: cu, drift: d})
 			}
 			g.loads = paretoLoads(ls)
@@ -815,6 +816,11 @@ func (b *builder) reoptimiseSegment(sg *segmenter, jobs []job, si, s, e int, kin
 	if e < len(jobs) && jobs[e].joined {
 		return nil, nil
 	}
+	if travelOptimal(seg, entry) {
+		// No order is shorter: the engine would give this one back (or
+		// one as short), so the order stands (see reroute.go).
+		return nil, nil
+	}
 	c := &sg.c
 	k := kindIndex(kind)
 	var exit *r2.Point
@@ -852,9 +858,9 @@ func (b *builder) reoptimiseSegment(sg *segmenter, jobs []job, si, s, e int, kin
 		}
 		cc := *c
 		cc.fiducials = f
-		tmp := newSegmenter(js, cc, m, fi)
+		at := newSegmenter(js, cc, m, fi).segmentLoads(0, k)
 		for j := range js {
-			if tmp.planLoad(0, k, j) > js[j].tolNM*(1+1e-9) {
+			if at.plan(j) > js[j].tolNM*(1+1e-9) {
 				return t, false
 			}
 		}
