@@ -136,11 +136,13 @@ func (b *builder) planSteps(steps []*stepWork, cps []couplingWork) error {
 		c := b.costs
 		st.sg = newSegmenter(st.jobs, c, m, first)
 		starts, kinds, _, _ := st.sg.solve(1)
+		st.sg.releaseSolve() // solved once: its cache is garbage
 		jobs, err := b.reoptimise(st.sg, starts, kinds)
 		if err != nil {
 			return err
 		}
 		st.jobs = jobs
+		st.sg = nil // garbage before its successor is made
 		st.sg = newSegmenter(jobs, c, m, first)
 	}
 	return nil
