@@ -383,14 +383,37 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 		sg.cache = sg.prepareSolve()
 	}
 	sc := sg.cache
-	// q over the two drift fields; the tree of the field a start uses.
-	trees := [2]*maxTree{&sc.trees[0], &sc.trees[1]}
-	for v, t := range trees {
-		q := t.leaves()
-		for j, jb := range sg.jobs {
-			q[j] = sc.value[v][j] - jb.tolNM/margin
+	// q over a drift field: every start after the first reads the same
+	// field (see field), so only its tree is built; the first start
+	// reads its own, where it differs, by a scan (firstAbove0).
+	fieldOf := func(e int) int {
+		if sg.field(e) == &sg.driftC {
+			return 1
 		}
-		t.build()
+		return 0
+	}
+	q := func(v, j int) float64 { return sc.value[v][j] - sg.jobs[j].tolNM/margin }
+	vRest := fieldOf(min(1, n-1))
+	tree := &sc.trees[vRest]
+	if tree.v == nil {
+		*tree = makeMaxTree(n)
+	}
+	leaves := tree.leaves()
+	for j := range leaves {
+		leaves[j] = q(vRest, j)
+	}
+	tree.build()
+	firstAbove0 := func(c float64) int {
+		v := fieldOf(0)
+		if v == vRest {
+			return tree.firstAbove(0, c)
+		}
+		for j := range n {
+			if q(v, j) > c {
+				return j
+			}
+		}
+		return n
 	}
 	nextLocal := sc.nextLocal
 	D, from := sc.D, sc.from
@@ -410,11 +433,12 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 			if !sg.allowed(e, k) {
 				continue
 			}
-			tree := trees[0]
-			if sg.field(e) == &sg.driftC {
-				tree = trees[1]
+			var emax int
+			if e == 0 {
+				emax = firstAbove0(sc.cst[k][0]) - 1
+			} else {
+				emax = tree.firstAbove(e, sc.cst[k][e]) - 1
 			}
-			emax := tree.firstAbove(e, sc.cst[k][e]) - 1
 			if k == kCoarse {
 				emax = min(emax, nextLocal[e]-1)
 			}
@@ -492,7 +516,6 @@ func (sg *segmenter) prepareSolve() *solveCache {
 		for j := range n {
 			sc.value[v][j] = value(f, sg.T[j])
 		}
-		sc.trees[v] = makeMaxTree(n)
 	}
 	for k := range sc.cst {
 		sc.cst[k] = make([]float64, n)

@@ -441,7 +441,11 @@ func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline
 	repairOn := ses.Repair.Enabled
 	perSite := prof.DwellExpectedS() + ImageProfile{PixelNM: ses.Verification.PixelNM, LineS: ses.Verification.LineS}.TimeS(ses.Repair.ReimageNM, ses.Repair.ReimageNM)
 	seg := 0
-	windowEnd := map[int]float64{} // window index -> end of its write
+	// windowEnd[i]: the end of window i's write, NaN until written.
+	windowEnd := make([]float64, len(windows))
+	for i := range windowEnd {
+		windowEnd[i] = math.NaN()
+	}
 	for k, stw := range steps {
 		if len(stw.jobs) == 0 {
 			continue
@@ -488,8 +492,8 @@ func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline
 		}
 		lit.Note = b.stepNote(stw)
 		end(lit)
-		for _, a := range tl.actions {
-			if (a.Kind == ActWrite || a.Kind == ActDwell) && b.strokes[a.Stroke].Window >= 0 {
+		for i := range tl.actions {
+			if a := &tl.actions[i]; (a.Kind == ActWrite || a.Kind == ActDwell) && b.strokes[a.Stroke].Window >= 0 {
 				windowEnd[b.strokes[a.Stroke].Window] = a.StartS + a.DurationS
 			}
 		}
@@ -503,7 +507,7 @@ func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline
 		end(dose)
 		for wi, w := range windows {
 			if w.Species == stw.species {
-				if e, ok := windowEnd[wi]; ok {
+				if e := windowEnd[wi]; !math.IsNaN(e) {
 					windows[wi].OpenS = dose.StartS - e
 				}
 			}
