@@ -296,8 +296,7 @@ func (ck *coverageCheck) run() {
 		}
 		root := siteRect{t: t, l0: l0, l1: l1, d0: d0, d1: d1,
 			u0: lattice.DimerAlong(d0), u1: lattice.DimerAlong(d1 - 1), y0: lineY(l0), y1: lineY(l1 - 1)}
-		fu0, fu1, fy0, fy1 := ck.factors(all, root)
-		ck.decide(root, all, fu0, fu1, fy0, fy1)
+		ck.decide(root, all, nil, nil, nil, nil)
 	}
 	ck.finish()
 }
@@ -410,7 +409,26 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 			keep++
 		}
 	}
-	if keep < len(all) {
+	if gu0 == nil {
+		// Halved by geometry (see manyPieces): the factors at r's edges
+		// are computed afresh.
+		if keep < len(all) {
+			for _, p := range all {
+				if p.uLo <= r.u1 && p.uHi >= r.u0 && p.yLo <= r.y1 && p.yHi >= r.y0 {
+					ck.ptrs = append(ck.ptrs, p)
+				}
+			}
+			active = ck.ptrs[ptop:]
+		}
+		if len(active) > manyPieces && r.size() > scanSites {
+			ck.halve(r, active)
+			return
+		}
+		fu0, fu1, fy0, fy1 = ck.factors(active, r)
+	} else if len(active) > manyPieces && r.size() > scanSites {
+		ck.halve(r, active)
+		return
+	} else if keep < len(all) {
 		ck.grow(4 * keep)
 		b := ck.arena[atop:]
 		fu0, fu1, fy0, fy1 = b[:keep], b[keep:2*keep], b[2*keep:3*keep], b[3*keep:4*keep]
@@ -863,6 +881,32 @@ func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 [
 	}
 	ck.decide(a, active, fu0, fu1, fy0, fm)
 	ck.decide(b, active, fu0, fu1, fm, fy1)
+}
+
+// manyPieces is the most pieces whose bounds decide weighs: a range
+// reached by more (a field of 10⁶ windows) is halved by its geometry
+// alone, without factors, until its parts are reached by fewer; their
+// bounds could not take it at once anyway, and weighing them at every
+// level cost O(pieces · depth) factors.
+const manyPieces = 4096
+
+// halve splits r in two along its longer side, for decide to weigh each
+// half afresh (see manyPieces).
+func (ck *coverageCheck) halve(r siteRect, active []*piece) {
+	a, b := r, r
+	if (r.u1-r.u0 >= r.y1-r.y0 && r.d1-r.d0 > 1) || r.l1-r.l0 == 1 {
+		mid := (r.d0 + r.d1) / 2
+		us := lattice.DimerEdge(mid)
+		a.d1, a.u1 = mid, us
+		b.d0, b.u0 = mid, us
+	} else {
+		mid := (r.l0 + r.l1) / 2
+		ys := (lineY(mid-1) + lineY(mid)) / 2
+		a.l1, a.y1 = mid, ys
+		b.l0, b.y0 = mid, ys
+	}
+	ck.decide(a, active, nil, nil, nil, nil)
+	ck.decide(b, active, nil, nil, nil, nil)
 }
 
 // grow lengthens the arena by n values (not cleared: callers write

@@ -117,9 +117,16 @@ func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64, p
 		}
 	}
 	count := make([]int32, int(blocks)*indexCoarse*indexCoarse+1)
+	nseg, ndot := 0, 0
 	each(func(a, b r2.Point, reach float64, item int32) {
+		if item >= 0 {
+			nseg++
+		} else {
+			ndot++
+		}
 		ix.insert(a, b, reach, func(k int32) { count[k+1]++ })
 	})
+	ix.segs, ix.dots = make([]expSeg, 0, nseg), make([]expDot, 0, ndot)
 	for k := 1; k < len(count); k++ {
 		count[k] += count[k-1]
 	}
