@@ -136,11 +136,13 @@ func (b *builder) planSteps(steps []*stepWork, cps []couplingWork) error {
 		c := b.costs
 		st.sg = newSegmenter(st.jobs, c, m, first)
 		starts, kinds, _, _ := st.sg.solve(1)
+		st.sg.releaseSolve() // solved once: its cache is garbage
 		jobs, err := b.reoptimise(st.sg, starts, kinds)
 		if err != nil {
 			return err
 		}
 		st.jobs = jobs
+		st.sg = nil // garbage before its successor is made
 		st.sg = newSegmenter(jobs, c, m, first)
 	}
 	return nil
@@ -300,6 +302,16 @@ func (b *builder) chooseMargin(ctx context.Context, steps []*stepWork, cps []cou
 	lastMargin := math.NaN()
 	var lastSegs []segLoad
 	var lastPairs []pairLoad
+	// The best margin's segmentation and loads, kept so that a search
+	// that ends past it need not make them again.
+	type segmentation struct {
+		starts []int
+		kinds  []RegistrationKind
+		forced []int
+	}
+	var bestSegmentation []segmentation
+	var bestSegs []segLoad
+	var bestPairs []pairLoad
 	for try := 0; try < maxMargins; try++ {
 		segmentAll(steps, margin)
 		segs, pairs, index := b.loads(steps, cps)
@@ -326,25 +338,30 @@ func (b *builder) chooseMargin(ctx context.Context, steps []*stepWork, cps []cou
 			break // no longer helping: the registration errors bind
 		}
 		best, bestMargin, bestIndex, bestAdj = res, margin, index, adj
+		bestSegs, bestPairs = segs, pairs
+		bestSegmentation = bestSegmentation[:0]
+		for _, st := range steps {
+			bestSegmentation = append(bestSegmentation, segmentation{st.starts, st.kinds, st.forced})
+		}
 		if adj >= level {
 			break
 		}
 		margin *= 1.25
 	}
 	if bestMargin != lastMargin {
-		segmentAll(steps, bestMargin)
-		lastSegs, lastPairs = nil, nil
+		// What segmentAll(steps, bestMargin) and loads would make again.
+		for k, st := range steps {
+			sn := bestSegmentation[k]
+			st.starts, st.kinds, st.forced = sn.starts, sn.kinds, sn.forced
+		}
+		lastSegs, lastPairs = bestSegs, bestPairs
 	}
 	if len(search.rate) < len(draws.rate) {
-		segs, pairs, index := lastSegs, lastPairs, bestIndex
-		if segs == nil {
-			segs, pairs, index = b.loads(steps, cps)
-		}
-		res, err := pInTolerance(ctx, segs, pairs, draws, nil)
+		res, err := pInTolerance(ctx, lastSegs, lastPairs, draws, nil)
 		if err != nil {
 			return 0, tolResult{}, nil, err
 		}
-		best, bestIndex = res, index
+		best = res
 	}
 	return bestMargin, best, bestIndex, nil
 }
