@@ -350,8 +350,14 @@ func (ck *coverageCheck) accOf(who int32) *regionAcc {
 // of up to n sites is pinned down well enough to be summed at its middle:
 // to coverageRel of itself, or to coverageAbs a site.
 func accurate(lo, hi float64, n int) bool {
-	return hi-lo <= max(coverageRel*lo, coverageAbs)
+	return hi-lo <= max(coverageTolerance.rel*lo, coverageTolerance.abs)
 }
+
+// coverageTolerance is the accuracy accurate asks for: coverageRel and
+// coverageAbs; a test sets both to 0 to have every range whose bounds
+// differ summed site by site (missAccurate's shortcut holds for any
+// tolerance up to the constants').
+var coverageTolerance = struct{ rel, abs float64 }{coverageRel, coverageAbs}
 
 // missAccurate is accurate(exp(−hi), exp(−lo), n) for the probability
 // of a miss, without the exponentials where the exposures' gap alone

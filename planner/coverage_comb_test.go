@@ -155,3 +155,47 @@ func BenchmarkCoverageDemo(b *testing.B) {
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/layNS, "x-layout")
 	b.ReportMetric(float64(cpu.Nanoseconds())/float64(b.N)/1e6, "cpu-ms/op")
 }
+
+// TestCoverageDemoWithinStatedAccuracy: the demo's expectation as the
+// check sums it (ranges taken at once where their bounds allow, see
+// coverageRel and coverageAbs) against the exact sum (tolerance 0: every
+// range whose bounds differ summed site by site), per region: a range
+// taken at its middle errs by at most half its bounds' spread, so the
+// expected missed and stray sites may differ by coverageRel/2 of
+// themselves plus coverageAbs/2 a site, and the log of the probability
+// of no error by twice that.
+func TestCoverageDemoWithinStatedAccuracy(t *testing.T) {
+	if testing.Short() {
+		t.Skip("plans the demo and sums it site by site")
+	}
+	for _, v := range []string{"gap-9", "gap-12-source"} {
+		surf, cr, ss, prof := demoCoverageInput(t, v)
+		fast, _ := CheckCoverage(surf, cr, ss, prof)
+		old := coverageTolerance
+		coverageTolerance.rel, coverageTolerance.abs = 0, 0
+		exact, _ := CheckCoverage(surf, cr, ss, prof)
+		coverageTolerance = old
+		for i, f := range fast.Regions {
+			e := exact.Regions[i]
+			n := float64(max(e.Sites, 10000))
+			bound := func(x float64) float64 { return coverageRel/2*x + coverageAbs/2*n + 1e-9*x }
+			if d := math.Abs(f.ExpectedMissed - e.ExpectedMissed); d > bound(e.ExpectedMissed) {
+				t.Errorf("%s %s: expected missed %.10g, exact %.10g", v, f.Region, f.ExpectedMissed, e.ExpectedMissed)
+			}
+			if d := math.Abs(f.ExpectedStray - e.ExpectedStray); d > bound(e.ExpectedStray) {
+				t.Errorf("%s %s: expected stray %.10g, exact %.10g", v, f.Region, f.ExpectedStray, e.ExpectedStray)
+			}
+			lnF, lnE := f.Log10Probability*math.Ln10, e.Log10Probability*math.Ln10
+			if d := math.Abs(lnF - lnE); d > 2*bound(e.ExpectedMissed+e.ExpectedStray) {
+				t.Errorf("%s %s: ln P %.10g, exact %.10g", v, f.Region, lnF, lnE)
+			}
+		}
+		if fast.OverLimit != exact.OverLimit {
+			t.Errorf("%s: %d sites over the limit, exact %d", v, fast.OverLimit, exact.OverLimit)
+		}
+		// The figures the check gives are close to exact in practice:
+		// log them for the notes.
+		t.Logf("%s: expected missed %.6f (exact %.6f), stray %.6f (exact %.6f)", v,
+			fast.ExpectedMissed, exact.ExpectedMissed, fast.ExpectedStray, exact.ExpectedStray)
+	}
+}
