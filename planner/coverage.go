@@ -140,6 +140,12 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 	ck.region = make([]int, len(strokes))
 	lines := map[design.Mode]LineModel{design.ModeAP: prof.Line(design.ModeAP), design.ModeFE: prof.Line(design.ModeFE)}
 	spurious := prof.AP.SpuriousPer100NM / 100
+	starts := make([]int, len(surf.Terraces)) // each terrace's first piece of the stroke
+	// The pieces, counted first so that each terrace's list is allocated
+	// once (a 10⁶-window plan has millions of them).
+	for t, n := range ck.countPieces(strokes, lines) {
+		ck.pieces[t] = make([]piece, 0, n)
+	}
 	for i := range strokes {
 		st := &strokes[i]
 		ri, ok := byName[st.Region]
@@ -177,6 +183,12 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 			continue
 		}
 		reach := l.SigmaNM * math.Sqrt(2*math.Log(amp/exposureNeglect))
+		grouped := combs && len(st.Path) > combMin
+		if grouped {
+			for t := range surf.Terraces {
+				starts[t] = len(ck.pieces[t])
+			}
+		}
 		for k := 0; k+1 < len(st.Path); k++ {
 			a, b := st.Path[k], st.Path[k+1]
 			if a == b {
@@ -189,8 +201,50 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 				ck.pieces[t] = append(ck.pieces[t], makePiece(surf, t, int32(i), a, b, amp, l.SigmaNM, reach))
 			}
 		}
+		if grouped {
+			for t := range surf.Terraces {
+				ps := groupCombs(ck.pieces[t][starts[t]:])
+				ck.pieces[t] = append(ck.pieces[t][:starts[t]], ps...)
+			}
+		}
 	}
 	return ck
+}
+
+// countPieces returns the number of pieces newCoverageCheck makes on
+// each terrace (before combs are grouped).
+func (ck *coverageCheck) countPieces(strokes []Stroke, lines map[design.Mode]LineModel) []int {
+	n := make([]int, len(ck.surf.Terraces))
+	for i := range strokes {
+		st := &strokes[i]
+		if st.Kind == StrokeDwell {
+			if len(st.Path) == 0 {
+				continue
+			}
+			for t := range n {
+				if ck.grid == nil || ck.grid.reaches(t, st.Path[0], st.Path[0]) {
+					n[t]++
+				}
+			}
+			continue
+		}
+		l := lines[st.Mode]
+		if amp := l.PassPeak * float64(max(st.Passes, 1)); amp <= exposureNeglect || !(l.SigmaNM > 0) {
+			continue
+		}
+		for k := 0; k+1 < len(st.Path); k++ {
+			a, b := st.Path[k], st.Path[k+1]
+			if a == b {
+				continue
+			}
+			for t := range n {
+				if ck.grid == nil || ck.grid.reaches(t, a, b) {
+					n[t]++
+				}
+			}
+		}
+	}
+	return n
 }
 
 // lineY is the across coordinate of site line l: the sites of side l%2
@@ -242,8 +296,7 @@ func (ck *coverageCheck) run() {
 		}
 		root := siteRect{t: t, l0: l0, l1: l1, d0: d0, d1: d1,
 			u0: lattice.DimerAlong(d0), u1: lattice.DimerAlong(d1 - 1), y0: lineY(l0), y1: lineY(l1 - 1)}
-		fu0, fu1, fy0, fy1 := ck.factors(all, root)
-		ck.decide(root, all, fu0, fu1, fy0, fy1)
+		ck.decide(root, all, nil, nil, nil, nil)
 	}
 	ck.finish()
 }
@@ -297,8 +350,14 @@ func (ck *coverageCheck) accOf(who int32) *regionAcc {
 // of up to n sites is pinned down well enough to be summed at its middle:
 // to coverageRel of itself, or to coverageAbs a site.
 func accurate(lo, hi float64, n int) bool {
-	return hi-lo <= max(coverageRel*lo, coverageAbs)
+	return hi-lo <= max(coverageTolerance.rel*lo, coverageTolerance.abs)
 }
+
+// coverageTolerance is the accuracy accurate asks for: coverageRel and
+// coverageAbs; a test sets both to 0 to have every range whose bounds
+// differ summed site by site (missAccurate's shortcut holds for any
+// tolerance up to the constants').
+var coverageTolerance = struct{ rel, abs float64 }{coverageRel, coverageAbs}
 
 // missAccurate is accurate(exp(−hi), exp(−lo), n) for the probability
 // of a miss, without the exponentials where the exposures' gap alone
@@ -326,6 +385,11 @@ func (ck *coverageCheck) factors(ps []*piece, r siteRect) (fu0, fu1, fy0, fy1 []
 			continue
 		}
 		fu0[i], fu1[i] = p.uFactor(r.u0), p.uFactor(r.u1)
+		if p.comb != nil {
+			// Bounded from its table of lines; these serve a range of one line.
+			fy0[i], fy1[i] = p.yFactorLine(r.l0), p.yFactorLine(r.l1-1)
+			continue
+		}
 		fy0[i], fy1[i] = p.yFactor(r.y0), p.yFactor(r.y1)
 	}
 	return fu0, fu1, fy0, fy1
@@ -351,7 +415,26 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 			keep++
 		}
 	}
-	if keep < len(all) {
+	if gu0 == nil {
+		// Halved by geometry (see manyPieces): the factors at r's edges
+		// are computed afresh.
+		if keep < len(all) {
+			for _, p := range all {
+				if p.uLo <= r.u1 && p.uHi >= r.u0 && p.yLo <= r.y1 && p.yHi >= r.y0 {
+					ck.ptrs = append(ck.ptrs, p)
+				}
+			}
+			active = ck.ptrs[ptop:]
+		}
+		if len(active) > manyPieces && r.size() > scanSites {
+			ck.halve(r, active)
+			return
+		}
+		fu0, fu1, fy0, fy1 = ck.factors(active, r)
+	} else if len(active) > manyPieces && r.size() > scanSites {
+		ck.halve(r, active)
+		return
+	} else if keep < len(all) {
 		ck.grow(4 * keep)
 		b := ck.arena[atop:]
 		fu0, fu1, fy0, fy1 = b[:keep], b[keep:2*keep], b[2*keep:3*keep], b[3*keep:4*keep]
@@ -406,19 +489,26 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 	ck.grow(len(active))
 	low := ck.arena[ltop:]
 	for i, p := range active {
-		var plo, phi float64
-		if p.kind != pieceSlanted {
+		var plo, phi, top float64
+		switch {
+		case p.comb != nil:
+			ul, uh := unimodal(fu0[i], fu1[i], r.u0, r.u1, p.uPeak(), p.uTop)
+			yl, yh, yt := p.comb.bounds(r.l0, r.l1)
+			plo, phi, top = p.amp*ul*yl, p.amp*uh*yh, p.amp*uh*yt
+		case p.kind != pieceSlanted:
 			ul, uh := unimodal(fu0[i], fu1[i], r.u0, r.u1, p.uPeak(), p.uTop)
 			yl, yh := unimodal(fy0[i], fy1[i], r.y0, r.y1, p.yPeak(), p.yTop)
 			plo, phi = p.amp*ul*yl, p.amp*uh*yh
-		} else {
+			top = phi
+		default:
 			plo, phi = p.slantedBounds(r)
+			top = phi
 		}
 		low[i] = plo
 		lo += plo
 		hi += phi
-		if phi > best {
-			best, who = phi, p.stroke
+		if top > best {
+			best, who = top, p.stroke
 		}
 	}
 	if !ck.dwellIn(r) {
@@ -473,6 +563,10 @@ const (
 	scanDimers = 48
 	scanSites  = 64
 )
+
+// flatLines is the most site lines split decides one by one where every
+// along factor is flat (rather than halving).
+const flatLines = 32
 
 // scan sums the sites of r one by one, a site line at a time: each
 // piece's across factor is the same along the line (fy for r's first
@@ -540,9 +634,14 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fy []float6
 					}
 				}
 			}
+		case p.comb != nil:
+			if amp := p.amp * fy[i]; amp > exposureNeglect {
+				_, top := p.comb.at(l)
+				p.alongRange(d0, d1, amp, p.amp*top, x, best, who)
+			}
 		default:
 			if amp := p.amp * fy[i]; amp > exposureNeglect {
-				p.alongRange(d0, d1, amp, x, best, who)
+				p.alongRange(d0, d1, amp, amp, x, best, who)
 			}
 		}
 	}
@@ -726,14 +825,36 @@ func (ck *coverageCheck) countStray(site lattice.Site, x, p float64, who int32) 
 // serves both.
 func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 []float64) {
 	gapU, gapY := 0.0, 0.0
+	slanted := false
 	for i, p := range active {
 		if p.kind == pieceSlanted {
+			slanted = true
 			continue
 		}
 		ul, uh := min(fu0[i], fu1[i]), max(fu0[i], fu1[i])
 		yl, yh := min(fy0[i], fy1[i]), max(fy0[i], fy1[i])
+		if p.comb != nil {
+			yl, yh, _ = p.comb.bounds(r.l0, r.l1)
+		}
 		gapU += p.amp * (uh - ul) * yh
 		gapY += p.amp * uh * (yh - yl)
+	}
+	if gapU == 0 && gapY > 0 && r.l1-r.l0 <= flatLines && !slanted {
+		// Every along factor is the same over r's dimers: the exposure
+		// changes from line to line only, so r's lines are decided one
+		// by one, as halving would end up doing.
+		for l := r.l0; l < r.l1; l++ {
+			a := r
+			a.l0, a.l1 = l, l+1
+			if l > r.l0 {
+				a.y0 = (lineY(l-1) + lineY(l)) / 2
+			}
+			if l+1 < r.l1 {
+				a.y1 = (lineY(l) + lineY(l+1)) / 2
+			}
+			ck.decide(a, active, fu0, fu1, fy0, fy1)
+		}
+		return
 	}
 	a, b := r, r
 	n := len(active)
@@ -760,12 +881,38 @@ func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 [
 	a.l1, a.y1 = mid, ys
 	b.l0, b.y0 = mid, ys
 	for i, p := range active {
-		if p.kind != pieceSlanted {
+		if p.kind != pieceSlanted && p.comb == nil {
 			fm[i] = p.yFactor(ys)
 		}
 	}
 	ck.decide(a, active, fu0, fu1, fy0, fm)
 	ck.decide(b, active, fu0, fu1, fm, fy1)
+}
+
+// manyPieces is the most pieces whose bounds decide weighs: a range
+// reached by more (a field of 10⁶ windows) is halved by its geometry
+// alone, without factors, until its parts are reached by fewer; their
+// bounds could not take it at once anyway, and weighing them at every
+// level cost O(pieces · depth) factors.
+const manyPieces = 4096
+
+// halve splits r in two along its longer side, for decide to weigh each
+// half afresh (see manyPieces).
+func (ck *coverageCheck) halve(r siteRect, active []*piece) {
+	a, b := r, r
+	if (r.u1-r.u0 >= r.y1-r.y0 && r.d1-r.d0 > 1) || r.l1-r.l0 == 1 {
+		mid := (r.d0 + r.d1) / 2
+		us := lattice.DimerEdge(mid)
+		a.d1, a.u1 = mid, us
+		b.d0, b.u0 = mid, us
+	} else {
+		mid := (r.l0 + r.l1) / 2
+		ys := (lineY(mid-1) + lineY(mid)) / 2
+		a.l1, a.y1 = mid, ys
+		b.l0, b.y0 = mid, ys
+	}
+	ck.decide(a, active, nil, nil, nil, nil)
+	ck.decide(b, active, nil, nil, nil, nil)
 }
 
 // grow lengthens the arena by n values (not cleared: callers write
@@ -945,19 +1092,21 @@ func (ck *coverageCheck) leaf(r siteRect, active []*piece) {
 // exposureAt returns a site's exposure summed exactly over the active
 // pieces, and the stroke that gives it the most.
 func (ck *coverageCheck) exposureAt(site lattice.Site, active []*piece) (x float64, who int32) {
-	u, y := lattice.DimerAlong(site.Dimer), lineY(2*site.Row+site.Side)
+	l := 2*site.Row + site.Side
+	u, y := lattice.DimerAlong(site.Dimer), lineY(l)
 	best := 0.0
 	who = -1
 	for _, p := range active {
-		var e float64
+		var e, top float64
 		if p.kind == pieceDot && math.Hypot(u-p.pu, y-p.py) <= dwellSnapNM {
 			e = ck.own // the dwell is parked on this site
+			top = e
 		} else {
-			e = p.at(u, y)
+			e, top = p.atLine(u, l)
 		}
 		x += e
-		if e > best {
-			best, who = e, p.stroke
+		if top > best {
+			best, who = top, p.stroke
 		}
 	}
 	return x, who

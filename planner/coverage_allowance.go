@@ -106,9 +106,9 @@ func (ck *coverageCheck) siteTolerated(site lattice.Site, who int32, active []*p
 	if try(who) {
 		return true
 	}
-	u, y := lattice.DimerAlong(site.Dimer), lineY(2*site.Row+site.Side)
+	u := lattice.DimerAlong(site.Dimer)
 	for _, c := range active {
-		if c.at(u, y) >= exposureNeglect && try(c.stroke) {
+		if e, _ := c.atLine(u, 2*site.Row+site.Side); e >= exposureNeglect && try(c.stroke) {
 			return true
 		}
 	}

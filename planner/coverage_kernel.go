@@ -46,6 +46,10 @@ type piece struct {
 	// square piece or dot), filled on first use: a piece is met on every
 	// site line it reaches.
 	cache [2]alongCache
+	// comb, when not nil, makes the piece a comb (coverage_comb.go): a
+	// group of one stroke's parallel or square pieces sharing this
+	// piece's along factor, whose across factor is comb's table.
+	comb *combLines
 }
 
 // alongCache is a piece's along factor at dimers [d0, d0+len(v)).
@@ -108,7 +112,7 @@ func (p *piece) uFactorAt(d int) float64 {
 // dimer gets and its stroke (not for slanted pieces or dots): the
 // factors come from the cache, filled where missing, and are 0 or 1
 // outside its windows.
-func (p *piece) alongRange(d0, d1 int, amp float64, x, best []float64, who []int32) {
+func (p *piece) alongRange(d0, d1 int, amp, topAmp float64, x, best []float64, who []int32) {
 	if p.cache[0].v == nil && !p.cache[0].filled {
 		p.uFactorAt(d0) // allocates the windows
 	}
@@ -117,12 +121,13 @@ func (p *piece) alongRange(d0, d1 int, amp float64, x, best []float64, who []int
 	// add adds amp·f to the dimers from d up to to.
 	add := func(to int, f float64) {
 		if e := amp * f; e > 0 && d < to {
+			et := topAmp * f
 			xs, bs, ws := x[d-d0:to-d0], best[d-d0:to-d0], who[d-d0:to-d0]
 			bs, ws = bs[:len(xs)], ws[:len(xs)]
 			for k := range xs {
 				xs[k] += e
-				if e > bs[k] {
-					bs[k], ws[k] = e, stroke
+				if et > bs[k] {
+					bs[k], ws[k] = et, stroke
 				}
 			}
 		}
@@ -154,8 +159,8 @@ func (p *piece) alongRange(d0, d1 int, amp float64, x, best []float64, who []int
 			}
 			if e := amp * v; e > 0 {
 				xs[k] += e
-				if e > bs[k] {
-					bs[k], ws[k] = e, stroke
+				if et := topAmp * v; et > bs[k] {
+					bs[k], ws[k] = et, stroke
 				}
 			}
 		}
@@ -270,6 +275,9 @@ func (p *piece) uFactor(u float64) float64 {
 }
 
 func (p *piece) yFactor(y float64) float64 {
+	if p.comb != nil {
+		return p.comb.acrossAt(p.kind, p.sigma, y)
+	}
 	switch p.kind {
 	case pieceParallel:
 		return gauss(y-p.c, p.sigma)
@@ -282,6 +290,10 @@ func (p *piece) yFactor(y float64) float64 {
 // yFactorLine returns yFactor at site line l's across position, from
 // the piece's small cache of lines.
 func (p *piece) yFactorLine(l int) float64 {
+	if p.comb != nil {
+		s, _ := p.comb.at(l)
+		return s
+	}
 	if p.lines == nil {
 		l0 := max(0, int(math.Floor((p.yLo+lattice.HOffset)/lattice.RowSpacing))*2)
 		l1 := (int(math.Ceil((p.yHi-lattice.HOffset)/lattice.RowSpacing)) + 1) * 2
@@ -318,6 +330,19 @@ func (p *piece) yPeak() float64 {
 		return p.py
 	}
 	return (p.a0 + p.a1) / 2
+}
+
+// atLine returns the piece's exposure at along position u on site line
+// l, and the largest single term of it (a comb's largest member's; else
+// the exposure itself).
+func (p *piece) atLine(u float64, l int) (e, top float64) {
+	if p.comb != nil {
+		s, t := p.comb.at(l)
+		f := p.amp * p.uFactor(u)
+		return f * s, f * t
+	}
+	e = p.at(u, lineY(l))
+	return e, e
 }
 
 // at returns the piece's exposure at (u, y).

@@ -2,6 +2,7 @@ package planner
 
 import (
 	"math"
+	"slices"
 
 	"github.com/golang/geo/r2"
 
@@ -19,13 +20,18 @@ import (
 type exposureIndex struct {
 	cell   float64
 	nx, ny int
-	cells  map[int32][]int32 // per wanted cell: indices into segs (≥ 0) or ^dots (< 0)
-	want   []bool            // per coarse cell: holds a point of interest
-	cnx    int               // coarse cells across
-	segs   []expSeg
-	dots   []expDot
-	own    float64 // exposure of a dwell's own site
-	prof   *Profile
+	// block numbers the wanted coarse cells (−1: not wanted); the items
+	// listed in fine cell k of block b are items[start[b·B+k]:start[b·B+k+1]]
+	// (B = indexCoarse², k = row·indexCoarse + column within the block):
+	// indices into segs (≥ 0) or ^dots (< 0), in stroke order.
+	block []int32
+	cnx   int // coarse cells across
+	start []int32
+	items []int32
+	segs  []expSeg
+	dots  []expDot
+	own   float64 // exposure of a dwell's own site
+	prof  *Profile
 }
 
 // expSeg is one straight piece of a line stroke: from a to b (length L,
@@ -58,31 +64,81 @@ const (
 // newExposureIndex indexes the strokes around the points of interest
 // (within reach of any of them, up to indexCellNM·indexCoarse nm).
 func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64, points []r2.Point) *exposureIndex {
-	ix := &exposureIndex{cell: indexCellNM, prof: prof, own: prof.dwellOwnExposure(), cells: map[int32][]int32{}}
+	ix := &exposureIndex{cell: indexCellNM, prof: prof, own: prof.dwellOwnExposure()}
 	ix.nx = max(1, int(math.Ceil(fieldW/ix.cell)))
 	ix.ny = max(1, int(math.Ceil(fieldH/ix.cell)))
 	ix.cnx = ix.nx/indexCoarse + 1
-	ix.want = make([]bool, ix.cnx*(ix.ny/indexCoarse+1))
+	ix.block = make([]int32, ix.cnx*(ix.ny/indexCoarse+1))
+	for i := range ix.block {
+		ix.block[i] = -1
+	}
+	blocks := int32(0)
 	for _, p := range points {
 		i, j := ix.col(p.X)/indexCoarse, ix.row(p.Y)/indexCoarse
 		for dj := -1; dj <= 1; dj++ {
 			for di := -1; di <= 1; di++ {
-				if ii, jj := i+di, j+dj; ii >= 0 && jj >= 0 && ii < ix.cnx && jj*ix.cnx+ii < len(ix.want) {
-					ix.want[jj*ix.cnx+ii] = true
+				if ii, jj := i+di, j+dj; ii >= 0 && jj >= 0 && ii < ix.cnx && jj*ix.cnx+ii < len(ix.block) && ix.block[jj*ix.cnx+ii] < 0 {
+					ix.block[jj*ix.cnx+ii] = blocks
+					blocks++
 				}
 			}
 		}
 	}
 	lines := map[design.Mode]LineModel{design.ModeAP: prof.Line(design.ModeAP), design.ModeFE: prof.Line(design.ModeFE)}
 	dotReach := prof.Dwell.SigmaNM * math.Sqrt(2*math.Log(prof.Dwell.Completion/exposureNeglect))
+	// Every piece and dwell, twice: to count each cell's items, then to
+	// place them (one allocation for all lists, no map).
+	each := func(f func(a, b r2.Point, reach float64, item int32)) {
+		nseg, ndot := int32(0), int32(0)
+		for si := range strokes {
+			st := &strokes[si]
+			if st.Kind == StrokeDwell {
+				if len(st.Path) == 0 {
+					continue
+				}
+				f(st.Path[0], st.Path[0], dotReach, ^ndot)
+				ndot++
+				continue
+			}
+			l := lines[st.Mode]
+			peak := l.PassPeak * float64(max(st.Passes, 1))
+			if !(peak > exposureNeglect) {
+				continue
+			}
+			reach := l.SigmaNM * math.Sqrt(2*math.Log(peak/exposureNeglect))
+			for k := 0; k+1 < len(st.Path); k++ {
+				a, b := st.Path[k], st.Path[k+1]
+				if a == b {
+					continue
+				}
+				f(a, b, reach, nseg)
+				nseg++
+			}
+		}
+	}
+	count := make([]int32, int(blocks)*indexCoarse*indexCoarse+1)
+	nseg, ndot := 0, 0
+	each(func(a, b r2.Point, reach float64, item int32) {
+		if item >= 0 {
+			nseg++
+		} else {
+			ndot++
+		}
+		ix.insert(a, b, reach, func(k int32) { count[k+1]++ })
+	})
+	ix.segs, ix.dots = make([]expSeg, 0, nseg), make([]expDot, 0, ndot)
+	for k := 1; k < len(count); k++ {
+		count[k] += count[k-1]
+	}
+	ix.start = count
+	ix.items = make([]int32, count[len(count)-1])
+	next := slices.Clone(count[:len(count)-1])
 	for si := range strokes {
 		st := &strokes[si]
 		if st.Kind == StrokeDwell {
-			if len(st.Path) == 0 {
-				continue
+			if len(st.Path) > 0 {
+				ix.dots = append(ix.dots, expDot{at: st.Path[0], stroke: int32(si)})
 			}
-			ix.dots = append(ix.dots, expDot{at: st.Path[0], stroke: int32(si)})
-			ix.insert(st.Path[0], st.Path[0], dotReach, ^int32(len(ix.dots)-1))
 			continue
 		}
 		l := lines[st.Mode]
@@ -98,16 +154,18 @@ func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64, p
 			}
 			L := b.Sub(a).Norm()
 			ix.segs = append(ix.segs, expSeg{a: a, u: b.Sub(a).Mul(1 / L), L: L, reach: reach, peak: peak, sigma: l.SigmaNM, stroke: int32(si)})
-			ix.insert(a, b, reach, int32(len(ix.segs)-1))
 		}
 	}
+	each(func(a, b r2.Point, reach float64, item int32) {
+		ix.insert(a, b, reach, func(k int32) { ix.items[next[k]] = item; next[k]++ })
+	})
 	return ix
 }
 
-// insert lists item in every wanted cell within reach of the piece a→b:
-// the cells of its box widened by reach, in wanted coarse cells, and
-// within reach of the line through a and b.
-func (ix *exposureIndex) insert(a, b r2.Point, reach float64, item int32) {
+// insert calls add with every wanted cell (see exposureIndex.start) within
+// reach of the piece a→b: the cells of its box widened by reach, in wanted
+// coarse cells, and within reach of the line through a and b.
+func (ix *exposureIndex) insert(a, b r2.Point, reach float64, add func(k int32)) {
 	i0, i1 := ix.col(math.Min(a.X, b.X)-reach), ix.col(math.Max(a.X, b.X)+reach)
 	j0, j1 := ix.row(math.Min(a.Y, b.Y)-reach), ix.row(math.Max(a.Y, b.Y)+reach)
 	ab := b.Sub(a)
@@ -115,7 +173,8 @@ func (ix *exposureIndex) insert(a, b r2.Point, reach float64, item int32) {
 	half := ix.cell * math.Sqrt2 / 2 // a cell's centre to its corner
 	for cj := j0 / indexCoarse; cj <= j1/indexCoarse; cj++ {
 		for ci := i0 / indexCoarse; ci <= i1/indexCoarse; ci++ {
-			if !ix.want[cj*ix.cnx+ci] {
+			blk := ix.block[cj*ix.cnx+ci]
+			if blk < 0 {
 				continue
 			}
 			for j := max(j0, cj*indexCoarse); j <= min(j1, cj*indexCoarse+indexCoarse-1); j++ {
@@ -126,12 +185,23 @@ func (ix *exposureIndex) insert(a, b r2.Point, reach float64, item int32) {
 							continue
 						}
 					}
-					k := int32(j*ix.nx + i)
-					ix.cells[k] = append(ix.cells[k], item)
+					add(blk*indexCoarse*indexCoarse + int32((j-cj*indexCoarse)*indexCoarse+i-ci*indexCoarse))
 				}
 			}
 		}
 	}
+}
+
+// cellItems returns the items listed in the cell holding p.
+func (ix *exposureIndex) cellItems(p r2.Point) []int32 {
+	i, j := ix.col(p.X), ix.row(p.Y)
+	ci, cj := i/indexCoarse, j/indexCoarse
+	blk := ix.block[cj*ix.cnx+ci]
+	if blk < 0 {
+		return nil
+	}
+	k := blk*indexCoarse*indexCoarse + int32((j-cj*indexCoarse)*indexCoarse+i-ci*indexCoarse)
+	return ix.items[ix.start[k]:ix.start[k+1]]
 }
 
 func (ix *exposureIndex) col(x float64) int {
@@ -149,7 +219,7 @@ func (ix *exposureIndex) row(y float64) int {
 func (ix *exposureIndex) at(p r2.Point) (x float64, most int32) {
 	most = -1
 	best := 0.0
-	for _, item := range ix.cells[int32(ix.row(p.Y)*ix.nx+ix.col(p.X))] {
+	for _, item := range ix.cellItems(p) {
 		var e float64
 		var who int32
 		if item >= 0 {

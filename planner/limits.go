@@ -16,14 +16,16 @@ import (
 // them, and refuses a plan beyond a limit with a *CountError naming the
 // fields that drive the count: a profile that passes validation in
 // every field can still combine into absurd work, and that must be a
-// message, not a machine out of memory. The limits sit well above the
-// largest plans dimerpath is meant for (10^6 strokes).
+// message, not a machine out of memory. The limits sit above the
+// largest plans dimerpath is meant for (donor arrays of 4·10^6 windows,
+// one stroke and one run of sites each: issue 14).
 const (
 	// MaxRuns bounds the runs of consecutive sites of all regions of a
 	// variant together (each becomes a segment the planner keeps).
 	MaxRuns = 4_000_000
-	// MaxStrokes bounds the strokes of a plan, after splitting.
-	MaxStrokes = 2_000_000
+	// MaxStrokes bounds the strokes of a plan, after splitting: as many
+	// as MaxRuns, since each run of sites is written by one or more.
+	MaxStrokes = 4_000_000
 	// MaxPieces bounds the pieces one stroke is cut into at
 	// registrations.
 	MaxPieces = 10_000

@@ -212,6 +212,16 @@ func pInTolerance(ctx context.Context, segs []segLoad, pairs []pairLoad, d mcDra
 	if n == 0 {
 		return res, nil
 	}
+	// The loads side by side (the same sums as over segs, without a
+	// pointer to follow per segment and sample).
+	off := make([]int32, len(segs)+1)
+	for s, g := range segs {
+		off[s+1] = off[s] + int32(len(g.loads))
+	}
+	flat := make([]strokeLoad, 0, off[len(segs)])
+	for _, g := range segs {
+		flat = append(flat, g.loads...)
+	}
 	for i := range n {
 		if i%256 == 0 {
 			if err := ctx.Err(); err != nil {
@@ -220,12 +230,12 @@ func pInTolerance(ctx context.Context, segs []segLoad, pairs []pairLoad, d mcDra
 		}
 		r, c := d.rate[i], d.creep[i]
 		all, some := 1.0, 1.0
-		for s, g := range segs {
+		for s := range segs {
 			room := math.Inf(1)
-			for _, l := range g.loads {
-				room = math.Min(room, l.tol-c*l.creep-r*l.drift)
+			for _, l := range flat[off[s]:off[s+1]] {
+				room = min(room, l.tol-c*l.creep-r*l.drift)
 			}
-			p := withinProb(room, g.sigma)
+			p := withinProb(room, segs[s].sigma)
 			res.segs[s] += p
 			all *= p
 			if s >= len(leave) || !leave[s] {

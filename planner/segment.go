@@ -150,7 +150,25 @@ type segmenter struct {
 
 	creepF           decay      // creep per unit fraction, nm
 	driftRaw, driftC driftField // drift at r0: uncompensated, compensated
+
+	// What solve needs that does not depend on the margin, and its
+	// working arrays: made on its first call (chooseMargin solves the
+	// same segmenter at several margins), dropped by releaseSolve.
+	cache *solveCache
 }
+
+// solveCache is solve's margin-independent terms and working memory.
+type solveCache struct {
+	value     [2][]float64 // planning load at each job's end: raw, compensated field
+	cst       [2][]float64 // per kind, the load a segment starting at s starts from
+	nextLocal []int        // the first job at or after s that needs a local registration
+	trees     [2]maxTree
+	D         []float64
+	from      []cand
+}
+
+// releaseSolve drops solve's cache (solve makes it again if called).
+func (sg *segmenter) releaseSolve() { sg.cache = nil }
 
 const (
 	kLocal  = 0
@@ -286,17 +304,45 @@ func (sg *segmenter) startTerms(s, k int) (creepUnit, drift float64) {
 // load returns the creep per unit fraction and the drift at r0 from the
 // registration of a segment (s, k) to the end of job j (j ≥ s).
 func (sg *segmenter) load(s, k, j int) (creepUnit, drift float64) {
+	return sg.segmentLoads(s, k).at(j)
+}
+
+// segmentLoads returns the loads of segment (s, k), whose start terms
+// are worked out once for all its jobs.
+func (sg *segmenter) segmentLoads(s, k int) segLoads {
 	t0 := sg.clockStart(s, k)
 	f := sg.field(s)
 	c0, d0 := sg.startTerms(s, k)
-	return math.Max(c0+sg.creepF.integral(sg.T[j])-sg.creepF.integral(t0), 0), math.Max(d0+f.at(sg.T[j])-f.at(t0), 0)
+	return segLoads{sg: sg, k: k, f: f, c0: c0, d0: d0, creep0: sg.creepF.integral(t0), drift0: f.at(t0)}
+}
+
+// segLoads reads the loads of one segment's jobs (see load).
+type segLoads struct {
+	sg             *segmenter
+	k              int
+	f              *driftField
+	c0, d0         float64
+	creep0, drift0 float64
+}
+
+// at returns the creep per unit fraction and the drift at r0 from the
+// segment's registration to the end of job j.
+func (l segLoads) at(j int) (creepUnit, drift float64) {
+	t := l.sg.T[j]
+	return math.Max(l.c0+l.sg.creepF.integral(t)-l.creep0, 0), math.Max(l.d0+l.f.at(t)-l.drift0, 0)
 }
 
 // planLoad returns the displacement (nm) at the planning values from the
 // registration of (s, k) to the end of j, error included.
 func (sg *segmenter) planLoad(s, k, j int) float64 {
-	cu, d := sg.load(s, k, j)
-	return sg.regError(k) + sg.model.creep*cu + sg.model.rateMul*d
+	return sg.segmentLoads(s, k).plan(j)
+}
+
+// plan returns the displacement (nm) at the planning values from the
+// segment's registration to the end of job j (see planLoad).
+func (l segLoads) plan(j int) float64 {
+	cu, d := l.at(j)
+	return l.sg.regError(l.k) + l.sg.model.creep*cu + l.sg.model.rateMul*d
 }
 
 // allowed reports whether a registration of kind k may stand before job
@@ -333,52 +379,66 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 	if n == 0 {
 		return nil, nil, 0, nil
 	}
-	md := sg.model
-	// q over the two drift fields; the tree of the field a start uses.
-	value := func(f *driftField, t float64) float64 {
-		return md.creep*sg.creepF.integral(t) + md.rateMul*f.at(t)
+	if sg.cache == nil {
+		sg.cache = sg.prepareSolve()
 	}
-	var trees [2]*maxTree
-	for v, f := range []*driftField{&sg.driftRaw, &sg.driftC} {
-		q := make([]float64, n)
-		for j, jb := range sg.jobs {
-			q[j] = value(f, sg.T[j]) - jb.tolNM/margin
+	sc := sg.cache
+	// q over a drift field: every start after the first reads the same
+	// field (see field), so only its tree is built; the first start
+	// reads its own, where it differs, by a scan (firstAbove0).
+	fieldOf := func(e int) int {
+		if sg.field(e) == &sg.driftC {
+			return 1
 		}
-		trees[v] = newMaxTree(q)
+		return 0
 	}
-	// nextLocal[s]: the first job at or after s that needs a local
-	// registration (n when none).
-	nextLocal := make([]int, n+1)
-	nextLocal[n] = n
-	for j := n - 1; j >= 0; j-- {
-		nextLocal[j] = nextLocal[j+1]
-		if sg.jobs[j].localOnly {
-			nextLocal[j] = j
+	q := func(v, j int) float64 { return sc.value[v][j] - sg.jobs[j].tolNM/margin }
+	vRest := fieldOf(min(1, n-1))
+	tree := &sc.trees[vRest]
+	if tree.v == nil {
+		*tree = makeMaxTree(n)
+	}
+	leaves := tree.leaves()
+	for j := range leaves {
+		leaves[j] = q(vRest, j)
+	}
+	tree.build()
+	firstAbove0 := func(c float64) int {
+		v := fieldOf(0)
+		if v == vRest {
+			return tree.firstAbove(0, c)
 		}
+		for j := range n {
+			if q(v, j) > c {
+				return j
+			}
+		}
+		return n
 	}
-	D := make([]float64, n)
-	from := make([]cand, n)
+	nextLocal := sc.nextLocal
+	D, from := sc.D, sc.from
 	var h candHeap
-	var latest []cand // the candidates of the latest allowed start
+	// here: the candidates starting at e; latest: those of the latest
+	// allowed start (fixed buffers: one pair per job was most of the
+	// allocations of a 10^6-job solve).
+	var hereBuf, latestBuf [2]cand
+	var latest []cand
 	for e := 0; e < n; e++ {
 		prev := 0.0
 		if e > 0 {
 			prev = D[e-1]
 		}
-		var here []cand
+		here := hereBuf[:0]
 		for k := 0; k < 2; k++ {
 			if !sg.allowed(e, k) {
 				continue
 			}
-			f := sg.field(e)
-			tree := trees[0]
-			if f == &sg.driftC {
-				tree = trees[1]
+			var emax int
+			if e == 0 {
+				emax = firstAbove0(sc.cst[k][0]) - 1
+			} else {
+				emax = tree.firstAbove(e, sc.cst[k][e]) - 1
 			}
-			t0 := sg.clockStart(e, k)
-			c0, d0 := sg.startTerms(e, k)
-			cst := value(f, t0) - sg.regError(k) - md.creep*c0 - md.rateMul*d0
-			emax := tree.firstAbove(e, cst) - 1
 			if k == kCoarse {
 				emax = min(emax, nextLocal[e]-1)
 			}
@@ -412,7 +472,7 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 				h.push(best)
 				forced = append(forced, e)
 			}
-			latest = here
+			latest = latestBuf[:copy(latestBuf[:], here)]
 		}
 		for len(h) > 0 && h[0].emax < e {
 			h.pop()
@@ -438,6 +498,46 @@ func (sg *segmenter) solve(margin float64) (starts []int, kinds []RegistrationKi
 		ks[i], ks[j] = ks[j], ks[i]
 	}
 	return starts, ks, D[n-1] + sg.T[n-1] + sg.c.verify, dedupe(forced)
+}
+
+// prepareSolve makes solve's margin-independent terms: the planning
+// load at each job's end on either drift field, and for each start s and
+// kind k the load its segment starts from (less the registration error
+// and the start terms), against which the loads of its jobs are read.
+func (sg *segmenter) prepareSolve() *solveCache {
+	n := sg.n
+	md := sg.model
+	sc := &solveCache{D: make([]float64, n), from: make([]cand, n)}
+	value := func(f *driftField, t float64) float64 {
+		return md.creep*sg.creepF.integral(t) + md.rateMul*f.at(t)
+	}
+	for v, f := range []*driftField{&sg.driftRaw, &sg.driftC} {
+		sc.value[v] = make([]float64, n)
+		for j := range n {
+			sc.value[v][j] = value(f, sg.T[j])
+		}
+	}
+	for k := range sc.cst {
+		sc.cst[k] = make([]float64, n)
+		for s := range n {
+			if !sg.allowed(s, k) {
+				continue
+			}
+			c0, d0 := sg.startTerms(s, k)
+			sc.cst[k][s] = value(sg.field(s), sg.clockStart(s, k)) - sg.regError(k) - md.creep*c0 - md.rateMul*d0
+		}
+	}
+	// nextLocal[s]: the first job at or after s that needs a local
+	// registration (n when none).
+	sc.nextLocal = make([]int, n+1)
+	sc.nextLocal[n] = n
+	for j := n - 1; j >= 0; j-- {
+		sc.nextLocal[j] = sc.nextLocal[j+1]
+		if sg.jobs[j].localOnly {
+			sc.nextLocal[j] = j
+		}
+	}
+	return sc
 }
 
 func dedupe(xs []int) []int {
@@ -559,41 +659,66 @@ type maxTree struct {
 }
 
 func newMaxTree(vals []float64) *maxTree {
+	t := makeMaxTree(len(vals))
+	copy(t.leaves(), vals)
+	t.build()
+	return &t
+}
+
+// makeMaxTree returns a tree of n values, all −Inf until set through
+// leaves and build.
+func makeMaxTree(n int) maxTree {
 	size := 1
-	for size < len(vals) {
+	for size < n {
 		size *= 2
 	}
-	t := &maxTree{n: len(vals), size: size, v: make([]float64, 2*size)}
+	t := maxTree{n: n, size: size, v: make([]float64, 2*size)}
 	for i := range t.v {
 		t.v[i] = math.Inf(-1)
-	}
-	copy(t.v[size:], vals)
-	for i := size - 1; i >= 1; i-- {
-		t.v[i] = math.Max(t.v[2*i], t.v[2*i+1])
 	}
 	return t
 }
 
-// firstAbove returns the least j >= from with vals[j] > c, or n.
-func (t *maxTree) firstAbove(from int, c float64) int {
-	if r := t.descend(1, 0, t.size, from, c); r >= 0 {
-		return r
+// leaves returns the n values, to be set before build.
+func (t *maxTree) leaves() []float64 { return t.v[t.size : t.size+t.n] }
+
+// build makes the inner nodes from the leaves.
+func (t *maxTree) build() {
+	for i := t.size - 1; i >= 1; i-- {
+		t.v[i] = math.Max(t.v[2*i], t.v[2*i+1])
 	}
-	return t.n
 }
 
-func (t *maxTree) descend(node, lo, hi, from int, c float64) int {
-	if hi <= from || t.v[node] <= c {
-		return -1
+// firstAbove returns the least j >= from with vals[j] > c, or n.
+// It climbs from the leaf of from to the first subtree to its right
+// holding such a value and descends into it: O(log(j − from)), where
+// the answer is a segment's length away.
+func (t *maxTree) firstAbove(from int, c float64) int {
+	if from >= t.n {
+		return t.n
 	}
-	if hi-lo == 1 {
-		return lo
+	i := from + t.size
+	if !(t.v[i] > c) {
+		for {
+			for i&1 == 1 { // a right child: up to the first left one
+				i >>= 1
+			}
+			if i == 0 {
+				return t.n // climbed past the root
+			}
+			i++ // its right sibling
+			if t.v[i] > c {
+				break
+			}
+		}
+		for i < t.size {
+			i *= 2
+			if !(t.v[i] > c) {
+				i++
+			}
+		}
 	}
-	mid := (lo + hi) / 2
-	if r := t.descend(2*node, lo, mid, from, c); r >= 0 {
-		return r
-	}
-	return t.descend(2*node+1, mid, hi, from, c)
+	return min(i-t.size, t.n)
 }
 
 // DriftBudget returns the time in seconds within which a stroke of

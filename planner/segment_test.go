@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 
 	"github.com/golang/geo/r2"
@@ -375,5 +376,33 @@ func TestJoinBlocksKeepsPairsTogether(t *testing.T) {
 	}
 	if joined[11] || !joined[13] || !joined[15] || joined[10] {
 		t.Errorf("joined = %v", joined)
+	}
+}
+
+// A segmenter solved at several margins (chooseMargin does, with solve's
+// cache and working arrays kept between calls, and dropped by
+// releaseSolve) gives what a new one gives at each.
+func TestSegmenterSolvesAgain(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	p := DefaultProfile()
+	p.Drift.Compensation.Enabled = true
+	for trial := range 40 {
+		n := 1 + rng.IntN(40)
+		jobs, _, c := randomJobs(rng, n)
+		model := testModel(&p)
+		if trial%2 == 0 {
+			model.residual = 1
+		}
+		sg := newSegmenter(jobs, c, model, 0)
+		for i, margin := range []float64{1, 1.5, 1, 2.2, 1.25} {
+			if i == 3 {
+				sg.releaseSolve()
+			}
+			s1, k1, t1, f1 := sg.solve(margin)
+			s2, k2, t2, f2 := newSegmenter(jobs, c, model, 0).solve(margin)
+			if !slices.Equal(s1, s2) || !slices.Equal(k1, k2) || t1 != t2 || !slices.Equal(f1, f2) {
+				t.Fatalf("trial %d, margin %v: again %v %v %v %v, new %v %v %v %v", trial, margin, s1, k1, t1, f1, s2, k2, t2, f2)
+			}
+		}
 	}
 }

@@ -136,11 +136,13 @@ func (b *builder) planSteps(steps []*stepWork, cps []couplingWork) error {
 		c := b.costs
 		st.sg = newSegmenter(st.jobs, c, m, first)
 		starts, kinds, _, _ := st.sg.solve(1)
+		st.sg.releaseSolve() // solved once: its cache is garbage
 		jobs, err := b.reoptimise(st.sg, starts, kinds)
 		if err != nil {
 			return err
 		}
 		st.jobs = jobs
+		st.sg = nil // garbage before its successor is made
 		st.sg = newSegmenter(jobs, c, m, first)
 	}
 	return nil
@@ -150,13 +152,18 @@ func (b *builder) planSteps(steps []*stepWork, cps []couplingWork) error {
 // per segment its registration's σ and the strokes that can bind, per
 // coupled pair its relative tolerance and load.
 func (b *builder) loads(steps []*stepWork, cps []couplingWork) ([]segLoad, []pairLoad, []int) {
-	var segs []segLoad
+	nseg := 0
+	for _, st := range steps {
+		nseg += len(st.starts)
+	}
+	segs := make([]segLoad, 0, nseg)
 	var pairs []pairLoad
 	pairIndex := make([]int, len(cps))
 	for i := range pairIndex {
 		pairIndex[i] = -1
 	}
 	r := &b.prof.Registration
+	var scratch []strokeLoad
 	for _, st := range steps {
 		sg := st.sg
 		for sp := range st.spans() {
@@ -165,13 +172,15 @@ func (b *builder) loads(steps []*stepWork, cps []couplingWork) ([]segLoad, []pai
 			if k == kCoarse {
 				g.sigma = r.CoarseErrorNM
 			}
-			var ls []strokeLoad
+			ls := scratch[:0] // paretoLoads keeps what it returns apart
+			at := sg.segmentLoads(s, k)
 			for j := s; j < e; j++ {
-				cu, d := sg.load(s, k, j)
+				cu, d := at.at(j)
 				ls = append(ls, strokeLoad{tol: sg.jobs[j].tolNM, creep: cu, drift: d})
 			}
 			g.loads = paretoLoads(ls)
 			segs = append(segs, g)
+			scratch = ls
 		}
 	}
 	for ci, cp := range cps {
@@ -299,6 +308,16 @@ func (b *builder) chooseMargin(ctx context.Context, steps []*stepWork, cps []cou
 	lastMargin := math.NaN()
 	var lastSegs []segLoad
 	var lastPairs []pairLoad
+	// The best margin's segmentation and loads, kept so that a search
+	// that ends past it need not make them again.
+	type segmentation struct {
+		starts []int
+		kinds  []RegistrationKind
+		forced []int
+	}
+	var bestSegmentation []segmentation
+	var bestSegs []segLoad
+	var bestPairs []pairLoad
 	for try := 0; try < maxMargins; try++ {
 		segmentAll(steps, margin)
 		segs, pairs, index := b.loads(steps, cps)
@@ -325,25 +344,30 @@ func (b *builder) chooseMargin(ctx context.Context, steps []*stepWork, cps []cou
 			break // no longer helping: the registration errors bind
 		}
 		best, bestMargin, bestIndex, bestAdj = res, margin, index, adj
+		bestSegs, bestPairs = segs, pairs
+		bestSegmentation = bestSegmentation[:0]
+		for _, st := range steps {
+			bestSegmentation = append(bestSegmentation, segmentation{st.starts, st.kinds, st.forced})
+		}
 		if adj >= level {
 			break
 		}
 		margin *= 1.25
 	}
 	if bestMargin != lastMargin {
-		segmentAll(steps, bestMargin)
-		lastSegs, lastPairs = nil, nil
+		// What segmentAll(steps, bestMargin) and loads would make again.
+		for k, st := range steps {
+			sn := bestSegmentation[k]
+			st.starts, st.kinds, st.forced = sn.starts, sn.kinds, sn.forced
+		}
+		lastSegs, lastPairs = bestSegs, bestPairs
 	}
 	if len(search.rate) < len(draws.rate) {
-		segs, pairs, index := lastSegs, lastPairs, bestIndex
-		if segs == nil {
-			segs, pairs, index = b.loads(steps, cps)
-		}
-		res, err := pInTolerance(ctx, segs, pairs, draws, nil)
+		res, err := pInTolerance(ctx, lastSegs, lastPairs, draws, nil)
 		if err != nil {
 			return 0, tolResult{}, nil, err
 		}
-		best, bestIndex = res, index
+		best = res
 	}
 	return bestMargin, best, bestIndex, nil
 }
@@ -440,7 +464,11 @@ func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline
 	repairOn := ses.Repair.Enabled
 	perSite := prof.DwellExpectedS() + ImageProfile{PixelNM: ses.Verification.PixelNM, LineS: ses.Verification.LineS}.TimeS(ses.Repair.ReimageNM, ses.Repair.ReimageNM)
 	seg := 0
-	windowEnd := map[int]float64{} // window index -> end of its write
+	// windowEnd[i]: the end of window i's write, NaN until written.
+	windowEnd := make([]float64, len(windows))
+	for i := range windowEnd {
+		windowEnd[i] = math.NaN()
+	}
 	for k, stw := range steps {
 		if len(stw.jobs) == 0 {
 			continue
@@ -487,8 +515,8 @@ func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline
 		}
 		lit.Note = b.stepNote(stw)
 		end(lit)
-		for _, a := range tl.actions {
-			if (a.Kind == ActWrite || a.Kind == ActDwell) && b.strokes[a.Stroke].Window >= 0 {
+		for i := range tl.actions {
+			if a := &tl.actions[i]; (a.Kind == ActWrite || a.Kind == ActDwell) && b.strokes[a.Stroke].Window >= 0 {
 				windowEnd[b.strokes[a.Stroke].Window] = a.StartS + a.DurationS
 			}
 		}
@@ -502,7 +530,7 @@ func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline
 		end(dose)
 		for wi, w := range windows {
 			if w.Species == stw.species {
-				if e, ok := windowEnd[wi]; ok {
+				if e := windowEnd[wi]; !math.IsNaN(e) {
 					windows[wi].OpenS = dose.StartS - e
 				}
 			}
@@ -815,6 +843,11 @@ func (b *builder) reoptimiseSegment(sg *segmenter, jobs []job, si, s, e int, kin
 	if e < len(jobs) && jobs[e].joined {
 		return nil, nil
 	}
+	if travelOptimal(seg, entry) {
+		// No order is shorter: the engine would give this one back (or
+		// one as short), so the order stands (see reroute.go).
+		return nil, nil
+	}
 	c := &sg.c
 	k := kindIndex(kind)
 	var exit *r2.Point
@@ -852,9 +885,9 @@ func (b *builder) reoptimiseSegment(sg *segmenter, jobs []job, si, s, e int, kin
 		}
 		cc := *c
 		cc.fiducials = f
-		tmp := newSegmenter(js, cc, m, fi)
+		at := newSegmenter(js, cc, m, fi).segmentLoads(0, k)
 		for j := range js {
-			if tmp.planLoad(0, k, j) > js[j].tolNM*(1+1e-9) {
+			if at.plan(j) > js[j].tolNM*(1+1e-9) {
 				return t, false
 			}
 		}

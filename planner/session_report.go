@@ -39,14 +39,15 @@ func (b *builder) describeSegments(plan *Plan, steps []*stepWork, tol tolResult)
 			// The tightest stroke: the largest share of its tolerance used
 			// at the planning values.
 			tight, share := s, -1.0
+			at := sg.segmentLoads(s, k)
 			for j := s; j < e; j++ {
-				if sh := sg.planLoad(s, k, j) / sg.jobs[j].tolNM; sh > share {
+				if sh := at.plan(j) / sg.jobs[j].tolNM; sh > share {
 					tight, share = j, sh
 				}
 			}
 			jb := sg.jobs[tight]
 			seg.Tightest = jb.stroke
-			cu, _ := sg.load(s, k, tight)
+			cu, _ := at.at(tight)
 			if bud := DriftBudget(jb.tolNM, sg.regError(k), m.creep*cu, rate); !isInf(bud) {
 				seg.BudgetS = bud
 			}

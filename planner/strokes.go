@@ -23,6 +23,25 @@ type strokeGen struct {
 	// its outermost lines inside the region's outermost sites (nm).
 	feEnd, feSide float64
 	segs          map[*lattice.SiteSet][]runSeg
+	// pts is the unused rest of the block the short strokes' paths are
+	// cut from (one allocation per pathBlock points instead of one per
+	// stroke: a 10^6-window array has 10^6 such paths).
+	pts []r2.Point
+}
+
+// pathBlock is the number of points allocated at once for paths.
+const pathBlock = 4096
+
+// newPath returns a path of n points (n ≤ pathBlock) cut from the
+// current block, its capacity n so that an append never reaches into
+// the next path.
+func (g *strokeGen) newPath(n int) []r2.Point {
+	if len(g.pts) < n {
+		g.pts = make([]r2.Point, pathBlock)
+	}
+	p := g.pts[:n:n]
+	g.pts = g.pts[n:]
+	return p
 }
 
 // segsOf returns the run segments of set, computed once per set (sets
@@ -165,7 +184,8 @@ func (g *strokeGen) lineStroke(region string, t, row, d0, d1 int) Stroke {
 	a := g.surf.DimerCentre(t, row, d0)
 	b := g.surf.DimerCentre(t, row, d1)
 	dir := g.surf.Terraces[t].Rows.Join(1, 0)
-	path := []r2.Point{a.Sub(dir.Mul(ext)), b.Add(dir.Mul(ext))}
+	path := g.newPath(2)
+	path[0], path[1] = a.Sub(dir.Mul(ext)), b.Add(dir.Mul(ext))
 	l := pathLength(path)
 	m := g.prof.AP
 	return Stroke{Region: region, Mode: design.ModeAP, Kind: StrokeLine, Path: path, Passes: max(m.Passes, 1),
@@ -174,7 +194,9 @@ func (g *strokeGen) lineStroke(region string, t, row, d0, d1 int) Stroke {
 
 // dwellStroke parks the tip over one H site.
 func (g *strokeGen) dwellStroke(region string, site lattice.Site) Stroke {
-	return Stroke{Region: region, Mode: design.ModeAP, Kind: StrokeDwell, Path: []r2.Point{g.surf.Position(site)}, Passes: 1,
+	path := g.newPath(1)
+	path[0] = g.surf.Position(site)
+	return Stroke{Region: region, Mode: design.ModeAP, Kind: StrokeDwell, Path: path, Passes: 1,
 		DurationS: g.prof.DwellExpectedS(), Sites: 1, Window: -1}
 }
 
@@ -206,16 +228,21 @@ func (g *strokeGen) apStrokes(region string, set *lattice.SiteSet) []Stroke {
 // windowStrokes opens one dopant window: a short AP line over its
 // existing dimers, or a dwell on each of its sites (WindowStyleDwell).
 func (g *strokeGen) windowStrokes(region string, w lattice.Window, index int) []Stroke {
-	var dimers []int
+	return g.appendWindowStrokes(nil, region, w, index)
+}
+
+// appendWindowStrokes appends the strokes of window w to out.
+func (g *strokeGen) appendWindowStrokes(out []Stroke, region string, w lattice.Window, index int) []Stroke {
+	var buf [8]int
+	dimers := buf[:0]
 	for d := w.FirstDimer; d <= w.LastDimer(); d++ {
 		if d >= 0 && g.surf.Valid(lattice.Site{Terrace: w.Terrace, Row: w.Row, Dimer: d}) {
 			dimers = append(dimers, d)
 		}
 	}
 	if len(dimers) == 0 {
-		return nil
+		return out
 	}
-	var out []Stroke
 	if g.prof.WindowStyle == WindowStyleDwell {
 		for _, d := range dimers {
 			for side := 0; side < 2; side++ {

@@ -73,6 +73,12 @@ func cloneRules(r design.Rules) design.Rules {
 	r.TunnelGapMaxNM = cp(r.TunnelGapMaxNM)
 	r.APToleranceNM = cp(r.APToleranceNM)
 	r.FEToleranceNM = cp(r.FEToleranceNM)
+	r.LeadToleranceNM = cp(r.LeadToleranceNM)
+	r.GateToleranceNM = cp(r.GateToleranceNM)
+	r.PadToleranceNM = cp(r.PadToleranceNM)
+	r.TunnelGapToleranceNM = cp(r.TunnelGapToleranceNM)
+	r.DefectWindowClearanceNM = cp(r.DefectWindowClearanceNM)
+	r.DefectClearanceNM = cp(r.DefectClearanceNM)
 	return r
 }
 

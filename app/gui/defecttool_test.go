@@ -160,3 +160,33 @@ func TestDefectToolWithoutSurveySaysSo(t *testing.T) {
 		t.Errorf("after a click: status %q, undo %v", u.hintLabel.Text, u.Session.CanUndo())
 	}
 }
+
+// Choosing a defect in the Survey list while another tool holds a
+// region selection, then pressing Delete on the lattice, deletes that
+// defect and keeps the regions: the list hands the Defect tool over, so
+// the status line and the key act on what was chosen last.
+func TestDefectChosenInListIsWhatDeleteRemoves(t *testing.T) {
+	u, w := newTestUI(t, editortest.Demo(t))
+	p := u.survey
+	p.imageJobs.Wait()
+	u.Session.SetTool(editor.ToolSelect)
+	u.Session.Select(0)
+	regions := len(u.Session.Variant().Regions)
+	n := len(u.Session.Design().Survey.Defects)
+
+	p.defects.Select(2)
+	if u.Session.Tool != editor.ToolDefect {
+		t.Errorf("choosing a defect in the list left the %s tool", u.Session.Tool.Info().Name)
+	}
+	if !strings.Contains(u.hintLabel.Text, "Selected defect 3") {
+		t.Errorf("status line %q after choosing defect 3", u.hintLabel.Text)
+	}
+	u.focusLattice()
+	w.Canvas().Focused().TypedKey(&fyne.KeyEvent{Name: fyne.KeyDelete})
+	if got := len(u.Session.Variant().Regions); got != regions {
+		t.Errorf("Delete removed regions: %d left of %d", got, regions)
+	}
+	if got := len(u.Session.Design().Survey.Defects); got != n-1 {
+		t.Errorf("Delete left %d defects, want %d", got, n-1)
+	}
+}

@@ -127,6 +127,10 @@ func newSurveyPanel(u *UI) *surveyPanel {
 		}
 		p.showDefectAt(i)
 		if !p.following {
+			// The Defect tool acts on what was chosen here: the status
+			// line names it and Delete removes it, not the regions
+			// another tool had selected.
+			p.u.Session.SetTool(editor.ToolDefect)
 			p.u.Session.SelectDefect(i)
 			at := sv.FieldDefects()[i].At
 			p.u.View.ZoomTo(r2.RectFromCenterSize(at, r2.Point{X: 12, Y: 12}))
