@@ -639,13 +639,18 @@ func (b *builder) splitLong() error {
 	c := &b.costs
 	m := b.model
 	rate := m.r0 * m.rateMul
+	// out is made at the first stroke cut: until then the strokes stand
+	// as they are (most plans cut none, and a copy of 10^6 strokes is
+	// 150 MB).
 	var out []Stroke
-	if len(b.strokes) > 0 {
-		out = make([]Stroke, 0, len(b.strokes))
+	keep := func(s Stroke) {
+		if out != nil {
+			out = append(out, s)
+		}
 	}
 	var split []*strokeNote
 	pieces := float64(len(b.strokes))
-	for _, s := range b.strokes {
+	for i, s := range b.strokes {
 		err, approach := m.errLocal, 0.0
 		if s.Mode == design.ModeFE {
 			err = m.errCoase
@@ -659,12 +664,12 @@ func (b *builder) splitLong() error {
 		}
 		budget := DriftBudget(s.ToleranceNM, err, 0, rate)
 		if s.Kind == StrokeDwell || math.IsInf(budget, 1) || s.DurationS <= 0 || s.DurationS <= budget-approach {
-			out = append(out, s)
+			keep(s)
 			continue
 		}
 		room := budget - approach
 		if room <= 0 {
-			out = append(out, s)
+			keep(s)
 			continue // reported by the segmenter as over budget
 		}
 		kf := math.Ceil(s.DurationS / room)
@@ -678,6 +683,10 @@ func (b *builder) splitLong() error {
 			return checkStrokes(pieces, "strokes longer than their drift budget are cut into pieces at registrations; "+speedCause(s.Mode, b.prof.modeOf(s.Mode)))
 		}
 		k := int(kf)
+		if out == nil {
+			out = make([]Stroke, i, len(b.strokes)+k)
+			copy(out, b.strokes[:i])
+		}
 		parts := splitPath(s.Path, k)
 		n := noteFor(&split, s.Region, string(s.Kind), s.ToleranceNM)
 		n.ids = append(n.ids, s.ID)
@@ -694,7 +703,11 @@ func (b *builder) splitLong() error {
 			out = append(out, piece)
 		}
 	}
-	b.strokes = out
+	if out != nil {
+		b.strokes = out
+	} else if len(b.strokes) == 0 {
+		b.strokes = nil
+	}
 	// Said once per region and kind of stroke, not once per stroke.
 	for _, n := range split {
 		if len(n.ids) == 1 {

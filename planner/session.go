@@ -152,13 +152,18 @@ func (b *builder) planSteps(steps []*stepWork, cps []couplingWork) error {
 // per segment its registration's σ and the strokes that can bind, per
 // coupled pair its relative tolerance and load.
 func (b *builder) loads(steps []*stepWork, cps []couplingWork) ([]segLoad, []pairLoad, []int) {
-	var segs []segLoad
+	nseg := 0
+	for _, st := range steps {
+		nseg += len(st.starts)
+	}
+	segs := make([]segLoad, 0, nseg)
 	var pairs []pairLoad
 	pairIndex := make([]int, len(cps))
 	for i := range pairIndex {
 		pairIndex[i] = -1
 	}
 	r := &b.prof.Registration
+	var scratch []strokeLoad
 	for _, st := range steps {
 		sg := st.sg
 		for sp := range st.spans() {
@@ -167,7 +172,7 @@ func (b *builder) loads(steps []*stepWork, cps []couplingWork) ([]segLoad, []pai
 			if k == kCoarse {
 				g.sigma = r.CoarseErrorNM
 			}
-			ls := make([]strokeLoad, 0, e-s)
+			ls := scratch[:0] // paretoLoads keeps what it returns apart
 			at := sg.segmentLoads(s, k)
 			for j := s; j < e; j++ {
 				cu, d := at.at(j)
@@ -175,6 +180,7 @@ func (b *builder) loads(steps []*stepWork, cps []couplingWork) ([]segLoad, []pai
 			}
 			g.loads = paretoLoads(ls)
 			segs = append(segs, g)
+			scratch = ls
 		}
 	}
 	for ci, cp := range cps {

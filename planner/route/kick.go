@@ -36,8 +36,10 @@ func (r *rng) intn(n int32) int32 {
 // the local search cannot undo in one move), or, for half the kicks, as
 // X C B D (three edges: B and C swap places). It then re-optimises from
 // the touched nodes only, keeps the result if it is no longer than
-// before, and else undoes it from the journal (iterated local search;
-// Johnson & McGeoch 1997). It reports whether the tour got shorter.
+// before (or, while s.slack > 0, no more than slack longer than the best
+// tour so far), and else undoes it from the journal (iterated local
+// search; Johnson & McGeoch 1997). It reports whether the tour is now
+// shorter than the best so far (s.bestLen).
 //
 // Measured with a fixed number of kicks on five TSPLIB instances and
 // three seeds: the mix gave a mean gap of 0.92%, double bridges alone
@@ -107,11 +109,57 @@ func (s *solver) doubleBridge(r *rng, u, w [4]int32) bool {
 	s.recording = false
 	if s.length <= before+s.eps {
 		s.journal = s.journal[:mark]
-		return s.length < before-s.eps
+		return s.newBest()
+	}
+	if s.slack > 0 && s.length <= s.bestLen+s.slack {
+		if !s.offBest {
+			s.keepBest(mark)
+		}
+		s.journal = s.journal[:mark]
+		return false
 	}
 	s.undo(mark)
 	s.length = before
 	return false
+}
+
+// newBest reports whether the tour is shorter than the best so far, and
+// if so makes it the best.
+func (s *solver) newBest() bool {
+	if s.length >= s.bestLen-s.eps {
+		return false
+	}
+	s.bestLen = s.length
+	s.offBest = false
+	return true
+}
+
+// keepBest copies the tour as it was before the reversals journalled
+// since mark (the best so far) into bestT: it undoes them, copies the
+// array, and makes them again.
+func (s *solver) keepBest(mark int) {
+	s.redo = append(s.redo[:0], s.journal[mark:]...)
+	length := s.length
+	s.undo(mark)
+	s.bestT = append(s.bestT[:0], s.t...)
+	for k := 0; k < len(s.redo); k += 2 {
+		s.reverseRange(s.redo[k], s.redo[k+1])
+	}
+	s.length = length
+	s.offBest = true
+}
+
+// restoreBest makes the best tour so far the tour.
+func (s *solver) restoreBest() {
+	if !s.offBest {
+		return
+	}
+	copy(s.t, s.bestT)
+	for i, v := range s.t {
+		s.pos[v] = int32(i)
+	}
+	s.length = s.bestLen
+	s.offBest = false
 }
 
 // repair runs the local search after a kick until the queue is empty or

@@ -165,6 +165,60 @@ func TestKickKeepsTour(t *testing.T) {
 	}
 }
 
+// TestKickSlack checks the record-to-record acceptance of kicks: with a
+// slack, a kicked tour may be kept longer than before but never more
+// than the slack above the best tour so far; the tracked lengths stay
+// exact, and restoreBest gives back a valid tour of exactly the shortest
+// length seen.
+func TestKickSlack(t *testing.T) {
+	r := rand.New(rand.NewPCG(8, 8))
+	for trial := range 60 {
+		n := 12 + r.IntN(200)
+		items := make([]Item, n)
+		for i := range items {
+			p := Point{X: r.Float64() * 100, Y: r.Float64() * 100}
+			q := p
+			if trial%2 == 1 && r.IntN(2) == 0 {
+				q = Point{X: p.X + r.Float64()*10, Y: p.Y + r.Float64()*10}
+			}
+			items[i] = Item{A: p, B: q}
+		}
+		g := newGraph(items, nil, nil, trial%3 == 0)
+		nb := buildNeighbours(g, 8, trial%2 == 1)
+		s := newSolver(g, nb, g.tourFromOrder(r.Perm(n), make([]bool, n)))
+		s.useLK = trial%4 == 3
+		s.localSearch(nil)
+		s.bestLen = s.length
+		s.slack = 0.5 * s.length / float64(n)
+		shortest := s.length
+		rg := newRNG(int64(trial))
+		for range 200 {
+			improved := s.kick(rg, 30)
+			after := s.tourLength()
+			if math.Abs(after-s.length) > 1e-6 {
+				t.Fatalf("trial %d: length %v, tracked %v", trial, after, s.length)
+			}
+			if after > shortest+s.slack+1e-6 {
+				t.Fatalf("trial %d: kept a tour %v above the best %v plus the slack %v", trial, after, shortest, s.slack)
+			}
+			if improved != (after < shortest-s.eps) {
+				t.Fatalf("trial %d: kick reported %v going from best %v to %v", trial, improved, shortest, after)
+			}
+			shortest = min(shortest, after)
+			if err := tourError(s); err != "" {
+				t.Fatalf("trial %d: %s", trial, err)
+			}
+		}
+		s.restoreBest()
+		if err := tourError(s); err != "" {
+			t.Fatalf("trial %d: after restoreBest: %s", trial, err)
+		}
+		if got := s.tourLength(); math.Abs(got-shortest) > 1e-6 || math.Abs(s.length-shortest) > 1e-6 {
+			t.Fatalf("trial %d: best tour %v (tracked %v), want %v", trial, got, s.length, shortest)
+		}
+	}
+}
+
 // TestFixedEnd checks paths that must finish at a given point (the last
 // group of a closed problem) against brute force, through the exact
 // solver and through the heuristic.

@@ -30,6 +30,16 @@ type solver struct {
 	dpFrom    []int8
 	eps       float64
 	length    float64 // current tour length, fixed edges included
+	// Record-to-record acceptance of kicks (kick.go): while slack > 0 a
+	// kicked tour is kept when it is at most slack longer than the best
+	// tour so far, which is then kept aside in bestT.
+	slack   float64
+	bestLen float64
+	bestT   []int32 // the best tour, when offBest
+	offBest bool    // the tour is longer than the best one, kept in bestT
+	redo    []int32
+	perm    []int32
+	permAt  int32
 }
 
 func newSolver(g *graph, nb *neighbours, tour []int32) *solver {

@@ -11,14 +11,18 @@
 //   - random reversible strokes (10^3 on 12 instances, 10^4 on 4): idle
 //     travel beside the greedy nearest-endpoint order, the gain's mean and
 //     worst over the instances, the Held-Karp lower bound, and with
-//     -longrun the gap to a long run on each instance.
+//     -longrun the gap to a long run on each instance;
+//   - with -shapes, generated point sets the engine was not tuned on
+//     (uniform, clustered, drilling-like patches, a grid with holes):
+//     each seed's gap to the best tour found for the instance, including
+//     a -longrun run's.
 //
 // The load average is printed at the start and the end: the machine may
 // be shared, so compare ratios measured in one run.
 //
 // Usage: go run ./planner/route/internal/yardstick [-budget 2s] [-seeds 1] [-huge]
 // [-only a,b] [-dir DIR] [-min 1000] [-max 20000] [-strokes 1000:12,10000:4]
-// [-longrun 60s] [-bound]
+// [-longrun 60s] [-bound] [-shapes 2000,5000] [-cpuprofile FILE]
 //
 // Built with -tags routecpu (go run -tags routecpu ./planner/route/internal/yardstick)
 // the budgets count the process's CPU time, not the wall clock: on a
@@ -32,7 +36,9 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"runtime/pprof"
 	"slices"
+	"strconv"
 	"strings"
 	"text/tabwriter"
 	"time"
@@ -54,7 +60,23 @@ func main() {
 	maxN := flag.Int("max", 20000, "largest TSPLIB instance measured, in nodes")
 	seeds := flag.Int("seeds", 1, "TSPLIB: solve each instance with this many seeds from -seed on (mean and worst)")
 	longRun := flag.Duration("longrun", 0, "strokes: also solve each instance with this budget and report the gap to that long run")
+	shapes := flag.String("shapes", "", "also generated point sets (testset.Shapes: uniform, clustered, patches, grid) of these sizes, e.g. 2000,5000: solved with -seeds seeds, gaps to the best tour found (with -longrun, a long run's too)")
+	cpuProfile := flag.String("cpuprofile", "", "write a CPU profile of the whole run to this file (go tool pprof)")
 	flag.Parse()
+	if *cpuProfile != "" {
+		f, err := os.Create(*cpuProfile)
+		if err == nil {
+			err = pprof.StartCPUProfile(f)
+		}
+		if err != nil {
+			fmt.Fprintln(os.Stderr, "yardstick: -cpuprofile:", err)
+			os.Exit(1)
+		}
+		defer func() {
+			pprof.StopCPUProfile()
+			f.Close()
+		}()
+	}
 	sizes, err := parseSizes(*strokes)
 	if err != nil {
 		fmt.Fprintln(os.Stderr, "yardstick: -strokes:", err)
@@ -94,6 +116,9 @@ func main() {
 	}
 	if want("strokes") {
 		strokesTable(opt, sizes, *allBounds, *longRun)
+	}
+	if *shapes != "" {
+		shapesTable(opt, *shapes, *seeds, *longRun)
 	}
 }
 
@@ -322,5 +347,62 @@ func strokesTable(opt route.Options, sizes []strokeSize, allBounds bool, longRun
 	for _, l := range lines {
 		fmt.Println(l)
 	}
+	fmt.Println()
+}
+
+// shapesTable solves the generated point sets of testset.Shapes at each
+// size with seeds seeds and prints each one's gap to the best tour found
+// for it (over the seeds and, with longRun, a run of that budget): the
+// engine's spread between seeds on instances it was not tuned on.
+func shapesTable(opt route.Options, spec string, seeds int, longRun time.Duration) {
+	var sizes []int
+	for _, f := range strings.Split(spec, ",") {
+		n, err := strconv.Atoi(strings.TrimSpace(f))
+		if err != nil || n < 10 || n > 200_000 {
+			fmt.Fprintf(os.Stderr, "yardstick: -shapes: %q is not a size of 10-200000 points\n", f)
+			os.Exit(2)
+		}
+		sizes = append(sizes, n)
+	}
+	ref := "the best of the seeds"
+	if longRun > 0 {
+		ref = fmt.Sprintf("the best of the seeds and a %v run (seed %d)", longRun, opt.Seed)
+	}
+	fmt.Printf("Generated point sets (testset.Shapes, instance seed 1), closed tours, %d seed(s) each: gap %% to %s\n", seeds, ref)
+	tw := tabwriter.NewWriter(os.Stdout, 2, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "shape	n	gap % mean	worst	best length	long run	CPU per solve	NN gap %	")
+	for _, sh := range testset.Shapes {
+		for _, n := range sizes {
+			p := route.Problem{Items: sh.Make(n, 1), Closed: true}
+			lengths := make([]float64, seeds)
+			var cpu time.Duration
+			for k := range seeds {
+				o := opt
+				o.Seed = opt.Seed + int64(k)
+				c0 := cpuTime()
+				s, _ := route.Solve(context.Background(), p, o)
+				cpu += cpuTime() - c0
+				lengths[k] = s.Length
+			}
+			best := slices.Min(lengths)
+			long := "\t"
+			if longRun > 0 {
+				lo := opt
+				lo.Budget = longRun
+				ls, _ := route.Solve(context.Background(), p, lo)
+				long = fmt.Sprintf("%.6g\t", ls.Length)
+				best = min(best, ls.Length)
+			}
+			var sum, worst float64
+			for _, l := range lengths {
+				g := 100 * (l/best - 1)
+				sum += g
+				worst = max(worst, g)
+			}
+			nn, _ := route.Nearest(p)
+			fmt.Fprintf(tw, "%s\t%d\t%.3f\t%.3f\t%.6g\t%s%.2fs\t%.2f\t\n", sh.Name, len(p.Items), sum/float64(seeds), worst, best, long, (cpu / time.Duration(seeds)).Seconds(), 100*(nn.Length/best-1))
+		}
+	}
+	tw.Flush()
 	fmt.Println()
 }
