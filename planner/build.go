@@ -182,7 +182,10 @@ func (b *builder) writing() ([]Window, Coverage, error) {
 		return nil, Coverage{}, err
 	}
 	b.openWindows(windows)
-	cov, strokes := CheckCoverage(lay.Surface, b.coverageRegions(), b.strokes, *prof)
+	cov, strokes, err := checkCoverage(b.ctx, lay.Surface, b.coverageRegions(), b.strokes, *prof)
+	if err != nil {
+		return nil, Coverage{}, err
+	}
 	b.strokes = strokes
 	if !cov.OK {
 		b.warnings = append(b.warnings, fmt.Sprintf("coverage check: %d site(s) outside every region clear with more than %.2g %%; see coverage.stray_sites", cov.OverLimit, 100*cov.StrayLimit))

@@ -1,6 +1,7 @@
 package planner
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"math/bits"
@@ -70,10 +71,28 @@ const coverageExamples = 6
 // apart, down to single sites summed exactly. A range taken at once
 // counts its sites a 64-bit word at a time. Cost: O(pieces · depth +
 // sites where the exposure changes fast + words of the ranges taken).
+//
+// The ranges are summed in chunks fixed by the geometry (coverageChunk)
+// on every core, and the chunks' sums added in chunk order, so the
+// result does not depend on the number of cores. A panic in the check
+// comes back as a panic of the caller's goroutine (Build gets it as an
+// *InternalError from checkCoverage).
 func CheckCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) (Coverage, []Stroke) {
+	cov, out, err := checkCoverage(context.Background(), surf, regions, strokes, prof)
+	if err != nil {
+		panic(err)
+	}
+	return cov, out
+}
+
+// checkCoverage is CheckCoverage that stops with ctx.Err() when ctx is
+// done and returns a panic of any of its workers as an *InternalError.
+func checkCoverage(ctx context.Context, surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) (Coverage, []Stroke, error) {
 	ck := newCoverageCheck(surf, regions, strokes, &prof)
-	ck.run()
-	return ck.cov, ck.strokes
+	if err := ck.run(ctx); err != nil {
+		return Coverage{}, nil, err
+	}
+	return ck.cov, ck.strokes, nil
 }
 
 type coverageCheck struct {
@@ -101,9 +120,11 @@ type coverageCheck struct {
 	own float64
 	// acc accumulates per region, other (index len(regions)) what no
 	// region's stroke is the main writer of.
-	acc       []regionAcc
-	missed    []float64 // per stroke
-	stray     []float64 // per stroke
+	acc    []regionAcc
+	missed []float64 // per stroke
+	stray  []float64 // per stroke
+	// A worker's marks of what its current chunk touched (chunkAcc).
+	touched   chunkMarks
 	nOver     int
 	straySite []StraySite
 	issues    []string
@@ -119,13 +140,9 @@ type regionAcc struct {
 func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof *Profile) *coverageCheck {
 	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: slices.Clone(strokes),
 		dwelled: lattice.NewSiteSet(),
-		exist:   make([]rowDimers, len(surf.Terraces)), allowed: make([]rowSpans, len(regions)*len(surf.Terraces)),
-		rows: make([]regionExtents, len(regions)*len(surf.Terraces)), rowRegs: make([][][]int32, len(surf.Terraces)),
-		acc: make([]regionAcc, len(regions)+1), missed: make([]float64, len(strokes)), stray: make([]float64, len(strokes))}
+		acc:     make([]regionAcc, len(regions)+1), missed: make([]float64, len(strokes)), stray: make([]float64, len(strokes))}
+	// exist, allowed, rows and rowRegs are each worker's (worker).
 	ck.own = prof.dwellOwnExposure()
-	for t := range surf.Terraces {
-		ck.exist[t] = rowDimers{dimers: make([][]lattice.DimerRange, surf.RowCount(t)), done: make([]bool, surf.RowCount(t))}
-	}
 	byName := map[string]int{}
 	sets := make([]*lattice.SiteSet, len(regions))
 	for i, r := range regions {
@@ -266,41 +283,6 @@ type siteRect struct {
 // sites).
 func (r siteRect) size() int { return (r.l1 - r.l0) * (r.d1 - r.d0) }
 
-func (ck *coverageCheck) run() {
-	for t := range ck.surf.Terraces {
-		rows, dimers := ck.surf.RowCount(t), ck.surf.DimerCount(t)
-		// Everything anything reaches: the painted sites and the pieces'
-		// boxes, as site lines and dimers.
-		l0, l1, d0, d1 := 2*rows, 0, dimers, 0
-		for r := 0; r < ck.painted.RowCount(t) && r < rows; r++ {
-			for side := 0; side < 2; side++ {
-				if first, last := ck.painted.Row(t, r).DimerExtent(lattice.SideOf(side)); first >= 0 {
-					l0, l1 = min(l0, 2*r+side), max(l1, 2*r+side+1)
-					d0, d1 = min(d0, first), max(d1, last+1)
-				}
-			}
-		}
-		for i := range ck.pieces[t] {
-			p := &ck.pieces[t][i]
-			l0 = min(l0, max(0, int(math.Floor((p.yLo+lattice.HOffset)/lattice.RowSpacing))*2))
-			l1 = max(l1, min(2*rows, (int(math.Ceil((p.yHi-lattice.HOffset)/lattice.RowSpacing))+1)*2))
-			d0 = min(d0, max(0, int(math.Floor(p.uLo/lattice.DimerPitch))))
-			d1 = max(d1, min(dimers, int(math.Ceil(p.uHi/lattice.DimerPitch))+1))
-		}
-		if l1 <= l0 || d1 <= d0 {
-			continue
-		}
-		all := make([]*piece, len(ck.pieces[t]))
-		for i := range ck.pieces[t] {
-			all[i] = &ck.pieces[t][i]
-		}
-		root := siteRect{t: t, l0: l0, l1: l1, d0: d0, d1: d1,
-			u0: lattice.DimerAlong(d0), u1: lattice.DimerAlong(d1 - 1), y0: lineY(l0), y1: lineY(l1 - 1)}
-		ck.decide(root, all, nil, nil, nil, nil)
-	}
-	ck.finish()
-}
-
 // finish assembles the Coverage from the accumulators.
 func (ck *coverageCheck) finish() {
 	cov := Coverage{Sites: ck.painted.Count(), StrayLimit: ck.prof.StrayLimit, OverLimit: ck.nOver, StraySites: ck.straySite, Issues: ck.issues}
@@ -341,9 +323,9 @@ func cmpFloat(a, b float64) int {
 // is no region's).
 func (ck *coverageCheck) accOf(who int32) *regionAcc {
 	if who >= 0 && ck.region[who] >= 0 {
-		return &ck.acc[ck.region[who]]
+		return ck.accAt(ck.region[who])
 	}
-	return &ck.acc[len(ck.regions)]
+	return ck.accAt(len(ck.regions))
 }
 
 // accurate reports whether a quantity known to lie in [lo, hi] for each
@@ -676,12 +658,13 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fy []float6
 					if k < len(regBits) && !regBits[k].Contains(i) || k >= len(regBits) && !ck.regions[ri].Sites.Contains(site) {
 						continue
 					}
-					ck.acc[ri].missed += miss
-					ck.acc[ri].logP += logOK
+					a := ck.accAt(int(ri))
+					a.missed += miss
+					a.logP += logOK
 				}
 			}
 			if w := who[k]; w >= 0 {
-				ck.missed[w] += miss
+				ck.addMissed(w, miss)
 			}
 			continue
 		}
@@ -701,8 +684,9 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fy []float6
 		ck.countStray(site, xi, p, w)
 	}
 	if len(regs) == 1 {
-		ck.acc[regs[0]].missed += oneMissed
-		ck.acc[regs[0]].logP += oneLog
+		a := ck.accAt(int(regs[0]))
+		a.missed += oneMissed
+		a.logP += oneLog
 	}
 }
 
@@ -796,12 +780,13 @@ func (ck *coverageCheck) countPainted(site lattice.Site, x float64, who int32) {
 	logOK := logNotMissed(x, miss)
 	for _, ri := range ck.regionsOnRow(site.Terrace, site.Row) {
 		if ck.regions[ri].Sites.Row(site.Terrace, site.Row).Contains(site.Index()) {
-			ck.acc[ri].missed += miss
-			ck.acc[ri].logP += logOK
+			a := ck.accAt(int(ri))
+			a.missed += miss
+			a.logP += logOK
 		}
 	}
 	if who >= 0 {
-		ck.missed[who] += miss
+		ck.addMissed(who, miss)
 	}
 }
 
@@ -812,7 +797,7 @@ func (ck *coverageCheck) countStray(site lattice.Site, x, p float64, who int32) 
 	acc.stray += p
 	acc.logP -= x
 	if who >= 0 {
-		ck.stray[who] += p
+		ck.addStray(who, p)
 	}
 	if p > ck.prof.StrayLimit {
 		ck.overLimit(site, p, who)
@@ -1016,14 +1001,14 @@ func (ck *coverageCheck) takePainted(r siteRect, lo, hi float64, who int32) {
 			if n == 0 {
 				continue
 			}
-			a := &ck.acc[ri]
+			a := ck.accAt(int(ri))
 			a.missed += float64(n) * miss
 			a.logP += float64(n) * logOK
 		}
 		total += countSide(ck.painted.Row(r.t, row), side, r.d0, r.d1)
 	}
 	if who >= 0 {
-		ck.missed[who] += float64(total) * miss
+		ck.addMissed(who, float64(total)*miss)
 	}
 }
 
@@ -1069,7 +1054,7 @@ func (ck *coverageCheck) take(r siteRect, lo, hi float64, who int32, active []*p
 				acc.stray += n * p
 				acc.logP -= n * x
 				if who >= 0 {
-					ck.stray[who] += n * p
+					ck.addStray(who, n*p)
 				}
 				continue
 			}

@@ -92,12 +92,16 @@ func (p *piece) uFactorAt(d int) float64 {
 	for k := range p.cache {
 		c := &p.cache[k]
 		if i := d - c.d0; i >= 0 && i < len(c.v) {
-			if c.v[i] == 0 {
+			v := c.v[i]
+			if v == 0 {
 				// 0 marks "not yet": a factor that is truly 0 is met
-				// again, at the cost of computing it again.
-				c.v[i] = p.uFactor(lattice.DimerAlong(d))
+				// again, at the cost of computing it again (and never
+				// stored, so a filled cache is only read: see fillCaches).
+				if v = p.uFactor(lattice.DimerAlong(d)); v != 0 {
+					c.v[i] = v
+				}
 			}
-			return c.v[i]
+			return v
 		}
 	}
 	// Outside the windows: 1 between a parallel piece's two ends, else 0.
@@ -154,8 +158,9 @@ func (p *piece) alongRange(d0, d1 int, amp, topAmp float64, x, best []float64, w
 		xs, bs, ws = xs[:len(vs)], bs[:len(vs)], ws[:len(vs)]
 		for k, v := range vs {
 			if v == 0 {
-				v = p.uFactor(lattice.DimerAlong(d + k))
-				vs[k] = v
+				if v = p.uFactor(lattice.DimerAlong(d + k)); v != 0 {
+					vs[k] = v
+				}
 			}
 			if e := amp * v; e > 0 {
 				xs[k] += e
@@ -307,8 +312,41 @@ func (p *piece) yFactorLine(l int) float64 {
 		return v
 	}
 	v := p.yFactor(lineY(l))
-	p.lines[i] = v
+	if v != 0 {
+		p.lines[i] = v
+	}
 	return v
+}
+
+// fillCaches fills the piece's caches of along factors (uFactorAt) and
+// across factors (yFactorLine) with the values the lazy paths would
+// store, so that afterwards they are only read: the coverage check's
+// workers share the pieces (coverage_pool.go). A factor that is truly 0
+// stays unstored, as on the lazy path.
+func (p *piece) fillCaches() {
+	if p.kind == pieceSlanted {
+		return
+	}
+	if p.cache[0].v == nil && !p.cache[0].filled {
+		p.uFactorAt(0) // allocates the windows
+	}
+	for k := range p.cache {
+		c := &p.cache[k]
+		for i := range c.v {
+			if c.v[i] == 0 {
+				c.v[i] = p.uFactor(lattice.DimerAlong(c.d0 + i))
+			}
+		}
+	}
+	if p.comb != nil {
+		return // its across factor is the comb's table
+	}
+	p.yFactorLine(0) // allocates the lines
+	for i := range p.lines {
+		if p.lines[i] == 0 {
+			p.lines[i] = p.yFactor(lineY(p.lines0 + i))
+		}
+	}
 }
 
 // uPeak and yPeak are where the factors peak.

@@ -1,0 +1,129 @@
+package planner
+
+import (
+	"context"
+	"errors"
+	"reflect"
+	"runtime"
+	"sync/atomic"
+	"testing"
+	"time"
+)
+
+// TestCoverageSameOnAnyCores: the coverage check cuts its work by the
+// geometry, never by the number of cores, and adds the chunks' sums in
+// chunk order, so the demo's coverage and strokes come out bit for bit
+// the same on one core, two and eight.
+func TestCoverageSameOnAnyCores(t *testing.T) {
+	surf, cr, ss, prof := demoCoverageInput(t, "gap-9")
+	if n := len(newCoverageCheck(surf, cr, ss, &prof).chunks()); n < 8 {
+		t.Fatalf("the demo's check has %d chunks: the test does not share them out", n)
+	}
+	check := func(procs int) (Coverage, []Stroke) {
+		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
+		return CheckCoverage(surf, cr, ss, prof)
+	}
+	cov1, st1 := check(1)
+	for _, procs := range []int{2, 8} {
+		cov, st := check(procs)
+		if !reflect.DeepEqual(cov, cov1) {
+			t.Errorf("%d cores: coverage differs from one core's (missed %.17g against %.17g, stray %.17g against %.17g)",
+				procs, cov.ExpectedMissed, cov1.ExpectedMissed, cov.ExpectedStray, cov1.ExpectedStray)
+		}
+		if !reflect.DeepEqual(st, st1) {
+			t.Errorf("%d cores: the strokes' expected missed/stray sites differ from one core's", procs)
+		}
+	}
+}
+
+// TestBuildSameOnAnyCores: the demo's whole plan is the same on one core
+// and four.
+func TestBuildSameOnAnyCores(t *testing.T) {
+	if testing.Short() {
+		t.Skip("plans the demo twice")
+	}
+	d := demo(t)
+	plan := func(procs int) *Plan {
+		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
+		p, err := buildVariant(context.Background(), d, "", DefaultProfile(), Options{Seed: 5})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	if one, four := plan(1), plan(4); !reflect.DeepEqual(one, four) {
+		t.Errorf("the demo's plan on four cores differs from the plan on one (total %v s against %v s)", four.TotalS, one.TotalS)
+	}
+}
+
+// TestCoverageCancelled: a check whose context is done stops with its
+// error.
+func TestCoverageCancelled(t *testing.T) {
+	surf, cr, ss, prof := demoCoverageInput(t, "gap-9")
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	for _, procs := range []int{1, 4} {
+		func() {
+			defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
+			if _, _, err := checkCoverage(ctx, surf, cr, ss, prof); !errors.Is(err, context.Canceled) {
+				t.Errorf("%d cores: err = %v, want context.Canceled", procs, err)
+			}
+		}()
+	}
+}
+
+// TestOnWorkers: every item runs once; a panic comes back as the
+// planner's internal error, a done context as its error, and no worker
+// outlives the call.
+func TestOnWorkers(t *testing.T) {
+	before := runtime.NumGoroutine()
+	for _, workers := range []int{1, 3} {
+		var runs [100]atomic.Int32
+		err := onWorkers(context.Background(), len(runs), workers, func() func(int) {
+			return func(i int) { runs[i].Add(1) }
+		})
+		if err != nil {
+			t.Fatalf("%d workers: %v", workers, err)
+		}
+		for i := range runs {
+			if n := runs[i].Load(); n != 1 {
+				t.Errorf("%d workers: item %d ran %d times", workers, i, n)
+			}
+		}
+		err = onWorkers(context.Background(), 100, workers, func() func(int) {
+			return func(i int) {
+				if i == 37 {
+					panic("broken invariant")
+				}
+			}
+		})
+		var ie *InternalError
+		if !errors.Is(err, ErrInternal) || !errors.As(err, &ie) || len(ie.Stack) == 0 {
+			t.Errorf("%d workers: a panic gave %v, want an *InternalError with its stack", workers, err)
+		}
+		ctx, cancel := context.WithCancel(context.Background())
+		var ran atomic.Int32
+		err = onWorkers(ctx, 1000, workers, func() func(int) {
+			return func(i int) {
+				if ran.Add(1) == 5 {
+					cancel()
+				}
+			}
+		})
+		if !errors.Is(err, context.Canceled) || ran.Load() > 5+int32(workers) {
+			t.Errorf("%d workers: cancelled after 5 items: err %v, %d items ran", workers, err, ran.Load())
+		}
+		cancel()
+	}
+	// Goroutines the runtime or other tests start may come and go: allow
+	// a moment, and none of ours must be left.
+	for range 50 {
+		if runtime.NumGoroutine() <= before {
+			break
+		}
+		time.Sleep(10 * time.Millisecond)
+	}
+	if n := runtime.NumGoroutine(); n > before {
+		t.Errorf("%d goroutines left after onWorkers (%d before)", n, before)
+	}
+}
