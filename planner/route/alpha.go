@@ -376,9 +376,27 @@ func ascend(sg *sparseGraph, nodes int, upper float64, iters int) ([]float64, fl
 
 // alphaCandidates returns, for each node, the kc nodes of its pool with
 // the smallest α (ties by distance), listed nearest first so that the
-// searches' gain criterion may stop at the first too-long edge. iters
-// bounds the subgradient iterations. It returns nil when the sparse
-// graph is not connected (it always is when tour is a tour).
+// searches' gain criterion may stop at the first too-long edge, and after
+// them up to farCands pool nodes (the smallest α first) more than
+// farReach times as far as the farthest of those. iters bounds the
+// subgradient iterations. It returns nil when the sparse graph is not
+// connected (it always is when tour is a tour).
+//
+// The far entries are for layouts of dense clusters (drilling-like
+// patches of points on a fine pitch): there the kc smallest α of a node
+// at a cluster's edge can all lie inside its cluster, so the edges to the
+// next clusters, which the tour must take, are nobody's candidates.
+// Measured with 2 s of CPU (DEVELOPERS.md): generated patches of 5,000
+// points 0.6% shorter on average over 16 seeds (the worst of 10 seeds
+// 1.6% shorter); the TSPLIB set, three pairs of runs of
+// 3-6 seeds, mean gap 0.262% before and 0.253% after, rl5915 better in
+// all three; uniform, clustered and grid layouts unchanged. Two far
+// entries, or a reach of 2x, made every TSPLIB instance worse.
+var (
+	farCands = 1
+	farReach = 5.0
+)
+
 func alphaCandidates(g *graph, pool *neighbours, tour []int32, kc, iters int) *neighbours {
 	sg := newSparseGraph(g, pool, tour)
 	upper := 0.0
@@ -395,7 +413,8 @@ func alphaCandidates(g *graph, pool *neighbours, tour []int32, kc, iters int) *n
 		alpha float64
 		d     float64
 	}
-	cand := &neighbours{k: kc, id: make([]int32, g.n()*kc), dst: make([]float64, g.n()*kc)}
+	kw := kc + farCands
+	cand := &neighbours{k: kw, id: make([]int32, g.n()*kw), dst: make([]float64, g.n()*kw)}
 	for i := range cand.id {
 		cand.id[i] = -1
 	}
@@ -413,9 +432,29 @@ func alphaCandidates(g *graph, pool *neighbours, tour []int32, kc, iters int) *n
 			}
 			return cmp.Compare(x.d, y.d)
 		})
-		buf = buf[:min(len(buf), kc)]
-		slices.SortFunc(buf, func(x, y scored) int { return cmp.Compare(x.d, y.d) })
-		o := int(v) * kc
+		m := min(len(buf), kc)
+		if farCands > 0 && m > 0 {
+			// The α-best pool nodes more than twice as far as the
+			// farthest candidate, after them.
+			reach := 0.0
+			for _, x := range buf[:m] {
+				reach = max(reach, x.d)
+			}
+			far := 0
+			for _, x := range buf[m:] {
+				if far < farCands && x.d > farReach*reach {
+					buf[m+far] = x
+					far++
+				}
+			}
+			slices.SortFunc(buf[:m], func(x, y scored) int { return cmp.Compare(x.d, y.d) })
+			slices.SortFunc(buf[m:m+far], func(x, y scored) int { return cmp.Compare(x.d, y.d) })
+			m += far
+		} else {
+			slices.SortFunc(buf[:m], func(x, y scored) int { return cmp.Compare(x.d, y.d) })
+		}
+		buf = buf[:m]
+		o := int(v) * kw
 		for j, s := range buf {
 			cand.id[o+j], cand.dst[o+j] = s.v, s.d
 		}

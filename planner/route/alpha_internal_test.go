@@ -154,3 +154,60 @@ func TestOneTreeBoundBelowOptimum(t *testing.T) {
 		t.Errorf("a280: bound %v after the ascent, %v at π=0, optimal tour %v", w, w0, opt)
 	}
 }
+
+// TestAlphaFarCandidates checks the candidate lists' far entries on a
+// layout of dense square patches far apart: every list holds the kc
+// α-nearest nearest first, then at most farCands entries each more than
+// farReach times as far as the farthest of those; and some node of every
+// patch has a far entry in another patch, so the search can relink the
+// patches.
+func TestAlphaFarCandidates(t *testing.T) {
+	const side, pitch, gap = 6, 1.0, 40.0
+	var items []Item
+	patch := []int{}
+	for p := range 9 {
+		ox, oy := float64(p%3)*gap, float64(p/3)*gap
+		for i := range side * side {
+			q := Point{X: ox + float64(i%side)*pitch, Y: oy + float64(i/side)*pitch}
+			items = append(items, Item{A: q, B: q})
+			patch = append(patch, p)
+		}
+	}
+	g := newGraph(items, nil, nil, false)
+	nb := buildNeighbours(g, 10, false)
+	const kc = 5
+	cand := alphaCandidates(g, buildPool(g, 10, 2), greedyTour(g, nb), kc, 25)
+	if cand == nil {
+		t.Fatal("no candidates")
+	}
+	if cand.k != kc+farCands {
+		t.Fatalf("lists of %d, want %d", cand.k, kc+farCands)
+	}
+	linked := make([]bool, 9)
+	for v := range int32(g.real) {
+		ids, ds := cand.list(v)
+		reach := 0.0
+		for j := range kc {
+			if ids[j] < 0 {
+				t.Fatalf("node %d: only %d α-candidates", v, j)
+			}
+			if j > 0 && ds[j] < ds[j-1] {
+				t.Fatalf("node %d: candidates not nearest first: %v", v, ds[:kc])
+			}
+			reach = max(reach, ds[j])
+		}
+		for j := kc; j < cand.k && ids[j] >= 0; j++ {
+			if ds[j] <= farReach*reach {
+				t.Errorf("node %d: far entry %d at %.1f, within %.0fx the reach %.1f", v, ids[j], ds[j], farReach, reach)
+			}
+			if patch[ids[j]] != patch[v] {
+				linked[patch[v]] = true
+			}
+		}
+	}
+	for p, ok := range linked {
+		if !ok {
+			t.Errorf("patch %d: no node has a candidate in another patch", p)
+		}
+	}
+}
