@@ -127,3 +127,18 @@ func TestOnWorkers(t *testing.T) {
 		t.Errorf("%d goroutines left after onWorkers (%d before)", n, before)
 	}
 }
+
+// BenchmarkCoverageDemoCores is BenchmarkCoverageDemo on the GOMAXPROCS
+// the benchmark runs with (go test -cpu 1,2): the check's wall time per
+// check over design.Lay's on the demo (x-layout), measured in the same
+// run. On a shared machine a second core only helps while it is free.
+func BenchmarkCoverageDemoCores(b *testing.B) {
+	surf, cr, ss, prof := demoCoverageInput(b, "gap-9")
+	layNS := layTime(b, demo(b))
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		CheckCoverage(surf, cr, ss, prof)
+	}
+	b.StopTimer()
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/layNS, "x-layout")
+}
