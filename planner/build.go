@@ -181,7 +181,9 @@ func (b *builder) writing() ([]Window, Coverage, error) {
 	if err := b.ctx.Err(); err != nil {
 		return nil, Coverage{}, err
 	}
-	b.openWindows(windows)
+	if err := b.openWindows(windows); err != nil {
+		return nil, Coverage{}, err
+	}
 	cov, strokes, err := checkCoverage(b.ctx, lay.Surface, b.coverageRegions(), b.strokes, *prof)
 	if err != nil {
 		return nil, Coverage{}, err

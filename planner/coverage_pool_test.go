@@ -8,6 +8,8 @@ import (
 	"sync/atomic"
 	"testing"
 	"time"
+
+	"dimerpath/lattice/design/designtest"
 )
 
 // TestCoverageSameOnAnyCores: the coverage check cuts its work by the
@@ -125,5 +127,53 @@ func TestOnWorkers(t *testing.T) {
 	}
 	if n := runtime.NumGoroutine(); n > before {
 		t.Errorf("%d goroutines left after onWorkers (%d before)", n, before)
+	}
+}
+
+// BenchmarkCoverageDemoCores is BenchmarkCoverageDemo on the GOMAXPROCS
+// the benchmark runs with (go test -cpu 1,2): the check's wall time per
+// check over design.Lay's on the demo (x-layout), measured in the same
+// run. On a shared machine a second core only helps while it is free.
+func BenchmarkCoverageDemoCores(b *testing.B) {
+	surf, cr, ss, prof := demoCoverageInput(b, "gap-9")
+	layNS := layTime(b, demo(b))
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		CheckCoverage(surf, cr, ss, prof)
+	}
+	b.StopTimer()
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/layNS, "x-layout")
+}
+
+// TestOpenWindowsSameOnAnyCores: the windows' P(opened as drawn) are
+// computed in blocks on every core; each window's figures are the same
+// on one core and four (and every window got them).
+func TestOpenWindowsSameOnAnyCores(t *testing.T) {
+	d := designtest.WindowArray(40, 30)
+	prof := DefaultProfile()
+	prof.Limits.ScanFieldNM = designtest.FieldNM(d)
+	lay, err := d.Lay("")
+	if err != nil {
+		t.Fatal(err)
+	}
+	windows := func(procs int) []Window {
+		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
+		p, err := Build(context.Background(), lay, prof, Options{Seed: 3, MonteCarloRuns: 50})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return p.Windows
+	}
+	one, four := windows(1), windows(4)
+	if len(one) < 3*openBlock {
+		t.Fatalf("%d windows: the test does not share blocks out (%d a block)", len(one), openBlock)
+	}
+	for i := range one {
+		if one[i].OpenProbability <= 0 || one[i].OpenProbability > 1 {
+			t.Errorf("window %d: P(opened as drawn) %v", i, one[i].OpenProbability)
+		}
+	}
+	if !reflect.DeepEqual(one, four) {
+		t.Errorf("the windows' figures on four cores differ from those on one")
 	}
 }

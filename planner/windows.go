@@ -2,6 +2,7 @@ package planner
 
 import (
 	"math"
+	"runtime"
 
 	"github.com/golang/geo/r2"
 
@@ -15,9 +16,14 @@ import (
 // window than drawn), and that no spurious dangling bond appears along
 // its own AP line (the profile's background, counted in full on the
 // window: where along a line it lands is not known).
-func (b *builder) openWindows(windows []Window) {
+//
+// The windows are independent: blocks of openBlock windows run on every
+// core (onWorkers), each window's figures the same on any number. It
+// returns ctx.Err() when Build's context is done, or a worker's panic as
+// an *InternalError.
+func (b *builder) openWindows(windows []Window) error {
 	if len(windows) == 0 {
-		return
+		return nil
 	}
 	surf := b.lay.Surface
 	points := make([]r2.Point, len(windows))
@@ -48,43 +54,61 @@ func (b *builder) openWindows(windows []Window) {
 			surf.TerraceAt(surf.DimerCentre(s.Terrace, s.Row, s.Dimer)) == s.Terrace
 	}
 	spurious := b.prof.AP.SpuriousPer100NM / 100
+	blocks := (len(windows) + openBlock - 1) / openBlock
+	return onWorkers(b.ctx, blocks, min(runtime.GOMAXPROCS(0), blocks), func() func(int) {
+		var own []r2.Point
+		return func(blk int) {
+			for i := blk * openBlock; i < min(len(windows), (blk+1)*openBlock); i++ {
+				own = b.openWindow(windows, i, ix, painted, lineNM[i]*spurious, valid, own)
+			}
+		}
+	})
+}
+
+// openBlock is the number of windows a worker of openWindows takes at a
+// time.
+const openBlock = 256
+
+// openWindow sets window i's figures (see openWindows); own is scratch,
+// returned for reuse.
+func (b *builder) openWindow(windows []Window, i int, ix *exposureIndex, painted *lattice.SiteSet, spuriousN float64,
+	valid func(lattice.Site) bool, own []r2.Point) []r2.Point {
+	surf := b.lay.Surface
 	const reach = lattice.RowSpacing + 1e-9
-	var own []r2.Point
-	for i := range windows {
-		w := b.placed[i]
-		logP := -spurious * lineNM[i]
-		own = own[:0]
-		for d := w.FirstDimer; d <= w.LastDimer(); d++ {
-			for side := range 2 {
-				if site := (lattice.Site{Terrace: w.Terrace, Row: w.Row, Dimer: d, Side: side}); d >= 0 && valid(site) {
-					own = append(own, surf.Position(site))
-				}
+	w := b.placed[i]
+	logP := -spuriousN
+	own = own[:0]
+	for d := w.FirstDimer; d <= w.LastDimer(); d++ {
+		for side := range 2 {
+			if site := (lattice.Site{Terrace: w.Terrace, Row: w.Row, Dimer: d, Side: side}); d >= 0 && valid(site) {
+				own = append(own, surf.Position(site))
 			}
 		}
-		for row := w.Row - 1; row <= w.Row+1; row++ {
-			for d := w.FirstDimer - 2; d <= w.LastDimer()+2; d++ {
-				for side := range 2 {
-					site := lattice.Site{Terrace: w.Terrace, Row: row, Dimer: d, Side: side}
-					if row < 0 || d < 0 || !valid(site) {
-						continue
-					}
-					mine := row == w.Row && d >= w.FirstDimer && d <= w.LastDimer()
-					p := surf.Position(site)
-					if !mine && (painted.Contains(site) || !within(own, p, reach)) {
-						continue
-					}
-					x, _ := ix.at(p)
-					if mine {
-						logP += math.Log(ClearProbability(x))
-					} else {
-						logP -= x
-					}
-				}
-			}
-		}
-		windows[i].OpenProbability = math.Exp(logP)
-		windows[i].Probability = windows[i].OpenProbability * windows[i].P1
 	}
+	for row := w.Row - 1; row <= w.Row+1; row++ {
+		for d := w.FirstDimer - 2; d <= w.LastDimer()+2; d++ {
+			for side := range 2 {
+				site := lattice.Site{Terrace: w.Terrace, Row: row, Dimer: d, Side: side}
+				if row < 0 || d < 0 || !valid(site) {
+					continue
+				}
+				mine := row == w.Row && d >= w.FirstDimer && d <= w.LastDimer()
+				p := surf.Position(site)
+				if !mine && (painted.Contains(site) || !within(own, p, reach)) {
+					continue
+				}
+				x, _ := ix.at(p)
+				if mine {
+					logP += math.Log(ClearProbability(x))
+				} else {
+					logP -= x
+				}
+			}
+		}
+	}
+	windows[i].OpenProbability = math.Exp(logP)
+	windows[i].Probability = windows[i].OpenProbability * windows[i].P1
+	return own
 }
 
 // within reports whether p is within r of one of ps. It compares squared
