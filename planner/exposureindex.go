@@ -87,8 +87,15 @@ func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64, p
 	lines := map[design.Mode]LineModel{design.ModeAP: prof.Line(design.ModeAP), design.ModeFE: prof.Line(design.ModeFE)}
 	dotReach := prof.Dwell.SigmaNM * math.Sqrt(2*math.Log(prof.Dwell.Completion/exposureNeglect))
 	// Every piece and dwell, twice: to count each cell's items, then to
-	// place them (one allocation for all lists, no map).
-	each := func(f func(a, b r2.Point, reach float64, item int32)) {
+	// keep and place them (one allocation for all lists, no map).
+	type piece struct {
+		a, b        r2.Point
+		reach, peak float64
+		sigma       float64
+		stroke      int32
+		item        int32 // index into segs (≥ 0) or ^index into dots
+	}
+	each := func(f func(p piece)) {
 		nseg, ndot := int32(0), int32(0)
 		for si := range strokes {
 			st := &strokes[si]
@@ -96,7 +103,7 @@ func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64, p
 				if len(st.Path) == 0 {
 					continue
 				}
-				f(st.Path[0], st.Path[0], dotReach, ^ndot)
+				f(piece{a: st.Path[0], b: st.Path[0], reach: dotReach, stroke: int32(si), item: ^ndot})
 				ndot++
 				continue
 			}
@@ -111,20 +118,20 @@ func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64, p
 				if a == b {
 					continue
 				}
-				f(a, b, reach, nseg)
+				f(piece{a: a, b: b, reach: reach, peak: peak, sigma: l.SigmaNM, stroke: int32(si), item: nseg})
 				nseg++
 			}
 		}
 	}
 	count := make([]int32, int(blocks)*indexCoarse*indexCoarse+1)
 	nseg, ndot := 0, 0
-	each(func(a, b r2.Point, reach float64, item int32) {
-		if item >= 0 {
+	each(func(p piece) {
+		if p.item >= 0 {
 			nseg++
 		} else {
 			ndot++
 		}
-		ix.insert(a, b, reach, func(k int32) { count[k+1]++ })
+		ix.insert(p.a, p.b, p.reach, func(k int32) { count[k+1]++ })
 	})
 	ix.segs, ix.dots = make([]expSeg, 0, nseg), make([]expDot, 0, ndot)
 	for k := 1; k < len(count); k++ {
@@ -133,31 +140,14 @@ func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64, p
 	ix.start = count
 	ix.items = make([]int32, count[len(count)-1])
 	next := slices.Clone(count[:len(count)-1])
-	for si := range strokes {
-		st := &strokes[si]
-		if st.Kind == StrokeDwell {
-			if len(st.Path) > 0 {
-				ix.dots = append(ix.dots, expDot{at: st.Path[0], stroke: int32(si)})
-			}
-			continue
+	each(func(p piece) {
+		if p.item >= 0 {
+			L := p.b.Sub(p.a).Norm()
+			ix.segs = append(ix.segs, expSeg{a: p.a, u: p.b.Sub(p.a).Mul(1 / L), L: L, reach: p.reach, peak: p.peak, sigma: p.sigma, stroke: p.stroke})
+		} else {
+			ix.dots = append(ix.dots, expDot{at: p.a, stroke: p.stroke})
 		}
-		l := lines[st.Mode]
-		peak := l.PassPeak * float64(max(st.Passes, 1))
-		if !(peak > exposureNeglect) {
-			continue
-		}
-		reach := l.SigmaNM * math.Sqrt(2*math.Log(peak/exposureNeglect))
-		for k := 0; k+1 < len(st.Path); k++ {
-			a, b := st.Path[k], st.Path[k+1]
-			if a == b {
-				continue
-			}
-			L := b.Sub(a).Norm()
-			ix.segs = append(ix.segs, expSeg{a: a, u: b.Sub(a).Mul(1 / L), L: L, reach: reach, peak: peak, sigma: l.SigmaNM, stroke: int32(si)})
-		}
-	}
-	each(func(a, b r2.Point, reach float64, item int32) {
-		ix.insert(a, b, reach, func(k int32) { ix.items[next[k]] = item; next[k]++ })
+		ix.insert(p.a, p.b, p.reach, func(k int32) { ix.items[next[k]] = p.item; next[k]++ })
 	})
 	return ix
 }

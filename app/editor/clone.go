@@ -47,39 +47,34 @@ func cloneDesignShell(d *design.Design) *design.Design {
 	return &c
 }
 
+// cloneRules copies every rule a pointer holds, so an undo snapshot
+// keeps its values when the live design's rules change
+// (TestCloneRulesSharesNothing finds the fields by reflection).
 func cloneRules(r design.Rules) design.Rules {
-	cp := func(p *float64) *float64 {
-		if p == nil {
-			return nil
-		}
-		v := *p
-		return &v
-	}
-	cpi := func(p *int) *int {
-		if p == nil {
-			return nil
-		}
-		v := *p
-		return &v
-	}
-	if r.ScanFieldNM != nil {
-		v := *r.ScanFieldNM
-		r.ScanFieldNM = &v
-	}
-	r.WindowGapDimers = cpi(r.WindowGapDimers)
-	r.WindowFacingRows = cpi(r.WindowFacingRows)
-	r.FEKeepOutNM = cp(r.FEKeepOutNM)
-	r.TunnelGapMinNM = cp(r.TunnelGapMinNM)
-	r.TunnelGapMaxNM = cp(r.TunnelGapMaxNM)
-	r.APToleranceNM = cp(r.APToleranceNM)
-	r.FEToleranceNM = cp(r.FEToleranceNM)
-	r.LeadToleranceNM = cp(r.LeadToleranceNM)
-	r.GateToleranceNM = cp(r.GateToleranceNM)
-	r.PadToleranceNM = cp(r.PadToleranceNM)
-	r.TunnelGapToleranceNM = cp(r.TunnelGapToleranceNM)
-	r.DefectWindowClearanceNM = cp(r.DefectWindowClearanceNM)
-	r.DefectClearanceNM = cp(r.DefectClearanceNM)
+	r.ScanFieldNM = clonePointer(r.ScanFieldNM)
+	r.WindowGapDimers = clonePointer(r.WindowGapDimers)
+	r.WindowFacingRows = clonePointer(r.WindowFacingRows)
+	r.FEKeepOutNM = clonePointer(r.FEKeepOutNM)
+	r.TunnelGapMinNM = clonePointer(r.TunnelGapMinNM)
+	r.TunnelGapMaxNM = clonePointer(r.TunnelGapMaxNM)
+	r.APToleranceNM = clonePointer(r.APToleranceNM)
+	r.FEToleranceNM = clonePointer(r.FEToleranceNM)
+	r.LeadToleranceNM = clonePointer(r.LeadToleranceNM)
+	r.GateToleranceNM = clonePointer(r.GateToleranceNM)
+	r.PadToleranceNM = clonePointer(r.PadToleranceNM)
+	r.TunnelGapToleranceNM = clonePointer(r.TunnelGapToleranceNM)
+	r.DefectWindowClearanceNM = clonePointer(r.DefectWindowClearanceNM)
+	r.DefectClearanceNM = clonePointer(r.DefectClearanceNM)
 	return r
+}
+
+// clonePointer returns a pointer to a copy of *p, or nil.
+func clonePointer[T any](p *T) *T {
+	if p == nil {
+		return nil
+	}
+	v := *p
+	return &v
 }
 
 func cloneVariant(v design.Variant) design.Variant {
