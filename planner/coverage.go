@@ -123,12 +123,15 @@ type coverageCheck struct {
 	acc    []regionAcc
 	missed []float64 // per stroke
 	stray  []float64 // per stroke
-	// A worker's marks of what its current chunk touched (chunkAcc).
+	// A worker's marks of what its current chunk touched (chunkMarks).
 	touched   chunkMarks
 	nOver     int
 	straySite []StraySite
-	issues    []string
-	cov       Coverage
+	// heldStraysPeak is the most stray sites the chunk merger held
+	// waiting at once (see chunkMerger; for the tests).
+	heldStraysPeak int
+	issues         []string
+	cov            Coverage
 }
 
 // regionAcc accumulates one region's expectation; logP is the natural

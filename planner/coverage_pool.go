@@ -6,6 +6,7 @@ import (
 	"math"
 	"runtime"
 	"runtime/debug"
+	"slices"
 	"sync"
 	"sync/atomic"
 
@@ -96,7 +97,7 @@ func (ck *coverageCheck) addStray(si int32, v float64) {
 // chunk order, and assembles the Coverage.
 func (ck *coverageCheck) run(ctx context.Context) error {
 	chunks := ck.chunks()
-	sums := make([]chunkSums, len(chunks))
+	merge := &chunkMerger{ck: ck, sums: make([]chunkSums, len(chunks)), done: make([]bool, len(chunks))}
 	workers := min(runtime.GOMAXPROCS(0), len(chunks))
 	if workers > 1 {
 		// The pieces' caches filled before the workers share them.
@@ -124,17 +125,65 @@ func (ck *coverageCheck) run(ctx context.Context) error {
 			w.touched.id = int32(i + 1)
 			c := &chunks[i]
 			w.decide(c.r, c.pieces, nil, nil, nil, nil)
-			sums[i] = w.flush()
+			merge.put(i, w.flush())
 		}
 	})
 	if err != nil {
 		return err
 	}
-	for i := range sums {
-		ck.add(&sums[i])
-	}
+	ck.heldStraysPeak = merge.peak
 	ck.finish()
 	return nil
+}
+
+// chunkMerger adds the chunks' sums to the check in chunk order as soon
+// as every earlier chunk is done, so a chunk's sums wait only while an
+// earlier chunk is still being summed; and of the waiting chunks' stray
+// sites it keeps only as many as can still be among the check's first
+// MaxStraySites. So an overdosed plan or a tiny stray limit (every chunk
+// full of stray sites) holds at most MaxStraySites waiting, plus one
+// chunk's per worker, whatever the field's size; the result is the same
+// as adding every chunk at the end.
+type chunkMerger struct {
+	mu   sync.Mutex
+	ck   *coverageCheck
+	sums []chunkSums
+	done []bool
+	next int // chunks before next are added
+	held int // stray sites of done chunks not yet added
+	peak int // the most held at once (for the tests)
+}
+
+// put records chunk i's sums and adds every chunk it completes the
+// ordered run of.
+func (m *chunkMerger) put(i int, s chunkSums) {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	m.sums[i], m.done[i] = s, true
+	m.held += len(s.straySite)
+	for m.next < len(m.sums) && m.done[m.next] {
+		m.held -= len(m.sums[m.next].straySite)
+		m.ck.add(&m.sums[m.next])
+		m.sums[m.next] = chunkSums{}
+		m.next++
+	}
+	room := max(0, MaxStraySites-len(m.ck.straySite))
+	if m.held > room {
+		// Chunks added later come after these, so their first sites are
+		// the only ones that can still be listed.
+		m.held = 0
+		for j := m.next; j < len(m.sums); j++ {
+			if !m.done[j] {
+				continue
+			}
+			if ss := m.sums[j].straySite; len(ss) > room {
+				m.sums[j].straySite = slices.Clone(ss[:room])
+			}
+			room -= len(m.sums[j].straySite)
+			m.held += len(m.sums[j].straySite)
+		}
+	}
+	m.peak = max(m.peak, m.held)
 }
 
 // chunks returns the check's chunks: for each terrace, in the order of

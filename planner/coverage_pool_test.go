@@ -177,3 +177,39 @@ func TestOpenWindowsSameOnAnyCores(t *testing.T) {
 		t.Errorf("the windows' figures on four cores differ from those on one")
 	}
 }
+
+// TestStraySitesHeldBounded: with a stray limit so low that every chunk
+// reports thousands of sites over it (an overdosed plan looks the same),
+// the chunks waiting to be added hold at most MaxStraySites of them, on
+// any number of cores, and the check lists the same first MaxStraySites
+// as one core does (found by review: each chunk kept its own 10,000 until
+// the end, ~385,000 on the demo).
+func TestStraySitesHeldBounded(t *testing.T) {
+	if testing.Short() {
+		t.Skip("sums the demo's coverage three times")
+	}
+	surf, cr, ss, prof := demoCoverageInput(t, "gap-9")
+	prof.StrayLimit = 1e-300
+	check := func(procs int) *coverageCheck {
+		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
+		ck := newCoverageCheck(surf, cr, ss, &prof)
+		if err := ck.run(context.Background()); err != nil {
+			t.Fatal(err)
+		}
+		return ck
+	}
+	one := check(1)
+	if one.cov.OverLimit < 10*MaxStraySites || len(one.cov.StraySites) != MaxStraySites {
+		t.Fatalf("%d sites over the limit, %d listed: the test needs many more than MaxStraySites (%d)", one.cov.OverLimit, len(one.cov.StraySites), MaxStraySites)
+	}
+	for _, procs := range []int{2, 8} {
+		ck := check(procs)
+		if ck.heldStraysPeak > MaxStraySites {
+			t.Errorf("%d cores: %d stray sites held waiting at once, more than MaxStraySites (%d)", procs, ck.heldStraysPeak, MaxStraySites)
+		}
+		if !reflect.DeepEqual(ck.cov, one.cov) {
+			t.Errorf("%d cores: the coverage differs from one core's (%d stray sites listed, %d over the limit; one core %d, %d)",
+				procs, len(ck.cov.StraySites), ck.cov.OverLimit, len(one.cov.StraySites), one.cov.OverLimit)
+		}
+	}
+}

@@ -434,7 +434,7 @@ func alphaCandidates(g *graph, pool *neighbours, tour []int32, kc, iters int) *n
 		})
 		m := min(len(buf), kc)
 		if farCands > 0 && m > 0 {
-			// The α-best pool nodes more than twice as far as the
+			// The α-best pool nodes more than farReach times as far as the
 			// farthest candidate, after them.
 			reach := 0.0
 			for _, x := range buf[:m] {

@@ -38,8 +38,6 @@ type solver struct {
 	bestT   []int32 // the best tour, when offBest
 	offBest bool    // the tour is longer than the best one, kept in bestT
 	redo    []int32
-	perm    []int32
-	permAt  int32
 }
 
 func newSolver(g *graph, nb *neighbours, tour []int32) *solver {
