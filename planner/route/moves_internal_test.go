@@ -133,19 +133,7 @@ func TestOrientUnits(t *testing.T) {
 func TestKickKeepsTour(t *testing.T) {
 	r := rand.New(rand.NewPCG(4, 4))
 	for trial := range 100 {
-		n := 12 + r.IntN(200)
-		items := make([]Item, n)
-		for i := range items {
-			p := Point{X: r.Float64() * 100, Y: r.Float64() * 100}
-			q := p
-			if trial%2 == 1 && r.IntN(2) == 0 {
-				q = Point{X: p.X + r.Float64()*10, Y: p.Y + r.Float64()*10}
-			}
-			items[i] = Item{A: p, B: q}
-		}
-		g := newGraph(items, nil, nil, trial%3 == 0)
-		nb := buildNeighbours(g, 8, trial%2 == 1)
-		s := newSolver(g, nb, g.tourFromOrder(r.Perm(n), make([]bool, n)))
+		s, _ := randomKickSolver(r, trial)
 		s.or3 = true
 		if trial%4 == 3 {
 			s.useLK = true // the chained search
@@ -173,19 +161,7 @@ func TestKickKeepsTour(t *testing.T) {
 func TestKickSlack(t *testing.T) {
 	r := rand.New(rand.NewPCG(8, 8))
 	for trial := range 60 {
-		n := 12 + r.IntN(200)
-		items := make([]Item, n)
-		for i := range items {
-			p := Point{X: r.Float64() * 100, Y: r.Float64() * 100}
-			q := p
-			if trial%2 == 1 && r.IntN(2) == 0 {
-				q = Point{X: p.X + r.Float64()*10, Y: p.Y + r.Float64()*10}
-			}
-			items[i] = Item{A: p, B: q}
-		}
-		g := newGraph(items, nil, nil, trial%3 == 0)
-		nb := buildNeighbours(g, 8, trial%2 == 1)
-		s := newSolver(g, nb, g.tourFromOrder(r.Perm(n), make([]bool, n)))
+		s, n := randomKickSolver(r, trial)
 		s.useLK = trial%4 == 3
 		s.localSearch(nil)
 		s.bestLen = s.length
@@ -378,4 +354,23 @@ func tourError(s *solver) string {
 		}
 	}
 	return ""
+}
+
+// randomKickSolver returns a solver on a random tour of n (12–211) items
+// in a 100 x 100 square: points, and on odd trials some strokes up to 14
+// long, with quadrant neighbours; every third trial an open tour.
+func randomKickSolver(r *rand.Rand, trial int) (*solver, int) {
+	n := 12 + r.IntN(200)
+	items := make([]Item, n)
+	for i := range items {
+		p := Point{X: r.Float64() * 100, Y: r.Float64() * 100}
+		q := p
+		if trial%2 == 1 && r.IntN(2) == 0 {
+			q = Point{X: p.X + r.Float64()*10, Y: p.Y + r.Float64()*10}
+		}
+		items[i] = Item{A: p, B: q}
+	}
+	g := newGraph(items, nil, nil, trial%3 == 0)
+	nb := buildNeighbours(g, 8, trial%2 == 1)
+	return newSolver(g, nb, g.tourFromOrder(r.Perm(n), make([]bool, n))), n
 }
