@@ -158,6 +158,34 @@ func TestRowDimersMatchesValid(t *testing.T) {
 	}
 }
 
+// Validator answers as Valid for every site of a surface with a slanted
+// step, out-of-range indices, sides and terraces included.
+func TestValidatorMatchesValid(t *testing.T) {
+	s := twoTerraces(t)
+	valid := s.Validator()
+	checked := 0
+	for ti := -1; ti <= len(s.Terraces); ti++ {
+		rows, dimers := 3, 3
+		if ti >= 0 && ti < len(s.Terraces) {
+			rows, dimers = s.RowCount(ti), s.DimerCount(ti)
+		}
+		for r := -1; r <= rows; r++ {
+			for d := -1; d <= dimers; d++ {
+				for side := -1; side <= 2; side++ {
+					site := Site{Terrace: ti, Row: r, Dimer: d, Side: side}
+					if got, want := valid(site), s.Valid(site); got != want {
+						t.Fatalf("%v: Validator %v, Valid %v", site, got, want)
+					}
+					checked++
+				}
+			}
+		}
+	}
+	if checked < 1000 {
+		t.Fatalf("only %d sites checked", checked)
+	}
+}
+
 // Dimers(win) yields every existing dimer with a site in win, in
 // address order, and no dimer whose cell misses win.
 func TestDimersInWindow(t *testing.T) {

@@ -249,10 +249,32 @@ func (s *Surface) DimerCount(terrace int) int {
 // Valid reports whether site is an address on this surface: a known
 // terrace, indices in range, and a position on that terrace.
 func (s *Surface) Valid(site Site) bool {
-	if site.Terrace < 0 || site.Terrace >= len(s.Terraces) || site.Side < 0 || site.Side > 1 {
+	if site.Terrace < 0 || site.Terrace >= len(s.Terraces) {
 		return false
 	}
-	if site.Row < 0 || site.Row >= s.RowCount(site.Terrace) || site.Dimer < 0 || site.Dimer >= s.DimerCount(site.Terrace) {
+	return s.validIn(site, s.RowCount(site.Terrace), s.DimerCount(site.Terrace))
+}
+
+// Validator returns Valid for asking about many sites: each terrace's row
+// and dimer counts are worked out once (Valid works them out on every
+// call). It answers for the surface as it is when made.
+func (s *Surface) Validator() func(Site) bool {
+	rows, dimers := make([]int, len(s.Terraces)), make([]int, len(s.Terraces))
+	for t := range s.Terraces {
+		rows[t], dimers[t] = s.RowCount(t), s.DimerCount(t)
+	}
+	return func(site Site) bool {
+		if site.Terrace < 0 || site.Terrace >= len(rows) {
+			return false
+		}
+		return s.validIn(site, rows[site.Terrace], dimers[site.Terrace])
+	}
+}
+
+// validIn is Valid for a site of a known terrace with rows rows of dimers
+// dimers.
+func (s *Surface) validIn(site Site, rows, dimers int) bool {
+	if site.Side < 0 || site.Side > 1 || site.Row < 0 || site.Row >= rows || site.Dimer < 0 || site.Dimer >= dimers {
 		return false
 	}
 	return s.TerraceAt(s.DimerCentre(site.Terrace, site.Row, site.Dimer)) == site.Terrace

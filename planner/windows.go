@@ -42,17 +42,8 @@ func (b *builder) openWindows(windows []Window) error {
 			lineNM[st.Window] += st.LengthNM * float64(max(st.Passes, 1))
 		}
 	}
-	// surf.Valid with each terrace's row and dimer counts computed once
-	// (it computed them for every one of 4·10^7 sites around 10^6 windows).
-	rowCount, dimerCount := make([]int, len(surf.Terraces)), make([]int, len(surf.Terraces))
-	for t := range surf.Terraces {
-		rowCount[t], dimerCount[t] = surf.RowCount(t), surf.DimerCount(t)
-	}
-	valid := func(s lattice.Site) bool {
-		return s.Terrace >= 0 && s.Terrace < len(rowCount) && s.Side >= 0 && s.Side <= 1 &&
-			s.Row >= 0 && s.Row < rowCount[s.Terrace] && s.Dimer >= 0 && s.Dimer < dimerCount[s.Terrace] &&
-			surf.TerraceAt(surf.DimerCentre(s.Terrace, s.Row, s.Dimer)) == s.Terrace
-	}
+	// Some 4·10^7 sites around 10^6 windows are asked about.
+	valid := surf.Validator()
 	spurious := b.prof.AP.SpuriousPer100NM / 100
 	blocks := (len(windows) + openBlock - 1) / openBlock
 	return onWorkers(b.ctx, blocks, min(runtime.GOMAXPROCS(0), blocks), func() func(int) {
