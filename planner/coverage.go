@@ -8,6 +8,7 @@ import (
 	"slices"
 
 	"github.com/golang/geo/r1"
+	"github.com/golang/geo/r2"
 
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
@@ -182,11 +183,9 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 			}
 			amp, sigma := prof.Dwell.Completion, prof.Dwell.SigmaNM
 			reach := sigma * math.Sqrt(2*math.Log(amp/exposureNeglect))
-			for t := range surf.Terraces {
-				if ck.grid == nil || ck.grid.reaches(t, st.Path[0], st.Path[0]) {
-					ck.pieces[t] = append(ck.pieces[t], makeDot(surf, t, int32(i), st.Path[0], amp, sigma, reach))
-				}
-			}
+			ck.eachPiece(st, lines, func(t int, a, _ r2.Point) {
+				ck.pieces[t] = append(ck.pieces[t], makeDot(surf, t, int32(i), a, amp, sigma, reach))
+			})
 			continue
 		}
 		l := lines[st.Mode]
@@ -209,18 +208,9 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 				starts[t] = len(ck.pieces[t])
 			}
 		}
-		for k := 0; k+1 < len(st.Path); k++ {
-			a, b := st.Path[k], st.Path[k+1]
-			if a == b {
-				continue
-			}
-			for t := range surf.Terraces {
-				if ck.grid != nil && !ck.grid.reaches(t, a, b) {
-					continue
-				}
-				ck.pieces[t] = append(ck.pieces[t], makePiece(surf, t, int32(i), a, b, amp, l.SigmaNM, reach))
-			}
-		}
+		ck.eachPiece(st, lines, func(t int, a, b r2.Point) {
+			ck.pieces[t] = append(ck.pieces[t], makePiece(surf, t, int32(i), a, b, amp, l.SigmaNM, reach))
+		})
 		if grouped {
 			for t := range surf.Terraces {
 				ps := groupCombs(ck.pieces[t][starts[t]:])
@@ -236,35 +226,38 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 func (ck *coverageCheck) countPieces(strokes []Stroke, lines map[design.Mode]LineModel) []int {
 	n := make([]int, len(ck.surf.Terraces))
 	for i := range strokes {
-		st := &strokes[i]
-		if st.Kind == StrokeDwell {
-			if len(st.Path) == 0 {
-				continue
-			}
-			for t := range n {
-				if ck.grid == nil || ck.grid.reaches(t, st.Path[0], st.Path[0]) {
-					n[t]++
-				}
-			}
-			continue
-		}
-		l := lines[st.Mode]
-		if amp := l.PassPeak * float64(max(st.Passes, 1)); amp <= exposureNeglect || !(l.SigmaNM > 0) {
-			continue
-		}
-		for k := 0; k+1 < len(st.Path); k++ {
-			a, b := st.Path[k], st.Path[k+1]
-			if a == b {
-				continue
-			}
-			for t := range n {
-				if ck.grid == nil || ck.grid.reaches(t, a, b) {
-					n[t]++
-				}
+		ck.eachPiece(&strokes[i], lines, func(t int, _, _ r2.Point) { n[t]++ })
+	}
+	return n
+}
+
+// eachPiece calls f with every piece the check makes of stroke st: its
+// terrace and ends, a dwell's point as both; a line only where its peak
+// exposure is above exposureNeglect, a straight part of it on each
+// terrace the grid says it may reach.
+func (ck *coverageCheck) eachPiece(st *Stroke, lines map[design.Mode]LineModel, f func(t int, a, b r2.Point)) {
+	each := func(a, b r2.Point) {
+		for t := range ck.surf.Terraces {
+			if ck.grid == nil || ck.grid.reaches(t, a, b) {
+				f(t, a, b)
 			}
 		}
 	}
-	return n
+	if st.Kind == StrokeDwell {
+		if len(st.Path) > 0 {
+			each(st.Path[0], st.Path[0])
+		}
+		return
+	}
+	l := lines[st.Mode]
+	if amp := l.PassPeak * float64(max(st.Passes, 1)); amp <= exposureNeglect || !(l.SigmaNM > 0) {
+		return
+	}
+	for k := 0; k+1 < len(st.Path); k++ {
+		if a, b := st.Path[k], st.Path[k+1]; a != b {
+			each(a, b)
+		}
+	}
 }
 
 // lineY is the across coordinate of site line l: the sites of side l%2
