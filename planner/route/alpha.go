@@ -433,25 +433,20 @@ func alphaCandidates(g *graph, pool *neighbours, tour []int32, kc, iters int) *n
 			return cmp.Compare(x.d, y.d)
 		})
 		m := min(len(buf), kc)
+		byLength := func(x, y scored) int { return cmp.Compare(x.d, y.d) }
+		slices.SortFunc(buf[:m], byLength)
 		if farCands > 0 && m > 0 {
 			// The α-best pool nodes more than farReach times as far as the
-			// farthest candidate, after them.
-			reach := 0.0
-			for _, x := range buf[:m] {
-				reach = max(reach, x.d)
-			}
-			far := 0
+			// farthest candidate (the last, now), after them.
+			reach, far := buf[m-1].d, 0
 			for _, x := range buf[m:] {
 				if far < farCands && x.d > farReach*reach {
 					buf[m+far] = x
 					far++
 				}
 			}
-			slices.SortFunc(buf[:m], func(x, y scored) int { return cmp.Compare(x.d, y.d) })
-			slices.SortFunc(buf[m:m+far], func(x, y scored) int { return cmp.Compare(x.d, y.d) })
+			slices.SortFunc(buf[m:m+far], byLength)
 			m += far
-		} else {
-			slices.SortFunc(buf[:m], func(x, y scored) int { return cmp.Compare(x.d, y.d) })
 		}
 		buf = buf[:m]
 		o := int(v) * kw
