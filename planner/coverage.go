@@ -527,7 +527,7 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		}
 	}
 	if (r.l1-r.l0 == 1 && r.d1-r.d0 <= scanDimers) || r.size() <= scanSites {
-		ck.scan(r, active, fy0)
+		ck.scan(r, active)
 		return
 	}
 	ck.split(r, active, fu0, fu1, fy0, fy1)
@@ -546,50 +546,56 @@ const (
 // along factor is flat (rather than halving).
 const flatLines = 32
 
-// scan sums the sites of r one by one, a site line at a time: each
-// piece's across factor is the same along the line (fy for r's first
-// line, computed afresh for the others), so only its along factor is
-// computed per site.
-func (ck *coverageCheck) scan(r siteRect, active []*piece, fy []float64) {
-	if r.l1-r.l0 > 1 {
-		top := len(ck.arena)
-		ck.grow(len(active))
-		defer func() { ck.arena = ck.arena[:top] }()
-		fy = ck.arena[top:]
-	}
-	for l := r.l0; l < r.l1; l++ {
-		if r.l1-r.l0 > 1 {
-			for i, p := range active {
-				if p.kind != pieceSlanted {
-					fy[i] = p.yFactorLine(l)
-				}
-			}
-		}
-		ck.scanLine(r.t, l, r.d0, r.d1, active, fy)
-	}
-}
-
-// scanLine sums dimers [d0, d1) of site line l of terrace t (see scan):
-// the exposure of every dimer is summed piece by piece into a buffer (an
-// along factor from each piece's cache times its amplitude on this line),
-// then each site is counted: painted ones as missed, unpainted ones that
-// exist beyond the allowance as stray.
-func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fy []float64) {
-	row, side := l/2, l%2
-	y := lineY(l)
-	n := d1 - d0
+// scan sums the sites of r one by one, a site line at a time. The along
+// factors of its parallel and square pieces (combs included) over r's
+// dimers are looked up once for all of r's lines, and where every active
+// piece is one stroke's the largest term of each site need not be
+// tracked (that stroke is the site's writer wherever it is reached).
+func (ck *coverageCheck) scan(r siteRect, active []*piece) {
+	n, np := r.d1-r.d0, len(active)
 	atop := len(ck.arena)
-	ck.grow(2 * n)
-	x, best := ck.arena[atop:atop+n], ck.arena[atop+n:atop+2*n]
+	ck.grow(np*n + 2*n)
 	defer func() { ck.arena = ck.arena[:atop] }()
-	clear(x)
-	clear(best)
+	buf := ck.arena[atop:]
+	fu, x, best := buf[:np*n], buf[np*n:np*n+n], buf[np*n+n:np*n+2*n]
 	if cap(ck.who) < n {
 		ck.who = make([]int32, n)
 	}
 	who := ck.who[:n]
-	for k := range who {
-		who[k] = -1
+	single := int32(-1)
+	for i, p := range active {
+		if i == 0 {
+			single = p.stroke
+		} else if p.stroke != single {
+			single = -2
+		}
+		if p.kind == pieceParallel || p.kind == pieceSquare {
+			p.alongFactors(r.d0, r.d1, fu[i*n:(i+1)*n])
+		}
+	}
+	for l := r.l0; l < r.l1; l++ {
+		ck.scanLine(r.t, l, r.d0, r.d1, active, fu, x, best, who, single)
+	}
+}
+
+// scanLine sums dimers [d0, d1) of site line l of terrace t (see scan):
+// the exposure of every dimer is summed piece by piece into x (a parallel
+// or square piece's along factor from fu times its amplitude on this
+// line), then each site is counted: painted ones as missed, unpainted
+// ones that exist beyond the allowance as stray. The stroke that gives a
+// dimer the largest term goes to who (with it in best), unless single is
+// the one stroke of every active piece (-1 when there is none).
+func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu, x, best []float64, who []int32, single int32) {
+	row, side := l/2, l%2
+	y := lineY(l)
+	n := d1 - d0
+	clear(x)
+	track := single == -2
+	if track {
+		clear(best)
+		for k := range who {
+			who[k] = -1
+		}
 	}
 	for i, p := range active {
 		switch {
@@ -599,9 +605,10 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fy []float6
 			k0, k1 := p.slantedDimers(d0, d1, y)
 			p.slantedRange(d0, k0, k1, y, x, best, who)
 		case p.kind == pieceDot:
+			fy := p.yFactorLine(l)
 			for k := range n {
 				u := lattice.DimerAlong(d0 + k)
-				e := p.amp * fy[i] * p.uFactorAt(d0+k)
+				e := p.amp * fy * p.uFactorAt(d0+k)
 				if math.Hypot(u-p.pu, y-p.py) <= dwellSnapNM {
 					e = ck.own
 				}
@@ -612,14 +619,34 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fy []float6
 					}
 				}
 			}
-		case p.comb != nil:
-			if amp := p.amp * fy[i]; amp > exposureNeglect {
-				_, top := p.comb.at(l)
-				p.alongRange(d0, d1, amp, p.amp*top, x, best, who)
-			}
 		default:
-			if amp := p.amp * fy[i]; amp > exposureNeglect {
-				p.alongRange(d0, d1, amp, amp, x, best, who)
+			amp, topAmp := 0.0, 0.0
+			if p.comb != nil {
+				sum, top := p.comb.at(l)
+				amp, topAmp = p.amp*sum, p.amp*top
+			} else {
+				amp = p.amp * p.yFactorLine(l)
+				topAmp = amp
+			}
+			if !(amp > exposureNeglect) {
+				continue
+			}
+			f := fu[i*n : (i+1)*n]
+			xs := x[:len(f)]
+			if !track {
+				for k, v := range f {
+					xs[k] += amp * v
+				}
+				continue
+			}
+			bs, ws := best[:len(f)], who[:len(f)]
+			for k, v := range f {
+				if e := amp * v; e > 0 {
+					xs[k] += e
+					if et := topAmp * v; et > bs[k] {
+						bs[k], ws[k] = et, p.stroke
+					}
+				}
 			}
 		}
 	}
@@ -659,7 +686,7 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fy []float6
 					a.logP += logOK
 				}
 			}
-			if w := who[k]; w >= 0 {
+			if w := siteWriter(who, k, xi, single); w >= 0 {
 				ck.addMissed(w, miss)
 			}
 			continue
@@ -667,7 +694,7 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fy []float6
 		if xi <= exposureNone || !holdsDimer(exist, d) {
 			continue
 		}
-		w := who[k]
+		w := siteWriter(who, k, xi, single)
 		if w != allowedFor {
 			allowed, allowedFor = ck.allowedFor(w, t, l), w
 		}
@@ -684,6 +711,19 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fy []float6
 		a.missed += oneMissed
 		a.logP += oneLog
 	}
+}
+
+// siteWriter returns the stroke that gives dimer k of scanLine's line
+// (exposure x) the largest term: who[k], or the single stroke of every
+// active piece where it reaches the dimer (-1 where nothing does).
+func siteWriter(who []int32, k int, x float64, single int32) int32 {
+	switch {
+	case single == -2:
+		return who[k]
+	case x > 0:
+		return single
+	}
+	return -1
 }
 
 // clearFast is ClearProbability for the coverage check's sums: the

@@ -174,6 +174,41 @@ func (p *piece) alongRange(d0, d1 int, amp, topAmp float64, x, best []float64, w
 	add(d1, 0)
 }
 
+// alongFactors writes the piece's along factor at dimers [d0, d1) to f
+// (not for slanted pieces or dots): the values alongRange adds, from the
+// cache (filled where missing), 0 or 1 outside its windows.
+func (p *piece) alongFactors(d0, d1 int, f []float64) {
+	if p.cache[0].v == nil && !p.cache[0].filled {
+		p.uFactorAt(d0) // allocates the windows
+	}
+	clear(f)
+	c0, c1 := &p.cache[0], &p.cache[1]
+	end0 := c0.d0 + len(c0.v)
+	if p.kind == pieceParallel && len(c1.v) > 0 {
+		// 1 between a parallel piece's two windows.
+		for d := max(d0, end0); d < min(d1, c1.d0); d++ {
+			f[d-d0] = 1
+		}
+	}
+	from := d0
+	for w, c := range []*alongCache{c0, c1} {
+		if w == 1 {
+			// Where the windows overlap, the first one's value stands.
+			from = max(d0, end0)
+		}
+		a, b := max(from, c.d0), min(d1, c.d0+len(c.v))
+		for d := a; d < b; d++ {
+			v := c.v[d-c.d0]
+			if v == 0 {
+				if v = p.uFactor(lattice.DimerAlong(d)); v != 0 {
+					c.v[d-c.d0] = v
+				}
+			}
+			f[d-d0] = v
+		}
+	}
+}
+
 const (
 	pieceParallel = iota
 	pieceSquare
