@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"math"
+	"runtime"
 	"strings"
 	"testing"
 )
@@ -115,5 +116,28 @@ func TestCheckProbabilities(t *testing.T) {
 	}
 	if err := checkProbabilities([]Window{{Probability: 0}, {Probability: 1}}); err != nil {
 		t.Errorf("checkProbabilities(0, 1) = %v, want nil", err)
+	}
+}
+
+// TestBuildStopsCoverageOnFailure: Build runs the coverage check on its
+// own goroutine beside the route; when the plan fails on the way (here a
+// panic in the progress callback once the segments are being chosen,
+// while the check may still run), Build stops the check and waits for
+// it, so no goroutine of it outlives the call.
+func TestBuildStopsCoverageOnFailure(t *testing.T) {
+	d := demo(t)
+	before := runtime.NumGoroutine()
+	for _, stage := range []string{"route", "segments"} {
+		opt := Options{Seed: 1, MonteCarloRuns: 50, Progress: func(s string, _ float64) {
+			if s == stage {
+				panic("stop at " + stage)
+			}
+		}}
+		if plan, err := buildVariant(context.Background(), d, "", DefaultProfile(), opt); plan != nil || !errors.Is(err, ErrInternal) {
+			t.Fatalf("stage %s: Build = %v, %v; want nil and an internal error", stage, plan, err)
+		}
+		if n := runtime.NumGoroutine(); n > before {
+			t.Errorf("stage %s: %d goroutines after the failed Build, %d before", stage, n, before)
+		}
 	}
 }

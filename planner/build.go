@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"runtime/debug"
 	"slices"
 
 	"github.com/golang/geo/r2"
@@ -123,25 +124,42 @@ type builder struct {
 
 // writing runs the stages that decide what is written: the profile's
 // checks, each region's mode, the strokes (split at their drift budgets)
-// and their coverage expectation. Build goes on from here; CheckWriting
-// stops here.
+// and their coverage expectation. CheckWriting stops here; Build runs
+// startWriting and finishes the coverage check beside its route.
 func (b *builder) writing() ([]Window, Coverage, error) {
+	windows, job, err := b.startWriting()
+	if err != nil {
+		return nil, Coverage{}, err
+	}
+	cov, err := b.finishCoverage(job)
+	if err != nil {
+		return nil, Coverage{}, err
+	}
+	return windows, cov, nil
+}
+
+// startWriting is writing up to the coverage check, which it starts on
+// its own goroutine (finishCoverage waits for it): nothing the route, the
+// segments and the margin search compute depends on it, only the
+// session's repairs (each stroke's ExpectedMissed), so the check's
+// workers and the route share the cores.
+func (b *builder) startWriting() ([]Window, *coverageJob, error) {
 	prof, lay := &b.prof, b.lay
 	if err := prof.Validate(); err != nil {
-		return nil, Coverage{}, err
+		return nil, nil, err
 	}
 	if err := prof.checkField(b.d.Field.WidthNM, b.d.Field.HeightNM); err != nil {
-		return nil, Coverage{}, err
+		return nil, nil, err
 	}
 	if err := b.checkRaster(); err != nil {
-		return nil, Coverage{}, err
+		return nil, nil, err
 	}
 	if err := b.ctx.Err(); err != nil {
-		return nil, Coverage{}, err
+		return nil, nil, err
 	}
 	b.gen = newStrokeGen(lay.Surface, prof)
 	if err := b.regionWork(); err != nil {
-		return nil, Coverage{}, err
+		return nil, nil, err
 	}
 	b.model, _ = planModel(prof) // the stroke splits need its values
 
@@ -152,26 +170,26 @@ func (b *builder) writing() ([]Window, Coverage, error) {
 		b.warnings = append(b.warnings, r.warnings...)
 	}
 	if err := b.ctx.Err(); err != nil {
-		return nil, Coverage{}, err
+		return nil, nil, err
 	}
 
 	b.opt.stage("strokes")
 	windows := b.makeStrokes()
 	if err := checkStrokes(float64(len(b.strokes)), "one or more per run of sites and per FE serpentine; split the design"); err != nil {
-		return nil, Coverage{}, err
+		return nil, nil, err
 	}
 	use := b.modesUsed()
 	if err := prof.CheckLimits(&use); err != nil {
-		return nil, Coverage{}, err
+		return nil, nil, err
 	}
 	if err := b.checkTolerances(); err != nil {
-		return nil, Coverage{}, err
+		return nil, nil, err
 	}
 	b.fiducials()
 	b.costs = newCosts(prof, b.fids)
 	b.costs.creepFrac = b.model.creep
 	if err := b.splitLong(); err != nil {
-		return nil, Coverage{}, err
+		return nil, nil, err
 	}
 	for i := range b.strokes {
 		b.strokes[i].ID = i
@@ -179,28 +197,97 @@ func (b *builder) writing() ([]Window, Coverage, error) {
 
 	b.opt.stage("coverage")
 	if err := b.ctx.Err(); err != nil {
-		return nil, Coverage{}, err
+		return nil, nil, err
 	}
 	if err := b.openWindows(windows); err != nil {
-		return nil, Coverage{}, err
+		return nil, nil, err
 	}
-	cov, strokes, err := checkCoverage(b.ctx, lay.Surface, b.coverageRegions(), b.strokes, *prof)
-	if err != nil {
-		return nil, Coverage{}, err
-	}
-	b.strokes = strokes
-	if !cov.OK {
-		b.warnings = append(b.warnings, fmt.Sprintf("coverage check: %d site(s) outside every region clear with more than %.2g %%; see coverage.stray_sites", cov.OverLimit, 100*cov.StrayLimit))
-	}
-	return windows, cov, nil
+	return windows, b.startCoverage(), nil
 }
 
-func (b *builder) build() (*Plan, error) {
+// coverageJob is the coverage check running on its own goroutine: done
+// is closed when cov, strokes (the check's copy of the strokes, with
+// their expected missed and stray sites) and err are set.
+type coverageJob struct {
+	done    chan struct{}
+	cancel  context.CancelFunc
+	cov     Coverage
+	strokes []Stroke
+	err     error
+	// warnAt is where in b.warnings the check's warning goes: where it
+	// stood when the check ran before the route.
+	warnAt int
+}
+
+// startCoverage starts the coverage check of b.strokes. Their pieces are
+// made here, before the route reverses paths in place and changes
+// tolerances; the sums run on their own goroutine, on a copy of the
+// strokes. A panic of the check comes back as an *InternalError.
+func (b *builder) startCoverage() *coverageJob {
+	ctx, cancel := context.WithCancel(b.ctx)
+	job := &coverageJob{done: make(chan struct{}), cancel: cancel, warnAt: len(b.warnings)}
+	prof := b.prof
+	ck := newCoverageCheckOwned(b.lay.Surface, b.coverageRegions(), slices.Clone(b.strokes), &prof)
+	go func() {
+		defer close(job.done)
+		defer func() {
+			if r := recover(); r != nil {
+				job.err = &InternalError{Message: fmt.Sprintf("panic: %v", r), Stack: debug.Stack()}
+			}
+		}()
+		if job.err = ck.run(ctx); job.err == nil {
+			job.cov, job.strokes = ck.cov, ck.strokes
+		}
+	}()
+	return job
+}
+
+// stopCoverage stops a coverage check that is no longer wanted (Build
+// failed on the way) and waits for its goroutine to end.
+func (job *coverageJob) stop() {
+	if job != nil {
+		job.cancel()
+		<-job.done
+	}
+}
+
+// finishCoverage waits for the coverage check and takes its results:
+// each stroke's expected missed and stray sites, and the warning when a
+// site outside the regions clears above the limit.
+func (b *builder) finishCoverage(job *coverageJob) (Coverage, error) {
+	<-job.done
+	job.cancel()
+	if job.err != nil {
+		return Coverage{}, job.err
+	}
+	if len(job.strokes) != len(b.strokes) {
+		return Coverage{}, &InternalError{Message: fmt.Sprintf("the coverage check returned %d strokes for %d", len(job.strokes), len(b.strokes))}
+	}
+	for i := range b.strokes {
+		b.strokes[i].ExpectedMissed, b.strokes[i].ExpectedStray = job.strokes[i].ExpectedMissed, job.strokes[i].ExpectedStray
+	}
+	job.strokes = nil
+	cov := job.cov
+	if !cov.OK {
+		w := fmt.Sprintf("coverage check: %d site(s) outside every region clear with more than %.2g %%; see coverage.stray_sites", cov.OverLimit, 100*cov.StrayLimit)
+		b.warnings = slices.Insert(b.warnings, job.warnAt, w)
+	}
+	return cov, nil
+}
+
+func (b *builder) build() (plan *Plan, err error) {
 	prof, lay := &b.prof, b.lay
-	windows, cov, err := b.writing()
+	windows, job, err := b.startWriting()
 	if err != nil {
 		return nil, err
 	}
+	defer func() {
+		// Failed or panicking (Build's recoverInternal takes the panic):
+		// the check is no longer wanted.
+		if plan == nil {
+			job.stop()
+		}
+	}()
 	var drift DriftPlan
 	b.model, drift = planModel(prof)
 	use := b.modesUsed()
@@ -277,6 +364,18 @@ func (b *builder) build() (*Plan, error) {
 		return nil, &CountError{What: "actions of the timeline", Count: float64(n), Max: MaxActions,
 			Cause: fmt.Sprintf("%d strokes in %d segments", len(b.strokes), nseg)}
 	}
+	// The dopant yield depends on the windows alone: taken while the
+	// coverage check may still be running.
+	var yield Yield
+	yieldOK := checkProbabilities(windows) == nil
+	if yieldOK {
+		yield = YieldOf(windows, b.opt.Seed)
+	}
+	// The session's repairs need each stroke's expected missed sites.
+	cov, err := b.finishCoverage(job)
+	if err != nil {
+		return nil, err
+	}
 	tl, stepList, tm := b.sessionTimeline(steps, windows)
 	if err := checkFiniteTime(tl.breakdown); err != nil {
 		return nil, err
@@ -289,7 +388,7 @@ func (b *builder) build() (*Plan, error) {
 	}
 
 	b.opt.stage("yield")
-	plan := &Plan{
+	plan = &Plan{
 		Design: b.d.Name, Variant: lay.Variant.Name, Profile: prof.Name, Seed: b.opt.Seed,
 		FieldWidthNM: b.d.Field.WidthNM, FieldHeightNM: b.d.Field.HeightNM,
 		Conditions: b.conditions(use),
@@ -317,7 +416,10 @@ func (b *builder) build() (*Plan, error) {
 	if err := checkProbabilities(windows); err != nil {
 		return nil, err
 	}
-	plan.Yield = YieldOf(windows, b.opt.Seed)
+	if !yieldOK {
+		yield = YieldOf(windows, b.opt.Seed)
+	}
+	plan.Yield = yield
 	plan.Modes = b.regionModes()
 	byHand, err := b.byHand(steps, margin, plan.TotalS)
 	if err != nil {

@@ -142,7 +142,13 @@ type regionAcc struct {
 }
 
 func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof *Profile) *coverageCheck {
-	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: slices.Clone(strokes),
+	return newCoverageCheckOwned(surf, regions, slices.Clone(strokes), prof)
+}
+
+// newCoverageCheckOwned is newCoverageCheck on strokes the check may
+// keep and change (it sets their expected missed and stray sites).
+func newCoverageCheckOwned(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof *Profile) *coverageCheck {
+	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: strokes,
 		dwelled: lattice.NewSiteSet(),
 		acc:     make([]regionAcc, len(regions)+1), missed: make([]float64, len(strokes)), stray: make([]float64, len(strokes))}
 	// exist, allowed, rows and rowRegs are each worker's (worker).
