@@ -676,8 +676,7 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu, x, best
 			if xi >= exposureSure {
 				continue
 			}
-			miss := expNeg(xi)
-			logOK := logNotMissedTable(xi, miss)
+			miss, logOK := missAndLog(xi)
 			if len(regs) == 1 {
 				oneMissed += miss
 				oneLog += logOK
@@ -731,6 +730,45 @@ func siteWriter(who []int32, k int, x float64, single int32) int32 {
 	}
 	return -1
 }
+
+// missAndLog returns expNeg(x) and logNotMissedTable(x, expNeg(x)), bit
+// for bit, with their table lookups written out (the compiler inlines
+// hermite, not them): scanLine takes both for every painted site.
+func missAndLog(x float64) (miss, logOK float64) {
+	if t := x * expSteps; t >= 0 && t < expLast {
+		i := int(t)
+		c := &expSpans[i]
+		miss = hermite(t-float64(i), c[0], c[1], c[2], c[3])
+	} else {
+		miss = math.Exp(-x)
+	}
+	if miss < 1e-4 {
+		return miss, -miss - miss*miss/2
+	}
+	if t := (x - logTableFrom) * logSteps; t >= 0 && t < logLast {
+		i := int(t)
+		c := &logSpans[i]
+		return miss, hermite(t-float64(i), c[0], c[1], c[2], c[3])
+	}
+	return miss, math.Log1p(-miss)
+}
+
+// expSpans and logSpans are the exp and log tables as Hermite spans
+// (d/dt exp(−t/expSteps) = −exp(·)/expSteps).
+var expSpans, logSpans = func() (hermiteSpans, hermiteSpans) {
+	d := make([]float64, len(expValue))
+	for k, v := range expValue {
+		d[k] = -v / expSteps
+	}
+	return spansOf(expValue, d), spansOf(logValue, logSlope)
+}()
+
+// expLast and logLast are the last indices of the exp and log tables,
+// as floats.
+const (
+	expLast = exposureSure * expSteps
+	logLast = (10 - logTableFrom) * logSteps
+)
 
 // clearFast is ClearProbability for the coverage check's sums: the
 // series below 10⁻³, 1 − expNeg(x) above (relative error below 10⁻⁶).
