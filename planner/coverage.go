@@ -1067,11 +1067,11 @@ func (ck *coverageCheck) regionsOnRow(t, row int) []int32 {
 // takePainted counts r's painted sites at the exposure lo..hi (at its
 // middle): missed sites and the regions' log-probability.
 func (ck *coverageCheck) takePainted(r siteRect, lo, hi float64, who int32) {
-	x := (lo + hi) / 2
-	miss := math.Exp(-x)
 	if lo >= exposureSure {
 		return
 	}
+	x := (lo + hi) / 2
+	miss := math.Exp(-x)
 	logOK := math.Log1p(-miss)
 	total := 0
 	for l := r.l0; l < r.l1; l++ {

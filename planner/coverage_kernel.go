@@ -436,13 +436,20 @@ func (p *piece) slantedDimers(d0, d1 int, y float64) (k0, k1 int) {
 	reach := p.sReach
 	lo, hi := 0.0, float64(d1-d0)
 	u0 := lattice.DimerAlong(d0)
-	// within returns the k with |c + k·m| ≤ r, or c + k·m in [a, b].
-	within := func(c, m, a, b float64) {
+	h := lattice.DimerPitch
+	// Across: (y−py)·du − (u−pu)·dy; along: (u−pu)·du + (y−py)·dy.
+	// Each narrows [lo, hi] to the k with c + k·m in [a, b] (written out:
+	// as a closure or a function the compiler did not inline it).
+	for w := range 2 {
+		c, m, a, b := (y-p.py)*p.du-(u0-p.pu)*p.dy, -h*p.dy, -reach, reach
+		if w == 1 {
+			c, m, a, b = (u0-p.pu)*p.du+(y-p.py)*p.dy, h*p.du, -reach, p.L+reach
+		}
 		if m == 0 {
 			if c < a || c > b {
 				hi = lo
 			}
-			return
+			continue
 		}
 		ka, kb := (a-c)/m, (b-c)/m
 		if ka > kb {
@@ -450,10 +457,6 @@ func (p *piece) slantedDimers(d0, d1 int, y float64) (k0, k1 int) {
 		}
 		lo, hi = math.Max(lo, ka), math.Min(hi, kb)
 	}
-	h := lattice.DimerPitch
-	// Across: (y−py)·du − (u−pu)·dy; along: (u−pu)·du + (y−py)·dy.
-	within((y-p.py)*p.du-(u0-p.pu)*p.dy, -h*p.dy, -reach, reach)
-	within((u0-p.pu)*p.du+(y-p.py)*p.dy, h*p.du, -reach, p.L+reach)
 	if !(hi >= lo) {
 		return 0, 0
 	}
