@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"runtime"
 	"runtime/debug"
 	"slices"
 
@@ -217,18 +218,23 @@ type coverageJob struct {
 	// warnAt is where in b.warnings the check's warning goes: where it
 	// stood when the check ran before the route.
 	warnAt int
+	// background is set when the sums run beside the route (more than
+	// one core); taken is set once finishCoverage took the results.
+	background, taken bool
 }
 
 // startCoverage starts the coverage check of b.strokes. Their pieces are
 // made here, before the route reverses paths in place and changes
-// tolerances; the sums run on their own goroutine, on a copy of the
-// strokes. A panic of the check comes back as an *InternalError.
+// tolerances; the sums run on a copy of the strokes, on their own
+// goroutine when there is more than one core (on one, overlapping gains
+// nothing and would hold the check's memory and the route's at once:
+// they run here). A panic of the check comes back as an *InternalError.
 func (b *builder) startCoverage() *coverageJob {
 	ctx, cancel := context.WithCancel(b.ctx)
-	job := &coverageJob{done: make(chan struct{}), cancel: cancel, warnAt: len(b.warnings)}
+	job := &coverageJob{done: make(chan struct{}), cancel: cancel, warnAt: len(b.warnings), background: runtime.GOMAXPROCS(0) > 1}
 	prof := b.prof
 	ck := newCoverageCheckOwned(b.lay.Surface, b.coverageRegions(), slices.Clone(b.strokes), &prof)
-	go func() {
+	sums := func() {
 		defer close(job.done)
 		defer func() {
 			if r := recover(); r != nil {
@@ -238,7 +244,12 @@ func (b *builder) startCoverage() *coverageJob {
 		if job.err = ck.run(ctx); job.err == nil {
 			job.cov, job.strokes = ck.cov, ck.strokes
 		}
-	}()
+	}
+	if job.background {
+		go sums()
+	} else {
+		sums()
+	}
 	return job
 }
 
@@ -255,6 +266,9 @@ func (job *coverageJob) stop() {
 // each stroke's expected missed and stray sites, and the warning when a
 // site outside the regions clears above the limit.
 func (b *builder) finishCoverage(job *coverageJob) (Coverage, error) {
+	if job.taken {
+		return job.cov, nil
+	}
 	<-job.done
 	job.cancel()
 	if job.err != nil {
@@ -266,7 +280,7 @@ func (b *builder) finishCoverage(job *coverageJob) (Coverage, error) {
 	for i := range b.strokes {
 		b.strokes[i].ExpectedMissed, b.strokes[i].ExpectedStray = job.strokes[i].ExpectedMissed, job.strokes[i].ExpectedStray
 	}
-	job.strokes = nil
+	job.strokes, job.taken = nil, true
 	cov := job.cov
 	if !cov.OK {
 		w := fmt.Sprintf("coverage check: %d site(s) outside every region clear with more than %.2g %%; see coverage.stray_sites", cov.OverLimit, 100*cov.StrayLimit)
@@ -288,6 +302,13 @@ func (b *builder) build() (plan *Plan, err error) {
 			job.stop()
 		}
 	}()
+	if !job.background {
+		// Done already: its results taken now, its copy of the strokes
+		// let go before the route.
+		if _, err := b.finishCoverage(job); err != nil {
+			return nil, err
+		}
+	}
 	var drift DriftPlan
 	b.model, drift = planModel(prof)
 	use := b.modesUsed()

@@ -112,6 +112,7 @@ type coverageCheck struct {
 	rowRegs  [][][]int32     // terrace -> row -> regions with sites on the row (nil: not yet)
 	arena    []float64       // cached factors of decide's nested ranges
 	who      []int32         // scanLine's strokes per dimer
+	looked   []bool          // scan's pieces whose along factors are looked up
 	ptrs     []*piece        // active lists of decide's nested ranges
 	spanBuf  []r1.Interval   // scratch for allowedSpans
 	spanBuf2 []r1.Interval
@@ -568,6 +569,11 @@ func (ck *coverageCheck) scan(r siteRect, active []*piece) {
 		ck.who = make([]int32, n)
 	}
 	who := ck.who[:n]
+	if cap(ck.looked) < np {
+		ck.looked = make([]bool, np)
+	}
+	looked := ck.looked[:np]
+	clear(looked)
 	single := int32(-1)
 	for i, p := range active {
 		if i == 0 {
@@ -575,23 +581,21 @@ func (ck *coverageCheck) scan(r siteRect, active []*piece) {
 		} else if p.stroke != single {
 			single = -2
 		}
-		if p.kind == pieceParallel || p.kind == pieceSquare {
-			p.alongFactors(r.d0, r.d1, fu[i*n:(i+1)*n])
-		}
 	}
 	for l := r.l0; l < r.l1; l++ {
-		ck.scanLine(r.t, l, r.d0, r.d1, active, fu, x, best, who, single)
+		ck.scanLine(r.t, l, r.d0, r.d1, active, fu, looked, x, best, who, single)
 	}
 }
 
 // scanLine sums dimers [d0, d1) of site line l of terrace t (see scan):
 // the exposure of every dimer is summed piece by piece into x (a parallel
-// or square piece's along factor from fu times its amplitude on this
-// line), then each site is counted: painted ones as missed, unpainted
+// or square piece's along factor from fu, looked up on the first line
+// that needs it (looked), times its amplitude on this line), then each
+// site is counted: painted ones as missed, unpainted
 // ones that exist beyond the allowance as stray. The stroke that gives a
 // dimer the largest term goes to who (with it in best), unless single is
 // the one stroke of every active piece (-1 when there is none).
-func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu, x, best []float64, who []int32, single int32) {
+func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu []float64, looked []bool, x, best []float64, who []int32, single int32) {
 	row, side := l/2, l%2
 	y := lineY(l)
 	n := d1 - d0
@@ -638,6 +642,10 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu, x, best
 				continue
 			}
 			f := fu[i*n : (i+1)*n]
+			if !looked[i] {
+				p.alongFactors(d0, d1, f)
+				looked[i] = true
+			}
 			xs := x[:len(f)]
 			if !track {
 				for k, v := range f {

@@ -274,7 +274,7 @@ func pieceCells(p *piece, rows, dimers int) (l0, l1, d0, d1 int) {
 // and pieces, and its own scratch, caches and sums.
 func (ck *coverageCheck) worker() *coverageCheck {
 	w := *ck
-	w.arena, w.who, w.ptrs, w.spanBuf, w.spanBuf2, w.slab = nil, nil, nil, nil, nil, nil
+	w.arena, w.who, w.looked, w.ptrs, w.spanBuf, w.spanBuf2, w.slab = nil, nil, nil, nil, nil, nil, nil
 	nt := len(ck.surf.Terraces)
 	w.exist = make([]rowDimers, nt)
 	for t := range nt {
