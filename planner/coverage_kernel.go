@@ -480,6 +480,9 @@ func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who [
 	along := (u0-p.pu)*p.du + (y-p.py)*p.dy // at k0, nm
 	alongStep := h * p.du
 	q := p.sQ // math.Exp(-step * step), computed once
+	// The piece's fields in locals: the loop's stores to x could alias
+	// them, so the compiler would load them again on every dimer.
+	amp, length, sigma, stroke := p.amp, p.L, p.sigma, p.stroke
 	var g, r float64
 	for k := k0; k < k1; k++ {
 		j := k - k0
@@ -489,10 +492,10 @@ func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who [
 			r = math.Exp(-(2*a*step + step*step) / 2)
 		}
 		s := along + float64(j)*alongStep
-		if e := p.amp * g * slantBandFast((p.L-s)/p.sigma, -s/p.sigma); e > 0 {
+		if e := amp * g * slantBandFast((length-s)/sigma, -s/sigma); e > 0 {
 			x[k] += e
 			if e > best[k] {
-				best[k], who[k] = e, p.stroke
+				best[k], who[k] = e, stroke
 			}
 		}
 		g *= r
