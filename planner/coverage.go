@@ -739,9 +739,11 @@ func siteWriter(who []int32, k int, x float64, single int32) int32 {
 	return -1
 }
 
-// missAndLog returns expNeg(x) and logNotMissedTable(x, expNeg(x)), bit
-// for bit, with their table lookups written out (the compiler inlines
-// hermite, not them): scanLine takes both for every painted site.
+// missAndLog returns miss = expNeg(x) and logNotMissed(x, miss), the
+// latter from a table of log(1 − exp(−x)) on [logTableFrom, 10] (cubic
+// Hermite, absolute error below 1.5·10⁻⁸) where the series does not serve:
+// scanLine takes both for every painted site, so the table lookups are
+// written out here (the compiler inlines hermite, not expNeg).
 func missAndLog(x float64) (miss, logOK float64) {
 	if t := x * expSteps; t >= 0 && t < expLast {
 		i := int(t)
@@ -792,16 +794,12 @@ func clearFast(x float64) float64 {
 // 10⁻⁹), math.Exp elsewhere.
 func expNeg(x float64) float64 {
 	t := x * expSteps
-	if !(t >= 0 && t < float64(len(expValue)-1)) {
+	if !(t >= 0 && t < expLast) {
 		return math.Exp(-x)
 	}
 	i := int(t)
-	f := t - float64(i)
-	f2 := f * f
-	f3 := f2 * f
-	v0, v1 := expValue[i], expValue[i+1]
-	// d/dt exp(−t/expSteps) = −exp(·)/expSteps.
-	return (2*f3-3*f2+1)*v0 - (f3-2*f2+f)*v0/expSteps + (-2*f3+3*f2)*v1 - (f3-f2)*v1/expSteps
+	c := &expSpans[i]
+	return hermite(t-float64(i), c[0], c[1], c[2], c[3])
 }
 
 const expSteps = 64
@@ -821,24 +819,6 @@ func logNotMissed(x, miss float64) float64 {
 		return -miss - miss*miss/2
 	}
 	return math.Log1p(-miss)
-}
-
-// logNotMissedTable is logNotMissed for miss = exp(−x), from a table of
-// log(1 − exp(−x)) on [logTableFrom, 10] (cubic Hermite, absolute error
-// below 10⁻⁸) where the series does not serve.
-func logNotMissedTable(x, miss float64) float64 {
-	if miss < 1e-4 {
-		return -miss - miss*miss/2
-	}
-	t := (x - logTableFrom) * logSteps
-	if !(t >= 0 && t < float64(len(logValue)-1)) {
-		return math.Log1p(-miss)
-	}
-	i := int(t)
-	f := t - float64(i)
-	f2 := f * f
-	f3 := f2 * f
-	return (2*f3-3*f2+1)*logValue[i] + (f3-2*f2+f)*logSlope[i] + (-2*f3+3*f2)*logValue[i+1] + (f3-f2)*logSlope[i+1]
 }
 
 const (

@@ -242,14 +242,12 @@ func band(lo, hi, sigma, x float64) float64 {
 // millions of times.
 func fastPhi(x float64) float64 {
 	t := (x + 8) * phiSteps
-	if !(t >= 0 && t < float64(len(phiValue)-1)) {
+	if !(t >= 0 && t < phiLast) {
 		return normalCDF(x)
 	}
 	i := int(t)
-	f := t - float64(i)
-	f2 := f * f
-	f3 := f2 * f
-	return (2*f3-3*f2+1)*phiValue[i] + (f3-2*f2+f)*phiSlope[i] + (-2*f3+3*f2)*phiValue[i+1] + (f3-f2)*phiSlope[i+1]
+	c := &phiSpans[i]
+	return hermite(t-float64(i), c[0], c[1], c[2], c[3])
 }
 
 const phiSteps = 64
@@ -492,7 +490,7 @@ func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who [
 			r = math.Exp(-(2*a*step + step*step) / 2)
 		}
 		s := along + float64(j)*alongStep
-		if e := amp * g * slantBandFast((length-s)/sigma, -s/sigma); e > 0 {
+		if e := amp * g * slantBand((length-s)/sigma, -s/sigma); e > 0 {
 			x[k] += e
 			if e > best[k] {
 				best[k], who[k] = e, stroke
@@ -505,23 +503,12 @@ func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who [
 
 // slantBand returns fastPhi(b) − fastPhi(a) for a ≤ b, bit for bit, without
 // the erfc that fastPhi takes beyond the table where its value is known:
-// below −phiNil Φ is under 2⁻⁵⁶, which leaves any Φ(b) ≥ ½ unchanged when
-// taken from it, and above phiOne Φ is 1 (normalCDF, checked in
-// TestSlantBandExact).
+// above phiOne Φ is 1, and below −phiNil it is under 2⁻⁵⁶, which leaves any
+// Φ(b) ≥ ½ unchanged when taken from it (normalCDF, checked in
+// TestSlantBandExact). fastPhi's table lookups are written out: the
+// compiler inlines hermite, not fastPhi, and slantedRange calls this for
+// every dimer.
 func slantBand(b, a float64) float64 {
-	if a <= -phiNil && b >= 0 {
-		if b >= phiOne {
-			return 1
-		}
-		return fastPhi(b)
-	}
-	return fastPhi(b) - fastPhi(a)
-}
-
-// slantBandFast is slantBand, bit for bit, with fastPhi's table lookup
-// written out (the compiler inlines hermite, not fastPhi) and Φ taken as
-// 1 from phiOne on without erfc.
-func slantBandFast(b, a float64) float64 {
 	pb := 1.0
 	if b < phiOne {
 		if t := (b + 8) * phiSteps; t >= 0 && t < phiLast {
