@@ -184,6 +184,7 @@ func (b *builder) writing() ([]Window, Coverage, error) {
 	if err := b.openWindows(windows); err != nil {
 		return nil, Coverage{}, err
 	}
+	b.placed = nil // only openWindows reads it
 	cov, strokes, err := checkCoverage(b.ctx, lay.Surface, b.coverageRegions(), b.strokes, *prof)
 	if err != nil {
 		return nil, Coverage{}, err
