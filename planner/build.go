@@ -812,12 +812,25 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 		s := &b.strokes[i]
 		byRegion[s.Region] = append(byRegion[s.Region], i)
 	}
+	// byHand is the last reader of the steps' segmenters: it keeps what
+	// it needs of them and drops them (with their jobs, some 190 MB at
+	// 10^6 strokes) before it makes its own.
+	models := make([]*segModel, len(steps))
+	planned := make([]float64, len(steps))
+	for k, st := range steps {
+		if st.sg != nil && st.sg.n > 0 {
+			planned[k] = st.sg.totalOf(st.starts, st.kinds)
+			m := st.sg.model
+			models[k] = &m
+		}
+		st.sg, st.jobs = nil, nil
+	}
 	inStep := make([]bool, len(b.strokes))
 	for k, st := range steps {
-		if st.sg == nil || st.sg.n == 0 {
+		if models[k] == nil {
 			continue
 		}
-		total -= st.sg.totalOf(st.starts, st.kinds)
+		total -= planned[k]
 		clear(inStep)
 		for _, i := range st.strokes {
 			inStep[i] = true
@@ -852,7 +865,7 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 		}
 		jobs := make([]job, len(all))
 		tightest := math.Inf(1)
-		m := st.sg.model
+		m := models[k]
 		for i, s := range all {
 			// Generated order is raster order; put every stroke back the
 			// way it was generated (left to right, bottom to top).
@@ -870,7 +883,7 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 			jobs[i] = job{stroke: i, start: start, end: end, writeS: s.DurationS, tolNM: s.ToleranceNM, mode: s.Mode,
 				dwell: s.Kind == StrokeDwell, group: b.groupOf(s)}
 		}
-		sg := newSegmenter(jobs, b.costs, st.sg.model, b.costs.nearest(jobs[0].start))
+		sg := newSegmenter(jobs, b.costs, *m, b.costs.nearest(jobs[0].start))
 		starts, kinds := sg.fixedInterval(tightest)
 		total += sg.totalOf(starts, kinds)
 	}
