@@ -278,9 +278,27 @@ func (b *builder) build() (*Plan, error) {
 		return nil, &CountError{What: "actions of the timeline", Count: float64(n), Max: MaxActions,
 			Cause: fmt.Sprintf("%d strokes in %d segments", len(b.strokes), nseg)}
 	}
+	// What reads the segmenters beyond the timeline's needs runs first:
+	// the segments' notes and the by-hand plan (its own jobs and
+	// segmenter, ~190 MB at 10^6 strokes, are then not held beside the
+	// timeline's actions, ~300 MB); the segmenters keep only what the
+	// timeline reads (keepForTimeline).
+	notes := b.describeSegments(steps, tol, tol.all, drift)
+	hand, err := b.byHand(steps, margin)
+	if err != nil {
+		return nil, err
+	}
+	for _, st := range steps {
+		if st.sg != nil {
+			st.sg.keepForTimeline()
+		}
+	}
 	tl, stepList, tm := b.sessionTimeline(steps, windows)
 	if err := checkFiniteTime(tl.breakdown); err != nil {
 		return nil, err
+	}
+	for _, st := range steps {
+		st.sg, st.jobs = nil, nil // the timeline was their last reader
 	}
 
 	b.opt.stage("spread")
@@ -311,7 +329,9 @@ func (b *builder) build() (*Plan, error) {
 	if math.Abs(plan.TotalS-mct.mean) > 1e-6*math.Max(mct.mean, 1) {
 		return nil, &InternalError{Message: fmt.Sprintf("the breakdown sums to %v s, the Monte Carlo mean is %v s", plan.TotalS, mct.mean)}
 	}
-	b.describeSegments(plan, steps, tol)
+	if err := setSegmentNotes(plan, steps, notes); err != nil {
+		return nil, err
+	}
 	b.describeCouplings(plan, cps, tol, pairIndex)
 	b.windowWarnings(plan)
 	plan.FloorS = tl.breakdown.APWriteS + tl.breakdown.FEWriteS + tl.breakdown.DwellS
@@ -320,11 +340,7 @@ func (b *builder) build() (*Plan, error) {
 	}
 	plan.Yield = YieldOf(windows, b.opt.Seed)
 	plan.Modes = b.regionModes()
-	byHand, err := b.byHand(steps, margin, plan.TotalS)
-	if err != nil {
-		return nil, err
-	}
-	plan.ByHandS = byHand
+	plan.ByHandS = byHandTotal(plan.TotalS, hand)
 	plan.Warnings = b.warnings
 	if b.opt.Progress != nil {
 		b.opt.Progress("done", 1)
@@ -802,9 +818,10 @@ func reversePath(p []r2.Point) {
 // mode per region (hybrid regions written in AP), the windows last, and a
 // registration at the fixed interval of the tightest budget at the
 // planned values (local before atomic-precision work, coarse before
-// field-emission work).
-func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, error) {
-	total := session
+// field-emission work). It returns each step's part (byHandTotal adds
+// them to the session); it runs before the timeline, when the timeline's
+// actions are not yet held beside its own jobs and segmenter.
+func (b *builder) byHand(steps []*stepWork, margin float64) ([]byHandStep, error) {
 	// The plan's strokes by index (a copy of each would hold the whole
 	// plan again: 10^6 strokes are some 200 MB).
 	byRegion := map[string][]int{}
@@ -812,25 +829,13 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 		s := &b.strokes[i]
 		byRegion[s.Region] = append(byRegion[s.Region], i)
 	}
-	// byHand is the last reader of the steps' segmenters: it keeps what
-	// it needs of them and drops them (with their jobs, some 190 MB at
-	// 10^6 strokes) before it makes its own.
-	models := make([]*segModel, len(steps))
-	planned := make([]float64, len(steps))
-	for k, st := range steps {
-		if st.sg != nil && st.sg.n > 0 {
-			planned[k] = st.sg.totalOf(st.starts, st.kinds)
-			m := st.sg.model
-			models[k] = &m
-		}
-		st.sg, st.jobs = nil, nil
-	}
+	hs := make([]byHandStep, len(steps))
 	inStep := make([]bool, len(b.strokes))
 	for k, st := range steps {
-		if models[k] == nil {
+		if st.sg == nil || st.sg.n == 0 {
 			continue
 		}
-		total -= planned[k]
+		hs[k].segmented, hs[k].plannedS = true, st.sg.totalOf(st.starts, st.kinds)
 		clear(inStep)
 		for _, i := range st.strokes {
 			inStep[i] = true
@@ -865,7 +870,7 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 		}
 		jobs := make([]job, len(all))
 		tightest := math.Inf(1)
-		m := models[k]
+		m := st.sg.model
 		for i, s := range all {
 			// Generated order is raster order; put every stroke back the
 			// way it was generated (left to right, bottom to top).
@@ -883,14 +888,39 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 			jobs[i] = job{stroke: i, start: start, end: end, writeS: s.DurationS, tolNM: s.ToleranceNM, mode: s.Mode,
 				dwell: s.Kind == StrokeDwell, group: b.groupOf(s)}
 		}
-		sg := newSegmenter(jobs, b.costs, *m, b.costs.nearest(jobs[0].start))
+		sg := newSegmenter(jobs, b.costs, m, b.costs.nearest(jobs[0].start))
 		starts, kinds := sg.fixedInterval(tightest)
-		total += sg.totalOf(starts, kinds)
+		hs[k].written, hs[k].byHandS = true, sg.totalOf(starts, kinds)
 	}
 	if err := b.ctx.Err(); err != nil {
-		return 0, err
+		return nil, err
 	}
-	return total, nil
+	return hs, nil
+}
+
+// byHandStep is one step's part of the by-hand estimate: the time of
+// its planned segmentation (segmented: it has one) and of the by-hand
+// one (written: it has strokes to write by hand).
+type byHandStep struct {
+	segmented, written bool
+	plannedS, byHandS  float64
+}
+
+// byHandTotal returns the session time by hand: the planned session less
+// each step's planned segmentation plus its by-hand one, in step order
+// (the order byHand added them in when it ran after the timeline).
+func byHandTotal(session float64, hs []byHandStep) float64 {
+	total := session
+	for _, h := range hs {
+		if !h.segmented {
+			continue
+		}
+		total -= h.plannedS
+		if h.written {
+			total += h.byHandS
+		}
+	}
+	return total
 }
 
 // plainStep returns the step of a region's strokes outside its windows

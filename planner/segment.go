@@ -170,6 +170,22 @@ type solveCache struct {
 // releaseSolve drops solve's cache (solve makes it again if called).
 func (sg *segmenter) releaseSolve() { sg.cache = nil }
 
+// keepForTimeline drops what only the segmentation, the segments' notes
+// and the by-hand plan read (the clocks, the loads and the drift and
+// creep fields: ~140 MB at 10^6 jobs), keeping what scheduleStep reads:
+// the jobs, costs, fiducials, moves, approaches, detours and the first
+// local registration's cost. Nothing but the timeline may use sg after.
+func (sg *segmenter) keepForTimeline() {
+	sg.cache = nil
+	sg.T, sg.ts, sg.sw = nil, nil, nil
+	sg.moveCreep, sg.moveExcess, sg.aCreep, sg.aExcess = nil, nil, nil, nil
+	if len(sg.B[kLocal]) > 0 {
+		sg.B[kLocal] = []float64{sg.B[kLocal][0]}
+	}
+	sg.B[kCoarse] = nil
+	sg.creepF, sg.driftRaw, sg.driftC = decay{}, driftField{}, driftField{}
+}
+
 const (
 	kLocal  = 0
 	kCoarse = 1
