@@ -64,7 +64,8 @@ func (o *Options) stage(name string) {
 // *InternalError (errors.Is(err, ErrInternal)).
 func Build(ctx context.Context, lay *design.Layout, prof Profile, opt Options) (plan *Plan, err error) {
 	defer recoverInternal(&plan, &err)
-	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof, opt: opt}
+	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof, opt: opt, live0: liveHeap()}
+	defer func() { b.gc.release() }()
 	return b.build()
 }
 
@@ -78,7 +79,8 @@ func Build(ctx context.Context, lay *design.Layout, prof Profile, opt Options) (
 func CheckWriting(ctx context.Context, lay *design.Layout, prof Profile) (cov Coverage, modes []RegionMode, err error) {
 	var unused *Plan
 	defer recoverInternal(&unused, &err)
-	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof}
+	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof, live0: liveHeap()}
+	defer func() { b.gc.release() }()
 	_, cov, err = b.writing()
 	if err != nil {
 		return Coverage{}, nil, err
@@ -100,11 +102,13 @@ func (b *builder) regionModes() []RegionMode {
 }
 
 type builder struct {
-	ctx  context.Context
-	lay  *design.Layout
-	d    *design.Design // lay.Design
-	prof Profile
-	opt  Options
+	ctx   context.Context
+	live0 int64     // the live heap when the build started
+	gc    *gcBudget // a large plan's share of the soft memory limit
+	lay   *design.Layout
+	d     *design.Design // lay.Design
+	prof  Profile
+	opt   Options
 
 	gen      *strokeGen
 	placed   []lattice.Window // the plan's windows on the lattice, as Plan.Windows
@@ -176,6 +180,7 @@ func (b *builder) writing() ([]Window, Coverage, error) {
 	for i := range b.strokes {
 		b.strokes[i].ID = i
 	}
+	b.gc = holdGCBudget(len(b.strokes), b.live0)
 
 	b.opt.stage("coverage")
 	if err := b.ctx.Err(); err != nil {
@@ -207,6 +212,7 @@ func (b *builder) build() (*Plan, error) {
 	use := b.modesUsed()
 
 	b.opt.stage("route")
+	b.gc.update()
 	steps, err := b.assignSteps(windows)
 	if err != nil {
 		return nil, err
@@ -236,6 +242,7 @@ func (b *builder) build() (*Plan, error) {
 	}
 
 	b.opt.stage("segments")
+	b.gc.update()
 	draws := drawMotion(prof, b.runs(), b.opt.Seed)
 	margin, tol, pairIndex, err := b.chooseMargin(b.ctx, steps, cps, draws)
 	if err != nil {
@@ -302,6 +309,7 @@ func (b *builder) build() (*Plan, error) {
 	}
 
 	b.opt.stage("spread")
+	b.gc.update()
 	mct, err := sampleTimes(b.ctx, tm, prof, b.runs(), b.opt.Seed)
 	if err != nil {
 		return nil, err
