@@ -296,8 +296,8 @@ func (b *builder) build() (*Plan, error) {
 		return nil, err
 	}
 	for _, st := range steps {
-		if st.sg != nil {
-			st.sg.keepForTimeline()
+		if err := st.keepForTimeline(b.strokes); err != nil {
+			return nil, err
 		}
 	}
 	tl, stepList, tm := b.sessionTimeline(steps, windows)
@@ -305,7 +305,7 @@ func (b *builder) build() (*Plan, error) {
 		return nil, err
 	}
 	for _, st := range steps {
-		st.sg, st.jobs = nil, nil // the timeline was their last reader
+		st.sg = nil // the timeline was its last reader
 	}
 
 	b.opt.stage("spread")
