@@ -62,52 +62,21 @@ func greedyTour(g *graph, nb *neighbours) []int32 {
 	}
 
 	// First round on the full neighbour lists, each edge once, shortest
-	// first (slots below 2^32: 5·10^8 nodes would not fit in memory). The edges are not copied out of the lists: each is sorted
-	// as its length and its slot in nb (v·k + j), and slots grow in the
-	// order the lists are walked, so ties keep that order. (A list of
-	// edges and an order of them were the largest temporaries at 10^6
-	// strokes: 16 + 4 bytes per edge more than the keys.)
-	count := 0
-	for pass := range 2 {
-		var keys []uint64
-		if pass == 1 {
-			keys = make([]uint64, 0, count)
+	// first: by the float32 bit pattern of the length (as sortedOrder),
+	// ties in the order the lists are walked. The edges are not copied out
+	// of the lists: each is its slot in nb (v·k + j, below 2^32: 5·10^8
+	// nodes would not fit in memory), sorted stably by the upper 16 bits
+	// of its key into one array and then, bucket by bucket, by the lower
+	// 16 (at 2·10^6 nodes a list of edges and an order of them, then keys
+	// and their radix buffer, were the largest temporaries: 20, then 16,
+	// now 4 bytes an edge and a bucket's buffer).
+	firstRound(nb, int32(g.real), func(slot int) bool {
+		if fragments <= 1 {
+			return false
 		}
-		for v := range int32(g.real) {
-			ids, ds := nb.list(v)
-			o := uint64(v) * uint64(nb.k)
-			for j, u := range ids {
-				if u < 0 {
-					break
-				}
-				if u < v && contains(nb, u, v) {
-					continue // listed from u's side
-				}
-				if pass == 0 {
-					count++
-				} else {
-					keys = append(keys, lengthKey(ds[j], o+uint64(j)))
-				}
-			}
-		}
-		if pass == 1 {
-			if len(keys) < 256 {
-				// As sortedOrder: by the float64 length, ties in order.
-				slices.SortStableFunc(keys, func(a, b uint64) int {
-					return cmp.Compare(nb.dst[uint32(a)], nb.dst[uint32(b)])
-				})
-			} else {
-				keys = sortKeys(keys)
-			}
-			for _, key := range keys {
-				if fragments <= 1 {
-					break
-				}
-				slot := int(uint32(key))
-				try(int32(slot/nb.k), nb.id[slot])
-			}
-		}
-	}
+		try(int32(slot/nb.k), nb.id[slot])
+		return true
+	})
 
 	var edges []cand
 	// Later rounds: join fragment ends to the nearest ends of other
@@ -170,6 +139,88 @@ func greedyTour(g *graph, nb *neighbours) []int32 {
 		tour = append(tour, g.dummy)
 	}
 	return tour
+}
+
+// firstRound calls take with the slot of every edge of the lists of
+// nb's first n nodes, once
+// (an edge listed from both ends is taken from the lower node's list),
+// shortest first by the float32 bit pattern of the length, equal ones in
+// slot order; below 256 edges by the float64 length, as sortedOrder
+// does. It stops when take returns false.
+func firstRound(nb *neighbours, n int32, take func(slot int) bool) {
+	each := func(f func(slot uint32, d float64)) {
+		for v := range n {
+			ids, ds := nb.list(v)
+			o := uint32(v) * uint32(nb.k)
+			for j, u := range ids {
+				if u < 0 {
+					break
+				}
+				if u < v && contains(nb, u, v) {
+					continue // listed from u's side
+				}
+				f(o+uint32(j), ds[j])
+			}
+		}
+	}
+	bits := func(d float64) uint32 { return math.Float32bits(float32(d)) }
+	cnt := make([]int, 1<<16+1)
+	each(func(_ uint32, d float64) { cnt[bits(d)>>16+1]++ })
+	for i := 1; i < len(cnt); i++ {
+		cnt[i] += cnt[i-1]
+	}
+	total := cnt[len(cnt)-1]
+	slots := make([]uint32, total)
+	if total < 256 {
+		i := 0
+		each(func(slot uint32, _ float64) { slots[i] = slot; i++ })
+		slices.SortStableFunc(slots, func(a, b uint32) int { return cmp.Compare(nb.dst[a], nb.dst[b]) })
+		for _, slot := range slots {
+			if !take(int(slot)) {
+				return
+			}
+		}
+		return
+	}
+	next := slices.Clone(cnt[:len(cnt)-1])
+	each(func(slot uint32, d float64) {
+		h := bits(d) >> 16
+		slots[next[h]] = slot
+		next[h]++
+	})
+	var buf []uint32
+	low := make([]int, 1<<16+1)
+	for h := range 1 << 16 {
+		bucket := slots[cnt[h]:cnt[h+1]]
+		if len(bucket) > 1 {
+			if len(bucket) < 1024 {
+				slices.SortStableFunc(bucket, func(a, b uint32) int {
+					return cmp.Compare(bits(nb.dst[a])&0xffff, bits(nb.dst[b])&0xffff)
+				})
+			} else {
+				// A stable counting sort on the lower 16 bits.
+				clear(low)
+				for _, slot := range bucket {
+					low[bits(nb.dst[slot])&0xffff+1]++
+				}
+				for i := 1; i < len(low); i++ {
+					low[i] += low[i-1]
+				}
+				buf = slices.Grow(buf[:0], len(bucket))[:len(bucket)]
+				for _, slot := range bucket {
+					l := bits(nb.dst[slot]) & 0xffff
+					buf[low[l]] = slot
+					low[l]++
+				}
+				copy(bucket, buf)
+			}
+		}
+		for _, slot := range bucket {
+			if !take(int(slot)) {
+				return
+			}
+		}
+	}
 }
 
 // contains reports whether u's neighbour list holds v.
