@@ -64,7 +64,7 @@ func (o *Options) stage(name string) {
 // *InternalError (errors.Is(err, ErrInternal)).
 func Build(ctx context.Context, lay *design.Layout, prof Profile, opt Options) (plan *Plan, err error) {
 	defer recoverInternal(&plan, &err)
-	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof, opt: opt, live0: liveHeap()}
+	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof, opt: opt}
 	defer func() { b.gc.release() }()
 	return b.build()
 }
@@ -79,7 +79,7 @@ func Build(ctx context.Context, lay *design.Layout, prof Profile, opt Options) (
 func CheckWriting(ctx context.Context, lay *design.Layout, prof Profile) (cov Coverage, modes []RegionMode, err error) {
 	var unused *Plan
 	defer recoverInternal(&unused, &err)
-	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof, live0: liveHeap()}
+	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof}
 	defer func() { b.gc.release() }()
 	_, cov, err = b.writing()
 	if err != nil {
@@ -102,13 +102,12 @@ func (b *builder) regionModes() []RegionMode {
 }
 
 type builder struct {
-	ctx   context.Context
-	live0 int64     // the live heap when the build started
-	gc    *gcBudget // a large plan's share of the soft memory limit
-	lay   *design.Layout
-	d     *design.Design // lay.Design
-	prof  Profile
-	opt   Options
+	ctx  context.Context
+	gc   *gcBudget // a large plan's share of the soft memory limit
+	lay  *design.Layout
+	d    *design.Design // lay.Design
+	prof Profile
+	opt  Options
 
 	gen      *strokeGen
 	placed   []lattice.Window // the plan's windows on the lattice, as Plan.Windows
@@ -180,7 +179,7 @@ func (b *builder) writing() ([]Window, Coverage, error) {
 	for i := range b.strokes {
 		b.strokes[i].ID = i
 	}
-	b.gc = holdGCBudget(len(b.strokes), b.live0)
+	b.gc = holdGCBudget(len(b.strokes))
 
 	b.opt.stage("coverage")
 	if err := b.ctx.Err(); err != nil {
@@ -300,6 +299,7 @@ func (b *builder) build() (*Plan, error) {
 			return nil, err
 		}
 	}
+	b.gc.collect()
 	tl, stepList, tm := b.sessionTimeline(steps, windows)
 	if err := checkFiniteTime(tl.breakdown); err != nil {
 		return nil, err
