@@ -145,7 +145,7 @@ func BenchmarkRLERoundTrip(b *testing.B) {
 	windows := NewSiteSet()
 	for j := range 100 {
 		for i := range 100 {
-			s.AddWindow(windows, Window{Template: PhosphineWindow, Row: 100 + 6*j, FirstDimer: 100 + 10*i})
+			s.AddWindow(windows, Window{Template: &PhosphineWindow, Row: 100 + 6*j, FirstDimer: 100 + 10*i})
 		}
 	}
 	for _, tc := range []struct {

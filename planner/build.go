@@ -67,6 +67,7 @@ func (o *Options) stage(name string) {
 func Build(ctx context.Context, lay *design.Layout, prof Profile, opt Options) (plan *Plan, err error) {
 	defer recoverInternal(&plan, &err)
 	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof, opt: opt}
+	defer func() { b.gc.release() }()
 	return b.build()
 }
 
@@ -81,6 +82,7 @@ func CheckWriting(ctx context.Context, lay *design.Layout, prof Profile) (cov Co
 	var unused *Plan
 	defer recoverInternal(&unused, &err)
 	b := &builder{ctx: ctx, lay: lay, d: lay.Design, prof: prof}
+	defer func() { b.gc.release() }()
 	_, cov, err = b.writing()
 	if err != nil {
 		return Coverage{}, nil, err
@@ -103,6 +105,7 @@ func (b *builder) regionModes() []RegionMode {
 
 type builder struct {
 	ctx  context.Context
+	gc   *gcBudget // a large plan's share of the soft memory limit
 	lay  *design.Layout
 	d    *design.Design // lay.Design
 	prof Profile
@@ -195,6 +198,7 @@ func (b *builder) startWriting() ([]Window, *coverageJob, error) {
 	for i := range b.strokes {
 		b.strokes[i].ID = i
 	}
+	b.gc = holdGCBudget(len(b.strokes))
 
 	b.opt.stage("coverage")
 	if err := b.ctx.Err(); err != nil {
@@ -203,6 +207,7 @@ func (b *builder) startWriting() ([]Window, *coverageJob, error) {
 	if err := b.openWindows(windows); err != nil {
 		return nil, nil, err
 	}
+	b.placed = nil // only openWindows reads it
 	return windows, b.startCoverage(), nil
 }
 
@@ -228,12 +233,22 @@ type coverageJob struct {
 // tolerances; the sums run on a copy of the strokes, on their own
 // goroutine when there is more than one core (on one, overlapping gains
 // nothing and would hold the check's memory and the route's at once:
-// they run here). A panic of the check comes back as an *InternalError.
+// they run here, as they do for a plan large enough to hold a GC budget,
+// whose memory matters more than the overlap). A panic of the check
+// comes back as an *InternalError.
 func (b *builder) startCoverage() *coverageJob {
 	ctx, cancel := context.WithCancel(b.ctx)
-	job := &coverageJob{done: make(chan struct{}), cancel: cancel, warnAt: len(b.warnings), background: runtime.GOMAXPROCS(0) > 1}
+	job := &coverageJob{done: make(chan struct{}), cancel: cancel, warnAt: len(b.warnings),
+		background: runtime.GOMAXPROCS(0) > 1 && len(b.strokes) < gcBudgetMinStrokes}
 	prof := b.prof
-	ck := newCoverageCheckOwned(b.lay.Surface, b.coverageRegions(), slices.Clone(b.strokes), &prof)
+	// Beside the route the sums need their own copy of the strokes; on
+	// one core they run now and set Build's strokes in place (no copy:
+	// 145 MB at 10^6 windows, held beside the pieces at the check's peak).
+	strokes := b.strokes
+	if job.background {
+		strokes = slices.Clone(strokes)
+	}
+	ck := newCoverageCheckOwned(b.lay.Surface, b.coverageRegions(), strokes, &prof)
 	sums := func() {
 		defer close(job.done)
 		defer func() {
@@ -314,6 +329,7 @@ func (b *builder) build() (plan *Plan, err error) {
 	use := b.modesUsed()
 
 	b.opt.stage("route")
+	b.gc.update()
 	steps, err := b.assignSteps(windows)
 	if err != nil {
 		return nil, err
@@ -343,6 +359,7 @@ func (b *builder) build() (plan *Plan, err error) {
 	}
 
 	b.opt.stage("segments")
+	b.gc.update()
 	draws := drawMotion(prof, b.runs(), b.opt.Seed)
 	margin, tol, pairIndex, err := b.chooseMargin(b.ctx, steps, cps, draws)
 	if err != nil {
@@ -397,12 +414,32 @@ func (b *builder) build() (plan *Plan, err error) {
 	if err != nil {
 		return nil, err
 	}
+	// What reads the segmenters beyond the timeline's needs runs first:
+	// the segments' notes and the by-hand plan (its own jobs and
+	// segmenter, ~190 MB at 10^6 strokes, are then not held beside the
+	// timeline's actions, ~300 MB); the segmenters keep only what the
+	// timeline reads (keepForTimeline).
+	notes := b.describeSegments(steps, tol, tol.all, drift)
+	hand, err := b.byHand(steps, margin)
+	if err != nil {
+		return nil, err
+	}
+	for _, st := range steps {
+		if err := st.keepForTimeline(b.strokes); err != nil {
+			return nil, err
+		}
+	}
+	b.gc.collect()
 	tl, stepList, tm := b.sessionTimeline(steps, windows)
 	if err := checkFiniteTime(tl.breakdown); err != nil {
 		return nil, err
 	}
+	for _, st := range steps {
+		st.sg = nil // the timeline was its last reader
+	}
 
 	b.opt.stage("spread")
+	b.gc.update()
 	mct, err := sampleTimes(b.ctx, tm, prof, b.runs(), b.opt.Seed)
 	if err != nil {
 		return nil, err
@@ -430,7 +467,9 @@ func (b *builder) build() (plan *Plan, err error) {
 	if math.Abs(plan.TotalS-mct.mean) > 1e-6*math.Max(mct.mean, 1) {
 		return nil, &InternalError{Message: fmt.Sprintf("the breakdown sums to %v s, the Monte Carlo mean is %v s", plan.TotalS, mct.mean)}
 	}
-	b.describeSegments(plan, steps, tol)
+	if err := setSegmentNotes(plan, steps, notes); err != nil {
+		return nil, err
+	}
 	b.describeCouplings(plan, cps, tol, pairIndex)
 	b.windowWarnings(plan)
 	plan.FloorS = tl.breakdown.APWriteS + tl.breakdown.FEWriteS + tl.breakdown.DwellS
@@ -442,11 +481,7 @@ func (b *builder) build() (plan *Plan, err error) {
 	}
 	plan.Yield = yield
 	plan.Modes = b.regionModes()
-	byHand, err := b.byHand(steps, margin, plan.TotalS)
-	if err != nil {
-		return nil, err
-	}
-	plan.ByHandS = byHand
+	plan.ByHandS = byHandTotal(plan.TotalS, hand)
 	plan.Warnings = b.warnings
 	if b.opt.Progress != nil {
 		b.opt.Progress("done", 1)
@@ -924,9 +959,10 @@ func reversePath(p []r2.Point) {
 // mode per region (hybrid regions written in AP), the windows last, and a
 // registration at the fixed interval of the tightest budget at the
 // planned values (local before atomic-precision work, coarse before
-// field-emission work).
-func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, error) {
-	total := session
+// field-emission work). It returns each step's part (byHandTotal adds
+// them to the session); it runs before the timeline, when the timeline's
+// actions are not yet held beside its own jobs and segmenter.
+func (b *builder) byHand(steps []*stepWork, margin float64) ([]byHandStep, error) {
 	// The plan's strokes by index (a copy of each would hold the whole
 	// plan again: 10^6 strokes are some 200 MB).
 	byRegion := map[string][]int{}
@@ -934,12 +970,13 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 		s := &b.strokes[i]
 		byRegion[s.Region] = append(byRegion[s.Region], i)
 	}
+	hs := make([]byHandStep, len(steps))
 	inStep := make([]bool, len(b.strokes))
 	for k, st := range steps {
 		if st.sg == nil || st.sg.n == 0 {
 			continue
 		}
-		total -= st.sg.totalOf(st.starts, st.kinds)
+		hs[k].segmented, hs[k].plannedS = true, st.sg.totalOf(st.starts, st.kinds)
 		clear(inStep)
 		for _, i := range st.strokes {
 			inStep[i] = true
@@ -992,14 +1029,39 @@ func (b *builder) byHand(steps []*stepWork, margin, session float64) (float64, e
 			jobs[i] = job{stroke: i, start: start, end: end, writeS: s.DurationS, tolNM: s.ToleranceNM, mode: s.Mode,
 				dwell: s.Kind == StrokeDwell, group: b.groupOf(s)}
 		}
-		sg := newSegmenter(jobs, b.costs, st.sg.model, b.costs.nearest(jobs[0].start))
+		sg := newSegmenter(jobs, b.costs, m, b.costs.nearest(jobs[0].start))
 		starts, kinds := sg.fixedInterval(tightest)
-		total += sg.totalOf(starts, kinds)
+		hs[k].written, hs[k].byHandS = true, sg.totalOf(starts, kinds)
 	}
 	if err := b.ctx.Err(); err != nil {
-		return 0, err
+		return nil, err
 	}
-	return total, nil
+	return hs, nil
+}
+
+// byHandStep is one step's part of the by-hand estimate: the time of
+// its planned segmentation (segmented: it has one) and of the by-hand
+// one (written: it has strokes to write by hand).
+type byHandStep struct {
+	segmented, written bool
+	plannedS, byHandS  float64
+}
+
+// byHandTotal returns the session time by hand: the planned session less
+// each step's planned segmentation plus its by-hand one, in step order
+// (the order byHand added them in when it ran after the timeline).
+func byHandTotal(session float64, hs []byHandStep) float64 {
+	total := session
+	for _, h := range hs {
+		if !h.segmented {
+			continue
+		}
+		total -= h.plannedS
+		if h.written {
+			total += h.byHandS
+		}
+	}
+	return total
 }
 
 // plainStep returns the step of a region's strokes outside its windows

@@ -119,8 +119,16 @@ func (ck *coverageCheck) run(ctx context.Context) error {
 			return err
 		}
 	}
+	// Every worker's copy of the check is made here, before any chunk is
+	// merged: a copy made on a worker's goroutine would read ck while the
+	// merger, on another, adds a finished chunk to it.
+	copies := make([]*coverageCheck, max(workers, 1))
+	for k := range copies {
+		copies[k] = ck.worker()
+	}
+	var started atomic.Int32
 	err := onWorkers(ctx, len(chunks), workers, func() func(int) {
-		w := ck.worker()
+		w := copies[started.Add(1)-1]
 		return func(i int) {
 			w.touched.id = int32(i + 1)
 			c := &chunks[i]

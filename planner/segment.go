@@ -1,6 +1,7 @@
 package planner
 
 import (
+	"fmt"
 	"math"
 
 	"github.com/golang/geo/r2"
@@ -169,6 +170,52 @@ type solveCache struct {
 
 // releaseSolve drops solve's cache (solve makes it again if called).
 func (sg *segmenter) releaseSolve() { sg.cache = nil }
+
+// keepForTimeline drops what only the segmentation, the segments' notes
+// and the by-hand plan read (the clocks, the loads and the drift and
+// creep fields: ~140 MB at 10^6 jobs) and the jobs themselves (~90 MB):
+// the timeline reads each job from its stroke (timelineJob), after this
+// checks that every job is its stroke's, and the order from st.order.
+// It keeps what else scheduleStep reads: the costs, fiducials, moves,
+// approaches, detours and the first local registration's cost. Nothing
+// but the timeline may use st.sg after.
+func (st *stepWork) keepForTimeline(strokes []Stroke) error {
+	sg := st.sg
+	st.jobs = nil
+	if sg == nil {
+		st.order = nil
+		return nil
+	}
+	st.order = make([]int, len(sg.jobs))
+	for j, jb := range sg.jobs {
+		if want := timelineJob(strokes, jb.stroke); jb.stroke < 0 || jb.stroke >= len(strokes) ||
+			want.start != jb.start || want.end != jb.end || want.writeS != jb.writeS || want.tolNM != jb.tolNM || want.mode != jb.mode || want.dwell != jb.dwell {
+			return &InternalError{Message: fmt.Sprintf("job %d (stroke %d) is not its stroke's: %+v against %+v", j, jb.stroke, jb, want)}
+		}
+		st.order[j] = jb.stroke
+	}
+	sg.jobs = nil
+	sg.cache = nil
+	sg.T, sg.ts, sg.sw = nil, nil, nil
+	sg.moveCreep, sg.moveExcess, sg.aCreep, sg.aExcess = nil, nil, nil, nil
+	if len(sg.B[kLocal]) > 0 {
+		sg.B[kLocal] = []float64{sg.B[kLocal][0]}
+	}
+	sg.B[kCoarse] = nil
+	sg.creepF, sg.driftRaw, sg.driftC = decay{}, driftField{}, driftField{}
+	return nil
+}
+
+// timelineJob returns what the timeline reads of the job that writes
+// stroke i: its path's ends (as the route left them), write time,
+// tolerance, mode and whether it is a dwell.
+func timelineJob(strokes []Stroke, i int) job {
+	if i < 0 || i >= len(strokes) {
+		return job{stroke: i}
+	}
+	s := &strokes[i]
+	return job{stroke: i, start: s.Path[0], end: s.Path[len(s.Path)-1], writeS: s.DurationS, tolNM: s.ToleranceNM, mode: s.Mode, dwell: s.Kind == StrokeDwell}
+}
 
 const (
 	kLocal  = 0

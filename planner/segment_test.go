@@ -2,6 +2,7 @@ package planner
 
 import (
 	"context"
+	"errors"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -121,7 +122,7 @@ func randomJobs(rng *rand.Rand, n int) ([]job, []Stroke, costs) {
 		jobs[i] = job{stroke: i, start: r2.Point{X: x, Y: rng.Float64() * 40}, writeS: w, tolNM: tol, mode: mode, nearAP: rng.IntN(2) == 0}
 		x += rng.Float64() * 160
 		jobs[i].end = r2.Point{X: x, Y: rng.Float64() * 40}
-		strokes[i] = Stroke{ID: i, Mode: mode}
+		strokes[i] = Stroke{ID: i, Mode: mode, Kind: StrokeLine, Path: []r2.Point{jobs[i].start, jobs[i].end}, DurationS: w, ToleranceNM: tol}
 	}
 	return jobs, strokes, c
 }
@@ -228,8 +229,13 @@ func TestScheduleMatchesSegmenter(t *testing.T) {
 	p.Drift.VerificationS = 5
 	sg := newSegmenter(jobs, c, testModel(&p), 1)
 	starts, kinds, total, _ := sg.solve(1)
+	// As Build does: the timeline reads each job from its stroke.
+	st := &stepWork{sg: sg, jobs: jobs, starts: starts, kinds: kinds}
+	if err := st.keepForTimeline(strokes); err != nil {
+		t.Fatal(err)
+	}
 	var tl timeline
-	tl.scheduleStep(sg, starts, kinds, strokes, &p, 0, 0, nil)
+	tl.scheduleStep(sg, st.order, starts, kinds, strokes, &p, 0, 0, nil)
 	clock := 0.0
 	for i, a := range tl.actions {
 		if a.Index != i || math.Abs(a.StartS-clock) > 1e-9*math.Max(clock, 1) {
@@ -404,5 +410,21 @@ func TestSegmenterSolvesAgain(t *testing.T) {
 				t.Fatalf("trial %d, margin %v: again %v %v %v %v, new %v %v %v %v", trial, margin, s1, k1, t1, f1, s2, k2, t2, f2)
 			}
 		}
+	}
+}
+
+// TestKeepForTimelineRefusesStaleJobs: the timeline reads each job from
+// its stroke, so a job that no longer matches its stroke (here a path
+// turned round without the job) is an internal error, not a plan.
+func TestKeepForTimelineRefusesStaleJobs(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 8))
+	jobs, strokes, c := randomJobs(rng, 10)
+	p := DefaultProfile()
+	sg := newSegmenter(jobs, c, testModel(&p), 0)
+	reversePath(strokes[3].Path)
+	st := &stepWork{sg: sg, jobs: jobs}
+	var ie *InternalError
+	if err := st.keepForTimeline(strokes); !errors.As(err, &ie) {
+		t.Errorf("keepForTimeline with a stroke turned round: %v, want an *InternalError", err)
 	}
 }

@@ -380,8 +380,8 @@ const searchDraws = 500
 func (b *builder) features(st *stepWork) []feature {
 	byRegion := map[string]*feature{}
 	var names []string
-	for j, jb := range st.jobs {
-		s := &b.strokes[jb.stroke]
+	for j, i := range st.order {
+		s := &b.strokes[i]
 		if s.Mode == design.ModeFE {
 			continue
 		}
@@ -391,7 +391,7 @@ func (b *builder) features(st *stepWork) []feature {
 			byRegion[s.Region] = f
 			names = append(names, s.Region)
 		}
-		f.strokes = append(f.strokes, jb.stroke)
+		f.strokes = append(f.strokes, i)
 		f.lastJob = j
 		for _, p := range s.Path {
 			f.box = f.box.AddPoint(p)
@@ -470,7 +470,7 @@ func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline
 		windowEnd[i] = math.NaN()
 	}
 	for k, stw := range steps {
-		if len(stw.jobs) == 0 {
+		if len(stw.order) == 0 {
 			continue
 		}
 		f0 := c.fiducials[stw.first].At
@@ -505,7 +505,7 @@ func (b *builder) sessionTimeline(steps []*stepWork, windows []Window) (timeline
 				}
 			}
 		}
-		tl.scheduleStep(stw.sg, stw.starts, stw.kinds, b.strokes, prof, len(out)-1, seg, endOf)
+		tl.scheduleStep(stw.sg, stw.order, stw.starts, stw.kinds, b.strokes, prof, len(out)-1, seg, endOf)
 		for i := seg; i < len(tl.segments); i++ {
 			lit.Segments = append(lit.Segments, i)
 		}
@@ -573,8 +573,8 @@ func (b *builder) stepNote(st *stepWork) string {
 	regions := map[string]bool{}
 	var names []string
 	windows := 0
-	for _, jb := range st.jobs {
-		s := &b.strokes[jb.stroke]
+	for _, i := range st.order {
+		s := &b.strokes[i]
 		if s.Window >= 0 {
 			windows++
 		}

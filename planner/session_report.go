@@ -11,10 +11,25 @@ import (
 // about the probability of staying within tolerance.
 const maxSegmentWarnings = 5
 
-// describeSegments fills each segment's registration reason, tightest
-// stroke, budget and probability of staying within tolerance, and warns
-// about segments below the profile's level, naming what would help.
-func (b *builder) describeSegments(plan *Plan, steps []*stepWork, tol tolResult) {
+// segmentNote is what describeSegments works out for one segment, kept
+// until the timeline has made the plan's segments (setSegmentNotes).
+type segmentNote struct {
+	tightest  int
+	budgetS   float64 // 0: unbounded
+	pInTol    float64
+	reason    string
+	step, i   int // segment i of steps[step]
+	wantIndex int // the index the timeline must give it
+}
+
+// describeSegments works out each segment's registration reason,
+// tightest stroke, budget and probability of staying within tolerance
+// (in the order the timeline makes the segments), and warns about
+// segments below the profile's level, naming what would help; pAll and
+// drift are the plan's PInTolerance and Drift. It runs before the
+// timeline, so that the segmenters' arrays only it reads are dropped
+// before the timeline's actions are made (see segmenter.keepForTimeline).
+func (b *builder) describeSegments(steps []*stepWork, tol tolResult, pAll float64, drift DriftPlan) []segmentNote {
 	level := b.prof.Session.PInToleranceMin
 	m := b.model
 	rate := m.r0 * m.rateMul
@@ -30,12 +45,14 @@ func (b *builder) describeSegments(plan *Plan, steps []*stepWork, tol tolResult)
 		coupledTo[later] = fmt.Sprintf("registers on %s, written in step %s (coupled ±%.3g nm)", region, stepName(steps[b.stepOf[earlier]].species), cp.ToleranceNM)
 	}
 	below, named := 0, 0
-	g := 0 // index into tol.segs
-	for _, st := range steps {
+	g := 0 // index into tol.segs, and the segment's index in the plan
+	notes := make([]segmentNote, 0, len(tol.segs))
+	for si, st := range steps {
 		sg := st.sg
 		for sp := range st.spans() {
 			i, s, e, k := sp.i, sp.s, sp.e, sp.k
-			seg := &plan.Segments[st.seg0+i]
+			notes = append(notes, segmentNote{step: si, i: i, wantIndex: g})
+			seg := &notes[len(notes)-1]
 			// The tightest stroke: the largest share of its tolerance used
 			// at the planning values.
 			tight, share := s, -1.0
@@ -46,15 +63,15 @@ func (b *builder) describeSegments(plan *Plan, steps []*stepWork, tol tolResult)
 				}
 			}
 			jb := sg.jobs[tight]
-			seg.Tightest = jb.stroke
+			seg.tightest = jb.stroke
 			cu, _ := at.at(tight)
 			if bud := DriftBudget(jb.tolNM, sg.regError(k), m.creep*cu, rate); !isInf(bud) {
-				seg.BudgetS = bud
+				seg.budgetS = bud
 			}
-			seg.PInTolerance = tol.segs[g]
+			seg.pInTol = tol.segs[g]
 			g++
-			seg.Reason = b.registrationReason(sg, s, e, k, coupledTo)
-			if seg.PInTolerance < level {
+			seg.reason = b.registrationReason(sg, s, e, k, coupledTo)
+			if seg.pInTol < level {
 				below++
 				if named < maxSegmentWarnings {
 					named++
@@ -67,7 +84,7 @@ func (b *builder) describeSegments(plan *Plan, steps []*stepWork, tol tolResult)
 					}
 					s := b.strokes[jb.stroke]
 					b.warnings = append(b.warnings, fmt.Sprintf("segment %d (step %s, %s registration): P(every stroke within tolerance) = %.3f, below %.2f; tightest stroke in %s (±%.3g nm); what would help: %s",
-						seg.Index+1, stepName(st.species), st.kinds[i], seg.PInTolerance, level, s.Region, s.ToleranceNM, fix))
+						seg.wantIndex+1, stepName(st.species), st.kinds[i], seg.pInTol, level, s.Region, s.ToleranceNM, fix))
 				}
 			}
 		}
@@ -75,10 +92,31 @@ func (b *builder) describeSegments(plan *Plan, steps []*stepWork, tol tolResult)
 	if below > named {
 		b.warnings = append(b.warnings, fmt.Sprintf("%d more segments stay within tolerance with less than %.2f probability", below-named, level))
 	}
-	if plan.PInTolerance < level {
+	if pAll < level {
 		b.warnings = append(b.warnings, fmt.Sprintf("P(every stroke and coupled pair within tolerance) = %.3f for the whole write, below session.p_in_tolerance_min = %.2f (segments planned at %.3g nm/min drift and %.3g creep, margin ×%.2f)",
-			plan.PInTolerance, level, plan.Drift.RateNMPerMin, plan.Drift.CreepFraction, plan.Drift.Margin))
+			pAll, level, drift.RateNMPerMin, drift.CreepFraction, drift.Margin))
 	}
+	return notes
+}
+
+// setSegmentNotes puts describeSegments' notes on the plan's segments,
+// which the timeline has made since (segment i of step k is the plan's
+// steps[k].seg0 + i).
+func setSegmentNotes(plan *Plan, steps []*stepWork, notes []segmentNote) error {
+	if len(notes) != len(plan.Segments) {
+		return &InternalError{Message: fmt.Sprintf("%d segments described, %d in the timeline", len(notes), len(plan.Segments))}
+	}
+	for _, n := range notes {
+		i := steps[n.step].seg0 + n.i
+		if i != n.wantIndex || plan.Segments[i].Index != i {
+			return &InternalError{Message: fmt.Sprintf("segment %d of step %d is the timeline's %d, described as %d", n.i, n.step, i, n.wantIndex)}
+		}
+		seg := &plan.Segments[i]
+		seg.Tightest, seg.BudgetS = n.tightest, n.budgetS
+		seg.PInTolerance = n.pInTol
+		seg.Reason = n.reason
+	}
+	return nil
 }
 
 func isInf(x float64) bool { return x > 1e300 }

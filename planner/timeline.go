@@ -77,9 +77,8 @@ type segmentEnd func(tl *timeline, seg int, at r2.Point)
 // registration time equals segmenter.totalOf for the same starts;
 // strokes[jobs[i].stroke].Segment is set, and segments are numbered from
 // firstSeg.
-func (tl *timeline) scheduleStep(sg *segmenter, starts []int, kinds []RegistrationKind, strokes []Stroke, prof *Profile, step, firstSeg int, end segmentEnd) {
-	jobs := sg.jobs
-	if len(jobs) == 0 {
+func (tl *timeline) scheduleStep(sg *segmenter, order []int, starts []int, kinds []RegistrationKind, strokes []Stroke, prof *Profile, step, firstSeg int, end segmentEnd) {
+	if len(order) == 0 {
 		return
 	}
 	c := &sg.c
@@ -94,14 +93,15 @@ func (tl *timeline) scheduleStep(sg *segmenter, starts []int, kinds []Registrati
 			end(tl, seg, last)
 		}
 	}
-	for j, jb := range jobs {
+	for j, i := range order {
+		jb := timelineJob(strokes, i)
 		st := &strokes[jb.stroke]
 		if next < len(starts) && starts[next] == j {
 			kind := kinds[next]
 			at := c.fiducials[sg.fid[j]]
 			from := c.fiducials[sg.first].At
 			if j > 0 {
-				from = jobs[j-1].end
+				from = timelineJob(strokes, order[j-1]).end
 				closeSegment(from)
 			}
 			if j > 0 && kind == RegCoarse {
@@ -148,7 +148,7 @@ func (tl *timeline) scheduleStep(sg *segmenter, starts []int, kinds []Registrati
 				tl.switchTo(c, jb.mode, prevMode, prof, jb.start, seg, false, at)
 			}
 		} else {
-			prev := jobs[j-1]
+			prev := timelineJob(strokes, order[j-1])
 			tl.add(Action{Kind: ActMove, From: prev.end, To: jb.start, DurationS: sg.m[j], Note: moveNote(c, prev.end, jb.start, jb.tolNM)}, seg)
 			if prev.mode != jb.mode {
 				tl.switchTo(c, jb.mode, prev.mode, prof, jb.start, seg, false, Fiducial{})
@@ -171,7 +171,7 @@ func (tl *timeline) scheduleStep(sg *segmenter, starts []int, kinds []Registrati
 		tl.add(a, seg)
 		prevMode = jb.mode
 	}
-	closeSegment(jobs[len(jobs)-1].end)
+	closeSegment(timelineJob(strokes, order[len(order)-1]).end)
 	tl.segments[len(tl.segments)-1].EndS = tl.clock
 }
 

@@ -48,57 +48,37 @@ func greedyTour(g *graph, nb *neighbours) []int32 {
 	full := func(v int32) bool {
 		return deg[v] >= 2 || (v == g.start && g.dummy >= 0 && deg[v] >= 1)
 	}
-	var edges []cand
 	fragments := g.real
 	for v := range int32(g.real) {
 		if p := g.partner[v]; p > v && p != g.dummy {
 			fragments--
 		}
 	}
-
-	// First round on the full neighbour lists, each edge once: counted
-	// first so that the slice is allocated once (it is the largest
-	// temporary at 10^6 nodes).
-	count := 0
-	for pass := range 2 {
-		var edges0 []cand
-		if pass == 1 {
-			edges0 = make([]cand, 0, count)
-		}
-		for v := range int32(g.real) {
-			ids, ds := nb.list(v)
-			for j, u := range ids {
-				if u < 0 {
-					break
-				}
-				if u < v && contains(nb, u, v) {
-					continue // listed from u's side
-				}
-				if pass == 0 {
-					count++
-				} else {
-					edges0 = append(edges0, cand{u: v, v: u, d: ds[j]})
-				}
-			}
-		}
-		if pass == 1 {
-			edges = edges0
+	try := func(u, v int32) {
+		if !full(u) && !full(v) && find(u) != find(v) {
+			link(u, v)
+			fragments--
 		}
 	}
-	take := func(edges []cand) {
-		for _, k := range sortedOrder(edges) {
-			e := edges[k]
-			if fragments <= 1 {
-				return
-			}
-			if !full(e.u) && !full(e.v) && find(e.u) != find(e.v) {
-				link(e.u, e.v)
-				fragments--
-			}
-		}
-	}
-	take(edges)
 
+	// First round on the full neighbour lists, each edge once, shortest
+	// first: by the float32 bit pattern of the length (as sortedOrder),
+	// ties in the order the lists are walked. The edges are not copied out
+	// of the lists: each is its slot in nb (v·k + j, below 2^32: 5·10^8
+	// nodes would not fit in memory), sorted stably by the upper 16 bits
+	// of its key into one array and then, bucket by bucket, by the lower
+	// 16 (at 2·10^6 nodes a list of edges and an order of them, then keys
+	// and their radix buffer, were the largest temporaries: 20, then 16,
+	// now 4 bytes an edge and a bucket's buffer).
+	firstRound(nb, int32(g.real), func(slot int) bool {
+		if fragments <= 1 {
+			return false
+		}
+		try(int32(slot/nb.k), nb.id[slot])
+		return true
+	})
+
+	var edges []cand
 	// Later rounds: join fragment ends to the nearest ends of other
 	// fragments. Each round takes at least the shortest such edge.
 	const kEnds = 8
@@ -122,7 +102,12 @@ func greedyTour(g *graph, nb *neighbours) []int32 {
 				}
 			}
 		}
-		take(edges)
+		for _, k := range sortedOrder(edges) {
+			if fragments <= 1 {
+				break
+			}
+			try(edges[k].u, edges[k].v)
+		}
 	}
 
 	// Walk the single path from one end: the start when the path is
@@ -154,6 +139,88 @@ func greedyTour(g *graph, nb *neighbours) []int32 {
 		tour = append(tour, g.dummy)
 	}
 	return tour
+}
+
+// firstRound calls take with the slot of every edge of the lists of
+// nb's first n nodes, once
+// (an edge listed from both ends is taken from the lower node's list),
+// shortest first by the float32 bit pattern of the length, equal ones in
+// slot order; below 256 edges by the float64 length, as sortedOrder
+// does. It stops when take returns false.
+func firstRound(nb *neighbours, n int32, take func(slot int) bool) {
+	each := func(f func(slot uint32, d float64)) {
+		for v := range n {
+			ids, ds := nb.list(v)
+			o := uint32(v) * uint32(nb.k)
+			for j, u := range ids {
+				if u < 0 {
+					break
+				}
+				if u < v && contains(nb, u, v) {
+					continue // listed from u's side
+				}
+				f(o+uint32(j), ds[j])
+			}
+		}
+	}
+	bits := func(d float64) uint32 { return math.Float32bits(float32(d)) }
+	cnt := make([]int, 1<<16+1)
+	each(func(_ uint32, d float64) { cnt[bits(d)>>16+1]++ })
+	for i := 1; i < len(cnt); i++ {
+		cnt[i] += cnt[i-1]
+	}
+	total := cnt[len(cnt)-1]
+	slots := make([]uint32, total)
+	if total < 256 {
+		i := 0
+		each(func(slot uint32, _ float64) { slots[i] = slot; i++ })
+		slices.SortStableFunc(slots, func(a, b uint32) int { return cmp.Compare(nb.dst[a], nb.dst[b]) })
+		for _, slot := range slots {
+			if !take(int(slot)) {
+				return
+			}
+		}
+		return
+	}
+	next := slices.Clone(cnt[:len(cnt)-1])
+	each(func(slot uint32, d float64) {
+		h := bits(d) >> 16
+		slots[next[h]] = slot
+		next[h]++
+	})
+	var buf []uint32
+	low := make([]int, 1<<16+1)
+	for h := range 1 << 16 {
+		bucket := slots[cnt[h]:cnt[h+1]]
+		if len(bucket) > 1 {
+			if len(bucket) < 1024 {
+				slices.SortStableFunc(bucket, func(a, b uint32) int {
+					return cmp.Compare(bits(nb.dst[a])&0xffff, bits(nb.dst[b])&0xffff)
+				})
+			} else {
+				// A stable counting sort on the lower 16 bits.
+				clear(low)
+				for _, slot := range bucket {
+					low[bits(nb.dst[slot])&0xffff+1]++
+				}
+				for i := 1; i < len(low); i++ {
+					low[i] += low[i-1]
+				}
+				buf = slices.Grow(buf[:0], len(bucket))[:len(bucket)]
+				for _, slot := range bucket {
+					l := bits(nb.dst[slot]) & 0xffff
+					buf[low[l]] = slot
+					low[l]++
+				}
+				copy(bucket, buf)
+			}
+		}
+		for _, slot := range bucket {
+			if !take(int(slot)) {
+				return
+			}
+		}
+	}
 }
 
 // contains reports whether u's neighbour list holds v.
@@ -189,8 +256,26 @@ func sortedOrder(edges []cand) []uint32 {
 	}
 	keys := make([]uint64, n)
 	for i, e := range edges {
-		keys[i] = uint64(math.Float32bits(float32(e.d)))<<32 | uint64(i)
+		keys[i] = lengthKey(e.d, uint64(i))
 	}
+	for i, k := range sortKeys(keys) {
+		order[i] = uint32(k)
+	}
+	return order
+}
+
+// lengthKey is the sort key of an edge of length d at index i (below
+// 2^32): the float32 bit pattern of d above i.
+func lengthKey(d float64, i uint64) uint64 {
+	return uint64(math.Float32bits(float32(d)))<<32 | i
+}
+
+// sortKeys sorts keys made by lengthKey in increasing order of their
+// indices by their upper 32 bits (a stable LSD radix sort: equal lengths
+// keep the order of their indices) and returns them; it may reuse keys'
+// memory.
+func sortKeys(keys []uint64) []uint64 {
+	n := len(keys)
 	tmp := make([]uint64, n)
 	// Digits of 16 bits on large inputs, of 8 below 2^16 edges: the
 	// re-route's small problems (~1,000 edges) spent most of this
@@ -222,8 +307,5 @@ func sortedOrder(edges []cand) []uint32 {
 		}
 		keys, tmp = tmp, keys
 	}
-	for i, k := range keys {
-		order[i] = uint32(k)
-	}
-	return order
+	return keys
 }

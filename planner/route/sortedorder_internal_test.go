@@ -54,3 +54,75 @@ func TestSortKeysByNode(t *testing.T) {
 		}
 	}
 }
+
+// TestFirstRoundOrder checks the order in which greedyTour's first round
+// takes the edges of neighbour lists against a stable comparison sort of
+// the edges, walked list by list, by the key sortedOrder documents (the
+// float32 of the length; below 256 edges the float64): lists of lattice
+// lengths with many ties, with and without spread values, small buckets
+// and large ones.
+func TestFirstRoundOrder(t *testing.T) {
+	for _, n := range []int{3, 30, 2000, 30_000} {
+		r := rand.New(rand.NewSource(int64(n)))
+		const k = 8
+		nb := &neighbours{k: k, id: make([]int32, n*k), dst: make([]float64, n*k)}
+		for v := range n {
+			for j := range k {
+				nb.id[v*k+j], nb.dst[v*k+j] = -1, 0
+			}
+			m := 1 + r.Intn(k)
+			for j := range m {
+				u := int32(r.Intn(n))
+				if int(u) == v {
+					continue
+				}
+				d := float64(1+r.Intn(6)) * 0.384
+				if r.Intn(4) == 0 {
+					d = r.Float64() * 50
+				}
+				nb.id[v*k+j], nb.dst[v*k+j] = u, d
+				if nb.id[v*k+j] < 0 {
+					break
+				}
+			}
+			// Lists end at their first -1, as buildNeighbours leaves them.
+			for j := range k {
+				if nb.id[v*k+j] < 0 {
+					for i := j; i < k; i++ {
+						nb.id[v*k+i] = -1
+					}
+					break
+				}
+			}
+		}
+		var want []uint32
+		for v := range int32(n) {
+			ids, _ := nb.list(v)
+			for j, u := range ids {
+				if u < 0 {
+					break
+				}
+				if u < v && contains(nb, u, v) {
+					continue
+				}
+				want = append(want, uint32(int(v)*k+j))
+			}
+		}
+		if len(want) < 256 {
+			slices.SortStableFunc(want, func(a, b uint32) int { return cmp.Compare(nb.dst[a], nb.dst[b]) })
+		} else {
+			slices.SortStableFunc(want, func(a, b uint32) int { return cmp.Compare(float32(nb.dst[a]), float32(nb.dst[b])) })
+		}
+		var got []uint32
+		firstRound(nb, int32(n), func(slot int) bool { got = append(got, uint32(slot)); return true })
+		if !slices.Equal(got, want) {
+			t.Errorf("n=%d: %d edges taken, not in the order of a stable sort by length (%d edges)", n, len(got), len(want))
+		}
+		stopAt := len(want) / 2
+		got = got[:0]
+		firstRound(nb, int32(n), func(slot int) bool { got = append(got, uint32(slot)); return len(got) < stopAt })
+		if len(got) != stopAt {
+			t.Errorf("n=%d: %d edges taken after take said stop at %d", n, len(got), stopAt)
+		}
+	}
+}

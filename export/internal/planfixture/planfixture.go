@@ -126,7 +126,7 @@ func SET() *Device {
 	// Step As: the two arsenic windows.
 	var segAs []int
 	for _, dm := range []int{86, 93} {
-		w := lattice.Window{Template: lattice.ArsineWindow, Terrace: 0, Row: 26, FirstDimer: dm}
+		w := lattice.Window{Template: &lattice.ArsineWindow, Terrace: 0, Row: 26, FirstDimer: dm}
 		w.AddTo(donors)
 		at := surf.DimerCentre(0, 26, dm).Add(surf.DimerCentre(0, 26, dm+1)).Mul(0.5)
 		segAs = append(segAs, b.dwell("donors", at, "As", "As", windowAs, 4))
@@ -135,7 +135,7 @@ func SET() *Device {
 	seg0 := apBlock("island", island, [2]int{48, 53}, [2]int{80, 95})
 	var winsP []int
 	for _, dm := range []int{84, 88, 92, 96} {
-		w := lattice.Window{Template: lattice.PhosphineWindow, Terrace: 0, Row: 30, FirstDimer: dm}
+		w := lattice.Window{Template: &lattice.PhosphineWindow, Terrace: 0, Row: 30, FirstDimer: dm}
 		w.AddTo(donors)
 		at := surf.DimerCentre(0, 30, dm+1)
 		winsP = append(winsP, b.dwell("donors", at, "P", "P", windowP, 6))
