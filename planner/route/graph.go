@@ -130,8 +130,8 @@ func (g *graph) fixed(i, j int32) bool { return g.partner[i] == j }
 // Measured: at 2·10^5 nodes in random input order a kick cost several
 // times what it costs at 2·10^4; and with 2 s of CPU on the TSPLIB set
 // (1,000-15,000 points, α-ordered candidates, seeds 1-3 and 4-6) the
-// mean gap was 0.227% and 0.216% with the threshold at 50,000, 0.189%
-// and 0.159% at 1,000 (0.197% at 5,000): the search on 13,000-15,000
+// mean gap was 0.227% and 0.216% with the threshold at 50,000, 0.187%
+// and 0.181% at 1,000 (0.197% at 5,000): the search on 13,000-15,000
 // points is bound by memory loads (candidate lists, coordinates), and
 // on the smaller ones the ties of equal distances (drilling layouts on a
 // grid) fall in spatial order. The renumbering costs O(n log n).
