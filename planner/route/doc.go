@@ -48,7 +48,8 @@
 //     reversal is capped at 50,000 positions. Where those find nothing,
 //     the Lin-Kernighan search on the α candidates (Lin & Kernighan 1973;
 //     the chaining of 5-opt basic moves as in Helsgaun 2000): the first
-//     improving sequential move of up to five edges, else the valid
+//     improving sequential move of up to five edges (breadth 5, 3, 2, 1
+//     at levels 1-4; 5, 5, 2, 1 with strokes), else the valid
 //     5-opt move of greatest partial gain, continued from its last node,
 //     up to eight basic moves deep; a chain that never gains is undone.
 //   - Improvement until the budget is spent: segment-local double-bridge
