@@ -216,7 +216,7 @@ func ExamplePlanSweep() {
 	}
 	// Output:
 	// drift.rate_nm_per_min = 0.02 nm/min: 3 segment(s)
-	// drift.rate_nm_per_min = 0.5 nm/min: 5 segment(s)
+	// drift.rate_nm_per_min = 0.5 nm/min: 3 segment(s)
 	// drift.rate_nm_per_min = 2 nm/min: 10 segment(s)
 }
 

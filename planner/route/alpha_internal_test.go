@@ -3,6 +3,7 @@ package route
 import (
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 )
 
@@ -157,7 +158,9 @@ func TestOneTreeBoundBelowOptimum(t *testing.T) {
 
 // TestAlphaFarCandidates checks the candidate lists' far entries on a
 // layout of dense square patches far apart: every list holds the kc
-// α-nearest nearest first, then at most farCands entries each more than
+// α-nearest in α order (α from the same ascent, which
+// TestAlphaMatchesBruteForce checks against its definition; Helsgaun
+// 2000 lists candidates by α), then at most farCands entries each more than
 // farReach times as far as the farthest of those; and some node of every
 // patch has a far entry in another patch, so the search can relink the
 // patches.
@@ -176,9 +179,22 @@ func TestAlphaFarCandidates(t *testing.T) {
 	g := newGraph(items, nil, nil, false)
 	nb := buildNeighbours(g, 10, false)
 	const kc = 5
-	cand := alphaCandidates(g, buildPool(g, 10, 2), greedyTour(g, nb), kc, 25)
+	pool, tour := buildPool(g, 10, 2), greedyTour(g, nb)
+	cand := alphaCandidates(g, pool, tour, kc, 25)
 	if cand == nil {
 		t.Fatal("no candidates")
+	}
+	// α of every pool edge, by its ends.
+	sg := newSparseGraph(g, pool, tour)
+	upper := 0.0
+	for i, v := range tour {
+		upper += g.d(v, tour[(i+1)%len(tour)])
+	}
+	pi, _, tr, _ := ascend(sg, g.n(), upper, 25)
+	alphaOf := map[[2]int32]float64{}
+	for e, a := range alphaValues(sg, tr, pi) {
+		alphaOf[[2]int32{sg.a[e], sg.b[e]}] = a
+		alphaOf[[2]int32{sg.b[e], sg.a[e]}] = a
 	}
 	if cand.k != kc+farCands {
 		t.Fatalf("lists of %d, want %d", cand.k, kc+farCands)
@@ -191,10 +207,17 @@ func TestAlphaFarCandidates(t *testing.T) {
 			if ids[j] < 0 {
 				t.Fatalf("node %d: only %d α-candidates", v, j)
 			}
-			if j > 0 && ds[j] < ds[j-1] {
-				t.Fatalf("node %d: candidates not nearest first: %v", v, ds[:kc])
+			if j > 0 && alphaOf[[2]int32{v, ids[j]}] < alphaOf[[2]int32{v, ids[j-1]}] {
+				t.Fatalf("node %d: candidates not in α order: %v", v, ids[:kc])
 			}
 			reach = max(reach, ds[j])
+		}
+		// No pool node outside the kc has a smaller α than the last.
+		last := alphaOf[[2]int32{v, ids[kc-1]}]
+		for k := sg.off[v]; k < sg.off[v+1]; k++ {
+			if e := sg.adj[k]; !sg.fixed[e] && alphaOf[[2]int32{v, sg.other[k]}] < last && !slices.Contains(ids[:kc], sg.other[k]) {
+				t.Fatalf("node %d: pool node %d has α below the candidates'", v, sg.other[k])
+			}
 		}
 		for j := kc; j < cand.k && ids[j] >= 0; j++ {
 			if ds[j] <= farReach*reach {

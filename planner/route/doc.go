@@ -33,22 +33,23 @@
 //   - Candidates for the Lin-Kernighan search (problems up to 15,000
 //     nodes per second of budget, 30,000 at the default or when bounded
 //     by kicks, and without two or more one-way strokes): the 7 α-nearest
-//     of each node (Helsgaun 2000) among its 10 nearest and 2 nearest per
-//     quadrant and the greedy tour's edges; α from minimum 1-trees on that
-//     sparse graph, with node penalties from 25 steps of subgradient
-//     optimisation (Held & Karp 1970; a lighter set-up, 8 + 1 per quadrant
-//     and 10 steps, above 4,000 nodes per second of budget).
+//     of each node (Helsgaun 2000), in α order, among its 10 nearest and
+//     2 nearest per quadrant and the greedy tour's edges; α from minimum
+//     1-trees on that sparse graph, with node penalties from 25 steps of
+//     subgradient optimisation (Held & Karp 1970; a lighter set-up, 8 + 1
+//     per quadrant and 10 steps, above 4,000 nodes per second of budget).
 //   - Local search from a queue of nodes (don't-look bits, Bentley 1992):
 //     2-opt (Croes 1958), Or-opt moves of segments of up to three nodes
 //     either way round (Or 1976) and sequential 3-opt moves, the depth-3
 //     step of Lin & Kernighan 1973; all searched over the neighbour lists
 //     with the gain criterion. The tour is an array with a position index;
-//     a reversal turns the shorter side. Above 50,000 nodes the nodes are
+//     a reversal turns the shorter side. Above 1,000 nodes the nodes are
 //     renumbered along a Hilbert curve (cache locality); above 100,000 a
 //     reversal is capped at 50,000 positions. Where those find nothing,
 //     the Lin-Kernighan search on the α candidates (Lin & Kernighan 1973;
 //     the chaining of 5-opt basic moves as in Helsgaun 2000): the first
-//     improving sequential move of up to five edges, else the valid
+//     improving sequential move of up to five edges (breadth 5, 3, 2, 1
+//     at levels 1-4; 5, 5, 2, 1 with strokes), else the valid
 //     5-opt move of greatest partial gain, continued from its last node,
 //     up to eight basic moves deep; a chain that never gains is undone.
 //   - Improvement until the budget is spent: segment-local double-bridge

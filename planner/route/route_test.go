@@ -312,7 +312,7 @@ func TestValidLarge(t *testing.T) {
 }
 
 // TestSpatialOrder runs mixed problems through the Hilbert renumbering
-// (normally only above 50,000 nodes) and checks the invariants and the
+// (normally only above 1,000 nodes) and checks the invariants and the
 // exact optimum where it is known.
 func TestSpatialOrder(t *testing.T) {
 	defer route.SetSpatialOrderMin(0)()

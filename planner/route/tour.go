@@ -24,7 +24,8 @@ type solver struct {
 	kopt      koptState
 	lk        lkState
 	lkTouched []int32
-	useLK     bool // chained k-opt (lk.go) instead of single 4-/5-opt moves
+	useLK     bool              // chained k-opt (lk.go) instead of single 4-/5-opt moves
+	lkBreadth [koptDepthMax]int // the chained search's breadth by level
 	units     []int32
 	dpCost    []float64
 	dpFrom    []int8
@@ -45,7 +46,7 @@ func newSolver(g *graph, nb *neighbours, tour []int32) *solver {
 	s := &solver{
 		g: g, nb: nb, n: n, t: tour, pos: make([]int32, n),
 		queue: make([]int32, n), inq: make([]bool, n),
-		maxRev: n, orMax: 3, or3: true,
+		maxRev: n, orMax: 3, or3: true, lkBreadth: koptBreadth,
 	}
 	for i, v := range tour {
 		s.pos[v] = int32(i)
