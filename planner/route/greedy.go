@@ -146,7 +146,8 @@ func greedyTour(g *graph, nb *neighbours) []int32 {
 // (an edge listed from both ends is taken from the lower node's list),
 // shortest first by the float32 bit pattern of the length, equal ones in
 // slot order; below 256 edges by the float64 length, as sortedOrder
-// does. It stops when take returns false.
+// does. It stops when take returns false. Large lists are sorted by
+// slot (4 bytes an edge: no copy of the edges), small ones through keys.
 func firstRound(nb *neighbours, n int32, take func(slot int) bool) {
 	each := func(f func(slot uint32, d float64)) {
 		for v := range n {
@@ -163,6 +164,32 @@ func firstRound(nb *neighbours, n int32, take func(slot int) bool) {
 			}
 		}
 	}
+	if int(n)*nb.k < 1<<16 {
+		// Small lists (the session's many re-routes): the edges and their
+		// keys in one pass, sorted as sortedOrder sorts, in the same order
+		// as below; 2^16 counters would cost more than the sort.
+		var slots []uint32
+		var keys []uint64
+		each(func(slot uint32, d float64) {
+			keys = append(keys, lengthKey(d, uint64(len(slots))))
+			slots = append(slots, slot)
+		})
+		if len(slots) < 256 {
+			slices.SortStableFunc(slots, func(a, b uint32) int { return cmp.Compare(nb.dst[a], nb.dst[b]) })
+		} else {
+			sorted := make([]uint32, len(slots))
+			for i, k := range sortKeys(keys) {
+				sorted[i] = slots[uint32(k)]
+			}
+			slots = sorted
+		}
+		for _, slot := range slots {
+			if !take(int(slot)) {
+				return
+			}
+		}
+		return
+	}
 	bits := func(d float64) uint32 { return math.Float32bits(float32(d)) }
 	cnt := make([]int, 1<<16+1)
 	each(func(_ uint32, d float64) { cnt[bits(d)>>16+1]++ })
@@ -171,17 +198,6 @@ func firstRound(nb *neighbours, n int32, take func(slot int) bool) {
 	}
 	total := cnt[len(cnt)-1]
 	slots := make([]uint32, total)
-	if total < 256 {
-		i := 0
-		each(func(slot uint32, _ float64) { slots[i] = slot; i++ })
-		slices.SortStableFunc(slots, func(a, b uint32) int { return cmp.Compare(nb.dst[a], nb.dst[b]) })
-		for _, slot := range slots {
-			if !take(int(slot)) {
-				return
-			}
-		}
-		return
-	}
 	next := slices.Clone(cnt[:len(cnt)-1])
 	each(func(slot uint32, d float64) {
 		h := bits(d) >> 16
