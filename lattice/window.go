@@ -161,7 +161,9 @@ func (t WindowTemplate) Validate() error {
 // Surface.WindowExists); FirstDimer may then be negative. Template is
 // shared, never changed through a window: the windows of an array hold
 // one template between them (a 10^6-window array held 10^6 copies of
-// it, 104 MB more than the pointers).
+// it, 104 MB more than the pointers). A Window with a nil Template is no
+// window (the zero value that lookups return beside ok = false): its
+// methods need the template and must not be called on it.
 type Window struct {
 	Template   *WindowTemplate
 	Terrace    int

@@ -112,7 +112,7 @@ type builder struct {
 	opt  Options
 
 	gen      *strokeGen
-	placed   []lattice.Window // the plan's windows on the lattice, as Plan.Windows
+	placed   []lattice.Window // the plan's windows on the lattice, as Plan.Windows; nil once openWindows has read it
 	regions  []*regionWork
 	fids     []Fiducial
 	strokes  []Stroke
@@ -268,7 +268,7 @@ func (b *builder) startCoverage() *coverageJob {
 	return job
 }
 
-// stopCoverage stops a coverage check that is no longer wanted (Build
+// stop stops a coverage check that is no longer wanted (Build
 // failed on the way) and waits for its goroutine to end.
 func (job *coverageJob) stop() {
 	if job != nil {
@@ -405,8 +405,7 @@ func (b *builder) build() (plan *Plan, err error) {
 	// The dopant yield depends on the windows alone: taken while the
 	// coverage check may still be running.
 	var yield Yield
-	yieldOK := checkProbabilities(windows) == nil
-	if yieldOK {
+	if checkProbabilities(windows) == nil {
 		yield = YieldOf(windows, b.opt.Seed)
 	}
 	// The session's repairs need each stroke's expected missed sites.
@@ -474,10 +473,7 @@ func (b *builder) build() (plan *Plan, err error) {
 	b.windowWarnings(plan)
 	plan.FloorS = tl.breakdown.APWriteS + tl.breakdown.FEWriteS + tl.breakdown.DwellS
 	if err := checkProbabilities(windows); err != nil {
-		return nil, err
-	}
-	if !yieldOK {
-		yield = YieldOf(windows, b.opt.Seed)
+		return nil, err // yield was not taken
 	}
 	plan.Yield = yield
 	plan.Modes = b.regionModes()

@@ -76,8 +76,8 @@ const coverageExamples = 6
 // The ranges are summed in chunks fixed by the geometry (coverageChunk)
 // on every core, and the chunks' sums added in chunk order, so the
 // result does not depend on the number of cores. A panic in the check
-// comes back as a panic of the caller's goroutine (Build gets it as an
-// *InternalError from checkCoverage).
+// comes back as a panic of the caller's goroutine (Build's own check,
+// startCoverage, gets it as an *InternalError).
 func CheckCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) (Coverage, []Stroke) {
 	cov, out, err := checkCoverage(context.Background(), surf, regions, slices.Clone(strokes), prof)
 	if err != nil {
@@ -89,8 +89,7 @@ func CheckCoverage(surf *lattice.Surface, regions []CoverageRegion, strokes []St
 // checkCoverage is CheckCoverage that stops with ctx.Err() when ctx is
 // done and returns a panic of any of its workers as an *InternalError.
 // It sets the strokes' ExpectedMissed and ExpectedStray in place and
-// returns strokes: Build's own strokes need no copy (145 MB at 10^6
-// windows, held beside the pieces at the check's peak).
+// returns strokes (CheckCoverage passes it a copy of the caller's).
 func checkCoverage(ctx context.Context, surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof Profile) (Coverage, []Stroke, error) {
 	ck := newCoverageCheckOwned(surf, regions, strokes, &prof)
 	if err := ck.run(ctx); err != nil {

@@ -38,7 +38,6 @@ type gcBudgetState struct {
 	sync.Mutex
 	active int   // builds holding a budget
 	limit  int64 // the limit set
-	prev   int64 // the limit before the first of them
 }
 
 // gcBudget is one build's hold on the soft memory limit.
@@ -56,11 +55,10 @@ func holdGCBudget(n int) *gcBudget {
 	g.Lock()
 	defer g.Unlock()
 	if g.active == 0 {
-		prev := debug.SetMemoryLimit(-1)
-		if prev != math.MaxInt64 {
+		if debug.SetMemoryLimit(-1) != math.MaxInt64 {
 			return &gcBudget{} // the user's limit stands
 		}
-		g.prev, g.limit = prev, 0
+		g.limit = 0
 	}
 	runtime.GC() // what is live now, exactly
 	bud := &gcBudget{bytes: int64(n) * gcBudgetPerStroke}
@@ -111,7 +109,7 @@ func (bud *gcBudget) release() {
 	g.limit -= bud.bytes
 	bud.bytes = 0
 	if g.active == 0 {
-		debug.SetMemoryLimit(g.prev)
+		debug.SetMemoryLimit(math.MaxInt64) // none, as before the first
 		return
 	}
 	debug.SetMemoryLimit(g.limit)

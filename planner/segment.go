@@ -188,8 +188,7 @@ func (st *stepWork) keepForTimeline(strokes []Stroke) error {
 	}
 	st.order = make([]int, len(sg.jobs))
 	for j, jb := range sg.jobs {
-		if want := timelineJob(strokes, jb.stroke); jb.stroke < 0 || jb.stroke >= len(strokes) ||
-			want.start != jb.start || want.end != jb.end || want.writeS != jb.writeS || want.tolNM != jb.tolNM || want.mode != jb.mode || want.dwell != jb.dwell {
+		if want := timelineJob(strokes, jb.stroke); jb.stroke < 0 || jb.stroke >= len(strokes) || !sameTimelineJob(want, jb) {
 			return &InternalError{Message: fmt.Sprintf("job %d (stroke %d) is not its stroke's: %+v against %+v", j, jb.stroke, jb, want)}
 		}
 		st.order[j] = jb.stroke
@@ -204,6 +203,15 @@ func (st *stepWork) keepForTimeline(strokes []Stroke) error {
 	sg.B[kCoarse] = nil
 	sg.creepF, sg.driftRaw, sg.driftC = decay{}, driftField{}, driftField{}
 	return nil
+}
+
+// sameTimelineJob reports whether a and b agree in what the timeline
+// reads, bit for bit (a NaN duration is the same NaN: checkFiniteTime
+// names its profile fields later, which an internal error would hide).
+func sameTimelineJob(a, b job) bool {
+	same := func(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) }
+	return same(a.start.X, b.start.X) && same(a.start.Y, b.start.Y) && same(a.end.X, b.end.X) && same(a.end.Y, b.end.Y) &&
+		same(a.writeS, b.writeS) && same(a.tolNM, b.tolNM) && a.mode == b.mode && a.dwell == b.dwell
 }
 
 // timelineJob returns what the timeline reads of the job that writes

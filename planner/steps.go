@@ -23,7 +23,7 @@ type stepWork struct {
 	species string // "" for a step without dopant (a design with none)
 	strokes []int  // indices into builder.strokes
 	first   int    // the fiducial the step starts from
-	order   []int  // writing order (stroke indices)
+	order   []int  // writing order (stroke indices): the route's, then the final one (keepForTimeline)
 	jobs    []job
 	sg      *segmenter
 	starts  []int

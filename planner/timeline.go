@@ -75,7 +75,7 @@ type segmentEnd func(tl *timeline, seg int, at r2.Point)
 //
 // Every action starts where the previous one ends. The writing and
 // registration time equals segmenter.totalOf for the same starts;
-// strokes[jobs[i].stroke].Segment is set, and segments are numbered from
+// strokes[order[i]].Segment is set, and segments are numbered from
 // firstSeg.
 func (tl *timeline) scheduleStep(sg *segmenter, order []int, starts []int, kinds []RegistrationKind, strokes []Stroke, prof *Profile, step, firstSeg int, end segmentEnd) {
 	if len(order) == 0 {

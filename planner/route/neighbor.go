@@ -6,7 +6,8 @@ import (
 )
 
 // neighbours holds each node's k nearest other nodes (leaving out its
-// fixed-edge partner and the dummy), nearest first, with their
+// fixed-edge partner and the dummy), nearest first (the α candidate
+// lists of alpha.go, held the same way: in α order), with their
 // distances. A list shorter than k ends with -1.
 type neighbours struct {
 	k   int
