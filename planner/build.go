@@ -256,6 +256,9 @@ func (b *builder) startCoverage() *coverageJob {
 				job.err = &InternalError{Message: fmt.Sprintf("panic: %v", r), Stack: debug.Stack()}
 			}
 		}()
+		if coverageStartHook != nil {
+			coverageStartHook(ctx)
+		}
 		if job.err = ck.run(ctx); job.err == nil {
 			job.cov, job.strokes = ck.cov, ck.strokes
 		}
@@ -267,6 +270,11 @@ func (b *builder) startCoverage() *coverageJob {
 	}
 	return job
 }
+
+// coverageStartHook, when set (by tests only), is called with the
+// check's context before its sums: a test holds the check there to see
+// that Build stops it.
+var coverageStartHook func(ctx context.Context)
 
 // stop stops a coverage check that is no longer wanted (Build
 // failed on the way) and waits for its goroutine to end.
