@@ -220,7 +220,8 @@ const (
 // Gaussian of width σ centred at x that falls on [lo, hi]. Far beyond an
 // end (8σ) that end's term is 0 or 1 to within 1e-15 and is skipped; to
 // the right of both ends the upper tail is taken as Φ(−a) − Φ(−b), which
-// keeps its digits.
+// keeps its digits. The differences are slantBand's: fastPhi's bit for
+// bit, its table lookups written out.
 func band(lo, hi, sigma, x float64) float64 {
 	a, b := (lo-x)/sigma, (hi-x)/sigma
 	switch {
@@ -231,9 +232,9 @@ func band(lo, hi, sigma, x float64) float64 {
 	case b > 8:
 		return fastPhi(-a)
 	case a > 0:
-		return fastPhi(-a) - fastPhi(-b)
+		return slantBand(-a, -b)
 	}
-	return fastPhi(b) - fastPhi(a)
+	return slantBand(b, a)
 }
 
 // fastPhi returns Φ(x) by cubic Hermite interpolation in a table of Φ

@@ -219,8 +219,10 @@ func (ix *exposureIndex) at(p r2.Point) (x float64, most int32) {
 			if across > s.reach || along < -s.reach || along > s.L+s.reach {
 				continue
 			}
-			// lineExposure from the tables (relative error below 10⁻⁹).
-			e = s.peak * gauss(across, s.sigma) * (fastPhi((s.L-along)/s.sigma) - fastPhi(-along/s.sigma))
+			// lineExposure from the tables (relative error below 10⁻⁹);
+			// slantBand is fastPhi(b) − fastPhi(a) bit for bit without the
+			// erfc of a site well inside the piece (a below −8, b above 8).
+			e = s.peak * gauss(across, s.sigma) * slantBand((s.L-along)/s.sigma, -along/s.sigma)
 			who = s.stroke
 		} else {
 			d := &ix.dots[^item]
