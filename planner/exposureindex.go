@@ -206,7 +206,8 @@ func (ix *exposureIndex) row(y float64) int {
 // piece by lineExposure, each dwell by its linearised neighbour exposure,
 // except that a dwell parked on p (within 0.05 nm) gives its own site's
 // exposure −ln(1 − completion). most is the stroke that gives the most.
-func (ix *exposureIndex) at(p r2.Point) (x float64, most int32) {
+// memo (one per goroutine) keeps Φ beyond fastPhi's table.
+func (ix *exposureIndex) at(p r2.Point, memo *tailMemo) (x float64, most int32) {
 	most = -1
 	best := 0.0
 	for _, item := range ix.cellItems(p) {
@@ -222,7 +223,7 @@ func (ix *exposureIndex) at(p r2.Point) (x float64, most int32) {
 			// lineExposure from the tables (relative error below 10⁻⁹);
 			// slantBand is fastPhi(b) − fastPhi(a) bit for bit without the
 			// erfc of a site well inside the piece (a below −8, b above 8).
-			e = s.peak * gauss(across, s.sigma) * slantBand((s.L-along)/s.sigma, -along/s.sigma)
+			e = s.peak * gauss(across, s.sigma) * slantBandMemo((s.L-along)/s.sigma, -along/s.sigma, memo)
 			who = s.stroke
 		} else {
 			d := &ix.dots[^item]
