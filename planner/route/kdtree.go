@@ -145,19 +145,11 @@ func (b *knnBuf) offer(d2 float64, id int32) {
 func (t *kdTree) nearest(b *knnBuf) {
 	b.d2, b.id = b.d2[:0], b.id[:0]
 	if len(t.nodes) > 0 {
-		t.search(0, b, 0, 0)
+		t.search(0, b)
 	}
 }
 
-// search visits node id, whose cell lies at least |offX| from the query
-// across x and |offY| across y (Arya and Mount 1993, "Algorithms for
-// fast vector quantization", incremental distance): a far child is
-// skipped when its cell's squared distance offX²+offY² already reaches
-// the k-th best, not only its split's. Any point skipped so has
-// dx²+dy² >= offX²+offY² (the same float operations, each monotone), so
-// offer would have refused it: the lists, ties included, are those of
-// the plain search.
-func (t *kdTree) search(id int32, b *knnBuf, offX, offY float64) {
+func (t *kdTree) search(id int32, b *knnBuf) {
 	nd := &t.nodes[id]
 	if nd.left < 0 {
 		for _, p := range t.idx[nd.lo:nd.hi] {
@@ -168,11 +160,7 @@ func (t *kdTree) search(id int32, b *knnBuf, offX, offY float64) {
 			if b.quad >= 0 && quadrant(dx, dy) != b.quad {
 				continue
 			}
-			d2 := dx*dx + dy*dy
-			if len(b.d2) == b.k && d2 >= b.d2[b.k-1] {
-				continue // offer would refuse it
-			}
-			b.offer(d2, p)
+			b.offer(dx*dx+dy*dy, p)
 		}
 		return
 	}
@@ -185,11 +173,11 @@ func (t *kdTree) search(id int32, b *knnBuf, offX, offY float64) {
 		// one of them may lie wholly outside the quadrant.
 		if b.quad>>nd.dim&1 == 1 { // coordinates >= q wanted
 			if nd.split < q {
-				t.search(nd.right, b, offX, offY)
+				t.search(nd.right, b)
 				return
 			}
 		} else if nd.split >= q {
-			t.search(nd.left, b, offX, offY)
+			t.search(nd.left, b)
 			return
 		}
 	}
@@ -198,14 +186,9 @@ func (t *kdTree) search(id int32, b *knnBuf, offX, offY float64) {
 	if diff >= 0 {
 		near, far = far, near
 	}
-	t.search(near, b, offX, offY)
-	if nd.dim == 0 {
-		offX = diff
-	} else {
-		offY = diff
-	}
-	if offX*offX+offY*offY < b.worst() {
-		t.search(far, b, offX, offY)
+	t.search(near, b)
+	if diff*diff < b.worst() {
+		t.search(far, b)
 	}
 }
 
