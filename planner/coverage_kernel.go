@@ -220,7 +220,8 @@ const (
 // Gaussian of width σ centred at x that falls on [lo, hi]. Far beyond an
 // end (8σ) that end's term is 0 or 1 to within 1e-15 and is skipped; to
 // the right of both ends the upper tail is taken as Φ(−a) − Φ(−b), which
-// keeps its digits.
+// keeps its digits. The differences are slantBand's: fastPhi's bit for
+// bit, its table lookups written out.
 func band(lo, hi, sigma, x float64) float64 {
 	a, b := (lo-x)/sigma, (hi-x)/sigma
 	switch {
@@ -231,9 +232,9 @@ func band(lo, hi, sigma, x float64) float64 {
 	case b > 8:
 		return fastPhi(-a)
 	case a > 0:
-		return fastPhi(-a) - fastPhi(-b)
+		return slantBand(-a, -b)
 	}
-	return fastPhi(b) - fastPhi(a)
+	return slantBand(b, a)
 }
 
 // fastPhi returns Φ(x) by cubic Hermite interpolation in a table of Φ
@@ -508,13 +509,19 @@ func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who [
 // TestSlantBandExact). fastPhi's table lookups are written out: the
 // compiler inlines hermite, not fastPhi, and slantedRange calls this for
 // every dimer.
-func slantBand(b, a float64) float64 {
+func slantBand(b, a float64) float64 { return slantBandMemo(b, a, nil) }
+
+// slantBandMemo is slantBand taking Φ beyond the table from m when m is
+// not nil (the same values: normalCDF is a pure function).
+func slantBandMemo(b, a float64, m *tailMemo) float64 {
 	pb := 1.0
 	if b < phiOne {
 		if t := (b + 8) * phiSteps; t >= 0 && t < phiLast {
 			i := int(t)
 			c := &phiSpans[i]
 			pb = hermite(t-float64(i), c[0], c[1], c[2], c[3])
+		} else if m != nil {
+			pb = m.normalCDF(b)
 		} else {
 			pb = normalCDF(b)
 		}
@@ -527,10 +534,43 @@ func slantBand(b, a float64) float64 {
 		i := int(t)
 		c := &phiSpans[i]
 		pa = hermite(t-float64(i), c[0], c[1], c[2], c[3])
+	} else if m != nil {
+		pa = m.normalCDF(a)
 	} else {
 		pa = normalCDF(a)
 	}
 	return pb - pa
+}
+
+// tailMemo remembers normalCDF at the last few arguments it was asked
+// about. Opening a window asks about the same few offsets beyond the
+// table again and again (pieces of one length and σ, sites at the same
+// places around them: on a window array 8.28σ past a piece's end or
+// before its start), and each erfc costs two exponentials; a hit
+// returns the very value normalCDF gave. One per goroutine.
+type tailMemo struct {
+	x, v [4]float64
+	next int
+}
+
+func newTailMemo() *tailMemo {
+	m := &tailMemo{}
+	for i := range m.x {
+		m.x[i] = math.NaN() // equal to no argument
+	}
+	return m
+}
+
+func (m *tailMemo) normalCDF(x float64) float64 {
+	for i, y := range m.x {
+		if y == x {
+			return m.v[i]
+		}
+	}
+	v := normalCDF(x)
+	m.x[m.next], m.v[m.next] = x, v
+	m.next = (m.next + 1) % len(m.x)
+	return v
 }
 
 // hermiteSpans holds, per table step, the values and slopes at its two

@@ -102,6 +102,32 @@ func TestSlantBandExact(t *testing.T) {
 	}
 }
 
+// TestSlantBandMemo: with a tailMemo, slantBand's value is still
+// fastPhi(b) − fastPhi(a) bit for bit, when arguments beyond the table
+// repeat (memo hits), and when more distinct ones than the memo holds
+// come round (replacements).
+func TestSlantBandMemo(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 14))
+	m := newTailMemo()
+	for _, distinct := range []int{1, 3, 4, 5, 9} {
+		offsets := make([]float64, distinct)
+		for i := range offsets {
+			offsets[i] = 8 + rng.Float64()*0.6 // where fastPhi leaves the table for erfc
+		}
+		for range 20000 {
+			x := offsets[rng.IntN(distinct)]
+			for _, ba := range [][2]float64{{x, x - 5}, {5 - x, -x}, {-3, -x}, {x, 3}} {
+				if got, want := slantBandMemo(ba[0], ba[1], m), fastPhi(ba[0])-fastPhi(ba[1]); got != want {
+					t.Fatalf("slantBandMemo(%v, %v) = %v, want %v", ba[0], ba[1], got, want)
+				}
+			}
+		}
+	}
+	if got, want := m.normalCDF(0), normalCDF(0); got != want { // a fresh argument, not the memo's initial state
+		t.Fatalf("memo normalCDF(0) = %v, want %v", got, want)
+	}
+}
+
 // TestMissAndLog: missAndLog's miss is expNeg's bit for bit, and its
 // log(1 − miss) is math.Log1p's to the table's stated 1.5·10⁻⁸, inside both
 // tables, beyond them and at their edges.

@@ -212,44 +212,55 @@ func pInTolerance(ctx context.Context, segs []segLoad, pairs []pairLoad, d mcDra
 	if n == 0 {
 		return res, nil
 	}
-	// The loads side by side (the same sums as over segs, without a
-	// pointer to follow per segment and sample).
-	off := make([]int32, len(segs)+1)
-	for s, g := range segs {
-		off[s+1] = off[s] + int32(len(g.loads))
-	}
-	flat := make([]strokeLoad, 0, off[len(segs)])
-	for _, g := range segs {
-		flat = append(flat, g.loads...)
-	}
+	// Segment by segment over all samples, each sample's products kept
+	// in all and some: the same products in the same order as sample by
+	// sample, but one segment's loads and σ stay at hand and its rooms,
+	// alike from sample to sample, read nearby entries of erfTable
+	// (sample by sample the lookups jumped across the whole table).
+	all, some := make([]float64, n), make([]float64, n)
 	for i := range n {
-		if i%256 == 0 {
+		all[i], some[i] = 1, 1
+	}
+	for s := range segs {
+		if s%64 == 0 {
 			if err := ctx.Err(); err != nil {
 				return res, err
 			}
 		}
-		r, c := d.rate[i], d.creep[i]
-		all, some := 1.0, 1.0
-		for s := range segs {
+		loads, sigma := segs[s].loads, segs[s].sigma
+		keep := s >= len(leave) || !leave[s]
+		sum := 0.0
+		for i := range n {
+			r, c := d.rate[i], d.creep[i]
 			room := math.Inf(1)
-			for _, l := range flat[off[s]:off[s+1]] {
+			for _, l := range loads {
 				room = min(room, l.tol-c*l.creep-r*l.drift)
 			}
-			p := withinProb(room, segs[s].sigma)
-			res.segs[s] += p
-			all *= p
-			if s >= len(leave) || !leave[s] {
-				some *= p
+			p := withinProb(room, sigma)
+			sum += p
+			all[i] *= p
+			if keep {
+				some[i] *= p
 			}
 		}
-		for k, pl := range pairs {
-			p := withinProb(pl.tol-c*pl.creep-r*pl.drift, pl.sigma)
-			res.pairs[k] += p
-			all *= p
-			some *= p
+		res.segs[s] = sum
+	}
+	for k, pl := range pairs {
+		if err := ctx.Err(); err != nil {
+			return res, err
 		}
-		res.all += all
-		res.some += some
+		sum := 0.0
+		for i := range n {
+			p := withinProb(pl.tol-d.creep[i]*pl.creep-d.rate[i]*pl.drift, pl.sigma)
+			sum += p
+			all[i] *= p
+			some[i] *= p
+		}
+		res.pairs[k] = sum
+	}
+	for i := range n {
+		res.all += all[i]
+		res.some += some[i]
 	}
 	res.all /= float64(n)
 	res.some /= float64(n)

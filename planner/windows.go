@@ -48,9 +48,10 @@ func (b *builder) openWindows(windows []Window) error {
 	blocks := (len(windows) + openBlock - 1) / openBlock
 	return onWorkers(b.ctx, blocks, min(runtime.GOMAXPROCS(0), blocks), func() func(int) {
 		var own []r2.Point
+		memo := newTailMemo()
 		return func(blk int) {
 			for i := blk * openBlock; i < min(len(windows), (blk+1)*openBlock); i++ {
-				own = b.openWindow(windows, i, ix, painted, lineNM[i]*spurious, valid, own)
+				own = b.openWindow(windows, i, ix, painted, lineNM[i]*spurious, valid, own, memo)
 			}
 		}
 	})
@@ -61,9 +62,9 @@ func (b *builder) openWindows(windows []Window) error {
 const openBlock = 256
 
 // openWindow sets window i's figures (see openWindows); own is scratch,
-// returned for reuse.
+// returned for reuse, and memo the worker's (see exposureIndex.at).
 func (b *builder) openWindow(windows []Window, i int, ix *exposureIndex, painted *lattice.SiteSet, spuriousN float64,
-	valid func(lattice.Site) bool, own []r2.Point) []r2.Point {
+	valid func(lattice.Site) bool, own []r2.Point, memo *tailMemo) []r2.Point {
 	surf := b.lay.Surface
 	const reach = lattice.RowSpacing + 1e-9
 	w := b.placed[i]
@@ -88,7 +89,7 @@ func (b *builder) openWindow(windows []Window, i int, ix *exposureIndex, painted
 				if !mine && (painted.Contains(site) || !within(own, p, reach)) {
 					continue
 				}
-				x, _ := ix.at(p)
+				x, _ := ix.at(p, memo)
 				if mine {
 					logP += math.Log(ClearProbability(x))
 				} else {
