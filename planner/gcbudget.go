@@ -25,10 +25,13 @@ import (
 // pacing. Measured on the 10^6- and 4·10^6-window arrays (DEVELOPERS.md,
 // issue 14): a complement to a smaller live heap, not a replacement.
 const (
-	gcBudgetMinStrokes = 200_000
-	gcBudgetPerStroke  = 600
-	gcBudgetHeadroom   = 1.15
+	gcBudgetPerStroke = 600
+	gcBudgetHeadroom  = 1.15
 )
+
+// gcBudgetMinStrokes is the smallest plan, in strokes, that holds a
+// budget: a variable so that a test can make an ordinary design hold one.
+var gcBudgetMinStrokes = 200_000
 
 // gcBudgets is the process's soft memory limit while large plans are
 // built: plans may be built concurrently (sweeps), each adding its budget.
