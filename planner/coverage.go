@@ -136,6 +136,8 @@ type coverageCheck struct {
 	heldStraysPeak int
 	issues         []string
 	cov            Coverage
+	// tail is a worker's memo of Φ beyond fastPhi's table (nil: none).
+	tail *tailMemo
 }
 
 // regionAcc accumulates one region's expectation; logP is the natural
@@ -371,7 +373,7 @@ func (ck *coverageCheck) factors(ps []*piece, r siteRect) (fu0, fu1, fy0, fy1 []
 		if p.kind == pieceSlanted {
 			continue
 		}
-		fu0[i], fu1[i] = p.uFactor(r.u0), p.uFactor(r.u1)
+		fu0[i], fu1[i] = p.uFactorMemo(r.u0, ck.tail), p.uFactorMemo(r.u1, ck.tail)
 		if p.comb != nil {
 			// Bounded from its table of lines; these serve a range of one line.
 			fy0[i], fy1[i] = p.yFactorLine(r.l0), p.yFactorLine(r.l1-1)
@@ -465,7 +467,7 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		fu := ck.arena[top : top+n]
 		for i, p := range active {
 			if p.kind != pieceSlanted {
-				fu[i] = p.uFactor(u)
+				fu[i] = p.uFactorMemo(u, ck.tail)
 			}
 		}
 		fu0, fu1 = fu, fu
@@ -645,7 +647,7 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu []float6
 			}
 			f := fu[i*n : (i+1)*n]
 			if !looked[i] {
-				p.alongFactors(d0, d1, f)
+				p.alongFactors(d0, d1, f, ck.tail)
 				looked[i] = true
 			}
 			xs := x[:len(f)]
@@ -924,7 +926,7 @@ func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 [
 		b.d0, b.u0 = mid, us
 		for i, p := range active {
 			if p.kind != pieceSlanted {
-				fm[i] = p.uFactor(us)
+				fm[i] = p.uFactorMemo(us, ck.tail)
 			}
 		}
 		ck.decide(a, active, fu0, fm, fy0, fy1)

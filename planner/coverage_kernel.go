@@ -176,8 +176,9 @@ func (p *piece) alongRange(d0, d1 int, amp, topAmp float64, x, best []float64, w
 
 // alongFactors writes the piece's along factor at dimers [d0, d1) to f
 // (not for slanted pieces or dots): the values alongRange adds, from the
-// cache (filled where missing), 0 or 1 outside its windows.
-func (p *piece) alongFactors(d0, d1 int, f []float64) {
+// cache (filled where missing, with m: see uFactorMemo), 0 or 1 outside
+// its windows.
+func (p *piece) alongFactors(d0, d1 int, f []float64, m *tailMemo) {
 	if p.cache[0].v == nil && !p.cache[0].filled {
 		p.uFactorAt(d0) // allocates the windows
 	}
@@ -200,7 +201,7 @@ func (p *piece) alongFactors(d0, d1 int, f []float64) {
 		for d := a; d < b; d++ {
 			v := c.v[d-c.d0]
 			if v == 0 {
-				if v = p.uFactor(lattice.DimerAlong(d)); v != 0 {
+				if v = p.uFactorMemo(lattice.DimerAlong(d), m); v != 0 {
 					c.v[d-c.d0] = v
 				}
 			}
@@ -222,19 +223,24 @@ const (
 // the right of both ends the upper tail is taken as Φ(−a) − Φ(−b), which
 // keeps its digits. The differences are slantBand's: fastPhi's bit for
 // bit, its table lookups written out.
-func band(lo, hi, sigma, x float64) float64 {
+func band(lo, hi, sigma, x float64) float64 { return bandMemo(lo, hi, sigma, x, nil) }
+
+// bandMemo is band taking Φ beyond the table from m when m is not nil
+// (see tailMemo): the coverage check meets the sites beyond a piece's
+// ends at a few dozen distinct offsets.
+func bandMemo(lo, hi, sigma, x float64, m *tailMemo) float64 {
 	a, b := (lo-x)/sigma, (hi-x)/sigma
 	switch {
 	case a < -8 && b > 8:
 		return 1
 	case a < -8:
-		return fastPhi(b)
+		return fastPhiMemo(b, m)
 	case b > 8:
-		return fastPhi(-a)
+		return fastPhiMemo(-a, m)
 	case a > 0:
-		return slantBand(-a, -b)
+		return slantBandMemo(-a, -b, m)
 	}
-	return slantBand(b, a)
+	return slantBandMemo(b, a, m)
 }
 
 // fastPhi returns Φ(x) by cubic Hermite interpolation in a table of Φ
@@ -244,6 +250,21 @@ func band(lo, hi, sigma, x float64) float64 {
 func fastPhi(x float64) float64 {
 	t := (x + 8) * phiSteps
 	if !(t >= 0 && t < phiLast) {
+		return normalCDF(x)
+	}
+	i := int(t)
+	c := &phiSpans[i]
+	return hermite(t-float64(i), c[0], c[1], c[2], c[3])
+}
+
+// fastPhiMemo is fastPhi taking Φ beyond the table from m when m is not
+// nil (the same values).
+func fastPhiMemo(x float64, m *tailMemo) float64 {
+	t := (x + 8) * phiSteps
+	if !(t >= 0 && t < phiLast) {
+		if m != nil {
+			return m.normalCDF(x)
+		}
 		return normalCDF(x)
 	}
 	i := int(t)
@@ -303,10 +324,14 @@ var gaussValue, gaussSlope = func() (v, d []float64) {
 
 // uFactor and yFactor split a parallel, square or dot piece's exposure
 // into a factor of the along position and one of the across position.
-func (p *piece) uFactor(u float64) float64 {
+func (p *piece) uFactor(u float64) float64 { return p.uFactorMemo(u, nil) }
+
+// uFactorMemo is uFactor with band's Φ beyond the table from m (see
+// bandMemo).
+func (p *piece) uFactorMemo(u float64, m *tailMemo) float64 {
 	switch p.kind {
 	case pieceParallel:
-		return band(p.a0, p.a1, p.sigma, u)
+		return bandMemo(p.a0, p.a1, p.sigma, u, m)
 	case pieceDot:
 		return gauss(u-p.pu, p.sigma)
 	}

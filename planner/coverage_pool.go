@@ -296,6 +296,7 @@ func (ck *coverageCheck) worker() *coverageCheck {
 	w.missed, w.stray = make([]float64, len(ck.missed)), make([]float64, len(ck.stray))
 	w.touched = chunkMarks{acc: make([]int32, len(ck.acc)), stroke: make([]int32, len(ck.missed))}
 	w.nOver, w.straySite, w.issues = 0, nil, nil
+	w.tail = newTailMemo()
 	return &w
 }
 

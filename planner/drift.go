@@ -63,6 +63,23 @@ func (d *decay) add(t, a float64) {
 	d.level = append(d.level, lvl+a)
 }
 
+// same reports whether d and e hold the same sources, bit for bit (their
+// integrals and levels are then the same at every time).
+func (d *decay) same(e *decay) bool {
+	bits := func(a, b []float64) bool {
+		if len(a) != len(b) {
+			return false
+		}
+		for i := range a {
+			if math.Float64bits(a[i]) != math.Float64bits(b[i]) {
+				return false
+			}
+		}
+		return true
+	}
+	return math.Float64bits(d.tau) == math.Float64bits(e.tau) && bits(d.times, e.times) && bits(d.cum, e.cum) && bits(d.level, e.level)
+}
+
 // integral returns the integral of the summed rate from 0 to t (0 for
 // t before the first source).
 func (d *decay) integral(t float64) float64 {
@@ -93,12 +110,66 @@ func (d *decay) levelAt(t float64) float64 {
 // [t0, t1] when delay seconds are spent before t0 without the clock
 // knowing (a registration): at least their arrival in [t0, t1] times
 // 1 − exp(−delay/τ), as each has decayed that much more.
-func (d *decay) saved(t0, t1, delay float64) float64 {
+func (d *decay) saved(t0, t1, delay float64) float64 { return d.savedMemo(t0, t1, delay, nil) }
+
+// savedMemo is saved taking its Expm1 values from m when m is not nil
+// (the same values: Expm1 is a pure function). The segmenter asks it
+// for every start with the same delay (a local registration's time)
+// again and again, and on an array with few distinct spans.
+func (d *decay) savedMemo(t0, t1, delay float64, m *savedMemo) float64 {
 	if d.tau <= 0 || delay <= 0 || t1 <= t0 {
 		return 0
 	}
-	pre := d.levelAt(t0) * d.tau * (-math.Expm1(-(t1 - t0) / d.tau))
-	return pre * (-math.Expm1(-delay / d.tau))
+	lv := d.levelAt(t0)
+	if lv == 0 && d.tau-d.tau == 0 && t1-t0 == t1-t0 && delay == delay {
+		// Nothing left of the sources (on an array about half the
+		// starts): the product below is lv times finite factors ≥ +0,
+		// lv itself (its sign too); a NaN or infinite τ, span or delay
+		// takes the product's way.
+		return lv
+	}
+	if m == nil {
+		pre := lv * d.tau * (-math.Expm1(-(t1 - t0) / d.tau))
+		return pre * (-math.Expm1(-delay / d.tau))
+	}
+	pre := lv * d.tau * (-m.span.expm1(-(t1 - t0) / d.tau))
+	return pre * (-m.delay.expm1(-delay / d.tau))
+}
+
+// savedMemo holds savedMemo's Expm1 values, of the span [t0, t1] and of
+// the delay apart (the delay's repeat, the span's less). One per
+// goroutine.
+type savedMemo struct{ span, delay expm1Memo }
+
+func newSavedMemo() *savedMemo {
+	return &savedMemo{span: newExpm1Memo(), delay: newExpm1Memo()}
+}
+
+// expm1Memo remembers math.Expm1 at the last few arguments it was asked
+// about. A hit returns the very value Expm1 gave.
+type expm1Memo struct {
+	x, v [4]float64
+	next int
+}
+
+func newExpm1Memo() expm1Memo {
+	var m expm1Memo
+	for i := range m.x {
+		m.x[i] = math.NaN() // equal to no argument
+	}
+	return m
+}
+
+func (m *expm1Memo) expm1(x float64) float64 {
+	for i, y := range m.x {
+		if y == x {
+			return m.v[i]
+		}
+	}
+	v := math.Expm1(x)
+	m.x[m.next], m.v[m.next] = x, v
+	m.next = (m.next + 1) % len(m.x)
+	return v
 }
 
 // driftField is the drift displacement (nm) along one step's writing

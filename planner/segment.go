@@ -233,6 +233,16 @@ const (
 var regKinds = [2]RegistrationKind{RegLocal, RegCoarse}
 
 func newSegmenter(jobs []job, c costs, model segModel, first int) *segmenter {
+	return newSegmenterFrom(jobs, c, model, first, nil)
+}
+
+// newSegmenterFrom is newSegmenter taking the moves, switches,
+// fiducials, approaches and detours of a job from prev (a segmenter of
+// the same step made with the same costs and first fiducial, before
+// reoptimise changed a few segments' order) where the job and the one
+// before it are prev's at the same index, bit for bit in what they read
+// (sameMoveInputs): they are the values the motion would give again.
+func newSegmenterFrom(jobs []job, c costs, model segModel, first int, prev *segmenter) *segmenter {
 	n := len(jobs)
 	sg := &segmenter{jobs: jobs, c: c, model: model, n: n, first: first,
 		T: make([]float64, n), ts: make([]float64, n), m: make([]float64, n), sw: make([]float64, n),
@@ -253,14 +263,27 @@ func newSegmenter(jobs []job, c costs, model segModel, first int) *segmenter {
 	if n == 0 {
 		return sg
 	}
+	// reuse[j]: job j and the one before it are prev's.
+	var reuse []bool
+	if prev != nil && prev.first == first && prev.fid != nil {
+		reuse = make([]bool, n)
+		for j := range min(n, prev.n) {
+			reuse[j] = sameMoveInputs(jobs[j], prev.jobs[j]) && (j == 0 || sameMoveInputs(jobs[j-1], prev.jobs[j-1]))
+		}
+	}
 	t := 0.0
 	for j := range jobs {
 		if j > 0 {
-			mv := c.move(jobs[j-1].end, jobs[j].start, jobs[j].tolNM)
-			sg.m[j] = mv.timeS
-			sg.moveCreep[j] = mv.creepUnit
-			sg.moveExcess[j] = mv.excess
+			if reuse != nil && reuse[j] {
+				sg.m[j], sg.moveCreep[j], sg.moveExcess[j] = prev.m[j], prev.moveCreep[j], prev.moveExcess[j]
+			} else {
+				mv := c.move(jobs[j-1].end, jobs[j].start, jobs[j].tolNM)
+				sg.m[j] = mv.timeS
+				sg.moveCreep[j] = mv.creepUnit
+				sg.moveExcess[j] = mv.excess
+			}
 			sg.sw[j] = c.switchCost(jobs[j-1].mode, jobs[j].mode)
+			mv := moveResult{timeS: sg.m[j], creepUnit: sg.moveCreep[j], excess: sg.moveExcess[j]}
 			t += mv.timeS
 			// The creep and the excess start when the move has settled.
 			sg.creepF.add(t, mv.creepUnit/c.creepTau)
@@ -274,6 +297,13 @@ func newSegmenter(jobs []job, c costs, model segModel, first int) *segmenter {
 	}
 	f0 := c.fiducials[first].At
 	for s := range jobs {
+		if s > 0 && reuse != nil && reuse[s] {
+			sg.fid[s], sg.a[s], sg.aCreep[s], sg.aExcess[s] = prev.fid[s], prev.a[s], prev.aCreep[s], prev.aExcess[s]
+			sg.detour[s] = prev.detour[s]
+			sg.B[kCoarse][s] = c.verify + sg.detour[s] + c.register + sg.a[s] - sg.m[s]
+			sg.B[kLocal][s] = c.verify + c.local
+			continue
+		}
 		f := first
 		if s > 0 {
 			f = c.nearest(jobs[s].start)
@@ -294,6 +324,25 @@ func newSegmenter(jobs []job, c costs, model segModel, first int) *segmenter {
 		sg.B[kLocal][s] = c.verify + c.local
 	}
 	return sg
+}
+
+// keepForSuccessor drops what newSegmenterFrom does not read of a
+// segmenter about to be replaced: its clocks, switch costs,
+// registration costs, fields and solve's cache.
+func (sg *segmenter) keepForSuccessor() {
+	sg.cache = nil
+	sg.T, sg.ts, sg.sw = nil, nil, nil
+	sg.B = [2][]float64{}
+	sg.creepF, sg.driftRaw, sg.driftC = decay{}, driftField{}, driftField{}
+}
+
+// sameMoveInputs reports whether jobs a and b agree, bit for bit, in
+// what newSegmenter's moves, switches, fiducials, approaches and detours
+// read of them: their ends, tolerance and mode.
+func sameMoveInputs(a, b job) bool {
+	same := func(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) }
+	return same(a.start.X, b.start.X) && same(a.start.Y, b.start.Y) && same(a.end.X, b.end.X) && same(a.end.Y, b.end.Y) &&
+		same(a.tolNM, b.tolNM) && a.mode == b.mode
 }
 
 // clockStart returns the writing clock at which a registration of kind k
@@ -337,14 +386,20 @@ func (sg *segmenter) regError(k int) float64 {
 // while the registration's own time passes, which the writing clock does
 // not hold (counted up to the end of job s only, a lower bound).
 func (sg *segmenter) startTerms(s, k int) (creepUnit, drift float64) {
+	return sg.startTermsMemo(s, k, nil)
+}
+
+// startTermsMemo is startTerms with the decays' Expm1 values from m (see
+// decay.savedMemo).
+func (sg *segmenter) startTermsMemo(s, k int, m *savedMemo) (creepUnit, drift float64) {
 	t0 := sg.clockStart(s, k)
 	delay := sg.B[k][s]
 	if s > 0 {
 		delay -= sg.c.verify
 	}
 	f := sg.field(s)
-	creepUnit = -sg.creepF.saved(t0, sg.T[s], delay)
-	drift = -f.moves.saved(t0, sg.T[s], delay)
+	creepUnit = -sg.creepF.savedMemo(t0, sg.T[s], delay, m)
+	drift = -f.moves.savedMemo(t0, sg.T[s], delay, m)
 	if k == kCoarse {
 		direct, excess := 0.0, 0.0
 		if s > 0 {
@@ -566,19 +621,30 @@ func (sg *segmenter) prepareSolve() *solveCache {
 	value := func(f *driftField, t float64) float64 {
 		return md.creep*sg.creepF.integral(t) + md.rateMul*f.at(t)
 	}
-	for v, f := range []*driftField{&sg.driftRaw, &sg.driftC} {
-		sc.value[v] = make([]float64, n)
-		for j := range n {
-			sc.value[v][j] = value(f, sg.T[j])
+	// value on both fields, each integral taken once: the creep is the
+	// same on both, and so are the moves' excess decays (newSegmenter
+	// adds the same sources to both; checked, else taken apart).
+	raw, cmp := &sg.driftRaw, &sg.driftC
+	sameMoves := raw.moves.same(&cmp.moves)
+	sc.value[0], sc.value[1] = make([]float64, n), make([]float64, n)
+	for j := range n {
+		t := sg.T[j]
+		ci, mr := sg.creepF.integral(t), raw.moves.integral(t)
+		mc := mr
+		if !sameMoves {
+			mc = cmp.moves.integral(t)
 		}
+		sc.value[0][j] = md.creep*ci + md.rateMul*(raw.basePerS*t+mr+raw.anneal.integral(t))
+		sc.value[1][j] = md.creep*ci + md.rateMul*(cmp.basePerS*t+mc+cmp.anneal.integral(t))
 	}
+	memo := newSavedMemo()
 	for k := range sc.cst {
 		sc.cst[k] = make([]float64, n)
 		for s := range n {
 			if !sg.allowed(s, k) {
 				continue
 			}
-			c0, d0 := sg.startTerms(s, k)
+			c0, d0 := sg.startTermsMemo(s, k, memo)
 			sc.cst[k][s] = value(sg.field(s), sg.clockStart(s, k)) - sg.regError(k) - md.creep*c0 - md.rateMul*d0
 		}
 	}

@@ -142,8 +142,12 @@ func (b *builder) planSteps(steps []*stepWork, cps []couplingWork) error {
 			return err
 		}
 		st.jobs = jobs
-		st.sg = nil // garbage before its successor is made
-		st.sg = newSegmenter(jobs, c, m, first)
+		// The successor takes the moves of the jobs reoptimise left in
+		// place from it (most of them), then it is garbage.
+		prev := st.sg
+		prev.keepForSuccessor()
+		st.sg = nil
+		st.sg = newSegmenterFrom(jobs, c, m, first, prev)
 	}
 	return nil
 }
