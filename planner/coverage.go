@@ -137,7 +137,7 @@ type coverageCheck struct {
 	issues         []string
 	cov            Coverage
 	// tail is a worker's memo of Φ beyond fastPhi's table (nil: none).
-	tail *tailMemo
+	tail *recentMemo
 }
 
 // regionAcc accumulates one region's expectation; logP is the natural

@@ -178,7 +178,7 @@ func (p *piece) alongRange(d0, d1 int, amp, topAmp float64, x, best []float64, w
 // (not for slanted pieces or dots): the values alongRange adds, from the
 // cache (filled where missing, with m: see uFactorMemo), 0 or 1 outside
 // its windows.
-func (p *piece) alongFactors(d0, d1 int, f []float64, m *tailMemo) {
+func (p *piece) alongFactors(d0, d1 int, f []float64, m *recentMemo) {
 	if p.cache[0].v == nil && !p.cache[0].filled {
 		p.uFactorAt(d0) // allocates the windows
 	}
@@ -226,9 +226,9 @@ const (
 func band(lo, hi, sigma, x float64) float64 { return bandMemo(lo, hi, sigma, x, nil) }
 
 // bandMemo is band taking Φ beyond the table from m when m is not nil
-// (see tailMemo): the coverage check meets the sites beyond a piece's
+// (see newTailMemo): the coverage check meets the sites beyond a piece's
 // ends at a few dozen distinct offsets.
-func bandMemo(lo, hi, sigma, x float64, m *tailMemo) float64 {
+func bandMemo(lo, hi, sigma, x float64, m *recentMemo) float64 {
 	a, b := (lo-x)/sigma, (hi-x)/sigma
 	switch {
 	case a < -8 && b > 8:
@@ -259,11 +259,11 @@ func fastPhi(x float64) float64 {
 
 // fastPhiMemo is fastPhi taking Φ beyond the table from m when m is not
 // nil (the same values).
-func fastPhiMemo(x float64, m *tailMemo) float64 {
+func fastPhiMemo(x float64, m *recentMemo) float64 {
 	t := (x + 8) * phiSteps
 	if !(t >= 0 && t < phiLast) {
 		if m != nil {
-			return m.normalCDF(x)
+			return m.at(x)
 		}
 		return normalCDF(x)
 	}
@@ -328,7 +328,7 @@ func (p *piece) uFactor(u float64) float64 { return p.uFactorMemo(u, nil) }
 
 // uFactorMemo is uFactor with band's Φ beyond the table from m (see
 // bandMemo).
-func (p *piece) uFactorMemo(u float64, m *tailMemo) float64 {
+func (p *piece) uFactorMemo(u float64, m *recentMemo) float64 {
 	switch p.kind {
 	case pieceParallel:
 		return bandMemo(p.a0, p.a1, p.sigma, u, m)
@@ -538,7 +538,7 @@ func slantBand(b, a float64) float64 { return slantBandMemo(b, a, nil) }
 
 // slantBandMemo is slantBand taking Φ beyond the table from m when m is
 // not nil (the same values: normalCDF is a pure function).
-func slantBandMemo(b, a float64, m *tailMemo) float64 {
+func slantBandMemo(b, a float64, m *recentMemo) float64 {
 	pb := 1.0
 	if b < phiOne {
 		if t := (b + 8) * phiSteps; t >= 0 && t < phiLast {
@@ -546,7 +546,7 @@ func slantBandMemo(b, a float64, m *tailMemo) float64 {
 			c := &phiSpans[i]
 			pb = hermite(t-float64(i), c[0], c[1], c[2], c[3])
 		} else if m != nil {
-			pb = m.normalCDF(b)
+			pb = m.at(b)
 		} else {
 			pb = normalCDF(b)
 		}
@@ -560,42 +560,21 @@ func slantBandMemo(b, a float64, m *tailMemo) float64 {
 		c := &phiSpans[i]
 		pa = hermite(t-float64(i), c[0], c[1], c[2], c[3])
 	} else if m != nil {
-		pa = m.normalCDF(a)
+		pa = m.at(a)
 	} else {
 		pa = normalCDF(a)
 	}
 	return pb - pa
 }
 
-// tailMemo remembers normalCDF at the last few arguments it was asked
-// about. Opening a window asks about the same few offsets beyond the
-// table again and again (pieces of one length and σ, sites at the same
-// places around them: on a window array 8.28σ past a piece's end or
-// before its start), and each erfc costs two exponentials; a hit
-// returns the very value normalCDF gave. One per goroutine.
-type tailMemo struct {
-	x, v [4]float64
-	next int
-}
-
-func newTailMemo() *tailMemo {
-	m := &tailMemo{}
-	for i := range m.x {
-		m.x[i] = math.NaN() // equal to no argument
-	}
-	return m
-}
-
-func (m *tailMemo) normalCDF(x float64) float64 {
-	for i, y := range m.x {
-		if y == x {
-			return m.v[i]
-		}
-	}
-	v := normalCDF(x)
-	m.x[m.next], m.v[m.next] = x, v
-	m.next = (m.next + 1) % len(m.x)
-	return v
+// newTailMemo returns a memo of normalCDF for one goroutine. Opening a
+// window asks about the same few offsets beyond fastPhi's table again
+// and again (pieces of one length and σ, sites at the same places around
+// them: on a window array 8.28σ past a piece's end or before its start),
+// and each erfc costs two exponentials.
+func newTailMemo() *recentMemo {
+	m := newRecentMemo(normalCDF)
+	return &m
 }
 
 // hermiteSpans holds, per table step, the values and slopes at its two

@@ -2,6 +2,7 @@ package planner
 
 import (
 	"math"
+	"slices"
 	"sort"
 
 	"github.com/golang/geo/r2"
@@ -66,18 +67,13 @@ func (d *decay) add(t, a float64) {
 // same reports whether d and e hold the same sources, bit for bit (their
 // integrals and levels are then the same at every time).
 func (d *decay) same(e *decay) bool {
-	bits := func(a, b []float64) bool {
-		if len(a) != len(b) {
-			return false
-		}
-		for i := range a {
-			if math.Float64bits(a[i]) != math.Float64bits(b[i]) {
-				return false
-			}
-		}
-		return true
-	}
-	return math.Float64bits(d.tau) == math.Float64bits(e.tau) && bits(d.times, e.times) && bits(d.cum, e.cum) && bits(d.level, e.level)
+	return math.Float64bits(d.tau) == math.Float64bits(e.tau) && sameBits(d.times, e.times) && sameBits(d.cum, e.cum) && sameBits(d.level, e.level)
+}
+
+// sameBits reports whether a and b hold the same values, bit for bit
+// (NaNs and signed zeros included).
+func sameBits(a, b []float64) bool {
+	return slices.EqualFunc(a, b, func(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) })
 }
 
 // integral returns the integral of the summed rate from 0 to t (0 for
@@ -132,45 +128,21 @@ func (d *decay) savedMemo(t0, t1, delay float64, m *savedMemo) float64 {
 		pre := lv * d.tau * (-math.Expm1(-(t1 - t0) / d.tau))
 		return pre * (-math.Expm1(-delay / d.tau))
 	}
-	pre := lv * d.tau * (-m.span.expm1(-(t1 - t0) / d.tau))
-	return pre * (-m.delay.expm1(-delay / d.tau))
+	pre := lv * d.tau * (-m.span.at(-(t1 - t0) / d.tau))
+	return pre * (-m.delay.at(-delay / d.tau))
 }
 
 // savedMemo holds savedMemo's Expm1 values, of the span [t0, t1] and of
 // the delay apart (the delay's repeat, the span's less). One per
 // goroutine.
-type savedMemo struct{ span, delay expm1Memo }
+type savedMemo struct{ span, delay recentMemo }
 
 func newSavedMemo() *savedMemo {
 	return &savedMemo{span: newExpm1Memo(), delay: newExpm1Memo()}
 }
 
-// expm1Memo remembers math.Expm1 at the last few arguments it was asked
-// about. A hit returns the very value Expm1 gave.
-type expm1Memo struct {
-	x, v [4]float64
-	next int
-}
-
-func newExpm1Memo() expm1Memo {
-	var m expm1Memo
-	for i := range m.x {
-		m.x[i] = math.NaN() // equal to no argument
-	}
-	return m
-}
-
-func (m *expm1Memo) expm1(x float64) float64 {
-	for i, y := range m.x {
-		if y == x {
-			return m.v[i]
-		}
-	}
-	v := math.Expm1(x)
-	m.x[m.next], m.v[m.next] = x, v
-	m.next = (m.next + 1) % len(m.x)
-	return v
-}
+// newExpm1Memo returns a memo of math.Expm1.
+func newExpm1Memo() recentMemo { return newRecentMemo(math.Expm1) }
 
 // driftField is the drift displacement (nm) along one step's writing
 // clock at the profile's mean rate r0: base·t plus the decaying excess

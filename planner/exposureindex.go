@@ -213,7 +213,7 @@ func (ix *exposureIndex) row(y float64) int {
 // except that a dwell parked on p (within 0.05 nm) gives its own site's
 // exposure −ln(1 − completion). most is the stroke that gives the most.
 // memo (one per goroutine) keeps Φ beyond fastPhi's table.
-func (ix *exposureIndex) at(p r2.Point, memo *tailMemo) (x float64, most int32) {
+func (ix *exposureIndex) at(p r2.Point, memo *recentMemo) (x float64, most int32) {
 	most = -1
 	best := 0.0
 	for _, item := range ix.cellItems(p) {

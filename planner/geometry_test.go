@@ -102,7 +102,7 @@ func TestSlantBandExact(t *testing.T) {
 	}
 }
 
-// TestSlantBandMemo: with a tailMemo, slantBand's value is still
+// TestSlantBandMemo: with a tail memo (newTailMemo), slantBand's value is still
 // fastPhi(b) − fastPhi(a) bit for bit, when arguments beyond the table
 // repeat (memo hits), and when more distinct ones than the memo holds
 // come round (replacements).
@@ -123,7 +123,7 @@ func TestSlantBandMemo(t *testing.T) {
 			}
 		}
 	}
-	if got, want := m.normalCDF(0), normalCDF(0); got != want { // a fresh argument, not the memo's initial state
+	if got, want := m.at(0), normalCDF(0); got != want { // a fresh argument, not the memo's initial state
 		t.Fatalf("memo normalCDF(0) = %v, want %v", got, want)
 	}
 }

@@ -152,17 +152,6 @@ func TestSegmenterFromPrevSame(t *testing.T) {
 	rng := rand.New(rand.NewPCG(27, 28))
 	p := DefaultProfile()
 	p.Drift.Compensation.Enabled = true
-	bits := func(a, b []float64) bool {
-		if len(a) != len(b) {
-			return false
-		}
-		for i := range a {
-			if math.Float64bits(a[i]) != math.Float64bits(b[i]) {
-				return false
-			}
-		}
-		return true
-	}
 	for trial := range 60 {
 		n := 1 + rng.IntN(80)
 		jobs, _, c := randomJobs(rng, n)
@@ -190,7 +179,7 @@ func TestSegmenterFromPrevSame(t *testing.T) {
 			"a": {got.a, want.a}, "aCreep": {got.aCreep, want.aCreep}, "aExcess": {got.aExcess, want.aExcess},
 			"detour": {got.detour, want.detour}, "Blocal": {got.B[kLocal], want.B[kLocal]}, "Bcoarse": {got.B[kCoarse], want.B[kCoarse]},
 		} {
-			if !bits(pair[0], pair[1]) {
+			if !sameBits(pair[0], pair[1]) {
 				t.Fatalf("trial %d: %s = %v, afresh %v", trial, name, pair[0], pair[1])
 			}
 		}

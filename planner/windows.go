@@ -64,7 +64,7 @@ const openBlock = 256
 // openWindow sets window i's figures (see openWindows); own is scratch,
 // returned for reuse, and memo the worker's (see exposureIndex.at).
 func (b *builder) openWindow(windows []Window, i int, ix *exposureIndex, painted *lattice.SiteSet, spuriousN float64,
-	valid func(lattice.Site) bool, own []r2.Point, memo *tailMemo) []r2.Point {
+	valid func(lattice.Site) bool, own []r2.Point, memo *recentMemo) []r2.Point {
 	surf := b.lay.Surface
 	const reach = lattice.RowSpacing + 1e-9
 	w := b.placed[i]
