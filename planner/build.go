@@ -230,8 +230,8 @@ type coverageJob struct {
 
 // startCoverage starts the coverage check of b.strokes. Their pieces are
 // made here, before the route reverses paths in place and changes
-// tolerances; the sums run on a copy of the strokes, on their own
-// goroutine when there is more than one core (on one, overlapping gains
+// tolerances; the sums run on their own goroutine, with their own copy
+// of the strokes, when there is more than one core (on one, overlapping gains
 // nothing and would hold the check's memory and the route's at once:
 // they run here, as they do for a plan large enough to hold a GC budget,
 // whose memory matters more than the overlap). A panic of the check

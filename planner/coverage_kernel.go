@@ -247,15 +247,7 @@ func bandMemo(lo, hi, sigma, x float64, m *recentMemo) float64 {
 // and its density at steps of 1/phiSteps on [−8, 8] (absolute error below
 // 10⁻¹⁰), and from erfc beyond: the coverage check evaluates Φ tens of
 // millions of times.
-func fastPhi(x float64) float64 {
-	t := (x + 8) * phiSteps
-	if !(t >= 0 && t < phiLast) {
-		return normalCDF(x)
-	}
-	i := int(t)
-	c := &phiSpans[i]
-	return hermite(t-float64(i), c[0], c[1], c[2], c[3])
-}
+func fastPhi(x float64) float64 { return fastPhiMemo(x, nil) }
 
 // fastPhiMemo is fastPhi taking Φ beyond the table from m when m is not
 // nil (the same values).

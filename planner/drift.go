@@ -67,14 +67,15 @@ func (d *decay) add(t, a float64) {
 // same reports whether d and e hold the same sources, bit for bit (their
 // integrals and levels are then the same at every time).
 func (d *decay) same(e *decay) bool {
-	return math.Float64bits(d.tau) == math.Float64bits(e.tau) && sameBits(d.times, e.times) && sameBits(d.cum, e.cum) && sameBits(d.level, e.level)
+	return sameFloat(d.tau, e.tau) && sameBits(d.times, e.times) && sameBits(d.cum, e.cum) && sameBits(d.level, e.level)
 }
 
-// sameBits reports whether a and b hold the same values, bit for bit
+// sameFloat reports whether x and y are the same value, bit for bit
 // (NaNs and signed zeros included).
-func sameBits(a, b []float64) bool {
-	return slices.EqualFunc(a, b, func(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) })
-}
+func sameFloat(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) }
+
+// sameBits reports whether a and b hold the same values, bit for bit.
+func sameBits(a, b []float64) bool { return slices.EqualFunc(a, b, sameFloat) }
 
 // integral returns the integral of the summed rate from 0 to t (0 for
 // t before the first source).

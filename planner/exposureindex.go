@@ -18,7 +18,6 @@ import (
 // index is made) are filled, so strokes far from them cost a look at a
 // coarse mask.
 type exposureIndex struct {
-	cell   float64
 	nx, ny int
 	// block numbers the wanted coarse cells (−1: not wanted); the items
 	// listed in fine cell k of block b are items[start[b·B+k]:start[b·B+k+1]]
@@ -64,9 +63,9 @@ const (
 // newExposureIndex indexes the strokes around the points of interest
 // (within reach of any of them, up to indexCellNM·indexCoarse nm).
 func newExposureIndex(strokes []Stroke, prof *Profile, fieldW, fieldH float64, points []r2.Point) *exposureIndex {
-	ix := &exposureIndex{cell: indexCellNM, prof: prof, own: prof.dwellOwnExposure()}
-	ix.nx = max(1, int(math.Ceil(fieldW/ix.cell)))
-	ix.ny = max(1, int(math.Ceil(fieldH/ix.cell)))
+	ix := &exposureIndex{prof: prof, own: prof.dwellOwnExposure()}
+	ix.nx = max(1, int(math.Ceil(fieldW/indexCellNM)))
+	ix.ny = max(1, int(math.Ceil(fieldH/indexCellNM)))
 	ix.cnx = ix.nx/indexCoarse + 1
 	ix.block = make([]int32, ix.cnx*(ix.ny/indexCoarse+1))
 	for i := range ix.block {
@@ -160,7 +159,7 @@ func (ix *exposureIndex) insert(a, b r2.Point, reach float64, add func(k int32))
 	j0, j1 := ix.row(math.Min(a.Y, b.Y)-reach), ix.row(math.Max(a.Y, b.Y)+reach)
 	ab := b.Sub(a)
 	L := ab.Norm()
-	half := ix.cell * math.Sqrt2 / 2 // a cell's centre to its corner
+	half := indexCellNM * math.Sqrt2 / 2 // a cell's centre to its corner
 	for cj := j0 / indexCoarse; cj <= j1/indexCoarse; cj++ {
 		for ci := i0 / indexCoarse; ci <= i1/indexCoarse; ci++ {
 			blk := ix.block[cj*ix.cnx+ci]
@@ -170,7 +169,7 @@ func (ix *exposureIndex) insert(a, b r2.Point, reach float64, add func(k int32))
 			for j := max(j0, cj*indexCoarse); j <= min(j1, cj*indexCoarse+indexCoarse-1); j++ {
 				for i := max(i0, ci*indexCoarse); i <= min(i1, ci*indexCoarse+indexCoarse-1); i++ {
 					if L > 0 {
-						c := r2.Point{X: (float64(i) + 0.5) * ix.cell, Y: (float64(j) + 0.5) * ix.cell}
+						c := r2.Point{X: (float64(i) + 0.5) * indexCellNM, Y: (float64(j) + 0.5) * indexCellNM}
 						if math.Abs(ab.Cross(c.Sub(a)))/L > reach+half {
 							continue
 						}
@@ -198,7 +197,7 @@ func (ix *exposureIndex) cellItems(p r2.Point) []int32 {
 // truncate instead of taking the floor: the two differ only below 0,
 // where the clamp makes both 0 (TestExposureIndexCells); math.Floor is a
 // call on amd64 and they are asked some 10^8 times at 10^6 windows.
-// ix.cell is indexCellNM; dividing by the constant (a power of two) lets
+// Dividing by the constant (a power of two) lets
 // the compiler multiply by its exact reciprocal.
 func (ix *exposureIndex) col(x float64) int {
 	return min(max(int(x/indexCellNM), 0), ix.nx-1)

@@ -209,9 +209,7 @@ func (st *stepWork) keepForTimeline(strokes []Stroke) error {
 // reads, bit for bit (a NaN duration is the same NaN: checkFiniteTime
 // names its profile fields later, which an internal error would hide).
 func sameTimelineJob(a, b job) bool {
-	same := func(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) }
-	return same(a.start.X, b.start.X) && same(a.start.Y, b.start.Y) && same(a.end.X, b.end.X) && same(a.end.Y, b.end.Y) &&
-		same(a.writeS, b.writeS) && same(a.tolNM, b.tolNM) && a.mode == b.mode && a.dwell == b.dwell
+	return sameMoveInputs(a, b) && sameFloat(a.writeS, b.writeS) && a.dwell == b.dwell
 }
 
 // timelineJob returns what the timeline reads of the job that writes
@@ -340,9 +338,8 @@ func (sg *segmenter) keepForSuccessor() {
 // what newSegmenter's moves, switches, fiducials, approaches and detours
 // read of them: their ends, tolerance and mode.
 func sameMoveInputs(a, b job) bool {
-	same := func(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) }
-	return same(a.start.X, b.start.X) && same(a.start.Y, b.start.Y) && same(a.end.X, b.end.X) && same(a.end.Y, b.end.Y) &&
-		same(a.tolNM, b.tolNM) && a.mode == b.mode
+	return sameFloat(a.start.X, b.start.X) && sameFloat(a.start.Y, b.start.Y) && sameFloat(a.end.X, b.end.X) && sameFloat(a.end.Y, b.end.Y) &&
+		sameFloat(a.tolNM, b.tolNM) && a.mode == b.mode
 }
 
 // clockStart returns the writing clock at which a registration of kind k

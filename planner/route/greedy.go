@@ -147,7 +147,8 @@ func greedyTour(g *graph, nb *neighbours) []int32 {
 // shortest first by the float32 bit pattern of the length, equal ones in
 // slot order; below 256 edges by the float64 length, as sortedOrder
 // does. It stops when take returns false. Large lists are sorted by
-// slot (4 bytes an edge: no copy of the edges), small ones through keys.
+// slot (4 bytes an edge: no copy of the edges), small ones by
+// sortedOrder.
 func firstRound(nb *neighbours, n int32, take func(slot int) bool) {
 	each := func(f func(slot uint32, d float64)) {
 		for v := range n {
@@ -164,30 +165,24 @@ func firstRound(nb *neighbours, n int32, take func(slot int) bool) {
 			}
 		}
 	}
-	if int(n)*nb.k < 1<<16 {
-		// Small lists (the session's many re-routes): the edges and their
-		// keys in one pass, sorted as sortedOrder sorts, in the same order
-		// as below; 2^16 counters would cost more than the sort.
+	// Small lists (the session's many re-routes): the edges' lengths in
+	// one pass, sorted by sortedOrder (the same order as below; 2^16
+	// counters would cost more than the sort).
+	small := func() {
 		var slots []uint32
-		var keys []uint64
+		var edges []cand
 		each(func(slot uint32, d float64) {
-			keys = append(keys, lengthKey(d, uint64(len(slots))))
 			slots = append(slots, slot)
+			edges = append(edges, cand{d: d})
 		})
-		if len(slots) < 256 {
-			slices.SortStableFunc(slots, func(a, b uint32) int { return cmp.Compare(nb.dst[a], nb.dst[b]) })
-		} else {
-			sorted := make([]uint32, len(slots))
-			for i, k := range sortKeys(keys) {
-				sorted[i] = slots[uint32(k)]
-			}
-			slots = sorted
-		}
-		for _, slot := range slots {
-			if !take(int(slot)) {
+		for _, k := range sortedOrder(edges) {
+			if !take(int(slots[k])) {
 				return
 			}
 		}
+	}
+	if int(n)*nb.k < 1<<16 {
+		small()
 		return
 	}
 	bits := func(d float64) uint32 { return math.Float32bits(float32(d)) }
@@ -197,6 +192,10 @@ func firstRound(nb *neighbours, n int32, take func(slot int) bool) {
 		cnt[i] += cnt[i-1]
 	}
 	total := cnt[len(cnt)-1]
+	if total < 1<<16 {
+		small() // long lists, mostly empty
+		return
+	}
 	slots := make([]uint32, total)
 	next := slices.Clone(cnt[:len(cnt)-1])
 	each(func(slot uint32, d float64) {
