@@ -426,7 +426,7 @@ func (b *builder) build() (plan *Plan, err error) {
 	// segmenter, ~190 MB at 10^6 strokes, are then not held beside the
 	// timeline's actions, ~300 MB); the segmenters keep only what the
 	// timeline reads (keepForTimeline).
-	notes := b.describeSegments(steps, tol, tol.all, drift)
+	notes := b.describeSegments(steps, tol, drift)
 	hand, err := b.byHand(steps, margin)
 	if err != nil {
 		return nil, err

@@ -25,11 +25,11 @@ type segmentNote struct {
 // describeSegments works out each segment's registration reason,
 // tightest stroke, budget and probability of staying within tolerance
 // (in the order the timeline makes the segments), and warns about
-// segments below the profile's level, naming what would help; pAll and
+// segments below the profile's level, naming what would help; tol.all and
 // drift are the plan's PInTolerance and Drift. It runs before the
 // timeline, so that the segmenters' arrays only it reads are dropped
 // before the timeline's actions are made (see segmenter.keepForTimeline).
-func (b *builder) describeSegments(steps []*stepWork, tol tolResult, pAll float64, drift DriftPlan) []segmentNote {
+func (b *builder) describeSegments(steps []*stepWork, tol tolResult, drift DriftPlan) []segmentNote {
 	level := b.prof.Session.PInToleranceMin
 	m := b.model
 	rate := m.r0 * m.rateMul
@@ -92,9 +92,9 @@ func (b *builder) describeSegments(steps []*stepWork, tol tolResult, pAll float6
 	if below > named {
 		b.warnings = append(b.warnings, fmt.Sprintf("%d more segments stay within tolerance with less than %.2f probability", below-named, level))
 	}
-	if pAll < level {
+	if tol.all < level {
 		b.warnings = append(b.warnings, fmt.Sprintf("P(every stroke and coupled pair within tolerance) = %.3f for the whole write, below session.p_in_tolerance_min = %.2f (segments planned at %.3g nm/min drift and %.3g creep, margin ×%.2f)",
-			pAll, level, drift.RateNMPerMin, drift.CreepFraction, drift.Margin))
+			tol.all, level, drift.RateNMPerMin, drift.CreepFraction, drift.Margin))
 	}
 	return notes
 }
