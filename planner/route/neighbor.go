@@ -43,51 +43,65 @@ func buildNeighbours(g *graph, k int, quad bool) *neighbours {
 		kk += 4
 	}
 	nb := &neighbours{k: kk, id: make([]int32, n*kk), dst: make([]float64, n*kk)}
-	for i := range nb.id {
-		nb.id[i] = -1
+	for i := g.real * kk; i < len(nb.id); i++ {
+		nb.id[i] = -1 // the dummy's list, never queried
 	}
 	idx := make([]int32, 0, g.real)
 	for v := range int32(g.real) {
 		idx = append(idx, v)
 	}
 	t := newKDTree(g.x, g.y, idx)
-	b := newKNNBuf(k)
-	qb := newKNNBuf(1)
 	// Query in the tree's order: neighbouring queries touch the same
-	// leaves, which keeps the caches warm.
+	// leaves, which keeps the caches warm. Each query writes its node's
+	// list alone, so large problems query on every core (inBlocks).
 	order := append([]int32(nil), t.idx...)
-	for _, v := range order {
-		b.qx, b.qy, b.ex1, b.ex2 = g.x[v], g.y[v], v, g.partner[v]
-		t.nearest(b)
-		o := int(v) * kk
-		for j, u := range b.id {
-			nb.id[o+j] = u
-			nb.dst[o+j] = math.Sqrt(b.d2[j])
-		}
-		if !quad || len(b.id) < k {
-			continue // without quadrants, or every node is listed
-		}
-		m := k
-		far := quadFar * quadFar * b.d2[k-1]
-		qb.qx, qb.qy, qb.ex1, qb.ex2 = b.qx, b.qy, b.ex1, b.ex2
-		for q := range int8(4) {
-			qb.quad = q
-			t.nearest(qb)
-			if len(qb.id) == 0 || qb.d2[0] <= far {
-				continue
+	inBlocks(len(order), func() func(lo, hi int) {
+		b := newKNNBuf(k)
+		qb := newKNNBuf(1)
+		return func(lo, hi int) {
+			for _, v := range order[lo:hi] {
+				nb.query(t, g, v, k, quad, b, qb)
 			}
-			// Farther than the k nearest; keep the extras in order.
-			d := math.Sqrt(qb.d2[0])
-			j := o + m
-			for j > o+k && nb.dst[j-1] > d {
-				nb.id[j], nb.dst[j] = nb.id[j-1], nb.dst[j-1]
-				j--
-			}
-			nb.id[j], nb.dst[j] = qb.id[0], d
-			m++
 		}
-	}
+	})
 	return nb
+}
+
+// query fills node v's list of nb (see buildNeighbours) with the scratch
+// buffers b (of k) and qb (of 1).
+func (nb *neighbours) query(t *kdTree, g *graph, v int32, k int, quad bool, b, qb *knnBuf) {
+	b.qx, b.qy, b.ex1, b.ex2 = g.x[v], g.y[v], v, g.partner[v]
+	t.nearest(b)
+	o := int(v) * nb.k
+	for j, u := range b.id {
+		nb.id[o+j] = u
+		nb.dst[o+j] = math.Sqrt(b.d2[j])
+	}
+	for j := o + len(b.id); j < o+nb.k; j++ {
+		nb.id[j] = -1
+	}
+	if !quad || len(b.id) < k {
+		return // without quadrants, or every node is listed
+	}
+	m := k
+	far := quadFar * quadFar * b.d2[k-1]
+	qb.qx, qb.qy, qb.ex1, qb.ex2 = b.qx, b.qy, b.ex1, b.ex2
+	for q := range int8(4) {
+		qb.quad = q
+		t.nearest(qb)
+		if len(qb.id) == 0 || qb.d2[0] <= far {
+			continue
+		}
+		// Farther than the k nearest; keep the extras in order.
+		d := math.Sqrt(qb.d2[0])
+		j := o + m
+		for j > o+k && nb.dst[j-1] > d {
+			nb.id[j], nb.dst[j] = nb.id[j-1], nb.dst[j-1]
+			j--
+		}
+		nb.id[j], nb.dst[j] = qb.id[0], d
+		m++
+	}
 }
 
 // buildNeighboursPool returns what buildNeighbours(g, k, quad) and

@@ -1,0 +1,100 @@
+package route
+
+import (
+	"math/rand/v2"
+	"runtime"
+	"slices"
+	"testing"
+)
+
+// TestNeighbourListsSameOnAnyCores checks that the neighbour lists of a
+// problem large enough to query on every core (parallelMin lowered so
+// that a few thousand nodes do) are the lists of the one-core path,
+// entry for entry, ties included: strokes on a grid (the planner's
+// window arrays, where most distances tie) and random ones, with and
+// without quadrants, open (with the dummy) and closed.
+func TestNeighbourListsSameOnAnyCores(t *testing.T) {
+	defer func(m int) { parallelMin = m }(parallelMin)
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(0))
+	r := rand.New(rand.NewPCG(3, 4))
+	grid := func() []Item {
+		var items []Item
+		for row := range 60 {
+			for col := range 60 {
+				x, y := float64(col)*2.3, float64(row)*1.54
+				items = append(items, Item{A: Point{X: x, Y: y}, B: Point{X: x + 0.77, Y: y}})
+			}
+		}
+		return items
+	}
+	random := func() []Item {
+		var items []Item
+		for range 5000 {
+			p := Point{X: r.Float64() * 1000, Y: r.Float64() * 1000}
+			items = append(items, Item{A: p, B: Point{X: p.X + r.Float64()*3, Y: p.Y + r.Float64()*3}})
+		}
+		return items
+	}
+	for _, c := range []struct {
+		name  string
+		items []Item
+	}{{"grid", grid()}, {"random", random()}} {
+		for _, open := range []bool{false, true} {
+			for _, quad := range []bool{false, true} {
+				g := newGraph(c.items, nil, nil, open)
+				parallelMin = 1 << 30
+				runtime.GOMAXPROCS(1)
+				one := buildNeighbours(g, 8, quad)
+				parallelMin = 1
+				runtime.GOMAXPROCS(4)
+				if g.n() < 2*parallelBlock {
+					t.Fatalf("%s: %d nodes do not fill two blocks of %d", c.name, g.n(), parallelBlock)
+				}
+				all := buildNeighbours(g, 8, quad)
+				if one.k != all.k || !slices.Equal(one.id, all.id) || !slices.Equal(one.dst, all.dst) {
+					t.Errorf("%s open=%v quad=%v: the lists built on 4 workers differ from one core's", c.name, open, quad)
+				}
+			}
+		}
+	}
+}
+
+// TestInBlocks checks that every item is done exactly once on the
+// parallel path and the serial one, and that a worker's panic reaches
+// the caller.
+func TestInBlocks(t *testing.T) {
+	defer func(m int) { parallelMin = m }(parallelMin)
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(4))
+	for _, min := range []int{1, 1 << 30} {
+		parallelMin = min
+		for _, n := range []int{0, 1, parallelBlock - 1, parallelBlock, 5*parallelBlock + 7} {
+			done := make([]int32, n)
+			inBlocks(n, func() func(lo, hi int) {
+				return func(lo, hi int) {
+					for i := lo; i < hi; i++ {
+						done[i]++
+					}
+				}
+			})
+			for i, d := range done {
+				if d != 1 {
+					t.Fatalf("parallelMin %d, n %d: item %d done %d times", min, n, i, d)
+				}
+			}
+		}
+	}
+	parallelMin = 1
+	defer func() {
+		if r := recover(); r != "boom" {
+			t.Errorf("recovered %v, want the worker's panic", r)
+		}
+	}()
+	inBlocks(4*parallelBlock, func() func(lo, hi int) {
+		return func(lo, hi int) {
+			if lo == 2*parallelBlock {
+				panic("boom")
+			}
+		}
+	})
+	t.Error("no panic")
+}
