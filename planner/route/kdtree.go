@@ -1,5 +1,10 @@
 package route
 
+import (
+	"math/bits"
+	"runtime"
+)
+
 // kdTree is a static 2-d tree over a subset of points, built by median
 // splits on the wider side (Bentley 1975, "Multidimensional binary search
 // trees used for associative searching", CACM 18(9)). Leaves hold up to
@@ -25,11 +30,49 @@ const kdLeaf = 8
 // coordinates x, y.
 func newKDTree(x, y []float64, idx []int32) *kdTree {
 	t := &kdTree{x: x, y: y, idx: idx}
-	t.nodes = make([]kdNode, 0, 2*len(idx)/kdLeaf+2)
 	if len(idx) > 0 {
-		t.build(0, int32(len(idx)))
+		// The nodes are numbered in depth-first order, left subtree
+		// first, so each subtree's place is known before it is built and
+		// a large tree's subtrees are built on two cores at a time
+		// (kdForkMin), the same tree as on one.
+		t.nodes = make([]kdNode, kdNodes(int32(len(idx))))
+		forks := 0
+		if runtime.GOMAXPROCS(0) > 1 && len(idx) >= parallelMin {
+			forks = bits.Len(uint(runtime.GOMAXPROCS(0) - 1))
+		}
+		t.build(0, 0, int32(len(idx)), forks)
 	}
 	return t
+}
+
+// kdNodes returns the number of nodes of a tree over m points: one leaf
+// up to kdLeaf, else a node over the trees of the halves (build's split).
+func kdNodes(m int32) int32 {
+	f, _ := kdNodesPair(m)
+	return f
+}
+
+// kdNodesPair returns kdNodes of a and of a+1 in O(log a): the halves of
+// a and of a+1 are all a/2 or a/2+1.
+func kdNodesPair(a int32) (int32, int32) {
+	if a+1 <= kdLeaf {
+		return 1, 1
+	}
+	q := a / 2
+	fq, fq1 := kdNodesPair(q)
+	half := func(x int32) int32 {
+		if x == q {
+			return fq
+		}
+		return fq1
+	}
+	of := func(m int32) int32 {
+		if m <= kdLeaf {
+			return 1
+		}
+		return 1 + half(m/2) + half(m-m/2)
+	}
+	return of(a), of(a + 1)
 }
 
 func (t *kdTree) coord(i int32, dim uint8) float64 {
@@ -39,11 +82,12 @@ func (t *kdTree) coord(i int32, dim uint8) float64 {
 	return t.y[i]
 }
 
-func (t *kdTree) build(lo, hi int32) int32 {
-	id := int32(len(t.nodes))
-	t.nodes = append(t.nodes, kdNode{lo: lo, hi: hi, left: -1, right: -1})
+// build makes node id over idx[lo:hi] and its subtrees; forks more
+// levels build their left subtree on a goroutine of its own.
+func (t *kdTree) build(id, lo, hi int32, forks int) {
+	t.nodes[id] = kdNode{lo: lo, hi: hi, left: -1, right: -1}
 	if hi-lo <= kdLeaf {
-		return id
+		return
 	}
 	minX, maxX, minY, maxY := t.x[t.idx[lo]], t.x[t.idx[lo]], t.y[t.idx[lo]], t.y[t.idx[lo]]
 	for _, p := range t.idx[lo+1 : hi] {
@@ -57,11 +101,15 @@ func (t *kdTree) build(lo, hi int32) int32 {
 	mid := lo + (hi-lo)/2
 	t.selectNth(lo, hi-1, mid, dim)
 	split := t.coord(t.idx[mid], dim)
-	left := t.build(lo, mid)
-	right := t.build(mid, hi)
+	left, right := id+1, id+1+kdNodes(mid-lo)
 	t.nodes[id].left, t.nodes[id].right = left, right
 	t.nodes[id].split, t.nodes[id].dim = split, dim
-	return id
+	if forks > 0 {
+		both(func() { t.build(left, lo, mid, forks-1) }, func() { t.build(right, mid, hi, forks-1) })
+		return
+	}
+	t.build(left, lo, mid, 0)
+	t.build(right, mid, hi, 0)
 }
 
 // selectNth reorders idx[lo..hi] so that idx[k] holds the point of rank

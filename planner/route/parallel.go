@@ -64,3 +64,20 @@ func inBlocks(n int, start func() func(lo, hi int)) {
 		panic(failure)
 	}
 }
+
+// both runs a on a goroutine of its own and b on the caller's, and
+// returns when both have; a panic in a is raised again in the caller.
+func both(a, b func()) {
+	var failure any
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		defer func() { failure = recover() }()
+		a()
+	}()
+	b()
+	<-done
+	if failure != nil {
+		panic(failure)
+	}
+}

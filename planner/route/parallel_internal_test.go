@@ -98,3 +98,80 @@ func TestInBlocks(t *testing.T) {
 	})
 	t.Error("no panic")
 }
+
+// TestKDTreeSameOnAnyCores checks that a tree built with its subtrees on
+// several cores is the tree of the one-core build, node for node, and
+// that both are the tree of a plain depth-first build that appends each
+// node as it is made (the way the tree was built before its nodes were
+// numbered in advance); kdNodes is checked against its definition.
+func TestKDTreeSameOnAnyCores(t *testing.T) {
+	defer func(m int) { parallelMin = m }(parallelMin)
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(0))
+	var count func(m int32) int32
+	count = func(m int32) int32 {
+		if m <= kdLeaf {
+			return 1
+		}
+		return 1 + count(m/2) + count(m-m/2)
+	}
+	for m := int32(1); m < 3000; m++ {
+		if kdNodes(m) != count(m) {
+			t.Fatalf("kdNodes(%d) = %d, want %d", m, kdNodes(m), count(m))
+		}
+	}
+	r := rand.New(rand.NewPCG(8, 9))
+	for _, n := range []int{1, 7, 9, 1000, 20_011} {
+		x, y := make([]float64, n), make([]float64, n)
+		for i := range n {
+			// Coordinates on a coarse grid: many ties, as on an array.
+			x[i], y[i] = float64(r.IntN(200)), float64(r.IntN(100))
+		}
+		ids := func() []int32 {
+			idx := make([]int32, n)
+			for i := range idx {
+				idx[i] = int32(i)
+			}
+			return idx
+		}
+		ref := &kdTree{x: x, y: y, idx: ids()}
+		var appendBuild func(lo, hi int32) int32
+		appendBuild = func(lo, hi int32) int32 {
+			id := int32(len(ref.nodes))
+			ref.nodes = append(ref.nodes, kdNode{lo: lo, hi: hi, left: -1, right: -1})
+			if hi-lo <= kdLeaf {
+				return id
+			}
+			minX, maxX, minY, maxY := x[ref.idx[lo]], x[ref.idx[lo]], y[ref.idx[lo]], y[ref.idx[lo]]
+			for _, p := range ref.idx[lo+1 : hi] {
+				minX, maxX = min(minX, x[p]), max(maxX, x[p])
+				minY, maxY = min(minY, y[p]), max(maxY, y[p])
+			}
+			var dim uint8
+			if maxY-minY > maxX-minX {
+				dim = 1
+			}
+			mid := lo + (hi-lo)/2
+			ref.selectNth(lo, hi-1, mid, dim)
+			split := ref.coord(ref.idx[mid], dim)
+			left := appendBuild(lo, mid)
+			right := appendBuild(mid, hi)
+			ref.nodes[id].left, ref.nodes[id].right, ref.nodes[id].split, ref.nodes[id].dim = left, right, split, dim
+			return id
+		}
+		appendBuild(0, int32(n))
+		parallelMin = 1 << 30
+		runtime.GOMAXPROCS(1)
+		one := newKDTree(x, y, ids())
+		parallelMin = 1
+		runtime.GOMAXPROCS(4)
+		many := newKDTree(x, y, ids())
+		for _, c := range []struct {
+			name string
+			t    *kdTree
+		}{{"one core", one}, {"4 cores", many}} {
+			if !slices.Equal(c.t.nodes, ref.nodes) || !slices.Equal(c.t.idx, ref.idx) {
+				t.Errorf("%d points, %s: the tree differs from the appending build's (%d nodes, want %d)", n, c.name, len(c.t.nodes), len(ref.nodes))
+			}
+		}
+	}
+}
