@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"runtime"
 	"sort"
 
 	"gonum.org/v1/gonum/stat"
@@ -221,6 +222,12 @@ func pInTolerance(ctx context.Context, segs []segLoad, pairs []pairLoad, d mcDra
 	for i := range n {
 		all[i], some[i] = 1, 1
 	}
+	if workers := min(runtime.GOMAXPROCS(0), len(segs)+len(pairs)); workers > 1 && (len(segs)+len(pairs))*n >= tolParallelMin {
+		if err := pInToleranceOnCores(ctx, segs, pairs, d, leave, workers, &res, all, some); err != nil {
+			return res, err
+		}
+		return res.mean(all, some, n), nil
+	}
 	for s := range segs {
 		if s%64 == 0 {
 			if err := ctx.Err(); err != nil {
@@ -258,6 +265,12 @@ func pInTolerance(ctx context.Context, segs []segLoad, pairs []pairLoad, d mcDra
 		}
 		res.pairs[k] = sum
 	}
+	return res.mean(all, some, n), nil
+}
+
+// mean completes res from each sample's products all and some and the
+// sums over the n samples in res.segs and res.pairs.
+func (res tolResult) mean(all, some []float64, n int) tolResult {
 	for i := range n {
 		res.all += all[i]
 		res.some += some[i]
@@ -270,8 +283,107 @@ func pInTolerance(ctx context.Context, segs []segLoad, pairs []pairLoad, d mcDra
 	for k := range res.pairs {
 		res.pairs[k] /= float64(n)
 	}
-	return res, nil
+	return res
 }
+
+// tolParallelMin is the fewest segment-samples (segments and pairs times
+// draws) pInTolerance spreads over the cores: a large plan's margin
+// search has 10^7 of them (30,000 segments x 500 draws at 10^6
+// windows); the demo's a few thousand, where starting workers would cost
+// more than it saves. A variable so that a test can lower it.
+var tolParallelMin = 1 << 20
+
+// tolBlockValues is the most probabilities pInToleranceOnCores holds at
+// once (2 MB): a block of segments' rows over every sample.
+const tolBlockValues = 1 << 18
+
+// pInToleranceOnCores is pInTolerance's loop on workers cores, with the
+// same result bit for bit: a block of segments (then of pairs) at a
+// time, the workers first compute each row's probabilities over all
+// samples and its sum (a row's sum in sample order, as the serial loop
+// adds it), then multiply each sample's products by the block's rows in
+// row order (each sample's product in the serial loop's order). It
+// fills res.segs and res.pairs with the sums and all and some with the
+// products.
+func pInToleranceOnCores(ctx context.Context, segs []segLoad, pairs []pairLoad, d mcDraws, leave []bool, workers int,
+	res *tolResult, all, some []float64) error {
+	n := len(d.rate)
+	rows := max(1, tolBlockValues/n)
+	p := make([]float64, rows*n)
+	// keep[r] says whether row r of the block counts in some.
+	keep := make([]bool, rows)
+	sampleBlocks := (n + tolSampleBlock - 1) / tolSampleBlock
+	multiply := func(m int) error {
+		return onWorkers(ctx, sampleBlocks, min(workers, sampleBlocks), func() func(int) {
+			return func(b int) {
+				lo, hi := b*tolSampleBlock, min(n, (b+1)*tolSampleBlock)
+				for r := range m {
+					row := p[r*n : (r+1)*n]
+					for i := lo; i < hi; i++ {
+						all[i] *= row[i]
+						if keep[r] {
+							some[i] *= row[i]
+						}
+					}
+				}
+			}
+		})
+	}
+	for s0 := 0; s0 < len(segs); s0 += rows {
+		m := min(rows, len(segs)-s0)
+		err := onWorkers(ctx, m, min(workers, m), func() func(int) {
+			return func(j int) {
+				s := s0 + j
+				loads, sigma := segs[s].loads, segs[s].sigma
+				keep[j] = s >= len(leave) || !leave[s]
+				row := p[j*n : (j+1)*n]
+				sum := 0.0
+				for i := range n {
+					r, c := d.rate[i], d.creep[i]
+					room := math.Inf(1)
+					for _, l := range loads {
+						room = min(room, l.tol-c*l.creep-r*l.drift)
+					}
+					row[i] = withinProb(room, sigma)
+					sum += row[i]
+				}
+				res.segs[s] = sum
+			}
+		})
+		if err == nil {
+			err = multiply(m)
+		}
+		if err != nil {
+			return err
+		}
+	}
+	for k0 := 0; k0 < len(pairs); k0 += rows {
+		m := min(rows, len(pairs)-k0)
+		err := onWorkers(ctx, m, min(workers, m), func() func(int) {
+			return func(j int) {
+				pl := pairs[k0+j]
+				keep[j] = true
+				row := p[j*n : (j+1)*n]
+				sum := 0.0
+				for i := range n {
+					row[i] = withinProb(pl.tol-d.creep[i]*pl.creep-d.rate[i]*pl.drift, pl.sigma)
+					sum += row[i]
+				}
+				res.pairs[k0+j] = sum
+			}
+		})
+		if err == nil {
+			err = multiply(m)
+		}
+		if err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// tolSampleBlock is the number of samples a worker multiplies at a time.
+const tolSampleBlock = 256
 
 // timeModel is what the session's time depends on beyond the fixed
 // schedule: the random parts and their expected values in the schedule.
