@@ -269,57 +269,62 @@ func newSegmenterFrom(jobs []job, c costs, model segModel, first int, prev *segm
 			reuse[j] = sameMoveInputs(jobs[j], prev.jobs[j]) && (j == 0 || sameMoveInputs(jobs[j-1], prev.jobs[j-1]))
 		}
 	}
+	// Each job's move, switch, fiducial, approach and detour depend on
+	// it and the job before alone: a large step's are made on every core
+	// (inParallel), then the clocks and drift fields are added up in
+	// order.
+	f0 := c.fiducials[first].At
+	inParallel(n, func(lo, hi int) {
+		for j := max(lo, 1); j < hi; j++ {
+			if reuse == nil || !reuse[j] {
+				mv := c.move(jobs[j-1].end, jobs[j].start, jobs[j].tolNM)
+				sg.m[j], sg.moveCreep[j], sg.moveExcess[j] = mv.timeS, mv.creepUnit, mv.excess
+			} else {
+				sg.m[j], sg.moveCreep[j], sg.moveExcess[j] = prev.m[j], prev.moveCreep[j], prev.moveExcess[j]
+			}
+			sg.sw[j] = c.switchCost(jobs[j-1].mode, jobs[j].mode)
+		}
+		for s := lo; s < hi; s++ {
+			if s > 0 && reuse != nil && reuse[s] {
+				sg.fid[s], sg.a[s], sg.aCreep[s], sg.aExcess[s] = prev.fid[s], prev.a[s], prev.aCreep[s], prev.aExcess[s]
+				sg.detour[s] = prev.detour[s]
+				sg.B[kCoarse][s] = c.verify + sg.detour[s] + c.register + sg.a[s] - sg.m[s]
+				sg.B[kLocal][s] = c.verify + c.local
+				continue
+			}
+			f := first
+			if s > 0 {
+				f = c.nearest(jobs[s].start)
+			}
+			sg.fid[s] = f
+			at := c.fiducials[f].At
+			ap := c.move(at, jobs[s].start, jobs[s].tolNM)
+			sg.a[s], sg.aCreep[s], sg.aExcess[s] = ap.timeS, ap.creepUnit, ap.excess
+			if s == 0 {
+				sg.B[kCoarse][0] = c.register + ap.timeS
+				sg.B[kLocal][0] = c.move(f0, jobs[0].start, jobs[0].tolNM).timeS + c.local
+				continue
+			}
+			// The image of the fiducial waits for the creep of the move there
+			// to fall to share·(coarse error).
+			sg.detour[s] = c.move(jobs[s-1].end, at, c.coarseErrNM).timeS
+			sg.B[kCoarse][s] = c.verify + sg.detour[s] + c.register + ap.timeS - sg.m[s]
+			sg.B[kLocal][s] = c.verify + c.local
+		}
+	})
 	t := 0.0
 	for j := range jobs {
 		if j > 0 {
-			if reuse != nil && reuse[j] {
-				sg.m[j], sg.moveCreep[j], sg.moveExcess[j] = prev.m[j], prev.moveCreep[j], prev.moveExcess[j]
-			} else {
-				mv := c.move(jobs[j-1].end, jobs[j].start, jobs[j].tolNM)
-				sg.m[j] = mv.timeS
-				sg.moveCreep[j] = mv.creepUnit
-				sg.moveExcess[j] = mv.excess
-			}
-			sg.sw[j] = c.switchCost(jobs[j-1].mode, jobs[j].mode)
-			mv := moveResult{timeS: sg.m[j], creepUnit: sg.moveCreep[j], excess: sg.moveExcess[j]}
-			t += mv.timeS
+			t += sg.m[j]
 			// The creep and the excess start when the move has settled.
-			sg.creepF.add(t, mv.creepUnit/c.creepTau)
-			sg.driftRaw.moves.add(t, mv.excess/60)
-			sg.driftC.moves.add(t, mv.excess/60)
+			sg.creepF.add(t, sg.moveCreep[j]/c.creepTau)
+			sg.driftRaw.moves.add(t, sg.moveExcess[j]/60)
+			sg.driftC.moves.add(t, sg.moveExcess[j]/60)
 			t += sg.sw[j]
 		}
 		sg.ts[j] = t
 		t += jobs[j].writeS
 		sg.T[j] = t
-	}
-	f0 := c.fiducials[first].At
-	for s := range jobs {
-		if s > 0 && reuse != nil && reuse[s] {
-			sg.fid[s], sg.a[s], sg.aCreep[s], sg.aExcess[s] = prev.fid[s], prev.a[s], prev.aCreep[s], prev.aExcess[s]
-			sg.detour[s] = prev.detour[s]
-			sg.B[kCoarse][s] = c.verify + sg.detour[s] + c.register + sg.a[s] - sg.m[s]
-			sg.B[kLocal][s] = c.verify + c.local
-			continue
-		}
-		f := first
-		if s > 0 {
-			f = c.nearest(jobs[s].start)
-		}
-		sg.fid[s] = f
-		at := c.fiducials[f].At
-		ap := c.move(at, jobs[s].start, jobs[s].tolNM)
-		sg.a[s], sg.aCreep[s], sg.aExcess[s] = ap.timeS, ap.creepUnit, ap.excess
-		if s == 0 {
-			sg.B[kCoarse][0] = c.register + ap.timeS
-			sg.B[kLocal][0] = c.move(f0, jobs[0].start, jobs[0].tolNM).timeS + c.local
-			continue
-		}
-		// The image of the fiducial waits for the creep of the move there
-		// to fall to share·(coarse error).
-		sg.detour[s] = c.move(jobs[s-1].end, at, c.coarseErrNM).timeS
-		sg.B[kCoarse][s] = c.verify + sg.detour[s] + c.register + ap.timeS - sg.m[s]
-		sg.B[kLocal][s] = c.verify + c.local
 	}
 	return sg
 }

@@ -1,0 +1,95 @@
+package planner
+
+import (
+	"math/rand/v2"
+	"runtime"
+	"slices"
+	"testing"
+)
+
+// TestInParallel checks that every item is done exactly once on the
+// parallel path and the one-core one, and that a worker's panic reaches
+// the caller.
+func TestInParallel(t *testing.T) {
+	defer func(m int) { parallelMin = m }(parallelMin)
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(4))
+	for _, least := range []int{1, 1 << 30} {
+		parallelMin = least
+		for _, n := range []int{0, 1, parallelBlock - 1, parallelBlock, 5*parallelBlock + 7} {
+			done := make([]int32, n)
+			inParallel(n, func(lo, hi int) {
+				for i := lo; i < hi; i++ {
+					done[i]++
+				}
+			})
+			for i, d := range done {
+				if d != 1 {
+					t.Fatalf("parallelMin %d, n %d: item %d done %d times", least, n, i, d)
+				}
+			}
+		}
+	}
+	parallelMin = 1
+	defer func() {
+		if r := recover(); r != "boom" {
+			t.Errorf("recovered %v, want the worker's panic", r)
+		}
+	}()
+	inParallel(4*parallelBlock, func(lo, hi int) {
+		if lo == 2*parallelBlock {
+			panic("boom")
+		}
+	})
+	t.Error("no panic")
+}
+
+// TestSegmenterSameOnAnyCores checks that a segmenter of a step large
+// enough to make its moves on every core (parallelMin lowered) is the
+// one-core segmenter bit for bit, made afresh and from a predecessor
+// (newSegmenterFrom, with some jobs reordered so that both the reused
+// and the recomputed moves occur).
+func TestSegmenterSameOnAnyCores(t *testing.T) {
+	defer func(m int) { parallelMin = m }(parallelMin)
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(0))
+	rng := rand.New(rand.NewPCG(41, 42))
+	p := DefaultProfile()
+	p.Drift.Compensation.Enabled = true
+	model := testModel(&p)
+	n := 3*parallelBlock + 123
+	jobs, _, c := randomJobs(rng, n)
+	next := slices.Clone(jobs)
+	for range 50 {
+		s := rng.IntN(n - 10)
+		rng.Shuffle(8, func(i, j int) { next[s+i], next[s+j] = next[s+j], next[s+i] })
+	}
+	make := func(cores, least int) (*segmenter, *segmenter) {
+		runtime.GOMAXPROCS(cores)
+		parallelMin = least
+		prev := newSegmenter(jobs, c, model, 1)
+		fresh := newSegmenter(jobs, c, model, 1)
+		prev.keepForSuccessor()
+		return fresh, newSegmenterFrom(next, c, model, 1, prev)
+	}
+	oneFresh, oneFrom := make(1, 1<<30)
+	manyFresh, manyFrom := make(4, 1)
+	for _, c := range []struct {
+		name      string
+		got, want *segmenter
+	}{{"afresh", manyFresh, oneFresh}, {"from its predecessor", manyFrom, oneFrom}} {
+		got, want := c.got, c.want
+		for name, pair := range map[string][2][]float64{
+			"T": {got.T, want.T}, "ts": {got.ts, want.ts}, "m": {got.m, want.m}, "sw": {got.sw, want.sw},
+			"moveCreep": {got.moveCreep, want.moveCreep}, "moveExcess": {got.moveExcess, want.moveExcess},
+			"a": {got.a, want.a}, "aCreep": {got.aCreep, want.aCreep}, "aExcess": {got.aExcess, want.aExcess},
+			"detour": {got.detour, want.detour}, "Blocal": {got.B[kLocal], want.B[kLocal]}, "Bcoarse": {got.B[kCoarse], want.B[kCoarse]},
+		} {
+			if !sameBits(pair[0], pair[1]) {
+				t.Errorf("%s: %s differs on 4 cores", c.name, name)
+			}
+		}
+		if !slices.Equal(got.fid, want.fid) || !got.creepF.same(&want.creepF) || !got.driftRaw.moves.same(&want.driftRaw.moves) ||
+			!got.driftC.moves.same(&want.driftC.moves) {
+			t.Errorf("%s: fiducials or fields differ on 4 cores", c.name)
+		}
+	}
+}
