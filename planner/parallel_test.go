@@ -1,10 +1,14 @@
 package planner
 
 import (
+	"context"
 	"math/rand/v2"
+	"reflect"
 	"runtime"
 	"slices"
 	"testing"
+
+	"dimerpath/lattice/design/designtest"
 )
 
 // TestInParallel checks that every item is done exactly once on the
@@ -91,5 +95,34 @@ func TestSegmenterSameOnAnyCores(t *testing.T) {
 			!got.driftC.moves.same(&want.driftC.moves) {
 			t.Errorf("%s: fiducials or fields differ on 4 cores", c.name)
 		}
+	}
+}
+
+// TestArrayPlanSameOnAnyCores: a window array large enough that its
+// route takes the route engine's parallel set-up (16,900 windows: 33,800
+// stroke ends, over its 2^15), with the planner's own thresholds
+// (parallelMin, tolParallelMin) lowered so that its segmenters and
+// tolerance sampling take theirs, plans the same on four cores as on one
+// with the thresholds as they are.
+func TestArrayPlanSameOnAnyCores(t *testing.T) {
+	if testing.Short() {
+		t.Skip("plans a 130 x 130 array twice")
+	}
+	defer func(m, tm int) { parallelMin, tolParallelMin = m, tm }(parallelMin, tolParallelMin)
+	d := designtest.WindowArray(130, 130)
+	prof := DefaultProfile()
+	prof.Limits.ScanFieldNM = designtest.FieldNM(d)
+	plan := func(procs int) *Plan {
+		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
+		p, err := buildVariant(context.Background(), d, "", prof, Options{Seed: 3})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	one := plan(1)
+	parallelMin, tolParallelMin = 1024, 1<<12
+	if four := plan(4); !reflect.DeepEqual(one, four) {
+		t.Errorf("the array's plan on four cores differs from the plan on one (total %v s against %v s)", four.TotalS, one.TotalS)
 	}
 }
