@@ -13,8 +13,8 @@ import (
 var parallelMin = 1 << 15
 
 // parallelBlock is the number of items a worker of inParallel takes at
-// a time.
-const parallelBlock = 4096
+// a time (a variable so that a test can make small blocks).
+var parallelBlock = 4096
 
 // inParallel calls do(lo, hi) once for each block [lo, hi) of [0, n),
 // on up to GOMAXPROCS goroutines when n is at least parallelMin and on
@@ -24,7 +24,8 @@ const parallelBlock = 4096
 // raised again in the caller once every worker has stopped (Build turns
 // it into an *InternalError, as it would the caller's own).
 func inParallel(n int, do func(lo, hi int)) {
-	workers := min(runtime.GOMAXPROCS(0), (n+parallelBlock-1)/parallelBlock)
+	block := parallelBlock
+	workers := min(runtime.GOMAXPROCS(0), (n+block-1)/block)
 	if n < parallelMin || workers <= 1 {
 		if n > 0 {
 			do(0, n)
@@ -47,11 +48,11 @@ func inParallel(n int, do func(lo, hi int)) {
 				}
 			}()
 			for !stop.Load() {
-				lo := int(next.Add(parallelBlock)) - parallelBlock
+				lo := int(next.Add(int64(block))) - block
 				if lo >= n {
 					return
 				}
-				do(lo, min(lo+parallelBlock, n))
+				do(lo, min(lo+block, n))
 			}
 		}()
 	}

@@ -629,27 +629,34 @@ func (sg *segmenter) prepareSolve() *solveCache {
 	raw, cmp := &sg.driftRaw, &sg.driftC
 	sameMoves := raw.moves.same(&cmp.moves)
 	sc.value[0], sc.value[1] = make([]float64, n), make([]float64, n)
-	for j := range n {
-		t := sg.T[j]
-		ci, mr := sg.creepF.integral(t), raw.moves.integral(t)
-		mc := mr
-		if !sameMoves {
-			mc = cmp.moves.integral(t)
-		}
-		sc.value[0][j] = md.creep*ci + md.rateMul*(raw.basePerS*t+mr+raw.anneal.integral(t))
-		sc.value[1][j] = md.creep*ci + md.rateMul*(cmp.basePerS*t+mc+cmp.anneal.integral(t))
-	}
-	memo := newSavedMemo()
 	for k := range sc.cst {
 		sc.cst[k] = make([]float64, n)
-		for s := range n {
-			if !sg.allowed(s, k) {
-				continue
-			}
-			c0, d0 := sg.startTermsMemo(s, k, memo)
-			sc.cst[k][s] = value(sg.field(s), sg.clockStart(s, k)) - sg.regError(k) - md.creep*c0 - md.rateMul*d0
-		}
 	}
+	// Each job's terms read the segmenter alone: a large step's are made
+	// on every core (inParallel), each block with its own memo (it holds
+	// exact values, so what it hits does not change them).
+	inParallel(n, func(lo, hi int) {
+		for j := lo; j < hi; j++ {
+			t := sg.T[j]
+			ci, mr := sg.creepF.integral(t), raw.moves.integral(t)
+			mc := mr
+			if !sameMoves {
+				mc = cmp.moves.integral(t)
+			}
+			sc.value[0][j] = md.creep*ci + md.rateMul*(raw.basePerS*t+mr+raw.anneal.integral(t))
+			sc.value[1][j] = md.creep*ci + md.rateMul*(cmp.basePerS*t+mc+cmp.anneal.integral(t))
+		}
+		memo := newSavedMemo()
+		for k := range sc.cst {
+			for s := lo; s < hi; s++ {
+				if !sg.allowed(s, k) {
+					continue
+				}
+				c0, d0 := sg.startTermsMemo(s, k, memo)
+				sc.cst[k][s] = value(sg.field(s), sg.clockStart(s, k)) - sg.regError(k) - md.creep*c0 - md.rateMul*d0
+			}
+		}
+	})
 	// nextLocal[s]: the first job at or after s that needs a local
 	// registration (n when none).
 	sc.nextLocal = make([]int, n+1)

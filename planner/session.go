@@ -158,34 +158,48 @@ func (b *builder) planSteps(steps []*stepWork, cps []couplingWork) error {
 func (b *builder) loads(steps []*stepWork, cps []couplingWork) ([]segLoad, []pairLoad, []int) {
 	nseg := 0
 	for _, st := range steps {
-		nseg += len(st.starts)
+		if st.sg != nil && st.sg.n > 0 {
+			nseg += len(st.starts)
+		}
 	}
-	segs := make([]segLoad, 0, nseg)
+	segs := make([]segLoad, nseg)
 	var pairs []pairLoad
 	pairIndex := make([]int, len(cps))
 	for i := range pairIndex {
 		pairIndex[i] = -1
 	}
 	r := &b.prof.Registration
-	var scratch []strokeLoad
+	// Each segment's loads read the segmenter alone: a large step's
+	// segments are made on every core (inParallel).
+	first := 0 // the step's first segment in segs
 	for _, st := range steps {
-		sg := st.sg
-		for sp := range st.spans() {
-			s, e, k := sp.s, sp.e, sp.k
-			g := segLoad{sigma: r.Local.ErrorNM}
-			if k == kCoarse {
-				g.sigma = r.CoarseErrorNM
-			}
-			ls := scratch[:0] // paretoLoads keeps what it returns apart
-			at := sg.segmentLoads(s, k)
-			for j := s; j < e; j++ {
-				cu, d := at.at(j)
-				ls = append(ls, strokeLoad{tol: sg.jobs[j].tolNM, creep: cu, drift: d})
-			}
-			g.loads = paretoLoads(ls)
-			segs = append(segs, g)
-			scratch = ls
+		if st.sg == nil || st.sg.n == 0 {
+			continue
 		}
+		sg := st.sg
+		inParallel(len(st.starts), func(lo, hi int) {
+			var scratch []strokeLoad
+			for i := lo; i < hi; i++ {
+				s, e, k := st.starts[i], sg.n, kindIndex(st.kinds[i])
+				if i+1 < len(st.starts) {
+					e = st.starts[i+1]
+				}
+				g := segLoad{sigma: r.Local.ErrorNM}
+				if k == kCoarse {
+					g.sigma = r.CoarseErrorNM
+				}
+				ls := scratch[:0] // paretoLoads keeps what it returns apart
+				at := sg.segmentLoads(s, k)
+				for j := s; j < e; j++ {
+					cu, d := at.at(j)
+					ls = append(ls, strokeLoad{tol: sg.jobs[j].tolNM, creep: cu, drift: d})
+				}
+				g.loads = paretoLoads(ls)
+				segs[first+i] = g
+				scratch = ls
+			}
+		})
+		first += len(st.starts)
 	}
 	for ci, cp := range cps {
 		if cp.sa < 0 || cp.sb < 0 {
