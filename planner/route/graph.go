@@ -2,6 +2,7 @@ package route
 
 import (
 	"math"
+	"runtime"
 	"slices"
 )
 
@@ -149,36 +150,48 @@ func (g *graph) spatiallyOrdered() *graph {
 	}
 	const side = 1 << 16
 	scale := (side - 1) / max(maxX-minX, maxY-minY, 1e-300)
+	// Every loop below writes each index once: a large graph's run on
+	// every core (inBlocks), the same graph as on one.
 	keys := make([]uint64, g.real)
-	for v := range g.real {
-		hx := uint32((g.x[v] - minX) * scale)
-		hy := uint32((g.y[v] - minY) * scale)
-		keys[v] = hilbert(hx, hy, side)<<32 | uint64(v)
-	}
-	slices.Sort(keys)
+	inBlocks(g.real, func() func(lo, hi int) {
+		return func(lo, hi int) {
+			for v := lo; v < hi; v++ {
+				hx := uint32((g.x[v] - minX) * scale)
+				hy := uint32((g.y[v] - minY) * scale)
+				keys[v] = hilbert(hx, hy, side)<<32 | uint64(v)
+			}
+		}
+	})
 	old := make([]int32, n) // old[new] = old index
-	for i, k := range keys {
-		old[i] = int32(uint32(k))
-	}
+	sortedIndices(keys, old)
 	for v := g.real; v < n; v++ {
 		old[v] = int32(v)
 	}
 	nw := make([]int32, n) // new index of each old node
-	for i, o := range old {
-		nw[o] = int32(i)
-	}
+	inBlocks(n, func() func(lo, hi int) {
+		return func(lo, hi int) {
+			for i, o := range old[lo:hi] {
+				nw[o] = int32(lo + i)
+			}
+		}
+	})
 	h := &graph{
 		x: make([]float64, n), y: make([]float64, n), partner: make([]int32, n),
 		tail: make([]bool, n), item: make([]int32, n), end: make([]uint8, n),
 		dummy: g.dummy, start: -1, finish: -1, oneWay: g.oneWay, real: g.real,
 	}
-	for i, o := range old {
-		h.x[i], h.y[i], h.tail[i], h.item[i], h.end[i] = g.x[o], g.y[o], g.tail[o], g.item[o], g.end[o]
-		h.partner[i] = -1
-		if p := g.partner[o]; p >= 0 {
-			h.partner[i] = nw[p]
+	inBlocks(n, func() func(lo, hi int) {
+		return func(lo, hi int) {
+			for i := lo; i < hi; i++ {
+				o := old[i]
+				h.x[i], h.y[i], h.tail[i], h.item[i], h.end[i] = g.x[o], g.y[o], g.tail[o], g.item[o], g.end[o]
+				h.partner[i] = -1
+				if p := g.partner[o]; p >= 0 {
+					h.partner[i] = nw[p]
+				}
+			}
 		}
-	}
+	})
 	if g.start >= 0 {
 		h.start = nw[g.start]
 	}
@@ -209,4 +222,30 @@ func hilbert(x, y, n uint32) uint64 {
 		}
 	}
 	return d
+}
+
+// sortedIndices sorts keys (distinct; the index in the low 32 bits) and
+// writes the index of each, in order, to out[:len(keys)]. A large set's
+// two halves are sorted on two cores and merged: the keys are distinct,
+// so the order is the one sort of them all gives.
+func sortedIndices(keys []uint64, out []int32) {
+	if len(keys) < parallelMin || runtime.GOMAXPROCS(0) < 2 {
+		slices.Sort(keys)
+		for i, k := range keys {
+			out[i] = int32(uint32(k))
+		}
+		return
+	}
+	a, b := keys[:len(keys)/2], keys[len(keys)/2:]
+	both(func() { slices.Sort(a) }, func() { slices.Sort(b) })
+	i, j := 0, 0
+	for o := range keys {
+		if j == len(b) || (i < len(a) && a[i] < b[j]) {
+			out[o] = int32(uint32(a[i]))
+			i++
+		} else {
+			out[o] = int32(uint32(b[j]))
+			j++
+		}
+	}
 }

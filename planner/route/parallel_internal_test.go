@@ -2,6 +2,7 @@ package route
 
 import (
 	"math/rand/v2"
+	"reflect"
 	"runtime"
 	"slices"
 	"testing"
@@ -172,6 +173,42 @@ func TestKDTreeSameOnAnyCores(t *testing.T) {
 			if !slices.Equal(c.t.nodes, ref.nodes) || !slices.Equal(c.t.idx, ref.idx) {
 				t.Errorf("%d points, %s: the tree differs from the appending build's (%d nodes, want %d)", n, c.name, len(c.t.nodes), len(ref.nodes))
 			}
+		}
+	}
+}
+
+// TestSpatialOrderSameOnAnyCores checks that a graph renumbered along
+// the Hilbert curve on several cores (parallelMin lowered: the keys,
+// their sort in two halves merged, and the copies) is the one-core
+// graph, field for field, for an open problem with a start and a closed
+// one.
+func TestSpatialOrderSameOnAnyCores(t *testing.T) {
+	defer func(m int) { parallelMin = m }(parallelMin)
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(0))
+	r := rand.New(rand.NewPCG(12, 13))
+	var items []Item
+	for range 7000 {
+		p := Point{X: float64(r.IntN(500)), Y: r.Float64() * 300}
+		q := p
+		if r.IntN(3) > 0 {
+			q = Point{X: p.X + r.Float64()*4, Y: p.Y}
+		}
+		items = append(items, Item{A: p, B: q})
+	}
+	for _, open := range []bool{false, true} {
+		var start *Point
+		if open {
+			start = &Point{X: 250, Y: 150}
+		}
+		g := newGraph(items, start, nil, open)
+		parallelMin = 1 << 30
+		runtime.GOMAXPROCS(1)
+		one := g.spatiallyOrdered()
+		parallelMin = 1
+		runtime.GOMAXPROCS(4)
+		many := g.spatiallyOrdered()
+		if !reflect.DeepEqual(one, many) {
+			t.Errorf("open=%v: the graph renumbered on 4 cores differs from one core's", open)
 		}
 	}
 }
