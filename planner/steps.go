@@ -106,6 +106,10 @@ func (b *builder) assignSteps(windows []Window) ([]*stepWork, error) {
 	}
 	vi := slices.IndexFunc(b.d.Variants, func(v design.Variant) bool { return v.Name == b.lay.Variant.Name })
 	noted := map[string]bool{}
+	// Each stroke's step first, then each step's list at its size (grown
+	// by appends, the lists of 4·10^6 strokes cost nearly a second).
+	stepOf := make([]int32, len(species))
+	count := make([]int, len(steps))
 	for i, sp := range species {
 		k, ok := index[sp]
 		if sp == design.NoDopant {
@@ -129,6 +133,15 @@ func (b *builder) assignSteps(windows []Window) ([]*stepWork, error) {
 				}
 			}
 		}
+		stepOf[i] = int32(k)
+		count[k]++
+	}
+	for k, st := range steps {
+		if count[k] > 0 {
+			st.strokes = make([]int, 0, count[k])
+		}
+	}
+	for i, k := range stepOf {
 		steps[k].strokes = append(steps[k].strokes, i)
 	}
 	return steps, nil
