@@ -3,6 +3,7 @@ package route
 import (
 	"cmp"
 	"math"
+	"runtime"
 	"slices"
 )
 
@@ -150,8 +151,9 @@ func greedyTour(g *graph, nb *neighbours) []int32 {
 // slot (4 bytes an edge: no copy of the edges), small ones by
 // sortedOrder.
 func firstRound(nb *neighbours, n int32, take func(slot int) bool) {
-	each := func(f func(slot uint32, d float64)) {
-		for v := range n {
+	// eachIn calls f for the edges listed from the nodes [lo, hi).
+	eachIn := func(lo, hi int32, f func(slot uint32, d float64)) {
+		for v := lo; v < hi; v++ {
 			ids, ds := nb.list(v)
 			o := uint32(v) * uint32(nb.k)
 			for j, u := range ids {
@@ -165,6 +167,7 @@ func firstRound(nb *neighbours, n int32, take func(slot int) bool) {
 			}
 		}
 	}
+	each := func(f func(slot uint32, d float64)) { eachIn(0, n, f) }
 	// Small lists (the session's many re-routes): the edges' lengths in
 	// one pass, sorted by sortedOrder (the same order as below; 2^16
 	// counters would cost more than the sort).
@@ -186,10 +189,29 @@ func firstRound(nb *neighbours, n int32, take func(slot int) bool) {
 		return
 	}
 	bits := func(d float64) uint32 { return math.Float32bits(float32(d)) }
+	// The counts and the scatter by the upper 16 bits, on every core for
+	// a large problem: each part of the nodes (contiguous, in order)
+	// counts its own edges, and scatters them after the earlier parts'
+	// in each bucket, so the buckets hold their edges in slot order as
+	// one pass would.
+	parts := 1
+	if int(n) >= parallelMin {
+		parts = runtime.GOMAXPROCS(0)
+	}
+	partOf := func(p int) (int32, int32) { return int32(int(n) * p / parts), int32(int(n) * (p + 1) / parts) }
+	hist := make([][]int, parts)
+	inParts(parts, func(p int) {
+		h := make([]int, 1<<16)
+		lo, hi := partOf(p)
+		eachIn(lo, hi, func(_ uint32, d float64) { h[bits(d)>>16]++ })
+		hist[p] = h
+	})
 	cnt := make([]int, 1<<16+1)
-	each(func(_ uint32, d float64) { cnt[bits(d)>>16+1]++ })
-	for i := 1; i < len(cnt); i++ {
-		cnt[i] += cnt[i-1]
+	for h := range 1 << 16 {
+		cnt[h+1] = cnt[h]
+		for p := range parts {
+			cnt[h+1] += hist[p][h]
+		}
 	}
 	total := cnt[len(cnt)-1]
 	if total < 1<<16 {
@@ -197,40 +219,69 @@ func firstRound(nb *neighbours, n int32, take func(slot int) bool) {
 		return
 	}
 	slots := make([]uint32, total)
-	next := slices.Clone(cnt[:len(cnt)-1])
-	each(func(slot uint32, d float64) {
-		h := bits(d) >> 16
-		slots[next[h]] = slot
-		next[h]++
+	// hist[p][h] becomes where part p's edges of bucket h go.
+	for h := range 1 << 16 {
+		at := cnt[h]
+		for p := range parts {
+			at, hist[p][h] = at+hist[p][h], at
+		}
+	}
+	inParts(parts, func(p int) {
+		next := hist[p]
+		lo, hi := partOf(p)
+		eachIn(lo, hi, func(slot uint32, d float64) {
+			h := bits(d) >> 16
+			slots[next[h]] = slot
+			next[h]++
+		})
 	})
+	// Each bucket sorted by the lower 16 bits, stably, before its edges
+	// are taken: on one core bucket by bucket (the first round may stop
+	// early), on several all of them first, the parts of the range of
+	// buckets on every core (the buckets are apart).
+	sortBucket := func(h int, buf *[]uint32, low []int) {
+		bucket := slots[cnt[h]:cnt[h+1]]
+		if len(bucket) < 2 {
+			return
+		}
+		if len(bucket) < 1024 {
+			slices.SortStableFunc(bucket, func(a, b uint32) int {
+				return cmp.Compare(bits(nb.dst[a])&0xffff, bits(nb.dst[b])&0xffff)
+			})
+			return
+		}
+		// A stable counting sort on the lower 16 bits.
+		clear(low)
+		for _, slot := range bucket {
+			low[bits(nb.dst[slot])&0xffff+1]++
+		}
+		for i := 1; i < len(low); i++ {
+			low[i] += low[i-1]
+		}
+		*buf = slices.Grow((*buf)[:0], len(bucket))[:len(bucket)]
+		for _, slot := range bucket {
+			l := bits(nb.dst[slot]) & 0xffff
+			(*buf)[low[l]] = slot
+			low[l]++
+		}
+		copy(bucket, *buf)
+	}
+	if parts > 1 {
+		inParts(parts, func(p int) {
+			var buf []uint32
+			low := make([]int, 1<<16+1)
+			for h := (1 << 16) * p / parts; h < (1<<16)*(p+1)/parts; h++ {
+				sortBucket(h, &buf, low)
+			}
+		})
+	}
 	var buf []uint32
 	low := make([]int, 1<<16+1)
 	for h := range 1 << 16 {
-		bucket := slots[cnt[h]:cnt[h+1]]
-		if len(bucket) > 1 {
-			if len(bucket) < 1024 {
-				slices.SortStableFunc(bucket, func(a, b uint32) int {
-					return cmp.Compare(bits(nb.dst[a])&0xffff, bits(nb.dst[b])&0xffff)
-				})
-			} else {
-				// A stable counting sort on the lower 16 bits.
-				clear(low)
-				for _, slot := range bucket {
-					low[bits(nb.dst[slot])&0xffff+1]++
-				}
-				for i := 1; i < len(low); i++ {
-					low[i] += low[i-1]
-				}
-				buf = slices.Grow(buf[:0], len(bucket))[:len(bucket)]
-				for _, slot := range bucket {
-					l := bits(nb.dst[slot]) & 0xffff
-					buf[low[l]] = slot
-					low[l]++
-				}
-				copy(bucket, buf)
-			}
+		if parts == 1 {
+			sortBucket(h, &buf, low)
 		}
-		for _, slot := range bucket {
+		for _, slot := range slots[cnt[h]:cnt[h+1]] {
 			if !take(int(slot)) {
 				return
 			}

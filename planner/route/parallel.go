@@ -81,3 +81,32 @@ func both(a, b func()) {
 		panic(failure)
 	}
 }
+
+// inParts calls do(p) for each part p of [0, parts), each on a goroutine
+// of its own when there are more than one; a panic is raised again in
+// the caller once every part has ended.
+func inParts(parts int, do func(p int)) {
+	if parts <= 1 {
+		do(0)
+		return
+	}
+	var wg sync.WaitGroup
+	var once sync.Once
+	var failure any
+	for p := range parts {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			defer func() {
+				if r := recover(); r != nil {
+					once.Do(func() { failure = r })
+				}
+			}()
+			do(p)
+		}()
+	}
+	wg.Wait()
+	if failure != nil {
+		panic(failure)
+	}
+}

@@ -3,6 +3,7 @@ package route
 import (
 	"cmp"
 	"math/rand"
+	"runtime"
 	"slices"
 	"testing"
 )
@@ -60,7 +61,7 @@ func TestSortKeysByNode(t *testing.T) {
 // the edges, walked list by list, by the key sortedOrder documents (the
 // float32 of the length; below 256 edges the float64): lists of lattice
 // lengths with many ties, with and without spread values, small buckets
-// and large ones.
+// and large ones; on one core and in parts on three.
 func TestFirstRoundOrder(t *testing.T) {
 	for _, n := range []int{3, 30, 2000, 30_000} {
 		r := rand.New(rand.NewSource(int64(n)))
@@ -113,16 +114,27 @@ func TestFirstRoundOrder(t *testing.T) {
 		} else {
 			slices.SortStableFunc(want, func(a, b uint32) int { return cmp.Compare(float32(nb.dst[a]), float32(nb.dst[b])) })
 		}
-		var got []uint32
-		firstRound(nb, int32(n), func(slot int) bool { got = append(got, uint32(slot)); return true })
-		if !slices.Equal(got, want) {
-			t.Errorf("n=%d: %d edges taken, not in the order of a stable sort by length (%d edges)", n, len(got), len(want))
-		}
-		stopAt := len(want) / 2
-		got = got[:0]
-		firstRound(nb, int32(n), func(slot int) bool { got = append(got, uint32(slot)); return len(got) < stopAt })
-		if len(got) != stopAt {
-			t.Errorf("n=%d: %d edges taken after take said stop at %d", n, len(got), stopAt)
+		// On one core, and on three with the parallel threshold lowered
+		// (the counts, the scatter and the buckets' sorts in parts).
+		for _, cores := range []int{1, 3} {
+			func() {
+				defer func(m int) { parallelMin = m }(parallelMin)
+				defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(cores))
+				if cores > 1 {
+					parallelMin = 1
+				}
+				var got []uint32
+				firstRound(nb, int32(n), func(slot int) bool { got = append(got, uint32(slot)); return true })
+				if !slices.Equal(got, want) {
+					t.Errorf("n=%d, %d cores: %d edges taken, not in the order of a stable sort by length (%d edges)", n, cores, len(got), len(want))
+				}
+				stopAt := len(want) / 2
+				got = got[:0]
+				firstRound(nb, int32(n), func(slot int) bool { got = append(got, uint32(slot)); return len(got) < stopAt })
+				if len(got) != stopAt {
+					t.Errorf("n=%d, %d cores: %d edges taken after take said stop at %d", n, cores, len(got), stopAt)
+				}
+			}()
 		}
 	}
 }
