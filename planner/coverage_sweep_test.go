@@ -1,0 +1,92 @@
+package planner
+
+import (
+	"fmt"
+	"math/rand/v2"
+	"slices"
+	"testing"
+
+	"github.com/golang/geo/r2"
+
+	"dimerpath/lattice/design"
+)
+
+// withSweeps runs f with the sweeps on or off.
+func withSweeps(on bool, f func()) {
+	old := sweeps
+	sweeps = on
+	defer func() { sweeps = old }()
+	f()
+}
+
+// TestSweepsMatchScan: the demo summed with sweeps (an FE raster's ends
+// taken a strip at a time) gives the expectation that halving and
+// scanning give, within the check's stated accuracy (sameCoverage), the
+// same sites over the limit, and every AP stroke's expected missed and
+// stray sites bit for bit (they set the session's repair times, and a
+// sweep never takes an AP stroke's sites).
+func TestSweepsMatchScan(t *testing.T) {
+	if testing.Short() {
+		t.Skip("plans the demo twice")
+	}
+	for _, v := range []string{"gap-9", "gap-12-source"} {
+		surf, cr, ss, prof := demoCoverageInput(t, v)
+		var got, want Coverage
+		var gs, ws []Stroke
+		withSweeps(true, func() { got, gs = CheckCoverage(surf, cr, ss, prof) })
+		withSweeps(false, func() { want, ws = CheckCoverage(surf, cr, ss, prof) })
+		sameCoverage(t, "demo "+v, got, want, gs, ws)
+		for i := range gs {
+			if gs[i].Mode == design.ModeAP && (gs[i].ExpectedMissed != ws[i].ExpectedMissed || gs[i].ExpectedStray != ws[i].ExpectedStray) {
+				t.Errorf("%s: AP stroke %d: missed %v stray %v with sweeps, %v %v without", v, i,
+					gs[i].ExpectedMissed, gs[i].ExpectedStray, ws[i].ExpectedMissed, ws[i].ExpectedStray)
+			}
+		}
+		if len(got.StraySites) != len(want.StraySites) {
+			t.Errorf("%s: %d stray sites listed with sweeps, %d without", v, len(got.StraySites), len(want.StraySites))
+		}
+	}
+}
+
+// TestSweepsMatchBruteForce: FE rasters whose lines run up to the edge
+// of their pad or past it (so sites beyond the edge allowance clear above
+// the stray limit: errors a sweep must find site by site) and between,
+// at random pitches and passes: with sweeps the check lists the same
+// sites over the limit with the same probabilities as without, and
+// agrees with the brute force.
+func TestSweepsMatchBruteForce(t *testing.T) {
+	rng := rand.New(rand.NewPCG(12, 13))
+	for trial := range 6 {
+		x0, y0 := 20+rng.Float64()*10, 15+rng.Float64()*10
+		w, h := 10+rng.Float64()*25, 8+rng.Float64()*20
+		d := testDesign(80, 70, design.Region{Name: "pad", Role: design.RolePad, Mode: design.ModeFE,
+			Shapes: []design.Shape{rect(x0, y0, x0+w, y0+h)}})
+		lay, cr := layRegions(t, d)
+		prof := DefaultProfile()
+		prof.FE.Passes = 1 + rng.IntN(2)
+		pitch := prof.FEPitch() * (0.6 + 0.6*rng.Float64())
+		inset := -2 + 6*rng.Float64() // past the edge for some
+		var path []r2.Point
+		for k := 0; y0+2+float64(k)*pitch <= y0+h-2; k++ {
+			y := y0 + 2 + float64(k)*pitch
+			a, b := x0+inset, x0+w-inset
+			if k%2 == 1 {
+				a, b = b, a
+			}
+			path = append(path, r2.Point{X: a, Y: y}, r2.Point{X: b, Y: y})
+		}
+		ss := []Stroke{{Region: "pad", Mode: design.ModeFE, Kind: StrokeRaster, Path: path, Passes: prof.FE.Passes, Window: -1,
+			LengthNM: pathLength(path)}}
+		var got, want Coverage
+		var gs, ws []Stroke
+		withSweeps(true, func() { got, gs = CheckCoverage(lay.Surface, cr, ss, prof) })
+		withSweeps(false, func() { want, ws = CheckCoverage(lay.Surface, cr, ss, prof) })
+		what := fmt.Sprintf("raster %c (inset %.2f nm)", 'a'+trial, inset)
+		sameCoverage(t, what, got, want, gs, ws)
+		if !slices.Equal(got.StraySites, want.StraySites) {
+			t.Errorf("%s: %d stray sites listed with sweeps, %d without, or not the same", what, len(got.StraySites), len(want.StraySites))
+		}
+		compareBrute(t, what, got, gs, bruteCoverage(lay.Surface, cr, ss, prof))
+		t.Logf("%s: %d sites over the limit", what, got.OverLimit)
+	}
+}
