@@ -5,20 +5,21 @@ import (
 	"dimerpath/lattice/design"
 )
 
-// Sweeps: where only one FE stroke's parallel and square pieces (its
-// combs: the lines and turns of a raster) reach a range of sites, the
-// exposure of every site is the sum of a few along factors, shared by all
-// of the range's site lines, each times its piece's across factor on the
-// line. At an FE pad's raster-line ends the along factors fall from 1 to
-// 0 within a few σ, faster than bounds can take any two neighbouring
-// sites at once, so halving ends in ranges of a few sites each; a sweep
-// instead takes the whole strip across the ends (up to sweepDimers
-// dimers, any number of lines) site by site in one tight loop: no more
-// halvings, the along factors looked up once, the row's look-ups once a
-// line, and the sums kept per line. Every site's exposure is the one scan
-// computes (the same pieces in the same order), so a site's counts and a
-// stray site's test against the limit are the same; only the order in
-// which the sites' terms are added differs.
+// Sweeps: where only one FE stroke's lines reach a range of sites (the
+// lines and turns of a raster, its combs; a fan's lines and slanted
+// turns), every site of the range is that stroke's, and its exposure is
+// the sum of the pieces' along factors, shared by all of the range's
+// site lines, each times the piece's across factor on the line, plus the
+// slanted pieces' terms. At a raster's ends the along factors fall from 1
+// to 0 within a few σ, faster than bounds can take two neighbouring sites
+// at once, so halving ends in ranges of a few sites each; a sweep instead
+// takes a strip across the ends (up to sweepDimers dimers, any number of
+// lines) site by site in one loop: no more halvings, the along factors
+// looked up once, the row's look-ups once a line, the sums kept for the
+// sweep. Every site's exposure is the one scan computes (the same pieces
+// in the same order), so a site's counts and a stray site's test against
+// the limit are the same; only the order in which the sites' terms are
+// added differs.
 
 // sweepDimers is the widest range a sweep takes: decide narrows a
 // raster's end to strips this wide (halving along the dimers, where the
@@ -28,16 +29,17 @@ import (
 const sweepDimers = 32
 
 // sweepStroke returns the stroke of active's pieces when they are all
-// parallel or square pieces (combs among them) of one FE stroke, else -1.
-// AP strokes are left to scan: their expected missed sites set the
-// session's repair times, which stay bit for bit as scan sums them.
+// lines (parallel, square or slanted pieces, combs among them) of one FE
+// stroke, else -1. AP strokes are left to scan: their expected missed
+// sites set the session's repair times, which stay bit for bit as scan
+// sums them; dwells too (their own site's exposure is scanLine's).
 func (ck *coverageCheck) sweepStroke(active []*piece) int32 {
 	if len(active) == 0 {
 		return -1
 	}
 	s := active[0].stroke
 	for _, p := range active {
-		if p.stroke != s || (p.kind != pieceParallel && p.kind != pieceSquare) {
+		if p.stroke != s || p.kind == pieceDot {
 			return -1
 		}
 	}
@@ -48,7 +50,7 @@ func (ck *coverageCheck) sweepStroke(active []*piece) int32 {
 }
 
 // sweep sums every site of r, whose active pieces are all stroke si's
-// parallel or square pieces (see sweepStroke), a site line at a time,
+// lines (see sweepStroke), a site line at a time,
 // into sums of its own that it adds to the check's at the end. It
 // returns false, having added nothing, when a site outside the regions
 // clears above the stray limit (or the strip meets more regions than its
@@ -58,10 +60,14 @@ func (ck *coverageCheck) sweepStroke(active []*piece) int32 {
 func (ck *coverageCheck) sweep(r siteRect, active []*piece, si int32) bool {
 	n, np := r.d1-r.d0, len(active)
 	atop := len(ck.arena)
-	ck.grow(np*n + np + n)
+	ck.grow(np*n + np + 2*n)
 	defer func() { ck.arena = ck.arena[:atop] }()
 	buf := ck.arena[atop:]
-	fu, amps, x := buf[:np*n], buf[np*n:np*n+np], buf[np*n+np:np*n+np+n]
+	fu, amps, x, best := buf[:np*n], buf[np*n:np*n+np], buf[np*n+np:np*n+np+n], buf[np*n+np+n:np*n+np+2*n]
+	if cap(ck.who) < n {
+		ck.who = make([]int32, n)
+	}
+	who := ck.who[:n] // slantedRange's, unused: every term is si's
 	if cap(ck.looked) < np {
 		ck.looked = make([]bool, np)
 	}
@@ -72,6 +78,10 @@ func (ck *coverageCheck) sweep(r siteRect, active []*piece, si int32) bool {
 		// The pieces' amplitudes on this line, as scanLine takes them.
 		for i, p := range active {
 			a := 0.0
+			if p.kind == pieceSlanted {
+				amps[i] = 0
+				continue
+			}
 			if p.comb != nil {
 				sum, _ := p.comb.at(l)
 				a = p.amp * sum
@@ -87,7 +97,14 @@ func (ck *coverageCheck) sweep(r siteRect, active []*piece, si int32) bool {
 			amps[i] = a
 		}
 		clear(x)
+		y := lineY(l)
 		for i, a := range amps {
+			if p := active[i]; p.kind == pieceSlanted {
+				// As scanLine: the dimers within the piece's reach.
+				k0, k1 := p.slantedDimers(r.d0, r.d1, y)
+				p.slantedRange(r.d0, k0, k1, y, x, best, who)
+				continue
+			}
 			if a == 0 {
 				continue
 			}

@@ -51,7 +51,7 @@ func TestSweepsMatchScan(t *testing.T) {
 // TestSweepsMatchBruteForce: FE rasters whose lines run up to the edge
 // of their pad or past it (so sites beyond the edge allowance clear above
 // the stray limit: errors a sweep must find site by site) and between,
-// at random pitches and passes: with sweeps the check lists the same
+// at random pitches and passes, half of them with slanted turns: with sweeps the check lists the same
 // sites over the limit with the same probabilities as without, and
 // agrees with the brute force.
 func TestSweepsMatchBruteForce(t *testing.T) {
@@ -65,11 +65,14 @@ func TestSweepsMatchBruteForce(t *testing.T) {
 		prof := DefaultProfile()
 		prof.FE.Passes = 1 + rng.IntN(2)
 		pitch := prof.FEPitch() * (0.6 + 0.6*rng.Float64())
-		inset := -2 + 6*rng.Float64() // past the edge for some
+		inset := -2 + 12*rng.Float64() // past the edge for some, well inside for others
+		// Odd trials shift the lines' ends from line to line: slanted turns.
+		shift := float64(trial%2) * 1.5 * rng.Float64()
 		var path []r2.Point
-		for k := 0; y0+2+float64(k)*pitch <= y0+h-2; k++ {
-			y := y0 + 2 + float64(k)*pitch
-			a, b := x0+inset, x0+w-inset
+		side := min(max(2, inset), h/4)
+		for k := 0; y0+side+float64(k)*pitch <= y0+h-side; k++ {
+			y := y0 + side + float64(k)*pitch
+			a, b := x0+inset+float64(k)*shift, x0+w-inset+float64(k)*shift
 			if k%2 == 1 {
 				a, b = b, a
 			}
@@ -81,7 +84,7 @@ func TestSweepsMatchBruteForce(t *testing.T) {
 		var gs, ws []Stroke
 		withSweeps(true, func() { got, gs = CheckCoverage(lay.Surface, cr, ss, prof) })
 		withSweeps(false, func() { want, ws = CheckCoverage(lay.Surface, cr, ss, prof) })
-		what := fmt.Sprintf("raster %c (inset %.2f nm)", 'a'+trial, inset)
+		what := fmt.Sprintf("raster %c (inset %.2f nm, shift %.2f nm)", 'a'+trial, inset, shift)
 		sameCoverage(t, what, got, want, gs, ws)
 		if !slices.Equal(got.StraySites, want.StraySites) {
 			t.Errorf("%s: %d stray sites listed with sweeps, %d without, or not the same", what, len(got.StraySites), len(want.StraySites))
