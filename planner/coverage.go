@@ -538,8 +538,8 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 		}
 	}
 	small := (r.l1-r.l0 == 1 && r.d1-r.d0 <= scanDimers) || r.size() <= scanSites
-	if (small || r.d1-r.d0 <= sweepDimers) && sweeps {
-		if si := ck.sweepStroke(active); si >= 0 && ck.sweep(r, active, si) {
+	if (small || r.d1-r.d0 <= stripDimers) && strips {
+		if si := ck.stripStroke(active); si >= 0 && ck.strip(r, active, si) {
 			return
 		}
 	}

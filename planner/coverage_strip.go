@@ -5,35 +5,35 @@ import (
 	"dimerpath/lattice/design"
 )
 
-// Sweeps: where only one FE stroke's lines reach a range of sites (the
+// Strips: where only one FE stroke's lines reach a range of sites (the
 // lines and turns of a raster, its combs; a fan's lines and slanted
 // turns), every site of the range is that stroke's, and its exposure is
 // the sum of the pieces' along factors, shared by all of the range's
 // site lines, each times the piece's across factor on the line, plus the
 // slanted pieces' terms. At a raster's ends the along factors fall from 1
 // to 0 within a few σ, faster than bounds can take two neighbouring sites
-// at once, so halving ends in ranges of a few sites each; a sweep instead
-// takes a strip across the ends (up to sweepDimers dimers, any number of
+// at once, so halving ends in ranges of a few sites each; instead decide
+// takes a strip across the ends (up to stripDimers dimers, any number of
 // lines) site by site in one loop: no more halvings, the along factors
 // looked up once, the row's look-ups once a line, the sums kept for the
-// sweep. Every site's exposure is the one scan computes (the same pieces
+// strip. Every site's exposure is the one scan computes (the same pieces
 // in the same order), so a site's counts and a stray site's test against
 // the limit are the same; only the order in which the sites' terms are
 // added differs.
 
-// sweepDimers is the widest range a sweep takes: decide narrows a
+// stripDimers is the widest range taken as a strip: decide narrows a
 // raster's end to strips this wide (halving along the dimers, where the
-// along factors change), which a sweep then takes whole. On the demo
+// along factors change), then takes each whole. On the demo
 // (instructions per check under cachegrind) 32 did better than 16, 64 or
 // 128: wider strips sum more sites that bounds would have taken at once.
-const sweepDimers = 32
+const stripDimers = 32
 
-// sweepStroke returns the stroke of active's pieces when they are all
+// stripStroke returns the stroke of active's pieces when they are all
 // lines (parallel, square or slanted pieces, combs among them) of one FE
 // stroke, else -1. AP strokes are left to scan: their expected missed
 // sites set the session's repair times, which stay bit for bit as scan
 // sums them; dwells too (their own site's exposure is scanLine's).
-func (ck *coverageCheck) sweepStroke(active []*piece) int32 {
+func (ck *coverageCheck) stripStroke(active []*piece) int32 {
 	if len(active) == 0 {
 		return -1
 	}
@@ -49,15 +49,15 @@ func (ck *coverageCheck) sweepStroke(active []*piece) int32 {
 	return s
 }
 
-// sweep sums every site of r, whose active pieces are all stroke si's
-// lines (see sweepStroke), a site line at a time,
+// strip sums every site of r, whose active pieces are all stroke si's
+// lines (see stripStroke), a site line at a time,
 // into sums of its own that it adds to the check's at the end. It
 // returns false, having added nothing, when a site outside the regions
 // clears above the stray limit (or the strip meets more regions than its
 // sums hold): then decide halves r as before, so such sites are listed in
 // the order they always were (the first MaxStraySites, the first
 // examples).
-func (ck *coverageCheck) sweep(r siteRect, active []*piece, si int32) bool {
+func (ck *coverageCheck) strip(r siteRect, active []*piece, si int32) bool {
 	n, np := r.d1-r.d0, len(active)
 	atop := len(ck.arena)
 	ck.grow(np*n + np + 2*n)
@@ -73,7 +73,7 @@ func (ck *coverageCheck) sweep(r siteRect, active []*piece, si int32) bool {
 	}
 	looked := ck.looked[:np]
 	clear(looked)
-	var sums sweepSums
+	var sums stripSums
 	for l := r.l0; l < r.l1; l++ {
 		// The pieces' amplitudes on this line, as scanLine takes them.
 		for i, p := range active {
@@ -133,9 +133,9 @@ func (ck *coverageCheck) sweep(r siteRect, active []*piece, si int32) bool {
 	return true
 }
 
-// sweepSums are a sweep's sums: per region (len(regions): other) and for
+// stripSums are a strip's sums: per region (len(regions): other) and for
 // its stroke.
-type sweepSums struct {
+type stripSums struct {
 	n                         int
 	ri                        [8]int32
 	missed, stray, logP       [8]float64
@@ -143,7 +143,7 @@ type sweepSums struct {
 }
 
 // slot returns the index of region ri's sums, or -1 when they are full.
-func (s *sweepSums) slot(ri int32) int {
+func (s *stripSums) slot(ri int32) int {
 	for k := range s.n {
 		if s.ri[k] == ri {
 			return k
@@ -161,8 +161,8 @@ func (s *sweepSums) slot(ri int32) int {
 // terrace t at exposures x, all of them stroke si's, into sums (see
 // scanLine, whose counts it repeats). It returns false when a site
 // clears above the stray limit untolerated or the sums are full (see
-// sweep).
-func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active []*piece, sums *sweepSums) bool {
+// strip).
+func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active []*piece, sums *stripSums) bool {
 	row, side := l/2, l%2
 	pw := ck.painted.Row(t, row)
 	exist := ck.existDimers(t, row)
@@ -210,7 +210,7 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 			if ck.siteTolerated(lattice.Site{Terrace: t, Row: row, Dimer: d, Side: side}, si, active) {
 				continue
 			}
-			return false // an error: see sweep
+			return false // an error: see strip
 		}
 		stray += p
 		strayX += xi
@@ -242,5 +242,5 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 	return true
 }
 
-// sweeps switches the sweeps; tests compare against scan with it off.
-var sweeps = true
+// strips switches the strips; tests compare against scan with it off.
+var strips = true

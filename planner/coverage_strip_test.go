@@ -11,21 +11,21 @@ import (
 	"dimerpath/lattice/design"
 )
 
-// withSweeps runs f with the sweeps on or off.
-func withSweeps(on bool, f func()) {
-	old := sweeps
-	sweeps = on
-	defer func() { sweeps = old }()
+// withStrips runs f with the strips on or off.
+func withStrips(on bool, f func()) {
+	old := strips
+	strips = on
+	defer func() { strips = old }()
 	f()
 }
 
-// TestSweepsMatchScan: the demo summed with sweeps (an FE raster's ends
+// TestStripsMatchScan: the demo summed with strips (an FE raster's ends
 // taken a strip at a time) gives the expectation that halving and
 // scanning give, within the check's stated accuracy (sameCoverage), the
 // same sites over the limit, and every AP stroke's expected missed and
 // stray sites bit for bit (they set the session's repair times, and a
-// sweep never takes an AP stroke's sites).
-func TestSweepsMatchScan(t *testing.T) {
+// strip never takes an AP stroke's sites).
+func TestStripsMatchScan(t *testing.T) {
 	if testing.Short() {
 		t.Skip("plans the demo twice")
 	}
@@ -33,28 +33,28 @@ func TestSweepsMatchScan(t *testing.T) {
 		surf, cr, ss, prof := demoCoverageInput(t, v)
 		var got, want Coverage
 		var gs, ws []Stroke
-		withSweeps(true, func() { got, gs = CheckCoverage(surf, cr, ss, prof) })
-		withSweeps(false, func() { want, ws = CheckCoverage(surf, cr, ss, prof) })
+		withStrips(true, func() { got, gs = CheckCoverage(surf, cr, ss, prof) })
+		withStrips(false, func() { want, ws = CheckCoverage(surf, cr, ss, prof) })
 		sameCoverage(t, "demo "+v, got, want, gs, ws)
 		for i := range gs {
 			if gs[i].Mode == design.ModeAP && (gs[i].ExpectedMissed != ws[i].ExpectedMissed || gs[i].ExpectedStray != ws[i].ExpectedStray) {
-				t.Errorf("%s: AP stroke %d: missed %v stray %v with sweeps, %v %v without", v, i,
+				t.Errorf("%s: AP stroke %d: missed %v stray %v with strips, %v %v without", v, i,
 					gs[i].ExpectedMissed, gs[i].ExpectedStray, ws[i].ExpectedMissed, ws[i].ExpectedStray)
 			}
 		}
 		if len(got.StraySites) != len(want.StraySites) {
-			t.Errorf("%s: %d stray sites listed with sweeps, %d without", v, len(got.StraySites), len(want.StraySites))
+			t.Errorf("%s: %d stray sites listed with strips, %d without", v, len(got.StraySites), len(want.StraySites))
 		}
 	}
 }
 
-// TestSweepsMatchBruteForce: FE rasters whose lines run up to the edge
+// TestStripsMatchBruteForce: FE rasters whose lines run up to the edge
 // of their pad or past it (so sites beyond the edge allowance clear above
-// the stray limit: errors a sweep must find site by site) and between,
-// at random pitches and passes, half of them with slanted turns: with sweeps the check lists the same
+// the stray limit: errors a strip must find site by site) and between,
+// at random pitches and passes, half of them with slanted turns: with strips the check lists the same
 // sites over the limit with the same probabilities as without, and
 // agrees with the brute force.
-func TestSweepsMatchBruteForce(t *testing.T) {
+func TestStripsMatchBruteForce(t *testing.T) {
 	rng := rand.New(rand.NewPCG(12, 13))
 	for trial := range 6 {
 		x0, y0 := 20+rng.Float64()*10, 15+rng.Float64()*10
@@ -82,12 +82,12 @@ func TestSweepsMatchBruteForce(t *testing.T) {
 			LengthNM: pathLength(path)}}
 		var got, want Coverage
 		var gs, ws []Stroke
-		withSweeps(true, func() { got, gs = CheckCoverage(lay.Surface, cr, ss, prof) })
-		withSweeps(false, func() { want, ws = CheckCoverage(lay.Surface, cr, ss, prof) })
+		withStrips(true, func() { got, gs = CheckCoverage(lay.Surface, cr, ss, prof) })
+		withStrips(false, func() { want, ws = CheckCoverage(lay.Surface, cr, ss, prof) })
 		what := fmt.Sprintf("raster %c (inset %.2f nm, shift %.2f nm)", 'a'+trial, inset, shift)
 		sameCoverage(t, what, got, want, gs, ws)
 		if !slices.Equal(got.StraySites, want.StraySites) {
-			t.Errorf("%s: %d stray sites listed with sweeps, %d without, or not the same", what, len(got.StraySites), len(want.StraySites))
+			t.Errorf("%s: %d stray sites listed with strips, %d without, or not the same", what, len(got.StraySites), len(want.StraySites))
 		}
 		compareBrute(t, what, got, gs, bruteCoverage(lay.Surface, cr, ss, prof))
 		t.Logf("%s: %d sites over the limit", what, got.OverLimit)
