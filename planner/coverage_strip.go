@@ -166,14 +166,22 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 	row, side := l/2, l%2
 	pw := ck.painted.Row(t, row)
 	exist := ck.existDimers(t, row)
-	regs := ck.regionsOnRow(t, row)
-	if len(regs) > 8 {
-		return false
-	}
+	// The regions with sites on this line within the strip: most often
+	// one (two pads may share rows, never a strip's dimers).
+	var regs [8]int32
 	var regBits [8]lattice.RowBits
 	var regMissed, regLog [8]float64
-	for k, ri := range regs {
-		regBits[k] = ck.regions[ri].Sites.Row(t, row)
+	nr := 0
+	for _, ri := range ck.regionsOnRow(t, row) {
+		w := ck.regions[ri].Sites.Row(t, row)
+		if !w.Any(2*d0, 2*(d0+len(x)), lattice.SideOf(side)) {
+			continue
+		}
+		if nr == len(regs) {
+			return false
+		}
+		regs[nr], regBits[nr] = ri, w
+		nr++
 	}
 	allowed := ck.allowedFor(si, t, l)
 	limit := ck.prof.StrayLimit
@@ -186,11 +194,11 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 				continue
 			}
 			miss, logOK := missAndLog(xi)
-			if len(regs) == 1 {
+			if nr == 1 {
 				regMissed[0] += miss
 				regLog[0] += logOK
 			} else {
-				for j := range regs {
+				for j := range nr {
 					if regBits[j].Contains(i) {
 						regMissed[j] += miss
 						regLog[j] += logOK
@@ -215,7 +223,7 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 		stray += p
 		strayX += xi
 	}
-	for j, ri := range regs {
+	for j, ri := range regs[:nr] {
 		if regMissed[j] != 0 || regLog[j] != 0 {
 			k := sums.slot(ri)
 			if k < 0 {
