@@ -537,7 +537,13 @@ func (ck *coverageCheck) decide(r siteRect, all []*piece, gu0, gu1, gy0, gy1 []f
 			return
 		}
 	}
-	if (r.l1-r.l0 == 1 && r.d1-r.d0 <= scanDimers) || r.size() <= scanSites {
+	small := (r.l1-r.l0 == 1 && r.d1-r.d0 <= scanDimers) || r.size() <= scanSites
+	if (small || r.d1-r.d0 <= stripDimers) && strips {
+		if si := ck.stripStroke(active); si >= 0 && ck.strip(r, active, si) {
+			return
+		}
+	}
+	if small {
 		ck.scan(r, active)
 		return
 	}
@@ -749,23 +755,36 @@ func siteWriter(who []int32, k int, x float64, single int32) int32 {
 // scanLine takes both for every painted site, so the table lookups are
 // written out here (the compiler inlines hermite, not expNeg).
 func missAndLog(x float64) (miss, logOK float64) {
-	if t := x * expSteps; t >= 0 && t < expLast {
-		i := int(t)
-		c := &expSpans[i]
-		miss = hermite(t-float64(i), c[0], c[1], c[2], c[3])
-	} else {
+	t := x * expSteps
+	if !(t >= 0 && t < expLast) {
 		miss = math.Exp(-x)
+		return miss, logNotMissed(x, miss)
 	}
+	i := int(t)
+	f := t - float64(i)
+	// The Hermite weights at f, once for both tables: the log table's
+	// steps are the exp table's, offset by logTableFrom·logSteps whole
+	// steps, and (x − logTableFrom)·logSteps = t − logOffset exactly (x ≥
+	// logTableFrom there), so its fraction is f too. Bit for bit
+	// hermite's.
+	f2 := f * f
+	f3 := f2 * f
+	h00, h10, h01, h11 := 2*f3-3*f2+1, f3-2*f2+f, -2*f3+3*f2, f3-f2
+	c := &expSpans[i]
+	miss = h00*c[0] + h10*c[1] + h01*c[2] + h11*c[3]
 	if miss < 1e-4 {
 		return miss, -miss - miss*miss/2
 	}
-	if t := (x - logTableFrom) * logSteps; t >= 0 && t < logLast {
-		i := int(t)
-		c := &logSpans[i]
-		return miss, hermite(t-float64(i), c[0], c[1], c[2], c[3])
+	if j := i - logOffset; j >= 0 && j < logLast {
+		c := &logSpans[j]
+		return miss, h00*c[0] + h10*c[1] + h01*c[2] + h11*c[3]
 	}
 	return miss, math.Log1p(-miss)
 }
+
+// logOffset is logTableFrom in steps of the exp table (logSteps ==
+// expSteps: missAndLog shares the Hermite weights).
+const logOffset = int(logTableFrom * expSteps)
 
 // expSpans and logSpans are the exp and log tables as Hermite spans
 // (d/dt exp(−t/expSteps) = −exp(·)/expSteps).

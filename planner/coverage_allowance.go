@@ -340,6 +340,10 @@ func (ck *coverageCheck) existDimers(t, r int) []lattice.DimerRange {
 // holdsDimer reports whether dimer d lies in one of the sorted, disjoint
 // ranges.
 func holdsDimer(rs []lattice.DimerRange, d int) bool {
+	if len(rs) == 1 {
+		// Most rows are one range: no search.
+		return rs[0].Lo <= d && d < rs[0].Hi
+	}
 	i, _ := slices.BinarySearchFunc(rs, d, func(r lattice.DimerRange, d int) int { return cmp.Compare(r.Hi-1, d) })
 	return i < len(rs) && rs[i].Lo <= d
 }

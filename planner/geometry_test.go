@@ -141,6 +141,15 @@ func TestMissAndLog(t *testing.T) {
 		if want := math.Log1p(-math.Exp(-x)); math.Abs(logOK-want) > 1.5e-8 {
 			t.Fatalf("missAndLog(%v) log = %v, math.Log1p gives %v", x, logOK, want)
 		}
+		// Within the log table, its own Hermite interpolation bit for bit
+		// (missAndLog shares the exp table's weights).
+		if tl := (x - logTableFrom) * logSteps; miss >= 1e-4 && tl >= 0 && tl < logLast {
+			i := int(tl)
+			c := logSpans[i]
+			if want := hermite(tl-float64(i), c[0], c[1], c[2], c[3]); logOK != want {
+				t.Fatalf("missAndLog(%v) log = %v, the table's interpolation %v", x, logOK, want)
+			}
+		}
 	}
 	for range 200000 {
 		check(0.01 + rng.Float64()*40)

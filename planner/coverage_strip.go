@@ -1,0 +1,254 @@
+package planner
+
+import (
+	"dimerpath/lattice"
+	"dimerpath/lattice/design"
+)
+
+// Strips: where only one FE stroke's lines reach a range of sites (the
+// lines and turns of a raster, its combs; a fan's lines and slanted
+// turns), every site of the range is that stroke's, and its exposure is
+// the sum of the pieces' along factors, shared by all of the range's
+// site lines, each times the piece's across factor on the line, plus the
+// slanted pieces' terms. At a raster's ends the along factors fall from 1
+// to 0 within a few σ, faster than bounds can take two neighbouring sites
+// at once, so halving ends in ranges of a few sites each; instead decide
+// takes a strip across the ends (up to stripDimers dimers, any number of
+// lines) site by site in one loop: no more halvings, the along factors
+// looked up once, the row's look-ups once a line, the sums kept for the
+// strip. Every site's exposure is the one scan computes (the same pieces
+// in the same order), so a site's counts and a stray site's test against
+// the limit are the same; only the order in which the sites' terms are
+// added differs.
+
+// stripDimers is the widest range taken as a strip: decide narrows a
+// raster's end to strips this wide (halving along the dimers, where the
+// along factors change), then takes each whole. On the demo
+// (instructions per check under cachegrind) 32 did better than 16, 64 or
+// 128: wider strips sum more sites that bounds would have taken at once.
+const stripDimers = 32
+
+// stripStroke returns the stroke of active's pieces when they are all
+// lines (parallel, square or slanted pieces, combs among them) of one FE
+// stroke, else -1. AP strokes are left to scan: their expected missed
+// sites set the session's repair times, which stay bit for bit as scan
+// sums them; dwells too (their own site's exposure is scanLine's).
+func (ck *coverageCheck) stripStroke(active []*piece) int32 {
+	if len(active) == 0 {
+		return -1
+	}
+	s := active[0].stroke
+	for _, p := range active {
+		if p.stroke != s || p.kind == pieceDot {
+			return -1
+		}
+	}
+	if ck.strokes[s].Mode != design.ModeFE {
+		return -1
+	}
+	return s
+}
+
+// strip sums every site of r, whose active pieces are all stroke si's
+// lines (see stripStroke), a site line at a time,
+// into sums of its own that it adds to the check's at the end. It
+// returns false, having added nothing, when a site outside the regions
+// clears above the stray limit (or the strip meets more regions than its
+// sums hold): then decide halves r as before, so such sites are listed in
+// the order they always were (the first MaxStraySites, the first
+// examples).
+func (ck *coverageCheck) strip(r siteRect, active []*piece, si int32) bool {
+	n, np := r.d1-r.d0, len(active)
+	atop := len(ck.arena)
+	ck.grow(np*n + np + 2*n)
+	defer func() { ck.arena = ck.arena[:atop] }()
+	buf := ck.arena[atop:]
+	fu, amps, x, best := buf[:np*n], buf[np*n:np*n+np], buf[np*n+np:np*n+np+n], buf[np*n+np+n:np*n+np+2*n]
+	if cap(ck.who) < n {
+		ck.who = make([]int32, n)
+	}
+	who := ck.who[:n] // slantedRange's, unused: every term is si's
+	if cap(ck.looked) < np {
+		ck.looked = make([]bool, np)
+	}
+	looked := ck.looked[:np]
+	clear(looked)
+	var sums stripSums
+	for l := r.l0; l < r.l1; l++ {
+		// The pieces' amplitudes on this line, as scanLine takes them.
+		for i, p := range active {
+			a := 0.0
+			if p.kind == pieceSlanted {
+				amps[i] = 0
+				continue
+			}
+			if p.comb != nil {
+				sum, _ := p.comb.at(l)
+				a = p.amp * sum
+			} else {
+				a = p.amp * p.yFactorLine(l)
+			}
+			if !(a > exposureNeglect) {
+				a = 0
+			} else if !looked[i] {
+				p.alongFactors(r.d0, r.d1, fu[i*n:(i+1)*n], ck.tail)
+				looked[i] = true
+			}
+			amps[i] = a
+		}
+		clear(x)
+		y := lineY(l)
+		for i, a := range amps {
+			if p := active[i]; p.kind == pieceSlanted {
+				// As scanLine: the dimers within the piece's reach.
+				k0, k1 := p.slantedDimers(r.d0, r.d1, y)
+				p.slantedRange(r.d0, k0, k1, y, x, best, who)
+				continue
+			}
+			if a == 0 {
+				continue
+			}
+			f := fu[i*n : (i+1)*n]
+			x := x[:len(f)]
+			for k, v := range f {
+				x[k] += a * v
+			}
+		}
+		if !ck.countLine(r.t, l, r.d0, x, si, active, &sums) {
+			return false
+		}
+	}
+	for k := range sums.n {
+		a := ck.accAt(int(sums.ri[k]))
+		a.missed += sums.missed[k]
+		a.stray += sums.stray[k]
+		a.logP += sums.logP[k]
+	}
+	if sums.strokeMissed != 0 {
+		ck.addMissed(si, sums.strokeMissed)
+	}
+	if sums.strokeStray != 0 {
+		ck.addStray(si, sums.strokeStray)
+	}
+	return true
+}
+
+// stripSums are a strip's sums: per region (len(regions): other) and for
+// its stroke.
+type stripSums struct {
+	n                         int
+	ri                        [8]int32
+	missed, stray, logP       [8]float64
+	strokeMissed, strokeStray float64
+}
+
+// slot returns the index of region ri's sums, or -1 when they are full.
+func (s *stripSums) slot(ri int32) int {
+	for k := range s.n {
+		if s.ri[k] == ri {
+			return k
+		}
+	}
+	if s.n == len(s.ri) {
+		return -1
+	}
+	s.ri[s.n] = ri
+	s.n++
+	return s.n - 1
+}
+
+// countLine counts the sites of dimers [d0, d0+len(x)) of site line l of
+// terrace t at exposures x, all of them stroke si's, into sums (see
+// scanLine, whose counts it repeats). It returns false when a site
+// clears above the stray limit untolerated or the sums are full (see
+// strip).
+func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active []*piece, sums *stripSums) bool {
+	row, side := l/2, l%2
+	pw := ck.painted.Row(t, row)
+	exist := ck.existDimers(t, row)
+	// The regions with sites on this line within the strip: most often
+	// one (two pads may share rows, never a strip's dimers).
+	var regs [8]int32
+	var regBits [8]lattice.RowBits
+	var regMissed, regLog [8]float64
+	nr := 0
+	for _, ri := range ck.regionsOnRow(t, row) {
+		w := ck.regions[ri].Sites.Row(t, row)
+		if !w.Any(2*d0, 2*(d0+len(x)), lattice.SideOf(side)) {
+			continue
+		}
+		if nr == len(regs) {
+			return false
+		}
+		regs[nr], regBits[nr] = ri, w
+		nr++
+	}
+	allowed := ck.allowedFor(si, t, l)
+	limit := ck.prof.StrayLimit
+	var missed, stray, strayX float64
+	for k, xi := range x {
+		d := d0 + k
+		i := 2*d + side
+		if i>>6 < len(pw) && pw[i>>6]>>(uint(i)&63)&1 != 0 {
+			if xi >= exposureSure {
+				continue
+			}
+			miss, logOK := missAndLog(xi)
+			if nr == 1 {
+				regMissed[0] += miss
+				regLog[0] += logOK
+			} else {
+				for j := range nr {
+					if regBits[j].Contains(i) {
+						regMissed[j] += miss
+						regLog[j] += logOK
+					}
+				}
+			}
+			if xi > 0 {
+				missed += miss
+			}
+			continue
+		}
+		if xi <= exposureNone || !holdsDimer(exist, d) || inSpans(allowed, lattice.DimerAlong(d)) {
+			continue
+		}
+		p := clearFast(xi)
+		if p > limit {
+			if ck.siteTolerated(lattice.Site{Terrace: t, Row: row, Dimer: d, Side: side}, si, active) {
+				continue
+			}
+			return false // an error: see strip
+		}
+		stray += p
+		strayX += xi
+	}
+	for j, ri := range regs[:nr] {
+		if regMissed[j] != 0 || regLog[j] != 0 {
+			k := sums.slot(ri)
+			if k < 0 {
+				return false
+			}
+			sums.missed[k] += regMissed[j]
+			sums.logP[k] += regLog[j]
+		}
+	}
+	sums.strokeMissed += missed
+	if stray != 0 || strayX != 0 {
+		ri := int32(len(ck.regions))
+		if ck.region[si] >= 0 {
+			ri = int32(ck.region[si])
+		}
+		k := sums.slot(ri)
+		if k < 0 {
+			return false
+		}
+		sums.stray[k] += stray
+		sums.logP[k] -= strayX
+		sums.strokeStray += stray
+	}
+	return true
+}
+
+// strips switches the strips; tests compare against scan with it off.
+var strips = true
