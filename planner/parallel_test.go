@@ -11,42 +11,6 @@ import (
 	"dimerpath/lattice/design/designtest"
 )
 
-// TestInParallel checks that every item is done exactly once on the
-// parallel path and the one-core one, and that a worker's panic reaches
-// the caller.
-func TestInParallel(t *testing.T) {
-	defer func(m int) { parallelMin = m }(parallelMin)
-	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(4))
-	for _, least := range []int{1, 1 << 30} {
-		parallelMin = least
-		for _, n := range []int{0, 1, parallelBlock - 1, parallelBlock, 5*parallelBlock + 7} {
-			done := make([]int32, n)
-			inParallel(n, func(lo, hi int) {
-				for i := lo; i < hi; i++ {
-					done[i]++
-				}
-			})
-			for i, d := range done {
-				if d != 1 {
-					t.Fatalf("parallelMin %d, n %d: item %d done %d times", least, n, i, d)
-				}
-			}
-		}
-	}
-	parallelMin = 1
-	defer func() {
-		if r := recover(); r != "boom" {
-			t.Errorf("recovered %v, want the worker's panic", r)
-		}
-	}()
-	inParallel(4*parallelBlock, func(lo, hi int) {
-		if lo == 2*parallelBlock {
-			panic("boom")
-		}
-	})
-	t.Error("no panic")
-}
-
 // TestSegmenterSameOnAnyCores checks that a segmenter of a step large
 // enough to make its moves on every core (parallelMin lowered) is the
 // one-core segmenter bit for bit, made afresh and from a predecessor

@@ -60,46 +60,6 @@ func TestNeighbourListsSameOnAnyCores(t *testing.T) {
 	}
 }
 
-// TestInBlocks checks that every item is done exactly once on the
-// parallel path and the serial one, and that a worker's panic reaches
-// the caller.
-func TestInBlocks(t *testing.T) {
-	defer func(m int) { parallelMin = m }(parallelMin)
-	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(4))
-	for _, min := range []int{1, 1 << 30} {
-		parallelMin = min
-		for _, n := range []int{0, 1, parallelBlock - 1, parallelBlock, 5*parallelBlock + 7} {
-			done := make([]int32, n)
-			inBlocks(n, func() func(lo, hi int) {
-				return func(lo, hi int) {
-					for i := lo; i < hi; i++ {
-						done[i]++
-					}
-				}
-			})
-			for i, d := range done {
-				if d != 1 {
-					t.Fatalf("parallelMin %d, n %d: item %d done %d times", min, n, i, d)
-				}
-			}
-		}
-	}
-	parallelMin = 1
-	defer func() {
-		if r := recover(); r != "boom" {
-			t.Errorf("recovered %v, want the worker's panic", r)
-		}
-	}()
-	inBlocks(4*parallelBlock, func() func(lo, hi int) {
-		return func(lo, hi int) {
-			if lo == 2*parallelBlock {
-				panic("boom")
-			}
-		}
-	})
-	t.Error("no panic")
-}
-
 // TestKDTreeSameOnAnyCores checks that a tree built with its subtrees on
 // several cores is the tree of the one-core build, node for node, and
 // that both are the tree of a plain depth-first build that appends each
