@@ -53,15 +53,8 @@ var lkBreadthStrokes = [koptDepthMax]int{0, 5, 5, 2, 1}
 
 // lkSteps bounds the basic moves of one chain. Measured (TSPLIB
 // instances of 2,000-15,000 points, 2 s): 3 and 5 steps are clearly
-// worse, 8, 12 and 16 alike; 50 no better. lkStepsStrokes is the bound
-// where the search runs alone on strokes: 10,000 random strokes
-// (instances 1-8, 2 s, run at the same time as 8 steps) came out
-// 0.056, 0.043 and 0.015% shorter with 12 (seeds 3, 5, 6), 16 steps
-// 0.015% shorter and 0.026% longer (seeds 5, 6).
-var (
-	lkSteps        = 8
-	lkStepsStrokes = 12
-)
+// worse, 8, 12 and 16 alike; 50 no better.
+var lkSteps = 8
 
 func hasEdge(es [][2]int32, a, b int32) bool {
 	if len(es) == 0 {
@@ -106,7 +99,7 @@ func (s *solver) lkSearch(t1 int32) bool {
 			lk.stamp = 1
 		}
 		improved := false
-		for step := 0; step < s.lkSteps; step++ {
+		for step := 0; step < lkSteps; step++ {
 			k.t[1], k.t[2] = t1, t2
 			lk.bestM, lk.bestG = 0, s.eps
 			k.in[t1], k.in[t2] = true, true

@@ -28,7 +28,6 @@ type solver struct {
 	useLK     bool              // chained k-opt (lk.go) instead of single 4-/5-opt moves
 	lkOnly    bool              // the chained search alone, without 2-opt, Or-opt and 3-opt first
 	lkBreadth [koptDepthMax]int // the chained search's breadth by level
-	lkSteps   int               // the chained search's basic moves per chain
 	units     []int32
 	dpCost    []float64
 	dpFrom    []int8
@@ -51,7 +50,7 @@ func newSolver(g *graph, nb *neighbours, tour []int32) *solver {
 	s := &solver{
 		g: g, nb: nb, n: n, t: tour, pos: make([]int32, n),
 		queue: make([]int32, n), inq: make([]bool, n),
-		maxRev: n, orMax: 3, or3: true, lkBreadth: koptBreadth, lkSteps: lkSteps,
+		maxRev: n, orMax: 3, or3: true, lkBreadth: koptBreadth,
 	}
 	for i, v := range tour {
 		s.pos[v] = int32(i)
