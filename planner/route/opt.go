@@ -96,9 +96,9 @@ func (s *solver) best2Opt(v int32, best *move) {
 				continue
 			}
 			// The reversed path: v2..c forward for dir 0, v..c2 for dir 1.
-			i, j := s.position(v2), s.position(c)
+			i, j := s.pos[v2], s.pos[c]
 			if dir == 1 {
-				i, j = s.position(v), s.position(c2)
+				i, j = s.pos[v], s.pos[c2]
 			}
 			if !s.reversalOK(i, s.pathLen(i, j)) {
 				continue
@@ -135,7 +135,7 @@ func (s *solver) bestOrOpt(v int32, best *move) {
 			}
 			segOneWay := false
 			if g.oneWay >= 2 {
-				segOneWay = s.oneWayIn(s.position(first), int32(l)) > 0
+				segOneWay = s.oneWayIn(s.pos[first], int32(l)) > 0
 			}
 			for k, c := range ids {
 				if c < 0 {
@@ -173,7 +173,7 @@ func (s *solver) bestOrOpt(v int32, best *move) {
 					// The flips reverse about the shorter way round from
 					// the segment to (a, b).
 					if s.maxRev < n {
-						y := s.pathLen(s.position(nx), s.position(a))
+						y := s.pathLen(s.pos[nx], s.pos[a])
 						if min(y, n-y-int32(l)) > s.maxRev {
 							continue
 						}

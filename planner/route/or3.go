@@ -31,12 +31,12 @@ func (s *solver) between(a, b, c int32, dir int) bool {
 	if dir == 1 {
 		a, c = c, a
 	}
-	pa := s.position(a)
-	db := s.position(b) - pa
+	pa := s.pos[a]
+	db := s.pos[b] - pa
 	if db < 0 {
 		db += s.n
 	}
-	dc := s.position(c) - pa
+	dc := s.pos[c] - pa
 	if dc < 0 {
 		dc += s.n
 	}
@@ -53,7 +53,7 @@ func (s *solver) spanOK(a, b int32, dir int) bool {
 	if dir == 1 {
 		a, b = b, a
 	}
-	return s.pathLen(s.position(a), s.position(b)) <= s.maxRev
+	return s.pathLen(s.pos[a], s.pos[b]) <= s.maxRev
 }
 
 // bestOr3 finds the best improving sequential 3-opt move from t1.

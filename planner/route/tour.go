@@ -1,8 +1,7 @@
 package route
 
 // solver holds a tour over a graph's nodes as an array with a position
-// index (or in a two-level list, tour2.go, which gives every node the
-// same position), the neighbour lists, the queue of nodes to look at (the
+// index, the neighbour lists, the queue of nodes to look at (the
 // "don't-look bits" of Bentley 1992: a node leaves the queue when no move
 // from it improves, and returns when a move touches it) and a journal of
 // reversals that lets a rejected perturbation be undone.
@@ -41,8 +40,6 @@ type solver struct {
 	bestT   []int32 // the best tour, when offBest
 	offBest bool    // the tour is longer than the best one, kept in bestT
 	redo    []int32
-	// two, when set, holds the tour instead of t and pos (tour2.go).
-	two *twoLevel
 }
 
 func newSolver(g *graph, nb *neighbours, tour []int32) *solver {
@@ -75,9 +72,6 @@ func (s *solver) tourLength() float64 {
 }
 
 func (s *solver) succ(v int32) int32 {
-	if s.two != nil {
-		return s.two.succ(v)
-	}
 	p := s.pos[v] + 1
 	if p == s.n {
 		p = 0
@@ -86,46 +80,11 @@ func (s *solver) succ(v int32) int32 {
 }
 
 func (s *solver) pred(v int32) int32 {
-	if s.two != nil {
-		return s.two.pred(v)
-	}
 	p := s.pos[v] - 1
 	if p < 0 {
 		p = s.n - 1
 	}
 	return s.t[p]
-}
-
-// position is v's position in the tour.
-func (s *solver) position(v int32) int32 {
-	if s.two != nil {
-		return s.two.position(v)
-	}
-	return s.pos[v]
-}
-
-// nodeAt is the node at position p.
-func (s *solver) nodeAt(p int32) int32 {
-	if s.two != nil {
-		return s.two.nodeAt(p)
-	}
-	return s.t[p]
-}
-
-// appendTour appends the nodes in position order.
-func (s *solver) appendTour(dst []int32) []int32 {
-	if s.two != nil {
-		return s.two.appendTour(dst)
-	}
-	return append(dst, s.t...)
-}
-
-// useTwoLevel moves the tour into a two-level list (tour2.go).
-func (s *solver) useTwoLevel() {
-	s.two = newTwoLevel(s.t)
-	if onTwoLevel != nil {
-		onTwoLevel()
-	}
 }
 
 // next is succ for dir 0 and pred for dir 1.
@@ -168,14 +127,6 @@ func (s *solver) reverseRange(i, l int32) {
 	if s.recording {
 		s.journal = append(s.journal, i, l)
 	}
-	if s.two != nil {
-		j := i + l - 1
-		if j >= s.n {
-			j -= s.n
-		}
-		s.two.reverse(s.two.nodeAt(i), s.two.nodeAt(j), l)
-		return
-	}
 
 	n := s.n
 	j := i + l - 1
@@ -210,40 +161,11 @@ func (s *solver) reverseRange(i, l int32) {
 // adds (u1, v1) and (u2, v2). Both removed edges must run the same way
 // round the tour: u2 = succ(u1) and v2 = succ(v1), or both pred.
 func (s *solver) flip(u1, u2, v1, v2 int32) {
-	if s.two != nil {
-		if s.succ(u1) == u2 {
-			s.reverseListPath(u2, v1)
-		} else {
-			s.reverseListPath(u1, v2)
-		}
-		return
-	}
 	if s.succ(u1) == u2 {
 		s.reversePath(s.pos[u2], s.pos[v1])
 	} else {
 		s.reversePath(s.pos[u1], s.pos[v2])
 	}
-}
-
-// reverseListPath is reversePath for the two-level list, from the path's
-// end nodes: the same reversal, journalled the same way.
-func (s *solver) reverseListPath(a, b int32) {
-	i, j := s.two.position(a), s.two.position(b)
-	l := s.pathLen(i, j)
-	if 2*l > s.n {
-		i, l = j+1, s.n-l
-		if i == s.n {
-			i = 0
-		}
-		a, b = s.two.succ(b), s.two.pred(a)
-	}
-	if l < 2 {
-		return
-	}
-	if s.recording {
-		s.journal = append(s.journal, i, l)
-	}
-	s.two.reverse(a, b, l)
 }
 
 // moveSegment moves the segment first..last (first to last forward) to
@@ -299,12 +221,14 @@ func (s *solver) pop() int32 {
 // positions from i.
 func (s *solver) oneWayIn(i, l int32) int {
 	c := 0
-	v := s.nodeAt(i)
 	for range l {
-		if s.g.tail[v] {
+		if s.g.tail[s.t[i]] {
 			c++
 		}
-		v = s.succ(v)
+		i++
+		if i == s.n {
+			i = 0
+		}
 	}
 	return c
 }
