@@ -52,6 +52,8 @@
 //     at levels 1-4; 5, 5, 2, 1 with strokes), else the valid
 //     5-opt move of greatest partial gain, continued from its last node,
 //     up to eight basic moves deep; a chain that never gains is undone.
+//     Where stroke ends are at least half the nodes, the Lin-Kernighan
+//     search runs alone, without the shallower moves first.
 //   - Improvement until the budget is spent: segment-local double-bridge
 //     kicks (Martin, Otto & Felten 1991): four edges cut close together,
 //     X B C D reconnected as X D C B (or, for half the kicks, X C B D)

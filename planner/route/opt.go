@@ -29,6 +29,9 @@ type move struct {
 // improve looks for the best improving move with v as an end of a
 // removed edge and applies it. It reports whether it did.
 func (s *solver) improve(v int32) bool {
+	if s.lkOnly {
+		return s.lkSearch(v)
+	}
 	best := move{delta: -s.eps}
 	s.best2Opt(v, &best)
 	s.bestOrOpt(v, &best)

@@ -124,6 +124,13 @@ func (c *control) fullSetupLimit() int {
 	return int(b.Seconds() * float64(fullSetupNodesPerSecond))
 }
 
+// lkOnlyStrokes lets problems made mostly of strokes, of at least
+// lkOnlyMin nodes, skip the shallower moves (see heuristic).
+var (
+	lkOnlyStrokes       = true
+	lkOnlyMin     int32 = 12
+)
+
 // kickSegMax bounds the three segments a kick moves, in nodes. Measured
 // on the yardstick and with fixed kick counts: 10 and 30 are clearly
 // worse, 100-1000 alike within the noise, 300 a little ahead.
@@ -227,6 +234,14 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 		s.deep = true
 		s.lkBreadth = lkBreadthStrokes
 		s.orientUnits()
+		// Where stroke ends are at least half the nodes, the chained
+		// search alone: measured with 2 s of CPU on 10,000 random strokes
+		// (instances 1-4, seeds 1-6, run side by side with the old
+		// order), idle travel 0.40% above the best of two 30 s runs
+		// against 0.47% when 2-opt, Or-opt and 3-opt moves go first (as
+		// they must on points: there the chained search alone was much
+		// worse, 0.63% mean gap on TSPLIB against 0.36%).
+		s.lkOnly = lk && lkOnlyStrokes && s.n >= lkOnlyMin && 4*(g.real-len(items)) >= g.real
 	}
 	c.report("construct", s.length-fixedLen, 0)
 	for _, v := range s.t {

@@ -25,6 +25,7 @@ type solver struct {
 	lk        lkState
 	lkTouched []int32
 	useLK     bool              // chained k-opt (lk.go) instead of single 4-/5-opt moves
+	lkOnly    bool              // the chained search alone, without 2-opt, Or-opt and 3-opt first
 	lkBreadth [koptDepthMax]int // the chained search's breadth by level
 	units     []int32
 	dpCost    []float64
