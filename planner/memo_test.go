@@ -173,19 +173,30 @@ func TestSegmenterFromPrevSame(t *testing.T) {
 		}
 		prev.keepForSuccessor()
 		got, want := newSegmenterFrom(next, c, model, 1, prev), newSegmenter(next, c, model, 1)
-		for name, pair := range map[string][2][]float64{
-			"T": {got.T, want.T}, "ts": {got.ts, want.ts}, "m": {got.m, want.m}, "sw": {got.sw, want.sw},
-			"moveCreep": {got.moveCreep, want.moveCreep}, "moveExcess": {got.moveExcess, want.moveExcess},
-			"a": {got.a, want.a}, "aCreep": {got.aCreep, want.aCreep}, "aExcess": {got.aExcess, want.aExcess},
-			"detour": {got.detour, want.detour}, "Blocal": {got.B[kLocal], want.B[kLocal]}, "Bcoarse": {got.B[kCoarse], want.B[kCoarse]},
-		} {
-			if !sameBits(pair[0], pair[1]) {
-				t.Fatalf("trial %d: %s = %v, afresh %v", trial, name, pair[0], pair[1])
-			}
+		if differ := segmenterTermsDiffer(got, want); len(differ) > 0 {
+			t.Fatalf("trial %d: %v differ from a segmenter made afresh", trial, differ)
 		}
 		if !slices.Equal(got.fid, want.fid) || !got.creepF.same(&want.creepF) || !got.driftRaw.moves.same(&want.driftRaw.moves) ||
 			!got.driftC.moves.same(&want.driftC.moves) {
 			t.Fatalf("trial %d: fiducials or fields differ", trial)
 		}
 	}
+}
+
+// segmenterTermsDiffer names the per-job terms of got that are not
+// want's bit for bit (sorted), none when all are.
+func segmenterTermsDiffer(got, want *segmenter) []string {
+	var differ []string
+	for name, pair := range map[string][2][]float64{
+		"T": {got.T, want.T}, "ts": {got.ts, want.ts}, "m": {got.m, want.m}, "sw": {got.sw, want.sw},
+		"moveCreep": {got.moveCreep, want.moveCreep}, "moveExcess": {got.moveExcess, want.moveExcess},
+		"a": {got.a, want.a}, "aCreep": {got.aCreep, want.aCreep}, "aExcess": {got.aExcess, want.aExcess},
+		"detour": {got.detour, want.detour}, "Blocal": {got.B[kLocal], want.B[kLocal]}, "Bcoarse": {got.B[kCoarse], want.B[kCoarse]},
+	} {
+		if !sameBits(pair[0], pair[1]) {
+			differ = append(differ, name)
+		}
+	}
+	slices.Sort(differ)
+	return differ
 }

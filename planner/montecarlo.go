@@ -153,6 +153,25 @@ type pairLoad struct {
 	tol, creep, drift, sigma float64
 }
 
+// within returns the probability that the segment's strokes all stay
+// within tolerance in draw i: its registration error fits the least
+// room any of them leaves (tol − creep − drift at the draw's creep and
+// drift rate).
+func (sl segLoad) within(d mcDraws, i int) float64 {
+	r, c := d.rate[i], d.creep[i]
+	room := math.Inf(1)
+	for _, l := range sl.loads {
+		room = min(room, l.tol-c*l.creep-r*l.drift)
+	}
+	return withinProb(room, sl.sigma)
+}
+
+// within returns the probability that the coupled pair stays within
+// its tolerance in draw i.
+func (pl pairLoad) within(d mcDraws, i int) float64 {
+	return withinProb(pl.tol-d.creep[i]*pl.creep-d.rate[i]*pl.drift, pl.sigma)
+}
+
 // withinProb returns P(|e| ≤ room) for e ~ N(0, σ²): erf(room/(σ√2)),
 // the indicator of room ≥ 0 when σ = 0.
 func withinProb(room, sigma float64) float64 {
@@ -234,16 +253,11 @@ func pInTolerance(ctx context.Context, segs []segLoad, pairs []pairLoad, d mcDra
 				return res, err
 			}
 		}
-		loads, sigma := segs[s].loads, segs[s].sigma
+		sl := segs[s]
 		keep := s >= len(leave) || !leave[s]
 		sum := 0.0
 		for i := range n {
-			r, c := d.rate[i], d.creep[i]
-			room := math.Inf(1)
-			for _, l := range loads {
-				room = min(room, l.tol-c*l.creep-r*l.drift)
-			}
-			p := withinProb(room, sigma)
+			p := sl.within(d, i)
 			sum += p
 			all[i] *= p
 			if keep {
@@ -258,7 +272,7 @@ func pInTolerance(ctx context.Context, segs []segLoad, pairs []pairLoad, d mcDra
 		}
 		sum := 0.0
 		for i := range n {
-			p := withinProb(pl.tol-d.creep[i]*pl.creep-d.rate[i]*pl.drift, pl.sigma)
+			p := pl.within(d, i)
 			sum += p
 			all[i] *= p
 			some[i] *= p
@@ -334,17 +348,12 @@ func pInToleranceOnCores(ctx context.Context, segs []segLoad, pairs []pairLoad, 
 		err := onWorkers(ctx, m, min(workers, m), func() func(int) {
 			return func(j int) {
 				s := s0 + j
-				loads, sigma := segs[s].loads, segs[s].sigma
+				sl := segs[s]
 				keep[j] = s >= len(leave) || !leave[s]
 				row := p[j*n : (j+1)*n]
 				sum := 0.0
 				for i := range n {
-					r, c := d.rate[i], d.creep[i]
-					room := math.Inf(1)
-					for _, l := range loads {
-						room = min(room, l.tol-c*l.creep-r*l.drift)
-					}
-					row[i] = withinProb(room, sigma)
+					row[i] = sl.within(d, i)
 					sum += row[i]
 				}
 				res.segs[s] = sum
@@ -366,7 +375,7 @@ func pInToleranceOnCores(ctx context.Context, segs []segLoad, pairs []pairLoad, 
 				row := p[j*n : (j+1)*n]
 				sum := 0.0
 				for i := range n {
-					row[i] = withinProb(pl.tol-d.creep[i]*pl.creep-d.rate[i]*pl.drift, pl.sigma)
+					row[i] = pl.within(d, i)
 					sum += row[i]
 				}
 				res.pairs[k0+j] = sum

@@ -92,16 +92,21 @@ func (nb *neighbours) query(t *kdTree, g *graph, v int32, k int, quad bool, b, q
 		if len(qb.id) == 0 || qb.d2[0] <= far {
 			continue
 		}
-		// Farther than the k nearest; keep the extras in order.
-		d := math.Sqrt(qb.d2[0])
-		j := o + m
-		for j > o+k && nb.dst[j-1] > d {
-			nb.id[j], nb.dst[j] = nb.id[j-1], nb.dst[j-1]
-			j--
-		}
-		nb.id[j], nb.dst[j] = qb.id[0], d
+		nb.insertExtra(o, k, m, qb.id[0], math.Sqrt(qb.d2[0]))
 		m++
 	}
+}
+
+// insertExtra puts node u at distance d into the list starting at o,
+// which holds the k nearest and then m-k extras (quadrant neighbours
+// farther than all k) sorted by distance: the extras stay in order.
+func (nb *neighbours) insertExtra(o, k, m int, u int32, d float64) {
+	j := o + m
+	for j > o+k && nb.dst[j-1] > d {
+		nb.id[j], nb.dst[j] = nb.id[j-1], nb.dst[j-1]
+		j--
+	}
+	nb.id[j], nb.dst[j] = u, d
 }
 
 // buildNeighboursPool returns what buildNeighbours(g, k, quad) and
@@ -159,14 +164,8 @@ func buildNeighboursPool(g *graph, k, pk, q int, quad bool) (*neighbours, *neigh
 			qb.quad = qd
 			t.nearest(qb)
 			if withQuad && len(qb.id) > 0 && qb.d2[0] > far {
-				// As buildNeighbours: farther than the k nearest, kept in order.
-				d := math.Sqrt(qb.d2[0])
-				j := o + m
-				for j > o+k && nb.dst[j-1] > d {
-					nb.id[j], nb.dst[j] = nb.id[j-1], nb.dst[j-1]
-					j--
-				}
-				nb.id[j], nb.dst[j] = qb.id[0], d
+				// As buildNeighbours: farther than the k nearest.
+				nb.insertExtra(o, k, m, qb.id[0], math.Sqrt(qb.d2[0]))
 				m++
 			}
 			// As buildPool.
