@@ -95,7 +95,8 @@ var (
 	// lengths, 0.09 s less set-up) 0.07% longer than 10. The full pool
 	// (10 nearest + 2 per quadrant) with 25 steps did no better (0.08%
 	// shorter than 10 steps), nor a pool of 6 nearest (route14c,
-	// instances 5-12, 2-3 seeds each; notes/route14c.md).
+	// instances 5-12, 2-3 seeds each; on instances 1-4, 6 seeds, 25
+	// steps were about the same as 10; notes/route14c.md).
 	lightStrokeAscentIters = ascentIters
 	// fullSetupNodesPerSecond bounds the problems that get the full
 	// set-up, per second of budget.
