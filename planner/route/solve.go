@@ -86,6 +86,18 @@ var (
 	lightPoolNearest  = 8
 	lightPoolQuadrant = 1
 	lightAscentIters  = 10
+	// Where stroke ends are at least half the nodes (the search then runs
+	// alone, see lkOnlyStrokes), the light set-up keeps the full ascent:
+	// the candidates' quality pays more there than the set-up's time. On
+	// 10,000 random strokes (2 s of CPU, 20,000 nodes, set-up ~0.23 s)
+	// 10 steps gave idle travel 0.12% longer than 25, 15 steps 0.06%
+	// longer, 50 steps the same as 25, and no ascent at all (α on plain
+	// lengths, 0.09 s less set-up) 0.07% longer than 10. The full pool
+	// (10 nearest + 2 per quadrant) with 25 steps did no better (0.08%
+	// shorter than 10 steps), nor a pool of 6 nearest (route14c,
+	// instances 5-12, 2-3 seeds each; on instances 1-4, 6 seeds, 25
+	// steps were about the same as 10; notes/route14c.md).
+	lightStrokeAscentIters = ascentIters
 	// fullSetupNodesPerSecond bounds the problems that get the full
 	// set-up, per second of budget.
 	fullSetupNodesPerSecond = 4_000
@@ -179,6 +191,9 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 	nearest, quad, iters := poolNearest, poolQuadrant, ascentIters
 	if g.n() > c.fullSetupLimit() {
 		nearest, quad, iters = lightPoolNearest, lightPoolQuadrant, lightAscentIters
+		if strokeEnds := g.real - len(items); 4*strokeEnds >= g.real {
+			iters = lightStrokeAscentIters
+		}
 	}
 	var nb, pool *neighbours
 	if lk && nearest <= k {
