@@ -343,52 +343,49 @@ func pInToleranceOnCores(ctx context.Context, segs []segLoad, pairs []pairLoad, 
 			}
 		})
 	}
-	for s0 := 0; s0 < len(segs); s0 += rows {
-		m := min(rows, len(segs)-s0)
-		err := onWorkers(ctx, m, min(workers, m), func() func(int) {
-			return func(j int) {
-				s := s0 + j
-				sl := segs[s]
-				keep[j] = s >= len(leave) || !leave[s]
-				row := p[j*n : (j+1)*n]
-				sum := 0.0
-				for i := range n {
-					row[i] = sl.within(d, i)
-					sum += row[i]
+	// rowsOnCores fills res's sums of count rows (segments or pairs), a
+	// block of rows at a time: row(idx, out) writes row idx's
+	// probabilities over the samples and says whether it counts in some.
+	rowsOnCores := func(count int, sums []float64, row func(idx int, out []float64) bool) error {
+		for r0 := 0; r0 < count; r0 += rows {
+			m := min(rows, count-r0)
+			err := onWorkers(ctx, m, min(workers, m), func() func(int) {
+				return func(j int) {
+					out := p[j*n : (j+1)*n]
+					keep[j] = row(r0+j, out)
+					sum := 0.0
+					for _, v := range out {
+						sum += v
+					}
+					sums[r0+j] = sum
 				}
-				res.segs[s] = sum
+			})
+			if err == nil {
+				err = multiply(m)
 			}
-		})
-		if err == nil {
-			err = multiply(m)
-		}
-		if err != nil {
-			return err
-		}
-	}
-	for k0 := 0; k0 < len(pairs); k0 += rows {
-		m := min(rows, len(pairs)-k0)
-		err := onWorkers(ctx, m, min(workers, m), func() func(int) {
-			return func(j int) {
-				pl := pairs[k0+j]
-				keep[j] = true
-				row := p[j*n : (j+1)*n]
-				sum := 0.0
-				for i := range n {
-					row[i] = pl.within(d, i)
-					sum += row[i]
-				}
-				res.pairs[k0+j] = sum
+			if err != nil {
+				return err
 			}
-		})
-		if err == nil {
-			err = multiply(m)
 		}
-		if err != nil {
-			return err
-		}
+		return nil
 	}
-	return nil
+	err := rowsOnCores(len(segs), res.segs, func(s int, out []float64) bool {
+		sl := segs[s]
+		for i := range out {
+			out[i] = sl.within(d, i)
+		}
+		return s >= len(leave) || !leave[s]
+	})
+	if err != nil {
+		return err
+	}
+	return rowsOnCores(len(pairs), res.pairs, func(k int, out []float64) bool {
+		pl := pairs[k]
+		for i := range out {
+			out[i] = pl.within(d, i)
+		}
+		return true
+	})
 }
 
 // tolSampleBlock is the number of samples a worker multiplies at a time.

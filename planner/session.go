@@ -180,10 +180,8 @@ func (b *builder) loads(steps []*stepWork, cps []couplingWork) ([]segLoad, []pai
 		inParallel(len(st.starts), func(lo, hi int) {
 			var scratch []strokeLoad
 			for i := lo; i < hi; i++ {
-				s, e, k := st.starts[i], sg.n, kindIndex(st.kinds[i])
-				if i+1 < len(st.starts) {
-					e = st.starts[i+1]
-				}
+				sp := st.span(i)
+				s, e, k := sp.s, sp.e, sp.k
 				g := segLoad{sigma: r.Local.ErrorNM}
 				if k == kCoarse {
 					g.sigma = r.CoarseErrorNM
@@ -268,16 +266,21 @@ func (st *stepWork) spans() iter.Seq[segSpan] {
 		if sg == nil || sg.n == 0 {
 			return
 		}
-		for i, s := range st.starts {
-			e := sg.n
-			if i+1 < len(st.starts) {
-				e = st.starts[i+1]
-			}
-			if !yield(segSpan{i: i, s: s, e: e, k: kindIndex(st.kinds[i])}) {
+		for i := range st.starts {
+			if !yield(st.span(i)) {
 				return
 			}
 		}
 	}
+}
+
+// span returns the step's segment i (the step writes something).
+func (st *stepWork) span(i int) segSpan {
+	e := st.sg.n
+	if i+1 < len(st.starts) {
+		e = st.starts[i+1]
+	}
+	return segSpan{i: i, s: st.starts[i], e: e, k: kindIndex(st.kinds[i])}
 }
 
 // segmentOf returns the index into st.starts of the segment holding job j.
