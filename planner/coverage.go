@@ -220,7 +220,9 @@ func newCoverageCheckOwned(surf *lattice.Surface, regions []CoverageRegion, stro
 			}
 		}
 		ck.eachPiece(st, lines, func(t int, a, b r2.Point) {
-			ck.pieces[t] = append(ck.pieces[t], makePiece(surf, t, int32(i), a, b, amp, l.SigmaNM, reach))
+			p := makePiece(surf, t, int32(i), a, b, amp, l.SigmaNM, reach)
+			p.bandTable = st.Mode == design.ModeFE
+			ck.pieces[t] = append(ck.pieces[t], p)
 		})
 		if grouped {
 			for t := range surf.Terraces {
@@ -585,15 +587,19 @@ func (ck *coverageCheck) scan(r siteRect, active []*piece) {
 	looked := ck.looked[:np]
 	clear(looked)
 	single := int32(-1)
+	noAP := true // slanted pieces may use their band tables (see piece.sBand)
 	for i, p := range active {
 		if i == 0 {
 			single = p.stroke
 		} else if p.stroke != single {
 			single = -2
 		}
+		if ck.strokes[p.stroke].Mode == design.ModeAP {
+			noAP = false
+		}
 	}
 	for l := r.l0; l < r.l1; l++ {
-		ck.scanLine(r.t, l, r.d0, r.d1, active, fu, looked, x, best, who, single)
+		ck.scanLine(r.t, l, r.d0, r.d1, active, fu, looked, x, best, who, single, noAP)
 	}
 }
 
@@ -604,8 +610,10 @@ func (ck *coverageCheck) scan(r siteRect, active []*piece) {
 // site is counted: painted ones as missed, unpainted
 // ones that exist beyond the allowance as stray. The stroke that gives a
 // dimer the largest term goes to who (with it in best), unless single is
-// the one stroke of every active piece (-1 when there is none).
-func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu []float64, looked []bool, x, best []float64, who []int32, single int32) {
+// the one stroke of every active piece (-1 when there is none). noAP
+// says no active piece is an AP stroke's: slanted pieces may then take
+// their band tables (piece.sBand).
+func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu []float64, looked []bool, x, best []float64, who []int32, single int32, noAP bool) {
 	row, side := l/2, l%2
 	y := lineY(l)
 	n := d1 - d0
@@ -623,7 +631,7 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu []float6
 			// Across and along distances are linear along the line: only
 			// the dimers within the piece's reach of it are summed.
 			k0, k1 := p.slantedDimers(d0, d1, y)
-			p.slantedRange(d0, k0, k1, y, x, best, who)
+			p.slantedRange(d0, k0, k1, y, x, best, who, noAP)
 		case p.kind == pieceDot:
 			fy := p.yFactorLine(l)
 			for k := range n {

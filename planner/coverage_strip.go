@@ -102,7 +102,7 @@ func (ck *coverageCheck) strip(r siteRect, active []*piece, si int32) bool {
 			if p := active[i]; p.kind == pieceSlanted {
 				// As scanLine: the dimers within the piece's reach.
 				k0, k1 := p.slantedDimers(r.d0, r.d1, y)
-				p.slantedRange(r.d0, k0, k1, y, x, best, who)
+				p.slantedRange(r.d0, k0, k1, y, x, best, who, true) // one FE stroke's
 				continue
 			}
 			if a == 0 {
