@@ -631,7 +631,11 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu []float6
 			// Across and along distances are linear along the line: only
 			// the dimers within the piece's reach of it are summed.
 			k0, k1 := p.slantedDimers(d0, d1, y)
-			p.slantedRange(d0, k0, k1, y, x, best, who, noAP)
+			if track {
+				p.slantedRange(d0, k0, k1, y, x, best, who, noAP)
+			} else {
+				p.slantedRange(d0, k0, k1, y, x, nil, nil, noAP)
+			}
 		case p.kind == pieceDot:
 			fy := p.yFactorLine(l)
 			for k := range n {

@@ -36,15 +36,16 @@ type piece struct {
 	// sReach is a slanted piece's reach for slantedDimers, sQ the ratio
 	// exp(−step²) of slantedRange's recurrence, computed once.
 	sReach, sQ float64
-	// sBand is a slanted piece's band along it, band(0, L, σ, s), as
-	// values and slopes (per node step) at nodes s = sBand0 + i·σ/slantSteps
-	// (see fillBand), filled on first use where bandTable is set (FE
-	// strokes' pieces): slantedRange takes it with one cubic Hermite
-	// lookup a dimer instead of two of Φ's table, where its caller allows
-	// (no AP stroke reaches the range: an AP stroke's expected missed
-	// sites set the session's repair times, so every site it may write is
-	// summed from Φ's table bit for bit, as before).
-	sBand     []float64
+	// sBand is a slanted piece's band along it, band(0, L, σ, s), as a
+	// cubic in the fraction f of each node step, c0 + f·(c1 + f·(c2 +
+	// f·c3)), between nodes s = sBand0 + i·σ/slantSteps (see fillBand),
+	// filled on first use where bandTable is set (FE strokes' pieces):
+	// slantedRange takes it with one lookup and three products a dimer
+	// instead of two Hermite lookups in Φ's table, where its caller
+	// allows (no AP stroke reaches the range: an AP stroke's expected
+	// missed sites set the session's repair times, so every site it may
+	// write is summed from Φ's table bit for bit, as before).
+	sBand     [][4]float64
 	sBand0    float64
 	bandTable bool
 	// lines caches the across factor at site lines lines0+i (0: not yet),
@@ -495,11 +496,12 @@ func (p *piece) slantedDimers(d0, d1 int, y float64) (k0, k1 int) {
 
 // slantedRange adds slanted piece p's exposure at dimers d0+k, k in [k0,
 // k1), of the site line at y to x[k], recording the largest term in best
-// and who (see alongRange). The across distance is linear in k, so its
-// Gaussian follows the recurrence g(k+1) = g(k)·r(k), r(k+1) = r(k)·q,
-// re-anchored every 16 dimers against rounding; the band along the piece
-// comes from the piece's own table (fillBand) where table is set and the
-// piece has one, else (and beyond the table) from slantBand.
+// and who (see alongRange) unless best is nil (every term is the one
+// stroke's). The across distance is linear in k, so its Gaussian follows
+// the recurrence g(k+1) = g(k)·r(k), r(k+1) = r(k)·q, re-anchored every
+// 16 dimers against rounding; the band along the piece comes from the
+// piece's own table (fillBand) where table is set and the piece has one,
+// else (and beyond the table) from slantBand.
 func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who []int32, table bool) {
 	if k0 >= k1 {
 		return
@@ -523,27 +525,29 @@ func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who [
 	if !table {
 		tab = nil
 	}
-	tLast := float64(len(tab)/2 - 1) // −1 without a table
+	tLast := float64(len(tab)) // 0 without a table
+	x = x[:k1]
 	var g, r float64
 	for k := k0; k < k1; k++ {
 		j := k - k0
-		a := across + float64(j)*step
 		if j%16 == 0 {
+			a := across + float64(j)*step
 			g = math.Exp(-a * a / 2)
 			r = math.Exp(-(2*a*step + step*step) / 2)
 		}
 		var b float64
 		if t := t0 + float64(j)*tStep; t >= 0 && t < tLast {
 			i := int(t)
-			c := tab[2*i : 2*i+4 : 2*i+4]
-			b = hermite(t-float64(i), c[0], c[1], c[2], c[3])
+			f := t - float64(i)
+			c := &tab[i]
+			b = c[0] + f*(c[1]+f*(c[2]+f*c[3]))
 		} else {
 			s := along + float64(j)*alongStep
 			b = slantBand((length-s)/sigma, -s/sigma)
 		}
 		if e := amp * g * b; e > 0 {
 			x[k] += e
-			if e > best[k] {
+			if best != nil && e > best[k] {
 				best[k], who[k] = e, stroke
 			}
 		}
@@ -561,20 +565,20 @@ func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who [
 const slantSteps = 32
 
 // fillBand tabulates slanted piece p's band along it, band(0, L, σ, s) =
-// Φ((L−s)/σ) − Φ(−s/σ), with its slope (φ(s/σ) − φ((L−s)/σ))/σ per node
-// step, at nodes σ/slantSteps apart over every along position
-// slantedRange meets: the piece's reach either side of it and two dimers
-// more (slantedDimers rounds its range outwards by at most one). The
-// nodes sit at s = σ·m/slantSteps (m whole), so −s/σ falls on a node of
-// the Φ table (phiValue and phiSlope hold Φ and φ there), and (L−s)/σ at
-// the same fraction of a table step for every node: its Hermite weights,
-// and those of their derivative, are taken once.
+// Φ((L−s)/σ) − Φ(−s/σ), as the cubic Hermite interpolant of its values
+// and slopes (φ(s/σ) − φ((L−s)/σ))/σ between nodes σ/slantSteps apart,
+// over every along position slantedRange meets: the piece's reach either
+// side of it and two dimers more (slantedDimers rounds its range
+// outwards by at most one). The nodes sit at s = σ·m/slantSteps (m
+// whole), so −s/σ falls on a node of the Φ table (phiValue and phiSlope
+// hold Φ and φ there), and (L−s)/σ at the same fraction of a table step
+// for every node: its Hermite weights, and those of their derivative,
+// are taken once.
 func (p *piece) fillBand() {
 	const stride = phiSteps / slantSteps
 	margin := p.sReach + 2*lattice.DimerPitch
 	m0 := int(math.Ceil(margin / p.sigma * slantSteps)) // node 0 at s = −m0·σ/slantSteps
 	n := int(math.Ceil((p.L+margin)/p.sigma*slantSteps)) + m0 + 2
-	tab := make([]float64, 2*n)
 	// Φ table positions: −s/σ at node i is ka0 − stride·i exactly; (L−s)/σ
 	// is tb0 − stride·i, whole part kb0 − stride·i, fraction f.
 	ka0 := 8*phiSteps + stride*m0
@@ -585,7 +589,8 @@ func (p *piece) fillBand() {
 	f3 := f2 * f
 	h00, h10, h01, h11 := 2*f3-3*f2+1, f3-2*f2+f, -2*f3+3*f2, f3-f2
 	d00, d10, d01, d11 := 6*f2-6*f, 3*f2-4*f+1, -6*f2+6*f, 3*f2-2*f
-	for i := range n {
+	// The band and its slope per node step at node i.
+	node := func(i int) (v, d float64) {
 		// Φ and φ/phiSteps at −s/σ (beyond the table: 0 or 1 to 10⁻¹⁵).
 		pa, da := 0.0, 0.0
 		if ka := ka0 - stride*i; ka > phiLast {
@@ -601,10 +606,16 @@ func (p *piece) fillBand() {
 			pb = h00*c[0] + h10*c[1] + h01*c[2] + h11*c[3]
 			db = d00*c[0] + d10*c[1] + d01*c[2] + d11*c[3]
 		}
-		// Per node step (stride Φ table steps): d/di of Φ(b) − Φ(a), with
-		// b and a falling by stride steps a node.
-		tab[2*i] = pb - pa
-		tab[2*i+1] = float64(stride) * (da - db)
+		// b and a fall by stride Φ table steps a node.
+		return pb - pa, float64(stride) * (da - db)
+	}
+	tab := make([][4]float64, n-1)
+	v0, s0 := node(0)
+	for i := range tab {
+		v1, s1 := node(i + 1)
+		// The Hermite cubic's power coefficients in the fraction.
+		tab[i] = [4]float64{v0, s0, 3*(v1-v0) - 2*s0 - s1, 2*(v0-v1) + s0 + s1}
+		v0, s0 = v1, s1
 	}
 	p.sBand0, p.sBand = -float64(m0)*p.sigma/slantSteps, tab
 }

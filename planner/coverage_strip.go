@@ -60,14 +60,10 @@ func (ck *coverageCheck) stripStroke(active []*piece) int32 {
 func (ck *coverageCheck) strip(r siteRect, active []*piece, si int32) bool {
 	n, np := r.d1-r.d0, len(active)
 	atop := len(ck.arena)
-	ck.grow(np*n + np + 2*n)
+	ck.grow(np*n + np + n)
 	defer func() { ck.arena = ck.arena[:atop] }()
 	buf := ck.arena[atop:]
-	fu, amps, x, best := buf[:np*n], buf[np*n:np*n+np], buf[np*n+np:np*n+np+n], buf[np*n+np+n:np*n+np+2*n]
-	if cap(ck.who) < n {
-		ck.who = make([]int32, n)
-	}
-	who := ck.who[:n] // slantedRange's, unused: every term is si's
+	fu, amps, x := buf[:np*n], buf[np*n:np*n+np], buf[np*n+np:np*n+np+n]
 	if cap(ck.looked) < np {
 		ck.looked = make([]bool, np)
 	}
@@ -102,7 +98,7 @@ func (ck *coverageCheck) strip(r siteRect, active []*piece, si int32) bool {
 			if p := active[i]; p.kind == pieceSlanted {
 				// As scanLine: the dimers within the piece's reach.
 				k0, k1 := p.slantedDimers(r.d0, r.d1, y)
-				p.slantedRange(r.d0, k0, k1, y, x, best, who, true) // one FE stroke's
+				p.slantedRange(r.d0, k0, k1, y, x, nil, nil, true) // every term is si's
 				continue
 			}
 			if a == 0 {
