@@ -1,8 +1,6 @@
 package planner
 
 import (
-	"math/bits"
-
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -184,14 +182,10 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 	allowed := ck.allowedFor(si, t, l)
 	limit := ck.prof.StrayLimit
 	var missed, stray, strayX float64
-	// The painted sites first, then the others, 64 dimers at a time: each
-	// sum still takes its sites in the order of their dimers.
-	for b := 0; b < len(x); b += 64 {
-		xb := x[b:min(b+64, len(x))]
-		painted := sideBits(pw, side, d0+b, len(xb))
-		for m := painted; m != 0; m &= m - 1 {
-			k := bits.TrailingZeros64(m)
-			xi := xb[k]
+	for k, xi := range x {
+		d := d0 + k
+		i := 2*d + side
+		if i>>6 < len(pw) && pw[i>>6]>>(uint(i)&63)&1 != 0 {
 			if xi >= exposureSure {
 				continue
 			}
@@ -200,7 +194,6 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 				regMissed[0] += miss
 				regLog[0] += logOK
 			} else {
-				i := 2*(d0+b+k) + side
 				for j := range nr {
 					if regBits[j].Contains(i) {
 						regMissed[j] += miss
@@ -211,23 +204,20 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 			if xi > 0 {
 				missed += miss
 			}
+			continue
 		}
-		for m := ^painted & (^uint64(0) >> (64 - uint(len(xb)))); m != 0; m &= m - 1 {
-			k := bits.TrailingZeros64(m)
-			xi, d := xb[k], d0+b+k
-			if xi <= exposureNone || !holdsDimer(exist, d) || inSpans(allowed, lattice.DimerAlong(d)) {
+		if xi <= exposureNone || !holdsDimer(exist, d) || inSpans(allowed, lattice.DimerAlong(d)) {
+			continue
+		}
+		p := clearFast(xi)
+		if p > limit {
+			if ck.siteTolerated(lattice.Site{Terrace: t, Row: row, Dimer: d, Side: side}, si, active) {
 				continue
 			}
-			p := clearFast(xi)
-			if p > limit {
-				if ck.siteTolerated(lattice.Site{Terrace: t, Row: row, Dimer: d, Side: side}, si, active) {
-					continue
-				}
-				return false // an error: see strip
-			}
-			stray += p
-			strayX += xi
+			return false // an error: see strip
 		}
+		stray += p
+		strayX += xi
 	}
 	for j, ri := range regs[:nr] {
 		if regMissed[j] != 0 || regLog[j] != 0 {
@@ -254,42 +244,6 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 		sums.strokeStray += stray
 	}
 	return true
-}
-
-// sideBits returns, as bit k, whether site (d0+k, side) is set in row
-// bits w, for n ≤ 64 dimers (sites beyond w's words are not set).
-func sideBits(w lattice.RowBits, side, d0, n int) uint64 {
-	m := evenBits(bitsFrom(w, 2*d0+side))
-	if n > 32 {
-		m |= evenBits(bitsFrom(w, 2*(d0+32)+side)) << 32
-	}
-	return m & (^uint64(0) >> (64 - uint(n)))
-}
-
-// bitsFrom returns the 64 bits of w from bit s on (0 beyond its words).
-func bitsFrom(w lattice.RowBits, s int) uint64 {
-	word, off := s>>6, uint(s&63)
-	var lo, hi uint64
-	if word >= 0 && word < len(w) {
-		lo = w[word]
-	}
-	if word+1 >= 0 && word+1 < len(w) {
-		hi = w[word+1]
-	}
-	if off == 0 {
-		return lo
-	}
-	return lo>>off | hi<<(64-off)
-}
-
-// evenBits packs bits 0, 2, 4, … 62 of v into bits 0 to 31.
-func evenBits(v uint64) uint64 {
-	v &= 0x5555555555555555
-	v = (v | v>>1) & 0x3333333333333333
-	v = (v | v>>2) & 0x0f0f0f0f0f0f0f0f
-	v = (v | v>>4) & 0x00ff00ff00ff00ff
-	v = (v | v>>8) & 0x0000ffff0000ffff
-	return (v | v>>16) & 0x00000000ffffffff
 }
 
 // strips switches the strips; tests compare against scan with it off.

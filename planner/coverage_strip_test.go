@@ -8,7 +8,6 @@ import (
 
 	"github.com/golang/geo/r2"
 
-	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
 
@@ -92,34 +91,5 @@ func TestStripsMatchBruteForce(t *testing.T) {
 		}
 		compareBrute(t, what, got, gs, bruteCoverage(lay.Surface, cr, ss, prof))
 		t.Logf("%s: %d sites over the limit", what, got.OverLimit)
-	}
-}
-
-// TestSideBits: sideBits gives, bit for bit, what RowBits.Contains says
-// of each site of a side over up to 64 dimers, at every offset within
-// and beyond the row's words (random rows, some with words all set).
-func TestSideBits(t *testing.T) {
-	rng := rand.New(rand.NewPCG(10, 64))
-	for trial := range 2000 {
-		w := make(lattice.RowBits, rng.IntN(4))
-		for i := range w {
-			switch rng.IntN(3) {
-			case 0:
-				w[i] = ^uint64(0)
-			default:
-				w[i] = rng.Uint64()
-			}
-		}
-		side, d0, n := rng.IntN(2), rng.IntN(160)-16, 1+rng.IntN(64)
-		got := sideBits(w, side, d0, n)
-		var want uint64
-		for k := range n {
-			if i := 2*(d0+k) + side; i >= 0 && i < 64*len(w) && w.Contains(i) {
-				want |= 1 << uint(k)
-			}
-		}
-		if got != want {
-			t.Fatalf("trial %d: sideBits(%x, side %d, d0 %d, n %d) = %b, want %b", trial, w, side, d0, n, got, want)
-		}
 	}
 }
