@@ -178,6 +178,7 @@ func newCoverageCheckOwned(surf *lattice.Surface, regions []CoverageRegion, stro
 	for t, n := range ck.countPieces(strokes, lines) {
 		ck.pieces[t] = make([]piece, 0, n)
 	}
+	bands := bandTables{}
 	for i := range strokes {
 		st := &strokes[i]
 		ri, ok := byName[st.Region]
@@ -221,7 +222,9 @@ func newCoverageCheckOwned(surf *lattice.Surface, regions []CoverageRegion, stro
 		}
 		ck.eachPiece(st, lines, func(t int, a, b r2.Point) {
 			p := makePiece(surf, t, int32(i), a, b, amp, l.SigmaNM, reach)
-			p.bandTable = st.Mode == design.ModeFE
+			if p.kind == pieceSlanted && st.Mode == design.ModeFE {
+				bands.tabulate(&p)
+			}
 			ck.pieces[t] = append(ck.pieces[t], p)
 		})
 		if grouped {

@@ -36,18 +36,18 @@ type piece struct {
 	// sReach is a slanted piece's reach for slantedDimers, sQ the ratio
 	// exp(−step²) of slantedRange's recurrence, computed once.
 	sReach, sQ float64
-	// sBand is a slanted piece's band along it, band(0, L, σ, s), as a
-	// cubic in the fraction f of each node step, c0 + f·(c1 + f·(c2 +
-	// f·c3)), between nodes s = sBand0 + i·σ/slantSteps (see fillBand),
-	// filled on first use where bandTable is set (FE strokes' pieces):
-	// slantedRange takes it with one lookup and three products a dimer
-	// instead of two Hermite lookups in Φ's table, where its caller
-	// allows (no AP stroke reaches the range: an AP stroke's expected
-	// missed sites set the session's repair times, so every site it may
-	// write is summed from Φ's table bit for bit, as before).
-	sBand     [][4]float64
-	sBand0    float64
-	bandTable bool
+	// sBand is an FE slanted piece's band along it, band(0, L, σ, s), as
+	// a cubic in the fraction f of each node step, c0 + f·(c1 + f·(c2 +
+	// f·c3)), between nodes s = sBand0 + i·σ/slantSteps (see
+	// newBandTable; shared by pieces of one length, footprint and reach,
+	// see bandTables): slantedRange takes it with one lookup and three
+	// products a dimer instead of two Hermite lookups in Φ's table, where
+	// its caller allows (no AP stroke reaches the range: an AP stroke's
+	// expected missed sites set the session's repair times, so every site
+	// it may write is summed from Φ's table bit for bit, as before). AP
+	// strokes' pieces have none.
+	sBand  [][4]float64
+	sBand0 float64
 	// lines caches the across factor at site lines lines0+i (0: not yet),
 	// filled on first use: decide and scan meet a piece on each line it
 	// reaches many times.
@@ -388,9 +388,6 @@ func (p *piece) yFactorLine(l int) float64 {
 // stays unstored, as on the lazy path.
 func (p *piece) fillCaches() {
 	if p.kind == pieceSlanted {
-		if p.sBand == nil && p.bandTable {
-			p.fillBand()
-		}
 		return
 	}
 	if p.cache[0].v == nil && !p.cache[0].filled {
@@ -500,14 +497,11 @@ func (p *piece) slantedDimers(d0, d1 int, y float64) (k0, k1 int) {
 // stroke's). The across distance is linear in k, so its Gaussian follows
 // the recurrence g(k+1) = g(k)·r(k), r(k+1) = r(k)·q, re-anchored every
 // 16 dimers against rounding; the band along the piece comes from the
-// piece's own table (fillBand) where table is set and the piece has one,
-// else (and beyond the table) from slantBand.
+// piece's table (sBand) where table is set and the piece has one, else
+// (and beyond the table) from slantBand.
 func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who []int32, table bool) {
 	if k0 >= k1 {
 		return
-	}
-	if p.sBand == nil && p.bandTable && table {
-		p.fillBand()
 	}
 	h := lattice.DimerPitch
 	u0 := lattice.DimerAlong(d0 + k0)
@@ -564,7 +558,8 @@ func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who [
 // Φ table's 10⁻¹⁰ at the far end's nodes.
 const slantSteps = 32
 
-// fillBand tabulates slanted piece p's band along it, band(0, L, σ, s) =
+// newBandTable tabulates the band along a slanted piece of length L,
+// footprint σ and reach, band(0, L, σ, s) =
 // Φ((L−s)/σ) − Φ(−s/σ), as the cubic Hermite interpolant of its values
 // and slopes (φ(s/σ) − φ((L−s)/σ))/σ between nodes σ/slantSteps apart,
 // over every along position slantedRange meets: the piece's reach either
@@ -574,15 +569,15 @@ const slantSteps = 32
 // hold Φ and φ there), and (L−s)/σ at the same fraction of a table step
 // for every node: its Hermite weights, and those of their derivative,
 // are taken once.
-func (p *piece) fillBand() {
+func newBandTable(L, sigma, reach float64) bandTable {
 	const stride = phiSteps / slantSteps
-	margin := p.sReach + 2*lattice.DimerPitch
-	m0 := int(math.Ceil(margin / p.sigma * slantSteps)) // node 0 at s = −m0·σ/slantSteps
-	n := int(math.Ceil((p.L+margin)/p.sigma*slantSteps)) + m0 + 2
+	margin := reach + 2*lattice.DimerPitch
+	m0 := int(math.Ceil(margin / sigma * slantSteps)) // node 0 at s = −m0·σ/slantSteps
+	n := int(math.Ceil((L+margin)/sigma*slantSteps)) + m0 + 2
 	// Φ table positions: −s/σ at node i is ka0 − stride·i exactly; (L−s)/σ
 	// is tb0 − stride·i, whole part kb0 − stride·i, fraction f.
 	ka0 := 8*phiSteps + stride*m0
-	tb0 := (p.L/p.sigma+8)*phiSteps + float64(stride*m0)
+	tb0 := (L/sigma+8)*phiSteps + float64(stride*m0)
 	kb0 := int(math.Floor(tb0))
 	f := tb0 - float64(kb0)
 	f2 := f * f
@@ -617,7 +612,32 @@ func (p *piece) fillBand() {
 		tab[i] = [4]float64{v0, s0, 3*(v1-v0) - 2*s0 - s1, 2*(v0-v1) + s0 + s1}
 		v0, s0 = v1, s1
 	}
-	p.sBand0, p.sBand = -float64(m0)*p.sigma/slantSteps, tab
+	return bandTable{-float64(m0) * sigma / slantSteps, tab}
+}
+
+// bandTable is a slanted piece's band table: its first node's along
+// position and its node steps' cubics (see piece.sBand).
+type bandTable struct {
+	s0    float64
+	spans [][4]float64
+}
+
+// bandTables holds the band tables of one check's FE slanted pieces by
+// length, footprint and reach: a fan's turns repeat a few lengths (the
+// demo's 333 FE slanted pieces have 91 distinct), so most pieces share
+// a table. It is filled before the check's workers start and only read
+// by them.
+type bandTables map[[3]float64]bandTable
+
+// tabulate gives slanted piece p its band table, made on first need.
+func (b bandTables) tabulate(p *piece) {
+	k := [3]float64{p.L, p.sigma, p.sReach}
+	t, ok := b[k]
+	if !ok {
+		t = newBandTable(p.L, p.sigma, p.sReach)
+		b[k] = t
+	}
+	p.sBand0, p.sBand = t.s0, t.spans
 }
 
 // slantBand returns fastPhi(b) − fastPhi(a) for a ≤ b, bit for bit, without

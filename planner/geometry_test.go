@@ -174,7 +174,7 @@ func TestMissAccurateExact(t *testing.T) {
 
 // TestSlantedRangeMatchesExact: a slanted piece's exposure summed along
 // site lines by slantedRange (the Gaussian across it by recurrence, the
-// band along it from the piece's table, fillBand) against the line
+// band along it from the piece's table, newBandTable) against the line
 // exposure written out with math.Exp and erfc (CheckCoverage's formula:
 // X·exp(−d²/2σ²)·[Φ((L−s)/σ) − Φ(−s/σ)]), for pieces at many angles,
 // lengths, footprints and amplitudes. The bound is the table's: cubic
@@ -199,7 +199,7 @@ func TestSlantedRangeMatchesExact(t *testing.T) {
 		b := a.Add(r2.Point{X: math.Cos(angle), Y: math.Sin(angle)}.Mul(length))
 		reach := sigma * math.Sqrt(2*math.Log(max(amp/exposureNeglect, 1)))
 		p := makePiece(surf, 0, 0, a, b, amp, sigma, reach)
-		p.bandTable = true
+		bandTables{}.tabulate(&p)
 		if p.kind != pieceSlanted {
 			continue
 		}
