@@ -608,11 +608,17 @@ func newBandTable(L, sigma, reach float64) bandTable {
 	v0, s0 := node(0)
 	for i := range tab {
 		v1, s1 := node(i + 1)
-		// The Hermite cubic's power coefficients in the fraction.
-		tab[i] = [4]float64{v0, s0, 3*(v1-v0) - 2*s0 - s1, 2*(v0-v1) + s0 + s1}
+		tab[i] = powerCubic(v0, s0, v1, s1)
 		v0, s0 = v1, s1
 	}
 	return bandTable{-float64(m0) * sigma / slantSteps, tab}
+}
+
+// powerCubic returns the cubic Hermite between values v0, v1 with slopes
+// s0, s1 (per step) as its coefficients in the step's fraction f: c0 +
+// f·(c1 + f·(c2 + f·c3)).
+func powerCubic(v0, s0, v1, s1 float64) [4]float64 {
+	return [4]float64{v0, s0, 3*(v1-v0) - 2*s0 - s1, 2*(v0-v1) + s0 + s1}
 }
 
 // bandTable is a slanted piece's band table: its first node's along

@@ -1,6 +1,8 @@
 package planner
 
 import (
+	"math"
+
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -189,7 +191,25 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 			if xi >= exposureSure {
 				continue
 			}
-			miss, logOK := missAndLog(xi)
+			// missAndLog from the tables' power form (see missLogSpans),
+			// written out: the compiler does not inline a call.
+			var miss, logOK float64
+			if t := xi * expSteps; t >= 0 {
+				i := int(t)
+				f := t - float64(i)
+				c := &missSpans[i]
+				miss = c[0] + f*(c[1]+f*(c[2]+f*c[3]))
+				if miss < 1e-4 {
+					logOK = -miss - miss*miss/2
+				} else if j := i - logOffset; j >= 0 && j < logLast {
+					c := &logOKSpans[j]
+					logOK = c[0] + f*(c[1]+f*(c[2]+f*c[3]))
+				} else {
+					logOK = math.Log1p(-miss)
+				}
+			} else {
+				miss, logOK = missAndLog(xi)
+			}
 			if nr == 1 {
 				regMissed[0] += miss
 				regLog[0] += logOK
@@ -244,6 +264,24 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 		sums.strokeStray += stray
 	}
 	return true
+}
+
+// missSpans and logOKSpans are missAndLog's exp and log tables with each
+// step's cubic Hermite in power form, c0 + f·(c1 + f·(c2 + f·c3)): the
+// same cubics, three products instead of the Hermite weights' dozen.
+// Strips sum FE strokes' sites only, whose figures may move by rounding;
+// scan keeps missAndLog bit for bit (AP strokes' missed sites set the
+// session's repair times).
+var missSpans, logOKSpans = powerForm(expSpans), powerForm(logSpans)
+
+// powerForm returns Hermite spans (v0, s0, v1, s1 per step) as the power
+// coefficients of the same cubics in the step's fraction.
+func powerForm(h hermiteSpans) [][4]float64 {
+	p := make([][4]float64, len(h))
+	for i, c := range h {
+		p[i] = powerCubic(c[0], c[1], c[2], c[3])
+	}
+	return p
 }
 
 // strips switches the strips; tests compare against scan with it off.

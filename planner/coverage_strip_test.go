@@ -2,6 +2,7 @@ package planner
 
 import (
 	"fmt"
+	"math"
 	"math/rand/v2"
 	"slices"
 	"testing"
@@ -91,5 +92,43 @@ func TestStripsMatchBruteForce(t *testing.T) {
 		}
 		compareBrute(t, what, got, gs, bruteCoverage(lay.Surface, cr, ss, prof))
 		t.Logf("%s: %d sites over the limit", what, got.OverLimit)
+	}
+}
+
+// TestMissLogPowerForm: the tables a strip's line takes its painted sites'
+// miss and log from (missSpans, logOKSpans: missAndLog's cubics in power
+// form) against math.Exp and math.Log1p, within the bounds missAndLog's
+// tables state (exp relative 10⁻⁹, log absolute 1.5·10⁻⁸; TestMissAndLog
+// holds missAndLog to the same), and against missAndLog itself to
+// rounding (10⁻¹⁴ relative): the same cubics.
+func TestMissLogPowerForm(t *testing.T) {
+	rng := rand.New(rand.NewPCG(10, 36))
+	for range 200000 {
+		x := rng.Float64() * exposureSure
+		if rng.IntN(4) == 0 {
+			x = float64(rng.IntN(exposureSure*expSteps)) / expSteps // on a node
+		}
+		tt := x * expSteps
+		i := int(tt)
+		f := tt - float64(i)
+		c := &missSpans[i]
+		miss := c[0] + f*(c[1]+f*(c[2]+f*c[3]))
+		if want := math.Exp(-x); math.Abs(miss-want) > 1e-9*want {
+			t.Fatalf("miss at %v: %v, want %v", x, miss, want)
+		}
+		wantMiss, wantLog := missAndLog(x)
+		if math.Abs(miss-wantMiss) > 1e-14*wantMiss {
+			t.Fatalf("miss at %v: %v, missAndLog %v", x, miss, wantMiss)
+		}
+		if j := i - logOffset; miss >= 1e-4 && j >= 0 && j < logLast {
+			c := &logOKSpans[j]
+			logOK := c[0] + f*(c[1]+f*(c[2]+f*c[3]))
+			if want := math.Log1p(-math.Exp(-x)); math.Abs(logOK-want) > 1.5e-8 {
+				t.Fatalf("log at %v: %v, want %v", x, logOK, want)
+			}
+			if math.Abs(logOK-wantLog) > 1e-14*math.Abs(wantLog) {
+				t.Fatalf("log at %v: %v, missAndLog %v", x, logOK, wantLog)
+			}
+		}
 	}
 }
