@@ -520,6 +520,14 @@ func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who [
 		tab = nil
 	}
 	tLast := float64(len(tab)) // 0 without a table
+	if best == nil && tab != nil {
+		// t is linear in the dimer: inside the table at both ends, it is
+		// inside throughout.
+		if te := t0 + float64(k1-1-k0)*tStep; min(t0, te) >= 0 && max(t0, te) < tLast {
+			slantedRun(x[k0:k1], across, step, q, t0, tStep, amp, tab)
+			return
+		}
+	}
 	x = x[:k1]
 	var g, r float64
 	for k := k0; k < k1; k++ {
@@ -547,6 +555,31 @@ func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who [
 		}
 		g *= r
 		r *= q
+	}
+}
+
+// slantedRun is slantedRange's loop for a run of dimers xs wholly inside
+// the band table and without the largest term's tracking: the same
+// values in the same order, in blocks of 16 dimers between the
+// recurrence's anchors.
+func slantedRun(xs []float64, across, step, q, t0, tStep, amp float64, tab [][4]float64) {
+	for j0 := 0; j0 < len(xs); j0 += 16 {
+		a := across + float64(j0)*step
+		g := math.Exp(-a * a / 2)
+		r := math.Exp(-(2*a*step + step*step) / 2)
+		block := xs[j0:min(j0+16, len(xs))]
+		for jj := range block {
+			t := t0 + float64(j0+jj)*tStep
+			i := int(t)
+			f := t - float64(i)
+			c := &tab[i]
+			b := c[0] + f*(c[1]+f*(c[2]+f*c[3]))
+			if e := amp * g * b; e > 0 {
+				block[jj] += e
+			}
+			g *= r
+			r *= q
+		}
 	}
 }
 

@@ -173,7 +173,8 @@ func TestMissAccurateExact(t *testing.T) {
 }
 
 // TestSlantedRangeMatchesExact: a slanted piece's exposure summed along
-// site lines by slantedRange (the Gaussian across it by recurrence, the
+// site lines by slantedRange, with and without tracking the largest term
+// (the same values bit for bit; the Gaussian across it by recurrence, the
 // band along it from the piece's table, newBandTable) against the line
 // exposure written out with math.Exp and erfc (CheckCoverage's formula:
 // X·exp(−d²/2σ²)·[Φ((L−s)/σ) − Φ(−s/σ)]), for pieces at many angles,
@@ -207,13 +208,18 @@ func TestSlantedRangeMatchesExact(t *testing.T) {
 		l1 := (int(math.Ceil((p.yHi-lattice.HOffset)/lattice.RowSpacing)) + 1) * 2
 		d0 := int(math.Floor(p.uLo/lattice.DimerPitch)) - 1
 		d1 := int(math.Ceil(p.uHi/lattice.DimerPitch)) + 2
-		x, best, who := make([]float64, d1-d0), make([]float64, d1-d0), make([]int32, d1-d0)
+		x, plain, best, who := make([]float64, d1-d0), make([]float64, d1-d0), make([]float64, d1-d0), make([]int32, d1-d0)
 		for l := l0; l < l1; l += 1 + rng.IntN(3) {
 			y := lineY(l)
 			clear(x)
+			clear(plain)
 			k0, k1 := p.slantedDimers(d0, d1, y)
 			p.slantedRange(d0, k0, k1, y, x, best, who, true)
+			p.slantedRange(d0, k0, k1, y, plain, nil, nil, true) // no tracking: slantedRun
 			for k := k0; k < k1; k++ {
+				if plain[k] != x[k] {
+					t.Fatalf("trial %d: line %d dimer %d: %g without tracking, %g with", trial, l, d0+k, plain[k], x[k])
+				}
 				u := lattice.DimerAlong(d0 + k)
 				s := (u-p.pu)*p.du + (y-p.py)*p.dy
 				across := (y-p.py)*p.du - (u-p.pu)*p.dy
