@@ -22,20 +22,26 @@ type twoLevel struct {
 	target int32   // a segment's length after a rebuild
 	maxLen int32   // a segment longer than this triggers a rebuild
 	short  int32   // paths up to this long are reversed node by node
-	// scratch for rebuilds
+	// scratch for rebuilds and recentring
 	buf []int32
 }
 
 type slot struct{ seg, i int32 }
 
-// tourSeg is one segment: its nodes in array order, read backwards in
-// the tour when rev.
+// tourSeg is one segment: its nodes buf[lo:hi] in array order, read
+// backwards in the tour when rev. buf has room on both sides, so that
+// nodes moved in from a neighbour at either end and nodes moved out
+// leave the others where they are (loc holds indices into buf): only
+// the moved nodes are re-indexed, not the whole segment.
 type tourSeg struct {
-	nodes []int32
-	off   int32 // tour position of the segment's first node (in tour order)
-	rank  int32
-	rev   bool
+	buf    []int32
+	lo, hi int32
+	off    int32 // tour position of the segment's first node (in tour order)
+	rank   int32
+	rev    bool
 }
+
+func (s *tourSeg) size() int32 { return s.hi - s.lo }
 
 // twoLevelMin is the smallest problem that gets the two-level list (where
 // the search runs alone, see heuristic). Below it the array's reversals
@@ -61,7 +67,8 @@ func newTwoLevel(tour []int32) *twoLevel {
 }
 
 // build cuts the tour (in order, from position 0) into segments of
-// target nodes.
+// target nodes, each in the middle of a buffer with room for maxLen more
+// nodes on either side.
 func (t *twoLevel) build(tour []int32) {
 	n := t.n
 	m := (n + t.target - 1) / t.target
@@ -73,12 +80,25 @@ func (t *twoLevel) build(tour []int32) {
 		lo := int64(r) * int64(n) / int64(m)
 		hi := int64(r+1) * int64(n) / int64(m)
 		sg := &t.segs[r]
-		sg.nodes = append(sg.nodes[:0], tour[lo:hi]...)
+		sg.place(r, tour[lo:hi], t.maxLen, t.loc)
 		sg.off, sg.rank, sg.rev = int32(lo), r, false
 		t.order[r] = r
-		for i, v := range sg.nodes {
-			t.loc[v] = slot{r, int32(i)}
-		}
+	}
+}
+
+// place puts nodes (in array order) in the middle of the segment's
+// buffer, with room for room more on either side, and indexes them as
+// segment sg.
+func (s *tourSeg) place(sg int32, nodes []int32, room int32, loc []slot) {
+	size := int32(len(nodes))
+	if need := int(size + 2*room); len(s.buf) < need {
+		s.buf = make([]int32, need)
+	}
+	s.lo = (int32(len(s.buf)) - size) / 2
+	s.hi = s.lo + size
+	copy(s.buf[s.lo:s.hi], nodes)
+	for i := s.lo; i < s.hi; i++ {
+		loc[s.buf[i]] = slot{sg, i}
 	}
 }
 
@@ -111,45 +131,45 @@ func (t *twoLevel) appendTour(dst []int32) []int32 {
 
 func (s *tourSeg) appendNodes(dst []int32) []int32 {
 	if !s.rev {
-		return append(dst, s.nodes...)
+		return append(dst, s.buf[s.lo:s.hi]...)
 	}
-	for i := len(s.nodes) - 1; i >= 0; i-- {
-		dst = append(dst, s.nodes[i])
+	for i := s.hi - 1; i >= s.lo; i-- {
+		dst = append(dst, s.buf[i])
 	}
 	return dst
 }
 
 func (s *tourSeg) first() int32 {
 	if s.rev {
-		return s.nodes[len(s.nodes)-1]
+		return s.buf[s.hi-1]
 	}
-	return s.nodes[0]
+	return s.buf[s.lo]
 }
 
 func (s *tourSeg) last() int32 {
 	if s.rev {
-		return s.nodes[0]
+		return s.buf[s.lo]
 	}
-	return s.nodes[len(s.nodes)-1]
+	return s.buf[s.hi-1]
 }
 
-// tourIndex is the index in tour order of the node at array index i.
+// tourIndex is the index in tour order of the node at buffer index i.
 func (s *tourSeg) tourIndex(i int32) int32 {
 	if s.rev {
-		return int32(len(s.nodes)) - 1 - i
+		return s.hi - 1 - i
 	}
-	return i
+	return i - s.lo
 }
 
 func (t *twoLevel) succ(v int32) int32 {
 	l := t.loc[v]
 	s := &t.segs[l.seg]
 	if s.rev {
-		if l.i > 0 {
-			return s.nodes[l.i-1]
+		if l.i > s.lo {
+			return s.buf[l.i-1]
 		}
-	} else if int(l.i)+1 < len(s.nodes) {
-		return s.nodes[l.i+1]
+	} else if l.i+1 < s.hi {
+		return s.buf[l.i+1]
 	}
 	r := s.rank + 1
 	if int(r) == len(t.order) {
@@ -170,11 +190,11 @@ func (t *twoLevel) pred(v int32) int32 {
 	l := t.loc[v]
 	s := &t.segs[l.seg]
 	if !s.rev {
-		if l.i > 0 {
-			return s.nodes[l.i-1]
+		if l.i > s.lo {
+			return s.buf[l.i-1]
 		}
-	} else if int(l.i)+1 < len(s.nodes) {
-		return s.nodes[l.i+1]
+	} else if l.i+1 < s.hi {
+		return s.buf[l.i+1]
 	}
 	r := s.rank - 1
 	if r < 0 {
@@ -226,9 +246,9 @@ func (t *twoLevel) nodeAt(p int32) int32 {
 		k += t.n
 	}
 	if s.rev {
-		return s.nodes[int32(len(s.nodes))-1-k]
+		return s.buf[s.hi-1-k]
 	}
-	return s.nodes[k]
+	return s.buf[s.lo+k]
 }
 
 // reverse reverses the path a..b (forward) of l nodes, usually l <= n/2
@@ -258,7 +278,7 @@ func (t *twoLevel) reverse(a, b int32, l int32) {
 		t.reverseRanks(t.segs[sa].rank, t.segs[sb].rank)
 	}
 	for i := range t.segs {
-		if int32(len(t.segs[i].nodes)) > t.maxLen {
+		if t.segs[i].size() > t.maxLen {
 			t.rebuild()
 			break
 		}
@@ -281,8 +301,8 @@ func (t *twoLevel) reverseNodes(a, b int32, l int32) {
 	x, y := t.loc[a], t.loc[b]
 	for k := l / 2; k > 0; k-- {
 		sx, sy := &t.segs[x.seg], &t.segs[y.seg]
-		va, vb := sx.nodes[x.i], sy.nodes[y.i]
-		sx.nodes[x.i], sy.nodes[y.i] = vb, va
+		va, vb := sx.buf[x.i], sy.buf[y.i]
+		sx.buf[x.i], sy.buf[y.i] = vb, va
 		t.loc[vb], t.loc[va] = x, y
 		x, y = t.nextSlot(x), t.prevSlot(y)
 	}
@@ -291,10 +311,10 @@ func (t *twoLevel) reverseNodes(a, b int32, l int32) {
 func (t *twoLevel) nextSlot(x slot) slot {
 	s := &t.segs[x.seg]
 	if s.rev {
-		if x.i > 0 {
+		if x.i > s.lo {
 			return slot{x.seg, x.i - 1}
 		}
-	} else if int(x.i)+1 < len(s.nodes) {
+	} else if x.i+1 < s.hi {
 		return slot{x.seg, x.i + 1}
 	}
 	r := s.rank + 1
@@ -302,19 +322,20 @@ func (t *twoLevel) nextSlot(x slot) slot {
 		r = 0
 	}
 	nx := t.order[r]
-	if t.segs[nx].rev {
-		return slot{nx, int32(len(t.segs[nx].nodes)) - 1}
+	if sn := &t.segs[nx]; sn.rev {
+		return slot{nx, sn.hi - 1}
+	} else {
+		return slot{nx, sn.lo}
 	}
-	return slot{nx, 0}
 }
 
 func (t *twoLevel) prevSlot(x slot) slot {
 	s := &t.segs[x.seg]
 	if !s.rev {
-		if x.i > 0 {
+		if x.i > s.lo {
 			return slot{x.seg, x.i - 1}
 		}
-	} else if int(x.i)+1 < len(s.nodes) {
+	} else if x.i+1 < s.hi {
 		return slot{x.seg, x.i + 1}
 	}
 	r := s.rank - 1
@@ -322,10 +343,11 @@ func (t *twoLevel) prevSlot(x slot) slot {
 		r = int32(len(t.order)) - 1
 	}
 	pv := t.order[r]
-	if t.segs[pv].rev {
-		return slot{pv, 0}
+	if sp := &t.segs[pv]; sp.rev {
+		return slot{pv, sp.lo}
+	} else {
+		return slot{pv, sp.hi - 1}
 	}
-	return slot{pv, int32(len(t.segs[pv].nodes)) - 1}
 }
 
 // reverseInSegment reverses the path a..b that lies in one segment, a
@@ -336,7 +358,7 @@ func (t *twoLevel) reverseInSegment(a, b int32) {
 	if i > j {
 		i, j = j, i
 	}
-	nodes := t.segs[sg].nodes
+	nodes := t.segs[sg].buf
 	for i < j {
 		u, w := nodes[i], nodes[j]
 		nodes[i], nodes[j] = w, u
@@ -356,7 +378,7 @@ func (t *twoLevel) makeFirst(a int32) {
 	if k == 0 {
 		return
 	}
-	size := int32(len(s.nodes))
+	size := s.size()
 	if k <= size-k {
 		t.moveHeadToPrev(la.seg, k)
 	} else {
@@ -369,7 +391,7 @@ func (t *twoLevel) makeLast(b int32) {
 	lb := t.loc[b]
 	s := &t.segs[lb.seg]
 	k := s.tourIndex(lb.i) + 1 // nodes up to and including b
-	size := int32(len(s.nodes))
+	size := s.size()
 	if k == size {
 		return
 	}
@@ -389,23 +411,13 @@ func (t *twoLevel) moveHeadToPrev(sg int32, c int32) {
 		r = int32(len(t.order)) - 1
 	}
 	pi := t.order[r]
-	p := &t.segs[pi]
-	// Take the head in tour order.
-	size := int32(len(s.nodes))
-	var head []int32 // in array order of s
+	// The head in tour order, as it lies in s's buffer.
 	if s.rev {
-		head = s.nodes[size-c:]
+		t.appendInTourOrder(pi, s.buf[s.hi-c:s.hi], s.rev, true)
+		s.hi -= c
 	} else {
-		head = s.nodes[:c]
-	}
-	t.appendInTourOrder(pi, p, head, s.rev, true)
-	if s.rev {
-		s.nodes = s.nodes[:size-c]
-	} else {
-		s.nodes = append(s.nodes[:0], s.nodes[c:]...)
-		for i, v := range s.nodes {
-			t.loc[v].i = int32(i)
-		}
+		t.appendInTourOrder(pi, s.buf[s.lo:s.lo+c], s.rev, true)
+		s.lo += c
 	}
 	s.off += c
 	if s.off >= t.n {
@@ -422,23 +434,14 @@ func (t *twoLevel) moveTailToNext(sg int32, c int32) {
 		r = 0
 	}
 	ni := t.order[r]
+	if s.rev {
+		t.appendInTourOrder(ni, s.buf[s.lo:s.lo+c], s.rev, false)
+		s.lo += c
+	} else {
+		t.appendInTourOrder(ni, s.buf[s.hi-c:s.hi], s.rev, false)
+		s.hi -= c
+	}
 	nx := &t.segs[ni]
-	size := int32(len(s.nodes))
-	var tail []int32
-	if s.rev {
-		tail = s.nodes[:c]
-	} else {
-		tail = s.nodes[size-c:]
-	}
-	t.appendInTourOrder(ni, nx, tail, s.rev, false)
-	if s.rev {
-		s.nodes = append(s.nodes[:0], s.nodes[c:]...)
-		for i, v := range s.nodes {
-			t.loc[v].i = int32(i)
-		}
-	} else {
-		s.nodes = s.nodes[:size-c]
-	}
 	nx.off -= c
 	if nx.off < 0 {
 		nx.off += t.n
@@ -446,41 +449,55 @@ func (t *twoLevel) moveTailToNext(sg int32, c int32) {
 }
 
 // appendInTourOrder adds part (in array order of a segment with reversal
-// bit partRev) to segment d (index di): at its tour end if atEnd, else at
-// its tour start, keeping part's tour order.
-func (t *twoLevel) appendInTourOrder(di int32, d *tourSeg, part []int32, partRev, atEnd bool) {
-	c := len(part)
+// bit partRev; another segment's buffer) to segment di: at its tour end
+// if atEnd, else at its tour start, keeping part's tour order. Only the
+// added nodes are indexed, unless the buffer has no room left on that
+// side and the segment is first moved to the middle of a (larger) one.
+func (t *twoLevel) appendInTourOrder(di int32, part []int32, partRev, atEnd bool) {
+	d := &t.segs[di]
+	c := int32(len(part))
 	// In d's array order, part reads forwards if the two bits agree.
 	same := partRev == d.rev
 	// At d's tour end = its array end unless d is reversed.
 	atArrayEnd := atEnd != d.rev
-	old := len(d.nodes)
+	var at int32 // where part goes in d's buffer
 	if atArrayEnd {
-		if same {
-			d.nodes = append(d.nodes, part...)
-		} else {
-			for i := c - 1; i >= 0; i-- {
-				d.nodes = append(d.nodes, part[i])
-			}
+		if d.hi+c > int32(len(d.buf)) {
+			t.recentre(di, c)
 		}
-		for i := old; i < old+c; i++ {
-			t.loc[d.nodes[i]] = slot{di, int32(i)}
+		at = d.hi
+		d.hi += c
+	} else {
+		if d.lo < c {
+			t.recentre(di, c)
 		}
-		return
+		d.lo -= c
+		at = d.lo
 	}
-	// At the array's start: shift.
-	d.nodes = append(d.nodes, part...) // grow (the values are rewritten)
-	copy(d.nodes[c:], d.nodes[:old])
+	dst := d.buf[at : at+c]
 	if same {
-		copy(d.nodes[:c], part)
+		copy(dst, part)
 	} else {
 		for i := range c {
-			d.nodes[i] = part[c-1-i]
+			dst[i] = part[c-1-i]
 		}
 	}
-	for i, v := range d.nodes {
-		t.loc[v] = slot{di, int32(i)}
+	for i, v := range dst {
+		t.loc[v] = slot{di, at + int32(i)}
 	}
+}
+
+// recentre moves segment di's nodes to the middle of its buffer (a
+// larger one if they and room more would not fit with room to spare),
+// re-indexing them.
+func (t *twoLevel) recentre(di int32, room int32) {
+	d := &t.segs[di]
+	size := d.size()
+	t.buf = append(t.buf[:0], d.buf[d.lo:d.hi]...)
+	if need := int(size + 2*max(room, t.maxLen)); len(d.buf) < need {
+		d.buf = make([]int32, need)
+	}
+	d.place(di, t.buf, 0, t.loc)
 }
 
 // reverseRanks turns the segments of ranks ra..rb (forward, wrapping)
@@ -510,7 +527,7 @@ func (t *twoLevel) reverseRanks(ra, rb int32) {
 		sg.rev = !sg.rev
 		sg.rank = r
 		sg.off = off
-		off += int32(len(sg.nodes))
+		off += sg.size()
 		if off >= t.n {
 			off -= t.n
 		}

@@ -65,7 +65,7 @@ func TestTwoLevelMatchesArray(t *testing.T) {
 				}
 			}
 			for sg := range tl.segs {
-				if len(tl.segs[sg].nodes) == 0 {
+				if tl.segs[sg].size() <= 0 {
 					t.Fatalf("n %d target %d, move %d: segment %d empty", n, tc.target, mv, sg)
 				}
 			}
