@@ -43,7 +43,10 @@
 //     either way round (Or 1976) and sequential 3-opt moves, the depth-3
 //     step of Lin & Kernighan 1973; all searched over the neighbour lists
 //     with the gain criterion. The tour is an array with a position index;
-//     a reversal turns the shorter side. Above 1,000 nodes the nodes are
+//     a reversal turns the shorter side (where the Lin-Kernighan search
+//     runs alone on 15,000 nodes or more, a two-level doubly-linked list
+//     that keeps the same positions: Fredman, Johnson, McGeoch &
+//     Ostheimer 1995). Above 1,000 nodes the nodes are
 //     renumbered along a Hilbert curve (cache locality); above 100,000 a
 //     reversal is capped at 50,000 positions. Where those find nothing,
 //     the Lin-Kernighan search on the α candidates (Lin & Kernighan 1973;

@@ -60,10 +60,10 @@ func (s *solver) kick(r *rng, segMax int32) bool {
 		if k > 0 {
 			p[k] = p[k-1] + 1 + r.intn(segMax)
 		}
-		u[k], w[k] = s.t[p[k]%n], s.t[(p[k]+1)%n]
+		u[k], w[k] = s.nodeAt(p[k]%n), s.nodeAt((p[k]+1)%n)
 		if g.fixed(u[k], w[k]) {
 			p[k]++
-			u[k], w[k] = s.t[p[k]%n], s.t[(p[k]+1)%n]
+			u[k], w[k] = s.nodeAt(p[k]%n), s.nodeAt((p[k]+1)%n)
 		}
 		if g.fixed(u[k], w[k]) || (k > 0 && p[k] <= p[k-1]) {
 			return false
@@ -141,7 +141,7 @@ func (s *solver) keepBest(mark int) {
 	s.redo = append(s.redo[:0], s.journal[mark:]...)
 	length := s.length
 	s.undo(mark)
-	s.bestT = append(s.bestT[:0], s.t...)
+	s.bestT = s.appendTour(s.bestT[:0])
 	for k := 0; k < len(s.redo); k += 2 {
 		s.reverseRange(s.redo[k], s.redo[k+1])
 	}
@@ -154,9 +154,14 @@ func (s *solver) restoreBest() {
 	if !s.offBest {
 		return
 	}
-	copy(s.t, s.bestT)
-	for i, v := range s.t {
-		s.pos[v] = int32(i)
+	if s.two != nil {
+		s.two.build(s.bestT)
+	} else {
+		copy(s.t, s.bestT)
+		for i, v := range s.t {
+			s.pos[v] = int32(i)
+		}
+		s.wrapEnds()
 	}
 	s.length = s.bestLen
 	s.offBest = false

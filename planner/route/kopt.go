@@ -133,7 +133,7 @@ func (s *solver) koptSegments(m int) {
 	var keys [2 * koptDepthMax]int32
 	var js [2 * koptDepthMax]int8
 	for j := 1; j <= 2*m; j++ {
-		p := s.pos[k.t[j]]
+		p := s.position(k.t[j])
 		q := j - 1
 		for q > 0 && keys[q-1] > p {
 			keys[q], js[q] = keys[q-1], js[q-1]
@@ -234,7 +234,7 @@ func (s *solver) koptDo(m int) bool {
 		// The segments' lengths, for the reversal bound.
 		var length [koptDepthMax]int32
 		for sg := range m {
-			length[sg] = s.pathLen(s.pos[k.node[2*sg]], s.pos[k.node[2*sg+1]])
+			length[sg] = s.pathLen(s.position(k.node[2*sg]), s.position(k.node[2*sg+1]))
 		}
 		for _, st := range steps {
 			span := int32(0)

@@ -159,6 +159,9 @@ func (s *solver) lkStep(i int, G float64) bool {
 	t1 := k.t[1]
 	t2i := k.t[2*i]
 	ids, ds := s.nb.list(t2i)
+	// The tour does not change in the loop until a move is made (and the
+	// search returns), so t2i's tour neighbours are read once.
+	sc, pc := s.succ(t2i), s.pred(t2i)
 	tried := 0
 	for c, t3 := range ids {
 		if t3 < 0 {
@@ -168,7 +171,7 @@ func (s *solver) lkStep(i int, G float64) bool {
 		if g1 <= s.eps {
 			break
 		}
-		if k.in[t3] || s.succ(t2i) == t3 || s.pred(t2i) == t3 || lk.tabu(lk.removed, t2i, t3) {
+		if k.in[t3] || sc == t3 || pc == t3 || lk.tabu(lk.removed, t2i, t3) {
 			continue
 		}
 		tried++
