@@ -184,16 +184,16 @@ func (s *Surface) Missing(set *SiteSet) *SiteSet {
 		if t >= len(s.Terraces) {
 			continue // every site of an unknown terrace is missing
 		}
-		for r, w := range out.terraces[t] {
-			if len(w) == 0 {
+		tr := &out.terraces[t]
+		for j := range tr.rows {
+			w := &tr.rows[j]
+			if len(w.words) == 0 {
 				continue
 			}
-			dims = s.RowDimers(dims[:0], t, r)
+			dims = s.RowDimers(dims[:0], t, tr.first+j)
 			for _, d := range dims {
 				from, to := d.Sites()
-				if to = min(to, len(w)*64); from < to {
-					setRange(w, from, to, false)
-				}
+				w.setPattern(from, to, ^uint64(0), false)
 			}
 		}
 	}

@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"math"
-	"math/bits"
 	"slices"
 
 	"github.com/golang/geo/r1"
@@ -690,7 +689,7 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu []float6
 		d := d0 + k
 		xi := x[k]
 		i := 2*d + side
-		if i>>6 < len(pw) && pw[i>>6]>>(uint(i)&63)&1 != 0 {
+		if pw.Contains(i) {
 			if xi >= exposureSure {
 				continue
 			}
@@ -1011,7 +1010,7 @@ func lineSides(r siteRect, row int) lattice.Sides {
 // paintedIn reports whether r holds a painted site.
 func (ck *coverageCheck) paintedIn(r siteRect) bool {
 	for row := r.l0 / 2; row <= (r.l1-1)/2; row++ {
-		if w := ck.painted.Row(r.t, row); w != nil && w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
+		if w := ck.painted.Row(r.t, row); w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
 			return true
 		}
 	}
@@ -1025,7 +1024,7 @@ func (ck *coverageCheck) dwellIn(r siteRect) bool {
 		return false
 	}
 	for row := r.l0 / 2; row <= (r.l1-1)/2; row++ {
-		if w := ck.dwelled.Row(r.t, row); w != nil && w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
+		if w := ck.dwelled.Row(r.t, row); w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
 			return true
 		}
 	}
@@ -1035,23 +1034,7 @@ func (ck *coverageCheck) dwellIn(r siteRect) bool {
 // countSide returns the number of sites of one side in [d0, d1) of a
 // row's bits.
 func countSide(w lattice.RowBits, side, d0, d1 int) int {
-	from, to := max(2*d0+side, 0), min(2*(d1-1)+side+1, len(w)*64)
-	if from >= to {
-		return 0
-	}
-	mask := uint64(0x5555555555555555) << uint(side)
-	c := 0
-	for k := from >> 6; k <= (to-1)>>6; k++ {
-		m := mask
-		if k == from>>6 {
-			m &= ^uint64(0) << (uint(from) & 63)
-		}
-		if k == (to-1)>>6 {
-			m &= ^uint64(0) >> (63 - (uint(to-1) & 63))
-		}
-		c += bits.OnesCount64(w[k] & m)
-	}
-	return c
+	return w.CountSides(2*d0+side, 2*(d1-1)+side+1, lattice.SideOf(side))
 }
 
 // regionsOnRow returns the regions with sites on row row of terrace t.
@@ -1063,7 +1046,7 @@ func (ck *coverageCheck) regionsOnRow(t, row int) []int32 {
 				continue
 			}
 			for rr := 0; rr < reg.Sites.RowCount(t) && rr < len(ck.rowRegs[t]); rr++ {
-				if w := reg.Sites.Row(t, rr); w.Any(0, len(w)*64, lattice.BothSides) {
+				if !reg.Sites.Row(t, rr).IsEmpty() {
 					ck.rowRegs[t][rr] = append(ck.rowRegs[t][rr], int32(ri))
 				}
 			}

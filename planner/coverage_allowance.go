@@ -300,7 +300,7 @@ func (ck *coverageCheck) nearOn(set *lattice.SiteSet, t int, p r2.Point, dist fl
 	rowHi := min(set.RowCount(t)-1, int(math.Ceil((ac+dist+lattice.HOffset)/lattice.RowSpacing)))
 	for r := rowLo; r <= rowHi; r++ {
 		w := set.Row(t, r)
-		if w == nil {
+		if w.IsEmpty() {
 			continue
 		}
 		for side := range 2 {

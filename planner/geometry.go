@@ -27,7 +27,7 @@ func runSegments(surf *lattice.Surface, set *lattice.SiteSet) []runSeg {
 	n := 0
 	for t := 0; t < len(surf.Terraces) && t < set.TerraceCount(); t++ {
 		for r := 0; r < set.RowCount(t); r++ {
-			if len(set.Row(t, r)) > 0 {
+			if !set.Row(t, r).IsEmpty() {
 				n++
 			}
 		}
