@@ -152,7 +152,14 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 // newCoverageCheckOwned is newCoverageCheck on strokes the check may
 // keep and change (it sets their expected missed and stray sites).
 func newCoverageCheckOwned(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof *Profile) *coverageCheck {
-	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: strokes,
+	return newCoverageCheckPainted(surf, regions, nil, strokes, prof)
+}
+
+// newCoverageCheckPainted is newCoverageCheckOwned given the union of the
+// regions' sites (painted, which the check reads and never changes), or
+// nil to make it.
+func newCoverageCheckPainted(surf *lattice.Surface, regions []CoverageRegion, painted *lattice.SiteSet, strokes []Stroke, prof *Profile) *coverageCheck {
+	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: strokes, painted: painted,
 		dwelled: lattice.NewSiteSet(),
 		acc:     make([]regionAcc, len(regions)+1), missed: make([]float64, len(strokes)), stray: make([]float64, len(strokes))}
 	// exist, allowed, rows and rowRegs are each worker's (worker).
@@ -163,7 +170,9 @@ func newCoverageCheckOwned(surf *lattice.Surface, regions []CoverageRegion, stro
 		byName[r.Name] = i
 		sets[i] = r.Sites
 	}
-	ck.painted = lattice.UnionOf(sets...)
+	if ck.painted == nil {
+		ck.painted = lattice.UnionOf(sets...)
+	}
 	if len(surf.Terraces) > 1 {
 		ck.grid = newTerraceGrid(surf)
 	}

@@ -23,13 +23,12 @@ type runSeg struct {
 
 // runSegments returns the runs of set as field segments.
 func runSegments(surf *lattice.Surface, set *lattice.SiteSet) []runSeg {
-	// About one run per row to start with.
+	// The runs counted first, so the segments take one allocation (a
+	// slanted edge has a run per site).
 	n := 0
-	for t := 0; t < len(surf.Terraces) && t < set.TerraceCount(); t++ {
-		for r := 0; r < set.RowCount(t); r++ {
-			if !set.Row(t, r).IsEmpty() {
-				n++
-			}
+	for run := range set.Runs() {
+		if run.Terrace < len(surf.Terraces) {
+			n++
 		}
 	}
 	out := make([]runSeg, 0, n)
