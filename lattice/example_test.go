@@ -191,6 +191,21 @@ func ExampleRowBits() {
 	// 5 12
 }
 
+// A set stores a terrace's rows from the first holding a site, and a
+// row's words from the first holding one: a site 5000 dimers along row
+// 900 takes one word.
+func ExampleSiteSet_RowRange() {
+	set := lattice.NewSiteSet()
+	set.Add(lattice.Site{Terrace: 0, Row: 900, Dimer: 5000})
+	set.AddRun(0, 902, 10000, 10010)
+	fmt.Println(set.RowRange(0))
+	row := set.Row(0, 900)
+	fmt.Println(row.Start(), row.End(), set.StorageWords())
+	// Output:
+	// 900 903
+	// 9984 10048 2
+}
+
 // A site painted on one side grows to its whole dimer.
 func ExampleSiteSet_WholeDimers() {
 	set := lattice.NewSiteSet()

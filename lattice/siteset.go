@@ -430,6 +430,17 @@ func (s *SiteSet) RowCount(terrace int) int {
 	return s.terraces[terrace].end()
 }
 
+// RowRange returns the rows [first, end) of the terrace the set stores:
+// every row of the terrace holding a site lies in it; first == end when
+// the set stores none.
+func (s *SiteSet) RowRange(terrace int) (first, end int) {
+	if terrace < 0 || terrace >= len(s.terraces) || len(s.terraces[terrace].rows) == 0 {
+		return 0, 0
+	}
+	tr := &s.terraces[terrace]
+	return tr.first, tr.end()
+}
+
 // All yields every site in row order: by terrace, then row, then in-row
 // index.
 func (s *SiteSet) All() iter.Seq[Site] {

@@ -170,8 +170,8 @@ func checkAgainstRef(t *testing.T, when string, s *SiteSet, ref refSet) {
 			if w.Count(-5, opsIndex+100) != inRow || w.IsEmpty() != (inRow == 0) {
 				t.Fatalf("%s: T%d R%d Count %d IsEmpty %v, want %d", when, ter, row, w.Count(-5, opsIndex+100), w.IsEmpty(), inRow)
 			}
-			if inRow > 0 && (row >= s.RowCount(ter) || w.Start() < 0) {
-				t.Fatalf("%s: T%d R%d holds sites beyond RowCount %d", when, ter, row, s.RowCount(ter))
+			if first, end := s.RowRange(ter); inRow > 0 && (row < first || row >= end || end != s.RowCount(ter)) {
+				t.Fatalf("%s: T%d R%d holds sites outside RowRange %d..%d (RowCount %d)", when, ter, row, first, end, s.RowCount(ter))
 			}
 			n += inRow
 		}

@@ -110,7 +110,7 @@ type coverageCheck struct {
 	exist    []rowDimers     // terrace -> the dimers of each row that exist
 	allowed  []rowSpans      // [region·terraces + terrace]: allowed spans per row
 	rows     []regionExtents // [region·terraces + terrace]: run extents per row
-	rowRegs  [][][]int32     // terrace -> row -> regions with sites on the row (nil: not yet)
+	rowRegs  []rowRegions    // terrace -> regions with sites on each row (starts nil: not yet)
 	arena    []float64       // cached factors of decide's nested ranges
 	who      []int32         // scanLine's strokes per dimer
 	looked   []bool          // scan's pieces whose along factors are looked up
@@ -1046,25 +1046,53 @@ func countSide(w lattice.RowBits, side, d0, d1 int) int {
 	return w.CountSides(2*d0+side, 2*(d1-1)+side+1, lattice.SideOf(side))
 }
 
-// regionsOnRow returns the regions with sites on row row of terrace t.
+// regionsOnRow returns the regions with sites on row row of terrace t,
+// in region order.
 func (ck *coverageCheck) regionsOnRow(t, row int) []int32 {
-	if ck.rowRegs[t] == nil {
-		ck.rowRegs[t] = make([][]int32, ck.surf.RowCount(t))
+	rr := &ck.rowRegs[t]
+	if rr.starts == nil {
+		// Counted per row first, then every row's list in one slice.
+		n := ck.surf.RowCount(t)
+		rr.starts = make([]int32, n+1)
+		for _, reg := range ck.regions {
+			if reg.Sites == nil {
+				continue
+			}
+			first, end := reg.Sites.RowRange(t)
+			for r := first; r < min(end, n); r++ {
+				if !reg.Sites.Row(t, r).IsEmpty() {
+					rr.starts[r+1]++
+				}
+			}
+		}
+		for r := range n {
+			rr.starts[r+1] += rr.starts[r]
+		}
+		rr.regs = make([]int32, rr.starts[n])
+		next := slices.Clone(rr.starts[:n])
 		for ri, reg := range ck.regions {
 			if reg.Sites == nil {
 				continue
 			}
-			for rr := 0; rr < reg.Sites.RowCount(t) && rr < len(ck.rowRegs[t]); rr++ {
-				if !reg.Sites.Row(t, rr).IsEmpty() {
-					ck.rowRegs[t][rr] = append(ck.rowRegs[t][rr], int32(ri))
+			first, end := reg.Sites.RowRange(t)
+			for r := first; r < min(end, n); r++ {
+				if !reg.Sites.Row(t, r).IsEmpty() {
+					rr.regs[next[r]] = int32(ri)
+					next[r]++
 				}
 			}
 		}
 	}
-	if row >= len(ck.rowRegs[t]) {
+	if row >= len(rr.starts)-1 {
 		return nil
 	}
-	return ck.rowRegs[t][row]
+	return rr.regs[rr.starts[row]:rr.starts[row+1]:rr.starts[row+1]]
+}
+
+// rowRegions is the regions with sites on each row of a terrace: row r's
+// are regs[starts[r]:starts[r+1]].
+type rowRegions struct {
+	starts, regs []int32
 }
 
 // takePainted counts r's painted sites at the exposure lo..hi (at its

@@ -291,7 +291,7 @@ func (ck *coverageCheck) worker() *coverageCheck {
 	}
 	w.allowed = make([]rowSpans, len(ck.regions)*nt)
 	w.rows = make([]regionExtents, len(ck.regions)*nt)
-	w.rowRegs = make([][][]int32, nt)
+	w.rowRegs = make([]rowRegions, nt)
 	w.acc = make([]regionAcc, len(ck.acc))
 	w.missed, w.stray = make([]float64, len(ck.missed)), make([]float64, len(ck.stray))
 	w.touched = chunkMarks{acc: make([]int32, len(ck.acc)), stroke: make([]int32, len(ck.missed))}
