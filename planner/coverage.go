@@ -109,7 +109,7 @@ type coverageCheck struct {
 	grid     *terraceGrid    // nil on a one-terrace surface
 	exist    []rowDimers     // terrace -> the dimers of each row that exist
 	allowed  []rowSpans      // [region·terraces + terrace]: allowed spans per row
-	rows     []regionExtents // [region·terraces + terrace]: run extents per row
+	rows     []regionExtents // [region·terraces + terrace]: run extents per row, made by run and shared by the workers
 	rowRegs  []rowRegions    // terrace -> regions with sites on each row (starts nil: not yet)
 	arena    []float64       // cached factors of decide's nested ranges
 	who      []int32         // scanLine's strokes per dimer
@@ -162,7 +162,8 @@ func newCoverageCheckPainted(surf *lattice.Surface, regions []CoverageRegion, pa
 	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: strokes, painted: painted,
 		dwelled: lattice.NewSiteSet(),
 		acc:     make([]regionAcc, len(regions)+1), missed: make([]float64, len(strokes)), stray: make([]float64, len(strokes))}
-	// exist, allowed, rows and rowRegs are each worker's (worker).
+	// exist, allowed and rowRegs are each worker's (worker); rows is
+	// made once by run.
 	ck.own = prof.dwellOwnExposure()
 	byName := map[string]int{}
 	sets := make([]*lattice.SiteSet, len(regions))

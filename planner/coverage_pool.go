@@ -119,6 +119,14 @@ func (ck *coverageCheck) run(ctx context.Context) error {
 			return err
 		}
 	}
+	// The regions' line extents are made once, here, and shared: the
+	// workers only read them.
+	ck.rows = make([]regionExtents, len(ck.regions)*len(ck.surf.Terraces))
+	for ri := range ck.regions {
+		for t := range ck.surf.Terraces {
+			ck.regionLines(ri, t)
+		}
+	}
 	// Every worker's copy of the check is made here, before any chunk is
 	// merged: a copy made on a worker's goroutine would read ck while the
 	// merger, on another, adds a finished chunk to it.
@@ -290,7 +298,6 @@ func (ck *coverageCheck) worker() *coverageCheck {
 		w.exist[t] = rowDimers{dimers: make([][]lattice.DimerRange, n), done: make([]bool, n)}
 	}
 	w.allowed = make([]rowSpans, len(ck.regions)*nt)
-	w.rows = make([]regionExtents, len(ck.regions)*nt)
 	w.rowRegs = make([]rowRegions, nt)
 	w.acc = make([]regionAcc, len(ck.acc))
 	w.missed, w.stray = make([]float64, len(ck.missed)), make([]float64, len(ck.stray))
