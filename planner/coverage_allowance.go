@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"sync"
 
 	"github.com/golang/geo/r1"
 	"github.com/golang/geo/r2"
@@ -260,40 +261,39 @@ func unionWidened(dst, a, b []r1.Interval, h float64) []r1.Interval {
 
 // regionLines returns, per site line of terrace t (2·row + side), the
 // along extents (dimer centres, nm from the terrace offset) of region
-// ri's runs of that side's sites, computed once.
+// ri's runs of that side's sites, computed once by the first worker that
+// asks (the workers share ck.rows).
 func (ck *coverageCheck) regionLines(ri, t int) *regionExtents {
 	e := &ck.rows[ri*len(ck.surf.Terraces)+t]
-	if e.done {
-		return e
-	}
-	e.done = true
-	set := ck.regions[ri].Sites
-	if set == nil {
-		return e
-	}
-	// Only the region's rows: the lines' extents share one slice,
-	// line l's from starts[l-l0] to starts[l-l0+1].
-	first, end := set.RowRange(t)
-	e.l0 = 2 * first
-	e.starts = make([]int32, 2*(end-first)+1)
-	e.all = make([]r1.Interval, 0, 2*(end-first))
-	for r := first; r < end; r++ {
-		w := set.Row(t, r)
-		for side := range 2 {
-			e.all = appendSideExtents(e.all, w, side)
-			e.starts[2*(r-first)+side+1] = int32(len(e.all))
+	e.once.Do(func() {
+		set := ck.regions[ri].Sites
+		if set == nil {
+			return
 		}
-	}
+		// Only the region's rows: the lines' extents share one slice,
+		// line l's from starts[l-l0] to starts[l-l0+1].
+		first, end := set.RowRange(t)
+		e.l0 = 2 * first
+		e.starts = make([]int32, 2*(end-first)+1)
+		e.all = make([]r1.Interval, 0, 2*(end-first))
+		for r := first; r < end; r++ {
+			w := set.Row(t, r)
+			for side := range 2 {
+				e.all = appendSideExtents(e.all, w, side)
+				e.starts[2*(r-first)+side+1] = int32(len(e.all))
+			}
+		}
+	})
 	return e
 }
 
 // regionExtents caches regionLines for one region and terrace: the
 // extents of site lines l0 .. l0+n()-1.
 type regionExtents struct {
+	once   sync.Once
 	l0     int
 	starts []int32
 	all    []r1.Interval
-	done   bool
 }
 
 // n returns the number of site lines e holds.

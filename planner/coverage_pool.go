@@ -119,14 +119,9 @@ func (ck *coverageCheck) run(ctx context.Context) error {
 			return err
 		}
 	}
-	// The regions' line extents are made once, here, and shared: the
-	// workers only read them.
+	// The regions' line extents are shared by the workers, each made
+	// once by the first that asks (regionLines).
 	ck.rows = make([]regionExtents, len(ck.regions)*len(ck.surf.Terraces))
-	for ri := range ck.regions {
-		for t := range ck.surf.Terraces {
-			ck.regionLines(ri, t)
-		}
-	}
 	// Every worker's copy of the check is made here, before any chunk is
 	// merged: a copy made on a worker's goroutine would read ck while the
 	// merger, on another, adds a finished chunk to it.
