@@ -219,17 +219,41 @@ func (ck *coverageCheck) allowedSpans(ri, t, l int, dist float64) []r1.Interval 
 	// Each line's extents are sorted and disjoint: merge them into the
 	// union line by line (a line with every other site painted has an
 	// extent per site, so sorting them all would cost more).
+	//
+	// The union does not depend on the order, so the lines go outward
+	// from l, the nearest (widened most) first, and a line whose extents
+	// equal the last merged line's, widened no more, adds nothing and is
+	// skipped (a pad's lines all have the same extent).
 	acc, next := ck.spanBuf[:0], ck.spanBuf2[:0]
 	y := lineY(l)
 	k := allowedReach(dist)
-	for ll := max(e.l0, l-k); ll <= l+k && ll < e.l0+e.n(); ll++ {
-		dy := math.Abs(lineY(ll) - y)
-		ext := e.line(ll)
-		if dy > dist || len(ext) == 0 {
+	lo, hi := e.l0, e.l0+e.n()
+	var last []r1.Interval
+	lastH := 0.0
+	for step := 0; step <= 2*k; step++ {
+		// l, l-1, l+1, l-2, l+2, ...
+		ll := l + (step+1)/2
+		if step%2 == 1 {
+			ll = l - (step+1)/2
+		}
+		if ll < lo || ll >= hi {
 			continue
 		}
-		next = unionWidened(next[:0], acc, ext, math.Sqrt(dist*dist-dy*dy))
+		ext := e.line(ll)
+		if len(ext) == 0 {
+			continue
+		}
+		dy := math.Abs(lineY(ll) - y)
+		if dy > dist {
+			continue
+		}
+		h := math.Sqrt(dist*dist - dy*dy)
+		if h <= lastH && slices.Equal(ext, last) {
+			continue
+		}
+		next = unionWidened(next[:0], acc, ext, h)
 		acc, next = next, acc
+		last, lastH = ext, h
 	}
 	ck.spanBuf, ck.spanBuf2 = acc, next
 	return acc
