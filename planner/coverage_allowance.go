@@ -299,7 +299,15 @@ func (ck *coverageCheck) regionLines(ri, t int) *regionExtents {
 		first, end := set.RowRange(t)
 		e.l0 = 2 * first
 		e.starts = make([]int32, 2*(end-first)+1)
-		e.all = make([]r1.Interval, 0, 2*(end-first))
+		// At most one extent per run and side: counted, so the slice
+		// is allocated once (a slanted edge has a run per site).
+		n := 0
+		for r := first; r < end; r++ {
+			for range set.Row(t, r).Runs() {
+				n += 2
+			}
+		}
+		e.all = make([]r1.Interval, 0, n)
 		for r := first; r < end; r++ {
 			w := set.Row(t, r)
 			for side := range 2 {
