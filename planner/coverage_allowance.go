@@ -220,40 +220,28 @@ func (ck *coverageCheck) allowedSpans(ri, t, l int, dist float64) []r1.Interval 
 	// union line by line (a line with every other site painted has an
 	// extent per site, so sorting them all would cost more).
 	//
-	// The union does not depend on the order, so the lines go outward
-	// from l, the nearest (widened most) first, and a line whose extents
-	// equal the last merged line's, widened no more, adds nothing and is
-	// skipped (a pad's lines all have the same extent).
+	// Lines of one run of equal extents add nothing beyond the run's
+	// line nearest l, widened most (site lines lie in order across the
+	// rows): that line alone is merged, so a pad's hundreds of equal
+	// lines cost one merge.
 	acc, next := ck.spanBuf[:0], ck.spanBuf2[:0]
 	y := lineY(l)
 	k := allowedReach(dist)
-	lo, hi := e.l0, e.l0+e.n()
-	var last []r1.Interval
-	lastH := 0.0
-	for step := 0; step <= 2*k; step++ {
-		// l, l-1, l+1, l-2, l+2, ...
-		ll := l + (step+1)/2
-		if step%2 == 1 {
-			ll = l - (step+1)/2
-		}
-		if ll < lo || ll >= hi {
-			continue
-		}
+	lo, hi := max(e.l0, l-k), min(e.l0+e.n(), l+k+1)
+	for ll := lo; ll < hi; {
+		end := min(int(e.runEnd[ll-e.l0])+e.l0, hi)
 		ext := e.line(ll)
+		near := min(max(l, ll), end-1)
+		ll = end
 		if len(ext) == 0 {
 			continue
 		}
-		dy := math.Abs(lineY(ll) - y)
+		dy := math.Abs(lineY(near) - y)
 		if dy > dist {
 			continue
 		}
-		h := math.Sqrt(dist*dist - dy*dy)
-		if h <= lastH && slices.Equal(ext, last) {
-			continue
-		}
-		next = unionWidened(next[:0], acc, ext, h)
+		next = unionWidened(next[:0], acc, ext, math.Sqrt(dist*dist-dy*dy))
 		acc, next = next, acc
-		last, lastH = ext, h
 	}
 	ck.spanBuf, ck.spanBuf2 = acc, next
 	return acc
@@ -315,6 +303,14 @@ func (ck *coverageCheck) regionLines(ri, t int) *regionExtents {
 				e.starts[2*(r-first)+side+1] = int32(len(e.all))
 			}
 		}
+		// The runs of lines with equal extents, from the last line back.
+		e.runEnd = make([]int32, e.n())
+		for j := e.n() - 1; j >= 0; j-- {
+			e.runEnd[j] = int32(j + 1)
+			if j+1 < e.n() && slices.Equal(e.line(e.l0+j), e.line(e.l0+j+1)) {
+				e.runEnd[j] = e.runEnd[j+1]
+			}
+		}
 	})
 	return e
 }
@@ -326,6 +322,9 @@ type regionExtents struct {
 	l0     int
 	starts []int32
 	all    []r1.Interval
+	// runEnd[l-l0] is one past the last line of the run of lines from
+	// l on whose extents equal l's (index relative to l0).
+	runEnd []int32
 }
 
 // n returns the number of site lines e holds.

@@ -430,8 +430,8 @@ func TestExpNeg(t *testing.T) {
 	}
 }
 
-// allowedSpans (lines taken outward from the asked line, repeats of the
-// last merged line's extents skipped) and allowedCached give, on every
+// allowedSpans (of each run of lines with equal extents only the line
+// nearest the asked one merged) and allowedCached give, on every
 // site line, the union of every region line's extents within dist,
 // each widened by what the across distance leaves: all of them sorted
 // and merged (lattice.MergeIntervals), the definition in allowedSpans'
