@@ -185,10 +185,12 @@ func ExampleRowBits() {
 	fmt.Println(row.Count(0, 64), row.Any(22, 26, lattice.Side0), row.Any(22, 26, lattice.Side1))
 	fmt.Println(slices.Collect(row.Gaps(16, 26, lattice.Side1)))
 	fmt.Println(row.DimerExtent(lattice.BothSides))
+	fmt.Println(row.RunCount(), set.RunCount())
 	// Output:
 	// 11 false true
 	// [21 23]
 	// 5 12
+	// 2 2
 }
 
 // A set stores a terrace's rows from the first holding a site, and a

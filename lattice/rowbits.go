@@ -192,6 +192,19 @@ func (w RowBits) DimerExtent(sides Sides) (first, last int) {
 	return f / 2, l / 2
 }
 
+// RunCount returns the number of maximal runs of consecutive sites of
+// the row (what Runs yields), counting each run's first site a word at
+// a time.
+func (w RowBits) RunCount() int {
+	n := 0
+	carry := uint64(0) // the previous word's last bit
+	for _, x := range w.words {
+		n += bits.OnesCount64(x &^ (x<<1 | carry))
+		carry = x >> 63
+	}
+	return n
+}
+
 // Runs yields the maximal runs of consecutive sites of the row as their
 // in-row index ranges [start, end), in order.
 func (w RowBits) Runs() iter.Seq2[int, int] {

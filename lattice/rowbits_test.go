@@ -89,6 +89,9 @@ func TestRowBitsAgainstLoop(t *testing.T) {
 		if want := slices.Collect(set.Runs()); !slices.Equal(runs, want) {
 			t.Fatalf("trial %d: RowBits.Runs = %v, SiteSet.Runs %v", trial, runs, want)
 		}
+		if w.RunCount() != len(runs) || set.RunCount() != len(runs) {
+			t.Fatalf("trial %d: RunCount %d (set %d), Runs yields %d", trial, w.RunCount(), set.RunCount(), len(runs))
+		}
 	}
 }
 

@@ -461,6 +461,17 @@ func (s *SiteSet) All() iter.Seq[Site] {
 	}
 }
 
+// RunCount returns the number of runs Runs yields.
+func (s *SiteSet) RunCount() int {
+	n := 0
+	for _, tr := range s.terraces {
+		for _, w := range tr.rows {
+			n += w.RunCount()
+		}
+	}
+	return n
+}
+
 // Runs yields the maximal runs of consecutive sites in row order.
 func (s *SiteSet) Runs() iter.Seq[Run] {
 	return func(yield func(Run) bool) {

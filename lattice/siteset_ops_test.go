@@ -139,6 +139,17 @@ func checkAgainstRef(t *testing.T, when string, s *SiteSet, ref refSet) {
 	if !slices.Equal(fromRuns, want) {
 		t.Fatalf("%s: Runs hold %v, want %v", when, fromRuns, want)
 	}
+	// Runs are maximal: a reference site starts one when the site before
+	// it is not in the reference.
+	starts := 0
+	for _, site := range want {
+		if i := site.Index(); i == 0 || !ref[SiteAt(site.Terrace, site.Row, i-1)] {
+			starts++
+		}
+	}
+	if s.RunCount() != starts {
+		t.Fatalf("%s: RunCount %d, want %d runs", when, s.RunCount(), starts)
+	}
 	byRow := map[[2]int][]Site{}
 	for _, site := range want {
 		byRow[[2]int{site.Terrace, site.Row}] = append(byRow[[2]int{site.Terrace, site.Row}], site)

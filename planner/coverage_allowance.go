@@ -291,9 +291,7 @@ func (ck *coverageCheck) regionLines(ri, t int) *regionExtents {
 		// is allocated once (a slanted edge has a run per site).
 		n := 0
 		for r := first; r < end; r++ {
-			for range set.Row(t, r).Runs() {
-				n += 2
-			}
+			n += 2 * set.Row(t, r).RunCount()
 		}
 		e.all = make([]r1.Interval, 0, n)
 		for r := first; r < end; r++ {

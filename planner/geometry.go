@@ -25,13 +25,7 @@ type runSeg struct {
 func runSegments(surf *lattice.Surface, set *lattice.SiteSet) []runSeg {
 	// The runs counted first, so the segments take one allocation (a
 	// slanted edge has a run per site).
-	n := 0
-	for run := range set.Runs() {
-		if run.Terrace < len(surf.Terraces) {
-			n++
-		}
-	}
-	out := make([]runSeg, 0, n)
+	out := make([]runSeg, 0, set.RunCount())
 	for run := range set.Runs() {
 		if run.Terrace >= len(surf.Terraces) {
 			continue
