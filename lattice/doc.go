@@ -48,7 +48,9 @@
 //
 // # Site sets and shapes
 //
-// A SiteSet is a bitset per dimer row, ordered terrace, row, index; a
+// A SiteSet is a bitset per dimer row, ordered terrace, row, index, each
+// terrace storing its rows from its first and each row its words from
+// its first (an offset beside them); a
 // row (RowBits) answers range queries a word at a time: counts, whether
 // any or all sites of a side are in a range, the sites or gaps of a
 // range, its runs. Lines are cut into intervals (r1.Interval, closed,

@@ -185,10 +185,27 @@ func ExampleRowBits() {
 	fmt.Println(row.Count(0, 64), row.Any(22, 26, lattice.Side0), row.Any(22, 26, lattice.Side1))
 	fmt.Println(slices.Collect(row.Gaps(16, 26, lattice.Side1)))
 	fmt.Println(row.DimerExtent(lattice.BothSides))
+	fmt.Println(row.RunCount(), set.RunCount())
 	// Output:
 	// 11 false true
 	// [21 23]
 	// 5 12
+	// 2 2
+}
+
+// A set stores a terrace's rows from the first holding a site, and a
+// row's words from the first holding one: a site 5000 dimers along row
+// 900 takes one word.
+func ExampleSiteSet_RowRange() {
+	set := lattice.NewSiteSet()
+	set.Add(lattice.Site{Terrace: 0, Row: 900, Dimer: 5000})
+	set.AddRun(0, 902, 10000, 10010)
+	fmt.Println(set.RowRange(0))
+	row := set.Row(0, 900)
+	fmt.Println(row.Start(), row.End(), set.StorageWords())
+	// Output:
+	// 900 903
+	// 9984 10048 2
 }
 
 // A site painted on one side grows to its whole dimer.

@@ -21,7 +21,18 @@ import (
 // number of sites it found in a (including those set already).
 func (s *Surface) Paint(set *SiteSet, a Area) int {
 	n := 0
-	s.rasterise(a, func(t, r, d0, d1, side int) {
+	// A terrace's rows at once, from its first row with a site (rows
+	// come in order, and would otherwise grow by append) to the last a's
+	// box reaches.
+	pendT, pendHi := -1, 0
+	rows := func(t, _, hi int) { pendT, pendHi = t, hi }
+	s.rasteriseRows(a, rows, func(t, r, d0, d1, side int) {
+		if t == pendT {
+			if pendHi < MaxRows {
+				set.terrace(t, true).grow(r, pendHi+1)
+			}
+			pendT = -1
+		}
 		if side < 0 {
 			set.AddRun(t, r, 2*d0, 2*d1+2)
 			n += 2 * (d1 - d0 + 1)
@@ -70,6 +81,13 @@ func (s *Surface) PaintDimer(set *SiteSet, terrace, row, dimer int) bool {
 // range of dimers d0..d1 (inclusive) of one row whose side-`side` sites
 // exist and lie in a; side is -1 when both sides of the range lie in a.
 func (s *Surface) rasterise(a Area, emit func(t, r, d0, d1, side int)) {
+	s.rasteriseRows(a, nil, emit)
+}
+
+// rasteriseRows is rasterise that first calls rows(terrace, lo, hi),
+// when not nil, with each terrace's rows lo..hi (inclusive, lo <= hi)
+// that a's box may reach.
+func (s *Surface) rasteriseRows(a Area, rows func(t, lo, hi int), emit func(t, r, d0, d1, side int)) {
 	b := a.Bounds()
 	if b.IsEmpty() || !b.Intersects(s.Field.ExpandedByMargin(HOffset)) {
 		return
@@ -85,6 +103,9 @@ func (s *Surface) rasterise(a Area, emit func(t, r, d0, d1, side int)) {
 		nRows, nDimers := s.RowCount(ti), s.DimerCount(ti)
 		rowLo := max(0, int(math.Ceil((bAcross.Lo-HOffset-offAcross)/RowSpacing-1e-9)))
 		rowHi := min(nRows-1, int(math.Floor((bAcross.Hi+HOffset-offAcross)/RowSpacing+1e-9)))
+		if rows != nil && rowLo <= rowHi {
+			rows(ti, rowLo, rowHi)
+		}
 		for r := rowLo; r <= rowHi; r++ {
 			c := offAcross + RowAcross(r)
 			terr = s.TerraceSpans(terr[:0], ti, c)
@@ -147,17 +168,22 @@ func (s *Surface) TerraceSpans(dst []r1.Interval, t int, across float64) []r1.In
 	if across < fieldAcross.Lo-spanEps || across > fieldAcross.Hi+spanEps {
 		return dst
 	}
-	field := []r1.Interval{{Lo: fieldAlong.Lo - spanEps, Hi: fieldAlong.Hi + spanEps}}
+	// Scratch on the stack for the usual few spans (Paint and RowDimers
+	// call this once per row); longer lists spill to the heap.
+	var fieldBuf [1]r1.Interval
+	var ownBuf, takenBuf, clippedBuf [8]r1.Interval
+	field := append(fieldBuf[:0], r1.Interval{Lo: fieldAlong.Lo - spanEps, Hi: fieldAlong.Hi + spanEps})
 	var own []r1.Interval
 	var earlier []int
 	switch {
 	case len(tr.Boundary) >= 3:
-		own = Polygon(tr.Boundary).Spans(nil, tr.Rows, across)
-		for _, j := range s.bounded {
+		own = Polygon(tr.Boundary).Spans(ownBuf[:0], tr.Rows, across)
+		earlier = s.bounded
+		for k, j := range s.bounded {
 			if j == t {
+				earlier = s.bounded[:k]
 				break
 			}
-			earlier = append(earlier, j)
 		}
 	case t == s.fallback:
 		own = field
@@ -165,12 +191,12 @@ func (s *Surface) TerraceSpans(dst []r1.Interval, t int, across float64) []r1.In
 	default:
 		return dst // a second terrace without boundary holds nothing
 	}
-	var taken []r1.Interval
+	taken := takenBuf[:0]
 	for _, j := range earlier {
 		taken = Polygon(s.Terraces[j].Boundary).Spans(taken, tr.Rows, across)
 	}
 	taken = NormalizeIntervals(taken)
-	clipped := IntersectIntervals(nil, own, field)
+	clipped := IntersectIntervals(clippedBuf[:0], own, field)
 	return SubtractIntervals(dst, clipped, taken)
 }
 
@@ -184,16 +210,16 @@ func (s *Surface) Missing(set *SiteSet) *SiteSet {
 		if t >= len(s.Terraces) {
 			continue // every site of an unknown terrace is missing
 		}
-		for r, w := range out.terraces[t] {
-			if len(w) == 0 {
+		tr := &out.terraces[t]
+		for j := range tr.rows {
+			w := &tr.rows[j]
+			if len(w.words) == 0 {
 				continue
 			}
-			dims = s.RowDimers(dims[:0], t, r)
+			dims = s.RowDimers(dims[:0], t, tr.first+j)
 			for _, d := range dims {
 				from, to := d.Sites()
-				if to = min(to, len(w)*64); from < to {
-					setRange(w, from, to, false)
-				}
+				w.setPattern(from, to, ^uint64(0), false)
 			}
 		}
 	}

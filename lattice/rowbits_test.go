@@ -12,16 +12,19 @@ import (
 func TestRowBitsAgainstLoop(t *testing.T) {
 	rng := rand.New(rand.NewPCG(21, 22))
 	for trial := range 300 {
+		// Rows whose sites start at index 0, a few words along and far
+		// along (a row stores its words from its first site on).
+		base := []int{0, 640, 6400 + 17}[trial%3]
 		set := NewSiteSet()
 		for range rng.IntN(6) {
-			from := rng.IntN(300)
+			from := base + rng.IntN(300)
 			set.AddRun(0, 0, from, from+1+rng.IntN(70))
 		}
 		for range rng.IntN(20) {
-			set.Add(SiteAt(0, 0, rng.IntN(300)))
+			set.Add(SiteAt(0, 0, base+rng.IntN(300)))
 		}
 		w := set.Row(0, 0)
-		from := rng.IntN(400) - 20
+		from := base + rng.IntN(400) - 100
 		to := from + rng.IntN(200)
 		for _, sides := range []Sides{Side0, Side1, BothSides} {
 			selected := func(i int) bool { return SideOf(i&1)&sides != 0 }
@@ -85,6 +88,9 @@ func TestRowBitsAgainstLoop(t *testing.T) {
 		}
 		if want := slices.Collect(set.Runs()); !slices.Equal(runs, want) {
 			t.Fatalf("trial %d: RowBits.Runs = %v, SiteSet.Runs %v", trial, runs, want)
+		}
+		if w.RunCount() != len(runs) || set.RunCount() != len(runs) {
+			t.Fatalf("trial %d: RunCount %d (set %d), Runs yields %d", trial, w.RunCount(), set.RunCount(), len(runs))
 		}
 	}
 }

@@ -9,14 +9,58 @@ import (
 )
 
 // SiteSet is a set of H sites stored as one bitset per dimer row: bit i of
-// row r on terrace t is the site with in-row Index i. A full 1 µm x 1 µm
-// field (about 6.8 million sites) takes under 1 MB, and union, difference
-// and counting work a 64-bit word at a time.
+// row r on terrace t is the site with in-row Index i. A terrace stores
+// its rows from the first row it was given on, and a row its words from
+// the first word it was given on (RowBits), so a set far from the
+// field's origin does not hold the zeros before it. A full 1 µm x 1 µm
+// field (about 6.8 million sites) takes under 1 MB, and union,
+// difference and counting work a 64-bit word at a time.
 //
 // The zero value is an empty set ready to use. A SiteSet is not safe for
 // concurrent mutation.
 type SiteSet struct {
-	terraces [][]RowBits // [terrace][row]
+	terraces []terraceRows // [terrace]
+}
+
+// terraceRows is the stored rows of one terrace: rows[j] is row first+j.
+type terraceRows struct {
+	first int
+	rows  []RowBits
+}
+
+// end returns one more than the terrace's last stored row (0 when it
+// stores none).
+func (tr *terraceRows) end() int {
+	if len(tr.rows) == 0 {
+		return 0
+	}
+	return tr.first + len(tr.rows)
+}
+
+// at returns the row, or the empty row when it is not stored.
+func (tr *terraceRows) at(row int) RowBits {
+	if j := row - tr.first; uint(j) < uint(len(tr.rows)) {
+		return tr.rows[j]
+	}
+	return RowBits{}
+}
+
+// grow makes the terrace store rows [lo, hi) (lo < hi), keeping its rows;
+// as RowBits.ensure, growth either way costs amortised O(rows).
+func (tr *terraceRows) grow(lo, hi int) {
+	n := len(tr.rows)
+	switch {
+	case n == 0:
+		tr.first, tr.rows = lo, make([]RowBits, hi-lo)
+	case lo >= tr.first && hi <= tr.first+n:
+	case lo >= tr.first:
+		tr.rows = append(tr.rows, make([]RowBits, hi-tr.first-n)...)
+	default:
+		start, end := max(0, min(lo, tr.first-n)), max(hi, tr.first+n)
+		rows := make([]RowBits, end-start)
+		copy(rows[tr.first-start:], tr.rows)
+		tr.first, tr.rows = start, rows
+	}
 }
 
 // Run is a maximal run of consecutive sites on one row: indices
@@ -32,6 +76,21 @@ func (r Run) End() int { return r.Start + r.Len }
 // NewSiteSet returns an empty set.
 func NewSiteSet() *SiteSet { return &SiteSet{} }
 
+// terrace returns terrace t's rows, adding storage for the terrace when
+// grow is set, or nil.
+func (s *SiteSet) terrace(t int, grow bool) *terraceRows {
+	if t >= len(s.terraces) {
+		if !grow {
+			return nil
+		}
+		if t >= MaxTerraces {
+			panic("lattice: site address beyond MaxTerraces or MaxRows")
+		}
+		s.terraces = append(s.terraces, make([]terraceRows, t+1-len(s.terraces))...)
+	}
+	return &s.terraces[t]
+}
+
 func (s *SiteSet) row(terrace, row int, grow bool) *RowBits {
 	if terrace < 0 || row < 0 {
 		panic("lattice: negative site address")
@@ -39,30 +98,18 @@ func (s *SiteSet) row(terrace, row int, grow bool) *RowBits {
 	if grow && (terrace >= MaxTerraces || row >= MaxRows) {
 		panic("lattice: site address beyond MaxTerraces or MaxRows")
 	}
-	if terrace >= len(s.terraces) {
-		if !grow {
-			return nil
-		}
-		s.terraces = append(s.terraces, make([][]RowBits, terrace+1-len(s.terraces))...)
+	tr := s.terrace(terrace, grow)
+	if tr == nil {
+		return nil
 	}
-	rows := s.terraces[terrace]
-	if row >= len(rows) {
-		if !grow {
-			return nil
-		}
-		rows = append(rows, make([]RowBits, row+1-len(rows))...)
-		s.terraces[terrace] = rows
+	if j := row - tr.first; uint(j) < uint(len(tr.rows)) {
+		return &tr.rows[j]
 	}
-	return &rows[row]
-}
-
-func (r *RowBits) ensure(words int) {
-	if words > MaxRowIndex/64 {
-		panic("lattice: site index beyond MaxRowIndex")
+	if !grow {
+		return nil
 	}
-	if len(*r) < words {
-		*r = append(*r, make([]uint64, words-len(*r))...)
-	}
+	tr.grow(row, row+1)
+	return &tr.rows[row-tr.first]
 }
 
 // Add inserts the site. It panics on a negative address or a side other
@@ -73,8 +120,8 @@ func (s *SiteSet) Add(site Site) {
 		panic("lattice: invalid site address " + site.String())
 	}
 	r := s.row(site.Terrace, site.Row, true)
-	r.ensure(i/64 + 1)
-	(*r)[i/64] |= 1 << (uint(i) % 64)
+	r.ensure(i>>6, i>>6+1)
+	r.words[i>>6-r.off] |= 1 << (uint(i) % 64)
 }
 
 // Remove deletes the site if present.
@@ -84,10 +131,10 @@ func (s *SiteSet) Remove(site Site) {
 	}
 	r := s.row(site.Terrace, site.Row, false)
 	i := site.Index()
-	if r == nil || i/64 >= len(*r) {
+	if r == nil || !r.Contains(i) {
 		return
 	}
-	(*r)[i/64] &^= 1 << (uint(i) % 64)
+	r.words[i>>6-r.off] &^= 1 << (uint(i) % 64)
 }
 
 // Contains reports whether the site is in the set.
@@ -95,12 +142,7 @@ func (s *SiteSet) Contains(site Site) bool {
 	if site.Dimer < 0 || site.Terrace < 0 || site.Row < 0 || site.Side < 0 || site.Side > 1 {
 		return false
 	}
-	r := s.row(site.Terrace, site.Row, false)
-	i := site.Index()
-	if r == nil || i/64 >= len(*r) {
-		return false
-	}
-	return (*r)[i/64]&(1<<(uint(i)%64)) != 0
+	return s.Row(site.Terrace, site.Row).Contains(site.Index())
 }
 
 // AddRun inserts the sites with in-row indices [from, to) of one row.
@@ -112,9 +154,7 @@ func (s *SiteSet) AddRun(terrace, row, from, to int) {
 	if to <= from {
 		return
 	}
-	r := s.row(terrace, row, true)
-	r.ensure((to-1)/64 + 1)
-	setRange(*r, from, to, true)
+	s.row(terrace, row, true).setPattern(from, to, ^uint64(0), true)
 }
 
 // RemoveRun deletes the sites with in-row indices [from, to) of one row.
@@ -122,40 +162,8 @@ func (s *SiteSet) RemoveRun(terrace, row, from, to int) {
 	if terrace < 0 || row < 0 {
 		return
 	}
-	r := s.row(terrace, row, false)
-	if r == nil {
-		return
-	}
-	from = max(from, 0)
-	to = min(to, len(*r)*64)
-	if to <= from {
-		return
-	}
-	setRange(*r, from, to, false)
-}
-
-// setRange sets or clears bits [from, to) of w, which must be long enough.
-func setRange(w []uint64, from, to int, on bool) {
-	setPattern(w, from, to, ^uint64(0), on)
-}
-
-// setPattern sets or clears the bits [from, to) of w that are also set in
-// the repeating 64-bit pattern, a word at a time; w must be long enough.
-func setPattern(w []uint64, from, to int, pattern uint64, on bool) {
-	fw, tw := from/64, (to-1)/64
-	for k := fw; k <= tw; k++ {
-		mask := pattern
-		if k == fw {
-			mask &= ^uint64(0) << (uint(from) % 64)
-		}
-		if k == tw {
-			mask &= ^uint64(0) >> (63 - uint(to-1)%64)
-		}
-		if on {
-			w[k] |= mask
-		} else {
-			w[k] &^= mask
-		}
+	if r := s.row(terrace, row, false); r != nil {
+		r.setPattern(from, to, ^uint64(0), false)
 	}
 }
 
@@ -167,42 +175,37 @@ var sidePattern = [2]uint64{0x5555555555555555, 0xAAAAAAAAAAAAAAAA}
 // d0..d1 (inclusive) of one row, a word at a time.
 func (s *SiteSet) setStrided(terrace, row, d0, d1, side int, on bool) {
 	from, to := 2*d0+side, 2*d1+side+1
-	if d0 < 0 || to <= from {
-		if d0 < 0 {
-			panic("lattice: negative site address")
-		}
+	if d0 < 0 {
+		panic("lattice: negative site address")
+	}
+	if to <= from {
 		return
 	}
 	if !on {
 		if terrace < 0 || row < 0 {
 			return
 		}
-		r := s.row(terrace, row, false)
-		if r == nil {
-			return
-		}
-		to = min(to, len(*r)*64)
-		if to > from {
-			setPattern(*r, from, to, sidePattern[side], false)
+		if r := s.row(terrace, row, false); r != nil {
+			r.setPattern(from, to, sidePattern[side], false)
 		}
 		return
 	}
-	r := s.row(terrace, row, true)
-	r.ensure((to-1)/64 + 1)
-	setPattern(*r, from, to, sidePattern[side], true)
+	s.row(terrace, row, true).setPattern(from, to, sidePattern[side], true)
 }
 
 // Union adds every site of o to s and returns s.
 func (s *SiteSet) Union(o *SiteSet) *SiteSet {
-	for t, rows := range o.terraces {
-		for r, bitsO := range rows {
-			if len(bitsO) == 0 {
+	for t := range o.terraces {
+		otr := &o.terraces[t]
+		for j, w := range otr.rows {
+			if w = w.trimmed(); len(w.words) == 0 {
 				continue
 			}
-			dst := s.row(t, r, true)
-			dst.ensure(len(bitsO))
-			for k, w := range bitsO {
-				(*dst)[k] |= w
+			dst := s.row(t, otr.first+j, true)
+			dst.ensure(w.off, w.off+len(w.words))
+			d := dst.words[w.off-dst.off:]
+			for k, x := range w.words {
+				d[k] |= x
 			}
 		}
 	}
@@ -210,48 +213,72 @@ func (s *SiteSet) Union(o *SiteSet) *SiteSet {
 }
 
 // UnionOf returns a new set holding every site of the given sets (nil
-// sets count as empty). Each row is allocated once, as long as the
-// longest of that row among the sets, so the cost is one pass over the
-// sets' words: cheaper than Union into an empty set when rows grow set
-// by set.
+// sets count as empty). Each terrace's words take one allocation, each
+// row as long as the stored span of its sites among the sets, so the
+// cost is one pass over the sets' words: cheaper than Union into an
+// empty set when rows grow set by set.
 func UnionOf(sets ...*SiteSet) *SiteSet {
-	u := &SiteSet{}
+	nt := 0
 	for _, o := range sets {
-		if o == nil {
-			continue
-		}
-		for len(u.terraces) < len(o.terraces) {
-			u.terraces = append(u.terraces, nil)
-		}
-		for t, rows := range o.terraces {
-			if len(rows) > len(u.terraces[t]) {
-				u.terraces[t] = append(u.terraces[t], make([]RowBits, len(rows)-len(u.terraces[t]))...)
-			}
+		if o != nil {
+			nt = max(nt, len(o.terraces))
 		}
 	}
-	// Row lengths first, then one allocation per row.
-	for t, rows := range u.terraces {
-		for r := range rows {
-			n := 0
+	u := &SiteSet{terraces: make([]terraceRows, nt)}
+	var ends []int // per row of a terrace, one past its last word
+	for t := range u.terraces {
+		// The rows' range, then each row's word range, then one
+		// allocation for the terrace's words.
+		lo, hi := math.MaxInt, 0
+		for _, o := range sets {
+			if o != nil && t < len(o.terraces) && len(o.terraces[t].rows) > 0 {
+				lo, hi = min(lo, o.terraces[t].first), max(hi, o.terraces[t].end())
+			}
+		}
+		if lo >= hi {
+			continue
+		}
+		utr := &u.terraces[t]
+		utr.first, utr.rows = lo, make([]RowBits, hi-lo)
+		ends = append(ends[:0], make([]int, hi-lo)...)
+		total := 0
+		for j := range utr.rows {
+			wlo, whi := math.MaxInt, 0
 			for _, o := range sets {
-				if o != nil && t < len(o.terraces) && r < len(o.terraces[t]) {
-					n = max(n, len(o.terraces[t][r]))
+				if o == nil || t >= len(o.terraces) {
+					continue
+				}
+				if w := o.terraces[t].at(lo + j).trimmed(); len(w.words) > 0 {
+					wlo, whi = min(wlo, w.off), max(whi, w.off+len(w.words))
 				}
 			}
-			if n > 0 {
-				rows[r] = make(RowBits, n)
+			if wlo < whi {
+				utr.rows[j].off, ends[j] = wlo, whi
+				total += whi - wlo
 			}
 		}
-	}
-	for _, o := range sets {
-		if o == nil {
-			continue
+		buf := make([]uint64, total)
+		for j := range utr.rows {
+			if n := ends[j] - utr.rows[j].off; n > 0 {
+				// Capped, so a row that grows later reallocates
+				// instead of running into the next row's words.
+				utr.rows[j].words, buf = buf[:n:n], buf[n:]
+			}
 		}
-		for t, rows := range o.terraces {
-			for r, w := range rows {
-				dst := u.terraces[t][r]
-				for k, x := range w {
-					dst[k] |= x
+		for _, o := range sets {
+			if o == nil || t >= len(o.terraces) {
+				continue
+			}
+			otr := &o.terraces[t]
+			for j, w := range otr.rows {
+				w = w.trimmed()
+				if len(w.words) == 0 {
+					continue
+				}
+				dst := &utr.rows[otr.first+j-lo]
+				d := dst.words[w.off-dst.off:]
+				for k, x := range w.words {
+					d[k] |= x
 				}
 			}
 		}
@@ -261,17 +288,16 @@ func UnionOf(sets ...*SiteSet) *SiteSet {
 
 // Difference removes every site of o from s and returns s.
 func (s *SiteSet) Difference(o *SiteSet) *SiteSet {
-	for t, rows := range s.terraces {
+	for t := range s.terraces {
 		if t >= len(o.terraces) {
 			break
 		}
-		for r := range rows {
-			if r >= len(o.terraces[t]) {
-				break
-			}
-			a, b := rows[r], o.terraces[t][r]
-			for k := 0; k < len(a) && k < len(b); k++ {
-				a[k] &^= b[k]
+		str, otr := &s.terraces[t], &o.terraces[t]
+		for j := range str.rows {
+			a, b := str.rows[j], otr.at(str.first+j)
+			lo, hi := max(a.off, b.off), min(a.off+len(a.words), b.off+len(b.words))
+			for k := lo; k < hi; k++ {
+				a.words[k-a.off] &^= b.words[k-b.off]
 			}
 		}
 	}
@@ -280,19 +306,16 @@ func (s *SiteSet) Difference(o *SiteSet) *SiteSet {
 
 // Intersect keeps only the sites of s that are also in o and returns s.
 func (s *SiteSet) Intersect(o *SiteSet) *SiteSet {
-	for t, rows := range s.terraces {
-		for r := range rows {
-			a := rows[r]
-			var b RowBits
-			if t < len(o.terraces) && r < len(o.terraces[t]) {
-				b = o.terraces[t][r]
-			}
-			for k := range a {
-				if k < len(b) {
-					a[k] &= b[k]
-				} else {
-					a[k] = 0
-				}
+	for t := range s.terraces {
+		str := &s.terraces[t]
+		var otr terraceRows
+		if t < len(o.terraces) {
+			otr = o.terraces[t]
+		}
+		for j := range str.rows {
+			a, b := str.rows[j], otr.at(str.first+j)
+			for k := range a.words {
+				a.words[k] &= b.word(a.off + k)
 			}
 		}
 	}
@@ -301,17 +324,13 @@ func (s *SiteSet) Intersect(o *SiteSet) *SiteSet {
 
 // Intersects reports whether s and o share at least one site.
 func (s *SiteSet) Intersects(o *SiteSet) bool {
-	for t, rows := range s.terraces {
-		if t >= len(o.terraces) {
-			return false
-		}
-		for r, a := range rows {
-			if r >= len(o.terraces[t]) {
-				break
-			}
-			b := o.terraces[t][r]
-			for k := 0; k < len(a) && k < len(b); k++ {
-				if a[k]&b[k] != 0 {
+	for t := range min(len(s.terraces), len(o.terraces)) {
+		str, otr := &s.terraces[t], &o.terraces[t]
+		for j, a := range str.rows {
+			b := otr.at(str.first + j)
+			lo, hi := max(a.off, b.off), min(a.off+len(a.words), b.off+len(b.words))
+			for k := lo; k < hi; k++ {
+				if a.words[k-a.off]&b.words[k-b.off] != 0 {
 					return true
 				}
 			}
@@ -323,39 +342,47 @@ func (s *SiteSet) Intersects(o *SiteSet) bool {
 // Count returns the number of sites in the set.
 func (s *SiteSet) Count() int {
 	n := 0
-	for _, rows := range s.terraces {
-		for _, r := range rows {
-			for _, w := range r {
-				n += bits.OnesCount64(w)
-			}
-		}
+	for t := range s.terraces {
+		n += s.CountTerrace(t)
 	}
 	return n
 }
 
 // IsEmpty reports whether the set holds no site.
 func (s *SiteSet) IsEmpty() bool {
-	for _, rows := range s.terraces {
-		for _, r := range rows {
-			for _, w := range r {
-				if w != 0 {
-					return false
-				}
+	for _, tr := range s.terraces {
+		for _, w := range tr.rows {
+			if !w.IsEmpty() {
+				return false
 			}
 		}
 	}
 	return true
 }
 
-// Clone returns an independent copy of s.
+// Clone returns an independent copy of s. The copy stores only the rows
+// and words from the first to the last holding a site, each terrace's
+// words in one allocation.
 func (s *SiteSet) Clone() *SiteSet {
-	c := &SiteSet{terraces: make([][]RowBits, len(s.terraces))}
-	for t, rows := range s.terraces {
-		c.terraces[t] = make([]RowBits, len(rows))
-		for r, b := range rows {
-			if len(b) > 0 {
-				c.terraces[t][r] = append(RowBits(nil), b...)
+	c := &SiteSet{terraces: make([]terraceRows, len(s.terraces))}
+	for t, tr := range s.terraces {
+		j0, j1, total := len(tr.rows), 0, 0
+		for j, w := range tr.rows {
+			if n := len(w.trimmed().words); n > 0 {
+				j0, j1, total = min(j0, j), j+1, total+n
 			}
+		}
+		if j0 >= j1 {
+			continue
+		}
+		ctr := &c.terraces[t]
+		ctr.first, ctr.rows = tr.first+j0, make([]RowBits, j1-j0)
+		buf := make([]uint64, total)
+		for j, w := range tr.rows[j0:j1] {
+			w = w.trimmed()
+			n := copy(buf, w.words)
+			ctr.rows[j] = RowBits{off: w.off, words: buf[:n:n]}
+			buf = buf[n:]
 		}
 	}
 	return c
@@ -363,18 +390,14 @@ func (s *SiteSet) Clone() *SiteSet {
 
 // Equal reports whether s and o hold the same sites.
 func (s *SiteSet) Equal(o *SiteSet) bool {
-	word := func(x *SiteSet, t, r, k int) uint64 {
-		if t < len(x.terraces) && r < len(x.terraces[t]) && k < len(x.terraces[t][r]) {
-			return x.terraces[t][r][k]
-		}
-		return 0
-	}
 	for _, pair := range [2][2]*SiteSet{{s, o}, {o, s}} {
 		a, b := pair[0], pair[1]
-		for t, rows := range a.terraces {
-			for r, w := range rows {
-				for k := range w {
-					if w[k] != word(b, t, r, k) {
+		for t := range a.terraces {
+			atr := &a.terraces[t]
+			for j, w := range atr.rows {
+				other := b.Row(t, atr.first+j)
+				for k, x := range w.words {
+					if x != other.word(w.off+k) {
 						return false
 					}
 				}
@@ -385,13 +408,13 @@ func (s *SiteSet) Equal(o *SiteSet) bool {
 }
 
 // Row returns the sites of one row as a bitset, bit i for in-row index
-// i, or nil. It aliases the set's storage: read it, do not keep or
-// change it.
+// i; it is empty for a row the set does not store. It aliases the set's
+// storage: read it, do not keep or change it.
 func (s *SiteSet) Row(terrace, row int) RowBits {
-	if terrace < 0 || row < 0 || terrace >= len(s.terraces) || row >= len(s.terraces[terrace]) {
-		return nil
+	if terrace < 0 || terrace >= len(s.terraces) {
+		return RowBits{}
 	}
-	return s.terraces[terrace][row]
+	return s.terraces[terrace].at(row)
 }
 
 // TerraceCount returns one more than the highest terrace index the set
@@ -404,20 +427,31 @@ func (s *SiteSet) RowCount(terrace int) int {
 	if terrace < 0 || terrace >= len(s.terraces) {
 		return 0
 	}
-	return len(s.terraces[terrace])
+	return s.terraces[terrace].end()
+}
+
+// RowRange returns the rows [first, end) of the terrace the set stores:
+// every row of the terrace holding a site lies in it; first == end when
+// the set stores none.
+func (s *SiteSet) RowRange(terrace int) (first, end int) {
+	if terrace < 0 || terrace >= len(s.terraces) || len(s.terraces[terrace].rows) == 0 {
+		return 0, 0
+	}
+	tr := &s.terraces[terrace]
+	return tr.first, tr.end()
 }
 
 // All yields every site in row order: by terrace, then row, then in-row
 // index.
 func (s *SiteSet) All() iter.Seq[Site] {
 	return func(yield func(Site) bool) {
-		for t, rows := range s.terraces {
-			for r, w := range rows {
-				for k, word := range w {
+		for t, tr := range s.terraces {
+			for j, w := range tr.rows {
+				for k, word := range w.words {
 					for word != 0 {
 						b := bits.TrailingZeros64(word)
 						word &= word - 1
-						if !yield(SiteAt(t, r, k*64+b)) {
+						if !yield(SiteAt(t, tr.first+j, (w.off+k)*64+b)) {
 							return
 						}
 					}
@@ -427,11 +461,23 @@ func (s *SiteSet) All() iter.Seq[Site] {
 	}
 }
 
+// RunCount returns the number of runs Runs yields.
+func (s *SiteSet) RunCount() int {
+	n := 0
+	for _, tr := range s.terraces {
+		for _, w := range tr.rows {
+			n += w.RunCount()
+		}
+	}
+	return n
+}
+
 // Runs yields the maximal runs of consecutive sites in row order.
 func (s *SiteSet) Runs() iter.Seq[Run] {
 	return func(yield func(Run) bool) {
-		for t, rows := range s.terraces {
-			for r, w := range rows {
+		for t, tr := range s.terraces {
+			for j, w := range tr.rows {
+				r := tr.first + j
 				if !eachRun(w, func(start, end int) bool {
 					return yield(Run{Terrace: t, Row: r, Start: start, Len: end - start})
 				}) {
@@ -445,8 +491,8 @@ func (s *SiteSet) Runs() iter.Seq[Run] {
 // eachRun calls f(start, end) for each maximal run of set bits of w, and
 // reports whether it ran to the end.
 func eachRun(w RowBits, f func(start, end int) bool) bool {
-	n := len(w) * 64
-	i := nextBit(w, 0, true)
+	n := w.End()
+	i := nextBit(w, w.Start(), true)
 	for i < n {
 		j := nextBit(w, i, false)
 		if !f(i, j) {
@@ -457,28 +503,28 @@ func eachRun(w RowBits, f func(start, end int) bool) bool {
 	return true
 }
 
-// nextBit returns the first index >= from whose bit equals on, or
-// len(w)*64 if none.
+// nextBit returns the first index >= from (from at least w.Start())
+// whose bit equals on, or w.End() if none.
 func nextBit(w RowBits, from int, on bool) int {
-	n := len(w) * 64
+	n := w.End()
 	if from >= n {
 		return n
 	}
-	k := from / 64
-	word := w[k]
+	k := from>>6 - w.off
+	word := w.words[k]
 	if !on {
 		word = ^word
 	}
 	word &= ^uint64(0) << (uint(from) % 64)
 	for {
 		if word != 0 {
-			return k*64 + bits.TrailingZeros64(word)
+			return (w.off+k)*64 + bits.TrailingZeros64(word)
 		}
 		k++
-		if k == len(w) {
+		if k == len(w.words) {
 			return n
 		}
-		word = w[k]
+		word = w.words[k]
 		if !on {
 			word = ^word
 		}
@@ -511,28 +557,22 @@ func (s *SiteSet) CellBounds(surf *Surface) r2.Rect {
 // loose bound by at most one side's offset when that side is absent).
 func (s *SiteSet) bounds(surf *Surface, corner func(first, last Site) r2.Rect) r2.Rect {
 	b := r2.EmptyRect()
-	for t, rows := range s.terraces {
+	for t, tr := range s.terraces {
 		if t >= len(surf.Terraces) {
 			break
 		}
 		lo, hi := math.MaxInt, -1
 		rlo, rhi := -1, -1
-		for r, w := range rows {
-			first := nextBit(w, 0, true)
-			if first == len(w)*64 {
+		for j, w := range tr.rows {
+			first, last := w.extent(^uint64(0))
+			if first < 0 {
 				continue
 			}
 			if rlo < 0 {
-				rlo = r
+				rlo = tr.first + j
 			}
-			rhi = r
-			lo = min(lo, first)
-			for k := len(w) - 1; k >= 0; k-- {
-				if w[k] != 0 {
-					hi = max(hi, k*64+63-bits.LeadingZeros64(w[k]))
-					break
-				}
-			}
+			rhi = tr.first + j
+			lo, hi = min(lo, first), max(hi, last)
 		}
 		if rlo < 0 {
 			continue

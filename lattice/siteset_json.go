@@ -45,9 +45,9 @@ func (e *SiteSetError) Error() string {
 // a measure of its memory use (8 bytes a word).
 func (s *SiteSet) StorageWords() int {
 	n := 0
-	for _, rows := range s.terraces {
-		for _, r := range rows {
-			n += len(r)
+	for _, tr := range s.terraces {
+		for _, r := range tr.rows {
+			n += len(r.words)
 		}
 	}
 	return n
@@ -68,9 +68,10 @@ func (s *SiteSet) MarshalJSON() ([]byte, error) {
 	b = strconv.AppendInt(b, int64(s.Count()), 10)
 	b = append(b, `,"rows":[`...)
 	first := true
-	for t, rows := range s.terraces {
-		for r, w := range rows {
-			if isZero(w) {
+	for t, tr := range s.terraces {
+		for j, w := range tr.rows {
+			r := tr.first + j
+			if w.IsEmpty() {
 				continue
 			}
 			if !first {
@@ -93,15 +94,6 @@ func (s *SiteSet) MarshalJSON() ([]byte, error) {
 	}
 	b = append(b, "]}"...)
 	return b, nil
-}
-
-func isZero(w RowBits) bool {
-	for _, x := range w {
-		if x != 0 {
-			return false
-		}
-	}
-	return true
 }
 
 // UnmarshalJSON decodes the encoding of MarshalJSON into s, replacing its
@@ -197,7 +189,7 @@ func (s *SiteSet) UnmarshalJSON(data []byte) error {
 				return &SiteSetError{Msg: fmt.Sprintf("holds more than %d sites, the limit", MaxSiteSetSites)}
 			}
 		}
-		words += (end + 63) / 64
+		words += (end+63)/64 - cur.runs[0].start/64
 		if words > MaxSiteSetWords {
 			return &SiteSetError{Path: path, Msg: fmt.Sprintf("the set needs more than %d words (%d MiB) of storage, the limit", MaxSiteSetWords, MaxSiteSetWords*8>>20)}
 		}
@@ -208,6 +200,9 @@ func (s *SiteSet) UnmarshalJSON(data []byte) error {
 	}
 	*s = SiteSet{}
 	for _, p := range parsed {
+		// The row's words at once, so its storage is what the limit
+		// above counted.
+		s.row(p.t, p.r, true).ensure(p.runs[0].start>>6, (p.runs[len(p.runs)-1].end-1)>>6+1)
 		for _, ru := range p.runs {
 			s.AddRun(p.t, p.r, ru.start, ru.end)
 		}

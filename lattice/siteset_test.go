@@ -192,8 +192,9 @@ func TestSiteSetJSONRefuses(t *testing.T) {
 	}
 }
 
-// storageBomb is 20000 rows of one site each at the far end of a row: few
-// sites, but 4096 words each.
+// storageBomb is 20000 rows of two sites each, at the start and at the
+// far end of a row: few sites, but 4096 words each (a row stores its
+// words from its first site to its last).
 func storageBomb() string {
 	var b strings.Builder
 	for r := range 20000 {
@@ -202,7 +203,7 @@ func storageBomb() string {
 		}
 		b.WriteString(`[0,`)
 		b.WriteString(strconv.Itoa(r))
-		b.WriteString(`,262000,1]`)
+		b.WriteString(`,0,1,262000,1]`)
 	}
 	return b.String()
 }

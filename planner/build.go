@@ -118,6 +118,11 @@ type builder struct {
 	strokes  []Stroke
 	warnings []string
 
+	// painted is the union of the regions' sites, made once for the
+	// windows (openWindows) and the coverage check, and dropped when the
+	// check has it.
+	painted *lattice.SiteSet
+
 	model  segModel // the planning values (session.go)
 	costs  costs
 	stepOf []int // the step of each stroke
@@ -248,7 +253,8 @@ func (b *builder) startCoverage() *coverageJob {
 	if job.background {
 		strokes = slices.Clone(strokes)
 	}
-	ck := newCoverageCheckOwned(b.lay.Surface, b.coverageRegions(), strokes, &prof)
+	ck := newCoverageCheckPainted(b.lay.Surface, b.coverageRegions(), b.paintedSites(), strokes, &prof)
+	b.painted = nil
 	sums := func() {
 		defer close(job.done)
 		defer func() {
@@ -906,6 +912,19 @@ func splitPath(path []r2.Point, k int) [][]r2.Point {
 		acc += seg
 	}
 	return append(out, cur)
+}
+
+// paintedSites returns the union of the regions' sites (b.painted,
+// made on first use).
+func (b *builder) paintedSites() *lattice.SiteSet {
+	if b.painted == nil {
+		sets := make([]*lattice.SiteSet, len(b.regions))
+		for i, r := range b.regions {
+			sets[i] = r.sites
+		}
+		b.painted = lattice.UnionOf(sets...)
+	}
+	return b.painted
 }
 
 func (b *builder) coverageRegions() []CoverageRegion {

@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"math"
-	"math/bits"
 	"slices"
 
 	"github.com/golang/geo/r1"
@@ -110,8 +109,8 @@ type coverageCheck struct {
 	grid     *terraceGrid    // nil on a one-terrace surface
 	exist    []rowDimers     // terrace -> the dimers of each row that exist
 	allowed  []rowSpans      // [region·terraces + terrace]: allowed spans per row
-	rows     []regionExtents // [region·terraces + terrace]: run extents per row
-	rowRegs  [][][]int32     // terrace -> row -> regions with sites on the row (nil: not yet)
+	rows     []regionExtents // [region·terraces + terrace]: run extents per row, shared by the workers (made by run)
+	rowRegs  []rowRegions    // terrace -> regions with sites on each row (starts nil: not yet)
 	arena    []float64       // cached factors of decide's nested ranges
 	who      []int32         // scanLine's strokes per dimer
 	looked   []bool          // scan's pieces whose along factors are looked up
@@ -153,10 +152,18 @@ func newCoverageCheck(surf *lattice.Surface, regions []CoverageRegion, strokes [
 // newCoverageCheckOwned is newCoverageCheck on strokes the check may
 // keep and change (it sets their expected missed and stray sites).
 func newCoverageCheckOwned(surf *lattice.Surface, regions []CoverageRegion, strokes []Stroke, prof *Profile) *coverageCheck {
-	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: strokes,
+	return newCoverageCheckPainted(surf, regions, nil, strokes, prof)
+}
+
+// newCoverageCheckPainted is newCoverageCheckOwned given the union of the
+// regions' sites (painted, which the check reads and never changes), or
+// nil to make it.
+func newCoverageCheckPainted(surf *lattice.Surface, regions []CoverageRegion, painted *lattice.SiteSet, strokes []Stroke, prof *Profile) *coverageCheck {
+	ck := &coverageCheck{surf: surf, prof: prof, regions: regions, strokes: strokes, painted: painted,
 		dwelled: lattice.NewSiteSet(),
 		acc:     make([]regionAcc, len(regions)+1), missed: make([]float64, len(strokes)), stray: make([]float64, len(strokes))}
-	// exist, allowed, rows and rowRegs are each worker's (worker).
+	// exist, allowed and rowRegs are each worker's (worker); rows is
+	// made once by run.
 	ck.own = prof.dwellOwnExposure()
 	byName := map[string]int{}
 	sets := make([]*lattice.SiteSet, len(regions))
@@ -164,7 +171,9 @@ func newCoverageCheckOwned(surf *lattice.Surface, regions []CoverageRegion, stro
 		byName[r.Name] = i
 		sets[i] = r.Sites
 	}
-	ck.painted = lattice.UnionOf(sets...)
+	if ck.painted == nil {
+		ck.painted = lattice.UnionOf(sets...)
+	}
 	if len(surf.Terraces) > 1 {
 		ck.grid = newTerraceGrid(surf)
 	}
@@ -705,7 +714,7 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu []float6
 		d := d0 + k
 		xi := x[k]
 		i := 2*d + side
-		if i>>6 < len(pw) && pw[i>>6]>>(uint(i)&63)&1 != 0 {
+		if pw.Contains(i) {
 			if xi >= exposureSure {
 				continue
 			}
@@ -1026,7 +1035,7 @@ func lineSides(r siteRect, row int) lattice.Sides {
 // paintedIn reports whether r holds a painted site.
 func (ck *coverageCheck) paintedIn(r siteRect) bool {
 	for row := r.l0 / 2; row <= (r.l1-1)/2; row++ {
-		if w := ck.painted.Row(r.t, row); w != nil && w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
+		if w := ck.painted.Row(r.t, row); w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
 			return true
 		}
 	}
@@ -1040,7 +1049,7 @@ func (ck *coverageCheck) dwellIn(r siteRect) bool {
 		return false
 	}
 	for row := r.l0 / 2; row <= (r.l1-1)/2; row++ {
-		if w := ck.dwelled.Row(r.t, row); w != nil && w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
+		if w := ck.dwelled.Row(r.t, row); w.Any(2*r.d0, 2*r.d1, lineSides(r, row)) {
 			return true
 		}
 	}
@@ -1050,44 +1059,56 @@ func (ck *coverageCheck) dwellIn(r siteRect) bool {
 // countSide returns the number of sites of one side in [d0, d1) of a
 // row's bits.
 func countSide(w lattice.RowBits, side, d0, d1 int) int {
-	from, to := max(2*d0+side, 0), min(2*(d1-1)+side+1, len(w)*64)
-	if from >= to {
-		return 0
-	}
-	mask := uint64(0x5555555555555555) << uint(side)
-	c := 0
-	for k := from >> 6; k <= (to-1)>>6; k++ {
-		m := mask
-		if k == from>>6 {
-			m &= ^uint64(0) << (uint(from) & 63)
-		}
-		if k == (to-1)>>6 {
-			m &= ^uint64(0) >> (63 - (uint(to-1) & 63))
-		}
-		c += bits.OnesCount64(w[k] & m)
-	}
-	return c
+	return w.CountSides(2*d0+side, 2*(d1-1)+side+1, lattice.SideOf(side))
 }
 
-// regionsOnRow returns the regions with sites on row row of terrace t.
+// regionsOnRow returns the regions with sites on row row of terrace t,
+// in region order.
 func (ck *coverageCheck) regionsOnRow(t, row int) []int32 {
-	if ck.rowRegs[t] == nil {
-		ck.rowRegs[t] = make([][]int32, ck.surf.RowCount(t))
+	rr := &ck.rowRegs[t]
+	if rr.starts == nil {
+		// Counted per row first, then every row's list in one slice.
+		n := ck.surf.RowCount(t)
+		rr.starts = make([]int32, n+1)
+		for _, reg := range ck.regions {
+			if reg.Sites == nil {
+				continue
+			}
+			first, end := reg.Sites.RowRange(t)
+			for r := first; r < min(end, n); r++ {
+				if !reg.Sites.Row(t, r).IsEmpty() {
+					rr.starts[r+1]++
+				}
+			}
+		}
+		for r := range n {
+			rr.starts[r+1] += rr.starts[r]
+		}
+		rr.regs = make([]int32, rr.starts[n])
+		next := slices.Clone(rr.starts[:n])
 		for ri, reg := range ck.regions {
 			if reg.Sites == nil {
 				continue
 			}
-			for rr := 0; rr < reg.Sites.RowCount(t) && rr < len(ck.rowRegs[t]); rr++ {
-				if w := reg.Sites.Row(t, rr); w.Any(0, len(w)*64, lattice.BothSides) {
-					ck.rowRegs[t][rr] = append(ck.rowRegs[t][rr], int32(ri))
+			first, end := reg.Sites.RowRange(t)
+			for r := first; r < min(end, n); r++ {
+				if !reg.Sites.Row(t, r).IsEmpty() {
+					rr.regs[next[r]] = int32(ri)
+					next[r]++
 				}
 			}
 		}
 	}
-	if row >= len(ck.rowRegs[t]) {
+	if row >= len(rr.starts)-1 {
 		return nil
 	}
-	return ck.rowRegs[t][row]
+	return rr.regs[rr.starts[row]:rr.starts[row+1]:rr.starts[row+1]]
+}
+
+// rowRegions is the regions with sites on each row of a terrace: row r's
+// are regs[starts[r]:starts[r+1]].
+type rowRegions struct {
+	starts, regs []int32
 }
 
 // takePainted counts r's painted sites at the exposure lo..hi (at its

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"sync"
 
 	"github.com/golang/geo/r1"
 	"github.com/golang/geo/r2"
@@ -123,14 +124,13 @@ func (ck *coverageCheck) allowance(si int32) float64 {
 	return ck.prof.AP.EdgeAllowanceNM
 }
 
-// rowSpans caches one sorted span list per row, computed on first use.
+// rowSpans caches one sorted span list per site line l0 <= l <
+// l0+len(spans), computed on first use; the lines outside have none.
 type rowSpans struct {
+	l0    int
 	spans [][]r1.Interval
 	done  []bool
-}
-
-func newRowSpans(rows int) rowSpans {
-	return rowSpans{spans: make([][]r1.Interval, rows), done: make([]bool, rows)}
+	init  bool
 }
 
 // rowDimers caches the dimer ranges of each row that exist, computed on
@@ -153,19 +153,35 @@ func (ck *coverageCheck) keep(sp []r1.Interval) []r1.Interval {
 
 // allowedCached returns allowedSpans(ri, t, l, dist), computed once per
 // site line and region (dist is the same for every call with one
-// region's mode).
+// region's mode). Only the lines within reach of the region's lines
+// (allowedSpans' k) can have spans: the cache covers those alone.
 func (ck *coverageCheck) allowedCached(ri, t, l int, dist float64) []r1.Interval {
 	lines := &ck.allowed[ri*len(ck.surf.Terraces)+t]
-	if lines.spans == nil {
-		*lines = newRowSpans(2 * ck.surf.RowCount(t))
+	if !lines.init {
+		e := ck.regionLines(ri, t)
+		n := 0
+		if e.n() > 0 {
+			k := allowedReach(dist)
+			lines.l0 = max(0, e.l0-k)
+			n = e.l0 + e.n() + k - lines.l0
+		}
+		lines.spans, lines.done, lines.init = make([][]r1.Interval, n), make([]bool, n), true
 	}
-	if l >= len(lines.spans) {
-		return ck.keep(ck.allowedSpans(ri, t, l, dist))
+	j := l - lines.l0
+	if j < 0 || j >= len(lines.spans) {
+		return nil
 	}
-	if !lines.done[l] {
-		lines.spans[l], lines.done[l] = ck.keep(ck.allowedSpans(ri, t, l, dist)), true
+	if !lines.done[j] {
+		lines.spans[j], lines.done[j] = ck.keep(ck.allowedSpans(ri, t, l, dist)), true
 	}
-	return lines.spans[l]
+	return lines.spans[j]
+}
+
+// allowedReach returns how many site lines from a region's line
+// allowedSpans looks for it within dist (the lines' across spacing
+// alternates, so bound it by whole rows).
+func allowedReach(dist float64) int {
+	return 2*int(math.Ceil(dist/lattice.RowSpacing)) + 2
 }
 
 // near reports whether region ri has a site within dist of the site q
@@ -199,19 +215,32 @@ func (ck *coverageCheck) near(ri int, q lattice.Site, dist float64) bool {
 // extents on every site line within dist, each widened by the along
 // distance the across distance leaves.
 func (ck *coverageCheck) allowedSpans(ri, t, l int, dist float64) []r1.Interval {
-	lines := ck.regionLines(ri, t)
+	e := ck.regionLines(ri, t)
 	// Each line's extents are sorted and disjoint: merge them into the
 	// union line by line (a line with every other site painted has an
 	// extent per site, so sorting them all would cost more).
+	//
+	// Lines of one run of equal extents add nothing beyond the run's
+	// line nearest l, widened most (site lines lie in order across the
+	// rows): that line alone is merged, so a pad's hundreds of equal
+	// lines cost one merge.
 	acc, next := ck.spanBuf[:0], ck.spanBuf2[:0]
 	y := lineY(l)
-	k := 2*int(math.Ceil(dist/lattice.RowSpacing)) + 2
-	for ll := max(0, l-k); ll <= l+k && ll < len(lines); ll++ {
-		dy := math.Abs(lineY(ll) - y)
-		if dy > dist || len(lines[ll]) == 0 {
+	k := allowedReach(dist)
+	lo, hi := max(e.l0, l-k), min(e.l0+e.n(), l+k+1)
+	for ll := lo; ll < hi; {
+		end := min(int(e.runEnd[ll-e.l0])+e.l0, hi)
+		ext := e.line(ll)
+		near := min(max(l, ll), end-1)
+		ll = end
+		if len(ext) == 0 {
 			continue
 		}
-		next = unionWidened(next[:0], acc, lines[ll], math.Sqrt(dist*dist-dy*dy))
+		dy := math.Abs(lineY(near) - y)
+		if dy > dist {
+			continue
+		}
+		next = unionWidened(next[:0], acc, ext, math.Sqrt(dist*dist-dy*dy))
 		acc, next = next, acc
 	}
 	ck.spanBuf, ck.spanBuf2 = acc, next
@@ -244,35 +273,67 @@ func unionWidened(dst, a, b []r1.Interval, h float64) []r1.Interval {
 
 // regionLines returns, per site line of terrace t (2·row + side), the
 // along extents (dimer centres, nm from the terrace offset) of region
-// ri's runs of that side's sites, computed once.
-func (ck *coverageCheck) regionLines(ri, t int) [][]r1.Interval {
+// ri's runs of that side's sites, computed once by the first worker that
+// asks (the workers share ck.rows).
+func (ck *coverageCheck) regionLines(ri, t int) *regionExtents {
 	e := &ck.rows[ri*len(ck.surf.Terraces)+t]
-	if e.done {
-		return e.rows
-	}
-	// The lines' extents share one slice (slices of it stay valid when
-	// it grows).
-	set := ck.regions[ri].Sites
-	lines := make([][]r1.Interval, 2*set.RowCount(t))
-	all := make([]r1.Interval, 0, len(lines))
-	for r := 0; r < set.RowCount(t); r++ {
-		w := set.Row(t, r)
-		for side := range 2 {
-			start := len(all)
-			all = appendSideExtents(all, w, side)
-			if len(all) > start {
-				lines[2*r+side] = all[start:len(all):len(all)]
+	e.once.Do(func() {
+		set := ck.regions[ri].Sites
+		if set == nil {
+			return
+		}
+		// Only the region's rows: the lines' extents share one slice,
+		// line l's from starts[l-l0] to starts[l-l0+1].
+		first, end := set.RowRange(t)
+		e.l0 = 2 * first
+		e.starts = make([]int32, 2*(end-first)+1)
+		// At most one extent per run and side: counted, so the slice
+		// is allocated once (a slanted edge has a run per site).
+		n := 0
+		for r := first; r < end; r++ {
+			n += 2 * set.Row(t, r).RunCount()
+		}
+		e.all = make([]r1.Interval, 0, n)
+		for r := first; r < end; r++ {
+			w := set.Row(t, r)
+			for side := range 2 {
+				e.all = appendSideExtents(e.all, w, side)
+				e.starts[2*(r-first)+side+1] = int32(len(e.all))
 			}
 		}
-	}
-	e.rows, e.done = lines, true
-	return lines
+		// The runs of lines with equal extents, from the last line back.
+		e.runEnd = make([]int32, e.n())
+		for j := e.n() - 1; j >= 0; j-- {
+			e.runEnd[j] = int32(j + 1)
+			if j+1 < e.n() && slices.Equal(e.line(e.l0+j), e.line(e.l0+j+1)) {
+				e.runEnd[j] = e.runEnd[j+1]
+			}
+		}
+	})
+	return e
 }
 
-// regionExtents caches regionLines for one region and terrace.
+// regionExtents caches regionLines for one region and terrace: the
+// extents of site lines l0 .. l0+n()-1.
 type regionExtents struct {
-	rows [][]r1.Interval
-	done bool
+	once   sync.Once
+	l0     int
+	starts []int32
+	all    []r1.Interval
+	// runEnd[l-l0] is one past the last line of the run of lines from
+	// l on whose extents equal l's (index relative to l0).
+	runEnd []int32
+}
+
+// n returns the number of site lines e holds.
+func (e *regionExtents) n() int { return max(len(e.starts)-1, 0) }
+
+// line returns the extents of site line l (none outside e's lines).
+func (e *regionExtents) line(l int) []r1.Interval {
+	if j := l - e.l0; j >= 0 && j < e.n() {
+		return e.all[e.starts[j]:e.starts[j+1]]
+	}
+	return nil
 }
 
 // appendSideExtents appends, for each maximal run of a row's sites, the
@@ -300,7 +361,7 @@ func (ck *coverageCheck) nearOn(set *lattice.SiteSet, t int, p r2.Point, dist fl
 	rowHi := min(set.RowCount(t)-1, int(math.Ceil((ac+dist+lattice.HOffset)/lattice.RowSpacing)))
 	for r := rowLo; r <= rowHi; r++ {
 		w := set.Row(t, r)
-		if w == nil {
+		if w.IsEmpty() {
 			continue
 		}
 		for side := range 2 {

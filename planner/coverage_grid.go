@@ -30,18 +30,18 @@ func newTerraceGrid(surf *lattice.Surface) *terraceGrid {
 	// Each cell is sampled at its corners, edge midpoints and centre:
 	// points every half cell, each shared by the cells that meet there.
 	sx, sy := 2*g.nx+1, 2*g.ny+1
-	at := make([]int, sx*sy)
+	at := make([]int8, sx*sy) // terrace indices are below lattice.MaxTerraces (64)
 	for j := range sy {
 		for i := range sx {
 			p := r2.Point{X: min(float64(i)*(terraceCellNM/2), surf.Width()), Y: min(float64(j)*(terraceCellNM/2), surf.Height())}
-			at[j*sx+i] = surf.TerraceAt(p)
+			at[j*sx+i] = int8(surf.TerraceAt(p))
 		}
 	}
 	for j := 0; j < g.ny; j++ {
 		for i := 0; i < g.nx; i++ {
 			for dj := range 3 {
 				for di := range 3 {
-					if t := at[(2*j+dj)*sx+2*i+di]; t >= 0 {
+					if t := int(at[(2*j+dj)*sx+2*i+di]); t >= 0 {
 						raw[t][j*g.nx+i] = true
 					}
 				}

@@ -119,6 +119,9 @@ func (ck *coverageCheck) run(ctx context.Context) error {
 			return err
 		}
 	}
+	// The regions' line extents are shared by the workers, each made
+	// once by the first that asks (regionLines).
+	ck.rows = make([]regionExtents, len(ck.regions)*len(ck.surf.Terraces))
 	// Every worker's copy of the check is made here, before any chunk is
 	// merged: a copy made on a worker's goroutine would read ck while the
 	// merger, on another, adds a finished chunk to it.
@@ -290,8 +293,7 @@ func (ck *coverageCheck) worker() *coverageCheck {
 		w.exist[t] = rowDimers{dimers: make([][]lattice.DimerRange, n), done: make([]bool, n)}
 	}
 	w.allowed = make([]rowSpans, len(ck.regions)*nt)
-	w.rows = make([]regionExtents, len(ck.regions)*nt)
-	w.rowRegs = make([][][]int32, nt)
+	w.rowRegs = make([]rowRegions, nt)
 	w.acc = make([]regionAcc, len(ck.acc))
 	w.missed, w.stray = make([]float64, len(ck.missed)), make([]float64, len(ck.stray))
 	w.touched = chunkMarks{acc: make([]int32, len(ck.acc)), stroke: make([]int32, len(ck.missed))}

@@ -187,7 +187,7 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 	for k, xi := range x {
 		d := d0 + k
 		i := 2*d + side
-		if i>>6 < len(pw) && pw[i>>6]>>(uint(i)&63)&1 != 0 {
+		if pw.Contains(i) {
 			if xi >= exposureSure {
 				continue
 			}

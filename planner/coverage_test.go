@@ -429,3 +429,79 @@ func TestExpNeg(t *testing.T) {
 		}
 	}
 }
+
+// allowedSpans (of each run of lines with equal extents only the line
+// nearest the asked one merged) and allowedCached give, on every
+// site line, the union of every region line's extents within dist,
+// each widened by what the across distance leaves: all of them sorted
+// and merged (lattice.MergeIntervals), the definition in allowedSpans'
+// comment. Regions: rectangles (every line the same extent, the case
+// the skip serves), a rectangle with notches, random runs, and one
+// side's sites only.
+func TestAllowedSpansMatchBruteForce(t *testing.T) {
+	surf, err := lattice.NewSurface(200, 200)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rng := rand.New(rand.NewPCG(8, 80))
+	prof := DefaultProfile()
+	for trial := range 16 {
+		set := lattice.NewSiteSet()
+		rowLo, rowHi := 20+rng.IntN(40), 80+rng.IntN(60)
+		from, to := 2*rng.IntN(100), 2*(150+rng.IntN(200))
+		for r := rowLo; r < rowHi; r++ {
+			switch {
+			case trial%4 == 3:
+				// One side only: the asked line's neighbours on either
+				// side lie at different across distances.
+				for d := from / 2; d < to/2; d++ {
+					set.Add(lattice.Site{Terrace: 0, Row: r, Dimer: d, Side: 1})
+				}
+			case trial%4 == 0:
+				set.AddRun(0, r, from, to)
+			case trial%4 == 1:
+				set.AddRun(0, r, from, to)
+				if rng.IntN(4) == 0 {
+					set.RemoveRun(0, r, from+rng.IntN(40), from+40+rng.IntN(40))
+				}
+			default:
+				for range rng.IntN(4) {
+					a := rng.IntN(500)
+					set.AddRun(0, r, a, a+1+rng.IntN(30))
+				}
+			}
+		}
+		ck := newCoverageCheck(surf, []CoverageRegion{{Name: "r", Sites: set}}, nil, &prof)
+		ck.rows = make([]regionExtents, 1)
+		ck.allowed = make([]rowSpans, 1)
+		dist := 0.5 + 8*rng.Float64()
+		var lines [][]r1.Interval
+		for r := range set.RowCount(0) {
+			for side := range 2 {
+				lines = append(lines, appendSideExtents(nil, set.Row(0, r), side))
+			}
+		}
+		for l := 0; l < 2*surf.RowCount(0); l++ {
+			var all []r1.Interval
+			for ll, ext := range lines {
+				dy := math.Abs(lineY(ll) - lineY(l))
+				if dy > dist {
+					continue
+				}
+				h := math.Sqrt(dist*dist - dy*dy)
+				for _, s := range ext {
+					all = append(all, r1.Interval{Lo: s.Lo - h, Hi: s.Hi + h})
+				}
+			}
+			want := lattice.MergeIntervals(all, 0)
+			got := slices.Clone(ck.allowedSpans(0, 0, l, dist))
+			cached := ck.allowedCached(0, 0, l, dist)
+			if len(want) == 0 && len(got) == 0 && len(cached) == 0 {
+				continue
+			}
+			if !slices.Equal(got, want) || !slices.Equal(cached, want) {
+				t.Fatalf("trial %d line %d (dist %g): allowedSpans %v, allowedCached %v, brute force %v", trial, l, dist, got, cached, want)
+			}
+		}
+	}
+}

@@ -23,16 +23,9 @@ type runSeg struct {
 
 // runSegments returns the runs of set as field segments.
 func runSegments(surf *lattice.Surface, set *lattice.SiteSet) []runSeg {
-	// About one run per row to start with.
-	n := 0
-	for t := 0; t < len(surf.Terraces) && t < set.TerraceCount(); t++ {
-		for r := 0; r < set.RowCount(t); r++ {
-			if len(set.Row(t, r)) > 0 {
-				n++
-			}
-		}
-	}
-	out := make([]runSeg, 0, n)
+	// The runs counted first, so the segments take one allocation (a
+	// slanted edge has a run per site).
+	out := make([]runSeg, 0, set.RunCount())
 	for run := range set.Runs() {
 		if run.Terrace >= len(surf.Terraces) {
 			continue

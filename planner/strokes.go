@@ -345,24 +345,33 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 		// whether the edge is square to it, slanted or curved, and runs up
 		// to a step inside the region, where the other terrace's lines
 		// take over.
+		// Scratch for lineAt, reused line after line: the eroded chords
+		// and the next ones (two arrays, swapped), the shrunk chords.
+		var erodedBuf, nextBuf, shrunkBuf []r1.Interval
 		lineAt := func(c float64) []feLine {
-			eroded := chords(ix, c)
+			eroded := append(erodedBuf[:0], ix.chords(c, lattice.RowSpacing/2, 2*lattice.RowSpacing, false)...)
+			next := nextBuf
 			for k := 0; float64(k)*lattice.RowSpacing/2 <= radius+1e-9 && len(eroded) > 0; k++ {
 				dc := float64(k) * lattice.RowSpacing / 2
 				h := math.Sqrt(math.Max(0, radius*radius-dc*dc))
-				for _, sgn := range []float64{-1, 1} {
+				for _, sgn := range [2]float64{-1, 1} {
 					if k == 0 && sgn > 0 {
 						continue
 					}
-					var shrunk []r1.Interval
-					for _, iv := range chords(wix, c+sgn*dc) {
+					// wix's chords are read before its next query
+					// overwrites them.
+					shrunk := shrunkBuf[:0]
+					for _, iv := range wix.chords(c+sgn*dc, lattice.RowSpacing/2, 2*lattice.RowSpacing, false) {
 						if iv.Hi-h > iv.Lo+h {
 							shrunk = append(shrunk, r1.Interval{Lo: iv.Lo + h, Hi: iv.Hi - h})
 						}
 					}
-					eroded = lattice.IntersectIntervals(nil, eroded, shrunk)
+					shrunkBuf = shrunk
+					next = lattice.IntersectIntervals(next[:0], eroded, shrunk)
+					eroded, next = next, eroded
 				}
 			}
+			erodedBuf, nextBuf = eroded, next
 			var ls []feLine
 			for _, iv := range eroded {
 				lo, hi := iv.Lo, iv.Hi

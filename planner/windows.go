@@ -31,11 +31,7 @@ func (b *builder) openWindows(windows []Window) error {
 		points[i] = w.At
 	}
 	ix := newExposureIndex(b.strokes, &b.prof, surf.Width(), surf.Height(), points)
-	sets := make([]*lattice.SiteSet, len(b.regions))
-	for i, r := range b.regions {
-		sets[i] = r.sites
-	}
-	painted := lattice.UnionOf(sets...)
+	painted := b.paintedSites()
 	lineNM := make([]float64, len(windows))
 	for _, st := range b.strokes {
 		if st.Window >= 0 && st.Kind != StrokeDwell {

@@ -2,7 +2,6 @@ package render
 
 import (
 	"math"
-	"math/bits"
 
 	"dimerpath/lattice"
 )
@@ -90,21 +89,9 @@ func (r *Renderer) drawAtomic(sc *Scene, v View) {
 			tb := &r.tabs[t]
 			ni := tb.i1 - tb.i0 + 1
 			for row := tb.r0; row <= tb.r1; row++ {
-				words := L.Sites.Row(t, row)
-				if len(words) == 0 {
-					continue
-				}
 				g := r.grid[tb.gridOff+(row-tb.r0)*ni:]
-				for k := tb.i0 >> 6; k <= tb.i1>>6 && k < len(words); k++ {
-					word := words[k]
-					for word != 0 {
-						b := bits.TrailingZeros64(word)
-						word &= word - 1
-						idx := k<<6 + b
-						if idx >= tb.i0 && idx <= tb.i1 {
-							g[idx-tb.i0] = uint16(li + 1)
-						}
-					}
+				for idx := range L.Sites.Row(t, row).Sites(tb.i0, tb.i1+1, lattice.BothSides) {
+					g[idx-tb.i0] = uint16(li + 1)
 				}
 			}
 		}

@@ -1,7 +1,6 @@
 package render
 
 import (
-	"math/bits"
 	"sort"
 
 	"dimerpath/lattice"
@@ -59,7 +58,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 						xa := x0 + sort.Search(x1-x0, func(i int) bool { return int(tb.along[x0+i].hi) > first })
 						xb := x0 + sort.Search(x1-x0, func(i int) bool { return int(tb.along[x0+i].lo) >= last })
 						tx0, tx1 = min(tx0, xa), max(tx1, xb)
-						n := len(words) * 64
+						n := words.End()
 						for x := xa; x < xb; x++ {
 							if int(terr[x]) != t {
 								continue
@@ -69,14 +68,7 @@ func (r *Renderer) drawCoverage(sc *Scene, v View) {
 							if lo >= hi {
 								continue
 							}
-							var c uint32
-							if k := lo >> 6; k == (hi-1)>>6 {
-								// The common case, one word: inline.
-								c = uint32(bits.OnesCount64(words[k] >> (uint(lo) & 63) & (^uint64(0) >> (64 - uint(hi-lo)))))
-							} else {
-								c = uint32(words.Count(lo, hi))
-							}
-							if c != 0 {
+							if c := uint32(words.Count(lo, hi)); c != 0 {
 								line[x] += c
 								any = true
 							}
