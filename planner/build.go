@@ -127,6 +127,10 @@ type builder struct {
 	costs  costs
 	stepOf []int // the step of each stroke
 
+	// pieced, when set, is closed once the coverage check running beside
+	// the route no longer reads the strokes' paths (pathsFree).
+	pieced chan struct{}
+
 	lastCouplings []couplingWork
 	marginUsed    float64
 }
@@ -231,6 +235,10 @@ type coverageJob struct {
 	// background is set when the sums run beside the route (more than
 	// one core); taken is set once finishCoverage took the results.
 	background, taken bool
+	// pieced is closed once the check has made its pieces of the
+	// strokes' paths, which it shares with Build until then
+	// (pathsFree).
+	pieced chan struct{}
 }
 
 // startCoverage starts the coverage check of b.strokes. Their pieces are
@@ -253,15 +261,26 @@ func (b *builder) startCoverage() *coverageJob {
 	if job.background {
 		strokes = slices.Clone(strokes)
 	}
-	ck := newCoverageCheckPainted(b.lay.Surface, b.coverageRegions(), b.paintedSites(), strokes, &prof)
+	surf, regions, painted := b.lay.Surface, b.coverageRegions(), b.paintedSites()
 	b.painted = nil
-	sums := func() {
+	job.pieced = make(chan struct{})
+	check := func() {
 		defer close(job.done)
+		pieced := false
 		defer func() {
+			if !pieced {
+				close(job.pieced)
+			}
 			if r := recover(); r != nil {
 				job.err = &InternalError{Message: fmt.Sprintf("panic: %v", r), Stack: debug.Stack()}
 			}
 		}()
+		// The pieces are made of the strokes as written before the route
+		// (pathsFree holds its reversals until they are made), so the
+		// sums are the same whichever goroutine makes them.
+		ck := newCoverageCheckPainted(surf, regions, painted, strokes, &prof)
+		pieced = true
+		close(job.pieced)
 		if coverageStartHook != nil {
 			coverageStartHook(ctx)
 		}
@@ -270,11 +289,24 @@ func (b *builder) startCoverage() *coverageJob {
 		}
 	}
 	if job.background {
-		go sums()
+		// The pieces too are made beside the route: the route's solve
+		// reads the paths and changes them only after (pathsFree).
+		b.pieced = job.pieced
+		go check()
 	} else {
-		sums()
+		check()
 	}
 	return job
+}
+
+// pathsFree waits, before Build reverses a stroke's path in place, until
+// a coverage check running beside it has made its pieces of the paths
+// (its copy of the strokes shares them).
+func (b *builder) pathsFree() {
+	if b.pieced != nil {
+		<-b.pieced
+		b.pieced = nil
+	}
 }
 
 // coverageStartHook, when set (by tests only), is called with the
