@@ -10,6 +10,7 @@ import (
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/internal/blocks"
 	"dimerpath/internal/jsonfile"
 	"dimerpath/internal/units"
 	"dimerpath/lattice"
@@ -686,7 +687,8 @@ func (b *builder) makeStrokes() []Window {
 	b.placed = slices.Grow(b.placed, nwin)
 	b.strokes = slices.Grow(b.strokes, nwin)
 	surf := b.lay.Surface
-	for _, r := range b.regions {
+	fills := b.feFills()
+	for k, r := range b.regions {
 		for _, w := range r.windows {
 			n0 := len(b.strokes)
 			b.strokes = b.gen.appendWindowStrokes(b.strokes, r.name, w, len(windows))
@@ -712,7 +714,7 @@ func (b *builder) makeStrokes() []Window {
 			b.strokes = append(b.strokes, ss...)
 		}
 		if r.fePart != nil && !r.fePart.IsEmpty() {
-			ss := b.gen.feStrokes(r.name, r.fePart)
+			ss := fills[k]
 			tol := r.tolFE
 			if r.mode == design.ModeHybrid {
 				tol = b.prof.ToleranceFENM // the fill's edge is inside the AP band
@@ -729,6 +731,31 @@ func (b *builder) makeStrokes() []Window {
 		}
 	}
 	return windows
+}
+
+// feFills returns each region's FE strokes (nil for a region without an
+// FE part), the regions filled on the cores at once: a fill depends on
+// its region alone, so the strokes are the same on any core count.
+func (b *builder) feFills() [][]Stroke {
+	var todo []int
+	for k, r := range b.regions {
+		if r.fePart != nil && !r.fePart.IsEmpty() {
+			b.gen.segsOf(r.fePart) // made here: the workers only read them
+			todo = append(todo, k)
+		}
+	}
+	fills := make([][]Stroke, len(b.regions))
+	blocks.Run(len(todo), 2, 1, func() func(lo, hi int) {
+		g := *b.gen // each worker's: its path block is its own
+		g.pts = nil
+		return func(lo, hi int) {
+			for _, k := range todo[lo:hi] {
+				r := b.regions[k]
+				fills[k] = g.feStrokes(r.name, r.fePart)
+			}
+		}
+	})
+	return fills
 }
 
 // shareSites gives each FE stroke its share of the sites it fills, by
