@@ -177,38 +177,22 @@ func (b *builder) startWriting() ([]Window, *coverageJob, error) {
 	}
 	b.model, _ = planModel(prof) // the stroke splits need its values
 
-	b.opt.stage("modes")
-	mc := &modeChooser{g: b.gen, prof: prof, keepOut: lay.Rules.FEKeepOutNM, regions: b.regions, feCache: map[*lattice.SiteSet][]Stroke{}}
-	mc.choose()
-	for _, r := range b.regions {
-		b.warnings = append(b.warnings, r.warnings...)
+	// The union of the regions' sites, which openWindows and the check
+	// read, depends on the regions alone: on more than one core it is
+	// made beside the modes and strokes.
+	var windows []Window
+	var err error
+	strokes := func() { windows, err = b.modesAndStrokes() }
+	if runtime.GOMAXPROCS(0) > 1 && b.painted == nil {
+		var painted *lattice.SiteSet
+		blocks.Both(func() { painted = b.regionsUnion() }, strokes)
+		b.painted = painted
+	} else {
+		strokes()
 	}
-	if err := b.ctx.Err(); err != nil {
+	if err != nil {
 		return nil, nil, err
 	}
-
-	b.opt.stage("strokes")
-	windows := b.makeStrokes()
-	if err := checkStrokes(float64(len(b.strokes)), "one or more per run of sites and per FE serpentine; split the design"); err != nil {
-		return nil, nil, err
-	}
-	use := b.modesUsed()
-	if err := prof.CheckLimits(&use); err != nil {
-		return nil, nil, err
-	}
-	if err := b.checkTolerances(); err != nil {
-		return nil, nil, err
-	}
-	b.fiducials()
-	b.costs = newCosts(prof, b.fids)
-	b.costs.creepFrac = b.model.creep
-	if err := b.splitLong(); err != nil {
-		return nil, nil, err
-	}
-	for i := range b.strokes {
-		b.strokes[i].ID = i
-	}
-	b.gc = holdGCBudget(len(b.strokes))
 
 	b.opt.stage("coverage")
 	if err := b.ctx.Err(); err != nil {
@@ -219,6 +203,46 @@ func (b *builder) startWriting() ([]Window, *coverageJob, error) {
 	}
 	b.placed = nil // only openWindows reads it
 	return windows, b.startCoverage(), nil
+}
+
+// modesAndStrokes chooses each region's mode and makes the strokes,
+// split at their drift budgets and numbered, and returns the plan's
+// windows.
+func (b *builder) modesAndStrokes() ([]Window, error) {
+	prof, lay := &b.prof, b.lay
+	b.opt.stage("modes")
+	mc := &modeChooser{g: b.gen, prof: prof, keepOut: lay.Rules.FEKeepOutNM, regions: b.regions, feCache: map[*lattice.SiteSet][]Stroke{}}
+	mc.choose()
+	for _, r := range b.regions {
+		b.warnings = append(b.warnings, r.warnings...)
+	}
+	if err := b.ctx.Err(); err != nil {
+		return nil, err
+	}
+
+	b.opt.stage("strokes")
+	windows := b.makeStrokes()
+	if err := checkStrokes(float64(len(b.strokes)), "one or more per run of sites and per FE serpentine; split the design"); err != nil {
+		return nil, err
+	}
+	use := b.modesUsed()
+	if err := prof.CheckLimits(&use); err != nil {
+		return nil, err
+	}
+	if err := b.checkTolerances(); err != nil {
+		return nil, err
+	}
+	b.fiducials()
+	b.costs = newCosts(prof, b.fids)
+	b.costs.creepFrac = b.model.creep
+	if err := b.splitLong(); err != nil {
+		return nil, err
+	}
+	for i := range b.strokes {
+		b.strokes[i].ID = i
+	}
+	b.gc = holdGCBudget(len(b.strokes))
+	return windows, nil
 }
 
 // coverageJob is the coverage check running on its own goroutine: done
@@ -977,13 +1001,18 @@ func splitPath(path []r2.Point, k int) [][]r2.Point {
 // made on first use).
 func (b *builder) paintedSites() *lattice.SiteSet {
 	if b.painted == nil {
-		sets := make([]*lattice.SiteSet, len(b.regions))
-		for i, r := range b.regions {
-			sets[i] = r.sites
-		}
-		b.painted = lattice.UnionOf(sets...)
+		b.painted = b.regionsUnion()
 	}
 	return b.painted
+}
+
+// regionsUnion returns the union of the regions' sites.
+func (b *builder) regionsUnion() *lattice.SiteSet {
+	sets := make([]*lattice.SiteSet, len(b.regions))
+	for i, r := range b.regions {
+		sets[i] = r.sites
+	}
+	return lattice.UnionOf(sets...)
 }
 
 func (b *builder) coverageRegions() []CoverageRegion {
