@@ -303,6 +303,9 @@ func (b *builder) startCoverage() *coverageJob {
 		// The pieces are made of the strokes as written before the route
 		// (pathsFree holds its reversals until they are made), so the
 		// sums are the same whichever goroutine makes them.
+		if coveragePiecesHook != nil {
+			coveragePiecesHook()
+		}
 		ck := newCoverageCheckPainted(surf, regions, painted, strokes, &prof)
 		pieced = true
 		close(job.pieced)
@@ -333,6 +336,11 @@ func (b *builder) pathsFree() {
 		b.pieced = nil
 	}
 }
+
+// coveragePiecesHook, when set (by tests only), is called before the
+// check makes its pieces: a test delays them past the route to see that
+// Build waits for them before it reverses a path.
+var coveragePiecesHook func()
 
 // coverageStartHook, when set (by tests only), is called with the
 // check's context before its sums: a test holds the check there to see

@@ -59,6 +59,32 @@ func TestBuildSameOnAnyCores(t *testing.T) {
 	}
 }
 
+// TestBuildSameWithLatePieces: the coverage check beside the route
+// makes its pieces of the strokes' paths as written before the route,
+// even when it makes them after the route has solved (Build waits for
+// them before it reverses a path in place); so the plan is the one-core
+// plan (and go test -race sees no write to a path being read).
+func TestBuildSameWithLatePieces(t *testing.T) {
+	if testing.Short() {
+		t.Skip("plans the demo twice")
+	}
+	d := demo(t)
+	plan := func(procs int) *Plan {
+		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
+		p, err := buildVariant(context.Background(), d, "", DefaultProfile(), Options{Seed: 5})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	one := plan(1)
+	coveragePiecesHook = func() { time.Sleep(200 * time.Millisecond) } // the route solves well within it
+	defer func() { coveragePiecesHook = nil }()
+	if late := plan(2); !reflect.DeepEqual(one, late) {
+		t.Errorf("the demo's plan with the check's pieces made late differs from the one-core plan (total %v s against %v s)", late.TotalS, one.TotalS)
+	}
+}
+
 // TestCoverageCancelled: a check whose context is done stops with its
 // error.
 func TestCoverageCancelled(t *testing.T) {
