@@ -10,6 +10,7 @@ import (
 	"testing"
 	"time"
 
+	"dimerpath/lattice/design"
 	"dimerpath/lattice/design/designtest"
 )
 
@@ -46,14 +47,7 @@ func TestBuildSameOnAnyCores(t *testing.T) {
 		t.Skip("plans the demo twice")
 	}
 	d := demo(t)
-	plan := func(procs int) *Plan {
-		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
-		p, err := buildVariant(context.Background(), d, "", DefaultProfile(), Options{Seed: 5})
-		if err != nil {
-			t.Fatal(err)
-		}
-		return p
-	}
+	plan := func(procs int) *Plan { return demoPlanOnCores(t, d, procs) }
 	if one, four := plan(1), plan(4); !reflect.DeepEqual(one, four) {
 		t.Errorf("the demo's plan on four cores differs from the plan on one (total %v s against %v s)", four.TotalS, one.TotalS)
 	}
@@ -69,20 +63,24 @@ func TestBuildSameWithLatePieces(t *testing.T) {
 		t.Skip("plans the demo twice")
 	}
 	d := demo(t)
-	plan := func(procs int) *Plan {
-		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
-		p, err := buildVariant(context.Background(), d, "", DefaultProfile(), Options{Seed: 5})
-		if err != nil {
-			t.Fatal(err)
-		}
-		return p
-	}
+	plan := func(procs int) *Plan { return demoPlanOnCores(t, d, procs) }
 	one := plan(1)
 	coveragePiecesHook = func() { time.Sleep(200 * time.Millisecond) } // the route solves well within it
 	defer func() { coveragePiecesHook = nil }()
 	if late := plan(2); !reflect.DeepEqual(one, late) {
 		t.Errorf("the demo's plan with the check's pieces made late differs from the one-core plan (total %v s against %v s)", late.TotalS, one.TotalS)
 	}
+}
+
+// demoPlanOnCores plans the demo with seed 5 at GOMAXPROCS procs.
+func demoPlanOnCores(t *testing.T, d *design.Design, procs int) *Plan {
+	t.Helper()
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
+	p, err := buildVariant(context.Background(), d, "", DefaultProfile(), Options{Seed: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p
 }
 
 // TestCoverageCancelled: a check whose context is done stops with its
