@@ -128,10 +128,6 @@ type builder struct {
 	costs  costs
 	stepOf []int // the step of each stroke
 
-	// pieced, when set, is closed once the coverage check running beside
-	// the route no longer reads the strokes' paths (pathsFree).
-	pieced chan struct{}
-
 	lastCouplings []couplingWork
 	marginUsed    float64
 }
@@ -260,10 +256,6 @@ type coverageJob struct {
 	// background is set when the sums run beside the route (more than
 	// one core); taken is set once finishCoverage took the results.
 	background, taken bool
-	// pieced is closed once the check has made its pieces of the
-	// strokes' paths, which it shares with Build until then
-	// (pathsFree).
-	pieced chan struct{}
 }
 
 // startCoverage starts the coverage check of b.strokes. Their pieces are
@@ -279,36 +271,28 @@ func (b *builder) startCoverage() *coverageJob {
 	job := &coverageJob{done: make(chan struct{}), cancel: cancel, warnAt: len(b.warnings),
 		background: runtime.GOMAXPROCS(0) > 1 && len(b.strokes) < gcBudgetMinStrokes}
 	prof := b.prof
-	// Beside the route the sums need their own copy of the strokes; on
-	// one core they run now and set Build's strokes in place (no copy:
-	// 145 MB at 10^6 windows, held beside the pieces at the check's peak).
+	// Beside the route the check needs its own copy of the strokes and
+	// of their paths, which Build reverses in place once the route has
+	// solved; on one core it runs now and sets Build's strokes in place
+	// (no copy: 145 MB at 10^6 windows, held beside the pieces at the
+	// check's peak).
 	strokes := b.strokes
 	if job.background {
-		strokes = slices.Clone(strokes)
+		strokes = cloneStrokesAndPaths(strokes)
 	}
 	surf, regions, painted := b.lay.Surface, b.coverageRegions(), b.paintedSites()
 	b.painted = nil
-	job.pieced = make(chan struct{})
 	check := func() {
 		defer close(job.done)
-		pieced := false
 		defer func() {
-			if !pieced {
-				close(job.pieced)
-			}
 			if r := recover(); r != nil {
 				job.err = &InternalError{Message: fmt.Sprintf("panic: %v", r), Stack: debug.Stack()}
 			}
 		}()
-		// The pieces are made of the strokes as written before the route
-		// (pathsFree holds its reversals until they are made), so the
-		// sums are the same whichever goroutine makes them.
 		if coveragePiecesHook != nil {
 			coveragePiecesHook()
 		}
 		ck := newCoverageCheckPainted(surf, regions, painted, strokes, &prof)
-		pieced = true
-		close(job.pieced)
 		if coverageStartHook != nil {
 			coverageStartHook(ctx)
 		}
@@ -317,29 +301,38 @@ func (b *builder) startCoverage() *coverageJob {
 		}
 	}
 	if job.background {
-		// The pieces too are made beside the route: the route's solve
-		// reads the paths and changes them only after (pathsFree).
-		b.pieced = job.pieced
-		go check()
+		go check() // its pieces too are made beside the route, of its copy
+
 	} else {
 		check()
 	}
 	return job
 }
 
-// pathsFree waits, before Build reverses a stroke's path in place, until
-// a coverage check running beside it has made its pieces of the paths
-// (its copy of the strokes shares them).
-func (b *builder) pathsFree() {
-	if b.pieced != nil {
-		<-b.pieced
-		b.pieced = nil
+// cloneStrokesAndPaths copies the strokes and their paths (the points
+// in one allocation).
+func cloneStrokesAndPaths(strokes []Stroke) []Stroke {
+	out := slices.Clone(strokes)
+	n := 0
+	for _, s := range strokes {
+		n += len(s.Path)
 	}
+	pts := make([]r2.Point, 0, n)
+	for i, s := range strokes {
+		if s.Path == nil {
+			continue
+		}
+		k := len(pts)
+		pts = append(pts, s.Path...)
+		out[i].Path = pts[k:len(pts):len(pts)]
+	}
+	return out
 }
 
 // coveragePiecesHook, when set (by tests only), is called before the
 // check makes its pieces: a test delays them past the route to see that
-// Build waits for them before it reverses a path.
+// the check reads its own copy of the paths, not the ones Build
+// reverses after the route.
 var coveragePiecesHook func()
 
 // coverageStartHook, when set (by tests only), is called with the

@@ -676,7 +676,6 @@ func (b *builder) route(ids []int) (int, []int, error) {
 		return 0, nil, fmt.Errorf("planner: the route engine returned %d of %d strokes", len(sol.Order), n)
 	}
 	order := make([]int, n)
-	b.pathsFree()
 	for k, i := range sol.Order {
 		if k < len(sol.Reversed) && sol.Reversed[k] {
 			reversePath(b.strokes[ids[i]].Path)
@@ -819,7 +818,6 @@ func (b *builder) reoptimise(sg *segmenter, starts []int, kinds []RegistrationKi
 		if cand == nil {
 			continue
 		}
-		b.pathsFree()
 		for _, j := range cand {
 			if st := &b.strokes[j.stroke]; st.Path[0] != j.start {
 				reversePath(st.Path)
