@@ -88,13 +88,23 @@ func TestCombsMatchPieceByPiece(t *testing.T) {
 	if testing.Short() {
 		t.Skip("plans the demo twice")
 	}
+	demoWithAndWithout(t, withCombs, func(v string, got, want Coverage, gs, ws []Stroke) {
+		sameCoverage(t, "demo "+v, got, want, gs, ws)
+	})
+}
+
+// demoWithAndWithout checks each demo variant's coverage with a
+// summation switch on (got, gs) and off (want, ws), and hands both to
+// compare.
+func demoWithAndWithout(t *testing.T, with func(on bool, f func()), compare func(v string, got, want Coverage, gs, ws []Stroke)) {
+	t.Helper()
 	for _, v := range []string{"gap-9", "gap-12-source"} {
 		surf, cr, ss, prof := demoCoverageInput(t, v)
 		var got, want Coverage
 		var gs, ws []Stroke
-		withCombs(true, func() { got, gs = CheckCoverage(surf, cr, ss, prof) })
-		withCombs(false, func() { want, ws = CheckCoverage(surf, cr, ss, prof) })
-		sameCoverage(t, "demo "+v, got, want, gs, ws)
+		with(true, func() { got, gs = CheckCoverage(surf, cr, ss, prof) })
+		with(false, func() { want, ws = CheckCoverage(surf, cr, ss, prof) })
+		compare(v, got, want, gs, ws)
 	}
 }
 

@@ -30,12 +30,7 @@ func TestStripsMatchScan(t *testing.T) {
 	if testing.Short() {
 		t.Skip("plans the demo twice")
 	}
-	for _, v := range []string{"gap-9", "gap-12-source"} {
-		surf, cr, ss, prof := demoCoverageInput(t, v)
-		var got, want Coverage
-		var gs, ws []Stroke
-		withStrips(true, func() { got, gs = CheckCoverage(surf, cr, ss, prof) })
-		withStrips(false, func() { want, ws = CheckCoverage(surf, cr, ss, prof) })
+	demoWithAndWithout(t, withStrips, func(v string, got, want Coverage, gs, ws []Stroke) {
 		sameCoverage(t, "demo "+v, got, want, gs, ws)
 		for i := range gs {
 			if gs[i].Mode == design.ModeAP && (gs[i].ExpectedMissed != ws[i].ExpectedMissed || gs[i].ExpectedStray != ws[i].ExpectedStray) {
@@ -46,7 +41,7 @@ func TestStripsMatchScan(t *testing.T) {
 		if len(got.StraySites) != len(want.StraySites) {
 			t.Errorf("%s: %d stray sites listed with strips, %d without", v, len(got.StraySites), len(want.StraySites))
 		}
-	}
+	})
 }
 
 // TestStripsMatchBruteForce: FE rasters whose lines run up to the edge
