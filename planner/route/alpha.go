@@ -30,10 +30,11 @@ type sparseGraph struct {
 	c      []float64
 	fixed  []bool
 	off    []int32
-	adj    []int32 // edge indices
-	other  []int32 // the other end of adj's edge
-	dummy  int32   // -1 if none
-	dstart int32   // the dummy's fixed partner (the start), -1 if none
+	adj    []int32   // edge indices
+	other  []int32   // the other end of adj's edge
+	adjC   []float64 // adj's edge's cost, -Inf when fixed (Prim's key)
+	dummy  int32     // -1 if none
+	dstart int32     // the dummy's fixed partner (the start), -1 if none
 }
 
 // newSparseGraph joins every node (but the dummy) to its pool entries,
@@ -72,7 +73,7 @@ func newSparseGraph(g *graph, pool *neighbours, tour []int32) *sparseGraph {
 	keys = slices.Compact(keys)
 	m := len(keys)
 	sg := &sparseGraph{n: n, a: make([]int32, m), b: make([]int32, m), c: make([]float64, m),
-		fixed: make([]bool, m), off: make([]int32, n+1), adj: make([]int32, 2*m), other: make([]int32, 2*m),
+		fixed: make([]bool, m), off: make([]int32, n+1), adj: make([]int32, 2*m), other: make([]int32, 2*m), adjC: make([]float64, 2*m),
 		dummy: g.dummy, dstart: -1}
 	if g.dummy >= 0 {
 		sg.dstart = g.partner[g.dummy]
@@ -89,9 +90,13 @@ func newSparseGraph(g *graph, pool *neighbours, tour []int32) *sparseGraph {
 	fill := slices.Clone(sg.off[:n])
 	for e := range int32(m) {
 		u, v := sg.a[e], sg.b[e]
-		sg.adj[fill[u]], sg.other[fill[u]] = e, v
+		ce := sg.c[e]
+		if sg.fixed[e] {
+			ce = math.Inf(-1)
+		}
+		sg.adj[fill[u]], sg.other[fill[u]], sg.adjC[fill[u]] = e, v, ce
 		fill[u]++
-		sg.adj[fill[v]], sg.other[fill[v]] = e, u
+		sg.adj[fill[v]], sg.other[fill[v]], sg.adjC[fill[v]] = e, u, ce
 		fill[v]++
 	}
 	return sg
@@ -142,16 +147,21 @@ type oneTree struct {
 	order   []int32   // nodes in the order added; parents come first
 	deg     []int32   // degree in the 1-tree
 	w       float64   // the 1-tree's transformed cost less 2 Σ π: a lower bound
-	heap    []int32
+	heap    []heapEntry
 	hpos    []int32
-	key     []float64
-	keyEdge []int32
+	keyEdge []int32 // the edge of each node's key
+}
+
+// heapEntry is a node in Prim's heap with its key.
+type heapEntry struct {
+	key float64
+	v   int32
 }
 
 func newOneTree(n int32) *oneTree {
 	return &oneTree{parent: make([]int32, n), pw: make([]float64, n), pfixed: make([]bool, n),
-		order: make([]int32, 0, n), deg: make([]int32, n), heap: make([]int32, 0, n),
-		hpos: make([]int32, n), key: make([]float64, n), keyEdge: make([]int32, n)}
+		order: make([]int32, 0, n), deg: make([]int32, n), heap: make([]heapEntry, 0, n),
+		hpos: make([]int32, n), keyEdge: make([]int32, n)}
 }
 
 // build computes the minimum 1-tree for penalties pi (one per node of g,
@@ -169,9 +179,14 @@ func (t *oneTree) build(sg *sparseGraph, pi []float64) bool {
 	t.heap = t.heap[:0]
 	t.w = 0
 	// Prim's algorithm with a binary heap keyed on the transformed cost
-	// (fixed edges at -Inf, so they are taken first).
-	t.key[0], t.keyEdge[0] = math.Inf(-1), -1
-	t.push(0)
+	// (fixed edges at -Inf, so they are taken first). The heap holds the
+	// keys beside the nodes and the adjacency its costs beside the other
+	// ends, so the inner loop reads no edge record unless it improves a
+	// key: the same comparisons in the same order as with the keys
+	// looked up by node (the same trees), 25 of these trees are most of
+	// the search's set-up.
+	t.keyEdge[0] = -1
+	t.push(0, math.Inf(-1))
 	for len(t.heap) > 0 {
 		v := t.popMin()
 		t.hpos[v] = done
@@ -188,22 +203,22 @@ func (t *oneTree) build(sg *sparseGraph, pi []float64) bool {
 			t.deg[u]++
 			t.deg[v]++
 		}
-		for k := sg.off[v]; k < sg.off[v+1]; k++ {
+		pv := pi[v]
+		hi := sg.off[v+1]
+		for k := sg.off[v]; k < hi; k++ {
 			u := sg.other[k]
-			if t.hpos[u] == done {
+			hp := t.hpos[u]
+			if hp == done {
 				continue
 			}
-			e := sg.adj[k]
-			w := sg.c[e] + pi[u] + pi[v]
-			if sg.fixed[e] {
-				w = math.Inf(-1)
-			}
-			if t.hpos[u] == unseen {
-				t.key[u], t.keyEdge[u] = w, e
-				t.push(u)
-			} else if w < t.key[u] {
-				t.key[u], t.keyEdge[u] = w, e
-				t.up(t.hpos[u])
+			w := sg.adjC[k] + pi[u] + pv
+			if hp == unseen {
+				t.keyEdge[u] = sg.adj[k]
+				t.push(u, w)
+			} else if w < t.heap[hp].key {
+				t.keyEdge[u] = sg.adj[k]
+				t.heap[hp].key = w
+				t.up(hp)
 			}
 		}
 	}
@@ -267,31 +282,31 @@ func (t *oneTree) build(sg *sparseGraph, pi []float64) bool {
 	return true
 }
 
-func (t *oneTree) push(v int32) {
+func (t *oneTree) push(v int32, key float64) {
 	t.hpos[v] = int32(len(t.heap))
-	t.heap = append(t.heap, v)
+	t.heap = append(t.heap, heapEntry{key, v})
 	t.up(t.hpos[v])
 }
 
 func (t *oneTree) up(i int32) {
 	h := t.heap
-	v := h[i]
+	x := h[i]
 	for i > 0 {
 		p := (i - 1) / 2
-		if t.key[h[p]] <= t.key[v] {
+		if h[p].key <= x.key {
 			break
 		}
 		h[i] = h[p]
-		t.hpos[h[i]] = i
+		t.hpos[h[i].v] = i
 		i = p
 	}
-	h[i] = v
-	t.hpos[v] = i
+	h[i] = x
+	t.hpos[x.v] = i
 }
 
 func (t *oneTree) popMin() int32 {
 	h := t.heap
-	top := h[0]
+	top := h[0].v
 	last := h[len(h)-1]
 	t.heap = h[:len(h)-1]
 	h = t.heap
@@ -303,18 +318,18 @@ func (t *oneTree) popMin() int32 {
 			if c >= n {
 				break
 			}
-			if c+1 < n && t.key[h[c+1]] < t.key[h[c]] {
+			if c+1 < n && h[c+1].key < h[c].key {
 				c++
 			}
-			if t.key[h[c]] >= t.key[last] {
+			if h[c].key >= last.key {
 				break
 			}
 			h[i] = h[c]
-			t.hpos[h[i]] = i
+			t.hpos[h[i].v] = i
 			i = c
 		}
 		h[i] = last
-		t.hpos[last] = i
+		t.hpos[last.v] = i
 	}
 	return top
 }
