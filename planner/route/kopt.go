@@ -172,13 +172,30 @@ func (s *solver) koptMake(m int) bool {
 // koptValid reports whether the closed m-opt move in s.kopt leaves one
 // tour (a walk over its segments), leaving the segments' new order in
 // s.kopt.key.
-func (s *solver) koptValid(m int) bool {
+func (s *solver) koptValid(m int) bool { return s.koptValidMates(m, &seqMates[m]) }
+
+// koptMates is a move's added edges: t[j] is joined to t[mate[j]].
+type koptMates [2*koptDepthMax + 2]int8
+
+// seqMates[m] are the added edges of a sequential m-opt move: (t[2j],
+// t[2j+1]) for j < m, and (t[2m], t[1]).
+var seqMates = func() (ms [koptDepthMax + 1]koptMates) {
+	for m := 1; m <= koptDepthMax; m++ {
+		ms[m][1], ms[m][2*m] = int8(2*m), 1
+		for j := 1; j < m; j++ {
+			ms[m][2*j], ms[m][2*j+1] = int8(2*j+1), int8(2*j)
+		}
+	}
+	return ms
+}()
+
+// koptValidMates is koptValid for the move that removes (t[2j-1], t[2j])
+// and adds the edges mate gives.
+func (s *solver) koptValidMates(m int, mate *koptMates) bool {
 	k := &s.kopt
 	s.koptSegments(m)
 	// Sorted index q is segment q/2's head (even) or last node (odd),
-	// segments in tour order. Walk: along a segment, then an added edge:
-	// (t[2j], t[2j+1]) for j < m, and (t[2m], t[1]).
-	last := int8(2 * m)
+	// segments in tour order. Walk: along a segment, then an added edge.
 	var key uint32 // the signed permutation of segments 1..m-1 in the new order
 	at := int8(0)  // sorted index where the walk enters a segment
 	for c := 0; ; c++ {
@@ -189,17 +206,7 @@ func (s *solver) koptValid(m int) bool {
 			}
 			key |= e << (4 * (c - 1))
 		}
-		j := k.idx[at^1] // the segment's exit, as an index into t
-		switch {
-		case j == 1:
-			j = last
-		case j == last:
-			j = 1
-		case j&1 == 0:
-			j++
-		default:
-			j--
-		}
+		j := mate[k.idx[at^1]&15] // the segment's exit, as an index into t, then its added edge's other end
 		nx := k.rank[j]
 		if nx == 0 {
 			if c != m-1 {
@@ -218,8 +225,11 @@ func (s *solver) koptValid(m int) bool {
 
 // koptDo makes the closed m-opt move in s.kopt if it leaves one tour and
 // its reversals are short enough.
-func (s *solver) koptDo(m int) bool {
-	if !s.koptValid(m) {
+func (s *solver) koptDo(m int) bool { return s.koptDoMates(m, &seqMates[m]) }
+
+// koptDoMates is koptDo for the move whose added edges mate gives.
+func (s *solver) koptDoMates(m int, mate *koptMates) bool {
+	if !s.koptValidMates(m, mate) {
 		return false
 	}
 	k := &s.kopt

@@ -30,7 +30,7 @@ type move struct {
 // removed edge and applies it. It reports whether it did.
 func (s *solver) improve(v int32) bool {
 	if s.lkOnly {
-		return s.lkSearch(v)
+		return s.lkSearch(v) || (s.bridge && s.bridgeSearch(v))
 	}
 	best := move{delta: -s.eps}
 	s.best2Opt(v, &best)

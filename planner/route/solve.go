@@ -257,6 +257,7 @@ func (c *control) heuristic(items []Item, start, end *Point, closed bool, deadli
 		// they must on points: there the chained search alone was much
 		// worse, 0.63% mean gap on TSPLIB against 0.36%).
 		s.lkOnly = lk && lkOnlyStrokes && s.n >= lkOnlyMin && 4*(g.real-len(items)) >= g.real
+		s.bridge = s.lkOnly && bridgeStrokes
 	}
 	c.report("construct", s.length-fixedLen, 0)
 	for _, v := range s.t {

@@ -31,6 +31,7 @@ type solver struct {
 	lk        lkState
 	lkTouched []int32
 	useLK     bool              // chained k-opt (lk.go) instead of single 4-/5-opt moves
+	bridge    bool              // double bridges found by search after the chained search (bridge.go)
 	lkOnly    bool              // the chained search alone, without 2-opt, Or-opt and 3-opt first
 	lkBreadth [koptDepthMax]int // the chained search's breadth by level
 	units     []int32
