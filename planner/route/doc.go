@@ -56,7 +56,11 @@
 //     5-opt move of greatest partial gain, continued from its last node,
 //     up to eight basic moves deep; a chain that never gains is undone.
 //     Where stroke ends are at least half the nodes, the Lin-Kernighan
-//     search runs alone, without the shallower moves first.
+//     search runs alone, without the shallower moves first, and where it
+//     finds nothing, double bridges are searched for: a 2-exchange that
+//     splits the tour and gains, joined again by a second one across its
+//     two cycles (the non-sequential moves of Helsgaun 2009, "General
+//     k-opt submoves for the Lin-Kernighan TSP heuristic").
 //   - Improvement until the budget is spent: segment-local double-bridge
 //     kicks (Martin, Otto & Felten 1991): four edges cut close together,
 //     X B C D reconnected as X D C B (or, for half the kicks, X C B D)
