@@ -368,6 +368,9 @@ var coverageTolerance = struct{ rel, abs float64 }{coverageRel, coverageAbs}
 // exp(−(hi−lo))) is over 4.8 % of exp(−lo) (> coverageRel·exp(−hi)) and
 // over 2·10⁻⁶ (> coverageAbs).
 func missAccurate(lo, hi float64, n int) bool {
+	if lo == hi {
+		return true // accurate(e, e, n) for e = exp(−lo) ≥ 0
+	}
 	if hi-lo >= 0.05 && lo <= 10 {
 		return false
 	}
@@ -952,7 +955,9 @@ func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 [
 			if l+1 < r.l1 {
 				a.y1 = (lineY(l) + lineY(l+1)) / 2
 			}
-			ck.decide(a, active, fu0, fu1, fy0, fy1)
+			if !paintedLines || !ck.paintedLine(a, active, fu0, fu1) {
+				ck.decide(a, active, fu0, fu1, fy0, fy1)
+			}
 		}
 		return
 	}
@@ -988,6 +993,80 @@ func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 [
 	ck.decide(a, active, fu0, fu1, fy0, fm)
 	ck.decide(b, active, fu0, fu1, fm, fy1)
 }
+
+// paintedLine takes range a, one site line of a range whose along
+// factors are all flat (fu0[i] == fu1[i]; split's line by line case), at
+// once when every one of its sites is painted: what decide would do there
+// (the same pieces, bounds and tests, in the same order, so the same
+// sums bit for bit) without its general machinery, which cost most of a
+// pad's interior (a line per chunk of 512 dimers, every line of a pad).
+// It returns false, having counted nothing, where a is not such a line
+// or decide would not take it at once: decide then sums it as before.
+func (ck *coverageCheck) paintedLine(a siteRect, all []*piece, fu0, fu1 []float64) bool {
+	l, n := a.l0, a.d1-a.d0
+	y := lineY(l)
+	if n <= 1 || (a.y0 == y && a.y1 == y) || len(all) > manyPieces {
+		return false
+	}
+	row, side := l/2, l%2
+	if countSide(ck.painted.Row(a.t, row), side, a.d0, a.d1) != n {
+		return false // not every site painted: take's unpainted sites
+	}
+	if ck.grid != nil && !ck.grid.holds(ck.surf, a) {
+		return false
+	}
+	if !ck.dwelled.IsEmpty() && ck.dwellIn(a) {
+		return false
+	}
+	lo, hi := 0.0, 0.0
+	best, who := 0.0, int32(-1)
+	for i, p := range all {
+		if !(p.uLo <= a.u1 && p.uHi >= a.u0 && p.yLo <= a.y1 && p.yHi >= a.y0) {
+			continue // as decide: pieces that do not reach a's box
+		}
+		if p.kind == pieceSlanted || fu0[i] != fu1[i] {
+			return false
+		}
+		var plo, phi, top float64
+		ul, uh := unimodal(fu0[i], fu1[i], a.u0, a.u1, p.uPeak(), p.uTop)
+		if p.comb != nil {
+			yl, yh, yt := p.comb.bounds(l, l+1)
+			plo, phi, top = p.amp*ul*yl, p.amp*uh*yh, p.amp*uh*yt
+		} else {
+			fy := p.yFactorLine(l)
+			yl, yh := unimodal(fy, fy, y, y, p.yPeak(), p.yTop)
+			plo, phi = p.amp*ul*yl, p.amp*uh*yh
+			top = phi
+		}
+		lo += plo
+		hi += phi
+		if top > best {
+			best, who = top, p.stroke
+		}
+	}
+	if hi > exposureNone {
+		// decide's tests where a holds painted sites only: the missed
+		// sites pinned down, and the unpainted sites (none) either all
+		// below the limit or all above.
+		if !(lo >= exposureSure || missAccurate(lo, hi, n)) {
+			return false
+		}
+		strayLo := clearFast(lo)
+		strayHi := strayLo
+		if hi != lo {
+			strayHi = clearFast(hi)
+		}
+		if !(strayHi <= ck.prof.StrayLimit && accurate(strayLo, strayHi, n)) && !(strayLo > ck.prof.StrayLimit) {
+			return false
+		}
+	}
+	ck.takePaintedLine(a, lo, hi, who, n)
+	return true
+}
+
+// paintedLines switches paintedLine; a test compares against decide
+// with it off.
+var paintedLines = true
 
 // manyPieces is the most pieces whose bounds decide weighs: a range
 // reached by more (a field of 10⁶ windows) is halved by its geometry
@@ -1133,6 +1212,30 @@ func (ck *coverageCheck) takePainted(r siteRect, lo, hi float64, who int32) {
 			a.logP += float64(n) * logOK
 		}
 		total += countSide(ck.painted.Row(r.t, row), side, r.d0, r.d1)
+	}
+	if who >= 0 {
+		ck.addMissed(who, float64(total)*miss)
+	}
+}
+
+// takePaintedLine is takePainted for a range of one site line whose
+// painted sites are known to number total.
+func (ck *coverageCheck) takePaintedLine(r siteRect, lo, hi float64, who int32, total int) {
+	if lo >= exposureSure {
+		return
+	}
+	x := (lo + hi) / 2
+	miss := math.Exp(-x)
+	logOK := math.Log1p(-miss)
+	row, side := r.l0/2, r.l0%2
+	for _, ri := range ck.regionsOnRow(r.t, row) {
+		n := countSide(ck.regions[ri].Sites.Row(r.t, row), side, r.d0, r.d1)
+		if n == 0 {
+			continue
+		}
+		a := ck.accAt(int(ri))
+		a.missed += float64(n) * miss
+		a.logP += float64(n) * logOK
 	}
 	if who >= 0 {
 		ck.addMissed(who, float64(total)*miss)
