@@ -184,6 +184,7 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 	allowed := ck.allowedFor(si, t, l)
 	limit := ck.prof.StrayLimit
 	var missed, stray, strayX float64
+	var ei, ai int // the sites go up in d: holdsDimer's and inSpans's searches, walked
 	for k, xi := range x {
 		d := d0 + k
 		i := 2*d + side
@@ -226,8 +227,22 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 			}
 			continue
 		}
-		if xi <= exposureNone || !holdsDimer(exist, d) || inSpans(allowed, lattice.DimerAlong(d)) {
+		if xi <= exposureNone {
 			continue
+		}
+		for ei < len(exist) && exist[ei].Hi <= d {
+			ei++
+		}
+		if ei == len(exist) || exist[ei].Lo > d {
+			continue // no dimer here (holdsDimer)
+		}
+		if u := lattice.DimerAlong(d); ai < len(allowed) {
+			for ai < len(allowed) && allowed[ai].Hi < u-1e-9 {
+				ai++
+			}
+			if ai < len(allowed) && u >= allowed[ai].Lo-1e-9 {
+				continue // within the allowance (inSpans)
+			}
 		}
 		p := clearFast(xi)
 		if p > limit {
