@@ -580,6 +580,16 @@ const (
 // along factor is flat (rather than halving).
 const flatLines = 32
 
+// flatGap is the largest spread of the exposure the along factors leave
+// (split's gapU) at which split still decides a range's lines one by one
+// where no AP stroke reaches it: each line is then taken at once where
+// its own bounds allow (decide), as a pad's lines are a few σ inside its
+// raster's ends, where halving along the dimers ended in strips summed
+// site by site. Half of what a painted site's miss may vary by (a gap of
+// 0.0198 in the exposure is coverageRel of exp(−x)). AP strokes keep the
+// exact flatness test: their expected missed sites set the repair times.
+const flatGap = 0.01
+
 // scan sums the sites of r one by one, a site line at a time. The along
 // factors of its parallel and square pieces (combs included) over r's
 // dimers are looked up once for all of r's lines, and where every active
@@ -927,25 +937,11 @@ func (ck *coverageCheck) countStray(site lattice.Site, x, p float64, who int32) 
 // leave. The halves share the new edge, so one new factor per piece
 // serves both.
 func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 []float64) {
-	gapU, gapY := 0.0, 0.0
-	slanted := false
-	for i, p := range active {
-		if p.kind == pieceSlanted {
-			slanted = true
-			continue
-		}
-		ul, uh := min(fu0[i], fu1[i]), max(fu0[i], fu1[i])
-		yl, yh := min(fy0[i], fy1[i]), max(fy0[i], fy1[i])
-		if p.comb != nil {
-			yl, yh, _ = p.comb.bounds(r.l0, r.l1)
-		}
-		gapU += p.amp * (uh - ul) * yh
-		gapY += p.amp * uh * (yh - yl)
-	}
-	if gapU == 0 && gapY > 0 && r.l1-r.l0 <= flatLines && !slanted {
-		// Every along factor is the same over r's dimers: the exposure
-		// changes from line to line only, so r's lines are decided one
-		// by one, as halving would end up doing.
+	gapU, gapY, slanted := gaps(r, active, fu0, fu1, fy0, fy1)
+	if (gapU == 0 || gapU <= flatGap && ck.noAP(active)) && gapY > gapU && r.l1-r.l0 <= flatLines && !slanted {
+		// Every along factor is the same over r's dimers (or nearly:
+		// flatGap): the exposure changes from line to line only, so r's
+		// lines are decided one by one, as halving would end up doing.
 		for l := r.l0; l < r.l1; l++ {
 			a := r
 			a.l0, a.l1 = l, l+1
@@ -995,8 +991,8 @@ func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 [
 }
 
 // paintedLine takes range a, one site line of a range whose along
-// factors are all flat (fu0[i] == fu1[i]; split's line by line case), at
-// once when every one of its sites is painted: what decide would do there
+// factors are (nearly) flat (split's line by line case; fu0, fu1 their
+// values at a's ends), at once when every one of its sites is painted: what decide would do there
 // (the same pieces, bounds and tests, in the same order, so the same
 // sums bit for bit) without its general machinery, which cost most of a
 // pad's interior (a line per chunk of 512 dimers, every line of a pad).
@@ -1024,7 +1020,7 @@ func (ck *coverageCheck) paintedLine(a siteRect, all []*piece, fu0, fu1 []float6
 		if !(p.uLo <= a.u1 && p.uHi >= a.u0 && p.yLo <= a.y1 && p.yHi >= a.y0) {
 			continue // as decide: pieces that do not reach a's box
 		}
-		if p.kind == pieceSlanted || fu0[i] != fu1[i] {
+		if p.kind == pieceSlanted {
 			return false
 		}
 		var plo, phi, top float64
@@ -1067,6 +1063,26 @@ func (ck *coverageCheck) paintedLine(a siteRect, all []*piece, fu0, fu1 []float6
 // paintedLines switches paintedLine; a test compares against decide
 // with it off.
 var paintedLines = true
+
+// gaps returns the spread of the exposure over r that the along factors
+// leave (gapU) against the one the across factors leave (gapY), and
+// whether a slanted piece reaches r.
+func gaps(r siteRect, active []*piece, fu0, fu1, fy0, fy1 []float64) (gapU, gapY float64, slanted bool) {
+	for i, p := range active {
+		if p.kind == pieceSlanted {
+			slanted = true
+			continue
+		}
+		ul, uh := min(fu0[i], fu1[i]), max(fu0[i], fu1[i])
+		yl, yh := min(fy0[i], fy1[i]), max(fy0[i], fy1[i])
+		if p.comb != nil {
+			yl, yh, _ = p.comb.bounds(r.l0, r.l1)
+		}
+		gapU += p.amp * (uh - ul) * yh
+		gapY += p.amp * uh * (yh - yl)
+	}
+	return gapU, gapY, slanted
+}
 
 // manyPieces is the most pieces whose bounds decide weighs: a range
 // reached by more (a field of 10⁶ windows) is halved by its geometry
@@ -1380,4 +1396,14 @@ func (ck *coverageCheck) advice(who int32) string {
 		return what + fmt.Sprintf(" reaches it beyond the %g nm FE edge allowance: keep it farther from the region, or write the region's edge in AP (hybrid)", ck.prof.FE.EdgeAllowanceNM)
 	}
 	return what + " reaches it: an AP line's footprint (ap.sigma_nm) clears the next site along or across the row; keep that site inside the region, end the region on whole dimers, or lower ap.line_dose_c_per_cm"
+}
+
+// noAP reports whether no active piece is an AP stroke's.
+func (ck *coverageCheck) noAP(active []*piece) bool {
+	for _, p := range active {
+		if ck.strokes[p.stroke].Mode == design.ModeAP {
+			return false
+		}
+	}
+	return true
 }
