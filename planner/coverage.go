@@ -1244,8 +1244,26 @@ func (ck *coverageCheck) takePaintedLine(r siteRect, lo, hi float64, who int32, 
 	miss := math.Exp(-x)
 	logOK := math.Log1p(-miss)
 	row, side := r.l0/2, r.l0%2
-	for _, ri := range ck.regionsOnRow(r.t, row) {
-		n := countSide(ck.regions[ri].Sites.Row(r.t, row), side, r.d0, r.d1)
+	regs := ck.regionsOnRow(r.t, row)
+	// Where one region has sites in r it holds all total of them (painted
+	// is the union of the regions): only that one is counted.
+	one := -1
+	for k, ri := range regs {
+		if ck.regions[ri].Sites.Row(r.t, row).Any(2*r.d0, 2*r.d1, lattice.SideOf(side)) {
+			if one != -1 {
+				one = -2
+				break
+			}
+			one = k
+		}
+	}
+	for k, ri := range regs {
+		n := total
+		if one < 0 {
+			n = countSide(ck.regions[ri].Sites.Row(r.t, row), side, r.d0, r.d1)
+		} else if k != one {
+			continue
+		}
 		if n == 0 {
 			continue
 		}
