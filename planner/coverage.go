@@ -731,7 +731,12 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu []float6
 			if xi >= exposureSure {
 				continue
 			}
-			miss, logOK := missAndLog(xi)
+			var miss, logOK float64
+			if noAP {
+				miss, logOK = missLogPower(xi)
+			} else {
+				miss, logOK = missAndLog(xi)
+			}
 			if len(regs) == 1 {
 				oneMissed += miss
 				oneLog += logOK

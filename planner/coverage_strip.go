@@ -192,7 +192,7 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 			if xi >= exposureSure {
 				continue
 			}
-			// missAndLog from the tables' power form (see missLogSpans),
+			// missAndLog from the tables' power form (see missSpans; missLogPower is the same as a call),
 			// written out: the compiler does not inline a call.
 			var miss, logOK float64
 			if t := xi * expSteps; t >= 0 {
@@ -281,12 +281,35 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 	return true
 }
 
+// missLogPower is missAndLog from the tables' power form (missSpans,
+// logOKSpans): the same cubics, for sums where no AP stroke's sites are
+// (see missSpans).
+func missLogPower(x float64) (miss, logOK float64) {
+	t := x * expSteps
+	if !(t >= 0 && t < expLast) {
+		return missAndLog(x)
+	}
+	i := int(t)
+	f := t - float64(i)
+	c := &missSpans[i]
+	miss = c[0] + f*(c[1]+f*(c[2]+f*c[3]))
+	if miss < 1e-4 {
+		return miss, -miss - miss*miss/2
+	}
+	if j := i - logOffset; j >= 0 && j < logLast {
+		c := &logOKSpans[j]
+		return miss, c[0] + f*(c[1]+f*(c[2]+f*c[3]))
+	}
+	return miss, math.Log1p(-miss)
+}
+
 // missSpans and logOKSpans are missAndLog's exp and log tables with each
 // step's cubic Hermite in power form, c0 + f·(c1 + f·(c2 + f·c3)): the
 // same cubics, three products instead of the Hermite weights' dozen.
-// Strips sum FE strokes' sites only, whose figures may move by rounding;
-// scan keeps missAndLog bit for bit (AP strokes' missed sites set the
-// session's repair times).
+// Strips sum FE strokes' sites only, whose figures may move by rounding,
+// and so does scan where no AP stroke reaches its range (missLogPower);
+// elsewhere scan keeps missAndLog bit for bit (AP strokes' missed sites
+// set the session's repair times).
 var missSpans, logOKSpans = powerForm(expSpans), powerForm(logSpans)
 
 // powerForm returns Hermite spans (v0, s0, v1, s1 per step) as the power

@@ -115,6 +115,23 @@ func TestMissLogPowerForm(t *testing.T) {
 		if math.Abs(miss-wantMiss) > 1e-14*wantMiss {
 			t.Fatalf("miss at %v: %v, missAndLog %v", x, miss, wantMiss)
 		}
+		// missLogPower (scan's, where no AP stroke reaches) is the same
+		// cubic; its log from the log table within the table's bound of
+		// log1p's, elsewhere the series or log1p of its miss.
+		pm, pl := missLogPower(x)
+		if pm != miss {
+			t.Fatalf("missLogPower at %v: miss %v, want %v", x, pm, miss)
+		}
+		if j := i - logOffset; pm >= 1e-4 && j >= 0 && j < logLast {
+			if want := math.Log1p(-math.Exp(-x)); math.Abs(pl-want) > 1.5e-8 {
+				t.Fatalf("missLogPower at %v: log %v, want %v", x, pl, want)
+			}
+			if math.Abs(pl-wantLog) > 1e-14*math.Abs(wantLog) {
+				t.Fatalf("missLogPower at %v: log %v, missAndLog %v", x, pl, wantLog)
+			}
+		} else if want := logNotMissed(x, pm); pl != want {
+			t.Fatalf("missLogPower at %v: log %v, want %v (series or log1p of its miss)", x, pl, want)
+		}
 		if j := i - logOffset; miss >= 1e-4 && j >= 0 && j < logLast {
 			c := &logOKSpans[j]
 			logOK := c[0] + f*(c[1]+f*(c[2]+f*c[3]))
