@@ -3,6 +3,8 @@ package planner
 import (
 	"math"
 
+	"github.com/golang/geo/r1"
+
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -181,7 +183,8 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 		regs[nr], regBits[nr] = ri, w
 		nr++
 	}
-	allowed := ck.allowedFor(si, t, l)
+	var allowed []r1.Interval
+	looked := false // allowed is looked up at the first site that needs it
 	limit := ck.prof.StrayLimit
 	var missed, stray, strayX float64
 	var ei, ai int // the sites go up in d: holdsDimer's and inSpans's searches, walked
@@ -235,6 +238,9 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 		}
 		if ei == len(exist) || exist[ei].Lo > d {
 			continue // no dimer here (holdsDimer)
+		}
+		if !looked {
+			allowed, looked = ck.allowedFor(si, t, l), true
 		}
 		if u := lattice.DimerAlong(d); ai < len(allowed) {
 			for ai < len(allowed) && allowed[ai].Hi < u-1e-9 {
