@@ -717,8 +717,22 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu []float6
 	// every painted site is its.
 	regs := ck.regionsOnRow(t, row)
 	var regBits [8]lattice.RowBits
-	for k, ri := range regs[:min(len(regs), len(regBits))] {
-		regBits[k] = ck.regions[ri].Sites.Row(t, row)
+	if len(regs) > 1 && len(regs) <= len(regBits) {
+		// Only the regions with sites on this line's dimers, kept in
+		// their order: most often one.
+		var in [8]int32
+		nr := 0
+		for _, ri := range regs {
+			if w := ck.regions[ri].Sites.Row(t, row); w.Any(2*d0, 2*d1, lattice.SideOf(side)) {
+				in[nr], regBits[nr] = ri, w
+				nr++
+			}
+		}
+		regs = in[:nr]
+	} else {
+		for k, ri := range regs[:min(len(regs), len(regBits))] {
+			regBits[k] = ck.regions[ri].Sites.Row(t, row)
+		}
 	}
 	var oneMissed, oneLog float64
 	var allowed []r1.Interval
