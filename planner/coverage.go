@@ -701,6 +701,18 @@ func (ck *coverageCheck) scanLine(t, l, d0, d1 int, active []*piece, fu []float6
 				continue
 			}
 			bs, ws := best[:len(f)], who[:len(f)]
+			if p.comb == nil {
+				// The term is its own largest (topAmp == amp).
+				for k, v := range f {
+					if e := amp * v; e > 0 {
+						xs[k] += e
+						if e > bs[k] {
+							bs[k], ws[k] = e, p.stroke
+						}
+					}
+				}
+				continue
+			}
 			for k, v := range f {
 				if e := amp * v; e > 0 {
 					xs[k] += e
