@@ -197,19 +197,18 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 			if xi >= exposureSure {
 				continue
 			}
-			// missAndLog from the tables' power form (see missSpans; missLogPower is the same as a call),
-			// written out: the compiler does not inline a call.
+			// missLogPower written out (the compiler does not inline
+			// the call), from both tables' cubics side by side.
 			var miss, logOK float64
 			if t := xi * expSteps; t >= 0 {
 				i := int(t)
 				f := t - float64(i)
-				c := &missSpans[i]
+				c := &missLogSpans[i]
 				miss = c[0] + f*(c[1]+f*(c[2]+f*c[3]))
 				if miss < 1e-4 {
 					logOK = -miss - miss*miss/2
 				} else if j := i - logOffset; j >= 0 && j < logLast {
-					c := &logOKSpans[j]
-					logOK = c[0] + f*(c[1]+f*(c[2]+f*c[3]))
+					logOK = c[4] + f*(c[5]+f*(c[6]+f*c[7]))
 				} else {
 					logOK = math.Log1p(-miss)
 				}
@@ -319,6 +318,20 @@ func missLogPower(x float64) (miss, logOK float64) {
 // elsewhere scan keeps missAndLog bit for bit (AP strokes' missed sites
 // set the session's repair times).
 var missSpans, logOKSpans = powerForm(expSpans), powerForm(logSpans)
+
+// missLogSpans holds, per step of the exp table, missSpans' cubic and
+// the log table's cubic of the same step (logOKSpans[i−logOffset], zero
+// outside the log table): countLine reads both from one place.
+var missLogSpans = func() [][8]float64 {
+	t := make([][8]float64, len(missSpans))
+	for i := range t {
+		copy(t[i][:4], missSpans[i][:])
+		if j := i - logOffset; j >= 0 && j < len(logOKSpans) {
+			copy(t[i][4:], logOKSpans[j][:])
+		}
+	}
+	return t
+}()
 
 // powerForm returns Hermite spans (v0, s0, v1, s1 per step) as the power
 // coefficients of the same cubics in the step's fraction.

@@ -97,6 +97,17 @@ func TestStripsMatchBruteForce(t *testing.T) {
 // holds missAndLog to the same), and against missAndLog itself to
 // rounding (10⁻¹⁴ relative): the same cubics.
 func TestMissLogPowerForm(t *testing.T) {
+	// countLine's side-by-side table holds the two tables' cubics of
+	// each step.
+	for i, c := range missLogSpans {
+		var lg [4]float64
+		if j := i - logOffset; j >= 0 && j < len(logOKSpans) {
+			lg = logOKSpans[j]
+		}
+		if [4]float64(c[:4]) != missSpans[i] || [4]float64(c[4:]) != lg {
+			t.Fatalf("missLogSpans[%d] = %v, want %v and %v", i, c, missSpans[i], lg)
+		}
+	}
 	rng := rand.New(rand.NewPCG(10, 36))
 	for range 200000 {
 		x := rng.Float64() * exposureSure
