@@ -298,14 +298,13 @@ func missLogPower(x float64) (miss, logOK float64) {
 	}
 	i := int(t)
 	f := t - float64(i)
-	c := &missSpans[i]
+	c := &missLogSpans[i]
 	miss = c[0] + f*(c[1]+f*(c[2]+f*c[3]))
 	if miss < 1e-4 {
 		return miss, -miss - miss*miss/2
 	}
 	if j := i - logOffset; j >= 0 && j < logLast {
-		c := &logOKSpans[j]
-		return miss, c[0] + f*(c[1]+f*(c[2]+f*c[3]))
+		return miss, c[4] + f*(c[5]+f*(c[6]+f*c[7]))
 	}
 	return miss, math.Log1p(-miss)
 }
