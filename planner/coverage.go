@@ -1023,10 +1023,11 @@ func (ck *coverageCheck) split(r siteRect, active []*piece, fu0, fu1, fy0, fy1 [
 
 // paintedLine takes range a, one site line of a range whose along
 // factors are (nearly) flat (split's line by line case; fu0, fu1 their
-// values at a's ends), at once when every one of its sites is painted: what decide would do there
-// (the same pieces, bounds and tests, in the same order, so the same
-// sums bit for bit) without its general machinery, which cost most of a
-// pad's interior (a line per chunk of 512 dimers, every line of a pad).
+// values at a's ends), at once when every one of its sites is painted:
+// what decide would do there (the same pieces, bounds and tests, in the
+// same order, so the same sums bit for bit) without its general
+// machinery, which cost most of a pad's interior (a line per chunk of 512
+// dimers, every line of a pad).
 // It returns false, having counted nothing, where a is not such a line
 // or decide would not take it at once: decide then sums it as before.
 func (ck *coverageCheck) paintedLine(a siteRect, all []*piece, fu0, fu1 []float64) bool {
