@@ -63,7 +63,7 @@ func TestKneeCut(t *testing.T) {
 		{"the edge nearest the middle", 0, 1024, []*piece{line(fe, 10, 190), line(fe, 10, 205)}, 205 - k},
 		{"turn", 0, 1024, []*piece{turn(fe, 150)}, 150 + k},
 		{"no end inside", 0, 1024, []*piece{line(fe, -100, 900)}, -1},
-		{"edge too near the range's end", 0, 1024, []*piece{line(fe, -100, -2)}, -1},
+		{"edge too near the range's end", 0, 1024, []*piece{line(fe, -100, lattice.DimerEdge(stripDimers/4)-k)}, -1},
 		{"AP stroke active", 0, 1024, []*piece{line(fe, 10, 190), line(ap, 10, 190)}, -1},
 	} {
 		r := siteRect{l0: 0, l1: 2, d0: tc.d0, d1: tc.d1}

@@ -29,10 +29,10 @@ import (
 // raster's end to strips this wide (halving along the dimers, where the
 // along factors change), then takes each whole. On the demo
 // (instructions per check under cachegrind) 32 did better than 16, 64 or
-// 128: wider strips sum more sites that bounds would have taken at once;
-// since split takes nearly flat lines one by one (flatGap), 48 does
-// slightly better than 32 (−0.8 %; 24: +5 %, 40: as 32, 64: +0.7 %).
-const stripDimers = 48
+// 128: wider strips sum more sites that bounds would have taken at once.
+// Re-tried after split's nearly flat lines (flatGap) and cuts at the
+// along transitions (kneeCut): 32 896 M, 48 902 M, 64 912 M.
+const stripDimers = 32
 
 // stripStroke returns the stroke of active's pieces when they are all
 // lines (parallel, square or slanted pieces, combs among them) of one FE
