@@ -3,6 +3,8 @@ package planner
 import (
 	"math"
 
+	"github.com/golang/geo/r1"
+
 	"dimerpath/lattice"
 	"dimerpath/lattice/design"
 )
@@ -28,6 +30,8 @@ import (
 // along factors change), then takes each whole. On the demo
 // (instructions per check under cachegrind) 32 did better than 16, 64 or
 // 128: wider strips sum more sites that bounds would have taken at once.
+// Re-tried after split's nearly flat lines (flatGap) and cuts at the
+// along transitions (kneeCut): 32 896 M, 48 902 M, 64 912 M.
 const stripDimers = 32
 
 // stripStroke returns the stroke of active's pieces when they are all
@@ -181,9 +185,11 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 		regs[nr], regBits[nr] = ri, w
 		nr++
 	}
-	allowed := ck.allowedFor(si, t, l)
+	var allowed []r1.Interval
+	looked := false // allowed is looked up at the first site that needs it
 	limit := ck.prof.StrayLimit
 	var missed, stray, strayX float64
+	var ei, ai int // the sites go up in d: holdsDimer's and inSpans's searches, walked
 	for k, xi := range x {
 		d := d0 + k
 		i := 2*d + side
@@ -191,19 +197,18 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 			if xi >= exposureSure {
 				continue
 			}
-			// missAndLog from the tables' power form (see missLogSpans),
-			// written out: the compiler does not inline a call.
+			// missLogPower written out (the compiler does not inline
+			// the call), from both tables' cubics side by side.
 			var miss, logOK float64
 			if t := xi * expSteps; t >= 0 {
 				i := int(t)
 				f := t - float64(i)
-				c := &missSpans[i]
+				c := &missLogSpans[i]
 				miss = c[0] + f*(c[1]+f*(c[2]+f*c[3]))
 				if miss < 1e-4 {
 					logOK = -miss - miss*miss/2
 				} else if j := i - logOffset; j >= 0 && j < logLast {
-					c := &logOKSpans[j]
-					logOK = c[0] + f*(c[1]+f*(c[2]+f*c[3]))
+					logOK = c[4] + f*(c[5]+f*(c[6]+f*c[7]))
 				} else {
 					logOK = math.Log1p(-miss)
 				}
@@ -226,8 +231,25 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 			}
 			continue
 		}
-		if xi <= exposureNone || !holdsDimer(exist, d) || inSpans(allowed, lattice.DimerAlong(d)) {
+		if xi <= exposureNone {
 			continue
+		}
+		for ei < len(exist) && exist[ei].Hi <= d {
+			ei++
+		}
+		if ei == len(exist) || exist[ei].Lo > d {
+			continue // no dimer here (holdsDimer)
+		}
+		if !looked {
+			allowed, looked = ck.allowedFor(si, t, l), true
+		}
+		if u := lattice.DimerAlong(d); ai < len(allowed) {
+			for ai < len(allowed) && allowed[ai].Hi < u-1e-9 {
+				ai++
+			}
+			if ai < len(allowed) && u >= allowed[ai].Lo-1e-9 {
+				continue // within the allowance (inSpans)
+			}
 		}
 		p := clearFast(xi)
 		if p > limit {
@@ -266,13 +288,49 @@ func (ck *coverageCheck) countLine(t, l, d0 int, x []float64, si int32, active [
 	return true
 }
 
+// missLogPower is missAndLog from the tables' power form (missSpans,
+// logOKSpans): the same cubics, for sums where no AP stroke's sites are
+// (see missSpans).
+func missLogPower(x float64) (miss, logOK float64) {
+	t := x * expSteps
+	if !(t >= 0 && t < expLast) {
+		return missAndLog(x)
+	}
+	i := int(t)
+	f := t - float64(i)
+	c := &missLogSpans[i]
+	miss = c[0] + f*(c[1]+f*(c[2]+f*c[3]))
+	if miss < 1e-4 {
+		return miss, -miss - miss*miss/2
+	}
+	if j := i - logOffset; j >= 0 && j < logLast {
+		return miss, c[4] + f*(c[5]+f*(c[6]+f*c[7]))
+	}
+	return miss, math.Log1p(-miss)
+}
+
 // missSpans and logOKSpans are missAndLog's exp and log tables with each
 // step's cubic Hermite in power form, c0 + f·(c1 + f·(c2 + f·c3)): the
 // same cubics, three products instead of the Hermite weights' dozen.
-// Strips sum FE strokes' sites only, whose figures may move by rounding;
-// scan keeps missAndLog bit for bit (AP strokes' missed sites set the
-// session's repair times).
+// Strips sum FE strokes' sites only, whose figures may move by rounding,
+// and so does scan where no AP stroke reaches its range (missLogPower);
+// elsewhere scan keeps missAndLog bit for bit (AP strokes' missed sites
+// set the session's repair times).
 var missSpans, logOKSpans = powerForm(expSpans), powerForm(logSpans)
+
+// missLogSpans holds, per step of the exp table, missSpans' cubic and
+// the log table's cubic of the same step (logOKSpans[i−logOffset], zero
+// outside the log table): countLine reads both from one place.
+var missLogSpans = func() [][8]float64 {
+	t := make([][8]float64, len(missSpans))
+	for i := range t {
+		copy(t[i][:4], missSpans[i][:])
+		if j := i - logOffset; j >= 0 && j < len(logOKSpans) {
+			copy(t[i][4:], logOKSpans[j][:])
+		}
+	}
+	return t
+}()
 
 // powerForm returns Hermite spans (v0, s0, v1, s1 per step) as the power
 // coefficients of the same cubics in the step's fraction.

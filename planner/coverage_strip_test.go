@@ -97,6 +97,17 @@ func TestStripsMatchBruteForce(t *testing.T) {
 // holds missAndLog to the same), and against missAndLog itself to
 // rounding (10⁻¹⁴ relative): the same cubics.
 func TestMissLogPowerForm(t *testing.T) {
+	// countLine's side-by-side table holds the two tables' cubics of
+	// each step.
+	for i, c := range missLogSpans {
+		var lg [4]float64
+		if j := i - logOffset; j >= 0 && j < len(logOKSpans) {
+			lg = logOKSpans[j]
+		}
+		if [4]float64(c[:4]) != missSpans[i] || [4]float64(c[4:]) != lg {
+			t.Fatalf("missLogSpans[%d] = %v, want %v and %v", i, c, missSpans[i], lg)
+		}
+	}
 	rng := rand.New(rand.NewPCG(10, 36))
 	for range 200000 {
 		x := rng.Float64() * exposureSure
@@ -114,6 +125,23 @@ func TestMissLogPowerForm(t *testing.T) {
 		wantMiss, wantLog := missAndLog(x)
 		if math.Abs(miss-wantMiss) > 1e-14*wantMiss {
 			t.Fatalf("miss at %v: %v, missAndLog %v", x, miss, wantMiss)
+		}
+		// missLogPower (scan's, where no AP stroke reaches) is the same
+		// cubic; its log from the log table within the table's bound of
+		// log1p's, elsewhere the series or log1p of its miss.
+		pm, pl := missLogPower(x)
+		if pm != miss {
+			t.Fatalf("missLogPower at %v: miss %v, want %v", x, pm, miss)
+		}
+		if j := i - logOffset; pm >= 1e-4 && j >= 0 && j < logLast {
+			if want := math.Log1p(-math.Exp(-x)); math.Abs(pl-want) > 1.5e-8 {
+				t.Fatalf("missLogPower at %v: log %v, want %v", x, pl, want)
+			}
+			if math.Abs(pl-wantLog) > 1e-14*math.Abs(wantLog) {
+				t.Fatalf("missLogPower at %v: log %v, missAndLog %v", x, pl, wantLog)
+			}
+		} else if want := logNotMissed(x, pm); pl != want {
+			t.Fatalf("missLogPower at %v: log %v, want %v (series or log1p of its miss)", x, pl, want)
 		}
 		if j := i - logOffset; miss >= 1e-4 && j >= 0 && j < logLast {
 			c := &logOKSpans[j]
