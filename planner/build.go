@@ -576,19 +576,34 @@ func (b *builder) regionWork() error {
 	if err := checkRuns(names, sets); err != nil {
 		return err
 	}
+	// Each region's plain sites and their run segments (checkRuns bounded
+	// their number), on every core at once: a pad's segments are most of
+	// this stage, in the serial head of the plan.
+	plains := make([]*lattice.SiteSet, len(b.lay.Regions))
+	segs := make([][]runSeg, len(b.lay.Regions))
+	blocks.Run(len(b.lay.Regions), 2, 1, func() func(lo, hi int) {
+		return func(lo, hi int) {
+			for i := lo; i < hi; i++ {
+				rl := &b.lay.Regions[i]
+				plain := rl.Sites
+				if len(rl.Windows) > 0 {
+					win := lattice.NewSiteSet()
+					for _, w := range rl.Windows {
+						w.AddTo(win)
+					}
+					plain = rl.Sites.Clone().Difference(win)
+				}
+				plains[i], segs[i] = plain, runSegments(b.gen.surf, plain)
+			}
+		}
+	})
 	for i := range b.lay.Regions {
 		rl := &b.lay.Regions[i]
 		r := rl.Region
-		plain := rl.Sites
-		if len(rl.Windows) > 0 {
-			win := lattice.NewSiteSet()
-			for _, w := range rl.Windows {
-				w.AddTo(win)
-			}
-			plain = rl.Sites.Clone().Difference(win)
-		}
+		plain := plains[i]
+		b.gen.segs[plain] = segs[i] // what segsOf(plain) returns from now on
 		rw := &regionWork{index: i, name: r.Name, role: r.Role, requested: r.Mode, sites: rl.Sites, windows: rl.Windows,
-			plain: plain, tolGiven: r.ToleranceNM, segs: b.gen.segsOf(plain)}
+			plain: plain, tolGiven: r.ToleranceNM, segs: segs[i]}
 		rw.dopant, rw.stepNamed = b.d.DopantOf(r), r.LithographyStep
 		b.tolerances(rw, r)
 		// The runs are at hand: their lengths count the sites without

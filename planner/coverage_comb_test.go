@@ -209,3 +209,31 @@ func TestCoverageDemoWithinStatedAccuracy(t *testing.T) {
 			fast.ExpectedMissed, exact.ExpectedMissed, fast.ExpectedStray, exact.ExpectedStray)
 	}
 }
+
+// TestCombBoundsMatchScan checks combLines.bounds (the sparse tables of
+// combTables) against a plain scan of the lines in range, for tables of
+// 1 to 70 lines and every range, including ranges reaching past the
+// table (lines there hold 0).
+func TestCombBoundsMatchScan(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	for n := 1; n <= 70; n++ {
+		c := &combLines{l0: 5, sum: make([]float64, n), top: make([]float64, n)}
+		for i := range n {
+			c.sum[i], c.top[i] = rng.Float64()*10, rng.Float64()
+		}
+		c.minS, c.maxS, c.maxT = combTables(c.sum, c.top)
+		for l0 := 0; l0 < n+8; l0++ {
+			for l1 := l0 + 1; l1 <= n+10; l1++ {
+				smin, smax, tmax := math.Inf(1), math.Inf(-1), math.Inf(-1)
+				for l := l0; l < l1; l++ {
+					s, tp := c.at(l)
+					smin, smax, tmax = min(smin, s), max(smax, s), max(tmax, tp)
+				}
+				gmin, gmax, gtop := c.bounds(l0, l1)
+				if gmin != smin || gmax != smax || gtop != tmax {
+					t.Fatalf("n %d lines [%d, %d): bounds %v %v %v, scan %v %v %v", n, l0, l1, gmin, gmax, gtop, smin, smax, tmax)
+				}
+			}
+		}
+	}
+}

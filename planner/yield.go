@@ -4,9 +4,9 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"sort"
 
-	"gonum.org/v1/gonum/stat"
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
@@ -252,15 +252,98 @@ func allIntervals(windows []Window, log10All float64, seed int64) (i68, i95 [2]f
 		nu := g.mean*(1-g.mean)/(g.sd*g.sd) - 1
 		betas[i] = distuv.Beta{Alpha: g.mean * nu, Beta: (1 - g.mean) * nu, Src: src}
 	}
+	counts := make([]float64, len(keys))
+	for i, k := range keys {
+		counts[i] = float64(groups[k].n)
+	}
+	// With one template the sample is fixed + n·log10(P1), which rises
+	// with P1: its order statistics are those of the draws carried
+	// through, so the draws are kept and only the four picked are
+	// carried (the same values, bit for bit).
+	one := len(keys) == 1
 	samples := make([]float64, YieldSamples)
 	for s := range samples {
+		if one {
+			samples[s] = betas[0].Rand()
+			continue
+		}
 		v := fixed
-		for i, k := range keys {
-			v += float64(groups[k].n) * math.Log10(betas[i].Rand())
+		for i := range betas {
+			v += counts[i] * math.Log10(betas[i].Rand())
 		}
 		samples[s] = v
 	}
-	sort.Float64s(samples)
-	q := func(f float64) float64 { return stat.Quantile(f, stat.Empirical, samples, nil) }
-	return [2]float64{q(0.16), q(0.84)}, [2]float64{q(0.025), q(0.975)}
+	q := empiricalQuantiles(samples, [4]float64{0.025, 0.16, 0.84, 0.975})
+	if one {
+		for i := range q {
+			q[i] = fixed + counts[0]*math.Log10(q[i])
+		}
+	}
+	return [2]float64{q[1], q[2]}, [2]float64{q[0], q[3]}
+}
+
+// empiricalQuantiles returns the quantiles ps (ascending) of x as
+// gonum's stat.Quantile gives them with stat.Empirical on x sorted (the
+// first sorted value whose rank i+1 reaches p·len(x); NaN if x holds a
+// NaN), by selection rather than a full sort. x is reordered.
+func empiricalQuantiles(x []float64, ps [4]float64) (q [4]float64) {
+	for _, v := range x {
+		if math.IsNaN(v) {
+			return [4]float64{math.NaN(), math.NaN(), math.NaN(), math.NaN()}
+		}
+	}
+	var idx [4]int
+	for i, p := range ps {
+		idx[i] = max(int(math.Ceil(p*float64(len(x))))-1, 0)
+	}
+	// Each selection narrows the next one's range: x[:k] holds the
+	// values below x[k], x[k+1:] those above.
+	lo := 0
+	for i, k := range idx {
+		if k >= lo {
+			selectKth(x[lo:], k-lo)
+			lo = k + 1
+		}
+		q[i] = x[k]
+	}
+	return q
+}
+
+// selectKth reorders x so that x[k] holds the value a sort would put
+// there, with no greater value before it and no smaller one after it
+// (quickselect, median-of-three pivot, three-way partition so that runs
+// of equal values end it at once; a sort after 64 rounds bounds the
+// worst case). x holds no NaN.
+func selectKth(x []float64, k int) {
+	for round := 0; len(x) > 1; round++ {
+		if round == 64 {
+			slices.Sort(x)
+			return
+		}
+		a, b, c := x[0], x[len(x)/2], x[len(x)-1]
+		pivot := max(min(a, b), min(max(a, b), c))
+		// x[:lt] < pivot, x[lt:i] == pivot, x[gt:] > pivot.
+		lt, i, gt := 0, 0, len(x)
+		for i < gt {
+			switch v := x[i]; {
+			case v < pivot:
+				x[lt], x[i] = v, x[lt]
+				lt++
+				i++
+			case v > pivot:
+				gt--
+				x[gt], x[i] = v, x[gt]
+			default:
+				i++
+			}
+		}
+		switch {
+		case k < lt:
+			x = x[:lt]
+		case k >= gt:
+			x, k = x[gt:], k-gt
+		default:
+			return
+		}
+	}
 }

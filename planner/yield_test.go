@@ -4,8 +4,11 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
+	"sort"
 	"testing"
 
+	"gonum.org/v1/gonum/stat"
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"dimerpath/lattice"
@@ -237,5 +240,95 @@ func TestYieldMultipleDonors(t *testing.T) {
 	y := YieldOf(ws, 1)
 	if math.Abs(y.All-0.252) > 1e-12 || math.Abs(y.ExpectedMultiple-0.63) > 1e-12 || math.Abs(y.ExpectedEmpty-0.018) > 1e-12 {
 		t.Errorf("all %v (want 0.252), multiple %v (want 0.63), empty %v (want 0.018)", y.All, y.ExpectedMultiple, y.ExpectedEmpty)
+	}
+}
+
+// TestEmpiricalQuantilesMatchGonum checks empiricalQuantiles (selection)
+// against gonum's stat.Quantile (stat.Empirical) on the sorted data, bit
+// for bit: random data of 1 to 300 values, with repeats and infinities.
+func TestEmpiricalQuantilesMatchGonum(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	ps := [4]float64{0.025, 0.16, 0.84, 0.975}
+	for n := 1; n <= 300; n++ {
+		x := make([]float64, n)
+		for i := range x {
+			switch rng.IntN(10) {
+			case 0:
+				x[i] = math.Inf(-1)
+			case 1, 2:
+				x[i] = float64(rng.IntN(3)) // repeats
+			default:
+				x[i] = rng.NormFloat64()
+			}
+		}
+		sorted := slices.Clone(x)
+		slices.Sort(sorted)
+		got := empiricalQuantiles(x, ps)
+		for i, p := range ps {
+			if want := stat.Quantile(p, stat.Empirical, sorted, nil); got[i] != want {
+				t.Fatalf("n %d, p %v: %v, gonum %v", n, p, got[i], want)
+			}
+		}
+	}
+	if q := empiricalQuantiles([]float64{1, math.NaN(), 2}, ps); !math.IsNaN(q[0]) || !math.IsNaN(q[3]) {
+		t.Errorf("with a NaN: %v, want NaN as stat.Quantile gives", q)
+	}
+}
+
+// TestAllIntervalsMatchSortedSamples checks allIntervals against the
+// straightforward computation (every draw carried to log10 P(all), all
+// sorted, gonum's stat.Quantile), bit for bit, for one template and for
+// two, on several seeds.
+func TestAllIntervalsMatchSortedSamples(t *testing.T) {
+	p, as := lattice.PhosphineWindow, lattice.ArsineWindow
+	win := func(tm lattice.WindowTemplate, open float64) Window {
+		return Window{Template: tm.Name, OpenProbability: open, P0: tm.P0, P1: tm.P1, P2Plus: tm.P2Plus, P1SD: tm.P1SD, Probability: open * tm.P1}
+	}
+	for _, ws := range [][]Window{
+		{win(p, 0.98), win(p, 0.98)},
+		{win(p, 0.98), win(as, 1), win(as, 1), win(p, 0.98), win(as, 1)},
+	} {
+		for seed := int64(1); seed <= 3; seed++ {
+			log10All := 0.0
+			for _, w := range ws {
+				log10All += math.Log10(w.Probability)
+			}
+			i68, i95 := allIntervals(ws, log10All, seed)
+			// The straightforward way, as allIntervals did before.
+			type key struct {
+				template string
+				mean, sd float64
+			}
+			count := map[key]int{}
+			var keys []key
+			fixed := 0.0
+			for _, w := range ws {
+				fixed += math.Log10(w.Probability / w.P1)
+				k := key{w.Template, w.P1, w.P1SD}
+				if count[k] == 0 {
+					keys = append(keys, k)
+				}
+				count[k]++
+			}
+			src := rand.NewPCG(uint64(seed), 0x7969656c64)
+			var betas []distuv.Beta
+			for _, k := range keys {
+				nu := k.mean*(1-k.mean)/(k.sd*k.sd) - 1
+				betas = append(betas, distuv.Beta{Alpha: k.mean * nu, Beta: (1 - k.mean) * nu, Src: src})
+			}
+			samples := make([]float64, YieldSamples)
+			for s := range samples {
+				v := fixed
+				for i, k := range keys {
+					v += float64(count[k]) * math.Log10(betas[i].Rand())
+				}
+				samples[s] = v
+			}
+			sort.Float64s(samples)
+			q := func(f float64) float64 { return stat.Quantile(f, stat.Empirical, samples, nil) }
+			if want68, want95 := [2]float64{q(0.16), q(0.84)}, [2]float64{q(0.025), q(0.975)}; i68 != want68 || i95 != want95 {
+				t.Errorf("%d windows, seed %d: %v %v, sorted samples give %v %v", len(ws), seed, i68, i95, want68, want95)
+			}
+		}
 	}
 }

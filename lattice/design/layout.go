@@ -2,9 +2,11 @@ package design
 
 import (
 	"fmt"
+	"sync/atomic"
 
 	"github.com/golang/geo/r2"
 
+	"dimerpath/internal/blocks"
 	"dimerpath/lattice"
 )
 
@@ -61,14 +63,21 @@ func (d *Design) Lay(variant string) (*Layout, error) {
 		Templates: d.Templates(),
 		Regions:   make([]RegionLayout, len(v.Regions)),
 	}
+	pre := paintRegions(v.Regions, surf, l.Templates)
 	words := 0
 	for i := range v.Regions {
 		r := &v.Regions[i]
-		sites, err := r.Sites(surf, l.Templates)
-		if err != nil {
-			return nil, fmt.Errorf("variant %q: %w", v.Name, err)
+		p := pre[i]
+		if p.sites == nil && p.err == nil {
+			p.sites, p.err = r.Sites(surf, l.Templates)
+			if p.err == nil {
+				p.bounds = p.sites.Bounds(surf)
+			}
 		}
-		if words += sites.StorageWords(); words > MaxLayoutWords {
+		if p.err != nil {
+			return nil, fmt.Errorf("variant %q: %w", v.Name, p.err)
+		}
+		if words += p.sites.StorageWords(); words > MaxLayoutWords {
 			return nil, fmt.Errorf("variant %q: its regions need more than %d MiB of site storage, the limit (at region %q)", v.Name, MaxLayoutWords*8>>20, r.Name)
 		}
 		windows, err := r.Windows(surf, l.Templates)
@@ -77,13 +86,54 @@ func (d *Design) Lay(variant string) (*Layout, error) {
 		}
 		l.Regions[i] = RegionLayout{
 			Region:      r,
-			Sites:       sites,
+			Sites:       p.sites,
 			Windows:     windows,
 			ToleranceNM: r.Tolerance(l.Rules),
-			Bounds:      sites.Bounds(surf),
+			Bounds:      p.bounds,
 		}
 	}
 	return l, nil
+}
+
+// paintedRegion is a region's sites (and their bounds) or its error, as
+// paintRegions left them; neither set: not painted.
+type paintedRegion struct {
+	sites  *lattice.SiteSet
+	bounds r2.Rect
+	err    error
+}
+
+// paintRegions paints the regions' sites on every core at once (a
+// design's large pads take most of Lay). Lay then checks them in region
+// order as it always did, painting there any region left out here, so
+// its result and its first error are those of painting one by one. The
+// regions are taken in order, and none is taken once one has failed or
+// those painted hold more than MaxLayoutWords: beyond the limit at most
+// one region per core is painted, as one region is one by one.
+func paintRegions(regions []Region, surf *lattice.Surface, templates Templates) []paintedRegion {
+	out := make([]paintedRegion, len(regions))
+	var words atomic.Int64
+	var stop atomic.Bool
+	blocks.Run(len(regions), 2, 1, func() func(lo, hi int) {
+		return func(lo, hi int) {
+			for i := lo; i < hi; i++ {
+				if stop.Load() {
+					return
+				}
+				p := &out[i]
+				p.sites, p.err = regions[i].Sites(surf, templates)
+				if p.err != nil {
+					stop.Store(true)
+					continue
+				}
+				p.bounds = p.sites.Bounds(surf)
+				if words.Add(int64(p.sites.StorageWords())) > MaxLayoutWords {
+					stop.Store(true)
+				}
+			}
+		}
+	})
+	return out
 }
 
 // Region returns the laid-out region with the given name, or nil.
