@@ -294,7 +294,7 @@ func empiricalQuantiles(x []float64, ps [4]float64) (q [4]float64) {
 	}
 	var idx [4]int
 	for i, p := range ps {
-		idx[i] = max(int(math.Ceil(p*float64(len(x))))-1, 0)
+		idx[i] = quantileIndex(p, len(x))
 	}
 	// Each selection narrows the next one's range: x[:k] holds the
 	// values below x[k], x[k+1:] those above.
