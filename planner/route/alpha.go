@@ -182,9 +182,9 @@ func (t *oneTree) build(sg *sparseGraph, pi []float64) bool {
 	// (fixed edges at -Inf, so they are taken first). The heap holds the
 	// keys beside the nodes and the adjacency its costs beside the other
 	// ends, so the inner loop reads no edge record unless it improves a
-	// key: the same comparisons in the same order as with the keys
-	// looked up by node (the same trees), 25 of these trees are most of
-	// the search's set-up.
+	// key. It makes the same comparisons in the same order as with the
+	// keys looked up by node (the same trees). The ascent's trees
+	// (ascentIters of them) are most of the search's set-up.
 	t.keyEdge[0] = -1
 	t.push(0, math.Inf(-1))
 	for len(t.heap) > 0 {

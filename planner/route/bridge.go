@@ -50,6 +50,7 @@ func (s *solver) bridgeSearch(t1 int32) bool {
 			continue
 		}
 		d12 := g.d(t1, t2)
+		n2 := s.next(t2, dir) // fixed in the loop: a move made returns
 		ids, ds := s.nb.list(t2)
 		for c, t3 := range ids {
 			if t3 < 0 {
@@ -59,7 +60,7 @@ func (s *solver) bridgeSearch(t1 int32) bool {
 			if g1 <= s.eps {
 				break
 			}
-			if t3 == t1 || t3 == s.next(t2, dir) {
+			if t3 == t1 || t3 == n2 {
 				continue
 			}
 			t4 := s.next(t3, dir)

@@ -60,10 +60,12 @@ func (s *solver) kick(r *rng, segMax int32) bool {
 		if k > 0 {
 			p[k] = p[k-1] + 1 + r.intn(segMax)
 		}
-		u[k], w[k] = s.nodeAt(p[k]%n), s.nodeAt((p[k]+1)%n)
+		u[k] = s.nodeAt(p[k] % n)
+		w[k] = s.succ(u[k])
 		if g.fixed(u[k], w[k]) {
 			p[k]++
-			u[k], w[k] = s.nodeAt(p[k]%n), s.nodeAt((p[k]+1)%n)
+			u[k] = s.nodeAt(p[k] % n)
+			w[k] = s.succ(u[k])
 		}
 		if g.fixed(u[k], w[k]) || (k > 0 && p[k] <= p[k-1]) {
 			return false
@@ -136,7 +138,7 @@ func (s *solver) newBest() bool {
 
 // keepBest copies the tour as it was before the reversals journalled
 // since mark (the best so far) into bestT: it undoes them, copies the
-// array, and makes them again.
+// tour, and makes them again.
 func (s *solver) keepBest(mark int) {
 	s.redo = append(s.redo[:0], s.journal[mark:]...)
 	length := s.length

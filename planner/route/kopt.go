@@ -206,7 +206,7 @@ func (s *solver) koptValidMates(m int, mate *koptMates) bool {
 			}
 			key |= e << (4 * (c - 1))
 		}
-		j := mate[k.idx[at^1]&15] // the segment's exit, as an index into t, then its added edge's other end
+		j := mate[k.idx[at^1]] // the segment's exit, as an index into t, then its added edge's other end
 		nx := k.rank[j]
 		if nx == 0 {
 			if c != m-1 {

@@ -48,7 +48,8 @@ type solver struct {
 	offBest bool    // the tour is longer than the best one, kept in bestT
 	redo    []int32
 	// two, when set, holds the tour instead of t and pos (tour2.go). Only
-	// the chained search (lk.go, kopt.go), the kicks and undo run on it,
+	// the chained search (lk.go, kopt.go), the double bridges (bridge.go),
+	// the kicks, undo and the tour's extraction run on it,
 	// through succ, pred, next, position and nodeAt; the shallower moves
 	// (opt.go, or3.go) and the one-way checks read t and pos directly,
 	// which is right because the list is used only where the search runs
