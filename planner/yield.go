@@ -4,10 +4,11 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"slices"
 	"sort"
 
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"dimerpath/internal/selection"
 )
 
 // PoissonBinomial returns the distribution of the number of successes
@@ -256,17 +257,8 @@ func allIntervals(windows []Window, log10All float64, seed int64) (i68, i95 [2]f
 	for i, k := range keys {
 		counts[i] = float64(groups[k].n)
 	}
-	// With one template the sample is fixed + n·log10(P1), which rises
-	// with P1: its order statistics are those of the draws carried
-	// through, so the draws are kept and only the four picked are
-	// carried (the same values, bit for bit).
-	one := len(keys) == 1
 	samples := make([]float64, YieldSamples)
 	for s := range samples {
-		if one {
-			samples[s] = betas[0].Rand()
-			continue
-		}
 		v := fixed
 		for i := range betas {
 			v += counts[i] * math.Log10(betas[i].Rand())
@@ -274,11 +266,6 @@ func allIntervals(windows []Window, log10All float64, seed int64) (i68, i95 [2]f
 		samples[s] = v
 	}
 	q := empiricalQuantiles(samples, [4]float64{0.025, 0.16, 0.84, 0.975})
-	if one {
-		for i := range q {
-			q[i] = fixed + counts[0]*math.Log10(q[i])
-		}
-	}
 	return [2]float64{q[1], q[2]}, [2]float64{q[0], q[3]}
 }
 
@@ -301,49 +288,10 @@ func empiricalQuantiles(x []float64, ps [4]float64) (q [4]float64) {
 	lo := 0
 	for i, k := range idx {
 		if k >= lo {
-			selectKth(x[lo:], k-lo)
+			selection.Kth(x[lo:], k-lo)
 			lo = k + 1
 		}
 		q[i] = x[k]
 	}
 	return q
-}
-
-// selectKth reorders x so that x[k] holds the value a sort would put
-// there, with no greater value before it and no smaller one after it
-// (quickselect, median-of-three pivot, three-way partition so that runs
-// of equal values end it at once; a sort after 64 rounds bounds the
-// worst case). x holds no NaN.
-func selectKth(x []float64, k int) {
-	for round := 0; len(x) > 1; round++ {
-		if round == 64 {
-			slices.Sort(x)
-			return
-		}
-		a, b, c := x[0], x[len(x)/2], x[len(x)-1]
-		pivot := max(min(a, b), min(max(a, b), c))
-		// x[:lt] < pivot, x[lt:i] == pivot, x[gt:] > pivot.
-		lt, i, gt := 0, 0, len(x)
-		for i < gt {
-			switch v := x[i]; {
-			case v < pivot:
-				x[lt], x[i] = v, x[lt]
-				lt++
-				i++
-			case v > pivot:
-				gt--
-				x[gt], x[i] = v, x[gt]
-			default:
-				i++
-			}
-		}
-		switch {
-		case k < lt:
-			x = x[:lt]
-		case k >= gt:
-			x, k = x[gt:], k-gt
-		default:
-			return
-		}
-	}
 }

@@ -3,6 +3,8 @@ package survey
 import (
 	"math"
 	"slices"
+
+	"dimerpath/internal/selection"
 )
 
 // grid is a real image, row-major with line 0 at the bottom.
@@ -114,64 +116,24 @@ func robustSD(v []float64) float64 {
 }
 
 // median returns the median of s, reordering s (Hoare's selection, in
-// linear expected time).
+// linear expected time; the upper middle of an even count is the least
+// value after the lower, which the selection leaves there).
 func median(s []float64) float64 {
 	n := len(s)
 	if n == 0 {
 		return 0
 	}
 	if n%2 == 1 {
-		return selectKth(s, n/2)
+		selection.Kth(s, n/2)
+		return s[n/2]
 	}
-	a := selectKth(s, n/2-1)
+	selection.Kth(s, n/2-1)
+	a := s[n/2-1]
 	b := s[n/2]
 	for _, v := range s[n/2:] {
 		b = math.Min(b, v)
 	}
 	return (a + b) / 2
-}
-
-// selectKth returns the k-th smallest of s (from 0), leaving the k
-// smallest before it and the rest after.
-func selectKth(s []float64, k int) float64 {
-	lo, hi := 0, len(s)-1
-	for lo < hi {
-		// Median of three as the pivot.
-		mid := lo + (hi-lo)/2
-		if s[mid] < s[lo] {
-			s[mid], s[lo] = s[lo], s[mid]
-		}
-		if s[hi] < s[lo] {
-			s[hi], s[lo] = s[lo], s[hi]
-		}
-		if s[hi] < s[mid] {
-			s[hi], s[mid] = s[mid], s[hi]
-		}
-		pivot := s[mid]
-		i, j := lo, hi
-		for i <= j {
-			for s[i] < pivot {
-				i++
-			}
-			for s[j] > pivot {
-				j--
-			}
-			if i <= j {
-				s[i], s[j] = s[j], s[i]
-				i++
-				j--
-			}
-		}
-		switch {
-		case k <= j:
-			hi = j
-		case k >= i:
-			lo = i
-		default:
-			return s[k]
-		}
-	}
-	return s[k]
 }
 
 // lineOffsets returns the offset of each scan line (a line of constant y)
