@@ -179,10 +179,8 @@ func (b *builder) startWriting() ([]Window, *coverageJob, error) {
 	var windows []Window
 	var err error
 	strokes := func() { windows, err = b.modesAndStrokes() }
-	if runtime.GOMAXPROCS(0) > 1 && b.painted == nil {
-		var painted *lattice.SiteSet
-		blocks.Both(func() { painted = b.regionsUnion() }, strokes)
-		b.painted = painted
+	if runtime.GOMAXPROCS(0) > 1 {
+		blocks.Both(func() { b.painted = b.regionsUnion() }, strokes)
 	} else {
 		strokes()
 	}
@@ -253,18 +251,19 @@ type coverageJob struct {
 	// warnAt is where in b.warnings the check's warning goes: where it
 	// stood when the check ran before the route.
 	warnAt int
-	// background is set when the sums run beside the route (more than
-	// one core); taken is set once finishCoverage took the results.
+	// background is set when the check (its pieces and its sums) runs
+	// beside the route (more than one core); taken is set once
+	// finishCoverage took the results.
 	background, taken bool
 }
 
-// startCoverage starts the coverage check of b.strokes. Their pieces are
-// made here, before the route reverses paths in place and changes
-// tolerances; the sums run on their own goroutine, with their own copy
-// of the strokes, when there is more than one core (on one, overlapping gains
-// nothing and would hold the check's memory and the route's at once:
-// they run here, as they do for a plan large enough to hold a GC budget,
-// whose memory matters more than the overlap). A panic of the check
+// startCoverage starts the coverage check of b.strokes as they stand
+// before the route reverses paths in place and changes tolerances. With
+// more than one core the whole check (pieces and sums) runs on its own
+// goroutine beside the route, of its own copy of the strokes and their
+// paths. On one core, and for a plan large enough to hold a GC budget,
+// it runs here: overlapping gains nothing on one core, and a large
+// plan's memory matters more than the overlap. A panic of the check
 // comes back as an *InternalError.
 func (b *builder) startCoverage() *coverageJob {
 	ctx, cancel := context.WithCancel(b.ctx)
@@ -302,7 +301,6 @@ func (b *builder) startCoverage() *coverageJob {
 	}
 	if job.background {
 		go check() // its pieces too are made beside the route, of its copy
-
 	} else {
 		check()
 	}
