@@ -69,10 +69,7 @@ func (d *Design) Lay(variant string) (*Layout, error) {
 		r := &v.Regions[i]
 		p := pre[i]
 		if p.sites == nil && p.err == nil {
-			p.sites, p.err = r.Sites(surf, l.Templates)
-			if p.err == nil {
-				p.bounds = p.sites.Bounds(surf)
-			}
+			p = paintRegion(r, surf, l.Templates)
 		}
 		if p.err != nil {
 			return nil, fmt.Errorf("variant %q: %w", v.Name, p.err)
@@ -103,6 +100,15 @@ type paintedRegion struct {
 	err    error
 }
 
+// paintRegion paints one region's sites and finds their bounds.
+func paintRegion(r *Region, surf *lattice.Surface, templates Templates) paintedRegion {
+	var p paintedRegion
+	if p.sites, p.err = r.Sites(surf, templates); p.err == nil {
+		p.bounds = p.sites.Bounds(surf)
+	}
+	return p
+}
+
 // paintRegions paints the regions' sites on every core at once (a
 // design's large pads take most of Lay). Lay then checks them in region
 // order as it always did, painting there any region left out here, so
@@ -120,13 +126,12 @@ func paintRegions(regions []Region, surf *lattice.Surface, templates Templates) 
 				if stop.Load() {
 					return
 				}
-				p := &out[i]
-				p.sites, p.err = regions[i].Sites(surf, templates)
+				p := paintRegion(&regions[i], surf, templates)
+				out[i] = p
 				if p.err != nil {
 					stop.Store(true)
 					continue
 				}
-				p.bounds = p.sites.Bounds(surf)
 				if words.Add(int64(p.sites.StorageWords())) > MaxLayoutWords {
 					stop.Store(true)
 				}
