@@ -76,16 +76,15 @@ func (b *builder) checkRaster() error {
 }
 
 // checkRuns bounds the runs of sites of every region together, counted
-// without allocating them.
+// from the sets' words without making the runs. The error reports the
+// limit crossed by one, where counting stops, with the region that
+// crossed it.
 func checkRuns(regions []string, sets []*lattice.SiteSet) error {
 	total := 0
 	for i, set := range sets {
-		for range set.Runs() {
-			total++
-			if total > MaxRuns {
-				return &CountError{What: "runs of consecutive sites in the variant's regions", Count: float64(total), Max: MaxRuns,
-					Cause: fmt.Sprintf("counting stopped in region %q; paint whole rows rather than scattered sites, or split the design", regions[i])}
-			}
+		if total += set.RunCount(); total > MaxRuns {
+			return &CountError{What: "runs of consecutive sites in the variant's regions", Count: float64(MaxRuns + 1), Max: MaxRuns,
+				Cause: fmt.Sprintf("counting stopped in region %q; paint whole rows rather than scattered sites, or split the design", regions[i])}
 		}
 	}
 	return nil
