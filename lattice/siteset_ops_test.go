@@ -184,6 +184,9 @@ func checkAgainstRef(t *testing.T, when string, s *SiteSet, ref refSet) {
 			if first, end := s.RowRange(ter); inRow > 0 && (row < first || row >= end || end != s.RowCount(ter)) {
 				t.Fatalf("%s: T%d R%d holds sites outside RowRange %d..%d (RowCount %d)", when, ter, row, first, end, s.RowCount(ter))
 			}
+			if inRow > 0 && w.Start() < 0 {
+				t.Fatalf("%s: T%d R%d's words start at dimer %d, before the row's first", when, ter, row, w.Start())
+			}
 			n += inRow
 		}
 		if s.CountTerrace(ter) != n {
