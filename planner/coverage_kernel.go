@@ -38,16 +38,16 @@ type piece struct {
 	sReach, sQ float64
 	// sBand is an FE slanted piece's band along it, band(0, L, σ, s), as
 	// a cubic in the fraction f of each node step, c0 + f·(c1 + f·(c2 +
-	// f·c3)), between nodes s = sBand0 + i·σ/slantSteps (see
+	// f·c3)), between nodes s = sBand.s0 + i·σ/slantSteps (see
 	// newBandTable; shared by pieces of one length, footprint and reach,
 	// see bandTables): slantedRange takes it with one lookup and three
 	// products a dimer instead of two Hermite lookups in Φ's table, where
 	// its caller allows (no AP stroke reaches the range: an AP stroke's
 	// expected missed sites set the session's repair times, so every site
 	// it may write is summed from Φ's table bit for bit, as before). AP
-	// strokes' pieces have none.
-	sBand  [][4]float64
-	sBand0 float64
+	// strokes' pieces have none (nil). A pointer, not the table's slice
+	// and first node inline: 8 bytes a piece rather than 32.
+	sBand *bandTable
 	// lines caches the across factor at site lines lines0+i (0: not yet),
 	// filled on first use: decide and scan meet a piece on each line it
 	// reaches many times.
@@ -510,15 +510,17 @@ func (p *piece) slantedRange(d0, k0, k1 int, y float64, x, best []float64, who [
 	along := (u0-p.pu)*p.du + (y-p.py)*p.dy // at k0, nm
 	alongStep := h * p.du
 	// The band table's coordinate: node steps from its first node.
-	t0 := (along - p.sBand0) * slantSteps / p.sigma
+	var tab [][4]float64
+	s0 := 0.0
+	if table && p.sBand != nil {
+		tab, s0 = p.sBand.spans, p.sBand.s0
+	}
+	t0 := (along - s0) * slantSteps / p.sigma
 	tStep := alongStep * slantSteps / p.sigma
 	q := p.sQ // math.Exp(-step * step), computed once
 	// The piece's fields in locals: the loop's stores to x could alias
 	// them, so the compiler would load them again on every dimer.
-	amp, length, sigma, stroke, tab := p.amp, p.L, p.sigma, p.stroke, p.sBand
-	if !table {
-		tab = nil
-	}
+	amp, length, sigma, stroke := p.amp, p.L, p.sigma, p.stroke
 	tLast := float64(len(tab)) // 0 without a table
 	if best == nil && tab != nil {
 		// t is linear in the dimer: inside the table at both ends, it is
@@ -666,17 +668,18 @@ type bandTable struct {
 // demo's 333 FE slanted pieces have 91 distinct), so most pieces share
 // a table. It is filled before the check's workers start and only read
 // by them.
-type bandTables map[[3]float64]bandTable
+type bandTables map[[3]float64]*bandTable
 
 // tabulate gives slanted piece p its band table, made on first need.
 func (b bandTables) tabulate(p *piece) {
 	k := [3]float64{p.L, p.sigma, p.sReach}
 	t, ok := b[k]
 	if !ok {
-		t = newBandTable(p.L, p.sigma, p.sReach)
+		nt := newBandTable(p.L, p.sigma, p.sReach)
+		t = &nt
 		b[k] = t
 	}
-	p.sBand0, p.sBand = t.s0, t.spans
+	p.sBand = t
 }
 
 // slantBand returns fastPhi(b) − fastPhi(a) for a ≤ b, bit for bit, without

@@ -311,9 +311,12 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 		if len(segs) < len(whole) {
 			wix = newChordIndex(whole, rows)
 		}
-		chords := func(ix *chordIndex, c float64) []r1.Interval {
-			return slices.Clone(ix.chords(c, lattice.RowSpacing/2, 2*lattice.RowSpacing, false))
+		// chordsAt's result is ix's buffer, valid until ix's next query
+		// (wix may be ix); chords keeps a copy.
+		chordsAt := func(ix *chordIndex, c float64) []r1.Interval {
+			return ix.chords(c, lattice.RowSpacing/2, 2*lattice.RowSpacing, false)
 		}
+		chords := func(ix *chordIndex, c float64) []r1.Interval { return slices.Clone(chordsAt(ix, c)) }
 		// The outermost lines keep the side inset from the region's edge;
 		// where this terrace's part ends at a step inside the region (the
 		// region goes on just beyond its outermost row) they need not.
@@ -349,7 +352,7 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 		// and the next ones (two arrays, swapped), the shrunk chords.
 		var erodedBuf, nextBuf, shrunkBuf []r1.Interval
 		lineAt := func(c float64) []feLine {
-			eroded := append(erodedBuf[:0], ix.chords(c, lattice.RowSpacing/2, 2*lattice.RowSpacing, false)...)
+			eroded := append(erodedBuf[:0], chordsAt(ix, c)...)
 			next := nextBuf
 			for k := 0; float64(k)*lattice.RowSpacing/2 <= radius+1e-9 && len(eroded) > 0; k++ {
 				dc := float64(k) * lattice.RowSpacing / 2
@@ -361,7 +364,7 @@ func (g *strokeGen) feStrokes(region string, set *lattice.SiteSet) []Stroke {
 					// wix's chords are read before its next query
 					// overwrites them.
 					shrunk := shrunkBuf[:0]
-					for _, iv := range wix.chords(c+sgn*dc, lattice.RowSpacing/2, 2*lattice.RowSpacing, false) {
+					for _, iv := range chordsAt(wix, c+sgn*dc) {
 						if iv.Hi-h > iv.Lo+h {
 							shrunk = append(shrunk, r1.Interval{Lo: iv.Lo + h, Hi: iv.Hi - h})
 						}
