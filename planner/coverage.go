@@ -1046,7 +1046,7 @@ func (ck *coverageCheck) paintedLine(a siteRect, all []*piece, fu0, fu1 []float6
 	if ck.grid != nil && !ck.grid.holds(ck.surf, a) {
 		return false
 	}
-	if !ck.dwelled.IsEmpty() && ck.dwellIn(a) {
+	if ck.dwellIn(a) {
 		return false
 	}
 	lo, hi := 0.0, 0.0
@@ -1473,11 +1473,11 @@ func (ck *coverageCheck) noAP(active []*piece) bool {
 func (ck *coverageCheck) kneeCut(r siteRect, active []*piece, mid int) int {
 	best, bestDist := mid, -1
 	for _, p := range active {
+		if ck.strokes[p.stroke].Mode == design.ModeAP {
+			return mid // every AP piece, dots and slanted ones too
+		}
 		if p.kind == pieceSlanted || p.kind == pieceDot {
 			continue
-		}
-		if ck.strokes[p.stroke].Mode == design.ModeAP {
-			return mid
 		}
 		k := kneeSigmas * p.sigma
 		ends := [4]float64{p.c - k, p.c + k}
