@@ -109,7 +109,7 @@ type coverageCheck struct {
 	grid     *terraceGrid    // nil on a one-terrace surface
 	exist    []rowDimers     // terrace -> the dimers of each row that exist
 	allowed  []rowSpans      // [region·terraces + terrace]: allowed spans per row
-	rows     []regionExtents // [region·terraces + terrace]: run extents per row, shared by the workers (made by run)
+	rows     []regionExtents // [region·terraces + terrace]: run extents per site line, shared by the workers (made by run)
 	rowRegs  []rowRegions    // terrace -> regions with sites on each row (starts nil: not yet)
 	arena    []float64       // cached factors of decide's nested ranges
 	who      []int32         // scanLine's strokes per dimer
